@@ -1,0 +1,101 @@
+package remez
+
+// This file fixes the public API of the engine so that the chain package can be
+// written against it in parallel. Bodies are filled in by the engine's owner;
+// signatures change only by agreement.
+
+import "errors"
+
+// Band is one band of a weighted minimax design. Frequencies are in Hz.
+type Band struct {
+	Lo, Hi float64 // band edges in Hz, 0 <= Lo < Hi <= rate/2
+
+	// Gain is the desired amplitude when GainFunc is nil.
+	Gain float64
+	// GainFunc, when not nil, gives the desired amplitude at f Hz
+	// (a CIC compensator uses 1/|H_cic(f)|).
+	GainFunc func(f float64) float64
+
+	// Weight is the error weight when WeightFunc is nil. Zero means 1.
+	Weight float64
+	// WeightFunc, when not nil, gives the error weight at f Hz.
+	WeightFunc func(f float64) float64
+
+	// MaxError is used only by MinLength: the band is met when
+	// |A(f)-D(f)| * w(f) <= MaxError, where w is WeightFunc (1 when nil).
+	MaxError float64
+}
+
+// Settings tunes a design. The zero value is the documented default.
+type Settings struct {
+	// Density is the grid density: grid points per expected extremum.
+	// Zero means 16, the 1973 program's convention.
+	Density int
+	// MaxIterations bounds the exchange. Zero means 100.
+	MaxIterations int
+}
+
+// Result is a designed filter.
+type Result struct {
+	Taps       []float64 // impulse response, length n, symmetric
+	Deviations []float64 // per band: max |A(f)-D(f)| measured on the refined response
+	Delta      float64   // the levelled weighted deviation of the final reference
+	Iterations int
+	Converged  bool
+}
+
+// ErrNotImplemented is returned by stubs until the engine lands.
+var ErrNotImplemented = errors.New("remez: not implemented yet")
+
+// Design returns the length-n linear-phase (type I for odd n, type II for even n)
+// filter that minimises the weighted maximum error over bands.
+func Design(n int, rate float64, bands []Band, s Settings) (*Result, error) {
+	return nil, ErrNotImplemented
+}
+
+// MinLength returns the shortest filter that meets every band's MaxError,
+// measured on the real response with extrema refined locally. Parity, when
+// 1 or 2, restricts the search to odd (1) or even (2) lengths; 0 allows both.
+// maxTaps bounds the search (0 means 65535).
+func MinLength(rate float64, bands []Band, parity, maxTaps int, s Settings) (*Result, error) {
+	return nil, ErrNotImplemented
+}
+
+// HalfBand designs the half-band filter of length 4k-1 with passband [0, fp]
+// and stopband [rate/2-fp, rate/2] by the single-band trick: every other tap
+// is exactly zero and the centre tap is exactly 1/2.
+func HalfBand(k int, fp, rate float64, s Settings) (*Result, error) {
+	return nil, ErrNotImplemented
+}
+
+// MinHalfBand returns the half-band with the smallest k whose deviation
+// (passband and stopband alike) is at most dev.
+func MinHalfBand(fp, rate, dev float64, s Settings) (*Result, error) {
+	return nil, ErrNotImplemented
+}
+
+// Order estimates. dp and ds are linear deviations, transition and rate in Hz.
+// Each returns a filter length (taps), at least 1.
+
+// KaiserLength is Kaiser's formula.
+func KaiserLength(dp, ds, transition, rate float64) int { return 0 }
+
+// HerrmannLength is the Herrmann-Rabiner-Chan (1973) formula.
+func HerrmannLength(dp, ds, transition, rate float64) int { return 0 }
+
+// BellangerLength is Bellanger's formula.
+func BellangerLength(dp, ds, transition, rate float64) int { return 0 }
+
+// HerrmannD is Herrmann-Rabiner-Chan's D-infinity(dp, ds).
+func HerrmannD(dp, ds float64) float64 { return 0 }
+
+// HerrmannF is Herrmann-Rabiner-Chan's f(dp, ds).
+func HerrmannF(dp, ds float64) float64 { return 0 }
+
+// Magnitude returns |H(f)| of the filter h at f Hz for a sample rate rate,
+// evaluated directly.
+func Magnitude(h []float64, f, rate float64) float64 { return 0 }
+
+// MagnitudeGrid writes |H| at len(dst) evenly spaced frequencies from 0 to
+// rate/2 inclusive into dst, through an FFT. It allocates nothing when work
+// is at least WorkLen(len(h), len(dst)) long... (owner: finalise the signature).
