@@ -1,0 +1,210 @@
+package units
+
+import (
+	"fmt"
+	"math"
+	"strconv"
+	"strings"
+)
+
+// Kind is the dimension of a quantity.
+type Kind int
+
+const (
+	// Frequency is a frequency or sample rate in Hz.
+	Frequency Kind = iota
+	// Level is a level or ratio in dB.
+	Level
+)
+
+// String returns "frequency" or "level".
+func (k Kind) String() string {
+	if k == Level {
+		return "level"
+	}
+	return "frequency"
+}
+
+// Error is a quantity that does not parse. Its message quotes the value and
+// states the rule it breaks; callers prefix the field name.
+type Error struct {
+	Value string // the text as given
+	Rule  string // what the value breaks
+}
+
+func (e *Error) Error() string { return fmt.Sprintf("%q: %s", e.Value, e.Rule) }
+
+// ParseFrequency parses a frequency in Hz: "45", "45 Hz", "1.2 MHz", "2.5GHz".
+func ParseFrequency(s string) (float64, error) { return Parse(s, Frequency) }
+
+// ParseLevel parses a level in dB: "85", "85 dB", "0.1dB".
+func ParseLevel(s string) (float64, error) { return Parse(s, Level) }
+
+// Parse parses s as a quantity of kind k and returns it in the base unit
+// (Hz or dB). The result is always finite.
+func Parse(s string, k Kind) (float64, error) {
+	t := strings.TrimSpace(s)
+	if t == "" {
+		return 0, &Error{s, "empty; want a number" + unitHint(k)}
+	}
+	// The unit is the trailing run of letters and slashes; the rest is the number.
+	i := len(t)
+	for i > 0 && isUnitByte(t[i-1]) {
+		i--
+	}
+	num, unit := strings.TrimSpace(t[:i]), t[i:]
+	if num == "" {
+		return 0, &Error{s, "not a number; want a number" + unitHint(k)}
+	}
+	if !isDecimal(num) {
+		return 0, &Error{s, fmt.Sprintf("%q is not a decimal number", num)}
+	}
+	shift, rule := unitShift(unit, k)
+	if rule != "" {
+		return 0, &Error{s, rule}
+	}
+	// Shift the decimal exponent rather than multiply, so that "245.76 MHz" is
+	// exactly the double nearest 245760000 and rate ratios stay integers.
+	if shift != 0 {
+		mant, exp := num, 0
+		if j := strings.IndexAny(num, "eE"); j >= 0 {
+			e, err := strconv.Atoi(num[j+1:])
+			if err != nil {
+				return 0, &Error{s, "out of range for a 64-bit float"}
+			}
+			mant, exp = num[:j], e
+		}
+		num = mant + "e" + strconv.Itoa(exp+shift)
+	}
+	v, err := strconv.ParseFloat(num, 64)
+	if err != nil || math.IsInf(v, 0) || math.IsNaN(v) {
+		return 0, &Error{s, "out of range for a 64-bit float"}
+	}
+	return v, nil
+}
+
+// CheckFinite reports an error for a NaN or infinite number that came from
+// somewhere other than text (a TOML float, say).
+func CheckFinite(v float64) error {
+	if math.IsNaN(v) || math.IsInf(v, 0) {
+		return &Error{strconv.FormatFloat(v, 'g', -1, 64), "not a finite number"}
+	}
+	return nil
+}
+
+func unitHint(k Kind) string {
+	if k == Level {
+		return ", optionally followed by dB"
+	}
+	return ", optionally followed by Hz, kHz, MHz or GHz"
+}
+
+func isUnitByte(c byte) bool {
+	return c == '/' || ('a' <= c && c <= 'z') || ('A' <= c && c <= 'Z')
+}
+
+// isDecimal reports whether s is [+-]digits[.digits][(e|E)[+-]digits] with at
+// least one digit in the mantissa.
+func isDecimal(s string) bool {
+	i := 0
+	if i < len(s) && (s[i] == '+' || s[i] == '-') {
+		i++
+	}
+	digits := 0
+	for i < len(s) && isDigit(s[i]) {
+		i++
+		digits++
+	}
+	if i < len(s) && s[i] == '.' {
+		i++
+		for i < len(s) && isDigit(s[i]) {
+			i++
+			digits++
+		}
+	}
+	if digits == 0 {
+		return false
+	}
+	if i < len(s) && (s[i] == 'e' || s[i] == 'E') {
+		i++
+		if i < len(s) && (s[i] == '+' || s[i] == '-') {
+			i++
+		}
+		exp := 0
+		for i < len(s) && isDigit(s[i]) {
+			i++
+			exp++
+		}
+		if exp == 0 {
+			return false
+		}
+	}
+	return i == len(s)
+}
+
+func isDigit(c byte) bool { return '0' <= c && c <= '9' }
+
+// unitShift returns the power of ten to the base unit, or a rule the unit breaks.
+func unitShift(u string, k Kind) (int, string) {
+	if k == Level {
+		switch {
+		case u == "", strings.EqualFold(u, "dB"):
+			return 0, ""
+		}
+		return 0, fmt.Sprintf("unknown unit %q for a level (want dB or a plain number)", u)
+	}
+	if u == "" {
+		return 0, ""
+	}
+	if strings.EqualFold(u, "hz") {
+		return 0, ""
+	}
+	if len(u) == 3 && strings.EqualFold(u[1:], "hz") {
+		switch u[0] {
+		case 'k', 'K':
+			return 3, ""
+		case 'M':
+			return 6, ""
+		case 'G', 'g':
+			return 9, ""
+		case 'm':
+			return 0, fmt.Sprintf("unit %q would be millihertz, which stepdown does not take; write MHz for megahertz", u)
+		}
+	}
+	switch u {
+	case "k", "K", "M", "m", "G", "g":
+		return 0, fmt.Sprintf("bare prefix %q; spell the unit out (%sHz)", u, canonicalPrefix(u))
+	}
+	return 0, fmt.Sprintf("unknown unit %q for a frequency (want Hz, kHz, MHz, GHz or a plain number in Hz)", u)
+}
+
+func canonicalPrefix(u string) string {
+	switch u {
+	case "k", "K":
+		return "k"
+	case "G", "g":
+		return "G"
+	}
+	return "M"
+}
+
+// FormatFrequency writes hz with the largest unit that keeps it at or above 1,
+// in the shortest form that parses back to the same value: 1.92e6 -> "1.92 MHz".
+func FormatFrequency(hz float64) string {
+	a := math.Abs(hz)
+	unit, scale := "Hz", 1.0
+	switch {
+	case a >= 1e9:
+		unit, scale = "GHz", 1e9
+	case a >= 1e6:
+		unit, scale = "MHz", 1e6
+	case a >= 1e3:
+		unit, scale = "kHz", 1e3
+	}
+	v := hz / scale
+	// Prefer the scaled form only when it round-trips exactly.
+	if back, err := ParseFrequency(strconv.FormatFloat(v, 'g', -1, 64) + " " + unit); err != nil || back != hz {
+		return strconv.FormatFloat(hz, 'g', -1, 64) + " Hz"
+	}
+	return strconv.FormatFloat(v, 'g', -1, 64) + " " + unit
+}

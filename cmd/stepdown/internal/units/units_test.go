@@ -1,0 +1,193 @@
+package units
+
+import (
+	"errors"
+	"fmt"
+	"math"
+	"strings"
+	"testing"
+)
+
+// The expected values are SI prefix definitions (kilo 1e3, mega 1e6, giga 1e9);
+// they are exact, so the tolerance is zero: "245.76 MHz" must be the double
+// nearest 245760000, or integer rate ratios would break.
+func TestParseFrequency(t *testing.T) {
+	for _, tc := range []struct {
+		in   string
+		want float64
+	}{
+		{"45", 45},
+		{"45 Hz", 45},
+		{"45Hz", 45},
+		{" 45 hz ", 45},
+		{"45 HZ", 45},
+		{"1.2 MHz", 1.2e6},
+		{"1.2MHz", 1.2e6},
+		{"1.2 MHZ", 1.2e6},
+		{"600 kHz", 600e3},
+		{"600 KHz", 600e3},
+		{"600 khz", 600e3},
+		{"2.5 GHz", 2.5e9},
+		{"2.5 ghz", 2.5e9},
+		{"245.76 MHz", 245760000},
+		{"122.88 MHz", 122880000},
+		{"1.92 MHz", 1920000},
+		{"491.52 MHz", 491520000},
+		{"1e6", 1e6},
+		{"1e3 kHz", 1e6},
+		{"1.5E-3 MHz", 1500},
+		{".5 kHz", 500},
+		{"5. kHz", 5000},
+		{"+3", 3},
+		{"-3 kHz", -3000},
+		{"0", 0},
+	} {
+		got, err := ParseFrequency(tc.in)
+		if err != nil {
+			t.Errorf("ParseFrequency(%q): unexpected error %v", tc.in, err)
+			continue
+		}
+		if got != tc.want {
+			t.Errorf("ParseFrequency(%q) = %v, want %v", tc.in, got, tc.want)
+		}
+	}
+}
+
+func TestParseLevel(t *testing.T) {
+	for _, tc := range []struct {
+		in   string
+		want float64
+	}{
+		{"85", 85},
+		{"85 dB", 85},
+		{"85dB", 85},
+		{"0.1 dB", 0.1},
+		{"0.1 db", 0.1},
+		{"0.1 DB", 0.1},
+		{"-3 dB", -3},
+	} {
+		got, err := ParseLevel(tc.in)
+		if err != nil {
+			t.Errorf("ParseLevel(%q): unexpected error %v", tc.in, err)
+			continue
+		}
+		if got != tc.want {
+			t.Errorf("ParseLevel(%q) = %v, want %v", tc.in, got, tc.want)
+		}
+	}
+}
+
+func TestParseErrors(t *testing.T) {
+	for _, tc := range []struct {
+		in   string
+		kind Kind
+		rule string // a fragment the message must contain
+	}{
+		{"", Frequency, "empty"},
+		{"   ", Frequency, "empty"},
+		{"abc", Frequency, "not a number"},
+		{"NaN", Frequency, "not a number"},
+		{"nan", Level, "not a number"},
+		{"Inf", Frequency, "not a number"},
+		{"+Inf", Frequency, "not a decimal number"},
+		{"-infinity", Level, "not a decimal number"},
+		{"0x10", Frequency, "not a decimal number"},
+		{"1_000", Frequency, "not a decimal number"},
+		{"1.2.3", Frequency, "not a decimal number"},
+		{"1e", Frequency, "unknown unit"},
+		{"1e+ Hz", Frequency, "not a decimal number"},
+		{"1e400", Frequency, "out of range"},
+		{"1e300 GHz", Frequency, "out of range"},
+		{"1e99999999999999999999 Hz", Frequency, "out of range"},
+		{"1.2 XHz", Frequency, "unknown unit \"XHz\""},
+		{"1.2 M", Frequency, "bare prefix"},
+		{"45k", Frequency, "bare prefix"},
+		{"1.2 mHz", Frequency, "millihertz"},
+		{"1.2 mhz", Frequency, "millihertz"},
+		{"1.2 THz", Frequency, "unknown unit"},
+		{"45 dB", Frequency, "unknown unit \"dB\""},
+		{"45 Hz", Level, "unknown unit \"Hz\""},
+		{"45 dBc", Level, "unknown unit"},
+		{"1 2", Frequency, "not a decimal number"},
+	} {
+		_, err := Parse(tc.in, tc.kind)
+		if err == nil {
+			t.Errorf("Parse(%q, %v): no error", tc.in, tc.kind)
+			continue
+		}
+		var ue *Error
+		if !errors.As(err, &ue) || ue.Value != tc.in {
+			t.Errorf("Parse(%q, %v): error %v does not carry the value", tc.in, tc.kind, err)
+		}
+		if !strings.Contains(err.Error(), tc.rule) || strings.Contains(err.Error(), "\n") {
+			t.Errorf("Parse(%q, %v): error %q, want one line containing %q", tc.in, tc.kind, err, tc.rule)
+		}
+	}
+}
+
+func TestCheckFinite(t *testing.T) {
+	if CheckFinite(1) != nil {
+		t.Error("CheckFinite(1): unexpected error")
+	}
+	for _, v := range []float64{math.NaN(), math.Inf(1), math.Inf(-1)} {
+		if CheckFinite(v) == nil {
+			t.Errorf("CheckFinite(%v): no error", v)
+		}
+	}
+}
+
+func TestFormatFrequency(t *testing.T) {
+	for _, tc := range []struct {
+		in   float64
+		want string
+	}{
+		{45, "45 Hz"},
+		{600e3, "600 kHz"},
+		{1.92e6, "1.92 MHz"},
+		{245.76e6, "245.76 MHz"},
+		{2.5e9, "2.5 GHz"},
+		{0, "0 Hz"},
+	} {
+		if got := FormatFrequency(tc.in); got != tc.want {
+			t.Errorf("FormatFrequency(%v) = %q, want %q", tc.in, got, tc.want)
+		}
+	}
+}
+
+// FuzzParseQuantity checks that no text panics the parser, that every accepted
+// value is finite, and that formatting a parsed frequency parses back to the
+// same value.
+func FuzzParseQuantity(f *testing.F) {
+	for _, s := range []string{"45", "45 Hz", "1.2 MHz", "0.1 dB", "85 dB", "1e300 GHz", "mHz", "-0", ".5e-3kHz"} {
+		f.Add(s)
+	}
+	f.Fuzz(func(t *testing.T, s string) {
+		for _, k := range []Kind{Frequency, Level} {
+			v, err := Parse(s, k)
+			if err != nil {
+				if strings.Contains(err.Error(), "\n") && !strings.Contains(s, "\n") {
+					t.Fatalf("Parse(%q): multi-line error %q", s, err)
+				}
+				continue
+			}
+			if math.IsNaN(v) || math.IsInf(v, 0) {
+				t.Fatalf("Parse(%q, %v) = %v, not finite", s, k, v)
+			}
+			if k == Frequency {
+				back, err := ParseFrequency(FormatFrequency(v))
+				if err != nil || back != v {
+					t.Fatalf("FormatFrequency(%v) = %q parses back to %v, %v", v, FormatFrequency(v), back, err)
+				}
+			}
+		}
+	})
+}
+
+func ExampleParseFrequency() {
+	hz, err := ParseFrequency("245.76 MHz")
+	if err != nil {
+		panic(err)
+	}
+	fmt.Println(hz, FormatFrequency(hz))
+	// Output: 2.4576e+08 245.76 MHz
+}
