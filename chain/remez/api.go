@@ -1,8 +1,7 @@
 package remez
 
-// This file fixes the public API of the engine so that the chain package can be
-// written against it in parallel. Bodies are filled in by the engine's owner;
-// signatures change only by agreement.
+// The types of the public API. The estimators are in estimate.go, response
+// evaluation in response.go and the engine in design.go.
 
 import "errors"
 
@@ -73,29 +72,3 @@ func HalfBand(k int, fp, rate float64, s Settings) (*Result, error) {
 func MinHalfBand(fp, rate, dev float64, s Settings) (*Result, error) {
 	return nil, ErrNotImplemented
 }
-
-// Order estimates. dp and ds are linear deviations, transition and rate in Hz.
-// Each returns a filter length (taps), at least 1.
-
-// KaiserLength is Kaiser's formula.
-func KaiserLength(dp, ds, transition, rate float64) int { return 0 }
-
-// HerrmannLength is the Herrmann-Rabiner-Chan (1973) formula.
-func HerrmannLength(dp, ds, transition, rate float64) int { return 0 }
-
-// BellangerLength is Bellanger's formula.
-func BellangerLength(dp, ds, transition, rate float64) int { return 0 }
-
-// HerrmannD is Herrmann-Rabiner-Chan's D-infinity(dp, ds).
-func HerrmannD(dp, ds float64) float64 { return 0 }
-
-// HerrmannF is Herrmann-Rabiner-Chan's f(dp, ds).
-func HerrmannF(dp, ds float64) float64 { return 0 }
-
-// Magnitude returns |H(f)| of the filter h at f Hz for a sample rate rate,
-// evaluated directly.
-func Magnitude(h []float64, f, rate float64) float64 { return 0 }
-
-// MagnitudeGrid writes |H| at len(dst) evenly spaced frequencies from 0 to
-// rate/2 inclusive into dst, through an FFT. It allocates nothing when work
-// is at least WorkLen(len(h), len(dst)) long... (owner: finalise the signature).
