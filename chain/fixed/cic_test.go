@@ -1,0 +1,53 @@
+package fixed
+
+import "testing"
+
+func TestPruneCICHogenauer(t *testing.T) {
+	// Hogenauer (1981), pruning example: N = 4, R = 25, M = 1, 16-bit input
+	// and output: Bmax = 34 (width 35), bits dropped at registers 1..8 =
+	// 1, 6, 9, 13, 14, 15, 16, 17 and 19 at the output (REFERENCES.md:
+	// computed from his equations; the first eight match his table, from memory).
+	p, err := PruneCIC(4, 1, 25, 16, 16)
+	if err != nil {
+		t.Fatal(err)
+	}
+	if p.FullBits != 35 {
+		t.Errorf("FullBits = %d, want 35 (Bmax 34)", p.FullBits)
+	}
+	want := []int{1, 6, 9, 13, 14, 15, 16, 17, 19}
+	for j, w := range want {
+		if p.Dropped[j] != w {
+			t.Errorf("register %d drops %d bits, want %d", j+1, p.Dropped[j], w)
+		}
+	}
+}
+
+func TestCICVarianceCombs(t *testing.T) {
+	// Hogenauer (1981): comb-only variance factors F^2 for 1..7 combs are
+	// the central binomials 2, 6, 20, 70, 252, 924, 3432 (REFERENCES.md).
+	want := []float64{2, 6, 20, 70, 252, 924, 3432}
+	for c, w := range want {
+		n := 7
+		j := 2*n + 1 - (c + 1) // register with c+1 combs after it
+		if got := cicVarianceFactor(n, 8, j); got != w {
+			t.Errorf("%d combs: F^2 = %g, want %g", c+1, got, w)
+		}
+	}
+}
+
+func TestCICWidthTextbook(t *testing.T) {
+	// N = 3, R = 8, M = 1, 12-bit input: gain 512, 21-bit registers
+	// (REFERENCES.md, common textbook example).
+	p, err := PruneCIC(3, 1, 8, 12, 21)
+	if err != nil {
+		t.Fatal(err)
+	}
+	if p.FullBits != 21 || p.Gain() != 1 {
+		t.Errorf("FullBits %d gain %g, want 21 and 1", p.FullBits, p.Gain())
+	}
+	for j, d := range p.Dropped {
+		if d != 0 {
+			t.Errorf("full-width output: register %d drops %d bits, want 0", j+1, d)
+		}
+	}
+}

@@ -1,0 +1,479 @@
+package fixed
+
+import (
+	"fmt"
+	"math"
+	"sort"
+
+	"stepdown/chain/remez"
+)
+
+// Coefficients is a set of filter taps in two's-complement fixed point.
+// The real value of tap k is Ints[k] * 2^-Frac. Every Ints[k] lies in
+// [-(2^(Bits-1)-1), 2^(Bits-1)-1]: the most negative code is left unused so
+// that negating a coefficient can never overflow.
+type Coefficients struct {
+	Bits int     // word width in bits, sign included
+	Frac int     // fractional bits; may exceed Bits-1 for small taps, or be negative for taps of 2^(Bits-1) or more
+	Ints []int64 // the full impulse response, zeros included
+
+	// Adjusted counts the taps (a symmetric pair counts once) that the local
+	// search moved off plain rounding. Zero means plain rounding.
+	Adjusted int
+}
+
+// Float returns the real values of the coefficients.
+func (c Coefficients) Float() []float64 {
+	out := make([]float64, len(c.Ints))
+	s := math.Ldexp(1, -c.Frac)
+	for k, v := range c.Ints {
+		out[k] = float64(v) * s
+	}
+	return out
+}
+
+// AbsSum returns the sum of |Ints[k]|, the worst-case gain in integer units.
+func (c Coefficients) AbsSum() int64 {
+	var s int64
+	for _, v := range c.Ints {
+		if v < 0 {
+			s -= v
+		} else {
+			s += v
+		}
+	}
+	return s
+}
+
+// MaxBits is the widest coefficient word the package handles, so that every
+// product and accumulator of the data path fits an int64.
+const MaxBits = 40
+
+// fracFor returns the largest Frac at which round(maxAbs*2^Frac) still fits
+// bits-bit two's complement without its most negative code.
+func fracFor(maxAbs float64, bits int) int {
+	if maxAbs == 0 || math.IsNaN(maxAbs) || math.IsInf(maxAbs, 0) {
+		return bits - 1
+	}
+	_, e := math.Frexp(maxAbs) // maxAbs in [2^(e-1), 2^e)
+	f := bits - 1 - e
+	lim := math.Ldexp(1, bits-1) - 1
+	for math.Round(math.Ldexp(maxAbs, f)) > lim {
+		f--
+	}
+	return f
+}
+
+// Quantize rounds taps to bits-bit coefficients, each to the nearest code
+// (halves away from zero, so a symmetric filter stays symmetric). The scale
+// is the power of two 2^Frac that puts the largest |tap| in the top code range:
+// Frac = Bits-1 (format Q1.(Bits-1)) for taps in [1/2, 1), more fractional
+// bits for smaller taps, and fewer (integer headroom) when max|tap| >= 1.
+// A half-band's centre of exactly 1/2 becomes 2^(Frac-1), a power of two,
+// and its zero taps stay zero. It panics if bits is outside [2, MaxBits].
+func Quantize(taps []float64, bits int) Coefficients {
+	if bits < 2 || bits > MaxBits {
+		panic(fmt.Sprintf("fixed: Quantize with %d bits, outside [2, %d]", bits, MaxBits))
+	}
+	maxAbs := 0.0
+	for _, t := range taps {
+		maxAbs = math.Max(maxAbs, math.Abs(t))
+	}
+	f := fracFor(maxAbs, bits)
+	c := Coefficients{Bits: bits, Frac: f, Ints: make([]int64, len(taps))}
+	for k, t := range taps {
+		c.Ints[k] = int64(math.Round(math.Ldexp(t, f)))
+	}
+	return c
+}
+
+// IsHalfBand reports whether taps look like a half-band filter: odd length
+// 4K-1, centre 1/2 and every other tap (even offsets from the centre) zero,
+// within tol (zero means 1e-9).
+func IsHalfBand(taps []float64, tol float64) bool {
+	if tol == 0 {
+		tol = 1e-9
+	}
+	n := len(taps)
+	if n < 3 || n%4 != 3 {
+		return false
+	}
+	c := n / 2
+	if math.Abs(taps[c]-0.5) > tol {
+		return false
+	}
+	for k := 2; k <= c; k += 2 {
+		if math.Abs(taps[c-k]) > tol || math.Abs(taps[c+k]) > tol {
+			return false
+		}
+	}
+	return true
+}
+
+// QuantizeHalfBand is Quantize for a half-band filter: the zero taps are set
+// to exactly zero and the centre to exactly 2^(Frac-1), whatever tiny
+// floating-point residue the design left. It returns an error when taps are
+// not a half-band (see IsHalfBand with tolerance 1e-6).
+func QuantizeHalfBand(taps []float64, bits int) (Coefficients, error) {
+	if !IsHalfBand(taps, 1e-6) {
+		return Coefficients{}, fmt.Errorf("fixed: taps of length %d are not a half-band (length 4K-1, centre 1/2, every other tap zero)", len(taps))
+	}
+	c := Quantize(taps, bits)
+	mid := len(taps) / 2
+	for k := 2; k <= mid; k += 2 {
+		c.Ints[mid-k], c.Ints[mid+k] = 0, 0
+	}
+	c.Ints[mid] = int64(1) << (c.Frac - 1)
+	return c, nil
+}
+
+// Amplitude returns the zero-phase amplitude A(f) of a symmetric filter h at
+// f Hz for sample rate rate: H(f) = exp(-j pi f (n-1)/rate) A(f), |H| = |A|.
+func Amplitude(h []float64, f, rate float64) float64 {
+	n := len(h)
+	w := 2 * math.Pi * f / rate
+	c := float64(n-1) / 2
+	var a float64
+	for k := 0; k < n/2; k++ {
+		a += (h[k] + h[n-1-k]) * math.Cos(w*(float64(k)-c))
+	}
+	if n%2 == 1 {
+		a += h[n/2]
+	}
+	return a
+}
+
+// magnitude returns |H(f)| for any h, symmetric or not.
+func magnitude(h []float64, f, rate float64) float64 {
+	w := 2 * math.Pi * f / rate
+	var re, im float64
+	for k, v := range h {
+		s, c := math.Sincos(w * float64(k))
+		re += v * c
+		im -= v * s
+	}
+	return math.Hypot(re, im)
+}
+
+func symmetric(h []float64) bool {
+	n := len(h)
+	for k := 0; k < n/2; k++ {
+		if h[k] != h[n-1-k] {
+			return false
+		}
+	}
+	return true
+}
+
+// bandErr is the weighted error of band b at f for amplitude a.
+func bandErr(b *remez.Band, f, a float64) float64 {
+	d := b.Gain
+	if b.GainFunc != nil {
+		d = b.GainFunc(f)
+	}
+	w := 1.0
+	if b.WeightFunc != nil {
+		w = b.WeightFunc(f)
+	}
+	return math.Abs(math.Abs(a)-d) * w
+}
+
+// Deviations returns, per band, the largest weighted error
+// | |H(f)| - D(f) | * w(f) of the filter h, with w = WeightFunc (1 when nil,
+// as for remez.Band.MaxError), measured on a dense grid with every local
+// maximum refined by golden-section search. density is the number of grid
+// points per expected extremum; zero means 16.
+func Deviations(h []float64, rate float64, bands []remez.Band, density int) []float64 {
+	if density <= 0 {
+		density = 16
+	}
+	eval := func(f float64) float64 { return magnitude(h, f, rate) }
+	if symmetric(h) {
+		eval = func(f float64) float64 { return Amplitude(h, f, rate) }
+	}
+	out := make([]float64, len(bands))
+	for i := range bands {
+		b := &bands[i]
+		fs := bandGrid(b, len(h), rate, density)
+		es := make([]float64, len(fs))
+		for j, f := range fs {
+			es[j] = bandErr(b, f, eval(f))
+		}
+		m := 0.0
+		for j := range fs {
+			if (j > 0 && es[j] < es[j-1]) || (j+1 < len(fs) && es[j] < es[j+1]) {
+				continue
+			}
+			m = math.Max(m, es[j])
+			lo, hi := fs[max(j-1, 0)], fs[min(j+1, len(fs)-1)]
+			if hi > lo {
+				m = math.Max(m, goldenMax(func(f float64) float64 { return bandErr(b, f, eval(f)) }, lo, hi))
+			}
+		}
+		out[i] = m
+	}
+	return out
+}
+
+// bandGrid returns the evaluation grid of one band, edges included.
+func bandGrid(b *remez.Band, n int, rate float64, density int) []float64 {
+	ext := float64(n) * (b.Hi - b.Lo) / rate
+	pts := int(math.Ceil(ext*float64(density))) + 9
+	fs := make([]float64, pts)
+	for j := range fs {
+		fs[j] = b.Lo + (b.Hi-b.Lo)*float64(j)/float64(pts-1)
+	}
+	return fs
+}
+
+// goldenMax returns the largest value of g found by golden-section search on [lo, hi].
+func goldenMax(g func(float64) float64, lo, hi float64) float64 {
+	const r = 0.6180339887498949
+	a, b := lo, hi
+	x1, x2 := b-r*(b-a), a+r*(b-a)
+	g1, g2 := g(x1), g(x2)
+	best := math.Max(math.Max(g(lo), g(hi)), math.Max(g1, g2))
+	for it := 0; it < 40 && b-a > 1e-12*(hi-lo+1); it++ {
+		if g1 > g2 {
+			b, x2, g2 = x2, x1, g1
+			x1 = b - r*(b-a)
+			g1 = g(x1)
+			best = math.Max(best, g1)
+		} else {
+			a, x1, g1 = x1, x2, g2
+			x2 = a + r*(b-a)
+			g2 = g(x2)
+			best = math.Max(best, g2)
+		}
+	}
+	return best
+}
+
+// Meets reports whether every band's deviation is at most its MaxError.
+func Meets(dev []float64, bands []remez.Band) bool {
+	for i := range bands {
+		if dev[i] > bands[i].MaxError {
+			return false
+		}
+	}
+	return true
+}
+
+// QuantSettings tunes MinCoefBits. The zero value is the documented default.
+type QuantSettings struct {
+	// MinBits and MaxBits bound the widths tried. Zero means 2 and 32.
+	MinBits, MaxBits int
+	// Budget is the number of trial moves the local search may make at each
+	// width before a bit is added. Zero means 64; negative disables the search.
+	Budget int
+	// HalfBand keeps the zero taps zero and the centre a power of two
+	// (QuantizeHalfBand); the search then moves only the non-zero side taps.
+	HalfBand bool
+	// Density is the grid density of the measurement; zero means 16.
+	Density int
+}
+
+// ErrNoWidth is wrapped by MinCoefBits when no width up to MaxBits meets the bands.
+var ErrNoWidth = fmt.Errorf("fixed: no coefficient width meets the bands")
+
+// MinCoefBits returns the narrowest coefficients that meet every band's
+// MaxError, measured on the quantised response (Deviations). At each width
+// it first tries plain rounding (Quantize or QuantizeHalfBand); if that fails
+// it runs a small local search: the taps with the largest rounding error are
+// tried, one symmetric pair at a time, at their other rounding (the code on
+// the far side of the real value); a move is kept when it lowers the worst
+// band's error relative to its MaxError on the grid. The search stops at
+// Settings.Budget trial moves, and only then is a bit added. The returned
+// deviations are the measured per-band errors of the result.
+func MinCoefBits(taps []float64, rate float64, bands []remez.Band, s QuantSettings) (Coefficients, []float64, error) {
+	if s.MinBits == 0 {
+		s.MinBits = 2
+	}
+	if s.MaxBits == 0 {
+		s.MaxBits = 32
+	}
+	if s.Budget == 0 {
+		s.Budget = 64
+	}
+	if s.MinBits < 2 || s.MaxBits > MaxBits || s.MinBits > s.MaxBits {
+		return Coefficients{}, nil, fmt.Errorf("fixed: coefficient widths [%d, %d] must lie within [2, %d]", s.MinBits, s.MaxBits, MaxBits)
+	}
+	if len(taps) == 0 {
+		return Coefficients{}, nil, fmt.Errorf("fixed: no taps to quantise")
+	}
+	for i, b := range bands {
+		if !(b.MaxError > 0) {
+			return Coefficients{}, nil, fmt.Errorf("fixed: band %d [%g, %g] Hz has MaxError %g; it must be > 0", i, b.Lo, b.Hi, b.MaxError)
+		}
+	}
+	if s.HalfBand && !IsHalfBand(taps, 1e-6) {
+		return Coefficients{}, nil, fmt.Errorf("fixed: taps of length %d are not a half-band", len(taps))
+	}
+	var best []float64
+	for bits := s.MinBits; bits <= s.MaxBits; bits++ {
+		c, dev, ok := tryWidth(taps, rate, bands, bits, s)
+		if ok {
+			return c, dev, nil
+		}
+		best = dev
+	}
+	return Coefficients{}, best, fmt.Errorf("%w up to %d bits (deviations at %d bits: %v)", ErrNoWidth, s.MaxBits, s.MaxBits, best)
+}
+
+// TryWidth quantises taps at exactly bits and runs the same local search as
+// MinCoefBits at that width. ok reports whether the result meets the bands.
+func TryWidth(taps []float64, rate float64, bands []remez.Band, bits int, s QuantSettings) (c Coefficients, dev []float64, ok bool) {
+	if s.Budget == 0 {
+		s.Budget = 64
+	}
+	return tryWidth(taps, rate, bands, bits, s)
+}
+
+func tryWidth(taps []float64, rate float64, bands []remez.Band, bits int, s QuantSettings) (Coefficients, []float64, bool) {
+	var c Coefficients
+	if s.HalfBand {
+		var err error
+		if c, err = QuantizeHalfBand(taps, bits); err != nil {
+			panic(err) // checked by the caller
+		}
+	} else {
+		c = Quantize(taps, bits)
+	}
+	dev := Deviations(c.Float(), rate, bands, s.Density)
+	if Meets(dev, bands) || s.Budget < 0 {
+		return c, dev, Meets(dev, bands)
+	}
+	ls := newSearch(taps, rate, bands, c, s)
+	for ls.run() {
+		dev = Deviations(ls.c.Float(), rate, bands, s.Density)
+		if Meets(dev, bands) {
+			ls.c.Adjusted = offRounding(ls.c, c)
+			return ls.c, dev, true
+		}
+	}
+	ls.c.Adjusted = offRounding(ls.c, c)
+	return ls.c, dev, false
+}
+
+// search is the local search on the rounding of one width.
+type search struct {
+	c      Coefficients
+	bands  []remez.Band
+	freqs  []float64 // grid, all bands
+	band   []int     // band index of each grid point
+	a      []float64 // amplitude on the grid
+	cand   []int     // indices k < n/2 (or the centre) in trial order
+	other  []int64   // the other rounding of each candidate
+	budget int
+	next   int
+	n      int
+	rate   float64
+}
+
+func newSearch(taps []float64, rate float64, bands []remez.Band, c Coefficients, s QuantSettings) *search {
+	n := len(taps)
+	ls := &search{c: c, bands: bands, budget: s.Budget, n: n, rate: rate}
+	ls.c.Ints = append([]int64(nil), c.Ints...)
+	density := s.Density
+	if density <= 0 {
+		density = 16
+	}
+	for i := range bands {
+		for _, f := range bandGrid(&bands[i], n, rate, density) {
+			ls.freqs = append(ls.freqs, f)
+			ls.band = append(ls.band, i)
+		}
+	}
+	h := c.Float()
+	ls.a = make([]float64, len(ls.freqs))
+	for j, f := range ls.freqs {
+		ls.a[j] = Amplitude(h, f, rate)
+	}
+	type cand struct {
+		k   int
+		err float64
+	}
+	var cs []cand
+	mid := n / 2
+	for k := 0; k < (n+1)/2; k++ {
+		if s.HalfBand && (k == mid || (mid-k)%2 == 0) {
+			continue
+		}
+		x := math.Ldexp(taps[k], c.Frac)
+		cs = append(cs, cand{k, math.Abs(x - float64(c.Ints[k]))})
+	}
+	sort.SliceStable(cs, func(i, j int) bool { return cs[i].err > cs[j].err })
+	lim := int64(1)<<(c.Bits-1) - 1
+	for _, v := range cs {
+		x := math.Ldexp(taps[v.k], c.Frac)
+		o := int64(math.Floor(x))
+		if o == c.Ints[v.k] {
+			o = int64(math.Ceil(x))
+		}
+		if o == c.Ints[v.k] || o > lim || o < -lim {
+			continue
+		}
+		ls.cand = append(ls.cand, v.k)
+		ls.other = append(ls.other, o)
+	}
+	return ls
+}
+
+// score is the worst band error relative to its MaxError on the grid.
+func (ls *search) score() float64 {
+	m := 0.0
+	for j, f := range ls.freqs {
+		b := &ls.bands[ls.band[j]]
+		m = math.Max(m, bandErr(b, f, ls.a[j])/b.MaxError)
+	}
+	return m
+}
+
+// move adds d codes to tap k (and its mirror) and updates the grid amplitude.
+func (ls *search) move(k int, d int64) {
+	n := ls.n
+	c := float64(n-1) / 2
+	step := float64(d) * math.Ldexp(1, -ls.c.Frac)
+	ls.c.Ints[k] += d
+	if k != n-1-k {
+		ls.c.Ints[n-1-k] += d
+		step *= 2
+	}
+	for j, f := range ls.freqs {
+		ls.a[j] += step * math.Cos(2*math.Pi*f/ls.rate*(float64(k)-c))
+	}
+}
+
+// run makes trial moves until one lowers the score; it reports false when the
+// budget or the candidates are exhausted.
+func (ls *search) run() bool {
+	cur := ls.score()
+	for ls.budget > 0 && len(ls.cand) > 0 {
+		if ls.next >= len(ls.cand) {
+			ls.next = 0
+		}
+		i := ls.next
+		ls.next++
+		ls.budget--
+		k := ls.cand[i]
+		d := ls.other[i] - ls.c.Ints[k]
+		ls.move(k, d)
+		if sc := ls.score(); sc < cur {
+			ls.other[i] -= d // its other rounding is now the previous code
+			return true
+		}
+		ls.move(k, -d)
+	}
+	return false
+}
+
+// offRounding counts the taps (a symmetric pair once) where c differs from plain.
+func offRounding(c, plain Coefficients) int {
+	n, m := len(c.Ints), 0
+	for k := 0; k < (n+1)/2; k++ {
+		if c.Ints[k] != plain.Ints[k] {
+			m++
+		}
+	}
+	return m
+}
