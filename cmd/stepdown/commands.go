@@ -6,15 +6,6 @@ import (
 	"github.com/urfave/cli/v2"
 )
 
-func designCommand() *cli.Command {
-	return &cli.Command{
-		Name:      "design",
-		Usage:     "design one Parks-McClellan lowpass or multiband filter",
-		UsageText: "stepdown design --rate HZ --pass LO:HI --stop LO:HI [--stop LO:HI ...] --ripple DB --atten DB [--taps N] [--grid N] [--json]",
-		Action:    func(c *cli.Context) error { return errors.New("design: not implemented yet") },
-	}
-}
-
 func planCommand() *cli.Command {
 	return &cli.Command{
 		Name:      "plan",

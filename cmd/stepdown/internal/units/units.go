@@ -48,11 +48,7 @@ func Parse(s string, k Kind) (float64, error) {
 		return 0, &Error{s, "empty; want a number" + unitHint(k)}
 	}
 	// The unit is the trailing run of letters and slashes; the rest is the number.
-	i := len(t)
-	for i > 0 && isUnitByte(t[i-1]) {
-		i--
-	}
-	num, unit := strings.TrimSpace(t[:i]), t[i:]
+	num, unit := splitUnit(t)
 	if num == "" {
 		return 0, &Error{s, "not a number; want a number" + unitHint(k)}
 	}
@@ -207,4 +203,38 @@ func FormatFrequency(hz float64) string {
 		return strconv.FormatFloat(hz, 'g', -1, 64) + " Hz"
 	}
 	return strconv.FormatFloat(v, 'g', -1, 64) + " " + unit
+}
+
+// ParseRange parses a band "LO:HI" of kind k. A unit written only after HI
+// applies to both ends, so "100:200 kHz" is 100 kHz to 200 kHz; "0:1.2 MHz"
+// and "600 kHz:1.2 MHz" read as written.
+func ParseRange(s string, k Kind) (lo, hi float64, err error) {
+	i := strings.IndexByte(s, ':')
+	if i < 0 || strings.IndexByte(s[i+1:], ':') >= 0 {
+		return 0, 0, &Error{s, "want one band LO:HI, such as 0:600kHz"}
+	}
+	los, his := strings.TrimSpace(s[:i]), strings.TrimSpace(s[i+1:])
+	hi, err = Parse(his, k)
+	if err != nil {
+		return 0, 0, &Error{s, "upper edge " + err.Error()}
+	}
+	if _, u := splitUnit(his); u != "" && los != "" {
+		if _, lu := splitUnit(los); lu == "" {
+			los += " " + u
+		}
+	}
+	lo, err = Parse(los, k)
+	if err != nil {
+		return 0, 0, &Error{s, "lower edge " + err.Error()}
+	}
+	return lo, hi, nil
+}
+
+// splitUnit splits trimmed text into its number and its trailing unit.
+func splitUnit(t string) (num, unit string) {
+	i := len(t)
+	for i > 0 && isUnitByte(t[i-1]) {
+		i--
+	}
+	return strings.TrimSpace(t[:i]), t[i:]
 }

@@ -191,3 +191,34 @@ func ExampleParseFrequency() {
 	fmt.Println(hz, FormatFrequency(hz))
 	// Output: 2.4576e+08 245.76 MHz
 }
+
+func TestParseRange(t *testing.T) {
+	for _, tc := range []struct {
+		in     string
+		lo, hi float64
+		bad    bool
+	}{
+		{in: "0:600kHz", lo: 0, hi: 600e3},
+		{in: "100:200 kHz", lo: 100e3, hi: 200e3},
+		{in: "100 Hz:200 kHz", lo: 100, hi: 200e3},
+		{in: "600 kHz:1.2 MHz", lo: 600e3, hi: 1.2e6},
+		{in: "1000:2000", lo: 1000, hi: 2000},
+		{in: " 0 : 45 ", lo: 0, hi: 45},
+		{in: "45", bad: true},
+		{in: "1:2:3", bad: true},
+		{in: ":45", bad: true},
+		{in: "0:", bad: true},
+		{in: "0:45 XHz", bad: true},
+	} {
+		lo, hi, err := ParseRange(tc.in, Frequency)
+		if tc.bad {
+			if err == nil {
+				t.Errorf("ParseRange(%q): no error", tc.in)
+			}
+			continue
+		}
+		if err != nil || lo != tc.lo || hi != tc.hi {
+			t.Errorf("ParseRange(%q) = %v, %v, %v; want %v, %v", tc.in, lo, hi, err, tc.lo, tc.hi)
+		}
+	}
+}

@@ -1,0 +1,255 @@
+package main
+
+import (
+	"encoding/json"
+	"fmt"
+	"io"
+	"math"
+	"sort"
+
+	"github.com/urfave/cli/v2"
+
+	"stepdown/chain"
+	"stepdown/chain/remez"
+	"stepdown/cmd/stepdown/internal/units"
+)
+
+func designCommand() *cli.Command {
+	return &cli.Command{
+		Name:  "design",
+		Usage: "design one Parks-McClellan lowpass or multiband filter",
+		UsageText: "stepdown design --rate HZ --pass LO:HI --stop LO:HI [--stop LO:HI ...] --ripple DB --atten DB [--taps N] [--grid N] [--json]\n\n" +
+			"Frequencies take plain Hz or units (\"45\", \"45 Hz\", \"1.2 MHz\"); a unit after HI applies to LO too.\n" +
+			"Without --taps the shortest filter that meets --ripple (peak-to-peak) and --atten is found.",
+		Flags: []cli.Flag{
+			&cli.StringFlag{Name: "rate", Usage: "sample rate (Hz or with a unit)"},
+			&cli.StringFlag{Name: "pass", Usage: "passband LO:HI (gain 1)"},
+			&cli.StringSliceFlag{Name: "stop", Usage: "stopband LO:HI (gain 0); repeat for a multiband design"},
+			&cli.StringFlag{Name: "ripple", Usage: "passband ripple, peak-to-peak dB"},
+			&cli.StringFlag{Name: "atten", Usage: "stopband attenuation, positive dB"},
+			&cli.IntFlag{Name: "taps", Usage: "design this length instead of the shortest that meets the targets"},
+			&cli.IntFlag{Name: "grid", Value: 16, Usage: "grid density: points per expected extremum"},
+			&cli.BoolFlag{Name: "json", Usage: "print one JSON object on stdout"},
+		},
+		Action: runDesign,
+	}
+}
+
+// maxDesignTaps bounds --taps and the minimum-length search.
+const maxDesignTaps = 65535
+
+type designBand struct {
+	Kind   string  `json:"kind"` // "pass" or "stop"
+	LoHz   float64 `json:"lo_hz"`
+	HiHz   float64 `json:"hi_hz"`
+	Weight float64 `json:"weight"`
+}
+
+type designOutput struct {
+	RateHz           float64      `json:"rate_hz"`
+	Bands            []designBand `json:"bands"`
+	TargetRippleDB   float64      `json:"target_ripple_db"`
+	TargetAttenDB    float64      `json:"target_atten_db"`
+	Taps             int          `json:"taps"`
+	Coefficients     []float64    `json:"coefficients"`
+	PassbandRippleDB float64      `json:"passband_ripple_db"`
+	StopbandAttenDB  float64      `json:"stopband_atten_db"`
+	MeetsTargets     bool         `json:"meets_targets"`
+	Converged        bool         `json:"converged"`
+	Iterations       int          `json:"iterations"`
+	GridDensity      int          `json:"grid_density"`
+	Caution          string       `json:"caution"`
+}
+
+func runDesign(c *cli.Context) error {
+	if c.Args().Present() {
+		return usagef("design: unexpected argument %q (all inputs are flags)", c.Args().First())
+	}
+	need := func(name string) (string, error) {
+		v := c.String(name)
+		if v == "" {
+			return "", usagef("--%s: missing; it is required", name)
+		}
+		return v, nil
+	}
+	rs, err := need("rate")
+	if err != nil {
+		return err
+	}
+	rate, err := units.ParseFrequency(rs)
+	if err != nil {
+		return usagef("--rate %v", err)
+	}
+	if !(rate > 0) {
+		return usagef("--rate %q: must be above 0 Hz", rs)
+	}
+	ps, err := need("pass")
+	if err != nil {
+		return err
+	}
+	stops := c.StringSlice("stop")
+	if len(stops) == 0 {
+		return usagef("--stop: missing; give at least one stopband LO:HI")
+	}
+	ripS, err := need("ripple")
+	if err != nil {
+		return err
+	}
+	ripple, err := units.ParseLevel(ripS)
+	if err != nil {
+		return usagef("--ripple %v", err)
+	}
+	if !(ripple > 0) {
+		return usagef("--ripple %q: must be above 0 dB (peak-to-peak)", ripS)
+	}
+	attS, err := need("atten")
+	if err != nil {
+		return err
+	}
+	atten, err := units.ParseLevel(attS)
+	if err != nil {
+		return usagef("--atten %v", err)
+	}
+	if !(atten > 0) || atten > chain.MaxRejectionDB {
+		return usagef("--atten %q: must lie in (0, %d] dB", attS, chain.MaxRejectionDB)
+	}
+	grid := c.Int("grid")
+	if grid < 1 || grid > 1024 {
+		return usagef("--grid %d: must lie in [1, 1024]", grid)
+	}
+	taps := c.Int("taps")
+	if c.IsSet("taps") && (taps < 3 || taps > maxDesignTaps) {
+		return usagef("--taps %d: must lie in [3, %d]", taps, maxDesignTaps)
+	}
+
+	dp := chain.RippleToDev(ripple)
+	ds := chain.RejectionToDev(atten)
+	type edge struct {
+		flag   string
+		text   string
+		lo, hi float64
+		pass   bool
+	}
+	var edges []edge
+	lo, hi, err := units.ParseRange(ps, units.Frequency)
+	if err != nil {
+		return usagef("--pass %v", err)
+	}
+	edges = append(edges, edge{"--pass", ps, lo, hi, true})
+	for _, s := range stops {
+		lo, hi, err := units.ParseRange(s, units.Frequency)
+		if err != nil {
+			return usagef("--stop %v", err)
+		}
+		edges = append(edges, edge{"--stop", s, lo, hi, false})
+	}
+	for _, e := range edges {
+		if e.lo < 0 || e.hi <= e.lo || e.hi > rate/2 {
+			return usagef("%s %q: must satisfy 0 <= LO < HI <= rate/2 = %s", e.flag, e.text, units.FormatFrequency(rate/2))
+		}
+	}
+	sort.SliceStable(edges, func(i, j int) bool { return edges[i].lo < edges[j].lo })
+	for i := 1; i < len(edges); i++ {
+		if edges[i].lo < edges[i-1].hi {
+			return usagef("%s %q: overlaps %s %q; bands must not overlap", edges[i].flag, edges[i].text, edges[i-1].flag, edges[i-1].text)
+		}
+	}
+
+	out := designOutput{RateHz: rate, TargetRippleDB: ripple, TargetAttenDB: atten, GridDensity: grid, Caution: caution}
+	var bands []remez.Band
+	for _, e := range edges {
+		b := remez.Band{Lo: e.lo, Hi: e.hi, Weight: 1, MaxError: dp}
+		kind := "pass"
+		if e.pass {
+			b.Gain = 1
+		} else {
+			// Weighting the stopbands dp/ds makes one levelled error meet both targets.
+			b.Weight, b.MaxError, kind = dp/ds, ds, "stop"
+		}
+		bands = append(bands, b)
+		out.Bands = append(out.Bands, designBand{Kind: kind, LoHz: e.lo, HiHz: e.hi, Weight: b.Weight})
+	}
+	settings := remez.Settings{Density: grid}
+	var res *remez.Result
+	if taps > 0 {
+		res, err = remez.Design(taps, rate, bands, settings)
+	} else {
+		res, err = remez.MinLength(rate, bands, 0, maxDesignTaps, settings)
+	}
+	if err != nil {
+		return fmt.Errorf("design: %v", err)
+	}
+	if len(res.Deviations) != len(bands) {
+		return fmt.Errorf("design: engine returned %d band deviations for %d bands", len(res.Deviations), len(bands))
+	}
+	passDev, stopDev := 0.0, 0.0
+	for i, b := range bands {
+		if b.Gain == 1 {
+			passDev = math.Max(passDev, res.Deviations[i])
+		} else {
+			stopDev = math.Max(stopDev, res.Deviations[i])
+		}
+	}
+	out.Taps = len(res.Taps)
+	out.Coefficients = res.Taps
+	out.PassbandRippleDB = rippleOf(passDev)
+	out.StopbandAttenDB = attenOf(stopDev)
+	out.MeetsTargets = passDev <= dp && stopDev <= ds
+	out.Converged = res.Converged
+	out.Iterations = res.Iterations
+	if c.Bool("json") {
+		return writeJSON(c.App.Writer, out)
+	}
+	printDesign(c.App.Writer, out)
+	return nil
+}
+
+// rippleOf is the peak-to-peak ripple of a passband deviation; a deviation of
+// 1 or more has no finite ripple, so it is capped to keep NaN out of results.
+func rippleOf(dp float64) float64 {
+	if dp >= 1 {
+		dp = 1 - 1e-12
+	}
+	return chain.DevToRipple(dp)
+}
+
+// attenOf is the attenuation of a stopband deviation, capped at 400 dB for
+// an exact zero so that no infinity reaches the output.
+func attenOf(ds float64) float64 {
+	if ds <= 1e-20 {
+		return 400
+	}
+	return -20 * math.Log10(ds)
+}
+
+func printDesign(w io.Writer, o designOutput) {
+	kind := "type I (odd length)"
+	if o.Taps%2 == 0 {
+		kind = "type II (even length)"
+	}
+	fmt.Fprintf(w, "designed %d taps, %s, at %s\n", o.Taps, kind, units.FormatFrequency(o.RateHz))
+	for _, b := range o.Bands {
+		fmt.Fprintf(w, "  %-4s %s to %s, weight %.4g\n", b.Kind, units.FormatFrequency(b.LoHz), units.FormatFrequency(b.HiHz), b.Weight)
+	}
+	fmt.Fprintf(w, "passband ripple  %.4f dB peak-to-peak (target %.4g dB)\n", o.PassbandRippleDB, o.TargetRippleDB)
+	fmt.Fprintf(w, "stopband atten.  %.2f dB (target %.4g dB)\n", o.StopbandAttenDB, o.TargetAttenDB)
+	verdict := "meets both targets"
+	if !o.MeetsTargets {
+		verdict = "does NOT meet the targets"
+	}
+	conv := "converged"
+	if !o.Converged {
+		conv = "did NOT converge"
+	}
+	fmt.Fprintf(w, "%s; exchange %s in %d iterations (grid density %d)\n", verdict, conv, o.Iterations, o.GridDensity)
+	fmt.Fprintln(w, "coefficients: use --json")
+}
+
+func writeJSON(w io.Writer, v any) error {
+	b, err := json.MarshalIndent(v, "", "  ")
+	if err != nil {
+		return fmt.Errorf("encoding JSON: %v", err)
+	}
+	_, err = w.Write(append(b, '\n'))
+	return err
+}

@@ -1,0 +1,636 @@
+package specfile
+
+import (
+	"errors"
+	"fmt"
+	"io"
+	"math"
+	"os"
+	"reflect"
+	"sort"
+	"strconv"
+	"strings"
+
+	"github.com/BurntSushi/toml"
+
+	"stepdown/chain"
+	"stepdown/cmd/stepdown/internal/units"
+	"stepdown/cost"
+	"stepdown/optimize"
+)
+
+// MaxFileSize is the largest spec file accepted, in bytes (1 MiB): a spec is a
+// few hundred bytes, so anything larger is the wrong file.
+const MaxFileSize = 1 << 20
+
+// Search limits.
+const (
+	MaxStages   = 12
+	MaxCICOrder = 10
+	MaxCICDelay = 4
+	MinWordBits = 2
+	MaxWordBits = 64
+)
+
+// Defaults for the search table, used when a key is absent.
+const DefaultMaxStages = 6
+
+var (
+	defaultKinds     = []chain.Kind{chain.CIC, chain.HalfBand, chain.FIR}
+	defaultCICOrders = []int{1, 2, 3, 4, 5, 6, 7}
+	defaultCICDelays = []int{1, 2}
+)
+
+// Spec is a parsed and validated spec file.
+type Spec struct {
+	// Chain is the normalised chain spec (defaults filled in).
+	Chain chain.Spec
+	// Signal is "real" or "complex".
+	Signal string
+	// Symmetry is true when folded symmetric multiplies are counted once.
+	Symmetry bool
+	// Clock is the hardware clock in Hz; zero when not given.
+	Clock float64
+	// Search limits, with defaults filled in.
+	MaxStages int
+	Kinds     []chain.Kind
+	CICOrders []int
+	CICDelays []int
+}
+
+// CostSettings returns the pricing settings the spec asks for.
+func (s *Spec) CostSettings() cost.Settings {
+	return cost.Settings{NoSymmetry: !s.Symmetry, Clock: s.Clock}
+}
+
+// SearchSettings returns the optimiser settings the spec asks for; the caller
+// adds Jobs and Progress.
+func (s *Spec) SearchSettings() optimize.Settings {
+	return optimize.Settings{
+		MaxStages: s.MaxStages,
+		Kinds:     append([]chain.Kind(nil), s.Kinds...),
+		CICOrders: append([]int(nil), s.CICOrders...),
+		CICDelays: append([]int(nil), s.CICDelays...),
+		Cost:      s.CostSettings(),
+	}
+}
+
+// Error is a problem with a spec file. Line is zero when unknown.
+type Error struct {
+	File  string
+	Line  int
+	Key   string // dotted TOML key; empty for a problem with the file itself
+	Value string // the value as written; empty when not applicable
+	Rule  string
+}
+
+func (e *Error) Error() string {
+	var b strings.Builder
+	b.WriteString(e.File)
+	if e.Line > 0 {
+		fmt.Fprintf(&b, ":%d", e.Line)
+	}
+	b.WriteString(": ")
+	if e.Key != "" {
+		b.WriteString(e.Key)
+		if e.Value != "" {
+			b.WriteString(" = " + e.Value)
+		}
+		b.WriteString(": ")
+	}
+	b.WriteString(e.Rule)
+	return b.String()
+}
+
+// Load reads and parses the spec file at path.
+func Load(path string) (*Spec, error) {
+	fail := func(rule string, args ...any) (*Spec, error) {
+		return nil, &Error{File: path, Rule: fmt.Sprintf(rule, args...)}
+	}
+	fi, err := os.Stat(path)
+	switch {
+	case errors.Is(err, os.ErrNotExist):
+		return fail("spec file does not exist")
+	case err != nil:
+		return fail("spec file cannot be read: %v", unwrapPath(err))
+	case fi.IsDir():
+		return fail("is a folder; want a TOML spec file")
+	case fi.Size() > MaxFileSize:
+		return fail("spec file is %d bytes, over the %d-byte (1 MiB) limit", fi.Size(), MaxFileSize)
+	}
+	f, err := os.Open(path)
+	if err != nil {
+		return fail("spec file cannot be read: %v", unwrapPath(err))
+	}
+	defer f.Close()
+	// The size can change between Stat and Read (or be unknown for a device);
+	// read one byte past the limit to tell.
+	data, err := io.ReadAll(io.LimitReader(f, MaxFileSize+1))
+	if err != nil {
+		return fail("spec file cannot be read: %v", unwrapPath(err))
+	}
+	if len(data) > MaxFileSize {
+		return fail("spec file is over the %d-byte (1 MiB) limit", MaxFileSize)
+	}
+	return Parse(path, data)
+}
+
+func unwrapPath(err error) error {
+	var pe *os.PathError
+	if errors.As(err, &pe) {
+		return pe.Err
+	}
+	return err
+}
+
+// key describes one key of the format.
+type key struct {
+	path  string // dotted
+	table bool   // a table header such as [words]
+}
+
+// known lists every key of the format, in the order of the README.
+var known = []key{
+	{path: "input_rate"}, {path: "output_rate"}, {path: "passband"}, {path: "protected"},
+	{path: "stopband"}, {path: "ripple"}, {path: "rejection"}, {path: "signal"},
+	{path: "words", table: true}, {path: "words.input"}, {path: "words.output"}, {path: "words.coefficients"},
+	{path: "hardware", table: true}, {path: "hardware.clock"},
+	{path: "cost", table: true}, {path: "cost.symmetry"},
+	{path: "search", table: true}, {path: "search.max_stages"}, {path: "search.kinds"},
+	{path: "search.cic_orders"}, {path: "search.cic_delays"},
+}
+
+// parser holds one file's data while it is checked.
+type parser struct {
+	file string
+	data []byte
+	root map[string]any
+}
+
+// Parse parses spec text; name is used in error messages.
+func Parse(name string, data []byte) (*Spec, error) {
+	p := &parser{file: name, data: data}
+	md, err := toml.Decode(string(data), &p.root)
+	if err != nil {
+		var pe toml.ParseError
+		if errors.As(err, &pe) {
+			return nil, &Error{File: name, Line: pe.Position.Line, Rule: "not valid TOML: " + pe.Message}
+		}
+		return nil, &Error{File: name, Rule: "not valid TOML: " + oneLine(err.Error())}
+	}
+	if err := p.checkKeys(md); err != nil {
+		return nil, err
+	}
+	return p.build()
+}
+
+func oneLine(s string) string {
+	if i := strings.IndexByte(s, '\n'); i >= 0 {
+		return s[:i]
+	}
+	return s
+}
+
+func (p *parser) checkKeys(md toml.MetaData) error {
+	isKnown := map[string]key{}
+	for _, k := range known {
+		isKnown[k.path] = k
+	}
+	for _, k := range md.Keys() {
+		dotted := strings.Join(k, ".")
+		if _, ok := isKnown[dotted]; ok {
+			// A scalar where a table belongs (or the reverse) is a type error
+			// reported when the value is read.
+			continue
+		}
+		rule := "unknown key"
+		if s := suggest(dotted); s != "" {
+			rule += fmt.Sprintf(" (did you mean %q?)", s)
+		} else if len(k) > 1 {
+			rule += fmt.Sprintf(" in [%s]", strings.Join(k[:len(k)-1], "."))
+		}
+		return &Error{File: p.file, Line: p.lineOf(k), Key: dotted, Rule: rule}
+	}
+	return nil
+}
+
+// suggest returns the known key that differs from k only in case or in the
+// separator, if any.
+func suggest(k string) string {
+	norm := func(s string) string { return strings.ReplaceAll(strings.ToLower(s), "-", "_") }
+	for _, kk := range known {
+		if norm(kk.path) == norm(k) {
+			return kk.path
+		}
+	}
+	return ""
+}
+
+// failer makes the TOML decoder stop, with the position of the key it sits on.
+type failer struct{}
+
+var errFail = errors.New("position probe")
+
+func (failer) UnmarshalTOML(any) error { return errFail }
+
+// lineOf returns the line of key k in the file, or 0 when unknown. The TOML
+// package keeps key positions private but reports them in the errors of an
+// Unmarshaler, so decode once more into a type that fails exactly at k.
+func (p *parser) lineOf(k toml.Key) int {
+	t := reflect.TypeOf(failer{})
+	for i := len(k) - 1; i >= 0; i-- {
+		if strings.ContainsAny(k[i], "\",`") || k[i] == "" {
+			return 0
+		}
+		t = reflect.StructOf([]reflect.StructField{{
+			Name: "F", Type: t, Tag: reflect.StructTag(`toml:"` + k[i] + `"`),
+		}})
+	}
+	v := reflect.New(t)
+	_, err := toml.Decode(string(p.data), v.Interface())
+	var pe toml.ParseError
+	if errors.As(err, &pe) && errors.Is(err, errFail) {
+		return pe.Position.Line
+	}
+	if errors.As(err, &pe) && strings.Contains(pe.Message, errFail.Error()) {
+		return pe.Position.Line
+	}
+	return 0
+}
+
+// lookup returns the value at a dotted key and whether it is present.
+func (p *parser) lookup(dotted string) (any, bool) {
+	parts := strings.Split(dotted, ".")
+	var cur any = p.root
+	for _, part := range parts {
+		m, ok := cur.(map[string]any)
+		if !ok {
+			return nil, false
+		}
+		if cur, ok = m[part]; !ok {
+			return nil, false
+		}
+	}
+	return cur, true
+}
+
+func (p *parser) errAt(dotted string, v any, rule string, args ...any) error {
+	return &Error{File: p.file, Line: p.lineOf(strings.Split(dotted, ".")), Key: dotted, Value: show(v), Rule: fmt.Sprintf(rule, args...)}
+}
+
+// show writes a value as it would appear in TOML.
+func show(v any) string {
+	switch x := v.(type) {
+	case nil:
+		return ""
+	case string:
+		return strconv.Quote(x)
+	case float64:
+		return strconv.FormatFloat(x, 'g', -1, 64)
+	case int64:
+		return strconv.FormatInt(x, 10)
+	case bool:
+		return strconv.FormatBool(x)
+	case []any:
+		s := make([]string, len(x))
+		for i, e := range x {
+			s[i] = show(e)
+		}
+		return "[" + strings.Join(s, ", ") + "]"
+	case map[string]any:
+		return "{...}"
+	}
+	return fmt.Sprint(v)
+}
+
+// quantity reads a frequency or level; ok is false when the key is absent.
+func (p *parser) quantity(dotted string, k units.Kind, required bool) (float64, bool, error) {
+	v, present := p.lookup(dotted)
+	if !present {
+		if required {
+			return 0, false, &Error{File: p.file, Key: dotted, Rule: "missing; this key is required"}
+		}
+		return 0, false, nil
+	}
+	unit := "Hz"
+	if k == units.Level {
+		unit = "dB"
+	}
+	switch x := v.(type) {
+	case int64:
+		return float64(x), true, nil
+	case float64:
+		if math.IsNaN(x) || math.IsInf(x, 0) {
+			return 0, false, p.errAt(dotted, v, "not a finite number")
+		}
+		return x, true, nil
+	case string:
+		f, err := units.Parse(x, k)
+		if err != nil {
+			var ue *units.Error
+			if errors.As(err, &ue) {
+				return 0, false, p.errAt(dotted, v, "%s", ue.Rule)
+			}
+			return 0, false, p.errAt(dotted, v, "%v", err)
+		}
+		return f, true, nil
+	}
+	return 0, false, p.errAt(dotted, v, "want a number in %s or a string with a unit, not a %s", unit, typeName(v))
+}
+
+func typeName(v any) string {
+	switch v.(type) {
+	case string:
+		return "string"
+	case int64:
+		return "integer"
+	case float64:
+		return "float"
+	case bool:
+		return "boolean"
+	case []any, []map[string]any:
+		return "array"
+	case map[string]any:
+		return "table"
+	}
+	return fmt.Sprintf("%T", v)
+}
+
+// integer reads an optional integer within [lo, hi].
+func (p *parser) integer(dotted string, lo, hi int, unit string) (int, bool, error) {
+	v, present := p.lookup(dotted)
+	if !present {
+		return 0, false, nil
+	}
+	x, ok := v.(int64)
+	if !ok {
+		return 0, false, p.errAt(dotted, v, "want an integer, not a %s", typeName(v))
+	}
+	if x < int64(lo) || x > int64(hi) {
+		return 0, false, p.errAt(dotted, v, "must lie in [%d, %d]%s", lo, hi, unit)
+	}
+	return int(x), true, nil
+}
+
+func (p *parser) intList(dotted string, lo, hi int, what string) ([]int, bool, error) {
+	v, present := p.lookup(dotted)
+	if !present {
+		return nil, false, nil
+	}
+	arr, ok := v.([]any)
+	if !ok {
+		return nil, false, p.errAt(dotted, v, "want an array of integers, not a %s", typeName(v))
+	}
+	if len(arr) == 0 {
+		return nil, false, p.errAt(dotted, v, "must list at least one %s", what)
+	}
+	seen := map[int64]bool{}
+	var out []int
+	for _, e := range arr {
+		x, ok := e.(int64)
+		if !ok {
+			return nil, false, p.errAt(dotted, v, "element %s: want an integer %s, not a %s", show(e), what, typeName(e))
+		}
+		if x < int64(lo) || x > int64(hi) {
+			return nil, false, p.errAt(dotted, v, "%s %d must lie in [%d, %d]", what, x, lo, hi)
+		}
+		if seen[x] {
+			return nil, false, p.errAt(dotted, v, "%s %d is listed twice", what, x)
+		}
+		seen[x] = true
+		out = append(out, int(x))
+	}
+	sort.Ints(out)
+	return out, true, nil
+}
+
+// checkTable rejects a scalar where one of the format's tables belongs.
+func (p *parser) checkTable(name string) error {
+	v, present := p.lookup(name)
+	if !present {
+		return nil
+	}
+	if _, ok := v.(map[string]any); !ok {
+		return p.errAt(name, v, "want a table [%s], not a %s", name, typeName(v))
+	}
+	return nil
+}
+
+// goField maps chain.Spec field names onto this format's keys, so that the
+// library's band-rule errors speak the file's language.
+var goField = []struct{ goName, key string }{
+	{"InputRate", "input_rate"}, {"OutputRate", "output_rate"}, {"Passband", "passband"},
+	{"Protected", "protected"}, {"Stopband", "stopband"}, {"RippleDB", "ripple"},
+	{"RejectionDB", "rejection"}, {"InputBits", "words.input"}, {"OutputBits", "words.output"},
+	{"CoefBits", "words.coefficients"},
+}
+
+func (p *parser) build() (*Spec, error) {
+	for _, t := range []string{"words", "hardware", "cost", "search"} {
+		if err := p.checkTable(t); err != nil {
+			return nil, err
+		}
+	}
+	var cs chain.Spec
+	freq := []struct {
+		key      string
+		dst      *float64
+		required bool
+	}{
+		{"input_rate", &cs.InputRate, true},
+		{"output_rate", &cs.OutputRate, true},
+		{"passband", &cs.Passband, true},
+		{"protected", &cs.Protected, false},
+		{"stopband", &cs.Stopband, false},
+	}
+	for _, f := range freq {
+		v, ok, err := p.quantity(f.key, units.Frequency, f.required)
+		if err != nil {
+			return nil, err
+		}
+		// Zero means "default" in chain.Spec, so an explicit zero or a negative
+		// value must be refused here, where the key is known.
+		if ok && !(v > 0) {
+			raw, _ := p.lookup(f.key)
+			return nil, p.errAt(f.key, raw, "must be above 0 Hz")
+		}
+		*f.dst = v
+	}
+	for _, f := range []struct {
+		key string
+		dst *float64
+	}{{"ripple", &cs.RippleDB}, {"rejection", &cs.RejectionDB}} {
+		v, _, err := p.quantity(f.key, units.Level, true)
+		if err != nil {
+			return nil, err
+		}
+		*f.dst = v
+	}
+	if v, ok := p.lookup("ripple"); ok && !(cs.RippleDB > 0) {
+		return nil, p.errAt("ripple", v, "must be above 0 dB (peak-to-peak over the passband)")
+	}
+	if v, ok := p.lookup("rejection"); ok && (!(cs.RejectionDB > 0) || cs.RejectionDB > chain.MaxRejectionDB) {
+		return nil, p.errAt("rejection", v, "must lie in (0, %d] dB", chain.MaxRejectionDB)
+	}
+
+	out := &Spec{Signal: "real", Symmetry: true}
+	if v, ok := p.lookup("signal"); ok {
+		s, isStr := v.(string)
+		if !isStr || (s != "real" && s != "complex") {
+			return nil, p.errAt("signal", v, `want "real" or "complex"`)
+		}
+		out.Signal = s
+	}
+	cs.Complex = out.Signal == "complex"
+
+	for _, w := range []struct {
+		key string
+		dst *int
+	}{{"words.input", &cs.InputBits}, {"words.output", &cs.OutputBits}, {"words.coefficients", &cs.CoefBits}} {
+		n, _, err := p.integer(w.key, MinWordBits, MaxWordBits, " bits")
+		if err != nil {
+			return nil, err
+		}
+		*w.dst = n
+	}
+	if clk, ok, err := p.quantity("hardware.clock", units.Frequency, false); err != nil {
+		return nil, err
+	} else if ok {
+		if !(clk > 0) {
+			raw, _ := p.lookup("hardware.clock")
+			return nil, p.errAt("hardware.clock", raw, "must be above 0 Hz")
+		}
+		out.Clock = clk
+	}
+	if v, ok := p.lookup("cost.symmetry"); ok {
+		b, isBool := v.(bool)
+		if !isBool {
+			return nil, p.errAt("cost.symmetry", v, "want true or false, not a %s", typeName(v))
+		}
+		out.Symmetry = b
+	}
+
+	out.MaxStages = DefaultMaxStages
+	if n, ok, err := p.integer("search.max_stages", 1, MaxStages, ""); err != nil {
+		return nil, err
+	} else if ok {
+		out.MaxStages = n
+	}
+	out.Kinds = append([]chain.Kind(nil), defaultKinds...)
+	if v, ok := p.lookup("search.kinds"); ok {
+		kinds, err := p.kinds(v)
+		if err != nil {
+			return nil, err
+		}
+		out.Kinds = kinds
+	}
+	out.CICOrders = append([]int(nil), defaultCICOrders...)
+	if l, ok, err := p.intList("search.cic_orders", 1, MaxCICOrder, "CIC order"); err != nil {
+		return nil, err
+	} else if ok {
+		out.CICOrders = l
+	}
+	out.CICDelays = append([]int(nil), defaultCICDelays...)
+	if l, ok, err := p.intList("search.cic_delays", 1, MaxCICDelay, "CIC delay"); err != nil {
+		return nil, err
+	} else if ok {
+		out.CICDelays = l
+	}
+
+	norm, err := cs.Normalize()
+	if err != nil {
+		return nil, p.specError(err)
+	}
+	out.Chain = norm
+	return out, nil
+}
+
+func (p *parser) kinds(v any) ([]chain.Kind, error) {
+	arr, ok := v.([]any)
+	if !ok {
+		return nil, p.errAt("search.kinds", v, "want an array of stage kinds, not a %s", typeName(v))
+	}
+	if len(arr) == 0 {
+		return nil, p.errAt("search.kinds", v, `must list at least one of "cic", "halfband", "fir"`)
+	}
+	seen := map[chain.Kind]bool{}
+	for _, e := range arr {
+		s, _ := e.(string)
+		var k chain.Kind
+		switch s {
+		case "cic":
+			k = chain.CIC
+		case "halfband":
+			k = chain.HalfBand
+		case "fir":
+			k = chain.FIR
+		default:
+			return nil, p.errAt("search.kinds", v, `unknown stage kind %s; want "cic", "halfband" or "fir"`, show(e))
+		}
+		if seen[k] {
+			return nil, p.errAt("search.kinds", v, "stage kind %s is listed twice", show(e))
+		}
+		seen[k] = true
+	}
+	// A fixed order keeps the settings, and so the search, deterministic.
+	var out []chain.Kind
+	for _, k := range defaultKinds {
+		if seen[k] {
+			out = append(out, k)
+		}
+	}
+	return out, nil
+}
+
+// specError rewrites a chain.Spec band-rule error in the file's terms.
+func (p *parser) specError(err error) error {
+	var se *chain.SpecError
+	if !errors.As(err, &se) {
+		return &Error{File: p.file, Rule: err.Error()}
+	}
+	k := se.Field
+	for _, f := range goField {
+		if f.goName == se.Field {
+			k = f.key
+		}
+	}
+	rule := se.Rule
+	for _, f := range goField {
+		rule = replaceWord(rule, f.goName, f.key)
+	}
+	raw, present := p.lookup(k)
+	e := &Error{File: p.file, Key: k, Rule: rule}
+	if present {
+		e.Value = show(raw)
+		e.Line = p.lineOf(strings.Split(k, "."))
+	} else {
+		e.Value = strconv.FormatFloat(se.Value, 'g', 10, 64) + " (default)"
+	}
+	return e
+}
+
+// replaceWord replaces whole-word occurrences of old in s.
+func replaceWord(s, old, new string) string {
+	var b strings.Builder
+	for {
+		i := strings.Index(s, old)
+		if i < 0 {
+			b.WriteString(s)
+			return b.String()
+		}
+		end := i + len(old)
+		before := i == 0 || !isIdent(s[i-1])
+		after := end == len(s) || !isIdent(s[end])
+		b.WriteString(s[:i])
+		if before && after {
+			b.WriteString(new)
+		} else {
+			b.WriteString(old)
+		}
+		s = s[end:]
+	}
+}
+
+func isIdent(c byte) bool {
+	return c == '_' || ('a' <= c && c <= 'z') || ('A' <= c && c <= 'Z') || ('0' <= c && c <= '9')
+}

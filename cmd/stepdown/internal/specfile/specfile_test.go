@@ -1,0 +1,245 @@
+package specfile
+
+import (
+	"os"
+	"path/filepath"
+	"strings"
+	"testing"
+
+	"stepdown/chain"
+)
+
+const minimal = `input_rate  = "245.76 MHz"
+output_rate = "1.92 MHz"
+passband    = "600 kHz"
+ripple      = "0.1 dB"
+rejection   = "85 dB"
+`
+
+// The issue's full example spec; every figure is checked against the text.
+const full = `input_rate  = "245.76 MHz"   # required
+output_rate = "1.92 MHz"     # required; the ratio must be an integer
+passband    = "600 kHz"      # required: flat band edge
+protected   = "900 kHz"      # optional, default = passband: alias-free band edge
+stopband    = "1.02 MHz"     # optional, default = output_rate - protected
+ripple      = "0.1 dB"       # required, peak-to-peak over the passband
+rejection   = "85 dB"        # required, alias rejection into the protected band
+signal      = "complex"      # "real" (default) or "complex"
+[words]                      # optional
+input = 16
+output = 24
+coefficients = 18            # absent: floating-point coefficients
+[hardware]                   # optional
+clock = "491.52 MHz"
+[cost]
+symmetry = true              # default true: count folded symmetric multiplies
+[search]
+max_stages = 6
+kinds = ["cic", "halfband", "fir"]
+cic_orders = [1, 2, 3, 4, 5, 6, 7]
+cic_delays = [1, 2]
+`
+
+func TestParseFull(t *testing.T) {
+	s, err := Parse("full.toml", []byte(full))
+	if err != nil {
+		t.Fatal(err)
+	}
+	c := s.Chain
+	// Exact: the values are decimal literals scaled by SI prefixes.
+	if c.InputRate != 245.76e6 || c.OutputRate != 1.92e6 || c.Passband != 600e3 ||
+		c.Protected != 900e3 || c.Stopband != 1.02e6 || c.RippleDB != 0.1 || c.RejectionDB != 85 {
+		t.Errorf("chain spec = %+v", c)
+	}
+	if !c.Complex || c.InputBits != 16 || c.OutputBits != 24 || c.CoefBits != 18 {
+		t.Errorf("signal/words = %+v", c)
+	}
+	if c.Decimation() != 128 {
+		t.Errorf("decimation = %d, want 128", c.Decimation())
+	}
+	if s.Clock != 491.52e6 || !s.Symmetry || s.MaxStages != 6 || len(s.Kinds) != 3 ||
+		len(s.CICOrders) != 7 || len(s.CICDelays) != 2 {
+		t.Errorf("settings = %+v", s)
+	}
+	cs := s.CostSettings()
+	if cs.NoSymmetry || cs.Clock != 491.52e6 {
+		t.Errorf("cost settings = %+v", cs)
+	}
+	os := s.SearchSettings()
+	if os.MaxStages != 6 || len(os.Kinds) != 3 || os.Cost != cs {
+		t.Errorf("search settings = %+v", os)
+	}
+}
+
+func TestParseDefaults(t *testing.T) {
+	s, err := Parse("min.toml", []byte(minimal))
+	if err != nil {
+		t.Fatal(err)
+	}
+	c := s.Chain
+	// DESIGN §3: protected defaults to passband, stopband to output_rate - protected.
+	if c.Protected != 600e3 || c.Stopband != 1.92e6-600e3 || c.Complex {
+		t.Errorf("defaults = %+v", c)
+	}
+	if s.Signal != "real" || !s.Symmetry || s.Clock != 0 || s.MaxStages != DefaultMaxStages ||
+		len(s.Kinds) != 3 || len(s.CICOrders) != 7 || len(s.CICDelays) != 2 {
+		t.Errorf("defaults = %+v", s)
+	}
+	// Plain numbers are base units.
+	plain := strings.NewReplacer(`"245.76 MHz"`, "245760000", `"1.92 MHz"`, "1.92e6", `"600 kHz"`, "600000", `"0.1 dB"`, "0.1", `"85 dB"`, "85").Replace(minimal)
+	p, err := Parse("plain.toml", []byte(plain))
+	if err != nil {
+		t.Fatal(err)
+	}
+	if p.Chain != s.Chain {
+		t.Errorf("plain numbers give %+v, want %+v", p.Chain, s.Chain)
+	}
+}
+
+func TestExample(t *testing.T) {
+	s, err := Example()
+	if err != nil {
+		t.Fatal(err)
+	}
+	if s.Chain.Decimation() != 64 {
+		t.Errorf("example decimation = %d, want 64", s.Chain.Decimation())
+	}
+	b, err := os.ReadFile(filepath.Join("..", "..", "..", "..", "testdata", "specs", "example.toml"))
+	if err != nil {
+		t.Fatal(err)
+	}
+	if string(b) != ExampleText {
+		t.Error("testdata/specs/example.toml differs from ExampleText; keep them identical")
+	}
+}
+
+func TestParseErrors(t *testing.T) {
+	for _, tc := range []struct {
+		name, edit string // edit: a line appended to, or replacing a key of, the minimal spec
+		want       []string
+	}{
+		{"unknown key", "colour = 3", []string{":6:", "colour", "unknown key"}},
+		{"unknown table key", "[search]\nmax_stage = 3", []string{":7:", "search.max_stage", "unknown key"}},
+		{"case", "Signal = \"real\"", []string{":6:", "Signal", "did you mean \"signal\""}},
+		{"unknown table", "[extra]\nx = 1", []string{":6:", "extra", "unknown key"}},
+		{"not toml", "input_rate = = 3", []string{"not valid TOML"}},
+		{"rate unit", `input_rate = "245.76 XHz"`, []string{"input_rate", `"245.76 XHz"`, "unknown unit"}},
+		{"rate nan", `input_rate = nan`, []string{"input_rate", "not a finite number"}},
+		{"rate inf", `input_rate = inf`, []string{"input_rate", "not a finite number"}},
+		{"rate zero", `input_rate = 0`, []string{"input_rate", "above 0 Hz"}},
+		{"rate negative", `input_rate = "-1 MHz"`, []string{"input_rate", "above 0 Hz"}},
+		{"rate text", `input_rate = "fast"`, []string{"input_rate", "not a number"}},
+		{"rate bool", `input_rate = true`, []string{"input_rate", "not a boolean"}},
+		{"output above input", `output_rate = "300 MHz"`, []string{"output_rate", "below input_rate"}},
+		{"ratio 1", `output_rate = "245.76 MHz"`, []string{"output_rate"}},
+		{"non-integer ratio", `output_rate = "1.9 MHz"`, []string{"output_rate", "not an integer"}},
+		{"passband high", `passband = "1 MHz"`, []string{"passband"}},
+		{"ripple zero", `ripple = 0`, []string{"ripple", "above 0 dB"}},
+		{"ripple negative", `ripple = "-0.1 dB"`, []string{"ripple", "above 0 dB"}},
+		{"rejection zero", `rejection = 0`, []string{"rejection", "(0, 150]"}},
+		{"rejection high", `rejection = "151 dB"`, []string{"rejection", "(0, 150]"}},
+		{"missing", "", []string{"input_rate", "missing"}},
+		{"signal", `signal = "iq"`, []string{"signal", `"real" or "complex"`}},
+		{"word low", "[words]\ninput = 1", []string{"words.input", "[2, 64]"}},
+		{"word high", "[words]\ncoefficients = 65", []string{"words.coefficients", "[2, 64]"}},
+		{"word type", "[words]\noutput = \"24\"", []string{"words.output", "integer"}},
+		{"words scalar", "words = 3", []string{"words", "table"}},
+		{"clock", "[hardware]\nclock = \"0 Hz\"", []string{"hardware.clock", "above 0"}},
+		{"symmetry", "[cost]\nsymmetry = 1", []string{"cost.symmetry", "true or false"}},
+		{"stages low", "[search]\nmax_stages = 0", []string{"search.max_stages", "[1, 12]"}},
+		{"stages high", "[search]\nmax_stages = 13", []string{"search.max_stages", "[1, 12]"}},
+		{"kinds empty", "[search]\nkinds = []", []string{"search.kinds", "at least one"}},
+		{"kinds unknown", "[search]\nkinds = [\"cic\", \"iir\"]", []string{"search.kinds", `"iir"`}},
+		{"kinds twice", "[search]\nkinds = [\"fir\", \"fir\"]", []string{"search.kinds", "twice"}},
+		{"order high", "[search]\ncic_orders = [3, 11]", []string{"search.cic_orders", "11", "[1, 10]"}},
+		{"order zero", "[search]\ncic_orders = [0]", []string{"search.cic_orders", "[1, 10]"}},
+		{"delay high", "[search]\ncic_delays = [5]", []string{"search.cic_delays", "[1, 4]"}},
+		{"delays empty", "[search]\ncic_delays = []", []string{"search.cic_delays", "at least one"}},
+	} {
+		t.Run(tc.name, func(t *testing.T) {
+			text := minimal
+			if tc.name == "missing" {
+				text = strings.Replace(minimal, `input_rate  = "245.76 MHz"`+"\n", "", 1)
+			} else if k, _, ok := strings.Cut(tc.edit, " = "); ok && strings.Contains(minimal, k+" ") && !strings.Contains(tc.edit, "\n") {
+				var lines []string
+				for _, l := range strings.Split(minimal, "\n") {
+					if strings.HasPrefix(l, k+" ") {
+						l = tc.edit
+					}
+					lines = append(lines, l)
+				}
+				text = strings.Join(lines, "\n")
+			} else {
+				text += tc.edit + "\n"
+			}
+			_, err := Parse("spec.toml", []byte(text))
+			if err == nil {
+				t.Fatalf("no error for\n%s", text)
+			}
+			msg := err.Error()
+			if strings.Contains(msg, "\n") {
+				t.Errorf("multi-line error %q", msg)
+			}
+			if !strings.HasPrefix(msg, "spec.toml") {
+				t.Errorf("error %q does not name the file", msg)
+			}
+			for _, w := range tc.want {
+				if !strings.Contains(msg, w) {
+					t.Errorf("error %q lacks %q", msg, w)
+				}
+			}
+		})
+	}
+}
+
+func TestLoadErrors(t *testing.T) {
+	dir := t.TempDir()
+	big := filepath.Join(dir, "big.toml")
+	if err := os.WriteFile(big, []byte(minimal+"#"+strings.Repeat("x", MaxFileSize)+"\n"), 0o644); err != nil {
+		t.Fatal(err)
+	}
+	good := filepath.Join(dir, "good.toml")
+	if err := os.WriteFile(good, []byte(minimal), 0o644); err != nil {
+		t.Fatal(err)
+	}
+	for _, tc := range []struct{ path, want string }{
+		{filepath.Join(dir, "absent.toml"), "does not exist"},
+		{dir, "is a folder"},
+		{big, "1 MiB"},
+	} {
+		_, err := Load(tc.path)
+		if err == nil || !strings.Contains(err.Error(), tc.want) || !strings.Contains(err.Error(), tc.path) {
+			t.Errorf("Load(%q) = %v, want an error naming the path and %q", tc.path, err, tc.want)
+		}
+	}
+	if _, err := Load(good); err != nil {
+		t.Errorf("Load(good) = %v", err)
+	}
+}
+
+// FuzzParseSpec checks that no file content panics the parser and that an
+// accepted spec is normalised (its band rules hold).
+func FuzzParseSpec(f *testing.F) {
+	f.Add(minimal)
+	f.Add(full)
+	f.Add(ExampleText)
+	f.Add("input_rate = 1e400")
+	f.Add("[search]\nkinds = [1, 2]")
+	f.Fuzz(func(t *testing.T, text string) {
+		s, err := Parse("fuzz.toml", []byte(text))
+		if err != nil {
+			if s != nil {
+				t.Fatal("spec and error both returned")
+			}
+			return
+		}
+		c := s.Chain
+		if _, err := c.Normalize(); err != nil {
+			t.Fatalf("accepted spec does not normalise again: %v", err)
+		}
+		if c.Decimation() < 2 || s.MaxStages < 1 || s.MaxStages > MaxStages || len(s.Kinds) == 0 {
+			t.Fatalf("accepted spec out of rule: %+v", s)
+		}
+		var _ chain.Spec = c
+	})
+}
