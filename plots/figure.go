@@ -1,0 +1,331 @@
+package plots
+
+import (
+	"bytes"
+	"fmt"
+	"image/color"
+	"io"
+	"math"
+	"os"
+	"path/filepath"
+	"strings"
+
+	xfont "golang.org/x/image/font"
+	"gonum.org/v1/plot"
+	"gonum.org/v1/plot/font"
+	"gonum.org/v1/plot/plotter"
+	"gonum.org/v1/plot/text"
+	"gonum.org/v1/plot/vg"
+	"gonum.org/v1/plot/vg/draw"
+	"gonum.org/v1/plot/vg/vgimg"
+	"gonum.org/v1/plot/vg/vgsvg"
+)
+
+// Default figure size, used when Save or Render is given a zero width or height.
+const (
+	DefaultWidth  = 8 * vg.Inch
+	DefaultHeight = 5 * vg.Inch
+)
+
+// Formats lists the output formats Render and Save accept.
+var Formats = []string{"svg", "png", "pdf", "eps"}
+
+// Figure is a drawable figure made of one or more stacked panels, an
+// optional colour key beside the first panel and an optional legend column
+// on the right. The figure functions of this package build it; callers
+// render it with Render or Save, or draw it onto their own canvas with Draw.
+type Figure struct {
+	panels   []panel
+	colorKey *plot.Plot   // drawn right of panels[0], aligned with its data area
+	side     *plot.Legend // drawn in a column right of the panels
+}
+
+type panel struct {
+	p      *plot.Plot
+	weight float64 // relative height
+}
+
+// Plots returns the figure's panels from top to bottom, for callers who
+// want to adjust a style before rendering.
+func (f *Figure) Plots() []*plot.Plot {
+	ps := make([]*plot.Plot, len(f.panels))
+	for i, p := range f.panels {
+		ps[i] = p.p
+	}
+	return ps
+}
+
+// Draw draws the figure onto c.
+func (f *Figure) Draw(c draw.Canvas) {
+	c.SetColor(color.White)
+	c.Fill(c.Rectangle.Path())
+
+	pad := vg.Points(6)
+	area := draw.Crop(c, pad, -pad, pad, -pad)
+
+	// Right-hand column: the legend's natural width, or a fixed strip for
+	// the colour key.
+	var right vg.Length
+	if f.side != nil {
+		right = f.side.Rectangle(area).Size().X + vg.Points(14)
+	}
+	if f.colorKey != nil {
+		right = vg.Points(62)
+	}
+	main := draw.Crop(area, 0, -right, 0, 0)
+
+	// Stack the panels by weight.
+	var total float64
+	for _, p := range f.panels {
+		total += p.weight
+	}
+	cells := make([]draw.Canvas, len(f.panels))
+	h := main.Max.Y - main.Min.Y
+	top := main.Max.Y
+	for i, p := range f.panels {
+		ph := vg.Length(p.weight / total * float64(h))
+		cells[i] = main
+		cells[i].Max.Y = top
+		cells[i].Min.Y = top - ph
+		top -= ph
+	}
+	// Line the data areas up horizontally so that stacked panels share a
+	// frequency axis position.
+	var maxL, maxR vg.Length
+	for i, p := range f.panels {
+		dc := p.p.DataCanvas(cells[i])
+		maxL = max(maxL, dc.Min.X-cells[i].Min.X)
+		maxR = max(maxR, cells[i].Max.X-dc.Max.X)
+	}
+	for i, p := range f.panels {
+		dc := p.p.DataCanvas(cells[i])
+		l := maxL - (dc.Min.X - cells[i].Min.X)
+		r := maxR - (cells[i].Max.X - dc.Max.X)
+		cells[i] = draw.Crop(cells[i], l, -r, 0, 0)
+		p.p.Draw(cells[i])
+	}
+	if len(cells) == 0 {
+		return
+	}
+	dc0 := f.panels[0].p.DataCanvas(cells[0])
+
+	if f.colorKey != nil {
+		kc := area
+		kc.Min.X = main.Max.X + vg.Points(8)
+		kc.Min.Y, kc.Max.Y = dc0.Min.Y, dc0.Max.Y
+		kd := f.colorKey.DataCanvas(kc)
+		// Grow the key's canvas so its bar spans the panel's data height.
+		kc.Min.Y -= kd.Min.Y - kc.Min.Y
+		kc.Max.Y += kc.Max.Y - kd.Max.Y
+		f.colorKey.Draw(kc)
+	}
+	if f.side != nil {
+		lc := area
+		lc.Min.X = main.Max.X + vg.Points(14)
+		lc.Max.Y = dc0.Max.Y
+		f.side.Draw(lc)
+	}
+}
+
+// Render writes the figure to w in the given format ("svg", "png", "pdf"
+// or "eps", case-insensitive) at the given size; a zero width or height
+// selects DefaultWidth or DefaultHeight. SVG output references the
+// Liberation fonts by name rather than embedding them, which keeps files
+// small.
+func (f *Figure) Render(w io.Writer, format string, width, height vg.Length) error {
+	if width == 0 {
+		width = DefaultWidth
+	}
+	if height == 0 {
+		height = DefaultHeight
+	}
+	if width < 0 || height < 0 {
+		return fmt.Errorf("plots: figure size %v x %v: width and height must not be negative", width, height)
+	}
+	format = strings.ToLower(strings.TrimPrefix(format, "."))
+	var c vg.CanvasWriterTo
+	switch format {
+	case "svg":
+		c = vgsvg.New(width, height)
+	case "png":
+		c = vgimg.PngCanvas{Canvas: vgimg.NewWith(vgimg.UseWH(width, height), vgimg.UseDPI(150))}
+	case "pdf", "eps":
+		var err error
+		c, err = draw.NewFormattedCanvas(width, height, format)
+		if err != nil {
+			return fmt.Errorf("plots: format %q: %v", format, err)
+		}
+	default:
+		return fmt.Errorf("plots: format %q: unsupported (want one of %s)", format, strings.Join(Formats, ", "))
+	}
+	f.Draw(draw.New(c))
+	_, err := c.WriteTo(w)
+	return err
+}
+
+// Save renders the figure to the named file, choosing the format from the
+// file's extension (.svg, .png, .pdf, .eps). It writes to a temporary file
+// in the same directory and renames it, so a reader never sees a partial
+// figure.
+func (f *Figure) Save(path string, width, height vg.Length) error {
+	format := strings.ToLower(strings.TrimPrefix(filepath.Ext(path), "."))
+	var buf bytes.Buffer
+	if err := f.Render(&buf, format, width, height); err != nil {
+		return err
+	}
+	tmp, err := os.CreateTemp(filepath.Dir(path), "."+filepath.Base(path)+".*")
+	if err != nil {
+		return err
+	}
+	// CreateTemp makes the file private; a figure is for sharing.
+	err = tmp.Chmod(0o644)
+	if err == nil {
+		_, err = tmp.Write(buf.Bytes())
+	}
+	if cerr := tmp.Close(); err == nil {
+		err = cerr
+	}
+	if err == nil {
+		err = os.Rename(tmp.Name(), path)
+	}
+	if err != nil {
+		os.Remove(tmp.Name())
+	}
+	return err
+}
+
+// Okabe-Ito colours (Okabe and Ito, "Color Universal Design", 2008;
+// hex values common practice).
+var (
+	black     = color.RGBA{0x00, 0x00, 0x00, 0xff}
+	orange    = color.RGBA{0xE6, 0x9F, 0x00, 0xff}
+	skyBlue   = color.RGBA{0x56, 0xB4, 0xE9, 0xff}
+	green     = color.RGBA{0x00, 0x9E, 0x73, 0xff}
+	yellow    = color.RGBA{0xF0, 0xE4, 0x42, 0xff}
+	blue      = color.RGBA{0x00, 0x72, 0xB2, 0xff}
+	vermilion = color.RGBA{0xD5, 0x5E, 0x00, 0xff}
+	purple    = color.RGBA{0xCC, 0x79, 0xA7, 0xff}
+	grey      = color.RGBA{0x80, 0x80, 0x80, 0xff}
+)
+
+// stageColors is the cycle for per-stage series; black is kept for the
+// cascade total and vermilion for targets and the recommendation.
+var stageColors = []color.Color{blue, orange, green, purple, skyBlue, yellow}
+
+var (
+	sans     = font.Font{Typeface: "Liberation", Variant: "Sans"}
+	sansBold = font.Font{Typeface: "Liberation", Variant: "Sans", Weight: xfont.WeightBold}
+)
+
+func textStyle(size vg.Length, bold bool) text.Style {
+	f := sans
+	if bold {
+		f = sansBold
+	}
+	return text.Style{
+		Color:   color.Black,
+		Font:    font.From(f, size),
+		Handler: plot.DefaultTextHandler,
+	}
+}
+
+// newPlot returns a plot with the package's type sizes: large enough to read
+// at 8 x 5 inches and in a report scaled to page width.
+func newPlot() *plot.Plot {
+	p := plot.New()
+	p.Title.TextStyle.Font = font.From(sansBold, 13)
+	p.Title.Padding = vg.Points(6)
+	for _, a := range []*plot.Axis{&p.X, &p.Y} {
+		a.Label.TextStyle.Font = font.From(sans, 11)
+		a.Tick.Label.Font = font.From(sans, 10)
+		a.Padding = vg.Points(2)
+	}
+	p.Legend.TextStyle.Font = font.From(sans, 10)
+	p.Legend.ThumbnailWidth = vg.Points(22)
+	return p
+}
+
+func newLegend() *plot.Legend {
+	l := plot.NewLegend()
+	l.TextStyle.Font = font.From(sans, 10)
+	l.ThumbnailWidth = vg.Points(22)
+	l.Padding = vg.Points(3)
+	l.Top = true
+	l.Left = true
+	return &l
+}
+
+func withAlpha(c color.RGBA, a uint8) color.Color {
+	// color.RGBA is alpha-premultiplied.
+	return color.RGBA{
+		R: uint8(uint16(c.R) * uint16(a) / 255),
+		G: uint8(uint16(c.G) * uint16(a) / 255),
+		B: uint8(uint16(c.B) * uint16(a) / 255),
+		A: a,
+	}
+}
+
+// insetLegend draws a legend inside the data area, on a white box, in the
+// corner that hides the fewest of the given points (weights add up; ties go
+// to the earlier corner in corners).
+type insetLegend struct {
+	l       *plot.Legend
+	pts     []plotter.XY
+	weights []float64
+	corners []corner
+}
+
+type corner struct{ top, left bool }
+
+func (il *insetLegend) size() vg.Point {
+	return il.l.Rectangle(draw.Canvas{}).Size()
+}
+
+func (il *insetLegend) box(c draw.Canvas, k corner) vg.Rectangle {
+	const margin = 6
+	pad := vg.Points(4)
+	s := il.size()
+	s.X += 2 * pad
+	s.Y += 2 * pad
+	var r vg.Rectangle
+	if k.left {
+		r.Min.X = c.Min.X + margin
+	} else {
+		r.Min.X = c.Max.X - margin - s.X
+	}
+	if k.top {
+		r.Min.Y = c.Max.Y - margin - s.Y
+	} else {
+		r.Min.Y = c.Min.Y + margin
+	}
+	r.Max = r.Min.Add(s)
+	return r
+}
+
+func (il *insetLegend) Plot(c draw.Canvas, p *plot.Plot) {
+	trX, trY := p.Transforms(&c)
+	best, bestScore := il.corners[0], math.Inf(1)
+	for _, k := range il.corners {
+		r := il.box(c, k)
+		var score float64
+		for i, pt := range il.pts {
+			q := vg.Point{X: trX(pt.X), Y: trY(pt.Y)}
+			if q.X >= r.Min.X-4 && q.X <= r.Max.X+4 && q.Y >= r.Min.Y-4 && q.Y <= r.Max.Y+4 {
+				score += il.weights[i]
+			}
+		}
+		if score < bestScore {
+			best, bestScore = k, score
+		}
+	}
+	r := il.box(c, best)
+	c.SetColor(color.NRGBA{0xff, 0xff, 0xff, 0xE6})
+	c.Fill(r.Path())
+	pad := vg.Points(4)
+	inner := draw.Canvas{Canvas: c.Canvas, Rectangle: vg.Rectangle{
+		Min: vg.Point{X: r.Min.X + pad, Y: r.Min.Y + pad},
+		Max: vg.Point{X: r.Max.X - pad, Y: r.Max.Y - pad},
+	}}
+	il.l.Top, il.l.Left = true, true
+	il.l.Draw(inner)
+}

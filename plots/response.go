@@ -1,0 +1,357 @@
+package plots
+
+import (
+	"fmt"
+	"image/color"
+	"math"
+	"sort"
+
+	"gonum.org/v1/plot"
+	"gonum.org/v1/plot/plotter"
+	"gonum.org/v1/plot/vg"
+	"gonum.org/v1/plot/vg/draw"
+)
+
+// Series is one named gain curve on the frequency grid of a ResponseData.
+type Series struct {
+	// Name is shown in the legend; empty selects "stage i" (from 1).
+	Name string
+	// DB holds the gain in dB at each ResponseData.FreqHz; -Inf is an exact
+	// null, NaN and +Inf are errors.
+	DB []float64
+}
+
+// ResponseData is the input of Response.
+type ResponseData struct {
+	// Title is the figure title; empty selects "Cascade response".
+	Title string
+	// FreqHz is the input-frequency grid in Hz: at least two points,
+	// strictly increasing, finite and >= 0. It usually runs from 0 to half
+	// the input rate; the near-region panel resolves only as finely as the
+	// grid does, so a grid of 10 000 to 50 000 points suits large ratios.
+	FreqHz []float64
+	// TotalDB is the cascade's gain in dB at each FreqHz, relative to its DC
+	// gain.
+	TotalDB []float64
+	// Stages are each stage's gain on the same input-frequency grid, in
+	// cascade order. It may be empty.
+	Stages []Series
+	// AliasBands are the input-frequency bands in Hz, [low, high], that fold
+	// onto the protected band at the output; they are shaded. Overlapping
+	// and touching bands are merged, and bands closer than about a pixel are
+	// drawn as one, so tens of thousands of bands stay cheap. It may be
+	// empty.
+	AliasBands [][2]float64
+	// TargetDB is the alias-rejection target in positive dB, drawn as a
+	// line at -TargetDB. Zero draws no target.
+	TargetDB float64
+	// PassbandHz is the passband edge in Hz, drawn as a vertical line. Zero
+	// draws none.
+	PassbandHz float64
+	// OutputRateHz is the final output rate in Hz. It sets the span of the
+	// near-region panel. Zero infers it from the centre of the first alias
+	// band; with neither, there is no near-region panel.
+	OutputRateHz float64
+	// ZoomHz is the upper edge of the near-region panel, drawn below the
+	// full span. Zero selects 2.5 output rates (the passband and the first
+	// two alias bands); a negative value, or a zoom wider than half the
+	// full span, leaves the panel out.
+	ZoomHz float64
+}
+
+// Response draws the cascade's gain in dB against input frequency, with
+// each stage's gain, the alias bands shaded and the rejection target drawn:
+// the full span on top and, when it helps, the region near the output band
+// underneath.
+func Response(d ResponseData) (*Figure, error) {
+	if err := d.check(); err != nil {
+		return nil, err
+	}
+	n := len(d.FreqHz)
+
+	// The floor keeps the curves readable: 60 dB below the target shows the
+	// margin, deeper nulls would only squash the scale.
+	dmin, dmax := math.Inf(1), math.Inf(-1)
+	for _, s := range append([][]float64{d.TotalDB}, seriesDB(d.Stages)...) {
+		for _, v := range s {
+			if !math.IsInf(v, -1) {
+				dmin, dmax = math.Min(dmin, v), math.Max(dmax, v)
+			}
+		}
+	}
+	floor := -160.0
+	if d.TargetDB > 0 {
+		floor = -d.TargetDB - 60
+	}
+	if !math.IsInf(dmin, 0) {
+		floor = math.Max(floor, 10*math.Floor((dmin-5)/10))
+	} else {
+		dmax = 0
+	}
+	top := math.Max(5, 5*math.Ceil((dmax+3)/5))
+	if top-floor < 20 {
+		floor = top - 20
+	}
+
+	zoom := d.ZoomHz
+	fk := d.OutputRateHz
+	if fk == 0 && len(d.AliasBands) > 0 {
+		b := merged(d.AliasBands, 0)[0]
+		fk = (b[0] + b[1]) / 2
+	}
+	if zoom == 0 {
+		zoom = 2.5 * fk
+	}
+	fullLo, fullHi := d.FreqHz[0], d.FreqHz[n-1]
+	if zoom <= fullLo || zoom > fullLo+0.5*(fullHi-fullLo) {
+		zoom = -1
+	}
+
+	leg := newLegend()
+	title := d.Title
+	if title == "" {
+		title = "Cascade response"
+	}
+	full := responsePanel(d, fullLo, fullHi, floor, top, leg)
+	full.Title.Text = title
+	fig := &Figure{panels: []panel{{p: full, weight: 1}}, side: leg}
+	if zoom > 0 {
+		near := responsePanel(d, fullLo, zoom, floor, top, nil)
+		near.Title.Text = "Near the output band"
+		near.Title.TextStyle.Font.Size = 11
+		fig.panels[0].weight = 0.55
+		fig.panels = append(fig.panels, panel{p: near, weight: 0.45})
+	}
+	return fig, nil
+}
+
+func (d *ResponseData) check() error {
+	n := len(d.FreqHz)
+	if n < 2 {
+		return fmt.Errorf("plots: ResponseData.FreqHz has %d points: need at least 2", n)
+	}
+	for i, f := range d.FreqHz {
+		if math.IsNaN(f) || math.IsInf(f, 0) || f < 0 {
+			return fmt.Errorf("plots: ResponseData.FreqHz[%d] = %v: must be finite and >= 0", i, f)
+		}
+		if i > 0 && f <= d.FreqHz[i-1] {
+			return fmt.Errorf("plots: ResponseData.FreqHz[%d] = %v: must exceed FreqHz[%d] = %v (strictly increasing)", i, f, i-1, d.FreqHz[i-1])
+		}
+	}
+	checkDB := func(field string, db []float64) error {
+		if len(db) != n {
+			return fmt.Errorf("plots: ResponseData.%s has %d values: must match FreqHz (%d)", field, len(db), n)
+		}
+		for i, v := range db {
+			if math.IsNaN(v) || math.IsInf(v, 1) {
+				return fmt.Errorf("plots: ResponseData.%s[%d] = %v: must be finite or -Inf", field, i, v)
+			}
+		}
+		return nil
+	}
+	if err := checkDB("TotalDB", d.TotalDB); err != nil {
+		return err
+	}
+	for i, s := range d.Stages {
+		if err := checkDB(fmt.Sprintf("Stages[%d].DB", i), s.DB); err != nil {
+			return err
+		}
+	}
+	for i, b := range d.AliasBands {
+		if math.IsNaN(b[0]) || math.IsNaN(b[1]) || math.IsInf(b[0], 0) || math.IsInf(b[1], 0) || b[0] < 0 || b[1] < b[0] {
+			return fmt.Errorf("plots: ResponseData.AliasBands[%d] = %v: need finite 0 <= low <= high", i, b)
+		}
+	}
+	for _, v := range []struct {
+		name string
+		v    float64
+	}{{"TargetDB", d.TargetDB}, {"PassbandHz", d.PassbandHz}, {"OutputRateHz", d.OutputRateHz}} {
+		if math.IsNaN(v.v) || math.IsInf(v.v, 0) || v.v < 0 {
+			return fmt.Errorf("plots: ResponseData.%s = %v: must be finite and >= 0", v.name, v.v)
+		}
+	}
+	if math.IsNaN(d.ZoomHz) || math.IsInf(d.ZoomHz, 0) {
+		return fmt.Errorf("plots: ResponseData.ZoomHz = %v: must be finite", d.ZoomHz)
+	}
+	return nil
+}
+
+func seriesDB(ss []Series) [][]float64 {
+	out := make([][]float64, len(ss))
+	for i, s := range ss {
+		out[i] = s.DB
+	}
+	return out
+}
+
+// responsePanel draws the curves over [lo, hi]; leg, if not nil, receives
+// the legend entries.
+func responsePanel(d ResponseData, lo, hi, floor, top float64, leg *plot.Legend) *plot.Plot {
+	p := newPlot()
+	u := freqUnit(hi)
+	p.X.Min, p.X.Max = lo, hi
+	p.Y.Min, p.Y.Max = floor, top
+	p.X.Tick.Marker = scaledTicks{u.scale}
+	p.X.Label.Text = "Input frequency (" + u.name + ")"
+	p.Y.Label.Text = fmt.Sprintf("Gain (dB, floor %g)", floor)
+	p.Y.Tick.Marker = dbTicks{}
+	addGrid(p)
+	add := func(name string, pl plot.Plotter, th ...plot.Thumbnailer) {
+		p.Add(pl)
+		if leg != nil && name != "" {
+			leg.Add(name, th...)
+		}
+	}
+
+	if bands := merged(d.AliasBands, (hi-lo)/1500); len(bands) > 0 {
+		var rings []plotter.XYer
+		for _, b := range bands {
+			b0, b1 := math.Max(b[0], lo), math.Min(b[1], hi)
+			if b1 < b0 {
+				continue
+			}
+			rings = append(rings, plotter.XYs{{X: b0, Y: floor}, {X: b1, Y: floor}, {X: b1, Y: top}, {X: b0, Y: top}})
+		}
+		if len(rings) > 0 {
+			poly, _ := plotter.NewPolygon(rings...)
+			poly.Color = color.RGBA{0xF6, 0xDC, 0xC4, 0xff} // a light tint of vermilion
+			poly.LineStyle.Width = 0
+			add("alias bands", poly, poly)
+		} else if leg != nil {
+			// Keep the legend the same whether or not a band falls in view.
+			poly, _ := plotter.NewPolygon(plotter.XYs{})
+			poly.Color = color.RGBA{0xF6, 0xDC, 0xC4, 0xff}
+			poly.LineStyle.Width = 0
+			leg.Add("alias bands", poly)
+		}
+	}
+	if d.PassbandHz > 0 {
+		l, _ := plotter.NewLine(plotter.XYs{{X: d.PassbandHz, Y: floor}, {X: d.PassbandHz, Y: top}})
+		l.LineStyle = draw.LineStyle{Color: green, Width: vg.Points(1.5), Dashes: []vg.Length{vg.Points(2), vg.Points(2)}}
+		if d.PassbandHz <= hi {
+			add("passband edge "+hz(d.PassbandHz), l, l)
+		} else if leg != nil {
+			leg.Add("passband edge "+hz(d.PassbandHz), l)
+		}
+	}
+	if d.TargetDB > 0 {
+		l, _ := plotter.NewLine(plotter.XYs{{X: lo, Y: -d.TargetDB}, {X: hi, Y: -d.TargetDB}})
+		l.LineStyle = draw.LineStyle{Color: vermilion, Width: vg.Points(1.5), Dashes: []vg.Length{vg.Points(6), vg.Points(3)}}
+		add(fmt.Sprintf("rejection target -%g dB", d.TargetDB), l, l)
+	}
+	for i, s := range d.Stages {
+		name := s.Name
+		if name == "" {
+			name = fmt.Sprintf("stage %d", i+1)
+		}
+		l, _ := plotter.NewLine(decimate(d.FreqHz, s.DB, lo, hi, floor))
+		l.LineStyle = draw.LineStyle{Color: stageColors[i%len(stageColors)], Width: vg.Points(1)}
+		if i >= len(stageColors) {
+			l.LineStyle.Dashes = []vg.Length{vg.Points(4), vg.Points(2)}
+		}
+		add(fmt.Sprintf("stage %d: %s", i+1, name), l, l)
+	}
+	l, _ := plotter.NewLine(decimate(d.FreqHz, d.TotalDB, lo, hi, floor))
+	l.LineStyle = draw.LineStyle{Color: black, Width: vg.Points(1.8)}
+	add("cascade", l, l)
+	return p
+}
+
+// merged returns the bands sorted and merged, joining bands whose gap is at
+// most tol.
+func merged(bands [][2]float64, tol float64) [][2]float64 {
+	if len(bands) == 0 {
+		return nil
+	}
+	s := make([][2]float64, len(bands))
+	copy(s, bands)
+	sort.Slice(s, func(i, j int) bool {
+		if s[i][0] != s[j][0] {
+			return s[i][0] < s[j][0]
+		}
+		return s[i][1] < s[j][1]
+	})
+	out := s[:1]
+	for _, b := range s[1:] {
+		last := &out[len(out)-1]
+		if b[0] <= last[1]+tol {
+			last[1] = math.Max(last[1], b[1])
+			continue
+		}
+		out = append(out, b)
+	}
+	return out
+}
+
+// decimate returns the curve over [lo, hi] (with one neighbour each side,
+// so the line meets the axis edges), clamped at floor, keeping at most the
+// minimum and maximum of each of about 1500 columns: a pixel-accurate
+// envelope that keeps every peak and null, at a bounded file size.
+func decimate(x, y []float64, lo, hi, floor float64) plotter.XYs {
+	const columns = 1500
+	i0 := sort.SearchFloat64s(x, lo)
+	if i0 > 0 {
+		i0--
+	}
+	i1 := sort.SearchFloat64s(x, hi)
+	if i1 < len(x) {
+		i1++
+	}
+	at := func(i int) plotter.XY { return plotter.XY{X: x[i], Y: math.Max(y[i], floor)} }
+	if i1-i0 <= 2*columns {
+		out := make(plotter.XYs, 0, i1-i0)
+		for i := i0; i < i1; i++ {
+			out = append(out, at(i))
+		}
+		return out
+	}
+	out := make(plotter.XYs, 0, 2*columns+2)
+	out = append(out, at(i0))
+	w := (hi - lo) / columns
+	for i := i0 + 1; i < i1-1; {
+		col := math.Floor((x[i] - lo) / w)
+		imin, imax := i, i
+		j := i
+		for ; j < i1-1 && math.Floor((x[j]-lo)/w) == col; j++ {
+			if y[j] < y[imin] {
+				imin = j
+			}
+			if y[j] > y[imax] {
+				imax = j
+			}
+		}
+		a, b := min(imin, imax), max(imin, imax)
+		out = append(out, at(a))
+		if b != a {
+			out = append(out, at(b))
+		}
+		i = j
+	}
+	return append(out, at(i1-1))
+}
+
+// hz formats a frequency with an engineering unit: 600000 -> "600 kHz".
+func hz(f float64) string {
+	u := freqUnit(f)
+	return trimFloat(f/u.scale) + " " + u.name
+}
+
+// dbTicks labels the gain axis every 20 dB (every 10 dB on short spans),
+// the habit of filter plots.
+type dbTicks struct{}
+
+func (dbTicks) Ticks(min, max float64) []plot.Tick {
+	step := 20.0
+	if max-min <= 60 {
+		step = 10
+	}
+	var ts []plot.Tick
+	for v := math.Ceil(min/10) * 10; v <= max; v += 10 {
+		t := plot.Tick{Value: v}
+		if math.Mod(v, step) == 0 {
+			t.Label = fmt.Sprintf("%g", v)
+		}
+		ts = append(ts, t)
+	}
+	return ts
+}
