@@ -1,0 +1,397 @@
+package fixed
+
+import (
+	"fmt"
+	"math"
+	"math/rand/v2"
+)
+
+// Tone is one sinusoid of a test signal.
+type Tone struct {
+	Freq  float64 // Hz at the chain's input
+	Level float64 // amplitude in dB relative to full scale (dBFS), <= 0
+}
+
+// Signal is the bit-true run's test signal. The zero value is the default.
+type Signal struct {
+	// Tones are the wanted signals; nil means one tone at 0.4 fp at -1 dBFS.
+	// Each frequency is moved to the nearest whole number of cycles in the
+	// measurement window at the output rate (coherent sampling).
+	Tones []Tone
+	// NoiseDBFS is the RMS of white Gaussian noise added to the tones, dB
+	// relative to full scale; zero means one input LSB (2^-(InputBits-1)),
+	// math.Inf(-1) means none. Both the float and the integer chain see it.
+	NoiseDBFS float64
+	// AliasLevel is the level of the alias test tone in dBFS; zero means -1.
+	AliasLevel float64
+	// Samples is the number of output samples measured after the filters'
+	// transients; zero means 2048.
+	Samples int
+	// Seed seeds the noise and the tones' phases (PCG); zero means 1.
+	Seed uint64
+}
+
+// BitTrueResult compares the integer chain with the float chain.
+type BitTrueResult struct {
+	// SNRDB is 10 log10 of the float chain's output power over the power of
+	// (integer output - float output), both on the same test signal, over the
+	// measurement window. The float chain runs on the unquantised signal with
+	// the unquantised taps, so the error holds the ADC word, the coefficient
+	// quantisation and every rounding point of the data path.
+	SNRDB float64
+	// ENOB = (SNRDB - 1.76) / 6.02 (common practice). It is the conventional
+	// figure when the test signal is one full-scale sine; a tone backed off by
+	// L dB lowers it by L/6.02.
+	ENOB float64
+	// InputSNRDB is the same ratio for the ADC word alone (signal over input
+	// quantisation error); for a full-scale sine it is 6.02 B + 1.76 dB.
+	InputSNRDB float64
+	Clipped    int // input samples saturated by the ADC word
+
+	// The alias test: one tone at AliasHz (the worst alias of the quantised
+	// cascade, moved to a whole number of output cycles), measured at
+	// AliasOutHz by projection over the window. Rejections are positive dB
+	// relative to the DC gain.
+	AliasHz, AliasOutHz  float64
+	AliasRejectionDB     float64 // bit-true, measured
+	AliasFloatRunDB      float64 // float chain, measured the same way
+	AliasResponseDB      float64 // frequency domain, quantised coefficients, at AliasHz
+	WorstAliasResponseDB float64 // frequency domain, quantised coefficients, worst over the alias bands
+	// AliasNoiseDB is the level (positive dB below the DC gain) of the integer
+	// output's residual noise in the measured bin; AliasValid says it is at
+	// least 10 dB below the alias, so the bit-true figure measures the alias.
+	AliasNoiseDB float64
+	AliasValid   bool
+
+	Samples      int // output samples measured
+	InputSamples int // input samples run
+	Skip         int // output samples skipped for transients
+}
+
+// maxInputSamples bounds a bit-true run's memory.
+const maxInputSamples = 1 << 25
+
+// BitTrue runs the cascade in integer arithmetic at the widths w (from Plan)
+// and in float64 arithmetic, on sig and on an alias tone, and compares them.
+// Integer conventions are those of Plan: the CIC wraps in two's complement
+// at its pruned widths (the modular arithmetic is exact for the final
+// output), FIR products are exact, rounding and truncation happen only at the
+// points StageWidths.Points state. The float chain has the same structure
+// and gains (including the CIC's (RM)^N / 2^ceil(N log2 RM)) but no rounding.
+// A complex chain runs one of its two identical real paths.
+func BitTrue(c Cascade, w *Widths, sig Signal) (BitTrueResult, error) {
+	if w == nil || len(w.Stages) != len(c.Stages) {
+		return BitTrueResult{}, fmt.Errorf("fixed: BitTrue needs the widths Plan returned for this cascade")
+	}
+	fp, fa := c.Passband, c.Protected
+	if fa == 0 {
+		fa = fp
+	}
+	d := 1
+	for _, st := range c.Stages {
+		d *= st.R
+	}
+	fk := c.InputRate / float64(d)
+	if !(fp > 0) || fp >= fk/2 || fa < fp || fa > fk/2 {
+		return BitTrueResult{}, fmt.Errorf("fixed: cascade Passband = %g Hz, Protected = %g Hz: need 0 < Passband <= Protected <= output rate/2 = %g Hz", fp, fa, fk/2)
+	}
+	if sig.Samples == 0 {
+		sig.Samples = 2048
+	}
+	if sig.Samples < 64 {
+		return BitTrueResult{}, fmt.Errorf("fixed: signal Samples = %d: must be >= 64", sig.Samples)
+	}
+	if sig.Seed == 0 {
+		sig.Seed = 1
+	}
+	if sig.AliasLevel == 0 {
+		sig.AliasLevel = -1
+	}
+	if sig.Tones == nil {
+		sig.Tones = []Tone{{Freq: 0.4 * fp, Level: -1}}
+	}
+	noise := math.Ldexp(1, -(w.InputBits - 1))
+	if sig.NoiseDBFS != 0 {
+		noise = math.Pow(10, sig.NoiseDBFS/20)
+	}
+	amp := 0.0
+	for i, t := range sig.Tones {
+		if !(t.Level <= 0) || !(t.Freq >= 0 && t.Freq < fk/2) {
+			return BitTrueResult{}, fmt.Errorf("fixed: signal tone %d at %g Hz, %g dBFS: the level must be <= 0 dBFS and the frequency in [0, %g Hz)", i, t.Freq, t.Level, fk/2)
+		}
+		amp += math.Pow(10, t.Level/20)
+	}
+	if sig.AliasLevel > 0 || math.IsNaN(sig.AliasLevel) || !(noise < 1) {
+		return BitTrueResult{}, fmt.Errorf("fixed: signal AliasLevel = %g dBFS, NoiseDBFS = %g: levels must be below 0 dBFS", sig.AliasLevel, sig.NoiseDBFS)
+	}
+	// Transient: the cascade's impulse response length in output samples.
+	span, p := 1, 1
+	for _, st := range c.Stages {
+		span += (stageLen(st) - 1) * p
+		p *= st.R
+	}
+	skip := (span+d-1)/d + 1
+	nm := sig.Samples
+	nin := (skip + nm) * d
+	if nin > maxInputSamples {
+		return BitTrueResult{}, fmt.Errorf("fixed: bit-true run needs %d input samples (decimation %d, %d output samples); at most %d are supported", nin, d, nm+skip, maxInputSamples)
+	}
+	res := BitTrueResult{Samples: nm, InputSamples: nin, Skip: skip}
+	rng := rand.New(rand.NewPCG(sig.Seed, 0x5eed))
+
+	// Run 1: the wanted tones plus noise.
+	x := make([]float64, nin)
+	for _, t := range sig.Tones {
+		m := math.Round(t.Freq / fk * float64(nm))
+		addTone(x, m*fk/float64(nm), math.Pow(10, t.Level/20), 2*math.Pi*rng.Float64(), c.InputRate)
+	}
+	addNoise(x, noise, rng)
+	yi, yf, xq, clipped := runBoth(c, w, x)
+	res.Clipped = clipped
+	res.InputSNRDB = snrDB(x, xq)
+	res.SNRDB = snrDB(yf[skip:skip+nm], yi[skip:skip+nm])
+	res.ENOB = (res.SNRDB - 1.76) / 6.02
+
+	// Run 2: a tone at the worst alias of the quantised cascade.
+	q := quantisedCascade(c, w)
+	g, worst := worstAlias(q, fk, fa)
+	res.WorstAliasResponseDB = worst
+	fold := math.Mod(g, fk)
+	mirror := fold > fk/2
+	if mirror {
+		fold = fk - fold
+	}
+	m := math.Max(1, math.Min(float64(nm/2-1), math.Round(fold/fk*float64(nm))))
+	fout := m * fk / float64(nm)
+	if mirror {
+		g += fold - fout
+	} else {
+		g += fout - fold
+	}
+	res.AliasHz, res.AliasOutHz = g, fout
+	h0q := q.gain(0)
+	res.AliasResponseDB = posDB(q.gain(g) / h0q)
+	a := math.Pow(10, sig.AliasLevel/20)
+	for i := range x {
+		x[i] = 0
+	}
+	addTone(x, g, a, 2*math.Pi*rng.Float64(), c.InputRate)
+	addNoise(x, noise, rng)
+	yi, yf, _, _ = runBoth(c, w, x)
+	ai, resid := project(yi[skip:skip+nm], fout/fk)
+	af, _ := project(yf[skip:skip+nm], fout/fk)
+	res.AliasRejectionDB = posDB(ai / (a * h0q))
+	res.AliasFloatRunDB = posDB(af / (a * c.floatGain(0, w)))
+	res.AliasNoiseDB = posDB(2 * resid / math.Sqrt(float64(nm)) / (a * h0q))
+	res.AliasValid = res.AliasNoiseDB >= res.AliasRejectionDB+10
+	return res, nil
+}
+
+// posDB returns -20 log10(v), bounded to [-300, 300] so that no figure is infinite.
+func posDB(v float64) float64 {
+	if !(v > 0) {
+		return 300
+	}
+	return math.Max(-300, math.Min(300, -20*math.Log10(v)))
+}
+
+func snrDB(ref, got []float64) float64 {
+	var ps, pe float64
+	for i, r := range ref {
+		e := got[i] - r
+		ps += r * r
+		pe += e * e
+	}
+	if pe == 0 {
+		return 300
+	}
+	return math.Max(-300, math.Min(300, 10*math.Log10(ps/pe)))
+}
+
+func addTone(x []float64, f, a, phase, rate float64) {
+	w := 2 * math.Pi * f / rate
+	for n := range x {
+		// Reduce the phase exactly enough for long runs: w*n stays well within float64.
+		x[n] += a * math.Cos(w*float64(n)+phase)
+	}
+}
+
+func addNoise(x []float64, sigma float64, rng *rand.Rand) {
+	if !(sigma > 0) {
+		return
+	}
+	for n := range x {
+		x[n] += sigma * rng.NormFloat64()
+	}
+}
+
+// project returns the amplitude of y's component at normalised frequency nu
+// (cycles per sample, a whole number of cycles over len(y)) and the RMS of
+// what is left.
+func project(y []float64, nu float64) (amp, resid float64) {
+	var re, im float64
+	for n, v := range y {
+		s, c := math.Sincos(2 * math.Pi * nu * float64(n))
+		re += v * c
+		im += v * s
+	}
+	k := 2 / float64(len(y))
+	re, im = re*k, im*k
+	var r2 float64
+	for n, v := range y {
+		s, c := math.Sincos(2 * math.Pi * nu * float64(n))
+		e := v - re*c - im*s
+		r2 += e * e
+	}
+	return math.Hypot(re, im), math.Sqrt(r2 / float64(len(y)))
+}
+
+func stageLen(st Stage) int {
+	if st.CIC {
+		return st.N*(st.R*st.M-1) + 1
+	}
+	return len(st.Taps)
+}
+
+// runBoth runs the integer and the float chain on x (fractions of full
+// scale) and returns both outputs in fractions of full scale, the quantised
+// input and the number of clipped input samples.
+func runBoth(c Cascade, w *Widths, x []float64) (yi, yf, xq []float64, clipped int) {
+	b := w.InputBits
+	lim := int64(1)<<(b-1) - 1
+	xi := make([]int64, len(x))
+	xq = make([]float64, len(x))
+	for n, v := range x {
+		q := int64(math.Round(math.Ldexp(v, b-1)))
+		if q > lim {
+			q, clipped = lim, clipped+1
+		} else if q < -lim-1 {
+			q, clipped = -lim-1, clipped+1
+		}
+		xi[n] = q
+		xq[n] = math.Ldexp(float64(q), -(b - 1))
+	}
+	cur := xi
+	fcur := x
+	for i, st := range c.Stages {
+		sw := &w.Stages[i]
+		if st.CIC {
+			cur = cicInt(cur, sw.Pruning)
+			fcur = firFloat(fcur, cicTaps(st.N, st.R*st.M, math.Ldexp(1, -(sw.Pruning.FullBits-sw.Pruning.InputBits))), st.R)
+		} else {
+			cur = firInt(cur, sw.Coefficients.Ints, st.R, sw.OutputShift, sw.OutputBits)
+			fcur = firFloat(fcur, st.Taps, st.R)
+		}
+	}
+	ob := w.Stages[len(w.Stages)-1].OutputBits
+	yi = make([]float64, len(cur))
+	for n, v := range cur {
+		yi[n] = math.Ldexp(float64(v), -(ob - 1))
+	}
+	return yi, fcur, xq, clipped
+}
+
+// wrap reduces v to a w-bit two's-complement value.
+func wrap(v int64, w int) int64 {
+	s := uint(64 - w)
+	return v << s >> s
+}
+
+// shiftTo moves v from units of 2^from to units of 2^to, truncating (floor).
+func shiftTo(v int64, from, to int) int64 {
+	if to >= from {
+		return v >> uint(to-from)
+	}
+	return v << uint(from-to)
+}
+
+// cicInt runs a pruned CIC decimator: register j holds its value in units of
+// 2^Dropped[j] and wraps at RegisterBits[j]; the output is taken at input
+// sample indices 0, R, 2R, ...
+func cicInt(x []int64, p *CICPruning) []int64 {
+	n, r, m := p.N, p.R, p.M
+	integ := make([]int64, n)
+	combIn := make([][]int64, n) // last M inputs of each comb
+	for j := range combIn {
+		combIn[j] = make([]int64, m)
+	}
+	out := make([]int64, (len(x)+r-1)/r)
+	pos := 0
+	for k, v := range x {
+		unit := 0
+		for j := 0; j < n; j++ {
+			in := shiftTo(v, unit, p.Dropped[j])
+			integ[j] = wrap(integ[j]+in, p.RegisterBits[j])
+			v, unit = integ[j], p.Dropped[j]
+		}
+		if k%r != 0 {
+			continue
+		}
+		for j := 0; j < n; j++ {
+			d := p.Dropped[n+j]
+			in := wrap(shiftTo(v, unit, d), p.RegisterBits[n+j])
+			old := combIn[j][pos]
+			combIn[j][pos] = in
+			v, unit = wrap(in-old, p.RegisterBits[n+j]), d
+		}
+		pos = (pos + 1) % m
+		out[k/r] = wrap(shiftTo(v, unit, p.Dropped[2*n]), p.OutputBits)
+	}
+	return out
+}
+
+// firInt runs a decimating FIR with exact products and sum, then rounds half
+// up at bit shift and saturates to ob bits. y[m] = sum_k h[k] x[mR-k].
+func firInt(x, h []int64, r, shift, ob int) []int64 {
+	out := make([]int64, (len(x)+r-1)/r)
+	hi := int64(1)<<(ob-1) - 1
+	lo := -hi - 1
+	for mi := range out {
+		n := mi * r
+		var acc int64
+		for k := 0; k < len(h) && k <= n; k++ {
+			acc += h[k] * x[n-k]
+		}
+		switch {
+		case shift > 0:
+			acc = (acc + int64(1)<<(shift-1)) >> uint(shift)
+		case shift < 0:
+			acc <<= uint(-shift)
+		}
+		out[mi] = max(lo, min(hi, acc))
+	}
+	return out
+}
+
+func firFloat(x, h []float64, r int) []float64 {
+	out := make([]float64, (len(x)+r-1)/r)
+	for mi := range out {
+		n := mi * r
+		var acc float64
+		for k := 0; k < len(h) && k <= n; k++ {
+			acc += h[k] * x[n-k]
+		}
+		out[mi] = acc
+	}
+	return out
+}
+
+// cicTaps is the impulse response of n cascaded length-rm boxcars, times scale.
+func cicTaps(n, rm int, scale float64) []float64 {
+	h := []float64{scale}
+	for b := 0; b < n; b++ {
+		g := make([]float64, len(h)+rm-1)
+		run := 0.0
+		for k := range g {
+			if k < len(h) {
+				run += h[k]
+			}
+			if k-rm >= 0 {
+				run -= h[k-rm]
+			}
+			g[k] = run
+		}
+		h = g
+	}
+	return h
+}

@@ -1,0 +1,313 @@
+package fixed
+
+import (
+	"fmt"
+	"math"
+	"math/bits"
+
+	"stepdown/chain/remez"
+)
+
+// Stage is one decimating stage in the terms the word-length planner needs.
+type Stage struct {
+	// CIC marks a CIC stage of order N and differential delay M; otherwise the
+	// stage is an FIR (half-band when HalfBand is set) with taps Taps.
+	CIC  bool
+	N, M int
+	R    int // decimation factor
+
+	Taps     []float64
+	HalfBand bool
+	// Bands are what the quantised FIR response must meet (each MaxError set),
+	// in Hz at the stage's input rate.
+	Bands []remez.Band
+}
+
+// Cascade is a chain of stages from InputRate (Hz).
+type Cascade struct {
+	InputRate float64
+	Complex   bool // I/Q: two identical real data paths
+	Stages    []Stage
+	// Passband (fp) and Protected (fa, zero means Passband) edges in Hz, used
+	// by the bit-true run for its test tones and alias bands.
+	Passband, Protected float64
+}
+
+// Words are the word widths the spec fixes.
+type Words struct {
+	InputBits  int // ADC word; zero means 16
+	OutputBits int // final output word; zero means 24
+	// DataBits is the width of the words between stages; zero means OutputBits.
+	DataBits int
+	// CoefBits fixes every FIR coefficient width; zero means "auto": the
+	// smallest width per stage that meets its bands (MinCoefBits).
+	CoefBits int
+}
+
+// Settings tunes Plan. The zero value is the documented default.
+type Settings struct {
+	Quant QuantSettings // coefficient search; see QuantSettings
+	// NoSymmetry counts every tap's multiply and stores every coefficient;
+	// by default symmetric pairs share a multiplier through a pre-adder.
+	NoSymmetry bool
+	// NativeA x NativeB is the hardware multiplier's native size (e.g. 18 x 27);
+	// zero means no hardware multiplier figure.
+	NativeA, NativeB int
+	// Clock is the hardware clock in Hz; zero means no multipliers-at-clock figure.
+	Clock float64
+}
+
+// StageWidths is the fixed-point plan of one stage.
+type StageWidths struct {
+	CIC       bool
+	HalfBand  bool
+	R         int
+	InputRate float64 // Hz
+
+	InputBits int
+	// FIR: the quantised coefficients (full impulse response) and their measured
+	// per-band deviations; MeetsBands says whether every band is met (false
+	// only when Words.CoefBits fixes a width too narrow for the bands).
+	Coefficients Coefficients
+	Deviations   []float64
+	MeetsBands   bool
+
+	// AccumulatorBits is the worst-case width of the sum of products (FIR) or
+	// the full register width Bin + ceil(N log2(RM)) (CIC).
+	AccumulatorBits int
+	// CIC: Hogenauer's register plan.
+	Pruning *CICPruning
+	// OutputBits is the stage's output word; OutputShift the LSBs removed from
+	// the accumulator to make it (rounded for an FIR, truncated for a CIC);
+	// negative means the accumulator is shifted left.
+	OutputBits  int
+	OutputShift int
+	// Gain is the stage's DC gain from input full scale to output full scale.
+	Gain float64
+	// Points states every rounding, truncation and saturation point in order.
+	Points []string
+
+	// Cost from the widths, one real data path (Complex doubles the data path
+	// figures, not the coefficient memory).
+	MultiplierA, MultiplierB int // product size a x b bits (data x coefficient); 0 for a CIC
+	MultipliesPerSample      int // per output sample of this stage
+	CoefMemoryBits           int
+	DataMemoryBits           int
+	NativePerProduct         int // native multipliers per a x b product; 0 without NativeA/B
+	HardwareMultipliers      int // at Settings.Clock; 0 without a clock or native size
+}
+
+// Widths is the fixed-point plan of a cascade.
+type Widths struct {
+	InputBits, OutputBits int
+	Stages                []StageWidths
+	MemoryBits            int // data (doubled for Complex) plus coefficients
+	HardwareMultipliers   int // summed over stages; 0 without a clock or native size
+}
+
+// Plan chooses every word width of the cascade: quantised coefficients per
+// FIR stage, accumulator and output widths, CIC registers by Hogenauer's
+// pruning, and the cost that follows from them.
+//
+// Data path conventions. Every data word is a two's-complement fraction of
+// full scale: a b-bit word w stands for w / 2^(b-1). The input is the ADC
+// word (rounded to nearest, saturated). A CIC's registers are truncated
+// (floor: drop LSBs) at each of Hogenauer's points and wrap modulo their
+// width; its output keeps the top OutputBits of the full register. An FIR's
+// products and sum are exact in an accumulator of
+// Bin + ceil(log2 sum|h_int|) + 1 bits (worst case, any input, no overflow);
+// its output is rounded half up at OutputShift and saturated to OutputBits.
+// Inter-stage words are Words.DataBits wide (the CIC's output is narrower when
+// its full register is), the last stage's output Words.OutputBits.
+func Plan(c Cascade, w Words, s Settings) (*Widths, error) {
+	if w.InputBits == 0 {
+		w.InputBits = 16
+	}
+	if w.OutputBits == 0 {
+		w.OutputBits = 24
+	}
+	if w.DataBits == 0 {
+		w.DataBits = w.OutputBits
+	}
+	for _, f := range []struct {
+		name string
+		v    int
+	}{{"InputBits", w.InputBits}, {"OutputBits", w.OutputBits}, {"DataBits", w.DataBits}} {
+		if f.v < 2 || f.v > 32 {
+			return nil, fmt.Errorf("fixed: words %s = %d: must lie in [2, 32] bits", f.name, f.v)
+		}
+	}
+	if w.CoefBits != 0 && (w.CoefBits < 2 || w.CoefBits > MaxBits) {
+		return nil, fmt.Errorf("fixed: words CoefBits = %d: must be 0 (auto) or lie in [2, %d] bits", w.CoefBits, MaxBits)
+	}
+	if !(c.InputRate > 0) || math.IsInf(c.InputRate, 0) {
+		return nil, fmt.Errorf("fixed: cascade InputRate = %g: must be a finite rate above 0 Hz", c.InputRate)
+	}
+	if len(c.Stages) == 0 {
+		return nil, fmt.Errorf("fixed: cascade has no stages")
+	}
+	if (s.NativeA == 0) != (s.NativeB == 0) || s.NativeA < 0 || s.NativeB < 0 {
+		return nil, fmt.Errorf("fixed: native multiplier %d x %d: give both sizes (> 0) or neither", s.NativeA, s.NativeB)
+	}
+	out := &Widths{InputBits: w.InputBits, OutputBits: w.OutputBits}
+	rate := c.InputRate
+	in := w.InputBits
+	for i, st := range c.Stages {
+		ob := w.DataBits
+		if i == len(c.Stages)-1 {
+			ob = w.OutputBits
+		}
+		var sw StageWidths
+		var err error
+		if st.CIC {
+			sw, err = planCIC(st, rate, in, ob)
+		} else {
+			sw, err = planFIR(st, rate, in, ob, w.CoefBits, s)
+		}
+		if err != nil {
+			return nil, fmt.Errorf("fixed: stage %d: %w", i+1, err)
+		}
+		sw.InputRate = rate
+		rate /= float64(st.R)
+		sw.costAtClock(rate, c.Complex, s)
+		out.Stages = append(out.Stages, sw)
+		data := sw.DataMemoryBits
+		if c.Complex {
+			data *= 2
+		}
+		out.MemoryBits += data + sw.CoefMemoryBits
+		out.HardwareMultipliers += sw.HardwareMultipliers
+		in = sw.OutputBits
+	}
+	return out, nil
+}
+
+func planCIC(st Stage, rate float64, in, ob int) (StageWidths, error) {
+	p, err := PruneCIC(st.N, st.M, st.R, in, ob)
+	if err != nil {
+		return StageWidths{}, err
+	}
+	sw := StageWidths{CIC: true, R: st.R, InputBits: in, AccumulatorBits: p.FullBits,
+		Pruning: &p, OutputBits: p.OutputBits, OutputShift: p.Dropped[2*p.N], Gain: p.Gain(), MeetsBands: true}
+	for j := 0; j < 2*p.N; j++ {
+		kind, idx := "integrator", j+1
+		if j >= p.N {
+			kind, idx = "comb", j+1-p.N
+		}
+		if p.Dropped[j] > 0 {
+			sw.Points = append(sw.Points, fmt.Sprintf("%s %d: truncate %d LSBs at its input (%d-bit register, wraps)", kind, idx, p.Dropped[j], p.RegisterBits[j]))
+		} else {
+			sw.Points = append(sw.Points, fmt.Sprintf("%s %d: full width (%d-bit register, wraps)", kind, idx, p.RegisterBits[j]))
+		}
+		if j < p.N {
+			sw.DataMemoryBits += p.RegisterBits[j]
+		} else {
+			sw.DataMemoryBits += (st.M + 1) * p.RegisterBits[j] // M delay words and the comb's register
+		}
+	}
+	sw.Points = append(sw.Points, fmt.Sprintf("output: truncate %d LSBs to %d bits", p.Dropped[2*p.N], p.OutputBits))
+	return sw, nil
+}
+
+func planFIR(st Stage, rate float64, in, ob, coefBits int, s Settings) (StageWidths, error) {
+	if len(st.Taps) == 0 {
+		return StageWidths{}, fmt.Errorf("FIR stage has no taps (an estimate cannot be quantised)")
+	}
+	if st.R < 1 {
+		return StageWidths{}, fmt.Errorf("FIR factor R = %d: must be >= 1", st.R)
+	}
+	q := s.Quant
+	q.HalfBand = st.HalfBand
+	sw := StageWidths{HalfBand: st.HalfBand, R: st.R, InputBits: in, OutputBits: ob}
+	var err error
+	if coefBits == 0 {
+		sw.Coefficients, sw.Deviations, err = MinCoefBits(st.Taps, rate, st.Bands, q)
+		if err != nil {
+			return StageWidths{}, err
+		}
+		sw.MeetsBands = true
+	} else {
+		if st.HalfBand && !IsHalfBand(st.Taps, 1e-6) {
+			return StageWidths{}, fmt.Errorf("taps of length %d are not a half-band", len(st.Taps))
+		}
+		sw.Coefficients, sw.Deviations, sw.MeetsBands = TryWidth(st.Taps, rate, st.Bands, coefBits, q)
+	}
+	cf := sw.Coefficients
+	sum := cf.AbsSum()
+	hi, lo := bits.Mul64(uint64(sum), uint64(1)<<(in-1))
+	if hi != 0 || bits.Len64(lo)+1 > 63 {
+		return StageWidths{}, fmt.Errorf("accumulator of %d-bit data and %d-bit coefficients exceeds 63 bits", in, cf.Bits)
+	}
+	sw.AccumulatorBits = bits.Len64(lo) + 1
+	// The accumulator holds Frac + in - 1 fractional bits; the output ob - 1.
+	sw.OutputShift = cf.Frac + in - ob
+	var dc int64
+	for _, v := range cf.Ints {
+		dc += v
+	}
+	sw.Gain = float64(dc) * math.Ldexp(1, -cf.Frac)
+	sw.Points = []string{
+		fmt.Sprintf("products and sum: exact (%d x %d bits into %d-bit accumulator)", in, cf.Bits, sw.AccumulatorBits),
+	}
+	switch {
+	case sw.OutputShift > 0:
+		sw.Points = append(sw.Points, fmt.Sprintf("output: round half up, dropping %d LSBs, then saturate to %d bits", sw.OutputShift, ob))
+	case sw.OutputShift == 0:
+		sw.Points = append(sw.Points, fmt.Sprintf("output: no rounding, saturate to %d bits", ob))
+	default:
+		sw.Points = append(sw.Points, fmt.Sprintf("output: shift left %d bits, saturate to %d bits", -sw.OutputShift, ob))
+	}
+	n := len(cf.Ints)
+	sw.MultiplierA, sw.MultiplierB = in, cf.Bits
+	switch {
+	case st.HalfBand:
+		k := (n + 1) / 4
+		sw.MultipliesPerSample = 2 * k
+		sw.CoefMemoryBits = 2 * k * cf.Bits
+		if !s.NoSymmetry {
+			sw.MultipliesPerSample, sw.CoefMemoryBits = k, k*cf.Bits
+			sw.MultiplierA = in + 1 // pre-adder output
+		}
+	case s.NoSymmetry:
+		sw.MultipliesPerSample, sw.CoefMemoryBits = n, n*cf.Bits
+	default:
+		sw.MultipliesPerSample, sw.CoefMemoryBits = (n+1)/2, (n+1)/2*cf.Bits
+		if n > 1 {
+			sw.MultiplierA = in + 1 // pre-adder output
+		}
+	}
+	sw.DataMemoryBits = n * in
+	return sw, nil
+}
+
+// NativeMultipliers returns how many a x b native multipliers one product of
+// x by y bits needs when tiled: the better of the two orientations,
+// ceil(x/a)*ceil(y/b) or ceil(x/b)*ceil(y/a). It treats the native block's
+// operands as unsigned-width slices of the signed operands; a real signed
+// block yields one bit less per extra slice, so for products just over a
+// native size the count can be one slice short (check with the vendor's tool).
+func NativeMultipliers(x, y, a, b int) int {
+	if x <= 0 || y <= 0 || a <= 0 || b <= 0 {
+		return 0
+	}
+	cd := func(p, q int) int { return (p + q - 1) / q }
+	return min(cd(x, a)*cd(y, b), cd(x, b)*cd(y, a))
+}
+
+// costAtClock fills the hardware multiplier figures: per stage
+// ceil(MultipliesPerSample * Fi / fclk) time-shared multipliers (doubled for
+// Complex), each NativePerProduct native blocks.
+func (sw *StageWidths) costAtClock(outRate float64, complexData bool, s Settings) {
+	if sw.CIC || s.NativeA == 0 {
+		return
+	}
+	sw.NativePerProduct = NativeMultipliers(sw.MultiplierA, sw.MultiplierB, s.NativeA, s.NativeB)
+	if s.Clock <= 0 {
+		return
+	}
+	rate := float64(sw.MultipliesPerSample) * outRate
+	if complexData {
+		rate *= 2
+	}
+	sw.HardwareMultipliers = int(math.Ceil(rate/s.Clock-1e-12)) * sw.NativePerProduct
+}
