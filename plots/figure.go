@@ -28,7 +28,7 @@ const (
 )
 
 // Formats lists the output formats Render and Save accept.
-var Formats = []string{"svg", "png", "pdf", "eps"}
+var Formats = []string{"svg", "png"}
 
 // Figure is a drawable figure made of one or more stacked panels, an
 // optional colour key beside the first panel and an optional legend column
@@ -127,8 +127,8 @@ func (f *Figure) Draw(c draw.Canvas) {
 	}
 }
 
-// Render writes the figure to w in the given format ("svg", "png", "pdf"
-// or "eps", case-insensitive) at the given size; a zero width or height
+// Render writes the figure to w in the given format ("svg" or "png",
+// case-insensitive; PNG at 150 dots per inch) at the given size; a zero width or height
 // selects DefaultWidth or DefaultHeight. SVG output references the
 // Liberation fonts by name rather than embedding them, which keeps files
 // small.
@@ -149,12 +149,6 @@ func (f *Figure) Render(w io.Writer, format string, width, height vg.Length) err
 		c = vgsvg.New(width, height)
 	case "png":
 		c = vgimg.PngCanvas{Canvas: vgimg.NewWith(vgimg.UseWH(width, height), vgimg.UseDPI(150))}
-	case "pdf", "eps":
-		var err error
-		c, err = draw.NewFormattedCanvas(width, height, format)
-		if err != nil {
-			return fmt.Errorf("plots: format %q: %v", format, err)
-		}
 	default:
 		return fmt.Errorf("plots: format %q: unsupported (want one of %s)", format, strings.Join(Formats, ", "))
 	}
@@ -164,7 +158,7 @@ func (f *Figure) Render(w io.Writer, format string, width, height vg.Length) err
 }
 
 // Save renders the figure to the named file, choosing the format from the
-// file's extension (.svg, .png, .pdf, .eps). It writes to a temporary file
+// file's extension (.svg or .png). It writes to a temporary file
 // in the same directory and renames it, so a reader never sees a partial
 // figure.
 func (f *Figure) Save(path string, width, height vg.Length) error {
