@@ -1,0 +1,141 @@
+package chain
+
+import (
+	"math"
+
+	"stepdown/chain/remez"
+)
+
+// Kind is a stage's kind.
+type Kind int
+
+// Stage kinds.
+const (
+	CIC Kind = iota + 1
+	HalfBand
+	FIR
+)
+
+// String returns "cic", "halfband" or "fir".
+func (k Kind) String() string {
+	switch k {
+	case CIC:
+		return "cic"
+	case HalfBand:
+		return "halfband"
+	case FIR:
+		return "fir"
+	}
+	return "unknown"
+}
+
+// Variant is the band layout of an FIR stage.
+type Variant int
+
+const (
+	// Multiband attenuates only the bands that alias onto [0, fa]; the rest is don't-care.
+	Multiband Variant = iota
+	// Lowpass has one stopband from Fi - fa to F(i-1)/2.
+	Lowpass
+)
+
+// String returns "multiband" or "lowpass".
+func (v Variant) String() string {
+	if v == Lowpass {
+		return "lowpass"
+	}
+	return "multiband"
+}
+
+// StagePlan describes one stage before it is designed.
+type StagePlan struct {
+	Kind     Kind
+	Factor   int
+	CICOrder int     // CIC only: N
+	CICDelay int     // CIC only: M
+	Variant  Variant // FIR only
+}
+
+// Stage is one decimating stage.
+type Stage interface {
+	Kind() Kind
+	Factor() int
+	// Gain returns |H(f)| at f Hz for the stage's input rate rate.
+	Gain(f, rate float64) float64
+}
+
+// Chain is a cascade of stages from InputRate.
+type Chain struct {
+	InputRate float64
+	Complex   bool
+	Plan      []StagePlan
+	// Stages holds CICStage and FIRStage values (not pointers), in signal order.
+	Stages []Stage
+	// Designed is true when every FIR stage has coefficients from a real design;
+	// false when lengths are estimates.
+	Designed bool
+}
+
+// Settings tunes how stages are designed. The zero value is the default.
+type Settings struct {
+	Remez remez.Settings
+}
+
+// Decimation returns the product of the stages' factors.
+func (c *Chain) Decimation() int {
+	d := 1
+	for _, s := range c.Stages {
+		d *= s.Factor()
+	}
+	return d
+}
+
+// OutputRate returns the rate after the last stage.
+func (c *Chain) OutputRate() float64 { return c.InputRate / float64(c.Decimation()) }
+
+// Rates returns the rate at the input of each stage followed by the output
+// rate: F0, F1, ..., FK.
+func (c *Chain) Rates() []float64 {
+	r := make([]float64, len(c.Stages)+1)
+	r[0] = c.InputRate
+	d := 1
+	for i, s := range c.Stages {
+		d *= s.Factor()
+		r[i+1] = c.InputRate / float64(d)
+	}
+	return r
+}
+
+// Gain returns the cascade's gain |H(g)| = prod_i |H_i(g)| at input
+// frequency g Hz, each stage evaluated relative to its own input rate
+// (DESIGN §7).
+func (c *Chain) Gain(g float64) float64 {
+	p := 1.0
+	rate := c.InputRate
+	for _, s := range c.Stages {
+		p *= s.Gain(g, rate)
+		rate /= float64(s.Factor())
+	}
+	return p
+}
+
+// GainDB returns 20 log10 of Gain, floored at -MaxFigureDB.
+func (c *Chain) GainDB(g float64) float64 { return toDB(c.Gain(g)) }
+
+// MaxFigureDB bounds every dB figure the package returns, so that an exact
+// null never turns into an infinity.
+const MaxFigureDB = 300
+
+func toDB(v float64) float64 {
+	if !(v > 0) {
+		return -MaxFigureDB
+	}
+	db := 20 * math.Log10(v)
+	if db < -MaxFigureDB {
+		return -MaxFigureDB
+	}
+	if db > MaxFigureDB {
+		return MaxFigureDB
+	}
+	return db
+}

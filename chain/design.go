@@ -1,0 +1,143 @@
+package chain
+
+import (
+	"errors"
+	"fmt"
+
+	"stepdown/chain/remez"
+)
+
+// Estimate returns the chain with FIR lengths from order estimates (no design).
+//
+// FIR stages take remez.HerrmannLength(dp_i, ds, first stopband edge - fp,
+// F(i-1)); half-bands the same estimate for min(dp_i, ds) on both bands,
+// rounded up to the next length 4K-1. CIC stages need no design and are
+// complete (pruned registers included).
+func Estimate(spec Spec, plan []StagePlan, s Settings) (*Chain, error) {
+	return build(spec, plan, s, false)
+}
+
+// Design designs every stage for real: FIR stages by remez.MinLength on their
+// requirement's bands, half-bands by remez.MinHalfBand.
+func Design(spec Spec, plan []StagePlan, s Settings) (*Chain, error) {
+	return build(spec, plan, s, true)
+}
+
+func build(spec Spec, plan []StagePlan, s Settings, design bool) (*Chain, error) {
+	spec, err := spec.Normalize()
+	if err != nil {
+		return nil, err
+	}
+	reqs, err := Requirements(spec, plan)
+	if err != nil {
+		return nil, err
+	}
+	c := &Chain{InputRate: spec.InputRate, Complex: spec.Complex,
+		Plan: append([]StagePlan(nil), plan...), Designed: design}
+	bits := spec.InputBits
+	for i, p := range plan {
+		r := reqs[i]
+		switch p.Kind {
+		case CIC:
+			cs := NewCICStage(p.CICOrder, p.CICDelay, p.Factor, bits, spec.OutputBits)
+			bits = cs.OutputBits
+			c.Stages = append(c.Stages, cs)
+			continue
+		case HalfBand:
+			st, err := halfBandStage(r, s, design)
+			if err != nil {
+				return nil, planErr(plan, i, "%v", err)
+			}
+			c.Stages = append(c.Stages, st)
+		case FIR:
+			st, err := firStage(r, c.Stages, s, design)
+			if err != nil {
+				return nil, planErr(plan, i, "%v", err)
+			}
+			c.Stages = append(c.Stages, st)
+		}
+		bits = spec.OutputBits
+	}
+	return c, nil
+}
+
+func halfBandStage(r Requirement, s Settings, design bool) (FIRStage, error) {
+	st := FIRStage{R: 2, HalfBand: true, Req: r}
+	if !design {
+		n := remez.HerrmannLength(r.Dp, r.Ds, r.InputRate/2-2*r.Passband, r.InputRate)
+		if n == 0 {
+			return st, fmt.Errorf("no half-band length estimate for deviation %.3g", r.Dp)
+		}
+		k := (n + 1 + 3) / 4
+		if k < 1 {
+			k = 1
+		}
+		st.Length = 4*k - 1
+		return st, nil
+	}
+	res, err := remez.MinHalfBand(r.Passband, r.InputRate, r.Dp, s.Remez)
+	if err != nil {
+		return st, fmt.Errorf("half-band design: %w", err)
+	}
+	st.Taps = res.Taps
+	st.Length = len(res.Taps)
+	return st, nil
+}
+
+// compGain returns the product of the compensated CICs' gains at f.
+func compGain(r Requirement, stages []Stage) func(f float64) float64 {
+	type cr struct {
+		c    CICStage
+		rate float64
+	}
+	var cics []cr
+	for _, j := range r.Compensates {
+		cs := stages[j].(CICStage)
+		// f < fp lies below every earlier Nyquist rate, so the frequency on the
+		// compensator's axis is the input frequency.
+		rate := r.InputRate
+		for k := j; k < len(stages); k++ {
+			rate *= float64(stages[k].Factor())
+		}
+		cics = append(cics, cr{cs, rate})
+	}
+	return func(f float64) float64 {
+		g := 1.0
+		for _, v := range cics {
+			g *= v.c.Gain(f, v.rate)
+		}
+		return g
+	}
+}
+
+func firStage(r Requirement, prev []Stage, s Settings, design bool) (FIRStage, error) {
+	st := FIRStage{R: r.Factor, Variant: r.Variant, CompensatesCIC: len(r.Compensates) > 0, Req: r}
+	if !design {
+		n := remez.HerrmannLength(r.Dp, r.Ds, r.Stopbands[0].Lo-r.Passband, r.InputRate)
+		if n == 0 {
+			return st, errors.New("no length estimate for its bands")
+		}
+		st.Length = n
+		return st, nil
+	}
+	pass := remez.Band{Lo: 0, Hi: r.Passband, Gain: 1, MaxError: r.Dp, Weight: 1 / r.Dp}
+	if st.CompensatesCIC {
+		hc := compGain(r, prev)
+		pass.Gain = 0
+		pass.GainFunc = func(f float64) float64 { return 1 / hc(f) }
+		// Weighting the error by |H_cic| makes it relative: |A H_cic - 1| <= dp.
+		pass.WeightFunc = hc
+		pass.Weight = 0
+	}
+	bands := []remez.Band{pass}
+	for _, b := range r.Stopbands {
+		bands = append(bands, remez.Band{Lo: b.Lo, Hi: b.Hi, MaxError: r.Ds, Weight: 1 / r.Ds})
+	}
+	res, err := remez.MinLength(r.InputRate, bands, 0, 0, s.Remez)
+	if err != nil {
+		return st, fmt.Errorf("FIR design: %w", err)
+	}
+	st.Taps = res.Taps
+	st.Length = len(res.Taps)
+	return st, nil
+}

@@ -1,0 +1,100 @@
+// Package chain describes decimation chains (CIC, half-band and FIR stages),
+// derives each stage's requirements from the user's spec, designs or
+// estimates the stages, and measures the truth of the cascade in the
+// frequency domain (Analyze) and the time domain (Run).
+//
+// # Conventions
+//
+// Rates and frequencies are in Hz. Attenuation and rejection are positive
+// dB; passband ripple is peak-to-peak dB, ripple_db = 20 log10((1+dp)/(1-dp)),
+// rejection_db = -20 log10(ds) (DESIGN §2). F0 is the input rate, Fi the
+// output rate of stage i, FK the final output rate, D = F0/FK an integer.
+// Every dB figure is bounded by MaxFigureDB so that exact nulls never become
+// infinities; no result is ever NaN.
+//
+// # Spec
+//
+// Spec.Normalize fills defaults (Protected = Passband, Stopband = FK - fa,
+// InputBits 16, OutputBits 24, CoefBits 0 = floating) and refuses, with a
+// *SpecError naming field, value and rule: rates that are not finite and
+// positive; a ratio F0/FK that is not an integer within 1e-9 (the error gives
+// the two nearest integer ratios and their output rates) or is below 2;
+// fp outside (0, FK/2); fa outside [fp, FK/2]; fs outside (fp, FK - fa];
+// ripple not above 0; rejection outside (0, 150] dB; word lengths outside
+// 2..64 when set.
+//
+// # Stage requirements (DESIGN §4)
+//
+// Requirements turns spec and plan into one Requirement per stage, on the
+// stage's own input axis:
+//
+//   - Multiband FIR: stopbands [k Fi - fa, k Fi + fa], k = 1..floor(Di/2),
+//     clipped to [0, F(i-1)/2] and merged where they touch; the rest is
+//     don't-care. As the last stage the first band starts at fs (which
+//     Normalize keeps <= FK - fa, so this is DESIGN's min(fs, FK - fa)): the
+//     output is then also a lowpass at fs on the final stage's own axis.
+//   - Lowpass FIR: one stopband [Fi - fa, F(i-1)/2]; as the last stage
+//     [fs, F(i-1)/2]. With fa = FK - fs this is Crochiere and Rabiner's
+//     (1975) rule "stage i's stopband starts at Fi - fs".
+//   - Half-band (Di = 2 only): edges symmetric about F(i-1)/4. Its passband
+//     edge is p = max(fp, fa) (its stopband [F(i-1)/2 - p, F(i-1)/2] must
+//     cover the alias band [Fi - fa, Fi]); as the last stage p = max(fp,
+//     FK - fs) so that its stopband starts at fs. It is feasible when p <
+//     Fi/2. Deviation from DESIGN: DESIGN allows a last half-band only when
+//     fs >= FK - fp, the case p = fp; we also accept a wider p, which keeps
+//     the passband flat further out and meets the same bands.
+//   - CIC: no design; its rejection is read on the same alias bands, its
+//     droop must be corrected by a later FIR stage.
+//
+// Ripple budget: the CIC droop that no later stage corrects, -20 log10
+// |H_cic(fp)| (the passband lies in the CIC's main lobe, where it falls
+// monotonically; a plan whose CIC has a null inside [0, fp] is refused), is
+// taken off the budget first; what is left is split equally, in dB, among the
+// FIR and half-band stages, and each share is turned into dp_i by inverting
+// ripple_db = 20 log10((1+dp)/(1-dp)). Equal dB shares add up to the budget
+// because a cascade's max/min ratio is at most the product of its stages'.
+// The compensating stage is the last FIR (not half-band) stage after the
+// first CIC; it corrects every CIC before it, with desired gain 1/prod|H_cic|
+// on [0, fp] and error weight prod|H_cic|, so its error is relative
+// (|A H_cic - 1| <= dp_i): its leftover droop is inside its own share.
+// Every stage meets the full rejection target ds on its own bands; a
+// half-band is designed for min(dp_i, ds) on both bands.
+//
+// # Estimates and designs (DESIGN §6)
+//
+// Estimate sizes FIR stages by remez.HerrmannLength(dp_i, ds, first stopband
+// edge - passband edge, F(i-1)) and half-bands by the same formula for
+// min(dp_i, ds) rounded up to a length 4K-1. The estimated Analysis of such a
+// chain is the least of its stages' rejections (ds for each FIR, the CIC's
+// computed exactly on its alias bands) and the sum of the ripple shares plus
+// the uncorrected droop. Design uses remez.MinLength (type I or II, whichever
+// is shorter) and remez.MinHalfBand, so every length is searched until the
+// stage meets its bands on its real response.
+//
+// # Analysis (DESIGN §7)
+//
+// Analyze measures alias rejection and passband ripple exactly as DESIGN §7
+// defines them. To stay fast on chains with thousands of alias bands, each
+// stage's magnitude is computed once on a grid at its own rate (FFT, 32
+// points per lobe), the cascade is scanned through linear interpolation of
+// those grids at the finest stage's spacing, and every grid extremum within
+// 0.5 dB of the worst (at most 64) is refined by golden-section search on the
+// direct response, which puts each figure well inside 0.01 dB.
+//
+// # Time domain
+//
+// Run and RunComplex run the real chain on a signal: polyphase FIR
+// decimators in float64, CICs as integrators and combs in wrapping integer
+// arithmetic (see Run for why), so tests can check the frequency analysis
+// against what the structure actually computes.
+//
+// # Notation
+//
+// Notation and ParseNotation write and read a chain's plan in a compact form
+// of our own, stages joined by " > " in signal order:
+//
+//	cic5m1r16 > hb > hb > fir8 > fir2L
+//
+// is a CIC of order 5, differential delay 1, factor 16, two half-bands, a
+// multiband FIR decimating by 8 and a lowpass FIR decimating by 2.
+package chain

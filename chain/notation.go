@@ -1,0 +1,168 @@
+package chain
+
+import (
+	"fmt"
+	"strconv"
+	"strings"
+)
+
+// Notation limits: numbers above these are refused by ParseNotation so that
+// every parsed plan is one the rest of the package can work with.
+const (
+	maxNotationFactor = 1 << 20
+	maxCICOrder       = 16
+	maxCICDelay       = 16
+)
+
+// Notation returns the chain's compact notation, accepted back by ParseNotation.
+//
+// Stages are joined by " > " in signal order. A CIC is "cic<N>m<M>r<R>", a
+// half-band is "hb", a multiband FIR decimating by D is "fir<D>" and the
+// plain lowpass variant is "fir<D>L". For example
+//
+//	cic5m1r16 > hb > hb > fir8 > fir2L
+//
+// A stage with an unknown kind is written "?" (which ParseNotation refuses).
+func Notation(plan []StagePlan) string {
+	var b strings.Builder
+	for i, p := range plan {
+		if i > 0 {
+			b.WriteString(" > ")
+		}
+		switch p.Kind {
+		case CIC:
+			fmt.Fprintf(&b, "cic%dm%dr%d", p.CICOrder, p.CICDelay, p.Factor)
+		case HalfBand:
+			b.WriteString("hb")
+		case FIR:
+			fmt.Fprintf(&b, "fir%d", p.Factor)
+			if p.Variant == Lowpass {
+				b.WriteByte('L')
+			}
+		default:
+			b.WriteByte('?')
+		}
+	}
+	return b.String()
+}
+
+// NotationError is a syntax error in a chain's notation.
+type NotationError struct {
+	Input    string
+	Pos      int    // byte offset of the problem
+	Expected string // what the parser wanted there
+}
+
+func (e *NotationError) Error() string {
+	found := "end of input"
+	if e.Pos < len(e.Input) {
+		r := e.Input[e.Pos:]
+		if len(r) > 8 {
+			r = r[:8] + "..."
+		}
+		found = strconv.Quote(r)
+	}
+	return fmt.Sprintf("chain: notation %q: at byte %d: expected %s, found %s", e.Input, e.Pos, e.Expected, found)
+}
+
+type notationParser struct {
+	s   string
+	pos int
+}
+
+func (p *notationParser) fail(expected string) error {
+	return &NotationError{Input: p.s, Pos: p.pos, Expected: expected}
+}
+
+func (p *notationParser) skipSpaces() {
+	for p.pos < len(p.s) && (p.s[p.pos] == ' ' || p.s[p.pos] == '\t') {
+		p.pos++
+	}
+}
+
+func (p *notationParser) lit(w string) bool {
+	if strings.HasPrefix(p.s[p.pos:], w) {
+		p.pos += len(w)
+		return true
+	}
+	return false
+}
+
+// number reads a decimal integer in [lo, hi] without sign or leading zeros,
+// so that every accepted string is the canonical one.
+func (p *notationParser) number(what string, lo, hi int) (int, error) {
+	start := p.pos
+	for p.pos < len(p.s) && p.s[p.pos] >= '0' && p.s[p.pos] <= '9' {
+		p.pos++
+	}
+	rule := fmt.Sprintf("%s (an integer from %d to %d)", what, lo, hi)
+	if p.pos == start {
+		return 0, p.fail(rule)
+	}
+	digits := p.s[start:p.pos]
+	if len(digits) > 1 && digits[0] == '0' {
+		p.pos = start
+		return 0, p.fail(rule + " without leading zeros")
+	}
+	v, err := strconv.Atoi(digits)
+	if err != nil || v < lo || v > hi {
+		p.pos = start
+		return 0, p.fail(rule)
+	}
+	return v, nil
+}
+
+// ParseNotation parses a chain's notation (see Notation). Spaces and tabs
+// around ">" are optional. Errors are *NotationError and give the byte
+// position and what was expected there.
+func ParseNotation(s string) ([]StagePlan, error) {
+	p := &notationParser{s: s}
+	var plan []StagePlan
+	for {
+		p.skipSpaces()
+		var st StagePlan
+		switch {
+		case p.lit("cic"):
+			n, err := p.number("CIC order", 1, maxCICOrder)
+			if err != nil {
+				return nil, err
+			}
+			if !p.lit("m") {
+				return nil, p.fail(`"m" and the CIC differential delay`)
+			}
+			m, err := p.number("CIC differential delay", 1, maxCICDelay)
+			if err != nil {
+				return nil, err
+			}
+			if !p.lit("r") {
+				return nil, p.fail(`"r" and the CIC decimation factor`)
+			}
+			r, err := p.number("CIC decimation factor", 2, maxNotationFactor)
+			if err != nil {
+				return nil, err
+			}
+			st = StagePlan{Kind: CIC, Factor: r, CICOrder: n, CICDelay: m}
+		case p.lit("hb"):
+			st = StagePlan{Kind: HalfBand, Factor: 2}
+		case p.lit("fir"):
+			d, err := p.number("FIR decimation factor", 2, maxNotationFactor)
+			if err != nil {
+				return nil, err
+			}
+			st = StagePlan{Kind: FIR, Factor: d, Variant: Multiband}
+			if p.lit("L") {
+				st.Variant = Lowpass
+			}
+		default:
+			return nil, p.fail(`a stage ("cic<N>m<M>r<R>", "hb", "fir<D>" or "fir<D>L")`)
+		}
+		plan = append(plan, st)
+		p.skipSpaces()
+		if p.pos == len(p.s) {
+			return plan, nil
+		}
+		if !p.lit(">") {
+			return nil, p.fail(`" > " before the next stage or the end of the chain`)
+		}
+	}
+}

@@ -1,0 +1,251 @@
+package chain
+
+import (
+	"fmt"
+	"math"
+	"sort"
+)
+
+// Interval is a closed frequency band [Lo, Hi] in Hz.
+type Interval struct{ Lo, Hi float64 }
+
+// Requirement is what one stage must do, derived from the spec and the
+// stage's place in the chain (DESIGN §4). Frequencies are in Hz on the
+// stage's input axis, within [0, InputRate/2].
+type Requirement struct {
+	Kind       Kind
+	Factor     int
+	Variant    Variant
+	InputRate  float64 // F(i-1)
+	OutputRate float64 // Fi
+	Last       bool
+
+	// Passband is the edge of the band the stage keeps flat: fp, or for a
+	// half-band its (possibly wider) symmetric edge.
+	Passband float64
+	// RippleDB is the stage's share of the ripple budget (0 for a CIC).
+	RippleDB float64
+	// Dp and Ds are the linear passband and stopband deviations the stage is
+	// designed for (a half-band uses min(dp_i, ds) for both).
+	Dp, Ds float64
+	// Stopbands must be attenuated by Ds (for a CIC: the bands its rejection
+	// is read on).
+	Stopbands []Interval
+	// Compensates lists the indices of the CIC stages whose droop this stage's
+	// passband corrects (desired gain 1/prod|H_cic| on [0, fp]).
+	Compensates []int
+	// DroopDB is a CIC's droop over [0, fp]; UncorrectedDroopDB the part of
+	// it no later stage corrects and that therefore comes out of the budget.
+	DroopDB            float64
+	UncorrectedDroopDB float64
+}
+
+// PlanError says why a plan cannot meet a spec, or what is wrong with it.
+type PlanError struct {
+	Stage int // 0-based stage index, -1 for the plan as a whole
+	Plan  string
+	Rule  string
+}
+
+func (e *PlanError) Error() string {
+	if e.Stage < 0 {
+		return fmt.Sprintf("chain: plan %q: %s", e.Plan, e.Rule)
+	}
+	return fmt.Sprintf("chain: plan %q: stage %d: %s", e.Plan, e.Stage+1, e.Rule)
+}
+
+func planErr(plan []StagePlan, stage int, rule string, args ...any) error {
+	return &PlanError{Stage: stage, Plan: Notation(plan), Rule: fmt.Sprintf(rule, args...)}
+}
+
+// validatePlan checks the plan's own consistency and its product against D.
+func validatePlan(plan []StagePlan, d int) error {
+	if len(plan) == 0 {
+		return planErr(plan, -1, "has no stages")
+	}
+	prod := 1
+	for i, p := range plan {
+		switch p.Kind {
+		case CIC:
+			if p.CICOrder < 1 || p.CICOrder > maxCICOrder {
+				return planErr(plan, i, "CICOrder = %d: must lie in [1, %d]", p.CICOrder, maxCICOrder)
+			}
+			if p.CICDelay < 1 || p.CICDelay > maxCICDelay {
+				return planErr(plan, i, "CICDelay = %d: must lie in [1, %d]", p.CICDelay, maxCICDelay)
+			}
+		case HalfBand:
+			if p.Factor != 2 {
+				return planErr(plan, i, "Factor = %d: a half-band decimates by 2 only", p.Factor)
+			}
+		case FIR:
+		default:
+			return planErr(plan, i, "Kind = %d: not a stage kind", int(p.Kind))
+		}
+		if p.Factor < 2 || p.Factor > maxNotationFactor {
+			return planErr(plan, i, "Factor = %d: must lie in [2, %d]", p.Factor, maxNotationFactor)
+		}
+		prod *= p.Factor
+		if prod > d {
+			break
+		}
+	}
+	if prod != d {
+		return planErr(plan, -1, "the factors multiply to %d, the spec's ratio is %d", prod, d)
+	}
+	return nil
+}
+
+// Requirements derives every stage's requirement from the spec (normalised
+// here) and the plan (DESIGN §4, with the choices in the package doc).
+func Requirements(spec Spec, plan []StagePlan) ([]Requirement, error) {
+	spec, err := spec.Normalize()
+	if err != nil {
+		return nil, err
+	}
+	if err := validatePlan(plan, spec.Decimation()); err != nil {
+		return nil, err
+	}
+	fp, fa, fs := spec.Passband, spec.Protected, spec.Stopband
+	fk := spec.OutputRate
+	ds := RejectionToDev(spec.RejectionDB)
+	k := len(plan)
+	reqs := make([]Requirement, k)
+
+	// The compensator is the last FIR stage after the first CIC.
+	firstCIC, comp := -1, -1
+	for i, p := range plan {
+		if p.Kind == CIC && firstCIC < 0 {
+			firstCIC = i
+		}
+		if p.Kind == FIR && firstCIC >= 0 {
+			comp = i
+		}
+	}
+
+	rate := spec.InputRate
+	nRipple := 0
+	uncorrected := 0.0
+	for i, p := range plan {
+		out := rate / float64(p.Factor)
+		r := Requirement{Kind: p.Kind, Factor: p.Factor, Variant: p.Variant,
+			InputRate: rate, OutputRate: out, Last: i == k-1, Passband: fp, Ds: ds}
+		if p.Kind == FIR {
+			r.Variant = p.Variant
+		} else {
+			r.Variant = Multiband
+		}
+		switch p.Kind {
+		case CIC:
+			r.Stopbands = aliasBands(out, rate, fa, r.Last, fs)
+			droop, ok := CICStage{N: p.CICOrder, M: p.CICDelay, R: p.Factor}.DroopDB(fp, rate)
+			if !ok {
+				return nil, planErr(plan, i, "the CIC's first null at %s Hz lies inside the passband [0, %s Hz]",
+					fmtNum(rate/float64(p.Factor*p.CICDelay)), fmtNum(fp))
+			}
+			r.DroopDB = droop
+			if comp < i {
+				r.UncorrectedDroopDB = droop
+				uncorrected += droop
+			}
+		case HalfBand:
+			edge := math.Max(fp, fa)
+			if r.Last {
+				edge = math.Max(fp, fk-fs)
+			}
+			if edge >= out/2 {
+				return nil, planErr(plan, i,
+					"a half-band needs its passband edge %s Hz below OutputRate/2 = %s Hz of the stage (as the last stage it needs Stopband > %s Hz)",
+					fmtNum(edge), fmtNum(out/2), fmtNum(fk/2))
+			}
+			r.Passband = edge
+			r.Stopbands = []Interval{{rate/2 - edge, rate / 2}}
+			nRipple++
+		case FIR:
+			if p.Variant == Lowpass {
+				lo := out - fa
+				if r.Last {
+					lo = math.Min(fs, fk-fa)
+				}
+				r.Stopbands = []Interval{{lo, rate / 2}}
+			} else {
+				r.Stopbands = aliasBands(out, rate, fa, r.Last, fs)
+			}
+			if i == comp {
+				for j := 0; j < i; j++ {
+					if plan[j].Kind == CIC {
+						r.Compensates = append(r.Compensates, j)
+					}
+				}
+			}
+			nRipple++
+		}
+		if len(r.Stopbands) == 0 || r.Stopbands[0].Lo <= r.Passband {
+			return nil, planErr(plan, i, "no transition band between the passband edge %s Hz and the stopband", fmtNum(r.Passband))
+		}
+		reqs[i] = r
+		rate = out
+	}
+
+	left := spec.RippleDB - uncorrected
+	if left <= 0 || (nRipple == 0 && uncorrected > spec.RippleDB) {
+		return nil, planErr(plan, -1, "the uncorrected CIC droop %.4g dB at %s Hz exceeds RippleDB = %s dB",
+			uncorrected, fmtNum(fp), fmtNum(spec.RippleDB))
+	}
+	if nRipple > 0 {
+		share := left / float64(nRipple)
+		dp := RippleToDev(share)
+		for i := range reqs {
+			if reqs[i].Kind == CIC {
+				continue
+			}
+			reqs[i].RippleDB = share
+			reqs[i].Dp = dp
+			if reqs[i].Kind == HalfBand {
+				dev := math.Min(dp, ds)
+				reqs[i].Dp, reqs[i].Ds = dev, dev
+			}
+		}
+	}
+	return reqs, nil
+}
+
+// aliasBands returns the bands of a stage's input [0, in/2] that fold onto
+// [0, fa] at its output rate out: [k out - fa, k out + fa], k = 1..floor(D/2),
+// clipped and merged. For the last stage the first band starts at the final
+// stopband edge fs instead (DESIGN §4: min(fs, FK - fa), and fs <= FK - fa).
+func aliasBands(out, in, fa float64, last bool, fs float64) []Interval {
+	d := int(math.Round(in / out))
+	var bands []Interval
+	for k := 1; k <= d/2; k++ {
+		lo, hi := float64(k)*out-fa, float64(k)*out+fa
+		if k == 1 && last {
+			lo = math.Min(fs, out-fa)
+		}
+		if hi > in/2 {
+			hi = in / 2
+		}
+		if lo < hi {
+			bands = append(bands, Interval{lo, hi})
+		}
+	}
+	return mergeIntervals(bands)
+}
+
+func mergeIntervals(b []Interval) []Interval {
+	if len(b) < 2 {
+		return b
+	}
+	sort.Slice(b, func(i, j int) bool { return b[i].Lo < b[j].Lo })
+	out := b[:1]
+	for _, v := range b[1:] {
+		last := &out[len(out)-1]
+		if v.Lo <= last.Hi*(1+1e-12) {
+			if v.Hi > last.Hi {
+				last.Hi = v.Hi
+			}
+			continue
+		}
+		out = append(out, v)
+	}
+	return out
+}

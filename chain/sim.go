@@ -1,0 +1,138 @@
+package chain
+
+import "math"
+
+// Run passes the real signal x (at the chain's input rate, zero state
+// before x[0]) through the chain as hardware would compute it: each FIR stage
+// as a polyphase decimator (only the retained outputs are computed, phase by
+// phase), each CIC as N integrators at its input rate and N combs of delay M
+// at its output rate. It returns len(x)/D output samples, where D is the
+// chain's decimation; output m is the sample whose newest input is x[m D].
+//
+// FIR arithmetic is float64. CIC arithmetic is exact two's-complement integer
+// arithmetic that wraps like the hardware registers: a float64 integrator
+// would grow without bound and lose the signal to rounding after a few
+// thousand samples. The CIC's input is scaled to the widest integer that
+// leaves room for its bit growth in 63 bits (after checking the block's peak),
+// so its quantisation lies hundreds of dB down; the output is rescaled to the
+// CIC's unit DC gain. A CIC whose growth leaves fewer than 24 bits of input
+// resolution is run as its equivalent FIR in float64 instead.
+func Run(c *Chain, x []float64) []float64 {
+	y := append([]float64(nil), x...)
+	for _, s := range c.Stages {
+		y = runStage(s, y)
+	}
+	return y
+}
+
+// RunComplex is Run for an I/Q signal: the chain's real filters run on the
+// real and imaginary parts separately, as two real chains would.
+func RunComplex(c *Chain, x []complex128) []complex128 {
+	re := make([]float64, len(x))
+	im := make([]float64, len(x))
+	for i, v := range x {
+		re[i], im[i] = real(v), imag(v)
+	}
+	re, im = Run(c, re), Run(c, im)
+	out := make([]complex128, len(re))
+	for i := range out {
+		out[i] = complex(re[i], im[i])
+	}
+	return out
+}
+
+func runStage(s Stage, x []float64) []float64 {
+	switch st := s.(type) {
+	case FIRStage:
+		if st.Taps == nil {
+			panic("chain: Run on a stage without taps (an estimate)")
+		}
+		return polyphaseDecimate(st.Taps, st.R, x)
+	case CICStage:
+		return runCIC(st, x)
+	}
+	panic("chain: Run on an unknown stage type")
+}
+
+// polyphaseDecimate computes y[m] = sum_k h[k] x[mD - k] as the sum over the
+// D phases p of sub-filter e_p[n] = h[nD + p] applied to the sub-sequence
+// x[mD - p - nD].
+func polyphaseDecimate(h []float64, d int, x []float64) []float64 {
+	out := make([]float64, len(x)/d)
+	for m := range out {
+		var acc float64
+		for p := 0; p < d && p < len(h); p++ {
+			base := m*d - p
+			for n := 0; p+n*d < len(h); n++ {
+				i := base - n*d
+				if i < 0 {
+					break
+				}
+				acc += h[p+n*d] * x[i]
+			}
+		}
+		out[m] = acc
+	}
+	return out
+}
+
+func runCIC(c CICStage, x []float64) []float64 {
+	growth := CICGrowth(c.N, c.M, c.R)
+	inBits := 62 - growth
+	peak := 0.0
+	for _, v := range x {
+		peak = math.Max(peak, math.Abs(v))
+	}
+	if inBits < 24 || peak == 0 || math.IsInf(peak, 0) || math.IsNaN(peak) {
+		return polyphaseDecimate(cicTaps(c), c.R, x)
+	}
+	// Scale so that |x q| <= 2^(inBits-1): the registers then never need more
+	// than 63 bits and two's-complement wrap-around is exact (Hogenauer 1981).
+	_, e := math.Frexp(peak) // peak < 2^e
+	q := math.Ldexp(1, inBits-1-e)
+	n, m, r := c.N, c.M, c.R
+	integ := make([]int64, n)
+	combs := make([][]int64, n) // each comb's last M inputs, circular
+	for j := range combs {
+		combs[j] = make([]int64, m)
+	}
+	out := make([]float64, len(x)/r)
+	gain := math.Pow(float64(r*m), float64(n)) * q
+	pos := 0
+	for i, v := range x {
+		acc := int64(math.Round(v * q))
+		for j := range integ {
+			integ[j] += acc // wraps like the hardware register
+			acc = integ[j]
+		}
+		if i%r != 0 {
+			continue
+		}
+		mi := i / r
+		if mi >= len(out) {
+			break
+		}
+		for j := range combs {
+			old := combs[j][pos]
+			combs[j][pos] = acc
+			acc -= old
+		}
+		pos = (pos + 1) % m
+		out[mi] = float64(acc) / gain
+	}
+	return out
+}
+
+// cicTaps returns the CIC's equivalent FIR, N boxcars of length R M
+// convolved and scaled to unit DC gain.
+func cicTaps(c CICStage) []float64 {
+	h := []float64{1}
+	for b := 0; b < c.N; b++ {
+		h = convBoxcar(h, c.R*c.M)
+	}
+	g := math.Pow(float64(c.R*c.M), float64(c.N))
+	for i := range h {
+		h[i] /= g
+	}
+	return h
+}
