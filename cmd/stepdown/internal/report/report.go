@@ -1,0 +1,328 @@
+package report
+
+import (
+	"bytes"
+	"encoding/json"
+	"fmt"
+	"math"
+	"reflect"
+	"strings"
+
+	"stepdown/chain"
+	"stepdown/chain/fixed"
+	"stepdown/cmd/stepdown/internal/specfile"
+	"stepdown/optimize"
+)
+
+// Schema names the report format.
+const Schema = "stepdown.report/1"
+
+// Caution is the planning caveat carried by every report.
+const Caution = "planning estimates, confirm by bit-true simulation of the RTL and the team's sign-off before committing hardware"
+
+// Report is report.json.
+type Report struct {
+	Schema      string  `json:"schema"`
+	Command     string  `json:"command"` // "plan" or "check"
+	Caution     string  `json:"caution"`
+	Partial     bool    `json:"partial"`
+	Spec        Spec    `json:"spec"`
+	Search      Search  `json:"search"`
+	Front       []Chain `json:"front"`
+	Recommended int     `json:"recommended"`
+	Reason      string  `json:"reason"`
+}
+
+// Spec is the normalised spec.
+type Spec struct {
+	InputRateHz  float64  `json:"input_rate_hz"`
+	OutputRateHz float64  `json:"output_rate_hz"`
+	Decimation   int      `json:"decimation"`
+	PassbandHz   float64  `json:"passband_hz"`
+	ProtectedHz  float64  `json:"protected_hz"`
+	StopbandHz   float64  `json:"stopband_hz"`
+	RippleDB     float64  `json:"ripple_db"`
+	RejectionDB  float64  `json:"rejection_db"`
+	Signal       string   `json:"signal"`
+	Words        Words    `json:"words"`
+	Hardware     Hardware `json:"hardware"`
+	Cost         Cost     `json:"cost"`
+	SearchLimits Limits   `json:"search"`
+}
+
+// Words are the word lengths in bits; Coefficients is null for floating point.
+type Words struct {
+	Input        int  `json:"input"`
+	Output       int  `json:"output"`
+	Coefficients *int `json:"coefficients"`
+}
+
+// Hardware holds the clock in Hz, null when not given.
+type Hardware struct {
+	ClockHz *float64 `json:"clock_hz"`
+}
+
+// Cost holds the pricing settings.
+type Cost struct {
+	Symmetry bool `json:"symmetry"`
+}
+
+// Limits are the search settings.
+type Limits struct {
+	MaxStages int      `json:"max_stages"`
+	Kinds     []string `json:"kinds"`
+	CICOrders []int    `json:"cic_orders"`
+	CICDelays []int    `json:"cic_delays"`
+}
+
+// Search summarises the search.
+type Search struct {
+	Candidates int            `json:"candidates"`
+	Feasible   int            `json:"feasible"`
+	Designed   int            `json:"designed"`
+	Dropped    map[string]int `json:"dropped"`
+}
+
+// Chain is one chain of the front.
+type Chain struct {
+	Notation            string  `json:"notation"`
+	Designed            bool    `json:"designed"`
+	MeetsTargets        bool    `json:"meets_targets"`
+	MultipliesPerOutput float64 `json:"multiplies_per_output"`
+	AddsPerOutput       float64 `json:"adds_per_output"`
+	MemoryWords         int     `json:"memory_words"`
+	MemoryBits          int     `json:"memory_bits"`
+	LatencyS            float64 `json:"latency_s"`
+	LatencySamples      float64 `json:"latency_samples"`
+	MultipliersAtClock  *int    `json:"multipliers_at_clock,omitempty"`
+	AliasRejectionDB    float64 `json:"alias_rejection_db"`
+	RejectionMarginDB   float64 `json:"rejection_margin_db"`
+	WorstAliasHz        float64 `json:"worst_alias_hz"`
+	PassbandRippleDB    float64 `json:"passband_ripple_db"`
+	Stages              []Stage `json:"stages"`
+}
+
+// Stage is one stage of a chain.
+type Stage struct {
+	Kind                string  `json:"kind"`
+	Decimation          int     `json:"decimation"`
+	InputRateHz         float64 `json:"input_rate_hz"`
+	OutputRateHz        float64 `json:"output_rate_hz"`
+	MultipliesPerOutput float64 `json:"multiplies_per_output"`
+	AddsPerOutput       float64 `json:"adds_per_output"`
+	MemoryWords         int     `json:"memory_words"`
+	MemoryBits          int     `json:"memory_bits"`
+	LatencyS            float64 `json:"latency_s"`
+	Multipliers         *int    `json:"multipliers_at_clock,omitempty"`
+
+	// CIC only.
+	CICOrder     int   `json:"cic_order,omitempty"`
+	CICDelay     int   `json:"cic_delay,omitempty"`
+	RegisterBits []int `json:"register_bits,omitempty"`
+
+	// Half-band and FIR only.
+	Variant         string    `json:"variant,omitempty"` // FIR: "multiband" or "lowpass"
+	Taps            int       `json:"taps,omitempty"`
+	Coefficients    []float64 `json:"coefficients,omitempty"`
+	CompensatesCIC  *bool     `json:"compensates_cic,omitempty"`
+	CoefficientBits int       `json:"coefficient_bits,omitempty"`
+	CoefficientFrac *int      `json:"coefficient_frac,omitempty"`
+	CoefficientInts []int64   `json:"coefficient_ints,omitempty"`
+}
+
+// NewSpec converts a parsed spec file.
+func NewSpec(s *specfile.Spec) Spec {
+	c := s.Chain
+	out := Spec{
+		InputRateHz: c.InputRate, OutputRateHz: c.OutputRate, Decimation: c.Decimation(),
+		PassbandHz: c.Passband, ProtectedHz: c.Protected, StopbandHz: c.Stopband,
+		RippleDB: c.RippleDB, RejectionDB: c.RejectionDB, Signal: s.Signal,
+		Words: Words{Input: c.InputBits, Output: c.OutputBits},
+		Cost:  Cost{Symmetry: s.Symmetry},
+		SearchLimits: Limits{
+			MaxStages: s.MaxStages,
+			CICOrders: append([]int{}, s.CICOrders...),
+			CICDelays: append([]int{}, s.CICDelays...),
+		},
+	}
+	if c.CoefBits > 0 {
+		b := c.CoefBits
+		out.Words.Coefficients = &b
+	}
+	if s.Clock > 0 {
+		clk := s.Clock
+		out.Hardware.ClockHz = &clk
+	}
+	for _, k := range s.Kinds {
+		out.SearchLimits.Kinds = append(out.SearchLimits.Kinds, k.String())
+	}
+	return out
+}
+
+// NewChain converts one evaluated candidate. spec is the normalised chain
+// spec; clock tells whether multipliers at a clock are reported.
+func NewChain(spec chain.Spec, cand optimize.Candidate, clock bool) (Chain, error) {
+	f := cand.Figures
+	a := f.Analysis
+	out := Chain{
+		Notation:            chain.Notation(cand.Plan),
+		Designed:            f.Designed,
+		MultipliesPerOutput: f.MultipliesPerOutput,
+		AddsPerOutput:       f.AddsPerOutput,
+		MemoryWords:         f.MemoryWords,
+		MemoryBits:          f.MemoryBits,
+		LatencyS:            f.LatencyS,
+		LatencySamples:      f.LatencySamples,
+		AliasRejectionDB:    a.AliasRejectionDB,
+		RejectionMarginDB:   a.AliasRejectionDB - spec.RejectionDB,
+		WorstAliasHz:        a.WorstAliasHz,
+		PassbandRippleDB:    a.PassbandRippleDB,
+	}
+	out.MeetsTargets = a.AliasRejectionDB >= spec.RejectionDB && a.PassbandRippleDB <= spec.RippleDB
+	if clock {
+		m := f.MultipliersAtClock
+		out.MultipliersAtClock = &m
+	}
+	c := cand.Chain
+	if c == nil {
+		return Chain{}, fmt.Errorf("report: chain %q has no stages", out.Notation)
+	}
+	rates := c.Rates()
+	for i, st := range c.Stages {
+		s := Stage{
+			Kind:         st.Kind().String(),
+			Decimation:   st.Factor(),
+			InputRateHz:  rates[i],
+			OutputRateHz: rates[i+1],
+		}
+		if i < len(f.Stages) {
+			sf := f.Stages[i]
+			s.MultipliesPerOutput = sf.MultipliesPerOutput
+			s.AddsPerOutput = sf.AddsPerOutput
+			s.MemoryWords = sf.MemoryWords
+			s.MemoryBits = sf.MemoryBits
+			s.LatencyS = sf.LatencyS
+			if clock {
+				m := sf.Multipliers
+				s.Multipliers = &m
+			}
+		}
+		switch x := st.(type) {
+		case chain.CICStage:
+			s.CICOrder, s.CICDelay = x.N, x.M
+			s.RegisterBits = append([]int{}, x.RegisterBits...)
+		case chain.FIRStage:
+			s.Taps = x.Length
+			s.Coefficients = append([]float64{}, x.Taps...)
+			comp := x.CompensatesCIC
+			s.CompensatesCIC = &comp
+			if !x.HalfBand {
+				s.Variant = x.Variant.String()
+			}
+			if spec.CoefBits > 0 && len(x.Taps) > 0 {
+				q, err := quantize(x, spec.CoefBits)
+				if err != nil {
+					return Chain{}, fmt.Errorf("report: chain %q stage %d: %v", out.Notation, i+1, err)
+				}
+				frac := q.Frac
+				s.CoefficientBits, s.CoefficientFrac, s.CoefficientInts = q.Bits, &frac, q.Ints
+			}
+		default:
+			return Chain{}, fmt.Errorf("report: chain %q stage %d: unknown stage type %T", out.Notation, i+1, st)
+		}
+		out.Stages = append(out.Stages, s)
+	}
+	return out, nil
+}
+
+// quantize rounds a stage's taps with the library's rules (a half-band keeps
+// its exact zeros and centre).
+func quantize(s chain.FIRStage, bits int) (fixed.Coefficients, error) {
+	if bits < 2 || bits > fixed.MaxBits {
+		return fixed.Coefficients{}, fmt.Errorf("coefficient width %d bits is outside [2, %d]", bits, fixed.MaxBits)
+	}
+	if s.HalfBand {
+		return fixed.QuantizeHalfBand(s.Taps, bits)
+	}
+	return fixed.Quantize(s.Taps, bits), nil
+}
+
+// New builds the report of a search.
+func New(command string, s *specfile.Spec, res *optimize.Result) (*Report, error) {
+	r := &Report{
+		Schema:      Schema,
+		Command:     command,
+		Caution:     Caution,
+		Partial:     res.Partial,
+		Spec:        NewSpec(s),
+		Recommended: res.Recommended,
+		Reason:      res.Reason,
+		Search: Search{
+			Candidates: res.Candidates,
+			Feasible:   len(res.Feasible),
+			Designed:   res.Designed,
+			Dropped:    map[string]int{},
+		},
+		Front: []Chain{},
+	}
+	for k, v := range res.Dropped {
+		r.Search.Dropped[k] = v
+	}
+	for _, cand := range res.Front {
+		c, err := NewChain(s.Chain, cand, s.Clock > 0)
+		if err != nil {
+			return nil, err
+		}
+		r.Front = append(r.Front, c)
+	}
+	if len(r.Front) > 0 && (r.Recommended < 0 || r.Recommended >= len(r.Front)) {
+		return nil, fmt.Errorf("report: recommended index %d outside the front of %d chains", r.Recommended, len(r.Front))
+	}
+	return r, nil
+}
+
+// Marshal returns report.json's bytes, indented, with a final newline. It
+// fails on any NaN or infinity, naming the field.
+func (r *Report) Marshal() ([]byte, error) {
+	if path := nonFinite(reflect.ValueOf(r), "report"); path != "" {
+		return nil, fmt.Errorf("report: %s is not a finite number", path)
+	}
+	var buf bytes.Buffer
+	enc := json.NewEncoder(&buf)
+	enc.SetEscapeHTML(false)
+	enc.SetIndent("", "  ")
+	if err := enc.Encode(r); err != nil {
+		return nil, fmt.Errorf("report: %v", err)
+	}
+	return buf.Bytes(), nil
+}
+
+// nonFinite returns the path of the first NaN or infinity inside v, or "".
+func nonFinite(v reflect.Value, path string) string {
+	switch v.Kind() {
+	case reflect.Pointer, reflect.Interface:
+		if v.IsNil() {
+			return ""
+		}
+		return nonFinite(v.Elem(), path)
+	case reflect.Float32, reflect.Float64:
+		if f := v.Float(); math.IsNaN(f) || math.IsInf(f, 0) {
+			return path
+		}
+	case reflect.Struct:
+		t := v.Type()
+		for i := 0; i < v.NumField(); i++ {
+			name, _, _ := strings.Cut(t.Field(i).Tag.Get("json"), ",")
+			if p := nonFinite(v.Field(i), path+"."+name); p != "" {
+				return p
+			}
+		}
+	case reflect.Slice, reflect.Array:
+		for i := 0; i < v.Len(); i++ {
+			if p := nonFinite(v.Index(i), fmt.Sprintf("%s[%d]", path, i)); p != "" {
+				return p
+			}
+		}
+	}
+	return ""
+}
