@@ -253,7 +253,7 @@ func TestErrors(t *testing.T) {
 }
 
 func TestMerged(t *testing.T) {
-	got := merged([][2]float64{{10, 12}, {1, 3}, {2, 5}, {5, 6}, {6.5, 7}, {20, 21}}, 0.6)
+	got := merged([][2]float64{{10, 12}, {1, 3}, {2, 5}, {5, 6}, {6.5, 7}, {20, 21}}, 0.5, 0.01)
 	want := [][2]float64{{1, 7}, {10, 12}, {20, 21}}
 	if len(got) != len(want) {
 		t.Fatalf("merged = %v, want %v", got, want)
@@ -277,7 +277,7 @@ func TestDecimate(t *testing.T) {
 	}
 	y[54321] = -3 // a lone spike
 	y[777] = math.Inf(-1)
-	out := decimate(x, y, 0, n-1, -120)
+	out := decimate(x, y, 0, n-1, -120, false)
 	if len(out) > 3100 {
 		t.Errorf("decimate kept %d points, want at most about 3000", len(out))
 	}

@@ -96,14 +96,14 @@ func Response(d ResponseData) (*Figure, error) {
 	zoom := d.ZoomHz
 	fk := d.OutputRateHz
 	if fk == 0 && len(d.AliasBands) > 0 {
-		b := merged(d.AliasBands, 0)[0]
+		b := merged(d.AliasBands, 0, 0)[0]
 		fk = (b[0] + b[1]) / 2
 	}
 	if zoom == 0 {
 		zoom = 2.5 * fk
 	}
 	fullLo, fullHi := d.FreqHz[0], d.FreqHz[n-1]
-	if zoom <= fullLo || zoom > fullLo+0.5*(fullHi-fullLo) {
+	if zoom <= fullLo || zoom > fullLo+0.5*(fullHi-fullLo) || !(fk > 0) {
 		zoom = -1
 	}
 
@@ -112,11 +112,20 @@ func Response(d ResponseData) (*Figure, error) {
 	if title == "" {
 		title = "Cascade response"
 	}
-	full := responsePanel(d, fullLo, fullHi, floor, top, leg)
+	// At large ratios the near region is a sliver of the full span; a log
+	// frequency axis then shows every stage's work in one view.
+	logx := zoom > 0 && fullHi/fk > logSpan
+	if logx {
+		fullLo = fk / 10
+		if i := sort.SearchFloat64s(d.FreqHz, fullLo); i < n && d.FreqHz[i] > fullLo && i > 0 && d.FreqHz[i-1] > 0 {
+			fullLo = d.FreqHz[i-1]
+		}
+	}
+	full := responsePanel(d, fullLo, fullHi, floor, top, logx, leg)
 	full.Title.Text = title
 	fig := &Figure{panels: []panel{{p: full, weight: 1}}, side: leg}
 	if zoom > 0 {
-		near := responsePanel(d, fullLo, zoom, floor, top, nil)
+		near := responsePanel(d, d.FreqHz[0], zoom, floor, top, false, nil)
 		near.Title.Text = "Near the output band"
 		near.Title.TextStyle.Font.Size = 11
 		fig.panels[0].weight = 0.55
@@ -186,13 +195,20 @@ func seriesDB(ss []Series) [][]float64 {
 
 // responsePanel draws the curves over [lo, hi]; leg, if not nil, receives
 // the legend entries.
-func responsePanel(d ResponseData, lo, hi, floor, top float64, leg *plot.Legend) *plot.Plot {
+func responsePanel(d ResponseData, lo, hi, floor, top float64, logx bool, leg *plot.Legend) *plot.Plot {
 	p := newPlot()
 	u := freqUnit(hi)
 	p.X.Min, p.X.Max = lo, hi
 	p.Y.Min, p.Y.Max = floor, top
 	p.X.Tick.Marker = scaledTicks{u.scale}
 	p.X.Label.Text = "Input frequency (" + u.name + ")"
+	tol, rel := (hi-lo)/1500, 0.0
+	if logx {
+		p.X.Scale = plot.LogScale{}
+		p.X.Tick.Marker = logTicks{}
+		p.X.Label.Text = "Input frequency (Hz, log scale)"
+		tol, rel = 0, math.Pow(hi/lo, 1.0/1500)-1
+	}
 	p.Y.Label.Text = fmt.Sprintf("Gain (dB, floor %g)", floor)
 	p.Y.Tick.Marker = dbTicks{}
 	addGrid(p)
@@ -203,7 +219,7 @@ func responsePanel(d ResponseData, lo, hi, floor, top float64, leg *plot.Legend)
 		}
 	}
 
-	if bands := merged(d.AliasBands, (hi-lo)/1500); len(bands) > 0 {
+	if bands := merged(d.AliasBands, tol, rel); len(bands) > 0 {
 		var rings []plotter.XYer
 		for _, b := range bands {
 			b0, b1 := math.Max(b[0], lo), math.Min(b[1], hi)
@@ -228,7 +244,7 @@ func responsePanel(d ResponseData, lo, hi, floor, top float64, leg *plot.Legend)
 	if d.PassbandHz > 0 {
 		l, _ := plotter.NewLine(plotter.XYs{{X: d.PassbandHz, Y: floor}, {X: d.PassbandHz, Y: top}})
 		l.LineStyle = draw.LineStyle{Color: green, Width: vg.Points(1.5), Dashes: []vg.Length{vg.Points(2), vg.Points(2)}}
-		if d.PassbandHz <= hi {
+		if d.PassbandHz <= hi && d.PassbandHz >= lo {
 			add("passband edge "+hz(d.PassbandHz), l, l)
 		} else if leg != nil {
 			leg.Add("passband edge "+hz(d.PassbandHz), l)
@@ -244,22 +260,23 @@ func responsePanel(d ResponseData, lo, hi, floor, top float64, leg *plot.Legend)
 		if name == "" {
 			name = fmt.Sprintf("stage %d", i+1)
 		}
-		l, _ := plotter.NewLine(decimate(d.FreqHz, s.DB, lo, hi, floor))
+		l, _ := plotter.NewLine(decimate(d.FreqHz, s.DB, lo, hi, floor, logx))
 		l.LineStyle = draw.LineStyle{Color: stageColors[i%len(stageColors)], Width: vg.Points(1)}
 		if i >= len(stageColors) {
 			l.LineStyle.Dashes = []vg.Length{vg.Points(4), vg.Points(2)}
 		}
 		add(fmt.Sprintf("stage %d: %s", i+1, name), l, l)
 	}
-	l, _ := plotter.NewLine(decimate(d.FreqHz, d.TotalDB, lo, hi, floor))
+	l, _ := plotter.NewLine(decimate(d.FreqHz, d.TotalDB, lo, hi, floor, logx))
 	l.LineStyle = draw.LineStyle{Color: black, Width: vg.Points(1.8)}
 	add("cascade", l, l)
 	return p
 }
 
 // merged returns the bands sorted and merged, joining bands whose gap is at
-// most tol.
-func merged(bands [][2]float64, tol float64) [][2]float64 {
+// most tol plus rel times the frequency where the gap starts (a constant
+// width on a log axis).
+func merged(bands [][2]float64, tol, rel float64) [][2]float64 {
 	if len(bands) == 0 {
 		return nil
 	}
@@ -274,7 +291,7 @@ func merged(bands [][2]float64, tol float64) [][2]float64 {
 	out := s[:1]
 	for _, b := range s[1:] {
 		last := &out[len(out)-1]
-		if b[0] <= last[1]+tol {
+		if b[0] <= last[1]+tol+rel*last[1] {
 			last[1] = math.Max(last[1], b[1])
 			continue
 		}
@@ -284,13 +301,14 @@ func merged(bands [][2]float64, tol float64) [][2]float64 {
 }
 
 // decimate returns the curve over [lo, hi] (with one neighbour each side,
-// so the line meets the axis edges), clamped at floor, keeping at most the
-// minimum and maximum of each of about 1500 columns: a pixel-accurate
-// envelope that keeps every peak and null, at a bounded file size.
-func decimate(x, y []float64, lo, hi, floor float64) plotter.XYs {
+// so the line meets the axis edges; on a log axis none below lo), clamped
+// at floor, keeping at most the minimum and maximum of each of 1500 columns
+// of the axis: a pixel-accurate envelope that keeps every peak and null, at
+// a bounded file size.
+func decimate(x, y []float64, lo, hi, floor float64, logx bool) plotter.XYs {
 	const columns = 1500
 	i0 := sort.SearchFloat64s(x, lo)
-	if i0 > 0 {
+	if i0 > 0 && (!logx || x[i0-1] > 0) {
 		i0--
 	}
 	i1 := sort.SearchFloat64s(x, hi)
@@ -299,20 +317,23 @@ func decimate(x, y []float64, lo, hi, floor float64) plotter.XYs {
 	}
 	at := func(i int) plotter.XY { return plotter.XY{X: x[i], Y: math.Max(y[i], floor)} }
 	if i1-i0 <= 2*columns {
-		out := make(plotter.XYs, 0, i1-i0)
+		out := make(plotter.XYs, 0, max(0, i1-i0))
 		for i := i0; i < i1; i++ {
 			out = append(out, at(i))
 		}
 		return out
 	}
+	column := func(v float64) float64 { return math.Floor((v - lo) / (hi - lo) * columns) }
+	if logx {
+		column = func(v float64) float64 { return math.Floor(math.Log(v/lo) / math.Log(hi/lo) * columns) }
+	}
 	out := make(plotter.XYs, 0, 2*columns+2)
 	out = append(out, at(i0))
-	w := (hi - lo) / columns
 	for i := i0 + 1; i < i1-1; {
-		col := math.Floor((x[i] - lo) / w)
+		col := column(x[i])
 		imin, imax := i, i
 		j := i
-		for ; j < i1-1 && math.Floor((x[j]-lo)/w) == col; j++ {
+		for ; j < i1-1 && column(x[j]) == col; j++ {
 			if y[j] < y[imin] {
 				imin = j
 			}
@@ -329,6 +350,10 @@ func decimate(x, y []float64, lo, hi, floor float64) plotter.XYs {
 	}
 	return append(out, at(i1-1))
 }
+
+// logSpan is the ratio of the full span to the output rate above which the
+// full-span panel uses a log frequency axis.
+const logSpan = 200
 
 // hz formats a frequency with an engineering unit: 600000 -> "600 kHz".
 func hz(f float64) string {
