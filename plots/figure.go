@@ -67,7 +67,7 @@ func (f *Figure) Draw(c draw.Canvas) {
 	// the colour key.
 	var right vg.Length
 	if f.side != nil {
-		right = f.side.Rectangle(area).Size().X + vg.Points(14)
+		right = f.side.Rectangle(area).Size().X + vg.Points(22)
 	}
 	if f.colorKey != nil {
 		right = vg.Points(62)

@@ -85,6 +85,7 @@ func Front(d FrontData) (*Figure, error) {
 	p.X.Min, p.X.Max, xlog = axisRange(xs)
 	p.Y.Min, p.Y.Max, ylog = axisRange(ys)
 	p.X.Label.Text = "Multiplies per output sample"
+	p.X.Tick.Marker = scaledTicks{1}
 	if xlog {
 		p.X.Scale = plot.LogScale{}
 		p.X.Tick.Marker = logTicks{}
@@ -159,7 +160,11 @@ func Front(d FrontData) (*Figure, error) {
 	}
 	rings.GlyphStyle = draw.GlyphStyle{Color: black, Radius: vg.Points(5), Shape: draw.RingGlyph{}}
 	p.Add(dots, rings)
-	leg.Add(fmt.Sprintf("Pareto front (%d chains)", len(d.Front)), l, legendDot{cmap.at(0.55)})
+	chains := "chains"
+	if len(d.Front) == 1 {
+		chains = "chain"
+	}
+	leg.Add(fmt.Sprintf("Pareto front (%d %s)", len(d.Front), chains), l, legendDot{cmap.at(0.55)})
 
 	var rec *callout
 	if d.Recommended >= 0 {

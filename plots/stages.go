@@ -112,7 +112,7 @@ func Stages(d StagesData) (*Figure, error) {
 
 	leg := newLegend()
 	leg.Add(fmt.Sprintf("multiplies per output\n(chain: %s)", amount(totM)), bm)
-	leg.Add(fmt.Sprintf("memory bits\n(chain: %s)", amount(totB)), bb)
+	leg.Add(fmt.Sprintf("memory\n(chain: %s bits)", amount(totB)), bb)
 	if totM == 0 {
 		leg.Add("no multiplies in the chain:\nmultiply shares shown as 0", legendBlank{})
 	}

@@ -1,0 +1,76 @@
+package plots_test
+
+import (
+	"bytes"
+	"fmt"
+	"log"
+	"math"
+
+	"stepdown/plots"
+)
+
+// An invented chain: 122.88 MHz decimated by 64 to 1.92 MHz.
+func ExampleFront() {
+	fig, err := plots.Front(plots.FrontData{
+		Title: "Pareto front, 122.88 MHz to 1.92 MHz",
+		Front: []plots.Point{
+			{Multiplies: 38, MemoryBits: 23800, RejectionDB: 88.4, Label: "CIC5 R16 > HB > FIR 77"},
+			{Multiplies: 57, MemoryBits: 9800, RejectionDB: 87.0, Label: "CIC5 R32 > FIR 131"},
+			{Multiplies: 260, MemoryBits: 3900, RejectionDB: 95.0, Label: "FIR 4 > FIR 4 > FIR 4"},
+		},
+		Recommended: 1,
+	})
+	if err != nil {
+		log.Fatal(err)
+	}
+	// The command line writes files with fig.Save("front.svg", 0, 0).
+	var buf bytes.Buffer
+	if err := fig.Render(&buf, "svg", 0, 0); err != nil {
+		log.Fatal(err)
+	}
+	fmt.Println(bytes.HasPrefix(buf.Bytes(), []byte("<?xml")))
+	// Output: true
+}
+
+func ExampleResponse() {
+	// A CIC of order 5 decimating 122.88 MHz by 16 alone, on a 4001-point
+	// grid from 0 to half the input rate.
+	const f0, r, n = 122.88e6, 16, 4001
+	d := plots.ResponseData{TargetDB: 85, PassbandHz: 0.6e6, OutputRateHz: f0 / r}
+	for i := range n {
+		f := f0 / 2 * float64(i) / (n - 1)
+		x := math.Pi * f / f0
+		h := 1.0
+		if i > 0 {
+			h = math.Abs(math.Sin(r*x) / (r * math.Sin(x)))
+		}
+		d.FreqHz = append(d.FreqHz, f)
+		d.TotalDB = append(d.TotalDB, 5*20*math.Log10(h)) // -Inf at the nulls is allowed
+	}
+	for k := 1.0; k*f0/r-0.7e6 < f0/2; k++ {
+		d.AliasBands = append(d.AliasBands, [2]float64{k*f0/r - 0.7e6, math.Min(k*f0/r+0.7e6, f0/2)})
+	}
+	fig, err := plots.Response(d)
+	if err != nil {
+		log.Fatal(err)
+	}
+	fmt.Println(len(fig.Plots()), "panels")
+	// Output: 2 panels
+}
+
+func ExampleStages() {
+	fig, err := plots.Stages(plots.StagesData{
+		Names:      []string{"CIC5 R16", "half-band 11", "FIR 77"},
+		Multiplies: []float64{0, 6, 39},
+		MemoryBits: []float64{1650, 2400, 11050},
+	})
+	if err != nil {
+		log.Fatal(err)
+	}
+	var buf bytes.Buffer
+	if err := fig.Render(&buf, "png", 0, 0); err != nil {
+		log.Fatal(err)
+	}
+	fmt.Println(bytes.HasPrefix(buf.Bytes(), []byte("\x89PNG")))
+	// Output: true
+}
