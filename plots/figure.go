@@ -129,9 +129,9 @@ func (f *Figure) Draw(c draw.Canvas) {
 
 // Render writes the figure to w in the given format ("svg" or "png",
 // case-insensitive; PNG at 150 dots per inch) at the given size; a zero width or height
-// selects DefaultWidth or DefaultHeight. SVG output references the
-// Liberation fonts by name rather than embedding them, which keeps files
-// small.
+// selects DefaultWidth or DefaultHeight. SVG output names its fonts
+// (Liberation Sans, falling back to the metric-compatible Arial) rather than
+// embedding them, which keeps files small.
 func (f *Figure) Render(w io.Writer, format string, width, height vg.Length) error {
 	if width == 0 {
 		width = DefaultWidth
@@ -153,7 +153,20 @@ func (f *Figure) Render(w io.Writer, format string, width, height vg.Length) err
 		return fmt.Errorf("plots: format %q: unsupported (want one of %s)", format, strings.Join(Formats, ", "))
 	}
 	f.Draw(draw.New(c))
-	_, err := c.WriteTo(w)
+	if format != "svg" {
+		_, err := c.WriteTo(w)
+		return err
+	}
+	var buf bytes.Buffer
+	if _, err := c.WriteTo(&buf); err != nil {
+		return err
+	}
+	// Liberation Sans has Arial's metrics, so a viewer without it still
+	// lays the text out as drawn; without a fallback it would use its
+	// default serif face.
+	_, err := w.Write(bytes.ReplaceAll(buf.Bytes(),
+		[]byte("font-family:Liberation Sans;"),
+		[]byte("font-family:'Liberation Sans',Arial,Helvetica,sans-serif;")))
 	return err
 }
 
