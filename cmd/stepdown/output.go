@@ -1,0 +1,276 @@
+package main
+
+import (
+	"bytes"
+	"errors"
+	"fmt"
+	"math"
+	"os"
+	"path/filepath"
+	"sort"
+
+	"stepdown/cmd/stepdown/internal/report"
+	"stepdown/cmd/stepdown/internal/specfile"
+	"stepdown/optimize"
+	"stepdown/plots"
+)
+
+// outDir writes a run's files into a temporary folder beside the output
+// folder and renames it into place at the end, so that a run that fails or is
+// interrupted leaves the output folder as it was.
+type outDir struct {
+	dir    string // as the user gave it
+	abs    string
+	tmp    string
+	exists bool
+}
+
+// prepareOut checks the output folder before any work, and creates the
+// temporary folder beside it.
+func prepareOut(dir string) (*outDir, error) {
+	if dir == "" {
+		return nil, usagef("--out: empty; name a folder")
+	}
+	abs, err := filepath.Abs(dir)
+	if err != nil {
+		return nil, usagef("--out %q: %v", dir, err)
+	}
+	o := &outDir{dir: dir, abs: abs}
+	parent := filepath.Dir(abs)
+	if fi, err := os.Stat(parent); err != nil || !fi.IsDir() {
+		return nil, usagef("--out %q: its parent folder %q does not exist", dir, parent)
+	}
+	fi, err := os.Lstat(abs)
+	switch {
+	case errors.Is(err, os.ErrNotExist):
+	case err != nil:
+		return nil, fmt.Errorf("--out %q: %v", dir, unwrapPath(err))
+	case !fi.IsDir():
+		return nil, usagef("--out %q: is a file, not a folder; remove it or choose another --out", dir)
+	default:
+		o.exists = true
+		entries, err := os.ReadDir(abs)
+		if err != nil {
+			return nil, fmt.Errorf("--out %q: cannot be read: %v", dir, unwrapPath(err))
+		}
+		if len(entries) > 0 {
+			if _, err := os.Stat(filepath.Join(abs, "report.json")); err != nil {
+				return nil, usagef("--out %q: exists and is not a stepdown output folder (no report.json); it would be replaced as a whole, so choose another --out", dir)
+			}
+		}
+		// The folder will be replaced; make sure that can be done before the search.
+		probe, err := os.CreateTemp(abs, ".stepdown-probe-*")
+		if err != nil {
+			return nil, fmt.Errorf("--out %q: folder is not writable: %v", dir, unwrapPath(err))
+		}
+		probe.Close()
+		os.Remove(probe.Name())
+	}
+	tmp, err := os.MkdirTemp(parent, "."+filepath.Base(abs)+".tmp-*")
+	if err != nil {
+		return nil, fmt.Errorf("--out %q: cannot write in %q: %v", dir, parent, unwrapPath(err))
+	}
+	o.tmp = tmp
+	return o, nil
+}
+
+func unwrapPath(err error) error {
+	var pe *os.PathError
+	if errors.As(err, &pe) {
+		return pe.Err
+	}
+	return err
+}
+
+func (o *outDir) write(files []report.File) error {
+	for _, f := range files {
+		p := filepath.Join(o.tmp, filepath.FromSlash(f.Name))
+		if err := os.MkdirAll(filepath.Dir(p), 0o755); err != nil {
+			return fmt.Errorf("writing %s: %v", f.Name, unwrapPath(err))
+		}
+		if err := os.WriteFile(p, f.Data, 0o644); err != nil {
+			return fmt.Errorf("writing %s: %v", f.Name, unwrapPath(err))
+		}
+	}
+	return nil
+}
+
+// commit puts the temporary folder in the output folder's place.
+func (o *outDir) commit() error {
+	if !o.exists {
+		if err := os.Rename(o.tmp, o.abs); err != nil {
+			return fmt.Errorf("--out %q: %v", o.dir, unwrapPath(err))
+		}
+		o.tmp = ""
+		return nil
+	}
+	old := o.tmp + ".old"
+	if err := os.Rename(o.abs, old); err != nil {
+		return fmt.Errorf("--out %q: cannot replace it: %v", o.dir, unwrapPath(err))
+	}
+	if err := os.Rename(o.tmp, o.abs); err != nil {
+		// Put the previous output back.
+		_ = os.Rename(old, o.abs)
+		return fmt.Errorf("--out %q: cannot replace it: %v", o.dir, unwrapPath(err))
+	}
+	o.tmp = ""
+	_ = os.RemoveAll(old)
+	return nil
+}
+
+// cleanup removes the temporary folder of a run that did not commit.
+func (o *outDir) cleanup() {
+	if o != nil && o.tmp != "" {
+		_ = os.RemoveAll(o.tmp)
+		o.tmp = ""
+	}
+}
+
+func sortedKeys(m map[string]int) []string {
+	keys := make([]string, 0, len(m))
+	for k := range m {
+		keys = append(keys, k)
+	}
+	sort.Strings(keys)
+	return keys
+}
+
+// responsePoints is the input-frequency grid of response.svg: fine enough
+// that the near-output panel resolves the first alias bands of large ratios.
+const responsePoints = 20001
+
+// buildFiles renders every output file in memory, report.json first.
+func buildFiles(rep *report.Report, res *optimize.Result, spec *specfile.Spec) ([]report.File, error) {
+	js, err := rep.Marshal()
+	if err != nil {
+		return nil, err
+	}
+	files := []report.File{{Name: "report.json", Data: js}}
+	rec := rep.Recommended
+
+	fd := plots.FrontData{Recommended: rec}
+	for _, ch := range rep.Front {
+		fd.Front = append(fd.Front, plots.Point{
+			Multiplies: ch.MultipliesPerOutput, MemoryBits: float64(ch.MemoryBits),
+			RejectionDB: ch.AliasRejectionDB, Label: ch.Notation,
+		})
+	}
+	for _, c := range res.Feasible {
+		f := c.Figures
+		if finite(f.MultipliesPerOutput) && f.MultipliesPerOutput >= 0 && f.MemoryBits >= 0 {
+			fd.Candidates = append(fd.Candidates, plots.Point{Multiplies: f.MultipliesPerOutput, MemoryBits: float64(f.MemoryBits)})
+		}
+	}
+	if rep.Command == "check" {
+		fd.Title = "Chain named by --chain"
+	}
+	frontFig, err := plots.Front(fd)
+	if err != nil {
+		return nil, fmt.Errorf("front plot: %v", err)
+	}
+	for _, ext := range []string{"svg", "png"} {
+		b, err := render(frontFig, ext)
+		if err != nil {
+			return nil, fmt.Errorf("front.%s: %v", ext, err)
+		}
+		files = append(files, report.File{Name: "front." + ext, Data: b})
+	}
+
+	cand := res.Front[rec]
+	rd, err := responseData(cand, spec, rep.Front[rec].Notation)
+	if err != nil {
+		return nil, err
+	}
+	respFig, err := plots.Response(rd)
+	if err != nil {
+		return nil, fmt.Errorf("response plot: %v", err)
+	}
+	for _, ext := range []string{"svg", "png"} {
+		b, err := render(respFig, ext)
+		if err != nil {
+			return nil, fmt.Errorf("response.%s: %v", ext, err)
+		}
+		files = append(files, report.File{Name: "response." + ext, Data: b})
+	}
+
+	sd := plots.StagesData{Title: "Cost by stage: " + rep.Front[rec].Notation}
+	for i, st := range rep.Front[rec].Stages {
+		sd.Names = append(sd.Names, fmt.Sprintf("%d: %s /%d", i+1, st.Kind, st.Decimation))
+		sd.Multiplies = append(sd.Multiplies, st.MultipliesPerOutput)
+		sd.MemoryBits = append(sd.MemoryBits, float64(st.MemoryBits))
+	}
+	stFig, err := plots.Stages(sd)
+	if err != nil {
+		return nil, fmt.Errorf("stages plot: %v", err)
+	}
+	b, err := render(stFig, "svg")
+	if err != nil {
+		return nil, fmt.Errorf("stages.svg: %v", err)
+	}
+	files = append(files, report.File{Name: "stages.svg", Data: b})
+
+	cf, err := report.CoefficientFiles(rep.Front[rec])
+	if err != nil {
+		return nil, err
+	}
+	return append(files, cf...), nil
+}
+
+func render(f *plots.Figure, format string) ([]byte, error) {
+	var buf bytes.Buffer
+	if err := f.Render(&buf, format, 0, 0); err != nil {
+		return nil, err
+	}
+	return buf.Bytes(), nil
+}
+
+func finite(v float64) bool { return !math.IsNaN(v) && !math.IsInf(v, 0) }
+
+// responseData samples the recommended cascade's gain, and each stage's, on
+// a grid from 0 to half the input rate, through the library's Gain methods.
+func responseData(cand optimize.Candidate, spec *specfile.Spec, notation string) (plots.ResponseData, error) {
+	c := cand.Chain
+	cs := spec.Chain
+	f0 := c.InputRate
+	rd := plots.ResponseData{
+		Title:        "Cascade response: " + notation,
+		TargetDB:     cs.RejectionDB,
+		PassbandHz:   cs.Passband,
+		OutputRateHz: cs.OutputRate,
+	}
+	rates := c.Rates()
+	dc := c.Gain(0)
+	if !(dc > 0) || !finite(dc) {
+		return rd, fmt.Errorf("response plot: the chain's DC gain is %v", dc)
+	}
+	rd.FreqHz = make([]float64, responsePoints)
+	rd.TotalDB = make([]float64, responsePoints)
+	rd.Stages = make([]plots.Series, len(c.Stages))
+	for i, st := range c.Stages {
+		rd.Stages[i] = plots.Series{Name: fmt.Sprintf("%d: %s /%d", i+1, st.Kind(), st.Factor()), DB: make([]float64, responsePoints)}
+	}
+	for k := range rd.FreqHz {
+		g := f0 / 2 * float64(k) / float64(responsePoints-1)
+		rd.FreqHz[k] = g
+		rd.TotalDB[k] = db(c.Gain(g) / dc)
+		for i, st := range c.Stages {
+			rd.Stages[i].DB[k] = db(st.Gain(g, rates[i]))
+		}
+	}
+	// The bands that fold onto the protected band at the output (DESIGN §7).
+	fk, fa := cs.OutputRate, cs.Protected
+	for k := 1; float64(k)*fk-fa < f0/2; k++ {
+		lo, hi := float64(k)*fk-fa, math.Min(float64(k)*fk+fa, f0/2)
+		rd.AliasBands = append(rd.AliasBands, [2]float64{lo, hi})
+	}
+	return rd, nil
+}
+
+// db is 20 log10 of a magnitude; an exact null is -Inf, which the plots draw
+// at their floor.
+func db(v float64) float64 {
+	if !(v > 0) {
+		return math.Inf(-1)
+	}
+	return 20 * math.Log10(v)
+}

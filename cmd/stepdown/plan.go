@@ -1,0 +1,424 @@
+package main
+
+import (
+	"context"
+	"errors"
+	"fmt"
+	"io"
+	"math"
+	"os"
+	"strings"
+	"sync"
+	"time"
+
+	"github.com/schollz/progressbar/v3"
+	"github.com/urfave/cli/v2"
+	"golang.org/x/term"
+
+	"stepdown/chain"
+	"stepdown/cmd/stepdown/internal/report"
+	"stepdown/cmd/stepdown/internal/specfile"
+	"stepdown/cmd/stepdown/internal/units"
+	"stepdown/cost"
+	"stepdown/optimize"
+)
+
+const defaultOut = "stepdown-out"
+
+func outFlags() []cli.Flag {
+	return []cli.Flag{
+		&cli.StringFlag{Name: "out", Value: defaultOut, Usage: "output folder (replaced as a whole, atomically)"},
+		&cli.BoolFlag{Name: "json", Usage: "print report.json on stdout as well (the table goes to stderr)"},
+		&cli.BoolFlag{Name: "quiet", Usage: "print nothing but errors (and --json output)"},
+	}
+}
+
+func planCommand() *cli.Command {
+	return &cli.Command{
+		Name:      "plan",
+		Usage:     "search every split of the decimation ratio and recommend a chain",
+		ArgsUsage: "[SPEC.toml]",
+		UsageText: "stepdown plan [SPEC.toml] [--out DIR] [--json] [--max-stages N] [--jobs N] [--quiet] [--timeout DUR]\n\n" +
+			"Without SPEC.toml the built-in example is planned.",
+		Flags: append(outFlags(),
+			&cli.IntFlag{Name: "max-stages", Usage: "override search.max_stages (1..12)"},
+			&cli.IntFlag{Name: "jobs", Usage: "parallel designs (default: the number of CPUs)"},
+			&cli.DurationFlag{Name: "timeout", Usage: "stop after this long with the best front so far, marked partial (e.g. 30s)"},
+		),
+		Action: runPlan,
+	}
+}
+
+func checkCommand() *cli.Command {
+	return &cli.Command{
+		Name:      "check",
+		Usage:     "evaluate a chain you name against the spec (same figures, plots and files as plan)",
+		ArgsUsage: "[SPEC.toml]",
+		UsageText: "stepdown check [SPEC.toml] --chain CHAIN [--out DIR] [--json] [--quiet]\n\n" +
+			"CHAIN is the notation plan prints, e.g. \"cic4m1r8 > hb > fir4\". Without SPEC.toml the built-in example is used.",
+		Flags: append(outFlags(),
+			&cli.StringFlag{Name: "chain", Usage: "the chain, in the notation plan prints"},
+		),
+		Action: runCheck,
+	}
+}
+
+// loadSpec reads the spec named by the first argument, or the built-in example.
+func loadSpec(c *cli.Context) (*specfile.Spec, string, error) {
+	if c.Args().Len() > 1 {
+		return nil, "", usagef("%s: unexpected argument %q (give at most one spec file)", c.Command.Name, c.Args().Get(1))
+	}
+	if !c.Args().Present() {
+		s, err := specfile.Example()
+		if err != nil {
+			return nil, "", fmt.Errorf("built-in example: %v", err)
+		}
+		return s, specfile.ExampleName, nil
+	}
+	path := c.Args().First()
+	s, err := specfile.Load(path)
+	if err != nil {
+		return nil, "", usageError{err}
+	}
+	return s, path, nil
+}
+
+// run holds what a plan or check needs to write its outputs.
+type job struct {
+	c       *cli.Context
+	spec    *specfile.Spec
+	source  string
+	out     *outDir
+	quiet   bool
+	json    bool
+	started time.Time
+}
+
+func newJob(c *cli.Context) (*job, error) {
+	spec, source, err := loadSpec(c)
+	if err != nil {
+		return nil, err
+	}
+	out, err := prepareOut(c.String("out"))
+	if err != nil {
+		return nil, err
+	}
+	return &job{c: c, spec: spec, source: source, out: out, quiet: c.Bool("quiet"), json: c.Bool("json"), started: time.Now()}, nil
+}
+
+// human is where the table goes: stdout, or stderr when stdout carries JSON.
+func (j *job) human() io.Writer {
+	if j.quiet {
+		return io.Discard
+	}
+	if j.json {
+		return j.c.App.ErrWriter
+	}
+	return j.c.App.Writer
+}
+
+func runPlan(c *cli.Context) error {
+	// Flag checks come before any file is touched.
+	settingsErr := func() error {
+		if c.IsSet("max-stages") {
+			if n := c.Int("max-stages"); n < 1 || n > specfile.MaxStages {
+				return usagef("--max-stages %d: must lie in [1, %d]", n, specfile.MaxStages)
+			}
+		}
+		if n := c.Int("jobs"); n < 0 || n > 1024 {
+			return usagef("--jobs %d: must lie in [1, 1024] (0 or absent: the number of CPUs)", n)
+		}
+		if c.IsSet("timeout") && c.Duration("timeout") <= 0 {
+			return usagef("--timeout %v: must be above zero", c.Duration("timeout"))
+		}
+		return nil
+	}()
+	if settingsErr != nil {
+		return settingsErr
+	}
+	j, err := newJob(c)
+	if err != nil {
+		return err
+	}
+	defer j.out.cleanup()
+
+	set := j.spec.SearchSettings()
+	if c.IsSet("max-stages") {
+		set.MaxStages = c.Int("max-stages")
+	}
+	set.Jobs = c.Int("jobs")
+	prog := newProgress(c.App.ErrWriter, j.quiet)
+	set.Progress = prog.update
+
+	sigCtx := c.Context
+	ctx := sigCtx
+	if c.IsSet("timeout") {
+		var cancel context.CancelFunc
+		ctx, cancel = context.WithTimeout(sigCtx, c.Duration("timeout"))
+		defer cancel()
+	}
+	res, err := optimize.Plan(ctx, j.spec.Chain, set)
+	prog.finish()
+	if sigCtx.Err() != nil {
+		return fmt.Errorf("interrupted; %s left as it was", j.out.dir)
+	}
+	if err != nil {
+		return fmt.Errorf("plan: %v", err)
+	}
+	if res.Partial && len(res.Front) == 0 {
+		return fmt.Errorf("--timeout %v: stopped before any chain was designed; %s left as it was (allow more time)", c.Duration("timeout"), j.out.dir)
+	}
+	if len(res.Front) == 0 {
+		return fmt.Errorf("no chain meets the spec (%s); %s left as it was", droppedText(res.Dropped), j.out.dir)
+	}
+	return j.finish("plan", res)
+}
+
+func runCheck(c *cli.Context) error {
+	notation := c.String("chain")
+	if notation == "" {
+		return usagef("--chain: missing; name the chain in the notation plan prints, e.g. \"cic4m1r8 > hb > fir4\"")
+	}
+	plan, err := chain.ParseNotation(notation)
+	if err != nil {
+		return usagef("--chain: %s", strings.TrimPrefix(err.Error(), "chain: "))
+	}
+	j, err := newJob(c)
+	if err != nil {
+		return err
+	}
+	defer j.out.cleanup()
+	d := 1
+	for _, p := range plan {
+		d *= p.Factor
+		if d > 1<<40 {
+			break
+		}
+	}
+	if want := j.spec.Chain.Decimation(); d != want {
+		return usagef("--chain %q: its factors multiply to %d, but input_rate/output_rate = %d", notation, d, want)
+	}
+	set := j.spec.SearchSettings()
+	ch, err := chain.Design(j.spec.Chain, plan, set.Chain)
+	if err != nil {
+		var pe *chain.PlanError
+		if errors.As(err, &pe) {
+			return usagef("--chain %q: %s", notation, pe.Rule)
+		}
+		return fmt.Errorf("check: %v", err)
+	}
+	if c.Context.Err() != nil {
+		return fmt.Errorf("interrupted; %s left as it was", j.out.dir)
+	}
+	fig, err := cost.Evaluate(j.spec.Chain, ch, set.Cost)
+	if err != nil {
+		return fmt.Errorf("check: %v", err)
+	}
+	cand := optimize.Candidate{Plan: plan, Chain: ch, Figures: fig, MarginDB: fig.Analysis.AliasRejectionDB - j.spec.Chain.RejectionDB}
+	res := &optimize.Result{
+		Candidates: 1, Designed: 1, Dropped: map[string]int{},
+		Front: []optimize.Candidate{cand}, Recommended: 0, FeasibleAll: 1,
+	}
+	a := fig.Analysis
+	switch {
+	case a.AliasRejectionDB < j.spec.Chain.RejectionDB:
+		res.Reason = fmt.Sprintf("The chain named by --chain misses the rejection target: %.2f dB against %.4g dB.", a.AliasRejectionDB, j.spec.Chain.RejectionDB)
+	case a.PassbandRippleDB > j.spec.Chain.RippleDB:
+		res.Reason = fmt.Sprintf("The chain named by --chain misses the ripple budget: %.4f dB against %.4g dB.", a.PassbandRippleDB, j.spec.Chain.RippleDB)
+	default:
+		res.Reason = "The chain named by --chain meets the rejection target and the ripple budget."
+	}
+	return j.finish("check", res)
+}
+
+func droppedText(d map[string]int) string {
+	if len(d) == 0 {
+		return "no candidates"
+	}
+	keys := sortedKeys(d)
+	var parts []string
+	for _, k := range keys {
+		parts = append(parts, fmt.Sprintf("%s: %d", k, d[k]))
+	}
+	return strings.Join(parts, ", ")
+}
+
+// finish builds the report, writes every file and prints the summary.
+func (j *job) finish(command string, res *optimize.Result) error {
+	rep, err := report.New(command, j.spec, res)
+	if err != nil {
+		return err
+	}
+	files, err := buildFiles(rep, res, j.spec)
+	if err != nil {
+		return err
+	}
+	if j.c.Context.Err() != nil {
+		return fmt.Errorf("interrupted; %s left as it was", j.out.dir)
+	}
+	if err := j.out.write(files); err != nil {
+		return err
+	}
+	if err := j.out.commit(); err != nil {
+		return err
+	}
+	if j.json {
+		if _, err := j.c.App.Writer.Write(files[0].Data); err != nil {
+			return err
+		}
+	}
+	printSummary(j.human(), j, rep, files)
+	return nil
+}
+
+// progress shows a bar on stderr for searches that take over about a second,
+// and only when stderr is a terminal.
+type progress struct {
+	mu    sync.Mutex
+	w     io.Writer
+	on    bool
+	start time.Time
+	bar   *progressbar.ProgressBar
+}
+
+func newProgress(w io.Writer, quiet bool) *progress {
+	p := &progress{w: w, start: time.Now()}
+	if f, ok := w.(*os.File); ok && !quiet && term.IsTerminal(int(f.Fd())) {
+		p.on = true
+	}
+	return p
+}
+
+func (p *progress) update(done, total int) {
+	if !p.on {
+		return
+	}
+	p.mu.Lock()
+	defer p.mu.Unlock()
+	if p.bar == nil {
+		if time.Since(p.start) < time.Second {
+			return
+		}
+		p.bar = progressbar.NewOptions(total,
+			progressbar.OptionSetWriter(p.w),
+			progressbar.OptionSetDescription("designing chains"),
+			progressbar.OptionShowCount(),
+			progressbar.OptionSetPredictTime(true),
+			progressbar.OptionThrottle(100*time.Millisecond),
+			progressbar.OptionClearOnFinish(),
+		)
+	}
+	_ = p.bar.Set(done)
+}
+
+func (p *progress) finish() {
+	p.mu.Lock()
+	defer p.mu.Unlock()
+	if p.bar != nil {
+		_ = p.bar.Finish()
+		_ = p.bar.Clear()
+	}
+}
+
+func printSummary(w io.Writer, j *job, rep *report.Report, files []report.File) {
+	s := rep.Spec
+	fmt.Fprintf(w, "stepdown %s: %s\n", rep.Command, j.source)
+	fmt.Fprintf(w, "  %s -> %s (decimation %d), %s signal; passband %s, protected %s, stopband %s\n",
+		units.FormatFrequency(s.InputRateHz), units.FormatFrequency(s.OutputRateHz), s.Decimation, s.Signal,
+		units.FormatFrequency(s.PassbandHz), units.FormatFrequency(s.ProtectedHz), units.FormatFrequency(s.StopbandHz))
+	fmt.Fprintf(w, "  ripple %g dB peak-to-peak, rejection %g dB\n", s.RippleDB, s.RejectionDB)
+	if rep.Command == "plan" {
+		fmt.Fprintf(w, "  searched %d candidates: %d feasible by estimate, %d designed, %d on the front\n",
+			rep.Search.Candidates, rep.Search.Feasible, rep.Search.Designed, len(rep.Front))
+	}
+	if rep.Partial {
+		fmt.Fprintln(w, "  PARTIAL: stopped by --timeout; the front below is the best found so far")
+	}
+	fmt.Fprintln(w)
+	printTable(w, rep)
+	fmt.Fprintln(w)
+	if len(rep.Front) > 0 {
+		fmt.Fprintf(w, "recommended: #%d %s\n  %s\n", rep.Recommended+1, rep.Front[rep.Recommended].Notation, rep.Reason)
+	}
+	fmt.Fprintf(w, "\nwrote %s/\n", j.out.dir)
+	for _, f := range files {
+		fmt.Fprintf(w, "  %s\n", f.Name)
+	}
+	fmt.Fprintf(w, "\nCaution: %s.\n", report.Caution)
+}
+
+func printTable(w io.Writer, rep *report.Report) {
+	clock := rep.Spec.Hardware.ClockHz != nil
+	head := []string{"", "#", "chain", "mult/out", "adds/out", "memory bits", "latency", "rejection", "ripple", "figures"}
+	if clock {
+		head = append(head[:6], append([]string{"multipliers"}, head[6:]...)...)
+	}
+	rows := [][]string{head}
+	for i, ch := range rep.Front {
+		mark := ""
+		if i == rep.Recommended {
+			mark = "*"
+		}
+		kind := "estimated"
+		if ch.Designed {
+			kind = "designed"
+		}
+		if !ch.MeetsTargets {
+			kind += ", misses spec"
+		}
+		row := []string{mark, fmt.Sprint(i + 1), ch.Notation,
+			trimFloat(ch.MultipliesPerOutput, 1), trimFloat(ch.AddsPerOutput, 1), fmt.Sprint(ch.MemoryBits)}
+		if clock {
+			m := 0
+			if ch.MultipliersAtClock != nil {
+				m = *ch.MultipliersAtClock
+			}
+			row = append(row, fmt.Sprint(m))
+		}
+		row = append(row,
+			fmt.Sprintf("%s (%.1f out)", seconds(ch.LatencyS), ch.LatencySamples),
+			fmt.Sprintf("%.2f dB", ch.AliasRejectionDB),
+			fmt.Sprintf("%.4f dB", ch.PassbandRippleDB),
+			kind)
+		rows = append(rows, row)
+	}
+	widths := make([]int, len(head))
+	for _, r := range rows {
+		for i, c := range r {
+			widths[i] = max(widths[i], len(c))
+		}
+	}
+	for _, r := range rows {
+		var b strings.Builder
+		for i, c := range r {
+			if i > 0 {
+				b.WriteString("  ")
+			}
+			if i >= 3 && i < len(r)-1 {
+				fmt.Fprintf(&b, "%*s", widths[i], c)
+			} else {
+				fmt.Fprintf(&b, "%-*s", widths[i], c)
+			}
+		}
+		fmt.Fprintln(w, strings.TrimRight(b.String(), " "))
+	}
+}
+
+func trimFloat(v float64, prec int) string {
+	if v == math.Trunc(v) {
+		return fmt.Sprintf("%.0f", v)
+	}
+	return fmt.Sprintf("%.*f", prec, v)
+}
+
+func seconds(s float64) string {
+	switch {
+	case s >= 1:
+		return fmt.Sprintf("%.3g s", s)
+	case s >= 1e-3:
+		return fmt.Sprintf("%.3g ms", s*1e3)
+	case s >= 1e-6:
+		return fmt.Sprintf("%.3g us", s*1e6)
+	}
+	return fmt.Sprintf("%.3g ns", s*1e9)
+}
