@@ -1,0 +1,80 @@
+package chain
+
+import (
+	"errors"
+	"math"
+	"strings"
+	"testing"
+)
+
+func goodSpec() Spec {
+	return Spec{InputRate: 64e6, OutputRate: 250e3, Passband: 100e3, RippleDB: 0.1, RejectionDB: 90}
+}
+
+func TestNormalizeDefaults(t *testing.T) {
+	s, err := goodSpec().Normalize()
+	if err != nil {
+		t.Fatal(err)
+	}
+	// Defaults from DESIGN §3: fa = fp, fs = FK - fa; 16/24-bit words.
+	if s.Protected != 100e3 || s.Stopband != 150e3 || s.InputBits != 16 || s.OutputBits != 24 || s.CoefBits != 0 {
+		t.Errorf("defaults: %+v", s)
+	}
+	if d := s.Decimation(); d != 256 {
+		t.Errorf("Decimation = %d, want 256", d)
+	}
+	// A ratio typed in decimal that is integral up to rounding is accepted.
+	s2 := Spec{InputRate: 122.88e6, OutputRate: 122.88e6 / 3, Passband: 1e6, RippleDB: 1, RejectionDB: 60}
+	if _, err := s2.Normalize(); err != nil {
+		t.Error(err)
+	}
+}
+
+func TestNormalizeErrors(t *testing.T) {
+	mod := func(f func(*Spec)) Spec { s := goodSpec(); f(&s); return s }
+	for _, tc := range []struct {
+		spec  Spec
+		field string
+		rule  string
+	}{
+		{mod(func(s *Spec) { s.InputRate = 0 }), "InputRate", "above 0"},
+		{mod(func(s *Spec) { s.InputRate = math.Inf(1) }), "InputRate", "finite"},
+		{mod(func(s *Spec) { s.OutputRate = math.NaN() }), "OutputRate", "finite"},
+		{mod(func(s *Spec) { s.OutputRate = 65e6 }), "OutputRate", "below InputRate"},
+		{mod(func(s *Spec) { s.OutputRate = 250.5e3 }), "OutputRate", "nearest integer ratios are 255"},
+		{mod(func(s *Spec) { s.Passband = 125e3 }), "Passband", "OutputRate/2"},
+		{mod(func(s *Spec) { s.Passband = -1 }), "Passband", "(0,"},
+		{mod(func(s *Spec) { s.Protected = 90e3 }), "Protected", "[Passband"},
+		{mod(func(s *Spec) { s.Protected = 130e3 }), "Protected", "OutputRate/2"},
+		{mod(func(s *Spec) { s.Stopband = 100e3 }), "Stopband", "(Passband"},
+		{mod(func(s *Spec) { s.Stopband = 151e3 }), "Stopband", "OutputRate - Protected"},
+		{mod(func(s *Spec) { s.RippleDB = 0 }), "RippleDB", "above 0"},
+		{mod(func(s *Spec) { s.RejectionDB = 151 }), "RejectionDB", "(0, 150]"},
+		{mod(func(s *Spec) { s.InputBits = 1 }), "InputBits", "[2, 64]"},
+		{mod(func(s *Spec) { s.OutputBits = 65 }), "OutputBits", "[2, 64]"},
+		{mod(func(s *Spec) { s.CoefBits = -3 }), "CoefBits", "[2, 64]"},
+	} {
+		_, err := tc.spec.Normalize()
+		var se *SpecError
+		if !errors.As(err, &se) {
+			t.Errorf("%s: want a *SpecError, got %v", tc.field, err)
+			continue
+		}
+		if se.Field != tc.field || !strings.Contains(err.Error(), tc.rule) || !strings.Contains(err.Error(), tc.field+" = ") {
+			t.Errorf("%s: error %q does not name field, value and rule %q", tc.field, err, tc.rule)
+		}
+	}
+}
+
+func TestRippleConversion(t *testing.T) {
+	// ripple_db = 20 log10((1+dp)/(1-dp)) (DESIGN §2): dp = 0.01 gives
+	// 20 log10(1.01/0.99) = 0.1737236 dB (hand computation).
+	if got := DevToRipple(0.01); math.Abs(got-0.1737236) > 1e-6 {
+		t.Errorf("DevToRipple(0.01) = %v", got)
+	}
+	for _, r := range []float64{0.001, 0.1, 1, 3} {
+		if got := DevToRipple(RippleToDev(r)); math.Abs(got-r) > 1e-12*math.Max(1, r) {
+			t.Errorf("round trip %v -> %v", r, got)
+		}
+	}
+}
