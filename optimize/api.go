@@ -1,13 +1,6 @@
 package optimize
 
-// This file fixes the public API of the optimize package so that the command
-// line can be written against it in parallel. The owner fills in the bodies and
-// may add to it; signatures change only by agreement.
-
 import (
-	"context"
-	"errors"
-
 	"stepdown/chain"
 	"stepdown/cost"
 )
@@ -32,6 +25,18 @@ type Settings struct {
 
 	Chain chain.Settings // how stages are designed
 	Cost  cost.Settings  // how chains are priced
+
+	// Tolerance is the width of the band of near-front estimates that is
+	// designed for real, as a fraction: a candidate is designed unless some
+	// estimated front point beats it by more than this on every axis. Zero
+	// means 0.15.
+	Tolerance float64
+	// MaxDesigns caps the number of chains designed for real; the band is
+	// taken nearest the front first. Zero means 256.
+	MaxDesigns int
+	// Exhaustive designs every feasible candidate instead of the band (slow;
+	// it exists to check the two-tier search). MaxDesigns does not apply.
+	Exhaustive bool
 }
 
 // Rule is a recommendation rule.
@@ -46,26 +51,28 @@ const (
 
 // Candidate is one evaluated chain.
 type Candidate struct {
-	Plan    []chain.StagePlan
-	Chain   *chain.Chain
-	Figures cost.Figures // Figures.Designed says whether it came from a real design
+	Plan  []chain.StagePlan
+	Chain *chain.Chain // nil for the estimated cloud in Result.Feasible
+	// Figures.Designed says whether it came from a real design
+	Figures cost.Figures
 	// MarginDB is the alias-rejection margin over the target, dB.
 	MarginDB float64
 }
 
 // Result is the outcome of a search.
 type Result struct {
-	Candidates  int            // enumerated
-	Feasible    []Candidate    // every feasible candidate, estimated figures (for the faint cloud)
+	Candidates int // enumerated
+	// Feasible is the cloud of feasible candidates with estimated figures,
+	// thinned deterministically to at most CloudSize (see the package doc).
+	Feasible    []Candidate
+	FeasibleAll int            // how many were feasible before thinning
 	Designed    int            // how many were designed for real
 	Dropped     map[string]int // reason -> count
 	Front       []Candidate    // the final non-dominated set, all designed, sorted by multiplies
-	Recommended int            // index into Front
+	Recommended int            // index into Front; -1 when Front is empty
 	Reason      string         // one or two sentences on why
 	Partial     bool           // stopped early by ctx; Front is the best so far
 }
 
-// Plan searches every split of the spec's ratio.
-func Plan(ctx context.Context, spec chain.Spec, s Settings) (*Result, error) {
-	return nil, errors.New("optimize: not implemented yet")
-}
+// CloudSize is the most candidates Result.Feasible holds.
+const CloudSize = 4000

@@ -1,0 +1,217 @@
+package optimize
+
+import (
+	"math"
+
+	"stepdown/chain"
+)
+
+// space is the search space of one plan: the ratio, the stage-count limit
+// and the stage kinds and CIC parameters to try.
+type space struct {
+	d         int
+	maxStages int
+	cic       bool
+	halfBand  bool
+	fir       bool
+	orders    []int
+	delays    []int
+	// sameLayout reports whether the multiband and lowpass layouts of a FIR
+	// stage of factor f with output rate at prefix p*f coincide, in which
+	// case only the multiband one is tried.
+	sameLayout func(prefix, factor int) bool
+}
+
+// divisors returns the divisors of n that are at least 2, ascending.
+func divisors(n int) []int {
+	var lo, hi []int
+	for k := 2; k*k <= n; k++ {
+		if n%k == 0 {
+			lo = append(lo, k)
+			if k*k != n {
+				hi = append(hi, n/k)
+			}
+		}
+	}
+	for i := len(hi) - 1; i >= 0; i-- {
+		lo = append(lo, hi[i])
+	}
+	if n >= 2 {
+		lo = append(lo, n)
+	}
+	return lo
+}
+
+// choices returns how many stage plans a stage of factor f at position pos
+// (prefix product p before it) has.
+func (sp *space) choices(pos, prefix, f int) int {
+	c := 0
+	if pos == 0 && sp.cic {
+		c += len(sp.orders) * len(sp.delays)
+	}
+	if f == 2 && sp.halfBand {
+		c++
+	}
+	if sp.fir {
+		c++
+		if !sp.sameLayout(prefix, f) {
+			c++
+		}
+	}
+	return c
+}
+
+// count returns the number of candidates in the space, saturating at
+// math.MaxInt64/2 so that a huge space compares as huge without overflow.
+func (sp *space) count() int64 {
+	type key struct{ rem, pos int }
+	memo := map[key]int64{}
+	divs := map[int][]int{}
+	var rec func(rem, pos int) int64
+	rec = func(rem, pos int) int64 {
+		if rem == 1 {
+			return 1
+		}
+		if pos == sp.maxStages {
+			return 0
+		}
+		k := key{rem, pos}
+		if v, ok := memo[k]; ok {
+			return v
+		}
+		ds, ok := divs[rem]
+		if !ok {
+			ds = divisors(rem)
+			divs[rem] = ds
+		}
+		prefix := sp.d / rem
+		var total int64
+		for _, f := range ds {
+			c := int64(sp.choices(pos, prefix, f))
+			if c == 0 {
+				continue
+			}
+			sub := rec(rem/f, pos+1)
+			total = satAdd(total, satMul(c, sub))
+		}
+		memo[k] = total
+		return total
+	}
+	return rec(sp.d, 0)
+}
+
+const satMax = math.MaxInt64 / 2
+
+func satAdd(a, b int64) int64 {
+	if a+b > satMax || a+b < 0 {
+		return satMax
+	}
+	return a + b
+}
+
+func satMul(a, b int64) int64 {
+	if a == 0 || b == 0 {
+		return 0
+	}
+	if a > satMax/b {
+		return satMax
+	}
+	return a * b
+}
+
+// walk calls visit with every candidate of the space in a fixed order:
+// factorisations depth first with factors ascending, and at each stage CIC
+// (orders then delays ascending), then half-band, then FIR multiband, then FIR
+// lowpass. The slice passed to visit is reused; visit must copy what it keeps.
+// visit returns false to stop the walk; walk then returns false.
+func (sp *space) walk(visit func(plan []chain.StagePlan) bool) bool {
+	buf := make([]chain.StagePlan, sp.maxStages)
+	divs := map[int][]int{}
+	var rec func(rem, pos int) bool
+	rec = func(rem, pos int) bool {
+		if rem == 1 {
+			return visit(buf[:pos])
+		}
+		if pos == sp.maxStages {
+			return true
+		}
+		ds, ok := divs[rem]
+		if !ok {
+			ds = divisors(rem)
+			divs[rem] = ds
+		}
+		prefix := sp.d / rem
+		for _, f := range ds {
+			if pos == sp.maxStages-1 && f != rem {
+				continue
+			}
+			if pos == 0 && sp.cic {
+				for _, n := range sp.orders {
+					for _, m := range sp.delays {
+						buf[pos] = chain.StagePlan{Kind: chain.CIC, Factor: f, CICOrder: n, CICDelay: m}
+						if !rec(rem/f, pos+1) {
+							return false
+						}
+					}
+				}
+			}
+			if f == 2 && sp.halfBand {
+				buf[pos] = chain.StagePlan{Kind: chain.HalfBand, Factor: f}
+				if !rec(rem/f, pos+1) {
+					return false
+				}
+			}
+			if sp.fir {
+				buf[pos] = chain.StagePlan{Kind: chain.FIR, Factor: f, Variant: chain.Multiband}
+				if !rec(rem/f, pos+1) {
+					return false
+				}
+				if !sp.sameLayout(prefix, f) {
+					buf[pos] = chain.StagePlan{Kind: chain.FIR, Factor: f, Variant: chain.Lowpass}
+					if !rec(rem/f, pos+1) {
+						return false
+					}
+				}
+			}
+		}
+		return true
+	}
+	return rec(sp.d, 0)
+}
+
+// comparePlans is the total order used for every tie-break: fewer stages
+// first, then stage by stage factor, kind, CIC order, CIC delay, variant.
+func comparePlans(a, b []chain.StagePlan) int {
+	if len(a) != len(b) {
+		if len(a) < len(b) {
+			return -1
+		}
+		return 1
+	}
+	for i := range a {
+		x, y := a[i], b[i]
+		switch {
+		case x.Factor != y.Factor:
+			return cmpInt(x.Factor, y.Factor)
+		case x.Kind != y.Kind:
+			return cmpInt(int(x.Kind), int(y.Kind))
+		case x.CICOrder != y.CICOrder:
+			return cmpInt(x.CICOrder, y.CICOrder)
+		case x.CICDelay != y.CICDelay:
+			return cmpInt(x.CICDelay, y.CICDelay)
+		case x.Variant != y.Variant:
+			return cmpInt(int(x.Variant), int(y.Variant))
+		}
+	}
+	return 0
+}
+
+func cmpInt(a, b int) int {
+	switch {
+	case a < b:
+		return -1
+	case a > b:
+		return 1
+	}
+	return 0
+}

@@ -1,0 +1,406 @@
+package optimize
+
+import (
+	"math"
+
+	"stepdown/chain"
+)
+
+// Reasons a candidate is dropped. The strings are keys of Result.Dropped.
+const (
+	ReasonCICRejection   = "cic rejection below target"
+	ReasonCICDroop       = "cic droop not compensated"
+	ReasonHalfBandEdges  = "halfband edges do not fit"
+	ReasonShortFIR       = "fir stage under 3 taps"
+	ReasonDesignFailed   = "design failed"
+	ReasonEvaluateFailed = "evaluation failed"
+	ReasonMissRejection  = "designed chain misses rejection"
+	ReasonMissRipple     = "designed chain misses ripple"
+	ReasonCICNull        = "cic null in passband"
+	ReasonLongFIR        = "fir stage over 2047 taps"
+)
+
+type dropCode uint8
+
+const (
+	dropNone dropCode = iota
+	dropCICRejection
+	dropCICDroop
+	dropHalfBandEdges
+	dropShortFIR
+	dropLongFIR
+	dropCICNull
+)
+
+// maxTaps bounds a stage's estimated length: a longer stage is dropped
+// before design, because designing it would take the search's whole time
+// budget and no front-end chain wants it.
+const maxTaps = 2047
+
+var dropNames = [...]string{
+	dropCICRejection:  ReasonCICRejection,
+	dropCICDroop:      ReasonCICDroop,
+	dropHalfBandEdges: ReasonHalfBandEdges,
+	dropShortFIR:      ReasonShortFIR,
+	dropLongFIR:       ReasonLongFIR,
+	dropCICNull:       ReasonCICNull,
+}
+
+// figs is a candidate's or a stage's position on the three axes of the
+// front, plus the tie-breaking rejection margin.
+type figs struct {
+	mpo, bits, lat float64 // multiplies per output, memory bits, latency s
+	words          float64
+	margin         float64 // dB over the rejection target; larger is better
+}
+
+// params is the normalised spec and the cost settings the estimator needs.
+type params struct {
+	f0, fk, fp, fa, fs float64
+	dp, ds             float64
+	rippleDB, rejDB    float64
+	inBits, dataBits   int
+	coefBits           int
+	complex, noSym     bool
+	d                  int
+}
+
+// newParams reads a spec whose defaults are filled in.
+func newParams(spec chain.Spec, noSym bool) params {
+	p := params{
+		f0: spec.InputRate, fk: spec.OutputRate,
+		fp: spec.Passband, fa: spec.Protected, fs: spec.Stopband,
+		rippleDB: spec.RippleDB, rejDB: spec.RejectionDB,
+		inBits: spec.InputBits, dataBits: spec.OutputBits, coefBits: spec.CoefBits,
+		complex: spec.Complex, noSym: noSym,
+	}
+	if p.fa == 0 {
+		p.fa = p.fp
+	}
+	if p.fs == 0 {
+		p.fs = p.fk - p.fa
+	}
+	if p.inBits == 0 {
+		p.inBits = 16
+	}
+	if p.dataBits == 0 {
+		p.dataBits = 24
+	}
+	if p.coefBits == 0 {
+		p.coefBits = defaultCoefBits
+	}
+	g := math.Pow(10, p.rippleDB/20)
+	p.dp = (g - 1) / (g + 1)
+	p.ds = math.Pow(10, -p.rejDB/20)
+	p.d = int(math.Round(p.f0 / p.fk))
+	return p
+}
+
+// defaultCoefBits prices floating-point coefficients in the estimate tier
+// (common practice: an 18-bit multiplier port).
+const defaultCoefBits = 18
+
+// stageKey is everything a stage's estimate depends on: where it sits in
+// the rate ladder (prefix product before it, its factor; whether it is last
+// follows from these), what it is, and its share of the ripple budget (dB,
+// as float64 bits).
+type stageKey struct {
+	prefix, factor int32
+	kind, variant  int8
+	n, m           int8
+	share          uint64
+}
+
+// realKey adds what a stage's real design and price depend on beyond its
+// estimate: the CIC whose droop it corrects, and the CIC that feeds it
+// (whose output width sets its data width). The CIC can only be the first
+// stage, so its factor, order and delay say all.
+type realKey struct {
+	stageKey
+	comp, after bool
+	cicN, cicM  int8
+	cicR        int32
+}
+
+type stageVal struct {
+	f    figs
+	drop dropCode
+}
+
+// estimator scores candidates from order estimates. It caches each stage's
+// figures, so scoring a candidate is a few map look-ups and additions and
+// allocates nothing once its stages have been seen. An estimator is not
+// safe for concurrent use.
+type estimator struct {
+	p     params
+	cache map[stageKey]stageVal
+	keys  []realKey
+}
+
+func newEstimator(p params) *estimator {
+	return &estimator{p: p, cache: make(map[stageKey]stageVal)}
+}
+
+// keysOf writes the stages' keys into e.keys following chain's rules: the
+// ripple budget less any CIC droop that no FIR stage corrects is split
+// equally in dB over the half-band and FIR stages; the compensator is the
+// last FIR stage after the CIC. It reports a drop when the CIC's droop
+// cannot be afforded or its first null falls in the passband.
+func (e *estimator) keysOf(plan []chain.StagePlan) dropCode {
+	p := &e.p
+	e.keys = e.keys[:0]
+	comp, nRipple := -1, 0
+	for i, st := range plan {
+		if st.Kind != chain.CIC {
+			nRipple++
+		}
+		if st.Kind == chain.FIR && plan[0].Kind == chain.CIC {
+			comp = i
+		}
+	}
+	left := p.rippleDB
+	var cic chain.StagePlan
+	if plan[0].Kind == chain.CIC {
+		cic = plan[0]
+		if p.fp*float64(cic.Factor*cic.CICDelay) >= p.f0 {
+			return dropCICNull
+		}
+		if comp < 0 {
+			left -= -20 * math.Log10(cicGain(p.fp, p.f0, cic.Factor, cic.CICOrder, cic.CICDelay))
+			if left <= 0 {
+				return dropCICDroop
+			}
+		}
+	}
+	share := 0.0
+	if nRipple > 0 {
+		share = left / float64(nRipple)
+	}
+	prefix := 1
+	for i, st := range plan {
+		k := realKey{stageKey: stageKey{
+			prefix: int32(prefix), factor: int32(st.Factor),
+			kind: int8(st.Kind), variant: int8(st.Variant),
+			n: int8(st.CICOrder), m: int8(st.CICDelay),
+		}}
+		if st.Kind != chain.CIC {
+			k.share = math.Float64bits(share)
+			k.comp = i == comp
+			k.after = i == 1 && cic.Kind == chain.CIC
+			if k.comp || k.after {
+				k.cicN, k.cicM, k.cicR = int8(cic.CICOrder), int8(cic.CICDelay), int32(cic.Factor)
+			}
+		}
+		e.keys = append(e.keys, k)
+		prefix *= st.Factor
+	}
+	return dropNone
+}
+
+// score returns the candidate's estimated figures, or the reason to drop it.
+// It leaves the stages' real keys in e.keys.
+func (e *estimator) score(plan []chain.StagePlan) (figs, dropCode) {
+	if d := e.keysOf(plan); d != dropNone {
+		return figs{}, d
+	}
+	var total figs
+	total.margin = math.Inf(1)
+	for i := range e.keys {
+		k := e.keys[i].stageKey
+		v, ok := e.cache[k]
+		if !ok {
+			v = e.stage(k)
+			e.cache[k] = v
+		}
+		if v.drop != dropNone {
+			return figs{}, v.drop
+		}
+		total.mpo += v.f.mpo
+		total.bits += v.f.bits
+		total.words += v.f.words
+		total.lat += v.f.lat
+		total.margin = math.Min(total.margin, v.f.margin)
+	}
+	return total, dropNone
+}
+
+// stopEdge is where the stage's first attenuated band starts (DESIGN §4):
+// Fi - fa, or min(fs, FK - fa) for the last stage.
+func (p *params) stopEdge(out float64, last bool) float64 {
+	if last {
+		return math.Min(p.fs, p.fk-p.fa)
+	}
+	return out - p.fa
+}
+
+func (e *estimator) stage(k stageKey) stageVal {
+	p := &e.p
+	prefix, f := int(k.prefix), int(k.factor)
+	rate := p.f0 / float64(prefix)
+	out := rate / float64(f)
+	last := prefix*f == p.d
+	later := float64(p.d / (prefix * f))
+	dpi := rippleToDev(math.Float64frombits(k.share))
+	stop := p.stopEdge(out, last)
+	cplx := 1.0
+	if p.complex {
+		cplx = 2
+	}
+	var v stageVal
+	switch chain.Kind(k.kind) {
+	case chain.CIC:
+		n, m := int(k.n), int(k.m)
+		rej := cicRejection(p, rate, f, n, m, last)
+		v.f.margin = rej - p.rejDB
+		if v.f.margin < 0 {
+			v.drop = dropCICRejection
+			return v
+		}
+		width := float64(p.inBits) + math.Ceil(float64(n)*math.Log2(float64(f*m)))
+		words := float64(n + n*m)
+		v.f.words = words * cplx
+		v.f.bits = words * width * cplx
+		v.f.lat = float64(n) * float64(f*m-1) / 2 / rate
+	case chain.HalfBand:
+		edge := math.Max(p.fp, p.fa)
+		if last {
+			edge = math.Max(p.fp, p.fk-p.fs)
+		}
+		hbStop := rate/2 - edge
+		if f != 2 || edge >= out/2 {
+			v.drop = dropHalfBandEdges
+			return v
+		}
+		dev := math.Min(dpi, p.ds)
+		l := math.Ceil(herrmann(dev, dev, (hbStop-edge)/rate))
+		kk := math.Max(1, math.Ceil((l+1)/4))
+		if 4*kk-1 > maxTaps {
+			v.drop = dropLongFIR
+			return v
+		}
+		mult := kk
+		coefs := kk
+		if p.noSym {
+			mult, coefs = 2*kk, 2*kk
+		}
+		v.f.mpo = mult * later * cplx
+		v.f.words = (4*kk-1)*cplx + coefs
+		v.f.bits = (4*kk-1)*float64(p.dataBits)*cplx + coefs*float64(p.coefBits)
+		v.f.lat = (4*kk - 2) / 2 / rate
+	case chain.FIR:
+		l := math.Ceil(herrmann(dpi, p.ds, (stop-p.fp)/rate))
+		if l < 3 {
+			v.drop = dropShortFIR
+			return v
+		}
+		if l > maxTaps {
+			v.drop = dropLongFIR
+			return v
+		}
+		mult := l
+		coefs := l
+		if !p.noSym {
+			mult = math.Ceil(l / 2)
+			coefs = mult
+		}
+		v.f.mpo = mult * later * cplx
+		v.f.words = l*cplx + coefs
+		v.f.bits = l*float64(p.dataBits)*cplx + coefs*float64(p.coefBits)
+		v.f.lat = (l - 1) / 2 / rate
+	}
+	return v
+}
+
+// herrmann is the Herrmann-Rabiner-Chan (1973) length N = D/df - f df + 1,
+// unrounded, for a transition df as a fraction of the rate.
+func rippleToDev(db float64) float64 {
+	g := math.Pow(10, db/20)
+	return (g - 1) / (g + 1)
+}
+
+func herrmann(dp, ds, df float64) float64 {
+	if dp < ds {
+		dp, ds = ds, dp
+	}
+	l1, l2 := math.Log10(dp), math.Log10(ds)
+	dInf := (0.005309*l1*l1+0.07114*l1-0.4761)*l2 - (0.00266*l1*l1 + 0.5941*l1 + 0.4278)
+	ff := 11.01217 + 0.51244*(l1-l2)
+	n := dInf/df - ff*df + 1
+	if n < 1 || math.IsNaN(n) {
+		return 1
+	}
+	return n
+}
+
+// cicGain is |H(f)| of a CIC of order n, delay m, factor r at input rate
+// rate, normalised to 1 at f = 0 (DESIGN §4).
+func cicGain(f, rate float64, r, n, m int) float64 {
+	x := math.Pi * f / rate
+	rm := float64(r * m)
+	s := math.Sin(x)
+	if math.Abs(s) < 1e-300 {
+		return 1
+	}
+	g := math.Abs(math.Sin(x*rm) / (rm * s))
+	return math.Pow(g, float64(n))
+}
+
+// cicRejection is the CIC's rejection in dB over the bands that fold onto
+// [0, fa] at its output (DESIGN §4), read from its exact response: each
+// band is sampled and the largest sample refined by golden-section search.
+// Bands are visited upward and the walk stops once the response's envelope
+// 1/(RM sin(pi f/F))^N falls below the worst gain found, since it only
+// decreases.
+func cicRejection(p *params, rate float64, r, n, m int, last bool) float64 {
+	out := rate / float64(r)
+	worst := 0.0
+	for k := 1; k <= r/2; k++ {
+		lo := float64(k)*out - p.fa
+		if k == 1 {
+			lo = p.stopEdge(out, last)
+		}
+		hi := math.Min(float64(k)*out+p.fa, rate/2)
+		if lo >= hi {
+			continue
+		}
+		env := math.Pow(1/(float64(r*m)*math.Sin(math.Pi*lo/rate)), float64(n))
+		if env <= worst {
+			break
+		}
+		worst = math.Max(worst, bandMax(func(f float64) float64 { return cicGain(f, rate, r, n, m) }, lo, hi))
+	}
+	if worst <= 0 {
+		return 400
+	}
+	return math.Min(-20*math.Log10(worst), 400)
+}
+
+// bandMax returns the maximum of g over [lo, hi] from a grid of 64 steps and
+// a golden-section refinement around the best grid point.
+func bandMax(g func(float64) float64, lo, hi float64) float64 {
+	const steps = 64
+	h := (hi - lo) / steps
+	best, bi := -1.0, 0
+	for i := 0; i <= steps; i++ {
+		if v := g(lo + float64(i)*h); v > best {
+			best, bi = v, i
+		}
+	}
+	a := math.Max(lo, lo+float64(bi-1)*h)
+	b := math.Min(hi, lo+float64(bi+1)*h)
+	const phi = 0.6180339887498949
+	c, d := b-phi*(b-a), a+phi*(b-a)
+	gc, gd := g(c), g(d)
+	for i := 0; i < 40; i++ {
+		if gc > gd {
+			b, d, gd = d, c, gc
+			c = b - phi*(b-a)
+			gc = g(c)
+		} else {
+			a, c, gc = c, d, gd
+			d = a + phi*(b-a)
+			gd = g(d)
+		}
+	}
+	return math.Max(best, math.Max(gc, gd))
+}

@@ -1,0 +1,414 @@
+package optimize
+
+import (
+	"context"
+	"fmt"
+	"hash/fnv"
+	"math"
+	"math/rand"
+	"reflect"
+	"sort"
+	"testing"
+
+	"stepdown/chain"
+	"stepdown/cost"
+)
+
+// rxSpec is an invented receiver: 122.88 MHz to 30 kHz (D = 4096), a 10 kHz
+// channel, 90 dB rejection, 0.1 dB ripple.
+func rxSpec() chain.Spec {
+	return chain.Spec{
+		InputRate: 122.88e6, OutputRate: 30e3, Passband: 10e3,
+		RippleDB: 0.1, RejectionDB: 90, InputBits: 16, OutputBits: 24,
+	}
+}
+
+func TestDivisors(t *testing.T) {
+	for _, c := range []struct {
+		n    int
+		want []int
+	}{
+		{1, nil}, {2, []int{2}}, {7, []int{7}}, {12, []int{2, 3, 4, 6, 12}},
+		{36, []int{2, 3, 4, 6, 9, 12, 18, 36}}, {100, []int{2, 4, 5, 10, 20, 25, 50, 100}},
+	} {
+		if got := divisors(c.n); !reflect.DeepEqual(got, c.want) {
+			t.Errorf("divisors(%d) = %v, want %v", c.n, got, c.want)
+		}
+	}
+}
+
+// TestOrderedFactorisations counts plain ordered factorisations (one kind,
+// one layout). Expected counts: the number of ordered factorisations H(n)
+// (Kalmar's function; H(12) = 8, H(36) = 26, H(p) = 1 for prime p, from
+// memory), and for n = 2^k the compositions of k, of which those with at
+// most s parts number sum_{j<s} C(k-1, j) (common practice: stars and bars).
+func TestOrderedFactorisations(t *testing.T) {
+	binomSum := func(k, s int) int64 {
+		var t, c int64 = 0, 1
+		for j := 0; j < s && j <= k-1; j++ {
+			t += c
+			c = c * int64(k-1-j) / int64(j+1)
+		}
+		return t
+	}
+	for _, c := range []struct {
+		d, stages int
+		want      int64
+	}{
+		{12, 6, 8}, {36, 8, 26}, {7, 6, 1}, {1021, 6, 1}, {1, 6, 1},
+		{4096, 6, binomSum(12, 6)}, {4096, 12, 2048}, {1 << 20, 6, binomSum(20, 6)},
+	} {
+		sp := &space{d: c.d, maxStages: c.stages, fir: true, sameLayout: func(int, int) bool { return true }}
+		if got := sp.count(); got != c.want {
+			t.Errorf("D = %d, %d stages: count %d, want %d", c.d, c.stages, got, c.want)
+		}
+		if c.want > 1e5 {
+			continue
+		}
+		var walked int64
+		seen := map[string]bool{}
+		sp.walk(func(plan []chain.StagePlan) bool {
+			walked++
+			prod := 1
+			for _, s := range plan {
+				prod *= s.Factor
+			}
+			if prod != c.d || len(plan) > c.stages {
+				t.Fatalf("D = %d: bad plan %v", c.d, plan)
+			}
+			key := fmt.Sprint(plan)
+			if seen[key] {
+				t.Fatalf("D = %d: plan %v twice", c.d, plan)
+			}
+			seen[key] = true
+			return true
+		})
+		if walked != c.want {
+			t.Errorf("D = %d: walked %d, want %d", c.d, walked, c.want)
+		}
+	}
+}
+
+func TestWalkKinds(t *testing.T) {
+	p := newParams(rxSpec(), false)
+	p.d = 24
+	sp := newSpace(&p, &Settings{MaxStages: 4})
+	var walked int64
+	orders := map[string]bool{}
+	sp.walk(func(plan []chain.StagePlan) bool {
+		walked++
+		var fs []int
+		for i, s := range plan {
+			fs = append(fs, s.Factor)
+			if s.Kind == chain.CIC && i != 0 {
+				t.Fatalf("CIC at stage %d: %v", i, plan)
+			}
+			if s.Kind == chain.HalfBand && s.Factor != 2 {
+				t.Fatalf("half-band of factor %d: %v", s.Factor, plan)
+			}
+			if s.Kind == chain.FIR && s.Variant == chain.Lowpass && s.Factor == 2 {
+				t.Fatalf("lowpass layout tried for factor 2: %v", plan)
+			}
+		}
+		orders[fmt.Sprint(fs)] = true
+		return true
+	})
+	if walked != sp.count() {
+		t.Errorf("walked %d, count %d", walked, sp.count())
+	}
+	for _, want := range []string{"[2 3 4]", "[4 3 2]", "[3 2 4]", "[2 2 2 3]", "[3 2 2 2]", "[24]"} {
+		if !orders[want] {
+			t.Errorf("factor order %s never enumerated", want)
+		}
+	}
+}
+
+// TestHerrmann checks the estimate against the values computed from the
+// published formula (Herrmann, Rabiner and Chan 1973; REFERENCES.md):
+// D(0.01, 0.001) = 2.54119, f = 11.52461, so N = D/df - f df + 1.
+func TestHerrmann(t *testing.T) {
+	for _, c := range []struct{ dp, ds, d float64 }{
+		{0.01, 0.001, 2.54119}, {0.005, 0.001, 2.76021}, {0.01, 1e-4, 3.13834},
+		{0.01, 0.01, 1.94405}, {1e-4, 1e-4, 4.60890},
+	} {
+		// At df = 1 minus at df = 1/2 isolates D: n(1)-... solve the two.
+		n1, n2 := herrmann(c.dp, c.ds, 0.1), herrmann(c.dp, c.ds, 0.05)
+		// n = D/df - f df + 1 at two df gives D = (n2 - n1 - 0.05 f) / 10 ... use f from the paper form.
+		f := 11.01217 + 0.51244*(math.Log10(math.Max(c.dp, c.ds))-math.Log10(math.Min(c.dp, c.ds)))
+		d := (n2 - n1 - f*0.05) / 10
+		if math.Abs(d-c.d) > 5e-5 {
+			t.Errorf("D(%g, %g) = %.5f, want %.5f", c.dp, c.ds, d, c.d)
+		}
+	}
+}
+
+// TestCICRejection checks the estimator's CIC rejection against Hogenauer's
+// large-R alias attenuation per order, 20 log10((1-b)/b) with b = fa over
+// the CIC output rate (computed values in REFERENCES.md: b = 1/16: 23.52 dB,
+// 1/8: 16.90 dB per order).
+func TestCICRejection(t *testing.T) {
+	for _, c := range []struct {
+		b, perOrder float64
+	}{{1.0 / 16, 23.52}, {1.0 / 8, 16.90}, {1.0 / 32, 29.83}} {
+		p := params{f0: 1e6 * 64, fk: 1e6 / 2, fa: c.b * 1e6, fp: c.b * 1e6}
+		p.fs = p.fk - p.fa
+		p.d = 128
+		for n := 1; n <= 5; n++ {
+			got := cicRejection(&p, p.f0, 64, n, 1, false)
+			want := float64(n) * c.perOrder
+			// large-R form versus R = 64, relative to the passband edge gain
+			// in Hogenauer's table but to DC here: within 0.1 dB per order.
+			edge := -20 * math.Log10(cicGain(p.fa, p.f0, 64, n, 1))
+			if math.Abs(got-edge-want) > 0.05*float64(n) {
+				t.Errorf("b = %g, N = %d: rejection %.2f dB (%.2f from the edge), want %.2f", c.b, n, got, got-edge, want)
+			}
+		}
+	}
+}
+
+func TestFrontSet(t *testing.T) {
+	rng := rand.New(rand.NewSource(1))
+	fs := make([]figs, 600)
+	for i := range fs {
+		fs[i] = figs{mpo: float64(rng.Intn(40)), bits: float64(rng.Intn(40)), lat: float64(rng.Intn(40)), margin: float64(rng.Intn(3))}
+	}
+	got := front(fs)
+	sort.Ints(got)
+	var want []int
+	for i := range fs {
+		dom := false
+		for j := range fs {
+			if dominates(&fs[j], &fs[i]) {
+				dom = true
+				break
+			}
+		}
+		if !dom {
+			want = append(want, i)
+		}
+	}
+	if !reflect.DeepEqual(got, want) {
+		t.Errorf("front %v, brute force %v", got, want)
+	}
+	var s frontSet
+	for _, i := range want {
+		s.add(fs[i], i)
+	}
+	for _, i := range want {
+		if sl := s.slack(&fs[i]); sl > 1 {
+			t.Errorf("front point %d has slack %g > 1", i, sl)
+		}
+	}
+	// A point 20% worse than a front point on every axis has slack >= 1.2.
+	q := fs[want[0]]
+	q.mpo, q.bits, q.lat = 1.2*(q.mpo+axisFloor[0])-axisFloor[0], 1.2*(q.bits+axisFloor[1])-axisFloor[1], 1.2*(q.lat+axisFloor[2])-axisFloor[2]
+	if sl := s.slack(&q); sl < 1.2-1e-12 {
+		t.Errorf("slack of a point 20%% behind = %g", sl)
+	}
+}
+
+func TestRecommend(t *testing.T) {
+	fs := []figs{
+		{mpo: 100, bits: 10000, lat: 1e-3},
+		{mpo: 112, bits: 6000, lat: 1e-3},
+		{mpo: 300, bits: 5000, lat: 0.9e-3},
+	}
+	i, why := recommend(fs, &Settings{})
+	if i != 1 {
+		t.Errorf("knee = %d, want 1 (%s)", i, why)
+	}
+	t.Log(why)
+	if want := "12% more multiplies than the cheapest chain for 40% less memory and the same latency."; !contains(why, want) {
+		t.Errorf("reason %q lacks %q", why, want)
+	}
+	i, why = recommend(fs, &Settings{Rule: WeightedCost, WeightMultiplies: 0.01, WeightLatency: 10})
+	if i != 2 {
+		t.Errorf("weighted = %d, want 2 (%s)", i, why)
+	}
+	if i, _ := recommend(nil, &Settings{}); i != -1 {
+		t.Errorf("empty front: %d", i)
+	}
+	// A CIC-only chain with no multiplies must not give NaN.
+	i, why = recommend([]figs{{mpo: 0, bits: 100, lat: 1}, {mpo: 3, bits: 50, lat: 1}}, &Settings{})
+	if i < 0 || contains(why, "NaN") || contains(why, "Inf") {
+		t.Errorf("zero multiplies: %d %q", i, why)
+	}
+}
+
+func contains(s, sub string) bool {
+	for i := 0; i+len(sub) <= len(s); i++ {
+		if s[i:i+len(sub)] == sub {
+			return true
+		}
+	}
+	return false
+}
+
+func TestRunAll(t *testing.T) {
+	out := make([]int, 1000)
+	calls := 0
+	done := runAll(context.Background(), 4, len(out), func(i int) { out[i] = i * i }, func(d, n int) {
+		calls++
+		if d != calls || n != 1000 {
+			t.Errorf("progress(%d, %d) at call %d", d, n, calls)
+		}
+	})
+	for i := range out {
+		if !done[i] || out[i] != i*i {
+			t.Fatalf("slot %d: %v %d", i, done[i], out[i])
+		}
+	}
+	ctx, cancel := context.WithCancel(context.Background())
+	done = runAll(ctx, 2, 100, func(i int) {
+		if i == 10 {
+			cancel()
+		}
+	}, nil)
+	n := 0
+	for _, d := range done {
+		if d {
+			n++
+		}
+	}
+	if n == 100 || n < 11 {
+		t.Errorf("after cancel at 10, %d of 100 ran", n)
+	}
+}
+
+// fakeDesigner stands in for chain.Design and cost.Evaluate: each stage's
+// real figures are its estimate moved by a deterministic +-8% that depends
+// only on the stage's real key (as a real design depends only on the stage's
+// requirement); a stage in 41 fails to design, and a chain in 37 misses the
+// spec as a whole.
+type fakeDesigner struct {
+	p params
+}
+
+func hashOf(v any) uint32 {
+	h := fnv.New32a()
+	fmt.Fprintf(h, "%#v", v)
+	return h.Sum32()
+}
+
+func (f fakeDesigner) design(plan []chain.StagePlan) (Candidate, string) {
+	est := newEstimator(f.p) // its own: the estimator is not shared across goroutines
+	if _, drop := est.score(plan); drop != dropNone {
+		panic("fake design of an infeasible plan")
+	}
+	var total cost.Figures
+	for _, k := range est.keys {
+		h := hashOf(k)
+		if h%41 == 0 {
+			return Candidate{}, ReasonDesignFailed
+		}
+		v := est.cache[k.stageKey]
+		w := func(s uint32) float64 { return 1 + 0.08*(float64((h>>s)%201)/100-1) }
+		st := cost.StageFigures{MultipliesPerOutput: v.f.mpo * w(0), MemoryBits: int(v.f.bits * w(8)), LatencyS: v.f.lat * w(16)}
+		total.Stages = append(total.Stages, st)
+		total.MultipliesPerOutput += st.MultipliesPerOutput
+		total.MemoryBits += st.MemoryBits
+		total.LatencyS += st.LatencyS
+	}
+	h := hashOf(plan)
+	if h%37 == 0 {
+		return Candidate{}, ReasonMissRejection
+	}
+	total.Designed = true
+	return Candidate{Plan: clonePlan(plan), Figures: total, MarginDB: float64(h%7) / 10}, ""
+}
+
+func fakeSearch(t testing.TB, p params, s Settings) *Result {
+	est := newEstimator(p)
+	r, err := search(context.Background(), p, &s, est, fakeDesigner{p})
+	if err != nil {
+		t.Fatal(err)
+	}
+	return r
+}
+
+func rxParams(d int) params {
+	spec := rxSpec()
+	spec.InputRate = spec.OutputRate * float64(d)
+	return newParams(spec, false)
+}
+
+func TestSearchFake(t *testing.T) {
+	p := rxParams(4096)
+	r := fakeSearch(t, p, Settings{})
+	est := 0
+	for _, n := range r.Dropped {
+		est += n
+	}
+	designDrops := r.Dropped[ReasonDesignFailed] + r.Dropped[ReasonMissRejection]
+	if r.Candidates != est-designDrops+r.FeasibleAll {
+		t.Errorf("candidates %d != estimate drops %d + feasible %d", r.Candidates, est-designDrops, r.FeasibleAll)
+	}
+	if len(r.Front) == 0 || r.Recommended < 0 || r.Designed == 0 {
+		t.Fatalf("empty result: %+v", r.Dropped)
+	}
+	if len(r.Feasible) > CloudSize {
+		t.Errorf("cloud of %d", len(r.Feasible))
+	}
+	for _, c := range r.Front {
+		if !c.Figures.Designed {
+			t.Errorf("estimate on the front: %v", c.Plan)
+		}
+	}
+	t.Logf("candidates %d, feasible %d, designed %d, front %d, dropped %v", r.Candidates, r.FeasibleAll, r.Designed, len(r.Front), r.Dropped)
+	t.Log(r.Reason)
+}
+
+// TestTwoTierExactFake: with design figures within +-6% of the estimates,
+// the 15% band must give the exhaustive front exactly.
+func TestTwoTierExactFake(t *testing.T) {
+	p := rxParams(120)
+	two := fakeSearch(t, p, Settings{})
+	all := fakeSearch(t, p, Settings{Exhaustive: true})
+	if !reflect.DeepEqual(two.Front, all.Front) {
+		t.Errorf("two-tier front (%d, from %d designs) differs from exhaustive (%d, from %d)", len(two.Front), two.Designed, len(all.Front), all.Designed)
+	}
+	t.Logf("front %d chains; designs %d two-tier vs %d exhaustive", len(two.Front), two.Designed, all.Designed)
+}
+
+func TestSearchDeterministicJobs(t *testing.T) {
+	p := rxParams(960)
+	a := fakeSearch(t, p, Settings{Jobs: 1})
+	b := fakeSearch(t, p, Settings{Jobs: 3})
+	if fmt.Sprintf("%#v", a) != fmt.Sprintf("%#v", b) {
+		t.Error("results differ between 1 and 3 jobs")
+	}
+}
+
+func TestSearchRefuses(t *testing.T) {
+	p := rxParams(1 << 20)
+	est := newEstimator(p)
+	_, err := search(context.Background(), p, &Settings{MaxStages: 20}, est, fakeDesigner{p})
+	if err == nil {
+		t.Fatal("2^20 in 20 stages accepted")
+	}
+	t.Log(err)
+}
+
+func TestSearchCancelled(t *testing.T) {
+	p := rxParams(4096)
+	est := newEstimator(p)
+	ctx, cancel := context.WithCancel(context.Background())
+	cancel()
+	r, err := search(ctx, p, &Settings{}, est, fakeDesigner{p})
+	if err != nil || !r.Partial {
+		t.Fatalf("cancelled search: %v, partial %v", err, r != nil && r.Partial)
+	}
+}
+
+func TestPrimeOneStage(t *testing.T) {
+	p := rxParams(7)
+	r := fakeSearch(t, p, Settings{})
+	for _, c := range r.Front {
+		if len(c.Plan) != 1 || c.Plan[0].Factor != 7 {
+			t.Errorf("prime D gave %v", c.Plan)
+		}
+	}
+	if len(r.Front) == 0 {
+		t.Error("no front for D = 7")
+	}
+}

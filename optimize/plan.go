@@ -1,0 +1,536 @@
+package optimize
+
+import (
+	"context"
+	"fmt"
+	"math"
+	"runtime"
+	"sort"
+
+	"stepdown/chain"
+	"stepdown/cost"
+)
+
+// MaxCandidates is the largest search space Plan scores. A larger one is
+// refused with an error before any work, so that Plan finishes or refuses
+// within its time budget (about 30 s on two cores for D up to 2^20).
+const MaxCandidates = 1 << 24
+
+// Tolerances on a designed chain's measured figures before it counts as
+// missing the spec: the cascade's other stages may lift an alias band by
+// their passband ripple, which the per-stage targets do not see.
+const (
+	rejectionSlackDB = 0.01
+	rippleSlackDB    = 1e-4
+)
+
+// Plan searches every split of the spec's ratio.
+func Plan(ctx context.Context, spec chain.Spec, s Settings) (*Result, error) {
+	ns, err := spec.Normalize()
+	if err != nil {
+		return nil, err
+	}
+	if err := s.check(); err != nil {
+		return nil, err
+	}
+	p := newParams(ns, s.Cost.NoSymmetry)
+	p.d = ns.Decimation()
+	return search(ctx, p, &s, newEstimator(p), realDesigner{spec: ns, s: &s})
+}
+
+func (s *Settings) check() error {
+	if s.MaxStages < 0 {
+		return fmt.Errorf("optimize: MaxStages = %d: must not be negative", s.MaxStages)
+	}
+	for _, k := range s.Kinds {
+		if k != chain.CIC && k != chain.HalfBand && k != chain.FIR {
+			return fmt.Errorf("optimize: Kinds contains %d: must be chain.CIC, chain.HalfBand or chain.FIR", int(k))
+		}
+	}
+	for _, n := range s.CICOrders {
+		if n < 1 || n > 12 {
+			return fmt.Errorf("optimize: CICOrders contains %d: must be 1 to 12", n)
+		}
+	}
+	for _, m := range s.CICDelays {
+		if m < 1 || m > 8 {
+			return fmt.Errorf("optimize: CICDelays contains %d: must be 1 to 8", m)
+		}
+	}
+	for _, w := range []struct {
+		name string
+		v    float64
+	}{{"WeightMultiplies", s.WeightMultiplies}, {"WeightMemory", s.WeightMemory}, {"WeightLatency", s.WeightLatency}, {"Tolerance", s.Tolerance}} {
+		if w.v < 0 || math.IsNaN(w.v) || math.IsInf(w.v, 0) {
+			return fmt.Errorf("optimize: %s = %g: must be finite and not negative", w.name, w.v)
+		}
+	}
+	if s.MaxDesigns < 0 {
+		return fmt.Errorf("optimize: MaxDesigns = %d: must not be negative", s.MaxDesigns)
+	}
+	if s.Rule != Knee && s.Rule != WeightedCost {
+		return fmt.Errorf("optimize: Rule = %d: must be Knee or WeightedCost", int(s.Rule))
+	}
+	return nil
+}
+
+// newSpace fills in the settings' defaults for ratio d.
+func newSpace(p *params, s *Settings) *space {
+	sp := &space{d: p.d, maxStages: s.MaxStages, orders: s.CICOrders, delays: s.CICDelays}
+	if sp.maxStages == 0 {
+		sp.maxStages = 6
+	}
+	if sp.orders == nil {
+		sp.orders = []int{1, 2, 3, 4, 5, 6, 7}
+	}
+	if sp.delays == nil {
+		sp.delays = []int{1, 2}
+	}
+	if s.Kinds == nil {
+		sp.cic, sp.halfBand, sp.fir = true, true, true
+	}
+	for _, k := range s.Kinds {
+		switch k {
+		case chain.CIC:
+			sp.cic = true
+		case chain.HalfBand:
+			sp.halfBand = true
+		case chain.FIR:
+			sp.fir = true
+		}
+	}
+	// The multiband layout's alias bands [k Fi - fa, k Fi + fa] cover the
+	// whole of [Fi - fa, F(i-1)/2], as the lowpass one does, when the factor
+	// is 2 or when 2 fa >= Fi.
+	sp.sameLayout = func(prefix, f int) bool {
+		out := p.f0 / float64(prefix*f)
+		return f == 2 || 2*p.fa >= out
+	}
+	return sp
+}
+
+// designer designs one candidate for real. It returns the candidate, or a
+// non-empty reason to drop it.
+type designer interface {
+	design(plan []chain.StagePlan) (Candidate, string)
+}
+
+type realDesigner struct {
+	spec chain.Spec
+	s    *Settings
+}
+
+func (r realDesigner) design(plan []chain.StagePlan) (Candidate, string) {
+	c, err := chain.Design(r.spec, plan, r.s.Chain)
+	if err != nil {
+		return Candidate{}, ReasonDesignFailed
+	}
+	f, err := cost.Evaluate(r.spec, c, r.s.Cost)
+	if err != nil {
+		return Candidate{}, ReasonEvaluateFailed
+	}
+	a := f.Analysis
+	margin := a.AliasRejectionDB - r.spec.RejectionDB
+	if margin < -rejectionSlackDB || math.IsNaN(margin) {
+		return Candidate{}, ReasonMissRejection
+	}
+	if a.PassbandRippleDB > r.spec.RippleDB+rippleSlackDB || math.IsNaN(a.PassbandRippleDB) {
+		return Candidate{}, ReasonMissRipple
+	}
+	return Candidate{Plan: plan, Chain: c, Figures: f, MarginDB: margin}, ""
+}
+
+// scored is a candidate kept from the estimate tier.
+type scored struct {
+	plan  []chain.StagePlan
+	f     figs
+	slack float64
+}
+
+// maxBand bounds the estimate tier's band (the members nearest the front are
+// kept), which bounds memory for the largest ratios.
+const maxBand = 1 << 17
+
+// outcome is what one real design gave.
+type outcome struct {
+	c      Candidate
+	reason string
+}
+
+// search is Plan after validation, with the estimate and design tiers
+// passed in so that tests can use fake figures.
+func search(ctx context.Context, p params, s *Settings, est *estimator, des designer) (*Result, error) {
+	sp := newSpace(&p, s)
+	if p.d < 1 {
+		return nil, fmt.Errorf("optimize: decimation %d: must be at least 1", p.d)
+	}
+	if !sp.cic && !sp.halfBand && !sp.fir {
+		return nil, fmt.Errorf("optimize: Kinds is empty: at least one stage kind is needed")
+	}
+	n := sp.count()
+	if n > MaxCandidates {
+		return nil, fmt.Errorf("optimize: decimation %d within %d stages gives %s candidates, more than the %d this search scores; lower MaxStages or narrow Kinds, CICOrders or CICDelays",
+			p.d, sp.maxStages, countString(n), MaxCandidates)
+	}
+	res := &Result{Dropped: map[string]int{}, Recommended: -1}
+	tol := s.Tolerance
+	if tol == 0 {
+		tol = 0.15
+	}
+	jobs := s.Jobs
+	if jobs == 0 {
+		jobs = runtime.GOMAXPROCS(0)
+	}
+
+	// Pass 1: score everything, count drops, keep the estimated front.
+	var fr frontSet
+	var drops [len(dropNames)]int
+	feasible := 0
+	cancelled := false
+	sp.walk(func(plan []chain.StagePlan) bool {
+		res.Candidates++
+		if res.Candidates&4095 == 0 && ctx.Err() != nil {
+			cancelled = true
+			return false
+		}
+		f, drop := est.score(plan)
+		if drop != dropNone {
+			drops[drop]++
+			return true
+		}
+		fr.add(f, feasible)
+		feasible++
+		return true
+	})
+	for c, k := range drops {
+		if k > 0 {
+			res.Dropped[dropNames[c]] = k
+		}
+	}
+	res.FeasibleAll = feasible
+	if cancelled {
+		res.Partial = true
+		return res, nil
+	}
+
+	// Pass 2: the same walk, now that the front is known: collect the band
+	// near the front (or everything, when exhaustive) and the thinned cloud.
+	var band []scored
+	byBand := func(i, j int) bool {
+		a, b := &band[i], &band[j]
+		if a.slack != b.slack {
+			return a.slack < b.slack
+		}
+		return comparePlans(a.plan, b.plan) < 0
+	}
+	idx := 0
+	sp.walk(func(plan []chain.StagePlan) bool {
+		if idx&4095 == 0 && ctx.Err() != nil {
+			cancelled = true
+			return false
+		}
+		f, drop := est.score(plan)
+		if drop != dropNone {
+			return true
+		}
+		if keepInCloud(idx, feasible) {
+			res.Feasible = append(res.Feasible, estimatedCandidate(plan, f, &p))
+		}
+		idx++
+		if s.Exhaustive {
+			band = append(band, scored{plan: clonePlan(plan), f: f})
+			return true
+		}
+		if sl := fr.slack(&f); sl < 1+tol {
+			band = append(band, scored{plan: clonePlan(plan), f: f, slack: sl})
+			if len(band) >= 2*maxBand {
+				sort.Slice(band, byBand)
+				band = band[:maxBand]
+			}
+		}
+		return true
+	})
+	if cancelled {
+		res.Partial = true
+		return res, nil
+	}
+	sort.Slice(band, byBand)
+	if len(band) > maxBand {
+		band = band[:maxBand]
+	}
+
+	memo := map[string]outcome{}
+	var order []string // memo keys in the order designed
+	total := 0
+	// designAll designs the plans not yet in memo, in parallel, each into
+	// its own slot, and reports whether all of them ran.
+	designAll := func(plans [][]chain.StagePlan) bool {
+		var todo [][]chain.StagePlan
+		seen := map[string]bool{}
+		for _, pl := range plans {
+			k := planKey(pl)
+			if _, ok := memo[k]; ok || seen[k] {
+				continue
+			}
+			seen[k] = true
+			todo = append(todo, pl)
+		}
+		outs := make([]outcome, len(todo))
+		base := total
+		total += len(todo)
+		var prog func(int, int)
+		if s.Progress != nil {
+			prog = func(d, _ int) { s.Progress(base+d, total) }
+		}
+		done := runAll(ctx, jobs, len(todo), func(i int) {
+			c, why := des.design(todo[i])
+			outs[i] = outcome{c, why}
+		}, prog)
+		all := true
+		for i, ok := range done {
+			if !ok {
+				all = false
+				continue
+			}
+			k := planKey(todo[i])
+			memo[k] = outs[i]
+			order = append(order, k)
+			res.Designed++
+			if outs[i].reason != "" {
+				res.Dropped[outs[i].reason]++
+			}
+		}
+		return all
+	}
+
+	if s.Exhaustive {
+		plans := make([][]chain.StagePlan, len(band))
+		for i := range band {
+			plans[i] = band[i].plan
+		}
+		if !designAll(plans) {
+			res.Partial = true
+		}
+	} else if !learnAndDesign(est, band, memo, designAll) {
+		res.Partial = true
+	}
+
+	var designed []Candidate
+	for _, k := range order {
+		if o := memo[k]; o.reason == "" {
+			designed = append(designed, o.c)
+		}
+	}
+	res.Front = designedFront(designed)
+	fs := make([]figs, len(res.Front))
+	for i := range res.Front {
+		fs[i] = candFigs(&res.Front[i])
+	}
+	res.Recommended, res.Reason = recommend(fs, s)
+	if len(res.Front) == 0 && !res.Partial {
+		res.Reason = "No chain met the spec; Dropped says why each candidate was set aside."
+	}
+	return res, nil
+}
+
+// maxRounds bounds the attempts to learn a stage's real figures: a stage
+// whose chains fail to design this many times is given up, and so are the
+// candidates that contain it.
+const maxRounds = 4
+
+// learnAndDesign is the design tier. A stage's real design and price
+// depend only on its realKey, so designing one chain that contains a stage
+// teaches its real figures for every candidate that contains it. Rounds of
+// designs first teach every stage of the band; the band is then priced
+// exactly from what was learnt, and the front of that pricing is designed
+// for real (most of it already was), dropping and replacing members whose
+// design misses the spec until the front stands.
+func learnAndDesign(est *estimator, band []scored, memo map[string]outcome, designAll func([][]chain.StagePlan) bool) bool {
+	learnt := map[realKey]figs{}
+	tries := map[realKey]int{}
+	for round := 0; round < maxRounds; round++ {
+		var reps [][]chain.StagePlan
+		claimed := map[realKey]bool{}
+		for i := range band {
+			pl := band[i].plan
+			if _, ok := memo[planKey(pl)]; ok {
+				continue
+			}
+			est.keysOf(pl)
+			want := false
+			for _, k := range est.keys {
+				if _, ok := learnt[k]; !ok && !claimed[k] && tries[k] <= round {
+					want = true
+				}
+			}
+			if !want {
+				continue
+			}
+			for _, k := range est.keys {
+				claimed[k] = true
+			}
+			reps = append(reps, pl)
+		}
+		if len(reps) == 0 {
+			break
+		}
+		ok := designAll(reps)
+		for _, pl := range reps {
+			o, done := memo[planKey(pl)]
+			if !done {
+				continue
+			}
+			est.keysOf(pl)
+			st := o.c.Figures.Stages
+			if o.reason != "" || len(st) != len(pl) {
+				for _, k := range est.keys {
+					if _, ok := learnt[k]; !ok {
+						tries[k]++
+					}
+				}
+				continue
+			}
+			for i, k := range est.keys {
+				learnt[k] = figs{mpo: st[i].MultipliesPerOutput, bits: float64(st[i].MemoryBits), lat: st[i].LatencyS}
+			}
+		}
+		if !ok {
+			return false
+		}
+	}
+
+	// Exact pricing of the band from the learnt stages.
+	exact := make([]figs, 0, len(band))
+	plans := make([][]chain.StagePlan, 0, len(band))
+	for i := range band {
+		pl := band[i].plan
+		est.keysOf(pl)
+		var f figs
+		known := true
+		for _, k := range est.keys {
+			g, ok := learnt[k]
+			if !ok {
+				known = false
+				break
+			}
+			f.mpo += g.mpo
+			f.bits += g.bits
+			f.lat += g.lat
+		}
+		if !known {
+			continue
+		}
+		exact = append(exact, f)
+		plans = append(plans, pl)
+	}
+	gone := make([]bool, len(plans))
+	for {
+		var fr frontSet
+		for i := range exact {
+			if !gone[i] {
+				fr.add(exact[i], i)
+			}
+		}
+		var need [][]chain.StagePlan
+		for _, i := range fr.id {
+			need = append(need, plans[i])
+		}
+		if !designAll(need) {
+			return false
+		}
+		changed := false
+		for _, i := range fr.id {
+			if memo[planKey(plans[i])].reason != "" {
+				gone[i] = true
+				changed = true
+			}
+		}
+		if !changed {
+			return true
+		}
+	}
+}
+
+// planKey is a compact map key for a plan.
+func planKey(plan []chain.StagePlan) string {
+	b := make([]byte, 0, 8*len(plan))
+	for _, st := range plan {
+		b = append(b, byte(st.Factor), byte(st.Factor>>8), byte(st.Factor>>16), byte(st.Factor>>24),
+			byte(st.Kind), byte(st.Variant), byte(st.CICOrder), byte(st.CICDelay))
+	}
+	return string(b)
+}
+
+func candFigs(c *Candidate) figs {
+	return figs{
+		mpo:    c.Figures.MultipliesPerOutput,
+		bits:   float64(c.Figures.MemoryBits),
+		lat:    c.Figures.LatencyS,
+		margin: c.MarginDB,
+	}
+}
+
+// designedFront returns the non-dominated designed candidates sorted by
+// multiplies, then memory, latency, larger margin and the plan order.
+func designedFront(cs []Candidate) []Candidate {
+	fs := make([]figs, len(cs))
+	for i := range cs {
+		fs[i] = candFigs(&cs[i])
+	}
+	ids := front(fs)
+	out := make([]Candidate, len(ids))
+	for i, id := range ids {
+		out[i] = cs[id]
+	}
+	sort.Slice(out, func(i, j int) bool {
+		a, b := candFigs(&out[i]), candFigs(&out[j])
+		switch {
+		case a.mpo != b.mpo:
+			return a.mpo < b.mpo
+		case a.bits != b.bits:
+			return a.bits < b.bits
+		case a.lat != b.lat:
+			return a.lat < b.lat
+		case a.margin != b.margin:
+			return a.margin > b.margin
+		}
+		return comparePlans(out[i].Plan, out[j].Plan) < 0
+	})
+	return out
+}
+
+// keepInCloud thins the cloud of n feasible candidates to CloudSize by
+// keeping the i-th exactly when floor((i+1) C / n) > floor(i C / n): evenly
+// spread over the enumeration order, the same set every run.
+func keepInCloud(i, n int) bool {
+	if n <= CloudSize {
+		return true
+	}
+	return (int64(i)+1)*CloudSize/int64(n) > int64(i)*CloudSize/int64(n)
+}
+
+func estimatedCandidate(plan []chain.StagePlan, f figs, p *params) Candidate {
+	return Candidate{
+		Plan: clonePlan(plan),
+		Figures: cost.Figures{
+			MultipliesPerOutput: f.mpo,
+			MemoryWords:         int(f.words),
+			MemoryBits:          int(f.bits),
+			LatencyS:            f.lat,
+			LatencySamples:      f.lat * p.fk,
+			Analysis:            chain.Analysis{AliasRejectionDB: p.rejDB + f.margin},
+		},
+		MarginDB: f.margin,
+	}
+}
+
+func clonePlan(plan []chain.StagePlan) []chain.StagePlan {
+	return append([]chain.StagePlan(nil), plan...)
+}
+
+func countString(n int64) string {
+	if n >= satMax {
+		return "more than 4.6e18"
+	}
+	return fmt.Sprint(n)
+}

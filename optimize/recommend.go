@@ -1,0 +1,108 @@
+package optimize
+
+import (
+	"fmt"
+	"math"
+)
+
+// normalised returns each front point's figures divided by the front's best
+// on that axis, with the axis floors added to both so a zero best stays
+// finite. Every value is at least 1.
+func normalised(fs []figs) [][3]float64 {
+	best := [3]float64{math.Inf(1), math.Inf(1), math.Inf(1)}
+	for i := range fs {
+		x := fs[i].axes()
+		for j := range x {
+			best[j] = math.Min(best[j], x[j])
+		}
+	}
+	out := make([][3]float64, len(fs))
+	for i := range fs {
+		x := fs[i].axes()
+		for j := range x {
+			out[i][j] = (x[j] + axisFloor[j]) / (best[j] + axisFloor[j])
+		}
+	}
+	return out
+}
+
+// recommend picks one point of a front sorted by multiplies and says why.
+// It returns -1 and an empty reason for an empty front.
+func recommend(fs []figs, s *Settings) (int, string) {
+	if len(fs) == 0 {
+		return -1, ""
+	}
+	if len(fs) == 1 {
+		return 0, "It is the only chain on the front, so it is the best on multiplies, memory and latency at once."
+	}
+	u := normalised(fs)
+	switch s.Rule {
+	case WeightedCost:
+		w := s.weights()
+		best, second := -1, -1
+		cost := make([]float64, len(fs))
+		for i := range u {
+			cost[i] = w[0]*u[i][0] + w[1]*u[i][1] + w[2]*u[i][2]
+			switch {
+			case best < 0 || cost[i] < cost[best]:
+				best, second = i, best
+			case second < 0 || cost[i] < cost[second]:
+				second = i
+			}
+		}
+		return best, fmt.Sprintf("Chosen for the least weighted cost (weights %g, %g and %g on multiplies, memory bits and latency, each relative to the front's best): %.3f against %.3f for the next chain.",
+			w[0], w[1], w[2], cost[best], cost[second])
+	default:
+		best := 0
+		dist := make([]float64, len(fs))
+		for i := range u {
+			dist[i] = math.Hypot(math.Hypot(u[i][0]-1, u[i][1]-1), u[i][2]-1)
+			if dist[i] < dist[best] {
+				best = i
+			}
+		}
+		return best, kneeReason(fs, u, best)
+	}
+}
+
+func (s *Settings) weights() [3]float64 {
+	w := [3]float64{s.WeightMultiplies, s.WeightMemory, s.WeightLatency}
+	for i := range w {
+		if w[i] == 0 {
+			w[i] = 1
+		}
+	}
+	return w
+}
+
+// kneeReason compares the knee with the chain of fewest multiplies (the
+// front's first point).
+func kneeReason(fs []figs, u [][3]float64, k int) string {
+	const lead = "Chosen as the knee of the front, the chain nearest the ideal of the fewest multiplies, least memory and least latency at once"
+	if k == 0 {
+		return fmt.Sprintf("%s: it has the fewest multiplies per output and is within %.0f%% of the least memory and %.0f%% of the least latency on the front.",
+			lead, 100*(u[0][1]-1), 100*(u[0][2]-1))
+	}
+	c, x := fs[0], fs[k]
+	return fmt.Sprintf("%s: %s multiplies than the cheapest chain for %s memory and %s latency.",
+		lead, change(x.mpo, c.mpo, "more", "fewer"), change(x.bits, c.bits, "more", "less"), change(x.lat, c.lat, "more", "less"))
+}
+
+// change says how a compares with b in percent.
+func change(a, b float64, more, less string) string {
+	if b <= 0 {
+		if a <= 0 {
+			return "the same"
+		}
+		return "some " + more
+	}
+	r := a/b - 1
+	switch {
+	case math.Abs(r) < 0.005:
+		return "the same"
+	case r > 0:
+		return fmt.Sprintf("%.0f%% %s", 100*r, more)
+	default:
+		return fmt.Sprintf("%.0f%% %s", -100*r, less)
+	}
+}

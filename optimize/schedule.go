@@ -1,0 +1,63 @@
+package optimize
+
+import (
+	"context"
+	"sync"
+	"sync/atomic"
+)
+
+// runAll calls work(i) for i in [0, n) on jobs goroutines. Each call writes
+// only its own slot of the caller's result slices, so the outcome does not
+// depend on the interleaving. Before starting an index a worker checks ctx;
+// after cancellation no new index starts and runAll returns once the running
+// ones finish. done[i] reports whether work(i) ran. progress, when not nil,
+// is called from one goroutine at a time with the number of finished calls.
+func runAll(ctx context.Context, jobs, n int, work func(i int), progress func(done, total int)) (done []bool) {
+	done = make([]bool, n)
+	if n == 0 {
+		return done
+	}
+	if jobs < 1 {
+		jobs = 1
+	}
+	if jobs > n {
+		jobs = n
+	}
+	var next atomic.Int64
+	finished := make(chan struct{}, n)
+	var wg sync.WaitGroup
+	for w := 0; w < jobs; w++ {
+		wg.Add(1)
+		go func() {
+			defer wg.Done()
+			for {
+				if ctx.Err() != nil {
+					return
+				}
+				i := int(next.Add(1) - 1)
+				if i >= n {
+					return
+				}
+				work(i)
+				done[i] = true
+				finished <- struct{}{}
+			}
+		}()
+	}
+	var pg sync.WaitGroup
+	pg.Add(1)
+	go func() {
+		defer pg.Done()
+		count := 0
+		for range finished {
+			count++
+			if progress != nil {
+				progress(count, n)
+			}
+		}
+	}()
+	wg.Wait()
+	close(finished)
+	pg.Wait()
+	return done
+}
