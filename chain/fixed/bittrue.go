@@ -34,11 +34,20 @@ type Signal struct {
 // BitTrueResult compares the integer chain with the float chain.
 type BitTrueResult struct {
 	// SNRDB is 10 log10 of the float chain's output power over the power of
-	// (integer output - float output), both on the same test signal, over the
-	// measurement window. The float chain runs on the unquantised signal with
-	// the unquantised taps, so the error holds the ADC word, the coefficient
-	// quantisation and every rounding point of the data path.
+	// the error (integer output - float output) over the measurement window,
+	// less the error's mean and its component at each test tone. The float
+	// chain runs on the unquantised signal with the unquantised taps, so the
+	// error holds the ADC word and every rounding and truncation point of
+	// the data path; the coefficients' gain error at the tones is left out
+	// (it is passband ripple, judged on the quantised response) and reported
+	// in MatchDB.
 	SNRDB float64
+	// MatchDB is the same ratio with nothing left out: how closely the
+	// integer chain tracks the float chain, coefficient gain error included.
+	MatchDB float64
+	// OutputOffset is the error's mean in output LSBs: the DC offset of the
+	// CIC's truncation points (SNR conventionally leaves out DC).
+	OutputOffset float64
 	// ENOB = (SNRDB - 1.76) / 6.02 (common practice). It is the conventional
 	// figure when the test signal is one full-scale sine; a tone backed off by
 	// L dB lowers it by L/6.02.
@@ -141,15 +150,34 @@ func BitTrue(c Cascade, w *Widths, sig Signal) (BitTrueResult, error) {
 
 	// Run 1: the wanted tones plus noise.
 	x := make([]float64, nin)
+	var nus []float64
 	for _, t := range sig.Tones {
 		m := math.Round(t.Freq / fk * float64(nm))
+		nus = append(nus, m/float64(nm))
 		addTone(x, m*fk/float64(nm), math.Pow(10, t.Level/20), 2*math.Pi*rng.Float64(), c.InputRate)
 	}
 	addNoise(x, noise, rng)
 	yi, yf, xq, clipped := runBoth(c, w, x)
 	res.Clipped = clipped
 	res.InputSNRDB = snrDB(x, xq)
-	res.SNRDB = snrDB(yf[skip:skip+nm], yi[skip:skip+nm])
+	ref, e := yf[skip:skip+nm], make([]float64, nm)
+	for n := range e {
+		e[n] = yi[skip+n] - ref[n]
+	}
+	res.MatchDB = ratioDB(power(ref), power(e))
+	var mean float64
+	for _, v := range e {
+		mean += v
+	}
+	mean /= float64(nm)
+	for n := range e {
+		e[n] -= mean
+	}
+	res.OutputOffset = math.Ldexp(mean, w.OutputBits-1)
+	for _, nu := range nus {
+		removeTone(e, nu)
+	}
+	res.SNRDB = ratioDB(power(ref), power(e))
 	res.ENOB = (res.SNRDB - 1.76) / 6.02
 
 	// Run 2: a tone at the worst alias of the quantised cascade.
@@ -208,6 +236,45 @@ func snrDB(ref, got []float64) float64 {
 	return math.Max(-300, math.Min(300, 10*math.Log10(ps/pe)))
 }
 
+func power(x []float64) float64 {
+	var p float64
+	for _, v := range x {
+		p += v * v
+	}
+	return p / float64(len(x))
+}
+
+// ratioDB is 10 log10(ps/pe), bounded to [-300, 300].
+func ratioDB(ps, pe float64) float64 {
+	if pe == 0 {
+		return 300
+	}
+	if ps == 0 {
+		return -300
+	}
+	return math.Max(-300, math.Min(300, 10*math.Log10(ps/pe)))
+}
+
+// removeTone subtracts from e its least-squares sinusoid at nu cycles per
+// sample (a whole number of cycles over len(e)).
+func removeTone(e []float64, nu float64) {
+	var re, im float64
+	for n, v := range e {
+		s, c := math.Sincos(2 * math.Pi * nu * float64(n))
+		re += v * c
+		im += v * s
+	}
+	k := 2 / float64(len(e))
+	if nu == 0 || nu == 0.5 {
+		k = 1 / float64(len(e))
+	}
+	re, im = re*k, im*k
+	for n := range e {
+		s, c := math.Sincos(2 * math.Pi * nu * float64(n))
+		e[n] -= re*c + im*s
+	}
+}
+
 func addTone(x []float64, f, a, phase, rate float64) {
 	w := 2 * math.Pi * f / rate
 	for n := range x {
@@ -258,17 +325,10 @@ func stageLen(st Stage) int {
 // input and the number of clipped input samples.
 func runBoth(c Cascade, w *Widths, x []float64) (yi, yf, xq []float64, clipped int) {
 	b := w.InputBits
-	lim := int64(1)<<(b-1) - 1
 	xi := make([]int64, len(x))
+	clipped = ADC(xi, x, b)
 	xq = make([]float64, len(x))
-	for n, v := range x {
-		q := int64(math.Round(math.Ldexp(v, b-1)))
-		if q > lim {
-			q, clipped = lim, clipped+1
-		} else if q < -lim-1 {
-			q, clipped = -lim-1, clipped+1
-		}
-		xi[n] = q
+	for n, q := range xi {
 		xq[n] = math.Ldexp(float64(q), -(b - 1))
 	}
 	cur := xi
@@ -289,6 +349,30 @@ func runBoth(c Cascade, w *Widths, x []float64) (yi, yf, xq []float64, clipped i
 		yi[n] = math.Ldexp(float64(v), -(ob - 1))
 	}
 	return yi, fcur, xq, clipped
+}
+
+// ADC quantises x (fractions of full scale) to bits-bit two's-complement
+// codes in dst: code = round(x * 2^(bits-1)) (halves away from zero),
+// saturated to [-2^(bits-1), 2^(bits-1)-1]. It returns how many samples
+// saturated. dst must be at least as long as x; bits must lie in [2, 62].
+func ADC(dst []int64, x []float64, bits int) int {
+	if bits < 2 || bits > 62 || len(dst) < len(x) {
+		panic("fixed: ADC with a short dst or bits outside [2, 62]")
+	}
+	lim := int64(1)<<(bits-1) - 1
+	clipped := 0
+	for n, v := range x {
+		s := math.Round(math.Ldexp(v, bits-1))
+		switch {
+		case s > float64(lim):
+			dst[n], clipped = lim, clipped+1
+		case s < float64(-lim-1):
+			dst[n], clipped = -lim-1, clipped+1
+		default:
+			dst[n] = int64(s)
+		}
+	}
+	return clipped
 }
 
 // wrap reduces v to a w-bit two's-complement value.

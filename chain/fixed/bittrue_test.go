@@ -1,0 +1,166 @@
+package fixed
+
+import (
+	"math"
+	"testing"
+
+	"stepdown/chain/remez"
+)
+
+// testCascade is an invented front end: 12.8 MHz in, CIC N=4 R=8, a
+// half-band, an FIR by 2, 400 kHz out, 50 kHz passband. Taps are hand-made
+// (Kaiser windows) so that the test does not depend on the remez engine.
+func testCascade() Cascade {
+	hb := kaiserHalfBand(5, 8)
+	fir := kaiserLowpass(41, 200e3, 800e3, 9)
+	return Cascade{InputRate: 12.8e6, Passband: 50e3, Stages: []Stage{
+		{CIC: true, N: 4, M: 1, R: 8},
+		{R: 2, Taps: hb, HalfBand: true, Bands: []remez.Band{
+			{Lo: 0, Hi: 50e3, Gain: 1, MaxError: 1e-3}, {Lo: 750e3, Hi: 800e3, MaxError: 1e-4}}},
+		{R: 2, Taps: fir, Bands: lowpassBands(50e3, 350e3, 800e3, 1e-3, 1e-4)},
+	}}
+}
+
+func TestBitTrueAliasAgreesWithResponse(t *testing.T) {
+	// Issue 6: the alias level measured bit-true must agree with the
+	// frequency-domain rejection (DESIGN §7, on the quantised coefficients)
+	// within 1 dB where quantisation noise is below the alias level.
+	c := testCascade()
+	for _, tc := range []struct {
+		w     Words
+		level float64
+		seed  uint64
+	}{
+		{Words{InputBits: 16, OutputBits: 24}, -1, 1},
+		{Words{InputBits: 14, OutputBits: 20, DataBits: 22}, -6, 2},
+		{Words{InputBits: 16, OutputBits: 18, CoefBits: 12}, -1, 3},
+	} {
+		w, err := Plan(c, tc.w, Settings{})
+		if err != nil {
+			t.Fatal(err)
+		}
+		r, err := BitTrue(c, w, Signal{AliasLevel: tc.level, Seed: tc.seed})
+		if err != nil {
+			t.Fatal(err)
+		}
+		t.Logf("%+v: alias at %.0f Hz: bit-true %.2f dB, response %.2f dB (worst %.2f), float run %.2f, noise %.1f; SNR %.1f dB",
+			tc.w, r.AliasHz, r.AliasRejectionDB, r.AliasResponseDB, r.WorstAliasResponseDB, r.AliasFloatRunDB, r.AliasNoiseDB, r.SNRDB)
+		if !r.AliasValid {
+			t.Errorf("%+v: quantisation noise %.1f dB not below the alias %.1f dB", tc.w, r.AliasNoiseDB, r.AliasRejectionDB)
+			continue
+		}
+		if d := math.Abs(r.AliasRejectionDB - r.AliasResponseDB); d > 1 {
+			t.Errorf("%+v: bit-true alias %.2f dB vs response %.2f dB: differ by %.2f > 1 dB", tc.w, r.AliasRejectionDB, r.AliasResponseDB, d)
+		}
+		if d := math.Abs(r.AliasResponseDB - r.WorstAliasResponseDB); d > 1 {
+			t.Errorf("%+v: snapping the alias tone moved the response by %.2f dB", tc.w, d)
+		}
+	}
+}
+
+// noiseGain returns sum h^2.
+func noiseGain(h []float64) float64 {
+	s := 0.0
+	for _, v := range h {
+		s += v * v
+	}
+	return s
+}
+
+// cascadeTaps returns the equivalent single-rate impulse response of stages
+// [from, len) by the noble identities: H_from(z) H_{from+1}(z^R_from) ...
+func cascadeTaps(c Cascade, w *Widths, from int, quantised bool) []float64 {
+	h := []float64{1}
+	up := 1
+	for i := from; i < len(c.Stages); i++ {
+		st := c.Stages[i]
+		var g []float64
+		switch {
+		case st.CIC:
+			g = cicTaps(st.N, st.R*st.M, math.Ldexp(1, -(w.Stages[i].Pruning.FullBits-w.Stages[i].Pruning.InputBits)))
+		case quantised:
+			g = w.Stages[i].Coefficients.Float()
+		default:
+			g = st.Taps
+		}
+		out := make([]float64, len(h)+(len(g)-1)*up)
+		for a, x := range h {
+			for b, y := range g {
+				out[a+b*up] += x * y
+			}
+		}
+		h = out
+		up *= st.R
+	}
+	return h
+}
+
+func TestBitTrueSNRPrediction(t *testing.T) {
+	// Expected output error power, each rounding or truncation point adding
+	// q^2/12 (common practice) times its noise gain to the output: the ADC
+	// word, Hogenauer's CIC truncations (variance 2^(2 B_j)/12 times his F_j^2,
+	// Hogenauer 1981), each FIR output rounding, plus the tone's error from
+	// the quantised coefficients (in MatchDB only). The measured bit-true SNR
+	// must be within 1.5 dB (the white-noise model of truncation is approximate).
+	c := testCascade()
+	for _, words := range []Words{
+		{InputBits: 12, OutputBits: 24},               // ADC word dominates
+		{InputBits: 18, OutputBits: 14, DataBits: 20}, // final rounding dominates
+		{InputBits: 18, OutputBits: 24, DataBits: 14}, // CIC pruning and inter-stage rounding
+		{InputBits: 16, OutputBits: 24, CoefBits: 10}, // coarse coefficients
+	} {
+		w, err := Plan(c, words, Settings{})
+		if err != nil {
+			t.Fatal(err)
+		}
+		tone := Tone{Freq: 21e3, Level: -3}
+		sig := Signal{Tones: []Tone{tone}, NoiseDBFS: -70}
+		r, err := BitTrue(c, w, sig)
+		if err != nil {
+			t.Fatal(err)
+		}
+		fk := 400e3
+		ftone := math.Round(tone.Freq/fk*float64(r.Samples)) * fk / float64(r.Samples)
+		a := math.Pow(10, tone.Level/20)
+		sigma := math.Pow(10, sig.NoiseDBFS/20)
+		hf := cascadeTaps(c, w, 0, false)
+		pSig := a*a/2*math.Pow(magnitude(hf, ftone, c.InputRate), 2) + sigma*sigma*noiseGain(hf)
+
+		qin := math.Ldexp(1, -(w.InputBits - 1))
+		pNoise := qin * qin / 12 * noiseGain(cascadeTaps(c, w, 0, true))
+		for i, sw := range w.Stages {
+			rest := 1.0
+			if i+1 < len(c.Stages) {
+				rest = noiseGain(cascadeTaps(c, w, i+1, true))
+			}
+			if sw.CIC {
+				p := sw.Pruning
+				unit := math.Ldexp(1, -(p.FullBits - 1))
+				for j, d := range p.Dropped {
+					if d > 0 {
+						q := math.Ldexp(unit, d)
+						pNoise += q * q / 12 * p.VarianceFactors[j] * rest
+					}
+				}
+				continue
+			}
+			if sw.OutputShift > 0 {
+				q := math.Ldexp(1, -(sw.OutputBits - 1))
+				pNoise += q * q / 12 * rest
+			}
+		}
+		hq := cascadeTaps(c, w, 0, true)
+		dg := magnitude(hq, ftone, c.InputRate) - magnitude(hf, ftone, c.InputRate)
+		want := 10 * math.Log10(pSig/pNoise)
+		wantMatch := 10 * math.Log10(pSig/(pNoise+a*a/2*dg*dg))
+		t.Logf("%+v: SNR %.2f dB (ENOB %.2f), predicted %.2f dB; match %.2f dB, predicted %.2f; input SNR %.2f dB, offset %.2f LSB",
+			words, r.SNRDB, r.ENOB, want, r.MatchDB, wantMatch, r.InputSNRDB, r.OutputOffset)
+		if math.Abs(r.SNRDB-want) > 1.5 {
+			t.Errorf("%+v: SNR %.2f dB, predicted %.2f dB", words, r.SNRDB, want)
+		}
+		// MatchDB also holds the DC offset, which is not predicted: it may only be lower.
+		if r.MatchDB > wantMatch+1 {
+			t.Errorf("%+v: match %.2f dB, predicted at most %.2f dB", words, r.MatchDB, wantMatch)
+		}
+	}
+}
