@@ -44,6 +44,7 @@ func demoFront() FrontData {
 		Candidates:  cands,
 		Front:       front,
 		Recommended: 2,
+		TargetDB:    demoTarget,
 	}
 }
 

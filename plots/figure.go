@@ -111,7 +111,7 @@ func (f *Figure) Draw(c draw.Canvas) {
 
 	if f.colorKey != nil {
 		kc := area
-		kc.Min.X = main.Max.X + vg.Points(8)
+		kc.Min.X = main.Max.X - vg.Points(6)
 		kc.Min.Y, kc.Max.Y = dc0.Min.Y, dc0.Max.Y
 		kd := f.colorKey.DataCanvas(kc)
 		// Grow the key's canvas so its bar spans the panel's data height.

@@ -43,6 +43,10 @@ type FrontData struct {
 	// Recommended is the index into Front of the recommended chain, which is
 	// ringed and labelled. The zero value recommends Front[0]; -1 marks none.
 	Recommended int
+	// TargetDB is the alias-rejection target in positive dB, marked on the
+	// colour key so that each chain's margin can be read off. Zero marks
+	// none.
+	TargetDB float64
 }
 
 // Front draws multiplies per output against memory bits: every feasible
@@ -62,6 +66,9 @@ func Front(d FrontData) (*Figure, error) {
 		if err := checkPoint("FrontData.Candidates", i, pt, false); err != nil {
 			return nil, err
 		}
+	}
+	if math.IsNaN(d.TargetDB) || math.IsInf(d.TargetDB, 0) || d.TargetDB < 0 {
+		return nil, fmt.Errorf("plots: FrontData.TargetDB = %v: must be finite and >= 0", d.TargetDB)
 	}
 	if d.Recommended < -1 || d.Recommended >= len(d.Front) {
 		return nil, fmt.Errorf("plots: FrontData.Recommended = %d: must be -1 or an index into Front (0..%d)", d.Recommended, len(d.Front)-1)
@@ -85,7 +92,7 @@ func Front(d FrontData) (*Figure, error) {
 	p.X.Min, p.X.Max, xlog = axisRange(xs)
 	p.Y.Min, p.Y.Max, ylog = axisRange(ys)
 	p.X.Label.Text = "Multiplies per output sample"
-	p.X.Tick.Marker = scaledTicks{1}
+	p.X.Tick.Marker = scaledTicks{scale: 1}
 	if xlog {
 		p.X.Scale = plot.LogScale{}
 		p.X.Tick.Marker = logTicks{}
@@ -97,7 +104,7 @@ func Front(d FrontData) (*Figure, error) {
 		p.Y.Label.Text = "Memory (bits, log scale)"
 	} else {
 		u := bitsUnit(p.Y.Max)
-		p.Y.Tick.Marker = scaledTicks{u.scale}
+		p.Y.Tick.Marker = scaledTicks{scale: u.scale}
 		p.Y.Label.Text = "Memory (" + u.name + ")"
 	}
 	addGrid(p)
@@ -131,6 +138,10 @@ func Front(d FrontData) (*Figure, error) {
 		line[j] = plotter.XY{X: d.Front[i].Multiplies, Y: d.Front[i].MemoryBits}
 		rmin = math.Min(rmin, d.Front[i].RejectionDB)
 		rmax = math.Max(rmax, d.Front[i].RejectionDB)
+	}
+	if d.TargetDB > 0 && d.TargetDB-1 < rmin {
+		// Show the target inside the key, a little above its bottom.
+		rmin = d.TargetDB - math.Max(0.5, 0.04*(rmax-d.TargetDB))
 	}
 	if rmax-rmin < 1 {
 		// A key needs a span; centre the few equal values in it.
@@ -191,7 +202,14 @@ func Front(d FrontData) (*Figure, error) {
 	key.HideX()
 	key.Y.Label.Text = "Alias rejection (dB)"
 	key.Y.Padding = 0
+	key.Y.Tick.Marker = scaledTicks{scale: 1, n: 4}
 	key.Add(&plotter.ColorBar{ColorMap: cmap, Vertical: true, Colors: 64})
+	if d.TargetDB > 0 {
+		key.Y.Label.Text = fmt.Sprintf("Alias rejection (dB), target %g dB marked", d.TargetDB)
+		t, _ := plotter.NewLine(plotter.XYs{{X: 0, Y: d.TargetDB}, {X: 1, Y: d.TargetDB}})
+		t.LineStyle = draw.LineStyle{Color: vermilion, Width: vg.Points(3)}
+		key.Add(t)
+	}
 
 	return &Figure{panels: []panel{{p: p, weight: 1}}, colorKey: key}, nil
 }
@@ -218,11 +236,11 @@ func checkPoint(field string, i int, pt Point, front bool) error {
 	return nil
 }
 
-// thin keeps one candidate per cell of a grid finer than the pixels of a
-// figure, in input order, so that a cloud of many thousands of candidates
+// thin keeps one candidate per cell of a grid whose cells are smaller than
+// a dot, in input order, so that a cloud of many thousands of candidates
 // looks the same but costs a few thousand glyphs.
 func thin(p *plot.Plot, pts []Point) plotter.XYs {
-	const nx, ny = 400, 250
+	const nx, ny = 160, 100 // cells of about 2.7 pt, under a dot's 3.2 pt diameter
 	seen := make(map[[2]int]bool)
 	var out plotter.XYs
 	for _, pt := range pts {

@@ -192,6 +192,10 @@ func TestErrors(t *testing.T) {
 			_, err := Front(FrontData{Front: []Point{{1, 1, 80, ""}}, Recommended: 1})
 			return err
 		}, "FrontData.Recommended = 1"},
+		{"front/target", func() error {
+			_, err := Front(FrontData{Front: []Point{{1, 1, 80, ""}}, TargetDB: math.NaN()})
+			return err
+		}, "FrontData.TargetDB"},
 		{"response/short", func() error { _, err := Response(ResponseData{FreqHz: []float64{0}}); return err }, "FreqHz"},
 		{"response/order", func() error {
 			_, err := Response(ResponseData{FreqHz: []float64{0, 2, 1}, TotalDB: []float64{0, 0, 0}})
@@ -298,7 +302,7 @@ func TestTicks(t *testing.T) {
 	// Expected labels worked by hand.
 	labels := func(lo, hi, scale float64) string {
 		var s []string
-		for _, tk := range (scaledTicks{scale}).Ticks(lo, hi) {
+		for _, tk := range (scaledTicks{scale: scale}).Ticks(lo, hi) {
 			if tk.Label != "" {
 				s = append(s, tk.Label)
 			}

@@ -200,7 +200,7 @@ func responsePanel(d ResponseData, lo, hi, floor, top float64, logx bool, leg *p
 	u := freqUnit(hi)
 	p.X.Min, p.X.Max = lo, hi
 	p.Y.Min, p.Y.Max = floor, top
-	p.X.Tick.Marker = scaledTicks{u.scale}
+	p.X.Tick.Marker = scaledTicks{scale: u.scale}
 	p.X.Label.Text = "Input frequency (" + u.name + ")"
 	tol, rel := (hi-lo)/1500, 0.0
 	if logx {

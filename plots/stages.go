@@ -77,7 +77,7 @@ func Stages(d StagesData) (*Figure, error) {
 	}
 	// Room above the tallest bar for its label.
 	p.Y.Max = math.Min(110, math.Max(20, 10*math.Ceil((top*1.12+2)/10)))
-	p.Y.Tick.Marker = scaledTicks{1}
+	p.Y.Tick.Marker = scaledTicks{scale: 1}
 	p.X.Tick.Label.Font.Size = 10
 	p.X.Padding = vg.Points(6)
 

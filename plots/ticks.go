@@ -44,18 +44,25 @@ func bitsUnit(maxBits float64) unit {
 	return unit{1, "bits"}
 }
 
-// scaledTicks places about seven labelled ticks at round values of a
+// scaledTicks places about seven (or n) labelled ticks at round values of a
 // display unit (1, 2, 2.5 or 5 times a power of ten), with minor ticks
 // between: gonum's default of three labels is too sparse for reading
 // frequencies off a filter plot.
-type scaledTicks struct{ scale float64 }
+type scaledTicks struct {
+	scale float64
+	n     int // labels wanted; zero means 7
+}
 
 func (t scaledTicks) Ticks(vmin, vmax float64) []plot.Tick {
 	lo, hi := vmin/t.scale, vmax/t.scale
 	if !(hi > lo) {
 		return nil
 	}
-	raw := (hi - lo) / 7
+	n := t.n
+	if n == 0 {
+		n = 7
+	}
+	raw := (hi - lo) / float64(n)
 	mag := math.Pow(10, math.Floor(math.Log10(raw)))
 	step, minor := 10*mag, 2*mag
 	for _, c := range []struct{ s, m float64 }{{1, 0.2}, {2, 0.5}, {2.5, 0.5}, {5, 1}} {
