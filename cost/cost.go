@@ -1,0 +1,179 @@
+package cost
+
+import (
+	"errors"
+	"fmt"
+	"math"
+
+	"stepdown/chain"
+)
+
+// Settings selects how a chain is priced. The zero value is the default:
+// symmetric coefficients are folded and no clock is given.
+type Settings struct {
+	NoSymmetry bool    // count every tap's multiply (DESIGN §5 default folds symmetry)
+	Clock      float64 // Hz; zero means no multipliers-at-clock figure
+}
+
+// FloatCoefBits is the coefficient width assumed when the spec asks for
+// floating-point coefficients.
+const FloatCoefBits = 18
+
+// StageFigures is one stage's share, counted per final output sample.
+type StageFigures struct {
+	MultipliesPerOutput float64
+	AddsPerOutput       float64
+	MemoryWords         int
+	MemoryBits          int
+	LatencyS            float64
+	Multipliers         int // hardware multipliers at Settings.Clock; 0 without a clock
+}
+
+// Figures is what a chain costs (DESIGN §5) and, for a designed chain, what it achieves (§7).
+type Figures struct {
+	MultipliesPerOutput float64
+	AddsPerOutput       float64
+	MemoryWords         int
+	MemoryBits          int
+	LatencyS            float64
+	LatencySamples      float64 // in output samples
+	MultipliersAtClock  int     // 0 without a clock
+	Stages              []StageFigures
+
+	Designed bool
+	// Analysis is the measured truth of a designed chain; for an estimated
+	// chain it is the per-stage estimate of the same figures.
+	Analysis chain.Analysis
+}
+
+// Evaluate turns a chain into all of its figures. It is the one call the
+// optimiser and the command line both use.
+func Evaluate(spec chain.Spec, c *chain.Chain, s Settings) (Figures, error) {
+	spec, err := spec.Normalize()
+	if err != nil {
+		return Figures{}, err
+	}
+	if c == nil || len(c.Stages) == 0 {
+		return Figures{}, errors.New("cost: empty chain")
+	}
+	if !(s.Clock >= 0) || math.IsInf(s.Clock, 0) {
+		return Figures{}, fmt.Errorf("cost: Settings.Clock = %g: must be a finite clock above 0 Hz, or 0 for none", s.Clock)
+	}
+	f, err := Price(spec, c, s)
+	if err != nil {
+		return Figures{}, err
+	}
+	a, err := chain.Analyze(c, spec)
+	if err != nil {
+		return Figures{}, err
+	}
+	f.Analysis = a
+	return f, nil
+}
+
+// Price computes the cost figures of Evaluate without the analysis (which
+// dominates Evaluate's time on long chains). spec must be normalised.
+func Price(spec chain.Spec, c *chain.Chain, s Settings) (Figures, error) {
+	f := Figures{Designed: c.Designed, Stages: make([]StageFigures, len(c.Stages))}
+	rates := c.Rates()
+	fk := rates[len(rates)-1]
+	later := make([]float64, len(c.Stages)) // D(i+1) ... DK
+	p := 1.0
+	for i := len(c.Stages) - 1; i >= 0; i-- {
+		later[i] = p
+		p *= float64(c.Stages[i].Factor())
+	}
+	cx := 1
+	if c.Complex {
+		cx = 2
+	}
+	coefBits := spec.CoefBits
+	if coefBits == 0 {
+		coefBits = FloatCoefBits
+	}
+	width := spec.InputBits
+	for i, st := range c.Stages {
+		var mul, add float64 // per stage output, one real filter
+		var dataWords, dataBits, coefWords int
+		var delayIn float64 // group delay, input samples
+		switch v := st.(type) {
+		case chain.CICStage:
+			n, m, r := v.N, v.M, v.R
+			add = float64(n*r + n)
+			regs := v.RegisterBits
+			if len(regs) != 2*n {
+				in := v.InputBits
+				if in == 0 {
+					in = width
+				}
+				w := chain.CICRegisterWidth(n, m, r, in)
+				regs = make([]int, 2*n)
+				for j := range regs {
+					regs[j] = w
+				}
+			}
+			dataWords = n + n*m
+			for j := 0; j < n; j++ {
+				dataBits += regs[j] + m*regs[n+j]
+			}
+			delayIn = float64(n*(r*m-1)) / 2
+			if v.OutputBits > 0 {
+				width = v.OutputBits
+			} else {
+				width = min(regs[2*n-1], spec.OutputBits)
+			}
+		case chain.FIRStage:
+			n := v.Length
+			if v.Taps != nil {
+				n = len(v.Taps)
+			}
+			if n < 1 {
+				return Figures{}, fmt.Errorf("cost: stage %d (%s) has no taps and no estimated length", i+1, v.Kind())
+			}
+			if v.HalfBand {
+				k := (n + 1 + 3) / 4
+				mul = float64(2 * k)
+				coefWords = 2 * k
+				if !s.NoSymmetry {
+					mul = float64(k)
+					coefWords = k
+				}
+				add = float64(2 * k)
+				dataWords = 3 * k
+			} else {
+				mul = float64(n)
+				coefWords = n
+				if !s.NoSymmetry {
+					mul = float64((n + 1) / 2)
+					coefWords = (n + 1) / 2
+				}
+				add = float64(n - 1)
+				dataWords = n
+			}
+			dataBits = dataWords * width
+			delayIn = float64(n-1) / 2
+			width = spec.OutputBits
+		default:
+			return Figures{}, fmt.Errorf("cost: stage %d: unknown stage type %T", i+1, st)
+		}
+		sf := StageFigures{
+			MultipliesPerOutput: mul * float64(cx) * later[i],
+			AddsPerOutput:       add * float64(cx) * later[i],
+			MemoryWords:         dataWords*cx + coefWords,
+			MemoryBits:          dataBits*cx + coefWords*coefBits,
+			LatencyS:            delayIn / rates[i],
+		}
+		if s.Clock > 0 && mul > 0 {
+			sf.Multipliers = int(math.Ceil(mul*float64(cx)*rates[i+1]/s.Clock - 1e-9))
+		}
+		f.Stages[i] = sf
+		f.MultipliesPerOutput += sf.MultipliesPerOutput
+		f.AddsPerOutput += sf.AddsPerOutput
+		f.MemoryWords += sf.MemoryWords
+		f.MemoryBits += sf.MemoryBits
+		f.LatencyS += sf.LatencyS
+		f.MultipliersAtClock += sf.Multipliers
+	}
+	f.LatencySamples = f.LatencyS * fk
+	return f, nil
+}

@@ -1,0 +1,58 @@
+// Package cost turns a decimation chain into the figures a hardware designer
+// prices it by (DESIGN §5): multiplies and adders per output sample, memory in
+// words and bits, latency, and the multipliers needed at a given clock; and,
+// through chain.Analyze, what the chain achieves (DESIGN §7).
+//
+// # Conventions
+//
+// Rates in Hz, latency in seconds and in final output samples. Every count is
+// per final output sample unless said otherwise: a stage's count per its own
+// output is multiplied by the product of the later stages' factors
+// D(i+1)...DK. Counts are of real operations; a complex (I/Q) chain runs two
+// real filters, so multiplies, adders and data memory double while
+// coefficient memory does not (DESIGN §2).
+//
+// # Formulas
+//
+// Stage i decimates by Di from F(i-1) to Fi; N is its number of taps.
+//
+// Multiplies per stage output:
+//
+//	FIR:        N, or ceil(N/2) with symmetry (the default; Settings.NoSymmetry off)
+//	half-band:  4K-1 taps: 2K, or K with symmetry; the centre tap 1/2 is a shift
+//	CIC:        0
+//
+// Adders per stage output:
+//
+//	FIR:        N-1 either way: with symmetry floor(N/2) pre-adds (tap pairs)
+//	            plus ceil(N/2)-1 to sum the products
+//	half-band:  2K either way: K pre-adds plus K to sum K products and the
+//	            centre term, or 2K to sum 2K products and the centre term
+//	CIC:        N R + N: N integrators at its input rate (R per output) and
+//	            N combs at its output rate
+//
+// Memory, words and bits:
+//
+//	FIR:        N data words (the polyphase branches' delay lines together),
+//	            plus N coefficient words, or ceil(N/2) with symmetry
+//	half-band:  3K data words (the 2K-tap branch and the centre branch's
+//	            K-word delay), plus 2K coefficient words, or K with symmetry
+//	CIC:        N integrator registers plus N M comb delay words, each at its
+//	            own pruned register width (CICStage.RegisterBits), no coefficients
+//
+// Data words are as wide as the samples entering the stage: spec.InputBits
+// for the first stage, the CIC's output width after a CIC (its register width
+// or spec.OutputBits, whichever is smaller), spec.OutputBits after an FIR or
+// half-band stage. Coefficient words are spec.CoefBits wide, or 18 bits when
+// the coefficients are floating point (CoefBits 0): 18 bits is the common
+// width of FPGA multiplier inputs (common practice).
+//
+// Latency: the sum of the stages' group delays, (N-1)/2 input samples for an
+// FIR or half-band at its input rate and N (R M - 1)/2 input samples for a CIC,
+// each converted to seconds; in output samples it is that sum times FK.
+//
+// Multipliers at clock fclk (Settings.Clock): per stage ceil(m_i Fi / fclk)
+// where m_i is the stage's multiplies per its own output (doubled for
+// complex), summed over the stages: each stage has its own multipliers,
+// time-shared within the stage only.
+package cost
