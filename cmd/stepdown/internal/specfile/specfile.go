@@ -14,6 +14,7 @@ import (
 	"github.com/BurntSushi/toml"
 
 	"stepdown/chain"
+	"stepdown/chain/fixed"
 	"stepdown/cmd/stepdown/internal/units"
 	"stepdown/cost"
 	"stepdown/optimize"
@@ -30,6 +31,9 @@ const (
 	MaxCICDelay = 4
 	MinWordBits = 2
 	MaxWordBits = 64
+	// MaxCoefBits is the widest coefficient word: the rounded coefficients
+	// are computed in int64 with room for the data path (fixed.MaxBits).
+	MaxCoefBits = fixed.MaxBits
 )
 
 // Defaults for the search table, used when a key is absent.
@@ -486,8 +490,9 @@ func (p *parser) build() (*Spec, error) {
 	for _, w := range []struct {
 		key string
 		dst *int
-	}{{"words.input", &cs.InputBits}, {"words.output", &cs.OutputBits}, {"words.coefficients", &cs.CoefBits}} {
-		n, _, err := p.integer(w.key, MinWordBits, MaxWordBits, " bits")
+		max int
+	}{{"words.input", &cs.InputBits, MaxWordBits}, {"words.output", &cs.OutputBits, MaxWordBits}, {"words.coefficients", &cs.CoefBits, MaxCoefBits}} {
+		n, _, err := p.integer(w.key, MinWordBits, w.max, " bits")
 		if err != nil {
 			return nil, err
 		}

@@ -1,0 +1,388 @@
+package main
+
+import (
+	"bytes"
+	"encoding/json"
+	"fmt"
+	"os"
+	"os/exec"
+	"path/filepath"
+	"reflect"
+	"strings"
+	"testing"
+)
+
+// binary is the stepdown command built once for every test in this file.
+var binary string
+
+func TestMain(m *testing.M) {
+	dir, err := os.MkdirTemp("", "stepdown-test-bin-")
+	if err != nil {
+		fmt.Fprintln(os.Stderr, err)
+		os.Exit(1)
+	}
+	binary = filepath.Join(dir, "stepdown")
+	out, err := exec.Command("go", "build", "-o", binary, ".").CombinedOutput()
+	if err != nil {
+		fmt.Fprintf(os.Stderr, "go build: %v\n%s", err, out)
+		os.RemoveAll(dir)
+		os.Exit(1)
+	}
+	code := m.Run()
+	os.RemoveAll(dir)
+	os.Exit(code)
+}
+
+type result struct {
+	code           int
+	stdout, stderr string
+}
+
+func runBinary(t *testing.T, dir string, env []string, args ...string) result {
+	t.Helper()
+	cmd := exec.Command(binary, args...)
+	cmd.Dir = dir
+	cmd.Env = append(os.Environ(), env...)
+	var o, e bytes.Buffer
+	cmd.Stdout, cmd.Stderr = &o, &e
+	err := cmd.Run()
+	code := 0
+	if err != nil {
+		ee, ok := err.(*exec.ExitError)
+		if !ok {
+			t.Fatalf("running %v: %v", args, err)
+		}
+		code = ee.ExitCode()
+	}
+	return result{code, o.String(), e.String()}
+}
+
+// A valid spec (an invented scenario) that the bad-input cases edit one key of.
+const goodSpec = `input_rate  = "98.304 MHz"
+output_rate = "3.072 MHz"
+passband    = "1 MHz"
+ripple      = "0.1 dB"
+rejection   = "70 dB"
+[words]
+input = 14
+[search]
+max_stages = 4
+`
+
+// edit replaces the line of key in goodSpec (or appends the line).
+func edit(key, line string) string {
+	var out []string
+	done := false
+	for _, l := range strings.Split(goodSpec, "\n") {
+		if strings.HasPrefix(l, key+" ") {
+			l, done = line, true
+		}
+		out = append(out, l)
+	}
+	s := strings.Join(out, "\n")
+	if !done {
+		s += line + "\n"
+	}
+	return s
+}
+
+// top puts a top-level line into goodSpec, before its tables.
+func top(line string) string {
+	return strings.Replace(goodSpec, "[words]\n", line+"\n[words]\n", 1)
+}
+
+// words puts a line into goodSpec's [words] table.
+func words(line string) string {
+	return strings.Replace(goodSpec, "[words]\n", "[words]\n"+line+"\n", 1)
+}
+
+// Each bad input must exit with the given status, print exactly one line on
+// stderr that contains every fragment, never mention a panic or goroutine,
+// and leave the output folder as it was.
+func TestBadInputs(t *testing.T) {
+	type tc struct {
+		name  string
+		spec  string // written to spec.toml when not empty
+		args  []string
+		code  int
+		frags []string
+	}
+	specCase := func(name, spec string, frags ...string) tc {
+		return tc{name: name, spec: spec, args: []string{"plan", "spec.toml", "--out", "out"}, code: 2, frags: frags}
+	}
+	cases := []tc{
+		specCase("rate zero", edit("input_rate", "input_rate = 0"), "input_rate", "above 0 Hz"),
+		specCase("rate negative", edit("input_rate", `input_rate = "-98.304 MHz"`), "input_rate", "above 0 Hz"),
+		specCase("rate NaN", edit("input_rate", "input_rate = nan"), "input_rate", "finite"),
+		specCase("rate Inf", edit("input_rate", "input_rate = inf"), "input_rate", "finite"),
+		specCase("rate NaN text", edit("input_rate", `input_rate = "NaN"`), "input_rate", "not a number"),
+		specCase("rate not a number", edit("output_rate", `output_rate = "fast"`), "output_rate", "not a number"),
+		specCase("rate unknown unit", edit("output_rate", `output_rate = "3.072 MBs"`), "output_rate", "unknown unit"),
+		specCase("rate millihertz", edit("output_rate", `output_rate = "3.072 mHz"`), "output_rate", "millihertz"),
+		specCase("output above input", edit("output_rate", `output_rate = "200 MHz"`), "output_rate", "below input_rate"),
+		specCase("ratio 1", edit("output_rate", `output_rate = "98.304 MHz"`), "output_rate"),
+		specCase("non-integer ratio", edit("output_rate", `output_rate = "3 MHz"`), "output_rate", "not an integer"),
+		specCase("passband above output/2", edit("passband", `passband = "1.6 MHz"`), "passband"),
+		specCase("passband zero", edit("passband", `passband = 0`), "passband", "above 0 Hz"),
+		specCase("protected below passband", top(`protected = "900 kHz"`), "protected", "passband"),
+		specCase("stopband beyond rule", top(`stopband = "2.5 MHz"`), "stopband"),
+		specCase("stopband below passband", top(`stopband = "0.9 MHz"`), "stopband"),
+		specCase("ripple zero", edit("ripple", "ripple = 0"), "ripple", "above 0 dB"),
+		specCase("ripple negative", edit("ripple", `ripple = "-1 dB"`), "ripple", "above 0 dB"),
+		specCase("rejection zero", edit("rejection", "rejection = 0"), "rejection", "(0, 150]"),
+		specCase("rejection negative", edit("rejection", `rejection = "-80 dB"`), "rejection", "(0, 150]"),
+		specCase("rejection over 150", edit("rejection", `rejection = "151 dB"`), "rejection", "(0, 150]"),
+		specCase("rejection unit", edit("rejection", `rejection = "80 Hz"`), "rejection", "unknown unit"),
+		specCase("input word 1", edit("input", "input = 1"), "words.input", "[2, 64]"),
+		specCase("output word 65", words("output = 65"), "words.output", "[2, 64]"),
+		specCase("coefficient word 0", words("coefficients = 0"), "words.coefficients", "[2, 40]"),
+		specCase("coefficient word 41", words("coefficients = 41"), "words.coefficients", "[2, 40]"),
+		specCase("max_stages 0", edit("max_stages", "max_stages = 0"), "search.max_stages", "[1, 12]"),
+		specCase("max_stages 13", edit("max_stages", "max_stages = 13"), "search.max_stages", "[1, 12]"),
+		specCase("kinds empty", goodSpec+"kinds = []\n", "search.kinds", "at least one"),
+		specCase("kinds unknown", goodSpec+"kinds = [\"cic\", \"polyphase\"]\n", "search.kinds", `"polyphase"`),
+		specCase("cic order 0", goodSpec+"cic_orders = [0, 3]\n", "search.cic_orders", "[1, 10]"),
+		specCase("cic order 11", goodSpec+"cic_orders = [11]\n", "search.cic_orders", "[1, 10]"),
+		specCase("cic delay 0", goodSpec+"cic_delays = [0]\n", "search.cic_delays", "[1, 4]"),
+		specCase("cic delay 5", goodSpec+"cic_delays = [1, 5]\n", "search.cic_delays", "[1, 4]"),
+		specCase("unknown key", top(`colour = "blue"`), "spec.toml:6", "colour", "unknown key"),
+		specCase("unknown key in table", goodSpec+"max_stagez = 3\n", "spec.toml:10", "search.max_stagez", "unknown key"),
+		specCase("not TOML", "input_rate = = 1\n", "spec.toml:1", "not valid TOML"),
+		specCase("signal", top(`signal = "iq"`), "signal", `"real" or "complex"`),
+		{name: "missing spec", args: []string{"plan", "absent.toml", "--out", "out"}, code: 2, frags: []string{"absent.toml", "does not exist"}},
+		{name: "spec is a folder", args: []string{"plan", "folder", "--out", "out"}, code: 2, frags: []string{"folder", "is a folder"}},
+		{name: "spec unreadable", args: []string{"plan", "big.toml/x.toml", "--out", "out"}, code: 2, frags: []string{"x.toml", "cannot be read"}},
+		{name: "spec over 1 MiB", args: []string{"plan", "big.toml", "--out", "out"}, code: 2, frags: []string{"big.toml", "1 MiB"}},
+		{name: "out is a file", spec: goodSpec, args: []string{"plan", "spec.toml", "--out", "afile"}, code: 2, frags: []string{"afile", "is a file"}},
+		{name: "out parent missing", spec: goodSpec, args: []string{"plan", "spec.toml", "--out", "nowhere/out"}, code: 2, frags: []string{"nowhere", "does not exist"}},
+		{name: "out foreign folder", spec: goodSpec, args: []string{"plan", "spec.toml", "--out", "folder"}, code: 2, frags: []string{"folder", "not a stepdown output folder"}},
+		// /proc refuses new folders even to root, so this is a runtime failure.
+		{name: "out not writable", spec: goodSpec, args: []string{"plan", "spec.toml", "--out", "/proc/stepdown-out"}, code: 1, frags: []string{"/proc/stepdown-out", "cannot write"}},
+		{name: "flag max-stages", spec: goodSpec, args: []string{"plan", "spec.toml", "--out", "out", "--max-stages", "13"}, code: 2, frags: []string{"--max-stages", "[1, 12]"}},
+		{name: "flag jobs", spec: goodSpec, args: []string{"plan", "spec.toml", "--out", "out", "--jobs", "-1"}, code: 2, frags: []string{"--jobs"}},
+		{name: "flag timeout", spec: goodSpec, args: []string{"plan", "spec.toml", "--out", "out", "--timeout", "-1s"}, code: 2, frags: []string{"--timeout"}},
+		{name: "flag bad duration", spec: goodSpec, args: []string{"plan", "spec.toml", "--out", "out", "--timeout", "soon"}, code: 2, frags: []string{"timeout"}},
+		{name: "unknown flag", spec: goodSpec, args: []string{"plan", "spec.toml", "--colour"}, code: 2, frags: []string{"colour"}},
+		{name: "unknown command", args: []string{"frobnicate"}, code: 2, frags: []string{"frobnicate", "unknown"}},
+		{name: "two specs", spec: goodSpec, args: []string{"plan", "spec.toml", "spec.toml", "--out", "out"}, code: 2, frags: []string{"at most one"}},
+		{name: "check no chain", spec: goodSpec, args: []string{"check", "spec.toml", "--out", "out"}, code: 2, frags: []string{"--chain", "missing"}},
+		{name: "check bad notation", spec: goodSpec, args: []string{"check", "spec.toml", "--chain", "cic3m1r8 > hbx", "--out", "out"}, code: 2, frags: []string{"--chain", "at byte"}},
+		{name: "check bad product", spec: goodSpec, args: []string{"check", "spec.toml", "--chain", "cic3m1r8 > hb", "--out", "out"}, code: 2, frags: []string{"--chain", "multiply to 16", "= 32"}},
+		{name: "design no rate", args: []string{"design", "--pass", "0:1", "--stop", "2:3", "--ripple", "1", "--atten", "40"}, code: 2, frags: []string{"--rate", "missing"}},
+		{name: "design bad band", args: []string{"design", "--rate", "48 kHz", "--pass", "0:30 kHz", "--stop", "31:40 kHz", "--ripple", "1", "--atten", "40"}, code: 2, frags: []string{"--pass", "rate/2"}},
+		{name: "design overlap", args: []string{"design", "--rate", "48 kHz", "--pass", "0:10 kHz", "--stop", "9:20 kHz", "--ripple", "1", "--atten", "40"}, code: 2, frags: []string{"overlaps"}},
+		{name: "design NaN ripple", args: []string{"design", "--rate", "48 kHz", "--pass", "0:10 kHz", "--stop", "12:20 kHz", "--ripple", "NaN", "--atten", "40"}, code: 2, frags: []string{"--ripple", "not a number"}},
+		{name: "design taps", args: []string{"design", "--rate", "48 kHz", "--pass", "0:10 kHz", "--stop", "12:20 kHz", "--ripple", "1", "--atten", "40", "--taps", "2"}, code: 2, frags: []string{"--taps", "[3, 65535]"}},
+	}
+	for _, c := range cases {
+		t.Run(c.name, func(t *testing.T) {
+			dir := t.TempDir()
+			must(t, os.Mkdir(filepath.Join(dir, "folder"), 0o755))
+			must(t, os.WriteFile(filepath.Join(dir, "folder", "keep.txt"), []byte("user data"), 0o644))
+			must(t, os.WriteFile(filepath.Join(dir, "afile"), []byte("a file"), 0o644))
+			must(t, os.WriteFile(filepath.Join(dir, "big.toml"), bytes.Repeat([]byte("# padding\n"), 110000), 0o644))
+			// A previous run's output, which a failed run must leave alone.
+			must(t, os.Mkdir(filepath.Join(dir, "out"), 0o755))
+			must(t, os.WriteFile(filepath.Join(dir, "out", "report.json"), []byte("previous"), 0o644))
+			if c.spec != "" {
+				must(t, os.WriteFile(filepath.Join(dir, "spec.toml"), []byte(c.spec), 0o644))
+			}
+			before := snapshot(t, dir)
+			r := runBinary(t, dir, nil, c.args...)
+			if r.code != c.code {
+				t.Errorf("exit status %d, want %d; stderr %q", r.code, c.code, r.stderr)
+			}
+			lines := strings.Split(strings.TrimRight(r.stderr, "\n"), "\n")
+			if len(lines) != 1 || lines[0] == "" {
+				t.Errorf("stderr has %d lines, want 1: %q", len(lines), r.stderr)
+			}
+			for _, f := range c.frags {
+				if !strings.Contains(r.stderr, f) {
+					t.Errorf("stderr %q lacks %q", r.stderr, f)
+				}
+			}
+			for _, bad := range []string{"goroutine", "panic", "runtime error"} {
+				if strings.Contains(r.stderr+r.stdout, bad) {
+					t.Errorf("output mentions %q: %q", bad, r.stderr)
+				}
+			}
+			if after := snapshot(t, dir); !reflect.DeepEqual(before, after) {
+				t.Errorf("the folder changed:\nbefore %v\nafter  %v", before, after)
+			}
+		})
+	}
+}
+
+func must(t *testing.T, err error) {
+	t.Helper()
+	if err != nil {
+		t.Fatal(err)
+	}
+}
+
+// snapshot maps every path under dir to its contents (big files by size).
+func snapshot(t *testing.T, dir string) map[string]string {
+	t.Helper()
+	m := map[string]string{}
+	err := filepath.Walk(dir, func(p string, fi os.FileInfo, err error) error {
+		if err != nil {
+			return err
+		}
+		rel, _ := filepath.Rel(dir, p)
+		switch {
+		case fi.IsDir():
+			m[rel] = "dir"
+		case fi.Size() > 4096:
+			m[rel] = fmt.Sprintf("%d bytes", fi.Size())
+		default:
+			b, err := os.ReadFile(p)
+			if err != nil {
+				return err
+			}
+			m[rel] = string(b)
+		}
+		return nil
+	})
+	must(t, err)
+	return m
+}
+
+// The files every plan and check writes (coefficient files depend on the chain).
+var outputFiles = []string{"report.json", "front.svg", "front.png", "response.svg", "response.png", "stages.svg"}
+
+func TestPlanExampleEndToEnd(t *testing.T) {
+	dir := t.TempDir()
+	r := runBinary(t, dir, nil, "plan", "--out", "out")
+	if r.code != 0 {
+		t.Fatalf("plan: exit %d: %s", r.code, r.stderr)
+	}
+	for _, f := range outputFiles {
+		fi, err := os.Stat(filepath.Join(dir, "out", f))
+		if err != nil || fi.Size() == 0 {
+			t.Errorf("%s: missing or empty (%v)", f, err)
+		}
+	}
+	rep := readReport(t, filepath.Join(dir, "out", "report.json"))
+	for _, k := range []string{"schema", "spec", "search", "front", "recommended", "reason", "partial", "caution"} {
+		if _, ok := rep[k]; !ok {
+			t.Errorf("report.json lacks %q", k)
+		}
+	}
+	if rep["schema"] != "stepdown.report/1" {
+		t.Errorf("schema = %v", rep["schema"])
+	}
+	spec := rep["spec"].(map[string]any)
+	for _, k := range []string{"input_rate_hz", "output_rate_hz", "decimation", "passband_hz", "protected_hz", "stopband_hz", "ripple_db", "rejection_db", "signal", "words", "hardware", "cost", "search"} {
+		if _, ok := spec[k]; !ok {
+			t.Errorf("spec lacks %q", k)
+		}
+	}
+	search := rep["search"].(map[string]any)
+	for _, k := range []string{"candidates", "feasible", "designed", "dropped"} {
+		if _, ok := search[k]; !ok {
+			t.Errorf("search lacks %q", k)
+		}
+	}
+	front := rep["front"].([]any)
+	if len(front) == 0 {
+		t.Fatal("empty front")
+	}
+	rec := int(rep["recommended"].(float64))
+	recChain := front[rec].(map[string]any)
+	for _, ch := range front {
+		c := ch.(map[string]any)
+		for _, k := range []string{"notation", "designed", "multiplies_per_output", "adds_per_output", "memory_words", "memory_bits", "latency_s", "latency_samples", "multipliers_at_clock", "alias_rejection_db", "passband_ripple_db", "stages"} {
+			if _, ok := c[k]; !ok {
+				t.Errorf("chain %v lacks %q", c["notation"], k)
+			}
+		}
+		for _, s := range c["stages"].([]any) {
+			st := s.(map[string]any)
+			keys := []string{"kind", "decimation", "input_rate_hz", "output_rate_hz", "multiplies_per_output"}
+			switch st["kind"] {
+			case "cic":
+				keys = append(keys, "cic_order", "cic_delay", "register_bits")
+			case "halfband", "fir":
+				keys = append(keys, "taps", "coefficients", "compensates_cic")
+			default:
+				t.Errorf("stage kind %v", st["kind"])
+			}
+			for _, k := range keys {
+				if _, ok := st[k]; !ok {
+					t.Errorf("chain %v stage %v lacks %q", c["notation"], st["kind"], k)
+				}
+			}
+		}
+	}
+	// The example sets 18-bit coefficients, so every FIR stage has three files.
+	for i, s := range recChain["stages"].([]any) {
+		st := s.(map[string]any)
+		if st["kind"] == "cic" {
+			continue
+		}
+		base := fmt.Sprintf("coefficients/stage%d_%s", i+1, st["kind"])
+		for _, suffix := range []string{".csv", "_int.csv", ".hex"} {
+			if _, err := os.Stat(filepath.Join(dir, "out", base+suffix)); err != nil {
+				t.Errorf("%s%s: %v", base, suffix, err)
+			}
+		}
+		hex, _ := os.ReadFile(filepath.Join(dir, "out", base+".hex"))
+		lines := strings.Split(strings.TrimSpace(string(hex)), "\n")
+		if len(lines) != int(st["taps"].(float64)) || len(lines[0]) != 5 {
+			t.Errorf("%s.hex: %d lines of %d digits, want %v lines of 5 (18 bits)", base, len(lines), len(lines[0]), st["taps"])
+		}
+	}
+	if !strings.Contains(r.stdout, "recommended") || !strings.Contains(r.stdout, recChain["notation"].(string)) {
+		t.Errorf("terminal output lacks the recommendation:\n%s", r.stdout)
+	}
+
+	// check with plan's notation must give the same figures.
+	notation := recChain["notation"].(string)
+	r2 := runBinary(t, dir, nil, "check", "--chain", notation, "--out", "checked")
+	if r2.code != 0 {
+		t.Fatalf("check %q: exit %d: %s", notation, r2.code, r2.stderr)
+	}
+	crep := readReport(t, filepath.Join(dir, "checked", "report.json"))
+	got := crep["front"].([]any)[0]
+	if !reflect.DeepEqual(got, front[rec]) {
+		a, _ := json.Marshal(got)
+		b, _ := json.Marshal(front[rec])
+		t.Errorf("check figures differ from plan's:\ncheck %s\nplan  %s", a, b)
+	}
+	for _, f := range outputFiles {
+		if _, err := os.Stat(filepath.Join(dir, "checked", f)); err != nil {
+			t.Errorf("check: %s: %v", f, err)
+		}
+	}
+
+	// Deterministic across runs and GOMAXPROCS, and a rerun replaces the folder.
+	want, _ := os.ReadFile(filepath.Join(dir, "out", "report.json"))
+	for _, procs := range []string{"1", "2"} {
+		r := runBinary(t, dir, []string{"GOMAXPROCS=" + procs}, "plan", "--out", "out", "--json", "--quiet")
+		if r.code != 0 {
+			t.Fatalf("GOMAXPROCS=%s: exit %d: %s", procs, r.code, r.stderr)
+		}
+		got, _ := os.ReadFile(filepath.Join(dir, "out", "report.json"))
+		if !bytes.Equal(got, want) {
+			t.Errorf("GOMAXPROCS=%s: report.json differs between runs", procs)
+		}
+		if r.stdout != string(want) {
+			t.Errorf("GOMAXPROCS=%s: --json stdout differs from report.json", procs)
+		}
+	}
+	entries, _ := os.ReadDir(dir)
+	for _, e := range entries {
+		if strings.Contains(e.Name(), ".tmp-") {
+			t.Errorf("temporary folder %s left behind", e.Name())
+		}
+	}
+}
+
+func readReport(t *testing.T, path string) map[string]any {
+	t.Helper()
+	b, err := os.ReadFile(path)
+	must(t, err)
+	var m map[string]any
+	must(t, json.Unmarshal(b, &m))
+	return m
+}
