@@ -2,6 +2,8 @@ package plots
 
 import (
 	"bytes"
+	"fmt"
+	"io"
 	"math/rand/v2"
 	"testing"
 )
@@ -25,5 +27,35 @@ func TestFrontManyCandidates(t *testing.T) {
 	t.Logf("SVG %d bytes", buf.Len())
 	if buf.Len() > 2<<20 {
 		t.Errorf("SVG is %d bytes, want under 2 MiB", buf.Len())
+	}
+}
+
+func BenchmarkResponseSVG(b *testing.B) {
+	for _, n := range []int{5000, 50000} {
+		d := demoResponse(n)
+		b.Run(fmt.Sprint(n), func(b *testing.B) {
+			for b.Loop() {
+				f, err := Response(d)
+				if err != nil {
+					b.Fatal(err)
+				}
+				if err := f.Render(io.Discard, "svg", 0, 0); err != nil {
+					b.Fatal(err)
+				}
+			}
+		})
+	}
+}
+
+func BenchmarkFrontPNG(b *testing.B) {
+	d := demoFront()
+	for b.Loop() {
+		f, err := Front(d)
+		if err != nil {
+			b.Fatal(err)
+		}
+		if err := f.Render(io.Discard, "png", 0, 0); err != nil {
+			b.Fatal(err)
+		}
 	}
 }

@@ -1,36 +1,50 @@
 // Package plots draws the figures of a stepdown report with gonum/plot:
-// the Pareto front of the candidate chains, the recommended cascade's
-// response with its alias bands shaded, and each stage's share of the
-// chain's cost.
+// the Pareto front of the candidate chains (Front), the recommended
+// cascade's response with its alias bands shaded (Response), and each
+// stage's share of the chain's cost (Stages).
 //
 // The package takes its own plain input types (FrontData, ResponseData,
 // StagesData) so that it depends on no other stepdown package; the command
 // line converts its results into them. Every figure function validates its
-// input and returns an error naming the offending field, never a panic, and
-// never draws NaN.
+// input and returns an error naming the offending field and value, never a
+// panic, and never draws NaN. Each returns a *Figure: one or more panels
+// plus their key, rendered with Figure.Render (to an io.Writer) or
+// Figure.Save (to a file, atomically via a temporary file and a rename).
 //
 // Conventions:
-//   - Frequencies are in Hz. Frequency axes pick Hz, kHz, MHz or GHz from the
-//     largest frequency shown and say so in the axis label.
+//   - Frequencies are in Hz. Linear frequency axes pick Hz, kHz, MHz or GHz
+//     from the largest frequency shown and say so in the axis label. When
+//     the full span exceeds 200 output rates, the full-span panel of
+//     Response uses a log frequency axis from a tenth of the output rate;
+//     the near-region panel below it stays linear.
 //   - Gains are in dB relative to the cascade's DC gain (0 dB is unity; a
 //     stopband is negative). Rejection targets and achieved rejections are
-//     positive dB, as everywhere in stepdown: a target of 80 dB is drawn as a
-//     line at -80 dB. Gains below the figure's floor (-TargetDB-60 dB, or
-//     -160 dB without a target) are drawn at the floor; -Inf (an exact null)
-//     is allowed and is drawn at the floor too.
-//   - Costs: multiplies per final output sample and memory in bits, as the
-//     cost package defines them.
-//   - An axis whose data span more than a factor of 20 and are all positive
-//     is drawn on a log scale, and its label says "log scale".
+//     positive dB, as everywhere in stepdown: a target of 85 dB is drawn as a
+//     line at -85 dB. Gains below the figure's floor (60 dB under the
+//     target, or -160 dB without one, raised to just under the deepest
+//     value when that is shallower) are drawn at the floor, which the axis
+//     label states; -Inf (an exact null) is allowed and drawn at the floor.
+//   - Costs are multiplies per final output sample and memory in bits, as
+//     the cost package defines them. A cost axis whose values are all
+//     positive and span more than a factor of 20 is drawn on a log scale,
+//     and its label says "log scale".
+//   - Large inputs are reduced to what the figure can show, never sampled
+//     at random: curves keep the minimum and maximum of each of 1500
+//     columns (every peak and null survives), alias bands closer than a
+//     1500th of the axis are drawn merged, and candidates of the front's
+//     cloud closer than a dot are drawn once. SVG files stay well under
+//     2 MB.
 //   - Colours come from the Okabe-Ito palette, which stays distinguishable
-//     under the common forms of colour blindness; the rejection colour key of
-//     the front uses a viridis-like map whose lightness rises monotonically.
-//   - The default figure size is 8 x 5 inches (DefaultWidth, DefaultHeight);
-//     a zero width or height given to Save or Render selects it.
-//   - Output is deterministic: the same input gives the same bytes in every
-//     format (no timestamps, no random identifiers, no map-order effects).
+//     under the common forms of colour blindness; the front's rejection key
+//     uses a viridis-like map whose lightness rises monotonically.
+//   - Formats are SVG and PNG (150 dots per inch). The default figure size
+//     is 8 x 5 inches (DefaultWidth, DefaultHeight); a zero width or height
+//     given to Save or Render selects it. SVG text names Liberation Sans
+//     with Arial, its metric twin, as fallback; fonts are not embedded.
+//   - Output is deterministic: the same input gives the same bytes (no
+//     timestamps, no random identifiers, no map-order effects).
 //
-// The figures are planning aids: the numbers behind them come from the
-// library's models of the filters, and a bit-true simulation of the RTL and
-// the team's own sign-off decide whether a chain is fit for hardware.
+// The figures are planning aids drawn from the library's models of the
+// filters; a bit-true simulation of the RTL and the team's own sign-off
+// decide whether a chain is fit for hardware.
 package plots

@@ -208,16 +208,15 @@ var (
 	orange    = color.RGBA{0xE6, 0x9F, 0x00, 0xff}
 	skyBlue   = color.RGBA{0x56, 0xB4, 0xE9, 0xff}
 	green     = color.RGBA{0x00, 0x9E, 0x73, 0xff}
-	yellow    = color.RGBA{0xF0, 0xE4, 0x42, 0xff}
 	blue      = color.RGBA{0x00, 0x72, 0xB2, 0xff}
 	vermilion = color.RGBA{0xD5, 0x5E, 0x00, 0xff}
 	purple    = color.RGBA{0xCC, 0x79, 0xA7, 0xff}
-	grey      = color.RGBA{0x80, 0x80, 0x80, 0xff}
 )
 
-// stageColors is the cycle for per-stage series; black is kept for the
-// cascade total and vermilion for targets and the recommendation.
-var stageColors = []color.Color{blue, orange, green, purple, skyBlue, yellow}
+// stageColors is the cycle for per-stage series (yellow is too pale for a
+// thin line on white); black is kept for the cascade total, grey for the
+// passband edge and vermilion for targets and the recommendation.
+var stageColors = []color.Color{blue, orange, green, purple, skyBlue}
 
 var (
 	sans     = font.Font{Typeface: "Liberation", Variant: "Sans"}

@@ -5,6 +5,7 @@ import (
 	"image/color"
 	"math"
 	"sort"
+	"strings"
 
 	"gonum.org/v1/plot"
 	"gonum.org/v1/plot/plotter"
@@ -212,11 +213,17 @@ func responsePanel(d ResponseData, lo, hi, floor, top float64, logx bool, leg *p
 	p.Y.Label.Text = fmt.Sprintf("Gain (dB, floor %g)", floor)
 	p.Y.Tick.Marker = dbTicks{}
 	addGrid(p)
-	add := func(name string, pl plot.Plotter, th ...plot.Thumbnailer) {
+	// Legend entries are collected in drawing order (bands at the back,
+	// the cascade on top) and listed in reading order (the cascade first).
+	type entry struct {
+		name string
+		th   plot.Thumbnailer
+	}
+	var entries []entry
+	legAdd := func(name string, th plot.Thumbnailer) { entries = append(entries, entry{name, th}) }
+	add := func(name string, pl plot.Plotter, th plot.Thumbnailer) {
 		p.Add(pl)
-		if leg != nil && name != "" {
-			leg.Add(name, th...)
-		}
+		legAdd(name, th)
 	}
 
 	if bands := merged(d.AliasBands, tol, rel); len(bands) > 0 {
@@ -233,21 +240,21 @@ func responsePanel(d ResponseData, lo, hi, floor, top float64, logx bool, leg *p
 			poly.Color = color.RGBA{0xF6, 0xDC, 0xC4, 0xff} // a light tint of vermilion
 			poly.LineStyle.Width = 0
 			add("alias bands", poly, poly)
-		} else if leg != nil {
+		} else {
 			// Keep the legend the same whether or not a band falls in view.
 			poly, _ := plotter.NewPolygon(plotter.XYs{})
 			poly.Color = color.RGBA{0xF6, 0xDC, 0xC4, 0xff}
 			poly.LineStyle.Width = 0
-			leg.Add("alias bands", poly)
+			legAdd("alias bands", poly)
 		}
 	}
 	if d.PassbandHz > 0 {
 		l, _ := plotter.NewLine(plotter.XYs{{X: d.PassbandHz, Y: floor}, {X: d.PassbandHz, Y: top}})
-		l.LineStyle = draw.LineStyle{Color: green, Width: vg.Points(1.5), Dashes: []vg.Length{vg.Points(2), vg.Points(2)}}
+		l.LineStyle = draw.LineStyle{Color: color.RGBA{0x50, 0x50, 0x50, 0xff}, Width: vg.Points(1.5), Dashes: []vg.Length{vg.Points(2), vg.Points(2)}}
 		if d.PassbandHz <= hi && d.PassbandHz >= lo {
 			add("passband edge "+hz(d.PassbandHz), l, l)
-		} else if leg != nil {
-			leg.Add("passband edge "+hz(d.PassbandHz), l)
+		} else {
+			legAdd("passband edge "+hz(d.PassbandHz), l)
 		}
 	}
 	if d.TargetDB > 0 {
@@ -270,6 +277,23 @@ func responsePanel(d ResponseData, lo, hi, floor, top float64, logx bool, leg *p
 	l, _ := plotter.NewLine(decimate(d.FreqHz, d.TotalDB, lo, hi, floor, logx))
 	l.LineStyle = draw.LineStyle{Color: black, Width: vg.Points(1.8)}
 	add("cascade", l, l)
+	if leg != nil {
+		// Reading order: the cascade, the stages in cascade order, then
+		// the reference marks.
+		rank := func(name string) int {
+			switch {
+			case name == "cascade":
+				return 0
+			case strings.HasPrefix(name, "stage "):
+				return 1
+			}
+			return 2
+		}
+		sort.SliceStable(entries, func(i, j int) bool { return rank(entries[i].name) < rank(entries[j].name) })
+		for _, e := range entries {
+			leg.Add(e.name, e.th)
+		}
+	}
 	return p
 }
 
