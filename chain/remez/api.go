@@ -32,6 +32,13 @@ type Settings struct {
 	Density int
 	// MaxIterations bounds the exchange. Zero means 100.
 	MaxIterations int
+	// GridOnly keeps the reference on the grid points, placed as the 1973
+	// program placed them, instead of moving each extremum to its local
+	// vertex. It solves the discrete problem that implementations following
+	// that program solve, for comparison with them; the default (false)
+	// solves the continuous problem more closely. Reported deviations are
+	// measured with local refinement either way.
+	GridOnly bool
 }
 
 // Result is a designed filter.
@@ -43,32 +50,23 @@ type Result struct {
 	Converged  bool
 }
 
-// ErrNotImplemented is returned by stubs until the engine lands.
-var ErrNotImplemented = errors.New("remez: not implemented yet")
-
-// Design returns the length-n linear-phase (type I for odd n, type II for even n)
-// filter that minimises the weighted maximum error over bands.
-func Design(n int, rate float64, bands []Band, s Settings) (*Result, error) {
-	return nil, ErrNotImplemented
-}
-
 // MinLength returns the shortest filter that meets every band's MaxError,
 // measured on the real response with extrema refined locally. Parity, when
 // 1 or 2, restricts the search to odd (1) or even (2) lengths; 0 allows both.
 // maxTaps bounds the search (0 means 65535).
 func MinLength(rate float64, bands []Band, parity, maxTaps int, s Settings) (*Result, error) {
-	return nil, ErrNotImplemented
+	return nil, errors.New("remez: MinLength not implemented yet")
 }
 
 // HalfBand designs the half-band filter of length 4k-1 with passband [0, fp]
 // and stopband [rate/2-fp, rate/2] by the single-band trick: every other tap
 // is exactly zero and the centre tap is exactly 1/2.
 func HalfBand(k int, fp, rate float64, s Settings) (*Result, error) {
-	return nil, ErrNotImplemented
+	return nil, errors.New("remez: HalfBand not implemented yet")
 }
 
 // MinHalfBand returns the half-band with the smallest k whose deviation
 // (passband and stopband alike) is at most dev.
 func MinHalfBand(fp, rate, dev float64, s Settings) (*Result, error) {
-	return nil, ErrNotImplemented
+	return nil, errors.New("remez: MinHalfBand not implemented yet")
 }

@@ -1,0 +1,284 @@
+package remez
+
+import (
+	"errors"
+	"fmt"
+	"math"
+
+	"gonum.org/v1/gonum/dsp/fourier"
+)
+
+// Convergence: the exchange stops when the largest error on the grid (each
+// extremum at its parabolic vertex) exceeds the levelled deviation by at
+// most this fraction.
+const (
+	tolContinuous = 1e-5
+	tolGrid       = 1e-10
+	// Shorter designs only seed the reference of longer ones.
+	tolSeed = 1e-2
+	// References of at most this many points start evenly spread; longer
+	// ones are scaled from a design of about half the length.
+	seedMin = 256
+	// Coarse grid density and tolerance of the first stage of a long design.
+	coarseDensity = 4
+	tolCoarse     = 1e-3
+)
+
+// ErrNotConverged is wrapped by the error Design returns, together with a
+// best-effort Result, when the exchange does not reach equiripple.
+var ErrNotConverged = errors.New("remez: exchange did not converge")
+
+// Design returns the length-n linear-phase (type I for odd n, type II for
+// even n) filter that minimises the weighted maximum error over bands.
+//
+// When the exchange does not converge within Settings.MaxIterations it
+// returns the best reference's filter (Result.Converged false) together with
+// an error wrapping ErrNotConverged that says what to change. For any other
+// error (an invalid specification) the Result is nil.
+func Design(n int, rate float64, bands []Band, s Settings) (*Result, error) {
+	e, err := newEngine(n, rate, bands, s)
+	if err != nil {
+		return nil, err
+	}
+	return e.design()
+}
+
+func (e *engine) design() (*Result, error) {
+	e.initRef()
+	tol := tolContinuous
+	if e.gridOnly {
+		tol = tolGrid
+	}
+	it, conv, err := e.run(tol, e.maxIter)
+	if err != nil && len(e.xr) == 0 {
+		return nil, err
+	}
+	res := &Result{Iterations: it, Converged: conv, Delta: math.Abs(e.delta)}
+	res.Taps = e.taps()
+	for _, v := range res.Taps {
+		if math.IsNaN(v) || math.IsInf(v, 0) {
+			return nil, fmt.Errorf("remez: n = %d: numerical breakdown (non-finite coefficients); the specification is probably too demanding for double precision: shorten the filter or relax the bands", e.n)
+		}
+	}
+	res.Deviations, _ = e.deviations(res.Taps)
+	if tiny := e.laxCheck(res.Deviations); tiny != nil {
+		return res, tiny
+	}
+	if err != nil {
+		return res, fmt.Errorf("%w after %d iterations: %v", ErrNotConverged, it, err)
+	}
+	if !conv {
+		return res, fmt.Errorf("%w after %d iterations (n = %d, levelled deviation %.3g): raise Settings.MaxIterations, check that the bands leave transition room, or change the length", ErrNotConverged, it, e.n, res.Delta)
+	}
+	return res, nil
+}
+
+// laxCheck reports a specification met to rounding level, where the
+// optimum is not defined in double precision.
+func (e *engine) laxCheck(dev []float64) error {
+	scale := 0.0
+	for i := range e.grid {
+		scale = math.Max(scale, math.Abs(e.bands[e.grid[i].band].desired(e.grid[i].f)))
+	}
+	if scale == 0 {
+		scale = 1
+	}
+	for _, d := range dev {
+		if d > 1e-13*scale {
+			return nil
+		}
+	}
+	return fmt.Errorf("remez: n = %d: every band is met to rounding level (deviations below %.0e): the specification is too lax for double precision; shorten the filter or tighten the bands", e.n, 1e-13*scale)
+}
+
+// initRef chooses the starting reference. Short designs and GridOnly start
+// evenly spread, as the 1973 program does. Longer ones first converge
+// loosely on a coarse grid of the same length, whose own start is scaled
+// from a coarse design of about half the length (reference scaling, Filip
+// 2016); coarse iterations cost a fraction of dense ones, so the dense
+// exchange starts close to the optimum and needs few iterations.
+func (e *engine) initRef() {
+	if e.gridOnly || e.r+1 <= seedMin {
+		e.uniformRef()
+		return
+	}
+	if e.density > coarseDensity {
+		c := e.sibling(e.n, coarseDensity)
+		if c.buildGrid() == nil {
+			c.initRef()
+			if _, _, err := c.run(tolCoarse, 50); err == nil && len(c.ref) == e.r+1 {
+				e.ref = append(e.ref[:0], c.ref...)
+				return
+			}
+		}
+	}
+	n2 := e.n / 2
+	if n2%2 != e.n%2 {
+		n2++
+	}
+	sub := e.sibling(n2, e.density)
+	if sub.buildGrid() != nil {
+		e.uniformRef()
+		return
+	}
+	sub.initRef()
+	if _, _, err := sub.run(tolSeed, 50); err != nil || len(sub.ref) != sub.r+1 {
+		e.uniformRef()
+		return
+	}
+	e.scaledRef(sub.ref, sub.bands)
+}
+
+// sibling returns an engine for length n at grid density d with the same
+// bands, its grid not yet built.
+func (e *engine) sibling(n, d int) *engine {
+	s := &engine{n: n, rate: e.rate, density: d, maxIter: e.maxIter, bands: e.bands, type2: e.type2}
+	if s.type2 {
+		s.r = n / 2
+	} else {
+		s.r = (n + 1) / 2
+	}
+	return s
+}
+
+// taps returns the impulse response of the current polynomial: P is
+// sampled at Chebyshev extreme points, its cosine coefficients come from a
+// DCT-I done with gonum's real FFT on the even extension, and the taps
+// follow from the type I or type II relations.
+func (e *engine) taps() []float64 {
+	r := e.r
+	// P has r cosine coefficients (degree r-1).
+	a := make([]float64, r)
+	l := r - 1
+	if l == 0 {
+		a[0] = bary(1, e.xr, e.mu, e.c)
+	} else {
+		seq := make([]float64, 2*l)
+		for j := 0; j <= l; j++ {
+			var x float64
+			switch {
+			case 2*j == l:
+				x = 0
+			case j == 0:
+				x = 1
+			case j == l:
+				x = -1
+			default:
+				x = math.Cos(math.Pi * float64(j) / float64(l))
+			}
+			v := bary(x, e.xr, e.mu, e.c)
+			seq[j] = v
+			if j > 0 && j < l {
+				seq[2*l-j] = v
+			}
+		}
+		coef := fourier.NewFFT(2*l).Coefficients(nil, seq)
+		for k := 0; k <= l; k++ {
+			a[k] = real(coef[k]) / float64(l)
+		}
+		a[0] /= 2
+		a[l] /= 2
+	}
+	h := make([]float64, e.n)
+	if !e.type2 {
+		m := r - 1 // centre index
+		h[m] = a[0]
+		for k := 1; k < r; k++ {
+			h[m-k] = a[k] / 2
+			h[m+k] = a[k] / 2
+		}
+		return h
+	}
+	// Type II: A = cos(w/2) sum b_k cos(k w) = sum_m g_m cos((m-1/2) w),
+	// m = 1..M, with h[M-m] = h[M-1+m] = g_m/2 and M = r.
+	mm := r
+	g := func(m int) float64 {
+		var v float64
+		if m-1 >= 0 && m-1 < r {
+			v += a[m-1] / 2
+		}
+		if m < r {
+			v += a[m] / 2
+		}
+		if m == 1 {
+			v += a[0] / 2
+		}
+		return v
+	}
+	for m := 1; m <= mm; m++ {
+		v := g(m) / 2
+		h[mm-m] = v
+		h[mm-1+m] = v
+	}
+	return h
+}
+
+// deviations measures, per band, the largest |A(f) - D(f)| and the largest
+// |A(f) - D(f)| times the WeightFunc shape (1 when nil) on the response of
+// h. Every local maximum of the grid error is first refined by safeguarded
+// parabolic search on the interpolant, then evaluated on h itself; band
+// edges are always included. It expects evalGrid to have run on the
+// current polynomial.
+func (e *engine) deviations(h []float64) (dev, wdev []float64) {
+	nb := len(e.bands)
+	dev = make([]float64, nb)
+	wdev = make([]float64, nb)
+	for b := range nb {
+		bd := &e.bands[b]
+		g := e.grid[e.bstart[b]:e.bstart[b+1]]
+		unw := func(p *point) float64 { return math.Abs(p.e) / bd.wt(p.f) }
+		fu := func(f float64) float64 {
+			q := e.mkpoint(f, b)
+			return math.Abs(e.errAt(&q)) / bd.wt(f)
+		}
+		measure := func(f float64) {
+			d := math.Abs(Amplitude(h, f, 1) - bd.desired(f))
+			dev[b] = math.Max(dev[b], d)
+			shape := 1.0
+			if bd.weightFn != nil {
+				shape = bd.weightFn(f * e.rate)
+			}
+			wdev[b] = math.Max(wdev[b], d*shape)
+		}
+		for i := range g {
+			if i == 0 || i == len(g)-1 {
+				measure(g[i].f)
+				continue
+			}
+			ul, uc, ur := unw(&g[i-1]), unw(&g[i]), unw(&g[i+1])
+			if !(uc >= ul && uc >= ur) {
+				continue
+			}
+			measure(refineMax(fu, g[i-1].f, g[i].f, g[i+1].f, ul, uc, ur))
+		}
+	}
+	return dev, wdev
+}
+
+// refineMax returns an abscissa of a local maximum of fn in (a, c) near b,
+// where fn(b) = fb is at least fa and fc, by safeguarded successive
+// parabolic interpolation.
+func refineMax(fn func(float64) float64, a, b, c, fa, fb, fc float64) float64 {
+	for range 8 {
+		v := vertex(a, b, c, fa, fb, fc)
+		if v == b || math.Abs(v-b) <= 1e-12*math.Abs(c-a) {
+			break
+		}
+		fv := fn(v)
+		if fv > fb {
+			if v < b {
+				c, fc = b, fb
+			} else {
+				a, fa = b, fb
+			}
+			b, fb = v, fv
+		} else {
+			if v < b {
+				a, fa = v, fv
+			} else {
+				c, fc = v, fv
+			}
+		}
+	}
+	return b
+}

@@ -1,0 +1,667 @@
+package remez
+
+import (
+	"errors"
+	"fmt"
+	"math"
+	"os"
+	"runtime"
+	"sync"
+)
+
+// point is a frequency of the dense grid or of a reference, with what the
+// exchange needs there. f is normalised (cycles per sample); x = cos(2 pi f);
+// y = sin^2(pi f) and z = cos^2(pi f) give x differences to full relative
+// precision near x = 1 and x = -1; d and w are the desired value and the
+// weight of the approximation problem (divided and multiplied by
+// cos(pi f) for type II); e is the weighted error there.
+type point struct {
+	f, x, y, z float64
+	d, w, e    float64
+	band       int
+}
+
+// xdiff returns x_a - x_b without the cancellation of subtracting two
+// numbers close to 1 (or to -1).
+func xdiff(a, b *point) float64 {
+	if a.x+b.x >= 0 {
+		return 2 * (b.y - a.y)
+	}
+	return 2 * (a.z - b.z)
+}
+
+type nband struct {
+	lo, hi   float64 // normalised edges
+	gain     float64
+	weight   float64
+	gainFn   func(float64) float64
+	weightFn func(float64) float64
+	rate     float64
+	// A seed design's band is an affine image of the user's band; specLo
+	// and specScale map its frequencies back for GainFunc and WeightFunc.
+	specLo, specScale float64
+}
+
+// spec maps a normalised frequency of this band to Hz in the user's band.
+func (b *nband) spec(f float64) float64 {
+	if b.specScale == 0 {
+		return f * b.rate
+	}
+	return (b.specLo + (f-b.lo)*b.specScale) * b.rate
+}
+
+func (b *nband) desired(f float64) float64 {
+	if b.gainFn != nil {
+		return b.gainFn(b.spec(f))
+	}
+	return b.gain
+}
+
+func (b *nband) wt(f float64) float64 {
+	if b.weightFn != nil {
+		return b.weightFn(b.spec(f))
+	}
+	return b.weight
+}
+
+// engine holds one design's grid, reference and work space.
+var debugRemez = os.Getenv("REMEZ_DEBUG") != ""
+
+type engine struct {
+	n, r     int // taps, basis functions (reference has r+1 points)
+	type2    bool
+	rate     float64
+	density  int
+	maxIter  int
+	gridOnly bool
+	bands    []nband
+	grid     []point
+	bstart   []int // grid[bstart[b]:bstart[b+1]] is band b
+
+	ref   []point // r+1
+	delta float64
+	// interpolation data of the levelled polynomial on the first r
+	// reference points
+	xr, mu, c []float64
+	lam       []float64
+	mant      []float64
+	expo      []int
+
+	cand []point // candidate extrema
+	tmp  []point
+	best []point
+}
+
+// mkpoint fills a point at normalised frequency f in band b.
+func (e *engine) mkpoint(f float64, b int) point {
+	s, c := math.Sincos(math.Pi * f)
+	p := point{f: f, x: math.Cos(2 * math.Pi * f), y: s * s, z: c * c, band: b}
+	bd := &e.bands[b]
+	p.d = bd.desired(f)
+	p.w = bd.wt(f)
+	if e.type2 {
+		p.d /= c
+		p.w *= c
+	}
+	return p
+}
+
+// newEngine validates the specification and builds the grid.
+func newEngine(n int, rate float64, bands []Band, s Settings) (*engine, error) {
+	if n < 3 {
+		return nil, fmt.Errorf("remez: length n = %d: need at least 3 taps", n)
+	}
+	if !(rate > 0) || math.IsInf(rate, 0) {
+		return nil, fmt.Errorf("remez: rate = %v Hz: must be positive and finite", rate)
+	}
+	if len(bands) == 0 {
+		return nil, errors.New("remez: no bands: give at least one band")
+	}
+	if s.Density < 0 {
+		return nil, fmt.Errorf("remez: Settings.Density = %d: must be at least 1 (0 means 16)", s.Density)
+	}
+	if s.MaxIterations < 0 {
+		return nil, fmt.Errorf("remez: Settings.MaxIterations = %d: must be at least 1 (0 means 100)", s.MaxIterations)
+	}
+	e := &engine{n: n, rate: rate, density: s.Density, maxIter: s.MaxIterations, gridOnly: s.GridOnly}
+	if e.density == 0 {
+		e.density = 16
+	}
+	if e.maxIter == 0 {
+		e.maxIter = 100
+	}
+	e.type2 = n%2 == 0
+	if e.type2 {
+		e.r = n / 2
+	} else {
+		e.r = (n + 1) / 2
+	}
+	nyq := rate / 2
+	for i, b := range bands {
+		switch {
+		case math.IsNaN(b.Lo) || math.IsNaN(b.Hi) || b.Lo < 0 || b.Hi > nyq:
+			return nil, fmt.Errorf("remez: band %d edges [%v, %v] Hz: must lie within [0, %v] (rate/2)", i, b.Lo, b.Hi, nyq)
+		case !(b.Lo < b.Hi):
+			return nil, fmt.Errorf("remez: band %d edges [%v, %v] Hz: Lo must be below Hi (zero-width or reversed band)", i, b.Lo, b.Hi)
+		case i > 0 && b.Lo < bands[i-1].Hi:
+			return nil, fmt.Errorf("remez: band %d starts at %v Hz, inside band %d ending at %v Hz: bands must be in increasing order and must not overlap", i, b.Lo, i-1, bands[i-1].Hi)
+		case b.GainFunc == nil && (math.IsNaN(b.Gain) || math.IsInf(b.Gain, 0)):
+			return nil, fmt.Errorf("remez: band %d Gain = %v: must be finite", i, b.Gain)
+		case b.WeightFunc == nil && (math.IsNaN(b.Weight) || math.IsInf(b.Weight, 0) || b.Weight < 0):
+			return nil, fmt.Errorf("remez: band %d Weight = %v: must be positive and finite (0 means 1)", i, b.Weight)
+		}
+		w := b.Weight
+		if w == 0 {
+			w = 1
+		}
+		e.bands = append(e.bands, nband{lo: b.Lo / rate, hi: b.Hi / rate, gain: b.Gain, weight: w,
+			gainFn: b.GainFunc, weightFn: b.WeightFunc, rate: rate})
+	}
+	if len(bands) > e.r {
+		return nil, fmt.Errorf("remez: %d bands for n = %d taps: a length-%d filter has %d degrees of freedom, so use at most %d bands or a longer filter", len(bands), n, n, e.r, e.r)
+	}
+	if err := e.buildGrid(); err != nil {
+		return nil, err
+	}
+	return e, nil
+}
+
+// buildGrid lays the dense grid. The spacing is 0.5/(density r) as in the
+// 1973 program. With GridOnly the points are placed exactly as that program
+// did (so results can be compared with implementations that follow it);
+// otherwise each band is split into equal steps no longer than the spacing,
+// so both of its edges are on the grid.
+func (e *engine) buildGrid() error {
+	delf := 0.5 / float64(e.density*e.r)
+	e.grid = e.grid[:0]
+	e.bstart = append(e.bstart[:0], 0)
+	for bi := range e.bands {
+		b := &e.bands[bi]
+		if e.gridOnly {
+			f := b.lo
+			for {
+				e.grid = append(e.grid, point{f: f})
+				f += delf
+				if f > b.hi {
+					e.grid[len(e.grid)-1].f = b.hi
+					break
+				}
+			}
+		} else {
+			steps := int(math.Ceil((b.hi - b.lo) / delf * (1 - 1e-12)))
+			if steps < 1 {
+				steps = 1
+			}
+			for k := 0; k <= steps; k++ {
+				f := b.lo + (b.hi-b.lo)*float64(k)/float64(steps)
+				if k == steps {
+					f = b.hi
+				}
+				e.grid = append(e.grid, point{f: f})
+			}
+		}
+		// A type II filter is zero at rate/2: the 1973 program drops a last
+		// point closer than one spacing to it, and so do we.
+		if e.type2 && bi == len(e.bands)-1 {
+			if last := len(e.grid) - 1; e.grid[last].f > 0.5-delf && last >= e.bstart[bi] {
+				e.grid = e.grid[:last]
+			}
+		}
+		if len(e.grid) == e.bstart[bi] {
+			return fmt.Errorf("remez: band %d [%v, %v] Hz has no grid point left (an even length forces a zero at rate/2): use an odd length or end the band lower", bi, b.lo*e.rate, b.hi*e.rate)
+		}
+		e.bstart = append(e.bstart, len(e.grid))
+	}
+	for i := range e.grid {
+		bi := 0
+		for i >= e.bstart[bi+1] {
+			bi++
+		}
+		g := e.mkpoint(e.grid[i].f, bi)
+		if math.IsNaN(g.d) || math.IsInf(g.d, 0) {
+			return fmt.Errorf("remez: band %d GainFunc(%v Hz) = %v: the desired gain must be finite", bi, g.f*e.rate, e.bands[bi].desired(g.f))
+		}
+		if wt := e.bands[bi].wt(g.f); !(wt > 0) || math.IsInf(wt, 0) {
+			return fmt.Errorf("remez: band %d WeightFunc(%v Hz) = %v: the weight must be positive and finite", bi, g.f*e.rate, wt)
+		}
+		e.grid[i] = g
+	}
+	if len(e.grid) < e.r+1 {
+		return fmt.Errorf("remez: only %d grid points for n = %d taps (%d needed): raise Settings.Density, widen the bands or shorten the filter", len(e.grid), e.n, e.r+1)
+	}
+	return nil
+}
+
+// uniformRef places the initial reference at evenly spaced grid indices,
+// as the 1973 program does.
+func (e *engine) uniformRef() {
+	m := e.r + 1
+	e.ref = e.ref[:0]
+	ng := len(e.grid)
+	step := float64(ng-1) / float64(e.r)
+	for j := 0; j < e.r; j++ {
+		e.ref = append(e.ref, e.grid[int(float64(j)*step)])
+	}
+	e.ref = append(e.ref, e.grid[ng-1])
+	_ = m
+}
+
+// scaledRef sets the initial reference from the converged reference sub of
+// a shorter design of the same bands (reference scaling, Filip 2016): each
+// band gets its share of points in proportion, placed by interpolating the
+// shorter design's points in that band.
+func (e *engine) scaledRef(sub []point, sub0 []nband) {
+	m := e.r + 1
+	nb := len(e.bands)
+	cnt := make([]int, nb)
+	for _, p := range sub {
+		cnt[p.band]++
+	}
+	want := make([]int, nb)
+	frac := make([]float64, nb)
+	tot := 0
+	for b := range nb {
+		v := float64(cnt[b]) * float64(m) / float64(len(sub))
+		want[b] = int(v)
+		frac[b] = v - float64(want[b])
+		tot += want[b]
+	}
+	for tot < m { // hand the remainder to the largest fractions
+		bi := 0
+		for b := range nb {
+			if frac[b] > frac[bi] {
+				bi = b
+			}
+		}
+		want[bi]++
+		frac[bi] = -1
+		tot++
+	}
+	e.ref = e.ref[:0]
+	pos := 0
+	for b := range nb {
+		ps := sub[pos : pos+cnt[b]]
+		pos += cnt[b]
+		k := want[b]
+		lo, hi := e.grid[e.bstart[b]].f, e.grid[e.bstart[b+1]-1].f
+		// The seed's band may be narrower (wider transitions): map affinely.
+		slo, shi := sub0[b].lo, sub0[b].hi
+		ps = append([]point(nil), ps...)
+		for i := range ps {
+			ps[i].f = e.bands[b].lo + (ps[i].f-slo)*(e.bands[b].hi-e.bands[b].lo)/(shi-slo)
+		}
+		for j := range k {
+			var f float64
+			switch {
+			case len(ps) >= 2 && k >= 2:
+				t := float64(j) * float64(len(ps)-1) / float64(k-1)
+				i0 := int(t)
+				if i0 >= len(ps)-1 {
+					i0 = len(ps) - 2
+				}
+				u := t - float64(i0)
+				f = ps[i0].f + u*(ps[i0+1].f-ps[i0].f)
+			case len(ps) == 1 && k == 1:
+				f = ps[0].f
+			case k == 1:
+				f = 0.5 * (lo + hi)
+			default:
+				f = lo + (hi-lo)*float64(j)/float64(k-1)
+			}
+			f = math.Min(math.Max(f, lo), hi)
+			e.ref = append(e.ref, e.mkpoint(f, b))
+		}
+	}
+	if debugRemez {
+		fmt.Println("scale", e.n, "sub", len(sub), cnt, "->", want)
+	}
+	// Interpolation keeps the points increasing; guard against ties.
+	for i := 1; i < len(e.ref); i++ {
+		if !(e.ref[i].f > e.ref[i-1].f) {
+			e.uniformRef()
+			return
+		}
+	}
+}
+
+// level computes the levelled deviation delta of the current reference and
+// the barycentric data of the polynomial that interpolates
+// d_i - (-1)^i delta / w_i, following Berrut and Trefethen (2004). The
+// weights are products of r differences, kept as mantissa and exponent so
+// that they neither underflow nor overflow.
+func (e *engine) level() error {
+	m := len(e.ref)
+	e.lam = grow(e.lam, m)
+	e.mant = grow(e.mant, m)
+	if cap(e.expo) < m {
+		e.expo = make([]int, m)
+	}
+	e.expo = e.expo[:m]
+	emax := math.MinInt
+	for i := range m {
+		pi := &e.ref[i]
+		prod := 1.0
+		ex := 0
+		cnt := 0
+		for j := range m {
+			if j == i {
+				continue
+			}
+			prod *= 2 * xdiff(pi, &e.ref[j])
+			cnt++
+			if cnt&7 == 0 {
+				fr, x := math.Frexp(prod)
+				prod, ex = fr, ex+x
+			}
+		}
+		fr, x := math.Frexp(prod)
+		if fr == 0 || math.IsNaN(fr) || math.IsInf(fr, 0) {
+			return errors.New("remez: reference points coincide (numerical breakdown)")
+		}
+		e.mant[i] = 1 / fr
+		e.expo[i] = -(ex + x)
+		emax = max(emax, e.expo[i])
+	}
+	var num, den float64
+	for i := range m {
+		l := math.Ldexp(e.mant[i], e.expo[i]-emax)
+		e.lam[i] = l
+		num += l * e.ref[i].d
+		if i%2 == 0 {
+			den += l / e.ref[i].w
+		} else {
+			den -= l / e.ref[i].w
+		}
+	}
+	if den == 0 || math.IsNaN(num/den) {
+		return errors.New("remez: levelled deviation undefined (numerical breakdown)")
+	}
+	e.delta = num / den
+	r := m - 1
+	e.xr = grow(e.xr, r)
+	e.mu = grow(e.mu, r)
+	e.c = grow(e.c, r)
+	last := &e.ref[r]
+	for i := range r {
+		p := &e.ref[i]
+		e.xr[i] = p.x
+		e.mu[i] = e.lam[i] * xdiff(p, last)
+		s := 1.0
+		if i%2 == 1 {
+			s = -1
+		}
+		e.c[i] = p.d - s*e.delta/p.w
+	}
+	return nil
+}
+
+func grow(s []float64, n int) []float64 {
+	if cap(s) < n {
+		return make([]float64, n)
+	}
+	return s[:n]
+}
+
+// bary evaluates the interpolating polynomial at x by the second (true)
+// barycentric formula. Terms are taken in fours sharing one division (the
+// differences are at least ~1e-12 apart, so their products stay normal).
+func bary(x float64, xr, mu, c []float64) float64 {
+	n := len(xr)
+	mu = mu[:n]
+	c = c[:n]
+	var n0, d0, n1, d1 float64
+	k := 0
+	for ; k+3 < n; k += 4 {
+		a := x - xr[k]
+		b := x - xr[k+1]
+		cc := x - xr[k+2]
+		d := x - xr[k+3]
+		ab := a * b
+		cd := cc * d
+		q := 1 / (ab * cd)
+		qab := cd * q // 1/(a b)
+		qcd := ab * q // 1/(c d)
+		t0 := mu[k] * b * qab
+		t1 := mu[k+1] * a * qab
+		t2 := mu[k+2] * d * qcd
+		t3 := mu[k+3] * cc * qcd
+		n0 += t0*c[k] + t1*c[k+1]
+		d0 += t0 + t1
+		n1 += t2*c[k+2] + t3*c[k+3]
+		d1 += t2 + t3
+	}
+	for ; k < n; k++ {
+		t := mu[k] / (x - xr[k])
+		n0 += t * c[k]
+		d0 += t
+	}
+	p := (n0 + n1) / (d0 + d1)
+	if math.IsNaN(p) || math.IsInf(p, 0) {
+		for k := range xr {
+			if x == xr[k] {
+				return c[k]
+			}
+		}
+	}
+	return p
+}
+
+// errAt is the weighted error at point p of the current polynomial.
+func (e *engine) errAt(p *point) float64 {
+	return p.w * (p.d - bary(p.x, e.xr, e.mu, e.c))
+}
+
+// evalGrid sets e on every grid point. Points are independent, so the
+// split over goroutines cannot change any result.
+func (e *engine) evalGrid() {
+	ng := len(e.grid)
+	work := ng * len(e.xr)
+	nw := runtime.GOMAXPROCS(0)
+	if work < 1<<18 || nw < 2 {
+		for i := range e.grid {
+			e.grid[i].e = e.errAt(&e.grid[i])
+		}
+		return
+	}
+	chunk := (ng + nw - 1) / nw
+	var wg sync.WaitGroup
+	for lo := 0; lo < ng; lo += chunk {
+		hi := min(lo+chunk, ng)
+		wg.Add(1)
+		go func(lo, hi int) {
+			defer wg.Done()
+			for i := lo; i < hi; i++ {
+				e.grid[i].e = e.errAt(&e.grid[i])
+			}
+		}(lo, hi)
+	}
+	wg.Wait()
+}
+
+// vertex returns the abscissa of the parabola's vertex through (a, fa),
+// (b, fb), (c, fc), or b when the three are collinear.
+func vertex(a, b, c, fa, fb, fc float64) float64 {
+	p := (b-a)*(fb-fc) - (b-c)*(fb-fa)
+	if p == 0 {
+		return b
+	}
+	v := b - 0.5*((b-a)*(b-a)*(fb-fc)-(b-c)*(b-c)*(fb-fa))/p
+	if !(v > a && v < c) {
+		return b
+	}
+	return v
+}
+
+// extrema collects into e.cand the local extrema of the grid error in every
+// band (band edges always included), each moved to its parabolic vertex
+// unless GridOnly, and returns the largest |error| among them.
+func (e *engine) extrema() float64 {
+	e.cand = e.cand[:0]
+	maxErr := 0.0
+	for b := range e.bands {
+		g := e.grid[e.bstart[b]:e.bstart[b+1]]
+		for i := range g {
+			p := g[i]
+			if i > 0 && i < len(g)-1 {
+				l, r := g[i-1].e, g[i+1].e
+				if !((p.e > 0 && p.e >= l && p.e >= r) || (p.e < 0 && p.e <= l && p.e <= r)) {
+					continue
+				}
+				if !e.gridOnly {
+					v := vertex(g[i-1].f, p.f, g[i+1].f, l, p.e, r)
+					if v != p.f {
+						q := e.mkpoint(v, b)
+						q.e = e.errAt(&q)
+						if math.Abs(q.e) > math.Abs(p.e) && q.e*p.e > 0 {
+							p = q
+						}
+					}
+				}
+			}
+			e.cand = append(e.cand, p)
+			maxErr = math.Max(maxErr, math.Abs(p.e))
+		}
+	}
+	return maxErr
+}
+
+// exchange builds the next reference from the candidates and the current
+// reference: merged in frequency order, reduced to one point (the largest)
+// per run of equal sign, then trimmed to r+1 points keeping alternation.
+func (e *engine) exchange() error {
+	m := e.r + 1
+	// Current reference errors are +-delta by construction.
+	for i := range e.ref {
+		if i%2 == 0 {
+			e.ref[i].e = e.delta
+		} else {
+			e.ref[i].e = -e.delta
+		}
+	}
+	e.tmp = e.tmp[:0]
+	i, j := 0, 0
+	for i < len(e.cand) || j < len(e.ref) {
+		var p point
+		if j >= len(e.ref) || (i < len(e.cand) && e.cand[i].f <= e.ref[j].f) {
+			p = e.cand[i]
+			i++
+		} else {
+			p = e.ref[j]
+			j++
+		}
+		if p.e == 0 {
+			continue
+		}
+		if k := len(e.tmp) - 1; k >= 0 && (e.tmp[k].e > 0) == (p.e > 0) {
+			if math.Abs(p.e) > math.Abs(e.tmp[k].e) {
+				e.tmp[k] = p
+			}
+			continue
+		}
+		e.tmp = append(e.tmp, p)
+	}
+	s := e.tmp
+	for len(s) > m {
+		if len(s) == m+1 {
+			if math.Abs(s[0].e) < math.Abs(s[len(s)-1].e) {
+				s = s[1:]
+			} else {
+				s = s[:len(s)-1]
+			}
+			break
+		}
+		k := 0
+		for q := range s {
+			if math.Abs(s[q].e) < math.Abs(s[k].e) {
+				k = q
+			}
+		}
+		switch {
+		case k == 0:
+			s = s[1:]
+		case k == len(s)-1:
+			s = s[:k]
+		default:
+			// Removing an inner point joins two of equal sign: keep the
+			// larger of them.
+			keep := s[k-1]
+			if math.Abs(s[k+1].e) > math.Abs(keep.e) {
+				keep = s[k+1]
+			}
+			s[k-1] = keep
+			s = append(s[:k], s[k+2:]...)
+		}
+	}
+	if len(s) < m {
+		return fmt.Errorf("remez: only %d alternating extrema for %d reference points (numerical breakdown)", len(s), m)
+	}
+	e.ref = append(e.ref[:0], s...)
+	return nil
+}
+
+// run iterates the exchange from the current reference until the largest
+// error exceeds the levelled deviation by at most tol (relative). It
+// returns the iteration count and whether it converged. On failure the
+// engine holds the best reference seen, levelled.
+func (e *engine) run(tol float64, maxIter int) (int, bool, error) {
+	bestGap := math.Inf(1)
+	var err error
+	it := 0
+	conv := false
+	for it < maxIter {
+		it++
+		if err = e.level(); err != nil {
+			break
+		}
+		e.evalGrid()
+		maxErr := e.extrema()
+		ad := math.Abs(e.delta)
+		gap := (maxErr - ad) / ad
+		if ad == 0 {
+			gap = math.Inf(1)
+		}
+		if debugRemez {
+			fmt.Printf("n=%d it=%d delta=%.10g gap=%.3g ncand=%d\n", e.n, it, e.delta, gap, len(e.cand))
+		}
+		if gap < bestGap {
+			bestGap = gap
+			e.best = append(e.best[:0], e.ref...)
+		}
+		if debugRemez {
+			cnt := make([]int, len(e.bands))
+			for _, p := range e.ref {
+				cnt[p.band]++
+			}
+			mi := 0
+			for i := range e.grid {
+				if math.Abs(e.grid[i].e) > math.Abs(e.grid[mi].e) {
+					mi = i
+				}
+			}
+			fmt.Println("  ref counts", cnt, "max at", e.grid[mi].f, e.grid[mi].e, "idx", mi, len(e.grid))
+			if it == 1 {
+				for i := range e.ref {
+					if i < 4 || (i > cnt[0]-4 && i < cnt[0]+4) || i > len(e.ref)-4 {
+						fmt.Printf("    ref %d f=%.6f\n", i, e.ref[i].f)
+					}
+				}
+			}
+		}
+		if gap <= tol {
+			conv = true
+			break
+		}
+		if err = e.exchange(); err != nil {
+			break
+		}
+	}
+	if !conv && len(e.best) > 0 {
+		e.ref = append(e.ref[:0], e.best...)
+		if lerr := e.level(); lerr != nil && err == nil {
+			err = lerr
+		}
+		e.evalGrid()
+		e.extrema()
+	}
+	return it, conv, err
+}
