@@ -67,10 +67,16 @@ type StageWidths struct {
 	InputBits int
 	// FIR: the quantised coefficients (full impulse response) and their measured
 	// per-band deviations; MeetsBands says whether every band is met (false
-	// only when Words.CoefBits fixes a width too narrow for the bands).
+	// when Words.CoefBits fixes a width too narrow for the bands, or when the
+	// float design itself misses them: see FloatMeets).
 	Coefficients Coefficients
 	Deviations   []float64
 	MeetsBands   bool
+	// FloatDeviations are the float taps' per-band deviations; FloatMeets is
+	// false when some exceed their band's MaxError. Such a band is then held
+	// to its float deviation plus 1/16 when choosing the width.
+	FloatDeviations []float64
+	FloatMeets      bool
 
 	// AccumulatorBits is the worst-case width of the sum of products (FIR) or
 	// the full register width Bin + ceil(N log2(RM)) (CIC).
@@ -188,7 +194,7 @@ func planCIC(st Stage, rate float64, in, ob int) (StageWidths, error) {
 		return StageWidths{}, err
 	}
 	sw := StageWidths{CIC: true, R: st.R, InputBits: in, AccumulatorBits: p.FullBits,
-		Pruning: &p, OutputBits: p.OutputBits, OutputShift: p.Dropped[2*p.N], Gain: p.Gain(), MeetsBands: true}
+		Pruning: &p, OutputBits: p.OutputBits, OutputShift: p.Dropped[2*p.N], Gain: p.Gain(), MeetsBands: true, FloatMeets: true}
 	for j := 0; j < 2*p.N; j++ {
 		kind, idx := "integrator", j+1
 		if j >= p.N {
@@ -219,9 +225,26 @@ func planFIR(st Stage, rate float64, in, ob, coefBits int, s Settings) (StageWid
 	q := s.Quant
 	q.HalfBand = st.HalfBand
 	sw := StageWidths{HalfBand: st.HalfBand, R: st.R, InputBits: in, OutputBits: ob}
+	for i, b := range st.Bands {
+		if !(b.MaxError > 0) {
+			return StageWidths{}, fmt.Errorf("band %d [%g, %g] Hz has MaxError %g; it must be > 0", i, b.Lo, b.Hi, b.MaxError)
+		}
+	}
+	// A band the float design itself misses is held to its float deviation
+	// plus 1/16 instead, so that a width is still found and the shortfall,
+	// which no word length can fix, shows in FloatDeviations.
+	sw.FloatDeviations = Deviations(st.Taps, rate, st.Bands, q.Density)
+	bands := append([]remez.Band(nil), st.Bands...)
+	sw.FloatMeets = true
+	for i := range bands {
+		if sw.FloatDeviations[i] > bands[i].MaxError {
+			sw.FloatMeets = false
+			bands[i].MaxError = sw.FloatDeviations[i] * (1 + 1.0/16)
+		}
+	}
 	var err error
 	if coefBits == 0 {
-		sw.Coefficients, sw.Deviations, err = MinCoefBits(st.Taps, rate, st.Bands, q)
+		sw.Coefficients, sw.Deviations, err = MinCoefBits(st.Taps, rate, bands, q)
 		if err != nil {
 			return StageWidths{}, err
 		}
@@ -230,8 +253,9 @@ func planFIR(st Stage, rate float64, in, ob, coefBits int, s Settings) (StageWid
 		if st.HalfBand && !IsHalfBand(st.Taps, 1e-6) {
 			return StageWidths{}, fmt.Errorf("taps of length %d are not a half-band", len(st.Taps))
 		}
-		sw.Coefficients, sw.Deviations, sw.MeetsBands = TryWidth(st.Taps, rate, st.Bands, coefBits, q)
+		sw.Coefficients, sw.Deviations, sw.MeetsBands = TryWidth(st.Taps, rate, bands, coefBits, q)
 	}
+	sw.MeetsBands = sw.MeetsBands && sw.FloatMeets
 	cf := sw.Coefficients
 	sum := cf.AbsSum()
 	hi, lo := bits.Mul64(uint64(sum), uint64(1)<<(in-1))

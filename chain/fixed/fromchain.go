@@ -1,0 +1,117 @@
+package fixed
+
+import (
+	"fmt"
+
+	"stepdown/chain"
+	"stepdown/chain/remez"
+)
+
+// FromChain converts a designed chain and its spec into the planner's terms.
+// Each FIR and half-band stage must meet the bands of its chain.Requirement:
+// the passband [0, Req.Passband] within Req.Dp (relative to the CIC droop it
+// corrects, |A H_cic - 1| <= Dp, for a compensating stage, as the chain
+// package designs it) and every stopband within Req.Ds. The words come from
+// the spec: InputBits, OutputBits between stages and at the output (as the
+// chain package prunes its CICs), and CoefBits (zero: auto).
+func FromChain(spec chain.Spec, c *chain.Chain) (Cascade, Words, error) {
+	spec, err := spec.Normalize()
+	if err != nil {
+		return Cascade{}, Words{}, err
+	}
+	if c == nil || len(c.Stages) == 0 {
+		return Cascade{}, Words{}, fmt.Errorf("fixed: the chain has no stages")
+	}
+	cas := Cascade{InputRate: c.InputRate, Complex: c.Complex, Passband: spec.Passband, Protected: spec.Protected}
+	rates := c.Rates()
+	for i, s := range c.Stages {
+		switch st := s.(type) {
+		case chain.CICStage:
+			cas.Stages = append(cas.Stages, Stage{CIC: true, N: st.N, M: st.M, R: st.R})
+		case *chain.CICStage:
+			cas.Stages = append(cas.Stages, Stage{CIC: true, N: st.N, M: st.M, R: st.R})
+		case chain.FIRStage:
+			fs, err := firFromChain(st, c, rates, i)
+			if err != nil {
+				return Cascade{}, Words{}, err
+			}
+			cas.Stages = append(cas.Stages, fs)
+		case *chain.FIRStage:
+			fs, err := firFromChain(*st, c, rates, i)
+			if err != nil {
+				return Cascade{}, Words{}, err
+			}
+			cas.Stages = append(cas.Stages, fs)
+		default:
+			return Cascade{}, Words{}, fmt.Errorf("fixed: stage %d has unknown type %T", i+1, s)
+		}
+	}
+	w := Words{InputBits: spec.InputBits, OutputBits: spec.OutputBits, DataBits: spec.OutputBits, CoefBits: spec.CoefBits}
+	return cas, w, nil
+}
+
+func firFromChain(st chain.FIRStage, c *chain.Chain, rates []float64, i int) (Stage, error) {
+	if len(st.Taps) == 0 {
+		return Stage{}, fmt.Errorf("fixed: stage %d has no taps (an estimate cannot be quantised)", i+1)
+	}
+	r := st.Req
+	if !(r.Dp > 0) || !(r.Ds > 0) || !(r.Passband > 0) {
+		return Stage{}, fmt.Errorf("fixed: stage %d carries no requirement (Dp %g, Ds %g, passband %g Hz)", i+1, r.Dp, r.Ds, r.Passband)
+	}
+	pass := remez.Band{Lo: 0, Hi: r.Passband, Gain: 1, MaxError: r.Dp}
+	if len(r.Compensates) > 0 {
+		hc := droop(c, rates, r.Compensates)
+		pass.Gain = 0
+		pass.GainFunc = func(f float64) float64 { return 1 / hc(f) }
+		pass.WeightFunc = hc
+	}
+	bands := []remez.Band{pass}
+	for _, b := range r.Stopbands {
+		bands = append(bands, remez.Band{Lo: b.Lo, Hi: b.Hi, MaxError: r.Ds})
+	}
+	return Stage{R: st.R, Taps: st.Taps, HalfBand: st.HalfBand, Bands: bands}, nil
+}
+
+// droop returns the product of the listed CIC stages' gains at f Hz; f lies in
+// the passband, below every earlier Nyquist rate, so each CIC sees f itself.
+func droop(c *chain.Chain, rates []float64, idx []int) func(float64) float64 {
+	type cr struct {
+		s    chain.Stage
+		rate float64
+	}
+	var cs []cr
+	for _, j := range idx {
+		cs = append(cs, cr{c.Stages[j], rates[j]})
+	}
+	return func(f float64) float64 {
+		g := 1.0
+		for _, v := range cs {
+			g *= v.s.Gain(f, v.rate)
+		}
+		return g
+	}
+}
+
+// Result is everything the package reports on one chain.
+type Result struct {
+	Widths  *Widths
+	BitTrue BitTrueResult
+}
+
+// Evaluate is the one call for a designed chain: FromChain, Plan and BitTrue.
+// sig is the test signal (its zero value is the default).
+func Evaluate(spec chain.Spec, c *chain.Chain, s Settings, sig Signal) (*Result, error) {
+	cas, w, err := FromChain(spec, c)
+	if err != nil {
+		return nil, err
+	}
+	ws, err := Plan(cas, w, s)
+	if err != nil {
+		return nil, err
+	}
+	bt, err := BitTrue(cas, ws, sig)
+	if err != nil {
+		return nil, err
+	}
+	return &Result{Widths: ws, BitTrue: bt}, nil
+}

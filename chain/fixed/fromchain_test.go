@@ -1,0 +1,120 @@
+package fixed
+
+import (
+	"math"
+	"strings"
+	"testing"
+
+	"stepdown/chain"
+)
+
+// handChain builds an invented chain without the remez engine: 12.8 MHz to
+// 400 kHz, fp = 50 kHz, FIR by 8 (lowpass), half-band, FIR by 2, with
+// Kaiser-window taps and the chain package's own requirements.
+func handChain(t *testing.T) (chain.Spec, *chain.Chain) {
+	t.Helper()
+	spec := chain.Spec{InputRate: 12.8e6, OutputRate: 400e3, Passband: 50e3, RippleDB: 0.1, RejectionDB: 80, InputBits: 14, OutputBits: 20}
+	plan := []chain.StagePlan{{Kind: chain.FIR, Factor: 8, Variant: chain.Lowpass}, {Kind: chain.HalfBand, Factor: 2}, {Kind: chain.FIR, Factor: 2}}
+	reqs, err := chain.Requirements(spec, plan)
+	if err != nil {
+		t.Fatal(err)
+	}
+	taps := [][]float64{kaiserLowpass(61, 800e3, 12.8e6, 9), kaiserHalfBand(5, 9), kaiserLowpass(41, 200e3, 800e3, 9)}
+	c := &chain.Chain{InputRate: spec.InputRate, Plan: plan, Designed: true}
+	for i, p := range plan {
+		c.Stages = append(c.Stages, chain.FIRStage{R: p.Factor, Taps: taps[i], Length: len(taps[i]), HalfBand: p.Kind == chain.HalfBand, Variant: p.Variant, Req: reqs[i]})
+	}
+	return spec, c
+}
+
+func TestFromChainAgainstChainPackage(t *testing.T) {
+	// Two implementations of DESIGN §7 must agree: the chain package's
+	// Analyze and Run against this package's response and float run.
+	spec, c := handChain(t)
+	cas, words, err := FromChain(spec, c)
+	if err != nil {
+		t.Fatal(err)
+	}
+	w, err := Plan(cas, words, Settings{})
+	if err != nil {
+		t.Fatal(err)
+	}
+	for i, sw := range w.Stages {
+		if !sw.FloatMeets || !sw.MeetsBands {
+			t.Errorf("stage %d: float meets %v (%v), quantised meets %v (%v)", i+1, sw.FloatMeets, sw.FloatDeviations, sw.MeetsBands, sw.Deviations)
+		}
+		t.Logf("stage %d: %d-bit coefficients (%d moved), accumulator %d, output %d", i+1, sw.Coefficients.Bits, sw.Coefficients.Adjusted, sw.AccumulatorBits, sw.OutputBits)
+	}
+	// The float response: chain.Analyze against worstAlias.
+	a, err := chain.Analyze(c, spec)
+	if err != nil {
+		t.Fatal(err)
+	}
+	_, mine := worstAlias(newResp(cas, w, false), spec.OutputRate, spec.Passband)
+	if math.Abs(mine-a.AliasRejectionDB) > 0.05 {
+		t.Errorf("float alias rejection %.3f dB here, chain.Analyze %.3f dB", mine, a.AliasRejectionDB)
+	}
+	// The quantised response: chain.Analyze on a copy with quantised taps.
+	q := *c
+	q.Stages = nil
+	for i, s := range c.Stages {
+		st := s.(chain.FIRStage)
+		st.Taps = w.Stages[i].Coefficients.Float()
+		q.Stages = append(q.Stages, st)
+	}
+	aq, err := chain.Analyze(&q, spec)
+	if err != nil {
+		t.Fatal(err)
+	}
+	r, err := BitTrue(cas, w, Signal{})
+	if err != nil {
+		t.Fatal(err)
+	}
+	t.Logf("alias: chain.Analyze float %.2f quantised %.2f; here worst %.2f, bit-true %.2f at %.0f Hz (response %.2f); SNR %.1f dB",
+		a.AliasRejectionDB, aq.AliasRejectionDB, r.WorstAliasResponseDB, r.AliasRejectionDB, r.AliasHz, r.AliasResponseDB, r.SNRDB)
+	if math.Abs(r.WorstAliasResponseDB-aq.AliasRejectionDB) > 0.05 {
+		t.Errorf("quantised alias rejection %.3f dB here, chain.Analyze %.3f dB", r.WorstAliasResponseDB, aq.AliasRejectionDB)
+	}
+	if !r.AliasValid || math.Abs(r.AliasRejectionDB-aq.AliasRejectionDB) > 1 {
+		t.Errorf("bit-true alias %.2f dB vs chain.Analyze on quantised taps %.2f dB (valid %v)", r.AliasRejectionDB, aq.AliasRejectionDB, r.AliasValid)
+	}
+	// The float run: chain.Run against this package's float chain.
+	x := make([]float64, 32*300)
+	addTone(x, 37e3, 0.5, 0.1, spec.InputRate)
+	addTone(x, 1.63e6, 0.3, 0.7, spec.InputRate)
+	ref := chain.Run(c, x)
+	_, yf, _, _ := runBoth(cas, w, x)
+	for m := range ref {
+		if math.Abs(ref[m]-yf[m]) > 1e-12 {
+			t.Fatalf("float run sample %d: chain.Run %g, here %g", m, ref[m], yf[m])
+		}
+	}
+}
+
+func TestEvaluateDesignedChain(t *testing.T) {
+	// End to end with the remez engine, once it lands: a CIC chain whose
+	// compensating FIR corrects the droop.
+	spec := chain.Spec{InputRate: 64e6, OutputRate: 1e6, Passband: 200e3, RippleDB: 0.1, RejectionDB: 80, InputBits: 14, OutputBits: 18}
+	plan := []chain.StagePlan{{Kind: chain.CIC, Factor: 16, CICOrder: 4, CICDelay: 1}, {Kind: chain.HalfBand, Factor: 2}, {Kind: chain.FIR, Factor: 2}}
+	c, err := chain.Design(spec, plan, chain.Settings{})
+	if err != nil && strings.Contains(err.Error(), "not implemented") {
+		t.Skip("remez engine not landed:", err)
+	}
+	if err != nil {
+		t.Fatal(err)
+	}
+	res, err := Evaluate(spec, c, Settings{NativeA: 18, NativeB: 27, Clock: 200e6}, Signal{})
+	if err != nil {
+		t.Fatal(err)
+	}
+	for i, sw := range res.Widths.Stages {
+		if !sw.MeetsBands {
+			t.Errorf("stage %d misses its bands: %v (float %v)", i+1, sw.Deviations, sw.FloatDeviations)
+		}
+	}
+	bt := res.BitTrue
+	t.Logf("SNR %.1f dB, ENOB %.2f, alias bit-true %.2f vs response %.2f (valid %v)", bt.SNRDB, bt.ENOB, bt.AliasRejectionDB, bt.AliasResponseDB, bt.AliasValid)
+	if !bt.AliasValid || math.Abs(bt.AliasRejectionDB-bt.AliasResponseDB) > 1 {
+		t.Errorf("bit-true alias %.2f dB vs response %.2f dB (valid %v)", bt.AliasRejectionDB, bt.AliasResponseDB, bt.AliasValid)
+	}
+}
