@@ -125,9 +125,12 @@ func firStage(r Requirement, prev []Stage, s Settings, design bool) (FIRStage, e
 		hc := compGain(r, prev)
 		pass.Gain = 0
 		pass.GainFunc = func(f float64) float64 { return 1 / hc(f) }
-		// Weighting the error by |H_cic| makes it relative: |A H_cic - 1| <= dp.
-		pass.WeightFunc = hc
+		// Weighting the error by |H_cic|/dp makes it relative and on the same
+		// scale as the stopbands' 1/ds: met when |A H_cic - 1| <= dp.
+		dp := r.Dp
+		pass.WeightFunc = func(f float64) float64 { return hc(f) / dp }
 		pass.Weight = 0
+		pass.MaxError = 1
 	}
 	bands := []remez.Band{pass}
 	for _, b := range r.Stopbands {
