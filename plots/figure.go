@@ -27,6 +27,13 @@ const (
 	DefaultHeight = 5 * vg.Inch
 )
 
+// Smallest figure size Render accepts: below it the axes, keys and
+// legends no longer fit beside each other.
+const (
+	MinWidth  = 3 * vg.Inch
+	MinHeight = 2 * vg.Inch
+)
+
 // Formats lists the output formats Render and Save accept.
 var Formats = []string{"svg", "png"}
 
@@ -35,15 +42,21 @@ var Formats = []string{"svg", "png"}
 // on the right. The figure functions of this package build it; callers
 // render it with Render or Save, or draw it onto their own canvas with Draw.
 type Figure struct {
+	title    string // drawn centred over the whole figure
 	panels   []panel
 	colorKey *plot.Plot   // drawn right of panels[0], aligned with its data area
 	side     *plot.Legend // drawn in a column right of the panels
 }
 
 type panel struct {
-	p      *plot.Plot
-	weight float64 // relative height
+	p        *plot.Plot
+	weight   float64 // relative height
+	optional bool    // left out of figures shorter than optionalHeight
 }
+
+// optionalHeight is the figure height below which optional panels are left
+// out: two stacked panels need about 2.2 inches each to stay legible.
+const optionalHeight = 4.4 * vg.Inch
 
 // Plots returns the figure's panels from top to bottom, for callers who
 // want to adjust a style before rendering.
@@ -62,6 +75,21 @@ func (f *Figure) Draw(c draw.Canvas) {
 
 	pad := vg.Points(6)
 	area := draw.Crop(c, pad, -pad, pad, -pad)
+	if f.title != "" {
+		sty := textStyle(13, true)
+		sty.XAlign, sty.YAlign = draw.XCenter, draw.YTop
+		c.FillText(sty, vg.Point{X: (area.Min.X + area.Max.X) / 2, Y: area.Max.Y}, f.title)
+		area.Max.Y -= sty.Height(f.title) + vg.Points(8)
+	}
+	panels := f.panels
+	if c.Max.Y-c.Min.Y < optionalHeight {
+		panels = panels[:0:0]
+		for _, p := range f.panels {
+			if !p.optional {
+				panels = append(panels, p)
+			}
+		}
+	}
 
 	// Right-hand column: the legend's natural width, or a fixed strip for
 	// the colour key.
@@ -76,13 +104,13 @@ func (f *Figure) Draw(c draw.Canvas) {
 
 	// Stack the panels by weight.
 	var total float64
-	for _, p := range f.panels {
+	for _, p := range panels {
 		total += p.weight
 	}
-	cells := make([]draw.Canvas, len(f.panels))
+	cells := make([]draw.Canvas, len(panels))
 	h := main.Max.Y - main.Min.Y
 	top := main.Max.Y
-	for i, p := range f.panels {
+	for i, p := range panels {
 		ph := vg.Length(p.weight / total * float64(h))
 		cells[i] = main
 		cells[i].Max.Y = top
@@ -92,12 +120,12 @@ func (f *Figure) Draw(c draw.Canvas) {
 	// Line the data areas up horizontally so that stacked panels share a
 	// frequency axis position.
 	var maxL, maxR vg.Length
-	for i, p := range f.panels {
+	for i, p := range panels {
 		dc := p.p.DataCanvas(cells[i])
 		maxL = max(maxL, dc.Min.X-cells[i].Min.X)
 		maxR = max(maxR, cells[i].Max.X-dc.Max.X)
 	}
-	for i, p := range f.panels {
+	for i, p := range panels {
 		dc := p.p.DataCanvas(cells[i])
 		l := maxL - (dc.Min.X - cells[i].Min.X)
 		r := maxR - (cells[i].Max.X - dc.Max.X)
@@ -107,7 +135,7 @@ func (f *Figure) Draw(c draw.Canvas) {
 	if len(cells) == 0 {
 		return
 	}
-	dc0 := f.panels[0].p.DataCanvas(cells[0])
+	dc0 := panels[0].p.DataCanvas(cells[0])
 
 	if f.colorKey != nil {
 		kc := area
@@ -129,7 +157,8 @@ func (f *Figure) Draw(c draw.Canvas) {
 
 // Render writes the figure to w in the given format ("svg" or "png",
 // case-insensitive; PNG at 150 dots per inch) at the given size; a zero width or height
-// selects DefaultWidth or DefaultHeight. SVG output names its fonts
+// selects DefaultWidth or DefaultHeight, and a size below MinWidth x
+// MinHeight is an error. SVG output names its fonts
 // (Liberation Sans, falling back to the metric-compatible Arial) rather than
 // embedding them, which keeps files small.
 func (f *Figure) Render(w io.Writer, format string, width, height vg.Length) error {
@@ -139,8 +168,8 @@ func (f *Figure) Render(w io.Writer, format string, width, height vg.Length) err
 	if height == 0 {
 		height = DefaultHeight
 	}
-	if width < 0 || height < 0 {
-		return fmt.Errorf("plots: figure size %v x %v: width and height must not be negative", width, height)
+	if width < MinWidth || height < MinHeight {
+		return fmt.Errorf("plots: figure size %.0f x %.0f pt: must be at least %.0f x %.0f pt (3 x 2 inches)", width.Points(), height.Points(), MinWidth.Points(), MinHeight.Points())
 	}
 	format = strings.ToLower(strings.TrimPrefix(format, "."))
 	var c vg.CanvasWriterTo

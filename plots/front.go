@@ -75,9 +75,9 @@ func Front(d FrontData) (*Figure, error) {
 	}
 
 	p := newPlot()
-	p.Title.Text = d.Title
-	if p.Title.Text == "" {
-		p.Title.Text = "Pareto front"
+	title := d.Title
+	if title == "" {
+		title = "Pareto front"
 	}
 
 	xs := make([]float64, 0, len(d.Front)+len(d.Candidates))
@@ -211,7 +211,7 @@ func Front(d FrontData) (*Figure, error) {
 		key.Add(t)
 	}
 
-	return &Figure{panels: []panel{{p: p, weight: 1}}, colorKey: key}, nil
+	return &Figure{title: title, panels: []panel{{p: p, weight: 1}}, colorKey: key}, nil
 }
 
 func checkPoint(field string, i int, pt Point, front bool) error {

@@ -56,7 +56,8 @@ type ResponseData struct {
 	// ZoomHz is the upper edge of the near-region panel, drawn below the
 	// full span. Zero selects 2.5 output rates (the passband and the first
 	// two alias bands); a negative value, or a zoom wider than half the
-	// full span, leaves the panel out.
+	// full span, leaves the panel out. The panel is also left out of
+	// figures rendered less than 4.4 inches tall.
 	ZoomHz float64
 }
 
@@ -123,14 +124,13 @@ func Response(d ResponseData) (*Figure, error) {
 		}
 	}
 	full := responsePanel(d, fullLo, fullHi, floor, top, logx, leg)
-	full.Title.Text = title
-	fig := &Figure{panels: []panel{{p: full, weight: 1}}, side: leg}
+	fig := &Figure{title: title, panels: []panel{{p: full, weight: 1}}, side: leg}
 	if zoom > 0 {
 		near := responsePanel(d, d.FreqHz[0], zoom, floor, top, false, nil)
 		near.Title.Text = "Near the output band"
 		near.Title.TextStyle.Font.Size = 11
 		fig.panels[0].weight = 0.55
-		fig.panels = append(fig.panels, panel{p: near, weight: 0.45})
+		fig.panels = append(fig.panels, panel{p: near, weight: 0.45, optional: true})
 	}
 	return fig, nil
 }

@@ -65,9 +65,9 @@ func Stages(d StagesData) (*Figure, error) {
 	sm, sb := share(d.Multiplies, totM), share(d.MemoryBits, totB)
 
 	p := newPlot()
-	p.Title.Text = d.Title
-	if p.Title.Text == "" {
-		p.Title.Text = "Cost by stage"
+	title := d.Title
+	if title == "" {
+		title = "Cost by stage"
 	}
 	p.Y.Label.Text = "Share of chain total (%)"
 	p.Y.Min, p.Y.Max = 0, 100
@@ -116,7 +116,7 @@ func Stages(d StagesData) (*Figure, error) {
 	if totM == 0 {
 		leg.Add("no multiplies in the chain:\nmultiply shares shown as 0", legendBlank{})
 	}
-	return &Figure{panels: []panel{{p: p, weight: 1}}, side: leg}, nil
+	return &Figure{title: title, panels: []panel{{p: p, weight: 1}}, side: leg}, nil
 }
 
 // barLabels writes each bar's percentage above it.
