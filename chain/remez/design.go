@@ -14,6 +14,9 @@ import (
 const (
 	tolContinuous = 1e-5
 	tolGrid       = 1e-10
+	// A reference that the exchange maps to itself counts as converged
+	// when the largest error is within this fraction of delta.
+	tolFixed = 1e-6
 	// Shorter designs only seed the reference of longer ones.
 	tolSeed = 1e-2
 	// References of at most this many points start evenly spread; longer

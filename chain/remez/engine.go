@@ -87,9 +87,10 @@ type engine struct {
 	mant      []float64
 	expo      []int
 
-	cand []point // candidate extrema
-	tmp  []point
-	best []point
+	cand  []point // candidate extrema
+	tmp   []point
+	best  []point
+	prevF []float64
 }
 
 // mkpoint fills a point at normalised frequency f in band b.
@@ -651,7 +652,22 @@ func (e *engine) run(tol float64, maxIter int) (int, bool, error) {
 			conv = true
 			break
 		}
+		e.prevF = e.prevF[:0]
+		for i := range e.ref {
+			e.prevF = append(e.prevF, e.ref[i].f)
+		}
 		if err = e.exchange(); err != nil {
+			break
+		}
+		// A reference that maps to itself is the exchange's fixed point
+		// (the 1973 program's stopping rule): only rounding separates the
+		// largest error from delta.
+		same := len(e.prevF) == len(e.ref)
+		for i := 0; same && i < len(e.ref); i++ {
+			same = e.ref[i].f == e.prevF[i]
+		}
+		if same {
+			conv = gap <= tolFixed
 			break
 		}
 	}
