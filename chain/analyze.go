@@ -76,7 +76,10 @@ func estimateAnalysis(c *Chain, spec Spec) (Analysis, error) {
 			g, at := 0.0, 0.0
 			for _, b := range r.Stopbands {
 				f := func(x float64) float64 { return st.Gain(x, r.InputRate) }
-				x, v := maximize(f, b.Lo, b.Hi, 16*st.R*st.M)
+				// 16 points per lobe of width F1/M (the CIC's nulls are at
+				// multiples of its output rate over M).
+				lobes := int(math.Ceil((b.Hi - b.Lo) * float64(st.M) / r.OutputRate))
+				x, v := maximize(f, b.Lo, b.Hi, 16*(lobes+1))
 				if v > g {
 					g, at = v, x
 				}

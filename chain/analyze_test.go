@@ -332,3 +332,44 @@ func BenchmarkAnalyzeD4096(b *testing.B) {
 		}
 	}
 }
+
+func TestEstimateAnalysisCIC(t *testing.T) {
+	// An estimated chain's rejection is the least of its stages' (package
+	// doc): here the CIC's, read exactly on its alias bands. For M = 1 the
+	// worst point of band 1 is its lower edge F1 - fa (main lobe, falling),
+	// so the figure is -20 log10 |H_cic(F1 - fa)| by the DESIGN §4 formula.
+	sp := Spec{InputRate: 64e6, OutputRate: 250e3, Passband: 80e3, Protected: 100e3, RippleDB: 0.3, RejectionDB: 90}
+	plan, _ := ParseNotation("cic2m1r16 > hb > fir4 > fir2")
+	c, err := Estimate(sp, plan, Settings{})
+	if err != nil {
+		t.Fatal(err)
+	}
+	a, err := Analyze(c, sp)
+	if err != nil {
+		t.Fatal(err)
+	}
+	x := (4e6 - 100e3) / 64e6
+	want := -40 * math.Log10(math.Abs(math.Sin(math.Pi*x*16)/(16*math.Sin(math.Pi*x))))
+	if math.Abs(a.AliasRejectionDB-want) > 1e-9 || a.WorstAliasHz != 3.9e6 {
+		t.Errorf("rejection %v at %v, want %v at 3.9 MHz", a.AliasRejectionDB, a.WorstAliasHz, want)
+	}
+	// Ripple: the three shares of 0.1 dB, the half-band's at min(dp, ds).
+	wantR := 0.2 + DevToRipple(math.Pow(10, -4.5))
+	if math.Abs(a.PassbandRippleDB-wantR) > 1e-12 {
+		t.Errorf("ripple %v, want %v", a.PassbandRippleDB, wantR)
+	}
+}
+
+func BenchmarkEstimateAndAnalyze(b *testing.B) {
+	sp := Spec{InputRate: 102.4e6, OutputRate: 25e3, Passband: 10e3, Protected: 12.5e3, RippleDB: 0.5, RejectionDB: 90}
+	plan, _ := ParseNotation("cic5m1r256 > hb > hb > hb > fir2")
+	for b.Loop() {
+		c, err := Estimate(sp, plan, Settings{})
+		if err != nil {
+			b.Fatal(err)
+		}
+		if _, err := Analyze(c, sp); err != nil {
+			b.Fatal(err)
+		}
+	}
+}

@@ -1,0 +1,63 @@
+package chain_test
+
+import (
+	"fmt"
+
+	"stepdown/chain"
+)
+
+func ExampleParseNotation() {
+	plan, err := chain.ParseNotation("cic5m1r16 > hb > fir8 > fir2L")
+	if err != nil {
+		fmt.Println(err)
+		return
+	}
+	for _, p := range plan {
+		fmt.Println(p.Kind, p.Factor, p.Variant)
+	}
+	fmt.Println(chain.Notation(plan))
+
+	_, err = chain.ParseNotation("cic5m1 > hb")
+	fmt.Println(err)
+	// Output:
+	// cic 16 multiband
+	// halfband 2 multiband
+	// fir 8 multiband
+	// fir 2 lowpass
+	// cic5m1r16 > hb > fir8 > fir2L
+	// chain: notation "cic5m1 > hb": at byte 6: expected "r" and the CIC decimation factor, found " > hb"
+}
+
+func ExampleEstimate() {
+	// An invented scenario: 61.44 MHz ADC, 240 kHz output, 96 kHz passband.
+	spec := chain.Spec{InputRate: 61.44e6, OutputRate: 240e3, Passband: 96e3,
+		RippleDB: 0.2, RejectionDB: 85}
+	plan, _ := chain.ParseNotation("cic5m1r32 > hb > hb > fir2")
+	c, err := chain.Estimate(spec, plan, chain.Settings{})
+	if err != nil {
+		fmt.Println(err)
+		return
+	}
+	for _, s := range c.Stages {
+		if f, ok := s.(chain.FIRStage); ok {
+			fmt.Printf("%s by %d: %d taps (estimate)\n", f.Kind(), f.R, f.Length)
+		}
+	}
+	a, _ := chain.Analyze(c, spec)
+	fmt.Printf("estimated rejection %.1f dB, ripple %.2f dB\n", a.AliasRejectionDB, a.PassbandRippleDB)
+	// Output:
+	// halfband by 2: 11 taps (estimate)
+	// halfband by 2: 15 taps (estimate)
+	// fir by 2: 36 taps (estimate)
+	// estimated rejection 85.0 dB, ripple 0.07 dB
+}
+
+func ExampleRun() {
+	// A 4-tap moving average decimating by 2 (by hand): a DC input comes out
+	// at gain 1 once the delay line is full.
+	c := &chain.Chain{InputRate: 8, Stages: []chain.Stage{
+		chain.FIRStage{R: 2, Taps: []float64{0.25, 0.25, 0.25, 0.25}, Length: 4},
+	}, Designed: true}
+	fmt.Println(chain.Run(c, []float64{1, 1, 1, 1, 1, 1, 1, 1}))
+	// Output: [0.25 0.75 1 1]
+}
