@@ -34,7 +34,7 @@ type FrontData struct {
 	// Title is the figure title; empty selects "Pareto front".
 	Title string
 	// Candidates are the feasible candidates, drawn as a faint cloud behind
-	// the front. It may be empty. Points closer than about a pixel are
+	// the front. It may be empty. Points closer than a dot's width are
 	// drawn once, so tens of thousands of candidates stay cheap.
 	Candidates []Point
 	// Front holds the non-dominated chains, at least one, in any order: the

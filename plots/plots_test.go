@@ -131,6 +131,12 @@ func TestDeterministic(t *testing.T) {
 				if !bytes.Equal(out[0], out[1]) {
 					t.Errorf("%s output differs between two renders of the same input", format)
 				}
+				// Rendering must not change the figure either.
+				f, _ := make()
+				a, b := render(t, f, format), render(t, f, format)
+				if !bytes.Equal(a, b) {
+					t.Errorf("%s output differs between two renders of the same figure", format)
+				}
 			}
 		})
 	}
