@@ -73,17 +73,18 @@ func estimateAnalysis(c *Chain, spec Spec) (Analysis, error) {
 		var rej, worst float64
 		switch st := c.Stages[i].(type) {
 		case CICStage:
-			g, at := 0.0, 0.0
-			for _, b := range r.Stopbands {
-				f := func(x float64) float64 { return st.Gain(x, r.InputRate) }
-				// 16 points per lobe of width F1/M (the CIC's nulls are at
-				// multiples of its output rate over M).
-				lobes := int(math.Ceil((b.Hi - b.Lo) * float64(st.M) / r.OutputRate))
-				x, v := maximize(f, b.Lo, b.Hi, 16*(lobes+1))
-				if v > g {
-					g, at = v, x
-				}
+			f := func(x float64) float64 { return st.Gain(x, r.InputRate) }
+			// 16 points per lobe of width F1/M (the CIC's nulls are at
+			// multiples of its output rate over M).
+			per := func(b Interval) int {
+				return 16 * (int(math.Ceil((b.Hi-b.Lo)*float64(st.M)/r.OutputRate)) + 1)
 			}
+			// |H| <= (R M sin(pi f/F))^-N, so a band whose lower edge already
+			// bounds it below the best so far is skipped.
+			bound := func(b Interval) float64 {
+				return math.Pow(float64(st.R*st.M)*math.Sin(math.Pi*b.Lo/r.InputRate), -float64(st.N))
+			}
+			at, g := maximizeBands(f, r.Stopbands, per, bound)
 			rej, worst = -toDB(g), at
 			a.PassbandRippleDB += r.UncorrectedDroopDB
 		default:
@@ -97,36 +98,42 @@ func estimateAnalysis(c *Chain, spec Spec) (Analysis, error) {
 	return a, nil
 }
 
-// maximize returns the maximum of f on [lo, hi] found by sampling n+1 points
-// and refining the best few by golden-section search.
-func maximize(f func(float64) float64, lo, hi float64, n int) (float64, float64) {
-	if n < 8 {
-		n = 8
-	}
-	if n > 1<<16 {
-		n = 1 << 16
-	}
-	h := (hi - lo) / float64(n)
-	type pt struct{ x, v float64 }
+// maximizeBands returns the maximum of f over the bands: each band is
+// sampled at per(band)+1 points, and the grid maxima within 0.5 dB of the
+// best (at most 16) are refined by golden-section search. When bound is not
+// nil it gives an upper bound of f on a band, and bands that cannot beat the
+// best so far are skipped.
+func maximizeBands(f func(float64) float64, bands []Interval, per func(Interval) int, bound func(Interval) float64) (float64, float64) {
+	type pt struct{ x, v, lo, hi, h float64 }
 	var cands []pt
-	prev2, prev1 := math.Inf(-1), math.Inf(-1)
-	for j := 0; j <= n+1; j++ {
-		v := math.Inf(-1)
-		if j <= n {
-			v = f(lo + float64(j)*h)
+	best := 0.0
+	win := math.Pow(10, -candidateWindow/20)
+	for _, b := range bands {
+		if bound != nil && bound(b) < best*win {
+			continue
 		}
-		if j >= 1 && prev1 >= prev2 && prev1 >= v {
-			cands = append(cands, pt{lo + float64(j-1)*h, prev1})
+		n := max(8, min(per(b), 1<<16))
+		h := (b.Hi - b.Lo) / float64(n)
+		prev2, prev1 := math.Inf(-1), math.Inf(-1)
+		for j := 0; j <= n+1; j++ {
+			v := math.Inf(-1)
+			if j <= n {
+				v = f(b.Lo + float64(j)*h)
+			}
+			if j >= 1 && prev1 >= prev2 && prev1 >= v && prev1 >= best*win {
+				cands = append(cands, pt{b.Lo + float64(j-1)*h, prev1, b.Lo, b.Hi, h})
+				best = math.Max(best, prev1)
+			}
+			prev2, prev1 = prev1, v
 		}
-		prev2, prev1 = prev1, v
 	}
-	sort.Slice(cands, func(i, j int) bool { return cands[i].v > cands[j].v })
-	bx, bv := lo, f(lo)
+	sort.SliceStable(cands, func(i, j int) bool { return cands[i].v > cands[j].v })
+	bx, bv := 0.0, 0.0
 	for i, cd := range cands {
-		if i >= 8 {
+		if i >= 16 || cd.v < best*win {
 			break
 		}
-		x, v := golden(f, math.Max(lo, cd.x-h), math.Min(hi, cd.x+h), 1)
+		x, v := golden(f, math.Max(cd.lo, cd.x-cd.h), math.Min(cd.hi, cd.x+cd.h), 1)
 		if v > bv {
 			bx, bv = x, v
 		}
