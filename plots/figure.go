@@ -98,7 +98,7 @@ func (f *Figure) Draw(c draw.Canvas) {
 		right = f.side.Rectangle(area).Size().X + vg.Points(22)
 	}
 	if f.colorKey != nil {
-		right = vg.Points(62)
+		right = vg.Points(72)
 	}
 	main := draw.Crop(area, 0, -right, 0, 0)
 
@@ -139,7 +139,7 @@ func (f *Figure) Draw(c draw.Canvas) {
 
 	if f.colorKey != nil {
 		kc := area
-		kc.Min.X = main.Max.X - vg.Points(6)
+		kc.Min.X = main.Max.X + vg.Points(4)
 		kc.Min.Y, kc.Max.Y = dc0.Min.Y, dc0.Max.Y
 		kd := f.colorKey.DataCanvas(kc)
 		// Grow the key's canvas so its bar spans the panel's data height.
