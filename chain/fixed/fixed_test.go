@@ -347,3 +347,23 @@ func TestNativeMultipliers(t *testing.T) {
 		}
 	}
 }
+
+func TestAmplitudeRecurrence(t *testing.T) {
+	// Clenshaw's recurrence against the direct cosine sum, odd and even
+	// lengths, over the whole band. Seeded RNG.
+	rng := rand.New(rand.NewPCG(9, 9))
+	for _, n := range []int{1, 2, 3, 4, 7, 10, 63, 64, 301, 1000} {
+		h := make([]float64, n)
+		for k := 0; k < (n+1)/2; k++ {
+			h[k] = rng.NormFloat64()
+			h[n-1-k] = h[k]
+		}
+		for j := 0; j <= 200; j++ {
+			f := 0.5 * float64(j) / 200
+			got, want := Amplitude(h, f, 1), amplitudeDirect(h, f, 1)
+			if math.Abs(got-want) > 1e-11*float64(n) {
+				t.Fatalf("n %d f %g: recurrence %.15g, direct %.15g", n, f, got, want)
+			}
+		}
+	}
+}

@@ -131,6 +131,38 @@ func QuantizeHalfBand(taps []float64, bits int) (Coefficients, error) {
 // f Hz for sample rate rate: H(f) = exp(-j pi f (n-1)/rate) A(f), |H| = |A|.
 func Amplitude(h []float64, f, rate float64) float64 {
 	n := len(h)
+	if n == 0 {
+		return 0
+	}
+	// A = sum over m of 2 h[c-m] cos(m w) (odd n, m = 0 counted once) or of
+	// 2 h[c-m-1/2] cos((m+1/2) w) (even n). Both cosine sequences obey
+	// C(m+1) = 2 cos(w) C(m) - C(m-1); run it from the outermost tap inwards
+	// by Clenshaw's recurrence, one cosine per call.
+	w := 2 * math.Pi * f / rate
+	x2 := 2 * math.Cos(w)
+	var b1, b2 float64
+	if n%2 == 1 {
+		c := n / 2
+		for m := c; m >= 1; m-- {
+			b1, b2 = 2*h[c-m]+x2*b1-b2, b1
+		}
+		// sum_{m>=1} a_m cos(m w) = b1 cos w - b2 (Clenshaw with a_0 = 0).
+		return h[c] + b1*x2/2 - b2
+	}
+	// Even: cos((m+1/2) w) = cos(w/2) U-type sequence; Clenshaw on
+	// sum_{m>=0} a_m C(m) with C(0) = cos(w/2), C(-1) = cos(w/2).
+	half := n / 2
+	for m := half - 1; m >= 0; m-- {
+		b1, b2 = 2*h[half-1-m]+x2*b1-b2, b1
+	}
+	ch := math.Cos(w / 2)
+	// S = b1 C(0) + b2 (C(1) - x2 C(0)) with C(1) - x2 C(0) = -C(-1).
+	return (b1 - b2) * ch
+}
+
+// amplitudeDirect is Amplitude by one cosine per tap pair, for tests.
+func amplitudeDirect(h []float64, f, rate float64) float64 {
+	n := len(h)
 	w := 2 * math.Pi * f / rate
 	c := float64(n-1) / 2
 	var a float64
@@ -339,20 +371,30 @@ func tryWidth(taps []float64, rate float64, bands []remez.Band, bits int, s Quan
 	} else {
 		c = Quantize(taps, bits)
 	}
-	dev := Deviations(c.Float(), rate, bands, s.Density)
-	if Meets(dev, bands) || s.Budget < 0 {
-		return c, dev, Meets(dev, bands)
-	}
+	// The grid score is a lower bound of the refined measurement, so the
+	// refined (costly) one runs only when the grid is met.
 	ls := newSearch(taps, rate, bands, c, s)
-	for ls.run() {
+	var dev []float64
+	check := func() bool {
+		if ls.cur > 1 {
+			return false
+		}
 		dev = Deviations(ls.c.Float(), rate, bands, s.Density)
-		if Meets(dev, bands) {
-			ls.c.Adjusted = offRounding(ls.c, c)
-			return ls.c, dev, true
+		return Meets(dev, bands)
+	}
+	ok := check()
+	if !ok && s.Budget > 0 && !ls.hopeless() {
+		for ls.run() {
+			if ok = check(); ok {
+				break
+			}
 		}
 	}
 	ls.c.Adjusted = offRounding(ls.c, c)
-	return ls.c, dev, false
+	if dev == nil || !ok {
+		dev = Deviations(ls.c.Float(), rate, bands, s.Density)
+	}
+	return ls.c, dev, ok
 }
 
 // search is the local search on the rounding of one width.
@@ -366,6 +408,7 @@ type search struct {
 	other  []int64   // the other rounding of each candidate
 	budget int
 	next   int
+	cur    float64 // score of the current codes
 	n      int
 	rate   float64
 }
@@ -416,7 +459,29 @@ func newSearch(taps []float64, rate float64, bands []remez.Band, c Coefficients,
 		ls.cand = append(ls.cand, v.k)
 		ls.other = append(ls.other, o)
 	}
+	ls.cur = ls.score()
 	return ls
+}
+
+// hopeless reports whether the budget cannot close the gap: each move changes
+// the amplitude by at most 2 codes' worth (a symmetric pair), so a grid point
+// whose error exceeds its limit by more than budget such steps stays failed.
+func (ls *search) hopeless() bool {
+	reach := float64(ls.budget) * 2 * math.Ldexp(1, -ls.c.Frac)
+	for j, f := range ls.freqs {
+		b := &ls.bands[ls.band[j]]
+		w := 1.0
+		if b.WeightFunc != nil {
+			w = b.WeightFunc(f)
+		}
+		if !(w > 0) {
+			continue
+		}
+		if (bandErr(b, f, ls.a[j])-b.MaxError)/w > reach {
+			return true
+		}
+	}
+	return false
 }
 
 // score is the worst band error relative to its MaxError on the grid.
@@ -447,7 +512,6 @@ func (ls *search) move(k int, d int64) {
 // run makes trial moves until one lowers the score; it reports false when the
 // budget or the candidates are exhausted.
 func (ls *search) run() bool {
-	cur := ls.score()
 	for ls.budget > 0 && len(ls.cand) > 0 {
 		if ls.next >= len(ls.cand) {
 			ls.next = 0
@@ -458,8 +522,9 @@ func (ls *search) run() bool {
 		k := ls.cand[i]
 		d := ls.other[i] - ls.c.Ints[k]
 		ls.move(k, d)
-		if sc := ls.score(); sc < cur {
+		if sc := ls.score(); sc < ls.cur {
 			ls.other[i] -= d // its other rounding is now the previous code
+			ls.cur = sc
 			return true
 		}
 		ls.move(k, -d)
