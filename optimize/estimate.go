@@ -17,6 +17,7 @@ const (
 	ReasonMissRejection  = "designed chain misses rejection"
 	ReasonMissRipple     = "designed chain misses ripple"
 	ReasonCICNull        = "cic null in passband"
+	ReasonCICBeaten      = "cic beaten by another order or delay"
 	ReasonLongFIR        = "fir stage over 2047 taps"
 )
 
@@ -30,6 +31,7 @@ const (
 	dropShortFIR
 	dropLongFIR
 	dropCICNull
+	dropCICBeaten
 )
 
 // maxTaps bounds a stage's estimated length: a longer stage is dropped
@@ -44,6 +46,7 @@ var dropNames = [...]string{
 	dropShortFIR:      ReasonShortFIR,
 	dropLongFIR:       ReasonLongFIR,
 	dropCICNull:       ReasonCICNull,
+	dropCICBeaten:     ReasonCICBeaten,
 }
 
 // figs is a candidate's or a stage's position on the three axes of the
@@ -117,14 +120,17 @@ type stageKey struct {
 // stage, so its factor, order and delay say all.
 type realKey struct {
 	stageKey
-	comp, after bool
-	cicN, cicM  int8
-	cicR        int32
+	comp       bool
+	inBits     int8 // data width from a CIC feeding it, else 0
+	cicN, cicM int8 // the compensated CIC, else 0
+	cicR       int32
 }
 
+// stageVal is a stage's estimate, and its figures at the ends of the range
+// its real length is assumed to lie in (see the package doc).
 type stageVal struct {
-	f    figs
-	drop dropCode
+	f, lo, hi figs
+	drop      dropCode
 }
 
 // estimator scores candidates from order estimates. It caches each stage's
@@ -133,12 +139,23 @@ type stageVal struct {
 // safe for concurrent use.
 type estimator struct {
 	p     params
+	tol   float64 // relative error allowed each estimated stage
 	cache map[stageKey]stageVal
 	keys  []realKey
+	// beaten caches cicBeaten by factor, order and delay.
+	beaten map[[3]int]bool
+	// orders and delays are the CIC parameters searched.
+	orders, delays []int
+	// keepBeaten turns cicBeaten off (for the exhaustive check).
+	keepBeaten bool
 }
 
-func newEstimator(p params) *estimator {
-	return &estimator{p: p, cache: make(map[stageKey]stageVal)}
+func newEstimator(p params, tol float64) *estimator {
+	if tol == 0 {
+		tol = defaultTolerance
+	}
+	return &estimator{p: p, tol: tol, cache: make(map[stageKey]stageVal), beaten: map[[3]int]bool{},
+		orders: []int{1, 2, 3, 4, 5, 6, 7}, delays: []int{1, 2}}
 }
 
 // keysOf writes the stages' keys into e.keys following chain's rules: the
@@ -186,8 +203,11 @@ func (e *estimator) keysOf(plan []chain.StagePlan) dropCode {
 		if st.Kind != chain.CIC {
 			k.share = math.Float64bits(share)
 			k.comp = i == comp
-			k.after = i == 1 && cic.Kind == chain.CIC
-			if k.comp || k.after {
+			if i == 1 && cic.Kind == chain.CIC {
+				w := p.inBits + int(math.Ceil(float64(cic.CICOrder)*math.Log2(float64(cic.Factor*cic.CICDelay))))
+				k.inBits = int8(min(w, p.dataBits))
+			}
+			if k.comp {
 				k.cicN, k.cicM, k.cicR = int8(cic.CICOrder), int8(cic.CICDelay), int32(cic.Factor)
 			}
 		}
@@ -220,6 +240,9 @@ func (e *estimator) score(plan []chain.StagePlan) (figs, dropCode) {
 		total.words += v.f.words
 		total.lat += v.f.lat
 		total.margin = math.Min(total.margin, v.f.margin)
+	}
+	if st := plan[0]; st.Kind == chain.CIC && !e.keepBeaten && e.cicBeaten(st.Factor, st.CICOrder, st.CICDelay) {
+		return figs{}, dropCICBeaten
 	}
 	return total, dropNone
 }
@@ -278,15 +301,22 @@ func (e *estimator) stage(k stageKey) stageVal {
 			v.drop = dropLongFIR
 			return v
 		}
-		mult := kk
-		coefs := kk
-		if p.noSym {
-			mult, coefs = 2*kk, 2*kk
+		hb := func(kk float64) figs {
+			var f figs
+			mult, coefs := kk, kk
+			if p.noSym {
+				mult, coefs = 2*kk, 2*kk
+			}
+			f.mpo = mult * later * cplx
+			f.words = (4*kk-1)*cplx + coefs
+			f.bits = (4*kk-1)*float64(p.dataBits)*cplx + coefs*float64(p.coefBits)
+			f.lat = (4*kk - 2) / 2 / rate
+			return f
 		}
-		v.f.mpo = mult * later * cplx
-		v.f.words = (4*kk-1)*cplx + coefs
-		v.f.bits = (4*kk-1)*float64(p.dataBits)*cplx + coefs*float64(p.coefBits)
-		v.f.lat = (4*kk - 2) / 2 / rate
+		v.f = hb(kk)
+		v.lo = hb(math.Max(1, math.Floor(kk/(1+e.tol))-1))
+		v.hi = hb(math.Ceil(kk*(1+e.tol)) + 1)
+		return v
 	case chain.FIR:
 		l := math.Ceil(herrmann(dpi, p.ds, (stop-p.fp)/rate))
 		if l < 3 {
@@ -297,17 +327,25 @@ func (e *estimator) stage(k stageKey) stageVal {
 			v.drop = dropLongFIR
 			return v
 		}
-		mult := l
-		coefs := l
-		if !p.noSym {
-			mult = math.Ceil(l / 2)
-			coefs = mult
+		fir := func(l float64) figs {
+			var f figs
+			mult, coefs := l, l
+			if !p.noSym {
+				mult = math.Ceil(l / 2)
+				coefs = mult
+			}
+			f.mpo = mult * later * cplx
+			f.words = l*cplx + coefs
+			f.bits = l*float64(p.dataBits)*cplx + coefs*float64(p.coefBits)
+			f.lat = (l - 1) / 2 / rate
+			return f
 		}
-		v.f.mpo = mult * later * cplx
-		v.f.words = l*cplx + coefs
-		v.f.bits = l*float64(p.dataBits)*cplx + coefs*float64(p.coefBits)
-		v.f.lat = (l - 1) / 2 / rate
+		v.f = fir(l)
+		v.lo = fir(math.Max(3, math.Floor(l/(1+e.tol))-2))
+		v.hi = fir(math.Ceil(l*(1+e.tol)) + 2)
+		return v
 	}
+	v.lo, v.hi = v.f, v.f
 	return v
 }
 
@@ -403,4 +441,61 @@ func bandMax(g func(float64) float64, lo, hi float64) float64 {
 		}
 	}
 	return math.Max(best, math.Max(gc, gd))
+}
+
+// cicBeaten reports whether another searched CIC of the same factor meets
+// the rejection with no more memory, latency, droop at fp or output width,
+// and less of one. The rest of the chain being equal, such a CIC makes the
+// whole chain at least as cheap: its figures are exact, and the compensator
+// it needs is no longer, since it corrects no more droop (the one
+// assumption here). The beaten CIC's chains are dropped unscored.
+func (e *estimator) cicBeaten(r, n, m int) bool {
+	key := [3]int{r, n, m}
+	if b, ok := e.beaten[key]; ok {
+		return b
+	}
+	type cfg struct {
+		n, m int
+		x    [4]float64
+	}
+	last := r == e.p.d
+	var ok []cfg
+	for _, nn := range e.orders {
+		for _, mm := range e.delays {
+			e.beaten[[3]int{r, nn, mm}] = false
+			if e.p.fp*float64(r*mm) >= e.p.f0 {
+				continue
+			}
+			v := e.stage(stageKey{prefix: 1, factor: int32(r), kind: int8(chain.CIC), n: int8(nn), m: int8(mm)})
+			if v.drop != dropNone {
+				continue
+			}
+			w := e.p.inBits + int(math.Ceil(float64(nn)*math.Log2(float64(r*mm))))
+			if !last {
+				w = min(w, e.p.dataBits)
+			}
+			droop := -math.Log(cicGain(e.p.fp, e.p.f0, r, nn, mm))
+			ok = append(ok, cfg{nn, mm, [4]float64{v.f.bits, v.f.lat, droop, float64(w)}})
+		}
+	}
+	for _, a := range ok {
+		beaten := false
+		for _, b := range ok {
+			le, lt := true, false
+			for j := range a.x {
+				if b.x[j] > a.x[j] {
+					le = false
+				}
+				if b.x[j] < a.x[j] {
+					lt = true
+				}
+			}
+			if le && lt {
+				beaten = true
+				break
+			}
+		}
+		e.beaten[[3]int{r, a.n, a.m}] = beaten
+	}
+	return e.beaten[key]
 }

@@ -9,7 +9,7 @@ package optimize
 // nanosecond.
 var axisFloor = [3]float64{1, 1, 1e-9}
 
-func (f *figs) axes() [3]float64 { return [3]float64{f.mpo, f.bits, f.lat} }
+func (f figs) axes() [3]float64 { return [3]float64{f.mpo, f.bits, f.lat} }
 
 // dominates reports whether a is at least as good as b on every axis and
 // strictly better on one, or equal on all three with a larger margin.

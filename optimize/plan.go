@@ -35,7 +35,7 @@ func Plan(ctx context.Context, spec chain.Spec, s Settings) (*Result, error) {
 	}
 	p := newParams(ns, s.Cost.NoSymmetry)
 	p.d = ns.Decimation()
-	return search(ctx, p, &s, newEstimator(p), realDesigner{spec: ns, s: &s})
+	return search(ctx, p, &s, newEstimator(p, s.Tolerance), realDesigner{spec: ns, s: &s})
 }
 
 func (s *Settings) check() error {
@@ -161,6 +161,8 @@ type outcome struct {
 // passed in so that tests can use fake figures.
 func search(ctx context.Context, p params, s *Settings, est *estimator, des designer) (*Result, error) {
 	sp := newSpace(&p, s)
+	est.orders, est.delays = sp.orders, sp.delays
+	est.keepBeaten = s.Exhaustive
 	if p.d < 1 {
 		return nil, fmt.Errorf("optimize: decimation %d: must be at least 1", p.d)
 	}
@@ -173,10 +175,7 @@ func search(ctx context.Context, p params, s *Settings, est *estimator, des desi
 			p.d, sp.maxStages, countString(n), MaxCandidates)
 	}
 	res := &Result{Dropped: map[string]int{}, Recommended: -1}
-	tol := s.Tolerance
-	if tol == 0 {
-		tol = 0.15
-	}
+	tol := est.tol
 	jobs := s.Jobs
 	if jobs == 0 {
 		jobs = runtime.GOMAXPROCS(0)
@@ -184,6 +183,7 @@ func search(ctx context.Context, p params, s *Settings, est *estimator, des desi
 
 	// Pass 1: score everything, count drops, keep the estimated front.
 	var fr frontSet
+	frontPlans := map[int][]chain.StagePlan{}
 	var drops [len(dropNames)]int
 	feasible := 0
 	cancelled := false
@@ -198,7 +198,9 @@ func search(ctx context.Context, p params, s *Settings, est *estimator, des desi
 			drops[drop]++
 			return true
 		}
-		fr.add(f, feasible)
+		if fr.add(f, feasible) {
+			frontPlans[feasible] = clonePlan(plan)
+		}
 		feasible++
 		return true
 	})
@@ -211,6 +213,11 @@ func search(ctx context.Context, p params, s *Settings, est *estimator, des desi
 	if cancelled {
 		res.Partial = true
 		return res, nil
+	}
+
+	var fronts []bandRef
+	for _, id := range fr.id {
+		fronts = append(fronts, est.ref(frontPlans[id]))
 	}
 
 	// Pass 2: the same walk, now that the front is known: collect the band
@@ -241,7 +248,7 @@ func search(ctx context.Context, p params, s *Settings, est *estimator, des desi
 			band = append(band, scored{plan: clonePlan(plan), f: f})
 			return true
 		}
-		if sl := fr.slack(&f); sl < 1+tol {
+		if sl := fr.slack(&f); sl < 1+tol && !est.excluded(fronts) {
 			band = append(band, scored{plan: clonePlan(plan), f: f, slack: sl})
 			if len(band) >= 2*maxBand {
 				sort.Slice(band, byBand)
@@ -259,6 +266,7 @@ func search(ctx context.Context, p params, s *Settings, est *estimator, des desi
 		band = band[:maxBand]
 	}
 
+	debugf("band %d", len(band))
 	memo := map[string]outcome{}
 	var order []string // memo keys in the order designed
 	total := 0
@@ -374,6 +382,7 @@ func learnAndDesign(est *estimator, band []scored, memo map[string]outcome, desi
 		if len(reps) == 0 {
 			break
 		}
+		debugf("round %d reps %d", round, len(reps))
 		ok := designAll(reps)
 		for _, pl := range reps {
 			o, done := memo[planKey(pl)]
@@ -435,6 +444,7 @@ func learnAndDesign(est *estimator, band []scored, memo map[string]outcome, desi
 		for _, i := range fr.id {
 			need = append(need, plans[i])
 		}
+		debugf("front loop %d", len(need))
 		if !designAll(need) {
 			return false
 		}
@@ -534,3 +544,74 @@ func countString(n int64) string {
 	}
 	return fmt.Sprint(n)
 }
+
+// defaultTolerance is Settings.Tolerance's default.
+const defaultTolerance = 0.15
+
+// bandRef is a front point's stages as the band test needs them.
+type bandRef struct {
+	keys []stageKey
+	vals []stageVal
+}
+
+func (e *estimator) ref(plan []chain.StagePlan) bandRef {
+	e.score(plan)
+	var r bandRef
+	for _, k := range e.keys {
+		r.keys = append(r.keys, k.stageKey)
+		r.vals = append(r.vals, e.cache[k.stageKey])
+	}
+	return r
+}
+
+// excluded reports whether the candidate last scored (its keys in e.keys)
+// is beaten by one of the front points even when every estimated stage the
+// two do not share comes out at the favourable end of its range for the
+// candidate and the unfavourable end for the front point. Stages they share
+// (same estimate key) are taken to cost the same in both, and CIC figures
+// are exact.
+func (e *estimator) excluded(fronts []bandRef) bool {
+	var used [64]bool
+	for fi := range fronts {
+		d := &fronts[fi]
+		if len(d.keys) > len(used) {
+			continue
+		}
+		for j := range d.keys {
+			used[j] = false
+		}
+		var cLo, dHi [3]float64
+		for _, rk := range e.keys {
+			k := rk.stageKey
+			shared := false
+			for j := range d.keys {
+				if !used[j] && d.keys[j] == k {
+					used[j] = true
+					shared = true
+					break
+				}
+			}
+			if !shared {
+				lo := e.cache[k].lo.axes()
+				for a := range lo {
+					cLo[a] += lo[a]
+				}
+			}
+		}
+		for j := range d.keys {
+			if !used[j] {
+				hi := d.vals[j].hi.axes()
+				for a := range hi {
+					dHi[a] += hi[a]
+				}
+			}
+		}
+		if dHi[0] <= cLo[0] && dHi[1] <= cLo[1] && dHi[2] <= cLo[2] &&
+			(dHi[0] < cLo[0] || dHi[1] < cLo[1] || dHi[2] < cLo[2]) {
+			return true
+		}
+	}
+	return false
+}
+
+var debugf = func(string, ...any) {}
