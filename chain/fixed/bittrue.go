@@ -133,6 +133,11 @@ func BitTrue(c Cascade, w *Widths, sig Signal) (BitTrueResult, error) {
 	if sig.AliasLevel > 0 || math.IsNaN(sig.AliasLevel) || !(noise < 1) {
 		return BitTrueResult{}, fmt.Errorf("fixed: signal AliasLevel = %g dBFS, NoiseDBFS = %g: levels must be below 0 dBFS", sig.AliasLevel, sig.NoiseDBFS)
 	}
+	for i, sw := range w.Stages {
+		if sw.CIC && sw.Pruning.FullBits > 63 {
+			return BitTrueResult{}, fmt.Errorf("fixed: stage %d: the CIC's %d-bit registers are beyond the bit-true run's 63 bits", i+1, sw.Pruning.FullBits)
+		}
+	}
 	// Transient: the cascade's impulse response length in output samples.
 	span, p := 1, 1
 	for _, st := range c.Stages {

@@ -3,7 +3,12 @@ package fixed
 import (
 	"fmt"
 	"math"
+	"math/big"
 )
+
+// maxCICBits bounds a CIC's register width in PruneCIC; the bit-true run
+// needs every register within 63 bits (BitTrue says so when one is wider).
+const maxCICBits = 256
 
 // CICPruning is the register plan of a CIC decimator after Hogenauer's (1981)
 // pruning. Registers are numbered as in his paper: 1..N are the integrators,
@@ -70,25 +75,25 @@ func cicVarianceFactor(n, rm, j int) float64 {
 // sigma_{2N+1}^2 = 2^(2 B_{2N+1}) / 12, so that no register's truncation
 // noise at the output exceeds 1/(2N) of the output's own. Negative B_j are
 // clamped to 0. An output word wider than FullBits is cut to FullBits.
-// The register widths must fit 62 bits so that the bit-true run can use int64.
 func PruneCIC(n, m, r, inBits, outBits int) (CICPruning, error) {
 	switch {
-	case n < 1 || n > 10:
-		return CICPruning{}, fmt.Errorf("fixed: CIC order N = %d; it must be 1..10", n)
-	case m < 1 || m > 4:
-		return CICPruning{}, fmt.Errorf("fixed: CIC differential delay M = %d; it must be 1..4", m)
+	case n < 1 || n > 16:
+		return CICPruning{}, fmt.Errorf("fixed: CIC order N = %d; it must be 1..16", n)
+	case m < 1 || m > 16:
+		return CICPruning{}, fmt.Errorf("fixed: CIC differential delay M = %d; it must be 1..16", m)
 	case r < 1:
 		return CICPruning{}, fmt.Errorf("fixed: CIC factor R = %d; it must be >= 1", r)
 	case inBits < 2 || outBits < 2:
 		return CICPruning{}, fmt.Errorf("fixed: CIC word widths in %d, out %d; each must be >= 2", inBits, outBits)
 	}
 	rm := r * m
-	// Bmax = ceil(N log2(RM) + Bin - 1); the width is Bmax + 1. log2 of an
-	// exact power is computed exactly.
-	growth := int(math.Ceil(float64(n)*math.Log2(float64(rm)) - 1e-9))
+	// Bmax = ceil(N log2(RM) + Bin - 1); the width is Bmax + 1. The growth
+	// ceil(N log2 RM) is the bit length of (RM)^N - 1, computed exactly.
+	g := new(big.Int).Exp(big.NewInt(int64(rm)), big.NewInt(int64(n)), nil)
+	growth := g.Sub(g, big.NewInt(1)).BitLen()
 	full := inBits + growth
-	if full > 62 {
-		return CICPruning{}, fmt.Errorf("fixed: CIC N=%d R=%d M=%d on %d-bit input needs %d-bit registers; at most 62 are supported", n, r, m, inBits, full)
+	if full > maxCICBits {
+		return CICPruning{}, fmt.Errorf("fixed: CIC N=%d R=%d M=%d on %d-bit input needs %d-bit registers; at most %d are supported", n, r, m, inBits, full, maxCICBits)
 	}
 	if outBits > full {
 		outBits = full
