@@ -177,6 +177,69 @@ type stageGrid struct {
 	step float64 // Hz between grid points
 	n    int     // intervals: grid points 0..n
 	mag  []float64
+	// blockMax[b] is the largest of mag[b B : (b+1) B], B = gridBlock, for
+	// range maxima that bound a band's response before it is scanned.
+	blockMax []float64
+}
+
+const gridBlock = 64
+
+func (g *stageGrid) initBlocks() {
+	nb := (len(g.mag) + gridBlock - 1) / gridBlock
+	g.blockMax = make([]float64, nb)
+	for b := range g.blockMax {
+		m := 0.0
+		for _, v := range g.mag[b*gridBlock : min(len(g.mag), (b+1)*gridBlock)] {
+			m = math.Max(m, v)
+		}
+		g.blockMax[b] = m
+	}
+}
+
+// rangeMax returns the largest grid value covering [a, b], 0 <= a <= b <= rate/2.
+func (g *stageGrid) rangeMax(a, b float64) float64 {
+	i0 := max(0, int(math.Floor(a/g.step)))
+	i1 := min(g.n, int(math.Ceil(b/g.step)))
+	m := 0.0
+	for i0 <= i1 {
+		if i0%gridBlock == 0 && i0+gridBlock-1 <= i1 {
+			m = math.Max(m, g.blockMax[i0/gridBlock])
+			i0 += gridBlock
+			continue
+		}
+		m = math.Max(m, g.mag[i0])
+		i0++
+	}
+	return m
+}
+
+// bandMax returns the largest grid value of the stage over input
+// frequencies [lo, hi], folding them onto [0, rate/2].
+func (g *stageGrid) bandMax(lo, hi float64) float64 {
+	f := g.rate
+	if hi-lo >= f/2 {
+		return g.rangeMax(0, f/2)
+	}
+	x := math.Mod(lo, f)
+	y := x + (hi - lo)
+	m := 0.0
+	for k := 0; k < 4; k++ {
+		s, e := math.Max(x, float64(k)*f/2), math.Min(y, float64(k+1)*f/2)
+		if s > e {
+			continue
+		}
+		switch k {
+		case 0:
+			m = math.Max(m, g.rangeMax(s, e))
+		case 1:
+			m = math.Max(m, g.rangeMax(f-e, f-s))
+		case 2:
+			m = math.Max(m, g.rangeMax(s-f, e-f))
+		case 3:
+			m = math.Max(m, g.rangeMax(2*f-e, 2*f-s))
+		}
+	}
+	return m
 }
 
 // gridPointsPerTap sets the grid density: 16 points per tap over [0, rate/2]
@@ -215,6 +278,7 @@ func newStageGrid(s Stage, rate float64) stageGrid {
 			g.mag[i] = s.Gain(float64(i)*g.step, rate)
 		}
 	}
+	g.initBlocks()
 	return g
 }
 
@@ -308,18 +372,34 @@ func measure(c *Chain, spec Spec, sc *scanner) Analysis {
 		return Analysis{AliasRejectionDB: 0, PassbandRippleDB: MaxFigureDB}
 	}
 
-	// Alias rejection.
+	// Alias rejection. Bound each band by the product of its stages' grid
+	// maxima over it, then scan the bands from the highest bound down and stop
+	// when no remaining band can come within the candidate window: most bands
+	// lie deep in some stage's stopband and are never scanned.
 	type cand struct{ x, v, lo, hi, h float64 }
-	var cands []cand
-	best := 0.0
-	win := math.Pow(10, -candidateWindow/20)
+	type band struct{ lo, hi, bound float64 }
+	var bands []band
 	for k := 1; float64(k)*fk-fa <= f0h; k++ {
 		lo, hi := float64(k)*fk-fa, math.Min(float64(k)*fk+fa, f0h)
 		if hi <= lo {
 			continue
 		}
-		var hb float64
-		hb = sc.band(lo, hi, 1, func(x, v float64) {
+		b := 1.0
+		for i := range sc.grids {
+			b *= sc.grids[i].bandMax(lo, hi)
+		}
+		bands = append(bands, band{lo, hi, b})
+	}
+	sort.SliceStable(bands, func(i, j int) bool { return bands[i].bound > bands[j].bound })
+	var cands []cand
+	best := 0.0
+	win := math.Pow(10, -candidateWindow/20)
+	for _, bd := range bands {
+		if bd.bound < best*win {
+			break
+		}
+		lo, hi := bd.lo, bd.hi
+		hb := sc.band(lo, hi, 1, func(x, v float64) {
 			if v >= best*win {
 				cands = append(cands, cand{x: x, v: v, lo: lo, hi: hi})
 				if v > best {

@@ -76,8 +76,11 @@
 // Analyze measures alias rejection and passband ripple exactly as DESIGN §7
 // defines them. To stay fast on chains with thousands of alias bands, each
 // stage's magnitude is computed once on a grid at its own rate (FFT, 32
-// points per lobe), the cascade is scanned through linear interpolation of
-// those grids at the finest stage's spacing, and every grid extremum within
+// points per lobe), each alias band is bounded by the product of its stages'
+// grid maxima over it, the bands are scanned from the highest bound down
+// (through linear interpolation of the grids at the finest stage's spacing)
+// until no remaining band can come within 0.5 dB of the worst, and every
+// grid extremum within
 // 0.5 dB of the worst (at most 64) is refined by golden-section search on the
 // direct response, which puts each figure well inside 0.01 dB.
 //
