@@ -111,17 +111,16 @@ type stageKey struct {
 	prefix, factor int32
 	kind, variant  int8
 	n, m           int8
+	inBits         int8 // data width from a CIC feeding it, else 0
 	share          uint64
 }
 
-// realKey adds what a stage's real design and price depend on beyond its
-// estimate: the CIC whose droop it corrects, and the CIC that feeds it
-// (whose output width sets its data width). The CIC can only be the first
-// stage, so its factor, order and delay say all.
+// realKey adds what a stage's real design depends on beyond its estimate:
+// the CIC whose droop it corrects. The CIC can only be the first stage, so
+// its factor, order and delay say all.
 type realKey struct {
 	stageKey
 	comp       bool
-	inBits     int8 // data width from a CIC feeding it, else 0
 	cicN, cicM int8 // the compensated CIC, else 0
 	cicR       int32
 }
@@ -269,6 +268,16 @@ func (e *estimator) stage(k stageKey) stageVal {
 	if p.complex {
 		cplx = 2
 	}
+	// The data width a stage stores: the input's for the first stage, the
+	// output word after that (a CIC delivers at most the output width; the
+	// learnt real figures see its exact width).
+	width := float64(p.dataBits)
+	if prefix == 1 {
+		width = float64(p.inBits)
+	}
+	if k.inBits != 0 {
+		width = float64(k.inBits)
+	}
 	var v stageVal
 	switch chain.Kind(k.kind) {
 	case chain.CIC:
@@ -279,10 +288,14 @@ func (e *estimator) stage(k stageKey) stageVal {
 			v.drop = dropCICRejection
 			return v
 		}
-		width := float64(p.inBits) + math.Ceil(float64(n)*math.Log2(float64(f*m)))
-		words := float64(n + n*m)
-		v.f.words = words * cplx
-		v.f.bits = words * width * cplx
+		// Priced as cost.Price does, with Hogenauer-pruned registers.
+		cs := chain.NewCICStage(n, m, f, p.inBits, p.dataBits)
+		bits := 0
+		for j := 0; j < n && 2*n == len(cs.RegisterBits); j++ {
+			bits += cs.RegisterBits[j] + m*cs.RegisterBits[n+j]
+		}
+		v.f.words = float64(n+n*m) * cplx
+		v.f.bits = float64(bits) * cplx
 		v.f.lat = float64(n) * float64(f*m-1) / 2 / rate
 	case chain.HalfBand:
 		edge := math.Max(p.fp, p.fa)
@@ -308,8 +321,8 @@ func (e *estimator) stage(k stageKey) stageVal {
 				mult, coefs = 2*kk, 2*kk
 			}
 			f.mpo = mult * later * cplx
-			f.words = (4*kk-1)*cplx + coefs
-			f.bits = (4*kk-1)*float64(p.dataBits)*cplx + coefs*float64(p.coefBits)
+			f.words = 3*kk*cplx + coefs
+			f.bits = 3*kk*width*cplx + coefs*float64(p.coefBits)
 			f.lat = (4*kk - 2) / 2 / rate
 			return f
 		}
@@ -336,7 +349,7 @@ func (e *estimator) stage(k stageKey) stageVal {
 			}
 			f.mpo = mult * later * cplx
 			f.words = l*cplx + coefs
-			f.bits = l*float64(p.dataBits)*cplx + coefs*float64(p.coefBits)
+			f.bits = l*width*cplx + coefs*float64(p.coefBits)
 			f.lat = (l - 1) / 2 / rate
 			return f
 		}

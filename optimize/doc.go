@@ -1,0 +1,104 @@
+// Package optimize searches the ways to split a decimation ratio into CIC,
+// half-band and FIR stages, designs the promising ones for real, and returns
+// the Pareto front of the designed chains with one recommended chain
+// (DESIGN §8).
+//
+// Conventions are those of package chain: rates and frequencies in Hz,
+// rejection and attenuation in positive dB, ripple peak-to-peak dB. Costs
+// are those of package cost: multiplies per final output sample, memory in
+// bits, latency in seconds. All three axes are smaller-is-better; the alias
+// rejection margin over the target (larger is better) breaks exact ties.
+//
+// # Enumeration
+//
+// A candidate is an ordered factorisation of D into 1 to Settings.MaxStages
+// factors of at least 2 (every order, not only decreasing ones), with a kind
+// for each stage: a CIC only as the first stage (every order and delay in
+// Settings.CICOrders and Settings.CICDelays), a half-band only for a factor
+// of 2, a FIR stage anywhere in its multiband and lowpass layouts. Where the
+// two layouts coincide (a factor of 2, or 2 fa >= Fi) only the multiband one
+// is tried. Candidates are generated one at a time into a reused buffer in a
+// fixed order; nothing is stored per candidate except what the tiers below
+// keep. The search refuses, with an error and before any work, a space of
+// more than MaxCandidates candidates (counted exactly beforehand), so that
+// it finishes or refuses within about 30 s for any D up to 2^20 on two
+// cores.
+//
+// # Estimate tier
+//
+// Each candidate is scored from order estimates following package chain's
+// rules (the ripple budget, less any CIC droop no FIR stage corrects, split
+// equally in dB over the half-band and FIR stages; Herrmann-Rabiner-Chan
+// lengths; half-bands rounded up to 4K-1) and priced by package cost's rules,
+// so the figures equal those of chain.Estimate and cost.Price (a test checks
+// this). Each stage's figures are cached by what they depend on (the
+// product of the factors before it, its factor, kind, layout, CIC order and
+// delay, its ripple share, the data width a CIC hands it), so scoring a
+// candidate allocates nothing once its stages have been seen. A CIC's
+// rejection is exact, read on its alias bands from its response; FIR and
+// half-band stages meet the targets by construction.
+//
+// A candidate is dropped, and counted under its reason in Result.Dropped,
+// when a CIC misses the rejection at its factor, when its first null falls
+// in the passband or its droop cannot be corrected nor afforded, when a
+// half-band's edges do not fit, when a FIR stage is estimated under 3 taps
+// or over 2047 (too long to design within the time budget), and when a CIC
+// is beaten by another searched CIC of the same factor that needs no more
+// memory, latency, droop at fp or output width and less of one: the rest of
+// the chain being equal such a CIC gives a chain at least as cheap, on the
+// one assumption that a compensator correcting less droop is no longer.
+//
+// # Design tier
+//
+// The estimated front is taken over the feasible candidates. A band of
+// candidates near it is kept: those within Settings.Tolerance (default 15%)
+// of not being dominated on every axis, and not beaten by a front point even
+// when every estimated stage the two do not share is given the favourable
+// end of its range for the candidate and the unfavourable end for the front
+// point. The range of a stage estimated at L taps is
+// [L/(1+tol) - 2, L(1+tol) + 2] taps (half-bands: K/(1+tol) - 1 to
+// K(1+tol) + 1 in K); CIC figures are exact.
+//
+// A stage's real design and price depend only on what its estimate depends
+// on, plus the CIC whose droop it corrects. So designing one chain teaches
+// the real figures of each of its stages for every candidate that contains
+// them. Rounds of real designs (chain.Design, then cost.Evaluate, which
+// measures the cascade with chain.Analyze) cover every stage of the band;
+// the band is then priced exactly from the stages learnt, and the front of
+// that pricing is designed for real (most of it already was). A designed
+// chain that fails to design, or whose measured alias rejection or passband
+// ripple misses the spec, is dropped with its reason counted and the front
+// re-taken without it, until it stands. The result's front is taken over
+// every chain designed for real: nothing on it is an estimate. A design
+// failure never ends the search.
+//
+// Settings.Exhaustive designs every feasible candidate instead (and keeps
+// the beaten CICs): it exists to check that the two tiers give the same
+// front, which the package's tests show on D = 120.
+//
+// # Recommendation
+//
+// Knee (the default) normalises each axis by the front's best (after adding
+// a floor of one multiply, one bit and one nanosecond, so a CIC-only chain
+// with no multiplies stays finite) and picks the chain nearest the utopia
+// point, where every normalised figure is 1, in Euclidean distance.
+// WeightedCost picks the least sum of the normalised figures times
+// Settings.WeightMultiplies, WeightMemory and WeightLatency. Result.Reason
+// says which rule chose the chain and how it compares with the chain of
+// fewest multiplies.
+//
+// # Determinism
+//
+// Designs run on Settings.Jobs goroutines (default GOMAXPROCS), each writing
+// its own index-addressed slot; every sort is a total order, ties broken by
+// the plan itself (stage count, then stage by stage factor, kind, CIC order,
+// CIC delay, layout). The result is the same, byte for byte, whatever the
+// number of goroutines. The faint cloud in Result.Feasible is thinned to
+// CloudSize by keeping evenly spaced candidates in enumeration order.
+//
+// On cancellation of the context Plan stops starting designs and returns the
+// front of what was designed, with Result.Partial set.
+//
+// The figures are planning data: sign-off belongs to a bit-true simulation
+// of the RTL and the team's own review.
+package optimize
