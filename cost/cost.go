@@ -53,12 +53,6 @@ func Evaluate(spec chain.Spec, c *chain.Chain, s Settings) (Figures, error) {
 	if err != nil {
 		return Figures{}, err
 	}
-	if c == nil || len(c.Stages) == 0 {
-		return Figures{}, errors.New("cost: empty chain")
-	}
-	if !(s.Clock >= 0) || math.IsInf(s.Clock, 0) {
-		return Figures{}, fmt.Errorf("cost: Settings.Clock = %g: must be a finite clock above 0 Hz, or 0 for none", s.Clock)
-	}
 	f, err := Price(spec, c, s)
 	if err != nil {
 		return Figures{}, err
@@ -72,8 +66,18 @@ func Evaluate(spec chain.Spec, c *chain.Chain, s Settings) (Figures, error) {
 }
 
 // Price computes the cost figures of Evaluate without the analysis (which
-// dominates Evaluate's time on long chains). spec must be normalised.
+// dominates Evaluate's time on long chains); Figures.Analysis is left zero.
 func Price(spec chain.Spec, c *chain.Chain, s Settings) (Figures, error) {
+	spec, err := spec.Normalize()
+	if err != nil {
+		return Figures{}, err
+	}
+	if c == nil || len(c.Stages) == 0 {
+		return Figures{}, errors.New("cost: empty chain")
+	}
+	if !(s.Clock >= 0) || math.IsInf(s.Clock, 0) {
+		return Figures{}, fmt.Errorf("cost: Settings.Clock = %g: must be a finite clock above 0 Hz, or 0 for none", s.Clock)
+	}
 	f := Figures{Designed: c.Designed, Stages: make([]StageFigures, len(c.Stages))}
 	rates := c.Rates()
 	fk := rates[len(rates)-1]
