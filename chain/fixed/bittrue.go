@@ -25,7 +25,8 @@ type Signal struct {
 	// AliasLevel is the level of the alias test tone in dBFS; zero means -1.
 	AliasLevel float64
 	// Samples is the number of output samples measured after the filters'
-	// transients; zero means 2048.
+	// transients; zero means 2048, halved (down to 256) while the run would
+	// need more than 4 Mi input samples.
 	Samples int
 	// Seed seeds the noise and the tones' phases (PCG); zero means 1.
 	Seed uint64
@@ -72,13 +73,23 @@ type BitTrueResult struct {
 	AliasNoiseDB float64
 	AliasValid   bool
 
+	// The test signal as run: tone frequencies (moved to whole cycles) and
+	// levels, and the noise RMS in dBFS.
+	Tones     []Tone
+	NoiseDBFS float64
+
 	Samples      int // output samples measured
 	InputSamples int // input samples run
 	Skip         int // output samples skipped for transients
 }
 
-// maxInputSamples bounds a bit-true run's memory.
-const maxInputSamples = 1 << 25
+// maxInputSamples bounds a bit-true run's memory (about 16 bytes a sample);
+// with Signal.Samples left zero the window shrinks (to no fewer than 256
+// output samples) to keep the run within autoInputSamples.
+const (
+	maxInputSamples  = 1 << 25
+	autoInputSamples = 1 << 22
+)
 
 // BitTrue runs the cascade in integer arithmetic at the widths w (from Plan)
 // and in float64 arithmetic, on sig and on an alias tone, and compares them.
@@ -104,7 +115,8 @@ func BitTrue(c Cascade, w *Widths, sig Signal) (BitTrueResult, error) {
 	if !(fp > 0) || fp >= fk/2 || fa < fp || fa > fk/2 {
 		return BitTrueResult{}, fmt.Errorf("fixed: cascade Passband = %g Hz, Protected = %g Hz: need 0 < Passband <= Protected <= output rate/2 = %g Hz", fp, fa, fk/2)
 	}
-	if sig.Samples == 0 {
+	auto := sig.Samples == 0
+	if auto {
 		sig.Samples = 2048
 	}
 	if sig.Samples < 64 {
@@ -146,11 +158,14 @@ func BitTrue(c Cascade, w *Widths, sig Signal) (BitTrueResult, error) {
 	}
 	skip := (span+d-1)/d + 1
 	nm := sig.Samples
+	for auto && nm > 256 && (skip+nm)*d > autoInputSamples {
+		nm /= 2
+	}
 	nin := (skip + nm) * d
 	if nin > maxInputSamples {
 		return BitTrueResult{}, fmt.Errorf("fixed: bit-true run needs %d input samples (decimation %d, %d output samples); at most %d are supported", nin, d, nm+skip, maxInputSamples)
 	}
-	res := BitTrueResult{Samples: nm, InputSamples: nin, Skip: skip}
+	res := BitTrueResult{Samples: nm, InputSamples: nin, Skip: skip, NoiseDBFS: math.Max(-300, 20*math.Log10(noise))}
 	rng := rand.New(rand.NewPCG(sig.Seed, 0x5eed))
 
 	// Run 1: the wanted tones plus noise.
@@ -159,12 +174,13 @@ func BitTrue(c Cascade, w *Widths, sig Signal) (BitTrueResult, error) {
 	for _, t := range sig.Tones {
 		m := math.Round(t.Freq / fk * float64(nm))
 		nus = append(nus, m/float64(nm))
+		res.Tones = append(res.Tones, Tone{Freq: m * fk / float64(nm), Level: t.Level})
 		addTone(x, m*fk/float64(nm), math.Pow(10, t.Level/20), 2*math.Pi*rng.Float64(), c.InputRate)
 	}
 	addNoise(x, noise, rng)
-	yi, yf, xq, clipped := runBoth(c, w, x)
+	yi, yf, inErr, clipped := runBoth(c, w, x)
 	res.Clipped = clipped
-	res.InputSNRDB = snrDB(x, xq)
+	res.InputSNRDB = ratioDB(power(x), inErr)
 	ref, e := yf[skip:skip+nm], make([]float64, nm)
 	for n := range e {
 		e[n] = yi[skip+n] - ref[n]
@@ -326,16 +342,17 @@ func stageLen(st Stage) int {
 }
 
 // runBoth runs the integer and the float chain on x (fractions of full
-// scale) and returns both outputs in fractions of full scale, the quantised
-// input and the number of clipped input samples.
-func runBoth(c Cascade, w *Widths, x []float64) (yi, yf, xq []float64, clipped int) {
+// scale) and returns both outputs in fractions of full scale, the mean square
+// error of the quantised input and the number of clipped input samples.
+func runBoth(c Cascade, w *Widths, x []float64) (yi, yf []float64, inErr float64, clipped int) {
 	b := w.InputBits
 	xi := make([]int64, len(x))
 	clipped = ADC(xi, x, b)
-	xq = make([]float64, len(x))
 	for n, q := range xi {
-		xq[n] = math.Ldexp(float64(q), -(b - 1))
+		e := math.Ldexp(float64(q), -(b-1)) - x[n]
+		inErr += e * e
 	}
+	inErr /= float64(len(x))
 	cur := xi
 	fcur := x
 	for i, st := range c.Stages {
@@ -353,7 +370,7 @@ func runBoth(c Cascade, w *Widths, x []float64) (yi, yf, xq []float64, clipped i
 	for n, v := range cur {
 		yi[n] = math.Ldexp(float64(v), -(ob - 1))
 	}
-	return yi, fcur, xq, clipped
+	return yi, fcur, inErr, clipped
 }
 
 // ADC quantises x (fractions of full scale) to bits-bit two's-complement

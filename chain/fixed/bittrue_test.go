@@ -164,3 +164,24 @@ func TestBitTrueSNRPrediction(t *testing.T) {
 		}
 	}
 }
+
+func TestBitTrueInputWordADCRule(t *testing.T) {
+	// The bit-true run's input word obeys the ADC rule SNR = 6.02 B + 1.76 dB
+	// for a full-scale sine (common practice), no added noise.
+	c := testCascade()
+	for _, b := range []int{10, 14} {
+		w, err := Plan(c, Words{InputBits: b, OutputBits: 24}, Settings{})
+		if err != nil {
+			t.Fatal(err)
+		}
+		top := 20 * math.Log10(1-math.Ldexp(1, -(b-1))) // largest code, no clipping
+		r, err := BitTrue(c, w, Signal{Tones: []Tone{{Freq: 23e3, Level: top}}, NoiseDBFS: math.Inf(-1)})
+		if err != nil {
+			t.Fatal(err)
+		}
+		want := 6.02*float64(b) + 1.76
+		if math.Abs(r.InputSNRDB-want) > 0.3 {
+			t.Errorf("%d-bit input: SNR %.2f dB, want %.2f +- 0.3 (clipped %d)", b, r.InputSNRDB, want, r.Clipped)
+		}
+	}
+}

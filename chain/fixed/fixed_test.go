@@ -367,3 +367,17 @@ func TestAmplitudeRecurrence(t *testing.T) {
 		}
 	}
 }
+
+func TestParseMultiplier(t *testing.T) {
+	for _, tc := range []struct {
+		in   string
+		a, b int
+		ok   bool
+	}{{"18x27", 18, 27, true}, {"18 x 25", 18, 25, true}, {"27*18", 27, 18, true}, {"18X27", 18, 27, true},
+		{"18", 0, 0, false}, {"x27", 0, 0, false}, {"1x27", 0, 0, false}, {"18x27x2", 0, 0, false}, {"", 0, 0, false}} {
+		a, b, err := ParseMultiplier(tc.in)
+		if (err == nil) != tc.ok || a != tc.a || b != tc.b {
+			t.Errorf("ParseMultiplier(%q) = %d, %d, %v", tc.in, a, b, err)
+		}
+	}
+}

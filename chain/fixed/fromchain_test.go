@@ -1,6 +1,7 @@
 package fixed
 
 import (
+	"encoding/json"
 	"math"
 	"strings"
 	"testing"
@@ -117,4 +118,50 @@ func TestEvaluateDesignedChain(t *testing.T) {
 	if !bt.AliasValid || math.Abs(bt.AliasRejectionDB-bt.AliasResponseDB) > 1 {
 		t.Errorf("bit-true alias %.2f dB vs response %.2f dB (valid %v)", bt.AliasRejectionDB, bt.AliasResponseDB, bt.AliasValid)
 	}
+}
+
+func TestReportFields(t *testing.T) {
+	// Issue 6: report.json carries per stage coefficient_bits, coefficients_int
+	// (full impulse response), accumulator_bits, output_bits; per chain
+	// bittrue_snr_db. Same input, same bytes.
+	spec, c := handChain(t)
+	var first []byte
+	for run := 0; run < 2; run++ {
+		res, err := Evaluate(spec, c, Settings{NativeA: 18, NativeB: 27, Clock: 100e6}, Signal{})
+		if err != nil {
+			t.Fatal(err)
+		}
+		b, err := json.Marshal(res.Report(true))
+		if err != nil {
+			t.Fatal(err)
+		}
+		if run == 0 {
+			first = b
+			continue
+		}
+		if string(b) != string(first) {
+			t.Fatal("report differs between two runs")
+		}
+	}
+	var m map[string]any
+	if err := json.Unmarshal(first, &m); err != nil {
+		t.Fatal(err)
+	}
+	if _, ok := m["bittrue_snr_db"].(float64); !ok {
+		t.Errorf("no bittrue_snr_db in %s", first)
+	}
+	stages := m["stages"].([]any)
+	for i, s := range stages {
+		st := s.(map[string]any)
+		for _, k := range []string{"coefficient_bits", "coefficients_int", "accumulator_bits", "output_bits"} {
+			if _, ok := st[k]; !ok {
+				t.Errorf("stage %d: no %s", i+1, k)
+			}
+		}
+		fir := c.Stages[i].(chain.FIRStage)
+		if n := len(st["coefficients_int"].([]any)); n != len(fir.Taps) {
+			t.Errorf("stage %d: %d integer coefficients, %d taps", i+1, n, len(fir.Taps))
+		}
+	}
+	t.Logf("%s", first)
 }

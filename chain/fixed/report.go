@@ -1,0 +1,125 @@
+package fixed
+
+import (
+	"fmt"
+	"strconv"
+	"strings"
+)
+
+// StageReport is one stage's fixed-point figures, with the names report.json
+// uses for them. Zero-width fields are left out for a CIC.
+type StageReport struct {
+	InputBits int `json:"input_bits"`
+	// FIR and half-band: the coefficient width and scale, the quantised
+	// coefficients as integers (full impulse response: tap k = ints[k] / 2^frac),
+	// how many the local search moved off plain rounding, and whether the
+	// quantised response meets the stage's bands.
+	CoefficientBits      int     `json:"coefficient_bits,omitempty"`
+	CoefficientFrac      *int    `json:"coefficient_frac,omitempty"`
+	CoefficientsInt      []int64 `json:"coefficients_int,omitempty"`
+	CoefficientsAdjusted int     `json:"coefficients_adjusted,omitempty"`
+	QuantisedMeetsBands  bool    `json:"quantised_meets_bands"`
+
+	AccumulatorBits int `json:"accumulator_bits"`
+	OutputBits      int `json:"output_bits"`
+	// CIC: pruned register widths (integrators then combs) and the LSBs each
+	// drops, the output's last.
+	RegisterBits []int `json:"register_bits,omitempty"`
+	DroppedBits  []int `json:"dropped_bits,omitempty"`
+	// RoundingPoints states every rounding, truncation and saturation point.
+	RoundingPoints []string `json:"rounding_points"`
+
+	MultiplierSize      string `json:"multiplier_size,omitempty"` // "a x b" bits
+	MultipliesPerSample int    `json:"multiplies_per_stage_output,omitempty"`
+	CoefMemoryBits      int    `json:"coefficient_memory_bits"`
+	DataMemoryBits      int    `json:"data_memory_bits"`
+	NativePerProduct    int    `json:"native_multipliers_per_product,omitempty"`
+	HardwareMultipliers *int   `json:"hardware_multipliers,omitempty"`
+}
+
+// ChainReport is a chain's fixed-point figures for report.json.
+type ChainReport struct {
+	BitTrueSNRDB            float64 `json:"bittrue_snr_db"`
+	BitTrueENOB             float64 `json:"bittrue_enob"`
+	BitTrueMatchDB          float64 `json:"bittrue_match_db"`
+	BitTrueOffsetLSB        float64 `json:"bittrue_offset_lsb"`
+	InputSNRDB              float64 `json:"input_snr_db"`
+	BitTrueAliasHz          float64 `json:"bittrue_alias_hz"`
+	BitTrueAliasRejectionDB float64 `json:"bittrue_alias_rejection_db"`
+	AliasResponseDB         float64 `json:"quantised_alias_response_db"`  // at bittrue_alias_hz
+	QuantisedRejectionDB    float64 `json:"quantised_alias_rejection_db"` // worst over the alias bands
+	BitTrueAliasValid       bool    `json:"bittrue_alias_valid"`
+	TestSignal              string  `json:"bittrue_test_signal"`
+	FixedMemoryBits         int     `json:"fixed_memory_bits"`
+	HardwareMultipliers     *int    `json:"hardware_multipliers,omitempty"`
+
+	Stages []StageReport `json:"stages"`
+}
+
+// Report flattens r for report.json. withHardware says whether a native
+// multiplier size and a clock were given (so that 0 multipliers is a figure).
+func (r *Result) Report(withHardware bool) ChainReport {
+	bt := r.BitTrue
+	var sig []string
+	for _, t := range bt.Tones {
+		sig = append(sig, fmt.Sprintf("%s Hz at %s dBFS", fmtG(t.Freq), fmtG(t.Level)))
+	}
+	out := ChainReport{
+		BitTrueSNRDB: bt.SNRDB, BitTrueENOB: bt.ENOB, BitTrueMatchDB: bt.MatchDB,
+		BitTrueOffsetLSB: bt.OutputOffset, InputSNRDB: bt.InputSNRDB,
+		BitTrueAliasHz: bt.AliasHz, BitTrueAliasRejectionDB: bt.AliasRejectionDB,
+		AliasResponseDB: bt.AliasResponseDB, QuantisedRejectionDB: bt.WorstAliasResponseDB,
+		BitTrueAliasValid: bt.AliasValid,
+		TestSignal: fmt.Sprintf("%s; white Gaussian noise %s dBFS RMS; %d output samples",
+			strings.Join(sig, ", "), fmtG(bt.NoiseDBFS), bt.Samples),
+		FixedMemoryBits: r.Widths.MemoryBits,
+	}
+	if withHardware {
+		m := r.Widths.HardwareMultipliers
+		out.HardwareMultipliers = &m
+	}
+	for _, sw := range r.Widths.Stages {
+		s := StageReport{
+			InputBits: sw.InputBits, QuantisedMeetsBands: sw.MeetsBands,
+			AccumulatorBits: sw.AccumulatorBits, OutputBits: sw.OutputBits,
+			RoundingPoints: append([]string{}, sw.Points...),
+			CoefMemoryBits: sw.CoefMemoryBits, DataMemoryBits: sw.DataMemoryBits,
+		}
+		if sw.CIC {
+			s.RegisterBits = append([]int{}, sw.Pruning.RegisterBits...)
+			s.DroppedBits = append([]int{}, sw.Pruning.Dropped...)
+		} else {
+			f := sw.Coefficients.Frac
+			s.CoefficientBits, s.CoefficientFrac = sw.Coefficients.Bits, &f
+			s.CoefficientsInt = append([]int64{}, sw.Coefficients.Ints...)
+			s.CoefficientsAdjusted = sw.Coefficients.Adjusted
+			s.MultiplierSize = fmt.Sprintf("%d x %d", sw.MultiplierA, sw.MultiplierB)
+			s.MultipliesPerSample = sw.MultipliesPerSample
+			s.NativePerProduct = sw.NativePerProduct
+			if withHardware {
+				m := sw.HardwareMultipliers
+				s.HardwareMultipliers = &m
+			}
+		}
+		out.Stages = append(out.Stages, s)
+	}
+	return out
+}
+
+func fmtG(v float64) string { return strconv.FormatFloat(v, 'g', 8, 64) }
+
+// ParseMultiplier reads a native multiplier size "AxB" (also "A x B" or
+// "A*B"), e.g. "18x27", into its two operand widths in bits.
+func ParseMultiplier(s string) (a, b int, err error) {
+	t := strings.ToLower(strings.ReplaceAll(s, " ", ""))
+	t = strings.ReplaceAll(t, "*", "x")
+	p := strings.Split(t, "x")
+	if len(p) == 2 {
+		a, err1 := strconv.Atoi(p[0])
+		b, err2 := strconv.Atoi(p[1])
+		if err1 == nil && err2 == nil && a >= 2 && b >= 2 && a <= 128 && b <= 128 {
+			return a, b, nil
+		}
+	}
+	return 0, 0, fmt.Errorf("fixed: multiplier %q: want two widths in bits as AxB, each in [2, 128], e.g. 18x27", s)
+}
