@@ -253,6 +253,9 @@ func planFIR(st Stage, rate float64, in, ob, coefBits int, s Settings) (StageWid
 		if st.HalfBand && !IsHalfBand(st.Taps, 1e-6) {
 			return StageWidths{}, fmt.Errorf("taps of length %d are not a half-band", len(st.Taps))
 		}
+		if _, err := symmetrized(st.Taps); err != nil {
+			return StageWidths{}, err
+		}
 		sw.Coefficients, sw.Deviations, sw.MeetsBands = TryWidth(st.Taps, rate, bands, coefBits, q)
 	}
 	sw.MeetsBands = sw.MeetsBands && sw.FloatMeets

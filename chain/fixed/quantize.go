@@ -341,6 +341,10 @@ func MinCoefBits(taps []float64, rate float64, bands []remez.Band, s QuantSettin
 	if s.HalfBand && !IsHalfBand(taps, 1e-6) {
 		return Coefficients{}, nil, fmt.Errorf("fixed: taps of length %d are not a half-band", len(taps))
 	}
+	taps, err := symmetrized(taps)
+	if err != nil {
+		return Coefficients{}, nil, err
+	}
 	var best []float64
 	for bits := s.MinBits; bits <= s.MaxBits; bits++ {
 		c, dev, ok := tryWidth(taps, rate, bands, bits, s)
@@ -354,11 +358,40 @@ func MinCoefBits(taps []float64, rate float64, bands []remez.Band, s QuantSettin
 
 // TryWidth quantises taps at exactly bits and runs the same local search as
 // MinCoefBits at that width. ok reports whether the result meets the bands.
+// It panics if bits is outside [2, MaxBits] or the taps are not symmetric.
 func TryWidth(taps []float64, rate float64, bands []remez.Band, bits int, s QuantSettings) (c Coefficients, dev []float64, ok bool) {
 	if s.Budget == 0 {
 		s.Budget = 64
 	}
+	if bits < 2 || bits > MaxBits {
+		panic(fmt.Sprintf("fixed: TryWidth with %d bits, outside [2, %d]", bits, MaxBits))
+	}
+	taps, err := symmetrized(taps)
+	if err != nil {
+		panic(err)
+	}
 	return tryWidth(taps, rate, bands, bits, s)
+}
+
+// symmetrized returns taps with each mirrored pair set to its mean, so that
+// design residue cannot make the two round differently; taps further than
+// 1e-9 of the largest from symmetric are not a linear-phase filter.
+func symmetrized(taps []float64) ([]float64, error) {
+	n := len(taps)
+	m := 0.0
+	for _, t := range taps {
+		m = math.Max(m, math.Abs(t))
+	}
+	out := append([]float64(nil), taps...)
+	for k := 0; k < n/2; k++ {
+		a, b := taps[k], taps[n-1-k]
+		if math.Abs(a-b) > 1e-9*m {
+			return nil, fmt.Errorf("fixed: taps %d and %d differ (%g, %g): the filter is not linear-phase (symmetric)", k, n-1-k, a, b)
+		}
+		out[k] = (a + b) / 2
+		out[n-1-k] = out[k]
+	}
+	return out, nil
 }
 
 func tryWidth(taps []float64, rate float64, bands []remez.Band, bits int, s QuantSettings) (Coefficients, []float64, bool) {
