@@ -2,6 +2,7 @@ package cost
 
 import (
 	"math"
+	"strings"
 	"testing"
 
 	"stepdown/chain"
@@ -137,5 +138,38 @@ func TestEvaluateErrors(t *testing.T) {
 	bad.Passband = 0
 	if _, err := Evaluate(bad, c, Settings{}); err == nil {
 		t.Error("bad spec accepted")
+	}
+}
+
+func TestEvaluateDesigned(t *testing.T) {
+	// A designed chain: Evaluate's cost figures are Price's, and its analysis
+	// is chain.Analyze's truth (not the estimate).
+	sp := chain.Spec{InputRate: 64e6, OutputRate: 250e3, Passband: 80e3, Protected: 100e3, RippleDB: 0.3, RejectionDB: 80}
+	plan, _ := chain.ParseNotation("cic4m1r16 > hb > fir4 > fir2")
+	c, err := chain.Design(sp, plan, chain.Settings{})
+	if err != nil {
+		if strings.Contains(err.Error(), "not implemented") {
+			t.Skip(err)
+		}
+		t.Fatal(err)
+	}
+	f, err := Evaluate(sp, c, Settings{Clock: 100e6})
+	if err != nil {
+		t.Fatal(err)
+	}
+	p, _ := Price(sp, c, Settings{Clock: 100e6})
+	a, _ := chain.Analyze(c, sp)
+	if !f.Designed || f.Analysis != a || f.MultipliesPerOutput != p.MultipliesPerOutput || f.MemoryBits != p.MemoryBits {
+		t.Errorf("Evaluate %+v, Price %+v, Analyze %+v", f, p, a)
+	}
+	// Hand formula on the designed lengths: half-band 4K-1 -> K x 4 later
+	// stages' factor 8... counted per final output: K x (4 x 2), FIR by 4
+	// ceil(N/2) x 2, last FIR ceil(N/2).
+	hb := c.Stages[1].(chain.FIRStage)
+	f4 := c.Stages[2].(chain.FIRStage)
+	f2 := c.Stages[3].(chain.FIRStage)
+	want := float64((len(hb.Taps)+1)/4*8 + (len(f4.Taps)+1)/2*2 + (len(f2.Taps)+1)/2)
+	if f.MultipliesPerOutput != want {
+		t.Errorf("MPO %v, hand formula %v", f.MultipliesPerOutput, want)
 	}
 }
