@@ -175,7 +175,7 @@ func TestRunCICMatchesEquivalentFIR(t *testing.T) {
 		want := polyphaseDecimate(cicTaps(st), tc.r, x)
 		// Input quantisation is one step of 2^-(61 - growth) of the peak
 		// (1.3 here), rounded: at most half a step on the output too.
-		tol := 1.3 * math.Ldexp(1, -(61 - CICGrowth(tc.n, tc.m, tc.r)))
+		tol := 1.3 * math.Ldexp(1, -(61-CICGrowth(tc.n, tc.m, tc.r)))
 		for i := range want {
 			if math.Abs(got[i]-want[i]) > tol {
 				t.Fatalf("N=%d M=%d R=%d: output %d = %v, FIR gives %v", tc.n, tc.m, tc.r, i, got[i], want[i])
