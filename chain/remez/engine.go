@@ -82,10 +82,10 @@ type engine struct {
 	delta float64
 	// interpolation data of the levelled polynomial on the first r
 	// reference points
-	xr, mu, c []float64
-	lam       []float64
-	mant      []float64
-	expo      []int
+	xr, mu, c, c2 []float64
+	lam           []float64
+	mant          []float64
+	expo          []int
 
 	cand  []point // candidate extrema
 	tmp   []point
@@ -363,35 +363,58 @@ func (e *engine) level() error {
 		e.expo[i] = -(ex + x)
 		emax = max(emax, e.expo[i])
 	}
-	var num, den float64
 	for i := range m {
-		l := math.Ldexp(e.mant[i], e.expo[i]-emax)
-		e.lam[i] = l
-		num += l * e.ref[i].d
-		if i%2 == 0 {
-			den += l / e.ref[i].w
-		} else {
-			den -= l / e.ref[i].w
-		}
+		e.lam[i] = math.Ldexp(e.mant[i], e.expo[i]-emax)
 	}
-	if den == 0 || math.IsNaN(num/den) {
-		return errors.New("remez: levelled deviation undefined (numerical breakdown)")
-	}
-	e.delta = num / den
+	// Interpolate on every point but a middle one, q, and choose delta so
+	// that the error at q is levelled too, computed by the same barycentric
+	// evaluation that later reads the error: P = P0 - delta Q with P0
+	// interpolating d_i and Q interpolating (-1)^i / w_i. This keeps the
+	// levelling consistent to rounding where the textbook ratio of
+	// alternating sums loses digits (long filters, crowded points near
+	// x = +-1).
+	q := m / 2
+	pq := &e.ref[q]
 	r := m - 1
 	e.xr = grow(e.xr, r)
 	e.mu = grow(e.mu, r)
 	e.c = grow(e.c, r)
-	last := &e.ref[r]
-	for i := range r {
-		p := &e.ref[i]
-		e.xr[i] = p.x
-		e.mu[i] = e.lam[i] * xdiff(p, last)
-		s := 1.0
+	e.c2 = grow(e.c2, r)
+	sgn := func(i int) float64 {
 		if i%2 == 1 {
-			s = -1
+			return -1
 		}
-		e.c[i] = p.d - s*e.delta/p.w
+		return 1
+	}
+	k := 0
+	for i := range m {
+		if i == q {
+			continue
+		}
+		p := &e.ref[i]
+		e.xr[k] = p.x
+		e.mu[k] = e.lam[i] * xdiff(p, pq)
+		e.c[k] = p.d
+		e.c2[k] = sgn(i) / p.w
+		k++
+	}
+	p0 := bary(pq.x, e.xr, e.mu, e.c)
+	q0 := bary(pq.x, e.xr, e.mu, e.c2)
+	den := q0 - sgn(q)/pq.w
+	if den == 0 || math.IsNaN(p0) || math.IsNaN(q0) {
+		return errors.New("remez: levelled deviation undefined (numerical breakdown)")
+	}
+	e.delta = (p0 - pq.d) / den
+	if math.IsNaN(e.delta) || math.IsInf(e.delta, 0) {
+		return errors.New("remez: levelled deviation undefined (numerical breakdown)")
+	}
+	k = 0
+	for i := range m {
+		if i == q {
+			continue
+		}
+		e.c[k] = e.ref[i].d - sgn(i)*e.delta/e.ref[i].w
+		k++
 	}
 	return nil
 }
@@ -639,7 +662,13 @@ func (e *engine) run(tol float64, maxIter int) (int, bool, error) {
 					mi = i
 				}
 			}
-			fmt.Println("  ref counts", cnt, "max at", e.grid[mi].f, e.grid[mi].e, "idx", mi, len(e.grid))
+			ci := 0
+			for i := range e.cand {
+				if math.Abs(e.cand[i].e) > math.Abs(e.cand[ci].e) {
+					ci = i
+				}
+			}
+			fmt.Println("  ref counts", cnt, "max at", e.grid[mi].f, e.grid[mi].e, "idx", mi, len(e.grid), "cand", e.cand[ci].f, e.cand[ci].e/e.delta, e.cand[ci].band)
 			if it == 1 {
 				for i := range e.ref {
 					if i < 4 || (i > cnt[0]-4 && i < cnt[0]+4) || i > len(e.ref)-4 {
