@@ -1,0 +1,52 @@
+// Package sweep runs a trade study for the stepdown command line: one spec
+// key is stepped over a range of values, the chain search is run for each
+// value, and the recommended chain's figures and the best figures on each
+// front are tabulated (sweep.csv), drawn (sweep.svg, sweep.png) and written
+// as JSON.
+//
+// Conventions: rates and frequencies in Hz, ripple peak-to-peak dB, rejection
+// positive dB, latency in seconds, coefficient widths in bits, as in the spec
+// file. Multiplies are per final output sample.
+//
+// The range FROM:TO:STEP (ParseVary):
+//
+//   - Each part is written like the spec's value for that key: "80:100:5",
+//     "80 dB:100 dB:5 dB", "1.92 MHz:3.84 MHz:640 kHz". A plain number is in
+//     the key's base unit (Hz, dB or bits). A unit written only after STEP
+//     applies to the parts written without one ("1.92:3.84:0.64 MHz"), as in
+//     the spec's band ranges.
+//   - STEP must be above zero and FROM must not exceed TO; TO is an inclusive
+//     bound, so the values are FROM, FROM+STEP, ... up to and including TO
+//     (within a relative 1e-9), and a TO that the steps do not land on is
+//     not itself a value. Each value is rounded to 12 significant digits so
+//     that 0.1 dB steps give 0.3 dB, not 0.30000000000000004.
+//   - At most MaxValues values.
+//   - Each value must lie in the key's own domain (frequencies above 0 Hz,
+//     ripple above 0 dB, rejection in (0, 150] dB, coefficient widths whole
+//     numbers of bits in [2, 40]); otherwise the whole range is refused
+//     with an *Error naming the key, the value and the rule (the command
+//     exits with status 2).
+//
+// Values that pass those checks but make the spec inconsistent as a whole
+// (a passband beyond half the output rate, a non-integer ratio of the input
+// and output rates, ...) are not refused up front: each such value is a row
+// of sweep.csv with status "invalid" and the spec's own message, and the
+// sweep goes on with the other values. The sweep fails only when no value at
+// all gives a chain.
+//
+// A value is applied by rewriting the spec text (the TOML key is set or
+// added) and parsing it again with the command line's spec parser, so every
+// default that depends on the swept key (the protected edge that defaults
+// to the passband, the stopband that defaults to FK - fa) follows it.
+//
+// Parallelism: Map runs values through a bounded pool of goroutines, each
+// writing its result into the slot of its index, so the outputs are the same
+// bytes whatever GOMAXPROCS or the pool size is, provided each run is
+// deterministic (the search is).
+//
+// The recommended chain's structure is its notation (stage kinds, factors,
+// CIC order and delay, FIR variant; not the tap counts). A row is marked
+// "changed" when its recommended notation differs from that of the previous
+// row that has a chain; the figure marks those values with a vertical line
+// and the new notation.
+package sweep

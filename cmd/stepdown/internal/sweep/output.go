@@ -1,0 +1,171 @@
+package sweep
+
+import (
+	"bytes"
+	"encoding/csv"
+	"encoding/json"
+	"fmt"
+	"math"
+	"strconv"
+
+	"stepdown/cmd/stepdown/internal/report"
+	"stepdown/cmd/stepdown/internal/specfile"
+)
+
+// Schema names the sweep's report.json format.
+const Schema = "stepdown.sweep/1"
+
+// ValueDir is the folder, relative to the output folder, of value i's
+// report.json and coefficient files.
+func ValueDir(i int) string { return fmt.Sprintf("values/%02d", i+1) }
+
+// CSVHeader is the first row of sweep.csv. The recommended chain's figures
+// come first; best_* are the least of each figure over that value's front
+// (each may come from a different chain of the front).
+var CSVHeader = []string{
+	"index", "key", "value", "value_text", "status", "recommended", "structure_changed",
+	"designed", "meets_targets", "multiplies_per_output", "adds_per_output", "memory_bits",
+	"latency_s", "latency_samples", "multipliers_at_clock", "alias_rejection_db", "passband_ripple_db",
+	"front_size", "best_multiplies_per_output", "best_memory_bits", "best_latency_s", "detail",
+}
+
+// CSV returns sweep.csv: one row per value, in the order of the values.
+// Cells of a value without a chain are empty, and its detail says why.
+func CSV(v Vary, rs []Result) []byte {
+	var buf bytes.Buffer
+	w := csv.NewWriter(&buf)
+	_ = w.Write(CSVHeader)
+	changed := Changes(rs)
+	for i, r := range rs {
+		row := []string{strconv.Itoa(i + 1), v.Key.Name, num(r.Value), v.Key.Format(r.Value), string(r.Status)}
+		if r.Status.HasChain() {
+			rep := r.Report
+			c := rep.Front[rep.Recommended]
+			b := BestOf(rep)
+			mult := ""
+			if c.MultipliersAtClock != nil {
+				mult = strconv.Itoa(*c.MultipliersAtClock)
+			}
+			row = append(row, c.Notation, strconv.FormatBool(changed[i]),
+				strconv.FormatBool(c.Designed), strconv.FormatBool(c.MeetsTargets),
+				num(c.MultipliesPerOutput), num(c.AddsPerOutput), strconv.Itoa(c.MemoryBits),
+				num(c.LatencyS), num(c.LatencySamples), mult, num(c.AliasRejectionDB), num(c.PassbandRippleDB),
+				strconv.Itoa(len(rep.Front)), num(b.Multiplies), strconv.Itoa(b.MemoryBits), num(b.LatencyS))
+		} else {
+			row = append(row, make([]string, 16)...)
+		}
+		row = append(row, r.Detail)
+		_ = w.Write(row)
+	}
+	w.Flush()
+	return buf.Bytes()
+}
+
+// num writes a finite float in Go's shortest round-trip form; a NaN or
+// infinity (which the library never returns) is left empty rather than
+// written.
+func num(v float64) string {
+	if math.IsNaN(v) || math.IsInf(v, 0) {
+		return ""
+	}
+	return strconv.FormatFloat(v, 'g', -1, 64)
+}
+
+// JSON types of the sweep's report.json.
+type (
+	// Doc is the sweep's report.json.
+	Doc struct {
+		Schema  string      `json:"schema"`
+		Command string      `json:"command"` // "sweep"
+		Caution string      `json:"caution"`
+		Spec    report.Spec `json:"spec"` // the spec as given, before the sweep
+		Vary    DocVary     `json:"vary"`
+		Values  []DocValue  `json:"values"`
+	}
+	// DocVary describes the swept key.
+	DocVary struct {
+		Key     string    `json:"key"`
+		SpecKey string    `json:"spec_key"`
+		Unit    string    `json:"unit"`
+		From    float64   `json:"from"`
+		To      float64   `json:"to"`
+		Step    float64   `json:"step"`
+		Range   string    `json:"range"` // as typed
+		Values  []float64 `json:"values"`
+	}
+	// DocValue is one value: its front without the coefficient arrays (they
+	// are in the value's own report.json under Folder).
+	DocValue struct {
+		Value            float64        `json:"value"`
+		ValueText        string         `json:"value_text"`
+		Status           string         `json:"status"`
+		Detail           string         `json:"detail,omitempty"`
+		Folder           string         `json:"folder,omitempty"`
+		StructureChanged bool           `json:"structure_changed"`
+		Search           *report.Search `json:"search,omitempty"`
+		Front            []report.Chain `json:"front"`
+		Recommended      int            `json:"recommended"`
+		Reason           string         `json:"reason,omitempty"`
+		Best             *DocBest       `json:"best,omitempty"`
+	}
+	// DocBest is the least of each figure over the front.
+	DocBest struct {
+		MultipliesPerOutput float64 `json:"multiplies_per_output"`
+		MemoryBits          int     `json:"memory_bits"`
+		LatencyS            float64 `json:"latency_s"`
+	}
+)
+
+// NewDoc builds the sweep's report.json document.
+func NewDoc(base *specfile.Spec, v Vary, rs []Result) *Doc {
+	d := &Doc{
+		Schema: Schema, Command: "sweep", Caution: report.Caution, Spec: report.NewSpec(base),
+		Vary: DocVary{Key: v.Key.Name, SpecKey: v.Key.Path, Unit: v.Key.Unit(), From: v.From, To: v.To,
+			Step: v.Step, Range: v.Text, Values: append([]float64{}, v.Values...)},
+		Values: []DocValue{},
+	}
+	changed := Changes(rs)
+	for i, r := range rs {
+		dv := DocValue{Value: r.Value, ValueText: v.Key.Format(r.Value), Status: string(r.Status),
+			Detail: r.Detail, StructureChanged: changed[i], Front: []report.Chain{}, Recommended: -1}
+		if r.Status.HasChain() {
+			rep := r.Report
+			s := rep.Search
+			dv.Search = &s
+			dv.Folder = ValueDir(i)
+			dv.Recommended = rep.Recommended
+			dv.Reason = rep.Reason
+			for _, c := range rep.Front {
+				dv.Front = append(dv.Front, summary(c))
+			}
+			b := BestOf(rep)
+			dv.Best = &DocBest{b.Multiplies, b.MemoryBits, b.LatencyS}
+		}
+		d.Values = append(d.Values, dv)
+	}
+	return d
+}
+
+// summary is a chain without its coefficient arrays.
+func summary(c report.Chain) report.Chain {
+	st := make([]report.Stage, len(c.Stages))
+	copy(st, c.Stages)
+	for i := range st {
+		st[i].Coefficients = nil
+		st[i].CoefficientInts = nil
+	}
+	c.Stages = st
+	return c
+}
+
+// Marshal returns the document's bytes, indented, with a final newline.
+func (d *Doc) Marshal() ([]byte, error) {
+	var buf bytes.Buffer
+	enc := json.NewEncoder(&buf)
+	enc.SetEscapeHTML(false)
+	enc.SetIndent("", "  ")
+	if err := enc.Encode(d); err != nil {
+		return nil, fmt.Errorf("sweep: report.json: %v", err)
+	}
+	return buf.Bytes(), nil
+}

@@ -1,0 +1,242 @@
+package sweep
+
+import (
+	"context"
+	"errors"
+	"fmt"
+	"math"
+	"runtime"
+	"sort"
+	"sync"
+
+	"stepdown/chain"
+	"stepdown/cmd/stepdown/internal/report"
+	"stepdown/cmd/stepdown/internal/specfile"
+	"stepdown/optimize"
+)
+
+// Map calls fn(ctx, i) for i in [0, n) on at most workers goroutines and
+// returns the results in index order. Each call writes only its own slot,
+// so the result does not depend on scheduling. workers < 1 means
+// runtime.GOMAXPROCS(0). Once ctx is done, calls not yet started are still
+// made (with the done ctx), so that every slot says what happened.
+func Map[T any](ctx context.Context, n, workers int, fn func(ctx context.Context, i int) T) []T {
+	out := make([]T, n)
+	if n == 0 {
+		return out
+	}
+	if workers < 1 {
+		workers = runtime.GOMAXPROCS(0)
+	}
+	workers = min(workers, n)
+	next := make(chan int)
+	var wg sync.WaitGroup
+	for w := 0; w < workers; w++ {
+		wg.Add(1)
+		go func() {
+			defer wg.Done()
+			for i := range next {
+				out[i] = fn(ctx, i)
+			}
+		}()
+	}
+	for i := 0; i < n; i++ {
+		next <- i
+	}
+	close(next)
+	wg.Wait()
+	return out
+}
+
+// Status says what became of one value.
+type Status string
+
+const (
+	OK         Status = "ok"         // searched; the front and recommendation are in Report
+	Partial    Status = "partial"    // stopped by the time limit with a front so far
+	Invalid    Status = "invalid"    // the value makes the spec inconsistent
+	Infeasible Status = "infeasible" // searched; no chain meets the spec
+	Failed     Status = "error"      // the search failed or was stopped before any chain
+)
+
+// HasChain reports whether the status comes with a recommended chain.
+func (s Status) HasChain() bool { return s == OK || s == Partial }
+
+// Result is one value of a sweep.
+type Result struct {
+	Value  float64
+	Status Status
+	// Detail explains a status other than ok, in one line.
+	Detail string
+	Spec   *specfile.Spec   // nil when Invalid
+	Search *optimize.Result // nil unless the search ran
+	Report *report.Report   // nil unless HasChain
+}
+
+// Study is a sweep to run.
+type Study struct {
+	Name string // the spec's name in messages: its path or "built-in example"
+	Spec []byte // the spec text
+	Vary Vary
+	// Settings returns the search settings for one value's spec; nil means
+	// the spec's own SearchSettings.
+	Settings func(*specfile.Spec) optimize.Settings
+	// Workers is how many values run at once; zero means
+	// runtime.GOMAXPROCS(0). Jobs is the total of parallel designs, shared
+	// among the values running at once; zero means runtime.GOMAXPROCS(0).
+	Workers, Jobs int
+	// Plan runs one search; nil means optimize.Plan. Tests substitute it.
+	Plan func(context.Context, chain.Spec, optimize.Settings) (*optimize.Result, error)
+	// Done, when not nil, is called as values finish (done of total), from
+	// one goroutine at a time.
+	Done func(done, total int)
+}
+
+// Run runs the study, values in parallel, and returns one Result per value
+// in the order of the values.
+func Run(ctx context.Context, st Study) []Result {
+	n := len(st.Vary.Values)
+	workers := st.Workers
+	if workers < 1 {
+		workers = runtime.GOMAXPROCS(0)
+	}
+	workers = max(1, min(workers, n))
+	jobs := st.Jobs
+	if jobs < 1 {
+		jobs = runtime.GOMAXPROCS(0)
+	}
+	perPlan := max(1, jobs/workers)
+	plan := st.Plan
+	if plan == nil {
+		plan = optimize.Plan
+	}
+	var mu sync.Mutex
+	done := 0
+	return Map(ctx, n, workers, func(ctx context.Context, i int) Result {
+		r := runOne(ctx, st, plan, perPlan, st.Vary.Values[i])
+		if st.Done != nil {
+			mu.Lock()
+			done++
+			st.Done(done, n)
+			mu.Unlock()
+		}
+		return r
+	})
+}
+
+func runOne(ctx context.Context, st Study, plan func(context.Context, chain.Spec, optimize.Settings) (*optimize.Result, error), jobs int, v float64) Result {
+	r := Result{Value: v}
+	spec, err := SpecAt(st.Name, st.Spec, st.Vary.Key, v)
+	if err != nil {
+		r.Status, r.Detail = Invalid, specRule(err)
+		return r
+	}
+	r.Spec = spec
+	if ctx.Err() != nil {
+		r.Status, r.Detail = Failed, "not run: the sweep was stopped"
+		return r
+	}
+	var set optimize.Settings
+	if st.Settings != nil {
+		set = st.Settings(spec)
+	} else {
+		set = spec.SearchSettings()
+	}
+	set.Jobs = jobs
+	set.Progress = nil
+	res, err := plan(ctx, spec.Chain, set)
+	if err != nil {
+		r.Status, r.Detail = Failed, "search: "+err.Error()
+		return r
+	}
+	r.Search = res
+	switch {
+	case len(res.Front) == 0 && res.Partial:
+		r.Status, r.Detail = Failed, "stopped before any chain was designed"
+		return r
+	case len(res.Front) == 0:
+		r.Status, r.Detail = Infeasible, "no chain meets the spec ("+dropped(res.Dropped)+")"
+		return r
+	}
+	rep, err := report.New("plan", spec, res)
+	if err != nil {
+		r.Status, r.Detail = Failed, err.Error()
+		return r
+	}
+	r.Report = rep
+	r.Status = OK
+	if res.Partial {
+		r.Status, r.Detail = Partial, "stopped by the time limit; the front is the best found so far"
+	}
+	return r
+}
+
+// specRule is a spec error's message without the file name.
+func specRule(err error) string {
+	var se *specfile.Error
+	if errors.As(err, &se) {
+		c := *se
+		c.File = ""
+		s := c.Error()
+		if len(s) > 2 && s[:2] == ": " {
+			s = s[2:]
+		}
+		return s
+	}
+	return err.Error()
+}
+
+func dropped(d map[string]int) string {
+	if len(d) == 0 {
+		return "no candidates"
+	}
+	keys := make([]string, 0, len(d))
+	for k := range d {
+		keys = append(keys, k)
+	}
+	sort.Strings(keys)
+	s := ""
+	for i, k := range keys {
+		if i > 0 {
+			s += ", "
+		}
+		s += fmt.Sprintf("%s: %d", k, d[k])
+	}
+	return s
+}
+
+// Best holds the least of each figure over one value's front (each may come
+// from a different chain).
+type Best struct {
+	Multiplies float64
+	MemoryBits int
+	LatencyS   float64
+}
+
+// BestOf returns the per-axis minima over a report's front.
+func BestOf(rep *report.Report) Best {
+	b := Best{Multiplies: math.Inf(1), MemoryBits: math.MaxInt, LatencyS: math.Inf(1)}
+	for _, c := range rep.Front {
+		b.Multiplies = math.Min(b.Multiplies, c.MultipliesPerOutput)
+		b.MemoryBits = min(b.MemoryBits, c.MemoryBits)
+		b.LatencyS = math.Min(b.LatencyS, c.LatencyS)
+	}
+	return b
+}
+
+// Changes marks, for each result, whether its recommended chain's notation
+// differs from that of the previous result that has a chain. The first
+// result with a chain is not marked.
+func Changes(rs []Result) []bool {
+	out := make([]bool, len(rs))
+	prev := ""
+	for i, r := range rs {
+		if !r.Status.HasChain() {
+			continue
+		}
+		n := r.Report.Front[r.Report.Recommended].Notation
+		out[i] = prev != "" && n != prev
+		prev = n
+	}
+	return out
+}

@@ -1,0 +1,280 @@
+package sweep
+
+import (
+	"bytes"
+	"context"
+	"errors"
+	"math"
+	"runtime"
+	"strings"
+	"testing"
+
+	"stepdown/chain"
+	"stepdown/cmd/stepdown/internal/specfile"
+	"stepdown/cost"
+	"stepdown/optimize"
+)
+
+func TestParseVary(t *testing.T) {
+	// Expected values are the arithmetic of the ranges themselves.
+	tests := []struct {
+		arg  string
+		key  string
+		want []float64
+	}{
+		{"rejection=80:100:5", "rejection", []float64{80, 85, 90, 95, 100}},
+		{"rejection=80 dB:100 dB:5 dB", "rejection", []float64{80, 85, 90, 95, 100}},
+		{"rejection=80:100:5 dB", "rejection", []float64{80, 85, 90, 95, 100}},
+		{"rejection=80:92:5", "rejection", []float64{80, 85, 90}},
+		{"rejection=80:80:5", "rejection", []float64{80}},
+		{"ripple=0.1:0.5:0.1", "ripple", []float64{0.1, 0.2, 0.3, 0.4, 0.5}},
+		{"output_rate=1.92 MHz:3.84 MHz:640 kHz", "output_rate", []float64{1.92e6, 2.56e6, 3.2e6, 3.84e6}},
+		{"output_rate=1.92:3.84:0.64 MHz", "output_rate", []float64{1.92e6, 2.56e6, 3.2e6, 3.84e6}},
+		{"passband=400000:500000:50000", "passband", []float64{4e5, 4.5e5, 5e5}},
+		{"clock=200 MHz:250 MHz:25 MHz", "clock", []float64{200e6, 225e6, 250e6}},
+		{"hardware.clock=200 MHz:250 MHz:25 MHz", "clock", []float64{200e6, 225e6, 250e6}},
+		{"coefficient_bits=14:20:2", "coefficient_bits", []float64{14, 16, 18, 20}},
+		{"coefficients=14 bits:16 bits:1 bit", "coefficient_bits", []float64{14, 15, 16}},
+		{"input_rate=100 MHz:120 MHz:10 MHz", "input_rate", []float64{100e6, 110e6, 120e6}},
+		{"protected=500 kHz:700 kHz:100 kHz", "protected", []float64{5e5, 6e5, 7e5}},
+		{"rejection=1:50:1", "rejection", nil}, // 50 values: at the limit
+	}
+	for _, tc := range tests {
+		v, err := ParseVary(tc.arg)
+		if err != nil {
+			t.Errorf("%s: %v", tc.arg, err)
+			continue
+		}
+		if v.Key.Name != tc.key {
+			t.Errorf("%s: key %s, want %s", tc.arg, v.Key.Name, tc.key)
+		}
+		if tc.want == nil {
+			if len(v.Values) != MaxValues {
+				t.Errorf("%s: %d values, want %d", tc.arg, len(v.Values), MaxValues)
+			}
+			continue
+		}
+		if len(v.Values) != len(tc.want) {
+			t.Errorf("%s: values %v, want %v", tc.arg, v.Values, tc.want)
+			continue
+		}
+		for i := range tc.want {
+			if v.Values[i] != tc.want[i] { // exact: values are rounded to 12 digits
+				t.Errorf("%s: value %d = %v, want %v", tc.arg, i, v.Values[i], tc.want[i])
+			}
+		}
+	}
+}
+
+func TestParseVaryErrors(t *testing.T) {
+	tests := []struct{ arg, want string }{
+		{"rejection", "want KEY=FROM:TO:STEP"},
+		{"bogus=1:2:1", `unknown key "bogus"`},
+		{"rejection=80:100", "three values"},
+		{"rejection=80:100:0", "STEP 0 dB must be above zero"},
+		{"rejection=80:100:-5", "must be above zero"},
+		{"rejection=100:80:5", "FROM 100 dB is above TO 80 dB"},
+		{"rejection=80:100:5 MHz", "STEP"},
+		{"rejection=0:100:5", "value 0 dB must be above 0 dB"},
+		{"rejection=100:200:10", "value 160 dB must be at most 150 dB"},
+		{"ripple=-0.1:0.5:0.1", "must be above 0 dB"},
+		{"rejection=1:51:1", "51 values, over the limit of 50"},
+		{"rejection=1:1e9:1e-9", "over the limit of 50"},
+		{"passband=1 mHz:2 MHz:1 MHz", "millihertz"},
+		{"coefficient_bits=14:20:1.5", "whole number of bits"},
+		{"coefficient_bits=1:4:1", "value 1 bits must be at least 2 bits"},
+		{"coefficient_bits=38:44:2", "must be at most 40 bits"},
+		{"output_rate=0:1 MHz:100 kHz", "must be above 0 Hz"},
+	}
+	for _, tc := range tests {
+		_, err := ParseVary(tc.arg)
+		var ve *Error
+		if !errors.As(err, &ve) {
+			t.Errorf("%s: err %v, want *Error", tc.arg, err)
+			continue
+		}
+		msg := err.Error()
+		if !strings.Contains(msg, tc.want) || strings.Contains(msg, "\n") || !strings.HasPrefix(msg, "--vary ") {
+			t.Errorf("%s: %q, want one line containing %q", tc.arg, msg, tc.want)
+		}
+	}
+}
+
+func TestSpecAt(t *testing.T) {
+	base := []byte(specfile.ExampleText)
+	k, _ := LookupKey("passband")
+	// protected is set in the example; moving the passband beyond it breaks fp <= fa.
+	if _, err := SpecAt("ex", base, k, 700e3); err == nil || !strings.Contains(err.Error(), "passband") {
+		t.Errorf("passband 700 kHz: err %v, want a passband rule", err)
+	}
+	s, err := SpecAt("ex", base, k, 400e3)
+	if err != nil || s.Chain.Passband != 400e3 {
+		t.Fatalf("passband 400 kHz: %v, %+v", err, s)
+	}
+	// A key the spec leaves out is added with its table.
+	noclock := strings.Replace(specfile.ExampleText, "clock = \"245.76 MHz\"", "", 1)
+	k, _ = LookupKey("clock")
+	s, err = SpecAt("ex", []byte(noclock), k, 100e6)
+	if err != nil || s.Clock != 100e6 {
+		t.Fatalf("clock: %v, %+v", err, s)
+	}
+	k, _ = LookupKey("coefficient_bits")
+	s, err = SpecAt("ex", base, k, 14)
+	if err != nil || s.Chain.CoefBits != 14 {
+		t.Fatalf("coefficient_bits: %v", err)
+	}
+	// 122.88 MHz / 1.8 MHz is not an integer.
+	k, _ = LookupKey("output_rate")
+	if _, err := SpecAt("ex", base, k, 1.8e6); err == nil {
+		t.Error("output_rate 1.8 MHz: no error for a non-integer ratio")
+	}
+}
+
+func TestMapOrder(t *testing.T) {
+	for _, w := range []int{1, 2, 7, 100} {
+		got := Map(context.Background(), 40, w, func(_ context.Context, i int) int { return i * i })
+		for i, v := range got {
+			if v != i*i {
+				t.Fatalf("workers %d: slot %d = %d", w, i, v)
+			}
+		}
+	}
+}
+
+// fakePlan stands in for optimize.Plan: a front of two chains whose figures
+// grow with the rejection target, and whose recommended structure changes
+// above 90 dB.
+func fakePlan(_ context.Context, s chain.Spec, set optimize.Settings) (*optimize.Result, error) {
+	if s.RejectionDB > 140 {
+		return &optimize.Result{Candidates: 10, Dropped: map[string]int{"too hard": 10}, Recommended: -1}, nil
+	}
+	n := 4
+	if s.RejectionDB > 90 {
+		n = 5
+	}
+	mk := func(r1 int, mpo float64) optimize.Candidate {
+		r2 := s.Decimation() / r1
+		plan := []chain.StagePlan{{Kind: chain.CIC, Factor: r1, CICOrder: n, CICDelay: 1}, {Kind: chain.FIR, Factor: r2}}
+		taps := make([]float64, 21)
+		for i := range taps {
+			taps[i] = 1.0 / 21
+		}
+		ch := &chain.Chain{InputRate: s.InputRate, Plan: plan, Designed: true, Stages: []chain.Stage{
+			chain.CICStage{N: n, M: 1, R: r1, RegisterBits: []int{30, 30, 30, 30}},
+			chain.FIRStage{R: r2, Taps: taps, Length: len(taps)},
+		}}
+		f := cost.Figures{MultipliesPerOutput: mpo, AddsPerOutput: 2 * mpo, MemoryWords: 100, MemoryBits: int(s.RejectionDB) * 100,
+			LatencyS: s.RejectionDB * 1e-8, LatencySamples: 3, Designed: true,
+			Stages: []cost.StageFigures{{}, {MultipliesPerOutput: mpo}}}
+		f.Analysis.AliasRejectionDB = s.RejectionDB + 1
+		f.Analysis.PassbandRippleDB = s.RippleDB / 2
+		return optimize.Candidate{Plan: plan, Chain: ch, Figures: f, MarginDB: 1}
+	}
+	return &optimize.Result{
+		Candidates: 10, Designed: 2, Dropped: map[string]int{},
+		Front:       []optimize.Candidate{mk(8, s.RejectionDB/10), mk(16, s.RejectionDB/8)},
+		Recommended: 0, Reason: "fake",
+	}, nil
+}
+
+func study(t *testing.T, arg string, workers int) ([]Result, Vary) {
+	t.Helper()
+	v, err := ParseVary(arg)
+	if err != nil {
+		t.Fatal(err)
+	}
+	st := Study{Name: "ex", Spec: []byte(specfile.ExampleText), Vary: v, Workers: workers, Plan: fakePlan}
+	return Run(context.Background(), st), v
+}
+
+func TestRunAndCSV(t *testing.T) {
+	rs, v := study(t, "rejection=80:100:5", 3)
+	changed := Changes(rs)
+	wantChanged := []bool{false, false, false, true, false} // 95 dB is the first above 90 dB
+	for i := range rs {
+		if rs[i].Status != OK || changed[i] != wantChanged[i] {
+			t.Errorf("value %v: status %s changed %v", rs[i].Value, rs[i].Status, changed[i])
+		}
+	}
+	csv := string(CSV(v, rs))
+	lines := strings.Split(strings.TrimSpace(csv), "\n")
+	if len(lines) != 6 || lines[0] != strings.Join(CSVHeader, ",") {
+		t.Fatalf("sweep.csv:\n%s", csv)
+	}
+	// 95 dB: cic5m1r8 > fir8, MPO 9.5, best MPO min(9.5, 11.875) = 9.5, memory 9500.
+	want := "4,rejection,95,95 dB,ok,cic5m1r8 > fir8,true,true,true,9.5,19,9500,9.5e-07,3,0,96,0.1,2,9.5,9500,9.5e-07,"
+	if lines[4] != want {
+		t.Errorf("row 4:\n got %s\nwant %s", lines[4], want)
+	}
+}
+
+func TestInvalidAndInfeasibleRows(t *testing.T) {
+	// 1.8 MHz gives a non-integer ratio; 3.84 MHz puts fs = FK - fa beyond ...
+	// the rows report, the sweep goes on.
+	rs, v := study(t, "output_rate=1.8 MHz:1.92 MHz:0.12 MHz", 2)
+	if rs[0].Status != Invalid || rs[0].Detail == "" || rs[1].Status != OK {
+		t.Fatalf("statuses %s (%s), %s", rs[0].Status, rs[0].Detail, rs[1].Status)
+	}
+	if strings.Contains(rs[0].Detail, "ex:") {
+		t.Errorf("detail names the rewritten file: %s", rs[0].Detail)
+	}
+	rs, v = study(t, "rejection=140:145:5", 2)
+	if rs[1].Status != Infeasible {
+		t.Errorf("145 dB: status %s", rs[1].Status)
+	}
+	csv := string(CSV(v, rs))
+	if !strings.Contains(csv, "infeasible") || !strings.Contains(csv, "too hard: 10") {
+		t.Errorf("csv:\n%s", csv)
+	}
+}
+
+// TestDeterministic checks the same bytes whatever GOMAXPROCS and the pool size.
+func TestDeterministic(t *testing.T) {
+	var ref []byte
+	old := runtime.GOMAXPROCS(0)
+	defer runtime.GOMAXPROCS(old)
+	for _, procs := range []int{1, 2, 4} {
+		runtime.GOMAXPROCS(procs)
+		for _, w := range []int{0, 1, 3} {
+			rs, v := study(t, "rejection=60:140:5", w)
+			base, _ := specfile.Example()
+			js, err := NewDoc(base, v, rs).Marshal()
+			if err != nil {
+				t.Fatal(err)
+			}
+			var svg bytes.Buffer
+			if err := Render(&svg, NewFigureData("", v, rs), "svg"); err != nil {
+				t.Fatal(err)
+			}
+			all := append(append(CSV(v, rs), js...), svg.Bytes()...)
+			if ref == nil {
+				ref = all
+			} else if !bytes.Equal(ref, all) {
+				t.Fatalf("GOMAXPROCS %d, workers %d: output differs", procs, w)
+			}
+		}
+	}
+}
+
+func TestFigure(t *testing.T) {
+	rs, v := study(t, "rejection=80:100:5", 0)
+	for _, f := range []string{"svg", "png"} {
+		var b bytes.Buffer
+		if err := Render(&b, NewFigureData("", v, rs), f); err != nil || b.Len() < 1000 {
+			t.Errorf("%s: %v, %d bytes", f, err, b.Len())
+		}
+	}
+	if !strings.Contains(func() string {
+		var b bytes.Buffer
+		_ = Render(&b, NewFigureData("", v, rs), "svg")
+		return b.String()
+	}(), "cic5m1r8 &gt; fir8") {
+		t.Error("svg lacks the label of the structure change")
+	}
+	if err := Render(&bytes.Buffer{}, FigureData{Key: v.Key, Pts: []FigurePoint{{Value: 1}}}, "svg"); err == nil {
+		t.Error("no error for a figure without chains")
+	}
+	if err := Render(&bytes.Buffer{}, FigureData{Key: v.Key, Pts: []FigurePoint{{Value: 1, OK: true, Multiplies: math.NaN()}}}, "svg"); err == nil {
+		t.Error("no error for NaN")
+	}
+}
