@@ -1,6 +1,7 @@
 package chain
 
 import (
+	"fmt"
 	"math"
 	"math/cmplx"
 	"math/rand/v2"
@@ -371,5 +372,20 @@ func BenchmarkEstimateAndAnalyze(b *testing.B) {
 		if _, err := Analyze(c, sp); err != nil {
 			b.Fatal(err)
 		}
+	}
+}
+
+func BenchmarkRun(b *testing.B) {
+	c, _ := benchChain()
+	for _, n := range []int{1 << 14, 1 << 17} {
+		x := make([]float64, n)
+		for i := range x {
+			x[i] = math.Sin(0.001 * float64(i))
+		}
+		b.Run(fmt.Sprint(n), func(b *testing.B) {
+			for b.Loop() {
+				Run(c, x)
+			}
+		})
 	}
 }
