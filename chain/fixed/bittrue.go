@@ -24,6 +24,10 @@ type Signal struct {
 	NoiseDBFS float64
 	// AliasLevel is the level of the alias test tone in dBFS; zero means -1.
 	AliasLevel float64
+	// AliasHz is the input frequency of the alias test tone; zero means the
+	// worst alias of the quantised cascade, searched here. (Evaluate passes
+	// chain.Analyze's figure for the quantised chain, which scans faster.)
+	AliasHz float64
 	// Samples is the number of output samples measured after the filters'
 	// transients; zero means 2048, halved (down to 256) while the run would
 	// need more than 4 Mi input samples.
@@ -142,6 +146,9 @@ func BitTrue(c Cascade, w *Widths, sig Signal) (BitTrueResult, error) {
 		}
 		amp += math.Pow(10, t.Level/20)
 	}
+	if !(sig.AliasHz >= 0 && sig.AliasHz <= c.InputRate/2) {
+		return BitTrueResult{}, fmt.Errorf("fixed: signal AliasHz = %g: must lie in [0, %g Hz] (zero: search)", sig.AliasHz, c.InputRate/2)
+	}
 	if sig.AliasLevel > 0 || math.IsNaN(sig.AliasLevel) || !(noise < 1) {
 		return BitTrueResult{}, fmt.Errorf("fixed: signal AliasLevel = %g dBFS, NoiseDBFS = %g: levels must be below 0 dBFS", sig.AliasLevel, sig.NoiseDBFS)
 	}
@@ -203,8 +210,13 @@ func BitTrue(c Cascade, w *Widths, sig Signal) (BitTrueResult, error) {
 
 	// Run 2: a tone at the worst alias of the quantised cascade.
 	q := quantisedCascade(c, w)
-	g, worst := worstAlias(q, fk, fa)
-	res.WorstAliasResponseDB = worst
+	var g float64
+	if sig.AliasHz > 0 {
+		g = sig.AliasHz
+		res.WorstAliasResponseDB = posDB(q.gain(g) / q.gain(0))
+	} else {
+		g, res.WorstAliasResponseDB = worstAlias(q, fk, fa)
+	}
 	fold := math.Mod(g, fk)
 	mirror := fold > fk/2
 	if mirror {

@@ -98,8 +98,10 @@ type Result struct {
 	BitTrue BitTrueResult
 }
 
-// Evaluate is the one call for a designed chain: FromChain, Plan and BitTrue.
-// sig is the test signal (its zero value is the default).
+// Evaluate is the one call for a designed chain: FromChain, Plan and BitTrue,
+// with the alias test tone (unless sig.AliasHz is set) at the worst alias
+// chain.Analyze finds on QuantisedChain. sig is the test signal (its zero
+// value is the default).
 func Evaluate(spec chain.Spec, c *chain.Chain, s Settings, sig Signal) (*Result, error) {
 	cas, w, err := FromChain(spec, c)
 	if err != nil {
@@ -109,9 +111,41 @@ func Evaluate(spec chain.Spec, c *chain.Chain, s Settings, sig Signal) (*Result,
 	if err != nil {
 		return nil, err
 	}
+	if sig.AliasHz == 0 {
+		a, err := chain.Analyze(QuantisedChain(c, ws), spec)
+		if err != nil {
+			return nil, err
+		}
+		sig.AliasHz = a.WorstAliasHz
+	}
 	bt, err := BitTrue(cas, ws, sig)
 	if err != nil {
 		return nil, err
 	}
 	return &Result{Widths: ws, BitTrue: bt}, nil
+}
+
+// QuantisedChain returns a copy of c whose FIR and half-band taps are the
+// quantised coefficients of w (from Plan on FromChain(spec, c)), for
+// chain.Analyze and chain.Run. It panics if w does not match c.
+func QuantisedChain(c *chain.Chain, w *Widths) *chain.Chain {
+	if len(w.Stages) != len(c.Stages) {
+		panic("fixed: QuantisedChain with widths of another chain")
+	}
+	q := *c
+	q.Stages = make([]chain.Stage, len(c.Stages))
+	for i, s := range c.Stages {
+		switch st := s.(type) {
+		case chain.FIRStage:
+			st.Taps = w.Stages[i].Coefficients.Float()
+			q.Stages[i] = st
+		case *chain.FIRStage:
+			cp := *st
+			cp.Taps = w.Stages[i].Coefficients.Float()
+			q.Stages[i] = cp
+		default:
+			q.Stages[i] = s
+		}
+	}
+	return &q
 }

@@ -56,14 +56,7 @@ func TestFromChainAgainstChainPackage(t *testing.T) {
 		t.Errorf("float alias rejection %.3f dB here, chain.Analyze %.3f dB", mine, a.AliasRejectionDB)
 	}
 	// The quantised response: chain.Analyze on a copy with quantised taps.
-	q := *c
-	q.Stages = nil
-	for i, s := range c.Stages {
-		st := s.(chain.FIRStage)
-		st.Taps = w.Stages[i].Coefficients.Float()
-		q.Stages = append(q.Stages, st)
-	}
-	aq, err := chain.Analyze(&q, spec)
+	aq, err := chain.Analyze(QuantisedChain(c, w), spec)
 	if err != nil {
 		t.Fatal(err)
 	}

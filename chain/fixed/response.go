@@ -28,6 +28,9 @@ func newResp(c Cascade, w *Widths, quantised bool) cascadeResp {
 			taps = w.Stages[i].Coefficients.Float()
 		default:
 			taps = st.Taps
+			if sym, err := symmetrized(taps); err == nil {
+				taps = sym
+			}
 		}
 		r.scale = append(r.scale, sc)
 		r.taps = append(r.taps, taps)
@@ -47,7 +50,7 @@ func (r cascadeResp) gain(g float64) float64 {
 		if r.cic[i] {
 			p *= r.scale[i] * cicNorm(r.n[i], r.rm[i], g, rate)
 		} else {
-			p *= magnitude(r.taps[i], math.Mod(g, rate), rate)
+			p *= math.Abs(Amplitude(r.taps[i], math.Mod(g, rate), rate))
 		}
 	}
 	return p
