@@ -257,6 +257,9 @@ func planFIR(st Stage, rate float64, in, ob, coefBits int, s Settings) (StageWid
 			return StageWidths{}, err
 		}
 		sw.Coefficients, sw.Deviations, sw.MeetsBands = TryWidth(st.Taps, rate, bands, coefBits, q)
+		if sw.Coefficients.Bits == 0 {
+			return StageWidths{}, fmt.Errorf("words CoefBits = %d: too narrow for the half-band's centre 1/2", coefBits)
+		}
 	}
 	sw.MeetsBands = sw.MeetsBands && sw.FloatMeets
 	cf := sw.Coefficients

@@ -87,6 +87,14 @@ func Quantize(taps []float64, bits int) Coefficients {
 	return c
 }
 
+func maxAbsInt(v []int64) int64 {
+	var m int64
+	for _, x := range v {
+		m = max(m, x, -x)
+	}
+	return m
+}
+
 // IsHalfBand reports whether taps look like a half-band filter: odd length
 // 4K-1, centre 1/2 and every other tap (even offsets from the centre) zero,
 // within tol (zero means 1e-9).
@@ -119,6 +127,9 @@ func QuantizeHalfBand(taps []float64, bits int) (Coefficients, error) {
 		return Coefficients{}, fmt.Errorf("fixed: taps of length %d are not a half-band (length 4K-1, centre 1/2, every other tap zero)", len(taps))
 	}
 	c := Quantize(taps, bits)
+	if c.Frac < 1 {
+		return Coefficients{}, fmt.Errorf("fixed: a %d-bit half-band with taps up to %g cannot hold its centre 1/2 exactly", bits, math.Ldexp(float64(maxAbsInt(c.Ints)), -c.Frac))
+	}
 	mid := len(taps) / 2
 	for k := 2; k <= mid; k += 2 {
 		c.Ints[mid-k], c.Ints[mid+k] = 0, 0
@@ -347,7 +358,7 @@ func MinCoefBits(taps []float64, rate float64, bands []remez.Band, s QuantSettin
 	}
 	var best []float64
 	for bits := s.MinBits; bits <= s.MaxBits; bits++ {
-		c, dev, ok := tryWidth(taps, rate, bands, bits, s)
+		c, dev, ok := tryWidth(taps, rate, bands, bits, s, bits == s.MaxBits)
 		if ok {
 			return c, dev, nil
 		}
@@ -370,7 +381,7 @@ func TryWidth(taps []float64, rate float64, bands []remez.Band, bits int, s Quan
 	if err != nil {
 		panic(err)
 	}
-	return tryWidth(taps, rate, bands, bits, s)
+	return tryWidth(taps, rate, bands, bits, s, true)
 }
 
 // symmetrized returns taps with each mirrored pair set to its mean, so that
@@ -394,12 +405,13 @@ func symmetrized(taps []float64) ([]float64, error) {
 	return out, nil
 }
 
-func tryWidth(taps []float64, rate float64, bands []remez.Band, bits int, s QuantSettings) (Coefficients, []float64, bool) {
+// tryWidth is TryWidth; a failed width's deviations are measured only when needDev.
+func tryWidth(taps []float64, rate float64, bands []remez.Band, bits int, s QuantSettings, needDev bool) (Coefficients, []float64, bool) {
 	var c Coefficients
 	if s.HalfBand {
 		var err error
 		if c, err = QuantizeHalfBand(taps, bits); err != nil {
-			panic(err) // checked by the caller
+			return Coefficients{}, nil, false // too narrow for the centre
 		}
 	} else {
 		c = Quantize(taps, bits)
@@ -424,7 +436,7 @@ func tryWidth(taps []float64, rate float64, bands []remez.Band, bits int, s Quan
 		}
 	}
 	ls.c.Adjusted = offRounding(ls.c, c)
-	if dev == nil || !ok {
+	if !ok && needDev {
 		dev = Deviations(ls.c.Float(), rate, bands, s.Density)
 	}
 	return ls.c, dev, ok
