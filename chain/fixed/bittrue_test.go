@@ -2,6 +2,7 @@ package fixed
 
 import (
 	"math"
+	"strings"
 	"testing"
 
 	"stepdown/chain/remez"
@@ -195,6 +196,43 @@ func TestBitTrueInputWordADCRule(t *testing.T) {
 		want := 6.02*float64(b) + 1.76
 		if math.Abs(r.InputSNRDB-want) > 0.3 {
 			t.Errorf("%d-bit input: SNR %.2f dB, want %.2f +- 0.3 (clipped %d)", b, r.InputSNRDB, want, r.Clipped)
+		}
+	}
+}
+
+func TestErrorsNameFieldAndValue(t *testing.T) {
+	// House rule: user input gets an error naming the field, the value and the rule.
+	c := testCascade()
+	for _, tc := range []struct {
+		w    Words
+		s    Settings
+		want string
+	}{
+		{Words{InputBits: 1}, Settings{}, "InputBits = 1"},
+		{Words{OutputBits: 99}, Settings{}, "OutputBits = 99"},
+		{Words{CoefBits: 77}, Settings{}, "CoefBits = 77"},
+		{Words{}, Settings{NativeA: 18}, "18 x 0"},
+	} {
+		if _, err := Plan(c, tc.w, tc.s); err == nil || !strings.Contains(err.Error(), tc.want) {
+			t.Errorf("Plan(%+v, %+v) error %v, want it to name %q", tc.w, tc.s, err, tc.want)
+		}
+	}
+	w, err := Plan(c, Words{}, Settings{})
+	if err != nil {
+		t.Fatal(err)
+	}
+	for _, tc := range []struct {
+		sig  Signal
+		want string
+	}{
+		{Signal{Samples: 10}, "Samples = 10"},
+		{Signal{Tones: []Tone{{Freq: 1e6, Level: -1}}}, "1e+06 Hz"},
+		{Signal{Tones: []Tone{{Freq: 1e3, Level: 3}}}, "3 dBFS"},
+		{Signal{AliasLevel: 2}, "AliasLevel = 2"},
+		{Signal{AliasHz: -5}, "AliasHz = -5"},
+	} {
+		if _, err := BitTrue(c, w, tc.sig); err == nil || !strings.Contains(err.Error(), tc.want) {
+			t.Errorf("BitTrue(%+v) error %v, want it to name %q", tc.sig, err, tc.want)
 		}
 	}
 }
