@@ -70,10 +70,11 @@ type BitTrueResult struct {
 	AliasRejectionDB     float64 // bit-true, measured
 	AliasFloatRunDB      float64 // float chain, measured the same way
 	AliasResponseDB      float64 // frequency domain, quantised coefficients, at AliasHz
-	WorstAliasResponseDB float64 // frequency domain, quantised coefficients, worst over the alias bands
+	WorstAliasResponseDB float64 // frequency domain, quantised coefficients: worst over the alias bands, or at Signal.AliasHz when given
 	// AliasNoiseDB is the level (positive dB below the DC gain) of the integer
-	// output's residual noise in the measured bin; AliasValid says it is at
-	// least 10 dB below the alias, so the bit-true figure measures the alias.
+	// output's residual noise in the measured bin (quantisation noise and the
+	// test signal's own noise); AliasValid says it is at least 20 dB below the
+	// alias, so that it moves the bit-true figure by under 1 dB.
 	AliasNoiseDB float64
 	AliasValid   bool
 
@@ -244,7 +245,7 @@ func BitTrue(c Cascade, w *Widths, sig Signal) (BitTrueResult, error) {
 	res.AliasRejectionDB = posDB(ai / (a * h0q))
 	res.AliasFloatRunDB = posDB(af / (a * c.floatGain(0, w)))
 	res.AliasNoiseDB = posDB(2 * resid / math.Sqrt(float64(nm)) / (a * h0q))
-	res.AliasValid = res.AliasNoiseDB >= res.AliasRejectionDB+10
+	res.AliasValid = res.AliasNoiseDB >= res.AliasRejectionDB+20
 	return res, nil
 }
 

@@ -56,7 +56,7 @@
 // measured bit-true by projection onto the output tone over a whole number of
 // cycles after the transients, and the same figure from the frequency
 // response, with a flag saying whether the quantisation noise in that bin is
-// at least 10 dB below the alias.
+// at least 20 dB below the alias.
 //
 // # Cost
 //
