@@ -86,11 +86,11 @@ func newApp(stdout, stderr io.Writer) *cli.App {
 		ExitErrHandler:            func(*cli.Context, error) {},
 		Action: func(c *cli.Context) error {
 			if c.Args().Present() {
-				return usagef("command %q: unknown (want design, plan or check)", c.Args().First())
+				return usagef("command %q: unknown (want design, plan, check or sweep)", c.Args().First())
 			}
 			return cli.ShowAppHelp(c)
 		},
-		Commands: []*cli.Command{designCommand(), planCommand(), checkCommand()},
+		Commands: []*cli.Command{designCommand(), planCommand(), checkCommand(), sweepCommand()},
 	}
 	for _, c := range app.Commands {
 		c.OnUsageError = onUsage

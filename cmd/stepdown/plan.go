@@ -38,12 +38,13 @@ func planCommand() *cli.Command {
 		Name:      "plan",
 		Usage:     "search every split of the decimation ratio and recommend a chain",
 		ArgsUsage: "[SPEC.toml]",
-		UsageText: "stepdown plan [SPEC.toml] [--out DIR] [--json] [--max-stages N] [--jobs N] [--quiet] [--timeout DUR]\n\n" +
+		UsageText: "stepdown plan [SPEC.toml] [--out DIR] [--json] [--max-stages N] [--jobs N] [--quiet] [--timeout DUR] [--html]\n\n" +
 			"Without SPEC.toml the built-in example is planned.",
 		Flags: append(outFlags(),
 			&cli.IntFlag{Name: "max-stages", Usage: "override search.max_stages (1..12)"},
 			&cli.IntFlag{Name: "jobs", Usage: "parallel designs (default: the number of CPUs)"},
 			&cli.DurationFlag{Name: "timeout", Usage: "stop after this long with the best front so far, marked partial (e.g. 30s)"},
+			&cli.BoolFlag{Name: "html", Usage: "also write report.html, one self-contained page for sharing and printing"},
 		),
 		Action: runPlan,
 	}
@@ -252,6 +253,11 @@ func (j *job) finish(command string, res *optimize.Result) error {
 	files, err := buildFiles(rep, res, j.spec)
 	if err != nil {
 		return err
+	}
+	if j.c.Bool("html") {
+		if files, err = withHTML(j.source, rep, files); err != nil {
+			return err
+		}
 	}
 	if j.c.Context.Err() != nil {
 		return fmt.Errorf("interrupted; %s left as it was", j.out.dir)

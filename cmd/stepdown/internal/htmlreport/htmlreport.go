@@ -1,0 +1,441 @@
+package htmlreport
+
+import (
+	"bytes"
+	"errors"
+	"fmt"
+	"html/template"
+	"math"
+	"sort"
+	"strconv"
+	"strings"
+
+	"stepdown/cmd/stepdown/internal/report"
+	"stepdown/cmd/stepdown/internal/sweep"
+	"stepdown/cmd/stepdown/internal/units"
+)
+
+// PlanPage is the input of Plan.
+type PlanPage struct {
+	// Source names the spec: its path as given or "built-in example".
+	Source string
+	Report *report.Report
+	// The figures' SVG text, as the plots package renders it; nil leaves a
+	// figure out.
+	Front, Response, Stages []byte
+	// Files lists the output folder's files (slash-separated, relative),
+	// linked from the page; the coefficient files among them are also
+	// linked from their stage's table.
+	Files []string
+}
+
+// SweepPage is the input of Sweep.
+type SweepPage struct {
+	Source string
+	Doc    *sweep.Doc
+	Figure []byte // the sweep figure's SVG text
+	Files  []string
+}
+
+// Plan returns report.html for a plan or check.
+func Plan(p PlanPage) ([]byte, error) {
+	r := p.Report
+	if r == nil {
+		return nil, errors.New("htmlreport: no report")
+	}
+	if len(r.Front) > 0 && (r.Recommended < 0 || r.Recommended >= len(r.Front)) {
+		return nil, fmt.Errorf("htmlreport: recommended index %d outside the front of %d chains", r.Recommended, len(r.Front))
+	}
+	v := planView{
+		Title:    "stepdown " + r.Command + ": " + p.Source,
+		Source:   p.Source,
+		Command:  r.Command,
+		Caution:  r.Caution,
+		Spec:     specRows(r.Spec),
+		Search:   searchText(r),
+		Partial:  r.Partial,
+		Clock:    r.Spec.Hardware.ClockHz != nil,
+		Files:    p.Files,
+		Cautions: planCautions(r),
+	}
+	var err error
+	if v.FrontSVG, err = inlineSVG(p.Front); err != nil {
+		return nil, fmt.Errorf("htmlreport: front figure: %v", err)
+	}
+	if v.ResponseSVG, err = inlineSVG(p.Response); err != nil {
+		return nil, fmt.Errorf("htmlreport: response figure: %v", err)
+	}
+	if v.StagesSVG, err = inlineSVG(p.Stages); err != nil {
+		return nil, fmt.Errorf("htmlreport: stages figure: %v", err)
+	}
+	v.Front = frontRows(r.Front, r.Recommended, v.Clock)
+	if len(r.Front) > 0 {
+		c := r.Front[r.Recommended]
+		v.Rec = &recView{Index: r.Recommended + 1, Notation: c.Notation, Reason: r.Reason,
+			Figures: v.Front[r.Recommended], Stages: stageViews(c, p.Files, "", v.Clock)}
+	}
+	return execute("plan", v)
+}
+
+// Sweep returns report.html for a sweep.
+func Sweep(p SweepPage) ([]byte, error) {
+	d := p.Doc
+	if d == nil {
+		return nil, errors.New("htmlreport: no sweep document")
+	}
+	v := sweepView{
+		Title:   "stepdown sweep of " + d.Vary.Key + ": " + p.Source,
+		Source:  p.Source,
+		Caution: d.Caution,
+		Spec:    specRows(d.Spec),
+		Key:     d.Vary.Key,
+		SpecKey: d.Vary.SpecKey,
+		Range:   d.Vary.Range,
+		Count:   len(d.Values),
+		Clock:   d.Spec.Hardware.ClockHz != nil,
+		Files:   topFiles(p.Files),
+	}
+	var err error
+	if v.FigureSVG, err = inlineSVG(p.Figure); err != nil {
+		return nil, fmt.Errorf("htmlreport: sweep figure: %v", err)
+	}
+	var partial, estimated, misses bool
+	for i, dv := range d.Values {
+		sv := sweepValueView{Index: i + 1, Anchor: fmt.Sprintf("value-%02d", i+1), Text: dv.ValueText,
+			Status: dv.Status, Detail: dv.Detail, Changed: dv.StructureChanged, Folder: dv.Folder}
+		if dv.Recommended >= 0 && dv.Recommended < len(dv.Front) {
+			c := dv.Front[dv.Recommended]
+			sv.HasChain = true
+			sv.Notation = c.Notation
+			sv.Reason = dv.Reason
+			sv.Front = frontRows(dv.Front, dv.Recommended, v.Clock)
+			sv.Rec = sv.Front[dv.Recommended]
+			sv.Stages = stageViews(c, p.Files, dv.Folder+"/", v.Clock)
+			if dv.Best != nil {
+				sv.BestMult = trimFloat(dv.Best.MultipliesPerOutput, 2)
+				sv.BestMem = strconv.Itoa(dv.Best.MemoryBits)
+				sv.BestLat = seconds(dv.Best.LatencyS)
+			}
+			sv.Report = dv.Folder + "/report.json"
+			partial = partial || dv.Status == string(sweep.Partial)
+			estimated = estimated || !c.Designed
+			misses = misses || !c.MeetsTargets
+		}
+		v.Values = append(v.Values, sv)
+	}
+	v.Cautions = []string{capitalise(d.Caution) + "."}
+	if partial {
+		v.Cautions = append(v.Cautions, "Some values were stopped by the time limit: their fronts are the best found so far, not the whole search.")
+	}
+	if estimated {
+		v.Cautions = append(v.Cautions, "Some recommended chains carry estimated figures (order estimates, not a real design).")
+	}
+	if misses {
+		v.Cautions = append(v.Cautions, "Some recommended chains miss the rejection target or the ripple budget; see their rows.")
+	}
+	v.Cautions = append(v.Cautions,
+		"The least figures on a front are taken one axis at a time: they may come from different chains, and no single chain need reach all three.",
+		"Values whose status is not ok were not planned; the detail column says why.")
+	return execute("sweep", v)
+}
+
+// inlineSVG returns SVG text ready to sit inside HTML: the XML prolog and
+// comments before the root element are dropped (they are not allowed there).
+func inlineSVG(b []byte) (template.HTML, error) {
+	if b == nil {
+		return "", nil
+	}
+	i := bytes.Index(b, []byte("<svg"))
+	if i < 0 {
+		return "", errors.New("no <svg> element")
+	}
+	s := string(b[i:])
+	low := strings.ToLower(s)
+	// The page must fetch nothing: refuse any external reference a figure
+	// might carry. Namespace declarations are names, not fetches.
+	for _, bad := range []string{"href=\"http", "href='http", "src=", "url(http", "@import", "<script"} {
+		if strings.Contains(low, bad) {
+			return "", fmt.Errorf("figure holds an external reference or script (%s)", bad)
+		}
+	}
+	return template.HTML(strings.TrimSpace(s)), nil
+}
+
+type kv struct{ K, V string }
+
+type frontRow struct {
+	Index                                                       int
+	Rec                                                         bool
+	Notation                                                    string
+	Mult, Adds, MemBits, MemWords, Multipliers, Latency, LatOut string
+	Rejection, Margin, Ripple, Kind                             string
+	Misses                                                      bool
+}
+
+type stageView struct {
+	Title string
+	Rows  []kv
+	Links []string
+}
+
+type recView struct {
+	Index    int
+	Notation string
+	Reason   string
+	Figures  frontRow
+	Stages   []stageView
+}
+
+type planView struct {
+	Title, Source, Command, Caution string
+	Spec                            []kv
+	Search                          string
+	Partial, Clock                  bool
+	Front                           []frontRow
+	Rec                             *recView
+	FrontSVG, ResponseSVG           template.HTML
+	StagesSVG                       template.HTML
+	Files                           []string
+	Cautions                        []string
+}
+
+type sweepValueView struct {
+	Index                            int
+	Anchor, Text, Status, Detail     string
+	Changed, HasChain                bool
+	Notation, Reason, Folder, Report string
+	Rec                              frontRow
+	Front                            []frontRow
+	Stages                           []stageView
+	BestMult, BestMem, BestLat       string
+}
+
+type sweepView struct {
+	Title, Source, Caution string
+	Spec                   []kv
+	Key, SpecKey, Range    string
+	Count                  int
+	Clock                  bool
+	FigureSVG              template.HTML
+	Values                 []sweepValueView
+	Files                  []string
+	Cautions               []string
+}
+
+func specRows(s report.Spec) []kv {
+	rows := []kv{
+		{"Input rate", freq(s.InputRateHz)},
+		{"Output rate", freq(s.OutputRateHz)},
+		{"Decimation", strconv.Itoa(s.Decimation)},
+		{"Passband edge", freq(s.PassbandHz)},
+		{"Protected (alias-free) edge", freq(s.ProtectedHz)},
+		{"Final stopband edge", freq(s.StopbandHz)},
+		{"Passband ripple", trimFloat(s.RippleDB, 4) + " dB peak-to-peak"},
+		{"Alias rejection", trimFloat(s.RejectionDB, 4) + " dB"},
+		{"Signal", s.Signal},
+	}
+	coef := "floating point"
+	if s.Words.Coefficients != nil {
+		coef = fmt.Sprintf("%d bits", *s.Words.Coefficients)
+	}
+	rows = append(rows, kv{"Words", fmt.Sprintf("input %d bits, output %d bits, coefficients %s", s.Words.Input, s.Words.Output, coef)})
+	clk := "not given"
+	if s.Hardware.ClockHz != nil {
+		clk = freq(*s.Hardware.ClockHz)
+	}
+	rows = append(rows, kv{"Hardware clock", clk})
+	sym := "counted once (folded)"
+	if !s.Cost.Symmetry {
+		sym = "not exploited"
+	}
+	rows = append(rows, kv{"Coefficient symmetry", sym})
+	l := s.SearchLimits
+	rows = append(rows, kv{"Search", fmt.Sprintf("up to %d stages; kinds %s; CIC orders %s; CIC delays %s",
+		l.MaxStages, strings.Join(l.Kinds, ", "), ints(l.CICOrders), ints(l.CICDelays))})
+	return rows
+}
+
+func searchText(r *report.Report) string {
+	if r.Command != "plan" {
+		return "One chain named on the command line, designed and evaluated against the spec."
+	}
+	s := fmt.Sprintf("%d candidate chains enumerated, %d feasible by estimate, %d designed for real, %d on the Pareto front.",
+		r.Search.Candidates, r.Search.Feasible, r.Search.Designed, len(r.Front))
+	if len(r.Search.Dropped) > 0 {
+		keys := make([]string, 0, len(r.Search.Dropped))
+		for k := range r.Search.Dropped {
+			keys = append(keys, k)
+		}
+		sort.Strings(keys)
+		var parts []string
+		for _, k := range keys {
+			parts = append(parts, fmt.Sprintf("%s: %d", k, r.Search.Dropped[k]))
+		}
+		s += " Dropped: " + strings.Join(parts, "; ") + "."
+	}
+	return s
+}
+
+func planCautions(r *report.Report) []string {
+	out := []string{capitalise(r.Caution) + "."}
+	if r.Partial {
+		out = append(out, "The search was stopped by its time limit: the front is the best found so far, not the whole search.")
+	}
+	if len(r.Front) == 0 {
+		return out
+	}
+	c := r.Front[r.Recommended]
+	if !c.Designed {
+		out = append(out, "The recommended chain's figures are estimates (order formulas), not a real design.")
+	}
+	if !c.MeetsTargets {
+		out = append(out, fmt.Sprintf("The recommended chain misses the spec: alias rejection %.2f dB against %s dB, ripple %.4f dB against %s dB.",
+			c.AliasRejectionDB, trimFloat(r.Spec.RejectionDB, 4), c.PassbandRippleDB, trimFloat(r.Spec.RippleDB, 4)))
+	} else if c.RejectionMarginDB < 1 {
+		out = append(out, fmt.Sprintf("The recommended chain's rejection margin is thin (%.2f dB): coefficient rounding and data-path truncation can use it up.", c.RejectionMarginDB))
+	}
+	if r.Spec.Words.Coefficients == nil {
+		out = append(out, "No coefficient width was given: the figures are for floating-point coefficients, and no integer or $readmemh files were written.")
+	} else {
+		out = append(out, fmt.Sprintf("The integer coefficient files are rounded to %d bits; the rejection and ripple above are those of the floating-point design.", *r.Spec.Words.Coefficients))
+	}
+	if r.Spec.Signal == "complex" {
+		out = append(out, "Complex (I/Q) signal: multiplies, adders and data memory count both the I and the Q filters.")
+	}
+	return out
+}
+
+func frontRows(front []report.Chain, rec int, clock bool) []frontRow {
+	var out []frontRow
+	for i, c := range front {
+		kind := "estimated"
+		if c.Designed {
+			kind = "designed"
+		}
+		if !c.MeetsTargets {
+			kind += ", misses spec"
+		}
+		row := frontRow{
+			Index: i + 1, Rec: i == rec, Notation: c.Notation,
+			Mult: trimFloat(c.MultipliesPerOutput, 2), Adds: trimFloat(c.AddsPerOutput, 2),
+			MemBits: strconv.Itoa(c.MemoryBits), MemWords: strconv.Itoa(c.MemoryWords),
+			Latency: seconds(c.LatencyS), LatOut: trimFloat(c.LatencySamples, 1),
+			Rejection: fmt.Sprintf("%.2f", c.AliasRejectionDB), Margin: fmt.Sprintf("%+.2f", c.RejectionMarginDB),
+			Ripple: fmt.Sprintf("%.4f", c.PassbandRippleDB), Kind: kind, Misses: !c.MeetsTargets,
+		}
+		if clock && c.MultipliersAtClock != nil {
+			row.Multipliers = strconv.Itoa(*c.MultipliersAtClock)
+		}
+		out = append(out, row)
+	}
+	return out
+}
+
+// stageViews returns one small table per stage; prefix is the folder of the
+// chain's files relative to the page.
+func stageViews(c report.Chain, files []string, prefix string, clock bool) []stageView {
+	var out []stageView
+	for i, s := range c.Stages {
+		name := map[string]string{"cic": "CIC", "halfband": "half-band", "fir": "FIR"}[s.Kind]
+		if name == "" {
+			name = s.Kind
+		}
+		sv := stageView{Title: fmt.Sprintf("Stage %d: %s, decimate by %d", i+1, name, s.Decimation)}
+		add := func(k, v string) { sv.Rows = append(sv.Rows, kv{k, v}) }
+		add("Rates", freq(s.InputRateHz)+" → "+freq(s.OutputRateHz))
+		switch s.Kind {
+		case "cic":
+			add("Order, delay", fmt.Sprintf("N = %d, M = %d", s.CICOrder, s.CICDelay))
+			if len(s.RegisterBits) > 0 {
+				add("Register bits", ints(s.RegisterBits))
+			}
+		default:
+			taps := strconv.Itoa(s.Taps)
+			if s.Variant != "" {
+				taps += " (" + s.Variant + ")"
+			}
+			add("Taps", taps)
+			if s.CompensatesCIC != nil && *s.CompensatesCIC {
+				add("CIC droop", "compensated here")
+			}
+			if s.CoefficientBits > 0 && s.CoefficientFrac != nil {
+				add("Coefficients", fmt.Sprintf("%d bits, %d fractional", s.CoefficientBits, *s.CoefficientFrac))
+			}
+		}
+		add("Multiplies / output", trimFloat(s.MultipliesPerOutput, 2))
+		add("Adds / output", trimFloat(s.AddsPerOutput, 2))
+		add("Memory", fmt.Sprintf("%d words, %d bits", s.MemoryWords, s.MemoryBits))
+		add("Latency", seconds(s.LatencyS))
+		if clock && s.Multipliers != nil {
+			add("Multipliers at the clock", strconv.Itoa(*s.Multipliers))
+		}
+		want := prefix + fmt.Sprintf("coefficients/stage%d_", i+1)
+		for _, f := range files {
+			if strings.HasPrefix(f, want) {
+				sv.Links = append(sv.Links, f)
+			}
+		}
+		out = append(out, sv)
+	}
+	return out
+}
+
+// topFiles leaves out the per-value folders, which the value sections link.
+func topFiles(files []string) []string {
+	var out []string
+	for _, f := range files {
+		if !strings.HasPrefix(f, "values/") {
+			out = append(out, f)
+		}
+	}
+	return out
+}
+
+func capitalise(s string) string {
+	if s == "" {
+		return s
+	}
+	return strings.ToUpper(s[:1]) + s[1:]
+}
+
+func ints(v []int) string {
+	s := make([]string, len(v))
+	for i, x := range v {
+		s[i] = strconv.Itoa(x)
+	}
+	return strings.Join(s, ", ")
+}
+
+func freq(hz float64) string { return units.FormatFrequency(hz) }
+
+func trimFloat(v float64, prec int) string {
+	if math.IsNaN(v) || math.IsInf(v, 0) {
+		return "–"
+	}
+	if v == math.Trunc(v) && math.Abs(v) < 1e15 {
+		return strconv.FormatFloat(v, 'f', 0, 64)
+	}
+	return strconv.FormatFloat(v, 'f', prec, 64)
+}
+
+func seconds(s float64) string {
+	switch {
+	case math.IsNaN(s) || math.IsInf(s, 0):
+		return "–"
+	case s >= 1:
+		return fmt.Sprintf("%.3g s", s)
+	case s >= 1e-3:
+		return fmt.Sprintf("%.3g ms", s*1e3)
+	case s >= 1e-6:
+		return fmt.Sprintf("%.3g µs", s*1e6)
+	}
+	return fmt.Sprintf("%.3g ns", s*1e9)
+}
+
+func execute(name string, v any) ([]byte, error) {
+	var b bytes.Buffer
+	if err := pages.ExecuteTemplate(&b, name, v); err != nil {
+		return nil, fmt.Errorf("htmlreport: %v", err)
+	}
+	return b.Bytes(), nil
+}

@@ -1,0 +1,284 @@
+package main
+
+import (
+	"bytes"
+	"context"
+	"fmt"
+	"io"
+	"os"
+	"strings"
+
+	"github.com/urfave/cli/v2"
+
+	"stepdown/cmd/stepdown/internal/htmlreport"
+	"stepdown/cmd/stepdown/internal/report"
+	"stepdown/cmd/stepdown/internal/specfile"
+	"stepdown/cmd/stepdown/internal/sweep"
+	"stepdown/optimize"
+)
+
+func sweepCommand() *cli.Command {
+	return &cli.Command{
+		Name:      "sweep",
+		Usage:     "step one requirement over a range, plan each value and tabulate the best chain's cost",
+		ArgsUsage: "[SPEC.toml]",
+		UsageText: "stepdown sweep [SPEC.toml] --vary KEY=FROM:TO:STEP [--out DIR] [--json] [--quiet] [--html] [--max-stages N] [--jobs N] [--timeout DUR]\n\n" +
+			"KEY is one of input_rate, output_rate, passband, protected, ripple, rejection, clock or\n" +
+			"coefficient_bits; FROM:TO:STEP are written like the spec's values (\"80 dB:100 dB:5 dB\",\n" +
+			"\"80:100:5\" in the key's base unit, \"1.92:3.84:0.64 MHz\"), at most 50 values.\n" +
+			"Writes sweep.csv, sweep.svg, sweep.png, report.json (the sweep) and values/NN/ (each value's\n" +
+			"report.json and coefficient files). Values that make the spec invalid are rows with status\n" +
+			"\"invalid\"; the sweep goes on. Without SPEC.toml the built-in example is swept.",
+		Flags: append(outFlags(),
+			&cli.StringFlag{Name: "vary", Usage: "the key and range, KEY=FROM:TO:STEP (e.g. rejection=80:100:5)"},
+			&cli.BoolFlag{Name: "html", Usage: "also write report.html, one self-contained page for sharing and printing"},
+			&cli.IntFlag{Name: "max-stages", Usage: "override search.max_stages (1..12)"},
+			&cli.IntFlag{Name: "jobs", Usage: "parallel designs over the whole sweep (default: the number of CPUs)"},
+			&cli.DurationFlag{Name: "timeout", Usage: "stop the whole sweep after this long; unfinished values keep their best front so far, marked partial"},
+		),
+		Action: runSweep,
+	}
+}
+
+func runSweep(c *cli.Context) error {
+	if !c.IsSet("vary") {
+		return usagef("--vary: missing; name the key and range, e.g. --vary rejection=80:100:5")
+	}
+	v, err := sweep.ParseVary(c.String("vary"))
+	if err != nil {
+		return usageError{err}
+	}
+	if c.IsSet("max-stages") {
+		if n := c.Int("max-stages"); n < 1 || n > specfile.MaxStages {
+			return usagef("--max-stages %d: must lie in [1, %d]", n, specfile.MaxStages)
+		}
+	}
+	if n := c.Int("jobs"); n < 0 || n > 1024 {
+		return usagef("--jobs %d: must lie in [1, 1024] (0 or absent: the number of CPUs)", n)
+	}
+	if c.IsSet("timeout") && c.Duration("timeout") <= 0 {
+		return usagef("--timeout %v: must be above zero", c.Duration("timeout"))
+	}
+	base, source, err := loadSpec(c)
+	if err != nil {
+		return err
+	}
+	text := []byte(specfile.ExampleText)
+	if c.Args().Present() {
+		if text, err = os.ReadFile(c.Args().First()); err != nil {
+			return usagef("%s: spec file cannot be read: %v", c.Args().First(), unwrapPath(err))
+		}
+	}
+	out, err := prepareOut(c.String("out"))
+	if err != nil {
+		return err
+	}
+	defer out.cleanup()
+
+	sigCtx := c.Context
+	ctx := sigCtx
+	if c.IsSet("timeout") {
+		var cancel context.CancelFunc
+		ctx, cancel = context.WithTimeout(sigCtx, c.Duration("timeout"))
+		defer cancel()
+	}
+	quiet, asJSON := c.Bool("quiet"), c.Bool("json")
+	prog := newProgress(c.App.ErrWriter, quiet)
+	st := sweep.Study{
+		Name: source, Spec: text, Vary: v, Jobs: c.Int("jobs"),
+		Settings: func(s *specfile.Spec) optimize.Settings {
+			set := s.SearchSettings()
+			if c.IsSet("max-stages") {
+				set.MaxStages = c.Int("max-stages")
+			}
+			return set
+		},
+		Done: prog.update,
+	}
+	if st.Jobs > 0 {
+		st.Workers = st.Jobs
+	}
+	rs := sweep.Run(ctx, st)
+	prog.finish()
+	if sigCtx.Err() != nil {
+		return fmt.Errorf("interrupted; %s left as it was", out.dir)
+	}
+	nChain, nInvalid := 0, 0
+	for _, r := range rs {
+		if r.Status.HasChain() {
+			nChain++
+		}
+		if r.Status == sweep.Invalid {
+			nInvalid++
+		}
+	}
+	if nInvalid == len(rs) {
+		return usagef("--vary %s=%s: every value makes the spec invalid (first, %s: %s)", v.Key.Name, v.Text, v.Key.Format(rs[0].Value), rs[0].Detail)
+	}
+	if nChain == 0 {
+		first := rs[0]
+		for _, r := range rs {
+			if r.Status != sweep.Invalid {
+				first = r
+				break
+			}
+		}
+		return fmt.Errorf("--vary %s=%s: no value gives a chain (%s: %s); %s left as it was", v.Key.Name, v.Text, v.Key.Format(first.Value), first.Detail, out.dir)
+	}
+
+	files, doc, err := sweepFiles(source, base, v, rs, c.Bool("html"))
+	if err != nil {
+		return err
+	}
+	if c.Context.Err() != nil {
+		return fmt.Errorf("interrupted; %s left as it was", out.dir)
+	}
+	if err := out.write(files); err != nil {
+		return err
+	}
+	if err := out.commit(); err != nil {
+		return err
+	}
+	if asJSON {
+		if _, err := c.App.Writer.Write(files[0].Data); err != nil {
+			return err
+		}
+	}
+	w := c.App.Writer
+	switch {
+	case quiet:
+		w = io.Discard
+	case asJSON:
+		w = c.App.ErrWriter
+	}
+	printSweep(w, source, out.dir, v, doc, files)
+	return nil
+}
+
+// sweepFiles renders every file of a sweep in memory, report.json first.
+func sweepFiles(source string, base *specfile.Spec, v sweep.Vary, rs []sweep.Result, html bool) ([]report.File, *sweep.Doc, error) {
+	doc := sweep.NewDoc(base, v, rs)
+	js, err := doc.Marshal()
+	if err != nil {
+		return nil, nil, err
+	}
+	files := []report.File{{Name: "report.json", Data: js}, {Name: "sweep.csv", Data: sweep.CSV(v, rs)}}
+	fd := sweep.NewFigureData("Sweep of "+v.Key.Name+": "+source, v, rs)
+	for _, ext := range []string{"svg", "png"} {
+		var b bytes.Buffer
+		if err := sweep.Render(&b, fd, ext); err != nil {
+			return nil, nil, err
+		}
+		files = append(files, report.File{Name: "sweep." + ext, Data: b.Bytes()})
+	}
+	for i, r := range rs {
+		if !r.Status.HasChain() {
+			continue
+		}
+		dir := sweep.ValueDir(i) + "/"
+		b, err := r.Report.Marshal()
+		if err != nil {
+			return nil, nil, fmt.Errorf("%s = %s: %v", v.Key.Name, v.Key.Format(r.Value), err)
+		}
+		files = append(files, report.File{Name: dir + "report.json", Data: b})
+		cf, err := report.CoefficientFiles(r.Report.Front[r.Report.Recommended])
+		if err != nil {
+			return nil, nil, fmt.Errorf("%s = %s: %v", v.Key.Name, v.Key.Format(r.Value), err)
+		}
+		for _, f := range cf {
+			files = append(files, report.File{Name: dir + f.Name, Data: f.Data})
+		}
+	}
+	if html {
+		names := append(fileNames(files), "report.html")
+		page, err := htmlreport.Sweep(htmlreport.SweepPage{Source: source, Doc: doc, Figure: files[2].Data, Files: names})
+		if err != nil {
+			return nil, nil, err
+		}
+		files = append(files, report.File{Name: "report.html", Data: page})
+	}
+	return files, doc, nil
+}
+
+// withHTML adds report.html to a plan's or check's files, built from the
+// figures already rendered among them.
+func withHTML(source string, rep *report.Report, files []report.File) ([]report.File, error) {
+	get := func(name string) []byte {
+		for _, f := range files {
+			if f.Name == name {
+				return f.Data
+			}
+		}
+		return nil
+	}
+	page, err := htmlreport.Plan(htmlreport.PlanPage{
+		Source: source, Report: rep,
+		Front: get("front.svg"), Response: get("response.svg"), Stages: get("stages.svg"),
+		Files: append(fileNames(files), "report.html"),
+	})
+	if err != nil {
+		return nil, err
+	}
+	return append(files, report.File{Name: "report.html", Data: page}), nil
+}
+
+func fileNames(files []report.File) []string {
+	var out []string
+	for _, f := range files {
+		out = append(out, f.Name)
+	}
+	return out
+}
+
+func printSweep(w io.Writer, source, dir string, v sweep.Vary, doc *sweep.Doc, files []report.File) {
+	fmt.Fprintf(w, "stepdown sweep: %s, %s from %s to %s in steps of %s (%d values)\n\n", source, v.Key.Name,
+		v.Key.Format(v.From), v.Key.Format(v.To), v.Key.Format(v.Step), len(v.Values))
+	head := []string{v.Key.Name, "status", "recommended", "mult/out", "memory bits", "latency", "least mult/out", "least memory", "least latency"}
+	rows := [][]string{head}
+	for _, dv := range doc.Values {
+		if dv.Recommended < 0 {
+			rows = append(rows, []string{dv.ValueText, dv.Status, dv.Detail})
+			continue
+		}
+		c := dv.Front[dv.Recommended]
+		n := c.Notation
+		if dv.StructureChanged {
+			n += "  <- changes"
+		}
+		rows = append(rows, []string{dv.ValueText, dv.Status, n, trimFloat(c.MultipliesPerOutput, 1), fmt.Sprint(c.MemoryBits),
+			seconds(c.LatencyS), trimFloat(dv.Best.MultipliesPerOutput, 1), fmt.Sprint(dv.Best.MemoryBits), seconds(dv.Best.LatencyS)})
+	}
+	widths := make([]int, len(head))
+	for _, r := range rows {
+		if len(r) < len(head) {
+			continue
+		}
+		for i, c := range r {
+			widths[i] = max(widths[i], len(c))
+		}
+	}
+	for _, r := range rows {
+		var b strings.Builder
+		for i, c := range r {
+			if i > 0 {
+				b.WriteString("  ")
+			}
+			if len(r) < len(head) && i == len(r)-1 {
+				b.WriteString(c)
+			} else if i >= 3 {
+				fmt.Fprintf(&b, "%*s", widths[i], c)
+			} else {
+				fmt.Fprintf(&b, "%-*s", widths[i], c)
+			}
+		}
+		fmt.Fprintln(w, strings.TrimRight(b.String(), " "))
+	}
+	fmt.Fprintf(w, "\nwrote %s/ (%d files): report.json, sweep.csv, sweep.svg, sweep.png", dir, len(files))
+	for _, f := range files {
+		if f.Name == "report.html" {
+			fmt.Fprint(w, ", report.html")
+		}
+	}
+	fmt.Fprintln(w, ", values/NN/")
+	fmt.Fprintf(w, "\nCaution: %s.\n", report.Caution)
+}
