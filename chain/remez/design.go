@@ -154,22 +154,11 @@ func (e *engine) taps() []float64 {
 	a := make([]float64, r)
 	l := r - 1
 	if l == 0 {
-		a[0] = bary(1, e.xr, e.mu, e.c)
+		a[0] = e.bary1(0)
 	} else {
 		seq := make([]float64, 2*l)
 		for j := 0; j <= l; j++ {
-			var x float64
-			switch {
-			case 2*j == l:
-				x = 0
-			case j == 0:
-				x = 1
-			case j == l:
-				x = -1
-			default:
-				x = math.Cos(math.Pi * float64(j) / float64(l))
-			}
-			v := bary(x, e.xr, e.mu, e.c)
+			v := e.bary1(float64(j) / float64(2*l))
 			seq[j] = v
 			if j > 0 && j < l {
 				seq[2*l-j] = v
@@ -229,17 +218,18 @@ func (e *engine) deviations(h []float64) (dev, wdev []float64) {
 	for b := range nb {
 		bd := &e.bands[b]
 		g := e.grid[e.bstart[b]:e.bstart[b+1]]
-		unw := func(p *point) float64 { return math.Abs(p.e) / bd.wt(p.f) }
+		// Signed unweighted error D - A (the weight is positive).
+		unw := func(p *point) float64 { return p.e / bd.wt(p.f) }
 		fu := func(f float64) float64 {
 			q := e.mkpoint(f, b)
-			return math.Abs(e.errAt(&q)) / bd.wt(f)
+			return e.errAt(&q) / bd.wt(f)
 		}
 		measure := func(f float64) {
 			d := math.Abs(Amplitude(h, f, 1) - bd.desired(f))
 			dev[b] = math.Max(dev[b], d)
 			shape := 1.0
 			if bd.weightFn != nil {
-				shape = bd.weightFn(f * e.rate)
+				shape = bd.weightFn(bd.spec(f))
 			}
 			wdev[b] = math.Max(wdev[b], d*shape)
 		}
@@ -249,10 +239,21 @@ func (e *engine) deviations(h []float64) (dev, wdev []float64) {
 				continue
 			}
 			ul, uc, ur := unw(&g[i-1]), unw(&g[i]), unw(&g[i+1])
-			if !(uc >= ul && uc >= ur) {
+			s := 1.0
+			if uc < 0 {
+				s = -1
+			}
+			if !(s*uc >= s*ul && s*uc >= s*ur) {
 				continue
 			}
-			measure(refineMax(fu, g[i-1].f, g[i].f, g[i+1].f, ul, uc, ur))
+			sfu := func(f float64) float64 { return s * fu(f) }
+			measure(refineMax(sfu, g[i-1].f, g[i].f, g[i+1].f, s*ul, s*uc, s*ur))
+		}
+		// A type II response is zero at rate/2, off the grid: search the
+		// last lobe up to rate/2 on h itself.
+		if last := len(g) - 1; e.type2 && b == nb-1 && bd.hi > g[last].f && last >= 1 {
+			fa := func(f float64) float64 { return math.Abs(Amplitude(h, f, 1) - bd.desired(f)) }
+			measure(goldenMax(fa, g[last-1].f, bd.hi))
 		}
 	}
 	return dev, wdev
@@ -284,4 +285,30 @@ func refineMax(fn func(float64) float64, a, b, c, fa, fb, fc float64) float64 {
 		}
 	}
 	return b
+}
+
+// goldenMax returns an abscissa of the maximum of fn on [a, b], assumed
+// unimodal there, by golden-section search.
+func goldenMax(fn func(float64) float64, a, b float64) float64 {
+	const g = 0.6180339887498949
+	c, d := b-g*(b-a), a+g*(b-a)
+	fc, fd := fn(c), fn(d)
+	for range 60 {
+		if fc >= fd {
+			b, d, fd = d, c, fc
+			c = b - g*(b-a)
+			fc = fn(c)
+		} else {
+			a, c, fc = c, d, fd
+			d = a + g*(b-a)
+			fd = fn(d)
+		}
+		if b-a <= 1e-15 {
+			break
+		}
+	}
+	if fc >= fd {
+		return c
+	}
+	return d
 }

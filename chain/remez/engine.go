@@ -91,6 +91,38 @@ type engine struct {
 	tmp   []point
 	best  []point
 	prevF []float64
+	emax  int // scale of lam: true weights are lam * 2^(emax+m-1)
+	q     int // the reference point left out of the interpolation
+}
+
+// bary1 evaluates the levelled polynomial at normalised frequency f by the
+// first (modified Lagrange) barycentric formula, which is backward stable
+// everywhere (Higham 2004), also in the transition gaps where the second
+// formula's denominator cancels. It is O(r) with scaling and is used only
+// for the samples that give the taps.
+func (e *engine) bary1(f float64) float64 {
+	s, c := math.Sincos(math.Pi * f)
+	pt := point{f: f, x: math.Cos(2 * math.Pi * f), y: s * s, z: c * c}
+	prod, ex := 1.0, 0
+	var sum float64
+	k := 0
+	for i := range e.ref {
+		if i == e.q {
+			continue
+		}
+		d := xdiff(&pt, &e.ref[i])
+		if d == 0 {
+			return e.c[k]
+		}
+		prod *= d
+		if k&7 == 7 {
+			fr, x := math.Frexp(prod)
+			prod, ex = fr, ex+x
+		}
+		sum += e.mu[k] * e.c[k] / d
+		k++
+	}
+	return math.Ldexp(prod*sum, ex+e.emax+len(e.ref)-1)
 }
 
 // mkpoint fills a point at normalised frequency f in band b.
@@ -203,8 +235,14 @@ func (e *engine) buildGrid() error {
 		}
 		// A type II filter is zero at rate/2: the 1973 program drops a last
 		// point closer than one spacing to it, and so do we.
+		// Without GridOnly only a point at rate/2 itself goes: the next one
+		// is at most a spacing away, as everywhere else on the grid.
 		if e.type2 && bi == len(e.bands)-1 {
-			if last := len(e.grid) - 1; e.grid[last].f > 0.5-delf && last >= e.bstart[bi] {
+			limit := 0.5 - delf
+			if !e.gridOnly {
+				limit = 0.5 - 1e-9*delf
+			}
+			if last := len(e.grid) - 1; e.grid[last].f > limit && last >= e.bstart[bi] {
 				e.grid = e.grid[:last]
 			}
 		}
@@ -366,6 +404,7 @@ func (e *engine) level() error {
 	for i := range m {
 		e.lam[i] = math.Ldexp(e.mant[i], e.expo[i]-emax)
 	}
+	e.emax = emax
 	// Interpolate on every point but a middle one, q, and choose delta so
 	// that the error at q is levelled too, computed by the same barycentric
 	// evaluation that later reads the error: P = P0 - delta Q with P0
@@ -374,6 +413,7 @@ func (e *engine) level() error {
 	// alternating sums loses digits (long filters, crowded points near
 	// x = +-1).
 	q := m / 2
+	e.q = q
 	pq := &e.ref[q]
 	r := m - 1
 	e.xr = grow(e.xr, r)
@@ -516,10 +556,14 @@ func vertex(a, b, c, fa, fb, fc float64) float64 {
 	return v
 }
 
-// extrema collects into e.cand the local extrema of the grid error in every
-// band (band edges always included), each moved to its parabolic vertex
-// unless GridOnly, and returns the largest |error| among them.
-func (e *engine) extrema() float64 {
+// extrema collects into e.cand the signed local extrema of the grid error
+// in every band (band edges always included) and returns the largest
+// |error| among them. Unless GridOnly each interior one is moved off the
+// grid: by one parabolic step through its neighbours, or, when full, by a
+// safeguarded parabolic search of its bracket to the true local extremum
+// (a parabola is a poor model where the error changes sign between grid
+// points, as beside a band edge).
+func (e *engine) extrema(full bool) float64 {
 	e.cand = e.cand[:0]
 	maxErr := 0.0
 	for b := range e.bands {
@@ -532,14 +576,7 @@ func (e *engine) extrema() float64 {
 					continue
 				}
 				if !e.gridOnly {
-					v := vertex(g[i-1].f, p.f, g[i+1].f, l, p.e, r)
-					if v != p.f {
-						q := e.mkpoint(v, b)
-						q.e = e.errAt(&q)
-						if math.Abs(q.e) > math.Abs(p.e) && q.e*p.e > 0 {
-							p = q
-						}
-					}
+					p = e.refine(p, b, g[i-1].f, g[i+1].f, l, r, full)
 				}
 			}
 			e.cand = append(e.cand, p)
@@ -547,6 +584,40 @@ func (e *engine) extrema() float64 {
 		}
 	}
 	return maxErr
+}
+
+// refine moves the grid extremum p, bracketed by neighbours at a and c
+// with errors ea and ec, towards the local extremum of the error.
+func (e *engine) refine(p point, b int, a, c, ea, ec float64, full bool) point {
+	s := 1.0
+	if p.e < 0 {
+		s = -1
+	}
+	if !full {
+		v := vertex(a, p.f, c, ea, p.e, ec)
+		if v != p.f {
+			q := e.mkpoint(v, b)
+			q.e = e.errAt(&q)
+			if s*q.e > s*p.e {
+				return q
+			}
+		}
+		return p
+	}
+	fn := func(f float64) float64 {
+		q := e.mkpoint(f, b)
+		return s * e.errAt(&q)
+	}
+	v := refineMax(fn, a, p.f, c, s*ea, s*p.e, s*ec)
+	if v == p.f {
+		return p
+	}
+	q := e.mkpoint(v, b)
+	q.e = e.errAt(&q)
+	if s*q.e > s*p.e {
+		return q
+	}
+	return p
 }
 
 // exchange builds the next reference from the candidates and the current
@@ -632,50 +703,32 @@ func (e *engine) run(tol float64, maxIter int) (int, bool, error) {
 	var err error
 	it := 0
 	conv := false
+	full := false
 	for it < maxIter {
 		it++
 		if err = e.level(); err != nil {
 			break
 		}
 		e.evalGrid()
-		maxErr := e.extrema()
+		maxErr := e.extrema(full)
 		ad := math.Abs(e.delta)
-		gap := (maxErr - ad) / ad
-		if ad == 0 {
-			gap = math.Inf(1)
+		gap := math.Inf(1)
+		if ad > 0 {
+			gap = (maxErr - ad) / ad
+		}
+		// Confirm an apparent convergence with fully refined extrema;
+		// from then on every iteration refines fully.
+		if gap <= tol && !full && !e.gridOnly {
+			full = true
+			maxErr = e.extrema(true)
+			gap = (maxErr - ad) / ad
 		}
 		if debugRemez {
-			fmt.Printf("n=%d it=%d delta=%.10g gap=%.3g ncand=%d\n", e.n, it, e.delta, gap, len(e.cand))
+			fmt.Printf("n=%d it=%d delta=%.10g gap=%.3g ncand=%d full=%v\n", e.n, it, e.delta, gap, len(e.cand), full)
 		}
 		if gap < bestGap {
 			bestGap = gap
 			e.best = append(e.best[:0], e.ref...)
-		}
-		if debugRemez {
-			cnt := make([]int, len(e.bands))
-			for _, p := range e.ref {
-				cnt[p.band]++
-			}
-			mi := 0
-			for i := range e.grid {
-				if math.Abs(e.grid[i].e) > math.Abs(e.grid[mi].e) {
-					mi = i
-				}
-			}
-			ci := 0
-			for i := range e.cand {
-				if math.Abs(e.cand[i].e) > math.Abs(e.cand[ci].e) {
-					ci = i
-				}
-			}
-			fmt.Println("  ref counts", cnt, "max at", e.grid[mi].f, e.grid[mi].e, "idx", mi, len(e.grid), "cand", e.cand[ci].f, e.cand[ci].e/e.delta, e.cand[ci].band)
-			if it == 1 {
-				for i := range e.ref {
-					if i < 4 || (i > cnt[0]-4 && i < cnt[0]+4) || i > len(e.ref)-4 {
-						fmt.Printf("    ref %d f=%.6f\n", i, e.ref[i].f)
-					}
-				}
-			}
 		}
 		if gap <= tol {
 			conv = true
@@ -706,7 +759,7 @@ func (e *engine) run(tol float64, maxIter int) (int, bool, error) {
 			err = lerr
 		}
 		e.evalGrid()
-		e.extrema()
+		e.extrema(true)
 	}
 	return it, conv, err
 }
