@@ -3,8 +3,6 @@ package remez
 // The types of the public API. The estimators are in estimate.go, response
 // evaluation in response.go and the engine in design.go.
 
-import "errors"
-
 // Band is one band of a weighted minimax design. Frequencies are in Hz.
 type Band struct {
 	Lo, Hi float64 // band edges in Hz, 0 <= Lo < Hi <= rate/2
@@ -48,25 +46,4 @@ type Result struct {
 	Delta      float64   // the levelled weighted deviation of the final reference
 	Iterations int
 	Converged  bool
-}
-
-// MinLength returns the shortest filter that meets every band's MaxError,
-// measured on the real response with extrema refined locally. Parity, when
-// 1 or 2, restricts the search to odd (1) or even (2) lengths; 0 allows both.
-// maxTaps bounds the search (0 means 65535).
-func MinLength(rate float64, bands []Band, parity, maxTaps int, s Settings) (*Result, error) {
-	return nil, errors.New("remez: MinLength not implemented yet")
-}
-
-// HalfBand designs the half-band filter of length 4k-1 with passband [0, fp]
-// and stopband [rate/2-fp, rate/2] by the single-band trick: every other tap
-// is exactly zero and the centre tap is exactly 1/2.
-func HalfBand(k int, fp, rate float64, s Settings) (*Result, error) {
-	return nil, errors.New("remez: HalfBand not implemented yet")
-}
-
-// MinHalfBand returns the half-band with the smallest k whose deviation
-// (passband and stopband alike) is at most dev.
-func MinHalfBand(fp, rate, dev float64, s Settings) (*Result, error) {
-	return nil, errors.New("remez: MinHalfBand not implemented yet")
 }

@@ -64,7 +64,7 @@ func (e *engine) design() (*Result, error) {
 		}
 	}
 	res.Deviations, _ = e.deviations(res.Taps)
-	if tiny := e.laxCheck(res.Deviations); tiny != nil {
+	if tiny := e.laxCheck(res.Deviations, conv); tiny != nil {
 		return res, tiny
 	}
 	if err != nil {
@@ -77,21 +77,31 @@ func (e *engine) design() (*Result, error) {
 }
 
 // laxCheck reports a specification met to rounding level, where the
-// optimum is not defined in double precision.
-func (e *engine) laxCheck(dev []float64) error {
-	scale := 0.0
+// optimum is not defined in double precision: every band's deviation, or
+// (when the exchange failed) the levelled deviation in every band, is below
+// 1e-13 of the largest desired gain.
+func (e *engine) laxCheck(dev []float64, conv bool) error {
+	scale, wmax := 0.0, 0.0
 	for i := range e.grid {
-		scale = math.Max(scale, math.Abs(e.bands[e.grid[i].band].desired(e.grid[i].f)))
+		g := &e.grid[i]
+		scale = math.Max(scale, math.Abs(e.bands[g.band].desired(g.f)))
+		wmax = math.Max(wmax, e.bands[g.band].wt(g.f))
 	}
 	if scale == 0 {
 		scale = 1
 	}
+	lim := 1e-13 * scale
+	tiny := true
 	for _, d := range dev {
-		if d > 1e-13*scale {
-			return nil
-		}
+		tiny = tiny && d <= lim
 	}
-	return fmt.Errorf("remez: n = %d: every band is met to rounding level (deviations below %.0e): the specification is too lax for double precision; shorten the filter or tighten the bands", e.n, 1e-13*scale)
+	if !conv && math.Abs(e.delta)/wmax <= lim {
+		tiny = true
+	}
+	if !tiny {
+		return nil
+	}
+	return fmt.Errorf("remez: n = %d: the bands are met to rounding level (deviation below %.0e): the specification is too lax for double precision; shorten the filter, narrow the transitions or tighten the bands", e.n, lim)
 }
 
 // initRef chooses the starting reference. Short designs and GridOnly start
