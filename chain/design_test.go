@@ -112,7 +112,7 @@ func TestDesignedChains(t *testing.T) {
 				r := st.Req
 				if st.HalfBand {
 					n := len(st.Taps)
-					if n%4 != 3 || st.Taps[n/2] != 0.5 || st.Taps[n/2+1] != 0 {
+					if n%4 != 3 || st.Taps[n/2] != 0.5 || st.Taps[n/2+2] != 0 || st.Taps[n/2+1] == 0 {
 						t.Errorf("stage %d: half-band of %d taps, centre %v", i+1, n, st.Taps[n/2])
 					}
 				}
