@@ -139,22 +139,45 @@ func (e *engine) mkpoint(f float64, b int) point {
 	return p
 }
 
+// validateSpec checks what does not depend on the length.
+func validateSpec(rate float64, bands []Band, s Settings) error {
+	if !(rate > 0) || math.IsInf(rate, 0) {
+		return fmt.Errorf("remez: rate = %v Hz: must be positive and finite", rate)
+	}
+	if len(bands) == 0 {
+		return errors.New("remez: no bands: give at least one band")
+	}
+	if s.Density < 0 {
+		return fmt.Errorf("remez: Settings.Density = %d: must be at least 1 (0 means 16)", s.Density)
+	}
+	if s.MaxIterations < 0 {
+		return fmt.Errorf("remez: Settings.MaxIterations = %d: must be at least 1 (0 means 100)", s.MaxIterations)
+	}
+	nyq := rate / 2
+	for i, b := range bands {
+		switch {
+		case math.IsNaN(b.Lo) || math.IsNaN(b.Hi) || b.Lo < 0 || b.Hi > nyq:
+			return fmt.Errorf("remez: band %d edges [%v, %v] Hz: must lie within [0, %v] (rate/2)", i, b.Lo, b.Hi, nyq)
+		case !(b.Lo < b.Hi):
+			return fmt.Errorf("remez: band %d edges [%v, %v] Hz: Lo must be below Hi (zero-width or reversed band)", i, b.Lo, b.Hi)
+		case i > 0 && b.Lo < bands[i-1].Hi:
+			return fmt.Errorf("remez: band %d starts at %v Hz, inside band %d ending at %v Hz: bands must be in increasing order and must not overlap", i, b.Lo, i-1, bands[i-1].Hi)
+		case b.GainFunc == nil && (math.IsNaN(b.Gain) || math.IsInf(b.Gain, 0)):
+			return fmt.Errorf("remez: band %d Gain = %v: must be finite", i, b.Gain)
+		case b.WeightFunc == nil && (math.IsNaN(b.Weight) || math.IsInf(b.Weight, 0) || b.Weight < 0):
+			return fmt.Errorf("remez: band %d Weight = %v: must be positive and finite (0 means 1)", i, b.Weight)
+		}
+	}
+	return nil
+}
+
 // newEngine validates the specification and builds the grid.
 func newEngine(n int, rate float64, bands []Band, s Settings) (*engine, error) {
 	if n < 3 {
 		return nil, fmt.Errorf("remez: length n = %d: need at least 3 taps", n)
 	}
-	if !(rate > 0) || math.IsInf(rate, 0) {
-		return nil, fmt.Errorf("remez: rate = %v Hz: must be positive and finite", rate)
-	}
-	if len(bands) == 0 {
-		return nil, errors.New("remez: no bands: give at least one band")
-	}
-	if s.Density < 0 {
-		return nil, fmt.Errorf("remez: Settings.Density = %d: must be at least 1 (0 means 16)", s.Density)
-	}
-	if s.MaxIterations < 0 {
-		return nil, fmt.Errorf("remez: Settings.MaxIterations = %d: must be at least 1 (0 means 100)", s.MaxIterations)
+	if err := validateSpec(rate, bands, s); err != nil {
+		return nil, err
 	}
 	e := &engine{n: n, rate: rate, density: s.Density, maxIter: s.MaxIterations, gridOnly: s.GridOnly}
 	if e.density == 0 {
@@ -169,20 +192,7 @@ func newEngine(n int, rate float64, bands []Band, s Settings) (*engine, error) {
 	} else {
 		e.r = (n + 1) / 2
 	}
-	nyq := rate / 2
-	for i, b := range bands {
-		switch {
-		case math.IsNaN(b.Lo) || math.IsNaN(b.Hi) || b.Lo < 0 || b.Hi > nyq:
-			return nil, fmt.Errorf("remez: band %d edges [%v, %v] Hz: must lie within [0, %v] (rate/2)", i, b.Lo, b.Hi, nyq)
-		case !(b.Lo < b.Hi):
-			return nil, fmt.Errorf("remez: band %d edges [%v, %v] Hz: Lo must be below Hi (zero-width or reversed band)", i, b.Lo, b.Hi)
-		case i > 0 && b.Lo < bands[i-1].Hi:
-			return nil, fmt.Errorf("remez: band %d starts at %v Hz, inside band %d ending at %v Hz: bands must be in increasing order and must not overlap", i, b.Lo, i-1, bands[i-1].Hi)
-		case b.GainFunc == nil && (math.IsNaN(b.Gain) || math.IsInf(b.Gain, 0)):
-			return nil, fmt.Errorf("remez: band %d Gain = %v: must be finite", i, b.Gain)
-		case b.WeightFunc == nil && (math.IsNaN(b.Weight) || math.IsInf(b.Weight, 0) || b.Weight < 0):
-			return nil, fmt.Errorf("remez: band %d Weight = %v: must be positive and finite (0 means 1)", i, b.Weight)
-		}
+	for _, b := range bands {
 		w := b.Weight
 		if w == 0 {
 			w = 1
