@@ -129,12 +129,17 @@ func toneGain(c *Chain, g float64) float64 {
 	nOut := m0 + 400
 	fk := c.OutputRate()
 	w := 2 * math.Pi * g / fk
-	if c.Complex {
+	// A real tone landing on 0 or FK/2 at the output cannot be told from its
+	// mirror; a complex tone through the same real filters can.
+	out := foldFreq(g, fk)
+	if c.Complex || out < 1e-9*fk || out > (0.5-1e-9)*fk {
 		x := make([]complex128, nOut*d)
 		for n := range x {
 			x[n] = cmplx.Exp(complex(0, 2*math.Pi*g/c.InputRate*float64(n)))
 		}
-		y := RunComplex(c, x)
+		cc := *c
+		cc.Complex = true
+		y := RunComplex(&cc, x)
 		var acc complex128
 		for m := m0; m < len(y); m++ {
 			acc += y[m] * cmplx.Exp(complex(0, -w*float64(m)))

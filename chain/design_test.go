@@ -77,6 +77,9 @@ var designedCases = []struct {
 		Spec{InputRate: 12e6, OutputRate: 500e3, Passband: 150e3, Protected: 200e3, RippleDB: 0.2, RejectionDB: 85, Complex: true}},
 	{"fir", "fir4 > fir3 > fir4",
 		Spec{InputRate: 48e3, OutputRate: 1e3, Passband: 350, Protected: 400, RippleDB: 0.5, RejectionDB: 75}},
+	// D = 4096 with full protection (fa = FK/2): the worst alias sits at FK/2.
+	{"d4096", "cic5m1r256 > hb > hb > hb > fir2",
+		Spec{InputRate: 102.4e6, OutputRate: 25e3, Passband: 10e3, Protected: 12.5e3, RippleDB: 0.5, RejectionDB: 90}},
 }
 
 func designOrSkip(t testing.TB, sp Spec, notation string) *Chain {
@@ -151,5 +154,22 @@ func TestDesignedChains(t *testing.T) {
 			t.Logf("%s: taps %v, rejection %.2f dB at %.6g Hz (target %g), ripple %.4f dB (budget %g), alias tone %.2f dB",
 				dc.plan, lens, a.AliasRejectionDB, a.WorstAliasHz, sp.RejectionDB, a.PassbandRippleDB, sp.RippleDB, lvl)
 		})
+	}
+}
+
+func BenchmarkAnalyzeDesignedD4096(b *testing.B) {
+	dc := designedCases[3]
+	c := designOrSkip(b, dc.spec, dc.plan)
+	for b.Loop() {
+		if _, err := Analyze(c, dc.spec); err != nil {
+			b.Fatal(err)
+		}
+	}
+}
+
+func BenchmarkDesignD4096(b *testing.B) {
+	dc := designedCases[3]
+	for b.Loop() {
+		designOrSkip(b, dc.spec, dc.plan)
 	}
 }
