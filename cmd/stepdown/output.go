@@ -9,6 +9,7 @@ import (
 	"path/filepath"
 	"sort"
 
+	"stepdown/chain"
 	"stepdown/cmd/stepdown/internal/report"
 	"stepdown/cmd/stepdown/internal/specfile"
 	"stepdown/optimize"
@@ -71,6 +72,11 @@ func prepareOut(dir string) (*outDir, error) {
 		return nil, fmt.Errorf("--out %q: cannot write in %q: %v", dir, parent, unwrapPath(err))
 	}
 	o.tmp = tmp
+	// MkdirTemp makes the folder private; the output is an ordinary folder.
+	if err := os.Chmod(tmp, 0o755); err != nil {
+		o.cleanup()
+		return nil, fmt.Errorf("--out %q: %v", dir, unwrapPath(err))
+	}
 	return o, nil
 }
 
@@ -195,7 +201,7 @@ func buildFiles(rep *report.Report, res *optimize.Result, spec *specfile.Spec) (
 
 	sd := plots.StagesData{Title: "Cost by stage: " + rep.Front[rec].Notation}
 	for i, st := range rep.Front[rec].Stages {
-		sd.Names = append(sd.Names, fmt.Sprintf("%d: %s /%d", i+1, st.Kind, st.Decimation))
+		sd.Names = append(sd.Names, stageName(cand, i))
 		sd.Multiplies = append(sd.Multiplies, st.MultipliesPerOutput)
 		sd.MemoryBits = append(sd.MemoryBits, float64(st.MemoryBits))
 	}
@@ -246,8 +252,8 @@ func responseData(cand optimize.Candidate, spec *specfile.Spec, notation string)
 	rd.FreqHz = make([]float64, responsePoints)
 	rd.TotalDB = make([]float64, responsePoints)
 	rd.Stages = make([]plots.Series, len(c.Stages))
-	for i, st := range c.Stages {
-		rd.Stages[i] = plots.Series{Name: fmt.Sprintf("%d: %s /%d", i+1, st.Kind(), st.Factor()), DB: make([]float64, responsePoints)}
+	for i := range c.Stages {
+		rd.Stages[i] = plots.Series{Name: stageName(cand, i), DB: make([]float64, responsePoints)}
 	}
 	for k := range rd.FreqHz {
 		g := f0 / 2 * float64(k) / float64(responsePoints-1)
@@ -264,6 +270,14 @@ func responseData(cand optimize.Candidate, spec *specfile.Spec, notation string)
 		rd.AliasBands = append(rd.AliasBands, [2]float64{lo, hi})
 	}
 	return rd, nil
+}
+
+// stageName is stage i's own notation, such as "cic4m1r8" or "hb".
+func stageName(cand optimize.Candidate, i int) string {
+	if i < len(cand.Plan) {
+		return chain.Notation(cand.Plan[i : i+1])
+	}
+	return fmt.Sprintf("stage %d", i+1)
 }
 
 // db is 20 log10 of a magnitude; an exact null is -Inf, which the plots draw

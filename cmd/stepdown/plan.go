@@ -222,9 +222,9 @@ func runCheck(c *cli.Context) error {
 	}
 	a := fig.Analysis
 	switch {
-	case a.AliasRejectionDB < j.spec.Chain.RejectionDB:
+	case a.AliasRejectionDB < j.spec.Chain.RejectionDB-report.RejectionToleranceDB:
 		res.Reason = fmt.Sprintf("The chain named by --chain misses the rejection target: %.2f dB against %.4g dB.", a.AliasRejectionDB, j.spec.Chain.RejectionDB)
-	case a.PassbandRippleDB > j.spec.Chain.RippleDB:
+	case a.PassbandRippleDB > j.spec.Chain.RippleDB+report.RippleToleranceDB:
 		res.Reason = fmt.Sprintf("The chain named by --chain misses the ripple budget: %.4f dB against %.4g dB.", a.PassbandRippleDB, j.spec.Chain.RippleDB)
 	default:
 		res.Reason = "The chain named by --chain meets the rejection target and the ripple budget."

@@ -20,6 +20,14 @@ const Schema = "stepdown.report/1"
 // Caution is the planning caveat carried by every report.
 const Caution = "planning estimates, confirm by bit-true simulation of the RTL and the team's sign-off before committing hardware"
 
+// Tolerances of meets_targets, the same as the search's when it keeps a
+// designed chain: a cascade's other stages may lift an alias band by their
+// passband ripple, which the per-stage targets do not see.
+const (
+	RejectionToleranceDB = 0.01
+	RippleToleranceDB    = 1e-4
+)
+
 // Report is report.json.
 type Report struct {
 	Schema      string  `json:"schema"`
@@ -178,7 +186,8 @@ func NewChain(spec chain.Spec, cand optimize.Candidate, clock bool) (Chain, erro
 		WorstAliasHz:        a.WorstAliasHz,
 		PassbandRippleDB:    a.PassbandRippleDB,
 	}
-	out.MeetsTargets = a.AliasRejectionDB >= spec.RejectionDB && a.PassbandRippleDB <= spec.RippleDB
+	out.MeetsTargets = a.AliasRejectionDB >= spec.RejectionDB-RejectionToleranceDB &&
+		a.PassbandRippleDB <= spec.RippleDB+RippleToleranceDB
 	if clock {
 		m := f.MultipliersAtClock
 		out.MultipliersAtClock = &m
