@@ -15,7 +15,7 @@ output_rate = "1.92 MHz"     # channel rate; 122.88 / 1.92 = 64
 passband    = "480 kHz"      # flat to here
 protected   = "640 kHz"      # no alias may land below this edge
 ripple      = "0.2 dB"       # peak-to-peak over the passband
-rejection   = "80 dB"        # alias rejection into the protected band
+rejection   = "90 dB"        # alias rejection into the protected band
 signal      = "complex"      # I and Q: two real filters
 
 [words]
