@@ -1,6 +1,6 @@
 // Command browsercheck opens an HTML file in headless Chromium through the
 // DevTools protocol on a pipe (no network port) and fails when the page
-// logs a console error or throws, requests anything but file: or about:
+// logs a console error or throws, requests anything but file:, data: or about:
 // URLs, or renders blank. It is the browser half of .ci/browser.
 //
 // Usage:
@@ -264,7 +264,9 @@ func check(ctx context.Context, chromium, path string, width, height int, shot, 
 				pmu.Lock()
 				requests = append(requests, u)
 				pmu.Unlock()
-				if !strings.HasPrefix(u, "file:") && !strings.HasPrefix(u, "about:") {
+				// data: URLs are bytes inside the page (a figure's embedded
+				// colour key), not a fetch.
+				if !strings.HasPrefix(u, "file:") && !strings.HasPrefix(u, "about:") && !strings.HasPrefix(u, "data:") {
 					add("network request: " + short(u))
 				}
 			case "Runtime.consoleAPICalled":
@@ -417,7 +419,7 @@ func check(ctx context.Context, chromium, path string, width, height int, shot, 
 	pmu.Lock()
 	defer pmu.Unlock()
 	sort.Strings(problems)
-	summary := fmt.Sprintf("%d request(s), all file:; no console errors; screenshot %d colours, %.1f%% inked; page %.0fx%.0f CSS px; printed %d bytes of PDF",
+	summary := fmt.Sprintf("%d request(s), all file: or data:; no console errors; screenshot %d colours, %.1f%% inked; page %.0fx%.0f CSS px; printed %d bytes of PDF",
 		len(requests), colours, 100*inked, metrics.CSS.Width, metrics.CSS.Height, len(pdf.Data)*3/4)
 	_ = pages
 	return problems, summary, nil

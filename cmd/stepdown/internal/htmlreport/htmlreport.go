@@ -168,7 +168,7 @@ type frontRow struct {
 	Rec                                                         bool
 	Notation                                                    string
 	Mult, Adds, MemBits, MemWords, Multipliers, Latency, LatOut string
-	Rejection, Margin, Ripple, Kind                             string
+	Rejection, Margin, Ripple, Kind, Tag                        string
 	Misses                                                      bool
 }
 
@@ -230,8 +230,8 @@ func specRows(s report.Spec) []kv {
 		{"Passband edge", freq(s.PassbandHz)},
 		{"Protected (alias-free) edge", freq(s.ProtectedHz)},
 		{"Final stopband edge", freq(s.StopbandHz)},
-		{"Passband ripple", trimFloat(s.RippleDB, 4) + " dB peak-to-peak"},
-		{"Alias rejection", trimFloat(s.RejectionDB, 4) + " dB"},
+		{"Passband ripple", shortest(s.RippleDB) + " dB peak-to-peak"},
+		{"Alias rejection", shortest(s.RejectionDB) + " dB"},
 		{"Signal", s.Signal},
 	}
 	coef := "floating point"
@@ -290,7 +290,7 @@ func planCautions(r *report.Report) []string {
 	}
 	if !c.MeetsTargets {
 		out = append(out, fmt.Sprintf("The recommended chain misses the spec: alias rejection %.2f dB against %s dB, ripple %.4f dB against %s dB.",
-			c.AliasRejectionDB, trimFloat(r.Spec.RejectionDB, 4), c.PassbandRippleDB, trimFloat(r.Spec.RippleDB, 4)))
+			c.AliasRejectionDB, shortest(r.Spec.RejectionDB), c.PassbandRippleDB, shortest(r.Spec.RippleDB)))
 	} else if c.RejectionMarginDB < 1 {
 		out = append(out, fmt.Sprintf("The recommended chain's rejection margin is thin (%.2f dB): coefficient rounding and data-path truncation can use it up.", c.RejectionMarginDB))
 	}
@@ -323,6 +323,14 @@ func frontRows(front []report.Chain, rec int, clock bool) []frontRow {
 			Rejection: fmt.Sprintf("%.2f", c.AliasRejectionDB), Margin: fmt.Sprintf("%+.2f", c.RejectionMarginDB),
 			Ripple: fmt.Sprintf("%.4f", c.PassbandRippleDB), Kind: kind, Misses: !c.MeetsTargets,
 		}
+		var tags []string
+		if !c.Designed {
+			tags = append(tags, "estimated")
+		}
+		if !c.MeetsTargets {
+			tags = append(tags, "misses spec")
+		}
+		row.Tag = strings.Join(tags, ", ")
 		if clock && c.MultipliersAtClock != nil {
 			row.Multipliers = strconv.Itoa(*c.MultipliersAtClock)
 		}
@@ -417,6 +425,8 @@ func trimFloat(v float64, prec int) string {
 	}
 	return strconv.FormatFloat(v, 'f', prec, 64)
 }
+
+func shortest(v float64) string { return strconv.FormatFloat(v, 'g', -1, 64) }
 
 func seconds(s float64) string {
 	switch {

@@ -9,7 +9,7 @@ const style = `
 * { box-sizing: border-box; }
 body { margin: 0; background: #fff; color: #1b1b1b;
   font: 15px/1.5 system-ui, -apple-system, "Segoe UI", Roboto, "Liberation Sans", Arial, sans-serif; }
-main { max-width: 62em; margin: 0 auto; padding: 1.2em 1.2em 3em; }
+main { max-width: 70em; margin: 0 auto; padding: 1.2em 1.2em 3em; }
 header { border-bottom: 3px solid #0072b2; margin-bottom: 1em; }
 h1 { font-size: 1.55em; margin: .3em 0 .1em; line-height: 1.25; }
 .sub { color: #555; margin: 0 0 .8em; }
@@ -22,16 +22,20 @@ nav ol { margin: .3em 0; padding-left: 1.4em; columns: 2 14em; }
 .rec .chain { font-size: 1.25em; font-weight: 700; }
 code, .chain, td.chain { font-family: ui-monospace, "DejaVu Sans Mono", "Liberation Mono", Menlo, Consolas, monospace; }
 td.chain { white-space: nowrap; font-size: .92em; }
+.tag { font-family: system-ui, sans-serif; font-size: .85em; color: #8a2c00; white-space: nowrap; }
 .scroll { overflow-x: auto; -webkit-overflow-scrolling: touch; }
-table { border-collapse: collapse; margin: .4em 0 .8em; font-variant-numeric: tabular-nums; }
-th, td { padding: .28em .6em; border-bottom: 1px solid #e3e3e3; text-align: left; vertical-align: top; }
-thead th { background: #f3f3f3; border-bottom: 2px solid #999; font-weight: 600; white-space: nowrap; }
+table { border-collapse: collapse; margin: .4em 0 .8em; font-variant-numeric: tabular-nums; font-size: .93em; }
+th, td { padding: .28em .45em; border-bottom: 1px solid #e3e3e3; text-align: left; vertical-align: top; }
+thead th { background: #f3f3f3; border-bottom: 2px solid #999; font-weight: 600; vertical-align: bottom; }
+thead th.n { white-space: normal; }
 td.n, th.n { text-align: right; white-space: nowrap; }
 tr.mark td { background: #eef6fb; font-weight: 600; }
 tr.bad td { color: #8a2c00; }
 table.kv th { font-weight: 600; white-space: nowrap; padding-right: 1.2em; }
-.stages { display: grid; grid-template-columns: repeat(auto-fill, minmax(18em, 1fr)); gap: 0 1.2em; }
-.stage table { width: 100%; }
+.stages { display: grid; grid-template-columns: repeat(auto-fill, minmax(19em, 1fr)); gap: 0 1.4em; }
+.stage table { width: 100%; table-layout: fixed; }
+.stage table.kv th { white-space: normal; width: 44%; padding-right: .6em; }
+.stage td { overflow-wrap: anywhere; }
 .stage h3 { margin-bottom: .1em; }
 .files { font-size: .92em; }
 figure { margin: 1em 0 1.4em; }
@@ -81,9 +85,9 @@ const templates = `
 {{end}}</tbody></table></div>{{end}}
 
 {{define "front"}}<div class="scroll"><table>
-<thead><tr><th class="n">#</th><th>chain</th><th class="n">mult/out</th><th class="n">adds/out</th><th class="n">memory bits</th>{{if .Clock}}<th class="n">multipliers</th>{{end}}<th class="n">latency</th><th class="n">latency (out)</th><th class="n">rejection dB</th><th class="n">margin dB</th><th class="n">ripple dB</th><th>figures</th></tr></thead>
+<thead><tr><th class="n">#</th><th>chain</th><th class="n">mult/out</th><th class="n">adds/out</th><th class="n">memory bits</th>{{if .Clock}}<th class="n">multi&shy;pliers</th>{{end}}<th class="n">latency (output samples)</th><th class="n">rejection dB</th><th class="n">margin dB</th><th class="n">ripple dB</th></tr></thead>
 <tbody>
-{{range .Rows}}<tr class="{{if .Rec}}mark{{end}}{{if .Misses}} bad{{end}}"><td class="n">{{.Index}}{{if .Rec}} ★{{end}}</td><td class="chain">{{.Notation}}</td><td class="n">{{.Mult}}</td><td class="n">{{.Adds}}</td><td class="n">{{.MemBits}}</td>{{if $.Clock}}<td class="n">{{.Multipliers}}</td>{{end}}<td class="n">{{.Latency}}</td><td class="n">{{.LatOut}}</td><td class="n">{{.Rejection}}</td><td class="n">{{.Margin}}</td><td class="n">{{.Ripple}}</td><td>{{.Kind}}{{if .Rec}}, recommended{{end}}</td></tr>
+{{range .Rows}}<tr class="{{if .Rec}}mark{{end}}{{if .Misses}} bad{{end}}"><td class="n">{{.Index}}{{if .Rec}} ★{{end}}</td><td class="chain">{{.Notation}}{{if .Tag}} <span class="tag">{{.Tag}}</span>{{end}}</td><td class="n">{{.Mult}}</td><td class="n">{{.Adds}}</td><td class="n">{{.MemBits}}</td>{{if $.Clock}}<td class="n">{{.Multipliers}}</td>{{end}}<td class="n">{{.Latency}} ({{.LatOut}} out)</td><td class="n">{{.Rejection}}</td><td class="n">{{.Margin}}</td><td class="n">{{.Ripple}}</td></tr>
 {{end}}</tbody></table></div>{{end}}
 
 {{define "stages"}}<div class="stages">
@@ -125,13 +129,13 @@ const templates = `
 <section id="recommendation"><h2>Recommendation</h2>
 {{with .Rec}}<div class="rec"><p class="chain">#{{.Index}} {{.Notation}}</p>
 <p>{{.Reason}}</p>
-<p>{{.Figures.Mult}} multiplies and {{.Figures.Adds}} adds per output sample{{if $.Clock}}, {{.Figures.Multipliers}} multipliers at the clock{{end}}; {{.Figures.MemBits}} bits of memory ({{.Figures.MemWords}} words); latency {{.Figures.Latency}} ({{.Figures.LatOut}} output samples); alias rejection {{.Figures.Rejection}} dB (margin {{.Figures.Margin}} dB); passband ripple {{.Figures.Ripple}} dB; {{.Figures.Kind}}.</p></div>
+<p>{{.Figures.Mult}} multiplies and {{.Figures.Adds}} adds per output sample{{if $.Clock}} (hardware multipliers at the clock: {{.Figures.Multipliers}}){{end}}; {{.Figures.MemBits}} bits of memory ({{.Figures.MemWords}} words); latency {{.Figures.Latency}} ({{.Figures.LatOut}} output samples); alias rejection {{.Figures.Rejection}} dB (margin {{.Figures.Margin}} dB); passband ripple {{.Figures.Ripple}} dB; {{.Figures.Kind}}.</p></div>
 {{else}}<p>No chain meets the spec.</p>{{end}}
 </section>
 
 <section id="front"><h2>Pareto front</h2>
 {{if .FrontSVG}}<figure>{{.FrontSVG}}<figcaption>Multiplies per output against memory: every feasible candidate (by estimate) faint, the front coloured by alias rejection, the recommended chain ringed.</figcaption></figure>{{end}}
-<p>Chains that no other chain beats on multiplies, memory and latency at once, sorted by multiplies; ★ marks the recommendation. Figures are per final output sample.</p>
+<p>Chains that no other chain beats on multiplies, memory and latency at once, sorted by multiplies; ★ marks the recommendation. Figures are per final output sample, from real designs unless a chain is marked estimated.</p>
 {{template "front" (frontArgs .Front .Clock)}}
 </section>
 

@@ -1,0 +1,300 @@
+package htmlreport
+
+import (
+	"bytes"
+	"flag"
+	"math"
+	"os"
+	"path/filepath"
+	"regexp"
+	"strings"
+	"testing"
+
+	"stepdown/cmd/stepdown/internal/report"
+	"stepdown/cmd/stepdown/internal/specfile"
+	"stepdown/cmd/stepdown/internal/sweep"
+	"stepdown/plots"
+)
+
+// -sample DIR writes a sample report.html (and the files it links) into DIR,
+// for looking at it in a browser; .ci/browser uses it when the planner cannot
+// produce a report.
+var sampleDir = flag.String("sample", "", "write a sample plan report.html into this folder")
+
+func ip(v int) *int         { return &v }
+func fp(v float64) *float64 { return &v }
+func bp(v bool) *bool       { return &v }
+
+// sampleReport is an invented plan of the built-in example's spec with
+// invented figures: it exercises the page, not the planner.
+func sampleReport(t testing.TB) *report.Report {
+	s, err := specfile.Example()
+	if err != nil {
+		t.Fatal(err)
+	}
+	taps := func(n int) []float64 {
+		c := make([]float64, n)
+		for i := range c {
+			x := float64(i) - float64(n-1)/2
+			c[i] = 0.25 * sinc(x/4) * (0.54 + 0.46*math.Cos(math.Pi*x/float64(n)))
+		}
+		return c
+	}
+	mk := func(not string, mult, mem float64, lat float64, rej float64, designed bool) report.Chain {
+		return report.Chain{
+			Notation: not, Designed: designed, MeetsTargets: rej >= 80,
+			MultipliesPerOutput: mult, AddsPerOutput: 2*mult + 10, MemoryWords: int(mem / 18), MemoryBits: int(mem),
+			LatencyS: lat, LatencySamples: lat * 1.92e6, MultipliersAtClock: ip(int(math.Ceil(mult * 1.92e6 / 245.76e6))),
+			AliasRejectionDB: rej, RejectionMarginDB: rej - 80, WorstAliasHz: 1.3e6, PassbandRippleDB: 0.15,
+		}
+	}
+	rec := mk("cic5m1r8 > hb > fir4", 46, 5200, 21e-6, 81.2, true)
+	rec.Stages = []report.Stage{
+		{Kind: "cic", Decimation: 8, InputRateHz: 122.88e6, OutputRateHz: 15.36e6, AddsPerOutput: 360, MemoryWords: 10, MemoryBits: 310,
+			LatencyS: 0.3e-6, Multipliers: ip(0), CICOrder: 5, CICDelay: 1, RegisterBits: []int{31, 30, 29, 28, 27, 26, 25, 25, 24, 24}},
+		{Kind: "halfband", Decimation: 2, InputRateHz: 15.36e6, OutputRateHz: 7.68e6, MultipliesPerOutput: 16, AddsPerOutput: 30,
+			MemoryWords: 30, MemoryBits: 720, LatencyS: 1.9e-6, Multipliers: ip(1), Taps: 15, Coefficients: taps(15),
+			CompensatesCIC: bp(false), CoefficientBits: 18, CoefficientFrac: ip(17)},
+		{Kind: "fir", Decimation: 4, InputRateHz: 7.68e6, OutputRateHz: 1.92e6, MultipliesPerOutput: 30, AddsPerOutput: 60,
+			MemoryWords: 120, MemoryBits: 4170, LatencyS: 18.8e-6, Multipliers: ip(1), Variant: "multiband", Taps: 61,
+			Coefficients: taps(61), CompensatesCIC: bp(true), CoefficientBits: 18, CoefficientFrac: ip(18)},
+	}
+	for i := range rec.Stages {
+		st := &rec.Stages[i]
+		if st.Coefficients != nil {
+			q := make([]int64, len(st.Coefficients))
+			for j, c := range st.Coefficients {
+				q[j] = int64(math.Round(c * math.Ldexp(1, *st.CoefficientFrac)))
+			}
+			st.CoefficientInts = q
+		}
+	}
+	r := &report.Report{
+		Schema: report.Schema, Command: "plan", Caution: report.Caution, Spec: report.NewSpec(s),
+		Search: report.Search{Candidates: 1234, Feasible: 321, Designed: 40, Dropped: map[string]int{"cic rejection below target": 9}},
+		Front: []report.Chain{
+			mk("cic6m1r16 > fir4", 38, 7900, 30e-6, 80.4, true),
+			rec,
+			mk("cic4m1r4 > hb > hb > fir4 <script>", 61, 4100, 17e-6, 80.9, true),
+		},
+		Recommended: 1,
+		Reason:      "It sits at the knee of the front: cheaper chains need over 50% more memory for 17% fewer multiplies.",
+	}
+	return r
+}
+
+func sinc(x float64) float64 {
+	if x == 0 {
+		return 1
+	}
+	return math.Sin(math.Pi*x) / (math.Pi * x)
+}
+
+func svgOf(t testing.TB) func(*plots.Figure, error) []byte {
+	return func(f *plots.Figure, err error) []byte {
+		t.Helper()
+		if err != nil {
+			t.Fatal(err)
+		}
+		var b bytes.Buffer
+		if err := f.Render(&b, "svg", 0, 0); err != nil {
+			t.Fatal(err)
+		}
+		return b.Bytes()
+	}
+}
+
+func samplePage(t testing.TB) (PlanPage, []report.File) {
+	r := sampleReport(t)
+	rec := r.Front[r.Recommended]
+	var fd plots.FrontData
+	for _, c := range r.Front {
+		fd.Front = append(fd.Front, plots.Point{Multiplies: c.MultipliesPerOutput, MemoryBits: float64(c.MemoryBits), RejectionDB: c.AliasRejectionDB, Label: c.Notation})
+	}
+	fd.Recommended, fd.TargetDB = 1, 80
+	front := svgOf(t)(plots.Front(fd))
+	// A fifth-order CIC's gain (DESIGN.md §4) stands in for the cascade.
+	rd := plots.ResponseData{TargetDB: 80, PassbandHz: 480e3, OutputRateHz: 1.92e6}
+	for k := 0; k <= 2000; k++ {
+		g := 61.44e6 * float64(k) / 2000
+		rd.FreqHz = append(rd.FreqHz, g)
+		h := 1.0
+		if k > 0 {
+			h = math.Pow(math.Abs(math.Sin(math.Pi*g*8/122.88e6)/(8*math.Sin(math.Pi*g/122.88e6))), 5)
+		}
+		rd.TotalDB = append(rd.TotalDB, 20*math.Log10(math.Max(h, 1e-12)))
+	}
+	for k := 1; float64(k)*1.92e6-640e3 < 61.44e6; k++ {
+		rd.AliasBands = append(rd.AliasBands, [2]float64{float64(k)*1.92e6 - 640e3, math.Min(float64(k)*1.92e6+640e3, 61.44e6)})
+	}
+	resp := svgOf(t)(plots.Response(rd))
+	sd := plots.StagesData{}
+	for i, st := range rec.Stages {
+		sd.Names = append(sd.Names, st.Kind+string(rune('1'+i)))
+		sd.Multiplies = append(sd.Multiplies, st.MultipliesPerOutput)
+		sd.MemoryBits = append(sd.MemoryBits, float64(st.MemoryBits))
+	}
+	stages := svgOf(t)(plots.Stages(sd))
+	js, err := r.Marshal()
+	if err != nil {
+		t.Fatal(err)
+	}
+	cf, err := report.CoefficientFiles(rec)
+	if err != nil {
+		t.Fatal(err)
+	}
+	files := append([]report.File{{Name: "report.json", Data: js}, {Name: "front.svg", Data: front},
+		{Name: "response.svg", Data: resp}, {Name: "stages.svg", Data: stages}}, cf...)
+	var names []string
+	for _, f := range files {
+		names = append(names, f.Name)
+	}
+	return PlanPage{Source: "built-in example", Report: r, Front: front, Response: resp, Stages: stages, Files: append(names, "report.html")}, files
+}
+
+var (
+	externalRef = regexp.MustCompile(`(?i)(src|href|action|poster|data)\s*=\s*["']?\s*(https?:|//|ftp:|file:|ws:|wss:)`)
+	cssURL      = regexp.MustCompile(`(?i)url\(|@import`)
+)
+
+// checkSelfContained fails on anything a browser would fetch.
+func checkSelfContained(t *testing.T, page string) {
+	t.Helper()
+	if m := externalRef.FindString(page); m != "" {
+		t.Errorf("page refers outside itself: %q", m)
+	}
+	if m := cssURL.FindString(page); m != "" {
+		t.Errorf("page's styles fetch: %q", m)
+	}
+	for _, tag := range []string{"<script", "<link", "<iframe", "<img", "<object", "<embed", "<?xml", "<!-- Generated"} {
+		if strings.Contains(strings.ToLower(page), strings.ToLower(tag)) {
+			t.Errorf("page holds %s", tag)
+		}
+	}
+}
+
+func TestPlanPage(t *testing.T) {
+	p, files := samplePage(t)
+	b, err := Plan(p)
+	if err != nil {
+		t.Fatal(err)
+	}
+	page := string(b)
+	checkSelfContained(t, page)
+	for _, want := range []string{
+		"<!DOCTYPE html>", `<meta charset="utf-8">`, "@media print",
+		`id="spec"`, `id="recommendation"`, `id="front"`, `id="stages"`, `id="response"`, `id="cautions"`, `id="files"`,
+		"122.88 MHz", "cic5m1r8 &gt; hb &gt; fir4", p.Report.Reason[:20],
+		"Stage 1: CIC, decimate by 8", "Stage 2: half-band, decimate by 2", "Stage 3: FIR, decimate by 4",
+		`href="coefficients/stage3_fir.csv"`, `href="coefficients/stage3_fir.hex"`, `href="coefficients/stage2_halfband_int.csv"`,
+		"bit-true simulation", "Complex (I/Q) signal",
+	} {
+		if !strings.Contains(page, want) {
+			t.Errorf("page lacks %q", want)
+		}
+	}
+	// Three inline figures.
+	if n := strings.Count(page, "<svg"); n != 3 {
+		t.Errorf("%d inline SVGs, want 3", n)
+	}
+	// Text from the report is escaped.
+	if strings.Contains(page, "fir4 <script>") {
+		t.Error("notation not escaped")
+	}
+	// Every relative link names a file of the folder or an anchor of the page.
+	have := map[string]bool{}
+	for _, f := range files {
+		have[f.Name] = true
+	}
+	have["report.html"] = true
+	for _, m := range regexp.MustCompile(`href="([^"]*)"`).FindAllStringSubmatch(page, -1) {
+		h := m[1]
+		if strings.HasPrefix(h, "data:image/") {
+			continue // an image embedded in a figure (the front's colour key): inline, not a fetch
+		}
+		if strings.HasPrefix(h, "#") {
+			if !strings.Contains(page, `id="`+h[1:]+`"`) {
+				t.Errorf("link %s has no target", h)
+			}
+			continue
+		}
+		if !have[h] {
+			t.Errorf("link %s names no file of the folder", h)
+		}
+	}
+	b2, _ := Plan(p)
+	if !bytes.Equal(b, b2) {
+		t.Error("two runs differ")
+	}
+	if *sampleDir != "" {
+		files = append(files, report.File{Name: "report.html", Data: b})
+		for _, f := range files {
+			path := filepath.Join(*sampleDir, filepath.FromSlash(f.Name))
+			if err := os.MkdirAll(filepath.Dir(path), 0o755); err != nil {
+				t.Fatal(err)
+			}
+			if err := os.WriteFile(path, f.Data, 0o644); err != nil {
+				t.Fatal(err)
+			}
+		}
+	}
+}
+
+func TestPlanPageErrors(t *testing.T) {
+	p, _ := samplePage(t)
+	p.Front = []byte(`<svg><image href="http://example.invalid/x.png"/></svg>`)
+	if _, err := Plan(p); err == nil {
+		t.Error("no error for a figure with an external reference")
+	}
+	p, _ = samplePage(t)
+	p.Report.Recommended = 7
+	if _, err := Plan(p); err == nil {
+		t.Error("no error for a recommendation outside the front")
+	}
+	if _, err := Plan(PlanPage{}); err == nil {
+		t.Error("no error without a report")
+	}
+}
+
+func TestSweepPage(t *testing.T) {
+	r := sampleReport(t)
+	s, _ := specfile.Example()
+	v, err := sweep.ParseVary("rejection=75:85:5")
+	if err != nil {
+		t.Fatal(err)
+	}
+	rs := []sweep.Result{
+		{Value: 75, Status: sweep.OK, Report: r},
+		{Value: 80, Status: sweep.Invalid, Detail: "passband = \"700 kHz\": must not exceed protected"},
+		{Value: 85, Status: sweep.OK, Report: r},
+	}
+	doc := sweep.NewDoc(s, v, rs)
+	var fig bytes.Buffer
+	if err := sweep.Render(&fig, sweep.NewFigureData("", v, rs), "svg"); err != nil {
+		t.Fatal(err)
+	}
+	files := []string{"report.json", "sweep.csv", "sweep.svg", "sweep.png", "values/01/report.json",
+		"values/01/coefficients/stage3_fir.csv", "values/03/report.json", "report.html"}
+	b, err := Sweep(SweepPage{Source: "built-in example", Doc: doc, Figure: fig.Bytes(), Files: files})
+	if err != nil {
+		t.Fatal(err)
+	}
+	page := string(b)
+	checkSelfContained(t, page)
+	for _, want := range []string{"Trade study: rejection", "@media print", `id="summary"`, `id="value-01"`, `id="value-03"`,
+		"must not exceed protected", `href="values/01/coefficients/stage3_fir.csv"`, `href="values/03/report.json"`,
+		`href="sweep.csv"`, "bit-true simulation", "Stage 3: FIR"} {
+		if !strings.Contains(page, want) {
+			t.Errorf("sweep page lacks %q", want)
+		}
+	}
+	if strings.Contains(page, `id="value-02"`) {
+		t.Error("the invalid value has a section")
+	}
+	if strings.Count(page, "<svg") != 1 {
+		t.Error("want one inline figure")
+	}
+	if *sampleDir != "" {
+		_ = os.WriteFile(filepath.Join(*sampleDir, "sweep-report.html"), b, 0o644)
+	}
+}
