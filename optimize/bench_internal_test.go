@@ -20,6 +20,8 @@ func BenchmarkEstimateD4096(b *testing.B) {
 	for i := 0; i < b.N; i++ {
 		est := newEstimator(p, 0)
 		n, ok := 0, 0
+		sp.skipCIC = est.skipCIC
+		sp.skipped = func(_ dropCode, k int64) { n += int(k) }
 		sp.walk(func(plan []chain.StagePlan) bool {
 			n++
 			if _, d := est.score(plan); d == dropNone {
@@ -31,5 +33,34 @@ func BenchmarkEstimateD4096(b *testing.B) {
 			b.ReportMetric(float64(n), "candidates")
 			b.ReportMetric(float64(ok), "feasible")
 		}
+	}
+}
+
+// BenchmarkEstimateD2to20 is the estimate tier's share of the largest ratio
+// the limits promise (2^20 within 6 stages).
+func BenchmarkEstimateD2to20(b *testing.B) {
+	spec := rxSpec()
+	spec.OutputRate, spec.Passband = 1000, 300
+	spec.InputRate = spec.OutputRate * (1 << 20)
+	spec, err := spec.Normalize()
+	if err != nil {
+		b.Fatal(err)
+	}
+	p := newParams(spec, false)
+	sp := newSpace(&p, &Settings{})
+	for i := 0; i < b.N; i++ {
+		est := newEstimator(p, 0)
+		n, ok := 0, 0
+		sp.skipCIC = est.skipCIC
+		sp.skipped = func(_ dropCode, k int64) { n += int(k) }
+		sp.walk(func(plan []chain.StagePlan) bool {
+			n++
+			if _, d := est.score(plan); d == dropNone {
+				ok++
+			}
+			return true
+		})
+		b.ReportMetric(float64(n), "candidates")
+		b.ReportMetric(float64(ok), "feasible")
 	}
 }

@@ -44,9 +44,11 @@
 // half-band's edges do not fit, when a FIR stage is estimated under 3 taps
 // or over 2047 (too long to design within the time budget), and when a CIC
 // is beaten by another searched CIC of the same factor that needs no more
-// memory, latency, droop at fp or output width and less of one: the rest of
-// the chain being equal such a CIC gives a chain at least as cheap, on the
-// one assumption that a compensator correcting less droop is no longer.
+// memory (compared by unpruned register bits), latency, droop at fp or
+// output width and less of one: the rest of the chain being equal such a CIC
+// gives a chain at least as cheap, on the one assumption that a compensator
+// correcting less droop is no longer. Reasons that hang on the first-stage
+// CIC alone are counted for every candidate under it without walking them.
 //
 // # Design tier
 //

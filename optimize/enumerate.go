@@ -20,6 +20,14 @@ type space struct {
 	// stage of factor f with output rate at prefix p*f coincide, in which
 	// case only the multiband one is tried.
 	sameLayout func(prefix, factor int) bool
+
+	// skipCIC, when not nil, is asked about each first-stage CIC before the
+	// walk descends; a non-zero code skips every candidate under it, and
+	// skipped is told the code and how many candidates that was.
+	skipCIC func(st chain.StagePlan) dropCode
+	skipped func(code dropCode, n int64)
+
+	memo map[[2]int]int64
 }
 
 // divisors returns the divisors of n that are at least 2, ascending.
@@ -63,41 +71,35 @@ func (sp *space) choices(pos, prefix, f int) int {
 
 // count returns the number of candidates in the space, saturating at
 // math.MaxInt64/2 so that a huge space compares as huge without overflow.
-func (sp *space) count() int64 {
-	type key struct{ rem, pos int }
-	memo := map[key]int64{}
-	divs := map[int][]int{}
-	var rec func(rem, pos int) int64
-	rec = func(rem, pos int) int64 {
-		if rem == 1 {
-			return 1
-		}
-		if pos == sp.maxStages {
-			return 0
-		}
-		k := key{rem, pos}
-		if v, ok := memo[k]; ok {
-			return v
-		}
-		ds, ok := divs[rem]
-		if !ok {
-			ds = divisors(rem)
-			divs[rem] = ds
-		}
-		prefix := sp.d / rem
-		var total int64
-		for _, f := range ds {
-			c := int64(sp.choices(pos, prefix, f))
-			if c == 0 {
-				continue
-			}
-			sub := rec(rem/f, pos+1)
-			total = satAdd(total, satMul(c, sub))
-		}
-		memo[k] = total
-		return total
+func (sp *space) count() int64 { return sp.completions(sp.d, 0) }
+
+// completions is the number of ways to finish a candidate whose stages
+// before position pos leave the ratio rem.
+func (sp *space) completions(rem, pos int) int64 {
+	if rem == 1 {
+		return 1
 	}
-	return rec(sp.d, 0)
+	if pos == sp.maxStages {
+		return 0
+	}
+	if sp.memo == nil {
+		sp.memo = map[[2]int]int64{}
+	}
+	k := [2]int{rem, pos}
+	if v, ok := sp.memo[k]; ok {
+		return v
+	}
+	prefix := sp.d / rem
+	var total int64
+	for _, f := range divisors(rem) {
+		c := int64(sp.choices(pos, prefix, f))
+		if c == 0 {
+			continue
+		}
+		total = satAdd(total, satMul(c, sp.completions(rem/f, pos+1)))
+	}
+	sp.memo[k] = total
+	return total
 }
 
 const satMax = math.MaxInt64 / 2
@@ -149,6 +151,12 @@ func (sp *space) walk(visit func(plan []chain.StagePlan) bool) bool {
 				for _, n := range sp.orders {
 					for _, m := range sp.delays {
 						buf[pos] = chain.StagePlan{Kind: chain.CIC, Factor: f, CICOrder: n, CICDelay: m}
+						if sp.skipCIC != nil {
+							if code := sp.skipCIC(buf[pos]); code != dropNone {
+								sp.skipped(code, sp.completions(rem/f, pos+1))
+								continue
+							}
+						}
 						if !rec(rem/f, pos+1) {
 							return false
 						}

@@ -141,8 +141,10 @@ type estimator struct {
 	tol   float64 // relative error allowed each estimated stage
 	cache map[stageKey]stageVal
 	keys  []realKey
-	// beaten caches cicBeaten by factor, order and delay.
-	beaten map[[3]int]bool
+	// beaten and margins cache cicBeaten and cicMargin by factor, order
+	// and delay.
+	beaten  map[[3]int]bool
+	margins map[[3]int]float64
 	// orders and delays are the CIC parameters searched.
 	orders, delays []int
 	// keepBeaten turns cicBeaten off (for the exhaustive check).
@@ -153,7 +155,7 @@ func newEstimator(p params, tol float64) *estimator {
 	if tol == 0 {
 		tol = defaultTolerance
 	}
-	return &estimator{p: p, tol: tol, cache: make(map[stageKey]stageVal), beaten: map[[3]int]bool{},
+	return &estimator{p: p, tol: tol, cache: make(map[stageKey]stageVal), beaten: map[[3]int]bool{}, margins: map[[3]int]float64{},
 		orders: []int{1, 2, 3, 4, 5, 6, 7}, delays: []int{1, 2}}
 }
 
@@ -282,8 +284,7 @@ func (e *estimator) stage(k stageKey) stageVal {
 	switch chain.Kind(k.kind) {
 	case chain.CIC:
 		n, m := int(k.n), int(k.m)
-		rej := cicRejection(p, rate, f, n, m, last)
-		v.f.margin = rej - p.rejDB
+		v.f.margin = e.cicMargin(f, n, m)
 		if v.f.margin < 0 {
 			v.drop = dropCICRejection
 			return v
@@ -327,7 +328,7 @@ func (e *estimator) stage(k stageKey) stageVal {
 			return f
 		}
 		v.f = hb(kk)
-		v.lo = hb(math.Max(1, math.Floor(kk/(1+e.tol))-1))
+		v.lo = hb(math.Max(1, math.Floor(kk/(1+2*e.tol))-1))
 		v.hi = hb(math.Ceil(kk*(1+e.tol)) + 1)
 		return v
 	case chain.FIR:
@@ -354,7 +355,7 @@ func (e *estimator) stage(k stageKey) stageVal {
 			return f
 		}
 		v.f = fir(l)
-		v.lo = fir(math.Max(3, math.Floor(l/(1+e.tol))-2))
+		v.lo = fir(math.Max(3, math.Floor(l/(1+2*e.tol))-2))
 		v.hi = fir(math.Ceil(l*(1+e.tol)) + 2)
 		return v
 	}
@@ -479,16 +480,20 @@ func (e *estimator) cicBeaten(r, n, m int) bool {
 			if e.p.fp*float64(r*mm) >= e.p.f0 {
 				continue
 			}
-			v := e.stage(stageKey{prefix: 1, factor: int32(r), kind: int8(chain.CIC), n: int8(nn), m: int8(mm)})
-			if v.drop != dropNone {
+			if e.cicMargin(r, nn, mm) < 0 {
 				continue
 			}
-			w := e.p.inBits + int(math.Ceil(float64(nn)*math.Log2(float64(r*mm))))
+			full := e.p.inBits + int(math.Ceil(float64(nn)*math.Log2(float64(r*mm))))
+			w := full
 			if !last {
 				w = min(w, e.p.dataBits)
 			}
+			// Memory is compared by unpruned register bits: pruning every
+			// candidate CIC of a large factor would cost more than the search.
+			bits := float64((nn + nn*mm) * full)
+			lat := float64(nn) * float64(r*mm-1) / 2 / e.p.f0
 			droop := -math.Log(cicGain(e.p.fp, e.p.f0, r, nn, mm))
-			ok = append(ok, cfg{nn, mm, [4]float64{v.f.bits, v.f.lat, droop, float64(w)}})
+			ok = append(ok, cfg{nn, mm, [4]float64{bits, lat, droop, float64(w)}})
 		}
 	}
 	for _, a := range ok {
@@ -511,4 +516,41 @@ func (e *estimator) cicBeaten(r, n, m int) bool {
 		e.beaten[[3]int{r, a.n, a.m}] = beaten
 	}
 	return e.beaten[key]
+}
+
+// cicStage is the cached estimate of a first-stage CIC.
+func (e *estimator) cicStage(r, n, m int) stageVal {
+	k := stageKey{prefix: 1, factor: int32(r), kind: int8(chain.CIC), n: int8(n), m: int8(m)}
+	v, ok := e.cache[k]
+	if !ok {
+		v = e.stage(k)
+		e.cache[k] = v
+	}
+	return v
+}
+
+// skipCIC returns the reason to drop every candidate that starts with the
+// CIC st whatever follows it, or dropNone.
+func (e *estimator) skipCIC(st chain.StagePlan) dropCode {
+	if e.p.fp*float64(st.Factor*st.CICDelay) >= e.p.f0 {
+		return dropCICNull
+	}
+	if e.cicMargin(st.Factor, st.CICOrder, st.CICDelay) < 0 {
+		return dropCICRejection
+	}
+	if !e.keepBeaten && e.cicBeaten(st.Factor, st.CICOrder, st.CICDelay) {
+		return dropCICBeaten
+	}
+	return dropNone
+}
+
+// cicMargin is the cached rejection margin of a first-stage CIC, dB.
+func (e *estimator) cicMargin(r, n, m int) float64 {
+	k := [3]int{r, n, m}
+	if v, ok := e.margins[k]; ok {
+		return v
+	}
+	v := cicRejection(&e.p, e.p.f0, r, n, m, r == e.p.d) - e.p.rejDB
+	e.margins[k] = v
+	return v
 }

@@ -185,6 +185,11 @@ func search(ctx context.Context, p params, s *Settings, est *estimator, des desi
 	var fr frontSet
 	frontPlans := map[int][]chain.StagePlan{}
 	var drops [len(dropNames)]int
+	sp.skipCIC = est.skipCIC
+	sp.skipped = func(code dropCode, n int64) {
+		drops[code] += int(n)
+		res.Candidates += int(n)
+	}
 	feasible := 0
 	cancelled := false
 	sp.walk(func(plan []chain.StagePlan) bool {
@@ -222,6 +227,7 @@ func search(ctx context.Context, p params, s *Settings, est *estimator, des desi
 
 	// Pass 2: the same walk, now that the front is known: collect the band
 	// near the front (or everything, when exhaustive) and the thinned cloud.
+	sp.skipped = func(dropCode, int64) {}
 	var band []scored
 	byBand := func(i, j int) bool {
 		a, b := &band[i], &band[j]
@@ -248,7 +254,7 @@ func search(ctx context.Context, p params, s *Settings, est *estimator, des desi
 			band = append(band, scored{plan: clonePlan(plan), f: f})
 			return true
 		}
-		if sl := fr.slack(&f); sl < 1+tol && !est.excluded(fronts) {
+		if sl := fr.slack(&f); sl < 1+3*tol && !est.excluded(fronts) {
 			band = append(band, scored{plan: clonePlan(plan), f: f, slack: sl})
 			if len(band) >= 2*maxBand {
 				sort.Slice(band, byBand)

@@ -80,8 +80,14 @@ func (s *Settings) weights() [3]float64 {
 func kneeReason(fs []figs, u [][3]float64, k int) string {
 	const lead = "Chosen as the knee of the front, the chain nearest the ideal of the fewest multiplies, least memory and least latency at once"
 	if k == 0 {
-		return fmt.Sprintf("%s: it has the fewest multiplies per output and is within %.0f%% of the least memory and %.0f%% of the least latency on the front.",
-			lead, 100*(u[0][1]-1), 100*(u[0][2]-1))
+		near := func(u float64, what string) string {
+			if u-1 < 0.005 {
+				return "has the least " + what
+			}
+			return fmt.Sprintf("is within %.0f%% of the least %s", 100*(u-1), what)
+		}
+		return fmt.Sprintf("%s: it has the fewest multiplies per output, %s and %s on the front.",
+			lead, near(u[0][1], "memory"), near(u[0][2], "latency"))
 	}
 	c, x := fs[0], fs[k]
 	return fmt.Sprintf("%s: %s multiplies than the cheapest chain for %s memory and %s latency.",
