@@ -343,7 +343,11 @@ func printSummary(w io.Writer, j *job, rep *report.Report, files []report.File) 
 	fmt.Fprintln(w)
 	printTable(w, rep)
 	fmt.Fprintln(w)
-	if len(rep.Front) > 0 {
+	switch {
+	case len(rep.Front) == 0:
+	case rep.Command == "check":
+		fmt.Fprintf(w, "checked: %s\n  %s\n", rep.Front[0].Notation, rep.Reason)
+	default:
 		fmt.Fprintf(w, "recommended: #%d %s\n  %s\n", rep.Recommended+1, rep.Front[rep.Recommended].Notation, rep.Reason)
 	}
 	fmt.Fprintf(w, "\nwrote %s/\n", j.out.dir)
