@@ -75,7 +75,9 @@ func halfBandStage(r Requirement, s Settings, design bool) (FIRStage, error) {
 		st.Length = 4*k - 1
 		return st, nil
 	}
-	res, err := remez.MinHalfBand(r.Passband, r.InputRate, r.Dp, s.Remez)
+	res, err := withDensityRetry(s.Remez, func(rs remez.Settings) (*remez.Result, error) {
+		return remez.MinHalfBand(r.Passband, r.InputRate, r.Dp, rs)
+	})
 	if err != nil {
 		return st, fmt.Errorf("half-band design: %w", err)
 	}
@@ -136,11 +138,40 @@ func firStage(r Requirement, prev []Stage, s Settings, design bool) (FIRStage, e
 	for _, b := range r.Stopbands {
 		bands = append(bands, remez.Band{Lo: b.Lo, Hi: b.Hi, MaxError: r.Ds, Weight: 1 / r.Ds})
 	}
-	res, err := remez.MinLength(r.InputRate, bands, 0, 0, s.Remez)
+	res, err := withDensityRetry(s.Remez, func(rs remez.Settings) (*remez.Result, error) {
+		return remez.MinLength(r.InputRate, bands, 0, 0, rs)
+	})
 	if err != nil {
 		return st, fmt.Errorf("FIR design: %w", err)
 	}
 	st.Taps = res.Taps
 	st.Length = len(res.Taps)
 	return st, nil
+}
+
+// densityRetries is how many times a failed design is retried with four
+// times the grid density. Short filters on very narrow bands (an early
+// half-band keeping 10 kHz at 1.6 MHz, say) can leave the engine's grid with
+// fewer points than the filter has unknowns; a denser grid costs little for
+// them and fixes it. The first error is returned if every retry fails.
+const densityRetries = 3
+
+func withDensityRetry(rs remez.Settings, design func(remez.Settings) (*remez.Result, error)) (*remez.Result, error) {
+	res, err := design(rs)
+	if err == nil {
+		return res, nil
+	}
+	first := err
+	d := rs.Density
+	if d == 0 {
+		d = 16
+	}
+	for i := 0; i < densityRetries; i++ {
+		d *= 4
+		rs.Density = d
+		if res, err = design(rs); err == nil {
+			return res, nil
+		}
+	}
+	return nil, first
 }

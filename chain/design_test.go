@@ -173,3 +173,18 @@ func BenchmarkDesignD4096(b *testing.B) {
 		designOrSkip(b, dc.spec, dc.plan)
 	}
 }
+
+func TestDesignNarrowHalfBand(t *testing.T) {
+	// An early half-band with a tiny passband (12.5 kHz at 1.6 MHz) is a
+	// 7-tap filter whose single band is too narrow for the engine's default
+	// grid; Design retries at a denser grid (design.go).
+	sp := Spec{InputRate: 102.4e6, OutputRate: 25e3, Passband: 10e3, Protected: 12.5e3, RippleDB: 0.5, RejectionDB: 90}
+	c := designOrSkip(t, sp, "cic5m1r64 > hb > hb > hb > fir4L > fir2")
+	a, err := Analyze(c, sp)
+	if err != nil {
+		t.Fatal(err)
+	}
+	if a.PassbandRippleDB > sp.RippleDB {
+		t.Errorf("ripple %v dB over budget", a.PassbandRippleDB)
+	}
+}
