@@ -127,12 +127,10 @@ func Requirements(spec Spec, plan []StagePlan) ([]Requirement, error) {
 	uncorrected := 0.0
 	for i, p := range plan {
 		out := rate / float64(p.Factor)
-		r := Requirement{Kind: p.Kind, Factor: p.Factor, Variant: p.Variant,
+		r := Requirement{Kind: p.Kind, Factor: p.Factor,
 			InputRate: rate, OutputRate: out, Last: i == k-1, Passband: fp, Ds: ds}
 		if p.Kind == FIR {
 			r.Variant = p.Variant
-		} else {
-			r.Variant = Multiband
 		}
 		switch p.Kind {
 		case CIC:
