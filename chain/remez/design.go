@@ -24,7 +24,7 @@ const (
 	seedMin = 256
 	// Coarse grid density and tolerance of the first stage of a long design.
 	coarseDensity = 4
-	tolCoarse     = 1e-3
+	tolCoarse     = 1e-2
 )
 
 // ErrNotConverged is wrapped by the error Design returns, together with a
@@ -121,6 +121,7 @@ func (e *engine) initRef() {
 			c.initRef()
 			if _, _, err := c.run(tolCoarse, 50); err == nil && len(c.ref) == e.r+1 {
 				e.ref = append(e.ref[:0], c.ref...)
+				e.local = true
 				return
 			}
 		}
@@ -130,6 +131,7 @@ func (e *engine) initRef() {
 		n2++
 	}
 	sub := e.sibling(n2, e.density)
+	sub.onGrid = true
 	if sub.buildGrid() != nil {
 		e.uniformRef()
 		return
@@ -273,9 +275,12 @@ func (e *engine) deviations(h []float64) (dev, wdev []float64) {
 // where fn(b) = fb is at least fa and fc, by safeguarded successive
 // parabolic interpolation.
 func refineMax(fn func(float64) float64, a, b, c, fa, fb, fc float64) float64 {
+	// Near the top a step of 1e-7 of the first bracket changes the value
+	// by about 1e-14 of the lobe: stop there.
+	stop := 1e-7 * (c - a)
 	for range 8 {
 		v := vertex(a, b, c, fa, fb, fc)
-		if v == b || math.Abs(v-b) <= 1e-12*math.Abs(c-a) {
+		if v == b || math.Abs(v-b) <= stop {
 			break
 		}
 		fv := fn(v)
@@ -295,6 +300,38 @@ func refineMax(fn func(float64) float64, a, b, c, fa, fb, fc float64) float64 {
 		}
 	}
 	return b
+}
+
+// goldenMaxN is goldenMax with at most iters steps.
+func goldenMaxN(fn func(float64) float64, a, b float64, iters int) float64 {
+	const g = 0.6180339887498949
+	c, d := b-g*(b-a), a+g*(b-a)
+	fc, fd := fn(c), fn(d)
+	a0, b0 := a, b
+	fa, fb := fn(a), fn(b)
+	for range iters {
+		if fc >= fd {
+			b, d, fd = d, c, fc
+			c = b - g*(b-a)
+			fc = fn(c)
+		} else {
+			a, c, fc = c, d, fd
+			d = a + g*(b-a)
+			fd = fn(d)
+		}
+	}
+	// The maximum may sit on an end (a band edge).
+	best, fbest := c, fc
+	if fd > fbest {
+		best, fbest = d, fd
+	}
+	if fa > fbest {
+		best, fbest = a0, fa
+	}
+	if fb > fbest {
+		best = b0
+	}
+	return best
 }
 
 // goldenMax returns an abscissa of the maximum of fn on [a, b], assumed

@@ -6,7 +6,9 @@ import (
 	"math"
 	"os"
 	"runtime"
+	"sort"
 	"sync"
+	"sync/atomic"
 )
 
 // point is a frequency of the dense grid or of a reference, with what the
@@ -67,6 +69,8 @@ func (b *nband) wt(f float64) float64 {
 // engine holds one design's grid, reference and work space.
 var debugRemez = os.Getenv("REMEZ_DEBUG") != ""
 
+var workCount atomic.Int64
+
 type engine struct {
 	n, r     int // taps, basis functions (reference has r+1 points)
 	type2    bool
@@ -74,6 +78,8 @@ type engine struct {
 	density  int
 	maxIter  int
 	gridOnly bool
+	onGrid   bool // keep extrema on grid points (seed designs)
+	local    bool // start with grid-free local steps (seeded reference)
 	bands    []nband
 	grid     []point
 	bstart   []int // grid[bstart[b]:bstart[b+1]] is band b
@@ -87,12 +93,15 @@ type engine struct {
 	mant          []float64
 	expo          []int
 
-	cand  []point // candidate extrema
-	tmp   []point
-	best  []point
-	prevF []float64
-	emax  int // scale of lam: true weights are lam * 2^(emax+m-1)
-	q     int // the reference point left out of the interpolation
+	cand       []point // candidate extrema
+	cidx       []int32 // their grid indices, -1 at band edges
+	ry, rz     []float64
+	mid, lefts []float64
+	tmp        []point
+	best       []point
+	prevF      []float64
+	emax       int // scale of lam: true weights are lam * 2^(emax+m-1)
+	q          int // the reference point left out of the interpolation
 }
 
 // bary1 evaluates the levelled polynomial at normalised frequency f by the
@@ -122,7 +131,7 @@ func (e *engine) bary1(f float64) float64 {
 		sum += e.mu[k] * e.c[k] / d
 		k++
 	}
-	return math.Ldexp(prod*sum, ex+e.emax+len(e.ref)-1)
+	return math.Ldexp(prod*sum, ex+e.emax)
 }
 
 // mkpoint fills a point at normalised frequency f in band b.
@@ -386,29 +395,41 @@ func (e *engine) level() error {
 		e.expo = make([]int, m)
 	}
 	e.expo = e.expo[:m]
-	emax := math.MinInt
+	e.ry = grow(e.ry, m)
+	e.rz = grow(e.rz, m)
 	for i := range m {
-		pi := &e.ref[i]
-		prod := 1.0
-		ex := 0
-		cnt := 0
-		for j := range m {
-			if j == i {
+		e.ry[i], e.rz[i] = e.ref[i].y, e.ref[i].z
+	}
+	// x falls as the index rises; for point i the differences use y
+	// (accurate near x = 1) while x_i + x_j >= 0, z (near x = -1) after.
+	parallel(m, m*m, func(lo, hi int) {
+		for i := lo; i < hi; i++ {
+			xi := e.ref[i].x
+			p := sort.Search(m, func(j int) bool { return e.ref[j].x+xi < 0 })
+			prod, ex := 1.0, 0
+			yi, zi := e.ry[i], e.rz[i]
+			if i < p {
+				prod, ex = prodY(e.ry[:i], yi, prod, ex)
+				prod, ex = prodY(e.ry[i+1:p], yi, prod, ex)
+				prod, ex = prodZ(e.rz[p:], zi, prod, ex)
+			} else {
+				prod, ex = prodY(e.ry[:p], yi, prod, ex)
+				prod, ex = prodZ(e.rz[p:i], zi, prod, ex)
+				prod, ex = prodZ(e.rz[i+1:], zi, prod, ex)
+			}
+			if prod == 0 || math.IsNaN(prod) || math.IsInf(prod, 0) {
+				e.mant[i] = math.NaN()
 				continue
 			}
-			prod *= 2 * xdiff(pi, &e.ref[j])
-			cnt++
-			if cnt&7 == 0 {
-				fr, x := math.Frexp(prod)
-				prod, ex = fr, ex+x
-			}
+			e.mant[i] = 1 / prod
+			e.expo[i] = -ex
 		}
-		fr, x := math.Frexp(prod)
-		if fr == 0 || math.IsNaN(fr) || math.IsInf(fr, 0) {
+	})
+	emax := math.MinInt
+	for i := range m {
+		if math.IsNaN(e.mant[i]) {
 			return errors.New("remez: reference points coincide (numerical breakdown)")
 		}
-		e.mant[i] = 1 / fr
-		e.expo[i] = -(ex + x)
 		emax = max(emax, e.expo[i])
 	}
 	for i := range m {
@@ -469,6 +490,56 @@ func (e *engine) level() error {
 	return nil
 }
 
+// prodY multiplies prod (mantissa, exponent ex) by 2 (y_j - yi) over ys,
+// renormalising every 16 factors, which cannot leave the range of normal
+// numbers (each factor is at most 4 and only near neighbours are small).
+func prodY(ys []float64, yi, prod float64, ex int) (float64, int) {
+	for k, v := range ys {
+		prod *= 2 * (v - yi)
+		if k&15 == 15 {
+			fr, x := math.Frexp(prod)
+			prod, ex = fr, ex+x
+		}
+	}
+	fr, x := math.Frexp(prod)
+	return fr, ex + x
+}
+
+// prodZ is prodY for the factors 2 (zi - z_j).
+func prodZ(zs []float64, zi, prod float64, ex int) (float64, int) {
+	for k, v := range zs {
+		prod *= 2 * (zi - v)
+		if k&15 == 15 {
+			fr, x := math.Frexp(prod)
+			prod, ex = fr, ex+x
+		}
+	}
+	fr, x := math.Frexp(prod)
+	return fr, ex + x
+}
+
+// parallel runs fn over [0, n) in contiguous chunks, one per processor,
+// when the work (cost, in inner-loop steps) is worth it. Callers write
+// only to their own indices, so results do not depend on the split.
+func parallel(n, cost int, fn func(lo, hi int)) {
+	nw := runtime.GOMAXPROCS(0)
+	if cost < 1<<17 || nw < 2 || n < 2 {
+		fn(0, n)
+		return
+	}
+	nw = min(nw, n)
+	chunk := (n + nw - 1) / nw
+	var wg sync.WaitGroup
+	for lo := 0; lo < n; lo += chunk {
+		wg.Add(1)
+		go func(lo, hi int) {
+			defer wg.Done()
+			fn(lo, hi)
+		}(lo, min(lo+chunk, n))
+	}
+	wg.Wait()
+}
+
 func grow(s []float64, n int) []float64 {
 	if cap(s) < n {
 		return make([]float64, n)
@@ -481,6 +552,9 @@ func grow(s []float64, n int) []float64 {
 // differences are at least ~1e-12 apart, so their products stay normal).
 func bary(x float64, xr, mu, c []float64) float64 {
 	n := len(xr)
+	if debugRemez {
+		workCount.Add(int64(n))
+	}
 	mu = mu[:n]
 	c = c[:n]
 	var n0, d0, n1, d1 float64
@@ -528,28 +602,11 @@ func (e *engine) errAt(p *point) float64 {
 // evalGrid sets e on every grid point. Points are independent, so the
 // split over goroutines cannot change any result.
 func (e *engine) evalGrid() {
-	ng := len(e.grid)
-	work := ng * len(e.xr)
-	nw := runtime.GOMAXPROCS(0)
-	if work < 1<<18 || nw < 2 {
-		for i := range e.grid {
+	parallel(len(e.grid), len(e.grid)*len(e.xr), func(lo, hi int) {
+		for i := lo; i < hi; i++ {
 			e.grid[i].e = e.errAt(&e.grid[i])
 		}
-		return
-	}
-	chunk := (ng + nw - 1) / nw
-	var wg sync.WaitGroup
-	for lo := 0; lo < ng; lo += chunk {
-		hi := min(lo+chunk, ng)
-		wg.Add(1)
-		go func(lo, hi int) {
-			defer wg.Done()
-			for i := lo; i < hi; i++ {
-				e.grid[i].e = e.errAt(&e.grid[i])
-			}
-		}(lo, hi)
-	}
-	wg.Wait()
+	})
 }
 
 // vertex returns the abscissa of the parabola's vertex through (a, fa),
@@ -575,23 +632,42 @@ func vertex(a, b, c, fa, fb, fc float64) float64 {
 // points, as beside a band edge).
 func (e *engine) extrema(full bool) float64 {
 	e.cand = e.cand[:0]
-	maxErr := 0.0
+	e.cidx = e.cidx[:0]
 	for b := range e.bands {
 		g := e.grid[e.bstart[b]:e.bstart[b+1]]
 		for i := range g {
-			p := g[i]
+			p := &g[i]
 			if i > 0 && i < len(g)-1 {
 				l, r := g[i-1].e, g[i+1].e
 				if !((p.e > 0 && p.e >= l && p.e >= r) || (p.e < 0 && p.e <= l && p.e <= r)) {
 					continue
 				}
-				if !e.gridOnly {
-					p = e.refine(p, b, g[i-1].f, g[i+1].f, l, r, full)
-				}
+				e.cidx = append(e.cidx, int32(e.bstart[b]+i))
+			} else {
+				e.cidx = append(e.cidx, -1)
 			}
-			e.cand = append(e.cand, p)
-			maxErr = math.Max(maxErr, math.Abs(p.e))
+			e.cand = append(e.cand, *p)
 		}
+	}
+	if !e.gridOnly && !e.onGrid {
+		evals := 1
+		if full {
+			evals = 8
+		}
+		parallel(len(e.cand), evals*len(e.cand)*len(e.xr), func(lo, hi int) {
+			for k := lo; k < hi; k++ {
+				gi := e.cidx[k]
+				if gi < 0 {
+					continue
+				}
+				a, c := &e.grid[gi-1], &e.grid[gi+1]
+				e.cand[k] = e.refine(e.cand[k], e.cand[k].band, a.f, c.f, a.e, c.e, full)
+			}
+		})
+	}
+	maxErr := 0.0
+	for k := range e.cand {
+		maxErr = math.Max(maxErr, math.Abs(e.cand[k].e))
 	}
 	return maxErr
 }
@@ -704,6 +780,89 @@ func (e *engine) exchange() error {
 	return nil
 }
 
+// localStep replaces every reference point by the extremum of the current
+// error in its own lobe, bracketed by the midpoints to its neighbours (or
+// the band edges), and returns the relative gap of the new points over
+// delta. It reports false, leaving the reference alone, when a bracket
+// does not hold an extremum of the expected sign (the structure has to
+// change: only the grid search can do that).
+func (e *engine) localStep() (float64, bool) {
+	m := len(e.ref)
+	e.tmp = append(e.tmp[:0], e.ref...)
+	e.mid = grow(e.mid, m)
+	ad := math.Abs(e.delta)
+	// e.mid[i] holds s_i E at the left end of point i's bracket.
+	lefts := grow(e.lefts, m)
+	e.lefts = lefts
+	bad := atomic.Bool{}
+	parallel(m, 6*m*len(e.xr), func(lo, hi int) {
+		for i := lo; i < hi; i++ {
+			p := e.ref[i]
+			bd := &e.bands[p.band]
+			s := 1.0
+			if i%2 == 1 {
+				s = -1
+			}
+			if e.delta < 0 {
+				s = -s
+			}
+			a, c := bd.lo, bd.hi
+			if i > 0 && e.ref[i-1].band == p.band {
+				a = 0.5 * (e.ref[i-1].f + p.f)
+			}
+			if i+1 < m && e.ref[i+1].band == p.band {
+				c = 0.5 * (p.f + e.ref[i+1].f)
+			}
+			fn := func(f float64) float64 {
+				q := e.mkpoint(f, p.band)
+				return s * e.errAt(&q)
+			}
+			var v float64
+			h := 0.5 / float64(e.density*e.r) // a grid spacing
+			switch {
+			case p.f <= a || p.f >= c:
+				v = goldenMaxN(fn, a, c, 30)
+			default:
+				// A parabola models the lobe's top well over one grid
+				// spacing either side; the whole lobe is the fallback.
+				l, r := math.Max(a, p.f-h), math.Min(c, p.f+h)
+				fl, fr := fn(l), fn(r)
+				if fl <= ad && fr <= ad {
+					v = refineMax(fn, l, p.f, r, fl, ad, fr)
+					break
+				}
+				fa, fc := fn(a), fn(c)
+				if fa > ad || fc > ad {
+					bad.Store(true)
+					continue
+				}
+				v = refineMax(fn, a, p.f, c, fa, ad, fc)
+			}
+			q := e.mkpoint(v, p.band)
+			q.e = e.errAt(&q)
+			if s*q.e < ad {
+				q = p
+				q.e = s * ad
+			}
+			e.tmp[i] = q
+		}
+	})
+	if bad.Load() {
+		return math.Inf(1), false
+	}
+	maxErr := 0.0
+	for i := 1; i < m; i++ {
+		if !(e.tmp[i].f > e.tmp[i-1].f) {
+			return math.Inf(1), false
+		}
+	}
+	for i := range m {
+		maxErr = math.Max(maxErr, math.Abs(e.tmp[i].e))
+	}
+	e.ref, e.tmp = e.tmp, e.ref
+	return (maxErr - ad) / ad, true
+}
+
 // run iterates the exchange from the current reference until the largest
 // error exceeds the levelled deviation by at most tol (relative). It
 // returns the iteration count and whether it converged. On failure the
@@ -714,6 +873,23 @@ func (e *engine) run(tol float64, maxIter int) (int, bool, error) {
 	it := 0
 	conv := false
 	full := false
+	// A reference seeded from a converged coarse design has the right
+	// structure: move each point to its lobe's extremum without the grid
+	// (a few evaluations per point instead of Density), then confirm on
+	// the whole grid below.
+	for e.local && it < maxIter {
+		if err = e.level(); err != nil {
+			return it, false, err
+		}
+		it++
+		gap, ok := e.localStep()
+		if debugRemez {
+			fmt.Printf("n=%d local it=%d delta=%.10g gap=%.3g ok=%v\n", e.n, it, e.delta, gap, ok)
+		}
+		if !ok || gap <= tol {
+			break
+		}
+	}
 	for it < maxIter {
 		it++
 		if err = e.level(); err != nil {
@@ -728,7 +904,7 @@ func (e *engine) run(tol float64, maxIter int) (int, bool, error) {
 		}
 		// Confirm an apparent convergence with fully refined extrema;
 		// from then on every iteration refines fully.
-		if gap <= tol && !full && !e.gridOnly {
+		if gap <= tol && !full && !e.gridOnly && tol < 1e-4 {
 			full = true
 			maxErr = e.extrema(true)
 			gap = (maxErr - ad) / ad
@@ -762,6 +938,10 @@ func (e *engine) run(tol float64, maxIter int) (int, bool, error) {
 			conv = gap <= tolFixed
 			break
 		}
+	}
+	if debugRemez {
+		r := float64(e.r)
+		fmt.Printf("RUN n=%d density=%d it=%d work/r^2 so far %.1f\n", e.n, e.density, it, float64(workCount.Load())/(r*r))
 	}
 	if !conv && len(e.best) > 0 {
 		e.ref = append(e.ref[:0], e.best...)
