@@ -6,6 +6,8 @@ import (
 	"math"
 	"sort"
 
+	"gonum.org/v1/gonum/dsp/fourier"
+
 	"stepdown/chain/remez"
 )
 
@@ -133,12 +135,29 @@ func maximizeBands(f func(float64) float64, bands []Interval, per func(Interval)
 		if i >= 16 || cd.v < best*win {
 			break
 		}
-		x, v := golden(f, math.Max(cd.lo, cd.x-cd.h), math.Min(cd.hi, cd.x+cd.h), 1)
+		x, v := refine(f, cd.x, cd.h, cd.lo, cd.hi, 1)
 		if v > bv {
 			bx, bv = x, v
 		}
 	}
 	return bx, bv
+}
+
+// refine maximises sign*f near the grid extremum x by golden-section search
+// on [x-h, x+h] within [lo, hi]. On a very flat peak the grid's extremum can
+// sit more than a step from the true one; when the search ends on an inner
+// end of its window, the window moves there and the search goes on.
+func refine(f func(float64) float64, x, h, lo, hi, sign float64) (float64, float64) {
+	var v float64
+	for try := 0; try < 8; try++ {
+		a, b := math.Max(lo, x-h), math.Min(hi, x+h)
+		x, v = golden(f, a, b, sign)
+		tol := 1e-6 * h
+		if !(x-a < tol && a > lo) && !(b-x < tol && b < hi) {
+			break
+		}
+	}
+	return x, v
 }
 
 // golden maximises sign*f on [a, b] by golden-section search and returns the
@@ -190,7 +209,7 @@ func (g *stageGrid) initBlocks() {
 	for b := range g.blockMax {
 		m := 0.0
 		for _, v := range g.mag[b*gridBlock : min(len(g.mag), (b+1)*gridBlock)] {
-			m = math.Max(m, v)
+			m = math.Max(m, math.Abs(v))
 		}
 		g.blockMax[b] = m
 	}
@@ -207,7 +226,7 @@ func (g *stageGrid) rangeMax(a, b float64) float64 {
 			i0 += gridBlock
 			continue
 		}
-		m = math.Max(m, g.mag[i0])
+		m = math.Max(m, math.Abs(g.mag[i0]))
 		i0++
 	}
 	return m
@@ -260,16 +279,31 @@ func newStageGrid(s Stage, rate float64) stageGrid {
 	g.rate = rate
 	switch st := s.(type) {
 	case CICStage:
-		g.n = nextPow2(max(64, gridPointsPerTap*st.R*st.M))
+		// The signed response r^N, r = sin(pi x R M)/(R M sin(pi x)), is
+		// smooth through its zeros, where |r|^N has cusps.
+		g.n = nextPow2(max(minGridPoints, gridPointsPerTap*st.R*st.M))
 		g.mag = make([]float64, g.n+1)
 		g.step = rate / 2 / float64(g.n)
+		rm := float64(st.R * st.M)
 		for i := range g.mag {
-			g.mag[i] = st.Gain(float64(i)*g.step, rate)
+			x := float64(i) * g.step / rate
+			r := 1.0
+			if i > 0 {
+				r = math.Sin(math.Pi*math.Mod(x*rm, 2)) / (rm * math.Sin(math.Pi*x))
+			}
+			g.mag[i] = math.Pow(math.Abs(r), float64(st.N))
+			if r < 0 && st.N%2 == 1 {
+				g.mag[i] = -g.mag[i]
+			}
 		}
 	case FIRStage:
-		g.n = nextPow2(max(64, gridPointsPerTap*len(st.Taps)))
-		g.mag = remez.NewSpectrum(g.n+1).Magnitude(make([]float64, g.n+1), st.Taps)
+		g.n = nextPow2(max(minGridPoints, gridPointsPerTap*len(st.Taps)))
 		g.step = rate / 2 / float64(g.n)
+		if symmetric(st.Taps) {
+			g.mag = amplitudeGrid(st.Taps, g.n)
+		} else {
+			g.mag = remez.NewSpectrum(g.n+1).Magnitude(make([]float64, g.n+1), st.Taps)
+		}
 	default:
 		g.n = 1 << 12
 		g.mag = make([]float64, g.n+1)
@@ -280,6 +314,43 @@ func newStageGrid(s Stage, rate float64) stageGrid {
 	}
 	g.initBlocks()
 	return g
+}
+
+// minGridPoints keeps short filters' grids fine enough that a cascade's peak
+// found on them lies within a scan step of the true one.
+const minGridPoints = 1024
+
+func symmetric(h []float64) bool {
+	n := len(h)
+	scale := 0.0
+	for _, v := range h {
+		scale = math.Max(scale, math.Abs(v))
+	}
+	for i := 0; i < n/2; i++ {
+		if math.Abs(h[i]-h[n-1-i]) > 1e-12*scale {
+			return false
+		}
+	}
+	return true
+}
+
+// amplitudeGrid returns the zero-phase amplitude A(f_k) = Re(e^(j w c) H(e^(j w))),
+// c = (N-1)/2, of the symmetric filter h at f_k = k rate/(2n), k = 0..n, by
+// one real FFT of length 2n >= N. Unlike |H| it is smooth through the
+// stopband's zeros, so interpolating it is accurate there too.
+func amplitudeGrid(h []float64, n int) []float64 {
+	l := 2 * n
+	seq := make([]float64, l)
+	copy(seq, h)
+	coef := fourier.NewFFT(l).Coefficients(nil, seq)
+	c := float64(len(h)-1) / 2
+	out := make([]float64, n+1)
+	for k := range out {
+		w := math.Pi * float64(k) / float64(n)
+		sn, cs := math.Sincos(w * c)
+		out[k] = real(coef[k])*cs - imag(coef[k])*sn
+	}
+	return out
 }
 
 type extremum struct{ x, v float64 }
@@ -342,7 +413,7 @@ func (sc *scanner) band(lo, hi float64, sign float64, visit func(x, v float64)) 
 				t := u - float64(k)
 				p *= g.mag[k] + t*(g.mag[k+1]-g.mag[k])
 			}
-			v = sign * p
+			v = sign * math.Abs(p)
 		}
 		if j >= 1 && prev1 >= prev2 && prev1 >= v {
 			visit(lo+float64(j-1)*hb, sign*prev1)
@@ -417,7 +488,7 @@ func measure(c *Chain, spec Spec, sc *scanner) Analysis {
 		if i >= maxCandidates || cd.v < best*win {
 			break
 		}
-		x, v := golden(c.Gain, math.Max(cd.lo, cd.x-cd.h), math.Min(cd.hi, cd.x+cd.h), 1)
+		x, v := refine(c.Gain, cd.x, cd.h, cd.lo, cd.hi, 1)
 		if v > worstV {
 			worstX, worstV = x, v
 		}
@@ -442,7 +513,7 @@ func refineExtrema(c *Chain, sc *scanner, fp, sign float64) float64 {
 		if i >= maxCandidates {
 			break
 		}
-		_, v := golden(c.Gain, math.Max(0, e.x-hb), math.Min(fp, e.x+hb), sign)
+		_, v := refine(c.Gain, e.x, hb, 0, fp, sign)
 		if sign*v > sign*best {
 			best = v
 		}

@@ -61,3 +61,27 @@ func ExampleRun() {
 	fmt.Println(chain.Run(c, []float64{1, 1, 1, 1, 1, 1, 1, 1}))
 	// Output: [0.25 0.75 1 1]
 }
+
+func ExampleDesign() {
+	// The same invented scenario, designed for real and measured.
+	spec := chain.Spec{InputRate: 61.44e6, OutputRate: 240e3, Passband: 96e3,
+		RippleDB: 0.2, RejectionDB: 85}
+	plan, _ := chain.ParseNotation("cic5m1r32 > hb > hb > fir2")
+	c, err := chain.Design(spec, plan, chain.Settings{})
+	if err != nil {
+		fmt.Println(err)
+		return
+	}
+	a, err := chain.Analyze(c, spec)
+	if err != nil {
+		fmt.Println(err)
+		return
+	}
+	fmt.Println("designed:", c.Designed)
+	fmt.Println("ripple within budget:", a.PassbandRippleDB <= spec.RippleDB)
+	fmt.Println("the last stage corrects the CIC:", c.Stages[3].(chain.FIRStage).CompensatesCIC)
+	// Output:
+	// designed: true
+	// ripple within budget: true
+	// the last stage corrects the CIC: true
+}
