@@ -75,19 +75,7 @@ func estimateAnalysis(c *Chain, spec Spec) (Analysis, error) {
 		var rej, worst float64
 		switch st := c.Stages[i].(type) {
 		case CICStage:
-			f := func(x float64) float64 { return st.Gain(x, r.InputRate) }
-			// 16 points per lobe of width F1/M (the CIC's nulls are at
-			// multiples of its output rate over M).
-			per := func(b Interval) int {
-				return 16 * (int(math.Ceil((b.Hi-b.Lo)*float64(st.M)/r.OutputRate)) + 1)
-			}
-			// |H| <= (R M sin(pi f/F))^-N, so a band whose lower edge already
-			// bounds it below the best so far is skipped.
-			bound := func(b Interval) float64 {
-				return math.Pow(float64(st.R*st.M)*math.Sin(math.Pi*b.Lo/r.InputRate), -float64(st.N))
-			}
-			at, g := maximizeBands(f, r.Stopbands, per, bound)
-			rej, worst = -toDB(g), at
+			rej, worst = st.RejectionDB(r.Stopbands, r.InputRate)
 			a.PassbandRippleDB += r.UncorrectedDroopDB
 		default:
 			rej, worst = -toDB(r.Ds), r.Stopbands[0].Lo

@@ -181,3 +181,22 @@ func (c CICStage) DroopDB(fp, rate float64) (float64, bool) {
 	// Inside the main lobe the response falls monotonically from 1.
 	return -20 * math.Log10(c.Gain(fp, rate)), true
 }
+
+// RejectionDB returns the CIC's rejection -20 log10 max|H| over bands (Hz
+// at its input rate rate, within [0, rate/2]; Requirement.Stopbands of a CIC
+// stage are its alias bands) and the frequency of the maximum. Each band is
+// sampled at 16 points per lobe (nulls every output rate over M) and the
+// best peaks are refined; bands that |H| <= (R M sin(pi f/rate))^-N shows
+// cannot matter are skipped.
+func (c CICStage) RejectionDB(bands []Interval, rate float64) (db, worstHz float64) {
+	f := func(x float64) float64 { return c.Gain(x, rate) }
+	out := rate / float64(c.R)
+	per := func(b Interval) int {
+		return 16 * (int(math.Ceil((b.Hi-b.Lo)*float64(c.M)/out)) + 1)
+	}
+	bound := func(b Interval) float64 {
+		return math.Pow(float64(c.R*c.M)*math.Sin(math.Pi*b.Lo/rate), -float64(c.N))
+	}
+	at, g := maximizeBands(f, bands, per, bound)
+	return -toDB(g), at
+}

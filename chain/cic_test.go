@@ -183,3 +183,33 @@ func TestRunCICMatchesEquivalentFIR(t *testing.T) {
 		}
 	}
 }
+
+func TestCICRejection(t *testing.T) {
+	// Rejection on the alias bands against a dense direct grid; for M = 1 the
+	// worst point is the first band's lower edge F1 - fa (main lobe falling
+	// monotonically, DESIGN §4 formula), for M = 2 a sidelobe peak inside.
+	const rate = 32e6
+	for _, tc := range []struct{ n, m, r int }{{4, 1, 16}, {3, 2, 16}, {5, 2, 8}} {
+		st := CICStage{N: tc.n, M: tc.m, R: tc.r}
+		out := rate / float64(tc.r)
+		fa := 0.45 * out
+		bands := aliasBands(out, rate, fa, false, 0)
+		db, at := st.RejectionDB(bands, rate)
+		best, bestAt := 0.0, 0.0
+		for _, b := range bands {
+			for i := 0; i <= 200000; i++ {
+				x := b.Lo + (b.Hi-b.Lo)*float64(i)/200000
+				if v := st.Gain(x, rate); v > best {
+					best, bestAt = v, x
+				}
+			}
+		}
+		want := -20 * math.Log10(best)
+		if db > want+1e-9 || db < want-0.001 {
+			t.Errorf("N=%d M=%d R=%d: %.5f dB at %v, dense grid %.5f dB at %v", tc.n, tc.m, tc.r, db, at, want, bestAt)
+		}
+		if tc.m == 1 && math.Abs(at-(out-fa)) > 1e-6*out {
+			t.Errorf("N=%d M=1: worst at %v, want the band edge %v", tc.n, at, out-fa)
+		}
+	}
+}
