@@ -214,3 +214,44 @@ func TestDesignedAgainstDenseGrid(t *testing.T) {
 		}
 	}
 }
+
+// FuzzEstimate: any parsable plan against a valid spec either estimates to a
+// chain whose estimated analysis has no NaN or gives an error; never a panic.
+func FuzzEstimate(f *testing.F) {
+	f.Add("cic5m1r16 > hb > fir8", 0.2, 0.3, 0.9, 0.1, 80.0)
+	f.Add("fir4 > hb > hb", 0.4, 0.5, 1.0, 1.0, 60.0)
+	f.Add("cic3m2r4 > fir2L", 0.1, 0.1, 0.5, 3.0, 150.0)
+	f.Fuzz(func(t *testing.T, notation string, pf, af, sf, rip, rej float64) {
+		plan, err := ParseNotation(notation)
+		if err != nil || len(plan) > 6 {
+			return
+		}
+		d := 1
+		for _, p := range plan {
+			d *= p.Factor
+			if d > 1<<16 {
+				return
+			}
+		}
+		fk := 1e3
+		fp := pf * fk / 2
+		fa := fp + af*(fk/2-fp)
+		fs := fp + sf*(fk-fa-fp)
+		sp := Spec{InputRate: fk * float64(d), OutputRate: fk, Passband: fp, Protected: fa, Stopband: fs, RippleDB: rip, RejectionDB: rej}
+		if _, err := sp.Normalize(); err != nil {
+			return
+		}
+		c, err := Estimate(sp, plan, Settings{})
+		if err != nil {
+			return
+		}
+		a, err := Analyze(c, sp)
+		if err != nil {
+			t.Fatalf("%s: Analyze of an estimate: %v", notation, err)
+		}
+		if math.IsNaN(a.AliasRejectionDB) || math.IsNaN(a.PassbandRippleDB) || math.IsNaN(a.WorstAliasHz) ||
+			math.IsInf(a.AliasRejectionDB, 0) || math.IsInf(a.PassbandRippleDB, 0) {
+			t.Fatalf("%s %+v: %+v", notation, sp, a)
+		}
+	})
+}
