@@ -21,7 +21,7 @@ const (
 	tolSeed = 1e-2
 	// References of at most this many points start evenly spread; longer
 	// ones are scaled from a design of about half the length.
-	seedMin = 256
+	seedMin = 64
 	// Coarse grid density and tolerance of the first stage of a long design.
 	coarseDensity = 4
 	tolCoarse     = 1e-2
@@ -227,7 +227,15 @@ func (e *engine) deviations(h []float64) (dev, wdev []float64) {
 	nb := len(e.bands)
 	dev = make([]float64, nb)
 	wdev = make([]float64, nb)
+	slow := make([]bool, nb)
 	for b := range nb {
+		slow[b] = e.gridOnly || e.bands[b].weightFn != nil
+	}
+	e.fastDeviations(h, dev, wdev, slow)
+	for b := range nb {
+		if !slow[b] {
+			continue
+		}
 		bd := &e.bands[b]
 		g := e.grid[e.bstart[b]:e.bstart[b+1]]
 		// Signed unweighted error D - A (the weight is positive).
@@ -269,6 +277,57 @@ func (e *engine) deviations(h []float64) (dev, wdev []float64) {
 		}
 	}
 	return dev, wdev
+}
+
+// fastDeviations measures the bands not marked slow at the points where
+// the final error has its maxima: the reference (each point on its lobe's
+// top after the last local step or exchange), the candidate extrema of the
+// last grid pass (refined unless inside a reference lobe) and the band
+// edges. With a constant weight the weighted and unweighted errors peak at
+// the same places, so no further search is needed.
+func (e *engine) fastDeviations(h []float64, dev, wdev []float64, slow []bool) {
+	pts := e.meas[:0]
+	for _, p := range e.ref {
+		if !slow[p.band] {
+			pts = append(pts, p)
+		}
+	}
+	for _, p := range e.cand {
+		if !slow[p.band] {
+			pts = append(pts, p)
+		}
+	}
+	for b := range e.bands {
+		if !slow[b] {
+			g := e.grid[e.bstart[b]:e.bstart[b+1]]
+			pts = append(pts, g[0], g[len(g)-1])
+		}
+	}
+	e.meas = pts
+	vals := grow(e.measV, len(pts))
+	e.measV = vals
+	parallel(len(pts), len(pts)*len(h)/2, func(lo, hi int) {
+		for i := lo; i < hi; i++ {
+			bd := &e.bands[pts[i].band]
+			vals[i] = math.Abs(Amplitude(h, pts[i].f, 1) - bd.desired(pts[i].f))
+		}
+	})
+	for i, p := range pts {
+		dev[p.band] = math.Max(dev[p.band], vals[i])
+		wdev[p.band] = dev[p.band]
+	}
+	// A type II response is zero at rate/2, off the grid: search the last
+	// lobe up to rate/2 on h itself.
+	nb := len(e.bands)
+	if bd := &e.bands[nb-1]; e.type2 && !slow[nb-1] {
+		g := e.grid[e.bstart[nb-1]:e.bstart[nb]]
+		if last := len(g) - 1; bd.hi > g[last].f && last >= 1 {
+			fa := func(f float64) float64 { return math.Abs(Amplitude(h, f, 1) - bd.desired(f)) }
+			f := goldenMax(fa, g[last-1].f, bd.hi)
+			dev[nb-1] = math.Max(dev[nb-1], fa(f))
+			wdev[nb-1] = dev[nb-1]
+		}
+	}
 }
 
 // refineMax returns an abscissa of a local maximum of fn in (a, c) near b,

@@ -97,11 +97,14 @@ type engine struct {
 	cidx       []int32 // their grid indices, -1 at band edges
 	ry, rz     []float64
 	mid, lefts []float64
+	meas       []point
+	measV      []float64
 	tmp        []point
 	best       []point
 	prevF      []float64
-	emax       int // scale of lam: true weights are lam * 2^(emax+m-1)
-	q          int // the reference point left out of the interpolation
+	emax       int     // scale of lam: true weights are lam * 2^(emax+m-1)
+	q          int     // the reference point left out of the interpolation
+	localGap   float64 // gap of the last local step
 }
 
 // bary1 evaluates the levelled polynomial at normalised frequency f by the
@@ -630,7 +633,13 @@ func vertex(a, b, c, fa, fb, fc float64) float64 {
 // safeguarded parabolic search of its bracket to the true local extremum
 // (a parabola is a poor model where the error changes sign between grid
 // points, as beside a band edge).
-func (e *engine) extrema(full bool) float64 {
+func (e *engine) extrema(full bool) float64 { return e.extremaMode(full, false) }
+
+// extremaMode is extrema; with confirm, the candidates inside the lobe of a
+// reference point that a local step has just put on its lobe's top are
+// not refined again: their lobe's maximum is delta to within the last
+// local gap, which is counted instead.
+func (e *engine) extremaMode(full, confirm bool) float64 {
 	e.cand = e.cand[:0]
 	e.cidx = e.cidx[:0]
 	for b := range e.bands {
@@ -660,6 +669,9 @@ func (e *engine) extrema(full bool) float64 {
 				if gi < 0 {
 					continue
 				}
+				if confirm && e.ownedByRef(&e.cand[k]) {
+					continue
+				}
 				a, c := &e.grid[gi-1], &e.grid[gi+1]
 				e.cand[k] = e.refine(e.cand[k], e.cand[k].band, a.f, c.f, a.e, c.e, full)
 			}
@@ -667,9 +679,46 @@ func (e *engine) extrema(full bool) float64 {
 	}
 	maxErr := 0.0
 	for k := range e.cand {
+		if confirm && e.cidx[k] >= 0 && e.ownedByRef(&e.cand[k]) {
+			continue
+		}
 		maxErr = math.Max(maxErr, math.Abs(e.cand[k].e))
 	}
+	if confirm {
+		maxErr = math.Max(maxErr, math.Abs(e.delta)*(1+math.Max(e.localGap, 0)))
+	}
 	return maxErr
+}
+
+// ownedByRef reports whether the grid extremum p lies in the lobe of a
+// reference point of the same band and sign: between the midpoints to
+// that point's neighbours.
+func (e *engine) ownedByRef(p *point) bool {
+	m := len(e.ref)
+	j := sort.Search(m, func(i int) bool { return e.ref[i].f >= p.f })
+	for _, i := range [2]int{j - 1, j} {
+		if i < 0 || i >= m || e.ref[i].band != p.band {
+			continue
+		}
+		s := e.delta
+		if i%2 == 1 {
+			s = -s
+		}
+		if s*p.e <= 0 {
+			continue
+		}
+		lo, hi := e.bands[p.band].lo, e.bands[p.band].hi
+		if i > 0 && e.ref[i-1].band == p.band {
+			lo = 0.5 * (e.ref[i-1].f + e.ref[i].f)
+		}
+		if i+1 < m && e.ref[i+1].band == p.band {
+			hi = 0.5 * (e.ref[i].f + e.ref[i+1].f)
+		}
+		if p.f >= lo && p.f <= hi {
+			return true
+		}
+	}
+	return false
 }
 
 // refine moves the grid extremum p, bracketed by neighbours at a and c
@@ -831,12 +880,23 @@ func (e *engine) localStep() (float64, bool) {
 					v = refineMax(fn, l, p.f, r, fl, ad, fr)
 					break
 				}
+				// The lobe's top is farther: search the whole lobe. A
+				// band edge at its end may hold the maximum (the point
+				// then moves onto the edge); a midpoint may not.
 				fa, fc := fn(a), fn(c)
-				if fa > ad || fc > ad {
+				aEdge, cEdge := a == bd.lo, c == bd.hi
+				if (fa > ad && !aEdge) || (fc > ad && !cEdge) {
 					bad.Store(true)
 					continue
 				}
-				v = refineMax(fn, a, p.f, c, fa, ad, fc)
+				switch {
+				case fa > ad && fa >= fc:
+					v = goldenMaxN(fn, a, p.f, 30)
+				case fc > ad:
+					v = goldenMaxN(fn, p.f, c, 30)
+				default:
+					v = refineMax(fn, a, p.f, c, fa, ad, fc)
+				}
 			}
 			q := e.mkpoint(v, p.band)
 			q.e = e.errAt(&q)
@@ -873,31 +933,46 @@ func (e *engine) run(tol float64, maxIter int) (int, bool, error) {
 	it := 0
 	conv := false
 	full := false
-	// A reference seeded from a converged coarse design has the right
-	// structure: move each point to its lobe's extremum without the grid
-	// (a few evaluations per point instead of Density), then confirm on
-	// the whole grid below.
-	for e.local && it < maxIter {
-		if err = e.level(); err != nil {
-			return it, false, err
-		}
-		it++
-		gap, ok := e.localStep()
-		if debugRemez {
-			fmt.Printf("n=%d local it=%d delta=%.10g gap=%.3g ok=%v\n", e.n, it, e.delta, gap, ok)
-		}
-		if !ok || gap <= tol {
-			break
-		}
-	}
+	// A reference with the right structure (seeded from a converged coarse
+	// design, or repaired by a grid iteration) takes grid-free local steps:
+	// each point moves to its lobe's extremum in a few evaluations instead
+	// of Density per point. Convergence is always confirmed on the whole
+	// grid, and a step that finds the structure wrong hands over to it.
+	useLocal := e.local && !e.gridOnly
+	confirm := false
 	for it < maxIter {
 		it++
 		if err = e.level(); err != nil {
 			break
 		}
+		if useLocal {
+			gap, ok := e.localStep()
+			if debugRemez {
+				fmt.Printf("n=%d local it=%d delta=%.10g gap=%.3g ok=%v\n", e.n, it, e.delta, gap, ok)
+			}
+			if ok {
+				if gap <= tol {
+					useLocal = false // confirm on the grid next
+					confirm = true
+					e.localGap = gap
+				}
+				continue
+			}
+			useLocal = false // the levelled reference goes to the grid now
+		}
 		e.evalGrid()
-		maxErr := e.extrema(full)
 		ad := math.Abs(e.delta)
+		var maxErr float64
+		if confirm {
+			confirm = false
+			maxErr = e.extremaMode(true, true)
+			if ad > 0 && (maxErr-ad)/ad <= tol {
+				conv = true
+				break
+			}
+			full = true
+		}
+		maxErr = e.extrema(full)
 		gap := math.Inf(1)
 		if ad > 0 {
 			gap = (maxErr - ad) / ad
@@ -920,6 +995,7 @@ func (e *engine) run(tol float64, maxIter int) (int, bool, error) {
 			conv = true
 			break
 		}
+		useLocal = e.local && !e.gridOnly && gap < 0.5
 		e.prevF = e.prevF[:0]
 		for i := range e.ref {
 			e.prevF = append(e.prevF, e.ref[i].f)

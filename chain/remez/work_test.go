@@ -9,7 +9,7 @@ func TestWork(t *testing.T) {
 	if !debugRemez {
 		t.Skip()
 	}
-	for _, n := range []int{1023, 2047, 4095} {
+	for _, n := range []int{255, 1023, 2047, 4095} {
 		workCount.Store(0)
 		res, _ := Design(n, 1, shrinking(n), Settings{})
 		r := float64((n + 1) / 2)
