@@ -86,10 +86,22 @@ func TestFromChainAgainstChainPackage(t *testing.T) {
 }
 
 func TestEvaluateDesignedChain(t *testing.T) {
-	// End to end with the remez engine, once it lands: a CIC chain whose
+	// End to end with the remez engine: invented CIC chains whose
 	// compensating FIR corrects the droop.
-	spec := chain.Spec{InputRate: 64e6, OutputRate: 1e6, Passband: 200e3, RippleDB: 0.1, RejectionDB: 80, InputBits: 14, OutputBits: 18}
-	plan := []chain.StagePlan{{Kind: chain.CIC, Factor: 16, CICOrder: 4, CICDelay: 1}, {Kind: chain.HalfBand, Factor: 2}, {Kind: chain.FIR, Factor: 2}}
+	for _, tc := range []struct {
+		fp   float64
+		plan string
+	}{{200e3, "cic4m1r16 > hb > fir2"}, {300e3, "cic4m1r8 > hb > fir4"}, {300e3, "cic5m1r16 > fir4"}} {
+		t.Run(tc.plan, func(t *testing.T) { evaluateDesigned(t, tc.fp, tc.plan) })
+	}
+}
+
+func evaluateDesigned(t *testing.T, fp float64, notation string) {
+	spec := chain.Spec{InputRate: 64e6, OutputRate: 1e6, Passband: fp, RippleDB: 0.1, RejectionDB: 80, InputBits: 14, OutputBits: 18}
+	plan, err := chain.ParseNotation(notation)
+	if err != nil {
+		t.Fatal(err)
+	}
 	c, err := chain.Design(spec, plan, chain.Settings{})
 	if err != nil && strings.Contains(err.Error(), "not implemented") {
 		t.Skip("remez engine not landed:", err)
@@ -106,8 +118,18 @@ func TestEvaluateDesignedChain(t *testing.T) {
 			t.Errorf("stage %d misses its bands: %v (float %v)", i+1, sw.Deviations, sw.FloatDeviations)
 		}
 	}
+	// Every stage meets its own bands after quantisation, so the quantised
+	// cascade meets the spec's targets (DESIGN §4, §7), by chain.Analyze.
+	a, err := chain.Analyze(QuantisedChain(c, res.Widths), spec)
+	if err != nil {
+		t.Fatal(err)
+	}
+	if a.AliasRejectionDB < spec.RejectionDB || a.PassbandRippleDB > spec.RippleDB {
+		t.Errorf("quantised chain: rejection %.2f dB (target %g), ripple %.4f dB (budget %g)", a.AliasRejectionDB, spec.RejectionDB, a.PassbandRippleDB, spec.RippleDB)
+	}
 	bt := res.BitTrue
-	t.Logf("SNR %.1f dB, ENOB %.2f, alias bit-true %.2f vs response %.2f (valid %v)", bt.SNRDB, bt.ENOB, bt.AliasRejectionDB, bt.AliasResponseDB, bt.AliasValid)
+	t.Logf("quantised chain: rejection %.2f dB, ripple %.4f dB; SNR %.1f dB, ENOB %.2f, alias bit-true %.2f vs response %.2f (valid %v)",
+		a.AliasRejectionDB, a.PassbandRippleDB, bt.SNRDB, bt.ENOB, bt.AliasRejectionDB, bt.AliasResponseDB, bt.AliasValid)
 	if !bt.AliasValid || math.Abs(bt.AliasRejectionDB-bt.AliasResponseDB) > 1 {
 		t.Errorf("bit-true alias %.2f dB vs response %.2f dB (valid %v)", bt.AliasRejectionDB, bt.AliasResponseDB, bt.AliasValid)
 	}
