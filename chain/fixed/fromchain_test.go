@@ -180,3 +180,30 @@ func TestReportFields(t *testing.T) {
 	}
 	t.Logf("%s", first)
 }
+
+func TestPruningMatchesChainPackage(t *testing.T) {
+	// Two implementations of Hogenauer's (1981) pruning must agree: this
+	// package's (his closed-form impulse responses) and the chain package's
+	// (convolutions), which fills chain.CICStage.RegisterBits.
+	for _, n := range []int{1, 2, 3, 4, 5, 6} {
+		for _, r := range []int{2, 5, 8, 25, 64, 100} {
+			for _, m := range []int{1, 2} {
+				for _, bits := range [][2]int{{12, 16}, {16, 16}, {14, 24}} {
+					p, err := PruneCIC(n, m, r, bits[0], bits[1])
+					if err != nil {
+						t.Fatal(err)
+					}
+					cs := chain.NewCICStage(n, m, r, bits[0], bits[1])
+					for j, w := range cs.RegisterBits {
+						if p.RegisterBits[j] != w {
+							t.Fatalf("N=%d R=%d M=%d %v: register %d: %d bits here, %d in chain", n, r, m, bits, j+1, p.RegisterBits[j], w)
+						}
+					}
+					if p.OutputBits != cs.OutputBits {
+						t.Fatalf("N=%d R=%d M=%d %v: output %d bits here, %d in chain", n, r, m, bits, p.OutputBits, cs.OutputBits)
+					}
+				}
+			}
+		}
+	}
+}
