@@ -141,7 +141,12 @@ func (e *engine) initRef() {
 		e.uniformRef()
 		return
 	}
-	e.scaledRef(sub.ref, sub.bands)
+	e.scaledRef(sub.ref, sub.bands, sub.seedCnt, sub.seedM)
+	e.seedCnt = make([]int, len(e.bands))
+	for _, p := range sub.ref {
+		e.seedCnt[p.band]++
+	}
+	e.seedM = len(sub.ref)
 }
 
 // sibling returns an engine for length n at grid density d with the same

@@ -105,6 +105,10 @@ type engine struct {
 	emax       int     // scale of lam: true weights are lam * 2^(emax+m-1)
 	q          int     // the reference point left out of the interpolation
 	localGap   float64 // gap of the last local step
+	// per-band reference counts of the design that seeded this one, and
+	// its reference size
+	seedCnt []int
+	seedM   int
 }
 
 // bary1 evaluates the levelled polynomial at normalised frequency f by the
@@ -114,7 +118,7 @@ type engine struct {
 // for the samples that give the taps.
 func (e *engine) bary1(f float64) float64 {
 	s, c := math.Sincos(math.Pi * f)
-	pt := point{f: f, x: math.Cos(2 * math.Pi * f), y: s * s, z: c * c}
+	pt := point{f: f, x: (c - s) * (c + s), y: s * s, z: c * c}
 	prod, ex := 1.0, 0
 	var sum float64
 	k := 0
@@ -140,7 +144,7 @@ func (e *engine) bary1(f float64) float64 {
 // mkpoint fills a point at normalised frequency f in band b.
 func (e *engine) mkpoint(f float64, b int) point {
 	s, c := math.Sincos(math.Pi * f)
-	p := point{f: f, x: math.Cos(2 * math.Pi * f), y: s * s, z: c * c, band: b}
+	p := point{f: f, x: (c - s) * (c + s), y: s * s, z: c * c, band: b}
 	bd := &e.bands[b]
 	p.d = bd.desired(f)
 	p.w = bd.wt(f)
@@ -311,18 +315,33 @@ func (e *engine) uniformRef() {
 // a shorter design of the same bands (reference scaling, Filip 2016): each
 // band gets its share of points in proportion, placed by interpolating the
 // shorter design's points in that band.
-func (e *engine) scaledRef(sub []point, sub0 []nband) {
+func (e *engine) scaledRef(sub []point, sub0 []nband, prev []int, prevM int) {
 	m := e.r + 1
 	nb := len(e.bands)
 	cnt := make([]int, nb)
 	for _, p := range sub {
 		cnt[p.band]++
 	}
+	// A band's share of the reference is about alpha m + beta, the
+	// constant coming from its edges; with the counts of two shorter
+	// designs both are known, otherwise the share is taken as
+	// proportional.
+	share := func(b int) float64 {
+		m2 := float64(len(sub))
+		v := float64(cnt[b]) * float64(m) / m2
+		if prev != nil && prevM < len(sub) {
+			a := float64(cnt[b]-prev[b]) / (m2 - float64(prevM))
+			if x := float64(cnt[b]) + a*(float64(m)-m2); x >= 1 || cnt[b] == 0 {
+				v = x
+			}
+		}
+		return math.Max(v, 0)
+	}
 	want := make([]int, nb)
 	frac := make([]float64, nb)
 	tot := 0
 	for b := range nb {
-		v := float64(cnt[b]) * float64(m) / float64(len(sub))
+		v := share(b)
 		want[b] = int(v)
 		frac[b] = v - float64(want[b])
 		tot += want[b]
@@ -337,6 +356,16 @@ func (e *engine) scaledRef(sub []point, sub0 []nband) {
 		want[bi]++
 		frac[bi] = -1
 		tot++
+	}
+	for tot > m { // and take any excess from the largest bands
+		bi := 0
+		for b := range nb {
+			if want[b] > want[bi] {
+				bi = b
+			}
+		}
+		want[bi]--
+		tot--
 	}
 	e.ref = e.ref[:0]
 	pos := 0
@@ -985,7 +1014,17 @@ func (e *engine) run(tol float64, maxIter int) (int, bool, error) {
 			gap = (maxErr - ad) / ad
 		}
 		if debugRemez {
-			fmt.Printf("n=%d it=%d delta=%.10g gap=%.3g ncand=%d full=%v\n", e.n, it, e.delta, gap, len(e.cand), full)
+			ci := 0
+			for i := range e.cand {
+				if math.Abs(e.cand[i].e) > math.Abs(e.cand[ci].e) {
+					ci = i
+				}
+			}
+			cnt := make([]int, len(e.bands))
+			for _, p := range e.ref {
+				cnt[p.band]++
+			}
+			fmt.Printf("n=%d it=%d delta=%.10g gap=%.3g ncand=%d full=%v maxat f=%.6f band %d counts %v first %.6f last %.6f\n", e.n, it, e.delta, gap, len(e.cand), full, e.cand[ci].f, e.cand[ci].band, cnt, e.ref[0].f, e.ref[len(e.ref)-1].f)
 		}
 		if gap < bestGap {
 			bestGap = gap
@@ -995,7 +1034,7 @@ func (e *engine) run(tol float64, maxIter int) (int, bool, error) {
 			conv = true
 			break
 		}
-		useLocal = e.local && !e.gridOnly && gap < 0.5
+		useLocal = !e.gridOnly && gap < 0.5
 		e.prevF = e.prevF[:0]
 		for i := range e.ref {
 			e.prevF = append(e.prevF, e.ref[i].f)
