@@ -1,6 +1,7 @@
 package fixed
 
 import (
+	"errors"
 	"fmt"
 	"math"
 	"sort"
@@ -317,7 +318,7 @@ type QuantSettings struct {
 }
 
 // ErrNoWidth is wrapped by MinCoefBits when no width up to MaxBits meets the bands.
-var ErrNoWidth = fmt.Errorf("fixed: no coefficient width meets the bands")
+var ErrNoWidth = errors.New("fixed: no coefficient width meets the bands")
 
 // MinCoefBits returns the narrowest coefficients that meet every band's
 // MaxError, measured on the quantised response (Deviations). At each width
