@@ -31,8 +31,8 @@ type Settings struct {
 	// estimated front point beats it by more than this on every axis. Zero
 	// means 0.15.
 	Tolerance float64
-	// MaxDesigns caps the number of chains designed for real; the band is
-	// taken nearest the front first. Zero means 256.
+	// MaxDesigns caps the number of chains designed for real. Zero means
+	// 300. Result.Unsettled says whether the cap cut the search short.
 	MaxDesigns int
 	// Exhaustive designs every feasible candidate instead of the band (slow;
 	// it exists to check the two-tier search). MaxDesigns does not apply.
@@ -72,6 +72,9 @@ type Result struct {
 	Recommended int            // index into Front; -1 when Front is empty
 	Reason      string         // one or two sentences on why
 	Partial     bool           // stopped early by ctx; Front is the best so far
+	// Unsettled counts the candidates near the front that the design cap
+	// left undecided; zero means the front is that of every candidate.
+	Unsettled int
 }
 
 // CloudSize is the most candidates Result.Feasible holds.

@@ -17,6 +17,7 @@ const (
 	ReasonMissRejection  = "designed chain misses rejection"
 	ReasonMissRipple     = "designed chain misses ripple"
 	ReasonCICNull        = "cic null in passband"
+	ReasonGaveUp         = "a stage failed to design in other chains"
 	ReasonCICBeaten      = "cic beaten by another order or delay"
 	ReasonLongFIR        = "fir stage over 2047 taps"
 )
@@ -116,13 +117,14 @@ type stageKey struct {
 }
 
 // realKey adds what a stage's real design depends on beyond its estimate:
-// the CIC whose droop it corrects. The CIC can only be the first stage, so
-// its factor, order and delay say all.
+// the factor of the CIC whose droop it corrects (always the first stage).
+// The CIC's order and delay are left out on purpose: they move a
+// compensator's length by a tap or two, and keying on them would multiply
+// the designs needed to learn the band (see the package doc).
 type realKey struct {
 	stageKey
-	comp       bool
-	cicN, cicM int8 // the compensated CIC, else 0
-	cicR       int32
+	comp bool
+	cicR int32 // the compensated CIC's factor, else 0
 }
 
 // stageVal is a stage's estimate, and its figures at the ends of the range
@@ -209,7 +211,7 @@ func (e *estimator) keysOf(plan []chain.StagePlan) dropCode {
 				k.inBits = int8(min(w, p.dataBits))
 			}
 			if k.comp {
-				k.cicN, k.cicM, k.cicR = int8(cic.CICOrder), int8(cic.CICDelay), int32(cic.Factor)
+				k.cicR = int32(cic.Factor)
 			}
 		}
 		e.keys = append(e.keys, k)

@@ -305,7 +305,10 @@ func (f fakeDesigner) design(plan []chain.StagePlan) (Candidate, string) {
 		h := hashOf(k.stageKey)
 		v := est.cache[k.stageKey]
 		// A compensator grows with the droop it corrects.
-		c := 1 + 0.002*float64(k.cicN)*float64(k.cicM)
+		c := 1.0
+		if k.comp {
+			c += 0.002 * float64(plan[0].CICOrder*plan[0].CICDelay)
+		}
 		w := func(s uint32) float64 { return c * (1 + 0.08*(float64((h>>s)%201)/100-1)) }
 		if k.kind == int8(chain.CIC) {
 			w = func(uint32) float64 { return 1 } // exact, as a real CIC's

@@ -254,7 +254,7 @@ func search(ctx context.Context, p params, s *Settings, est *estimator, des desi
 			band = append(band, scored{plan: clonePlan(plan), f: f})
 			return true
 		}
-		if sl := fr.slack(&f); sl < 1+3*tol && !est.excluded(fronts) {
+		if sl := fr.slack(&f); sl < 1+tol && !est.excluded(fronts) {
 			band = append(band, scored{plan: clonePlan(plan), f: f, slack: sl})
 			if len(band) >= 2*maxBand {
 				sort.Slice(band, byBand)
@@ -325,8 +325,16 @@ func search(ctx context.Context, p params, s *Settings, est *estimator, des desi
 		if !designAll(plans) {
 			res.Partial = true
 		}
-	} else if !learnAndDesign(est, band, memo, designAll) {
-		res.Partial = true
+	} else {
+		max := s.MaxDesigns
+		if max == 0 {
+			max = defaultMaxDesigns
+		}
+		ok, left := learnAndDesign(est, band, memo, max, res, designAll)
+		res.Unsettled = left
+		if !ok {
+			res.Partial = true
+		}
 	}
 
 	var designed []Candidate
@@ -359,9 +367,21 @@ const maxRounds = 4
 // exactly from what was learnt, and the front of that pricing is designed
 // for real (most of it already was), dropping and replacing members whose
 // design misses the spec until the front stands.
-func learnAndDesign(est *estimator, band []scored, memo map[string]outcome, designAll func([][]chain.StagePlan) bool) bool {
+//
+// It returns false when cancelled, and how many band candidates were left
+// unpriced or undesigned because the design cap was reached.
+func learnAndDesign(est *estimator, band []scored, memo map[string]outcome, maxDesigns int, res *Result,
+	designAll func([][]chain.StagePlan) bool) (bool, int) {
 	learnt := map[realKey]figs{}
 	tries := map[realKey]int{}
+	capped := false
+	trim := func(b [][]chain.StagePlan) [][]chain.StagePlan {
+		if left := maxDesigns - res.Designed; len(b) > left {
+			capped = true
+			return b[:max(left, 0)]
+		}
+		return b
+	}
 	for round := 0; round < maxRounds; round++ {
 		var reps [][]chain.StagePlan
 		claimed := map[realKey]bool{}
@@ -385,7 +405,7 @@ func learnAndDesign(est *estimator, band []scored, memo map[string]outcome, desi
 			}
 			reps = append(reps, pl)
 		}
-		if len(reps) == 0 {
+		if reps = trim(reps); len(reps) == 0 {
 			break
 		}
 		debugf("round %d reps %d", round, len(reps))
@@ -410,13 +430,14 @@ func learnAndDesign(est *estimator, band []scored, memo map[string]outcome, desi
 			}
 		}
 		if !ok {
-			return false
+			return false, 0
 		}
 	}
 
 	// Exact pricing of the band from the learnt stages.
 	exact := make([]figs, 0, len(band))
 	plans := make([][]chain.StagePlan, 0, len(band))
+	unpriced := 0
 	for i := range band {
 		pl := band[i].plan
 		est.keysOf(pl)
@@ -433,6 +454,9 @@ func learnAndDesign(est *estimator, band []scored, memo map[string]outcome, desi
 			f.lat += g.lat
 		}
 		if !known {
+			if _, ok := memo[planKey(pl)]; !ok {
+				unpriced++
+			}
 			continue
 		}
 		exact = append(exact, f)
@@ -451,8 +475,13 @@ func learnAndDesign(est *estimator, band []scored, memo map[string]outcome, desi
 			need = append(need, plans[i])
 		}
 		debugf("front loop %d", len(need))
+		n := len(need)
+		need = trim(need)
 		if !designAll(need) {
-			return false
+			return false, 0
+		}
+		if len(need) < n {
+			return true, n - len(need)
 		}
 		changed := false
 		for _, i := range fr.id {
@@ -462,7 +491,10 @@ func learnAndDesign(est *estimator, band []scored, memo map[string]outcome, desi
 			}
 		}
 		if !changed {
-			return true
+			if capped {
+				return true, unpriced
+			}
+			return true, 0
 		}
 	}
 }
@@ -620,4 +652,8 @@ func (e *estimator) excluded(fronts []bandRef) bool {
 	return false
 }
 
+// defaultMaxDesigns is Settings.MaxDesigns' default.
+const defaultMaxDesigns = 300
+
+// debugf traces the tiers in tests.
 var debugf = func(string, ...any) {}
