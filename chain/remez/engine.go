@@ -4,7 +4,6 @@ import (
 	"errors"
 	"fmt"
 	"math"
-	"os"
 	"runtime"
 	"sort"
 	"sync"
@@ -67,10 +66,6 @@ func (b *nband) wt(f float64) float64 {
 }
 
 // engine holds one design's grid, reference and work space.
-var debugRemez = os.Getenv("REMEZ_DEBUG") != ""
-
-var workCount atomic.Int64
-
 type engine struct {
 	n, r     int // taps, basis functions (reference has r+1 points)
 	type2    bool
@@ -402,9 +397,6 @@ func (e *engine) scaledRef(sub []point, sub0 []nband, prev []int, prevM int) {
 			e.ref = append(e.ref, e.mkpoint(f, b))
 		}
 	}
-	if debugRemez {
-		fmt.Println("scale", e.n, "sub", len(sub), cnt, "->", want)
-	}
 	// Interpolation keeps the points increasing; guard against ties.
 	for i := 1; i < len(e.ref); i++ {
 		if !(e.ref[i].f > e.ref[i-1].f) {
@@ -584,9 +576,6 @@ func grow(s []float64, n int) []float64 {
 // differences are at least ~1e-12 apart, so their products stay normal).
 func bary(x float64, xr, mu, c []float64) float64 {
 	n := len(xr)
-	if debugRemez {
-		workCount.Add(int64(n))
-	}
 	mu = mu[:n]
 	c = c[:n]
 	var n0, d0, n1, d1 float64
@@ -976,9 +965,6 @@ func (e *engine) run(tol float64, maxIter int) (int, bool, error) {
 		}
 		if useLocal {
 			gap, ok := e.localStep()
-			if debugRemez {
-				fmt.Printf("n=%d local it=%d delta=%.10g gap=%.3g ok=%v\n", e.n, it, e.delta, gap, ok)
-			}
 			if ok {
 				if gap <= tol {
 					useLocal = false // confirm on the grid next
@@ -1013,19 +999,6 @@ func (e *engine) run(tol float64, maxIter int) (int, bool, error) {
 			maxErr = e.extrema(true)
 			gap = (maxErr - ad) / ad
 		}
-		if debugRemez {
-			ci := 0
-			for i := range e.cand {
-				if math.Abs(e.cand[i].e) > math.Abs(e.cand[ci].e) {
-					ci = i
-				}
-			}
-			cnt := make([]int, len(e.bands))
-			for _, p := range e.ref {
-				cnt[p.band]++
-			}
-			fmt.Printf("n=%d it=%d delta=%.10g gap=%.3g ncand=%d full=%v maxat f=%.6f band %d counts %v first %.6f last %.6f\n", e.n, it, e.delta, gap, len(e.cand), full, e.cand[ci].f, e.cand[ci].band, cnt, e.ref[0].f, e.ref[len(e.ref)-1].f)
-		}
 		if gap < bestGap {
 			bestGap = gap
 			e.best = append(e.best[:0], e.ref...)
@@ -1053,10 +1026,6 @@ func (e *engine) run(tol float64, maxIter int) (int, bool, error) {
 			conv = gap <= tolFixed
 			break
 		}
-	}
-	if debugRemez {
-		r := float64(e.r)
-		fmt.Printf("RUN n=%d density=%d it=%d work/r^2 so far %.1f\n", e.n, e.density, it, float64(workCount.Load())/(r*r))
 	}
 	if !conv && len(e.best) > 0 {
 		e.ref = append(e.ref[:0], e.best...)
