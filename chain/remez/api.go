@@ -44,6 +44,10 @@ type Result struct {
 	Taps       []float64 // impulse response, length n, symmetric
 	Deviations []float64 // per band: max |A(f)-D(f)| measured on the refined response
 	Delta      float64   // the levelled weighted deviation of the final reference
+	// Iterations counts the exchange iterations of the final design
+	// (grid and local steps; the shorter seed designs are not counted).
 	Iterations int
-	Converged  bool
+	// Converged reports that the largest error, extrema refined, is within
+	// 1e-5 of Delta (or that the reference is the exchange's fixed point).
+	Converged bool
 }

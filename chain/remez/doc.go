@@ -1,27 +1,65 @@
 // Package remez designs linear-phase FIR filters by the Parks-McClellan
-// (Remez exchange) method and estimates the lengths they need.
+// (Remez exchange) method, estimates the lengths they need and evaluates
+// their responses.
 //
-// Conventions: frequencies and sample rates are in Hz; a band runs from Lo
-// to Hi inclusive with 0 <= Lo < Hi <= rate/2. Deviations are linear
-// amplitudes (not dB); where dB appear they are positive: attenuation is
-// -20 log10(ds) and passband ripple is peak-to-peak,
-// 20 log10((1+dp)/(1-dp)). A filter of n taps is type I when n is odd and
-// type II (a zero at rate/2) when n is even; both are symmetric.
+// # Conventions
 //
-// The engine works in the x = cos(omega) domain with barycentric Lagrange
-// interpolation in its second (true) form (Berrut and Trefethen 2004). The
-// initial reference of a long design is scaled from the reference of a
-// shorter design of the same bands (Filip 2016), and every iteration looks
-// for the error's local extrema on the whole dense grid (Settings.Density
-// points per extremum, 16 by default as in McClellan, Parks and Rabiner
-// 1973), places each one between its grid neighbours by a parabolic fit,
-// and keeps an alternating set of the largest. The reported per-band
-// deviations are measured after refining every extremum of the final error
-// locally (golden-section search), so they are true maxima, not grid maxima.
+// Frequencies and sample rates are in Hz; a band runs from Lo to Hi
+// inclusive with 0 <= Lo < Hi <= rate/2, bands in increasing order, not
+// overlapping. Deviations are linear amplitudes; where dB appear they are
+// positive: attenuation is -20 log10(ds) and passband ripple is
+// peak-to-peak, 20 log10((1+dp)/(1-dp)). A filter of n taps is type I when
+// n is odd and type II when n is even; both are symmetric, and a type II
+// filter is zero at rate/2. Result.Deviations are unweighted,
+// max |A(f) - D(f)| per band; Result.Delta is the weighted deviation that
+// the optimum levels across all bands.
 //
-// Design returns a best-effort Result together with a non-nil error when the
-// exchange does not converge; callers that accept such results must check
-// Result.Converged.
+// # Method
+//
+// The engine works in the x = cos(omega) domain (type II with cos(omega/2)
+// factored out) with barycentric Lagrange interpolation in its second, true
+// form (Berrut and Trefethen 2004), x differences taken from sin^2 and
+// cos^2 of omega/2 so that points crowded near x = +-1 keep their relative
+// precision, and the levelled deviation chosen by the same barycentric
+// evaluation that reads the error. Long designs start from a reference
+// scaled from designs of about half the length (reference scaling, Filip
+// 2016) and converged on a coarse grid (4 points per extremum); each point
+// of a reference whose structure is right then moves to its lobe's top by
+// a few evaluations (safeguarded parabolic search), and convergence is
+// always confirmed on the whole dense grid (Settings.Density points per
+// extremum, 16 by default as in McClellan, Parks and Rabiner 1973): the
+// largest error on it, each extremum refined locally, must exceed the
+// levelled deviation by at most 1e-5 of it. The exchange keeps, among the
+// local extrema of every band (band edges included) and the old reference,
+// one point per run of equal sign and trims the surplus while keeping
+// alternation. Taps come from the interpolant sampled at Chebyshev points
+// (first, backward-stable barycentric form) through a DCT done with gonum's
+// FFT. Reported deviations are measured on the taps themselves at the
+// refined extrema, so they are true maxima, not grid maxima.
+//
+// Settings.GridOnly instead solves the discrete problem on the 1973
+// program's grid with its starting reference, as SciPy's signal.remez does;
+// the tests use it to reproduce SciPy's coefficients.
+//
+// # Errors
+//
+// Invalid specifications give an error that names the field, the value and
+// the rule, and no Result. When the exchange does not converge (or the
+// specification is met to rounding level, beyond what double precision can
+// optimise) Design returns its best result, with Converged false where it
+// did not converge, together with a descriptive error; non-convergence
+// wraps ErrNotConverged. No result ever holds NaN or infinite taps. The
+// order estimators return 0 for inputs outside their domain.
+//
+// # Evaluation
+//
+// Magnitude and Amplitude evaluate one frequency directly, without
+// allocating, with phase rotations re-seeded every 32 taps (Amplitude pairs
+// the taps about the centre, half the work, and keeps the sign). A Spectrum
+// evaluates |H| on an evenly spaced grid through gonum's real FFT, reusing
+// its buffers; MagnitudeGrid is the one-shot form. Design runs its grid
+// work on GOMAXPROCS goroutines in fixed contiguous chunks, each point
+// computed alone, so results are bit-identical whatever GOMAXPROCS is.
 //
 // Output is planning data: before hardware sign-off, check the final
 // coefficients by a bit-true simulation of the RTL.
