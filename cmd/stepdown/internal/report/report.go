@@ -268,11 +268,15 @@ func New(command string, s *specfile.Spec, res *optimize.Result) (*Report, error
 		Reason:      res.Reason,
 		Search: Search{
 			Candidates: res.Candidates,
-			Feasible:   len(res.Feasible),
+			Feasible:   res.FeasibleAll,
 			Designed:   res.Designed,
 			Dropped:    map[string]int{},
 		},
 		Front: []Chain{},
+	}
+	if r.Search.Feasible < len(res.Feasible) {
+		// Feasible is the cloud, thinned when dense; FeasibleAll counts them all.
+		r.Search.Feasible = len(res.Feasible)
 	}
 	for k, v := range res.Dropped {
 		r.Search.Dropped[k] = v
