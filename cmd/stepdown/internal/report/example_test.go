@@ -1,0 +1,20 @@
+package report_test
+
+import (
+	"fmt"
+
+	"stepdown/cmd/stepdown/internal/report"
+)
+
+func ExampleReadmemH() {
+	b, err := report.ReadmemH([]int64{3, -1, -131071}, 18)
+	if err != nil {
+		fmt.Println(err)
+		return
+	}
+	fmt.Print(string(b))
+	// Output:
+	// 00003
+	// 3ffff
+	// 20001
+}
