@@ -362,6 +362,17 @@ func (e *engine) scaledRef(sub []point, sub0 []nband, prev []int, prevM int) {
 		want[bi]--
 		tot--
 	}
+	if !e.placeScaled(sub, sub0, cnt, want) {
+		e.uniformRef()
+	}
+}
+
+// placeScaled lays want[b] points in each band b by interpolating the
+// shorter design's points there (cnt[b] of them, in order in sub), mapped
+// affinely from the seed's band sub0[b]. It reports false if the points do
+// not come out strictly increasing.
+func (e *engine) placeScaled(sub []point, sub0 []nband, cnt, want []int) bool {
+	nb := len(e.bands)
 	e.ref = e.ref[:0]
 	pos := 0
 	for b := range nb {
@@ -369,12 +380,9 @@ func (e *engine) scaledRef(sub []point, sub0 []nband, prev []int, prevM int) {
 		pos += cnt[b]
 		k := want[b]
 		lo, hi := e.grid[e.bstart[b]].f, e.grid[e.bstart[b+1]-1].f
-		// The seed's band may be narrower (wider transitions): map affinely.
 		slo, shi := sub0[b].lo, sub0[b].hi
-		ps = append([]point(nil), ps...)
-		for i := range ps {
-			ps[i].f = e.bands[b].lo + (ps[i].f-slo)*(e.bands[b].hi-e.bands[b].lo)/(shi-slo)
-		}
+		scale := (e.bands[b].hi - e.bands[b].lo) / (shi - slo)
+		at := func(i int) float64 { return e.bands[b].lo + (ps[i].f-slo)*scale }
 		for j := range k {
 			var f float64
 			switch {
@@ -385,9 +393,9 @@ func (e *engine) scaledRef(sub []point, sub0 []nband, prev []int, prevM int) {
 					i0 = len(ps) - 2
 				}
 				u := t - float64(i0)
-				f = ps[i0].f + u*(ps[i0+1].f-ps[i0].f)
+				f = at(i0) + u*(at(i0+1)-at(i0))
 			case len(ps) == 1 && k == 1:
-				f = ps[0].f
+				f = at(0)
 			case k == 1:
 				f = 0.5 * (lo + hi)
 			default:
@@ -397,13 +405,12 @@ func (e *engine) scaledRef(sub []point, sub0 []nband, prev []int, prevM int) {
 			e.ref = append(e.ref, e.mkpoint(f, b))
 		}
 	}
-	// Interpolation keeps the points increasing; guard against ties.
 	for i := 1; i < len(e.ref); i++ {
 		if !(e.ref[i].f > e.ref[i-1].f) {
-			e.uniformRef()
-			return
+			return false
 		}
 	}
+	return true
 }
 
 // level computes the levelled deviation delta of the current reference and
@@ -515,12 +522,12 @@ func (e *engine) level() error {
 }
 
 // prodY multiplies prod (mantissa, exponent ex) by 2 (y_j - yi) over ys,
-// renormalising every 16 factors, which cannot leave the range of normal
+// renormalising every 32 factors, which cannot leave the range of normal
 // numbers (each factor is at most 4 and only near neighbours are small).
 func prodY(ys []float64, yi, prod float64, ex int) (float64, int) {
 	for k, v := range ys {
 		prod *= 2 * (v - yi)
-		if k&15 == 15 {
+		if k&31 == 31 {
 			fr, x := math.Frexp(prod)
 			prod, ex = fr, ex+x
 		}
@@ -533,7 +540,7 @@ func prodY(ys []float64, yi, prod float64, ex int) (float64, int) {
 func prodZ(zs []float64, zi, prod float64, ex int) (float64, int) {
 	for k, v := range zs {
 		prod *= 2 * (zi - v)
-		if k&15 == 15 {
+		if k&31 == 31 {
 			fr, x := math.Frexp(prod)
 			prod, ex = fr, ex+x
 		}
