@@ -79,7 +79,7 @@ func (e *engine) design() (*Result, error) {
 // laxCheck reports a specification met to rounding level, where the
 // optimum is not defined in double precision: every band's deviation, or
 // (when the exchange failed) the levelled deviation in every band, is below
-// 1e-13 of the largest desired gain.
+// max(1e-13, n 1e-14) of the largest desired gain.
 func (e *engine) laxCheck(dev []float64, conv bool) error {
 	scale, wmax := 0.0, 0.0
 	for i := range e.grid {
@@ -90,7 +90,8 @@ func (e *engine) laxCheck(dev []float64, conv bool) error {
 	if scale == 0 {
 		scale = 1
 	}
-	lim := 1e-13 * scale
+	// Rounding in a sum of n taps is about n eps of the largest gain.
+	lim := math.Max(1e-13, 1e-14*float64(e.n)) * scale
 	tiny := true
 	for _, d := range dev {
 		tiny = tiny && d <= lim
