@@ -28,8 +28,8 @@ const defaultOut = "stepdown-out"
 func outFlags() []cli.Flag {
 	return []cli.Flag{
 		&cli.StringFlag{Name: "out", Value: defaultOut, Usage: "output folder (replaced as a whole, atomically)"},
-		&cli.BoolFlag{Name: "json", Usage: "print report.json on stdout as well (the table goes to stderr)"},
-		&cli.BoolFlag{Name: "quiet", Usage: "print nothing but errors (and --json output)"},
+		&cli.BoolFlag{Name: "json", Usage: "print report.json on stdout as well (the table goes to stderr)", DefaultText: "off"},
+		&cli.BoolFlag{Name: "quiet", Usage: "print nothing but errors (and --json output)", DefaultText: "off"},
 	}
 }
 
@@ -41,9 +41,9 @@ func planCommand() *cli.Command {
 		UsageText: "stepdown plan [SPEC.toml] [--out DIR] [--json] [--max-stages N] [--jobs N] [--quiet] [--timeout DUR] [--html]\n\n" +
 			"Without SPEC.toml the built-in example is planned.",
 		Flags: append(outFlags(),
-			&cli.IntFlag{Name: "max-stages", Usage: "override search.max_stages (1..12)"},
-			&cli.IntFlag{Name: "jobs", Usage: "parallel designs (default: the number of CPUs)"},
-			&cli.DurationFlag{Name: "timeout", Usage: "stop after this long with the best front so far, marked partial (e.g. 30s)"},
+			&cli.IntFlag{Name: "max-stages", Usage: "override search.max_stages (1..12)", DefaultText: "the spec's"},
+			&cli.IntFlag{Name: "jobs", Usage: "parallel designs", DefaultText: "the number of CPUs"},
+			&cli.DurationFlag{Name: "timeout", Usage: "stop after this long with the best front so far, marked partial (e.g. 30s)", DefaultText: "none"},
 			&cli.BoolFlag{Name: "html", Usage: "also write report.html, one self-contained page for sharing and printing"},
 		),
 		Action: runPlan,
