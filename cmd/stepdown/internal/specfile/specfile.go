@@ -243,7 +243,7 @@ func (failer) UnmarshalTOML(any) error { return errFail }
 func (p *parser) lineOf(k toml.Key) int {
 	t := reflect.TypeOf(failer{})
 	for i := len(k) - 1; i >= 0; i-- {
-		if strings.ContainsAny(k[i], "\",`") || k[i] == "" {
+		if strings.ContainsAny(k[i], "\"\\,`\n\r\t") || k[i] == "" {
 			return 0
 		}
 		t = reflect.StructOf([]reflect.StructField{{
