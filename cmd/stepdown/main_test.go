@@ -168,6 +168,7 @@ func TestBadInputs(t *testing.T) {
 		{name: "check no chain", spec: goodSpec, args: []string{"check", "spec.toml", "--out", "out"}, code: 2, frags: []string{"--chain", "missing"}},
 		{name: "check bad notation", spec: goodSpec, args: []string{"check", "spec.toml", "--chain", "cic3m1r8 > hbx", "--out", "out"}, code: 2, frags: []string{"--chain", "at byte"}},
 		{name: "check bad product", spec: goodSpec, args: []string{"check", "spec.toml", "--chain", "cic3m1r8 > hb", "--out", "out"}, code: 2, frags: []string{"--chain", "multiply to 16", "= 32"}},
+		{name: "check uncorrected droop", spec: goodSpec, args: []string{"check", "spec.toml", "--chain", "hb > cic3m1r16", "--out", "out"}, code: 2, frags: []string{"--chain", "droop", "ripple"}},
 		{name: "design no rate", args: []string{"design", "--pass", "0:1", "--stop", "2:3", "--ripple", "1", "--atten", "40"}, code: 2, frags: []string{"--rate", "missing"}},
 		{name: "design bad band", args: []string{"design", "--rate", "48 kHz", "--pass", "0:30 kHz", "--stop", "31:40 kHz", "--ripple", "1", "--atten", "40"}, code: 2, frags: []string{"--pass", "rate/2"}},
 		{name: "design overlap", args: []string{"design", "--rate", "48 kHz", "--pass", "0:10 kHz", "--stop", "9:20 kHz", "--ripple", "1", "--atten", "40"}, code: 2, frags: []string{"overlaps"}},

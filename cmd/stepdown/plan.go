@@ -204,7 +204,7 @@ func runCheck(c *cli.Context) error {
 	if err != nil {
 		var pe *chain.PlanError
 		if errors.As(err, &pe) {
-			return usagef("--chain %q: %s", notation, pe.Rule)
+			return usagef("--chain %q: %s", notation, specfile.InFileTerms(pe.Rule))
 		}
 		return fmt.Errorf("check: %v", err)
 	}

@@ -614,6 +614,15 @@ func (p *parser) specError(err error) error {
 	return e
 }
 
+// InFileTerms rewrites the chain package's field names in a library message
+// (InputRate, RippleDB, ...) as this format's keys (input_rate, ripple, ...).
+func InFileTerms(msg string) string {
+	for _, f := range goField {
+		msg = replaceWord(msg, f.goName, f.key)
+	}
+	return msg
+}
+
 // replaceWord replaces whole-word occurrences of old in s.
 func replaceWord(s, old, new string) string {
 	var b strings.Builder
