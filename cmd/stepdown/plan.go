@@ -143,10 +143,11 @@ func runPlan(c *cli.Context) error {
 	}
 	defer j.out.cleanup()
 
-	set := j.spec.SearchSettings()
 	if c.IsSet("max-stages") {
-		set.MaxStages = c.Int("max-stages")
+		// The override goes into the spec so that report.json records it.
+		j.spec.MaxStages = c.Int("max-stages")
 	}
+	set := j.spec.SearchSettings()
 	set.Jobs = c.Int("jobs")
 	prog := newProgress(c.App.ErrWriter, j.quiet)
 	set.Progress = prog.update
