@@ -1,0 +1,123 @@
+package report
+
+import (
+	"bytes"
+	"testing"
+
+	"stepdown/chain"
+	"stepdown/cmd/stepdown/internal/specfile"
+	"stepdown/cost"
+	"stepdown/optimize"
+)
+
+// A hand-made two-stage chain: CIC N=3, M=1, R=8 then a 7-tap half-band-like
+// FIR decimating by 2, from 16 MHz to 1 MHz.
+func handChain(t *testing.T) (*specfile.Spec, *optimize.Result) {
+	t.Helper()
+	s, err := specfile.Parse("hand.toml", []byte(`input_rate = "16 MHz"
+output_rate = "1 MHz"
+passband = "100 kHz"
+ripple = "0.5 dB"
+rejection = "60 dB"
+[words]
+coefficients = 16
+[hardware]
+clock = "100 MHz"
+`))
+	if err != nil {
+		t.Fatal(err)
+	}
+	plan := []chain.StagePlan{
+		{Kind: chain.CIC, Factor: 8, CICOrder: 3, CICDelay: 1},
+		{Kind: chain.HalfBand, Factor: 2},
+	}
+	taps := []float64{-0.03125, 0, 0.28125, 0.5, 0.28125, 0, -0.03125}
+	c := &chain.Chain{
+		InputRate: 16e6, Plan: plan, Designed: true,
+		Stages: []chain.Stage{
+			chain.CICStage{N: 3, M: 1, R: 8, RegisterBits: []int{25, 25, 25, 25, 25, 25}, InputBits: 16, OutputBits: 24},
+			chain.FIRStage{R: 2, Taps: taps, Length: 7, HalfBand: true},
+		},
+	}
+	f := cost.Figures{
+		MultipliesPerOutput: 2, AddsPerOutput: 54, MemoryWords: 30, MemoryBits: 600,
+		LatencyS: 1e-6, LatencySamples: 1, MultipliersAtClock: 1, Designed: true,
+		Stages:   []cost.StageFigures{{AddsPerOutput: 50, MemoryBits: 300}, {MultipliesPerOutput: 2, AddsPerOutput: 4, MemoryBits: 300, Multipliers: 1}},
+		Analysis: chain.Analysis{AliasRejectionDB: 61, PassbandRippleDB: 0.4, WorstAliasHz: 900e3},
+	}
+	res := &optimize.Result{
+		Candidates: 10, FeasibleAll: 4, Designed: 2, Dropped: map[string]int{"b": 1, "a": 5},
+		Front:  []optimize.Candidate{{Plan: plan, Chain: c, Figures: f, MarginDB: 1}},
+		Reason: "only one",
+	}
+	return s, res
+}
+
+func TestNew(t *testing.T) {
+	s, res := handChain(t)
+	r, err := New("plan", s, res)
+	if err != nil {
+		t.Fatal(err)
+	}
+	if r.Schema != Schema || r.Caution != Caution || r.Partial || r.Search.Feasible != 4 || r.Search.Dropped["a"] != 5 {
+		t.Errorf("report = %+v", r)
+	}
+	ch := r.Front[0]
+	if ch.Notation != "cic3m1r8 > hb" || !ch.MeetsTargets || ch.RejectionMarginDB != 1 || ch.MultipliersAtClock == nil || *ch.MultipliersAtClock != 1 {
+		t.Errorf("chain = %+v", ch)
+	}
+	cic, hb := ch.Stages[0], ch.Stages[1]
+	// Rates: 16 MHz / 8 = 2 MHz, / 2 = 1 MHz.
+	if cic.Kind != "cic" || cic.CICOrder != 3 || cic.CICDelay != 1 || len(cic.RegisterBits) != 6 || cic.OutputRateHz != 2e6 {
+		t.Errorf("cic stage = %+v", cic)
+	}
+	if hb.Kind != "halfband" || hb.Taps != 7 || len(hb.Coefficients) != 7 || hb.CompensatesCIC == nil || hb.InputRateHz != 2e6 || hb.OutputRateHz != 1e6 {
+		t.Errorf("half-band stage = %+v", hb)
+	}
+	// 16-bit rounding by chain/fixed: max |tap| 0.5 puts Frac at 15, so the
+	// centre is 2^14 = 16384 and 0.28125 * 2^15 = 9216, -0.03125 * 2^15 = -1024
+	// (exact: the taps are dyadic).
+	want := []int64{-1024, 0, 9216, 16384, 9216, 0, -1024}
+	if hb.CoefficientBits != 16 || hb.CoefficientFrac == nil || *hb.CoefficientFrac != 15 {
+		t.Fatalf("coefficient bits %d frac %v", hb.CoefficientBits, hb.CoefficientFrac)
+	}
+	for i, v := range want {
+		if hb.CoefficientInts[i] != v {
+			t.Errorf("integer tap %d = %d, want %d", i, hb.CoefficientInts[i], v)
+		}
+	}
+	files, err := CoefficientFiles(ch)
+	if err != nil {
+		t.Fatal(err)
+	}
+	names := []string{"coefficients/stage2_halfband.csv", "coefficients/stage2_halfband_int.csv", "coefficients/stage2_halfband.hex"}
+	if len(files) != 3 {
+		t.Fatalf("%d coefficient files, want 3", len(files))
+	}
+	for i, f := range files {
+		if f.Name != names[i] {
+			t.Errorf("file %d = %s, want %s", i, f.Name, names[i])
+		}
+	}
+	if string(files[2].Data) != "fc00\n0000\n2400\n4000\n2400\n0000\nfc00\n" {
+		t.Errorf("hex = %q", files[2].Data)
+	}
+	// Same input, same bytes.
+	a, err := r.Marshal()
+	if err != nil {
+		t.Fatal(err)
+	}
+	r2, _ := New("plan", s, res)
+	b, _ := r2.Marshal()
+	if !bytes.Equal(a, b) {
+		t.Error("two builds of the same report differ")
+	}
+}
+
+func TestNewRejectsBadIndex(t *testing.T) {
+	s, res := handChain(t)
+	res.Recommended = 3
+	if _, err := New("plan", s, res); err == nil {
+		t.Error("no error for a recommended index outside the front")
+	}
+}
