@@ -40,6 +40,12 @@ func usagef(format string, args ...any) error {
 
 func main() {
 	ctx, stop := signal.NotifyContext(context.Background(), os.Interrupt, syscall.SIGTERM)
+	go func() {
+		// The first Ctrl-C asks for a clean stop; restoring the default
+		// handling lets a second one end the process at once.
+		<-ctx.Done()
+		stop()
+	}()
 	code := run(ctx, os.Args, os.Stdout, os.Stderr)
 	stop()
 	os.Exit(code)
