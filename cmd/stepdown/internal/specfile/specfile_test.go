@@ -247,3 +247,15 @@ func FuzzParseSpec(f *testing.F) {
 		var _ chain.Spec = c
 	})
 }
+
+func BenchmarkParse(b *testing.B) {
+	for _, tc := range []struct{ name, text string }{{"minimal", minimal}, {"full", full}} {
+		b.Run(tc.name, func(b *testing.B) {
+			for i := 0; i < b.N; i++ {
+				if _, err := Parse("bench.toml", []byte(tc.text)); err != nil {
+					b.Fatal(err)
+				}
+			}
+		})
+	}
+}

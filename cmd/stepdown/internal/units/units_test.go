@@ -222,3 +222,15 @@ func TestParseRange(t *testing.T) {
 		}
 	}
 }
+
+func BenchmarkParseFrequency(b *testing.B) {
+	for _, s := range []string{"45", "245.76 MHz", "1.5E-3 MHz"} {
+		b.Run(s, func(b *testing.B) {
+			for i := 0; i < b.N; i++ {
+				if _, err := ParseFrequency(s); err != nil {
+					b.Fatal(err)
+				}
+			}
+		})
+	}
+}
