@@ -46,6 +46,8 @@ func prepareOut(dir string) (*outDir, error) {
 	case errors.Is(err, os.ErrNotExist):
 	case err != nil:
 		return nil, fmt.Errorf("--out %q: %v", dir, unwrapPath(err))
+	case fi.Mode()&os.ModeSymlink != 0:
+		return nil, usagef("--out %q: is a symbolic link; it would be replaced as a whole, so give the folder itself", dir)
 	case !fi.IsDir():
 		return nil, usagef("--out %q: is a file, not a folder; remove it or choose another --out", dir)
 	default:
