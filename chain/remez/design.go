@@ -123,6 +123,7 @@ func (e *engine) initRef() {
 			if _, _, err := c.run(tolCoarse, 50); err == nil && len(c.ref) == e.r+1 {
 				e.ref = append(e.ref[:0], c.ref...)
 				e.local = true
+				e.stepGap = c.stepGap
 				return
 			}
 		}
@@ -153,7 +154,7 @@ func (e *engine) initRef() {
 // sibling returns an engine for length n at grid density d with the same
 // bands, its grid not yet built.
 func (e *engine) sibling(n, d int) *engine {
-	s := &engine{n: n, rate: e.rate, density: d, maxIter: e.maxIter, bands: e.bands, type2: e.type2}
+	s := &engine{n: n, rate: e.rate, density: d, maxIter: e.maxIter, bands: e.bands, type2: e.type2, stepGap: math.Inf(1)}
 	if s.type2 {
 		s.r = n / 2
 	} else {

@@ -99,7 +99,8 @@ type engine struct {
 	prevF      []float64
 	emax       int     // scale of lam: true weights are lam * 2^(emax+m-1)
 	q          int     // the reference point left out of the interpolation
-	localGap   float64 // gap of the last local step
+	localGap   float64 // gap of the last local step that converged
+	stepGap    float64 // gap of the last local step (+Inf before any)
 	// per-band reference counts of the design that seeded this one, and
 	// its reference size
 	seedCnt []int
@@ -190,7 +191,7 @@ func newEngine(n int, rate float64, bands []Band, s Settings) (*engine, error) {
 	if err := validateSpec(rate, bands, s); err != nil {
 		return nil, err
 	}
-	e := &engine{n: n, rate: rate, density: s.Density, maxIter: s.MaxIterations, gridOnly: s.GridOnly}
+	e := &engine{n: n, rate: rate, density: s.Density, maxIter: s.MaxIterations, gridOnly: s.GridOnly, stepGap: math.Inf(1)}
 	if e.density == 0 {
 		e.density = 16
 	}
@@ -892,7 +893,13 @@ func (e *engine) localStep() (float64, bool) {
 				return s * e.errAt(&q)
 			}
 			var v float64
-			h := 0.5 / float64(e.density*e.r) // a grid spacing
+			// A sixteenth of a lobe, an eighth of that once the points
+			// have almost stopped moving: the parabola's top is then
+			// accurate to far below the convergence tolerance.
+			h := 0.5 / float64(16*e.r)
+			if e.stepGap < 1e-2 {
+				h /= 8
+			}
 			switch {
 			case p.f <= a || p.f >= c:
 				v = goldenMaxN(fn, a, c, 30)
@@ -945,7 +952,8 @@ func (e *engine) localStep() (float64, bool) {
 		maxErr = math.Max(maxErr, math.Abs(e.tmp[i].e))
 	}
 	e.ref, e.tmp = e.tmp, e.ref
-	return (maxErr - ad) / ad, true
+	e.stepGap = (maxErr - ad) / ad
+	return e.stepGap, true
 }
 
 // run iterates the exchange from the current reference until the largest
