@@ -17,6 +17,9 @@ import (
 	"stepdown/optimize"
 )
 
+// sweepPlan runs one value's search; tests substitute a fake.
+var sweepPlan = optimize.Plan
+
 func sweepCommand() *cli.Command {
 	return &cli.Command{
 		Name:      "sweep",
@@ -94,6 +97,7 @@ func runSweep(c *cli.Context) error {
 			return set
 		},
 		Done: prog.update,
+		Plan: sweepPlan,
 	}
 	if st.Jobs > 0 {
 		st.Workers = st.Jobs

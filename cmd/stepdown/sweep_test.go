@@ -1,0 +1,127 @@
+package main
+
+import (
+	"bytes"
+	"context"
+	"encoding/json"
+	"os"
+	"path/filepath"
+	"runtime"
+	"strings"
+	"testing"
+
+	"stepdown/chain"
+	"stepdown/cost"
+	"stepdown/optimize"
+)
+
+func TestSweepUsageErrors(t *testing.T) {
+	dir := t.TempDir()
+	tests := []struct {
+		args []string
+		want string
+	}{
+		{[]string{"sweep"}, "--vary: missing"},
+		{[]string{"sweep", "--vary", "bogus=1:2:1"}, `--vary bogus=1:2:1: unknown key "bogus"`},
+		{[]string{"sweep", "--vary", "rejection=80:100:0"}, "--vary rejection=80:100:0: STEP 0 dB must be above zero"},
+		{[]string{"sweep", "--vary", "rejection=1:100:1"}, "over the limit of 50"},
+		{[]string{"sweep", "--vary", "rejection=100:80:5"}, "FROM 100 dB is above TO 80 dB"},
+		{[]string{"sweep", "--vary", "coefficient_bits=14:20:0.5"}, "whole number"},
+		{[]string{"sweep", "--vary", "rejection=80:90:5", "--jobs", "-1"}, "--jobs -1"},
+		{[]string{"sweep", "missing.toml", "--vary", "rejection=80:90:5"}, "missing.toml"},
+		// 122.88 MHz over 1.7 or 1.8 MHz is not an integer: no value can be planned.
+		{[]string{"sweep", "--vary", "output_rate=1.7 MHz:1.8 MHz:100 kHz"}, "every value makes the spec invalid"},
+	}
+	for _, tc := range tests {
+		out := filepath.Join(dir, "out")
+		r := runBinary(t, dir, nil, append(tc.args, "--out", out)...)
+		lines := strings.Split(strings.TrimSpace(r.stderr), "\n")
+		if r.code != exitUsage || len(lines) != 1 || !strings.Contains(lines[0], tc.want) {
+			t.Errorf("%v: exit %d, stderr %q; want exit 2 and one line with %q", tc.args, r.code, r.stderr, tc.want)
+		}
+		if _, err := os.Stat(out); err == nil {
+			t.Errorf("%v: wrote %s", tc.args, out)
+		}
+	}
+}
+
+// fakeSweepPlan stands in for optimize.Plan: one chain whose multiplies grow
+// with the rejection target and whose CIC order steps up above 90 dB.
+func fakeSweepPlan(_ context.Context, s chain.Spec, _ optimize.Settings) (*optimize.Result, error) {
+	n := 4
+	if s.RejectionDB > 90 {
+		n = 5
+	}
+	r1 := 8
+	plan := []chain.StagePlan{{Kind: chain.CIC, Factor: r1, CICOrder: n, CICDelay: 1}, {Kind: chain.FIR, Factor: s.Decimation() / r1}}
+	taps := []float64{0.1, 0.2, 0.4, 0.2, 0.1}
+	ch := &chain.Chain{InputRate: s.InputRate, Plan: plan, Designed: true, Stages: []chain.Stage{
+		chain.CICStage{N: n, M: 1, R: r1, RegisterBits: []int{30, 30}},
+		chain.FIRStage{R: s.Decimation() / r1, Taps: taps, Length: len(taps)},
+	}}
+	f := cost.Figures{MultipliesPerOutput: s.RejectionDB / 4, AddsPerOutput: 40, MemoryWords: 50, MemoryBits: 1000 + int(s.RejectionDB),
+		LatencyS: 1e-6, LatencySamples: 2, Designed: true, Stages: []cost.StageFigures{{}, {}}}
+	f.Analysis.AliasRejectionDB = s.RejectionDB + 2
+	f.Analysis.PassbandRippleDB = s.RippleDB / 2
+	return &optimize.Result{Candidates: 3, Designed: 1, Dropped: map[string]int{},
+		Front: []optimize.Candidate{{Plan: plan, Chain: ch, Figures: f, MarginDB: 2}}, Recommended: 0, Reason: "fake"}, nil
+}
+
+func TestSweepFiles(t *testing.T) {
+	old := sweepPlan
+	sweepPlan = fakeSweepPlan
+	defer func() { sweepPlan = old }()
+	dir := t.TempDir()
+	read := func(out, name string) []byte {
+		b, err := os.ReadFile(filepath.Join(out, name))
+		if err != nil {
+			t.Fatal(err)
+		}
+		return b
+	}
+	var first map[string][]byte
+	oldProcs := runtime.GOMAXPROCS(0)
+	defer runtime.GOMAXPROCS(oldProcs)
+	for _, procs := range []int{1, 3} {
+		runtime.GOMAXPROCS(procs)
+		out := filepath.Join(dir, "sweep")
+		var so, se bytes.Buffer
+		code := run(context.Background(), []string{"stepdown", "sweep", "--vary", "rejection=80:100:5", "--html", "--json", "--out", out}, &so, &se)
+		if code != 0 {
+			t.Fatalf("exit %d: %s", code, se.String())
+		}
+		var doc struct {
+			Schema string `json:"schema"`
+			Values []struct {
+				Status           string `json:"status"`
+				StructureChanged bool   `json:"structure_changed"`
+			} `json:"values"`
+		}
+		if err := json.Unmarshal(so.Bytes(), &doc); err != nil || doc.Schema != "stepdown.sweep/1" || len(doc.Values) != 5 {
+			t.Fatalf("--json: %v %+v", err, doc)
+		}
+		if !doc.Values[3].StructureChanged || doc.Values[2].StructureChanged {
+			t.Errorf("structure changes: %+v", doc.Values)
+		}
+		if !strings.Contains(se.String(), "cic5m1r8 > fir8  <- changes") {
+			t.Errorf("summary lacks the change:\n%s", se.String())
+		}
+		files := map[string][]byte{}
+		for _, n := range []string{"report.json", "sweep.csv", "sweep.svg", "sweep.png", "report.html",
+			"values/01/report.json", "values/05/report.json", "values/05/coefficients/stage2_fir.csv", "values/05/coefficients/stage2_fir.hex"} {
+			files[n] = read(out, n)
+		}
+		if n := bytes.Count(files["sweep.csv"], []byte("\n")); n != 6 {
+			t.Errorf("sweep.csv has %d lines, want 6", n)
+		}
+		if first == nil {
+			first = files
+			continue
+		}
+		for n, b := range files {
+			if !bytes.Equal(b, first[n]) {
+				t.Errorf("GOMAXPROCS %d: %s differs", procs, n)
+			}
+		}
+	}
+}
