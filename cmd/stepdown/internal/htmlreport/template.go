@@ -26,8 +26,9 @@ td.chain { white-space: nowrap; font-size: .92em; }
 .scroll { overflow-x: auto; -webkit-overflow-scrolling: touch; }
 table { border-collapse: collapse; margin: .4em 0 .8em; font-variant-numeric: tabular-nums; font-size: .93em; }
 th, td { padding: .28em .45em; border-bottom: 1px solid #e3e3e3; text-align: left; vertical-align: top; }
-thead th { background: #f3f3f3; border-bottom: 2px solid #999; font-weight: 600; vertical-align: bottom; }
+thead th { background: #f3f3f3; border-bottom: 1px solid #bbb; font-weight: 600; vertical-align: bottom; }
 thead th.n { white-space: normal; }
+thead tr:last-child th { border-bottom: 2px solid #999; }
 td.n, th.n { text-align: right; white-space: nowrap; }
 tr.mark td { background: #eef6fb; font-weight: 600; }
 tr.bad td { color: #8a2c00; }
@@ -179,11 +180,12 @@ const templates = `
 <section id="summary"><h2>Summary</h2>
 {{if .FigureSVG}}<figure>{{.FigureSVG}}<figcaption>The recommended chain's figures (solid) and the least on each front (dashed) against {{.Key}}; dashed vertical lines mark where the recommended chain's structure changes.</figcaption></figure>{{end}}
 <div class="scroll"><table>
-<thead><tr><th class="n">#</th><th class="n">{{.Key}}</th><th>status</th><th>recommended</th><th class="n">mult/out</th><th class="n">memory bits</th>{{if .Clock}}<th class="n">multipliers</th>{{end}}<th class="n">latency</th><th class="n">rejection dB</th><th class="n">ripple dB</th><th class="n">least mult/out</th><th class="n">least memory</th><th class="n">least latency</th></tr></thead>
+<thead><tr><th class="n" rowspan="2">#</th><th class="n" rowspan="2">{{.Key}}</th><th colspan="{{if .Clock}}6{{else}}5{{end}}">recommended chain</th><th colspan="3">least on the front</th></tr>
+<tr><th>chain</th><th class="n">mult/out</th><th class="n">memory bits</th>{{if .Clock}}<th class="n">multi&shy;pliers</th>{{end}}<th class="n">latency</th><th class="n">rejection dB</th><th class="n">mult/out</th><th class="n">memory bits</th><th class="n">latency</th></tr></thead>
 <tbody>
-{{range .Values}}<tr class="{{if .Changed}}mark{{end}}{{if not .HasChain}} bad{{end}}"><td class="n">{{.Index}}</td><td class="n">{{.Text}}</td><td>{{.Status}}</td>{{if .HasChain}}<td class="chain"><a href="#{{.Anchor}}">{{.Notation}}</a>{{if .Changed}} (changes){{end}}</td><td class="n">{{.Rec.Mult}}</td><td class="n">{{.Rec.MemBits}}</td>{{if $.Clock}}<td class="n">{{.Rec.Multipliers}}</td>{{end}}<td class="n">{{.Rec.Latency}}</td><td class="n">{{.Rec.Rejection}}</td><td class="n">{{.Rec.Ripple}}</td><td class="n">{{.BestMult}}</td><td class="n">{{.BestMem}}</td><td class="n">{{.BestLat}}</td>{{else}}<td colspan="{{if $.Clock}}10{{else}}9{{end}}">{{.Detail}}</td>{{end}}</tr>
+{{range .Values}}<tr class="{{if .Changed}}mark{{end}}{{if not .HasChain}} bad{{end}}"><td class="n">{{.Index}}</td><td class="n">{{.Text}}</td>{{if .HasChain}}<td class="chain"><a href="#{{.Anchor}}">{{.Notation}}</a>{{if .Changed}} <span class="tag">new structure</span>{{end}}{{if ne .Status "ok"}} <span class="tag">{{.Status}}</span>{{end}}</td><td class="n">{{.Rec.Mult}}</td><td class="n">{{.Rec.MemBits}}</td>{{if $.Clock}}<td class="n">{{.Rec.Multipliers}}</td>{{end}}<td class="n">{{.Rec.Latency}}</td><td class="n">{{.Rec.Rejection}}</td><td class="n">{{.BestMult}}</td><td class="n">{{.BestMem}}</td><td class="n">{{.BestLat}}</td>{{else}}<td colspan="{{if $.Clock}}9{{else}}8{{end}}"><strong>{{.Status}}:</strong> {{.Detail}}</td>{{end}}</tr>
 {{end}}</tbody></table></div>
-<p>Highlighted rows are where the recommended chain's structure changes from the previous value's.</p>
+<p>Highlighted rows are where the recommended chain's structure changes from the previous value's. The least figures are taken one at a time over each value's front.</p>
 </section>
 
 {{range .Values}}{{if .HasChain}}<section class="value" id="{{.Anchor}}"><h2>{{$.Key}} = {{.Text}}</h2>
