@@ -20,22 +20,28 @@ import (
 // length and then tries the even lengths below it. Even lengths are skipped
 // when a band asks for a non-zero gain at rate/2, where they are zero.
 func MinLength(rate float64, bands []Band, parity, maxTaps int, s Settings) (*Result, error) {
+	r, _, err := minLength(rate, bands, parity, maxTaps, s)
+	return r, err
+}
+
+// minLength is MinLength that also returns its search state (for tests).
+func minLength(rate float64, bands []Band, parity, maxTaps int, s Settings) (*Result, *lengthSearch, error) {
 	if err := validateSpec(rate, bands, s); err != nil {
-		return nil, err
+		return nil, nil, err
 	}
 	if parity < 0 || parity > 2 {
-		return nil, fmt.Errorf("remez: parity = %d: must be 0 (any), 1 (odd) or 2 (even)", parity)
+		return nil, nil, fmt.Errorf("remez: parity = %d: must be 0 (any), 1 (odd) or 2 (even)", parity)
 	}
 	if maxTaps == 0 {
 		maxTaps = 65535
 	}
 	if maxTaps < 3 {
-		return nil, fmt.Errorf("remez: maxTaps = %d: must be at least 3 (0 means 65535)", maxTaps)
+		return nil, nil, fmt.Errorf("remez: maxTaps = %d: must be at least 3 (0 means 65535)", maxTaps)
 	}
 	wb := make([]Band, len(bands))
 	for i, b := range bands {
 		if !(b.MaxError > 0) || math.IsInf(b.MaxError, 0) {
-			return nil, fmt.Errorf("remez: band %d MaxError = %v: MinLength needs a positive, finite error limit for every band", i, b.MaxError)
+			return nil, nil, fmt.Errorf("remez: band %d MaxError = %v: MinLength needs a positive, finite error limit for every band", i, b.MaxError)
 		}
 		wb[i] = b
 		wb[i].Weight = 1 / b.MaxError
@@ -53,27 +59,32 @@ func MinLength(rate float64, bands []Band, parity, maxTaps int, s Settings) (*Re
 		evenOK = g == 0
 	}
 	if parity == 2 && !evenOK {
-		return nil, fmt.Errorf("remez: parity = 2 (even lengths) but band %d wants gain %v at rate/2, where an even-length symmetric filter is zero: use parity 0 or 1", len(bands)-1, bands[len(bands)-1].Gain)
+		return nil, nil, fmt.Errorf("remez: parity = 2 (even lengths) but band %d wants gain %v at rate/2, where an even-length symmetric filter is zero: use parity 0 or 1", len(bands)-1, bands[len(bands)-1].Gain)
 	}
-	m := &lengthSearch{rate: rate, bands: bands, wb: wb, s: s, maxTaps: maxTaps, cache: map[int]*Result{}}
+	m := &lengthSearch{rate: rate, bands: bands, wb: wb, s: s, maxTaps: maxTaps, cache: map[int]*Result{}, ratio: map[int]float64{}}
 	est := m.estimate()
 	switch parity {
 	case 1:
-		return m.finish(m.search(est, 1))
+		r, err := m.finish(m.search(est, 1))
+		return r, m, err
 	case 2:
-		return m.finish(m.search(est, 0))
+		r, err := m.finish(m.search(est, 0))
+		return r, m, err
 	}
 	n, err := m.search(est, 1)
 	if err != nil {
 		if !evenOK {
-			return nil, err
+			return nil, nil, err
 		}
-		return m.finish(m.search(est, 0))
+		r, err := m.finish(m.search(est, 0))
+		return r, m, err
 	}
 	if !evenOK || n-1 < 4 || !m.meets(n-1) {
-		return m.finish(n, nil)
+		r, err := m.finish(n, nil)
+		return r, m, err
 	}
-	return m.finish(m.search(n-1, 0))
+	r, err := m.finish(m.search(n-1, 0))
+	return r, m, err
 }
 
 type lengthSearch struct {
@@ -82,7 +93,8 @@ type lengthSearch struct {
 	wb      []Band // weighted for the design
 	s       Settings
 	maxTaps int
-	cache   map[int]*Result
+	cache   map[int]*Result // results that meet
+	ratio   map[int]float64 // worst measured/allowed error per length
 }
 
 // estimate is the largest Herrmann-Rabiner-Chan length over the
@@ -103,23 +115,24 @@ func (m *lengthSearch) estimate() int {
 }
 
 // meets designs length n (once) and reports whether every band is met on
-// the measured response.
+// the measured response; it records the worst ratio of measured to allowed
+// error, which guides the search.
 func (m *lengthSearch) meets(n int) bool {
-	r, ok := m.cache[n]
-	if !ok {
-		var wdev []float64
-		r, wdev = m.design(n)
+	if _, ok := m.ratio[n]; !ok {
+		r, wdev := m.design(n)
+		worst := math.Inf(1)
 		if r != nil {
+			worst = 0
 			for b := range m.bands {
-				if wdev[b] > m.bands[b].MaxError {
-					m.cache[n] = nil
-					return false
-				}
+				worst = math.Max(worst, wdev[b]/m.bands[b].MaxError)
 			}
 		}
-		m.cache[n] = r
+		m.ratio[n] = worst
+		if worst <= 1 {
+			m.cache[n] = r
+		}
 	}
-	return r != nil
+	return m.ratio[n] <= 1
 }
 
 func (m *lengthSearch) design(n int) (*Result, []float64) {
@@ -156,46 +169,96 @@ func (m *lengthSearch) search(n0, odd int) (int, error) {
 			n0 -= 2
 		}
 	}
-	var lo, hi int // lo fails (0: none tried), hi meets
-	if m.meets(n0) {
-		hi = n0
-		for step := 2; hi > lowest; step *= 2 {
-			c := max(lowest, hi-step)
-			if !m.meets(c) {
-				lo = c
-				break
+	// The log of the worst error ratio falls about linearly with the
+	// length (Herrmann's D/df law), so a safeguarded secant (regula falsi)
+	// on it finds the crossing in a few designs; steps are clamped to the
+	// bracket, and to doubling or halving before one exists.
+	var lo, hi int // longest failing, shortest meeting (0: none yet)
+	var pn [2]int
+	var pg [2]float64
+	np := 0
+	eval := func(n int) {
+		if m.meets(n) {
+			if hi == 0 || n < hi {
+				hi = n
 			}
-			hi = c
+		} else if n > lo {
+			lo = n
 		}
-		if lo == 0 {
+		if g := math.Log(m.ratio[n]); !math.IsInf(g, 0) && !math.IsNaN(g) {
+			pn[0], pg[0] = pn[1], pg[1]
+			pn[1], pg[1] = n, g
+			np++
+		}
+	}
+	eval(n0)
+	last, same := 0, 0
+	for range 60 {
+		if hi > 0 && (hi == lowest || (lo > 0 && hi-lo <= 2)) {
 			return hi, nil
 		}
-	} else {
-		lo = n0
-		for step := 2; ; step *= 2 {
-			c := min(top, lo+step)
-			if m.meets(c) {
-				hi = c
-				break
-			}
-			if c == top {
-				return 0, fmt.Errorf("remez: the bands are not met by any length up to maxTaps = %d: widen the transitions, relax MaxError or raise maxTaps", m.maxTaps)
-			}
-			lo = c
+		if hi == 0 && lo >= top {
+			return 0, fmt.Errorf("remez: the bands are not met by any length up to maxTaps = %d: widen the transitions, relax MaxError or raise maxTaps", m.maxTaps)
 		}
-	}
-	for hi-lo > 2 {
-		mid := lo + (hi-lo)/2
-		if mid%2 != odd {
-			mid++
+		var c float64
+		switch {
+		case np >= 2 && pn[0] != pn[1] && pg[0] != pg[1]:
+			c = float64(pn[1]) - pg[1]*float64(pn[1]-pn[0])/(pg[1]-pg[0])
+		case hi == 0:
+			c = float64(lo) * 1.02
+		default:
+			c = float64(hi) * 0.98
 		}
-		if m.meets(mid) {
-			hi = mid
+		if math.IsNaN(c) {
+			c = float64(lo + hi)
+		}
+		switch {
+		case hi == 0:
+			c = math.Min(math.Max(c, float64(lo+2)), float64(min(top, 2*lo+2)))
+		case lo == 0:
+			c = math.Max(math.Min(c, float64(hi-2)), math.Max(float64(lowest), float64(hi/2)))
+		default:
+			c = math.Min(math.Max(c, float64(lo+2)), float64(hi-2))
+			if same >= 2 { // regula falsi stalls on one side: bisect
+				c = float64(lo+hi) / 2
+			}
+		}
+		n := int(math.Ceil(c))
+		if n%2 != odd {
+			n++
+		}
+		if hi > 0 && n >= hi {
+			n -= 2
+		}
+		if n <= lo {
+			n = lo + 2
+		}
+		n = min(n, top)
+		if _, done := m.ratio[n]; done {
+			// Already designed: close the bracket by one step instead.
+			if hi > 0 {
+				n = hi - 2
+			} else {
+				n = lo + 2
+			}
+		}
+		met := m.meets(n)
+		side := 1
+		if met {
+			side = -1
+		}
+		if side == last {
+			same++
 		} else {
-			lo = mid
+			same = 0
 		}
+		last = side
+		eval(n)
 	}
-	return hi, nil
+	if hi > 0 {
+		return hi, nil
+	}
+	return 0, fmt.Errorf("remez: length search did not settle (last bracket %d..%d taps)", lo, hi)
 }
 
 func (m *lengthSearch) finish(n int, err error) (*Result, error) {

@@ -38,10 +38,15 @@ func TestMinLength(t *testing.T) {
 		{"lp-even", 1, lp, 2},
 		{"bp-any", 48000, bp, 0},
 	} {
-		res, err := MinLength(tc.rate, tc.bands, tc.parity, 0, Settings{})
+		res, search, err := minLength(tc.rate, tc.bands, tc.parity, 0, Settings{})
 		if err != nil {
 			t.Fatalf("%s: %v", tc.name, err)
 		}
+		// Efficiency: estimate, then a few secant/bisection steps.
+		if d := len(search.ratio); d > 10 {
+			t.Errorf("%s: %d designs for one search", tc.name, d)
+		}
+		t.Logf("%s: %d taps after %d designs", tc.name, len(res.Taps), len(search.ratio))
 		n := len(res.Taps)
 		if tc.parity == 1 && n%2 == 0 || tc.parity == 2 && n%2 == 1 {
 			t.Errorf("%s: length %d has the wrong parity", tc.name, n)
