@@ -31,8 +31,10 @@
 // (a passband beyond half the output rate, a non-integer ratio of the input
 // and output rates, ...) are not refused up front: each such value is a row
 // of sweep.csv with status "invalid" and the spec's own message, and the
-// sweep goes on with the other values. The sweep fails only when no value at
-// all gives a chain.
+// sweep goes on with the other values; the figure marks them with a cross on
+// the axis. When every value is invalid the command refuses the range (exit
+// status 2); when no value gives a chain it fails (exit status 1) and leaves
+// the output folder as it was.
 //
 // A value is applied by rewriting the spec text (the TOML key is set or
 // added) and parsing it again with the command line's spec parser, so every

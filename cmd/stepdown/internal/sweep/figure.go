@@ -279,6 +279,19 @@ func draw1(c draw.Canvas, d FigureData) {
 				p.Add(l, pts)
 			}
 		}
+		var gaps plotter.XYs
+		for _, pt := range d.Pts {
+			if !pt.OK {
+				gaps = append(gaps, plotter.XY{X: pt.Value / xu.scale, Y: 0})
+			}
+		}
+		if len(gaps) > 0 {
+			sc, err := plotter.NewScatter(gaps)
+			if err == nil {
+				sc.Shape, sc.Color, sc.Radius = draw.CrossGlyph{}, vermilion, vg.Points(4)
+				p.Add(sc)
+			}
+		}
 		p.Y.Min = 0
 		p.Y.Max = ymax * 1.12
 		if ymax == 0 {
@@ -398,14 +411,17 @@ func drawLegend(c draw.Canvas, x, y vg.Length, ls text.Style) {
 		glyph draw.GlyphDrawer
 	}{
 		{"recommended chain", blue, nil, draw.CircleGlyph{}},
-		{"least on the front (each figure on its own)", grey, []vg.Length{vg.Points(4), vg.Points(3)}, draw.BoxGlyph{}},
-		{"structure of the recommended chain changes", vermilion, []vg.Length{vg.Points(2), vg.Points(2)}, nil},
+		{"least on the front (per figure)", grey, []vg.Length{vg.Points(4), vg.Points(3)}, draw.BoxGlyph{}},
+		{"structure changes", vermilion, []vg.Length{vg.Points(2), vg.Points(2)}, nil},
+		{"no chain (see sweep.csv)", vermilion, nil, draw.CrossGlyph{}},
 	}
 	ls.YAlign = draw.YCenter
 	mid := y + ls.Height("Xg")/2 + vg.Points(2)
 	for _, it := range items {
 		w := vg.Points(22)
-		if it.glyph == nil {
+		if _, cross := it.glyph.(draw.CrossGlyph); cross {
+			c.DrawGlyph(draw.GlyphStyle{Color: it.col, Radius: vg.Points(4), Shape: it.glyph}, vg.Point{X: x + w/2, Y: mid})
+		} else if it.glyph == nil {
 			c.StrokeLine2(draw.LineStyle{Color: it.col, Width: vg.Points(1), Dashes: it.dash}, x+w/2, mid-vg.Points(6), x+w/2, mid+vg.Points(6))
 		} else {
 			c.StrokeLine2(draw.LineStyle{Color: it.col, Width: vg.Points(1.5), Dashes: it.dash}, x, mid, x+w, mid)
