@@ -236,7 +236,11 @@ func draw1(c draw.Canvas, d FigureData) {
 
 	// The legend is a strip below the panels.
 	legH := rowH + vg.Points(4)
-	drawLegend(c, area.Min.X, area.Min.Y, ls)
+	gapsAny := false
+	for _, p := range d.Pts {
+		gapsAny = gapsAny || !p.OK
+	}
+	drawLegend(c, area.Min.X, area.Min.Y, ls, gapsAny)
 	area.Min.Y += legH
 
 	var ps [][]*plot.Plot
@@ -403,7 +407,7 @@ func (v vline) Plot(c draw.Canvas, p *plot.Plot) {
 }
 
 // drawLegend writes the key of the figure's lines on one row at (x, y).
-func drawLegend(c draw.Canvas, x, y vg.Length, ls text.Style) {
+func drawLegend(c draw.Canvas, x, y vg.Length, ls text.Style, gaps bool) {
 	items := []struct {
 		name  string
 		col   color.Color
@@ -414,6 +418,9 @@ func drawLegend(c draw.Canvas, x, y vg.Length, ls text.Style) {
 		{"least on the front (per figure)", grey, []vg.Length{vg.Points(4), vg.Points(3)}, draw.BoxGlyph{}},
 		{"structure changes", vermilion, []vg.Length{vg.Points(2), vg.Points(2)}, nil},
 		{"no chain (see sweep.csv)", vermilion, nil, draw.CrossGlyph{}},
+	}
+	if !gaps {
+		items = items[:3]
 	}
 	ls.YAlign = draw.YCenter
 	mid := y + ls.Height("Xg")/2 + vg.Points(2)
