@@ -118,6 +118,7 @@ func (e *engine) initRef() {
 	}
 	if e.density > coarseDensity {
 		c := e.sibling(e.n, coarseDensity)
+		c.handOff = true
 		if c.buildGrid() == nil {
 			c.initRef()
 			if _, _, err := c.run(tolCoarse, 50); err == nil && len(c.ref) == e.r+1 {

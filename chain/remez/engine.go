@@ -75,6 +75,7 @@ type engine struct {
 	gridOnly bool
 	onGrid   bool // keep extrema on grid points (seed designs)
 	local    bool // start with grid-free local steps (seeded reference)
+	handOff  bool // stop once a grid pass finds the structure right
 	bands    []nband
 	grid     []point
 	bstart   []int // grid[bstart[b]:bstart[b+1]] is band b
@@ -522,32 +523,58 @@ func (e *engine) level() error {
 	return nil
 }
 
-// prodY multiplies prod (mantissa, exponent ex) by 2 (y_j - yi) over ys,
-// renormalising every 32 factors, which cannot leave the range of normal
+// prodY multiplies prod (mantissa, exponent ex) by 2 (y_j - yi) over ys.
+// Four partial products break the multiply latency chain; each is
+// renormalised every 32 factors, which cannot leave the range of normal
 // numbers (each factor is at most 4 and only near neighbours are small).
 func prodY(ys []float64, yi, prod float64, ex int) (float64, int) {
-	for k, v := range ys {
-		prod *= 2 * (v - yi)
-		if k&31 == 31 {
-			fr, x := math.Frexp(prod)
-			prod, ex = fr, ex+x
+	p0, p1, p2, p3 := prod, 1.0, 1.0, 1.0
+	k := 0
+	for ; k+3 < len(ys); k += 4 {
+		p0 *= 2 * (ys[k] - yi)
+		p1 *= 2 * (ys[k+1] - yi)
+		p2 *= 2 * (ys[k+2] - yi)
+		p3 *= 2 * (ys[k+3] - yi)
+		if k&127 == 124 {
+			p0, p1, p2, p3, ex = renorm4(p0, p1, p2, p3, ex)
 		}
 	}
-	fr, x := math.Frexp(prod)
+	for ; k < len(ys); k++ {
+		p0 *= 2 * (ys[k] - yi)
+	}
+	p0, p1, p2, p3, ex = renorm4(p0, p1, p2, p3, ex)
+	fr, x := math.Frexp(p0 * p1 * p2 * p3)
 	return fr, ex + x
 }
 
 // prodZ is prodY for the factors 2 (zi - z_j).
 func prodZ(zs []float64, zi, prod float64, ex int) (float64, int) {
-	for k, v := range zs {
-		prod *= 2 * (zi - v)
-		if k&31 == 31 {
-			fr, x := math.Frexp(prod)
-			prod, ex = fr, ex+x
+	p0, p1, p2, p3 := prod, 1.0, 1.0, 1.0
+	k := 0
+	for ; k+3 < len(zs); k += 4 {
+		p0 *= 2 * (zi - zs[k])
+		p1 *= 2 * (zi - zs[k+1])
+		p2 *= 2 * (zi - zs[k+2])
+		p3 *= 2 * (zi - zs[k+3])
+		if k&127 == 124 {
+			p0, p1, p2, p3, ex = renorm4(p0, p1, p2, p3, ex)
 		}
 	}
-	fr, x := math.Frexp(prod)
+	for ; k < len(zs); k++ {
+		p0 *= 2 * (zi - zs[k])
+	}
+	p0, p1, p2, p3, ex = renorm4(p0, p1, p2, p3, ex)
+	fr, x := math.Frexp(p0 * p1 * p2 * p3)
 	return fr, ex + x
+}
+
+// renorm4 moves the exponents of four partial products into ex.
+func renorm4(p0, p1, p2, p3 float64, ex int) (float64, float64, float64, float64, int) {
+	f0, e0 := math.Frexp(p0)
+	f1, e1 := math.Frexp(p1)
+	f2, e2 := math.Frexp(p2)
+	f3, e3 := math.Frexp(p3)
+	return f0, f1, f2, f3, ex + e0 + e1 + e2 + e3
 }
 
 // parallel runs fn over [0, n) in contiguous chunks, one per processor,
@@ -1019,6 +1046,12 @@ func (e *engine) run(tol float64, maxIter int) (int, bool, error) {
 			e.best = append(e.best[:0], e.ref...)
 		}
 		if gap <= tol {
+			conv = true
+			break
+		}
+		if e.handOff && gap < 0.5 {
+			// The structure is right: the dense stage's local steps take
+			// it from here.
 			conv = true
 			break
 		}
