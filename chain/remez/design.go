@@ -134,7 +134,6 @@ func (e *engine) initRef() {
 		n2++
 	}
 	sub := e.sibling(n2, e.density)
-	sub.onGrid = true
 	if sub.buildGrid() != nil {
 		e.uniformRef()
 		return
