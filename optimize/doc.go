@@ -42,7 +42,8 @@
 // when a CIC misses the rejection at its factor, when its first null falls
 // in the passband or its droop cannot be corrected nor afforded, when a
 // half-band's edges do not fit, when a FIR stage is estimated under 3 taps
-// or over 2047 (too long to design within the time budget), and when a CIC
+// or over Settings.MaxTaps (default 511: longer designs take seconds each),
+// and when a CIC
 // is beaten by another searched CIC of the same factor that needs no more
 // memory (compared by unpruned register bits), latency, droop at fp or
 // output width and less of one: the rest of the chain being equal such a CIC

@@ -19,7 +19,7 @@ const (
 	ReasonCICNull        = "cic null in passband"
 	ReasonGaveUp         = "a stage failed to design in other chains"
 	ReasonCICBeaten      = "cic beaten by another order or delay"
-	ReasonLongFIR        = "fir stage over 2047 taps"
+	ReasonLongFIR        = "fir stage over the tap limit"
 )
 
 type dropCode uint8
@@ -35,10 +35,10 @@ const (
 	dropCICBeaten
 )
 
-// maxTaps bounds a stage's estimated length: a longer stage is dropped
-// before design, because designing it would take the search's whole time
-// budget and no front-end chain wants it.
-const maxTaps = 2047
+// defaultMaxTaps is Settings.MaxTaps' default. A stage estimated longer is
+// dropped before design: a design of a thousand taps or more takes seconds,
+// and such a stage reaches the front only at its low-latency end.
+const defaultMaxTaps = 511
 
 var dropNames = [...]string{
 	dropCICRejection:  ReasonCICRejection,
@@ -139,10 +139,11 @@ type stageVal struct {
 // allocates nothing once its stages have been seen. An estimator is not
 // safe for concurrent use.
 type estimator struct {
-	p     params
-	tol   float64 // relative error allowed each estimated stage
-	cache map[stageKey]stageVal
-	keys  []realKey
+	p       params
+	tol     float64 // relative error allowed each estimated stage
+	maxTaps int     // longest stage estimate kept
+	cache   map[stageKey]stageVal
+	keys    []realKey
 	// beaten and margins cache cicBeaten and cicMargin by factor, order
 	// and delay.
 	beaten  map[[3]int]bool
@@ -157,7 +158,7 @@ func newEstimator(p params, tol float64) *estimator {
 	if tol == 0 {
 		tol = defaultTolerance
 	}
-	return &estimator{p: p, tol: tol, cache: make(map[stageKey]stageVal), beaten: map[[3]int]bool{}, margins: map[[3]int]float64{},
+	return &estimator{p: p, tol: tol, maxTaps: defaultMaxTaps, cache: make(map[stageKey]stageVal), beaten: map[[3]int]bool{}, margins: map[[3]int]float64{},
 		orders: []int{1, 2, 3, 4, 5, 6, 7}, delays: []int{1, 2}}
 }
 
@@ -313,7 +314,7 @@ func (e *estimator) stage(k stageKey) stageVal {
 		dev := math.Min(dpi, p.ds)
 		l := math.Ceil(herrmann(dev, dev, (hbStop-edge)/rate))
 		kk := math.Max(1, math.Ceil((l+1)/4))
-		if 4*kk-1 > maxTaps {
+		if 4*kk-1 > float64(e.maxTaps) {
 			v.drop = dropLongFIR
 			return v
 		}
@@ -339,7 +340,7 @@ func (e *estimator) stage(k stageKey) stageVal {
 			v.drop = dropShortFIR
 			return v
 		}
-		if l > maxTaps {
+		if l > float64(e.maxTaps) {
 			v.drop = dropLongFIR
 			return v
 		}

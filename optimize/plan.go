@@ -65,6 +65,9 @@ func (s *Settings) check() error {
 			return fmt.Errorf("optimize: %s = %g: must be finite and not negative", w.name, w.v)
 		}
 	}
+	if s.MaxTaps < 0 {
+		return fmt.Errorf("optimize: MaxTaps = %d: must not be negative", s.MaxTaps)
+	}
 	if s.MaxDesigns < 0 {
 		return fmt.Errorf("optimize: MaxDesigns = %d: must not be negative", s.MaxDesigns)
 	}
@@ -163,6 +166,9 @@ func search(ctx context.Context, p params, s *Settings, est *estimator, des desi
 	sp := newSpace(&p, s)
 	est.orders, est.delays = sp.orders, sp.delays
 	est.keepBeaten = s.Exhaustive
+	if s.MaxTaps > 0 {
+		est.maxTaps = s.MaxTaps
+	}
 	if p.d < 1 {
 		return nil, fmt.Errorf("optimize: decimation %d: must be at least 1", p.d)
 	}
@@ -653,7 +659,7 @@ func (e *estimator) excluded(fronts []bandRef) bool {
 }
 
 // defaultMaxDesigns is Settings.MaxDesigns' default.
-const defaultMaxDesigns = 300
+const defaultMaxDesigns = 40
 
 // debugf traces the tiers in tests.
 var debugf = func(string, ...any) {}
