@@ -22,6 +22,8 @@ const (
 	// References of at most this many points start evenly spread; longer
 	// ones are scaled from a design of about half the length.
 	seedMin = 64
+	// A seed design is this many times shorter.
+	seedRatio = 2
 	// Coarse grid density and tolerance of the first stage of a long design.
 	coarseDensity = 4
 	tolCoarse     = 1e-2
@@ -129,7 +131,7 @@ func (e *engine) initRef() {
 			}
 		}
 	}
-	n2 := e.n / 2
+	n2 := e.n / seedRatio
 	if n2%2 != e.n%2 {
 		n2++
 	}
