@@ -615,6 +615,10 @@ func bary(x float64, xr, mu, c []float64) float64 {
 	c = c[:n]
 	var n0, d0, n1, d1 float64
 	k := 0
+	if haveAVX2 && n >= 16 {
+		k = n &^ 15
+		n0, d0 = baryAVX2(x, &xr[0], &mu[0], &c[0], k)
+	}
 	for ; k+3 < n; k += 4 {
 		a := x - xr[k]
 		b := x - xr[k+1]

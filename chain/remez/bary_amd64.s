@@ -1,0 +1,87 @@
+//go:build amd64 && !purego
+
+#include "textflag.h"
+
+DATA ·one+0(SB)/8, $1.0
+GLOBL ·one(SB), RODATA|NOPTR, $8
+
+// func baryAVX2(x float64, xr, mu, c *float64, n int) (num, den float64)
+TEXT ·baryAVX2(SB), NOSPLIT, $0-56
+	VBROADCASTSD x+0(FP), Y0
+	VBROADCASTSD ·one(SB), Y15
+	MOVQ xr+8(FP), SI
+	MOVQ mu+16(FP), DI
+	MOVQ c+24(FP), R8
+	MOVQ n+32(FP), CX
+	VXORPD Y10, Y10, Y10
+	VXORPD Y11, Y11, Y11
+	VXORPD Y12, Y12, Y12
+	VXORPD Y13, Y13, Y13
+	XORQ AX, AX
+
+loop:
+	CMPQ AX, CX
+	JGE  done
+	VSUBPD 0(SI)(AX*8), Y0, Y1
+	VSUBPD 32(SI)(AX*8), Y0, Y2
+	VSUBPD 64(SI)(AX*8), Y0, Y3
+	VSUBPD 96(SI)(AX*8), Y0, Y4
+	VMULPD Y2, Y1, Y5
+	VMULPD Y4, Y3, Y6
+	VMULPD Y6, Y5, Y7
+	VDIVPD Y7, Y15, Y7
+	VMULPD Y7, Y6, Y8
+	VMULPD Y7, Y5, Y9
+	VMULPD Y8, Y2, Y5
+	VMULPD Y8, Y1, Y6
+	VMULPD Y9, Y4, Y7
+	VMULPD Y9, Y3, Y8
+	VMULPD 0(DI)(AX*8), Y5, Y5
+	VMULPD 32(DI)(AX*8), Y6, Y6
+	VMULPD 64(DI)(AX*8), Y7, Y7
+	VMULPD 96(DI)(AX*8), Y8, Y8
+	VFMADD231PD 0(R8)(AX*8), Y5, Y10
+	VFMADD231PD 32(R8)(AX*8), Y6, Y12
+	VFMADD231PD 64(R8)(AX*8), Y7, Y10
+	VFMADD231PD 96(R8)(AX*8), Y8, Y12
+	VADDPD Y5, Y11, Y11
+	VADDPD Y6, Y13, Y13
+	VADDPD Y7, Y11, Y11
+	VADDPD Y8, Y13, Y13
+	ADDQ $16, AX
+	JMP  loop
+
+done:
+	VADDPD       Y12, Y10, Y10
+	VADDPD       Y13, Y11, Y11
+	VEXTRACTF128 $1, Y10, X1
+	VADDPD       X1, X10, X10
+	VUNPCKHPD    X10, X10, X1
+	VADDSD       X1, X10, X10
+	VMOVSD       X10, num+40(FP)
+	VEXTRACTF128 $1, Y11, X2
+	VADDPD       X2, X11, X11
+	VUNPCKHPD    X11, X11, X2
+	VADDSD       X2, X11, X11
+	VMOVSD       X11, den+48(FP)
+	VZEROUPPER
+	RET
+
+// func cpuid(eaxArg, ecxArg uint32) (eax, ebx, ecx, edx uint32)
+TEXT ·cpuid(SB), NOSPLIT, $0-24
+	MOVL eaxArg+0(FP), AX
+	MOVL ecxArg+4(FP), CX
+	CPUID
+	MOVL AX, eax+8(FP)
+	MOVL BX, ebx+12(FP)
+	MOVL CX, ecx+16(FP)
+	MOVL DX, edx+20(FP)
+	RET
+
+// func xgetbv() (eax, edx uint32)
+TEXT ·xgetbv(SB), NOSPLIT, $0-8
+	MOVL $0, CX
+	XGETBV
+	MOVL AX, eax+0(FP)
+	MOVL DX, edx+4(FP)
+	RET
