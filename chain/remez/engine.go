@@ -73,7 +73,6 @@ type engine struct {
 	density  int
 	maxIter  int
 	gridOnly bool
-	onGrid   bool // keep extrema on grid points (seed designs)
 	local    bool // start with grid-free local steps (seeded reference)
 	handOff  bool // stop once a grid pass finds the structure right
 	bands    []nband
@@ -89,19 +88,18 @@ type engine struct {
 	mant          []float64
 	expo          []int
 
-	cand       []point // candidate extrema
-	cidx       []int32 // their grid indices, -1 at band edges
-	ry, rz     []float64
-	mid, lefts []float64
-	meas       []point
-	measV      []float64
-	tmp        []point
-	best       []point
-	prevF      []float64
-	emax       int     // scale of lam: true weights are lam * 2^(emax+m-1)
-	q          int     // the reference point left out of the interpolation
-	localGap   float64 // gap of the last local step that converged
-	stepGap    float64 // gap of the last local step (+Inf before any)
+	cand     []point // candidate extrema
+	cidx     []int32 // their grid indices, -1 at band edges
+	ry, rz   []float64
+	meas     []point
+	measV    []float64
+	tmp      []point
+	best     []point
+	prevF    []float64
+	emax     int     // scale of lam: true weights are lam * 2^(emax+m-1)
+	q        int     // the reference point left out of the interpolation
+	localGap float64 // gap of the last local step that converged
+	stepGap  float64 // gap of the last local step (+Inf before any)
 	// per-band reference counts of the design that seeded this one, and
 	// its reference size
 	seedCnt []int
@@ -715,7 +713,7 @@ func (e *engine) extremaMode(full, confirm bool) float64 {
 			e.cand = append(e.cand, *p)
 		}
 	}
-	if !e.gridOnly && !e.onGrid {
+	if !e.gridOnly {
 		evals := 1
 		if full {
 			evals = 8
@@ -895,11 +893,7 @@ func (e *engine) exchange() error {
 func (e *engine) localStep() (float64, bool) {
 	m := len(e.ref)
 	e.tmp = append(e.tmp[:0], e.ref...)
-	e.mid = grow(e.mid, m)
 	ad := math.Abs(e.delta)
-	// e.mid[i] holds s_i E at the left end of point i's bracket.
-	lefts := grow(e.lefts, m)
-	e.lefts = lefts
 	bad := atomic.Bool{}
 	parallel(m, 6*m*len(e.xr), func(lo, hi int) {
 		for i := lo; i < hi; i++ {
