@@ -12,8 +12,13 @@ import (
 const resync = 32
 
 // Magnitude returns |H(f)| of the filter h at f Hz for a sample rate rate,
-// evaluated directly (no FFT, no allocation). h need not be symmetric.
+// evaluated directly (no FFT, no allocation). h need not be symmetric; when
+// it is (exactly, as every design of this package is), Magnitude returns
+// |Amplitude|, which pairs the taps and costs about a quarter as much.
 func Magnitude(h []float64, f, rate float64) float64 {
+	if symmetric(h) {
+		return math.Abs(Amplitude(h, f, rate))
+	}
 	w := 2 * math.Pi * f / rate
 	sw, cw := math.Sincos(w)
 	var re, im float64
@@ -27,6 +32,15 @@ func Magnitude(h []float64, f, rate float64) float64 {
 		}
 	}
 	return math.Hypot(re, im)
+}
+
+func symmetric(h []float64) bool {
+	for i, j := 0, len(h)-1; i < j; i, j = i+1, j-1 {
+		if h[i] != h[j] {
+			return false
+		}
+	}
+	return true
 }
 
 // Amplitude returns the zero-phase amplitude A(f) = Re(exp(j w c) H(exp(j w)))

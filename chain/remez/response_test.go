@@ -36,11 +36,18 @@ func TestMagnitudeDirichlet(t *testing.T) {
 }
 
 func TestMagnitudeAgainstNaive(t *testing.T) {
-	h := []float64{0.1, -0.3, 0.25, 1.5, -0.7, 0.05, 0.2, 0.9, -0.01}
-	for _, f := range []float64{0, 0.05, 0.3, 0.5} {
-		want := cmplx.Abs(naive(h, f, 1))
-		if got := Magnitude(h, f, 1); math.Abs(got-want) > 1e-13 {
-			t.Errorf("f=%v: %v, want %v", f, got, want)
+	// An asymmetric filter (the general path) and symmetric ones of both
+	// parities (the paired path).
+	for _, h := range [][]float64{
+		{0.1, -0.3, 0.25, 1.5, -0.7, 0.05, 0.2, 0.9, -0.01},
+		{0.1, -0.3, 0.25, 1.5, 0.25, -0.3, 0.1},
+		{0.1, -0.3, 0.25, 0.25, -0.3, 0.1},
+	} {
+		for _, f := range []float64{0, 0.05, 0.3, 0.5} {
+			want := cmplx.Abs(naive(h, f, 1))
+			if got := Magnitude(h, f, 1); math.Abs(got-want) > 1e-13 {
+				t.Errorf("h=%v f=%v: %v, want %v", h, f, got, want)
+			}
 		}
 	}
 }
