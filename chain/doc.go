@@ -30,7 +30,10 @@
 //
 //   - Multiband FIR: stopbands [k Fi - fa, k Fi + fa], k = 1..floor(Di/2),
 //     clipped to [0, F(i-1)/2] and merged where they touch; the rest is
-//     don't-care. As the last stage the first band starts at fs (which
+//     don't-care; gaps between them narrower than a quarter of the stage's
+//     transition band (first stopband edge - fp) are closed, since a filter
+//     cannot use a gap that narrow and the exchange converges badly on such
+//     slivers. As the last stage the first band starts at fs (which
 //     Normalize keeps <= FK - fa, so this is DESIGN's min(fs, FK - fa)): the
 //     output is then also a lowpass at fs on the final stage's own axis.
 //   - Lowpass FIR: one stopband [Fi - fa, F(i-1)/2]; as the last stage
