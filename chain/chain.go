@@ -78,6 +78,8 @@ type Chain struct {
 
 // Settings tunes how stages are designed. The zero value is the default.
 type Settings struct {
+	// Remez is handed to the design engine; its zero value is the engine's
+	// default (grid density 16, 100 iterations).
 	Remez remez.Settings
 }
 

@@ -46,8 +46,12 @@
 //     Fi/2. Deviation from DESIGN: DESIGN allows a last half-band only when
 //     fs >= FK - fp, the case p = fp; we also accept a wider p, which keeps
 //     the passband flat further out and meets the same bands.
-//   - CIC: no design; its rejection is read on the same alias bands, its
-//     droop must be corrected by a later FIR stage.
+//   - CIC: no design; its rejection is read on the same alias bands, its droop
+//     must be corrected by a later FIR stage. A CIC may stand anywhere in a
+//     plan (first is the usual place). Its registers are pruned by Hogenauer's
+//     method for an output as wide as spec.OutputBits (NewCICStage); its
+//     input is spec.InputBits wide when it is first, spec.OutputBits wide
+//     after another stage.
 //
 // Ripple budget: the CIC droop that no later stage corrects, -20 log10
 // |H_cic(fp)| (the passband lies in the CIC's main lobe, where it falls
@@ -58,7 +62,8 @@
 // because a cascade's max/min ratio is at most the product of its stages'.
 // The compensating stage is the last FIR (not half-band) stage after the
 // first CIC; it corrects every CIC before it, with desired gain 1/prod|H_cic|
-// on [0, fp] and error weight prod|H_cic|, so its error is relative
+// on [0, fp] and error weight prod|H_cic|/dp_i (against its stopbands'
+// 1/ds), so its error is relative
 // (|A H_cic - 1| <= dp_i): its leftover droop is inside its own share.
 // Every stage meets the full rejection target ds on its own bands; a
 // half-band is designed for min(dp_i, ds) on both bands.
