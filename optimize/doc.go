@@ -65,15 +65,21 @@
 // A stage's real design and price depend only on what its estimate depends
 // on, plus the CIC whose droop it corrects. So designing one chain teaches
 // the real figures of each of its stages for every candidate that contains
-// them. Rounds of real designs (chain.Design, then cost.Evaluate, which
-// measures the cascade with chain.Analyze) cover every stage of the band;
-// the band is then priced exactly from the stages learnt, and the front of
-// that pricing is designed for real (most of it already was). A designed
+// them. Rounds of real designs (chain.Design, priced by cost.Price) cover
+// every stage of the band; the band is then priced exactly from the stages
+// learnt, and the front of that pricing is designed for real (most of it
+// already was) and its members measured (cost.Evaluate, whose cascade
+// analysis costs seconds at large ratios, so only front members get it). A
 // chain that fails to design, or whose measured alias rejection or passband
 // ripple misses the spec, is dropped with its reason counted and the front
-// re-taken without it, until it stands. The result's front is taken over
-// every chain designed for real: nothing on it is an estimate. A design
-// failure never ends the search.
+// re-taken without it, until it stands. The result's front holds only
+// chains designed and measured for real: nothing on it is an estimate. A
+// design failure never ends the search.
+//
+// Real designs cost 5 ms to 5 s each, so Settings.MaxDesigns (default 40)
+// caps them: the band's nearest members come first, and Result.Unsettled
+// counts the candidates the cap left undecided (zero means the front is
+// that of every candidate within the model above).
 //
 // Settings.Exhaustive designs every feasible candidate instead (and keeps
 // the beaten CICs): it exists to check that the two tiers give the same

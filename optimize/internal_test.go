@@ -319,16 +319,21 @@ func (f fakeDesigner) design(plan []chain.StagePlan) (Candidate, string) {
 		total.MemoryBits += st.MemoryBits
 		total.LatencyS += st.LatencyS
 	}
+	total.Designed = true
+	return Candidate{Plan: clonePlan(plan), Figures: total}, ""
+}
+
+func (f fakeDesigner) analyze(c Candidate) (Candidate, string) {
 	// Whether the cascade misses does not hang on the CIC's order and delay
 	// (the search assumes a CIC with less droop is no harder to follow).
-	bare := clonePlan(plan)
+	bare := clonePlan(c.Plan)
 	bare[0].CICOrder, bare[0].CICDelay = 0, 0
 	h := hashOf(bare)
 	if h%37 == 0 {
 		return Candidate{}, ReasonMissRejection
 	}
-	total.Designed = true
-	return Candidate{Plan: clonePlan(plan), Figures: total, MarginDB: float64(h%7) / 10}, ""
+	c.MarginDB = float64(h%7) / 10
+	return c, ""
 }
 
 func fakeSearch(t testing.TB, p params, s Settings) *Result {

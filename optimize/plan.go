@@ -112,14 +112,17 @@ func newSpace(p *params, s *Settings) *space {
 	return sp
 }
 
-// designer designs one candidate for real. It returns the candidate, or a
-// non-empty reason to drop it.
+// designer designs one candidate for real and prices it (design), and
+// measures a designed candidate's cascade against the spec (analyze, the
+// costlier half for large ratios, so it is spent on front members only).
+// Each returns the candidate, or a non-empty reason to drop it.
 type designer interface {
 	design(plan []chain.StagePlan) (Candidate, string)
+	analyze(c Candidate) (Candidate, string)
 }
 
 type realDesigner struct {
-	spec chain.Spec
+	spec chain.Spec // normalised
 	s    *Settings
 }
 
@@ -128,7 +131,15 @@ func (r realDesigner) design(plan []chain.StagePlan) (Candidate, string) {
 	if err != nil {
 		return Candidate{}, ReasonDesignFailed
 	}
-	f, err := cost.Evaluate(r.spec, c, r.s.Cost)
+	f, err := cost.Price(r.spec, c, r.s.Cost)
+	if err != nil {
+		return Candidate{}, ReasonEvaluateFailed
+	}
+	return Candidate{Plan: plan, Chain: c, Figures: f}, ""
+}
+
+func (r realDesigner) analyze(c Candidate) (Candidate, string) {
+	f, err := cost.Evaluate(r.spec, c.Chain, r.s.Cost)
 	if err != nil {
 		return Candidate{}, ReasonEvaluateFailed
 	}
@@ -140,7 +151,8 @@ func (r realDesigner) design(plan []chain.StagePlan) (Candidate, string) {
 	if a.PassbandRippleDB > r.spec.RippleDB+rippleSlackDB || math.IsNaN(a.PassbandRippleDB) {
 		return Candidate{}, ReasonMissRipple
 	}
-	return Candidate{Plan: plan, Chain: c, Figures: f, MarginDB: margin}, ""
+	c.Figures, c.MarginDB = f, margin
+	return c, ""
 }
 
 // scored is a candidate kept from the estimate tier.
@@ -154,10 +166,12 @@ type scored struct {
 // kept), which bounds memory for the largest ratios.
 const maxBand = 1 << 17
 
-// outcome is what one real design gave.
+// outcome is what one real design gave, and whether its cascade has been
+// analysed.
 type outcome struct {
-	c      Candidate
-	reason string
+	c        Candidate
+	reason   string
+	analyzed bool
 }
 
 // search is Plan after validation, with the estimate and design tiers
@@ -304,7 +318,7 @@ func search(ctx context.Context, p params, s *Settings, est *estimator, des desi
 		}
 		done := runAll(ctx, jobs, len(todo), func(i int) {
 			c, why := des.design(todo[i])
-			outs[i] = outcome{c, why}
+			outs[i] = outcome{c: c, reason: why}
 		}, prog)
 		all := true
 		for i, ok := range done {
@@ -323,6 +337,109 @@ func search(ctx context.Context, p params, s *Settings, est *estimator, des desi
 		return all
 	}
 
+	// analyzeAll analyses the designed, unanalysed plans among plans.
+	analyzeAll := func(plans [][]chain.StagePlan) bool {
+		var todo []string
+		for _, pl := range plans {
+			k := planKey(pl)
+			if o, ok := memo[k]; ok && o.reason == "" && !o.analyzed {
+				todo = append(todo, k)
+			}
+		}
+		sort.Strings(todo)
+		outs := make([]outcome, len(todo))
+		base := total
+		total += len(todo)
+		var prog func(int, int)
+		if s.Progress != nil {
+			prog = func(d, _ int) { s.Progress(base+d, total) }
+		}
+		done := runAll(ctx, jobs, len(todo), func(i int) {
+			c, why := des.analyze(memo[todo[i]].c)
+			outs[i] = outcome{c: c, reason: why, analyzed: true}
+		}, prog)
+		all := true
+		for i, ok := range done {
+			if !ok {
+				all = false
+				continue
+			}
+			memo[todo[i]] = outs[i]
+			if outs[i].reason != "" {
+				res.Dropped[outs[i].reason]++
+			}
+		}
+		return all
+	}
+	maxDesigns := s.MaxDesigns
+	if maxDesigns == 0 {
+		maxDesigns = defaultMaxDesigns
+	}
+	if s.Exhaustive {
+		maxDesigns = math.MaxInt
+	}
+	// settle takes the front of a pool of plans with their figures (real
+	// where designed, exact from learnt stages otherwise), and designs and
+	// analyses its members until every member is designed, analysed and
+	// meets the spec, replacing those that fail. It reports false when
+	// cancelled, and how many front members the design cap left undesigned.
+	settle := func(plans [][]chain.StagePlan, fs []figs) (bool, int) {
+		gone := make([]bool, len(plans))
+		for {
+			for i, pl := range plans {
+				if o, ok := memo[planKey(pl)]; ok {
+					if o.reason != "" {
+						gone[i] = true
+					} else {
+						fs[i] = candFigs(&o.c)
+					}
+				}
+			}
+			var fr frontSet
+			for i := range fs {
+				if !gone[i] {
+					fr.add(fs[i], i)
+				}
+			}
+			var need, members [][]chain.StagePlan
+			for _, i := range fr.id {
+				members = append(members, plans[i])
+				if _, ok := memo[planKey(plans[i])]; !ok {
+					need = append(need, plans[i])
+				}
+			}
+			debugf("settle: front %d, to design %d", len(members), len(need))
+			if len(need) > 0 {
+				n := len(need)
+				if left := maxDesigns - res.Designed; n > left {
+					need = need[:max(left, 0)]
+				}
+				if !designAll(need) {
+					return false, 0
+				}
+				if len(need) < n {
+					if !analyzeAll(members) {
+						return false, 0
+					}
+					return true, n - len(need)
+				}
+				continue
+			}
+			if !analyzeAll(members) {
+				return false, 0
+			}
+			failed := false
+			for _, pl := range members {
+				if memo[planKey(pl)].reason != "" {
+					failed = true
+				}
+			}
+			if !failed {
+				return true, 0
+			}
+		}
+	}
+
 	if s.Exhaustive {
 		plans := make([][]chain.StagePlan, len(band))
 		for i := range band {
@@ -330,13 +447,11 @@ func search(ctx context.Context, p params, s *Settings, est *estimator, des desi
 		}
 		if !designAll(plans) {
 			res.Partial = true
+		} else if ok, _ := settle(plans, make([]figs, len(plans))); !ok {
+			res.Partial = true
 		}
 	} else {
-		max := s.MaxDesigns
-		if max == 0 {
-			max = defaultMaxDesigns
-		}
-		ok, left := learnAndDesign(est, band, memo, max, res, designAll)
+		ok, left := learnAndDesign(est, band, memo, maxDesigns, res, designAll, settle)
 		res.Unsettled = left
 		if !ok {
 			res.Partial = true
@@ -345,7 +460,7 @@ func search(ctx context.Context, p params, s *Settings, est *estimator, des desi
 
 	var designed []Candidate
 	for _, k := range order {
-		if o := memo[k]; o.reason == "" {
+		if o := memo[k]; o.reason == "" && o.analyzed {
 			designed = append(designed, o.c)
 		}
 	}
@@ -377,7 +492,7 @@ const maxRounds = 4
 // It returns false when cancelled, and how many band candidates were left
 // unpriced or undesigned because the design cap was reached.
 func learnAndDesign(est *estimator, band []scored, memo map[string]outcome, maxDesigns int, res *Result,
-	designAll func([][]chain.StagePlan) bool) (bool, int) {
+	designAll func([][]chain.StagePlan) bool, settle func([][]chain.StagePlan, []figs) (bool, int)) (bool, int) {
 	learnt := map[realKey]figs{}
 	tries := map[realKey]int{}
 	capped := false
@@ -440,7 +555,8 @@ func learnAndDesign(est *estimator, band []scored, memo map[string]outcome, maxD
 		}
 	}
 
-	// Exact pricing of the band from the learnt stages.
+	// Exact pricing of the band from the learnt stages (settle uses the
+	// real figures of the plans designed).
 	exact := make([]figs, 0, len(band))
 	plans := make([][]chain.StagePlan, 0, len(band))
 	unpriced := 0
@@ -459,50 +575,18 @@ func learnAndDesign(est *estimator, band []scored, memo map[string]outcome, maxD
 			f.bits += g.bits
 			f.lat += g.lat
 		}
-		if !known {
-			if _, ok := memo[planKey(pl)]; !ok {
-				unpriced++
-			}
+		if _, ok := memo[planKey(pl)]; !known && !ok {
+			unpriced++
 			continue
 		}
 		exact = append(exact, f)
 		plans = append(plans, pl)
 	}
-	gone := make([]bool, len(plans))
-	for {
-		var fr frontSet
-		for i := range exact {
-			if !gone[i] {
-				fr.add(exact[i], i)
-			}
-		}
-		var need [][]chain.StagePlan
-		for _, i := range fr.id {
-			need = append(need, plans[i])
-		}
-		debugf("front loop %d", len(need))
-		n := len(need)
-		need = trim(need)
-		if !designAll(need) {
-			return false, 0
-		}
-		if len(need) < n {
-			return true, n - len(need)
-		}
-		changed := false
-		for _, i := range fr.id {
-			if memo[planKey(plans[i])].reason != "" {
-				gone[i] = true
-				changed = true
-			}
-		}
-		if !changed {
-			if capped {
-				return true, unpriced
-			}
-			return true, 0
-		}
+	ok, short := settle(plans, exact)
+	if short > 0 || (capped && unpriced > 0) {
+		return ok, short + unpriced
 	}
+	return ok, 0
 }
 
 // planKey is a compact map key for a plan.
