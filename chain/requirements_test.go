@@ -150,3 +150,25 @@ func TestRequirementsErrors(t *testing.T) {
 		t.Errorf("half-band by 4: %v", err)
 	}
 }
+
+func TestRequirementsCloseSlivers(t *testing.T) {
+	// fa = 49.71 kHz of FK/2 = 50 kHz leaves 577 Hz don't-care gaps between
+	// the alias bands of a multiband FIR by 8 whose transition is 31.5 kHz:
+	// they are closed (gap < transition/4), leaving one lowpass stopband from
+	// FK - fa to 400 kHz (hand-derived from the package doc's rule).
+	sp := Spec{InputRate: 25.6e6, OutputRate: 100e3, Passband: 18.8e3, Protected: 49.711e3, RippleDB: 0.7, RejectionDB: 60}
+	plan, _ := ParseNotation("cic4m1r16 > hb > fir8")
+	reqs, err := Requirements(sp, plan)
+	if err != nil {
+		t.Fatal(err)
+	}
+	if b := reqs[2].Stopbands; len(b) != 1 || math.Abs(b[0].Lo-50.289e3) > 1e-6 || b[0].Hi != 400e3 {
+		t.Errorf("bands %v", b)
+	}
+	// A wide gap stays open: fa = 30 kHz leaves 40 kHz gaps, transition 11.2 kHz.
+	sp.Protected = 30e3
+	reqs, _ = Requirements(sp, plan)
+	if b := reqs[2].Stopbands; len(b) != 4 {
+		t.Errorf("bands %v", b)
+	}
+}
