@@ -74,3 +74,51 @@ func TestDeepWeightFuncLax(t *testing.T) {
 	}
 	t.Log(err)
 }
+
+// TestGainFuncEquiripple: a CIC compensator (desired 1/|H_cic(f)|, order
+// 5, R M = 16, DESIGN.md section 4) designed directly is equiripple in its
+// passband, measured here on the taps.
+func TestGainFuncEquiripple(t *testing.T) {
+	rate := 1.0
+	cic := func(f float64) float64 {
+		const n, rm = 5, 16.0
+		x := math.Pi * f / rm
+		if x == 0 {
+			return 1
+		}
+		return math.Pow(math.Sin(rm*x)/(rm*math.Sin(x)), n)
+	}
+	des := func(f float64) float64 { return 1 / cic(f) }
+	bands := []Band{
+		{Lo: 0, Hi: 0.2, GainFunc: des, Weight: 1},
+		{Lo: 0.28, Hi: 0.5, Gain: 0, Weight: 10},
+	}
+	res, err := Design(63, rate, bands, Settings{})
+	if err != nil {
+		t.Fatal(err)
+	}
+	fn := func(f float64) float64 { return math.Abs(Amplitude(res.Taps, f, rate) - des(f)) }
+	m := 20000
+	step := 0.2 / float64(m)
+	maxv, minPeak := 0.0, math.Inf(1)
+	v0, v1 := fn(0), fn(step)
+	for k := 2; k <= m; k++ {
+		v2 := fn(step * float64(k))
+		if v1 >= v0 && v1 >= v2 {
+			x := refineMax(fn, step*float64(k-2), step*float64(k-1), step*float64(k), v0, v1, v2)
+			pk := fn(x)
+			maxv = math.Max(maxv, pk)
+			if k-1 > 1 && k-1 < m-1 {
+				minPeak = math.Min(minPeak, pk)
+			}
+		}
+		maxv = math.Max(maxv, v2)
+		v0, v1 = v1, v2
+	}
+	if math.Abs(maxv/res.Delta-1) > 0.01 || minPeak < 0.99*maxv {
+		t.Errorf("passband max %.6g, smallest peak %.6g, delta %.6g", maxv, minPeak, res.Delta)
+	}
+	if math.Abs(res.Deviations[0]-maxv) > 1e-6*maxv {
+		t.Errorf("reported passband deviation %.9g, measured %.9g", res.Deviations[0], maxv)
+	}
+}
