@@ -59,13 +59,17 @@
 // when every estimated stage the two do not share is given the favourable
 // end of its range for the candidate and the unfavourable end for the front
 // point. The range of a stage estimated at L taps is
-// [L/(1+tol) - 2, L(1+tol) + 2] taps (half-bands: K/(1+tol) - 1 to
-// K(1+tol) + 1 in K); CIC figures are exact.
+// [L/(1+2 tol) - 2, L(1+tol) + 2] taps, wider below because a multiband
+// design with don't-care bands often comes out shorter than the lowpass
+// estimate (half-bands: K/(1+2 tol) - 1 to K(1+tol) + 1 in K); CIC figures
+// are exact.
 //
 // A stage's real design and price depend only on what its estimate depends
-// on, plus the CIC whose droop it corrects. So designing one chain teaches
-// the real figures of each of its stages for every candidate that contains
-// them. Rounds of real designs (chain.Design, priced by cost.Price) cover
+// on, plus the CIC whose droop it corrects; the search keys a stage on that
+// CIC's factor but not its order and delay, which move a compensator by a
+// tap or two and would multiply the designs needed. So designing one chain
+// teaches the real figures of each of its stages for every candidate that
+// contains them. Rounds of real designs (chain.Design, priced by cost.Price) cover
 // every stage of the band; the band is then priced exactly from the stages
 // learnt, and the front of that pricing is designed for real (most of it
 // already was) and its members measured (cost.Evaluate, whose cascade

@@ -65,6 +65,9 @@ func (s *Settings) check() error {
 			return fmt.Errorf("optimize: %s = %g: must be finite and not negative", w.name, w.v)
 		}
 	}
+	if s.Jobs < 0 {
+		return fmt.Errorf("optimize: Jobs = %d: must not be negative", s.Jobs)
+	}
 	if s.MaxTaps < 0 {
 		return fmt.Errorf("optimize: MaxTaps = %d: must not be negative", s.MaxTaps)
 	}
