@@ -110,7 +110,8 @@
 // CloudSize by keeping evenly spaced candidates in enumeration order.
 //
 // On cancellation of the context Plan stops starting designs and returns the
-// front of what was designed, with Result.Partial set.
+// front of the chains designed and measured so far (possibly none), with
+// Result.Partial set and no error.
 //
 // The figures are planning data: sign-off belongs to a bit-true simulation
 // of the RTL and the team's own review.

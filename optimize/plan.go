@@ -259,9 +259,9 @@ func search(ctx context.Context, p params, s *Settings, est *estimator, des desi
 		}
 		return comparePlans(a.plan, b.plan) < 0
 	}
-	idx := 0
+	idx, seen := 0, 0
 	sp.walk(func(plan []chain.StagePlan) bool {
-		if idx&4095 == 0 && ctx.Err() != nil {
+		if seen++; seen&4095 == 0 && ctx.Err() != nil {
 			cancelled = true
 			return false
 		}

@@ -302,3 +302,28 @@ func BenchmarkTwoTierVsExhaustiveD120(b *testing.B) {
 		})
 	}
 }
+
+// TestCancelPartial: cancelling during the designs returns what was
+// designed and measured so far, marked partial, not an error.
+func TestCancelPartial(t *testing.T) {
+	needDesigns(t)
+	ctx, cancel := context.WithCancel(context.Background())
+	defer cancel()
+	r, err := optimize.Plan(ctx, rx(), optimize.Settings{Progress: func(done, total int) {
+		if done == 3 {
+			cancel()
+		}
+	}})
+	if err != nil {
+		t.Fatal(err)
+	}
+	if !r.Partial {
+		t.Error("not marked partial")
+	}
+	for _, c := range r.Front {
+		if !c.Figures.Designed {
+			t.Errorf("%s on the front is not designed", chain.Notation(c.Plan))
+		}
+	}
+	t.Logf("partial after %d designs: front of %d", r.Designed, len(r.Front))
+}
