@@ -237,7 +237,14 @@ func fileNames(files []report.File) []string {
 func printSweep(w io.Writer, source, dir string, v sweep.Vary, doc *sweep.Doc, files []report.File) {
 	fmt.Fprintf(w, "stepdown sweep: %s, %s from %s to %s in steps of %s (%d values)\n\n", source, v.Key.Name,
 		v.Key.Format(v.From), v.Key.Format(v.To), v.Key.Format(v.Step), len(v.Values))
+	clock := false
+	for _, dv := range doc.Values {
+		clock = clock || (dv.Best != nil && dv.Best.MultipliersAtClock != nil)
+	}
 	head := []string{v.Key.Name, "status", "recommended", "mult/out", "memory bits", "latency", "least mult/out", "least memory", "least latency"}
+	if clock {
+		head = append(head[:6], "multipliers", "least mult/out", "least memory", "least latency", "least multipliers")
+	}
 	rows := [][]string{head}
 	for _, dv := range doc.Values {
 		if dv.Recommended < 0 {
@@ -249,8 +256,23 @@ func printSweep(w io.Writer, source, dir string, v sweep.Vary, doc *sweep.Doc, f
 		if dv.StructureChanged {
 			n += "  <- changes"
 		}
-		rows = append(rows, []string{dv.ValueText, dv.Status, n, trimFloat(c.MultipliesPerOutput, 1), fmt.Sprint(c.MemoryBits),
-			seconds(c.LatencyS), trimFloat(dv.Best.MultipliesPerOutput, 1), fmt.Sprint(dv.Best.MemoryBits), seconds(dv.Best.LatencyS)})
+		row := []string{dv.ValueText, dv.Status, n, trimFloat(c.MultipliesPerOutput, 1), fmt.Sprint(c.MemoryBits), seconds(c.LatencyS)}
+		if clock {
+			m := ""
+			if c.MultipliersAtClock != nil {
+				m = fmt.Sprint(*c.MultipliersAtClock)
+			}
+			row = append(row, m)
+		}
+		row = append(row, trimFloat(dv.Best.MultipliesPerOutput, 1), fmt.Sprint(dv.Best.MemoryBits), seconds(dv.Best.LatencyS))
+		if clock {
+			m := ""
+			if dv.Best.MultipliersAtClock != nil {
+				m = fmt.Sprint(*dv.Best.MultipliersAtClock)
+			}
+			row = append(row, m)
+		}
+		rows = append(rows, row)
 	}
 	widths := make([]int, len(head))
 	for _, r := range rows {

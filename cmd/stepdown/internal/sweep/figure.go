@@ -30,6 +30,9 @@ type FigurePoint struct {
 	Notation                         string
 	// The least of each figure over the value's front.
 	BestMultiplies, BestMemoryBits, BestLatencyS float64
+	// Hardware multipliers at the clock (recommended, least), when
+	// FigureData.Clock.
+	Multipliers, BestMultipliers float64
 }
 
 // FigureData is the input of Figure.
@@ -37,6 +40,8 @@ type FigureData struct {
 	Title string
 	Key   Key
 	Pts   []FigurePoint // in increasing Value
+	// Clock adds a fourth panel, the hardware multipliers at the clock.
+	Clock bool
 }
 
 // NewFigureData collects the figure's points from a sweep's results.
@@ -50,6 +55,10 @@ func NewFigureData(title string, v Vary, rs []Result) FigureData {
 			p.OK = true
 			p.Multiplies, p.MemoryBits, p.LatencyS, p.Notation = c.MultipliesPerOutput, float64(c.MemoryBits), c.LatencyS, c.Notation
 			p.BestMultiplies, p.BestMemoryBits, p.BestLatencyS = b.Multiplies, float64(b.MemoryBits), b.LatencyS
+			if c.MultipliersAtClock != nil && b.Multipliers >= 0 {
+				d.Clock = true
+				p.Multipliers, p.BestMultipliers = float64(*c.MultipliersAtClock), float64(b.Multipliers)
+			}
 		}
 		d.Pts = append(d.Pts, p)
 	}
@@ -86,7 +95,7 @@ func Render(w io.Writer, d FigureData, format string) error {
 		if p.OK {
 			have++
 		}
-		for _, v := range []float64{p.Value, p.Multiplies, p.MemoryBits, p.LatencyS, p.BestMultiplies, p.BestMemoryBits, p.BestLatencyS} {
+		for _, v := range []float64{p.Value, p.Multiplies, p.MemoryBits, p.LatencyS, p.BestMultiplies, p.BestMemoryBits, p.BestLatencyS, p.Multipliers, p.BestMultipliers} {
 			if math.IsNaN(v) || math.IsInf(v, 0) {
 				return fmt.Errorf("sweep: figure: value %v has a non-finite figure", p.Value)
 			}
@@ -226,6 +235,13 @@ func draw1(c draw.Canvas, d FigureData) {
 		{"memory (" + mu.name + ")", mu, func(p FigurePoint) float64 { return p.MemoryBits }, func(p FigurePoint) float64 { return p.BestMemoryBits }},
 		{"latency (" + tu.name + ")", tu, func(p FigurePoint) float64 { return p.LatencyS }, func(p FigurePoint) float64 { return p.BestLatencyS }},
 	}
+	if d.Clock {
+		get = append(get, struct {
+			label     string
+			u         unit
+			rec, best func(FigurePoint) float64
+		}{"multipliers at clock", unit{1, ""}, func(p FigurePoint) float64 { return p.Multipliers }, func(p FigurePoint) float64 { return p.BestMultipliers }})
+	}
 	lo, hi := d.Pts[0].Value/xu.scale, d.Pts[len(d.Pts)-1].Value/xu.scale
 	if hi <= lo {
 		lo, hi = lo-1, hi+1
@@ -318,7 +334,7 @@ func draw1(c draw.Canvas, d FigureData) {
 	}
 	// Lay out with a guess of the strip's height to find the data area's
 	// horizontal extent (it does not depend on the height), then draw.
-	probe := plot.Align(ps, draw.Tiles{Rows: 3, Cols: 1, PadY: vg.Points(6)}, draw.Crop(area, 0, 0, 0, -2*rowH))
+	probe := plot.Align(ps, draw.Tiles{Rows: len(ps), Cols: 1, PadY: vg.Points(6)}, draw.Crop(area, 0, 0, 0, -2*rowH))
 	dc0 := ps[0][0].DataCanvas(probe[0][0])
 	type placed struct {
 		x   vg.Length
@@ -348,7 +364,7 @@ func draw1(c draw.Canvas, d FigureData) {
 	}
 	rows := max(1, len(ends))
 	strip := vg.Length(rows)*rowH + vg.Points(2)
-	cells := plot.Align(ps, draw.Tiles{Rows: 3, Cols: 1, PadY: vg.Points(6)}, draw.Crop(area, 0, 0, 0, -strip))
+	cells := plot.Align(ps, draw.Tiles{Rows: len(ps), Cols: 1, PadY: vg.Points(6)}, draw.Crop(area, 0, 0, 0, -strip))
 	for i := range ps {
 		ps[i][0].Draw(cells[i][0])
 	}

@@ -26,7 +26,7 @@ var CSVHeader = []string{
 	"index", "key", "value", "value_text", "status", "recommended", "structure_changed",
 	"designed", "meets_targets", "multiplies_per_output", "adds_per_output", "memory_bits",
 	"latency_s", "latency_samples", "multipliers_at_clock", "alias_rejection_db", "passband_ripple_db",
-	"front_size", "best_multiplies_per_output", "best_memory_bits", "best_latency_s", "detail",
+	"front_size", "best_multiplies_per_output", "best_memory_bits", "best_latency_s", "best_multipliers_at_clock", "detail",
 }
 
 // CSV returns sweep.csv: one row per value, in the order of the values.
@@ -42,7 +42,10 @@ func CSV(v Vary, rs []Result) []byte {
 			rep := r.Report
 			c := rep.Front[rep.Recommended]
 			b := BestOf(rep)
-			mult := ""
+			mult, bestMult := "", ""
+			if b.Multipliers >= 0 {
+				bestMult = strconv.Itoa(b.Multipliers)
+			}
 			if c.MultipliersAtClock != nil {
 				mult = strconv.Itoa(*c.MultipliersAtClock)
 			}
@@ -50,9 +53,9 @@ func CSV(v Vary, rs []Result) []byte {
 				strconv.FormatBool(c.Designed), strconv.FormatBool(c.MeetsTargets),
 				num(c.MultipliesPerOutput), num(c.AddsPerOutput), strconv.Itoa(c.MemoryBits),
 				num(c.LatencyS), num(c.LatencySamples), mult, num(c.AliasRejectionDB), num(c.PassbandRippleDB),
-				strconv.Itoa(len(rep.Front)), num(b.Multiplies), strconv.Itoa(b.MemoryBits), num(b.LatencyS))
+				strconv.Itoa(len(rep.Front)), num(b.Multiplies), strconv.Itoa(b.MemoryBits), num(b.LatencyS), bestMult)
 		} else {
-			row = append(row, make([]string, 16)...)
+			row = append(row, make([]string, 17)...)
 		}
 		row = append(row, r.Detail)
 		_ = w.Write(row)
@@ -113,6 +116,7 @@ type (
 		MultipliesPerOutput float64 `json:"multiplies_per_output"`
 		MemoryBits          int     `json:"memory_bits"`
 		LatencyS            float64 `json:"latency_s"`
+		MultipliersAtClock  *int    `json:"multipliers_at_clock,omitempty"`
 	}
 )
 
@@ -139,7 +143,11 @@ func NewDoc(base *specfile.Spec, v Vary, rs []Result) *Doc {
 				dv.Front = append(dv.Front, summary(c))
 			}
 			b := BestOf(rep)
-			dv.Best = &DocBest{b.Multiplies, b.MemoryBits, b.LatencyS}
+			dv.Best = &DocBest{MultipliesPerOutput: b.Multiplies, MemoryBits: b.MemoryBits, LatencyS: b.LatencyS}
+			if b.Multipliers >= 0 {
+				m := b.Multipliers
+				dv.Best.MultipliersAtClock = &m
+			}
 		}
 		d.Values = append(d.Values, dv)
 	}

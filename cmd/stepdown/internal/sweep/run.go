@@ -211,12 +211,18 @@ type Best struct {
 	Multiplies float64
 	MemoryBits int
 	LatencyS   float64
+	// Multipliers is the least number of hardware multipliers at the
+	// clock, -1 when the spec gives no clock.
+	Multipliers int
 }
 
 // BestOf returns the per-axis minima over a report's front.
 func BestOf(rep *report.Report) Best {
-	b := Best{Multiplies: math.Inf(1), MemoryBits: math.MaxInt, LatencyS: math.Inf(1)}
+	b := Best{Multiplies: math.Inf(1), MemoryBits: math.MaxInt, LatencyS: math.Inf(1), Multipliers: -1}
 	for _, c := range rep.Front {
+		if m := c.MultipliersAtClock; m != nil && (b.Multipliers < 0 || *m < b.Multipliers) {
+			b.Multipliers = *m
+		}
 		b.Multiplies = math.Min(b.Multiplies, c.MultipliesPerOutput)
 		b.MemoryBits = min(b.MemoryBits, c.MemoryBits)
 		b.LatencyS = math.Min(b.LatencyS, c.LatencyS)

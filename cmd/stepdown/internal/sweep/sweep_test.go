@@ -202,7 +202,7 @@ func TestRunAndCSV(t *testing.T) {
 		t.Fatalf("sweep.csv:\n%s", csv)
 	}
 	// 95 dB: cic5m1r8 > fir8, MPO 9.5, best MPO min(9.5, 11.875) = 9.5, memory 9500.
-	want := "4,rejection,95,95 dB,ok,cic5m1r8 > fir8,true,true,true,9.5,19,9500,9.5e-07,3,0,96,0.1,2,9.5,9500,9.5e-07,"
+	want := "4,rejection,95,95 dB,ok,cic5m1r8 > fir8,true,true,true,9.5,19,9500,9.5e-07,3,0,96,0.1,2,9.5,9500,9.5e-07,0,"
 	if lines[4] != want {
 		t.Errorf("row 4:\n got %s\nwant %s", lines[4], want)
 	}
