@@ -19,7 +19,7 @@ func ExamplePlan() {
 	}
 	page, err := htmlreport.Plan(htmlreport.PlanPage{
 		Source: "built-in example", Report: rep,
-		Files:  []string{"report.json", "coefficients/stage2_fir.csv", "report.html"},
+		Files: []string{"report.json", "coefficients/stage2_fir.csv", "report.html"},
 	})
 	if err != nil {
 		fmt.Println(err)
