@@ -392,10 +392,16 @@ func check(ctx context.Context, chromium, path string, width, height int, shot, 
 	if err := c.call(ctx, s, "Emulation.setEmulatedMedia", map[string]any{"media": "print"}, nil); err != nil {
 		return nil, "", err
 	}
+	// With print styles the page must fit the window's width too: at 700 CSS
+	// px that is an A4 page's printable width (210 mm less 2 x 12 mm at 96
+	// px per inch is 703 px).
+	if err := c.call(ctx, s, "Page.getLayoutMetrics", nil, &metrics); err != nil {
+		return nil, "", err
+	}
+	if metrics.CSS.Width > float64(width)+1 {
+		add(fmt.Sprintf("printed, the page is %.0f px wide in a %d px window: something overflows sideways", metrics.CSS.Width, width))
+	}
 	if printShot != "" {
-		if err := c.call(ctx, s, "Page.getLayoutMetrics", nil, &metrics); err != nil {
-			return nil, "", err
-		}
 		if err := fullShot(printShot); err != nil {
 			return nil, "", err
 		}

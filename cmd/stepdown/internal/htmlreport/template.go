@@ -54,6 +54,10 @@ footer { margin-top: 2.5em; font-size: .85em; color: #555; border-top: 1px solid
   a.file::after { content: " (" attr(href) ")"; font-size: .85em; color: #333; }
   .caution, .rec, tr.mark td, thead th { background: none; }
   .scroll { overflow: visible; }
+  table { font-size: 8pt; }
+  th, td { padding: .18em .3em; }
+  td.chain { white-space: normal; }
+  .tag { white-space: normal; }
   table, figure, .stage, .caution, .rec { break-inside: avoid; page-break-inside: avoid; }
   h2, h3 { break-after: avoid; page-break-after: avoid; }
   figure svg { max-width: 100%; }
