@@ -33,6 +33,11 @@ const (
 // best-effort Result, when the exchange does not reach equiripple.
 var ErrNotConverged = errors.New("remez: exchange did not converge")
 
+// errRounding is wrapped by the error of a design whose bands are met to
+// rounding level: the length is far beyond what the specification needs,
+// which MinLength takes as "too long" whatever the taps measure.
+var errRounding = errors.New("the specification is too lax for double precision")
+
 // Design returns the length-n linear-phase (type I for odd n, type II for
 // even n) filter that minimises the weighted maximum error over bands.
 //
@@ -104,7 +109,10 @@ func (e *engine) laxCheck(dev []float64, conv bool) error {
 	if !tiny {
 		return nil
 	}
-	return fmt.Errorf("remez: n = %d: the bands are met to rounding level (deviation below %.0e): the specification is too lax for double precision; shorten the filter, narrow the transitions or tighten the bands", e.n, lim)
+	if !conv {
+		return fmt.Errorf("remez: n = %d: the bands are met to rounding level (deviation below %.0e): %w (%w); shorten the filter, narrow the transitions or tighten the bands", e.n, lim, errRounding, ErrNotConverged)
+	}
+	return fmt.Errorf("remez: n = %d: the bands are met to rounding level (deviation below %.0e): %w; shorten the filter, narrow the transitions or tighten the bands", e.n, lim, errRounding)
 }
 
 // initRef chooses the starting reference. Short designs and GridOnly start
@@ -123,7 +131,7 @@ func (e *engine) initRef() {
 		c.handOff = true
 		if c.buildGrid() == nil {
 			c.initRef()
-			if _, _, err := c.run(tolCoarse, 50); err == nil && len(c.ref) == e.r+1 {
+			if _, _, err := c.run(tolCoarse, e.seedIter()); err == nil && len(c.ref) == e.r+1 {
 				e.ref = append(e.ref[:0], c.ref...)
 				e.local = true
 				e.stepGap = c.stepGap
@@ -141,7 +149,7 @@ func (e *engine) initRef() {
 		return
 	}
 	sub.initRef()
-	if _, _, err := sub.run(tolSeed, 50); err != nil || len(sub.ref) != sub.r+1 {
+	if _, _, err := sub.run(tolSeed, e.seedIter()); err != nil || len(sub.ref) != sub.r+1 {
 		e.uniformRef()
 		return
 	}
@@ -152,6 +160,10 @@ func (e *engine) initRef() {
 	}
 	e.seedM = len(sub.ref)
 }
+
+// seedIter bounds each seeding phase (coarse grid, shorter seed design):
+// at most 50 iterations, and never more than Settings.MaxIterations.
+func (e *engine) seedIter() int { return min(50, e.maxIter) }
 
 // sibling returns an engine for length n at grid density d with the same
 // bands, its grid not yet built.

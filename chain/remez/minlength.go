@@ -1,6 +1,7 @@
 package remez
 
 import (
+	"errors"
 	"fmt"
 	"math"
 )
@@ -14,11 +15,17 @@ import (
 // given), so that the equiripple optimum balances the bands against their
 // own limits; Band.Weight is ignored. The search starts from the largest
 // Herrmann-Rabiner-Chan estimate over the transitions between adjacent
-// bands, then gallops (steps of 2, 4, 8, ... taps of one parity) until it
+// bands of different gain (don't-care gaps between bands of equal gain are
+// not transitions), then gallops (steps of 2, 4, 8, ... taps of one parity) until it
 // brackets the answer and bisects; it assumes that within one parity a
 // longer filter never does worse. With parity 0 it finds the shortest odd
 // length and then tries the even lengths below it. Even lengths are skipped
 // when a band asks for a non-zero gain at rate/2, where they are zero.
+//
+// The search is bounded: at most 40 designs, and it stops when eight
+// times the estimate has not halved the error. A length whose design is met
+// to rounding level counts as too long. When the search cannot finish, the
+// error wraps ErrNotConverged.
 func MinLength(rate float64, bands []Band, parity, maxTaps int, s Settings) (*Result, error) {
 	r, _, err := minLength(rate, bands, parity, maxTaps, s)
 	return r, err
@@ -61,7 +68,7 @@ func minLength(rate float64, bands []Band, parity, maxTaps int, s Settings) (*Re
 	if parity == 2 && !evenOK {
 		return nil, nil, fmt.Errorf("remez: parity = 2 (even lengths) but band %d wants gain %v at rate/2, where an even-length symmetric filter is zero: use parity 0 or 1", len(bands)-1, bands[len(bands)-1].Gain)
 	}
-	m := &lengthSearch{rate: rate, bands: bands, wb: wb, s: s, maxTaps: maxTaps, cache: map[int]*Result{}, ratio: map[int]float64{}}
+	m := &lengthSearch{rate: rate, bands: bands, wb: wb, s: s, maxTaps: maxTaps, cache: map[int]*Result{}, ratio: map[int]float64{}, lax: map[int]bool{}}
 	est := m.estimate()
 	switch parity {
 	case 1:
@@ -95,31 +102,55 @@ type lengthSearch struct {
 	maxTaps int
 	cache   map[int]*Result // results that meet
 	ratio   map[int]float64 // worst measured/allowed error per length
+	lax     map[int]bool    // lengths met to rounding level, taps unusable
+	designs int             // designs run, bounded by maxDesigns
 }
 
+// maxDesigns bounds the designs of one MinLength call. The search needs a
+// handful; the bound only stops a search that the error ratios cannot
+// guide (designs that do not converge, say) in bounded time.
+const maxDesigns = 40
+
 // estimate is the largest Herrmann-Rabiner-Chan length over the
-// transitions between adjacent bands (common practice for multiband
-// specifications), or 3 without any transition.
+// transitions between adjacent bands whose desired gains differ (common
+// practice for multiband specifications), or 3 without any. A gap between
+// two bands that want the same gain (the don't-care slivers between alias
+// stopbands) is no transition: the response may simply stay on that gain
+// across it, so a 1 Hz gap there costs nothing and must not make the
+// estimate thousands of taps long.
 func (m *lengthSearch) estimate() int {
 	est := 3
 	for i := 0; i+1 < len(m.bands); i++ {
-		tr := m.bands[i+1].Lo - m.bands[i].Hi
-		if tr <= 0 {
+		a, b := &m.bands[i], &m.bands[i+1]
+		tr := b.Lo - a.Hi
+		if tr <= 0 || math.Abs(gainAt(a, a.Hi)-gainAt(b, b.Lo)) <= a.MaxError+b.MaxError {
 			continue
 		}
-		d1 := math.Min(m.bands[i].MaxError, 0.5)
-		d2 := math.Min(m.bands[i+1].MaxError, 0.5)
+		d1 := math.Min(a.MaxError, 0.5)
+		d2 := math.Min(b.MaxError, 0.5)
 		est = max(est, HerrmannLength(d1, d2, tr, m.rate))
 	}
 	return min(est, m.maxTaps)
 }
 
+// gainAt is the desired gain of band b at f Hz.
+func gainAt(b *Band, f float64) float64 {
+	if b.GainFunc != nil {
+		return b.GainFunc(f)
+	}
+	return b.Gain
+}
+
 // meets designs length n (once) and reports whether every band is met on
 // the measured response; it records the worst ratio of measured to allowed
-// error, which guides the search.
+// error, which guides the search. A design met to rounding level counts as
+// meeting (its length is far beyond the answer) but is kept as an answer
+// only if its taps measure within the limits; otherwise its ratio is
+// recorded as tiny and the search moves down.
 func (m *lengthSearch) meets(n int) bool {
 	if _, ok := m.ratio[n]; !ok {
-		r, wdev := m.design(n)
+		m.designs++
+		r, wdev, lax := m.design(n)
 		worst := math.Inf(1)
 		if r != nil {
 			worst = 0
@@ -127,25 +158,32 @@ func (m *lengthSearch) meets(n int) bool {
 				worst = math.Max(worst, wdev[b]/m.bands[b].MaxError)
 			}
 		}
-		m.ratio[n] = worst
 		if worst <= 1 {
 			m.cache[n] = r
+		} else if lax {
+			m.lax[n] = true
+			worst = laxRatio
 		}
+		m.ratio[n] = worst
 	}
 	return m.ratio[n] <= 1
 }
 
-func (m *lengthSearch) design(n int) (*Result, []float64) {
+// laxRatio stands for the error ratio of a design met to rounding level.
+const laxRatio = 1e-12
+
+func (m *lengthSearch) design(n int) (*Result, []float64, bool) {
 	e, err := newEngine(n, m.rate, m.wb, m.s)
 	if err != nil {
-		return nil, nil
+		return nil, nil, false
 	}
-	res, _ := e.design()
+	res, err := e.design()
+	lax := errors.Is(err, errRounding)
 	if res == nil {
-		return nil, nil
+		return nil, nil, lax
 	}
 	_, wdev := e.deviations(res.Taps)
-	return res, wdev
+	return res, wdev, lax
 }
 
 // search returns the shortest length of the given parity (n%2 == odd) that
@@ -185,29 +223,46 @@ func (m *lengthSearch) search(n0, odd int) (int, error) {
 		} else if n > lo {
 			lo = n
 		}
-		if g := math.Log(m.ratio[n]); !math.IsInf(g, 0) && !math.IsNaN(g) {
+		if g := math.Log(m.ratio[n]); !m.lax[n] && !math.IsInf(g, 0) && !math.IsNaN(g) {
 			pn[0], pg[0] = pn[1], pg[1]
 			pn[1], pg[1] = n, g
 			np++
 		}
 	}
 	eval(n0)
-	last, same := 0, 0
-	for range 60 {
+	r0 := m.ratio[n0]
+	last, same, blind := 0, 0, 0
+	for m.designs < maxDesigns {
 		if hi > 0 && (hi == lowest || (lo > 0 && hi-lo <= 2)) {
+			if m.cache[hi] == nil {
+				return 0, fmt.Errorf("%w: remez: MinLength: %d taps fail and %d taps are met only to rounding level (no usable taps): relax or tighten the bands", ErrNotConverged, lo, hi)
+			}
 			return hi, nil
 		}
 		if hi == 0 && lo >= top {
 			return 0, fmt.Errorf("remez: the bands are not met by any length up to maxTaps = %d: widen the transitions, relax MaxError or raise maxTaps", m.maxTaps)
 		}
+		// Eight times the estimate without halving the error: the error
+		// ratios do not fall with the length, so longer designs will not
+		// help (the exchange fails on this specification).
+		if hi == 0 && lo >= 8*max(n0, 16) && !(m.ratio[lo] < 0.5*r0) {
+			return 0, fmt.Errorf("%w: remez: MinLength: the error does not fall with the length (%.3g of the limit at %d taps, %.3g at %d): check the bands", ErrNotConverged, r0, n0, m.ratio[lo], lo)
+		}
 		var c float64
+		// Without a secant (a single usable ratio: the others failed or
+		// were met to rounding level) the step grows fourfold each time, a
+		// gallop from 2 % up to the doubling or halving clamp below.
+		step := 0.02 * math.Pow(4, float64(blind))
 		switch {
 		case np >= 2 && pn[0] != pn[1] && pg[0] != pg[1]:
 			c = float64(pn[1]) - pg[1]*float64(pn[1]-pn[0])/(pg[1]-pg[0])
+			blind = 0
 		case hi == 0:
-			c = float64(lo) * 1.02
+			c = float64(lo) * (1 + step)
+			blind++
 		default:
-			c = float64(hi) * 0.98
+			c = float64(hi) * (1 - math.Min(step, 0.5))
+			blind++
 		}
 		if math.IsNaN(c) {
 			c = float64(lo + hi)
@@ -255,15 +310,18 @@ func (m *lengthSearch) search(n0, odd int) (int, error) {
 		last = side
 		eval(n)
 	}
-	if hi > 0 {
+	if hi > 0 && m.cache[hi] != nil {
 		return hi, nil
 	}
-	return 0, fmt.Errorf("remez: length search did not settle (last bracket %d..%d taps)", lo, hi)
+	return 0, fmt.Errorf("%w: remez: MinLength: length search did not settle within %d designs (last bracket %d..%d taps)", ErrNotConverged, maxDesigns, lo, hi)
 }
 
 func (m *lengthSearch) finish(n int, err error) (*Result, error) {
 	if err != nil {
 		return nil, err
+	}
+	if m.cache[n] == nil {
+		return nil, fmt.Errorf("%w: remez: MinLength: no usable design at %d taps", ErrNotConverged, n)
 	}
 	return m.cache[n], nil
 }
