@@ -125,3 +125,73 @@ func TestSweepFiles(t *testing.T) {
 		}
 	}
 }
+
+// smallSpec is an invented scenario that plans in well under a second.
+const smallSpec = `input_rate  = "8 MHz"
+output_rate = "1 MHz"
+passband    = "200 kHz"
+protected   = "300 kHz"
+ripple      = "0.5 dB"
+rejection   = "50 dB"
+
+[words]
+input = 12
+output = 16
+coefficients = 16
+
+[hardware]
+clock = "100 MHz"
+
+[search]
+max_stages = 3
+cic_orders = [2, 3]
+cic_delays = [1]
+`
+
+// TestSweepDeterministicReal runs the real planner: the same files, byte for
+// byte, whatever GOMAXPROCS and --jobs are.
+func TestSweepDeterministicReal(t *testing.T) {
+	dir := t.TempDir()
+	spec := filepath.Join(dir, "small.toml")
+	if err := os.WriteFile(spec, []byte(smallSpec), 0o644); err != nil {
+		t.Fatal(err)
+	}
+	var ref map[string][]byte
+	for _, c := range []struct {
+		procs, jobs string
+	}{{"1", "1"}, {"2", "0"}, {"2", "3"}} {
+		out := filepath.Join(dir, "out-"+c.procs+"-"+c.jobs)
+		r := runBinary(t, dir, []string{"GOMAXPROCS=" + c.procs}, "sweep", spec, "--vary", "rejection=40:60:10", "--jobs", c.jobs, "--html", "--quiet", "--out", out)
+		if r.code != 0 {
+			t.Fatalf("GOMAXPROCS=%s --jobs %s: exit %d: %s", c.procs, c.jobs, r.code, r.stderr)
+		}
+		files := map[string][]byte{}
+		err := filepath.Walk(out, func(p string, fi os.FileInfo, err error) error {
+			if err != nil || fi.IsDir() {
+				return err
+			}
+			b, err := os.ReadFile(p)
+			rel, _ := filepath.Rel(out, p)
+			files[rel] = b
+			return err
+		})
+		if err != nil {
+			t.Fatal(err)
+		}
+		if ref == nil {
+			ref = files
+			if len(files) < 8 {
+				t.Fatalf("only %d files", len(files))
+			}
+			continue
+		}
+		if len(files) != len(ref) {
+			t.Errorf("GOMAXPROCS=%s --jobs %s: %d files, want %d", c.procs, c.jobs, len(files), len(ref))
+		}
+		for n, b := range ref {
+			if !bytes.Equal(files[n], b) {
+				t.Errorf("GOMAXPROCS=%s --jobs %s: %s differs", c.procs, c.jobs, n)
+			}
+		}
+	}
+}
