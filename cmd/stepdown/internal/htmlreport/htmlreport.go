@@ -13,6 +13,7 @@ import (
 	"stepdown/cmd/stepdown/internal/report"
 	"stepdown/cmd/stepdown/internal/sweep"
 	"stepdown/cmd/stepdown/internal/units"
+	"stepdown/cost"
 )
 
 // PlanPage is the input of Plan.
@@ -295,7 +296,7 @@ func planCautions(r *report.Report) []string {
 		out = append(out, fmt.Sprintf("The recommended chain's rejection margin is thin (%.2f dB): coefficient rounding and data-path truncation can use it up.", c.RejectionMarginDB))
 	}
 	if r.Spec.Words.Coefficients == nil {
-		out = append(out, "No coefficient width was given: rejection and ripple are those of floating-point coefficients, memory counts 18-bit coefficient words (the pricing default), and no integer or $readmemh files were written.")
+		out = append(out, fmt.Sprintf("No coefficient width was given: rejection and ripple are those of floating-point coefficients, memory counts %d-bit coefficient words (the pricing default), and no integer or $readmemh files were written.", cost.FloatCoefBits))
 	} else {
 		out = append(out, fmt.Sprintf("The integer coefficient files are rounded to %d bits; the rejection and ripple above are those of the floating-point design.", *r.Spec.Words.Coefficients))
 	}
