@@ -56,7 +56,8 @@ const (
 	Partial    Status = "partial"    // stopped by the time limit with a front so far
 	Invalid    Status = "invalid"    // the value makes the spec inconsistent
 	Infeasible Status = "infeasible" // searched; no chain meets the spec
-	Failed     Status = "error"      // the search failed or was stopped before any chain
+	Failed     Status = "error"      // the search failed
+	Stopped    Status = "stopped"    // the time limit or an interrupt came before any chain
 )
 
 // HasChain reports whether the status comes with a recommended chain.
@@ -133,7 +134,7 @@ func runOne(ctx context.Context, st Study, plan func(context.Context, chain.Spec
 	}
 	r.Spec = spec
 	if ctx.Err() != nil {
-		r.Status, r.Detail = Failed, "not run: the sweep was stopped"
+		r.Status, r.Detail = Stopped, "not run: the sweep was stopped by its time limit or an interrupt"
 		return r
 	}
 	var set optimize.Settings
@@ -152,7 +153,7 @@ func runOne(ctx context.Context, st Study, plan func(context.Context, chain.Spec
 	r.Search = res
 	switch {
 	case len(res.Front) == 0 && res.Partial:
-		r.Status, r.Detail = Failed, "stopped before any chain was designed"
+		r.Status, r.Detail = Stopped, "stopped by the time limit or an interrupt before any chain was designed"
 		return r
 	case len(res.Front) == 0:
 		r.Status, r.Detail = Infeasible, "no chain meets the spec ("+dropped(res.Dropped)+")"
