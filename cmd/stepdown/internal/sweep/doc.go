@@ -41,6 +41,27 @@
 // default that depends on the swept key (the protected edge that defaults
 // to the passband, the stopband that defaults to FK - fa) follows it.
 //
+// Statuses (sweep.csv's status column): "ok"; "partial" (the time limit came
+// during the search: the front is the best found so far); "invalid" (the value
+// makes the spec inconsistent); "infeasible" (searched, no chain meets the
+// spec; detail gives the drop counts); "stopped" (the time limit or an
+// interrupt came before any chain); "error" (the search failed).
+//
+// sweep.csv has one row per value, in the order of the values: the value in
+// the key's base unit and written with its unit, the status, the recommended
+// chain's notation, whether its structure changed, its figures (designed,
+// meets_targets, multiplies and adds per output, memory bits, latency in
+// seconds and output samples, hardware multipliers at the clock, alias
+// rejection, passband ripple), the size of the front, the least multiplies,
+// memory bits, latency and multipliers over the front (each on its own), and
+// a detail for any status but ok. Cells that do not apply are empty.
+//
+// The output folder holds report.json (schema "stepdown.sweep/1": the spec as
+// given, the range, and per value its status, front without coefficient
+// arrays, recommendation and reason), sweep.csv, sweep.svg, sweep.png, and
+// values/NN/ (NN from 01) with each planned value's own report.json (schema
+// "stepdown.report/1") and the recommended chain's coefficient files.
+//
 // Parallelism: Map runs values through a bounded pool of goroutines, each
 // writing its result into the slot of its index, so the outputs are the same
 // bytes whatever GOMAXPROCS or the pool size is, provided each run is
