@@ -93,8 +93,9 @@ func Sweep(p SweepPage) ([]byte, error) {
 		SpecKey: d.Vary.SpecKey,
 		Range:   d.Vary.Range,
 		Count:   len(d.Values),
-		Clock:   d.Spec.Hardware.ClockHz != nil,
-		Files:   topFiles(p.Files),
+		// Sweeping the clock gives every value one, even when the spec has none.
+		Clock: d.Spec.Hardware.ClockHz != nil || d.Vary.SpecKey == "hardware.clock",
+		Files: topFiles(p.Files),
 	}
 	var err error
 	if v.FigureSVG, err = inlineSVG(p.Figure); err != nil {
