@@ -80,10 +80,15 @@
 // chains designed and measured for real: nothing on it is an estimate. A
 // design failure never ends the search.
 //
-// Real designs cost 5 ms to 5 s each, so Settings.MaxDesigns (default 40)
-// caps them: the band's nearest members come first, and Result.Unsettled
-// counts the candidates the cap left undecided (zero means the front is
-// that of every candidate within the model above).
+// Real designs cost 5 ms to 5 s each, so Settings.MaxDesigns (default 400)
+// caps them, and so does a budget of design work counted, not timed, as
+// the sum over the designed chains' stages of the estimated length squared
+// (plus N R M for a CIC), Settings.MaxWork (default 3.5e7, about 5 s of
+// designs on two cores).
+// The band's nearest members come first, and Result.Unsettled counts the
+// candidates the caps left undecided (zero means the front is that of
+// every candidate within the model above). Both caps are counts, so the
+// result does not depend on the machine's speed.
 //
 // Settings.Exhaustive designs every feasible candidate instead (and keeps
 // the beaten CICs): it exists to check that the two tiers give the same

@@ -132,6 +132,7 @@ type realKey struct {
 type stageVal struct {
 	f, lo, hi figs
 	drop      dropCode
+	work      float64 // design work, taps squared
 }
 
 // estimator scores candidates from order estimates. It caches each stage's
@@ -301,6 +302,9 @@ func (e *estimator) stage(k stageKey) stageVal {
 		v.f.words = float64(n+n*m) * cplx
 		v.f.bits = float64(bits) * cplx
 		v.f.lat = float64(n) * float64(f*m-1) / 2 / rate
+		// Pruning its registers and measuring its alias bands both grow
+		// with N R M.
+		v.work = float64(n * f * m)
 	case chain.HalfBand:
 		edge := math.Max(p.fp, p.fa)
 		if last {
@@ -331,6 +335,7 @@ func (e *estimator) stage(k stageKey) stageVal {
 			return f
 		}
 		v.f = hb(kk)
+		v.work = (4*kk - 1) * (4*kk - 1) / 4
 		v.lo = hb(math.Max(1, math.Floor(kk/(1+2*e.tol))-1))
 		v.hi = hb(math.Ceil(kk*(1+e.tol)) + 1)
 		return v
@@ -358,6 +363,7 @@ func (e *estimator) stage(k stageKey) stageVal {
 			return f
 		}
 		v.f = fir(l)
+		v.work = l * l
 		v.lo = fir(math.Max(3, math.Floor(l/(1+2*e.tol))-2))
 		v.hi = fir(math.Ceil(l*(1+e.tol)) + 2)
 		return v
@@ -556,4 +562,20 @@ func (e *estimator) cicMargin(r, n, m int) float64 {
 	v := cicRejection(&e.p, e.p.f0, r, n, m, r == e.p.d) - e.p.rejDB
 	e.margins[k] = v
 	return v
+}
+
+// work is the design work of a plan in taps squared, the order of a
+// Parks-McClellan design's cost: the sum over its stages of their
+// estimated lengths squared (a half-band counts its length over 2), plus
+// N R M for a CIC (its register pruning and the measurement of its many
+// alias bands cost that much).
+func (e *estimator) work(plan []chain.StagePlan) float64 {
+	if _, d := e.score(plan); d != dropNone {
+		return 0
+	}
+	w := 0.0
+	for _, k := range e.keys {
+		w += e.cache[k.stageKey].work
+	}
+	return w
 }

@@ -381,7 +381,7 @@ func TestSearchFake(t *testing.T) {
 // the 15% band must give the exhaustive front exactly.
 func TestTwoTierExactFake(t *testing.T) {
 	p := rxParams(120)
-	two := fakeSearch(t, p, Settings{MaxDesigns: 2000})
+	two := fakeSearch(t, p, Settings{MaxDesigns: 2000, MaxWork: 1e15})
 	all := fakeSearch(t, p, Settings{Exhaustive: true})
 	if two.Unsettled != 0 {
 		t.Errorf("%d unsettled", two.Unsettled)

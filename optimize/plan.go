@@ -60,7 +60,7 @@ func (s *Settings) check() error {
 	for _, w := range []struct {
 		name string
 		v    float64
-	}{{"WeightMultiplies", s.WeightMultiplies}, {"WeightMemory", s.WeightMemory}, {"WeightLatency", s.WeightLatency}, {"Tolerance", s.Tolerance}} {
+	}{{"WeightMultiplies", s.WeightMultiplies}, {"WeightMemory", s.WeightMemory}, {"WeightLatency", s.WeightLatency}, {"Tolerance", s.Tolerance}, {"MaxWork", s.MaxWork}} {
 		if w.v < 0 || math.IsNaN(w.v) || math.IsInf(w.v, 0) {
 			return fmt.Errorf("optimize: %s = %g: must be finite and not negative", w.name, w.v)
 		}
@@ -378,8 +378,30 @@ func search(ctx context.Context, p params, s *Settings, est *estimator, des desi
 	if maxDesigns == 0 {
 		maxDesigns = defaultMaxDesigns
 	}
+	workLeft := designWork
+	if s.MaxWork > 0 {
+		workLeft = s.MaxWork
+	}
 	if s.Exhaustive {
-		maxDesigns = math.MaxInt
+		maxDesigns, workLeft = math.MaxInt, math.Inf(1)
+	}
+	// fit returns how many of plans, in order, the design cap and the work
+	// budget still allow, and charges their work.
+	fit := func(plans [][]chain.StagePlan) int {
+		n := 0
+		for _, pl := range plans {
+			if _, ok := memo[planKey(pl)]; ok {
+				n++
+				continue
+			}
+			w := est.work(pl)
+			if res.Designed+n >= maxDesigns || w > workLeft {
+				break
+			}
+			workLeft -= w
+			n++
+		}
+		return n
 	}
 	// settle takes the front of a pool of plans with their figures (real
 	// where designed, exact from learnt stages otherwise), and designs and
@@ -414,9 +436,7 @@ func search(ctx context.Context, p params, s *Settings, est *estimator, des desi
 			debugf("settle: front %d, to design %d", len(members), len(need))
 			if len(need) > 0 {
 				n := len(need)
-				if left := maxDesigns - res.Designed; n > left {
-					need = need[:max(left, 0)]
-				}
+				need = need[:fit(need)]
 				if !designAll(need) {
 					return false, 0
 				}
@@ -454,7 +474,7 @@ func search(ctx context.Context, p params, s *Settings, est *estimator, des desi
 			res.Partial = true
 		}
 	} else {
-		ok, left := learnAndDesign(est, band, memo, maxDesigns, res, designAll, settle)
+		ok, left := learnAndDesign(est, band, memo, fit, designAll, settle)
 		res.Unsettled = left
 		if !ok {
 			res.Partial = true
@@ -494,15 +514,15 @@ const maxRounds = 4
 //
 // It returns false when cancelled, and how many band candidates were left
 // unpriced or undesigned because the design cap was reached.
-func learnAndDesign(est *estimator, band []scored, memo map[string]outcome, maxDesigns int, res *Result,
+func learnAndDesign(est *estimator, band []scored, memo map[string]outcome, fit func([][]chain.StagePlan) int,
 	designAll func([][]chain.StagePlan) bool, settle func([][]chain.StagePlan, []figs) (bool, int)) (bool, int) {
 	learnt := map[realKey]figs{}
 	tries := map[realKey]int{}
 	capped := false
 	trim := func(b [][]chain.StagePlan) [][]chain.StagePlan {
-		if left := maxDesigns - res.Designed; len(b) > left {
+		if n := fit(b); n < len(b) {
 			capped = true
-			return b[:max(left, 0)]
+			return b[:n]
 		}
 		return b
 	}
@@ -745,8 +765,15 @@ func (e *estimator) excluded(fronts []bandRef) bool {
 	return false
 }
 
+// designWork is the budget of design work, in taps squared summed over
+// the stages of the chains designed (see estimator.work): enough to settle
+// the whole band of the D = 4096 benchmark (3.3e7), and about 10 s of
+// designs and measurements on two cores at D = 2^20. Like the design cap
+// it is counted, not timed, so the result does not depend on the machine.
+const designWork = 3.5e7
+
 // defaultMaxDesigns is Settings.MaxDesigns' default.
-const defaultMaxDesigns = 40
+const defaultMaxDesigns = 400
 
 // debugf traces the tiers in tests.
 var debugf = func(string, ...any) {}

@@ -176,7 +176,7 @@ func TestTwoTierExact(t *testing.T) {
 		s = optimize.Settings{}
 	}
 	// No design cap, so that the two-tier search settles every candidate.
-	s.MaxDesigns = 1 << 20
+	s.MaxDesigns, s.MaxWork = 1<<20, 1e15
 	two, err := optimize.Plan(context.Background(), spec, s)
 	if err != nil {
 		t.Fatal(err)
@@ -293,7 +293,7 @@ func BenchmarkTwoTierVsExhaustiveD120(b *testing.B) {
 		b.Run(name, func(b *testing.B) {
 			for i := 0; i < b.N; i++ {
 				// Uncapped, so that the two-tier search settles everything.
-				r, err := optimize.Plan(context.Background(), spec, optimize.Settings{Exhaustive: ex, MaxDesigns: 1 << 20})
+				r, err := optimize.Plan(context.Background(), spec, optimize.Settings{Exhaustive: ex, MaxDesigns: 1 << 20, MaxWork: 1e15})
 				if err != nil {
 					b.Fatal(err)
 				}
