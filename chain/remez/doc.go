@@ -27,7 +27,10 @@
 // of a reference whose structure is right then moves to its lobe's top by
 // a few evaluations (safeguarded parabolic search), and convergence is
 // always confirmed on the whole dense grid (Settings.Density points per
-// extremum, 16 by default as in McClellan, Parks and Rabiner 1973): the
+// extremum, 16 by default as in McClellan, Parks and Rabiner 1973, the
+// extrema counted over the bands' total width rather than all of [0,
+// rate/2], and at least 16 points in every band whatever the density, so
+// that short filters on narrow bands have a grid to work on): the
 // largest error on it, each extremum refined locally, must exceed the
 // levelled deviation by at most 1e-5 of it. The exchange keeps, among the
 // local extrema of every band (band edges included) and the old reference,
@@ -40,6 +43,18 @@
 // Settings.GridOnly instead solves the discrete problem on the 1973
 // program's grid with its starting reference, as SciPy's signal.remez does;
 // the tests use it to reproduce SciPy's coefficients.
+//
+// # Searches
+//
+// MinLength and MinHalfBand search the length from an order estimate by a
+// safeguarded secant on the log of the error ratio, galloping until the
+// answer is bracketed and bisecting: typically a handful of designs, never
+// more than 40. Gaps between bands of equal gain (the don't-care slivers
+// between alias stopbands) are not transitions for the estimate. A length
+// met to rounding level counts as too long; one that cannot be designed
+// counts as failing. Every phase of a design (coarse seeding, grid
+// iterations, local steps) is bounded by Settings.MaxIterations, so every
+// call returns in bounded time.
 //
 // # Errors
 //

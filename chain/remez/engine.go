@@ -220,13 +220,30 @@ func newEngine(n int, rate float64, bands []Band, s Settings) (*engine, error) {
 	return e, nil
 }
 
-// buildGrid lays the dense grid. The spacing is 0.5/(density r) as in the
-// 1973 program. With GridOnly the points are placed exactly as that program
-// did (so results can be compared with implementations that follow it);
-// otherwise each band is split into equal steps no longer than the spacing,
-// so both of its edges are on the grid.
+// minBandPoints is the fewest grid points any band gets without GridOnly,
+// whatever the density: a band narrower than one grid spacing still holds
+// a reference point or two (band edges and a lobe between them), and the
+// exchange must see its error's sign change there.
+const minBandPoints = 16
+
+// buildGrid lays the dense grid. With GridOnly the spacing is
+// 0.5/(density r) and the points are placed exactly as the 1973 program
+// placed them (so results can be compared with implementations that follow
+// it). Otherwise the r+1 extrema lie in the bands, not across [0, 1/2], so
+// the spacing is W/(density r) when the bands cover a total width W below
+// 1/2 (narrow bands would otherwise get fewer grid points than extrema: a
+// short half-band on a narrow passband had 2 points for 3 unknowns); each
+// band is split into equal steps no longer than that, so both of its edges
+// are on the grid, and into at least minBandPoints points.
 func (e *engine) buildGrid() error {
 	delf := 0.5 / float64(e.density*e.r)
+	if !e.gridOnly {
+		w := 0.0
+		for _, b := range e.bands {
+			w += b.hi - b.lo
+		}
+		delf = math.Min(0.5, w) / float64(e.density*e.r)
+	}
 	e.grid = e.grid[:0]
 	e.bstart = append(e.bstart[:0], 0)
 	for bi := range e.bands {
@@ -243,9 +260,7 @@ func (e *engine) buildGrid() error {
 			}
 		} else {
 			steps := int(math.Ceil((b.hi - b.lo) / delf * (1 - 1e-12)))
-			if steps < 1 {
-				steps = 1
-			}
+			steps = max(steps, minBandPoints-1)
 			for k := 0; k <= steps; k++ {
 				f := b.lo + (b.hi-b.lo)*float64(k)/float64(steps)
 				if k == steps {

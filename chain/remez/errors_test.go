@@ -36,9 +36,9 @@ func TestDesignErrors(t *testing.T) {
 		{"density", 31, 1, lp, Settings{Density: -1}, "Density"},
 		{"iterations", 31, 1, lp, Settings{MaxIterations: -3}, "MaxIterations"},
 		{"tooManyBands", 5, 1, []Band{{Lo: 0, Hi: 0.05, Gain: 1}, {Lo: 0.1, Hi: 0.15}, {Lo: 0.2, Hi: 0.25, Gain: 1}, {Lo: 0.3, Hi: 0.35}, {Lo: 0.4, Hi: 0.5, Gain: 1}}, Settings{}, "bands"},
-		{"fewGridPoints", 101, 1, []Band{{Lo: 0, Hi: 0.001, Gain: 1}, {Lo: 0.4, Hi: 0.401}}, Settings{Density: 1}, "grid points"},
+		{"fewGridPoints", 101, 1, []Band{{Lo: 0, Hi: 0.001, Gain: 1}, {Lo: 0.4, Hi: 0.401}}, Settings{Density: 1, GridOnly: true}, "grid points"},
 		{"evenNyquist", 20, 1, []Band{{Lo: 0, Hi: 0.3, Gain: 1}, {Lo: 0.4999, Hi: 0.5}}, Settings{GridOnly: true}, "rate/2"},
-		{"fewPoints", 4, 1, []Band{{Lo: 0.499, Hi: 0.5, Gain: 1}}, Settings{}, "grid points"},
+		{"fewPoints", 4, 1, []Band{{Lo: 0.499, Hi: 0.5, Gain: 1}}, Settings{GridOnly: true}, "grid point"},
 		{"tooLax", 301, 1, []Band{{Lo: 0, Hi: 0.1, Gain: 1}, {Lo: 0.4, Hi: 0.5}}, Settings{}, "rounding"},
 		{"maxIter", 301, 1, []Band{{Lo: 0, Hi: 0.2, Gain: 1}, {Lo: 0.21, Hi: 0.5}}, Settings{MaxIterations: 1}, "converge"},
 	} {

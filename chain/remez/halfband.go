@@ -73,76 +73,52 @@ func halfBandSpec(fp, rate float64) error {
 
 // MinHalfBand returns the half-band with the smallest k whose deviation
 // (passband and stopband alike, measured on the refined response) is at
-// most dev. The search starts from the Herrmann-Rabiner-Chan estimate with
-// dp = ds = dev and transition rate/2 - 2 fp, then steps and bisects; it
-// gives up beyond k = 16384 (65 535 taps).
+// most dev. The search is MinLength's on the length 2k of the single-band
+// G: it starts from the Herrmann-Rabiner-Chan estimate with dp = ds = dev
+// and transition rate/2 - 2 fp, then a safeguarded secant on the log of the
+// error ratio, galloping until it brackets the answer and bisecting, so it
+// typically takes a handful of designs (at most 40). k = 1 is solved in
+// closed form first. A k that cannot be designed (the exchange breaks down)
+// is skipped as failing, and one met to rounding level counts as too long.
+// It gives up beyond k = 16384 (65 535 taps).
 func MinHalfBand(fp, rate, dev float64, s Settings) (*Result, error) {
+	r, _, err := minHalfBand(fp, rate, dev, s)
+	return r, err
+}
+
+// minHalfBand is MinHalfBand that also returns its search state (for
+// tests; nil when k = 1 meets).
+func minHalfBand(fp, rate, dev float64, s Settings) (*Result, *lengthSearch, error) {
 	if err := halfBandSpec(fp, rate); err != nil {
-		return nil, err
+		return nil, nil, err
 	}
 	if !(dev > 0 && dev < 0.5) {
-		return nil, fmt.Errorf("remez: half-band deviation dev = %v: must lie strictly between 0 and 0.5", dev)
+		return nil, nil, fmt.Errorf("remez: half-band deviation dev = %v: must lie strictly between 0 and 0.5", dev)
+	}
+	if err := validateSpec(1, []Band{{Lo: 0, Hi: 0.25, Gain: 1}}, s); err != nil {
+		return nil, nil, err
 	}
 	const kMax = 16384
+	if r, err := HalfBand(1, fp, rate, s); err == nil && r.Deviations[0] <= dev {
+		return r, nil, nil
+	}
+	m := &lengthSearch{
+		bands: []Band{{MaxError: dev}}, maxTaps: 2 * kMax, s: s,
+		cache: map[int]*Result{}, ratio: map[int]float64{}, lax: map[int]bool{},
+		designFn: func(n int) (*Result, []float64, bool) {
+			r, err := HalfBand(n/2, fp, rate, s)
+			lax := errors.Is(err, errRounding)
+			if r == nil {
+				return nil, nil, lax
+			}
+			return r, r.Deviations[:1], lax
+		},
+	}
 	n := HerrmannLength(dev, dev, rate/2-2*fp, rate)
-	k0 := max(1, min(kMax, (n+1+3)/4))
-	cache := map[int]*Result{}
-	var firstErr error
-	meets := func(k int) bool {
-		if r, ok := cache[k]; ok {
-			return r != nil && r.Deviations[0] <= dev
-		}
-		r, err := HalfBand(k, fp, rate, s)
-		if err != nil && firstErr == nil && !errors.Is(err, ErrNotConverged) {
-			firstErr = err
-		}
-		cache[k] = r
-		return r != nil && r.Deviations[0] <= dev
+	k0 := max(2, min(kMax, (n+1+3)/4))
+	res, err := m.finish(m.search(2*k0, 0))
+	if err != nil {
+		return nil, m, fmt.Errorf("remez: half-band fp = %v Hz, rate %v Hz, dev = %v, k up to %d (%d taps): %w", fp, rate, dev, kMax, 4*kMax-1, err)
 	}
-	lo, hi := 0, 0 // lo fails (0: none known), hi meets
-	if meets(k0) {
-		hi = k0
-		for step := 1; ; step *= 2 {
-			c := hi - step
-			if c < 1 {
-				c = 1
-			}
-			if c == hi {
-				break
-			}
-			if !meets(c) {
-				lo = c
-				break
-			}
-			hi = c
-			if c == 1 {
-				break
-			}
-		}
-	} else {
-		lo = k0
-		for step := 1; ; step *= 2 {
-			c := min(lo+step, kMax)
-			if meets(c) {
-				hi = c
-				break
-			}
-			if firstErr != nil {
-				return nil, firstErr
-			}
-			if c == kMax {
-				return nil, fmt.Errorf("remez: half-band fp = %v Hz, rate %v Hz, dev = %v: not met with k up to %d (%d taps); widen the transition or relax dev", fp, rate, dev, kMax, 4*kMax-1)
-			}
-			lo = c
-		}
-	}
-	for lo > 0 && hi-lo > 1 {
-		mid := (lo + hi) / 2
-		if meets(mid) {
-			hi = mid
-		} else {
-			lo = mid
-		}
-	}
-	return cache[hi], nil
+	return res, m, nil
 }

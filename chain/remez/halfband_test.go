@@ -1,6 +1,7 @@
 package remez
 
 import (
+	"errors"
 	"math"
 	"testing"
 )
@@ -87,9 +88,13 @@ func TestMinHalfBand(t *testing.T) {
 		{0.1, 1, 0.01},
 		{0.245, 1, 1e-4},
 	} {
-		res, err := MinHalfBand(tc.fp, tc.rate, tc.dev, Settings{})
+		res, m, err := minHalfBand(tc.fp, tc.rate, tc.dev, Settings{})
 		if err != nil {
 			t.Fatal(err)
+		}
+		// Efficiency: estimate, then a few secant/bisection steps.
+		if m != nil && m.designs > 8 {
+			t.Errorf("fp=%v dev=%v: %d designs", tc.fp, tc.dev, m.designs)
 		}
 		k := (len(res.Taps) + 1) / 4
 		if res.Deviations[0] > tc.dev {
@@ -102,7 +107,11 @@ func TestMinHalfBand(t *testing.T) {
 			}
 		}
 		checkHalfBand(t, res, tc.fp, tc.rate)
-		t.Logf("fp=%v rate=%v dev=%v: k=%d (%d taps), deviation %.4g", tc.fp, tc.rate, tc.dev, k, len(res.Taps), res.Deviations[0])
+		d := 0
+		if m != nil {
+			d = m.designs
+		}
+		t.Logf("fp=%v rate=%v dev=%v: k=%d (%d taps), deviation %.4g, %d designs", tc.fp, tc.rate, tc.dev, k, len(res.Taps), res.Deviations[0], d)
 	}
 }
 
@@ -110,5 +119,64 @@ func TestHalfBandLax(t *testing.T) {
 	// k = 300 with fp = 0.24 would be far beyond 300 dB: rounding level.
 	if _, err := HalfBand(300, 0.24, 1, Settings{}); err == nil {
 		t.Error("no error for a half-band met to rounding level")
+	}
+}
+
+// TestMinHalfBandNarrowPassband: an early half-band keeping 12.5 kHz at
+// 1.6 MHz for 90 dB needs only a few taps; at the default density a length-4
+// G has too few grid points on its one band unless every band gets a
+// minimum, and k values that cannot be designed must be skipped, not fail
+// the search. The answer is checked against the smallest k found by
+// designing every k from 1 up at a density far above any minimum.
+func TestMinHalfBandNarrowPassband(t *testing.T) {
+	for _, tc := range []struct {
+		fp, rate, dev float64
+	}{
+		{12.5e3, 1.6e6, 3.16e-5}, // the report
+		{10e3, 1.6e6, 1e-5},
+		{1e3, 100e6, 1e-6},
+		{50e3, 1.6e6, 1e-3},
+	} {
+		res, m, err := minHalfBand(tc.fp, tc.rate, tc.dev, Settings{})
+		if err != nil {
+			t.Errorf("fp=%v rate=%v dev=%v: %v", tc.fp, tc.rate, tc.dev, err)
+			continue
+		}
+		if m != nil && m.designs > 8 {
+			t.Errorf("fp=%v dev=%v: %d designs", tc.fp, tc.dev, m.designs)
+		}
+		checkHalfBand(t, res, tc.fp, tc.rate)
+		k := (len(res.Taps) + 1) / 4
+		want := 0
+		for kk := 1; kk <= 64 && want == 0; kk++ {
+			r, err := HalfBand(kk, tc.fp, tc.rate, Settings{Density: 4096})
+			if err == nil && r.Deviations[0] <= tc.dev {
+				want = kk
+			}
+		}
+		if k != want {
+			t.Errorf("fp=%v rate=%v dev=%v: k = %d, exhaustive search at density 4096 gives %d", tc.fp, tc.rate, tc.dev, k, want)
+		}
+		d := 0
+		if m != nil {
+			d = m.designs
+		}
+		t.Logf("fp=%v rate=%v dev=%v: k=%d (%d taps), deviation %.4g, %d designs", tc.fp, tc.rate, tc.dev, k, len(res.Taps), res.Deviations[0], d)
+	}
+}
+
+// TestHalfBandShortNarrow: short half-bands on very narrow passbands design
+// at the default density (every band has a minimum of grid points).
+func TestHalfBandShortNarrow(t *testing.T) {
+	for _, k := range []int{2, 3, 4, 6, 10, 20, 40} {
+		res, err := HalfBand(k, 12.5e3, 1.6e6, Settings{})
+		if err != nil {
+			if errors.Is(err, errRounding) {
+				continue // met to rounding level: legitimately no optimum
+			}
+			t.Errorf("k=%d: %v", k, err)
+			continue
+		}
+		checkHalfBand(t, res, 12.5e3, 1.6e6)
 	}
 }

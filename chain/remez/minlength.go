@@ -104,6 +104,9 @@ type lengthSearch struct {
 	ratio   map[int]float64 // worst measured/allowed error per length
 	lax     map[int]bool    // lengths met to rounding level, taps unusable
 	designs int             // designs run, bounded by maxDesigns
+	// designFn, when not nil, replaces design (MinHalfBand searches the
+	// length of its single-band G with it).
+	designFn func(n int) (*Result, []float64, bool)
 }
 
 // maxDesigns bounds the designs of one MinLength call. The search needs a
@@ -173,6 +176,9 @@ func (m *lengthSearch) meets(n int) bool {
 const laxRatio = 1e-12
 
 func (m *lengthSearch) design(n int) (*Result, []float64, bool) {
+	if m.designFn != nil {
+		return m.designFn(n)
+	}
 	e, err := newEngine(n, m.rate, m.wb, m.s)
 	if err != nil {
 		return nil, nil, false

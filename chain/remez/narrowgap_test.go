@@ -150,3 +150,31 @@ func TestSearchFromFarAbove(t *testing.T) {
 	}
 	t.Logf("%d taps after %d designs", n, m.designs)
 }
+
+// TestGridMinimum: without GridOnly every band gets at least minBandPoints
+// grid points and the grid holds at least Density points per reference
+// point in total, however narrow the bands and coarse the density.
+func TestGridMinimum(t *testing.T) {
+	for _, tc := range []struct {
+		n       int
+		bands   []Band
+		density int
+	}{
+		{101, []Band{{Lo: 0, Hi: 0.001, Gain: 1}, {Lo: 0.4, Hi: 0.401}}, 1},
+		{4, []Band{{Lo: 0, Hi: 12.5e3 / 0.8e6, Gain: 1}}, 16}, // half-band k = 2 at 1.6 MHz
+		{41, aliasBands(1, 20, 0.001, 0.0249, 0.01, 1e-4), 16},
+	} {
+		e, err := newEngine(tc.n, 1, tc.bands, Settings{Density: tc.density})
+		if err != nil {
+			t.Fatalf("n=%d: %v", tc.n, err)
+		}
+		for b := range tc.bands {
+			if c := e.bstart[b+1] - e.bstart[b]; c < minBandPoints {
+				t.Errorf("n=%d band %d: %d grid points", tc.n, b, c)
+			}
+		}
+		if len(e.grid) < tc.density*(e.r+1)-tc.density {
+			t.Errorf("n=%d: %d grid points for %d reference points at density %d", tc.n, len(e.grid), e.r+1, tc.density)
+		}
+	}
+}
