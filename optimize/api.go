@@ -32,12 +32,12 @@ type Settings struct {
 	// means 0.15.
 	Tolerance float64
 	// MaxDesigns caps the number of chains designed for real. Zero means
-	// 400 (a design takes 5 ms to 5 s); a budget of design work also applies
+	// 600 (a design takes 5 ms to 5 s); a budget of design work also applies
 	// (see the package doc). Result.Unsettled says whether they cut the
 	// search short.
 	MaxDesigns int
 	// MaxWork is the budget of design work, in the units of the package
-	// doc (estimated taps squared). Zero means 3.5e7.
+	// doc (estimated taps squared). Zero means 4e7.
 	MaxWork float64
 	// MaxTaps is the longest FIR or half-band stage, by its estimate, that
 	// the search designs; longer ones are dropped. Zero means 511.

@@ -80,10 +80,10 @@
 // chains designed and measured for real: nothing on it is an estimate. A
 // design failure never ends the search.
 //
-// Real designs cost 5 ms to 5 s each, so Settings.MaxDesigns (default 400)
+// Real designs cost 5 ms to 5 s each, so Settings.MaxDesigns (default 600)
 // caps them, and so does a budget of design work counted, not timed, as
 // the sum over the designed chains' stages of the estimated length squared
-// (plus N R M for a CIC), Settings.MaxWork (default 3.5e7, about 5 s of
+// (plus N R M for a CIC), Settings.MaxWork (default 4e7, about 5 s of
 // designs on two cores).
 // The band's nearest members come first, and Result.Unsettled counts the
 // candidates the caps left undecided (zero means the front is that of

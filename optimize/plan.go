@@ -770,10 +770,10 @@ func (e *estimator) excluded(fronts []bandRef) bool {
 // the whole band of the D = 4096 benchmark (3.3e7), and about 10 s of
 // designs and measurements on two cores at D = 2^20. Like the design cap
 // it is counted, not timed, so the result does not depend on the machine.
-const designWork = 3.5e7
+const designWork = 4e7
 
 // defaultMaxDesigns is Settings.MaxDesigns' default.
-const defaultMaxDesigns = 400
+const defaultMaxDesigns = 600
 
 // debugf traces the tiers in tests.
 var debugf = func(string, ...any) {}
