@@ -84,7 +84,7 @@ func loadSpec(c *cli.Context) (*specfile.Spec, string, error) {
 	return s, path, nil
 }
 
-// run holds what a plan or check needs to write its outputs.
+// job holds what a plan or check needs to write its outputs.
 type job struct {
 	c       *cli.Context
 	spec    *specfile.Spec
