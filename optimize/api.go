@@ -70,8 +70,11 @@ type Candidate struct {
 // Result is the outcome of a search.
 type Result struct {
 	Candidates int // enumerated
-	// Feasible is the cloud of feasible candidates with estimated figures,
-	// thinned deterministically to at most CloudSize (see the package doc).
+	// Feasible is the cloud of feasible candidates with estimated figures
+	// (multiplies, memory and latency as cost.Price gives them for
+	// chain.Estimate's lengths; no adders, no analysis beyond the CIC's
+	// exact rejection), thinned deterministically to at most CloudSize (see
+	// the package doc).
 	Feasible    []Candidate
 	FeasibleAll int            // how many were feasible before thinning
 	Designed    int            // how many were designed for real
