@@ -27,6 +27,9 @@ const (
 	// Coarse grid density and tolerance of the first stage of a long design.
 	coarseDensity = 4
 	tolCoarse     = 1e-2
+	// Local steps that leave delta unchanged this many times running
+	// without converging hand the design to the grid exchange.
+	stallSteps = 4
 )
 
 // ErrNotConverged is wrapped by the error Design returns, together with a
@@ -60,6 +63,28 @@ func (e *engine) design() (*Result, error) {
 		tol = tolGrid
 	}
 	it, conv, err := e.run(tol, e.maxIter)
+	if !conv && e.seeded && it < e.maxIter {
+		// A seeded start can be wrong in structure (a seed's reference
+		// scaled onto many narrow bands) and break down; the evenly spread
+		// start of the 1973 program is slower but robust: try it with the
+		// iterations left, and keep whichever run did better.
+		first := append([]point(nil), e.ref...)
+		firstGap, firstErr := e.bestGap, err
+		e.local, e.stepGap = false, math.Inf(1)
+		e.best = e.best[:0]
+		e.uniformRef()
+		it2, conv2, err2 := e.run(tol, e.maxIter-it)
+		it += it2
+		if conv2 || (err2 == nil && (firstErr != nil || e.bestGap < firstGap)) {
+			conv, err = conv2, err2
+		} else {
+			e.ref = append(e.ref[:0], first...)
+			if lerr := e.level(); lerr == nil {
+				e.evalGrid()
+				e.extrema(true)
+			}
+		}
+	}
 	if err != nil && len(e.xr) == 0 {
 		return nil, err
 	}
@@ -126,6 +151,7 @@ func (e *engine) initRef() {
 		e.uniformRef()
 		return
 	}
+	e.seeded = true
 	if e.density > coarseDensity {
 		c := e.sibling(e.n, coarseDensity)
 		c.handOff = true

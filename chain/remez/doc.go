@@ -32,7 +32,13 @@
 // rate/2], and at least 16 points in every band whatever the density, so
 // that short filters on narrow bands have a grid to work on): the
 // largest error on it, each extremum refined locally, must exceed the
-// levelled deviation by at most 1e-5 of it. The exchange keeps, among the
+// levelled deviation by at most 1e-5 of it. Local steps that leave the
+// levelled deviation unchanged to 1e-9 four times running without
+// converging (rounding noise in the error of long, deep designs) hand over
+// to the grid exchange for the rest of the design; a seeded start that does
+// not converge is followed, within the same MaxIterations, by the 1973
+// program's evenly spread start, and the better of the two is kept. The
+// exchange keeps, among the
 // local extrema of every band (band edges included) and the old reference,
 // one point per run of equal sign and trims the surplus while keeping
 // alternation. Taps come from the interpolant sampled at Chebyshev points

@@ -104,6 +104,8 @@ type engine struct {
 	// its reference size
 	seedCnt []int
 	seedM   int
+	seeded  bool    // the start was scaled or coarse, not evenly spread
+	bestGap float64 // smallest relative gap of the last run's grid passes
 }
 
 // bary1 evaluates the levelled polynomial at normalised frequency f by the
@@ -1013,6 +1015,11 @@ func (e *engine) run(tol float64, maxIter int) (int, bool, error) {
 	// grid, and a step that finds the structure wrong hands over to it.
 	useLocal := e.local && !e.gridOnly
 	confirm := false
+	// Local steps that keep delta fixed to rounding without closing the
+	// gap are stalled on noise in the error they read (long filters, deep
+	// stopbands): after stallSteps of them the grid exchange, with fully
+	// refined extrema, finishes the design alone.
+	noLocal, stall, prevDelta := false, 0, math.NaN()
 	for it < maxIter {
 		it++
 		if err = e.level(); err != nil {
@@ -1020,6 +1027,15 @@ func (e *engine) run(tol float64, maxIter int) (int, bool, error) {
 		}
 		if useLocal {
 			gap, ok := e.localStep()
+			if ok && gap > tol && math.Abs(e.delta-prevDelta) <= 1e-9*math.Abs(e.delta) {
+				stall++
+			} else {
+				stall = 0
+			}
+			prevDelta = e.delta
+			if stall >= stallSteps {
+				noLocal, full, ok = true, true, false
+			}
 			if ok {
 				if gap <= tol {
 					useLocal = false // confirm on the grid next
@@ -1068,7 +1084,7 @@ func (e *engine) run(tol float64, maxIter int) (int, bool, error) {
 			conv = true
 			break
 		}
-		useLocal = !e.gridOnly && gap < 0.5
+		useLocal = !e.gridOnly && !noLocal && gap < 0.5
 		e.prevF = e.prevF[:0]
 		for i := range e.ref {
 			e.prevF = append(e.prevF, e.ref[i].f)
@@ -1088,6 +1104,7 @@ func (e *engine) run(tol float64, maxIter int) (int, bool, error) {
 			break
 		}
 	}
+	e.bestGap = bestGap
 	if !conv && len(e.best) > 0 {
 		e.ref = append(e.ref[:0], e.best...)
 		if lerr := e.level(); lerr != nil && err == nil {

@@ -178,3 +178,30 @@ func TestGridMinimum(t *testing.T) {
 		}
 	}
 }
+
+// TestSeededStartRecovers: two lengths found by the randomized sweep of
+// chain-like multiband stages. At 1085 taps (21 bands) the reference scaled
+// from the coarse design had the wrong structure and the exchange broke
+// down in two iterations; at 2375 taps (18 bands) the local steps stalled on
+// evaluation noise 1e-4 above delta for all 100 iterations. Both must now
+// converge to equiripple.
+func TestSeededStartRecovers(t *testing.T) {
+	for _, tc := range []struct {
+		n              int
+		rate           float64
+		d              int
+		fp, fa, dp, ds float64
+	}{
+		{1085, 1.6e6, 40, 16910.7809178744, 19304.349348409, 0.009209702603935435, 0.0007819686545978663},
+		{2375, 3e6, 34, 40926.85452778635, 40926.85452778635, 0.00267673315371937, 8.735633864033865e-05},
+	} {
+		bands := aliasBands(tc.rate, tc.d, tc.fp, tc.fa, tc.dp, tc.ds)
+		res, err := Design(tc.n, tc.rate, bands, Settings{})
+		if err != nil {
+			t.Errorf("n=%d: %v", tc.n, err)
+			continue
+		}
+		checkEquiripple(t, "seeded", res, tc.rate, bands, 16)
+		t.Logf("n=%d, %d bands: %d iterations", tc.n, len(bands), res.Iterations)
+	}
+}
