@@ -169,14 +169,6 @@ type scored struct {
 // kept), which bounds memory for the largest ratios.
 const maxBand = 1 << 17
 
-// outcome is what one real design gave, and whether its cascade has been
-// analysed.
-type outcome struct {
-	c        Candidate
-	reason   string
-	analyzed bool
-}
-
 // search is Plan after validation, with the estimate and design tiers
 // passed in so that tests can use fake figures.
 func search(ctx context.Context, p params, s *Settings, est *estimator, des designer) (*Result, error) {
@@ -296,198 +288,15 @@ func search(ctx context.Context, p params, s *Settings, est *estimator, des desi
 	}
 
 	debugf("band %d", len(band))
-	memo := map[string]outcome{}
-	var order []string // memo keys in the order designed
-	total := 0
-	// designAll designs the plans not yet in memo, in parallel, each into
-	// its own slot, and reports whether all of them ran.
-	designAll := func(plans [][]chain.StagePlan) bool {
-		var todo [][]chain.StagePlan
-		seen := map[string]bool{}
-		for _, pl := range plans {
-			k := planKey(pl)
-			if _, ok := memo[k]; ok || seen[k] {
-				continue
-			}
-			seen[k] = true
-			todo = append(todo, pl)
-		}
-		outs := make([]outcome, len(todo))
-		base := total
-		total += len(todo)
-		var prog func(int, int)
-		if s.Progress != nil {
-			prog = func(d, _ int) { s.Progress(base+d, total) }
-		}
-		done := runAll(ctx, jobs, len(todo), func(i int) {
-			c, why := des.design(todo[i])
-			outs[i] = outcome{c: c, reason: why}
-		}, prog)
-		all := true
-		for i, ok := range done {
-			if !ok {
-				all = false
-				continue
-			}
-			k := planKey(todo[i])
-			memo[k] = outs[i]
-			order = append(order, k)
-			res.Designed++
-			if outs[i].reason != "" {
-				res.Dropped[outs[i].reason]++
-			}
-		}
-		return all
-	}
-
-	// analyzeAll analyses the designed, unanalysed plans among plans.
-	analyzeAll := func(plans [][]chain.StagePlan) bool {
-		var todo []string
-		for _, pl := range plans {
-			k := planKey(pl)
-			if o, ok := memo[k]; ok && o.reason == "" && !o.analyzed {
-				todo = append(todo, k)
-			}
-		}
-		sort.Strings(todo)
-		outs := make([]outcome, len(todo))
-		base := total
-		total += len(todo)
-		var prog func(int, int)
-		if s.Progress != nil {
-			prog = func(d, _ int) { s.Progress(base+d, total) }
-		}
-		done := runAll(ctx, jobs, len(todo), func(i int) {
-			c, why := des.analyze(memo[todo[i]].c)
-			outs[i] = outcome{c: c, reason: why, analyzed: true}
-		}, prog)
-		all := true
-		for i, ok := range done {
-			if !ok {
-				all = false
-				continue
-			}
-			memo[todo[i]] = outs[i]
-			if outs[i].reason != "" {
-				res.Dropped[outs[i].reason]++
-			}
-		}
-		return all
-	}
-	maxDesigns := s.MaxDesigns
-	if maxDesigns == 0 {
-		maxDesigns = defaultMaxDesigns
-	}
-	workLeft := designWork
-	if s.MaxWork > 0 {
-		workLeft = s.MaxWork
-	}
+	t := newDesignTier(ctx, jobs, des, est, s, res)
 	if s.Exhaustive {
-		maxDesigns, workLeft = math.MaxInt, math.Inf(1)
-	}
-	// fit returns how many of plans, in order, the design cap and the work
-	// budget still allow, and charges their work.
-	fit := func(plans [][]chain.StagePlan) int {
-		n := 0
-		for _, pl := range plans {
-			if _, ok := memo[planKey(pl)]; ok {
-				n++
-				continue
-			}
-			w := est.work(pl)
-			if res.Designed+n >= maxDesigns || w > workLeft {
-				break
-			}
-			workLeft -= w
-			n++
-		}
-		return n
-	}
-	// settle takes the front of a pool of plans with their figures (real
-	// where designed, exact from learnt stages otherwise), and designs and
-	// analyses its members until every member is designed, analysed and
-	// meets the spec, replacing those that fail. It reports false when
-	// cancelled, and how many front members the design cap left undesigned.
-	settle := func(plans [][]chain.StagePlan, fs []figs) (bool, int) {
-		gone := make([]bool, len(plans))
-		for {
-			for i, pl := range plans {
-				if o, ok := memo[planKey(pl)]; ok {
-					if o.reason != "" {
-						gone[i] = true
-					} else {
-						fs[i] = candFigs(&o.c)
-					}
-				}
-			}
-			var fr frontSet
-			for i := range fs {
-				if !gone[i] {
-					fr.add(fs[i], i)
-				}
-			}
-			var need, members [][]chain.StagePlan
-			for _, i := range fr.id {
-				members = append(members, plans[i])
-				if _, ok := memo[planKey(plans[i])]; !ok {
-					need = append(need, plans[i])
-				}
-			}
-			debugf("settle: front %d, to design %d", len(members), len(need))
-			if len(need) > 0 {
-				n := len(need)
-				need = need[:fit(need)]
-				if !designAll(need) {
-					return false, 0
-				}
-				if len(need) < n {
-					if !analyzeAll(members) {
-						return false, 0
-					}
-					return true, n - len(need)
-				}
-				continue
-			}
-			if !analyzeAll(members) {
-				return false, 0
-			}
-			failed := false
-			for _, pl := range members {
-				if memo[planKey(pl)].reason != "" {
-					failed = true
-				}
-			}
-			if !failed {
-				return true, 0
-			}
-		}
-	}
-
-	if s.Exhaustive {
-		plans := make([][]chain.StagePlan, len(band))
-		for i := range band {
-			plans[i] = band[i].plan
-		}
-		if !designAll(plans) {
-			res.Partial = true
-		} else if ok, _ := settle(plans, make([]figs, len(plans))); !ok {
-			res.Partial = true
-		}
+		res.Partial = !t.exhaustive(band)
 	} else {
-		ok, left := learnAndDesign(est, band, memo, fit, designAll, settle)
+		ok, left := t.learn(band)
 		res.Unsettled = left
-		if !ok {
-			res.Partial = true
-		}
+		res.Partial = !ok
 	}
-
-	var designed []Candidate
-	for _, k := range order {
-		if o := memo[k]; o.reason == "" && o.analyzed {
-			designed = append(designed, o.c)
-		}
-	}
-	res.Front = designedFront(designed)
+	res.Front = t.front()
 	fs := make([]figs, len(res.Front))
 	for i := range res.Front {
 		fs[i] = candFigs(&res.Front[i])
@@ -504,7 +313,7 @@ func search(ctx context.Context, p params, s *Settings, est *estimator, des desi
 // candidates that contain it.
 const maxRounds = 4
 
-// learnAndDesign is the design tier. A stage's real design and price
+// learn is the design tier. A stage's real design and price
 // depend only on its realKey, so designing one chain that contains a stage
 // teaches its real figures for every candidate that contains it. Rounds of
 // designs first teach every stage of the band; the band is then priced
@@ -514,13 +323,13 @@ const maxRounds = 4
 //
 // It returns false when cancelled, and how many band candidates were left
 // unpriced or undesigned because the design cap was reached.
-func learnAndDesign(est *estimator, band []scored, memo map[string]outcome, fit func([][]chain.StagePlan) int,
-	designAll func([][]chain.StagePlan) bool, settle func([][]chain.StagePlan, []figs) (bool, int)) (bool, int) {
+func (t *designTier) learn(band []scored) (bool, int) {
+	est, memo := t.est, t.memo
 	learnt := map[realKey]figs{}
 	tries := map[realKey]int{}
 	capped := false
 	trim := func(b [][]chain.StagePlan) [][]chain.StagePlan {
-		if n := fit(b); n < len(b) {
+		if n := t.fit(b); n < len(b) {
 			capped = true
 			return b[:n]
 		}
@@ -553,7 +362,7 @@ func learnAndDesign(est *estimator, band []scored, memo map[string]outcome, fit 
 			break
 		}
 		debugf("round %d reps %d", round, len(reps))
-		ok := designAll(reps)
+		ok := t.designAll(reps)
 		for _, pl := range reps {
 			o, done := memo[planKey(pl)]
 			if !done {
@@ -605,7 +414,7 @@ func learnAndDesign(est *estimator, band []scored, memo map[string]outcome, fit 
 		exact = append(exact, f)
 		plans = append(plans, pl)
 	}
-	ok, short := settle(plans, exact)
+	ok, short := t.settle(plans, exact)
 	if short > 0 || (capped && unpriced > 0) {
 		return ok, short + unpriced
 	}

@@ -1,0 +1,232 @@
+package optimize
+
+import (
+	"context"
+	"math"
+	"sort"
+
+	"stepdown/chain"
+)
+
+// outcome is what one real design gave, and whether its cascade has been
+// analysed.
+type outcome struct {
+	c        Candidate
+	reason   string
+	analyzed bool
+}
+
+// designTier runs the real designs of one search: it remembers every
+// outcome by plan, spends the design cap and the work budget, and reports
+// progress and drops into the result.
+type designTier struct {
+	ctx  context.Context
+	jobs int
+	des  designer
+	est  *estimator
+	s    *Settings
+	res  *Result
+
+	memo  map[string]outcome
+	order []string // memo keys in the order designed
+	total int      // work units scheduled, for Progress
+
+	maxDesigns int
+	workLeft   float64
+}
+
+func newDesignTier(ctx context.Context, jobs int, des designer, est *estimator, s *Settings, res *Result) *designTier {
+	t := &designTier{ctx: ctx, jobs: jobs, des: des, est: est, s: s, res: res,
+		memo: map[string]outcome{}, maxDesigns: s.MaxDesigns, workLeft: s.MaxWork}
+	if t.maxDesigns == 0 {
+		t.maxDesigns = defaultMaxDesigns
+	}
+	if t.workLeft == 0 {
+		t.workLeft = designWork
+	}
+	if s.Exhaustive {
+		t.maxDesigns, t.workLeft = math.MaxInt, math.Inf(1)
+	}
+	return t
+}
+
+func (t *designTier) progress() func(int, int) {
+	if t.s.Progress == nil {
+		return nil
+	}
+	base := t.total
+	return func(d, _ int) { t.s.Progress(base+d, t.total) }
+}
+
+// designAll designs the plans not designed yet, in parallel, each into its
+// own slot, and reports whether all of them ran.
+func (t *designTier) designAll(plans [][]chain.StagePlan) bool {
+	var todo [][]chain.StagePlan
+	seen := map[string]bool{}
+	for _, pl := range plans {
+		k := planKey(pl)
+		if _, ok := t.memo[k]; ok || seen[k] {
+			continue
+		}
+		seen[k] = true
+		todo = append(todo, pl)
+	}
+	outs := make([]outcome, len(todo))
+	prog := t.progress()
+	t.total += len(todo)
+	done := runAll(t.ctx, t.jobs, len(todo), func(i int) {
+		c, why := t.des.design(todo[i])
+		outs[i] = outcome{c: c, reason: why}
+	}, prog)
+	all := true
+	for i, ok := range done {
+		if !ok {
+			all = false
+			continue
+		}
+		k := planKey(todo[i])
+		t.memo[k] = outs[i]
+		t.order = append(t.order, k)
+		t.res.Designed++
+		if outs[i].reason != "" {
+			t.res.Dropped[outs[i].reason]++
+		}
+	}
+	return all
+}
+
+// analyzeAll analyses the designed, unanalysed plans among plans.
+func (t *designTier) analyzeAll(plans [][]chain.StagePlan) bool {
+	var todo []string
+	for _, pl := range plans {
+		k := planKey(pl)
+		if o, ok := t.memo[k]; ok && o.reason == "" && !o.analyzed {
+			todo = append(todo, k)
+		}
+	}
+	sort.Strings(todo)
+	outs := make([]outcome, len(todo))
+	prog := t.progress()
+	t.total += len(todo)
+	done := runAll(t.ctx, t.jobs, len(todo), func(i int) {
+		c, why := t.des.analyze(t.memo[todo[i]].c)
+		outs[i] = outcome{c: c, reason: why, analyzed: true}
+	}, prog)
+	all := true
+	for i, ok := range done {
+		if !ok {
+			all = false
+			continue
+		}
+		t.memo[todo[i]] = outs[i]
+		if outs[i].reason != "" {
+			t.res.Dropped[outs[i].reason]++
+		}
+	}
+	return all
+}
+
+// fit returns how many of plans, in order, the design cap and the work
+// budget still allow, and charges their work.
+func (t *designTier) fit(plans [][]chain.StagePlan) int {
+	n, fresh := 0, 0
+	for _, pl := range plans {
+		if _, ok := t.memo[planKey(pl)]; ok {
+			n++
+			continue
+		}
+		w := t.est.work(pl)
+		if t.res.Designed+fresh >= t.maxDesigns || w > t.workLeft {
+			break
+		}
+		t.workLeft -= w
+		n++
+		fresh++
+	}
+	return n
+}
+
+// settle takes the front of a pool of plans with their figures (real where
+// designed, exact from learnt stages otherwise), and designs and analyses
+// its members until every member is designed, analysed and meets the spec,
+// replacing those that fail. It reports false when cancelled, and how many
+// front members the caps left undesigned.
+func (t *designTier) settle(plans [][]chain.StagePlan, fs []figs) (bool, int) {
+	gone := make([]bool, len(plans))
+	for {
+		for i, pl := range plans {
+			if o, ok := t.memo[planKey(pl)]; ok {
+				if o.reason != "" {
+					gone[i] = true
+				} else {
+					fs[i] = candFigs(&o.c)
+				}
+			}
+		}
+		var fr frontSet
+		for i := range fs {
+			if !gone[i] {
+				fr.add(fs[i], i)
+			}
+		}
+		var need, members [][]chain.StagePlan
+		for _, i := range fr.id {
+			members = append(members, plans[i])
+			if _, ok := t.memo[planKey(plans[i])]; !ok {
+				need = append(need, plans[i])
+			}
+		}
+		debugf("settle: front %d, to design %d", len(members), len(need))
+		if len(need) > 0 {
+			n := len(need)
+			need = need[:t.fit(need)]
+			if !t.designAll(need) {
+				return false, 0
+			}
+			if len(need) < n {
+				if !t.analyzeAll(members) {
+					return false, 0
+				}
+				return true, n - len(need)
+			}
+			continue
+		}
+		if !t.analyzeAll(members) {
+			return false, 0
+		}
+		failed := false
+		for _, pl := range members {
+			if t.memo[planKey(pl)].reason != "" {
+				failed = true
+			}
+		}
+		if !failed {
+			return true, 0
+		}
+	}
+}
+
+// exhaustive designs every plan of the band and settles its front.
+func (t *designTier) exhaustive(band []scored) bool {
+	plans := make([][]chain.StagePlan, len(band))
+	for i := range band {
+		plans[i] = band[i].plan
+	}
+	if !t.designAll(plans) {
+		return false
+	}
+	ok, _ := t.settle(plans, make([]figs, len(plans)))
+	return ok
+}
+
+// front returns the front of the chains designed, analysed and meeting
+// the spec.
+func (t *designTier) front() []Candidate {
+	var designed []Candidate
+	for _, k := range t.order {
+		if o := t.memo[k]; o.reason == "" && o.analyzed {
+			designed = append(designed, o.c)
+		}
+	}
+	return designedFront(designed)
+}
