@@ -40,7 +40,14 @@ type Settings struct {
 	// doc (estimated taps squared). Zero means 4e7.
 	MaxWork float64
 	// MaxTaps is the longest FIR or half-band stage, by its estimate, that
-	// the search designs; longer ones are dropped. Zero means 511.
+	// the search designs; longer ones are dropped. Zero means automatic:
+	// the search runs with a limit of 511 taps (longer designs take a
+	// second or more each) and, when that leaves no chain on the front
+	// because the limit dropped some, runs again with the limit raised to
+	// 1023, 2047, ... taps (skipping steps that keep no more candidates),
+	// up to 16383, the longest the design engine is tested at. The designs
+	// of every run count against MaxDesigns and MaxWork. Result.MaxTaps is
+	// the limit the search ended with. A positive MaxTaps is used as given.
 	MaxTaps int
 	// Exhaustive designs every feasible candidate instead of the band (slow;
 	// it exists to check the two-tier search). MaxDesigns does not apply.
@@ -86,6 +93,9 @@ type Result struct {
 	// Unsettled counts the candidates near the front that the design cap
 	// left undecided; zero means the front is that of every candidate.
 	Unsettled int
+	// MaxTaps is the tap limit of the search that gave Front (see
+	// Settings.MaxTaps).
+	MaxTaps int
 }
 
 // CloudSize is the most candidates Result.Feasible holds.

@@ -42,8 +42,7 @@
 // when a CIC misses the rejection at its factor, when its first null falls
 // in the passband or its droop cannot be corrected nor afforded, when a
 // half-band's edges do not fit, when a FIR stage is estimated under 3 taps
-// or over Settings.MaxTaps (default 511: longer designs take seconds each),
-// and when a CIC
+// or over the tap limit (Settings.MaxTaps), and when a CIC
 // is beaten by another searched CIC of the same factor that needs no more
 // memory (compared by unpruned register bits), latency, droop at fp or
 // output width and less of one: the rest of the chain being equal such a CIC
@@ -90,6 +89,30 @@
 // every candidate within the model above). Both caps are counts, so the
 // result does not depend on the machine's speed.
 //
+// # Tap limit
+//
+// Stages estimated over the tap limit are dropped before design. By
+// default (MaxTaps zero) the limit is automatic: the search first runs with
+// 511 taps, which keeps every design under a second or so; when that
+// leaves the front empty and the limit dropped some candidate, it runs
+// again with the limit raised along 1023, 2047, 4095, 8191, 16383 taps,
+// going straight to the first step that keeps a candidate it dropped (a
+// prime D with a demanding spec needs one FIR stage of a few thousand
+// taps, for example). Later runs reuse the earlier runs' designs, and all
+// of them draw on the same MaxDesigns and MaxWork, so a stage of more than
+// about sqrt(MaxWork) taps (6 300 at the default) is left undesigned and
+// counted in Result.Unsettled. Result.MaxTaps is the limit of the last run
+// and Result.Reason says when it was raised. A positive MaxTaps is used as
+// given.
+//
+// Stages are designed to absolute stopband limits, while a chain's alias
+// rejection is measured relative to its gain at 0 Hz, which the passband
+// ripple lets fall to 1 - dp: a chain with nothing to spare, a single long
+// stage typically, can miss the target by up to the ripple. A front member
+// that misses by no more than the ripple is designed again with the
+// target raised by the shortfall (at most twice) before it is dropped;
+// these re-designs are not counted in Result.Designed.
+//
 // Settings.Exhaustive designs every feasible candidate instead (and keeps
 // the beaten CICs): it exists to check that the two tiers give the same
 // front, which the package's tests show on D = 120.
@@ -116,7 +139,11 @@
 //
 // On cancellation of the context Plan stops starting designs and returns the
 // front of the chains designed and measured so far (possibly none), with
-// Result.Partial set and no error.
+// Result.Partial set and no error. The context is checked before every
+// design or measurement and every 4096 candidates scored, and Progress is
+// called before the next check, so a Progress function that cancels lets
+// only the designs already running finish; one design of a chain within
+// the default work budget takes seconds, not minutes.
 //
 // The figures are planning data: sign-off belongs to a bit-true simulation
 // of the RTL and the team's own review.

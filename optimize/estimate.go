@@ -35,9 +35,10 @@ const (
 	dropCICBeaten
 )
 
-// defaultMaxTaps is Settings.MaxTaps' default. A stage estimated longer is
-// dropped before design: a design of a thousand taps or more takes seconds,
-// and such a stage reaches the front only at its low-latency end.
+// defaultMaxTaps is the automatic tap limit's first step. A stage estimated
+// longer is dropped before design: a design of a thousand taps or more
+// takes a second or more, and such a stage reaches the front only at its
+// low-latency end, or when nothing shorter meets the spec (see search).
 const defaultMaxTaps = 511
 
 var dropNames = [...]string{
@@ -133,6 +134,9 @@ type stageVal struct {
 	f, lo, hi figs
 	drop      dropCode
 	work      float64 // design work, taps squared
+	// taps is a FIR or half-band stage's estimated length, which the tap
+	// limit is applied to in score (so the cache does not depend on it).
+	taps float64
 }
 
 // estimator scores candidates from order estimates. It caches each stage's
@@ -240,6 +244,9 @@ func (e *estimator) score(plan []chain.StagePlan) (figs, dropCode) {
 		if v.drop != dropNone {
 			return figs{}, v.drop
 		}
+		if v.taps > float64(e.maxTaps) {
+			return figs{}, dropLongFIR
+		}
 		total.mpo += v.f.mpo
 		total.bits += v.f.bits
 		total.words += v.f.words
@@ -318,10 +325,7 @@ func (e *estimator) stage(k stageKey) stageVal {
 		dev := math.Min(dpi, p.ds)
 		l := math.Ceil(herrmann(dev, dev, (hbStop-edge)/rate))
 		kk := math.Max(1, math.Ceil((l+1)/4))
-		if 4*kk-1 > float64(e.maxTaps) {
-			v.drop = dropLongFIR
-			return v
-		}
+		v.taps = 4*kk - 1
 		hb := func(kk float64) figs {
 			var f figs
 			mult, coefs := kk, kk
@@ -345,10 +349,7 @@ func (e *estimator) stage(k stageKey) stageVal {
 			v.drop = dropShortFIR
 			return v
 		}
-		if l > float64(e.maxTaps) {
-			v.drop = dropLongFIR
-			return v
-		}
+		v.taps = l
 		fir := func(l float64) figs {
 			var f figs
 			mult, coefs := l, l
@@ -578,4 +579,27 @@ func (e *estimator) work(plan []chain.StagePlan) float64 {
 		w += e.cache[k.stageKey].work
 	}
 	return w
+}
+
+// needTaps is the tap limit the candidate last scored (its keys in e.keys)
+// would need to be kept: its longest FIR or half-band stage estimate, or
+// +Inf when something other than the limit drops it.
+func (e *estimator) needTaps(plan []chain.StagePlan) float64 {
+	need := 0.0
+	for i := range e.keys {
+		k := e.keys[i].stageKey
+		v, ok := e.cache[k]
+		if !ok {
+			v = e.stage(k)
+			e.cache[k] = v
+		}
+		if v.drop != dropNone {
+			return math.Inf(1)
+		}
+		need = math.Max(need, v.taps)
+	}
+	if st := plan[0]; st.Kind == chain.CIC && !e.keepBeaten && e.cicBeaten(st.Factor, st.CICOrder, st.CICDelay) {
+		return math.Inf(1)
+	}
+	return need
 }

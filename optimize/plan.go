@@ -24,6 +24,14 @@ const (
 	rippleSlackDB    = 1e-4
 )
 
+// A designed chain that misses the rejection by no more than the ripple is
+// designed again with the target raised by the shortfall plus
+// redesignExtraDB, at most maxRedesigns times (see realDesigner.analyze).
+const (
+	maxRedesigns    = 2
+	redesignExtraDB = 0.005
+)
+
 // Plan searches every split of the spec's ratio.
 func Plan(ctx context.Context, spec chain.Spec, s Settings) (*Result, error) {
 	ns, err := spec.Normalize()
@@ -35,7 +43,7 @@ func Plan(ctx context.Context, spec chain.Spec, s Settings) (*Result, error) {
 	}
 	p := newParams(ns, s.Cost.NoSymmetry)
 	p.d = ns.Decimation()
-	return search(ctx, p, &s, newEstimator(p, s.Tolerance), realDesigner{spec: ns, s: &s})
+	return search(ctx, p, &s, newEstimator(p, s.Tolerance), realDesigner{ctx: ctx, spec: ns, s: &s})
 }
 
 func (s *Settings) check() error {
@@ -125,7 +133,8 @@ type designer interface {
 }
 
 type realDesigner struct {
-	spec chain.Spec // normalised
+	ctx  context.Context // stops the re-designs of analyze
+	spec chain.Spec      // normalised
 	s    *Settings
 }
 
@@ -146,8 +155,31 @@ func (r realDesigner) analyze(c Candidate) (Candidate, string) {
 	if err != nil {
 		return Candidate{}, ReasonEvaluateFailed
 	}
+	margin := f.Analysis.AliasRejectionDB - r.spec.RejectionDB
+	// The stages are designed to absolute stopband limits, but the chain's
+	// rejection is measured against its gain at 0 Hz, which the passband
+	// ripple lets fall to 1 - dp, and the other stages' passband gain can
+	// lift an alias band as much: a chain with little to spare (a single
+	// long stage, typically) misses by up to the ripple. Such a shortfall
+	// is made good by designing the chain again with the rejection target
+	// raised by it.
+	raise := 0.0
+	for try := 0; try < maxRedesigns && margin < -rejectionSlackDB && margin >= -r.spec.RippleDB && r.ctx.Err() == nil; try++ {
+		raise += -margin + redesignExtraDB
+		spec := r.spec
+		spec.RejectionDB += raise
+		ch, err := chain.Design(spec, c.Plan, r.s.Chain)
+		if err != nil {
+			break
+		}
+		g, err := cost.Evaluate(r.spec, ch, r.s.Cost)
+		if err != nil {
+			break
+		}
+		c.Chain, f = ch, g
+		margin = f.Analysis.AliasRejectionDB - r.spec.RejectionDB
+	}
 	a := f.Analysis
-	margin := a.AliasRejectionDB - r.spec.RejectionDB
 	if margin < -rejectionSlackDB || math.IsNaN(margin) {
 		return Candidate{}, ReasonMissRejection
 	}
@@ -175,7 +207,8 @@ func search(ctx context.Context, p params, s *Settings, est *estimator, des desi
 	sp := newSpace(&p, s)
 	est.orders, est.delays = sp.orders, sp.delays
 	est.keepBeaten = s.Exhaustive
-	if s.MaxTaps > 0 {
+	auto := s.MaxTaps == 0
+	if !auto {
 		est.maxTaps = s.MaxTaps
 	}
 	if p.d < 1 {
@@ -190,16 +223,62 @@ func search(ctx context.Context, p params, s *Settings, est *estimator, des desi
 			p.d, sp.maxStages, countString(n), MaxCandidates)
 	}
 	res := &Result{Dropped: map[string]int{}, Recommended: -1}
-	tol := est.tol
 	jobs := s.Jobs
 	if jobs == 0 {
 		jobs = runtime.GOMAXPROCS(0)
 	}
+	// One design tier serves every pass: what a pass designed is remembered,
+	// and the design cap and work budget are shared.
+	t := newDesignTier(ctx, jobs, des, est, s, res)
+	first := est.maxTaps
+	for {
+		need := searchPass(ctx, &p, sp, s, est, t, res)
+		if !auto || res.Partial || len(res.Front) > 0 || need > autoMaxTaps {
+			break
+		}
+		// The limit left no chain: raise it, step by step, to the first
+		// step that keeps a candidate it dropped, and search again.
+		next := est.maxTaps
+		for float64(next) < need {
+			next = 2*next + 1
+		}
+		est.maxTaps = min(next, autoMaxTaps)
+		res.Candidates, res.Feasible, res.FeasibleAll = 0, nil, 0
+		for _, r := range dropNames {
+			delete(res.Dropped, r)
+		}
+		res.Unsettled = 0
+	}
+	res.MaxTaps = est.maxTaps
+	fs := make([]figs, len(res.Front))
+	for i := range res.Front {
+		fs[i] = candFigs(&res.Front[i])
+	}
+	res.Recommended, res.Reason = recommend(fs, s)
+	switch {
+	case len(res.Front) == 0 && !res.Partial:
+		res.Reason = "No chain met the spec; Dropped says why each candidate was set aside."
+	case len(res.Front) > 0 && est.maxTaps > first:
+		res.Reason += fmt.Sprintf(" No chain met the spec with FIR and half-band stages of at most %d taps, so the limit was raised to %d.", first, est.maxTaps)
+	}
+	return res, nil
+}
 
+// autoMaxTaps is the highest tap limit the automatic MaxTaps reaches: the
+// longest design the remez engine is tested at.
+const autoMaxTaps = 16383
+
+// searchPass runs both tiers once at the estimator's tap limit, filling in
+// res (the design tier t carries what earlier passes designed). It returns
+// the least tap limit that would keep a candidate this limit dropped
+// (+Inf when none).
+func searchPass(ctx context.Context, p *params, sp *space, s *Settings, est *estimator, t *designTier, res *Result) float64 {
+	tol := est.tol
 	// Pass 1: score everything, count drops, keep the estimated front.
 	var fr frontSet
 	frontPlans := map[int][]chain.StagePlan{}
 	var drops [len(dropNames)]int
+	need := math.Inf(1)
 	sp.skipCIC = est.skipCIC
 	sp.skipped = func(code dropCode, n int64) {
 		drops[code] += int(n)
@@ -216,6 +295,9 @@ func search(ctx context.Context, p params, s *Settings, est *estimator, des desi
 		f, drop := est.score(plan)
 		if drop != dropNone {
 			drops[drop]++
+			if drop == dropLongFIR {
+				need = math.Min(need, est.needTaps(plan))
+			}
 			return true
 		}
 		if fr.add(f, feasible) {
@@ -232,7 +314,8 @@ func search(ctx context.Context, p params, s *Settings, est *estimator, des desi
 	res.FeasibleAll = feasible
 	if cancelled {
 		res.Partial = true
-		return res, nil
+		res.Front = t.front()
+		return need
 	}
 
 	var fronts []bandRef
@@ -262,7 +345,7 @@ func search(ctx context.Context, p params, s *Settings, est *estimator, des desi
 			return true
 		}
 		if keepInCloud(idx, feasible) {
-			res.Feasible = append(res.Feasible, estimatedCandidate(plan, f, &p))
+			res.Feasible = append(res.Feasible, estimatedCandidate(plan, f, p))
 		}
 		idx++
 		if s.Exhaustive {
@@ -280,7 +363,8 @@ func search(ctx context.Context, p params, s *Settings, est *estimator, des desi
 	})
 	if cancelled {
 		res.Partial = true
-		return res, nil
+		res.Front = t.front()
+		return need
 	}
 	sort.Slice(band, byBand)
 	if len(band) > maxBand {
@@ -288,7 +372,6 @@ func search(ctx context.Context, p params, s *Settings, est *estimator, des desi
 	}
 
 	debugf("band %d", len(band))
-	t := newDesignTier(ctx, jobs, des, est, s, res)
 	if s.Exhaustive {
 		res.Partial = !t.exhaustive(band)
 	} else {
@@ -297,15 +380,7 @@ func search(ctx context.Context, p params, s *Settings, est *estimator, des desi
 		res.Partial = !ok
 	}
 	res.Front = t.front()
-	fs := make([]figs, len(res.Front))
-	for i := range res.Front {
-		fs[i] = candFigs(&res.Front[i])
-	}
-	res.Recommended, res.Reason = recommend(fs, s)
-	if len(res.Front) == 0 && !res.Partial {
-		res.Reason = "No chain met the spec; Dropped says why each candidate was set aside."
-	}
-	return res, nil
+	return need
 }
 
 // maxRounds bounds the attempts to learn a stage's real figures: a stage

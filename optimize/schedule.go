@@ -11,7 +11,10 @@ import (
 // depend on the interleaving. Before starting an index a worker checks ctx;
 // after cancellation no new index starts and runAll returns once the running
 // ones finish. done[i] reports whether work(i) ran. progress, when not nil,
-// is called from one goroutine at a time with the number of finished calls.
+// is called with the number of finished calls by the worker that finished
+// the last of them, one worker at a time, before that worker checks ctx
+// again: a progress function that cancels ctx lets no more than the calls
+// already running finish after it.
 func runAll(ctx context.Context, jobs, n int, work func(i int), progress func(done, total int)) (done []bool) {
 	done = make([]bool, n)
 	if n == 0 {
@@ -24,7 +27,8 @@ func runAll(ctx context.Context, jobs, n int, work func(i int), progress func(do
 		jobs = n
 	}
 	var next atomic.Int64
-	finished := make(chan struct{}, n)
+	var mu sync.Mutex
+	count := 0
 	var wg sync.WaitGroup
 	for w := 0; w < jobs; w++ {
 		wg.Add(1)
@@ -40,24 +44,15 @@ func runAll(ctx context.Context, jobs, n int, work func(i int), progress func(do
 				}
 				work(i)
 				done[i] = true
-				finished <- struct{}{}
+				mu.Lock()
+				count++
+				if progress != nil {
+					progress(count, n)
+				}
+				mu.Unlock()
 			}
 		}()
 	}
-	var pg sync.WaitGroup
-	pg.Add(1)
-	go func() {
-		defer pg.Done()
-		count := 0
-		for range finished {
-			count++
-			if progress != nil {
-				progress(count, n)
-			}
-		}
-	}()
 	wg.Wait()
-	close(finished)
-	pg.Wait()
 	return done
 }
