@@ -46,8 +46,10 @@ var errRounding = errors.New("the specification is too lax for double precision"
 //
 // When the exchange does not converge within Settings.MaxIterations it
 // returns the best reference's filter (Result.Converged false) together with
-// an error wrapping ErrNotConverged that says what to change. For any other
-// error (an invalid specification) the Result is nil.
+// an error wrapping ErrNotConverged that says what to change; only when the
+// arithmetic breaks down so far that no finite filter is left is that
+// Result nil. For any other error (an invalid specification) the Result is
+// nil.
 func Design(n int, rate float64, bands []Band, s Settings) (*Result, error) {
 	e, err := newEngine(n, rate, bands, s)
 	if err != nil {
@@ -92,7 +94,13 @@ func (e *engine) design() (*Result, error) {
 	res.Taps = e.taps()
 	for _, v := range res.Taps {
 		if math.IsNaN(v) || math.IsInf(v, 0) {
-			return nil, fmt.Errorf("remez: n = %d: numerical breakdown (non-finite coefficients); the specification is probably too demanding for double precision: shorten the filter or relax the bands", e.n)
+			// No finite filter to return. A levelled deviation far below any
+			// realistic band limit means the length is far beyond what the
+			// bands need (MinLength then searches lower).
+			if _, wmax := e.gridScale(); !(math.Abs(e.delta)/wmax > 1e-9) {
+				return nil, fmt.Errorf("remez: n = %d: numerical breakdown (non-finite coefficients, levelled deviation %.2g): %w (%w): shorten the filter or relax the bands", e.n, math.Abs(e.delta), errRounding, ErrNotConverged)
+			}
+			return nil, fmt.Errorf("remez: n = %d: numerical breakdown (non-finite coefficients); the specification is probably too demanding for double precision (%w): shorten the filter or relax the bands", e.n, ErrNotConverged)
 		}
 	}
 	res.Deviations, _ = e.deviations(res.Taps)
@@ -108,12 +116,9 @@ func (e *engine) design() (*Result, error) {
 	return res, nil
 }
 
-// laxCheck reports a specification met to rounding level, where the
-// optimum is not defined in double precision: every band's deviation, or
-// (when the exchange failed) the levelled deviation in every band, is below
-// max(1e-13, n 1e-14) of the largest desired gain.
-func (e *engine) laxCheck(dev []float64, conv bool) error {
-	scale, wmax := 0.0, 0.0
+// gridScale returns the largest |desired gain| (1 when all are zero) and
+// the largest weight on the grid.
+func (e *engine) gridScale() (scale, wmax float64) {
 	for i := range e.grid {
 		g := &e.grid[i]
 		scale = math.Max(scale, math.Abs(e.bands[g.band].desired(g.f)))
@@ -122,6 +127,15 @@ func (e *engine) laxCheck(dev []float64, conv bool) error {
 	if scale == 0 {
 		scale = 1
 	}
+	return scale, wmax
+}
+
+// laxCheck reports a specification met to rounding level, where the
+// optimum is not defined in double precision: every band's deviation, or
+// (when the exchange failed) the levelled deviation in every band, is below
+// max(1e-13, n 1e-14) of the largest desired gain.
+func (e *engine) laxCheck(dev []float64, conv bool) error {
+	scale, wmax := e.gridScale()
 	// Rounding in a sum of n taps is about n eps of the largest gain.
 	lim := math.Max(1e-13, 1e-14*float64(e.n)) * scale
 	tiny := true

@@ -69,7 +69,10 @@
 // specification is met to rounding level, beyond what double precision can
 // optimise) Design returns its best result, with Converged false where it
 // did not converge, together with a descriptive error; non-convergence
-// wraps ErrNotConverged. No result ever holds NaN or infinite taps. The
+// wraps ErrNotConverged. A numerical breakdown that leaves no finite
+// filter (lengths far beyond what the bands need) gives no Result and an
+// error wrapping ErrNotConverged. No result ever holds NaN or infinite
+// taps, and every call returns in bounded time. The
 // order estimators return 0 for inputs outside their domain.
 //
 // # Evaluation
