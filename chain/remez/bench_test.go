@@ -74,3 +74,31 @@ func BenchmarkMinLength(b *testing.B) {
 	}
 	b.ReportMetric(float64(len(res.Taps)), "taps")
 }
+
+// BenchmarkNarrowGaps times the first report (800 kHz, passband 0-18.8 kHz,
+// four stopbands with 600 Hz gaps; it ran 74 s before the gaps stopped
+// counting as transitions) and the half-band of the second (12.5 kHz at
+// 1.6 MHz, 90 dB, which failed at the default density).
+func BenchmarkNarrowGaps(b *testing.B) {
+	bands := []Band{
+		{Lo: 0, Hi: 18.8e3, Gain: 1, MaxError: 0.0204},
+		{Lo: 50.3e3, Hi: 149.7e3, MaxError: 1.15e-3},
+		{Lo: 150.3e3, Hi: 249.7e3, MaxError: 1.15e-3},
+		{Lo: 250.3e3, Hi: 349.7e3, MaxError: 1.15e-3},
+		{Lo: 350.3e3, Hi: 400e3, MaxError: 1.15e-3},
+	}
+	b.Run("MinLength", func(b *testing.B) {
+		for b.Loop() {
+			if _, err := MinLength(800e3, bands, 0, 0, Settings{}); err != nil {
+				b.Fatal(err)
+			}
+		}
+	})
+	b.Run("MinHalfBand", func(b *testing.B) {
+		for b.Loop() {
+			if _, err := MinHalfBand(12.5e3, 1.6e6, 3.16e-5, Settings{}); err != nil {
+				b.Fatal(err)
+			}
+		}
+	})
+}

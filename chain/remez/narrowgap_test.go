@@ -205,3 +205,32 @@ func TestSeededStartRecovers(t *testing.T) {
 		t.Logf("n=%d, %d bands: %d iterations", tc.n, len(bands), res.Iterations)
 	}
 }
+
+// TestMaxIterationsBound: a long multiband design with a small iteration
+// budget stops within it, over the seeded start and the restart together,
+// and returns its best filter with an error wrapping ErrNotConverged.
+func TestMaxIterationsBound(t *testing.T) {
+	bands := aliasBands(1.6e6, 40, 16910.7809178744, 19304.349348409, 0.009209702603935435, 0.0007819686545978663)
+	for _, it := range []int{1, 3, 6} {
+		res, err := Design(1085, 1.6e6, bands, Settings{MaxIterations: it})
+		t.Logf("MaxIterations %d: %v", it, err)
+		if err == nil {
+			continue // converged within the budget
+		}
+		if !errors.Is(err, ErrNotConverged) {
+			t.Errorf("MaxIterations %d: error %v does not wrap ErrNotConverged", it, err)
+		}
+		if res == nil {
+			t.Errorf("MaxIterations %d: no best result", it)
+			continue
+		}
+		if res.Iterations > it {
+			t.Errorf("MaxIterations %d: %d iterations", it, res.Iterations)
+		}
+		for _, v := range res.Taps {
+			if math.IsNaN(v) || math.IsInf(v, 0) {
+				t.Fatalf("MaxIterations %d: non-finite tap", it)
+			}
+		}
+	}
+}
