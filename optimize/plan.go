@@ -256,6 +256,8 @@ func search(ctx context.Context, p params, s *Settings, est *estimator, des desi
 	}
 	res.Recommended, res.Reason = recommend(fs, s)
 	switch {
+	case len(res.Front) == 0 && !res.Partial && res.Unsettled > 0:
+		res.Reason = fmt.Sprintf("No chain was designed within the design budget (MaxDesigns, MaxWork) at a tap limit of %d; %d candidates were left undesigned.", est.maxTaps, res.Unsettled)
 	case len(res.Front) == 0 && !res.Partial:
 		res.Reason = "No chain met the spec; Dropped says why each candidate was set aside."
 	case len(res.Front) > 0 && est.maxTaps > first:

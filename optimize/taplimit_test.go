@@ -172,3 +172,19 @@ func TestCancelMidRun(t *testing.T) {
 		t.Logf("jobs %d: cancelled after %d of %d designs, front of %d", jobs, r.Designed, full.Designed, len(r.Front))
 	}
 }
+
+// BenchmarkPlanPrime101 is the whole plan of the demanding prime spec: a
+// first search at 511 taps that keeps nothing, then the one-stage FIR of
+// about 1 900 taps designed and measured.
+func BenchmarkPlanPrime101(b *testing.B) {
+	needDesigns(b)
+	for i := 0; i < b.N; i++ {
+		r, err := optimize.Plan(context.Background(), primeSpec(), optimize.Settings{})
+		if err != nil {
+			b.Fatal(err)
+		}
+		if i == 0 {
+			b.ReportMetric(float64(r.MaxTaps), "tap-limit")
+		}
+	}
+}
