@@ -139,11 +139,14 @@
 //
 // On cancellation of the context Plan stops starting designs and returns the
 // front of the chains designed and measured so far (possibly none), with
-// Result.Partial set and no error. The context is checked before every
-// design or measurement and every 4096 candidates scored, and Progress is
-// called before the next check, so a Progress function that cancels lets
-// only the designs already running finish; one design of a chain within
-// the default work budget takes seconds, not minutes.
+// Result.Partial set and no error. The context is checked every 4096
+// candidates scored and before every design or measurement, and Progress is
+// called before the next check. A design or measurement still running when
+// the context is cancelled is abandoned: Plan returns without it, and it
+// runs to its end on its own goroutine, its result unread (package chain
+// takes no context; the longest design the default work budget admits, a
+// single FIR stage of about 6 300 taps, takes about 8 s on this project's
+// two-core machine).
 //
 // The figures are planning data: sign-off belongs to a bit-true simulation
 // of the RTL and the team's own review.

@@ -271,7 +271,10 @@ func TestRunAll(t *testing.T) {
 			n++
 		}
 	}
-	if n == 100 || n < 11 {
+	// Calls 0 to 9 started before the one that cancels; that one, and the
+	// one running beside it on the other worker, may be abandoned (see
+	// runUnit), so at least 9 finished.
+	if n == 100 || n < 9 {
 		t.Errorf("after cancel at 10, %d of 100 ran", n)
 	}
 }

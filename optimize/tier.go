@@ -105,11 +105,17 @@ func (t *designTier) analyzeAll(plans [][]chain.StagePlan) bool {
 		}
 	}
 	sort.Strings(todo)
+	// The calls get their inputs from a slice, not from the memo, which
+	// the loop below writes while an abandoned call may still run.
+	ins := make([]Candidate, len(todo))
+	for i, k := range todo {
+		ins[i] = t.memo[k].c
+	}
 	outs := make([]outcome, len(todo))
 	prog := t.progress()
 	t.total += len(todo)
 	done := runAll(t.ctx, t.jobs, len(todo), func(i int) {
-		c, why := t.des.analyze(t.memo[todo[i]].c)
+		c, why := t.des.analyze(ins[i])
 		outs[i] = outcome{c: c, reason: why, analyzed: true}
 	}, prog)
 	all := true
