@@ -4,6 +4,7 @@ import (
 	"errors"
 	"fmt"
 	"math"
+	"sort"
 )
 
 // MinLength returns the shortest filter that meets every band's MaxError,
@@ -126,14 +127,25 @@ func (m *lengthSearch) estimate() int {
 	for i := 0; i+1 < len(m.bands); i++ {
 		a, b := &m.bands[i], &m.bands[i+1]
 		tr := b.Lo - a.Hi
-		if tr <= 0 || math.Abs(gainAt(a, a.Hi)-gainAt(b, b.Lo)) <= a.MaxError+b.MaxError {
+		if tr <= 0 || math.Abs(gainAt(a, a.Hi)-gainAt(b, b.Lo)) <= allowedAt(a, a.Hi)+allowedAt(b, b.Lo) {
 			continue
 		}
-		d1 := math.Min(a.MaxError, 0.5)
-		d2 := math.Min(b.MaxError, 0.5)
+		d1 := math.Min(allowedAt(a, a.Hi), 0.5)
+		d2 := math.Min(allowedAt(b, b.Lo), 0.5)
 		est = max(est, HerrmannLength(d1, d2, tr, m.rate))
 	}
 	return min(est, m.maxTaps)
+}
+
+// allowedAt is the unweighted error band b allows at f Hz: MaxError over
+// the WeightFunc shape (a compensator's passband allows dp/|H_cic|).
+func allowedAt(b *Band, f float64) float64 {
+	if b.WeightFunc != nil {
+		if w := b.WeightFunc(f); w > 0 && !math.IsInf(w, 0) {
+			return b.MaxError / w
+		}
+	}
+	return b.MaxError
 }
 
 // gainAt is the desired gain of band b at f Hz.
@@ -170,6 +182,13 @@ func (m *lengthSearch) meets(n int) bool {
 		m.ratio[n] = worst
 	}
 	return m.ratio[n] <= 1
+}
+
+func abs(n int) int {
+	if n < 0 {
+		return -n
+	}
+	return n
 }
 
 // laxRatio stands for the error ratio of a design met to rounding level.
@@ -235,9 +254,27 @@ func (m *lengthSearch) search(n0, odd int) (int, error) {
 			np++
 		}
 	}
+	// Ratios already measured at the other parity lie on nearly the same
+	// curve: the two nearest to n0 seed the secant.
+	var known []int
+	for n, r := range m.ratio {
+		if g := math.Log(r); n != n0 && !m.lax[n] && !math.IsInf(g, 0) && !math.IsNaN(g) {
+			known = append(known, n)
+		}
+	}
+	sort.Slice(known, func(a, b int) bool {
+		da, db := abs(known[a]-n0), abs(known[b]-n0)
+		return da < db || (da == db && known[a] < known[b])
+	})
+	for i := min(2, len(known)) - 1; i >= 0; i-- {
+		pn[0], pg[0] = pn[1], pg[1]
+		pn[1], pg[1] = known[i], math.Log(m.ratio[known[i]])
+		np++
+	}
 	eval(n0)
 	r0 := m.ratio[n0]
 	last, same, blind := 0, 0, 0
+	wRef, sec := 0, 0 // bracket width to halve, secant steps since
 	for m.designs < maxDesigns {
 		if hi > 0 && (hi == lowest || (lo > 0 && hi-lo <= 2)) {
 			if m.cache[hi] == nil {
@@ -279,10 +316,22 @@ func (m *lengthSearch) search(n0, odd int) (int, error) {
 		case lo == 0:
 			c = math.Max(math.Min(c, float64(hi-2)), math.Max(float64(lowest), float64(hi/2)))
 		default:
-			c = math.Min(math.Max(c, float64(lo+2)), float64(hi-2))
-			if same >= 2 { // regula falsi stalls on one side: bisect
-				c = float64(lo+hi) / 2
+			// The error ratio can plateau (multiband stages gain little
+			// from some lengths) and then the secant creeps: two steps
+			// that do not halve the bracket are followed by a bisection.
+			w := hi - lo
+			if wRef == 0 || w <= wRef/2 {
+				wRef, sec = w, 0
 			}
+			if same >= 2 || sec >= 2 {
+				c = float64(lo+hi) / 2
+				wRef, sec = w, 0
+			} else {
+				sec++
+			}
+			// And a step at least a sixth of the bracket from either end.
+			in := math.Max(2, float64(w)/6)
+			c = math.Min(math.Max(c, float64(lo)+in), float64(hi)-in)
 		}
 		n := int(math.Ceil(c))
 		if n%2 != odd {
