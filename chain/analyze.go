@@ -78,7 +78,9 @@ func estimateAnalysis(c *Chain, spec Spec) (Analysis, error) {
 			rej, worst = st.RejectionDB(r.Stopbands, r.InputRate)
 			a.PassbandRippleDB += r.UncorrectedDroopDB
 		default:
-			rej, worst = -toDB(r.Ds), r.Stopbands[0].Lo
+			// The stage's absolute limit Ds is StopbandScale below the target
+			// so that the cascade's rejection relative to |H(0)| is Ds/scale.
+			rej, worst = -toDB(r.Ds/r.StopbandScale), r.Stopbands[0].Lo
 			a.PassbandRippleDB += DevToRipple(r.Dp)
 		}
 		if rej < a.AliasRejectionDB {

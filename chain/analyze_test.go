@@ -359,8 +359,10 @@ func TestEstimateAnalysisCIC(t *testing.T) {
 	if math.Abs(a.AliasRejectionDB-want) > 1e-9 || a.WorstAliasHz != 3.9e6 {
 		t.Errorf("rejection %v at %v, want %v at 3.9 MHz", a.AliasRejectionDB, a.WorstAliasHz, want)
 	}
-	// Ripple: the three shares of 0.1 dB, the half-band's at min(dp, ds).
-	wantR := 0.2 + DevToRipple(math.Pow(10, -4.5))
+	// Ripple: the three shares of 0.1 dB, the half-band's at min(dp, ds_i),
+	// ds_i = ds (1-dp)^3/(1+dp)^2 (package doc, "Stopband limits").
+	dp := RippleToDev(0.1)
+	wantR := 0.2 + DevToRipple(math.Pow(10, -4.5)*math.Pow(1-dp, 3)/math.Pow(1+dp, 2))
 	if math.Abs(a.PassbandRippleDB-wantR) > 1e-12 {
 		t.Errorf("ripple %v, want %v", a.PassbandRippleDB, wantR)
 	}

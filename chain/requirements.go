@@ -26,8 +26,15 @@ type Requirement struct {
 	// RippleDB is the stage's share of the ripple budget (0 for a CIC).
 	RippleDB float64
 	// Dp and Ds are the linear passband and stopband deviations the stage is
-	// designed for (a half-band uses min(dp_i, ds) for both).
+	// designed for (a half-band uses min(dp_i, Ds) for both). Ds is absolute:
+	// the target's ds times StopbandScale.
 	Dp, Ds float64
+	// StopbandScale (at most 1) is the factor by which the stage's absolute
+	// stopband limit is set below the target's ds so that the cascade's
+	// rejection relative to its gain at 0 Hz (DESIGN §7) meets the target:
+	// prod_j (1 - dp_j) / prod_{j != i} (1 + dp_j) over the chain's ripple-
+	// bearing stages j (see the package doc). 1 for a chain without them.
+	StopbandScale float64
 	// Stopbands must be attenuated by Ds (for a CIC: the bands its rejection
 	// is read on).
 	Stopbands []Interval
@@ -192,17 +199,23 @@ func Requirements(spec Spec, plan []StagePlan) ([]Requirement, error) {
 		return nil, planErr(plan, -1, "the uncorrected CIC droop %.4g dB at %s Hz exceeds RippleDB = %s dB",
 			uncorrected, fmtNum(fp), fmtNum(spec.RippleDB))
 	}
+	for i := range reqs {
+		reqs[i].StopbandScale = 1
+	}
 	if nRipple > 0 {
 		share := left / float64(nRipple)
 		dp := RippleToDev(share)
 		for i := range reqs {
+			scale := StopbandScale(dp, nRipple, reqs[i].Kind != CIC)
+			reqs[i].StopbandScale = scale
+			reqs[i].Ds = ds * scale
 			if reqs[i].Kind == CIC {
 				continue
 			}
 			reqs[i].RippleDB = share
 			reqs[i].Dp = dp
 			if reqs[i].Kind == HalfBand {
-				dev := math.Min(dp, ds)
+				dev := math.Min(dp, reqs[i].Ds)
 				reqs[i].Dp, reqs[i].Ds = dev, dev
 			}
 		}
@@ -269,4 +282,25 @@ func mergeClose(b []Interval, minGap float64) []Interval {
 		out = append(out, v)
 	}
 	return out
+}
+
+// StopbandScale returns the factor by which a stage's absolute stopband limit
+// lies below the target's ds in a chain of n ripple-bearing stages (FIR and
+// half-band) that each have passband deviation dp: every one of them may sit
+// at 1 - dp at 0 Hz, and every one but the stage whose band it is may lift an
+// alias by 1 + dp (package doc, "Stopband limits"):
+//
+//	(1 - dp)^n / (1 + dp)^(n-1)  for a ripple-bearing stage (own true),
+//	(1 - dp)^n / (1 + dp)^n      for a CIC (own false).
+//
+// It is 1 when n is 0.
+func StopbandScale(dp float64, n int, own bool) float64 {
+	if n <= 0 {
+		return 1
+	}
+	others := n
+	if own {
+		others--
+	}
+	return math.Pow(1-dp, float64(n)) / math.Pow(1+dp, float64(others))
 }

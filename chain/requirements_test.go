@@ -59,12 +59,16 @@ func TestRequirementsCrochiereRabiner(t *testing.T) {
 			if len(r.Stopbands) != 1 || r.Stopbands[0].Lo != edge || r.Stopbands[0].Hi != r.InputRate/2 || r.Passband != 45 {
 				t.Errorf("%s stage %d: bands %v passband %v, want [%v, %v] and 45", tc.plan, i+1, r.Stopbands, r.Passband, edge, r.InputRate/2)
 			}
-			if math.Abs(r.Dp-0.01/k) > 1e-4*0.01/k || r.Ds != 0.001 {
-				t.Errorf("%s stage %d: dp %v ds %v, want about %v and 0.001", tc.plan, i+1, r.Dp, r.Ds, 0.01/k)
+			// Our stopband limit (package doc, "Stopband limits") departs from
+			// their full ds per stage: ds (1-dp)^K / (1+dp)^(K-1), with dp the
+			// stage's exact share.
+			wantDs := 0.001 * math.Pow(1-r.Dp, k) / math.Pow(1+r.Dp, k-1)
+			if math.Abs(r.Dp-0.01/k) > 1e-4*0.01/k || math.Abs(r.Ds-wantDs) > 1e-15 {
+				t.Errorf("%s stage %d: dp %v ds %v, want about %v and %v", tc.plan, i+1, r.Dp, r.Ds, 0.01/k, wantDs)
 			}
 			n := c.Stages[i].(FIRStage).Length
 			mps += float64(n) * r.OutputRate
-			dp, ds := 0.01/k, 0.001
+			dp, ds := 0.01/k, wantDs
 			df := (edge - 45) / r.InputRate
 			hand += math.Ceil(remez.HerrmannD(dp, ds)/df-remez.HerrmannF(dp, ds)*df+1) * r.OutputRate
 		}
@@ -108,13 +112,15 @@ func TestRequirementsBands(t *testing.T) {
 		t.Errorf("fir2 %+v", reqs[3])
 	}
 	// Ripple: the droop is corrected, three stages share 0.3 dB; the
-	// half-band takes min(dp, ds) = ds = 10^(-90/20).
+	// half-band takes min(dp, ds_i) = ds_i = 10^(-90/20) (1-dp)^3/(1+dp)^2
+	// (package doc, "Stopband limits").
 	for i, want := range []float64{0, 0.1, 0.1, 0.1} {
 		if math.Abs(reqs[i].RippleDB-want) > 1e-12 {
 			t.Errorf("stage %d ripple share %v, want %v", i+1, reqs[i].RippleDB, want)
 		}
 	}
-	if math.Abs(reqs[1].Dp-math.Pow(10, -4.5)) > 1e-15 || math.Abs(reqs[2].Dp-RippleToDev(0.1)) > 1e-15 {
+	dp1 := RippleToDev(0.1)
+	if math.Abs(reqs[1].Dp-math.Pow(10, -4.5)*math.Pow(1-dp1, 3)/math.Pow(1+dp1, 2)) > 1e-15 || math.Abs(reqs[2].Dp-RippleToDev(0.1)) > 1e-15 {
 		t.Errorf("deviations %v %v", reqs[1].Dp, reqs[2].Dp)
 	}
 	// Lowpass variant, not last: one band from Fi - fa = 400 kHz to 1 MHz.
