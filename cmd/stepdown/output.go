@@ -143,9 +143,44 @@ func sortedKeys(m map[string]int) []string {
 	return keys
 }
 
-// responsePoints is the input-frequency grid of response.svg: fine enough
-// that the near-output panel resolves the first alias bands of large ratios.
-const responsePoints = 20001
+// The input-frequency grid of response.svg has three parts, because at large
+// ratios one even grid over [0, F0/2] leaves the output band and its first
+// alias bands with a point or two: an even grid over the whole span, a dense
+// even grid over the near panel's [0, nearSpan*FK], and a geometric grid from
+// there to F0/2 for the log-frequency view.
+const (
+	spanPoints = 20001
+	nearPoints = 8001
+	logPoints  = 12001
+	nearSpan   = 2.5 // output rates; the plots package's default near panel
+)
+
+// responseGrid returns the sorted, duplicate-free grid described above.
+func responseGrid(f0, fk float64) []float64 {
+	half := f0 / 2
+	near := math.Min(nearSpan*fk, half)
+	g := make([]float64, 0, spanPoints+nearPoints+logPoints)
+	for k := 0; k < spanPoints; k++ {
+		g = append(g, half*float64(k)/float64(spanPoints-1))
+	}
+	for k := 0; k < nearPoints; k++ {
+		g = append(g, near*float64(k)/float64(nearPoints-1))
+	}
+	if near < half {
+		r := math.Log(half / near)
+		for k := 0; k < logPoints; k++ {
+			g = append(g, near*math.Exp(r*float64(k)/float64(logPoints-1)))
+		}
+	}
+	sort.Float64s(g)
+	out := g[:1]
+	for _, v := range g[1:] {
+		if v > out[len(out)-1] && v <= half {
+			out = append(out, v)
+		}
+	}
+	return out
+}
 
 // buildFiles renders every output file in memory, report.json first.
 func buildFiles(rep *report.Report, res *optimize.Result, spec *specfile.Spec) ([]report.File, error) {
@@ -251,15 +286,14 @@ func responseData(cand optimize.Candidate, spec *specfile.Spec, notation string)
 	if !(dc > 0) || !finite(dc) {
 		return rd, fmt.Errorf("response plot: the chain's DC gain is %v", dc)
 	}
-	rd.FreqHz = make([]float64, responsePoints)
-	rd.TotalDB = make([]float64, responsePoints)
+	rd.FreqHz = responseGrid(f0, cs.OutputRate)
+	n := len(rd.FreqHz)
+	rd.TotalDB = make([]float64, n)
 	rd.Stages = make([]plots.Series, len(c.Stages))
 	for i := range c.Stages {
-		rd.Stages[i] = plots.Series{Name: stageName(cand, i), DB: make([]float64, responsePoints)}
+		rd.Stages[i] = plots.Series{Name: stageName(cand, i), DB: make([]float64, n)}
 	}
-	for k := range rd.FreqHz {
-		g := f0 / 2 * float64(k) / float64(responsePoints-1)
-		rd.FreqHz[k] = g
+	for k, g := range rd.FreqHz {
 		rd.TotalDB[k] = db(c.Gain(g) / dc)
 		for i, st := range c.Stages {
 			rd.Stages[i].DB[k] = db(st.Gain(g, rates[i]))
