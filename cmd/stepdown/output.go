@@ -252,7 +252,7 @@ func buildFiles(rep *report.Report, res *optimize.Result, spec *specfile.Spec) (
 	}
 	files = append(files, report.File{Name: "stages.svg", Data: b})
 
-	cf, err := report.CoefficientFiles(rep.Front[rec])
+	cf, err := report.CoefficientFiles(rep.Front[rec], spec.CoefMode() != "float")
 	if err != nil {
 		return nil, err
 	}

@@ -171,9 +171,20 @@ func runPlan(c *cli.Context) error {
 		return fmt.Errorf("--timeout %v: stopped before any chain was designed; %s left as it was (allow more time)", c.Duration("timeout"), j.out.dir)
 	}
 	if len(res.Front) == 0 {
-		return fmt.Errorf("no chain meets the spec (%s); %s left as it was", droppedText(res.Dropped), j.out.dir)
+		return emptyFront(res, j.out.dir)
 	}
 	return j.finish("plan", res)
+}
+
+// emptyFront is the error of a search that left the front empty: the
+// optimiser's reason (which names the design budget when that was the cause)
+// and the counts of dropped candidates.
+func emptyFront(res *optimize.Result, dir string) error {
+	msg := "no chain meets the spec"
+	if r := strings.Join(strings.Fields(res.Reason), " "); r != "" {
+		msg += ": " + strings.TrimSuffix(r, ".")
+	}
+	return fmt.Errorf("%s (dropped: %s); %s left as it was", msg, droppedText(res.Dropped), dir)
 }
 
 func runCheck(c *cli.Context) error {
@@ -351,11 +362,48 @@ func printSummary(w io.Writer, j *job, rep *report.Report, files []report.File) 
 	default:
 		fmt.Fprintf(w, "recommended: #%d %s\n  %s\n", rep.Recommended+1, rep.Front[rep.Recommended].Notation, rep.Reason)
 	}
+	if len(rep.Front) > 0 {
+		printWords(w, rep)
+	}
 	fmt.Fprintf(w, "\nwrote %s/\n", j.out.dir)
 	for _, f := range files {
 		fmt.Fprintf(w, "  %s\n", f.Name)
 	}
 	fmt.Fprintf(w, "\nCaution: %s.\n", report.Caution)
+}
+
+// printWords summarises the word-length plan of the recommended (or checked)
+// chain: the bit-true figures and each stage's widths.
+func printWords(w io.Writer, rep *report.Report) {
+	ch := rep.Front[rep.Recommended]
+	if ch.ChainReport == nil {
+		fmt.Fprintf(w, "\nword lengths: not planned (%s)\n", ch.WordLengthsError)
+		return
+	}
+	coef := map[string]string{"fixed": "coefficients as set", "auto": "coefficients auto", "float": "coefficients auto, for information (the files stay floating point)"}[rep.Spec.Words.CoefficientsMode]
+	fmt.Fprintf(w, "\nword lengths (%s): bit-true SNR %.1f dB, ENOB %.2f bits; quantised alias rejection %.2f dB\n",
+		coef, ch.BitTrueSNRDB, ch.BitTrueENOB, ch.QuantisedRejectionDB)
+	for i, st := range ch.Stages {
+		sr := st.StageReport
+		if sr == nil {
+			continue
+		}
+		var b strings.Builder
+		fmt.Fprintf(&b, "  %d %-8s in %d bits", i+1, st.Kind, sr.InputBits)
+		if st.Kind == "cic" {
+			fmt.Fprintf(&b, ", registers %d..%d bits", sr.AccumulatorBits, sr.RegisterBits[len(sr.RegisterBits)-1])
+		} else {
+			fmt.Fprintf(&b, ", coefficients %d bits, accumulator %d bits, multiplier %s", sr.CoefficientBits, sr.AccumulatorBits, sr.MultiplierSize)
+			if sr.HardwareMultipliers != nil {
+				fmt.Fprintf(&b, " (%d hardware at %s)", *sr.HardwareMultipliers, rep.Spec.Hardware.Multiplier)
+			}
+			if !sr.QuantisedMeetsBands {
+				b.WriteString(", quantised taps miss this stage's own bands")
+			}
+		}
+		fmt.Fprintf(&b, ", out %d bits", sr.OutputBits)
+		fmt.Fprintln(w, b.String())
+	}
 }
 
 func printTable(w io.Writer, rep *report.Report) {

@@ -185,7 +185,7 @@ func sweepFiles(source string, base *specfile.Spec, v sweep.Vary, rs []sweep.Res
 			return nil, nil, fmt.Errorf("%s = %s: %v", v.Key.Name, v.Key.Format(r.Value), err)
 		}
 		files = append(files, report.File{Name: dir + "report.json", Data: b})
-		cf, err := report.CoefficientFiles(r.Report.Front[r.Report.Recommended])
+		cf, err := report.CoefficientFiles(r.Report.Front[r.Report.Recommended], r.Report.Spec.Words.CoefficientsMode != "float")
 		if err != nil {
 			return nil, nil, fmt.Errorf("%s = %s: %v", v.Key.Name, v.Key.Format(r.Value), err)
 		}

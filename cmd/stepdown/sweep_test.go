@@ -57,7 +57,8 @@ func fakeSweepPlan(_ context.Context, s chain.Spec, _ optimize.Settings) (*optim
 	taps := []float64{0.1, 0.2, 0.4, 0.2, 0.1}
 	ch := &chain.Chain{InputRate: s.InputRate, Plan: plan, Designed: true, Stages: []chain.Stage{
 		chain.CICStage{N: n, M: 1, R: r1, RegisterBits: []int{30, 30}},
-		chain.FIRStage{R: s.Decimation() / r1, Taps: taps, Length: len(taps)},
+		// A loose requirement, so that the word-length planner takes the stage.
+		chain.FIRStage{R: s.Decimation() / r1, Taps: taps, Length: len(taps), Req: chain.Requirement{Passband: s.Passband, Dp: 0.5, Ds: 0.5}},
 	}}
 	f := cost.Figures{MultipliesPerOutput: s.RejectionDB / 4, AddsPerOutput: 40, MemoryWords: 50, MemoryBits: 1000 + int(s.RejectionDB),
 		LatencyS: 1e-6, LatencySamples: 2, Designed: true, Stages: []cost.StageFigures{{}, {}}}

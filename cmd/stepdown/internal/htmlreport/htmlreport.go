@@ -239,6 +239,8 @@ func specRows(s report.Spec) []kv {
 	coef := "floating point"
 	if s.Words.Coefficients != nil {
 		coef = fmt.Sprintf("%d bits", *s.Words.Coefficients)
+	} else if s.Words.CoefficientsMode == "auto" {
+		coef = "auto (narrowest per stage that meets its bands)"
 	}
 	rows = append(rows, kv{"Words", fmt.Sprintf("input %d bits, output %d bits, coefficients %s", s.Words.Input, s.Words.Output, coef)})
 	clk := "not given"
@@ -296,7 +298,9 @@ func planCautions(r *report.Report) []string {
 	} else if c.RejectionMarginDB < 1 {
 		out = append(out, fmt.Sprintf("The recommended chain's rejection margin is thin (%.2f dB): coefficient rounding and data-path truncation can use it up.", c.RejectionMarginDB))
 	}
-	if r.Spec.Words.Coefficients == nil {
+	if r.Spec.Words.CoefficientsMode == "auto" {
+		out = append(out, fmt.Sprintf("Coefficient widths are automatic: each stage's integer files use the narrowest width whose quantised response meets its bands; memory in the table counts %d-bit coefficient words (the pricing default), the word-length figures in report.json count the chosen widths.", cost.FloatCoefBits))
+	} else if r.Spec.Words.Coefficients == nil {
 		out = append(out, fmt.Sprintf("No coefficient width was given: rejection and ripple are those of floating-point coefficients, memory counts %d-bit coefficient words (the pricing default), and no integer or $readmemh files were written.", cost.FloatCoefBits))
 	} else {
 		out = append(out, fmt.Sprintf("The integer coefficient files are rounded to %d bits; the rejection and ripple above are those of the floating-point design.", *r.Spec.Words.Coefficients))
@@ -368,8 +372,8 @@ func stageViews(c report.Chain, files []string, prefix string, clock bool) []sta
 			if s.CompensatesCIC != nil && *s.CompensatesCIC {
 				add("CIC droop", "compensated here")
 			}
-			if s.CoefficientBits > 0 && s.CoefficientFrac != nil {
-				add("Coefficients", fmt.Sprintf("%d bits, %d fractional", s.CoefficientBits, *s.CoefficientFrac))
+			if w := s.StageReport; w != nil && w.CoefficientBits > 0 && w.CoefficientFrac != nil {
+				add("Coefficients", fmt.Sprintf("%d bits, %d fractional", w.CoefficientBits, *w.CoefficientFrac))
 			}
 		}
 		add("Multiplies / output", trimFloat(s.MultipliesPerOutput, 2))

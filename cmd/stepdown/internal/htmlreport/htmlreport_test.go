@@ -10,6 +10,7 @@ import (
 	"strings"
 	"testing"
 
+	"stepdown/chain/fixed"
 	"stepdown/cmd/stepdown/internal/report"
 	"stepdown/cmd/stepdown/internal/specfile"
 	"stepdown/cmd/stepdown/internal/sweep"
@@ -54,19 +55,19 @@ func sampleReport(t testing.TB) *report.Report {
 			LatencyS: 0.3e-6, Multipliers: ip(0), CICOrder: 5, CICDelay: 1, RegisterBits: []int{31, 30, 29, 28, 27, 26, 25, 25, 24, 24}},
 		{Kind: "halfband", Decimation: 2, InputRateHz: 15.36e6, OutputRateHz: 7.68e6, MultipliesPerOutput: 16, AddsPerOutput: 30,
 			MemoryWords: 30, MemoryBits: 720, LatencyS: 1.9e-6, Multipliers: ip(1), Taps: 15, Coefficients: taps(15),
-			CompensatesCIC: bp(false), CoefficientBits: 18, CoefficientFrac: ip(17)},
+			CompensatesCIC: bp(false), StageReport: &fixed.StageReport{CoefficientBits: 18, CoefficientFrac: ip(17)}},
 		{Kind: "fir", Decimation: 4, InputRateHz: 7.68e6, OutputRateHz: 1.92e6, MultipliesPerOutput: 30, AddsPerOutput: 60,
 			MemoryWords: 120, MemoryBits: 4170, LatencyS: 18.8e-6, Multipliers: ip(1), Variant: "multiband", Taps: 61,
-			Coefficients: taps(61), CompensatesCIC: bp(true), CoefficientBits: 18, CoefficientFrac: ip(18)},
+			Coefficients: taps(61), CompensatesCIC: bp(true), StageReport: &fixed.StageReport{CoefficientBits: 18, CoefficientFrac: ip(18)}},
 	}
 	for i := range rec.Stages {
 		st := &rec.Stages[i]
 		if st.Coefficients != nil {
 			q := make([]int64, len(st.Coefficients))
 			for j, c := range st.Coefficients {
-				q[j] = int64(math.Round(c * math.Ldexp(1, *st.CoefficientFrac)))
+				q[j] = int64(math.Round(c * math.Ldexp(1, *st.StageReport.CoefficientFrac)))
 			}
-			st.CoefficientInts = q
+			st.StageReport.CoefficientsInt = q
 		}
 	}
 	r := &report.Report{
@@ -139,7 +140,7 @@ func samplePage(t testing.TB) (PlanPage, []report.File) {
 	if err != nil {
 		t.Fatal(err)
 	}
-	cf, err := report.CoefficientFiles(rec)
+	cf, err := report.CoefficientFiles(rec, true)
 	if err != nil {
 		t.Fatal(err)
 	}

@@ -14,8 +14,10 @@ type File struct {
 }
 
 // CoefficientFiles returns the coefficient files of a chain, in stage order,
-// under the folder "coefficients/".
-func CoefficientFiles(c Chain) ([]File, error) {
+// under the folder "coefficients/". ints asks for the integer files too
+// (the spec sets a coefficient width or "auto"); they are written from the
+// stage's coefficients_int, the integers of the word-length plan.
+func CoefficientFiles(c Chain, ints bool) ([]File, error) {
 	var out []File
 	for i, s := range c.Stages {
 		if s.Kind == "cic" || len(s.Coefficients) == 0 {
@@ -23,11 +25,12 @@ func CoefficientFiles(c Chain) ([]File, error) {
 		}
 		base := fmt.Sprintf("coefficients/stage%d_%s", i+1, s.Kind)
 		out = append(out, File{base + ".csv", FloatCSV(s.Coefficients)})
-		if s.CoefficientBits == 0 || s.CoefficientFrac == nil {
+		w := s.StageReport
+		if !ints || w == nil || w.CoefficientBits == 0 || w.CoefficientFrac == nil || len(w.CoefficientsInt) == 0 {
 			continue
 		}
-		out = append(out, File{base + "_int.csv", IntCSV(s.CoefficientInts, *s.CoefficientFrac)})
-		hex, err := ReadmemH(s.CoefficientInts, s.CoefficientBits)
+		out = append(out, File{base + "_int.csv", IntCSV(w.CoefficientsInt, *w.CoefficientFrac)})
+		hex, err := ReadmemH(w.CoefficientsInt, w.CoefficientBits)
 		if err != nil {
 			return nil, fmt.Errorf("report: stage %d: %v", i+1, err)
 		}

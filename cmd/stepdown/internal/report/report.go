@@ -58,16 +58,21 @@ type Spec struct {
 	SearchLimits Limits   `json:"search"`
 }
 
-// Words are the word lengths in bits; Coefficients is null for floating point.
+// Words are the word lengths in bits. Coefficients is the width the spec
+// fixes, null for "auto" and for floating point; CoefficientsMode says which:
+// "fixed", "auto" or "float".
 type Words struct {
-	Input        int  `json:"input"`
-	Output       int  `json:"output"`
-	Coefficients *int `json:"coefficients"`
+	Input            int    `json:"input"`
+	Output           int    `json:"output"`
+	Coefficients     *int   `json:"coefficients"`
+	CoefficientsMode string `json:"coefficients_mode"`
 }
 
-// Hardware holds the clock in Hz, null when not given.
+// Hardware holds the clock in Hz, null when not given, and the native
+// multiplier size as written ("18x27"), absent when not given.
 type Hardware struct {
-	ClockHz *float64 `json:"clock_hz"`
+	ClockHz    *float64 `json:"clock_hz"`
+	Multiplier string   `json:"multiplier,omitempty"`
 }
 
 // Cost holds the pricing settings.
@@ -108,6 +113,14 @@ type Chain struct {
 	WorstAliasHz        float64 `json:"worst_alias_hz"`
 	PassbandRippleDB    float64 `json:"passband_ripple_db"`
 	Stages              []Stage `json:"stages"`
+
+	// The word-length plan and bit-true run of package chain/fixed
+	// (bittrue_snr_db, bittrue_enob, quantised_alias_rejection_db, ...),
+	// flattened into the chain; nil when it could not be made, and then
+	// WordLengthsError says why. Its per-stage figures are in Stages (its own
+	// Stages field is hidden by the one above and left nil).
+	*fixed.ChainReport
+	WordLengthsError string `json:"word_lengths_error,omitempty"`
 }
 
 // Stage is one stage of a chain.
@@ -129,13 +142,18 @@ type Stage struct {
 	RegisterBits []int `json:"register_bits,omitempty"`
 
 	// Half-band and FIR only.
-	Variant         string    `json:"variant,omitempty"` // FIR: "multiband" or "lowpass"
-	Taps            int       `json:"taps,omitempty"`
-	Coefficients    []float64 `json:"coefficients,omitempty"`
-	CompensatesCIC  *bool     `json:"compensates_cic,omitempty"`
-	CoefficientBits int       `json:"coefficient_bits,omitempty"`
-	CoefficientFrac *int      `json:"coefficient_frac,omitempty"`
-	CoefficientInts []int64   `json:"coefficient_ints,omitempty"`
+	Variant        string    `json:"variant,omitempty"` // FIR: "multiband" or "lowpass"
+	Taps           int       `json:"taps,omitempty"`
+	Coefficients   []float64 `json:"coefficients,omitempty"`
+	CompensatesCIC *bool     `json:"compensates_cic,omitempty"`
+
+	// The stage's word lengths from package chain/fixed (coefficient_bits,
+	// coefficient_frac, coefficients_int, accumulator_bits, output_bits,
+	// dropped_bits, rounding_points, multiplier_size, hardware_multipliers,
+	// ...), flattened into the stage; nil with the chain's. A CIC's pruned
+	// register_bits are the chain package's own, shown above (the field
+	// above hides fixed's copy; TestWordLengths checks that they agree).
+	*fixed.StageReport
 }
 
 // NewSpec converts a parsed spec file.
@@ -153,10 +171,12 @@ func NewSpec(s *specfile.Spec) Spec {
 			CICDelays: append([]int{}, s.CICDelays...),
 		},
 	}
+	out.Words.CoefficientsMode = s.CoefMode()
 	if c.CoefBits > 0 {
 		b := c.CoefBits
 		out.Words.Coefficients = &b
 	}
+	out.Hardware.Multiplier = s.Multiplier
 	if s.Clock > 0 {
 		clk := s.Clock
 		out.Hardware.ClockHz = &clk
@@ -228,14 +248,6 @@ func NewChain(spec chain.Spec, cand optimize.Candidate, clock bool) (Chain, erro
 			if !x.HalfBand {
 				s.Variant = x.Variant.String()
 			}
-			if spec.CoefBits > 0 && len(x.Taps) > 0 {
-				q, err := quantize(x, spec.CoefBits)
-				if err != nil {
-					return Chain{}, fmt.Errorf("report: chain %q stage %d: %v", out.Notation, i+1, err)
-				}
-				frac := q.Frac
-				s.CoefficientBits, s.CoefficientFrac, s.CoefficientInts = q.Bits, &frac, q.Ints
-			}
 		default:
 			return Chain{}, fmt.Errorf("report: chain %q stage %d: unknown stage type %T", out.Notation, i+1, st)
 		}
@@ -244,16 +256,34 @@ func NewChain(spec chain.Spec, cand optimize.Candidate, clock bool) (Chain, erro
 	return out, nil
 }
 
-// quantize rounds a stage's taps with the library's rules (a half-band keeps
-// its exact zeros and centre).
-func quantize(s chain.FIRStage, bits int) (fixed.Coefficients, error) {
-	if bits < 2 || bits > fixed.MaxBits {
-		return fixed.Coefficients{}, fmt.Errorf("coefficient width %d bits is outside [2, %d]", bits, fixed.MaxBits)
+// AddWordLengths runs package chain/fixed's word-length planner and bit-true
+// run (fixed.Evaluate) on cand's chain and puts the figures into c, which
+// NewChain made from cand. spec is the normalised chain spec the planner
+// reads its words from (CoefBits zero: the narrowest width per stage that
+// meets its bands); withHardware says that a native multiplier size and a
+// clock are set in s, so that hardware multipliers are figures. A chain the
+// planner cannot take (an estimate has no taps) gets WordLengthsError.
+func AddWordLengths(c *Chain, spec chain.Spec, cand optimize.Candidate, s fixed.Settings, withHardware bool) {
+	if cand.Chain == nil {
+		c.WordLengthsError = "no designed chain"
+		return
 	}
-	if s.HalfBand {
-		return fixed.QuantizeHalfBand(s.Taps, bits)
+	res, err := fixed.Evaluate(spec, cand.Chain, s, fixed.Signal{})
+	if err != nil {
+		c.WordLengthsError = strings.TrimPrefix(err.Error(), "fixed: ")
+		return
 	}
-	return fixed.Quantize(s.Taps, bits), nil
+	cr := res.Report(withHardware)
+	if len(cr.Stages) != len(c.Stages) {
+		c.WordLengthsError = fmt.Sprintf("word-length plan has %d stages, the chain %d", len(cr.Stages), len(c.Stages))
+		return
+	}
+	for i := range c.Stages {
+		st := cr.Stages[i]
+		c.Stages[i].StageReport = &st
+	}
+	cr.Stages = nil
+	c.ChainReport = &cr
 }
 
 // New builds the report of a search.
@@ -281,11 +311,14 @@ func New(command string, s *specfile.Spec, res *optimize.Result) (*Report, error
 	for k, v := range res.Dropped {
 		r.Search.Dropped[k] = v
 	}
+	fs := s.FixedSettings()
+	hw := s.NativeA > 0 && s.Clock > 0
 	for _, cand := range res.Front {
 		c, err := NewChain(s.Chain, cand, s.Clock > 0)
 		if err != nil {
 			return nil, err
 		}
+		AddWordLengths(&c, s.Chain, cand, fs, hw)
 		r.Front = append(r.Front, c)
 	}
 	if len(r.Front) > 0 && (r.Recommended < 0 || r.Recommended >= len(r.Front)) {
@@ -326,7 +359,11 @@ func nonFinite(v reflect.Value, path string) string {
 		t := v.Type()
 		for i := 0; i < v.NumField(); i++ {
 			name, _, _ := strings.Cut(t.Field(i).Tag.Get("json"), ",")
-			if p := nonFinite(v.Field(i), path+"."+name); p != "" {
+			sub := path + "." + name
+			if t.Field(i).Anonymous {
+				sub = path // flattened into this object
+			}
+			if p := nonFinite(v.Field(i), sub); p != "" {
 				return p
 			}
 		}

@@ -55,6 +55,15 @@ type Spec struct {
 	Symmetry bool
 	// Clock is the hardware clock in Hz; zero when not given.
 	Clock float64
+	// CoefAuto is set by words.coefficients = "auto": the word-length planner
+	// picks, per stage, the narrowest width that meets the stage's bands.
+	// Chain.CoefBits is then zero, so the search prices coefficients at
+	// cost.FloatCoefBits, as for floating point.
+	CoefAuto bool
+	// Multiplier is hardware.multiplier as written ("18x27"), NativeA and
+	// NativeB its operand widths in bits; zero when not given.
+	Multiplier       string
+	NativeA, NativeB int
 	// Search limits, with defaults filled in.
 	MaxStages int
 	Kinds     []chain.Kind
@@ -65,6 +74,23 @@ type Spec struct {
 // CostSettings returns the pricing settings the spec asks for.
 func (s *Spec) CostSettings() cost.Settings {
 	return cost.Settings{NoSymmetry: !s.Symmetry, Clock: s.Clock}
+}
+
+// FixedSettings returns the word-length planner's settings the spec asks for.
+func (s *Spec) FixedSettings() fixed.Settings {
+	return fixed.Settings{NoSymmetry: !s.Symmetry, NativeA: s.NativeA, NativeB: s.NativeB, Clock: s.Clock}
+}
+
+// CoefMode is "fixed" when words.coefficients is a width, "auto" when it is
+// "auto" and "float" when it is absent.
+func (s *Spec) CoefMode() string {
+	switch {
+	case s.Chain.CoefBits > 0:
+		return "fixed"
+	case s.CoefAuto:
+		return "auto"
+	}
+	return "float"
 }
 
 // SearchSettings returns the optimiser settings the spec asks for; the caller
@@ -158,7 +184,7 @@ var known = []key{
 	{path: "input_rate"}, {path: "output_rate"}, {path: "passband"}, {path: "protected"},
 	{path: "stopband"}, {path: "ripple"}, {path: "rejection"}, {path: "signal"},
 	{path: "words", table: true}, {path: "words.input"}, {path: "words.output"}, {path: "words.coefficients"},
-	{path: "hardware", table: true}, {path: "hardware.clock"},
+	{path: "hardware", table: true}, {path: "hardware.clock"}, {path: "hardware.multiplier"},
 	{path: "cost", table: true}, {path: "cost.symmetry"},
 	{path: "search", table: true}, {path: "search.max_stages"}, {path: "search.kinds"},
 	{path: "search.cic_orders"}, {path: "search.cic_delays"},
@@ -487,11 +513,22 @@ func (p *parser) build() (*Spec, error) {
 	}
 	cs.Complex = out.Signal == "complex"
 
+	if v, ok := p.lookup("words.coefficients"); ok {
+		if str, isStr := v.(string); isStr {
+			if str != "auto" {
+				return nil, p.errAt("words.coefficients", v, `want a width in [%d, %d] bits or "auto"`, MinWordBits, MaxCoefBits)
+			}
+			out.CoefAuto = true
+		}
+	}
 	for _, w := range []struct {
 		key string
 		dst *int
 		max int
 	}{{"words.input", &cs.InputBits, MaxWordBits}, {"words.output", &cs.OutputBits, MaxWordBits}, {"words.coefficients", &cs.CoefBits, MaxCoefBits}} {
+		if w.key == "words.coefficients" && out.CoefAuto {
+			continue
+		}
 		n, _, err := p.integer(w.key, MinWordBits, w.max, " bits")
 		if err != nil {
 			return nil, err
@@ -506,6 +543,17 @@ func (p *parser) build() (*Spec, error) {
 			return nil, p.errAt("hardware.clock", raw, "must be above 0 Hz")
 		}
 		out.Clock = clk
+	}
+	if v, ok := p.lookup("hardware.multiplier"); ok {
+		str, isStr := v.(string)
+		if !isStr {
+			return nil, p.errAt("hardware.multiplier", v, `want the native multiplier size as a string "AxB", e.g. "18x27", not a %s`, typeName(v))
+		}
+		a, b, err := fixed.ParseMultiplier(str)
+		if err != nil {
+			return nil, p.errAt("hardware.multiplier", v, "want two widths in bits as AxB, each in [2, 128], e.g. \"18x27\"")
+		}
+		out.Multiplier, out.NativeA, out.NativeB = str, a, b
 	}
 	if v, ok := p.lookup("cost.symmetry"); ok {
 		b, isBool := v.(bool)

@@ -147,6 +147,11 @@ func TestParseErrors(t *testing.T) {
 		{"word high", "[words]\noutput = 65", []string{"words.output", "[2, 64]"}},
 		{"coefficient word high", "[words]\ncoefficients = 41", []string{"words.coefficients", "[2, 40]"}},
 		{"word type", "[words]\noutput = \"24\"", []string{"words.output", "integer"}},
+		{"coefficient word text", "[words]\ncoefficients = \"automatic\"", []string{"words.coefficients", `"automatic"`, `[2, 40] bits or "auto"`}},
+		{"coefficient word float", "[words]\ncoefficients = 18.5", []string{"words.coefficients", "integer"}},
+		{"multiplier bad", "[hardware]\nmultiplier = \"18 by 27\"", []string{"hardware.multiplier", `"18 by 27"`, "AxB"}},
+		{"multiplier too wide", "[hardware]\nmultiplier = \"18x200\"", []string{"hardware.multiplier", "[2, 128]"}},
+		{"multiplier number", "[hardware]\nmultiplier = 18", []string{"hardware.multiplier", "string"}},
 		{"words scalar", "words = 3", []string{"words", "table"}},
 		{"clock", "[hardware]\nclock = \"0 Hz\"", []string{"hardware.clock", "above 0"}},
 		{"symmetry", "[cost]\nsymmetry = 1", []string{"cost.symmetry", "true or false"}},
@@ -191,6 +196,34 @@ func TestParseErrors(t *testing.T) {
 				if !strings.Contains(msg, w) {
 					t.Errorf("error %q lacks %q", msg, w)
 				}
+			}
+		})
+	}
+}
+
+func TestParseWordsAndMultiplier(t *testing.T) {
+	for _, tc := range []struct {
+		name, extra string
+		mode        string
+		bits        int
+		a, b        int
+	}{
+		{"absent", "", "float", 0, 0, 0},
+		{"width", "[words]\ncoefficients = 20\n", "fixed", 20, 0, 0},
+		{"auto", "[words]\ncoefficients = \"auto\"\n[hardware]\nmultiplier = \"18x27\"\n", "auto", 0, 18, 27},
+		{"multiplier spaced", "[hardware]\nmultiplier = \"25 x 18\"\n", "float", 0, 25, 18},
+	} {
+		t.Run(tc.name, func(t *testing.T) {
+			s, err := Parse("spec.toml", []byte(minimal+tc.extra))
+			if err != nil {
+				t.Fatal(err)
+			}
+			if s.CoefMode() != tc.mode || s.Chain.CoefBits != tc.bits || s.NativeA != tc.a || s.NativeB != tc.b {
+				t.Errorf("mode %q bits %d multiplier %dx%d, want %q %d %dx%d", s.CoefMode(), s.Chain.CoefBits, s.NativeA, s.NativeB, tc.mode, tc.bits, tc.a, tc.b)
+			}
+			fs := s.FixedSettings()
+			if fs.NativeA != tc.a || fs.NativeB != tc.b || fs.Clock != s.Clock || fs.NoSymmetry == s.Symmetry {
+				t.Errorf("fixed settings %+v", fs)
 			}
 		})
 	}

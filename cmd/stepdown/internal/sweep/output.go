@@ -160,7 +160,11 @@ func summary(c report.Chain) report.Chain {
 	copy(st, c.Stages)
 	for i := range st {
 		st[i].Coefficients = nil
-		st[i].CoefficientInts = nil
+		if w := st[i].StageReport; w != nil {
+			cp := *w
+			cp.CoefficientsInt = nil
+			st[i].StageReport = &cp
+		}
 	}
 	c.Stages = st
 	return c

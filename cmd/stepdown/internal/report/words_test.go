@@ -1,0 +1,180 @@
+package report
+
+import (
+	"bytes"
+	"encoding/json"
+	"fmt"
+	"math"
+	"math/bits"
+	"strings"
+	"testing"
+
+	"stepdown/chain"
+	"stepdown/cmd/stepdown/internal/specfile"
+	"stepdown/cost"
+	"stepdown/optimize"
+)
+
+// designedFront designs cic3m1r8 > hb > fir2 for real for an invented spec
+// (16 MHz to 500 kHz) with the given [words] and [hardware] lines, and returns
+// the spec and a one-chain result around it.
+func designedFront(t *testing.T, extra string) (*specfile.Spec, *optimize.Result) {
+	t.Helper()
+	s, err := specfile.Parse("words.toml", []byte(`input_rate = "16 MHz"
+output_rate = "500 kHz"
+passband = "100 kHz"
+ripple = "0.5 dB"
+rejection = "70 dB"
+`+extra))
+	if err != nil {
+		t.Fatal(err)
+	}
+	plan, err := chain.ParseNotation("cic3m1r8 > hb > fir2")
+	if err != nil {
+		t.Fatal(err)
+	}
+	set := s.SearchSettings()
+	c, err := chain.Design(s.Chain, plan, set.Chain)
+	if err != nil {
+		t.Fatal(err)
+	}
+	f, err := cost.Evaluate(s.Chain, c, set.Cost)
+	if err != nil {
+		t.Fatal(err)
+	}
+	return s, &optimize.Result{Candidates: 1, FeasibleAll: 1, Designed: 1, Dropped: map[string]int{},
+		Front: []optimize.Candidate{{Plan: plan, Chain: c, Figures: f}}, Reason: "only one"}
+}
+
+func TestWordLengths(t *testing.T) {
+	cases := []struct {
+		name, extra string
+		mode        string
+		bits        int // fixed width, 0 for auto
+		files       int // coefficient files of the chain
+		hardware    bool
+	}{
+		{"fixed 16 bits", "[words]\ncoefficients = 16\n", "fixed", 16, 6, false},
+		{"auto with multiplier", "[words]\ncoefficients = \"auto\"\n[hardware]\nclock = \"64 MHz\"\nmultiplier = \"18x27\"\n", "auto", 0, 6, true},
+		{"absent: float files, auto figures", "", "float", 0, 2, false},
+	}
+	for _, tc := range cases {
+		t.Run(tc.name, func(t *testing.T) {
+			s, res := designedFront(t, tc.extra)
+			r, err := New("plan", s, res)
+			if err != nil {
+				t.Fatal(err)
+			}
+			if r.Spec.Words.CoefficientsMode != tc.mode {
+				t.Errorf("coefficients_mode %q, want %q", r.Spec.Words.CoefficientsMode, tc.mode)
+			}
+			ch := r.Front[0]
+			if ch.ChainReport == nil {
+				t.Fatalf("no word lengths: %s", ch.WordLengthsError)
+			}
+			// A 16-bit ADC word rounded to nearest gives 6.02*16 + 1.76 dB
+			// for a full-scale sine (common practice), 1 dB less for the
+			// default -1 dBFS tone. Decimating by 32 filters out most of that
+			// white error, so the bit-true SNR at the output lies above it,
+			// by about 10 log10(32) = 15 dB with the 24-bit output words.
+			ideal := 6.02*16 + 1.76 - 1
+			if math.Abs(ch.InputSNRDB-ideal) > 0.5 {
+				t.Errorf("input_snr_db %.2f, want %.2f +- 0.5", ch.InputSNRDB, ideal)
+			}
+			if lo, hi := ch.InputSNRDB+10, ch.InputSNRDB+10*math.Log10(32)+6; !(ch.BitTrueSNRDB > lo && ch.BitTrueSNRDB < hi) {
+				t.Errorf("bittrue_snr_db %.2f outside (%.2f, %.2f)", ch.BitTrueSNRDB, lo, hi)
+			}
+			// ENOB = (SNR - 1.76) / 6.02 (common practice).
+			if d := ch.BitTrueENOB - (ch.BitTrueSNRDB-1.76)/6.02; math.Abs(d) > 1e-9 {
+				t.Errorf("bittrue_enob %.4f against SNR %.4f dB", ch.BitTrueENOB, ch.BitTrueSNRDB)
+			}
+			if tc.hardware != (ch.ChainReport.HardwareMultipliers != nil) {
+				t.Errorf("chain hardware_multipliers %v, want present %v", ch.ChainReport.HardwareMultipliers, tc.hardware)
+			}
+			cic := ch.Stages[0]
+			// Hogenauer (1981): the full CIC register is Bin + ceil(N log2(RM))
+			// = 16 + ceil(3 log2 8) = 25 bits.
+			if cic.StageReport == nil || cic.AccumulatorBits != 25 {
+				t.Errorf("cic accumulator_bits %+v, want 25", cic.StageReport)
+			}
+			fcs := res.Front[0].Chain.Stages[0].(chain.CICStage)
+			if fmt.Sprint(fcs.RegisterBits) != fmt.Sprint(cic.StageReport.RegisterBits) {
+				t.Errorf("the chain's CIC registers %v differ from the word-length plan's %v", fcs.RegisterBits, cic.StageReport.RegisterBits)
+			}
+			for i, st := range ch.Stages[1:] {
+				w := st.StageReport
+				if w == nil || len(w.CoefficientsInt) != len(st.Coefficients) || w.CoefficientFrac == nil {
+					t.Fatalf("stage %d: word lengths %+v", i+2, w)
+				}
+				if tc.bits > 0 && w.CoefficientBits != tc.bits {
+					t.Errorf("stage %d: coefficient_bits %d, want %d", i+2, w.CoefficientBits, tc.bits)
+				}
+				if tc.bits == 0 && !w.QuantisedMeetsBands {
+					t.Errorf("stage %d: auto width %d bits does not meet the bands", i+2, w.CoefficientBits)
+				}
+				// Every integer fits the width and lies within one code of
+				// the float tap (the local search moves a tap to its other
+				// rounding at most).
+				var sum int64
+				for k, v := range w.CoefficientsInt {
+					if lim := int64(1)<<(w.CoefficientBits-1) - 1; v > lim || v < -lim {
+						t.Errorf("stage %d tap %d = %d does not fit %d bits", i+2, k, v, w.CoefficientBits)
+					}
+					if d := math.Abs(float64(v) - math.Ldexp(st.Coefficients[k], *w.CoefficientFrac)); d > 1 {
+						t.Errorf("stage %d tap %d: integer %d is %.2f codes from the float tap", i+2, k, v, d)
+					}
+					sum += max(v, -v)
+				}
+				// Worst-case accumulator (common practice for an FIR that
+				// must never overflow): |sum| <= 2^(Bin-1) sum|h_int|, so the
+				// smallest signed width b with 2^(b-1) - 1 >= that bound.
+				want := bits.Len64(uint64(sum)<<(w.InputBits-1)) + 1
+				if w.AccumulatorBits != want {
+					t.Errorf("stage %d: accumulator_bits %d, want %d", i+2, w.AccumulatorBits, want)
+				}
+				if tc.hardware && (w.HardwareMultipliers == nil || *w.HardwareMultipliers < 1) {
+					t.Errorf("stage %d: hardware_multipliers %v", i+2, w.HardwareMultipliers)
+				}
+			}
+			// The integer files come from coefficients_int.
+			files, err := CoefficientFiles(ch, r.Spec.Words.CoefficientsMode != "float")
+			if err != nil {
+				t.Fatal(err)
+			}
+			if len(files) != tc.files {
+				t.Fatalf("%d coefficient files, want %d", len(files), tc.files)
+			}
+			if tc.files == 6 {
+				fir := ch.Stages[2].StageReport
+				hex, _ := ReadmemH(fir.CoefficientsInt, fir.CoefficientBits)
+				if !bytes.Equal(files[5].Data, hex) || !bytes.Equal(files[4].Data, IntCSV(fir.CoefficientsInt, *fir.CoefficientFrac)) {
+					t.Error("the fir's integer files do not hold its coefficients_int")
+				}
+			}
+			// The issue's names are in report.json where it says.
+			js, err := r.Marshal()
+			if err != nil {
+				t.Fatal(err)
+			}
+			var doc struct {
+				Front []map[string]any `json:"front"`
+			}
+			if err := json.Unmarshal(js, &doc); err != nil {
+				t.Fatal(err)
+			}
+			if _, ok := doc.Front[0]["bittrue_snr_db"]; !ok {
+				t.Error("report.json chain lacks bittrue_snr_db")
+			}
+			stages := doc.Front[0]["stages"].([]any)
+			fir := stages[2].(map[string]any)
+			for _, k := range []string{"coefficient_bits", "coefficients_int", "accumulator_bits", "output_bits", "rounding_points", "multiplier_size"} {
+				if _, ok := fir[k]; !ok {
+					t.Errorf("report.json fir stage lacks %s", k)
+				}
+			}
+			if strings.Contains(string(js), "coefficient_ints") {
+				t.Error("report.json still carries coefficient_ints")
+			}
+		})
+	}
+}
