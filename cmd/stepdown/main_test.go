@@ -8,6 +8,7 @@ import (
 	"os/exec"
 	"path/filepath"
 	"reflect"
+	"strconv"
 	"strings"
 	"testing"
 )
@@ -298,7 +299,7 @@ func TestPlanExampleEndToEnd(t *testing.T) {
 	recChain := front[rec].(map[string]any)
 	for _, ch := range front {
 		c := ch.(map[string]any)
-		for _, k := range []string{"notation", "designed", "multiplies_per_output", "adds_per_output", "memory_words", "memory_bits", "latency_s", "latency_samples", "multipliers_at_clock", "alias_rejection_db", "passband_ripple_db", "stages"} {
+		for _, k := range []string{"notation", "designed", "multiplies_per_output", "adds_per_output", "memory_words", "memory_bits", "latency_s", "latency_samples", "multipliers_at_clock", "alias_rejection_db", "passband_ripple_db", "stages", "bittrue_snr_db", "bittrue_enob"} {
 			if _, ok := c[k]; !ok {
 				t.Errorf("chain %v lacks %q", c["notation"], k)
 			}
@@ -310,7 +311,7 @@ func TestPlanExampleEndToEnd(t *testing.T) {
 			case "cic":
 				keys = append(keys, "cic_order", "cic_delay", "register_bits")
 			case "halfband", "fir":
-				keys = append(keys, "taps", "coefficients", "compensates_cic")
+				keys = append(keys, "taps", "coefficients", "compensates_cic", "coefficient_bits", "coefficients_int", "accumulator_bits", "output_bits")
 			default:
 				t.Errorf("stage kind %v", st["kind"])
 			}
@@ -338,6 +339,24 @@ func TestPlanExampleEndToEnd(t *testing.T) {
 		if len(lines) != int(st["taps"].(float64)) || len(lines[0]) != 5 {
 			t.Errorf("%s.hex: %d lines of %d digits, want %v lines of 5 (18 bits)", base, len(lines), len(lines[0]), st["taps"])
 		}
+		// Both integer files hold report.json's coefficients_int: 18-bit
+		// two's complement words in the .hex, the integer column of the CSV.
+		ints := st["coefficients_int"].([]any)
+		csvText, _ := os.ReadFile(filepath.Join(dir, "out", base+"_int.csv"))
+		rows := strings.Split(strings.TrimSpace(string(csvText)), "\n")[1:]
+		for k, v := range ints {
+			want := int64(v.(float64))
+			h, err := strconv.ParseUint(lines[min(k, len(lines)-1)], 16, 64)
+			if err != nil || int64(h)-int64(h>>17)*(1<<18) != want {
+				t.Errorf("%s.hex line %d = %q, want %d", base, k, lines[min(k, len(lines)-1)], want)
+			}
+			if f := strings.Split(rows[min(k, len(rows)-1)], ","); len(f) < 2 || f[1] != strconv.FormatInt(want, 10) {
+				t.Errorf("%s_int.csv row %d = %q, want integer %d", base, k, rows[min(k, len(rows)-1)], want)
+			}
+		}
+	}
+	if !strings.Contains(r.stdout, "bit-true SNR") || !strings.Contains(r.stdout, "ENOB") {
+		t.Errorf("terminal output lacks the bit-true SNR and ENOB:\n%s", r.stdout)
 	}
 	if !strings.Contains(r.stdout, "recommended") || !strings.Contains(r.stdout, recChain["notation"].(string)) {
 		t.Errorf("terminal output lacks the recommendation:\n%s", r.stdout)
