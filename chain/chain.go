@@ -81,6 +81,12 @@ type Settings struct {
 	// Remez is handed to the design engine; its zero value is the engine's
 	// default (grid density 16, 100 iterations).
 	Remez remez.Settings
+	// MaxTaps bounds every FIR and half-band stage's length. Zero means no
+	// bound beyond the engine's own (65535 taps). A stage that needs more
+	// fails with an error naming the bound, and remez.MinLength never
+	// designs a length above it, so a caller with a tap limit does not pay
+	// for designs that would exceed it. A negative value is an error.
+	MaxTaps int
 }
 
 // Decimation returns the product of the stages' factors.

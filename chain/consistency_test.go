@@ -2,6 +2,7 @@ package chain
 
 import (
 	"math"
+	"strings"
 	"testing"
 )
 
@@ -98,5 +99,39 @@ func TestStopbandScale(t *testing.T) {
 				t.Errorf("%s: estimated rejection %.6f dB, want the target %g dB", dc.plan, a.AliasRejectionDB, dc.spec.RejectionDB)
 			}
 		}
+	}
+}
+
+func TestDesignMaxTaps(t *testing.T) {
+	dc := nothingToSpare[0] // fir101 at 90 dB: Herrmann's estimate is about 1900 taps
+	plan, _ := ParseNotation(dc.plan)
+	free, err := Design(dc.spec, plan, Settings{})
+	if err != nil {
+		t.Fatal(err)
+	}
+	n := len(free.Stages[0].(FIRStage).Taps)
+	// A bound at the answer gives the same filter.
+	c, err := Design(dc.spec, plan, Settings{MaxTaps: n})
+	if err != nil {
+		t.Fatalf("MaxTaps %d: %v", n, err)
+	}
+	if m := len(c.Stages[0].(FIRStage).Taps); m != n {
+		t.Errorf("MaxTaps %d: %d taps, unbounded %d", n, m, n)
+	}
+	// A bound well below it fails, naming the bound.
+	if _, err := Design(dc.spec, plan, Settings{MaxTaps: 511}); err == nil || !strings.Contains(err.Error(), "maxTaps = 511") {
+		t.Errorf("MaxTaps 511: error %v, want one naming maxTaps = 511", err)
+	}
+	for _, bad := range []int{-1, 2} {
+		if _, err := Design(dc.spec, plan, Settings{MaxTaps: bad}); err == nil || !strings.Contains(err.Error(), "Settings.MaxTaps") {
+			t.Errorf("MaxTaps %d: error %v", bad, err)
+		}
+	}
+	// A half-band longer than the bound is refused: the D = 4096 case's
+	// 90 dB half-bands have 11 taps or more.
+	hb := designedCases[3]
+	hplan, _ := ParseNotation(hb.plan)
+	if _, err := Design(hb.spec, hplan, Settings{MaxTaps: 7}); err == nil || !strings.Contains(err.Error(), "Settings.MaxTaps = 7") {
+		t.Errorf("half-band under MaxTaps 7: error %v", err)
 	}
 }

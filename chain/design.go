@@ -12,13 +12,15 @@ import (
 // FIR stages take remez.HerrmannLength(dp_i, ds, first stopband edge - fp,
 // F(i-1)); half-bands the same estimate for min(dp_i, ds) on both bands,
 // rounded up to the next length 4K-1. CIC stages need no design and are
-// complete (pruned registers included).
+// complete (pruned registers included). Settings.MaxTaps does not bound
+// estimates (the caller compares them with its own limit).
 func Estimate(spec Spec, plan []StagePlan, s Settings) (*Chain, error) {
 	return build(spec, plan, s, false)
 }
 
 // Design designs every stage for real: FIR stages by remez.MinLength on their
-// requirement's bands, half-bands by remez.MinHalfBand.
+// requirement's bands, searching no length above s.MaxTaps, half-bands by
+// remez.MinHalfBand, refused when longer than s.MaxTaps.
 func Design(spec Spec, plan []StagePlan, s Settings) (*Chain, error) {
 	return build(spec, plan, s, true)
 }
@@ -27,6 +29,9 @@ func build(spec Spec, plan []StagePlan, s Settings, design bool) (*Chain, error)
 	spec, err := spec.Normalize()
 	if err != nil {
 		return nil, err
+	}
+	if s.MaxTaps < 0 || (s.MaxTaps > 0 && s.MaxTaps < 3) {
+		return nil, fmt.Errorf("chain: Settings.MaxTaps = %d: must be 0 (no bound) or at least 3", s.MaxTaps)
 	}
 	reqs, err := Requirements(spec, plan)
 	if err != nil {
@@ -75,11 +80,14 @@ func halfBandStage(r Requirement, s Settings, design bool) (FIRStage, error) {
 		st.Length = 4*k - 1
 		return st, nil
 	}
-	res, err := withDensityRetry(s.Remez, func(rs remez.Settings) (*remez.Result, error) {
-		return remez.MinHalfBand(r.Passband, r.InputRate, r.Dp, rs)
-	})
+	res, err := remez.MinHalfBand(r.Passband, r.InputRate, r.Dp, s.Remez)
 	if err != nil {
 		return st, fmt.Errorf("half-band design: %w", err)
+	}
+	// MinHalfBand has no length bound; half-bands are short and cheap to
+	// design, so the bound is checked on the answer.
+	if s.MaxTaps > 0 && len(res.Taps) > s.MaxTaps {
+		return st, fmt.Errorf("half-band design: needs %d taps, more than Settings.MaxTaps = %d", len(res.Taps), s.MaxTaps)
 	}
 	st.Taps = res.Taps
 	st.Length = len(res.Taps)
@@ -138,40 +146,14 @@ func firStage(r Requirement, prev []Stage, s Settings, design bool) (FIRStage, e
 	for _, b := range r.Stopbands {
 		bands = append(bands, remez.Band{Lo: b.Lo, Hi: b.Hi, MaxError: r.Ds, Weight: 1 / r.Ds})
 	}
-	res, err := withDensityRetry(s.Remez, func(rs remez.Settings) (*remez.Result, error) {
-		return remez.MinLength(r.InputRate, bands, 0, 0, rs)
-	})
+	res, err := remez.MinLength(r.InputRate, bands, 0, s.MaxTaps, s.Remez)
 	if err != nil {
+		if s.MaxTaps > 0 {
+			return st, fmt.Errorf("FIR design with Settings.MaxTaps = %d: %w", s.MaxTaps, err)
+		}
 		return st, fmt.Errorf("FIR design: %w", err)
 	}
 	st.Taps = res.Taps
 	st.Length = len(res.Taps)
 	return st, nil
-}
-
-// densityRetries is how many times a failed design is retried with four
-// times the grid density. Short filters on very narrow bands (an early
-// half-band keeping 10 kHz at 1.6 MHz, say) can leave the engine's grid with
-// fewer points than the filter has unknowns; a denser grid costs little for
-// them and fixes it. The first error is returned if every retry fails.
-const densityRetries = 3
-
-func withDensityRetry(rs remez.Settings, design func(remez.Settings) (*remez.Result, error)) (*remez.Result, error) {
-	res, err := design(rs)
-	if err == nil {
-		return res, nil
-	}
-	first := err
-	d := rs.Density
-	if d == 0 {
-		d = 16
-	}
-	for i := 0; i < densityRetries; i++ {
-		d *= 4
-		rs.Density = d
-		if res, err = design(rs); err == nil {
-			return res, nil
-		}
-	}
-	return nil, first
 }

@@ -176,8 +176,9 @@ func BenchmarkDesignD4096(b *testing.B) {
 
 func TestDesignNarrowHalfBand(t *testing.T) {
 	// An early half-band with a tiny passband (12.5 kHz at 1.6 MHz) is a
-	// 7-tap filter whose single band is too narrow for the engine's default
-	// grid; Design retries at a denser grid (design.go).
+	// 7-tap filter whose single band once left the engine's default grid
+	// with fewer points than unknowns; the engine now gives every band at
+	// least 16 points and Design no longer retries at a denser grid.
 	sp := Spec{InputRate: 102.4e6, OutputRate: 25e3, Passband: 10e3, Protected: 12.5e3, RippleDB: 0.5, RejectionDB: 90}
 	c := designOrSkip(t, sp, "cic5m1r64 > hb > hb > hb > fir4L > fir2")
 	a, err := Analyze(c, sp)

@@ -187,9 +187,6 @@ func Requirements(spec Spec, plan []StagePlan) ([]Requirement, error) {
 		if len(r.Stopbands) == 0 || r.Stopbands[0].Lo <= r.Passband {
 			return nil, planErr(plan, i, "no transition band between the passband edge %s Hz and the stopband", fmtNum(r.Passband))
 		}
-		if p.Kind == FIR {
-			r.Stopbands = mergeClose(r.Stopbands, (r.Stopbands[0].Lo-r.Passband)*minGapFraction)
-		}
 		reqs[i] = r
 		rate = out
 	}
@@ -257,26 +254,6 @@ func mergeIntervals(b []Interval) []Interval {
 			if v.Hi > last.Hi {
 				last.Hi = v.Hi
 			}
-			continue
-		}
-		out = append(out, v)
-	}
-	return out
-}
-
-// minGapFraction: don't-care gaps between stopbands narrower than this
-// fraction of the stage's transition band are closed. A filter cannot use a
-// gap much narrower than its own transition (the response has no room to
-// rise and fall again inside it), so closing it costs no taps, while such
-// slivers make the exchange ill-conditioned and slow.
-const minGapFraction = 0.25
-
-func mergeClose(b []Interval, minGap float64) []Interval {
-	out := []Interval{b[0]}
-	for _, v := range b[1:] {
-		last := &out[len(out)-1]
-		if v.Lo-last.Hi < minGap {
-			last.Hi = math.Max(last.Hi, v.Hi)
 			continue
 		}
 		out = append(out, v)
