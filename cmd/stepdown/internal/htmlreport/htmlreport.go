@@ -305,6 +305,12 @@ func planCautions(r *report.Report) []string {
 	} else {
 		out = append(out, fmt.Sprintf("The integer coefficient files are rounded to %d bits; the rejection and ripple above are those of the floating-point design.", *r.Spec.Words.Coefficients))
 	}
+	if w := c.ChainReport; w != nil {
+		out = append(out, fmt.Sprintf("Word lengths of the recommended chain (planning figures from a model of the data path, to be confirmed by a bit-true simulation of the RTL): bit-true SNR %.1f dB, ENOB %.2f bits on %s; with the quantised coefficients the cascade's alias rejection is %.2f dB.",
+			w.BitTrueSNRDB, w.BitTrueENOB, w.TestSignal, w.QuantisedRejectionDB))
+	} else if c.WordLengthsError != "" {
+		out = append(out, "No word lengths were planned for the recommended chain: "+c.WordLengthsError+".")
+	}
 	if r.Spec.Signal == "complex" {
 		out = append(out, "Complex (I/Q) signal: multiplies, adders and data memory count both the I and the Q filters.")
 	}
@@ -374,6 +380,16 @@ func stageViews(c report.Chain, files []string, prefix string, clock bool) []sta
 			}
 			if w := s.StageReport; w != nil && w.CoefficientBits > 0 && w.CoefficientFrac != nil {
 				add("Coefficients", fmt.Sprintf("%d bits, %d fractional", w.CoefficientBits, *w.CoefficientFrac))
+			}
+		}
+		if w := s.StageReport; w != nil {
+			add("Word lengths", fmt.Sprintf("in %d bits, accumulator %d bits, out %d bits", w.InputBits, w.AccumulatorBits, w.OutputBits))
+			if w.MultiplierSize != "" {
+				m := w.MultiplierSize + " bits"
+				if w.HardwareMultipliers != nil {
+					m += fmt.Sprintf(", %d native blocks at the clock", *w.HardwareMultipliers)
+				}
+				add("Multiplier", m)
 			}
 		}
 		add("Multiplies / output", trimFloat(s.MultipliesPerOutput, 2))

@@ -60,6 +60,12 @@ func sampleReport(t testing.TB) *report.Report {
 			MemoryWords: 120, MemoryBits: 4170, LatencyS: 18.8e-6, Multipliers: ip(1), Variant: "multiband", Taps: 61,
 			Coefficients: taps(61), CompensatesCIC: bp(true), StageReport: &fixed.StageReport{CoefficientBits: 18, CoefficientFrac: ip(18)}},
 	}
+	// Word-length figures as report.New would flatten them from chain/fixed
+	// (invented values, for the page's wording only).
+	rec.ChainReport = &fixed.ChainReport{BitTrueSNRDB: 112.34, BitTrueENOB: 18.37, QuantisedRejectionDB: 81.05,
+		TestSignal: "192187.5 Hz at -1 dBFS; white Gaussian noise -90.3 dBFS RMS; 2048 output samples"}
+	rec.Stages[2].StageReport.InputBits, rec.Stages[2].StageReport.AccumulatorBits, rec.Stages[2].StageReport.OutputBits = 24, 46, 24
+	rec.Stages[2].StageReport.MultiplierSize, rec.Stages[2].StageReport.HardwareMultipliers = "25 x 18", ip(2)
 	for i := range rec.Stages {
 		st := &rec.Stages[i]
 		if st.Coefficients != nil {
@@ -189,6 +195,8 @@ func TestPlanPage(t *testing.T) {
 		"Stage 1: CIC, decimate by 8", "Stage 2: half-band, decimate by 2", "Stage 3: FIR, decimate by 4",
 		`href="coefficients/stage3_fir.csv"`, `href="coefficients/stage3_fir.hex"`, `href="coefficients/stage2_halfband_int.csv"`,
 		"bit-true simulation", "Complex (I/Q) signal",
+		"bit-true SNR 112.3 dB, ENOB 18.37 bits on 192187.5 Hz at -1 dBFS", "alias rejection is 81.05 dB",
+		"in 24 bits, accumulator 46 bits, out 24 bits", "25 x 18 bits, 2 native blocks at the clock",
 	} {
 		if !strings.Contains(page, want) {
 			t.Errorf("page lacks %q", want)
