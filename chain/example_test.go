@@ -2,6 +2,7 @@ package chain_test
 
 import (
 	"fmt"
+	"math"
 
 	"stepdown/chain"
 )
@@ -84,4 +85,15 @@ func ExampleDesign() {
 	// designed: true
 	// ripple within budget: true
 	// the last stage corrects the CIC: true
+}
+
+func ExampleStopbandScale() {
+	// Two FIR stages share a 0.1 dB ripple budget: each may sit 1 - dp below
+	// unity at 0 Hz, and the other may lift an alias by 1 + dp, so each is
+	// designed to a stopband limit a little below the 80 dB target.
+	dp := chain.RippleToDev(0.05)
+	s := chain.StopbandScale(dp, 2, true)
+	fmt.Printf("dp %.5f, scale %.5f, design each stage to %.3f dB\n", dp, s, 80-20*math.Log10(s))
+	// Output:
+	// dp 0.00288, scale 0.99140, design each stage to 80.075 dB
 }
