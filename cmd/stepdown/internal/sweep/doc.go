@@ -53,8 +53,11 @@
 // meets_targets, multiplies and adds per output, memory bits, latency in
 // seconds and output samples, hardware multipliers at the clock, alias
 // rejection, passband ripple), the size of the front, the least multiplies,
-// memory bits, latency and multipliers over the front (each on its own), and
-// a detail for any status but ok. Cells that do not apply are empty.
+// memory bits, latency and multipliers over the front (each on its own), the
+// recommended chain's word-length figures from package chain/fixed (bit-true
+// SNR and ENOB, alias rejection with quantised coefficients, and the FIR and
+// half-band coefficient widths in stage order, space-separated; empty when the
+// chain has no word-length plan), and a detail for any status but ok. Cells that do not apply are empty.
 //
 // The output folder holds report.json (schema "stepdown.sweep/1": the spec as
 // given, the range, and per value its status, front without coefficient

@@ -7,6 +7,7 @@ import (
 	"fmt"
 	"math"
 	"strconv"
+	"strings"
 
 	"stepdown/cmd/stepdown/internal/report"
 	"stepdown/cmd/stepdown/internal/specfile"
@@ -26,7 +27,8 @@ var CSVHeader = []string{
 	"index", "key", "value", "value_text", "status", "recommended", "structure_changed",
 	"designed", "meets_targets", "multiplies_per_output", "adds_per_output", "memory_bits",
 	"latency_s", "latency_samples", "multipliers_at_clock", "alias_rejection_db", "passband_ripple_db",
-	"front_size", "best_multiplies_per_output", "best_memory_bits", "best_latency_s", "best_multipliers_at_clock", "detail",
+	"front_size", "best_multiplies_per_output", "best_memory_bits", "best_latency_s", "best_multipliers_at_clock",
+	"bittrue_snr_db", "bittrue_enob", "quantised_alias_rejection_db", "coefficient_bits", "detail",
 }
 
 // CSV returns sweep.csv: one row per value, in the order of the values.
@@ -54,14 +56,32 @@ func CSV(v Vary, rs []Result) []byte {
 				num(c.MultipliesPerOutput), num(c.AddsPerOutput), strconv.Itoa(c.MemoryBits),
 				num(c.LatencyS), num(c.LatencySamples), mult, num(c.AliasRejectionDB), num(c.PassbandRippleDB),
 				strconv.Itoa(len(rep.Front)), num(b.Multiplies), strconv.Itoa(b.MemoryBits), num(b.LatencyS), bestMult)
+			row = append(row, wordCells(c)...)
 		} else {
-			row = append(row, make([]string, 17)...)
+			row = append(row, make([]string, 21)...)
 		}
 		row = append(row, r.Detail)
 		_ = w.Write(row)
 	}
 	w.Flush()
 	return buf.Bytes()
+}
+
+// wordCells are the recommended chain's word-length figures: bit-true SNR
+// and ENOB, the alias rejection with quantised coefficients, and the FIR and
+// half-band stages' coefficient widths in stage order, separated by spaces.
+// They are empty when the chain has no word-length plan.
+func wordCells(c report.Chain) []string {
+	if c.ChainReport == nil {
+		return make([]string, 4)
+	}
+	var bits []string
+	for _, st := range c.Stages {
+		if st.StageReport != nil && st.CoefficientBits > 0 {
+			bits = append(bits, strconv.Itoa(st.CoefficientBits))
+		}
+	}
+	return []string{num(c.BitTrueSNRDB), num(c.BitTrueENOB), num(c.QuantisedRejectionDB), strings.Join(bits, " ")}
 }
 
 // num writes a finite float in Go's shortest round-trip form; a NaN or
