@@ -103,7 +103,12 @@
 // now). Not covered by the bound: a multiband stage's don't-care gain above
 // 1 + dp_j and a later stage's transition gain on (fp, fa]; Analyze remains
 // the judge. A CIC is not designed: its Ds is informational and its
-// rejection is read on its bands as it is.
+// rejection is read on its bands as it is, in absolute terms. Known gap: the
+// compensator lifts an alias that lands at x in [0, fp] by about
+// 1/|H_cic(x)|, so a chain whose worst band is the CIC's own measures below
+// the CIC's figure (in 60 invented CIC > FIR chains with the target set at
+// the CIC's own rejection, by up to 1.45 dB); reading a compensated CIC's
+// rejection relative to its gain at the folded frequency would close it.
 //
 // # Estimates and designs (DESIGN §6)
 //
