@@ -376,13 +376,17 @@ func printSummary(w io.Writer, j *job, rep *report.Report, files []report.File) 
 // chain: the bit-true figures and each stage's widths.
 func printWords(w io.Writer, rep *report.Report) {
 	ch := rep.Front[rep.Recommended]
-	if ch.ChainReport == nil {
+	coef := map[string]string{"fixed": "coefficients as set", "auto": "coefficients auto", "float": "coefficients auto, for information (the files stay floating point)"}[rep.Spec.Words.CoefficientsMode]
+	switch {
+	case ch.ChainReport != nil:
+		fmt.Fprintf(w, "\nword lengths (%s): bit-true SNR %.1f dB, ENOB %.2f bits; quantised alias rejection %.2f dB\n",
+			coef, ch.BitTrueSNRDB, ch.BitTrueENOB, ch.QuantisedRejectionDB)
+	case len(ch.Stages) > 0 && ch.Stages[0].StageReport != nil:
+		fmt.Fprintf(w, "\nword lengths (%s): %s\n", coef, ch.WordLengthsError)
+	default:
 		fmt.Fprintf(w, "\nword lengths: not planned (%s)\n", ch.WordLengthsError)
 		return
 	}
-	coef := map[string]string{"fixed": "coefficients as set", "auto": "coefficients auto", "float": "coefficients auto, for information (the files stay floating point)"}[rep.Spec.Words.CoefficientsMode]
-	fmt.Fprintf(w, "\nword lengths (%s): bit-true SNR %.1f dB, ENOB %.2f bits; quantised alias rejection %.2f dB\n",
-		coef, ch.BitTrueSNRDB, ch.BitTrueENOB, ch.QuantisedRejectionDB)
 	for i, st := range ch.Stages {
 		sr := st.StageReport
 		if sr == nil {

@@ -309,7 +309,7 @@ func planCautions(r *report.Report) []string {
 		out = append(out, fmt.Sprintf("Word lengths of the recommended chain (planning figures from a model of the data path, to be confirmed by a bit-true simulation of the RTL): bit-true SNR %.1f dB, ENOB %.2f bits on %s; with the quantised coefficients the cascade's alias rejection is %.2f dB.",
 			w.BitTrueSNRDB, w.BitTrueENOB, w.TestSignal, w.QuantisedRejectionDB))
 	} else if c.WordLengthsError != "" {
-		out = append(out, "No word lengths were planned for the recommended chain: "+c.WordLengthsError+".")
+		out = append(out, "No bit-true figures for the recommended chain: "+c.WordLengthsError+".")
 	}
 	if r.Spec.Signal == "complex" {
 		out = append(out, "Complex (I/Q) signal: multiplies, adders and data memory count both the I and the Q filters.")

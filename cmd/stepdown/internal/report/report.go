@@ -261,17 +261,33 @@ func NewChain(spec chain.Spec, cand optimize.Candidate, clock bool) (Chain, erro
 // NewChain made from cand. spec is the normalised chain spec the planner
 // reads its words from (CoefBits zero: the narrowest width per stage that
 // meets its bands); withHardware says that a native multiplier size and a
-// clock are set in s, so that hardware multipliers are figures. A chain the
-// planner cannot take (an estimate has no taps) gets WordLengthsError.
+// clock are set in s, so that hardware multipliers are figures.
+//
+// When the bit-true run cannot be made (a CIC register wider than its
+// integers) but the widths can, the stages get their widths, the chain no
+// bit-true figures, and WordLengthsError says why; a chain the planner cannot
+// take at all (an estimate has no taps) gets only WordLengthsError.
 func AddWordLengths(c *Chain, spec chain.Spec, cand optimize.Candidate, s fixed.Settings, withHardware bool) {
 	if cand.Chain == nil {
 		c.WordLengthsError = "no designed chain"
 		return
 	}
 	res, err := fixed.Evaluate(spec, cand.Chain, s, fixed.Signal{})
+	bitTrue := err == nil
 	if err != nil {
-		c.WordLengthsError = strings.TrimPrefix(err.Error(), "fixed: ")
-		return
+		// Evaluate is FromChain, Plan, then the bit-true run: redo the first
+		// two to tell a failed run from a chain the planner cannot take.
+		cas, w, perr := fixed.FromChain(spec, cand.Chain)
+		var ws *fixed.Widths
+		if perr == nil {
+			ws, perr = fixed.Plan(cas, w, s)
+		}
+		if perr != nil {
+			c.WordLengthsError = strings.TrimPrefix(perr.Error(), "fixed: ")
+			return
+		}
+		c.WordLengthsError = "widths planned, no bit-true run: " + strings.TrimPrefix(err.Error(), "fixed: ")
+		res = &fixed.Result{Widths: ws}
 	}
 	cr := res.Report(withHardware)
 	if len(cr.Stages) != len(c.Stages) {
@@ -282,8 +298,10 @@ func AddWordLengths(c *Chain, spec chain.Spec, cand optimize.Candidate, s fixed.
 		st := cr.Stages[i]
 		c.Stages[i].StageReport = &st
 	}
-	cr.Stages = nil
-	c.ChainReport = &cr
+	if bitTrue {
+		cr.Stages = nil
+		c.ChainReport = &cr
+	}
 }
 
 // New builds the report of a search.

@@ -20,16 +20,21 @@ import (
 // the spec and a one-chain result around it.
 func designedFront(t *testing.T, extra string) (*specfile.Spec, *optimize.Result) {
 	t.Helper()
-	s, err := specfile.Parse("words.toml", []byte(`input_rate = "16 MHz"
+	return designed(t, `input_rate = "16 MHz"
 output_rate = "500 kHz"
 passband = "100 kHz"
 ripple = "0.5 dB"
 rejection = "70 dB"
-`+extra))
+`+extra, "cic3m1r8 > hb > fir2")
+}
+
+func designed(t *testing.T, text, notation string) (*specfile.Spec, *optimize.Result) {
+	t.Helper()
+	s, err := specfile.Parse("words.toml", []byte(text))
 	if err != nil {
 		t.Fatal(err)
 	}
-	plan, err := chain.ParseNotation("cic3m1r8 > hb > fir2")
+	plan, err := chain.ParseNotation(notation)
 	if err != nil {
 		t.Fatal(err)
 	}
@@ -176,5 +181,40 @@ func TestWordLengths(t *testing.T) {
 				t.Error("report.json still carries coefficient_ints")
 			}
 		})
+	}
+}
+
+// A CIC whose full register is wider than the bit-true run's integers still
+// gets its widths; the chain then has no bit-true figures and says why.
+func TestWordLengthsWithoutBitTrue(t *testing.T) {
+	// Hogenauer (1981): 16 + ceil(6 log2 1024) = 76 bits, beyond 63.
+	s, res := designed(t, `input_rate = "122.88 MHz"
+output_rate = "30 kHz"
+passband = "12 kHz"
+ripple = "0.1 dB"
+rejection = "100 dB"
+[words]
+coefficients = "auto"
+`, "cic6m1r1024 > fir4")
+	r, err := New("plan", s, res)
+	if err != nil {
+		t.Fatal(err)
+	}
+	ch := r.Front[0]
+	if ch.ChainReport != nil || !strings.Contains(ch.WordLengthsError, "no bit-true run") || !strings.Contains(ch.WordLengthsError, "76-bit") {
+		t.Errorf("chain report %+v, error %q", ch.ChainReport, ch.WordLengthsError)
+	}
+	if w := ch.Stages[0].StageReport; w == nil || w.AccumulatorBits != 76 {
+		t.Errorf("cic widths %+v, want a 76-bit register", w)
+	}
+	if w := ch.Stages[1].StageReport; w == nil || w.CoefficientBits == 0 || len(w.CoefficientsInt) != len(ch.Stages[1].Coefficients) {
+		t.Errorf("fir widths %+v", w)
+	}
+	js, err := r.Marshal()
+	if err != nil {
+		t.Fatal(err)
+	}
+	if strings.Contains(string(js), "bittrue_snr_db") {
+		t.Error("report.json has a bit-true SNR for a chain that was not run")
 	}
 }
