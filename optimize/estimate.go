@@ -114,6 +114,7 @@ type stageKey struct {
 	kind, variant  int8
 	n, m           int8
 	inBits         int8 // data width from a CIC feeding it, else 0
+	nRipple        int8 // half-band and FIR stages in the chain: sets the stopband scale
 	share          uint64
 }
 
@@ -157,13 +158,21 @@ type estimator struct {
 	orders, delays []int
 	// keepBeaten turns cicBeaten off (for the exhaustive check).
 	keepBeaten bool
+	// beaters lists, for each beaten CIC, the order and delay of the CICs
+	// that beat it.
+	beaters map[[3]int][][2]int
+	// reinstated holds the plan keys of the chains that beaten-CIC pruning
+	// no longer drops, and reinstatedCIC their CICs (see reinstate).
+	reinstated    map[string]bool
+	reinstatedCIC map[[3]int]bool
+	key           []byte // planKey scratch
 }
 
 func newEstimator(p params, tol float64) *estimator {
 	if tol == 0 {
 		tol = defaultTolerance
 	}
-	return &estimator{p: p, tol: tol, maxTaps: defaultMaxTaps, cache: make(map[stageKey]stageVal), beaten: map[[3]int]bool{}, margins: map[[3]int]float64{},
+	return &estimator{p: p, tol: tol, maxTaps: defaultMaxTaps, cache: make(map[stageKey]stageVal), beaten: map[[3]int]bool{}, beaters: map[[3]int][][2]int{}, reinstated: map[string]bool{}, reinstatedCIC: map[[3]int]bool{}, margins: map[[3]int]float64{},
 		orders: []int{1, 2, 3, 4, 5, 6, 7}, delays: []int{1, 2}}
 }
 
@@ -211,6 +220,7 @@ func (e *estimator) keysOf(plan []chain.StagePlan) dropCode {
 		}}
 		if st.Kind != chain.CIC {
 			k.share = math.Float64bits(share)
+			k.nRipple = int8(nRipple)
 			k.comp = i == comp
 			if i == 1 && cic.Kind == chain.CIC {
 				w := p.inBits + int(math.Ceil(float64(cic.CICOrder)*math.Log2(float64(cic.Factor*cic.CICDelay))))
@@ -253,7 +263,7 @@ func (e *estimator) score(plan []chain.StagePlan) (figs, dropCode) {
 		total.lat += v.f.lat
 		total.margin = math.Min(total.margin, v.f.margin)
 	}
-	if st := plan[0]; st.Kind == chain.CIC && !e.keepBeaten && e.cicBeaten(st.Factor, st.CICOrder, st.CICDelay) {
+	if st := plan[0]; st.Kind == chain.CIC && !e.keepBeaten && e.cicBeaten(st.Factor, st.CICOrder, st.CICDelay) && !e.isReinstated(plan) {
 		return figs{}, dropCICBeaten
 	}
 	return total, dropNone
@@ -276,6 +286,9 @@ func (e *estimator) stage(k stageKey) stageVal {
 	last := prefix*f == p.d
 	later := float64(p.d / (prefix * f))
 	dpi := rippleToDev(math.Float64frombits(k.share))
+	// The absolute stopband limit each stage is designed to, as chain sets
+	// it, so that the cascade's rejection relative to |H(0)| meets the target.
+	ds := p.ds * chain.StopbandScale(dpi, int(k.nRipple), true)
 	stop := p.stopEdge(out, last)
 	cplx := 1.0
 	if p.complex {
@@ -322,7 +335,7 @@ func (e *estimator) stage(k stageKey) stageVal {
 			v.drop = dropHalfBandEdges
 			return v
 		}
-		dev := math.Min(dpi, p.ds)
+		dev := math.Min(dpi, ds)
 		l := math.Ceil(herrmann(dev, dev, (hbStop-edge)/rate))
 		kk := math.Max(1, math.Ceil((l+1)/4))
 		v.taps = 4*kk - 1
@@ -344,7 +357,7 @@ func (e *estimator) stage(k stageKey) stageVal {
 		v.hi = hb(math.Ceil(kk*(1+e.tol)) + 1)
 		return v
 	case chain.FIR:
-		l := math.Ceil(herrmann(dpi, p.ds, (stop-p.fp)/rate))
+		l := math.Ceil(herrmann(dpi, ds, (stop-p.fp)/rate))
 		if l < 3 {
 			v.drop = dropShortFIR
 			return v
@@ -520,12 +533,101 @@ func (e *estimator) cicBeaten(r, n, m int) bool {
 			}
 			if le && lt {
 				beaten = true
-				break
+				e.beaters[[3]int{r, a.n, a.m}] = append(e.beaters[[3]int{r, a.n, a.m}], [2]int{b.n, b.m})
 			}
 		}
 		e.beaten[[3]int{r, a.n, a.m}] = beaten
 	}
 	return e.beaten[key]
+}
+
+// reinstate takes back the chains the beaten-CIC rule pruned on the
+// strength of failed: for each failed chain starting with a CIC, the same
+// chain with each CIC that one beats. Pruning a beaten CIC assumes the
+// chain with its beater and the same later stages stands; when that chain
+// failed to design or missed the spec, the beaten CIC's may not. It reports
+// whether any chain was taken back.
+func (e *estimator) reinstate(failed [][]chain.StagePlan, front []Candidate) bool {
+	if e.keepBeaten {
+		return false
+	}
+	fs := make([]figs, len(front))
+	for i := range front {
+		fs[i] = candFigs(&front[i])
+	}
+	added := false
+	for _, pl := range failed {
+		b := pl[0]
+		if b.Kind != chain.CIC {
+			continue
+		}
+		for _, n := range e.orders {
+			for _, m := range e.delays {
+				if !e.cicBeaten(b.Factor, n, m) {
+					continue
+				}
+				by := false
+				for _, nm := range e.beaters[[3]int{b.Factor, n, m}] {
+					by = by || nm == [2]int{b.CICOrder, b.CICDelay}
+				}
+				if !by {
+					continue
+				}
+				x := clonePlan(pl)
+				x[0].CICOrder, x[0].CICDelay = n, m
+				if !e.mayJoin(x, fs) {
+					continue
+				}
+				if k := planKey(x); !e.reinstated[k] {
+					e.reinstated[k] = true
+					e.reinstatedCIC[[3]int{b.Factor, n, m}] = true
+					added = true
+				}
+			}
+		}
+	}
+	return added
+}
+
+// mayJoin reports whether plan, feasible and at the favourable end of its
+// range on every stage, is dominated by none of the designed chains fs
+// (whose figures are real): only then can it be on the front.
+func (e *estimator) mayJoin(plan []chain.StagePlan, fs []figs) bool {
+	if e.keysOf(plan) != dropNone {
+		return false
+	}
+	var lo figs
+	for i := range e.keys {
+		k := e.keys[i].stageKey
+		v, ok := e.cache[k]
+		if !ok {
+			v = e.stage(k)
+			e.cache[k] = v
+		}
+		if v.drop != dropNone || v.taps > float64(e.maxTaps) {
+			return false
+		}
+		lo.mpo += v.lo.mpo
+		lo.bits += v.lo.bits
+		lo.lat += v.lo.lat
+	}
+	lo.margin = math.Inf(1)
+	for i := range fs {
+		if dominates(&fs[i], &lo) {
+			return false
+		}
+	}
+	return true
+}
+
+// isReinstated reports whether plan was taken back by reinstate, without
+// allocating.
+func (e *estimator) isReinstated(plan []chain.StagePlan) bool {
+	if len(e.reinstated) == 0 {
+		return false
+	}
+	e.key = appendPlanKey(e.key[:0], plan)
+	return e.reinstated[string(e.key)]
 }
 
 // cicStage is the cached estimate of a first-stage CIC.
@@ -548,7 +650,7 @@ func (e *estimator) skipCIC(st chain.StagePlan) dropCode {
 	if e.cicMargin(st.Factor, st.CICOrder, st.CICDelay) < 0 {
 		return dropCICRejection
 	}
-	if !e.keepBeaten && e.cicBeaten(st.Factor, st.CICOrder, st.CICDelay) {
+	if !e.keepBeaten && e.cicBeaten(st.Factor, st.CICOrder, st.CICDelay) && !e.reinstatedCIC[[3]int{st.Factor, st.CICOrder, st.CICDelay}] {
 		return dropCICBeaten
 	}
 	return dropNone
@@ -598,7 +700,7 @@ func (e *estimator) needTaps(plan []chain.StagePlan) float64 {
 		}
 		need = math.Max(need, v.taps)
 	}
-	if st := plan[0]; st.Kind == chain.CIC && !e.keepBeaten && e.cicBeaten(st.Factor, st.CICOrder, st.CICDelay) {
+	if st := plan[0]; st.Kind == chain.CIC && !e.keepBeaten && e.cicBeaten(st.Factor, st.CICOrder, st.CICDelay) && !e.isReinstated(plan) {
 		return math.Inf(1)
 	}
 	return need

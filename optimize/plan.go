@@ -233,6 +233,18 @@ func search(ctx context.Context, p params, s *Settings, est *estimator, des desi
 	first := est.maxTaps
 	for {
 		need := searchPass(ctx, &p, sp, s, est, t, res)
+		retake := t.retake
+		t.retake = false
+		failed := t.failed
+		t.failed = nil
+		if !res.Partial && !s.Exhaustive && (est.reinstate(failed, res.Front) || retake) {
+			// The pass leant on chains that failed: a front point setting
+			// the band, or a CIC pruning the CICs it beats. Search again
+			// without them; what was designed is kept.
+			debugf("search again: %d reinstated, retake %v, front %d, designed %d", len(est.reinstated), retake, len(res.Front), res.Designed)
+			resetPass(res)
+			continue
+		}
 		if !auto || res.Partial || len(res.Front) > 0 || need > autoMaxTaps {
 			break
 		}
@@ -243,11 +255,7 @@ func search(ctx context.Context, p params, s *Settings, est *estimator, des desi
 			next = 2*next + 1
 		}
 		est.maxTaps = min(next, autoMaxTaps)
-		res.Candidates, res.Feasible, res.FeasibleAll = 0, nil, 0
-		for _, r := range dropNames {
-			delete(res.Dropped, r)
-		}
-		res.Unsettled = 0
+		resetPass(res)
 	}
 	res.MaxTaps = est.maxTaps
 	fs := make([]figs, len(res.Front))
@@ -264,6 +272,15 @@ func search(ctx context.Context, p params, s *Settings, est *estimator, des desi
 		res.Reason += fmt.Sprintf(" No chain met the spec with FIR and half-band stages of at most %d taps, so the limit was raised to %d.", first, est.maxTaps)
 	}
 	return res, nil
+}
+
+// resetPass clears what a search pass counts, before another pass.
+func resetPass(res *Result) {
+	res.Candidates, res.Feasible, res.FeasibleAll = 0, nil, 0
+	for _, r := range dropNames {
+		delete(res.Dropped, r)
+	}
+	res.Unsettled = 0
 }
 
 // autoMaxTaps is the highest tap limit the automatic MaxTaps reaches: the
@@ -302,7 +319,9 @@ func searchPass(ctx context.Context, p *params, sp *space, s *Settings, est *est
 			}
 			return true
 		}
-		if fr.add(f, feasible) {
+		// A chain that failed in an earlier pass cannot stand on the front
+		// that sets the band.
+		if !t.isGone(plan) && fr.add(f, feasible) {
 			frontPlans[feasible] = clonePlan(plan)
 		}
 		feasible++
@@ -382,6 +401,14 @@ func searchPass(ctx context.Context, p *params, sp *space, s *Settings, est *est
 		res.Partial = !ok
 	}
 	res.Front = t.front()
+	// The band was taken near the estimated front, and excluded() assumed
+	// its points stand. When one failed, the band is taken again without
+	// it (the search calls the pass again).
+	for _, id := range fr.id {
+		if t.gone[planKey(frontPlans[id])] {
+			t.retake = true
+		}
+	}
 	return need
 }
 
@@ -402,8 +429,9 @@ const maxRounds = 4
 // unpriced or undesigned because the design cap was reached.
 func (t *designTier) learn(band []scored) (bool, int) {
 	est, memo := t.est, t.memo
-	learnt := map[realKey]figs{}
-	tries := map[realKey]int{}
+	// What earlier passes learnt holds in this one: a stage's real
+	// figures do not depend on the tap limit nor on the band.
+	learnt, tries := t.learnt, t.tries
 	capped := false
 	trim := func(b [][]chain.StagePlan) [][]chain.StagePlan {
 		if n := t.fit(b); n < len(b) {
@@ -486,6 +514,12 @@ func (t *designTier) learn(band []scored) (bool, int) {
 		}
 		if _, ok := memo[planKey(pl)]; !known && !ok {
 			unpriced++
+			for _, k := range est.keys {
+				if _, ok := learnt[k]; !ok && tries[k] >= maxRounds {
+					t.fail(pl) // given up, as if it had failed
+					break
+				}
+			}
 			continue
 		}
 		exact = append(exact, f)
@@ -500,12 +534,16 @@ func (t *designTier) learn(band []scored) (bool, int) {
 
 // planKey is a compact map key for a plan.
 func planKey(plan []chain.StagePlan) string {
-	b := make([]byte, 0, 8*len(plan))
+	return string(appendPlanKey(make([]byte, 0, 8*len(plan)), plan))
+}
+
+// appendPlanKey appends plan's planKey to dst.
+func appendPlanKey(dst []byte, plan []chain.StagePlan) []byte {
 	for _, st := range plan {
-		b = append(b, byte(st.Factor), byte(st.Factor>>8), byte(st.Factor>>16), byte(st.Factor>>24),
+		dst = append(dst, byte(st.Factor), byte(st.Factor>>8), byte(st.Factor>>16), byte(st.Factor>>24),
 			byte(st.Kind), byte(st.Variant), byte(st.CICOrder), byte(st.CICDelay))
 	}
-	return string(b)
+	return dst
 }
 
 func candFigs(c *Candidate) figs {

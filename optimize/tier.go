@@ -33,11 +33,27 @@ type designTier struct {
 
 	maxDesigns int
 	workLeft   float64
+
+	// gone holds the plan keys of the chains that failed to design or
+	// missed the spec, and of the band candidates given up because their
+	// stages would not design: the estimated front is taken without them
+	// (see searchPass). failed lists those not yet handed to
+	// estimator.reinstate.
+	gone   map[string]bool
+	failed [][]chain.StagePlan
+	key    []byte // planKey scratch
+	// learnt holds the real figures of the stages learnt so far, and
+	// tries how often a stage's chains failed (see learn).
+	learnt map[realKey]figs
+	tries  map[realKey]int
+	// retake is set by a search pass whose estimated front held a chain
+	// that failed.
+	retake bool
 }
 
 func newDesignTier(ctx context.Context, jobs int, des designer, est *estimator, s *Settings, res *Result) *designTier {
 	t := &designTier{ctx: ctx, jobs: jobs, des: des, est: est, s: s, res: res,
-		memo: map[string]outcome{}, maxDesigns: s.MaxDesigns, workLeft: s.MaxWork}
+		memo: map[string]outcome{}, gone: map[string]bool{}, learnt: map[realKey]figs{}, tries: map[realKey]int{}, maxDesigns: s.MaxDesigns, workLeft: s.MaxWork}
 	if t.maxDesigns == 0 {
 		t.maxDesigns = defaultMaxDesigns
 	}
@@ -90,9 +106,18 @@ func (t *designTier) designAll(plans [][]chain.StagePlan) bool {
 		t.res.Designed++
 		if outs[i].reason != "" {
 			t.res.Dropped[outs[i].reason]++
+			t.fail(todo[i])
 		}
 	}
 	return all
+}
+
+// fail records a chain that failed.
+func (t *designTier) fail(plan []chain.StagePlan) {
+	if k := planKey(plan); !t.gone[k] {
+		t.gone[k] = true
+		t.failed = append(t.failed, clonePlan(plan))
+	}
 }
 
 // analyzeAll analyses the designed, unanalysed plans among plans.
@@ -127,6 +152,7 @@ func (t *designTier) analyzeAll(plans [][]chain.StagePlan) bool {
 		t.memo[todo[i]] = outs[i]
 		if outs[i].reason != "" {
 			t.res.Dropped[outs[i].reason]++
+			t.fail(ins[i].Plan)
 		}
 	}
 	return all
@@ -235,4 +261,13 @@ func (t *designTier) front() []Candidate {
 		}
 	}
 	return designedFront(designed)
+}
+
+// isGone reports whether plan failed, without allocating.
+func (t *designTier) isGone(plan []chain.StagePlan) bool {
+	if len(t.gone) == 0 {
+		return false
+	}
+	t.key = appendPlanKey(t.key[:0], plan)
+	return t.gone[string(t.key)]
 }
