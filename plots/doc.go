@@ -1,15 +1,18 @@
 // Package plots draws the figures of a stepdown report with gonum/plot:
 // the Pareto front of the candidate chains (Front), the recommended
-// cascade's response with its alias bands shaded (Response), and each
-// stage's share of the chain's cost (Stages).
+// cascade's response with its alias bands shaded (Response), each
+// stage's share of the chain's cost (Stages), and how the recommended
+// chain's figures move as one quantity of the specification is swept
+// (Sweep).
 //
 // The package takes its own plain input types (FrontData, ResponseData,
-// StagesData) so that it depends on no other stepdown package; the command
-// line converts its results into them. Every figure function validates its
-// input and returns an error naming the offending field and value, never a
-// panic, and never draws NaN. Each returns a *Figure: one or more panels
-// plus their key, rendered with Figure.Render (to an io.Writer) or
-// Figure.Save (to a file, atomically via a temporary file and a rename).
+// StagesData, SweepData) so that it depends on no other stepdown package;
+// the command line converts its results into them. Every figure function
+// validates its input and returns an error naming the offending field and
+// value, never a panic, and never draws NaN. Each returns a *Figure: one
+// or more panels plus their key, rendered with Figure.Render (to an
+// io.Writer) or Figure.Save (to a file, atomically via a temporary file and
+// a rename).
 //
 // Conventions:
 //   - Frequencies are in Hz. Linear frequency axes pick Hz, kHz, MHz or GHz
@@ -39,8 +42,10 @@
 //     uses a viridis-like map whose lightness rises monotonically.
 //   - Formats are SVG and PNG (150 dots per inch). The default figure size
 //     is 8 x 5 inches (DefaultWidth, DefaultHeight); a zero width or height
-//     given to Save or Render selects it. SVG text names Liberation Sans
-//     with Arial, its metric twin, as fallback; fonts are not embedded.
+//     given to Save or Render selects it. Sweep figures are meant for
+//     SweepWidth x SweepHeight (8 x 7 inches), room for four panels. SVG
+//     text names Liberation Sans with Arial, its metric twin, as fallback;
+//     fonts are not embedded.
 //   - Output is deterministic: the same input gives the same bytes (no
 //     timestamps, no random identifiers, no map-order effects).
 //

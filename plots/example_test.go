@@ -74,3 +74,29 @@ func ExampleStages() {
 	fmt.Println(bytes.HasPrefix(buf.Bytes(), []byte("\x89PNG")))
 	// Output: true
 }
+
+// An invented sweep of the rejection target whose recommended structure
+// changes at 90 dB.
+func ExampleSweep() {
+	d := plots.SweepData{Name: "rejection", Kind: plots.SweepLevel}
+	for i, v := range []float64{80, 85, 90, 95} {
+		n := "cic6m1r32 > fir2"
+		if v >= 90 {
+			n = "cic5m1r16 > fir4"
+		}
+		m := 18 + 6*float64(i)
+		d.Points = append(d.Points, plots.SweepPoint{Value: v, OK: true, Notation: n,
+			Multiplies: m, MemoryBits: 1900, LatencyS: 2.5e-6,
+			BestMultiplies: m - 1, BestMemoryBits: 1800, BestLatencyS: 2e-6})
+	}
+	fig, err := plots.Sweep(d)
+	if err != nil {
+		log.Fatal(err)
+	}
+	var buf bytes.Buffer
+	if err := fig.Render(&buf, "png", plots.SweepWidth, plots.SweepHeight); err != nil {
+		log.Fatal(err)
+	}
+	fmt.Println(bytes.HasPrefix(buf.Bytes(), []byte("\x89PNG")))
+	// Output: true
+}

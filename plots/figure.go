@@ -46,6 +46,9 @@ type Figure struct {
 	panels   []panel
 	colorKey *plot.Plot   // drawn right of panels[0], aligned with its data area
 	side     *plot.Legend // drawn in a column right of the panels
+	// custom, when set, draws the whole figure in place of the stacked
+	// layout, for a figure (Sweep) whose labels and key sit outside it.
+	custom func(c draw.Canvas)
 }
 
 type panel struct {
@@ -70,6 +73,10 @@ func (f *Figure) Plots() []*plot.Plot {
 
 // Draw draws the figure onto c.
 func (f *Figure) Draw(c draw.Canvas) {
+	if f.custom != nil {
+		f.custom(c)
+		return
+	}
 	c.SetColor(color.White)
 	c.Fill(c.Rectangle.Path())
 

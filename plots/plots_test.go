@@ -72,6 +72,18 @@ func figures(t *testing.T) map[string]func() (*Figure, error) {
 		"stages/no-multiplies": func() (*Figure, error) {
 			return Stages(StagesData{Names: []string{"CIC5 R8", ""}, Multiplies: []float64{0, 0}, MemoryBits: []float64{800, 600}})
 		},
+		"sweep": func() (*Figure, error) { return Sweep(demoSweep()) },
+		"sweep/gaps": func() (*Figure, error) {
+			d := demoSweep()
+			d.Points[1].OK, d.Points[3].OK = false, false
+			return Sweep(d)
+		},
+		"sweep/clock": func() (*Figure, error) {
+			d := demoSweep()
+			d.Kind, d.Name, d.Clock = SweepFrequency, "clock", true
+			return Sweep(d)
+		},
+		"sweep/one": func() (*Figure, error) { d := demoSweep(); d.Points = d.Points[:1]; return Sweep(d) },
 	}
 }
 

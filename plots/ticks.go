@@ -44,6 +44,20 @@ func bitsUnit(maxBits float64) unit {
 	return unit{1, "bits"}
 }
 
+// timeUnit picks s, ms, µs or ns so that maxS shows as at most 3 digits
+// before the point.
+func timeUnit(maxS float64) unit {
+	switch {
+	case maxS >= 1:
+		return unit{1, "s"}
+	case maxS >= 1e-3:
+		return unit{1e-3, "ms"}
+	case maxS >= 1e-6:
+		return unit{1e-6, "µs"}
+	}
+	return unit{1e-9, "ns"}
+}
+
 // scaledTicks places about seven (or n) labelled ticks at round values of a
 // display unit (1, 2, 2.5 or 5 times a power of ten), with minor ticks
 // between: gonum's default of three labels is too sparse for reading

@@ -74,5 +74,6 @@
 // CIC order and delay, FIR variant; not the tap counts). A row is marked
 // "changed" when its recommended notation differs from that of the previous
 // row that has a chain; the figure marks those values with a vertical line
-// and the new notation.
+// and the new notation. The figure itself is plots.Sweep: this package only
+// converts its results into plots.SweepData (NewFigureData).
 package sweep

@@ -273,10 +273,10 @@ func TestFigure(t *testing.T) {
 	}(), "cic5m1r8 &gt; fir8") {
 		t.Error("svg lacks the label of the structure change")
 	}
-	if err := Render(&bytes.Buffer{}, FigureData{Key: v.Key, Pts: []FigurePoint{{Value: 1}}}, "svg"); err == nil {
+	if err := Render(&bytes.Buffer{}, FigureData{Name: v.Key.Name, Points: []FigurePoint{{Value: 1}}}, "svg"); err == nil {
 		t.Error("no error for a figure without chains")
 	}
-	if err := Render(&bytes.Buffer{}, FigureData{Key: v.Key, Pts: []FigurePoint{{Value: 1, OK: true, Multiplies: math.NaN()}}}, "svg"); err == nil {
+	if err := Render(&bytes.Buffer{}, FigureData{Name: v.Key.Name, Points: []FigurePoint{{Value: 1, OK: true, Multiplies: math.NaN()}}}, "svg"); err == nil {
 		t.Error("no error for NaN")
 	}
 }
