@@ -118,24 +118,27 @@ func (j *job) human() io.Writer {
 	return j.c.App.Writer
 }
 
+// checkSearchFlags checks the search flags plan and sweep share: --max-stages,
+// --jobs and --timeout.
+func checkSearchFlags(c *cli.Context) error {
+	if c.IsSet("max-stages") {
+		if n := c.Int("max-stages"); n < 1 || n > specfile.MaxStages {
+			return usagef("--max-stages %d: must lie in [1, %d]", n, specfile.MaxStages)
+		}
+	}
+	if n := c.Int("jobs"); n < 0 || n > 1024 {
+		return usagef("--jobs %d: must lie in [1, 1024] (0 or absent: the number of CPUs)", n)
+	}
+	if c.IsSet("timeout") && c.Duration("timeout") <= 0 {
+		return usagef("--timeout %v: must be above zero", c.Duration("timeout"))
+	}
+	return nil
+}
+
 func runPlan(c *cli.Context) error {
 	// Flag checks come before any file is touched.
-	settingsErr := func() error {
-		if c.IsSet("max-stages") {
-			if n := c.Int("max-stages"); n < 1 || n > specfile.MaxStages {
-				return usagef("--max-stages %d: must lie in [1, %d]", n, specfile.MaxStages)
-			}
-		}
-		if n := c.Int("jobs"); n < 0 || n > 1024 {
-			return usagef("--jobs %d: must lie in [1, 1024] (0 or absent: the number of CPUs)", n)
-		}
-		if c.IsSet("timeout") && c.Duration("timeout") <= 0 {
-			return usagef("--timeout %v: must be above zero", c.Duration("timeout"))
-		}
-		return nil
-	}()
-	if settingsErr != nil {
-		return settingsErr
+	if err := checkSearchFlags(c); err != nil {
+		return err
 	}
 	j, err := newJob(c)
 	if err != nil {

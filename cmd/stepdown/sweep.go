@@ -51,16 +51,8 @@ func runSweep(c *cli.Context) error {
 	if err != nil {
 		return usageError{err}
 	}
-	if c.IsSet("max-stages") {
-		if n := c.Int("max-stages"); n < 1 || n > specfile.MaxStages {
-			return usagef("--max-stages %d: must lie in [1, %d]", n, specfile.MaxStages)
-		}
-	}
-	if n := c.Int("jobs"); n < 0 || n > 1024 {
-		return usagef("--jobs %d: must lie in [1, 1024] (0 or absent: the number of CPUs)", n)
-	}
-	if c.IsSet("timeout") && c.Duration("timeout") <= 0 {
-		return usagef("--timeout %v: must be above zero", c.Duration("timeout"))
+	if err := checkSearchFlags(c); err != nil {
+		return err
 	}
 	base, source, err := loadSpec(c)
 	if err != nil {
