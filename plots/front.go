@@ -118,7 +118,7 @@ func Front(d FrontData) (*Figure, error) {
 		}
 		s.GlyphStyle = draw.GlyphStyle{Color: color.RGBA{0xA8, 0xA8, 0xA8, 0xff}, Radius: vg.Points(1.6), Shape: draw.CircleGlyph{}}
 		p.Add(s)
-		leg.Add(fmt.Sprintf("feasible candidates (%d)", len(d.Candidates)), s)
+		leg.Add(fmt.Sprintf("feasible candidates, estimated (%d)", len(d.Candidates)), s)
 	}
 
 	order := make([]int, len(d.Front))
@@ -193,6 +193,9 @@ func Front(d FrontData) (*Figure, error) {
 		rec = &callout{x: r.Multiplies, y: r.MemoryBits, text: "Recommended: " + txt, style: textStyle(10, true)}
 		rec.style.Color = color.RGBA{0xA0, 0x40, 0x00, 0xff} // a darker vermilion for text contrast
 		p.Add(rec)
+		// The front's points again, above the label's box, so the label
+		// never hides a chain of the front.
+		p.Add(dots, rings)
 		leg.Add("recommended chain", legendRing{})
 	}
 
