@@ -94,35 +94,55 @@ func droop(c *chain.Chain, rates []float64, idx []int) func(float64) float64 {
 
 // Result is everything the package reports on one chain.
 type Result struct {
-	Widths  *Widths
-	BitTrue BitTrueResult
+	Widths *Widths
+	// Quantised is the cascade as it will be built, measured by
+	// chain.Analyze on QuantisedChain: alias rejection and passband ripple of
+	// the rounded taps. It needs no bit-true run.
+	Quantised chain.Analysis
+	BitTrue   BitTrueResult
 }
 
-// Evaluate is the one call for a designed chain: FromChain, Plan and BitTrue,
-// with the alias test tone (unless sig.AliasHz is set) at the worst alias
-// chain.Analyze finds on QuantisedChain. sig is the test signal (its zero
-// value is the default).
-func Evaluate(spec chain.Spec, c *chain.Chain, s Settings, sig Signal) (*Result, error) {
+// PlanChain plans the word lengths of a designed chain (FromChain, then
+// Plan) and measures the chain as it will be built: chain.Analyze on the
+// rounded taps (QuantisedChain). It is the one call that judges a chain on
+// its quantised coefficients; the search and the report both use it.
+func PlanChain(spec chain.Spec, c *chain.Chain, s Settings) (*Widths, chain.Analysis, error) {
 	cas, w, err := FromChain(spec, c)
 	if err != nil {
-		return nil, err
+		return nil, chain.Analysis{}, err
 	}
 	ws, err := Plan(cas, w, s)
+	if err != nil {
+		return nil, chain.Analysis{}, err
+	}
+	a, err := chain.Analyze(QuantisedChain(c, ws), spec)
+	if err != nil {
+		return nil, chain.Analysis{}, err
+	}
+	return ws, a, nil
+}
+
+// Evaluate is the one call for a designed chain: PlanChain, then BitTrue
+// with the alias test tone (unless sig.AliasHz is set) at the quantised
+// chain's worst alias. sig is the test signal (its zero value is the
+// default).
+func Evaluate(spec chain.Spec, c *chain.Chain, s Settings, sig Signal) (*Result, error) {
+	ws, qa, err := PlanChain(spec, c, s)
 	if err != nil {
 		return nil, err
 	}
 	if sig.AliasHz == 0 {
-		a, err := chain.Analyze(QuantisedChain(c, ws), spec)
-		if err != nil {
-			return nil, err
-		}
-		sig.AliasHz = a.WorstAliasHz
+		sig.AliasHz = qa.WorstAliasHz
+	}
+	cas, _, err := FromChain(spec, c)
+	if err != nil {
+		return nil, err
 	}
 	bt, err := BitTrue(cas, ws, sig)
 	if err != nil {
 		return nil, err
 	}
-	return &Result{Widths: ws, BitTrue: bt}, nil
+	return &Result{Widths: ws, Quantised: qa, BitTrue: bt}, nil
 }
 
 // QuantisedChain returns a copy of c whose FIR and half-band taps are the

@@ -47,7 +47,8 @@ type ChainReport struct {
 	BitTrueAliasHz          float64 `json:"bittrue_alias_hz"`
 	BitTrueAliasRejectionDB float64 `json:"bittrue_alias_rejection_db"`
 	AliasResponseDB         float64 `json:"quantised_alias_response_db"`  // at bittrue_alias_hz
-	QuantisedRejectionDB    float64 `json:"quantised_alias_rejection_db"` // worst over the alias bands
+	QuantisedRejectionDB    float64 `json:"quantised_alias_rejection_db"` // worst over the alias bands, rounded taps
+	QuantisedRippleDB       float64 `json:"quantised_passband_ripple_db"` // peak-to-peak over [0, fp], rounded taps
 	BitTrueAliasValid       bool    `json:"bittrue_alias_valid"`
 	TestSignal              string  `json:"bittrue_test_signal"`
 	FixedMemoryBits         int     `json:"fixed_memory_bits"`
@@ -68,7 +69,8 @@ func (r *Result) Report(withHardware bool) ChainReport {
 		BitTrueSNRDB: bt.SNRDB, BitTrueENOB: bt.ENOB, BitTrueMatchDB: bt.MatchDB,
 		BitTrueOffsetLSB: bt.OutputOffset, InputSNRDB: bt.InputSNRDB,
 		BitTrueAliasHz: bt.AliasHz, BitTrueAliasRejectionDB: bt.AliasRejectionDB,
-		AliasResponseDB: bt.AliasResponseDB, QuantisedRejectionDB: bt.WorstAliasResponseDB,
+		AliasResponseDB: bt.AliasResponseDB, QuantisedRejectionDB: r.Quantised.AliasRejectionDB,
+		QuantisedRippleDB: r.Quantised.PassbandRippleDB,
 		BitTrueAliasValid: bt.AliasValid,
 		TestSignal: fmt.Sprintf("%s; white Gaussian noise %s dBFS RMS; %d output samples",
 			strings.Join(sig, ", "), fmtG(bt.NoiseDBFS), bt.Samples),
