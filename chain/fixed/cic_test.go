@@ -1,6 +1,9 @@
 package fixed
 
-import "testing"
+import (
+	"math"
+	"testing"
+)
 
 func TestPruneCICHogenauer(t *testing.T) {
 	// Hogenauer (1981), pruning example: N = 4, R = 25, M = 1, 16-bit input
@@ -48,6 +51,48 @@ func TestCICWidthTextbook(t *testing.T) {
 	for j, d := range p.Dropped {
 		if d != 0 {
 			t.Errorf("full-width output: register %d drops %d bits, want 0", j+1, d)
+		}
+	}
+}
+
+func TestCICL1NormsBruteForce(t *testing.T) {
+	// The L1 norms of the register-to-output responses against a brute-force
+	// convolution of Hogenauer's (1981, eq. 9a) H_j(z): integrator j sees
+	// (boxcar of RM)^(N-j+1) times (1 - z^-RM)^(j-1); comb j sees
+	// (1 - z^-M)^(2N+1-j), whose L1 norm is 2^(2N+1-j).
+	for _, tc := range []struct{ n, rm int }{{1, 2}, {3, 8}, {4, 25}, {5, 6}, {7, 3}, {2, 64}} {
+		got := cicL1Norms(tc.n, tc.rm)
+		for j := 1; j <= tc.n; j++ {
+			h := []float64{1}
+			for b := 0; b < tc.n-j+1; b++ {
+				g := make([]float64, len(h)+tc.rm-1)
+				for k, v := range h {
+					for i := 0; i < tc.rm; i++ {
+						g[k+i] += v
+					}
+				}
+				h = g
+			}
+			for d := 0; d < j-1; d++ {
+				g := make([]float64, len(h)+tc.rm)
+				for k, v := range h {
+					g[k] += v
+					g[k+tc.rm] -= v
+				}
+				h = g
+			}
+			want := 0.0
+			for _, v := range h {
+				want += math.Abs(v)
+			}
+			if got[j-1] != want {
+				t.Errorf("N=%d RM=%d integrator %d: L1 %g, brute force %g", tc.n, tc.rm, j, got[j-1], want)
+			}
+		}
+		for j := tc.n + 1; j <= 2*tc.n; j++ {
+			if want := math.Ldexp(1, 2*tc.n+1-j); got[j-1] != want {
+				t.Errorf("N=%d comb %d: L1 %g, want %g", tc.n, j-tc.n, got[j-1], want)
+			}
 		}
 	}
 }

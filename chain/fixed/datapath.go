@@ -79,7 +79,8 @@ type StageWidths struct {
 	FloatMeets      bool
 
 	// AccumulatorBits is the worst-case width of the sum of products (FIR) or
-	// the full register width Bin + ceil(N log2(RM)) (CIC).
+	// the full register width Bin + ceil(N log2(RM)) + GuardBits (CIC; see
+	// PruneCIC).
 	AccumulatorBits int
 	// CIC: Hogenauer's register plan.
 	Pruning *CICPruning
@@ -195,6 +196,9 @@ func planCIC(st Stage, rate float64, in, ob int) (StageWidths, error) {
 	}
 	sw := StageWidths{CIC: true, R: st.R, InputBits: in, AccumulatorBits: p.FullBits,
 		Pruning: &p, OutputBits: p.OutputBits, OutputShift: p.Dropped[2*p.N], Gain: p.Gain(), MeetsBands: true, FloatMeets: true}
+	if p.GuardBits > 0 {
+		sw.Points = append(sw.Points, fmt.Sprintf("guard: %d bit(s) above Hogenauer's %d-bit width, so that the truncations cannot wrap the output", p.GuardBits, p.FullBits-p.GuardBits))
+	}
 	for j := 0; j < 2*p.N; j++ {
 		kind, idx := "integrator", j+1
 		if j >= p.N {

@@ -39,8 +39,19 @@
 //   - CIC: Hogenauer's (1981) pruning; register j truncates (drops, floor)
 //     Dropped[j] LSBs at its input and wraps modulo its width, which is exact
 //     for the output because every register keeps the same MSB; the output
-//     keeps the top OutputBits of the Bin + ceil(N log2 RM)-bit result, so its
-//     gain is (RM)^N / 2^ceil(N log2 RM) <= 1 (StageWidths.Gain);
+//     keeps the top OutputBits of the FullBits-bit result, so its gain is
+//     (RM)^N / 2^(FullBits - Bin) <= 1 (StageWidths.Gain);
+//   - CIC, no wrap: FullBits is Bin + ceil(N log2 RM) (Hogenauer's Bmax + 1)
+//     plus GuardBits, chosen so that no input within the input word can wrap
+//     the output. Without truncations |output| <= (RM)^N 2^(Bin-1); each
+//     floor at register j moves it by less than its largest error (2^B_j less
+//     the LSB of the value it receives) times the L1 norm of the impulse
+//     response from register j to the output, and the sum of those terms
+//     (CICPruning.TruncationBound) must fit in 2^(FullBits-1) - (RM)^N
+//     2^(Bin-1). When (RM)^N is a power of two that room is zero, so a pruned
+//     CIC gets one guard bit and its gain halves (1/2 instead of 1); the gain
+//     correction below can restore it. PruneCIC tries 0, 1 and 2 guard bits
+//     and otherwise prunes less (very narrow output words);
 //   - FIR and half-band: exact products and sum in an accumulator of
 //     Bin + ceil(log2 sum|h_int|) + 1 bits, enough for any input (worst case);
 //     the output is rounded half up at OutputShift and saturated;

@@ -84,11 +84,13 @@ func ExamplePlan() {
 	for i, s := range w.Stages {
 		fmt.Printf("stage %d: in %d, coef %d, acc %d, out %d\n", i+1, s.InputBits, s.Coefficients.Bits, s.AccumulatorBits, s.OutputBits)
 	}
-	fmt.Println("CIC registers", w.Stages[0].Pruning.RegisterBits)
+	// (RM)^N = 8^4 is a power of two: the pruned registers need one guard
+	// bit above Hogenauer's 26 so that their truncations cannot wrap.
+	fmt.Println("CIC registers", w.Stages[0].Pruning.RegisterBits, "guard", w.Stages[0].Pruning.GuardBits)
 	// Output:
-	// stage 1: in 14, coef 0, acc 26, out 18
+	// stage 1: in 14, coef 0, acc 27, out 18
 	// stage 2: in 18, coef 3, acc 21, out 18
-	// CIC registers [26 26 25 24 23 22 21 20]
+	// CIC registers [27 27 25 24 23 22 21 20] guard 1
 }
 
 func ExampleBitTrue() {

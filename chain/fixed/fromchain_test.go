@@ -2,6 +2,7 @@ package fixed
 
 import (
 	"encoding/json"
+	"fmt"
 	"math"
 	"strings"
 	"testing"
@@ -184,7 +185,11 @@ func TestReportFields(t *testing.T) {
 func TestPruningMatchesChainPackage(t *testing.T) {
 	// Two implementations of Hogenauer's (1981) pruning must agree: this
 	// package's (his closed-form impulse responses) and the chain package's
-	// (convolutions), which fills chain.CICStage.RegisterBits.
+	// (convolutions), which fills chain.CICStage.RegisterBits. They agree on
+	// his rule at his width; PruneCIC then widens the plan where the
+	// truncations could wrap the output (TestCICNoWrap), which the chain
+	// package does not do: those cases are counted, not compared.
+	widened := 0
 	for _, n := range []int{1, 2, 3, 4, 5, 6} {
 		for _, r := range []int{2, 5, 8, 25, 64, 100} {
 			for _, m := range []int{1, 2} {
@@ -194,16 +199,22 @@ func TestPruningMatchesChainPackage(t *testing.T) {
 						t.Fatal(err)
 					}
 					cs := chain.NewCICStage(n, m, r, bits[0], bits[1])
+					full := chain.CICRegisterWidth(n, m, r, bits[0])
+					d, _ := hogenauerDrops(n, r*m, full, bits[1])
 					for j, w := range cs.RegisterBits {
-						if p.RegisterBits[j] != w {
-							t.Fatalf("N=%d R=%d M=%d %v: register %d: %d bits here, %d in chain", n, r, m, bits, j+1, p.RegisterBits[j], w)
+						if full-d[j] != w {
+							t.Fatalf("N=%d R=%d M=%d %v: register %d: %d bits here, %d in chain", n, r, m, bits, j+1, full-d[j], w)
 						}
 					}
-					if p.OutputBits != cs.OutputBits {
-						t.Fatalf("N=%d R=%d M=%d %v: output %d bits here, %d in chain", n, r, m, bits, p.OutputBits, cs.OutputBits)
+					if min(full, bits[1]) != cs.OutputBits {
+						t.Fatalf("N=%d R=%d M=%d %v: output %d bits here, %d in chain", n, r, m, bits, min(full, bits[1]), cs.OutputBits)
+					}
+					if p.FullBits != full || fmt.Sprint(p.RegisterBits) != fmt.Sprint(cs.RegisterBits) {
+						widened++
 					}
 				}
 			}
 		}
 	}
+	t.Logf("%d of 216 CICs widened against the wrap", widened)
 }
