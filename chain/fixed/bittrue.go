@@ -4,6 +4,7 @@ import (
 	"fmt"
 	"math"
 	"math/rand/v2"
+	"strings"
 )
 
 // Tone is one sinusoid of a test signal.
@@ -14,7 +15,11 @@ type Tone struct {
 
 // Signal is the bit-true run's test signal. The zero value is the default.
 type Signal struct {
-	// Tones are the wanted signals; nil means one tone at 0.4 fp at -1 dBFS.
+	// Tones are the wanted signals; nil means one tone at 0.4 fp at -1 dBFS,
+	// or lower so that the tone plus four times the noise RMS stays within
+	// the input word's largest code (half that code when the word is too
+	// narrow for a tone of two LSBs so; the SNR is then marked, see
+	// BitTrueResult.SNRValid).
 	// Each frequency is moved to the nearest whole number of cycles in the
 	// measurement window at the output rate (coherent sampling).
 	Tones []Tone
@@ -22,7 +27,8 @@ type Signal struct {
 	// relative to full scale; zero means one input LSB (2^-(InputBits-1)),
 	// math.Inf(-1) means none. Both the float and the integer chain see it.
 	NoiseDBFS float64
-	// AliasLevel is the level of the alias test tone in dBFS; zero means -1.
+	// AliasLevel is the level of the alias test tone in dBFS; zero means the
+	// default tone level (see Tones).
 	AliasLevel float64
 	// AliasHz is the input frequency of the alias test tone; zero means the
 	// worst alias of the quantised cascade, searched here. (Evaluate passes
@@ -61,6 +67,14 @@ type BitTrueResult struct {
 	// quantisation error); for a full-scale sine it is 6.02 B + 1.76 dB.
 	InputSNRDB float64
 	Clipped    int // input samples saturated by the ADC word
+	// SNRValid says whether SNRDB (and ENOB) is meaningful; SNRNote says why
+	// not, "" when it is: the input word cannot carry the default test tone
+	// plus its noise (then run at half the largest code), the input clipped
+	// more than one sample in a thousand, or the DC offset is over ten times
+	// the RMS of the error the SNR measures (the SNR leaves DC out). The
+	// figures stay finite either way.
+	SNRValid bool
+	SNRNote  string
 
 	// The alias test: one tone at AliasHz (the worst alias of the quantised
 	// cascade, moved to a whole number of output cycles), measured at
@@ -133,22 +147,32 @@ func BitTrue(c Cascade, w *Widths, sig Signal) (BitTrueResult, error) {
 	if sig.Seed == 0 {
 		sig.Seed = 1
 	}
-	if sig.AliasLevel == 0 {
-		sig.AliasLevel = -1
-	}
-	if sig.Tones == nil {
-		sig.Tones = []Tone{{Freq: 0.4 * fp, Level: -1}}
-	}
 	noise := math.Ldexp(1, -(w.InputBits - 1))
 	if sig.NoiseDBFS != 0 {
 		noise = math.Pow(10, sig.NoiseDBFS/20)
 	}
-	amp := 0.0
+	// The default levels: -1 dBFS, lowered so that the tone plus four times
+	// the noise RMS stays within the largest code; a word too narrow to
+	// carry a tone of two LSBs so is run at half the largest code, and its
+	// SNR is marked as not meaningful.
+	lsb := math.Ldexp(1, -(w.InputBits - 1))
+	level, fits := -1.0, true
+	if room := 1 - lsb - 4*noise; room < 2*lsb {
+		level, fits = 20*math.Log10((1-lsb)/2), false
+	} else {
+		level = math.Min(level, 20*math.Log10(room))
+	}
+	if sig.AliasLevel == 0 {
+		sig.AliasLevel = level
+	}
+	defaultTones := sig.Tones == nil
+	if defaultTones {
+		sig.Tones = []Tone{{Freq: 0.4 * fp, Level: level}}
+	}
 	for i, t := range sig.Tones {
 		if !(t.Level <= 0) || !(t.Freq >= 0 && t.Freq < fk/2) {
 			return BitTrueResult{}, fmt.Errorf("fixed: signal tone %d at %g Hz, %g dBFS: the level must be <= 0 dBFS and the frequency in [0, %g Hz)", i, t.Freq, t.Level, fk/2)
 		}
-		amp += math.Pow(10, t.Level/20)
 	}
 	if !(sig.AliasHz >= 0 && sig.AliasHz <= c.InputRate/2) {
 		return BitTrueResult{}, fmt.Errorf("fixed: signal AliasHz = %g: must lie in [0, %g Hz] (zero: search)", sig.AliasHz, c.InputRate/2)
@@ -211,6 +235,8 @@ func BitTrue(c Cascade, w *Widths, sig Signal) (BitTrueResult, error) {
 	}
 	res.SNRDB = ratioDB(power(ref), power(e))
 	res.ENOB = (res.SNRDB - 1.76) / 6.02
+	res.SNRNote = snrNote(w.InputBits, defaultTones && !fits, clipped, nin, res.OutputOffset, math.Ldexp(math.Sqrt(power(e)), w.OutputBits-1))
+	res.SNRValid = res.SNRNote == ""
 
 	// Run 2: a tone at the worst alias of the quantised cascade.
 	q := quantisedCascade(c, w)
@@ -257,6 +283,24 @@ func BitTrue(c Cascade, w *Widths, sig Signal) (BitTrueResult, error) {
 		}
 	}
 	return res, nil
+}
+
+// snrNote says why the bit-true SNR is not meaningful, or "" when it is: the
+// input word cannot carry the default test signal, the input clipped more
+// than one sample in a thousand, or the DC offset (offset, in output LSBs)
+// is over ten times the RMS of the error the SNR measures (rms, output LSBs).
+func snrNote(inBits int, tooNarrow bool, clipped, samples int, offset, rms float64) string {
+	var why []string
+	if tooNarrow {
+		why = append(why, fmt.Sprintf("a %d-bit input word cannot carry the test tone plus one LSB RMS of noise within full scale", inBits))
+	}
+	if clipped*1000 > samples {
+		why = append(why, fmt.Sprintf("the test signal clipped %d of %d input samples at the %d-bit input word", clipped, samples, inBits))
+	}
+	if math.Abs(offset) > 10*rms {
+		why = append(why, fmt.Sprintf("the DC offset of %.4g output LSBs is over ten times the error's RMS (%.4g LSBs), and the SNR leaves DC out", offset, rms))
+	}
+	return strings.Join(why, "; ")
 }
 
 // posDB returns -20 log10(v), bounded to [-300, 300] so that no figure is infinite.

@@ -277,3 +277,48 @@ func TestBitTrueAliasProperty(t *testing.T) {
 		t.Errorf("only %d of 8 random chains had the alias above the noise", valid)
 	}
 }
+
+func TestBitTrueInputWords(t *testing.T) {
+	// Issue 11: the default test signal is scaled to the input word, and an
+	// SNR that is not meaningful says why instead of passing for a figure.
+	// A b-bit word's largest code is 1 - 2^-(b-1) of full scale and the
+	// default noise one LSB RMS, so a tone plus four times the noise fits
+	// for b >= 4 (arithmetic), not for 2 and 3 bits.
+	c := testCascade()
+	for _, tc := range []struct {
+		bits  int
+		valid bool
+		level float64 // default tone level, dBFS (arithmetic: min(-1, 20 log10(1 - 5 LSB)))
+	}{
+		{2, false, 20 * math.Log10(0.25)},
+		{3, false, 20 * math.Log10(0.375)},
+		{4, true, 20 * math.Log10(1-5.0/8)},
+		{8, true, -1},
+		{16, true, -1},
+	} {
+		w, err := Plan(c, Words{InputBits: tc.bits, OutputBits: 24}, Settings{})
+		if err != nil {
+			t.Fatal(err)
+		}
+		r, err := BitTrue(c, w, Signal{})
+		if err != nil {
+			t.Fatal(err)
+		}
+		t.Logf("%2d bits: tone %.2f dBFS, SNR %.2f dB (valid %v: %q), offset %.1f LSB, clipped %d of %d",
+			tc.bits, r.Tones[0].Level, r.SNRDB, r.SNRValid, r.SNRNote, r.OutputOffset, r.Clipped, r.InputSamples)
+		if r.SNRValid != tc.valid || (r.SNRNote == "") != tc.valid {
+			t.Errorf("%d bits: SNR valid %v, note %q; want valid %v", tc.bits, r.SNRValid, r.SNRNote, tc.valid)
+		}
+		if math.Abs(r.Tones[0].Level-tc.level) > 1e-9 {
+			t.Errorf("%d bits: tone at %.3f dBFS, want %.3f", tc.bits, r.Tones[0].Level, tc.level)
+		}
+		if tc.valid && r.Clipped*1000 > r.InputSamples {
+			t.Errorf("%d bits: %d of %d input samples clipped", tc.bits, r.Clipped, r.InputSamples)
+		}
+		for _, v := range []float64{r.SNRDB, r.ENOB, r.MatchDB, r.OutputOffset, r.InputSNRDB, r.AliasRejectionDB, r.AliasNoiseDB} {
+			if math.IsNaN(v) || math.IsInf(v, 0) {
+				t.Errorf("%d bits: a figure is %g: %+v", tc.bits, v, r)
+			}
+		}
+	}
+}

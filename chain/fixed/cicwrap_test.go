@@ -95,7 +95,9 @@ func adversarial(rng *rand.Rand, n, rm, bits int) [][]int64 {
 
 func TestCICNoWrap(t *testing.T) {
 	// The no-wrap argument of PruneCIC: the largest |output| is Hogenauer's
-	// (1981, eq. 11) (RM)^N 2^(Bin-1) plus, per register j, its worst
+	// (E. B. Hogenauer (1981), "An economical class of digital filters for
+	// decimation and interpolation", IEEE Trans. ASSP 29(2), eq. 11)
+	// (RM)^N 2^(Bin-1) plus, per register j, its worst
 	// truncation error times sum_k |h_j(k)|; FullBits leaves room for it.
 	// Adversarial inputs run through the bit-true integer model must stay
 	// within that band around the exact convolution (brute force), on CICs

@@ -109,7 +109,10 @@ type Widths struct {
 	InputBits, OutputBits int
 	Stages                []StageWidths
 	MemoryBits            int // data (doubled for Complex) plus coefficients
-	HardwareMultipliers   int // summed over stages; 0 without a clock or native size
+	// DCGain is the cascade's gain at 0 Hz from input full scale to output
+	// full scale: the product of the stages' Gain.
+	DCGain              float64
+	HardwareMultipliers int // summed over stages; 0 without a clock or native size
 }
 
 // Plan chooses every word width of the cascade: quantised coefficients per
@@ -156,7 +159,7 @@ func Plan(c Cascade, w Words, s Settings) (*Widths, error) {
 	if (s.NativeA == 0) != (s.NativeB == 0) || s.NativeA < 0 || s.NativeB < 0 {
 		return nil, fmt.Errorf("fixed: native multiplier %d x %d: give both sizes (> 0) or neither", s.NativeA, s.NativeB)
 	}
-	out := &Widths{InputBits: w.InputBits, OutputBits: w.OutputBits}
+	out := &Widths{InputBits: w.InputBits, OutputBits: w.OutputBits, DCGain: 1}
 	rate := c.InputRate
 	in := w.InputBits
 	for i, st := range c.Stages {
@@ -184,6 +187,7 @@ func Plan(c Cascade, w Words, s Settings) (*Widths, error) {
 		}
 		out.MemoryBits += data + sw.CoefMemoryBits
 		out.HardwareMultipliers += sw.HardwareMultipliers
+		out.DCGain *= sw.Gain
 		in = sw.OutputBits
 	}
 	return out, nil

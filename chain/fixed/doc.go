@@ -69,6 +69,22 @@
 // response, with a flag saying whether the quantisation noise in that bin is
 // at least 20 dB below the alias.
 //
+// The default test signal is scaled to the input word: the tone is at
+// -1 dBFS or lower, so that the tone plus four times the noise RMS (one LSB)
+// stays within the largest code. A word too narrow for that (2 and 3 bits)
+// is run at half its largest code and its SNR is marked: SNRValid is false
+// and SNRNote says why, as it does when the input clipped more than one
+// sample in a thousand or the DC offset is over ten times the RMS of the
+// error the SNR measures. Every figure stays finite.
+//
+// Evaluate returns an error only when the chain cannot be planned. When the
+// bit-true run cannot be made (a CIC register over 63 bits), the Result
+// still carries the widths and the quantised chain's figures, and
+// Result.BitTrueErr says why; Result.Report then gives the quantised
+// figures, the DC gains and every stage's widths, with the bit-true figures
+// zero and marked (bittrue_error set, bittrue_snr_valid and
+// bittrue_alias_valid false, bittrue_snr_note saying why).
+//
 // # Cost
 //
 // Per stage: the multiplier size a x b bits (data x coefficient, data + 1 bits

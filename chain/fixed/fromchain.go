@@ -99,7 +99,12 @@ type Result struct {
 	// chain.Analyze on QuantisedChain: alias rejection and passband ripple of
 	// the rounded taps. It needs no bit-true run.
 	Quantised chain.Analysis
-	BitTrue   BitTrueResult
+	// BitTrue is the bit-true run; it is the zero value when BitTrueErr is
+	// set.
+	BitTrue BitTrueResult
+	// BitTrueErr says why the bit-true run could not be made (e.g. a CIC
+	// register over 63 bits); Widths and Quantised are valid all the same.
+	BitTrueErr error
 }
 
 // PlanChain plans the word lengths of a designed chain (FromChain, then
@@ -107,42 +112,47 @@ type Result struct {
 // rounded taps (QuantisedChain). It is the one call that judges a chain on
 // its quantised coefficients; the search and the report both use it.
 func PlanChain(spec chain.Spec, c *chain.Chain, s Settings) (*Widths, chain.Analysis, error) {
+	_, ws, a, err := planChain(spec, c, s)
+	return ws, a, err
+}
+
+// planChain is PlanChain that also returns the cascade it planned.
+func planChain(spec chain.Spec, c *chain.Chain, s Settings) (Cascade, *Widths, chain.Analysis, error) {
 	cas, w, err := FromChain(spec, c)
 	if err != nil {
-		return nil, chain.Analysis{}, err
+		return Cascade{}, nil, chain.Analysis{}, err
 	}
 	ws, err := Plan(cas, w, s)
 	if err != nil {
-		return nil, chain.Analysis{}, err
+		return Cascade{}, nil, chain.Analysis{}, err
 	}
 	a, err := chain.Analyze(QuantisedChain(c, ws), spec)
 	if err != nil {
-		return nil, chain.Analysis{}, err
+		return Cascade{}, nil, chain.Analysis{}, err
 	}
-	return ws, a, nil
+	return cas, ws, a, nil
 }
 
 // Evaluate is the one call for a designed chain: PlanChain, then BitTrue
 // with the alias test tone (unless sig.AliasHz is set) at the quantised
 // chain's worst alias. sig is the test signal (its zero value is the
-// default).
+// default). It returns an error only when PlanChain does; when the bit-true
+// run cannot be made, the Result carries the widths and the quantised
+// figures and BitTrueErr says why.
 func Evaluate(spec chain.Spec, c *chain.Chain, s Settings, sig Signal) (*Result, error) {
-	ws, qa, err := PlanChain(spec, c, s)
+	cas, ws, qa, err := planChain(spec, c, s)
 	if err != nil {
 		return nil, err
 	}
+	res := &Result{Widths: ws, Quantised: qa}
 	if sig.AliasHz == 0 {
 		sig.AliasHz = qa.WorstAliasHz
 	}
-	cas, _, err := FromChain(spec, c)
-	if err != nil {
-		return nil, err
+	res.BitTrue, res.BitTrueErr = BitTrue(cas, ws, sig)
+	if res.BitTrueErr != nil {
+		res.BitTrue = BitTrueResult{}
 	}
-	bt, err := BitTrue(cas, ws, sig)
-	if err != nil {
-		return nil, err
-	}
-	return &Result{Widths: ws, Quantised: qa, BitTrue: bt}, nil
+	return res, nil
 }
 
 // QuantisedChain returns a copy of c whose FIR and half-band taps are the

@@ -218,3 +218,50 @@ func TestPruningMatchesChainPackage(t *testing.T) {
 	}
 	t.Logf("%d of 216 CICs widened against the wrap", widened)
 }
+
+func TestEvaluateWithoutBitTrue(t *testing.T) {
+	// A CIC whose full register is beyond the bit-true run's 63 bits
+	// (Hogenauer 1981: 16 + ceil(6 log2 1024) = 76 bits, plus the guard bit
+	// a power-of-two (RM)^N needs): Evaluate still returns the widths and the
+	// quantised figures, says why there is no bit-true run, and the report
+	// marks the bit-true figures instead of dropping the rest.
+	spec := chain.Spec{InputRate: 122.88e6, OutputRate: 30e3, Passband: 12e3, RippleDB: 0.1, RejectionDB: 100}
+	plan, err := chain.ParseNotation("cic6m1r1024 > fir4")
+	if err != nil {
+		t.Fatal(err)
+	}
+	c, err := chain.Design(spec, plan, chain.Settings{})
+	if err != nil {
+		t.Fatal(err)
+	}
+	res, err := Evaluate(spec, c, Settings{}, Signal{})
+	if err != nil {
+		t.Fatal(err)
+	}
+	if res.BitTrueErr == nil || !strings.Contains(res.BitTrueErr.Error(), "63 bits") {
+		t.Fatalf("BitTrueErr %v, want the 63-bit limit", res.BitTrueErr)
+	}
+	if res.Widths == nil || res.Widths.Stages[0].AccumulatorBits != 77 || !(res.Quantised.AliasRejectionDB > 0) {
+		t.Fatalf("widths %+v, quantised %+v", res.Widths, res.Quantised)
+	}
+	b, err := json.Marshal(res.Report(false))
+	if err != nil {
+		t.Fatal(err)
+	}
+	var m map[string]any
+	if err := json.Unmarshal(b, &m); err != nil {
+		t.Fatal(err)
+	}
+	for _, k := range []string{"quantised_alias_rejection_db", "quantised_passband_ripple_db", "dc_gain_db", "bittrue_error"} {
+		if _, ok := m[k]; !ok {
+			t.Errorf("report lacks %s: %s", k, b)
+		}
+	}
+	if m["bittrue_snr_valid"] != false || m["bittrue_alias_valid"] != false {
+		t.Errorf("bit-true figures not marked invalid: %s", b)
+	}
+	st := m["stages"].([]any)
+	if len(st) != 2 || st[0].(map[string]any)["accumulator_bits"].(float64) != 77 || st[1].(map[string]any)["coefficient_bits"] == nil {
+		t.Errorf("stage widths missing: %s", b)
+	}
+}

@@ -2,6 +2,7 @@ package fixed
 
 import (
 	"fmt"
+	"math"
 	"strconv"
 	"strings"
 )
@@ -22,6 +23,10 @@ type StageReport struct {
 
 	AccumulatorBits int `json:"accumulator_bits"`
 	OutputBits      int `json:"output_bits"`
+	// DCGainDB is the stage's gain at 0 Hz from input full scale to output
+	// full scale through the planned data path (StageWidths.Gain in dB): a
+	// CIC's (RM)^N / 2^(FullBits - Bin), an FIR's sum of quantised taps.
+	DCGainDB float64 `json:"dc_gain_db"`
 	// CIC: pruned register widths (integrators then combs) and the LSBs each
 	// drops, the output's last.
 	RegisterBits []int `json:"register_bits,omitempty"`
@@ -39,7 +44,12 @@ type StageReport struct {
 
 // ChainReport is a chain's fixed-point figures for report.json.
 type ChainReport struct {
-	BitTrueSNRDB            float64 `json:"bittrue_snr_db"`
+	BitTrueSNRDB float64 `json:"bittrue_snr_db"`
+	// BitTrueSNRValid says whether bittrue_snr_db and bittrue_enob are
+	// meaningful; BitTrueSNRNote says why not ("" when they are; see
+	// BitTrueResult.SNRValid).
+	BitTrueSNRValid         bool    `json:"bittrue_snr_valid"`
+	BitTrueSNRNote          string  `json:"bittrue_snr_note"`
 	BitTrueENOB             float64 `json:"bittrue_enob"`
 	BitTrueMatchDB          float64 `json:"bittrue_match_db"`
 	BitTrueOffsetLSB        float64 `json:"bittrue_offset_lsb"`
@@ -53,28 +63,45 @@ type ChainReport struct {
 	TestSignal              string  `json:"bittrue_test_signal"`
 	FixedMemoryBits         int     `json:"fixed_memory_bits"`
 	HardwareMultipliers     *int    `json:"hardware_multipliers,omitempty"`
+	// DCGainDB is the chain's gain at 0 Hz from input full scale to output
+	// full scale, the product of the stages' (Widths.DCGain in dB).
+	DCGainDB float64 `json:"dc_gain_db"`
+	// BitTrueError says why there is no bit-true run (Result.BitTrueErr);
+	// every bittrue_* figure is then zero and bittrue_snr_valid and
+	// bittrue_alias_valid are false, while the quantised figures, the DC gain
+	// and the stages' widths stand.
+	BitTrueError string `json:"bittrue_error,omitempty"`
 
 	Stages []StageReport `json:"stages"`
 }
 
 // Report flattens r for report.json. withHardware says whether a native
 // multiplier size and a clock were given (so that 0 multipliers is a figure).
+// When r.BitTrueErr is set the bit-true figures are zero and marked (see
+// ChainReport.BitTrueError); everything else is reported as usual.
 func (r *Result) Report(withHardware bool) ChainReport {
-	bt := r.BitTrue
-	var sig []string
-	for _, t := range bt.Tones {
-		sig = append(sig, fmt.Sprintf("%s Hz at %s dBFS", fmtG(t.Freq), fmtG(t.Level)))
-	}
 	out := ChainReport{
-		BitTrueSNRDB: bt.SNRDB, BitTrueENOB: bt.ENOB, BitTrueMatchDB: bt.MatchDB,
-		BitTrueOffsetLSB: bt.OutputOffset, InputSNRDB: bt.InputSNRDB,
-		BitTrueAliasHz: bt.AliasHz, BitTrueAliasRejectionDB: bt.AliasRejectionDB,
-		AliasResponseDB: bt.AliasResponseDB, QuantisedRejectionDB: r.Quantised.AliasRejectionDB,
-		QuantisedRippleDB: r.Quantised.PassbandRippleDB,
-		BitTrueAliasValid: bt.AliasValid,
-		TestSignal: fmt.Sprintf("%s; white Gaussian noise %s dBFS RMS; %d output samples",
-			strings.Join(sig, ", "), fmtG(bt.NoiseDBFS), bt.Samples),
-		FixedMemoryBits: r.Widths.MemoryBits,
+		QuantisedRejectionDB: r.Quantised.AliasRejectionDB,
+		QuantisedRippleDB:    r.Quantised.PassbandRippleDB,
+		FixedMemoryBits:      r.Widths.MemoryBits,
+		DCGainDB:             gainDB(r.Widths.DCGain),
+	}
+	if r.BitTrueErr != nil {
+		out.BitTrueError = strings.TrimPrefix(r.BitTrueErr.Error(), "fixed: ")
+		out.BitTrueSNRNote = "no bit-true run: " + out.BitTrueError
+	} else {
+		bt := r.BitTrue
+		var sig []string
+		for _, t := range bt.Tones {
+			sig = append(sig, fmt.Sprintf("%s Hz at %s dBFS", fmtG(t.Freq), fmtG(t.Level)))
+		}
+		out.BitTrueSNRDB, out.BitTrueENOB, out.BitTrueMatchDB = bt.SNRDB, bt.ENOB, bt.MatchDB
+		out.BitTrueSNRValid, out.BitTrueSNRNote = bt.SNRValid, bt.SNRNote
+		out.BitTrueOffsetLSB, out.InputSNRDB = bt.OutputOffset, bt.InputSNRDB
+		out.BitTrueAliasHz, out.BitTrueAliasRejectionDB = bt.AliasHz, bt.AliasRejectionDB
+		out.AliasResponseDB, out.BitTrueAliasValid = bt.AliasResponseDB, bt.AliasValid
+		out.TestSignal = fmt.Sprintf("%s; white Gaussian noise %s dBFS RMS; %d output samples",
+			strings.Join(sig, ", "), fmtG(bt.NoiseDBFS), bt.Samples)
 	}
 	if withHardware {
 		m := r.Widths.HardwareMultipliers
@@ -83,7 +110,7 @@ func (r *Result) Report(withHardware bool) ChainReport {
 	for _, sw := range r.Widths.Stages {
 		s := StageReport{
 			InputBits: sw.InputBits, QuantisedMeetsBands: sw.MeetsBands,
-			AccumulatorBits: sw.AccumulatorBits, OutputBits: sw.OutputBits,
+			AccumulatorBits: sw.AccumulatorBits, OutputBits: sw.OutputBits, DCGainDB: gainDB(sw.Gain),
 			RoundingPoints: append([]string{}, sw.Points...),
 			CoefMemoryBits: sw.CoefMemoryBits, DataMemoryBits: sw.DataMemoryBits,
 		}
@@ -107,6 +134,9 @@ func (r *Result) Report(withHardware bool) ChainReport {
 	}
 	return out
 }
+
+// gainDB is 20 log10 |g|, bounded to [-300, 300] dB so that no figure is infinite.
+func gainDB(g float64) float64 { return -posDB(math.Abs(g)) }
 
 func fmtG(v float64) string { return strconv.FormatFloat(v, 'g', 8, 64) }
 
