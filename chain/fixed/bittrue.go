@@ -98,6 +98,10 @@ type BitTrueResult struct {
 	// levels, and the noise RMS in dBFS.
 	Tones     []Tone
 	NoiseDBFS float64
+	// OutputLevels is each tone's level at the integer output in dBFS, its
+	// amplitude measured by projection over the window: the tone's level plus
+	// the chain's gain at its frequency (Widths.DCGain near DC).
+	OutputLevels []float64
 
 	Samples      int // output samples measured
 	AliasSamples int // output samples of the alias measurement (up to 16 x Samples, see AliasValid)
@@ -232,6 +236,11 @@ func BitTrue(c Cascade, w *Widths, sig Signal) (BitTrueResult, error) {
 	res.OutputOffset = math.Ldexp(mean, w.OutputBits-1)
 	for _, nu := range nus {
 		removeTone(e, nu)
+		a, _ := project(yi[skip:skip+nm], nu)
+		if nu == 0 || nu == 0.5 {
+			a /= 2 // project's 2/len is for a sinusoid between DC and Nyquist
+		}
+		res.OutputLevels = append(res.OutputLevels, math.Max(-300, 20*math.Log10(a)))
 	}
 	res.SNRDB = ratioDB(power(ref), power(e))
 	res.ENOB = (res.SNRDB - 1.76) / 6.02
@@ -429,7 +438,7 @@ func runBoth(c Cascade, w *Widths, x []float64) (yi, yf []float64, inErr float64
 			fcur = firFloat(fcur, cicTaps(st.N, st.R*st.M, math.Ldexp(1, -(sw.Pruning.FullBits-sw.Pruning.InputBits))), st.R)
 		} else {
 			cur = firInt(cur, sw.Coefficients.Ints, st.R, sw.OutputShift, sw.OutputBits)
-			fcur = firFloat(fcur, st.Taps, st.R)
+			fcur = firFloat(fcur, sw.floatTaps(st), st.R)
 		}
 	}
 	ob := w.Stages[len(w.Stages)-1].OutputBits

@@ -18,6 +18,9 @@ type Stage struct {
 
 	Taps     []float64
 	HalfBand bool
+	// scaledHalfBand marks a half-band whose taps carry a gain correction:
+	// zeros kept, centre an ordinary coefficient (set by scaledStage).
+	scaledHalfBand bool
 	// Bands are what the quantised FIR response must meet (each MaxError set),
 	// in Hz at the stage's input rate.
 	Bands []remez.Band
@@ -50,6 +53,16 @@ type Settings struct {
 	// NoSymmetry counts every tap's multiply and stores every coefficient;
 	// by default symmetric pairs share a multiplier through a pre-adder.
 	NoSymmetry bool
+	// UnityGain folds 1 / (the chain's DC gain before correction) into the
+	// taps of the last FIR that is not a half-band (the last half-band when
+	// the chain has no other FIR; its zeros stay zero and its centre becomes
+	// an ordinary coefficient with its own multiply) before that stage is
+	// quantised, so that the chain's DC gain is 1 within the rounding of
+	// those taps. The DC gain before correction is the product of every other
+	// stage's planned gain (StageWidths.Gain) and the corrected stage's float
+	// tap sum. A chain of CICs alone is left uncorrected. False (the zero
+	// value): no correction.
+	UnityGain bool
 	// NativeA x NativeB is the hardware multiplier's native size (e.g. 18 x 27);
 	// zero means no hardware multiplier figure.
 	NativeA, NativeB int
@@ -91,6 +104,9 @@ type StageWidths struct {
 	OutputShift int
 	// Gain is the stage's DC gain from input full scale to output full scale.
 	Gain float64
+	// GainCorrection is the factor folded into this stage's taps before
+	// quantisation (Settings.UnityGain); 1 for every other stage.
+	GainCorrection float64
 	// Points states every rounding, truncation and saturation point in order.
 	Points []string
 
@@ -113,6 +129,10 @@ type Widths struct {
 	// full scale: the product of the stages' Gain.
 	DCGain              float64
 	HardwareMultipliers int // summed over stages; 0 without a clock or native size
+	// GainCorrection is the factor Settings.UnityGain folded into stage
+	// CorrectedStage (0-based); 1 and -1 when none was applied.
+	GainCorrection float64
+	CorrectedStage int
 }
 
 // Plan chooses every word width of the cascade: quantised coefficients per
@@ -159,28 +179,81 @@ func Plan(c Cascade, w Words, s Settings) (*Widths, error) {
 	if (s.NativeA == 0) != (s.NativeB == 0) || s.NativeA < 0 || s.NativeB < 0 {
 		return nil, fmt.Errorf("fixed: native multiplier %d x %d: give both sizes (> 0) or neither", s.NativeA, s.NativeB)
 	}
-	out := &Widths{InputBits: w.InputBits, OutputBits: w.OutputBits, DCGain: 1}
-	rate := c.InputRate
+	return plan(c, w, s, nil)
+}
+
+// plan is Plan after the checks; minBits, when not nil, sets per stage the
+// narrowest coefficient width the "auto" search may return (0: no bound).
+func plan(c Cascade, w Words, s Settings, minBits []int) (*Widths, error) {
+	n := len(c.Stages)
+	rates := make([]float64, n+1)
+	rates[0] = c.InputRate
+	for i, st := range c.Stages {
+		if st.R < 1 {
+			return nil, fmt.Errorf("fixed: stage %d: factor R = %d: must be >= 1", i+1, st.R)
+		}
+		rates[i+1] = rates[i] / float64(st.R)
+	}
+	target := -1
+	if s.UnityGain {
+		target = gainTarget(c)
+	}
+	sws := make([]StageWidths, n)
+	ins := make([]int, n)
 	in := w.InputBits
 	for i, st := range c.Stages {
 		ob := w.DataBits
-		if i == len(c.Stages)-1 {
+		if i == n-1 {
 			ob = w.OutputBits
 		}
-		var sw StageWidths
+		ins[i] = in
+		if i == target {
+			// Planned below, once the other stages' gains are known; an
+			// FIR's output word does not depend on its taps.
+			sws[i].OutputBits = ob
+			in = ob
+			continue
+		}
 		var err error
 		if st.CIC {
-			sw, err = planCIC(st, rate, in, ob)
+			sws[i], err = planCIC(st, rates[i], in, ob)
 		} else {
-			sw, err = planFIR(st, rate, in, ob, w.CoefBits, s)
+			sws[i], err = planFIR(st, rates[i], in, ob, w.CoefBits, s, minBitsOf(minBits, i))
 		}
 		if err != nil {
 			return nil, fmt.Errorf("fixed: stage %d: %w", i+1, err)
 		}
-		sw.InputRate = rate
-		rate /= float64(st.R)
-		sw.costAtClock(rate, c.Complex, s)
-		out.Stages = append(out.Stages, sw)
+		in = sws[i].OutputBits
+	}
+	out := &Widths{InputBits: w.InputBits, OutputBits: w.OutputBits, DCGain: 1, GainCorrection: 1, CorrectedStage: -1}
+	if target >= 0 {
+		st := c.Stages[target]
+		others := 1.0
+		for i := range sws {
+			if i != target {
+				others *= sws[i].Gain
+			}
+		}
+		k := 1 / (others * tapSum(st.Taps))
+		if math.IsNaN(k) || math.IsInf(k, 0) || !(k > 0) {
+			return nil, fmt.Errorf("fixed: stage %d: UnityGain: the chain's DC gain before correction is %g; it must be above 0", target+1, 1/k)
+		}
+		var err error
+		sws[target], err = planFIR(scaledStage(st, k), rates[target], ins[target], sws[target].OutputBits, w.CoefBits, s, minBitsOf(minBits, target))
+		if err != nil {
+			return nil, fmt.Errorf("fixed: stage %d: %w", target+1, err)
+		}
+		sws[target].GainCorrection = k
+		sws[target].Points = append(sws[target].Points, fmt.Sprintf("gain correction: taps scaled by %.9g before quantisation (UnityGain)", k))
+		out.GainCorrection, out.CorrectedStage = k, target
+	}
+	for i := range sws {
+		sw := &sws[i]
+		if sw.GainCorrection == 0 {
+			sw.GainCorrection = 1
+		}
+		sw.InputRate = rates[i]
+		sw.costAtClock(rates[i+1], c.Complex, s)
 		data := sw.DataMemoryBits
 		if c.Complex {
 			data *= 2
@@ -188,9 +261,81 @@ func Plan(c Cascade, w Words, s Settings) (*Widths, error) {
 		out.MemoryBits += data + sw.CoefMemoryBits
 		out.HardwareMultipliers += sw.HardwareMultipliers
 		out.DCGain *= sw.Gain
-		in = sw.OutputBits
 	}
+	out.Stages = sws
 	return out, nil
+}
+
+// floatTaps returns st's float taps with this stage's gain correction, as
+// the float chain runs them.
+func (sw *StageWidths) floatTaps(st Stage) []float64 {
+	if sw.GainCorrection == 0 || sw.GainCorrection == 1 {
+		return st.Taps
+	}
+	return scaledStage(st, sw.GainCorrection).Taps
+}
+
+func minBitsOf(minBits []int, i int) int {
+	if minBits == nil {
+		return 0
+	}
+	return minBits[i]
+}
+
+// gainTarget returns the stage that takes the UnityGain correction: the last
+// FIR that is not a half-band, else the last half-band, else -1 (a chain of
+// CICs alone has no taps to correct).
+func gainTarget(c Cascade) int {
+	hb := -1
+	for i := len(c.Stages) - 1; i >= 0; i-- {
+		st := c.Stages[i]
+		switch {
+		case st.CIC:
+		case !st.HalfBand:
+			return i
+		case hb < 0:
+			hb = i
+		}
+	}
+	return hb
+}
+
+func tapSum(h []float64) float64 {
+	var s float64
+	for _, v := range h {
+		s += v
+	}
+	return s
+}
+
+// scaledStage returns st with its taps and its bands' gains and limits scaled
+// by k, so that the scaled filter meets the scaled bands exactly when st
+// meets its own (a band's limit is relative to the stage's gain, which k
+// scales with the rest of the chain). A half-band keeps its zero taps exactly
+// zero; its centre k/2 is then an ordinary coefficient (scaledHalfBand).
+func scaledStage(st Stage, k float64) Stage {
+	out := st
+	out.Taps = make([]float64, len(st.Taps))
+	for i, v := range st.Taps {
+		out.Taps[i] = v * k
+	}
+	if st.HalfBand {
+		mid := len(st.Taps) / 2
+		for d := 2; d <= mid; d += 2 {
+			out.Taps[mid-d], out.Taps[mid+d] = 0, 0
+		}
+		out.scaledHalfBand = true
+	}
+	out.Bands = make([]remez.Band, len(st.Bands))
+	for i, b := range st.Bands {
+		b.Gain *= k
+		b.MaxError *= k
+		if g := b.GainFunc; g != nil {
+			b.GainFunc = func(f float64) float64 { return k * g(f) }
+		}
+		out.Bands[i] = b
+	}
+	return out
 }
 
 func planCIC(st Stage, rate float64, in, ob int) (StageWidths, error) {
@@ -223,7 +368,9 @@ func planCIC(st Stage, rate float64, in, ob int) (StageWidths, error) {
 	return sw, nil
 }
 
-func planFIR(st Stage, rate float64, in, ob, coefBits int, s Settings) (StageWidths, error) {
+// planFIR plans one FIR or half-band stage; minBits (0: none) is the
+// narrowest width the "auto" search may return.
+func planFIR(st Stage, rate float64, in, ob, coefBits int, s Settings, minBits int) (StageWidths, error) {
 	if len(st.Taps) == 0 {
 		return StageWidths{}, fmt.Errorf("FIR stage has no taps (an estimate cannot be quantised)")
 	}
@@ -231,7 +378,12 @@ func planFIR(st Stage, rate float64, in, ob, coefBits int, s Settings) (StageWid
 		return StageWidths{}, fmt.Errorf("FIR factor R = %d: must be >= 1", st.R)
 	}
 	q := s.Quant
-	q.HalfBand = st.HalfBand
+	// A scaled half-band's centre is no longer 1/2: it is quantised as an
+	// ordinary tap, and its exact zeros stay zero (no rounding moves them).
+	q.HalfBand = st.HalfBand && !st.scaledHalfBand
+	if minBits > 0 {
+		q.MinBits = max(q.MinBits, minBits)
+	}
 	sw := StageWidths{HalfBand: st.HalfBand, R: st.R, InputBits: in, OutputBits: ob}
 	for i, b := range st.Bands {
 		if !(b.MaxError > 0) {
@@ -258,7 +410,7 @@ func planFIR(st Stage, rate float64, in, ob, coefBits int, s Settings) (StageWid
 		}
 		sw.MeetsBands = true
 	} else {
-		if st.HalfBand && !IsHalfBand(st.Taps, 1e-6) {
+		if q.HalfBand && !IsHalfBand(st.Taps, 1e-6) {
 			return StageWidths{}, fmt.Errorf("taps of length %d are not a half-band", len(st.Taps))
 		}
 		if _, err := symmetrized(st.Taps); err != nil {
@@ -300,10 +452,14 @@ func planFIR(st Stage, rate float64, in, ob, coefBits int, s Settings) (StageWid
 	switch {
 	case st.HalfBand:
 		k := (n + 1) / 4
-		sw.MultipliesPerSample = 2 * k
-		sw.CoefMemoryBits = 2 * k * cf.Bits
+		c := 0 // the centre: a shift, or a multiply once scaled
+		if st.scaledHalfBand {
+			c = 1
+		}
+		sw.MultipliesPerSample = 2*k + c
+		sw.CoefMemoryBits = (2*k + c) * cf.Bits
 		if !s.NoSymmetry {
-			sw.MultipliesPerSample, sw.CoefMemoryBits = k, k*cf.Bits
+			sw.MultipliesPerSample, sw.CoefMemoryBits = k+c, (k+c)*cf.Bits
 			sw.MultiplierA = in + 1 // pre-adder output
 		}
 	case s.NoSymmetry:

@@ -50,11 +50,24 @@
 //     (CICPruning.TruncationBound) must fit in 2^(FullBits-1) - (RM)^N
 //     2^(Bin-1). When (RM)^N is a power of two that room is zero, so a pruned
 //     CIC gets one guard bit and its gain halves (1/2 instead of 1); the gain
-//     correction below can restore it. PruneCIC tries 0, 1 and 2 guard bits
+//     correction (Settings.UnityGain) can restore it. PruneCIC tries 0, 1 and 2 guard bits
 //     and otherwise prunes less (very narrow output words);
 //   - FIR and half-band: exact products and sum in an accumulator of
 //     Bin + ceil(log2 sum|h_int|) + 1 bits, enough for any input (worst case);
 //     the output is rounded half up at OutputShift and saturated;
+//   - gain: each stage's DC gain from input full scale to output full scale
+//     (StageWidths.Gain, dc_gain_db) is a CIC's (RM)^N / 2^(FullBits - Bin)
+//     or an FIR's sum of quantised taps; the chain's (Widths.DCGain) is their
+//     product. Settings.UnityGain folds 1 / (the chain's DC gain before
+//     correction) into the taps of the last FIR that is not a half-band,
+//     before it is quantised, and scales that stage's bands (gains and
+//     MaxError) by the same factor, so that the chain's DC gain is 1 within
+//     the rounding of those taps while every band is held to the same
+//     relative accuracy. A half-band keeps its centre 1/2 exact (a shift)
+//     because it is corrected only when the chain has no other FIR: its zeros
+//     then stay zero and its centre becomes an ordinary coefficient with a
+//     multiply of its own. The factor is Widths.GainCorrection
+//     (gain_correction);
 //   - words between stages are Words.DataBits wide (default: the output width,
 //     as the chain package prunes its CICs), the last stage's Words.OutputBits.
 //
@@ -100,6 +113,7 @@
 // Words, Settings, QuantSettings and Signal are plain structs whose zero
 // values are the documented defaults: 16-bit input, 24-bit output, data words
 // as wide as the output, coefficient widths "auto" (the narrowest that meets
-// the bands), symmetry folded, no hardware multiplier figures, one -1 dBFS
-// tone at 0.4 fp with one input LSB of noise, 2048 output samples measured.
+// the bands), symmetry folded, no gain correction, no hardware multiplier
+// figures, one -1 dBFS tone at 0.4 fp (lower for a narrow input word) with
+// one input LSB of noise, 2048 output samples measured.
 package fixed

@@ -27,6 +27,9 @@ type StageReport struct {
 	// full scale through the planned data path (StageWidths.Gain in dB): a
 	// CIC's (RM)^N / 2^(FullBits - Bin), an FIR's sum of quantised taps.
 	DCGainDB float64 `json:"dc_gain_db"`
+	// GainCorrection is the factor Settings.UnityGain folded into this
+	// stage's taps before quantisation; absent on every other stage.
+	GainCorrection float64 `json:"gain_correction,omitempty"`
 	// CIC: pruned register widths (integrators then combs) and the LSBs each
 	// drops, the output's last.
 	RegisterBits []int `json:"register_bits,omitempty"`
@@ -66,6 +69,12 @@ type ChainReport struct {
 	// DCGainDB is the chain's gain at 0 Hz from input full scale to output
 	// full scale, the product of the stages' (Widths.DCGain in dB).
 	DCGainDB float64 `json:"dc_gain_db"`
+	// GainCorrection is the factor Settings.UnityGain folded into one
+	// stage's taps (that stage's gain_correction), 1 when none.
+	GainCorrection float64 `json:"gain_correction"`
+	// BitTrueOutputLevels is each test tone's level at the integer output,
+	// dBFS (BitTrueResult.OutputLevels).
+	BitTrueOutputLevels []float64 `json:"bittrue_output_levels_dbfs,omitempty"`
 	// BitTrueError says why there is no bit-true run (Result.BitTrueErr);
 	// every bittrue_* figure is then zero and bittrue_snr_valid and
 	// bittrue_alias_valid are false, while the quantised figures, the DC gain
@@ -85,6 +94,7 @@ func (r *Result) Report(withHardware bool) ChainReport {
 		QuantisedRippleDB:    r.Quantised.PassbandRippleDB,
 		FixedMemoryBits:      r.Widths.MemoryBits,
 		DCGainDB:             gainDB(r.Widths.DCGain),
+		GainCorrection:       r.Widths.GainCorrection,
 	}
 	if r.BitTrueErr != nil {
 		out.BitTrueError = strings.TrimPrefix(r.BitTrueErr.Error(), "fixed: ")
@@ -97,6 +107,7 @@ func (r *Result) Report(withHardware bool) ChainReport {
 		}
 		out.BitTrueSNRDB, out.BitTrueENOB, out.BitTrueMatchDB = bt.SNRDB, bt.ENOB, bt.MatchDB
 		out.BitTrueSNRValid, out.BitTrueSNRNote = bt.SNRValid, bt.SNRNote
+		out.BitTrueOutputLevels = append([]float64(nil), bt.OutputLevels...)
 		out.BitTrueOffsetLSB, out.InputSNRDB = bt.OutputOffset, bt.InputSNRDB
 		out.BitTrueAliasHz, out.BitTrueAliasRejectionDB = bt.AliasHz, bt.AliasRejectionDB
 		out.AliasResponseDB, out.BitTrueAliasValid = bt.AliasResponseDB, bt.AliasValid
@@ -129,6 +140,9 @@ func (r *Result) Report(withHardware bool) ChainReport {
 				m := sw.HardwareMultipliers
 				s.HardwareMultipliers = &m
 			}
+		}
+		if sw.GainCorrection != 0 && sw.GainCorrection != 1 {
+			s.GainCorrection = sw.GainCorrection
 		}
 		out.Stages = append(out.Stages, s)
 	}

@@ -27,7 +27,7 @@ func newResp(c Cascade, w *Widths, quantised bool) cascadeResp {
 		case quantised:
 			taps = w.Stages[i].Coefficients.Float()
 		default:
-			taps = st.Taps
+			taps = w.Stages[i].floatTaps(st)
 			if sym, err := symmetrized(taps); err == nil {
 				taps = sym
 			}
