@@ -144,8 +144,8 @@ type Widths struct {
 // word (rounded to nearest, saturated). A CIC's registers are truncated
 // (floor: drop LSBs) at each of Hogenauer's points and wrap modulo their
 // width; its output keeps the top OutputBits of the full register. An FIR's
-// products and sum are exact in an accumulator of
-// Bin + ceil(log2 sum|h_int|) + 1 bits (worst case, any input, no overflow);
+// products and sum are exact in an accumulator of AccumulatorBits (worst
+// case, any input, no overflow);
 // its output is rounded half up at OutputShift and saturated to OutputBits.
 // Inter-stage words are Words.DataBits wide (the CIC's output is narrower when
 // its full register is), the last stage's output Words.OutputBits.
@@ -361,7 +361,7 @@ func planCIC(st Stage, rate float64, in, ob int) (StageWidths, error) {
 		if j < p.N {
 			sw.DataMemoryBits += p.RegisterBits[j]
 		} else {
-			sw.DataMemoryBits += (st.M + 1) * p.RegisterBits[j] // M delay words and the comb's register
+			sw.DataMemoryBits += st.M * p.RegisterBits[j] // the comb's M past inputs
 		}
 	}
 	sw.Points = append(sw.Points, fmt.Sprintf("output: truncate %d LSBs to %d bits", p.Dropped[2*p.N], p.OutputBits))
@@ -370,6 +370,40 @@ func planCIC(st Stage, rate float64, in, ob int) (StageWidths, error) {
 
 // planFIR plans one FIR or half-band stage; minBits (0: none) is the
 // narrowest width the "auto" search may return.
+// AccumulatorBits returns the narrowest two's-complement width that holds
+// every sum of products of the integer taps h with inBits-bit data, the
+// worst case for any input: with P the sum of the positive taps and N the
+// sum of the negative taps' magnitudes, the sums lie in
+// [-(P 2^(Bin-1) + N (2^(Bin-1) - 1)), P (2^(Bin-1) - 1) + N 2^(Bin-1)],
+// reached by the full-scale input of each tap's sign (the largest) or of the
+// opposite sign (the smallest, using the most negative code). That is at
+// most Bin + floor(log2 sum|h|) + 1 bits, the width of the symmetric bound
+// 2^(Bin-1) sum|h|, and one bit less when the extremes allow it (e.g. when
+// sum|h| is a power of two). It returns 64 when a sum would not fit an int64.
+func AccumulatorBits(h []int64, inBits int) int {
+	var p, n uint64
+	for _, v := range h {
+		if v > 0 {
+			p += uint64(v)
+		} else {
+			n += uint64(-v)
+		}
+	}
+	a := uint64(1) << (inBits - 1)
+	hp, lp := bits.Mul64(p, a)
+	hn, ln := bits.Mul64(n, a)
+	if hp != 0 || hn != 0 || lp > 1<<62 || ln > 1<<62 || inBits < 1 || inBits > 62 {
+		return 64
+	}
+	lo := lp + ln - n // -(smallest sum)
+	hi := lp - p + ln // largest sum
+	neg := 0          // bits for -(smallest sum): 2^neg >= lo
+	if lo > 0 {
+		neg = bits.Len64(lo - 1)
+	}
+	return 1 + max(neg, bits.Len64(hi))
+}
+
 func planFIR(st Stage, rate float64, in, ob, coefBits int, s Settings, minBits int) (StageWidths, error) {
 	if len(st.Taps) == 0 {
 		return StageWidths{}, fmt.Errorf("FIR stage has no taps (an estimate cannot be quantised)")
@@ -423,12 +457,9 @@ func planFIR(st Stage, rate float64, in, ob, coefBits int, s Settings, minBits i
 	}
 	sw.MeetsBands = sw.MeetsBands && sw.FloatMeets
 	cf := sw.Coefficients
-	sum := cf.AbsSum()
-	hi, lo := bits.Mul64(uint64(sum), uint64(1)<<(in-1))
-	if hi != 0 || bits.Len64(lo)+1 > 63 {
-		return StageWidths{}, fmt.Errorf("accumulator of %d-bit data and %d-bit coefficients exceeds 63 bits", in, cf.Bits)
+	if sw.AccumulatorBits = AccumulatorBits(cf.Ints, in); sw.AccumulatorBits > 63 {
+		return StageWidths{}, fmt.Errorf("accumulator of %d-bit data and %d-bit coefficients needs %d bits; at most 63 are supported", in, cf.Bits, sw.AccumulatorBits)
 	}
-	sw.AccumulatorBits = bits.Len64(lo) + 1
 	// The accumulator holds Frac + in - 1 fractional bits; the output ob - 1.
 	sw.OutputShift = cf.Frac + in - ob
 	var dc int64

@@ -29,7 +29,9 @@
 // Before a bit is added, a local search (QuantSettings.Budget trial moves,
 // default 64) tries the other rounding of the taps with the largest rounding
 // error, one symmetric pair at a time, keeping moves that lower the worst
-// band's error relative to its limit.
+// band's error relative to its limit. Coefficients.Adjusted (the report's
+// coefficients_adjusted) counts the taps moved off plain rounding, both
+// members of a symmetric pair.
 //
 // # Data path
 //
@@ -53,8 +55,12 @@
 //     correction (Settings.UnityGain) can restore it. PruneCIC tries 0, 1 and 2 guard bits
 //     and otherwise prunes less (very narrow output words);
 //   - FIR and half-band: exact products and sum in an accumulator of
-//     Bin + ceil(log2 sum|h_int|) + 1 bits, enough for any input (worst case);
-//     the output is rounded half up at OutputShift and saturated;
+//     AccumulatorBits: the narrowest two's-complement width that holds the
+//     largest and the smallest sum any input can make, the full-scale input
+//     of each tap's sign and of the opposite sign (worst case); that is at
+//     most Bin + floor(log2 sum|h_int|) + 1 bits, the symmetric bound
+//     2^(Bin-1) sum|h_int|, and one bit less when the extremes allow. The
+//     output is rounded half up at OutputShift and saturated;
 //   - gain: each stage's DC gain from input full scale to output full scale
 //     (StageWidths.Gain, dc_gain_db) is a CIC's (RM)^N / 2^(FullBits - Bin)
 //     or an FIR's sum of quantised taps; the chain's (Widths.DCGain) is their
@@ -99,6 +105,11 @@
 // bittrue_alias_valid false, bittrue_snr_note saying why).
 //
 // # Cost
+//
+// Data memory: an FIR stores its taps' count of input words; a CIC one word
+// per integrator and M words per comb (a comb of differential delay M,
+// y[n] = x[n] - x[n-M], stores its M past inputs), each as wide as its
+// register.
 //
 // Per stage: the multiplier size a x b bits (data x coefficient, data + 1 bits
 // after the pre-adder when symmetry is folded), multiplies per output sample of

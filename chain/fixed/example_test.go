@@ -89,7 +89,7 @@ func ExamplePlan() {
 	fmt.Println("CIC registers", w.Stages[0].Pruning.RegisterBits, "guard", w.Stages[0].Pruning.GuardBits)
 	// Output:
 	// stage 1: in 14, coef 0, acc 27, out 18
-	// stage 2: in 18, coef 3, acc 21, out 18
+	// stage 2: in 18, coef 3, acc 20, out 18
 	// CIC registers [27 27 25 24 23 22 21 20] guard 1
 }
 

@@ -3,6 +3,7 @@ package fixed
 import (
 	"encoding/json"
 	"math"
+	"math/bits"
 	"math/rand/v2"
 	"os"
 	"testing"
@@ -309,8 +310,10 @@ func TestCICIntegerExact(t *testing.T) {
 }
 
 func TestAccumulatorWorstCase(t *testing.T) {
-	// Worst-case growth: the input whose signs match the coefficients' gives
-	// |acc| = 2^(Bin-1) sum|h|, which fits AccumulatorBits and not one bit fewer.
+	// Worst-case growth: the full-scale input with each tap's sign gives the
+	// largest sum, the opposite signs (most negative code) the smallest; the
+	// planned accumulator holds both and one bit fewer does not hold one of
+	// them (the definition of AccumulatorBits, checked on a designed filter).
 	taps := kaiserLowpass(31, 100e3, 1e6, 6)
 	bands := lowpassBands(40e3, 250e3, 1e6, 1e-2, 1e-3)
 	c := Cascade{InputRate: 1e6, Passband: 40e3, Stages: []Stage{{R: 2, Taps: taps, Bands: bands}}}
@@ -320,18 +323,72 @@ func TestAccumulatorWorstCase(t *testing.T) {
 			t.Fatal(err)
 		}
 		sw := w.Stages[0]
-		// The most negative sum: full-scale input of the opposite sign to each tap.
-		var acc int64
+		top := int64(1) << (in - 1)
+		var lo, hi int64
 		for _, v := range sw.Coefficients.Ints {
 			if v > 0 {
-				acc += v * -(int64(1) << (in - 1))
+				lo, hi = lo+v*-top, hi+v*(top-1)
 			} else {
-				acc += v * (int64(1)<<(in-1) - 1)
+				lo, hi = lo+v*(top-1), hi+v*-top
 			}
 		}
-		lim := int64(1) << (sw.AccumulatorBits - 1)
-		if acc < -lim || acc >= -lim/2 {
-			t.Errorf("%d-bit input: worst sum %d must fit %d bits and not %d", in, acc, sw.AccumulatorBits, sw.AccumulatorBits-1)
+		if !fits(lo, hi, sw.AccumulatorBits) || fits(lo, hi, sw.AccumulatorBits-1) {
+			t.Errorf("%d-bit input: sums [%d, %d] must fit %d bits and not %d", in, lo, hi, sw.AccumulatorBits, sw.AccumulatorBits-1)
+		}
+		// Never wider than the symmetric bound's Bin + floor(log2 sum|h|) + 1.
+		if sym := in + bits.Len64(uint64(sw.Coefficients.AbsSum())); sw.AccumulatorBits > sym {
+			t.Errorf("%d-bit input: %d bits, above the symmetric bound's %d", in, sw.AccumulatorBits, sym)
+		}
+	}
+}
+
+// fits reports whether [lo, hi] lies within b-bit two's complement.
+func fits(lo, hi int64, b int) bool {
+	return b >= 1 && lo >= -(int64(1)<<(b-1)) && hi <= int64(1)<<(b-1)-1
+}
+
+func TestAccumulatorBitsBruteForce(t *testing.T) {
+	// Brute force: every input sequence of a few taps on a narrow input word
+	// is summed, and the extreme sums must fit AccumulatorBits and not one
+	// bit fewer. Random integer taps, seeded RNG; a power-of-two sum|h| is
+	// among them.
+	rng := rand.New(rand.NewPCG(31, 32))
+	cases := [][]int64{{1, 2, 1}, {-1, 3, -1}, {0, 0, 0}, {3}, {-3, 0, 7, 0, -3}}
+	for len(cases) < 300 {
+		h := make([]int64, 1+rng.IntN(4))
+		for k := range h {
+			h[k] = rng.Int64N(31) - 15
+		}
+		cases = append(cases, h)
+	}
+	for _, h := range cases {
+		for in := 2; in <= 4; in++ {
+			top := int64(1) << (in - 1)
+			var lo, hi int64
+			x := make([]int64, len(h))
+			for k := range x {
+				x[k] = -top
+			}
+			for {
+				var s int64
+				for k, v := range h {
+					s += v * x[k]
+				}
+				lo, hi = min(lo, s), max(hi, s)
+				k := 0
+				for k < len(x) && x[k] == top-1 {
+					x[k] = -top
+					k++
+				}
+				if k == len(x) {
+					break
+				}
+				x[k]++
+			}
+			b := AccumulatorBits(h, in)
+			if !fits(lo, hi, b) || (b > 1 && fits(lo, hi, b-1)) {
+				t.Fatalf("taps %v, %d-bit input: sums [%d, %d], AccumulatorBits %d", h, in, lo, hi, b)
+			}
 		}
 	}
 }

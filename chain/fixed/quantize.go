@@ -18,8 +18,9 @@ type Coefficients struct {
 	Frac int     // fractional bits; may exceed Bits-1 for small taps, or be negative for taps of 2^(Bits-1) or more
 	Ints []int64 // the full impulse response, zeros included
 
-	// Adjusted counts the taps (a symmetric pair counts once) that the local
-	// search moved off plain rounding. Zero means plain rounding.
+	// Adjusted counts the taps that the local search moved off plain
+	// rounding, both members of a symmetric pair counted. Zero means plain
+	// rounding.
 	Adjusted int
 }
 
@@ -578,10 +579,11 @@ func (ls *search) run() bool {
 	return false
 }
 
-// offRounding counts the taps (a symmetric pair once) where c differs from plain.
+// offRounding counts the taps (each member of a symmetric pair) where c
+// differs from plain.
 func offRounding(c, plain Coefficients) int {
-	n, m := len(c.Ints), 0
-	for k := 0; k < (n+1)/2; k++ {
+	m := 0
+	for k := range c.Ints {
 		if c.Ints[k] != plain.Ints[k] {
 			m++
 		}

@@ -13,8 +13,9 @@ type StageReport struct {
 	InputBits int `json:"input_bits"`
 	// FIR and half-band: the coefficient width and scale, the quantised
 	// coefficients as integers (full impulse response: tap k = ints[k] / 2^frac),
-	// how many the local search moved off plain rounding, and whether the
-	// quantised response meets the stage's bands.
+	// how many taps the local search moved off plain rounding (both members
+	// of a symmetric pair counted), and whether the quantised response meets
+	// the stage's bands.
 	CoefficientBits      int     `json:"coefficient_bits,omitempty"`
 	CoefficientFrac      *int    `json:"coefficient_frac,omitempty"`
 	CoefficientsInt      []int64 `json:"coefficients_int,omitempty"`
