@@ -2,6 +2,7 @@ package optimize
 
 import (
 	"stepdown/chain"
+	"stepdown/chain/fixed"
 	"stepdown/cost"
 )
 
@@ -25,6 +26,13 @@ type Settings struct {
 
 	Chain chain.Settings // how stages are designed
 	Cost  cost.Settings  // how chains are priced
+	// Fixed is how a chain's word lengths are planned and its taps rounded
+	// (fixed.PlanChain) when the spec fixes the coefficient width
+	// (chain.Spec.CoefBits > 0): the search then keeps only chains whose
+	// rounded taps meet the spec, so it should be the settings the report
+	// plans the word lengths with. Its zero value is package fixed's
+	// default. Unused when CoefBits is 0.
+	Fixed fixed.Settings
 
 	// Tolerance is the width of the band of near-front estimates that is
 	// designed for real, as a fraction: a candidate is designed unless some
@@ -52,6 +60,12 @@ type Settings struct {
 	// Exhaustive designs every feasible candidate instead of the band (slow;
 	// it exists to check the two-tier search). MaxDesigns does not apply.
 	Exhaustive bool
+
+	// floatOnly turns off everything the search does for a fixed
+	// coefficient width (the measurement on rounded taps, the re-designs
+	// for it and the estimate tier's prune): the search of floating-point
+	// designs only, which the package's tests compare against.
+	floatOnly bool
 }
 
 // Rule is a recommendation rule.
@@ -70,8 +84,28 @@ type Candidate struct {
 	Chain *chain.Chain // nil for the estimated cloud in Result.Feasible
 	// Figures.Designed says whether it came from a real design
 	Figures cost.Figures
-	// MarginDB is the alias-rejection margin over the target, dB.
+	// MarginDB is the alias-rejection margin over the target, dB: of the
+	// taps rounded to the spec's coefficient width when it is fixed
+	// (Quantised), of the floating-point design otherwise.
 	MarginDB float64
+	// Quantised is the chain measured with its taps rounded to the spec's
+	// coefficient width (fixed.PlanChain with Settings.Fixed); zero when the
+	// width is not fixed (CoefBits 0) or wider than fixed.MaxBits, and in
+	// Result.Feasible.
+	Quantised chain.Analysis
+
+	// raised is how far the rejection target was raised for the chain's
+	// design, dB, and cut how far the ripple was tightened (see
+	// realDesigner.analyze); redesigns counts the re-designs for rounding.
+	raised, cut float64
+	redesigns   int
+	// evaluated: Figures.Analysis is measured (cost.Evaluate); survived:
+	// Quantised is measured and meets the spec (realDesigner.survive).
+	evaluated, survived bool
+	// blame marks, in a chain dropped for missing with rounded taps, the
+	// stages whose rounded taps miss their own bands, and hopeless those
+	// whose rounding error alone exceeds their stopband limit.
+	blame, hopeless []bool
 }
 
 // Result is the outcome of a search.
@@ -96,6 +130,12 @@ type Result struct {
 	// MaxTaps is the tap limit of the search that gave Front (see
 	// Settings.MaxTaps).
 	MaxTaps int
+	// NeededCoefBits is set when Front is empty because the chains that
+	// met the spec in floating point all missed it with their taps rounded
+	// to the spec's coefficient width: the least width, up to 32 bits, at
+	// which one of the cheapest of them meets (Reason names it). Zero
+	// otherwise, or when none meets up to 32 bits.
+	NeededCoefBits int
 }
 
 // CloudSize is the most candidates Result.Feasible holds.

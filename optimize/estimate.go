@@ -4,6 +4,7 @@ import (
 	"math"
 
 	"stepdown/chain"
+	"stepdown/chain/fixed"
 )
 
 // Reasons a candidate is dropped. The strings are keys of Result.Dropped.
@@ -20,6 +21,18 @@ const (
 	ReasonGaveUp         = "a stage failed to design in other chains"
 	ReasonCICBeaten      = "cic beaten by another order or delay"
 	ReasonLongFIR        = "fir stage over the tap limit"
+	// ReasonRoundingFloor: with a fixed coefficient width, a FIR or
+	// half-band stage whose rounding error alone, predicted from its
+	// estimated length and the width, lies well above its stopband limit
+	// (see the package doc, "Coefficient width").
+	ReasonRoundingFloor = "rounding floor above the stopband at the coefficient width"
+	// ReasonMissQuantised: a designed chain that meets the spec in floating
+	// point but not with its taps rounded to the coefficient width, even
+	// after the re-designs that give its stages the margin rounding needs.
+	ReasonMissQuantised = "misses the targets with its taps rounded to the coefficient width"
+	// ReasonWordLengths: fixed.PlanChain could not plan the chain's word
+	// lengths, so its rounded taps could not be measured.
+	ReasonWordLengths = "word lengths could not be planned"
 )
 
 type dropCode uint8
@@ -33,6 +46,7 @@ const (
 	dropLongFIR
 	dropCICNull
 	dropCICBeaten
+	dropRoundingFloor
 )
 
 // defaultMaxTaps is the automatic tap limit's first step. A stage estimated
@@ -49,6 +63,7 @@ var dropNames = [...]string{
 	dropLongFIR:       ReasonLongFIR,
 	dropCICNull:       ReasonCICNull,
 	dropCICBeaten:     ReasonCICBeaten,
+	dropRoundingFloor: ReasonRoundingFloor,
 }
 
 // figs is a candidate's or a stage's position on the three axes of the
@@ -66,8 +81,11 @@ type params struct {
 	rippleDB, rejDB    float64
 	inBits, dataBits   int
 	coefBits           int
-	complex, noSym     bool
-	d                  int
+	// fixedBits is the spec's coefficient width, zero for floating point
+	// (coefBits is the width priced, 18 bits then).
+	fixedBits      int
+	complex, noSym bool
+	d              int
 }
 
 // newParams reads a spec whose defaults are filled in.
@@ -77,7 +95,7 @@ func newParams(spec chain.Spec, noSym bool) params {
 		fp: spec.Passband, fa: spec.Protected, fs: spec.Stopband,
 		rippleDB: spec.RippleDB, rejDB: spec.RejectionDB,
 		inBits: spec.InputBits, dataBits: spec.OutputBits, coefBits: spec.CoefBits,
-		complex: spec.Complex, noSym: noSym,
+		fixedBits: spec.CoefBits, complex: spec.Complex, noSym: noSym,
 	}
 	if p.fa == 0 {
 		p.fa = p.fp
@@ -138,6 +156,10 @@ type stageVal struct {
 	// taps is a FIR or half-band stage's estimated length, which the tap
 	// limit is applied to in score (so the cache does not depend on it).
 	taps float64
+	// floored marks a FIR or half-band stage that cannot meet its stopband
+	// limit with its taps rounded to the spec's coefficient width (see
+	// roundingFloor); score drops it when estimator.floorPrune is set.
+	floored bool
 }
 
 // estimator scores candidates from order estimates. It caches each stage's
@@ -158,6 +180,8 @@ type estimator struct {
 	orders, delays []int
 	// keepBeaten turns cicBeaten off (for the exhaustive check).
 	keepBeaten bool
+	// floorPrune drops the candidates with a floored stage (stageVal.floored).
+	floorPrune bool
 	// beaters lists, for each beaten CIC, the order and delay of the CICs
 	// that beat it.
 	beaters map[[3]int][][2]int
@@ -173,7 +197,7 @@ func newEstimator(p params, tol float64) *estimator {
 		tol = defaultTolerance
 	}
 	return &estimator{p: p, tol: tol, maxTaps: defaultMaxTaps, cache: make(map[stageKey]stageVal), beaten: map[[3]int]bool{}, beaters: map[[3]int][][2]int{}, reinstated: map[string]bool{}, reinstatedCIC: map[[3]int]bool{}, margins: map[[3]int]float64{},
-		orders: []int{1, 2, 3, 4, 5, 6, 7}, delays: []int{1, 2}}
+		orders: []int{1, 2, 3, 4, 5, 6, 7}, delays: []int{1, 2}, floorPrune: true}
 }
 
 // keysOf writes the stages' keys into e.keys following chain's rules: the
@@ -253,6 +277,9 @@ func (e *estimator) score(plan []chain.StagePlan) (figs, dropCode) {
 		}
 		if v.drop != dropNone {
 			return figs{}, v.drop
+		}
+		if v.floored && e.floorPrune {
+			return figs{}, dropRoundingFloor
 		}
 		if v.taps > float64(e.maxTaps) {
 			return figs{}, dropLongFIR
@@ -353,8 +380,12 @@ func (e *estimator) stage(k stageKey) stageVal {
 		}
 		v.f = hb(kk)
 		v.work = (4*kk - 1) * (4*kk - 1) / 4
-		v.lo = hb(math.Max(1, math.Floor(kk/(1+2*e.tol))-1))
+		kLo := math.Max(1, math.Floor(kk/(1+2*e.tol))-1)
+		v.lo = hb(kLo)
 		v.hi = hb(math.Ceil(kk*(1+e.tol)) + 1)
+		// Its 2K side taps are rounded; the centre 1/2 and the zeros are
+		// exact.
+		v.floored = p.floored(2*kLo, 0.5, dev)
 		return v
 	case chain.FIR:
 		l := math.Ceil(herrmann(dpi, ds, (stop-p.fp)/rate))
@@ -378,12 +409,43 @@ func (e *estimator) stage(k stageKey) stageVal {
 		}
 		v.f = fir(l)
 		v.work = l * l
-		v.lo = fir(math.Max(3, math.Floor(l/(1+2*e.tol))-2))
+		lLo := math.Max(3, math.Floor(l/(1+2*e.tol))-2)
+		v.lo = fir(lLo)
 		v.hi = fir(math.Ceil(l*(1+e.tol)) + 2)
+		// Common practice: a lowpass decimating by R has its centre, and
+		// largest, tap near 2 fc/Fs ~ 1/R; half of that is assumed.
+		v.floored = p.floored(lLo, 0.5/float64(f), ds)
 		return v
 	}
 	v.lo, v.hi = v.f, v.f
 	return v
+}
+
+// floorMargin is how far a stage's predicted rounding floor must lie above
+// its stopband limit before the estimate tier drops it: a factor of 2, 6 dB.
+const floorMargin = 2
+
+// floored reports whether n taps whose largest is at least maxTap, rounded
+// to the spec's coefficient width, leave a stopband error above floorMargin
+// times ds even at their best: the rounding error of each tap is uniform in
+// +-q/2, q = 2^-Frac (Frac as fixed.Quantize picks it for the largest tap),
+// so the response's error is about q sqrt(n/12) RMS (common practice), and
+// a stopband of many ripples then peaks above its RMS. n and maxTap are the
+// low ends of the stage's range, so the prune errs on the side of keeping
+// a candidate: a longer stage or larger taps only raise the floor. Widths
+// beyond fixed.MaxBits, or none, floor nothing.
+func (p *params) floored(n, maxTap, ds float64) bool {
+	if p.fixedBits < 2 || p.fixedBits > fixed.MaxBits {
+		return false
+	}
+	return roundingFloor(n, maxTap, p.fixedBits) > floorMargin*ds
+}
+
+// roundingFloor is q sqrt(n/12), the RMS error of a response whose n taps,
+// the largest maxTap, are rounded to bits-bit words (see floored).
+func roundingFloor(n, maxTap float64, bits int) float64 {
+	frac := fixed.Quantize([]float64{maxTap}, bits).Frac
+	return math.Ldexp(math.Sqrt(n/12), -frac)
 }
 
 // herrmann is the Herrmann-Rabiner-Chan (1973) length N = D/df - f df + 1,
@@ -604,7 +666,7 @@ func (e *estimator) mayJoin(plan []chain.StagePlan, fs []figs) bool {
 			v = e.stage(k)
 			e.cache[k] = v
 		}
-		if v.drop != dropNone || v.taps > float64(e.maxTaps) {
+		if v.drop != dropNone || v.taps > float64(e.maxTaps) || (v.floored && e.floorPrune) {
 			return false
 		}
 		lo.mpo += v.lo.mpo
@@ -628,17 +690,6 @@ func (e *estimator) isReinstated(plan []chain.StagePlan) bool {
 	}
 	e.key = appendPlanKey(e.key[:0], plan)
 	return e.reinstated[string(e.key)]
-}
-
-// cicStage is the cached estimate of a first-stage CIC.
-func (e *estimator) cicStage(r, n, m int) stageVal {
-	k := stageKey{prefix: 1, factor: int32(r), kind: int8(chain.CIC), n: int8(n), m: int8(m)}
-	v, ok := e.cache[k]
-	if !ok {
-		v = e.stage(k)
-		e.cache[k] = v
-	}
-	return v
 }
 
 // skipCIC returns the reason to drop every candidate that starts with the
@@ -695,7 +746,7 @@ func (e *estimator) needTaps(plan []chain.StagePlan) float64 {
 			v = e.stage(k)
 			e.cache[k] = v
 		}
-		if v.drop != dropNone {
+		if v.drop != dropNone || (v.floored && e.floorPrune) {
 			return math.Inf(1)
 		}
 		need = math.Max(need, v.taps)

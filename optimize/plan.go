@@ -8,6 +8,7 @@ import (
 	"sort"
 
 	"stepdown/chain"
+	"stepdown/chain/fixed"
 	"stepdown/cost"
 )
 
@@ -30,6 +31,16 @@ const (
 const (
 	maxRedesigns    = 2
 	redesignExtraDB = 0.005
+)
+
+// With a fixed coefficient width, a chain whose rounded taps miss the spec
+// is designed again with its targets tightened by the margin rounding
+// needs, at most maxRoundingRedesigns times, each time with
+// roundingExtraDB more rejection than the measured rounding error calls
+// for (see realDesigner.survive).
+const (
+	maxRoundingRedesigns = 3
+	roundingExtraDB      = 1
 )
 
 // Plan searches every split of the spec's ratio.
@@ -143,6 +154,21 @@ func (r realDesigner) design(plan []chain.StagePlan) (Candidate, string) {
 	if err != nil {
 		return Candidate{}, ReasonDesignFailed
 	}
+	if r.rounded(r.spec) && r.atRisk(c) {
+		// Rounding may cost this chain its margin: it is measured and, if
+		// need be, re-designed now, so that what the search learns from it
+		// is the chain as it will be built.
+		f, err := cost.Evaluate(r.spec, c, r.s.Cost)
+		if err != nil {
+			return Candidate{}, ReasonEvaluateFailed
+		}
+		cd := Candidate{Plan: plan, Chain: c, Figures: f, evaluated: true}
+		if floatMisses(r.spec, f.Analysis) != "" {
+			return cd, "" // analyze re-designs it or drops it
+		}
+		cd.MarginDB = f.Analysis.AliasRejectionDB - r.spec.RejectionDB
+		return r.survive(cd, r.spec)
+	}
 	f, err := cost.Price(r.spec, c, r.s.Cost)
 	if err != nil {
 		return Candidate{}, ReasonEvaluateFailed
@@ -150,10 +176,43 @@ func (r realDesigner) design(plan []chain.StagePlan) (Candidate, string) {
 	return Candidate{Plan: plan, Chain: c, Figures: f}, ""
 }
 
+// riskRatio is the predicted rounding floor, as a fraction of a stage's
+// stopband limit, from which design measures a chain on its rounded taps
+// at once (see atRisk).
+const riskRatio = 1.0 / 4
+
+// atRisk reports whether a FIR or half-band stage of the designed chain c
+// has a predicted rounding floor q sqrt(N/12) (see roundingFloor; its own
+// largest tap and length) above riskRatio times its stopband limit Ds: the
+// rounding error's peak, a few times that RMS, may then eat a dB or more of
+// the stage's margin.
+func (r realDesigner) atRisk(c *chain.Chain) bool {
+	for _, st := range c.Stages {
+		fs, ok := st.(chain.FIRStage)
+		if !ok || len(fs.Taps) == 0 {
+			continue
+		}
+		n, big := 0.0, 0.0
+		for k, h := range fs.Taps {
+			if h != 0 && !(fs.HalfBand && k == len(fs.Taps)/2) {
+				n++ // a half-band's centre 1/2 and its zeros are exact
+			}
+			big = math.Max(big, math.Abs(h))
+		}
+		if roundingFloor(n, big, r.spec.CoefBits) > riskRatio*fs.Req.Ds {
+			return true
+		}
+	}
+	return false
+}
+
 func (r realDesigner) analyze(c Candidate) (Candidate, string) {
-	f, err := cost.Evaluate(r.spec, c.Chain, r.s.Cost)
-	if err != nil {
-		return Candidate{}, ReasonEvaluateFailed
+	f := c.Figures
+	if !c.evaluated {
+		var err error
+		if f, err = cost.Evaluate(r.spec, c.Chain, r.s.Cost); err != nil {
+			return Candidate{}, ReasonEvaluateFailed
+		}
 	}
 	margin := f.Analysis.AliasRejectionDB - r.spec.RejectionDB
 	// The stages are designed to absolute stopband limits, but the chain's
@@ -176,18 +235,145 @@ func (r realDesigner) analyze(c Candidate) (Candidate, string) {
 		if err != nil {
 			break
 		}
-		c.Chain, f = ch, g
+		c.Chain, f, c.raised, c.survived = ch, g, raise, false
 		margin = f.Analysis.AliasRejectionDB - r.spec.RejectionDB
 	}
-	a := f.Analysis
-	if margin < -rejectionSlackDB || math.IsNaN(margin) {
-		return Candidate{}, ReasonMissRejection
-	}
-	if a.PassbandRippleDB > r.spec.RippleDB+rippleSlackDB || math.IsNaN(a.PassbandRippleDB) {
-		return Candidate{}, ReasonMissRipple
+	if why := floatMisses(r.spec, f.Analysis); why != "" {
+		return Candidate{}, why
 	}
 	c.Figures, c.MarginDB = f, margin
-	return c, ""
+	if !r.rounded(r.spec) || c.survived {
+		return c, ""
+	}
+	return r.survive(c, r.spec)
+}
+
+// floatMisses returns the reason a chain measured a misses spec, or "".
+func floatMisses(spec chain.Spec, a chain.Analysis) string {
+	margin := a.AliasRejectionDB - spec.RejectionDB
+	if margin < -rejectionSlackDB || math.IsNaN(margin) {
+		return ReasonMissRejection
+	}
+	if a.PassbandRippleDB > spec.RippleDB+rippleSlackDB || math.IsNaN(a.PassbandRippleDB) {
+		return ReasonMissRipple
+	}
+	return ""
+}
+
+// rounded reports whether chains are judged on their taps rounded to
+// spec's coefficient width: a width is fixed, and within what package
+// fixed plans (above fixed.MaxBits, 40, the rounding error lies below
+// -200 dB, far under any target chain.Spec admits).
+func (r realDesigner) rounded(spec chain.Spec) bool {
+	return spec.CoefBits > 0 && spec.CoefBits <= fixed.MaxBits && !r.s.floatOnly
+}
+
+// survive measures a chain that meets spec in floating point with its taps
+// rounded to spec.CoefBits (fixed.PlanChain), with the tolerances of the
+// floating-point measurement. When it misses, the rounding error is
+// estimated as the excess of the rounded chain's worst alias over the
+// floating-point one's, as linear deviations (the two add in the worst
+// case), and the chain is designed again with the rejection target raised
+// so that its floating-point deviation plus that excess meets the target,
+// plus roundingExtraDB; a passband ripple pushed over the target by
+// rounding is tightened likewise. It tries at most maxRoundingRedesigns
+// times, giving up at once when the excess alone reaches the target, since
+// no floating-point margin makes up for it at those lengths. A re-designed
+// chain is priced and measured again (cost.Evaluate). It returns the chain
+// that meets, or the floating-point chain with the reason it was dropped.
+func (r realDesigner) survive(c Candidate, spec chain.Spec) (Candidate, string) {
+	ws, qa, err := fixed.PlanChain(spec, c.Chain, r.s.Fixed)
+	if err != nil {
+		return c, ReasonWordLengths
+	}
+	// The stages whose rounded taps miss their own bands are blamed should
+	// the chain be dropped (see designTier.learn).
+	blame, hopeless := make([]bool, len(ws.Stages)), make([]bool, len(ws.Stages))
+	for i := range ws.Stages {
+		sw := &ws.Stages[i]
+		blame[i] = !sw.MeetsBands
+		// A stage whose rounding adds its whole stopband limit to some
+		// stopband (band 0 is the passband) misses in any chain.
+		st, ok := c.Chain.Stages[i].(chain.FIRStage)
+		for j := 1; ok && blame[i] && j < len(sw.Deviations) && j < len(sw.FloatDeviations); j++ {
+			hopeless[i] = hopeless[i] || sw.Deviations[j]-sw.FloatDeviations[j] >= st.Req.Ds
+		}
+	}
+	cur, f := c, c.Figures
+	excess, rippleExcess := 0.0, 0.0
+	for try := 0; ; try++ {
+		qm := qa.AliasRejectionDB - spec.RejectionDB
+		over := qa.PassbandRippleDB - spec.RippleDB
+		if qm >= -rejectionSlackDB && over <= rippleSlackDB {
+			cur.Figures, cur.Quantised, cur.MarginDB = f, qa, qm
+			cur.evaluated, cur.survived = true, true
+			return cur, ""
+		}
+		if try == maxRoundingRedesigns || r.ctx.Err() != nil || math.IsNaN(qm) || math.IsNaN(over) {
+			break
+		}
+		dt := chain.RejectionToDev(spec.RejectionDB)
+		excess = math.Max(excess, chain.RejectionToDev(qa.AliasRejectionDB)-chain.RejectionToDev(f.Analysis.AliasRejectionDB))
+		if excess >= dt {
+			break // rounding alone misses the target
+		}
+		// The float design at cur.raised measured f; it must reach
+		// target + need instead.
+		need := -20*math.Log10(1-excess/dt) + roundingExtraDB
+		raise := math.Max(cur.raised+need-(f.Analysis.AliasRejectionDB-spec.RejectionDB), cur.raised+roundingExtraDB/2)
+		cut := cur.cut
+		if over > rippleSlackDB {
+			rippleExcess = math.Max(rippleExcess, qa.PassbandRippleDB-f.Analysis.PassbandRippleDB)
+			cut = math.Max(cut+over, rippleExcess) + spec.RippleDB/100
+			if cut >= spec.RippleDB {
+				break
+			}
+		}
+		tight := spec
+		tight.RejectionDB += raise
+		tight.RippleDB -= cut
+		ch, err := chain.Design(tight, c.Plan, r.s.Chain)
+		if err != nil {
+			break
+		}
+		g, err := cost.Evaluate(spec, ch, r.s.Cost)
+		if err != nil {
+			break
+		}
+		_, q, err := fixed.PlanChain(spec, ch, r.s.Fixed)
+		if err != nil {
+			break
+		}
+		debugf("rounding re-design %s: raise %.2f dB, cut %.3f dB: rounded %.2f -> %.2f dB, float %.2f dB", chain.Notation(c.Plan), raise, cut, qa.AliasRejectionDB, q.AliasRejectionDB, g.Analysis.AliasRejectionDB)
+		cur.Chain, cur.raised, cur.cut = ch, raise, cut
+		cur.redesigns++
+		f, qa = g, q
+		if floatMisses(spec, f.Analysis) != "" {
+			break
+		}
+	}
+	c.redesigns, c.blame, c.hopeless = cur.redesigns, blame, hopeless
+	return c, ReasonMissQuantised
+}
+
+// meetsFrom returns the least coefficient width in [lo, hi] at which the
+// chain, designed in floating point (c, as survive left it when dropped),
+// meets the spec with its taps rounded, re-designed as survive does; zero
+// when none does or ctx is cancelled.
+func (r realDesigner) meetsFrom(c Candidate, lo, hi int) int {
+	for w := lo; w <= hi && r.ctx.Err() == nil; w++ {
+		spec := r.spec
+		spec.CoefBits = w
+		f, err := cost.Evaluate(spec, c.Chain, r.s.Cost)
+		if err != nil {
+			return 0
+		}
+		c.Figures = f
+		if _, why := r.survive(c, spec); why == "" {
+			return w
+		}
+	}
+	return 0
 }
 
 // scored is a candidate kept from the estimate tier.
@@ -207,6 +393,7 @@ func search(ctx context.Context, p params, s *Settings, est *estimator, des desi
 	sp := newSpace(&p, s)
 	est.orders, est.delays = sp.orders, sp.delays
 	est.keepBeaten = s.Exhaustive
+	est.floorPrune = !s.floatOnly
 	auto := s.MaxTaps == 0
 	if !auto {
 		est.maxTaps = s.MaxTaps
@@ -245,7 +432,18 @@ func search(ctx context.Context, p params, s *Settings, est *estimator, des desi
 			resetPass(res)
 			continue
 		}
-		if !auto || res.Partial || len(res.Front) > 0 || need > autoMaxTaps {
+		if len(res.Front) == 0 && !res.Partial && est.floorPrune && res.Dropped[ReasonRoundingFloor] > 0 {
+			// Nothing met, and the rounding floor pruned some: search
+			// again without the prune, so that whatever it could have
+			// missed is designed, and the chains that miss with rounded
+			// taps name the width they need.
+			est.floorPrune = false
+			resetPass(res)
+			continue
+		}
+		// A longer stage rounds no better, so the limit is not raised when
+		// chains met in floating point and missed with their taps rounded.
+		if !auto || res.Partial || len(res.Front) > 0 || need > autoMaxTaps || res.Dropped[ReasonMissQuantised] > 0 {
 			break
 		}
 		// The limit left no chain: raise it, step by step, to the first
@@ -264,6 +462,11 @@ func search(ctx context.Context, p params, s *Settings, est *estimator, des desi
 	}
 	res.Recommended, res.Reason = recommend(fs, s)
 	switch {
+	case len(res.Front) == 0 && !res.Partial && res.Dropped[ReasonMissQuantised] > 0:
+		res.Reason = t.widthReason(p.fixedBits)
+		if res.Unsettled > 0 {
+			res.Reason += fmt.Sprintf(" The design budget (MaxDesigns, MaxWork) left %d candidates undesigned.", res.Unsettled)
+		}
 	case len(res.Front) == 0 && !res.Partial && res.Unsettled > 0:
 		res.Reason = fmt.Sprintf("No chain was designed within the design budget (MaxDesigns, MaxWork) at a tap limit of %d; %d candidates were left undesigned.", est.maxTaps, res.Unsettled)
 	case len(res.Front) == 0 && !res.Partial:
@@ -476,10 +679,19 @@ func (t *designTier) learn(band []scored) (bool, int) {
 			est.keysOf(pl)
 			st := o.c.Figures.Stages
 			if o.reason != "" || len(st) != len(pl) {
-				for _, k := range est.keys {
-					if _, ok := learnt[k]; !ok {
-						tries[k]++
+				// A chain dropped for its rounded taps blames the stages
+				// that miss their own bands once rounded; the others are
+				// learnt from it.
+				blamed := o.reason == ReasonMissQuantised && len(o.c.blame) == len(pl) && len(st) == len(pl)
+				for i, k := range est.keys {
+					if _, ok := learnt[k]; ok {
+						continue
 					}
+					if blamed && !o.c.blame[i] {
+						learnt[k] = figs{mpo: st[i].MultipliesPerOutput, bits: float64(st[i].MemoryBits), lat: st[i].LatencyS}
+						continue
+					}
+					tries[k]++
 				}
 				continue
 			}

@@ -2,6 +2,7 @@ package optimize
 
 import (
 	"context"
+	"fmt"
 	"math"
 	"sort"
 
@@ -101,6 +102,10 @@ func (t *designTier) designAll(plans [][]chain.StagePlan) bool {
 			continue
 		}
 		k := planKey(todo[i])
+		if n := outs[i].c.redesigns; n > 0 {
+			t.workLeft -= float64(n) * t.est.work(todo[i])
+		}
+		t.hopeless(todo[i], outs[i])
 		t.memo[k] = outs[i]
 		t.order = append(t.order, k)
 		t.res.Designed++
@@ -110,6 +115,23 @@ func (t *designTier) designAll(plans [][]chain.StagePlan) bool {
 		}
 	}
 	return all
+}
+
+// hopeless gives up at once the stages of a chain dropped for its rounded
+// taps whose rounding error alone exceeds their stopband limit: any chain
+// with them misses, so they are not tried again (see learn).
+func (t *designTier) hopeless(plan []chain.StagePlan, o outcome) {
+	if o.reason != ReasonMissQuantised || len(o.c.hopeless) != len(plan) {
+		return
+	}
+	t.est.keysOf(plan)
+	for i, k := range t.est.keys {
+		if o.c.hopeless[i] {
+			if _, ok := t.learnt[k]; !ok {
+				t.tries[k] = max(t.tries[k], maxRounds)
+			}
+		}
+	}
 }
 
 // fail records a chain that failed.
@@ -149,6 +171,13 @@ func (t *designTier) analyzeAll(plans [][]chain.StagePlan) bool {
 			all = false
 			continue
 		}
+		// Re-designs for rounding are charged to the work budget (not to
+		// the design count), so that a width no chain meets at cannot run
+		// up unbounded work.
+		if n := outs[i].c.redesigns; n > 0 {
+			t.workLeft -= float64(n) * t.est.work(ins[i].Plan)
+		}
+		t.hopeless(ins[i].Plan, outs[i])
 		t.memo[todo[i]] = outs[i]
 		if outs[i].reason != "" {
 			t.res.Dropped[outs[i].reason]++
@@ -209,6 +238,15 @@ func (t *designTier) settle(plans [][]chain.StagePlan, fs []figs) (bool, int) {
 			}
 		}
 		debugf("settle: front %d, to design %d", len(members), len(need))
+		// A member re-designed when analysed (for rounding, or a shortfall
+		// within the ripple) comes back with other costs, which can let
+		// another plan onto the front: the front is then taken again.
+		before := make([]figs, len(members))
+		for j, pl := range members {
+			if o, ok := t.memo[planKey(pl)]; ok {
+				before[j] = candFigs(&o.c)
+			}
+		}
 		if len(need) > 0 {
 			n := len(need)
 			need = need[:t.fit(need)]
@@ -226,13 +264,13 @@ func (t *designTier) settle(plans [][]chain.StagePlan, fs []figs) (bool, int) {
 		if !t.analyzeAll(members) {
 			return false, 0
 		}
-		failed := false
-		for _, pl := range members {
-			if t.memo[planKey(pl)].reason != "" {
-				failed = true
+		again := false
+		for j, pl := range members {
+			if o := t.memo[planKey(pl)]; o.reason != "" || candFigs(&o.c).axes() != before[j].axes() {
+				again = true
 			}
 		}
-		if !failed {
+		if !again {
 			return true, 0
 		}
 	}
@@ -261,6 +299,77 @@ func (t *designTier) front() []Candidate {
 		}
 	}
 	return designedFront(designed)
+}
+
+// widener is a designer that can name the coefficient width a dropped
+// chain needs (realDesigner.meetsFrom).
+type widener interface {
+	meetsFrom(c Candidate, lo, hi int) int
+}
+
+// widestTried is the widest coefficient width neededWidth tries.
+const widestTried = 32
+
+// namedChains is how many of the cheapest chains dropped for rounding
+// neededWidth tries.
+const namedChains = 3
+
+// neededWidth names the least coefficient width above bits, up to
+// widestTried, at which one of the namedChains cheapest chains dropped for
+// missing with rounded taps meets the spec (the front of those chains by
+// their floating-point figures, fewest multiplies first). It returns the
+// chain, the width and the chain's rank among those tried (0: the
+// cheapest), and how many were tried; the width is zero when none meets or
+// the designer cannot tell.
+func (t *designTier) neededWidth(bits int) (c Candidate, width, rank, tried int) {
+	w, ok := t.des.(widener)
+	if !ok {
+		return Candidate{}, 0, 0, 0
+	}
+	var dropped []Candidate
+	for _, k := range t.order {
+		if o := t.memo[k]; o.reason == ReasonMissQuantised {
+			dropped = append(dropped, o.c)
+		}
+	}
+	best := designedFront(dropped)
+	if len(best) > namedChains {
+		best = best[:namedChains]
+	}
+	widths := make([]int, len(best))
+	done := runAll(t.ctx, t.jobs, len(best), func(i int) {
+		widths[i] = w.meetsFrom(best[i], bits+1, widestTried)
+	}, nil)
+	bi := -1
+	for i := range best {
+		if done[i] && widths[i] > 0 && (bi < 0 || widths[i] < widths[bi]) {
+			bi = i
+		}
+	}
+	if bi < 0 {
+		return Candidate{}, 0, 0, len(best)
+	}
+	return best[bi], widths[bi], bi, len(best)
+}
+
+// widthReason is Result.Reason when no chain met the spec with its taps
+// rounded to bits-bit coefficients, naming the width that would do, and
+// sets Result.NeededCoefBits.
+func (t *designTier) widthReason(bits int) string {
+	n := t.res.Dropped[ReasonMissQuantised]
+	c, w, rank, tried := t.neededWidth(bits)
+	msg := fmt.Sprintf("No chain meets the spec with %d-bit coefficients: %d chains that met it in floating point missed it with their taps rounded.", bits, n)
+	switch {
+	case w > 0 && rank == 0:
+		t.res.NeededCoefBits = w
+		msg += fmt.Sprintf(" The cheapest of them, %s (%.4g multiplies per output), meets from %d bits.", chain.Notation(c.Plan), c.Figures.MultipliesPerOutput, w)
+	case w > 0:
+		t.res.NeededCoefBits = w
+		msg += fmt.Sprintf(" Of the %d cheapest of them, %s (%.4g multiplies per output) meets from the fewest bits, %d.", tried, chain.Notation(c.Plan), c.Figures.MultipliesPerOutput, w)
+	case tried > 0 && t.ctx.Err() == nil:
+		msg += fmt.Sprintf(" None of the %d cheapest of them meets with coefficients of up to %d bits.", tried, widestTried)
+	}
+	return msg
 }
 
 // isGone reports whether plan failed, without allocating.
