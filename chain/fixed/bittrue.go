@@ -5,6 +5,8 @@ import (
 	"math"
 	"math/rand/v2"
 	"strings"
+
+	"stepdown/chain"
 )
 
 // Tone is one sinusoid of a test signal.
@@ -31,8 +33,8 @@ type Signal struct {
 	// default tone level (see Tones).
 	AliasLevel float64
 	// AliasHz is the input frequency of the alias test tone; zero means the
-	// worst alias of the quantised cascade, searched here. (Evaluate passes
-	// chain.Analyze's figure for the quantised chain, which scans faster.)
+	// worst alias of the quantised cascade, from chain.Analyze (Evaluate
+	// passes the one PlanChain measured).
 	AliasHz float64
 	// Samples is the number of output samples measured after the filters'
 	// transients; zero means 2048, halved (down to 256) while the run would
@@ -84,7 +86,7 @@ type BitTrueResult struct {
 	AliasRejectionDB     float64 // bit-true, measured
 	AliasFloatRunDB      float64 // float chain, measured the same way
 	AliasResponseDB      float64 // frequency domain, quantised coefficients, at AliasHz
-	WorstAliasResponseDB float64 // frequency domain, quantised coefficients: worst over the alias bands, or at Signal.AliasHz when given
+	WorstAliasResponseDB float64 // frequency domain, quantised coefficients: chain.Analyze's worst over the alias bands, or at Signal.AliasHz when given
 	// AliasNoiseDB is the level (positive dB below the DC gain) of the integer
 	// output's residual noise in the measured bin (quantisation noise and the
 	// test signal's own noise); AliasValid says it is at least 20 dB below the
@@ -248,15 +250,22 @@ func BitTrue(c Cascade, w *Widths, sig Signal) (BitTrueResult, error) {
 	res.SNRValid = res.SNRNote == ""
 
 	// Run 2: a tone at the worst alias of the quantised cascade.
-	q := quantisedCascade(c, w)
+	q, qspec := cascadeChain(c, w, true)
+	h0q := q.Gain(0) * cicScale(w)
 	var g float64
 	if sig.AliasHz > 0 {
 		g = sig.AliasHz
-		res.WorstAliasResponseDB = posDB(q.gain(g) / q.gain(0))
+		res.WorstAliasResponseDB = posDB(q.Gain(g) / q.Gain(0))
 	} else {
-		g, res.WorstAliasResponseDB = worstAlias(q, fk, fa)
+		// The worst alias is chain.Analyze's, on the quantised cascade.
+		a, err := chain.Analyze(q, qspec)
+		if err != nil {
+			return BitTrueResult{}, fmt.Errorf("fixed: the quantised cascade's worst alias: %w", err)
+		}
+		g, res.WorstAliasResponseDB = a.WorstAliasHz, a.AliasRejectionDB
 	}
-	h0q := q.gain(0)
+	fch, _ := cascadeChain(c, w, false)
+	h0f := fch.Gain(0) * cicScale(w)
 	a := math.Pow(10, sig.AliasLevel/20)
 	g0 := g
 	// A window four times as long lowers the noise in the bin by 6 dB; the
@@ -276,7 +285,7 @@ func BitTrue(c Cascade, w *Widths, sig Signal) (BitTrueResult, error) {
 			g += fout - fold
 		}
 		res.AliasHz, res.AliasOutHz, res.AliasSamples = g, fout, win
-		res.AliasResponseDB = posDB(q.gain(g) / h0q)
+		res.AliasResponseDB = posDB(q.Gain(g) / q.Gain(0))
 		xa := make([]float64, (skip+win)*d)
 		addTone(xa, g, a, 2*math.Pi*rng.Float64(), c.InputRate)
 		addNoise(xa, noise, rng)
@@ -284,7 +293,7 @@ func BitTrue(c Cascade, w *Widths, sig Signal) (BitTrueResult, error) {
 		ai, resid := project(yi[skip:skip+win], fout/fk)
 		af, _ := project(yf[skip:skip+win], fout/fk)
 		res.AliasRejectionDB = posDB(ai / (a * h0q))
-		res.AliasFloatRunDB = posDB(af / (a * c.floatGain(0, w)))
+		res.AliasFloatRunDB = posDB(af / (a * h0f))
 		res.AliasNoiseDB = posDB(2 * resid / math.Sqrt(float64(win)) / (a * h0q))
 		res.AliasValid = res.AliasNoiseDB >= res.AliasRejectionDB+20
 		if res.AliasValid || res.AliasNoiseDB+12 < res.AliasRejectionDB+20 || (skip+4*win)*d > autoInputSamples || win >= 16*nm {

@@ -81,7 +81,8 @@
 //
 // BitTrue runs the cascade in integer arithmetic and in float64 with the same
 // structure and gains on a test signal (Signal: tones plus white Gaussian noise
-// at a stated level), and on one tone at the quantised cascade's worst alias.
+// at a stated level), and on one tone at the quantised cascade's worst alias
+// (chain.Analyze's: the chain package owns the response of a cascade).
 // It reports SNR, ENOB, the DC offset of the truncations, the alias rejection
 // measured bit-true by projection onto the output tone over a whole number of
 // cycles after the transients, and the same figure from the frequency

@@ -30,8 +30,9 @@ func handChain(t *testing.T) (chain.Spec, *chain.Chain) {
 }
 
 func TestFromChainAgainstChainPackage(t *testing.T) {
-	// Two implementations of DESIGN §7 must agree: the chain package's
-	// Analyze and Run against this package's response and float run.
+	// The chain package owns the response (DESIGN §7): the bit-true run's
+	// worst alias on the cascade must be chain.Analyze's on QuantisedChain,
+	// and this package's float run must agree with chain.Run.
 	spec, c := handChain(t)
 	cas, words, err := FromChain(spec, c)
 	if err != nil {
@@ -47,14 +48,9 @@ func TestFromChainAgainstChainPackage(t *testing.T) {
 		}
 		t.Logf("stage %d: %d-bit coefficients (%d moved), accumulator %d, output %d", i+1, sw.Coefficients.Bits, sw.Coefficients.Adjusted, sw.AccumulatorBits, sw.OutputBits)
 	}
-	// The float response: chain.Analyze against worstAlias.
 	a, err := chain.Analyze(c, spec)
 	if err != nil {
 		t.Fatal(err)
-	}
-	_, mine := worstAlias(newResp(cas, w, false), spec.OutputRate, spec.Passband)
-	if math.Abs(mine-a.AliasRejectionDB) > 0.05 {
-		t.Errorf("float alias rejection %.3f dB here, chain.Analyze %.3f dB", mine, a.AliasRejectionDB)
 	}
 	// The quantised response: chain.Analyze on a copy with quantised taps.
 	aq, err := chain.Analyze(QuantisedChain(c, w), spec)
