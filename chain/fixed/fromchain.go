@@ -2,6 +2,7 @@ package fixed
 
 import (
 	"fmt"
+	"math"
 
 	"stepdown/chain"
 	"stepdown/chain/remez"
@@ -109,8 +110,11 @@ type Result struct {
 
 // PlanChain plans the word lengths of a designed chain (FromChain, then
 // Plan) and measures the chain as it will be built: chain.Analyze on the
-// rounded taps (QuantisedChain). It is the one call that judges a chain on
-// its quantised coefficients; the search and the report both use it.
+// rounded taps (QuantisedChain). With "auto" coefficient widths it then
+// widens the stages responsible until the whole quantised chain meets the
+// spec (see widen and the package doc). It is the one call that judges a
+// chain on its quantised coefficients; the search and the report both use
+// it.
 func PlanChain(spec chain.Spec, c *chain.Chain, s Settings) (*Widths, chain.Analysis, error) {
 	_, ws, a, err := planChain(spec, c, s)
 	return ws, a, err
@@ -130,7 +134,116 @@ func planChain(spec chain.Spec, c *chain.Chain, s Settings) (Cascade, *Widths, c
 	if err != nil {
 		return Cascade{}, nil, chain.Analysis{}, err
 	}
+	if w.CoefBits == 0 {
+		ws, a, err = widen(spec, c, cas, w, s, ws, a)
+		if err != nil {
+			return Cascade{}, nil, chain.Analysis{}, err
+		}
+	}
 	return cas, ws, a, nil
+}
+
+// The whole-chain check of "auto" coefficient widths: the quantised chain
+// must reach the spec's rejection within RejectionSlackDB and its ripple
+// within RippleSlackDB (or the float chain's own figures, when the design
+// itself falls short of the spec: no width can do better than the taps).
+const (
+	RejectionSlackDB = 0.01
+	RippleSlackDB    = 1e-4
+	// maxWidenSteps bounds the bits widen adds over the whole chain.
+	maxWidenSteps = 24
+)
+
+// widen makes "auto" coefficient widths meet the spec on the whole chain:
+// while chain.Analyze on the quantised chain falls short, it adds a bit to
+// the stage whose rounding costs the most (at the worst alias for the
+// rejection, over the passband for the ripple) and plans again, until the
+// chain meets, the stage reaches its width limit (QuantSettings.MaxBits) or
+// maxWidenSteps bits were added. It returns the last plan and its analysis.
+func widen(spec chain.Spec, c *chain.Chain, cas Cascade, w Words, s Settings, ws *Widths, a chain.Analysis) (*Widths, chain.Analysis, error) {
+	spec, err := spec.Normalize()
+	if err != nil {
+		return nil, chain.Analysis{}, err
+	}
+	fa, err := chain.Analyze(c, spec)
+	if err != nil {
+		return nil, chain.Analysis{}, err
+	}
+	rejTarget := math.Min(spec.RejectionDB, fa.AliasRejectionDB) - RejectionSlackDB
+	ripTarget := math.Max(spec.RippleDB, fa.PassbandRippleDB) + RippleSlackDB
+	limit := s.Quant.MaxBits
+	if limit == 0 {
+		limit = 32
+	}
+	minBits := make([]int, len(ws.Stages))
+	for step := 0; step < maxWidenSteps; step++ {
+		shortRej := a.AliasRejectionDB < rejTarget
+		if !shortRej && a.PassbandRippleDB <= ripTarget {
+			break
+		}
+		i := culprit(c, cas, ws, a, shortRej)
+		if i < 0 || ws.Stages[i].Coefficients.Bits >= limit {
+			break
+		}
+		minBits[i] = ws.Stages[i].Coefficients.Bits + 1
+		next, err := plan(cas, w, s, minBits)
+		if err != nil {
+			return nil, chain.Analysis{}, err
+		}
+		na, err := chain.Analyze(QuantisedChain(c, next), spec)
+		if err != nil {
+			return nil, chain.Analysis{}, err
+		}
+		ws, a = next, na
+	}
+	for i := range ws.Stages {
+		sw := &ws.Stages[i]
+		if minBits[i] > 0 {
+			sw.Points = append(sw.Points, fmt.Sprintf("coefficients: widened to %d bits so that the quantised chain meets the spec", sw.Coefficients.Bits))
+		}
+	}
+	return ws, a, nil
+}
+
+// culprit returns the FIR stage whose rounding costs the chain the most:
+// for the rejection, the one whose float taps (gain correction included)
+// would lower the quantised chain's response at the worst alias the most;
+// for the ripple, the one with the largest relative rounding error of its
+// amplitude over the passband. It returns -1 when the chain has no FIR.
+func culprit(c *chain.Chain, cas Cascade, ws *Widths, a chain.Analysis, rejection bool) int {
+	best, bestV := -1, math.Inf(-1)
+	q := QuantisedChain(c, ws)
+	for i, st := range cas.Stages {
+		if st.CIC {
+			continue
+		}
+		sw := &ws.Stages[i]
+		ft, qt := sw.floatTaps(st), sw.Coefficients.Float()
+		var v float64
+		if rejection {
+			alt := *q
+			alt.Stages = append([]chain.Stage(nil), q.Stages...)
+			fs, ok := alt.Stages[i].(chain.FIRStage)
+			if !ok {
+				continue
+			}
+			fs.Taps = ft
+			alt.Stages[i] = fs
+			g := a.WorstAliasHz
+			v = q.Gain(g)/q.Gain(0) - alt.Gain(g)/alt.Gain(0)
+		} else {
+			const pts = 256
+			for j := 0; j <= pts; j++ {
+				f := cas.Passband * float64(j) / pts
+				af := Amplitude(ft, f, sw.InputRate)
+				v = math.Max(v, math.Abs(Amplitude(qt, f, sw.InputRate)-af)/math.Max(math.Abs(af), 1e-300))
+			}
+		}
+		if v > bestV {
+			best, bestV = i, v
+		}
+	}
+	return best
 }
 
 // Evaluate is the one call for a designed chain: PlanChain, then BitTrue

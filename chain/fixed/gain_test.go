@@ -110,3 +110,85 @@ func TestUnityGain(t *testing.T) {
 		})
 	}
 }
+
+func TestAutoWidthsMeetChain(t *testing.T) {
+	// Issue 11: "auto" widths are chosen per stage on the stage's own bands;
+	// PlanChain then widens the stage(s) responsible until the whole
+	// quantised chain meets the spec (chain.Analyze, 0.01 dB rejection and
+	// 1e-4 dB ripple slack). Invented chains are designed for the spec, then
+	// handed to the planner with looser stage requirements (designed for a
+	// 60 dB, 0.5 dB spec), so that the per-stage widths alone fall short of
+	// the spec the float chain meets.
+	for _, tc := range []struct {
+		notation      string
+		rej, rippleDB float64
+	}{
+		{"cic4m1r8 > hb > fir2", 90, 0.05},
+		{"cic3m1r5 > fir4", 90, 0.05},
+		{"fir4 > hb > fir2", 90, 0.05},
+		{"cic4m1r6 > fir4", 65, 0.005},
+		{"fir4 > fir2", 65, 0.005},
+	} {
+		t.Run(tc.notation, func(t *testing.T) {
+			plan, _ := chain.ParseNotation(tc.notation)
+			d := 1
+			for _, p := range plan {
+				d *= p.Factor
+			}
+			spec := chain.Spec{InputRate: 1e6 * float64(d), OutputRate: 1e6, Passband: 0.1e6, RippleDB: tc.rippleDB, RejectionDB: tc.rej, InputBits: 16, OutputBits: 24}
+			c := designed(t, spec, tc.notation)
+			loose := spec
+			loose.RejectionDB, loose.RippleDB = 60, 0.5
+			reqs, err := chain.Requirements(loose, plan)
+			if err != nil {
+				t.Fatal(err)
+			}
+			lc := *c
+			lc.Stages = append([]chain.Stage(nil), c.Stages...)
+			for i, s := range lc.Stages {
+				if f, ok := s.(chain.FIRStage); ok {
+					f.Req = reqs[i]
+					lc.Stages[i] = f
+				}
+			}
+			fa, err := chain.Analyze(c, spec)
+			if err != nil {
+				t.Fatal(err)
+			}
+			cas, w, err := FromChain(spec, &lc)
+			if err != nil {
+				t.Fatal(err)
+			}
+			own, err := Plan(cas, w, Settings{})
+			if err != nil {
+				t.Fatal(err)
+			}
+			oa, err := chain.Analyze(QuantisedChain(&lc, own), spec)
+			if err != nil {
+				t.Fatal(err)
+			}
+			ws, a, err := PlanChain(spec, &lc, Settings{})
+			if err != nil {
+				t.Fatal(err)
+			}
+			var ownBits, bits []int
+			for i := range ws.Stages {
+				ownBits = append(ownBits, own.Stages[i].Coefficients.Bits)
+				bits = append(bits, ws.Stages[i].Coefficients.Bits)
+			}
+			t.Logf("float %.2f dB / %.4f dB; per-stage widths %v: %.2f dB / %.4f dB; widened %v: %.2f dB / %.4f dB",
+				fa.AliasRejectionDB, fa.PassbandRippleDB, ownBits, oa.AliasRejectionDB, oa.PassbandRippleDB, bits, a.AliasRejectionDB, a.PassbandRippleDB)
+			if oa.AliasRejectionDB >= spec.RejectionDB-RejectionSlackDB && oa.PassbandRippleDB <= spec.RippleDB+RippleSlackDB {
+				t.Errorf("the per-stage widths already meet the spec: the case has no teeth")
+			}
+			if a.AliasRejectionDB < spec.RejectionDB-RejectionSlackDB || a.PassbandRippleDB > spec.RippleDB+RippleSlackDB {
+				t.Errorf("widened chain misses the spec: %+v", a)
+			}
+			for i := range bits {
+				if bits[i] < ownBits[i] {
+					t.Errorf("stage %d narrowed from %d to %d bits", i+1, ownBits[i], bits[i])
+				}
+			}
+		})
+	}
+}
