@@ -79,7 +79,8 @@ type StageWidths struct {
 
 	InputBits int
 	// FIR: the quantised coefficients (full impulse response) and their measured
-	// per-band deviations; MeetsBands says whether every band is met (false
+	// per-band deviations (with a gain correction, of the corrected taps
+	// against the bands scaled by GainCorrection); MeetsBands says whether every band is met (false
 	// when Words.CoefBits fixes a width too narrow for the bands, or when the
 	// float design itself misses them: see FloatMeets).
 	Coefficients Coefficients

@@ -63,9 +63,10 @@
 //     response from register j to the output, and the sum of those terms
 //     (CICPruning.TruncationBound) must fit in 2^(FullBits-1) - (RM)^N
 //     2^(Bin-1). When (RM)^N is a power of two that room is zero, so a pruned
-//     CIC gets one guard bit and its gain halves (1/2 instead of 1); the gain
-//     correction (Settings.UnityGain) can restore it. PruneCIC tries 0, 1 and 2 guard bits
-//     and otherwise prunes less (very narrow output words);
+//     CIC gets one guard bit and its gain halves (1/2 instead of 1); the
+//     gain correction (Settings.UnityGain) can restore it. PruneCIC tries 0,
+//     1 and 2 guard bits and otherwise prunes less (very narrow output
+//     words);
 //   - FIR and half-band: exact products and sum in an accumulator of
 //     AccumulatorBits: the narrowest two's-complement width that holds the
 //     largest and the smallest sum any input can make, the full-scale input
