@@ -5,10 +5,6 @@ import (
 	"fmt"
 	"math"
 	"sort"
-
-	"gonum.org/v1/gonum/dsp/fourier"
-
-	"stepdown/chain/remez"
 )
 
 // Analysis is the truth of a designed cascade (DESIGN §7).
@@ -39,7 +35,7 @@ func Analyze(c *Chain, spec Spec) (Analysis, error) {
 	if !c.Designed || !hasTaps(c) {
 		return estimateAnalysis(c, spec)
 	}
-	return measure(c, spec, nil), nil
+	return measure(c, spec)
 }
 
 func hasTaps(c *Chain) bool {
@@ -179,82 +175,18 @@ func golden(f func(float64) float64, a, b float64, sign float64) (float64, float
 	return bx, bv
 }
 
-// stageGrid is one stage's magnitude sampled on [0, rate/2] at its own input
-// rate, for fast interpolated look-ups during the cascade scan.
-type stageGrid struct {
-	rate float64
-	step float64 // Hz between grid points
-	n    int     // intervals: grid points 0..n
-	mag  []float64
-	// blockMax[b] is the largest of mag[b B : (b+1) B], B = gridBlock, for
-	// range maxima that bound a band's response before it is scanned.
-	blockMax []float64
-}
+// candidateWindow is how far below the best grid value (dB) a grid
+// extremum may lie and still be refined by maximizeBands.
+const candidateWindow = 0.5
 
-const gridBlock = 64
-
-func (g *stageGrid) initBlocks() {
-	nb := (len(g.mag) + gridBlock - 1) / gridBlock
-	g.blockMax = make([]float64, nb)
-	for b := range g.blockMax {
-		m := 0.0
-		for _, v := range g.mag[b*gridBlock : min(len(g.mag), (b+1)*gridBlock)] {
-			m = math.Max(m, math.Abs(v))
-		}
-		g.blockMax[b] = m
-	}
-}
-
-// rangeMax returns the largest grid value covering [a, b], 0 <= a <= b <= rate/2.
-func (g *stageGrid) rangeMax(a, b float64) float64 {
-	i0 := max(0, int(math.Floor(a/g.step)))
-	i1 := min(g.n, int(math.Ceil(b/g.step)))
-	m := 0.0
-	for i0 <= i1 {
-		if i0%gridBlock == 0 && i0+gridBlock-1 <= i1 {
-			m = math.Max(m, g.blockMax[i0/gridBlock])
-			i0 += gridBlock
-			continue
-		}
-		m = math.Max(m, math.Abs(g.mag[i0]))
-		i0++
-	}
-	return m
-}
-
-// bandMax returns the largest grid value of the stage over input
-// frequencies [lo, hi], folding them onto [0, rate/2].
-func (g *stageGrid) bandMax(lo, hi float64) float64 {
-	f := g.rate
-	if hi-lo >= f/2 {
-		return g.rangeMax(0, f/2)
-	}
-	x := math.Mod(lo, f)
-	y := x + (hi - lo)
-	m := 0.0
-	for k := 0; k < 4; k++ {
-		s, e := math.Max(x, float64(k)*f/2), math.Min(y, float64(k+1)*f/2)
-		if s > e {
-			continue
-		}
-		switch k {
-		case 0:
-			m = math.Max(m, g.rangeMax(s, e))
-		case 1:
-			m = math.Max(m, g.rangeMax(f-e, f-s))
-		case 2:
-			m = math.Max(m, g.rangeMax(s-f, e-f))
-		case 3:
-			m = math.Max(m, g.rangeMax(2*f-e, 2*f-s))
-		}
-	}
-	return m
-}
-
-// gridPointsPerTap sets the grid density: 16 points per tap over [0, rate/2]
-// is 32 per lobe of width rate/N, where linear interpolation of the magnitude
-// errs by well under 0.01 dB near a peak.
+// gridPointsPerTap sets the bound grids' density: 16 points per tap over
+// [0, rate/2], so that the Taylor terms of a grid bound (bound.go) stay
+// within a few per cent of the magnitude at a ripple's peak.
 const gridPointsPerTap = 16
+
+// minGridPoints keeps short filters' grids fine enough that their bounds are
+// tight.
+const minGridPoints = 1024
 
 func nextPow2(n int) int {
 	p := 1
@@ -264,249 +196,205 @@ func nextPow2(n int) int {
 	return p
 }
 
-func newStageGrid(s Stage, rate float64) stageGrid {
-	var g stageGrid
-	g.rate = rate
-	switch st := s.(type) {
-	case CICStage:
-		// The signed response r^N, r = sin(pi x R M)/(R M sin(pi x)), is
-		// smooth through its zeros, where |r|^N has cusps.
-		g.n = nextPow2(max(minGridPoints, gridPointsPerTap*st.R*st.M))
-		g.mag = make([]float64, g.n+1)
-		g.step = rate / 2 / float64(g.n)
-		rm := float64(st.R * st.M)
-		for i := range g.mag {
-			x := float64(i) * g.step / rate
-			r := 1.0
-			if i > 0 {
-				r = math.Sin(math.Pi*math.Mod(x*rm, 2)) / (rm * math.Sin(math.Pi*x))
-			}
-			g.mag[i] = math.Pow(math.Abs(r), float64(st.N))
-			if r < 0 && st.N%2 == 1 {
-				g.mag[i] = -g.mag[i]
-			}
-		}
-	case FIRStage:
-		g.n = nextPow2(max(minGridPoints, gridPointsPerTap*len(st.Taps)))
-		g.step = rate / 2 / float64(g.n)
-		if symmetric(st.Taps) {
-			g.mag = amplitudeGrid(st.Taps, g.n)
-		} else {
-			g.mag = remez.NewSpectrum(g.n+1).Magnitude(make([]float64, g.n+1), st.Taps)
-		}
-	default:
-		g.n = 1 << 12
-		g.mag = make([]float64, g.n+1)
-		g.step = rate / 2 / float64(g.n)
-		for i := range g.mag {
-			g.mag[i] = s.Gain(float64(i)*g.step, rate)
-		}
-	}
-	g.initBlocks()
-	return g
-}
-
-// minGridPoints keeps short filters' grids fine enough that a cascade's peak
-// found on them lies within a scan step of the true one.
-const minGridPoints = 1024
-
-func symmetric(h []float64) bool {
-	n := len(h)
-	scale := 0.0
-	for _, v := range h {
-		scale = math.Max(scale, math.Abs(v))
-	}
-	for i := 0; i < n/2; i++ {
-		if math.Abs(h[i]-h[n-1-i]) > 1e-12*scale {
-			return false
-		}
-	}
-	return true
-}
-
-// amplitudeGrid returns the zero-phase amplitude A(f_k) = Re(e^(j w c) H(e^(j w))),
-// c = (N-1)/2, of the symmetric filter h at f_k = k rate/(2n), k = 0..n, by
-// one real FFT of length 2n >= N. Unlike |H| it is smooth through the
-// stopband's zeros, so interpolating it is accurate there too.
-func amplitudeGrid(h []float64, n int) []float64 {
-	l := 2 * n
-	seq := make([]float64, l)
-	copy(seq, h)
-	coef := fourier.NewFFT(l).Coefficients(nil, seq)
-	c := float64(len(h)-1) / 2
-	out := make([]float64, n+1)
-	for k := range out {
-		w := math.Pi * float64(k) / float64(n)
-		sn, cs := math.Sincos(w * c)
-		out[k] = real(coef[k])*cs - imag(coef[k])*sn
-	}
-	return out
-}
-
-type extremum struct{ x, v float64 }
-
-// scanner walks the cascade's interpolated response over a band.
-type scanner struct {
-	grids []stageGrid
-	h     float64   // scan step, Hz
-	u     []float64 // per-stage position in grid units on [0, 2n)
-	du    []float64
-}
-
-func newScanner(c *Chain) *scanner {
-	rates := c.Rates()
-	sc := &scanner{h: math.Inf(1)}
-	for i, s := range c.Stages {
-		g := newStageGrid(s, rates[i])
-		sc.grids = append(sc.grids, g)
-		sc.h = math.Min(sc.h, g.step)
-	}
-	sc.u = make([]float64, len(sc.grids))
-	sc.du = make([]float64, len(sc.grids))
-	return sc
-}
-
-// band scans [lo, hi] and calls visit for each local extremum of the
-// interpolated cascade magnitude (maxima when sign > 0, minima when < 0),
-// band ends included.
-func (sc *scanner) band(lo, hi float64, sign float64, visit func(x, v float64)) float64 {
-	npts := int(math.Ceil((hi-lo)/sc.h)) + 1
-	if npts < 3 {
-		npts = 3
-	}
-	hb := (hi - lo) / float64(npts-1)
-	for i, g := range sc.grids {
-		sc.u[i] = math.Mod(lo, g.rate) / g.step
-		sc.du[i] = hb / g.step
-	}
-	prev2, prev1 := math.Inf(-1), math.Inf(-1)
-	for j := 0; j <= npts; j++ {
-		v := math.Inf(-1)
-		if j < npts {
-			p := 1.0
-			for i := range sc.grids {
-				g := &sc.grids[i]
-				u := sc.u[i]
-				n2 := float64(2 * g.n)
-				for u >= n2 {
-					u -= n2
-				}
-				sc.u[i] = u + sc.du[i]
-				if u > float64(g.n) {
-					u = n2 - u
-				}
-				k := int(u)
-				if k >= g.n {
-					p *= g.mag[g.n]
-					continue
-				}
-				t := u - float64(k)
-				p *= g.mag[k] + t*(g.mag[k+1]-g.mag[k])
-			}
-			v = sign * math.Abs(p)
-		}
-		if j >= 1 && prev1 >= prev2 && prev1 >= v {
-			visit(lo+float64(j-1)*hb, sign*prev1)
-		}
-		prev2, prev1 = prev1, v
-	}
-	return hb
-}
-
-// Refinement limits: how many grid extrema are refined on the direct
-// response, and how far below the best grid value a candidate may lie.
+// How far above the largest evaluated gain (below the smallest, for a
+// minimum) the certified bound may stay when the search stops: the figures
+// are pessimistic by at most this much and never optimistic. The passband's
+// is far tighter because designs meet the ripple budget with little to
+// spare, and its few ripples are cheap to certify.
 const (
-	maxCandidates   = 64
-	candidateWindow = 0.5 // dB
+	aliasCertifyDB  = 0.002
+	rippleCertifyDB = 1e-5
 )
 
-// measure computes the DESIGN §7 figures of a chain with taps. When grids is
-// not nil it is reused.
-func measure(c *Chain, spec Spec, sc *scanner) Analysis {
-	if sc == nil {
-		sc = newScanner(c)
+// maxBoundSteps bounds the branch-and-bound's work per figure. When it runs
+// out, the figure is the bound reached so far: still safe, less tight.
+const maxBoundSteps = 1 << 18
+
+// cascade evaluates and bounds a chain's |H| at input frequencies.
+type cascade struct {
+	c      *Chain
+	stages []stageBounder
+}
+
+func newCascade(c *Chain) (*cascade, error) {
+	rates := c.Rates()
+	cs := &cascade{c: c}
+	for i, s := range c.Stages {
+		b, err := newStageBounder(s, rates[i])
+		if err != nil {
+			return nil, fmt.Errorf("chain: stage %d: %w", i+1, err)
+		}
+		cs.stages = append(cs.stages, b)
+	}
+	return cs, nil
+}
+
+// bounds returns lo <= |H(f)| <= up over [a, b] as the products of the
+// stages' bounds.
+func (cs *cascade) bounds(a, b float64) (lo, up float64) {
+	lo, up = 1, 1
+	for _, s := range cs.stages {
+		l, u := s.bounds(a, b)
+		lo *= l
+		up *= u
+	}
+	return lo, up
+}
+
+// extreme is the result of a certified search: v = |H(x)| evaluated, and a
+// bound: for a maximum, bound >= every |H| over the bands and
+// bound <= v 10^(certifyDB/20) unless the step budget ran out; for a
+// minimum the same with the inequalities reversed.
+type extreme struct{ x, v, bound float64 }
+
+// ivl is one interval of the branch-and-bound, key its bound times sign.
+type ivl struct{ lo, hi, key float64 }
+
+type ivlHeap []ivl
+
+func (h *ivlHeap) push(v ivl) {
+	*h = append(*h, v)
+	a := *h
+	i := len(a) - 1
+	for i > 0 {
+		p := (i - 1) / 2
+		if a[p].key >= a[i].key {
+			break
+		}
+		a[p], a[i] = a[i], a[p]
+		i = p
+	}
+}
+
+func (h *ivlHeap) pop() ivl {
+	a := *h
+	top := a[0]
+	last := len(a) - 1
+	a[0] = a[last]
+	a = a[:last]
+	i := 0
+	for {
+		l, r, m := 2*i+1, 2*i+2, i
+		if l < len(a) && a[l].key > a[m].key {
+			m = l
+		}
+		if r < len(a) && a[r].key > a[m].key {
+			m = r
+		}
+		if m == i {
+			break
+		}
+		a[m], a[i] = a[i], a[m]
+		i = m
+	}
+	*h = a
+	return top
+}
+
+// search finds the largest (sign > 0) or smallest (sign < 0) |H| over the
+// bands by branch and bound: the interval with the most extreme bound is
+// split at its midpoint, where |H| is evaluated, until no interval's bound
+// can beat the best evaluated value by more than certifyDB. Only evaluated
+// gains ever become the best, and only rigorous bounds prune, so the
+// returned bound is never on the optimistic side of the truth.
+func (cs *cascade) search(bands []Interval, sign, certifyDB float64) extreme {
+	tol := math.Pow(10, certifyDB/20)
+	key := func(a, b float64) float64 {
+		lo, up := cs.bounds(a, b)
+		if sign > 0 {
+			return up
+		}
+		return -lo
+	}
+	// done says the key k cannot beat the best value v by more than tol.
+	done := func(k, v float64) bool {
+		if sign > 0 {
+			return k <= v*tol
+		}
+		return -k >= v/tol
+	}
+	best := extreme{v: math.Inf(int(-sign))}
+	eval := func(x float64) {
+		v := cs.c.Gain(x)
+		if sign*v > sign*best.v {
+			best.x, best.v = x, v
+		}
+	}
+	var h ivlHeap
+	for _, b := range bands {
+		eval(b.Lo)
+		h.push(ivl{b.Lo, b.Hi, key(b.Lo, b.Hi)})
+	}
+	// dropped is the most extreme key of the intervals discarded unsplit.
+	dropped := math.Inf(-1)
+	for steps := 0; len(h) > 0; steps++ {
+		top := h.pop()
+		if done(top.key, best.v) {
+			dropped = math.Max(dropped, top.key)
+			break
+		}
+		mid := top.lo + (top.hi-top.lo)/2
+		if steps >= maxBoundSteps || !(mid > top.lo && mid < top.hi) {
+			dropped = math.Max(dropped, top.key)
+			break
+		}
+		eval(mid)
+		for _, p := range [2][2]float64{{top.lo, mid}, {mid, top.hi}} {
+			k := key(p[0], p[1])
+			if done(k, best.v) {
+				dropped = math.Max(dropped, k)
+				continue
+			}
+			h.push(ivl{p[0], p[1], k})
+		}
+	}
+	for _, it := range h {
+		dropped = math.Max(dropped, it.key)
+	}
+	best.bound = best.v
+	if sign > 0 {
+		best.bound = math.Max(best.v, dropped)
+	} else if !math.IsInf(dropped, -1) {
+		best.bound = math.Min(best.v, -dropped)
+	}
+	return best
+}
+
+// measure computes the DESIGN §7 figures of a chain with taps, certified by
+// (*cascade).search: the rejection is taken at the upper bound of the worst
+// alias band and the ripple from the upper bound of the passband's maximum
+// over the lower bound of its minimum, so that both are pessimistic by at
+// most aliasCertifyDB and 2 rippleCertifyDB and never optimistic. WorstAliasHz is where the
+// largest alias gain was evaluated.
+func measure(c *Chain, spec Spec) (Analysis, error) {
+	cs, err := newCascade(c)
+	if err != nil {
+		return Analysis{}, err
 	}
 	fk, fa, fp := spec.OutputRate, spec.Protected, spec.Passband
 	f0h := c.InputRate / 2
 	h0 := c.Gain(0)
 	if !(h0 > 0) {
-		return Analysis{AliasRejectionDB: 0, PassbandRippleDB: MaxFigureDB}
+		return Analysis{AliasRejectionDB: 0, PassbandRippleDB: MaxFigureDB}, nil
 	}
-
-	// Alias rejection. Bound each band by the product of its stages' grid
-	// maxima over it, then scan the bands from the highest bound down and stop
-	// when no remaining band can come within the candidate window: most bands
-	// lie deep in some stage's stopband and are never scanned.
-	type cand struct{ x, v, lo, hi, h float64 }
-	type band struct{ lo, hi, bound float64 }
-	var bands []band
+	var bands []Interval
 	for k := 1; float64(k)*fk-fa <= f0h; k++ {
 		lo, hi := float64(k)*fk-fa, math.Min(float64(k)*fk+fa, f0h)
 		if hi <= lo {
 			continue
 		}
-		b := 1.0
-		for i := range sc.grids {
-			b *= sc.grids[i].bandMax(lo, hi)
-		}
-		bands = append(bands, band{lo, hi, b})
+		bands = append(bands, Interval{lo, hi})
 	}
-	sort.SliceStable(bands, func(i, j int) bool { return bands[i].bound > bands[j].bound })
-	var cands []cand
-	best := 0.0
-	win := math.Pow(10, -candidateWindow/20)
-	for _, bd := range bands {
-		if bd.bound < best*win {
-			break
-		}
-		lo, hi := bd.lo, bd.hi
-		hb := sc.band(lo, hi, 1, func(x, v float64) {
-			if v >= best*win {
-				cands = append(cands, cand{x: x, v: v, lo: lo, hi: hi})
-				if v > best {
-					best = v
-				}
-			}
-		})
-		for i := len(cands) - 1; i >= 0 && cands[i].h == 0; i-- {
-			cands[i].h = hb
-		}
+	a := Analysis{AliasRejectionDB: MaxFigureDB}
+	if len(bands) > 0 {
+		w := cs.search(bands, 1, aliasCertifyDB)
+		a.AliasRejectionDB, a.WorstAliasHz = -toDB(w.bound/h0), w.x
 	}
-	sort.SliceStable(cands, func(i, j int) bool { return cands[i].v > cands[j].v })
-	worstX, worstV := 0.0, 0.0
-	for i, cd := range cands {
-		if i >= maxCandidates || cd.v < best*win {
-			break
-		}
-		x, v := refine(c.Gain, cd.x, cd.h, cd.lo, cd.hi, 1)
-		if v > worstV {
-			worstX, worstV = x, v
-		}
+	pass := []Interval{{0, fp}}
+	hi, lo := cs.search(pass, 1, rippleCertifyDB), cs.search(pass, -1, rippleCertifyDB)
+	a.PassbandRippleDB = toDB(hi.bound / lo.bound)
+	if !(lo.bound > 0) {
+		a.PassbandRippleDB = MaxFigureDB
 	}
-	a := Analysis{AliasRejectionDB: -toDB(worstV / h0), WorstAliasHz: worstX}
-
-	// Passband ripple: refine the highest maxima and the lowest minima.
-	hi, lo := refineExtrema(c, sc, fp, 1), refineExtrema(c, sc, fp, -1)
-	a.PassbandRippleDB = toDB(hi / lo)
-	return a
-}
-
-func refineExtrema(c *Chain, sc *scanner, fp, sign float64) float64 {
-	var ex []extremum
-	hb := sc.band(0, fp, sign, func(x, v float64) { ex = append(ex, extremum{x, v}) })
-	sort.SliceStable(ex, func(i, j int) bool { return sign*ex[i].v > sign*ex[j].v })
-	best := c.Gain(0)
-	if sign*c.Gain(fp) > sign*best {
-		best = c.Gain(fp)
-	}
-	for i, e := range ex {
-		if i >= maxCandidates {
-			break
-		}
-		_, v := refine(c.Gain, e.x, hb, 0, fp, sign)
-		if sign*v > sign*best {
-			best = v
-		}
-	}
-	return best
+	return a, nil
 }

@@ -135,19 +135,38 @@
 //
 // # Analysis (DESIGN §7)
 //
-// Analyze measures alias rejection and passband ripple exactly as DESIGN §7
-// defines them. To stay fast on chains with thousands of alias bands, each
-// stage's response is computed once on a grid at its own rate (FFT, 32
-// points per lobe, at least 1025 points): the signed zero-phase amplitude of
-// a symmetric FIR and the signed CIC response, which, unlike magnitudes, stay
-// smooth through their zeros and interpolate well. Each alias band is bounded
-// by the product of its stages' grid maxima over it; bands are scanned from
-// the highest bound down (linear interpolation of the grids at the finest
-// stage's spacing) until no remaining band can come within 0.5 dB of the
-// worst; every grid extremum within 0.5 dB of the worst (at most 64) is then
-// refined by golden-section search on the direct response, the window
-// following the peak if the search ends on its edge. Tests hold both figures
-// to dense direct grids within 0.01 dB.
+// Analyze measures alias rejection and passband ripple as DESIGN §7 defines
+// them, and certifies both: a figure it returns is never on the optimistic
+// side of the true response of the taps it was given.
+//
+// It works by branch and bound on rigorous bounds (bound.go). Each stage
+// bounds its own |H| over any interval of input frequencies: a CIC from its
+// closed form (the extremes of sine over an interval are known, and within
+// the main lobe the response is monotone); a FIR from a Taylor expansion
+// whose derivatives come from FFT grids at 16 points per tap (and, below a
+// grid step, from direct sums at the interval's midpoint), with the
+// remainder bounded by sum |h_n| |n - c|^6 and an explicit allowance for
+// rounding. The cascade's bound over an interval is the product of its
+// stages' bounds. The search keeps the alias bands (or the passband) as
+// intervals ordered by bound, splits the one with the highest bound at its
+// midpoint, where the direct response is evaluated, and stops when no
+// interval's bound exceeds the best evaluated gain by more than 0.002 dB
+// (1e-5 dB for the passband's maximum and minimum). Only evaluated gains
+// become the running best and only rigorous bounds prune, so no band is
+// skipped on an interpolated value, however narrow it is next to a grid
+// step. The reported rejection is taken at the final upper bound and the
+// ripple from the upper bound of the passband's maximum over the lower bound
+// of its minimum: pessimistic by at most those tolerances, never
+// optimistic. WorstAliasHz is where the largest alias gain was evaluated.
+// When the search's step budget (2^18 splits per figure) runs out, the
+// figure is the bound reached: still safe, less tight.
+//
+// TestAnalyzeCertified holds both figures to a brute-force reference that
+// shares no code with Analyze (exact DFT grids of every stage plus golden-
+// section refinement on direct sums) on seeded random designed chains, half
+// with rounded taps: never optimistic, at most 0.01 dB pessimistic (0.05 dB
+// for figures beyond 200 dB, where the stages' own rounding is within 100 dB
+// of the figure). 60 chains by default, 500 with STEPDOWN_LONG=1.
 //
 // # Time domain
 //

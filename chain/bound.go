@@ -1,0 +1,370 @@
+package chain
+
+import (
+	"fmt"
+	"math"
+	"math/bits"
+
+	"stepdown/chain/remez"
+)
+
+// This file holds rigorous bounds of a stage's magnitude over an interval of
+// input frequencies, which the cascade analysis (analyze.go) uses to prune
+// and to certify its figures. "Rigorous" means: up to floating-point rounding,
+// for which every bound carries an explicit allowance, the upper bound is
+// never below the largest |H| in the interval and the lower bound never above
+// the smallest.
+//
+// FIR stages. Let H~(f) = sum_n h_n exp(-j 2 pi f (n - c) / F), c = (N-1)/2,
+// so that |H~| = |H|. Its k-th derivative in f has magnitude
+// D_k(f) = (2 pi/F)^k |sum_n h_n (n-c)^k exp(-j 2 pi f n / F)| and is bounded
+// everywhere by M_k = (2 pi/F)^k sum_n |h_n| |n-c|^k. Taylor's theorem with
+// the remainder in Lagrange form gives, for |f - g| <= t,
+//
+//	|H(f)| <= sum_{k<K} D_k(g) t^k/k! + M_K t^K/K!
+//	|H(f)| >= D_0(g) - sum_{1<=k<K} D_k(g) t^k/k! - M_K t^K/K!.
+//
+// On a grid of step s every frequency lies within t = s/2 of a grid point, so
+// the bound of an interval at least one step wide is the largest (smallest)
+// per-point bound over the grid points covering it; an interval narrower
+// than a step is bounded from the derivatives at its midpoint, evaluated
+// directly, with t its half width, which makes the bound converge to |H| as
+// the interval shrinks. The D_k are even and periodic in f with period F,
+// so every frequency folds onto [0, F/2].
+//
+// CIC stages. |H| = |sin(pi x R M) / (R M sin(pi x))|^N, x = f/F folded onto
+// [0, 1/2]. Over [x1, x2] the numerator's largest and smallest |sin| are
+// exact (the extrema of sine are known) and sin(pi x) is increasing, so
+// (max |sin| / (R M sin(pi x1)))^N and (min |sin| / (R M sin(pi x2)))^N,
+// each capped at 1, bound the stage. Within the main lobe, x2 <= 1/(R M),
+// the magnitude falls monotonically and its values at the ends are the
+// bounds.
+
+// taylorOrder is K above: derivatives 0..K-1 enter the bound, M_K the
+// remainder. With s = F/(2n), n >= 16 N, the remainder at t = s/2 is at most
+// (pi/64)^6/720 sum|h| < 2e-11 sum|h|, far below any stopband in use.
+const taylorOrder = 6
+
+// boundSlack is the relative allowance added to every upper bound (and
+// taken from every lower bound) for the rounding of the sums and FFTs that
+// make them.
+const boundSlack = 1e-12
+
+// stageBounder bounds one stage's |H| over an interval of input frequencies.
+type stageBounder interface {
+	// bounds returns lo <= |H(f)| <= up for every f in [a, b] (Hz, any
+	// position on the frequency axis, a <= b).
+	bounds(a, b float64) (lo, up float64)
+}
+
+// newStageBounder returns the bounder of a stage at input rate rate, or an
+// error for a stage type it does not know or a FIR without taps.
+func newStageBounder(s Stage, rate float64) (stageBounder, error) {
+	switch st := s.(type) {
+	case CICStage:
+		return cicBounder{n: st.N, rm: float64(st.R * st.M), rate: rate}, nil
+	case *CICStage:
+		return cicBounder{n: st.N, rm: float64(st.R * st.M), rate: rate}, nil
+	case FIRStage:
+		return newFIRBounder(st.Taps, rate)
+	case *FIRStage:
+		return newFIRBounder(st.Taps, rate)
+	}
+	return nil, fmt.Errorf("chain: stage of type %T cannot be analysed", s)
+}
+
+// foldPieces maps the interval [a, b] of frequencies at rate F onto at most
+// three intervals of [0, F/2] whose union is its image under folding.
+func foldPieces(a, b, rate float64, out *[3][2]float64) int {
+	h := rate / 2
+	if b-a >= h {
+		out[0] = [2]float64{0, h}
+		return 1
+	}
+	x := math.Mod(math.Abs(a), rate)
+	if a < 0 {
+		// Fold a negative start by symmetry: |H(-f)| = |H(f)|.
+		if b <= 0 {
+			return foldPieces(-b, -a, rate, out)
+		}
+		n := foldPieces(0, math.Max(-a, b), rate, out)
+		return n
+	}
+	y := x + (b - a) // < x + F/2 < 1.5 F
+	n := 0
+	for k := 0; k < 3; k++ {
+		s, e := math.Max(x, float64(k)*h), math.Min(y, float64(k+1)*h)
+		if s > e {
+			continue
+		}
+		switch k {
+		case 0:
+			out[n] = [2]float64{s, e}
+		case 1:
+			out[n] = [2]float64{rate - e, rate - s}
+		case 2:
+			out[n] = [2]float64{s - rate, e - rate}
+		}
+		n++
+	}
+	return n
+}
+
+// cicBounder bounds a CIC's unit-DC-gain magnitude (see the file comment).
+type cicBounder struct {
+	n    int
+	rm   float64
+	rate float64
+}
+
+func (c cicBounder) bounds(a, b float64) (lo, up float64) {
+	var pcs [3][2]float64
+	np := foldPieces(a, b, c.rate, &pcs)
+	lo, up = math.Inf(1), 0
+	for _, p := range pcs[:np] {
+		l, u := c.piece(p[0]/c.rate, p[1]/c.rate)
+		lo, up = math.Min(lo, l), math.Max(up, u)
+	}
+	return lo, up
+}
+
+// piece bounds |H| over normalised frequencies [x1, x2] within [0, 1/2].
+func (c cicBounder) piece(x1, x2 float64) (lo, up float64) {
+	const eps = 1e-12
+	u1, u2 := c.rm*x1*(1-eps)-eps, c.rm*x2*(1+eps)+eps
+	nf := float64(c.n)
+	if x2*c.rm <= 1 {
+		// Main lobe: sin(pi x RM)/(RM sin(pi x)) falls monotonically from 1
+		// at DC to 0 at the first null (from memory; TestCICBoundsDense
+		// checks it), so the ends are the extremes.
+		g := func(x float64) float64 { return cicGain(c.n, int(c.rm), x, 1) }
+		return g(x2) * (1 - eps), math.Min(1, g(x1)*(1+eps))
+	}
+	if x1 <= 0 {
+		up = 1
+	} else {
+		up = math.Pow(math.Min(1, maxAbsSinPi(u1, u2)/(c.rm*math.Sin(math.Pi*x1))*(1+eps)), nf)
+	}
+	if x2 <= 0 {
+		lo = 1
+	} else {
+		lo = math.Pow(math.Min(1, minAbsSinPi(u1, u2)/(c.rm*math.Sin(math.Pi*x2))*(1-eps)), nf)
+	}
+	return lo, up
+}
+
+// maxAbsSinPi returns the largest |sin(pi u)| over [u1, u2].
+func maxAbsSinPi(u1, u2 float64) float64 {
+	if u2-u1 >= 1 {
+		return 1
+	}
+	fl := math.Floor(u1)
+	v1, v2 := u1-fl, u2-fl // v1 in [0, 1), v2 < 2
+	if (v1 <= 0.5 && v2 >= 0.5) || v2 >= 1.5 {
+		return 1
+	}
+	return math.Max(math.Abs(math.Sin(math.Pi*v1)), math.Abs(math.Sin(math.Pi*v2)))
+}
+
+// minAbsSinPi returns the smallest |sin(pi u)| over [u1, u2].
+func minAbsSinPi(u1, u2 float64) float64 {
+	if math.Ceil(u1) <= u2 {
+		return 0
+	}
+	fl := math.Floor(u1)
+	return math.Min(math.Abs(math.Sin(math.Pi*(u1-fl))), math.Abs(math.Sin(math.Pi*(u2-fl))))
+}
+
+// firBounder bounds a FIR's magnitude (see the file comment).
+type firBounder struct {
+	taps []float64
+	rate float64
+	n    int     // grid intervals over [0, rate/2]
+	step float64 // Hz
+	up   rangeMax
+	lo   rangeMax // of -(per-point lower bound)
+	mom  [taylorOrder + 1]float64
+	fact [taylorOrder + 1]float64
+}
+
+func newFIRBounder(h []float64, rate float64) (*firBounder, error) {
+	if len(h) == 0 {
+		return nil, fmt.Errorf("chain: a FIR stage without taps cannot be analysed")
+	}
+	b := &firBounder{taps: h, rate: rate}
+	b.n = nextPow2(max(minGridPoints, gridPointsPerTap*len(h)))
+	b.step = rate / 2 / float64(b.n)
+	c := float64(len(h)-1) / 2
+	w := 2 * math.Pi / rate
+	b.fact[0] = 1
+	for k := 1; k <= taylorOrder; k++ {
+		b.fact[k] = b.fact[k-1] * float64(k)
+	}
+	for k := 0; k <= taylorOrder; k++ {
+		s := 0.0
+		for i, v := range h {
+			s += math.Abs(v) * math.Pow(math.Abs(float64(i)-c), float64(k))
+		}
+		b.mom[k] = s * math.Pow(w, float64(k))
+	}
+	// Per-point bounds on the grid, t = step/2. The FFT's rounding is at
+	// most a few ulps times log2 of its length times sum |h| |n-c|^k (the
+	// moment), which the allowance below covers with room to spare.
+	t := b.step / 2
+	fftErr := 16 * 0x1p-52 * float64(bits.Len(uint(2*b.n)))
+	up := make([]float64, b.n+1)
+	lo := make([]float64, b.n+1)
+	sp := remez.NewSpectrum(b.n + 1)
+	seq := make([]float64, len(h))
+	mag := make([]float64, b.n+1)
+	for k := 0; k < taylorOrder; k++ {
+		for i, v := range h {
+			seq[i] = v * math.Pow(float64(i)-c, float64(k))
+		}
+		sp.Magnitude(mag, seq)
+		coef := math.Pow(w, float64(k)) * math.Pow(t, float64(k)) / b.fact[k]
+		slack := fftErr * b.mom[k] * math.Pow(t, float64(k)) / b.fact[k]
+		for i, m := range mag {
+			d := m * coef
+			up[i] += d + slack
+			if k == 0 {
+				lo[i] += d - slack
+			} else {
+				lo[i] -= d + slack
+			}
+		}
+	}
+	rem := b.mom[taylorOrder] * math.Pow(t, taylorOrder) / b.fact[taylorOrder]
+	for i := range up {
+		up[i] = (up[i] + rem) * (1 + boundSlack)
+		lo[i] = -math.Max(0, (lo[i]-rem)*(1-boundSlack))
+	}
+	b.up = newRangeMax(up)
+	b.lo = newRangeMax(lo)
+	return b, nil
+}
+
+func (b *firBounder) bounds(a, e float64) (lo, up float64) {
+	if e-a < b.step {
+		return b.direct((a+e)/2, (e-a)/2)
+	}
+	var pcs [3][2]float64
+	np := foldPieces(a, e, b.rate, &pcs)
+	lo, up = math.Inf(1), 0
+	for _, p := range pcs[:np] {
+		i0 := max(0, int(math.Floor(p[0]/b.step)))
+		i1 := min(b.n, int(math.Ceil(p[1]/b.step)))
+		up = math.Max(up, b.up.query(i0, i1))
+		lo = math.Min(lo, -b.lo.query(i0, i1))
+	}
+	return lo, up
+}
+
+// direct bounds |H| over [m - t, m + t] from the derivatives at m.
+func (b *firBounder) direct(m, t float64) (lo, up float64) {
+	d := b.derivs(foldFreq(m, b.rate))
+	up, lo = d[0], d[0]
+	tk := 1.0
+	for k := 1; k < taylorOrder; k++ {
+		tk *= t
+		up += d[k] * tk / b.fact[k]
+		lo -= d[k] * tk / b.fact[k]
+	}
+	tk *= t
+	rem := b.mom[taylorOrder] * tk / b.fact[taylorOrder]
+	// Rounding of the direct sums: a few ulps per tap times the moment.
+	var slack float64
+	tj := 1.0
+	for k := 0; k < taylorOrder; k++ {
+		slack += 4 * 0x1p-52 * float64(len(b.taps)) * b.mom[k] * tj / b.fact[k]
+		tj *= t
+	}
+	up = (up + rem + slack) * (1 + boundSlack)
+	lo = math.Max(0, (lo-rem-slack)*(1-boundSlack))
+	return lo, up
+}
+
+// derivs returns D_k(f), k < taylorOrder, by direct summation with a phase
+// rotation resynchronised every 32 taps.
+func (b *firBounder) derivs(f float64) [taylorOrder]float64 {
+	h := b.taps
+	c := float64(len(h)-1) / 2
+	w := 2 * math.Pi * f / b.rate
+	sw, cw := math.Sincos(w)
+	var re, im [taylorOrder]float64
+	for k0 := 0; k0 < len(h); k0 += 32 {
+		s, co := math.Sincos(w * float64(k0))
+		end := min(k0+32, len(h))
+		for i := k0; i < end; i++ {
+			x := float64(i) - c
+			pr, pi := h[i]*co, -h[i]*s
+			for k := 0; k < taylorOrder; k++ {
+				re[k] += pr
+				im[k] += pi
+				pr *= x
+				pi *= x
+			}
+			co, s = co*cw-s*sw, s*cw+co*sw
+		}
+	}
+	var d [taylorOrder]float64
+	wk := 1.0
+	for k := range d {
+		d[k] = math.Hypot(re[k], im[k]) * wk
+		wk *= 2 * math.Pi / b.rate
+	}
+	return d
+}
+
+// rangeMax answers range-maximum queries in constant time per block: a
+// sparse table over blocks of 64 values plus a scan of the partial blocks
+// at the ends.
+type rangeMax struct {
+	v   []float64
+	tab [][]float64 // tab[l][j] = max of blocks j .. j + 2^l - 1
+}
+
+const rmBlock = 64
+
+func newRangeMax(v []float64) rangeMax {
+	nb := (len(v) + rmBlock - 1) / rmBlock
+	base := make([]float64, nb)
+	for j := range base {
+		m := math.Inf(-1)
+		for _, x := range v[j*rmBlock : min(len(v), (j+1)*rmBlock)] {
+			m = math.Max(m, x)
+		}
+		base[j] = m
+	}
+	r := rangeMax{v: v, tab: [][]float64{base}}
+	for l := 1; 1<<l <= nb; l++ {
+		prev := r.tab[l-1]
+		cur := make([]float64, nb-(1<<l)+1)
+		for j := range cur {
+			cur[j] = math.Max(prev[j], prev[j+1<<(l-1)])
+		}
+		r.tab = append(r.tab, cur)
+	}
+	return r
+}
+
+// query returns the largest of v[i0..i1], 0 <= i0 <= i1 < len(v).
+func (r rangeMax) query(i0, i1 int) float64 {
+	b0, b1 := i0/rmBlock, i1/rmBlock
+	m := math.Inf(-1)
+	if b1-b0 <= 1 {
+		for _, x := range r.v[i0 : i1+1] {
+			m = math.Max(m, x)
+		}
+		return m
+	}
+	for _, x := range r.v[i0 : (b0+1)*rmBlock] {
+		m = math.Max(m, x)
+	}
+	for _, x := range r.v[b1*rmBlock : i1+1] {
+		m = math.Max(m, x)
+	}
+	lo, hi := b0+1, b1-1
+	l := bits.Len(uint(hi-lo+1)) - 1
+	return math.Max(m, math.Max(r.tab[l][lo], r.tab[l][hi-(1<<l)+1]))
+}
