@@ -66,6 +66,9 @@ type Settings struct {
 	// for it and the estimate tier's prune): the search of floating-point
 	// designs only, which the package's tests compare against.
 	floatOnly bool
+	// keepFloored turns off the estimate tier's rounding-floor prune alone
+	// (for the test that it drops nothing that could meet).
+	keepFloored bool
 }
 
 // Rule is a recommendation rule.

@@ -154,26 +154,18 @@ func (r realDesigner) design(plan []chain.StagePlan) (Candidate, string) {
 	if err != nil {
 		return Candidate{}, ReasonDesignFailed
 	}
-	if r.rounded(r.spec) && r.atRisk(c) {
-		// Rounding may cost this chain its margin: it is measured and, if
-		// need be, re-designed now, so that what the search learns from it
-		// is the chain as it will be built.
-		f, err := cost.Evaluate(r.spec, c, r.s.Cost)
-		if err != nil {
-			return Candidate{}, ReasonEvaluateFailed
-		}
-		cd := Candidate{Plan: plan, Chain: c, Figures: f, evaluated: true}
-		if floatMisses(r.spec, f.Analysis) != "" {
-			return cd, "" // analyze re-designs it or drops it
-		}
-		cd.MarginDB = f.Analysis.AliasRejectionDB - r.spec.RejectionDB
-		return r.survive(cd, r.spec)
-	}
 	f, err := cost.Price(r.spec, c, r.s.Cost)
 	if err != nil {
 		return Candidate{}, ReasonEvaluateFailed
 	}
-	return Candidate{Plan: plan, Chain: c, Figures: f}, ""
+	cd := Candidate{Plan: plan, Chain: c, Figures: f}
+	if r.rounded(r.spec) && r.atRisk(c) {
+		// Rounding may cost this chain its margin: it is measured and, if
+		// need be, re-designed now, so that what the search learns from it
+		// is the chain as it will be built.
+		return r.survive(cd, r.spec)
+	}
+	return cd, ""
 }
 
 // riskRatio is the predicted rounding floor, as a fraction of a stage's
@@ -241,8 +233,12 @@ func (r realDesigner) analyze(c Candidate) (Candidate, string) {
 	if why := floatMisses(r.spec, f.Analysis); why != "" {
 		return Candidate{}, why
 	}
-	c.Figures, c.MarginDB = f, margin
-	if !r.rounded(r.spec) || c.survived {
+	c.Figures, c.MarginDB, c.evaluated = f, margin, true
+	if !r.rounded(r.spec) {
+		return c, ""
+	}
+	if c.survived {
+		c.MarginDB = c.Quantised.AliasRejectionDB - r.spec.RejectionDB
 		return c, ""
 	}
 	return r.survive(c, r.spec)
@@ -306,11 +302,29 @@ func (r realDesigner) survive(c Candidate, spec chain.Spec) (Candidate, string) 
 		over := qa.PassbandRippleDB - spec.RippleDB
 		if qm >= -rejectionSlackDB && over <= rippleSlackDB {
 			cur.Figures, cur.Quantised, cur.MarginDB = f, qa, qm
-			cur.evaluated, cur.survived = true, true
+			cur.survived = true
 			return cur, ""
 		}
 		if try == maxRoundingRedesigns || r.ctx.Err() != nil || math.IsNaN(qm) || math.IsNaN(over) {
 			break
+		}
+		// Rounded taps 6 dB or more under the target leave an excess of
+		// at least the target's deviation over a float chain that meets
+		// it: no need to measure the float chain to give up.
+		if qm <= -20*math.Log10(2) {
+			break
+		}
+		if !cur.evaluated {
+			g, err := cost.Evaluate(spec, cur.Chain, r.s.Cost)
+			if err != nil {
+				return c, ReasonEvaluateFailed
+			}
+			f, cur.evaluated = g, true
+			if floatMisses(spec, f.Analysis) != "" {
+				// The float chain misses: analyze re-designs or drops it.
+				cur.Figures = f
+				return cur, ""
+			}
 		}
 		dt := chain.RejectionToDev(spec.RejectionDB)
 		excess = math.Max(excess, chain.RejectionToDev(qa.AliasRejectionDB)-chain.RejectionToDev(f.Analysis.AliasRejectionDB))
@@ -345,7 +359,7 @@ func (r realDesigner) survive(c Candidate, spec chain.Spec) (Candidate, string) 
 			break
 		}
 		debugf("rounding re-design %s: raise %.2f dB, cut %.3f dB: rounded %.2f -> %.2f dB, float %.2f dB", chain.Notation(c.Plan), raise, cut, qa.AliasRejectionDB, q.AliasRejectionDB, g.Analysis.AliasRejectionDB)
-		cur.Chain, cur.raised, cur.cut = ch, raise, cut
+		cur.Chain, cur.raised, cur.cut, cur.evaluated = ch, raise, cut, true
 		cur.redesigns++
 		f, qa = g, q
 		if floatMisses(spec, f.Analysis) != "" {
@@ -361,14 +375,16 @@ func (r realDesigner) survive(c Candidate, spec chain.Spec) (Candidate, string) 
 // meets the spec with its taps rounded, re-designed as survive does; zero
 // when none does or ctx is cancelled.
 func (r realDesigner) meetsFrom(c Candidate, lo, hi int) int {
+	if !c.evaluated {
+		f, err := cost.Evaluate(r.spec, c.Chain, r.s.Cost)
+		if err != nil || floatMisses(r.spec, f.Analysis) != "" {
+			return 0
+		}
+		c.Figures, c.evaluated = f, true
+	}
 	for w := lo; w <= hi && r.ctx.Err() == nil; w++ {
 		spec := r.spec
 		spec.CoefBits = w
-		f, err := cost.Evaluate(spec, c.Chain, r.s.Cost)
-		if err != nil {
-			return 0
-		}
-		c.Figures = f
 		if _, why := r.survive(c, spec); why == "" {
 			return w
 		}
@@ -393,7 +409,7 @@ func search(ctx context.Context, p params, s *Settings, est *estimator, des desi
 	sp := newSpace(&p, s)
 	est.orders, est.delays = sp.orders, sp.delays
 	est.keepBeaten = s.Exhaustive
-	est.floorPrune = !s.floatOnly
+	est.floorPrune = !s.floatOnly && !s.keepFloored
 	auto := s.MaxTaps == 0
 	if !auto {
 		est.maxTaps = s.MaxTaps

@@ -1,0 +1,303 @@
+package optimize
+
+import (
+	"bytes"
+	"context"
+	"encoding/json"
+	"fmt"
+	"os"
+	"math"
+	"math/cmplx"
+	"strings"
+	"testing"
+
+	"stepdown/chain"
+	"stepdown/chain/fixed"
+)
+
+// exampleSpec is the built-in example (cmd/stepdown/internal/specfile,
+// example.go): 122.88 MS/s to 1.92 MS/s I/Q, 480 kHz passband, 640 kHz
+// protected, 0.2 dB ripple, 90 dB rejection, 16-bit input, 24-bit output,
+// 18-bit coefficients; its search settings are max_stages 5, CIC orders 3
+// to 6, delay 1.
+func exampleSpec() (chain.Spec, Settings) {
+	return chain.Spec{InputRate: 122.88e6, OutputRate: 1.92e6, Passband: 480e3, Protected: 640e3,
+			RippleDB: 0.2, RejectionDB: 90, Complex: true, InputBits: 16, OutputBits: 24, CoefBits: 18},
+		Settings{MaxStages: 5, CICOrders: []int{3, 4, 5, 6}, CICDelays: []int{1}}
+}
+
+// roundingCases are invented specs with small ratios (D = 8 and 16), so
+// that each plan takes about a second or less.
+var roundingCases = []struct {
+	name string
+	spec chain.Spec
+}{
+	// A 200 MS/s to 25 MS/s front end, 9 MHz passband, 90 dB, 14-bit taps.
+	{"D8 90dB 14b", chain.Spec{InputRate: 200e6, OutputRate: 25e6, Passband: 9e6, RippleDB: 0.1, RejectionDB: 90, CoefBits: 14}},
+	// The same at 95 dB with 16-bit taps.
+	{"D8 95dB 16b", chain.Spec{InputRate: 200e6, OutputRate: 25e6, Passband: 9e6, RippleDB: 0.1, RejectionDB: 95, CoefBits: 16}},
+	// A 48 kS/s to 3 kS/s audio decimator, 1.2 kHz passband, 100 dB, 18 bits.
+	{"D16 100dB 18b", chain.Spec{InputRate: 48e3, OutputRate: 3e3, Passband: 1.2e3, RippleDB: 0.05, RejectionDB: 100, CoefBits: 18}},
+}
+
+// TestFrontSurvivesRounding: with a fixed coefficient width every chain on
+// the front meets the rejection and ripple targets with the taps fixed
+// plans for it. The check is independent of chain.Analyze: each FIR and
+// half-band stage's taps are rebuilt from the integers fixed chose
+// (Ints / 2^Frac, package fixed's doc), checked against that rule (a
+// Bits-wide code, the largest Frac that fits the largest tap, each code
+// within one step of plain rounding since the local search only takes the
+// other rounding), and the cascade's |H| is evaluated by brute force (the
+// DTFT of each stage, the CIC in closed form, Hogenauer 1981) on a grid of
+// 64 points per ripple of its longest stage over the alias bands and the
+// passband.
+func TestFrontSurvivesRounding(t *testing.T) {
+	type run struct {
+		name string
+		spec chain.Spec
+		s    Settings
+	}
+	ex, exS := exampleSpec()
+	runs := []run{{"example 18b", ex, exS}}
+	for _, c := range roundingCases {
+		runs = append(runs, run{c.name, c.spec, Settings{MaxStages: 3}})
+	}
+	for _, r := range runs {
+		res, err := Plan(context.Background(), r.spec, r.s)
+		if err != nil {
+			t.Fatal(err)
+		}
+		if len(res.Front) == 0 {
+			t.Errorf("%s: empty front: %s", r.name, res.Reason)
+			continue
+		}
+		for _, c := range res.Front {
+			rej, rip := roundedFigures(t, r.spec, c.Chain)
+			// Tolerances: the search's own (0.01 dB, 1e-4 dB) plus 0.01 dB
+			// for a grid of 64 points per ripple (cos(pi/64): 0.01 dB).
+			if rej < r.spec.RejectionDB-0.02 || rip > r.spec.RippleDB+2e-4 {
+				t.Errorf("%s: %s rounded to %d bits: rejection %.3f dB (target %g), ripple %.5f dB (target %g)",
+					r.name, chain.Notation(c.Plan), r.spec.CoefBits, rej, r.spec.RejectionDB, rip, r.spec.RippleDB)
+			}
+			if math.Abs(rej-c.Quantised.AliasRejectionDB) > 0.05 {
+				t.Errorf("%s: %s: brute-force rejection %.3f dB, Candidate.Quantised %.3f dB", r.name, chain.Notation(c.Plan), rej, c.Quantised.AliasRejectionDB)
+			}
+		}
+		t.Logf("%s: front %d, dropped %v", r.name, len(res.Front), res.Dropped)
+	}
+}
+
+// roundedFigures returns the alias rejection and passband ripple of c with
+// its taps as fixed.PlanChain rounds them, by brute force.
+func roundedFigures(t *testing.T, spec chain.Spec, c *chain.Chain) (rejDB, rippleDB float64) {
+	t.Helper()
+	ws, _, err := fixed.PlanChain(spec, c, fixed.Settings{})
+	if err != nil {
+		t.Fatal(err)
+	}
+	type stage struct {
+		cic     bool
+		n, m, r int
+		taps    []float64
+		rate    float64
+	}
+	var st []stage
+	rate := spec.InputRate
+	spacing := math.Inf(1) // the finest ripple, Hz
+	for i, s := range c.Stages {
+		switch s := s.(type) {
+		case chain.CICStage:
+			st = append(st, stage{cic: true, n: s.N, m: s.M, r: s.R, rate: rate})
+		case chain.FIRStage:
+			co := ws.Stages[i].Coefficients
+			if co.Bits != spec.CoefBits || len(co.Ints) != len(s.Taps) {
+				t.Fatalf("stage %d: %d codes of %d bits for %d taps at %d bits", i+1, len(co.Ints), co.Bits, len(s.Taps), spec.CoefBits)
+			}
+			lim := int64(1)<<(co.Bits-1) - 1
+			big := 0.0
+			for _, h := range s.Taps {
+				big = math.Max(big, math.Abs(h))
+			}
+			if math.Round(math.Ldexp(big, co.Frac+1)) <= float64(lim) {
+				t.Errorf("stage %d: Frac %d is not the largest that fits the largest tap %g in %d bits", i+1, co.Frac, big, co.Bits)
+			}
+			taps := make([]float64, len(co.Ints))
+			for k, v := range co.Ints {
+				if v > lim || v < -lim {
+					t.Fatalf("stage %d: code %d outside %d bits", i+1, v, co.Bits)
+				}
+				if d := math.Abs(float64(v) - math.Ldexp(s.Taps[k], co.Frac)); d >= 1 {
+					t.Errorf("stage %d tap %d: code %d is %.2f steps from the tap", i+1, k, v, d)
+				}
+				taps[k] = math.Ldexp(float64(v), -co.Frac)
+			}
+			st = append(st, stage{taps: taps, rate: rate})
+			spacing = math.Min(spacing, rate/float64(len(taps)))
+		default:
+			t.Fatalf("stage %d: %T", i+1, s)
+		}
+		rate /= float64(s.Factor())
+	}
+	gain := func(f float64) float64 {
+		g := 1.0
+		for _, s := range st {
+			x := math.Pi * f / s.rate
+			if s.cic {
+				rm := float64(s.r * s.m)
+				if math.Abs(math.Sin(x)) > 1e-15 {
+					g *= math.Pow(math.Abs(math.Sin(x*rm)/(rm*math.Sin(x))), float64(s.n))
+				}
+				continue
+			}
+			var h complex128
+			for k, v := range s.taps {
+				h += complex(v, 0) * cmplx.Exp(complex(0, -2*x*float64(k)))
+			}
+			g *= cmplx.Abs(h)
+		}
+		return g
+	}
+	ns, err := spec.Normalize()
+	if err != nil {
+		t.Fatal(err)
+	}
+	step := spacing / 64
+	dc := gain(0)
+	worst := 0.0
+	for k := 1; float64(k)*ns.OutputRate-ns.Protected < ns.InputRate/2; k++ {
+		lo := float64(k)*ns.OutputRate - ns.Protected
+		hi := math.Min(float64(k)*ns.OutputRate+ns.Protected, ns.InputRate/2)
+		for f := lo; f <= hi; f += step {
+			worst = math.Max(worst, gain(f))
+		}
+		worst = math.Max(worst, gain(hi))
+	}
+	lo, hi := math.Inf(1), 0.0
+	for f := 0.0; f <= ns.Passband; f += step {
+		g := gain(f)
+		lo, hi = math.Min(lo, g), math.Max(hi, g)
+	}
+	g := gain(ns.Passband)
+	lo, hi = math.Min(lo, g), math.Max(hi, g)
+	return -20 * math.Log10(worst/dc), 20 * math.Log10(hi/lo)
+}
+
+// TestNoChainAtWidth: at 8 bits no chain reaches 100 dB (the rounding
+// error of a few dozen taps at 2^-10 or so is near -70 dB, common
+// practice): the front is empty, the reason names a width, and at that
+// width the search finds chains that meet.
+func TestNoChainAtWidth(t *testing.T) {
+	spec := chain.Spec{InputRate: 200e6, OutputRate: 25e6, Passband: 9e6, RippleDB: 0.1, RejectionDB: 100, CoefBits: 8}
+	s := Settings{MaxStages: 3}
+	res, err := Plan(context.Background(), spec, s)
+	if err != nil {
+		t.Fatal(err)
+	}
+	t.Logf("%s (dropped %v)", res.Reason, res.Dropped)
+	if len(res.Front) != 0 {
+		t.Fatalf("%d chains meet 100 dB with 8-bit taps", len(res.Front))
+	}
+	w := res.NeededCoefBits
+	if w <= 8 || w > 32 || !strings.Contains(res.Reason, fmt.Sprintf("from %d bits", w)) && !strings.Contains(res.Reason, fmt.Sprintf("fewest bits, %d", w)) {
+		t.Fatalf("NeededCoefBits %d; reason %q", w, res.Reason)
+	}
+	if res.Dropped[ReasonMissQuantised] == 0 {
+		t.Errorf("no chain counted under %q: %v", ReasonMissQuantised, res.Dropped)
+	}
+	spec.CoefBits = w
+	at, err := Plan(context.Background(), spec, s)
+	if err != nil {
+		t.Fatal(err)
+	}
+	if len(at.Front) == 0 {
+		t.Fatalf("no chain at the named width %d: %s", w, at.Reason)
+	}
+	for _, c := range at.Front {
+		if rej, rip := roundedFigures(t, spec, c.Chain); rej < spec.RejectionDB-0.02 || rip > spec.RippleDB+2e-4 {
+			t.Errorf("%s at %d bits: %.3f dB, ripple %.5f dB", chain.Notation(c.Plan), w, rej, rip)
+		}
+	}
+}
+
+// TestRoundingDropsCounted: at 14 bits and 90 dB chains are lost to
+// rounding, and each loss is counted under its reason; the floating-point
+// search (the switch the table compares against) counts none.
+func TestRoundingDropsCounted(t *testing.T) {
+	spec := roundingCases[0].spec
+	res, err := Plan(context.Background(), spec, Settings{MaxStages: 3})
+	if err != nil {
+		t.Fatal(err)
+	}
+	if res.Dropped[ReasonMissQuantised] == 0 {
+		t.Errorf("nothing dropped for rounding: %v", res.Dropped)
+	}
+	flt, err := Plan(context.Background(), spec, Settings{MaxStages: 3, floatOnly: true})
+	if err != nil {
+		t.Fatal(err)
+	}
+	if flt.Dropped[ReasonMissQuantised]+flt.Dropped[ReasonRoundingFloor] != 0 {
+		t.Errorf("float-only search dropped for rounding: %v", flt.Dropped)
+	}
+	t.Logf("dropped %v; %s", res.Dropped, res.Reason)
+}
+
+// TestFloorPruneSafe: the estimate tier's rounding-floor prune drops no
+// chain that could meet: the search with and without it gives the same
+// front. It takes about 30 s, so it runs with STEPDOWN_LONG=1 only.
+func TestFloorPruneSafe(t *testing.T) {
+	if os.Getenv("STEPDOWN_LONG") == "" {
+		t.Skip("about 30 s; set STEPDOWN_LONG=1")
+	}
+	for _, spec := range []chain.Spec{
+		{InputRate: 96e6, OutputRate: 3e6, Passband: 1e6, RippleDB: 0.1, RejectionDB: 85, CoefBits: 14},
+		{InputRate: 61.44e6, OutputRate: 0.96e6, Passband: 0.3e6, RippleDB: 0.1, RejectionDB: 90, CoefBits: 14},
+		{InputRate: 122.88e6, OutputRate: 1.92e6, Passband: 480e3, Protected: 640e3, RippleDB: 0.2, RejectionDB: 90, Complex: true, CoefBits: 14},
+		{InputRate: 122.88e6, OutputRate: 1.92e6, Passband: 480e3, Protected: 640e3, RippleDB: 0.2, RejectionDB: 100, Complex: true, CoefBits: 16},
+	} {
+		s := Settings{MaxStages: 3}
+		a, err := Plan(context.Background(), spec, s)
+		if err != nil {
+			t.Fatal(err)
+		}
+		s.keepFloored = true
+		b, err := Plan(context.Background(), spec, s)
+		if err != nil {
+			t.Fatal(err)
+		}
+		if a.Dropped[ReasonRoundingFloor] == 0 && len(a.Front) > 0 {
+			t.Errorf("%g dB at %d bits: the prune dropped nothing", spec.RejectionDB, spec.CoefBits)
+		}
+		fa, fb := frontSummary(a), frontSummary(b)
+		if fa != fb {
+			t.Errorf("%g dB at %d bits: with the prune\n%s\nwithout\n%s", spec.RejectionDB, spec.CoefBits, fa, fb)
+		}
+		t.Logf("%g dB at %d bits: prune dropped %d, designs %d with it, %d without", spec.RejectionDB, spec.CoefBits, a.Dropped[ReasonRoundingFloor], a.Designed, b.Designed)
+	}
+}
+
+func frontSummary(r *Result) string {
+	var b strings.Builder
+	for _, c := range r.Front {
+		fmt.Fprintf(&b, "%s %.1f %d %.4g\n", chain.Notation(c.Plan), c.Figures.MultipliesPerOutput, c.Figures.MemoryBits, c.Figures.LatencyS)
+	}
+	return b.String()
+}
+
+// TestRoundingDeterministic: with a fixed width the result is the same
+// whatever the number of design goroutines.
+func TestRoundingDeterministic(t *testing.T) {
+	spec := roundingCases[1].spec
+	var out [2][]byte
+	for i, jobs := range []int{1, 3} {
+		r, err := Plan(context.Background(), spec, Settings{MaxStages: 3, Jobs: jobs})
+		if err != nil {
+			t.Fatal(err)
+		}
+		if out[i], err = json.Marshal(r); err != nil {
+			t.Fatal(err)
+		}
+	}
+	if !bytes.Equal(out[0], out[1]) {
+		t.Errorf("results differ between 1 and 3 jobs (%d and %d bytes)", len(out[0]), len(out[1]))
+	}
+}
