@@ -42,7 +42,9 @@
 // when a CIC misses the rejection at its factor, when its first null falls
 // in the passband or its droop cannot be corrected nor afforded, when a
 // half-band's edges do not fit, when a FIR stage is estimated under 3 taps
-// or over the tap limit (Settings.MaxTaps), and when a CIC
+// or over the tap limit (Settings.MaxTaps), when, with a fixed coefficient
+// width, a FIR or half-band stage's rounding floor lies well above its
+// stopband limit (see Coefficient width), and when a CIC
 // is beaten by another searched CIC of the same factor that needs no more
 // memory (compared by unpruned register bits), latency, droop at fp or
 // output width and less of one: the rest of the chain being equal such a CIC
@@ -120,6 +122,62 @@
 // that misses by no more than the ripple is designed again with the
 // target raised by the shortfall (at most twice) before it is dropped;
 // these re-designs are not counted in Result.Designed.
+//
+// With a fixed coefficient width the same holds of the chains' rounded
+// taps (see Coefficient width); re-designs for rounding are not counted in
+// Result.Designed either, but their work is charged to MaxWork.
+//
+// # Coefficient width
+//
+// When the spec fixes the coefficient width (chain.Spec.CoefBits > 0, at
+// most fixed.MaxBits = 40 bits; wider, rounding lies below -200 dB and is
+// not measured), the front and the recommendation hold only chains that
+// meet the spec with their taps rounded to that width, as the report will
+// build them: fixed.PlanChain, with Settings.Fixed, plans the word lengths,
+// quantises every FIR and half-band stage and measures the cascade on the
+// rounded taps, which is judged with the floating-point tolerances (0.01 dB
+// of rejection, 1e-4 dB of ripple). Candidate.Quantised holds that
+// measurement and Candidate.MarginDB its rejection margin.
+//
+// The rounding error of each tap is uniform in +-q/2, q = 2^-Frac (Frac the
+// largest that fits the largest tap in the width, package fixed's rule), so
+// a stage of N rounded taps has a stopband error of about q sqrt(N/12) RMS
+// (common practice), at most N q/2. A designed chain whose FIR stage has
+// that floor above a quarter of its stopband limit is measured on its
+// rounded taps as soon as it is designed, so that what the search learns
+// from it is the chain as it will be built; the others are measured when
+// they reach the front. A chain that misses is designed again: the
+// rounding error is taken as the excess of the rounded chain's worst alias
+// over the floating-point one's (linear deviations, which add at worst),
+// and the rejection target is raised so that the floating-point deviation
+// plus that excess meets the target, plus 1 dB (a passband ripple pushed
+// over by rounding is tightened likewise); at most three times. A
+// re-designed chain is priced and measured again (cost.Evaluate), and the
+// front is taken again with its new figures. The chain is dropped, counted
+// under ReasonMissQuantised, when the tries run out or at once when the
+// rounding error alone reaches the target (a rounded chain 6 dB or more
+// short, or an excess of the target's deviation), since a longer design
+// rounds no better; a stage whose own rounding error exceeds its stopband
+// limit is then given up in every chain. ReasonWordLengths counts chains
+// whose word lengths fixed.PlanChain could not plan.
+//
+// The estimate tier drops, under ReasonRoundingFloor, candidates with a FIR
+// or half-band stage whose floor q sqrt(N/12) exceeds twice its stopband
+// limit Ds even at the short end of its length range and with q taken from
+// a largest tap of half the 1/R of a lowpass decimating by R (common
+// practice puts its centre tap near 2 fc/Fs ~ 1/R; a half-band's side taps
+// are rounded at the step of its exact centre 1/2): a safe-side prune,
+// meant never to drop a chain that could meet (on eleven invented specs
+// from D = 8 to 64 at 12 to 16 bits the front was the same without it).
+// When the front is empty and the prune dropped some candidate, the search
+// runs again without it.
+//
+// When no chain meets at the width, Result.Reason says so and names the
+// width that would: for the three cheapest chains dropped for their
+// rounded taps (the front of their floating-point figures), the least
+// width up to 32 bits at which each meets, re-designed as above, and
+// Result.NeededCoefBits holds the least of them. The automatic tap limit
+// is not raised then, since a longer stage rounds no better.
 //
 // Settings.Exhaustive designs every feasible candidate instead (and keeps
 // the beaten CICs): it exists to check that the two tiers give the same

@@ -5,9 +5,9 @@ import (
 	"context"
 	"encoding/json"
 	"fmt"
-	"os"
 	"math"
 	"math/cmplx"
+	"os"
 	"strings"
 	"testing"
 
