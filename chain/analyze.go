@@ -398,3 +398,22 @@ func measure(c *Chain, spec Spec) (Analysis, error) {
 	}
 	return a, nil
 }
+
+// Slack of a verdict: a chain meets the spec when its measured rejection is
+// at most RejectionSlackDB below the target and its ripple at most
+// RippleSlackDB above the budget. The cascade's other stages may lift an
+// alias band by their passband ripple, which the per-stage targets do not
+// see; the figures themselves are certified (never optimistic), so the slack
+// is the only allowance.
+const (
+	RejectionSlackDB = 0.01
+	RippleSlackDB    = 1e-4
+)
+
+// Meets says whether the figures meet spec's rejection target and ripple
+// budget within the slack above. It is the one verdict on a chain: the
+// search, the word-length planner and the report all call it.
+func (a Analysis) Meets(spec Spec) bool {
+	return a.AliasRejectionDB >= spec.RejectionDB-RejectionSlackDB &&
+		a.PassbandRippleDB <= spec.RippleDB+RippleSlackDB
+}

@@ -46,49 +46,56 @@ type StageReport struct {
 	HardwareMultipliers *int   `json:"hardware_multipliers,omitempty"`
 }
 
-// ChainReport is a chain's fixed-point figures for report.json.
+// ChainReport is a chain's fixed-point figures for report.json. The
+// quantised figures, the DC gain and the widths need no bit-true run and are
+// always there; the bit-true figures (BitTrueReport) are absent when the run
+// could not be made, and BitTrueError then says why.
 type ChainReport struct {
-	BitTrueSNRDB float64 `json:"bittrue_snr_db"`
+	QuantisedRejectionDB float64 `json:"quantised_alias_rejection_db"` // worst over the alias bands, rounded taps
+	QuantisedRippleDB    float64 `json:"quantised_passband_ripple_db"` // peak-to-peak over [0, fp], rounded taps
+	// DCGainDB is the chain's gain at 0 Hz from input full scale to output
+	// full scale, the product of the stages' (Widths.DCGain in dB).
+	DCGainDB float64 `json:"dc_gain_db"`
+	// GainCorrection is the factor Settings.UnityGain folded into one
+	// stage's taps (that stage's gain_correction), 1 when none.
+	GainCorrection      float64 `json:"gain_correction"`
+	FixedMemoryBits     int     `json:"fixed_memory_bits"`
+	HardwareMultipliers *int    `json:"hardware_multipliers,omitempty"`
+
 	// BitTrueSNRValid says whether bittrue_snr_db and bittrue_enob are
 	// meaningful; BitTrueSNRNote says why not ("" when they are; see
-	// BitTrueResult.SNRValid).
-	BitTrueSNRValid         bool    `json:"bittrue_snr_valid"`
-	BitTrueSNRNote          string  `json:"bittrue_snr_note"`
+	// BitTrueResult.SNRValid). Both are there with or without a run.
+	BitTrueSNRValid bool   `json:"bittrue_snr_valid"`
+	BitTrueSNRNote  string `json:"bittrue_snr_note"`
+	// BitTrueError says why there is no bit-true run (Result.BitTrueErr).
+	BitTrueError string `json:"bittrue_error,omitempty"`
+	*BitTrueReport
+
+	Stages []StageReport `json:"stages"`
+}
+
+// BitTrueReport is the bit-true run's figures (BitTrueResult), flattened
+// into ChainReport when the run was made.
+type BitTrueReport struct {
+	BitTrueSNRDB            float64 `json:"bittrue_snr_db"`
 	BitTrueENOB             float64 `json:"bittrue_enob"`
 	BitTrueMatchDB          float64 `json:"bittrue_match_db"`
 	BitTrueOffsetLSB        float64 `json:"bittrue_offset_lsb"`
 	InputSNRDB              float64 `json:"input_snr_db"`
 	BitTrueAliasHz          float64 `json:"bittrue_alias_hz"`
 	BitTrueAliasRejectionDB float64 `json:"bittrue_alias_rejection_db"`
-	AliasResponseDB         float64 `json:"quantised_alias_response_db"`  // at bittrue_alias_hz
-	QuantisedRejectionDB    float64 `json:"quantised_alias_rejection_db"` // worst over the alias bands, rounded taps
-	QuantisedRippleDB       float64 `json:"quantised_passband_ripple_db"` // peak-to-peak over [0, fp], rounded taps
+	AliasResponseDB         float64 `json:"quantised_alias_response_db"` // at bittrue_alias_hz
 	BitTrueAliasValid       bool    `json:"bittrue_alias_valid"`
 	TestSignal              string  `json:"bittrue_test_signal"`
-	FixedMemoryBits         int     `json:"fixed_memory_bits"`
-	HardwareMultipliers     *int    `json:"hardware_multipliers,omitempty"`
-	// DCGainDB is the chain's gain at 0 Hz from input full scale to output
-	// full scale, the product of the stages' (Widths.DCGain in dB).
-	DCGainDB float64 `json:"dc_gain_db"`
-	// GainCorrection is the factor Settings.UnityGain folded into one
-	// stage's taps (that stage's gain_correction), 1 when none.
-	GainCorrection float64 `json:"gain_correction"`
 	// BitTrueOutputLevels is each test tone's level at the integer output,
 	// dBFS (BitTrueResult.OutputLevels).
 	BitTrueOutputLevels []float64 `json:"bittrue_output_levels_dbfs,omitempty"`
-	// BitTrueError says why there is no bit-true run (Result.BitTrueErr);
-	// every bittrue_* figure is then zero and bittrue_snr_valid and
-	// bittrue_alias_valid are false, while the quantised figures, the DC gain
-	// and the stages' widths stand.
-	BitTrueError string `json:"bittrue_error,omitempty"`
-
-	Stages []StageReport `json:"stages"`
 }
 
 // Report flattens r for report.json. withHardware says whether a native
 // multiplier size and a clock were given (so that 0 multipliers is a figure).
-// When r.BitTrueErr is set the bit-true figures are zero and marked (see
-// ChainReport.BitTrueError); everything else is reported as usual.
+// When r.BitTrueErr is set the bit-true figures are left out and
+// ChainReport.BitTrueError says why; everything else is reported as usual.
 func (r *Result) Report(withHardware bool) ChainReport {
 	out := ChainReport{
 		QuantisedRejectionDB: r.Quantised.AliasRejectionDB,
@@ -106,14 +113,16 @@ func (r *Result) Report(withHardware bool) ChainReport {
 		for _, t := range bt.Tones {
 			sig = append(sig, fmt.Sprintf("%s Hz at %s dBFS", fmtG(t.Freq), fmtG(t.Level)))
 		}
-		out.BitTrueSNRDB, out.BitTrueENOB, out.BitTrueMatchDB = bt.SNRDB, bt.ENOB, bt.MatchDB
 		out.BitTrueSNRValid, out.BitTrueSNRNote = bt.SNRValid, bt.SNRNote
-		out.BitTrueOutputLevels = append([]float64(nil), bt.OutputLevels...)
-		out.BitTrueOffsetLSB, out.InputSNRDB = bt.OutputOffset, bt.InputSNRDB
-		out.BitTrueAliasHz, out.BitTrueAliasRejectionDB = bt.AliasHz, bt.AliasRejectionDB
-		out.AliasResponseDB, out.BitTrueAliasValid = bt.AliasResponseDB, bt.AliasValid
-		out.TestSignal = fmt.Sprintf("%s; white Gaussian noise %s dBFS RMS; %d output samples",
-			strings.Join(sig, ", "), fmtG(bt.NoiseDBFS), bt.Samples)
+		out.BitTrueReport = &BitTrueReport{
+			BitTrueSNRDB: bt.SNRDB, BitTrueENOB: bt.ENOB, BitTrueMatchDB: bt.MatchDB,
+			BitTrueOutputLevels: append([]float64(nil), bt.OutputLevels...),
+			BitTrueOffsetLSB:    bt.OutputOffset, InputSNRDB: bt.InputSNRDB,
+			BitTrueAliasHz: bt.AliasHz, BitTrueAliasRejectionDB: bt.AliasRejectionDB,
+			AliasResponseDB: bt.AliasResponseDB, BitTrueAliasValid: bt.AliasValid,
+			TestSignal: fmt.Sprintf("%s; white Gaussian noise %s dBFS RMS; %d output samples",
+				strings.Join(sig, ", "), fmtG(bt.NoiseDBFS), bt.Samples),
+		}
 	}
 	if withHardware {
 		m := r.Widths.HardwareMultipliers

@@ -380,16 +380,16 @@ func printSummary(w io.Writer, j *job, rep *report.Report, files []report.File) 
 func printWords(w io.Writer, rep *report.Report) {
 	ch := rep.Front[rep.Recommended]
 	coef := map[string]string{"fixed": "coefficients as set", "auto": "coefficients auto", "float": "coefficients auto, for information (the files stay floating point)"}[rep.Spec.Words.CoefficientsMode]
-	switch {
-	case ch.ChainReport != nil:
-		fmt.Fprintf(w, "\nword lengths (%s): bit-true SNR %.1f dB, ENOB %.2f bits; quantised alias rejection %.2f dB\n",
-			coef, ch.BitTrueSNRDB, ch.BitTrueENOB, ch.QuantisedRejectionDB)
-	case len(ch.Stages) > 0 && ch.Stages[0].StageReport != nil:
-		fmt.Fprintf(w, "\nword lengths (%s): %s\n", coef, ch.WordLengthsError)
-	default:
+	if ch.ChainReport == nil {
 		fmt.Fprintf(w, "\nword lengths: not planned (%s)\n", ch.WordLengthsError)
 		return
 	}
+	gain := fmt.Sprintf("DC gain %.2f dB", ch.DCGainDB)
+	if ch.GainCorrection != 1 && ch.GainCorrection != 0 {
+		gain += fmt.Sprintf(" (correction x%.6g folded into the last FIR)", ch.GainCorrection)
+	}
+	fmt.Fprintf(w, "\nword lengths (%s): %s; rounded taps: alias rejection %.2f dB, ripple %.4f dB; %s\n",
+		coef, ch.BitTrueSummary(), ch.QuantisedRejectionDB, ch.QuantisedRippleDB, gain)
 	for i, st := range ch.Stages {
 		sr := st.StageReport
 		if sr == nil {
@@ -405,7 +405,7 @@ func printWords(w io.Writer, rep *report.Report) {
 				fmt.Fprintf(&b, " (%d hardware at %s)", *sr.HardwareMultipliers, rep.Spec.Hardware.Multiplier)
 			}
 			if !sr.QuantisedMeetsBands {
-				b.WriteString(", quantised taps miss this stage's own bands")
+				b.WriteString(", rounded taps miss this stage's own bands (the chain is judged as a whole)")
 			}
 		}
 		fmt.Fprintf(&b, ", out %d bits", sr.OutputBits)
@@ -416,6 +416,10 @@ func printWords(w io.Writer, rep *report.Report) {
 func printTable(w io.Writer, rep *report.Report) {
 	clock := rep.Spec.Hardware.ClockHz != nil
 	head := []string{"", "#", "chain", "mult/out", "adds/out", "memory bits", "latency", "rejection", "ripple", "figures"}
+	rounded := len(rep.Front) > 0 && rep.Front[0].VerdictBasis == "rounded taps"
+	if rounded {
+		head[7], head[8] = "rejection*", "ripple*"
+	}
 	if clock {
 		head = append(head[:6], append([]string{"multipliers"}, head[6:]...)...)
 	}
@@ -432,6 +436,7 @@ func printTable(w io.Writer, rep *report.Report) {
 		if !ch.MeetsTargets {
 			kind += ", misses spec"
 		}
+		rej, rip := ch.BuiltFigures()
 		row := []string{mark, fmt.Sprint(i + 1), ch.Notation,
 			trimFloat(ch.MultipliesPerOutput, 1), trimFloat(ch.AddsPerOutput, 1), fmt.Sprint(ch.MemoryBits)}
 		if clock {
@@ -443,8 +448,8 @@ func printTable(w io.Writer, rep *report.Report) {
 		}
 		row = append(row,
 			fmt.Sprintf("%s (%.1f out)", seconds(ch.LatencyS), ch.LatencySamples),
-			fmt.Sprintf("%.2f dB", ch.AliasRejectionDB),
-			fmt.Sprintf("%.4f dB", ch.PassbandRippleDB),
+			fmt.Sprintf("%.2f dB", rej),
+			fmt.Sprintf("%.4f dB", rip),
 			kind)
 		rows = append(rows, row)
 	}
@@ -467,6 +472,13 @@ func printTable(w io.Writer, rep *report.Report) {
 			}
 		}
 		fmt.Fprintln(w, strings.TrimRight(b.String(), " "))
+	}
+	if rounded {
+		what := "rounded to the automatic widths"
+		if c := rep.Spec.Words.Coefficients; c != nil {
+			what = fmt.Sprintf("rounded to %d bits", *c)
+		}
+		fmt.Fprintf(w, "* with the taps %s, as they will be built; the verdict is judged on them (report.json also holds the float design's figures)\n", what)
 	}
 }
 

@@ -292,24 +292,32 @@ func planCautions(r *report.Report) []string {
 	if !c.Designed {
 		out = append(out, "The recommended chain's figures are estimates (order formulas), not a real design.")
 	}
+	rej, rip := c.BuiltFigures()
 	if !c.MeetsTargets {
-		out = append(out, fmt.Sprintf("The recommended chain misses the spec: alias rejection %.2f dB against %s dB, ripple %.4f dB against %s dB.",
-			c.AliasRejectionDB, shortest(r.Spec.RejectionDB), c.PassbandRippleDB, shortest(r.Spec.RippleDB)))
+		out = append(out, fmt.Sprintf("The recommended chain misses the spec (judged on its %s): alias rejection %.2f dB against %s dB, ripple %.4f dB against %s dB.",
+			c.VerdictBasis, rej, shortest(r.Spec.RejectionDB), rip, shortest(r.Spec.RippleDB)))
 	} else if c.RejectionMarginDB < 1 {
 		out = append(out, fmt.Sprintf("The recommended chain's rejection margin is thin (%.2f dB): coefficient rounding and data-path truncation can use it up.", c.RejectionMarginDB))
 	}
 	if r.Spec.Words.CoefficientsMode == "auto" {
-		out = append(out, fmt.Sprintf("Coefficient widths are automatic: each stage's integer files use the narrowest width whose quantised response meets its bands; memory in the table counts %d-bit coefficient words (the pricing default), the word-length figures in report.json count the chosen widths.", cost.FloatCoefBits))
+		out = append(out, fmt.Sprintf("Coefficient widths are automatic: the narrowest widths with which the whole chain meets the spec once its taps are rounded; the verdicts, rejection and ripple in the table are those of the rounded taps; memory in the table counts %d-bit coefficient words (the pricing default), the word-length figures in report.json count the chosen widths.", cost.FloatCoefBits))
 	} else if r.Spec.Words.Coefficients == nil {
 		out = append(out, fmt.Sprintf("No coefficient width was given: rejection and ripple are those of floating-point coefficients, memory counts %d-bit coefficient words (the pricing default), and no integer or $readmemh files were written.", cost.FloatCoefBits))
 	} else {
-		out = append(out, fmt.Sprintf("The integer coefficient files are rounded to %d bits; the rejection and ripple above are those of the floating-point design.", *r.Spec.Words.Coefficients))
+		out = append(out, fmt.Sprintf("The taps are rounded to %d bits: the verdicts, rejection and ripple in the table are those of the rounded taps, as they will be built; report.json also holds the floating-point design's figures.", *r.Spec.Words.Coefficients))
 	}
 	if w := c.ChainReport; w != nil {
-		out = append(out, fmt.Sprintf("Word lengths of the recommended chain (planning figures from a model of the data path, to be confirmed by a bit-true simulation of the RTL): bit-true SNR %.1f dB, ENOB %.2f bits on %s; with the quantised coefficients the cascade's alias rejection is %.2f dB.",
-			w.BitTrueSNRDB, w.BitTrueENOB, w.TestSignal, w.QuantisedRejectionDB))
+		msg := fmt.Sprintf("Word lengths of the recommended chain (planning figures from a model of the data path, to be confirmed by a bit-true simulation of the RTL): %s", c.BitTrueSummary())
+		if w.BitTrueReport != nil {
+			msg += " on " + w.TestSignal
+		}
+		msg += fmt.Sprintf("; with the rounded coefficients the cascade's alias rejection is %.2f dB and its passband ripple %.4f dB; its gain at 0 Hz from input to output full scale is %.2f dB", w.QuantisedRejectionDB, w.QuantisedRippleDB, w.DCGainDB)
+		if w.GainCorrection != 1 && w.GainCorrection != 0 {
+			msg += fmt.Sprintf(" after a correction of x%.6g folded into the last FIR stage's taps", w.GainCorrection)
+		}
+		out = append(out, msg+".")
 	} else if c.WordLengthsError != "" {
-		out = append(out, "No bit-true figures for the recommended chain: "+c.WordLengthsError+".")
+		out = append(out, "No word-length figures for the recommended chain: "+c.WordLengthsError+".")
 	}
 	if r.Spec.Signal == "complex" {
 		out = append(out, "Complex (I/Q) signal: multiplies, adders and data memory count both the I and the Q filters.")
@@ -327,13 +335,14 @@ func frontRows(front []report.Chain, rec int, clock bool) []frontRow {
 		if !c.MeetsTargets {
 			kind += ", misses spec"
 		}
+		rej, rip := c.BuiltFigures()
 		row := frontRow{
 			Index: i + 1, Rec: i == rec, Notation: c.Notation,
 			Mult: trimFloat(c.MultipliesPerOutput, 2), Adds: trimFloat(c.AddsPerOutput, 2),
 			MemBits: strconv.Itoa(c.MemoryBits), MemWords: strconv.Itoa(c.MemoryWords),
 			Latency: seconds(c.LatencyS), LatOut: trimFloat(c.LatencySamples, 1),
-			Rejection: fmt.Sprintf("%.2f", c.AliasRejectionDB), Margin: fmt.Sprintf("%+.2f", c.RejectionMarginDB),
-			Ripple: fmt.Sprintf("%.4f", c.PassbandRippleDB), Kind: kind, Misses: !c.MeetsTargets,
+			Rejection: fmt.Sprintf("%.2f", rej), Margin: fmt.Sprintf("%+.2f", c.RejectionMarginDB+rej-c.AliasRejectionDB),
+			Ripple: fmt.Sprintf("%.4f", rip), Kind: kind, Misses: !c.MeetsTargets,
 		}
 		var tags []string
 		if !c.Designed {

@@ -20,12 +20,10 @@ const Schema = "stepdown.report/1"
 // Caution is the planning caveat carried by every report.
 const Caution = "planning estimates, confirm by bit-true simulation of the RTL and the team's sign-off before committing hardware"
 
-// Tolerances of meets_targets, the same as the search's when it keeps a
-// designed chain: a cascade's other stages may lift an alias band by their
-// passband ripple, which the per-stage targets do not see.
+// Tolerances of meets_targets: chain.Analysis.Meets's, the search's too.
 const (
-	RejectionToleranceDB = 0.01
-	RippleToleranceDB    = 1e-4
+	RejectionToleranceDB = chain.RejectionSlackDB
+	RippleToleranceDB    = chain.RippleSlackDB
 )
 
 // Report is report.json.
@@ -66,6 +64,9 @@ type Words struct {
 	Output           int    `json:"output"`
 	Coefficients     *int   `json:"coefficients"`
 	CoefficientsMode string `json:"coefficients_mode"`
+	// UnityGain is words.unity_gain: the chain's DC gain folded to unity in
+	// its last FIR stage's taps.
+	UnityGain bool `json:"unity_gain"`
 }
 
 // Hardware holds the clock in Hz, null when not given, and the native
@@ -98,9 +99,17 @@ type Search struct {
 
 // Chain is one chain of the front.
 type Chain struct {
-	Notation            string  `json:"notation"`
-	Designed            bool    `json:"designed"`
+	Notation string `json:"notation"`
+	Designed bool   `json:"designed"`
+	// MeetsTargets is the verdict on what will be built: on the rounded
+	// taps (quantised_alias_rejection_db, quantised_passband_ripple_db)
+	// when the word lengths are planned with coefficients of a width or
+	// "auto", on the float taps otherwise; VerdictBasis says which
+	// ("rounded taps" or "float taps"), FloatMeetsTargets is the float
+	// design's own verdict.
 	MeetsTargets        bool    `json:"meets_targets"`
+	VerdictBasis        string  `json:"verdict_basis"`
+	FloatMeetsTargets   bool    `json:"float_meets_targets"`
 	MultipliesPerOutput float64 `json:"multiplies_per_output"`
 	AddsPerOutput       float64 `json:"adds_per_output"`
 	MemoryWords         int     `json:"memory_words"`
@@ -172,6 +181,7 @@ func NewSpec(s *specfile.Spec) Spec {
 		},
 	}
 	out.Words.CoefficientsMode = s.CoefMode()
+	out.Words.UnityGain = s.UnityGain
 	if c.CoefBits > 0 {
 		b := c.CoefBits
 		out.Words.Coefficients = &b
@@ -206,8 +216,8 @@ func NewChain(spec chain.Spec, cand optimize.Candidate, clock bool) (Chain, erro
 		WorstAliasHz:        a.WorstAliasHz,
 		PassbandRippleDB:    a.PassbandRippleDB,
 	}
-	out.MeetsTargets = a.AliasRejectionDB >= spec.RejectionDB-RejectionToleranceDB &&
-		a.PassbandRippleDB <= spec.RippleDB+RippleToleranceDB
+	out.FloatMeetsTargets = a.Meets(spec)
+	out.MeetsTargets, out.VerdictBasis = out.FloatMeetsTargets, "float taps"
 	if clock {
 		m := f.MultipliersAtClock
 		out.MultipliersAtClock = &m
@@ -259,35 +269,31 @@ func NewChain(spec chain.Spec, cand optimize.Candidate, clock bool) (Chain, erro
 // AddWordLengths runs package chain/fixed's word-length planner and bit-true
 // run (fixed.Evaluate) on cand's chain and puts the figures into c, which
 // NewChain made from cand. spec is the normalised chain spec the planner
-// reads its words from (CoefBits zero: the narrowest width per stage that
-// meets its bands); withHardware says that a native multiplier size and a
-// clock are set in s, so that hardware multipliers are figures.
+// reads its words from (CoefBits zero: "auto", the narrowest widths with
+// which the whole chain meets); withHardware says that a native multiplier
+// size and a clock are set in s, so that hardware multipliers are figures.
+// rounded says that the verdict is to be judged on the rounded taps (the
+// spec gives a coefficient width or "auto"): MeetsTargets then needs both
+// the float design and its quantised figures to meet.
 //
 // When the bit-true run cannot be made (a CIC register wider than its
-// integers) but the widths can, the stages get their widths, the chain no
-// bit-true figures, and WordLengthsError says why; a chain the planner cannot
-// take at all (an estimate has no taps) gets only WordLengthsError.
-func AddWordLengths(c *Chain, spec chain.Spec, cand optimize.Candidate, s fixed.Settings, withHardware bool) {
+// integers) the chain still gets its widths and quantised figures, and
+// WordLengthsError says why there are no bit-true ones; a chain the planner
+// cannot take at all (an estimate has no taps) gets only WordLengthsError,
+// and with rounded set it does not meet: nothing says its rounded taps do.
+func AddWordLengths(c *Chain, spec chain.Spec, cand optimize.Candidate, s fixed.Settings, withHardware, rounded bool) {
+	if rounded {
+		c.VerdictBasis = "rounded taps"
+		c.MeetsTargets = false
+	}
 	if cand.Chain == nil {
 		c.WordLengthsError = "no designed chain"
 		return
 	}
 	res, err := fixed.Evaluate(spec, cand.Chain, s, fixed.Signal{})
-	bitTrue := err == nil
 	if err != nil {
-		// Evaluate is FromChain, Plan, then the bit-true run: redo the first
-		// two to tell a failed run from a chain the planner cannot take.
-		cas, w, perr := fixed.FromChain(spec, cand.Chain)
-		var ws *fixed.Widths
-		if perr == nil {
-			ws, perr = fixed.Plan(cas, w, s)
-		}
-		if perr != nil {
-			c.WordLengthsError = strings.TrimPrefix(perr.Error(), "fixed: ")
-			return
-		}
-		c.WordLengthsError = "widths planned, no bit-true run: " + strings.TrimPrefix(err.Error(), "fixed: ")
-		res = &fixed.Result{Widths: ws}
+		c.WordLengthsError = strings.TrimPrefix(err.Error(), "fixed: ")
+		return
 	}
 	cr := res.Report(withHardware)
 	if len(cr.Stages) != len(c.Stages) {
@@ -298,9 +304,13 @@ func AddWordLengths(c *Chain, spec chain.Spec, cand optimize.Candidate, s fixed.
 		st := cr.Stages[i]
 		c.Stages[i].StageReport = &st
 	}
-	if bitTrue {
-		cr.Stages = nil
-		c.ChainReport = &cr
+	if res.BitTrueErr != nil {
+		c.WordLengthsError = "widths planned, no bit-true run: " + cr.BitTrueError
+	}
+	cr.Stages = nil
+	c.ChainReport = &cr
+	if rounded {
+		c.MeetsTargets = c.FloatMeetsTargets && res.Quantised.Meets(spec)
 	}
 }
 
@@ -336,7 +346,7 @@ func New(command string, s *specfile.Spec, res *optimize.Result) (*Report, error
 		if err != nil {
 			return nil, err
 		}
-		AddWordLengths(&c, s.Chain, cand, fs, hw)
+		AddWordLengths(&c, s.Chain, cand, fs, hw, s.CoefMode() != "float")
 		r.Front = append(r.Front, c)
 	}
 	if len(r.Front) > 0 && (r.Recommended < 0 || r.Recommended >= len(r.Front)) {
@@ -393,4 +403,28 @@ func nonFinite(v reflect.Value, path string) string {
 		}
 	}
 	return ""
+}
+
+// BuiltFigures returns the alias rejection and passband ripple the verdict
+// is judged on: those of the rounded taps when VerdictBasis is "rounded
+// taps" and they were measured, the float design's otherwise.
+func (c *Chain) BuiltFigures() (rejectionDB, rippleDB float64) {
+	if c.VerdictBasis == "rounded taps" && c.ChainReport != nil {
+		return c.QuantisedRejectionDB, c.QuantisedRippleDB
+	}
+	return c.AliasRejectionDB, c.PassbandRippleDB
+}
+
+// BitTrueSummary says in a phrase what the bit-true run found: the SNR and
+// ENOB when they are meaningful, otherwise why there is no number.
+func (c *Chain) BitTrueSummary() string {
+	switch {
+	case c.ChainReport == nil:
+		return "no word-length plan (" + c.WordLengthsError + ")"
+	case c.BitTrueReport == nil:
+		return "no bit-true run (" + c.BitTrueError + ")"
+	case !c.BitTrueSNRValid:
+		return "bit-true SNR not meaningful (" + c.BitTrueSNRNote + ")"
+	}
+	return fmt.Sprintf("bit-true SNR %.1f dB, ENOB %.2f bits", c.BitTrueSNRDB, c.BitTrueENOB)
 }

@@ -185,9 +185,12 @@ func TestWordLengths(t *testing.T) {
 }
 
 // A CIC whose full register is wider than the bit-true run's integers still
-// gets its widths; the chain then has no bit-true figures and says why.
+// gets its widths and the chain its quantised figures; it has no bit-true
+// figures and says why.
 func TestWordLengthsWithoutBitTrue(t *testing.T) {
-	// Hogenauer (1981): 16 + ceil(6 log2 1024) = 76 bits, beyond 63.
+	// Hogenauer (1981): 16 + ceil(6 log2 1024) = 76 bits, beyond 63; (RM)^N
+	// is a power of two, so one guard bit keeps the truncations from
+	// wrapping the output (chain/fixed's doc): 77 bits.
 	s, res := designed(t, `input_rate = "122.88 MHz"
 output_rate = "30 kHz"
 passband = "12 kHz"
@@ -201,11 +204,12 @@ coefficients = "auto"
 		t.Fatal(err)
 	}
 	ch := r.Front[0]
-	if ch.ChainReport != nil || !strings.Contains(ch.WordLengthsError, "no bit-true run") || !strings.Contains(ch.WordLengthsError, "76-bit") {
+	if ch.ChainReport == nil || ch.BitTrueReport != nil || ch.BitTrueSNRValid || !(ch.QuantisedRejectionDB > 0) ||
+		!strings.Contains(ch.WordLengthsError, "no bit-true run") || !strings.Contains(ch.WordLengthsError, "77-bit") {
 		t.Errorf("chain report %+v, error %q", ch.ChainReport, ch.WordLengthsError)
 	}
-	if w := ch.Stages[0].StageReport; w == nil || w.AccumulatorBits != 76 {
-		t.Errorf("cic widths %+v, want a 76-bit register", w)
+	if w := ch.Stages[0].StageReport; w == nil || w.AccumulatorBits != 77 {
+		t.Errorf("cic widths %+v, want a 77-bit register", w)
 	}
 	if w := ch.Stages[1].StageReport; w == nil || w.CoefficientBits == 0 || len(w.CoefficientsInt) != len(ch.Stages[1].Coefficients) {
 		t.Errorf("fir widths %+v", w)

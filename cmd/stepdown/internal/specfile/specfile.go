@@ -60,6 +60,10 @@ type Spec struct {
 	// Chain.CoefBits is then zero, so the search prices coefficients at
 	// cost.FloatCoefBits, as for floating point.
 	CoefAuto bool
+	// UnityGain is words.unity_gain: fold 1/(chain DC gain) into the last
+	// FIR stage's taps before they are rounded, so that a passband tone
+	// leaves at the level it entered (fixed.Settings.UnityGain).
+	UnityGain bool
 	// Multiplier is hardware.multiplier as written ("18x27"), NativeA and
 	// NativeB its operand widths in bits; zero when not given.
 	Multiplier       string
@@ -78,7 +82,7 @@ func (s *Spec) CostSettings() cost.Settings {
 
 // FixedSettings returns the word-length planner's settings the spec asks for.
 func (s *Spec) FixedSettings() fixed.Settings {
-	return fixed.Settings{NoSymmetry: !s.Symmetry, NativeA: s.NativeA, NativeB: s.NativeB, Clock: s.Clock}
+	return fixed.Settings{NoSymmetry: !s.Symmetry, NativeA: s.NativeA, NativeB: s.NativeB, Clock: s.Clock, UnityGain: s.UnityGain}
 }
 
 // CoefMode is "fixed" when words.coefficients is a width, "auto" when it is
@@ -184,6 +188,7 @@ var known = []key{
 	{path: "input_rate"}, {path: "output_rate"}, {path: "passband"}, {path: "protected"},
 	{path: "stopband"}, {path: "ripple"}, {path: "rejection"}, {path: "signal"},
 	{path: "words", table: true}, {path: "words.input"}, {path: "words.output"}, {path: "words.coefficients"},
+	{path: "words.unity_gain"},
 	{path: "hardware", table: true}, {path: "hardware.clock"}, {path: "hardware.multiplier"},
 	{path: "cost", table: true}, {path: "cost.symmetry"},
 	{path: "search", table: true}, {path: "search.max_stages"}, {path: "search.kinds"},
@@ -555,12 +560,17 @@ func (p *parser) build() (*Spec, error) {
 		}
 		out.Multiplier, out.NativeA, out.NativeB = str, a, b
 	}
-	if v, ok := p.lookup("cost.symmetry"); ok {
-		b, isBool := v.(bool)
-		if !isBool {
-			return nil, p.errAt("cost.symmetry", v, "want true or false, not a %s", typeName(v))
+	for _, f := range []struct {
+		key string
+		dst *bool
+	}{{"words.unity_gain", &out.UnityGain}, {"cost.symmetry", &out.Symmetry}} {
+		if v, ok := p.lookup(f.key); ok {
+			b, isBool := v.(bool)
+			if !isBool {
+				return nil, p.errAt(f.key, v, "want true or false, not a %s", typeName(v))
+			}
+			*f.dst = b
 		}
-		out.Symmetry = b
 	}
 
 	out.MaxStages = DefaultMaxStages

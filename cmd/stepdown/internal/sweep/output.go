@@ -28,7 +28,8 @@ var CSVHeader = []string{
 	"designed", "meets_targets", "multiplies_per_output", "adds_per_output", "memory_bits",
 	"latency_s", "latency_samples", "multipliers_at_clock", "alias_rejection_db", "passband_ripple_db",
 	"front_size", "best_multiplies_per_output", "best_memory_bits", "best_latency_s", "best_multipliers_at_clock",
-	"bittrue_snr_db", "bittrue_enob", "quantised_alias_rejection_db", "coefficient_bits", "detail",
+	"bittrue_snr_db", "bittrue_enob", "quantised_alias_rejection_db", "coefficient_bits",
+	"quantised_passband_ripple_db", "dc_gain_db", "bittrue_snr_valid", "verdict_basis", "detail",
 }
 
 // CSV returns sweep.csv: one row per value, in the order of the values.
@@ -58,7 +59,7 @@ func CSV(v Vary, rs []Result) []byte {
 				strconv.Itoa(len(rep.Front)), num(b.Multiplies), strconv.Itoa(b.MemoryBits), num(b.LatencyS), bestMult)
 			row = append(row, wordCells(c)...)
 		} else {
-			row = append(row, make([]string, 21)...)
+			row = append(row, make([]string, len(CSVHeader)-6)...)
 		}
 		row = append(row, r.Detail)
 		_ = w.Write(row)
@@ -68,12 +69,15 @@ func CSV(v Vary, rs []Result) []byte {
 }
 
 // wordCells are the recommended chain's word-length figures: bit-true SNR
-// and ENOB, the alias rejection with quantised coefficients, and the FIR and
-// half-band stages' coefficient widths in stage order, separated by spaces.
-// They are empty when the chain has no word-length plan.
+// and ENOB (empty when the run was not made or is not meaningful), the
+// alias rejection with rounded coefficients, the FIR and half-band stages'
+// coefficient widths in stage order (separated by spaces), the passband
+// ripple with rounded coefficients, the DC gain, whether the SNR is
+// meaningful, and the verdict's basis. All but the basis are empty when the
+// chain has no word-length plan.
 func wordCells(c report.Chain) []string {
 	if c.ChainReport == nil {
-		return make([]string, 4)
+		return append(make([]string, 7), c.VerdictBasis)
 	}
 	var bits []string
 	for _, st := range c.Stages {
@@ -81,7 +85,12 @@ func wordCells(c report.Chain) []string {
 			bits = append(bits, strconv.Itoa(st.CoefficientBits))
 		}
 	}
-	return []string{num(c.BitTrueSNRDB), num(c.BitTrueENOB), num(c.QuantisedRejectionDB), strings.Join(bits, " ")}
+	snr, enob := "", ""
+	if c.BitTrueReport != nil && c.BitTrueSNRValid {
+		snr, enob = num(c.BitTrueSNRDB), num(c.BitTrueENOB)
+	}
+	return []string{snr, enob, num(c.QuantisedRejectionDB), strings.Join(bits, " "),
+		num(c.QuantisedRippleDB), num(c.DCGainDB), strconv.FormatBool(c.BitTrueSNRValid), c.VerdictBasis}
 }
 
 // num writes a finite float in Go's shortest round-trip form; a NaN or

@@ -204,7 +204,9 @@ func TestRunAndCSV(t *testing.T) {
 		t.Fatalf("sweep.csv:\n%s", csv)
 	}
 	// 95 dB: cic5m1r8 > fir8, MPO 9.5, best MPO min(9.5, 11.875) = 9.5, memory 9500.
-	want := "4,rejection,95,95 dB,ok,cic5m1r8 > fir8,true,true,true,9.5,19,9500,9.5e-07,3,0,96,0.1,2,9.5,9500,9.5e-07,0,,,,,"
+	// The example fixes 18-bit coefficients, so the verdict is on the
+	// rounded taps, and the fake chain has none to round: it does not meet.
+	want := "4,rejection,95,95 dB,ok,cic5m1r8 > fir8,true,true,false,9.5,19,9500,9.5e-07,3,0,96,0.1,2,9.5,9500,9.5e-07,0,,,,,,,,rounded taps,"
 	if lines[4] != want {
 		t.Errorf("row 4:\n got %s\nwant %s", lines[4], want)
 	}
@@ -284,17 +286,18 @@ func TestFigure(t *testing.T) {
 func TestWordCells(t *testing.T) {
 	// Invented figures: the cells are written as report.json holds them.
 	c := report.Chain{
-		ChainReport: &fixed.ChainReport{BitTrueSNRDB: 116.5, BitTrueENOB: 19.06, QuantisedRejectionDB: 92.25},
+		ChainReport: &fixed.ChainReport{QuantisedRejectionDB: 92.25, BitTrueSNRValid: true,
+			BitTrueReport: &fixed.BitTrueReport{BitTrueSNRDB: 116.5, BitTrueENOB: 19.06}},
 		Stages: []report.Stage{
 			{Kind: "cic", StageReport: &fixed.StageReport{AccumulatorBits: 36}},
 			{Kind: "halfband", StageReport: &fixed.StageReport{CoefficientBits: 16}},
 			{Kind: "fir", StageReport: &fixed.StageReport{CoefficientBits: 20}},
 		},
 	}
-	if got, want := strings.Join(wordCells(c), ","), "116.5,19.06,92.25,16 20"; got != want {
+	if got, want := strings.Join(wordCells(c), ","), "116.5,19.06,92.25,16 20,0,0,true,"; got != want {
 		t.Errorf("cells %q, want %q", got, want)
 	}
-	if got := strings.Join(wordCells(report.Chain{WordLengthsError: "no taps"}), ","); got != ",,," {
+	if got := strings.Join(wordCells(report.Chain{WordLengthsError: "no taps"}), ","); got != ",,,,,,," {
 		t.Errorf("cells without a plan %q, want empty", got)
 	}
 }
