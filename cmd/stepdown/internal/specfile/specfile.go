@@ -106,6 +106,7 @@ func (s *Spec) SearchSettings() optimize.Settings {
 		CICOrders: append([]int(nil), s.CICOrders...),
 		CICDelays: append([]int(nil), s.CICDelays...),
 		Cost:      s.CostSettings(),
+		Fixed:     s.FixedSettings(),
 	}
 }
 
