@@ -297,16 +297,6 @@ func newLegend() *plot.Legend {
 	return &l
 }
 
-func withAlpha(c color.RGBA, a uint8) color.Color {
-	// color.RGBA is alpha-premultiplied.
-	return color.RGBA{
-		R: uint8(uint16(c.R) * uint16(a) / 255),
-		G: uint8(uint16(c.G) * uint16(a) / 255),
-		B: uint8(uint16(c.B) * uint16(a) / 255),
-		A: a,
-	}
-}
-
 // insetLegend draws a legend inside the data area, on a white box, in the
 // corner that hides the fewest of the given points (weights add up; ties go
 // to the earlier corner in corners).

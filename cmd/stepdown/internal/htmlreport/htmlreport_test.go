@@ -22,9 +22,8 @@ import (
 // produce a report.
 var sampleDir = flag.String("sample", "", "write a sample plan report.html into this folder")
 
-func ip(v int) *int         { return &v }
-func fp(v float64) *float64 { return &v }
-func bp(v bool) *bool       { return &v }
+func ip(v int) *int   { return &v }
+func bp(v bool) *bool { return &v }
 
 // sampleReport is an invented plan of the built-in example's spec with
 // invented figures: it exercises the page, not the planner.

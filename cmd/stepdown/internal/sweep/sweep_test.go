@@ -215,14 +215,14 @@ func TestRunAndCSV(t *testing.T) {
 func TestInvalidAndInfeasibleRows(t *testing.T) {
 	// 1.8 MHz gives a non-integer ratio; 3.84 MHz puts fs = FK - fa beyond ...
 	// the rows report, the sweep goes on.
-	rs, v := study(t, "output_rate=1.8 MHz:1.92 MHz:0.12 MHz", 2)
+	rs, _ := study(t, "output_rate=1.8 MHz:1.92 MHz:0.12 MHz", 2)
 	if rs[0].Status != Invalid || rs[0].Detail == "" || rs[1].Status != OK {
 		t.Fatalf("statuses %s (%s), %s", rs[0].Status, rs[0].Detail, rs[1].Status)
 	}
 	if strings.Contains(rs[0].Detail, "ex:") {
 		t.Errorf("detail names the rewritten file: %s", rs[0].Detail)
 	}
-	rs, v = study(t, "rejection=140:145:5", 2)
+	rs, v := study(t, "rejection=140:145:5", 2)
 	if rs[1].Status != Infeasible {
 		t.Errorf("145 dB: status %s", rs[1].Status)
 	}
