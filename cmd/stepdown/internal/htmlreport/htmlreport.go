@@ -297,7 +297,7 @@ func planCautions(r *report.Report) []string {
 		out = append(out, fmt.Sprintf("The recommended chain misses the spec (judged on its %s): alias rejection %.2f dB against %s dB, ripple %.4f dB against %s dB.",
 			c.VerdictBasis, rej, shortest(r.Spec.RejectionDB), rip, shortest(r.Spec.RippleDB)))
 	} else if c.RejectionMarginDB < 1 {
-		out = append(out, fmt.Sprintf("The recommended chain's rejection margin is thin (%.2f dB): coefficient rounding and data-path truncation can use it up.", c.RejectionMarginDB))
+		out = append(out, fmt.Sprintf("The recommended chain's rejection margin is thin (%.2f dB): data-path truncation can use it up.", c.RejectionMarginDB))
 	}
 	if r.Spec.Words.CoefficientsMode == "auto" {
 		out = append(out, fmt.Sprintf("Coefficient widths are automatic: the narrowest widths with which the whole chain meets the spec once its taps are rounded; the verdicts, rejection and ripple in the table are those of the rounded taps; memory in the table counts %d-bit coefficient words (the pricing default), the word-length figures in report.json count the chosen widths.", cost.FloatCoefBits))
@@ -341,7 +341,7 @@ func frontRows(front []report.Chain, rec int, clock bool) []frontRow {
 			Mult: trimFloat(c.MultipliesPerOutput, 2), Adds: trimFloat(c.AddsPerOutput, 2),
 			MemBits: strconv.Itoa(c.MemoryBits), MemWords: strconv.Itoa(c.MemoryWords),
 			Latency: seconds(c.LatencyS), LatOut: trimFloat(c.LatencySamples, 1),
-			Rejection: fmt.Sprintf("%.2f", rej), Margin: fmt.Sprintf("%+.2f", c.RejectionMarginDB+rej-c.AliasRejectionDB),
+			Rejection: fmt.Sprintf("%.2f", rej), Margin: fmt.Sprintf("%+.2f", c.RejectionMarginDB),
 			Ripple: fmt.Sprintf("%.4f", rip), Kind: kind, Misses: !c.MeetsTargets,
 		}
 		var tags []string

@@ -118,7 +118,10 @@ type Chain struct {
 	LatencySamples      float64 `json:"latency_samples"`
 	MultipliersAtClock  *int    `json:"multipliers_at_clock,omitempty"`
 	AliasRejectionDB    float64 `json:"alias_rejection_db"`
-	RejectionMarginDB   float64 `json:"rejection_margin_db"`
+	// RejectionMarginDB is the verdict's rejection over the target: the
+	// rounded taps' when VerdictBasis is "rounded taps", the float design's
+	// otherwise.
+	RejectionMarginDB float64 `json:"rejection_margin_db"`
 	WorstAliasHz        float64 `json:"worst_alias_hz"`
 	PassbandRippleDB    float64 `json:"passband_ripple_db"`
 	Stages              []Stage `json:"stages"`
@@ -311,6 +314,7 @@ func AddWordLengths(c *Chain, spec chain.Spec, cand optimize.Candidate, s fixed.
 	c.ChainReport = &cr
 	if rounded {
 		c.MeetsTargets = c.FloatMeetsTargets && res.Quantised.Meets(spec)
+		c.RejectionMarginDB = res.Quantised.AliasRejectionDB - spec.RejectionDB
 	}
 }
 
