@@ -122,9 +122,9 @@ type Chain struct {
 	// rounded taps' when VerdictBasis is "rounded taps", the float design's
 	// otherwise.
 	RejectionMarginDB float64 `json:"rejection_margin_db"`
-	WorstAliasHz        float64 `json:"worst_alias_hz"`
-	PassbandRippleDB    float64 `json:"passband_ripple_db"`
-	Stages              []Stage `json:"stages"`
+	WorstAliasHz      float64 `json:"worst_alias_hz"`
+	PassbandRippleDB  float64 `json:"passband_ripple_db"`
+	Stages            []Stage `json:"stages"`
 
 	// The word-length plan and bit-true run of package chain/fixed
 	// (bittrue_snr_db, bittrue_enob, quantised_alias_rejection_db, ...),
