@@ -9,13 +9,19 @@ import (
 type CICStage struct {
 	N, M, R int
 	// RegisterBits is the width of each of the 2N registers (integrators then
-	// combs) after Hogenauer's pruning for the spec's output width.
+	// combs) as PruneCIC plans them for the spec's output width: Hogenauer's
+	// (1981) pruning, each register keeping the MSB of the full width Width.
 	RegisterBits []int
+	// GuardBits is how many bits PruneCIC put above Hogenauer's full width
+	// Bin + ceil(N log2(R M)) so that no input can wrap the output (0 when
+	// nothing is pruned).
+	GuardBits int
 
 	// InputBits is the width of the samples entering the CIC.
 	InputBits int
 	// OutputBits is the width of the samples it delivers: the full register
-	// width or the spec's OutputBits, whichever is smaller.
+	// width or the spec's OutputBits, whichever is smaller (guard bits never
+	// change it: they are added only when the output is the narrower).
 	OutputBits int
 }
 
@@ -59,116 +65,37 @@ func CICGrowth(n, m, r int) int {
 // width (Hogenauer 1981, eq. 11; his Bmax is this minus one).
 func CICRegisterWidth(n, m, r, inBits int) int { return inBits + CICGrowth(n, m, r) }
 
-// CICVarianceFactors returns Hogenauer's F_j^2, j = 1..2N: the sum of squares
-// of the impulse response from register j to the CIC's output. Integrator j
-// (j <= N) sees H_j(z) = (1 - z^-RM)^N / (1 - z^-1)^(N-j+1) at the input rate,
-// comb j (j > N) sees (1 - z^-1)^(2N+1-j) at the output rate, so its factor is
-// the central binomial coefficient C(2(2N+1-j), 2N+1-j).
-func CICVarianceFactors(n, m, r int) []float64 {
-	rm := r * m
-	out := make([]float64, 2*n)
-	for j := 1; j <= n; j++ {
-		// (boxcar of length rm)^(n-j+1) convolved with (1 - z^-rm)^(j-1).
-		h := []float64{1}
-		for b := 0; b < n-j+1; b++ {
-			h = convBoxcar(h, rm)
-		}
-		for d := 0; d < j-1; d++ {
-			g := make([]float64, len(h)+rm)
-			copy(g, h)
-			for k, v := range h {
-				g[k+rm] -= v
-			}
-			h = g
-		}
-		s := 0.0
-		for _, v := range h {
-			s += v * v
-		}
-		out[j-1] = s
-	}
-	for j := n + 1; j <= 2*n; j++ {
-		c := 2*n + 1 - j
-		out[j-1] = binom(2*c, c)
-	}
-	return out
-}
-
-func convBoxcar(h []float64, l int) []float64 {
-	g := make([]float64, len(h)+l-1)
-	run := 0.0
-	for k := range g {
-		if k < len(h) {
-			run += h[k]
-		}
-		if k-l >= 0 && k-l < len(h) {
-			run -= h[k-l]
-		}
-		g[k] = run
-	}
-	return g
-}
-
-func binom(n, k int) float64 {
-	r := 1.0
-	for i := 1; i <= k; i++ {
-		r = r * float64(n-k+i) / float64(i)
-	}
-	return math.Round(r)
-}
-
-// CICPruning returns the least significant bits Hogenauer's method drops at
-// each of the 2N registers (integrators then combs) and at the output, for
-// inBits-wide input and outBits-wide output (Hogenauer 1981, eqs. 16-21):
-// the output truncation is B_{2N+1} = Bmax - Bout + 1 with Bmax the MSB index
-// of the full register, its noise variance sigma_T^2 = 2^(2 B_{2N+1})/12, and
-// register j drops
-//
-//	B_j = floor(-log2 F_j + log2 sigma_T + 0.5 log2(6/N))
-//
-// bits, so that the 2N truncations together add no more noise than the
-// output truncation. Negative counts are clamped to 0; when outBits covers
-// the full register nothing is dropped anywhere.
-func CICPruning(n, m, r, inBits, outBits int) (dropped []int, outputDropped int) {
-	width := CICRegisterWidth(n, m, r, inBits)
-	dropped = make([]int, 2*n)
-	outputDropped = width - outBits
-	if outputDropped <= 0 {
-		return dropped, 0
-	}
-	logSigmaT := 0.5 * (2*float64(outputDropped) - math.Log2(12))
-	f2 := CICVarianceFactors(n, m, r)
-	for j, v := range f2 {
-		b := math.Floor(-0.5*math.Log2(v) + logSigmaT + 0.5*math.Log2(6/float64(n)))
-		if b < 0 {
-			b = 0
-		}
-		if int(b) > outputDropped {
-			b = float64(outputDropped)
-		}
-		dropped[j] = int(b)
-	}
-	return dropped, outputDropped
-}
-
-// NewCICStage returns the CIC stage with its registers pruned by Hogenauer's
-// method for outBits-wide output (no pruning when outBits >= the full width).
+// NewCICStage returns the CIC stage of order n, differential delay m and
+// factor r on inBits-wide input, its registers planned by PruneCIC for an
+// outBits-wide output: Hogenauer's (1981) pruning plus the guard bits that
+// keep the truncations from wrapping the output, the widths package fixed
+// plans and runs bit-true (no pruning when outBits >= Bin + ceil(N log2 RM)).
+// It returns no error: for a CIC PruneCIC refuses (registers over
+// MaxCICBits, a word under 2 bits, N or M over 16, R over 2^20) every
+// register is left at the unpruned width Bin + ceil(N log2 RM), which no
+// input can wrap, and when N, M or R is below 1 RegisterBits is nil.
 func NewCICStage(n, m, r, inBits, outBits int) CICStage {
-	width := CICRegisterWidth(n, m, r, inBits)
-	dropped, _ := CICPruning(n, m, r, inBits, outBits)
-	regs := make([]int, len(dropped))
-	for j, d := range dropped {
-		regs[j] = width - d
+	st := CICStage{N: n, M: m, R: r, InputBits: inBits}
+	p, err := PruneCIC(n, m, r, inBits, outBits)
+	if err != nil {
+		if n < 1 || m < 1 || r < 1 {
+			return st
+		}
+		width := CICRegisterWidth(n, m, r, inBits)
+		st.RegisterBits = make([]int, 2*n)
+		for j := range st.RegisterBits {
+			st.RegisterBits[j] = width
+		}
+		st.OutputBits = min(width, outBits)
+		return st
 	}
-	ob := width
-	if outBits < ob {
-		ob = outBits
-	}
-	return CICStage{N: n, M: m, R: r, RegisterBits: regs, InputBits: inBits, OutputBits: ob}
+	st.RegisterBits, st.GuardBits, st.OutputBits = p.RegisterBits, p.GuardBits, p.OutputBits
+	return st
 }
 
-// Width returns the full (unpruned) register width.
-func (c CICStage) Width() int { return CICRegisterWidth(c.N, c.M, c.R, c.InputBits) }
+// Width returns the full register width, the MSB every register keeps:
+// Bin + ceil(N log2(R M)) + GuardBits.
+func (c CICStage) Width() int { return CICRegisterWidth(c.N, c.M, c.R, c.InputBits) + c.GuardBits }
 
 // DroopDB returns the CIC's peak-to-peak droop over [0, fp] in dB for input
 // rate rate, and false when a null of the CIC lies in [0, fp] (the droop
@@ -199,4 +126,20 @@ func (c CICStage) RejectionDB(bands []Interval, rate float64) (db, worstHz float
 	}
 	at, g := maximizeBands(f, bands, per, bound)
 	return -toDB(g), at
+}
+
+// convBoxcar returns h convolved with a boxcar of l ones.
+func convBoxcar(h []float64, l int) []float64 {
+	g := make([]float64, len(h)+l-1)
+	run := 0.0
+	for k := range g {
+		if k < len(h) {
+			run += h[k]
+		}
+		if k-l >= 0 && k-l < len(h) {
+			run -= h[k-l]
+		}
+		g[k] = run
+	}
+	return g
 }

@@ -3,6 +3,7 @@ package chain
 import (
 	"encoding/json"
 	"math"
+	"math/big"
 	"math/rand/v2"
 	"os"
 	"testing"
@@ -31,63 +32,210 @@ func TestCICRegisterWidth(t *testing.T) {
 	}
 }
 
-func TestCICVarianceFactorsCombs(t *testing.T) {
+// Hogenauer (1981): E. B. Hogenauer, "An economical class of digital
+// filters for decimation and interpolation", IEEE Trans. ASSP 29(2),
+// pp. 155-162. Equation numbers below are his.
+
+func TestCICVarianceFactors(t *testing.T) {
 	// Comb-only variance factors for 1..7 combs: 2, 6, 20, 70, 252, 924, 3432
-	// (Hogenauer 1981, eq. 16 for j > N; REFERENCES.md).
+	// (Hogenauer 1981, eq. 16 for j > N, the central binomials; REFERENCES.md).
 	want := []float64{2, 6, 20, 70, 252, 924, 3432}
-	f := CICVarianceFactors(7, 1, 10)
-	for c := 1; c <= 7; c++ {
-		// register j = 2N+1-c has c combs after it.
-		if got := f[2*7-c]; got != want[c-1] {
-			t.Errorf("%d combs: F^2 = %v, want %v", c, got, want[c-1])
+	for _, rm := range []int{8, 10} {
+		f, _ := cicRegisterNorms(7, rm)
+		for c := 1; c <= 7; c++ {
+			// register j = 2N+1-c has c combs after it.
+			if got := f[2*7-c]; got != want[c-1] {
+				t.Errorf("RM=%d, %d combs: F^2 = %v, want %v", rm, c, got, want[c-1])
+			}
 		}
 	}
-	// Integrator factors against a direct sum of the impulse response's
-	// squares from Hogenauer's eq. 16 with binomials (hand-checked formula).
-	n, r := 3, 5
-	f = CICVarianceFactors(n, 1, r)
-	for j := 1; j <= n; j++ {
-		s := 0.0
-		for k := 0; k <= (r-1)*n+j-1; k++ {
-			h := 0.0
-			for l := 0; l <= k/r; l++ {
-				sg := 1.0
-				if l%2 == 1 {
-					sg = -1
+	// Integrator factors against Hogenauer's eq. 16 summed directly: h_j(k)
+	// as the alternating sum of binomials sum_l (-1)^l C(N, l)
+	// C(N-j+k-RM l, k-RM l) (hand-checked formula), squared and summed.
+	for _, tc := range []struct{ n, rm int }{{3, 5}, {4, 25}, {7, 8}, {5, 2}} {
+		f, _ := cicRegisterNorms(tc.n, tc.rm)
+		for j := 1; j <= tc.n; j++ {
+			s := 0.0
+			for k := 0; k <= (tc.rm-1)*tc.n+j-1; k++ {
+				h := 0.0
+				for l := 0; l <= k/tc.rm; l++ {
+					sg := 1.0
+					if l%2 == 1 {
+						sg = -1
+					}
+					h += sg * binom(tc.n, l) * binom(tc.n-j+k-tc.rm*l, k-tc.rm*l)
 				}
-				h += sg * binom(n, l) * binom(n-j+k-r*l, k-r*l)
+				s += h * h
 			}
-			s += h * h
+			if math.Abs(f[j-1]-s) > 1e-12*s {
+				t.Errorf("N=%d RM=%d integrator %d: F^2 = %v, eq. 16 gives %v", tc.n, tc.rm, j, f[j-1], s)
+			}
 		}
-		if math.Abs(f[j-1]-s) > 1e-9*s {
-			t.Errorf("integrator %d: F^2 = %v, eq. 16 gives %v", j, f[j-1], s)
+	}
+}
+
+func TestCICL1NormsBruteForce(t *testing.T) {
+	// The L1 norms and F^2 of the register-to-output responses against a
+	// brute-force convolution of Hogenauer's (1981, eq. 9a) H_j(z):
+	// integrator j sees (boxcar of RM)^(N-j+1) times (1 - z^-RM)^(j-1); comb
+	// j sees (1 - z^-M)^(2N+1-j), whose L1 norm is 2^(2N+1-j).
+	for _, tc := range []struct{ n, rm int }{{1, 2}, {3, 8}, {4, 25}, {5, 6}, {7, 3}, {2, 64}, {6, 1}} {
+		f2, l1 := cicRegisterNorms(tc.n, tc.rm)
+		for j := 1; j <= tc.n; j++ {
+			h := []float64{1}
+			for b := 0; b < tc.n-j+1; b++ {
+				g := make([]float64, len(h)+tc.rm-1)
+				for k, v := range h {
+					for i := 0; i < tc.rm; i++ {
+						g[k+i] += v
+					}
+				}
+				h = g
+			}
+			for d := 0; d < j-1; d++ {
+				g := make([]float64, len(h)+tc.rm)
+				for k, v := range h {
+					g[k] += v
+					g[k+tc.rm] -= v
+				}
+				h = g
+			}
+			wantL1, wantF2 := 0.0, 0.0
+			for _, v := range h {
+				wantL1 += math.Abs(v)
+				wantF2 += v * v
+			}
+			if l1[j-1] != wantL1 || f2[j-1] != wantF2 {
+				t.Errorf("N=%d RM=%d integrator %d: L1 %g, F^2 %g; brute force %g, %g", tc.n, tc.rm, j, l1[j-1], f2[j-1], wantL1, wantF2)
+			}
+		}
+		for j := tc.n + 1; j <= 2*tc.n; j++ {
+			if want := math.Ldexp(1, 2*tc.n+1-j); l1[j-1] != want {
+				t.Errorf("N=%d comb %d: L1 %g, want %g", tc.n, j-tc.n, l1[j-1], want)
+			}
 		}
 	}
 }
 
 func TestCICPruningHogenauer(t *testing.T) {
 	// Hogenauer (1981) worked example, N=4, R=25, M=1, 16-bit in and out:
-	// bits dropped at registers 1..8 = 1, 6, 9, 13, 14, 15, 16, 17 and output
-	// truncation 19 (REFERENCES.md; recomputed here from his eqs. 16-21).
-	dropped, out := CICPruning(4, 1, 25, 16, 16)
-	want := []int{1, 6, 9, 13, 14, 15, 16, 17}
-	if out != 19 {
-		t.Errorf("output truncation = %d, want 19", out)
+	// Bmax = 34 (width 35), bits dropped at registers 1..8 = 1, 6, 9, 13, 14,
+	// 15, 16, 17 and output truncation 19 (REFERENCES.md: recomputed from his
+	// eqs. 16-21; the first eight match his table, from memory). (RM)^N =
+	// 390625 leaves room for the truncations, so PruneCIC adds no guard bit
+	// and gives the same plan.
+	want := []int{1, 6, 9, 13, 14, 15, 16, 17, 19}
+	h, err := HogenauerPruning(4, 1, 25, 16, 16)
+	if err != nil {
+		t.Fatal(err)
 	}
-	for j := range want {
-		if dropped[j] != want[j] {
-			t.Errorf("register %d drops %d bits, want %d (all: %v)", j+1, dropped[j], want[j], dropped)
+	p, err := PruneCIC(4, 1, 25, 16, 16)
+	if err != nil {
+		t.Fatal(err)
+	}
+	for _, q := range []CICPruning{h, p} {
+		if q.FullBits != 35 || q.GuardBits != 0 || q.OutputBits != 16 {
+			t.Errorf("FullBits %d guard %d output %d, want 35, 0, 16", q.FullBits, q.GuardBits, q.OutputBits)
+		}
+		for j := range want {
+			if q.Dropped[j] != want[j] {
+				t.Errorf("register %d drops %d bits, want %d (all: %v)", j+1, q.Dropped[j], want[j], q.Dropped)
+			}
 		}
 	}
 	st := NewCICStage(4, 1, 25, 16, 16)
-	if st.RegisterBits[0] != 34 || st.RegisterBits[7] != 18 || st.OutputBits != 16 {
-		t.Errorf("NewCICStage registers %v output %d, want 34 ... 18 and 16", st.RegisterBits, st.OutputBits)
+	if st.RegisterBits[0] != 34 || st.RegisterBits[7] != 18 || st.OutputBits != 16 || st.Width() != 35 {
+		t.Errorf("NewCICStage registers %v output %d width %d, want 34 ... 18, 16 and 35", st.RegisterBits, st.OutputBits, st.Width())
 	}
 	// Output as wide as the registers: nothing to prune (hand count).
-	dropped, out = CICPruning(4, 1, 25, 16, 40)
-	for _, d := range dropped {
-		if d != 0 || out != 0 {
-			t.Fatalf("no pruning expected, got %v, %d", dropped, out)
+	p, err = PruneCIC(4, 1, 25, 16, 40)
+	if err != nil {
+		t.Fatal(err)
+	}
+	for _, d := range p.Dropped {
+		if d != 0 || p.GuardBits != 0 || p.OutputBits != 35 {
+			t.Fatalf("no pruning expected, got %v, guard %d, output %d", p.Dropped, p.GuardBits, p.OutputBits)
+		}
+	}
+}
+
+func TestCICWidthTextbook(t *testing.T) {
+	// N = 3, R = 8, M = 1, 12-bit input: gain 512, 21-bit registers
+	// (REFERENCES.md, common textbook example); a 21-bit output keeps them
+	// whole at unit gain.
+	p, err := PruneCIC(3, 1, 8, 12, 21)
+	if err != nil {
+		t.Fatal(err)
+	}
+	if p.FullBits != 21 || p.Gain() != 1 {
+		t.Errorf("FullBits %d gain %g, want 21 and 1", p.FullBits, p.Gain())
+	}
+	for j, d := range p.Dropped {
+		if d != 0 {
+			t.Errorf("full-width output: register %d drops %d bits, want 0", j+1, d)
+		}
+	}
+}
+
+func TestPruneCICNoWrapBound(t *testing.T) {
+	// PruneCIC's plan must satisfy its own no-wrap inequality,
+	// (RM)^N 2^(Bin-1) + TruncationBound <= 2^(FullBits-1) (the DC gain times
+	// the largest input, Hogenauer 1981 eq. 11, plus the truncations' worst
+	// error), checked here in exact big-integer arithmetic against a
+	// truncation bound recomputed from the brute-force L1 norms; and when
+	// (RM)^N is a power of two, any pruning needs a guard bit (the first term
+	// alone fills the range). The bit-true wrap tests (adversarial inputs through the integer CIC) are
+	// package fixed's TestCICNoWrap.
+	for n := 1; n <= 7; n++ {
+		for _, m := range []int{1, 2} {
+			for _, r := range []int{2, 3, 4, 5, 8, 16, 25, 64} {
+				for _, w := range [][2]int{{16, 24}, {16, 16}, {12, 14}, {8, 10}, {4, 4}, {2, 3}} {
+					p, err := PruneCIC(n, m, r, w[0], w[1])
+					if err != nil {
+						t.Fatal(err)
+					}
+					_, l1 := cicRegisterNorms(n, r*m)
+					room := new(big.Int).Lsh(big.NewInt(1), uint(p.FullBits-1))
+					peak := new(big.Int).Exp(big.NewInt(int64(r*m)), big.NewInt(int64(n)), nil)
+					peak.Lsh(peak, uint(w[0]-1))
+					bound := new(big.Int)
+					prev := 0
+					for j := 0; j < 2*n; j++ {
+						if d := p.Dropped[j]; d > prev {
+							e := new(big.Int).Sub(new(big.Int).Lsh(big.NewInt(1), uint(d)), new(big.Int).Lsh(big.NewInt(1), uint(prev)))
+							l, _ := big.NewFloat(l1[j]).Int(nil)
+							bound.Add(bound, e.Mul(e, l))
+						}
+						prev = p.Dropped[j]
+					}
+					if new(big.Int).Add(peak, bound).Cmp(room) > 0 {
+						t.Errorf("N=%d M=%d R=%d %v: peak %v + bound %v > 2^%d", n, m, r, w, peak, bound, p.FullBits-1)
+					}
+					pruned := false
+					for j := 0; j < 2*n; j++ {
+						pruned = pruned || p.Dropped[j] > 0
+					}
+					pow2 := new(big.Int).Exp(big.NewInt(int64(r*m)), big.NewInt(int64(n)), nil)
+					if pruned && pow2.BitLen()-1 == int(pow2.TrailingZeroBits()) && p.GuardBits == 0 {
+						t.Errorf("N=%d M=%d R=%d %v: (RM)^N a power of two, registers pruned without a guard bit", n, m, r, w)
+					}
+				}
+			}
+		}
+	}
+}
+
+func TestPruneCICErrors(t *testing.T) {
+	// Bad parameters are errors, not panics; NewCICStage (no error) falls
+	// back to unpruned registers or none.
+	for _, a := range [][5]int{{0, 1, 8, 16, 24}, {17, 1, 8, 16, 24}, {3, 0, 8, 16, 24}, {3, 17, 8, 16, 24},
+		{3, 1, 0, 16, 24}, {3, 1, 8, 1, 24}, {3, 1, 8, 16, 1}, {16, 16, 1 << 20, 16, 24}, {3, 1, 1<<20 + 1, 16, 24}, {-1, -1, -1, 16, 24}} {
+		if _, err := PruneCIC(a[0], a[1], a[2], a[3], a[4]); err == nil {
+			t.Errorf("PruneCIC%v: no error", a)
+		}
+		st := NewCICStage(a[0], a[1], a[2], a[3], a[4])
+		if st.RegisterBits != nil && len(st.RegisterBits) != 2*a[0] {
+			t.Errorf("NewCICStage%v: %d registers", a, len(st.RegisterBits))
 		}
 	}
 }

@@ -52,10 +52,10 @@
 //     the passband flat further out and meets the same bands.
 //   - CIC: no design; its rejection is read on the same alias bands, its droop
 //     must be corrected by a later FIR stage. A CIC may stand anywhere in a
-//     plan (first is the usual place). Its registers are pruned by Hogenauer's
-//     method for an output as wide as spec.OutputBits (NewCICStage); its
-//     input is spec.InputBits wide when it is first, spec.OutputBits wide
-//     after another stage.
+//     plan (first is the usual place). Its registers are planned by
+//     PruneCIC for an output as wide as spec.OutputBits (NewCICStage, see
+//     CIC registers below); its input is spec.InputBits wide when it is
+//     first, spec.OutputBits wide after another stage.
 //
 // Ripple budget: the CIC droop that no later stage corrects, -20 log10
 // |H_cic(fp)| (the passband lies in the CIC's main lobe, where it falls
@@ -109,6 +109,24 @@
 // the CIC's figure (in 60 invented CIC > FIR chains with the target set at
 // the CIC's own rejection, by up to 1.45 dB); reading a compensated CIC's
 // rejection relative to its gain at the folded frequency would close it.
+//
+// # CIC registers
+//
+// PruneCIC (cicprune.go) owns the CIC register rule for the whole module:
+// Hogenauer's (1981) pruning (register j drops B_j LSBs, chosen from its
+// variance factor F_j^2 so that the 2N truncations add no more noise than
+// the output's own), widened so that no input within the input word can
+// wrap the output. Every register keeps the MSB of the full width; the
+// output is right when (RM)^N 2^(Bin-1) plus the truncations' worst error
+// (TruncationBound: each register's largest floor error times the L1 norm
+// of its impulse response to the output) fits below 2^(FullBits-1). When it
+// does not at Hogenauer's width Bin + ceil(N log2 RM), PruneCIC adds up to
+// two guard bits (GuardBits; always one when (RM)^N is a power of two and
+// something is pruned), and failing that prunes less. NewCICStage fills
+// CICStage.RegisterBits, GuardBits and OutputBits from it, so report.json's
+// register_bits, package cost's CIC memory, the optimiser's estimates and
+// package fixed's data-path plan and bit-true run use the same widths.
+// HogenauerPruning gives his plan alone, unguarded, for comparison.
 //
 // # Estimates and designs (DESIGN §6)
 //

@@ -97,3 +97,30 @@ func ExampleStopbandScale() {
 	// Output:
 	// dp 0.00288, scale 0.99140, design each stage to 80.075 dB
 }
+
+func ExamplePruneCIC() {
+	// Hogenauer's (1981) example: N = 4, R = 25, M = 1, 16 bits in and out.
+	p, err := chain.PruneCIC(4, 1, 25, 16, 16)
+	if err != nil {
+		fmt.Println(err)
+		return
+	}
+	fmt.Println("full width", p.FullBits, "guard", p.GuardBits)
+	fmt.Println("dropped", p.Dropped)
+	fmt.Println("registers", p.RegisterBits)
+	// (RM)^N = 8^4 is a power of two: pruned registers need a guard bit
+	// above Hogenauer's 26 so that their truncations cannot wrap the output.
+	q, err := chain.PruneCIC(4, 1, 8, 14, 18)
+	if err != nil {
+		fmt.Println(err)
+		return
+	}
+	fmt.Println("full width", q.FullBits, "guard", q.GuardBits)
+	fmt.Println("registers", q.RegisterBits)
+	// Output:
+	// full width 35 guard 0
+	// dropped [1 6 9 13 14 15 16 17 19]
+	// registers [34 29 26 22 21 20 19 18]
+	// full width 27 guard 1
+	// registers [27 27 25 24 23 22 21 20]
+}

@@ -40,6 +40,13 @@
 //	CIC:        N integrator registers plus N M comb delay words, each at its
 //	            own pruned register width (CICStage.RegisterBits), no coefficients
 //
+// A CIC's register widths are chain.PruneCIC's (NewCICStage fills
+// CICStage.RegisterBits from it): Hogenauer's pruning with the guard bits
+// that keep the truncations from wrapping the output, the widths package
+// fixed plans and runs bit-true, so this memory and fixed_memory_bits agree
+// on CICs. A CICStage without RegisterBits is priced at the unpruned width
+// chain.CICRegisterWidth.
+//
 // Data words are as wide as the samples entering the stage: spec.InputBits
 // for the first stage, the CIC's output width after a CIC (its register width
 // or spec.OutputBits, whichever is smaller), spec.OutputBits after an FIR or

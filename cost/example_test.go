@@ -26,7 +26,10 @@ func ExampleEvaluate() {
 	fmt.Printf("%.0f multiplies and %.0f adds per output, %d words (%d bits), %.2f us latency, %d multipliers\n",
 		f.MultipliesPerOutput, f.AddsPerOutput, f.MemoryWords, f.MemoryBits, f.LatencyS*1e6, f.MultipliersAtClock)
 	fmt.Printf("designed: %v, rejection %.1f dB\n", f.Designed, f.Analysis.AliasRejectionDB)
+	// The CIC's registers are chain.PruneCIC's: 32^5 is a power of two, so
+	// its pruned registers carry a guard bit (42 42 39 ... 27 bits, not
+	// Hogenauer's 41 41 39 ... 27).
 	// Output:
-	// 38 multiplies and 1395 adds per output, 92 words (2147 bits), 47.62 us latency, 3 multipliers
+	// 38 multiplies and 1395 adds per output, 92 words (2149 bits), 47.62 us latency, 3 multipliers
 	// designed: false, rejection 85.0 dB
 }

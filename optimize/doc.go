@@ -46,9 +46,9 @@
 // width, a FIR or half-band stage's rounding floor lies well above its
 // stopband limit (see Coefficient width), and when a CIC
 // is beaten by another searched CIC of the same factor that needs no more
-// memory (compared by unpruned register bits), latency, droop at fp or
-// output width and less of one: the rest of the chain being equal such a CIC
-// gives a chain at least as cheap, on the one assumption that a compensator
+// memory (its registers as chain.NewCICStage prunes them), latency, droop
+// at fp or output width and less of one: the rest of the chain being equal
+// such a CIC gives a chain at least as cheap, on the one assumption that a compensator
 // correcting less droop is no longer. That holds only while the beater's
 // chain stands: when it fails to design or misses the spec (see below), the
 // chains with the CICs it beats and the same later stages are taken back,

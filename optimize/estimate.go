@@ -176,6 +176,12 @@ type estimator struct {
 	// and delay.
 	beaten  map[[3]int]bool
 	margins map[[3]int]float64
+	// cics caches cicStage by factor, order and delay; lastCIC and lastCS
+	// are the last one asked for (the walk keeps a plan's first stage while
+	// it varies the rest).
+	cics    map[[3]int]chain.CICStage
+	lastCIC [3]int
+	lastCS  chain.CICStage
 	// orders and delays are the CIC parameters searched.
 	orders, delays []int
 	// keepBeaten turns cicBeaten off (for the exhaustive check).
@@ -196,7 +202,7 @@ func newEstimator(p params, tol float64) *estimator {
 	if tol == 0 {
 		tol = defaultTolerance
 	}
-	return &estimator{p: p, tol: tol, maxTaps: defaultMaxTaps, cache: make(map[stageKey]stageVal), beaten: map[[3]int]bool{}, beaters: map[[3]int][][2]int{}, reinstated: map[string]bool{}, reinstatedCIC: map[[3]int]bool{}, margins: map[[3]int]float64{},
+	return &estimator{p: p, tol: tol, maxTaps: defaultMaxTaps, cache: make(map[stageKey]stageVal), beaten: map[[3]int]bool{}, beaters: map[[3]int][][2]int{}, reinstated: map[string]bool{}, reinstatedCIC: map[[3]int]bool{}, margins: map[[3]int]float64{}, cics: map[[3]int]chain.CICStage{},
 		orders: []int{1, 2, 3, 4, 5, 6, 7}, delays: []int{1, 2}, floorPrune: true}
 }
 
@@ -247,8 +253,7 @@ func (e *estimator) keysOf(plan []chain.StagePlan) dropCode {
 			k.nRipple = int8(nRipple)
 			k.comp = i == comp
 			if i == 1 && cic.Kind == chain.CIC {
-				w := p.inBits + int(math.Ceil(float64(cic.CICOrder)*math.Log2(float64(cic.Factor*cic.CICDelay))))
-				k.inBits = int8(min(w, p.dataBits))
+				k.inBits = int8(e.cicStage(cic.Factor, cic.CICOrder, cic.CICDelay).OutputBits)
 			}
 			if k.comp {
 				k.cicR = int32(cic.Factor)
@@ -340,14 +345,9 @@ func (e *estimator) stage(k stageKey) stageVal {
 			v.drop = dropCICRejection
 			return v
 		}
-		// Priced as cost.Price does, with Hogenauer-pruned registers.
-		cs := chain.NewCICStage(n, m, f, p.inBits, p.dataBits)
-		bits := 0
-		for j := 0; j < n && 2*n == len(cs.RegisterBits); j++ {
-			bits += cs.RegisterBits[j] + m*cs.RegisterBits[n+j]
-		}
+		// Priced as cost.Price does, with chain.PruneCIC's registers.
 		v.f.words = float64(n+n*m) * cplx
-		v.f.bits = float64(bits) * cplx
+		v.f.bits = float64(cicMemoryBits(e.cicStage(f, n, m))) * cplx
 		v.f.lat = float64(n) * float64(f*m-1) / 2 / rate
 		// Pruning its registers and measuring its alias bands both grow
 		// with N R M.
@@ -542,6 +542,34 @@ func bandMax(g func(float64) float64, lo, hi float64) float64 {
 	return math.Max(best, math.Max(gc, gd))
 }
 
+// cicStage returns chain.NewCICStage for a first-stage CIC of factor r,
+// order n and delay m on the spec's words (input inBits, output dataBits,
+// as chain.Design builds it), cached: its registers are chain.PruneCIC's,
+// the widths the report, package cost and package fixed use.
+func (e *estimator) cicStage(r, n, m int) chain.CICStage {
+	key := [3]int{r, n, m}
+	if key == e.lastCIC {
+		return e.lastCS
+	}
+	cs, ok := e.cics[key]
+	if !ok {
+		cs = chain.NewCICStage(n, m, r, e.p.inBits, e.p.dataBits)
+		e.cics[key] = cs
+	}
+	e.lastCIC, e.lastCS = key, cs
+	return cs
+}
+
+// cicMemoryBits is a CIC's data memory as cost.Price counts it: one word
+// per integrator and M per comb, each as wide as its register.
+func cicMemoryBits(cs chain.CICStage) int {
+	bits := 0
+	for j := 0; j < cs.N && 2*cs.N == len(cs.RegisterBits); j++ {
+		bits += cs.RegisterBits[j] + cs.M*cs.RegisterBits[cs.N+j]
+	}
+	return bits
+}
+
 // cicBeaten reports whether another searched CIC of the same factor meets
 // the rejection with no more memory, latency, droop at fp or output width,
 // and less of one. The rest of the chain being equal, such a CIC makes the
@@ -568,14 +596,14 @@ func (e *estimator) cicBeaten(r, n, m int) bool {
 			if e.cicMargin(r, nn, mm) < 0 {
 				continue
 			}
-			full := e.p.inBits + int(math.Ceil(float64(nn)*math.Log2(float64(r*mm))))
-			w := full
-			if !last {
-				w = min(w, e.p.dataBits)
+			// Memory and output width as chain.NewCICStage gives them (the
+			// figures stage prices), cached per CIC.
+			cs := e.cicStage(r, nn, mm)
+			w := cs.OutputBits
+			if last {
+				w = cs.Width()
 			}
-			// Memory is compared by unpruned register bits: pruning every
-			// candidate CIC of a large factor would cost more than the search.
-			bits := float64((nn + nn*mm) * full)
+			bits := float64(cicMemoryBits(cs))
 			lat := float64(nn) * float64(r*mm-1) / 2 / e.p.f0
 			droop := -math.Log(cicGain(e.p.fp, e.p.f0, r, nn, mm))
 			ok = append(ok, cfg{nn, mm, [4]float64{bits, lat, droop, float64(w)}})

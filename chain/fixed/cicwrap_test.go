@@ -3,25 +3,20 @@ package fixed
 import (
 	"math/rand/v2"
 	"testing"
+
+	"stepdown/chain"
 )
 
 // hogenauerOnly is the plan of Hogenauer's (1981) rule alone at his width
 // Bin + ceil(N log2 RM), with no guard against the truncations' wrap: the
-// plan PruneCIC widens.
+// plan chain.PruneCIC widens.
 func hogenauerOnly(t *testing.T, n, m, r, in, out int) CICPruning {
 	t.Helper()
-	p, err := PruneCIC(n, m, r, in, out)
+	p, err := chain.HogenauerPruning(n, m, r, in, out)
 	if err != nil {
 		t.Fatal(err)
 	}
-	full := p.FullBits - p.GuardBits
-	d, vf := hogenauerDrops(n, r*m, full, out)
-	q := CICPruning{N: n, M: m, R: r, InputBits: in, OutputBits: min(out, full), FullBits: full, Dropped: d, VarianceFactors: vf}
-	for j := 0; j < 2*n; j++ {
-		q.RegisterBits = append(q.RegisterBits, full-d[j])
-	}
-	q.TruncationBound = truncationBound(n, d, cicL1Norms(n, r*m))
-	return q
+	return p
 }
 
 // cicExact returns the exact CIC output (no truncation) at input indices
@@ -111,7 +106,7 @@ func TestCICNoWrap(t *testing.T) {
 					continue
 				}
 				for _, w := range [][2]int{{16, 24}, {16, 16}, {12, 14}, {8, 10}, {4, 4}, {2, 3}} {
-					p, err := PruneCIC(n, m, r, w[0], w[1])
+					p, err := chain.PruneCIC(n, m, r, w[0], w[1])
 					if err != nil {
 						t.Fatal(err)
 					}
@@ -150,7 +145,7 @@ func TestCICWrapTrials(t *testing.T) {
 	// input, 200 seeded trials each on cic5m1r16 and cic4m1r32, 16-bit input,
 	// 24-bit output. None may wrap.
 	for _, tc := range []struct{ n, r int }{{5, 16}, {4, 32}} {
-		p, err := PruneCIC(tc.n, 1, tc.r, 16, 24)
+		p, err := chain.PruneCIC(tc.n, 1, tc.r, 16, 24)
 		if err != nil {
 			t.Fatal(err)
 		}

@@ -5,6 +5,7 @@ import (
 	"math"
 	"math/bits"
 
+	"stepdown/chain"
 	"stepdown/chain/remez"
 )
 
@@ -94,9 +95,9 @@ type StageWidths struct {
 
 	// AccumulatorBits is the worst-case width of the sum of products (FIR) or
 	// the full register width Bin + ceil(N log2(RM)) + GuardBits (CIC; see
-	// PruneCIC).
+	// chain.PruneCIC).
 	AccumulatorBits int
-	// CIC: Hogenauer's register plan.
+	// CIC: its register plan (chain.PruneCIC).
 	Pruning *CICPruning
 	// OutputBits is the stage's output word; OutputShift the LSBs removed from
 	// the accumulator to make it (rounded for an FIR, truncated for a CIC);
@@ -340,7 +341,7 @@ func scaledStage(st Stage, k float64) Stage {
 }
 
 func planCIC(st Stage, rate float64, in, ob int) (StageWidths, error) {
-	p, err := PruneCIC(st.N, st.M, st.R, in, ob)
+	p, err := chain.PruneCIC(st.N, st.M, st.R, in, ob)
 	if err != nil {
 		return StageWidths{}, err
 	}

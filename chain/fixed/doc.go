@@ -1,7 +1,8 @@
 // Package fixed turns a designed decimation chain into word lengths:
 // quantised coefficients, accumulator and output widths, CIC registers pruned
-// by Hogenauer's method, a bit-true integer run of the chain against the
-// floating-point chain, and the hardware cost that follows from the widths.
+// by Hogenauer's method (chain.PruneCIC), a bit-true integer run of the
+// chain against the floating-point chain, and the hardware cost that follows
+// from the widths.
 //
 // The figures are planning data for hardware, ahead of RTL: the team's own
 // bit-true simulation of the RTL and its sign-off remain the reference.
@@ -50,11 +51,15 @@
 // Plan fixes every width from the input word, the coefficient width and the
 // stage gain, and states each rounding point in StageWidths.Points:
 //   - input: the ADC word, rounded to nearest and saturated (ADC);
-//   - CIC: Hogenauer's (1981) pruning; register j truncates (drops, floor)
-//     Dropped[j] LSBs at its input and wraps modulo its width, which is exact
-//     for the output because every register keeps the same MSB; the output
-//     keeps the top OutputBits of the FullBits-bit result, so its gain is
-//     (RM)^N / 2^(FullBits - Bin) <= 1 (StageWidths.Gain);
+//   - CIC: the register plan is chain.PruneCIC's (CICPruning is an alias of
+//     chain.CICPruning): the chain package owns the rule, and the widths
+//     here are the ones chain.CICStage.RegisterBits, report.json's
+//     register_bits and package cost's CIC memory show. Hogenauer's (1981)
+//     pruning; register j truncates (drops, floor) Dropped[j] LSBs at its
+//     input and wraps modulo its width, which is exact for the output
+//     because every register keeps the same MSB; the output keeps the top
+//     OutputBits of the FullBits-bit result, so its gain is (RM)^N /
+//     2^(FullBits - Bin) <= 1 (StageWidths.Gain);
 //   - CIC, no wrap: FullBits is Bin + ceil(N log2 RM) (Hogenauer's Bmax + 1)
 //     plus GuardBits, chosen so that no input within the input word can wrap
 //     the output. Without truncations |output| <= (RM)^N 2^(Bin-1); each
@@ -64,9 +69,9 @@
 //     (CICPruning.TruncationBound) must fit in 2^(FullBits-1) - (RM)^N
 //     2^(Bin-1). When (RM)^N is a power of two that room is zero, so a pruned
 //     CIC gets one guard bit and its gain halves (1/2 instead of 1); the
-//     gain correction (Settings.UnityGain) can restore it. PruneCIC tries 0,
-//     1 and 2 guard bits and otherwise prunes less (very narrow output
-//     words);
+//     gain correction (Settings.UnityGain) can restore it. chain.PruneCIC
+//     tries 0, 1 and 2 guard bits and otherwise prunes less (very narrow
+//     output words);
 //   - FIR and half-band: exact products and sum in an accumulator of
 //     AccumulatorBits: the narrowest two's-complement width that holds the
 //     largest and the smallest sum any input can make, the full-scale input

@@ -17,22 +17,6 @@ func ExampleQuantize() {
 	// Output: 10 9 [-32 0 144 256 144 0 -32]
 }
 
-func ExamplePruneCIC() {
-	// Hogenauer's (1981) example: N = 4, R = 25, M = 1, 16 bits in and out.
-	p, err := fixed.PruneCIC(4, 1, 25, 16, 16)
-	if err != nil {
-		fmt.Println(err)
-		return
-	}
-	fmt.Println("full width", p.FullBits)
-	fmt.Println("dropped", p.Dropped)
-	fmt.Println("registers", p.RegisterBits)
-	// Output:
-	// full width 35
-	// dropped [1 6 9 13 14 15 16 17 19]
-	// registers [34 29 26 22 21 20 19 18]
-}
-
 func ExampleMinCoefBits() {
 	// A 15-tap windowed-sinc lowpass at 1 MHz (cutoff 125 kHz, Hann window),
 	// held to 2e-2 in [0, 20 kHz] and 1e-2 in [300, 500 kHz].

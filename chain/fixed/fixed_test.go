@@ -8,6 +8,7 @@ import (
 	"os"
 	"testing"
 
+	"stepdown/chain"
 	"stepdown/chain/remez"
 )
 
@@ -279,7 +280,7 @@ func TestCICIntegerExact(t *testing.T) {
 	// (boxcar of RM)^N, even at full-scale input. Seeded RNG.
 	rng := rand.New(rand.NewPCG(5, 6))
 	for _, tc := range []struct{ n, m, r, bits int }{{3, 1, 8, 12}, {4, 1, 25, 16}, {5, 2, 7, 14}, {2, 1, 3, 8}} {
-		p, err := PruneCIC(tc.n, tc.m, tc.r, tc.bits, 62)
+		p, err := chain.PruneCIC(tc.n, tc.m, tc.r, tc.bits, 62)
 		if err != nil {
 			t.Fatal(err)
 		}

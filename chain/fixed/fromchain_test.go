@@ -179,40 +179,45 @@ func TestReportFields(t *testing.T) {
 }
 
 func TestPruningMatchesChainPackage(t *testing.T) {
-	// Two implementations of Hogenauer's (1981) pruning must agree: this
-	// package's (his closed-form impulse responses) and the chain package's
-	// (convolutions), which fills chain.CICStage.RegisterBits. They agree on
-	// his rule at his width; PruneCIC then widens the plan where the
-	// truncations could wrap the output (TestCICNoWrap), which the chain
-	// package does not do: those cases are counted, not compared.
-	widened := 0
-	for _, n := range []int{1, 2, 3, 4, 5, 6} {
-		for _, r := range []int{2, 5, 8, 25, 64, 100} {
-			for _, m := range []int{1, 2} {
-				for _, bits := range [][2]int{{12, 16}, {16, 16}, {14, 24}} {
-					p, err := PruneCIC(n, m, r, bits[0], bits[1])
-					if err != nil {
-						t.Fatal(err)
-					}
-					cs := chain.NewCICStage(n, m, r, bits[0], bits[1])
-					full := chain.CICRegisterWidth(n, m, r, bits[0])
-					d, _ := hogenauerDrops(n, r*m, full, bits[1])
-					for j, w := range cs.RegisterBits {
-						if full-d[j] != w {
-							t.Fatalf("N=%d R=%d M=%d %v: register %d: %d bits here, %d in chain", n, r, m, bits, j+1, full-d[j], w)
+	// The CIC widths the report shows and package cost prices
+	// (chain.NewCICStage: register_bits, output width) must be the widths
+	// this package plans and runs bit-true (Plan, StageWidths.Pruning):
+	// Hogenauer's (1981) pruning (E. B. Hogenauer, "An economical class of
+	// digital filters for decimation and interpolation", IEEE Trans. ASSP
+	// 29(2)) with the guard bits of chain.PruneCIC, for orders 1-7, M 1-2,
+	// R 2..64, input 2..16 bits and output 8..32 bits.
+	cases, guarded, widened := 0, 0, 0
+	for n := 1; n <= 7; n++ {
+		for m := 1; m <= 2; m++ {
+			for r := 2; r <= 64; r++ {
+				for in := 2; in <= 16; in++ {
+					for out := 8; out <= 32; out += 1 + (n+r+in)%3 {
+						cs := chain.NewCICStage(n, m, r, in, out)
+						w, err := Plan(Cascade{InputRate: 1e6, Passband: 1e3, Stages: []Stage{{CIC: true, N: n, M: m, R: r}}},
+							Words{InputBits: in, OutputBits: out}, Settings{})
+						if err != nil {
+							t.Fatalf("N=%d M=%d R=%d in %d out %d: %v", n, m, r, in, out, err)
 						}
-					}
-					if min(full, bits[1]) != cs.OutputBits {
-						t.Fatalf("N=%d R=%d M=%d %v: output %d bits here, %d in chain", n, r, m, bits, min(full, bits[1]), cs.OutputBits)
-					}
-					if p.FullBits != full || fmt.Sprint(p.RegisterBits) != fmt.Sprint(cs.RegisterBits) {
-						widened++
+						sw := w.Stages[0]
+						if fmt.Sprint(sw.Pruning.RegisterBits) != fmt.Sprint(cs.RegisterBits) ||
+							sw.OutputBits != cs.OutputBits || sw.AccumulatorBits != cs.Width() || sw.Pruning.GuardBits != cs.GuardBits {
+							t.Fatalf("N=%d M=%d R=%d in %d out %d: plan registers %v output %d full %d guard %d; chain %v, %d, %d, %d",
+								n, m, r, in, out, sw.Pruning.RegisterBits, sw.OutputBits, sw.AccumulatorBits, sw.Pruning.GuardBits,
+								cs.RegisterBits, cs.OutputBits, cs.Width(), cs.GuardBits)
+						}
+						cases++
+						if cs.GuardBits > 0 {
+							guarded++
+						}
+						if h, err := chain.HogenauerPruning(n, m, r, in, out); err != nil || fmt.Sprint(h.RegisterBits) != fmt.Sprint(cs.RegisterBits) {
+							widened++
+						}
 					}
 				}
 			}
 		}
 	}
-	t.Logf("%d of 216 CICs widened against the wrap", widened)
+	t.Logf("%d CICs agree; %d carry guard bits; %d differ from Hogenauer's plain plan", cases, guarded, widened)
 }
 
 func TestEvaluateWithoutBitTrue(t *testing.T) {
@@ -220,7 +225,9 @@ func TestEvaluateWithoutBitTrue(t *testing.T) {
 	// (Hogenauer 1981: 16 + ceil(6 log2 1024) = 76 bits, plus the guard bit
 	// a power-of-two (RM)^N needs): Evaluate still returns the widths and the
 	// quantised figures, says why there is no bit-true run, and the report
-	// marks the bit-true figures instead of dropping the rest.
+	// keeps the rest: bittrue_error says why, bittrue_snr_valid is false and
+	// the run's own figures (bittrue_alias_valid among them) are left out
+	// (Result.Report).
 	spec := chain.Spec{InputRate: 122.88e6, OutputRate: 30e3, Passband: 12e3, RippleDB: 0.1, RejectionDB: 100}
 	plan, err := chain.ParseNotation("cic6m1r1024 > fir4")
 	if err != nil {
@@ -253,7 +260,7 @@ func TestEvaluateWithoutBitTrue(t *testing.T) {
 			t.Errorf("report lacks %s: %s", k, b)
 		}
 	}
-	if m["bittrue_snr_valid"] != false || m["bittrue_alias_valid"] != false {
+	if _, ok := m["bittrue_alias_valid"]; m["bittrue_snr_valid"] != false || ok {
 		t.Errorf("bit-true figures not marked invalid: %s", b)
 	}
 	st := m["stages"].([]any)
