@@ -230,11 +230,16 @@ func newCascade(c *Chain) (*cascade, error) {
 }
 
 // bounds returns lo <= |H(f)| <= up over [a, b] as the products of the
-// stages' bounds.
-func (cs *cascade) bounds(a, b float64) (lo, up float64) {
+// stages' bounds, coarse or not.
+func (cs *cascade) bounds(a, b float64, coarse bool) (lo, up float64) {
 	lo, up = 1, 1
 	for _, s := range cs.stages {
-		l, u := s.bounds(a, b)
+		var l, u float64
+		if coarse {
+			l, u = s.coarse(a, b)
+		} else {
+			l, u = s.bounds(a, b)
+		}
 		lo *= l
 		up *= u
 	}
@@ -247,8 +252,12 @@ func (cs *cascade) bounds(a, b float64) (lo, up float64) {
 // minimum the same with the inequalities reversed.
 type extreme struct{ x, v, bound float64 }
 
-// ivl is one interval of the branch-and-bound, key its bound times sign.
-type ivl struct{ lo, hi, key float64 }
+// ivl is one interval of the branch-and-bound, key its bound times sign;
+// coarse says the key came from the stages' coarse bounds.
+type ivl struct {
+	lo, hi, key float64
+	coarse      bool
+}
 
 type ivlHeap []ivl
 
@@ -299,8 +308,8 @@ func (h *ivlHeap) pop() ivl {
 // returned bound is never on the optimistic side of the truth.
 func (cs *cascade) search(bands []Interval, sign, certifyDB float64) extreme {
 	tol := math.Pow(10, certifyDB/20)
-	key := func(a, b float64) float64 {
-		lo, up := cs.bounds(a, b)
+	key := func(a, b float64, coarse bool) float64 {
+		lo, up := cs.bounds(a, b, coarse)
 		if sign > 0 {
 			return up
 		}
@@ -320,11 +329,15 @@ func (cs *cascade) search(bands []Interval, sign, certifyDB float64) extreme {
 			best.x, best.v = x, v
 		}
 	}
+	// The bands enter with coarse keys (a CIC's exact bound times each FIR's
+	// largest gain): most of them, deep in some stage's stopband, never need
+	// the finer bound. A coarse interval that reaches the top is given its
+	// fine key and goes back.
 	var h ivlHeap
 	for _, b := range bands {
-		eval(b.Lo)
-		h.push(ivl{b.Lo, b.Hi, key(b.Lo, b.Hi)})
+		h.push(ivl{b.Lo, b.Hi, key(b.Lo, b.Hi, true), true})
 	}
+	eval(bands[0].Lo)
 	// dropped is the most extreme key of the intervals discarded unsplit.
 	dropped := math.Inf(-1)
 	for steps := 0; len(h) > 0; steps++ {
@@ -333,6 +346,11 @@ func (cs *cascade) search(bands []Interval, sign, certifyDB float64) extreme {
 			dropped = math.Max(dropped, top.key)
 			break
 		}
+		if top.coarse {
+			top.key, top.coarse = key(top.lo, top.hi, false), false
+			h.push(top)
+			continue
+		}
 		mid := top.lo + (top.hi-top.lo)/2
 		if steps >= maxBoundSteps || !(mid > top.lo && mid < top.hi) {
 			dropped = math.Max(dropped, top.key)
@@ -340,12 +358,12 @@ func (cs *cascade) search(bands []Interval, sign, certifyDB float64) extreme {
 		}
 		eval(mid)
 		for _, p := range [2][2]float64{{top.lo, mid}, {mid, top.hi}} {
-			k := key(p[0], p[1])
+			k := key(p[0], p[1], false)
 			if done(k, best.v) {
 				dropped = math.Max(dropped, k)
 				continue
 			}
-			h.push(ivl{p[0], p[1], k})
+			h.push(ivl{p[0], p[1], k, false})
 		}
 	}
 	for _, it := range h {

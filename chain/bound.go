@@ -55,6 +55,10 @@ type stageBounder interface {
 	// bounds returns lo <= |H(f)| <= up for every f in [a, b] (Hz, any
 	// position on the frequency axis, a <= b).
 	bounds(a, b float64) (lo, up float64)
+	// coarse returns bounds as valid as bounds' but cheaper to get and
+	// looser: the search orders intervals by them and refines only those
+	// that could matter.
+	coarse(a, b float64) (lo, up float64)
 }
 
 // newStageBounder returns the bounder of a stage at input rate rate, or an
@@ -128,6 +132,9 @@ func (c cicBounder) bounds(a, b float64) (lo, up float64) {
 	return lo, up
 }
 
+// coarse is bounds: a CIC's bounds cost a few sines.
+func (c cicBounder) coarse(a, b float64) (lo, up float64) { return c.bounds(a, b) }
+
 // piece bounds |H| over normalised frequencies [x1, x2] within [0, 1/2].
 func (c cicBounder) piece(x1, x2 float64) (lo, up float64) {
 	const eps = 1e-12
@@ -183,8 +190,11 @@ type firBounder struct {
 	step float64 // Hz
 	up   rangeMax
 	lo   rangeMax // of -(per-point lower bound)
-	mom  [taylorOrder + 1]float64
-	fact [taylorOrder + 1]float64
+	// upAll and loAll are the per-point bounds' extremes over the whole
+	// grid: bounds of |H| at every frequency.
+	upAll, loAll float64
+	mom          [taylorOrder + 1]float64
+	fact         [taylorOrder + 1]float64
 }
 
 func newFIRBounder(h []float64, rate float64) (*firBounder, error) {
@@ -241,8 +251,13 @@ func newFIRBounder(h []float64, rate float64) (*firBounder, error) {
 	}
 	b.up = newRangeMax(up)
 	b.lo = newRangeMax(lo)
+	b.upAll = b.up.query(0, b.n)
+	b.loAll = -b.lo.query(0, b.n)
 	return b, nil
 }
+
+// coarse returns the bounds of |H| over all frequencies.
+func (b *firBounder) coarse(a, e float64) (lo, up float64) { return b.loAll, b.upAll }
 
 func (b *firBounder) bounds(a, e float64) (lo, up float64) {
 	if e-a < b.step {
@@ -317,14 +332,14 @@ func (b *firBounder) derivs(f float64) [taylorOrder]float64 {
 }
 
 // rangeMax answers range-maximum queries in constant time per block: a
-// sparse table over blocks of 64 values plus a scan of the partial blocks
+// sparse table over blocks of 16 values plus a scan of the partial blocks
 // at the ends.
 type rangeMax struct {
 	v   []float64
 	tab [][]float64 // tab[l][j] = max of blocks j .. j + 2^l - 1
 }
 
-const rmBlock = 64
+const rmBlock = 16
 
 func newRangeMax(v []float64) rangeMax {
 	nb := (len(v) + rmBlock - 1) / rmBlock
@@ -354,17 +369,29 @@ func (r rangeMax) query(i0, i1 int) float64 {
 	m := math.Inf(-1)
 	if b1-b0 <= 1 {
 		for _, x := range r.v[i0 : i1+1] {
-			m = math.Max(m, x)
+			if x > m {
+				m = x
+			}
 		}
 		return m
 	}
 	for _, x := range r.v[i0 : (b0+1)*rmBlock] {
-		m = math.Max(m, x)
+		if x > m {
+			m = x
+		}
 	}
 	for _, x := range r.v[b1*rmBlock : i1+1] {
-		m = math.Max(m, x)
+		if x > m {
+			m = x
+		}
 	}
 	lo, hi := b0+1, b1-1
 	l := bits.Len(uint(hi-lo+1)) - 1
-	return math.Max(m, math.Max(r.tab[l][lo], r.tab[l][hi-(1<<l)+1]))
+	if x := r.tab[l][lo]; x > m {
+		m = x
+	}
+	if x := r.tab[l][hi-(1<<l)+1]; x > m {
+		m = x
+	}
+	return m
 }
