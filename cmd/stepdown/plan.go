@@ -235,16 +235,33 @@ func runCheck(c *cli.Context) error {
 		Candidates: 1, Designed: 1, Dropped: map[string]int{},
 		Front: []optimize.Candidate{cand}, Recommended: 0, FeasibleAll: 1,
 	}
-	a := fig.Analysis
-	switch {
-	case a.AliasRejectionDB < j.spec.Chain.RejectionDB-report.RejectionToleranceDB:
-		res.Reason = fmt.Sprintf("The chain named by --chain misses the rejection target: %.2f dB against %.4g dB.", a.AliasRejectionDB, j.spec.Chain.RejectionDB)
-	case a.PassbandRippleDB > j.spec.Chain.RippleDB+report.RippleToleranceDB:
-		res.Reason = fmt.Sprintf("The chain named by --chain misses the ripple budget: %.4f dB against %.4g dB.", a.PassbandRippleDB, j.spec.Chain.RippleDB)
-	default:
-		res.Reason = "The chain named by --chain meets the rejection target and the ripple budget."
-	}
+	// finish states the verdict once the report has judged the chain
+	// (checkReason): on its rounded taps when they are planned.
 	return j.finish("check", res)
+}
+
+// checkReason is check's verdict on the chain it named, judged as the
+// report judges it (report.Chain.MeetsTargets, on the figures
+// BuiltFigures gives).
+func checkReason(c report.Chain, sp report.Spec) string {
+	rej, rip := c.BuiltFigures()
+	on := ""
+	if c.VerdictBasis == "rounded taps" {
+		on = " with its taps rounded"
+	}
+	switch {
+	case c.MeetsTargets:
+		return "The chain named by --chain meets the rejection target and the ripple budget" + on + "."
+	case c.VerdictBasis == "rounded taps" && c.ChainReport == nil:
+		return "The chain named by --chain cannot be judged with its taps rounded: " + c.WordLengthsError + "."
+	case !c.FloatMeetsTargets && c.AliasRejectionDB < sp.RejectionDB-report.RejectionToleranceDB:
+		return fmt.Sprintf("The chain named by --chain misses the rejection target as designed: %.2f dB against %.4g dB.", c.AliasRejectionDB, sp.RejectionDB)
+	case !c.FloatMeetsTargets:
+		return fmt.Sprintf("The chain named by --chain misses the ripple budget as designed: %.4f dB against %.4g dB.", c.PassbandRippleDB, sp.RippleDB)
+	case rej < sp.RejectionDB-report.RejectionToleranceDB:
+		return fmt.Sprintf("The chain named by --chain misses the rejection target%s: %.2f dB against %.4g dB.", on, rej, sp.RejectionDB)
+	}
+	return fmt.Sprintf("The chain named by --chain misses the ripple budget%s: %.4f dB against %.4g dB.", on, rip, sp.RippleDB)
 }
 
 func droppedText(d map[string]int) string {
@@ -264,6 +281,9 @@ func (j *job) finish(command string, res *optimize.Result) error {
 	rep, err := report.New(command, j.spec, res)
 	if err != nil {
 		return err
+	}
+	if command == "check" && len(rep.Front) == 1 {
+		rep.Reason = checkReason(rep.Front[0], rep.Spec)
 	}
 	files, err := buildFiles(rep, res, j.spec)
 	if err != nil {
