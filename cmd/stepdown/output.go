@@ -193,9 +193,12 @@ func buildFiles(rep *report.Report, res *optimize.Result, spec *specfile.Spec) (
 
 	fd := plots.FrontData{Recommended: rec}
 	for _, ch := range rep.Front {
+		// The rejection the verdict is judged on: the rounded taps' when
+		// they are planned.
+		rej, _ := ch.BuiltFigures()
 		fd.Front = append(fd.Front, plots.Point{
 			Multiplies: ch.MultipliesPerOutput, MemoryBits: float64(ch.MemoryBits),
-			RejectionDB: ch.AliasRejectionDB, Label: ch.Notation,
+			RejectionDB: rej, Label: ch.Notation,
 		})
 	}
 	for _, c := range res.Feasible {
