@@ -10,6 +10,7 @@ import (
 	"sort"
 
 	"stepdown/chain"
+	"stepdown/chain/fixed"
 	"stepdown/cmd/stepdown/internal/report"
 	"stepdown/cmd/stepdown/internal/specfile"
 	"stepdown/optimize"
@@ -273,13 +274,22 @@ func render(f *plots.Figure, format string) ([]byte, error) {
 func finite(v float64) bool { return !math.IsNaN(v) && !math.IsInf(v, 0) }
 
 // responseData samples the recommended cascade's gain, and each stage's, on
-// a grid from 0 to half the input rate, through the library's Gain methods.
+// a grid from 0 to half the input rate, through the library's Gain methods:
+// with its taps rounded (fixed.PlanChain, as the report judges it) when the
+// spec sets a coefficient width or "auto", as designed otherwise.
 func responseData(cand optimize.Candidate, spec *specfile.Spec, notation string) (plots.ResponseData, error) {
 	c := cand.Chain
 	cs := spec.Chain
+	title := "Cascade response: " + notation
+	if spec.CoefMode() != "float" {
+		if ws, _, err := fixed.PlanChain(cs, c, spec.FixedSettings()); err == nil {
+			c = fixed.QuantisedChain(c, ws)
+			title += " (taps rounded)"
+		}
+	}
 	f0 := c.InputRate
 	rd := plots.ResponseData{
-		Title:        "Cascade response: " + notation,
+		Title:        title,
 		TargetDB:     cs.RejectionDB,
 		PassbandHz:   cs.Passband,
 		OutputRateHz: cs.OutputRate,
