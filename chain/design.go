@@ -1,6 +1,7 @@
 package chain
 
 import (
+	"context"
 	"errors"
 	"fmt"
 
@@ -15,17 +16,30 @@ import (
 // complete (pruned registers included). Settings.MaxTaps does not bound
 // estimates (the caller compares them with its own limit).
 func Estimate(spec Spec, plan []StagePlan, s Settings) (*Chain, error) {
-	return build(spec, plan, s, false)
+	return build(context.Background(), spec, plan, s, false)
 }
 
 // Design designs every stage for real: FIR stages by remez.MinLength on their
 // requirement's bands, searching no length above s.MaxTaps, half-bands by
 // remez.MinHalfBand, refused when longer than s.MaxTaps.
 func Design(spec Spec, plan []StagePlan, s Settings) (*Chain, error) {
-	return build(spec, plan, s, true)
+	return build(context.Background(), spec, plan, s, true)
 }
 
-func build(spec Spec, plan []StagePlan, s Settings, design bool) (*Chain, error) {
+// DesignContext is Design stopped by ctx: the context is checked before
+// every stage and inside every stage's design (remez.MinLengthContext,
+// remez.MinHalfBandContext), and once it is done DesignContext returns no
+// chain and an error wrapping ctx.Err().
+func DesignContext(ctx context.Context, spec Spec, plan []StagePlan, s Settings) (*Chain, error) {
+	return build(ctx, spec, plan, s, true)
+}
+
+// stopped is the error of a design stopped by its context.
+func stopped(plan []StagePlan, err error) error {
+	return fmt.Errorf("chain: design of %q stopped: %w", Notation(plan), err)
+}
+
+func build(ctx context.Context, spec Spec, plan []StagePlan, s Settings, design bool) (*Chain, error) {
 	spec, err := spec.Normalize()
 	if err != nil {
 		return nil, err
@@ -41,6 +55,9 @@ func build(spec Spec, plan []StagePlan, s Settings, design bool) (*Chain, error)
 		Plan: append([]StagePlan(nil), plan...), Designed: design}
 	bits := spec.InputBits
 	for i, p := range plan {
+		if err := ctx.Err(); err != nil {
+			return nil, stopped(plan, err)
+		}
 		r := reqs[i]
 		switch p.Kind {
 		case CIC:
@@ -49,13 +66,19 @@ func build(spec Spec, plan []StagePlan, s Settings, design bool) (*Chain, error)
 			c.Stages = append(c.Stages, cs)
 			continue
 		case HalfBand:
-			st, err := halfBandStage(r, s, design)
+			st, err := halfBandStage(ctx, r, s, design)
+			if cerr := ctx.Err(); cerr != nil {
+				return nil, stopped(plan, cerr)
+			}
 			if err != nil {
 				return nil, planErr(plan, i, "%v", err)
 			}
 			c.Stages = append(c.Stages, st)
 		case FIR:
-			st, err := firStage(r, c.Stages, s, design)
+			st, err := firStage(ctx, r, c.Stages, s, design)
+			if cerr := ctx.Err(); cerr != nil {
+				return nil, stopped(plan, cerr)
+			}
 			if err != nil {
 				return nil, planErr(plan, i, "%v", err)
 			}
@@ -66,7 +89,7 @@ func build(spec Spec, plan []StagePlan, s Settings, design bool) (*Chain, error)
 	return c, nil
 }
 
-func halfBandStage(r Requirement, s Settings, design bool) (FIRStage, error) {
+func halfBandStage(ctx context.Context, r Requirement, s Settings, design bool) (FIRStage, error) {
 	st := FIRStage{R: 2, HalfBand: true, Req: r}
 	if !design {
 		n := remez.HerrmannLength(r.Dp, r.Ds, r.InputRate/2-2*r.Passband, r.InputRate)
@@ -80,7 +103,7 @@ func halfBandStage(r Requirement, s Settings, design bool) (FIRStage, error) {
 		st.Length = 4*k - 1
 		return st, nil
 	}
-	res, err := remez.MinHalfBand(r.Passband, r.InputRate, r.Dp, s.Remez)
+	res, err := remez.MinHalfBandContext(ctx, r.Passband, r.InputRate, r.Dp, s.Remez)
 	if err != nil {
 		return st, fmt.Errorf("half-band design: %w", err)
 	}
@@ -120,7 +143,7 @@ func compGain(r Requirement, stages []Stage) func(f float64) float64 {
 	}
 }
 
-func firStage(r Requirement, prev []Stage, s Settings, design bool) (FIRStage, error) {
+func firStage(ctx context.Context, r Requirement, prev []Stage, s Settings, design bool) (FIRStage, error) {
 	st := FIRStage{R: r.Factor, Variant: r.Variant, CompensatesCIC: len(r.Compensates) > 0, Req: r}
 	if !design {
 		n := remez.HerrmannLength(r.Dp, r.Ds, r.Stopbands[0].Lo-r.Passband, r.InputRate)
@@ -146,7 +169,7 @@ func firStage(r Requirement, prev []Stage, s Settings, design bool) (FIRStage, e
 	for _, b := range r.Stopbands {
 		bands = append(bands, remez.Band{Lo: b.Lo, Hi: b.Hi, MaxError: r.Ds, Weight: 1 / r.Ds})
 	}
-	res, err := remez.MinLength(r.InputRate, bands, 0, s.MaxTaps, s.Remez)
+	res, err := remez.MinLengthContext(ctx, r.InputRate, bands, 0, s.MaxTaps, s.Remez)
 	if err != nil {
 		if s.MaxTaps > 0 {
 			return st, fmt.Errorf("FIR design with Settings.MaxTaps = %d: %w", s.MaxTaps, err)

@@ -150,6 +150,10 @@
 // remez.MinLength's search, so such a design fails after the lengths up to
 // the bound instead of running on to 65535 taps; half-bands, short and
 // cheap, are checked against it once designed. Estimates are not bounded.
+// DesignContext is Design stopped by a context: checked before every stage
+// and inside every design (remez.MinLengthContext), it returns soon after
+// cancellation (about 100 ms) with no chain and an error wrapping
+// ctx.Err().
 //
 // # Analysis (DESIGN §7)
 //

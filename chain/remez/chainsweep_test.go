@@ -1,6 +1,7 @@
 package remez
 
 import (
+	"context"
 	"errors"
 	"math"
 	"math/rand/v2"
@@ -65,7 +66,7 @@ func TestChainSweep(t *testing.T) {
 			bands[0] = Band{Lo: 0, Hi: fp, GainFunc: func(f float64) float64 { return 1 / cic(f) },
 				WeightFunc: func(f float64) float64 { return cic(f) / dp }, MaxError: 1}
 		}
-		res, m, err := minLength(rate, bands, 0, 2000, Settings{})
+		res, m, err := minLength(context.Background(), rate, bands, 0, 2000, Settings{})
 		if err != nil {
 			t.Errorf("trial %d (rate %v, D %d, fp %v, fa %v, dp %v, ds %v): %v", trial, rate, d, fp, fa, dp, ds, err)
 			continue

@@ -1,9 +1,11 @@
 package remez
 
 import (
+	"context"
 	"errors"
 	"fmt"
 	"math"
+	"sync/atomic"
 
 	"gonum.org/v1/gonum/dsp/fourier"
 )
@@ -54,20 +56,41 @@ var errRounding = errors.New("the specification is too lax for double precision"
 // Result nil. For any other error (an invalid specification) the Result is
 // nil.
 func Design(n int, rate float64, bands []Band, s Settings) (*Result, error) {
+	return DesignContext(context.Background(), n, rate, bands, s)
+}
+
+// DesignContext is Design stopped by ctx: the context is checked before
+// every iteration of the exchange (and of the shorter designs that seed
+// it), so a design of any length returns soon after ctx is done, with no
+// Result and an error wrapping ctx.Err().
+func DesignContext(ctx context.Context, n int, rate float64, bands []Band, s Settings) (*Result, error) {
+	if err := ctx.Err(); err != nil {
+		return nil, &stopError{n: n, err: err}
+	}
 	e, err := newEngine(n, rate, bands, s)
 	if err != nil {
 		return nil, err
 	}
+	e.ctx = ctx
 	return e.design()
 }
 
 func (e *engine) design() (*Result, error) {
+	if e.ctx != nil && e.halt == nil {
+		// Long loops poll a flag rather than the context itself.
+		e.halt = new(atomic.Bool)
+		stop := context.AfterFunc(e.ctx, func() { e.halt.Store(true) })
+		defer stop()
+	}
 	e.initRef()
 	tol := tolContinuous
 	if e.gridOnly {
 		tol = tolGrid
 	}
 	it, conv, err := e.run(tol, e.maxIter)
+	if serr := e.stopped(); serr != nil {
+		return nil, serr
+	}
 	if !conv && e.seeded && it < e.maxIter {
 		// A seeded start can be wrong in structure (a seed's reference
 		// scaled onto many narrow bands) and break down; the evenly spread
@@ -80,6 +103,9 @@ func (e *engine) design() (*Result, error) {
 		e.uniformRef()
 		it2, conv2, err2 := e.run(tol, e.maxIter-it)
 		it += it2
+		if serr := e.stopped(); serr != nil {
+			return nil, serr
+		}
 		if conv2 || (err2 == nil && (firstErr != nil || e.bestGap < firstGap)) {
 			conv, err = conv2, err2
 		} else {
@@ -215,7 +241,7 @@ func (e *engine) seedIter() int { return min(50, e.maxIter) }
 // sibling returns an engine for length n at grid density d with the same
 // bands, its grid not yet built.
 func (e *engine) sibling(n, d int) *engine {
-	s := &engine{n: n, rate: e.rate, density: d, maxIter: e.maxIter, bands: e.bands, type2: e.type2, stepGap: math.Inf(1)}
+	s := &engine{ctx: e.ctx, halt: e.halt, n: n, rate: e.rate, density: d, maxIter: e.maxIter, bands: e.bands, type2: e.type2, stepGap: math.Inf(1)}
 	if s.type2 {
 		s.r = n / 2
 	} else {

@@ -1,6 +1,7 @@
 package remez
 
 import (
+	"context"
 	"errors"
 	"fmt"
 	"math"
@@ -67,7 +68,9 @@ func (b *nband) wt(f float64) float64 {
 
 // engine holds one design's grid, reference and work space.
 type engine struct {
-	n, r     int // taps, basis functions (reference has r+1 points)
+	ctx      context.Context // checked every iteration; nil never stops
+	halt     *atomic.Bool    // set once ctx is done; polled inside long loops
+	n, r     int             // taps, basis functions (reference has r+1 points)
 	type2    bool
 	rate     float64
 	density  int
@@ -222,6 +225,65 @@ func newEngine(n int, rate float64, bands []Band, s Settings) (*engine, error) {
 	return e, nil
 }
 
+// MaxGridPoints bounds a design's dense grid, which with its work arrays
+// takes about 100 bytes a point: 2^22 points (some 400 MB). The grid holds
+// about density x n/2 points, so this allows the longest design, 65535
+// taps, at density 127, and lengths up to about 8190 at the largest
+// density the command line accepts (1024).
+const MaxGridPoints = 1 << 22
+
+// ErrGridTooLarge is wrapped by the error of a design whose dense grid
+// would exceed MaxGridPoints.
+var ErrGridTooLarge = errors.New("remez: grid too large")
+
+// gridPoints returns the number of points buildGrid lays for n taps at
+// density d (an upper bound under GridOnly), computed without laying them.
+func gridPoints(n int, bands []nband, d int, gridOnly bool) float64 {
+	r := (n + 1) / 2
+	if n%2 == 0 {
+		r = n / 2
+	}
+	w := 0.0
+	for _, b := range bands {
+		w += b.hi - b.lo
+	}
+	delf := 0.5 / (float64(d) * float64(r))
+	if !gridOnly {
+		delf = math.Min(0.5, w) / (float64(d) * float64(r))
+	}
+	total := 0.0
+	for _, b := range bands {
+		steps := math.Ceil((b.hi - b.lo) / delf)
+		if gridOnly {
+			steps++ // the 1973 placement may add a point at the edge
+		} else {
+			steps = math.Max(steps, minBandPoints-1)
+		}
+		total += steps + 1
+	}
+	return total
+}
+
+// MaxDensity returns the largest grid density (at most 1<<20) at which a
+// length-n design on bands keeps its grid within MaxGridPoints, or 0 when
+// none does.
+func MaxDensity(n int, rate float64, bands []Band) int {
+	nb := make([]nband, len(bands))
+	for i, b := range bands {
+		nb[i] = nband{lo: b.Lo / rate, hi: b.Hi / rate}
+	}
+	lo, hi := 0, 1<<20
+	for lo < hi {
+		mid := (lo + hi + 1) / 2
+		if gridPoints(n, nb, mid, false) <= MaxGridPoints {
+			lo = mid
+		} else {
+			hi = mid - 1
+		}
+	}
+	return lo
+}
+
 // minBandPoints is the fewest grid points any band gets without GridOnly,
 // whatever the density: a band narrower than one grid spacing still holds
 // a reference point or two (band edges and a lobe between them), and the
@@ -245,6 +307,10 @@ func (e *engine) buildGrid() error {
 			w += b.hi - b.lo
 		}
 		delf = math.Min(0.5, w) / float64(e.density*e.r)
+	}
+	if pts := gridPoints(e.n, e.bands, e.density, e.gridOnly); pts > MaxGridPoints {
+		return fmt.Errorf("%w: n = %d at Settings.Density = %d needs %.0f grid points, more than the %d allowed: lower the density (at most %d at this length) or shorten the filter",
+			ErrGridTooLarge, e.n, e.density, pts, MaxGridPoints, MaxDensity(e.n, e.rate, e.userBands()))
 	}
 	e.grid = e.grid[:0]
 	e.bstart = append(e.bstart[:0], 0)
@@ -452,6 +518,9 @@ func (e *engine) level() error {
 	// (accurate near x = 1) while x_i + x_j >= 0, z (near x = -1) after.
 	parallel(m, m*m, func(lo, hi int) {
 		for i := lo; i < hi; i++ {
+			if e.halted() {
+				return // cancelled: run returns without reading mant
+			}
 			xi := e.ref[i].x
 			p := sort.Search(m, func(j int) bool { return e.ref[j].x+xi < 0 })
 			prod, ex := 1.0, 0
@@ -679,6 +748,9 @@ func (e *engine) errAt(p *point) float64 {
 func (e *engine) evalGrid() {
 	parallel(len(e.grid), len(e.grid)*len(e.xr), func(lo, hi int) {
 		for i := lo; i < hi; i++ {
+			if i&63 == 0 && e.halted() {
+				return
+			}
 			e.grid[i].e = e.errAt(&e.grid[i])
 		}
 	})
@@ -738,7 +810,7 @@ func (e *engine) extremaMode(full, confirm bool) float64 {
 		parallel(len(e.cand), evals*len(e.cand)*len(e.xr), func(lo, hi int) {
 			for k := lo; k < hi; k++ {
 				gi := e.cidx[k]
-				if gi < 0 {
+				if gi < 0 || e.halted() {
 					continue
 				}
 				if confirm && e.ownedByRef(&e.cand[k]) {
@@ -914,6 +986,10 @@ func (e *engine) localStep() (float64, bool) {
 	bad := atomic.Bool{}
 	parallel(m, 6*m*len(e.xr), func(lo, hi int) {
 		for i := lo; i < hi; i++ {
+			if e.halted() {
+				bad.Store(true)
+				return
+			}
 			p := e.ref[i]
 			bd := &e.bands[p.band]
 			s := 1.0
@@ -998,6 +1074,43 @@ func (e *engine) localStep() (float64, bool) {
 	return e.stepGap, true
 }
 
+// userBands returns the bands' edges in Hz (for MaxDensity).
+func (e *engine) userBands() []Band {
+	out := make([]Band, len(e.bands))
+	for i, b := range e.bands {
+		out[i] = Band{Lo: b.lo * e.rate, Hi: b.hi * e.rate}
+	}
+	return out
+}
+
+// halted reports, cheaply enough for inner loops, that the design's context
+// is done; the loops then leave their work unfinished and run returns.
+func (e *engine) halted() bool { return e.halt != nil && e.halt.Load() }
+
+// stopped returns a non-nil error wrapping the context's error once the
+// design's context is done.
+func (e *engine) stopped() error {
+	if e.ctx == nil {
+		return nil
+	}
+	if err := e.ctx.Err(); err != nil {
+		return &stopError{n: e.n, err: err}
+	}
+	return nil
+}
+
+// stopError is the error of a design stopped by its context.
+type stopError struct {
+	n   int
+	err error
+}
+
+func (s *stopError) Error() string {
+	return fmt.Sprintf("remez: n = %d: design stopped: %v", s.n, s.err)
+}
+
+func (s *stopError) Unwrap() error { return s.err }
+
 // run iterates the exchange from the current reference until the largest
 // error exceeds the levelled deviation by at most tol (relative). It
 // returns the iteration count and whether it converged. On failure the
@@ -1021,12 +1134,22 @@ func (e *engine) run(tol float64, maxIter int) (int, bool, error) {
 	// refined extrema, finishes the design alone.
 	noLocal, stall, prevDelta := false, 0, math.NaN()
 	for it < maxIter {
+		if cerr := e.stopped(); cerr != nil {
+			// Cancelled: no clean-up pass, the caller returns at once.
+			return it, false, cerr
+		}
 		it++
 		if err = e.level(); err != nil {
+			if cerr := e.stopped(); cerr != nil {
+				return it, false, cerr
+			}
 			break
 		}
 		if useLocal {
 			gap, ok := e.localStep()
+			if cerr := e.stopped(); cerr != nil {
+				return it, false, cerr
+			}
 			if ok && gap > tol && math.Abs(e.delta-prevDelta) <= 1e-9*math.Abs(e.delta) {
 				stall++
 			} else {
@@ -1047,6 +1170,9 @@ func (e *engine) run(tol float64, maxIter int) (int, bool, error) {
 			useLocal = false // the levelled reference goes to the grid now
 		}
 		e.evalGrid()
+		if cerr := e.stopped(); cerr != nil {
+			return it, false, cerr
+		}
 		ad := math.Abs(e.delta)
 		var maxErr float64
 		if confirm {
@@ -1059,6 +1185,9 @@ func (e *engine) run(tol float64, maxIter int) (int, bool, error) {
 			full = true
 		}
 		maxErr = e.extrema(full)
+		if cerr := e.stopped(); cerr != nil {
+			return it, false, cerr
+		}
 		gap := math.Inf(1)
 		if ad > 0 {
 			gap = (maxErr - ad) / ad
@@ -1103,6 +1232,10 @@ func (e *engine) run(tol float64, maxIter int) (int, bool, error) {
 			conv = gap <= tolFixed
 			break
 		}
+	}
+	if cerr := e.stopped(); cerr != nil {
+		// A pass cut short may have looked converged: discard it.
+		return it, false, cerr
 	}
 	e.bestGap = bestGap
 	if !conv && len(e.best) > 0 {

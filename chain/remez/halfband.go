@@ -1,6 +1,7 @@
 package remez
 
 import (
+	"context"
 	"errors"
 	"fmt"
 	"math"
@@ -17,6 +18,11 @@ import (
 // symmetry), Result.Delta the levelled one. k must be at least 1 and fp
 // strictly between 0 and rate/4.
 func HalfBand(k int, fp, rate float64, s Settings) (*Result, error) {
+	return HalfBandContext(context.Background(), k, fp, rate, s)
+}
+
+// HalfBandContext is HalfBand stopped by ctx (see DesignContext).
+func HalfBandContext(ctx context.Context, k int, fp, rate float64, s Settings) (*Result, error) {
 	if err := halfBandSpec(fp, rate); err != nil {
 		return nil, err
 	}
@@ -36,7 +42,7 @@ func HalfBand(k int, fp, rate float64, s Settings) (*Result, error) {
 		d := (1 - cb) / (1 + cb)
 		res = &Result{Deviations: []float64{d}, Delta: d, Converged: true}
 	} else {
-		res, gerr = Design(2*k, 1, []Band{{Lo: 0, Hi: band, Gain: 1, Weight: 1}}, s)
+		res, gerr = DesignContext(ctx, 2*k, 1, []Band{{Lo: 0, Hi: band, Gain: 1, Weight: 1}}, s)
 		if res == nil {
 			return nil, fmt.Errorf("remez: half-band k = %d, fp = %v Hz: %w", k, fp, gerr)
 		}
@@ -82,13 +88,22 @@ func halfBandSpec(fp, rate float64) error {
 // is skipped as failing, and one met to rounding level counts as too long.
 // It gives up beyond k = 16384 (65 535 taps).
 func MinHalfBand(fp, rate, dev float64, s Settings) (*Result, error) {
-	r, _, err := minHalfBand(fp, rate, dev, s)
+	r, _, err := minHalfBand(context.Background(), fp, rate, dev, s)
+	return r, err
+}
+
+// MinHalfBandContext is MinHalfBand stopped by ctx (see MinLengthContext).
+func MinHalfBandContext(ctx context.Context, fp, rate, dev float64, s Settings) (*Result, error) {
+	r, _, err := minHalfBand(ctx, fp, rate, dev, s)
 	return r, err
 }
 
 // minHalfBand is MinHalfBand that also returns its search state (for
 // tests; nil when k = 1 meets).
-func minHalfBand(fp, rate, dev float64, s Settings) (*Result, *lengthSearch, error) {
+func minHalfBand(ctx context.Context, fp, rate, dev float64, s Settings) (*Result, *lengthSearch, error) {
+	if err := ctx.Err(); err != nil {
+		return nil, nil, searchStopped(err)
+	}
 	if err := halfBandSpec(fp, rate); err != nil {
 		return nil, nil, err
 	}
@@ -99,14 +114,15 @@ func minHalfBand(fp, rate, dev float64, s Settings) (*Result, *lengthSearch, err
 		return nil, nil, err
 	}
 	const kMax = 16384
-	if r, err := HalfBand(1, fp, rate, s); err == nil && r.Deviations[0] <= dev {
+	if r, err := HalfBandContext(ctx, 1, fp, rate, s); err == nil && r.Deviations[0] <= dev {
 		return r, nil, nil
 	}
 	m := &lengthSearch{
+		ctx:   ctx,
 		bands: []Band{{MaxError: dev}}, maxTaps: 2 * kMax, s: s,
 		cache: map[int]*Result{}, ratio: map[int]float64{}, lax: map[int]bool{},
 		designFn: func(n int) (*Result, []float64, bool) {
-			r, err := HalfBand(n/2, fp, rate, s)
+			r, err := HalfBandContext(ctx, n/2, fp, rate, s)
 			lax := errors.Is(err, errRounding)
 			if r == nil {
 				return nil, nil, lax

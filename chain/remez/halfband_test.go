@@ -1,6 +1,7 @@
 package remez
 
 import (
+	"context"
 	"errors"
 	"math"
 	"testing"
@@ -88,7 +89,7 @@ func TestMinHalfBand(t *testing.T) {
 		{0.1, 1, 0.01},
 		{0.245, 1, 1e-4},
 	} {
-		res, m, err := minHalfBand(tc.fp, tc.rate, tc.dev, Settings{})
+		res, m, err := minHalfBand(context.Background(), tc.fp, tc.rate, tc.dev, Settings{})
 		if err != nil {
 			t.Fatal(err)
 		}
@@ -137,7 +138,7 @@ func TestMinHalfBandNarrowPassband(t *testing.T) {
 		{1e3, 100e6, 1e-6},
 		{50e3, 1.6e6, 1e-3},
 	} {
-		res, m, err := minHalfBand(tc.fp, tc.rate, tc.dev, Settings{})
+		res, m, err := minHalfBand(context.Background(), tc.fp, tc.rate, tc.dev, Settings{})
 		if err != nil {
 			t.Errorf("fp=%v rate=%v dev=%v: %v", tc.fp, tc.rate, tc.dev, err)
 			continue

@@ -1,6 +1,7 @@
 package remez
 
 import (
+	"context"
 	"errors"
 	"fmt"
 	"math"
@@ -28,12 +29,24 @@ import (
 // to rounding level counts as too long. When the search cannot finish, the
 // error wraps ErrNotConverged.
 func MinLength(rate float64, bands []Band, parity, maxTaps int, s Settings) (*Result, error) {
-	r, _, err := minLength(rate, bands, parity, maxTaps, s)
+	r, _, err := minLength(context.Background(), rate, bands, parity, maxTaps, s)
+	return r, err
+}
+
+// MinLengthContext is MinLength stopped by ctx: the context is checked
+// before every design of the search and every iteration of each design
+// (see DesignContext), and once it is done the search returns no Result
+// and an error wrapping ctx.Err().
+func MinLengthContext(ctx context.Context, rate float64, bands []Band, parity, maxTaps int, s Settings) (*Result, error) {
+	r, _, err := minLength(ctx, rate, bands, parity, maxTaps, s)
 	return r, err
 }
 
 // minLength is MinLength that also returns its search state (for tests).
-func minLength(rate float64, bands []Band, parity, maxTaps int, s Settings) (*Result, *lengthSearch, error) {
+func minLength(ctx context.Context, rate float64, bands []Band, parity, maxTaps int, s Settings) (*Result, *lengthSearch, error) {
+	if err := ctx.Err(); err != nil {
+		return nil, nil, searchStopped(err)
+	}
 	if err := validateSpec(rate, bands, s); err != nil {
 		return nil, nil, err
 	}
@@ -69,7 +82,33 @@ func minLength(rate float64, bands []Band, parity, maxTaps int, s Settings) (*Re
 	if parity == 2 && !evenOK {
 		return nil, nil, fmt.Errorf("remez: parity = 2 (even lengths) but band %d wants gain %v at rate/2, where an even-length symmetric filter is zero: use parity 0 or 1", len(bands)-1, bands[len(bands)-1].Gain)
 	}
-	m := &lengthSearch{rate: rate, bands: bands, wb: wb, s: s, maxTaps: maxTaps, cache: map[int]*Result{}, ratio: map[int]float64{}, lax: map[int]bool{}}
+	// Lengths whose grid would exceed MaxGridPoints cannot be designed:
+	// the search stops below them and says so.
+	density := s.Density
+	if density == 0 {
+		density = 16
+	}
+	nb := make([]nband, len(bands))
+	for i, b := range bands {
+		nb[i] = nband{lo: b.Lo / rate, hi: b.Hi / rate}
+	}
+	gridCap := false
+	if gridPoints(maxTaps, nb, density, s.GridOnly) > MaxGridPoints {
+		lo, hi := 2, maxTaps
+		for hi-lo > 1 {
+			mid := (lo + hi) / 2
+			if gridPoints(mid, nb, density, s.GridOnly) <= MaxGridPoints {
+				lo = mid
+			} else {
+				hi = mid
+			}
+		}
+		if lo < 3 {
+			return nil, nil, fmt.Errorf("%w: Settings.Density = %d leaves no length within MaxGridPoints = %d: lower the density", ErrGridTooLarge, density, MaxGridPoints)
+		}
+		maxTaps, gridCap = lo, true
+	}
+	m := &lengthSearch{ctx: ctx, gridCap: gridCap, rate: rate, bands: bands, wb: wb, s: s, maxTaps: maxTaps, cache: map[int]*Result{}, ratio: map[int]float64{}, lax: map[int]bool{}}
 	est := m.estimate()
 	switch parity {
 	case 1:
@@ -81,7 +120,7 @@ func minLength(rate float64, bands []Band, parity, maxTaps int, s Settings) (*Re
 	}
 	n, err := m.search(est, 1)
 	if err != nil {
-		if !evenOK {
+		if !evenOK || ctx.Err() != nil {
 			return nil, nil, err
 		}
 		r, err := m.finish(m.search(est, 0))
@@ -96,6 +135,8 @@ func minLength(rate float64, bands []Band, parity, maxTaps int, s Settings) (*Re
 }
 
 type lengthSearch struct {
+	ctx     context.Context // stops the search and its designs
+	gridCap bool            // maxTaps was lowered to keep the grid within MaxGridPoints
 	rate    float64
 	bands   []Band // the caller's, for MaxError and WeightFunc
 	wb      []Band // weighted for the design
@@ -202,6 +243,7 @@ func (m *lengthSearch) design(n int) (*Result, []float64, bool) {
 	if err != nil {
 		return nil, nil, false
 	}
+	e.ctx = m.ctx
 	res, err := e.design()
 	lax := errors.Is(err, errRounding)
 	if res == nil {
@@ -276,6 +318,9 @@ func (m *lengthSearch) search(n0, odd int) (int, error) {
 	last, same, blind := 0, 0, 0
 	wRef, sec := 0, 0 // bracket width to halve, secant steps since
 	for m.designs < maxDesigns {
+		if err := m.ctxErr(); err != nil {
+			return 0, searchStopped(err)
+		}
 		if hi > 0 && (hi == lowest || (lo > 0 && hi-lo <= 2)) {
 			if m.cache[hi] == nil {
 				return 0, fmt.Errorf("%w: remez: MinLength: %d taps fail and %d taps are met only to rounding level (no usable taps): relax or tighten the bands", ErrNotConverged, lo, hi)
@@ -283,6 +328,9 @@ func (m *lengthSearch) search(n0, odd int) (int, error) {
 			return hi, nil
 		}
 		if hi == 0 && lo >= top {
+			if m.gridCap {
+				return 0, fmt.Errorf("%w: the bands are not met by any length up to %d taps, the longest whose grid at Settings.Density = %d fits in MaxGridPoints = %d: lower the density", ErrGridTooLarge, m.maxTaps, m.s.Density, MaxGridPoints)
+			}
 			return 0, fmt.Errorf("remez: the bands are not met by any length up to maxTaps = %d: widen the transitions, relax MaxError or raise maxTaps", m.maxTaps)
 		}
 		// Eight times the estimate without halving the error: the error
@@ -365,10 +413,26 @@ func (m *lengthSearch) search(n0, odd int) (int, error) {
 		last = side
 		eval(n)
 	}
+	if err := m.ctxErr(); err != nil {
+		return 0, searchStopped(err)
+	}
 	if hi > 0 && m.cache[hi] != nil {
 		return hi, nil
 	}
 	return 0, fmt.Errorf("%w: remez: MinLength: length search did not settle within %d designs (last bracket %d..%d taps)", ErrNotConverged, maxDesigns, lo, hi)
+}
+
+// ctxErr is the search's context's error (nil without a context).
+func (m *lengthSearch) ctxErr() error {
+	if m.ctx == nil {
+		return nil
+	}
+	return m.ctx.Err()
+}
+
+// searchStopped is the error of a length search stopped by its context.
+func searchStopped(err error) error {
+	return fmt.Errorf("remez: length search stopped: %w", err)
 }
 
 func (m *lengthSearch) finish(n int, err error) (*Result, error) {

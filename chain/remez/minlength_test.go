@@ -1,6 +1,7 @@
 package remez
 
 import (
+	"context"
 	"math"
 	"testing"
 )
@@ -38,7 +39,7 @@ func TestMinLength(t *testing.T) {
 		{"lp-even", 1, lp, 2},
 		{"bp-any", 48000, bp, 0},
 	} {
-		res, search, err := minLength(tc.rate, tc.bands, tc.parity, 0, Settings{})
+		res, search, err := minLength(context.Background(), tc.rate, tc.bands, tc.parity, 0, Settings{})
 		if err != nil {
 			t.Fatalf("%s: %v", tc.name, err)
 		}

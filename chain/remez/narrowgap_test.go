@@ -1,6 +1,7 @@
 package remez
 
 import (
+	"context"
 	"errors"
 	"math"
 	"testing"
@@ -68,7 +69,7 @@ func TestNarrowGaps(t *testing.T) {
 			}
 			tr := bands[1].Lo - bands[0].Hi
 			est := HerrmannLength(bands[0].MaxError, bands[1].MaxError, tr, tc.rate)
-			res, search, err := minLength(tc.rate, bands, 0, 0, Settings{})
+			res, search, err := minLength(context.Background(), tc.rate, bands, 0, 0, Settings{})
 			if err != nil {
 				t.Fatalf("%v", err)
 			}
