@@ -75,9 +75,11 @@
 // MinLength, HalfBand and MinHalfBand are the same with
 // context.Background().
 //
-// The dense grid is the engine's one large allocation, about 100 bytes a
-// point with its work arrays; it holds about Density x n/2 points. A design
-// whose grid would exceed MaxGridPoints (2^22) is refused before anything
+// The dense grid is the engine's one large allocation: it holds about
+// Density x n/2 points, and a design peaks at about 270 bytes a point
+// (seed designs, work arrays and the collector's headroom included). A
+// design whose grid would exceed MaxGridPoints (2^21, about 600 MB) is
+// refused before anything
 // is laid, with an error wrapping ErrGridTooLarge that gives the largest
 // density that fits (MaxDensity); MinLength searches only the lengths
 // whose grid fits and wraps ErrGridTooLarge when none of them meets.

@@ -225,12 +225,14 @@ func newEngine(n int, rate float64, bands []Band, s Settings) (*engine, error) {
 	return e, nil
 }
 
-// MaxGridPoints bounds a design's dense grid, which with its work arrays
-// takes about 100 bytes a point: 2^22 points (some 400 MB). The grid holds
-// about density x n/2 points, so this allows the longest design, 65535
-// taps, at density 127, and lengths up to about 8190 at the largest
-// density the command line accepts (1024).
-const MaxGridPoints = 1 << 22
+// MaxGridPoints bounds a design's dense grid. The grid holds about
+// density x n/2 points of 64 bytes, and a design's peak memory, with the
+// shorter designs that seed it, its work arrays and the garbage collector's
+// headroom, is about 270 bytes a grid point (1.15 GB measured at 2^22
+// points), so 2^21 points keep a design near 600 MB. This allows the
+// longest design, 65535 taps, at density 63, and lengths up to about 4090
+// at the largest density the command line accepts (1024).
+const MaxGridPoints = 1 << 21
 
 // ErrGridTooLarge is wrapped by the error of a design whose dense grid
 // would exceed MaxGridPoints.

@@ -2,6 +2,7 @@ package main
 
 import (
 	"encoding/json"
+	"errors"
 	"fmt"
 	"io"
 	"math"
@@ -170,11 +171,27 @@ func runDesign(c *cli.Context) error {
 		out.Bands = append(out.Bands, designBand{Kind: kind, LoHz: e.lo, HiHz: e.hi, Weight: b.Weight})
 	}
 	settings := remez.Settings{Density: grid}
+	if taps > 0 {
+		// The engine refuses a grid over remez.MaxGridPoints (about 400 MB);
+		// say so in the flags' words before designing.
+		if most := remez.MaxDensity(taps, rate, bands); grid > most {
+			return usagef("--grid %d with --taps %d: the design grid would exceed %d points (about 400 MB); use --grid %d or less at this length, or fewer taps", grid, taps, remez.MaxGridPoints, most)
+		}
+	}
+	// Ctrl-C or SIGTERM cancel c.Context (main's signal.NotifyContext): the
+	// engine checks it every iteration and returns within about 100 ms.
+	ctx := c.Context
 	var res *remez.Result
 	if taps > 0 {
-		res, err = remez.Design(taps, rate, bands, settings)
+		res, err = remez.DesignContext(ctx, taps, rate, bands, settings)
 	} else {
-		res, err = remez.MinLength(rate, bands, 0, maxDesignTaps, settings)
+		res, err = remez.MinLengthContext(ctx, rate, bands, 0, maxDesignTaps, settings)
+	}
+	if ctx.Err() != nil {
+		return errors.New("design: interrupted; no filter was designed")
+	}
+	if errors.Is(err, remez.ErrGridTooLarge) {
+		return usagef("--grid %d: %v", grid, err)
 	}
 	if err != nil {
 		return fmt.Errorf("design: %v", err)

@@ -1,9 +1,14 @@
 package main
 
 import (
+	"bytes"
 	"encoding/json"
 	"math"
+	"os/exec"
+	"strings"
+	"syscall"
 	"testing"
+	"time"
 )
 
 type designJSON struct {
@@ -71,5 +76,40 @@ func TestDesignMinLengthAgainstSciPy(t *testing.T) {
 	if !d.MeetsTargets || d.PassbandRippleDB > 0.1 || d.StopbandAttenDB < 60 {
 		t.Errorf("length %d: ripple %.4f dB, attenuation %.2f dB, meets %v; want <= 0.1 dB and >= 60 dB",
 			d.Taps, d.PassbandRippleDB, d.StopbandAttenDB, d.MeetsTargets)
+	}
+}
+
+// SIGTERM (like Ctrl-C) stops a long design: exit 1 with one line saying
+// it was interrupted. (The latency, about 30 to 200 ms, is measured outside
+// the tests: no timed assertion here.)
+func TestDesignInterrupted(t *testing.T) {
+	cmd := exec.Command(binary, "design", "--rate", "1", "--pass", "0:0.05", "--stop", "0.0506:0.5",
+		"--ripple", "0.1", "--atten", "80", "--taps", "16000")
+	var stderr bytes.Buffer
+	cmd.Stderr = &stderr
+	must(t, cmd.Start())
+	time.Sleep(300 * time.Millisecond) // a 16000-tap design takes seconds
+	must(t, cmd.Process.Signal(syscall.SIGTERM))
+	err := cmd.Wait()
+	if err == nil {
+		t.Skip("the design finished before the signal arrived")
+	}
+	ee, ok := err.(*exec.ExitError)
+	if !ok || ee.ExitCode() != 1 {
+		t.Fatalf("exit %v, want status 1; stderr %q", err, stderr.String())
+	}
+	if !strings.Contains(stderr.String(), "interrupted") || strings.Count(stderr.String(), "\n") != 1 {
+		t.Errorf("stderr %q, want one line saying interrupted", stderr.String())
+	}
+}
+
+// A grid that would not fit in memory is refused at once, naming --grid and
+// the largest density that fits at that length (2^21 grid points over
+// r = 32768: 63).
+func TestDesignGridTooLarge(t *testing.T) {
+	r := runBinary(t, t.TempDir(), nil, "design", "--rate", "1", "--pass", "0:0.05", "--stop", "0.0506:0.5",
+		"--ripple", "0.1", "--atten", "80", "--taps", "65535", "--grid", "1024")
+	if r.code != 2 || !strings.Contains(r.stderr, "--grid 1024") || !strings.Contains(r.stderr, "--grid 63 or less") {
+		t.Errorf("exit %d, stderr %q: want 2 naming --grid 1024 and --grid 63 or less", r.code, r.stderr)
 	}
 }
