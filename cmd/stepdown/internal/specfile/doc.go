@@ -12,5 +12,9 @@
 // rule it breaks. Band rules (which edge may lie where) are checked by
 // chain.Spec.Normalize; this package checks types, units, word lengths and the
 // search limits, and the file itself (missing, unreadable, a folder, not TOML,
-// over MaxFileSize).
+// over MaxFileSize). Before the text is decoded it is measured (MaxFileSize,
+// MaxDepth, MaxItems, no integers in another base than ten), so that any
+// text, however made, costs little to refuse. Values repeated in messages
+// are cut to units.MaxEcho characters, and the library's messages are said
+// in the spec's terms (InFileTerms).
 package specfile

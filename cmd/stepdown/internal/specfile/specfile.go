@@ -7,9 +7,11 @@ import (
 	"math"
 	"os"
 	"reflect"
+	"regexp"
 	"sort"
 	"strconv"
 	"strings"
+	"time"
 
 	"github.com/BurntSushi/toml"
 
@@ -20,9 +22,15 @@ import (
 	"stepdown/optimize"
 )
 
-// MaxFileSize is the largest spec file accepted, in bytes (1 MiB): a spec is a
-// few hundred bytes, so anything larger is the wrong file.
-const MaxFileSize = 1 << 20
+// MaxFileSize is the largest spec file accepted, in bytes (64 KiB). A spec is
+// a few hundred bytes (the built-in example, comments and all, is about
+// 1 KB), so 64 KiB leaves room for any amount of commentary while keeping
+// every file that is accepted quick to decode, also for a sweep, which
+// decodes the spec again for each of up to 50 values.
+const MaxFileSize = 64 << 10
+
+// sizeText is MaxFileSize in words.
+const sizeText = "64 KiB"
 
 // Search limits.
 const (
@@ -30,7 +38,10 @@ const (
 	MaxCICOrder = 10
 	MaxCICDelay = 4
 	MinWordBits = 2
-	MaxWordBits = 64
+	// MaxWordBits is the widest input and output word: the word-length
+	// planner (fixed.Plan) takes data words of 2 to 32 bits, and every
+	// chain on the front gets a word-length plan.
+	MaxWordBits = 32
 	// MaxCoefBits is the widest coefficient word: the rounded coefficients
 	// are computed in int64 with room for the data path (fixed.MaxBits).
 	MaxCoefBits = fixed.MaxBits
@@ -127,7 +138,7 @@ func (e *Error) Error() string {
 	}
 	b.WriteString(": ")
 	if e.Key != "" {
-		b.WriteString(e.Key)
+		b.WriteString(units.Clip(e.Key, units.MaxEcho))
 		if e.Value != "" {
 			b.WriteString(" = " + e.Value)
 		}
@@ -139,8 +150,15 @@ func (e *Error) Error() string {
 
 // Load reads and parses the spec file at path.
 func Load(path string) (*Spec, error) {
-	fail := func(rule string, args ...any) (*Spec, error) {
-		return nil, &Error{File: path, Rule: fmt.Sprintf(rule, args...)}
+	s, _, err := LoadText(path)
+	return s, err
+}
+
+// LoadText is Load that also returns the file's text, read once and within
+// MaxFileSize (the sweep rewrites the text for each value).
+func LoadText(path string) (*Spec, []byte, error) {
+	fail := func(rule string, args ...any) (*Spec, []byte, error) {
+		return nil, nil, &Error{File: path, Rule: fmt.Sprintf(rule, args...)}
 	}
 	fi, err := os.Stat(path)
 	switch {
@@ -151,7 +169,7 @@ func Load(path string) (*Spec, error) {
 	case fi.IsDir():
 		return fail("is a folder; want a TOML spec file")
 	case fi.Size() > MaxFileSize:
-		return fail("spec file is %d bytes, over the %d-byte (1 MiB) limit", fi.Size(), MaxFileSize)
+		return fail("spec file is %d bytes, over the %s limit; a spec is a few hundred bytes", fi.Size(), sizeText)
 	}
 	f, err := os.Open(path)
 	if err != nil {
@@ -165,9 +183,13 @@ func Load(path string) (*Spec, error) {
 		return fail("spec file cannot be read: %v", unwrapPath(err))
 	}
 	if len(data) > MaxFileSize {
-		return fail("spec file is over the %d-byte (1 MiB) limit", MaxFileSize)
+		return fail("spec file is over the %s limit; a spec is a few hundred bytes", sizeText)
 	}
-	return Parse(path, data)
+	s, err := Parse(path, data)
+	if err != nil {
+		return nil, nil, err
+	}
+	return s, data, nil
 }
 
 func unwrapPath(err error) error {
@@ -203,16 +225,21 @@ type parser struct {
 	root map[string]any
 }
 
-// Parse parses spec text; name is used in error messages.
+// Parse parses spec text; name is used in error messages. The text is
+// measured before it is decoded (MaxFileSize, MaxDepth, MaxItems, and no
+// hexadecimal, octal or binary integers), so any text costs little to refuse.
 func Parse(name string, data []byte) (*Spec, error) {
+	if err := checkRaw(name, data); err != nil {
+		return nil, err
+	}
 	p := &parser{file: name, data: data}
 	md, err := toml.Decode(string(data), &p.root)
 	if err != nil {
 		var pe toml.ParseError
 		if errors.As(err, &pe) {
-			return nil, &Error{File: name, Line: pe.Position.Line, Rule: "not valid TOML: " + pe.Message}
+			return nil, &Error{File: name, Line: pe.Position.Line, Rule: "not valid TOML: " + units.Clip(oneLine(pe.Message), 2*units.MaxEcho)}
 		}
-		return nil, &Error{File: name, Rule: "not valid TOML: " + oneLine(err.Error())}
+		return nil, &Error{File: name, Rule: "not valid TOML: " + units.Clip(oneLine(err.Error()), 2*units.MaxEcho)}
 	}
 	if err := p.checkKeys(md); err != nil {
 		return nil, err
@@ -314,8 +341,19 @@ func (p *parser) errAt(dotted string, v any, rule string, args ...any) error {
 	return &Error{File: p.file, Line: p.lineOf(strings.Split(dotted, ".")), Key: dotted, Value: show(v), Rule: fmt.Sprintf(rule, args...)}
 }
 
-// show writes a value as it would appear in TOML.
+// show writes a value as it would appear in TOML, cut to units.MaxEcho
+// characters.
 func show(v any) string {
+	switch x := v.(type) {
+	case string:
+		return strconv.Quote(units.Clip(x, units.MaxEcho))
+	case []any:
+		return showFull(x) // cut as it is written
+	}
+	return units.Clip(showFull(v), units.MaxEcho)
+}
+
+func showFull(v any) string {
 	switch x := v.(type) {
 	case nil:
 		return ""
@@ -328,15 +366,36 @@ func show(v any) string {
 	case bool:
 		return strconv.FormatBool(x)
 	case []any:
-		s := make([]string, len(x))
+		var b strings.Builder
+		b.WriteString("[")
 		for i, e := range x {
-			s[i] = show(e)
+			if i > 0 {
+				b.WriteString(", ")
+			}
+			if b.Len() > units.MaxEcho-10 {
+				b.WriteString("...")
+				break
+			}
+			b.WriteString(units.Clip(showFull(e), 10))
 		}
-		return "[" + strings.Join(s, ", ") + "]"
+		b.WriteString("]")
+		return b.String()
 	case map[string]any:
 		return "{...}"
+	case time.Time:
+		// The decoder marks a date or time written without a zone by
+		// the location's name.
+		switch x.Location().String() {
+		case "date-local":
+			return x.Format("2006-01-02")
+		case "time-local":
+			return x.Format("15:04:05.999999999")
+		case "datetime-local":
+			return x.Format("2006-01-02T15:04:05.999999999")
+		}
+		return x.Format(time.RFC3339Nano)
 	}
-	return fmt.Sprint(v)
+	return "a value"
 }
 
 // quantity reads a frequency or level; ok is false when the key is absent.
@@ -348,9 +407,9 @@ func (p *parser) quantity(dotted string, k units.Kind, required bool) (float64, 
 		}
 		return 0, false, nil
 	}
-	unit := "Hz"
+	unit, example := "Hz", `"1.2 MHz"`
 	if k == units.Level {
-		unit = "dB"
+		unit, example = "dB", `"85 dB"`
 	}
 	switch x := v.(type) {
 	case int64:
@@ -371,25 +430,29 @@ func (p *parser) quantity(dotted string, k units.Kind, required bool) (float64, 
 		}
 		return f, true, nil
 	}
-	return 0, false, p.errAt(dotted, v, "want a number in %s or a string with a unit, not a %s", unit, typeName(v))
+	return 0, false, p.errAt(dotted, v, "want a number in %s or text with a unit such as %s, not %s", unit, example, typeName(v))
 }
 
+// typeName names a decoded value's type in the user's words, with its
+// article: "a number", "text", "a list", "a table", "a date".
 func typeName(v any) string {
 	switch v.(type) {
 	case string:
-		return "string"
+		return "text"
 	case int64:
-		return "integer"
+		return "a whole number"
 	case float64:
-		return "float"
+		return "a number with a fraction"
 	case bool:
-		return "boolean"
+		return "a true/false value"
 	case []any, []map[string]any:
-		return "array"
+		return "a list"
 	case map[string]any:
-		return "table"
+		return "a table"
+	case time.Time:
+		return "a date or time"
 	}
-	return fmt.Sprintf("%T", v)
+	return "a value of another kind"
 }
 
 // integer reads an optional integer within [lo, hi].
@@ -400,7 +463,7 @@ func (p *parser) integer(dotted string, lo, hi int, unit string) (int, bool, err
 	}
 	x, ok := v.(int64)
 	if !ok {
-		return 0, false, p.errAt(dotted, v, "want an integer, not a %s", typeName(v))
+		return 0, false, p.errAt(dotted, v, "want a whole number, not %s", typeName(v))
 	}
 	if x < int64(lo) || x > int64(hi) {
 		return 0, false, p.errAt(dotted, v, "must lie in [%d, %d]%s", lo, hi, unit)
@@ -415,7 +478,7 @@ func (p *parser) intList(dotted string, lo, hi int, what string) ([]int, bool, e
 	}
 	arr, ok := v.([]any)
 	if !ok {
-		return nil, false, p.errAt(dotted, v, "want an array of integers, not a %s", typeName(v))
+		return nil, false, p.errAt(dotted, v, "want a list of whole numbers such as [1, 2], not %s", typeName(v))
 	}
 	if len(arr) == 0 {
 		return nil, false, p.errAt(dotted, v, "must list at least one %s", what)
@@ -425,7 +488,7 @@ func (p *parser) intList(dotted string, lo, hi int, what string) ([]int, bool, e
 	for _, e := range arr {
 		x, ok := e.(int64)
 		if !ok {
-			return nil, false, p.errAt(dotted, v, "element %s: want an integer %s, not a %s", show(e), what, typeName(e))
+			return nil, false, p.errAt(dotted, v, "element %s: want a whole number (%s), not %s", show(e), what, typeName(e))
 		}
 		if x < int64(lo) || x > int64(hi) {
 			return nil, false, p.errAt(dotted, v, "%s %d must lie in [%d, %d]", what, x, lo, hi)
@@ -447,7 +510,7 @@ func (p *parser) checkTable(name string) error {
 		return nil
 	}
 	if _, ok := v.(map[string]any); !ok {
-		return p.errAt(name, v, "want a table [%s], not a %s", name, typeName(v))
+		return p.errAt(name, v, "want a table [%s], not %s", name, typeName(v))
 	}
 	return nil
 }
@@ -527,15 +590,17 @@ func (p *parser) build() (*Spec, error) {
 			out.CoefAuto = true
 		}
 	}
+	const dataNote = " bits, the data words the word-length plan handles"
 	for _, w := range []struct {
-		key string
-		dst *int
-		max int
-	}{{"words.input", &cs.InputBits, MaxWordBits}, {"words.output", &cs.OutputBits, MaxWordBits}, {"words.coefficients", &cs.CoefBits, MaxCoefBits}} {
+		key  string
+		dst  *int
+		max  int
+		note string
+	}{{"words.input", &cs.InputBits, MaxWordBits, dataNote}, {"words.output", &cs.OutputBits, MaxWordBits, dataNote}, {"words.coefficients", &cs.CoefBits, MaxCoefBits, " bits"}} {
 		if w.key == "words.coefficients" && out.CoefAuto {
 			continue
 		}
-		n, _, err := p.integer(w.key, MinWordBits, w.max, " bits")
+		n, _, err := p.integer(w.key, MinWordBits, w.max, w.note)
 		if err != nil {
 			return nil, err
 		}
@@ -553,7 +618,7 @@ func (p *parser) build() (*Spec, error) {
 	if v, ok := p.lookup("hardware.multiplier"); ok {
 		str, isStr := v.(string)
 		if !isStr {
-			return nil, p.errAt("hardware.multiplier", v, `want the native multiplier size as a string "AxB", e.g. "18x27", not a %s`, typeName(v))
+			return nil, p.errAt("hardware.multiplier", v, `want the native multiplier size as text "AxB", e.g. "18x27", not %s`, typeName(v))
 		}
 		a, b, err := fixed.ParseMultiplier(str)
 		if err != nil {
@@ -568,7 +633,7 @@ func (p *parser) build() (*Spec, error) {
 		if v, ok := p.lookup(f.key); ok {
 			b, isBool := v.(bool)
 			if !isBool {
-				return nil, p.errAt(f.key, v, "want true or false, not a %s", typeName(v))
+				return nil, p.errAt(f.key, v, "want true or false, not %s", typeName(v))
 			}
 			*f.dst = b
 		}
@@ -612,7 +677,7 @@ func (p *parser) build() (*Spec, error) {
 func (p *parser) kinds(v any) ([]chain.Kind, error) {
 	arr, ok := v.([]any)
 	if !ok {
-		return nil, p.errAt("search.kinds", v, "want an array of stage kinds, not a %s", typeName(v))
+		return nil, p.errAt("search.kinds", v, "want a list of stage kinds such as [\"cic\", \"fir\"], not %s", typeName(v))
 	}
 	if len(arr) == 0 {
 		return nil, p.errAt("search.kinds", v, `must list at least one of "cic", "halfband", "fir"`)
@@ -673,13 +738,48 @@ func (p *parser) specError(err error) error {
 	return e
 }
 
-// InFileTerms rewrites the chain package's field names in a library message
-// (InputRate, RippleDB, ...) as this format's keys (input_rate, ripple, ...).
+// InFileTerms rewrites a library message (from chain, chain/remez or
+// optimize) in the terms a user of the command line knows: Go field names
+// become the spec's keys (InputRate -> input_rate, MaxStages ->
+// search.max_stages, Kinds -> search.kinds, ...), the design budget and the
+// tap limit are said in words with what the user can change, and the
+// packages' prefixes are dropped.
 func InFileTerms(msg string) string {
+	for _, r := range libraryPhrases {
+		msg = r.re.ReplaceAllString(msg, r.with)
+	}
 	for _, f := range goField {
 		msg = replaceWord(msg, f.goName, f.key)
 	}
+	for _, f := range libraryWords {
+		msg = replaceWord(msg, f.goName, f.key)
+	}
 	return msg
+}
+
+// libraryPhrases are the library's messages that name its settings, in the
+// words of the spec and the flags; applied in order, before libraryWords.
+var libraryPhrases = []struct {
+	re   *regexp.Regexp
+	with string
+}{
+	{regexp.MustCompile(`\b(?:chain|optimize|remez|fixed): `), ""},
+	{regexp.MustCompile(`lower MaxStages or narrow Kinds, CICOrders or CICDelays`),
+		"lower search.max_stages (or --max-stages) or narrow search.kinds, search.cic_orders or search.cic_delays"},
+	{regexp.MustCompile(`the design budget \(MaxDesigns, MaxWork\)`),
+		"the design budget (a fixed amount of design work per run: lower search.max_stages or --max-stages, narrow search.kinds or search.cic_orders, or relax ripple or rejection, so that fewer or shorter filters are designed)"},
+	{regexp.MustCompile(`Dropped says why each candidate was set aside\.?`),
+		"the dropped counts say why candidates were set aside"},
+	{regexp.MustCompile(`widen the transitions, relax MaxError or raise maxTaps`),
+		"widen the transition bands (passband to stopband) or relax ripple or rejection"},
+	{regexp.MustCompile(`(?:Settings\.)?[Mm]axTaps = (\d+)`), "the tap limit of $1 taps"},
+	{regexp.MustCompile(`MaxError`), "the allowed error"},
+}
+
+// libraryWords are the optimize settings that mirror spec keys.
+var libraryWords = []struct{ goName, key string }{
+	{"MaxStages", "search.max_stages"}, {"Kinds", "search.kinds"},
+	{"CICOrders", "search.cic_orders"}, {"CICDelays", "search.cic_delays"},
 }
 
 // replaceWord replaces whole-word occurrences of old in s.

@@ -6,6 +6,8 @@ import (
 	"strings"
 	"testing"
 
+	"github.com/BurntSushi/toml"
+
 	"stepdown/chain"
 )
 
@@ -132,7 +134,17 @@ func TestParseErrors(t *testing.T) {
 		{"rate zero", `input_rate = 0`, []string{"input_rate", "above 0 Hz"}},
 		{"rate negative", `input_rate = "-1 MHz"`, []string{"input_rate", "above 0 Hz"}},
 		{"rate text", `input_rate = "fast"`, []string{"input_rate", "not a number"}},
-		{"rate bool", `input_rate = true`, []string{"input_rate", "not a boolean"}},
+		{"rate bool", `input_rate = true`, []string{"input_rate", "not a true/false value"}},
+		{"rate date", `input_rate = 1979-05-27`, []string{"input_rate = 1979-05-27", "not a date or time"}},
+		{"rate list", `input_rate = [1, 2]`, []string{"input_rate = [1, 2]", "not a list"}},
+		{"rate table", `input_rate = {a = 1}`, []string{"input_rate", "unknown key"}},
+		{"rate hex", `input_rate = 0x5DC0000`, []string{":1:", "input_rate = 0x5DC0000", "hexadecimal", "decimal", "98304000"}},
+		{"rate octal", `input_rate = 0o777`, []string{"input_rate", "octal"}},
+		{"rate binary", `input_rate = 0b1010`, []string{"input_rate", "binary"}},
+		{"rate hex text", `input_rate = "0x5DC0000 Hz"`, []string{"input_rate", "hexadecimal", "decimal"}},
+		{"rate long text", `input_rate = "` + strings.Repeat("9", 5000) + `x"`, []string{"input_rate", `"999999999`, `..."`}},
+		{"word hex", "[words]\ninput = 0x10", []string{":7:", "words.input = 0x10", "hexadecimal", "(0x10 is 16)"}},
+		{"word list", "[words]\ninput = [14]", []string{"words.input = [14]", "want a whole number, not a list"}},
 		{"output above input", `output_rate = "300 MHz"`, []string{"output_rate", "below input_rate"}},
 		{"ratio 1", `output_rate = "245.76 MHz"`, []string{"output_rate"}},
 		{"non-integer ratio", `output_rate = "1.9 MHz"`, []string{"output_rate", "not an integer"}},
@@ -143,21 +155,24 @@ func TestParseErrors(t *testing.T) {
 		{"rejection high", `rejection = "151 dB"`, []string{"rejection", "(0, 150]"}},
 		{"missing", "", []string{"input_rate", "missing"}},
 		{"signal", `signal = "iq"`, []string{"signal", `"real" or "complex"`}},
-		{"word low", "[words]\ninput = 1", []string{"words.input", "[2, 64]"}},
-		{"word high", "[words]\noutput = 65", []string{"words.output", "[2, 64]"}},
+		{"word low", "[words]\ninput = 1", []string{"words.input", "[2, 32]"}},
+		{"word high", "[words]\noutput = 33", []string{"words.output", "[2, 32]"}},
+		{"word 64", "[words]\ninput = 64", []string{"words.input", "[2, 32]"}},
 		{"coefficient word high", "[words]\ncoefficients = 41", []string{"words.coefficients", "[2, 40]"}},
-		{"word type", "[words]\noutput = \"24\"", []string{"words.output", "integer"}},
+		{"word type", "[words]\noutput = \"24\"", []string{"words.output", "whole number", "not text"}},
 		{"coefficient word text", "[words]\ncoefficients = \"automatic\"", []string{"words.coefficients", `"automatic"`, `[2, 40] bits or "auto"`}},
-		{"coefficient word float", "[words]\ncoefficients = 18.5", []string{"words.coefficients", "integer"}},
+		{"coefficient word float", "[words]\ncoefficients = 18.5", []string{"words.coefficients", "whole number", "not a number with a fraction"}},
 		{"multiplier bad", "[hardware]\nmultiplier = \"18 by 27\"", []string{"hardware.multiplier", `"18 by 27"`, "AxB"}},
 		{"multiplier too wide", "[hardware]\nmultiplier = \"18x200\"", []string{"hardware.multiplier", "[2, 128]"}},
-		{"multiplier number", "[hardware]\nmultiplier = 18", []string{"hardware.multiplier", "string"}},
+		{"multiplier number", "[hardware]\nmultiplier = 18", []string{"hardware.multiplier", "as text", "not a whole number"}},
 		{"words scalar", "words = 3", []string{"words", "table"}},
 		{"clock", "[hardware]\nclock = \"0 Hz\"", []string{"hardware.clock", "above 0"}},
 		{"symmetry", "[cost]\nsymmetry = 1", []string{"cost.symmetry", "true or false"}},
 		{"stages low", "[search]\nmax_stages = 0", []string{"search.max_stages", "[1, 12]"}},
 		{"stages high", "[search]\nmax_stages = 13", []string{"search.max_stages", "[1, 12]"}},
 		{"kinds empty", "[search]\nkinds = []", []string{"search.kinds", "at least one"}},
+		{"kinds text", "[search]\nkinds = \"fir\"", []string{"search.kinds", "want a list of stage kinds", "not text"}},
+		{"orders long", "[search]\ncic_orders = [" + strings.Repeat("\"x\", ", 100) + "3]", []string{`search.cic_orders = ["x", "x",`, `, ...]`, `element "x"`, "not text"}},
 		{"kinds unknown", "[search]\nkinds = [\"cic\", \"iir\"]", []string{"search.kinds", `"iir"`}},
 		{"kinds twice", "[search]\nkinds = [\"fir\", \"fir\"]", []string{"search.kinds", "twice"}},
 		{"order high", "[search]\ncic_orders = [3, 11]", []string{"search.cic_orders", "11", "[1, 10]"}},
@@ -242,7 +257,7 @@ func TestLoadErrors(t *testing.T) {
 	for _, tc := range []struct{ path, want string }{
 		{filepath.Join(dir, "absent.toml"), "does not exist"},
 		{dir, "is a folder"},
-		{big, "1 MiB"},
+		{big, "64 KiB"},
 	} {
 		_, err := Load(tc.path)
 		if err == nil || !strings.Contains(err.Error(), tc.want) || !strings.Contains(err.Error(), tc.path) {
@@ -254,19 +269,38 @@ func TestLoadErrors(t *testing.T) {
 	}
 }
 
-// FuzzParseSpec checks that no file content panics the parser and that an
-// accepted spec is normalised (its band rules hold).
+// FuzzParseSpec checks that no file content panics the parser, that every
+// error is one line, that an accepted spec is normalised (its band rules
+// hold), and that the raw check never lets through text that decodes deeper
+// than MaxDepth: the raw check is what keeps every input, the fuzzer's too,
+// cheap to parse.
 func FuzzParseSpec(f *testing.F) {
 	f.Add(minimal)
 	f.Add(full)
 	f.Add(ExampleText)
 	f.Add("input_rate = 1e400")
 	f.Add("[search]\nkinds = [1, 2]")
+	for _, tc := range pathological() {
+		if len(tc.text) <= 4096 {
+			f.Add(tc.text)
+		}
+	}
 	f.Fuzz(func(t *testing.T, text string) {
+		if checkRaw("fuzz.toml", []byte(text)) == nil {
+			var root map[string]any
+			if _, err := toml.Decode(text, &root); err == nil {
+				if d := decodedDepth(root, -1); d > MaxDepth {
+					t.Fatalf("raw check passed text that decodes to depth %d", d)
+				}
+			}
+		}
 		s, err := Parse("fuzz.toml", []byte(text))
 		if err != nil {
 			if s != nil {
 				t.Fatal("spec and error both returned")
+			}
+			if msg := err.Error(); strings.Contains(msg, "\n") {
+				t.Fatalf("multi-line error %q", msg)
 			}
 			return
 		}

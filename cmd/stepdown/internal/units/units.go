@@ -32,7 +32,8 @@ type Error struct {
 	Rule  string // what the value breaks
 }
 
-func (e *Error) Error() string { return fmt.Sprintf("%q: %s", e.Value, e.Rule) }
+// Error quotes the value, cut to MaxEcho characters, and states the rule.
+func (e *Error) Error() string { return fmt.Sprintf("%q: %s", Clip(e.Value, MaxEcho), e.Rule) }
 
 // ParseFrequency parses a frequency in Hz: "45", "45 Hz", "1.2 MHz", "2.5GHz".
 func ParseFrequency(s string) (float64, error) { return Parse(s, Frequency) }
@@ -47,13 +48,16 @@ func Parse(s string, k Kind) (float64, error) {
 	if t == "" {
 		return 0, &Error{s, "empty; want a number" + unitHint(k)}
 	}
+	if isPrefixed(t) {
+		return 0, &Error{s, "hexadecimal, octal and binary numbers are not accepted; write the number in decimal"}
+	}
 	// The unit is the trailing run of letters and slashes; the rest is the number.
 	num, unit := splitUnit(t)
 	if num == "" {
 		return 0, &Error{s, "not a number; want a number" + unitHint(k)}
 	}
 	if !isDecimal(num) {
-		return 0, &Error{s, fmt.Sprintf("%q is not a decimal number", num)}
+		return 0, &Error{s, fmt.Sprintf("%q is not a decimal number", Clip(num, MaxEcho))}
 	}
 	shift, rule := unitShift(unit, k)
 	if rule != "" {
@@ -140,14 +144,22 @@ func isDecimal(s string) bool {
 
 func isDigit(c byte) bool { return '0' <= c && c <= '9' }
 
+// isPrefixed reports whether s starts, after an optional sign, with 0x, 0o or
+// 0b (any case), the way hexadecimal, octal and binary numbers are written.
+func isPrefixed(s string) bool {
+	s = strings.TrimLeft(s, "+-")
+	return len(s) > 2 && s[0] == '0' && strings.ContainsRune("xXoObB", rune(s[1]))
+}
+
 // unitShift returns the power of ten to the base unit, or a rule the unit breaks.
 func unitShift(u string, k Kind) (int, string) {
+	shown := Clip(u, 20)
 	if k == Level {
 		switch {
 		case u == "", strings.EqualFold(u, "dB"):
 			return 0, ""
 		}
-		return 0, fmt.Sprintf("unknown unit %q for a level (want dB or a plain number)", u)
+		return 0, fmt.Sprintf("unknown unit %q for a level (want dB or a plain number)", shown)
 	}
 	if u == "" {
 		return 0, ""
@@ -171,7 +183,7 @@ func unitShift(u string, k Kind) (int, string) {
 	case "k", "K", "M", "m", "G", "g":
 		return 0, fmt.Sprintf("bare prefix %q; spell the unit out (%sHz)", u, canonicalPrefix(u))
 	}
-	return 0, fmt.Sprintf("unknown unit %q for a frequency (want Hz, kHz, MHz, GHz or a plain number in Hz)", u)
+	return 0, fmt.Sprintf("unknown unit %q for a frequency (want Hz, kHz, MHz, GHz or a plain number in Hz)", shown)
 }
 
 func canonicalPrefix(u string) string {
@@ -237,4 +249,25 @@ func splitUnit(t string) (num, unit string) {
 		i--
 	}
 	return strings.TrimSpace(t[:i]), t[i:]
+}
+
+// MaxEcho is the longest text, in characters, that an error message repeats
+// back: a longer value is cut to its first MaxEcho characters and an
+// ellipsis, so that a mistaken paste never floods the terminal.
+const MaxEcho = 60
+
+// Clip returns s cut to at most n characters (runes), with "..." in place of
+// the rest; s itself when it fits. It never splits a character.
+func Clip(s string, n int) string {
+	if n < 1 {
+		n = 1
+	}
+	count := 0
+	for i := range s {
+		if count == n {
+			return s[:i] + "..."
+		}
+		count++
+	}
+	return s
 }

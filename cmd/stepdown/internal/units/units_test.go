@@ -91,7 +91,14 @@ func TestParseErrors(t *testing.T) {
 		{"Inf", Frequency, "not a number"},
 		{"+Inf", Frequency, "not a decimal number"},
 		{"-infinity", Level, "not a decimal number"},
-		{"0x10", Frequency, "not a decimal number"},
+		{"0x10", Frequency, "hexadecimal, octal and binary numbers are not accepted"},
+		{"0XFF", Frequency, "hexadecimal"},
+		{"0x10 MHz", Frequency, "write the number in decimal"},
+		{"-0x10", Level, "hexadecimal"},
+		{"0b101", Frequency, "hexadecimal, octal and binary"},
+		{"0o17 dB", Level, "hexadecimal, octal and binary"},
+		{strings.Repeat("9", 1000) + "!", Frequency, `"` + strings.Repeat("9", 60) + `..."`},
+		{"1 " + strings.Repeat("x", 1000), Frequency, `unknown unit "` + strings.Repeat("x", 20) + `..."`},
 		{"1_000", Frequency, "not a decimal number"},
 		{"1.2.3", Frequency, "not a decimal number"},
 		{"1e", Frequency, "unknown unit"},
@@ -121,6 +128,26 @@ func TestParseErrors(t *testing.T) {
 		}
 		if !strings.Contains(err.Error(), tc.rule) || strings.Contains(err.Error(), "\n") {
 			t.Errorf("Parse(%q, %v): error %q, want one line containing %q", tc.in, tc.kind, err, tc.rule)
+		}
+	}
+}
+
+func TestClip(t *testing.T) {
+	for _, tc := range []struct {
+		in   string
+		n    int
+		want string
+	}{
+		{"", 5, ""},
+		{"abc", 3, "abc"},
+		{"abcd", 3, "abc..."},
+		{"héllo wörld", 7, "héllo w..."}, // cut by characters, never inside one
+		{"日本語テキスト", 3, "日本語..."},
+		{"x", 0, "x"},
+		{"xy", 0, "x..."},
+	} {
+		if got := Clip(tc.in, tc.n); got != tc.want {
+			t.Errorf("Clip(%q, %d) = %q, want %q", tc.in, tc.n, got, tc.want)
 		}
 	}
 }
@@ -165,8 +192,13 @@ func FuzzParseQuantity(f *testing.F) {
 		for _, k := range []Kind{Frequency, Level} {
 			v, err := Parse(s, k)
 			if err != nil {
-				if strings.Contains(err.Error(), "\n") && !strings.Contains(s, "\n") {
+				if strings.Contains(err.Error(), "\n") {
 					t.Fatalf("Parse(%q): multi-line error %q", s, err)
+				}
+				// The value is echoed cut to MaxEcho characters (each
+				// at most 10 bytes once quoted), the unit to 20.
+				if len(err.Error()) > 12*(MaxEcho+20)+200 {
+					t.Fatalf("Parse(%q): error of %d bytes", s, len(err.Error()))
 				}
 				continue
 			}
