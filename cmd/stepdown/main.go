@@ -14,10 +14,14 @@ import (
 	"io"
 	"os"
 	"os/signal"
+	"regexp"
+	"slices"
 	"strings"
 	"syscall"
 
 	"github.com/urfave/cli/v2"
+
+	"stepdown/cmd/stepdown/internal/units"
 )
 
 // Exit codes.
@@ -54,7 +58,10 @@ func main() {
 // run executes the command line args and returns the exit status.
 func run(ctx context.Context, args []string, stdout, stderr io.Writer) int {
 	app := newApp(stdout, stderr)
-	err := app.RunContext(ctx, reorderArgs(app, args))
+	args, err := reorderArgs(app, args)
+	if err == nil {
+		err = app.RunContext(ctx, args)
+	}
 	if err == nil {
 		return exitOK
 	}
@@ -66,18 +73,83 @@ func run(ctx context.Context, args []string, stdout, stderr io.Writer) int {
 	return exitRuntime
 }
 
-// oneLine keeps an error message to a single line on stderr.
+// oneLine keeps an error message to a single line on stderr, and to
+// maxMessage characters: the values a message repeats are cut where it is
+// written (clip), and this is the backstop.
 func oneLine(s string) string {
 	s = strings.TrimSpace(s)
 	if i := strings.IndexByte(s, '\n'); i >= 0 {
 		s = strings.TrimSpace(s[:i])
 	}
-	return s
+	return units.Clip(s, maxMessage)
+}
+
+// maxMessage bounds an error line, in characters.
+const maxMessage = 600
+
+// clip cuts a value the user gave to units.MaxEcho characters for an error
+// message.
+func clip(s string) string { return units.Clip(s, units.MaxEcho) }
+
+// The flag package's messages, rewritten by flagError.
+var (
+	reUndefined = regexp.MustCompile(`^flag provided but not defined: -+(.*)$`)
+	reNoValue   = regexp.MustCompile(`^flag needs an argument: -+(.*)$`)
+	reBadValue  = regexp.MustCompile(`^invalid (?:boolean )?value "(.*)" for flag -+([^:]*): (.*)$`)
+)
+
+// flagError says a flag parsing error in the command line's own words: the
+// flag as the user writes it (--name), the value, and what is wanted.
+func flagError(cmd *cli.Command, err error) error {
+	msg := err.Error()
+	name := "stepdown"
+	if cmd != nil {
+		name = "stepdown " + cmd.Name
+	}
+	if m := reUndefined.FindStringSubmatch(msg); m != nil {
+		return usagef("--%s: not a flag of %s (see %s --help)", clip(m[1]), name, name)
+	}
+	if m := reNoValue.FindStringSubmatch(msg); m != nil {
+		return usagef("--%s: missing its value", clip(m[1]))
+	}
+	if m := reBadValue.FindStringSubmatch(msg); m != nil {
+		value, flag := m[1], m[2]
+		return usagef("--%s %q: %s", flag, clip(value), wantOf(cmd, flag))
+	}
+	return usageError{err}
+}
+
+// wantOf says what a flag's value must look like, by the flag's type.
+func wantOf(cmd *cli.Command, flag string) string {
+	if cmd != nil {
+		for _, f := range cmd.Flags {
+			if !slices.Contains(f.Names(), flag) {
+				continue
+			}
+			switch f.(type) {
+			case *cli.DurationFlag:
+				return `a duration needs a unit, e.g. "30s", "5m" or "1h30m"`
+			case *cli.IntFlag:
+				return "want a whole number"
+			case *cli.BoolFlag:
+				return "want true or false"
+			}
+		}
+	}
+	return "not a valid value"
 }
 
 func newApp(stdout, stderr io.Writer) *cli.App {
-	onUsage := func(_ *cli.Context, err error, _ bool) error {
-		return usageError{err}
+	onUsage := func(c *cli.Context, err error, _ bool) error {
+		var ue usageError
+		if errors.As(err, &ue) {
+			return err
+		}
+		var cmd *cli.Command
+		if c != nil {
+			cmd = c.Command
+		}
+		return flagError(cmd, err)
 	}
 	app := &cli.App{
 		Name:  "stepdown",
@@ -106,10 +178,13 @@ func newApp(stdout, stderr io.Writer) *cli.App {
 
 // reorderArgs moves a command's flags in front of its positional arguments,
 // because the standard flag parser stops at the first positional argument and
-// users write "stepdown check spec.toml --chain ...".
-func reorderArgs(app *cli.App, args []string) []string {
+// users write "stepdown check spec.toml --chain ...". A flag that takes a
+// value takes the next word, wherever it stands; a flag left without one (the
+// last word, or followed by another of the command's flags) is a usage
+// error, never a folder named "--".
+func reorderArgs(app *cli.App, args []string) ([]string, error) {
 	if len(args) < 2 {
-		return args
+		return args, nil
 	}
 	var cmd *cli.Command
 	for _, c := range app.Commands {
@@ -118,7 +193,7 @@ func reorderArgs(app *cli.App, args []string) []string {
 		}
 	}
 	if cmd == nil {
-		return args
+		return args, nil
 	}
 	takesValue := map[string]bool{}
 	for _, f := range cmd.Flags {
@@ -126,6 +201,18 @@ func reorderArgs(app *cli.App, args []string) []string {
 		for _, n := range f.Names() {
 			takesValue[n] = !isBool
 		}
+	}
+	// isFlag reports whether a word names one of the command's flags.
+	isFlag := func(a string) bool {
+		if a == "--" {
+			return true
+		}
+		if len(a) < 2 || a[0] != '-' {
+			return false
+		}
+		name, _, _ := strings.Cut(strings.TrimLeft(a, "-"), "=")
+		_, known := takesValue[name]
+		return known || name == "help" || name == "h"
 	}
 	var flags, pos []string
 	rest := args[2:]
@@ -141,13 +228,14 @@ func reorderArgs(app *cli.App, args []string) []string {
 		}
 		flags = append(flags, a)
 		name := strings.TrimLeft(a, "-")
-		if strings.Contains(name, "=") {
+		if strings.Contains(name, "=") || !takesValue[name] {
 			continue
 		}
-		if takesValue[name] && i+1 < len(rest) {
-			i++
-			flags = append(flags, rest[i])
+		if i+1 >= len(rest) || isFlag(rest[i+1]) {
+			return nil, usagef("--%s: missing its value (see stepdown %s --help)", name, cmd.Name)
 		}
+		i++
+		flags = append(flags, rest[i])
 	}
 	out := append([]string{}, args[:2]...)
 	out = append(out, flags...)
@@ -155,5 +243,5 @@ func reorderArgs(app *cli.App, args []string) []string {
 		out = append(out, "--")
 		out = append(out, pos...)
 	}
-	return out
+	return out, nil
 }

@@ -97,6 +97,12 @@ func words(line string) string {
 	return strings.Replace(goodSpec, "[words]\n", "[words]\n"+line+"\n", 1)
 }
 
+// nested is a spec line of about size bytes nesting open and close.
+func nested(size int, open, close string) string {
+	n := (size - 20) / (len(open) + len(close))
+	return "input_rate = " + strings.Repeat(open, n) + "1" + strings.Repeat(close, n) + "\n"
+}
+
 // Each bad input must exit with the given status, print exactly one line on
 // stderr that contains every fragment, never mention a panic or goroutine,
 // and leave the output folder as it was.
@@ -134,8 +140,8 @@ func TestBadInputs(t *testing.T) {
 		specCase("rejection negative", edit("rejection", `rejection = "-80 dB"`), "rejection", "(0, 150]"),
 		specCase("rejection over 150", edit("rejection", `rejection = "151 dB"`), "rejection", "(0, 150]"),
 		specCase("rejection unit", edit("rejection", `rejection = "80 Hz"`), "rejection", "unknown unit"),
-		specCase("input word 1", edit("input", "input = 1"), "words.input", "[2, 64]"),
-		specCase("output word 65", words("output = 65"), "words.output", "[2, 64]"),
+		specCase("input word 1", edit("input", "input = 1"), "words.input", "[2, 32]"),
+		specCase("output word 65", words("output = 65"), "words.output", "[2, 32]"),
 		specCase("coefficient word 0", words("coefficients = 0"), "words.coefficients", "[2, 40]"),
 		specCase("coefficient word 41", words("coefficients = 41"), "words.coefficients", "[2, 40]"),
 		specCase("max_stages 0", edit("max_stages", "max_stages = 0"), "search.max_stages", "[1, 12]"),
@@ -159,7 +165,27 @@ func TestBadInputs(t *testing.T) {
 		{name: "missing spec", args: []string{"plan", "absent.toml", "--out", "out"}, code: 2, frags: []string{"absent.toml", "does not exist"}},
 		{name: "spec is a folder", args: []string{"plan", "folder", "--out", "out"}, code: 2, frags: []string{"folder", "is a folder"}},
 		{name: "spec unreadable", args: []string{"plan", "big.toml/x.toml", "--out", "out"}, code: 2, frags: []string{"x.toml", "cannot be read"}},
-		{name: "spec over 1 MiB", args: []string{"plan", "big.toml", "--out", "out"}, code: 2, frags: []string{"big.toml", "1 MiB"}},
+		{name: "spec over 64 KiB", args: []string{"plan", "big.toml", "--out", "out"}, code: 2, frags: []string{"big.toml", "64 KiB"}},
+		// Issue 17: files that cost nothing to refuse, refused before they
+		// are decoded (16 KB of nested inline tables took 0.9 GB and 14 s).
+		specCase("16 KB nested inline tables", nested(16<<10, "{a=", "}"), "spec.toml:1", "nested deeper than 4 levels"),
+		specCase("40 KB nested inline tables", nested(40<<10, "{a=", "}"), "spec.toml:1", "nested deeper than 4 levels"),
+		specCase("40 KB nested arrays", nested(40<<10, "[", "]"), "nested deeper than 4 levels"),
+		specCase("deep dotted key", strings.Repeat("a.", 3000)+"a = 1\n", "nested deeper than 4 levels"),
+		specCase("too many keys", goodSpec+strings.Repeat("cic_orders = [1]\n", 300), "more than 256 keys, values and tables"),
+		// Messages in the user's words, values cut short.
+		specCase("rate is a date", edit("input_rate", "input_rate = 1979-05-27"), "input_rate = 1979-05-27", "not a date or time"),
+		specCase("word is a list", edit("input", "input = [14]"), "words.input = [14]", "want a whole number, not a list"),
+		specCase("kinds is text", goodSpec+"kinds = \"fir\"\n", "search.kinds", "not text"),
+		specCase("long value", edit("output_rate", `output_rate = "`+strings.Repeat("3", 40000)+` MHz"`), "output_rate", `..."`),
+		specCase("search too large", "input_rate = 1048576\noutput_rate = 1\npassband = 0.1\nripple = 0.1\nrejection = 70\n[search]\nmax_stages = 12\ncic_orders = [1, 2, 3, 4, 5, 6, 7, 8, 9, 10]\ncic_delays = [1, 2, 3, 4]\n",
+			"candidates", "lower search.max_stages (or --max-stages) or narrow search.kinds"),
+		// Docs and behaviour agree: no hexadecimal, words up to 32 bits.
+		specCase("rate hexadecimal", edit("input_rate", "input_rate = 0x5DC0000"), "spec.toml:1", "input_rate = 0x5DC0000", "hexadecimal", "98304000"),
+		specCase("rate hexadecimal text", edit("input_rate", `input_rate = "0x5DC0000 Hz"`), "input_rate", "hexadecimal"),
+		specCase("word octal", edit("input", "input = 0o16"), "words.input = 0o16", "octal"),
+		specCase("input word 64", edit("input", "input = 64"), "words.input = 64", "[2, 32] bits", "word-length plan"),
+		specCase("output word 33", words("output = 33"), "words.output = 33", "[2, 32] bits"),
 		{name: "out is a file", spec: goodSpec, args: []string{"plan", "spec.toml", "--out", "afile"}, code: 2, frags: []string{"afile", "is a file"}},
 		{name: "out parent missing", spec: goodSpec, args: []string{"plan", "spec.toml", "--out", "nowhere/out"}, code: 2, frags: []string{"nowhere", "does not exist"}},
 		{name: "out foreign folder", spec: goodSpec, args: []string{"plan", "spec.toml", "--out", "folder"}, code: 2, frags: []string{"folder", "not a stepdown output folder"}},
@@ -169,6 +195,17 @@ func TestBadInputs(t *testing.T) {
 		{name: "flag jobs", spec: goodSpec, args: []string{"plan", "spec.toml", "--out", "out", "--jobs", "-1"}, code: 2, frags: []string{"--jobs"}},
 		{name: "flag timeout", spec: goodSpec, args: []string{"plan", "spec.toml", "--out", "out", "--timeout", "-1s"}, code: 2, frags: []string{"--timeout"}},
 		{name: "flag bad duration", spec: goodSpec, args: []string{"plan", "spec.toml", "--out", "out", "--timeout", "soon"}, code: 2, frags: []string{"timeout"}},
+		{name: "flag duration without unit", spec: goodSpec, args: []string{"plan", "spec.toml", "--out", "out", "--timeout", "5"}, code: 2, frags: []string{`--timeout "5"`, "a duration needs a unit", `"30s"`}},
+		{name: "flag jobs not a number", spec: goodSpec, args: []string{"plan", "spec.toml", "--out", "out", "--jobs", "x"}, code: 2, frags: []string{`--jobs "x"`, "whole number"}},
+		{name: "flag out last without value", spec: goodSpec, args: []string{"plan", "spec.toml", "--out"}, code: 2, frags: []string{"--out: missing its value"}},
+		{name: "flag out followed by a flag", spec: goodSpec, args: []string{"plan", "spec.toml", "--out", "--json"}, code: 2, frags: []string{"--out: missing its value"}},
+		{name: "flag after spec, last", spec: goodSpec, args: []string{"plan", "spec.toml", "--out", "out", "--max-stages", "13"}, code: 2, frags: []string{"--max-stages 13", "[1, 12]"}},
+		{name: "check chain last without value", spec: goodSpec, args: []string{"check", "spec.toml", "--out", "out", "--chain"}, code: 2, frags: []string{"--chain: missing its value"}},
+		{name: "sweep vary last without value", spec: goodSpec, args: []string{"sweep", "spec.toml", "--out", "out", "--vary"}, code: 2, frags: []string{"--vary: missing its value"}},
+		{name: "check product over 2^64", spec: goodSpec, args: []string{"check", "spec.toml", "--out", "out", "--chain", strings.Repeat("hb > ", 63) + "hb"}, code: 2,
+			frags: []string{"--chain", "multiply to more than input_rate/output_rate = 32", "first 6 of its 64 stages"}},
+		{name: "check long chain", spec: goodSpec, args: []string{"check", "spec.toml", "--out", "out", "--chain", "cic3m1r8 > " + strings.Repeat("x", 100000)}, code: 2,
+			frags: []string{"--chain", `..."`, "at byte 11"}},
 		{name: "unknown flag", spec: goodSpec, args: []string{"plan", "spec.toml", "--colour"}, code: 2, frags: []string{"colour"}},
 		{name: "unknown command", args: []string{"frobnicate"}, code: 2, frags: []string{"frobnicate", "unknown"}},
 		{name: "two specs", spec: goodSpec, args: []string{"plan", "spec.toml", "spec.toml", "--out", "out"}, code: 2, frags: []string{"at most one"}},
@@ -203,6 +240,14 @@ func TestBadInputs(t *testing.T) {
 			lines := strings.Split(strings.TrimRight(r.stderr, "\n"), "\n")
 			if len(lines) != 1 || lines[0] == "" {
 				t.Errorf("stderr has %d lines, want 1: %q", len(lines), r.stderr)
+			}
+			if len(r.stderr) > 700 {
+				t.Errorf("stderr is %d bytes long: %.200q...", len(r.stderr), r.stderr)
+			}
+			for _, goWord := range []string{"MaxStages", "MaxDesigns", "MaxWork", "maxTaps", "MaxError", "time.Time", "not a array", "parse error"} {
+				if strings.Contains(r.stderr, goWord) {
+					t.Errorf("stderr speaks Go (%q): %q", goWord, r.stderr)
+				}
 			}
 			for _, f := range c.frags {
 				if !strings.Contains(r.stderr, f) {
@@ -407,7 +452,7 @@ func TestPlanExampleEndToEnd(t *testing.T) {
 	}
 	entries, _ := os.ReadDir(dir)
 	for _, e := range entries {
-		if strings.Contains(e.Name(), ".tmp-") {
+		if strings.HasPrefix(e.Name(), ".stepdown-") {
 			t.Errorf("temporary folder %s left behind", e.Name())
 		}
 	}
@@ -420,4 +465,28 @@ func readReport(t *testing.T, path string) map[string]any {
 	var m map[string]any
 	must(t, json.Unmarshal(b, &m))
 	return m
+}
+
+// An --out name as long as the file system allows is written and then
+// replaced, and nothing is left beside it (issue 17: a name of 238 to 255
+// characters could be written once and never replaced).
+func TestLongOutName(t *testing.T) {
+	dir := t.TempDir()
+	must(t, os.WriteFile(filepath.Join(dir, "spec.toml"), []byte(goodSpec), 0o644))
+	out := strings.Repeat("o", 250)
+	for run := 1; run <= 2; run++ {
+		r := runBinary(t, dir, nil, "check", "spec.toml", "--chain", "cic3m1r8 > fir4", "--quiet", "--out", out)
+		if r.code != 0 {
+			t.Fatalf("run %d: exit %d: %s", run, r.code, r.stderr)
+		}
+	}
+	if _, err := os.Stat(filepath.Join(dir, out, "report.json")); err != nil {
+		t.Error(err)
+	}
+	entries, _ := os.ReadDir(dir)
+	for _, e := range entries {
+		if strings.HasPrefix(e.Name(), ".stepdown-") {
+			t.Errorf("left behind: %s", e.Name())
+		}
+	}
 }

@@ -2,6 +2,8 @@ package main
 
 import (
 	"bytes"
+	"crypto/rand"
+	"encoding/hex"
 	"errors"
 	"fmt"
 	"math"
@@ -20,6 +22,12 @@ import (
 // outDir writes a run's files into a temporary folder beside the output
 // folder and renames it into place at the end, so that a run that fails or is
 // interrupted leaves the output folder as it was.
+//
+// The temporary folder, and the name the previous output is moved to while
+// the new one takes its place, are short fixed prefixes with a random
+// suffix (.stepdown-tmp-*, .stepdown-old-*) in the same parent folder, so
+// they fit wherever the output folder's own name fits and a rename stays
+// within one file system.
 type outDir struct {
 	dir    string // as the user gave it
 	abs    string
@@ -27,66 +35,101 @@ type outDir struct {
 	exists bool
 }
 
+// Prefixes of the temporary names beside the output folder.
+const (
+	tmpPrefix = ".stepdown-tmp-"
+	oldPrefix = ".stepdown-old-"
+)
+
+// Seams for tests: the file-system calls whose failures commit handles.
+var (
+	removeAll = os.RemoveAll
+	rename    = os.Rename
+)
+
 // prepareOut checks the output folder before any work, and creates the
 // temporary folder beside it.
 func prepareOut(dir string) (*outDir, error) {
 	if dir == "" {
 		return nil, usagef("--out: empty; name a folder")
 	}
+	shown := clip(dir)
 	abs, err := filepath.Abs(dir)
 	if err != nil {
-		return nil, usagef("--out %q: %v", dir, err)
+		return nil, usagef("--out %q: %v", shown, err)
 	}
 	o := &outDir{dir: dir, abs: abs}
 	parent := filepath.Dir(abs)
 	if fi, err := os.Stat(parent); err != nil || !fi.IsDir() {
-		return nil, usagef("--out %q: its parent folder %q does not exist", dir, parent)
+		return nil, usagef("--out %q: its parent folder %q does not exist", shown, clip(parent))
 	}
 	fi, err := os.Lstat(abs)
 	switch {
 	case errors.Is(err, os.ErrNotExist):
 	case err != nil:
-		return nil, fmt.Errorf("--out %q: %v", dir, unwrapPath(err))
+		return nil, fmt.Errorf("--out %q: %v", shown, unwrapPath(err))
 	case fi.Mode()&os.ModeSymlink != 0:
-		return nil, usagef("--out %q: is a symbolic link; it would be replaced as a whole, so give the folder itself", dir)
+		return nil, usagef("--out %q: is a symbolic link; it would be replaced as a whole, so give the folder itself", shown)
 	case !fi.IsDir():
-		return nil, usagef("--out %q: is a file, not a folder; remove it or choose another --out", dir)
+		return nil, usagef("--out %q: is a file, not a folder; remove it or choose another --out", shown)
 	default:
 		o.exists = true
 		entries, err := os.ReadDir(abs)
 		if err != nil {
-			return nil, fmt.Errorf("--out %q: cannot be read: %v", dir, unwrapPath(err))
+			return nil, fmt.Errorf("--out %q: cannot be read: %v", shown, unwrapPath(err))
 		}
 		if len(entries) > 0 {
 			if _, err := os.Stat(filepath.Join(abs, "report.json")); err != nil {
-				return nil, usagef("--out %q: exists and is not a stepdown output folder (no report.json); it would be replaced as a whole, so choose another --out", dir)
+				return nil, usagef("--out %q: exists and is not a stepdown output folder (no report.json); it would be replaced as a whole, so choose another --out", shown)
 			}
 		}
-		// The folder will be replaced; make sure that can be done before the search.
-		probe, err := os.CreateTemp(abs, ".stepdown-probe-*")
-		if err != nil {
-			return nil, fmt.Errorf("--out %q: folder is not writable: %v", dir, unwrapPath(err))
+		// The folder will be replaced and the previous output removed:
+		// make sure both can be done before the search.
+		if err := checkRemovable(abs); err != nil {
+			return nil, fmt.Errorf("--out %q: the previous output could not be removed after the run (%v); fix its permissions or choose another --out", shown, err)
 		}
-		probe.Close()
-		os.Remove(probe.Name())
 	}
-	tmp, err := os.MkdirTemp(parent, "."+filepath.Base(abs)+".tmp-*")
+	tmp, err := os.MkdirTemp(parent, tmpPrefix+"*")
 	if err != nil {
-		return nil, fmt.Errorf("--out %q: cannot write in %q: %v", dir, parent, unwrapPath(err))
+		return nil, fmt.Errorf("--out %q: cannot write in %q: %v", shown, clip(parent), unwrapPath(err))
 	}
 	o.tmp = tmp
 	// MkdirTemp makes the folder private; the output is an ordinary folder.
 	if err := os.Chmod(tmp, 0o755); err != nil {
 		o.cleanup()
-		return nil, fmt.Errorf("--out %q: %v", dir, unwrapPath(err))
+		return nil, fmt.Errorf("--out %q: %v", shown, unwrapPath(err))
 	}
 	return o, nil
+}
+
+// checkRemovable reports whether every folder in the tree at dir lets a file
+// be created and removed in it, which removing the tree needs.
+func checkRemovable(dir string) error {
+	return filepath.WalkDir(dir, func(p string, d os.DirEntry, err error) error {
+		if err != nil {
+			return unwrapPath(err)
+		}
+		if !d.IsDir() {
+			return nil
+		}
+		probe, err := os.CreateTemp(p, ".stepdown-probe-*")
+		if err != nil {
+			rel, _ := filepath.Rel(dir, p)
+			return fmt.Errorf("folder %q is not writable", clip(rel))
+		}
+		probe.Close()
+		return os.Remove(probe.Name())
+	})
 }
 
 func unwrapPath(err error) error {
 	var pe *os.PathError
 	if errors.As(err, &pe) {
 		return pe.Err
+	}
+	var le *os.LinkError
+	if errors.As(err, &le) {
+		return le.Err
 	}
 	return err
 }
@@ -104,33 +147,69 @@ func (o *outDir) write(files []report.File) error {
 	return nil
 }
 
-// commit puts the temporary folder in the output folder's place.
+// commit puts the temporary folder in the output folder's place. On any
+// error the output folder is as it was before the run, except in the one
+// case the error says so: the new output is in place but the previous one,
+// moved aside, could not be removed.
 func (o *outDir) commit() error {
+	shown := clip(o.dir)
 	if !o.exists {
-		if err := os.Rename(o.tmp, o.abs); err != nil {
-			return fmt.Errorf("--out %q: %v", o.dir, unwrapPath(err))
+		if err := rename(o.tmp, o.abs); err != nil {
+			if fi, serr := os.Lstat(o.abs); serr == nil && fi.IsDir() {
+				return fmt.Errorf("--out %q: another run created it first; nothing was written", shown)
+			}
+			return fmt.Errorf("--out %q: cannot create it: %v", shown, unwrapPath(err))
 		}
 		o.tmp = ""
 		return nil
 	}
-	old := o.tmp + ".old"
-	if err := os.Rename(o.abs, old); err != nil {
-		return fmt.Errorf("--out %q: cannot replace it: %v", o.dir, unwrapPath(err))
+	old, err := unusedName(filepath.Dir(o.abs), oldPrefix)
+	if err != nil {
+		return fmt.Errorf("--out %q: cannot replace it: %v", shown, err)
 	}
-	if err := os.Rename(o.tmp, o.abs); err != nil {
+	if err := rename(o.abs, old); err != nil {
+		if errors.Is(err, os.ErrNotExist) {
+			return fmt.Errorf("--out %q: another run moved or removed it meanwhile; nothing was written", shown)
+		}
+		return fmt.Errorf("--out %q: cannot replace it: %v", shown, unwrapPath(err))
+	}
+	if err := rename(o.tmp, o.abs); err != nil {
 		// Put the previous output back.
-		_ = os.Rename(old, o.abs)
-		return fmt.Errorf("--out %q: cannot replace it: %v", o.dir, unwrapPath(err))
+		if rerr := rename(old, o.abs); rerr != nil {
+			return fmt.Errorf("--out %q: cannot replace it (%v), and the previous output could not be put back: it is in %q", shown, unwrapPath(err), old)
+		}
+		if fi, serr := os.Lstat(o.abs); serr == nil && fi.IsDir() && errors.Is(err, os.ErrExist) {
+			return fmt.Errorf("--out %q: another run replaced it first; nothing was written", shown)
+		}
+		return fmt.Errorf("--out %q: cannot replace it: %v", shown, unwrapPath(err))
 	}
 	o.tmp = ""
-	_ = os.RemoveAll(old)
+	if err := removeAll(old); err != nil {
+		return fmt.Errorf("--out %q: the new output is in place, but the previous one could not be removed: remove %q yourself (%v)", shown, old, unwrapPath(err))
+	}
 	return nil
+}
+
+// unusedName returns a path in parent, prefix and 16 random hex digits, that
+// does not exist yet (os.Rename will not move a folder onto another).
+func unusedName(parent, prefix string) (string, error) {
+	for range 16 {
+		var b [8]byte
+		if _, err := rand.Read(b[:]); err != nil {
+			return "", err
+		}
+		p := filepath.Join(parent, prefix+hex.EncodeToString(b[:]))
+		if _, err := os.Lstat(p); errors.Is(err, os.ErrNotExist) {
+			return p, nil
+		}
+	}
+	return "", errors.New("no unused temporary name")
 }
 
 // cleanup removes the temporary folder of a run that did not commit.
 func (o *outDir) cleanup() {
 	if o != nil && o.tmp != "" {
-		_ = os.RemoveAll(o.tmp)
+		_ = removeAll(o.tmp)
 		o.tmp = ""
 	}
 }

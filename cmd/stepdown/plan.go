@@ -64,24 +64,26 @@ func checkCommand() *cli.Command {
 	}
 }
 
-// loadSpec reads the spec named by the first argument, or the built-in example.
-func loadSpec(c *cli.Context) (*specfile.Spec, string, error) {
+// loadSpec reads the spec named by the first argument, or the built-in
+// example, and returns it with its name and its text (read once, within
+// specfile.MaxFileSize).
+func loadSpec(c *cli.Context) (*specfile.Spec, string, []byte, error) {
 	if c.Args().Len() > 1 {
-		return nil, "", usagef("%s: unexpected argument %q (give at most one spec file)", c.Command.Name, c.Args().Get(1))
+		return nil, "", nil, usagef("%s: unexpected argument %q (give at most one spec file)", c.Command.Name, clip(c.Args().Get(1)))
 	}
 	if !c.Args().Present() {
 		s, err := specfile.Example()
 		if err != nil {
-			return nil, "", fmt.Errorf("built-in example: %v", err)
+			return nil, "", nil, fmt.Errorf("built-in example: %v", err)
 		}
-		return s, specfile.ExampleName, nil
+		return s, specfile.ExampleName, []byte(specfile.ExampleText), nil
 	}
 	path := c.Args().First()
-	s, err := specfile.Load(path)
+	s, text, err := specfile.LoadText(path)
 	if err != nil {
-		return nil, "", usageError{err}
+		return nil, "", nil, usageError{err}
 	}
-	return s, path, nil
+	return s, path, text, nil
 }
 
 // job holds what a plan or check needs to write its outputs.
@@ -96,7 +98,7 @@ type job struct {
 }
 
 func newJob(c *cli.Context) (*job, error) {
-	spec, source, err := loadSpec(c)
+	spec, source, _, err := loadSpec(c)
 	if err != nil {
 		return nil, err
 	}
@@ -165,16 +167,22 @@ func runPlan(c *cli.Context) error {
 	res, err := optimize.Plan(ctx, j.spec.Chain, set)
 	prog.finish()
 	if sigCtx.Err() != nil {
-		return fmt.Errorf("interrupted; %s left as it was", j.out.dir)
+		return fmt.Errorf("interrupted; %s left as it was", clip(j.out.dir))
 	}
 	if err != nil {
-		return fmt.Errorf("plan: %v", err)
+		msg := specfile.InFileTerms(err.Error())
+		if strings.Contains(msg, "candidates, more than") {
+			// The spec asks for a search larger than the optimiser
+			// scores; the message says which keys narrow it.
+			return usagef("plan: %s", msg)
+		}
+		return fmt.Errorf("plan: %s", msg)
 	}
 	if res.Partial && len(res.Front) == 0 {
-		return fmt.Errorf("--timeout %v: stopped before any chain was designed; %s left as it was (allow more time)", c.Duration("timeout"), j.out.dir)
+		return fmt.Errorf("--timeout %v: stopped before any chain was designed; %s left as it was (allow more time)", c.Duration("timeout"), clip(j.out.dir))
 	}
 	if len(res.Front) == 0 {
-		return emptyFront(res, j.out.dir)
+		return emptyFront(res, clip(j.out.dir))
 	}
 	return j.finish("plan", res)
 }
@@ -184,7 +192,7 @@ func runPlan(c *cli.Context) error {
 // and the counts of dropped candidates.
 func emptyFront(res *optimize.Result, dir string) error {
 	msg := "no chain meets the spec"
-	if r := strings.Join(strings.Fields(res.Reason), " "); r != "" {
+	if r := strings.Join(strings.Fields(specfile.InFileTerms(res.Reason)), " "); r != "" {
 		msg += ": " + strings.TrimSuffix(r, ".")
 	}
 	return fmt.Errorf("%s (dropped: %s); %s left as it was", msg, droppedText(res.Dropped), dir)
@@ -197,38 +205,53 @@ func runCheck(c *cli.Context) error {
 	}
 	plan, err := chain.ParseNotation(notation)
 	if err != nil {
-		return usagef("--chain: %s", strings.TrimPrefix(err.Error(), "chain: "))
+		var ne *chain.NotationError
+		if errors.As(err, &ne) {
+			found := "the end"
+			if ne.Pos < len(ne.Input) {
+				found = fmt.Sprintf("%q", units.Clip(ne.Input[ne.Pos:], 12))
+			}
+			return usagef("--chain %q: at byte %d: expected %s, found %s", clip(notation), ne.Pos, ne.Expected, found)
+		}
+		return usagef("--chain %q: %s", clip(notation), specfile.InFileTerms(err.Error()))
 	}
 	j, err := newJob(c)
 	if err != nil {
 		return err
 	}
 	defer j.out.cleanup()
+	// The product is checked stage by stage against D, so that it cannot
+	// overflow: every factor is at least 2.
+	want := j.spec.Chain.Decimation()
 	d := 1
-	for _, p := range plan {
-		d *= p.Factor
-		if d > 1<<40 {
-			break
+	for i, p := range plan {
+		if d > want/p.Factor {
+			return usagef("--chain %q: its factors multiply to more than input_rate/output_rate = %d (the first %d of its %d stages already do)", clip(notation), want, i+1, len(plan))
 		}
+		d *= p.Factor
 	}
-	if want := j.spec.Chain.Decimation(); d != want {
-		return usagef("--chain %q: its factors multiply to %d, but input_rate/output_rate = %d", notation, d, want)
+	if d != want {
+		return usagef("--chain %q: its factors multiply to %d, but input_rate/output_rate = %d", clip(notation), d, want)
 	}
 	set := j.spec.SearchSettings()
 	ch, err := chain.Design(j.spec.Chain, plan, set.Chain)
 	if err != nil {
 		var pe *chain.PlanError
 		if errors.As(err, &pe) {
-			return usagef("--chain %q: %s", notation, specfile.InFileTerms(pe.Rule))
+			where := ""
+			if pe.Stage >= 0 && pe.Stage < len(plan) {
+				where = fmt.Sprintf("stage %d (%s): ", pe.Stage+1, chain.Notation(plan[pe.Stage:pe.Stage+1]))
+			}
+			return usagef("--chain %q: %s%s", clip(notation), where, specfile.InFileTerms(pe.Rule))
 		}
-		return fmt.Errorf("check: %v", err)
+		return fmt.Errorf("check: %s", specfile.InFileTerms(err.Error()))
 	}
 	if c.Context.Err() != nil {
-		return fmt.Errorf("interrupted; %s left as it was", j.out.dir)
+		return fmt.Errorf("interrupted; %s left as it was", clip(j.out.dir))
 	}
 	fig, err := cost.Evaluate(j.spec.Chain, ch, set.Cost)
 	if err != nil {
-		return fmt.Errorf("check: %v", err)
+		return fmt.Errorf("check: %s", specfile.InFileTerms(err.Error()))
 	}
 	cand := optimize.Candidate{Plan: plan, Chain: ch, Figures: fig, MarginDB: fig.Analysis.AliasRejectionDB - j.spec.Chain.RejectionDB}
 	res := &optimize.Result{
@@ -295,7 +318,7 @@ func (j *job) finish(command string, res *optimize.Result) error {
 		}
 	}
 	if j.c.Context.Err() != nil {
-		return fmt.Errorf("interrupted; %s left as it was", j.out.dir)
+		return fmt.Errorf("interrupted; %s left as it was", clip(j.out.dir))
 	}
 	if err := j.out.write(files); err != nil {
 		return err

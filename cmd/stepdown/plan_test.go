@@ -15,7 +15,10 @@ func TestEmptyFrontReason(t *testing.T) {
 		Dropped: map[string]int{"fir stage over the tap limit": 3, "cic rejection below target": 2},
 	}
 	got := emptyFront(res, "out").Error()
-	want := "no chain meets the spec: No chain was designed within the design budget (MaxDesigns, MaxWork) at a tap limit of 511; " +
+	// The optimiser's setting names are said in the spec's and the flags' terms.
+	want := "no chain meets the spec: No chain was designed within the design budget (a fixed amount of design work per run: " +
+		"lower search.max_stages or --max-stages, narrow search.kinds or search.cic_orders, or relax ripple or rejection, " +
+		"so that fewer or shorter filters are designed) at a tap limit of 511; " +
 		"12 candidates were left undesigned (dropped: cic rejection below target: 2, fir stage over the tap limit: 3); out left as it was"
 	if got != want {
 		t.Errorf("got  %q\nwant %q", got, want)

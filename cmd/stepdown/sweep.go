@@ -5,7 +5,6 @@ import (
 	"context"
 	"fmt"
 	"io"
-	"os"
 	"strings"
 
 	"github.com/urfave/cli/v2"
@@ -14,6 +13,7 @@ import (
 	"stepdown/cmd/stepdown/internal/report"
 	"stepdown/cmd/stepdown/internal/specfile"
 	"stepdown/cmd/stepdown/internal/sweep"
+	"stepdown/cmd/stepdown/internal/units"
 	"stepdown/optimize"
 )
 
@@ -49,20 +49,14 @@ func runSweep(c *cli.Context) error {
 	}
 	v, err := sweep.ParseVary(c.String("vary"))
 	if err != nil {
-		return usageError{err}
+		return usagef("%s", units.Clip(err.Error(), 4*units.MaxEcho))
 	}
 	if err := checkSearchFlags(c); err != nil {
 		return err
 	}
-	base, source, err := loadSpec(c)
+	base, source, text, err := loadSpec(c)
 	if err != nil {
 		return err
-	}
-	text := []byte(specfile.ExampleText)
-	if c.Args().Present() {
-		if text, err = os.ReadFile(c.Args().First()); err != nil {
-			return usagef("%s: spec file cannot be read: %v", c.Args().First(), unwrapPath(err))
-		}
 	}
 	out, err := prepareOut(c.String("out"))
 	if err != nil {
@@ -97,7 +91,7 @@ func runSweep(c *cli.Context) error {
 	rs := sweep.Run(ctx, st)
 	prog.finish()
 	if sigCtx.Err() != nil {
-		return fmt.Errorf("interrupted; %s left as it was", out.dir)
+		return fmt.Errorf("interrupted; %s left as it was", clip(out.dir))
 	}
 	nChain, nInvalid := 0, 0
 	for _, r := range rs {
@@ -109,7 +103,7 @@ func runSweep(c *cli.Context) error {
 		}
 	}
 	if nInvalid == len(rs) {
-		return usagef("--vary %s=%s: every value makes the spec invalid (first, %s: %s)", v.Key.Name, v.Text, v.Key.Format(rs[0].Value), rs[0].Detail)
+		return usagef("--vary %s=%s: every value makes the spec invalid (first, %s: %s)", v.Key.Name, v.Text, v.Key.Format(rs[0].Value), specfile.InFileTerms(rs[0].Detail))
 	}
 	if nChain == 0 {
 		first := rs[0]
@@ -119,7 +113,7 @@ func runSweep(c *cli.Context) error {
 				break
 			}
 		}
-		return fmt.Errorf("--vary %s=%s: no value gives a chain (%s: %s); %s left as it was", v.Key.Name, v.Text, v.Key.Format(first.Value), first.Detail, out.dir)
+		return fmt.Errorf("--vary %s=%s: no value gives a chain (%s: %s); %s left as it was", v.Key.Name, v.Text, v.Key.Format(first.Value), specfile.InFileTerms(first.Detail), clip(out.dir))
 	}
 
 	files, doc, err := sweepFiles(source, base, v, rs, c.Bool("html"))
@@ -127,7 +121,7 @@ func runSweep(c *cli.Context) error {
 		return err
 	}
 	if c.Context.Err() != nil {
-		return fmt.Errorf("interrupted; %s left as it was", out.dir)
+		return fmt.Errorf("interrupted; %s left as it was", clip(out.dir))
 	}
 	if err := out.write(files); err != nil {
 		return err

@@ -1,0 +1,162 @@
+package main
+
+import (
+	"errors"
+	"os"
+	"path/filepath"
+	"strings"
+	"testing"
+
+	"stepdown/cmd/stepdown/internal/report"
+)
+
+// runOut is one run's output step: prepare, write one report.json, commit.
+func runOut(t *testing.T, dir, content string) error {
+	t.Helper()
+	o, err := prepareOut(dir)
+	if err != nil {
+		return err
+	}
+	defer o.cleanup()
+	if err := o.write([]report.File{{Name: "report.json", Data: []byte(content)}}); err != nil {
+		return err
+	}
+	return o.commit()
+}
+
+// litter lists what a run left beside the output folder.
+func litter(t *testing.T, parent string) []string {
+	t.Helper()
+	entries, err := os.ReadDir(parent)
+	must(t, err)
+	var out []string
+	for _, e := range entries {
+		if strings.HasPrefix(e.Name(), ".stepdown-") {
+			out = append(out, e.Name())
+		}
+	}
+	return out
+}
+
+func readString(t *testing.T, p string) string {
+	t.Helper()
+	b, err := os.ReadFile(p)
+	must(t, err)
+	return string(b)
+}
+
+// A folder name as long as the file system allows (255 bytes on Linux's
+// common file systems, NAME_MAX) can be written and then replaced: the
+// temporary names do not grow with it.
+func TestOutLongName(t *testing.T) {
+	parent := t.TempDir()
+	for _, n := range []int{238, 250, 255} {
+		dir := filepath.Join(parent, strings.Repeat("d", n))
+		for run, content := range []string{"first", "second"} {
+			if err := runOut(t, dir, content); err != nil {
+				t.Fatalf("name of %d bytes, run %d: %v", n, run+1, err)
+			}
+			if got := readString(t, filepath.Join(dir, "report.json")); got != content {
+				t.Errorf("name of %d bytes, run %d: report.json = %q", n, run+1, got)
+			}
+		}
+	}
+	if l := litter(t, parent); len(l) > 0 {
+		t.Errorf("left behind: %v", l)
+	}
+}
+
+// A previous output that cannot be removed once the new one is in place is
+// an error naming what is left, never a silent success.
+func TestOutOldNotRemoved(t *testing.T) {
+	parent := t.TempDir()
+	dir := filepath.Join(parent, "out")
+	must(t, runOut(t, dir, "first"))
+	defer func(f func(string) error) { removeAll = f }(removeAll)
+	removeAll = func(p string) error {
+		if strings.Contains(filepath.Base(p), oldPrefix) {
+			return &os.PathError{Op: "unlinkat", Path: p, Err: os.ErrPermission}
+		}
+		return os.RemoveAll(p)
+	}
+	err := runOut(t, dir, "second")
+	if err == nil || !strings.Contains(err.Error(), "previous one could not be removed") || !strings.Contains(err.Error(), oldPrefix) {
+		t.Fatalf("commit = %v, want an error naming the folder left behind", err)
+	}
+	if got := readString(t, filepath.Join(dir, "report.json")); got != "second" {
+		t.Errorf("report.json = %q, want the new output in place", got)
+	}
+}
+
+// A previous output with a folder that cannot be written in is refused
+// before the run, since it could not be removed after it. (Root can write
+// anywhere, so the check is skipped there.)
+func TestOutOldNotWritable(t *testing.T) {
+	if os.Geteuid() == 0 {
+		t.Skip("root can write in any folder")
+	}
+	parent := t.TempDir()
+	dir := filepath.Join(parent, "out")
+	must(t, runOut(t, dir, "first"))
+	sub := filepath.Join(dir, "coefficients")
+	must(t, os.Mkdir(sub, 0o755))
+	must(t, os.WriteFile(filepath.Join(sub, "a.csv"), nil, 0o644))
+	must(t, os.Chmod(sub, 0o555))
+	defer os.Chmod(sub, 0o755)
+	_, err := prepareOut(dir)
+	if err == nil || !strings.Contains(err.Error(), "could not be removed") {
+		t.Fatalf("prepareOut = %v, want the previous output refused", err)
+	}
+}
+
+// Two runs creating the same new folder: the second to finish says so in a
+// sentence, writes nothing and leaves nothing.
+func TestOutRace(t *testing.T) {
+	parent := t.TempDir()
+	dir := filepath.Join(parent, "out")
+	a, err := prepareOut(dir)
+	must(t, err)
+	b, err := prepareOut(dir)
+	must(t, err)
+	defer a.cleanup()
+	defer b.cleanup()
+	must(t, a.write([]report.File{{Name: "report.json", Data: []byte("a")}}))
+	must(t, b.write([]report.File{{Name: "report.json", Data: []byte("b")}}))
+	must(t, a.commit())
+	err = b.commit()
+	if err == nil || !strings.Contains(err.Error(), "another run created it first; nothing was written") {
+		t.Fatalf("second commit = %v", err)
+	}
+	b.cleanup()
+	if got := readString(t, filepath.Join(dir, "report.json")); got != "a" {
+		t.Errorf("report.json = %q, want the first run's", got)
+	}
+	if l := litter(t, parent); len(l) > 0 {
+		t.Errorf("left behind: %v", l)
+	}
+}
+
+// A failure while the new folder is moved into place puts the previous
+// output back, untouched.
+func TestOutCommitFailureRestores(t *testing.T) {
+	parent := t.TempDir()
+	dir := filepath.Join(parent, "out")
+	must(t, runOut(t, dir, "first"))
+	defer func(f func(string, string) error) { rename = f }(rename)
+	rename = func(from, to string) error {
+		if strings.HasPrefix(filepath.Base(from), tmpPrefix) {
+			return &os.LinkError{Op: "rename", Old: from, New: to, Err: errors.New("injected failure")}
+		}
+		return os.Rename(from, to)
+	}
+	err := runOut(t, dir, "second")
+	if err == nil || !strings.Contains(err.Error(), "cannot replace it: injected failure") {
+		t.Fatalf("commit = %v", err)
+	}
+	if got := readString(t, filepath.Join(dir, "report.json")); got != "first" {
+		t.Errorf("report.json = %q, want the previous output", got)
+	}
+	if l := litter(t, parent); len(l) > 0 {
+		t.Errorf("left behind: %v", l)
+	}
+}
