@@ -17,7 +17,10 @@
 // Spec.Normalize fills defaults (Protected = Passband, Stopband = FK - fa,
 // InputBits 16, OutputBits 24, CoefBits 0 = floating) and refuses, with a
 // *SpecError naming field, value and rule: rates that are not finite and
-// positive; a ratio F0/FK that is not an integer within 1e-9 (the error gives
+// positive, an InputRate above MaxRateHz (1e30 Hz) or an OutputRate below
+// MinRateHz (1e-30 Hz), where float64 arithmetic no longer carries every
+// figure (2 pi f overflows near 1e308 Hz; the cascade analysis went wrong
+// beyond about 1e60 Hz and below 1e-60 Hz); a ratio F0/FK that is not an integer within 1e-9 (the error gives
 // the two nearest integer ratios and their output rates) or is below 2;
 // fp outside (0, FK/2); fa outside [fp, FK/2]; fs outside (fp, FK - fa];
 // ripple not above 0; rejection outside (0, 150] dB; word lengths outside

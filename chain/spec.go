@@ -29,6 +29,14 @@ const (
 	// MaxRejectionDB bounds the rejection target: beyond it float64
 	// coefficients and the design engine's grid stop being meaningful.
 	MaxRejectionDB = 150
+	// MaxRateHz and MinRateHz bound the input and the output rate. Every
+	// result depends on the rates only through their ratios, but float64
+	// arithmetic does not: products such as 2 pi f overflow near 1e308 Hz,
+	// and the certified cascade analysis measured figures off by several
+	// dB (optimistic) from about 1e60 Hz up and 1e-60 Hz down. 1e-30 to
+	// 1e30 Hz leaves a wide margin on both sides of every rate in use.
+	MaxRateHz = 1e30
+	MinRateHz = 1e-30
 )
 
 // ratioTol is the relative tolerance within which InputRate/OutputRate counts
@@ -61,6 +69,12 @@ func (s Spec) Normalize() (Spec, error) {
 	}
 	if !finite(s.OutputRate) || s.OutputRate <= 0 {
 		return bad("OutputRate", s.OutputRate, "must be a finite rate above 0 Hz")
+	}
+	if s.InputRate > MaxRateHz {
+		return bad("InputRate", s.InputRate, "must be at most %s Hz (rates from %s to %s Hz are supported)", fmtNum(MaxRateHz), fmtNum(MinRateHz), fmtNum(MaxRateHz))
+	}
+	if s.OutputRate < MinRateHz {
+		return bad("OutputRate", s.OutputRate, "must be at least %s Hz (rates from %s to %s Hz are supported)", fmtNum(MinRateHz), fmtNum(MinRateHz), fmtNum(MaxRateHz))
 	}
 	if s.OutputRate >= s.InputRate {
 		return bad("OutputRate", s.OutputRate, "must be below InputRate = %s Hz (the chain decimates)", fmtNum(s.InputRate))

@@ -81,6 +81,36 @@ func TestRippleConversion(t *testing.T) {
 
 // FuzzNormalize: any spec either normalises to one that keeps every rule of
 // DESIGN §3, or gives a *SpecError; never a panic.
+// Rates beyond what float64 arithmetic carries through every figure are
+// refused naming the field and the bound (rates near 1e308 Hz used to panic
+// in a grid sized from them, or give a non-finite bit-true SNR).
+func TestNormalizeRateBounds(t *testing.T) {
+	for _, tc := range []struct {
+		s     Spec
+		field string
+		bound string
+	}{
+		{Spec{InputRate: 1e308, OutputRate: 1e306, Passband: 3e305, RippleDB: 0.2, RejectionDB: 90}, "InputRate", "at most 1e+30 Hz"},
+		{Spec{InputRate: 1.7e308, OutputRate: 1.7e306, Passband: 5e305, RippleDB: 0.2, RejectionDB: 90}, "InputRate", "at most 1e+30 Hz"},
+		{Spec{InputRate: 1e-29, OutputRate: 1e-31, Passband: 3e-32, RippleDB: 0.2, RejectionDB: 90}, "OutputRate", "at least 1e-30 Hz"},
+	} {
+		_, err := tc.s.Normalize()
+		var se *SpecError
+		if !errors.As(err, &se) || se.Field != tc.field || !strings.Contains(se.Rule, tc.bound) {
+			t.Errorf("%+v: err = %v, want a SpecError on %s saying %q", tc.s, err, tc.field, tc.bound)
+		}
+	}
+	// The bounds themselves are accepted.
+	for _, s := range []Spec{
+		{InputRate: 1e30, OutputRate: 1e28, Passband: 3e27, RippleDB: 0.2, RejectionDB: 90},
+		{InputRate: 1e-28, OutputRate: 1e-30, Passband: 3e-31, RippleDB: 0.2, RejectionDB: 90},
+	} {
+		if _, err := s.Normalize(); err != nil {
+			t.Errorf("%+v: %v", s, err)
+		}
+	}
+}
+
 func FuzzNormalize(f *testing.F) {
 	f.Add(64e6, 250e3, 100e3, 0.0, 0.0, 0.1, 90.0, 0, 0, 0)
 	f.Add(10e3, 100.0, 45.0, 50.0, 50.0, 0.17, 60.0, 12, 16, 18)

@@ -1,6 +1,7 @@
 package fixed
 
 import (
+	"context"
 	"fmt"
 	"math"
 	"math/rand/v2"
@@ -111,9 +112,10 @@ type BitTrueResult struct {
 	Skip         int // output samples skipped for transients
 }
 
-// maxInputSamples bounds a bit-true run's memory (about 16 bytes a sample);
-// with Signal.Samples left zero the window shrinks (to no fewer than 256
-// output samples) to keep the run within autoInputSamples.
+// maxInputSamples bounds a bit-true run's length, and so its time (the run
+// streams: its memory does not grow with it); with Signal.Samples left zero
+// the window shrinks (to no fewer than 256 output samples) to keep the run
+// within autoInputSamples.
 const (
 	maxInputSamples  = 1 << 25
 	autoInputSamples = 1 << 22
@@ -127,7 +129,19 @@ const (
 // points StageWidths.Points state. The float chain has the same structure
 // and gains (including the CIC's (RM)^N / 2^ceil(N log2 RM)) but no rounding.
 // A complex chain runs one of its two identical real paths.
+//
+// The run streams: the test signal is generated and both chains run a block
+// of blockSamples input samples at a time, and only the filters' state and
+// the measured output window are kept, so its memory does not grow with
+// the decimation or the window.
 func BitTrue(c Cascade, w *Widths, sig Signal) (BitTrueResult, error) {
+	return BitTrueContext(context.Background(), c, w, sig)
+}
+
+// BitTrueContext is BitTrue stopped by ctx, checked between blocks (a few
+// milliseconds apart): once ctx is done it returns an error wrapping
+// ctx.Err().
+func BitTrueContext(ctx context.Context, c Cascade, w *Widths, sig Signal) (BitTrueResult, error) {
 	if w == nil || len(w.Stages) != len(c.Stages) {
 		return BitTrueResult{}, fmt.Errorf("fixed: BitTrue needs the widths Plan returned for this cascade")
 	}
@@ -210,21 +224,23 @@ func BitTrue(c Cascade, w *Widths, sig Signal) (BitTrueResult, error) {
 	rng := rand.New(rand.NewPCG(sig.Seed, 0x5eed))
 
 	// Run 1: the wanted tones plus noise.
-	x := make([]float64, nin)
 	var nus []float64
+	var tones []toneGen
 	for _, t := range sig.Tones {
 		m := math.Round(t.Freq / fk * float64(nm))
 		nus = append(nus, m/float64(nm))
 		res.Tones = append(res.Tones, Tone{Freq: m * fk / float64(nm), Level: t.Level})
-		addTone(x, m*fk/float64(nm), math.Pow(10, t.Level/20), 2*math.Pi*rng.Float64(), c.InputRate)
+		tones = append(tones, toneGen{m * fk / float64(nm), math.Pow(10, t.Level/20), 2 * math.Pi * rng.Float64()})
 	}
-	addNoise(x, noise, rng)
-	yi, yf, inErr, clipped := runBoth(c, w, x)
+	yi, yf, inPow, inErr, clipped, err := stream(ctx, c, w, nin, skip, nm, signalGen(tones, noise, rng, c.InputRate))
+	if err != nil {
+		return BitTrueResult{}, err
+	}
 	res.Clipped = clipped
-	res.InputSNRDB = ratioDB(power(x), inErr)
-	ref, e := yf[skip:skip+nm], make([]float64, nm)
+	res.InputSNRDB = ratioDB(inPow, inErr)
+	ref, e := yf, make([]float64, nm)
 	for n := range e {
-		e[n] = yi[skip+n] - ref[n]
+		e[n] = yi[n] - ref[n]
 	}
 	res.MatchDB = ratioDB(power(ref), power(e))
 	var mean float64
@@ -238,7 +254,7 @@ func BitTrue(c Cascade, w *Widths, sig Signal) (BitTrueResult, error) {
 	res.OutputOffset = math.Ldexp(mean, w.OutputBits-1)
 	for _, nu := range nus {
 		removeTone(e, nu)
-		a, _ := project(yi[skip:skip+nm], nu)
+		a, _ := project(yi, nu)
 		if nu == 0 || nu == 0.5 {
 			a /= 2 // project's 2/len is for a sinusoid between DC and Nyquist
 		}
@@ -286,12 +302,13 @@ func BitTrue(c Cascade, w *Widths, sig Signal) (BitTrueResult, error) {
 		}
 		res.AliasHz, res.AliasOutHz, res.AliasSamples = g, fout, win
 		res.AliasResponseDB = posDB(q.Gain(g) / q.Gain(0))
-		xa := make([]float64, (skip+win)*d)
-		addTone(xa, g, a, 2*math.Pi*rng.Float64(), c.InputRate)
-		addNoise(xa, noise, rng)
-		yi, yf, _, _ = runBoth(c, w, xa)
-		ai, resid := project(yi[skip:skip+win], fout/fk)
-		af, _ := project(yf[skip:skip+win], fout/fk)
+		tone := []toneGen{{g, a, 2 * math.Pi * rng.Float64()}}
+		yi, yf, _, _, _, err = stream(ctx, c, w, (skip+win)*d, skip, win, signalGen(tone, noise, rng, c.InputRate))
+		if err != nil {
+			return BitTrueResult{}, err
+		}
+		ai, resid := project(yi, fout/fk)
+		af, _ := project(yf, fout/fk)
 		res.AliasRejectionDB = posDB(ai / (a * h0q))
 		res.AliasFloatRunDB = posDB(af / (a * h0f))
 		res.AliasNoiseDB = posDB(2 * resid / math.Sqrt(float64(win)) / (a * h0q))
@@ -381,6 +398,29 @@ func removeTone(e []float64, nu float64) {
 	}
 }
 
+// toneGen is one tone of a generated test signal: frequency in Hz,
+// amplitude, phase.
+type toneGen struct{ f, a, phase float64 }
+
+// signalGen returns the generator of stream for the sum of tones plus white
+// Gaussian noise of RMS sigma drawn from rng: sample n is the tones' sum in
+// order plus the noise, as addTone and addNoise would make it on the whole
+// signal (the same samples, bit for bit, and the same draws from rng).
+func signalGen(tones []toneGen, sigma float64, rng *rand.Rand, rate float64) func(x []float64, n0 int) {
+	return func(x []float64, n0 int) {
+		for i := range x {
+			x[i] = 0
+		}
+		for _, t := range tones {
+			w := 2 * math.Pi * t.f / rate
+			for i := range x {
+				x[i] += t.a * math.Cos(w*float64(n0+i)+t.phase)
+			}
+		}
+		addNoise(x, sigma, rng)
+	}
+}
+
 func addTone(x []float64, f, a, phase, rate float64) {
 	w := 2 * math.Pi * f / rate
 	for n := range x {
@@ -426,36 +466,124 @@ func stageLen(st Stage) int {
 	return len(st.Taps)
 }
 
-// runBoth runs the integer and the float chain on x (fractions of full
-// scale) and returns both outputs in fractions of full scale, the mean square
-// error of the quantised input and the number of clipped input samples.
-func runBoth(c Cascade, w *Widths, x []float64) (yi, yf []float64, inErr float64, clipped int) {
-	b := w.InputBits
-	xi := make([]int64, len(x))
-	clipped = ADC(xi, x, b)
-	for n, q := range xi {
-		e := math.Ldexp(float64(q), -(b-1)) - x[n]
-		inErr += e * e
-	}
-	inErr /= float64(len(x))
-	cur := xi
-	fcur := x
+// blockSamples is the number of input samples generated and run at a time:
+// the bit-true run keeps only this block, the filters' state and the output
+// window, whatever the run's length.
+const blockSamples = 1 << 15
+
+// chainState is the integer and the float chain with their filters' state,
+// run a block at a time.
+type chainState struct {
+	bits    int
+	ints    []intFilter
+	floats  []*firFloatState
+	ib      [][]int64   // per stage, its output block
+	fb      [][]float64 // likewise for the float chain
+	obits   int         // output word
+	inErr   float64     // sum of squared input quantisation errors
+	inPow   float64     // sum of squared input samples
+	clipped int
+	n       int // input samples run
+	xi      []int64
+}
+
+// intFilter is one stage of the integer chain.
+type intFilter interface {
+	// run appends to out the outputs of the input block x and returns out.
+	run(x, out []int64) []int64
+}
+
+func newChainState(c Cascade, w *Widths) *chainState {
+	cs := &chainState{bits: w.InputBits, obits: w.Stages[len(w.Stages)-1].OutputBits}
 	for i, st := range c.Stages {
 		sw := &w.Stages[i]
 		if st.CIC {
-			cur = cicInt(cur, sw.Pruning)
-			fcur = firFloat(fcur, cicTaps(st.N, st.R*st.M, math.Ldexp(1, -(sw.Pruning.FullBits-sw.Pruning.InputBits))), st.R)
+			cs.ints = append(cs.ints, newCICState(sw.Pruning))
+			cs.floats = append(cs.floats, newFIRFloat(cicTaps(st.N, st.R*st.M, math.Ldexp(1, -(sw.Pruning.FullBits-sw.Pruning.InputBits))), st.R))
 		} else {
-			cur = firInt(cur, sw.Coefficients.Ints, st.R, sw.OutputShift, sw.OutputBits)
-			fcur = firFloat(fcur, sw.floatTaps(st), st.R)
+			cs.ints = append(cs.ints, newFIRInt(sw.Coefficients.Ints, st.R, sw.OutputShift, sw.OutputBits))
+			cs.floats = append(cs.floats, newFIRFloat(sw.floatTaps(st), st.R))
 		}
 	}
-	ob := w.Stages[len(w.Stages)-1].OutputBits
-	yi = make([]float64, len(cur))
-	for n, v := range cur {
-		yi[n] = math.Ldexp(float64(v), -(ob - 1))
+	cs.ib = make([][]int64, len(c.Stages))
+	cs.fb = make([][]float64, len(c.Stages))
+	return cs
+}
+
+// run passes one input block x (fractions of full scale) through both
+// chains and returns the outputs it completes, in fractions of full scale
+// (valid until the next call).
+func (cs *chainState) run(x []float64) (yi, yf []float64) {
+	if cap(cs.xi) < len(x) {
+		cs.xi = make([]int64, len(x))
 	}
-	return yi, fcur, inErr, clipped
+	xi := cs.xi[:len(x)]
+	cs.clipped += ADC(xi, x, cs.bits)
+	for n, q := range xi {
+		e := math.Ldexp(float64(q), -(cs.bits-1)) - x[n]
+		cs.inErr += e * e
+		cs.inPow += x[n] * x[n]
+	}
+	cs.n += len(x)
+	cur, fcur := xi, x
+	for i := range cs.ints {
+		cs.ib[i] = cs.ints[i].run(cur, cs.ib[i][:0])
+		cs.fb[i] = cs.floats[i].run(fcur, cs.fb[i][:0])
+		cur, fcur = cs.ib[i], cs.fb[i]
+	}
+	yi = make([]float64, 0, len(cur))
+	for _, v := range cur {
+		yi = append(yi, math.Ldexp(float64(v), -(cs.obits-1)))
+	}
+	return yi, fcur
+}
+
+// stream runs the integer and the float chain on nin input samples that gen
+// writes a block at a time (gen(x, n0) fills x with samples n0, n0+1, ...),
+// checking ctx between blocks, and returns the output samples skip to
+// skip+win of both chains in fractions of full scale, the input's mean
+// square and the mean square error of the quantised input, and the number of
+// clipped input samples. Only a block, the filters' state and the window
+// are held.
+func stream(ctx context.Context, c Cascade, w *Widths, nin, skip, win int, gen func(x []float64, n0 int)) (yi, yf []float64, inPow, inErr float64, clipped int, err error) {
+	cs := newChainState(c, w)
+	x := make([]float64, min(blockSamples, nin))
+	yi, yf = make([]float64, 0, win), make([]float64, 0, win)
+	out := 0 // output samples produced so far
+	for n0 := 0; n0 < nin; n0 += len(x) {
+		if err := ctx.Err(); err != nil {
+			return nil, nil, 0, 0, 0, fmt.Errorf("fixed: bit-true run stopped: %w", err)
+		}
+		blk := x[:min(len(x), nin-n0)]
+		gen(blk, n0)
+		bi, bf := cs.run(blk)
+		for k := range bi {
+			if j := out + k; j >= skip && j < skip+win {
+				yi, yf = append(yi, bi[k]), append(yf, bf[k])
+			}
+		}
+		out += len(bi)
+	}
+	return yi, yf, cs.inPow / float64(nin), cs.inErr / float64(nin), cs.clipped, nil
+}
+
+// runBoth runs the integer and the float chain on the whole of x (fractions
+// of full scale) and returns both outputs in fractions of full scale, the
+// mean square error of the quantised input and the number of clipped input
+// samples (stream over a signal held in memory, for tests).
+func runBoth(c Cascade, w *Widths, x []float64) (yi, yf []float64, inErr float64, clipped int) {
+	d := 1
+	for _, st := range c.Stages {
+		d *= st.R
+	}
+	nout := len(x)
+	for _, st := range c.Stages {
+		nout = (nout + st.R - 1) / st.R
+	}
+	yi, yf, _, inErr, clipped, _ = stream(context.Background(), c, w, len(x), 0, nout, func(b []float64, n0 int) {
+		copy(b, x[n0:])
+	})
+	return yi, yf, inErr, clipped
 }
 
 // ADC quantises x (fractions of full scale) to bits-bit two's-complement
@@ -496,24 +624,36 @@ func shiftTo(v int64, from, to int) int64 {
 	return v << uint(from-to)
 }
 
-// cicInt runs a pruned CIC decimator: register j holds its value in units of
-// 2^Dropped[j] and wraps at RegisterBits[j]; the output is taken at input
-// sample indices 0, R, 2R, ...
-func cicInt(x []int64, p *CICPruning) []int64 {
-	n, r, m := p.N, p.R, p.M
-	integ := make([]int64, n)
-	combIn := make([][]int64, n) // last M inputs of each comb
-	for j := range combIn {
-		combIn[j] = make([]int64, m)
+// cicState is a pruned CIC decimator run a block at a time: register j
+// holds its value in units of 2^Dropped[j] and wraps at RegisterBits[j]; the
+// output is taken at input sample indices 0, R, 2R, ...
+type cicState struct {
+	p      *CICPruning
+	integ  []int64
+	combIn [][]int64 // last M inputs of each comb
+	pos    int
+	k      int // input samples seen
+}
+
+func newCICState(p *CICPruning) *cicState {
+	s := &cicState{p: p, integ: make([]int64, p.N), combIn: make([][]int64, p.N)}
+	for j := range s.combIn {
+		s.combIn[j] = make([]int64, p.M)
 	}
-	out := make([]int64, (len(x)+r-1)/r)
-	pos := 0
-	for k, v := range x {
+	return s
+}
+
+func (s *cicState) run(x, out []int64) []int64 {
+	p := s.p
+	n, r, m := p.N, p.R, p.M
+	for _, v := range x {
+		k := s.k
+		s.k++
 		unit := 0
 		for j := 0; j < n; j++ {
 			in := shiftTo(v, unit, p.Dropped[j])
-			integ[j] = wrap(integ[j]+in, p.RegisterBits[j])
-			v, unit = integ[j], p.Dropped[j]
+			s.integ[j] = wrap(s.integ[j]+in, p.RegisterBits[j])
+			v, unit = s.integ[j], p.Dropped[j]
 		}
 		if k%r != 0 {
 			continue
@@ -521,49 +661,86 @@ func cicInt(x []int64, p *CICPruning) []int64 {
 		for j := 0; j < n; j++ {
 			d := p.Dropped[n+j]
 			in := wrap(shiftTo(v, unit, d), p.RegisterBits[n+j])
-			old := combIn[j][pos]
-			combIn[j][pos] = in
+			old := s.combIn[j][s.pos]
+			s.combIn[j][s.pos] = in
 			v, unit = wrap(in-old, p.RegisterBits[n+j]), d
 		}
-		pos = (pos + 1) % m
-		out[k/r] = wrap(shiftTo(v, unit, p.Dropped[2*n]), p.OutputBits)
+		s.pos = (s.pos + 1) % m
+		out = append(out, wrap(shiftTo(v, unit, p.Dropped[2*n]), p.OutputBits))
 	}
 	return out
 }
 
-// firInt runs a decimating FIR with exact products and sum, then rounds half
-// up at bit shift and saturates to ob bits. y[m] = sum_k h[k] x[mR-k].
-func firInt(x, h []int64, r, shift, ob int) []int64 {
-	out := make([]int64, (len(x)+r-1)/r)
+// cicInt runs a pruned CIC decimator on the whole of x.
+func cicInt(x []int64, p *CICPruning) []int64 {
+	return newCICState(p).run(x, make([]int64, 0, (len(x)+p.R-1)/p.R))
+}
+
+// firIntState is a decimating FIR with exact products and sum, rounded half
+// up at bit shift and saturated to ob bits, run a block at a time:
+// y[m] = sum_k h[k] x[mR-k] over k <= mR.
+type firIntState struct {
+	h        []int64
+	r, shift int
+	lo, hi   int64
+	buf      []int64 // the last len(h)-1 inputs, then the block
+	n        int     // input samples seen before the block
+}
+
+func newFIRInt(h []int64, r, shift, ob int) *firIntState {
 	hi := int64(1)<<(ob-1) - 1
-	lo := -hi - 1
-	for mi := range out {
-		n := mi * r
+	return &firIntState{h: h, r: r, shift: shift, lo: -hi - 1, hi: hi, buf: make([]int64, len(h)-1)}
+}
+
+func (s *firIntState) run(x, out []int64) []int64 {
+	l := len(s.h) - 1
+	s.buf = append(s.buf[:l], x...)
+	// The first output index at or after s.n.
+	for g := (s.n + s.r - 1) / s.r * s.r; g < s.n+len(x); g += s.r {
+		j := l + g - s.n // g's place in buf
 		var acc int64
-		for k := 0; k < len(h) && k <= n; k++ {
-			acc += h[k] * x[n-k]
+		for k := 0; k <= l && k <= g; k++ {
+			acc += s.h[k] * s.buf[j-k]
 		}
 		switch {
-		case shift > 0:
-			acc = (acc + int64(1)<<(shift-1)) >> uint(shift)
-		case shift < 0:
-			acc <<= uint(-shift)
+		case s.shift > 0:
+			acc = (acc + int64(1)<<(s.shift-1)) >> uint(s.shift)
+		case s.shift < 0:
+			acc <<= uint(-s.shift)
 		}
-		out[mi] = max(lo, min(hi, acc))
+		out = append(out, max(s.lo, min(s.hi, acc)))
 	}
+	s.n += len(x)
+	copy(s.buf, s.buf[len(s.buf)-l:])
 	return out
 }
 
-func firFloat(x, h []float64, r int) []float64 {
-	out := make([]float64, (len(x)+r-1)/r)
-	for mi := range out {
-		n := mi * r
+// firFloatState is firIntState's float chain: y[m] = sum_k h[k] x[mR-k]
+// over k <= mR, in float64.
+type firFloatState struct {
+	h   []float64
+	r   int
+	buf []float64
+	n   int
+}
+
+func newFIRFloat(h []float64, r int) *firFloatState {
+	return &firFloatState{h: h, r: r, buf: make([]float64, len(h)-1)}
+}
+
+func (s *firFloatState) run(x, out []float64) []float64 {
+	l := len(s.h) - 1
+	s.buf = append(s.buf[:l], x...)
+	for g := (s.n + s.r - 1) / s.r * s.r; g < s.n+len(x); g += s.r {
+		j := l + g - s.n
 		var acc float64
-		for k := 0; k < len(h) && k <= n; k++ {
-			acc += h[k] * x[n-k]
+		for k := 0; k <= l && k <= g; k++ {
+			acc += s.h[k] * s.buf[j-k]
 		}
-		out[mi] = acc
+		out = append(out, acc)
 	}
+	s.n += len(x)
+	copy(s.buf, s.buf[len(s.buf)-l:])
 	return out
 }
 

@@ -107,6 +107,21 @@
 // response, with a flag saying whether the quantisation noise in that bin is
 // at least 20 dB below the alias.
 //
+// The run streams: the test signal is generated and both chains run a
+// block of 2^15 input samples at a time, keeping only the filters' state
+// and the measured output window, so its memory (a few MB) does not grow
+// with the decimation or the window (it held the whole signal before: 277
+// MB for one chain at D = 65536). The run's length, and so its time, is
+// bounded at 2^25 input samples (2^22 with the default window, which
+// shrinks to as few as 256 output samples to stay within it).
+//
+// PlanChainContext, BitTrueContext and EvaluateContext take a context,
+// checked before the plan, before every measurement of the quantised chain
+// and every bit the "auto" widths add, and between the bit-true run's
+// blocks (milliseconds apart); once it is done they return an error
+// wrapping ctx.Err(). PlanChain, BitTrue and Evaluate use
+// context.Background().
+//
 // The default test signal is scaled to the input word: the tone is at
 // -1 dBFS or lower, so that the tone plus four times the noise RMS (one LSB)
 // stays within the largest code. A word too narrow for that (2 and 3 bits)

@@ -1,6 +1,7 @@
 package fixed
 
 import (
+	"context"
 	"fmt"
 	"math"
 
@@ -116,12 +117,27 @@ type Result struct {
 // chain on its quantised coefficients; the search and the report both use
 // it.
 func PlanChain(spec chain.Spec, c *chain.Chain, s Settings) (*Widths, chain.Analysis, error) {
-	_, ws, a, err := planChain(spec, c, s)
+	return PlanChainContext(context.Background(), spec, c, s)
+}
+
+// PlanChainContext is PlanChain stopped by ctx, checked before the plan,
+// before every measurement of the quantised chain and every bit widen adds:
+// once ctx is done it returns an error wrapping ctx.Err().
+func PlanChainContext(ctx context.Context, spec chain.Spec, c *chain.Chain, s Settings) (*Widths, chain.Analysis, error) {
+	_, ws, a, err := planChain(ctx, spec, c, s)
 	return ws, a, err
 }
 
+// planStopped is the error of word-length planning stopped by its context.
+func planStopped(err error) error {
+	return fmt.Errorf("fixed: word-length planning stopped: %w", err)
+}
+
 // planChain is PlanChain that also returns the cascade it planned.
-func planChain(spec chain.Spec, c *chain.Chain, s Settings) (Cascade, *Widths, chain.Analysis, error) {
+func planChain(ctx context.Context, spec chain.Spec, c *chain.Chain, s Settings) (Cascade, *Widths, chain.Analysis, error) {
+	if err := ctx.Err(); err != nil {
+		return Cascade{}, nil, chain.Analysis{}, planStopped(err)
+	}
 	cas, w, err := FromChain(spec, c)
 	if err != nil {
 		return Cascade{}, nil, chain.Analysis{}, err
@@ -130,12 +146,15 @@ func planChain(spec chain.Spec, c *chain.Chain, s Settings) (Cascade, *Widths, c
 	if err != nil {
 		return Cascade{}, nil, chain.Analysis{}, err
 	}
+	if err := ctx.Err(); err != nil {
+		return Cascade{}, nil, chain.Analysis{}, planStopped(err)
+	}
 	a, err := chain.Analyze(QuantisedChain(c, ws), spec)
 	if err != nil {
 		return Cascade{}, nil, chain.Analysis{}, err
 	}
 	if w.CoefBits == 0 {
-		ws, a, err = widen(spec, c, cas, w, s, ws, a)
+		ws, a, err = widen(ctx, spec, c, cas, w, s, ws, a)
 		if err != nil {
 			return Cascade{}, nil, chain.Analysis{}, err
 		}
@@ -160,7 +179,7 @@ const (
 // rejection, over the passband for the ripple) and plans again, until the
 // chain meets, the stage reaches its width limit (QuantSettings.MaxBits) or
 // maxWidenSteps bits were added. It returns the last plan and its analysis.
-func widen(spec chain.Spec, c *chain.Chain, cas Cascade, w Words, s Settings, ws *Widths, a chain.Analysis) (*Widths, chain.Analysis, error) {
+func widen(ctx context.Context, spec chain.Spec, c *chain.Chain, cas Cascade, w Words, s Settings, ws *Widths, a chain.Analysis) (*Widths, chain.Analysis, error) {
 	spec, err := spec.Normalize()
 	if err != nil {
 		return nil, chain.Analysis{}, err
@@ -177,6 +196,9 @@ func widen(spec chain.Spec, c *chain.Chain, cas Cascade, w Words, s Settings, ws
 	}
 	minBits := make([]int, len(ws.Stages))
 	for step := 0; step < maxWidenSteps; step++ {
+		if err := ctx.Err(); err != nil {
+			return nil, chain.Analysis{}, planStopped(err)
+		}
 		shortRej := a.AliasRejectionDB < rejTarget
 		if !shortRej && a.PassbandRippleDB <= ripTarget {
 			break
@@ -253,7 +275,14 @@ func culprit(c *chain.Chain, cas Cascade, ws *Widths, a chain.Analysis, rejectio
 // run cannot be made, the Result carries the widths and the quantised
 // figures and BitTrueErr says why.
 func Evaluate(spec chain.Spec, c *chain.Chain, s Settings, sig Signal) (*Result, error) {
-	cas, ws, qa, err := planChain(spec, c, s)
+	return EvaluateContext(context.Background(), spec, c, s, sig)
+}
+
+// EvaluateContext is Evaluate stopped by ctx (PlanChainContext, then
+// BitTrueContext): once ctx is done it returns no Result and an error
+// wrapping ctx.Err().
+func EvaluateContext(ctx context.Context, spec chain.Spec, c *chain.Chain, s Settings, sig Signal) (*Result, error) {
+	cas, ws, qa, err := planChain(ctx, spec, c, s)
 	if err != nil {
 		return nil, err
 	}
@@ -261,7 +290,10 @@ func Evaluate(spec chain.Spec, c *chain.Chain, s Settings, sig Signal) (*Result,
 	if sig.AliasHz == 0 {
 		sig.AliasHz = qa.WorstAliasHz
 	}
-	res.BitTrue, res.BitTrueErr = BitTrue(cas, ws, sig)
+	res.BitTrue, res.BitTrueErr = BitTrueContext(ctx, cas, ws, sig)
+	if cerr := ctx.Err(); cerr != nil {
+		return nil, fmt.Errorf("fixed: bit-true run stopped: %w", cerr)
+	}
 	if res.BitTrueErr != nil {
 		res.BitTrue = BitTrueResult{}
 	}

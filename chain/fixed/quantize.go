@@ -262,7 +262,7 @@ func Deviations(h []float64, rate float64, bands []remez.Band, density int) []fl
 
 // bandGrid returns the evaluation grid of one band, edges included.
 func bandGrid(b *remez.Band, n int, rate float64, density int) []float64 {
-	ext := float64(n) * (b.Hi - b.Lo) / rate
+	ext := float64(n) * ((b.Hi - b.Lo) / rate) // n (Hi-Lo) may overflow near MaxFloat64
 	pts := int(math.Ceil(ext*float64(density))) + 9
 	fs := make([]float64, pts)
 	for j := range fs {
