@@ -144,13 +144,13 @@ type designer interface {
 }
 
 type realDesigner struct {
-	ctx  context.Context // stops the re-designs of analyze
+	ctx  context.Context // stops designs, re-designs and word-length plans
 	spec chain.Spec      // normalised
 	s    *Settings
 }
 
 func (r realDesigner) design(plan []chain.StagePlan) (Candidate, string) {
-	c, err := chain.Design(r.spec, plan, r.s.Chain)
+	c, err := chain.DesignContext(r.ctx, r.spec, plan, r.s.Chain)
 	if err != nil {
 		return Candidate{}, ReasonDesignFailed
 	}
@@ -219,7 +219,7 @@ func (r realDesigner) analyze(c Candidate) (Candidate, string) {
 		raise += -margin + redesignExtraDB
 		spec := r.spec
 		spec.RejectionDB += raise
-		ch, err := chain.Design(spec, c.Plan, r.s.Chain)
+		ch, err := chain.DesignContext(r.ctx, spec, c.Plan, r.s.Chain)
 		if err != nil {
 			break
 		}
@@ -278,7 +278,7 @@ func (r realDesigner) rounded(spec chain.Spec) bool {
 // chain is priced and measured again (cost.Evaluate). It returns the chain
 // that meets, or the floating-point chain with the reason it was dropped.
 func (r realDesigner) survive(c Candidate, spec chain.Spec) (Candidate, string) {
-	ws, qa, err := fixed.PlanChain(spec, c.Chain, r.s.Fixed)
+	ws, qa, err := fixed.PlanChainContext(r.ctx, spec, c.Chain, r.s.Fixed)
 	if err != nil {
 		return c, ReasonWordLengths
 	}
@@ -346,7 +346,7 @@ func (r realDesigner) survive(c Candidate, spec chain.Spec) (Candidate, string) 
 		tight := spec
 		tight.RejectionDB += raise
 		tight.RippleDB -= cut
-		ch, err := chain.Design(tight, c.Plan, r.s.Chain)
+		ch, err := chain.DesignContext(r.ctx, tight, c.Plan, r.s.Chain)
 		if err != nil {
 			break
 		}
@@ -354,7 +354,7 @@ func (r realDesigner) survive(c Candidate, spec chain.Spec) (Candidate, string) 
 		if err != nil {
 			break
 		}
-		_, q, err := fixed.PlanChain(spec, ch, r.s.Fixed)
+		_, q, err := fixed.PlanChainContext(r.ctx, spec, ch, r.s.Fixed)
 		if err != nil {
 			break
 		}
