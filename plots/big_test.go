@@ -5,6 +5,7 @@ import (
 	"fmt"
 	"io"
 	"math/rand/v2"
+	"runtime"
 	"testing"
 )
 
@@ -57,5 +58,29 @@ func BenchmarkFrontPNG(b *testing.B) {
 		if err := f.Render(io.Discard, "png", 0, 0); err != nil {
 			b.Fatal(err)
 		}
+	}
+}
+
+// A chain at a large ratio has D/2 alias bands (millions at D = 2^24); they
+// come in order and are merged without being copied: a million bands
+// (16 MB) allocate only the merged result.
+func TestAliasBandsNotCopied(t *testing.T) {
+	const fk, fa = 1.0, 0.4
+	bands := make([][2]float64, 1<<20)
+	for k := range bands {
+		f := float64(k + 1)
+		bands[k] = [2]float64{f*fk - fa, f*fk + fa}
+	}
+	var before, after runtime.MemStats
+	runtime.GC()
+	runtime.ReadMemStats(&before)
+	low := lowestMerged(bands)
+	m := merged(bands, 0.25, 0) // gaps of 0.2 merge: one band
+	runtime.ReadMemStats(&after)
+	if low != [2]float64{0.6, 1.4} || len(m) != 1 || m[0] != [2]float64{0.6, float64(len(bands)) + fa} {
+		t.Errorf("lowestMerged %v, merged %v: want [0.6 1.4] and one band [0.6 %v]", low, m, float64(len(bands))+fa)
+	}
+	if d := after.TotalAlloc - before.TotalAlloc; d > 1<<20 {
+		t.Errorf("merging %d sorted bands allocated %d bytes, want under 1 MB (no copy)", len(bands), d)
 	}
 }

@@ -34,7 +34,9 @@
 //   - Large inputs are reduced to what the figure can show, never sampled
 //     at random: curves keep the minimum and maximum of each of 1500
 //     columns (every peak and null survives), alias bands closer than a
-//     1500th of the axis are drawn merged, and candidates of the front's
+//     1500th of the axis are drawn merged (without copying them when they
+//     come in order, as a chain's D/2 alias bands do, millions at large
+//     ratios), and candidates of the front's
 //     cloud closer than a dot are drawn once. SVG files stay well under
 //     2 MB.
 //   - Colours come from the Okabe-Ito palette, which stays distinguishable

@@ -98,7 +98,7 @@ func Response(d ResponseData) (*Figure, error) {
 	zoom := d.ZoomHz
 	fk := d.OutputRateHz
 	if fk == 0 && len(d.AliasBands) > 0 {
-		b := merged(d.AliasBands, 0, 0)[0]
+		b := lowestMerged(d.AliasBands)
 		fk = (b[0] + b[1]) / 2
 	}
 	if zoom == 0 {
@@ -297,22 +297,53 @@ func responsePanel(d ResponseData, lo, hi, floor, top float64, logx bool, leg *p
 	return p
 }
 
+// bandLess orders bands by their low edge, then their high edge.
+func bandLess(a, b [2]float64) bool {
+	if a[0] != b[0] {
+		return a[0] < b[0]
+	}
+	return a[1] < b[1]
+}
+
+// sortedBands returns bands in order: the caller's slice itself when it is
+// already sorted (the usual case: a chain's alias bands come in order, and
+// there are D/2 of them, millions at large ratios, so they are not copied),
+// otherwise a sorted copy.
+func sortedBands(bands [][2]float64) [][2]float64 {
+	for i := 1; i < len(bands); i++ {
+		if bandLess(bands[i], bands[i-1]) {
+			s := make([][2]float64, len(bands))
+			copy(s, bands)
+			sort.Slice(s, func(i, j int) bool { return bandLess(s[i], s[j]) })
+			return s
+		}
+	}
+	return bands
+}
+
+// lowestMerged returns the first band of merged(bands, 0, 0) without
+// building the others.
+func lowestMerged(bands [][2]float64) [2]float64 {
+	s := sortedBands(bands)
+	out := s[0]
+	for _, b := range s[1:] {
+		if b[0] > out[1] {
+			break
+		}
+		out[1] = math.Max(out[1], b[1])
+	}
+	return out
+}
+
 // merged returns the bands sorted and merged, joining bands whose gap is at
 // most tol plus rel times the frequency where the gap starts (a constant
-// width on a log axis).
+// width on a log axis). It does not modify bands.
 func merged(bands [][2]float64, tol, rel float64) [][2]float64 {
 	if len(bands) == 0 {
 		return nil
 	}
-	s := make([][2]float64, len(bands))
-	copy(s, bands)
-	sort.Slice(s, func(i, j int) bool {
-		if s[i][0] != s[j][0] {
-			return s[i][0] < s[j][0]
-		}
-		return s[i][1] < s[j][1]
-	})
-	out := s[:1]
+	s := sortedBands(bands)
+	out := [][2]float64{s[0]}
 	for _, b := range s[1:] {
 		last := &out[len(out)-1]
 		if b[0] <= last[1]+tol+rel*last[1] {
