@@ -158,9 +158,18 @@ func Requirements(spec Spec, plan []StagePlan) ([]Requirement, error) {
 				edge = math.Max(fp, fk-fs)
 			}
 			if edge >= out/2 {
+				// Name the edge that binds: the passband, the protected
+				// edge, or (last) the output rate less the stopband.
+				what := "passband edge"
+				switch {
+				case edge > fp && r.Last:
+					what = "edge OutputRate - Stopband ="
+				case edge > fp:
+					what = "protected edge"
+				}
 				return nil, planErr(plan, i,
-					"a half-band needs its passband edge %s Hz below OutputRate/2 = %s Hz of the stage (as the last stage it needs Stopband > %s Hz)",
-					fmtNum(edge), fmtNum(out/2), fmtNum(fk/2))
+					"a half-band needs its %s %s Hz below OutputRate/2 = %s Hz of the stage (as the last stage it needs Stopband > %s Hz)",
+					what, fmtNum(edge), fmtNum(out/2), fmtNum(fk/2))
 			}
 			r.Passband = edge
 			r.Stopbands = []Interval{{rate/2 - edge, rate / 2}}
