@@ -87,6 +87,10 @@ type Settings struct {
 	// designs a length above it, so a caller with a tap limit does not pay
 	// for designs that would exceed it. A negative value is an error.
 	MaxTaps int
+	// Memo, when not nil, remembers every FIR and half-band stage Design
+	// designs and hands a stage met again its remembered design (see
+	// StageMemo): the same result, without designing it again.
+	Memo *StageMemo
 }
 
 // Decimation returns the product of the stages' factors.

@@ -66,7 +66,7 @@ func build(ctx context.Context, spec Spec, plan []StagePlan, s Settings, design 
 			c.Stages = append(c.Stages, cs)
 			continue
 		case HalfBand:
-			st, err := halfBandStage(ctx, r, s, design)
+			st, err := s.Memo.stage(ctx, design, r, c.Stages, s, func() (FIRStage, error) { return halfBandStage(ctx, r, s, design) })
 			if cerr := ctx.Err(); cerr != nil {
 				return nil, stopped(plan, cerr)
 			}
@@ -75,7 +75,7 @@ func build(ctx context.Context, spec Spec, plan []StagePlan, s Settings, design 
 			}
 			c.Stages = append(c.Stages, st)
 		case FIR:
-			st, err := firStage(ctx, r, c.Stages, s, design)
+			st, err := s.Memo.stage(ctx, design, r, c.Stages, s, func() (FIRStage, error) { return firStage(ctx, r, c.Stages, s, design) })
 			if cerr := ctx.Err(); cerr != nil {
 				return nil, stopped(plan, cerr)
 			}

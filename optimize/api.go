@@ -24,7 +24,7 @@ type Settings struct {
 	// calls come from one goroutine at a time.
 	Progress func(done, total int)
 
-	Chain chain.Settings // how stages are designed
+	Chain chain.Settings // how stages are designed (Plan adds a chain.StageMemo when Memo is nil)
 	Cost  cost.Settings  // how chains are priced
 	// Fixed is how a chain's word lengths are planned and its taps rounded
 	// (fixed.PlanChain) when the spec fixes the coefficient width

@@ -89,6 +89,12 @@
 // chains designed and measured for real: nothing on it is an estimate. A
 // design failure never ends the search.
 //
+// Most stage designs of a search repeat a stage of another chain (the
+// same bands, deviations and compensated CIC): Plan hands every design a
+// chain.StageMemo (Settings.Chain.Memo, a fresh one when it is nil), so
+// that each distinct stage is designed once per search. The memo changes
+// no result, only the time; the caps below still count chain designs.
+//
 // Real designs cost 5 ms to 5 s each, so Settings.MaxDesigns (default 600)
 // caps them, and so does a budget of design work counted, not timed, as
 // the sum over the designed chains' stages of the estimated length squared

@@ -54,6 +54,12 @@ func Plan(ctx context.Context, spec chain.Spec, s Settings) (*Result, error) {
 	}
 	p := newParams(ns, s.Cost.NoSymmetry)
 	p.d = ns.Decimation()
+	if s.Chain.Memo == nil {
+		// Most stage designs of a search repeat a stage of another chain
+		// (the same bands, deviations and compensated CIC): each is
+		// designed once.
+		s.Chain.Memo = chain.NewStageMemo()
+	}
 	return search(ctx, p, &s, newEstimator(p, s.Tolerance), realDesigner{ctx: ctx, spec: ns, s: &s})
 }
 

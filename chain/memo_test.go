@@ -1,0 +1,83 @@
+package chain
+
+import (
+	"reflect"
+	"sync"
+	"testing"
+)
+
+// TestStageMemo: chains designed through one StageMemo, shared by
+// concurrent goroutines, equal the chains designed without it, field for
+// field; the plans share half-bands, FIR stages and a compensator between
+// CICs of different orders but the same R M (which the key tells apart), and
+// one fails (its stage over MaxTaps) the same way both times.
+func TestStageMemo(t *testing.T) {
+	sp := Spec{InputRate: 16e6, OutputRate: 250e3, Passband: 80e3, Protected: 100e3, RippleDB: 0.2, RejectionDB: 70}
+	notations := []string{
+		"cic5m1r16 > fir4", "cic4m1r16 > fir4", "cic5m2r8 > hb > fir4", "cic4m1r16 > hb > hb",
+		"cic5m1r8 > hb > hb > hb", "cic4m1r8 > hb > hb > hb", "cic5m1r16 > hb > hb", "fir8 > fir8", "hb > fir32",
+	}
+	set := Settings{MaxTaps: 201}
+	want := make([]*Chain, len(notations))
+	wantErr := make([]string, len(notations))
+	plans := make([][]StagePlan, len(notations))
+	for i, n := range notations {
+		p, err := ParseNotation(n)
+		if err != nil {
+			t.Fatal(err)
+		}
+		plans[i] = p
+		want[i], err = Design(sp, p, set)
+		if err != nil {
+			wantErr[i] = err.Error()
+		}
+	}
+	if wantErr[len(wantErr)-1] == "" {
+		t.Fatalf("%s designed within %d taps: the failing case is lost", notations[len(notations)-1], set.MaxTaps)
+	}
+	memo := set
+	memo.Memo = NewStageMemo()
+	var wg sync.WaitGroup
+	got := make([]*Chain, 2*len(notations))
+	gotErr := make([]string, 2*len(notations))
+	for i := range got {
+		wg.Add(1)
+		go func() {
+			defer wg.Done()
+			c, err := Design(sp, plans[i%len(plans)], memo)
+			got[i] = c
+			if err != nil {
+				gotErr[i] = err.Error()
+			}
+		}()
+	}
+	wg.Wait()
+	for i := range got {
+		j := i % len(plans)
+		if gotErr[i] != wantErr[j] {
+			t.Errorf("%s: error %q with the memo, %q without", notations[j], gotErr[i], wantErr[j])
+		}
+		if !reflect.DeepEqual(got[i], want[j]) {
+			t.Errorf("%s: the chain designed with the memo differs", notations[j])
+		}
+	}
+	// Each chain owns its taps.
+	if c := got[0]; c != nil {
+		c.Stages[1].(FIRStage).Taps[0] = 42
+		if got[len(plans)].Stages[1].(FIRStage).Taps[0] == 42 {
+			t.Error("two chains share a tap slice")
+		}
+	}
+	// Fewer stages remembered than designed: they repeat.
+	stages := 0
+	for _, p := range plans {
+		for _, st := range p {
+			if st.Kind != CIC {
+				stages++
+			}
+		}
+	}
+	if n := memo.Memo.Len(); n >= stages {
+		t.Errorf("%d stages remembered of %d designed: nothing repeated", n, stages)
+	}
+}
