@@ -70,12 +70,16 @@ type BitTrueResult struct {
 	// quantisation error); for a full-scale sine it is 6.02 B + 1.76 dB.
 	InputSNRDB float64
 	Clipped    int // input samples saturated by the ADC word
+	// OutputClipped counts the measured output samples at either end of the
+	// output word (saturated); over one in a thousand makes the SNR invalid.
+	OutputClipped int
 	// SNRValid says whether SNRDB (and ENOB) is meaningful; SNRNote says why
 	// not, "" when it is: the input word cannot carry the default test tone
 	// plus its noise (then run at half the largest code), the input clipped
-	// more than one sample in a thousand, or the DC offset is over ten times
-	// the RMS of the error the SNR measures (the SNR leaves DC out). The
-	// figures stay finite either way.
+	// more than one sample in a thousand, the output saturated in more than
+	// one sample in a thousand (OutputClipped), or the DC offset is over ten
+	// times the RMS of the error the SNR measures (the SNR leaves DC out).
+	// The figures stay finite either way; report.json leaves them null.
 	SNRValid bool
 	SNRNote  string
 
@@ -262,7 +266,22 @@ func BitTrueContext(ctx context.Context, c Cascade, w *Widths, sig Signal) (BitT
 	}
 	res.SNRDB = ratioDB(power(ref), power(e))
 	res.ENOB = (res.SNRDB - 1.76) / 6.02
+	// Output samples at either end of the output word saturated there (a
+	// full-scale code is otherwise all but impossible on these signals).
+	top := 1 - math.Ldexp(1, 1-w.OutputBits)
+	for _, v := range yi {
+		if v >= top || v <= -1 {
+			res.OutputClipped++
+		}
+	}
 	res.SNRNote = snrNote(w.InputBits, defaultTones && !fits, clipped, nin, res.OutputOffset, math.Ldexp(math.Sqrt(power(e)), w.OutputBits-1))
+	if res.OutputClipped*1000 > nm {
+		note := fmt.Sprintf("the output saturated in %d of %d samples at the %d-bit output word (the chain's gain lifts the test signal past full scale)", res.OutputClipped, nm, w.OutputBits)
+		if res.SNRNote != "" {
+			note = res.SNRNote + "; " + note
+		}
+		res.SNRNote = note
+	}
 	res.SNRValid = res.SNRNote == ""
 
 	// Run 2: a tone at the worst alias of the quantised cascade.

@@ -107,6 +107,9 @@ type Result struct {
 	// BitTrueErr says why the bit-true run could not be made (e.g. a CIC
 	// register over 63 bits); Widths and Quantised are valid all the same.
 	BitTrueErr error
+	// UnityGainAsked records Settings.UnityGain, so that the report can say
+	// when the correction had no stage to go into.
+	UnityGainAsked bool
 }
 
 // PlanChain plans the word lengths of a designed chain (FromChain, then
@@ -286,7 +289,7 @@ func EvaluateContext(ctx context.Context, spec chain.Spec, c *chain.Chain, s Set
 	if err != nil {
 		return nil, err
 	}
-	res := &Result{Widths: ws, Quantised: qa}
+	res := &Result{Widths: ws, Quantised: qa, UnityGainAsked: s.UnityGain}
 	if sig.AliasHz == 0 {
 		sig.AliasHz = qa.WorstAliasHz
 	}

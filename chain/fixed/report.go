@@ -58,9 +58,12 @@ type ChainReport struct {
 	DCGainDB float64 `json:"dc_gain_db"`
 	// GainCorrection is the factor Settings.UnityGain folded into one
 	// stage's taps (that stage's gain_correction), 1 when none.
-	GainCorrection      float64 `json:"gain_correction"`
-	FixedMemoryBits     int     `json:"fixed_memory_bits"`
-	HardwareMultipliers *int    `json:"hardware_multipliers,omitempty"`
+	GainCorrection float64 `json:"gain_correction"`
+	// DCGainNote says why a requested correction (Settings.UnityGain) was
+	// not applied: the chain has no FIR or half-band stage to fold it into.
+	DCGainNote          string `json:"dc_gain_note,omitempty"`
+	FixedMemoryBits     int    `json:"fixed_memory_bits"`
+	HardwareMultipliers *int   `json:"hardware_multipliers,omitempty"`
 
 	// BitTrueSNRValid says whether bittrue_snr_db and bittrue_enob are
 	// meaningful; BitTrueSNRNote says why not ("" when they are; see
@@ -77,16 +80,18 @@ type ChainReport struct {
 // BitTrueReport is the bit-true run's figures (BitTrueResult), flattened
 // into ChainReport when the run was made.
 type BitTrueReport struct {
-	BitTrueSNRDB            float64 `json:"bittrue_snr_db"`
-	BitTrueENOB             float64 `json:"bittrue_enob"`
-	BitTrueMatchDB          float64 `json:"bittrue_match_db"`
-	BitTrueOffsetLSB        float64 `json:"bittrue_offset_lsb"`
-	InputSNRDB              float64 `json:"input_snr_db"`
-	BitTrueAliasHz          float64 `json:"bittrue_alias_hz"`
-	BitTrueAliasRejectionDB float64 `json:"bittrue_alias_rejection_db"`
-	AliasResponseDB         float64 `json:"quantised_alias_response_db"` // at bittrue_alias_hz
-	BitTrueAliasValid       bool    `json:"bittrue_alias_valid"`
-	TestSignal              string  `json:"bittrue_test_signal"`
+	// BitTrueSNRDB and BitTrueENOB are null when they are not meaningful
+	// (ChainReport.BitTrueSNRValid false; BitTrueSNRNote says why).
+	BitTrueSNRDB            *float64 `json:"bittrue_snr_db"`
+	BitTrueENOB             *float64 `json:"bittrue_enob"`
+	BitTrueMatchDB          float64  `json:"bittrue_match_db"`
+	BitTrueOffsetLSB        float64  `json:"bittrue_offset_lsb"`
+	InputSNRDB              float64  `json:"input_snr_db"`
+	BitTrueAliasHz          float64  `json:"bittrue_alias_hz"`
+	BitTrueAliasRejectionDB float64  `json:"bittrue_alias_rejection_db"`
+	AliasResponseDB         float64  `json:"quantised_alias_response_db"` // at bittrue_alias_hz
+	BitTrueAliasValid       bool     `json:"bittrue_alias_valid"`
+	TestSignal              string   `json:"bittrue_test_signal"`
 	// BitTrueOutputLevels is each test tone's level at the integer output,
 	// dBFS (BitTrueResult.OutputLevels).
 	BitTrueOutputLevels []float64 `json:"bittrue_output_levels_dbfs,omitempty"`
@@ -104,6 +109,9 @@ func (r *Result) Report(withHardware bool) ChainReport {
 		DCGainDB:             gainDB(r.Widths.DCGain),
 		GainCorrection:       r.Widths.GainCorrection,
 	}
+	if r.UnityGainAsked && r.Widths.CorrectedStage < 0 {
+		out.DCGainNote = "unity_gain asked, but the chain has no FIR or half-band stage to fold the correction into"
+	}
 	if r.BitTrueErr != nil {
 		out.BitTrueError = strings.TrimPrefix(r.BitTrueErr.Error(), "fixed: ")
 		out.BitTrueSNRNote = "no bit-true run: " + out.BitTrueError
@@ -115,13 +123,17 @@ func (r *Result) Report(withHardware bool) ChainReport {
 		}
 		out.BitTrueSNRValid, out.BitTrueSNRNote = bt.SNRValid, bt.SNRNote
 		out.BitTrueReport = &BitTrueReport{
-			BitTrueSNRDB: bt.SNRDB, BitTrueENOB: bt.ENOB, BitTrueMatchDB: bt.MatchDB,
+			BitTrueMatchDB:      bt.MatchDB,
 			BitTrueOutputLevels: append([]float64(nil), bt.OutputLevels...),
 			BitTrueOffsetLSB:    bt.OutputOffset, InputSNRDB: bt.InputSNRDB,
 			BitTrueAliasHz: bt.AliasHz, BitTrueAliasRejectionDB: bt.AliasRejectionDB,
 			AliasResponseDB: bt.AliasResponseDB, BitTrueAliasValid: bt.AliasValid,
 			TestSignal: fmt.Sprintf("%s; white Gaussian noise %s dBFS RMS; %d output samples",
 				strings.Join(sig, ", "), fmtG(bt.NoiseDBFS), bt.Samples),
+		}
+		if bt.SNRValid {
+			snr, enob := bt.SNRDB, bt.ENOB
+			out.BitTrueSNRDB, out.BitTrueENOB = &snr, &enob
 		}
 	}
 	if withHardware {

@@ -431,6 +431,9 @@ func printWords(w io.Writer, rep *report.Report) {
 	if ch.GainCorrection != 1 && ch.GainCorrection != 0 {
 		gain += fmt.Sprintf(" (correction x%.6g folded into the last FIR)", ch.GainCorrection)
 	}
+	if ch.DCGainNote != "" {
+		gain += " (" + ch.DCGainNote + ")"
+	}
 	fmt.Fprintf(w, "\nword lengths (%s): %s; rounded taps: alias rejection %.2f dB, ripple %.4f dB; %s\n",
 		coef, ch.BitTrueSummary(), ch.QuantisedRejectionDB, ch.QuantisedRippleDB, gain)
 	for i, st := range ch.Stages {
@@ -492,7 +495,7 @@ func printTable(w io.Writer, rep *report.Report) {
 		row = append(row,
 			fmt.Sprintf("%s (%.1f out)", seconds(ch.LatencyS), ch.LatencySamples),
 			fmt.Sprintf("%.2f dB", rej),
-			fmt.Sprintf("%.4f dB", rip),
+			rippleText(rip),
 			kind)
 		rows = append(rows, row)
 	}
@@ -523,6 +526,15 @@ func printTable(w io.Writer, rep *report.Report) {
 		}
 		fmt.Fprintf(w, "* with the taps %s, as they will be built; the verdict is judged on them (report.json also holds the float design's figures)\n", what)
 	}
+}
+
+// rippleText writes a ripple figure; the analysis caps an unbounded one (a
+// null of the response inside the passband) at chain.MaxFigureDB.
+func rippleText(db float64) string {
+	if db >= chain.MaxFigureDB {
+		return "null in passband"
+	}
+	return fmt.Sprintf("%.4f dB", db)
 }
 
 func trimFloat(v float64, prec int) string {

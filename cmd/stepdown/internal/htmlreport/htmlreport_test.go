@@ -62,7 +62,7 @@ func sampleReport(t testing.TB) *report.Report {
 	// Word-length figures as report.New would flatten them from chain/fixed
 	// (invented values, for the page's wording only).
 	rec.ChainReport = &fixed.ChainReport{QuantisedRejectionDB: 81.05, BitTrueSNRValid: true,
-		BitTrueReport: &fixed.BitTrueReport{BitTrueSNRDB: 112.34, BitTrueENOB: 18.37,
+		BitTrueReport: &fixed.BitTrueReport{BitTrueSNRDB: fp(112.34), BitTrueENOB: fp(18.37),
 			TestSignal: "192187.5 Hz at -1 dBFS; white Gaussian noise -90.3 dBFS RMS; 2048 output samples"}}
 	rec.Stages[2].StageReport.InputBits, rec.Stages[2].StageReport.AccumulatorBits, rec.Stages[2].StageReport.OutputBits = 24, 46, 24
 	rec.Stages[2].StageReport.MultiplierSize, rec.Stages[2].StageReport.HardwareMultipliers = "25 x 18", ip(2)
@@ -307,3 +307,5 @@ func TestSweepPage(t *testing.T) {
 		_ = os.WriteFile(filepath.Join(*sampleDir, "sweep-report.html"), b, 0o644)
 	}
 }
+
+func fp(v float64) *float64 { return &v }

@@ -119,8 +119,8 @@ type Chain struct {
 	MultipliersAtClock  *int    `json:"multipliers_at_clock,omitempty"`
 	AliasRejectionDB    float64 `json:"alias_rejection_db"`
 	// RejectionMarginDB is the verdict's rejection over the target: the
-	// rounded taps' when VerdictBasis is "rounded taps", the float design's
-	// otherwise.
+	// worse of the rounded taps' and the float design's when VerdictBasis
+	// is "rounded taps", the float design's otherwise.
 	RejectionMarginDB float64 `json:"rejection_margin_db"`
 	WorstAliasHz      float64 `json:"worst_alias_hz"`
 	PassbandRippleDB  float64 `json:"passband_ripple_db"`
@@ -314,7 +314,8 @@ func AddWordLengths(c *Chain, spec chain.Spec, cand optimize.Candidate, s fixed.
 	c.ChainReport = &cr
 	if rounded {
 		c.MeetsTargets = c.FloatMeetsTargets && res.Quantised.Meets(spec)
-		c.RejectionMarginDB = res.Quantised.AliasRejectionDB - spec.RejectionDB
+		// The verdict needs both to meet: the margin is the worse one's.
+		c.RejectionMarginDB = math.Min(res.Quantised.AliasRejectionDB, c.AliasRejectionDB) - spec.RejectionDB
 	}
 }
 
@@ -427,8 +428,8 @@ func (c *Chain) BitTrueSummary() string {
 		return "no word-length plan (" + c.WordLengthsError + ")"
 	case c.BitTrueReport == nil:
 		return "no bit-true run (" + c.BitTrueError + ")"
-	case !c.BitTrueSNRValid:
+	case !c.BitTrueSNRValid || c.BitTrueSNRDB == nil || c.BitTrueENOB == nil:
 		return "bit-true SNR not meaningful (" + c.BitTrueSNRNote + ")"
 	}
-	return fmt.Sprintf("bit-true SNR %.1f dB, ENOB %.2f bits", c.BitTrueSNRDB, c.BitTrueENOB)
+	return fmt.Sprintf("bit-true SNR %.1f dB, ENOB %.2f bits", *c.BitTrueSNRDB, *c.BitTrueENOB)
 }

@@ -86,8 +86,8 @@ func wordCells(c report.Chain) []string {
 		}
 	}
 	snr, enob := "", ""
-	if c.BitTrueReport != nil && c.BitTrueSNRValid {
-		snr, enob = num(c.BitTrueSNRDB), num(c.BitTrueENOB)
+	if c.BitTrueReport != nil && c.BitTrueSNRDB != nil && c.BitTrueENOB != nil {
+		snr, enob = num(*c.BitTrueSNRDB), num(*c.BitTrueENOB)
 	}
 	return []string{snr, enob, num(c.QuantisedRejectionDB), strings.Join(bits, " "),
 		num(c.QuantisedRippleDB), num(c.DCGainDB), strconv.FormatBool(c.BitTrueSNRValid), c.VerdictBasis}

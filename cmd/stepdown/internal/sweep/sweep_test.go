@@ -287,7 +287,7 @@ func TestWordCells(t *testing.T) {
 	// Invented figures: the cells are written as report.json holds them.
 	c := report.Chain{
 		ChainReport: &fixed.ChainReport{QuantisedRejectionDB: 92.25, BitTrueSNRValid: true,
-			BitTrueReport: &fixed.BitTrueReport{BitTrueSNRDB: 116.5, BitTrueENOB: 19.06}},
+			BitTrueReport: &fixed.BitTrueReport{BitTrueSNRDB: fp(116.5), BitTrueENOB: fp(19.06)}},
 		Stages: []report.Stage{
 			{Kind: "cic", StageReport: &fixed.StageReport{AccumulatorBits: 36}},
 			{Kind: "halfband", StageReport: &fixed.StageReport{CoefficientBits: 16}},
@@ -301,3 +301,5 @@ func TestWordCells(t *testing.T) {
 		t.Errorf("cells without a plan %q, want empty", got)
 	}
 }
+
+func fp(v float64) *float64 { return &v }
