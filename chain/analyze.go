@@ -1,6 +1,7 @@
 package chain
 
 import (
+	"context"
 	"errors"
 	"fmt"
 	"math"
@@ -25,6 +26,13 @@ type Analysis struct {
 // own bands (each FIR meets its Ds; a CIC's is computed exactly), and the sum
 // of the stages' ripple shares plus the uncorrected CIC droop.
 func Analyze(c *Chain, spec Spec) (Analysis, error) {
+	return AnalyzeContext(context.Background(), c, spec)
+}
+
+// AnalyzeContext is Analyze stopped by ctx: the certified search checks it
+// every few hundred steps, and once ctx is done it returns an error wrapping
+// ctx.Err().
+func AnalyzeContext(ctx context.Context, c *Chain, spec Spec) (Analysis, error) {
 	spec, err := spec.Normalize()
 	if err != nil {
 		return Analysis{}, err
@@ -35,7 +43,7 @@ func Analyze(c *Chain, spec Spec) (Analysis, error) {
 	if !c.Designed || !hasTaps(c) {
 		return estimateAnalysis(c, spec)
 	}
-	return measure(c, spec)
+	return measure(ctx, c, spec)
 }
 
 func hasTaps(c *Chain) bool {
@@ -257,6 +265,9 @@ type extreme struct{ x, v, bound float64 }
 type ivl struct {
 	lo, hi, key float64
 	coarse      bool
+	// k0 < k1 marks a group of the bands k0..k1 (lo, hi their hull), split
+	// by index when it reaches the top.
+	k0, k1 int
 }
 
 type ivlHeap []ivl
@@ -300,13 +311,21 @@ func (h *ivlHeap) pop() ivl {
 	return top
 }
 
+// bandSet is the bands a search runs over, by index 0..n-1 in increasing
+// frequency, without holding them all: a chain at D = 2^24 has 2^23 alias
+// bands.
+type bandSet struct {
+	n    int
+	band func(k int) Interval
+}
+
 // search finds the largest (sign > 0) or smallest (sign < 0) |H| over the
 // bands by branch and bound: the interval with the most extreme bound is
 // split at its midpoint, where |H| is evaluated, until no interval's bound
 // can beat the best evaluated value by more than certifyDB. Only evaluated
 // gains ever become the best, and only rigorous bounds prune, so the
 // returned bound is never on the optimistic side of the truth.
-func (cs *cascade) search(bands []Interval, sign, certifyDB float64) extreme {
+func (cs *cascade) search(ctx context.Context, bands bandSet, sign, certifyDB float64) (extreme, error) {
 	tol := math.Pow(10, certifyDB/20)
 	key := func(a, b float64, coarse bool) float64 {
 		lo, up := cs.bounds(a, b, coarse)
@@ -329,28 +348,44 @@ func (cs *cascade) search(bands []Interval, sign, certifyDB float64) extreme {
 			best.x, best.v = x, v
 		}
 	}
-	// The bands enter with coarse keys (a CIC's exact bound times each FIR's
-	// largest gain): most of them, deep in some stage's stopband, never need
-	// the finer bound. A coarse interval that reaches the top is given its
-	// fine key and goes back.
-	var h ivlHeap
-	for _, b := range bands {
-		h.push(ivl{b.Lo, b.Hi, key(b.Lo, b.Hi, true), true})
+	// The bands enter as one group under a coarse key (a CIC's exact bound
+	// over their hull times each FIR's largest gain), which is a bound over
+	// every band in it. A group that reaches the top is split by index; a
+	// single band's coarse key is replaced by its fine one when it reaches
+	// the top. Most bands, deep in some stage's stopband, are never taken
+	// out of a group, so memory follows the work done, not the band count.
+	group := func(k0, k1 int) ivl {
+		lo, hi := bands.band(k0).Lo, bands.band(k1).Hi
+		return ivl{lo: lo, hi: hi, key: key(lo, hi, true), coarse: true, k0: k0, k1: k1}
 	}
-	eval(bands[0].Lo)
+	var h ivlHeap
+	h.push(group(0, bands.n-1))
+	eval(bands.band(0).Lo)
 	// dropped is the most extreme key of the intervals discarded unsplit.
 	dropped := math.Inf(-1)
-	for steps := 0; len(h) > 0; steps++ {
+	for steps := 0; len(h) > 0; {
+		if steps%256 == 0 {
+			if err := ctx.Err(); err != nil {
+				return extreme{}, fmt.Errorf("chain: analysis stopped: %w", err)
+			}
+		}
 		top := h.pop()
 		if done(top.key, best.v) {
 			dropped = math.Max(dropped, top.key)
 			break
+		}
+		if top.k1 > top.k0 {
+			m := top.k0 + (top.k1-top.k0)/2
+			h.push(group(top.k0, m))
+			h.push(group(m+1, top.k1))
+			continue
 		}
 		if top.coarse {
 			top.key, top.coarse = key(top.lo, top.hi, false), false
 			h.push(top)
 			continue
 		}
+		steps++
 		mid := top.lo + (top.hi-top.lo)/2
 		if steps >= maxBoundSteps || !(mid > top.lo && mid < top.hi) {
 			dropped = math.Max(dropped, top.key)
@@ -363,7 +398,7 @@ func (cs *cascade) search(bands []Interval, sign, certifyDB float64) extreme {
 				dropped = math.Max(dropped, k)
 				continue
 			}
-			h.push(ivl{p[0], p[1], k, false})
+			h.push(ivl{lo: p[0], hi: p[1], key: k})
 		}
 	}
 	for _, it := range h {
@@ -375,7 +410,7 @@ func (cs *cascade) search(bands []Interval, sign, certifyDB float64) extreme {
 	} else if !math.IsInf(dropped, -1) {
 		best.bound = math.Min(best.v, -dropped)
 	}
-	return best
+	return best, nil
 }
 
 // measure computes the DESIGN §7 figures of a chain with taps, certified by
@@ -384,7 +419,7 @@ func (cs *cascade) search(bands []Interval, sign, certifyDB float64) extreme {
 // over the lower bound of its minimum, so that both are pessimistic by at
 // most aliasCertifyDB and 2 rippleCertifyDB and never optimistic. WorstAliasHz is where the
 // largest alias gain was evaluated.
-func measure(c *Chain, spec Spec) (Analysis, error) {
+func measure(ctx context.Context, c *Chain, spec Spec) (Analysis, error) {
 	cs, err := newCascade(c)
 	if err != nil {
 		return Analysis{}, err
@@ -395,21 +430,34 @@ func measure(c *Chain, spec Spec) (Analysis, error) {
 	if !(h0 > 0) {
 		return Analysis{AliasRejectionDB: 0, PassbandRippleDB: MaxFigureDB}, nil
 	}
-	var bands []Interval
-	for k := 1; float64(k)*fk-fa <= f0h; k++ {
-		lo, hi := float64(k)*fk-fa, math.Min(float64(k)*fk+fa, f0h)
-		if hi <= lo {
-			continue
-		}
-		bands = append(bands, Interval{lo, hi})
+	// Alias band k (from 0) is [(k+1) FK - fa, (k+1) FK + fa] within
+	// [0, F0/2]; the last one's start lies at or below F0/2, and one that
+	// would be empty (it starts at F0/2 exactly) is cut to a point.
+	nb := int(math.Floor((f0h + fa) / fk))
+	for nb > 0 && float64(nb)*fk-fa > f0h {
+		nb--
 	}
+	aliases := bandSet{n: nb, band: func(k int) Interval {
+		lo := float64(k+1)*fk - fa
+		return Interval{lo, math.Max(lo, math.Min(float64(k+1)*fk+fa, f0h))}
+	}}
 	a := Analysis{AliasRejectionDB: MaxFigureDB}
-	if len(bands) > 0 {
-		w := cs.search(bands, 1, aliasCertifyDB)
+	if nb > 0 {
+		w, err := cs.search(ctx, aliases, 1, aliasCertifyDB)
+		if err != nil {
+			return Analysis{}, err
+		}
 		a.AliasRejectionDB, a.WorstAliasHz = -toDB(w.bound/h0), w.x
 	}
-	pass := []Interval{{0, fp}}
-	hi, lo := cs.search(pass, 1, rippleCertifyDB), cs.search(pass, -1, rippleCertifyDB)
+	pass := bandSet{n: 1, band: func(int) Interval { return Interval{0, fp} }}
+	hi, err := cs.search(ctx, pass, 1, rippleCertifyDB)
+	if err != nil {
+		return Analysis{}, err
+	}
+	lo, err := cs.search(ctx, pass, -1, rippleCertifyDB)
+	if err != nil {
+		return Analysis{}, err
+	}
 	a.PassbandRippleDB = toDB(hi.bound / lo.bound)
 	if !(lo.bound > 0) {
 		a.PassbandRippleDB = MaxFigureDB
