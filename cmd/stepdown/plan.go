@@ -184,7 +184,7 @@ func runPlan(c *cli.Context) error {
 	if len(res.Front) == 0 {
 		return emptyFront(res, clip(j.out.dir))
 	}
-	return j.finish("plan", res)
+	return j.finish(ctx, "plan", res)
 }
 
 // emptyFront is the error of a search that left the front empty: the
@@ -260,7 +260,7 @@ func runCheck(c *cli.Context) error {
 	}
 	// finish states the verdict once the report has judged the chain
 	// (checkReason): on its rounded taps when they are planned.
-	return j.finish("check", res)
+	return j.finish(c.Context, "check", res)
 }
 
 // checkReason is check's verdict on the chain it named, judged as the
@@ -300,8 +300,11 @@ func droppedText(d map[string]int) string {
 }
 
 // finish builds the report, writes every file and prints the summary.
-func (j *job) finish(command string, res *optimize.Result) error {
-	rep, err := report.New(command, j.spec, res)
+// finish writes the report and files of res. ctx stops the word-length
+// plans (a plan's time limit or an interrupt); an interrupt (j.c.Context)
+// then leaves the output folder as it was.
+func (j *job) finish(ctx context.Context, command string, res *optimize.Result) error {
+	rep, err := report.NewContext(ctx, command, j.spec, res)
 	if err != nil {
 		return err
 	}

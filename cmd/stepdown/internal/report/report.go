@@ -2,6 +2,7 @@ package report
 
 import (
 	"bytes"
+	"context"
 	"encoding/json"
 	"fmt"
 	"math"
@@ -284,7 +285,10 @@ func NewChain(spec chain.Spec, cand optimize.Candidate, clock bool) (Chain, erro
 // WordLengthsError says why there are no bit-true ones; a chain the planner
 // cannot take at all (an estimate has no taps) gets only WordLengthsError,
 // and with rounded set it does not meet: nothing says its rounded taps do.
-func AddWordLengths(c *Chain, spec chain.Spec, cand optimize.Candidate, s fixed.Settings, withHardware, rounded bool) {
+//
+// Once ctx is done the planner stops and the chain gets only
+// WordLengthsError (and, with rounded set, does not meet).
+func AddWordLengths(ctx context.Context, c *Chain, spec chain.Spec, cand optimize.Candidate, s fixed.Settings, withHardware, rounded bool) {
 	if rounded {
 		c.VerdictBasis = "rounded taps"
 		c.MeetsTargets = false
@@ -293,7 +297,15 @@ func AddWordLengths(c *Chain, spec chain.Spec, cand optimize.Candidate, s fixed.
 		c.WordLengthsError = "no designed chain"
 		return
 	}
-	res, err := fixed.Evaluate(spec, cand.Chain, s, fixed.Signal{})
+	if ctx.Err() != nil {
+		c.WordLengthsError = "not planned: the run was stopped (--timeout or an interrupt) before the word lengths"
+		return
+	}
+	res, err := fixed.EvaluateContext(ctx, spec, cand.Chain, s, fixed.Signal{})
+	if ctx.Err() != nil {
+		c.WordLengthsError = "not planned: the run was stopped (--timeout or an interrupt) before the word lengths"
+		return
+	}
 	if err != nil {
 		c.WordLengthsError = strings.TrimPrefix(err.Error(), "fixed: ")
 		return
@@ -321,6 +333,13 @@ func AddWordLengths(c *Chain, spec chain.Spec, cand optimize.Candidate, s fixed.
 
 // New builds the report of a search.
 func New(command string, s *specfile.Spec, res *optimize.Result) (*Report, error) {
+	return NewContext(context.Background(), command, s, res)
+}
+
+// NewContext is New whose word-length plans stop once ctx is done: the
+// chains not yet planned then say so (AddWordLengths), and the report is
+// still made, so that a search stopped by its time limit writes its front.
+func NewContext(ctx context.Context, command string, s *specfile.Spec, res *optimize.Result) (*Report, error) {
 	r := &Report{
 		Schema:      Schema,
 		Command:     command,
@@ -351,7 +370,7 @@ func New(command string, s *specfile.Spec, res *optimize.Result) (*Report, error
 		if err != nil {
 			return nil, err
 		}
-		AddWordLengths(&c, s.Chain, cand, fs, hw, s.CoefMode() != "float")
+		AddWordLengths(ctx, &c, s.Chain, cand, fs, hw, s.CoefMode() != "float")
 		r.Front = append(r.Front, c)
 	}
 	if len(r.Front) > 0 && (r.Recommended < 0 || r.Recommended >= len(r.Front)) {

@@ -159,7 +159,7 @@ func runOne(ctx context.Context, st Study, plan func(context.Context, chain.Spec
 		r.Status, r.Detail = Infeasible, "no chain meets the spec ("+dropped(res.Dropped)+")"
 		return r
 	}
-	rep, err := report.New("plan", spec, res)
+	rep, err := report.NewContext(ctx, "plan", spec, res)
 	if err != nil {
 		r.Status, r.Detail = Failed, err.Error()
 		return r
