@@ -208,6 +208,12 @@ func BitTrueContext(ctx context.Context, c Cascade, w *Widths, sig Signal) (BitT
 		if sw.CIC && sw.Pruning.FullBits > 63 {
 			return BitTrueResult{}, fmt.Errorf("fixed: stage %d: the CIC's %d-bit registers are beyond the bit-true run's 63 bits", i+1, sw.Pruning.FullBits)
 		}
+		// The float model runs a CIC as its equivalent filter of
+		// N (RM - 1) + 1 taps, with as long a history: bounded so that
+		// the run stays within memory.
+		if st := c.Stages[i]; st.CIC && stageLen(st) > maxCICFloatTaps {
+			return BitTrueResult{}, fmt.Errorf("fixed: stage %d: the CIC's float model would need %d taps, beyond the bit-true run's %d", i+1, stageLen(st), maxCICFloatTaps)
+		}
 	}
 	// Transient: the cascade's impulse response length in output samples.
 	span, p := 1, 1
@@ -762,6 +768,10 @@ func (s *firFloatState) run(x, out []float64) []float64 {
 	copy(s.buf, s.buf[len(s.buf)-l:])
 	return out
 }
+
+// maxCICFloatTaps bounds the float model of a CIC in the bit-true run (two
+// float64 arrays of this length: 64 MiB).
+const maxCICFloatTaps = 1 << 22
 
 // cicTaps is the impulse response of n cascaded length-rm boxcars, times scale.
 func cicTaps(n, rm int, scale float64) []float64 {

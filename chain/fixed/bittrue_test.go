@@ -322,3 +322,20 @@ func TestBitTrueInputWords(t *testing.T) {
 		}
 	}
 }
+
+// A CIC whose float model (its equivalent filter of N (RM - 1) + 1 taps)
+// would exceed the bound is refused before anything is allocated: N = 2,
+// M = 4, R = 2^20 (R M = 2^22) fits the 63-bit registers (12 + 44 bits)
+// but not the model's 2^23 taps.
+func TestBitTrueRefusesHugeCICModel(t *testing.T) {
+	c := Cascade{InputRate: 1 << 20, Passband: 0.1, Protected: 0.2,
+		Stages: []Stage{{CIC: true, N: 2, M: 4, R: 1 << 20}}}
+	w, err := Plan(c, Words{InputBits: 12}, Settings{})
+	if err != nil {
+		t.Fatal(err)
+	}
+	_, err = BitTrue(c, w, Signal{})
+	if err == nil || !strings.Contains(err.Error(), "float model") {
+		t.Fatalf("err = %v, want a refusal naming the float model", err)
+	}
+}
