@@ -8,14 +8,14 @@ import (
 	"sort"
 )
 
-// Analysis is the truth of a designed cascade (DESIGN §7).
+// Analysis is the truth of a designed cascade (docs/design.md §7).
 type Analysis struct {
 	AliasRejectionDB float64 // positive dB
 	WorstAliasHz     float64 // input frequency of the worst alias
 	PassbandRippleDB float64 // peak-to-peak dB over [0, fp]
 }
 
-// Analyze measures a designed chain against spec (DESIGN §7):
+// Analyze measures a designed chain against spec (docs/design.md §7):
 //
 //	alias rejection = -20 log10(max |H(g)|/|H(0)| over g in [k FK - fa, k FK + fa], k >= 1, g <= F0/2)
 //	passband ripple = 20 log10(max |H| / min |H|) over [0, fp]
@@ -413,7 +413,7 @@ func (cs *cascade) search(ctx context.Context, bands bandSet, sign, certifyDB fl
 	return best, nil
 }
 
-// measure computes the DESIGN §7 figures of a chain with taps, certified by
+// measure computes the docs/design.md §7 figures of a chain with taps, certified by
 // (*cascade).search: the rejection is taken at the upper bound of the worst
 // alias band and the ripple from the upper bound of the passband's maximum
 // over the lower bound of its minimum, so that both are pessimistic by at

@@ -166,7 +166,7 @@ func toneGain(c *Chain, g float64) float64 {
 	return math.Hypot(a, b)
 }
 
-// bruteAlias is the DESIGN §7 alias figure on a plain dense grid, for
+// bruteAlias is the docs/design.md §7 alias figure on a plain dense grid, for
 // comparison: every alias band sampled at step h with the direct response.
 func bruteAlias(c *Chain, sp Spec, h float64) float64 {
 	sp, _ = sp.Normalize()
@@ -191,7 +191,7 @@ func TestAnalyzeAgainstTimeDomain(t *testing.T) {
 		sp, _ := hc.spec.Normalize()
 		// The refined figure may only be better located than a dense grid:
 		// never lower in level, and within 0.01 dB of a grid 64 times finer
-		// than the scan (DESIGN §7).
+		// than the scan (docs/design.md §7).
 		brute := bruteAlias(hc.c, hc.spec, sp.OutputRate/20000)
 		if a.AliasRejectionDB > brute+1e-9 || a.AliasRejectionDB < brute-0.01 {
 			t.Errorf("%s: rejection %.4f dB, dense grid %.4f dB", hc.name, a.AliasRejectionDB, brute)
@@ -343,7 +343,7 @@ func TestEstimateAnalysisCIC(t *testing.T) {
 	// An estimated chain's rejection is the least of its stages' (package
 	// doc): here the CIC's, read exactly on its alias bands. For M = 1 the
 	// worst point of band 1 is its lower edge F1 - fa (main lobe, falling),
-	// so the figure is -20 log10 |H_cic(F1 - fa)| by the DESIGN §4 formula.
+	// so the figure is -20 log10 |H_cic(F1 - fa)| by the docs/design.md §4 formula.
 	sp := Spec{InputRate: 64e6, OutputRate: 250e3, Passband: 80e3, Protected: 100e3, RippleDB: 0.3, RejectionDB: 90}
 	plan, _ := ParseNotation("cic2m1r16 > hb > fir4 > fir2")
 	c, err := Estimate(sp, plan, Settings{})

@@ -120,7 +120,7 @@ func (c *Chain) Rates() []float64 {
 
 // Gain returns the cascade's gain |H(g)| = prod_i |H_i(g)| at input
 // frequency g Hz, each stage evaluated relative to its own input rate
-// (DESIGN §7).
+// (docs/design.md §7).
 func (c *Chain) Gain(g float64) float64 {
 	p := 1.0
 	rate := c.InputRate

@@ -32,7 +32,7 @@ func (c CICStage) Kind() Kind { return CIC }
 func (c CICStage) Factor() int { return c.R }
 
 // Gain returns |H(f)| = |sin(pi f R M / F) / (R M sin(pi f / F))|^N with F = rate
-// (DESIGN §4), normalised to 1 at DC.
+// (docs/design.md §4), normalised to 1 at DC.
 func (c CICStage) Gain(f, rate float64) float64 {
 	return cicGain(c.N, c.R*c.M, f, rate)
 }

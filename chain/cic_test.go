@@ -295,7 +295,7 @@ func TestCICAliasAttenuation(t *testing.T) {
 
 func TestCICDroop(t *testing.T) {
 	// N=5, R=16, M=1 at 16 MHz (1 MHz out), fp = 0.2 MHz: droop =
-	// -100 log10 |sin(pi 0.2)/(16 sin(pi 0.2/16))| (DESIGN §4 formula by hand).
+	// -100 log10 |sin(pi 0.2)/(16 sin(pi 0.2/16))| (docs/design.md §4 formula by hand).
 	st := CICStage{N: 5, M: 1, R: 16}
 	want := -100 * math.Log10(math.Sin(math.Pi*0.2)/(16*math.Sin(math.Pi*0.2/16)))
 	got, ok := st.DroopDB(0.2e6, 16e6)
@@ -335,7 +335,7 @@ func TestRunCICMatchesEquivalentFIR(t *testing.T) {
 func TestCICRejection(t *testing.T) {
 	// Rejection on the alias bands against a dense direct grid; for M = 1 the
 	// worst point is the first band's lower edge F1 - fa (main lobe falling
-	// monotonically, DESIGN §4 formula), for M = 2 a sidelobe peak inside.
+	// monotonically, docs/design.md §4 formula), for M = 2 a sidelobe peak inside.
 	const rate = 32e6
 	for _, tc := range []struct{ n, m, r int }{{4, 1, 16}, {3, 2, 16}, {5, 2, 8}} {
 		st := CICStage{N: tc.n, M: tc.m, R: tc.r}

@@ -35,7 +35,7 @@ func TestRejectionMeetsTargetWithoutRedesign(t *testing.T) {
 				t.Fatal(err)
 			}
 			t.Logf("%s: rejection %.4f dB (target %g), ripple %.4f dB", dc.plan, a.AliasRejectionDB, dc.spec.RejectionDB, a.PassbandRippleDB)
-			// DESIGN §7's figure, measured on the designed taps, against the
+			// docs/design.md §7's figure, measured on the designed taps, against the
 			// spec's own target: no slack.
 			if a.AliasRejectionDB < dc.spec.RejectionDB {
 				t.Errorf("%s: rejection %.4f dB below the target %g dB", dc.plan, a.AliasRejectionDB, dc.spec.RejectionDB)
@@ -62,7 +62,7 @@ func TestStopbandScale(t *testing.T) {
 		if err != nil {
 			t.Fatal(err)
 		}
-		ds := math.Pow(10, -dc.spec.RejectionDB/20) // DESIGN §2
+		ds := math.Pow(10, -dc.spec.RejectionDB/20) // docs/design.md §2
 		n := 0
 		var share float64
 		for _, r := range reqs {
@@ -71,7 +71,7 @@ func TestStopbandScale(t *testing.T) {
 				share = r.RippleDB
 			}
 		}
-		// dp from ripple_db = 20 log10((1+dp)/(1-dp)) (DESIGN §2).
+		// dp from ripple_db = 20 log10((1+dp)/(1-dp)) (docs/design.md §2).
 		g := math.Pow(10, share/20)
 		dp := (g - 1) / (g + 1)
 		for i, r := range reqs {

@@ -193,7 +193,7 @@ func TestDesignNarrowHalfBand(t *testing.T) {
 func TestDesignedAgainstDenseGrid(t *testing.T) {
 	// The refined figures of designed chains (one with a CIC and its
 	// compensator) against plain dense grids of the direct response: never
-	// better than the grid, and within 0.01 dB of it (DESIGN §7).
+	// better than the grid, and within 0.01 dB of it (docs/design.md §7).
 	for _, dc := range designedCases[:3] {
 		c := designOrSkip(t, dc.spec, dc.plan)
 		a, err := Analyze(c, dc.spec)

@@ -7,7 +7,7 @@
 //
 // Rates and frequencies are in Hz. Attenuation and rejection are positive
 // dB; passband ripple is peak-to-peak dB, ripple_db = 20 log10((1+dp)/(1-dp)),
-// rejection_db = -20 log10(ds) (DESIGN §2). F0 is the input rate, Fi the
+// rejection_db = -20 log10(ds) (docs/design.md §2). F0 is the input rate, Fi the
 // output rate of stage i, FK the final output rate, D = F0/FK an integer.
 // Every dB figure is bounded by MaxFigureDB so that exact nulls never become
 // infinities; no result is ever NaN.
@@ -26,7 +26,7 @@
 // ripple not above 0; rejection outside (0, 150] dB; word lengths outside
 // 2..64 when set.
 //
-// # Stage requirements (DESIGN §4)
+// # Stage requirements (docs/design.md §4)
 //
 // Requirements turns spec and plan into one Requirement per stage, on the
 // stage's own input axis:
@@ -41,7 +41,7 @@
 //     it free. In 265 invented designs with fa between 0.45 and 0.5 FK, 71
 //     had such gaps; leaving them open gave the same lengths in 70 and one
 //     tap fewer in one.) As the last stage the first band starts at fs (which
-//     Normalize keeps <= FK - fa, so this is DESIGN's min(fs, FK - fa)): the
+//     Normalize keeps <= FK - fa, so this is min(fs, FK - fa)): the
 //     output is then also a lowpass at fs on the final stage's own axis.
 //   - Lowpass FIR: one stopband [Fi - fa, F(i-1)/2]; as the last stage
 //     [fs, F(i-1)/2]. With fa = FK - fs this is Crochiere and Rabiner's
@@ -50,9 +50,9 @@
 //     edge is p = max(fp, fa) (its stopband [F(i-1)/2 - p, F(i-1)/2] must
 //     cover the alias band [Fi - fa, Fi]); as the last stage p = max(fp,
 //     FK - fs) so that its stopband starts at fs. It is feasible when p <
-//     Fi/2. Deviation from DESIGN: DESIGN allows a last half-band only when
-//     fs >= FK - fp, the case p = fp; we also accept a wider p, which keeps
-//     the passband flat further out and meets the same bands.
+//     Fi/2. A last half-band is not limited to fs >= FK - fp (the case
+//     p = fp): a wider p is accepted too, which keeps the passband flat
+//     further out and meets the same bands.
 //   - CIC: no design; its rejection is read on the same alias bands, its droop
 //     must be corrected by a later FIR stage. A CIC may stand anywhere in a
 //     plan (first is the usual place). Its registers are planned by
@@ -77,7 +77,7 @@
 //
 // # Stopband limits
 //
-// DESIGN §7 measures rejection relative to the whole cascade's gain at 0 Hz,
+// docs/design.md §7 measures rejection relative to the whole cascade's gain at 0 Hz,
 // |H(0)| = prod_j |H_j(0)|, and each ripple-bearing stage (FIR, half-band,
 // the compensator counted with the CICs it corrects) may sit anywhere in
 // [1 - dp_j, 1 + dp_j] there. An input g in one of stage i's alias bands
@@ -131,7 +131,7 @@
 // package fixed's data-path plan and bit-true run use the same widths.
 // HogenauerPruning gives his plan alone, unguarded, for comparison.
 //
-// # Estimates and designs (DESIGN §6)
+// # Estimates and designs (docs/design.md §6)
 //
 // Estimate sizes FIR stages by remez.HerrmannLength(dp_i, ds_i, first
 // stopband edge - passband edge, F(i-1)) and half-bands by the same formula
@@ -158,9 +158,9 @@
 // cancellation (about 100 ms) with no chain and an error wrapping
 // ctx.Err().
 //
-// # Analysis (DESIGN §7)
+// # Analysis (docs/design.md §7)
 //
-// Analyze measures alias rejection and passband ripple as DESIGN §7 defines
+// Analyze measures alias rejection and passband ripple as docs/design.md §7 defines
 // them, and certifies both: a figure it returns is never on the optimistic
 // side of the true response of the taps it was given.
 //

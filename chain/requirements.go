@@ -10,7 +10,7 @@ import (
 type Interval struct{ Lo, Hi float64 }
 
 // Requirement is what one stage must do, derived from the spec and the
-// stage's place in the chain (DESIGN §4). Frequencies are in Hz on the
+// stage's place in the chain (docs/design.md §4). Frequencies are in Hz on the
 // stage's input axis, within [0, InputRate/2].
 type Requirement struct {
 	Kind       Kind
@@ -31,7 +31,7 @@ type Requirement struct {
 	Dp, Ds float64
 	// StopbandScale (at most 1) is the factor by which the stage's absolute
 	// stopband limit is set below the target's ds so that the cascade's
-	// rejection relative to its gain at 0 Hz (DESIGN §7) meets the target:
+	// rejection relative to its gain at 0 Hz (docs/design.md §7) meets the target:
 	// prod_j (1 - dp_j) / prod_{j != i} (1 + dp_j) over the chain's ripple-
 	// bearing stages j (see the package doc). 1 for a chain without them.
 	StopbandScale float64
@@ -103,7 +103,7 @@ func validatePlan(plan []StagePlan, d int) error {
 }
 
 // Requirements derives every stage's requirement from the spec (normalised
-// here) and the plan (DESIGN §4, with the choices in the package doc).
+// here) and the plan (docs/design.md §4, with the choices in the package doc).
 func Requirements(spec Spec, plan []StagePlan) ([]Requirement, error) {
 	spec, err := spec.Normalize()
 	if err != nil {
@@ -232,7 +232,7 @@ func Requirements(spec Spec, plan []StagePlan) ([]Requirement, error) {
 // aliasBands returns the bands of a stage's input [0, in/2] that fold onto
 // [0, fa] at its output rate out: [k out - fa, k out + fa], k = 1..floor(D/2),
 // clipped and merged. For the last stage the first band starts at the final
-// stopband edge fs instead (DESIGN §4: min(fs, FK - fa), and fs <= FK - fa).
+// stopband edge fs instead (docs/design.md §4: min(fs, FK - fa), and fs <= FK - fa).
 func aliasBands(out, in, fa float64, last bool, fs float64) []Interval {
 	d := int(math.Round(in / out))
 	var bands []Interval

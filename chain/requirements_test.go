@@ -90,7 +90,7 @@ func TestRequirementsBands(t *testing.T) {
 	if err != nil {
 		t.Fatal(err)
 	}
-	// All hand-derived from DESIGN §4 and the package doc.
+	// All hand-derived from docs/design.md §4 and the package doc.
 	// CIC 64 -> 4 MHz: alias bands k 4 MHz +- 100 kHz, k = 1..8, the last
 	// clipped at 32 MHz.
 	cic := reqs[0]
@@ -161,7 +161,7 @@ func TestRequirementsKeepSlivers(t *testing.T) {
 	// fa = 49.711 kHz of FK/2 = 50 kHz leaves 578 Hz don't-care gaps between
 	// the alias bands [k 100 kHz - fa, k 100 kHz + fa] of a multiband FIR by 8
 	// (800 kHz in), k = 1..4, the last clipped at 400 kHz; they stay open
-	// (hand-derived from DESIGN §4 and the package doc), and the stage is
+	// (hand-derived from docs/design.md §4 and the package doc), and the stage is
 	// designed on them and the chain meets its spec.
 	sp := Spec{InputRate: 25.6e6, OutputRate: 100e3, Passband: 18.8e3, Protected: 49.711e3, RippleDB: 0.7, RejectionDB: 60}
 	plan, _ := ParseNotation("cic4m1r16 > hb > fir8")

@@ -6,7 +6,7 @@ import (
 )
 
 // Spec is what the user asks of the whole chain. Rates and frequencies in Hz,
-// ripple peak-to-peak dB, rejection positive dB (DESIGN §2-§3).
+// ripple peak-to-peak dB, rejection positive dB (docs/design.md §2-§3).
 type Spec struct {
 	InputRate   float64 // F0
 	OutputRate  float64 // FK
@@ -144,7 +144,7 @@ func (s Spec) Decimation() int {
 }
 
 // RippleToDev converts a peak-to-peak ripple in dB to the linear passband
-// deviation dp, inverting ripple_db = 20 log10((1+dp)/(1-dp)) (DESIGN §2).
+// deviation dp, inverting ripple_db = 20 log10((1+dp)/(1-dp)) (docs/design.md §2).
 func RippleToDev(rippleDB float64) float64 {
 	g := math.Pow(10, rippleDB/20)
 	return (g - 1) / (g + 1)

@@ -16,7 +16,7 @@ func TestNormalizeDefaults(t *testing.T) {
 	if err != nil {
 		t.Fatal(err)
 	}
-	// Defaults from DESIGN §3: fa = fp, fs = FK - fa; 16/24-bit words.
+	// Defaults from docs/design.md §3: fa = fp, fs = FK - fa; 16/24-bit words.
 	if s.Protected != 100e3 || s.Stopband != 150e3 || s.InputBits != 16 || s.OutputBits != 24 || s.CoefBits != 0 {
 		t.Errorf("defaults: %+v", s)
 	}
@@ -67,7 +67,7 @@ func TestNormalizeErrors(t *testing.T) {
 }
 
 func TestRippleConversion(t *testing.T) {
-	// ripple_db = 20 log10((1+dp)/(1-dp)) (DESIGN §2): dp = 0.01 gives
+	// ripple_db = 20 log10((1+dp)/(1-dp)) (docs/design.md §2): dp = 0.01 gives
 	// 20 log10(1.01/0.99) = 0.1737236 dB (hand computation).
 	if got := DevToRipple(0.01); math.Abs(got-0.1737236) > 1e-6 {
 		t.Errorf("DevToRipple(0.01) = %v", got)
@@ -80,7 +80,7 @@ func TestRippleConversion(t *testing.T) {
 }
 
 // FuzzNormalize: any spec either normalises to one that keeps every rule of
-// DESIGN §3, or gives a *SpecError; never a panic.
+// docs/design.md §3, or gives a *SpecError; never a panic.
 // Rates beyond what float64 arithmetic carries through every figure are
 // refused naming the field and the bound (rates near 1e308 Hz used to panic
 // in a grid sized from them, or give a non-finite bit-true SNR).

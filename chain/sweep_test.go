@@ -39,7 +39,7 @@ func randomPlan(rng *rand.Rand, d int) []StagePlan {
 }
 
 // TestDesignedChainSweep designs a seeded random set of invented chains and
-// holds each to DESIGN §7 on its real response: every plan the requirements
+// holds each to docs/design.md §7 on its real response: every plan the requirements
 // accept is designed at the engine's default grid, and its measured rejection
 // meets the target with the stopband limits of the package doc.
 func TestDesignedChainSweep(t *testing.T) {

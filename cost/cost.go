@@ -11,7 +11,7 @@ import (
 // Settings selects how a chain is priced. The zero value is the default:
 // symmetric coefficients are folded and no clock is given.
 type Settings struct {
-	NoSymmetry bool    // count every tap's multiply (DESIGN §5 default folds symmetry)
+	NoSymmetry bool    // count every tap's multiply (docs/design.md §5 default folds symmetry)
 	Clock      float64 // Hz; zero means no multipliers-at-clock figure
 }
 
@@ -29,7 +29,7 @@ type StageFigures struct {
 	Multipliers         int // hardware multipliers at Settings.Clock; 0 without a clock
 }
 
-// Figures is what a chain costs (DESIGN §5) and, for a designed chain, what it achieves (§7).
+// Figures is what a chain costs (docs/design.md §5) and, for a designed chain, what it achieves (§7).
 type Figures struct {
 	MultipliesPerOutput float64
 	AddsPerOutput       float64

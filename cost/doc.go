@@ -1,7 +1,7 @@
 // Package cost turns a decimation chain into the figures a hardware designer
-// prices it by (DESIGN §5): multiplies and adders per output sample, memory in
+// prices it by (docs/design.md §5): multiplies and adders per output sample, memory in
 // words and bits, latency, and the multipliers needed at a given clock; and,
-// through chain.Analyze, what the chain achieves (DESIGN §7).
+// through chain.Analyze, what the chain achieves (docs/design.md §7).
 //
 // # Conventions
 //
@@ -10,7 +10,7 @@
 // output is multiplied by the product of the later stages' factors
 // D(i+1)...DK. Counts are of real operations; a complex (I/Q) chain runs two
 // real filters, so multiplies, adders and data memory double while
-// coefficient memory does not (DESIGN §2).
+// coefficient memory does not (docs/design.md §2).
 //
 // # Formulas
 //

@@ -25,7 +25,7 @@ func testCascade() Cascade {
 
 func TestBitTrueAliasAgreesWithResponse(t *testing.T) {
 	// Issue 6: the alias level measured bit-true must agree with the
-	// frequency-domain rejection (DESIGN §7, on the quantised coefficients)
+	// frequency-domain rejection (docs/design.md §7, on the quantised coefficients)
 	// within 1 dB where quantisation noise is below the alias level.
 	c := testCascade()
 	for _, tc := range []struct {

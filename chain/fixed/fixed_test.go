@@ -227,7 +227,7 @@ func TestLocalSearchHelps(t *testing.T) {
 }
 
 func TestHalfBandQuantised(t *testing.T) {
-	// DESIGN §4: a half-band's zeros are exactly zero and its centre exactly
+	// docs/design.md §4: a half-band's zeros are exactly zero and its centre exactly
 	// 1/2; after quantisation the centre must be a power of two, 2^(Frac-1).
 	for _, k := range []int{3, 6, 11} {
 		h := kaiserHalfBand(k, 7)

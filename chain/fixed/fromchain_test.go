@@ -30,7 +30,7 @@ func handChain(t *testing.T) (chain.Spec, *chain.Chain) {
 }
 
 func TestFromChainAgainstChainPackage(t *testing.T) {
-	// The chain package owns the response (DESIGN §7): the bit-true run's
+	// The chain package owns the response (docs/design.md §7): the bit-true run's
 	// worst alias on the cascade must be chain.Analyze's on QuantisedChain,
 	// and this package's float run must agree with chain.Run.
 	spec, c := handChain(t)
@@ -116,7 +116,7 @@ func evaluateDesigned(t *testing.T, fp float64, notation string) {
 		}
 	}
 	// Every stage meets its own bands after quantisation, so the quantised
-	// cascade meets the spec's targets (DESIGN §4, §7), by chain.Analyze.
+	// cascade meets the spec's targets (docs/design.md §4, §7), by chain.Analyze.
 	a, err := chain.Analyze(QuantisedChain(c, res.Widths), spec)
 	if err != nil {
 		t.Fatal(err)

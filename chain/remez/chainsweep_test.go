@@ -9,7 +9,7 @@ import (
 )
 
 // TestChainSweep is a seeded randomized sweep of the multiband stages a
-// decimation chain asks for (DESIGN.md section 4): input rates of real
+// decimation chain asks for (docs/design.md §4): input rates of real
 // front ends, factors 2 to 61 (1 to 30 alias stopbands), protected bands
 // from a small fraction of the output Nyquist rate up to within 0.01 % of
 // it (gaps down to a few Hz between stopbands), ripple 0.1-5 %, rejection
@@ -50,7 +50,7 @@ func TestChainSweep(t *testing.T) {
 		}
 		done++
 		// Every third stage also corrects the droop of a CIC of order 3-6
-		// ahead of it (DESIGN.md section 4: desired 1/|H_cic|, error
+		// ahead of it (docs/design.md §4: desired 1/|H_cic|, error
 		// weighted by |H_cic|/dp as the chain package does).
 		var cic func(float64) float64
 		if done%3 == 0 {

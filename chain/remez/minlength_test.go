@@ -83,7 +83,7 @@ func TestMinLength(t *testing.T) {
 }
 
 // TestMinLengthCompensator: a final stage whose passband corrects a CIC's
-// droop, desired 1/|H_cic(f)| (DESIGN.md section 4), with a CIC of order 4,
+// droop, desired 1/|H_cic(f)| (docs/design.md §4), with a CIC of order 4,
 // R = 8, M = 1 ahead of it at 8x the rate.
 func TestMinLengthCompensator(t *testing.T) {
 	rate := 1e6

@@ -7,7 +7,7 @@ import (
 	"testing"
 )
 
-// aliasBands returns the bands of a decimating stage as DESIGN.md section 4
+// aliasBands returns the bands of a decimating stage as docs/design.md §4
 // lays them out: the passband [0, fp] and the bands [k Fi - fa, k Fi + fa],
 // k = 1 .. floor(D/2), that fold onto [0, fa] at the output rate
 // Fi = rate/D, clipped to [0, rate/2] and merged where they overlap. With fa
@@ -78,7 +78,7 @@ func TestNarrowGaps(t *testing.T) {
 			// Stopbands only shrink the free region, never below what the
 			// single pass-stop transition needs; the gaps add freedom, so the
 			// answer stays near the lowpass estimate ("off by a few taps",
-			// DESIGN.md section 6; 30 % allowed for the multiband shape).
+			// docs/design.md §6; 30 % allowed for the multiband shape).
 			if n > est*13/10+4 {
 				t.Errorf("%d taps, far beyond the estimate %d", n, est)
 			}

@@ -76,7 +76,7 @@ func TestDeepWeightFuncLax(t *testing.T) {
 }
 
 // TestGainFuncEquiripple: a CIC compensator (desired 1/|H_cic(f)|, order
-// 5, R M = 16, DESIGN.md section 4) designed directly is equiripple in its
+// 5, R M = 16, docs/design.md §4) designed directly is equiripple in its
 // passband, measured here on the taps.
 func TestGainFuncEquiripple(t *testing.T) {
 	rate := 1.0

@@ -391,7 +391,7 @@ func responseData(cand optimize.Candidate, spec *specfile.Spec, notation string)
 			rd.Stages[i].DB[k] = db(st.Gain(g, rates[i]))
 		}
 	}
-	// The bands that fold onto the protected band at the output (DESIGN §7).
+	// The bands that fold onto the protected band at the output (docs/design.md §7).
 	fk, fa := cs.OutputRate, cs.Protected
 	// The first 64 bands, which the near panel shows, are drawn as they are;
 	// later ones closer than a 4096th of the axis to the previous one join

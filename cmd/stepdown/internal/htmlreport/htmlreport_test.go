@@ -120,7 +120,7 @@ func samplePage(t testing.TB) (PlanPage, []report.File) {
 	}
 	fd.Recommended, fd.TargetDB = 1, 80
 	front := svgOf(t)(plots.Front(fd))
-	// A fifth-order CIC's gain (DESIGN.md §4) stands in for the cascade.
+	// A fifth-order CIC's gain (docs/design.md §4) stands in for the cascade.
 	rd := plots.ResponseData{TargetDB: 80, PassbandHz: 480e3, OutputRateHz: 1.92e6}
 	for k := 0; k <= 2000; k++ {
 		g := 61.44e6 * float64(k) / 2000

@@ -79,7 +79,7 @@ func TestParseDefaults(t *testing.T) {
 		t.Fatal(err)
 	}
 	c := s.Chain
-	// DESIGN §3: protected defaults to passband, stopband to output_rate - protected.
+	// docs/design.md §3: protected defaults to passband, stopband to output_rate - protected.
 	if c.Protected != 600e3 || c.Stopband != 1.92e6-600e3 || c.Complex {
 		t.Errorf("defaults = %+v", c)
 	}
