@@ -487,10 +487,10 @@ func search(ctx context.Context, p params, s *Settings, est *estimator, des desi
 	case len(res.Front) == 0 && !res.Partial && res.Dropped[ReasonMissQuantised] > 0:
 		res.Reason = t.widthReason(p.fixedBits)
 		if res.Unsettled > 0 {
-			res.Reason += fmt.Sprintf(" The design budget (MaxDesigns, MaxWork) left %d candidates undesigned.", res.Unsettled)
+			res.Reason += fmt.Sprintf(" The design budget (a fixed amount of design work per run) left %d candidates undesigned.", res.Unsettled)
 		}
 	case len(res.Front) == 0 && !res.Partial && res.Unsettled > 0:
-		res.Reason = fmt.Sprintf("No chain was designed within the design budget (MaxDesigns, MaxWork) at a tap limit of %d; %d candidates were left undesigned.", est.maxTaps, res.Unsettled)
+		res.Reason = fmt.Sprintf("No chain was designed within the design budget (a fixed amount of design work per run) at a tap limit of %d; %d candidates were left undesigned.", est.maxTaps, res.Unsettled)
 	case len(res.Front) == 0 && !res.Partial:
 		res.Reason = "No chain met the spec; Dropped says why each candidate was set aside."
 	case len(res.Front) > 0 && est.maxTaps > first:

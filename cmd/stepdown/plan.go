@@ -193,7 +193,12 @@ func runPlan(c *cli.Context) error {
 func emptyFront(res *optimize.Result, dir string) error {
 	msg := "no chain meets the spec"
 	if r := strings.Join(strings.Fields(specfile.InFileTerms(res.Reason)), " "); r != "" {
-		msg += ": " + strings.TrimSuffix(r, ".")
+		r = strings.TrimSuffix(r, ".")
+		if strings.HasPrefix(strings.ToLower(r), msg) {
+			msg = r // the reason already says it
+		} else {
+			msg += ": " + r
+		}
 	}
 	return fmt.Errorf("%s (dropped: %s); %s left as it was", msg, droppedText(res.Dropped), dir)
 }
