@@ -12,7 +12,6 @@ import (
 	"sort"
 
 	"stepdown/chain"
-	"stepdown/chain/fixed"
 	"stepdown/cmd/stepdown/internal/report"
 	"stepdown/cmd/stepdown/internal/specfile"
 	"stepdown/optimize"
@@ -303,7 +302,7 @@ func buildFiles(rep *report.Report, res *optimize.Result, spec *specfile.Spec) (
 	}
 
 	cand := res.Front[rec]
-	rd, err := responseData(cand, spec, rep.Front[rec].Notation)
+	rd, err := responseData(cand, spec, rep.Front[rec])
 	if err != nil {
 		return nil, err
 	}
@@ -354,15 +353,16 @@ func finite(v float64) bool { return !math.IsNaN(v) && !math.IsInf(v, 0) }
 
 // responseData samples the recommended cascade's gain, and each stage's, on
 // a grid from 0 to half the input rate, through the library's Gain methods:
-// with its taps rounded (fixed.PlanChain, as the report judges it) when the
-// spec sets a coefficient width or "auto", as designed otherwise.
-func responseData(cand optimize.Candidate, spec *specfile.Spec, notation string) (plots.ResponseData, error) {
+// with its taps rounded (the report's coefficients_int, as the verdict
+// judges them) when the spec sets a coefficient width or "auto", as designed
+// otherwise.
+func responseData(cand optimize.Candidate, spec *specfile.Spec, ch report.Chain) (plots.ResponseData, error) {
 	c := cand.Chain
 	cs := spec.Chain
-	title := "Cascade response: " + notation
+	title := "Cascade response: " + ch.Notation
 	if spec.CoefMode() != "float" {
-		if ws, _, err := fixed.PlanChain(cs, c, spec.FixedSettings()); err == nil {
-			c = fixed.QuantisedChain(c, ws)
+		if q := roundedChain(c, ch); q != nil {
+			c = q
 			title += " (taps rounded)"
 		}
 	}
@@ -407,6 +407,34 @@ func responseData(cand optimize.Candidate, spec *specfile.Spec, notation string)
 		rd.AliasBands = append(rd.AliasBands, [2]float64{lo, hi})
 	}
 	return rd, nil
+}
+
+// roundedChain returns a copy of c whose FIR and half-band taps are the
+// report's rounded coefficients (coefficients_int x 2^-coefficient_frac), or
+// nil when the report has none for some stage.
+func roundedChain(c *chain.Chain, ch report.Chain) *chain.Chain {
+	if len(ch.Stages) != len(c.Stages) {
+		return nil
+	}
+	q := *c
+	q.Stages = append([]chain.Stage(nil), c.Stages...)
+	for i, s := range q.Stages {
+		st, ok := s.(chain.FIRStage)
+		if !ok {
+			continue
+		}
+		sr := ch.Stages[i].StageReport
+		if sr == nil || sr.CoefficientFrac == nil || len(sr.CoefficientsInt) != len(st.Taps) {
+			return nil
+		}
+		taps := make([]float64, len(sr.CoefficientsInt))
+		for k, v := range sr.CoefficientsInt {
+			taps[k] = math.Ldexp(float64(v), -*sr.CoefficientFrac)
+		}
+		st.Taps = taps
+		q.Stages[i] = st
+	}
+	return &q
 }
 
 // stageName is stage i's own notation, such as "cic4m1r8" or "hb".

@@ -7,7 +7,9 @@ import (
 	"fmt"
 	"math"
 	"reflect"
+	"runtime"
 	"strings"
+	"sync"
 
 	"stepdown/chain"
 	"stepdown/chain/fixed"
@@ -370,9 +372,27 @@ func NewContext(ctx context.Context, command string, s *specfile.Spec, res *opti
 		if err != nil {
 			return nil, err
 		}
-		AddWordLengths(ctx, &c, s.Chain, cand, fs, hw, s.CoefMode() != "float")
 		r.Front = append(r.Front, c)
 	}
+	// The word-length plans are independent: they run on every core, each
+	// writing only its own chain, so the report is the same whatever the
+	// number of cores.
+	var wg sync.WaitGroup
+	next := make(chan int)
+	for w := 0; w < min(runtime.GOMAXPROCS(0), len(r.Front)); w++ {
+		wg.Add(1)
+		go func() {
+			defer wg.Done()
+			for i := range next {
+				AddWordLengths(ctx, &r.Front[i], s.Chain, res.Front[i], fs, hw, s.CoefMode() != "float")
+			}
+		}()
+	}
+	for i := range r.Front {
+		next <- i
+	}
+	close(next)
+	wg.Wait()
 	if len(r.Front) > 0 && (r.Recommended < 0 || r.Recommended >= len(r.Front)) {
 		return nil, fmt.Errorf("report: recommended index %d outside the front of %d chains", r.Recommended, len(r.Front))
 	}
