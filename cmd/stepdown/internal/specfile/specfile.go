@@ -766,7 +766,7 @@ var libraryPhrases = []struct {
 	{regexp.MustCompile(`\b(?:chain|optimize|remez|fixed): `), ""},
 	{regexp.MustCompile(`lower MaxStages or narrow Kinds, CICOrders or CICDelays`),
 		"lower search.max_stages (or --max-stages) or narrow search.kinds, search.cic_orders or search.cic_delays"},
-	{regexp.MustCompile(`the design budget \(MaxDesigns, MaxWork\)`),
+	{regexp.MustCompile(`the design budget \((?:MaxDesigns, MaxWork|a fixed amount of design work per run)\)`),
 		"the design budget (a fixed amount of design work per run: lower search.max_stages or --max-stages, narrow search.kinds or search.cic_orders, or relax ripple or rejection, so that fewer or shorter filters are designed)"},
 	{regexp.MustCompile(`Dropped says why each candidate was set aside\.?`),
 		"the dropped counts say why candidates were set aside"},
