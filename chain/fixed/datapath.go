@@ -503,7 +503,14 @@ func planFIR(st Stage, rate float64, in, ob, coefBits int, s Settings, minBits i
 			sw.MultiplierA = in + 1 // pre-adder output
 		}
 	}
+	// Data memory as package cost counts it (one definition): a polyphase
+	// FIR keeps its n taps' worth of input words; a half-band of 4K-1 taps
+	// keeps 2K words for its even branch and K for the branch holding the
+	// centre tap, 3K in all (its other odd taps are zero).
 	sw.DataMemoryBits = n * in
+	if st.HalfBand {
+		sw.DataMemoryBits = 3 * ((n + 1) / 4) * in
+	}
 	return sw, nil
 }
 

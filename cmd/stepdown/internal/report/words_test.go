@@ -226,3 +226,35 @@ coefficients = "auto"
 		t.Error("report.json has a bit-true SNR for a chain that was not run")
 	}
 }
+
+// With a fixed coefficient width the search's memory (package cost) and the
+// word-length plan's (fixed_memory_bits) are one definition: a CIC comb
+// stores M words, a polyphase FIR its n taps' worth of input words, a
+// half-band of 4K-1 taps 3K (its even branch 2K, the centre's branch K).
+// Complex and real, with and without a half-band, CIC delays 1 and 2.
+func TestMemoryOneDefinition(t *testing.T) {
+	for _, tc := range []struct{ signal, notation string }{
+		{"real", "cic3m1r8 > hb > fir2"},
+		{"complex", "cic3m2r8 > hb > fir2"},
+		{"real", "cic4m1r4 > fir4 > hb"},
+		{"complex", "fir4 > hb > hb > fir2"},
+	} {
+		s, res := designed(t, `input_rate = "16 MHz"
+output_rate = "500 kHz"
+passband = "100 kHz"
+ripple = "0.5 dB"
+rejection = "70 dB"
+signal = "`+tc.signal+`"
+[words]
+coefficients = 16
+`, tc.notation)
+		r, err := New("plan", s, res)
+		if err != nil {
+			t.Fatal(err)
+		}
+		ch := r.Front[0]
+		if ch.ChainReport == nil || ch.FixedMemoryBits != ch.MemoryBits {
+			t.Errorf("%s (%s): memory_bits %d, fixed_memory_bits %+v (%s)", tc.notation, tc.signal, ch.MemoryBits, ch.ChainReport, ch.WordLengthsError)
+		}
+	}
+}
