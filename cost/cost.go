@@ -1,6 +1,7 @@
 package cost
 
 import (
+	"context"
 	"errors"
 	"fmt"
 	"math"
@@ -49,6 +50,12 @@ type Figures struct {
 // Evaluate turns a chain into all of its figures. It is the one call the
 // optimiser and the command line both use.
 func Evaluate(spec chain.Spec, c *chain.Chain, s Settings) (Figures, error) {
+	return EvaluateContext(context.Background(), spec, c, s)
+}
+
+// EvaluateContext is Evaluate whose cascade analysis stops once ctx is done
+// (chain.AnalyzeContext), returning an error wrapping ctx.Err().
+func EvaluateContext(ctx context.Context, spec chain.Spec, c *chain.Chain, s Settings) (Figures, error) {
 	spec, err := spec.Normalize()
 	if err != nil {
 		return Figures{}, err
@@ -57,7 +64,7 @@ func Evaluate(spec chain.Spec, c *chain.Chain, s Settings) (Figures, error) {
 	if err != nil {
 		return Figures{}, err
 	}
-	a, err := chain.Analyze(c, spec)
+	a, err := chain.AnalyzeContext(ctx, c, spec)
 	if err != nil {
 		return Figures{}, err
 	}

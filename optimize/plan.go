@@ -208,7 +208,7 @@ func (r realDesigner) analyze(c Candidate) (Candidate, string) {
 	f := c.Figures
 	if !c.evaluated {
 		var err error
-		if f, err = cost.Evaluate(r.spec, c.Chain, r.s.Cost); err != nil {
+		if f, err = cost.EvaluateContext(r.ctx, r.spec, c.Chain, r.s.Cost); err != nil {
 			return Candidate{}, ReasonEvaluateFailed
 		}
 	}
@@ -229,7 +229,7 @@ func (r realDesigner) analyze(c Candidate) (Candidate, string) {
 		if err != nil {
 			break
 		}
-		g, err := cost.Evaluate(r.spec, ch, r.s.Cost)
+		g, err := cost.EvaluateContext(r.ctx, r.spec, ch, r.s.Cost)
 		if err != nil {
 			break
 		}
@@ -321,7 +321,7 @@ func (r realDesigner) survive(c Candidate, spec chain.Spec) (Candidate, string) 
 			break
 		}
 		if !cur.evaluated {
-			g, err := cost.Evaluate(spec, cur.Chain, r.s.Cost)
+			g, err := cost.EvaluateContext(r.ctx, spec, cur.Chain, r.s.Cost)
 			if err != nil {
 				return c, ReasonEvaluateFailed
 			}
@@ -356,7 +356,7 @@ func (r realDesigner) survive(c Candidate, spec chain.Spec) (Candidate, string) 
 		if err != nil {
 			break
 		}
-		g, err := cost.Evaluate(spec, ch, r.s.Cost)
+		g, err := cost.EvaluateContext(r.ctx, spec, ch, r.s.Cost)
 		if err != nil {
 			break
 		}
@@ -382,7 +382,7 @@ func (r realDesigner) survive(c Candidate, spec chain.Spec) (Candidate, string) 
 // when none does or ctx is cancelled.
 func (r realDesigner) meetsFrom(c Candidate, lo, hi int) int {
 	if !c.evaluated {
-		f, err := cost.Evaluate(r.spec, c.Chain, r.s.Cost)
+		f, err := cost.EvaluateContext(r.ctx, r.spec, c.Chain, r.s.Cost)
 		if err != nil || floatMisses(r.spec, f.Analysis) != "" {
 			return 0
 		}

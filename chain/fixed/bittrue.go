@@ -299,7 +299,7 @@ func BitTrueContext(ctx context.Context, c Cascade, w *Widths, sig Signal) (BitT
 		res.WorstAliasResponseDB = posDB(q.Gain(g) / q.Gain(0))
 	} else {
 		// The worst alias is chain.Analyze's, on the quantised cascade.
-		a, err := chain.Analyze(q, qspec)
+		a, err := chain.AnalyzeContext(ctx, q, qspec)
 		if err != nil {
 			return BitTrueResult{}, fmt.Errorf("fixed: the quantised cascade's worst alias: %w", err)
 		}

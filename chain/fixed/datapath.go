@@ -453,6 +453,9 @@ func planFIR(st Stage, rate float64, in, ob, coefBits int, s Settings, minBits i
 			return StageWidths{}, err
 		}
 		sw.Coefficients, sw.Deviations, sw.MeetsBands = TryWidth(st.Taps, rate, bands, coefBits, q)
+		if q.stopped() {
+			return StageWidths{}, fmt.Errorf("coefficient rounding stopped: %w", q.ctx.Err())
+		}
 		if sw.Coefficients.Bits == 0 {
 			return StageWidths{}, fmt.Errorf("words CoefBits = %d: too narrow for the half-band's centre 1/2", coefBits)
 		}

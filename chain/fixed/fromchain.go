@@ -145,6 +145,7 @@ func planChain(ctx context.Context, spec chain.Spec, c *chain.Chain, s Settings)
 	if err != nil {
 		return Cascade{}, nil, chain.Analysis{}, err
 	}
+	s.Quant.ctx = ctx
 	ws, err := Plan(cas, w, s)
 	if err != nil {
 		return Cascade{}, nil, chain.Analysis{}, err
@@ -152,7 +153,7 @@ func planChain(ctx context.Context, spec chain.Spec, c *chain.Chain, s Settings)
 	if err := ctx.Err(); err != nil {
 		return Cascade{}, nil, chain.Analysis{}, planStopped(err)
 	}
-	a, err := chain.Analyze(QuantisedChain(c, ws), spec)
+	a, err := chain.AnalyzeContext(ctx, QuantisedChain(c, ws), spec)
 	if err != nil {
 		return Cascade{}, nil, chain.Analysis{}, err
 	}
@@ -187,7 +188,7 @@ func widen(ctx context.Context, spec chain.Spec, c *chain.Chain, cas Cascade, w 
 	if err != nil {
 		return nil, chain.Analysis{}, err
 	}
-	fa, err := chain.Analyze(c, spec)
+	fa, err := chain.AnalyzeContext(ctx, c, spec)
 	if err != nil {
 		return nil, chain.Analysis{}, err
 	}
@@ -215,7 +216,7 @@ func widen(ctx context.Context, spec chain.Spec, c *chain.Chain, cas Cascade, w 
 		if err != nil {
 			return nil, chain.Analysis{}, err
 		}
-		na, err := chain.Analyze(QuantisedChain(c, next), spec)
+		na, err := chain.AnalyzeContext(ctx, QuantisedChain(c, next), spec)
 		if err != nil {
 			return nil, chain.Analysis{}, err
 		}

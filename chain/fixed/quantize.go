@@ -1,6 +1,7 @@
 package fixed
 
 import (
+	"context"
 	"errors"
 	"fmt"
 	"math"
@@ -316,7 +317,14 @@ type QuantSettings struct {
 	HalfBand bool
 	// Density is the grid density of the measurement; zero means 16.
 	Density int
+
+	// ctx, set by PlanChainContext and EvaluateContext, stops the width
+	// search between trial moves and widths; nil never stops.
+	ctx context.Context
 }
+
+// stopped says whether s's context is done.
+func (s QuantSettings) stopped() bool { return s.ctx != nil && s.ctx.Err() != nil }
 
 // ErrNoWidth is wrapped by MinCoefBits when no width up to MaxBits meets the bands.
 var ErrNoWidth = errors.New("fixed: no coefficient width meets the bands")
@@ -360,6 +368,9 @@ func MinCoefBits(taps []float64, rate float64, bands []remez.Band, s QuantSettin
 	}
 	var best []float64
 	for bits := s.MinBits; bits <= s.MaxBits; bits++ {
+		if s.stopped() {
+			return Coefficients{}, nil, fmt.Errorf("fixed: coefficient width search stopped: %w", s.ctx.Err())
+		}
 		c, dev, ok := tryWidth(taps, rate, bands, bits, s, bits == s.MaxBits)
 		if ok {
 			return c, dev, nil
@@ -458,11 +469,12 @@ type search struct {
 	cur    float64 // score of the current codes
 	n      int
 	rate   float64
+	stop   func() bool
 }
 
 func newSearch(taps []float64, rate float64, bands []remez.Band, c Coefficients, s QuantSettings) *search {
 	n := len(taps)
-	ls := &search{c: c, bands: bands, budget: s.Budget, n: n, rate: rate}
+	ls := &search{c: c, bands: bands, budget: s.Budget, n: n, rate: rate, stop: s.stopped}
 	ls.c.Ints = append([]int64(nil), c.Ints...)
 	density := s.Density
 	if density <= 0 {
@@ -559,7 +571,7 @@ func (ls *search) move(k int, d int64) {
 // run makes trial moves until one lowers the score; it reports false when the
 // budget or the candidates are exhausted.
 func (ls *search) run() bool {
-	for ls.budget > 0 && len(ls.cand) > 0 {
+	for ls.budget > 0 && len(ls.cand) > 0 && !ls.stop() {
 		if ls.next >= len(ls.cand) {
 			ls.next = 0
 		}

@@ -2,6 +2,7 @@ package main
 
 import (
 	"bytes"
+	"context"
 	"crypto/rand"
 	"encoding/hex"
 	"errors"
@@ -261,8 +262,10 @@ func responseGrid(f0, fk float64) []float64 {
 	return out
 }
 
-// buildFiles renders every output file in memory, report.json first.
-func buildFiles(rep *report.Report, res *optimize.Result, spec *specfile.Spec) ([]report.File, error) {
+// buildFiles renders every output file in memory, report.json first. ctx
+// (an interrupt) stops it between figures, each of which takes a fraction
+// of a second.
+func buildFiles(ctx context.Context, rep *report.Report, res *optimize.Result, spec *specfile.Spec) ([]report.File, error) {
 	js, err := rep.Marshal()
 	if err != nil {
 		return nil, err
@@ -294,7 +297,7 @@ func buildFiles(rep *report.Report, res *optimize.Result, spec *specfile.Spec) (
 		return nil, fmt.Errorf("front plot: %v", err)
 	}
 	for _, ext := range []string{"svg", "png"} {
-		b, err := render(frontFig, ext)
+		b, err := render(ctx, frontFig, ext)
 		if err != nil {
 			return nil, fmt.Errorf("front.%s: %v", ext, err)
 		}
@@ -311,7 +314,7 @@ func buildFiles(rep *report.Report, res *optimize.Result, spec *specfile.Spec) (
 		return nil, fmt.Errorf("response plot: %v", err)
 	}
 	for _, ext := range []string{"svg", "png"} {
-		b, err := render(respFig, ext)
+		b, err := render(ctx, respFig, ext)
 		if err != nil {
 			return nil, fmt.Errorf("response.%s: %v", ext, err)
 		}
@@ -328,7 +331,7 @@ func buildFiles(rep *report.Report, res *optimize.Result, spec *specfile.Spec) (
 	if err != nil {
 		return nil, fmt.Errorf("stages plot: %v", err)
 	}
-	b, err := render(stFig, "svg")
+	b, err := render(ctx, stFig, "svg")
 	if err != nil {
 		return nil, fmt.Errorf("stages.svg: %v", err)
 	}
@@ -341,12 +344,32 @@ func buildFiles(rep *report.Report, res *optimize.Result, spec *specfile.Spec) (
 	return append(files, cf...), nil
 }
 
-func render(f *plots.Figure, format string) ([]byte, error) {
-	var buf bytes.Buffer
-	if err := f.Render(&buf, format, 0, 0); err != nil {
+// render draws f in format. A PNG of a dense response takes up to about a
+// second, so the drawing runs on its own goroutine and an interrupt (ctx)
+// returns at once, abandoning it: the command is about to exit.
+func render(ctx context.Context, f *plots.Figure, format string) ([]byte, error) {
+	if err := ctx.Err(); err != nil {
 		return nil, err
 	}
-	return buf.Bytes(), nil
+	type result struct {
+		b   []byte
+		err error
+	}
+	done := make(chan result, 1)
+	go func() {
+		var buf bytes.Buffer
+		err := f.Render(&buf, format, 0, 0)
+		done <- result{buf.Bytes(), err}
+	}()
+	select {
+	case r := <-done:
+		if r.err != nil {
+			return nil, r.err
+		}
+		return r.b, nil
+	case <-ctx.Done():
+		return nil, ctx.Err()
+	}
 }
 
 func finite(v float64) bool { return !math.IsNaN(v) && !math.IsInf(v, 0) }

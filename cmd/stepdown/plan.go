@@ -313,10 +313,16 @@ func (j *job) finish(ctx context.Context, command string, res *optimize.Result) 
 	if err != nil {
 		return err
 	}
+	if j.c.Context.Err() != nil {
+		return fmt.Errorf("interrupted; %s left as it was", clip(j.out.dir))
+	}
 	if command == "check" && len(rep.Front) == 1 {
 		rep.Reason = checkReason(rep.Front[0], rep.Spec)
 	}
-	files, err := buildFiles(rep, res, j.spec)
+	files, err := buildFiles(j.c.Context, rep, res, j.spec)
+	if j.c.Context.Err() != nil {
+		return fmt.Errorf("interrupted; %s left as it was", clip(j.out.dir))
+	}
 	if err != nil {
 		return err
 	}
