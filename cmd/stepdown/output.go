@@ -11,6 +11,7 @@ import (
 	"os"
 	"path/filepath"
 	"sort"
+	"sync"
 
 	"stepdown/chain"
 	"stepdown/cmd/stepdown/internal/report"
@@ -296,14 +297,6 @@ func buildFiles(ctx context.Context, rep *report.Report, res *optimize.Result, s
 	if err != nil {
 		return nil, fmt.Errorf("front plot: %v", err)
 	}
-	for _, ext := range []string{"svg", "png"} {
-		b, err := render(ctx, frontFig, ext)
-		if err != nil {
-			return nil, fmt.Errorf("front.%s: %v", ext, err)
-		}
-		files = append(files, report.File{Name: "front." + ext, Data: b})
-	}
-
 	cand := res.Front[rec]
 	rd, err := responseData(cand, spec, rep.Front[rec])
 	if err != nil {
@@ -312,13 +305,6 @@ func buildFiles(ctx context.Context, rep *report.Report, res *optimize.Result, s
 	respFig, err := plots.Response(rd)
 	if err != nil {
 		return nil, fmt.Errorf("response plot: %v", err)
-	}
-	for _, ext := range []string{"svg", "png"} {
-		b, err := render(ctx, respFig, ext)
-		if err != nil {
-			return nil, fmt.Errorf("response.%s: %v", ext, err)
-		}
-		files = append(files, report.File{Name: "response." + ext, Data: b})
 	}
 
 	sd := plots.StagesData{Title: "Cost by stage: " + rep.Front[rec].Notation}
@@ -331,17 +317,62 @@ func buildFiles(ctx context.Context, rep *report.Report, res *optimize.Result, s
 	if err != nil {
 		return nil, fmt.Errorf("stages plot: %v", err)
 	}
-	b, err := render(ctx, stFig, "svg")
+
+	figs, err := renderAll(ctx, []figureFiles{
+		{"front", frontFig, []string{"svg", "png"}},
+		{"response", respFig, []string{"svg", "png"}},
+		{"stages", stFig, []string{"svg"}},
+	})
 	if err != nil {
-		return nil, fmt.Errorf("stages.svg: %v", err)
+		return nil, err
 	}
-	files = append(files, report.File{Name: "stages.svg", Data: b})
+	files = append(files, figs...)
 
 	cf, err := report.CoefficientFiles(rep.Front[rec], spec.CoefMode() != "float")
 	if err != nil {
 		return nil, err
 	}
 	return append(files, cf...), nil
+}
+
+// figureFiles is one figure and the formats it is written in, as
+// NAME.FORMAT.
+type figureFiles struct {
+	name    string
+	fig     *plots.Figure
+	formats []string
+}
+
+// renderAll draws the figures at once, one goroutine each (a figure's
+// formats in turn), and returns their files in the order given, so the
+// bytes do not depend on which finishes first.
+func renderAll(ctx context.Context, figs []figureFiles) ([]report.File, error) {
+	out := make([][]report.File, len(figs))
+	errs := make([]error, len(figs))
+	var wg sync.WaitGroup
+	for i, f := range figs {
+		wg.Add(1)
+		go func() {
+			defer wg.Done()
+			for _, ext := range f.formats {
+				b, err := render(ctx, f.fig, ext)
+				if err != nil {
+					errs[i] = fmt.Errorf("%s.%s: %v", f.name, ext, err)
+					return
+				}
+				out[i] = append(out[i], report.File{Name: f.name + "." + ext, Data: b})
+			}
+		}()
+	}
+	wg.Wait()
+	var files []report.File
+	for i := range figs {
+		if errs[i] != nil {
+			return nil, errs[i]
+		}
+		files = append(files, out[i]...)
+	}
+	return files, nil
 }
 
 // render draws f in format. A PNG of a dense response takes up to about a

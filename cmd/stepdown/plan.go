@@ -19,7 +19,6 @@ import (
 	"stepdown/cmd/stepdown/internal/report"
 	"stepdown/cmd/stepdown/internal/specfile"
 	"stepdown/cmd/stepdown/internal/units"
-	"stepdown/cost"
 	"stepdown/optimize"
 )
 
@@ -239,7 +238,12 @@ func runCheck(c *cli.Context) error {
 		return usagef("--chain %q: its factors multiply to %d, but input_rate/output_rate = %d", clip(notation), d, want)
 	}
 	set := j.spec.SearchSettings()
-	ch, err := chain.Design(j.spec.Chain, plan, set.Chain)
+	// The chain is designed and measured exactly as plan's search does
+	// (optimize.Check), so the notation plan prints gives the same figures.
+	cand, _, err := optimize.Check(c.Context, j.spec.Chain, plan, set)
+	if c.Context.Err() != nil {
+		return fmt.Errorf("interrupted; %s left as it was", clip(j.out.dir))
+	}
 	if err != nil {
 		var pe *chain.PlanError
 		if errors.As(err, &pe) {
@@ -251,14 +255,6 @@ func runCheck(c *cli.Context) error {
 		}
 		return fmt.Errorf("check: %s", specfile.InFileTerms(err.Error()))
 	}
-	if c.Context.Err() != nil {
-		return fmt.Errorf("interrupted; %s left as it was", clip(j.out.dir))
-	}
-	fig, err := cost.Evaluate(j.spec.Chain, ch, set.Cost)
-	if err != nil {
-		return fmt.Errorf("check: %s", specfile.InFileTerms(err.Error()))
-	}
-	cand := optimize.Candidate{Plan: plan, Chain: ch, Figures: fig, MarginDB: fig.Analysis.AliasRejectionDB - j.spec.Chain.RejectionDB}
 	res := &optimize.Result{
 		Candidates: 1, Designed: 1, Dropped: map[string]int{},
 		Front: []optimize.Candidate{cand}, Recommended: 0, FeasibleAll: 1,
