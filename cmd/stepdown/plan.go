@@ -19,6 +19,7 @@ import (
 	"stepdown/cmd/stepdown/internal/report"
 	"stepdown/cmd/stepdown/internal/specfile"
 	"stepdown/cmd/stepdown/internal/units"
+	"stepdown/cost"
 	"stepdown/optimize"
 )
 
@@ -534,7 +535,11 @@ func printTable(w io.Writer, rep *report.Report) {
 		if c := rep.Spec.Words.Coefficients; c != nil {
 			what = fmt.Sprintf("rounded to %d bits", *c)
 		}
-		fmt.Fprintf(w, "* with the taps %s, as they will be built; the verdict is judged on them (report.json also holds the float design's figures)\n", what)
+		fmt.Fprintf(w, "* the worse of the float design and its taps %s, as they will be built: the verdict needs both to meet", what)
+		if rep.Spec.Words.CoefficientsMode == "auto" {
+			fmt.Fprintf(w, "; memory counts %d-bit coefficient words, report.json's fixed_memory_bits the chosen widths", cost.FloatCoefBits)
+		}
+		fmt.Fprintln(w)
 	}
 }
 

@@ -450,11 +450,13 @@ func nonFinite(v reflect.Value, path string) string {
 }
 
 // BuiltFigures returns the alias rejection and passband ripple the verdict
-// is judged on: those of the rounded taps when VerdictBasis is "rounded
-// taps" and they were measured, the float design's otherwise.
+// is judged on: when VerdictBasis is "rounded taps" and they were measured,
+// the worse of the float design's and the rounded taps' (the verdict needs
+// both to meet; the rounded taps' are nearly always the worse), the float
+// design's otherwise. RejectionMarginDB is the first less the target.
 func (c *Chain) BuiltFigures() (rejectionDB, rippleDB float64) {
 	if c.VerdictBasis == "rounded taps" && c.ChainReport != nil {
-		return c.QuantisedRejectionDB, c.QuantisedRippleDB
+		return math.Min(c.QuantisedRejectionDB, c.AliasRejectionDB), math.Max(c.QuantisedRippleDB, c.PassbandRippleDB)
 	}
 	return c.AliasRejectionDB, c.PassbandRippleDB
 }
@@ -470,5 +472,5 @@ func (c *Chain) BitTrueSummary() string {
 	case !c.BitTrueSNRValid || c.BitTrueSNRDB == nil || c.BitTrueENOB == nil:
 		return "bit-true SNR not meaningful (" + c.BitTrueSNRNote + ")"
 	}
-	return fmt.Sprintf("bit-true SNR %.1f dB, ENOB %.2f bits", *c.BitTrueSNRDB, *c.BitTrueENOB)
+	return fmt.Sprintf("data path against the float chain: bit-true SNR %.1f dB, ENOB %.2f bits (the ADC word alone: %.1f dB)", *c.BitTrueSNRDB, *c.BitTrueENOB, c.InputSNRDB)
 }
