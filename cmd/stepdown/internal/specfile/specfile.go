@@ -278,15 +278,60 @@ func (p *parser) checkKeys(md toml.MetaData) error {
 }
 
 // suggest returns the known key that differs from k only in case or in the
-// separator, if any.
+// separator, or else the one key within two edits (letters inserted,
+// deleted, changed or swapped, after that normalisation) of a key of four
+// letters or more, if any: a typing slip such as "rejecton".
 func suggest(k string) string {
 	norm := func(s string) string { return strings.ReplaceAll(strings.ToLower(s), "-", "_") }
+	nk := norm(k)
 	for _, kk := range known {
-		if norm(kk.path) == norm(k) {
+		if norm(kk.path) == nk {
 			return kk.path
 		}
 	}
-	return ""
+	if len(nk) < 4 || len(nk) > 64 {
+		return ""
+	}
+	best, bestD, ties := "", 3, 0
+	for _, kk := range known {
+		switch d := editDistance(nk, norm(kk.path)); {
+		case d < bestD:
+			best, bestD, ties = kk.path, d, 1
+		case d == bestD:
+			ties++
+		}
+	}
+	if ties != 1 {
+		return ""
+	}
+	return best
+}
+
+// editDistance is the optimal-string-alignment distance between a and b:
+// insertions, deletions, substitutions and swaps of adjacent bytes, each 1
+// (common practice for typing slips).
+func editDistance(a, b string) int {
+	d := make([][]int, len(a)+1)
+	for i := range d {
+		d[i] = make([]int, len(b)+1)
+		d[i][0] = i
+	}
+	for j := range d[0] {
+		d[0][j] = j
+	}
+	for i := 1; i <= len(a); i++ {
+		for j := 1; j <= len(b); j++ {
+			cost := 1
+			if a[i-1] == b[j-1] {
+				cost = 0
+			}
+			d[i][j] = min(d[i-1][j]+1, d[i][j-1]+1, d[i-1][j-1]+cost)
+			if i > 1 && j > 1 && a[i-1] == b[j-2] && a[i-2] == b[j-1] {
+				d[i][j] = min(d[i][j], d[i-2][j-2]+1)
+			}
+		}
+	}
+	return d[len(a)][len(b)]
 }
 
 // failer makes the TOML decoder stop, with the position of the key it sits on.

@@ -326,3 +326,31 @@ func BenchmarkParse(b *testing.B) {
 		})
 	}
 }
+
+// A typing slip in a key names the key meant (one of at most two edits away,
+// unique); a key far from every known one gets no guess.
+func TestSuggestKey(t *testing.T) {
+	for _, tc := range []struct{ in, want string }{
+		{"rejecton", "rejection"},
+		{"passbnad", "passband"}, // a swap
+		{"words.cofficients", "words.coefficients"},
+		{"Search.Max-Stages", "search.max_stages"}, // case and separator
+		{"input_rte", "input_rate"},
+		{"bandwidth", ""},
+		{"rate", ""}, // two edits from several keys, or none: no guess
+		{"xyz", ""},
+	} {
+		if got := suggest(tc.in); got != tc.want {
+			t.Errorf("suggest(%q) = %q, want %q", tc.in, got, tc.want)
+		}
+	}
+	// Edit distances (optimal string alignment), by hand.
+	for _, tc := range []struct {
+		a, b string
+		d    int
+	}{{"", "abc", 3}, {"abc", "abc", 0}, {"abc", "acb", 1}, {"kitten", "sitting", 3}, {"ca", "abc", 3}} {
+		if got := editDistance(tc.a, tc.b); got != tc.d {
+			t.Errorf("editDistance(%q, %q) = %d, want %d", tc.a, tc.b, got, tc.d)
+		}
+	}
+}
