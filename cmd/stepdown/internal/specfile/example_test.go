@@ -24,5 +24,5 @@ rejection   = "85 dB"
 	fmt.Println(err)
 	// Output:
 	// 128 600000 1.32e+06 real 6
-	// spec.toml:2: ouput_rate: unknown key
+	// spec.toml:2: ouput_rate: unknown key (did you mean "output_rate"?)
 }
