@@ -219,7 +219,7 @@ func TestRecommend(t *testing.T) {
 		t.Errorf("knee = %d, want 1 (%s)", i, why)
 	}
 	t.Log(why)
-	if want := "12% more multiplies than the cheapest chain for 40% less memory and the same latency."; !contains(why, want) {
+	if want := "12% more multiplies than the cheapest chain, for 40% less memory and the same latency."; !contains(why, want) {
 		t.Errorf("reason %q lacks %q", why, want)
 	}
 	i, why = recommend(fs, &Settings{Rule: WeightedCost, WeightMultiplies: 0.01, WeightLatency: 10})

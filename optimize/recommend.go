@@ -81,8 +81,11 @@ func kneeReason(fs []figs, u [][3]float64, k int) string {
 	const lead = "Chosen as the knee of the front, the chain nearest the ideal of the fewest multiplies, least memory and least latency at once"
 	if k == 0 {
 		near := func(u float64, what string) string {
-			if u-1 < 0.005 {
+			switch {
+			case u-1 < 0.005:
 				return "has the least " + what
+			case u >= 1.5:
+				return fmt.Sprintf("has %.1f times the least %s", u, what)
 			}
 			return fmt.Sprintf("is within %.0f%% of the least %s", 100*(u-1), what)
 		}
@@ -90,8 +93,12 @@ func kneeReason(fs []figs, u [][3]float64, k int) string {
 			lead, near(u[0][1], "memory"), near(u[0][2], "latency"))
 	}
 	c, x := fs[0], fs[k]
-	return fmt.Sprintf("%s: %s multiplies than the cheapest chain for %s memory and %s latency.",
-		lead, change(x.mpo, c.mpo, "more", "fewer"), change(x.bits, c.bits, "more", "less"), change(x.lat, c.lat, "more", "less"))
+	mult := change(x.mpo, c.mpo, "more", "fewer") + " multiplies than the cheapest chain"
+	if mult == "the same multiplies than the cheapest chain" {
+		mult = "as few multiplies as the cheapest chain"
+	}
+	return fmt.Sprintf("%s: %s, for %s memory and %s latency.",
+		lead, mult, change(x.bits, c.bits, "more", "less"), change(x.lat, c.lat, "more", "less"))
 }
 
 // change says how a compares with b in percent.
