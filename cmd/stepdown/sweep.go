@@ -260,12 +260,16 @@ func printSweep(w io.Writer, source, dir string, v sweep.Vary, doc *sweep.Doc, f
 		}
 		rows = append(rows, row)
 	}
+	// A row without a chain is the value, its status and the detail, which
+	// runs to the end of the line: the value and status columns are as
+	// wide as every row needs, the detail takes no width.
 	widths := make([]int, len(head))
 	for _, r := range rows {
-		if len(r) < len(head) {
-			continue
+		n := len(r)
+		if n < len(head) {
+			n--
 		}
-		for i, c := range r {
+		for i, c := range r[:n] {
 			widths[i] = max(widths[i], len(c))
 		}
 	}

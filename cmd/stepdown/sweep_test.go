@@ -11,6 +11,8 @@ import (
 	"testing"
 
 	"stepdown/chain"
+	"stepdown/cmd/stepdown/internal/report"
+	"stepdown/cmd/stepdown/internal/sweep"
 	"stepdown/cost"
 	"stepdown/optimize"
 )
@@ -194,5 +196,36 @@ func TestSweepDeterministicReal(t *testing.T) {
 				t.Errorf("GOMAXPROCS=%s --jobs %s: %s differs", c.procs, c.jobs, n)
 			}
 		}
+	}
+}
+
+// A row without a chain (its status and detail) keeps the table's columns:
+// the status column is as wide as the longest status, so every chain row's
+// recommended column starts at the same place.
+func TestSweepTableAligned(t *testing.T) {
+	v, err := sweep.ParseVary("rejection=80:90:5")
+	if err != nil {
+		t.Fatal(err)
+	}
+	ch := report.Chain{Notation: "cic5m1r16 > fir4", MultipliesPerOutput: 34, MemoryBits: 2570, LatencyS: 2.45e-6}
+	best := &sweep.DocBest{MultipliesPerOutput: 34, MemoryBits: 2570, LatencyS: 2.45e-6}
+	doc := &sweep.Doc{Values: []sweep.DocValue{
+		{ValueText: "80 dB", Status: "ok", Front: []report.Chain{ch}, Best: best},
+		{ValueText: "85 dB", Status: "infeasible", Recommended: -1, Detail: "no chain meets the spec"},
+		{ValueText: "90 dB", Status: "ok", Front: []report.Chain{ch}, Best: best},
+	}}
+	var b bytes.Buffer
+	printSweep(&b, "ex", "out", v, doc, nil)
+	var starts []int
+	for _, l := range strings.Split(b.String(), "\n") {
+		if i := strings.Index(l, "cic5m1r16"); i >= 0 {
+			starts = append(starts, i)
+		}
+		if strings.HasPrefix(l, "85 dB") && !strings.Contains(l, "infeasible  no chain") {
+			t.Errorf("row without a chain: %q", l)
+		}
+	}
+	if len(starts) != 2 || starts[0] != starts[1] || !strings.Contains(b.String(), "status      recommended") {
+		t.Errorf("columns not aligned:\n%s", b.String())
 	}
 }
