@@ -15,7 +15,7 @@ func TestCICRegisterWidth(t *testing.T) {
 		src               string
 	}{
 		// N=3, R=8, M=1, 12-bit input: gain 512, 21-bit registers
-		// (common textbook example, REFERENCES.md).
+		// (common practice, the usual textbook example; docs/design.md §11).
 		{3, 1, 8, 12, 21, "common practice"},
 		// Hogenauer (1981) worked example: N=4, R=25, M=1, 16-bit input,
 		// Bmax = 34 (MSB index), so 35-bit registers.
@@ -38,7 +38,7 @@ func TestCICRegisterWidth(t *testing.T) {
 
 func TestCICVarianceFactors(t *testing.T) {
 	// Comb-only variance factors for 1..7 combs: 2, 6, 20, 70, 252, 924, 3432
-	// (Hogenauer 1981, eq. 16 for j > N, the central binomials; REFERENCES.md).
+	// (Hogenauer 1981, eq. 16 for j > N, the central binomials; docs/design.md §11).
 	want := []float64{2, 6, 20, 70, 252, 924, 3432}
 	for _, rm := range []int{8, 10} {
 		f, _ := cicRegisterNorms(7, rm)
@@ -120,7 +120,7 @@ func TestCICL1NormsBruteForce(t *testing.T) {
 func TestCICPruningHogenauer(t *testing.T) {
 	// Hogenauer (1981) worked example, N=4, R=25, M=1, 16-bit in and out:
 	// Bmax = 34 (width 35), bits dropped at registers 1..8 = 1, 6, 9, 13, 14,
-	// 15, 16, 17 and output truncation 19 (REFERENCES.md: recomputed from his
+	// 15, 16, 17 and output truncation 19 (docs/design.md §11: recomputed from his
 	// eqs. 16-21; the first eight match his table, from memory). (RM)^N =
 	// 390625 leaves room for the truncations, so PruneCIC adds no guard bit
 	// and gives the same plan.
@@ -161,7 +161,7 @@ func TestCICPruningHogenauer(t *testing.T) {
 
 func TestCICWidthTextbook(t *testing.T) {
 	// N = 3, R = 8, M = 1, 12-bit input: gain 512, 21-bit registers
-	// (REFERENCES.md, common textbook example); a 21-bit output keeps them
+	// (common practice, the usual textbook example; docs/design.md §11); a 21-bit output keeps them
 	// whole at unit gain.
 	p, err := PruneCIC(3, 1, 8, 12, 21)
 	if err != nil {
@@ -278,7 +278,7 @@ func TestCICResponseSciPy(t *testing.T) {
 
 func TestCICAliasAttenuation(t *testing.T) {
 	// Alias attenuation per order for large R relative to the passband-edge
-	// gain, 20 log10((1-b)/b), b = fa / output rate (REFERENCES.md, computed
+	// gain, 20 log10((1-b)/b), b = fa / output rate (docs/design.md §11, computed
 	// from Hogenauer 1981's response). R = 4096 is close to the large-R limit.
 	for _, tc := range []struct{ b, want float64 }{
 		{1.0 / 128, 42.08}, {1.0 / 64, 35.99}, {1.0 / 32, 29.83},

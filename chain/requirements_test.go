@@ -11,7 +11,7 @@ import (
 
 // crSpec is Crochiere and Rabiner's (1975) decimate-by-100 example:
 // 10 kHz to 100 Hz, fp = 45 Hz, fs = 50 Hz, dp = 0.01, ds = 0.001
-// (REFERENCES.md 'Multistage'; spec from memory there). Protecting [0, 50 Hz]
+// (their 1975 paper, spec from memory; docs/design.md §11). Protecting [0, 50 Hz]
 // makes our default final stopband FK - fa = 50 Hz = fs.
 func crSpec() Spec {
 	return Spec{InputRate: 10e3, OutputRate: 100, Passband: 45, Protected: 50,
@@ -21,7 +21,7 @@ func crSpec() Spec {
 func TestRequirementsCrochiereRabiner(t *testing.T) {
 	// Their stage rule: stage i keeps fp, its stopband starts at Fi - fs, the
 	// last at fs; dp/K per stage and the full ds each. Multiplies per second
-	// without symmetry from Herrmann lengths (REFERENCES.md, computed there):
+	// without symmetry from Herrmann lengths (docs/design.md §11, computed there):
 	// we recompute sum_i N_i F_i with N_i = ceil(D/df - f df + 1), which is
 	// what remez.HerrmannLength returns, and compare with the published
 	// (computed) figures to 1.5%: they are a little lower throughout, as if

@@ -14,7 +14,7 @@ func handChain(complex bool) (chain.Spec, *chain.Chain) {
 	sp := chain.Spec{InputRate: 32e6, OutputRate: 1e6, Passband: 0.2e6, RippleDB: 1, RejectionDB: 60,
 		InputBits: 12, Complex: complex}
 	c := &chain.Chain{InputRate: 32e6, Complex: complex, Stages: []chain.Stage{
-		// N=3, R=8, M=1, 12-bit input: 21-bit registers (REFERENCES.md,
+		// N=3, R=8, M=1, 12-bit input: 21-bit registers (docs/design.md §11,
 		// common textbook example); 24-bit output, so no pruning.
 		chain.NewCICStage(3, 1, 8, 12, 24),
 		chain.FIRStage{R: 2, Length: 11, HalfBand: true},

@@ -125,7 +125,7 @@ func TestWalkKinds(t *testing.T) {
 }
 
 // TestHerrmann checks the estimate against the values computed from the
-// published formula (Herrmann, Rabiner and Chan 1973; REFERENCES.md):
+// published formula (Herrmann, Rabiner and Chan 1973; docs/design.md §11):
 // D(0.01, 0.001) = 2.54119, f = 11.52461, so N = D/df - f df + 1.
 func TestHerrmann(t *testing.T) {
 	for _, c := range []struct{ dp, ds, d float64 }{
@@ -145,7 +145,7 @@ func TestHerrmann(t *testing.T) {
 
 // TestCICRejection checks the estimator's CIC rejection against Hogenauer's
 // large-R alias attenuation per order, 20 log10((1-b)/b) with b = fa over
-// the CIC output rate (computed values in REFERENCES.md: b = 1/16: 23.52 dB,
+// the CIC output rate (computed values, docs/design.md §11: b = 1/16: 23.52 dB,
 // 1/8: 16.90 dB per order).
 func TestCICRejection(t *testing.T) {
 	for _, c := range []struct {

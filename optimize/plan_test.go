@@ -33,7 +33,7 @@ func rx() chain.Spec {
 
 // crSpec is the decimate-by-100 example of Crochiere and Rabiner (1975):
 // 10 kHz to 100 Hz, passband 45 Hz, stopband 50 Hz, dp = 0.01, ds = 0.001
-// (spec from memory, REFERENCES.md). The stopband edge is the output's
+// (spec from memory; docs/design.md §11). The stopband edge is the output's
 // Nyquist frequency, so the protected band reaches it too.
 func crSpec() chain.Spec {
 	return chain.Spec{
@@ -52,7 +52,7 @@ func herrmannN(dp, ds, df float64) float64 {
 
 // crRate is the multiplies per second of a FIR-only split of the
 // Crochiere-Rabiner example with Herrmann lengths, no symmetry, dp/K per
-// stage and stage i's stopband from Fi - fs (their method; REFERENCES.md).
+// stage and stage i's stopband from Fi - fs (their method; docs/design.md §11).
 func crRate(factors ...int) float64 {
 	rate, total := 10e3, 0.0
 	for _, d := range factors {
@@ -66,7 +66,8 @@ func crRate(factors ...int) float64 {
 func TestCrochiereRabinerFigures(t *testing.T) {
 	// Computed from the published formulas (testdata/optimize/crochiere_rabiner.py
 	// gives the same): 25 x 4: 58 628/s; 10 x 5 x 2: 48 958/s; D1 = 31.95.
-	// REFERENCES.md lists 58 281 and 48 944, about 0.6% and 0.03% lower.
+	// Figures of 58 281 and 48 944 are sometimes quoted for these splits,
+	// about 0.6% and 0.03% lower; the formula as published gives ours.
 	for _, c := range []struct {
 		f    []int
 		want float64

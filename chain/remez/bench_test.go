@@ -57,7 +57,7 @@ func BenchmarkMagnitude(b *testing.B) {
 }
 
 // BenchmarkMinLength searches the shortest filter for the 10 kHz example
-// of REFERENCES.md (pass 0-45 Hz within 0.01, stop 50 Hz-5 kHz within
+// of Crochiere and Rabiner (1975; docs/design.md §11) (pass 0-45 Hz within 0.01, stop 50 Hz-5 kHz within
 // 0.001; Herrmann estimate 5 084 taps).
 func BenchmarkMinLength(b *testing.B) {
 	bands := []Band{

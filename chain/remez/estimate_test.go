@@ -6,7 +6,7 @@ import (
 )
 
 func TestHerrmannDF(t *testing.T) {
-	// Expected values: REFERENCES.md "computed" values, recomputed by hand
+	// Expected values: computed values (docs/design.md §11), recomputed by hand
 	// from the published Herrmann-Rabiner-Chan (1973) coefficients, e.g.
 	// D(0.01, 0.001): L1 = -2, L2 = -3,
 	// (0.021236 - 0.14228 - 0.4761)(-3) - (0.01064 - 1.1882 + 0.4278)
@@ -32,7 +32,7 @@ func TestHerrmannDF(t *testing.T) {
 }
 
 func TestLengthEstimates(t *testing.T) {
-	// Hand values from the formulas in REFERENCES.md, rounded up to whole taps.
+	// Hand values from the published formulas (docs/design.md §11), rounded up to whole taps.
 	for _, tc := range []struct {
 		name             string
 		fn               func(dp, ds, tr, rate float64) int
@@ -40,7 +40,7 @@ func TestLengthEstimates(t *testing.T) {
 		want             int
 	}{
 		// Herrmann: df = 5/10000, 2.541192/0.0005 - 11.52461*0.0005 + 1
-		// = 5082.384 - 0.00576 + 1 = 5083.38 -> 5084 (REFERENCES.md: one
+		// = 5082.384 - 0.00576 + 1 = 5083.38 -> 5084 (docs/design.md §11: one
 		// stage of the 10 kHz / 100 Hz example ~5 082 + 1 taps).
 		{"herrmann", HerrmannLength, 0.01, 0.001, 5, 10000, 5084},
 		// Herrmann: df = 0.1: 25.41192 - 1.152461 + 1 = 25.26 -> 26.

@@ -8,7 +8,7 @@ import (
 )
 
 func TestHalfBandExample(t *testing.T) {
-	// REFERENCES.md, computed example: order 10 (11 taps, k = 3),
+	// Computed example (docs/design.md §11): order 10 (11 taps, k = 3),
 	// fp = 0.2 (rate 1): deviation 0.0510 (25.85 dB). Recomputed here with
 	// SciPy 1.10: signal.remez(6, [0, 0.4], [1], fs=1) gives G with
 	// deviation 0.10203, so the half-band's is 0.05101 (25.85 dB).

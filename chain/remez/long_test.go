@@ -66,7 +66,7 @@ func rippleDB(d float64) float64 { return 20 * math.Log10((1+d)/(1-d)) }
 
 // TestLong5080 is the case where SciPy 1.10's signal.remez (grid density
 // 16) returns 0.222 dB ripple and 56.3 dB stopband without a warning
-// (measured for the task statement); Herrmann's estimate (REFERENCES.md)
+// (measured with SciPy 1.10); Herrmann, Rabiner and Chan's (1973) estimate
 // puts 0.1737 dB / 60 dB at about 5 083 taps, so the optimum at 5 080 taps
 // is close to that and equiripple with a stopband deviation a tenth of the
 // passband's.

@@ -71,7 +71,7 @@ func TestMinLength(t *testing.T) {
 			}
 		}
 		// Herrmann-Rabiner-Chan (1973) should be within a few taps for a
-		// lowpass (REFERENCES.md: "off by a few taps either way").
+		// lowpass (common practice: off by a few taps either way).
 		if tc.name == "lp-any" {
 			est := HerrmannLength(0.01, 0.001, 0.05, 1)
 			if math.Abs(float64(n-est)) > 0.1*float64(est) {
