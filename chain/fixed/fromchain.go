@@ -170,9 +170,10 @@ func planChain(ctx context.Context, spec chain.Spec, c *chain.Chain, s Settings)
 // must reach the spec's rejection within RejectionSlackDB and its ripple
 // within RippleSlackDB (or the float chain's own figures, when the design
 // itself falls short of the spec: no width can do better than the taps).
+// The slacks are the verdict's own (chain.Analysis.Meets).
 const (
-	RejectionSlackDB = 0.01
-	RippleSlackDB    = 1e-4
+	RejectionSlackDB = chain.RejectionSlackDB
+	RippleSlackDB    = chain.RippleSlackDB
 	// maxWidenSteps bounds the bits widen adds over the whole chain.
 	maxWidenSteps = 24
 )
@@ -187,6 +188,10 @@ func widen(ctx context.Context, spec chain.Spec, c *chain.Chain, cas Cascade, w 
 	spec, err := spec.Normalize()
 	if err != nil {
 		return nil, chain.Analysis{}, err
+	}
+	if a.Meets(spec) {
+		// Nothing to widen, and no need to measure the float chain.
+		return ws, a, nil
 	}
 	fa, err := chain.AnalyzeContext(ctx, c, spec)
 	if err != nil {
