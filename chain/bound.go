@@ -210,12 +210,17 @@ func newFIRBounder(h []float64, rate float64) (*firBounder, error) {
 	for k := 1; k <= taylorOrder; k++ {
 		b.fact[k] = b.fact[k-1] * float64(k)
 	}
-	for k := 0; k <= taylorOrder; k++ {
-		s := 0.0
-		for i, v := range h {
-			s += math.Abs(v) * math.Pow(math.Abs(float64(i)-c), float64(k))
+	// Moments sum |h_n| |n-c|^k, k = 0..K, in one pass (powers by
+	// repeated products: exact enough, and no math.Pow per tap).
+	for i, v := range h {
+		p, d := math.Abs(v), math.Abs(float64(i)-c)
+		for k := 0; k <= taylorOrder; k++ {
+			b.mom[k] += p
+			p *= d
 		}
-		b.mom[k] = s * math.Pow(w, float64(k))
+	}
+	for k, wk := 0, 1.0; k <= taylorOrder; k, wk = k+1, wk*w {
+		b.mom[k] *= wk
 	}
 	// Per-point bounds on the grid, t = step/2. The FFT's rounding is at
 	// most a few ulps times log2 of its length times sum |h| |n-c|^k (the
@@ -225,11 +230,13 @@ func newFIRBounder(h []float64, rate float64) (*firBounder, error) {
 	up := make([]float64, b.n+1)
 	lo := make([]float64, b.n+1)
 	sp := remez.NewSpectrum(b.n + 1)
-	seq := make([]float64, len(h))
+	seq := append([]float64(nil), h...) // h_n (n-c)^k, one factor more each k
 	mag := make([]float64, b.n+1)
 	for k := 0; k < taylorOrder; k++ {
-		for i, v := range h {
-			seq[i] = v * math.Pow(float64(i)-c, float64(k))
+		if k > 0 {
+			for i := range seq {
+				seq[i] *= float64(i) - c
+			}
 		}
 		sp.Magnitude(mag, seq)
 		coef := math.Pow(w, float64(k)) * math.Pow(t, float64(k)) / b.fact[k]
