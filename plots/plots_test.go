@@ -7,6 +7,8 @@ import (
 	"path/filepath"
 	"strings"
 	"testing"
+
+	"gonum.org/v1/plot/plotter"
 )
 
 // highRatio is an invented 100 MS/s to 10 kS/s chain (D = 10 000), whose
@@ -299,21 +301,43 @@ func TestDecimate(t *testing.T) {
 	}
 	y[54321] = -3 // a lone spike
 	y[777] = math.Inf(-1)
-	out := decimate(x, y, 0, n-1, -120, false)
-	if len(out) > 3100 {
-		t.Errorf("decimate kept %d points, want at most about 3000", len(out))
-	}
+	up, down := decimate(x, y, 0, n-1, -120, false)
 	var peak, low float64 = -1000, 0
-	for i, p := range out {
-		peak = math.Max(peak, p.Y)
-		low = math.Min(low, p.Y)
-		if i > 0 && p.X <= out[i-1].X {
-			t.Fatalf("decimate output not increasing in x at %d", i)
+	for _, out := range []plotter.XYs{up, down} {
+		if len(out) > 1510 {
+			t.Errorf("decimate kept %d points on an edge, want at most about 1500", len(out))
+		}
+		for i, p := range out {
+			peak = math.Max(peak, p.Y)
+			low = math.Min(low, p.Y)
+			if i > 0 && p.X <= out[i-1].X {
+				t.Fatalf("decimate output not increasing in x at %d", i)
+			}
 		}
 	}
 	if peak != -3 || low != -120 {
 		t.Errorf("decimate kept peak %v and low %v, want -3 and the floor -120", peak, low)
 	}
+	// Every sample lies within the envelope of its column: between the
+	// edges interpolated at its frequency, within a column's width.
+	for i := 1; i < n-1; i += 97 {
+		v := math.Max(y[i], -120)
+		hiY, loY := edgeAt(up, x[i], 100), edgeAt(down, x[i], 100)
+		if v > hiY[1]+1e-9 || v < loY[0]-1e-9 {
+			t.Fatalf("sample %d (%g dB) outside the envelope [%g, %g]", i, v, loY[0], hiY[1])
+		}
+	}
+}
+
+// edgeAt is the range of an edge's values within w of x.
+func edgeAt(e plotter.XYs, x, w float64) [2]float64 {
+	r := [2]float64{math.Inf(1), math.Inf(-1)}
+	for _, p := range e {
+		if math.Abs(p.X-x) <= w {
+			r[0], r[1] = math.Min(r[0], p.Y), math.Max(r[1], p.Y)
+		}
+	}
+	return r
 }
 
 func TestTicks(t *testing.T) {

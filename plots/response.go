@@ -267,15 +267,14 @@ func responsePanel(d ResponseData, lo, hi, floor, top float64, logx bool, leg *p
 		if name == "" {
 			name = fmt.Sprintf("stage %d", i+1)
 		}
-		l, _ := plotter.NewLine(decimate(d.FreqHz, s.DB, lo, hi, floor, logx))
-		l.LineStyle = draw.LineStyle{Color: stageColors[i%len(stageColors)], Width: vg.Points(1)}
+		sty := draw.LineStyle{Color: stageColors[i%len(stageColors)], Width: vg.Points(1)}
 		if i >= len(stageColors) {
-			l.LineStyle.Dashes = []vg.Length{vg.Points(4), vg.Points(2)}
+			sty.Dashes = []vg.Length{vg.Points(4), vg.Points(2)}
 		}
+		l := newEnvelope(d.FreqHz, s.DB, lo, hi, floor, logx, sty)
 		add(fmt.Sprintf("stage %d: %s", i+1, name), l, l)
 	}
-	l, _ := plotter.NewLine(decimate(d.FreqHz, d.TotalDB, lo, hi, floor, logx))
-	l.LineStyle = draw.LineStyle{Color: black, Width: vg.Points(1.8)}
+	l := newEnvelope(d.FreqHz, d.TotalDB, lo, hi, floor, logx, draw.LineStyle{Color: black, Width: vg.Points(1.8)})
 	add("cascade", l, l)
 	if leg != nil {
 		// Reading order: the cascade, the stages in cascade order, then
@@ -357,10 +356,15 @@ func merged(bands [][2]float64, tol, rel float64) [][2]float64 {
 
 // decimate returns the curve over [lo, hi] (with one neighbour each side,
 // so the line meets the axis edges; on a log axis none below lo), clamped
-// at floor, keeping at most the minimum and maximum of each of 1500 columns
-// of the axis: a pixel-accurate envelope that keeps every peak and null, at
-// a bounded file size.
-func decimate(x, y []float64, lo, hi, floor float64, logx bool) plotter.XYs {
+// at floor, as the upper and lower edges of its envelope over 1500 columns
+// of the axis: where a column holds at most two samples both edges pass
+// through them (up and down are the same points when the whole span has at
+// most 3000 samples), and where it holds more, up passes through the
+// column's maximum and down through its minimum. The envelope keeps every
+// peak and null at a bounded size; drawing it as a filled band (see
+// envelope) rather than a polyline that zig-zags between the extremes keeps
+// the rasteriser's work proportional to the columns.
+func decimate(x, y []float64, lo, hi, floor float64, logx bool) (up, down plotter.XYs) {
 	const columns = 1500
 	i0 := sort.SearchFloat64s(x, lo)
 	if i0 > 0 && (!logx || x[i0-1] > 0) {
@@ -376,14 +380,16 @@ func decimate(x, y []float64, lo, hi, floor float64, logx bool) plotter.XYs {
 		for i := i0; i < i1; i++ {
 			out = append(out, at(i))
 		}
-		return out
+		return out, out
 	}
 	column := func(v float64) float64 { return math.Floor((v - lo) / (hi - lo) * columns) }
 	if logx {
 		column = func(v float64) float64 { return math.Floor(math.Log(v/lo) / math.Log(hi/lo) * columns) }
 	}
-	out := make(plotter.XYs, 0, 2*columns+2)
-	out = append(out, at(i0))
+	up = make(plotter.XYs, 0, 2*columns+2)
+	down = make(plotter.XYs, 0, 2*columns+2)
+	up = append(up, at(i0))
+	down = append(down, at(i0))
 	for i := i0 + 1; i < i1-1; {
 		col := column(x[i])
 		imin, imax := i, i
@@ -396,14 +402,68 @@ func decimate(x, y []float64, lo, hi, floor float64, logx bool) plotter.XYs {
 				imax = j
 			}
 		}
-		a, b := min(imin, imax), max(imin, imax)
-		out = append(out, at(a))
-		if b != a {
-			out = append(out, at(b))
+		if j-i <= 2 {
+			for k := i; k < j; k++ {
+				up = append(up, at(k))
+				down = append(down, at(k))
+			}
+		} else {
+			up = append(up, at(imax))
+			down = append(down, at(imin))
 		}
 		i = j
 	}
-	return append(out, at(i1-1))
+	last := at(i1 - 1)
+	return append(up, last), append(down, last)
+}
+
+// envelope draws a curve given as the edges of its envelope (see
+// decimate): the band between them filled, and both edges stroked, so
+// that it looks like the full-resolution polyline at the figure's
+// resolution.
+type envelope struct {
+	up, down plotter.XYs
+	draw.LineStyle
+}
+
+// newEnvelope is the envelope of the curve over [lo, hi].
+func newEnvelope(x, y []float64, lo, hi, floor float64, logx bool, sty draw.LineStyle) *envelope {
+	up, down := decimate(x, y, lo, hi, floor, logx)
+	return &envelope{up: up, down: down, LineStyle: sty}
+}
+
+// Plot implements plot.Plotter.
+func (e *envelope) Plot(c draw.Canvas, plt *plot.Plot) {
+	trX, trY := plt.Transforms(&c)
+	pts := func(xy plotter.XYs) []vg.Point {
+		ps := make([]vg.Point, len(xy))
+		for i, p := range xy {
+			ps[i] = vg.Point{X: trX(p.X), Y: trY(p.Y)}
+		}
+		return ps
+	}
+	up := pts(e.up)
+	if len(up) == 0 {
+		return
+	}
+	same := &e.up[0] == &e.down[0]
+	if !same {
+		down := pts(e.down)
+		ring := make([]vg.Point, 0, len(up)+len(down))
+		ring = append(ring, up...)
+		for i := len(down) - 1; i >= 0; i-- {
+			ring = append(ring, down[i])
+		}
+		c.FillPolygon(e.Color, c.ClipPolygonXY(ring))
+		c.StrokeLines(e.LineStyle, c.ClipLinesXY(down)...)
+	}
+	c.StrokeLines(e.LineStyle, c.ClipLinesXY(up)...)
+}
+
+// Thumbnail implements plot.Thumbnailer: a short line in the curve's style.
+func (e *envelope) Thumbnail(c *draw.Canvas) {
+	y := c.Center().Y
+	c.StrokeLine2(e.LineStyle, c.Min.X, y, c.Max.X, y)
 }
 
 // logSpan is the ratio of the full span to the output rate above which the
