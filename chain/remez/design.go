@@ -194,6 +194,14 @@ func (e *engine) laxCheck(dev []float64, conv bool) error {
 // 2016); coarse iterations cost a fraction of dense ones, so the dense
 // exchange starts close to the optimum and needs few iterations.
 func (e *engine) initRef() {
+	if len(e.warm) > 0 && !e.gridOnly {
+		// A neighbouring length's converged reference, scaled, is as good
+		// a start as a seed design and costs nothing; seeded, so that a
+		// start wrong in structure falls back to the even spread.
+		e.seeded = true
+		e.scaledRef(e.warm, e.bands, nil, 0)
+		return
+	}
 	if e.gridOnly || e.r+1 <= seedMin {
 		e.uniformRef()
 		return

@@ -77,10 +77,14 @@ type engine struct {
 	maxIter  int
 	gridOnly bool
 	local    bool // start with grid-free local steps (seeded reference)
-	handOff  bool // stop once a grid pass finds the structure right
-	bands    []nband
-	grid     []point
-	bstart   []int // grid[bstart[b]:bstart[b+1]] is band b
+	// warm, when not empty, is the converged reference of a design of
+	// another length of the same bands: initRef scales it instead of
+	// seeding from a coarse grid or a shorter design.
+	warm    []point
+	handOff bool // stop once a grid pass finds the structure right
+	bands   []nband
+	grid    []point
+	bstart  []int // grid[bstart[b]:bstart[b+1]] is band b
 
 	ref   []point // r+1
 	delta float64

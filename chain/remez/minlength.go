@@ -18,9 +18,11 @@ import (
 // own limits; Band.Weight is ignored. The search starts from the largest
 // Herrmann-Rabiner-Chan estimate over the transitions between adjacent
 // bands of different gain (don't-care gaps between bands of equal gain are
-// not transitions), then gallops (steps of 2, 4, 8, ... taps of one parity) until it
-// brackets the answer and bisects; it assumes that within one parity a
-// longer filter never does worse. With parity 0 it finds the shortest odd
+// not transitions), then steps by a safeguarded secant on the log of the
+// worst error ratio (the first step by the estimate's own slope) until it
+// brackets the answer and closes the bracket; it assumes that within one
+// parity a longer filter never does worse. Each design after the first
+// starts from the nearest designed length's reference. With parity 0 it finds the shortest odd
 // length and then tries the even lengths below it. Even lengths are skipped
 // when a band asks for a non-zero gain at rate/2, where they are zero.
 //
@@ -146,6 +148,11 @@ type lengthSearch struct {
 	ratio   map[int]float64 // worst measured/allowed error per length
 	lax     map[int]bool    // lengths met to rounding level, taps unusable
 	designs int             // designs run, bounded by maxDesigns
+	refs    map[int][]point // converged reference of each length designed
+	// perNeper is the taps that Herrmann's estimate adds for each factor
+	// e of error at the binding transition (0 when unknown): the search's
+	// first step and its guard against a flat secant.
+	perNeper float64
 	// designFn, when not nil, replaces design (MinHalfBand searches the
 	// length of its single-band G with it).
 	designFn func(n int) (*Result, []float64, bool)
@@ -173,7 +180,13 @@ func (m *lengthSearch) estimate() int {
 		}
 		d1 := math.Min(allowedAt(a, a.Hi), 0.5)
 		d2 := math.Min(allowedAt(b, b.Lo), 0.5)
-		est = max(est, HerrmannLength(d1, d2, tr, m.rate))
+		if n := HerrmannLength(d1, d2, tr, m.rate); n > est {
+			est = n
+			// Herrmann's D(dp, ds)/df, taken with every error limit a
+			// factor e tighter, says how many taps a factor e of error
+			// costs at this transition: the prior slope of the search.
+			m.perNeper = (HerrmannD(d1/math.E, d2/math.E) - HerrmannD(d1, d2)) / (tr / m.rate)
+		}
 	}
 	return min(est, m.maxTaps)
 }
@@ -244,13 +257,32 @@ func (m *lengthSearch) design(n int) (*Result, []float64, bool) {
 		return nil, nil, false
 	}
 	e.ctx = m.ctx
+	e.warm = m.refs[m.nearestRef(n)]
 	res, err := e.design()
+	if res != nil && res.Converged {
+		if m.refs == nil {
+			m.refs = map[int][]point{}
+		}
+		m.refs[n] = append([]point(nil), e.ref...)
+	}
 	lax := errors.Is(err, errRounding)
 	if res == nil {
 		return nil, nil, lax
 	}
 	_, wdev := e.deviations(res.Taps)
 	return res, wdev, lax
+}
+
+// nearestRef is the designed length nearest to n whose converged
+// reference can start n's design (the shorter on a tie), or 0 for none.
+func (m *lengthSearch) nearestRef(n int) int {
+	best := 0
+	for k := range m.refs {
+		if best == 0 || abs(k-n) < abs(best-n) || (abs(k-n) == abs(best-n) && k < best) {
+			best = k
+		}
+	}
+	return best
 }
 
 // search returns the shortest length of the given parity (n%2 == odd) that
@@ -346,7 +378,20 @@ func (m *lengthSearch) search(n0, odd int) (int, error) {
 		step := 0.02 * math.Pow(4, float64(blind))
 		switch {
 		case np >= 2 && pn[0] != pn[1] && pg[0] != pg[1]:
-			c = float64(pn[1]) - pg[1]*float64(pn[1]-pn[0])/(pg[1]-pg[0])
+			perNeper := -float64(pn[1]-pn[0]) / (pg[1] - pg[0])
+			if m.perNeper > 0 && !(perNeper < 4*m.perNeper) {
+				// A secant through two nearly equal ratios (noise on a
+				// slowly falling error) would leap far past the answer;
+				// no more than four times Herrmann's slope.
+				perNeper = 4 * m.perNeper
+			}
+			c = float64(pn[1]) + pg[1]*perNeper
+			blind = 0
+		case np >= 1 && m.perNeper > 0:
+			// One usable ratio: Herrmann's slope, aimed a tenth beyond
+			// the crossing so that the step usually lands on the side
+			// that meets and the next one closes the bracket.
+			c = float64(pn[1]) + pg[1]*m.perNeper*1.1
 			blind = 0
 		case hi == 0:
 			c = float64(lo) * (1 + step)
