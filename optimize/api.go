@@ -23,6 +23,13 @@ type Settings struct {
 	// Progress, when not nil, is called as designs finish (done of total);
 	// calls come from one goroutine at a time.
 	Progress func(done, total int)
+	// Scoring, when not nil, is called as the estimate tier walks the
+	// candidates: every 4096 candidates and at the end of each walk, with
+	// the candidates walked (or skipped whole under a CIC that cannot
+	// serve) of total, which counts both walks of a pass (each candidate
+	// twice). A search that runs again (see Design tier) starts again
+	// from zero. Calls come from the calling goroutine.
+	Scoring func(done, total int64)
 
 	Chain chain.Settings // how stages are designed (Plan adds a chain.StageMemo when Memo is nil)
 	Cost  cost.Settings  // how chains are priced

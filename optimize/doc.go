@@ -213,8 +213,12 @@
 // CloudSize by keeping evenly spaced candidates in enumeration order.
 //
 // On cancellation of the context Plan stops starting designs and returns the
-// front of the chains designed and measured so far (possibly none), with
-// Result.Partial set and no error. The context is checked every 4096
+// front of the chains designed and measured so far, with Result.Partial set
+// and no error. When none was measured yet but some were designed (a stop
+// during the first round of designs), the front of the designed chains by
+// their prices is measured, for at most 300 ms after the cancellation,
+// members that miss dropped and the front taken again; only measured chains
+// are returned, so the front may still be empty. The context is checked every 4096
 // candidates scored and before every design or measurement, and Progress is
 // called before the next check. A design or measurement still running when
 // the context is cancelled is abandoned: Plan returns without it, its

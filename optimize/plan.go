@@ -154,6 +154,12 @@ type realDesigner struct {
 	s    *Settings
 }
 
+// under is the designer working under ctx instead (see designTier.salvage).
+func (r realDesigner) under(ctx context.Context) designer {
+	r.ctx = ctx
+	return r
+}
+
 func (r realDesigner) design(plan []chain.StagePlan) (Candidate, string) {
 	c, err := chain.DesignContext(r.ctx, r.spec, plan, r.s.Chain)
 	if err != nil {
@@ -522,18 +528,32 @@ func searchPass(ctx context.Context, p *params, sp *space, s *Settings, est *est
 	frontPlans := map[int][]chain.StagePlan{}
 	var drops [len(dropNames)]int
 	need := math.Inf(1)
+	// walked counts the candidates of both walks for Settings.Scoring.
+	var walked int64
+	total := 2 * sp.count()
+	scoring := func() {
+		if s.Scoring != nil {
+			s.Scoring(min(walked, total), total)
+		}
+	}
 	sp.skipCIC = est.skipCIC
 	sp.skipped = func(code dropCode, n int64) {
 		drops[code] += int(n)
 		res.Candidates += int(n)
+		walked += n
 	}
 	feasible := 0
 	cancelled := false
+	steps := 0
 	sp.walk(func(plan []chain.StagePlan) bool {
 		res.Candidates++
-		if res.Candidates&4095 == 0 && ctx.Err() != nil {
-			cancelled = true
-			return false
+		walked++
+		if steps++; steps&4095 == 0 {
+			if ctx.Err() != nil {
+				cancelled = true
+				return false
+			}
+			scoring()
 		}
 		f, drop := est.score(plan)
 		if drop != dropNone {
@@ -570,7 +590,8 @@ func searchPass(ctx context.Context, p *params, sp *space, s *Settings, est *est
 
 	// Pass 2: the same walk, now that the front is known: collect the band
 	// near the front (or everything, when exhaustive) and the thinned cloud.
-	sp.skipped = func(dropCode, int64) {}
+	scoring()
+	sp.skipped = func(_ dropCode, n int64) { walked += n }
 	var band []scored
 	byBand := func(i, j int) bool {
 		a, b := &band[i], &band[j]
@@ -581,9 +602,13 @@ func searchPass(ctx context.Context, p *params, sp *space, s *Settings, est *est
 	}
 	idx, seen := 0, 0
 	sp.walk(func(plan []chain.StagePlan) bool {
-		if seen++; seen&4095 == 0 && ctx.Err() != nil {
-			cancelled = true
-			return false
+		walked++
+		if seen++; seen&4095 == 0 {
+			if ctx.Err() != nil {
+				cancelled = true
+				return false
+			}
+			scoring()
 		}
 		f, drop := est.score(plan)
 		if drop != dropNone {
@@ -611,6 +636,8 @@ func searchPass(ctx context.Context, p *params, sp *space, s *Settings, est *est
 		res.Front = t.front()
 		return need
 	}
+	walked = total
+	scoring()
 	sort.Slice(band, byBand)
 	if len(band) > maxBand {
 		band = band[:maxBand]

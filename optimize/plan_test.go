@@ -321,9 +321,18 @@ func TestCancelPartial(t *testing.T) {
 	if !r.Partial {
 		t.Error("not marked partial")
 	}
+	// Three chains were designed before the cancel and none measured yet:
+	// the front is salvaged from them, measured, so it is not empty.
+	if len(r.Front) == 0 {
+		t.Error("front empty after 3 designs")
+	}
+	spec := rx()
 	for _, c := range r.Front {
 		if !c.Figures.Designed {
 			t.Errorf("%s on the front is not designed", chain.Notation(c.Plan))
+		}
+		if a := c.Figures.Analysis; !a.Meets(spec) {
+			t.Errorf("%s on the partial front misses the spec: %.2f dB, %.4f dB", chain.Notation(c.Plan), a.AliasRejectionDB, a.PassbandRippleDB)
 		}
 	}
 	t.Logf("partial after %d designs: front of %d", r.Designed, len(r.Front))

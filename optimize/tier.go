@@ -5,6 +5,7 @@ import (
 	"fmt"
 	"math"
 	"sort"
+	"time"
 
 	"stepdown/chain"
 )
@@ -298,7 +299,73 @@ func (t *designTier) front() []Candidate {
 			designed = append(designed, o.c)
 		}
 	}
-	return designedFront(designed)
+	if fr := designedFront(designed); len(fr) > 0 || t.ctx.Err() == nil {
+		return fr
+	}
+	return t.salvage()
+}
+
+// salvageGrace bounds the measurements salvage makes after the search's
+// context is done.
+const salvageGrace = 300 * time.Millisecond
+
+// regrounder is a designer that can work under another context
+// (realDesigner): salvage measures with it after the search's own
+// context is done.
+type regrounder interface {
+	under(ctx context.Context) designer
+}
+
+// salvage is the front of a search stopped before any chain was measured:
+// the chains designed so far, priced, have their front measured (analyze)
+// for at most salvageGrace; members that miss the spec are dropped and the
+// front taken again. Only measured chains are returned, so a partial front
+// holds no estimate either; it may be empty.
+func (t *designTier) salvage() []Candidate {
+	rg, ok := t.des.(regrounder)
+	if !ok {
+		return nil
+	}
+	ctx, cancel := context.WithTimeout(context.WithoutCancel(t.ctx), salvageGrace)
+	defer cancel()
+	des := rg.under(ctx)
+	measured := map[string]outcome{}
+	for ctx.Err() == nil {
+		var priced []Candidate
+		for _, k := range t.order {
+			o := t.memo[k]
+			if m, ok := measured[k]; ok {
+				o = m
+			}
+			if o.reason == "" {
+				priced = append(priced, o.c)
+			}
+		}
+		fr := designedFront(priced)
+		var todo []Candidate
+		for _, c := range fr {
+			if o := t.memo[planKey(c.Plan)]; !o.analyzed {
+				if _, ok := measured[planKey(c.Plan)]; !ok {
+					todo = append(todo, c)
+				}
+			}
+		}
+		if len(todo) == 0 {
+			return fr
+		}
+		outs := make([]outcome, len(todo))
+		done := runAll(ctx, t.jobs, len(todo), func(i int) {
+			c, why := des.analyze(todo[i])
+			outs[i] = outcome{c: c, reason: why, analyzed: true}
+		}, nil)
+		for i, ok := range done {
+			if !ok {
+				return nil
+			}
+			measured[planKey(todo[i].Plan)] = outs[i]
+		}
+	}
+	return nil
 }
 
 // widener is a designer that can name the coefficient width a dropped

@@ -156,6 +156,7 @@ func runPlan(c *cli.Context) error {
 	set.Jobs = c.Int("jobs")
 	prog := newProgress(c.App.ErrWriter, j.quiet)
 	set.Progress = prog.update
+	set.Scoring = prog.scoring
 
 	sigCtx := c.Context
 	ctx := sigCtx
@@ -347,13 +348,15 @@ func (j *job) finish(ctx context.Context, command string, res *optimize.Result) 
 }
 
 // progress shows a bar on stderr for searches that take over about a second,
-// and only when stderr is a terminal.
+// and only when stderr is a terminal: one while the candidates are scored,
+// then one while chains are designed.
 type progress struct {
 	mu    sync.Mutex
 	w     io.Writer
 	on    bool
 	start time.Time
 	bar   *progressbar.ProgressBar
+	phase string // what bar counts
 }
 
 func newProgress(w io.Writer, quiet bool) *progress {
@@ -364,26 +367,41 @@ func newProgress(w io.Writer, quiet bool) *progress {
 	return p
 }
 
-func (p *progress) update(done, total int) {
+// update is optimize.Settings.Progress: designs done of total.
+func (p *progress) update(done, total int) { p.set("designing chains", int64(done), int64(total)) }
+
+// scoring is optimize.Settings.Scoring: candidates scored of total.
+func (p *progress) scoring(done, total int64) { p.set("scoring candidates", done, total) }
+
+func (p *progress) set(phase string, done, total int64) {
 	if !p.on {
 		return
 	}
 	p.mu.Lock()
 	defer p.mu.Unlock()
+	if p.bar != nil && p.phase != phase {
+		_ = p.bar.Finish()
+		_ = p.bar.Clear()
+		p.bar = nil
+	}
 	if p.bar == nil {
 		if time.Since(p.start) < time.Second {
 			return
 		}
-		p.bar = progressbar.NewOptions(total,
+		p.phase = phase
+		p.bar = progressbar.NewOptions64(total,
 			progressbar.OptionSetWriter(p.w),
-			progressbar.OptionSetDescription("designing chains"),
+			progressbar.OptionSetDescription(phase),
 			progressbar.OptionShowCount(),
 			progressbar.OptionSetPredictTime(true),
 			progressbar.OptionThrottle(100*time.Millisecond),
 			progressbar.OptionClearOnFinish(),
 		)
 	}
-	_ = p.bar.Set(done)
+	if p.bar.GetMax64() != total {
+		p.bar.ChangeMax64(total)
+	}
+	_ = p.bar.Set64(done)
 }
 
 func (p *progress) finish() {
