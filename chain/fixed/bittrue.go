@@ -563,8 +563,9 @@ func (cs *chainState) run(x []float64) (yi, yf []float64) {
 	}
 	xi := cs.xi[:len(x)]
 	cs.clipped += ADC(xi, x, cs.bits)
+	lsb := math.Ldexp(1, -(cs.bits - 1)) // exact scaling, as Ldexp
 	for n, q := range xi {
-		e := math.Ldexp(float64(q), -(cs.bits-1)) - x[n]
+		e := float64(q)*lsb - x[n]
 		cs.inErr += e * e
 		cs.inPow += x[n] * x[n]
 	}
@@ -576,8 +577,9 @@ func (cs *chainState) run(x []float64) (yi, yf []float64) {
 		cur, fcur = cs.ib[i], cs.fb[i]
 	}
 	yi = make([]float64, 0, len(cur))
+	olsb := math.Ldexp(1, -(cs.obits - 1))
 	for _, v := range cur {
-		yi = append(yi, math.Ldexp(float64(v), -(cs.obits-1)))
+		yi = append(yi, float64(v)*olsb)
 	}
 	return yi, fcur
 }
@@ -640,8 +642,9 @@ func ADC(dst []int64, x []float64, bits int) int {
 	}
 	lim := int64(1)<<(bits-1) - 1
 	clipped := 0
+	scale := math.Ldexp(1, bits-1) // a power of two: v*scale is exact, as Ldexp is
 	for n, v := range x {
-		s := math.Round(math.Ldexp(v, bits-1))
+		s := math.Round(v * scale)
 		switch {
 		case s > float64(lim):
 			dst[n], clipped = lim, clipped+1
