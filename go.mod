@@ -1,4 +1,4 @@
-module stepdown
+module github.com/stepdown-dsp/stepdown
 
 go 1.26
 

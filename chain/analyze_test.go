@@ -7,7 +7,7 @@ import (
 	"math/rand/v2"
 	"testing"
 
-	"stepdown/chain/remez"
+	"github.com/stepdown-dsp/stepdown/chain/remez"
 )
 
 // besselI0 is the modified Bessel function of order 0 by its power series.

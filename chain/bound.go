@@ -5,7 +5,7 @@ import (
 	"math"
 	"math/bits"
 
-	"stepdown/chain/remez"
+	"github.com/stepdown-dsp/stepdown/chain/remez"
 )
 
 // This file holds rigorous bounds of a stage's magnitude over an interval of

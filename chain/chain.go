@@ -3,7 +3,7 @@ package chain
 import (
 	"math"
 
-	"stepdown/chain/remez"
+	"github.com/stepdown-dsp/stepdown/chain/remez"
 )
 
 // Kind is a stage's kind.

@@ -5,7 +5,7 @@ import (
 	"errors"
 	"fmt"
 
-	"stepdown/chain/remez"
+	"github.com/stepdown-dsp/stepdown/chain/remez"
 )
 
 // Estimate returns the chain with FIR lengths from order estimates (no design).

@@ -5,7 +5,7 @@ import (
 	"strings"
 	"testing"
 
-	"stepdown/chain/remez"
+	"github.com/stepdown-dsp/stepdown/chain/remez"
 )
 
 func TestCompensatorBandsWithEngine(t *testing.T) {

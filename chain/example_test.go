@@ -4,7 +4,7 @@ import (
 	"fmt"
 	"math"
 
-	"stepdown/chain"
+	"github.com/stepdown-dsp/stepdown/chain"
 )
 
 func ExampleParseNotation() {

@@ -3,7 +3,7 @@ package chain
 import (
 	"math"
 
-	"stepdown/chain/remez"
+	"github.com/stepdown-dsp/stepdown/chain/remez"
 )
 
 // FIRStage is a polyphase FIR decimator, half-band when HalfBand is set.

@@ -6,7 +6,7 @@ import (
 	"strings"
 	"testing"
 
-	"stepdown/chain/remez"
+	"github.com/stepdown-dsp/stepdown/chain/remez"
 )
 
 // crSpec is Crochiere and Rabiner's (1975) decimate-by-100 example:

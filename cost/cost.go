@@ -6,7 +6,7 @@ import (
 	"fmt"
 	"math"
 
-	"stepdown/chain"
+	"github.com/stepdown-dsp/stepdown/chain"
 )
 
 // Settings selects how a chain is priced. The zero value is the default:

@@ -5,7 +5,7 @@ import (
 	"strings"
 	"testing"
 
-	"stepdown/chain"
+	"github.com/stepdown-dsp/stepdown/chain"
 )
 
 // handChain is cic3m1r8 > hb(11 taps) > fir2(31 taps) from 32 MHz to 1 MHz

@@ -3,8 +3,8 @@ package cost_test
 import (
 	"fmt"
 
-	"stepdown/chain"
-	"stepdown/cost"
+	"github.com/stepdown-dsp/stepdown/chain"
+	"github.com/stepdown-dsp/stepdown/cost"
 )
 
 func ExampleEvaluate() {

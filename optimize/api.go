@@ -1,9 +1,9 @@
 package optimize
 
 import (
-	"stepdown/chain"
-	"stepdown/chain/fixed"
-	"stepdown/cost"
+	"github.com/stepdown-dsp/stepdown/chain"
+	"github.com/stepdown-dsp/stepdown/chain/fixed"
+	"github.com/stepdown-dsp/stepdown/cost"
 )
 
 // Settings bounds and steers the search. The zero value is the default.

@@ -3,7 +3,7 @@ package optimize
 import (
 	"testing"
 
-	"stepdown/chain"
+	"github.com/stepdown-dsp/stepdown/chain"
 )
 
 // BenchmarkEstimateD4096 scores every candidate of the invented 122.88 MHz

@@ -3,8 +3,8 @@ package optimize
 import (
 	"context"
 
-	"stepdown/chain"
-	"stepdown/cost"
+	"github.com/stepdown-dsp/stepdown/chain"
+	"github.com/stepdown-dsp/stepdown/cost"
 )
 
 // Check designs and measures one named plan exactly as the search's design

@@ -4,8 +4,8 @@ import (
 	"math"
 	"testing"
 
-	"stepdown/chain"
-	"stepdown/cost"
+	"github.com/stepdown-dsp/stepdown/chain"
+	"github.com/stepdown-dsp/stepdown/cost"
 )
 
 // TestEstimatorMatchesChain: the estimate tier's fast figures must be the

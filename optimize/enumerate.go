@@ -3,7 +3,7 @@ package optimize
 import (
 	"math"
 
-	"stepdown/chain"
+	"github.com/stepdown-dsp/stepdown/chain"
 )
 
 // space is the search space of one plan: the ratio, the stage-count limit

@@ -3,8 +3,8 @@ package optimize
 import (
 	"math"
 
-	"stepdown/chain"
-	"stepdown/chain/fixed"
+	"github.com/stepdown-dsp/stepdown/chain"
+	"github.com/stepdown-dsp/stepdown/chain/fixed"
 )
 
 // Reasons a candidate is dropped. The strings are keys of Result.Dropped.

@@ -4,8 +4,8 @@ import (
 	"context"
 	"fmt"
 
-	"stepdown/chain"
-	"stepdown/optimize"
+	"github.com/stepdown-dsp/stepdown/chain"
+	"github.com/stepdown-dsp/stepdown/optimize"
 )
 
 // A 3.072 MHz stream taken down to 48 kHz (D = 64) keeping 20 kHz.

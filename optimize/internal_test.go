@@ -11,8 +11,8 @@ import (
 	"sort"
 	"testing"
 
-	"stepdown/chain"
-	"stepdown/cost"
+	"github.com/stepdown-dsp/stepdown/chain"
+	"github.com/stepdown-dsp/stepdown/cost"
 )
 
 // rxSpec is an invented receiver: 122.88 MHz to 30 kHz (D = 4096), a 10 kHz

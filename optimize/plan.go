@@ -7,9 +7,9 @@ import (
 	"runtime"
 	"sort"
 
-	"stepdown/chain"
-	"stepdown/chain/fixed"
-	"stepdown/cost"
+	"github.com/stepdown-dsp/stepdown/chain"
+	"github.com/stepdown-dsp/stepdown/chain/fixed"
+	"github.com/stepdown-dsp/stepdown/cost"
 )
 
 // MaxCandidates is the largest search space Plan scores. A larger one is

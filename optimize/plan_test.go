@@ -10,8 +10,8 @@ import (
 	"strings"
 	"testing"
 
-	"stepdown/chain"
-	"stepdown/optimize"
+	"github.com/stepdown-dsp/stepdown/chain"
+	"github.com/stepdown-dsp/stepdown/optimize"
 )
 
 // needDesigns skips a test until chain.Design works end to end (the remez

@@ -11,8 +11,8 @@ import (
 	"strings"
 	"testing"
 
-	"stepdown/chain"
-	"stepdown/chain/fixed"
+	"github.com/stepdown-dsp/stepdown/chain"
+	"github.com/stepdown-dsp/stepdown/chain/fixed"
 )
 
 // exampleSpec is the built-in example (cmd/stepdown/internal/specfile,

@@ -7,8 +7,8 @@ import (
 	"strings"
 	"testing"
 
-	"stepdown/chain"
-	"stepdown/chain/fixed"
+	"github.com/stepdown-dsp/stepdown/chain"
+	"github.com/stepdown-dsp/stepdown/chain/fixed"
 )
 
 // TestRoundingTable prints, for the built-in example and invented specs at

@@ -7,8 +7,8 @@ import (
 	"runtime"
 	"testing"
 
-	"stepdown/chain"
-	"stepdown/optimize"
+	"github.com/stepdown-dsp/stepdown/chain"
+	"github.com/stepdown-dsp/stepdown/optimize"
 )
 
 // primeSpec is an invented demanding front end with a prime ratio: 101 MHz

@@ -7,7 +7,7 @@ import (
 	"sort"
 	"time"
 
-	"stepdown/chain"
+	"github.com/stepdown-dsp/stepdown/chain"
 )
 
 // outcome is what one real design gave, and whether its cascade has been

@@ -6,7 +6,7 @@ import (
 	"log"
 	"math"
 
-	"stepdown/plots"
+	"github.com/stepdown-dsp/stepdown/plots"
 )
 
 // An invented chain: 122.88 MHz decimated by 64 to 1.92 MHz.

@@ -7,7 +7,7 @@ import (
 	"math/rand/v2"
 	"strings"
 
-	"stepdown/chain"
+	"github.com/stepdown-dsp/stepdown/chain"
 )
 
 // Tone is one sinusoid of a test signal.

@@ -6,7 +6,7 @@ import (
 	"strings"
 	"testing"
 
-	"stepdown/chain/remez"
+	"github.com/stepdown-dsp/stepdown/chain/remez"
 )
 
 // testCascade is an invented front end: 12.8 MHz in, CIC N=4 R=8, a

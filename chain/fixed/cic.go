@@ -1,6 +1,6 @@
 package fixed
 
-import "stepdown/chain"
+import "github.com/stepdown-dsp/stepdown/chain"
 
 // CICPruning is a CIC decimator's register plan: Hogenauer's (1981) pruning
 // widened so that no input can wrap its output. The rule has one owner,

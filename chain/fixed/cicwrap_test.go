@@ -4,7 +4,7 @@ import (
 	"math/rand/v2"
 	"testing"
 
-	"stepdown/chain"
+	"github.com/stepdown-dsp/stepdown/chain"
 )
 
 // hogenauerOnly is the plan of Hogenauer's (1981) rule alone at his width

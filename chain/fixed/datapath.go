@@ -5,8 +5,8 @@ import (
 	"math"
 	"math/bits"
 
-	"stepdown/chain"
-	"stepdown/chain/remez"
+	"github.com/stepdown-dsp/stepdown/chain"
+	"github.com/stepdown-dsp/stepdown/chain/remez"
 )
 
 // Stage is one decimating stage in the terms the word-length planner needs.

@@ -4,9 +4,9 @@ import (
 	"fmt"
 	"math"
 
-	"stepdown/chain"
-	"stepdown/chain/fixed"
-	"stepdown/chain/remez"
+	"github.com/stepdown-dsp/stepdown/chain"
+	"github.com/stepdown-dsp/stepdown/chain/fixed"
+	"github.com/stepdown-dsp/stepdown/chain/remez"
 )
 
 func ExampleQuantize() {

@@ -8,8 +8,8 @@ import (
 	"os"
 	"testing"
 
-	"stepdown/chain"
-	"stepdown/chain/remez"
+	"github.com/stepdown-dsp/stepdown/chain"
+	"github.com/stepdown-dsp/stepdown/chain/remez"
 )
 
 type refFilter struct {

@@ -5,8 +5,8 @@ import (
 	"fmt"
 	"math"
 
-	"stepdown/chain"
-	"stepdown/chain/remez"
+	"github.com/stepdown-dsp/stepdown/chain"
+	"github.com/stepdown-dsp/stepdown/chain/remez"
 )
 
 // FromChain converts a designed chain and its spec into the planner's terms.

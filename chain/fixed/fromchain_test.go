@@ -7,7 +7,7 @@ import (
 	"strings"
 	"testing"
 
-	"stepdown/chain"
+	"github.com/stepdown-dsp/stepdown/chain"
 )
 
 // handChain builds an invented chain without the remez engine: 12.8 MHz to

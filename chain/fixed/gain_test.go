@@ -4,7 +4,7 @@ import (
 	"math"
 	"testing"
 
-	"stepdown/chain"
+	"github.com/stepdown-dsp/stepdown/chain"
 )
 
 // designed designs an invented chain with the remez engine.

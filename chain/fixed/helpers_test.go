@@ -3,7 +3,7 @@ package fixed
 import (
 	"math"
 
-	"stepdown/chain/remez"
+	"github.com/stepdown-dsp/stepdown/chain/remez"
 )
 
 // besselI0 is the modified Bessel function of order 0 by its power series.

@@ -7,7 +7,7 @@ import (
 	"math"
 	"sort"
 
-	"stepdown/chain/remez"
+	"github.com/stepdown-dsp/stepdown/chain/remez"
 )
 
 // Coefficients is a set of filter taps in two's-complement fixed point.

@@ -1,6 +1,6 @@
 package fixed
 
-import "stepdown/chain"
+import "github.com/stepdown-dsp/stepdown/chain"
 
 // cascadeChain returns the cascade as a chain.Chain, so that its response
 // is the chain package's (chain.Analyze, Chain.Gain): FIR taps are w's

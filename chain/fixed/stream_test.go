@@ -8,7 +8,7 @@ import (
 	"runtime"
 	"testing"
 
-	"stepdown/chain"
+	"github.com/stepdown-dsp/stepdown/chain"
 )
 
 // The chains run a block at a time must give the same samples, bit for bit,

@@ -4,7 +4,7 @@ import (
 	"fmt"
 	"math"
 
-	"stepdown/chain/remez"
+	"github.com/stepdown-dsp/stepdown/chain/remez"
 )
 
 // A lowpass at 48 kHz: passband to 8 kHz, stopband from 10 kHz, with the

@@ -10,9 +10,9 @@ import (
 
 	"github.com/urfave/cli/v2"
 
-	"stepdown/chain"
-	"stepdown/chain/remez"
-	"stepdown/cmd/stepdown/internal/units"
+	"github.com/stepdown-dsp/stepdown/chain"
+	"github.com/stepdown-dsp/stepdown/chain/remez"
+	"github.com/stepdown-dsp/stepdown/cmd/stepdown/internal/units"
 )
 
 func designCommand() *cli.Command {

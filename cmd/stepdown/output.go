@@ -13,11 +13,11 @@ import (
 	"sort"
 	"sync"
 
-	"stepdown/chain"
-	"stepdown/cmd/stepdown/internal/report"
-	"stepdown/cmd/stepdown/internal/specfile"
-	"stepdown/optimize"
-	"stepdown/plots"
+	"github.com/stepdown-dsp/stepdown/chain"
+	"github.com/stepdown-dsp/stepdown/cmd/stepdown/internal/report"
+	"github.com/stepdown-dsp/stepdown/cmd/stepdown/internal/specfile"
+	"github.com/stepdown-dsp/stepdown/optimize"
+	"github.com/stepdown-dsp/stepdown/plots"
 )
 
 // outDir writes a run's files into a temporary folder beside the output

@@ -7,7 +7,7 @@ import (
 	"strings"
 	"testing"
 
-	"stepdown/cmd/stepdown/internal/report"
+	"github.com/stepdown-dsp/stepdown/cmd/stepdown/internal/report"
 )
 
 // runOut is one run's output step: prepare, write one report.json, commit.

@@ -15,12 +15,12 @@ import (
 	"github.com/urfave/cli/v2"
 	"golang.org/x/term"
 
-	"stepdown/chain"
-	"stepdown/cmd/stepdown/internal/report"
-	"stepdown/cmd/stepdown/internal/specfile"
-	"stepdown/cmd/stepdown/internal/units"
-	"stepdown/cost"
-	"stepdown/optimize"
+	"github.com/stepdown-dsp/stepdown/chain"
+	"github.com/stepdown-dsp/stepdown/cmd/stepdown/internal/report"
+	"github.com/stepdown-dsp/stepdown/cmd/stepdown/internal/specfile"
+	"github.com/stepdown-dsp/stepdown/cmd/stepdown/internal/units"
+	"github.com/stepdown-dsp/stepdown/cost"
+	"github.com/stepdown-dsp/stepdown/optimize"
 )
 
 const defaultOut = "stepdown-out"

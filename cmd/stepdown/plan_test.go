@@ -3,7 +3,7 @@ package main
 import (
 	"testing"
 
-	"stepdown/optimize"
+	"github.com/stepdown-dsp/stepdown/optimize"
 )
 
 // The empty-front error carries optimize's Reason as well as the dropped

@@ -9,12 +9,12 @@ import (
 
 	"github.com/urfave/cli/v2"
 
-	"stepdown/cmd/stepdown/internal/htmlreport"
-	"stepdown/cmd/stepdown/internal/report"
-	"stepdown/cmd/stepdown/internal/specfile"
-	"stepdown/cmd/stepdown/internal/sweep"
-	"stepdown/cmd/stepdown/internal/units"
-	"stepdown/optimize"
+	"github.com/stepdown-dsp/stepdown/cmd/stepdown/internal/htmlreport"
+	"github.com/stepdown-dsp/stepdown/cmd/stepdown/internal/report"
+	"github.com/stepdown-dsp/stepdown/cmd/stepdown/internal/specfile"
+	"github.com/stepdown-dsp/stepdown/cmd/stepdown/internal/sweep"
+	"github.com/stepdown-dsp/stepdown/cmd/stepdown/internal/units"
+	"github.com/stepdown-dsp/stepdown/optimize"
 )
 
 // sweepPlan runs one value's search; tests substitute a fake.

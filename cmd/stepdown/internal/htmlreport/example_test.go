@@ -4,9 +4,9 @@ import (
 	"fmt"
 	"strings"
 
-	"stepdown/cmd/stepdown/internal/htmlreport"
-	"stepdown/cmd/stepdown/internal/report"
-	"stepdown/cmd/stepdown/internal/specfile"
+	"github.com/stepdown-dsp/stepdown/cmd/stepdown/internal/htmlreport"
+	"github.com/stepdown-dsp/stepdown/cmd/stepdown/internal/report"
+	"github.com/stepdown-dsp/stepdown/cmd/stepdown/internal/specfile"
 )
 
 func ExamplePlan() {

@@ -10,10 +10,10 @@ import (
 	"strconv"
 	"strings"
 
-	"stepdown/cmd/stepdown/internal/report"
-	"stepdown/cmd/stepdown/internal/sweep"
-	"stepdown/cmd/stepdown/internal/units"
-	"stepdown/cost"
+	"github.com/stepdown-dsp/stepdown/cmd/stepdown/internal/report"
+	"github.com/stepdown-dsp/stepdown/cmd/stepdown/internal/sweep"
+	"github.com/stepdown-dsp/stepdown/cmd/stepdown/internal/units"
+	"github.com/stepdown-dsp/stepdown/cost"
 )
 
 // PlanPage is the input of Plan.

@@ -10,11 +10,11 @@ import (
 	"strings"
 	"testing"
 
-	"stepdown/chain/fixed"
-	"stepdown/cmd/stepdown/internal/report"
-	"stepdown/cmd/stepdown/internal/specfile"
-	"stepdown/cmd/stepdown/internal/sweep"
-	"stepdown/plots"
+	"github.com/stepdown-dsp/stepdown/chain/fixed"
+	"github.com/stepdown-dsp/stepdown/cmd/stepdown/internal/report"
+	"github.com/stepdown-dsp/stepdown/cmd/stepdown/internal/specfile"
+	"github.com/stepdown-dsp/stepdown/cmd/stepdown/internal/sweep"
+	"github.com/stepdown-dsp/stepdown/plots"
 )
 
 // -sample DIR writes a sample report.html (and the files it links) into DIR,

@@ -5,10 +5,10 @@ import (
 	"strings"
 	"testing"
 
-	"stepdown/chain"
-	"stepdown/cmd/stepdown/internal/specfile"
-	"stepdown/cost"
-	"stepdown/optimize"
+	"github.com/stepdown-dsp/stepdown/chain"
+	"github.com/stepdown-dsp/stepdown/cmd/stepdown/internal/specfile"
+	"github.com/stepdown-dsp/stepdown/cost"
+	"github.com/stepdown-dsp/stepdown/optimize"
 )
 
 // A hand-made two-stage chain: CIC N=3, M=1, R=8 then a 7-tap half-band-like

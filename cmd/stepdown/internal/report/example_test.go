@@ -3,7 +3,7 @@ package report_test
 import (
 	"fmt"
 
-	"stepdown/cmd/stepdown/internal/report"
+	"github.com/stepdown-dsp/stepdown/cmd/stepdown/internal/report"
 )
 
 func ExampleReadmemH() {

@@ -11,10 +11,10 @@ import (
 	"strings"
 	"sync"
 
-	"stepdown/chain"
-	"stepdown/chain/fixed"
-	"stepdown/cmd/stepdown/internal/specfile"
-	"stepdown/optimize"
+	"github.com/stepdown-dsp/stepdown/chain"
+	"github.com/stepdown-dsp/stepdown/chain/fixed"
+	"github.com/stepdown-dsp/stepdown/cmd/stepdown/internal/specfile"
+	"github.com/stepdown-dsp/stepdown/optimize"
 )
 
 // Schema names the report format.

@@ -9,10 +9,10 @@ import (
 	"strings"
 	"testing"
 
-	"stepdown/chain"
-	"stepdown/cmd/stepdown/internal/specfile"
-	"stepdown/cost"
-	"stepdown/optimize"
+	"github.com/stepdown-dsp/stepdown/chain"
+	"github.com/stepdown-dsp/stepdown/cmd/stepdown/internal/specfile"
+	"github.com/stepdown-dsp/stepdown/cost"
+	"github.com/stepdown-dsp/stepdown/optimize"
 )
 
 // designedFront designs cic3m1r8 > hb > fir2 for real for an invented spec

@@ -3,7 +3,7 @@ package specfile_test
 import (
 	"fmt"
 
-	"stepdown/cmd/stepdown/internal/specfile"
+	"github.com/stepdown-dsp/stepdown/cmd/stepdown/internal/specfile"
 )
 
 func ExampleParse() {

@@ -15,11 +15,11 @@ import (
 
 	"github.com/BurntSushi/toml"
 
-	"stepdown/chain"
-	"stepdown/chain/fixed"
-	"stepdown/cmd/stepdown/internal/units"
-	"stepdown/cost"
-	"stepdown/optimize"
+	"github.com/stepdown-dsp/stepdown/chain"
+	"github.com/stepdown-dsp/stepdown/chain/fixed"
+	"github.com/stepdown-dsp/stepdown/cmd/stepdown/internal/units"
+	"github.com/stepdown-dsp/stepdown/cost"
+	"github.com/stepdown-dsp/stepdown/optimize"
 )
 
 // MaxFileSize is the largest spec file accepted, in bytes (64 KiB). A spec is

@@ -5,8 +5,8 @@ import (
 	"strings"
 	"testing"
 
-	"stepdown/chain/remez"
-	"stepdown/optimize"
+	"github.com/stepdown-dsp/stepdown/chain/remez"
+	"github.com/stepdown-dsp/stepdown/optimize"
 )
 
 // The library's messages reach the user through InFileTerms; each is made

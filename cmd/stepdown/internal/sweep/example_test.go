@@ -3,7 +3,7 @@ package sweep_test
 import (
 	"fmt"
 
-	"stepdown/cmd/stepdown/internal/sweep"
+	"github.com/stepdown-dsp/stepdown/cmd/stepdown/internal/sweep"
 )
 
 func ExampleParseVary() {

@@ -3,7 +3,7 @@ package sweep
 import (
 	"io"
 
-	"stepdown/plots"
+	"github.com/stepdown-dsp/stepdown/plots"
 )
 
 // FigurePoint is one value of the sweep figure.

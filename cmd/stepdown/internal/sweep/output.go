@@ -9,8 +9,8 @@ import (
 	"strconv"
 	"strings"
 
-	"stepdown/cmd/stepdown/internal/report"
-	"stepdown/cmd/stepdown/internal/specfile"
+	"github.com/stepdown-dsp/stepdown/cmd/stepdown/internal/report"
+	"github.com/stepdown-dsp/stepdown/cmd/stepdown/internal/specfile"
 )
 
 // Schema names the sweep's report.json format.

@@ -9,10 +9,10 @@ import (
 	"sort"
 	"sync"
 
-	"stepdown/chain"
-	"stepdown/cmd/stepdown/internal/report"
-	"stepdown/cmd/stepdown/internal/specfile"
-	"stepdown/optimize"
+	"github.com/stepdown-dsp/stepdown/chain"
+	"github.com/stepdown-dsp/stepdown/cmd/stepdown/internal/report"
+	"github.com/stepdown-dsp/stepdown/cmd/stepdown/internal/specfile"
+	"github.com/stepdown-dsp/stepdown/optimize"
 )
 
 // Map calls fn(ctx, i) for i in [0, n) on at most workers goroutines and

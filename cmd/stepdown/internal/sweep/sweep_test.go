@@ -9,12 +9,12 @@ import (
 	"strings"
 	"testing"
 
-	"stepdown/chain"
-	"stepdown/chain/fixed"
-	"stepdown/cmd/stepdown/internal/report"
-	"stepdown/cmd/stepdown/internal/specfile"
-	"stepdown/cost"
-	"stepdown/optimize"
+	"github.com/stepdown-dsp/stepdown/chain"
+	"github.com/stepdown-dsp/stepdown/chain/fixed"
+	"github.com/stepdown-dsp/stepdown/cmd/stepdown/internal/report"
+	"github.com/stepdown-dsp/stepdown/cmd/stepdown/internal/specfile"
+	"github.com/stepdown-dsp/stepdown/cost"
+	"github.com/stepdown-dsp/stepdown/optimize"
 )
 
 func TestParseVary(t *testing.T) {

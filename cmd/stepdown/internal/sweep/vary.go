@@ -10,9 +10,9 @@ import (
 
 	"github.com/BurntSushi/toml"
 
-	"stepdown/chain"
-	"stepdown/cmd/stepdown/internal/specfile"
-	"stepdown/cmd/stepdown/internal/units"
+	"github.com/stepdown-dsp/stepdown/chain"
+	"github.com/stepdown-dsp/stepdown/cmd/stepdown/internal/specfile"
+	"github.com/stepdown-dsp/stepdown/cmd/stepdown/internal/units"
 )
 
 // MaxValues is the most values one sweep runs: each value is a full search.
