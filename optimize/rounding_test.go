@@ -15,7 +15,7 @@ import (
 	"github.com/stepdown-dsp/stepdown/chain/fixed"
 )
 
-// exampleSpec is the built-in example (cmd/stepdown/internal/specfile,
+// exampleSpec is the built-in example (chain/specfile,
 // example.go): 122.88 MS/s to 1.92 MS/s I/Q, 480 kHz passband, 640 kHz
 // protected, 0.2 dB ripple, 90 dB rejection, 16-bit input, 24-bit output,
 // 18-bit coefficients; its search settings are max_stages 5, CIC orders 3

@@ -12,7 +12,7 @@ import (
 
 	"github.com/stepdown-dsp/stepdown/chain"
 	"github.com/stepdown-dsp/stepdown/chain/remez"
-	"github.com/stepdown-dsp/stepdown/cmd/stepdown/internal/units"
+	"github.com/stepdown-dsp/stepdown/chain/units"
 )
 
 func designCommand() *cli.Command {

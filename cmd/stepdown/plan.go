@@ -16,11 +16,12 @@ import (
 	"golang.org/x/term"
 
 	"github.com/stepdown-dsp/stepdown/chain"
-	"github.com/stepdown-dsp/stepdown/cmd/stepdown/internal/report"
-	"github.com/stepdown-dsp/stepdown/cmd/stepdown/internal/specfile"
-	"github.com/stepdown-dsp/stepdown/cmd/stepdown/internal/units"
+	"github.com/stepdown-dsp/stepdown/chain/specfile"
+	"github.com/stepdown-dsp/stepdown/chain/units"
 	"github.com/stepdown-dsp/stepdown/cost"
 	"github.com/stepdown-dsp/stepdown/optimize"
+	"github.com/stepdown-dsp/stepdown/plots/htmlreport"
+	"github.com/stepdown-dsp/stepdown/plots/report"
 )
 
 const defaultOut = "stepdown-out"
@@ -91,7 +92,7 @@ type job struct {
 	c       *cli.Context
 	spec    *specfile.Spec
 	source  string
-	out     *outDir
+	out     *report.Folder
 	quiet   bool
 	json    bool
 	started time.Time
@@ -146,7 +147,7 @@ func runPlan(c *cli.Context) error {
 	if err != nil {
 		return err
 	}
-	defer j.out.cleanup()
+	defer j.out.Discard()
 
 	if c.IsSet("max-stages") {
 		// The override goes into the spec so that report.json records it.
@@ -168,7 +169,7 @@ func runPlan(c *cli.Context) error {
 	res, err := optimize.Plan(ctx, j.spec.Chain, set)
 	prog.finish()
 	if sigCtx.Err() != nil {
-		return fmt.Errorf("interrupted; %s left as it was", clip(j.out.dir))
+		return fmt.Errorf("interrupted; %s left as it was", clip(j.out.Dir()))
 	}
 	if err != nil {
 		msg := specfile.InFileTerms(err.Error())
@@ -180,10 +181,10 @@ func runPlan(c *cli.Context) error {
 		return fmt.Errorf("plan: %s", msg)
 	}
 	if res.Partial && len(res.Front) == 0 {
-		return fmt.Errorf("--timeout %v: stopped before any chain was designed; %s left as it was (allow more time)", c.Duration("timeout"), clip(j.out.dir))
+		return fmt.Errorf("--timeout %v: stopped before any chain was designed; %s left as it was (allow more time)", c.Duration("timeout"), clip(j.out.Dir()))
 	}
 	if len(res.Front) == 0 {
-		return emptyFront(res, clip(j.out.dir))
+		return emptyFront(res, clip(j.out.Dir()))
 	}
 	return j.finish(ctx, "plan", res)
 }
@@ -225,7 +226,7 @@ func runCheck(c *cli.Context) error {
 	if err != nil {
 		return err
 	}
-	defer j.out.cleanup()
+	defer j.out.Discard()
 	// The product is checked stage by stage against D, so that it cannot
 	// overflow: every factor is at least 2.
 	want := j.spec.Chain.Decimation()
@@ -244,7 +245,7 @@ func runCheck(c *cli.Context) error {
 	// (optimize.Check), so the notation plan prints gives the same figures.
 	cand, _, err := optimize.Check(c.Context, j.spec.Chain, plan, set)
 	if c.Context.Err() != nil {
-		return fmt.Errorf("interrupted; %s left as it was", clip(j.out.dir))
+		return fmt.Errorf("interrupted; %s left as it was", clip(j.out.Dir()))
 	}
 	if err != nil {
 		var pe *chain.PlanError
@@ -312,30 +313,30 @@ func (j *job) finish(ctx context.Context, command string, res *optimize.Result) 
 		return err
 	}
 	if j.c.Context.Err() != nil {
-		return fmt.Errorf("interrupted; %s left as it was", clip(j.out.dir))
+		return fmt.Errorf("interrupted; %s left as it was", clip(j.out.Dir()))
 	}
 	if command == "check" && len(rep.Front) == 1 {
 		rep.Reason = checkReason(rep.Front[0], rep.Spec)
 	}
-	files, err := buildFiles(j.c.Context, rep, res, j.spec)
+	files, err := report.Files(j.c.Context, rep, res, j.spec)
 	if j.c.Context.Err() != nil {
-		return fmt.Errorf("interrupted; %s left as it was", clip(j.out.dir))
+		return fmt.Errorf("interrupted; %s left as it was", clip(j.out.Dir()))
 	}
 	if err != nil {
 		return err
 	}
 	if j.c.Bool("html") {
-		if files, err = withHTML(j.source, rep, files); err != nil {
+		if files, err = htmlreport.AddPlanPage(j.source, rep, files); err != nil {
 			return err
 		}
 	}
 	if j.c.Context.Err() != nil {
-		return fmt.Errorf("interrupted; %s left as it was", clip(j.out.dir))
+		return fmt.Errorf("interrupted; %s left as it was", clip(j.out.Dir()))
 	}
-	if err := j.out.write(files); err != nil {
+	if err := j.out.Write(files); err != nil {
 		return err
 	}
-	if err := j.out.commit(); err != nil {
+	if err := j.out.Commit(); err != nil {
 		return err
 	}
 	if j.json {
@@ -440,7 +441,7 @@ func printSummary(w io.Writer, j *job, rep *report.Report, files []report.File) 
 	if len(rep.Front) > 0 {
 		printWords(w, rep)
 	}
-	fmt.Fprintf(w, "\nwrote %s/\n", j.out.dir)
+	fmt.Fprintf(w, "\nwrote %s/\n", j.out.Dir())
 	for _, f := range files {
 		fmt.Fprintf(w, "  %s\n", f.Name)
 	}

@@ -43,7 +43,7 @@ func TestInterruptLeavesNoFiles(t *testing.T) {
 	// Wait (not a timing assertion) until the run has created its temporary
 	// folder, which happens after the spec is read and before the search.
 	for i := 0; i < 600; i++ {
-		if m, _ := filepath.Glob(filepath.Join(dir, tmpPrefix+"*")); len(m) > 0 {
+		if m, _ := filepath.Glob(filepath.Join(dir, ".stepdown-tmp-*")); len(m) > 0 {
 			break
 		}
 		time.Sleep(50 * time.Millisecond)

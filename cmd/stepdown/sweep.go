@@ -1,7 +1,6 @@
 package main
 
 import (
-	"bytes"
 	"context"
 	"fmt"
 	"io"
@@ -9,12 +8,12 @@ import (
 
 	"github.com/urfave/cli/v2"
 
-	"github.com/stepdown-dsp/stepdown/cmd/stepdown/internal/htmlreport"
-	"github.com/stepdown-dsp/stepdown/cmd/stepdown/internal/report"
-	"github.com/stepdown-dsp/stepdown/cmd/stepdown/internal/specfile"
-	"github.com/stepdown-dsp/stepdown/cmd/stepdown/internal/sweep"
-	"github.com/stepdown-dsp/stepdown/cmd/stepdown/internal/units"
+	"github.com/stepdown-dsp/stepdown/chain/specfile"
+	"github.com/stepdown-dsp/stepdown/chain/units"
 	"github.com/stepdown-dsp/stepdown/optimize"
+	"github.com/stepdown-dsp/stepdown/optimize/sweep"
+	"github.com/stepdown-dsp/stepdown/plots/htmlreport"
+	"github.com/stepdown-dsp/stepdown/plots/report"
 )
 
 // sweepPlan runs one value's search; tests substitute a fake.
@@ -62,7 +61,7 @@ func runSweep(c *cli.Context) error {
 	if err != nil {
 		return err
 	}
-	defer out.cleanup()
+	defer out.Discard()
 
 	sigCtx := c.Context
 	ctx := sigCtx
@@ -91,7 +90,7 @@ func runSweep(c *cli.Context) error {
 	rs := sweep.Run(ctx, st)
 	prog.finish()
 	if sigCtx.Err() != nil {
-		return fmt.Errorf("interrupted; %s left as it was", clip(out.dir))
+		return fmt.Errorf("interrupted; %s left as it was", clip(out.Dir()))
 	}
 	nChain, nInvalid := 0, 0
 	for _, r := range rs {
@@ -113,7 +112,7 @@ func runSweep(c *cli.Context) error {
 				break
 			}
 		}
-		return fmt.Errorf("--vary %s=%s: no value gives a chain (%s: %s); %s left as it was", v.Key.Name, v.Text, v.Key.Format(first.Value), specfile.InFileTerms(first.Detail), clip(out.dir))
+		return fmt.Errorf("--vary %s=%s: no value gives a chain (%s: %s); %s left as it was", v.Key.Name, v.Text, v.Key.Format(first.Value), specfile.InFileTerms(first.Detail), clip(out.Dir()))
 	}
 
 	files, doc, err := sweepFiles(source, base, v, rs, c.Bool("html"))
@@ -121,12 +120,12 @@ func runSweep(c *cli.Context) error {
 		return err
 	}
 	if c.Context.Err() != nil {
-		return fmt.Errorf("interrupted; %s left as it was", clip(out.dir))
+		return fmt.Errorf("interrupted; %s left as it was", clip(out.Dir()))
 	}
-	if err := out.write(files); err != nil {
+	if err := out.Write(files); err != nil {
 		return err
 	}
-	if err := out.commit(); err != nil {
+	if err := out.Commit(); err != nil {
 		return err
 	}
 	if asJSON {
@@ -141,83 +140,19 @@ func runSweep(c *cli.Context) error {
 	case asJSON:
 		w = c.App.ErrWriter
 	}
-	printSweep(w, source, out.dir, v, doc, files)
+	printSweep(w, source, out.Dir(), v, doc, files)
 	return nil
 }
 
-// sweepFiles renders every file of a sweep in memory, report.json first.
+// sweepFiles renders every file of a sweep in memory, report.json first,
+// with report.html last when html is set.
 func sweepFiles(source string, base *specfile.Spec, v sweep.Vary, rs []sweep.Result, html bool) ([]report.File, *sweep.Doc, error) {
-	doc := sweep.NewDoc(base, v, rs)
-	js, err := doc.Marshal()
-	if err != nil {
-		return nil, nil, err
+	files, doc, err := sweep.Files(source, base, v, rs)
+	if err != nil || !html {
+		return files, doc, err
 	}
-	files := []report.File{{Name: "report.json", Data: js}, {Name: "sweep.csv", Data: sweep.CSV(v, rs)}}
-	fd := sweep.NewFigureData("Sweep of "+v.Key.Name+": "+source, v, rs)
-	for _, ext := range []string{"svg", "png"} {
-		var b bytes.Buffer
-		if err := sweep.Render(&b, fd, ext); err != nil {
-			return nil, nil, err
-		}
-		files = append(files, report.File{Name: "sweep." + ext, Data: b.Bytes()})
-	}
-	for i, r := range rs {
-		if !r.Status.HasChain() {
-			continue
-		}
-		dir := sweep.ValueDir(i) + "/"
-		b, err := r.Report.Marshal()
-		if err != nil {
-			return nil, nil, fmt.Errorf("%s = %s: %v", v.Key.Name, v.Key.Format(r.Value), err)
-		}
-		files = append(files, report.File{Name: dir + "report.json", Data: b})
-		cf, err := report.CoefficientFiles(r.Report.Front[r.Report.Recommended], r.Report.Spec.Words.CoefficientsMode != "float")
-		if err != nil {
-			return nil, nil, fmt.Errorf("%s = %s: %v", v.Key.Name, v.Key.Format(r.Value), err)
-		}
-		for _, f := range cf {
-			files = append(files, report.File{Name: dir + f.Name, Data: f.Data})
-		}
-	}
-	if html {
-		names := append(fileNames(files), "report.html")
-		page, err := htmlreport.Sweep(htmlreport.SweepPage{Source: source, Doc: doc, Figure: files[2].Data, Files: names})
-		if err != nil {
-			return nil, nil, err
-		}
-		files = append(files, report.File{Name: "report.html", Data: page})
-	}
-	return files, doc, nil
-}
-
-// withHTML adds report.html to a plan's or check's files, built from the
-// figures already rendered among them.
-func withHTML(source string, rep *report.Report, files []report.File) ([]report.File, error) {
-	get := func(name string) []byte {
-		for _, f := range files {
-			if f.Name == name {
-				return f.Data
-			}
-		}
-		return nil
-	}
-	page, err := htmlreport.Plan(htmlreport.PlanPage{
-		Source: source, Report: rep,
-		Front: get("front.svg"), Response: get("response.svg"), Stages: get("stages.svg"),
-		Files: append(fileNames(files), "report.html"),
-	})
-	if err != nil {
-		return nil, err
-	}
-	return append(files, report.File{Name: "report.html", Data: page}), nil
-}
-
-func fileNames(files []report.File) []string {
-	var out []string
-	for _, f := range files {
-		out = append(out, f.Name)
-	}
-	return out
+	files, err = htmlreport.AddSweepPage(source, doc, files)
+	return files, doc, err
 }
 
 func printSweep(w io.Writer, source, dir string, v sweep.Vary, doc *sweep.Doc, files []report.File) {

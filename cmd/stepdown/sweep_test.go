@@ -11,10 +11,10 @@ import (
 	"testing"
 
 	"github.com/stepdown-dsp/stepdown/chain"
-	"github.com/stepdown-dsp/stepdown/cmd/stepdown/internal/report"
-	"github.com/stepdown-dsp/stepdown/cmd/stepdown/internal/sweep"
 	"github.com/stepdown-dsp/stepdown/cost"
 	"github.com/stepdown-dsp/stepdown/optimize"
+	"github.com/stepdown-dsp/stepdown/optimize/sweep"
+	"github.com/stepdown-dsp/stepdown/plots/report"
 )
 
 func TestSweepUsageErrors(t *testing.T) {

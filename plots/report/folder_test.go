@@ -1,4 +1,4 @@
-package main
+package report
 
 import (
 	"errors"
@@ -6,22 +6,20 @@ import (
 	"path/filepath"
 	"strings"
 	"testing"
-
-	"github.com/stepdown-dsp/stepdown/cmd/stepdown/internal/report"
 )
 
 // runOut is one run's output step: prepare, write one report.json, commit.
 func runOut(t *testing.T, dir, content string) error {
 	t.Helper()
-	o, err := prepareOut(dir)
+	o, err := OpenFolder(dir, "--out")
 	if err != nil {
 		return err
 	}
-	defer o.cleanup()
-	if err := o.write([]report.File{{Name: "report.json", Data: []byte(content)}}); err != nil {
+	defer o.Discard()
+	if err := o.Write([]File{{Name: "report.json", Data: []byte(content)}}); err != nil {
 		return err
 	}
-	return o.commit()
+	return o.Commit()
 }
 
 // litter lists what a run left beside the output folder.
@@ -103,7 +101,7 @@ func TestOutOldNotWritable(t *testing.T) {
 	must(t, os.WriteFile(filepath.Join(sub, "a.csv"), nil, 0o644))
 	must(t, os.Chmod(sub, 0o555))
 	defer os.Chmod(sub, 0o755)
-	_, err := prepareOut(dir)
+	_, err := OpenFolder(dir, "--out")
 	if err == nil || !strings.Contains(err.Error(), "could not be removed") {
 		t.Fatalf("prepareOut = %v, want the previous output refused", err)
 	}
@@ -114,20 +112,20 @@ func TestOutOldNotWritable(t *testing.T) {
 func TestOutRace(t *testing.T) {
 	parent := t.TempDir()
 	dir := filepath.Join(parent, "out")
-	a, err := prepareOut(dir)
+	a, err := OpenFolder(dir, "--out")
 	must(t, err)
-	b, err := prepareOut(dir)
+	b, err := OpenFolder(dir, "--out")
 	must(t, err)
-	defer a.cleanup()
-	defer b.cleanup()
-	must(t, a.write([]report.File{{Name: "report.json", Data: []byte("a")}}))
-	must(t, b.write([]report.File{{Name: "report.json", Data: []byte("b")}}))
-	must(t, a.commit())
-	err = b.commit()
+	defer a.Discard()
+	defer b.Discard()
+	must(t, a.Write([]File{{Name: "report.json", Data: []byte("a")}}))
+	must(t, b.Write([]File{{Name: "report.json", Data: []byte("b")}}))
+	must(t, a.Commit())
+	err = b.Commit()
 	if err == nil || !strings.Contains(err.Error(), "another run created it first; nothing was written") {
 		t.Fatalf("second commit = %v", err)
 	}
-	b.cleanup()
+	b.Discard()
 	if got := readString(t, filepath.Join(dir, "report.json")); got != "a" {
 		t.Errorf("report.json = %q, want the first run's", got)
 	}
@@ -158,5 +156,12 @@ func TestOutCommitFailureRestores(t *testing.T) {
 	}
 	if l := litter(t, parent); len(l) > 0 {
 		t.Errorf("left behind: %v", l)
+	}
+}
+
+func must(t *testing.T, err error) {
+	t.Helper()
+	if err != nil {
+		t.Fatal(err)
 	}
 }

@@ -106,7 +106,7 @@ func TestExample(t *testing.T) {
 	if s.Chain.Decimation() != 64 {
 		t.Errorf("example decimation = %d, want 64", s.Chain.Decimation())
 	}
-	b, err := os.ReadFile(filepath.Join("..", "..", "..", "..", "testdata", "specs", "example.toml"))
+	b, err := os.ReadFile(filepath.Join("..", "..", "testdata", "specs", "example.toml"))
 	if err != nil {
 		t.Fatal(err)
 	}

@@ -4,9 +4,9 @@ import (
 	"fmt"
 	"strings"
 
-	"github.com/stepdown-dsp/stepdown/cmd/stepdown/internal/htmlreport"
-	"github.com/stepdown-dsp/stepdown/cmd/stepdown/internal/report"
-	"github.com/stepdown-dsp/stepdown/cmd/stepdown/internal/specfile"
+	"github.com/stepdown-dsp/stepdown/chain/specfile"
+	"github.com/stepdown-dsp/stepdown/plots/htmlreport"
+	"github.com/stepdown-dsp/stepdown/plots/report"
 )
 
 func ExamplePlan() {

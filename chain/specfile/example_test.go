@@ -3,7 +3,7 @@ package specfile_test
 import (
 	"fmt"
 
-	"github.com/stepdown-dsp/stepdown/cmd/stepdown/internal/specfile"
+	"github.com/stepdown-dsp/stepdown/chain/specfile"
 )
 
 func ExampleParse() {

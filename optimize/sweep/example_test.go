@@ -3,7 +3,7 @@ package sweep_test
 import (
 	"fmt"
 
-	"github.com/stepdown-dsp/stepdown/cmd/stepdown/internal/sweep"
+	"github.com/stepdown-dsp/stepdown/optimize/sweep"
 )
 
 func ExampleParseVary() {

@@ -10,9 +10,9 @@ import (
 	"sync"
 
 	"github.com/stepdown-dsp/stepdown/chain"
-	"github.com/stepdown-dsp/stepdown/cmd/stepdown/internal/report"
-	"github.com/stepdown-dsp/stepdown/cmd/stepdown/internal/specfile"
+	"github.com/stepdown-dsp/stepdown/chain/specfile"
 	"github.com/stepdown-dsp/stepdown/optimize"
+	"github.com/stepdown-dsp/stepdown/plots/report"
 )
 
 // Map calls fn(ctx, i) for i in [0, n) on at most workers goroutines and

@@ -11,8 +11,8 @@ import (
 	"github.com/BurntSushi/toml"
 
 	"github.com/stepdown-dsp/stepdown/chain"
-	"github.com/stepdown-dsp/stepdown/cmd/stepdown/internal/specfile"
-	"github.com/stepdown-dsp/stepdown/cmd/stepdown/internal/units"
+	"github.com/stepdown-dsp/stepdown/chain/specfile"
+	"github.com/stepdown-dsp/stepdown/chain/units"
 )
 
 // MaxValues is the most values one sweep runs: each value is a full search.

@@ -10,10 +10,10 @@ import (
 	"strconv"
 	"strings"
 
-	"github.com/stepdown-dsp/stepdown/cmd/stepdown/internal/report"
-	"github.com/stepdown-dsp/stepdown/cmd/stepdown/internal/sweep"
-	"github.com/stepdown-dsp/stepdown/cmd/stepdown/internal/units"
+	"github.com/stepdown-dsp/stepdown/chain/units"
 	"github.com/stepdown-dsp/stepdown/cost"
+	"github.com/stepdown-dsp/stepdown/optimize/sweep"
+	"github.com/stepdown-dsp/stepdown/plots/report"
 )
 
 // PlanPage is the input of Plan.
@@ -479,4 +479,51 @@ func execute(name string, v any) ([]byte, error) {
 		return nil, fmt.Errorf("htmlreport: %v", err)
 	}
 	return b.Bytes(), nil
+}
+
+// AddPlanPage appends report.html for a plan or check to files (those
+// report.Files wrote for rep), with the figures inlined from them and the
+// file list naming every file and the page itself.
+func AddPlanPage(source string, rep *report.Report, files []report.File) ([]report.File, error) {
+	get := func(name string) []byte {
+		for _, f := range files {
+			if f.Name == name {
+				return f.Data
+			}
+		}
+		return nil
+	}
+	page, err := Plan(PlanPage{
+		Source: source, Report: rep,
+		Front: get("front.svg"), Response: get("response.svg"), Stages: get("stages.svg"),
+		Files: append(fileNames(files), "report.html"),
+	})
+	if err != nil {
+		return nil, err
+	}
+	return append(files, report.File{Name: "report.html", Data: page}), nil
+}
+
+// AddSweepPage appends report.html for a sweep to files (those sweep.Files
+// wrote, the figure third), with the figure inlined.
+func AddSweepPage(source string, doc *sweep.Doc, files []report.File) ([]report.File, error) {
+	var fig []byte
+	for _, f := range files {
+		if f.Name == "sweep.svg" {
+			fig = f.Data
+		}
+	}
+	page, err := Sweep(SweepPage{Source: source, Doc: doc, Figure: fig, Files: append(fileNames(files), "report.html")})
+	if err != nil {
+		return nil, err
+	}
+	return append(files, report.File{Name: "report.html", Data: page}), nil
+}
+
+func fileNames(files []report.File) []string {
+	var out []string
+	for _, f := range files {
+		out = append(out, f.Name)
+	}
+	return out
 }

@@ -17,7 +17,7 @@ import (
 
 	"github.com/stepdown-dsp/stepdown/chain"
 	"github.com/stepdown-dsp/stepdown/chain/fixed"
-	"github.com/stepdown-dsp/stepdown/cmd/stepdown/internal/units"
+	"github.com/stepdown-dsp/stepdown/chain/units"
 	"github.com/stepdown-dsp/stepdown/cost"
 	"github.com/stepdown-dsp/stepdown/optimize"
 )

@@ -9,8 +9,8 @@ import (
 	"strconv"
 	"strings"
 
-	"github.com/stepdown-dsp/stepdown/cmd/stepdown/internal/report"
-	"github.com/stepdown-dsp/stepdown/cmd/stepdown/internal/specfile"
+	"github.com/stepdown-dsp/stepdown/chain/specfile"
+	"github.com/stepdown-dsp/stepdown/plots/report"
 )
 
 // Schema names the sweep's report.json format.
@@ -209,4 +209,45 @@ func (d *Doc) Marshal() ([]byte, error) {
 		return nil, fmt.Errorf("sweep: report.json: %v", err)
 	}
 	return buf.Bytes(), nil
+}
+
+// Files renders every file of a sweep in memory, in the order written:
+// report.json (the Doc), sweep.csv, sweep.svg and sweep.png (titled "Sweep
+// of KEY: source"), then for each value with a chain its folder (ValueDir):
+// the value's report.json and its recommended chain's coefficient files.
+// It returns the Doc too, for printing.
+func Files(source string, base *specfile.Spec, v Vary, rs []Result) ([]report.File, *Doc, error) {
+	doc := NewDoc(base, v, rs)
+	js, err := doc.Marshal()
+	if err != nil {
+		return nil, nil, err
+	}
+	files := []report.File{{Name: "report.json", Data: js}, {Name: "sweep.csv", Data: CSV(v, rs)}}
+	fd := NewFigureData("Sweep of "+v.Key.Name+": "+source, v, rs)
+	for _, ext := range []string{"svg", "png"} {
+		var b bytes.Buffer
+		if err := Render(&b, fd, ext); err != nil {
+			return nil, nil, err
+		}
+		files = append(files, report.File{Name: "sweep." + ext, Data: b.Bytes()})
+	}
+	for i, r := range rs {
+		if !r.Status.HasChain() {
+			continue
+		}
+		dir := ValueDir(i) + "/"
+		b, err := r.Report.Marshal()
+		if err != nil {
+			return nil, nil, fmt.Errorf("%s = %s: %v", v.Key.Name, v.Key.Format(r.Value), err)
+		}
+		files = append(files, report.File{Name: dir + "report.json", Data: b})
+		cf, err := report.CoefficientFiles(r.Report.Front[r.Report.Recommended], r.Report.Spec.Words.CoefficientsMode != "float")
+		if err != nil {
+			return nil, nil, fmt.Errorf("%s = %s: %v", v.Key.Name, v.Key.Format(r.Value), err)
+		}
+		for _, f := range cf {
+			files = append(files, report.File{Name: dir + f.Name, Data: f.Data})
+		}
+	}
+	return files, doc, nil
 }

@@ -5,7 +5,7 @@ import (
 	"strconv"
 	"strings"
 
-	"github.com/stepdown-dsp/stepdown/cmd/stepdown/internal/units"
+	"github.com/stepdown-dsp/stepdown/chain/units"
 )
 
 // Limits checked on the raw text before it is decoded. The TOML decoder's

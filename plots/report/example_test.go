@@ -3,7 +3,7 @@ package report_test
 import (
 	"fmt"
 
-	"github.com/stepdown-dsp/stepdown/cmd/stepdown/internal/report"
+	"github.com/stepdown-dsp/stepdown/plots/report"
 )
 
 func ExampleReadmemH() {

@@ -11,10 +11,10 @@ import (
 	"testing"
 
 	"github.com/stepdown-dsp/stepdown/chain/fixed"
-	"github.com/stepdown-dsp/stepdown/cmd/stepdown/internal/report"
-	"github.com/stepdown-dsp/stepdown/cmd/stepdown/internal/specfile"
-	"github.com/stepdown-dsp/stepdown/cmd/stepdown/internal/sweep"
+	"github.com/stepdown-dsp/stepdown/chain/specfile"
+	"github.com/stepdown-dsp/stepdown/optimize/sweep"
 	"github.com/stepdown-dsp/stepdown/plots"
+	"github.com/stepdown-dsp/stepdown/plots/report"
 )
 
 // -sample DIR writes a sample report.html (and the files it links) into DIR,

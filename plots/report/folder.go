@@ -1,0 +1,243 @@
+package report
+
+import (
+	"crypto/rand"
+	"encoding/hex"
+	"errors"
+	"fmt"
+	"os"
+	"path/filepath"
+
+	"github.com/stepdown-dsp/stepdown/chain/units"
+)
+
+// Folder writes a run's files into a temporary folder beside the output
+// folder and renames it into place at the end, so that a run that fails or is
+// interrupted leaves the output folder as it was.
+//
+// The temporary folder, and the name the previous output is moved to while
+// the new one takes its place, are short fixed prefixes with a random
+// suffix (.stepdown-tmp-*, .stepdown-old-*) in the same parent folder, so
+// they fit wherever the output folder's own name fits and a rename stays
+// within one file system.
+//
+// Its zero value is not usable: OpenFolder makes one. Messages name the
+// folder as role "dir" (the command line's role is "--out").
+type Folder struct {
+	dir    string // as the caller gave it
+	role   string // what messages call it
+	abs    string
+	tmp    string
+	exists bool
+}
+
+// A FolderError is an error about the output folder. Misuse says that the
+// caller named a folder that cannot serve (a file, a symbolic link, a
+// folder that is not stepdown's output), as opposed to a failure of the
+// file system.
+type FolderError struct {
+	Misuse bool
+	Err    error
+}
+
+func (e *FolderError) Error() string { return e.Err.Error() }
+func (e *FolderError) Unwrap() error { return e.Err }
+
+// Dir is the folder as the caller named it.
+func (o *Folder) Dir() string { return o.dir }
+
+// misuse and failure make FolderErrors.
+func misuse(format string, args ...any) error {
+	return &FolderError{Misuse: true, Err: fmt.Errorf(format, args...)}
+}
+func failure(format string, args ...any) error {
+	return &FolderError{Err: fmt.Errorf(format, args...)}
+}
+
+// Prefixes of the temporary names beside the output folder.
+const (
+	tmpPrefix = ".stepdown-tmp-"
+	oldPrefix = ".stepdown-old-"
+)
+
+// Seams for tests: the file-system calls whose failures commit handles.
+var (
+	removeAll = os.RemoveAll
+	rename    = os.Rename
+)
+
+// OpenFolder checks the output folder dir before any work, and creates the
+// temporary folder beside it; role is what messages call the folder
+// ("output folder" when empty). The folder need not exist; if it does, it
+// must be empty or hold a previous output (a report.json), and it will be
+// replaced as a whole by Commit.
+func OpenFolder(dir, role string) (*Folder, error) {
+	if role == "" {
+		role = "output folder"
+	}
+	if dir == "" {
+		return nil, misuse("%s: empty; name a folder", role)
+	}
+	shown := units.Clip(dir, units.MaxEcho)
+	abs, err := filepath.Abs(dir)
+	if err != nil {
+		return nil, misuse("%s %q: %v", role, shown, err)
+	}
+	o := &Folder{dir: dir, role: role, abs: abs}
+	parent := filepath.Dir(abs)
+	if fi, err := os.Stat(parent); err != nil || !fi.IsDir() {
+		return nil, misuse("%s %q: its parent folder %q does not exist", role, shown, units.Clip(parent, units.MaxEcho))
+	}
+	fi, err := os.Lstat(abs)
+	switch {
+	case errors.Is(err, os.ErrNotExist):
+	case err != nil:
+		return nil, failure("%s %q: %v", role, shown, unwrapPath(err))
+	case fi.Mode()&os.ModeSymlink != 0:
+		return nil, misuse("%s %q: is a symbolic link; it would be replaced as a whole, so give the folder itself", role, shown)
+	case !fi.IsDir():
+		return nil, misuse("%s %q: is a file, not a folder; remove it or choose another folder", role, shown)
+	default:
+		o.exists = true
+		entries, err := os.ReadDir(abs)
+		if err != nil {
+			return nil, failure("%s %q: cannot be read: %v", role, shown, unwrapPath(err))
+		}
+		if len(entries) > 0 {
+			if _, err := os.Stat(filepath.Join(abs, "report.json")); err != nil {
+				return nil, misuse("%s %q: exists and is not a stepdown output folder (no report.json); it would be replaced as a whole, so choose another folder", role, shown)
+			}
+		}
+		// The folder will be replaced and the previous output removed:
+		// make sure both can be done before the search.
+		if err := checkRemovable(abs); err != nil {
+			return nil, failure("%s %q: the previous output could not be removed after the run (%v); fix its permissions or choose another folder", role, shown, err)
+		}
+	}
+	tmp, err := os.MkdirTemp(parent, tmpPrefix+"*")
+	if err != nil {
+		return nil, failure("%s %q: cannot write in %q: %v", role, shown, units.Clip(parent, units.MaxEcho), unwrapPath(err))
+	}
+	o.tmp = tmp
+	// MkdirTemp makes the folder private; the output is an ordinary folder.
+	if err := os.Chmod(tmp, 0o755); err != nil {
+		o.Discard()
+		return nil, failure("%s %q: %v", role, shown, unwrapPath(err))
+	}
+	return o, nil
+}
+
+// checkRemovable reports whether every folder in the tree at dir lets a file
+// be created and removed in it, which removing the tree needs.
+func checkRemovable(dir string) error {
+	return filepath.WalkDir(dir, func(p string, d os.DirEntry, err error) error {
+		if err != nil {
+			return unwrapPath(err)
+		}
+		if !d.IsDir() {
+			return nil
+		}
+		probe, err := os.CreateTemp(p, ".stepdown-probe-*")
+		if err != nil {
+			rel, _ := filepath.Rel(dir, p)
+			return fmt.Errorf("folder %q is not writable", units.Clip(rel, units.MaxEcho))
+		}
+		probe.Close()
+		return os.Remove(probe.Name())
+	})
+}
+
+func unwrapPath(err error) error {
+	var pe *os.PathError
+	if errors.As(err, &pe) {
+		return pe.Err
+	}
+	var le *os.LinkError
+	if errors.As(err, &le) {
+		return le.Err
+	}
+	return err
+}
+
+// Write writes files into the temporary folder (names with / make
+// subfolders).
+func (o *Folder) Write(files []File) error {
+	for _, f := range files {
+		p := filepath.Join(o.tmp, filepath.FromSlash(f.Name))
+		if err := os.MkdirAll(filepath.Dir(p), 0o755); err != nil {
+			return failure("writing %s: %v", f.Name, unwrapPath(err))
+		}
+		if err := os.WriteFile(p, f.Data, 0o644); err != nil {
+			return failure("writing %s: %v", f.Name, unwrapPath(err))
+		}
+	}
+	return nil
+}
+
+// Commit puts the temporary folder in the output folder's place. On any
+// error the output folder is as it was before the run, except in the one
+// case the error says so: the new output is in place but the previous one,
+// moved aside, could not be removed.
+func (o *Folder) Commit() error {
+	shown := units.Clip(o.dir, units.MaxEcho)
+	if !o.exists {
+		if err := rename(o.tmp, o.abs); err != nil {
+			if fi, serr := os.Lstat(o.abs); serr == nil && fi.IsDir() {
+				return failure("%s %q: another run created it first; nothing was written", o.role, shown)
+			}
+			return failure("%s %q: cannot create it: %v", o.role, shown, unwrapPath(err))
+		}
+		o.tmp = ""
+		return nil
+	}
+	old, err := unusedName(filepath.Dir(o.abs), oldPrefix)
+	if err != nil {
+		return failure("%s %q: cannot replace it: %v", o.role, shown, err)
+	}
+	if err := rename(o.abs, old); err != nil {
+		if errors.Is(err, os.ErrNotExist) {
+			return failure("%s %q: another run moved or removed it meanwhile; nothing was written", o.role, shown)
+		}
+		return failure("%s %q: cannot replace it: %v", o.role, shown, unwrapPath(err))
+	}
+	if err := rename(o.tmp, o.abs); err != nil {
+		// Put the previous output back.
+		if rerr := rename(old, o.abs); rerr != nil {
+			return failure("%s %q: cannot replace it (%v), and the previous output could not be put back: it is in %q", o.role, shown, unwrapPath(err), old)
+		}
+		if fi, serr := os.Lstat(o.abs); serr == nil && fi.IsDir() && errors.Is(err, os.ErrExist) {
+			return failure("%s %q: another run replaced it first; nothing was written", o.role, shown)
+		}
+		return failure("%s %q: cannot replace it: %v", o.role, shown, unwrapPath(err))
+	}
+	o.tmp = ""
+	if err := removeAll(old); err != nil {
+		return failure("%s %q: the new output is in place, but the previous one could not be removed: remove %q yourself (%v)", o.role, shown, old, unwrapPath(err))
+	}
+	return nil
+}
+
+// unusedName returns a path in parent, prefix and 16 random hex digits, that
+// does not exist yet (os.Rename will not move a folder onto another).
+func unusedName(parent, prefix string) (string, error) {
+	for range 16 {
+		var b [8]byte
+		if _, err := rand.Read(b[:]); err != nil {
+			return "", err
+		}
+		p := filepath.Join(parent, prefix+hex.EncodeToString(b[:]))
+		if _, err := os.Lstat(p); errors.Is(err, os.ErrNotExist) {
+			return p, nil
+		}
+	}
+	return "", errors.New("no unused temporary name")
+}
+
+// Discard removes the temporary folder of a run that did not commit; it
+// does nothing after Commit, or on a nil Folder.
+func (o *Folder) Discard() {
+	if o != nil && o.tmp != "" {
+		_ = removeAll(o.tmp)
+		o.tmp = ""
+	}
+}
