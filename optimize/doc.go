@@ -1,7 +1,7 @@
 // Package optimize searches the ways to split a decimation ratio into CIC,
 // half-band and FIR stages, designs the promising ones for real, and returns
 // the Pareto front of the designed chains with one recommended chain
-// (DESIGN §8).
+// (docs/design.md §8).
 //
 // Conventions are those of package chain: rates and frequencies in Hz,
 // rejection and attenuation in positive dB, ripple peak-to-peak dB. Costs

@@ -301,7 +301,7 @@ func (e *estimator) score(plan []chain.StagePlan) (figs, dropCode) {
 	return total, dropNone
 }
 
-// stopEdge is where the stage's first attenuated band starts (DESIGN §4):
+// stopEdge is where the stage's first attenuated band starts (docs/design.md §4):
 // Fi - fa, or min(fs, FK - fa) for the last stage.
 func (p *params) stopEdge(out float64, last bool) float64 {
 	if last {
@@ -470,7 +470,7 @@ func herrmann(dp, ds, df float64) float64 {
 }
 
 // cicGain is |H(f)| of a CIC of order n, delay m, factor r at input rate
-// rate, normalised to 1 at f = 0 (DESIGN §4).
+// rate, normalised to 1 at f = 0 (docs/design.md §4).
 func cicGain(f, rate float64, r, n, m int) float64 {
 	x := math.Pi * f / rate
 	rm := float64(r * m)
@@ -483,7 +483,7 @@ func cicGain(f, rate float64, r, n, m int) float64 {
 }
 
 // cicRejection is the CIC's rejection in dB over the bands that fold onto
-// [0, fa] at its output (DESIGN §4), read from its exact response: each
+// [0, fa] at its output (docs/design.md §4), read from its exact response: each
 // band is sampled and the largest sample refined by golden-section search.
 // Bands are visited upward and the walk stops once the response's envelope
 // 1/(RM sin(pi f/F))^N falls below the worst gain found, since it only

@@ -65,7 +65,7 @@ func TestPrimeDemanding(t *testing.T) {
 			t.Errorf("%d taps, estimate 1834", len(st.Taps))
 		}
 		// Every band that folds onto [0, 400 kHz] at 1 MHz, relative to
-		// the gain at 0 Hz (DESIGN §7), read on a 200-point grid per band:
+		// the gain at 0 Hz (docs/design.md §7), read on a 200-point grid per band:
 		// at least 90 dB less 0.02 dB for the grid and the search's slack.
 		h0 := firGain(st.Taps, 0, spec.InputRate)
 		worst := 0.0
