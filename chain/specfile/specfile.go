@@ -443,6 +443,30 @@ func showFull(v any) string {
 	return "a value"
 }
 
+// plusMinus returns the +- sign a tolerance is written with ("+-", "+/-"
+// or "±") when t starts with one, or "".
+func plusMinus(t string) string {
+	t = strings.TrimSpace(t)
+	for _, pm := range []string{"+/-", "+-", "±"} {
+		if strings.HasPrefix(t, pm) {
+			return pm
+		}
+	}
+	return ""
+}
+
+// twice is the peak-to-peak form of a tolerance t written with the sign pm:
+// "+-0.05 dB" gives "0.1 dB"; when the number does not parse, the rule in
+// words.
+func twice(t, pm string) string {
+	rest := strings.TrimPrefix(strings.TrimSpace(t), pm)
+	v, err := units.ParseLevel(rest)
+	if err != nil || !(v > 0) {
+		return "twice the tolerance, in dB"
+	}
+	return strconv.FormatFloat(2*v, 'g', -1, 64) + " dB"
+}
+
 // quantity reads a frequency or level; ok is false when the key is absent.
 func (p *parser) quantity(dotted string, k units.Kind, required bool) (float64, bool, error) {
 	v, present := p.lookup(dotted)
@@ -453,8 +477,11 @@ func (p *parser) quantity(dotted string, k units.Kind, required bool) (float64, 
 		return 0, false, nil
 	}
 	unit, example := "Hz", `"1.2 MHz"`
-	if k == units.Level {
+	switch k {
+	case units.Level:
 		unit, example = "dB", `"85 dB"`
+	case units.Rate:
+		unit, example = "samples per second", `"100 MS/s"`
 	}
 	switch x := v.(type) {
 	case int64:
@@ -588,7 +615,11 @@ func (p *parser) build() (*Spec, error) {
 		{"stopband", &cs.Stopband, false},
 	}
 	for _, f := range freq {
-		v, ok, err := p.quantity(f.key, units.Frequency, f.required)
+		k := units.Frequency
+		if f.key == "input_rate" || f.key == "output_rate" {
+			k = units.Rate
+		}
+		v, ok, err := p.quantity(f.key, k, f.required)
 		if err != nil {
 			return nil, err
 		}
@@ -604,6 +635,13 @@ func (p *parser) build() (*Spec, error) {
 		key string
 		dst *float64
 	}{{"ripple", &cs.RippleDB}, {"rejection", &cs.RejectionDB}} {
+		if raw, ok := p.lookup(f.key); ok && f.key == "ripple" {
+			if t, ok := raw.(string); ok {
+				if pm := plusMinus(t); pm != "" {
+					return nil, p.errAt(f.key, raw, "a tolerance of %s; ripple is the whole peak-to-peak span over the passband: write %q", pm, twice(t, pm))
+				}
+			}
+		}
 		v, _, err := p.quantity(f.key, units.Level, true)
 		if err != nil {
 			return nil, err
@@ -725,7 +763,7 @@ func (p *parser) kinds(v any) ([]chain.Kind, error) {
 		return nil, p.errAt("search.kinds", v, "want a list of stage kinds such as [\"cic\", \"fir\"], not %s", typeName(v))
 	}
 	if len(arr) == 0 {
-		return nil, p.errAt("search.kinds", v, `must list at least one of "cic", "halfband", "fir"`)
+		return nil, p.errAt("search.kinds", v, `must list at least one of "cic", "halfband" (or "hb"), "fir"`)
 	}
 	seen := map[chain.Kind]bool{}
 	for _, e := range arr {
@@ -734,12 +772,12 @@ func (p *parser) kinds(v any) ([]chain.Kind, error) {
 		switch s {
 		case "cic":
 			k = chain.CIC
-		case "halfband":
+		case "halfband", "hb":
 			k = chain.HalfBand
 		case "fir":
 			k = chain.FIR
 		default:
-			return nil, p.errAt("search.kinds", v, `unknown stage kind %s; want "cic", "halfband" or "fir"`, show(e))
+			return nil, p.errAt("search.kinds", v, `unknown stage kind %s; want "cic", "halfband" (or "hb", as the chain notation writes it) or "fir"`, show(e))
 		}
 		if seen[k] {
 			return nil, p.errAt("search.kinds", v, "stage kind %s is listed twice", show(e))

@@ -130,6 +130,10 @@ func TestParseErrors(t *testing.T) {
 		{"not toml", "input_rate = = 3", []string{"not valid TOML"}},
 		{"rate unit", `input_rate = "245.76 XHz"`, []string{"input_rate", `"245.76 XHz"`, "unknown unit"}},
 		{"rate nan", `input_rate = nan`, []string{"input_rate", "not a finite number"}},
+		{"band edge in S/s", `passband = "300 kS/s"`, []string{"passband", "sample-rate unit", "kHz"}},
+		{"ripple +-", `ripple = "+-0.05 dB"`, []string{"ripple", "peak-to-peak", `write "0.1 dB"`}},
+		{"ripple ±", `ripple = "±0.25dB"`, []string{"ripple", "peak-to-peak", `write "0.5 dB"`}},
+		{"ripple +/-", `ripple = "+/-x"`, []string{"ripple", "twice the tolerance"}},
 		{"rate inf", `input_rate = inf`, []string{"input_rate", "not a finite number"}},
 		{"rate zero", `input_rate = 0`, []string{"input_rate", "above 0 Hz"}},
 		{"rate negative", `input_rate = "-1 MHz"`, []string{"input_rate", "above 0 Hz"}},
@@ -352,5 +356,21 @@ func TestSuggestKey(t *testing.T) {
 		if got := editDistance(tc.a, tc.b); got != tc.d {
 			t.Errorf("editDistance(%q, %q) = %d, want %d", tc.a, tc.b, got, tc.d)
 		}
+	}
+}
+
+// The trade's names: sample-rate units for the rates, "hb" for half-bands
+// in search.kinds (the chain notation's name).
+func TestParseTradeNames(t *testing.T) {
+	text := "input_rate = \"245.76 MS/s\"\noutput_rate = \"1.92 Msps\"\npassband = \"600 kHz\"\nripple = 0.1\nrejection = 80\n[search]\nkinds = [\"cic\", \"hb\", \"fir\"]\n"
+	s, err := Parse("t.toml", []byte(text))
+	if err != nil {
+		t.Fatal(err)
+	}
+	if s.Chain.InputRate != 245.76e6 || s.Chain.OutputRate != 1.92e6 {
+		t.Errorf("rates = %v, %v; want 245.76e6 and 1.92e6", s.Chain.InputRate, s.Chain.OutputRate)
+	}
+	if len(s.Kinds) != 3 || s.Kinds[1] != chain.HalfBand {
+		t.Errorf("kinds = %v; want cic, halfband, fir", s.Kinds)
 	}
 }

@@ -5,8 +5,11 @@
 //
 //   - A plain number is in the base unit: "45" is 45 Hz, "85" is 85 dB.
 //   - A number may be followed, with or without spaces, by a unit:
-//     Hz, kHz, MHz, GHz for frequencies (a sample rate in S/s is written in Hz:
-//     "122.88 MHz"), and dB for levels.
+//     Hz, kHz, MHz, GHz for frequencies; for sample rates (ParseRate) those
+//     or the trade's S/s, kS/s, MS/s, GS/s and sps, ksps, Msps, Gsps ("sps"
+//     in any case, the prefixes as for Hz but M and G upper case): "100 MS/s"
+//     is "100 MHz"; and dB for levels. A frequency written in a sample-rate
+//     unit is refused with the reason (a band edge is not a rate).
 //   - Case: the "Hz" and "dB" parts may be written in any case ("hz", "HZ",
 //     "db", "DB"). The prefix k may be k or K, G may be g or G, but M must be
 //     upper case: in SI "mHz" is the millihertz, and reading it as megahertz

@@ -11,16 +11,23 @@ import (
 type Kind int
 
 const (
-	// Frequency is a frequency or sample rate in Hz.
+	// Frequency is a frequency in Hz (Hz, kHz, MHz, GHz).
 	Frequency Kind = iota
 	// Level is a level or ratio in dB.
 	Level
+	// Rate is a sample rate in samples per second, written with the
+	// frequency units or the sample-rate ones of the trade: S/s, kS/s,
+	// MS/s, GS/s and sps, ksps, Msps, Gsps (any case of "sps").
+	Rate
 )
 
-// String returns "frequency" or "level".
+// String returns "frequency", "level" or "sample rate".
 func (k Kind) String() string {
-	if k == Level {
+	switch k {
+	case Level:
 		return "level"
+	case Rate:
+		return "sample rate"
 	}
 	return "frequency"
 }
@@ -37,6 +44,10 @@ func (e *Error) Error() string { return fmt.Sprintf("%q: %s", Clip(e.Value, MaxE
 
 // ParseFrequency parses a frequency in Hz: "45", "45 Hz", "1.2 MHz", "2.5GHz".
 func ParseFrequency(s string) (float64, error) { return Parse(s, Frequency) }
+
+// ParseRate parses a sample rate in samples per second: "100 MS/s",
+// "2.4 GSPS", "122.88 MHz", "48000".
+func ParseRate(s string) (float64, error) { return Parse(s, Rate) }
 
 // ParseLevel parses a level in dB: "85", "85 dB", "0.1dB".
 func ParseLevel(s string) (float64, error) { return Parse(s, Level) }
@@ -93,10 +104,38 @@ func CheckFinite(v float64) error {
 }
 
 func unitHint(k Kind) string {
-	if k == Level {
+	switch k {
+	case Level:
 		return ", optionally followed by dB"
+	case Rate:
+		return ", optionally followed by S/s, kS/s, MS/s, GS/s or Hz, kHz, MHz, GHz"
 	}
 	return ", optionally followed by Hz, kHz, MHz or GHz"
+}
+
+// rateShift is the power of ten of a sample-rate unit (S/s, kS/s, MS/s,
+// GS/s, sps, ksps, Msps, Gsps), and whether u is one.
+func rateShift(u string) (int, bool) {
+	var body string
+	switch {
+	case strings.HasSuffix(u, "S/s"):
+		body = strings.TrimSuffix(u, "S/s")
+	case len(u) >= 3 && strings.EqualFold(u[len(u)-3:], "sps"):
+		body = u[:len(u)-3]
+	default:
+		return 0, false
+	}
+	switch body {
+	case "":
+		return 0, true
+	case "k", "K":
+		return 3, true
+	case "M":
+		return 6, true
+	case "G":
+		return 9, true
+	}
+	return 0, false
 }
 
 func isUnitByte(c byte) bool {
@@ -164,6 +203,12 @@ func unitShift(u string, k Kind) (int, string) {
 	if u == "" {
 		return 0, ""
 	}
+	if n, ok := rateShift(u); ok {
+		if k == Rate {
+			return n, ""
+		}
+		return 0, fmt.Sprintf("%q is a sample-rate unit, and this is a frequency: write it in Hz, kHz, MHz or GHz", shown)
+	}
 	if strings.EqualFold(u, "hz") {
 		return 0, ""
 	}
@@ -182,6 +227,9 @@ func unitShift(u string, k Kind) (int, string) {
 	switch u {
 	case "k", "K", "M", "m", "G", "g":
 		return 0, fmt.Sprintf("bare prefix %q; spell the unit out (%sHz)", u, canonicalPrefix(u))
+	}
+	if k == Rate {
+		return 0, fmt.Sprintf("unknown unit %q for a sample rate (want S/s, kS/s, MS/s, GS/s, sps forms, Hz, kHz, MHz, GHz or a plain number)", shown)
 	}
 	return 0, fmt.Sprintf("unknown unit %q for a frequency (want Hz, kHz, MHz, GHz or a plain number in Hz)", shown)
 }

@@ -266,3 +266,53 @@ func BenchmarkParseFrequency(b *testing.B) {
 		})
 	}
 }
+
+// Sample rates take the trade's units as well as Hz (SI prefixes, exact as
+// above); a band edge written in a sample-rate unit is refused with the
+// reason.
+func TestParseRate(t *testing.T) {
+	for _, tc := range []struct {
+		in   string
+		want float64
+	}{
+		{"100 MS/s", 100e6},
+		{"100MS/s", 100e6},
+		{"2.4 GS/s", 2.4e9},
+		{"48 kS/s", 48e3},
+		{"48 KS/s", 48e3},
+		{"1000 S/s", 1000},
+		{"122.88 Msps", 122880000},
+		{"122.88 MSPS", 122880000},
+		{"3 Gsps", 3e9},
+		{"96 ksps", 96e3},
+		{"500 sps", 500},
+		{"245.76 MHz", 245760000},
+		{"48000", 48000},
+	} {
+		got, err := ParseRate(tc.in)
+		if err != nil {
+			t.Errorf("ParseRate(%q): unexpected error %v", tc.in, err)
+			continue
+		}
+		if got != tc.want {
+			t.Errorf("ParseRate(%q) = %v, want %v", tc.in, got, tc.want)
+		}
+	}
+	for _, tc := range []struct {
+		in, frag string
+	}{
+		{"100 ms/s", "unknown unit"},
+		{"100 MS", "unknown unit"},
+		{"100 mS/s", "unknown unit"},
+		{"100 TS/s", "unknown unit"},
+	} {
+		if _, err := ParseRate(tc.in); err == nil || !strings.Contains(err.Error(), tc.frag) {
+			t.Errorf("ParseRate(%q) = %v, want an error with %q", tc.in, err, tc.frag)
+		}
+	}
+	for _, in := range []string{"300 kS/s", "1 Msps"} {
+		if _, err := ParseFrequency(in); err == nil || !strings.Contains(err.Error(), "sample-rate unit") {
+			t.Errorf("ParseFrequency(%q) = %v, want the sample-rate unit refused", in, err)
+		}
+	}
+}
