@@ -490,3 +490,12 @@ func TestLongOutName(t *testing.T) {
 		}
 	}
 }
+
+// --version prints the release (and the commit when the build recorded it)
+// on stdout and exits 0.
+func TestVersion(t *testing.T) {
+	r := runBinary(t, t.TempDir(), nil, "--version")
+	if r.code != 0 || !strings.HasPrefix(r.stdout, "stepdown version "+version) || r.stderr != "" {
+		t.Errorf("--version: exit %d, stdout %q, stderr %q", r.code, r.stdout, r.stderr)
+	}
+}
