@@ -74,18 +74,31 @@ func estimateAnalysis(c *Chain, spec Spec) (Analysis, error) {
 	if err != nil {
 		return Analysis{}, err
 	}
+	if len(reqs) != len(c.Stages) {
+		return Analysis{}, fmt.Errorf("chain: the chain's plan %q has %d stages, its Stages %d", Notation(c.Plan), len(reqs), len(c.Stages))
+	}
 	a := Analysis{AliasRejectionDB: MaxFigureDB}
 	for i, r := range reqs {
+		if k := c.Stages[i].Kind(); k != r.Kind {
+			return Analysis{}, fmt.Errorf("chain: stage %d is a %s stage, the chain's plan %q says %s", i+1, k, Notation(c.Plan), r.Kind)
+		}
 		var rej, worst float64
+		// The cases cover every kind (FIR and half-band are FIRStages); see
+		// Kinds. Pointers are taken as measure (newStageBounder) takes them.
 		switch st := c.Stages[i].(type) {
 		case CICStage:
 			rej, worst = st.RejectionDB(r.Stopbands, r.InputRate)
 			a.PassbandRippleDB += r.UncorrectedDroopDB
-		default:
+		case *CICStage:
+			rej, worst = st.RejectionDB(r.Stopbands, r.InputRate)
+			a.PassbandRippleDB += r.UncorrectedDroopDB
+		case FIRStage, *FIRStage:
 			// The stage's absolute limit Ds is StopbandScale below the target
 			// so that the cascade's rejection relative to |H(0)| is Ds/scale.
 			rej, worst = -toDB(r.Ds/r.StopbandScale), r.Stopbands[0].Lo
 			a.PassbandRippleDB += DevToRipple(r.Dp)
+		default:
+			return Analysis{}, fmt.Errorf("chain: stage %d is a %T; Analyze takes CICStage and FIRStage values", i+1, st)
 		}
 		if rej < a.AliasRejectionDB {
 			a.AliasRejectionDB, a.WorstAliasHz = rej, worst

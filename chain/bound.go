@@ -62,7 +62,9 @@ type stageBounder interface {
 }
 
 // newStageBounder returns the bounder of a stage at input rate rate, or an
-// error for a stage type it does not know or a FIR without taps.
+// error for a FIR without taps or a stage that is not a CICStage or FIRStage
+// (nil). Its cases cover every kind (FIR and half-band are FIRStages); see
+// Kinds.
 func newStageBounder(s Stage, rate float64) (stageBounder, error) {
 	switch st := s.(type) {
 	case CICStage:
@@ -74,7 +76,7 @@ func newStageBounder(s Stage, rate float64) (stageBounder, error) {
 	case *FIRStage:
 		return newFIRBounder(st.Taps, rate)
 	}
-	return nil, fmt.Errorf("chain: stage of type %T cannot be analysed", s)
+	return nil, fmt.Errorf("a %T cannot be analysed: Analyze takes CICStage and FIRStage values", s)
 }
 
 // foldPieces maps the interval [a, b] of frequencies at rate F onto at most

@@ -6,15 +6,24 @@ import (
 	"github.com/stepdown-dsp/stepdown/chain/remez"
 )
 
-// Kind is a stage's kind.
+// Kind is a stage's kind. The set of kinds is closed: Kinds lists every one,
+// and only this package's stage types implement Stage.
 type Kind int
 
-// Stage kinds.
+// Stage kinds. A CIC is a CICStage; a half-band and a FIR are both FIRStages,
+// told apart by FIRStage.HalfBand.
 const (
 	CIC Kind = iota + 1
 	HalfBand
 	FIR
 )
+
+// kinds is the one list of stage kinds; the package documentation (Stage
+// kinds) says what else adding one involves.
+var kinds = [...]Kind{CIC, HalfBand, FIR}
+
+// Kinds returns every stage kind, in the order of their constants.
+func Kinds() []Kind { return append([]Kind(nil), kinds[:]...) }
 
 // String returns "cic", "halfband" or "fir".
 func (k Kind) String() string {
@@ -56,12 +65,16 @@ type StagePlan struct {
 	Variant  Variant // FIR only
 }
 
-// Stage is one decimating stage.
+// Stage is one decimating stage: a CICStage or a FIRStage. The interface is
+// sealed (its unexported method isStage), so no other package can add a kind
+// that the analysis, the pricing or the fixed-point planner would not know.
 type Stage interface {
+	// Kind returns the stage's kind, one of Kinds.
 	Kind() Kind
 	Factor() int
 	// Gain returns |H(f)| at f Hz for the stage's input rate rate.
 	Gain(f, rate float64) float64
+	isStage()
 }
 
 // Chain is a cascade of stages from InputRate.

@@ -28,6 +28,8 @@ type CICStage struct {
 // Kind returns CIC.
 func (c CICStage) Kind() Kind { return CIC }
 
+func (CICStage) isStage() {}
+
 // Factor returns R.
 func (c CICStage) Factor() int { return c.R }
 

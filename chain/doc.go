@@ -12,6 +12,27 @@
 // Every dB figure is bounded by MaxFigureDB so that exact nulls never become
 // infinities; no result is ever NaN.
 //
+// # Stage kinds
+//
+// The set of stage kinds is closed, and Kinds (the list kinds in chain.go)
+// is the one place that lists it: CIC, a CICStage; HalfBand and FIR, both
+// FIRStages, told apart by FIRStage.HalfBand. Stage has an unexported
+// method, so only this package's types implement it, and Chain.Stages holds
+// their values. The code that switches on a stage's type has a case for
+// each and, for anything else, an error naming the stage: Analyze (its
+// bounds and its estimate), package fixed (FromChain), package cost and
+// package plots/report; Run, which returns no error, and fixed's
+// QuantisedChain panic instead. A kind added later (a resampler, an
+// interpolator) goes into that list with a type of its own implementing
+// Stage (a flag on FIRStage, as HalfBand is, would reach those switches'
+// FIR cases unnoticed), then into those switches and the plan's switches on
+// StagePlan.Kind (Kind.String, Notation, ParseNotation, Requirements,
+// Design), and into the spec file's search.kinds and the optimiser (its
+// Settings.Kinds check, enumeration and estimates). The tests of this
+// package, fixed, cost and plots/report run a stage of every kind in Kinds
+// through that code and fail when the invented plans they use no longer
+// cover the list.
+//
 // # Spec
 //
 // Spec.Normalize fills defaults (Protected = Passband, Stopband = FK - fa,

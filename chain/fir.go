@@ -28,6 +28,8 @@ func (s FIRStage) Kind() Kind {
 	return FIR
 }
 
+func (FIRStage) isStage() {}
+
 // Factor returns R.
 func (s FIRStage) Factor() int { return s.R }
 

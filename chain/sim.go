@@ -1,6 +1,9 @@
 package chain
 
-import "math"
+import (
+	"fmt"
+	"math"
+)
 
 // Run passes the real signal x (at the chain's input rate, zero state
 // before x[0]) through the chain as hardware would compute it: each FIR stage
@@ -17,10 +20,14 @@ import "math"
 // so its quantisation lies hundreds of dB down; the output is rescaled to the
 // CIC's unit DC gain. A CIC whose growth leaves fewer than 24 bits of input
 // resolution is run as its equivalent FIR in float64 instead.
+//
+// Run panics on a FIR stage without taps (an estimate: Chain.Designed is
+// false) and on a stage that is not a CICStage or FIRStage value (a pointer
+// or nil), naming the stage.
 func Run(c *Chain, x []float64) []float64 {
 	y := append([]float64(nil), x...)
-	for _, s := range c.Stages {
-		y = runStage(s, y)
+	for i, s := range c.Stages {
+		y = runStage(i, s, y)
 	}
 	return y
 }
@@ -41,17 +48,19 @@ func RunComplex(c *Chain, x []complex128) []complex128 {
 	return out
 }
 
-func runStage(s Stage, x []float64) []float64 {
+// runStage runs stage i, s, on x. Its cases cover every kind (FIR and
+// half-band are FIRStages); see Kinds.
+func runStage(i int, s Stage, x []float64) []float64 {
 	switch st := s.(type) {
 	case FIRStage:
 		if st.Taps == nil {
-			panic("chain: Run on a stage without taps (an estimate)")
+			panic(fmt.Sprintf("chain: Run: stage %d (%s) has no taps (an estimate)", i+1, st.Kind()))
 		}
 		return polyphaseDecimate(st.Taps, st.R, x)
 	case CICStage:
 		return runCIC(st, x)
 	}
-	panic("chain: Run on an unknown stage type")
+	panic(fmt.Sprintf("chain: Run: stage %d is a %T; Run takes CICStage and FIRStage values", i+1, s))
 }
 
 // polyphaseDecimate computes y[m] = sum_k h[k] x[mD - k] as the sum over the

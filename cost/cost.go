@@ -107,6 +107,8 @@ func Price(spec chain.Spec, c *chain.Chain, s Settings) (Figures, error) {
 		var mul, add float64 // per stage output, one real filter
 		var dataWords, dataBits, coefWords int
 		var delayIn float64 // group delay, input samples
+		// The cases cover every kind of chain.Kinds (FIR and half-band are
+		// chain.FIRStages).
 		switch v := st.(type) {
 		case chain.CICStage:
 			n, m, r := v.N, v.M, v.R
@@ -165,7 +167,7 @@ func Price(spec chain.Spec, c *chain.Chain, s Settings) (Figures, error) {
 			delayIn = float64(n-1) / 2
 			width = spec.OutputBits
 		default:
-			return Figures{}, fmt.Errorf("cost: stage %d: unknown stage type %T", i+1, st)
+			return Figures{}, fmt.Errorf("cost: stage %d is a %T; cost prices chain.CICStage and chain.FIRStage values", i+1, st)
 		}
 		sf := StageFigures{
 			MultipliesPerOutput: mul * float64(cx) * later[i],

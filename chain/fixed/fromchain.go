@@ -27,6 +27,8 @@ func FromChain(spec chain.Spec, c *chain.Chain) (Cascade, Words, error) {
 	cas := Cascade{InputRate: c.InputRate, Complex: c.Complex, Passband: spec.Passband, Protected: spec.Protected}
 	rates := c.Rates()
 	for i, s := range c.Stages {
+		// The cases cover every kind of chain.Kinds (FIR and half-band are
+		// chain.FIRStages).
 		switch st := s.(type) {
 		case chain.CICStage:
 			cas.Stages = append(cas.Stages, Stage{CIC: true, N: st.N, M: st.M, R: st.R})
@@ -45,7 +47,7 @@ func FromChain(spec chain.Spec, c *chain.Chain) (Cascade, Words, error) {
 			}
 			cas.Stages = append(cas.Stages, fs)
 		default:
-			return Cascade{}, Words{}, fmt.Errorf("fixed: stage %d has unknown type %T", i+1, s)
+			return Cascade{}, Words{}, fmt.Errorf("fixed: stage %d is a %T; FromChain takes chain.CICStage and chain.FIRStage values", i+1, s)
 		}
 	}
 	w := Words{InputBits: spec.InputBits, OutputBits: spec.OutputBits, DataBits: spec.OutputBits, CoefBits: spec.CoefBits}
@@ -311,7 +313,8 @@ func EvaluateContext(ctx context.Context, spec chain.Spec, c *chain.Chain, s Set
 
 // QuantisedChain returns a copy of c whose FIR and half-band taps are the
 // quantised coefficients of w (from Plan on FromChain(spec, c)), for
-// chain.Analyze and chain.Run. It panics if w does not match c.
+// chain.Analyze and chain.Run. It panics if w does not match c, which
+// includes a c holding a stage FromChain refuses.
 func QuantisedChain(c *chain.Chain, w *Widths) *chain.Chain {
 	if len(w.Stages) != len(c.Stages) {
 		panic("fixed: QuantisedChain with widths of another chain")
@@ -319,7 +322,11 @@ func QuantisedChain(c *chain.Chain, w *Widths) *chain.Chain {
 	q := *c
 	q.Stages = make([]chain.Stage, len(c.Stages))
 	for i, s := range c.Stages {
+		// The same cases as FromChain's, so that no stage it takes is
+		// passed on unquantised.
 		switch st := s.(type) {
+		case chain.CICStage, *chain.CICStage:
+			q.Stages[i] = s
 		case chain.FIRStage:
 			st.Taps = w.Stages[i].Coefficients.Float()
 			q.Stages[i] = st
@@ -328,7 +335,7 @@ func QuantisedChain(c *chain.Chain, w *Widths) *chain.Chain {
 			cp.Taps = w.Stages[i].Coefficients.Float()
 			q.Stages[i] = cp
 		default:
-			q.Stages[i] = s
+			panic(fmt.Sprintf("fixed: QuantisedChain with widths of another chain (stage %d is a %T, which FromChain refuses)", i+1, s))
 		}
 	}
 	return &q

@@ -252,6 +252,8 @@ func NewChain(spec chain.Spec, cand optimize.Candidate, clock bool) (Chain, erro
 				s.Multipliers = &m
 			}
 		}
+		// The cases cover every kind of chain.Kinds (FIR and half-band are
+		// chain.FIRStages).
 		switch x := st.(type) {
 		case chain.CICStage:
 			s.CICOrder, s.CICDelay = x.N, x.M
@@ -265,7 +267,7 @@ func NewChain(spec chain.Spec, cand optimize.Candidate, clock bool) (Chain, erro
 				s.Variant = x.Variant.String()
 			}
 		default:
-			return Chain{}, fmt.Errorf("report: chain %q stage %d: unknown stage type %T", out.Notation, i+1, st)
+			return Chain{}, fmt.Errorf("report: chain %q stage %d is a %T; the report takes chain.CICStage and chain.FIRStage values", out.Notation, i+1, st)
 		}
 		out.Stages = append(out.Stages, s)
 	}
