@@ -4,6 +4,7 @@ import (
 	"bytes"
 	"encoding/json"
 	"fmt"
+	"math"
 	"os"
 	"os/exec"
 	"path/filepath"
@@ -209,6 +210,8 @@ func TestBadInputs(t *testing.T) {
 		{name: "unknown flag", spec: goodSpec, args: []string{"plan", "spec.toml", "--colour"}, code: 2, frags: []string{"colour"}},
 		{name: "unknown command", args: []string{"frobnicate"}, code: 2, frags: []string{"frobnicate", "unknown"}},
 		{name: "two specs", spec: goodSpec, args: []string{"plan", "spec.toml", "spec.toml", "--out", "out"}, code: 2, frags: []string{"at most one"}},
+		{name: "check front not a report", spec: goodSpec, args: []string{"check", "spec.toml", "--chain", "cic3m1r8 > fir4", "--front", "spec.toml", "--out", "out"}, code: 2, frags: []string{"--front", "not a stepdown report.json"}},
+		{name: "check front missing", spec: goodSpec, args: []string{"check", "spec.toml", "--chain", "cic3m1r8 > fir4", "--front", "nothing.json", "--out", "out"}, code: 2, frags: []string{"--front", "nothing.json"}},
 		{name: "check no chain", spec: goodSpec, args: []string{"check", "spec.toml", "--out", "out"}, code: 2, frags: []string{"--chain", "missing"}},
 		{name: "check bad notation", spec: goodSpec, args: []string{"check", "spec.toml", "--chain", "cic3m1r8 > hbx", "--out", "out"}, code: 2, frags: []string{"--chain", "at byte"}},
 		{name: "check bad product", spec: goodSpec, args: []string{"check", "spec.toml", "--chain", "cic3m1r8 > hb", "--out", "out"}, code: 2, frags: []string{"--chain", "multiply to 16", "= 32"}},
@@ -417,11 +420,18 @@ func TestPlanExampleEndToEnd(t *testing.T) {
 	}
 	for _, i := range append(order, rec) {
 		notation := front[i].(map[string]any)["notation"].(string)
-		r2 := runBinary(t, dir, nil, "check", "--chain", notation, "--out", "checked")
+		r2 := runBinary(t, dir, nil, "check", "--chain", notation, "--front", filepath.Join("out", "report.json"), "--out", "checked")
 		if r2.code != 0 {
 			t.Fatalf("check %q: exit %d: %s", notation, r2.code, r2.stderr)
 		}
 		crep := readReport(t, filepath.Join(dir, "checked", "report.json"))
+		// A front chain is on the front at its own rank, beaten by none.
+		if bb, ok := crep["beaten_by"].([]any); !ok || len(bb) != 0 {
+			t.Errorf("check %q: beaten_by = %v, want an empty list", notation, crep["beaten_by"])
+		}
+		if cw, _ := crep["compared_with"].(map[string]any); cw == nil || cw["rank"] != float64(i+1) || cw["on_front"] != true {
+			t.Errorf("check %q: compared_with = %v, want on the front at rank %d", notation, crep["compared_with"], i+1)
+		}
 		got := crep["front"].([]any)[0]
 		if !reflect.DeepEqual(got, front[i]) {
 			a, _ := json.Marshal(got)
@@ -497,5 +507,46 @@ func TestVersion(t *testing.T) {
 	r := runBinary(t, t.TempDir(), nil, "--version")
 	if r.code != 0 || !strings.HasPrefix(r.stdout, "stepdown version "+version) || r.stderr != "" {
 		t.Errorf("--version: exit %d, stdout %q, stderr %q", r.code, r.stdout, r.stderr)
+	}
+}
+
+// check compares the named chain with the plan's front: a chain that the
+// plan's recommended chain beats on every axis is told so, by how much, in
+// the terminal and in report.json's beaten_by. The figures are recomputed
+// here from the two chains' own entries in the plan's report.json.
+func TestCheckBeatenBy(t *testing.T) {
+	dir := t.TempDir()
+	if r := runBinary(t, dir, nil, "plan", "--out", "planned", "--quiet"); r.code != 0 {
+		t.Fatalf("plan: exit %d: %s", r.code, r.stderr)
+	}
+	// cic6m1r16 > fir4 needs more memory and latency than the built-in
+	// example's cic5m1r16 > fir4, at the same multiplies.
+	r := runBinary(t, dir, nil, "check", "--chain", "cic6m1r16 > fir4", "--out", "checked")
+	if r.code != 0 {
+		t.Fatalf("check: exit %d: %s", r.code, r.stderr)
+	}
+	plan := readReport(t, filepath.Join(dir, "planned", "report.json"))
+	crep := readReport(t, filepath.Join(dir, "checked", "report.json"))
+	bb, _ := crep["beaten_by"].([]any)
+	if len(bb) == 0 {
+		t.Fatalf("beaten_by = %v, want the plan's recommended chain", crep["beaten_by"])
+	}
+	b := bb[0].(map[string]any)
+	var beater map[string]any
+	for _, f := range plan["front"].([]any) {
+		if f.(map[string]any)["notation"] == b["notation"] {
+			beater = f.(map[string]any)
+		}
+	}
+	if beater == nil {
+		t.Fatalf("beaten_by names %v, not on the plan's front", b["notation"])
+	}
+	me := crep["front"].([]any)[0].(map[string]any)
+	want := 100 * (me["memory_bits"].(float64) - beater["memory_bits"].(float64)) / me["memory_bits"].(float64)
+	if got := b["memory_saving_pct"].(float64); math.Abs(got-want) > 1e-9 || !(got > 0) {
+		t.Errorf("memory_saving_pct = %v, want %v", got, want)
+	}
+	if !strings.Contains(r.stdout, "does it with") || !strings.Contains(r.stdout, b["notation"].(string)) {
+		t.Errorf("terminal output does not say what beats the chain:\n%s", r.stdout)
 	}
 }

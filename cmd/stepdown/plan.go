@@ -56,10 +56,12 @@ func checkCommand() *cli.Command {
 		Name:      "check",
 		Usage:     "evaluate a chain you name against the spec (same figures, plots and files as plan)",
 		ArgsUsage: "[SPEC.toml]",
-		UsageText: "stepdown check [SPEC.toml] --chain CHAIN [--out DIR] [--json] [--quiet]\n\n" +
-			"CHAIN is the notation plan prints, e.g. \"cic4m1r8 > hb > fir4\". Without SPEC.toml the built-in example is used.",
+		UsageText: "stepdown check [SPEC.toml] --chain CHAIN [--front REPORT.json] [--out DIR] [--json] [--quiet]\n\n" +
+			"CHAIN is the notation plan prints, e.g. \"cic4m1r8 > hb > fir4\". Without SPEC.toml the built-in example is used.\n" +
+			"The chain is compared with the plan's front (the spec is planned again, or --front names a plan's report.json).",
 		Flags: append(outFlags(),
 			&cli.StringFlag{Name: "chain", Usage: "the chain, in the notation plan prints"},
+			&cli.StringFlag{Name: "front", Usage: "compare with the front in this report.json of a plan of the same spec, instead of planning it again"},
 		),
 		Action: runCheck,
 	}
@@ -96,6 +98,7 @@ type job struct {
 	quiet   bool
 	json    bool
 	started time.Time
+	compare *report.Comparison // check: the front the chain is compared with
 }
 
 func newJob(c *cli.Context) (*job, error) {
@@ -262,33 +265,42 @@ func runCheck(c *cli.Context) error {
 		Candidates: 1, Designed: 1, Dropped: map[string]int{},
 		Front: []optimize.Candidate{cand}, Recommended: 0, FeasibleAll: 1,
 	}
+	cmp, err := j.planFront(c, set)
+	if err != nil {
+		return err
+	}
+	j.compare = cmp
 	// finish states the verdict once the report has judged the chain
-	// (checkReason): on its rounded taps when they are planned.
+	// (report.CheckReason): on its rounded taps when they are planned.
 	return j.finish(c.Context, "check", res)
 }
 
-// checkReason is check's verdict on the chain it named, judged as the
-// report judges it (report.Chain.MeetsTargets, on the figures
-// BuiltFigures gives).
-func checkReason(c report.Chain, sp report.Spec) string {
-	rej, rip := c.BuiltFigures()
-	on := ""
-	if c.VerdictBasis == "rounded taps" {
-		on = " with its taps rounded"
+// planFront is the front check compares its chain with: that of the
+// report.json named by --front (of a plan of the same spec), or of a plan
+// of the spec run now, judged by its report as plan would.
+func (j *job) planFront(c *cli.Context, set optimize.Settings) (*report.Comparison, error) {
+	if path := c.String("front"); path != "" {
+		cmp, err := report.ReadComparison(path, j.spec)
+		if err != nil {
+			return nil, usageError{err}
+		}
+		return cmp, nil
 	}
-	switch {
-	case c.MeetsTargets:
-		return "The chain named by --chain meets the rejection target and the ripple budget" + on + "."
-	case c.VerdictBasis == "rounded taps" && c.ChainReport == nil:
-		return "The chain named by --chain cannot be judged with its taps rounded: " + c.WordLengthsError + "."
-	case !c.FloatMeetsTargets && c.AliasRejectionDB < sp.RejectionDB-report.RejectionToleranceDB:
-		return fmt.Sprintf("The chain named by --chain misses the rejection target as designed: %.2f dB against %.4g dB.", c.AliasRejectionDB, sp.RejectionDB)
-	case !c.FloatMeetsTargets:
-		return fmt.Sprintf("The chain named by --chain misses the ripple budget as designed: %.4f dB against %.4g dB.", c.PassbandRippleDB, sp.RippleDB)
-	case rej < sp.RejectionDB-report.RejectionToleranceDB:
-		return fmt.Sprintf("The chain named by --chain misses the rejection target%s: %.2f dB against %.4g dB.", on, rej, sp.RejectionDB)
+	res, err := optimize.Plan(c.Context, j.spec.Chain, set)
+	if c.Context.Err() != nil {
+		return nil, fmt.Errorf("interrupted; %s left as it was", clip(j.out.Dir()))
 	}
-	return fmt.Sprintf("The chain named by --chain misses the ripple budget%s: %.4f dB against %.4g dB.", on, rip, sp.RippleDB)
+	if err != nil {
+		return nil, fmt.Errorf("check: planning the spec to compare: %s", specfile.InFileTerms(err.Error()))
+	}
+	rep, err := report.NewContext(c.Context, "plan", j.spec, res)
+	if err != nil {
+		return nil, err
+	}
+	if c.Context.Err() != nil {
+		return nil, fmt.Errorf("interrupted; %s left as it was", clip(j.out.Dir()))
+	}
+	return report.NewComparison("a plan of the same spec", rep), nil
 }
 
 func droppedText(d map[string]int) string {
@@ -316,7 +328,8 @@ func (j *job) finish(ctx context.Context, command string, res *optimize.Result) 
 		return fmt.Errorf("interrupted; %s left as it was", clip(j.out.Dir()))
 	}
 	if command == "check" && len(rep.Front) == 1 {
-		rep.Reason = checkReason(rep.Front[0], rep.Spec)
+		rep.Reason = report.CheckReason(rep.Front[0], rep.Spec)
+		rep.Compare(j.compare)
 	}
 	files, err := report.Files(j.c.Context, rep, res, j.spec)
 	if j.c.Context.Err() != nil {
@@ -435,6 +448,7 @@ func printSummary(w io.Writer, j *job, rep *report.Report, files []report.File) 
 	case len(rep.Front) == 0:
 	case rep.Command == "check":
 		fmt.Fprintf(w, "checked: %s\n  %s\n", rep.Front[0].Notation, rep.Reason)
+		printComparison(w, rep)
 	default:
 		fmt.Fprintf(w, "recommended: #%d %s\n  %s\n", rep.Recommended+1, rep.Front[rep.Recommended].Notation, rep.Reason)
 	}
@@ -446,6 +460,30 @@ func printSummary(w io.Writer, j *job, rep *report.Report, files []report.File) 
 		fmt.Fprintf(w, "  %s\n", f.Name)
 	}
 	fmt.Fprintf(w, "\nCaution: %s.\n", report.Caution)
+}
+
+// printComparison says which chains of the plan's front beat the checked
+// one, and by how much.
+func printComparison(w io.Writer, rep *report.Report) {
+	cw := rep.ComparedWith
+	if cw == nil {
+		return
+	}
+	switch {
+	case len(rep.BeatenBy) > 0:
+		fmt.Fprintf(w, "  Against %s (%d chains on its front), it is beaten:\n", cw.Source, len(cw.Front))
+		for _, b := range rep.BeatenBy {
+			fmt.Fprintf(w, "    %s\n", b.Text())
+		}
+	case cw.OnFront:
+		fmt.Fprintf(w, "  It is #%d on the front of %s (%d chains).\n", cw.Rank, cw.Source, len(cw.Front))
+	case !rep.Front[0].MeetsTargets && len(cw.Front) > 0:
+		f := cw.Front[0]
+		fmt.Fprintf(w, "  The front of %s has %d chains that meet the spec, the first #1 %s (%s mult/out, %d memory bits, %s).\n",
+			cw.Source, len(cw.Front), f.Notation, trimFloat(f.MultipliesPerOutput, 1), f.MemoryBits, seconds(f.LatencyS))
+	default:
+		fmt.Fprintf(w, "  No chain on the front of %s (%d chains) beats it on every axis.\n", cw.Source, len(cw.Front))
+	}
 }
 
 // printWords summarises the word-length plan of the recommended (or checked)

@@ -40,6 +40,11 @@ type Report struct {
 	Front       []Chain `json:"front"`
 	Recommended int     `json:"recommended"`
 	Reason      string  `json:"reason"`
+	// For check: the front the named chain was compared with, and the
+	// chains of it that beat the named one (an empty list when none does).
+	// Absent from a plan's report.
+	ComparedWith *Comparison `json:"compared_with,omitempty"`
+	BeatenBy     []Beater    `json:"beaten_by,omitzero"`
 }
 
 // Spec is the normalised spec.

@@ -1,0 +1,194 @@
+package report
+
+import (
+	"encoding/json"
+	"fmt"
+	"os"
+	"strings"
+
+	"github.com/stepdown-dsp/stepdown/chain/specfile"
+	"github.com/stepdown-dsp/stepdown/chain/units"
+)
+
+// Beater is a chain of a plan's front that beats a checked chain: at least
+// as good on every axis (multiplies per output, memory bits, latency) and
+// better on one, and meeting the targets. Savings are in percent of the
+// checked chain's figure (0 where the two are equal; a checked figure of
+// zero saves nothing).
+type Beater struct {
+	// Rank is the chain's number in the plan's front table (from 1).
+	Rank                int     `json:"rank"`
+	Notation            string  `json:"notation"`
+	MultipliesSavingPct float64 `json:"multiplies_saving_pct"`
+	MemorySavingPct     float64 `json:"memory_saving_pct"`
+	LatencySavingPct    float64 `json:"latency_saving_pct"`
+}
+
+// BeatenBy returns the chains of front that beat c (see Beater), in the
+// front's order. A front chain with the same notation as c is c itself and
+// never beats it.
+func BeatenBy(c Chain, front []Chain) []Beater {
+	var out []Beater
+	for i, f := range front {
+		if f.Notation == c.Notation || !f.MeetsTargets {
+			continue
+		}
+		fm, fb, fl := f.MultipliesPerOutput, float64(f.MemoryBits), f.LatencyS
+		cm, cb, cl := c.MultipliesPerOutput, float64(c.MemoryBits), c.LatencyS
+		if fm > cm || fb > cb || fl > cl || (fm == cm && fb == cb && fl == cl) {
+			continue
+		}
+		out = append(out, Beater{
+			Rank: i + 1, Notation: f.Notation,
+			MultipliesSavingPct: saving(fm, cm),
+			MemorySavingPct:     saving(fb, cb),
+			LatencySavingPct:    saving(fl, cl),
+		})
+	}
+	return out
+}
+
+// saving is how much less than was f is, in percent of was.
+func saving(f, was float64) float64 {
+	if !(was > 0) || f >= was {
+		return 0
+	}
+	return 100 * (was - f) / was
+}
+
+// Text says what b saves, as a designer writes it: "#2 cic5m1r16 > fir4
+// does it with 41% fewer multiplies and 12% less memory".
+func (b Beater) Text() string {
+	var parts []string
+	add := func(pct float64, what string) {
+		if pct <= 0 {
+			return
+		}
+		p := fmt.Sprintf("%.0f%%", pct)
+		if pct < 1 {
+			p = fmt.Sprintf("%.1f%%", pct)
+		}
+		parts = append(parts, p+" "+what)
+	}
+	add(b.MultipliesSavingPct, "fewer multiplies")
+	add(b.MemorySavingPct, "less memory")
+	add(b.LatencySavingPct, "less latency")
+	var s string
+	switch len(parts) {
+	case 0:
+		s = "the same figures"
+	case 1:
+		s = parts[0]
+	default:
+		s = strings.Join(parts[:len(parts)-1], ", ") + " and " + parts[len(parts)-1]
+	}
+	return fmt.Sprintf("#%d %s does it with %s", b.Rank, b.Notation, s)
+}
+
+// CheckReason is the check command's verdict on the chain it named, judged
+// as the report judges it (Chain.MeetsTargets, on the figures
+// BuiltFigures gives).
+func CheckReason(c Chain, sp Spec) string {
+	rej, rip := c.BuiltFigures()
+	on := ""
+	if c.VerdictBasis == "rounded taps" {
+		on = " with its taps rounded"
+	}
+	switch {
+	case c.MeetsTargets:
+		return "The chain named by --chain meets the rejection target and the ripple budget" + on + "."
+	case c.VerdictBasis == "rounded taps" && c.ChainReport == nil:
+		return "The chain named by --chain cannot be judged with its taps rounded: " + c.WordLengthsError + "."
+	case !c.FloatMeetsTargets && c.AliasRejectionDB < sp.RejectionDB-RejectionToleranceDB:
+		return fmt.Sprintf("The chain named by --chain misses the rejection target as designed: %.2f dB against %.4g dB.", c.AliasRejectionDB, sp.RejectionDB)
+	case !c.FloatMeetsTargets:
+		return fmt.Sprintf("The chain named by --chain misses the ripple budget as designed: %.4f dB against %.4g dB.", c.PassbandRippleDB, sp.RippleDB)
+	case rej < sp.RejectionDB-RejectionToleranceDB:
+		return fmt.Sprintf("The chain named by --chain misses the rejection target%s: %.2f dB against %.4g dB.", on, rej, sp.RejectionDB)
+	}
+	return fmt.Sprintf("The chain named by --chain misses the ripple budget%s: %.4f dB against %.4g dB.", on, rip, sp.RippleDB)
+}
+
+// Comparison is the front a checked chain was compared with: Source says
+// where it came from ("a plan of the same spec", or the report.json named),
+// Front holds its chains' figures in the front's order, OnFront says
+// whether the checked chain is one of them (same notation).
+type Comparison struct {
+	Source  string       `json:"source"`
+	Front   []FrontChain `json:"front"`
+	OnFront bool         `json:"on_front"`
+	// Rank is the checked chain's number on the front (from 1), 0 when it
+	// is not on it.
+	Rank int `json:"rank"`
+	// plan is the full front, for BeatenBy (not written).
+	plan []Chain
+}
+
+// FrontChain is a chain of the compared front, as report.json summarises it.
+type FrontChain struct {
+	Notation            string  `json:"notation"`
+	MultipliesPerOutput float64 `json:"multiplies_per_output"`
+	MemoryBits          int     `json:"memory_bits"`
+	LatencyS            float64 `json:"latency_s"`
+	MeetsTargets        bool    `json:"meets_targets"`
+}
+
+// NewComparison is the comparison with the front of plan's report rep.
+func NewComparison(source string, rep *Report) *Comparison {
+	cmp := &Comparison{Source: source, plan: rep.Front}
+	for _, c := range rep.Front {
+		cmp.Front = append(cmp.Front, FrontChain{Notation: c.Notation, MultipliesPerOutput: c.MultipliesPerOutput,
+			MemoryBits: c.MemoryBits, LatencyS: c.LatencyS, MeetsTargets: c.MeetsTargets})
+	}
+	return cmp
+}
+
+// Compare records, on a check's report, the comparison of its chain with
+// cmp: ComparedWith, and BeatenBy (empty, not absent, when nothing beats
+// it). A nil cmp or a report without exactly one chain changes nothing.
+func (r *Report) Compare(cmp *Comparison) {
+	if cmp == nil || len(r.Front) != 1 {
+		return
+	}
+	c := r.Front[0]
+	cmp.OnFront, cmp.Rank = false, 0
+	for i, f := range cmp.Front {
+		if f.Notation == c.Notation && !cmp.OnFront {
+			cmp.OnFront, cmp.Rank = true, i+1
+		}
+	}
+	plan := cmp.plan
+	if plan == nil {
+		for _, f := range cmp.Front {
+			plan = append(plan, Chain{Notation: f.Notation, MultipliesPerOutput: f.MultipliesPerOutput,
+				MemoryBits: f.MemoryBits, LatencyS: f.LatencyS, MeetsTargets: f.MeetsTargets})
+		}
+	}
+	r.ComparedWith = cmp
+	r.BeatenBy = append([]Beater{}, BeatenBy(c, plan)...)
+}
+
+// ReadComparison reads the front of a plan's report.json at path, which
+// must be a plan of a spec with the same rates, band edges and targets as
+// spec.
+func ReadComparison(path string, spec *specfile.Spec) (*Comparison, error) {
+	b, err := os.ReadFile(path)
+	if err != nil {
+		return nil, fmt.Errorf("--front %q: %v", units.Clip(path, units.MaxEcho), unwrapPath(err))
+	}
+	var rep Report
+	if err := json.Unmarshal(b, &rep); err != nil || rep.Schema != Schema {
+		return nil, fmt.Errorf("--front %q: not a stepdown report.json (schema %q)", units.Clip(path, units.MaxEcho), Schema)
+	}
+	if rep.Command != "plan" {
+		return nil, fmt.Errorf("--front %q: the report of a %s, not of a plan", units.Clip(path, units.MaxEcho), units.Clip(rep.Command, 20))
+	}
+	want := NewSpec(spec)
+	got := rep.Spec
+	if got.InputRateHz != want.InputRateHz || got.OutputRateHz != want.OutputRateHz || got.PassbandHz != want.PassbandHz ||
+		got.ProtectedHz != want.ProtectedHz || got.StopbandHz != want.StopbandHz || got.RippleDB != want.RippleDB ||
+		got.RejectionDB != want.RejectionDB || got.Signal != want.Signal {
+		return nil, fmt.Errorf("--front %q: planned for another spec (rates, band edges, ripple, rejection or signal differ); plan this spec, or leave --front out to plan it now", units.Clip(path, units.MaxEcho))
+	}
+	return NewComparison(units.Clip(path, units.MaxEcho), &rep), nil
+}
