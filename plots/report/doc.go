@@ -21,6 +21,17 @@
 // The integer files are written only when the spec sets a coefficient width
 // or "auto".
 //
+// A check's report holds the one chain named, and compares it with a plan's
+// front (Report.Compare): compared_with gives the front's source, its
+// chains' figures (notation, multiplies_per_output, memory_bits, latency_s,
+// meets_targets), on_front and the chain's rank on it (0 when not on it);
+// beaten_by lists, in the front's order, every chain of it that meets the
+// targets and is at least as good on all three axes and better on one, with
+// rank, notation and its saving on each axis in percent of the checked
+// chain's figure (multiplies_saving_pct, memory_saving_pct,
+// latency_saving_pct); an empty list when none beats it. A plan's report has
+// neither field.
+//
 // Word lengths: every chain of the front goes through package chain/fixed
 // (fixed.Evaluate, then Result.Report), and its figures are flattened into
 // the chain (bittrue_snr_db, bittrue_enob, quantised_alias_rejection_db, ...)
