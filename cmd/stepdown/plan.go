@@ -56,12 +56,13 @@ func checkCommand() *cli.Command {
 		Name:      "check",
 		Usage:     "evaluate a chain you name against the spec (same figures, plots and files as plan)",
 		ArgsUsage: "[SPEC.toml]",
-		UsageText: "stepdown check [SPEC.toml] --chain CHAIN [--front REPORT.json] [--out DIR] [--json] [--quiet]\n\n" +
+		UsageText: "stepdown check [SPEC.toml] --chain CHAIN [--front REPORT.json] [--out DIR] [--json] [--quiet] [--html]\n\n" +
 			"CHAIN is the notation plan prints, e.g. \"cic4m1r8 > hb > fir4\". Without SPEC.toml the built-in example is used.\n" +
 			"The chain is compared with the plan's front (the spec is planned again, or --front names a plan's report.json).",
 		Flags: append(outFlags(),
 			&cli.StringFlag{Name: "chain", Usage: "the chain, in the notation plan prints"},
 			&cli.StringFlag{Name: "front", Usage: "compare with the front in this report.json of a plan of the same spec, instead of planning it again"},
+			&cli.BoolFlag{Name: "html", Usage: "also write report.html, one self-contained page for sharing and printing"},
 		),
 		Action: runCheck,
 	}

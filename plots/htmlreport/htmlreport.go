@@ -75,6 +75,20 @@ func Plan(p PlanPage) ([]byte, error) {
 		v.Rec = &recView{Index: r.Recommended + 1, Notation: c.Notation, Reason: r.Reason,
 			Figures: v.Front[r.Recommended], Stages: stageViews(c, p.Files, "", v.Clock)}
 	}
+	if cw := r.ComparedWith; cw != nil && len(r.Front) == 1 {
+		v.Compared = fmt.Sprintf("%s (%d chains)", cw.Source, len(cw.Front))
+		for _, b := range r.BeatenBy {
+			v.Beaten = append(v.Beaten, b.Text())
+		}
+		switch {
+		case cw.OnFront:
+			v.CompareText = fmt.Sprintf("it is #%d on it.", cw.Rank)
+		case !r.Front[0].MeetsTargets:
+			v.CompareText = "its chains meet the spec; this one does not."
+		default:
+			v.CompareText = "no chain on it beats this one on every axis."
+		}
+	}
 	return execute("plan", v)
 }
 
@@ -199,6 +213,11 @@ type planView struct {
 	StagesSVG                       template.HTML
 	Files                           []string
 	Cautions                        []string
+	// Check only: the front compared with, what beats the chain (as
+	// Beater.Text says it), or else CompareText.
+	Compared    string
+	Beaten      []string
+	CompareText string
 }
 
 type sweepValueView struct {

@@ -309,3 +309,28 @@ func TestSweepPage(t *testing.T) {
 }
 
 func fp(v float64) *float64 { return &v }
+
+// A check's page says what beats the named chain, as the terminal does.
+func TestCheckPageComparison(t *testing.T) {
+	p, _ := samplePage(t)
+	rep := *p.Report
+	rep.Command = "check"
+	rep.Front = rep.Front[:1]
+	rep.Recommended = 0
+	better := rep.Front[0]
+	better.Notation = "cic6m1r8 > fir8"
+	better.MeetsTargets = true
+	better.MemoryBits--
+	rep.Compare(report.NewComparison("a plan of the same spec", &report.Report{Front: []report.Chain{better, rep.Front[0]}}))
+	p.Report = &rep
+	b, err := Plan(p)
+	if err != nil {
+		t.Fatal(err)
+	}
+	page := string(b)
+	for _, want := range []string{"Compared with the front of a plan of the same spec (2 chains): it is beaten.", "#1 cic6m1r8 &gt; fir8 does it with"} {
+		if !strings.Contains(page, want) {
+			t.Errorf("check page lacks %q", want)
+		}
+	}
+}

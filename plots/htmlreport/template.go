@@ -136,6 +136,8 @@ const templates = `
 <p>{{.Reason}}</p>
 <p>{{.Figures.Mult}} multiplies and {{.Figures.Adds}} adds per output sample{{if $.Clock}} (hardware multipliers at the clock: {{.Figures.Multipliers}}){{end}}; {{.Figures.MemBits}} bits of memory ({{.Figures.MemWords}} words); latency {{.Figures.Latency}} ({{.Figures.LatOut}} output samples); alias rejection {{.Figures.Rejection}} dB (margin {{.Figures.Margin}} dB); passband ripple {{.Figures.Ripple}} dB; {{.Figures.Kind}}.</p></div>
 {{else}}<p>No chain meets the spec.</p>{{end}}
+{{if .Compared}}<p>Compared with the front of {{.Compared}}: {{if .Beaten}}it is beaten.</p>
+<ul>{{range .Beaten}}<li>{{.}}</li>{{end}}</ul>{{else}}{{.CompareText}}</p>{{end}}{{end}}
 </section>
 
 <section id="front"><h2>Pareto front</h2>
