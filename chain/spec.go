@@ -156,3 +156,13 @@ func DevToRipple(dp float64) float64 { return 20 * math.Log10((1+dp)/(1-dp)) }
 // RejectionToDev converts a rejection in positive dB to the linear stopband
 // deviation ds = 10^(-dB/20).
 func RejectionToDev(rejDB float64) float64 { return math.Pow(10, -rejDB/20) }
+
+// DevToRejection is the inverse of RejectionToDev, -20 log10(ds), bounded
+// to [-MaxFigureDB, MaxFigureDB] so that an exact zero (or a NaN) gives
+// MaxFigureDB rather than an infinity.
+func DevToRejection(ds float64) float64 {
+	if !(ds > 0) {
+		return MaxFigureDB
+	}
+	return math.Max(-MaxFigureDB, math.Min(MaxFigureDB, -20*math.Log10(ds)))
+}

@@ -6,12 +6,30 @@ import (
 	"github.com/stepdown-dsp/stepdown/cost"
 )
 
+// The search space's defaults, which Settings' zero values stand for, and
+// its limits: the one place they are written (the spec file takes them
+// from here).
+const (
+	DefaultMaxStages = 6  // Settings.MaxStages zero
+	MaxStagesLimit   = 12 // the most stages a search may allow
+	MaxCICOrder      = 10 // the highest CIC order a search may list
+	MaxCICDelay      = 4  // the longest CIC differential delay a search may list
+)
+
+// DefaultCICOrders are the CIC orders a search tries when Settings.CICOrders
+// is nil: 1 to 7.
+func DefaultCICOrders() []int { return []int{1, 2, 3, 4, 5, 6, 7} }
+
+// DefaultCICDelays are the CIC differential delays a search tries when
+// Settings.CICDelays is nil: 1 and 2.
+func DefaultCICDelays() []int { return []int{1, 2} }
+
 // Settings bounds and steers the search. The zero value is the default.
 type Settings struct {
-	MaxStages int          // zero means 6
-	Kinds     []chain.Kind // nil means CIC, half-band and FIR
-	CICOrders []int        // nil means 1..7
-	CICDelays []int        // nil means 1, 2
+	MaxStages int          // zero means DefaultMaxStages; at most MaxStagesLimit
+	Kinds     []chain.Kind // nil means every kind (chain.Kinds)
+	CICOrders []int        // nil means DefaultCICOrders; each 1..MaxCICOrder
+	CICDelays []int        // nil means DefaultCICDelays; each 1..MaxCICDelay
 	Jobs      int          // parallel designs; zero means runtime.GOMAXPROCS(0)
 
 	// Rule picks the recommendation; the zero value is Knee.

@@ -5,6 +5,7 @@ import (
 
 	"github.com/stepdown-dsp/stepdown/chain"
 	"github.com/stepdown-dsp/stepdown/chain/fixed"
+	"github.com/stepdown-dsp/stepdown/chain/remez"
 )
 
 // Reasons a candidate is dropped. The strings are keys of Result.Dropped.
@@ -203,7 +204,7 @@ func newEstimator(p params, tol float64) *estimator {
 		tol = defaultTolerance
 	}
 	return &estimator{p: p, tol: tol, maxTaps: defaultMaxTaps, cache: make(map[stageKey]stageVal), beaten: map[[3]int]bool{}, beaters: map[[3]int][][2]int{}, reinstated: map[string]bool{}, reinstatedCIC: map[[3]int]bool{}, margins: map[[3]int]float64{}, cics: map[[3]int]chain.CICStage{},
-		orders: []int{1, 2, 3, 4, 5, 6, 7}, delays: []int{1, 2}, floorPrune: true}
+		orders: DefaultCICOrders(), delays: DefaultCICDelays(), floorPrune: true}
 }
 
 // keysOf writes the stages' keys into e.keys following chain's rules: the
@@ -317,7 +318,7 @@ func (e *estimator) stage(k stageKey) stageVal {
 	out := rate / float64(f)
 	last := prefix*f == p.d
 	later := float64(p.d / (prefix * f))
-	dpi := rippleToDev(math.Float64frombits(k.share))
+	dpi := chain.RippleToDev(math.Float64frombits(k.share))
 	// The absolute stopband limit each stage is designed to, as chain sets
 	// it, so that the cascade's rejection relative to |H(0)| meets the target.
 	ds := p.ds * chain.StopbandScale(dpi, int(k.nRipple), true)
@@ -448,21 +449,11 @@ func roundingFloor(n, maxTap float64, bits int) float64 {
 	return math.Ldexp(math.Sqrt(n/12), -frac)
 }
 
-// herrmann is the Herrmann-Rabiner-Chan (1973) length N = D/df - f df + 1,
-// unrounded, for a transition df as a fraction of the rate.
-func rippleToDev(db float64) float64 {
-	g := math.Pow(10, db/20)
-	return (g - 1) / (g + 1)
-}
-
+// herrmann is the Herrmann-Rabiner-Chan (1973) length N = D/df - f df + 1
+// (remez.HerrmannD and HerrmannF), unrounded, for a transition df as a
+// fraction of the rate, and at least 1.
 func herrmann(dp, ds, df float64) float64 {
-	if dp < ds {
-		dp, ds = ds, dp
-	}
-	l1, l2 := math.Log10(dp), math.Log10(ds)
-	dInf := (0.005309*l1*l1+0.07114*l1-0.4761)*l2 - (0.00266*l1*l1 + 0.5941*l1 + 0.4278)
-	ff := 11.01217 + 0.51244*(l1-l2)
-	n := dInf/df - ff*df + 1
+	n := remez.HerrmannD(dp, ds)/df - remez.HerrmannF(dp, ds)*df + 1
 	if n < 1 || math.IsNaN(n) {
 		return 1
 	}

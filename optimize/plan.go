@@ -5,6 +5,7 @@ import (
 	"fmt"
 	"math"
 	"runtime"
+	"slices"
 	"sort"
 
 	"github.com/stepdown-dsp/stepdown/chain"
@@ -67,18 +68,21 @@ func (s *Settings) check() error {
 		return fmt.Errorf("optimize: MaxStages = %d: must not be negative", s.MaxStages)
 	}
 	for _, k := range s.Kinds {
-		if k != chain.CIC && k != chain.HalfBand && k != chain.FIR {
-			return fmt.Errorf("optimize: Kinds contains %d: must be chain.CIC, chain.HalfBand or chain.FIR", int(k))
+		if !slices.Contains(chain.Kinds(), k) {
+			return fmt.Errorf("optimize: Kinds contains %d: must be one of chain.Kinds()", int(k))
 		}
 	}
+	if s.MaxStages > MaxStagesLimit {
+		return fmt.Errorf("optimize: MaxStages = %d: must be at most %d", s.MaxStages, MaxStagesLimit)
+	}
 	for _, n := range s.CICOrders {
-		if n < 1 || n > 12 {
-			return fmt.Errorf("optimize: CICOrders contains %d: must be 1 to 12", n)
+		if n < 1 || n > MaxCICOrder {
+			return fmt.Errorf("optimize: CICOrders contains %d: must be 1 to %d", n, MaxCICOrder)
 		}
 	}
 	for _, m := range s.CICDelays {
-		if m < 1 || m > 8 {
-			return fmt.Errorf("optimize: CICDelays contains %d: must be 1 to 8", m)
+		if m < 1 || m > MaxCICDelay {
+			return fmt.Errorf("optimize: CICDelays contains %d: must be 1 to %d", m, MaxCICDelay)
 		}
 	}
 	for _, w := range []struct {
@@ -108,13 +112,13 @@ func (s *Settings) check() error {
 func newSpace(p *params, s *Settings) *space {
 	sp := &space{d: p.d, maxStages: s.MaxStages, orders: s.CICOrders, delays: s.CICDelays}
 	if sp.maxStages == 0 {
-		sp.maxStages = 6
+		sp.maxStages = DefaultMaxStages
 	}
 	if sp.orders == nil {
-		sp.orders = []int{1, 2, 3, 4, 5, 6, 7}
+		sp.orders = DefaultCICOrders()
 	}
 	if sp.delays == nil {
-		sp.delays = []int{1, 2}
+		sp.delays = DefaultCICDelays()
 	}
 	if s.Kinds == nil {
 		sp.cic, sp.halfBand, sp.fir = true, true, true

@@ -232,14 +232,17 @@ func TestSettingsErrors(t *testing.T) {
 	}
 }
 
-// TestRefuse: 2^20 within 20 stages is refused at once with a message that
+// TestRefuse: 2^20 within 12 stages (the limit) is refused at once with a message that
 // names the limit.
 func TestRefuse(t *testing.T) {
 	spec := rx()
 	spec.InputRate = spec.OutputRate * (1 << 20)
-	_, err := optimize.Plan(context.Background(), spec, optimize.Settings{MaxStages: 20})
+	_, err := optimize.Plan(context.Background(), spec, optimize.Settings{MaxStages: optimize.MaxStagesLimit})
 	if err == nil || !strings.Contains(err.Error(), "candidates") {
 		t.Fatalf("err = %v", err)
+	}
+	if _, err := optimize.Plan(context.Background(), spec, optimize.Settings{MaxStages: optimize.MaxStagesLimit + 1}); err == nil || !strings.Contains(err.Error(), "at most") {
+		t.Errorf("MaxStages beyond the limit: err = %v", err)
 	}
 	t.Log(err)
 }

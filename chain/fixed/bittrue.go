@@ -363,13 +363,9 @@ func snrNote(inBits int, tooNarrow bool, clipped, samples int, offset, rms float
 	return strings.Join(why, "; ")
 }
 
-// posDB returns -20 log10(v), bounded to [-300, 300] so that no figure is infinite.
-func posDB(v float64) float64 {
-	if !(v > 0) {
-		return 300
-	}
-	return math.Max(-300, math.Min(300, -20*math.Log10(v)))
-}
+// posDB returns -20 log10(v), bounded so that no figure is infinite
+// (chain.DevToRejection).
+func posDB(v float64) float64 { return chain.DevToRejection(v) }
 
 func snrDB(ref, got []float64) float64 {
 	var ps, pe float64

@@ -32,11 +32,15 @@ const MaxFileSize = 64 << 10
 // sizeText is MaxFileSize in words.
 const sizeText = "64 KiB"
 
-// Search limits.
+// Search limits: the search's own (package optimize).
 const (
-	MaxStages   = 12
-	MaxCICOrder = 10
-	MaxCICDelay = 4
+	MaxStages   = optimize.MaxStagesLimit
+	MaxCICOrder = optimize.MaxCICOrder
+	MaxCICDelay = optimize.MaxCICDelay
+)
+
+// Word limits.
+const (
 	MinWordBits = 2
 	// MaxWordBits is the widest input and output word: the word-length
 	// planner (fixed.Plan) takes data words of 2 to 32 bits, and every
@@ -47,14 +51,8 @@ const (
 	MaxCoefBits = fixed.MaxBits
 )
 
-// Defaults for the search table, used when a key is absent.
-const DefaultMaxStages = 6
-
-var (
-	defaultKinds     = []chain.Kind{chain.CIC, chain.HalfBand, chain.FIR}
-	defaultCICOrders = []int{1, 2, 3, 4, 5, 6, 7}
-	defaultCICDelays = []int{1, 2}
-)
+// DefaultMaxStages is search.max_stages when absent: the search's default.
+const DefaultMaxStages = optimize.DefaultMaxStages
 
 // Spec is a parsed and validated spec file.
 type Spec struct {
@@ -728,7 +726,7 @@ func (p *parser) build() (*Spec, error) {
 	} else if ok {
 		out.MaxStages = n
 	}
-	out.Kinds = append([]chain.Kind(nil), defaultKinds...)
+	out.Kinds = chain.Kinds()
 	if v, ok := p.lookup("search.kinds"); ok {
 		kinds, err := p.kinds(v)
 		if err != nil {
@@ -736,13 +734,13 @@ func (p *parser) build() (*Spec, error) {
 		}
 		out.Kinds = kinds
 	}
-	out.CICOrders = append([]int(nil), defaultCICOrders...)
+	out.CICOrders = optimize.DefaultCICOrders()
 	if l, ok, err := p.intList("search.cic_orders", 1, MaxCICOrder, "CIC order"); err != nil {
 		return nil, err
 	} else if ok {
 		out.CICOrders = l
 	}
-	out.CICDelays = append([]int(nil), defaultCICDelays...)
+	out.CICDelays = optimize.DefaultCICDelays()
 	if l, ok, err := p.intList("search.cic_delays", 1, MaxCICDelay, "CIC delay"); err != nil {
 		return nil, err
 	} else if ok {
@@ -786,7 +784,7 @@ func (p *parser) kinds(v any) ([]chain.Kind, error) {
 	}
 	// A fixed order keeps the settings, and so the search, deterministic.
 	var out []chain.Kind
-	for _, k := range defaultKinds {
+	for _, k := range chain.Kinds() {
 		if seen[k] {
 			out = append(out, k)
 		}

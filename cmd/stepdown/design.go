@@ -230,14 +230,9 @@ func rippleOf(dp float64) float64 {
 	return chain.DevToRipple(dp)
 }
 
-// attenOf is the attenuation of a stopband deviation, capped at 400 dB for
-// an exact zero so that no infinity reaches the output.
-func attenOf(ds float64) float64 {
-	if ds <= 1e-20 {
-		return 400
-	}
-	return -20 * math.Log10(ds)
-}
+// attenOf is the attenuation of a stopband deviation, bounded as every dB
+// figure is (chain.DevToRejection) so that no infinity reaches the output.
+func attenOf(ds float64) float64 { return chain.DevToRejection(ds) }
 
 func printDesign(w io.Writer, o designOutput) {
 	kind := "type I (odd length)"
