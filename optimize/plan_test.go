@@ -11,6 +11,7 @@ import (
 	"testing"
 
 	"github.com/stepdown-dsp/stepdown/chain"
+	"github.com/stepdown-dsp/stepdown/chain/remez"
 	"github.com/stepdown-dsp/stepdown/optimize"
 )
 
@@ -42,12 +43,12 @@ func crSpec() chain.Spec {
 	}
 }
 
-// herrmannN is the Herrmann-Rabiner-Chan (1973) length, unrounded.
+// herrmannN is the Herrmann-Rabiner-Chan (1973) length, unrounded, as the
+// library computes it (remez.HerrmannD and HerrmannF, which the estimate
+// tier uses): the figures below check those against the published method's
+// values.
 func herrmannN(dp, ds, df float64) float64 {
-	l1, l2 := math.Log10(dp), math.Log10(ds)
-	d := (0.005309*l1*l1+0.07114*l1-0.4761)*l2 - (0.00266*l1*l1 + 0.5941*l1 + 0.4278)
-	f := 11.01217 + 0.51244*(l1-l2)
-	return d/df - f*df + 1
+	return remez.HerrmannD(dp, ds)/df - remez.HerrmannF(dp, ds)*df + 1
 }
 
 // crRate is the multiplies per second of a FIR-only split of the
