@@ -143,36 +143,9 @@ func QuantizeHalfBand(taps []float64, bits int) (Coefficients, error) {
 
 // Amplitude returns the zero-phase amplitude A(f) of a symmetric filter h at
 // f Hz for sample rate rate: H(f) = exp(-j pi f (n-1)/rate) A(f), |H| = |A|.
-func Amplitude(h []float64, f, rate float64) float64 {
-	n := len(h)
-	if n == 0 {
-		return 0
-	}
-	// A = sum over m of 2 h[c-m] cos(m w) (odd n, m = 0 counted once) or of
-	// 2 h[c-m-1/2] cos((m+1/2) w) (even n). Both cosine sequences obey
-	// C(m+1) = 2 cos(w) C(m) - C(m-1); run it from the outermost tap inwards
-	// by Clenshaw's recurrence, one cosine per call.
-	w := 2 * math.Pi * f / rate
-	x2 := 2 * math.Cos(w)
-	var b1, b2 float64
-	if n%2 == 1 {
-		c := n / 2
-		for m := c; m >= 1; m-- {
-			b1, b2 = 2*h[c-m]+x2*b1-b2, b1
-		}
-		// sum_{m>=1} a_m cos(m w) = b1 cos w - b2 (Clenshaw with a_0 = 0).
-		return h[c] + b1*x2/2 - b2
-	}
-	// Even: cos((m+1/2) w) = cos(w/2) U-type sequence; Clenshaw on
-	// sum_{m>=0} a_m C(m) with C(0) = cos(w/2), C(-1) = cos(w/2).
-	half := n / 2
-	for m := half - 1; m >= 0; m-- {
-		b1, b2 = 2*h[half-1-m]+x2*b1-b2, b1
-	}
-	ch := math.Cos(w / 2)
-	// S = b1 C(0) + b2 (C(1) - x2 C(0)) with C(1) - x2 C(0) = -C(-1).
-	return (b1 - b2) * ch
-}
+// It is remez.Amplitude, the one evaluation of a symmetric filter's
+// amplitude in the module.
+func Amplitude(h []float64, f, rate float64) float64 { return remez.Amplitude(h, f, rate) }
 
 // amplitudeDirect is Amplitude by one cosine per tap pair, for tests.
 func amplitudeDirect(h []float64, f, rate float64) float64 {
