@@ -3,6 +3,7 @@ package chain
 import (
 	"fmt"
 	"math"
+	"strings"
 )
 
 // Spec is what the user asks of the whole chain. Rates and frequencies in Hz,
@@ -47,11 +48,40 @@ const ratioTol = 1e-9
 type SpecError struct {
 	Field string
 	Value float64
-	Rule  string
+	// Rule is the rule Value breaks. Other fields it names are written in
+	// braces, {OutputRate}, so that a caller can say them in its own words
+	// (RuleIn); Error writes the Go field names.
+	Rule string
 }
 
 func (e *SpecError) Error() string {
-	return fmt.Sprintf("chain: spec %s = %s: %s", e.Field, fmtNum(e.Value), e.Rule)
+	return fmt.Sprintf("chain: spec %s = %s: %s", e.Field, fmtNum(e.Value), e.RuleIn(nil))
+}
+
+// RuleIn is Rule with each field it names, {Field}, written as name(Field);
+// a nil name writes the Go field name.
+func (e *SpecError) RuleIn(name func(field string) string) string {
+	var b strings.Builder
+	r := e.Rule
+	for {
+		i := strings.IndexByte(r, '{')
+		if i < 0 {
+			break
+		}
+		j := strings.IndexByte(r[i:], '}')
+		if j < 0 {
+			break
+		}
+		field := r[i+1 : i+j]
+		b.WriteString(r[:i])
+		if name != nil {
+			field = name(field)
+		}
+		b.WriteString(field)
+		r = r[i+j+1:]
+	}
+	b.WriteString(r)
+	return b.String()
 }
 
 func fmtNum(v float64) string { return fmt.Sprintf("%.10g", v) }
@@ -77,7 +107,7 @@ func (s Spec) Normalize() (Spec, error) {
 		return bad("OutputRate", s.OutputRate, "must be at least %s Hz (rates from %s to %s Hz are supported)", fmtNum(MinRateHz), fmtNum(MinRateHz), fmtNum(MaxRateHz))
 	}
 	if s.OutputRate >= s.InputRate {
-		return bad("OutputRate", s.OutputRate, "must be below InputRate = %s Hz (the chain decimates)", fmtNum(s.InputRate))
+		return bad("OutputRate", s.OutputRate, "must be below {InputRate} = %s Hz (the chain decimates)", fmtNum(s.InputRate))
 	}
 	ratio := s.InputRate / s.OutputRate
 	d := math.Round(ratio)
@@ -87,27 +117,27 @@ func (s Spec) Normalize() (Spec, error) {
 			hi++
 		}
 		return bad("OutputRate", s.OutputRate,
-			"InputRate/OutputRate = %s is not an integer ratio; the nearest integer ratios are %s (OutputRate %s Hz) and %s (OutputRate %s Hz)",
+			"{InputRate}/{OutputRate} = %s is not an integer ratio; the nearest integer ratios are %s ({OutputRate} %s Hz) and %s ({OutputRate} %s Hz)",
 			fmtNum(ratio), fmtNum(lo), fmtNum(s.InputRate/lo), fmtNum(hi), fmtNum(s.InputRate/hi))
 	}
 	if d > math.MaxInt32 {
-		return bad("OutputRate", s.OutputRate, "InputRate/OutputRate = %s is beyond the supported ratio %d", fmtNum(d), math.MaxInt32)
+		return bad("OutputRate", s.OutputRate, "{InputRate}/{OutputRate} = %s is beyond the supported ratio %d", fmtNum(d), math.MaxInt32)
 	}
 	fk := s.OutputRate
 	if !finite(s.Passband) || s.Passband <= 0 || s.Passband >= fk/2 {
-		return bad("Passband", s.Passband, "must lie in (0, OutputRate/2 = %s Hz)", fmtNum(fk/2))
+		return bad("Passband", s.Passband, "must lie in (0, {OutputRate}/2 = %s Hz)", fmtNum(fk/2))
 	}
 	if s.Protected == 0 {
 		s.Protected = s.Passband
 	}
 	if !finite(s.Protected) || s.Protected < s.Passband || s.Protected > fk/2 {
-		return bad("Protected", s.Protected, "must lie in [Passband = %s Hz, OutputRate/2 = %s Hz]", fmtNum(s.Passband), fmtNum(fk/2))
+		return bad("Protected", s.Protected, "must lie in [{Passband} = %s Hz, {OutputRate}/2 = %s Hz]", fmtNum(s.Passband), fmtNum(fk/2))
 	}
 	if s.Stopband == 0 {
 		s.Stopband = fk - s.Protected
 	}
 	if !finite(s.Stopband) || s.Stopband <= s.Passband || s.Stopband > fk-s.Protected {
-		return bad("Stopband", s.Stopband, "must lie in (Passband = %s Hz, OutputRate - Protected = %s Hz]", fmtNum(s.Passband), fmtNum(fk-s.Protected))
+		return bad("Stopband", s.Stopband, "must lie in ({Passband} = %s Hz, {OutputRate} - {Protected} = %s Hz]", fmtNum(s.Passband), fmtNum(fk-s.Protected))
 	}
 	if !finite(s.RippleDB) || s.RippleDB <= 0 {
 		return bad("RippleDB", s.RippleDB, "must be a finite peak-to-peak ripple above 0 dB")

@@ -804,10 +804,14 @@ func (p *parser) specError(err error) error {
 			k = f.key
 		}
 	}
-	rule := se.Rule
-	for _, f := range goField {
-		rule = replaceWord(rule, f.goName, f.key)
-	}
+	rule := se.RuleIn(func(field string) string {
+		for _, f := range goField {
+			if f.goName == field {
+				return f.key
+			}
+		}
+		return field
+	})
 	raw, present := p.lookup(k)
 	e := &Error{File: p.file, Key: k, Rule: rule}
 	if present {
