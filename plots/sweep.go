@@ -4,6 +4,7 @@ import (
 	"fmt"
 	"image/color"
 	"math"
+	"sort"
 	"strconv"
 
 	"gonum.org/v1/plot"
@@ -28,6 +29,7 @@ const (
 	SweepFrequency SweepKind = iota // Hz, shown in Hz, kHz, MHz or GHz
 	SweepLevel                      // dB
 	SweepBits                       // whole bits
+	SweepCount                      // a whole number in SweepData.Unit (a ratio, stages)
 )
 
 // SweepPoint is one swept value of a Sweep figure.
@@ -57,7 +59,13 @@ type SweepData struct {
 	// label; Kind picks the axis unit.
 	Name string
 	Kind SweepKind
-	// Points are the swept values in increasing Value.
+	// Unit is the unit of a SweepCount quantity ("stages"), written in
+	// the axis label; empty for a plain number (a decimation ratio).
+	Unit string
+	// Points are the swept values, in the order swept (upwards or
+	// downwards). The axis runs from the least value to the greatest
+	// whatever the order, and a structure change is marked where the
+	// notation differs from that of the value to its left.
 	Points []SweepPoint
 	// Clock adds a fourth panel, the hardware multipliers at the clock.
 	Clock bool
@@ -71,8 +79,8 @@ type SweepData struct {
 // panels, wherever the recommended chain's structure changes. Render it at
 // SweepWidth x SweepHeight.
 func Sweep(d SweepData) (*Figure, error) {
-	if d.Kind < SweepFrequency || d.Kind > SweepBits {
-		return nil, fmt.Errorf("plots: sweep: Kind %d: want SweepFrequency, SweepLevel or SweepBits", d.Kind)
+	if d.Kind < SweepFrequency || d.Kind > SweepCount {
+		return nil, fmt.Errorf("plots: sweep: Kind %d: want SweepFrequency, SweepLevel, SweepBits or SweepCount", d.Kind)
 	}
 	if len(d.Points) == 0 {
 		return nil, fmt.Errorf("plots: sweep: Points is empty: want at least one value")
@@ -134,7 +142,16 @@ type sweepFigure struct {
 	gaps   bool
 }
 
+// byValue returns the points in increasing Value (a stable sort: points
+// already in order are returned as they are).
+func byValue(pts []SweepPoint) []SweepPoint {
+	out := append([]SweepPoint(nil), pts...)
+	sort.SliceStable(out, func(i, j int) bool { return out[i].Value < out[j].Value })
+	return out
+}
+
 func newSweepFigure(d SweepData) *sweepFigure {
+	d.Points = byValue(d.Points)
 	s := &sweepFigure{title: d.Title}
 	if s.title == "" {
 		s.title = "Sweep of " + d.Name
@@ -164,6 +181,8 @@ func newSweepFigure(d SweepData) *sweepFigure {
 		s.xu = unit{1, "dB"}
 	case SweepBits:
 		s.xu = unit{1, "bits"}
+	case SweepCount:
+		s.xu = unit{1, d.Unit}
 	default:
 		s.xu = freqUnit(maxV)
 	}
@@ -197,6 +216,9 @@ func newSweepFigure(d SweepData) *sweepFigure {
 		p.Y.Label.Text = g.label
 		if i == len(get)-1 {
 			p.X.Label.Text = d.Name + " (" + xu.name + ")"
+			if xu.name == "" {
+				p.X.Label.Text = d.Name
+			}
 		} else {
 			p.X.Tick.Label.Color = color.Transparent
 		}

@@ -84,3 +84,51 @@ func TestSweepErrors(t *testing.T) {
 		t.Errorf("NaN figure of a value without a chain: %v", err)
 	}
 }
+
+// A sweep drawn downwards is the same picture as drawn upwards: the axis
+// runs from the least value, and changes are marked left to right.
+func TestSweepDownwards(t *testing.T) {
+	up := demoSweep()
+	down := demoSweep()
+	for i, j := 0, len(down.Points)-1; i < j; i, j = i+1, j-1 {
+		down.Points[i], down.Points[j] = down.Points[j], down.Points[i]
+	}
+	svg := func(d SweepData) []byte {
+		f, err := Sweep(d)
+		if err != nil {
+			t.Fatal(err)
+		}
+		var b bytes.Buffer
+		if err := f.Render(&b, "svg", SweepWidth, SweepHeight); err != nil {
+			t.Fatal(err)
+		}
+		return b.Bytes()
+	}
+	if !bytes.Equal(svg(up), svg(down)) {
+		t.Error("the downward sweep draws differently")
+	}
+}
+
+func TestSweepCountAxis(t *testing.T) {
+	for _, c := range []struct{ name, unit, want, not string }{
+		{"decimation", "", ">decimation<", "decimation ("},
+		{"max_stages", "stages", ">max_stages (stages)<", ""},
+	} {
+		d := demoSweep()
+		d.Name, d.Kind, d.Unit = c.name, SweepCount, c.unit
+		for i := range d.Points {
+			d.Points[i].Value = float64(16 * (i + 1))
+		}
+		f, err := Sweep(d)
+		if err != nil {
+			t.Fatal(err)
+		}
+		var b bytes.Buffer
+		if err := f.Render(&b, "svg", SweepWidth, SweepHeight); err != nil {
+			t.Fatal(err)
+		}
+		if !strings.Contains(b.String(), c.want) || (c.not != "" && strings.Contains(b.String(), c.not)) {
+			t.Errorf("%s: axis label is not %q", c.name, c.want)
+		}
+	}
+}
