@@ -22,17 +22,21 @@ var sweepPlan = optimize.Plan
 func sweepCommand() *cli.Command {
 	return &cli.Command{
 		Name:      "sweep",
-		Usage:     "step one requirement over a range, plan each value and tabulate the best chain's cost",
+		Usage:     "step one requirement (or two, as a grid) over a range, plan each value and tabulate the best chain's cost",
 		ArgsUsage: "[SPEC.toml]",
-		UsageText: "stepdown sweep [SPEC.toml] --vary KEY=FROM:TO:STEP [--out DIR] [--json] [--quiet] [--html] [--max-stages N] [--jobs N] [--timeout DUR]\n\n" +
-			"KEY is one of input_rate, output_rate, passband, protected, ripple, rejection, clock or\n" +
-			"coefficient_bits; FROM:TO:STEP are written like the spec's values (\"80 dB:100 dB:5 dB\",\n" +
-			"\"80:100:5\" in the key's base unit, \"1.92:3.84:0.64 MHz\"), at most 50 values.\n" +
+		UsageText: "stepdown sweep [SPEC.toml] --vary KEY=FROM:TO:STEP [--vary KEY2=FROM:TO:STEP] [--out DIR] [--json] [--quiet] [--html] [--max-stages N] [--jobs N] [--timeout DUR]\n\n" +
+			"KEY is one of input_rate, output_rate, decimation, passband, protected, stopband, ripple,\n" +
+			"rejection, clock, input_bits, output_bits, coefficient_bits or max_stages; FROM:TO:STEP are\n" +
+			"written like the spec's values (\"80 dB:100 dB:5 dB\", \"80:100:5\" in the key's base unit,\n" +
+			"\"1.92:3.84:0.64 MHz\"), at most 50 values; FROM above TO runs downwards (\"90:70:10\").\n" +
+			"decimation steps D and sets output_rate = input_rate / D.\n" +
 			"Writes sweep.csv, sweep.svg, sweep.png, report.json (the sweep) and values/NN/ (each value's\n" +
 			"report.json and coefficient files). Values that make the spec invalid are rows with status\n" +
-			"\"invalid\"; the sweep goes on. Without SPEC.toml the built-in example is swept.",
+			"\"invalid\"; the sweep goes on. Without SPEC.toml the built-in example is swept.\n" +
+			"A second --vary makes a grid of every pair (at most 150 cells): the table and the heat map\n" +
+			"show the recommended chain's multiplies per output, rows the first key, columns the second.",
 		Flags: append(outFlags(),
-			&cli.StringFlag{Name: "vary", Usage: "the key and range, KEY=FROM:TO:STEP (e.g. rejection=80:100:5)"},
+			&cli.StringSliceFlag{Name: "vary", Usage: "the key and range, KEY=FROM:TO:STEP (e.g. rejection=80:100:5); twice for a grid"},
 			&cli.BoolFlag{Name: "html", Usage: "also write report.html, one self-contained page for sharing and printing"},
 			&cli.IntFlag{Name: "max-stages", Usage: "override search.max_stages (1..12)"},
 			&cli.IntFlag{Name: "jobs", Usage: "parallel designs over the whole sweep (default: the number of CPUs)"},
@@ -42,13 +46,41 @@ func sweepCommand() *cli.Command {
 	}
 }
 
-func runSweep(c *cli.Context) error {
-	if !c.IsSet("vary") {
-		return usagef("--vary: missing; name the key and range, e.g. --vary rejection=80:100:5")
+// parseVaries reads the --vary flags: one range, or two for a grid (g is
+// then set).
+func parseVaries(c *cli.Context) (sweep.Vary, *sweep.Grid, error) {
+	args := c.StringSlice("vary")
+	if len(args) == 0 {
+		return sweep.Vary{}, nil, usagef("--vary: missing; name the key and range, e.g. --vary rejection=80:100:5")
 	}
-	v, err := sweep.ParseVary(c.String("vary"))
+	if len(args) > 2 {
+		return sweep.Vary{}, nil, usagef("--vary %s: a third --vary; a sweep steps one key, or two keys as a grid", clip(args[2]))
+	}
+	var vs []sweep.Vary
+	for _, a := range args {
+		v, err := sweep.ParseVary(a)
+		if err != nil {
+			return sweep.Vary{}, nil, usagef("%s", units.Clip(err.Error(), 4*units.MaxEcho))
+		}
+		if v.Key.Name == "max_stages" && c.IsSet("max-stages") {
+			return sweep.Vary{}, nil, usagef("--max-stages %d: --vary %s steps search.max_stages; give one of them", c.Int("max-stages"), clip(a))
+		}
+		vs = append(vs, v)
+	}
+	if len(vs) == 1 {
+		return vs[0], nil, nil
+	}
+	g, err := sweep.NewGrid(vs[0], vs[1])
 	if err != nil {
-		return usagef("%s", units.Clip(err.Error(), 4*units.MaxEcho))
+		return sweep.Vary{}, nil, usagef("%s", units.Clip(err.Error(), 4*units.MaxEcho))
+	}
+	return vs[0], &g, nil
+}
+
+func runSweep(c *cli.Context) error {
+	v, g, err := parseVaries(c)
+	if err != nil {
+		return err
 	}
 	if err := checkSearchFlags(c); err != nil {
 		return err
@@ -87,6 +119,9 @@ func runSweep(c *cli.Context) error {
 	if st.Jobs > 0 {
 		st.Workers = st.Jobs
 	}
+	if g != nil {
+		st = g.Study(st)
+	}
 	rs := sweep.Run(ctx, st)
 	prog.finish()
 	if sigCtx.Err() != nil {
@@ -100,6 +135,9 @@ func runSweep(c *cli.Context) error {
 		if r.Status == sweep.Invalid {
 			nInvalid++
 		}
+	}
+	if g != nil {
+		return finishGrid(c, out, source, base, *g, rs, nChain, nInvalid)
 	}
 	if nInvalid == len(rs) {
 		return usagef("--vary %s=%s: every value makes the spec invalid (first, %s: %s)", v.Key.Name, v.Text, v.Key.Format(rs[0].Value), specfile.InFileTerms(rs[0].Detail))
@@ -231,5 +269,168 @@ func printSweep(w io.Writer, source, dir string, v sweep.Vary, doc *sweep.Doc, f
 		}
 	}
 	fmt.Fprintln(w, ", values/NN/")
+	fmt.Fprintf(w, "\nCaution: %s.\n", report.Caution)
+}
+
+// finishGrid writes and prints a grid's results (runSweep's second half for
+// two --vary flags).
+func finishGrid(c *cli.Context, out *report.Folder, source string, base *specfile.Spec, g sweep.Grid, rs []sweep.Result, nChain, nInvalid int) error {
+	both := fmt.Sprintf("--vary %s=%s --vary %s=%s", g.Rows.Key.Name, clip(g.Rows.Text), g.Columns.Key.Name, clip(g.Columns.Text))
+	if nInvalid == len(rs) {
+		return usagef("%s: every cell makes the spec invalid (first, %s: %s)", both, cellName(g, rs[0]), specfile.InFileTerms(rs[0].Detail))
+	}
+	if nChain == 0 {
+		first := rs[0]
+		for _, r := range rs {
+			if r.Status != sweep.Invalid {
+				first = r
+				break
+			}
+		}
+		return fmt.Errorf("%s: no cell gives a chain (%s: %s); %s left as it was", both, cellName(g, first), specfile.InFileTerms(first.Detail), clip(out.Dir()))
+	}
+	files, doc, err := sweep.GridFiles(source, base, g, rs)
+	if err == nil && c.Bool("html") {
+		files, err = htmlreport.AddSweepPage(source, doc, files)
+	}
+	if err != nil {
+		return err
+	}
+	if c.Context.Err() != nil {
+		return fmt.Errorf("interrupted; %s left as it was", clip(out.Dir()))
+	}
+	if err := out.Write(files); err != nil {
+		return err
+	}
+	if err := out.Commit(); err != nil {
+		return err
+	}
+	quiet, asJSON := c.Bool("quiet"), c.Bool("json")
+	if asJSON {
+		if _, err := c.App.Writer.Write(files[0].Data); err != nil {
+			return err
+		}
+	}
+	w := c.App.Writer
+	switch {
+	case quiet:
+		w = io.Discard
+	case asJSON:
+		w = c.App.ErrWriter
+	}
+	printGrid(w, source, out.Dir(), g, rs, files)
+	return nil
+}
+
+// cellName is a cell's pair of keys and values, "rejection 80 dB, passband 400 kHz".
+func cellName(g sweep.Grid, r sweep.Result) string {
+	return g.Rows.Key.Name + " " + g.Rows.Key.Format(r.Value) + ", " + g.Columns.Key.Name + " " + g.Columns.Key.Format(r.Column)
+}
+
+// maxGridNotes is the most cells without a chain listed under the grid.
+const maxGridNotes = 10
+
+// gridKeyWidth is the widest line of the grid's key of structures.
+const gridKeyWidth = 100
+
+func rangeText(v sweep.Vary) string {
+	n := "values"
+	if len(v.Values) == 1 {
+		n = "value"
+	}
+	return fmt.Sprintf("%s from %s to %s in steps of %s (%d %s)", v.Key.Name, v.Key.Format(v.From), v.Key.Format(v.To), v.Key.Format(v.Step), len(v.Values), n)
+}
+
+// printGrid prints a grid: rows the first key, columns the second, each
+// cell the recommended chain's multiplies per output and its structure's
+// tag, or the mark of a cell without a chain; then the key of the tags and
+// the cells without a chain with their reasons.
+func printGrid(w io.Writer, source, dir string, g sweep.Grid, rs []sweep.Result, files []report.File) {
+	fmt.Fprintf(w, "stepdown sweep: %s, a grid of %d cells\n", source, len(rs))
+	fmt.Fprintf(w, "  rows     %s\n", rangeText(g.Rows))
+	fmt.Fprintf(w, "  columns  %s\n\n", rangeText(g.Columns))
+	tags, notations := sweep.Structures(rs)
+	partial := false
+	n := len(g.Columns.Values)
+	rows := [][]string{{g.Rows.Key.Name + " \\ " + g.Columns.Key.Name}}
+	for _, x := range g.Columns.Values {
+		rows[0] = append(rows[0], g.Columns.Key.Format(x))
+	}
+	for i, r := range rs {
+		if i%n == 0 {
+			rows = append(rows, []string{g.Rows.Key.Format(r.Value)})
+		}
+		cell := r.Status.Mark()
+		if r.Status.HasChain() {
+			cell = trimFloat(r.Report.Front[r.Report.Recommended].MultipliesPerOutput, 1)
+			if r.Status == sweep.Partial {
+				cell += "*"
+				partial = true
+			}
+			cell += " " + tags[i]
+		}
+		rows[len(rows)-1] = append(rows[len(rows)-1], cell)
+	}
+	widths := make([]int, n+1)
+	for _, r := range rows {
+		for i, c := range r {
+			widths[i] = max(widths[i], len(c))
+		}
+	}
+	fmt.Fprintln(w, "Multiplies per output of each cell's recommended chain; the letter names its structure.")
+	fmt.Fprintln(w)
+	for _, r := range rows {
+		var b strings.Builder
+		for i, c := range r {
+			if i == 0 {
+				fmt.Fprintf(&b, "%-*s", widths[i], c)
+			} else {
+				fmt.Fprintf(&b, "  %*s", widths[i], c)
+			}
+		}
+		fmt.Fprintln(w, strings.TrimRight(b.String(), " "))
+	}
+	if len(notations) > 0 {
+		// The key of the tags, in as many columns as fit in gridKeyWidth.
+		tw, nw := len(sweep.TagName(len(notations)-1)), 0
+		for _, nt := range notations {
+			nw = max(nw, len(nt))
+		}
+		per := max(1, (gridKeyWidth+4)/(tw+2+nw+4))
+		fmt.Fprintln(w)
+		for i := 0; i < len(notations); i += per {
+			var b strings.Builder
+			for j := i; j < min(i+per, len(notations)); j++ {
+				fmt.Fprintf(&b, "  %-*s  %-*s  ", tw, sweep.TagName(j), nw, notations[j])
+			}
+			fmt.Fprintln(w, strings.TrimRight(b.String(), " "))
+		}
+	}
+	if partial {
+		fmt.Fprintln(w, "  *  stopped by the time limit: the best chain found so far")
+	}
+	var notes []string
+	for _, r := range rs {
+		if !r.Status.HasChain() {
+			notes = append(notes, fmt.Sprintf("  %s: %s: %s", cellName(g, r), r.Status, specfile.InFileTerms(r.Detail)))
+		}
+	}
+	if len(notes) > 0 {
+		fmt.Fprintln(w, "\nCells without a chain:")
+		for i, s := range notes {
+			if i == maxGridNotes {
+				fmt.Fprintf(w, "  ... and %d more (see sweep.csv)\n", len(notes)-maxGridNotes)
+				break
+			}
+			fmt.Fprintln(w, s)
+		}
+	}
+	fmt.Fprintf(w, "\nwrote %s/ (%d files): report.json, sweep.csv, sweep.svg, sweep.png", dir, len(files))
+	for _, f := range files {
+		if f.Name == "report.html" {
+			fmt.Fprint(w, ", report.html")
+		}
+	}
+	fmt.Fprintln(w, ", values/rNN-cNN/")
 	fmt.Fprintf(w, "\nCaution: %s.\n", report.Caution)
 }

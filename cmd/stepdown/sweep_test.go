@@ -11,6 +11,7 @@ import (
 	"testing"
 
 	"github.com/stepdown-dsp/stepdown/chain"
+	"github.com/stepdown-dsp/stepdown/chain/specfile"
 	"github.com/stepdown-dsp/stepdown/cost"
 	"github.com/stepdown-dsp/stepdown/optimize"
 	"github.com/stepdown-dsp/stepdown/optimize/sweep"
@@ -27,7 +28,17 @@ func TestSweepUsageErrors(t *testing.T) {
 		{[]string{"sweep", "--vary", "bogus=1:2:1"}, `--vary bogus=1:2:1: unknown key "bogus"`},
 		{[]string{"sweep", "--vary", "rejection=80:100:0"}, "--vary rejection=80:100:0: STEP 0 dB must be above zero"},
 		{[]string{"sweep", "--vary", "rejection=1:100:1"}, "over the limit of 50"},
-		{[]string{"sweep", "--vary", "rejection=100:80:5"}, "FROM 100 dB is above TO 80 dB"},
+		{[]string{"sweep", "--vary", "rejection=100:80:-5"}, "write 80:100:5 upwards or 100:80:5 downwards"},
+		{[]string{"sweep", "--vary", "rejection=80:90:5", "--vary", "passband=400:500:50 kHz", "--vary", "ripple=0.1:0.2:0.1"},
+			"--vary ripple=0.1:0.2:0.1: a third --vary"},
+		{[]string{"sweep", "--vary", "rejection=80:90:5", "--vary", "rejection=60:70:5"}, "rejection is already the first --vary"},
+		{[]string{"sweep", "--vary", "decimation=32:64:32", "--vary", "output_rate=1.92:3.84:1.92 MHz"}, "both set output_rate"},
+		{[]string{"sweep", "--vary", "rejection=60:100:2", "--vary", "ripple=0.1:0.8:0.1"}, "168 cells, over the limit of 150"},
+		{[]string{"sweep", "--vary", "max_stages=2:4:1", "--max-stages", "3"}, "--max-stages 3: --vary max_stages=2:4:1 steps search.max_stages"},
+		{[]string{"sweep", "--vary", "decimation=8:64:0.5"}, "--vary decimation=8:64:0.5: STEP \"0.5\": want a whole number"},
+		{[]string{"sweep", "--vary", "max_stages=0:4:1"}, "value 0 stages must be at least 1 stage"},
+		// 1.7 and 1.8 MHz are no integer ratio of 122.88 MHz, whatever the rejection.
+		{[]string{"sweep", "--vary", "rejection=80:90:10", "--vary", "output_rate=1.7 MHz:1.8 MHz:100 kHz"}, "every cell makes the spec invalid (first, rejection 80 dB, output_rate 1.7 MHz:"},
 		{[]string{"sweep", "--vary", "coefficient_bits=14:20:0.5"}, "whole number"},
 		{[]string{"sweep", "--vary", "rejection=80:90:5", "--jobs", "-1"}, "--jobs -1"},
 		{[]string{"sweep", "missing.toml", "--vary", "rejection=80:90:5"}, "missing.toml"},
@@ -227,5 +238,249 @@ func TestSweepTableAligned(t *testing.T) {
 	}
 	if len(starts) != 2 || starts[0] != starts[1] || !strings.Contains(b.String(), "status      recommended") {
 		t.Errorf("columns not aligned:\n%s", b.String())
+	}
+}
+
+// sweepWithFake runs the command with fakeSweepPlan and returns stdout,
+// stderr and the output folder's files.
+func sweepWithFake(t *testing.T, out string, args ...string) (string, string, map[string][]byte) {
+	t.Helper()
+	old := sweepPlan
+	sweepPlan = fakeSweepPlan
+	defer func() { sweepPlan = old }()
+	var so, se bytes.Buffer
+	code := run(context.Background(), append(append([]string{"stepdown", "sweep"}, args...), "--out", out), &so, &se)
+	if code != 0 {
+		t.Fatalf("%v: exit %d: %s", args, code, se.String())
+	}
+	files := map[string][]byte{}
+	err := filepath.Walk(out, func(p string, fi os.FileInfo, err error) error {
+		if err != nil || fi.IsDir() {
+			return err
+		}
+		b, err := os.ReadFile(p)
+		rel, _ := filepath.Rel(out, p)
+		files[filepath.ToSlash(rel)] = b
+		return err
+	})
+	if err != nil {
+		t.Fatal(err)
+	}
+	return so.String(), se.String(), files
+}
+
+// A downward range runs its values in the order given.
+func TestSweepDownwards(t *testing.T) {
+	so, _, files := sweepWithFake(t, filepath.Join(t.TempDir(), "out"), "--vary", "rejection=100:80:10")
+	var doc struct {
+		Vary struct {
+			From, To, Step float64
+			Values         []float64
+		}
+		Values []struct {
+			ValueText string `json:"value_text"`
+		} `json:"values"`
+	}
+	if err := json.Unmarshal(files["report.json"], &doc); err != nil {
+		t.Fatal(err)
+	}
+	var got []string
+	for _, v := range doc.Values {
+		got = append(got, v.ValueText)
+	}
+	if strings.Join(got, ",") != "100 dB,90 dB,80 dB" || doc.Vary.From != 100 || doc.Vary.To != 80 || doc.Vary.Step != 10 {
+		t.Errorf("report.json: %+v", doc)
+	}
+	i100, i80 := strings.Index(so, "\n100 dB"), strings.Index(so, "\n80 dB")
+	if !strings.Contains(so, "rejection from 100 dB to 80 dB in steps of 10 dB (3 values)") || i100 < 0 || i80 < i100 {
+		t.Errorf("table:\n%s", so)
+	}
+}
+
+func TestSweepGrid(t *testing.T) {
+	dir := t.TempDir()
+	var first map[string][]byte
+	oldProcs := runtime.GOMAXPROCS(0)
+	defer runtime.GOMAXPROCS(oldProcs)
+	for _, procs := range []int{1, 3} {
+		runtime.GOMAXPROCS(procs)
+		// The example sets protected = 640 kHz: the 700 kHz column is invalid.
+		so, se, files := sweepWithFake(t, filepath.Join(dir, "grid"), "--vary", "rejection=80:100:10", "--vary", "passband=500:700:100 kHz", "--html", "--json")
+		var doc struct {
+			Schema  string `json:"schema"`
+			Columns struct {
+				Key string `json:"key"`
+			} `json:"vary_columns"`
+			Values []struct {
+				Row    int    `json:"row"`
+				Column int    `json:"column"`
+				Status string `json:"status"`
+			} `json:"values"`
+		}
+		if err := json.Unmarshal([]byte(so), &doc); err != nil || doc.Schema != "stepdown.sweep-grid/1" || doc.Columns.Key != "passband" || len(doc.Values) != 9 {
+			t.Fatalf("--json: %v %+v", err, doc)
+		}
+		if c := doc.Values[5]; c.Row != 2 || c.Column != 3 || c.Status != "invalid" {
+			t.Errorf("cell 6: %+v", c)
+		}
+		for _, want := range []string{
+			"a grid of 9 cells",
+			"rejection \\ passband  500 kHz  600 kHz  700 kHz",
+			"80 dB                    20 A     20 A  invalid",
+			"100 dB                   25 B     25 B  invalid",
+			"  A  cic4m1r8 > fir8",
+			"rejection 90 dB, passband 700 kHz: invalid: protected = \"640 kHz\": must lie in [passband = 700000 Hz",
+			"values/rNN-cNN/",
+		} {
+			if !strings.Contains(se, want) {
+				t.Errorf("table lacks %q:\n%s", want, se)
+			}
+		}
+		for _, n := range []string{"report.json", "sweep.csv", "sweep.svg", "sweep.png", "report.html", "values/r01-c01/report.json", "values/r03-c02/report.json"} {
+			if files[n] == nil {
+				t.Errorf("no %s", n)
+			}
+		}
+		if n := bytes.Count(files["sweep.csv"], []byte("\n")); n != 10 {
+			t.Errorf("sweep.csv has %d lines, want 10", n)
+		}
+		if !bytes.Contains(files["report.html"], []byte(`href="#cell-r02-c01"`)) {
+			t.Error("report.html does not link the grid's cells")
+		}
+		if first == nil {
+			first = files
+			continue
+		}
+		for n, b := range files {
+			if !bytes.Equal(b, first[n]) {
+				t.Errorf("GOMAXPROCS %d: %s differs", procs, n)
+			}
+		}
+	}
+}
+
+// A grid's table keeps its columns whatever the cells hold: every line of
+// it is as long as the header, marks and figures right-aligned.
+func TestGridTableAligned(t *testing.T) {
+	old := sweepPlan
+	sweepPlan = fakeSweepPlan
+	defer func() { sweepPlan = old }()
+	r, _ := sweep.ParseVary("decimation=64:16:16")
+	c, _ := sweep.ParseVary("passband=200:800:300 kHz")
+	g, err := sweep.NewGrid(r, c)
+	if err != nil {
+		t.Fatal(err)
+	}
+	rs := sweep.Run(context.Background(), g.Study(sweep.Study{Name: "ex", Spec: []byte(specfile.ExampleText), Plan: fakeSweepPlan}))
+	var b bytes.Buffer
+	printGrid(&b, "ex", "out", g, rs, nil)
+	lines := strings.Split(b.String(), "\n")
+	start := -1
+	for i, l := range lines {
+		if strings.HasPrefix(l, "decimation \\ passband") {
+			start = i
+		}
+	}
+	if start < 0 {
+		t.Fatalf("no table:\n%s", b.String())
+	}
+	table := lines[start : start+4]
+	for _, l := range table {
+		if len(l) != len(table[0]) {
+			t.Errorf("table lines differ in length:\n%s", strings.Join(table, "\n"))
+			break
+		}
+	}
+	if !strings.Contains(b.String(), "invalid") {
+		t.Errorf("no invalid cell in the table:\n%s", b.String())
+	}
+}
+
+// Rows without a chain keep the one-key table aligned with the new keys
+// too, whose values are short ("8") or carry a word ("1 stage").
+func TestSweepTableAlignedNewKeys(t *testing.T) {
+	ch := report.Chain{Notation: "cic4m1r8 > fir4", MultipliesPerOutput: 12, MemoryBits: 900, LatencyS: 1e-6}
+	best := &sweep.DocBest{MultipliesPerOutput: 12, MemoryBits: 900, LatencyS: 1e-6}
+	for _, tc := range []struct {
+		vary  string
+		texts []string
+	}{
+		{"decimation=8:128:60", []string{"8", "68", "128"}},
+		{"max_stages=1:3:1", []string{"1 stage", "2 stages", "3 stages"}},
+		{"stopband=1:1.2:0.1 MHz", []string{"1 MHz", "1.1 MHz", "1.2 MHz"}},
+	} {
+		v, err := sweep.ParseVary(tc.vary)
+		if err != nil {
+			t.Fatal(err)
+		}
+		doc := &sweep.Doc{Values: []sweep.DocValue{
+			{ValueText: tc.texts[0], Status: "invalid", Recommended: -1, Detail: "passband = \"300 kHz\": must lie in (0, output_rate/2 = 250000 Hz)"},
+			{ValueText: tc.texts[1], Status: "ok", Front: []report.Chain{ch}, Best: best},
+			{ValueText: tc.texts[2], Status: "partial", Front: []report.Chain{ch}, Best: best},
+		}}
+		var b bytes.Buffer
+		printSweep(&b, "ex", "out", v, doc, nil)
+		var status, rec []int
+		for _, l := range strings.Split(b.String(), "\n") {
+			for _, s := range []string{"invalid", "ok ", "partial", "status"} {
+				if i := strings.Index(l, s); i >= 0 && !strings.HasPrefix(l, "stepdown") && !strings.HasPrefix(l, "wrote") {
+					status = append(status, i)
+					break
+				}
+			}
+			if i := strings.Index(l, "cic4m1r8"); i >= 0 {
+				rec = append(rec, i)
+			}
+		}
+		if len(status) != 4 || len(rec) != 2 || rec[0] != rec[1] || status[0] != status[1] || status[1] != status[2] || status[2] != status[3] {
+			t.Errorf("%s: columns not aligned (status at %v, chain at %v):\n%s", tc.vary, status, rec, b.String())
+		}
+	}
+}
+
+// TestSweepGridDeterministicReal runs a small grid with the real planner:
+// the same files, byte for byte, whatever GOMAXPROCS and --jobs are.
+func TestSweepGridDeterministicReal(t *testing.T) {
+	dir := t.TempDir()
+	spec := filepath.Join(dir, "small.toml")
+	if err := os.WriteFile(spec, []byte(smallSpec), 0o644); err != nil {
+		t.Fatal(err)
+	}
+	var ref map[string][]byte
+	for _, c := range []struct{ procs, jobs string }{{"1", "1"}, {"3", "2"}} {
+		out := filepath.Join(dir, "out-"+c.procs+"-"+c.jobs)
+		r := runBinary(t, dir, []string{"GOMAXPROCS=" + c.procs}, "sweep", spec, "--vary", "rejection=60:40:20", "--vary", "decimation=4:8:4",
+			"--jobs", c.jobs, "--html", "--quiet", "--out", out)
+		if r.code != 0 {
+			t.Fatalf("GOMAXPROCS=%s --jobs %s: exit %d: %s", c.procs, c.jobs, r.code, r.stderr)
+		}
+		files := map[string][]byte{}
+		err := filepath.Walk(out, func(p string, fi os.FileInfo, err error) error {
+			if err != nil || fi.IsDir() {
+				return err
+			}
+			b, err := os.ReadFile(p)
+			rel, _ := filepath.Rel(out, p)
+			files[filepath.ToSlash(rel)] = b
+			return err
+		})
+		if err != nil {
+			t.Fatal(err)
+		}
+		if ref == nil {
+			ref = files
+			if files["values/r02-c02/report.json"] == nil || files["sweep.png"] == nil {
+				t.Fatalf("files: %d, no values/r02-c02/report.json or sweep.png", len(files))
+			}
+			continue
+		}
+		if len(files) != len(ref) {
+			t.Errorf("GOMAXPROCS=%s --jobs %s: %d files, want %d", c.procs, c.jobs, len(files), len(ref))
+		}
+		for n, b := range ref {
+			if !bytes.Equal(files[n], b) {
+				t.Errorf("GOMAXPROCS=%s --jobs %s: %s differs", c.procs, c.jobs, n)
+			}
+		}
 	}
 }

@@ -21,7 +21,7 @@ const (
 
 // NewFigureData collects the figure's points from a sweep's results.
 func NewFigureData(title string, v Vary, rs []Result) FigureData {
-	d := FigureData{Title: title, Name: v.Key.Name, Kind: sweepKind(v.Key.Dim)}
+	d := FigureData{Title: title, Name: v.Key.Name, Kind: sweepKind(v.Key.Dim), Unit: v.Key.Word}
 	for _, r := range rs {
 		p := FigurePoint{Value: r.Value}
 		if r.Status.HasChain() {
@@ -46,6 +46,8 @@ func sweepKind(d Dim) plots.SweepKind {
 		return plots.SweepLevel
 	case Bits:
 		return plots.SweepBits
+	case Count:
+		return plots.SweepCount
 	}
 	return plots.SweepFrequency
 }

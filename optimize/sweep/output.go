@@ -40,32 +40,37 @@ func CSV(v Vary, rs []Result) []byte {
 	_ = w.Write(CSVHeader)
 	changed := Changes(rs)
 	for i, r := range rs {
-		row := []string{strconv.Itoa(i + 1), v.Key.Name, num(r.Value), v.Key.Format(r.Value), string(r.Status)}
-		if r.Status.HasChain() {
-			rep := r.Report
-			c := rep.Front[rep.Recommended]
-			b := BestOf(rep)
-			mult, bestMult := "", ""
-			if b.Multipliers >= 0 {
-				bestMult = strconv.Itoa(b.Multipliers)
-			}
-			if c.MultipliersAtClock != nil {
-				mult = strconv.Itoa(*c.MultipliersAtClock)
-			}
-			row = append(row, c.Notation, strconv.FormatBool(changed[i]),
-				strconv.FormatBool(c.Designed), strconv.FormatBool(c.MeetsTargets),
-				num(c.MultipliesPerOutput), num(c.AddsPerOutput), strconv.Itoa(c.MemoryBits),
-				num(c.LatencyS), num(c.LatencySamples), mult, num(c.AliasRejectionDB), num(c.PassbandRippleDB),
-				strconv.Itoa(len(rep.Front)), num(b.Multiplies), strconv.Itoa(b.MemoryBits), num(b.LatencyS), bestMult)
-			row = append(row, wordCells(c)...)
-		} else {
-			row = append(row, make([]string, len(CSVHeader)-6)...)
-		}
-		row = append(row, r.Detail)
+		row := append([]string{strconv.Itoa(i + 1), v.Key.Name, num(r.Value), v.Key.Format(r.Value)}, resultCells(r, changed[i])...)
 		_ = w.Write(row)
 	}
 	w.Flush()
 	return buf.Bytes()
+}
+
+// resultCells are a row's cells from status to detail (CSVHeader[4:]).
+func resultCells(r Result, changed bool) []string {
+	row := []string{string(r.Status)}
+	if r.Status.HasChain() {
+		rep := r.Report
+		c := rep.Front[rep.Recommended]
+		b := BestOf(rep)
+		mult, bestMult := "", ""
+		if b.Multipliers >= 0 {
+			bestMult = strconv.Itoa(b.Multipliers)
+		}
+		if c.MultipliersAtClock != nil {
+			mult = strconv.Itoa(*c.MultipliersAtClock)
+		}
+		row = append(row, c.Notation, strconv.FormatBool(changed),
+			strconv.FormatBool(c.Designed), strconv.FormatBool(c.MeetsTargets),
+			num(c.MultipliesPerOutput), num(c.AddsPerOutput), strconv.Itoa(c.MemoryBits),
+			num(c.LatencyS), num(c.LatencySamples), mult, num(c.AliasRejectionDB), num(c.PassbandRippleDB),
+			strconv.Itoa(len(rep.Front)), num(b.Multiplies), strconv.Itoa(b.MemoryBits), num(b.LatencyS), bestMult)
+		row = append(row, wordCells(c)...)
+	} else {
+		row = append(row, make([]string, len(CSVHeader)-6)...)
+	}
+	return append(row, r.Detail)
 }
 
 // wordCells are the recommended chain's word-length figures: bit-true SNR
@@ -112,7 +117,9 @@ type (
 		Caution string      `json:"caution"`
 		Spec    report.Spec `json:"spec"` // the spec as given, before the sweep
 		Vary    DocVary     `json:"vary"`
-		Values  []DocValue  `json:"values"`
+		// Columns is a grid's second key (GridSchema); nil for one key.
+		Columns *DocVary   `json:"vary_columns,omitempty"`
+		Values  []DocValue `json:"values"`
 	}
 	// DocVary describes the swept key.
 	DocVary struct {
@@ -128,8 +135,14 @@ type (
 	// DocValue is one value: its front without the coefficient arrays (they
 	// are in the value's own report.json under Folder).
 	DocValue struct {
-		Value            float64        `json:"value"`
-		ValueText        string         `json:"value_text"`
+		Value     float64 `json:"value"`
+		ValueText string  `json:"value_text"`
+		// In a grid: the second key's value, and the cell's row and
+		// column, from 1 (omitted for one key).
+		ColumnValue      *float64       `json:"column_value,omitempty"`
+		ColumnValueText  string         `json:"column_value_text,omitempty"`
+		Row              int            `json:"row,omitempty"`
+		Column           int            `json:"column,omitempty"`
 		Status           string         `json:"status"`
 		Detail           string         `json:"detail,omitempty"`
 		Folder           string         `json:"folder,omitempty"`
@@ -153,34 +166,43 @@ type (
 func NewDoc(base *specfile.Spec, v Vary, rs []Result) *Doc {
 	d := &Doc{
 		Schema: Schema, Command: "sweep", Caution: report.Caution, Spec: report.NewSpec(base),
-		Vary: DocVary{Key: v.Key.Name, SpecKey: v.Key.Path, Unit: v.Key.Unit(), From: v.From, To: v.To,
-			Step: v.Step, Range: v.Text, Values: append([]float64{}, v.Values...)},
-		Values: []DocValue{},
+		Vary: docVary(v), Values: []DocValue{},
 	}
 	changed := Changes(rs)
 	for i, r := range rs {
-		dv := DocValue{Value: r.Value, ValueText: v.Key.Format(r.Value), Status: string(r.Status),
-			Detail: r.Detail, StructureChanged: changed[i], Front: []report.Chain{}, Recommended: -1}
-		if r.Status.HasChain() {
-			rep := r.Report
-			s := rep.Search
-			dv.Search = &s
-			dv.Folder = ValueDir(i)
-			dv.Recommended = rep.Recommended
-			dv.Reason = rep.Reason
-			for _, c := range rep.Front {
-				dv.Front = append(dv.Front, summary(c))
-			}
-			b := BestOf(rep)
-			dv.Best = &DocBest{MultipliesPerOutput: b.Multiplies, MemoryBits: b.MemoryBits, LatencyS: b.LatencyS}
-			if b.Multipliers >= 0 {
-				m := b.Multipliers
-				dv.Best.MultipliersAtClock = &m
-			}
-		}
-		d.Values = append(d.Values, dv)
+		d.Values = append(d.Values, docValue(v.Key, r, changed[i], ValueDir(i)))
 	}
 	return d
+}
+
+func docVary(v Vary) DocVary {
+	return DocVary{Key: v.Key.Name, SpecKey: v.Key.Path, Unit: v.Key.Unit(), From: v.From, To: v.To,
+		Step: v.Step, Range: v.Text, Values: append([]float64{}, v.Values...)}
+}
+
+// docValue is one value's entry; folder is where its files go when it
+// has a chain.
+func docValue(k Key, r Result, changed bool, folder string) DocValue {
+	dv := DocValue{Value: r.Value, ValueText: k.Format(r.Value), Status: string(r.Status),
+		Detail: r.Detail, StructureChanged: changed, Front: []report.Chain{}, Recommended: -1}
+	if r.Status.HasChain() {
+		rep := r.Report
+		s := rep.Search
+		dv.Search = &s
+		dv.Folder = folder
+		dv.Recommended = rep.Recommended
+		dv.Reason = rep.Reason
+		for _, c := range rep.Front {
+			dv.Front = append(dv.Front, summary(c))
+		}
+		b := BestOf(rep)
+		dv.Best = &DocBest{MultipliesPerOutput: b.Multiplies, MemoryBits: b.MemoryBits, LatencyS: b.LatencyS}
+		if b.Multipliers >= 0 {
+			m := b.Multipliers
+			dv.Best.MultipliersAtClock = &m
+		}
+	}
+	return dv
 }
 
 // summary is a chain without its coefficient arrays.
@@ -235,19 +257,29 @@ func Files(source string, base *specfile.Spec, v Vary, rs []Result) ([]report.Fi
 		if !r.Status.HasChain() {
 			continue
 		}
-		dir := ValueDir(i) + "/"
-		b, err := r.Report.Marshal()
+		vf, err := valueFiles(ValueDir(i), r)
 		if err != nil {
 			return nil, nil, fmt.Errorf("%s = %s: %v", v.Key.Name, v.Key.Format(r.Value), err)
 		}
-		files = append(files, report.File{Name: dir + "report.json", Data: b})
-		cf, err := report.CoefficientFiles(r.Report.Front[r.Report.Recommended], r.Report.Spec.Words.CoefficientsMode != "float")
-		if err != nil {
-			return nil, nil, fmt.Errorf("%s = %s: %v", v.Key.Name, v.Key.Format(r.Value), err)
-		}
-		for _, f := range cf {
-			files = append(files, report.File{Name: dir + f.Name, Data: f.Data})
-		}
+		files = append(files, vf...)
 	}
 	return files, doc, nil
+}
+
+// valueFiles are the files of one value with a chain, in its folder dir:
+// its report.json and the recommended chain's coefficient files.
+func valueFiles(dir string, r Result) ([]report.File, error) {
+	b, err := r.Report.Marshal()
+	if err != nil {
+		return nil, err
+	}
+	files := []report.File{{Name: dir + "/report.json", Data: b}}
+	cf, err := report.CoefficientFiles(r.Report.Front[r.Report.Recommended], r.Report.Spec.Words.CoefficientsMode != "float")
+	if err != nil {
+		return nil, err
+	}
+	for _, f := range cf {
+		files = append(files, report.File{Name: dir + "/" + f.Name, Data: f.Data})
+	}
+	return files, nil
 }

@@ -63,9 +63,12 @@ const (
 // HasChain reports whether the status comes with a recommended chain.
 func (s Status) HasChain() bool { return s == OK || s == Partial }
 
-// Result is one value of a sweep.
+// Result is one value of a sweep, or one cell of a grid.
 type Result struct {
+	// Value is the swept key's value (in a grid, the first key's: the
+	// row's); Column is the second key's value in a grid, zero otherwise.
 	Value  float64
+	Column float64
 	Status Status
 	// Detail explains a status other than ok, in one line.
 	Detail string
@@ -79,6 +82,9 @@ type Study struct {
 	Name string // the spec's name in messages: its path or "built-in example"
 	Spec []byte // the spec text
 	Vary Vary
+	// Columns, when not nil, makes the study a grid (see Grid): every
+	// value of Vary (the rows) with every value of Columns, row by row.
+	Columns *Vary
 	// Settings returns the search settings for one value's spec; nil means
 	// the spec's own SearchSettings.
 	Settings func(*specfile.Spec) optimize.Settings
@@ -93,10 +99,27 @@ type Study struct {
 	Done func(done, total int)
 }
 
+// cells returns the settings of each run, in the order of the results.
+func (st Study) cells() [][]Setting {
+	var out [][]Setting
+	for _, v := range st.Vary.Values {
+		if st.Columns == nil {
+			out = append(out, []Setting{{st.Vary.Key, v}})
+			continue
+		}
+		for _, w := range st.Columns.Values {
+			out = append(out, []Setting{{st.Vary.Key, v}, {st.Columns.Key, w}})
+		}
+	}
+	return out
+}
+
 // Run runs the study, values in parallel, and returns one Result per value
-// in the order of the values.
+// in the order of the values; for a grid, one per cell, row by row (the
+// first key's value outer, the second's inner).
 func Run(ctx context.Context, st Study) []Result {
-	n := len(st.Vary.Values)
+	cells := st.cells()
+	n := len(cells)
 	workers := st.Workers
 	if workers < 1 {
 		workers = runtime.GOMAXPROCS(0)
@@ -114,7 +137,7 @@ func Run(ctx context.Context, st Study) []Result {
 	var mu sync.Mutex
 	done := 0
 	return Map(ctx, n, workers, func(ctx context.Context, i int) Result {
-		r := runOne(ctx, st, plan, perPlan, st.Vary.Values[i])
+		r := runOne(ctx, st, plan, perPlan, cells[i])
 		if st.Done != nil {
 			mu.Lock()
 			done++
@@ -125,9 +148,12 @@ func Run(ctx context.Context, st Study) []Result {
 	})
 }
 
-func runOne(ctx context.Context, st Study, plan func(context.Context, chain.Spec, optimize.Settings) (*optimize.Result, error), jobs int, v float64) Result {
-	r := Result{Value: v}
-	spec, err := SpecAt(st.Name, st.Spec, st.Vary.Key, v)
+func runOne(ctx context.Context, st Study, plan func(context.Context, chain.Spec, optimize.Settings) (*optimize.Result, error), jobs int, sets []Setting) Result {
+	r := Result{Value: sets[0].Value}
+	if len(sets) > 1 {
+		r.Column = sets[1].Value
+	}
+	spec, err := SpecWith(st.Name, st.Spec, sets...)
 	if err != nil {
 		r.Status, r.Detail = Invalid, specRule(err)
 		return r

@@ -98,6 +98,9 @@ func Sweep(p SweepPage) ([]byte, error) {
 	if d == nil {
 		return nil, errors.New("htmlreport: no sweep document")
 	}
+	if d.Columns != nil {
+		return gridPage(p)
+	}
 	v := sweepView{
 		Title:   "stepdown sweep of " + d.Vary.Key + ": " + p.Source,
 		Source:  p.Source,
@@ -117,42 +120,120 @@ func Sweep(p SweepPage) ([]byte, error) {
 	}
 	var partial, estimated, misses bool
 	for i, dv := range d.Values {
-		sv := sweepValueView{Index: i + 1, Anchor: fmt.Sprintf("value-%02d", i+1), Text: dv.ValueText,
-			Status: dv.Status, Detail: dv.Detail, Changed: dv.StructureChanged, Folder: dv.Folder}
-		if dv.Recommended >= 0 && dv.Recommended < len(dv.Front) {
+		sv := valueView(dv, i, fmt.Sprintf("value-%02d", i+1), p.Files, v.Clock)
+		if sv.HasChain {
 			c := dv.Front[dv.Recommended]
-			sv.HasChain = true
-			sv.Notation = c.Notation
-			sv.Reason = dv.Reason
-			sv.Front = frontRows(dv.Front, dv.Recommended, v.Clock)
-			sv.Rec = sv.Front[dv.Recommended]
-			sv.Stages = stageViews(c, p.Files, dv.Folder+"/", v.Clock)
-			if dv.Best != nil {
-				sv.BestMult = trimFloat(dv.Best.MultipliesPerOutput, 2)
-				sv.BestMem = strconv.Itoa(dv.Best.MemoryBits)
-				sv.BestLat = seconds(dv.Best.LatencyS)
-			}
-			sv.Report = dv.Folder + "/report.json"
 			partial = partial || dv.Status == string(sweep.Partial)
 			estimated = estimated || !c.Designed
 			misses = misses || !c.MeetsTargets
 		}
 		v.Values = append(v.Values, sv)
 	}
-	v.Cautions = []string{capitalise(d.Caution) + "."}
+	v.Cautions = sweepCautions(d, partial, estimated, misses)
+	return execute("sweep", v)
+}
+
+// valueView is one value (or grid cell) of a sweep page.
+func valueView(dv sweep.DocValue, i int, anchor string, files []string, clock bool) sweepValueView {
+	sv := sweepValueView{Index: i + 1, Anchor: anchor, Text: dv.ValueText,
+		Status: dv.Status, Detail: dv.Detail, Changed: dv.StructureChanged, Folder: dv.Folder}
+	if dv.Recommended >= 0 && dv.Recommended < len(dv.Front) {
+		c := dv.Front[dv.Recommended]
+		sv.HasChain = true
+		sv.Notation = c.Notation
+		sv.Reason = dv.Reason
+		sv.Front = frontRows(dv.Front, dv.Recommended, clock)
+		sv.Rec = sv.Front[dv.Recommended]
+		sv.Stages = stageViews(c, files, dv.Folder+"/", clock)
+		if dv.Best != nil {
+			sv.BestMult = trimFloat(dv.Best.MultipliesPerOutput, 2)
+			sv.BestMem = strconv.Itoa(dv.Best.MemoryBits)
+			sv.BestLat = seconds(dv.Best.LatencyS)
+		}
+		sv.Report = dv.Folder + "/report.json"
+	}
+	return sv
+}
+
+func sweepCautions(d *sweep.Doc, partial, estimated, misses bool) []string {
+	cs := []string{capitalise(d.Caution) + "."}
 	if partial {
-		v.Cautions = append(v.Cautions, "Some values were stopped by the time limit: their fronts are the best found so far, not the whole search.")
+		cs = append(cs, "Some values were stopped by the time limit: their fronts are the best found so far, not the whole search.")
 	}
 	if estimated {
-		v.Cautions = append(v.Cautions, "Some recommended chains carry estimated figures (order estimates, not a real design).")
+		cs = append(cs, "Some recommended chains carry estimated figures (order estimates, not a real design).")
 	}
 	if misses {
-		v.Cautions = append(v.Cautions, "Some recommended chains miss the rejection target or the ripple budget; see their rows.")
+		cs = append(cs, "Some recommended chains miss the rejection target or the ripple budget; see their rows.")
 	}
-	v.Cautions = append(v.Cautions,
+	what := "Values"
+	if d.Columns != nil {
+		what = "Cells"
+	}
+	return append(cs,
 		"The least figures on a front are taken one axis at a time: they may come from different chains, and no single chain need reach all three.",
-		"Values whose status is not ok were not planned; the detail column says why.")
-	return execute("sweep", v)
+		what+" whose status is not ok were not planned; the detail column says why.")
+}
+
+// gridPage is report.html for a two-key sweep: the heat map, the grid of
+// the recommended chains' multiplies per output (each cell linking to its
+// section), the table of every cell, and a section per cell with a chain.
+func gridPage(p SweepPage) ([]byte, error) {
+	d := p.Doc
+	cols := d.Columns
+	v := gridView{
+		Title:      "stepdown sweep of " + d.Vary.Key + " by " + cols.Key + ": " + p.Source,
+		Source:     p.Source,
+		Caution:    d.Caution,
+		Spec:       specRows(d.Spec),
+		Key:        d.Vary.Key,
+		SpecKey:    d.Vary.SpecKey,
+		Range:      d.Vary.Range,
+		ColKey:     cols.Key,
+		ColSpecKey: cols.SpecKey,
+		ColRange:   cols.Range,
+		Count:      len(d.Values),
+		Clock:      d.Spec.Hardware.ClockHz != nil || d.Vary.SpecKey == "hardware.clock" || cols.SpecKey == "hardware.clock",
+		Files:      topFiles(p.Files),
+	}
+	var err error
+	if v.FigureSVG, err = inlineSVG(p.Figure); err != nil {
+		return nil, fmt.Errorf("htmlreport: sweep figure: %v", err)
+	}
+	var partial, estimated, misses bool
+	for i, dv := range d.Values {
+		if dv.Row < 1 || dv.Column < 1 || dv.Column > len(cols.Values) {
+			return nil, fmt.Errorf("htmlreport: grid cell %d: row %d, column %d outside the grid", i+1, dv.Row, dv.Column)
+		}
+		sv := valueView(dv, i, fmt.Sprintf("cell-r%02d-c%02d", dv.Row, dv.Column), p.Files, v.Clock)
+		sv.ColText = dv.ColumnValueText
+		if sv.HasChain {
+			c := dv.Front[dv.Recommended]
+			partial = partial || dv.Status == string(sweep.Partial)
+			estimated = estimated || !c.Designed
+			misses = misses || !c.MeetsTargets
+		}
+		v.Values = append(v.Values, sv)
+		for len(v.Rows) < dv.Row {
+			v.Rows = append(v.Rows, gridRowView{})
+		}
+		row := &v.Rows[dv.Row-1]
+		row.Text = dv.ValueText
+		cell := gridCellView{Anchor: sv.Anchor, HasChain: sv.HasChain, Text: sweep.Status(dv.Status).Mark(), Title: dv.Detail}
+		if sv.HasChain {
+			cell.Text = trimFloat(dv.Front[dv.Recommended].MultipliesPerOutput, 1)
+			if dv.Status == string(sweep.Partial) {
+				cell.Text += "*"
+			}
+			cell.Title = sv.Notation
+		}
+		row.Cells = append(row.Cells, cell)
+		if dv.Row == 1 {
+			v.Head = append(v.Head, dv.ColumnValueText)
+		}
+	}
+	v.Cautions = sweepCautions(d, partial, estimated, misses)
+	return execute("grid", v)
 }
 
 // inlineSVG returns SVG text ready to sit inside HTML: the XML prolog and
@@ -223,6 +304,7 @@ type planView struct {
 type sweepValueView struct {
 	Index                            int
 	Anchor, Text, Status, Detail     string
+	ColText                          string // a grid cell's second value
 	Changed, HasChain                bool
 	Notation, Reason, Folder, Report string
 	Rec                              frontRow
@@ -241,6 +323,31 @@ type sweepView struct {
 	Values                 []sweepValueView
 	Files                  []string
 	Cautions               []string
+}
+
+type gridCellView struct {
+	Anchor, Text, Title string
+	HasChain            bool
+}
+
+type gridRowView struct {
+	Text  string
+	Cells []gridCellView
+}
+
+type gridView struct {
+	Title, Source, Caution       string
+	Spec                         []kv
+	Key, SpecKey, Range          string
+	ColKey, ColSpecKey, ColRange string
+	Count                        int
+	Clock                        bool
+	FigureSVG                    template.HTML
+	Head                         []string // the columns' values
+	Rows                         []gridRowView
+	Values                       []sweepValueView
+	Files                        []string
+	Cautions                     []string
 }
 
 func specRows(s report.Spec) []kv {

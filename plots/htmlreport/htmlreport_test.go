@@ -334,3 +334,65 @@ func TestCheckPageComparison(t *testing.T) {
 		}
 	}
 }
+
+// A grid's page: the heat map, the grid of figures linking to each cell's
+// section, every cell in the table, no section for a cell without a chain.
+func TestGridPage(t *testing.T) {
+	r := sampleReport(t)
+	s, _ := specfile.Example()
+	rows, err := sweep.ParseVary("rejection=75:85:10")
+	if err != nil {
+		t.Fatal(err)
+	}
+	cols, err := sweep.ParseVary("passband=480:720:240 kHz")
+	if err != nil {
+		t.Fatal(err)
+	}
+	g, err := sweep.NewGrid(rows, cols)
+	if err != nil {
+		t.Fatal(err)
+	}
+	bad := "protected = \"640 kHz\": must lie in [passband = 720000 Hz, output_rate/2 = 960000 Hz]"
+	rs := []sweep.Result{
+		{Value: 75, Column: 480e3, Status: sweep.OK, Report: r},
+		{Value: 75, Column: 720e3, Status: sweep.Invalid, Detail: bad},
+		{Value: 85, Column: 480e3, Status: sweep.Partial, Detail: "stopped by the time limit", Report: r},
+		{Value: 85, Column: 720e3, Status: sweep.Invalid, Detail: bad},
+	}
+	doc := sweep.NewGridDoc(s, g, rs)
+	var fig bytes.Buffer
+	if err := sweep.RenderHeatmap(&fig, sweep.NewHeatmapData("", g, rs), "svg"); err != nil {
+		t.Fatal(err)
+	}
+	files := []string{"report.json", "sweep.csv", "sweep.svg", "sweep.png", "values/r01-c01/report.json",
+		"values/r01-c01/coefficients/stage3_fir.csv", "values/r02-c01/report.json", "report.html"}
+	b, err := Sweep(SweepPage{Source: "built-in example", Doc: doc, Figure: fig.Bytes(), Files: files})
+	if err != nil {
+		t.Fatal(err)
+	}
+	page := string(b)
+	checkSelfContained(t, page)
+	for _, want := range []string{"Trade study: rejection by passband",
+		"--vary rejection=75:85:10 --vary passband=480:720:240 kHz · 4 cells",
+		`<th>rejection \ passband</th><th class="n">480 kHz</th><th class="n">720 kHz</th>`,
+		`<a href="#cell-r01-c01">46</a>`, `<a href="#cell-r02-c01">46*</a>`, `<span class="tag">invalid</span>`,
+		`id="cell-r01-c01"`, `id="cell-r02-c01"`, "rejection = 85 dB, passband = 480 kHz",
+		`href="values/r01-c01/coefficients/stage3_fir.csv"`, "Cells whose status is not ok"} {
+		if !strings.Contains(page, want) {
+			t.Errorf("grid page lacks %q", want)
+		}
+	}
+	if strings.Contains(page, `id="cell-r01-c02"`) {
+		t.Error("an invalid cell has a section")
+	}
+	if strings.Count(page, "<svg") != 1 {
+		t.Error("want one inline figure")
+	}
+	doc.Values[3].Column = 7
+	if _, err := Sweep(SweepPage{Source: "x", Doc: doc}); err == nil {
+		t.Error("no error for a cell outside the grid")
+	}
+	if *sampleDir != "" {
+		_ = os.WriteFile(filepath.Join(*sampleDir, "grid-report.html"), b, 0o644)
+	}
+}

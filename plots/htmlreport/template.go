@@ -212,6 +212,63 @@ const templates = `
 {{template "files" .Files}}
 </section>
 {{template "foot" .}}{{end}}
+
+{{define "grid"}}{{template "head" .}}<header>
+<h1>Trade study: {{.Key}} by {{.ColKey}}</h1>
+<p class="sub">Spec: <code>{{.Source}}</code> · command: stepdown sweep --vary {{.Key}}={{.Range}} --vary {{.ColKey}}={{.ColRange}} · {{.Count}} cells</p>
+</header>
+<p class="caution"><strong>Caution:</strong> {{.Caution}}.</p>
+<nav><ol>
+<li><a href="#spec">Spec</a></li>
+<li><a href="#summary">Summary</a></li>
+<li><a href="#cells">Every cell</a></li>
+<li><a href="#cautions">Cautions</a></li>
+<li><a href="#files">Files</a></li>
+</ol></nav>
+
+<section id="spec"><h2>Spec</h2>
+<p>The spec as given; the sweep sets <code>{{.SpecKey}}</code> and <code>{{.ColSpecKey}}</code> to each pair of values in turn and plans it afresh.</p>
+{{template "spec" .Spec}}
+</section>
+
+<section id="summary"><h2>Summary</h2>
+{{if .FigureSVG}}<figure>{{.FigureSVG}}<figcaption>The recommended chain's multiplies per output over {{.Key}} and {{.ColKey}}; heavy lines separate cells whose recommended structure differs, grey cells have no chain.</figcaption></figure>{{end}}
+<p>Multiplies per output of each cell's recommended chain (rows {{.Key}}, columns {{.ColKey}}); a cell links to its chain.</p>
+<div class="scroll"><table class="grid">
+<thead><tr><th>{{.Key}} \ {{.ColKey}}</th>{{range .Head}}<th class="n">{{.}}</th>{{end}}</tr></thead>
+<tbody>
+{{range .Rows}}<tr><th class="n">{{.Text}}</th>{{range .Cells}}{{if .HasChain}}<td class="n" title="{{.Title}}"><a href="#{{.Anchor}}">{{.Text}}</a></td>{{else}}<td class="n" title="{{.Title}}"><span class="tag">{{.Text}}</span></td>{{end}}{{end}}</tr>
+{{end}}</tbody></table></div>
+</section>
+
+<section id="cells"><h2>Every cell</h2>
+<div class="scroll"><table>
+<thead><tr><th class="n" rowspan="2">#</th><th class="n" rowspan="2">{{.Key}}</th><th class="n" rowspan="2">{{.ColKey}}</th><th colspan="{{if .Clock}}6{{else}}5{{end}}">recommended chain</th><th colspan="3">least on the front</th></tr>
+<tr><th>chain</th><th class="n">mult/out</th><th class="n">memory bits</th>{{if .Clock}}<th class="n">multi&shy;pliers</th>{{end}}<th class="n">latency</th><th class="n">rejection dB</th><th class="n">mult/out</th><th class="n">memory bits</th><th class="n">latency</th></tr></thead>
+<tbody>
+{{range .Values}}<tr class="{{if .Changed}}mark{{end}}{{if not .HasChain}} bad{{end}}"><td class="n">{{.Index}}</td><td class="n">{{.Text}}</td><td class="n">{{.ColText}}</td>{{if .HasChain}}<td class="chain"><a href="#{{.Anchor}}">{{.Notation}}</a>{{if .Changed}} <span class="tag">new structure</span>{{end}}{{if ne .Status "ok"}} <span class="tag">{{.Status}}</span>{{end}}</td><td class="n">{{.Rec.Mult}}</td><td class="n">{{.Rec.MemBits}}</td>{{if $.Clock}}<td class="n">{{.Rec.Multipliers}}</td>{{end}}<td class="n">{{.Rec.Latency}}</td><td class="n">{{.Rec.Rejection}}</td><td class="n">{{.BestMult}}</td><td class="n">{{.BestMem}}</td><td class="n">{{.BestLat}}</td>{{else}}<td colspan="{{if $.Clock}}9{{else}}8{{end}}"><strong>{{.Status}}:</strong> {{.Detail}}</td>{{end}}</tr>
+{{end}}</tbody></table></div>
+<p>Highlighted rows are where the recommended chain's structure changes from that of the cell before it in the same row ({{.Key}} fixed). The least figures are taken one at a time over each cell's front.</p>
+</section>
+
+{{range .Values}}{{if .HasChain}}<section class="value" id="{{.Anchor}}"><h2>{{$.Key}} = {{.Text}}, {{$.ColKey}} = {{.ColText}}</h2>
+{{if .Detail}}<p class="caution">{{.Detail}}</p>{{end}}
+<div class="rec"><p class="chain">{{.Notation}}</p><p>{{.Reason}}</p></div>
+{{template "front" (frontArgs .Front $.Clock)}}
+{{template "stages" .Stages}}
+<p class="files">This cell's files: <a class="file" href="{{.Report}}">{{.Report}}</a></p>
+</section>
+{{end}}{{end}}
+
+<section id="cautions"><h2>Cautions</h2>
+{{template "cautions" .Cautions}}
+</section>
+
+<section id="files"><h2>Files</h2>
+<p>Beside this page in the output folder; each cell's report.json and coefficient files are under <code>values/</code> (<code>values/rNN-cNN/</code>, row and column from 01).</p>
+{{template "files" .Files}}
+</section>
+{{template "foot" .}}{{end}}
 `
 
 type frontArgsT struct {
