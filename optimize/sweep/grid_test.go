@@ -81,6 +81,8 @@ func TestDefaultsFollow(t *testing.T) {
 		{"decimation 24, defaults", defaultsSpec, []Setting{{key("decimation"), 24}}, 4e6, 1e6, 3e6, ""},
 		{"protected, stopband default", defaultsSpec, []Setting{{key("protected"), 1.2e6}}, 3e6, 1.2e6, 1.8e6, ""},
 		{"stopband", defaultsSpec, []Setting{{key("stopband"), 1.5e6}}, 3e6, 1e6, 1.5e6, ""},
+		{"decimation, input_rate a TOML integer", strings.Replace(defaultsSpec, `"96 MHz"`, "96000000", 1), []Setting{{key("decimation"), 16}}, 6e6, 1e6, 5e6, ""},
+		{"decimation, input_rate a TOML float", strings.Replace(defaultsSpec, `"96 MHz"`, "96e6", 1), []Setting{{key("decimation"), 24}}, 4e6, 1e6, 3e6, ""},
 		{"input_rate then decimation", defaultsSpec, []Setting{{key("decimation"), 32}, {key("input_rate"), 192e6}}, 6e6, 1e6, 5e6, ""},
 		{"passband below a set protected", withProtected, []Setting{{key("passband"), 0.9e6}}, 3e6, 1.1e6, 1.9e6, ""},
 		{"passband above a set protected", withProtected, []Setting{{key("passband"), 1.2e6}}, 0, 0, 0, "protected"},
