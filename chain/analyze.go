@@ -6,6 +6,8 @@ import (
 	"fmt"
 	"math"
 	"sort"
+
+	"github.com/stepdown-dsp/stepdown/chain/remez"
 )
 
 // Analysis is the truth of a designed cascade (docs/design.md §7).
@@ -167,33 +169,12 @@ func refine(f func(float64) float64, x, h, lo, hi, sign float64) (float64, float
 	return x, v
 }
 
-// golden maximises sign*f on [a, b] by golden-section search and returns the
-// best point seen (ends included) and f there.
+// golden maximises sign*f on [a, b] by golden-section search
+// (remez.GoldenMax) and returns the best point seen (ends included) and f
+// there.
 func golden(f func(float64) float64, a, b float64, sign float64) (float64, float64) {
-	const r = 0.6180339887498949
-	bx, bv := a, f(a)
-	if v := f(b); sign*v > sign*bv {
-		bx, bv = b, v
-	}
-	x1, x2 := b-r*(b-a), a+r*(b-a)
-	f1, f2 := f(x1), f(x2)
-	for it := 0; it < 60 && b-a > 1e-12*math.Max(1, math.Abs(a)); it++ {
-		if sign*f1 > sign*f2 {
-			b, x2, f2 = x2, x1, f1
-			x1 = b - r*(b-a)
-			f1 = f(x1)
-		} else {
-			a, x1, f1 = x1, x2, f2
-			x2 = a + r*(b-a)
-			f2 = f(x2)
-		}
-	}
-	for _, p := range [...]struct{ x, v float64 }{{x1, f1}, {x2, f2}} {
-		if sign*p.v > sign*bv {
-			bx, bv = p.x, p.v
-		}
-	}
-	return bx, bv
+	x, v := remez.GoldenMax(func(x float64) float64 { return sign * f(x) }, a, b, 60, 1e-12*math.Max(1, math.Abs(a)))
+	return x, sign * v
 }
 
 // candidateWindow is how far below the best grid value (dB) a grid

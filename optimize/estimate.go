@@ -516,21 +516,8 @@ func bandMax(g func(float64) float64, lo, hi float64) float64 {
 	}
 	a := math.Max(lo, lo+float64(bi-1)*h)
 	b := math.Min(hi, lo+float64(bi+1)*h)
-	const phi = 0.6180339887498949
-	c, d := b-phi*(b-a), a+phi*(b-a)
-	gc, gd := g(c), g(d)
-	for i := 0; i < 40; i++ {
-		if gc > gd {
-			b, d, gd = d, c, gc
-			c = b - phi*(b-a)
-			gc = g(c)
-		} else {
-			a, c, gc = c, d, gd
-			d = a + phi*(b-a)
-			gd = g(d)
-		}
-	}
-	return math.Max(best, math.Max(gc, gd))
+	_, v := remez.GoldenMax(g, a, b, 40, 0)
+	return math.Max(best, v)
 }
 
 // cicStage returns chain.NewCICStage for a first-stage CIC of factor r,

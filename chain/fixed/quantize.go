@@ -245,27 +245,11 @@ func bandGrid(b *remez.Band, n int, rate float64, density int) []float64 {
 	return fs
 }
 
-// goldenMax returns the largest value of g found by golden-section search on [lo, hi].
+// goldenMax returns the largest value of g found by golden-section search
+// on [lo, hi] (remez.GoldenMax).
 func goldenMax(g func(float64) float64, lo, hi float64) float64 {
-	const r = 0.6180339887498949
-	a, b := lo, hi
-	x1, x2 := b-r*(b-a), a+r*(b-a)
-	g1, g2 := g(x1), g(x2)
-	best := math.Max(math.Max(g(lo), g(hi)), math.Max(g1, g2))
-	for it := 0; it < 40 && b-a > 1e-12*(hi-lo+1); it++ {
-		if g1 > g2 {
-			b, x2, g2 = x2, x1, g1
-			x1 = b - r*(b-a)
-			g1 = g(x1)
-			best = math.Max(best, g1)
-		} else {
-			a, x1, g1 = x1, x2, g2
-			x2 = a + r*(b-a)
-			g2 = g(x2)
-			best = math.Max(best, g2)
-		}
-	}
-	return best
+	_, v := remez.GoldenMax(g, lo, hi, 40, 1e-12*(hi-lo+1))
+	return v
 }
 
 // Meets reports whether every band's deviation is at most its MaxError.

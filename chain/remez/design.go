@@ -463,60 +463,16 @@ func refineMax(fn func(float64) float64, a, b, c, fa, fb, fc float64) float64 {
 	return b
 }
 
-// goldenMaxN is goldenMax with at most iters steps.
+// goldenMaxN is an abscissa of the maximum of fn on [a, b] after at most
+// iters golden-section steps (GoldenMax).
 func goldenMaxN(fn func(float64) float64, a, b float64, iters int) float64 {
-	const g = 0.6180339887498949
-	c, d := b-g*(b-a), a+g*(b-a)
-	fc, fd := fn(c), fn(d)
-	a0, b0 := a, b
-	fa, fb := fn(a), fn(b)
-	for range iters {
-		if fc >= fd {
-			b, d, fd = d, c, fc
-			c = b - g*(b-a)
-			fc = fn(c)
-		} else {
-			a, c, fc = c, d, fd
-			d = a + g*(b-a)
-			fd = fn(d)
-		}
-	}
-	// The maximum may sit on an end (a band edge).
-	best, fbest := c, fc
-	if fd > fbest {
-		best, fbest = d, fd
-	}
-	if fa > fbest {
-		best, fbest = a0, fa
-	}
-	if fb > fbest {
-		best = b0
-	}
-	return best
+	x, _ := GoldenMax(fn, a, b, iters, 0)
+	return x
 }
 
-// goldenMax returns an abscissa of the maximum of fn on [a, b], assumed
-// unimodal there, by golden-section search.
+// goldenMax is an abscissa of the maximum of fn on [a, b], assumed
+// unimodal there (GoldenMax to a bracket of 1e-15).
 func goldenMax(fn func(float64) float64, a, b float64) float64 {
-	const g = 0.6180339887498949
-	c, d := b-g*(b-a), a+g*(b-a)
-	fc, fd := fn(c), fn(d)
-	for range 60 {
-		if fc >= fd {
-			b, d, fd = d, c, fc
-			c = b - g*(b-a)
-			fc = fn(c)
-		} else {
-			a, c, fc = c, d, fd
-			d = a + g*(b-a)
-			fd = fn(d)
-		}
-		if b-a <= 1e-15 {
-			break
-		}
-	}
-	if fc >= fd {
-		return c
-	}
-	return d
+	x, _ := GoldenMax(fn, a, b, 60, 1e-15)
+	return x
 }
