@@ -147,7 +147,7 @@ type Result struct {
 	Feasible    []Candidate
 	FeasibleAll int            // how many were feasible before thinning
 	Designed    int            // how many were designed for real
-	Dropped     map[string]int // reason -> count
+	Dropped     map[Reason]int // how many candidates each reason dropped
 	Front       []Candidate    // the final non-dominated set, all designed, sorted by multiplies
 	Recommended int            // index into Front; -1 when Front is empty
 	Reason      string         // one or two sentences on why

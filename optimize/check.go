@@ -16,7 +16,7 @@ import (
 // it would be dropped, so that a caller can still show it. The error is
 // chain.Design's for a plan that cannot be designed (a *chain.PlanError for
 // one the spec's bands rule out), or ctx's.
-func Check(ctx context.Context, spec chain.Spec, plan []chain.StagePlan, s Settings) (Candidate, string, error) {
+func Check(ctx context.Context, spec chain.Spec, plan []chain.StagePlan, s Settings) (Candidate, Reason, error) {
 	ns, err := spec.Normalize()
 	if err != nil {
 		return Candidate{}, "", err

@@ -1,40 +1,103 @@
 package optimize
 
 import (
+	"fmt"
 	"math"
+	"slices"
+	"strings"
 
 	"github.com/stepdown-dsp/stepdown/chain"
 	"github.com/stepdown-dsp/stepdown/chain/fixed"
 	"github.com/stepdown-dsp/stepdown/chain/remez"
 )
 
-// Reasons a candidate is dropped. The strings are keys of Result.Dropped.
+// Reason is why a candidate was dropped. Its value is a stable name, the
+// key report.json writes under search.dropped (lower case, words joined by
+// underscores; it does not change when the wording does); Text says it in
+// words.
+type Reason string
+
+// Reasons a candidate is dropped: the keys of Result.Dropped.
 const (
-	ReasonCICRejection   = "cic rejection below target"
-	ReasonCICDroop       = "cic droop not compensated"
-	ReasonHalfBandEdges  = "halfband edges do not fit"
-	ReasonShortFIR       = "fir stage under 3 taps"
-	ReasonDesignFailed   = "design failed"
-	ReasonEvaluateFailed = "evaluation failed"
-	ReasonMissRejection  = "designed chain misses rejection"
-	ReasonMissRipple     = "designed chain misses ripple"
-	ReasonCICNull        = "cic null in passband"
-	ReasonGaveUp         = "a stage failed to design in other chains"
-	ReasonCICBeaten      = "cic beaten by another order or delay"
-	ReasonLongFIR        = "fir stage over the tap limit"
+	ReasonCICRejection   Reason = "cic_rejection_below_target"
+	ReasonCICDroop       Reason = "cic_droop_not_compensated"
+	ReasonHalfBandEdges  Reason = "halfband_edges_do_not_fit"
+	ReasonShortFIR       Reason = "fir_under_3_taps"
+	ReasonDesignFailed   Reason = "design_failed"
+	ReasonEvaluateFailed Reason = "evaluation_failed"
+	ReasonMissRejection  Reason = "misses_rejection"
+	ReasonMissRipple     Reason = "misses_ripple"
+	ReasonCICNull        Reason = "cic_null_in_passband"
+	ReasonGaveUp         Reason = "stage_failed_in_other_chains"
+	ReasonCICBeaten      Reason = "cic_beaten_by_another_order_or_delay"
+	ReasonLongFIR        Reason = "fir_over_tap_limit"
 	// ReasonRoundingFloor: with a fixed coefficient width, a FIR or
 	// half-band stage whose rounding error alone, predicted from its
 	// estimated length and the width, lies well above its stopband limit
 	// (see the package doc, "Coefficient width").
-	ReasonRoundingFloor = "rounding floor above the stopband at the coefficient width"
+	ReasonRoundingFloor Reason = "rounding_floor_above_stopband"
 	// ReasonMissQuantised: a designed chain that meets the spec in floating
 	// point but not with its taps rounded to the coefficient width, even
 	// after the re-designs that give its stages the margin rounding needs.
-	ReasonMissQuantised = "misses the targets with its taps rounded to the coefficient width"
+	ReasonMissQuantised Reason = "misses_with_rounded_taps"
 	// ReasonWordLengths: fixed.PlanChain could not plan the chain's word
 	// lengths, so its rounded taps could not be measured.
-	ReasonWordLengths = "word lengths could not be planned"
+	ReasonWordLengths Reason = "word_lengths_not_planned"
 )
+
+// reasonText is each Reason in words.
+var reasonText = map[Reason]string{
+	ReasonCICRejection:   "cic rejection below target",
+	ReasonCICDroop:       "cic droop not compensated",
+	ReasonHalfBandEdges:  "halfband edges do not fit",
+	ReasonShortFIR:       "fir stage under 3 taps",
+	ReasonDesignFailed:   "design failed",
+	ReasonEvaluateFailed: "evaluation failed",
+	ReasonMissRejection:  "designed chain misses rejection",
+	ReasonMissRipple:     "designed chain misses ripple",
+	ReasonCICNull:        "cic null in passband",
+	ReasonGaveUp:         "a stage failed to design in other chains",
+	ReasonCICBeaten:      "cic beaten by another order or delay",
+	ReasonLongFIR:        "fir stage over the tap limit",
+	ReasonRoundingFloor:  "rounding floor above the stopband at the coefficient width",
+	ReasonMissQuantised:  "misses the targets with its taps rounded to the coefficient width",
+	ReasonWordLengths:    "word lengths could not be planned",
+}
+
+// Text is r in words ("cic rejection below target"); a name it does not
+// know is returned as it is.
+func (r Reason) Text() string {
+	if t, ok := reasonText[r]; ok {
+		return t
+	}
+	return string(r)
+}
+
+// DroppedText says the counts d in words, in the order of the reasons'
+// names, joined by sep: "cic rejection below target: 12, design failed: 1"
+// with sep ", "; "no candidates" when d is empty.
+func DroppedText(d map[Reason]int, sep string) string {
+	if len(d) == 0 {
+		return "no candidates"
+	}
+	keys := make([]Reason, 0, len(d))
+	for k := range d {
+		keys = append(keys, k)
+	}
+	slices.Sort(keys)
+	parts := make([]string, len(keys))
+	for i, k := range keys {
+		parts[i] = fmt.Sprintf("%s: %d", k.Text(), d[k])
+	}
+	return strings.Join(parts, sep)
+}
+
+// Reasons lists every Reason, in a fixed order.
+func Reasons() []Reason {
+	return []Reason{ReasonCICRejection, ReasonCICDroop, ReasonHalfBandEdges, ReasonShortFIR, ReasonDesignFailed,
+		ReasonEvaluateFailed, ReasonMissRejection, ReasonMissRipple, ReasonCICNull, ReasonGaveUp, ReasonCICBeaten,
+		ReasonLongFIR, ReasonRoundingFloor, ReasonMissQuantised, ReasonWordLengths}
+}
 
 type dropCode uint8
 
@@ -56,7 +119,7 @@ const (
 // low-latency end, or when nothing shorter meets the spec (see search).
 const defaultMaxTaps = 511
 
-var dropNames = [...]string{
+var dropNames = [...]Reason{
 	dropCICRejection:  ReasonCICRejection,
 	dropCICDroop:      ReasonCICDroop,
 	dropHalfBandEdges: ReasonHalfBandEdges,

@@ -300,7 +300,7 @@ func hashOf(v any) uint32 {
 	return h.Sum32()
 }
 
-func (f fakeDesigner) design(plan []chain.StagePlan) (Candidate, string) {
+func (f fakeDesigner) design(plan []chain.StagePlan) (Candidate, Reason) {
 	est := newEstimator(f.p, 0) // its own: the estimator is not shared across goroutines
 	est.keepBeaten = true
 	if _, drop := est.score(plan); drop != dropNone {
@@ -341,7 +341,7 @@ func (f fakeDesigner) design(plan []chain.StagePlan) (Candidate, string) {
 	return Candidate{Plan: clonePlan(plan), Figures: total}, ""
 }
 
-func (f fakeDesigner) analyze(c Candidate) (Candidate, string) {
+func (f fakeDesigner) analyze(c Candidate) (Candidate, Reason) {
 	// Whether the cascade misses does not hang on the CIC's order and delay
 	// (the search assumes a CIC with less droop is no harder to follow).
 	bare := clonePlan(c.Plan)
@@ -482,5 +482,37 @@ func TestPrimeOneStage(t *testing.T) {
 func init() {
 	if os.Getenv("OPT_DEBUG") != "" {
 		debugf = func(f string, a ...any) { fmt.Fprintf(os.Stderr, f+"\n", a...) }
+	}
+}
+
+// Every drop reason has a stable snake_case name (report.json's key),
+// unique, and a text in words that differs from it.
+func TestReasons(t *testing.T) {
+	seen := map[Reason]bool{}
+	for _, r := range Reasons() {
+		if seen[r] {
+			t.Errorf("%q listed twice", r)
+		}
+		seen[r] = true
+		for _, c := range string(r) {
+			if !(c >= 'a' && c <= 'z' || c >= '0' && c <= '9' || c == '_') {
+				t.Errorf("%q: name not lower snake_case", r)
+				break
+			}
+		}
+		if txt := r.Text(); txt == string(r) || txt == "" {
+			t.Errorf("%q has no text", r)
+		}
+	}
+	if len(seen) != len(reasonText) {
+		t.Errorf("Reasons lists %d, reasonText has %d", len(seen), len(reasonText))
+	}
+	for _, r := range dropNames {
+		if r != "" && !seen[r] {
+			t.Errorf("estimate-tier reason %q not in Reasons()", r)
+		}
+	}
+	if got := DroppedText(map[Reason]int{ReasonLongFIR: 3, ReasonCICRejection: 2}, ", "); got != "cic rejection below target: 2, fir stage over the tap limit: 3" {
+		t.Errorf("DroppedText = %q", got)
 	}
 }

@@ -148,8 +148,8 @@ func newSpace(p *params, s *Settings) *space {
 // costlier half for large ratios, so it is spent on front members only).
 // Each returns the candidate, or a non-empty reason to drop it.
 type designer interface {
-	design(plan []chain.StagePlan) (Candidate, string)
-	analyze(c Candidate) (Candidate, string)
+	design(plan []chain.StagePlan) (Candidate, Reason)
+	analyze(c Candidate) (Candidate, Reason)
 }
 
 type realDesigner struct {
@@ -164,7 +164,7 @@ func (r realDesigner) under(ctx context.Context) designer {
 	return r
 }
 
-func (r realDesigner) design(plan []chain.StagePlan) (Candidate, string) {
+func (r realDesigner) design(plan []chain.StagePlan) (Candidate, Reason) {
 	c, err := chain.DesignContext(r.ctx, r.spec, plan, r.s.Chain)
 	if err != nil {
 		return Candidate{}, ReasonDesignFailed
@@ -213,7 +213,7 @@ func (r realDesigner) atRisk(c *chain.Chain) bool {
 	return false
 }
 
-func (r realDesigner) analyze(c Candidate) (Candidate, string) {
+func (r realDesigner) analyze(c Candidate) (Candidate, Reason) {
 	f := c.Figures
 	if !c.evaluated {
 		var err error
@@ -260,7 +260,7 @@ func (r realDesigner) analyze(c Candidate) (Candidate, string) {
 }
 
 // floatMisses returns the reason a chain measured a misses spec, or "".
-func floatMisses(spec chain.Spec, a chain.Analysis) string {
+func floatMisses(spec chain.Spec, a chain.Analysis) Reason {
 	margin := a.AliasRejectionDB - spec.RejectionDB
 	if margin < -rejectionSlackDB || math.IsNaN(margin) {
 		return ReasonMissRejection
@@ -292,7 +292,7 @@ func (r realDesigner) rounded(spec chain.Spec) bool {
 // no floating-point margin makes up for it at those lengths. A re-designed
 // chain is priced and measured again (cost.Evaluate). It returns the chain
 // that meets, or the floating-point chain with the reason it was dropped.
-func (r realDesigner) survive(c Candidate, spec chain.Spec) (Candidate, string) {
+func (r realDesigner) survive(c Candidate, spec chain.Spec) (Candidate, Reason) {
 	ws, qa, err := fixed.PlanChainContext(r.ctx, spec, c.Chain, r.s.Fixed)
 	if err != nil {
 		return c, ReasonWordLengths
@@ -440,7 +440,7 @@ func search(ctx context.Context, p params, s *Settings, est *estimator, des desi
 		return nil, fmt.Errorf("optimize: decimation %d within %d stages gives %s candidates, more than the %d this search scores; lower MaxStages or narrow Kinds, CICOrders or CICDelays",
 			p.d, sp.maxStages, countString(n), MaxCandidates)
 	}
-	res := &Result{Dropped: map[string]int{}, Recommended: -1}
+	res := &Result{Dropped: map[Reason]int{}, Recommended: -1}
 	jobs := s.Jobs
 	if jobs == 0 {
 		jobs = runtime.GOMAXPROCS(0)

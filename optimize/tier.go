@@ -14,7 +14,7 @@ import (
 // analysed.
 type outcome struct {
 	c        Candidate
-	reason   string
+	reason   Reason
 	analyzed bool
 }
 

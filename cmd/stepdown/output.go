@@ -2,7 +2,6 @@ package main
 
 import (
 	"errors"
-	"sort"
 
 	"github.com/stepdown-dsp/stepdown/plots/report"
 )
@@ -16,13 +15,4 @@ func prepareOut(dir string) (*report.Folder, error) {
 		return nil, usageError{err}
 	}
 	return o, err
-}
-
-func sortedKeys(m map[string]int) []string {
-	keys := make([]string, 0, len(m))
-	for k := range m {
-		keys = append(keys, k)
-	}
-	sort.Strings(keys)
-	return keys
 }

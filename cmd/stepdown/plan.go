@@ -206,7 +206,7 @@ func emptyFront(res *optimize.Result, dir string) error {
 			msg += ": " + r
 		}
 	}
-	return fmt.Errorf("%s (dropped: %s); %s left as it was", msg, droppedText(res.Dropped), dir)
+	return fmt.Errorf("%s (dropped: %s); %s left as it was", msg, optimize.DroppedText(res.Dropped, ", "), dir)
 }
 
 func runCheck(c *cli.Context) error {
@@ -263,7 +263,7 @@ func runCheck(c *cli.Context) error {
 		return fmt.Errorf("check: %s", specfile.InFileTerms(err.Error()))
 	}
 	res := &optimize.Result{
-		Candidates: 1, Designed: 1, Dropped: map[string]int{},
+		Candidates: 1, Designed: 1, Dropped: map[optimize.Reason]int{},
 		Front: []optimize.Candidate{cand}, Recommended: 0, FeasibleAll: 1,
 	}
 	cmp, err := j.planFront(c, set)
@@ -302,18 +302,6 @@ func (j *job) planFront(c *cli.Context, set optimize.Settings) (*report.Comparis
 		return nil, fmt.Errorf("interrupted; %s left as it was", clip(j.out.Dir()))
 	}
 	return report.NewComparison("a plan of the same spec", rep), nil
-}
-
-func droppedText(d map[string]int) string {
-	if len(d) == 0 {
-		return "no candidates"
-	}
-	keys := sortedKeys(d)
-	var parts []string
-	for _, k := range keys {
-		parts = append(parts, fmt.Sprintf("%s: %d", k, d[k]))
-	}
-	return strings.Join(parts, ", ")
 }
 
 // finish builds the report, writes every file and prints the summary.

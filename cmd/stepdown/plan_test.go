@@ -12,7 +12,7 @@ import (
 func TestEmptyFrontReason(t *testing.T) {
 	res := &optimize.Result{
 		Reason:  "No chain was designed within the design budget (MaxDesigns, MaxWork) at a tap limit of 511;\n12 candidates were left undesigned.",
-		Dropped: map[string]int{"fir stage over the tap limit": 3, "cic rejection below target": 2},
+		Dropped: map[optimize.Reason]int{optimize.ReasonLongFIR: 3, optimize.ReasonCICRejection: 2},
 	}
 	got := emptyFront(res, "out").Error()
 	// The optimiser's setting names are said in the spec's and the flags' terms.

@@ -77,7 +77,7 @@ func fakeSweepPlan(_ context.Context, s chain.Spec, _ optimize.Settings) (*optim
 		LatencyS: 1e-6, LatencySamples: 2, Designed: true, Stages: []cost.StageFigures{{}, {}}}
 	f.Analysis.AliasRejectionDB = s.RejectionDB + 2
 	f.Analysis.PassbandRippleDB = s.RippleDB / 2
-	return &optimize.Result{Candidates: 3, Designed: 1, Dropped: map[string]int{},
+	return &optimize.Result{Candidates: 3, Designed: 1, Dropped: map[optimize.Reason]int{},
 		Front: []optimize.Candidate{{Plan: plan, Chain: ch, Figures: f, MarginDB: 2}}, Recommended: 0, Reason: "fake"}, nil
 }
 

@@ -3,10 +3,8 @@ package sweep
 import (
 	"context"
 	"errors"
-	"fmt"
 	"math"
 	"runtime"
-	"sort"
 	"sync"
 
 	"github.com/stepdown-dsp/stepdown/chain"
@@ -182,7 +180,7 @@ func runOne(ctx context.Context, st Study, plan func(context.Context, chain.Spec
 		r.Status, r.Detail = Stopped, "stopped by the time limit or an interrupt before any chain was designed"
 		return r
 	case len(res.Front) == 0:
-		r.Status, r.Detail = Infeasible, "no chain meets the spec ("+dropped(res.Dropped)+")"
+		r.Status, r.Detail = Infeasible, "no chain meets the spec ("+optimize.DroppedText(res.Dropped, ", ")+")"
 		return r
 	}
 	rep, err := report.NewContext(ctx, "plan", spec, res)
@@ -211,25 +209,6 @@ func specRule(err error) string {
 		return s
 	}
 	return err.Error()
-}
-
-func dropped(d map[string]int) string {
-	if len(d) == 0 {
-		return "no candidates"
-	}
-	keys := make([]string, 0, len(d))
-	for k := range d {
-		keys = append(keys, k)
-	}
-	sort.Strings(keys)
-	s := ""
-	for i, k := range keys {
-		if i > 0 {
-			s += ", "
-		}
-		s += fmt.Sprintf("%s: %d", k, d[k])
-	}
-	return s
 }
 
 // Best holds the least of each figure over one value's front (each may come

@@ -181,7 +181,7 @@ func TestMapOrder(t *testing.T) {
 // above 90 dB.
 func fakePlan(_ context.Context, s chain.Spec, set optimize.Settings) (*optimize.Result, error) {
 	if s.RejectionDB > 140 {
-		return &optimize.Result{Candidates: 10, Dropped: map[string]int{"too hard": 10}, Recommended: -1}, nil
+		return &optimize.Result{Candidates: 10, Dropped: map[optimize.Reason]int{"too hard": 10}, Recommended: -1}, nil
 	}
 	n := 4
 	if s.RejectionDB > 90 {
@@ -206,7 +206,7 @@ func fakePlan(_ context.Context, s chain.Spec, set optimize.Settings) (*optimize
 		return optimize.Candidate{Plan: plan, Chain: ch, Figures: f, MarginDB: 1}
 	}
 	return &optimize.Result{
-		Candidates: 10, Designed: 2, Dropped: map[string]int{},
+		Candidates: 10, Designed: 2, Dropped: map[optimize.Reason]int{},
 		Front:       []optimize.Candidate{mk(8, s.RejectionDB/10), mk(16, s.RejectionDB/8)},
 		Recommended: 0, Reason: "fake",
 	}, nil

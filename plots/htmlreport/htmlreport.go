@@ -6,12 +6,12 @@ import (
 	"fmt"
 	"html/template"
 	"math"
-	"sort"
 	"strconv"
 	"strings"
 
 	"github.com/stepdown-dsp/stepdown/chain/units"
 	"github.com/stepdown-dsp/stepdown/cost"
+	"github.com/stepdown-dsp/stepdown/optimize"
 	"github.com/stepdown-dsp/stepdown/optimize/sweep"
 	"github.com/stepdown-dsp/stepdown/plots/report"
 )
@@ -392,16 +392,11 @@ func searchText(r *report.Report) string {
 	s := fmt.Sprintf("%d candidate chains enumerated, %d feasible by estimate, %d designed for real, %d on the Pareto front.",
 		r.Search.Candidates, r.Search.Feasible, r.Search.Designed, len(r.Front))
 	if len(r.Search.Dropped) > 0 {
-		keys := make([]string, 0, len(r.Search.Dropped))
-		for k := range r.Search.Dropped {
-			keys = append(keys, k)
+		d := make(map[optimize.Reason]int, len(r.Search.Dropped))
+		for k, v := range r.Search.Dropped {
+			d[optimize.Reason(k)] = v
 		}
-		sort.Strings(keys)
-		var parts []string
-		for _, k := range keys {
-			parts = append(parts, fmt.Sprintf("%s: %d", k, r.Search.Dropped[k]))
-		}
-		s += " Dropped: " + strings.Join(parts, "; ") + "."
+		s += " Dropped: " + optimize.DroppedText(d, "; ") + "."
 	}
 	return s
 }

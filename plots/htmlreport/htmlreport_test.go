@@ -78,7 +78,7 @@ func sampleReport(t testing.TB) *report.Report {
 	}
 	r := &report.Report{
 		Schema: report.Schema, Command: "plan", Caution: report.Caution, Spec: report.NewSpec(s),
-		Search: report.Search{Candidates: 1234, Feasible: 321, Designed: 40, Dropped: map[string]int{"cic rejection below target": 9}},
+		Search: report.Search{Candidates: 1234, Feasible: 321, Designed: 40, Dropped: map[string]int{"cic_rejection_below_target": 9}},
 		Front: []report.Chain{
 			mk("cic6m1r16 > fir4", 38, 7900, 30e-6, 80.4, true),
 			rec,

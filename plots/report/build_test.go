@@ -47,7 +47,7 @@ clock = "100 MHz"
 		Analysis: chain.Analysis{AliasRejectionDB: 61, PassbandRippleDB: 0.4, WorstAliasHz: 900e3},
 	}
 	res := &optimize.Result{
-		Candidates: 10, FeasibleAll: 4, Designed: 2, Dropped: map[string]int{"b": 1, "a": 5},
+		Candidates: 10, FeasibleAll: 4, Designed: 2, Dropped: map[optimize.Reason]int{"b": 1, "a": 5},
 		Front:  []optimize.Candidate{{Plan: plan, Chain: c, Figures: f, MarginDB: 1}},
 		Reason: "only one",
 	}

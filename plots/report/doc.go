@@ -21,6 +21,11 @@
 // The integer files are written only when the spec sets a coefficient width
 // or "auto".
 //
+// search.dropped counts the candidates set aside, keyed by the stable name
+// of each reason (optimize.Reason: "cic_rejection_below_target",
+// "fir_over_tap_limit", "misses_with_rounded_taps", ...; optimize.Reason.Text
+// says each in words).
+//
 // A check's report holds the one chain named, and compares it with a plan's
 // front (Report.Compare): compared_with gives the front's source, its
 // chains' figures (notation, multiplies_per_output, memory_bits, latency_s,

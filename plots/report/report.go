@@ -370,7 +370,7 @@ func NewContext(ctx context.Context, command string, s *specfile.Spec, res *opti
 		r.Search.Feasible = len(res.Feasible)
 	}
 	for k, v := range res.Dropped {
-		r.Search.Dropped[k] = v
+		r.Search.Dropped[string(k)] = v
 	}
 	fs := s.FixedSettings()
 	hw := s.NativeA > 0 && s.Clock > 0

@@ -47,7 +47,7 @@ func designed(t *testing.T, text, notation string) (*specfile.Spec, *optimize.Re
 	if err != nil {
 		t.Fatal(err)
 	}
-	return s, &optimize.Result{Candidates: 1, FeasibleAll: 1, Designed: 1, Dropped: map[string]int{},
+	return s, &optimize.Result{Candidates: 1, FeasibleAll: 1, Designed: 1, Dropped: map[optimize.Reason]int{},
 		Front: []optimize.Candidate{{Plan: plan, Chain: c, Figures: f}}, Reason: "only one"}
 }
 
