@@ -301,7 +301,7 @@ func TestDecimate(t *testing.T) {
 	}
 	y[54321] = -3 // a lone spike
 	y[777] = math.Inf(-1)
-	up, down := decimate(x, y, 0, n-1, -120, false)
+	up, down, _ := decimate(x, y, 0, n-1, -120, 3, false)
 	var peak, low float64 = -1000, 0
 	for _, out := range []plotter.XYs{up, down} {
 		if len(out) > 1510 {

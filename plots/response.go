@@ -262,6 +262,10 @@ func responsePanel(d ResponseData, lo, hi, floor, top float64, logx bool, leg *p
 		l.LineStyle = draw.LineStyle{Color: vermilion, Width: vg.Points(1.5), Dashes: []vg.Length{vg.Points(6), vg.Points(3)}}
 		add(fmt.Sprintf("rejection target -%g dB", d.TargetDB), l, l)
 	}
+	// A 50th of the gain axis: the least swing that counts towards a dense
+	// stretch.
+	swing := (top - floor) / 50
+	dense := false
 	for i, s := range d.Stages {
 		name := s.Name
 		if name == "" {
@@ -271,11 +275,15 @@ func responsePanel(d ResponseData, lo, hi, floor, top float64, logx bool, leg *p
 		if i >= len(stageColors) {
 			sty.Dashes = []vg.Length{vg.Points(4), vg.Points(2)}
 		}
-		l := newEnvelope(d.FreqHz, s.DB, lo, hi, floor, logx, sty)
+		l := newEnvelope(d.FreqHz, s.DB, lo, hi, floor, swing, logx, sty)
 		add(fmt.Sprintf("stage %d: %s", i+1, name), l, l)
+		dense = dense || l.hasDense()
 	}
-	l := newEnvelope(d.FreqHz, d.TotalDB, lo, hi, floor, logx, draw.LineStyle{Color: black, Width: vg.Points(1.8)})
+	l := newEnvelope(d.FreqHz, d.TotalDB, lo, hi, floor, swing, logx, draw.LineStyle{Color: black, Width: vg.Points(1.8)})
 	add("cascade", l, l)
+	if dense = dense || l.hasDense(); dense {
+		legAdd(denseNote, denseKey{})
+	}
 	if leg != nil {
 		// Reading order: the cascade, the stages in cascade order, then
 		// the reference marks.
@@ -283,7 +291,7 @@ func responsePanel(d ResponseData, lo, hi, floor, top float64, logx bool, leg *p
 			switch {
 			case name == "cascade":
 				return 0
-			case strings.HasPrefix(name, "stage "):
+			case strings.HasPrefix(name, "stage "), name == denseNote:
 				return 1
 			}
 			return 2
@@ -354,18 +362,36 @@ func merged(bands [][2]float64, tol, rel float64) [][2]float64 {
 	return out
 }
 
+// Envelope geometry: the columns of the axis the curves are reduced to,
+// and what makes a stretch of a curve dense: more than denseSwings full
+// swings (down and back up by a 50th of the gain axis) within denseWindow
+// columns either side (21 columns, about 6 points at the default width),
+// nulls 3 points apart or closer, where the polyline, a point or two
+// wide, would fill the band between its peaks and nulls solid.
+const (
+	columns     = 1500
+	denseWindow = 10
+	denseSwings = 2
+	// denseReach is how many points either side the edges of a dense
+	// stretch take their maximum (upper) and minimum (lower) over, so that
+	// the upper edge runs along the peaks instead of zig-zagging down to
+	// the nulls between them.
+	denseReach = 2
+)
+
 // decimate returns the curve over [lo, hi] (with one neighbour each side,
 // so the line meets the axis edges; on a log axis none below lo), clamped
-// at floor, as the upper and lower edges of its envelope over 1500 columns
-// of the axis: where a column holds at most two samples both edges pass
-// through them (up and down are the same points when the whole span has at
-// most 3000 samples), and where it holds more, up passes through the
-// column's maximum and down through its minimum. The envelope keeps every
-// peak and null at a bounded size; drawing it as a filled band (see
-// envelope) rather than a polyline that zig-zags between the extremes keeps
-// the rasteriser's work proportional to the columns.
-func decimate(x, y []float64, lo, hi, floor float64, logx bool) (up, down plotter.XYs) {
-	const columns = 1500
+// at floor, as the upper and lower edges of its envelope over the axis's
+// columns: where a column holds at most two samples both edges pass
+// through them, and where it holds more, up passes through the column's
+// maximum and down through its minimum. dense tells for each point (of up
+// and down alike) whether its column lies in a dense stretch (see
+// denseSwings; swing is a 50th of the gain axis, dB); there up is the
+// maximum and down the minimum of the points within denseReach. The
+// envelope keeps every peak and null at a bounded size; drawing it as a
+// filled band (see envelope) rather than a polyline that zig-zags between
+// the extremes keeps the rasteriser's work proportional to the columns.
+func decimate(x, y []float64, lo, hi, floor, swing float64, logx bool) (up, down plotter.XYs, dense []bool) {
 	i0 := sort.SearchFloat64s(x, lo)
 	if i0 > 0 && (!logx || x[i0-1] > 0) {
 		i0--
@@ -374,22 +400,67 @@ func decimate(x, y []float64, lo, hi, floor float64, logx bool) (up, down plotte
 	if i1 < len(x) {
 		i1++
 	}
+	if i1 <= i0 {
+		return nil, nil, nil
+	}
 	at := func(i int) plotter.XY { return plotter.XY{X: x[i], Y: math.Max(y[i], floor)} }
-	if i1-i0 <= 2*columns {
-		out := make(plotter.XYs, 0, max(0, i1-i0))
-		for i := i0; i < i1; i++ {
-			out = append(out, at(i))
+	column := func(v float64) int {
+		var c float64
+		if logx {
+			c = math.Floor(math.Log(v/lo) / math.Log(hi/lo) * columns)
+		} else {
+			c = math.Floor((v - lo) / (hi - lo) * columns)
 		}
-		return out, out
+		return int(math.Max(-1, math.Min(columns, c)))
 	}
-	column := func(v float64) float64 { return math.Floor((v - lo) / (hi - lo) * columns) }
-	if logx {
-		column = func(v float64) float64 { return math.Floor(math.Log(v/lo) / math.Log(hi/lo) * columns) }
+
+	// Full swings completed in each column (index column+1), by a zig-zag
+	// with hysteresis: a trough counts once the curve has risen swing
+	// above it after falling swing below a peak.
+	troughs := make([]int, columns+2)
+	dir, ext, lowSeen, highSeen := 0, math.Max(y[i0], floor), math.Max(y[i0], floor), math.Max(y[i0], floor)
+	for i := i0 + 1; i < i1; i++ {
+		v := math.Max(y[i], floor)
+		switch dir {
+		case 0:
+			lowSeen, highSeen = math.Min(lowSeen, v), math.Max(highSeen, v)
+			if v >= lowSeen+swing {
+				dir, ext = 1, v
+			} else if v <= highSeen-swing {
+				dir, ext = -1, v
+			}
+		case 1:
+			if v > ext {
+				ext = v
+			} else if v <= ext-swing {
+				dir, ext = -1, v
+			}
+		case -1:
+			if v < ext {
+				ext = v
+			} else if v >= ext+swing {
+				dir, ext = 1, v
+				troughs[column(x[i])+1]++
+			}
+		}
 	}
+	denseCol := make([]bool, columns+2)
+	for c := range denseCol {
+		n := 0
+		for k := max(0, c-denseWindow); k <= min(columns+1, c+denseWindow); k++ {
+			n += troughs[k]
+		}
+		denseCol[c] = n > denseSwings
+	}
+
 	up = make(plotter.XYs, 0, 2*columns+2)
 	down = make(plotter.XYs, 0, 2*columns+2)
-	up = append(up, at(i0))
-	down = append(down, at(i0))
+	dense = make([]bool, 0, 2*columns+2)
+	add := func(u, d plotter.XY, col int) {
+		up, down = append(up, u), append(down, d)
+		dense = append(dense, denseCol[col+1])
+	}
+	add(at(i0), at(i0), column(x[i0]))
 	for i := i0 + 1; i < i1-1; {
 		col := column(x[i])
 		imin, imax := i, i
@@ -404,32 +475,65 @@ func decimate(x, y []float64, lo, hi, floor float64, logx bool) (up, down plotte
 		}
 		if j-i <= 2 {
 			for k := i; k < j; k++ {
-				up = append(up, at(k))
-				down = append(down, at(k))
+				add(at(k), at(k), col)
 			}
 		} else {
-			up = append(up, at(imax))
-			down = append(down, at(imin))
+			add(at(imax), at(imin), col)
 		}
 		i = j
 	}
-	last := at(i1 - 1)
-	return append(up, last), append(down, last)
+	if i1-1 > i0 {
+		add(at(i1-1), at(i1-1), column(x[i1-1]))
+	}
+
+	// In dense stretches the edges take the extremes of their neighbours.
+	u2 := append(plotter.XYs(nil), up...)
+	d2 := append(plotter.XYs(nil), down...)
+	for k := range up {
+		if !dense[k] {
+			continue
+		}
+		for j := max(0, k-denseReach); j <= min(len(up)-1, k+denseReach); j++ {
+			if dense[j] {
+				u2[k].Y = math.Max(u2[k].Y, up[j].Y)
+				d2[k].Y = math.Min(d2[k].Y, down[j].Y)
+			}
+		}
+	}
+	return u2, d2, dense
 }
 
 // envelope draws a curve given as the edges of its envelope (see
-// decimate): the band between them filled, and both edges stroked, so
-// that it looks like the full-resolution polyline at the figure's
-// resolution.
+// decimate). Outside dense stretches the band between the edges is filled
+// and both edges stroked in the curve's colour, so that it looks like the
+// full-resolution polyline at the figure's resolution. In a dense stretch,
+// where that polyline would be a solid block hiding the curves under it,
+// the band is filled pale (the colour at denseAlpha) and only the upper
+// edge, the curve's peaks, is stroked.
 type envelope struct {
 	up, down plotter.XYs
+	dense    []bool
 	draw.LineStyle
 }
 
-// newEnvelope is the envelope of the curve over [lo, hi].
-func newEnvelope(x, y []float64, lo, hi, floor float64, logx bool, sty draw.LineStyle) *envelope {
-	up, down := decimate(x, y, lo, hi, floor, logx)
-	return &envelope{up: up, down: down, LineStyle: sty}
+// denseAlpha is the opacity of a dense stretch's fill.
+const denseAlpha = 0.3
+
+// newEnvelope is the envelope of the curve over [lo, hi]; swing is a 50th
+// of the gain axis (see decimate).
+func newEnvelope(x, y []float64, lo, hi, floor, swing float64, logx bool, sty draw.LineStyle) *envelope {
+	up, down, dense := decimate(x, y, lo, hi, floor, swing, logx)
+	return &envelope{up: up, down: down, dense: dense, LineStyle: sty}
+}
+
+// hasDense reports whether some stretch of the curve is dense.
+func (e *envelope) hasDense() bool {
+	for _, d := range e.dense {
+		if d {
+			return true
+		}
+	}
+	return false
 }
 
 // Plot implements plot.Plotter.
@@ -446,24 +550,59 @@ func (e *envelope) Plot(c draw.Canvas, plt *plot.Plot) {
 	if len(up) == 0 {
 		return
 	}
-	same := &e.up[0] == &e.down[0]
-	if !same {
-		down := pts(e.down)
-		ring := make([]vg.Point, 0, len(up)+len(down))
-		ring = append(ring, up...)
-		for i := len(down) - 1; i >= 0; i-- {
+	down := pts(e.down)
+	pale := paleColor(e.Color)
+	// Runs of points alike in density, each reaching to the first point of
+	// the next so that their fills meet.
+	for a := 0; a < len(up); {
+		b := a
+		for b+1 < len(up) && e.dense[b+1] == e.dense[a] {
+			b++
+		}
+		end := min(b+1, len(up)-1)
+		ring := make([]vg.Point, 0, 2*(end-a+1))
+		ring = append(ring, up[a:end+1]...)
+		for i := end; i >= a; i-- {
 			ring = append(ring, down[i])
 		}
-		c.FillPolygon(e.Color, c.ClipPolygonXY(ring))
-		c.StrokeLines(e.LineStyle, c.ClipLinesXY(down)...)
+		if e.dense[a] {
+			c.FillPolygon(pale, c.ClipPolygonXY(ring))
+		} else {
+			c.FillPolygon(e.Color, c.ClipPolygonXY(ring))
+			c.StrokeLines(e.LineStyle, c.ClipLinesXY(down[a:end+1])...)
+		}
+		a = b + 1
 	}
 	c.StrokeLines(e.LineStyle, c.ClipLinesXY(up)...)
+}
+
+// paleColor is c at denseAlpha of its opacity.
+func paleColor(c color.Color) color.Color {
+	n := color.NRGBAModel.Convert(c).(color.NRGBA)
+	n.A = uint8(math.Round(float64(n.A) * denseAlpha))
+	return n
 }
 
 // Thumbnail implements plot.Thumbnailer: a short line in the curve's style.
 func (e *envelope) Thumbnail(c *draw.Canvas) {
 	y := c.Center().Y
 	c.StrokeLine2(e.LineStyle, c.Min.X, y, c.Max.X, y)
+}
+
+// denseNote is the legend entry of dense stretches.
+const denseNote = "pale: dense swings, line on peaks"
+
+// denseKey is the legend thumbnail that explains dense stretches: a pale
+// band under a line.
+type denseKey struct{}
+
+func (denseKey) Thumbnail(c *draw.Canvas) {
+	mid := c.Center().Y
+	h := vg.Points(5)
+	r := vg.Rectangle{Min: vg.Point{X: c.Min.X, Y: mid - h}, Max: vg.Point{X: c.Max.X, Y: mid + h}}
+	c.SetColor(paleColor(color.RGBA{0x50, 0x50, 0x50, 0xff}))
+	c.Fill(r.Path())
+	c.StrokeLine2(draw.LineStyle{Color: color.RGBA{0x50, 0x50, 0x50, 0xff}, Width: vg.Points(1)}, c.Min.X, mid+h, c.Max.X, mid+h)
 }
 
 // logSpan is the ratio of the full span to the output rate above which the
