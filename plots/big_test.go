@@ -17,6 +17,7 @@ func TestFrontManyCandidates(t *testing.T) {
 	for range 60000 {
 		d.Candidates = append(d.Candidates, Point{Multiplies: 30 + 1500*r.Float64(), MemoryBits: 3000 + 100000*r.Float64()})
 	}
+	d.FeasibleTotal = 250000
 	f, err := Front(d)
 	if err != nil {
 		t.Fatal(err)

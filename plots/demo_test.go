@@ -20,14 +20,17 @@ const (
 
 func demoFront() FrontData {
 	front := []Point{
-		{Multiplies: 31, MemoryBits: 41200, RejectionDB: 86.1, Label: "CIC5 R8 > HB > HB > FIR 95"},
-		{Multiplies: 38, MemoryBits: 23800, RejectionDB: 88.4, Label: "CIC5 R16 > HB > FIR 77"},
-		{Multiplies: 44, MemoryBits: 15100, RejectionDB: 90.2, Label: "CIC6 R16 > HB > FIR 83"},
-		{Multiplies: 57, MemoryBits: 9800, RejectionDB: 87.0, Label: "CIC5 R32 > FIR 131"},
-		{Multiplies: 73, MemoryBits: 7400, RejectionDB: 85.6, Label: "CIC6 R32 > FIR 145"},
-		{Multiplies: 118, MemoryBits: 5200, RejectionDB: 92.3, Label: "FIR 2 > CIC5 R16 > FIR 71"},
-		{Multiplies: 260, MemoryBits: 3900, RejectionDB: 95.0, Label: "FIR 4 > FIR 4 > FIR 4"},
-		{Multiplies: 610, MemoryBits: 3100, RejectionDB: 99.5, Label: "FIR 8 > FIR 8"},
+		{Multiplies: 31, MemoryBits: 41200, LatencyS: 6.1e-6, RejectionDB: 86.1, Label: "CIC5 R8 > HB > HB > FIR 95"},
+		{Multiplies: 38, MemoryBits: 23800, LatencyS: 5.2e-6, RejectionDB: 88.4, Label: "CIC5 R16 > HB > FIR 77"},
+		{Multiplies: 44, MemoryBits: 15100, LatencyS: 5.6e-6, RejectionDB: 90.2, Label: "CIC6 R16 > HB > FIR 83"},
+		{Multiplies: 57, MemoryBits: 9800, LatencyS: 4.4e-6, RejectionDB: 87.0, Label: "CIC5 R32 > FIR 131"},
+		{Multiplies: 73, MemoryBits: 7400, LatencyS: 4.9e-6, RejectionDB: 85.6, Label: "CIC6 R32 > FIR 145"},
+		{Multiplies: 118, MemoryBits: 5200, LatencyS: 3.8e-6, RejectionDB: 92.3, Label: "FIR 2 > CIC5 R16 > FIR 71"},
+		{Multiplies: 260, MemoryBits: 3900, LatencyS: 3.1e-6, RejectionDB: 95.0, Label: "FIR 4 > FIR 4 > FIR 4"},
+		{Multiplies: 610, MemoryBits: 3100, LatencyS: 2.6e-6, RejectionDB: 99.5, Label: "FIR 8 > FIR 8"},
+		// Beaten on multiplies and memory, on the front by latency.
+		{Multiplies: 64, MemoryBits: 18400, LatencyS: 2.9e-6, RejectionDB: 86.8, Label: "CIC4 R8 > FIR 8"},
+		{Multiplies: 150, MemoryBits: 11900, LatencyS: 2.2e-6, RejectionDB: 88.0, Label: "CIC3 R4 > FIR 16"},
 	}
 	r := rand.New(rand.NewPCG(1, 2))
 	var cands []Point
@@ -40,11 +43,12 @@ func demoFront() FrontData {
 	}
 	cands = append(cands, front...)
 	return FrontData{
-		Title:       "Pareto front, 122.88 MHz to 1.92 MHz (D = 64)",
-		Candidates:  cands,
-		Front:       front,
-		Recommended: 2,
-		TargetDB:    demoTarget,
+		Title:         "Pareto front, 122.88 MHz to 1.92 MHz (D = 64)",
+		Candidates:    cands,
+		FeasibleTotal: 12875,
+		Front:         front,
+		Recommended:   2,
+		TargetDB:      demoTarget,
 	}
 }
 

@@ -5,6 +5,20 @@
 // chain's figures move as one quantity of the specification is swept
 // (Sweep).
 //
+// The front is a front on three axes, multiplies per output, memory and
+// latency, drawn on the first two: the chains no other beats on
+// multiplies and memory alone are joined by their staircase (every cost
+// pair above and right of it is matched or beaten by one of them), the
+// other chains of the front, there for their lower latency, have a
+// diamond marker, and every chain is coloured by its latency. The legend
+// counts the feasible candidates in all and those drawn. The legend and
+// the labels of the recommended and the checked chain are placed, once
+// the figure's size is known, where they cover no marker, ring, cross or
+// staircase segment, nor each other (dots of the faint cloud may lie under
+// them); a label away from its chain gets a leader, bent once when a
+// straight one would cross a mark; the memory axis is raised to make room
+// above the data when no place is free.
+//
 // The package takes its own plain input types (FrontData, ResponseData,
 // StagesData, SweepData) so that it depends on no other stepdown package;
 // the command line converts its results into them. Every figure function
@@ -33,16 +47,24 @@
 //     and its label says "log scale".
 //   - Large inputs are reduced to what the figure can show, never sampled
 //     at random: curves keep the minimum and maximum of each of 1500
-//     columns (every peak and null survives), alias bands closer than a
+//     columns (every peak and null survives); where a curve swings down and
+//     back up more than twice within about 6 points of width, which would
+//     draw as a solid block, the band between its peaks and nulls is filled
+//     pale and only its upper edge, through the peaks, is drawn as the line
+//     (the legend says so), so that the curves under it, the cascade above
+//     all, stay visible; alias bands closer than a
 //     1500th of the axis are drawn merged (without copying them when they
 //     come in order, as a chain's D/2 alias bands do, millions at large
 //     ratios), and candidates of the front's
 //     cloud closer than a dot are drawn once. SVG files stay well under
 //     2 MB.
 //   - Colours come from the Okabe-Ito palette, which stays distinguishable
-//     under the common forms of colour blindness; the front's rejection key
-//     uses a viridis-like map whose lightness rises monotonically.
-//   - Formats are SVG and PNG (150 dots per inch). The default figure size
+//     under the common forms of colour blindness; the front's latency key
+//     uses a viridis-like map whose lightness rises monotonically (dark is
+//     the least latency).
+//   - Formats are SVG and PNG (150 dots per inch); the PNG draws the same
+//     text with the Liberation fonts built into gonum/plot, so it reads the
+//     same on any machine. The default figure size
 //     is 8 x 5 inches (DefaultWidth, DefaultHeight); a zero width or height
 //     given to Save or Render selects it. Sweep figures are meant for
 //     SweepWidth x SweepHeight (8 x 7 inches), room for four panels. SVG

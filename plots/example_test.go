@@ -14,11 +14,16 @@ func ExampleFront() {
 	fig, err := plots.Front(plots.FrontData{
 		Title: "Pareto front, 122.88 MHz to 1.92 MHz",
 		Front: []plots.Point{
-			{Multiplies: 38, MemoryBits: 23800, RejectionDB: 88.4, Label: "CIC5 R16 > HB > FIR 77"},
-			{Multiplies: 57, MemoryBits: 9800, RejectionDB: 87.0, Label: "CIC5 R32 > FIR 131"},
-			{Multiplies: 260, MemoryBits: 3900, RejectionDB: 95.0, Label: "FIR 4 > FIR 4 > FIR 4"},
+			{Multiplies: 38, MemoryBits: 23800, LatencyS: 5.2e-6, RejectionDB: 88.4, Label: "CIC5 R16 > HB > FIR 77"},
+			{Multiplies: 57, MemoryBits: 9800, LatencyS: 4.4e-6, RejectionDB: 87.0, Label: "CIC5 R32 > FIR 131"},
+			{Multiplies: 260, MemoryBits: 3900, LatencyS: 3.1e-6, RejectionDB: 95.0, Label: "FIR 4 > FIR 4 > FIR 4"},
+			// Beaten on multiplies and memory, on the front by its latency.
+			{Multiplies: 64, MemoryBits: 18400, LatencyS: 2.9e-6, RejectionDB: 86.8, Label: "CIC4 R8 > FIR 8"},
 		},
 		Recommended: 1,
+		// A chain to compare with the front, as stepdown check draws it.
+		Checked:  &plots.Point{Multiplies: 90, MemoryBits: 16500, LatencyS: 5.9e-6, RejectionDB: 88.1, Label: "CIC4 R16 > HB > FIR 97"},
+		TargetDB: 85,
 	})
 	if err != nil {
 		log.Fatal(err)

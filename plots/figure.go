@@ -5,7 +5,6 @@ import (
 	"fmt"
 	"image/color"
 	"io"
-	"math"
 	"os"
 	"path/filepath"
 	"strings"
@@ -13,7 +12,6 @@ import (
 	xfont "golang.org/x/image/font"
 	"gonum.org/v1/plot"
 	"gonum.org/v1/plot/font"
-	"gonum.org/v1/plot/plotter"
 	"gonum.org/v1/plot/text"
 	"gonum.org/v1/plot/vg"
 	"gonum.org/v1/plot/vg/draw"
@@ -55,6 +53,11 @@ type panel struct {
 	p        *plot.Plot
 	weight   float64 // relative height
 	optional bool    // left out of figures shorter than optionalHeight
+	// draw, when set, draws the panel into its cell in place of p.Draw:
+	// for a panel (Front) whose text is placed once the cell's size is
+	// known. It must not modify p, so that rendering leaves the figure as
+	// it was.
+	draw func(p *plot.Plot, c draw.Canvas)
 }
 
 // optionalHeight is the figure height below which optional panels are left
@@ -137,7 +140,11 @@ func (f *Figure) Draw(c draw.Canvas) {
 		l := maxL - (dc.Min.X - cells[i].Min.X)
 		r := maxR - (cells[i].Max.X - dc.Max.X)
 		cells[i] = draw.Crop(cells[i], l, -r, 0, 0)
-		p.p.Draw(cells[i])
+		if p.draw != nil {
+			p.draw(p.p, cells[i])
+		} else {
+			p.p.Draw(cells[i])
+		}
 	}
 	if len(cells) == 0 {
 		return
@@ -297,14 +304,10 @@ func newLegend() *plot.Legend {
 	return &l
 }
 
-// insetLegend draws a legend inside the data area, on a white box, in the
-// corner that hides the fewest of the given points (weights add up; ties go
-// to the earlier corner in corners).
+// insetLegend is a legend drawn inside the data area, on a white box, in
+// one of its corners; the front's layout chooses the corner.
 type insetLegend struct {
-	l       *plot.Legend
-	pts     []plotter.XY
-	weights []float64
-	corners []corner
+	l *plot.Legend
 }
 
 type corner struct{ top, left bool }
@@ -313,6 +316,7 @@ func (il *insetLegend) size() vg.Point {
 	return il.l.Rectangle(draw.Canvas{}).Size()
 }
 
+// box is the legend's white box in corner k of c.
 func (il *insetLegend) box(c draw.Canvas, k corner) vg.Rectangle {
 	const margin = 6
 	pad := vg.Points(4)
@@ -334,23 +338,8 @@ func (il *insetLegend) box(c draw.Canvas, k corner) vg.Rectangle {
 	return r
 }
 
-func (il *insetLegend) Plot(c draw.Canvas, p *plot.Plot) {
-	trX, trY := p.Transforms(&c)
-	best, bestScore := il.corners[0], math.Inf(1)
-	for _, k := range il.corners {
-		r := il.box(c, k)
-		var score float64
-		for i, pt := range il.pts {
-			q := vg.Point{X: trX(pt.X), Y: trY(pt.Y)}
-			if q.X >= r.Min.X-4 && q.X <= r.Max.X+4 && q.Y >= r.Min.Y-4 && q.Y <= r.Max.Y+4 {
-				score += il.weights[i]
-			}
-		}
-		if score < bestScore {
-			best, bestScore = k, score
-		}
-	}
-	r := il.box(c, best)
+// drawIn draws the legend in box r (from box).
+func (il *insetLegend) drawIn(c draw.Canvas, r vg.Rectangle) {
 	c.SetColor(color.NRGBA{0xff, 0xff, 0xff, 0xE6})
 	c.Fill(r.Path())
 	pad := vg.Points(4)
@@ -358,6 +347,7 @@ func (il *insetLegend) Plot(c draw.Canvas, p *plot.Plot) {
 		Min: vg.Point{X: r.Min.X + pad, Y: r.Min.Y + pad},
 		Max: vg.Point{X: r.Max.X - pad, Y: r.Max.Y - pad},
 	}}
-	il.l.Top, il.l.Left = true, true
-	il.l.Draw(inner)
+	l := *il.l
+	l.Top, l.Left = true, true
+	l.Draw(inner)
 }

@@ -43,6 +43,20 @@ func figures(t *testing.T) map[string]func() (*Figure, error) {
 		"front/one-point": func() (*Figure, error) {
 			return Front(FrontData{Front: []Point{{Multiplies: 40, MemoryBits: 12000, RejectionDB: 90, Label: "CIC5 R16 > FIR 2"}}})
 		},
+		"front/checked": func() (*Figure, error) {
+			// A chain a check names, beaten by the front on all three axes.
+			d := demoFront()
+			d.Checked = &Point{Multiplies: 90, MemoryBits: 16500, LatencyS: 5.9e-6, RejectionDB: 88.1, Label: "CIC4 R16 > HB > FIR 97"}
+			return Front(d)
+		},
+		"front/no-latency": func() (*Figure, error) {
+			d := demoFront()
+			d.Front = d.Front[:8] // the chains beaten on multiplies and memory need their latency
+			for i := range d.Front {
+				d.Front[i].LatencyS = 0
+			}
+			return Front(d)
+		},
 		"front/no-cloud-no-recommendation": func() (*Figure, error) {
 			d := demoFront()
 			d.Candidates, d.Recommended = nil, -1
@@ -51,7 +65,11 @@ func figures(t *testing.T) map[string]func() (*Figure, error) {
 		"front/linear-zero-multiplies": func() (*Figure, error) {
 			// A pure CIC chain has no multiplies, which rules out a log axis.
 			return Front(FrontData{
-				Front: []Point{{0, 900, 70, "CIC4 R64"}, {12, 700, 82, "CIC4 R32 > HB"}, {20, 650, 88, "CIC3 R32 > HB"}},
+				Front: []Point{
+					{Multiplies: 0, MemoryBits: 900, RejectionDB: 70, Label: "CIC4 R64"},
+					{Multiplies: 12, MemoryBits: 700, RejectionDB: 82, Label: "CIC4 R32 > HB"},
+					{Multiplies: 20, MemoryBits: 650, RejectionDB: 88, Label: "CIC3 R32 > HB"},
+				},
 			})
 		},
 		"response": func() (*Figure, error) { return Response(demoResponse(20000)) },
@@ -205,15 +223,15 @@ func TestErrors(t *testing.T) {
 			return err
 		}, "Front[0].RejectionDB"},
 		{"front/candidate-nan", func() error {
-			_, err := Front(FrontData{Front: []Point{{1, 1, 80, ""}}, Candidates: []Point{{1, 1, 0, ""}, {2, nan, 0, ""}}})
+			_, err := Front(FrontData{Front: []Point{{Multiplies: 1, MemoryBits: 1, RejectionDB: 80}}, Candidates: []Point{{Multiplies: 1, MemoryBits: 1}, {Multiplies: 2, MemoryBits: nan}}})
 			return err
 		}, "Candidates[1].MemoryBits"},
 		{"front/recommended", func() error {
-			_, err := Front(FrontData{Front: []Point{{1, 1, 80, ""}}, Recommended: 1})
+			_, err := Front(FrontData{Front: []Point{{Multiplies: 1, MemoryBits: 1, RejectionDB: 80}}, Recommended: 1})
 			return err
 		}, "FrontData.Recommended = 1"},
 		{"front/target", func() error {
-			_, err := Front(FrontData{Front: []Point{{1, 1, 80, ""}}, TargetDB: math.NaN()})
+			_, err := Front(FrontData{Front: []Point{{Multiplies: 1, MemoryBits: 1, RejectionDB: 80}}, TargetDB: math.NaN()})
 			return err
 		}, "FrontData.TargetDB"},
 		{"response/short", func() error { _, err := Response(ResponseData{FreqHz: []float64{0}}); return err }, "FreqHz"},

@@ -67,14 +67,14 @@ func Files(ctx context.Context, rep *Report, res *optimize.Result, spec *specfil
 	files := []File{{Name: "report.json", Data: js}}
 	rec := rep.Recommended
 
-	fd := plots.FrontData{Recommended: rec}
+	fd := plots.FrontData{Recommended: rec, FeasibleTotal: res.FeasibleAll}
 	for _, ch := range rep.Front {
 		// The rejection the verdict is judged on: the rounded taps' when
 		// they are planned.
 		rej, _ := ch.BuiltFigures()
 		fd.Front = append(fd.Front, plots.Point{
 			Multiplies: ch.MultipliesPerOutput, MemoryBits: float64(ch.MemoryBits),
-			RejectionDB: rej, Label: ch.Notation,
+			LatencyS: ch.LatencyS, RejectionDB: rej, Label: ch.Notation,
 		})
 	}
 	for _, c := range res.Feasible {
@@ -86,6 +86,9 @@ func Files(ctx context.Context, rep *Report, res *optimize.Result, spec *specfil
 	if rep.Command == "check" {
 		fd.Title = "Chain named by --chain"
 	}
+	// The cloud holds the feasible candidates whose figures can be drawn,
+	// of which FeasibleAll counts all.
+	fd.FeasibleTotal = max(fd.FeasibleTotal, len(fd.Candidates))
 	frontFig, err := plots.Front(fd)
 	if err != nil {
 		return nil, fmt.Errorf("front plot: %v", err)
