@@ -28,6 +28,10 @@ type StageFigures struct {
 	MemoryBits          int
 	LatencyS            float64
 	Multipliers         int // hardware multipliers at Settings.Clock; 0 without a clock
+	// Lanes is how many input samples the stage takes per clock cycle
+	// (Lanes of its input rate): 1 at or below Settings.Clock or without
+	// one. A CIC's integrators are replicated over them (CICMemoryBits).
+	Lanes int
 }
 
 // Figures is what a chain costs (docs/design.md §5) and, for a designed chain, what it achieves (§7).
@@ -39,6 +43,7 @@ type Figures struct {
 	LatencyS            float64
 	LatencySamples      float64 // in output samples
 	MultipliersAtClock  int     // 0 without a clock
+	MaxLanes            int     // the most lanes of any stage (1 without a clock)
 	Stages              []StageFigures
 
 	Designed bool
@@ -113,22 +118,10 @@ func Price(spec chain.Spec, c *chain.Chain, s Settings) (Figures, error) {
 		case chain.CICStage:
 			n, m, r := v.N, v.M, v.R
 			add = float64(n*r + n)
-			regs := v.RegisterBits
-			if len(regs) != 2*n {
-				in := v.InputBits
-				if in == 0 {
-					in = width
-				}
-				w := chain.CICRegisterWidth(n, m, r, in)
-				regs = make([]int, 2*n)
-				for j := range regs {
-					regs[j] = w
-				}
-			}
-			dataWords = n + n*m
-			for j := 0; j < n; j++ {
-				dataBits += regs[j] + m*regs[n+j]
-			}
+			regs := cicRegisters(v, width)
+			lanes := Lanes(rates[i], s.Clock)
+			dataWords = n*lanes + n*m
+			dataBits = CICMemoryBits(v, width, lanes)
 			delayIn = float64(n*(r*m-1)) / 2
 			if v.OutputBits > 0 {
 				width = v.OutputBits
@@ -179,6 +172,8 @@ func Price(spec chain.Spec, c *chain.Chain, s Settings) (Figures, error) {
 		if s.Clock > 0 && mul > 0 {
 			sf.Multipliers = int(math.Ceil(mul*float64(cx)*rates[i+1]/s.Clock - 1e-9))
 		}
+		sf.Lanes = Lanes(rates[i], s.Clock)
+		f.MaxLanes = max(f.MaxLanes, sf.Lanes)
 		f.Stages[i] = sf
 		f.MultipliesPerOutput += sf.MultipliesPerOutput
 		f.AddsPerOutput += sf.AddsPerOutput
@@ -189,4 +184,50 @@ func Price(spec chain.Spec, c *chain.Chain, s Settings) (Figures, error) {
 	}
 	f.LatencySamples = f.LatencyS * fk
 	return f, nil
+}
+
+// Lanes is how many samples a stage whose input runs at rate Hz must take
+// per cycle of a clock of clock Hz: ceil(rate/clock), and 1 without a clock
+// (0) or at or below it. Such a stage is built as that many parallel
+// lanes (a polyphase decomposition of the same filter).
+func Lanes(rate, clock float64) int {
+	if !(clock > 0) || !(rate > clock) {
+		return 1
+	}
+	return int(math.Ceil(rate/clock - 1e-9))
+}
+
+// CICMemoryBits is a CIC's register memory as Price counts it: each
+// integrator's register once per lane (a CIC whose input runs above the
+// clock is built lanes wide, and each lane's running sum is registered:
+// common practice, a planning estimate), and M delay words per comb (the
+// combs run at the output rate), each as wide as its pruned register
+// (CICStage.RegisterBits; without them, chain.CICRegisterWidth for inBits,
+// or for the stage's own InputBits when set).
+func CICMemoryBits(v chain.CICStage, inBits, lanes int) int {
+	regs := cicRegisters(v, inBits)
+	bits := 0
+	for j := 0; j < v.N; j++ {
+		bits += max(1, lanes)*regs[j] + v.M*regs[v.N+j]
+	}
+	return bits
+}
+
+// cicRegisters are v's 2N register widths: its pruned ones, or the unpruned
+// width for its input word.
+func cicRegisters(v chain.CICStage, inBits int) []int {
+	n := v.N
+	if len(v.RegisterBits) == 2*n {
+		return v.RegisterBits
+	}
+	in := v.InputBits
+	if in == 0 {
+		in = inBits
+	}
+	w := chain.CICRegisterWidth(n, v.M, v.R, in)
+	regs := make([]int, 2*n)
+	for j := range regs {
+		regs[j] = w
+	}
+	return regs
 }

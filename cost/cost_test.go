@@ -46,35 +46,39 @@ func TestPriceHandCounted(t *testing.T) {
 			// ceil(31/2) = 16. Total 22.
 			// Adds: CIC N R + N = 27 x 4 later = 108; half-band 2K = 6 x 2 = 12;
 			// FIR 30. Total 150.
-			// Memory: CIC 3 integrators + 3 comb delays, 21 bits each: 6 words,
-			// 126 bits; half-band 3K = 9 data words x 21 bits (CIC output) + 3
-			// coefficients x 18 = 243 bits in 12 words; FIR 31 x 24 + 16 x 18 =
-			// 1032 bits in 47 words. Total 65 words, 1401 bits.
+			// Memory: the CIC's 32 MHz input takes ceil(32/10) = 4 lanes at
+			// the 10 MHz clock, so 3 integrators x 4 lanes + 3 comb delays,
+			// 21 bits each: 15 words, 315 bits; half-band 3K = 9 data words x
+			// 21 bits (CIC output) + 3 coefficients x 18 = 243 bits in 12
+			// words; FIR 31 x 24 + 16 x 18 = 1032 bits in 47 words. Total 74
+			// words, 1590 bits (65 and 1401 with one lane).
 			// Multipliers at 10 MHz: half-band 3 x 2 MHz / 10 MHz -> 1; FIR
 			// 16 x 1 MHz / 10 MHz -> 2. Total 3.
 			// Latency: CIC 3 (8-1)/2 = 10.5 samples at 32 MHz; half-band 5 at
 			// 4 MHz; FIR 15 at 2 MHz.
 			name: "real, symmetric", s: Settings{Clock: 10e6},
-			mpo: 22, adds: 150, words: 65, bits: 1401, mults: 3,
+			mpo: 22, adds: 150, words: 74, bits: 1590, mults: 3,
 			stageMPO:     []float64{0, 6, 16},
 			stageLatency: []float64{10.5 / 32e6, 5 / 4e6, 15 / 2e6},
 		},
 		{
-			// No symmetry: half-band 2K = 6 x 2 = 12, FIR 31: 43. Coefficients
-			// 6 and 31 words: 126 + (189 + 108) + (744 + 558) = 1725 bits,
-			// 6 + 15 + 62 = 83 words. At 1 MHz: 12 + 31 = 43 multipliers.
+			// No symmetry: half-band 2K = 6 x 2 = 12, FIR 31: 43. At the 1 MHz
+			// clock the CIC takes 32 lanes: 3 x 32 + 3 = 99 words, 2079 bits.
+			// Coefficients 6 and 31 words: 2079 + (189 + 108) + (744 + 558) =
+			// 3678 bits, 99 + 15 + 62 = 176 words. At 1 MHz: 12 + 31 = 43
+			// multipliers.
 			name: "real, no symmetry", s: Settings{NoSymmetry: true, Clock: 1e6},
-			mpo: 43, adds: 150, words: 83, bits: 1725, mults: 43,
+			mpo: 43, adds: 150, words: 176, bits: 3678, mults: 43,
 			stageMPO:     []float64{0, 12, 31},
 			stageLatency: []float64{10.5 / 32e6, 5 / 4e6, 15 / 2e6},
 		},
 		{
 			// Complex doubles multiplies, adds and data memory, not
-			// coefficients: words 12 + (18 + 3) + (62 + 16) = 111, bits 252 +
-			// (378 + 54) + (1488 + 288) = 2460. At 10 MHz: ceil(1.2) +
-			// ceil(3.2) = 6.
+			// coefficients: words 30 + (18 + 3) + (62 + 16) = 129, bits 630 +
+			// (378 + 54) + (1488 + 288) = 2838 (the CIC 4 lanes wide as
+			// above). At 10 MHz: ceil(1.2) + ceil(3.2) = 6.
 			name: "complex, symmetric", complex: true, s: Settings{Clock: 10e6},
-			mpo: 44, adds: 300, words: 111, bits: 2460, mults: 6,
+			mpo: 44, adds: 300, words: 129, bits: 2838, mults: 6,
 			stageMPO:     []float64{0, 12, 32},
 			stageLatency: []float64{10.5 / 32e6, 5 / 4e6, 15 / 2e6},
 		},
@@ -171,5 +175,37 @@ func TestEvaluateDesigned(t *testing.T) {
 	want := float64((len(hb.Taps)+1)/4*8 + (len(f4.Taps)+1)/2*2 + (len(f2.Taps)+1)/2)
 	if f.MultipliesPerOutput != want {
 		t.Errorf("MPO %v, hand formula %v", f.MultipliesPerOutput, want)
+	}
+}
+
+// Lanes: ceil(rate/clock), 1 at or below the clock or without one; each
+// stage of the hand-counted chain reports its own (32, 4 and 2 MHz inputs).
+func TestLanes(t *testing.T) {
+	for _, tc := range []struct {
+		rate, clock float64
+		want        int
+	}{
+		{2.4e9, 400e6, 6}, {2.4e9, 0, 1}, {400e6, 400e6, 1}, {400.1e6, 400e6, 2}, {3e9, 491.52e6, 7}, {100e6, 491.52e6, 1},
+	} {
+		if got := Lanes(tc.rate, tc.clock); got != tc.want {
+			t.Errorf("Lanes(%g, %g) = %d, want %d", tc.rate, tc.clock, got, tc.want)
+		}
+	}
+	sp, c := handChain(false)
+	sp, _ = sp.Normalize()
+	f, err := Price(sp, c, Settings{Clock: 1e6})
+	if err != nil {
+		t.Fatal(err)
+	}
+	for i, want := range []int{32, 4, 2} {
+		if f.Stages[i].Lanes != want {
+			t.Errorf("stage %d: %d lanes at 1 MHz, want %d", i+1, f.Stages[i].Lanes, want)
+		}
+	}
+	if f.MaxLanes != 32 {
+		t.Errorf("MaxLanes = %d, want 32", f.MaxLanes)
+	}
+	if g, _ := Price(sp, c, Settings{}); g.MaxLanes != 1 || g.Stages[0].Lanes != 1 {
+		t.Errorf("without a clock: MaxLanes %d, stage 1 lanes %d; want 1", g.MaxLanes, g.Stages[0].Lanes)
 	}
 }

@@ -38,7 +38,9 @@
 //	half-band:  3K data words (the 2K-tap branch and the centre branch's
 //	            K-word delay), plus 2K coefficient words, or K with symmetry
 //	CIC:        N integrator registers plus N M comb delay words, each at its
-//	            own pruned register width (CICStage.RegisterBits), no coefficients
+//	            own pruned register width (CICStage.RegisterBits), no
+//	            coefficients; with a clock below its input rate, the
+//	            integrators once per lane (see Lanes below)
 //
 // A CIC's register widths are chain.PruneCIC's (NewCICStage fills
 // CICStage.RegisterBits from it): Hogenauer's pruning with the guard bits
@@ -62,4 +64,15 @@
 // where m_i is the stage's multiplies per its own output (doubled for
 // complex), summed over the stages: each stage has its own multipliers,
 // time-shared within the stage only.
+//
+// Lanes at clock fclk: a stage whose input rate F(i-1) exceeds fclk takes
+// P = ceil(F(i-1)/fclk) samples per clock cycle and is built as P parallel
+// lanes (a polyphase decomposition of the same filter); StageFigures.Lanes
+// is P, 1 at or below the clock or without one. A CIC so built registers
+// each lane's running sum, so its N integrator registers count P times in
+// its memory (CICMemoryBits); its combs run at its output rate and its
+// adds per output are the same operations. A FIR or half-band stage's
+// multipliers at the clock already follow its rate, and its delay line is
+// shared by the lanes. This is a planning estimate of the structure:
+// pipelining and the vendor's tools decide the rest.
 package cost

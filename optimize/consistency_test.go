@@ -11,16 +11,23 @@ import (
 // TestEstimatorMatchesChain: the estimate tier's fast figures must be the
 // ones chain.Estimate and cost.Price give for the same plan, since the
 // faint cloud is drawn beside designed figures priced by cost.
+// The last case runs its input at three times a fabric clock, so its CICs
+// are priced three lanes wide.
 func TestEstimatorMatchesChain(t *testing.T) {
-	for _, spec := range []chain.Spec{rxSpec(), {
+	for ci, spec := range []chain.Spec{rxSpec(), {
 		InputRate: 10e3, OutputRate: 100, Passband: 45, Protected: 50, Stopband: 50,
 		RippleDB: 20 * math.Log10(1.01/0.99), RejectionDB: 60,
-	}, func() chain.Spec { s := rxSpec(); s.Complex = true; s.Protected = 12e3; return s }()} {
+	}, func() chain.Spec { s := rxSpec(); s.Complex = true; s.Protected = 12e3; return s }(), rxSpec()} {
 		ns, err := spec.Normalize()
 		if err != nil {
 			t.Fatal(err)
 		}
+		cs := cost.Settings{}
+		if ci == 3 {
+			cs.Clock = ns.InputRate / 3
+		}
 		p := newParams(ns, false)
+		p.clock = cs.Clock
 		est := newEstimator(p, 0)
 		est.keepBeaten = true
 		sp := newSpace(&p, &Settings{})
@@ -47,7 +54,7 @@ func TestEstimatorMatchesChain(t *testing.T) {
 			if drop != dropNone {
 				return true
 			}
-			g, err := cost.Price(ns, c, cost.Settings{})
+			g, err := cost.Price(ns, c, cs)
 			if err != nil {
 				t.Fatal(err)
 			}

@@ -9,6 +9,7 @@ import (
 	"github.com/stepdown-dsp/stepdown/chain"
 	"github.com/stepdown-dsp/stepdown/chain/fixed"
 	"github.com/stepdown-dsp/stepdown/chain/remez"
+	"github.com/stepdown-dsp/stepdown/cost"
 )
 
 // Reason is why a candidate was dropped. Its value is a stable name, the
@@ -150,6 +151,9 @@ type params struct {
 	fixedBits      int
 	complex, noSym bool
 	d              int
+	// clock is the fabric clock in Hz (cost.Settings.Clock), 0 for none: a
+	// first-stage CIC whose input runs above it is priced lanes wide.
+	clock float64
 }
 
 // newParams reads a spec whose defaults are filled in.
@@ -410,8 +414,9 @@ func (e *estimator) stage(k stageKey) stageVal {
 			return v
 		}
 		// Priced as cost.Price does, with chain.PruneCIC's registers.
-		v.f.words = float64(n+n*m) * cplx
-		v.f.bits = float64(cicMemoryBits(e.cicStage(f, n, m))) * cplx
+		lanes := cost.Lanes(e.p.f0, e.p.clock)
+		v.f.words = float64(n*lanes+n*m) * cplx
+		v.f.bits = float64(cost.CICMemoryBits(e.cicStage(f, n, m), p.inBits, lanes)) * cplx
 		v.f.lat = float64(n) * float64(f*m-1) / 2 / rate
 		// Pruning its registers and measuring its alias bands both grow
 		// with N R M.
@@ -601,16 +606,6 @@ func (e *estimator) cicStage(r, n, m int) chain.CICStage {
 	return cs
 }
 
-// cicMemoryBits is a CIC's data memory as cost.Price counts it: one word
-// per integrator and M per comb, each as wide as its register.
-func cicMemoryBits(cs chain.CICStage) int {
-	bits := 0
-	for j := 0; j < cs.N && 2*cs.N == len(cs.RegisterBits); j++ {
-		bits += cs.RegisterBits[j] + cs.M*cs.RegisterBits[cs.N+j]
-	}
-	return bits
-}
-
 // cicBeaten reports whether another searched CIC of the same factor meets
 // the rejection with no more memory, latency, droop at fp or output width,
 // and less of one. The rest of the chain being equal, such a CIC makes the
@@ -644,7 +639,7 @@ func (e *estimator) cicBeaten(r, n, m int) bool {
 			if last {
 				w = cs.Width()
 			}
-			bits := float64(cicMemoryBits(cs))
+			bits := float64(cost.CICMemoryBits(cs, e.p.inBits, cost.Lanes(e.p.f0, e.p.clock)))
 			lat := float64(nn) * float64(r*mm-1) / 2 / e.p.f0
 			droop := -math.Log(cicGain(e.p.fp, e.p.f0, r, nn, mm))
 			ok = append(ok, cfg{nn, mm, [4]float64{bits, lat, droop, float64(w)}})

@@ -53,6 +53,7 @@ func Plan(ctx context.Context, spec chain.Spec, s Settings) (*Result, error) {
 		return nil, err
 	}
 	p := newParams(ns, s.Cost.NoSymmetry)
+	p.clock = s.Cost.Clock
 	p.d = ns.Decimation()
 	if s.Chain.Memo == nil {
 		// Most stage designs of a search repeat a stage of another chain

@@ -526,6 +526,14 @@ func printTable(w io.Writer, rep *report.Report) {
 	if clock {
 		head = append(head[:6], append([]string{"multipliers"}, head[6:]...)...)
 	}
+	// A lanes column when some chain's first stages run above the clock.
+	lanes := false
+	for _, ch := range rep.Front {
+		lanes = lanes || (ch.ParallelLanes != nil && *ch.ParallelLanes > 1)
+	}
+	if lanes {
+		head = append(head[:7], append([]string{"lanes"}, head[7:]...)...)
+	}
 	rows := [][]string{head}
 	for i, ch := range rep.Front {
 		mark := ""
@@ -548,6 +556,9 @@ func printTable(w io.Writer, rep *report.Report) {
 				m = *ch.MultipliersAtClock
 			}
 			row = append(row, fmt.Sprint(m))
+		}
+		if lanes {
+			row = append(row, fmt.Sprint(*ch.ParallelLanes))
 		}
 		row = append(row,
 			fmt.Sprintf("%s (%.1f out)", seconds(ch.LatencyS), ch.LatencySamples),
@@ -586,6 +597,10 @@ func printTable(w io.Writer, rep *report.Report) {
 			fmt.Fprintf(w, "; memory counts %d-bit coefficient words, report.json's fixed_memory_bits the chosen widths", cost.FloatCoefBits)
 		}
 		fmt.Fprintln(w)
+	}
+	if lanes {
+		fmt.Fprintf(w, "lanes: the input (%s) runs above the %s clock, so the first stages take that many samples per clock cycle, built as parallel lanes; a CIC's integrators are counted once per lane in its memory (an estimate of the structure: the vendor's tools decide)\n",
+			units.FormatFrequency(rep.Spec.InputRateHz), units.FormatFrequency(*rep.Spec.Hardware.ClockHz))
 	}
 }
 

@@ -125,7 +125,10 @@ type Chain struct {
 	LatencyS            float64 `json:"latency_s"`
 	LatencySamples      float64 `json:"latency_samples"`
 	MultipliersAtClock  *int    `json:"multipliers_at_clock,omitempty"`
-	AliasRejectionDB    float64 `json:"alias_rejection_db"`
+	// ParallelLanes is the most lanes of any stage (with a clock only): a
+	// chain whose first stages run above the clock is built that wide.
+	ParallelLanes    *int    `json:"parallel_lanes,omitempty"`
+	AliasRejectionDB float64 `json:"alias_rejection_db"`
 	// RejectionMarginDB is the verdict's rejection over the target: the
 	// worse of the rounded taps' and the float design's when VerdictBasis
 	// is "rounded taps", the float design's otherwise.
@@ -155,6 +158,9 @@ type Stage struct {
 	MemoryBits          int     `json:"memory_bits"`
 	LatencyS            float64 `json:"latency_s"`
 	Multipliers         *int    `json:"multipliers_at_clock,omitempty"`
+	// ParallelLanes is how many input samples the stage takes per clock
+	// cycle (cost.Lanes), with a clock only: 1 at or below it.
+	ParallelLanes *int `json:"parallel_lanes,omitempty"`
 
 	// CIC only.
 	CICOrder     int   `json:"cic_order,omitempty"`
@@ -230,8 +236,8 @@ func NewChain(spec chain.Spec, cand optimize.Candidate, clock bool) (Chain, erro
 	out.FloatMeetsTargets = a.Meets(spec)
 	out.MeetsTargets, out.VerdictBasis = out.FloatMeetsTargets, "float taps"
 	if clock {
-		m := f.MultipliersAtClock
-		out.MultipliersAtClock = &m
+		m, l := f.MultipliersAtClock, max(1, f.MaxLanes)
+		out.MultipliersAtClock, out.ParallelLanes = &m, &l
 	}
 	c := cand.Chain
 	if c == nil {
@@ -253,8 +259,8 @@ func NewChain(spec chain.Spec, cand optimize.Candidate, clock bool) (Chain, erro
 			s.MemoryBits = sf.MemoryBits
 			s.LatencyS = sf.LatencyS
 			if clock {
-				m := sf.Multipliers
-				s.Multipliers = &m
+				m, l := sf.Multipliers, max(1, sf.Lanes)
+				s.Multipliers, s.ParallelLanes = &m, &l
 			}
 		}
 		// The cases cover every kind of chain.Kinds (FIR and half-band are
