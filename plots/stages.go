@@ -129,7 +129,7 @@ func barLabels(vals plotter.Values, offset vg.Length) plot.Plotter {
 	}
 	l, _ := plotter.NewLabels(plotter.XYLabels{XYs: xys, Labels: labels})
 	for i := range l.TextStyle {
-		l.TextStyle[i] = textStyle(9, false)
+		l.TextStyle[i] = textStyle(10, false)
 		l.TextStyle[i].XAlign = draw.XCenter
 		l.TextStyle[i].YAlign = draw.YBottom
 	}

@@ -304,7 +304,7 @@ func snapshot(t *testing.T, dir string) map[string]string {
 }
 
 // The files every plan and check writes (coefficient files depend on the chain).
-var outputFiles = []string{"report.json", "front.svg", "front.png", "response.svg", "response.png", "stages.svg"}
+var outputFiles = []string{"report.json", "front.svg", "front.png", "response.svg", "response.png", "stages.svg", "stages.png"}
 
 func TestPlanExampleEndToEnd(t *testing.T) {
 	dir := t.TempDir()

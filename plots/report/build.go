@@ -55,7 +55,7 @@ func responseGrid(f0, fk float64) []float64 {
 
 // Files renders every file a plan or check writes, in memory, in the order
 // written: report.json, front.svg and .png, response.svg and .png,
-// stages.svg, then the recommended chain's coefficient files (see
+// stages.svg and .png, then the recommended chain's coefficient files (see
 // CoefficientFiles). rep is NewContext's report of res for spec. ctx stops
 // it between figures (each takes a fraction of a second), returning
 // ctx.Err().
@@ -117,7 +117,7 @@ func Files(ctx context.Context, rep *Report, res *optimize.Result, spec *specfil
 	figs, err := renderAll(ctx, []figureFiles{
 		{"front", frontFig, []string{"svg", "png"}},
 		{"response", respFig, []string{"svg", "png"}},
-		{"stages", stFig, []string{"svg"}},
+		{"stages", stFig, []string{"svg", "png"}},
 	})
 	if err != nil {
 		return nil, err

@@ -68,6 +68,7 @@ func ExampleFiles() {
 	// response.svg
 	// response.png
 	// stages.svg
+	// stages.png
 	// coefficients/stage2_fir.csv
 	// coefficients/stage2_fir_int.csv
 	// coefficients/stage2_fir.hex
