@@ -319,8 +319,9 @@ type regrounder interface {
 // salvage is the front of a search stopped before any chain was measured:
 // the chains designed so far, priced, have their front measured (analyze)
 // for at most salvageGrace; members that miss the spec are dropped and the
-// front taken again. Only measured chains are returned, so a partial front
-// holds no estimate either; it may be empty.
+// front taken again. When the time runs out first, it is the front of the
+// chains measured by then that meet. Only measured chains are returned, so
+// a partial front holds no estimate either; it may be empty.
 func (t *designTier) salvage() []Candidate {
 	rg, ok := t.des.(regrounder)
 	if !ok {
@@ -359,13 +360,20 @@ func (t *designTier) salvage() []Candidate {
 			outs[i] = outcome{c: c, reason: why, analyzed: true}
 		}, nil)
 		for i, ok := range done {
-			if !ok {
-				return nil
+			if ok {
+				measured[planKey(todo[i].Plan)] = outs[i]
 			}
-			measured[planKey(todo[i].Plan)] = outs[i]
 		}
 	}
-	return nil
+	// Out of time: the front of the chains measured and meeting, which is
+	// all the search can vouch for.
+	var met []Candidate
+	for _, k := range t.order {
+		if o, ok := measured[k]; ok && o.reason == "" {
+			met = append(met, o.c)
+		}
+	}
+	return designedFront(met)
 }
 
 // widener is a designer that can name the coefficient width a dropped

@@ -57,11 +57,14 @@
 // answer is bracketed and bisecting: typically a handful of designs, never
 // more than 40. MinLength's first step follows the estimate's own slope
 // (the taps Herrmann's formula adds for a factor e of error at the binding
-// transition) and caps later secant steps at four times it; every design
-// after the first starts from the converged reference of the nearest
-// length already designed, scaled band by band, instead of a seed design.
-// Either changes only how fast the search gets there: each length is still
-// designed to convergence and judged on its measured taps. Gaps between bands of equal gain (the don't-care slivers
+// transition), and a later secant never assumes more than four times that
+// many taps per factor e; every design after the first starts from the
+// converged reference of the nearest length already designed, scaled band
+// by band, instead of a seed design. With the default MaxIterations each
+// length is still designed to convergence and judged on its measured
+// taps, so either changes only how fast the search gets there; with
+// MaxIterations cut short, a length's unconverged design, and so the answer,
+// may depend on its start. Gaps between bands of equal gain (the don't-care slivers
 // between alias stopbands) are not transitions for the estimate. A length
 // met to rounding level counts as too long; one that cannot be designed
 // counts as failing. Every phase of a design (coarse seeding, grid

@@ -462,7 +462,7 @@ func twice(t, pm string) string {
 	if err != nil || !(v > 0) {
 		return "twice the tolerance, in dB"
 	}
-	return strconv.FormatFloat(2*v, 'g', -1, 64) + " dB"
+	return strconv.Quote(strconv.FormatFloat(2*v, 'g', -1, 64) + " dB")
 }
 
 // quantity reads a frequency or level; ok is false when the key is absent.
@@ -636,7 +636,7 @@ func (p *parser) build() (*Spec, error) {
 		if raw, ok := p.lookup(f.key); ok && f.key == "ripple" {
 			if t, ok := raw.(string); ok {
 				if pm := plusMinus(t); pm != "" {
-					return nil, p.errAt(f.key, raw, "a tolerance of %s; ripple is the whole peak-to-peak span over the passband: write %q", pm, twice(t, pm))
+					return nil, p.errAt(f.key, raw, "a tolerance of %s; ripple is the whole peak-to-peak span over the passband: write %s", pm, twice(t, pm))
 				}
 			}
 		}

@@ -56,13 +56,14 @@ func checkCommand() *cli.Command {
 		Name:      "check",
 		Usage:     "evaluate a chain you name against the spec (same figures, plots and files as plan)",
 		ArgsUsage: "[SPEC.toml]",
-		UsageText: "stepdown check [SPEC.toml] --chain CHAIN [--front REPORT.json] [--out DIR] [--json] [--quiet] [--html]\n\n" +
+		UsageText: "stepdown check [SPEC.toml] --chain CHAIN [--front REPORT.json] [--out DIR] [--json] [--quiet] [--html] [--jobs N]\n\n" +
 			"CHAIN is the notation plan prints, e.g. \"cic4m1r8 > hb > fir4\". Without SPEC.toml the built-in example is used.\n" +
 			"The chain is compared with the plan's front (the spec is planned again, or --front names a plan's report.json).",
 		Flags: append(outFlags(),
 			&cli.StringFlag{Name: "chain", Usage: "the chain, in the notation plan prints"},
 			&cli.StringFlag{Name: "front", Usage: "compare with the front in this report.json of a plan of the same spec, instead of planning it again"},
 			&cli.BoolFlag{Name: "html", Usage: "also write report.html, one self-contained page for sharing and printing"},
+			&cli.IntFlag{Name: "jobs", Usage: "parallel designs when planning the spec to compare", DefaultText: "the number of CPUs"},
 		),
 		Action: runCheck,
 	}
@@ -100,6 +101,8 @@ type job struct {
 	json    bool
 	started time.Time
 	compare *report.Comparison // check: the front the chain is compared with
+	// compareNote says why check has no comparison, when it has none.
+	compareNote string
 }
 
 func newJob(c *cli.Context) (*job, error) {
@@ -185,7 +188,11 @@ func runPlan(c *cli.Context) error {
 		return fmt.Errorf("plan: %s", msg)
 	}
 	if res.Partial && len(res.Front) == 0 {
-		return fmt.Errorf("--timeout %v: stopped before any chain was designed; %s left as it was (allow more time)", c.Duration("timeout"), clip(j.out.Dir()))
+		what := "before any chain was designed"
+		if res.Designed > 0 {
+			what = fmt.Sprintf("after designing %d chains, before any could be measured against the spec", res.Designed)
+		}
+		return fmt.Errorf("--timeout %v: stopped %s; %s left as it was (allow more time)", c.Duration("timeout"), what, clip(j.out.Dir()))
 	}
 	if len(res.Front) == 0 {
 		return emptyFront(res, clip(j.out.Dir()))
@@ -225,6 +232,9 @@ func runCheck(c *cli.Context) error {
 			return usagef("--chain %q: at byte %d: expected %s, found %s", clip(notation), ne.Pos, ne.Expected, found)
 		}
 		return usagef("--chain %q: %s", clip(notation), specfile.InFileTerms(err.Error()))
+	}
+	if err := checkSearchFlags(c); err != nil {
+		return err
 	}
 	j, err := newJob(c)
 	if err != nil {
@@ -287,12 +297,18 @@ func (j *job) planFront(c *cli.Context, set optimize.Settings) (*report.Comparis
 		}
 		return cmp, nil
 	}
+	set.Jobs = c.Int("jobs")
+	prog := newProgress(c.App.ErrWriter, j.quiet)
+	set.Progress, set.Scoring = prog.update, prog.scoring
 	res, err := optimize.Plan(c.Context, j.spec.Chain, set)
+	prog.finish()
 	if c.Context.Err() != nil {
 		return nil, fmt.Errorf("interrupted; %s left as it was", clip(j.out.Dir()))
 	}
 	if err != nil {
-		return nil, fmt.Errorf("check: planning the spec to compare: %s", specfile.InFileTerms(err.Error()))
+		// The chain is still checked; only the comparison is left out.
+		j.compareNote = "not compared with a plan's front: planning the spec failed: " + specfile.InFileTerms(err.Error())
+		return nil, nil
 	}
 	rep, err := report.NewContext(c.Context, "plan", j.spec, res)
 	if err != nil {
@@ -438,6 +454,9 @@ func printSummary(w io.Writer, j *job, rep *report.Report, files []report.File) 
 	case rep.Command == "check":
 		fmt.Fprintf(w, "checked: %s\n  %s\n", rep.Front[0].Notation, rep.Reason)
 		printComparison(w, rep)
+		if j.compareNote != "" {
+			fmt.Fprintf(w, "  (%s)\n", j.compareNote)
+		}
 	default:
 		fmt.Fprintf(w, "recommended: #%d %s\n  %s\n", rep.Recommended+1, rep.Front[rep.Recommended].Notation, rep.Reason)
 	}
@@ -466,10 +485,25 @@ func printComparison(w io.Writer, rep *report.Report) {
 		}
 	case cw.OnFront:
 		fmt.Fprintf(w, "  It is #%d on the front of %s (%d chains).\n", cw.Rank, cw.Source, len(cw.Front))
-	case !rep.Front[0].MeetsTargets && len(cw.Front) > 0:
-		f := cw.Front[0]
-		fmt.Fprintf(w, "  The front of %s has %d chains that meet the spec, the first #1 %s (%s mult/out, %d memory bits, %s).\n",
-			cw.Source, len(cw.Front), f.Notation, trimFloat(f.MultipliesPerOutput, 1), f.MemoryBits, seconds(f.LatencyS))
+	case len(cw.Front) == 0:
+		fmt.Fprintf(w, "  %s found no chain that meets the spec.\n", capitalise(cw.Source))
+	case !rep.Front[0].MeetsTargets:
+		meet, first := 0, -1
+		for i, f := range cw.Front {
+			if f.MeetsTargets {
+				meet++
+				if first < 0 {
+					first = i
+				}
+			}
+		}
+		if meet == 0 {
+			fmt.Fprintf(w, "  None of the %d chains on the front of %s meets the spec as judged there either.\n", len(cw.Front), cw.Source)
+			break
+		}
+		f := cw.Front[first]
+		fmt.Fprintf(w, "  The front of %s has %d chains that meet the spec, the first #%d %s (%s mult/out, %d memory bits, %s).\n",
+			cw.Source, meet, first+1, f.Notation, trimFloat(f.MultipliesPerOutput, 1), f.MemoryBits, seconds(f.LatencyS))
 	default:
 		fmt.Fprintf(w, "  No chain on the front of %s (%d chains) beats it on every axis.\n", cw.Source, len(cw.Front))
 	}
@@ -544,7 +578,11 @@ func printTable(w io.Writer, rep *report.Report) {
 		if ch.Designed {
 			kind = "designed"
 		}
-		if !ch.MeetsTargets {
+		switch {
+		case !ch.MeetsTargets && rep.Partial && ch.VerdictBasis == "rounded taps" && ch.ChainReport == nil:
+			// Stopped before its word lengths: its rounded taps are not judged.
+			kind += ", not judged (stopped)"
+		case !ch.MeetsTargets:
 			kind += ", misses spec"
 		}
 		rej, rip := ch.BuiltFigures()
@@ -630,4 +668,12 @@ func seconds(s float64) string {
 		return fmt.Sprintf("%.3g us", s*1e6)
 	}
 	return fmt.Sprintf("%.3g ns", s*1e9)
+}
+
+// capitalise upper-cases s's first letter.
+func capitalise(s string) string {
+	if s == "" {
+		return s
+	}
+	return strings.ToUpper(s[:1]) + s[1:]
 }

@@ -4,6 +4,8 @@ import (
 	"encoding/json"
 	"fmt"
 	"os"
+	"path/filepath"
+	"reflect"
 	"strings"
 
 	"github.com/stepdown-dsp/stepdown/chain/specfile"
@@ -135,7 +137,7 @@ type FrontChain struct {
 
 // NewComparison is the comparison with the front of plan's report rep.
 func NewComparison(source string, rep *Report) *Comparison {
-	cmp := &Comparison{Source: source, plan: rep.Front}
+	cmp := &Comparison{Source: source, Front: []FrontChain{}, plan: rep.Front}
 	for _, c := range rep.Front {
 		cmp.Front = append(cmp.Front, FrontChain{Notation: c.Notation, MultipliesPerOutput: c.MultipliesPerOutput,
 			MemoryBits: c.MemoryBits, LatencyS: c.LatencyS, MeetsTargets: c.MeetsTargets})
@@ -169,26 +171,49 @@ func (r *Report) Compare(cmp *Comparison) {
 }
 
 // ReadComparison reads the front of a plan's report.json at path, which
-// must be a plan of a spec with the same rates, band edges and targets as
-// spec.
+// must be a complete plan (not stopped early) of a spec that prices chains
+// as spec does: the same rates, band edges, targets, signal, words,
+// hardware and cost settings (the search limits may differ). The
+// comparison's Source names the file by its base name only.
 func ReadComparison(path string, spec *specfile.Spec) (*Comparison, error) {
+	shown := units.Clip(path, units.MaxEcho)
 	b, err := os.ReadFile(path)
 	if err != nil {
-		return nil, fmt.Errorf("--front %q: %v", units.Clip(path, units.MaxEcho), unwrapPath(err))
+		return nil, fmt.Errorf("--front %q: %v", shown, unwrapPath(err))
 	}
 	var rep Report
-	if err := json.Unmarshal(b, &rep); err != nil || rep.Schema != Schema {
-		return nil, fmt.Errorf("--front %q: not a stepdown report.json (schema %q)", units.Clip(path, units.MaxEcho), Schema)
+	if err := json.Unmarshal(b, &rep); err != nil {
+		return nil, fmt.Errorf("--front %q: not a stepdown report.json (%s)", shown, units.Clip(err.Error(), units.MaxEcho))
+	}
+	if rep.Schema != Schema {
+		return nil, fmt.Errorf("--front %q: not a stepdown report.json (schema %q, want %q)", shown, units.Clip(rep.Schema, 30), Schema)
 	}
 	if rep.Command != "plan" {
-		return nil, fmt.Errorf("--front %q: the report of a %s, not of a plan", units.Clip(path, units.MaxEcho), units.Clip(rep.Command, 20))
+		what := "an unnamed command"
+		if rep.Command != "" {
+			what = "a " + units.Clip(rep.Command, 20)
+		}
+		return nil, fmt.Errorf("--front %q: the report of %s, not of a plan", shown, what)
+	}
+	if rep.Partial {
+		return nil, fmt.Errorf("--front %q: the plan was stopped early (partial), so its front is not the plan's; plan the spec to the end, or leave --front out", shown)
 	}
 	want := NewSpec(spec)
 	got := rep.Spec
-	if got.InputRateHz != want.InputRateHz || got.OutputRateHz != want.OutputRateHz || got.PassbandHz != want.PassbandHz ||
-		got.ProtectedHz != want.ProtectedHz || got.StopbandHz != want.StopbandHz || got.RippleDB != want.RippleDB ||
-		got.RejectionDB != want.RejectionDB || got.Signal != want.Signal {
-		return nil, fmt.Errorf("--front %q: planned for another spec (rates, band edges, ripple, rejection or signal differ); plan this spec, or leave --front out to plan it now", units.Clip(path, units.MaxEcho))
+	for _, d := range []struct {
+		what string
+		same bool
+	}{
+		{"rates, band edges, ripple, rejection or signal", got.InputRateHz == want.InputRateHz && got.OutputRateHz == want.OutputRateHz &&
+			got.PassbandHz == want.PassbandHz && got.ProtectedHz == want.ProtectedHz && got.StopbandHz == want.StopbandHz &&
+			got.RippleDB == want.RippleDB && got.RejectionDB == want.RejectionDB && got.Signal == want.Signal},
+		{"words (input, output, coefficients or unity_gain)", reflect.DeepEqual(got.Words, want.Words)},
+		{"hardware (clock or multiplier)", reflect.DeepEqual(got.Hardware, want.Hardware)},
+		{"cost.symmetry", got.Cost == want.Cost},
+	} {
+		if !d.same {
+			return nil, fmt.Errorf("--front %q: planned for another spec (its %s differ); plan this spec, or leave --front out to plan it now", shown, d.what)
+		}
 	}
-	return NewComparison(units.Clip(path, units.MaxEcho), &rep), nil
+	return NewComparison("the plan in "+units.Clip(filepath.Base(path), units.MaxEcho), &rep), nil
 }

@@ -1,8 +1,14 @@
 package report
 
 import (
+	"encoding/json"
 	"math/rand/v2"
+	"os"
+	"path/filepath"
+	"strings"
 	"testing"
+
+	"github.com/stepdown-dsp/stepdown/chain/specfile"
 )
 
 // BeatenBy against a brute-force reading of the definition on seeded random
@@ -56,5 +62,56 @@ func TestBeaterText(t *testing.T) {
 		if got := tc.b.Text(); got != tc.want {
 			t.Errorf("Text() = %q, want %q", got, tc.want)
 		}
+	}
+}
+
+// ReadComparison refuses a front that would compare unlike with like: a
+// plan stopped early, or priced with other words, hardware or cost
+// settings; it accepts the same spec and names the file by its base name.
+func TestReadComparison(t *testing.T) {
+	spec, err := specfile.Example()
+	if err != nil {
+		t.Fatal(err)
+	}
+	dir := t.TempDir()
+	write := func(name string, rep Report) string {
+		b, err := json.Marshal(rep)
+		if err != nil {
+			t.Fatal(err)
+		}
+		p := filepath.Join(dir, name)
+		if err := os.WriteFile(p, b, 0o644); err != nil {
+			t.Fatal(err)
+		}
+		return p
+	}
+	good := Report{Schema: Schema, Command: "plan", Spec: NewSpec(spec)}
+	cmp, err := ReadComparison(write("good.json", good), spec)
+	if err != nil || cmp.Source != "the plan in good.json" {
+		t.Fatalf("same spec: %v, source %q", err, cmp.Source)
+	}
+	for _, tc := range []struct {
+		name string
+		edit func(*Report)
+		frag string
+	}{
+		{"partial", func(r *Report) { r.Partial = true }, "stopped early"},
+		{"words", func(r *Report) { r.Spec.Words.Input++ }, "words"},
+		{"hardware", func(r *Report) { r.Spec.Hardware.Multiplier = "9x9" }, "hardware"},
+		{"cost", func(r *Report) { r.Spec.Cost.Symmetry = !r.Spec.Cost.Symmetry }, "cost.symmetry"},
+		{"rates", func(r *Report) { r.Spec.PassbandHz++ }, "band edges"},
+		{"check", func(r *Report) { r.Command = "check" }, "a check, not of a plan"},
+		{"no command", func(r *Report) { r.Command = "" }, "an unnamed command"},
+		{"schema", func(r *Report) { r.Schema = "other/1" }, `schema "other/1"`},
+	} {
+		r := good
+		r.Spec.Words = good.Spec.Words
+		tc.edit(&r)
+		if _, err := ReadComparison(write(tc.name+".json", r), spec); err == nil || !strings.Contains(err.Error(), tc.frag) {
+			t.Errorf("%s: err = %v, want it to say %q", tc.name, err, tc.frag)
+		}
+	}
+	if _, err := ReadComparison(write("bad.json", good)[:0]+filepath.Join(dir, "missing.json"), spec); err == nil {
+		t.Error("a missing file was accepted")
 	}
 }
