@@ -83,8 +83,26 @@ func Files(ctx context.Context, rep *Report, res *optimize.Result, spec *specfil
 			fd.Candidates = append(fd.Candidates, plots.Point{Multiplies: f.MultipliesPerOutput, MemoryBits: float64(f.MemoryBits)})
 		}
 	}
-	if rep.Command == "check" {
+	fd.TargetDB = rep.Spec.RejectionDB
+	if rep.Command == "check" && len(fd.Front) == 1 {
+		// The chain named is drawn as a cross over the front it was
+		// compared with (its chains that meet the spec), or alone.
+		named := fd.Front[0]
+		fd.Checked, fd.Recommended = &named, -1
 		fd.Title = "Chain named by --chain"
+		if cw := rep.ComparedWith; cw != nil {
+			var front []plots.Point
+			for _, f := range cw.Front {
+				if f.MeetsTargets {
+					front = append(front, plots.Point{Multiplies: f.MultipliesPerOutput, MemoryBits: float64(f.MemoryBits),
+						LatencyS: f.LatencyS, Label: f.Notation})
+				}
+			}
+			if len(front) > 0 {
+				fd.Front = front
+				fd.Title = "Chain named by --chain, against " + cw.Source
+			}
+		}
 	}
 	// The cloud holds the feasible candidates whose figures can be drawn,
 	// of which FeasibleAll counts all.
