@@ -528,17 +528,11 @@ func herrmann(dp, ds, df float64) float64 {
 	return n
 }
 
-// cicGain is |H(f)| of a CIC of order n, delay m, factor r at input rate
-// rate, normalised to 1 at f = 0 (docs/design.md §4).
+// cicGain is the unit-DC-gain magnitude of a CIC decimating by r, order
+// n, delay m at f Hz for input rate rate: chain.CICStage.Gain, the one
+// formula.
 func cicGain(f, rate float64, r, n, m int) float64 {
-	x := math.Pi * f / rate
-	rm := float64(r * m)
-	s := math.Sin(x)
-	if math.Abs(s) < 1e-300 {
-		return 1
-	}
-	g := math.Abs(math.Sin(x*rm) / (rm * s))
-	return math.Pow(g, float64(n))
+	return chain.CICStage{N: n, M: m, R: r}.Gain(f, rate)
 }
 
 // cicRejection is the CIC's rejection in dB over the bands that fold onto
