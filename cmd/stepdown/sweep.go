@@ -215,7 +215,7 @@ func printSweep(w io.Writer, source, dir string, v sweep.Vary, doc *sweep.Doc, f
 		if dv.StructureChanged {
 			n += "  <- changes"
 		}
-		row := []string{dv.ValueText, dv.Status, n, trimFloat(c.MultipliesPerOutput, 1), fmt.Sprint(c.MemoryBits), seconds(c.LatencyS)}
+		row := []string{dv.ValueText, dv.Status, n, report.TrimFloat(c.MultipliesPerOutput, 1), fmt.Sprint(c.MemoryBits), report.Seconds(c.LatencyS)}
 		if clock {
 			m := ""
 			if c.MultipliersAtClock != nil {
@@ -223,7 +223,7 @@ func printSweep(w io.Writer, source, dir string, v sweep.Vary, doc *sweep.Doc, f
 			}
 			row = append(row, m)
 		}
-		row = append(row, trimFloat(dv.Best.MultipliesPerOutput, 1), fmt.Sprint(dv.Best.MemoryBits), seconds(dv.Best.LatencyS))
+		row = append(row, report.TrimFloat(dv.Best.MultipliesPerOutput, 1), fmt.Sprint(dv.Best.MemoryBits), report.Seconds(dv.Best.LatencyS))
 		if clock {
 			m := ""
 			if dv.Best.MultipliersAtClock != nil {
@@ -362,7 +362,7 @@ func printGrid(w io.Writer, source, dir string, g sweep.Grid, rs []sweep.Result,
 		}
 		cell := r.Status.Mark()
 		if r.Status.HasChain() {
-			cell = trimFloat(r.Report.Front[r.Report.Recommended].MultipliesPerOutput, 1)
+			cell = report.TrimFloat(r.Report.Front[r.Report.Recommended].MultipliesPerOutput, 1)
 			if r.Status == sweep.Partial {
 				cell += "*"
 				partial = true

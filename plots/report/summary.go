@@ -1,0 +1,228 @@
+package report
+
+import (
+	"fmt"
+	"io"
+	"math"
+	"strings"
+
+	"github.com/stepdown-dsp/stepdown/chain"
+	"github.com/stepdown-dsp/stepdown/chain/units"
+	"github.com/stepdown-dsp/stepdown/cost"
+)
+
+// The terminal summary of a plan or check, as the command line prints it,
+// for any program that wants the same text.
+
+// WriteComparison writes, for a check's report, which chains of the
+// compared front beat the checked one and by how much, or its rank on it
+// (nothing without a comparison).
+func WriteComparison(w io.Writer, rep *Report) {
+	cw := rep.ComparedWith
+	if cw == nil {
+		return
+	}
+	switch {
+	case len(rep.BeatenBy) > 0:
+		fmt.Fprintf(w, "  Against %s (%d chains on its front), it is beaten:\n", cw.Source, len(cw.Front))
+		for _, b := range rep.BeatenBy {
+			fmt.Fprintf(w, "    %s\n", b.Text())
+		}
+	case cw.OnFront:
+		fmt.Fprintf(w, "  It is #%d on the front of %s (%d chains).\n", cw.Rank, cw.Source, len(cw.Front))
+	case len(cw.Front) == 0:
+		fmt.Fprintf(w, "  %s found no chain that meets the spec.\n", capitalise(cw.Source))
+	case !rep.Front[0].MeetsTargets:
+		meet, first := 0, -1
+		for i, f := range cw.Front {
+			if f.MeetsTargets {
+				meet++
+				if first < 0 {
+					first = i
+				}
+			}
+		}
+		if meet == 0 {
+			fmt.Fprintf(w, "  None of the %d chains on the front of %s meets the spec as judged there either.\n", len(cw.Front), cw.Source)
+			break
+		}
+		f := cw.Front[first]
+		fmt.Fprintf(w, "  The front of %s has %d chains that meet the spec, the first #%d %s (%s mult/out, %d memory bits, %s).\n",
+			cw.Source, meet, first+1, f.Notation, TrimFloat(f.MultipliesPerOutput, 1), f.MemoryBits, Seconds(f.LatencyS))
+	default:
+		fmt.Fprintf(w, "  No chain on the front of %s (%d chains) beats it on every axis.\n", cw.Source, len(cw.Front))
+	}
+}
+
+// WriteWordLengths writes the word-length plan of the recommended (or
+// checked) chain: the bit-true figures and each stage's widths.
+func WriteWordLengths(w io.Writer, rep *Report) {
+	ch := rep.Front[rep.Recommended]
+	coef := map[string]string{"fixed": "coefficients as set", "auto": "coefficients auto", "float": "coefficients auto, for information (the files stay floating point)"}[rep.Spec.Words.CoefficientsMode]
+	if ch.ChainReport == nil {
+		fmt.Fprintf(w, "\nword lengths: not planned (%s)\n", ch.WordLengthsError)
+		return
+	}
+	gain := fmt.Sprintf("DC gain %.2f dB", ch.DCGainDB)
+	if ch.GainCorrection != 1 && ch.GainCorrection != 0 {
+		gain += fmt.Sprintf(" (correction x%.6g folded into the last FIR)", ch.GainCorrection)
+	}
+	if ch.DCGainNote != "" {
+		gain += " (" + ch.DCGainNote + ")"
+	}
+	fmt.Fprintf(w, "\nword lengths (%s): %s; rounded taps: alias rejection %.2f dB, ripple %.4f dB; %s\n",
+		coef, ch.BitTrueSummary(), ch.QuantisedRejectionDB, ch.QuantisedRippleDB, gain)
+	for i, st := range ch.Stages {
+		sr := st.StageReport
+		if sr == nil {
+			continue
+		}
+		var b strings.Builder
+		fmt.Fprintf(&b, "  %d %-8s in %d bits", i+1, st.Kind, sr.InputBits)
+		if st.Kind == "cic" {
+			fmt.Fprintf(&b, ", registers %d..%d bits", sr.AccumulatorBits, sr.RegisterBits[len(sr.RegisterBits)-1])
+		} else {
+			fmt.Fprintf(&b, ", coefficients %d bits, accumulator %d bits, multiplier %s", sr.CoefficientBits, sr.AccumulatorBits, sr.MultiplierSize)
+			if sr.HardwareMultipliers != nil {
+				fmt.Fprintf(&b, " (%d hardware at %s)", *sr.HardwareMultipliers, rep.Spec.Hardware.Multiplier)
+			}
+			if !sr.QuantisedMeetsBands {
+				b.WriteString(", rounded taps miss this stage's own bands (the chain is judged as a whole)")
+			}
+		}
+		fmt.Fprintf(&b, ", out %d bits", sr.OutputBits)
+		fmt.Fprintln(w, b.String())
+	}
+}
+
+// WriteTable writes the front as the command line's table: one row per
+// chain with its figures and verdict, and the notes its columns need.
+func WriteTable(w io.Writer, rep *Report) {
+	clock := rep.Spec.Hardware.ClockHz != nil
+	head := []string{"", "#", "chain", "mult/out", "adds/out", "memory bits", "latency", "rejection", "ripple", "figures"}
+	rounded := len(rep.Front) > 0 && rep.Front[0].VerdictBasis == "rounded taps"
+	if rounded {
+		head[7], head[8] = "rejection*", "ripple*"
+	}
+	if clock {
+		head = append(head[:6], append([]string{"multipliers"}, head[6:]...)...)
+	}
+	// A lanes column when some chain's first stages run above the clock.
+	lanes := false
+	for _, ch := range rep.Front {
+		lanes = lanes || (ch.ParallelLanes != nil && *ch.ParallelLanes > 1)
+	}
+	if lanes {
+		head = append(head[:7], append([]string{"lanes"}, head[7:]...)...)
+	}
+	rows := [][]string{head}
+	for i, ch := range rep.Front {
+		mark := ""
+		if i == rep.Recommended {
+			mark = "*"
+		}
+		kind := "estimated"
+		if ch.Designed {
+			kind = "designed"
+		}
+		switch {
+		case !ch.MeetsTargets && rep.Partial && ch.VerdictBasis == "rounded taps" && ch.ChainReport == nil:
+			// Stopped before its word lengths: its rounded taps are not judged.
+			kind += ", not judged (stopped)"
+		case !ch.MeetsTargets:
+			kind += ", misses spec"
+		}
+		rej, rip := ch.BuiltFigures()
+		row := []string{mark, fmt.Sprint(i + 1), ch.Notation,
+			TrimFloat(ch.MultipliesPerOutput, 1), TrimFloat(ch.AddsPerOutput, 1), fmt.Sprint(ch.MemoryBits)}
+		if clock {
+			m := 0
+			if ch.MultipliersAtClock != nil {
+				m = *ch.MultipliersAtClock
+			}
+			row = append(row, fmt.Sprint(m))
+		}
+		if lanes {
+			row = append(row, fmt.Sprint(*ch.ParallelLanes))
+		}
+		row = append(row,
+			fmt.Sprintf("%s (%.1f out)", Seconds(ch.LatencyS), ch.LatencySamples),
+			fmt.Sprintf("%.2f dB", rej),
+			rippleText(rip),
+			kind)
+		rows = append(rows, row)
+	}
+	widths := make([]int, len(head))
+	for _, r := range rows {
+		for i, c := range r {
+			widths[i] = max(widths[i], len(c))
+		}
+	}
+	for _, r := range rows {
+		var b strings.Builder
+		for i, c := range r {
+			if i > 0 {
+				b.WriteString("  ")
+			}
+			if i >= 3 && i < len(r)-1 {
+				fmt.Fprintf(&b, "%*s", widths[i], c)
+			} else {
+				fmt.Fprintf(&b, "%-*s", widths[i], c)
+			}
+		}
+		fmt.Fprintln(w, strings.TrimRight(b.String(), " "))
+	}
+	if rounded {
+		what := "rounded to the automatic widths"
+		if c := rep.Spec.Words.Coefficients; c != nil {
+			what = fmt.Sprintf("rounded to %d bits", *c)
+		}
+		fmt.Fprintf(w, "* the worse of the float design and its taps %s, as they will be built: the verdict needs both to meet", what)
+		if rep.Spec.Words.CoefficientsMode == "auto" {
+			fmt.Fprintf(w, "; memory counts %d-bit coefficient words, report.json's fixed_memory_bits the chosen widths", cost.FloatCoefBits)
+		}
+		fmt.Fprintln(w)
+	}
+	if lanes {
+		fmt.Fprintf(w, "lanes: the input (%s) runs above the %s clock, so the first stages take that many samples per clock cycle, built as parallel lanes; a CIC's integrators are counted once per lane in its memory (an estimate of the structure: the vendor's tools decide)\n",
+			units.FormatFrequency(rep.Spec.InputRateHz), units.FormatFrequency(*rep.Spec.Hardware.ClockHz))
+	}
+}
+
+// rippleText writes a ripple figure; the analysis caps an unbounded one (a
+// null of the response inside the passband) at chain.MaxFigureDB.
+func rippleText(db float64) string {
+	if db >= chain.MaxFigureDB {
+		return "null in passband"
+	}
+	return fmt.Sprintf("%.4f dB", db)
+}
+
+// TrimFloat writes v without decimals when it is whole, else with prec.
+func TrimFloat(v float64, prec int) string {
+	if v == math.Trunc(v) {
+		return fmt.Sprintf("%.0f", v)
+	}
+	return fmt.Sprintf("%.*f", prec, v)
+}
+
+// Seconds writes a time in s, ms, us or ns, to three digits.
+func Seconds(s float64) string {
+	switch {
+	case s >= 1:
+		return fmt.Sprintf("%.3g s", s)
+	case s >= 1e-3:
+		return fmt.Sprintf("%.3g ms", s*1e3)
+	case s >= 1e-6:
+		return fmt.Sprintf("%.3g us", s*1e6)
+	}
+	return fmt.Sprintf("%.3g ns", s*1e9)
+}
+
+// capitalise upper-cases s's first letter.
+func capitalise(s string) string {
+	if s == "" {
+		return s
+	}
+	return strings.ToUpper(s[:1]) + s[1:]
+}
