@@ -452,39 +452,11 @@ func search(ctx context.Context, p params, s *Settings, est *estimator, des desi
 	first := est.maxTaps
 	for {
 		need := searchPass(ctx, &p, sp, s, est, t, res)
-		retake := t.retake
-		t.retake = false
-		failed := t.failed
-		t.failed = nil
-		if !res.Partial && !s.Exhaustive && (est.reinstate(failed, res.Front) || retake) {
-			// The pass leant on chains that failed: a front point setting
-			// the band, or a CIC pruning the CICs it beats. Search again
-			// without them; what was designed is kept.
-			debugf("search again: %d reinstated, retake %v, front %d, designed %d", len(est.reinstated), retake, len(res.Front), res.Designed)
-			resetPass(res)
-			continue
-		}
-		if len(res.Front) == 0 && !res.Partial && est.floorPrune && res.Dropped[ReasonRoundingFloor] > 0 {
-			// Nothing met, and the rounding floor pruned some: search
-			// again without the prune, so that whatever it could have
-			// missed is designed, and the chains that miss with rounded
-			// taps name the width they need.
-			est.floorPrune = false
-			resetPass(res)
-			continue
-		}
-		// A longer stage rounds no better, so the limit is not raised when
-		// chains met in floating point and missed with their taps rounded.
-		if !auto || res.Partial || len(res.Front) > 0 || need > autoMaxTaps || res.Dropped[ReasonMissQuantised] > 0 {
+		again := nextPass(s, est, t, res, need, auto)
+		if again == passDone {
 			break
 		}
-		// The limit left no chain: raise it, step by step, to the first
-		// step that keeps a candidate it dropped, and search again.
-		next := est.maxTaps
-		for float64(next) < need {
-			next = 2*next + 1
-		}
-		est.maxTaps = min(next, autoMaxTaps)
+		debugf("search again (%s): front %d, designed %d", again, len(res.Front), res.Designed)
 		resetPass(res)
 	}
 	res.MaxTaps = est.maxTaps
@@ -507,6 +479,58 @@ func search(ctx context.Context, p params, s *Settings, est *estimator, des desi
 		res.Reason += fmt.Sprintf(" No chain met the spec with FIR and half-band stages of at most %d taps, so the limit was raised to %d.", first, est.maxTaps)
 	}
 	return res, nil
+}
+
+// passReason says why the search runs another pass, or passDone.
+type passReason int
+
+const (
+	passDone passReason = iota
+	// passLeaned: the pass leant on chains that failed to design or missed
+	// the spec (a front point that set the band, or a CIC that pruned the
+	// CICs it beats): the next runs without them, keeping what was designed.
+	passLeaned
+	// passNoFloorPrune: nothing met, and the rounding-floor prune dropped
+	// some candidate: the next runs without the prune, so that whatever it
+	// could have missed is designed and the chains that miss with rounded
+	// taps name the width they need.
+	passNoFloorPrune
+	// passRaiseTaps: the automatic tap limit left no chain: the next runs
+	// at the first step of the limit that keeps a candidate it dropped.
+	passRaiseTaps
+)
+
+func (r passReason) String() string {
+	return [...]string{"done", "leant on failed chains", "without the rounding-floor prune", "tap limit raised"}[r]
+}
+
+// nextPass decides, after a pass, whether the search runs another and sets
+// the estimator up for it (the one place that steers the passes). need is
+// the least tap limit that keeps a candidate the pass's limit dropped.
+func nextPass(s *Settings, est *estimator, t *designTier, res *Result, need float64, auto bool) passReason {
+	retake, failed := t.retake, t.failed
+	t.retake, t.failed = false, nil
+	if res.Partial {
+		return passDone
+	}
+	if !s.Exhaustive && (est.reinstate(failed, res.Front) || retake) {
+		return passLeaned
+	}
+	if len(res.Front) == 0 && est.floorPrune && res.Dropped[ReasonRoundingFloor] > 0 {
+		est.floorPrune = false
+		return passNoFloorPrune
+	}
+	// A longer stage rounds no better, so the limit is not raised when
+	// chains met in floating point and missed with their taps rounded.
+	if !auto || len(res.Front) > 0 || need > autoMaxTaps || res.Dropped[ReasonMissQuantised] > 0 {
+		return passDone
+	}
+	next := est.maxTaps
+	for float64(next) < need {
+		next = 2*next + 1
+	}
+	est.maxTaps = min(next, autoMaxTaps)
+	return passRaiseTaps
 }
 
 // resetPass clears what a search pass counts, before another pass.
