@@ -16,6 +16,24 @@ const (
 	MaxCICDelay      = 4  // the longest CIC differential delay a search may list
 )
 
+// Limits are what the fabric can build; a zero field is no limit. Chains
+// that break one are dropped (ReasonOverRegisterBits, ReasonOverCICFactor,
+// ReasonOverMultipliers, ReasonOverMemory), so the front holds only chains
+// within them.
+type Limits struct {
+	// MaxRegisterBits is the widest register a CIC may need (its pruned
+	// integrator and comb registers, chain.PruneCIC): an accumulator's
+	// width in the fabric, such as 48.
+	MaxRegisterBits int
+	// MaxCICFactor is the largest decimation a CIC stage may take.
+	MaxCICFactor int
+	// MaxMultipliers bounds a chain's hardware multipliers at the clock
+	// (cost.Figures.MultipliersAtClock); it needs Cost.Clock.
+	MaxMultipliers int
+	// MaxMemoryBits bounds a chain's memory (cost.Figures.MemoryBits).
+	MaxMemoryBits int
+}
+
 // DefaultCICOrders are the CIC orders a search tries when Settings.CICOrders
 // is nil: 1 to 7.
 func DefaultCICOrders() []int { return []int{1, 2, 3, 4, 5, 6, 7} }
@@ -31,6 +49,9 @@ type Settings struct {
 	CICOrders []int        // nil means DefaultCICOrders; each 1..MaxCICOrder
 	CICDelays []int        // nil means DefaultCICDelays; each 1..MaxCICDelay
 	Jobs      int          // parallel designs; zero means runtime.GOMAXPROCS(0)
+
+	// Limits are the fabric's; the zero value sets none.
+	Limits Limits
 
 	// Rule picks the recommendation; the zero value is Knee.
 	Rule Rule

@@ -56,6 +56,20 @@
 // range. Reasons that hang on the first-stage
 // CIC alone are counted for every candidate under it without walking them.
 //
+// # Limits
+//
+// Settings.Limits are the fabric's (zero: none). A first-stage CIC whose
+// factor or widest pruned register (chain.PruneCIC) exceeds MaxCICFactor
+// or MaxRegisterBits is dropped in the estimate tier, exactly, and never
+// beats another CIC. A candidate whose memory, or whose multipliers at the
+// clock, exceed MaxMemoryBits or MaxMultipliers even at the favourable end
+// of its range is dropped there too (the multipliers bounded below by
+// ceil(multiplies per second / clock) for each stage with multiplies, each
+// stage having its own); the others are checked on their real figures
+// after design and after every re-design. Each is counted under its
+// Reason; when the front is empty and a limit dropped candidates,
+// Result.Reason names the one that dropped the most.
+//
 // # Design tier
 //
 // The estimated front is taken over the feasible candidates. A band of

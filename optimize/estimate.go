@@ -44,25 +44,34 @@ const (
 	// ReasonWordLengths: fixed.PlanChain could not plan the chain's word
 	// lengths, so its rounded taps could not be measured.
 	ReasonWordLengths Reason = "word_lengths_not_planned"
+	// Chains beyond Settings.Limits.
+	ReasonOverRegisterBits Reason = "cic_register_over_limit"
+	ReasonOverCICFactor    Reason = "cic_factor_over_limit"
+	ReasonOverMultipliers  Reason = "multipliers_over_limit"
+	ReasonOverMemory       Reason = "memory_over_limit"
 )
 
 // reasonText is each Reason in words.
 var reasonText = map[Reason]string{
-	ReasonCICRejection:   "cic rejection below target",
-	ReasonCICDroop:       "cic droop not compensated",
-	ReasonHalfBandEdges:  "halfband edges do not fit",
-	ReasonShortFIR:       "fir stage under 3 taps",
-	ReasonDesignFailed:   "design failed",
-	ReasonEvaluateFailed: "evaluation failed",
-	ReasonMissRejection:  "designed chain misses rejection",
-	ReasonMissRipple:     "designed chain misses ripple",
-	ReasonCICNull:        "cic null in passband",
-	ReasonGaveUp:         "a stage failed to design in other chains",
-	ReasonCICBeaten:      "cic beaten by another order or delay",
-	ReasonLongFIR:        "fir stage over the tap limit",
-	ReasonRoundingFloor:  "rounding floor above the stopband at the coefficient width",
-	ReasonMissQuantised:  "misses the targets with its taps rounded to the coefficient width",
-	ReasonWordLengths:    "word lengths could not be planned",
+	ReasonCICRejection:     "cic rejection below target",
+	ReasonCICDroop:         "cic droop not compensated",
+	ReasonHalfBandEdges:    "halfband edges do not fit",
+	ReasonShortFIR:         "fir stage under 3 taps",
+	ReasonDesignFailed:     "design failed",
+	ReasonEvaluateFailed:   "evaluation failed",
+	ReasonMissRejection:    "designed chain misses rejection",
+	ReasonMissRipple:       "designed chain misses ripple",
+	ReasonCICNull:          "cic null in passband",
+	ReasonGaveUp:           "a stage failed to design in other chains",
+	ReasonCICBeaten:        "cic beaten by another order or delay",
+	ReasonLongFIR:          "fir stage over the tap limit",
+	ReasonRoundingFloor:    "rounding floor above the stopband at the coefficient width",
+	ReasonMissQuantised:    "misses the targets with its taps rounded to the coefficient width",
+	ReasonWordLengths:      "word lengths could not be planned",
+	ReasonOverRegisterBits: "a cic register wider than hardware.max_register_bits",
+	ReasonOverCICFactor:    "a cic factor above hardware.max_cic_factor",
+	ReasonOverMultipliers:  "more multipliers at the clock than hardware.max_multipliers",
+	ReasonOverMemory:       "more memory than hardware.max_memory_bits",
 }
 
 // Text is r in words ("cic rejection below target"); a name it does not
@@ -97,7 +106,8 @@ func DroppedText(d map[Reason]int, sep string) string {
 func Reasons() []Reason {
 	return []Reason{ReasonCICRejection, ReasonCICDroop, ReasonHalfBandEdges, ReasonShortFIR, ReasonDesignFailed,
 		ReasonEvaluateFailed, ReasonMissRejection, ReasonMissRipple, ReasonCICNull, ReasonGaveUp, ReasonCICBeaten,
-		ReasonLongFIR, ReasonRoundingFloor, ReasonMissQuantised, ReasonWordLengths}
+		ReasonLongFIR, ReasonRoundingFloor, ReasonMissQuantised, ReasonWordLengths,
+		ReasonOverRegisterBits, ReasonOverCICFactor, ReasonOverMultipliers, ReasonOverMemory}
 }
 
 type dropCode uint8
@@ -112,6 +122,10 @@ const (
 	dropCICNull
 	dropCICBeaten
 	dropRoundingFloor
+	dropRegisterBits
+	dropCICFactor
+	dropMultipliers
+	dropMemory
 )
 
 // defaultMaxTaps is the automatic tap limit's first step. A stage estimated
@@ -129,6 +143,10 @@ var dropNames = [...]Reason{
 	dropCICNull:       ReasonCICNull,
 	dropCICBeaten:     ReasonCICBeaten,
 	dropRoundingFloor: ReasonRoundingFloor,
+	dropRegisterBits:  ReasonOverRegisterBits,
+	dropCICFactor:     ReasonOverCICFactor,
+	dropMultipliers:   ReasonOverMultipliers,
+	dropMemory:        ReasonOverMemory,
 }
 
 // figs is a candidate's or a stage's position on the three axes of the
@@ -154,6 +172,8 @@ type params struct {
 	// clock is the fabric clock in Hz (cost.Settings.Clock), 0 for none: a
 	// first-stage CIC whose input runs above it is priced lanes wide.
 	clock float64
+	// lim are the fabric's limits (Settings.Limits).
+	lim Limits
 }
 
 // newParams reads a spec whose defaults are filled in.
@@ -339,7 +359,8 @@ func (e *estimator) score(plan []chain.StagePlan) (figs, dropCode) {
 	if d := e.keysOf(plan); d != dropNone {
 		return figs{}, d
 	}
-	var total figs
+	var total, lo figs
+	var mults float64 // a lower bound of the multipliers at the clock
 	total.margin = math.Inf(1)
 	for i := range e.keys {
 		k := e.keys[i].stageKey
@@ -362,6 +383,21 @@ func (e *estimator) score(plan []chain.StagePlan) (figs, dropCode) {
 		total.words += v.f.words
 		total.lat += v.f.lat
 		total.margin = math.Min(total.margin, v.f.margin)
+		lo.bits += v.lo.bits
+		if e.p.clock > 0 && v.lo.mpo > 0 {
+			// Each stage has its own multipliers: at least its multiplies
+			// per second (per final output, times FK) over the clock.
+			mults += math.Ceil(v.lo.mpo*e.p.fk/e.p.clock - 1e-9)
+		}
+	}
+	// The limits on a whole chain, at the favourable end of its range, so
+	// that only chains that cannot fit are dropped here: memory, and a
+	// lower bound of the multipliers at the clock.
+	if l := e.p.lim.MaxMemoryBits; l > 0 && lo.bits > float64(l) {
+		return figs{}, dropMemory
+	}
+	if l := e.p.lim.MaxMultipliers; l > 0 && mults > float64(l) {
+		return figs{}, dropMultipliers
 	}
 	if st := plan[0]; st.Kind == chain.CIC && !e.keepBeaten && e.cicBeaten(st.Factor, st.CICOrder, st.CICDelay) && !e.isReinstated(plan) {
 		return figs{}, dropCICBeaten
@@ -408,6 +444,10 @@ func (e *estimator) stage(k stageKey) stageVal {
 	switch chain.Kind(k.kind) {
 	case chain.CIC:
 		n, m := int(k.n), int(k.m)
+		if d := e.cicOverLimit(f, n, m); d != dropNone {
+			v.drop = d
+			return v
+		}
 		v.f.margin = e.cicMargin(f, n, m)
 		if v.f.margin < 0 {
 			v.drop = dropCICRejection
@@ -623,7 +663,7 @@ func (e *estimator) cicBeaten(r, n, m int) bool {
 			if e.p.fp*float64(r*mm) >= e.p.f0 {
 				continue
 			}
-			if e.cicMargin(r, nn, mm) < 0 {
+			if e.cicMargin(r, nn, mm) < 0 || e.cicOverLimit(r, nn, mm) != dropNone {
 				continue
 			}
 			// Memory and output width as chain.NewCICStage gives them (the
@@ -753,6 +793,9 @@ func (e *estimator) isReinstated(plan []chain.StagePlan) bool {
 // skipCIC returns the reason to drop every candidate that starts with the
 // CIC st whatever follows it, or dropNone.
 func (e *estimator) skipCIC(st chain.StagePlan) dropCode {
+	if d := e.cicOverLimit(st.Factor, st.CICOrder, st.CICDelay); d != dropNone {
+		return d
+	}
 	if e.p.fp*float64(st.Factor*st.CICDelay) >= e.p.f0 {
 		return dropCICNull
 	}
@@ -761,6 +804,18 @@ func (e *estimator) skipCIC(st chain.StagePlan) dropCode {
 	}
 	if !e.keepBeaten && e.cicBeaten(st.Factor, st.CICOrder, st.CICDelay) && !e.reinstatedCIC[[3]int{st.Factor, st.CICOrder, st.CICDelay}] {
 		return dropCICBeaten
+	}
+	return dropNone
+}
+
+// cicOverLimit is the limit a first-stage CIC of factor r, order n and
+// delay m breaks (its factor, or its widest pruned register), or dropNone.
+func (e *estimator) cicOverLimit(r, n, m int) dropCode {
+	if l := e.p.lim.MaxCICFactor; l > 0 && r > l {
+		return dropCICFactor
+	}
+	if l := e.p.lim.MaxRegisterBits; l > 0 && slices.Max(e.cicStage(r, n, m).RegisterBits) > l {
+		return dropRegisterBits
 	}
 	return dropNone
 }

@@ -53,7 +53,7 @@ func Plan(ctx context.Context, spec chain.Spec, s Settings) (*Result, error) {
 		return nil, err
 	}
 	p := newParams(ns, s.Cost.NoSymmetry)
-	p.clock = s.Cost.Clock
+	p.clock, p.lim = s.Cost.Clock, s.Limits
 	p.d = ns.Decimation()
 	if s.Chain.Memo == nil {
 		// Most stage designs of a search repeat a stage of another chain
@@ -72,6 +72,17 @@ func (s *Settings) check() error {
 		if !slices.Contains(chain.Kinds(), k) {
 			return fmt.Errorf("optimize: Kinds contains %d: must be one of chain.Kinds()", int(k))
 		}
+	}
+	for _, l := range []struct {
+		name string
+		v    int
+	}{{"MaxRegisterBits", s.Limits.MaxRegisterBits}, {"MaxCICFactor", s.Limits.MaxCICFactor}, {"MaxMultipliers", s.Limits.MaxMultipliers}, {"MaxMemoryBits", s.Limits.MaxMemoryBits}} {
+		if l.v < 0 {
+			return fmt.Errorf("optimize: Limits.%s = %d: must not be negative (0 is no limit)", l.name, l.v)
+		}
+	}
+	if s.Limits.MaxMultipliers > 0 && !(s.Cost.Clock > 0) {
+		return fmt.Errorf("optimize: Limits.MaxMultipliers = %d needs Cost.Clock: multipliers are counted at the clock", s.Limits.MaxMultipliers)
 	}
 	if s.MaxStages > MaxStagesLimit {
 		return fmt.Errorf("optimize: MaxStages = %d: must be at most %d", s.MaxStages, MaxStagesLimit)
@@ -174,6 +185,9 @@ func (r realDesigner) design(plan []chain.StagePlan) (Candidate, Reason) {
 	if err != nil {
 		return Candidate{}, ReasonEvaluateFailed
 	}
+	if why := overLimits(f, r.s.Limits); why != "" {
+		return Candidate{}, why
+	}
 	cd := Candidate{Plan: plan, Chain: c, Figures: f}
 	if r.rounded(r.spec) && r.atRisk(c) {
 		// Rounding may cost this chain its margin: it is measured and, if
@@ -215,6 +229,17 @@ func (r realDesigner) atRisk(c *chain.Chain) bool {
 }
 
 func (r realDesigner) analyze(c Candidate) (Candidate, Reason) {
+	c, why := r.measure(c)
+	if why == "" {
+		// A re-design (for rounding, or a shortfall within the ripple) is
+		// longer, and may break a limit the first design kept.
+		why = overLimits(c.Figures, r.s.Limits)
+	}
+	return c, why
+}
+
+// measure is analyze without the final check of the limits.
+func (r realDesigner) measure(c Candidate) (Candidate, Reason) {
 	f := c.Figures
 	if !c.evaluated {
 		var err error
@@ -258,6 +283,37 @@ func (r realDesigner) analyze(c Candidate) (Candidate, Reason) {
 		return c, ""
 	}
 	return r.survive(c, r.spec)
+}
+
+// limitReason says which limit binds when the limits dropped candidates
+// (the one that dropped the most), or "".
+func limitReason(d map[Reason]int) string {
+	best, n := "", 0
+	for _, l := range []struct {
+		r    Reason
+		name string
+	}{{ReasonOverRegisterBits, "Limits.MaxRegisterBits"}, {ReasonOverCICFactor, "Limits.MaxCICFactor"},
+		{ReasonOverMultipliers, "Limits.MaxMultipliers"}, {ReasonOverMemory, "Limits.MaxMemoryBits"}} {
+		if d[l.r] > n {
+			best, n = l.name, d[l.r]
+		}
+	}
+	if best == "" {
+		return ""
+	}
+	return fmt.Sprintf("No chain meets the spec within the hardware limits: %s binds (it dropped %d candidates); raise it, or relax ripple or rejection.", best, n)
+}
+
+// overLimits is the limit a designed chain's figures f break, or "" (the
+// estimate tier drops CICs beyond the register and factor limits already).
+func overLimits(f cost.Figures, l Limits) Reason {
+	if l.MaxMemoryBits > 0 && f.MemoryBits > l.MaxMemoryBits {
+		return ReasonOverMemory
+	}
+	if l.MaxMultipliers > 0 && f.MultipliersAtClock > l.MaxMultipliers {
+		return ReasonOverMultipliers
+	}
+	return ""
 }
 
 // floatMisses returns the reason a chain measured a misses spec, or "".
@@ -473,6 +529,8 @@ func search(ctx context.Context, p params, s *Settings, est *estimator, des desi
 		}
 	case len(res.Front) == 0 && !res.Partial && res.Unsettled > 0:
 		res.Reason = fmt.Sprintf("No chain was designed within the design budget (a fixed amount of design work per run) at a tap limit of %d; %d candidates were left undesigned.", est.maxTaps, res.Unsettled)
+	case len(res.Front) == 0 && !res.Partial && limitReason(res.Dropped) != "":
+		res.Reason = limitReason(res.Dropped)
 	case len(res.Front) == 0 && !res.Partial:
 		res.Reason = "No chain met the spec; Dropped says why each candidate was set aside."
 	case len(res.Front) > 0 && est.maxTaps > first:

@@ -77,6 +77,9 @@ type Spec struct {
 	// NativeB its operand widths in bits; zero when not given.
 	Multiplier       string
 	NativeA, NativeB int
+	// Limits are the fabric's ([hardware] max_register_bits,
+	// max_cic_factor, max_multipliers, max_memory_bits); zero is none.
+	Limits optimize.Limits
 	// Search limits, with defaults filled in.
 	MaxStages int
 	Kinds     []chain.Kind
@@ -114,6 +117,7 @@ func (s *Spec) SearchSettings() optimize.Settings {
 		Kinds:     append([]chain.Kind(nil), s.Kinds...),
 		CICOrders: append([]int(nil), s.CICOrders...),
 		CICDelays: append([]int(nil), s.CICDelays...),
+		Limits:    s.Limits,
 		Cost:      s.CostSettings(),
 		Fixed:     s.FixedSettings(),
 	}
@@ -211,6 +215,8 @@ var known = []key{
 	{path: "words", table: true}, {path: "words.input"}, {path: "words.output"}, {path: "words.coefficients"},
 	{path: "words.unity_gain"},
 	{path: "hardware", table: true}, {path: "hardware.clock"}, {path: "hardware.multiplier"},
+	{path: "hardware.max_register_bits"}, {path: "hardware.max_cic_factor"}, {path: "hardware.max_multipliers"},
+	{path: "hardware.max_memory_bits"},
 	{path: "cost", table: true}, {path: "cost.symmetry"},
 	{path: "search", table: true}, {path: "search.max_stages"}, {path: "search.kinds"},
 	{path: "search.cic_orders"}, {path: "search.cic_delays"},
@@ -707,6 +713,25 @@ func (p *parser) build() (*Spec, error) {
 		}
 		out.Multiplier, out.NativeA, out.NativeB = str, a, b
 	}
+	for _, l := range []struct {
+		key  string
+		dst  *int
+		unit string
+	}{
+		{"hardware.max_register_bits", &out.Limits.MaxRegisterBits, " bits"},
+		{"hardware.max_cic_factor", &out.Limits.MaxCICFactor, ""},
+		{"hardware.max_multipliers", &out.Limits.MaxMultipliers, " multipliers"},
+		{"hardware.max_memory_bits", &out.Limits.MaxMemoryBits, " bits"},
+	} {
+		n, _, err := p.integer(l.key, 1, math.MaxInt32, l.unit)
+		if err != nil {
+			return nil, err
+		}
+		*l.dst = n
+	}
+	if v, ok := p.lookup("hardware.max_multipliers"); ok && out.Clock == 0 {
+		return nil, p.errAt("hardware.max_multipliers", v, "needs hardware.clock: multipliers are counted at the clock")
+	}
 	for _, f := range []struct {
 		key string
 		dst *bool
@@ -865,6 +890,8 @@ var libraryPhrases = []struct {
 var libraryWords = []struct{ goName, key string }{
 	{"MaxStages", "search.max_stages"}, {"Kinds", "search.kinds"},
 	{"CICOrders", "search.cic_orders"}, {"CICDelays", "search.cic_delays"},
+	{"Limits.MaxRegisterBits", "hardware.max_register_bits"}, {"Limits.MaxCICFactor", "hardware.max_cic_factor"},
+	{"Limits.MaxMultipliers", "hardware.max_multipliers"}, {"Limits.MaxMemoryBits", "hardware.max_memory_bits"},
 }
 
 // replaceWord replaces whole-word occurrences of old in s.

@@ -131,6 +131,9 @@ func TestParseErrors(t *testing.T) {
 		{"rate unit", `input_rate = "245.76 XHz"`, []string{"input_rate", `"245.76 XHz"`, "unknown unit"}},
 		{"rate nan", `input_rate = nan`, []string{"input_rate", "not a finite number"}},
 		{"band edge in S/s", `passband = "300 kS/s"`, []string{"passband", "sample-rate unit", "kHz"}},
+		{"limit zero", "[hardware]\nmax_register_bits = 0", []string{"hardware.max_register_bits", "must lie in [1, "}},
+		{"limit text", "[hardware]\nmax_memory_bits = \"lots\"", []string{"hardware.max_memory_bits", "whole number"}},
+		{"multipliers without clock", "[hardware]\nmax_multipliers = 4", []string{"hardware.max_multipliers", "needs hardware.clock"}},
 		{"ripple +-", `ripple = "+-0.05 dB"`, []string{"ripple", "peak-to-peak", `write "0.1 dB"`}},
 		{"ripple ±", `ripple = "±0.25dB"`, []string{"ripple", "peak-to-peak", `write "0.5 dB"`}},
 		{"ripple +/-", `ripple = "+/-x"`, []string{"ripple", "twice the tolerance"}},
@@ -372,5 +375,19 @@ func TestParseTradeNames(t *testing.T) {
 	}
 	if len(s.Kinds) != 3 || s.Kinds[1] != chain.HalfBand {
 		t.Errorf("kinds = %v; want cic, halfband, fir", s.Kinds)
+	}
+}
+
+// The fabric's limits reach the search settings.
+func TestParseLimits(t *testing.T) {
+	text := "input_rate = \"122.88 MHz\"\noutput_rate = \"1.92 MHz\"\npassband = \"600 kHz\"\nripple = 0.1\nrejection = 80\n" +
+		"[hardware]\nclock = \"245.76 MHz\"\nmax_register_bits = 48\nmax_cic_factor = 32\nmax_multipliers = 8\nmax_memory_bits = 20000\n"
+	s, err := Parse("t.toml", []byte(text))
+	if err != nil {
+		t.Fatal(err)
+	}
+	got := s.SearchSettings().Limits
+	if got.MaxRegisterBits != 48 || got.MaxCICFactor != 32 || got.MaxMultipliers != 8 || got.MaxMemoryBits != 20000 {
+		t.Errorf("limits = %+v", got)
 	}
 }

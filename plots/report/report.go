@@ -82,6 +82,11 @@ type Words struct {
 type Hardware struct {
 	ClockHz    *float64 `json:"clock_hz"`
 	Multiplier string   `json:"multiplier,omitempty"`
+	// The fabric's limits, absent when not given.
+	MaxRegisterBits int `json:"max_register_bits,omitempty"`
+	MaxCICFactor    int `json:"max_cic_factor,omitempty"`
+	MaxMultipliers  int `json:"max_multipliers,omitempty"`
+	MaxMemoryBits   int `json:"max_memory_bits,omitempty"`
 }
 
 // Cost holds the pricing settings.
@@ -204,6 +209,9 @@ func NewSpec(s *specfile.Spec) Spec {
 		out.Words.Coefficients = &b
 	}
 	out.Hardware.Multiplier = s.Multiplier
+	l := s.Limits
+	out.Hardware.MaxRegisterBits, out.Hardware.MaxCICFactor = l.MaxRegisterBits, l.MaxCICFactor
+	out.Hardware.MaxMultipliers, out.Hardware.MaxMemoryBits = l.MaxMultipliers, l.MaxMemoryBits
 	if s.Clock > 0 {
 		clk := s.Clock
 		out.Hardware.ClockHz = &clk

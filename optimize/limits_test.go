@@ -1,0 +1,80 @@
+package optimize_test
+
+import (
+	"context"
+	"math/rand/v2"
+	"slices"
+	"strings"
+	"testing"
+
+	"github.com/stepdown-dsp/stepdown/chain"
+	"github.com/stepdown-dsp/stepdown/cost"
+	"github.com/stepdown-dsp/stepdown/optimize"
+)
+
+// Every chain on the front honours the fabric's limits, checked on the
+// chains' own figures (pruned CIC registers, factors, multipliers at the
+// clock, memory) for seeded random sets of limits on an invented receiver
+// (D = 64); a set no chain can meet names the limit that binds.
+func TestLimitsHonoured(t *testing.T) {
+	needDesigns(t)
+	spec := chain.Spec{InputRate: 61.44e6, OutputRate: 960e3, Passband: 300e3, RippleDB: 0.1, RejectionDB: 80}
+	free, err := optimize.Plan(context.Background(), spec, optimize.Settings{MaxStages: 4, Cost: costAt(100e6)})
+	if err != nil {
+		t.Fatal(err)
+	}
+	// Limits drawn around the unconstrained front's own figures, so that
+	// some bind and some do not.
+	var regs, mems, mults []int
+	for _, c := range free.Front {
+		mems = append(mems, c.Figures.MemoryBits)
+		mults = append(mults, c.Figures.MultipliersAtClock)
+		if cs, ok := c.Chain.Stages[0].(chain.CICStage); ok {
+			regs = append(regs, slices.Max(cs.RegisterBits))
+		}
+	}
+	rng := rand.New(rand.NewPCG(9, 9))
+	pick := func(v []int) int {
+		if len(v) == 0 || rng.IntN(3) == 0 {
+			return 0
+		}
+		return v[rng.IntN(len(v))] + rng.IntN(3) - 1
+	}
+	for trial := 0; trial < 6; trial++ {
+		lim := optimize.Limits{MaxRegisterBits: pick(regs), MaxMemoryBits: pick(mems), MaxMultipliers: pick(mults), MaxCICFactor: []int{0, 8, 16, 32}[rng.IntN(4)]}
+		if trial%2 == 0 {
+			lim.MaxMultipliers = max(1, mults[rng.IntN(len(mults))]-trial/2)
+		}
+		r, err := optimize.Plan(context.Background(), spec, optimize.Settings{MaxStages: 4, Cost: costAt(100e6), Limits: lim})
+		if err != nil {
+			t.Fatal(err)
+		}
+		if len(r.Front) == 0 && !strings.Contains(r.Reason, "Limits.") {
+			t.Errorf("limits %+v: empty front, reason %q names no limit", lim, r.Reason)
+		}
+		for _, c := range r.Front {
+			f := c.Figures
+			if lim.MaxMemoryBits > 0 && f.MemoryBits > lim.MaxMemoryBits {
+				t.Errorf("limits %+v: %s has %d memory bits", lim, chain.Notation(c.Plan), f.MemoryBits)
+			}
+			if lim.MaxMultipliers > 0 && f.MultipliersAtClock > lim.MaxMultipliers {
+				t.Errorf("limits %+v: %s has %d multipliers", lim, chain.Notation(c.Plan), f.MultipliersAtClock)
+			}
+			if cs, ok := c.Chain.Stages[0].(chain.CICStage); ok {
+				if lim.MaxRegisterBits > 0 && slices.Max(cs.RegisterBits) > lim.MaxRegisterBits {
+					t.Errorf("limits %+v: %s has a %d-bit register", lim, chain.Notation(c.Plan), slices.Max(cs.RegisterBits))
+				}
+				if lim.MaxCICFactor > 0 && cs.R > lim.MaxCICFactor {
+					t.Errorf("limits %+v: %s decimates by %d in its CIC", lim, chain.Notation(c.Plan), cs.R)
+				}
+			}
+		}
+		t.Logf("limits %+v: front %d, designed %d", lim, len(r.Front), r.Designed)
+	}
+	if _, err := optimize.Plan(context.Background(), spec, optimize.Settings{Limits: optimize.Limits{MaxMultipliers: 3}}); err == nil || !strings.Contains(err.Error(), "Clock") {
+		t.Errorf("MaxMultipliers without a clock: err = %v", err)
+	}
+}
+
+// costAt prices at a clock of clk Hz.
+func costAt(clk float64) cost.Settings { return cost.Settings{Clock: clk} }
