@@ -185,7 +185,7 @@ func (r realDesigner) design(plan []chain.StagePlan) (Candidate, Reason) {
 	if err != nil {
 		return Candidate{}, ReasonEvaluateFailed
 	}
-	if why := overLimits(f, r.s.Limits); why != "" {
+	if why := overLimits(f, c, r.s.Limits); why != "" {
 		return Candidate{}, why
 	}
 	cd := Candidate{Plan: plan, Chain: c, Figures: f}
@@ -233,7 +233,7 @@ func (r realDesigner) analyze(c Candidate) (Candidate, Reason) {
 	if why == "" {
 		// A re-design (for rounding, or a shortfall within the ripple) is
 		// longer, and may break a limit the first design kept.
-		why = overLimits(c.Figures, r.s.Limits)
+		why = overLimits(c.Figures, c.Chain, r.s.Limits)
 	}
 	return c, why
 }
@@ -304,9 +304,22 @@ func limitReason(d map[Reason]int) string {
 	return fmt.Sprintf("No chain meets the spec within the hardware limits: %s binds (it dropped %d candidates); raise it, or relax ripple or rejection.", best, n)
 }
 
-// overLimits is the limit a designed chain's figures f break, or "" (the
-// estimate tier drops CICs beyond the register and factor limits already).
-func overLimits(f cost.Figures, l Limits) Reason {
+// overLimits is the limit a designed chain c with figures f breaks, or ""
+// (the estimate tier drops CICs beyond the register and factor limits
+// already; optimize.Check meets them here).
+func overLimits(f cost.Figures, c *chain.Chain, l Limits) Reason {
+	if c != nil {
+		for _, st := range c.Stages {
+			if cs, ok := st.(chain.CICStage); ok {
+				if l.MaxCICFactor > 0 && cs.R > l.MaxCICFactor {
+					return ReasonOverCICFactor
+				}
+				if l.MaxRegisterBits > 0 && len(cs.RegisterBits) > 0 && slices.Max(cs.RegisterBits) > l.MaxRegisterBits {
+					return ReasonOverRegisterBits
+				}
+			}
+		}
+	}
 	if l.MaxMemoryBits > 0 && f.MemoryBits > l.MaxMemoryBits {
 		return ReasonOverMemory
 	}

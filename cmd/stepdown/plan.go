@@ -101,6 +101,8 @@ type job struct {
 	compare *report.Comparison // check: the front the chain is compared with
 	// compareNote says why check has no comparison, when it has none.
 	compareNote string
+	// limitNote says which [hardware] limit the checked chain breaks.
+	limitNote string
 }
 
 func newJob(c *cli.Context) (*job, error) {
@@ -255,7 +257,11 @@ func runCheck(c *cli.Context) error {
 	set := j.spec.SearchSettings()
 	// The chain is designed and measured exactly as plan's search does
 	// (optimize.Check), so the notation plan prints gives the same figures.
-	cand, _, err := optimize.Check(c.Context, j.spec.Chain, plan, set)
+	cand, why, err := optimize.Check(c.Context, j.spec.Chain, plan, set)
+	switch why {
+	case optimize.ReasonOverRegisterBits, optimize.ReasonOverCICFactor, optimize.ReasonOverMultipliers, optimize.ReasonOverMemory:
+		j.limitNote = "beyond the fabric's limits: " + why.Text()
+	}
 	if c.Context.Err() != nil {
 		return fmt.Errorf("interrupted; %s left as it was", clip(j.out.Dir()))
 	}
@@ -452,6 +458,9 @@ func printSummary(w io.Writer, j *job, rep *report.Report, files []report.File) 
 	case rep.Command == "check":
 		fmt.Fprintf(w, "checked: %s\n  %s\n", rep.Front[0].Notation, rep.Reason)
 		report.WriteComparison(w, rep)
+		if j.limitNote != "" {
+			fmt.Fprintf(w, "  It is %s, so plan would drop it.\n", j.limitNote)
+		}
 		if j.compareNote != "" {
 			fmt.Fprintf(w, "  (%s)\n", j.compareNote)
 		}
