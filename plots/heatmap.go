@@ -286,17 +286,7 @@ func differ(a, b HeatmapCell) bool { return a.OK && b.OK && a.Tag != b.Tag }
 type cellTicks struct{ vals []float64 }
 
 func (t cellTicks) Ticks(lo, hi float64) []plot.Tick {
-	every := 1
-	for len(t.vals)/every > 12 {
-		switch every {
-		case 1:
-			every = 2
-		case 2:
-			every = 5
-		default:
-			every *= 2
-		}
-	}
+	every := labelEvery(len(t.vals), 12)
 	var out []plot.Tick
 	for i, v := range t.vals {
 		tk := plot.Tick{Value: float64(i)}

@@ -426,17 +426,7 @@ func sweepLegend(c draw.Canvas, x, y vg.Length, ls text.Style, gaps bool) {
 type valueTicks struct{ vals []float64 }
 
 func (t valueTicks) Ticks(lo, hi float64) []plot.Tick {
-	every := 1
-	for len(t.vals)/every > 11 {
-		switch every {
-		case 1:
-			every = 2
-		case 2:
-			every = 5
-		default:
-			every *= 2
-		}
-	}
+	every := labelEvery(len(t.vals), 11)
 	var out []plot.Tick
 	for i, v := range t.vals {
 		tk := plot.Tick{Value: v}
@@ -459,4 +449,21 @@ func (gTicks) Ticks(lo, hi float64) []plot.Tick {
 		}
 	}
 	return ts
+}
+
+// labelEvery is the step between labelled ticks that leaves at most most of
+// n labelled: 1, 2, 5, then doubling.
+func labelEvery(n, most int) int {
+	every := 1
+	for n/every > most {
+		switch every {
+		case 1:
+			every = 2
+		case 2:
+			every = 5
+		default:
+			every *= 2
+		}
+	}
+	return every
 }
