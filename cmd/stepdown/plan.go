@@ -27,6 +27,7 @@ const defaultOut = "stepdown-out"
 func outFlags() []cli.Flag {
 	return []cli.Flag{
 		&cli.StringFlag{Name: "out", Value: defaultOut, Usage: "output folder (replaced as a whole, atomically)"},
+		&cli.BoolFlag{Name: "resources", Usage: "also print the recommended (or checked) chain's bill of resources at the clock", DefaultText: "off"},
 		&cli.BoolFlag{Name: "json", Usage: "print report.json on stdout as well (the table goes to stderr)", DefaultText: "off"},
 		&cli.BoolFlag{Name: "quiet", Usage: "print nothing but errors (and --json output)", DefaultText: "off"},
 	}
@@ -37,7 +38,7 @@ func planCommand() *cli.Command {
 		Name:      "plan",
 		Usage:     "search every split of the decimation ratio and recommend a chain",
 		ArgsUsage: "[SPEC.toml]",
-		UsageText: "stepdown plan [SPEC.toml] [--out DIR] [--json] [--max-stages N] [--jobs N] [--quiet] [--timeout DUR] [--html]\n\n" +
+		UsageText: "stepdown plan [SPEC.toml] [--out DIR] [--json] [--max-stages N] [--jobs N] [--quiet] [--timeout DUR] [--html] [--resources]\n\n" +
 			"Without SPEC.toml the built-in example is planned.",
 		Flags: append(outFlags(),
 			&cli.IntFlag{Name: "max-stages", Usage: "override search.max_stages (1..12)", DefaultText: "the spec's"},
@@ -54,7 +55,7 @@ func checkCommand() *cli.Command {
 		Name:      "check",
 		Usage:     "evaluate a chain you name against the spec (same figures, plots and files as plan)",
 		ArgsUsage: "[SPEC.toml]",
-		UsageText: "stepdown check [SPEC.toml] --chain CHAIN [--front REPORT.json] [--out DIR] [--json] [--quiet] [--html] [--jobs N]\n\n" +
+		UsageText: "stepdown check [SPEC.toml] --chain CHAIN [--front REPORT.json] [--out DIR] [--json] [--quiet] [--html] [--jobs N] [--resources]\n\n" +
 			"CHAIN is the notation plan prints, e.g. \"cic4m1r8 > hb > fir4\". Without SPEC.toml the built-in example is used.\n" +
 			"The chain is compared with the plan's front (the spec is planned again, or --front names a plan's report.json).",
 		Flags: append(outFlags(),
@@ -469,6 +470,9 @@ func printSummary(w io.Writer, j *job, rep *report.Report, files []report.File) 
 	}
 	if len(rep.Front) > 0 {
 		report.WriteWordLengths(w, rep)
+		if j.c.Bool("resources") {
+			report.WriteResources(w, rep)
+		}
 	}
 	fmt.Fprintf(w, "\nwrote %s/\n", j.out.Dir())
 	for _, f := range files {

@@ -72,6 +72,7 @@ func Plan(p PlanPage) ([]byte, error) {
 	v.Front = frontRows(r.Front, r.Recommended, v.Clock)
 	if len(r.Front) > 0 {
 		c := r.Front[r.Recommended]
+		v.Resources = c.Resources
 		v.Rec = &recView{Index: r.Recommended + 1, Notation: c.Notation, Reason: r.Reason,
 			Figures: v.Front[r.Recommended], Stages: stageViews(c, p.Files, "", v.Clock)}
 	}
@@ -299,6 +300,9 @@ type planView struct {
 	Compared    string
 	Beaten      []string
 	CompareText string
+	// Resources is the recommended (or checked) chain's bill of
+	// resources at the clock, nil without a clock.
+	Resources *report.Resources
 }
 
 type sweepValueView struct {

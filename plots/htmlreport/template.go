@@ -138,10 +138,16 @@ const templates = `
 {{else}}<p>No chain meets the spec.</p>{{end}}
 {{if .Compared}}<p>Compared with the front of {{.Compared}}: {{if .Beaten}}it is beaten.</p>
 <ul>{{range .Beaten}}<li>{{.}}</li>{{end}}</ul>{{else}}{{.CompareText}}</p>{{end}}{{end}}
+{{with .Resources}}<h3>Resources at the clock</h3>
+<p>A planning estimate in the units the fabric charges; the vendor's tools decide.</p>
+<div class="scroll"><table><thead><tr><th>stage</th><th>kind</th><th class="n">lanes</th><th class="n">multipliers</th><th class="n">adders</th><th class="n">adder bits</th><th class="n">register bits</th><th class="n">block memory bits</th></tr></thead><tbody>
+{{range .Stages}}<tr><td class="n">{{.Stage}}</td><td>{{.Kind}}</td><td class="n">{{.Lanes}}</td><td class="n">{{.Multipliers}}</td><td class="n">{{.Adders}}</td><td class="n">{{.AdderBits}}</td><td class="n">{{.RegisterBits}}</td><td class="n">{{.BlockMemoryBits}}</td></tr>
+{{end}}<tr><td>total</td><td></td><td class="n">{{.Lanes}}</td><td class="n">{{.Multipliers}}</td><td class="n">{{.Adders}}</td><td></td><td class="n">{{.RegisterBits}}</td><td class="n">{{.BlockMemoryBits}}</td></tr>
+</tbody></table></div>{{end}}
 </section>
 
 <section id="front"><h2>Pareto front</h2>
-{{if .FrontSVG}}<figure>{{.FrontSVG}}<figcaption>Multiplies per output against memory: every feasible candidate (by estimate) faint, the front coloured by alias rejection, the recommended chain ringed.</figcaption></figure>{{end}}
+{{if .FrontSVG}}<figure>{{.FrontSVG}}<figcaption>Multiplies per output against memory: every feasible candidate (by estimate) faint, the front coloured by latency, the recommended chain ringed.</figcaption></figure>{{end}}
 <p>Chains that no other chain beats on multiplies, memory and latency at once, sorted by multiplies; ★ marks the recommendation. Figures are per final output sample, from real designs unless a chain is marked estimated.</p>
 {{template "front" (frontArgs .Front .Clock)}}
 </section>

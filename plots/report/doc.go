@@ -21,6 +21,11 @@
 // The integer files are written only when the spec sets a coefficient width
 // or "auto".
 //
+// With a clock, each chain carries resources (NewResources): its bill of
+// fabric resources at the clock, per stage and in total (parallel_lanes,
+// multipliers, adders, adder_bits, register_bits, block_memory_bits), a
+// planning estimate whose rules Resources states.
+//
 // search.dropped counts the candidates set aside, keyed by the stable name
 // of each reason (optimize.Reason: "cic_rejection_below_target",
 // "fir_over_tap_limit", "misses_with_rounded_taps", ...; optimize.Reason.Text

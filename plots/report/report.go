@@ -149,6 +149,9 @@ type Chain struct {
 	// Stages field is hidden by the one above and left nil).
 	*fixed.ChainReport
 	WordLengthsError string `json:"word_lengths_error,omitempty"`
+	// Resources is the bill of fabric resources at the clock (with a clock
+	// only; see NewResources).
+	Resources *Resources `json:"resources,omitempty"`
 }
 
 // Stage is one stage of a chain.
@@ -414,6 +417,9 @@ func NewContext(ctx context.Context, command string, s *specfile.Spec, res *opti
 	}
 	close(next)
 	wg.Wait()
+	for i := range r.Front {
+		r.Front[i].Resources = NewResources(&r.Front[i], s.Clock, s.Chain.OutputRate)
+	}
 	if len(r.Front) > 0 && (r.Recommended < 0 || r.Recommended >= len(r.Front)) {
 		return nil, fmt.Errorf("report: recommended index %d outside the front of %d chains", r.Recommended, len(r.Front))
 	}

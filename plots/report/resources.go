@@ -1,0 +1,142 @@
+package report
+
+import (
+	"fmt"
+	"io"
+	"math"
+	"slices"
+	"strings"
+)
+
+// BlockMemoryBits is the size from which a stage's memory is counted as
+// block memory rather than registers: memories of a kilobit or less are
+// commonly built from registers or LUT memory, larger ones from the
+// fabric's block RAMs of 18 to 36 kbit (common practice; the vendor's tools
+// decide).
+const BlockMemoryBits = 1024
+
+// Resources is a chain's bill of fabric resources at the clock, a planning
+// estimate in the units the fabric charges: Multipliers are the native
+// blocks (hardware_multipliers) when the spec gives a multiplier size,
+// else the multipliers at the clock; Adders are the adds per second over
+// the clock, per stage, rounded up; AdderBits is the widest adder (a FIR's
+// accumulator, a CIC's widest register; 0 when the word lengths are not
+// planned); RegisterBits and BlockMemoryBits split the memory (a CIC's
+// registers always count as registers; a FIR or half-band stage's data and
+// coefficient memory as block memory from BlockMemoryBits up); Lanes as
+// cost.Lanes.
+type Resources struct {
+	Multipliers     int              `json:"multipliers"`
+	Adders          int              `json:"adders"`
+	RegisterBits    int              `json:"register_bits"`
+	BlockMemoryBits int              `json:"block_memory_bits"`
+	Lanes           int              `json:"parallel_lanes"`
+	Stages          []StageResources `json:"stages"`
+}
+
+// StageResources is one stage's share of Resources.
+type StageResources struct {
+	Stage           int    `json:"stage"` // from 1
+	Kind            string `json:"kind"`
+	Lanes           int    `json:"parallel_lanes"`
+	Multipliers     int    `json:"multipliers"`
+	Adders          int    `json:"adders"`
+	AdderBits       int    `json:"adder_bits"`
+	RegisterBits    int    `json:"register_bits"`
+	BlockMemoryBits int    `json:"block_memory_bits"`
+}
+
+// NewResources is c's bill of resources at a clock of clock Hz, for a
+// chain whose last stage delivers outRate samples per second; nil without
+// a clock.
+func NewResources(c *Chain, clock, outRate float64) *Resources {
+	if !(clock > 0) {
+		return nil
+	}
+	r := &Resources{Lanes: 1}
+	for i, st := range c.Stages {
+		sr := StageResources{Stage: i + 1, Kind: st.Kind, Lanes: 1}
+		if st.ParallelLanes != nil {
+			sr.Lanes = *st.ParallelLanes
+		}
+		if st.Multipliers != nil {
+			sr.Multipliers = *st.Multipliers
+		}
+		sr.Adders = int(math.Ceil(st.AddsPerOutput*outRate/clock - 1e-9))
+		mem := st.MemoryBits
+		if w := st.StageReport; w != nil {
+			if w.HardwareMultipliers != nil {
+				sr.Multipliers = *w.HardwareMultipliers
+			}
+			sr.AdderBits = w.AccumulatorBits
+			if len(w.RegisterBits) > 0 {
+				sr.AdderBits = slices.Max(w.RegisterBits)
+			}
+			// A FIR's memory at its planned widths; a CIC's is the
+			// pricing's, which counts its integrators once per lane.
+			if st.Kind != "cic" && w.DataMemoryBits+w.CoefMemoryBits > 0 {
+				mem = w.DataMemoryBits + w.CoefMemoryBits
+			}
+		} else if len(st.RegisterBits) > 0 {
+			sr.AdderBits = slices.Max(st.RegisterBits)
+		}
+		if st.Kind == "cic" || mem <= BlockMemoryBits {
+			sr.RegisterBits = mem
+		} else {
+			sr.BlockMemoryBits = mem
+		}
+		r.Multipliers += sr.Multipliers
+		r.Adders += sr.Adders
+		r.RegisterBits += sr.RegisterBits
+		r.BlockMemoryBits += sr.BlockMemoryBits
+		r.Lanes = max(r.Lanes, sr.Lanes)
+		r.Stages = append(r.Stages, sr)
+	}
+	return r
+}
+
+// WriteResources writes the recommended (or checked) chain's Resources as
+// a table, or says that they need a clock.
+func WriteResources(w io.Writer, rep *Report) {
+	if len(rep.Front) == 0 {
+		return
+	}
+	ch := rep.Front[rep.Recommended]
+	res := ch.Resources
+	if res == nil {
+		fmt.Fprintln(w, "\nresources: give hardware.clock for the bill of resources at the clock")
+		return
+	}
+	fmt.Fprintf(w, "\nresources of %s at the clock (a planning estimate; the vendor's tools decide):\n", ch.Notation)
+	rows := [][]string{{"stage", "kind", "lanes", "multipliers", "adders", "adder bits", "register bits", "block memory bits"}}
+	for _, s := range res.Stages {
+		bits := "-"
+		if s.AdderBits > 0 {
+			bits = fmt.Sprint(s.AdderBits)
+		}
+		rows = append(rows, []string{fmt.Sprint(s.Stage), s.Kind, fmt.Sprint(s.Lanes), fmt.Sprint(s.Multipliers), fmt.Sprint(s.Adders),
+			bits, fmt.Sprint(s.RegisterBits), fmt.Sprint(s.BlockMemoryBits)})
+	}
+	rows = append(rows, []string{"total", "", fmt.Sprint(res.Lanes), fmt.Sprint(res.Multipliers), fmt.Sprint(res.Adders), "",
+		fmt.Sprint(res.RegisterBits), fmt.Sprint(res.BlockMemoryBits)})
+	widths := make([]int, len(rows[0]))
+	for _, r := range rows {
+		for i, c := range r {
+			widths[i] = max(widths[i], len(c))
+		}
+	}
+	for _, r := range rows {
+		var b strings.Builder
+		for i, c := range r {
+			if i > 0 {
+				b.WriteString("  ")
+			}
+			if i >= 2 {
+				fmt.Fprintf(&b, "%*s", widths[i], c)
+			} else {
+				fmt.Fprintf(&b, "%-*s", widths[i], c)
+			}
+		}
+		fmt.Fprintln(w, "  "+strings.TrimRight(b.String(), " "))
+	}
+}
