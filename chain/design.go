@@ -153,23 +153,11 @@ func firStage(ctx context.Context, r Requirement, prev []Stage, s Settings, desi
 		st.Length = n
 		return st, nil
 	}
-	pass := remez.Band{Lo: 0, Hi: r.Passband, Gain: 1, MaxError: r.Dp, Weight: 1 / r.Dp}
+	var droop func(float64) float64
 	if st.CompensatesCIC {
-		hc := compGain(r, prev)
-		pass.Gain = 0
-		pass.GainFunc = func(f float64) float64 { return 1 / hc(f) }
-		// Weighting the error by |H_cic|/dp makes it relative and on the same
-		// scale as the stopbands' 1/ds: met when |A H_cic - 1| <= dp.
-		dp := r.Dp
-		pass.WeightFunc = func(f float64) float64 { return hc(f) / dp }
-		pass.Weight = 0
-		pass.MaxError = 1
+		droop = compGain(r, prev)
 	}
-	bands := []remez.Band{pass}
-	for _, b := range r.Stopbands {
-		bands = append(bands, remez.Band{Lo: b.Lo, Hi: b.Hi, MaxError: r.Ds, Weight: 1 / r.Ds})
-	}
-	res, err := remez.MinLengthContext(ctx, r.InputRate, bands, 0, s.MaxTaps, s.Remez)
+	res, err := remez.MinLengthContext(ctx, r.InputRate, r.Bands(droop), 0, s.MaxTaps, s.Remez)
 	if err != nil {
 		if s.MaxTaps > 0 {
 			return st, fmt.Errorf("FIR design with Settings.MaxTaps = %d: %w", s.MaxTaps, err)

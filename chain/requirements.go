@@ -2,6 +2,7 @@ package chain
 
 import (
 	"fmt"
+	"github.com/stepdown-dsp/stepdown/chain/remez"
 	"math"
 	"sort"
 )
@@ -289,4 +290,28 @@ func StopbandScale(dp float64, n int, own bool) float64 {
 		others--
 	}
 	return math.Pow(1-dp, float64(n)) / math.Pow(1+dp, float64(others))
+}
+
+// Bands are the bands a FIR or half-band stage with requirement r must
+// meet, as the design engine takes them (remez.Band, MaxError the limit of
+// each band's weighted error): the passband [0, Passband] within Dp of 1,
+// each stopband within Ds of 0. With droop (the gain of the CICs the stage
+// corrects, at f Hz), the passband's desired gain is 1/droop and its error
+// is weighted by droop/Dp against a limit of 1, so that it is met when
+// |A droop - 1| <= Dp: relative, and on the same scale as the stopbands'
+// 1/Ds. The one statement of a stage's bands: the design (Design) and the
+// judging of its rounded taps (package fixed) both use it.
+func (r Requirement) Bands(droop func(f float64) float64) []remez.Band {
+	pass := remez.Band{Lo: 0, Hi: r.Passband, Gain: 1, MaxError: r.Dp, Weight: 1 / r.Dp}
+	if droop != nil {
+		dp := r.Dp
+		pass = remez.Band{Lo: 0, Hi: r.Passband, MaxError: 1,
+			GainFunc:   func(f float64) float64 { return 1 / droop(f) },
+			WeightFunc: func(f float64) float64 { return droop(f) / dp }}
+	}
+	bands := []remez.Band{pass}
+	for _, b := range r.Stopbands {
+		bands = append(bands, remez.Band{Lo: b.Lo, Hi: b.Hi, MaxError: r.Ds, Weight: 1 / r.Ds})
+	}
+	return bands
 }

@@ -6,7 +6,6 @@ import (
 	"math"
 
 	"github.com/stepdown-dsp/stepdown/chain"
-	"github.com/stepdown-dsp/stepdown/chain/remez"
 )
 
 // FromChain converts a designed chain and its spec into the planner's terms.
@@ -62,18 +61,11 @@ func firFromChain(st chain.FIRStage, c *chain.Chain, rates []float64, i int) (St
 	if !(r.Dp > 0) || !(r.Ds > 0) || !(r.Passband > 0) {
 		return Stage{}, fmt.Errorf("fixed: stage %d carries no requirement (Dp %g, Ds %g, passband %g Hz)", i+1, r.Dp, r.Ds, r.Passband)
 	}
-	pass := remez.Band{Lo: 0, Hi: r.Passband, Gain: 1, MaxError: r.Dp}
+	var hc func(float64) float64
 	if len(r.Compensates) > 0 {
-		hc := droop(c, rates, r.Compensates)
-		pass.Gain = 0
-		pass.GainFunc = func(f float64) float64 { return 1 / hc(f) }
-		pass.WeightFunc = hc
+		hc = droop(c, rates, r.Compensates)
 	}
-	bands := []remez.Band{pass}
-	for _, b := range r.Stopbands {
-		bands = append(bands, remez.Band{Lo: b.Lo, Hi: b.Hi, MaxError: r.Ds})
-	}
-	return Stage{R: st.R, Taps: st.Taps, HalfBand: st.HalfBand, Bands: bands}, nil
+	return Stage{R: st.R, Taps: st.Taps, HalfBand: st.HalfBand, Bands: r.Bands(hc)}, nil
 }
 
 // droop returns the product of the listed CIC stages' gains at f Hz; f lies in
