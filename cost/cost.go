@@ -136,39 +136,14 @@ func Price(spec chain.Spec, c *chain.Chain, s Settings) (Figures, error) {
 			if n < 1 {
 				return Figures{}, fmt.Errorf("cost: stage %d (%s) has no taps and no estimated length", i+1, v.Kind())
 			}
-			if v.HalfBand {
-				k := (n + 1 + 3) / 4
-				mul = float64(2 * k)
-				coefWords = 2 * k
-				if !s.NoSymmetry {
-					mul = float64(k)
-					coefWords = k
-				}
-				add = float64(2 * k)
-				dataWords = 3 * k
-			} else {
-				mul = float64(n)
-				coefWords = n
-				if !s.NoSymmetry {
-					mul = float64((n + 1) / 2)
-					coefWords = (n + 1) / 2
-				}
-				add = float64(n - 1)
-				dataWords = n
-			}
+			c := firCounts(n, v.HalfBand, s.NoSymmetry)
+			mul, add, coefWords, dataWords, delayIn = c.mul, c.add, c.coefWords, c.dataWords, c.delayIn
 			dataBits = dataWords * width
-			delayIn = float64(n-1) / 2
 			width = spec.OutputBits
 		default:
 			return Figures{}, fmt.Errorf("cost: stage %d is a %T; cost prices chain.CICStage and chain.FIRStage values", i+1, st)
 		}
-		sf := StageFigures{
-			MultipliesPerOutput: mul * float64(cx) * later[i],
-			AddsPerOutput:       add * float64(cx) * later[i],
-			MemoryWords:         dataWords*cx + coefWords,
-			MemoryBits:          dataBits*cx + coefWords*coefBits,
-			LatencyS:            delayIn / rates[i],
-		}
+		sf := multiplyOut(mul, add, dataWords, dataBits, coefWords, coefBits, cx, later[i], delayIn, rates[i])
 		if s.Clock > 0 && mul > 0 {
 			sf.Multipliers = int(math.Ceil(mul*float64(cx)*rates[i+1]/s.Clock - 1e-9))
 		}
@@ -230,4 +205,61 @@ func cicRegisters(v chain.CICStage, inBits int) []int {
 		regs[j] = w
 	}
 	return regs
+}
+
+// firCount is a FIR or half-band stage's counts per its own output, for
+// one real filter.
+type firCount struct {
+	mul, add             float64
+	dataWords, coefWords int
+	delayIn              float64 // group delay, input samples
+}
+
+// firCounts is the count rule of a stage of n taps (see the package doc):
+// a FIR's, or a half-band's of 4K-1 taps.
+func firCounts(n int, halfBand, noSymmetry bool) firCount {
+	var c firCount
+	if halfBand {
+		k := (n + 1 + 3) / 4
+		c.mul, c.coefWords = float64(2*k), 2*k
+		if !noSymmetry {
+			c.mul, c.coefWords = float64(k), k
+		}
+		c.add = float64(2 * k)
+		c.dataWords = 3 * k
+	} else {
+		c.mul, c.coefWords = float64(n), n
+		if !noSymmetry {
+			c.mul, c.coefWords = float64((n+1)/2), (n+1)/2
+		}
+		c.add = float64(n - 1)
+		c.dataWords = n
+	}
+	c.delayIn = float64(n-1) / 2
+	return c
+}
+
+// FIRStage is Price's figures for one FIR (halfBand false) or half-band
+// stage of n taps with input rate rate Hz whose output is followed by
+// later-stage factors multiplying to later, on data words of width bits
+// and coefficients of coefBits, in a chain of cx real filters (2 for
+// complex): the pricing the search's estimate tier applies to an estimated
+// length. Multipliers and Lanes are left zero.
+func FIRStage(n int, halfBand bool, s Settings, later float64, cx, width, coefBits int, rate float64) StageFigures {
+	c := firCounts(n, halfBand, s.NoSymmetry)
+	return multiplyOut(c.mul, c.add, c.dataWords, c.dataWords*width, c.coefWords, coefBits, cx, later, c.delayIn, rate)
+}
+
+// multiplyOut turns a stage's counts per its own output, for one real
+// filter, into its StageFigures per final output: multiplies and adds times
+// cx filters and the later factors, data memory times cx, coefficients
+// once, the group delay at its input rate.
+func multiplyOut(mul, add float64, dataWords, dataBits, coefWords, coefBits, cx int, later, delayIn, rate float64) StageFigures {
+	return StageFigures{
+		MultipliesPerOutput: mul * float64(cx) * later,
+		AddsPerOutput:       add * float64(cx) * later,
+		MemoryWords:         dataWords*cx + coefWords,
+		MemoryBits:          dataBits*cx + coefWords*coefBits,
+		LatencyS:            delayIn / rate,
+	}
 }

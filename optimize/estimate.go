@@ -475,18 +475,7 @@ func (e *estimator) stage(k stageKey) stageVal {
 		l := math.Ceil(herrmann(dev, dev, (hbStop-edge)/rate))
 		kk := math.Max(1, math.Ceil((l+1)/4))
 		v.taps = 4*kk - 1
-		hb := func(kk float64) figs {
-			var f figs
-			mult, coefs := kk, kk
-			if p.noSym {
-				mult, coefs = 2*kk, 2*kk
-			}
-			f.mpo = mult * later * cplx
-			f.words = 3*kk*cplx + coefs
-			f.bits = 3*kk*width*cplx + coefs*float64(p.coefBits)
-			f.lat = (4*kk - 2) / 2 / rate
-			return f
-		}
+		hb := func(kk float64) figs { return e.priceFIR(int(4*kk-1), true, later, int(cplx), int(width), rate) }
 		v.f = hb(kk)
 		v.work = (4*kk - 1) * (4*kk - 1) / 4
 		kLo := math.Max(1, math.Floor(kk/(1+2*e.tol))-1)
@@ -503,19 +492,7 @@ func (e *estimator) stage(k stageKey) stageVal {
 			return v
 		}
 		v.taps = l
-		fir := func(l float64) figs {
-			var f figs
-			mult, coefs := l, l
-			if !p.noSym {
-				mult = math.Ceil(l / 2)
-				coefs = mult
-			}
-			f.mpo = mult * later * cplx
-			f.words = l*cplx + coefs
-			f.bits = l*width*cplx + coefs*float64(p.coefBits)
-			f.lat = (l - 1) / 2 / rate
-			return f
-		}
+		fir := func(l float64) figs { return e.priceFIR(int(l), false, later, int(cplx), int(width), rate) }
 		v.f = fir(l)
 		v.work = l * l
 		lLo := math.Max(3, math.Floor(l/(1+2*e.tol))-2)
@@ -528,6 +505,13 @@ func (e *estimator) stage(k stageKey) stageVal {
 	}
 	v.lo, v.hi = v.f, v.f
 	return v
+}
+
+// priceFIR is cost.FIRStage's figures for n taps, as the estimate tier
+// keeps them.
+func (e *estimator) priceFIR(n int, halfBand bool, later float64, cx, width int, rate float64) figs {
+	sf := cost.FIRStage(n, halfBand, cost.Settings{NoSymmetry: e.p.noSym}, later, cx, width, e.p.coefBits, rate)
+	return figs{mpo: sf.MultipliesPerOutput, words: float64(sf.MemoryWords), bits: float64(sf.MemoryBits), lat: sf.LatencyS}
 }
 
 // floorMargin is how far a stage's predicted rounding floor must lie above
