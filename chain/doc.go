@@ -54,14 +54,13 @@
 //
 //   - Multiband FIR: stopbands [k Fi - fa, k Fi + fa], k = 1..floor(Di/2),
 //     clipped to [0, F(i-1)/2] and merged where they touch; the rest is
-//     don't-care, however narrow the gap between two bands. (Gaps narrower
-//     than a quarter of the transition band used to be closed for the
-//     engine's sake; the engine now handles such slivers, and on DSP merit
-//     closing them buys nothing: the gap folds outside [0, fa], later stages
-//     remove it, and a filter that cannot use it pays nothing for leaving
-//     it free. In 265 invented designs with fa between 0.45 and 0.5 FK, 71
-//     had such gaps; leaving them open gave the same lengths in 70 and one
-//     tap fewer in one.) As the last stage the first band starts at fs (which
+//     don't-care, however narrow the gap between two bands: the engine
+//     designs with such slivers, and closing them would buy nothing, since
+//     the gap folds outside [0, fa], later stages remove it, and a filter
+//     that cannot use it pays nothing for leaving it free (in 265 invented
+//     designs with fa between 0.45 and 0.5 FK, 71 had such gaps; closing
+//     them gave the same lengths in 70 and one tap more in one). As the
+//     last stage the first band starts at fs (which
 //     Normalize keeps <= FK - fa, so this is min(fs, FK - fa)): the
 //     output is then also a lowpass at fs on the final stage's own axis.
 //   - Lowpass FIR: one stopband [Fi - fa, F(i-1)/2]; as the last stage
