@@ -119,16 +119,7 @@ func Requirements(spec Spec, plan []StagePlan) ([]Requirement, error) {
 	k := len(plan)
 	reqs := make([]Requirement, k)
 
-	// The compensator is the last FIR stage after the first CIC.
-	firstCIC, comp := -1, -1
-	for i, p := range plan {
-		if p.Kind == CIC && firstCIC < 0 {
-			firstCIC = i
-		}
-		if p.Kind == FIR && firstCIC >= 0 {
-			comp = i
-		}
-	}
+	comp := Compensator(plan)
 
 	rate := spec.InputRate
 	nRipple := 0
@@ -154,10 +145,7 @@ func Requirements(spec Spec, plan []StagePlan) ([]Requirement, error) {
 				uncorrected += droop
 			}
 		case HalfBand:
-			edge := math.Max(fp, fa)
-			if r.Last {
-				edge = math.Max(fp, fk-fs)
-			}
+			edge := HalfBandEdge(fp, fa, fs, fk, r.Last)
 			if edge >= out/2 {
 				// Name the edge that binds: the passband, the protected
 				// edge, or (last) the output rate less the stopband.
@@ -177,11 +165,7 @@ func Requirements(spec Spec, plan []StagePlan) ([]Requirement, error) {
 			nRipple++
 		case FIR:
 			if p.Variant == Lowpass {
-				lo := out - fa
-				if r.Last {
-					lo = math.Min(fs, fk-fa)
-				}
-				r.Stopbands = []Interval{{lo, rate / 2}}
+				r.Stopbands = []Interval{{StopEdge(out, fa, fs, r.Last), rate / 2}}
 			} else {
 				r.Stopbands = aliasBands(out, rate, fa, r.Last, fs)
 			}
@@ -201,8 +185,8 @@ func Requirements(spec Spec, plan []StagePlan) ([]Requirement, error) {
 		rate = out
 	}
 
-	left := spec.RippleDB - uncorrected
-	if left <= 0 || (nRipple == 0 && uncorrected > spec.RippleDB) {
+	share, ok := RippleShare(spec.RippleDB, uncorrected, nRipple)
+	if !ok {
 		return nil, planErr(plan, -1, "the uncorrected CIC droop %.4g dB at %s Hz exceeds RippleDB = %s dB",
 			uncorrected, fmtNum(fp), fmtNum(spec.RippleDB))
 	}
@@ -210,7 +194,6 @@ func Requirements(spec Spec, plan []StagePlan) ([]Requirement, error) {
 		reqs[i].StopbandScale = 1
 	}
 	if nRipple > 0 {
-		share := left / float64(nRipple)
 		dp := RippleToDev(share)
 		for i := range reqs {
 			scale := StopbandScale(dp, nRipple, reqs[i].Kind != CIC)
@@ -230,6 +213,56 @@ func Requirements(spec Spec, plan []StagePlan) ([]Requirement, error) {
 	return reqs, nil
 }
 
+// Compensator is the index of the stage that corrects the CIC droop in
+// plan, the last FIR stage after the first CIC, or -1 when none does.
+func Compensator(plan []StagePlan) int {
+	firstCIC, comp := -1, -1
+	for i, p := range plan {
+		if p.Kind == CIC && firstCIC < 0 {
+			firstCIC = i
+		}
+		if p.Kind == FIR && firstCIC >= 0 {
+			comp = i
+		}
+	}
+	return comp
+}
+
+// StopEdge is where a FIR stage with output rate out starts to attenuate
+// (docs/design.md §4): at its first alias band, out - fa, or as the last
+// stage at min(fs, out - fa), out being then FK.
+func StopEdge(out, fa, fs float64, last bool) float64 {
+	if last {
+		return math.Min(fs, out-fa)
+	}
+	return out - fa
+}
+
+// HalfBandEdge is the band a half-band stage keeps flat: up to max(fp,
+// fa), or as the last stage max(fp, FK - fs), since its mirror image about
+// a quarter of its input rate must fall in the stopband.
+func HalfBandEdge(fp, fa, fs, fk float64, last bool) float64 {
+	if last {
+		return math.Max(fp, fk-fs)
+	}
+	return math.Max(fp, fa)
+}
+
+// RippleShare is each ripple-bearing stage's share of the ripple budget:
+// what the spec's rippleDB leaves after the CIC droop no stage corrects
+// (uncorrectedDB), split equally in dB over the n half-band and FIR stages;
+// ok is false when the droop alone spends the budget.
+func RippleShare(rippleDB, uncorrectedDB float64, n int) (share float64, ok bool) {
+	left := rippleDB - uncorrectedDB
+	if left <= 0 || (n == 0 && uncorrectedDB > rippleDB) {
+		return 0, false
+	}
+	if n == 0 {
+		return 0, true
+	}
+	return left / float64(n), true
+}
+
 // aliasBands returns the bands of a stage's input [0, in/2] that fold onto
 // [0, fa] at its output rate out: [k out - fa, k out + fa], k = 1..floor(D/2),
 // clipped and merged. For the last stage the first band starts at the final
@@ -239,8 +272,8 @@ func aliasBands(out, in, fa float64, last bool, fs float64) []Interval {
 	var bands []Interval
 	for k := 1; k <= d/2; k++ {
 		lo, hi := float64(k)*out-fa, float64(k)*out+fa
-		if k == 1 && last {
-			lo = math.Min(fs, out-fa)
+		if k == 1 {
+			lo = StopEdge(out, fa, fs, last)
 		}
 		if hi > in/2 {
 			hi = in / 2

@@ -302,16 +302,14 @@ func newEstimator(p params, tol float64) *estimator {
 func (e *estimator) keysOf(plan []chain.StagePlan) dropCode {
 	p := &e.p
 	e.keys = e.keys[:0]
-	comp, nRipple := -1, 0
-	for i, st := range plan {
+	nRipple := 0
+	for _, st := range plan {
 		if st.Kind != chain.CIC {
 			nRipple++
 		}
-		if st.Kind == chain.FIR && plan[0].Kind == chain.CIC {
-			comp = i
-		}
 	}
-	left := p.rippleDB
+	comp := chain.Compensator(plan)
+	uncorrected := 0.0
 	var cic chain.StagePlan
 	if plan[0].Kind == chain.CIC {
 		cic = plan[0]
@@ -319,15 +317,12 @@ func (e *estimator) keysOf(plan []chain.StagePlan) dropCode {
 			return dropCICNull
 		}
 		if comp < 0 {
-			left -= -20 * math.Log10(cicGain(p.fp, p.f0, cic.Factor, cic.CICOrder, cic.CICDelay))
-			if left <= 0 {
-				return dropCICDroop
-			}
+			uncorrected = -20 * math.Log10(cicGain(p.fp, p.f0, cic.Factor, cic.CICOrder, cic.CICDelay))
 		}
 	}
-	share := 0.0
-	if nRipple > 0 {
-		share = left / float64(nRipple)
+	share, ok := chain.RippleShare(p.rippleDB, uncorrected, nRipple)
+	if !ok {
+		return dropCICDroop
 	}
 	prefix := 1
 	for i, st := range plan {
@@ -405,15 +400,6 @@ func (e *estimator) score(plan []chain.StagePlan) (figs, dropCode) {
 	return total, dropNone
 }
 
-// stopEdge is where the stage's first attenuated band starts (docs/design.md §4):
-// Fi - fa, or min(fs, FK - fa) for the last stage.
-func (p *params) stopEdge(out float64, last bool) float64 {
-	if last {
-		return math.Min(p.fs, p.fk-p.fa)
-	}
-	return out - p.fa
-}
-
 func (e *estimator) stage(k stageKey) stageVal {
 	p := &e.p
 	prefix, f := int(k.prefix), int(k.factor)
@@ -425,7 +411,7 @@ func (e *estimator) stage(k stageKey) stageVal {
 	// The absolute stopband limit each stage is designed to, as chain sets
 	// it, so that the cascade's rejection relative to |H(0)| meets the target.
 	ds := p.ds * chain.StopbandScale(dpi, int(k.nRipple), true)
-	stop := p.stopEdge(out, last)
+	stop := chain.StopEdge(out, p.fa, p.fs, last)
 	cplx := 1.0
 	if p.complex {
 		cplx = 2
@@ -462,10 +448,7 @@ func (e *estimator) stage(k stageKey) stageVal {
 		// with N R M.
 		v.work = float64(n * f * m)
 	case chain.HalfBand:
-		edge := math.Max(p.fp, p.fa)
-		if last {
-			edge = math.Max(p.fp, p.fk-p.fs)
-		}
+		edge := chain.HalfBandEdge(p.fp, p.fa, p.fs, p.fk, last)
 		hbStop := rate/2 - edge
 		if f != 2 || edge >= out/2 {
 			v.drop = dropHalfBandEdges
@@ -571,7 +554,7 @@ func cicRejection(p *params, rate float64, r, n, m int, last bool) float64 {
 	for k := 1; k <= r/2; k++ {
 		lo := float64(k)*out - p.fa
 		if k == 1 {
-			lo = p.stopEdge(out, last)
+			lo = chain.StopEdge(out, p.fa, p.fs, last)
 		}
 		hi := math.Min(float64(k)*out+p.fa, rate/2)
 		if lo >= hi {
