@@ -153,10 +153,10 @@ type Widths struct {
 // its full register is), the last stage's output Words.OutputBits.
 func Plan(c Cascade, w Words, s Settings) (*Widths, error) {
 	if w.InputBits == 0 {
-		w.InputBits = 16
+		w.InputBits = chain.DefaultInputBits
 	}
 	if w.OutputBits == 0 {
-		w.OutputBits = 24
+		w.OutputBits = chain.DefaultOutputBits
 	}
 	if w.DataBits == 0 {
 		w.DataBits = w.OutputBits

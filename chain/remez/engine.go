@@ -201,7 +201,7 @@ func newEngine(n int, rate float64, bands []Band, s Settings) (*engine, error) {
 	}
 	e := &engine{n: n, rate: rate, density: s.Density, maxIter: s.MaxIterations, gridOnly: s.GridOnly, stepGap: math.Inf(1)}
 	if e.density == 0 {
-		e.density = 16
+		e.density = DefaultDensity
 	}
 	if e.maxIter == 0 {
 		e.maxIter = 100
@@ -228,6 +228,10 @@ func newEngine(n int, rate float64, bands []Band, s Settings) (*engine, error) {
 	}
 	return e, nil
 }
+
+// DefaultDensity is Settings.Density's zero value: grid points per
+// extremum, as in McClellan, Parks and Rabiner (1973).
+const DefaultDensity = 16
 
 // MaxGridPoints bounds a design's dense grid. The grid holds about
 // density x n/2 points of 64 bytes, and a design's peak memory, with the

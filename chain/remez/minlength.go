@@ -88,7 +88,7 @@ func minLength(ctx context.Context, rate float64, bands []Band, parity, maxTaps 
 	// the search stops below them and says so.
 	density := s.Density
 	if density == 0 {
-		density = 16
+		density = DefaultDensity
 	}
 	nb := make([]nband, len(bands))
 	for i, b := range bands {
