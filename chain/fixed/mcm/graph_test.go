@@ -96,7 +96,7 @@ func TestBuildByHand(t *testing.T) {
 		{[]int64{21, 35}, 3, 2, "neither is 2^i ± 1, so the first adder is neither: three at least; " +
 			"7 = (1 << 3) - 1, 21 = (7 << 1) + 7, 35 = (7 << 2) + 7 (CSD: 2 + 2)"},
 		{[]int64{7, 45}, 3, 2, "45 is not in A({1, 7}, {1, 7}) (7·2^i ± 1, 7 ± 2^j, 7(2^i ± 1), " +
-			"2^i ± 1 and their halvings miss it), so three at least; 7, 5, 45 = (5 << 3) + 5 (CSD: 1 + 3)"},
+			"2^i ± 1 and their halvings miss it), so three at least; 7, 3, 45 = (3 << 4) - 3 (CSD: 1 + 3)"},
 	} {
 		g, err := Build(tc.coefs)
 		if err != nil {
