@@ -22,6 +22,7 @@ const (
 	evalCands = 16
 	allWork   = 1 << 18
 	slistCap  = 1 << 20
+	denseLim  = 1 << 22 // candidate places in a 8 MB array at most
 )
 
 // op is the wiring of one A-operation on operands u and v:
@@ -186,7 +187,8 @@ type builder struct {
 	greedy  bool
 	rset    set // R's values, a quick filter before index
 	succ    set
-	pos     map[uint64]int // step's scratch: candidate -> cands index
+	pos     map[uint64]int // step's scratch: candidate -> cands index (large lim)
+	posArr  []int32        // step's scratch: candidate/2 -> cands index + 1 (small lim)
 	cands   []cand         // step's scratch
 	slist   []uint64       // S's values in the order found (at most slistCap)
 	tset    set
@@ -381,24 +383,38 @@ func (b *builder) step() uint64 {
 		}
 	}
 	est := make([]int, len(pend))
-	if b.pos == nil {
-		b.pos = make(map[uint64]int)
+	// pos finds a candidate's place in cands: a dense array (index v/2,
+	// place+1) for small lim, else a map.
+	dense := b.lim <= denseLim
+	if dense && b.posArr == nil {
+		b.posArr = make([]int32, b.lim/2+1)
 	}
-	clear(b.pos)
-	pos := b.pos
+	if !dense {
+		if b.pos == nil {
+			b.pos = make(map[uint64]int)
+		}
+		clear(b.pos)
+	}
 	cands := b.cands[:0]
 	defer func() { b.cands = cands[:0] }()
 	bump := func(s uint64, k int) {
-		if s <= 1 || !b.succ.has(s) {
+		if s <= 1 || !b.succ.has(s) || b.rset.has(s) {
 			return
 		}
-		if _, in := b.index[s]; in {
-			return
+		var j int
+		var ok bool
+		if dense {
+			j, ok = int(b.posArr[s>>1])-1, b.posArr[s>>1] != 0
+		} else {
+			j, ok = b.pos[s]
 		}
-		j, ok := pos[s]
 		if !ok {
 			j = len(cands)
-			pos[s] = j
+			if dense {
+				b.posArr[s>>1] = int32(j + 1)
+			} else {
+				b.pos[s] = j
+			}
 			cands = append(cands, cand{v: s, last: -1})
 		}
 		if c := &cands[j]; c.last != k {
@@ -408,7 +424,7 @@ func (b *builder) step() uint64 {
 	}
 	for k, i := range pend {
 		if b.work > b.budget {
-			return 0
+			break
 		}
 		t := b.tgt[i]
 		e := 1 << 30
@@ -429,6 +445,14 @@ func (b *builder) step() uint64 {
 			}
 		}
 		est[k] = e
+	}
+	if dense {
+		for _, c := range cands {
+			b.posArr[c.v>>1] = 0
+		}
+	}
+	if b.work > b.budget {
+		return 0
 	}
 	lb := bits.Len64(b.lim)
 	var pp []pair
