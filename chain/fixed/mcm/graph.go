@@ -50,7 +50,8 @@ type Tap struct {
 }
 
 // Graph is a shared adder graph that multiplies one input by every
-// coefficient it was built for.
+// coefficient it was built for. Graphs come from Build; the zero Graph
+// has no coefficients and no adders.
 type Graph struct {
 	nodes []Node
 	taps  []Tap
@@ -58,7 +59,7 @@ type Graph struct {
 
 // Adders returns the adders and subtractors of the graph (its nodes other
 // than the input).
-func (g *Graph) Adders() int { return len(g.nodes) - 1 }
+func (g *Graph) Adders() int { return max(len(g.nodes)-1, 0) }
 
 // Depth returns the adder depth: the most adders on any path from the
 // input to a coefficient (0 when every coefficient is zero or a power of
@@ -88,6 +89,9 @@ func (g *Graph) Taps() []Tap { return append([]Tap(nil), g.taps...) }
 // not fit an int64 (keep |x|·2^(w+1) below 2^63 for coefficients of w
 // bits).
 func (g *Graph) Eval(x int64) ([]int64, error) {
+	if len(g.nodes) == 0 {
+		return []int64{}, nil // the zero Graph
+	}
 	v := make([]int64, len(g.nodes))
 	v[0] = x
 	for i := 1; i < len(g.nodes); i++ {

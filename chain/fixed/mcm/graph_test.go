@@ -261,6 +261,15 @@ func TestBuildErrors(t *testing.T) {
 	}
 }
 
+// TestZeroGraph: the zero Graph is empty, not a panic.
+func TestZeroGraph(t *testing.T) {
+	var g Graph
+	v, err := g.Eval(5)
+	if err != nil || len(v) != 0 || g.Adders() != 0 || g.Depth() != 0 || g.String() != "" {
+		t.Errorf("zero Graph: Eval %v, %v; Adders %d, Depth %d, String %q", v, err, g.Adders(), g.Depth(), g.String())
+	}
+}
+
 // TestEvalOverflow: a product beyond int64 is an error, not a wrong
 // number.
 func TestEvalOverflow(t *testing.T) {
