@@ -102,8 +102,7 @@ func runSweep(c *cli.Context) error {
 		ctx, cancel = context.WithTimeout(sigCtx, c.Duration("timeout"))
 		defer cancel()
 	}
-	quiet, asJSON := c.Bool("quiet"), c.Bool("json")
-	prog := newProgress(c.App.ErrWriter, quiet)
+	prog := newProgress(c.App.ErrWriter, c.Bool("quiet"))
 	st := sweep.Study{
 		Name: source, Spec: text, Vary: v, Jobs: c.Int("jobs"),
 		Settings: func(s *specfile.Spec) optimize.Settings {
@@ -157,26 +156,9 @@ func runSweep(c *cli.Context) error {
 	if err != nil {
 		return err
 	}
-	if c.Context.Err() != nil {
-		return fmt.Errorf("interrupted; %s left as it was", clip(out.Dir()))
-	}
-	if err := out.Write(files); err != nil {
+	w, err := commitSweep(c, out, files)
+	if err != nil {
 		return err
-	}
-	if err := out.Commit(); err != nil {
-		return err
-	}
-	if asJSON {
-		if _, err := c.App.Writer.Write(files[0].Data); err != nil {
-			return err
-		}
-	}
-	w := c.App.Writer
-	switch {
-	case quiet:
-		w = io.Discard
-	case asJSON:
-		w = c.App.ErrWriter
 	}
 	printSweep(w, source, out.Dir(), v, doc, files)
 	return nil
@@ -234,34 +216,8 @@ func printSweep(w io.Writer, source, dir string, v sweep.Vary, doc *sweep.Doc, f
 		rows = append(rows, row)
 	}
 	// A row without a chain is the value, its status and the detail, which
-	// runs to the end of the line: the value and status columns are as
-	// wide as every row needs, the detail takes no width.
-	widths := make([]int, len(head))
-	for _, r := range rows {
-		n := len(r)
-		if n < len(head) {
-			n--
-		}
-		for i, c := range r[:n] {
-			widths[i] = max(widths[i], len(c))
-		}
-	}
-	for _, r := range rows {
-		var b strings.Builder
-		for i, c := range r {
-			if i > 0 {
-				b.WriteString("  ")
-			}
-			if len(r) < len(head) && i == len(r)-1 {
-				b.WriteString(c)
-			} else if i >= 3 {
-				fmt.Fprintf(&b, "%*s", widths[i], c)
-			} else {
-				fmt.Fprintf(&b, "%-*s", widths[i], c)
-			}
-		}
-		fmt.Fprintln(w, strings.TrimRight(b.String(), " "))
-	}
+	// runs to the end of the line.
+	report.WriteAligned(w, "", rows, func(i int) bool { return i >= 3 })
 	fmt.Fprintf(w, "\nwrote %s/ (%d files): report.json, sweep.csv, sweep.svg, sweep.png", dir, len(files))
 	for _, f := range files {
 		if f.Name == "report.html" {
@@ -296,30 +252,39 @@ func finishGrid(c *cli.Context, out *report.Folder, source string, base *specfil
 	if err != nil {
 		return err
 	}
-	if c.Context.Err() != nil {
-		return fmt.Errorf("interrupted; %s left as it was", clip(out.Dir()))
-	}
-	if err := out.Write(files); err != nil {
+	w, err := commitSweep(c, out, files)
+	if err != nil {
 		return err
-	}
-	if err := out.Commit(); err != nil {
-		return err
-	}
-	quiet, asJSON := c.Bool("quiet"), c.Bool("json")
-	if asJSON {
-		if _, err := c.App.Writer.Write(files[0].Data); err != nil {
-			return err
-		}
-	}
-	w := c.App.Writer
-	switch {
-	case quiet:
-		w = io.Discard
-	case asJSON:
-		w = c.App.ErrWriter
 	}
 	printGrid(w, source, out.Dir(), g, rs, files)
 	return nil
+}
+
+// commitSweep writes a sweep's files into the output folder and puts it in
+// place (unless interrupted), prints report.json with --json, and returns
+// where the table goes: nowhere with --quiet, stderr with --json.
+func commitSweep(c *cli.Context, out *report.Folder, files []report.File) (io.Writer, error) {
+	if c.Context.Err() != nil {
+		return nil, fmt.Errorf("interrupted; %s left as it was", clip(out.Dir()))
+	}
+	if err := out.Write(files); err != nil {
+		return nil, err
+	}
+	if err := out.Commit(); err != nil {
+		return nil, err
+	}
+	if c.Bool("json") {
+		if _, err := c.App.Writer.Write(files[0].Data); err != nil {
+			return nil, err
+		}
+	}
+	switch {
+	case c.Bool("quiet"):
+		return io.Discard, nil
+	case c.Bool("json"):
+		return c.App.ErrWriter, nil
+	}
+	return c.App.Writer, nil
 }
 
 // cellName is a cell's pair of keys and values, "rejection 80 dB, passband 400 kHz".
@@ -371,25 +336,9 @@ func printGrid(w io.Writer, source, dir string, g sweep.Grid, rs []sweep.Result,
 		}
 		rows[len(rows)-1] = append(rows[len(rows)-1], cell)
 	}
-	widths := make([]int, n+1)
-	for _, r := range rows {
-		for i, c := range r {
-			widths[i] = max(widths[i], len(c))
-		}
-	}
 	fmt.Fprintln(w, "Multiplies per output of each cell's recommended chain; the letter names its structure.")
 	fmt.Fprintln(w)
-	for _, r := range rows {
-		var b strings.Builder
-		for i, c := range r {
-			if i == 0 {
-				fmt.Fprintf(&b, "%-*s", widths[i], c)
-			} else {
-				fmt.Fprintf(&b, "  %*s", widths[i], c)
-			}
-		}
-		fmt.Fprintln(w, strings.TrimRight(b.String(), " "))
-	}
+	report.WriteAligned(w, "", rows, func(i int) bool { return i > 0 })
 	if len(notations) > 0 {
 		// The key of the tags, in as many columns as fit in gridKeyWidth.
 		tw, nw := len(sweep.TagName(len(notations)-1)), 0

@@ -5,7 +5,6 @@ import (
 	"io"
 	"math"
 	"slices"
-	"strings"
 )
 
 // BlockMemoryBits is the size from which a stage's memory is counted as
@@ -119,24 +118,5 @@ func WriteResources(w io.Writer, rep *Report) {
 	}
 	rows = append(rows, []string{"total", "", fmt.Sprint(res.Lanes), fmt.Sprint(res.Multipliers), fmt.Sprint(res.Adders), "",
 		fmt.Sprint(res.RegisterBits), fmt.Sprint(res.BlockMemoryBits)})
-	widths := make([]int, len(rows[0]))
-	for _, r := range rows {
-		for i, c := range r {
-			widths[i] = max(widths[i], len(c))
-		}
-	}
-	for _, r := range rows {
-		var b strings.Builder
-		for i, c := range r {
-			if i > 0 {
-				b.WriteString("  ")
-			}
-			if i >= 2 {
-				fmt.Fprintf(&b, "%*s", widths[i], c)
-			} else {
-				fmt.Fprintf(&b, "%-*s", widths[i], c)
-			}
-		}
-		fmt.Fprintln(w, "  "+strings.TrimRight(b.String(), " "))
-	}
+	WriteAligned(w, "  ", rows, func(i int) bool { return i >= 2 })
 }

@@ -152,26 +152,7 @@ func WriteTable(w io.Writer, rep *Report) {
 			kind)
 		rows = append(rows, row)
 	}
-	widths := make([]int, len(head))
-	for _, r := range rows {
-		for i, c := range r {
-			widths[i] = max(widths[i], len(c))
-		}
-	}
-	for _, r := range rows {
-		var b strings.Builder
-		for i, c := range r {
-			if i > 0 {
-				b.WriteString("  ")
-			}
-			if i >= 3 && i < len(r)-1 {
-				fmt.Fprintf(&b, "%*s", widths[i], c)
-			} else {
-				fmt.Fprintf(&b, "%-*s", widths[i], c)
-			}
-		}
-		fmt.Fprintln(w, strings.TrimRight(b.String(), " "))
-	}
+	WriteAligned(w, "", rows, func(i int) bool { return i >= 3 && i < len(head)-1 })
 	if rounded {
 		what := "rounded to the automatic widths"
 		if c := rep.Spec.Words.Coefficients; c != nil {
@@ -225,4 +206,42 @@ func capitalise(s string) string {
 		return s
 	}
 	return strings.ToUpper(s[:1]) + s[1:]
+}
+
+// WriteAligned writes rows as a table after indent: columns two spaces
+// apart, each as wide as its widest cell, right-aligned where right says
+// so. A row shorter than the first (the header) ends in a cell that takes
+// no width and runs to the end of the line, such as a detail.
+func WriteAligned(w io.Writer, indent string, rows [][]string, right func(col int) bool) {
+	if len(rows) == 0 {
+		return
+	}
+	full := len(rows[0])
+	widths := make([]int, full)
+	for _, r := range rows {
+		n := len(r)
+		if n < full {
+			n--
+		}
+		for i, c := range r[:max(0, n)] {
+			widths[i] = max(widths[i], len(c))
+		}
+	}
+	for _, r := range rows {
+		var b strings.Builder
+		for i, c := range r {
+			if i > 0 {
+				b.WriteString("  ")
+			}
+			switch {
+			case len(r) < full && i == len(r)-1:
+				b.WriteString(c)
+			case right(i):
+				fmt.Fprintf(&b, "%*s", widths[i], c)
+			default:
+				fmt.Fprintf(&b, "%-*s", widths[i], c)
+			}
+		}
+		fmt.Fprintln(w, indent+strings.TrimRight(b.String(), " "))
+	}
 }
