@@ -257,7 +257,9 @@ func (m *lengthSearch) design(n int) (*Result, []float64, bool) {
 		return nil, nil, false
 	}
 	e.ctx = m.ctx
-	e.warm = m.refs[m.nearestRef(n)]
+	if warmStart {
+		e.warm = m.refs[m.nearestRef(n)]
+	}
 	res, err := e.design()
 	if res != nil && res.Converged {
 		if m.refs == nil {
@@ -272,6 +274,11 @@ func (m *lengthSearch) design(n int) (*Result, []float64, bool) {
 	_, wdev := e.deviations(res.Taps)
 	return res, wdev, lax
 }
+
+// warmStart starts each design of a length search from the nearest
+// designed length's reference; tests turn it off to compare with the cold
+// start.
+var warmStart = true
 
 // nearestRef is the designed length nearest to n whose converged
 // reference can start n's design (the shorter on a tie), or 0 for none.

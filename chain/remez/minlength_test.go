@@ -3,6 +3,7 @@ package remez
 import (
 	"context"
 	"math"
+	"math/rand/v2"
 	"testing"
 )
 
@@ -114,5 +115,52 @@ func TestMinLengthCompensator(t *testing.T) {
 	}
 	if res.Deviations[0] < worst*(1-1e-9) {
 		t.Errorf("reported passband deviation %v below measured %v", res.Deviations[0], worst)
+	}
+}
+
+// The warm start (and Herrmann's step) change only how MinLength gets
+// there: on seeded random lowpass and multiband specs it returns the same
+// length as a search whose designs all start cold, and the taps meet the
+// bands when measured independently of the engine.
+func TestMinLengthWarmEqualsCold(t *testing.T) {
+	rng := rand.New(rand.NewPCG(17, 3))
+	n := 40
+	if testing.Short() {
+		n = 10
+	}
+	compared := 0
+	for c := 0; c < n; c++ {
+		fp := 0.02 + 0.3*rng.Float64()
+		tr := (0.01 + 0.08*rng.Float64()) * (0.5 - fp)
+		dp := math.Pow(10, -1-2*rng.Float64())
+		ds := math.Pow(10, -2-3*rng.Float64())
+		bands := []Band{{Lo: 0, Hi: fp, Gain: 1, MaxError: dp}}
+		// Half the cases are multiband: stopbands with don't-care gaps.
+		if c%2 == 0 {
+			bands = append(bands, Band{Lo: fp + tr, Hi: 0.5, MaxError: ds})
+		} else {
+			mid := fp + tr + (0.5-fp-tr)/2
+			bands = append(bands, Band{Lo: fp + tr, Hi: mid - 0.01, MaxError: ds}, Band{Lo: mid + 0.01, Hi: 0.5, MaxError: ds})
+		}
+		warm, werr := MinLength(1, bands, 0, 2000, Settings{})
+		warmStart = false
+		cold, cerr := MinLength(1, bands, 0, 2000, Settings{})
+		warmStart = true
+		if (werr == nil) != (cerr == nil) {
+			t.Fatalf("case %d: warm err %v, cold err %v", c, werr, cerr)
+		}
+		if werr != nil {
+			continue
+		}
+		compared++
+		if len(warm.Taps) != len(cold.Taps) {
+			t.Errorf("case %d (%v): warm start %d taps, cold %d", c, bands, len(warm.Taps), len(cold.Taps))
+		}
+		if !meetsAll(warm.Taps, 1, bands) {
+			t.Errorf("case %d: the warm start's %d taps miss the bands", c, len(warm.Taps))
+		}
+	}
+	if compared < n*3/4 {
+		t.Errorf("only %d of %d cases designed", compared, n)
 	}
 }
