@@ -1,0 +1,66 @@
+package fixed
+
+import "fmt"
+
+// Model is the integer data path of a planned cascade, one real path: the
+// integer half of the bit-true run (BitTrue runs the same filters), exposed
+// so that test vectors and other models of the chain can be checked against
+// it sample for sample.
+//
+// Its conventions are Plan's: the input is a two's-complement code of
+// Widths.InputBits bits; a CIC's registers truncate (floor) at each of
+// Hogenauer's points and wrap at their widths, its first output is taken at
+// input sample 0 and then every R-th; an FIR's output m is sum_k h[k]
+// x[mR-k] over k <= mR (inputs before the first are zero), exact, rounded
+// half up at OutputShift and saturated to OutputBits. Stage i's output is a
+// code of Widths.Stages[i].OutputBits bits. A complex (I/Q) chain is two
+// such paths, one per component.
+//
+// A Model keeps its filters' state between calls to Run, so a long input can
+// be run a block at a time; the zero Model is not usable (NewModel).
+type Model struct {
+	inBits int
+	stages []intFilter
+}
+
+// NewModel returns the integer data path of c planned as w, in its reset
+// state (every register and delay line zero). It refuses a CIC whose full
+// register is wider than 63 bits, which the int64 arithmetic cannot hold.
+func NewModel(c Cascade, w *Widths) (*Model, error) {
+	if len(w.Stages) != len(c.Stages) || len(c.Stages) == 0 {
+		return nil, fmt.Errorf("fixed: model of %d stages with widths of %d", len(c.Stages), len(w.Stages))
+	}
+	m := &Model{inBits: w.InputBits}
+	for i, st := range c.Stages {
+		sw := &w.Stages[i]
+		if st.CIC {
+			if sw.Pruning.FullBits > 63 {
+				return nil, fmt.Errorf("fixed: stage %d: the CIC's %d-bit registers are beyond the integer model's 63 bits", i+1, sw.Pruning.FullBits)
+			}
+			m.stages = append(m.stages, newCICState(sw.Pruning))
+			continue
+		}
+		m.stages = append(m.stages, newFIRInt(sw.Coefficients.Ints, st.R, sw.OutputShift, sw.OutputBits))
+	}
+	return m, nil
+}
+
+// Run passes the input codes x through every stage and returns each stage's
+// outputs completed by this block (out[i] is stage i's, out[len-1] the
+// chain's). It returns an error, and leaves the state unchanged, when a code
+// lies outside the input word.
+func (m *Model) Run(x []int64) ([][]int64, error) {
+	lo, hi := -(int64(1) << (m.inBits - 1)), int64(1)<<(m.inBits-1)-1
+	for n, v := range x {
+		if v < lo || v > hi {
+			return nil, fmt.Errorf("fixed: input sample %d = %d lies outside the %d-bit input word [%d, %d]", n, v, m.inBits, lo, hi)
+		}
+	}
+	out := make([][]int64, len(m.stages))
+	cur := x
+	for i, f := range m.stages {
+		out[i] = f.run(cur, nil)
+		cur = out[i]
+	}
+	return out, nil
+}
