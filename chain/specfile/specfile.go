@@ -1,6 +1,8 @@
 package specfile
 
 import (
+	"crypto/sha256"
+	"encoding/hex"
 	"errors"
 	"fmt"
 	"io"
@@ -85,6 +87,10 @@ type Spec struct {
 	Kinds     []chain.Kind
 	CICOrders []int
 	CICDelays []int
+	// SHA256 is the SHA-256 of the spec's text as parsed (the built-in
+	// example's text for Example), in lower-case hexadecimal: report.json's
+	// spec_sha256, which ties a report to the file that made it.
+	SHA256 string
 }
 
 // CostSettings returns the pricing settings the spec asks for.
@@ -248,7 +254,13 @@ func Parse(name string, data []byte) (*Spec, error) {
 	if err := p.checkKeys(md); err != nil {
 		return nil, err
 	}
-	return p.build()
+	out, err := p.build()
+	if err != nil {
+		return nil, err
+	}
+	sum := sha256.Sum256(data)
+	out.SHA256 = hex.EncodeToString(sum[:])
+	return out, nil
 }
 
 func oneLine(s string) string {

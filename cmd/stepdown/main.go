@@ -15,7 +15,6 @@ import (
 	"os"
 	"os/signal"
 	"regexp"
-	"runtime/debug"
 	"slices"
 	"strings"
 	"syscall"
@@ -23,6 +22,7 @@ import (
 	"github.com/urfave/cli/v2"
 
 	"github.com/stepdown-dsp/stepdown/chain/units"
+	"github.com/stepdown-dsp/stepdown/plots/report"
 )
 
 // Exit codes.
@@ -157,7 +157,7 @@ func newApp(stdout, stderr io.Writer) *cli.App {
 		Usage: "plan multistage decimation chains (CIC, half-band, FIR) for receiver front ends",
 		Description: "The figures stepdown prints are planning estimates: confirm them by a bit-true\n" +
 			"simulation of the RTL and the team's own sign-off before committing hardware.",
-		Version:                   versionText(),
+		Version:                   report.ToolVersion(),
 		Writer:                    stdout,
 		ErrWriter:                 stderr,
 		DisableSliceFlagSeparator: true,
@@ -175,41 +175,6 @@ func newApp(stdout, stderr io.Writer) *cli.App {
 		c.OnUsageError = onUsage
 	}
 	return app
-}
-
-// version is stepdown's release; a build from a checkout adds the commit
-// it was built from (Go records it) to what --version prints.
-const version = "0.2.0-dev"
-
-// versionText is the version and, when the build recorded it, the commit
-// ("+dirty" when the tree had changes).
-func versionText() string {
-	v := version
-	bi, ok := debug.ReadBuildInfo()
-	if !ok {
-		return v
-	}
-	var rev string
-	dirty := false
-	for _, s := range bi.Settings {
-		switch s.Key {
-		case "vcs.revision":
-			rev = s.Value
-		case "vcs.modified":
-			dirty = s.Value == "true"
-		}
-	}
-	if len(rev) > 12 {
-		rev = rev[:12]
-	}
-	if rev != "" {
-		v += " (commit " + rev
-		if dirty {
-			v += "+dirty"
-		}
-		v += ")"
-	}
-	return v
 }
 
 // reorderArgs moves a command's flags in front of its positional arguments,

@@ -12,6 +12,8 @@ import (
 	"strconv"
 	"strings"
 	"testing"
+
+	"github.com/stepdown-dsp/stepdown/plots/report"
 )
 
 // binary is the stepdown command built once for every test in this file.
@@ -505,8 +507,31 @@ func TestLongOutName(t *testing.T) {
 // on stdout and exits 0.
 func TestVersion(t *testing.T) {
 	r := runBinary(t, t.TempDir(), nil, "--version")
-	if r.code != 0 || !strings.HasPrefix(r.stdout, "stepdown version "+version) || r.stderr != "" {
+	if r.code != 0 || !strings.HasPrefix(r.stdout, "stepdown version "+report.Version) || r.stderr != "" {
 		t.Errorf("--version: exit %d, stdout %q, stderr %q", r.code, r.stdout, r.stderr)
+	}
+}
+
+// report.json records what made it: tool_version is what --version prints
+// (less "stepdown version "), spec_sha256 the SHA-256 of the spec file as
+// coreutils' sha256sum computes it (an outside tool).
+func TestReportTracesSpecAndTool(t *testing.T) {
+	dir := t.TempDir()
+	must(t, os.WriteFile(filepath.Join(dir, "spec.toml"), []byte(goodSpec), 0o644))
+	if r := runBinary(t, dir, nil, "check", "spec.toml", "--chain", "cic3m1r8 > fir4", "--quiet", "--out", "out"); r.code != 0 {
+		t.Fatalf("check: exit %d: %s", r.code, r.stderr)
+	}
+	rep := readReport(t, filepath.Join(dir, "out", "report.json"))
+	v := runBinary(t, dir, nil, "--version")
+	if want := strings.TrimSpace(strings.TrimPrefix(v.stdout, "stepdown version ")); rep["tool_version"] != want {
+		t.Errorf("tool_version %v, --version says %q", rep["tool_version"], want)
+	}
+	sum, err := exec.Command("sha256sum", filepath.Join(dir, "spec.toml")).Output()
+	if err != nil {
+		t.Skipf("sha256sum: %v", err)
+	}
+	if want := strings.Fields(string(sum))[0]; rep["spec_sha256"] != want {
+		t.Errorf("spec_sha256 %v, sha256sum %s", rep["spec_sha256"], want)
 	}
 }
 

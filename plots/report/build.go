@@ -146,7 +146,14 @@ func Files(ctx context.Context, rep *Report, res *optimize.Result, spec *specfil
 	if err != nil {
 		return nil, err
 	}
-	return append(files, cf...), nil
+	files = append(files, cf...)
+	if err := ctx.Err(); err != nil {
+		return nil, err
+	}
+	// The hand-off: absent where the chain has no word-length plan, which
+	// report.json's word_lengths_error already explains.
+	hf, _ := HandoffFiles(rep.Front[rec])
+	return append(files, hf...), nil
 }
 
 // figureFiles is one figure and the formats it is written in, as

@@ -2,16 +2,15 @@ package report
 
 import (
 	"fmt"
+	"github.com/stepdown-dsp/stepdown/handoff"
 	"math/big"
 	"strconv"
 	"strings"
 )
 
-// File is one output file: a path relative to the output folder and its bytes.
-type File struct {
-	Name string
-	Data []byte
-}
+// File is one output file: a path relative to the output folder and its
+// bytes (handoff.File, which the hand-off packages write).
+type File = handoff.File
 
 // CoefficientFiles returns the coefficient files of a chain, in stage order,
 // under the folder "coefficients/". ints asks for the integer files too
@@ -24,17 +23,17 @@ func CoefficientFiles(c Chain, ints bool) ([]File, error) {
 			continue
 		}
 		base := fmt.Sprintf("coefficients/stage%d_%s", i+1, s.Kind)
-		out = append(out, File{base + ".csv", FloatCSV(s.Coefficients)})
+		out = append(out, File{Name: base + ".csv", Data: FloatCSV(s.Coefficients)})
 		w := s.StageReport
 		if !ints || w == nil || w.CoefficientBits == 0 || w.CoefficientFrac == nil || len(w.CoefficientsInt) == 0 {
 			continue
 		}
-		out = append(out, File{base + "_int.csv", IntCSV(w.CoefficientsInt, *w.CoefficientFrac)})
+		out = append(out, File{Name: base + "_int.csv", Data: IntCSV(w.CoefficientsInt, *w.CoefficientFrac)})
 		hex, err := ReadmemH(w.CoefficientsInt, w.CoefficientBits)
 		if err != nil {
 			return nil, fmt.Errorf("report: stage %d: %v", i+1, err)
 		}
-		out = append(out, File{base + ".hex", hex})
+		out = append(out, File{Name: base + ".hex", Data: hex})
 	}
 	return out, nil
 }

@@ -5,6 +5,7 @@ import (
 	"fmt"
 	"os"
 	"path/filepath"
+	"strings"
 
 	"github.com/stepdown-dsp/stepdown/chain/specfile"
 	"github.com/stepdown-dsp/stepdown/optimize"
@@ -57,9 +58,15 @@ func ExampleFiles() {
 		return
 	}
 	fmt.Println("recommended:", rep.Front[rep.Recommended].Notation)
+	vectors := 0
 	for _, f := range files {
+		if strings.HasPrefix(f.Name, "vectors/") && f.Name != "vectors/README.txt" {
+			vectors++
+			continue
+		}
 		fmt.Println(f.Name)
 	}
+	fmt.Println("and", vectors, "vector files: 6 stimuli, each with its input, 2 stages' outputs and the chain's")
 	// Output:
 	// recommended: cic5m1r16 > fir4
 	// report.json
@@ -72,4 +79,6 @@ func ExampleFiles() {
 	// coefficients/stage2_fir.csv
 	// coefficients/stage2_fir_int.csv
 	// coefficients/stage2_fir.hex
+	// vectors/README.txt
+	// and 24 vector files: 6 stimuli, each with its input, 2 stages' outputs and the chain's
 }

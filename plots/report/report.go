@@ -31,8 +31,14 @@ const (
 
 // Report is report.json.
 type Report struct {
-	Schema      string  `json:"schema"`
-	Command     string  `json:"command"` // "plan" or "check"
+	Schema  string `json:"schema"`
+	Command string `json:"command"` // "plan" or "check"
+	// ToolVersion is the stepdown that made the report (ToolVersion());
+	// SpecSHA256 the SHA-256 of the spec's text (specfile.Spec.SHA256).
+	// With them a sign-off record can be traced; the report holds no
+	// timestamp, so the same spec and tool give the same bytes.
+	ToolVersion string  `json:"tool_version"`
+	SpecSHA256  string  `json:"spec_sha256"`
 	Caution     string  `json:"caution"`
 	Partial     bool    `json:"partial"`
 	Spec        Spec    `json:"spec"`
@@ -152,6 +158,10 @@ type Chain struct {
 	// Resources is the bill of fabric resources at the clock (with a clock
 	// only; see NewResources).
 	Resources *Resources `json:"resources,omitempty"`
+
+	// plan is the word-length plan behind ChainReport (AddWordLengths),
+	// kept for the hand-off files; nil without one.
+	plan *handoffPlan
 }
 
 // Stage is one stage of a chain.
@@ -350,6 +360,9 @@ func AddWordLengths(ctx context.Context, c *Chain, spec chain.Spec, cand optimiz
 	}
 	cr.Stages = nil
 	c.ChainReport = &cr
+	if cas, _, err := fixed.FromChain(spec, cand.Chain); err == nil {
+		c.plan = &handoffPlan{cascade: cas, widths: res.Widths, worstAliasHz: res.Quantised.WorstAliasHz}
+	}
 	if rounded {
 		c.MeetsTargets = c.FloatMeetsTargets && res.Quantised.Meets(spec)
 		// The verdict needs both to meet: the margin is the worse one's.
@@ -369,6 +382,8 @@ func NewContext(ctx context.Context, command string, s *specfile.Spec, res *opti
 	r := &Report{
 		Schema:      Schema,
 		Command:     command,
+		ToolVersion: ToolVersion(),
+		SpecSHA256:  s.SHA256,
 		Caution:     Caution,
 		Partial:     res.Partial,
 		Spec:        NewSpec(s),
