@@ -1,6 +1,10 @@
 package fixed
 
-import "fmt"
+import (
+	"context"
+	"fmt"
+	"math"
+)
 
 // Model is the integer data path of a planned cascade, one real path: the
 // integer half of the bit-true run (BitTrue runs the same filters), exposed
@@ -63,4 +67,52 @@ func (m *Model) Run(x []int64) ([][]int64, error) {
 		cur = out[i]
 	}
 	return out, nil
+}
+
+// RunCodes runs the bit-true run's two chains, the integer one (Model) and
+// the float one of the same structure and gains, on the input codes x of
+// one data path (codes of Widths.InputBits bits), a block at a time, and
+// returns the integer chain's output codes and the float chain's output in
+// fractions of full scale. ctx is checked between blocks; once it is done
+// RunCodes returns an error wrapping ctx.Err(). It refuses what BitTrue
+// refuses: a CIC register over 63 bits, a CIC float model over 2^22 taps,
+// and a code outside the input word.
+func RunCodes(ctx context.Context, c Cascade, w *Widths, x []int64) ([]int64, []float64, error) {
+	if _, err := NewModel(c, w); err != nil {
+		return nil, nil, err
+	}
+	for i, st := range c.Stages {
+		if st.CIC && stageLen(st) > maxCICFloatTaps {
+			return nil, nil, fmt.Errorf("fixed: stage %d: the CIC's float model would need %d taps, beyond the run's %d", i+1, stageLen(st), maxCICFloatTaps)
+		}
+	}
+	lo, hi := -(int64(1) << (w.InputBits - 1)), int64(1)<<(w.InputBits-1)-1
+	for n, v := range x {
+		if v < lo || v > hi {
+			return nil, nil, fmt.Errorf("fixed: input sample %d = %d lies outside the %d-bit input word [%d, %d]", n, v, w.InputBits, lo, hi)
+		}
+	}
+	cs := newChainState(c, w)
+	// The codes as fractions of full scale: exact (a power-of-two scale),
+	// so that the ADC of the run gives the codes back.
+	lsb := math.Ldexp(1, -(w.InputBits - 1))
+	olsb := math.Ldexp(1, w.Stages[len(w.Stages)-1].OutputBits-1)
+	blk := make([]float64, min(blockSamples, len(x)))
+	var codes []int64
+	var fl []float64
+	for n0 := 0; n0 < len(x); n0 += len(blk) {
+		if err := ctx.Err(); err != nil {
+			return nil, nil, fmt.Errorf("fixed: run stopped: %w", err)
+		}
+		b := blk[:min(len(blk), len(x)-n0)]
+		for i := range b {
+			b[i] = float64(x[n0+i]) * lsb
+		}
+		yi, yf := cs.run(b)
+		for _, v := range yi {
+			codes = append(codes, int64(math.Round(v*olsb)))
+		}
+		fl = append(fl, yf...)
+	}
+	return codes, fl, nil
 }
