@@ -384,3 +384,44 @@ func verilogModule(t *testing.T, chains []planned) string {
 	b.WriteString("  end\nendmodule\n")
 	return b.String()
 }
+
+// The golden files (TestGolden) compile too: gcc on a file that includes the
+// header twice (the include guard), GHDL on the package (VHDL-2008 and -93),
+// Icarus on a module that includes the .svh, as SystemVerilog and as
+// Verilog-2005.
+func TestGoldenCompiles(t *testing.T) {
+	gcc := needTool(t, "gcc")
+	ghdl := needTool(t, "ghdl")
+	iverilog := needTool(t, "iverilog")
+	dir := t.TempDir()
+	for _, n := range []string{"stepdown_chain.h", "stepdown_chain_pkg.vhd", "stepdown_chain.svh"} {
+		b, err := os.ReadFile(filepath.Join("testdata", n))
+		if err != nil {
+			t.Fatal(err)
+		}
+		if err := os.WriteFile(filepath.Join(dir, n), b, 0o644); err != nil {
+			t.Fatal(err)
+		}
+	}
+	src := map[string]string{
+		"use.c":  "#include \"stepdown_chain.h\"\n#include \"stepdown_chain.h\"\n\nint first_tap(void);\n\nint first_tap(void)\n{\n\treturn (int)STEPDOWN_S3_COEFS[0] + STEPDOWN_S1_REG_BITS[0];\n}\n",
+		"top.sv": "module top (o);\n`include \"stepdown_chain.svh\"\n  output wire signed [STEPDOWN_S3_COEF_BITS-1:0] o;\n  assign o = $signed(STEPDOWN_S3_COEFS[0 +: STEPDOWN_S3_COEF_BITS]);\nendmodule\n",
+	}
+	for n, s := range src {
+		if err := os.WriteFile(filepath.Join(dir, n), []byte(s), 0o644); err != nil {
+			t.Fatal(err)
+		}
+	}
+	run(t, dir, gcc, "-std=c99", "-Wall", "-Wextra", "-Werror", "-pedantic", "-c", "use.c")
+	for _, std := range []string{"08", "93c"} {
+		work := filepath.Join(dir, "work"+std)
+		if err := os.Mkdir(work, 0o755); err != nil {
+			t.Fatal(err)
+		}
+		run(t, dir, ghdl, "-a", "--std="+std, "--workdir="+work, "stepdown_chain_pkg.vhd")
+	}
+	// The include is plain Verilog-2005 as well as SystemVerilog.
+	for _, g := range []string{"-g2012", "-g2005"} {
+		run(t, dir, iverilog, g, "-o", "top.vvp", "top.sv")
+	}
+}
