@@ -15,14 +15,15 @@
 //   - stepdown_chain.h (C): C99, include guard STEPDOWN_CHAIN_H, <stdint.h>;
 //     scalars are #defines (negative ones parenthesised), arrays static const
 //     and marked unused (STEPDOWN_UNUSED, __attribute__((unused)) under GCC
-//     and Clang) so that a file including the header without using them
+//     and Clang, common practice) so that a file including the header without using them
 //     compiles under -Wall -Wextra -Werror. Coefficients are int32_t when
 //     their word is at most 32 bits and int64_t (INT64_C literals) above;
 //     STEPDOWN_Sn_COEFS_TYPE names the type. Other arrays are int.
 //   - stepdown_chain_pkg.vhd (VHDL): package stepdown_chain_pkg, valid
 //     VHDL-93 and VHDL-2008, using ieee.numeric_std. Scalars are integer
 //     constants. A VHDL integer is only guaranteed to hold
-//     -(2^31 - 1) .. 2^31 - 1, so coefficients come in two forms: Sn_COEFS,
+//     -(2^31 - 1) .. 2^31 - 1 (IEEE 1076 before its 2019 revision, from
+//     memory), so coefficients come in two forms: Sn_COEFS,
 //     an integer array (type STEPDOWN_INTEGER_ARRAY, index 0 first), only
 //     when the coefficient word is at most 32 bits (every code then fits,
 //     since the most negative code is unused); and always Sn_COEFS_SIGNED,
@@ -32,7 +33,7 @@
 //     included inside a module, interface or package (no include guard: each
 //     including scope needs its own copy). Scalars are localparam integer.
 //     An array is one flat vector with element k in bits [k*W +: W] (Icarus
-//     Verilog has no unpacked parameter arrays): coefficients with
+//     Verilog 11 rejects unpacked parameter arrays, tried here): coefficients with
 //     W = Sn_COEF_BITS, two's complement, read with $signed(...); the CIC's
 //     register arrays with W = STEPDOWN_FIELD_BITS (8), unsigned.
 //
@@ -83,6 +84,16 @@
 // DC gain (input full scale to output full scale), any gain correction
 // folded into its taps and the rounding points the plan states
 // (fixed.StageWidths.Points).
+//
+// # Checks
+//
+// The package's tests compile the files of seeded random planned chains
+// (fixed.Plan) and of a hand-made chain at the limits (32-bit words holding
+// +-(2^31 - 1), 40- and 64-bit words, one tap, 63-bit CIC registers) with
+// gcc -std=c99 -Wall -Wextra -Werror -pedantic, GHDL (--std=08 and
+// --std=93c) and Icarus Verilog -g2012, run a program or testbench printing
+// every constant and compare it with the plan, every coefficient exact;
+// Verilator -Wall lints the Verilog when installed.
 //
 // # Errors
 //
