@@ -7,6 +7,7 @@ import (
 	"strings"
 
 	"github.com/stepdown-dsp/stepdown/chain/fixed"
+	"github.com/stepdown-dsp/stepdown/handoff"
 )
 
 // Options names what the files declare. The zero value is the default: the
@@ -82,12 +83,6 @@ type model struct {
 	sections []section
 }
 
-// File is one generated file.
-type File struct {
-	Name string
-	Data []byte
-}
-
 // FileNames returns the names C, VHDL and Verilog write under Options o:
 // PREFIX_chain.h, PREFIX_chain_pkg.vhd and PREFIX_chain.svh with the prefix
 // in lower case. It returns an error when o.Prefix is invalid.
@@ -100,16 +95,17 @@ func FileNames(o Options) (c, vhdl, verilog string, err error) {
 }
 
 // Files returns the three files, C header, VHDL package and Verilog
-// include, in that order, with their names (FileNames).
-func Files(c fixed.Cascade, w *fixed.Widths, o Options) ([]File, error) {
+// include, in that order, under the folder "headers/" with their names
+// (FileNames).
+func Files(c fixed.Cascade, w *fixed.Widths, o Options) ([]handoff.File, error) {
 	m, err := build(c, w, o)
 	if err != nil {
 		return nil, err
 	}
-	return []File{
-		{m.lower + "_chain.h", m.c()},
-		{m.lower + "_chain_pkg.vhd", m.vhdl()},
-		{m.lower + "_chain.svh", m.verilog()},
+	return []handoff.File{
+		{Name: "headers/" + m.lower + "_chain.h", Data: m.c()},
+		{Name: "headers/" + m.lower + "_chain_pkg.vhd", Data: m.vhdl()},
+		{Name: "headers/" + m.lower + "_chain.svh", Data: m.verilog()},
 	}, nil
 }
 

@@ -5,6 +5,7 @@ import (
 	"flag"
 	"math/rand/v2"
 	"os"
+	"path"
 	"path/filepath"
 	"strings"
 	"testing"
@@ -54,24 +55,24 @@ func TestGolden(t *testing.T) {
 	if err != nil {
 		t.Fatal(err)
 	}
-	names := []string{"stepdown_chain.h", "stepdown_chain_pkg.vhd", "stepdown_chain.svh"}
+	names := []string{"headers/stepdown_chain.h", "headers/stepdown_chain_pkg.vhd", "headers/stepdown_chain.svh"}
 	for i, f := range fs {
 		if f.Name != names[i] {
 			t.Errorf("file %d is named %q, want %q", i, f.Name, names[i])
 		}
-		path := filepath.Join("testdata", f.Name)
+		gp := filepath.Join("testdata", path.Base(f.Name))
 		if *update {
-			if err := os.WriteFile(path, f.Data, 0o644); err != nil {
+			if err := os.WriteFile(gp, f.Data, 0o644); err != nil {
 				t.Fatal(err)
 			}
 			continue
 		}
-		golden, err := os.ReadFile(path)
+		golden, err := os.ReadFile(gp)
 		if err != nil {
 			t.Fatalf("%v (run go test -update to write it)", err)
 		}
 		if !bytes.Equal(f.Data, golden) {
-			t.Errorf("%s differs from %s (run go test -update and review the diff)", f.Name, path)
+			t.Errorf("%s differs from %s (run go test -update and review the diff)", f.Name, gp)
 		}
 	}
 	// C, VHDL and Verilog write what Files does.

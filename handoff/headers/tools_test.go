@@ -7,6 +7,7 @@ import (
 	"math/big"
 	"os"
 	"os/exec"
+	"path"
 	"path/filepath"
 	"slices"
 	"strings"
@@ -66,7 +67,7 @@ func writeAll(t *testing.T, dir string, chains []planned) {
 			t.Fatal(err)
 		}
 		for _, f := range fs {
-			if err := os.WriteFile(filepath.Join(dir, f.Name), f.Data, 0o644); err != nil {
+			if err := os.WriteFile(filepath.Join(dir, path.Base(f.Name)), f.Data, 0o644); err != nil {
 				t.Fatal(err)
 			}
 		}

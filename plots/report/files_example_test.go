@@ -79,6 +79,9 @@ func ExampleFiles() {
 	// coefficients/stage2_fir.csv
 	// coefficients/stage2_fir_int.csv
 	// coefficients/stage2_fir.hex
+	// headers/stepdown_chain.h
+	// headers/stepdown_chain_pkg.vhd
+	// headers/stepdown_chain.svh
 	// vectors/README.txt
 	// and 24 vector files: 6 stimuli, each with its input, 2 stages' outputs and the chain's
 }

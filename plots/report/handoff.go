@@ -4,6 +4,7 @@ import (
 	"fmt"
 
 	"github.com/stepdown-dsp/stepdown/chain/fixed"
+	"github.com/stepdown-dsp/stepdown/handoff/headers"
 	"github.com/stepdown-dsp/stepdown/handoff/vectors"
 )
 
@@ -18,10 +19,12 @@ type handoffPlan struct {
 
 // HandoffFiles returns the files the RTL team needs to prove an
 // implementation of chain c (one of a report's front, with its word
-// lengths planned by AddWordLengths): the test vectors (package
-// handoff/vectors) under vectors/. A chain without a word-length plan, or
-// whose registers are too wide for the integer model, gets none and the
-// reason.
+// lengths planned by AddWordLengths): the C, VHDL and Verilog
+// declarations of its coefficients and widths under headers/ (package
+// handoff/headers) and the test vectors under vectors/ (package
+// handoff/vectors). A chain without a word-length plan gets none, and one
+// whose registers are too wide for the integer model gets no vectors; the
+// second result then says why.
 func HandoffFiles(c Chain) ([]File, string) {
 	if c.plan == nil {
 		if c.WordLengthsError != "" {
@@ -30,9 +33,13 @@ func HandoffFiles(c Chain) ([]File, string) {
 		return nil, "no word-length plan"
 	}
 	p := c.plan
+	files, err := headers.Files(p.cascade, p.widths, headers.Options{Notation: c.Notation})
+	if err != nil {
+		return nil, fmt.Sprintf("no headers: %v", err)
+	}
 	v, err := vectors.Generate(p.cascade, p.widths, vectors.Options{AliasHz: p.worstAliasHz, Notation: c.Notation})
 	if err != nil {
-		return nil, fmt.Sprintf("no test vectors: %v", err)
+		return files, fmt.Sprintf("no test vectors: %v", err)
 	}
-	return v.Files(), ""
+	return append(files, v.Files()...), ""
 }
