@@ -53,7 +53,7 @@ func Plan(ctx context.Context, spec chain.Spec, s Settings) (*Result, error) {
 		return nil, err
 	}
 	p := newParams(ns, s.Cost.NoSymmetry)
-	p.clock, p.lim = s.Cost.Clock, s.Limits
+	p.clock, p.lim, p.adders = s.Cost.Clock, s.Limits, s.Cost.Multiplierless
 	p.d = ns.Decimation()
 	if s.Chain.Memo == nil {
 		// Most stage designs of a search repeat a stage of another chain
@@ -836,7 +836,7 @@ func (t *designTier) learn(band []scored) (bool, int) {
 						continue
 					}
 					if blamed && !o.c.blame[i] {
-						learnt[k] = figs{mpo: st[i].MultipliesPerOutput, bits: float64(st[i].MemoryBits), lat: st[i].LatencyS}
+						learnt[k] = stageFigs(&o.c.Figures, i)
 						continue
 					}
 					tries[k]++
@@ -844,7 +844,7 @@ func (t *designTier) learn(band []scored) (bool, int) {
 				continue
 			}
 			for i, k := range est.keys {
-				learnt[k] = figs{mpo: st[i].MultipliesPerOutput, bits: float64(st[i].MemoryBits), lat: st[i].LatencyS}
+				learnt[k] = stageFigs(&o.c.Figures, i)
 			}
 		}
 		if !ok {
@@ -906,9 +906,29 @@ func appendPlanKey(dst []byte, plan []chain.StagePlan) []byte {
 	return dst
 }
 
+// costAxis is a chain's figure on the front's cost axis: its multiplies
+// per output, or its hardware adders when it was priced multiplierless.
+func costAxis(f *cost.Figures) float64 {
+	if f.Multiplierless {
+		return float64(f.Adders)
+	}
+	return f.MultipliesPerOutput
+}
+
+// stageFigs is stage i's share of a priced chain's figures, on the axes
+// of the front.
+func stageFigs(f *cost.Figures, i int) figs {
+	st := &f.Stages[i]
+	g := figs{mpo: st.MultipliesPerOutput, bits: float64(st.MemoryBits), lat: st.LatencyS}
+	if f.Multiplierless {
+		g.mpo = float64(st.Adders)
+	}
+	return g
+}
+
 func candFigs(c *Candidate) figs {
 	return figs{
-		mpo:    c.Figures.MultipliesPerOutput,
+		mpo:    costAxis(&c.Figures),
 		bits:   float64(c.Figures.MemoryBits),
 		lat:    c.Figures.LatencyS,
 		margin: c.MarginDB,
@@ -955,10 +975,16 @@ func keepInCloud(i, n int) bool {
 }
 
 func estimatedCandidate(plan []chain.StagePlan, f figs, p *params) Candidate {
+	mpo, adders := f.mpo, 0
+	if p.adders {
+		mpo, adders = 0, int(f.mpo)
+	}
 	return Candidate{
 		Plan: clonePlan(plan),
 		Figures: cost.Figures{
-			MultipliesPerOutput: f.mpo,
+			MultipliesPerOutput: mpo,
+			Adders:              adders,
+			Multiplierless:      p.adders,
 			MemoryWords:         int(f.words),
 			MemoryBits:          int(f.bits),
 			LatencyS:            f.lat,
