@@ -147,3 +147,35 @@ func graphOf(ints []int64) (*mcm.Graph, error) {
 	graphs.Unlock()
 	return g, nil
 }
+
+// CountInts re-counts a multiplierless chain's FIR and half-band blocks
+// from the integer coefficients it will be built with: ints[i], when not
+// empty, are stage i's (such as a word-length plan's, whose rounding may
+// move a tap by a step from RoundTaps'), counted by IntsBlock; the
+// stage's and the chain's Adders follow (the block times the stage's
+// lanes and cx real filters). f must have been priced with
+// Settings.Multiplierless; stages without ints keep their counts.
+func (f *Figures) CountInts(cx int, ints [][]int64) error {
+	if !f.Multiplierless {
+		return fmt.Errorf("cost: CountInts on a chain not priced multiplierless")
+	}
+	if len(ints) != len(f.Stages) {
+		return fmt.Errorf("cost: CountInts with %d stages' coefficients for %d stages", len(ints), len(f.Stages))
+	}
+	f.Stages = append([]StageFigures(nil), f.Stages...) // not the caller's copy's
+	total := 0
+	for i := range f.Stages {
+		sf := &f.Stages[i]
+		if len(ints[i]) > 0 {
+			b, err := IntsBlock(ints[i])
+			if err != nil {
+				return fmt.Errorf("cost: stage %d: %w", i+1, err)
+			}
+			sf.CoefficientAdders, sf.StructuralAdders, sf.AddersEstimated = b.Coefficient, b.Structural, false
+			sf.Adders = (b.Coefficient + b.Structural) * max(1, sf.Lanes) * cx
+		}
+		total += sf.Adders
+	}
+	f.Adders = total
+	return nil
+}

@@ -386,6 +386,13 @@ func (r realDesigner) survive(c Candidate, spec chain.Spec) (Candidate, Reason) 
 		qm := qa.AliasRejectionDB - spec.RejectionDB
 		over := qa.PassbandRippleDB - spec.RippleDB
 		if qm >= -rejectionSlackDB && over <= rippleSlackDB {
+			if f.Multiplierless {
+				// Count the adder graphs of the taps as rounded for the
+				// build (the report's coefficients_int), not as priced.
+				if err := f.CountInts(cx(cur.Chain), planInts(ws)); err != nil {
+					return c, ReasonWordLengths
+				}
+			}
 			cur.Figures, cur.Quantised, cur.MarginDB = f, qa, qm
 			cur.survived = true
 			return cur, ""
@@ -439,10 +446,11 @@ func (r realDesigner) survive(c Candidate, spec chain.Spec) (Candidate, Reason) 
 		if err != nil {
 			break
 		}
-		_, q, err := fixed.PlanChainContext(r.ctx, spec, ch, r.s.Fixed)
+		w2, q, err := fixed.PlanChainContext(r.ctx, spec, ch, r.s.Fixed)
 		if err != nil {
 			break
 		}
+		ws = w2
 		debugf("rounding re-design %s: raise %.2f dB, cut %.3f dB: rounded %.2f -> %.2f dB, float %.2f dB", chain.Notation(c.Plan), raise, cut, qa.AliasRejectionDB, q.AliasRejectionDB, g.Analysis.AliasRejectionDB)
 		cur.Chain, cur.raised, cur.cut, cur.evaluated = ch, raise, cut, true
 		cur.redesigns++
@@ -453,6 +461,24 @@ func (r realDesigner) survive(c Candidate, spec chain.Spec) (Candidate, Reason) 
 	}
 	c.redesigns, c.blame, c.hopeless = cur.redesigns, blame, hopeless
 	return c, ReasonMissQuantised
+}
+
+// planInts are a word-length plan's rounded coefficients, stage by stage
+// (empty for a CIC).
+func planInts(ws *fixed.Widths) [][]int64 {
+	out := make([][]int64, len(ws.Stages))
+	for i := range ws.Stages {
+		out[i] = ws.Stages[i].Coefficients.Ints
+	}
+	return out
+}
+
+// cx is the number of real filters of c: 2 for a complex chain.
+func cx(c *chain.Chain) int {
+	if c.Complex {
+		return 2
+	}
+	return 1
 }
 
 // meetsFrom returns the least coefficient width in [lo, hi] at which the
