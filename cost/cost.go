@@ -14,6 +14,10 @@ import (
 type Settings struct {
 	NoSymmetry bool    // count every tap's multiply (docs/design.md §5 default folds symmetry)
 	Clock      float64 // Hz; zero means no multipliers-at-clock figure
+	// Multiplierless prices every FIR and half-band stage as a shared adder
+	// graph of its rounded taps and no multipliers (see Multiplierless in
+	// the package doc), and fills the adder fields.
+	Multiplierless bool
 }
 
 // FloatCoefBits is the coefficient width assumed when the spec asks for
@@ -32,6 +36,19 @@ type StageFigures struct {
 	// (Lanes of its input rate): 1 at or below Settings.Clock or without
 	// one. A CIC's integrators are replicated over them (CICMemoryBits).
 	Lanes int
+
+	// The adder fields are filled with Settings.Multiplierless only (zero
+	// otherwise). CoefficientAdders and StructuralAdders are one copy of a
+	// FIR or half-band stage's block (one lane of one real filter): the
+	// adders of its shared adder graph and those that sum its taps.
+	// Adders is the stage's hardware adders as built: the block times its
+	// lanes and real filters, or a CIC's integrators and combs.
+	// AddersEstimated marks a block counted from an estimated length
+	// rather than a graph of rounded taps.
+	CoefficientAdders int
+	StructuralAdders  int
+	Adders            int
+	AddersEstimated   bool
 }
 
 // Figures is what a chain costs (docs/design.md §5) and, for a designed chain, what it achieves (§7).
@@ -44,7 +61,14 @@ type Figures struct {
 	LatencySamples      float64 // in output samples
 	MultipliersAtClock  int     // 0 without a clock
 	MaxLanes            int     // the most lanes of any stage (1 without a clock)
-	Stages              []StageFigures
+	// Adders is the chain's hardware adders with Settings.Multiplierless
+	// (the sum of StageFigures.Adders; zero otherwise): the search's cost
+	// axis in that mode.
+	Adders int
+	// Multiplierless says the chain was priced with
+	// Settings.Multiplierless.
+	Multiplierless bool
+	Stages         []StageFigures
 
 	Designed bool
 	// Analysis is the measured truth of a designed chain; for an estimated
@@ -90,7 +114,7 @@ func Price(spec chain.Spec, c *chain.Chain, s Settings) (Figures, error) {
 	if !(s.Clock >= 0) || math.IsInf(s.Clock, 0) {
 		return Figures{}, fmt.Errorf("cost: Settings.Clock = %g: must be a finite clock above 0 Hz, or 0 for none", s.Clock)
 	}
-	f := Figures{Designed: c.Designed, Stages: make([]StageFigures, len(c.Stages))}
+	f := Figures{Designed: c.Designed, Multiplierless: s.Multiplierless, Stages: make([]StageFigures, len(c.Stages))}
 	rates := c.Rates()
 	fk := rates[len(rates)-1]
 	later := make([]float64, len(c.Stages)) // D(i+1) ... DK
@@ -112,6 +136,8 @@ func Price(spec chain.Spec, c *chain.Chain, s Settings) (Figures, error) {
 		var mul, add float64 // per stage output, one real filter
 		var dataWords, dataBits, coefWords int
 		var delayIn float64 // group delay, input samples
+		var block Block     // a FIR or half-band block's adders (Multiplierless)
+		var adders int      // the stage's hardware adders (Multiplierless)
 		// The cases cover every kind of chain.Kinds (FIR and half-band are
 		// chain.FIRStages).
 		switch v := st.(type) {
@@ -123,6 +149,9 @@ func Price(spec chain.Spec, c *chain.Chain, s Settings) (Figures, error) {
 			dataWords = n*lanes + n*m
 			dataBits = CICMemoryBits(v, width, lanes)
 			delayIn = float64(n*(r*m-1)) / 2
+			if s.Multiplierless {
+				adders = CICAdders(n, lanes) * cx
+			}
 			if v.OutputBits > 0 {
 				width = v.OutputBits
 			} else {
@@ -140,13 +169,28 @@ func Price(spec chain.Spec, c *chain.Chain, s Settings) (Figures, error) {
 			mul, add, coefWords, dataWords, delayIn = c.mul, c.add, c.coefWords, c.dataWords, c.delayIn
 			dataBits = dataWords * width
 			width = spec.OutputBits
+			if s.Multiplierless {
+				var err error
+				if v.Taps != nil {
+					block, err = GraphAdders(v.Taps, v.HalfBand, coefBits)
+					if err != nil {
+						return Figures{}, fmt.Errorf("cost: stage %d (%s): %w", i+1, v.Kind(), err)
+					}
+				} else {
+					block = EstimateAdders(n, v.HalfBand)
+				}
+				adders = (block.Coefficient + block.Structural) * Lanes(rates[i], s.Clock) * cx
+			}
 		default:
 			return Figures{}, fmt.Errorf("cost: stage %d is a %T; cost prices chain.CICStage and chain.FIRStage values", i+1, st)
 		}
 		sf := multiplyOut(mul, add, dataWords, dataBits, coefWords, coefBits, cx, later[i], delayIn, rates[i])
-		if s.Clock > 0 && mul > 0 {
+		if s.Clock > 0 && mul > 0 && !s.Multiplierless {
 			sf.Multipliers = int(math.Ceil(mul*float64(cx)*rates[i+1]/s.Clock - 1e-9))
 		}
+		sf.CoefficientAdders, sf.StructuralAdders, sf.AddersEstimated = block.Coefficient, block.Structural, block.Estimated
+		sf.Adders = adders
+		f.Adders += adders
 		sf.Lanes = Lanes(rates[i], s.Clock)
 		f.MaxLanes = max(f.MaxLanes, sf.Lanes)
 		f.Stages[i] = sf
@@ -244,10 +288,17 @@ func firCounts(n int, halfBand, noSymmetry bool) firCount {
 // later-stage factors multiplying to later, on data words of width bits
 // and coefficients of coefBits, in a chain of cx real filters (2 for
 // complex): the pricing the search's estimate tier applies to an estimated
-// length. Multipliers and Lanes are left zero.
+// length. Multipliers and Lanes are left zero; with s.Multiplierless the
+// adder fields are EstimateAdders' block, over the lanes at s.Clock.
 func FIRStage(n int, halfBand bool, s Settings, later float64, cx, width, coefBits int, rate float64) StageFigures {
 	c := firCounts(n, halfBand, s.NoSymmetry)
-	return multiplyOut(c.mul, c.add, c.dataWords, c.dataWords*width, c.coefWords, coefBits, cx, later, c.delayIn, rate)
+	sf := multiplyOut(c.mul, c.add, c.dataWords, c.dataWords*width, c.coefWords, coefBits, cx, later, c.delayIn, rate)
+	if s.Multiplierless {
+		b := EstimateAdders(n, halfBand)
+		sf.CoefficientAdders, sf.StructuralAdders, sf.AddersEstimated = b.Coefficient, b.Structural, true
+		sf.Adders = (b.Coefficient + b.Structural) * Lanes(rate, s.Clock) * cx
+	}
+	return sf
 }
 
 // multiplyOut turns a stage's counts per its own output, for one real

@@ -11,23 +11,26 @@ import (
 // TestEstimatorMatchesChain: the estimate tier's fast figures must be the
 // ones chain.Estimate and cost.Price give for the same plan, since the
 // faint cloud is drawn beside designed figures priced by cost.
-// The last case runs its input at three times a fabric clock, so its CICs
-// are priced three lanes wide.
+// The fourth case runs its input at three times a fabric clock, so its
+// CICs are priced three lanes wide; the fifth prices it multiplierless,
+// the cost axis then the chains' adders (cost.EstimateAdders' blocks).
 func TestEstimatorMatchesChain(t *testing.T) {
 	for ci, spec := range []chain.Spec{rxSpec(), {
 		InputRate: 10e3, OutputRate: 100, Passband: 45, Protected: 50, Stopband: 50,
 		RippleDB: 20 * math.Log10(1.01/0.99), RejectionDB: 60,
-	}, func() chain.Spec { s := rxSpec(); s.Complex = true; s.Protected = 12e3; return s }(), rxSpec()} {
+	}, func() chain.Spec { s := rxSpec(); s.Complex = true; s.Protected = 12e3; return s }(), rxSpec(),
+		func() chain.Spec { s := rxSpec(); s.Complex = true; s.CoefBits = 16; return s }()} {
 		ns, err := spec.Normalize()
 		if err != nil {
 			t.Fatal(err)
 		}
 		cs := cost.Settings{}
-		if ci == 3 {
+		if ci >= 3 {
 			cs.Clock = ns.InputRate / 3
 		}
+		cs.Multiplierless = ci == 4
 		p := newParams(ns, false)
-		p.clock = cs.Clock
+		p.clock, p.adders = cs.Clock, cs.Multiplierless
 		est := newEstimator(p, 0)
 		est.keepBeaten = true
 		sp := newSpace(&p, &Settings{})
@@ -59,6 +62,12 @@ func TestEstimatorMatchesChain(t *testing.T) {
 				t.Fatal(err)
 			}
 			checked++
+			if cs.Multiplierless {
+				if float64(g.Adders) != f.mpo || !g.Multiplierless {
+					t.Errorf("%s: estimate tier %g adders, chain+cost %d", chain.Notation(plan), f.mpo, g.Adders)
+				}
+				g.MultipliesPerOutput = f.mpo // compared above
+			}
 			if math.Abs(g.MultipliesPerOutput-f.mpo) > 1e-9*f.mpo || float64(g.MemoryBits) != f.bits ||
 				math.Abs(g.LatencyS-f.lat) > 1e-9*f.lat {
 				t.Errorf("%s: estimate tier %.6g %.0f %.6g, chain+cost %.6g %d %.6g", chain.Notation(plan),

@@ -70,6 +70,23 @@
 // Reason; when the front is empty and a limit dropped candidates,
 // Result.Reason names the one that dropped the most.
 //
+// # Multiplierless
+//
+// With Cost.Multiplierless the cost axis is the chains' hardware adders
+// (cost.Figures.Adders: FIR and half-band stages as shared adder graphs
+// plus their tap adders, CICs' integrators and combs; see package cost)
+// in place of multiplies per output, everywhere the front, the band, the
+// ranges, the recommendation and its reason use it. The estimate tier
+// counts a FIR or half-band stage by cost.EstimateAdders (one graph adder
+// per distinct tap, a labelled estimate that designed graphs come at or
+// below) and takes half of it at the favourable end of its range, since
+// taps rounded to zero or a power of two cost no adder; a CIC's adders
+// are exact. A CIC beats another only with no more adders as well. With a
+// fixed coefficient width, a chain that survives its rounded-taps check
+// has its adders counted on its word-length plan's integers
+// (cost.Figures.CountInts), the coefficients the report writes. There
+// are no multipliers, so MaxMultipliers never binds.
+//
 // # Design tier
 //
 // The estimated front is taken over the feasible candidates. A band of

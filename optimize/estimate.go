@@ -152,7 +152,9 @@ var dropNames = [...]Reason{
 // figs is a candidate's or a stage's position on the three axes of the
 // front, plus the tie-breaking rejection margin.
 type figs struct {
-	mpo, bits, lat float64 // multiplies per output, memory bits, latency s
+	// mpo is the cost axis: multiplies per output, or the hardware adders
+	// when the chains are priced multiplierless (params.adders).
+	mpo, bits, lat float64 // cost axis, memory bits, latency s
 	words          float64
 	margin         float64 // dB over the rejection target; larger is better
 }
@@ -174,6 +176,9 @@ type params struct {
 	clock float64
 	// lim are the fabric's limits (Settings.Limits).
 	lim Limits
+	// adders: the chains are priced multiplierless
+	// (cost.Settings.Multiplierless) and the cost axis is their adders.
+	adders bool
 }
 
 // newParams reads a spec whose defaults are filled in.
@@ -379,7 +384,7 @@ func (e *estimator) score(plan []chain.StagePlan) (figs, dropCode) {
 		total.lat += v.f.lat
 		total.margin = math.Min(total.margin, v.f.margin)
 		lo.bits += v.lo.bits
-		if e.p.clock > 0 && v.lo.mpo > 0 {
+		if e.p.clock > 0 && v.lo.mpo > 0 && !e.p.adders {
 			// Each stage has its own multipliers: at least its multiplies
 			// per second (per final output, times FK) over the clock.
 			mults += math.Ceil(v.lo.mpo*e.p.fk/e.p.clock - 1e-9)
@@ -444,6 +449,9 @@ func (e *estimator) stage(k stageKey) stageVal {
 		v.f.words = float64(n*lanes+n*m) * cplx
 		v.f.bits = float64(cost.CICMemoryBits(e.cicStage(f, n, m), p.inBits, lanes)) * cplx
 		v.f.lat = float64(n) * float64(f*m-1) / 2 / rate
+		if p.adders {
+			v.f.mpo = float64(cost.CICAdders(n, lanes)) * cplx
+		}
 		// Pruning its registers and measuring its alias bands both grow
 		// with N R M.
 		v.work = float64(n * f * m)
@@ -463,6 +471,7 @@ func (e *estimator) stage(k stageKey) stageVal {
 		v.work = (4*kk - 1) * (4*kk - 1) / 4
 		kLo := math.Max(1, math.Floor(kk/(1+2*e.tol))-1)
 		v.lo = hb(kLo)
+		v.lo.mpo = e.favourable(v.lo.mpo)
 		v.hi = hb(math.Ceil(kk*(1+e.tol)) + 1)
 		// Its 2K side taps are rounded; the centre 1/2 and the zeros are
 		// exact.
@@ -480,6 +489,7 @@ func (e *estimator) stage(k stageKey) stageVal {
 		v.work = l * l
 		lLo := math.Max(3, math.Floor(l/(1+2*e.tol))-2)
 		v.lo = fir(lLo)
+		v.lo.mpo = e.favourable(v.lo.mpo)
 		v.hi = fir(math.Ceil(l*(1+e.tol)) + 2)
 		// Common practice: a lowpass decimating by R has its centre, and
 		// largest, tap near 2 fc/Fs ~ 1/R; half of that is assumed.
@@ -491,10 +501,29 @@ func (e *estimator) stage(k stageKey) stageVal {
 }
 
 // priceFIR is cost.FIRStage's figures for n taps, as the estimate tier
-// keeps them.
+// keeps them: the cost axis is its multiplies per output, or with
+// params.adders its hardware adders (cost.EstimateAdders over its lanes).
 func (e *estimator) priceFIR(n int, halfBand bool, later float64, cx, width int, rate float64) figs {
-	sf := cost.FIRStage(n, halfBand, cost.Settings{NoSymmetry: e.p.noSym}, later, cx, width, e.p.coefBits, rate)
-	return figs{mpo: sf.MultipliesPerOutput, words: float64(sf.MemoryWords), bits: float64(sf.MemoryBits), lat: sf.LatencyS}
+	s := cost.Settings{NoSymmetry: e.p.noSym, Multiplierless: e.p.adders, Clock: e.p.clock}
+	sf := cost.FIRStage(n, halfBand, s, later, cx, width, e.p.coefBits, rate)
+	f := figs{mpo: sf.MultipliesPerOutput, words: float64(sf.MemoryWords), bits: float64(sf.MemoryBits), lat: sf.LatencyS}
+	if e.p.adders {
+		f.mpo = float64(sf.Adders)
+	}
+	return f
+}
+
+// favourable is the favourable end of an estimated FIR or half-band
+// stage's cost axis, given its figure at the short end of its length
+// range: the same with multiplies (their count follows the length
+// exactly), half of it with adders, whose graph can come out well below
+// the estimate of one adder per distinct tap (taps rounded to zero or to a
+// power of two cost none).
+func (e *estimator) favourable(mpo float64) float64 {
+	if e.p.adders {
+		return mpo / 2
+	}
+	return mpo
 }
 
 // floorMargin is how far a stage's predicted rounding floor must lie above
@@ -620,7 +649,7 @@ func (e *estimator) cicBeaten(r, n, m int) bool {
 	}
 	type cfg struct {
 		n, m int
-		x    [4]float64
+		x    [5]float64
 	}
 	last := r == e.p.d
 	var ok []cfg
@@ -643,7 +672,13 @@ func (e *estimator) cicBeaten(r, n, m int) bool {
 			bits := float64(cost.CICMemoryBits(cs, e.p.inBits, cost.Lanes(e.p.f0, e.p.clock)))
 			lat := float64(nn) * float64(r*mm-1) / 2 / e.p.f0
 			droop := -math.Log(cicGain(e.p.fp, e.p.f0, r, nn, mm))
-			ok = append(ok, cfg{nn, mm, [4]float64{bits, lat, droop, float64(w)}})
+			// With the adders on the cost axis, a beater needs no more of
+			// them either (zero for all otherwise).
+			adders := 0.0
+			if e.p.adders {
+				adders = float64(cost.CICAdders(nn, cost.Lanes(e.p.f0, e.p.clock)))
+			}
+			ok = append(ok, cfg{nn, mm, [5]float64{bits, lat, droop, float64(w), adders}})
 		}
 	}
 	for _, a := range ok {

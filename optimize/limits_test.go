@@ -78,3 +78,84 @@ func TestLimitsHonoured(t *testing.T) {
 
 // costAt prices at a clock of clk Hz.
 func costAt(clk float64) cost.Settings { return cost.Settings{Clock: clk} }
+
+// With the chains priced multiplierless the front is over adders: every
+// chain on it is designed, has no multipliers, counts its FIR and
+// half-band stages from graphs of their rounded taps (not estimates), is
+// sorted by adders and is dominated by no other on (adders, memory,
+// latency); the reason speaks of adders. Limits drawn from that front
+// (seeded) are honoured by every chain of the fronts they leave.
+func TestMultiplierlessFront(t *testing.T) {
+	needDesigns(t)
+	spec := chain.Spec{InputRate: 61.44e6, OutputRate: 960e3, Passband: 300e3, RippleDB: 0.1, RejectionDB: 80, CoefBits: 16}
+	cs := cost.Settings{Clock: 100e6, Multiplierless: true}
+	check := func(r *optimize.Result, lim optimize.Limits) {
+		t.Helper()
+		fr := r.Front
+		for i, c := range fr {
+			f := c.Figures
+			if !f.Designed || !f.Multiplierless || f.Adders <= 0 || f.MultipliersAtClock != 0 {
+				t.Errorf("%s: designed %v, multiplierless %v, %d adders, %d multipliers", chain.Notation(c.Plan), f.Designed, f.Multiplierless, f.Adders, f.MultipliersAtClock)
+			}
+			sum := 0
+			for k, sf := range f.Stages {
+				sum += sf.Adders
+				if _, fir := c.Chain.Stages[k].(chain.FIRStage); fir && (sf.AddersEstimated || sf.CoefficientAdders+sf.StructuralAdders == 0) {
+					t.Errorf("%s stage %d: %+v", chain.Notation(c.Plan), k+1, sf)
+				}
+			}
+			if sum != f.Adders {
+				t.Errorf("%s: stages' adders sum to %d, chain %d", chain.Notation(c.Plan), sum, f.Adders)
+			}
+			if i > 0 && fr[i-1].Figures.Adders > f.Adders {
+				t.Errorf("front not sorted by adders: %d before %d", fr[i-1].Figures.Adders, f.Adders)
+			}
+			for j, d := range fr {
+				g := d.Figures
+				if j != i && g.Adders <= f.Adders && g.MemoryBits <= f.MemoryBits && g.LatencyS <= f.LatencyS &&
+					(g.Adders < f.Adders || g.MemoryBits < f.MemoryBits || g.LatencyS < f.LatencyS) {
+					t.Errorf("%s (%d adders, %d bits, %g s) is dominated by %s (%d, %d, %g)", chain.Notation(c.Plan), f.Adders, f.MemoryBits, f.LatencyS,
+						chain.Notation(d.Plan), g.Adders, g.MemoryBits, g.LatencyS)
+				}
+			}
+			if lim.MaxMemoryBits > 0 && f.MemoryBits > lim.MaxMemoryBits {
+				t.Errorf("limits %+v: %s has %d memory bits", lim, chain.Notation(c.Plan), f.MemoryBits)
+			}
+			if cic, ok := c.Chain.Stages[0].(chain.CICStage); ok && lim.MaxRegisterBits > 0 && slices.Max(cic.RegisterBits) > lim.MaxRegisterBits {
+				t.Errorf("limits %+v: %s has a %d-bit register", lim, chain.Notation(c.Plan), slices.Max(cic.RegisterBits))
+			}
+		}
+		if len(fr) > 0 && (!strings.Contains(r.Reason, "adders") || strings.Contains(r.Reason, "multiplies")) {
+			t.Errorf("reason %q", r.Reason)
+		}
+	}
+	free, err := optimize.Plan(context.Background(), spec, optimize.Settings{MaxStages: 4, Cost: cs})
+	if err != nil {
+		t.Fatal(err)
+	}
+	if len(free.Front) == 0 {
+		t.Fatalf("empty front: %s", free.Reason)
+	}
+	check(free, optimize.Limits{})
+	var regs, mems []int
+	for _, c := range free.Front {
+		mems = append(mems, c.Figures.MemoryBits)
+		if cic, ok := c.Chain.Stages[0].(chain.CICStage); ok {
+			regs = append(regs, slices.Max(cic.RegisterBits))
+		}
+		t.Logf("%s: %d adders, %d bits", chain.Notation(c.Plan), c.Figures.Adders, c.Figures.MemoryBits)
+	}
+	rng := rand.New(rand.NewPCG(15, 15))
+	for trial := 0; trial < 2; trial++ {
+		lim := optimize.Limits{MaxMemoryBits: mems[rng.IntN(len(mems))]}
+		if len(regs) > 0 {
+			lim.MaxRegisterBits = regs[rng.IntN(len(regs))] - 1
+		}
+		r, err := optimize.Plan(context.Background(), spec, optimize.Settings{MaxStages: 4, Cost: cs, Limits: lim})
+		if err != nil {
+			t.Fatal(err)
+		}
+		check(r, lim)
+		t.Logf("limits %+v: front %d", lim, len(r.Front))
+	}
+}

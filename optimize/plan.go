@@ -53,7 +53,7 @@ func Plan(ctx context.Context, spec chain.Spec, s Settings) (*Result, error) {
 		return nil, err
 	}
 	p := newParams(ns, s.Cost.NoSymmetry)
-	p.clock, p.lim = s.Cost.Clock, s.Limits
+	p.clock, p.lim, p.adders = s.Cost.Clock, s.Limits, s.Cost.Multiplierless
 	p.d = ns.Decimation()
 	if s.Chain.Memo == nil {
 		// Most stage designs of a search repeat a stage of another chain
@@ -386,6 +386,13 @@ func (r realDesigner) survive(c Candidate, spec chain.Spec) (Candidate, Reason) 
 		qm := qa.AliasRejectionDB - spec.RejectionDB
 		over := qa.PassbandRippleDB - spec.RippleDB
 		if qm >= -rejectionSlackDB && over <= rippleSlackDB {
+			if f.Multiplierless {
+				// Count the adder graphs of the taps as rounded for the
+				// build (the report's coefficients_int), not as priced.
+				if err := f.CountInts(cx(cur.Chain), planInts(ws)); err != nil {
+					return c, ReasonWordLengths
+				}
+			}
 			cur.Figures, cur.Quantised, cur.MarginDB = f, qa, qm
 			cur.survived = true
 			return cur, ""
@@ -439,10 +446,11 @@ func (r realDesigner) survive(c Candidate, spec chain.Spec) (Candidate, Reason) 
 		if err != nil {
 			break
 		}
-		_, q, err := fixed.PlanChainContext(r.ctx, spec, ch, r.s.Fixed)
+		w2, q, err := fixed.PlanChainContext(r.ctx, spec, ch, r.s.Fixed)
 		if err != nil {
 			break
 		}
+		ws = w2
 		debugf("rounding re-design %s: raise %.2f dB, cut %.3f dB: rounded %.2f -> %.2f dB, float %.2f dB", chain.Notation(c.Plan), raise, cut, qa.AliasRejectionDB, q.AliasRejectionDB, g.Analysis.AliasRejectionDB)
 		cur.Chain, cur.raised, cur.cut, cur.evaluated = ch, raise, cut, true
 		cur.redesigns++
@@ -453,6 +461,24 @@ func (r realDesigner) survive(c Candidate, spec chain.Spec) (Candidate, Reason) 
 	}
 	c.redesigns, c.blame, c.hopeless = cur.redesigns, blame, hopeless
 	return c, ReasonMissQuantised
+}
+
+// planInts are a word-length plan's rounded coefficients, stage by stage
+// (empty for a CIC).
+func planInts(ws *fixed.Widths) [][]int64 {
+	out := make([][]int64, len(ws.Stages))
+	for i := range ws.Stages {
+		out[i] = ws.Stages[i].Coefficients.Ints
+	}
+	return out
+}
+
+// cx is the number of real filters of c: 2 for a complex chain.
+func cx(c *chain.Chain) int {
+	if c.Complex {
+		return 2
+	}
+	return 1
 }
 
 // meetsFrom returns the least coefficient width in [lo, hi] at which the
@@ -836,7 +862,7 @@ func (t *designTier) learn(band []scored) (bool, int) {
 						continue
 					}
 					if blamed && !o.c.blame[i] {
-						learnt[k] = figs{mpo: st[i].MultipliesPerOutput, bits: float64(st[i].MemoryBits), lat: st[i].LatencyS}
+						learnt[k] = stageFigs(&o.c.Figures, i)
 						continue
 					}
 					tries[k]++
@@ -844,7 +870,7 @@ func (t *designTier) learn(band []scored) (bool, int) {
 				continue
 			}
 			for i, k := range est.keys {
-				learnt[k] = figs{mpo: st[i].MultipliesPerOutput, bits: float64(st[i].MemoryBits), lat: st[i].LatencyS}
+				learnt[k] = stageFigs(&o.c.Figures, i)
 			}
 		}
 		if !ok {
@@ -906,9 +932,29 @@ func appendPlanKey(dst []byte, plan []chain.StagePlan) []byte {
 	return dst
 }
 
+// costAxis is a chain's figure on the front's cost axis: its multiplies
+// per output, or its hardware adders when it was priced multiplierless.
+func costAxis(f *cost.Figures) float64 {
+	if f.Multiplierless {
+		return float64(f.Adders)
+	}
+	return f.MultipliesPerOutput
+}
+
+// stageFigs is stage i's share of a priced chain's figures, on the axes
+// of the front.
+func stageFigs(f *cost.Figures, i int) figs {
+	st := &f.Stages[i]
+	g := figs{mpo: st.MultipliesPerOutput, bits: float64(st.MemoryBits), lat: st.LatencyS}
+	if f.Multiplierless {
+		g.mpo = float64(st.Adders)
+	}
+	return g
+}
+
 func candFigs(c *Candidate) figs {
 	return figs{
-		mpo:    c.Figures.MultipliesPerOutput,
+		mpo:    costAxis(&c.Figures),
 		bits:   float64(c.Figures.MemoryBits),
 		lat:    c.Figures.LatencyS,
 		margin: c.MarginDB,
@@ -955,10 +1001,16 @@ func keepInCloud(i, n int) bool {
 }
 
 func estimatedCandidate(plan []chain.StagePlan, f figs, p *params) Candidate {
+	mpo, adders := f.mpo, 0
+	if p.adders {
+		mpo, adders = 0, int(f.mpo)
+	}
 	return Candidate{
 		Plan: clonePlan(plan),
 		Figures: cost.Figures{
-			MultipliesPerOutput: f.mpo,
+			MultipliesPerOutput: mpo,
+			Adders:              adders,
+			Multiplierless:      p.adders,
 			MemoryWords:         int(f.words),
 			MemoryBits:          int(f.bits),
 			LatencyS:            f.lat,

@@ -32,8 +32,9 @@ func recommend(fs []figs, s *Settings) (int, string) {
 	if len(fs) == 0 {
 		return -1, ""
 	}
+	what := s.axisName()
 	if len(fs) == 1 {
-		return 0, "It is the only chain on the front, so it is the best on multiplies, memory and latency at once."
+		return 0, "It is the only chain on the front, so it is the best on " + what + ", memory and latency at once."
 	}
 	u := normalised(fs)
 	switch s.Rule {
@@ -50,8 +51,8 @@ func recommend(fs []figs, s *Settings) (int, string) {
 				second = i
 			}
 		}
-		return best, fmt.Sprintf("Chosen for the least weighted cost (weights %g, %g and %g on multiplies, memory bits and latency, each relative to the front's best): %.3f against %.3f for the next chain.",
-			w[0], w[1], w[2], cost[best], cost[second])
+		return best, fmt.Sprintf("Chosen for the least weighted cost (weights %g, %g and %g on %s, memory bits and latency, each relative to the front's best): %.3f against %.3f for the next chain.",
+			w[0], w[1], w[2], what, cost[best], cost[second])
 	default:
 		best := 0
 		dist := make([]float64, len(fs))
@@ -61,8 +62,17 @@ func recommend(fs []figs, s *Settings) (int, string) {
 				best = i
 			}
 		}
-		return best, kneeReason(fs, u, best)
+		return best, kneeReason(fs, u, best, what)
 	}
+}
+
+// axisName names the front's cost axis: "multiplies", or "adders" when
+// the chains are priced multiplierless.
+func (s *Settings) axisName() string {
+	if s.Cost.Multiplierless {
+		return "adders"
+	}
+	return "multiplies"
 }
 
 func (s *Settings) weights() [3]float64 {
@@ -76,9 +86,10 @@ func (s *Settings) weights() [3]float64 {
 }
 
 // kneeReason compares the knee with the chain of fewest multiplies (the
-// front's first point).
-func kneeReason(fs []figs, u [][3]float64, k int) string {
-	const lead = "Chosen as the knee of the front, the chain nearest the ideal of the fewest multiplies, least memory and least latency at once"
+// front's first point); what names the cost axis ("multiplies" or
+// "adders").
+func kneeReason(fs []figs, u [][3]float64, k int, what string) string {
+	lead := "Chosen as the knee of the front, the chain nearest the ideal of the fewest " + what + ", least memory and least latency at once"
 	if k == 0 {
 		near := func(u float64, what string) string {
 			switch {
@@ -89,13 +100,17 @@ func kneeReason(fs []figs, u [][3]float64, k int) string {
 			}
 			return fmt.Sprintf("is within %.0f%% of the least %s", 100*(u-1), what)
 		}
-		return fmt.Sprintf("%s: it has the fewest multiplies per output, %s and %s on the front.",
-			lead, near(u[0][1], "memory"), near(u[0][2], "latency"))
+		fewest := "the fewest multiplies per output"
+		if what == "adders" {
+			fewest = "the fewest adders"
+		}
+		return fmt.Sprintf("%s: it has %s, %s and %s on the front.",
+			lead, fewest, near(u[0][1], "memory"), near(u[0][2], "latency"))
 	}
 	c, x := fs[0], fs[k]
-	mult := change(x.mpo, c.mpo, "more", "fewer") + " multiplies than the cheapest chain"
-	if mult == "the same multiplies than the cheapest chain" {
-		mult = "as few multiplies as the cheapest chain"
+	mult := change(x.mpo, c.mpo, "more", "fewer") + " " + what + " than the cheapest chain"
+	if mult == "the same "+what+" than the cheapest chain" {
+		mult = "as few " + what + " as the cheapest chain"
 	}
 	return fmt.Sprintf("%s: %s, for %s memory and %s latency.",
 		lead, mult, change(x.bits, c.bits, "more", "less"), change(x.lat, c.lat, "more", "less"))

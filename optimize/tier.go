@@ -434,13 +434,19 @@ func (t *designTier) widthReason(bits int) string {
 	n := t.res.Dropped[ReasonMissQuantised]
 	c, w, rank, tried := t.neededWidth(bits)
 	msg := fmt.Sprintf("No chain meets the spec with %d-bit coefficients: %d chains that met it in floating point missed it with their taps rounded.", bits, n)
+	figure := func(c *Candidate) string {
+		if c.Figures.Multiplierless {
+			return fmt.Sprintf("%d adders", c.Figures.Adders)
+		}
+		return fmt.Sprintf("%.4g multiplies per output", c.Figures.MultipliesPerOutput)
+	}
 	switch {
 	case w > 0 && rank == 0:
 		t.res.NeededCoefBits = w
-		msg += fmt.Sprintf(" The cheapest of them, %s (%.4g multiplies per output), meets from %d bits.", chain.Notation(c.Plan), c.Figures.MultipliesPerOutput, w)
+		msg += fmt.Sprintf(" The cheapest of them, %s (%s), meets from %d bits.", chain.Notation(c.Plan), figure(&c), w)
 	case w > 0:
 		t.res.NeededCoefBits = w
-		msg += fmt.Sprintf(" Of the %d cheapest of them, %s (%.4g multiplies per output) meets from the fewest bits, %d.", tried, chain.Notation(c.Plan), c.Figures.MultipliesPerOutput, w)
+		msg += fmt.Sprintf(" Of the %d cheapest of them, %s (%s) meets from the fewest bits, %d.", tried, chain.Notation(c.Plan), figure(&c), w)
 	case tried > 0 && t.ctx.Err() == nil:
 		msg += fmt.Sprintf(" None of the %d cheapest of them meets with coefficients of up to %d bits.", tried, widestTried)
 	}

@@ -82,6 +82,12 @@ type Spec struct {
 	// Limits are the fabric's ([hardware] max_register_bits,
 	// max_cic_factor, max_multipliers, max_memory_bits); zero is none.
 	Limits optimize.Limits
+	// Multiplierless is hardware.multiplierless: every FIR and half-band
+	// stage is built as a shared adder graph of its rounded taps, with no
+	// multipliers, and the search's cost axis is adders
+	// (cost.Settings.Multiplierless). It needs words.coefficients (a width
+	// or "auto").
+	Multiplierless bool
 	// Search limits, with defaults filled in.
 	MaxStages int
 	Kinds     []chain.Kind
@@ -95,7 +101,7 @@ type Spec struct {
 
 // CostSettings returns the pricing settings the spec asks for.
 func (s *Spec) CostSettings() cost.Settings {
-	return cost.Settings{NoSymmetry: !s.Symmetry, Clock: s.Clock}
+	return cost.Settings{NoSymmetry: !s.Symmetry, Clock: s.Clock, Multiplierless: s.Multiplierless}
 }
 
 // FixedSettings returns the word-length planner's settings the spec asks for.
@@ -222,7 +228,7 @@ var known = []key{
 	{path: "words.unity_gain"},
 	{path: "hardware", table: true}, {path: "hardware.clock"}, {path: "hardware.multiplier"},
 	{path: "hardware.max_register_bits"}, {path: "hardware.max_cic_factor"}, {path: "hardware.max_multipliers"},
-	{path: "hardware.max_memory_bits"},
+	{path: "hardware.max_memory_bits"}, {path: "hardware.multiplierless"},
 	{path: "cost", table: true}, {path: "cost.symmetry"},
 	{path: "search", table: true}, {path: "search.max_stages"}, {path: "search.kinds"},
 	{path: "search.cic_orders"}, {path: "search.cic_delays"},
@@ -747,7 +753,7 @@ func (p *parser) build() (*Spec, error) {
 	for _, f := range []struct {
 		key string
 		dst *bool
-	}{{"words.unity_gain", &out.UnityGain}, {"cost.symmetry", &out.Symmetry}} {
+	}{{"words.unity_gain", &out.UnityGain}, {"cost.symmetry", &out.Symmetry}, {"hardware.multiplierless", &out.Multiplierless}} {
 		if v, ok := p.lookup(f.key); ok {
 			b, isBool := v.(bool)
 			if !isBool {
@@ -755,6 +761,9 @@ func (p *parser) build() (*Spec, error) {
 			}
 			*f.dst = b
 		}
+	}
+	if v, ok := p.lookup("hardware.multiplierless"); ok && out.Multiplierless && cs.CoefBits == 0 && !out.CoefAuto {
+		return nil, p.errAt("hardware.multiplierless", v, `needs words.coefficients, a width in bits or "auto": the adder graphs are built on the rounded integer coefficients`)
 	}
 
 	out.MaxStages = DefaultMaxStages

@@ -134,6 +134,9 @@ func TestParseErrors(t *testing.T) {
 		{"limit zero", "[hardware]\nmax_register_bits = 0", []string{"hardware.max_register_bits", "must lie in [1, "}},
 		{"limit text", "[hardware]\nmax_memory_bits = \"lots\"", []string{"hardware.max_memory_bits", "whole number"}},
 		{"multipliers without clock", "[hardware]\nmax_multipliers = 4", []string{"hardware.max_multipliers", "needs hardware.clock"}},
+		{"multiplierless text", "[hardware]\nmultiplierless = \"yes\"", []string{"hardware.multiplierless", "want true or false"}},
+		{"multiplierless number", "[hardware]\nmultiplierless = 1", []string{"hardware.multiplierless", "want true or false"}},
+		{"multiplierless float", "[hardware]\nmultiplierless = true", []string{"hardware.multiplierless", "needs words.coefficients", `"auto"`}},
 		{"ripple +-", `ripple = "+-0.05 dB"`, []string{"ripple", "peak-to-peak", `write "0.1 dB"`}},
 		{"ripple ±", `ripple = "±0.25dB"`, []string{"ripple", "peak-to-peak", `write "0.5 dB"`}},
 		{"ripple +/-", `ripple = "+/-x"`, []string{"ripple", "twice the tolerance"}},
@@ -375,6 +378,29 @@ func TestParseTradeNames(t *testing.T) {
 	}
 	if len(s.Kinds) != 3 || s.Kinds[1] != chain.HalfBand {
 		t.Errorf("kinds = %v; want cic, halfband, fir", s.Kinds)
+	}
+}
+
+// hardware.multiplierless reaches the pricing, with a coefficient width
+// or "auto", and is off by default.
+func TestParseMultiplierless(t *testing.T) {
+	base := "input_rate = \"122.88 MHz\"\noutput_rate = \"1.92 MHz\"\npassband = \"600 kHz\"\nripple = 0.1\nrejection = 80\n"
+	for _, tc := range []struct {
+		words string
+		want  bool
+	}{
+		{"[words]\ncoefficients = 16\n[hardware]\nmultiplierless = true\n", true},
+		{"[words]\ncoefficients = \"auto\"\n[hardware]\nmultiplierless = true\n", true},
+		{"[words]\ncoefficients = 16\n[hardware]\nmultiplierless = false\n", false},
+		{"", false},
+	} {
+		s, err := Parse("t.toml", []byte(base+tc.words))
+		if err != nil {
+			t.Fatalf("%q: %v", tc.words, err)
+		}
+		if s.Multiplierless != tc.want || s.SearchSettings().Cost.Multiplierless != tc.want {
+			t.Errorf("%q: multiplierless %v, search %v; want %v", tc.words, s.Multiplierless, s.SearchSettings().Cost.Multiplierless, tc.want)
+		}
 	}
 }
 

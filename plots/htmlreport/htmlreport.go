@@ -55,7 +55,9 @@ func Plan(p PlanPage) ([]byte, error) {
 		Spec:     specRows(r.Spec),
 		Search:   searchText(r),
 		Partial:  r.Partial,
-		Clock:    r.Spec.Hardware.ClockHz != nil,
+		Clock:    r.Spec.Hardware.ClockHz != nil && !r.Spec.Hardware.Multiplierless,
+		Axis:     "mult/out",
+		AxisName: "multiplies",
 		Files:    p.Files,
 		Cautions: planCautions(r),
 	}
@@ -70,6 +72,14 @@ func Plan(p PlanPage) ([]byte, error) {
 		return nil, fmt.Errorf("htmlreport: stages figure: %v", err)
 	}
 	v.Front = frontRows(r.Front, r.Recommended, v.Clock)
+	if r.Spec.Hardware.Multiplierless {
+		v.Axis, v.AxisName = "adders", "adders"
+		for i := range v.Front {
+			if a := r.Front[i].Adders; a != nil {
+				v.Front[i].Mult = strconv.Itoa(*a)
+			}
+		}
+	}
 	if len(r.Front) > 0 {
 		c := r.Front[r.Recommended]
 		v.Resources = c.Resources
@@ -289,12 +299,16 @@ type planView struct {
 	Spec                            []kv
 	Search                          string
 	Partial, Clock                  bool
-	Front                           []frontRow
-	Rec                             *recView
-	FrontSVG, ResponseSVG           template.HTML
-	StagesSVG                       template.HTML
-	Files                           []string
-	Cautions                        []string
+	// Axis heads the front table's cost column and AxisName says it in
+	// words: "adders" for a multiplierless plan, whose column holds each
+	// chain's adders as built.
+	Axis, AxisName        string
+	Front                 []frontRow
+	Rec                   *recView
+	FrontSVG, ResponseSVG template.HTML
+	StagesSVG             template.HTML
+	Files                 []string
+	Cautions              []string
 	// Check only: the front compared with, what beats the chain (as
 	// Beater.Text says it), or else CompareText.
 	Compared    string

@@ -90,7 +90,7 @@ const templates = `
 {{end}}</tbody></table></div>{{end}}
 
 {{define "front"}}<div class="scroll"><table>
-<thead><tr><th class="n">#</th><th>chain</th><th class="n">mult/out</th><th class="n">adds/out</th><th class="n">memory bits</th>{{if .Clock}}<th class="n">multi&shy;pliers</th>{{end}}<th class="n">latency (output samples)</th><th class="n">rejection dB</th><th class="n">margin dB</th><th class="n">ripple dB</th></tr></thead>
+<thead><tr><th class="n">#</th><th>chain</th><th class="n">{{.Axis}}</th><th class="n">adds/out</th><th class="n">memory bits</th>{{if .Clock}}<th class="n">multi&shy;pliers</th>{{end}}<th class="n">latency (output samples)</th><th class="n">rejection dB</th><th class="n">margin dB</th><th class="n">ripple dB</th></tr></thead>
 <tbody>
 {{range .Rows}}<tr class="{{if .Rec}}mark{{end}}{{if .Misses}} bad{{end}}"><td class="n">{{.Index}}{{if .Rec}} ★{{end}}</td><td class="chain">{{.Notation}}{{if .Tag}} <span class="tag">{{.Tag}}</span>{{end}}</td><td class="n">{{.Mult}}</td><td class="n">{{.Adds}}</td><td class="n">{{.MemBits}}</td>{{if $.Clock}}<td class="n">{{.Multipliers}}</td>{{end}}<td class="n">{{.Latency}} ({{.LatOut}} out)</td><td class="n">{{.Rejection}}</td><td class="n">{{.Margin}}</td><td class="n">{{.Ripple}}</td></tr>
 {{end}}</tbody></table></div>{{end}}
@@ -148,8 +148,8 @@ const templates = `
 
 <section id="front"><h2>Pareto front</h2>
 {{if .FrontSVG}}<figure>{{.FrontSVG}}<figcaption>Multiplies per output against memory: every feasible candidate (by estimate) faint, the front coloured by latency, the recommended chain ringed.</figcaption></figure>{{end}}
-<p>Chains that no other chain beats on multiplies, memory and latency at once, sorted by multiplies; ★ marks the recommendation. Figures are per final output sample, from real designs unless a chain is marked estimated.</p>
-{{template "front" (frontArgs .Front .Clock)}}
+<p>Chains that no other chain beats on {{.AxisName}}, memory and latency at once, sorted by {{.AxisName}}; ★ marks the recommendation. Figures are per final output sample, from real designs unless a chain is marked estimated.</p>
+{{template "front" (frontArgs .Front .Clock .Axis)}}
 </section>
 
 <section id="stages"><h2>Stages of the recommended chain</h2>
@@ -280,12 +280,19 @@ const templates = `
 type frontArgsT struct {
 	Rows  []frontRow
 	Clock bool
+	Axis  string // the cost column's head: "mult/out", or "adders" (multiplierless)
 }
 
 var pages = template.Must(template.New("").Funcs(template.FuncMap{
 	"style":      func() template.CSS { return template.CSS(style) },
 	"capitalise": capitalise,
-	"frontArgs":  func(rows []frontRow, clock bool) frontArgsT { return frontArgsT{rows, clock} },
+	"frontArgs": func(rows []frontRow, clock bool, axis ...string) frontArgsT {
+		a := frontArgsT{rows, clock, "mult/out"}
+		if len(axis) > 0 && axis[0] != "" {
+			a.Axis = axis[0]
+		}
+		return a
+	},
 	"base": func(p string) string {
 		for i := len(p) - 1; i >= 0; i-- {
 			if p[i] == '/' {

@@ -26,6 +26,13 @@
 // multipliers, adders, adder_bits, register_bits, block_memory_bits), a
 // planning estimate whose rules Resources states.
 //
+// With hardware.multiplierless, each chain and stage carries its adders
+// (adders, coefficient_adders, structural_adders; package cost's rules),
+// counted by AddAdders on the coefficients_int it writes, each FIR and
+// half-band stage's adder graph proved by evaluating it (an error, never a
+// count, when it fails); the front table's first figure is then adders and
+// the resource table splits them into graph and tap adders.
+//
 // search.dropped counts the candidates set aside, keyed by the stable name
 // of each reason (optimize.Reason: "cic_rejection_below_target",
 // "fir_over_tap_limit", "misses_with_rounded_taps", ...; optimize.Reason.Text

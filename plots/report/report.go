@@ -93,6 +93,9 @@ type Hardware struct {
 	MaxCICFactor    int `json:"max_cic_factor,omitempty"`
 	MaxMultipliers  int `json:"max_multipliers,omitempty"`
 	MaxMemoryBits   int `json:"max_memory_bits,omitempty"`
+	// Multiplierless is hardware.multiplierless: FIR and half-band stages
+	// built as shared adder graphs, the front over adders.
+	Multiplierless bool `json:"multiplierless,omitempty"`
 }
 
 // Cost holds the pricing settings.
@@ -159,6 +162,15 @@ type Chain struct {
 	// only; see NewResources).
 	Resources *Resources `json:"resources,omitempty"`
 
+	// Multiplierless only (hardware.multiplierless; absent otherwise): the
+	// chain's hardware adders, the front's cost axis, and their split
+	// over the FIR and half-band stages' adder graphs and tap sums (each
+	// the sum over the stages of theirs times the stage's lanes and real
+	// filters; Adders adds the CICs'). See Stage's fields and AddAdders.
+	Adders            *int `json:"adders,omitempty"`
+	CoefficientAdders *int `json:"coefficient_adders,omitempty"`
+	StructuralAdders  *int `json:"structural_adders,omitempty"`
+
 	// plan is the word-length plan behind ChainReport (AddWordLengths),
 	// kept for the hand-off files; nil without one.
 	plan *handoffPlan
@@ -179,6 +191,16 @@ type Stage struct {
 	// ParallelLanes is how many input samples the stage takes per clock
 	// cycle (cost.Lanes), with a clock only: 1 at or below it.
 	ParallelLanes *int `json:"parallel_lanes,omitempty"`
+	// Multiplierless only: a FIR or half-band stage's CoefficientAdders
+	// (its shared adder graph) and StructuralAdders (the adders that sum
+	// its taps), for one lane of one real filter; Adders is the stage's
+	// hardware adders as built (those times its lanes and real filters,
+	// or a CIC's integrators and combs); AddersEstimated marks a count
+	// from an estimated length. See AddAdders.
+	CoefficientAdders *int `json:"coefficient_adders,omitempty"`
+	StructuralAdders  *int `json:"structural_adders,omitempty"`
+	Adders            *int `json:"adders,omitempty"`
+	AddersEstimated   bool `json:"adders_estimated,omitempty"`
 
 	// CIC only.
 	CICOrder     int   `json:"cic_order,omitempty"`
@@ -225,6 +247,7 @@ func NewSpec(s *specfile.Spec) Spec {
 	l := s.Limits
 	out.Hardware.MaxRegisterBits, out.Hardware.MaxCICFactor = l.MaxRegisterBits, l.MaxCICFactor
 	out.Hardware.MaxMultipliers, out.Hardware.MaxMemoryBits = l.MaxMultipliers, l.MaxMemoryBits
+	out.Hardware.Multiplierless = s.Multiplierless
 	if s.Clock > 0 {
 		clk := s.Clock
 		out.Hardware.ClockHz = &clk
@@ -282,6 +305,12 @@ func NewChain(spec chain.Spec, cand optimize.Candidate, clock bool) (Chain, erro
 			if clock {
 				m, l := sf.Multipliers, max(1, sf.Lanes)
 				s.Multipliers, s.ParallelLanes = &m, &l
+			}
+			if f.Multiplierless {
+				s.Adders, s.AddersEstimated = &sf.Adders, sf.AddersEstimated
+				if _, fir := st.(chain.FIRStage); fir {
+					s.CoefficientAdders, s.StructuralAdders = &sf.CoefficientAdders, &sf.StructuralAdders
+				}
 			}
 		}
 		// The cases cover every kind of chain.Kinds (FIR and half-band are
@@ -433,6 +462,11 @@ func NewContext(ctx context.Context, command string, s *specfile.Spec, res *opti
 	close(next)
 	wg.Wait()
 	for i := range r.Front {
+		if s.Multiplierless {
+			if err := AddAdders(&r.Front[i], s); err != nil {
+				return nil, err
+			}
+		}
 		r.Front[i].Resources = NewResources(&r.Front[i], s.Clock, s.Chain.OutputRate)
 	}
 	if len(r.Front) > 0 && (r.Recommended < 0 || r.Recommended >= len(r.Front)) {

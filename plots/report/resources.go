@@ -23,7 +23,10 @@ const BlockMemoryBits = 1024
 // planned); RegisterBits and BlockMemoryBits split the memory (a CIC's
 // registers always count as registers; a FIR or half-band stage's data and
 // coefficient memory as block memory from BlockMemoryBits up); Lanes as
-// cost.Lanes.
+// cost.Lanes. A multiplierless chain (Chain.Adders set) has no
+// multipliers, and its Adders are each stage's adders as built
+// (Stage.Adders), with a FIR or half-band stage's split into
+// CoefficientAdders and StructuralAdders.
 type Resources struct {
 	Multipliers     int              `json:"multipliers"`
 	Adders          int              `json:"adders"`
@@ -43,6 +46,11 @@ type StageResources struct {
 	AdderBits       int    `json:"adder_bits"`
 	RegisterBits    int    `json:"register_bits"`
 	BlockMemoryBits int    `json:"block_memory_bits"`
+	// Multiplierless only (absent otherwise): a FIR or half-band stage's
+	// Adders split into its adder graphs' and its tap sums', over its
+	// lanes and real filters.
+	CoefficientAdders *int `json:"coefficient_adders,omitempty"`
+	StructuralAdders  *int `json:"structural_adders,omitempty"`
 }
 
 // NewResources is c's bill of resources at a clock of clock Hz, for a
@@ -62,6 +70,20 @@ func NewResources(c *Chain, clock, outRate float64) *Resources {
 			sr.Multipliers = *st.Multipliers
 		}
 		sr.Adders = int(math.Ceil(st.AddsPerOutput*outRate/clock - 1e-9))
+		if c.Adders != nil && st.Adders != nil {
+			// Multiplierless: the stage's adders as built (its graphs and
+			// tap sums are wired to their constants, not time-shared).
+			sr.Adders = *st.Adders
+			if st.CoefficientAdders != nil && st.StructuralAdders != nil {
+				// Adders is one block's times its lanes and real filters.
+				ca, sa := 0, 0
+				if b := *st.CoefficientAdders + *st.StructuralAdders; b > 0 {
+					k := *st.Adders / b
+					ca, sa = *st.CoefficientAdders*k, *st.StructuralAdders*k
+				}
+				sr.CoefficientAdders, sr.StructuralAdders = &ca, &sa
+			}
+		}
 		mem := st.MemoryBits
 		if w := st.StageReport; w != nil {
 			if w.HardwareMultipliers != nil {
@@ -83,6 +105,9 @@ func NewResources(c *Chain, clock, outRate float64) *Resources {
 			sr.RegisterBits = mem
 		} else {
 			sr.BlockMemoryBits = mem
+		}
+		if c.Adders != nil {
+			sr.Multipliers = 0 // multiplierless
 		}
 		r.Multipliers += sr.Multipliers
 		r.Adders += sr.Adders
@@ -107,16 +132,38 @@ func WriteResources(w io.Writer, rep *Report) {
 		return
 	}
 	fmt.Fprintf(w, "\nresources of %s at the clock (a planning estimate; the vendor's tools decide):\n", ch.Notation)
-	rows := [][]string{{"stage", "kind", "lanes", "multipliers", "adders", "adder bits", "register bits", "block memory bits"}}
+	ml := ch.Adders != nil
+	head := []string{"stage", "kind", "lanes", "multipliers", "adders", "adder bits", "register bits", "block memory bits"}
+	if ml {
+		head = slices.Insert(head, 5, "graph adders", "tap adders")
+	}
+	rows := [][]string{head}
+	var ga, ta int
 	for _, s := range res.Stages {
 		bits := "-"
 		if s.AdderBits > 0 {
 			bits = fmt.Sprint(s.AdderBits)
 		}
-		rows = append(rows, []string{fmt.Sprint(s.Stage), s.Kind, fmt.Sprint(s.Lanes), fmt.Sprint(s.Multipliers), fmt.Sprint(s.Adders),
-			bits, fmt.Sprint(s.RegisterBits), fmt.Sprint(s.BlockMemoryBits)})
+		row := []string{fmt.Sprint(s.Stage), s.Kind, fmt.Sprint(s.Lanes), fmt.Sprint(s.Multipliers), fmt.Sprint(s.Adders),
+			bits, fmt.Sprint(s.RegisterBits), fmt.Sprint(s.BlockMemoryBits)}
+		if ml {
+			g, t := "-", "-"
+			if s.CoefficientAdders != nil && s.StructuralAdders != nil {
+				g, t = fmt.Sprint(*s.CoefficientAdders), fmt.Sprint(*s.StructuralAdders)
+				ga, ta = ga+*s.CoefficientAdders, ta+*s.StructuralAdders
+			}
+			row = slices.Insert(row, 5, g, t)
+		}
+		rows = append(rows, row)
 	}
-	rows = append(rows, []string{"total", "", fmt.Sprint(res.Lanes), fmt.Sprint(res.Multipliers), fmt.Sprint(res.Adders), "",
-		fmt.Sprint(res.RegisterBits), fmt.Sprint(res.BlockMemoryBits)})
+	total := []string{"total", "", fmt.Sprint(res.Lanes), fmt.Sprint(res.Multipliers), fmt.Sprint(res.Adders), "",
+		fmt.Sprint(res.RegisterBits), fmt.Sprint(res.BlockMemoryBits)}
+	if ml {
+		total = slices.Insert(total, 5, fmt.Sprint(ga), fmt.Sprint(ta))
+	}
+	rows = append(rows, total)
 	WriteAligned(w, "  ", rows, func(i int) bool { return i >= 2 })
+	if ml {
+		fmt.Fprintln(w, "  multiplierless: adders are as built (not time-shared); graph adders multiply by the taps (a shared adder graph), tap adders sum them (transposed direct form)")
+	}
 }

@@ -104,6 +104,13 @@ func WriteTable(w io.Writer, rep *Report) {
 	if rounded {
 		head[7], head[8] = "rejection*", "ripple*"
 	}
+	// Multiplierless: the cost axis is the chains' hardware adders, and
+	// there are no multipliers.
+	adders := rep.Spec.Hardware.Multiplierless
+	if adders {
+		head[3] = "adders"
+	}
+	clock = clock && !adders
 	if clock {
 		head = append(head[:6], append([]string{"multipliers"}, head[6:]...)...)
 	}
@@ -133,8 +140,15 @@ func WriteTable(w io.Writer, rep *Report) {
 			kind += ", misses spec"
 		}
 		rej, rip := ch.BuiltFigures()
+		axis := TrimFloat(ch.MultipliesPerOutput, 1)
+		if adders {
+			axis = "-"
+			if ch.Adders != nil {
+				axis = fmt.Sprint(*ch.Adders)
+			}
+		}
 		row := []string{mark, fmt.Sprint(i + 1), ch.Notation,
-			TrimFloat(ch.MultipliesPerOutput, 1), TrimFloat(ch.AddsPerOutput, 1), fmt.Sprint(ch.MemoryBits)}
+			axis, TrimFloat(ch.AddsPerOutput, 1), fmt.Sprint(ch.MemoryBits)}
 		if clock {
 			m := 0
 			if ch.MultipliersAtClock != nil {
@@ -161,6 +175,13 @@ func WriteTable(w io.Writer, rep *Report) {
 		fmt.Fprintf(w, "* the worse of the float design and its taps %s, as they will be built: the verdict needs both to meet", what)
 		if rep.Spec.Words.CoefficientsMode == "auto" {
 			fmt.Fprintf(w, "; memory counts %d-bit coefficient words, report.json's fixed_memory_bits the chosen widths", cost.FloatCoefBits)
+		}
+		fmt.Fprintln(w)
+	}
+	if adders {
+		fmt.Fprintf(w, "adders: multiplierless, each FIR and half-band stage a shared adder graph of its rounded taps plus one adder per nonzero tap after the first, times its lanes and real filters, and each CIC's integrators and combs (the hardware, the front's cost axis; adds/out counts the tap sums and the CICs only)")
+		if rep.Spec.Words.CoefficientsMode == "auto" || rep.Spec.Words.UnityGain {
+			fmt.Fprintf(w, "; the front was ranked on graphs of taps rounded to %s, these count the coefficients written", map[bool]string{true: fmt.Sprintf("%d bits", cost.FloatCoefBits), false: "the width before the unity-gain correction"}[rep.Spec.Words.CoefficientsMode == "auto"])
 		}
 		fmt.Fprintln(w)
 	}

@@ -79,6 +79,10 @@
 // below 2^24 keep S in bitsets; wider ones in a hash table capped at 2^19
 // values, which only costs quality.
 //
+// Package cost builds one graph per multiplierless FIR or half-band stage
+// (cost.Settings.Multiplierless, spec key hardware.multiplierless) and
+// proves it with Eval before it counts its adders.
+//
 // The result is deterministic: the same coefficients, in any order, give
 // the same nodes (maps are only looked up, never ranged over; every choice
 // has a total order).
