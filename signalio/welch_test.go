@@ -14,10 +14,10 @@ import (
 // (deeper bins hold rounding noise of the FFTs).
 func TestWelchScipy(t *testing.T) {
 	var w struct {
-		Bits  int       `json:"bits"`
-		Rate  float64   `json:"rate"`
-		I     []int64   `json:"i"`
-		Q     []int64   `json:"q"`
+		Bits  int     `json:"bits"`
+		Rate  float64 `json:"rate"`
+		I     []int64 `json:"i"`
+		Q     []int64 `json:"q"`
 		Cases []struct {
 			Window   string    `json:"window"`
 			Nperseg  int       `json:"nperseg"`
