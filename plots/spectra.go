@@ -230,7 +230,8 @@ func spectrumPanel(s Spectrum, side string, d SpectraData, floor, top float64, i
 	return p, env.hasDense()
 }
 
-// panelTitle is "Input: capture.wav, 122.88 MS/s, bins 60 kHz".
+// panelTitle is "Input: capture.wav, 122.88 MS/s, bin noise bandwidth 60
+// kHz", saying so when every bin is empty.
 func panelTitle(s Spectrum, side string) string {
 	t := side
 	if s.Label != "" {
@@ -243,7 +244,13 @@ func panelTitle(s Spectrum, side string) string {
 	if s.RBWHz > 0 {
 		t += ", bin noise bandwidth " + hz(s.RBWHz)
 	}
-	return t
+	for _, v := range s.DB {
+		if !math.IsInf(v, -1) {
+			return t
+		}
+	}
+	// Else the curve lies on the floor like a signal at the floor.
+	return t + ": every bin empty (all-zero signal)"
 }
 
 // aliasShade is the alias bands' fill, the same tint as Response's.
