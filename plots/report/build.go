@@ -267,20 +267,7 @@ func responseData(cand optimize.Candidate, spec *specfile.Spec, ch Chain) (plots
 		}
 	}
 	// The bands that fold onto the protected band at the output (docs/design.md §7).
-	fk, fa := cs.OutputRate, cs.Protected
-	// The first 64 bands, which the near panel shows, are drawn as they are;
-	// later ones closer than a 4096th of the axis to the previous one join
-	// it (they would share a pixel anyway), so a chain with millions of
-	// bands hands the figure a few thousand.
-	minGap := f0 / 2 / 4096
-	for k := 1; float64(k)*fk-fa < f0/2; k++ {
-		lo, hi := float64(k)*fk-fa, math.Min(float64(k)*fk+fa, f0/2)
-		if n := len(rd.AliasBands); k > 64 && n > 0 && lo-rd.AliasBands[n-1][1] < minGap {
-			rd.AliasBands[n-1][1] = hi
-			continue
-		}
-		rd.AliasBands = append(rd.AliasBands, [2]float64{lo, hi})
-	}
+	rd.AliasBands = plots.AliasShading(f0, cs.OutputRate, cs.Protected)
 	return rd, nil
 }
 

@@ -1,0 +1,27 @@
+package plots
+
+import "math"
+
+// AliasShading returns the input-frequency bands to shade on a figure of a
+// chain from inHz to outHz with protected band [0, faHz]: the bands
+// [k outHz - faHz, k outHz + faHz], k >= 1, that fold onto the protected
+// band, clipped to inHz/2 (docs/design.md §7). The first 64 bands are
+// returned as they are; later ones closer than a 4096th of the axis to the
+// previous band join it (they would share a pixel anyway), so a chain with
+// millions of bands hands a figure a few thousand.
+func AliasShading(inHz, outHz, faHz float64) [][2]float64 {
+	var bands [][2]float64
+	if !(outHz > 0) || !(inHz > outHz) || !(faHz > 0) {
+		return nil
+	}
+	minGap := inHz / 2 / 4096
+	for k := 1; float64(k)*outHz-faHz < inHz/2; k++ {
+		lo, hi := float64(k)*outHz-faHz, math.Min(float64(k)*outHz+faHz, inHz/2)
+		if n := len(bands); k > 64 && n > 0 && lo-bands[n-1][1] < minGap {
+			bands[n-1][1] = hi
+			continue
+		}
+		bands = append(bands, [2]float64{lo, hi})
+	}
+	return bands
+}
