@@ -559,4 +559,3 @@ func TestVerilatorLint(t *testing.T) {
 		t.Errorf("verilator --lint-only -Wall: %v\n%s", err, out)
 	}
 }
-

@@ -17,6 +17,9 @@ import (
 // bitsOf(src, ws, s, wd) is src >>> s (floor) wrapped to wd bits for s >= 0,
 // and src << -s wrapped to wd bits for s < 0.
 func bitsOf(src string, ws, lo, wd int) string {
+	if lo == 0 && wd == ws {
+		return src
+	}
 	hi := lo + wd - 1
 	var parts []string
 	// Sign extension: bits max(lo, ws)..hi.
