@@ -385,7 +385,7 @@ func (cp *chainPlan) writeCIC(b *bytes.Buffer, s *stage) {
 			for t := 1; t <= m; t++ {
 				regs = append(regs, fmt.Sprintf("%s_d%d", name, t))
 			}
-			fmt.Fprintf(b, "  reg  %s %s;\n", vec(rb), strings.Join(regs, ", "))
+			writeList(b, fmt.Sprintf("  reg  %s ", vec(rb)), regs)
 			fmt.Fprintf(b, "  wire %s %s_out = %s_in - %s_d%d;\n", vec(rb), name, name, name, m)
 			src, ws, unit = name+"_out", rb, d
 		}
@@ -467,11 +467,14 @@ func (cp *chainPlan) writeFIR(b *bytes.Buffer, s *stage) {
 	cp.ports(b, s)
 	due, pw := phaseDecl(b, s.r)
 	if l > 1 {
-		b.WriteString("  // The delay line: dl_c[t] holds the input t+1 samples back.\n")
+		b.WriteString("  // The delay line: d<t>_c holds the input t samples back.\n")
 		for _, ch := range cp.chans() {
-			fmt.Fprintf(b, "  reg %s dl_%s [0:%d];\n", vec(s.in), ch, l-2)
+			var regs []string
+			for t := 1; t < l; t++ {
+				regs = append(regs, fmt.Sprintf("d%d_%s", t, ch))
+			}
+			writeList(b, fmt.Sprintf("  reg  %s ", vec(s.in)), regs)
 		}
-		b.WriteString("  integer t;\n")
 	}
 	for _, ch := range cp.chans() {
 		// x(k) is the input k samples back, sign-extended to the accumulator.
@@ -479,47 +482,42 @@ func (cp *chainPlan) writeFIR(b *bytes.Buffer, s *stage) {
 			if k == 0 {
 				return bitsOf("in_"+ch, s.in, 0, a)
 			}
-			return bitsOf(fmt.Sprintf("dl_%s[%d]", ch, k-1), s.in, 0, a)
+			return bitsOf(fmt.Sprintf("d%d_%s", k, ch), s.in, 0, a)
 		}
+		acc := "acc_" + ch
 		var terms []string
 		term := func(v int64, operand, note string) {
-			sign, mag := "+", v
+			op, mag := "+", v
 			if v < 0 {
-				sign, mag = "-", -v
+				op, mag = "-", -v
 			}
-			terms = append(terms, fmt.Sprintf("    %s %s * %d'd%d  // %s", sign, operand, a, mag, note))
+			terms = append(terms, fmt.Sprintf("    %s = %s %s %s * %d'd%d;  // %s", acc, acc, op, operand, a, mag, note))
 		}
-		fmt.Fprintf(b, "  // channel %s\n", ch)
 		if s.folded {
 			for k := 0; k < l/2; k++ {
-				if s.h[k] == 0 {
-					continue
+				if s.h[k] != 0 {
+					term(s.h[k], fmt.Sprintf("(%s + %s)", x(k), x(l-1-k)), fmt.Sprintf("h[%d] = h[%d] = %d", k, l-1-k, s.h[k]))
 				}
-				pre := fmt.Sprintf("pre%d_%s", k, ch)
-				fmt.Fprintf(b, "  wire %s %s = %s + %s;\n", vec(a), pre, x(k), x(l-1-k))
-				term(s.h[k], pre, fmt.Sprintf("h[%d] = h[%d] = %d", k, l-1-k, s.h[k]))
 			}
 			if c := l / 2; l%2 == 1 && s.h[c] != 0 {
-				xc := fmt.Sprintf("x%d_%s", c, ch)
-				fmt.Fprintf(b, "  wire %s %s = %s;\n", vec(a), xc, x(c))
-				term(s.h[c], xc, fmt.Sprintf("h[%d] = %d (centre)", c, s.h[c]))
+				term(s.h[c], x(c), fmt.Sprintf("h[%d] = %d (centre)", c, s.h[c]))
 			}
 		} else {
 			for k := 0; k < l; k++ {
-				if s.h[k] == 0 {
-					continue
+				if s.h[k] != 0 {
+					term(s.h[k], x(k), fmt.Sprintf("h[%d] = %d", k, s.h[k]))
 				}
-				xk := fmt.Sprintf("x%d_%s", k, ch)
-				fmt.Fprintf(b, "  wire %s %s = %s;\n", vec(a), xk, x(k))
-				term(s.h[k], xk, fmt.Sprintf("h[%d] = %d", k, s.h[k]))
 			}
 		}
-		acc := "acc_" + ch
-		fmt.Fprintf(b, "  wire %s %s = %d'd0\n", vec(a), acc, a)
+		// A procedural sum: evaluated once when its inputs change, where a
+		// chain of continuous assignments would be re-evaluated once per
+		// changed term.
+		fmt.Fprintf(b, "  // channel %s: the sum of products, every operand sign-extended to %d bits\n", ch, a)
+		fmt.Fprintf(b, "  reg  %s %s;\n  always @* begin\n    %s = %d'd0;\n", vec(a), acc, acc, a)
 		for _, t := range terms {
 			b.WriteString(t + "\n")
 		}
-		b.WriteString("    ;\n")
+		b.WriteString("  end\n")
 		// r: the accumulator rounded or shifted, wr bits.
 		var r string
 		var wr int
@@ -551,8 +549,8 @@ func (cp *chainPlan) writeFIR(b *bytes.Buffer, s *stage) {
 	}
 	b.WriteString("\n  always @(posedge clk) begin\n    if (rst) begin\n")
 	for _, ch := range cp.chans() {
-		if l > 1 {
-			fmt.Fprintf(b, "      for (t = 0; t < %d; t = t + 1) dl_%s[t] <= %d'd0;\n", l-1, ch, s.in)
+		for t := 1; t < l; t++ {
+			fmt.Fprintf(b, "      d%d_%s <= %d'd0;\n", t, ch, s.in)
 		}
 		fmt.Fprintf(b, "      out_%s <= %d'sd0;\n", ch, s.out)
 	}
@@ -561,11 +559,12 @@ func (cp *chainPlan) writeFIR(b *bytes.Buffer, s *stage) {
 	}
 	b.WriteString("      out_valid <= 1'b0;\n    end else begin\n      out_valid <= 1'b0;\n      if (in_valid) begin\n")
 	for _, ch := range cp.chans() {
-		if l > 1 {
-			fmt.Fprintf(b, "        dl_%s[0] <= in_%s;\n", ch, ch)
-			if l > 2 {
-				fmt.Fprintf(b, "        for (t = 1; t < %d; t = t + 1) dl_%s[t] <= dl_%s[t-1];\n", l-1, ch, ch)
+		for t := 1; t < l; t++ {
+			prev := fmt.Sprintf("d%d_%s", t-1, ch)
+			if t == 1 {
+				prev = "in_" + ch
 			}
+			fmt.Fprintf(b, "        d%d_%s <= %s;\n", t, ch, prev)
 		}
 	}
 	ind := "        "
@@ -622,4 +621,11 @@ func (cp *chainPlan) writeTop(b *bytes.Buffer) {
 		fmt.Fprintf(b, "  assign out_%s = s%d_%s;\n", ch, last.k, ch)
 	}
 	b.WriteString("endmodule\n")
+}
+
+// writeList declares names after decl, a few to a line.
+func writeList(b *bytes.Buffer, decl string, names []string) {
+	for i := 0; i < len(names); i += 8 {
+		fmt.Fprintf(b, "%s%s;\n", decl, strings.Join(names[i:min(i+8, len(names))], ", "))
+	}
 }

@@ -122,7 +122,7 @@ func randomChain(rng *rand.Rand, maxDecim int) (fixed.Cascade, *fixed.Widths, st
 		var st fixed.Stage
 		switch k := rng.IntN(3); {
 		case k == 0 && i < 2:
-			st = fixed.Stage{CIC: true, N: 1 + rng.IntN(6), M: 1 + rng.IntN(2), R: 2 + rng.IntN(7)}
+			st = fixed.Stage{CIC: true, N: 1 + rng.IntN(6), M: 1 + rng.IntN(2), R: 2 + rng.IntN(min(31, maxDecim/4))}
 			desc = append(desc, fmt.Sprintf("cic%dm%dr%d", st.N, st.M, st.R))
 		case k == 1:
 			st = fixed.Stage{R: 2, HalfBand: true, Taps: kaiserHalfBand(2+rng.IntN(5), 6+4*rng.Float64()), Bands: looseBands(rate)}
@@ -155,9 +155,10 @@ func randomChain(rng *rand.Rand, maxDecim int) (fixed.Cascade, *fixed.Widths, st
 
 // designed returns an invented spec's chain designed by the chain package
 // and planned by fixed.FromChain and fixed.Plan.
-func designed(t *testing.T, notation string, out float64, complexIQ bool, inBits, outBits int) (fixed.Cascade, *fixed.Widths) {
+func designed(t *testing.T, tc designedCase) (fixed.Cascade, *fixed.Widths) {
 	t.Helper()
-	plan, err := chain.ParseNotation(notation)
+	const out = 1e6
+	plan, err := chain.ParseNotation(tc.notation)
 	if err != nil {
 		t.Fatal(err)
 	}
@@ -165,11 +166,11 @@ func designed(t *testing.T, notation string, out float64, complexIQ bool, inBits
 	for _, p := range plan {
 		d *= p.Factor
 	}
-	spec := chain.Spec{InputRate: out * float64(d), OutputRate: out, Passband: 0.2 * out, RippleDB: 0.1, RejectionDB: 70,
-		Complex: complexIQ, InputBits: inBits, OutputBits: outBits}
+	spec := chain.Spec{InputRate: out * float64(d), OutputRate: out, Passband: tc.fp * out, RippleDB: 0.1, RejectionDB: 70,
+		Complex: tc.complexIQ, InputBits: tc.inBits, OutputBits: tc.outBits}
 	ch, err := chain.Design(spec, plan, chain.Settings{})
 	if err != nil {
-		t.Fatalf("%s: %v", notation, err)
+		t.Fatalf("%s: %v", tc.notation, err)
 	}
 	c, words, err := fixed.FromChain(spec, ch)
 	if err != nil {
@@ -356,36 +357,38 @@ func passes(t *testing.T, c fixed.Cascade, w *fixed.Widths, seed uint64, maxIn i
 	return verdict(out)
 }
 
+// designedCase is an invented spec's chain: passband fp (a fraction of the
+// output rate), real or complex, input and output words.
+type designedCase struct {
+	notation        string
+	fp              float64
+	complexIQ       bool
+	inBits, outBits int
+}
+
 func TestDesignedChainsBitExact(t *testing.T) {
 	needIverilog(t)
-	cases := []struct {
-		notation        string
-		out             float64
-		complexIQ       bool
-		inBits, outBits int
-	}{
-		{"cic4m1r8 > hb > fir2", 1e6, true, 14, 18},
-		{"cic3m2r5 > fir4", 1e6, false, 12, 20},
+	cases := []designedCase{
+		{"cic4m1r8 > hb > fir2", 0.2, true, 14, 18},
+		{"cic3m2r5 > fir4", 0.2, false, 12, 20},
 	}
+	maxIn := 3000
 	if long() {
-		cases = append(cases, []struct {
-			notation        string
-			out             float64
-			complexIQ       bool
-			inBits, outBits int
-		}{
-			{"cic6m1r16 > fir4", 1e6, false, 16, 24},
-			{"hb > hb > fir2L", 1e6, true, 16, 16},
-			{"fir4", 1e6, false, 8, 12},
-			{"cic5m2r8 > hb > hb", 1e6, true, 6, 24},
-			{"cic1m1r4 > fir2", 1e6, false, 4, 8},
+		maxIn = 20000
+		cases = append(cases, []designedCase{
+			{"cic6m1r16 > fir4", 0.2, false, 16, 24},
+			{"hb > hb > fir2L", 0.2, true, 16, 16},
+			{"fir4", 0.2, false, 8, 12},
+			{"cic5m2r8 > hb > hb", 0.03, true, 6, 24},
+			{"cic1m1r4 > fir2", 0.2, false, 4, 8},
+			{"cic2m1r32 > fir2 > hb", 0.1, true, 2, 32},
 		}...)
 	}
 	for _, tc := range cases {
 		t.Run(strings.ReplaceAll(tc.notation, " ", ""), func(t *testing.T) {
 			t.Parallel()
-			c, w := designed(t, tc.notation, tc.out, tc.complexIQ, tc.inBits, tc.outBits)
-			t.Log(passes(t, c, w, 1, 6000))
+			c, w := designed(t, tc)
+			t.Log(passes(t, c, w, 1, maxIn))
 		})
 	}
 }
@@ -394,10 +397,11 @@ func TestRandomChainsBitExact(t *testing.T) {
 	needIverilog(t)
 	n, maxDecim, maxIn := 4, 48, 3000
 	if long() {
-		n, maxDecim, maxIn = 80, 256, 20000
+		n, maxDecim, maxIn = 150, 512, 20000
 	}
-	rng := rand.New(rand.NewPCG(2024, 5))
+	rng := rand.New(rand.NewPCG(6, 5)) // the first draws cover CIC (N = 1, 6; M = 2), half-band, FIR (R = 1), real and complex
 	planned, refused := 0, 0
+	seen := map[string]int{}
 	for planned < n {
 		c, w, name, err := randomChain(rng, maxDecim)
 		if err != nil {
@@ -412,6 +416,7 @@ func TestRandomChainsBitExact(t *testing.T) {
 			continue
 		}
 		planned++
+		tally(seen, c, w)
 		seed := uint64(planned)
 		t.Run(fmt.Sprint(planned), func(t *testing.T) {
 			t.Parallel()
@@ -419,7 +424,47 @@ func TestRandomChainsBitExact(t *testing.T) {
 			t.Logf("%s: %s", name, v)
 		})
 	}
-	t.Logf("%d random chains run, %d draws refused by the planner", planned, refused)
+	t.Logf("%d random chains run, %d draws refused by the planner; features: %v", planned, refused, seen)
+	if long() {
+		// The long set must cover every kind of stage and data path.
+		for _, f := range []string{"cic", "cic M=2", "cic N=1", "cic N=6", "half-band", "fir", "fir R=1", "complex", "real", "negative shift", "saturating", "word <= 4 bits", "unity gain"} {
+			if seen[f] == 0 {
+				t.Errorf("no random chain had %q", f)
+			}
+		}
+	}
+}
+
+// tally counts the features of a planned chain.
+func tally(seen map[string]int, c fixed.Cascade, w *fixed.Widths) {
+	add := func(f string, ok bool) {
+		if ok {
+			seen[f]++
+		}
+	}
+	add("complex", c.Complex)
+	add("real", !c.Complex)
+	add("word <= 4 bits", w.InputBits <= 4)
+	add("unity gain", w.CorrectedStage >= 0)
+	for i, st := range c.Stages {
+		sw := w.Stages[i]
+		add("word <= 4 bits", sw.OutputBits <= 4)
+		switch {
+		case st.CIC:
+			add("cic", true)
+			add("cic M=2", st.M == 2)
+			add(fmt.Sprintf("cic N=%d", st.N), true)
+		case st.HalfBand:
+			add("half-band", true)
+		default:
+			add("fir", true)
+			add("fir R=1", st.R == 1)
+		}
+		if !st.CIC {
+			add("negative shift", sw.OutputShift < 0)
+			add("saturating", sw.AccumulatorBits-sw.OutputShift > sw.OutputBits)
+		}
+	}
 }
 
 // A chain with a negative OutputShift (a narrow input into a wide output),
@@ -458,12 +503,34 @@ func TestCornerChainsBitExact(t *testing.T) {
 	t.Log(passes(t, c, w, 3, 4000))
 }
 
+// The widest words the integer model holds: a CIC whose full register is
+// 62 or 63 bits (32-bit input, order 6, M = 2) and an FIR accumulator of
+// 57 bits or more (32-bit data, 24-bit coefficients).
+func TestWideChainBitExact(t *testing.T) {
+	needIverilog(t)
+	rate := 1e6
+	c := fixed.Cascade{InputRate: rate, Complex: true, Passband: 1e3, Stages: []fixed.Stage{
+		{CIC: true, N: 6, M: 2, R: 16},
+		{R: 2, Taps: kaiserLowpass(31, 0.2, 9), Bands: looseBands(rate / 16)},
+	}}
+	w, err := fixed.Plan(c, fixed.Words{InputBits: 32, OutputBits: 32, CoefBits: 24}, fixed.Settings{})
+	if err != nil {
+		t.Fatal(err)
+	}
+	full, acc := w.Stages[0].Pruning.FullBits, w.Stages[1].AccumulatorBits
+	t.Logf("CIC full register %d bits, FIR accumulator %d bits", full, acc)
+	if full < 62 || acc < 57 {
+		t.Fatalf("the case needs a CIC register of 62 bits or more (got %d) and an accumulator of 57 or more (got %d)", full, acc)
+	}
+	t.Log(passes(t, c, w, 4, 4000))
+}
+
 // The testbench must fail, naming the signal, the stage and the sample, on
 // one flipped expected sample; name a missing vector file; and catch a
 // model that ignores in_valid (the idle cycles carry junk data).
 func TestTestbenchFails(t *testing.T) {
 	needIverilog(t)
-	c, w := designed(t, "cic3m1r4 > hb > fir2", 1e6, true, 10, 16)
+	c, w := designed(t, designedCase{"cic3m1r4 > hb > fir2", 0.2, true, 10, 16})
 	rng := rand.New(rand.NewPCG(9, 9))
 	sig := stimulus(c, w, rng, 400)
 
