@@ -162,7 +162,7 @@ func checkCIC(s *stage, st fixed.Stage, sw *fixed.StageWidths) error {
 		return fmt.Errorf("the register plan is for N = %d, M = %d, R = %d; the stage is N = %d, M = %d, R = %d (N and M at least 1)", p.N, p.M, p.R, st.N, st.M, st.R)
 	}
 	if p.N > 32 || p.M > 64 {
-		return fmt.Errorf("N = %d, M = %d: at most N = 32 and M = 64 are written", p.N, p.M)
+		return fmt.Errorf("order N = %d, delay M = %d: at most N = 32 and M = 64 are written", p.N, p.M)
 	}
 	if p.InputBits != s.in || p.OutputBits != sw.OutputBits {
 		return fmt.Errorf("the register plan's words (%d bits in, %d out) differ from the stage's (%d in, %d out)", p.InputBits, p.OutputBits, s.in, sw.OutputBits)
