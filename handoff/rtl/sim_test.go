@@ -347,9 +347,14 @@ func inputLen(c fixed.Cascade, w *fixed.Widths, maxIn int) int {
 // passes runs one chain through iverilog and requires PASS.
 func passes(t *testing.T, c fixed.Cascade, w *fixed.Widths, seed uint64, maxIn int) string {
 	t.Helper()
+	return passesWith(t, c, w, rtl.Options{}, seed, maxIn)
+}
+
+func passesWith(t *testing.T, c fixed.Cascade, w *fixed.Widths, o rtl.Options, seed uint64, maxIn int) string {
+	t.Helper()
 	dir := t.TempDir()
 	rng := rand.New(rand.NewPCG(seed, 77))
-	layout(t, dir, c, w, rtl.Options{}, stimulus(c, w, rng, inputLen(c, w, maxIn)))
+	layout(t, dir, c, w, o, stimulus(c, w, rng, inputLen(c, w, maxIn)))
 	out := simulate(t, dir, false)
 	if v := verdict(out); !strings.HasPrefix(v, "PASS") {
 		t.Fatalf("the testbench did not pass:\n%s", out)
@@ -525,6 +530,29 @@ func TestWideChainBitExact(t *testing.T) {
 	t.Log(passes(t, c, w, 4, 4000))
 }
 
+// One- and two-tap FIRs (no delay line; one folded pair), an R = 1 CIC,
+// one input every clock (MaxIdle < 0), a long idle pattern, and a prefix
+// of our own.
+func TestSmallStagesAndOptions(t *testing.T) {
+	needIverilog(t)
+	rate := 1e6
+	c := fixed.Cascade{InputRate: rate, Complex: true, Passband: 1e3, Stages: []fixed.Stage{
+		{R: 1, Taps: []float64{0.75}, Bands: looseBands(rate)},
+		{CIC: true, N: 2, M: 1, R: 1},
+		{R: 2, Taps: []float64{0.5, 0.5}, Bands: looseBands(rate)},
+	}}
+	w, err := fixed.Plan(c, fixed.Words{InputBits: 8, OutputBits: 10, CoefBits: 8}, fixed.Settings{})
+	if err != nil {
+		t.Fatal(err)
+	}
+	for _, o := range []rtl.Options{{Prefix: "rx_a", MaxIdle: -1}, {Prefix: "B2", MaxIdle: 17}} {
+		t.Run(o.Prefix, func(t *testing.T) {
+			t.Parallel()
+			t.Log(passesWith(t, c, w, o, 5, 600))
+		})
+	}
+}
+
 // The testbench must fail, naming the signal, the stage and the sample, on
 // one flipped expected sample; name a missing vector file; and catch a
 // model that ignores in_valid (the idle cycles carry junk data).
@@ -576,6 +604,38 @@ func TestTestbenchFails(t *testing.T) {
 		out := simulate(t, dir, false)
 		if v := verdict(out); !strings.HasPrefix(v, "FAIL: signal step_neg, output") || !strings.Contains(v, "expected no more samples") {
 			t.Errorf("got %q, want a FAIL for an output beyond the file\n%s", v, out)
+		}
+	})
+	t.Run("malformed", func(t *testing.T) {
+		t.Parallel()
+		dir := t.TempDir()
+		layout(t, dir, c, w, rtl.Options{}, sig)
+		f := filepath.Join(dir, "vectors", "step_pos.in.txt")
+		b, err := os.ReadFile(f)
+		must(t, err)
+		lines := strings.Split(string(b), "\n")
+		lines[5] = "12 x7"
+		must(t, os.WriteFile(f, []byte(strings.Join(lines, "\n")), 0o644))
+		out := simulate(t, dir, false)
+		want := `FAIL: signal step_pos, input (vectors/step_pos.in.txt): line 6 is not two integers "I Q"`
+		if v := verdict(out); v != want {
+			t.Errorf("got %q\nwant %q\n%s", v, want, out)
+		}
+	})
+	t.Run("out_of_range", func(t *testing.T) {
+		t.Parallel()
+		dir := t.TempDir()
+		layout(t, dir, c, w, rtl.Options{}, sig)
+		f := filepath.Join(dir, "vectors", "tone.in.txt")
+		b, err := os.ReadFile(f)
+		must(t, err)
+		lines := strings.Split(string(b), "\n")
+		lines[3] = "0 512" // the input word is 10 bits: at most 511
+		must(t, os.WriteFile(f, []byte(strings.Join(lines, "\n")), 0o644))
+		out := simulate(t, dir, false)
+		want := "FAIL: signal tone, input (vectors/tone.in.txt), sample 3: 0 512 lies outside the 10-bit input word"
+		if v := verdict(out); v != want {
+			t.Errorf("got %q\nwant %q\n%s", v, want, out)
 		}
 	})
 	t.Run("ignores_valid", func(t *testing.T) {
