@@ -82,6 +82,8 @@ func ExampleFiles() {
 	// headers/stepdown_chain.h
 	// headers/stepdown_chain_pkg.vhd
 	// headers/stepdown_chain.svh
+	// rtl/stepdown_chain.v
+	// rtl/stepdown_tb.v
 	// vectors/README.txt
 	// and 24 vector files: 6 stimuli, each with its input, 2 stages' outputs and the chain's
 }

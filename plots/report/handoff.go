@@ -4,7 +4,9 @@ import (
 	"fmt"
 
 	"github.com/stepdown-dsp/stepdown/chain/fixed"
+	"github.com/stepdown-dsp/stepdown/handoff"
 	"github.com/stepdown-dsp/stepdown/handoff/headers"
+	"github.com/stepdown-dsp/stepdown/handoff/rtl"
 	"github.com/stepdown-dsp/stepdown/handoff/vectors"
 )
 
@@ -22,9 +24,10 @@ type handoffPlan struct {
 // lengths planned by AddWordLengths): the C, VHDL and Verilog
 // declarations of its coefficients and widths under headers/ (package
 // handoff/headers) and the test vectors under vectors/ (package
-// handoff/vectors). A chain without a word-length plan gets none, and one
-// whose registers are too wide for the integer model gets no vectors; the
-// second result then says why.
+// handoff/vectors), and a Verilog reference model with its self-checking
+// testbench under rtl/ (package handoff/rtl). A chain without a word-length plan gets none, and one
+// whose registers are too wide for the integer model gets no vectors or
+// model; the second result then says why.
 func HandoffFiles(c Chain) ([]File, string) {
 	if c.plan == nil {
 		if c.WordLengthsError != "" {
@@ -41,5 +44,14 @@ func HandoffFiles(c Chain) ([]File, string) {
 	if err != nil {
 		return files, fmt.Sprintf("no test vectors: %v", err)
 	}
+	model, err := rtl.Model(p.cascade, p.widths, rtl.Options{})
+	if err != nil {
+		return append(files, v.Files()...), fmt.Sprintf("no reference model: %v", err)
+	}
+	tb, err := rtl.Testbench(p.cascade, p.widths, rtl.Options{}, vectors.Signals)
+	if err != nil {
+		return append(files, v.Files()...), fmt.Sprintf("no testbench: %v", err)
+	}
+	files = append(files, handoff.File{Name: "rtl/stepdown_chain.v", Data: model}, handoff.File{Name: "rtl/stepdown_tb.v", Data: tb})
 	return append(files, v.Files()...), ""
 }
