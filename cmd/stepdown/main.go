@@ -169,7 +169,7 @@ func newApp(stdout, stderr io.Writer) *cli.App {
 			}
 			return cli.ShowAppHelp(c)
 		},
-		Commands: []*cli.Command{designCommand(), planCommand(), checkCommand(), sweepCommand()},
+		Commands: []*cli.Command{designCommand(), planCommand(), checkCommand(), simulateCommand(), sweepCommand()},
 	}
 	for _, c := range app.Commands {
 		c.OnUsageError = onUsage

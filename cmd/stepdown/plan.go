@@ -218,21 +218,9 @@ func emptyFront(res *optimize.Result, dir string) error {
 }
 
 func runCheck(c *cli.Context) error {
-	notation := c.String("chain")
-	if notation == "" {
-		return usagef("--chain: missing; name the chain in the notation plan prints, e.g. \"cic4m1r8 > hb > fir4\"")
-	}
-	plan, err := chain.ParseNotation(notation)
+	plan, err := parseChainFlag(c)
 	if err != nil {
-		var ne *chain.NotationError
-		if errors.As(err, &ne) {
-			found := "the end"
-			if ne.Pos < len(ne.Input) {
-				found = fmt.Sprintf("%q", units.Clip(ne.Input[ne.Pos:], 12))
-			}
-			return usagef("--chain %q: at byte %d: expected %s, found %s", clip(notation), ne.Pos, ne.Expected, found)
-		}
-		return usagef("--chain %q: %s", clip(notation), specfile.InFileTerms(err.Error()))
+		return err
 	}
 	if err := checkSearchFlags(c); err != nil {
 		return err
@@ -242,40 +230,14 @@ func runCheck(c *cli.Context) error {
 		return err
 	}
 	defer j.out.Discard()
-	// The product is checked stage by stage against D, so that it cannot
-	// overflow: every factor is at least 2.
-	want := j.spec.Chain.Decimation()
-	d := 1
-	for i, p := range plan {
-		if d > want/p.Factor {
-			return usagef("--chain %q: its factors multiply to more than input_rate/output_rate = %d (the first %d of its %d stages already do)", clip(notation), want, i+1, len(plan))
-		}
-		d *= p.Factor
-	}
-	if d != want {
-		return usagef("--chain %q: its factors multiply to %d, but input_rate/output_rate = %d", clip(notation), d, want)
-	}
 	set := j.spec.SearchSettings()
-	// The chain is designed and measured exactly as plan's search does
-	// (optimize.Check), so the notation plan prints gives the same figures.
-	cand, why, err := optimize.Check(c.Context, j.spec.Chain, plan, set)
+	cand, why, err := j.designNamed(plan, set)
 	switch why {
 	case optimize.ReasonOverRegisterBits, optimize.ReasonOverCICFactor, optimize.ReasonOverMultipliers, optimize.ReasonOverMemory:
 		j.limitNote = "beyond the fabric's limits: " + why.Text()
 	}
-	if c.Context.Err() != nil {
-		return fmt.Errorf("interrupted; %s left as it was", clip(j.out.Dir()))
-	}
 	if err != nil {
-		var pe *chain.PlanError
-		if errors.As(err, &pe) {
-			where := ""
-			if pe.Stage >= 0 && pe.Stage < len(plan) {
-				where = fmt.Sprintf("stage %d (%s): ", pe.Stage+1, chain.Notation(plan[pe.Stage:pe.Stage+1]))
-			}
-			return usagef("--chain %q: %s%s", clip(notation), where, specfile.InFileTerms(pe.Rule))
-		}
-		return fmt.Errorf("check: %s", specfile.InFileTerms(err.Error()))
+		return err
 	}
 	res := &optimize.Result{
 		Candidates: 1, Designed: 1, Dropped: map[optimize.Reason]int{},
@@ -289,6 +251,65 @@ func runCheck(c *cli.Context) error {
 	// finish states the verdict once the report has judged the chain
 	// (report.CheckReason): on its rounded taps when they are planned.
 	return j.finish(c.Context, "check", res)
+}
+
+// parseChainFlag parses --chain, which check needs and simulate takes.
+func parseChainFlag(c *cli.Context) ([]chain.StagePlan, error) {
+	notation := c.String("chain")
+	if notation == "" {
+		return nil, usagef("--chain: missing; name the chain in the notation plan prints, e.g. \"cic4m1r8 > hb > fir4\"")
+	}
+	plan, err := chain.ParseNotation(notation)
+	if err != nil {
+		var ne *chain.NotationError
+		if errors.As(err, &ne) {
+			found := "the end"
+			if ne.Pos < len(ne.Input) {
+				found = fmt.Sprintf("%q", units.Clip(ne.Input[ne.Pos:], 12))
+			}
+			return nil, usagef("--chain %q: at byte %d: expected %s, found %s", clip(notation), ne.Pos, ne.Expected, found)
+		}
+		return nil, usagef("--chain %q: %s", clip(notation), specfile.InFileTerms(err.Error()))
+	}
+	return plan, nil
+}
+
+// designNamed designs and measures the chain named by --chain (plan)
+// exactly as plan's search does (optimize.Check), so that the notation
+// plan prints gives the same figures. Its factors must multiply to the
+// spec's ratio. The Reason says why the search would drop the chain, if
+// it would.
+func (j *job) designNamed(plan []chain.StagePlan, set optimize.Settings) (optimize.Candidate, optimize.Reason, error) {
+	notation := j.c.String("chain")
+	// The product is checked stage by stage against D, so that it cannot
+	// overflow: every factor is at least 2.
+	want := j.spec.Chain.Decimation()
+	d := 1
+	for i, p := range plan {
+		if d > want/p.Factor {
+			return optimize.Candidate{}, "", usagef("--chain %q: its factors multiply to more than input_rate/output_rate = %d (the first %d of its %d stages already do)", clip(notation), want, i+1, len(plan))
+		}
+		d *= p.Factor
+	}
+	if d != want {
+		return optimize.Candidate{}, "", usagef("--chain %q: its factors multiply to %d, but input_rate/output_rate = %d", clip(notation), d, want)
+	}
+	cand, why, err := optimize.Check(j.c.Context, j.spec.Chain, plan, set)
+	if j.c.Context.Err() != nil {
+		return cand, why, fmt.Errorf("interrupted; %s left as it was", clip(j.out.Dir()))
+	}
+	if err != nil {
+		var pe *chain.PlanError
+		if errors.As(err, &pe) {
+			where := ""
+			if pe.Stage >= 0 && pe.Stage < len(plan) {
+				where = fmt.Sprintf("stage %d (%s): ", pe.Stage+1, chain.Notation(plan[pe.Stage:pe.Stage+1]))
+			}
+			return cand, why, usagef("--chain %q: %s%s", clip(notation), where, specfile.InFileTerms(pe.Rule))
+		}
+		return cand, why, fmt.Errorf("check: %s", specfile.InFileTerms(err.Error()))
+	}
+	return cand, why, nil
 }
 
 // planFront is the front check compares its chain with: that of the

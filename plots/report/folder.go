@@ -69,7 +69,7 @@ var (
 // OpenFolder checks the output folder dir before any work, and creates the
 // temporary folder beside it; role is what messages call the folder
 // ("output folder" when empty). The folder need not exist; if it does, it
-// must be empty or hold a previous output (a report.json), and it will be
+// must be empty or hold a previous output (one of Markers), and it will be
 // replaced as a whole by Commit.
 func OpenFolder(dir, role string) (*Folder, error) {
 	if role == "" {
@@ -103,10 +103,8 @@ func OpenFolder(dir, role string) (*Folder, error) {
 		if err != nil {
 			return nil, failure("%s %q: cannot be read: %v", role, shown, unwrapPath(err))
 		}
-		if len(entries) > 0 {
-			if _, err := os.Stat(filepath.Join(abs, "report.json")); err != nil {
-				return nil, misuse("%s %q: exists and is not a stepdown output folder (no report.json); it would be replaced as a whole, so choose another folder", role, shown)
-			}
+		if len(entries) > 0 && !hasMarker(abs) {
+			return nil, misuse("%s %q: exists and is not a stepdown output folder (no report.json or simulate.json); it would be replaced as a whole, so choose another folder", role, shown)
 		}
 		// The folder will be replaced and the previous output removed:
 		// make sure both can be done before the search.
@@ -125,6 +123,20 @@ func OpenFolder(dir, role string) (*Folder, error) {
 		return nil, failure("%s %q: %v", role, shown, unwrapPath(err))
 	}
 	return o, nil
+}
+
+// Markers are the files one of which every stepdown output folder holds:
+// report.json (plan, check, sweep) or simulate.json (simulate).
+var Markers = []string{"report.json", "simulate.json"}
+
+// hasMarker reports whether the folder dir holds one of Markers.
+func hasMarker(dir string) bool {
+	for _, m := range Markers {
+		if _, err := os.Stat(filepath.Join(dir, m)); err == nil {
+			return true
+		}
+	}
+	return false
 }
 
 // checkRemovable reports whether every folder in the tree at dir lets a file

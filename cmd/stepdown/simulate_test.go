@@ -1,0 +1,141 @@
+package main
+
+import (
+	"encoding/json"
+	"os"
+	"path/filepath"
+	"strconv"
+	"strings"
+	"testing"
+
+	"github.com/stepdown-dsp/stepdown/signalio"
+)
+
+// simulate on a recording of check's impulse stimulus gives, sample for
+// sample, check's vectors/impulse.out.txt: two commands, one chain, the
+// same bit-true output (the vectors are proven against a math/big
+// re-implementation and under Icarus Verilog). The output WAV holds the
+// 24-bit codes moved up into 24-bit samples (no shift), read back by
+// signalio (checked against SciPy's reader).
+func TestSimulateAgreesWithVectors(t *testing.T) {
+	dir := t.TempDir()
+	const notation = "cic5m1r16 > fir4"
+	if r := runBinary(t, dir, nil, "check", "--chain", notation, "--out", "checked", "--quiet"); r.code != 0 {
+		t.Fatalf("check: exit %d: %s", r.code, r.stderr)
+	}
+	in := readCodes(t, filepath.Join(dir, "checked", "vectors", "impulse.in.txt"))
+	want := readCodes(t, filepath.Join(dir, "checked", "vectors", "impulse.out.txt"))
+	sig := &signalio.Signal{RateHz: 122.88e6, Bits: 16, Samples: in}
+	wav, err := signalio.Marshal(sig, signalio.Format{Kind: signalio.WAV, Bits: 16, Channels: 2})
+	must(t, err)
+	must(t, os.WriteFile(filepath.Join(dir, "impulse.wav"), wav, 0o644))
+	r := runBinary(t, dir, nil, "simulate", "--input", "impulse.wav", "--chain", notation, "--out", "sim", "--json")
+	if r.code != 0 {
+		t.Fatalf("simulate: exit %d: %s", r.code, r.stderr)
+	}
+	var rep map[string]any
+	must(t, json.Unmarshal([]byte(r.stdout), &rep))
+	if rep["schema"] != "stepdown.simulate/1" || rep["chain"] != notation || rep["chain_source"] != "named" {
+		t.Errorf("simulate.json: schema %v, chain %v, source %v", rep["schema"], rep["chain"], rep["chain_source"])
+	}
+	got, _, err := signalio.ReadFile(filepath.Join(dir, "sim", "output.wav"), signalio.Options{})
+	must(t, err)
+	if got.Bits != 24 || got.RateHz != 1.92e6 || len(got.Samples) != 2 {
+		t.Fatalf("output.wav: %d bits, %v Hz, %d channels", got.Bits, got.RateHz, len(got.Samples))
+	}
+	for p := range want {
+		if len(got.Samples[p]) != len(want[p]) {
+			t.Fatalf("path %d: %d samples, vectors %d", p, len(got.Samples[p]), len(want[p]))
+		}
+		for i := range want[p] {
+			if got.Samples[p][i] != want[p][i] {
+				t.Fatalf("path %d sample %d: simulate %d, vectors %d", p, i, got.Samples[p][i], want[p][i])
+			}
+		}
+	}
+	for _, f := range []string{"simulate.json", "output_float.csv", "spectra.png"} {
+		if fi, err := os.Stat(filepath.Join(dir, "sim", f)); err != nil || fi.Size() == 0 {
+			t.Errorf("%s: missing or empty", f)
+		}
+	}
+}
+
+// readCodes reads a vector file: one sample a line, one column per path.
+func readCodes(t *testing.T, path string) [][]int64 {
+	t.Helper()
+	b, err := os.ReadFile(path)
+	must(t, err)
+	var out [][]int64
+	for _, line := range strings.Split(strings.TrimSpace(string(b)), "\n") {
+		f := strings.Fields(line)
+		if out == nil {
+			out = make([][]int64, len(f))
+		}
+		for p := range f {
+			v, err := strconv.ParseInt(f[p], 10, 64)
+			must(t, err)
+			out[p] = append(out[p], v)
+		}
+	}
+	return out
+}
+
+// Bad recordings get one line naming the file and the rule, exit 2, and
+// leave nothing behind.
+func TestSimulateBadInputs(t *testing.T) {
+	dir := t.TempDir()
+	good := &signalio.Signal{RateHz: 122.88e6, Bits: 16, Samples: [][]int64{make([]int64, 4096), make([]int64, 4096)}}
+	wav, err := signalio.Marshal(good, signalio.Format{Kind: signalio.WAV, Bits: 16, Channels: 2})
+	must(t, err)
+	mono := &signalio.Signal{RateHz: 98.304e6, Bits: 16, Samples: [][]int64{make([]int64, 4096), make([]int64, 4096)}}
+	stereoReal, err := signalio.Marshal(mono, signalio.Format{Kind: signalio.WAV, Bits: 16, Channels: 2})
+	must(t, err)
+	wrongRate := &signalio.Signal{RateHz: 48000, Bits: 16, Samples: [][]int64{make([]int64, 4096)}}
+	slow, err := signalio.Marshal(wrongRate, signalio.Format{Kind: signalio.WAV, Bits: 16, Channels: 1})
+	must(t, err)
+	must(t, os.WriteFile(filepath.Join(dir, "spec.toml"), []byte(goodSpec), 0o644))
+	files := map[string][]byte{
+		"truncated.wav": wav[:len(wav)-1000],
+		"text.wav":      []byte("I,Q\n1,2\n"),
+		"slow.wav":      slow,
+		"stereo.wav":    stereoReal,
+		"capture.raw":   make([]byte, 4096),
+		"odd.raw":       make([]byte, 4095),
+		"bad.csv":       []byte("1\n2\nthree\n"),
+	}
+	for name, b := range files {
+		must(t, os.WriteFile(filepath.Join(dir, name), b, 0o644))
+	}
+	for _, c := range []struct {
+		args []string
+		want string
+	}{
+		{[]string{"--input", "truncated.wav"}, "truncated"},
+		{[]string{"--input", "text.wav"}, "text.wav"},
+		{[]string{"--input", "slow.wav"}, "input_rate"},
+		{[]string{"spec.toml", "--input", "stereo.wav"}, "signal"},
+		{[]string{"--input", "capture.raw"}, "int16 or int32"},
+		{[]string{"--input", "odd.raw", "--format", "int16"}, "odd.raw"},
+		{[]string{"--input", "bad.csv"}, "three"},
+		{[]string{"--input", "missing.wav"}, "missing.wav"},
+		{[]string{}, "--input"},
+		{[]string{"--input", "capture.raw", "--format", "int24"}, "--format"},
+		{[]string{"--input", "capture.raw", "--format", "int16", "--rate", "fast"}, "--rate"},
+	} {
+		args := append([]string{"simulate", "--out", "out"}, c.args...)
+		r := runBinary(t, dir, nil, args...)
+		lines := strings.Split(strings.TrimSpace(r.stderr), "\n")
+		if r.code != 2 || len(lines) != 1 || !strings.Contains(r.stderr, c.want) || strings.Contains(r.stderr, "panic") {
+			t.Errorf("%v: exit %d, stderr %q; want exit 2 and one line naming %q", c.args, r.code, r.stderr, c.want)
+		}
+		if _, err := os.Stat(filepath.Join(dir, "out")); err == nil {
+			t.Fatalf("%v: wrote an output folder", c.args)
+		}
+	}
+	entries, _ := os.ReadDir(dir)
+	for _, e := range entries {
+		if strings.HasPrefix(e.Name(), ".stepdown-") {
+			t.Errorf("left behind: %s", e.Name())
+		}
+	}
+}

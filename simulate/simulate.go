@@ -1,0 +1,128 @@
+package simulate
+
+import (
+	"context"
+	"fmt"
+	"math"
+
+	"github.com/stepdown-dsp/stepdown/chain"
+	"github.com/stepdown-dsp/stepdown/chain/fixed"
+)
+
+// Input is a recorded signal as integer codes.
+type Input struct {
+	// RateHz is the signal's sample rate; it must be the chain's input
+	// rate.
+	RateHz float64
+	// Bits is the width of the codes (two's complement, a code w standing
+	// for w / 2^(Bits-1) of full scale), 2 to 32.
+	Bits int
+	// Paths holds one slice of codes for a real signal, I then Q for a
+	// complex one, of equal length.
+	Paths [][]int64
+}
+
+// Result is a signal run through a chain.
+type Result struct {
+	InputRateHz, OutputRateHz float64
+	// InputBits and OutputBits are the chain's words; In holds the input
+	// codes as the chain takes them (in its input word).
+	InputBits, OutputBits int
+	In                    [][]int64
+	// Rescaled says the input codes were moved to the chain's input word
+	// (a wider recording rounded to nearest, halves away from zero, and
+	// saturated, as an ADC of that width would; a narrower one shifted up
+	// exactly); Clipped counts the samples that saturated doing so.
+	Rescaled bool
+	Clipped  int
+	// Out holds the bit-true output codes (OutputBits wide) per path;
+	// Float the float chain's output in fractions of full scale, the same
+	// structure and gains with unrounded taps (fixed.RunCodes).
+	Out   [][]int64
+	Float [][]float64
+	// Widths is the word-length plan the run used.
+	Widths *fixed.Widths
+}
+
+// MaxSamples caps the input per path (2^24 samples: the codes, the float
+// run and the outputs stay within a few hundred MB).
+const MaxSamples = 1 << 24
+
+// Run plans the word lengths of the designed chain c for spec (the same
+// plan as report.json's: fixed.PlanChainContext with settings s) and runs
+// the input through its integer and float data paths. A complex chain
+// takes one or two paths (a real recording is run as I with Q zero), a real
+// chain one. ctx stops it between blocks.
+func Run(ctx context.Context, spec chain.Spec, c *chain.Chain, s fixed.Settings, in Input) (*Result, error) {
+	if c == nil || !c.Designed {
+		return nil, fmt.Errorf("simulate: the chain has no designed taps")
+	}
+	if len(in.Paths) == 0 || len(in.Paths) > 2 || len(in.Paths[0]) == 0 {
+		return nil, fmt.Errorf("simulate: the input has no samples")
+	}
+	if len(in.Paths) == 2 && !c.Complex {
+		return nil, fmt.Errorf("simulate: the input has two channels (I/Q) but the spec's signal is real; set signal = \"complex\" or give one channel")
+	}
+	if len(in.Paths) == 2 && len(in.Paths[1]) != len(in.Paths[0]) {
+		return nil, fmt.Errorf("simulate: the I and Q channels differ in length (%d and %d samples)", len(in.Paths[0]), len(in.Paths[1]))
+	}
+	if n := len(in.Paths[0]); n > MaxSamples {
+		return nil, fmt.Errorf("simulate: the input has %d samples per channel; at most %d are run", n, MaxSamples)
+	}
+	if in.Bits < 2 || in.Bits > 32 {
+		return nil, fmt.Errorf("simulate: %d-bit input codes: the width must lie in [2, 32] bits", in.Bits)
+	}
+	if r := c.InputRate; !(math.Abs(in.RateHz-r) <= 1e-9*r) {
+		return nil, fmt.Errorf("simulate: the input's sample rate is %.10g Hz, the spec's input_rate %.10g Hz", in.RateHz, r)
+	}
+	cas, _, err := fixed.FromChain(spec, c)
+	if err != nil {
+		return nil, err
+	}
+	w, _, err := fixed.PlanChainContext(ctx, spec, c, s)
+	if err != nil {
+		return nil, err
+	}
+	res := &Result{
+		InputRateHz: c.InputRate, OutputRateHz: c.OutputRate(),
+		InputBits: w.InputBits, OutputBits: w.Stages[len(w.Stages)-1].OutputBits,
+		Rescaled: in.Bits != w.InputBits, Widths: w,
+	}
+	paths := in.Paths
+	if c.Complex && len(paths) == 1 {
+		paths = [][]int64{paths[0], make([]int64, len(paths[0]))}
+	}
+	for _, p := range paths {
+		x, clipped := toWord(p, in.Bits, w.InputBits)
+		res.Clipped += clipped
+		res.In = append(res.In, x)
+		codes, fl, err := fixed.RunCodes(ctx, cas, w, x)
+		if err != nil {
+			return nil, err
+		}
+		res.Out, res.Float = append(res.Out, codes), append(res.Float, fl)
+	}
+	return res, nil
+}
+
+// toWord moves codes of from bits to the chain's to-bit input word: exactly
+// when the word is as wide or wider, else as fixed.ADC rounds and saturates
+// the fractions of full scale (a power-of-two scaling, exact in float64).
+func toWord(x []int64, from, to int) ([]int64, int) {
+	if from == to {
+		return x, 0
+	}
+	out := make([]int64, len(x))
+	if to > from {
+		for i, v := range x {
+			out[i] = v << uint(to-from)
+		}
+		return out, 0
+	}
+	f := make([]float64, len(x))
+	lsb := math.Ldexp(1, -(from - 1))
+	for i, v := range x {
+		f[i] = float64(v) * lsb
+	}
+	return out, fixed.ADC(out, f, to)
+}
