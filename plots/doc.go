@@ -3,7 +3,10 @@
 // cascade's response with its alias bands shaded (Response), each
 // stage's share of the chain's cost (Stages), and how the recommended
 // chain's figures move as one quantity of the specification is swept
-// (Sweep).
+// (Sweep), and a recording's input and output spectra through a chain
+// (Spectra, for stepdown simulate). AliasShading gives the Response and
+// Spectra figures the input-frequency bands that fold onto the protected
+// band, merged where a figure could not tell them apart.
 //
 // The front is a front on three axes, multiplies per output, memory and
 // latency, drawn on the first two: the chains no other beats on
@@ -20,7 +23,7 @@
 // above the data when no place is free.
 //
 // The package takes its own plain input types (FrontData, ResponseData,
-// StagesData, SweepData) so that it depends on no other stepdown package;
+// StagesData, SweepData, SpectraData) so that it depends on no other stepdown package;
 // the command line converts its results into them. Every figure function
 // validates its input and returns an error naming the offending field and
 // value, never a panic, and never draws NaN. Each returns a *Figure: one
