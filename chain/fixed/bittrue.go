@@ -205,8 +205,8 @@ func BitTrueContext(ctx context.Context, c Cascade, w *Widths, sig Signal) (BitT
 		return BitTrueResult{}, fmt.Errorf("fixed: signal AliasLevel = %g dBFS, NoiseDBFS = %g: levels must be below 0 dBFS", sig.AliasLevel, sig.NoiseDBFS)
 	}
 	for i, sw := range w.Stages {
-		if sw.CIC && sw.Pruning.FullBits > 63 {
-			return BitTrueResult{}, fmt.Errorf("fixed: stage %d: the CIC's %d-bit registers are beyond the bit-true run's 63 bits", i+1, sw.Pruning.FullBits)
+		if sw.CIC && sw.Pruning.FullBits > MaxModelBits {
+			return BitTrueResult{}, fmt.Errorf("fixed: stage %d: the CIC's %d-bit registers are beyond the bit-true run's %d bits", i+1, sw.Pruning.FullBits, MaxModelBits)
 		}
 		// The float model runs a CIC as its equivalent filter of
 		// N (RM - 1) + 1 taps, with as long a history: bounded so that
@@ -538,7 +538,7 @@ func newChainState(c Cascade, w *Widths) *chainState {
 	for i, st := range c.Stages {
 		sw := &w.Stages[i]
 		if st.CIC {
-			cs.ints = append(cs.ints, newCICState(sw.Pruning))
+			cs.ints = append(cs.ints, newCICFilter(sw.Pruning))
 			cs.floats = append(cs.floats, newFIRFloat(cicTaps(st.N, st.R*st.M, math.Ldexp(1, -(sw.Pruning.FullBits-sw.Pruning.InputBits))), st.R))
 		} else {
 			cs.ints = append(cs.ints, newFIRInt(sw.Coefficients.Ints, st.R, sw.OutputShift, sw.OutputBits))

@@ -115,6 +115,10 @@
 // bounded at 2^25 input samples (2^22 with the default window, which
 // shrinks to as few as 256 output samples to stay within it).
 //
+// The integer chain runs CIC registers of up to 63 bits in int64 and wider
+// ones, up to MaxModelBits (127), in two's-complement 128-bit arithmetic
+// with the same truncations and wraps; Model exposes it.
+//
 // PlanChainContext, BitTrueContext and EvaluateContext take a context,
 // checked before the plan, before every measurement of the quantised chain
 // and every bit the "auto" widths add, and between the bit-true run's
@@ -131,7 +135,7 @@
 // error the SNR measures. Every figure stays finite.
 //
 // Evaluate returns an error only when the chain cannot be planned. When the
-// bit-true run cannot be made (a CIC register over 63 bits), the Result
+// bit-true run cannot be made (a CIC register over MaxModelBits, 127), the Result
 // still carries the widths and the quantised chain's figures, and
 // Result.BitTrueErr says why; Result.Report then gives the quantised
 // figures, the DC gains and every stage's widths, with the bit-true figures

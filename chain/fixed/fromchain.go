@@ -99,7 +99,7 @@ type Result struct {
 	// set.
 	BitTrue BitTrueResult
 	// BitTrueErr says why the bit-true run could not be made (e.g. a CIC
-	// register over 63 bits); Widths and Quantised are valid all the same.
+	// register over MaxModelBits); Widths and Quantised are valid all the same.
 	BitTrueErr error
 	// UnityGainAsked records Settings.UnityGain, so that the report can say
 	// when the correction had no stage to go into.

@@ -218,15 +218,15 @@ func TestPruningMatchesChainPackage(t *testing.T) {
 }
 
 func TestEvaluateWithoutBitTrue(t *testing.T) {
-	// A CIC whose full register is beyond the bit-true run's 63 bits
-	// (Hogenauer 1981: 16 + ceil(6 log2 1024) = 76 bits, plus the guard bit
-	// a power-of-two (RM)^N needs): Evaluate still returns the widths and the
+	// A CIC whose full register is beyond the bit-true run's 127 bits
+	// (Hogenauer 1981: 24 + ceil(10 log2 2048) = 134 bits, plus the guard
+	// bit a power-of-two (RM)^N needs): Evaluate still returns the widths and the
 	// quantised figures, says why there is no bit-true run, and the report
 	// keeps the rest: bittrue_error says why, bittrue_snr_valid is false and
 	// the run's own figures (bittrue_alias_valid among them) are left out
 	// (Result.Report).
-	spec := chain.Spec{InputRate: 122.88e6, OutputRate: 30e3, Passband: 12e3, RippleDB: 0.1, RejectionDB: 100}
-	plan, err := chain.ParseNotation("cic6m1r1024 > fir4")
+	spec := chain.Spec{InputRate: 122.88e6, OutputRate: 30e3, Passband: 12e3, RippleDB: 0.1, RejectionDB: 100, InputBits: 24}
+	plan, err := chain.ParseNotation("cic10m1r2048 > fir2")
 	if err != nil {
 		t.Fatal(err)
 	}
@@ -238,10 +238,10 @@ func TestEvaluateWithoutBitTrue(t *testing.T) {
 	if err != nil {
 		t.Fatal(err)
 	}
-	if res.BitTrueErr == nil || !strings.Contains(res.BitTrueErr.Error(), "63 bits") {
-		t.Fatalf("BitTrueErr %v, want the 63-bit limit", res.BitTrueErr)
+	if res.BitTrueErr == nil || !strings.Contains(res.BitTrueErr.Error(), "127 bits") {
+		t.Fatalf("BitTrueErr %v, want the 127-bit limit", res.BitTrueErr)
 	}
-	if res.Widths == nil || res.Widths.Stages[0].AccumulatorBits != 77 || !(res.Quantised.AliasRejectionDB > 0) {
+	if res.Widths == nil || res.Widths.Stages[0].AccumulatorBits != 135 || !(res.Quantised.AliasRejectionDB > 0) {
 		t.Fatalf("widths %+v, quantised %+v", res.Widths, res.Quantised)
 	}
 	b, err := json.Marshal(res.Report(false))
@@ -261,7 +261,7 @@ func TestEvaluateWithoutBitTrue(t *testing.T) {
 		t.Errorf("bit-true figures not marked invalid: %s", b)
 	}
 	st := m["stages"].([]any)
-	if len(st) != 2 || st[0].(map[string]any)["accumulator_bits"].(float64) != 77 || st[1].(map[string]any)["coefficient_bits"] == nil {
+	if len(st) != 2 || st[0].(map[string]any)["accumulator_bits"].(float64) != 135 || st[1].(map[string]any)["coefficient_bits"] == nil {
 		t.Errorf("stage widths missing: %s", b)
 	}
 }

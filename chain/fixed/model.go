@@ -29,7 +29,7 @@ type Model struct {
 
 // NewModel returns the integer data path of c planned as w, in its reset
 // state (every register and delay line zero). It refuses a CIC whose full
-// register is wider than 63 bits, which the int64 arithmetic cannot hold.
+// register is wider than MaxModelBits (127).
 func NewModel(c Cascade, w *Widths) (*Model, error) {
 	if len(w.Stages) != len(c.Stages) || len(c.Stages) == 0 {
 		return nil, fmt.Errorf("fixed: model of %d stages with widths of %d", len(c.Stages), len(w.Stages))
@@ -38,10 +38,10 @@ func NewModel(c Cascade, w *Widths) (*Model, error) {
 	for i, st := range c.Stages {
 		sw := &w.Stages[i]
 		if st.CIC {
-			if sw.Pruning.FullBits > 63 {
-				return nil, fmt.Errorf("fixed: stage %d: the CIC's %d-bit registers are beyond the integer model's 63 bits", i+1, sw.Pruning.FullBits)
+			if sw.Pruning.FullBits > MaxModelBits {
+				return nil, fmt.Errorf("fixed: stage %d: the CIC's %d-bit registers are beyond the integer model's %d bits", i+1, sw.Pruning.FullBits, MaxModelBits)
 			}
-			m.stages = append(m.stages, newCICState(sw.Pruning))
+			m.stages = append(m.stages, newCICFilter(sw.Pruning))
 			continue
 		}
 		m.stages = append(m.stages, newFIRInt(sw.Coefficients.Ints, st.R, sw.OutputShift, sw.OutputBits))
@@ -75,7 +75,7 @@ func (m *Model) Run(x []int64) ([][]int64, error) {
 // returns the integer chain's output codes and the float chain's output in
 // fractions of full scale. ctx is checked between blocks; once it is done
 // RunCodes returns an error wrapping ctx.Err(). It refuses what BitTrue
-// refuses: a CIC register over 63 bits, a CIC float model over 2^22 taps,
+// refuses: a CIC register over MaxModelBits, a CIC float model over 2^22 taps,
 // and a code outside the input word.
 func RunCodes(ctx context.Context, c Cascade, w *Widths, x []int64) ([]int64, []float64, error) {
 	if _, err := NewModel(c, w); err != nil {

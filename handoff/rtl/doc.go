@@ -103,7 +103,8 @@
 //
 // # Limits
 //
-// Registers, accumulators and words up to MaxBits (63) bits, as fixed.Model
-// holds them in int64; up to MaxTaps taps per FIR; R up to 2^24; a CIC of
+// CIC registers up to MaxCICBits (127) bits, FIR accumulators and data
+// words up to MaxBits (63) bits, as fixed.Model holds them (int128 and
+// int64); up to MaxTaps taps per FIR; R up to 2^24; a CIC of
 // order up to 32 with M up to 64.
 package rtl

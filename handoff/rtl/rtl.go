@@ -26,13 +26,17 @@ type Options struct {
 }
 
 // Limits of the generator: beyond them the file would be unreasonably large
-// or the integer model that checks it (fixed.Model, int64) would not hold
-// the values.
+// or the integer model that checks it (fixed.Model) would not hold the
+// values.
 const (
 	// MaxTaps bounds an FIR stage's length.
 	MaxTaps = 1 << 16
-	// MaxBits bounds every register, accumulator and data word.
+	// MaxBits bounds every FIR accumulator and data word (int64 in
+	// fixed.Model).
 	MaxBits = 63
+	// MaxCICBits bounds a CIC's registers: fixed.MaxModelBits (127), which
+	// fixed.Model runs in 128-bit arithmetic.
+	MaxCICBits = fixed.MaxModelBits
 )
 
 func (o Options) prefix() (string, error) {
@@ -167,20 +171,20 @@ func checkCIC(s *stage, st fixed.Stage, sw *fixed.StageWidths) error {
 	if p.InputBits != s.in || p.OutputBits != sw.OutputBits {
 		return fmt.Errorf("the register plan's words (%d bits in, %d out) differ from the stage's (%d in, %d out)", p.InputBits, p.OutputBits, s.in, sw.OutputBits)
 	}
-	if p.FullBits > MaxBits {
-		return fmt.Errorf("the CIC's full register is %d bits; at most %d are written (the integer model that checks it holds 63)", p.FullBits, MaxBits)
+	if p.FullBits > MaxCICBits {
+		return fmt.Errorf("the CIC's full register is %d bits; at most %d are written (the integer model that checks it holds %d)", p.FullBits, MaxCICBits, MaxCICBits)
 	}
 	if len(p.Dropped) != 2*p.N+1 || len(p.RegisterBits) != 2*p.N {
 		return fmt.Errorf("the register plan has %d truncation points and %d registers; a CIC of order %d has %d and %d", len(p.Dropped), len(p.RegisterBits), p.N, 2*p.N+1, 2*p.N)
 	}
 	for j, d := range p.Dropped {
-		if d < 0 || d > MaxBits {
-			return fmt.Errorf("register %d drops %d LSBs: must lie in [0, %d]", j+1, d, MaxBits)
+		if d < 0 || d > MaxCICBits {
+			return fmt.Errorf("register %d drops %d LSBs: must lie in [0, %d]", j+1, d, MaxCICBits)
 		}
 	}
 	for j, b := range p.RegisterBits {
-		if b < 1 || b > MaxBits {
-			return fmt.Errorf("register %d is %d bits: must lie in [1, %d]", j+1, b, MaxBits)
+		if b < 1 || b > MaxCICBits {
+			return fmt.Errorf("register %d is %d bits: must lie in [1, %d]", j+1, b, MaxCICBits)
 		}
 	}
 	s.kind, s.p = "cic", p

@@ -76,7 +76,8 @@ func TestErrors(t *testing.T) {
 		f(&cc, &ww)
 		return cc, &ww
 	}
-	wide := fixed.Cascade{InputRate: 1e6, Passband: 10, Stages: []fixed.Stage{{CIC: true, N: 6, M: 2, R: 1 << 10}}}
+	// 24 + 10 log2(4096) = 144 bits, beyond the integer model's 127.
+	wide := fixed.Cascade{InputRate: 1e6, Passband: 10, Stages: []fixed.Stage{{CIC: true, N: 10, M: 1, R: 1 << 12}}}
 	wideW, err := fixed.Plan(wide, fixed.Words{InputBits: 24, OutputBits: 24}, fixed.Settings{})
 	if err != nil {
 		t.Fatal(err)
@@ -99,7 +100,7 @@ func TestErrors(t *testing.T) {
 		{"no signals", c, w, rtl.Options{}, []string{}, "0 signals"},
 		{"signal name", c, w, rtl.Options{}, []string{"../x"}, `signal name "../x"`},
 		{"duplicate", c, w, rtl.Options{}, []string{"x", "x"}, `"x" is listed twice`},
-		{"wide CIC", wide, wideW, rtl.Options{}, nil, "stage 1: the CIC's full register is 91 bits"},
+		{"wide CIC", wide, wideW, rtl.Options{}, nil, "stage 1: the CIC's full register is 145 bits"},
 	}
 	add := func(name, want string, f func(c *fixed.Cascade, w *fixed.Widths)) {
 		cc, ww := mut(f)

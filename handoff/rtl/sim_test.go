@@ -530,6 +530,35 @@ func TestWideChainBitExact(t *testing.T) {
 	t.Log(passes(t, c, w, 4, 4000))
 }
 
+// CICs whose registers pass 64 bits (fixed.Model runs them in 128-bit
+// arithmetic): order 10, R = 40, 20-bit input (about 74 bits), and, in the
+// long run (STEPDOWN_RTL=1; Icarus takes about a minute on it), order 10,
+// R = 1000, 24-bit input (about 124 bits), both bit-exact.
+func TestCICBeyond64BitsBitExact(t *testing.T) {
+	needIverilog(t)
+	rate := 1e6
+	cases := []struct{ n, r, in int }{{10, 40, 20}}
+	if os.Getenv("STEPDOWN_RTL") == "1" {
+		cases = append(cases, struct{ n, r, in int }{10, 1000, 24})
+	}
+	for _, tc := range cases {
+		c := fixed.Cascade{InputRate: rate, Passband: 10, Stages: []fixed.Stage{
+			{CIC: true, N: tc.n, M: 1, R: tc.r},
+			{R: 2, Taps: kaiserLowpass(9, 0.2, 6), Bands: looseBands(rate / float64(tc.r))},
+		}}
+		w, err := fixed.Plan(c, fixed.Words{InputBits: tc.in, OutputBits: 24, CoefBits: 16}, fixed.Settings{})
+		if err != nil {
+			t.Fatal(err)
+		}
+		full := w.Stages[0].Pruning.FullBits
+		if full <= 64 {
+			t.Fatalf("the case needs a CIC register over 64 bits, got %d", full)
+		}
+		t.Logf("CIC full register %d bits", full)
+		t.Log(passes(t, c, w, 6, 2*tc.r*tc.n+8*tc.r))
+	}
+}
+
 // One- and two-tap FIRs (no delay line; one folded pair), an R = 1 CIC,
 // one input every clock (MaxIdle < 0), a long idle pattern, and a prefix
 // of our own.

@@ -300,3 +300,41 @@ func TestCapMarksUnsettled(t *testing.T) {
 		t.Error("README does not say the vectors stop short of the settling")
 	}
 }
+
+// CICs whose registers need 64 to 127 bits (run in 128-bit arithmetic)
+// match the math/big re-implementation too: 16 seeded random ones, each
+// followed by a short FIR, real and complex.
+func TestWideCICMatchesReference(t *testing.T) {
+	rng := rand.New(rand.NewPCG(16, 2))
+	loose := []remez.Band{{Lo: 0, Hi: 1, Gain: 1, MaxError: 10}}
+	checked := 0
+	for checked < 16 {
+		c := fixed.Cascade{InputRate: 1e6, Passband: 10, Complex: rng.IntN(2) == 0, Stages: []fixed.Stage{
+			{CIC: true, N: 5 + rng.IntN(4), M: 1 + rng.IntN(2), R: 16 + rng.IntN(200)},
+			{R: 2, Taps: []float64{0.1, 0.4, 0.4, 0.1}, Bands: loose},
+		}}
+		w, err := fixed.Plan(c, fixed.Words{InputBits: 12 + rng.IntN(9), OutputBits: 16 + rng.IntN(17), CoefBits: 12}, fixed.Settings{})
+		if err != nil || w.Stages[0].Pruning.FullBits <= 63 {
+			continue
+		}
+		v, err := Generate(c, w, Options{MaxInput: 2500})
+		if err != nil {
+			t.Fatal(err)
+		}
+		for _, s := range v.Sets {
+			for p := range s.In {
+				want := refCIC(s.In[p], w.Stages[0].Pruning)
+				got := s.Stages[0][p]
+				if len(got) != len(want) {
+					t.Fatalf("%s: %d outputs, reference %d", s.Name, len(got), len(want))
+				}
+				for i := range got {
+					if got[i] != want[i] {
+						t.Fatalf("%d-bit CIC %+v, %s path %d sample %d: vectors %d, reference %d", w.Stages[0].Pruning.FullBits, c.Stages[0], s.Name, p, i, got[i], want[i])
+					}
+				}
+			}
+		}
+		checked++
+	}
+}

@@ -60,7 +60,7 @@
 // figures are for information and the files stay floating point. The integer
 // files hold exactly coefficients_int: fixed's local search may move a tap off
 // plain rounding (coefficients_adjusted counts them). When only the bit-true
-// run fails (a CIC register beyond its 63-bit integers) the stages keep their
+// run fails (a CIC register beyond the integer model's 127 bits) the stages keep their
 // widths, the chain has no bit-true fields and word_lengths_error says why; a
 // chain the planner cannot take carries word_lengths_error alone. On the built-in example the
 // whole front (six chains) costs about 0.1 s with 18-bit coefficients and

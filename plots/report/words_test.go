@@ -192,28 +192,29 @@ func TestWordLengths(t *testing.T) {
 // gets its widths and the chain its quantised figures; it has no bit-true
 // figures and says why.
 func TestWordLengthsWithoutBitTrue(t *testing.T) {
-	// Hogenauer (1981): 16 + ceil(6 log2 1024) = 76 bits, beyond 63; (RM)^N
-	// is a power of two, so one guard bit keeps the truncations from
-	// wrapping the output (chain/fixed's doc): 77 bits.
+	// Hogenauer (1981): 24 + ceil(10 log2 2048) = 134 bits, beyond the
+	// integer model's 127; (RM)^N is a power of two, so one guard bit keeps
+	// the truncations from wrapping the output (chain/fixed's doc): 135 bits.
 	s, res := designed(t, `input_rate = "122.88 MHz"
 output_rate = "30 kHz"
 passband = "12 kHz"
 ripple = "0.1 dB"
 rejection = "100 dB"
 [words]
+input = 24
 coefficients = "auto"
-`, "cic6m1r1024 > fir4")
+`, "cic10m1r2048 > fir2")
 	r, err := New("plan", s, res)
 	if err != nil {
 		t.Fatal(err)
 	}
 	ch := r.Front[0]
 	if ch.ChainReport == nil || ch.BitTrueReport != nil || ch.BitTrueSNRValid || !(ch.QuantisedRejectionDB > 0) ||
-		!strings.Contains(ch.WordLengthsError, "no bit-true run") || !strings.Contains(ch.WordLengthsError, "77-bit") {
+		!strings.Contains(ch.WordLengthsError, "no bit-true run") || !strings.Contains(ch.WordLengthsError, "135-bit") {
 		t.Errorf("chain report %+v, error %q", ch.ChainReport, ch.WordLengthsError)
 	}
-	if w := ch.Stages[0].StageReport; w == nil || w.AccumulatorBits != 77 {
-		t.Errorf("cic widths %+v, want a 77-bit register", w)
+	if w := ch.Stages[0].StageReport; w == nil || w.AccumulatorBits != 135 {
+		t.Errorf("cic widths %+v, want a 135-bit register", w)
 	}
 	if w := ch.Stages[1].StageReport; w == nil || w.CoefficientBits == 0 || len(w.CoefficientsInt) != len(ch.Stages[1].Coefficients) {
 		t.Errorf("fir widths %+v", w)

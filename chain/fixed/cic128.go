@@ -1,0 +1,137 @@
+package fixed
+
+import "math/bits"
+
+// MaxModelBits is the widest CIC register the integer model runs: 127
+// bits, in two's-complement 128-bit arithmetic (int128), which holds any
+// CIC whose register growth N log2(RM) leaves room for the input word
+// below it. Registers up to 63 bits run in int64 (cicState), wider ones in
+// int128 (cicState128), with the same rules.
+const MaxModelBits = 127
+
+// int128 is a two's-complement 128-bit integer: hi holds bits 64..127
+// (with the sign), lo bits 0..63.
+type int128 struct {
+	hi int64
+	lo uint64
+}
+
+func int128Of(v int64) int128 { return int128{hi: v >> 63, lo: uint64(v)} }
+
+func (a int128) add(b int128) int128 {
+	lo, c := bits.Add64(a.lo, b.lo, 0)
+	return int128{hi: a.hi + b.hi + int64(c), lo: lo}
+}
+
+func (a int128) sub(b int128) int128 {
+	lo, c := bits.Sub64(a.lo, b.lo, 0)
+	return int128{hi: a.hi - b.hi - int64(c), lo: lo}
+}
+
+// wrap reduces a to a w-bit two's-complement value, 1 <= w <= 128.
+func (a int128) wrap(w int) int128 {
+	switch {
+	case w >= 128:
+		return a
+	case w > 64:
+		s := uint(128 - w)
+		return int128{hi: a.hi << s >> s, lo: a.lo}
+	default:
+		s := uint(64 - w)
+		lo := int64(a.lo) << s >> s
+		return int128{hi: lo >> 63, lo: uint64(lo)}
+	}
+}
+
+// shr is the arithmetic right shift (floor division by 2^k), k >= 0.
+func (a int128) shr(k int) int128 {
+	switch {
+	case k == 0:
+		return a
+	case k < 64:
+		return int128{hi: a.hi >> uint(k), lo: a.lo>>uint(k) | uint64(a.hi)<<uint(64-k)}
+	case k < 128:
+		return int128{hi: a.hi >> 63, lo: uint64(a.hi >> uint(k-64))}
+	default:
+		return int128{hi: a.hi >> 63, lo: uint64(a.hi >> 63)}
+	}
+}
+
+// shl is the left shift by k >= 0 (bits above 127 are lost).
+func (a int128) shl(k int) int128 {
+	switch {
+	case k == 0:
+		return a
+	case k < 64:
+		return int128{hi: a.hi<<uint(k) | int64(a.lo>>uint(64-k)), lo: a.lo << uint(k)}
+	case k < 128:
+		return int128{hi: int64(a.lo << uint(k-64)), lo: 0}
+	default:
+		return int128{}
+	}
+}
+
+// shiftTo128 is shiftTo in int128: v from units of 2^from to units of
+// 2^to, truncating (floor).
+func shiftTo128(v int128, from, to int) int128 {
+	if to >= from {
+		return v.shr(to - from)
+	}
+	return v.shl(from - to)
+}
+
+// cicState128 is cicState for registers of 64 to 127 bits: the same
+// truncations, wraps and output sampling, in int128.
+type cicState128 struct {
+	p      *CICPruning
+	integ  []int128
+	combIn [][]int128
+	pos    int
+	k      int
+}
+
+func newCICState128(p *CICPruning) *cicState128 {
+	s := &cicState128{p: p, integ: make([]int128, p.N), combIn: make([][]int128, p.N)}
+	for j := range s.combIn {
+		s.combIn[j] = make([]int128, p.M)
+	}
+	return s
+}
+
+func (s *cicState128) run(x, out []int64) []int64 {
+	p := s.p
+	n, r, m := p.N, p.R, p.M
+	for _, x0 := range x {
+		k := s.k
+		s.k++
+		v, unit := int128Of(x0), 0
+		for j := 0; j < n; j++ {
+			in := shiftTo128(v, unit, p.Dropped[j])
+			s.integ[j] = s.integ[j].add(in).wrap(p.RegisterBits[j])
+			v, unit = s.integ[j], p.Dropped[j]
+		}
+		if k%r != 0 {
+			continue
+		}
+		for j := 0; j < n; j++ {
+			d := p.Dropped[n+j]
+			in := shiftTo128(v, unit, d).wrap(p.RegisterBits[n+j])
+			old := s.combIn[j][s.pos]
+			s.combIn[j][s.pos] = in
+			v, unit = in.sub(old).wrap(p.RegisterBits[n+j]), d
+		}
+		s.pos = (s.pos + 1) % m
+		// The output word is at most 32 bits: its low word holds it.
+		out = append(out, int64(shiftTo128(v, unit, p.Dropped[2*n]).wrap(p.OutputBits).lo))
+	}
+	return out
+}
+
+// newCICFilter returns the integer CIC of p in the narrowest arithmetic
+// that holds its registers.
+func newCICFilter(p *CICPruning) intFilter {
+	if p.FullBits > 63 {
+		return newCICState128(p)
+	}
+	return newCICState(p)
+}
