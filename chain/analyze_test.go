@@ -8,40 +8,15 @@ import (
 	"testing"
 
 	"github.com/stepdown-dsp/stepdown/chain/remez"
+	"github.com/stepdown-dsp/stepdown/internal/testfilters"
 )
-
-// besselI0 is the modified Bessel function of order 0 by its power series.
-func besselI0(x float64) float64 {
-	s, t := 1.0, 1.0
-	for k := 1; k < 60; k++ {
-		t *= (x / 2) / float64(k)
-		s += t * t
-	}
-	return s
-}
 
 // kaiserLowpass is a windowed-sinc lowpass with cut-off fc (common practice:
 // Kaiser window, beta = 0.1102 (A - 8.7) for A dB of attenuation), used to
-// build chains by hand, independently of the design engine.
+// build chains by hand, independently of the design engine
+// (internal/testfilters).
 func kaiserLowpass(n int, fc, rate, attDB float64) []float64 {
-	beta := 0.1102 * (attDB - 8.7)
-	h := make([]float64, n)
-	c := float64(n-1) / 2
-	sum := 0.0
-	for i := range h {
-		x := float64(i) - c
-		s := 2 * fc / rate
-		if x != 0 {
-			s = math.Sin(2*math.Pi*fc/rate*x) / (math.Pi * x)
-		}
-		r := x / c
-		h[i] = s * besselI0(beta*math.Sqrt(math.Max(0, 1-r*r))) / besselI0(beta)
-		sum += h[i]
-	}
-	for i := range h {
-		h[i] /= sum
-	}
-	return h
+	return testfilters.KaiserLowpass(n, fc/rate, 0.1102*(attDB-8.7))
 }
 
 type handChain struct {

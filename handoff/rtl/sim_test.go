@@ -17,6 +17,7 @@ import (
 	"github.com/stepdown-dsp/stepdown/chain/fixed"
 	"github.com/stepdown-dsp/stepdown/chain/remez"
 	"github.com/stepdown-dsp/stepdown/handoff/rtl"
+	"github.com/stepdown-dsp/stepdown/internal/testfilters"
 )
 
 // The generated Verilog is checked by the tool it is written for, Icarus
@@ -40,67 +41,12 @@ func needIverilog(t *testing.T) {
 	}
 }
 
-// kaiserLowpass returns an n-tap Kaiser-windowed sinc lowpass with cutoff fc
-// (a fraction of the sample rate) and DC gain 1: Kaiser's window method as
-// in Oppenheim & Schafer (from memory). Exactly symmetric.
-func kaiserLowpass(n int, fc, beta float64) []float64 {
-	h := make([]float64, n)
-	c := float64(n-1) / 2
-	sum := 0.0
-	for k := range h {
-		t := float64(k) - c
-		v := 2 * fc
-		if t != 0 {
-			v = math.Sin(2*math.Pi*fc*t) / (math.Pi * t)
-		}
-		r := 0.0
-		if c > 0 {
-			r = t / c
-		}
-		h[k] = v * besselI0(beta*math.Sqrt(math.Max(0, 1-r*r))) / besselI0(beta)
-		sum += h[k]
-	}
-	for k := range h {
-		h[k] /= sum
-	}
-	for k := 0; k < n/2; k++ {
-		h[n-1-k] = h[k]
-	}
-	return h
-}
+// kaiserLowpass is internal/testfilters' Kaiser lowpass, cutoff fc a
+// fraction of the rate.
+func kaiserLowpass(n int, fc, beta float64) []float64 { return testfilters.KaiserLowpass(n, fc, beta) }
 
-// kaiserHalfBand returns a 4K-1 tap windowed half-band: centre 1/2, every
-// other tap exactly zero (the half-band's definition, common practice).
-func kaiserHalfBand(k int, beta float64) []float64 {
-	n := 4*k - 1
-	h := make([]float64, n)
-	c := n / 2
-	for i := range h {
-		t := i - c
-		switch {
-		case t == 0:
-			h[i] = 0.5
-		case t%2 == 0:
-		default:
-			r := float64(t) / float64(c+1)
-			h[i] = math.Sin(math.Pi*float64(t)/2) / (math.Pi * float64(t)) * besselI0(beta*math.Sqrt(1-r*r)) / besselI0(beta)
-		}
-	}
-	for i := 0; i < n/2; i++ {
-		h[n-1-i] = h[i]
-	}
-	return h
-}
-
-// besselI0 is the modified Bessel function of order 0 by its power series.
-func besselI0(x float64) float64 {
-	s, t := 1.0, 1.0
-	for k := 1; k < 60; k++ {
-		t *= (x / 2) / float64(k)
-		s += t * t
-	}
-	return s
-}
+// kaiserHalfBand is internal/testfilters' 4K-1 tap half-band.
+func kaiserHalfBand(k int, beta float64) []float64 { return testfilters.KaiserHalfBand(k, beta) }
 
 // loose bands: the tests need widths, not a filter that meets a spec.
 func looseBands(rate float64) []remez.Band {
