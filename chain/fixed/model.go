@@ -14,7 +14,9 @@ import (
 // Its conventions are Plan's: the input is a two's-complement code of
 // Widths.InputBits bits; a CIC's registers truncate (floor) at each of
 // Hogenauer's points and wrap at their widths, its first output is taken at
-// input sample 0 and then every R-th; an FIR's output m is sum_k h[k]
+// input sample 0 and then every R-th (a non-recursive CIC's sub-stages
+// are exact, and its output is truncated like the recursive one's: see
+// StageWidths.NonRecursive); an FIR's output m is sum_k h[k]
 // x[mR-k] over k <= mR (inputs before the first are zero), exact, rounded
 // half up at OutputShift and saturated to OutputBits. Stage i's output is a
 // code of Widths.Stages[i].OutputBits bits. A complex (I/Q) chain is two
@@ -41,7 +43,7 @@ func NewModel(c Cascade, w *Widths) (*Model, error) {
 			if sw.Pruning.FullBits > 63 {
 				return nil, fmt.Errorf("fixed: stage %d: the CIC's %d-bit registers are beyond the integer model's 63 bits", i+1, sw.Pruning.FullBits)
 			}
-			m.stages = append(m.stages, newCICState(sw.Pruning))
+			m.stages = append(m.stages, newCICInt(sw))
 			continue
 		}
 		m.stages = append(m.stages, newFIRInt(sw.Coefficients.Ints, st.R, sw.OutputShift, sw.OutputBits))
