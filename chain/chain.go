@@ -62,6 +62,7 @@ type StagePlan struct {
 	Factor   int
 	CICOrder int     // CIC only: N
 	CICDelay int     // CIC only: M
+	CICForm  CICForm // CIC only: recursive (the zero value) or non-recursive
 	Variant  Variant // FIR only
 }
 

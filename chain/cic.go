@@ -6,11 +6,17 @@ import (
 )
 
 // CICStage is a CIC decimator of order N, differential delay M, factor R.
+// Its zero Form is the recursive CIC (integrators and combs).
 type CICStage struct {
 	N, M, R int
-	// RegisterBits is the width of each of the 2N registers (integrators then
-	// combs) as PruneCIC plans them for the spec's output width: Hogenauer's
-	// (1981) pruning, each register keeping the MSB of the full width Width.
+	// Form is how it is built: Recursive (the zero value) or NonRecursive
+	// (see CICForm). The response is the same.
+	Form CICForm
+	// RegisterBits is, for the recursive form, the width of each of the 2N
+	// registers (integrators then combs) as PruneCIC plans them for the
+	// spec's output width: Hogenauer's (1981) pruning, each register keeping
+	// the MSB of the full width Width. For the non-recursive form it is the
+	// output width of each of its log2 R sub-stages (NonRecursiveBits).
 	RegisterBits []int
 	// GuardBits is how many bits PruneCIC put above Hogenauer's full width
 	// Bin + ceil(N log2(R M)) so that no input can wrap the output (0 when
@@ -97,6 +103,7 @@ func NewCICStage(n, m, r, inBits, outBits int) CICStage {
 
 // Width returns the full register width, the MSB every register keeps:
 // Bin + ceil(N log2(R M)) + GuardBits.
+// The non-recursive form has no guard bits: its width is Bin + N log2 R.
 func (c CICStage) Width() int { return CICRegisterWidth(c.N, c.M, c.R, c.InputBits) + c.GuardBits }
 
 // DroopDB returns the CIC's peak-to-peak droop over [0, fp] in dB for input

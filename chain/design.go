@@ -61,7 +61,10 @@ func build(ctx context.Context, spec Spec, plan []StagePlan, s Settings, design 
 		r := reqs[i]
 		switch p.Kind {
 		case CIC:
-			cs := NewCICStage(p.CICOrder, p.CICDelay, p.Factor, bits, spec.OutputBits)
+			cs, err := NewCICStageForm(p.CICForm, p.CICOrder, p.CICDelay, p.Factor, bits, spec.OutputBits)
+			if err != nil {
+				return nil, planErr(plan, i, "%v", err)
+			}
 			bits = cs.OutputBits
 			c.Stages = append(c.Stages, cs)
 			continue

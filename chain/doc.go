@@ -228,5 +228,17 @@
 //	cic5m1r16 > hb > hb > fir8 > fir2L
 //
 // is a CIC of order 5, differential delay 1, factor 16, two half-bands, a
-// multiband FIR decimating by 8 and a lowpass FIR decimating by 2.
+// multiband FIR decimating by 8 and a lowpass FIR decimating by 2. A CIC
+// built non-recursively carries the suffix "nr": cic5m1r16nr.
+//
+// # Non-recursive CIC
+//
+// CICStage.Form (and StagePlan.CICForm) chooses how a CIC is built; the
+// zero value, Recursive, is Hogenauer's integrators and combs. NonRecursive
+// builds a CIC of M = 1 and R = 2^k as k sub-stages (1 + z^-1)^N, each
+// decimating by 2, at full precision (sub-stage i is Bin + N i bits wide).
+// Any other M or R is refused (NonRecursiveOK says why). The transfer
+// function is the recursive CIC's, so Gain, the requirements and Analyze's
+// bounds are shared unchanged; the time-domain model of the form is package
+// fixed's, its price package cost's.
 package chain

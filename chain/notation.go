@@ -16,9 +16,11 @@ const (
 
 // Notation returns the chain's compact notation, accepted back by ParseNotation.
 //
-// Stages are joined by " > " in signal order. A CIC is "cic<N>m<M>r<R>", a
-// half-band is "hb", a multiband FIR decimating by D is "fir<D>" and the
-// plain lowpass variant is "fir<D>L". For example
+// Stages are joined by " > " in signal order. A CIC is "cic<N>m<M>r<R>",
+// followed by "nr" when it is built non-recursively (CICForm NonRecursive:
+// M = 1 and R a power of two, "cic5m1r16nr"), a half-band is "hb", a
+// multiband FIR decimating by D is "fir<D>" and the plain lowpass variant
+// is "fir<D>L". For example
 //
 //	cic5m1r16 > hb > hb > fir8 > fir2L
 //
@@ -32,6 +34,9 @@ func Notation(plan []StagePlan) string {
 		switch p.Kind {
 		case CIC:
 			fmt.Fprintf(&b, "cic%dm%dr%d", p.CICOrder, p.CICDelay, p.Factor)
+			if p.CICForm == NonRecursive {
+				b.WriteString("nr")
+			}
 		case HalfBand:
 			b.WriteString("hb")
 		case FIR:
@@ -142,6 +147,13 @@ func ParseNotation(s string) ([]StagePlan, error) {
 				return nil, err
 			}
 			st = StagePlan{Kind: CIC, Factor: r, CICOrder: n, CICDelay: m}
+			if at := p.pos; p.lit("nr") {
+				if err := NonRecursiveOK(m, r); err != nil {
+					p.pos = at
+					return nil, p.fail(fmt.Sprintf("the end of the CIC: %v", err))
+				}
+				st.CICForm = NonRecursive
+			}
 		case p.lit("hb"):
 			st = StagePlan{Kind: HalfBand, Factor: 2}
 		case p.lit("fir"):
@@ -154,7 +166,7 @@ func ParseNotation(s string) ([]StagePlan, error) {
 				st.Variant = Lowpass
 			}
 		default:
-			return nil, p.fail(`a stage ("cic<N>m<M>r<R>", "hb", "fir<D>" or "fir<D>L")`)
+			return nil, p.fail(`a stage ("cic<N>m<M>r<R>", "cic<N>m1r<R>nr", "hb", "fir<D>" or "fir<D>L")`)
 		}
 		plan = append(plan, st)
 		p.skipSpaces()

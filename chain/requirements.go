@@ -81,6 +81,15 @@ func validatePlan(plan []StagePlan, d int) error {
 			if p.CICDelay < 1 || p.CICDelay > maxCICDelay {
 				return planErr(plan, i, "CICDelay = %d: must lie in [1, %d]", p.CICDelay, maxCICDelay)
 			}
+			switch p.CICForm {
+			case Recursive:
+			case NonRecursive:
+				if err := NonRecursiveOK(p.CICDelay, p.Factor); err != nil {
+					return planErr(plan, i, "%v", err)
+				}
+			default:
+				return planErr(plan, i, "CICForm = %d: must be Recursive or NonRecursive", int(p.CICForm))
+			}
 		case HalfBand:
 			if p.Factor != 2 {
 				return planErr(plan, i, "Factor = %d: a half-band decimates by 2 only", p.Factor)

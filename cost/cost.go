@@ -49,6 +49,12 @@ type StageFigures struct {
 	StructuralAdders  int
 	Adders            int
 	AddersEstimated   bool
+
+	// CICForm is a CIC stage's form (chain.Recursive for every other
+	// stage); SubStages are a non-recursive CIC's sub-stages, nil
+	// otherwise.
+	CICForm   chain.CICForm
+	SubStages []SubStage
 }
 
 // Figures is what a chain costs (docs/design.md §5) and, for a designed chain, what it achieves (§7).
@@ -138,11 +144,30 @@ func Price(spec chain.Spec, c *chain.Chain, s Settings) (Figures, error) {
 		var delayIn float64 // group delay, input samples
 		var block Block     // a FIR or half-band block's adders (Multiplierless)
 		var adders int      // the stage's hardware adders (Multiplierless)
+		var subs []SubStage // a non-recursive CIC's sub-stages
 		// The cases cover every kind of chain.Kinds (FIR and half-band are
 		// chain.FIRStages).
 		switch v := st.(type) {
 		case chain.CICStage:
 			n, m, r := v.N, v.M, v.R
+			if v.Form == chain.NonRecursive {
+				if err := chain.NonRecursiveOK(m, r); err != nil {
+					return Figures{}, fmt.Errorf("cost: stage %d: %v", i+1, err)
+				}
+				subs = NonRecursiveSubStages(v, width, rates[i], s.Clock)
+				var hw int
+				add, dataWords, dataBits, hw = nonRecursiveTotals(subs, n, r)
+				delayIn = float64(n*(r-1)) / 2
+				if s.Multiplierless {
+					adders = hw * cx
+				}
+				if v.OutputBits > 0 {
+					width = v.OutputBits
+				} else {
+					width = min(subs[len(subs)-1].OutputBits, spec.OutputBits)
+				}
+				break
+			}
 			add = float64(n*r + n)
 			regs := cicRegisters(v, width)
 			lanes := Lanes(rates[i], s.Clock)
@@ -190,6 +215,9 @@ func Price(spec chain.Spec, c *chain.Chain, s Settings) (Figures, error) {
 		}
 		sf.CoefficientAdders, sf.StructuralAdders, sf.AddersEstimated = block.Coefficient, block.Structural, block.Estimated
 		sf.Adders = adders
+		if v, ok := st.(chain.CICStage); ok {
+			sf.CICForm, sf.SubStages = v.Form, subs
+		}
 		f.Adders += adders
 		sf.Lanes = Lanes(rates[i], s.Clock)
 		f.MaxLanes = max(f.MaxLanes, sf.Lanes)

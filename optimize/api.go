@@ -48,7 +48,11 @@ type Settings struct {
 	Kinds     []chain.Kind // nil means every kind (chain.Kinds)
 	CICOrders []int        // nil means DefaultCICOrders; each 1..MaxCICOrder
 	CICDelays []int        // nil means DefaultCICDelays; each 1..MaxCICDelay
-	Jobs      int          // parallel designs; zero means runtime.GOMAXPROCS(0)
+	// CICForms are the CIC forms tried; nil means chain.Recursive alone.
+	// chain.NonRecursive is tried for every CIC it can build (M = 1 and a
+	// power-of-two factor), as a chain of its own ("cic<N>m1r<R>nr").
+	CICForms []chain.CICForm
+	Jobs     int // parallel designs; zero means runtime.GOMAXPROCS(0)
 
 	// Limits are the fabric's; the zero value sets none.
 	Limits Limits

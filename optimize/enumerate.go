@@ -16,6 +16,7 @@ type space struct {
 	fir       bool
 	orders    []int
 	delays    []int
+	forms     []chain.CICForm // the CIC forms tried, Recursive first
 	// sameLayout reports whether the multiband and lowpass layouts of a FIR
 	// stage of factor f with output rate at prefix p*f coincide, in which
 	// case only the multiband one is tried.
@@ -50,12 +51,26 @@ func divisors(n int) []int {
 	return lo
 }
 
+// cicForms returns the CIC forms to try: Recursive alone by default.
+func (sp *space) cicForms() []chain.CICForm {
+	if sp.forms == nil {
+		return []chain.CICForm{chain.Recursive}
+	}
+	return sp.forms
+}
+
 // choices returns how many stage plans a stage of factor f at position pos
 // (prefix product p before it) has.
 func (sp *space) choices(pos, prefix, f int) int {
 	c := 0
 	if pos == 0 && sp.cic {
-		c += len(sp.orders) * len(sp.delays)
+		for _, m := range sp.delays {
+			for _, form := range sp.cicForms() {
+				if form == chain.Recursive || chain.NonRecursiveOK(m, f) == nil {
+					c += len(sp.orders)
+				}
+			}
+		}
 	}
 	if f == 2 && sp.halfBand {
 		c++
@@ -150,15 +165,20 @@ func (sp *space) walk(visit func(plan []chain.StagePlan) bool) bool {
 			if pos == 0 && sp.cic {
 				for _, n := range sp.orders {
 					for _, m := range sp.delays {
-						buf[pos] = chain.StagePlan{Kind: chain.CIC, Factor: f, CICOrder: n, CICDelay: m}
-						if sp.skipCIC != nil {
-							if code := sp.skipCIC(buf[pos]); code != dropNone {
-								sp.skipped(code, sp.completions(rem/f, pos+1))
+						for _, form := range sp.cicForms() {
+							if form == chain.NonRecursive && chain.NonRecursiveOK(m, f) != nil {
 								continue
 							}
-						}
-						if !rec(rem/f, pos+1) {
-							return false
+							buf[pos] = chain.StagePlan{Kind: chain.CIC, Factor: f, CICOrder: n, CICDelay: m, CICForm: form}
+							if sp.skipCIC != nil {
+								if code := sp.skipCIC(buf[pos]); code != dropNone {
+									sp.skipped(code, sp.completions(rem/f, pos+1))
+									continue
+								}
+							}
+							if !rec(rem/f, pos+1) {
+								return false
+							}
 						}
 					}
 				}
@@ -207,6 +227,8 @@ func comparePlans(a, b []chain.StagePlan) int {
 			return cmpInt(x.CICOrder, y.CICOrder)
 		case x.CICDelay != y.CICDelay:
 			return cmpInt(x.CICDelay, y.CICDelay)
+		case x.CICForm != y.CICForm:
+			return cmpInt(int(x.CICForm), int(y.CICForm))
 		case x.Variant != y.Variant:
 			return cmpInt(int(x.Variant), int(y.Variant))
 		}

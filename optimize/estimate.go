@@ -336,6 +336,9 @@ func (e *estimator) keysOf(plan []chain.StagePlan) dropCode {
 			kind: int8(st.Kind), variant: int8(st.Variant),
 			n: int8(st.CICOrder), m: int8(st.CICDelay),
 		}}
+		if st.Kind == chain.CIC {
+			k.variant = int8(st.CICForm) // a CIC has no variant: its form
+		}
 		if st.Kind != chain.CIC {
 			k.share = math.Float64bits(share)
 			k.nRipple = int8(nRipple)
@@ -399,7 +402,7 @@ func (e *estimator) score(plan []chain.StagePlan) (figs, dropCode) {
 	if l := e.p.lim.MaxMultipliers; l > 0 && mults > float64(l) {
 		return figs{}, dropMultipliers
 	}
-	if st := plan[0]; st.Kind == chain.CIC && !e.keepBeaten && e.cicBeaten(st.Factor, st.CICOrder, st.CICDelay) && !e.isReinstated(plan) {
+	if st := plan[0]; st.Kind == chain.CIC && st.CICForm == chain.Recursive && !e.keepBeaten && e.cicBeaten(st.Factor, st.CICOrder, st.CICDelay) && !e.isReinstated(plan) {
 		return figs{}, dropCICBeaten
 	}
 	return total, dropNone
@@ -435,13 +438,40 @@ func (e *estimator) stage(k stageKey) stageVal {
 	switch chain.Kind(k.kind) {
 	case chain.CIC:
 		n, m := int(k.n), int(k.m)
-		if d := e.cicOverLimit(f, n, m); d != dropNone {
-			v.drop = d
+		if chain.CICForm(k.variant) == chain.Recursive {
+			if d := e.cicOverLimit(f, n, m); d != dropNone {
+				v.drop = d
+				return v
+			}
+		} else if l := p.lim.MaxCICFactor; l > 0 && f > l {
+			v.drop = dropCICFactor
 			return v
 		}
 		v.f.margin = e.cicMargin(f, n, m)
 		if v.f.margin < 0 {
 			v.drop = dropCICRejection
+			return v
+		}
+		v.f.lat = float64(n) * float64(f*m-1) / 2 / rate
+		v.work = float64(n * f * m)
+		if chain.CICForm(k.variant) == chain.NonRecursive {
+			// Priced as cost.Price does: its sub-stages' delay lines and
+			// adders at the clock.
+			cs, err := chain.NewCICStageForm(chain.NonRecursive, n, m, f, p.inBits, p.dataBits)
+			if err != nil {
+				v.drop = dropCICRejection // unreachable: the walk tries eligible CICs only
+				return v
+			}
+			if l := p.lim.MaxRegisterBits; l > 0 && cs.Width() > l {
+				v.drop = dropRegisterBits
+				return v
+			}
+			_, words, bits, adders := cost.NonRecursiveFigures(cs, p.inBits, p.f0, p.clock)
+			v.f.words, v.f.bits = float64(words)*cplx, float64(bits)*cplx
+			if p.adders {
+				v.f.mpo = float64(adders) * cplx
+			}
+			v.lo, v.hi = v.f, v.f
 			return v
 		}
 		// Priced as cost.Price does, with chain.PruneCIC's registers.
@@ -795,7 +825,15 @@ func (e *estimator) isReinstated(plan []chain.StagePlan) bool {
 // skipCIC returns the reason to drop every candidate that starts with the
 // CIC st whatever follows it, or dropNone.
 func (e *estimator) skipCIC(st chain.StagePlan) dropCode {
-	if d := e.cicOverLimit(st.Factor, st.CICOrder, st.CICDelay); d != dropNone {
+	if st.CICForm == chain.NonRecursive {
+		// Its widest register is its full width Bin + N log2 R.
+		if l := e.p.lim.MaxCICFactor; l > 0 && st.Factor > l {
+			return dropCICFactor
+		}
+		if l := e.p.lim.MaxRegisterBits; l > 0 && chain.CICRegisterWidth(st.CICOrder, 1, st.Factor, e.p.inBits) > l {
+			return dropRegisterBits
+		}
+	} else if d := e.cicOverLimit(st.Factor, st.CICOrder, st.CICDelay); d != dropNone {
 		return d
 	}
 	if e.p.fp*float64(st.Factor*st.CICDelay) >= e.p.f0 {
@@ -804,7 +842,7 @@ func (e *estimator) skipCIC(st chain.StagePlan) dropCode {
 	if e.cicMargin(st.Factor, st.CICOrder, st.CICDelay) < 0 {
 		return dropCICRejection
 	}
-	if !e.keepBeaten && e.cicBeaten(st.Factor, st.CICOrder, st.CICDelay) && !e.reinstatedCIC[[3]int{st.Factor, st.CICOrder, st.CICDelay}] {
+	if st.CICForm == chain.Recursive && !e.keepBeaten && e.cicBeaten(st.Factor, st.CICOrder, st.CICDelay) && !e.reinstatedCIC[[3]int{st.Factor, st.CICOrder, st.CICDelay}] {
 		return dropCICBeaten
 	}
 	return dropNone
@@ -866,7 +904,7 @@ func (e *estimator) needTaps(plan []chain.StagePlan) float64 {
 		}
 		need = math.Max(need, v.taps)
 	}
-	if st := plan[0]; st.Kind == chain.CIC && !e.keepBeaten && e.cicBeaten(st.Factor, st.CICOrder, st.CICDelay) && !e.isReinstated(plan) {
+	if st := plan[0]; st.Kind == chain.CIC && st.CICForm == chain.Recursive && !e.keepBeaten && e.cicBeaten(st.Factor, st.CICOrder, st.CICDelay) && !e.isReinstated(plan) {
 		return math.Inf(1)
 	}
 	return need

@@ -92,6 +92,11 @@ func (s *Settings) check() error {
 			return fmt.Errorf("optimize: CICOrders contains %d: must be 1 to %d", n, MaxCICOrder)
 		}
 	}
+	for _, f := range s.CICForms {
+		if f != chain.Recursive && f != chain.NonRecursive {
+			return fmt.Errorf("optimize: CICForms contains %d: must be chain.Recursive or chain.NonRecursive", int(f))
+		}
+	}
 	for _, m := range s.CICDelays {
 		if m < 1 || m > MaxCICDelay {
 			return fmt.Errorf("optimize: CICDelays contains %d: must be 1 to %d", m, MaxCICDelay)
@@ -131,6 +136,10 @@ func newSpace(p *params, s *Settings) *space {
 	}
 	if sp.delays == nil {
 		sp.delays = DefaultCICDelays()
+	}
+	sp.forms = s.CICForms
+	if sp.forms == nil {
+		sp.forms = []chain.CICForm{chain.Recursive}
 	}
 	if s.Kinds == nil {
 		sp.cic, sp.halfBand, sp.fir = true, true, true
@@ -927,7 +936,7 @@ func planKey(plan []chain.StagePlan) string {
 func appendPlanKey(dst []byte, plan []chain.StagePlan) []byte {
 	for _, st := range plan {
 		dst = append(dst, byte(st.Factor), byte(st.Factor>>8), byte(st.Factor>>16), byte(st.Factor>>24),
-			byte(st.Kind), byte(st.Variant), byte(st.CICOrder), byte(st.CICDelay))
+			byte(st.Kind), byte(st.Variant)|byte(st.CICForm)<<4, byte(st.CICOrder), byte(st.CICDelay))
 	}
 	return dst
 }

@@ -205,8 +205,8 @@ func BitTrueContext(ctx context.Context, c Cascade, w *Widths, sig Signal) (BitT
 		return BitTrueResult{}, fmt.Errorf("fixed: signal AliasLevel = %g dBFS, NoiseDBFS = %g: levels must be below 0 dBFS", sig.AliasLevel, sig.NoiseDBFS)
 	}
 	for i, sw := range w.Stages {
-		if sw.CIC && sw.Pruning.FullBits > MaxModelBits {
-			return BitTrueResult{}, fmt.Errorf("fixed: stage %d: the CIC's %d-bit registers are beyond the bit-true run's %d bits", i+1, sw.Pruning.FullBits, MaxModelBits)
+		if sw.CIC && sw.Pruning.FullBits > cicModelBits(&sw) {
+			return BitTrueResult{}, fmt.Errorf("fixed: stage %d: the CIC's %d-bit registers are beyond the bit-true run's %d bits", i+1, sw.Pruning.FullBits, cicModelBits(&sw))
 		}
 		// The float model runs a CIC as its equivalent filter of
 		// N (RM - 1) + 1 taps, with as long a history: bounded so that
@@ -538,7 +538,7 @@ func newChainState(c Cascade, w *Widths) *chainState {
 	for i, st := range c.Stages {
 		sw := &w.Stages[i]
 		if st.CIC {
-			cs.ints = append(cs.ints, newCICFilter(sw.Pruning))
+			cs.ints = append(cs.ints, newCICInt(sw))
 			cs.floats = append(cs.floats, newFIRFloat(cicTaps(st.N, st.R*st.M, math.Ldexp(1, -(sw.Pruning.FullBits-sw.Pruning.InputBits))), st.R))
 		} else {
 			cs.ints = append(cs.ints, newFIRInt(sw.Coefficients.Ints, st.R, sw.OutputShift, sw.OutputBits))
@@ -710,6 +710,68 @@ func (s *cicState) run(x, out []int64) []int64 {
 		}
 		s.pos = (s.pos + 1) % m
 		out = append(out, wrap(shiftTo(v, unit, p.Dropped[2*n]), p.OutputBits))
+	}
+	return out
+}
+
+// newCICInt is the integer model of a planned CIC of either form.
+func newCICInt(sw *StageWidths) intFilter {
+	if sw.NonRecursive {
+		return newNRState(sw)
+	}
+	return newCICFilter(sw.Pruning)
+}
+
+// nrState is a non-recursive CIC (chain.NonRecursive) run a block at a
+// time: sub-stage i computes y_i[m] = sum_{j=0..N} C(N, j) x_i[2m - j]
+// exactly (inputs before the first zero), so it outputs with its inputs
+// 0, 2, 4, ..., and the chain of log2 R sub-stages with the inputs 0, R,
+// 2R, ... as the recursive CIC does. The last sub-stage's output is
+// truncated (floor) by Dropped[2N] bits to OutputBits. Every value fits
+// its sub-stage's Bin + N i bits, at most 63 (NewModel checks).
+type nrState struct {
+	binom []int64   // C(N, j), j = 0..N
+	hist  [][]int64 // per sub-stage: its last N inputs, newest first
+	odd   []bool    // per sub-stage: the next input is odd-numbered
+	shift int
+}
+
+func newNRState(sw *StageWidths) *nrState {
+	n := sw.Pruning.N
+	s := &nrState{binom: make([]int64, n+1), hist: make([][]int64, len(sw.SubStageBits)), odd: make([]bool, len(sw.SubStageBits)), shift: sw.OutputShift}
+	s.binom[0] = 1
+	for j := 1; j <= n; j++ {
+		s.binom[j] = s.binom[j-1] * int64(n-j+1) / int64(j)
+	}
+	for i := range s.hist {
+		s.hist[i] = make([]int64, n)
+	}
+	return s
+}
+
+func (s *nrState) run(x, out []int64) []int64 {
+	for _, v := range x {
+		done := true
+		for i, h := range s.hist {
+			odd := s.odd[i]
+			s.odd[i] = !odd
+			if odd {
+				copy(h[1:], h)
+				h[0] = v
+				done = false
+				break
+			}
+			y := s.binom[0] * v
+			for j, u := range h {
+				y += s.binom[j+1] * u
+			}
+			copy(h[1:], h)
+			h[0] = v
+			v = y
+		}
+		if done {
+			out = append(out, v>>s.shift)
+		}
 	}
 	return out
 }

@@ -16,6 +16,10 @@ type Stage struct {
 	CIC  bool
 	N, M int
 	R    int // decimation factor
+	// NonRecursive marks a CIC built non-recursively (chain.NonRecursive:
+	// M = 1, R = 2^k, k sub-stages (1 + z^-1)^N decimating by 2, full
+	// precision); false is the recursive CIC.
+	NonRecursive bool
 
 	Taps     []float64
 	HalfBand bool
@@ -97,8 +101,16 @@ type StageWidths struct {
 	// the full register width Bin + ceil(N log2(RM)) + GuardBits (CIC; see
 	// chain.PruneCIC).
 	AccumulatorBits int
-	// CIC: its register plan (chain.PruneCIC).
+	// CIC: its register plan (chain.PruneCIC). For a non-recursive CIC it
+	// is the plan of the recursive CIC with the same output, nothing pruned
+	// inside: FullBits = Bin + N log2 R, no guard bits, every register
+	// FullBits wide, and Dropped[2N] the output truncation both forms share
+	// (the two forms then give the same output, sample for sample).
 	Pruning *CICPruning
+	// NonRecursive marks a non-recursive CIC; SubStageBits are the output
+	// widths of its log2 R sub-stages, Bin + N i (chain.NonRecursiveBits).
+	NonRecursive bool
+	SubStageBits []int
 	// OutputBits is the stage's output word; OutputShift the LSBs removed from
 	// the accumulator to make it (rounded for an FIR, truncated for a CIC);
 	// negative means the accumulator is shifted left.
@@ -341,6 +353,9 @@ func scaledStage(st Stage, k float64) Stage {
 }
 
 func planCIC(st Stage, rate float64, in, ob int) (StageWidths, error) {
+	if st.NonRecursive {
+		return planNonRecursive(st, in, ob)
+	}
 	p, err := chain.PruneCIC(st.N, st.M, st.R, in, ob)
 	if err != nil {
 		return StageWidths{}, err
@@ -367,6 +382,47 @@ func planCIC(st Stage, rate float64, in, ob int) (StageWidths, error) {
 		}
 	}
 	sw.Points = append(sw.Points, fmt.Sprintf("output: truncate %d LSBs to %d bits", p.Dropped[2*p.N], p.OutputBits))
+	return sw, nil
+}
+
+// planNonRecursive plans a non-recursive CIC: every sub-stage at full
+// precision (Bin + N i bits after sub-stage i), exact, and the output the
+// top OutputBits of the last, truncated (floor) as the recursive CIC's.
+// Its DC gain is R^N / 2^(N log2 R) = 1 (no guard bits: nothing inside is
+// truncated, so nothing can push the output past full scale).
+func planNonRecursive(st Stage, in, ob int) (StageWidths, error) {
+	if err := chain.NonRecursiveOK(st.M, st.R); err != nil {
+		return StageWidths{}, err
+	}
+	if st.N < 1 || st.N > 16 {
+		return StageWidths{}, fmt.Errorf("CIC order N = %d: must lie in [1, 16]", st.N)
+	}
+	if in < 2 || ob < 2 {
+		return StageWidths{}, fmt.Errorf("CIC word widths in %d, out %d: each must be >= 2", in, ob)
+	}
+	sub := chain.NonRecursiveBits(st.N, st.R, in)
+	full := sub[len(sub)-1]
+	if full > chain.MaxCICBits {
+		return StageWidths{}, fmt.Errorf("non-recursive CIC N=%d R=%d on %d-bit input needs %d bits; at most %d are supported", st.N, st.R, in, full, chain.MaxCICBits)
+	}
+	out := min(ob, full)
+	p := CICPruning{N: st.N, M: 1, R: st.R, InputBits: in, OutputBits: out, FullBits: full,
+		Dropped: make([]int, 2*st.N+1), RegisterBits: make([]int, 2*st.N)}
+	for j := range p.RegisterBits {
+		p.RegisterBits[j] = full
+	}
+	p.Dropped[2*st.N] = full - out
+	sw := StageWidths{CIC: true, R: st.R, InputBits: in, AccumulatorBits: full, Pruning: &p,
+		NonRecursive: true, SubStageBits: sub,
+		OutputBits: out, OutputShift: full - out, Gain: 1, MeetsBands: true, FloatMeets: true}
+	w := in
+	for i, b := range sub {
+		sw.Points = append(sw.Points, fmt.Sprintf("sub-stage %d: (1 + z^-1)^%d, decimate by 2, exact (%d-bit input, %d-bit output)", i+1, st.N, w, b))
+		// Its N past inputs (the polyphase delay lines of both phases).
+		sw.DataMemoryBits += st.N * w
+		w = b
+	}
+	sw.Points = append(sw.Points, fmt.Sprintf("output: truncate %d LSBs to %d bits", full-out, out))
 	return sw, nil
 }
 

@@ -30,9 +30,9 @@ func FromChain(spec chain.Spec, c *chain.Chain) (Cascade, Words, error) {
 		// chain.FIRStages).
 		switch st := s.(type) {
 		case chain.CICStage:
-			cas.Stages = append(cas.Stages, Stage{CIC: true, N: st.N, M: st.M, R: st.R})
+			cas.Stages = append(cas.Stages, Stage{CIC: true, N: st.N, M: st.M, R: st.R, NonRecursive: st.Form == chain.NonRecursive})
 		case *chain.CICStage:
-			cas.Stages = append(cas.Stages, Stage{CIC: true, N: st.N, M: st.M, R: st.R})
+			cas.Stages = append(cas.Stages, Stage{CIC: true, N: st.N, M: st.M, R: st.R, NonRecursive: st.Form == chain.NonRecursive})
 		case chain.FIRStage:
 			fs, err := firFromChain(st, c, rates, i)
 			if err != nil {

@@ -14,7 +14,9 @@ import (
 // Its conventions are Plan's: the input is a two's-complement code of
 // Widths.InputBits bits; a CIC's registers truncate (floor) at each of
 // Hogenauer's points and wrap at their widths, its first output is taken at
-// input sample 0 and then every R-th; an FIR's output m is sum_k h[k]
+// input sample 0 and then every R-th (a non-recursive CIC's sub-stages
+// are exact, and its output is truncated like the recursive one's: see
+// StageWidths.NonRecursive); an FIR's output m is sum_k h[k]
 // x[mR-k] over k <= mR (inputs before the first are zero), exact, rounded
 // half up at OutputShift and saturated to OutputBits. Stage i's output is a
 // code of Widths.Stages[i].OutputBits bits. A complex (I/Q) chain is two
@@ -29,7 +31,8 @@ type Model struct {
 
 // NewModel returns the integer data path of c planned as w, in its reset
 // state (every register and delay line zero). It refuses a CIC whose full
-// register is wider than MaxModelBits (127).
+// register is wider than the model runs (cicModelBits: MaxModelBits, 127,
+// for the recursive form; 63 for the non-recursive one).
 func NewModel(c Cascade, w *Widths) (*Model, error) {
 	if len(w.Stages) != len(c.Stages) || len(c.Stages) == 0 {
 		return nil, fmt.Errorf("fixed: model of %d stages with widths of %d", len(c.Stages), len(w.Stages))
@@ -38,10 +41,10 @@ func NewModel(c Cascade, w *Widths) (*Model, error) {
 	for i, st := range c.Stages {
 		sw := &w.Stages[i]
 		if st.CIC {
-			if sw.Pruning.FullBits > MaxModelBits {
-				return nil, fmt.Errorf("fixed: stage %d: the CIC's %d-bit registers are beyond the integer model's %d bits", i+1, sw.Pruning.FullBits, MaxModelBits)
+			if lim := cicModelBits(sw); sw.Pruning.FullBits > lim {
+				return nil, fmt.Errorf("fixed: stage %d: the CIC's %d-bit registers are beyond the integer model's %d bits", i+1, sw.Pruning.FullBits, lim)
 			}
-			m.stages = append(m.stages, newCICFilter(sw.Pruning))
+			m.stages = append(m.stages, newCICInt(sw))
 			continue
 		}
 		m.stages = append(m.stages, newFIRInt(sw.Coefficients.Ints, st.R, sw.OutputShift, sw.OutputBits))
@@ -115,4 +118,14 @@ func RunCodes(ctx context.Context, c Cascade, w *Widths, x []int64) ([]int64, []
 		fl = append(fl, yf...)
 	}
 	return codes, fl, nil
+}
+
+// cicModelBits is the widest CIC register the integer model runs for the
+// stage: MaxModelBits in 128-bit arithmetic for the recursive form, 63 for
+// the non-recursive one, whose sub-stages run in int64.
+func cicModelBits(sw *StageWidths) int {
+	if sw.NonRecursive {
+		return 63
+	}
+	return MaxModelBits
 }

@@ -32,7 +32,8 @@ type StageReport struct {
 	// stage's taps before quantisation; absent on every other stage.
 	GainCorrection float64 `json:"gain_correction,omitempty"`
 	// CIC: pruned register widths (integrators then combs) and the LSBs each
-	// drops, the output's last.
+	// drops, the output's last. A non-recursive CIC: its sub-stages' output
+	// widths, and one entry, the LSBs its output drops.
 	RegisterBits []int `json:"register_bits,omitempty"`
 	DroppedBits  []int `json:"dropped_bits,omitempty"`
 	// RoundingPoints states every rounding, truncation and saturation point.
@@ -150,6 +151,10 @@ func (r *Result) Report(withHardware bool) ChainReport {
 		if sw.CIC {
 			s.RegisterBits = append([]int{}, sw.Pruning.RegisterBits...)
 			s.DroppedBits = append([]int{}, sw.Pruning.Dropped...)
+			if sw.NonRecursive {
+				s.RegisterBits = append([]int{}, sw.SubStageBits...)
+				s.DroppedBits = []int{sw.OutputShift}
+			}
 		} else {
 			f := sw.Coefficients.Frac
 			s.CoefficientBits, s.CoefficientFrac = sw.Coefficients.Bits, &f

@@ -93,6 +93,9 @@ type Spec struct {
 	Kinds     []chain.Kind
 	CICOrders []int
 	CICDelays []int
+	// CICForms is search.cic_forms: the CIC forms the search tries,
+	// ["recursive"] by default (chain.Recursive alone).
+	CICForms []chain.CICForm
 	// SHA256 is the SHA-256 of the spec's text as parsed (the built-in
 	// example's text for Example), in lower-case hexadecimal: report.json's
 	// spec_sha256, which ties a report to the file that made it.
@@ -129,6 +132,7 @@ func (s *Spec) SearchSettings() optimize.Settings {
 		Kinds:     append([]chain.Kind(nil), s.Kinds...),
 		CICOrders: append([]int(nil), s.CICOrders...),
 		CICDelays: append([]int(nil), s.CICDelays...),
+		CICForms:  append([]chain.CICForm(nil), s.CICForms...),
 		Limits:    s.Limits,
 		Cost:      s.CostSettings(),
 		Fixed:     s.FixedSettings(),
@@ -231,7 +235,7 @@ var known = []key{
 	{path: "hardware.max_memory_bits"}, {path: "hardware.multiplierless"},
 	{path: "cost", table: true}, {path: "cost.symmetry"},
 	{path: "search", table: true}, {path: "search.max_stages"}, {path: "search.kinds"},
-	{path: "search.cic_orders"}, {path: "search.cic_delays"},
+	{path: "search.cic_orders"}, {path: "search.cic_delays"}, {path: "search.cic_forms"},
 }
 
 // parser holds one file's data while it is checked.
@@ -792,6 +796,14 @@ func (p *parser) build() (*Spec, error) {
 	} else if ok {
 		out.CICDelays = l
 	}
+	out.CICForms = []chain.CICForm{chain.Recursive}
+	if v, ok := p.lookup("search.cic_forms"); ok {
+		forms, err := p.cicForms(v)
+		if err != nil {
+			return nil, err
+		}
+		out.CICForms = forms
+	}
 
 	norm, err := cs.Normalize()
 	if err != nil {
@@ -833,6 +845,39 @@ func (p *parser) kinds(v any) ([]chain.Kind, error) {
 	for _, k := range chain.Kinds() {
 		if seen[k] {
 			out = append(out, k)
+		}
+	}
+	return out, nil
+}
+
+// cicForms reads search.cic_forms: a list of "recursive" and
+// "nonrecursive", each at most once, returned in that order.
+func (p *parser) cicForms(v any) ([]chain.CICForm, error) {
+	arr, ok := v.([]any)
+	if !ok || len(arr) == 0 {
+		return nil, p.errAt("search.cic_forms", v, `want a list of CIC forms such as ["recursive", "nonrecursive"]`)
+	}
+	seen := map[chain.CICForm]bool{}
+	for _, e := range arr {
+		s, _ := e.(string)
+		var f chain.CICForm
+		switch s {
+		case "recursive":
+			f = chain.Recursive
+		case "nonrecursive":
+			f = chain.NonRecursive
+		default:
+			return nil, p.errAt("search.cic_forms", v, `unknown CIC form %s; want "recursive" or "nonrecursive"`, show(e))
+		}
+		if seen[f] {
+			return nil, p.errAt("search.cic_forms", v, "CIC form %s is listed twice", show(e))
+		}
+		seen[f] = true
+	}
+	var out []chain.CICForm
+	for _, f := range []chain.CICForm{chain.Recursive, chain.NonRecursive} {
+		if seen[f] {
+			out = append(out, f)
 		}
 	}
 	return out, nil

@@ -189,6 +189,9 @@ func TestParseErrors(t *testing.T) {
 		{"order zero", "[search]\ncic_orders = [0]", []string{"search.cic_orders", "[1, 10]"}},
 		{"delay high", "[search]\ncic_delays = [5]", []string{"search.cic_delays", "[1, 4]"}},
 		{"delays empty", "[search]\ncic_delays = []", []string{"search.cic_delays", "at least one"}},
+		{"forms unknown", "[search]\ncic_forms = [\"recursive\", \"polyphase\"]", []string{"search.cic_forms", `"polyphase"`, `"nonrecursive"`}},
+		{"forms twice", "[search]\ncic_forms = [\"nonrecursive\", \"nonrecursive\"]", []string{"search.cic_forms", "twice"}},
+		{"forms empty", "[search]\ncic_forms = []", []string{"search.cic_forms", "want a list"}},
 	} {
 		t.Run(tc.name, func(t *testing.T) {
 			text := minimal

@@ -109,6 +109,8 @@ type Limits struct {
 	Kinds     []string `json:"kinds"`
 	CICOrders []int    `json:"cic_orders"`
 	CICDelays []int    `json:"cic_delays"`
+	// CICForms is search.cic_forms: "recursive" and/or "nonrecursive".
+	CICForms []string `json:"cic_forms"`
 }
 
 // Search summarises the search.
@@ -176,6 +178,21 @@ type Chain struct {
 	plan *handoffPlan
 }
 
+// SubStage is one sub-stage of a non-recursive CIC (cost.SubStage): its
+// input rate and words, its lanes at the clock (1 without one) in and out,
+// its adds per output, its hardware adders (those adds times its output
+// lanes) and its delay line's register bits.
+type SubStage struct {
+	InputRateHz   float64 `json:"input_rate_hz"`
+	InputBits     int     `json:"input_bits"`
+	OutputBits    int     `json:"output_bits"`
+	ParallelLanes int     `json:"parallel_lanes"`
+	OutputLanes   int     `json:"output_lanes"`
+	AddsPerOutput int     `json:"adds_per_output"`
+	Adders        int     `json:"adders"`
+	RegisterBits  int     `json:"register_bits"`
+}
+
 // Stage is one stage of a chain.
 type Stage struct {
 	Kind                string  `json:"kind"`
@@ -203,9 +220,16 @@ type Stage struct {
 	AddersEstimated   bool `json:"adders_estimated,omitempty"`
 
 	// CIC only.
-	CICOrder     int   `json:"cic_order,omitempty"`
-	CICDelay     int   `json:"cic_delay,omitempty"`
+	CICOrder int `json:"cic_order,omitempty"`
+	CICDelay int `json:"cic_delay,omitempty"`
+	// CICForm is "recursive" (integrators and combs) or "nonrecursive"
+	// (log2 R sub-stages (1 + z^-1)^N decimating by 2; chain.NonRecursive).
+	CICForm string `json:"cic_form,omitempty"`
+	// RegisterBits: a recursive CIC's pruned registers (integrators then
+	// combs); a non-recursive CIC's sub-stage output widths.
 	RegisterBits []int `json:"register_bits,omitempty"`
+	// SubStages: a non-recursive CIC's sub-stages as cost prices them.
+	SubStages []SubStage `json:"sub_stages,omitempty"`
 
 	// Half-band and FIR only.
 	Variant        string    `json:"variant,omitempty"` // FIR: "multiband" or "lowpass"
@@ -235,7 +259,11 @@ func NewSpec(s *specfile.Spec) Spec {
 			MaxStages: s.MaxStages,
 			CICOrders: append([]int{}, s.CICOrders...),
 			CICDelays: append([]int{}, s.CICDelays...),
+			CICForms:  []string{},
 		},
+	}
+	for _, f := range s.CICForms {
+		out.SearchLimits.CICForms = append(out.SearchLimits.CICForms, f.String())
 	}
 	out.Words.CoefficientsMode = s.CoefMode()
 	out.Words.UnityGain = s.UnityGain
@@ -306,6 +334,10 @@ func NewChain(spec chain.Spec, cand optimize.Candidate, clock bool) (Chain, erro
 				m, l := sf.Multipliers, max(1, sf.Lanes)
 				s.Multipliers, s.ParallelLanes = &m, &l
 			}
+			for _, ss := range sf.SubStages {
+				s.SubStages = append(s.SubStages, SubStage{InputRateHz: ss.InputRate, InputBits: ss.InputBits, OutputBits: ss.OutputBits,
+					ParallelLanes: ss.Lanes, OutputLanes: ss.OutputLanes, AddsPerOutput: ss.AddsPerOutput, Adders: ss.Adders, RegisterBits: ss.RegisterBits})
+			}
 			if f.Multiplierless {
 				s.Adders, s.AddersEstimated = &sf.Adders, sf.AddersEstimated
 				if _, fir := st.(chain.FIRStage); fir {
@@ -317,7 +349,7 @@ func NewChain(spec chain.Spec, cand optimize.Candidate, clock bool) (Chain, erro
 		// chain.FIRStages).
 		switch x := st.(type) {
 		case chain.CICStage:
-			s.CICOrder, s.CICDelay = x.N, x.M
+			s.CICOrder, s.CICDelay, s.CICForm = x.N, x.M, x.Form.String()
 			s.RegisterBits = append([]int{}, x.RegisterBits...)
 		case chain.FIRStage:
 			s.Taps = x.Length

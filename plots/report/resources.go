@@ -63,6 +63,9 @@ func NewResources(c *Chain, clock, outRate float64) *Resources {
 	r := &Resources{Lanes: 1}
 	for i, st := range c.Stages {
 		sr := StageResources{Stage: i + 1, Kind: st.Kind, Lanes: 1}
+		if st.CICForm == "nonrecursive" {
+			sr.Kind = "cic (non-recursive)"
+		}
 		if st.ParallelLanes != nil {
 			sr.Lanes = *st.ParallelLanes
 		}
