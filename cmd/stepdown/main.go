@@ -165,7 +165,7 @@ func newApp(stdout, stderr io.Writer) *cli.App {
 		ExitErrHandler:            func(*cli.Context, error) {},
 		Action: func(c *cli.Context) error {
 			if c.Args().Present() {
-				return usagef("command %q: unknown (want design, plan, check or sweep)", c.Args().First())
+				return usagef("command %q: unknown (want design, plan, check, simulate or sweep)", c.Args().First())
 			}
 			return cli.ShowAppHelp(c)
 		},
