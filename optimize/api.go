@@ -18,12 +18,15 @@ const (
 
 // Limits are what the fabric can build; a zero field is no limit. Chains
 // that break one are dropped (ReasonOverRegisterBits, ReasonOverCICFactor,
-// ReasonOverMultipliers, ReasonOverMemory), so the front holds only chains
-// within them.
+// ReasonOverMultipliers, ReasonOverMemory, ReasonOverAccumulatorBits), so
+// the front holds only chains within them.
 type Limits struct {
 	// MaxRegisterBits is the widest register a CIC may need (its pruned
 	// integrator and comb registers, chain.PruneCIC): an accumulator's
-	// width in the fabric, such as 48.
+	// width in the fabric, such as 48. With a fixed coefficient width it
+	// bounds FIR and half-band accumulators too (the exact sum of products
+	// of the rounded taps, fixed.StageWidths.AccumulatorBits), judged when
+	// the search plans a designed chain's rounded taps.
 	MaxRegisterBits int
 	// MaxCICFactor is the largest decimation a CIC stage may take.
 	MaxCICFactor int

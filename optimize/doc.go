@@ -66,9 +66,12 @@
 // of its range is dropped there too (the multipliers bounded below by
 // ceil(multiplies per second / clock) for each stage with multiplies, each
 // stage having its own); the others are checked on their real figures
-// after design and after every re-design. Each is counted under its
-// Reason; when the front is empty and a limit dropped candidates,
-// Result.Reason names the one that dropped the most.
+// after design and after every re-design. With a fixed coefficient width,
+// MaxRegisterBits also bounds every FIR and half-band accumulator of the
+// word-length plan, judged where the chain's rounded taps are
+// (ReasonOverAccumulatorBits). Each is counted under its Reason; when the
+// front is empty and a limit dropped candidates, Result.Reason names the
+// one that dropped the most.
 //
 // # Multiplierless
 //

@@ -49,29 +49,36 @@ const (
 	ReasonOverCICFactor    Reason = "cic_factor_over_limit"
 	ReasonOverMultipliers  Reason = "multipliers_over_limit"
 	ReasonOverMemory       Reason = "memory_over_limit"
+	// ReasonOverAccumulatorBits: a FIR or half-band stage's accumulator
+	// (fixed.StageWidths.AccumulatorBits, the exact sum of products of its
+	// rounded taps) is wider than Limits.MaxRegisterBits. It is judged
+	// where the search plans a chain's rounded taps (a fixed coefficient
+	// width), so it counts designed chains only.
+	ReasonOverAccumulatorBits Reason = "fir_accumulator_over_limit"
 )
 
 // reasonText is each Reason in words.
 var reasonText = map[Reason]string{
-	ReasonCICRejection:     "cic rejection below target",
-	ReasonCICDroop:         "cic droop not compensated",
-	ReasonHalfBandEdges:    "halfband edges do not fit",
-	ReasonShortFIR:         "fir stage under 3 taps",
-	ReasonDesignFailed:     "design failed",
-	ReasonEvaluateFailed:   "evaluation failed",
-	ReasonMissRejection:    "designed chain misses rejection",
-	ReasonMissRipple:       "designed chain misses ripple",
-	ReasonCICNull:          "cic null in passband",
-	ReasonGaveUp:           "a stage failed to design in other chains",
-	ReasonCICBeaten:        "cic beaten by another order or delay",
-	ReasonLongFIR:          "fir stage over the tap limit",
-	ReasonRoundingFloor:    "rounding floor above the stopband at the coefficient width",
-	ReasonMissQuantised:    "misses the targets with its taps rounded to the coefficient width",
-	ReasonWordLengths:      "word lengths could not be planned",
-	ReasonOverRegisterBits: "a cic register wider than hardware.max_register_bits",
-	ReasonOverCICFactor:    "a cic factor above hardware.max_cic_factor",
-	ReasonOverMultipliers:  "more multipliers at the clock than hardware.max_multipliers",
-	ReasonOverMemory:       "more memory than hardware.max_memory_bits",
+	ReasonCICRejection:        "cic rejection below target",
+	ReasonCICDroop:            "cic droop not compensated",
+	ReasonHalfBandEdges:       "halfband edges do not fit",
+	ReasonShortFIR:            "fir stage under 3 taps",
+	ReasonDesignFailed:        "design failed",
+	ReasonEvaluateFailed:      "evaluation failed",
+	ReasonMissRejection:       "designed chain misses rejection",
+	ReasonMissRipple:          "designed chain misses ripple",
+	ReasonCICNull:             "cic null in passband",
+	ReasonGaveUp:              "a stage failed to design in other chains",
+	ReasonCICBeaten:           "cic beaten by another order or delay",
+	ReasonLongFIR:             "fir stage over the tap limit",
+	ReasonRoundingFloor:       "rounding floor above the stopband at the coefficient width",
+	ReasonMissQuantised:       "misses the targets with its taps rounded to the coefficient width",
+	ReasonWordLengths:         "word lengths could not be planned",
+	ReasonOverRegisterBits:    "a cic register wider than hardware.max_register_bits",
+	ReasonOverCICFactor:       "a cic factor above hardware.max_cic_factor",
+	ReasonOverMultipliers:     "more multipliers at the clock than hardware.max_multipliers",
+	ReasonOverMemory:          "more memory than hardware.max_memory_bits",
+	ReasonOverAccumulatorBits: "a fir or half-band accumulator wider than hardware.max_register_bits",
 }
 
 // Text is r in words ("cic rejection below target"); a name it does not
@@ -107,7 +114,7 @@ func Reasons() []Reason {
 	return []Reason{ReasonCICRejection, ReasonCICDroop, ReasonHalfBandEdges, ReasonShortFIR, ReasonDesignFailed,
 		ReasonEvaluateFailed, ReasonMissRejection, ReasonMissRipple, ReasonCICNull, ReasonGaveUp, ReasonCICBeaten,
 		ReasonLongFIR, ReasonRoundingFloor, ReasonMissQuantised, ReasonWordLengths,
-		ReasonOverRegisterBits, ReasonOverCICFactor, ReasonOverMultipliers, ReasonOverMemory}
+		ReasonOverRegisterBits, ReasonOverCICFactor, ReasonOverMultipliers, ReasonOverMemory, ReasonOverAccumulatorBits}
 }
 
 type dropCode uint8

@@ -303,8 +303,12 @@ func limitReason(d map[Reason]int) string {
 		name string
 	}{{ReasonOverRegisterBits, "Limits.MaxRegisterBits"}, {ReasonOverCICFactor, "Limits.MaxCICFactor"},
 		{ReasonOverMultipliers, "Limits.MaxMultipliers"}, {ReasonOverMemory, "Limits.MaxMemoryBits"}} {
-		if d[l.r] > n {
-			best, n = l.name, d[l.r]
+		k := d[l.r]
+		if l.r == ReasonOverRegisterBits {
+			k += d[ReasonOverAccumulatorBits] // the same limit, on FIR accumulators
+		}
+		if k > n {
+			best, n = l.name, k
 		}
 	}
 	if best == "" {
@@ -401,6 +405,9 @@ func (r realDesigner) survive(c Candidate, spec chain.Spec) (Candidate, Reason) 
 				if err := f.CountInts(cx(cur.Chain), planInts(ws)); err != nil {
 					return c, ReasonWordLengths
 				}
+			}
+			if accumulatorOverLimit(ws, r.s.Limits) {
+				return c, ReasonOverAccumulatorBits
 			}
 			cur.Figures, cur.Quantised, cur.MarginDB = f, qa, qm
 			cur.survived = true

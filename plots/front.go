@@ -68,6 +68,11 @@ type FrontData struct {
 	// the labelled chains' rejection so that their margin can be read off.
 	// Zero writes none.
 	TargetDB float64
+	// Adders says that every Point's Multiplies holds the chain's hardware
+	// adders as built instead (a multiplierless plan, whose cost axis they
+	// are): the x axis, the legend and the labels then say adders. The
+	// zero value draws multiplies per output.
+	Adders bool
 }
 
 // Front draws the projection of a three-axis Pareto front (multiplies per
@@ -115,6 +120,9 @@ func buildFront(d FrontData) (*Figure, *frontPanel, error) {
 	p.X.Min, p.X.Max, xlog = axisRange(xs)
 	p.Y.Min, p.Y.Max, ylog = axisRange(ys)
 	p.X.Label.Text = "Multiplies per output sample"
+	if d.Adders {
+		p.X.Label.Text = "Hardware adders (multiplierless, as built)"
+	}
 	p.X.Tick.Marker = scaledTicks{scale: 1}
 	if xlog {
 		p.X.Scale = plot.LogScale{}
@@ -189,7 +197,7 @@ func buildFront(d FrontData) (*Figure, *frontPanel, error) {
 	}
 	l.LineStyle = draw.LineStyle{Color: color.RGBA{0x40, 0x40, 0x40, 0xff}, Width: vg.Points(stairWidth)}
 	p.Add(l)
-	legAdd(fmt.Sprintf("Pareto front on multiplies and memory (%s)", chains(len(stairPts))), l, legendMarker{circleMarker, legendColor})
+	legAdd(fmt.Sprintf("Pareto front on %s and memory (%s)", costName(d.Adders), chains(len(stairPts))), l, legendMarker{circleMarker, legendColor})
 
 	if len(latPts) > 0 {
 		s, err := markers(latPts, diamondMarker, colorOf)
@@ -223,7 +231,7 @@ func buildFront(d FrontData) (*Figure, *frontPanel, error) {
 		sty := textStyle(10, true)
 		sty.Color = color.RGBA{0xA0, 0x40, 0x00, 0xff} // a darker vermilion for text contrast
 		fp.labels = append(fp.labels, frontLabel{at: at, r: ringRadius + ringWidth/2, own: []int{d.Recommended, len(fp.marks) - 1},
-			text: "Recommended: " + chainText(r, d.TargetDB), style: sty})
+			text: "Recommended: " + chainText(r, d.TargetDB, d.Adders), style: sty})
 	}
 	if c := d.Checked; c != nil {
 		at := plotter.XY{X: c.Multiplies, Y: c.MemoryBits}
@@ -238,7 +246,7 @@ func buildFront(d FrontData) (*Figure, *frontPanel, error) {
 		sty := textStyle(10, true)
 		sty.Color = checkedColor
 		fp.labels = append(fp.labels, frontLabel{at: at, r: crossRadius + 3, own: []int{len(fp.marks) - 1},
-			text: "Checked: " + chainText(*c, d.TargetDB), style: sty})
+			text: "Checked: " + chainText(*c, d.TargetDB, d.Adders), style: sty})
 	}
 
 	return &Figure{title: title, panels: []panel{{p: p, weight: 1, draw: fp.draw}}, colorKey: key}, fp, nil
@@ -443,10 +451,22 @@ func chains(n int) string {
 	return fmt.Sprintf("%d chains", n)
 }
 
+// costName is the x axis's quantity in words.
+func costName(adders bool) string {
+	if adders {
+		return "adders"
+	}
+	return "multiplies"
+}
+
 // chainText is a labelled chain's notation and figures, on three lines:
 // its notation, its costs, its rejection.
-func chainText(pt Point, targetDB float64) string {
-	costs := fmt.Sprintf("%s mult/out, %s bits", amount(pt.Multiplies), amount(pt.MemoryBits))
+func chainText(pt Point, targetDB float64, adders bool) string {
+	unit := "mult/out"
+	if adders {
+		unit = "adders"
+	}
+	costs := fmt.Sprintf("%s %s, %s bits", amount(pt.Multiplies), unit, amount(pt.MemoryBits))
 	if pt.LatencyS > 0 {
 		u := timeUnit(pt.LatencyS)
 		costs += ", " + trimFloat(pt.LatencyS/u.scale) + " " + u.name

@@ -1,6 +1,7 @@
 package plots
 
 import (
+	"bytes"
 	"fmt"
 	"io"
 	"math"
@@ -397,5 +398,30 @@ func TestFrontSmallAndLarge(t *testing.T) {
 				t.Errorf("trial %d at %v: %v", trial, s, err)
 			}
 		}
+	}
+}
+
+// With Adders set the x axis, the legend and the recommended chain's label
+// say adders, not multiplies (a multiplierless plan's cost axis).
+func TestFrontAdders(t *testing.T) {
+	d := FrontData{Adders: true, Front: []Point{
+		{Multiplies: 65, MemoryBits: 1245, LatencyS: 4e-7, RejectionDB: 81, Label: "a"},
+		{Multiplies: 90, MemoryBits: 900, LatencyS: 3e-7, RejectionDB: 82, Label: "b"},
+	}}
+	f, err := Front(d)
+	if err != nil {
+		t.Fatal(err)
+	}
+	var b bytes.Buffer
+	if err := f.Render(&b, "svg", 6*vg.Inch, 4*vg.Inch); err != nil {
+		t.Fatal(err)
+	}
+	for _, want := range []string{"Hardware adders", "Pareto front on adders and memory", "65 adders"} {
+		if !bytes.Contains(b.Bytes(), []byte(want)) {
+			t.Errorf("the figure lacks %q", want)
+		}
+	}
+	if bytes.Contains(b.Bytes(), []byte("mult/out")) || bytes.Contains(b.Bytes(), []byte("Multiplies per output")) {
+		t.Error("the figure still says multiplies")
 	}
 }

@@ -232,8 +232,7 @@ func runCheck(c *cli.Context) error {
 	defer j.out.Discard()
 	set := j.spec.SearchSettings()
 	cand, why, err := j.designNamed(plan, set)
-	switch why {
-	case optimize.ReasonOverRegisterBits, optimize.ReasonOverCICFactor, optimize.ReasonOverMultipliers, optimize.ReasonOverMemory:
+	if why.OverLimit() {
 		j.limitNote = "beyond the fabric's limits: " + why.Text()
 	}
 	if err != nil {

@@ -144,7 +144,31 @@ func testChains(n int) []planned {
 	}
 	c, w := edgeChain()
 	out = append(out, planned{c, w, Options{Prefix: "Edge"}})
+	for i, nr := range nrChains() {
+		out = append(out, planned{nr.cas, nr.w, Options{Prefix: fmt.Sprintf("Nr%d", i+1), Notation: "non-recursive CIC"}})
+	}
 	return out
+}
+
+// nrChains are planned chains with non-recursive CICs: order 1 with R = 2
+// alone, complex; order 6 with R = 256 (eight sub-stages, 16 to 58 bits)
+// before a half-band and an FIR; order 3, R = 8, between FIRs as the
+// second stage.
+func nrChains() []planned {
+	rng := rand.New(rand.NewPCG(15, 4))
+	nr := func(n, r int) fixed.Stage { return fixed.Stage{CIC: true, N: n, M: 1, R: r, NonRecursive: true} }
+	mk := func(c fixed.Cascade, words fixed.Words) planned {
+		w, err := fixed.Plan(c, words, fixed.Settings{})
+		if err != nil {
+			panic(err)
+		}
+		return planned{cas: c, w: w}
+	}
+	return []planned{
+		mk(fixed.Cascade{InputRate: 1, Complex: true, Stages: []fixed.Stage{nr(1, 2)}}, fixed.Words{InputBits: 8, OutputBits: 8}),
+		mk(fixed.Cascade{InputRate: 1, Stages: []fixed.Stage{nr(6, 256), firStage(rng, true), firStage(rng, false)}}, fixed.Words{InputBits: 10, OutputBits: 24, CoefBits: 18}),
+		mk(fixed.Cascade{InputRate: 1, Stages: []fixed.Stage{firStage(rng, false), nr(3, 8), firStage(rng, false)}}, fixed.Words{InputBits: 14, OutputBits: 16, CoefBits: 12}),
+	}
 }
 
 // constant is one constant the files must declare, from the plan itself
@@ -166,12 +190,21 @@ func want(p planned) []constant {
 	b2i := map[bool]int{false: 0, true: 1}
 	out := []constant{
 		sc("NUM_STAGES", len(p.w.Stages)), sc("INPUT_BITS", p.w.InputBits), sc("OUTPUT_BITS", p.w.OutputBits),
-		sc("COMPLEX", b2i[p.cas.Complex]), sc("KIND_CIC", 0), sc("KIND_FIR", 1), sc("KIND_HALFBAND", 2),
+		sc("COMPLEX", b2i[p.cas.Complex]), sc("KIND_CIC", 0), sc("KIND_FIR", 1), sc("KIND_HALFBAND", 2), sc("KIND_CIC_NONRECURSIVE", 3),
+	}
+	ints := func(v []int) []int64 {
+		o := make([]int64, len(v))
+		for k, x := range v {
+			o[k] = int64(x)
+		}
+		return o
 	}
 	for i, s := range p.w.Stages {
 		n := "S" + strconv.Itoa(i+1) + "_"
 		kind := 1
 		switch {
+		case s.CIC && s.NonRecursive:
+			kind = 3
 		case s.CIC:
 			kind = 0
 		case s.HalfBand:
@@ -179,15 +212,19 @@ func want(p planned) []constant {
 		}
 		out = append(out, sc(n+"KIND", kind), sc(n+"R", p.cas.Stages[i].R), sc(n+"INPUT_BITS", s.InputBits),
 			sc(n+"OUTPUT_BITS", s.OutputBits), sc(n+"ACC_BITS", s.AccumulatorBits))
+		if s.CIC && s.NonRecursive {
+			// chain.NonRecursiveBits, recomputed: Bin + N i for i = 1..log2 R.
+			st := p.cas.Stages[i]
+			var subs []int64
+			for r, j := st.R, 1; r > 1; r, j = r/2, j+1 {
+				subs = append(subs, int64(s.InputBits+st.N*j))
+			}
+			out = append(out, sc(n+"OUTPUT_SHIFT", int(subs[len(subs)-1])-s.OutputBits), sc(n+"ORDER", st.N), sc(n+"NUM_SUBSTAGES", len(subs)),
+				constant{name: pre + "_" + n + "SUBSTAGE_BITS", array: true, values: subs})
+			continue
+		}
 		if s.CIC {
 			pr := s.Pruning
-			ints := func(v []int) []int64 {
-				o := make([]int64, len(v))
-				for k, x := range v {
-					o[k] = int64(x)
-				}
-				return o
-			}
 			out = append(out, sc(n+"OUTPUT_SHIFT", pr.Dropped[2*pr.N]), sc(n+"ORDER", p.cas.Stages[i].N), sc(n+"DELAY", p.cas.Stages[i].M),
 				sc(n+"GUARD_BITS", pr.GuardBits), sc(n+"NUM_REGS", 2*pr.N),
 				constant{name: pre + "_" + n + "REG_BITS", array: true, values: ints(pr.RegisterBits)},

@@ -35,7 +35,8 @@
 //     An array is one flat vector with element k in bits [k*W +: W] (Icarus
 //     Verilog 11 rejects unpacked parameter arrays, tried here): coefficients with
 //     W = Sn_COEF_BITS, two's complement, read with $signed(...); the CIC's
-//     register arrays with W = STEPDOWN_FIELD_BITS (8), unsigned.
+//     register and sub-stage arrays with W = STEPDOWN_FIELD_BITS (8),
+//     unsigned.
 //
 // # Names
 //
@@ -50,18 +51,21 @@
 //   - INPUT_BITS, OUTPUT_BITS: the chain's input (ADC) and output words;
 //   - COMPLEX: 1 for complex (I/Q) data, two identical real data paths, 0
 //     for real;
-//   - KIND_CIC, KIND_FIR, KIND_HALFBAND: the codes 0, 1, 2 of Sn_KIND.
+//   - KIND_CIC, KIND_FIR, KIND_HALFBAND, KIND_CIC_NONRECURSIVE: the codes
+//     0, 1, 2, 3 of Sn_KIND.
 //
 // Every stage:
 //   - Sn_KIND: the stage's kind code;
 //   - Sn_R: its decimation factor;
 //   - Sn_INPUT_BITS, Sn_OUTPUT_BITS: its input and output words;
 //   - Sn_OUTPUT_SHIFT: LSBs removed from the accumulator (CIC: the full
-//     register) to make the output; an FIR rounds half up and saturates, a
-//     CIC truncates (floor); negative means a left shift;
+//     register; a non-recursive CIC: its last sub-stage) to make the
+//     output; an FIR rounds half up and saturates, a CIC truncates (floor);
+//     negative means a left shift;
 //   - Sn_ACC_BITS: an FIR's accumulator, the worst-case width of the exact
 //     sum of products; a CIC's full register width, Hogenauer's Bmax + 1
-//     plus its guard bits.
+//     plus its guard bits; a non-recursive CIC's last sub-stage,
+//     Bin + N log2 R.
 //
 // FIR and half-band stages:
 //   - Sn_NUM_TAPS: the number of coefficients, the full impulse response
@@ -80,6 +84,14 @@
 //   - Sn_REG_DROPPED: LSBs truncated (floor) at each register's input. The
 //     output's own truncation is Sn_OUTPUT_SHIFT.
 //
+// Non-recursive CIC stages (KIND_CIC_NONRECURSIVE; chain.NonRecursive,
+// M = 1, R = 2^k): no integrators, combs or pruning, so none of the
+// recursive CIC's register constants, but
+//   - Sn_ORDER: the order N, each sub-stage being (1 + z^-1)^N;
+//   - Sn_NUM_SUBSTAGES: k = log2 R sub-stages, each decimating by 2;
+//   - Sn_SUBSTAGE_BITS: each sub-stage's output width, exact (full
+//     precision), Bin + N i bits for sub-stage i (index 0: sub-stage 1).
+//
 // Each section's comments add, for the reader, the rates in Hz, the stage's
 // DC gain (input full scale to output full scale), any gain correction
 // folded into its taps and the rounding points the plan states
@@ -89,7 +101,8 @@
 //
 // The package's tests compile the files of seeded random planned chains
 // (fixed.Plan) and of a hand-made chain at the limits (32-bit words holding
-// +-(2^31 - 1), 40- and 64-bit words, one tap, 63-bit CIC registers) with
+// +-(2^31 - 1), 40- and 64-bit words, one tap, 63-bit CIC registers) and
+// of chains with non-recursive CICs (order 1 to 6, R = 2 to 256) with
 // gcc -std=c99 -Wall -Wextra -Werror -pedantic, GHDL (--std=08 and
 // --std=93c) and Icarus Verilog -g2012, run a program or testbench printing
 // every constant and compare it with the plan, every coefficient exact;

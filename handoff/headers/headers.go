@@ -41,6 +41,9 @@ const (
 	KindCIC      = 0
 	KindFIR      = 1
 	KindHalfBand = 2
+	// KindCICNonRecursive is a CIC built non-recursively
+	// (chain.NonRecursive): log2 R sub-stages (1 + z^-1)^N decimating by 2.
+	KindCICNonRecursive = 3
 )
 
 // FieldBits is the width of one element of a Verilog flat vector of small
@@ -251,6 +254,7 @@ func build(c fixed.Cascade, w *fixed.Widths, o Options) (*model, error) {
 			{name: "KIND_CIC", doc: "stage kind code: CIC", value: KindCIC},
 			{name: "KIND_FIR", doc: "stage kind code: FIR", value: KindFIR},
 			{name: "KIND_HALFBAND", doc: "stage kind code: half-band FIR", value: KindHalfBand},
+			{name: "KIND_CIC_NONRECURSIVE", doc: "stage kind code: non-recursive CIC, log2 R sub-stages (1 + z^-1)^N decimating by 2", value: KindCICNonRecursive},
 		},
 	})
 	for i := range c.Stages {
@@ -264,8 +268,8 @@ func build(c fixed.Cascade, w *fixed.Widths, o Options) (*model, error) {
 }
 
 func (m *model) stage(i int, st fixed.Stage, sw *fixed.StageWidths) (section, error) {
-	if st.CIC != sw.CIC || (!st.CIC && st.HalfBand != sw.HalfBand) {
-		return section{}, fmt.Errorf("the cascade's stage is a %s but the widths' a %s: give the widths fixed.Plan returned for this cascade", kindName(st.CIC, st.HalfBand), kindName(sw.CIC, sw.HalfBand))
+	if st.CIC != sw.CIC || (!st.CIC && st.HalfBand != sw.HalfBand) || (st.CIC && st.NonRecursive != sw.NonRecursive) {
+		return section{}, fmt.Errorf("the cascade's stage is a %s but the widths' a %s: give the widths fixed.Plan returned for this cascade", kindName(st.CIC, st.HalfBand, st.NonRecursive), kindName(sw.CIC, sw.HalfBand, sw.NonRecursive))
 	}
 	if st.R != sw.R || sw.R < 1 || sw.R > math.MaxInt32 {
 		return section{}, fmt.Errorf("factor R = %d in the cascade, %d in the widths: they must agree and lie in [1, %d]", st.R, sw.R, math.MaxInt32)
@@ -284,12 +288,14 @@ func (m *model) stage(i int, st fixed.Stage, sw *fixed.StageWidths) (section, er
 	n := fmt.Sprintf("S%d_", i+1)
 	kind := int64(KindFIR)
 	switch {
+	case sw.CIC && sw.NonRecursive:
+		kind = KindCICNonRecursive
 	case sw.CIC:
 		kind = KindCIC
 	case sw.HalfBand:
 		kind = KindHalfBand
 	}
-	sec := section{title: fmt.Sprintf("Stage %d: %s", i+1, kindName(sw.CIC, sw.HalfBand))}
+	sec := section{title: fmt.Sprintf("Stage %d: %s", i+1, kindName(sw.CIC, sw.HalfBand, sw.NonRecursive))}
 	if sw.InputRate > 0 {
 		sec.notes = append(sec.notes, fmt.Sprintf("Input rate %s Hz, output rate %s Hz.", g(sw.InputRate), g(sw.InputRate/float64(sw.R))))
 	}
@@ -301,10 +307,13 @@ func (m *model) stage(i int, st fixed.Stage, sw *fixed.StageWidths) (section, er
 		sec.notes = append(sec.notes, comment(p))
 	}
 	sec.items = []item{
-		{name: n + "KIND", doc: "stage kind (KIND_CIC, KIND_FIR, KIND_HALFBAND)", value: kind},
+		{name: n + "KIND", doc: "stage kind (KIND_CIC, KIND_FIR, KIND_HALFBAND, KIND_CIC_NONRECURSIVE)", value: kind},
 		{name: n + "R", doc: "decimation factor", value: int64(sw.R)},
 		{name: n + "INPUT_BITS", doc: "input word, bits", value: int64(sw.InputBits)},
 		{name: n + "OUTPUT_BITS", doc: "output word, bits", value: int64(sw.OutputBits)},
+	}
+	if sw.CIC && sw.NonRecursive {
+		return nonRecursive(sec, n, st, sw)
 	}
 	if sw.CIC {
 		p := sw.Pruning
@@ -383,8 +392,43 @@ func (m *model) stage(i int, st fixed.Stage, sw *fixed.StageWidths) (section, er
 	return sec, nil
 }
 
-func kindName(cic, hb bool) string {
+// nonRecursive adds a non-recursive CIC's constants to sec: its order, its
+// sub-stages and their widths, and the output truncation from the last.
+func nonRecursive(sec section, n string, st fixed.Stage, sw *fixed.StageWidths) (section, error) {
+	if st.N < 1 || st.N > 64 || st.M != 1 || st.R < 2 || st.R&(st.R-1) != 0 {
+		return section{}, fmt.Errorf("non-recursive CIC N = %d, M = %d, R = %d: it needs N in [1, 64], M = 1 and R a power of two, at least 2", st.N, st.M, st.R)
+	}
+	k := 0
+	for 1<<k < st.R {
+		k++
+	}
+	if len(sw.SubStageBits) != k {
+		return section{}, fmt.Errorf("non-recursive CIC of R = %d: its plan has %d sub-stage widths; want %d", st.R, len(sw.SubStageBits), k)
+	}
+	subs := make([]int64, k)
+	for i, b := range sw.SubStageBits {
+		if b < 1 || b > maxFieldBits {
+			return section{}, fmt.Errorf("non-recursive CIC sub-stage %d: width %d must lie in [1, %d]", i+1, b, maxFieldBits)
+		}
+		subs[i] = int64(b)
+	}
+	if full := sw.SubStageBits[k-1]; full != sw.AccumulatorBits || sw.OutputShift != full-sw.OutputBits {
+		return section{}, fmt.Errorf("non-recursive CIC: last sub-stage %d bits, but AccumulatorBits %d and OutputShift %d (want %d) in the widths", full, sw.AccumulatorBits, sw.OutputShift, full-sw.OutputBits)
+	}
+	sec.items = append(sec.items,
+		item{name: n + "OUTPUT_SHIFT", doc: "LSBs truncated (floor) from the last sub-stage to make the output", value: int64(sw.OutputShift)},
+		item{name: n + "ACC_BITS", doc: "the last sub-stage's width (full precision, Bin + N log2 R), bits", value: int64(sw.AccumulatorBits)},
+		item{name: n + "ORDER", doc: "CIC order N: each sub-stage is (1 + z^-1)^N", value: int64(st.N)},
+		item{name: n + "NUM_SUBSTAGES", doc: "sub-stages, each decimating by 2: log2 R", value: int64(k)},
+		item{name: n + "SUBSTAGE_BITS", doc: "each sub-stage's output width, exact, Bin + N i bits (index 0: sub-stage 1)", array: true, values: subs, length: n + "NUM_SUBSTAGES"},
+	)
+	return sec, nil
+}
+
+func kindName(cic, hb, nr bool) string {
 	switch {
+	case cic && nr:
+		return "non-recursive CIC"
 	case cic:
 		return "CIC"
 	case hb:

@@ -185,6 +185,12 @@ func TestErrors(t *testing.T) {
 		{"factor", func(c *fixed.Cascade, w **fixed.Widths, o *Options) { c.Stages[2].R = 4 }, []string{"stage 3", "R = 4"}},
 		{"cic order", func(c *fixed.Cascade, w **fixed.Widths, o *Options) { c.Stages[0].N = 5 }, []string{"stage 1", "N=5"}},
 		{"no pruning", func(c *fixed.Cascade, w **fixed.Widths, o *Options) { (*w).Stages[0].Pruning = nil }, []string{"Pruning is nil"}},
+		{"cic form", func(c *fixed.Cascade, w **fixed.Widths, o *Options) { c.Stages[0].NonRecursive = true }, []string{"stage 1", "non-recursive CIC but the widths' a CIC"}},
+		{"sub-stages", func(c *fixed.Cascade, w **fixed.Widths, o *Options) {
+			c.Stages[0].NonRecursive = true
+			(*w).Stages[0].NonRecursive = true
+			(*w).Stages[0].SubStageBits = []int{26, 32}
+		}, []string{"stage 1", "2 sub-stage widths; want 7"}},
 		{"short registers", func(c *fixed.Cascade, w **fixed.Widths, o *Options) {
 			p := (*w).Stages[0].Pruning
 			p.RegisterBits = p.RegisterBits[:3]

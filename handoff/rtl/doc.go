@@ -60,15 +60,27 @@
 // A CIC's integrators and combs are registers of chain.PruneCIC's widths
 // (CICPruning.RegisterBits), each taking its input truncated (floor) to its
 // unit 2^Dropped[j] and wrapping at its width; the output keeps the
-// OutputBits above Dropped[2N]. An FIR (or half-band) computes
-// y[m] = sum_k h[k] x[mR-k] with the quantised taps, exact in an
-// accumulator of StageWidths.AccumulatorBits (modular; the accumulator holds
-// every sum the input word can make, which Model checks), skipping zero taps
-// and folding symmetric pairs through a pre-adder, then rounds half up at
-// OutputShift (or shifts left when it is negative) and saturates to
-// OutputBits. The expressions spell out every shift and wrap as part-selects
-// of sign-extended vectors, so nothing depends on Verilog's rules for signed
-// operands or expression widths.
+// OutputBits above Dropped[2N].
+//
+// A non-recursive CIC (StageWidths.NonRecursive, chain.NonRecursive) is
+// written as its own structure, with no integrator: log2 R sub-stages in a
+// row, sub-stage i taking every output of the one before, keeping its last
+// N inputs in a delay line of their width and, with the inputs numbered 0,
+// 2, 4, ... of its own stream, computing y_i[m] = sum_j C(N, j) x_i[2m - j]
+// exactly in StageWidths.SubStageBits[i-1] = Bin + N i bits (the sum taken
+// modulo that width, which holds it). Every sub-stage of one input runs in
+// the same clock, so the stage's timing is the recursive CIC's; the output
+// keeps the top OutputBits of the last sub-stage, truncated (floor). Its
+// module is P_s<k>_cic too.
+//
+// An FIR (or half-band) computes y[m] = sum_k h[k] x[mR-k] with the
+// quantised taps, exact in an accumulator of StageWidths.AccumulatorBits
+// (modular; the accumulator holds every sum the input word can make, which
+// Model checks), skipping zero taps and folding symmetric pairs through a
+// pre-adder, then rounds half up at OutputShift (or shifts left when it is
+// negative) and saturates to OutputBits. The expressions spell out every
+// shift and wrap as part-selects of sign-extended vectors, so nothing
+// depends on Verilog's rules for signed operands or expression widths.
 //
 // # Vector files
 //
@@ -103,7 +115,8 @@
 //
 // # Limits
 //
-// CIC registers up to MaxCICBits (127) bits, FIR accumulators and data
+// CIC registers up to MaxCICBits (127) bits (a non-recursive CIC's
+// sub-stages up to MaxBits, 63, as fixed.Model runs them in int64), FIR accumulators and data
 // words up to MaxBits (63) bits, as fixed.Model holds them (int128 and
 // int64); up to MaxTaps taps per FIR; R up to 2^24; a CIC of
 // order up to 32 with M up to 64.

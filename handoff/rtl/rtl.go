@@ -84,7 +84,9 @@ type stage struct {
 	out    int // output word
 	r      int
 
-	p *chain.CICPruning // CIC
+	p   *chain.CICPruning // CIC
+	nr  bool              // a non-recursive CIC: sub-stages (1 + z^-1)^N decimating by 2
+	sub []int             // its sub-stages' output widths, Bin + N i
 
 	h       []int64 // FIR: the quantised taps
 	frac    int
@@ -171,6 +173,12 @@ func checkCIC(s *stage, st fixed.Stage, sw *fixed.StageWidths) error {
 	if p.InputBits != s.in || p.OutputBits != sw.OutputBits {
 		return fmt.Errorf("the register plan's words (%d bits in, %d out) differ from the stage's (%d in, %d out)", p.InputBits, p.OutputBits, s.in, sw.OutputBits)
 	}
+	if st.NonRecursive != sw.NonRecursive {
+		return fmt.Errorf("the widths plan a %s CIC, the cascade's stage is %s", formName(sw.NonRecursive), formName(st.NonRecursive))
+	}
+	if sw.NonRecursive {
+		return checkNR(s, sw)
+	}
 	if p.FullBits > MaxCICBits {
 		return fmt.Errorf("the CIC's full register is %d bits; at most %d are written (the integer model that checks it holds %d)", p.FullBits, MaxCICBits, MaxCICBits)
 	}
@@ -188,6 +196,42 @@ func checkCIC(s *stage, st fixed.Stage, sw *fixed.StageWidths) error {
 		}
 	}
 	s.kind, s.p = "cic", p
+	return nil
+}
+
+func formName(nr bool) string {
+	if nr {
+		return "non-recursive"
+	}
+	return "recursive"
+}
+
+// checkNR checks a non-recursive CIC's plan: M = 1, R = 2^k, k sub-stage
+// widths Bin + N i (chain.NonRecursiveBits), each at most MaxBits (the
+// integer model runs them in int64), and the output the top OutputBits of
+// the last.
+func checkNR(s *stage, sw *fixed.StageWidths) error {
+	p := sw.Pruning
+	if err := chain.NonRecursiveOK(p.M, p.R); err != nil {
+		return err
+	}
+	want := chain.NonRecursiveBits(p.N, p.R, s.in)
+	if len(sw.SubStageBits) != len(want) {
+		return fmt.Errorf("the non-recursive CIC plans %d sub-stages; R = %d needs %d", len(sw.SubStageBits), p.R, len(want))
+	}
+	for i, b := range sw.SubStageBits {
+		if b != want[i] {
+			return fmt.Errorf("sub-stage %d is %d bits; order %d on a %d-bit input makes it %d (Bin + N i, full precision)", i+1, b, p.N, s.in, want[i])
+		}
+	}
+	full := want[len(want)-1]
+	if full > MaxBits {
+		return fmt.Errorf("the non-recursive CIC's last sub-stage is %d bits; at most %d are written (the integer model that checks it holds %d)", full, MaxBits, MaxBits)
+	}
+	if sh := sw.OutputShift; sh != full-sw.OutputBits || sh < 0 {
+		return fmt.Errorf("OutputShift = %d: the %d-bit output of a %d-bit last sub-stage drops %d LSBs", sh, sw.OutputBits, full, full-sw.OutputBits)
+	}
+	s.kind, s.p, s.nr, s.sub, s.shift = "cic", p, true, want, sw.OutputShift
 	return nil
 }
 
@@ -244,7 +288,9 @@ func Model(c fixed.Cascade, w *fixed.Widths, o Options) ([]byte, error) {
 	for i := range cp.stages {
 		s := &cp.stages[i]
 		b.WriteString("\n")
-		if s.kind == "cic" {
+		if s.nr {
+			cp.writeNR(&b, s)
+		} else if s.kind == "cic" {
 			cp.writeCIC(&b, s)
 		} else {
 			cp.writeFIR(&b, s)
@@ -288,6 +334,14 @@ func (cp *chainPlan) header(b *bytes.Buffer, what, extra string) {
 
 // describe is the stage's line in the header.
 func (s *stage) describe() string {
+	if s.nr {
+		subs := make([]string, len(s.sub))
+		for i, v := range s.sub {
+			subs[i] = fmt.Sprint(v)
+		}
+		return fmt.Sprintf("stage %d (%s): CIC N = %d, M = 1, R = %d, non-recursive: %d sub-stages (1 + z^-1)^%d decimating by 2, exact, %s bits; %d-bit input; output truncated by %d LSBs to %d bits",
+			s.k, s.module, s.p.N, s.r, len(s.sub), s.p.N, strings.Join(subs, " "), s.in, s.shift, s.out)
+	}
 	if s.kind == "cic" {
 		p := s.p
 		regs := make([]string, len(p.RegisterBits))
@@ -438,6 +492,103 @@ func (cp *chainPlan) writeCIC(b *bytes.Buffer, s *stage) {
 	}
 	phaseStep(b, p.R, pw, "        ")
 	b.WriteString("      end\n    end\n  end\nendmodule\n")
+}
+
+// writeNR writes a non-recursive CIC decimator (chain.NonRecursive): log2 R
+// sub-stages in a row, sub-stage i computing y_i[m] = sum_j C(N, j)
+// x_i[2m - j] exactly at its width Bin + N i with the input that arrives at
+// its even phase, as fixed.Model's nrState does, and the last one's output
+// truncated (floor) to OutputBits.
+func (cp *chainPlan) writeNR(b *bytes.Buffer, s *stage) {
+	n, k := s.p.N, len(s.sub)
+	binom := make([]int64, n+1)
+	binom[0] = 1
+	for j := 1; j <= n; j++ {
+		binom[j] = binom[j-1] * int64(n-j+1) / int64(j)
+	}
+	fmt.Fprintf(b, "// Stage %d: non-recursive CIC decimator, order N = %d, R = %d: %d sub-stages\n", s.k, n, s.p.R, k)
+	fmt.Fprintf(b, `// (1 + z^-1)^%d, each decimating by 2, with no integrator and no feedback.
+// Sub-stage i computes y_i[m] = sum_j C(%d, j) x_i[2m - j] (inputs before
+// the first zero) with the input that arrives at its even phase, exactly:
+// the sum is taken modulo 2^W_i in its W_i = Bin + %d i bits, which hold
+// every sum the input word can make, so the modular sum is the sum. Its
+// delay line holds its last %d inputs. Every sub-stage of one input runs
+// in the same clock (behavioural); the output keeps the top %d bits of the
+// last sub-stage, truncated (floor).
+`, n, n, n, n, s.out)
+	cp.ports(b, s)
+	b.WriteString("  // odd<i>: sub-stage i's next input is odd-numbered (no output); v<i>:\n  // sub-stage i gives an output this clock (v0 is in_valid).\n")
+	b.WriteString("  wire v0 = in_valid;\n")
+	for i := 1; i <= k; i++ {
+		fmt.Fprintf(b, "  reg  odd%d;\n  wire v%d = v%d & ~odd%d;\n", i, i, i-1, i)
+	}
+	for _, ch := range cp.chans() {
+		src, ws := "in_"+ch, s.in
+		for i := 1; i <= k; i++ {
+			wi := s.sub[i-1]
+			fmt.Fprintf(b, "  // sub-stage %d (%s): %d-bit input, %d-bit output\n", i, ch, ws, wi)
+			var regs []string
+			for t := 1; t <= n; t++ {
+				regs = append(regs, fmt.Sprintf("sub%d_%s_d%d", i, ch, t))
+			}
+			writeList(b, fmt.Sprintf("  reg  %s ", vec(ws)), regs)
+			y := fmt.Sprintf("sub%d_%s", i, ch)
+			fmt.Fprintf(b, "  reg  %s %s;\n  always @* begin\n", vec(wi), y)
+			for j := 0; j <= n; j++ {
+				x := bitsOf(src, ws, 0, wi)
+				if j > 0 {
+					x = bitsOf(fmt.Sprintf("sub%d_%s_d%d", i, ch, j), ws, 0, wi)
+				}
+				prev := y + " + "
+				if j == 0 {
+					prev = ""
+				}
+				if binom[j] == 1 {
+					fmt.Fprintf(b, "    %s = %s%s;  // C(%d, %d) = 1\n", y, prev, x, n, j)
+				} else {
+					fmt.Fprintf(b, "    %s = %s%s * %d'd%d;  // C(%d, %d)\n", y, prev, x, wi, binom[j], n, j)
+				}
+			}
+			b.WriteString("  end\n")
+			src, ws = y, wi
+		}
+		fmt.Fprintf(b, "  // output (%s): drops %d LSBs, %d bits\n", ch, s.shift, s.out)
+		fmt.Fprintf(b, "  wire %s y_%s = %s;\n", vec(s.out), ch, bitsOf(src, ws, s.shift, s.out))
+	}
+	b.WriteString("\n  always @(posedge clk) begin\n    if (rst) begin\n")
+	for i := 1; i <= k; i++ {
+		fmt.Fprintf(b, "      odd%d <= 1'b0;\n", i)
+	}
+	for _, ch := range cp.chans() {
+		ws := s.in
+		for i := 1; i <= k; i++ {
+			for t := 1; t <= n; t++ {
+				fmt.Fprintf(b, "      sub%d_%s_d%d <= %d'd0;\n", i, ch, t, ws)
+			}
+			ws = s.sub[i-1]
+		}
+		fmt.Fprintf(b, "      out_%s <= %d'sd0;\n", ch, s.out)
+	}
+	b.WriteString("      out_valid <= 1'b0;\n    end else begin\n      out_valid <= 1'b0;\n")
+	for i := 1; i <= k; i++ {
+		fmt.Fprintf(b, "      if (v%d) begin\n        odd%d <= ~odd%d;\n", i-1, i, i)
+		for _, ch := range cp.chans() {
+			src := "in_" + ch
+			if i > 1 {
+				src = fmt.Sprintf("sub%d_%s", i-1, ch)
+			}
+			fmt.Fprintf(b, "        sub%d_%s_d1 <= %s;\n", i, ch, src)
+			for t := 2; t <= n; t++ {
+				fmt.Fprintf(b, "        sub%d_%s_d%d <= sub%d_%s_d%d;\n", i, ch, t, i, ch, t-1)
+			}
+		}
+		b.WriteString("      end\n")
+	}
+	fmt.Fprintf(b, "      if (v%d) begin\n", k)
+	for _, ch := range cp.chans() {
+		fmt.Fprintf(b, "        out_%s <= y_%s;\n", ch, ch)
+	}
+	b.WriteString("        out_valid <= 1'b1;\n      end\n    end\n  end\nendmodule\n")
 }
 
 // writeFIR writes a decimating FIR or half-band: the exact sum of products

@@ -83,6 +83,15 @@ func Plan(p PlanPage) ([]byte, error) {
 	if len(r.Front) > 0 {
 		c := r.Front[r.Recommended]
 		v.Resources = c.Resources
+		if c.Resources != nil && c.Adders != nil {
+			v.ResAdders = true
+			for _, s := range c.Resources.Stages {
+				if s.CoefficientAdders != nil && s.StructuralAdders != nil {
+					v.ResGraphAdders += *s.CoefficientAdders
+					v.ResTapAdders += *s.StructuralAdders
+				}
+			}
+		}
 		v.Rec = &recView{Index: r.Recommended + 1, Notation: c.Notation, Reason: r.Reason,
 			Figures: v.Front[r.Recommended], Stages: stageViews(c, p.Files, "", v.Clock)}
 	}
@@ -315,8 +324,12 @@ type planView struct {
 	Beaten      []string
 	CompareText string
 	// Resources is the recommended (or checked) chain's bill of
-	// resources at the clock, nil without a clock.
-	Resources *report.Resources
+	// resources at the clock, nil without a clock. ResAdders adds its
+	// graph and tap adder columns (a multiplierless chain), whose totals
+	// are ResGraphAdders and ResTapAdders.
+	Resources                    *report.Resources
+	ResAdders                    bool
+	ResGraphAdders, ResTapAdders int
 }
 
 type sweepValueView struct {

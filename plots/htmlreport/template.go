@@ -140,21 +140,22 @@ const templates = `
 <ul>{{range .Beaten}}<li>{{.}}</li>{{end}}</ul>{{else}}{{.CompareText}}</p>{{end}}{{end}}
 {{with .Resources}}<h3>Resources at the clock</h3>
 <p>A planning estimate in the units the fabric charges; the vendor's tools decide.</p>
-<div class="scroll"><table><thead><tr><th>stage</th><th>kind</th><th class="n">lanes</th><th class="n">multipliers</th><th class="n">adders</th><th class="n">adder bits</th><th class="n">register bits</th><th class="n">block memory bits</th></tr></thead><tbody>
-{{range .Stages}}<tr><td class="n">{{.Stage}}</td><td>{{.Kind}}</td><td class="n">{{.Lanes}}</td><td class="n">{{.Multipliers}}</td><td class="n">{{.Adders}}</td><td class="n">{{.AdderBits}}</td><td class="n">{{.RegisterBits}}</td><td class="n">{{.BlockMemoryBits}}</td></tr>
-{{end}}<tr><td>total</td><td></td><td class="n">{{.Lanes}}</td><td class="n">{{.Multipliers}}</td><td class="n">{{.Adders}}</td><td></td><td class="n">{{.RegisterBits}}</td><td class="n">{{.BlockMemoryBits}}</td></tr>
-</tbody></table></div>{{end}}
+<div class="scroll"><table><thead><tr><th>stage</th><th>kind</th><th class="n">lanes</th><th class="n">multipliers</th><th class="n">adders</th>{{if $.ResAdders}}<th class="n">graph adders</th><th class="n">tap adders</th>{{end}}<th class="n">adder bits</th><th class="n">register bits</th><th class="n">block memory bits</th></tr></thead><tbody>
+{{range .Stages}}<tr><td class="n">{{.Stage}}</td><td>{{.Kind}}</td><td class="n">{{.Lanes}}</td><td class="n">{{.Multipliers}}</td><td class="n">{{.Adders}}</td>{{if $.ResAdders}}<td class="n">{{with .CoefficientAdders}}{{.}}{{else}}-{{end}}</td><td class="n">{{with .StructuralAdders}}{{.}}{{else}}-{{end}}</td>{{end}}<td class="n">{{.AdderBits}}</td><td class="n">{{.RegisterBits}}</td><td class="n">{{.BlockMemoryBits}}</td></tr>
+{{end}}<tr><td>total</td><td></td><td class="n">{{.Lanes}}</td><td class="n">{{.Multipliers}}</td><td class="n">{{.Adders}}</td>{{if $.ResAdders}}<td class="n">{{$.ResGraphAdders}}</td><td class="n">{{$.ResTapAdders}}</td>{{end}}<td></td><td class="n">{{.RegisterBits}}</td><td class="n">{{.BlockMemoryBits}}</td></tr>
+</tbody></table></div>
+{{if $.ResAdders}}<p>Multiplierless: adders are as built (not time-shared); graph adders multiply by the taps (a shared adder graph), tap adders sum them (transposed direct form).</p>{{end}}{{end}}
 </section>
 
 <section id="front"><h2>Pareto front</h2>
-{{if .FrontSVG}}<figure>{{.FrontSVG}}<figcaption>Multiplies per output against memory: every feasible candidate (by estimate) faint, the front coloured by latency, the recommended chain ringed.</figcaption></figure>{{end}}
+{{if .FrontSVG}}<figure>{{.FrontSVG}}<figcaption>{{if eq .Axis "adders"}}Hardware adders (as built){{else}}Multiplies per output{{end}} against memory: every feasible candidate (by estimate) faint, the front coloured by latency, the recommended chain ringed.</figcaption></figure>{{end}}
 <p>Chains that no other chain beats on {{.AxisName}}, memory and latency at once, sorted by {{.AxisName}}; ★ marks the recommendation. Figures are per final output sample, from real designs unless a chain is marked estimated.</p>
 {{template "front" (frontArgs .Front .Clock .Axis)}}
 </section>
 
 <section id="stages"><h2>Stages of the recommended chain</h2>
 {{with .Rec}}{{template "stages" .Stages}}{{end}}
-{{if .StagesSVG}}<figure>{{.StagesSVG}}<figcaption>Multiplies and memory of each stage of the recommended chain.</figcaption></figure>{{end}}
+{{if .StagesSVG}}<figure>{{.StagesSVG}}<figcaption>{{if eq .Axis "adders"}}Multiplies (none: the chain is multiplierless) and memory of each stage of the recommended chain; its adders are in the resource table and the stage table.{{else}}Multiplies and memory of each stage of the recommended chain.{{end}}</figcaption></figure>{{end}}
 </section>
 
 <section id="response"><h2>Response</h2>

@@ -31,9 +31,14 @@ func AddAdders(c *Chain, s *specfile.Spec) error {
 		st := &c.Stages[i]
 		lanes := cost.Lanes(st.InputRateHz, s.Clock)
 		if st.Kind == "cic" {
-			a := cost.CICAdders(st.CICOrder, lanes) * cx
-			st.Adders = &a
-			total += a
+			if st.Adders == nil || st.CICForm != "nonrecursive" {
+				// A non-recursive CIC keeps the count cost priced on its
+				// sub-stages (the search's figure); a recursive one is
+				// its integrators per lane and its combs.
+				a := cost.CICAdders(st.CICOrder, lanes) * cx
+				st.Adders = &a
+			}
+			total += *st.Adders
 			continue
 		}
 		if w := st.StageReport; w != nil && len(w.CoefficientsInt) > 0 {

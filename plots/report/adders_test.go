@@ -125,3 +125,25 @@ func deref(p *int) int {
 	}
 	return *p
 }
+
+// AddAdders keeps a non-recursive CIC's adders as cost priced them on its
+// sub-stages (here 9, as set), and counts a recursive CIC's integrators
+// and combs: order 3 at one lane, 3 + 3 (Hogenauer's structure).
+func TestAddAddersCICForms(t *testing.T) {
+	s, err := specfile.Example()
+	if err != nil {
+		t.Fatal(err)
+	}
+	s.Multiplierless, s.Signal, s.Clock = true, "real", 0
+	nine := 9
+	c := Chain{Notation: "cic3m1r4nr > cic3m1r4", Stages: []Stage{
+		{Kind: "cic", CICOrder: 3, CICForm: "nonrecursive", InputRateHz: 1e6, Adders: &nine},
+		{Kind: "cic", CICOrder: 3, CICForm: "recursive", InputRateHz: 25e4},
+	}}
+	if err := AddAdders(&c, s); err != nil {
+		t.Fatal(err)
+	}
+	if *c.Stages[0].Adders != 9 || *c.Stages[1].Adders != 6 || *c.Adders != 15 {
+		t.Errorf("adders %d, %d, chain %d; want 9, 6, 15", *c.Stages[0].Adders, *c.Stages[1].Adders, *c.Adders)
+	}
+}

@@ -67,20 +67,31 @@ func Files(ctx context.Context, rep *Report, res *optimize.Result, spec *specfil
 	files := []File{{Name: "report.json", Data: js}}
 	rec := rep.Recommended
 
-	fd := plots.FrontData{Recommended: rec, FeasibleTotal: res.FeasibleAll}
+	// A multiplierless plan's cost axis is its adders as built: the
+	// figure's x axis holds them (plots.FrontData.Adders).
+	ml := rep.Spec.Hardware.Multiplierless
+	fd := plots.FrontData{Recommended: rec, FeasibleTotal: res.FeasibleAll, Adders: ml}
 	for _, ch := range rep.Front {
 		// The rejection the verdict is judged on: the rounded taps' when
 		// they are planned.
 		rej, _ := ch.BuiltFigures()
+		x := ch.MultipliesPerOutput
+		if ml && ch.Adders != nil {
+			x = float64(*ch.Adders)
+		}
 		fd.Front = append(fd.Front, plots.Point{
-			Multiplies: ch.MultipliesPerOutput, MemoryBits: float64(ch.MemoryBits),
+			Multiplies: x, MemoryBits: float64(ch.MemoryBits),
 			LatencyS: ch.LatencyS, RejectionDB: rej, Label: ch.Notation,
 		})
 	}
 	for _, c := range res.Feasible {
 		f := c.Figures
-		if finite(f.MultipliesPerOutput) && f.MultipliesPerOutput >= 0 && f.MemoryBits >= 0 {
-			fd.Candidates = append(fd.Candidates, plots.Point{Multiplies: f.MultipliesPerOutput, MemoryBits: float64(f.MemoryBits)})
+		x := f.MultipliesPerOutput
+		if ml {
+			x = float64(f.Adders)
+		}
+		if finite(x) && x >= 0 && f.MemoryBits >= 0 {
+			fd.Candidates = append(fd.Candidates, plots.Point{Multiplies: x, MemoryBits: float64(f.MemoryBits)})
 		}
 	}
 	fd.TargetDB = rep.Spec.RejectionDB
@@ -93,8 +104,15 @@ func Files(ctx context.Context, rep *Report, res *optimize.Result, spec *specfil
 		if cw := rep.ComparedWith; cw != nil {
 			var front []plots.Point
 			for _, f := range cw.Front {
+				x := f.MultipliesPerOutput
+				if ml {
+					if f.Adders == nil {
+						continue // a front of another cost axis: not drawn against adders
+					}
+					x = float64(*f.Adders)
+				}
 				if f.MeetsTargets {
-					front = append(front, plots.Point{Multiplies: f.MultipliesPerOutput, MemoryBits: float64(f.MemoryBits),
+					front = append(front, plots.Point{Multiplies: x, MemoryBits: float64(f.MemoryBits),
 						LatencyS: f.LatencyS, Label: f.Notation})
 				}
 			}

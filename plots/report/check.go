@@ -133,6 +133,9 @@ type FrontChain struct {
 	MemoryBits          int     `json:"memory_bits"`
 	LatencyS            float64 `json:"latency_s"`
 	MeetsTargets        bool    `json:"meets_targets"`
+	// Adders: a multiplierless plan's hardware adders as built (its cost
+	// axis); absent otherwise.
+	Adders *int `json:"adders,omitempty"`
 }
 
 // NewComparison is the comparison with the front of plan's report rep.
@@ -140,7 +143,7 @@ func NewComparison(source string, rep *Report) *Comparison {
 	cmp := &Comparison{Source: source, Front: []FrontChain{}, plan: rep.Front}
 	for _, c := range rep.Front {
 		cmp.Front = append(cmp.Front, FrontChain{Notation: c.Notation, MultipliesPerOutput: c.MultipliesPerOutput,
-			MemoryBits: c.MemoryBits, LatencyS: c.LatencyS, MeetsTargets: c.MeetsTargets})
+			MemoryBits: c.MemoryBits, LatencyS: c.LatencyS, MeetsTargets: c.MeetsTargets, Adders: c.Adders})
 	}
 	return cmp
 }

@@ -79,9 +79,17 @@ func WriteWordLengths(w io.Writer, rep *Report) {
 		}
 		var b strings.Builder
 		fmt.Fprintf(&b, "  %d %-8s in %d bits", i+1, st.Kind, sr.InputBits)
-		if st.Kind == "cic" {
+		switch {
+		case st.Kind == "cic" && st.CICForm == "nonrecursive":
+			// Its RegisterBits are the sub-stages' widths, Bin + N i.
+			subs := make([]string, len(sr.RegisterBits))
+			for j, v := range sr.RegisterBits {
+				subs[j] = fmt.Sprint(v)
+			}
+			fmt.Fprintf(&b, ", sub-stages %s bits", strings.Join(subs, ", "))
+		case st.Kind == "cic":
 			fmt.Fprintf(&b, ", registers %d..%d bits", sr.AccumulatorBits, sr.RegisterBits[len(sr.RegisterBits)-1])
-		} else {
+		default:
 			fmt.Fprintf(&b, ", coefficients %d bits, accumulator %d bits, multiplier %s", sr.CoefficientBits, sr.AccumulatorBits, sr.MultiplierSize)
 			if sr.HardwareMultipliers != nil {
 				fmt.Fprintf(&b, " (%d hardware at %s)", *sr.HardwareMultipliers, rep.Spec.Hardware.Multiplier)

@@ -35,6 +35,7 @@
 #define STEPDOWN_KIND_CIC 0 /* stage kind code: CIC */
 #define STEPDOWN_KIND_FIR 1 /* stage kind code: FIR */
 #define STEPDOWN_KIND_HALFBAND 2 /* stage kind code: half-band FIR */
+#define STEPDOWN_KIND_CIC_NONRECURSIVE 3 /* stage kind code: non-recursive CIC, log2 R sub-stages (1 + z^-1)^N decimating by 2 */
 
 /*
  * Stage 1: CIC
@@ -53,7 +54,7 @@
  *   comb 5: truncate 10 LSBs at its input (27-bit register, wraps)
  *   output: truncate 13 LSBs to 24 bits
  */
-#define STEPDOWN_S1_KIND 0 /* stage kind (KIND_CIC, KIND_FIR, KIND_HALFBAND) */
+#define STEPDOWN_S1_KIND 0 /* stage kind (KIND_CIC, KIND_FIR, KIND_HALFBAND, KIND_CIC_NONRECURSIVE) */
 #define STEPDOWN_S1_R 16 /* decimation factor */
 #define STEPDOWN_S1_INPUT_BITS 16 /* input word, bits */
 #define STEPDOWN_S1_OUTPUT_BITS 24 /* output word, bits */
@@ -82,7 +83,7 @@ static const int STEPDOWN_S1_REG_DROPPED[STEPDOWN_S1_NUM_REGS] STEPDOWN_UNUSED =
  *   output: round half up, dropping 17 LSBs, then saturate to 24 bits
  *   Tap k is COEFS[k] / 2^COEF_FRAC; 15 taps, 18 bits.
  */
-#define STEPDOWN_S2_KIND 2 /* stage kind (KIND_CIC, KIND_FIR, KIND_HALFBAND) */
+#define STEPDOWN_S2_KIND 2 /* stage kind (KIND_CIC, KIND_FIR, KIND_HALFBAND, KIND_CIC_NONRECURSIVE) */
 #define STEPDOWN_S2_R 2 /* decimation factor */
 #define STEPDOWN_S2_INPUT_BITS 24 /* input word, bits */
 #define STEPDOWN_S2_OUTPUT_BITS 24 /* output word, bits */
@@ -106,7 +107,7 @@ static const int32_t STEPDOWN_S2_COEFS[STEPDOWN_S2_NUM_TAPS] STEPDOWN_UNUSED = {
  *   output: round half up, dropping 18 LSBs, then saturate to 24 bits
  *   Tap k is COEFS[k] / 2^COEF_FRAC; 19 taps, 18 bits.
  */
-#define STEPDOWN_S3_KIND 1 /* stage kind (KIND_CIC, KIND_FIR, KIND_HALFBAND) */
+#define STEPDOWN_S3_KIND 1 /* stage kind (KIND_CIC, KIND_FIR, KIND_HALFBAND, KIND_CIC_NONRECURSIVE) */
 #define STEPDOWN_S3_R 2 /* decimation factor */
 #define STEPDOWN_S3_INPUT_BITS 24 /* input word, bits */
 #define STEPDOWN_S3_OUTPUT_BITS 24 /* output word, bits */

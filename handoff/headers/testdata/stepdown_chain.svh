@@ -12,10 +12,10 @@
 // localparams of the including scope, so there is no include guard.
 // Scalars are localparam integer. An array is one flat vector, element k
 // in bits [k*W +: W]: coefficients with W = COEF_BITS, two's complement
-// (read with $signed), the CIC's REG_BITS and REG_DROPPED with
+// (read with $signed), the CIC's REG_BITS, REG_DROPPED and SUBSTAGE_BITS with
 // W = STEPDOWN_FIELD_BITS, unsigned.
 
-localparam integer STEPDOWN_FIELD_BITS = 8; // element width of REG_BITS and REG_DROPPED
+localparam integer STEPDOWN_FIELD_BITS = 8; // element width of REG_BITS, REG_DROPPED and SUBSTAGE_BITS
 
 // Chain
 //   Input rate 122880000 Hz, 3 stage(s), complex (I/Q: two identical real data paths) data.
@@ -27,6 +27,7 @@ localparam integer STEPDOWN_COMPLEX = 1; // 1: complex (I/Q) data, two identical
 localparam integer STEPDOWN_KIND_CIC = 0; // stage kind code: CIC
 localparam integer STEPDOWN_KIND_FIR = 1; // stage kind code: FIR
 localparam integer STEPDOWN_KIND_HALFBAND = 2; // stage kind code: half-band FIR
+localparam integer STEPDOWN_KIND_CIC_NONRECURSIVE = 3; // stage kind code: non-recursive CIC, log2 R sub-stages (1 + z^-1)^N decimating by 2
 
 // Stage 1: CIC
 //   Input rate 122880000 Hz, output rate 7680000 Hz.
@@ -43,7 +44,7 @@ localparam integer STEPDOWN_KIND_HALFBAND = 2; // stage kind code: half-band FIR
 //   comb 4: truncate 10 LSBs at its input (27-bit register, wraps)
 //   comb 5: truncate 10 LSBs at its input (27-bit register, wraps)
 //   output: truncate 13 LSBs to 24 bits
-localparam integer STEPDOWN_S1_KIND = 0; // stage kind (KIND_CIC, KIND_FIR, KIND_HALFBAND)
+localparam integer STEPDOWN_S1_KIND = 0; // stage kind (KIND_CIC, KIND_FIR, KIND_HALFBAND, KIND_CIC_NONRECURSIVE)
 localparam integer STEPDOWN_S1_R = 16; // decimation factor
 localparam integer STEPDOWN_S1_INPUT_BITS = 16; // input word, bits
 localparam integer STEPDOWN_S1_OUTPUT_BITS = 24; // output word, bits
@@ -70,7 +71,7 @@ localparam [STEPDOWN_S1_NUM_REGS*STEPDOWN_FIELD_BITS-1:0] STEPDOWN_S1_REG_DROPPE
 //   products and sum: exact (24 x 18 bits into 42-bit accumulator)
 //   output: round half up, dropping 17 LSBs, then saturate to 24 bits
 //   Tap k is COEFS[k] / 2^COEF_FRAC; 15 taps, 18 bits.
-localparam integer STEPDOWN_S2_KIND = 2; // stage kind (KIND_CIC, KIND_FIR, KIND_HALFBAND)
+localparam integer STEPDOWN_S2_KIND = 2; // stage kind (KIND_CIC, KIND_FIR, KIND_HALFBAND, KIND_CIC_NONRECURSIVE)
 localparam integer STEPDOWN_S2_R = 2; // decimation factor
 localparam integer STEPDOWN_S2_INPUT_BITS = 24; // input word, bits
 localparam integer STEPDOWN_S2_OUTPUT_BITS = 24; // output word, bits
@@ -91,7 +92,7 @@ localparam [STEPDOWN_S2_NUM_TAPS*STEPDOWN_S2_COEF_BITS-1:0] STEPDOWN_S2_COEFS = 
 //   products and sum: exact (24 x 18 bits into 43-bit accumulator)
 //   output: round half up, dropping 18 LSBs, then saturate to 24 bits
 //   Tap k is COEFS[k] / 2^COEF_FRAC; 19 taps, 18 bits.
-localparam integer STEPDOWN_S3_KIND = 1; // stage kind (KIND_CIC, KIND_FIR, KIND_HALFBAND)
+localparam integer STEPDOWN_S3_KIND = 1; // stage kind (KIND_CIC, KIND_FIR, KIND_HALFBAND, KIND_CIC_NONRECURSIVE)
 localparam integer STEPDOWN_S3_R = 2; // decimation factor
 localparam integer STEPDOWN_S3_INPUT_BITS = 24; // input word, bits
 localparam integer STEPDOWN_S3_OUTPUT_BITS = 24; // output word, bits

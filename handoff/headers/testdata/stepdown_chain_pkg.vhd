@@ -32,6 +32,7 @@ package stepdown_chain_pkg is
   constant STEPDOWN_KIND_CIC : integer := 0; -- stage kind code: CIC
   constant STEPDOWN_KIND_FIR : integer := 1; -- stage kind code: FIR
   constant STEPDOWN_KIND_HALFBAND : integer := 2; -- stage kind code: half-band FIR
+  constant STEPDOWN_KIND_CIC_NONRECURSIVE : integer := 3; -- stage kind code: non-recursive CIC, log2 R sub-stages (1 + z^-1)^N decimating by 2
 
   -- Stage 1: CIC
   --   Input rate 122880000 Hz, output rate 7680000 Hz.
@@ -48,7 +49,7 @@ package stepdown_chain_pkg is
   --   comb 4: truncate 10 LSBs at its input (27-bit register, wraps)
   --   comb 5: truncate 10 LSBs at its input (27-bit register, wraps)
   --   output: truncate 13 LSBs to 24 bits
-  constant STEPDOWN_S1_KIND : integer := 0; -- stage kind (KIND_CIC, KIND_FIR, KIND_HALFBAND)
+  constant STEPDOWN_S1_KIND : integer := 0; -- stage kind (KIND_CIC, KIND_FIR, KIND_HALFBAND, KIND_CIC_NONRECURSIVE)
   constant STEPDOWN_S1_R : integer := 16; -- decimation factor
   constant STEPDOWN_S1_INPUT_BITS : integer := 16; -- input word, bits
   constant STEPDOWN_S1_OUTPUT_BITS : integer := 24; -- output word, bits
@@ -75,7 +76,7 @@ package stepdown_chain_pkg is
   --   products and sum: exact (24 x 18 bits into 42-bit accumulator)
   --   output: round half up, dropping 17 LSBs, then saturate to 24 bits
   --   Tap k is COEFS[k] / 2^COEF_FRAC; 15 taps, 18 bits.
-  constant STEPDOWN_S2_KIND : integer := 2; -- stage kind (KIND_CIC, KIND_FIR, KIND_HALFBAND)
+  constant STEPDOWN_S2_KIND : integer := 2; -- stage kind (KIND_CIC, KIND_FIR, KIND_HALFBAND, KIND_CIC_NONRECURSIVE)
   constant STEPDOWN_S2_R : integer := 2; -- decimation factor
   constant STEPDOWN_S2_INPUT_BITS : integer := 24; -- input word, bits
   constant STEPDOWN_S2_OUTPUT_BITS : integer := 24; -- output word, bits
@@ -104,7 +105,7 @@ package stepdown_chain_pkg is
   --   products and sum: exact (24 x 18 bits into 43-bit accumulator)
   --   output: round half up, dropping 18 LSBs, then saturate to 24 bits
   --   Tap k is COEFS[k] / 2^COEF_FRAC; 19 taps, 18 bits.
-  constant STEPDOWN_S3_KIND : integer := 1; -- stage kind (KIND_CIC, KIND_FIR, KIND_HALFBAND)
+  constant STEPDOWN_S3_KIND : integer := 1; -- stage kind (KIND_CIC, KIND_FIR, KIND_HALFBAND, KIND_CIC_NONRECURSIVE)
   constant STEPDOWN_S3_R : integer := 2; -- decimation factor
   constant STEPDOWN_S3_INPUT_BITS : integer := 24; -- input word, bits
   constant STEPDOWN_S3_OUTPUT_BITS : integer := 24; -- output word, bits
