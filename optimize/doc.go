@@ -87,7 +87,10 @@
 // are exact. A CIC beats another only with no more adders as well. With a
 // fixed coefficient width, a chain that survives its rounded-taps check
 // has its adders counted on its word-length plan's integers
-// (cost.Figures.CountInts), the coefficients the report writes. There
+// (cost.Figures.CountInts), the coefficients the report writes; with
+// "auto" widths every designed chain is planned ("auto", as the report
+// plans it) and counted likewise, so the front is ranked on the adders
+// report.json states. There
 // are no multipliers, so MaxMultipliers never binds.
 //
 // # Design tier

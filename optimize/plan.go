@@ -285,6 +285,19 @@ func (r realDesigner) measure(c Candidate) (Candidate, Reason) {
 	}
 	c.Figures, c.MarginDB, c.evaluated = f, margin, true
 	if !r.rounded(r.spec) {
+		if f.Multiplierless && r.spec.CoefBits == 0 && !r.s.floatOnly {
+			// "auto" widths: count the adder graphs of the taps as the
+			// word-length plan rounds them (the report's
+			// coefficients_int), so that the front is ranked on the
+			// adders report.json states, not on taps at a stand-in width.
+			ws, _, err := fixed.PlanChainContext(r.ctx, r.spec, c.Chain, r.s.Fixed)
+			if err != nil {
+				return Candidate{}, ReasonWordLengths
+			}
+			if err := c.Figures.CountInts(cx(c.Chain), planInts(ws)); err != nil {
+				return Candidate{}, ReasonWordLengths
+			}
+		}
 		return c, ""
 	}
 	if c.survived {

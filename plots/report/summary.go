@@ -188,9 +188,6 @@ func WriteTable(w io.Writer, rep *Report) {
 	}
 	if adders {
 		fmt.Fprintf(w, "adders: multiplierless, each FIR and half-band stage a shared adder graph of its rounded taps plus one adder per nonzero tap after the first, times its lanes and real filters, and each CIC's integrators and combs (the hardware, the front's cost axis; adds/out counts the tap sums and the CICs only)")
-		if rep.Spec.Words.CoefficientsMode == "auto" || rep.Spec.Words.UnityGain {
-			fmt.Fprintf(w, "; the front was ranked on graphs of taps rounded to %s, these count the coefficients written", map[bool]string{true: fmt.Sprintf("%d bits", cost.FloatCoefBits), false: "the width before the unity-gain correction"}[rep.Spec.Words.CoefficientsMode == "auto"])
-		}
 		fmt.Fprintln(w)
 	}
 	if lanes {
