@@ -38,6 +38,19 @@ type SweepPage struct {
 	Files  []string
 }
 
+// traceText says what made the report: stepdown's version and the spec
+// text's SHA-256 (its first 16 hexadecimal digits; report.json holds all).
+func traceText(r *report.Report) string {
+	var parts []string
+	if r.ToolVersion != "" {
+		parts = append(parts, "stepdown "+r.ToolVersion)
+	}
+	if h := r.SpecSHA256; h != "" {
+		parts = append(parts, "spec SHA-256 "+h[:min(16, len(h))]+"…")
+	}
+	return strings.Join(parts, " · ")
+}
+
 // Plan returns report.html for a plan or check.
 func Plan(p PlanPage) ([]byte, error) {
 	r := p.Report
@@ -58,8 +71,9 @@ func Plan(p PlanPage) ([]byte, error) {
 		Clock:    r.Spec.Hardware.ClockHz != nil && !r.Spec.Hardware.Multiplierless,
 		Axis:     "mult/out",
 		AxisName: "multiplies",
-		Files:    p.Files,
+		Files:    listedFiles(p.Files),
 		Cautions: planCautions(r),
+		Trace:    traceText(r),
 	}
 	var err error
 	if v.FrontSVG, err = inlineSVG(p.Front); err != nil {
@@ -305,6 +319,9 @@ type recView struct {
 
 type planView struct {
 	Title, Source, Command, Caution string
+	// Trace is report.json's tool_version and spec_sha256 in words, so a
+	// printed page can be traced to what made it.
+	Trace string
 	Spec                            []kv
 	Search                          string
 	Partial, Clock                  bool
@@ -572,6 +589,20 @@ func stageViews(c report.Chain, files []string, prefix string, clock bool) []sta
 }
 
 // topFiles leaves out the per-value folders, which the value sections link.
+// listedFiles is the Files section's list of a plan's folder: every file
+// but the test vectors, of which only vectors/README.txt is listed (it
+// names the others: six stimuli, each with its input and every stage's
+// output).
+func listedFiles(files []string) []string {
+	var out []string
+	for _, f := range files {
+		if !strings.HasPrefix(f, "vectors/") || f == "vectors/README.txt" {
+			out = append(out, f)
+		}
+	}
+	return out
+}
+
 func topFiles(files []string) []string {
 	var out []string
 	for _, f := range files {

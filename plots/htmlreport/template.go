@@ -112,7 +112,7 @@ const templates = `
 
 {{define "plan"}}{{template "head" .}}<header>
 <h1>{{if eq .Command "check"}}Chain check{{else}}Decimation chain plan{{end}}</h1>
-<p class="sub">Spec: <code>{{.Source}}</code> · command: stepdown {{.Command}}</p>
+<p class="sub">Spec: <code>{{.Source}}</code> · command: stepdown {{.Command}}{{if .Trace}} · {{.Trace}}{{end}}</p>
 </header>
 <p class="caution"><strong>Caution:</strong> {{.Caution}}.</p>
 {{if .Partial}}<p class="caution"><strong>Partial:</strong> the search was stopped by its time limit; the front below is the best found so far.</p>{{end}}
