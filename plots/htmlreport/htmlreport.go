@@ -321,10 +321,10 @@ type planView struct {
 	Title, Source, Command, Caution string
 	// Trace is report.json's tool_version and spec_sha256 in words, so a
 	// printed page can be traced to what made it.
-	Trace string
-	Spec                            []kv
-	Search                          string
-	Partial, Clock                  bool
+	Trace          string
+	Spec           []kv
+	Search         string
+	Partial, Clock bool
 	// Axis heads the front table's cost column and AxisName says it in
 	// words: "adders" for a multiplierless plan, whose column holds each
 	// chain's adders as built.
