@@ -49,6 +49,9 @@ type SweepPoint struct {
 	// Hardware multipliers at the clock (recommended, least); drawn only
 	// when SweepData.Clock is set.
 	Multipliers, BestMultipliers float64
+	// Hardware adders as built (recommended, least); drawn instead of the
+	// multiplies when SweepData.Adders is set (a multiplierless spec).
+	Adders, BestAdders float64
 }
 
 // SweepData is the input of Sweep.
@@ -69,6 +72,9 @@ type SweepData struct {
 	Points []SweepPoint
 	// Clock adds a fourth panel, the hardware multipliers at the clock.
 	Clock bool
+	// Adders puts the hardware adders as built in the first panel instead
+	// of the multiplies per output (a multiplierless spec's cost axis).
+	Adders bool
 }
 
 // Sweep draws how the recommended chain's figures move as one quantity of
@@ -197,6 +203,9 @@ func newSweepFigure(d SweepData) *sweepFigure {
 		{"multiplies / output", unit{1, ""}, func(p SweepPoint) float64 { return p.Multiplies }, func(p SweepPoint) float64 { return p.BestMultiplies }},
 		{"memory (" + mu.name + ")", mu, func(p SweepPoint) float64 { return p.MemoryBits }, func(p SweepPoint) float64 { return p.BestMemoryBits }},
 		{"latency (" + tu.name + ")", tu, func(p SweepPoint) float64 { return p.LatencyS }, func(p SweepPoint) float64 { return p.BestLatencyS }},
+	}
+	if d.Adders {
+		get[0] = figure{"adders (as built)", unit{1, ""}, func(p SweepPoint) float64 { return p.Adders }, func(p SweepPoint) float64 { return p.BestAdders }}
 	}
 	if d.Clock {
 		get = append(get, figure{"multipliers at clock", unit{1, ""}, func(p SweepPoint) float64 { return p.Multipliers }, func(p SweepPoint) float64 { return p.BestMultipliers }})

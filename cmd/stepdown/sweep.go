@@ -182,9 +182,16 @@ func printSweep(w io.Writer, source, dir string, v sweep.Vary, doc *sweep.Doc, f
 	for _, dv := range doc.Values {
 		clock = clock || (dv.Best != nil && dv.Best.MultipliersAtClock != nil)
 	}
-	head := []string{v.Key.Name, "status", "recommended", "mult/out", "memory bits", "latency", "least mult/out", "least memory", "least latency"}
+	// A multiplierless spec's cost axis is the hardware adders as built.
+	adders := doc.Spec.Hardware.Multiplierless
+	clock = clock && !adders // no multipliers to count
+	cost, leastCost := "mult/out", "least mult/out"
+	if adders {
+		cost, leastCost = "adders", "least adders"
+	}
+	head := []string{v.Key.Name, "status", "recommended", cost, "memory bits", "latency", leastCost, "least memory", "least latency"}
 	if clock {
-		head = append(head[:6], "multipliers", "least mult/out", "least memory", "least latency", "least multipliers")
+		head = append(head[:6], "multipliers", leastCost, "least memory", "least latency", "least multipliers")
 	}
 	rows := [][]string{head}
 	for _, dv := range doc.Values {
@@ -197,7 +204,17 @@ func printSweep(w io.Writer, source, dir string, v sweep.Vary, doc *sweep.Doc, f
 		if dv.StructureChanged {
 			n += "  <- changes"
 		}
-		row := []string{dv.ValueText, dv.Status, n, report.TrimFloat(c.MultipliesPerOutput, 1), fmt.Sprint(c.MemoryBits), report.Seconds(c.LatencyS)}
+		first, least := report.TrimFloat(c.MultipliesPerOutput, 1), report.TrimFloat(dv.Best.MultipliesPerOutput, 1)
+		if adders {
+			first, least = "", ""
+			if c.Adders != nil {
+				first = fmt.Sprint(*c.Adders)
+			}
+			if dv.Best.Adders != nil {
+				least = fmt.Sprint(*dv.Best.Adders)
+			}
+		}
+		row := []string{dv.ValueText, dv.Status, n, first, fmt.Sprint(c.MemoryBits), report.Seconds(c.LatencyS)}
 		if clock {
 			m := ""
 			if c.MultipliersAtClock != nil {
@@ -205,7 +222,7 @@ func printSweep(w io.Writer, source, dir string, v sweep.Vary, doc *sweep.Doc, f
 			}
 			row = append(row, m)
 		}
-		row = append(row, report.TrimFloat(dv.Best.MultipliesPerOutput, 1), fmt.Sprint(dv.Best.MemoryBits), report.Seconds(dv.Best.LatencyS))
+		row = append(row, least, fmt.Sprint(dv.Best.MemoryBits), report.Seconds(dv.Best.LatencyS))
 		if clock {
 			m := ""
 			if dv.Best.MultipliersAtClock != nil {

@@ -3,10 +3,13 @@ package main
 import (
 	"bytes"
 	"context"
+	"encoding/csv"
 	"encoding/json"
+	"fmt"
 	"os"
 	"path/filepath"
 	"runtime"
+	"slices"
 	"strings"
 	"testing"
 
@@ -481,6 +484,58 @@ func TestSweepGridDeterministicReal(t *testing.T) {
 			if !bytes.Equal(files[n], b) {
 				t.Errorf("GOMAXPROCS=%s --jobs %s: %s differs", c.procs, c.jobs, n)
 			}
+		}
+	}
+}
+
+// A multiplierless spec's sweep is priced in adders: the terminal table
+// heads its cost columns "adders" and has no multipliers column, and
+// sweep.csv's adders and best_adders hold each value's figures, equal to
+// the recommended chain's adders in that value's report.json.
+func TestSweepMultiplierless(t *testing.T) {
+	dir := t.TempDir()
+	spec := `input_rate = "2.4 GHz"
+output_rate = "37.5 MHz"
+passband = "12 MHz"
+ripple = "0.2 dB"
+rejection = "60 dB"
+[words]
+input = 12
+output = 16
+coefficients = 16
+[hardware]
+clock = "400 MHz"
+multiplierless = true
+`
+	if err := os.WriteFile(filepath.Join(dir, "ml.toml"), []byte(spec), 0o644); err != nil {
+		t.Fatal(err)
+	}
+	r := runBinary(t, dir, nil, "sweep", "ml.toml", "--vary", "rejection=55:60:5", "--out", "out")
+	if r.code != 0 {
+		t.Fatalf("sweep: exit %d: %s", r.code, r.stderr)
+	}
+	head := strings.Fields(strings.Split(r.stdout, "\n")[2])
+	if !slices.Contains(head, "adders") || slices.Contains(head, "mult/out") || slices.Contains(head, "multipliers") {
+		t.Errorf("table head %v", head)
+	}
+	b, err := os.ReadFile(filepath.Join(dir, "out", "sweep.csv"))
+	if err != nil {
+		t.Fatal(err)
+	}
+	rows, err := csv.NewReader(bytes.NewReader(b)).ReadAll()
+	if err != nil {
+		t.Fatal(err)
+	}
+	col := map[string]int{}
+	for i, h := range rows[0] {
+		col[h] = i
+	}
+	for i, row := range rows[1:] {
+		rep := readReport(t, filepath.Join(dir, "out", "values", fmt.Sprintf("%02d", i+1), "report.json"))
+		front := rep["front"].([]any)
+		rec := front[int(rep["recommended"].(float64))].(map[string]any)
+		if want := fmt.Sprint(rec["adders"]); row[col["adders"]] != want || row[col["best_adders"]] == "" {
+			t.Errorf("value %d: adders %q (report.json %s), best_adders %q", i+1, row[col["adders"]], want, row[col["best_adders"]])
 		}
 	}
 }

@@ -30,7 +30,12 @@ func NewFigureData(title string, v Vary, rs []Result) FigureData {
 			p.OK = true
 			p.Multiplies, p.MemoryBits, p.LatencyS, p.Notation = c.MultipliesPerOutput, float64(c.MemoryBits), c.LatencyS, c.Notation
 			p.BestMultiplies, p.BestMemoryBits, p.BestLatencyS = b.Multiplies, float64(b.MemoryBits), b.LatencyS
-			if c.MultipliersAtClock != nil && b.Multipliers >= 0 {
+			if c.Adders != nil && b.Adders >= 0 {
+				d.Adders = true
+				p.Adders, p.BestAdders = float64(*c.Adders), float64(b.Adders)
+			}
+			// A multiplierless chain has no multipliers to draw.
+			if c.MultipliersAtClock != nil && b.Multipliers >= 0 && c.Adders == nil {
 				d.Clock = true
 				p.Multipliers, p.BestMultipliers = float64(*c.MultipliersAtClock), float64(b.Multipliers)
 			}

@@ -178,8 +178,9 @@ const (
 )
 
 // NewHeatmapData collects a grid's heat map: the recommended chain's
-// multiplies per output over the two keys, Columns across and Rows up,
-// each cell tagged with its structure (Structures).
+// multiplies per output (its hardware adders as built, for a
+// multiplierless spec) over the two keys, Columns across and Rows up, each
+// cell tagged with its structure (Structures).
 func NewHeatmapData(title string, g Grid, rs []Result) HeatmapData {
 	d := HeatmapData{
 		Title: title,
@@ -197,8 +198,13 @@ func NewHeatmapData(title string, g Grid, rs []Result) HeatmapData {
 		}
 		c := plots.HeatmapCell{Mark: r.Status.Mark()}
 		if r.Status.HasChain() {
-			c = plots.HeatmapCell{OK: true, Value: r.Report.Front[r.Report.Recommended].MultipliesPerOutput,
-				Partial: r.Status == Partial, Tag: tags[i]}
+			ch := r.Report.Front[r.Report.Recommended]
+			v := ch.MultipliesPerOutput
+			if ch.Adders != nil {
+				v = float64(*ch.Adders)
+				d.ValueLabel = "adders as built (recommended chain)"
+			}
+			c = plots.HeatmapCell{OK: true, Value: v, Partial: r.Status == Partial, Tag: tags[i]}
 		}
 		d.Cells[len(d.Cells)-1] = append(d.Cells[len(d.Cells)-1], c)
 	}

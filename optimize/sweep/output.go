@@ -29,7 +29,8 @@ var CSVHeader = []string{
 	"latency_s", "latency_samples", "multipliers_at_clock", "alias_rejection_db", "passband_ripple_db",
 	"front_size", "best_multiplies_per_output", "best_memory_bits", "best_latency_s", "best_multipliers_at_clock",
 	"bittrue_snr_db", "bittrue_enob", "quantised_alias_rejection_db", "coefficient_bits",
-	"quantised_passband_ripple_db", "dc_gain_db", "bittrue_snr_valid", "verdict_basis", "detail",
+	"quantised_passband_ripple_db", "dc_gain_db", "bittrue_snr_valid", "verdict_basis",
+	"adders", "best_adders", "detail",
 }
 
 // CSV returns sweep.csv: one row per value, in the order of the values.
@@ -67,6 +68,14 @@ func resultCells(r Result, changed bool) []string {
 			num(c.LatencyS), num(c.LatencySamples), mult, num(c.AliasRejectionDB), num(c.PassbandRippleDB),
 			strconv.Itoa(len(rep.Front)), num(b.Multiplies), strconv.Itoa(b.MemoryBits), num(b.LatencyS), bestMult)
 		row = append(row, wordCells(c)...)
+		adders, bestAdders := "", ""
+		if c.Adders != nil {
+			adders = strconv.Itoa(*c.Adders)
+		}
+		if b.Adders >= 0 {
+			bestAdders = strconv.Itoa(b.Adders)
+		}
+		row = append(row, adders, bestAdders)
 	} else {
 		row = append(row, make([]string, len(CSVHeader)-6)...)
 	}
@@ -159,6 +168,9 @@ type (
 		MemoryBits          int     `json:"memory_bits"`
 		LatencyS            float64 `json:"latency_s"`
 		MultipliersAtClock  *int    `json:"multipliers_at_clock,omitempty"`
+		// Adders is the least hardware adders as built (multiplierless
+		// only).
+		Adders *int `json:"adders,omitempty"`
 	}
 )
 
@@ -197,6 +209,10 @@ func docValue(k Key, r Result, changed bool, folder string) DocValue {
 		}
 		b := BestOf(rep)
 		dv.Best = &DocBest{MultipliesPerOutput: b.Multiplies, MemoryBits: b.MemoryBits, LatencyS: b.LatencyS}
+		if b.Adders >= 0 {
+			a := b.Adders
+			dv.Best.Adders = &a
+		}
 		if b.Multipliers >= 0 {
 			m := b.Multipliers
 			dv.Best.MultipliersAtClock = &m

@@ -220,12 +220,18 @@ type Best struct {
 	// Multipliers is the least number of hardware multipliers at the
 	// clock, -1 when the spec gives no clock.
 	Multipliers int
+	// Adders is the least number of hardware adders as built, -1 unless
+	// the spec is multiplierless.
+	Adders int
 }
 
 // BestOf returns the per-axis minima over a report's front.
 func BestOf(rep *report.Report) Best {
-	b := Best{Multiplies: math.Inf(1), MemoryBits: math.MaxInt, LatencyS: math.Inf(1), Multipliers: -1}
+	b := Best{Multiplies: math.Inf(1), MemoryBits: math.MaxInt, LatencyS: math.Inf(1), Multipliers: -1, Adders: -1}
 	for _, c := range rep.Front {
+		if a := c.Adders; a != nil && (b.Adders < 0 || *a < b.Adders) {
+			b.Adders = *a
+		}
 		if m := c.MultipliersAtClock; m != nil && (b.Multipliers < 0 || *m < b.Multipliers) {
 			b.Multipliers = *m
 		}

@@ -88,11 +88,6 @@ func Plan(p PlanPage) ([]byte, error) {
 	v.Front = frontRows(r.Front, r.Recommended, v.Clock)
 	if r.Spec.Hardware.Multiplierless {
 		v.Axis, v.AxisName = "adders", "adders"
-		for i := range v.Front {
-			if a := r.Front[i].Adders; a != nil {
-				v.Front[i].Mult = strconv.Itoa(*a)
-			}
-		}
 	}
 	if len(r.Front) > 0 {
 		c := r.Front[r.Recommended]
@@ -136,6 +131,7 @@ func Sweep(p SweepPage) ([]byte, error) {
 		return gridPage(p)
 	}
 	v := sweepView{
+		Axis:    costAxis(d.Spec),
 		Title:   "stepdown sweep of " + d.Vary.Key + ": " + p.Source,
 		Source:  p.Source,
 		Caution: d.Caution,
@@ -145,7 +141,7 @@ func Sweep(p SweepPage) ([]byte, error) {
 		Range:   d.Vary.Range,
 		Count:   len(d.Values),
 		// Sweeping the clock gives every value one, even when the spec has none.
-		Clock: d.Spec.Hardware.ClockHz != nil || d.Vary.SpecKey == "hardware.clock",
+		Clock: (d.Spec.Hardware.ClockHz != nil || d.Vary.SpecKey == "hardware.clock") && !d.Spec.Hardware.Multiplierless,
 		Files: topFiles(p.Files),
 	}
 	var err error
@@ -181,6 +177,9 @@ func valueView(dv sweep.DocValue, i int, anchor string, files []string, clock bo
 		sv.Stages = stageViews(c, files, dv.Folder+"/", clock)
 		if dv.Best != nil {
 			sv.BestMult = trimFloat(dv.Best.MultipliesPerOutput, 2)
+			if dv.Best.Adders != nil {
+				sv.BestMult = strconv.Itoa(*dv.Best.Adders)
+			}
 			sv.BestMem = strconv.Itoa(dv.Best.MemoryBits)
 			sv.BestLat = seconds(dv.Best.LatencyS)
 		}
@@ -216,6 +215,7 @@ func gridPage(p SweepPage) ([]byte, error) {
 	d := p.Doc
 	cols := d.Columns
 	v := gridView{
+		Axis:       costAxis(d.Spec),
 		Title:      "stepdown sweep of " + d.Vary.Key + " by " + cols.Key + ": " + p.Source,
 		Source:     p.Source,
 		Caution:    d.Caution,
@@ -227,7 +227,7 @@ func gridPage(p SweepPage) ([]byte, error) {
 		ColSpecKey: cols.SpecKey,
 		ColRange:   cols.Range,
 		Count:      len(d.Values),
-		Clock:      d.Spec.Hardware.ClockHz != nil || d.Vary.SpecKey == "hardware.clock" || cols.SpecKey == "hardware.clock",
+		Clock:      (d.Spec.Hardware.ClockHz != nil || d.Vary.SpecKey == "hardware.clock" || cols.SpecKey == "hardware.clock") && !d.Spec.Hardware.Multiplierless,
 		Files:      topFiles(p.Files),
 	}
 	var err error
@@ -256,6 +256,9 @@ func gridPage(p SweepPage) ([]byte, error) {
 		cell := gridCellView{Anchor: sv.Anchor, HasChain: sv.HasChain, Text: sweep.Status(dv.Status).Mark(), Title: dv.Detail}
 		if sv.HasChain {
 			cell.Text = trimFloat(dv.Front[dv.Recommended].MultipliesPerOutput, 1)
+			if a := dv.Front[dv.Recommended].Adders; a != nil {
+				cell.Text = strconv.Itoa(*a)
+			}
 			if dv.Status == string(sweep.Partial) {
 				cell.Text += "*"
 			}
@@ -363,14 +366,17 @@ type sweepValueView struct {
 
 type sweepView struct {
 	Title, Source, Caution string
-	Spec                   []kv
-	Key, SpecKey, Range    string
-	Count                  int
-	Clock                  bool
-	FigureSVG              template.HTML
-	Values                 []sweepValueView
-	Files                  []string
-	Cautions               []string
+	// Axis heads the cost columns: "mult/out", or "adders" for a
+	// multiplierless spec.
+	Axis                string
+	Spec                []kv
+	Key, SpecKey, Range string
+	Count               int
+	Clock               bool
+	FigureSVG           template.HTML
+	Values              []sweepValueView
+	Files               []string
+	Cautions            []string
 }
 
 type gridCellView struct {
@@ -385,6 +391,7 @@ type gridRowView struct {
 
 type gridView struct {
 	Title, Source, Caution       string
+	Axis                         string // as sweepView's
 	Spec                         []kv
 	Key, SpecKey, Range          string
 	ColKey, ColSpecKey, ColRange string
@@ -422,6 +429,9 @@ func specRows(s report.Spec) []kv {
 		clk = freq(*s.Hardware.ClockHz)
 	}
 	rows = append(rows, kv{"Hardware clock", clk})
+	if s.Hardware.Multiplierless {
+		rows = append(rows, kv{"Multiplierless", "yes: FIR and half-band stages are shared adder graphs; chains are priced by their adders as built"})
+	}
 	sym := "counted once (folded)"
 	if !s.Cost.Symmetry {
 		sym = "not exploited"
@@ -505,9 +515,14 @@ func frontRows(front []report.Chain, rec int, clock bool) []frontRow {
 			kind += ", misses spec"
 		}
 		rej, rip := c.BuiltFigures()
+		// A multiplierless chain's cost column holds its adders as built.
+		mult := trimFloat(c.MultipliesPerOutput, 2)
+		if c.Adders != nil {
+			mult = strconv.Itoa(*c.Adders)
+		}
 		row := frontRow{
 			Index: i + 1, Rec: i == rec, Notation: c.Notation,
-			Mult: trimFloat(c.MultipliesPerOutput, 2), Adds: trimFloat(c.AddsPerOutput, 2),
+			Mult: mult, Adds: trimFloat(c.AddsPerOutput, 2),
 			MemBits: strconv.Itoa(c.MemoryBits), MemWords: strconv.Itoa(c.MemoryWords),
 			Latency: seconds(c.LatencyS), LatOut: trimFloat(c.LatencySamples, 1),
 			Rejection: fmt.Sprintf("%.2f", rej), Margin: fmt.Sprintf("%+.2f", c.RejectionMarginDB),
@@ -589,6 +604,16 @@ func stageViews(c report.Chain, files []string, prefix string, clock bool) []sta
 }
 
 // topFiles leaves out the per-value folders, which the value sections link.
+// costAxis heads a sweep page's cost columns: "adders" for a
+// multiplierless spec, whose chains are priced by their adders as built,
+// else "mult/out".
+func costAxis(s report.Spec) string {
+	if s.Hardware.Multiplierless {
+		return "adders"
+	}
+	return "mult/out"
+}
+
 // listedFiles is the Files section's list of a plan's folder: every file
 // but the test vectors, of which only vectors/README.txt is listed (it
 // names the others: six stimuli, each with its input and every stage's

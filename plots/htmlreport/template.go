@@ -194,7 +194,7 @@ const templates = `
 {{if .FigureSVG}}<figure>{{.FigureSVG}}<figcaption>The recommended chain's figures (solid) and the least on each front (dashed) against {{.Key}}; dashed vertical lines mark where the recommended chain's structure changes.</figcaption></figure>{{end}}
 <div class="scroll"><table>
 <thead><tr><th class="n" rowspan="2">#</th><th class="n" rowspan="2">{{.Key}}</th><th colspan="{{if .Clock}}6{{else}}5{{end}}">recommended chain</th><th colspan="3">least on the front</th></tr>
-<tr><th>chain</th><th class="n">mult/out</th><th class="n">memory bits</th>{{if .Clock}}<th class="n">multi&shy;pliers</th>{{end}}<th class="n">latency</th><th class="n">rejection dB</th><th class="n">mult/out</th><th class="n">memory bits</th><th class="n">latency</th></tr></thead>
+<tr><th>chain</th><th class="n">{{.Axis}}</th><th class="n">memory bits</th>{{if .Clock}}<th class="n">multi&shy;pliers</th>{{end}}<th class="n">latency</th><th class="n">rejection dB</th><th class="n">{{.Axis}}</th><th class="n">memory bits</th><th class="n">latency</th></tr></thead>
 <tbody>
 {{range .Values}}<tr class="{{if .Changed}}mark{{end}}{{if not .HasChain}} bad{{end}}"><td class="n">{{.Index}}</td><td class="n">{{.Text}}</td>{{if .HasChain}}<td class="chain"><a href="#{{.Anchor}}">{{.Notation}}</a>{{if .Changed}} <span class="tag">new structure</span>{{end}}{{if ne .Status "ok"}} <span class="tag">{{.Status}}</span>{{end}}</td><td class="n">{{.Rec.Mult}}</td><td class="n">{{.Rec.MemBits}}</td>{{if $.Clock}}<td class="n">{{.Rec.Multipliers}}</td>{{end}}<td class="n">{{.Rec.Latency}}</td><td class="n">{{.Rec.Rejection}}</td><td class="n">{{.BestMult}}</td><td class="n">{{.BestMem}}</td><td class="n">{{.BestLat}}</td>{{else}}<td colspan="{{if $.Clock}}9{{else}}8{{end}}"><strong>{{.Status}}:</strong> {{.Detail}}</td>{{end}}</tr>
 {{end}}</tbody></table></div>
@@ -204,7 +204,7 @@ const templates = `
 {{range .Values}}{{if .HasChain}}<section class="value" id="{{.Anchor}}"><h2>{{$.Key}} = {{.Text}}</h2>
 {{if .Detail}}<p class="caution">{{.Detail}}</p>{{end}}
 <div class="rec"><p class="chain">{{.Notation}}</p><p>{{.Reason}}</p></div>
-{{template "front" (frontArgs .Front $.Clock)}}
+{{template "front" (frontArgs .Front $.Clock $.Axis)}}
 {{template "stages" .Stages}}
 <p class="files">This value's files: <a class="file" href="{{.Report}}">{{.Report}}</a></p>
 </section>
@@ -239,7 +239,7 @@ const templates = `
 </section>
 
 <section id="summary"><h2>Summary</h2>
-{{if .FigureSVG}}<figure>{{.FigureSVG}}<figcaption>The recommended chain's multiplies per output over {{.Key}} and {{.ColKey}}; heavy lines separate cells whose recommended structure differs, grey cells have no chain.</figcaption></figure>{{end}}
+{{if .FigureSVG}}<figure>{{.FigureSVG}}<figcaption>The recommended chain's {{if eq .Axis "adders"}}hardware adders as built{{else}}multiplies per output{{end}} over {{.Key}} and {{.ColKey}}; heavy lines separate cells whose recommended structure differs, grey cells have no chain.</figcaption></figure>{{end}}
 <p>Multiplies per output of each cell's recommended chain (rows {{.Key}}, columns {{.ColKey}}); a cell links to its chain.</p>
 <div class="scroll"><table class="grid">
 <thead><tr><th>{{.Key}} \ {{.ColKey}}</th>{{range .Head}}<th class="n">{{.}}</th>{{end}}</tr></thead>
@@ -251,7 +251,7 @@ const templates = `
 <section id="cells"><h2>Every cell</h2>
 <div class="scroll"><table>
 <thead><tr><th class="n" rowspan="2">#</th><th class="n" rowspan="2">{{.Key}}</th><th class="n" rowspan="2">{{.ColKey}}</th><th colspan="{{if .Clock}}6{{else}}5{{end}}">recommended chain</th><th colspan="3">least on the front</th></tr>
-<tr><th>chain</th><th class="n">mult/out</th><th class="n">memory bits</th>{{if .Clock}}<th class="n">multi&shy;pliers</th>{{end}}<th class="n">latency</th><th class="n">rejection dB</th><th class="n">mult/out</th><th class="n">memory bits</th><th class="n">latency</th></tr></thead>
+<tr><th>chain</th><th class="n">{{.Axis}}</th><th class="n">memory bits</th>{{if .Clock}}<th class="n">multi&shy;pliers</th>{{end}}<th class="n">latency</th><th class="n">rejection dB</th><th class="n">{{.Axis}}</th><th class="n">memory bits</th><th class="n">latency</th></tr></thead>
 <tbody>
 {{range .Values}}<tr class="{{if .Changed}}mark{{end}}{{if not .HasChain}} bad{{end}}"><td class="n">{{.Index}}</td><td class="n">{{.Text}}</td><td class="n">{{.ColText}}</td>{{if .HasChain}}<td class="chain"><a href="#{{.Anchor}}">{{.Notation}}</a>{{if .Changed}} <span class="tag">new structure</span>{{end}}{{if ne .Status "ok"}} <span class="tag">{{.Status}}</span>{{end}}</td><td class="n">{{.Rec.Mult}}</td><td class="n">{{.Rec.MemBits}}</td>{{if $.Clock}}<td class="n">{{.Rec.Multipliers}}</td>{{end}}<td class="n">{{.Rec.Latency}}</td><td class="n">{{.Rec.Rejection}}</td><td class="n">{{.BestMult}}</td><td class="n">{{.BestMem}}</td><td class="n">{{.BestLat}}</td>{{else}}<td colspan="{{if $.Clock}}9{{else}}8{{end}}"><strong>{{.Status}}:</strong> {{.Detail}}</td>{{end}}</tr>
 {{end}}</tbody></table></div>
@@ -261,7 +261,7 @@ const templates = `
 {{range .Values}}{{if .HasChain}}<section class="value" id="{{.Anchor}}"><h2>{{$.Key}} = {{.Text}}, {{$.ColKey}} = {{.ColText}}</h2>
 {{if .Detail}}<p class="caution">{{.Detail}}</p>{{end}}
 <div class="rec"><p class="chain">{{.Notation}}</p><p>{{.Reason}}</p></div>
-{{template "front" (frontArgs .Front $.Clock)}}
+{{template "front" (frontArgs .Front $.Clock $.Axis)}}
 {{template "stages" .Stages}}
 <p class="files">This cell's files: <a class="file" href="{{.Report}}">{{.Report}}</a></p>
 </section>
