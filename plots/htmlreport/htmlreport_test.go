@@ -2,7 +2,9 @@ package htmlreport
 
 import (
 	"bytes"
+	"context"
 	"flag"
+	"fmt"
 	"math"
 	"os"
 	"path/filepath"
@@ -12,6 +14,7 @@ import (
 
 	"github.com/stepdown-dsp/stepdown/chain/fixed"
 	"github.com/stepdown-dsp/stepdown/chain/specfile"
+	"github.com/stepdown-dsp/stepdown/optimize"
 	"github.com/stepdown-dsp/stepdown/optimize/sweep"
 	"github.com/stepdown-dsp/stepdown/plots"
 	"github.com/stepdown-dsp/stepdown/plots/report"
@@ -394,5 +397,59 @@ func TestGridPage(t *testing.T) {
 	}
 	if *sampleDir != "" {
 		_ = os.WriteFile(filepath.Join(*sampleDir, "grid-report.html"), b, 0o644)
+	}
+}
+
+// A multiplierless plan's page is priced in adders: the front table's cost
+// column (the recommended chain's adders as report.json states them), the
+// front figure's caption, the spec table and the resource table's graph
+// and tap adder columns. An invented 2.4 GS/s spec with a 400 MHz clock.
+func TestPlanPageMultiplierless(t *testing.T) {
+	s, err := specfile.Parse("ml.toml", []byte(`input_rate = "2.4 GHz"
+output_rate = "37.5 MHz"
+passband = "12 MHz"
+ripple = "0.2 dB"
+rejection = "60 dB"
+[words]
+input = 12
+output = 16
+coefficients = 16
+[hardware]
+clock = "400 MHz"
+multiplierless = true
+`))
+	if err != nil {
+		t.Fatal(err)
+	}
+	ctx := context.Background()
+	res, err := optimize.Plan(ctx, s.Chain, s.SearchSettings())
+	if err != nil {
+		t.Fatal(err)
+	}
+	rep, err := report.NewContext(ctx, "plan", s, res)
+	if err != nil {
+		t.Fatal(err)
+	}
+	files, err := report.Files(ctx, rep, res, s)
+	if err != nil {
+		t.Fatal(err)
+	}
+	files, err = AddPlanPage("ml.toml", rep, files)
+	if err != nil {
+		t.Fatal(err)
+	}
+	page := string(files[len(files)-1].Data)
+	rec := rep.Front[rep.Recommended]
+	for _, want := range []string{
+		`<th class="n">adders</th>`, "Hardware adders (as built)", "Multiplierless</th>",
+		`<th class="n">graph adders</th>`, `<th class="n">tap adders</th>`,
+		fmt.Sprintf(`<td class="n">%d</td>`, *rec.Adders),
+	} {
+		if !strings.Contains(page, want) {
+			t.Errorf("page lacks %q", want)
+		}
+	}
+	if strings.Contains(page, `<th class="n">mult/out</th>`) {
+		t.Error("the front table still heads its cost column mult/out")
 	}
 }
