@@ -164,3 +164,41 @@ func TestMinLengthWarmEqualsCold(t *testing.T) {
 		t.Errorf("only %d of %d cases designed", compared, n)
 	}
 }
+
+// TestLengthOnlySameLength checks that Settings.LengthOnly, which stops
+// designs proven too short (their levelled deviation above 1: de la
+// Vallée Poussin's lower bound), finds the same length as the full search
+// on lowpass, bandpass, compensator-shaped and multiband specifications,
+// and that its taps meet the bands too.
+func TestLengthOnlySameLength(t *testing.T) {
+	droop := func(f float64) float64 { return 1 + 0.5*(f/0.1)*(f/0.1) } // an invented compensator's gain shape
+	for _, tc := range []struct {
+		name  string
+		rate  float64
+		bands []Band
+	}{
+		{"lp", 1, []Band{{Lo: 0, Hi: 0.1, Gain: 1, MaxError: 0.005}, {Lo: 0.13, Hi: 0.5, Gain: 0, MaxError: 3e-5}}},
+		{"lp-wide", 1, []Band{{Lo: 0, Hi: 0.2, Gain: 1, MaxError: 0.01}, {Lo: 0.25, Hi: 0.5, Gain: 0, MaxError: 0.001}}},
+		{"bp", 48000, []Band{{Lo: 0, Hi: 3000, Gain: 0, MaxError: 1e-4}, {Lo: 4000, Hi: 8000, Gain: 1, MaxError: 0.005}, {Lo: 9500, Hi: 24000, Gain: 0, MaxError: 1e-4}}},
+		{"comp", 1, []Band{{Lo: 0, Hi: 0.1, GainFunc: droop, MaxError: 0.002, WeightFunc: func(f float64) float64 { return 1 / droop(f) }}, {Lo: 0.15, Hi: 0.5, Gain: 0, MaxError: 1e-4}}},
+		{"multi", 1, []Band{{Lo: 0, Hi: 0.02, Gain: 1, MaxError: 0.001}, {Lo: 0.105, Hi: 0.145, Gain: 0, MaxError: 1e-4}, {Lo: 0.23, Hi: 0.27, Gain: 0, MaxError: 1e-4}, {Lo: 0.355, Hi: 0.395, Gain: 0, MaxError: 1e-4}, {Lo: 0.48, Hi: 0.5, Gain: 0, MaxError: 1e-4}}},
+	} {
+		full, fs, err := minLength(context.Background(), tc.rate, tc.bands, 0, 0, Settings{})
+		if err != nil {
+			t.Fatalf("%s: %v", tc.name, err)
+		}
+		sized, ss, err := minLength(context.Background(), tc.rate, tc.bands, 0, 0, Settings{LengthOnly: true})
+		if err != nil {
+			t.Fatalf("%s LengthOnly: %v", tc.name, err)
+		}
+		if len(sized.Taps) != len(full.Taps) {
+			t.Errorf("%s: LengthOnly %d taps, full search %d", tc.name, len(sized.Taps), len(full.Taps))
+		}
+		// meetsAll reads constant gains only: comp's band is checked by
+		// the engine's own measurement.
+		if tc.name != "comp" && !meetsAll(sized.Taps, tc.rate, tc.bands) {
+			t.Errorf("%s: LengthOnly's %d taps do not meet the bands", tc.name, len(sized.Taps))
+		}
+		t.Logf("%s: %d taps; designs %d full, %d LengthOnly", tc.name, len(full.Taps), fs.designs, ss.designs)
+	}
+}
