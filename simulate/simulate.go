@@ -50,7 +50,10 @@ const MaxSamples = 1 << 24
 
 // Run plans the word lengths of the designed chain c for spec (the same
 // plan as report.json's: fixed.PlanChainContext with settings s) and runs
-// the input through its integer and float data paths. A complex chain
+// the input through its integer and float data paths. The input's codes
+// are moved to the chain's input word in place: Run owns in.Paths, and
+// Result.In is the same memory (a recording of 2^24 I/Q samples is 256 MB
+// of codes, held once). A complex chain
 // takes one or two paths (a real recording is run as I with Q zero), a real
 // chain one. ctx stops it between blocks.
 func Run(ctx context.Context, spec chain.Spec, c *chain.Chain, s fixed.Settings, in Input) (*Result, error) {
@@ -92,9 +95,8 @@ func Run(ctx context.Context, spec chain.Spec, c *chain.Chain, s fixed.Settings,
 	if c.Complex && len(paths) == 1 {
 		paths = [][]int64{paths[0], make([]int64, len(paths[0]))}
 	}
-	for _, p := range paths {
-		x, clipped := toWord(p, in.Bits, w.InputBits)
-		res.Clipped += clipped
+	for _, x := range paths {
+		res.Clipped += toWord(x, in.Bits, w.InputBits)
 		res.In = append(res.In, x)
 		codes, fl, err := fixed.RunCodes(ctx, cas, w, x)
 		if err != nil {
@@ -105,24 +107,40 @@ func Run(ctx context.Context, spec chain.Spec, c *chain.Chain, s fixed.Settings,
 	return res, nil
 }
 
-// toWord moves codes of from bits to the chain's to-bit input word: exactly
-// when the word is as wide or wider, else as fixed.ADC rounds and saturates
-// the fractions of full scale (a power-of-two scaling, exact in float64).
-func toWord(x []int64, from, to int) ([]int64, int) {
-	if from == to {
-		return x, 0
-	}
-	out := make([]int64, len(x))
-	if to > from {
+// toWord moves codes of from bits to the chain's to-bit input word, in
+// place: exactly when the word is as wide or wider (a shift up), else
+// rounded to nearest with halves away from zero and saturated, which is
+// what fixed.ADC does to the fractions of full scale (a power-of-two
+// scaling, exact), in integer arithmetic. It returns the count of
+// saturated samples.
+func toWord(x []int64, from, to int) int {
+	switch {
+	case from == to:
+		return 0
+	case to > from:
 		for i, v := range x {
-			out[i] = v << uint(to-from)
+			x[i] = v << uint(to-from)
 		}
-		return out, 0
+		return 0
 	}
-	f := make([]float64, len(x))
-	lsb := math.Ldexp(1, -(from - 1))
+	s := uint(from - to)
+	half := int64(1) << (s - 1)
+	hi, lo := int64(1)<<(to-1)-1, -(int64(1) << (to - 1))
+	clipped := 0
 	for i, v := range x {
-		f[i] = float64(v) * lsb
+		var q int64
+		if v >= 0 {
+			q = (v + half) >> s
+		} else {
+			q = -((-v + half) >> s)
+		}
+		switch {
+		case q > hi:
+			q, clipped = hi, clipped+1
+		case q < lo:
+			q, clipped = lo, clipped+1
+		}
+		x[i] = q
 	}
-	return out, fixed.ADC(out, f, to)
+	return clipped
 }

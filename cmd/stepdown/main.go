@@ -15,6 +15,7 @@ import (
 	"os"
 	"os/signal"
 	"regexp"
+	"runtime/debug"
 	"slices"
 	"strings"
 	"syscall"
@@ -43,7 +44,18 @@ func usagef(format string, args ...any) error {
 	return usageError{fmt.Errorf(format, args...)}
 }
 
+// softMemoryLimit is the heap size at which the garbage collector works
+// hardest (debug.SetMemoryLimit), well under the 1 GiB that no input may
+// make stepdown use: the largest working sets (a simulated recording of
+// 2^24 I/Q samples, a plan's files in memory) stay under it, and the
+// collector keeps the heap's growth between collections from carrying the
+// process over. GOMEMLIMIT, when set, takes its place.
+const softMemoryLimit = 640 << 20
+
 func main() {
+	if os.Getenv("GOMEMLIMIT") == "" {
+		debug.SetMemoryLimit(softMemoryLimit)
+	}
 	ctx, stop := signal.NotifyContext(context.Background(), os.Interrupt, syscall.SIGTERM)
 	go func() {
 		// The first Ctrl-C asks for a clean stop; restoring the default
