@@ -34,6 +34,7 @@ func simulateCommand() *cli.Command {
 			&cli.StringFlag{Name: "chain", Usage: "run this chain (the notation plan prints) instead of the recommended one"},
 			&cli.StringFlag{Name: "format", Usage: "the file's format: wav, int16, int32 or csv (csvN: values held to N bits)", DefaultText: "from the extension"},
 			&cli.StringFlag{Name: "rate", Usage: "the sample rate of a raw or CSV file, e.g. \"122.88 MHz\"", DefaultText: "the spec's input_rate"},
+			&cli.IntFlag{Name: "channels", Usage: "channels of a raw file: 1 (real) or 2 (interleaved I/Q)", DefaultText: "2 for a complex spec, 1 for a real one"},
 			&cli.StringFlag{Name: "out", Value: "stepdown-sim", Usage: "output folder (replaced as a whole, atomically)"},
 			&cli.BoolFlag{Name: "json", Usage: "print simulate.json on stdout as well (the summary goes to stderr)", DefaultText: "off"},
 			&cli.BoolFlag{Name: "quiet", Usage: "print nothing but errors (and --json output)", DefaultText: "off"},
@@ -112,7 +113,7 @@ func runSimulate(c *cli.Context) error {
 	if f := c.String("format"); f != "" {
 		var err error
 		if stated, err = signalio.ParseFormat(f); err != nil {
-			return usagef("--format %q: %s", clip(f), err)
+			return usagef("--%s", err)
 		}
 	}
 	format, err := signalio.Choose(input, stated)
@@ -124,6 +125,9 @@ func runSimulate(c *cli.Context) error {
 		if plan, err = parseChainFlag(c); err != nil {
 			return err
 		}
+	}
+	if c.IsSet("channels") && (c.Int("channels") < 1 || c.Int("channels") > 2) {
+		return usagef("--channels %d: must be 1 (real) or 2 (interleaved I/Q)", c.Int("channels"))
 	}
 	if n := c.Int("jobs"); n < 0 || n > 1024 {
 		return usagef("--jobs %d: must lie in [1, 1024] (0 or absent: the number of CPUs)", n)
@@ -158,6 +162,15 @@ func runSimulate(c *cli.Context) error {
 		}
 	default:
 		opt.RateHz = rate
+		// A raw file has no header: its channels are the spec's signal
+		// (interleaved I/Q for a complex one) unless --channels says.
+		opt.Format.Channels = 1
+		if j.spec.Signal == "complex" {
+			opt.Format.Channels = 2
+		}
+		if c.IsSet("channels") {
+			opt.Format.Channels = c.Int("channels")
+		}
 	}
 	sig, format, err := signalio.ReadFile(input, opt)
 	if err != nil {
@@ -165,6 +178,10 @@ func runSimulate(c *cli.Context) error {
 	}
 	if !(math.Abs(sig.RateHz-cs.InputRate) <= 1e-9*cs.InputRate) {
 		return usagef("--input %s: its sample rate is %s, but the spec's input_rate is %s", clip(filepath.Base(input)), units.FormatFrequency(sig.RateHz), units.FormatFrequency(cs.InputRate))
+	}
+	var notes []string
+	if sig.Channels() == 1 && j.spec.Signal == "complex" {
+		notes = append(notes, "one channel into a complex chain: run as I, with Q zero")
 	}
 	if sig.Channels() == 2 && j.spec.Signal != "complex" {
 		return usagef("--input %s: two channels (I/Q), but the spec's signal is %q: set signal = \"complex\" or give one channel", clip(filepath.Base(input)), j.spec.Signal)
@@ -216,6 +233,7 @@ func runSimulate(c *cli.Context) error {
 		return err
 	}
 	rep.SpecSHA256, rep.ChainSource = j.spec.SHA256, source
+	rep.Notes = append(notes, rep.Notes...)
 	rep.Bands = simBands{Passband: cs.Passband, Protected: cs.Protected, Output: res.OutputRateHz}
 	var buf bytes.Buffer
 	enc := json.NewEncoder(&buf)
@@ -246,7 +264,11 @@ func runSimulate(c *cli.Context) error {
 	if res.Rescaled {
 		fmt.Fprintf(w, " moved to the chain's %d-bit input word (%d clipped)", res.InputBits, res.Clipped)
 	}
-	fmt.Fprintf(w, "\n  out: %d samples at %s, %d-bit codes\n\n", len(res.Out[0]), units.FormatFrequency(res.OutputRateHz), res.OutputBits)
+	fmt.Fprintf(w, "\n  out: %d samples at %s, %d-bit codes\n", len(res.Out[0]), units.FormatFrequency(res.OutputRateHz), res.OutputBits)
+	for _, n := range notes {
+		fmt.Fprintf(w, "  note: %s\n", n)
+	}
+	fmt.Fprintln(w)
 	rows := [][]string{
 		{"input", "whole band", dbfs(lv.InputDBFS)},
 		{"input", "passband", dbfs(lv.InputPassbandDBFS)},

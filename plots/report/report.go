@@ -493,13 +493,17 @@ func NewContext(ctx context.Context, command string, s *specfile.Spec, res *opti
 	}
 	close(next)
 	wg.Wait()
+	paths := 1
+	if s.Signal == "complex" {
+		paths = 2
+	}
 	for i := range r.Front {
 		if s.Multiplierless {
 			if err := AddAdders(&r.Front[i], s); err != nil {
 				return nil, err
 			}
 		}
-		r.Front[i].Resources = NewResources(&r.Front[i], s.Clock, s.Chain.OutputRate)
+		r.Front[i].Resources = NewResources(&r.Front[i], s.Clock, s.Chain.OutputRate, paths)
 	}
 	if len(r.Front) > 0 && (r.Recommended < 0 || r.Recommended >= len(r.Front)) {
 		return nil, fmt.Errorf("report: recommended index %d outside the front of %d chains", r.Recommended, len(r.Front))

@@ -54,9 +54,10 @@ type StageResources struct {
 }
 
 // NewResources is c's bill of resources at a clock of clock Hz, for a
-// chain whose last stage delivers outRate samples per second; nil without
-// a clock.
-func NewResources(c *Chain, clock, outRate float64) *Resources {
+// chain whose last stage delivers outRate samples per second and that runs
+// paths real data paths (2 for I/Q, which doubles every stage's data
+// memory, not its coefficients); nil without a clock.
+func NewResources(c *Chain, clock, outRate float64, paths int) *Resources {
 	if !(clock > 0) {
 		return nil
 	}
@@ -96,10 +97,11 @@ func NewResources(c *Chain, clock, outRate float64) *Resources {
 			if len(w.RegisterBits) > 0 {
 				sr.AdderBits = slices.Max(w.RegisterBits)
 			}
-			// A FIR's memory at its planned widths; a CIC's is the
-			// pricing's, which counts its integrators once per lane.
+			// A FIR's memory at its planned widths (its delay line once
+			// per data path); a CIC's is the pricing's, which counts its
+			// integrators once per lane and both paths.
 			if st.Kind != "cic" && w.DataMemoryBits+w.CoefMemoryBits > 0 {
-				mem = w.DataMemoryBits + w.CoefMemoryBits
+				mem = w.DataMemoryBits*max(paths, 1) + w.CoefMemoryBits
 			}
 		} else if len(st.RegisterBits) > 0 {
 			sr.AdderBits = slices.Max(st.RegisterBits)

@@ -2,10 +2,13 @@ package report
 
 import (
 	"bytes"
+	"context"
 	"strings"
 	"testing"
 
 	"github.com/stepdown-dsp/stepdown/chain/fixed"
+	"github.com/stepdown-dsp/stepdown/chain/specfile"
+	"github.com/stepdown-dsp/stepdown/optimize"
 )
 
 // NewResources on a hand-built chain, counted by hand: a CIC 4 lanes wide
@@ -20,7 +23,7 @@ func TestNewResources(t *testing.T) {
 		{Kind: "fir", AddsPerOutput: 30, MemoryBits: 1032, Multipliers: ip(1), ParallelLanes: ip(1),
 			StageReport: &fixed.StageReport{AccumulatorBits: 44, DataMemoryBits: 744, CoefMemoryBits: 288, HardwareMultipliers: ip(2)}},
 	}}
-	r := NewResources(&c, 100e6, 1e6)
+	r := NewResources(&c, 100e6, 1e6, 1)
 	want := Resources{Multipliers: 2, Adders: 3, RegisterBits: 315, BlockMemoryBits: 1032, Lanes: 4, Stages: []StageResources{
 		{Stage: 1, Kind: "cic", Lanes: 4, Adders: 2, AdderBits: 21, RegisterBits: 315},
 		{Stage: 2, Kind: "fir", Lanes: 1, Multipliers: 2, Adders: 1, AdderBits: 44, BlockMemoryBits: 1032},
@@ -37,7 +40,7 @@ func TestNewResources(t *testing.T) {
 			t.Errorf("stage %d: %+v, want %+v", i+1, r.Stages[i], want.Stages[i])
 		}
 	}
-	if NewResources(&c, 0, 1e6) != nil {
+	if NewResources(&c, 0, 1e6, 1) != nil {
 		t.Error("resources without a clock")
 	}
 	c.Resources = r
@@ -46,6 +49,36 @@ func TestNewResources(t *testing.T) {
 	for _, frag := range []string{"resources of cic3m1r8 > fir4", "block memory bits", "total"} {
 		if !strings.Contains(b.String(), frag) {
 			t.Errorf("table lacks %q:\n%s", frag, b.String())
+		}
+	}
+}
+
+// With no lanes (the example's clock is above its input rate) a chain's
+// bill holds exactly its planned memory, I and Q data paths both: register
+// and block memory bits add up to fixed_memory_bits (chain/fixed's count of
+// data and coefficients) on every front chain of the example, a complex
+// chain.
+func TestResourcesHoldBothPaths(t *testing.T) {
+	s, err := specfile.Example()
+	if err != nil {
+		t.Fatal(err)
+	}
+	ctx := context.Background()
+	res, err := optimize.Plan(ctx, s.Chain, s.SearchSettings())
+	if err != nil {
+		t.Fatal(err)
+	}
+	rep, err := NewContext(ctx, "plan", s, res)
+	if err != nil {
+		t.Fatal(err)
+	}
+	for _, c := range rep.Front {
+		r := c.Resources
+		if r == nil || c.ChainReport == nil {
+			t.Fatalf("%s: no resources or word lengths", c.Notation)
+		}
+		if got := r.RegisterBits + r.BlockMemoryBits; got != c.FixedMemoryBits {
+			t.Errorf("%s: the bill holds %d memory bits, the plan %d", c.Notation, got, c.FixedMemoryBits)
 		}
 	}
 }
