@@ -13,7 +13,8 @@ import (
 )
 
 // Beater is a chain of a plan's front that beats a checked chain: at least
-// as good on every axis (multiplies per output, memory bits, latency) and
+// as good on every axis (multiplies per output, memory bits, latency; a
+// multiplierless plan's hardware adders in place of the multiplies) and
 // better on one, and meeting the targets. Savings are in percent of the
 // checked chain's figure (0 where the two are equal; a checked figure of
 // zero saves nothing).
@@ -24,6 +25,9 @@ type Beater struct {
 	MultipliesSavingPct float64 `json:"multiplies_saving_pct"`
 	MemorySavingPct     float64 `json:"memory_saving_pct"`
 	LatencySavingPct    float64 `json:"latency_saving_pct"`
+	// AddersSavingPct is set when the chains are multiplierless: the
+	// comparison is then on adders as built, and MultipliesSavingPct is 0.
+	AddersSavingPct *float64 `json:"adders_saving_pct,omitempty"`
 }
 
 // BeatenBy returns the chains of front that beat c (see Beater), in the
@@ -37,15 +41,25 @@ func BeatenBy(c Chain, front []Chain) []Beater {
 		}
 		fm, fb, fl := f.MultipliesPerOutput, float64(f.MemoryBits), f.LatencyS
 		cm, cb, cl := c.MultipliesPerOutput, float64(c.MemoryBits), c.LatencyS
+		adders := f.Adders != nil && c.Adders != nil
+		if adders {
+			// A multiplierless front's cost axis.
+			fm, cm = float64(*f.Adders), float64(*c.Adders)
+		}
 		if fm > cm || fb > cb || fl > cl || (fm == cm && fb == cb && fl == cl) {
 			continue
 		}
-		out = append(out, Beater{
+		b := Beater{
 			Rank: i + 1, Notation: f.Notation,
 			MultipliesSavingPct: saving(fm, cm),
 			MemorySavingPct:     saving(fb, cb),
 			LatencySavingPct:    saving(fl, cl),
-		})
+		}
+		if adders {
+			a := b.MultipliesSavingPct
+			b.AddersSavingPct, b.MultipliesSavingPct = &a, 0
+		}
+		out = append(out, b)
 	}
 	return out
 }
@@ -72,7 +86,11 @@ func (b Beater) Text() string {
 		}
 		parts = append(parts, p+" "+what)
 	}
-	add(b.MultipliesSavingPct, "fewer multiplies")
+	if b.AddersSavingPct != nil {
+		add(*b.AddersSavingPct, "fewer adders")
+	} else {
+		add(b.MultipliesSavingPct, "fewer multiplies")
+	}
 	add(b.MemorySavingPct, "less memory")
 	add(b.LatencySavingPct, "less latency")
 	var s string

@@ -115,3 +115,23 @@ func TestReadComparison(t *testing.T) {
 		t.Error("a missing file was accepted")
 	}
 }
+
+// On a multiplierless front the cost axis is adders as built: a chain with
+// fewer multiplies per output but more adders does not beat the checked
+// chain, one with fewer adders and no more of anything else does, and
+// says so in adders (worked by hand: 85 against 100 adders is 15% fewer).
+func TestBeatenByAdders(t *testing.T) {
+	a := func(n int) *int { return &n }
+	checked := Chain{Notation: "cic4m1r8 > hb > fir2", MultipliesPerOutput: 40, MemoryBits: 1000, LatencyS: 1e-6, Adders: a(100), MeetsTargets: true}
+	front := []Chain{
+		{Notation: "cic6m1r16nr > fir2", MultipliesPerOutput: 20, MemoryBits: 900, LatencyS: 1e-6, Adders: a(103), MeetsTargets: true},
+		{Notation: "cic3m1r8 > fir4", MultipliesPerOutput: 60, MemoryBits: 1000, LatencyS: 1e-6, Adders: a(85), MeetsTargets: true},
+	}
+	got := BeatenBy(checked, front)
+	if len(got) != 1 || got[0].Rank != 2 || got[0].AddersSavingPct == nil || *got[0].AddersSavingPct != 15 || got[0].MultipliesSavingPct != 0 {
+		t.Fatalf("BeatenBy = %+v", got)
+	}
+	if want := "#2 cic3m1r8 > fir4 does it with 15% fewer adders"; got[0].Text() != want {
+		t.Errorf("Text() = %q, want %q", got[0].Text(), want)
+	}
+}
