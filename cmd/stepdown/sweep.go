@@ -338,13 +338,19 @@ func printGrid(w io.Writer, source, dir string, g sweep.Grid, rs []sweep.Result,
 	for _, x := range g.Columns.Values {
 		rows[0] = append(rows[0], g.Columns.Key.Format(x))
 	}
+	what := "Multiplies per output"
 	for i, r := range rs {
 		if i%n == 0 {
 			rows = append(rows, []string{g.Rows.Key.Format(r.Value)})
 		}
 		cell := r.Status.Mark()
 		if r.Status.HasChain() {
-			cell = report.TrimFloat(r.Report.Front[r.Report.Recommended].MultipliesPerOutput, 1)
+			c := r.Report.Front[r.Report.Recommended]
+			cell = report.TrimFloat(c.MultipliesPerOutput, 1)
+			if c.Adders != nil {
+				// A multiplierless spec's cost: adders as built.
+				cell, what = fmt.Sprint(*c.Adders), "Hardware adders (as built)"
+			}
 			if r.Status == sweep.Partial {
 				cell += "*"
 				partial = true
@@ -353,7 +359,7 @@ func printGrid(w io.Writer, source, dir string, g sweep.Grid, rs []sweep.Result,
 		}
 		rows[len(rows)-1] = append(rows[len(rows)-1], cell)
 	}
-	fmt.Fprintln(w, "Multiplies per output of each cell's recommended chain; the letter names its structure.")
+	fmt.Fprintln(w, what+" of each cell's recommended chain; the letter names its structure.")
 	fmt.Fprintln(w)
 	report.WriteAligned(w, "", rows, func(i int) bool { return i > 0 })
 	if len(notations) > 0 {

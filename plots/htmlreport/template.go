@@ -134,7 +134,7 @@ const templates = `
 <section id="recommendation"><h2>Recommendation</h2>
 {{with .Rec}}<div class="rec"><p class="chain">#{{.Index}} {{.Notation}}</p>
 <p>{{.Reason}}</p>
-<p>{{.Figures.Mult}} multiplies and {{.Figures.Adds}} adds per output sample{{if $.Clock}} (hardware multipliers at the clock: {{.Figures.Multipliers}}){{end}}; {{.Figures.MemBits}} bits of memory ({{.Figures.MemWords}} words); latency {{.Figures.Latency}} ({{.Figures.LatOut}} output samples); alias rejection {{.Figures.Rejection}} dB (margin {{.Figures.Margin}} dB); passband ripple {{.Figures.Ripple}} dB; {{.Figures.Kind}}.</p></div>
+<p>{{if eq $.Axis "adders"}}{{.Figures.Mult}} adders as built (multiplierless) and {{.Figures.Adds}} adds per output sample{{else}}{{.Figures.Mult}} multiplies and {{.Figures.Adds}} adds per output sample{{end}}{{if $.Clock}} (hardware multipliers at the clock: {{.Figures.Multipliers}}){{end}}; {{.Figures.MemBits}} bits of memory ({{.Figures.MemWords}} words); latency {{.Figures.Latency}} ({{.Figures.LatOut}} output samples); alias rejection {{.Figures.Rejection}} dB (margin {{.Figures.Margin}} dB); passband ripple {{.Figures.Ripple}} dB; {{.Figures.Kind}}.</p></div>
 {{else}}<p>No chain meets the spec.</p>{{end}}
 {{if .Compared}}<p>Compared with the front of {{.Compared}}: {{if .Beaten}}it is beaten.</p>
 <ul>{{range .Beaten}}<li>{{.}}</li>{{end}}</ul>{{else}}{{.CompareText}}</p>{{end}}{{end}}

@@ -88,7 +88,18 @@ func WriteWordLengths(w io.Writer, rep *Report) {
 			}
 			fmt.Fprintf(&b, ", sub-stages %s bits", strings.Join(subs, ", "))
 		case st.Kind == "cic":
-			fmt.Fprintf(&b, ", registers %d..%d bits", sr.AccumulatorBits, sr.RegisterBits[len(sr.RegisterBits)-1])
+			// The registers from the first integrator's to the last comb's
+			// (the full width, before the first truncation, is the
+			// accumulator_bits of report.json).
+			fmt.Fprintf(&b, ", registers %d..%d bits", sr.RegisterBits[0], sr.RegisterBits[len(sr.RegisterBits)-1])
+		case rep.Spec.Hardware.Multiplierless:
+			fmt.Fprintf(&b, ", coefficients %d bits, accumulator %d bits, an adder graph", sr.CoefficientBits, sr.AccumulatorBits)
+			if st.CoefficientAdders != nil && st.StructuralAdders != nil {
+				fmt.Fprintf(&b, " of %d adders and %d tap adders (one lane, one real filter)", *st.CoefficientAdders, *st.StructuralAdders)
+			}
+			if !sr.QuantisedMeetsBands {
+				b.WriteString(", rounded taps miss this stage's own bands (the chain is judged as a whole)")
+			}
 		default:
 			fmt.Fprintf(&b, ", coefficients %d bits, accumulator %d bits, multiplier %s", sr.CoefficientBits, sr.AccumulatorBits, sr.MultiplierSize)
 			if sr.HardwareMultipliers != nil {
@@ -128,7 +139,13 @@ func WriteTable(w io.Writer, rep *Report) {
 		lanes = lanes || (ch.ParallelLanes != nil && *ch.ParallelLanes > 1)
 	}
 	if lanes {
-		head = append(head[:7], append([]string{"lanes"}, head[7:]...)...)
+		// Before latency: after memory bits, and after multipliers when
+		// that column is there, as the rows have it.
+		at := 6
+		if clock {
+			at = 7
+		}
+		head = append(head[:at], append([]string{"lanes"}, head[at:]...)...)
 	}
 	rows := [][]string{head}
 	for i, ch := range rep.Front {

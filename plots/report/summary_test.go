@@ -34,3 +34,27 @@ func TestWordLengthsCICForms(t *testing.T) {
 		}
 	}
 }
+
+// The lanes column sits before latency in the head as in the rows, with
+// and without the multipliers column (a multiplierless spec has none).
+func TestTableLanesColumn(t *testing.T) {
+	clock, lanes, adders := 400e6, 6, 55
+	for _, ml := range []bool{false, true} {
+		rep := &Report{Spec: Spec{Hardware: Hardware{ClockHz: &clock, Multiplierless: ml}},
+			Front: []Chain{{Notation: "cic3m1r16 > fir2 > hb", MultipliesPerOutput: 9, MemoryBits: 989,
+				LatencyS: 153e-9, LatencySamples: 5.7, ParallelLanes: &lanes, Adders: &adders, Designed: true, MeetsTargets: true}}}
+		var b bytes.Buffer
+		WriteTable(&b, rep)
+		lines := strings.Split(b.String(), "\n")
+		head, row := lines[0], lines[1]
+		// Each column is right-aligned to its head's end: the lanes value
+		// ends where "lanes" ends, and the latency text where "latency" does.
+		end := strings.Index(head, "lanes") + len("lanes")
+		if end < len("lanes") || row[end-1:end] != "6" {
+			t.Errorf("multiplierless %v: lanes column misplaced:\n%s\n%s", ml, head, row)
+		}
+		if strings.Index(head, "lanes") > strings.Index(head, "latency") {
+			t.Errorf("multiplierless %v: lanes after latency in the head:\n%s", ml, head)
+		}
+	}
+}
