@@ -7,6 +7,7 @@ import (
 	"fmt"
 	"io"
 	"math"
+	"strconv"
 )
 
 // WAV format tags (Microsoft's mmreg.h; common practice).
@@ -219,7 +220,7 @@ func readWAVData(name string, r io.ReaderAt, off, n int64, fm wavFmt, opt Option
 		return nil, Format{}, fmt.Errorf("%s: the header says %s but the stated format is %s", name, f, s)
 	}
 	if opt.RateHz != 0 && opt.RateHz != float64(fm.rate) {
-		return nil, Format{}, fmt.Errorf("%s: the header says %d Hz but the stated rate is %v Hz", name, fm.rate, opt.RateHz)
+		return nil, Format{}, fmt.Errorf("%s: the header says %d Hz but the stated rate is %s Hz", name, fm.rate, strconv.FormatFloat(opt.RateHz, 'f', -1, 64))
 	}
 	if n%int64(fm.blockAlign) != 0 {
 		return nil, Format{}, fmt.Errorf("%s: the data chunk holds %d bytes, not a whole number of %d-byte frames (%s)", name, n, fm.blockAlign, f)

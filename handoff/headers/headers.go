@@ -207,6 +207,10 @@ func comment(s string) string {
 
 func g(v float64) string { return strconv.FormatFloat(v, 'g', 9, 64) }
 
+// hz writes a rate in Hz in full, without an exponent (2400000000, not
+// 2.4e+09).
+func hz(v float64) string { return strconv.FormatFloat(v, 'f', -1, 64) }
+
 // build checks the plan against its cascade and lays out the constants.
 func build(c fixed.Cascade, w *fixed.Widths, o Options) (*model, error) {
 	upper, lower, err := prefixOf(o)
@@ -238,7 +242,7 @@ func build(c fixed.Cascade, w *fixed.Widths, o Options) (*model, error) {
 	if c.Complex {
 		cplx = 1
 	}
-	chainNotes := []string{fmt.Sprintf("Input rate %s Hz, %d stage(s), %s data.", g(c.InputRate), len(c.Stages), map[bool]string{false: "real", true: "complex (I/Q: two identical real data paths)"}[c.Complex])}
+	chainNotes := []string{fmt.Sprintf("Input rate %s Hz, %d stage(s), %s data.", hz(c.InputRate), len(c.Stages), map[bool]string{false: "real", true: "complex (I/Q: two identical real data paths)"}[c.Complex])}
 	chainNotes = append(chainNotes, fmt.Sprintf("Chain DC gain %s (input full scale to output full scale).", g(w.DCGain)))
 	if w.CorrectedStage >= 0 && w.CorrectedStage < len(w.Stages) {
 		chainNotes = append(chainNotes, fmt.Sprintf("Gain correction %s folded into the taps of stage %d.", g(w.GainCorrection), w.CorrectedStage+1))
@@ -297,7 +301,7 @@ func (m *model) stage(i int, st fixed.Stage, sw *fixed.StageWidths) (section, er
 	}
 	sec := section{title: fmt.Sprintf("Stage %d: %s", i+1, kindName(sw.CIC, sw.HalfBand, sw.NonRecursive))}
 	if sw.InputRate > 0 {
-		sec.notes = append(sec.notes, fmt.Sprintf("Input rate %s Hz, output rate %s Hz.", g(sw.InputRate), g(sw.InputRate/float64(sw.R))))
+		sec.notes = append(sec.notes, fmt.Sprintf("Input rate %s Hz, output rate %s Hz.", hz(sw.InputRate), hz(sw.InputRate/float64(sw.R))))
 	}
 	sec.notes = append(sec.notes, fmt.Sprintf("DC gain %s (input full scale to output full scale).", g(sw.Gain)))
 	if sw.GainCorrection != 0 && sw.GainCorrection != 1 {

@@ -278,7 +278,8 @@ func (v *Vectors) readme() []byte {
 		case st.CIC:
 			pr := sw.Pruning
 			p("%d. CIC, order %d, delay %d, decimation %d: %d-bit input, registers %v bits", k+1, st.N, st.M, st.R, sw.InputBits, pr.RegisterBits)
-			p("   (LSBs dropped, floor, at each register: %v); output the top %d bits, gain %.9g.", pr.Dropped, sw.OutputBits, sw.Gain)
+			p("   (LSBs dropped, floor, at the input of each register, then at the output: %v);", pr.Dropped)
+			p("   output the top %d bits, gain %.9g.", sw.OutputBits, sw.Gain)
 		default:
 			kind := "FIR"
 			if st.HalfBand {
