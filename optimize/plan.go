@@ -621,6 +621,11 @@ func search(ctx context.Context, p params, s *Settings, est *estimator, des desi
 	switch {
 	case len(res.Front) == 0 && !res.Partial && res.Dropped[ReasonMissQuantised] > 0:
 		res.Reason = t.widthReason(p.fixedBits)
+		if lr := limitReason(res.Dropped); lr != "" {
+			// The limits dropped candidates too: named first, since wider
+			// coefficients cannot help a limit that binds.
+			res.Reason = lr + " " + res.Reason
+		}
 		if res.Unsettled > 0 {
 			res.Reason += fmt.Sprintf(" The design budget (a fixed amount of design work per run) left %d candidates undesigned.", res.Unsettled)
 		}
