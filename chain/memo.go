@@ -16,8 +16,7 @@ import (
 // with or without it: a stage is keyed on its kind, factor and layout,
 // input rate, passband edge, deviations and stopbands, on the order,
 // delay times factor and input rate of every CIC whose droop it corrects
-// (the compensator's desired gain), and on Settings.Remez and MaxTaps
-// (Remez.LengthOnly for FIR stages only).
+// (the compensator's desired gain), and on Settings.Remez and MaxTaps.
 // The stage returned carries the requirement of the chain being designed
 // and its own copy of the taps. A StageMemo is safe for concurrent use:
 // a stage asked for while another goroutine designs it waits for that
@@ -137,10 +136,5 @@ func stageKey(r Requirement, prev []Stage, s Settings) string {
 		u(0)
 	}
 	u(uint64(s.MaxTaps))
-	// A length-only design's taps are not those of an exact one; the
-	// half-band search ignores the setting.
-	if s.Remez.LengthOnly && r.Kind == FIR {
-		u(1)
-	}
 	return string(b)
 }

@@ -158,9 +158,6 @@ type Candidate struct {
 	// evaluated: Figures.Analysis is measured (cost.Evaluate); survived:
 	// Quantised is measured and meets the spec (realDesigner.survive).
 	evaluated, survived bool
-	// sized: the FIR stages of Chain were designed for their lengths
-	// only, and measure designs them again (see realDesigner.sizeOnly).
-	sized bool
 	// blame marks, in a chain dropped for missing with rounded taps, the
 	// stages whose rounded taps miss their own bands, and hopeless those
 	// whose rounding error alone exceeds their stopband limit.

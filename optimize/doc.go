@@ -132,15 +132,6 @@
 // that each distinct stage is designed once per search. The memo changes
 // no result, only the time; the caps below still count chain designs.
 //
-// Until a chain is measured its price hangs on its stages' lengths alone,
-// unless the spec fixes the coefficient width or the search is
-// multiplierless (both read the taps). Then Plan designs its FIR stages
-// for their length only (remez.Settings.LengthOnly: lengths proven too
-// short are stopped early, which changes where the length search goes but
-// not the length it finds), and designs a chain again, exactly, before it
-// measures it, so that every figure of a measured chain is that of
-// chain.Design's taps (a few more designs, for the front's members only).
-//
 // Real designs cost 5 ms to 5 s each, so Settings.MaxDesigns (default 600)
 // caps them, and so does a budget of design work counted, not timed, as
 // the sum over the designed chains' stages of the estimated length squared

@@ -186,10 +186,7 @@ func (r realDesigner) under(ctx context.Context) designer {
 }
 
 func (r realDesigner) design(plan []chain.StagePlan) (Candidate, Reason) {
-	cs := r.s.Chain
-	sized := r.sizeOnly()
-	cs.Remez.LengthOnly = cs.Remez.LengthOnly || sized
-	c, err := chain.DesignContext(r.ctx, r.spec, plan, cs)
+	c, err := chain.DesignContext(r.ctx, r.spec, plan, r.s.Chain)
 	if err != nil {
 		return Candidate{}, ReasonDesignFailed
 	}
@@ -200,7 +197,7 @@ func (r realDesigner) design(plan []chain.StagePlan) (Candidate, Reason) {
 	if why := overLimits(f, c, r.s.Limits); why != "" {
 		return Candidate{}, why
 	}
-	cd := Candidate{Plan: plan, Chain: c, Figures: f, sized: sized}
+	cd := Candidate{Plan: plan, Chain: c, Figures: f}
 	if r.rounded(r.spec) && r.atRisk(c) {
 		// Rounding may cost this chain its margin: it is measured and, if
 		// need be, re-designed now, so that what the search learns from it
@@ -208,16 +205,6 @@ func (r realDesigner) design(plan []chain.StagePlan) (Candidate, Reason) {
 		return r.survive(cd, r.spec)
 	}
 	return cd, ""
-}
-
-// sizeOnly reports whether design may design FIR stages for their length
-// only (remez.Settings.LengthOnly): when a chain's price hangs on its
-// lengths alone, that is, neither rounded taps (a fixed coefficient width)
-// nor adder graphs (Multiplierless) are read before the chain is measured.
-// measure designs such a chain again, exactly, before it measures it, so
-// that every figure of a measured chain is that of chain.Design's taps.
-func (r realDesigner) sizeOnly() bool {
-	return !r.rounded(r.spec) && !r.s.Cost.Multiplierless
 }
 
 // riskRatio is the predicted rounding floor, as a fraction of a stage's
@@ -262,22 +249,6 @@ func (r realDesigner) analyze(c Candidate) (Candidate, Reason) {
 
 // measure is analyze without the final check of the limits.
 func (r realDesigner) measure(c Candidate) (Candidate, Reason) {
-	if c.sized {
-		// Designed for its lengths only (see sizeOnly): the exact design
-		// has the same lengths but its own taps.
-		ch, err := chain.DesignContext(r.ctx, r.spec, c.Plan, r.s.Chain)
-		if err != nil {
-			return Candidate{}, ReasonDesignFailed
-		}
-		g, err := cost.Price(r.spec, ch, r.s.Cost)
-		if err != nil {
-			return Candidate{}, ReasonEvaluateFailed
-		}
-		if why := overLimits(g, ch, r.s.Limits); why != "" {
-			return Candidate{}, why
-		}
-		c.Chain, c.Figures, c.sized = ch, g, false
-	}
 	f := c.Figures
 	if !c.evaluated {
 		var err error

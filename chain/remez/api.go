@@ -37,15 +37,6 @@ type Settings struct {
 	// solves the continuous problem more closely. Reported deviations are
 	// measured with local refinement either way.
 	GridOnly bool
-	// LengthOnly, for MinLength and MinLengthContext, asks for the length
-	// only: the answer's length is the same, but a design the search
-	// proves too short is stopped as soon as its levelled weighted
-	// deviation exceeds 1 (by 1e-6), which changes the lengths the search
-	// tries next and so the start of the answer's own design: its taps
-	// are those of a converged design of that length, equal to MinLength's
-	// without LengthOnly only to the convergence tolerance. Design and the
-	// half-band calls ignore it.
-	LengthOnly bool
 }
 
 // Result is a designed filter.

@@ -46,16 +46,6 @@ var ErrNotConverged = errors.New("remez: exchange did not converge")
 // which MinLength takes as "too long" whatever the taps measure.
 var errRounding = errors.New("the specification is too lax for double precision")
 
-// aboveSure: a design is stopped as proven too short once its levelled
-// deviation exceeds failAbove and either exceeds it by this factor or lies
-// within this factor of the least largest error read (engine.upper), so
-// that the error ratio MinLength reads from it is known to about 10%.
-const aboveSure = 1.1
-
-// errAbove is the error of a design stopped because its levelled deviation
-// exceeded engine.failAbove.
-var errAbove = errors.New("remez: levelled deviation above the bound")
-
 // Design returns the length-n linear-phase (type I for odd n, type II for
 // even n) filter that minimises the weighted maximum error over bands.
 //
@@ -93,9 +83,6 @@ func (e *engine) design() (*Result, error) {
 		defer stop()
 	}
 	e.initRef()
-	if e.above > 0 {
-		return nil, errAbove
-	}
 	tol := tolContinuous
 	if e.gridOnly {
 		tol = tolGrid
@@ -103,9 +90,6 @@ func (e *engine) design() (*Result, error) {
 	it, conv, err := e.run(tol, e.maxIter)
 	if serr := e.stopped(); serr != nil {
 		return nil, serr
-	}
-	if errors.Is(err, errAbove) {
-		return nil, err
 	}
 	if !conv && e.seeded && it < e.maxIter {
 		// A seeded start can be wrong in structure (a seed's reference
@@ -226,18 +210,9 @@ func (e *engine) initRef() {
 	if e.density > coarseDensity {
 		c := e.sibling(e.n, coarseDensity)
 		c.handOff = true
-		// The coarse grid's references lie in the bands too: a levelled
-		// deviation above failAbove there proves the length short as well.
-		c.failAbove = e.failAbove
 		if c.buildGrid() == nil {
 			c.initRef()
-			_, _, err := c.run(tolCoarse, e.seedIter())
-			if errors.Is(err, errAbove) {
-				e.above, e.upper = c.above, c.upper
-				e.ref = append(e.ref[:0], c.ref...)
-				return
-			}
-			if err == nil && len(c.ref) == e.r+1 {
+			if _, _, err := c.run(tolCoarse, e.seedIter()); err == nil && len(c.ref) == e.r+1 {
 				e.ref = append(e.ref[:0], c.ref...)
 				e.local = true
 				e.stepGap = c.stepGap
@@ -274,7 +249,7 @@ func (e *engine) seedIter() int { return min(50, e.maxIter) }
 // sibling returns an engine for length n at grid density d with the same
 // bands, its grid not yet built.
 func (e *engine) sibling(n, d int) *engine {
-	s := &engine{ctx: e.ctx, halt: e.halt, n: n, rate: e.rate, density: d, maxIter: e.maxIter, bands: e.bands, type2: e.type2, stepGap: math.Inf(1), upper: math.Inf(1)}
+	s := &engine{ctx: e.ctx, halt: e.halt, n: n, rate: e.rate, density: d, maxIter: e.maxIter, bands: e.bands, type2: e.type2, stepGap: math.Inf(1)}
 	if s.type2 {
 		s.r = n / 2
 	} else {

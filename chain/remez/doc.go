@@ -71,21 +71,6 @@
 // iterations, local steps) is bounded by Settings.MaxIterations, so every
 // call returns in bounded time.
 //
-// With Settings.LengthOnly, MinLength stops a design as soon as it is
-// proven too short: its levelled weighted deviation (weights 1/MaxError)
-// exceeds 1 by 1e-6 and lies within 10% of the least largest error read
-// on any of its polynomials. The levelled deviation of any r+1 distinct
-// points in the bands is a lower bound of the largest weighted error of
-// every filter of that length on those points, hence on the bands (de la
-// Vallée Poussin's theorem; Cheney, Introduction to Approximation Theory,
-// 1966, from memory), so such a length fails whatever the design would
-// converge to. The geometric mean of that bracket stands for the length's
-// error ratio in the secant, and its reference, unconverged, may start the
-// next length. The search therefore tries other lengths and starts the
-// answer's design elsewhere: the answer has the same length (up to a
-// length met or missed within the convergence tolerance) but taps equal
-// to the full search's only to that tolerance.
-//
 // # Cancellation and memory
 //
 // DesignContext, MinLengthContext, HalfBandContext and MinHalfBandContext

@@ -113,16 +113,6 @@ type engine struct {
 	seedM   int
 	seeded  bool    // the start was scaled or coarse, not evenly spread
 	bestGap float64 // smallest relative gap of the last run's grid passes
-	// failAbove, when positive, stops the design as soon as the levelled
-	// deviation exceeds it (errAbove): the length is then proven unable
-	// to reach failAbove (de la Vallée Poussin, see lengthSearch.design).
-	// above holds that levelled deviation.
-	failAbove float64
-	above     float64
-	// upper is the least largest error read on any polynomial of this
-	// design (+Inf before any): with above, a bracket of the optimum's
-	// error that guides MinLength's next length.
-	upper float64
 }
 
 // bary1 evaluates the levelled polynomial at normalised frequency f by the
@@ -209,7 +199,7 @@ func newEngine(n int, rate float64, bands []Band, s Settings) (*engine, error) {
 	if err := validateSpec(rate, bands, s); err != nil {
 		return nil, err
 	}
-	e := &engine{n: n, rate: rate, density: s.Density, maxIter: s.MaxIterations, gridOnly: s.GridOnly, stepGap: math.Inf(1), upper: math.Inf(1)}
+	e := &engine{n: n, rate: rate, density: s.Density, maxIter: s.MaxIterations, gridOnly: s.GridOnly, stepGap: math.Inf(1)}
 	if e.density == 0 {
 		e.density = DefaultDensity
 	}
@@ -331,11 +321,6 @@ func (e *engine) buildGrid() error {
 	if pts := gridPoints(e.n, e.bands, e.density, e.gridOnly); pts > MaxGridPoints {
 		return fmt.Errorf("%w: n = %d at Settings.Density = %d needs %.0f grid points, more than the %d allowed: lower the density (at most %d at this length) or shorten the filter",
 			ErrGridTooLarge, e.n, e.density, pts, MaxGridPoints, MaxDensity(e.n, e.rate, e.userBands()))
-	}
-	if pts := int(gridPoints(e.n, e.bands, e.density, e.gridOnly)) + len(e.bands); cap(e.grid) < pts {
-		// Laid once at its size: growing it by appends cost a tenth of
-		// a plan's designs.
-		e.grid = make([]point, 0, pts)
 	}
 	e.grid = e.grid[:0]
 	e.bstart = append(e.bstart[:0], 0)
@@ -1096,7 +1081,6 @@ func (e *engine) localStep() (float64, bool) {
 	}
 	e.ref, e.tmp = e.tmp, e.ref
 	e.stepGap = (maxErr - ad) / ad
-	e.upper = math.Min(e.upper, maxErr)
 	return e.stepGap, true
 }
 
@@ -1171,10 +1155,6 @@ func (e *engine) run(tol float64, maxIter int) (int, bool, error) {
 			}
 			break
 		}
-		if ad := math.Abs(e.delta); e.failAbove > 0 && ad > e.failAbove && e.upper <= aboveSure*ad {
-			e.above = ad
-			return it, false, errAbove
-		}
 		if useLocal {
 			gap, ok := e.localStep()
 			if cerr := e.stopped(); cerr != nil {
@@ -1218,7 +1198,6 @@ func (e *engine) run(tol float64, maxIter int) (int, bool, error) {
 		if cerr := e.stopped(); cerr != nil {
 			return it, false, cerr
 		}
-		e.upper = math.Min(e.upper, maxErr)
 		gap := math.Inf(1)
 		if ad > 0 {
 			gap = (maxErr - ad) / ad

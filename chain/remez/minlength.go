@@ -148,7 +148,6 @@ type lengthSearch struct {
 	ratio   map[int]float64 // worst measured/allowed error per length
 	lax     map[int]bool    // lengths met to rounding level, taps unusable
 	designs int             // designs run, bounded by maxDesigns
-	above   float64         // the last design stopped as proven too short: its levelled deviation
 	refs    map[int][]point // converged reference of each length designed
 	// perNeper is the taps that Herrmann's estimate adds for each factor
 	// e of error at the binding transition (0 when unknown): the search's
@@ -222,11 +221,7 @@ func (m *lengthSearch) meets(n int) bool {
 		m.designs++
 		r, wdev, lax := m.design(n)
 		worst := math.Inf(1)
-		if m.above > 0 {
-			// Proven too short: the levelled deviation, a lower bound of
-			// the ratio, guides the secant.
-			worst, m.above = m.above, 0
-		} else if r != nil {
+		if r != nil {
 			worst = 0
 			for b := range m.bands {
 				worst = math.Max(worst, wdev[b]/m.bands[b].MaxError)
@@ -250,11 +245,6 @@ func abs(n int) int {
 	return n
 }
 
-// failMargin is how far above 1 the levelled weighted deviation must lie
-// for Settings.LengthOnly to stop a design as proven too short: far above
-// the rounding in the levelled deviation.
-const failMargin = 1e-6
-
 // laxRatio stands for the error ratio of a design met to rounding level.
 const laxRatio = 1e-12
 
@@ -270,26 +260,7 @@ func (m *lengthSearch) design(n int) (*Result, []float64, bool) {
 	if warmStart {
 		e.warm = m.refs[m.nearestRef(n)]
 	}
-	if m.s.LengthOnly {
-		e.failAbove = 1 + failMargin
-	}
 	res, err := e.design()
-	if errors.Is(err, errAbove) {
-		// Proven too short: the geometric mean of the bracket [levelled
-		// deviation, least largest error] estimates the error ratio, and
-		// the reference, unconverged, still starts the next length well.
-		m.above = e.above
-		if !math.IsInf(e.upper, 0) && e.upper > e.above {
-			m.above = math.Sqrt(e.above * e.upper)
-		}
-		if warmStart && len(e.ref) == e.r+1 {
-			if m.refs == nil {
-				m.refs = map[int][]point{}
-			}
-			m.refs[n] = append([]point(nil), e.ref...)
-		}
-		return nil, nil, false
-	}
 	if res != nil && res.Converged {
 		if m.refs == nil {
 			m.refs = map[int][]point{}
