@@ -2,6 +2,7 @@ package chain
 
 import (
 	"math"
+	"os"
 	"strings"
 	"testing"
 )
@@ -103,6 +104,9 @@ func TestStopbandScale(t *testing.T) {
 }
 
 func TestDesignMaxTaps(t *testing.T) {
+	if os.Getenv("STEPDOWN_LONG") == "" {
+		t.Skip("long designs at the tap limit: about 6 s; set STEPDOWN_LONG=1 (CI's long step)")
+	}
 	dc := nothingToSpare[0] // fir101 at 90 dB: Herrmann's estimate is about 1900 taps
 	plan, _ := ParseNotation(dc.plan)
 	free, err := Design(dc.spec, plan, Settings{})
