@@ -495,8 +495,17 @@ func printSummary(w io.Writer, j *job, rep *report.Report, files []report.File) 
 		}
 	}
 	fmt.Fprintf(w, "\nwrote %s/\n", j.out.Dir())
+	vectors := 0
 	for _, f := range files {
+		// The vector files are named by vectors/README.txt: counted, not listed.
+		if strings.HasPrefix(f.Name, "vectors/") && f.Name != "vectors/README.txt" {
+			vectors++
+			continue
+		}
 		fmt.Fprintf(w, "  %s\n", f.Name)
+	}
+	if vectors > 0 {
+		fmt.Fprintf(w, "  vectors/: %d vector files (stimuli and every stage's output, named in vectors/README.txt)\n", vectors)
 	}
 	fmt.Fprintf(w, "\nCaution: %s.\n", report.Caution)
 }
