@@ -88,6 +88,18 @@ type cicState128 struct {
 	combIn [][]int128
 	pos    int
 	k      int
+	// shift[j] is the LSBs integrator j drops from its input:
+	// Dropped[j] less the previous register's (the input's for j = 0).
+	shift []int
+}
+
+func (s *cicState128) prepare() {
+	s.shift = make([]int, s.p.N)
+	prev := 0
+	for j := range s.shift {
+		s.shift[j] = s.p.Dropped[j] - prev
+		prev = s.p.Dropped[j]
+	}
 }
 
 func newCICState128(p *CICPruning) *cicState128 {
@@ -101,18 +113,46 @@ func newCICState128(p *CICPruning) *cicState128 {
 func (s *cicState128) run(x, out []int64) []int64 {
 	p := s.p
 	n, r, m := p.N, p.R, p.M
+	if s.shift == nil {
+		s.prepare()
+	}
 	for _, x0 := range x {
 		k := s.k
 		s.k++
-		v, unit := int128Of(x0), 0
+		// The integrators, at the input rate: the same steps as the
+		// combs' below (shiftTo128, add, wrap), written out on the two
+		// words, since this loop is the bit-true run's cost at large R.
+		hi, lo := x0>>63, uint64(x0)
 		for j := 0; j < n; j++ {
-			in := shiftTo128(v, unit, p.Dropped[j])
-			s.integ[j] = s.integ[j].add(in).wrap(p.RegisterBits[j])
-			v, unit = s.integ[j], p.Dropped[j]
+			if d := s.shift[j]; d > 0 { // floor to the register's unit
+				if d < 64 {
+					lo = lo>>uint(d) | uint64(hi)<<uint(64-d)
+					hi >>= uint(d)
+				} else {
+					lo = uint64(hi >> uint(min(d-64, 63)))
+					hi >>= 63
+				}
+			} else if d < 0 { // a finer unit: shift up
+				v := int128{hi: hi, lo: lo}.shl(-d)
+				hi, lo = v.hi, v.lo
+			}
+			var c uint64
+			lo, c = bits.Add64(s.integ[j].lo, lo, 0)
+			hi = s.integ[j].hi + hi + int64(c)
+			if w := p.RegisterBits[j]; w > 64 {
+				sh := uint(128 - w)
+				hi = hi << sh >> sh
+			} else {
+				sh := uint(64 - w)
+				l := int64(lo) << sh >> sh
+				hi, lo = l>>63, uint64(l)
+			}
+			s.integ[j] = int128{hi: hi, lo: lo}
 		}
 		if k%r != 0 {
 			continue
 		}
+		v, unit := s.integ[n-1], p.Dropped[n-1]
 		for j := 0; j < n; j++ {
 			d := p.Dropped[n+j]
 			in := shiftTo128(v, unit, d).wrap(p.RegisterBits[n+j])
