@@ -16,7 +16,6 @@ type int128 struct {
 	lo uint64
 }
 
-func int128Of(v int64) int128 { return int128{hi: v >> 63, lo: uint64(v)} }
 
 func (a int128) add(b int128) int128 {
 	lo, c := bits.Add64(a.lo, b.lo, 0)
