@@ -16,7 +16,6 @@ type int128 struct {
 	lo uint64
 }
 
-
 func (a int128) add(b int128) int128 {
 	lo, c := bits.Add64(a.lo, b.lo, 0)
 	return int128{hi: a.hi + b.hi + int64(c), lo: lo}
