@@ -211,14 +211,14 @@ func BitTrueContext(ctx context.Context, c Cascade, w *Widths, sig Signal) (BitT
 		// The float model runs a CIC as its equivalent filter of
 		// N (RM - 1) + 1 taps, with as long a history: bounded so that
 		// the run stays within memory.
-		if st := c.Stages[i]; st.CIC && stageLen(st) > maxCICFloatTaps {
-			return BitTrueResult{}, fmt.Errorf("fixed: stage %d: the CIC's float model would need %d taps, beyond the bit-true run's %d", i+1, stageLen(st), maxCICFloatTaps)
+		if st := c.Stages[i]; st.CIC && st.Length() > maxCICFloatTaps {
+			return BitTrueResult{}, fmt.Errorf("fixed: stage %d: the CIC's float model would need %d taps, beyond the bit-true run's %d", i+1, st.Length(), maxCICFloatTaps)
 		}
 	}
 	// Transient: the cascade's impulse response length in output samples.
 	span, p := 1, 1
 	for _, st := range c.Stages {
-		span += (stageLen(st) - 1) * p
+		span += (st.Length() - 1) * p
 		p *= st.R
 	}
 	skip := (span+d-1)/d + 1
@@ -497,13 +497,6 @@ func project(y []float64, nu float64) (amp, resid float64) {
 		r2 += e * e
 	}
 	return math.Hypot(re, im), math.Sqrt(r2 / float64(len(y)))
-}
-
-func stageLen(st Stage) int {
-	if st.CIC {
-		return st.N*(st.R*st.M-1) + 1
-	}
-	return len(st.Taps)
 }
 
 // blockSamples is the number of input samples generated and run at a time:

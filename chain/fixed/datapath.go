@@ -31,6 +31,15 @@ type Stage struct {
 	Bands []remez.Band
 }
 
+// Length is the stage's impulse response length at its input rate: its
+// taps, or N (RM - 1) + 1 for a CIC (N boxcars of RM samples).
+func (st Stage) Length() int {
+	if st.CIC {
+		return st.N*(st.R*st.M-1) + 1
+	}
+	return len(st.Taps)
+}
+
 // Cascade is a chain of stages from InputRate (Hz).
 type Cascade struct {
 	InputRate float64

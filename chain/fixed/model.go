@@ -85,8 +85,8 @@ func RunCodes(ctx context.Context, c Cascade, w *Widths, x []int64) ([]int64, []
 		return nil, nil, err
 	}
 	for i, st := range c.Stages {
-		if st.CIC && stageLen(st) > maxCICFloatTaps {
-			return nil, nil, fmt.Errorf("fixed: stage %d: the CIC's float model would need %d taps, beyond the run's %d", i+1, stageLen(st), maxCICFloatTaps)
+		if st.CIC && st.Length() > maxCICFloatTaps {
+			return nil, nil, fmt.Errorf("fixed: stage %d: the CIC's float model would need %d taps, beyond the run's %d", i+1, st.Length(), maxCICFloatTaps)
 		}
 	}
 	lo, hi := -(int64(1) << (w.InputBits - 1)), int64(1)<<(w.InputBits-1)-1

@@ -97,10 +97,7 @@ func Generate(c fixed.Cascade, w *fixed.Widths, o Options) (*Vectors, error) {
 	d := 1
 	v := &Vectors{c: c, w: w, o: o, Settling: 1}
 	for _, st := range c.Stages {
-		l := len(st.Taps)
-		if st.CIC {
-			l = st.N*(st.R*st.M-1) + 1
-		}
+		l := st.Length()
 		v.Settling += (l - 1) * d
 		v.LatencyInput += float64(l-1) / 2 * float64(d)
 		if d > math.MaxInt32/max(st.R, 1) {
