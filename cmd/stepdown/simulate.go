@@ -12,6 +12,7 @@ import (
 	"github.com/urfave/cli/v2"
 
 	"github.com/stepdown-dsp/stepdown/chain"
+	"github.com/stepdown-dsp/stepdown/chain/specfile"
 	"github.com/stepdown-dsp/stepdown/chain/units"
 	"github.com/stepdown-dsp/stepdown/optimize"
 	"github.com/stepdown-dsp/stepdown/plots"
@@ -218,11 +219,11 @@ func runSimulate(c *cli.Context) error {
 		return fmt.Errorf("interrupted; %s left as it was", clip(j.out.Dir()))
 	}
 	if err != nil {
-		return fmt.Errorf("%s", strings.TrimPrefix(err.Error(), "simulate: "))
+		return fmt.Errorf("the chain %s cannot be simulated: %s", chain.Notation(cand.Plan), libMessage(err))
 	}
 	inSp, outSp, err := res.Spectra()
 	if err != nil {
-		return usagef("--input %s: %s", clip(filepath.Base(input)), strings.TrimPrefix(err.Error(), "simulate: "))
+		return usagef("--input %s: %s", clip(filepath.Base(input)), libMessage(err))
 	}
 	bands := simulate.Bands{PassbandHz: cs.Passband, ProtectedHz: cs.Protected, OutputRateHz: res.OutputRateHz}
 	lv := res.Measure(inSp, outSp, bands)
@@ -287,6 +288,16 @@ func runSimulate(c *cli.Context) error {
 	}
 	fmt.Fprintf(w, "\nCaution: %s.\n", report.Caution)
 	return nil
+}
+
+// libMessage is a library error in the command's words: without the
+// package names the simulate and fixed packages put first.
+func libMessage(err error) string {
+	m := err.Error()
+	for _, p := range []string{"simulate: ", "fixed: "} {
+		m = strings.ReplaceAll(m, p, "")
+	}
+	return specfile.InFileTerms(m)
 }
 
 func dbfs(v float64) string {

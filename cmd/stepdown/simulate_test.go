@@ -2,6 +2,8 @@ package main
 
 import (
 	"encoding/json"
+	"errors"
+	"fmt"
 	"os"
 	"path/filepath"
 	"strconv"
@@ -137,5 +139,13 @@ func TestSimulateBadInputs(t *testing.T) {
 		if strings.HasPrefix(e.Name(), ".stepdown-") {
 			t.Errorf("left behind: %s", e.Name())
 		}
+	}
+}
+
+// A library error reaches the user without the library's package names.
+func TestLibMessage(t *testing.T) {
+	err := fmt.Errorf("simulate: %w", errors.New("fixed: stage 1: the CIC's 131-bit registers are beyond the integer model's 127 bits"))
+	if got := libMessage(err); strings.Contains(got, "fixed:") || strings.Contains(got, "simulate:") || !strings.HasPrefix(got, "stage 1: ") {
+		t.Errorf("libMessage = %q", got)
 	}
 }
