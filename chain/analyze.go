@@ -39,6 +39,7 @@ func AnalyzeContext(ctx context.Context, c *Chain, spec Spec) (Analysis, error) 
 	if err != nil {
 		return Analysis{}, err
 	}
+	spec = spec.DecimationView()
 	if err := checkChain(c, spec); err != nil {
 		return Analysis{}, err
 	}
@@ -67,6 +68,9 @@ func checkChain(c *Chain, spec Spec) error {
 	}
 	if d := c.Decimation(); d != spec.Decimation() {
 		return fmt.Errorf("chain: chain decimates by %d, the spec's ratio is %d", d, spec.Decimation())
+	}
+	if c.Direction != spec.Direction() {
+		return fmt.Errorf("chain: the chain's direction, %s, is not the spec's, %s", c.Direction, spec.Direction())
 	}
 	return nil
 }

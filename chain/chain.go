@@ -79,11 +79,25 @@ type Stage interface {
 }
 
 // Chain is a cascade of stages from InputRate.
+//
+// An interpolation chain (Direction Interpolate) is held as its transpose,
+// the decimation chain with the same filters at the same rates: Plan and
+// Stages run from the high rate down, InputRate is the high rate (the
+// DAC's), and the signal passes the stages from the last to the first, each
+// raising the rate by its factor (SignalOrder). Every figure of the
+// frequency domain (requirements, designs, Gain, Analyze) and every price
+// is the transpose's; see the package documentation, Interpolation.
 type Chain struct {
+	// InputRate is the rate at Stages[0]'s high-rate side: the input rate
+	// of a decimation chain, the output rate of an interpolation chain.
 	InputRate float64
 	Complex   bool
+	// Direction is Decimate (the zero value) or Interpolate.
+	Direction Direction
 	Plan      []StagePlan
-	// Stages holds CICStage and FIRStage values (not pointers), in signal order.
+	// Stages holds CICStage and FIRStage values (not pointers), from the
+	// high rate down: in signal order for a decimation chain, in the
+	// opposite order for an interpolation chain.
 	Stages []Stage
 	// Designed is true when every FIR stage has coefficients from a real design;
 	// false when lengths are estimates.
@@ -107,7 +121,37 @@ type Settings struct {
 	Memo *StageMemo
 }
 
-// Decimation returns the product of the stages' factors.
+// SignalOrder returns the indexes of Stages in the order the signal passes
+// them: 0, 1, ... for a decimation chain, the reverse for an interpolation
+// chain.
+func (c *Chain) SignalOrder() []int {
+	idx := make([]int, len(c.Stages))
+	for i := range idx {
+		idx[i] = i
+		if c.Direction == Interpolate {
+			idx[i] = len(idx) - 1 - i
+		}
+	}
+	return idx
+}
+
+// SignalRates returns the rate of the samples entering and leaving
+// Stages[i] in signal order: (Rates()[i], Rates()[i+1]) for a decimation
+// chain, the other way round for an interpolation chain.
+func (c *Chain) SignalRates(i int) (in, out float64) {
+	r := c.Rates()
+	if c.Direction == Interpolate {
+		return r[i+1], r[i]
+	}
+	return r[i], r[i+1]
+}
+
+// Ratio returns the product of the stages' factors: the decimation D or
+// the interpolation L.
+func (c *Chain) Ratio() int { return c.Decimation() }
+
+// Decimation returns the product of the stages' factors (for an
+// interpolation chain, the decimation of its transpose, L).
 func (c *Chain) Decimation() int {
 	d := 1
 	for _, s := range c.Stages {
@@ -116,11 +160,13 @@ func (c *Chain) Decimation() int {
 	return d
 }
 
-// OutputRate returns the rate after the last stage.
+// OutputRate returns the rate after the last of Stages: the channel rate
+// (the output rate of a decimation chain, the input rate of an
+// interpolation chain).
 func (c *Chain) OutputRate() float64 { return c.InputRate / float64(c.Decimation()) }
 
-// Rates returns the rate at the input of each stage followed by the output
-// rate: F0, F1, ..., FK.
+// Rates returns the rate at the high-rate side of each of Stages followed
+// by the channel rate: F0, F1, ..., FK.
 func (c *Chain) Rates() []float64 {
 	r := make([]float64, len(c.Stages)+1)
 	r[0] = c.InputRate

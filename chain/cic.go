@@ -3,6 +3,7 @@ package chain
 import (
 	"math"
 	"math/big"
+	"slices"
 )
 
 // CICStage is a CIC decimator of order N, differential delay M, factor R.
@@ -29,6 +30,12 @@ type CICStage struct {
 	// width or the spec's OutputBits, whichever is smaller (guard bits never
 	// change it: they are added only when the output is the narrower).
 	OutputBits int
+
+	// Interpolator is true for a CIC interpolator (NewCICInterpolator):
+	// combs at its input rate, integrators at its output rate, R times
+	// higher. RegisterBits then holds the combs' widths and then the
+	// integrators', in signal order, unpruned (InterpolatorCICBits).
+	Interpolator bool
 }
 
 // Kind returns CIC.
@@ -104,7 +111,13 @@ func NewCICStage(n, m, r, inBits, outBits int) CICStage {
 // Width returns the full register width, the MSB every register keeps:
 // Bin + ceil(N log2(R M)) + GuardBits.
 // The non-recursive form has no guard bits: its width is Bin + N log2 R.
-func (c CICStage) Width() int { return CICRegisterWidth(c.N, c.M, c.R, c.InputBits) + c.GuardBits }
+// An interpolator's is its widest register.
+func (c CICStage) Width() int {
+	if c.Interpolator && len(c.RegisterBits) > 0 {
+		return slices.Max(c.RegisterBits)
+	}
+	return CICRegisterWidth(c.N, c.M, c.R, c.InputBits) + c.GuardBits
+}
 
 // DroopDB returns the CIC's peak-to-peak droop over [0, fp] in dB for input
 // rate rate, and false when a null of the CIC lies in [0, fp] (the droop

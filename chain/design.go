@@ -40,10 +40,11 @@ func stopped(plan []StagePlan, err error) error {
 }
 
 func build(ctx context.Context, spec Spec, plan []StagePlan, s Settings, design bool) (*Chain, error) {
-	spec, err := spec.Normalize()
+	user, err := spec.Normalize()
 	if err != nil {
 		return nil, err
 	}
+	spec = user.DecimationView()
 	if s.MaxTaps < 0 || (s.MaxTaps > 0 && s.MaxTaps < 3) {
 		return nil, fmt.Errorf("chain: Settings.MaxTaps = %d: must be 0 (no bound) or at least 3", s.MaxTaps)
 	}
@@ -51,17 +52,26 @@ func build(ctx context.Context, spec Spec, plan []StagePlan, s Settings, design 
 	if err != nil {
 		return nil, err
 	}
-	c := &Chain{InputRate: spec.InputRate, Complex: spec.Complex,
+	c := &Chain{InputRate: spec.InputRate, Complex: spec.Complex, Direction: spec.Direction(),
 		Plan: append([]StagePlan(nil), plan...), Designed: design}
 	bits := spec.InputBits
 	for i, p := range plan {
+		if c.Direction == Interpolate {
+			// The CIC of an interpolation chain takes the words between
+			// stages (OutputBits), or the input word when no stage comes
+			// before it in signal order.
+			bits = spec.OutputBits
+			if i == len(plan)-1 {
+				bits = spec.InputBits
+			}
+		}
 		if err := ctx.Err(); err != nil {
 			return nil, stopped(plan, err)
 		}
 		r := reqs[i]
 		switch p.Kind {
 		case CIC:
-			cs, err := NewCICStageForm(p.CICForm, p.CICOrder, p.CICDelay, p.Factor, bits, spec.OutputBits)
+			cs, err := newCIC(c.Direction, p, bits, spec.OutputBits)
 			if err != nil {
 				return nil, planErr(plan, i, "%v", err)
 			}
@@ -170,4 +180,17 @@ func firStage(ctx context.Context, r Requirement, prev []Stage, s Settings, desi
 	st.Taps = res.Taps
 	st.Length = len(res.Taps)
 	return st, nil
+}
+
+// newCIC is the CIC stage of plan p on inBits-wide input with an
+// outBits-wide output: a decimator (NewCICStageForm) or an interpolator
+// (NewCICInterpolator, recursive only).
+func newCIC(d Direction, p StagePlan, inBits, outBits int) (CICStage, error) {
+	if d == Interpolate {
+		if p.CICForm != Recursive {
+			return CICStage{}, fmt.Errorf("chain: the non-recursive CIC is built for decimation only; an interpolation chain takes the recursive form")
+		}
+		return NewCICInterpolator(p.CICOrder, p.CICDelay, p.Factor, inBits, outBits), nil
+	}
+	return NewCICStageForm(p.CICForm, p.CICOrder, p.CICDelay, p.Factor, inBits, outBits)
 }

@@ -2,6 +2,7 @@ package chain
 
 import (
 	"fmt"
+	"slices"
 	"strconv"
 	"strings"
 )
@@ -177,4 +178,28 @@ func ParseNotation(s string) ([]StagePlan, error) {
 			return nil, p.fail(`" > " before the next stage or the end of the chain`)
 		}
 	}
+}
+
+// Notation writes plan, in decimation order as Chain.Plan holds it, in
+// signal order for direction d: as Notation does for Decimate, the stages
+// reversed for Interpolate, so that an interpolation chain reads from the
+// channel to the DAC, "fir2 > hb > cic4m1r16". The stage names are the same
+// in both directions; each stage's factor is its decimation or its
+// interpolation.
+func (d Direction) Notation(plan []StagePlan) string {
+	if d == Interpolate {
+		plan = slices.Clone(plan)
+		slices.Reverse(plan)
+	}
+	return Notation(plan)
+}
+
+// ParseNotation reads a chain written in signal order for direction d and
+// returns its plan in decimation order (see Direction.Notation).
+func (d Direction) ParseNotation(s string) ([]StagePlan, error) {
+	plan, err := ParseNotation(s)
+	if err == nil && d == Interpolate {
+		slices.Reverse(plan)
+	}
+	return plan, err
 }

@@ -119,6 +119,7 @@ func Requirements(spec Spec, plan []StagePlan) ([]Requirement, error) {
 	if err != nil {
 		return nil, err
 	}
+	spec = spec.DecimationView()
 	if err := validatePlan(plan, spec.Decimation()); err != nil {
 		return nil, err
 	}

@@ -8,9 +8,13 @@ import (
 
 // Spec is what the user asks of the whole chain. Rates and frequencies in Hz,
 // ripple peak-to-peak dB, rejection positive dB (docs/design.md §2-§3).
+//
+// OutputRate below InputRate makes a decimation chain, above it an
+// interpolation chain (Direction). The band edges are on the channel side,
+// the lower of the two rates, in both directions.
 type Spec struct {
-	InputRate   float64 // F0
-	OutputRate  float64 // FK
+	InputRate   float64 // the rate of the samples entering the chain
+	OutputRate  float64 // the rate of the samples it delivers
 	Passband    float64 // fp
 	Protected   float64 // fa; zero means Passband
 	Stopband    float64 // fs; zero means OutputRate - Protected
@@ -21,7 +25,77 @@ type Spec struct {
 	InputBits  int // zero means 16
 	OutputBits int // zero means 24
 	CoefBits   int // zero means floating-point coefficients
+
+	// transposed marks the decimation view of an interpolation spec
+	// (DecimationView): its rates are swapped, and Direction still says
+	// Interpolate.
+	transposed bool
 }
+
+// Direction is which way a chain changes the rate.
+type Direction int
+
+const (
+	// Decimate lowers the rate: OutputRate = InputRate / D.
+	Decimate Direction = iota
+	// Interpolate raises it: OutputRate = L InputRate.
+	Interpolate
+)
+
+// String returns "decimate" or "interpolate".
+func (d Direction) String() string {
+	if d == Interpolate {
+		return "interpolate"
+	}
+	return "decimate"
+}
+
+// Direction returns Interpolate when the spec raises the rate (OutputRate
+// above InputRate, or a DecimationView of such a spec) and Decimate
+// otherwise.
+func (s Spec) Direction() Direction {
+	if s.transposed || s.OutputRate > s.InputRate {
+		return Interpolate
+	}
+	return Decimate
+}
+
+// DecimationView returns the spec the chain package plans, designs and
+// measures with: for a decimation spec, s itself; for an interpolation
+// spec, its transpose, with InputRate the high rate (the spec's
+// OutputRate) and OutputRate the channel rate (the spec's InputRate),
+// every other field unchanged and Direction still Interpolate. An
+// interpolation chain is the transpose of a decimation chain, stage for
+// stage: the same filters, at the same rates, in the opposite order, so
+// the same bands, responses, requirements and figures hold for both (see
+// the package documentation, Interpolation). A view's view is itself.
+func (s Spec) DecimationView() Spec {
+	if s.transposed || s.OutputRate <= s.InputRate {
+		return s
+	}
+	s.InputRate, s.OutputRate = s.OutputRate, s.InputRate
+	s.transposed = true
+	return s
+}
+
+// SignalView is the inverse of DecimationView: the spec as the user wrote
+// it, InputRate the rate entering the chain.
+func (s Spec) SignalView() Spec {
+	if !s.transposed {
+		return s
+	}
+	s.InputRate, s.OutputRate = s.OutputRate, s.InputRate
+	s.transposed = false
+	return s
+}
+
+// HighRate returns the higher of the two rates: the ADC's for a decimation
+// chain, the DAC's for an interpolation chain.
+func (s Spec) HighRate() float64 { return math.Max(s.InputRate, s.OutputRate) }
+
+// ChannelRate returns the lower of the two rates, the channel's, on which
+// the band edges are given.
+func (s Spec) ChannelRate() float64 { return math.Min(s.InputRate, s.OutputRate) }
 
 // Defaults filled in by Normalize.
 const (
@@ -100,44 +174,63 @@ func (s Spec) Normalize() (Spec, error) {
 	if !finite(s.OutputRate) || s.OutputRate <= 0 {
 		return bad("OutputRate", s.OutputRate, "must be a finite rate above 0 Hz")
 	}
-	if s.InputRate > MaxRateHz {
-		return bad("InputRate", s.InputRate, "must be at most %s Hz (rates from %s to %s Hz are supported)", fmtNum(MaxRateHz), fmtNum(MinRateHz), fmtNum(MaxRateHz))
+	for _, r := range []struct {
+		field string
+		v     float64
+	}{{"InputRate", s.InputRate}, {"OutputRate", s.OutputRate}} {
+		if r.v > MaxRateHz {
+			return bad(r.field, r.v, "must be at most %s Hz (rates from %s to %s Hz are supported)", fmtNum(MaxRateHz), fmtNum(MinRateHz), fmtNum(MaxRateHz))
+		}
+		if r.v < MinRateHz {
+			return bad(r.field, r.v, "must be at least %s Hz (rates from %s to %s Hz are supported)", fmtNum(MinRateHz), fmtNum(MinRateHz), fmtNum(MaxRateHz))
+		}
 	}
-	if s.OutputRate < MinRateHz {
-		return bad("OutputRate", s.OutputRate, "must be at least %s Hz (rates from %s to %s Hz are supported)", fmtNum(MinRateHz), fmtNum(MinRateHz), fmtNum(MaxRateHz))
+	if s.OutputRate == s.InputRate {
+		return bad("OutputRate", s.OutputRate, "must differ from {InputRate} = %s Hz (below it the chain decimates, above it the chain interpolates)", fmtNum(s.InputRate))
 	}
-	if s.OutputRate >= s.InputRate {
-		return bad("OutputRate", s.OutputRate, "must be below {InputRate} = %s Hz (the chain decimates)", fmtNum(s.InputRate))
+	// hi and lo name the high-rate and the channel-side fields: the band
+	// rules below are the same in both directions, on the channel side.
+	hi, lo := "InputRate", "OutputRate"
+	hr, fk := s.InputRate, s.OutputRate
+	if s.Direction() == Interpolate && !s.transposed {
+		hi, lo = lo, hi
+		hr, fk = fk, hr
 	}
-	ratio := s.InputRate / s.OutputRate
+	ratio := hr / fk
 	d := math.Round(ratio)
 	if math.Abs(ratio-d) > ratioTol*ratio || d < 2 {
-		lo, hi := math.Max(2, math.Floor(ratio)), math.Max(2, math.Ceil(ratio))
-		if lo == hi {
-			hi++
+		nlo, nhi := math.Max(2, math.Floor(ratio)), math.Max(2, math.Ceil(ratio))
+		if nlo == nhi {
+			nhi++
 		}
-		return bad("OutputRate", s.OutputRate,
-			"{InputRate}/{OutputRate} = %s is not an integer ratio; the nearest integer ratios are %s ({OutputRate} %s Hz) and %s ({OutputRate} %s Hz)",
-			fmtNum(ratio), fmtNum(lo), fmtNum(s.InputRate/lo), fmtNum(hi), fmtNum(s.InputRate/hi))
+		// The nearest integer ratios keep the input rate and move the
+		// output rate.
+		near := func(r float64) float64 { return hr / r }
+		if lo == "InputRate" {
+			near = func(r float64) float64 { return fk * r }
+		}
+		move := "OutputRate"
+		return bad(move, s.OutputRate,
+			"{%s}/{%s} = %s is not an integer ratio; the nearest integer ratios are %s ({%s} %s Hz) and %s ({%s} %s Hz)",
+			hi, lo, fmtNum(ratio), fmtNum(nlo), move, fmtNum(near(nlo)), fmtNum(nhi), move, fmtNum(near(nhi)))
 	}
 	if d > math.MaxInt32 {
-		return bad("OutputRate", s.OutputRate, "{InputRate}/{OutputRate} = %s is beyond the supported ratio %d", fmtNum(d), math.MaxInt32)
+		return bad("OutputRate", s.OutputRate, "{%s}/{%s} = %s is beyond the supported ratio %d", hi, lo, fmtNum(d), math.MaxInt32)
 	}
-	fk := s.OutputRate
 	if !finite(s.Passband) || s.Passband <= 0 || s.Passband >= fk/2 {
-		return bad("Passband", s.Passband, "must lie in (0, {OutputRate}/2 = %s Hz)", fmtNum(fk/2))
+		return bad("Passband", s.Passband, "must lie in (0, {%s}/2 = %s Hz)", lo, fmtNum(fk/2))
 	}
 	if s.Protected == 0 {
 		s.Protected = s.Passband
 	}
 	if !finite(s.Protected) || s.Protected < s.Passband || s.Protected > fk/2 {
-		return bad("Protected", s.Protected, "must lie in [{Passband} = %s Hz, {OutputRate}/2 = %s Hz]", fmtNum(s.Passband), fmtNum(fk/2))
+		return bad("Protected", s.Protected, "must lie in [{Passband} = %s Hz, {%s}/2 = %s Hz]", fmtNum(s.Passband), lo, fmtNum(fk/2))
 	}
 	if s.Stopband == 0 {
 		s.Stopband = fk - s.Protected
 	}
 	if !finite(s.Stopband) || s.Stopband <= s.Passband || s.Stopband > fk-s.Protected {
-		return bad("Stopband", s.Stopband, "must lie in ({Passband} = %s Hz, {OutputRate} - {Protected} = %s Hz]", fmtNum(s.Passband), fmtNum(fk-s.Protected))
+		return bad("Stopband", s.Stopband, "must lie in ({Passband} = %s Hz, {%s} - {Protected} = %s Hz]", fmtNum(s.Passband), lo, fmtNum(fk-s.Protected))
 	}
 	if !finite(s.RippleDB) || s.RippleDB <= 0 {
 		return bad("RippleDB", s.RippleDB, "must be a finite peak-to-peak ripple above 0 dB")
@@ -165,12 +258,39 @@ func (s Spec) Normalize() (Spec, error) {
 	return s, nil
 }
 
-// Decimation returns D = InputRate/OutputRate (of a normalised spec).
+// Decimation returns D = InputRate/OutputRate of a normalised decimation
+// spec, or of an interpolation spec's DecimationView; 1 for an
+// interpolation spec itself.
 func (s Spec) Decimation() int {
 	if !(s.OutputRate > 0) || !finite(s.InputRate) {
 		return 0
 	}
+	if !s.transposed && s.OutputRate > s.InputRate {
+		return 1
+	}
 	return int(math.Round(s.InputRate / s.OutputRate))
+}
+
+// Interpolation returns L = OutputRate/InputRate of a normalised
+// interpolation spec, 1 for a decimation spec.
+func (s Spec) Interpolation() int {
+	if s.Direction() == Decimate {
+		return 1
+	}
+	v := s.DecimationView()
+	if !(v.OutputRate > 0) || !finite(v.InputRate) {
+		return 0
+	}
+	return int(math.Round(v.InputRate / v.OutputRate))
+}
+
+// Ratio returns the rate change, D for a decimation spec and L for an
+// interpolation spec: the product of the chain's stage factors.
+func (s Spec) Ratio() int {
+	if s.Direction() == Interpolate {
+		return s.Interpolation()
+	}
+	return s.Decimation()
 }
 
 // RippleToDev converts a peak-to-peak ripple in dB to the linear passband

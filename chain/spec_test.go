@@ -40,7 +40,9 @@ func TestNormalizeErrors(t *testing.T) {
 		{mod(func(s *Spec) { s.InputRate = 0 }), "InputRate", "above 0"},
 		{mod(func(s *Spec) { s.InputRate = math.Inf(1) }), "InputRate", "finite"},
 		{mod(func(s *Spec) { s.OutputRate = math.NaN() }), "OutputRate", "finite"},
-		{mod(func(s *Spec) { s.OutputRate = 65e6 }), "OutputRate", "below InputRate"},
+		// Above InputRate the chain interpolates: the ratio must be an integer.
+		{mod(func(s *Spec) { s.OutputRate = 65e6 }), "OutputRate", "OutputRate/InputRate = 1.015625 is not an integer ratio"},
+		{mod(func(s *Spec) { s.OutputRate = s.InputRate }), "OutputRate", "must differ from InputRate"},
 		{mod(func(s *Spec) { s.OutputRate = 250.5e3 }), "OutputRate", "nearest integer ratios are 255"},
 		{mod(func(s *Spec) { s.Passband = 125e3 }), "Passband", "OutputRate/2"},
 		{mod(func(s *Spec) { s.Passband = -1 }), "Passband", "(0,"},
@@ -134,4 +136,56 @@ func FuzzNormalize(f *testing.F) {
 			t.Fatalf("normalised spec breaks a rule: %+v", n)
 		}
 	})
+}
+
+// TestNormalizeInterpolation: an output rate L times the input rate makes an
+// interpolation spec whose band edges are on the channel side (the input);
+// its DecimationView is the decimation spec with the rates swapped, and the
+// two views undo each other.
+func TestNormalizeInterpolation(t *testing.T) {
+	up := Spec{InputRate: 250e3, OutputRate: 64e6, Passband: 100e3, RippleDB: 0.1, RejectionDB: 90}
+	s, err := up.Normalize()
+	if err != nil {
+		t.Fatal(err)
+	}
+	// The defaults of the decimation spec with the rates swapped: fa = fp,
+	// fs = F_channel - fa.
+	if s.Protected != 100e3 || s.Stopband != 150e3 {
+		t.Errorf("defaults: %+v", s)
+	}
+	if s.Direction() != Interpolate || s.Interpolation() != 256 || s.Decimation() != 1 || s.Ratio() != 256 {
+		t.Errorf("direction %v, L %d, D %d, ratio %d", s.Direction(), s.Interpolation(), s.Decimation(), s.Ratio())
+	}
+	v := s.DecimationView()
+	if v.InputRate != 64e6 || v.OutputRate != 250e3 || v.Direction() != Interpolate || v.Decimation() != 256 || v.Interpolation() != 256 {
+		t.Errorf("view: %+v, D %d", v, v.Decimation())
+	}
+	if v.DecimationView() != v || v.SignalView() != s || s.SignalView() != s {
+		t.Error("the views do not undo each other")
+	}
+	if nv, err := v.Normalize(); err != nil || nv != v {
+		t.Errorf("a view normalises to itself: %+v, %v", nv, err)
+	}
+	if d, _ := goodSpec().Normalize(); d.Direction() != Decimate || d.DecimationView() != d || d.Interpolation() != 1 {
+		t.Error("a decimation spec is its own view")
+	}
+	// The band rules hold on the channel side: the passband below half the
+	// input rate, the stopband at most F_in - fa.
+	for _, tc := range []struct {
+		mod   func(*Spec)
+		field string
+		rule  string
+	}{
+		{func(s *Spec) { s.Passband = 130e3 }, "Passband", "InputRate/2 = 125000 Hz"},
+		{func(s *Spec) { s.Stopband = 160e3 }, "Stopband", "InputRate - Protected = 150000 Hz"},
+		{func(s *Spec) { s.OutputRate = 64.1e6 }, "OutputRate", "OutputRate/InputRate = 256.4 is not an integer ratio; the nearest integer ratios are 256 (OutputRate 64000000 Hz)"},
+	} {
+		in := up
+		tc.mod(&in)
+		_, err := in.Normalize()
+		var se *SpecError
+		if !errors.As(err, &se) || se.Field != tc.field || !strings.Contains(err.Error(), tc.rule) {
+			t.Errorf("%s: error %v, want field %s and %q", tc.field, err, tc.field, tc.rule)
+		}
+	}
 }

@@ -137,8 +137,11 @@ func Price(spec chain.Spec, c *chain.Chain, s Settings) (Figures, error) {
 	if coefBits == 0 {
 		coefBits = FloatCoefBits
 	}
+	// Words flow in signal order (the reverse of Stages for an
+	// interpolation chain): each stage stores the word entering it.
 	width := spec.InputBits
-	for i, st := range c.Stages {
+	for _, i := range c.SignalOrder() {
+		st := c.Stages[i]
 		var mul, add float64 // per stage output, one real filter
 		var dataWords, dataBits, coefWords int
 		var delayIn float64 // group delay, input samples
@@ -251,9 +254,20 @@ func Lanes(rate, clock float64) int {
 // combs run at the output rate), each as wide as its pruned register
 // (CICStage.RegisterBits; without them, chain.CICRegisterWidth for inBits,
 // or for the stage's own InputBits when set).
+//
+// A CIC interpolator (CICStage.Interpolator) runs its combs, registers
+// RegisterBits[0..N-1], at its input rate and its integrators,
+// RegisterBits[N..2N-1], at its output rate: the integrators count once
+// per lane of that rate, the combs M words each.
 func CICMemoryBits(v chain.CICStage, inBits, lanes int) int {
 	regs := cicRegisters(v, inBits)
 	bits := 0
+	if v.Interpolator {
+		for j := 0; j < v.N; j++ {
+			bits += v.M*regs[j] + max(1, lanes)*regs[v.N+j]
+		}
+		return bits
+	}
 	for j := 0; j < v.N; j++ {
 		bits += max(1, lanes)*regs[j] + v.M*regs[v.N+j]
 	}

@@ -21,6 +21,7 @@ func Check(ctx context.Context, spec chain.Spec, plan []chain.StagePlan, s Setti
 	if err != nil {
 		return Candidate{}, "", err
 	}
+	ns = ns.DecimationView() // plan is in decimation order (see Plan)
 	if err := s.check(); err != nil {
 		return Candidate{}, "", err
 	}

@@ -186,6 +186,10 @@ type params struct {
 	// adders: the chains are priced multiplierless
 	// (cost.Settings.Multiplierless) and the cost axis is their adders.
 	adders bool
+	// interp: the spec interpolates; plans are its DecimationView's (the
+	// high rate first), and the words flow the other way: the channel-side
+	// stage takes the input word, a CIC the words between stages.
+	interp bool
 }
 
 // newParams reads a spec whose defaults are filled in.
@@ -196,6 +200,7 @@ func newParams(spec chain.Spec, noSym bool) params {
 		rippleDB: spec.RippleDB, rejDB: spec.RejectionDB,
 		inBits: spec.InputBits, dataBits: spec.OutputBits, coefBits: spec.CoefBits,
 		fixedBits: spec.CoefBits, complex: spec.Complex, noSym: noSym,
+		interp: spec.Direction() == chain.Interpolate,
 	}
 	if p.fa == 0 {
 		p.fa = p.fp
@@ -350,7 +355,7 @@ func (e *estimator) keysOf(plan []chain.StagePlan) dropCode {
 			k.share = math.Float64bits(share)
 			k.nRipple = int8(nRipple)
 			k.comp = i == comp
-			if i == 1 && cic.Kind == chain.CIC {
+			if i == 1 && cic.Kind == chain.CIC && !e.p.interp {
 				k.inBits = int8(e.cicStage(cic.Factor, cic.CICOrder, cic.CICDelay).OutputBits)
 			}
 			if k.comp {
@@ -435,7 +440,7 @@ func (e *estimator) stage(k stageKey) stageVal {
 	// output word after that (a CIC delivers at most the output width; the
 	// learnt real figures see its exact width).
 	width := float64(p.dataBits)
-	if prefix == 1 {
+	if prefix == 1 && !p.interp || last && p.interp {
 		width = float64(p.inBits)
 	}
 	if k.inBits != 0 {
@@ -667,6 +672,15 @@ func (e *estimator) cicStage(r, n, m int) chain.CICStage {
 	cs, ok := e.cics[key]
 	if !ok {
 		cs = chain.NewCICStage(n, m, r, e.p.inBits, e.p.dataBits)
+		if e.p.interp {
+			// As chain.Design builds it: the words between stages in,
+			// or the input word when the CIC is the whole chain.
+			in := e.p.dataBits
+			if r == e.p.d {
+				in = e.p.inBits
+			}
+			cs = chain.NewCICInterpolator(n, m, r, in, e.p.dataBits)
+		}
 		e.cics[key] = cs
 	}
 	e.lastCIC, e.lastCS = key, cs

@@ -52,6 +52,13 @@ func Plan(ctx context.Context, spec chain.Spec, s Settings) (*Result, error) {
 	if err := s.check(); err != nil {
 		return nil, err
 	}
+	// An interpolation spec is searched as its transpose (the chains'
+	// Plan and Stages run from the high rate down; see chain.Chain), and
+	// its CICs take the recursive form, the one built for interpolation.
+	ns = ns.DecimationView()
+	if ns.Direction() == chain.Interpolate {
+		s.CICForms = slices.DeleteFunc(slices.Clone(s.CICForms), func(f chain.CICForm) bool { return f == chain.NonRecursive })
+	}
 	p := newParams(ns, s.Cost.NoSymmetry)
 	p.clock, p.lim, p.adders = s.Cost.Clock, s.Limits, s.Cost.Multiplierless
 	p.d = ns.Decimation()
