@@ -214,7 +214,7 @@ func TestRecommend(t *testing.T) {
 		{mpo: 112, bits: 6000, lat: 1e-3},
 		{mpo: 300, bits: 5000, lat: 0.9e-3},
 	}
-	i, why := recommend(fs, &Settings{})
+	i, why := recommend(fs, &Settings{}, false)
 	if i != 1 {
 		t.Errorf("knee = %d, want 1 (%s)", i, why)
 	}
@@ -222,15 +222,15 @@ func TestRecommend(t *testing.T) {
 	if want := "12% more multiplies than the cheapest chain, for 40% less memory and the same latency."; !contains(why, want) {
 		t.Errorf("reason %q lacks %q", why, want)
 	}
-	i, why = recommend(fs, &Settings{Rule: WeightedCost, WeightMultiplies: 0.01, WeightLatency: 10})
+	i, why = recommend(fs, &Settings{Rule: WeightedCost, WeightMultiplies: 0.01, WeightLatency: 10}, false)
 	if i != 2 {
 		t.Errorf("weighted = %d, want 2 (%s)", i, why)
 	}
-	if i, _ := recommend(nil, &Settings{}); i != -1 {
+	if i, _ := recommend(nil, &Settings{}, false); i != -1 {
 		t.Errorf("empty front: %d", i)
 	}
 	// A CIC-only chain with no multiplies must not give NaN.
-	i, why = recommend([]figs{{mpo: 0, bits: 100, lat: 1}, {mpo: 3, bits: 50, lat: 1}}, &Settings{})
+	i, why = recommend([]figs{{mpo: 0, bits: 100, lat: 1}, {mpo: 3, bits: 50, lat: 1}}, &Settings{}, false)
 	if i < 0 || contains(why, "NaN") || contains(why, "Inf") {
 		t.Errorf("zero multiplies: %d %q", i, why)
 	}

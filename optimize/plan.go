@@ -595,7 +595,7 @@ func search(ctx context.Context, p params, s *Settings, est *estimator, des desi
 	for i := range res.Front {
 		fs[i] = candFigs(&res.Front[i])
 	}
-	res.Recommended, res.Reason = recommend(fs, s)
+	res.Recommended, res.Reason = recommend(fs, s, p.interp)
 	switch {
 	case len(res.Front) == 0 && !res.Partial && res.Dropped[ReasonMissQuantised] > 0:
 		res.Reason = t.widthReason(p.fixedBits)

@@ -28,7 +28,8 @@ func normalised(fs []figs) [][3]float64 {
 
 // recommend picks one point of a front sorted by multiplies and says why.
 // It returns -1 and an empty reason for an empty front.
-func recommend(fs []figs, s *Settings) (int, string) {
+// interp says the counts are per input sample (an interpolation chain's).
+func recommend(fs []figs, s *Settings, interp bool) (int, string) {
 	if len(fs) == 0 {
 		return -1, ""
 	}
@@ -62,7 +63,7 @@ func recommend(fs []figs, s *Settings) (int, string) {
 				best = i
 			}
 		}
-		return best, kneeReason(fs, u, best, what)
+		return best, kneeReason(fs, u, best, what, interp)
 	}
 }
 
@@ -88,7 +89,7 @@ func (s *Settings) weights() [3]float64 {
 // kneeReason compares the knee with the chain of fewest multiplies (the
 // front's first point); what names the cost axis ("multiplies" or
 // "adders").
-func kneeReason(fs []figs, u [][3]float64, k int, what string) string {
+func kneeReason(fs []figs, u [][3]float64, k int, what string, interp bool) string {
 	lead := "Chosen as the knee of the front, the chain nearest the ideal of the fewest " + what + ", least memory and least latency at once"
 	if k == 0 {
 		near := func(u float64, what string) string {
@@ -101,6 +102,9 @@ func kneeReason(fs []figs, u [][3]float64, k int, what string) string {
 			return fmt.Sprintf("is within %.0f%% of the least %s", 100*(u-1), what)
 		}
 		fewest := "the fewest multiplies per output"
+		if interp {
+			fewest = "the fewest multiplies per input"
+		}
 		if what == "adders" {
 			fewest = "the fewest adders"
 		}

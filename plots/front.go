@@ -73,6 +73,9 @@ type FrontData struct {
 	// are): the x axis, the legend and the labels then say adders. The
 	// zero value draws multiplies per output.
 	Adders bool
+	// PerInput says Multiplies are per input sample (an interpolation
+	// chain's channel side); the zero value labels them per output.
+	PerInput bool
 }
 
 // Front draws the projection of a three-axis Pareto front (multiplies per
@@ -120,6 +123,9 @@ func buildFront(d FrontData) (*Figure, *frontPanel, error) {
 	p.X.Min, p.X.Max, xlog = axisRange(xs)
 	p.Y.Min, p.Y.Max, ylog = axisRange(ys)
 	p.X.Label.Text = "Multiplies per output sample"
+	if d.PerInput {
+		p.X.Label.Text = "Multiplies per input sample"
+	}
 	if d.Adders {
 		p.X.Label.Text = "Hardware adders (multiplierless, as built)"
 	}

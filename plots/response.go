@@ -49,6 +49,11 @@ type ResponseData struct {
 	// PassbandHz is the passband edge in Hz, drawn as a vertical line. Zero
 	// draws none.
 	PassbandHz float64
+	// Images says the chain interpolates: FreqHz is then the output
+	// frequency, AliasBands are the images of the protected band and
+	// OutputRateHz is the channel (input) rate, and the labels say so.
+	// The zero value draws a decimation chain's.
+	Images bool
 	// OutputRateHz is the final output rate in Hz. It sets the span of the
 	// near-region panel. Zero infers it from the centre of the first alias
 	// band; with neither, there is no near-region panel.
@@ -202,12 +207,16 @@ func responsePanel(d ResponseData, lo, hi, floor, top float64, logx bool, leg *p
 	p.X.Min, p.X.Max = lo, hi
 	p.Y.Min, p.Y.Max = floor, top
 	p.X.Tick.Marker = scaledTicks{scale: u.scale}
-	p.X.Label.Text = "Input frequency (" + u.name + ")"
+	axis, bandsName := "Input frequency", "alias bands"
+	if d.Images {
+		axis, bandsName = "Output frequency", "image bands"
+	}
+	p.X.Label.Text = axis + " (" + u.name + ")"
 	tol, rel := (hi-lo)/1500, 0.0
 	if logx {
 		p.X.Scale = plot.LogScale{}
 		p.X.Tick.Marker = logTicks{}
-		p.X.Label.Text = "Input frequency (Hz, log scale)"
+		p.X.Label.Text = axis + " (Hz, log scale)"
 		tol, rel = 0, math.Pow(hi/lo, 1.0/1500)-1
 	}
 	p.Y.Label.Text = fmt.Sprintf("Gain (dB, floor %g)", floor)
@@ -239,13 +248,13 @@ func responsePanel(d ResponseData, lo, hi, floor, top float64, logx bool, leg *p
 			poly, _ := plotter.NewPolygon(rings...)
 			poly.Color = color.RGBA{0xF6, 0xDC, 0xC4, 0xff} // a light tint of vermilion
 			poly.LineStyle.Width = 0
-			add("alias bands", poly, poly)
+			add(bandsName, poly, poly)
 		} else {
 			// Keep the legend the same whether or not a band falls in view.
 			poly, _ := plotter.NewPolygon(plotter.XYs{})
 			poly.Color = color.RGBA{0xF6, 0xDC, 0xC4, 0xff}
 			poly.LineStyle.Width = 0
-			legAdd("alias bands", poly)
+			legAdd(bandsName, poly)
 		}
 	}
 	if d.PassbandHz > 0 {

@@ -24,6 +24,9 @@ type StagesData struct {
 	Multiplies []float64
 	// MemoryBits are each stage's memory in bits, >= 0.
 	MemoryBits []float64
+	// PerInput says the multiplies are per input sample (an interpolation
+	// chain's channel side); the zero value labels them per output.
+	PerInput bool
 }
 
 // Stages draws each stage's share of the chain's multiplies and memory as a
@@ -100,18 +103,22 @@ func Stages(d StagesData) (*Figure, error) {
 	p.Add(g, bm, bb)
 	p.Add(barLabels(sm, -w/2-1), barLabels(sb, w/2+1))
 
+	side := "out"
+	if d.PerInput {
+		side = "in"
+	}
 	names := make([]string, n)
 	for i, s := range d.Names {
 		if s == "" {
 			s = fmt.Sprintf("stage %d", i+1)
 		}
-		names[i] = fmt.Sprintf("%s\n%s mult/out\n%s bits", s, amount(d.Multiplies[i]), amount(d.MemoryBits[i]))
+		names[i] = fmt.Sprintf("%s\n%s mult/%s\n%s bits", s, amount(d.Multiplies[i]), side, amount(d.MemoryBits[i]))
 	}
 	p.NominalX(names...)
 	p.X.Min, p.X.Max = -0.6, float64(n)-0.4
 
 	leg := newLegend()
-	leg.Add(fmt.Sprintf("multiplies per output\n(chain: %s)", amount(totM)), bm)
+	leg.Add(fmt.Sprintf("multiplies per %s\n(chain: %s)", map[string]string{"out": "output", "in": "input"}[side], amount(totM)), bm)
 	leg.Add(fmt.Sprintf("memory\n(chain: %s bits)", amount(totB)), bb)
 	if totM == 0 {
 		leg.Add("no multiplies in the chain:\nmultiply shares shown as 0", legendBlank{})

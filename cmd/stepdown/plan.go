@@ -6,6 +6,7 @@ import (
 	"fmt"
 	"io"
 	"os"
+	"slices"
 	"strings"
 	"sync"
 	"time"
@@ -252,7 +253,9 @@ func runCheck(c *cli.Context) error {
 	return j.finish(c.Context, "check", res)
 }
 
-// parseChainFlag parses --chain, which check needs and simulate takes.
+// parseChainFlag parses --chain, which check needs and simulate takes,
+// into its stages in signal order (designNamed turns them into the
+// library's order).
 func parseChainFlag(c *cli.Context) ([]chain.StagePlan, error) {
 	notation := c.String("chain")
 	if notation == "" {
@@ -282,16 +285,27 @@ func (j *job) designNamed(plan []chain.StagePlan, set optimize.Settings) (optimi
 	notation := j.c.String("chain")
 	// The product is checked stage by stage against D, so that it cannot
 	// overflow: every factor is at least 2.
-	want := j.spec.Chain.Decimation()
+	dir := j.spec.Chain.Direction()
+	want, ratio := j.spec.Chain.Ratio(), "input_rate/output_rate"
+	if dir == chain.Interpolate {
+		ratio = "output_rate/input_rate"
+	}
 	d := 1
 	for i, p := range plan {
 		if d > want/p.Factor {
-			return optimize.Candidate{}, "", usagef("--chain %q: its factors multiply to more than input_rate/output_rate = %d (the first %d of its %d stages already do)", clip(notation), want, i+1, len(plan))
+			return optimize.Candidate{}, "", usagef("--chain %q: its factors multiply to more than %s = %d (the first %d of its %d stages already do)", clip(notation), ratio, want, i+1, len(plan))
 		}
 		d *= p.Factor
 	}
 	if d != want {
-		return optimize.Candidate{}, "", usagef("--chain %q: its factors multiply to %d, but input_rate/output_rate = %d", clip(notation), d, want)
+		return optimize.Candidate{}, "", usagef("--chain %q: its factors multiply to %d, but %s = %d", clip(notation), d, ratio, want)
+	}
+	// The library holds an interpolation chain from the high rate down
+	// (chain.Chain): the written order reversed.
+	written := plan
+	if dir == chain.Interpolate {
+		plan = slices.Clone(plan)
+		slices.Reverse(plan)
 	}
 	cand, why, err := optimize.Check(j.c.Context, j.spec.Chain, plan, set)
 	if j.c.Context.Err() != nil {
@@ -302,7 +316,11 @@ func (j *job) designNamed(plan []chain.StagePlan, set optimize.Settings) (optimi
 		if errors.As(err, &pe) {
 			where := ""
 			if pe.Stage >= 0 && pe.Stage < len(plan) {
-				where = fmt.Sprintf("stage %d (%s): ", pe.Stage+1, chain.Notation(plan[pe.Stage:pe.Stage+1]))
+				k := pe.Stage
+				if dir == chain.Interpolate {
+					k = len(plan) - 1 - k
+				}
+				where = fmt.Sprintf("stage %d (%s): ", k+1, chain.Notation(written[k:k+1]))
 			}
 			return cand, why, usagef("--chain %q: %s%s", clip(notation), where, specfile.InFileTerms(pe.Rule))
 		}
@@ -460,8 +478,12 @@ func (p *progress) finish() {
 func printSummary(w io.Writer, j *job, rep *report.Report, files []report.File) {
 	s := rep.Spec
 	fmt.Fprintf(w, "stepdown %s: %s\n", rep.Command, j.source)
-	fmt.Fprintf(w, "  %s -> %s (decimation %d), %s signal; passband %s, protected %s, stopband %s\n",
-		units.FormatFrequency(s.InputRateHz), units.FormatFrequency(s.OutputRateHz), s.Decimation, s.Signal,
+	ratio := fmt.Sprintf("decimation %d", s.Decimation)
+	if s.Interpolates() {
+		ratio = fmt.Sprintf("interpolation %d", s.Interpolation)
+	}
+	fmt.Fprintf(w, "  %s -> %s (%s), %s signal; passband %s, protected %s, stopband %s\n",
+		units.FormatFrequency(s.InputRateHz), units.FormatFrequency(s.OutputRateHz), ratio, s.Signal,
 		units.FormatFrequency(s.PassbandHz), units.FormatFrequency(s.ProtectedHz), units.FormatFrequency(s.StopbandHz))
 	fmt.Fprintf(w, "  ripple %g dB peak-to-peak, rejection %g dB\n", s.RippleDB, s.RejectionDB)
 	if rep.Command == "plan" {

@@ -139,6 +139,9 @@ func runSimulate(c *cli.Context) error {
 	}
 	defer j.out.Discard()
 	cs := j.spec.Chain
+	if cs.Direction() == chain.Interpolate {
+		return usagef("%s: output_rate is above input_rate (an interpolation chain); simulate runs decimation chains only", clip(j.source))
+	}
 
 	rate := cs.InputRate
 	if r := c.String("rate"); r != "" {
@@ -211,7 +214,7 @@ func runSimulate(c *cli.Context) error {
 		cand = res.Front[res.Recommended]
 	}
 	if cand.Chain == nil || !cand.Chain.Designed {
-		return fmt.Errorf("simulate: the chain %s could not be designed", chain.Notation(cand.Plan))
+		return fmt.Errorf("simulate: the chain %s could not be designed", j.spec.Chain.Direction().Notation(cand.Plan))
 	}
 
 	res, err := simulate.Run(c.Context, cs, cand.Chain, j.spec.FixedSettings(), simulate.Input{RateHz: sig.RateHz, Bits: sig.Bits, Paths: sig.Samples})
@@ -219,7 +222,7 @@ func runSimulate(c *cli.Context) error {
 		return fmt.Errorf("interrupted; %s left as it was", clip(j.out.Dir()))
 	}
 	if err != nil {
-		return fmt.Errorf("the chain %s cannot be simulated: %s", chain.Notation(cand.Plan), libMessage(err))
+		return fmt.Errorf("the chain %s cannot be simulated: %s", j.spec.Chain.Direction().Notation(cand.Plan), libMessage(err))
 	}
 	inSp, outSp, err := res.Spectra()
 	if err != nil {
@@ -227,7 +230,7 @@ func runSimulate(c *cli.Context) error {
 	}
 	bands := simulate.Bands{PassbandHz: cs.Passband, ProtectedHz: cs.Protected, OutputRateHz: res.OutputRateHz}
 	lv := res.Measure(inSp, outSp, bands)
-	notation := chain.Notation(cand.Plan)
+	notation := j.spec.Chain.Direction().Notation(cand.Plan)
 
 	files, rep, err := simFiles(res, sig, format, inSp, outSp, bands, lv, notation, filepath.Base(input))
 	if err != nil {

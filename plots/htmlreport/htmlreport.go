@@ -69,8 +69,11 @@ func Plan(p PlanPage) ([]byte, error) {
 		Search:   searchText(r),
 		Partial:  r.Partial,
 		Clock:    r.Spec.Hardware.ClockHz != nil && !r.Spec.Hardware.Multiplierless,
-		Axis:     "mult/out",
+		Axis:     "mult/" + r.Spec.Side(),
 		AxisName: "multiplies",
+		Side:     map[string]string{"out": "output", "in": "input"}[r.Spec.Side()],
+		Short:    r.Spec.Side(),
+		Unwanted: r.Spec.Unwanted(),
 		Files:    listedFiles(p.Files),
 		Cautions: planCautions(r),
 		Trace:    traceText(r),
@@ -332,6 +335,11 @@ type planView struct {
 	// words: "adders" for a multiplierless plan, whose column holds each
 	// chain's adders as built.
 	Axis, AxisName        string
+	// Side is the channel side the counts are per ("output" for a
+	// decimation chain, "input" for an interpolation chain), Short its
+	// column form ("out", "in"), Unwanted what the rejection is of
+	// ("alias", "image").
+	Side, Short, Unwanted string
 	Front                 []frontRow
 	Rec                   *recView
 	FrontSVG, ResponseSVG template.HTML
@@ -406,15 +414,21 @@ type gridView struct {
 }
 
 func specRows(s report.Spec) []kv {
+	ratio := kv{"Decimation", strconv.Itoa(s.Decimation)}
+	protected, rejection := "Protected (alias-free) edge", "Alias rejection"
+	if s.Interpolates() {
+		ratio = kv{"Interpolation", strconv.Itoa(s.Interpolation)}
+		protected, rejection = "Protected (image-free) edge", "Image rejection"
+	}
 	rows := []kv{
 		{"Input rate", freq(s.InputRateHz)},
 		{"Output rate", freq(s.OutputRateHz)},
-		{"Decimation", strconv.Itoa(s.Decimation)},
+		ratio,
 		{"Passband edge", freq(s.PassbandHz)},
-		{"Protected (alias-free) edge", freq(s.ProtectedHz)},
+		{protected, freq(s.ProtectedHz)},
 		{"Final stopband edge", freq(s.StopbandHz)},
 		{"Passband ripple", shortest(s.RippleDB) + " dB peak-to-peak"},
-		{"Alias rejection", shortest(s.RejectionDB) + " dB"},
+		{rejection, shortest(s.RejectionDB) + " dB"},
 		{"Signal", s.Signal},
 	}
 	coef := "floating point"
@@ -473,8 +487,8 @@ func planCautions(r *report.Report) []string {
 	}
 	rej, rip := c.BuiltFigures()
 	if !c.MeetsTargets {
-		out = append(out, fmt.Sprintf("The recommended chain misses the spec (judged on its %s): alias rejection %.2f dB against %s dB, ripple %.4f dB against %s dB.",
-			c.VerdictBasis, rej, shortest(r.Spec.RejectionDB), rip, shortest(r.Spec.RippleDB)))
+		out = append(out, fmt.Sprintf("The recommended chain misses the spec (judged on its %s): %s rejection %.2f dB against %s dB, ripple %.4f dB against %s dB.",
+			c.VerdictBasis, r.Spec.Unwanted(), rej, shortest(r.Spec.RejectionDB), rip, shortest(r.Spec.RippleDB)))
 	} else if c.RejectionMarginDB < 1 {
 		out = append(out, fmt.Sprintf("The recommended chain's rejection margin is thin (%.2f dB): data-path truncation can use it up.", c.RejectionMarginDB))
 	}
@@ -490,7 +504,7 @@ func planCautions(r *report.Report) []string {
 		if w.BitTrueReport != nil {
 			msg += " on " + w.TestSignal
 		}
-		msg += fmt.Sprintf("; with the rounded coefficients the cascade's alias rejection is %.2f dB and its passband ripple %.4f dB; its gain at 0 Hz from input to output full scale is %.2f dB", w.QuantisedRejectionDB, w.QuantisedRippleDB, w.DCGainDB)
+		msg += fmt.Sprintf("; with the rounded coefficients the cascade's %s rejection is %.2f dB and its passband ripple %.4f dB; its gain at 0 Hz from input to output full scale is %.2f dB", r.Spec.Unwanted(), w.QuantisedRejectionDB, w.QuantisedRippleDB, w.DCGainDB)
 		if w.GainCorrection != 1 && w.GainCorrection != 0 {
 			msg += fmt.Sprintf(" after a correction of x%.6g folded into the last FIR stage's taps", w.GainCorrection)
 		}
@@ -553,7 +567,11 @@ func stageViews(c report.Chain, files []string, prefix string, clock bool) []sta
 		if name == "" {
 			name = s.Kind
 		}
-		sv := stageView{Title: fmt.Sprintf("Stage %d: %s, decimate by %d", i+1, name, s.Decimation)}
+		verb := "decimate"
+		if c.Interpolates() {
+			verb = "interpolate"
+		}
+		sv := stageView{Title: fmt.Sprintf("Stage %d: %s, %s by %d", i+1, name, verb, s.Decimation)}
 		add := func(k, v string) { sv.Rows = append(sv.Rows, kv{k, v}) }
 		add("Rates", freq(s.InputRateHz)+" → "+freq(s.OutputRateHz))
 		switch s.Kind {
@@ -611,7 +629,7 @@ func costAxis(s report.Spec) string {
 	if s.Hardware.Multiplierless {
 		return "adders"
 	}
-	return "mult/out"
+	return "mult/" + s.Side()
 }
 
 // listedFiles is the Files section's list of a plan's folder: every file

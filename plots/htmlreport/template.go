@@ -90,7 +90,7 @@ const templates = `
 {{end}}</tbody></table></div>{{end}}
 
 {{define "front"}}<div class="scroll"><table>
-<thead><tr><th class="n">#</th><th>chain</th><th class="n">{{.Axis}}</th><th class="n">adds/out</th><th class="n">memory bits</th>{{if .Clock}}<th class="n">multi&shy;pliers</th>{{end}}<th class="n">latency (output samples)</th><th class="n">rejection dB</th><th class="n">margin dB</th><th class="n">ripple dB</th></tr></thead>
+<thead><tr><th class="n">#</th><th>chain</th><th class="n">{{.Axis}}</th><th class="n">adds/{{.Short}}</th><th class="n">memory bits</th>{{if .Clock}}<th class="n">multi&shy;pliers</th>{{end}}<th class="n">latency ({{.Side}} samples)</th><th class="n">rejection dB</th><th class="n">margin dB</th><th class="n">ripple dB</th></tr></thead>
 <tbody>
 {{range .Rows}}<tr class="{{if .Rec}}mark{{end}}{{if .Misses}} bad{{end}}"><td class="n">{{.Index}}{{if .Rec}} ★{{end}}</td><td class="chain">{{.Notation}}{{if .Tag}} <span class="tag">{{.Tag}}</span>{{end}}</td><td class="n">{{.Mult}}</td><td class="n">{{.Adds}}</td><td class="n">{{.MemBits}}</td>{{if $.Clock}}<td class="n">{{.Multipliers}}</td>{{end}}<td class="n">{{.Latency}} ({{.LatOut}} out)</td><td class="n">{{.Rejection}}</td><td class="n">{{.Margin}}</td><td class="n">{{.Ripple}}</td></tr>
 {{end}}</tbody></table></div>{{end}}
@@ -111,7 +111,7 @@ const templates = `
 {{end}}</ul>{{end}}
 
 {{define "plan"}}{{template "head" .}}<header>
-<h1>{{if eq .Command "check"}}Chain check{{else}}Decimation chain plan{{end}}</h1>
+<h1>{{if eq .Command "check"}}Chain check{{else if eq .Side "input"}}Interpolation chain plan{{else}}Decimation chain plan{{end}}</h1>
 <p class="sub">Spec: <code>{{.Source}}</code> · command: stepdown {{.Command}}{{if .Trace}} · {{.Trace}}{{end}}</p>
 </header>
 <p class="caution"><strong>Caution:</strong> {{.Caution}}.</p>
@@ -134,7 +134,7 @@ const templates = `
 <section id="recommendation"><h2>Recommendation</h2>
 {{with .Rec}}<div class="rec"><p class="chain">#{{.Index}} {{.Notation}}</p>
 <p>{{.Reason}}</p>
-<p>{{if eq $.Axis "adders"}}{{.Figures.Mult}} adders as built (multiplierless) and {{.Figures.Adds}} adds per output sample{{else}}{{.Figures.Mult}} multiplies and {{.Figures.Adds}} adds per output sample{{end}}{{if $.Clock}} (hardware multipliers at the clock: {{.Figures.Multipliers}}){{end}}; {{.Figures.MemBits}} bits of memory ({{.Figures.MemWords}} words); latency {{.Figures.Latency}} ({{.Figures.LatOut}} output samples); alias rejection {{.Figures.Rejection}} dB (margin {{.Figures.Margin}} dB); passband ripple {{.Figures.Ripple}} dB; {{.Figures.Kind}}.</p></div>
+<p>{{if eq $.Axis "adders"}}{{.Figures.Mult}} adders as built (multiplierless) and {{.Figures.Adds}} adds per {{$.Side}} sample{{else}}{{.Figures.Mult}} multiplies and {{.Figures.Adds}} adds per {{$.Side}} sample{{end}}{{if $.Clock}} (hardware multipliers at the clock: {{.Figures.Multipliers}}){{end}}; {{.Figures.MemBits}} bits of memory ({{.Figures.MemWords}} words); latency {{.Figures.Latency}} ({{.Figures.LatOut}} {{$.Side}} samples); {{$.Unwanted}} rejection {{.Figures.Rejection}} dB (margin {{.Figures.Margin}} dB); passband ripple {{.Figures.Ripple}} dB; {{.Figures.Kind}}.</p></div>
 {{else}}<p>No chain meets the spec.</p>{{end}}
 {{if .Compared}}<p>Compared with the front of {{.Compared}}: {{if .Beaten}}it is beaten.</p>
 <ul>{{range .Beaten}}<li>{{.}}</li>{{end}}</ul>{{else}}{{.CompareText}}</p>{{end}}{{end}}
@@ -148,9 +148,9 @@ const templates = `
 </section>
 
 <section id="front"><h2>Pareto front</h2>
-{{if .FrontSVG}}<figure>{{.FrontSVG}}<figcaption>{{if eq .Axis "adders"}}Hardware adders (as built){{else}}Multiplies per output{{end}} against memory: every feasible candidate (by estimate) faint, the front coloured by latency, the recommended chain ringed.</figcaption></figure>{{end}}
-<p>Chains that no other chain beats on {{.AxisName}}, memory and latency at once, sorted by {{.AxisName}}; ★ marks the recommendation. Figures are per final output sample, from real designs unless a chain is marked estimated.</p>
-{{template "front" (frontArgs .Front .Clock .Axis)}}
+{{if .FrontSVG}}<figure>{{.FrontSVG}}<figcaption>{{if eq .Axis "adders"}}Hardware adders (as built){{else}}Multiplies per {{.Side}} sample{{end}} against memory: every feasible candidate (by estimate) faint, the front coloured by latency, the recommended chain ringed.</figcaption></figure>{{end}}
+<p>Chains that no other chain beats on {{.AxisName}}, memory and latency at once, sorted by {{.AxisName}}; ★ marks the recommendation. Figures are per {{if eq .Side "input"}}input sample (the channel side){{else}}final output sample{{end}}, from real designs unless a chain is marked estimated.</p>
+{{template "front" (frontArgs .Front .Clock .Axis .Short)}}
 </section>
 
 <section id="stages"><h2>Stages of the recommended chain</h2>
@@ -281,16 +281,23 @@ const templates = `
 type frontArgsT struct {
 	Rows  []frontRow
 	Clock bool
-	Axis  string // the cost column's head: "mult/out", or "adders" (multiplierless)
+	Axis  string // the cost column's head: "mult/out", "mult/in", or "adders" (multiplierless)
+	// Short and Side say per which samples the counts are: "out" and
+	// "output" (a decimation chain), "in" and "input" (an interpolation
+	// chain).
+	Short, Side string
 }
 
 var pages = template.Must(template.New("").Funcs(template.FuncMap{
 	"style":      func() template.CSS { return template.CSS(style) },
 	"capitalise": capitalise,
 	"frontArgs": func(rows []frontRow, clock bool, axis ...string) frontArgsT {
-		a := frontArgsT{rows, clock, "mult/out"}
+		a := frontArgsT{rows, clock, "mult/out", "out", "output"}
 		if len(axis) > 0 && axis[0] != "" {
 			a.Axis = axis[0]
+		}
+		if a.Axis == "mult/in" || len(axis) > 1 && axis[1] == "in" {
+			a.Short, a.Side = "in", "input"
 		}
 		return a
 	},

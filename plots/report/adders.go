@@ -29,7 +29,9 @@ func AddAdders(c *Chain, s *specfile.Spec) error {
 	var total, coef, structural int
 	for i := range c.Stages {
 		st := &c.Stages[i]
-		lanes := cost.Lanes(st.InputRateHz, s.Clock)
+		// Lanes at the stage's high rate: its input's when it
+		// decimates, its output's when it interpolates.
+		lanes := cost.Lanes(max(st.InputRateHz, st.OutputRateHz), s.Clock)
 		if st.Kind == "cic" {
 			if st.Adders == nil || st.CICForm != "nonrecursive" {
 				// A non-recursive CIC keeps the count cost priced on its

@@ -70,7 +70,7 @@ func Files(ctx context.Context, rep *Report, res *optimize.Result, spec *specfil
 	// A multiplierless plan's cost axis is its adders as built: the
 	// figure's x axis holds them (plots.FrontData.Adders).
 	ml := rep.Spec.Hardware.Multiplierless
-	fd := plots.FrontData{Recommended: rec, FeasibleTotal: res.FeasibleAll, Adders: ml}
+	fd := plots.FrontData{Recommended: rec, FeasibleTotal: res.FeasibleAll, Adders: ml, PerInput: rep.Spec.Interpolates()}
 	for _, ch := range rep.Front {
 		// The rejection the verdict is judged on: the rounded taps' when
 		// they are planned.
@@ -139,9 +139,11 @@ func Files(ctx context.Context, rep *Report, res *optimize.Result, spec *specfil
 		return nil, fmt.Errorf("response plot: %v", err)
 	}
 
-	sd := plots.StagesData{Title: "Cost by stage: " + rep.Front[rec].Notation}
+	sd := plots.StagesData{Title: "Cost by stage: " + rep.Front[rec].Notation, PerInput: rep.Spec.Interpolates()}
 	for i, st := range rep.Front[rec].Stages {
-		sd.Names = append(sd.Names, stageName(cand, i))
+		// The report's stages are in signal order, the plan's from the
+		// high rate down.
+		sd.Names = append(sd.Names, stageName(cand, rep.Front[rec].reportIndex(i, len(cand.Plan))))
 		sd.Multiplies = append(sd.Multiplies, st.MultipliesPerOutput)
 		sd.MemoryBits = append(sd.MemoryBits, float64(st.MemoryBits))
 	}
@@ -251,7 +253,9 @@ func finite(v float64) bool { return !math.IsNaN(v) && !math.IsInf(v, 0) }
 // otherwise.
 func responseData(cand optimize.Candidate, spec *specfile.Spec, ch Chain) (plots.ResponseData, error) {
 	c := cand.Chain
-	cs := spec.Chain
+	// The response of an interpolation chain is its transpose's, on the
+	// output-frequency axis, with the images of the protected band shaded.
+	cs := spec.Chain.DecimationView()
 	title := "Cascade response: " + ch.Notation
 	if spec.CoefMode() != "float" {
 		if q := roundedChain(c, ch); q != nil {
@@ -261,6 +265,7 @@ func responseData(cand optimize.Candidate, spec *specfile.Spec, ch Chain) (plots
 	}
 	f0 := c.InputRate
 	rd := plots.ResponseData{
+		Images:       cs.Direction() == chain.Interpolate,
 		Title:        title,
 		TargetDB:     cs.RejectionDB,
 		PassbandHz:   cs.Passband,
@@ -303,7 +308,7 @@ func roundedChain(c *chain.Chain, ch Chain) *chain.Chain {
 		if !ok {
 			continue
 		}
-		sr := ch.Stages[i].StageReport
+		sr := ch.Stages[ch.reportIndex(i, len(q.Stages))].StageReport
 		if sr == nil || sr.CoefficientFrac == nil || len(sr.CoefficientsInt) != len(st.Taps) {
 			return nil
 		}

@@ -35,6 +35,9 @@ func HandoffFiles(c Chain) ([]File, string) {
 		}
 		return nil, "no word-length plan"
 	}
+	if c.interp {
+		return nil, "the hand-off to RTL (headers, vectors, reference model) is written for decimation chains only"
+	}
 	p := c.plan
 	files, err := headers.Files(p.cascade, p.widths, headers.Options{Notation: c.Notation})
 	if err != nil {

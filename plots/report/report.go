@@ -53,11 +53,15 @@ type Report struct {
 	BeatenBy     []Beater    `json:"beaten_by,omitzero"`
 }
 
-// Spec is the normalised spec.
+// Spec is the normalised spec. Direction is "decimate" or "interpolate";
+// Decimation and Interpolation are D and L, the other one 1, so that the
+// rate change is Interpolation/Decimation in both directions.
 type Spec struct {
-	InputRateHz  float64  `json:"input_rate_hz"`
-	OutputRateHz float64  `json:"output_rate_hz"`
-	Decimation   int      `json:"decimation"`
+	InputRateHz   float64  `json:"input_rate_hz"`
+	OutputRateHz  float64  `json:"output_rate_hz"`
+	Direction     string   `json:"direction"`
+	Decimation    int      `json:"decimation"`
+	Interpolation int      `json:"interpolation"`
 	PassbandHz   float64  `json:"passband_hz"`
 	ProtectedHz  float64  `json:"protected_hz"`
 	StopbandHz   float64  `json:"stopband_hz"`
@@ -176,6 +180,9 @@ type Chain struct {
 	// plan is the word-length plan behind ChainReport (AddWordLengths),
 	// kept for the hand-off files; nil without one.
 	plan *handoffPlan
+	// interp: an interpolation chain, whose report.json keys say image
+	// and per input sample (see MarshalJSON).
+	interp bool
 }
 
 // SubStage is one sub-stage of a non-recursive CIC (cost.SubStage): its
@@ -231,6 +238,9 @@ type Stage struct {
 	// SubStages: a non-recursive CIC's sub-stages as cost prices them.
 	SubStages []SubStage `json:"sub_stages,omitempty"`
 
+	// interp: a stage of an interpolation chain (see MarshalJSON).
+	interp bool
+
 	// Half-band and FIR only.
 	Variant        string    `json:"variant,omitempty"` // FIR: "multiband" or "lowpass"
 	Taps           int       `json:"taps,omitempty"`
@@ -246,11 +256,46 @@ type Stage struct {
 	*fixed.StageReport
 }
 
+// Interpolates reports whether c is an interpolation chain.
+func (c *Chain) Interpolates() bool { return c.interp }
+
+// reportIndex is the index in c.Stages (signal order) of the chain
+// package's stage i of n (chain.Chain.Stages, from the high rate down).
+func (c *Chain) reportIndex(i, n int) int {
+	if c.interp {
+		return n - 1 - i
+	}
+	return i
+}
+
+// Interpolates reports whether the spec is an interpolation spec.
+func (s Spec) Interpolates() bool { return s.Direction == chain.Interpolate.String() }
+
+// Side is the channel side the counts and the latency in samples are
+// given per: "out" for a decimation chain (per output sample), "in" for an
+// interpolation chain (per input sample).
+func (s Spec) Side() string {
+	if s.Interpolates() {
+		return "in"
+	}
+	return "out"
+}
+
+// Unwanted names what the rejection target applies to: "alias" for a
+// decimation chain, "image" for an interpolation chain.
+func (s Spec) Unwanted() string {
+	if s.Interpolates() {
+		return "image"
+	}
+	return "alias"
+}
+
 // NewSpec converts a parsed spec file.
 func NewSpec(s *specfile.Spec) Spec {
 	c := s.Chain
 	out := Spec{
-		InputRateHz: c.InputRate, OutputRateHz: c.OutputRate, Decimation: c.Decimation(),
+		InputRateHz: c.InputRate, OutputRateHz: c.OutputRate,
+		Direction: c.Direction().String(), Decimation: c.Decimation(), Interpolation: c.Interpolation(),
 		PassbandHz: c.Passband, ProtectedHz: c.Protected, StopbandHz: c.Stopband,
 		RippleDB: c.RippleDB, RejectionDB: c.RejectionDB, Signal: s.Signal,
 		Words: Words{Input: c.InputBits, Output: c.OutputBits},
@@ -292,7 +337,8 @@ func NewChain(spec chain.Spec, cand optimize.Candidate, clock bool) (Chain, erro
 	f := cand.Figures
 	a := f.Analysis
 	out := Chain{
-		Notation:            chain.Notation(cand.Plan),
+		interp:              spec.Direction() == chain.Interpolate,
+		Notation:            spec.Direction().Notation(cand.Plan),
 		Designed:            f.Designed,
 		MultipliesPerOutput: f.MultipliesPerOutput,
 		AddsPerOutput:       f.AddsPerOutput,
@@ -315,13 +361,18 @@ func NewChain(spec chain.Spec, cand optimize.Candidate, clock bool) (Chain, erro
 	if c == nil {
 		return Chain{}, fmt.Errorf("report: chain %q has no stages", out.Notation)
 	}
-	rates := c.Rates()
-	for i, st := range c.Stages {
+	// Stages in signal order (the reverse of c.Stages for an
+	// interpolation chain), each with the rates its samples enter and
+	// leave at.
+	for _, i := range c.SignalOrder() {
+		st := c.Stages[i]
+		in, outRate := c.SignalRates(i)
 		s := Stage{
+			interp:       out.interp,
 			Kind:         st.Kind().String(),
 			Decimation:   st.Factor(),
-			InputRateHz:  rates[i],
-			OutputRateHz: rates[i+1],
+			InputRateHz:  in,
+			OutputRateHz: outRate,
 		}
 		if i < len(f.Stages) {
 			sf := f.Stages[i]

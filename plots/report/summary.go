@@ -47,8 +47,8 @@ func WriteComparison(w io.Writer, rep *Report) {
 			break
 		}
 		f := cw.Front[first]
-		fmt.Fprintf(w, "  The front of %s has %d chains that meet the spec, the first #%d %s (%s mult/out, %d memory bits, %s).\n",
-			cw.Source, meet, first+1, f.Notation, TrimFloat(f.MultipliesPerOutput, 1), f.MemoryBits, Seconds(f.LatencyS))
+		fmt.Fprintf(w, "  The front of %s has %d chains that meet the spec, the first #%d %s (%s mult/%s, %d memory bits, %s).\n",
+			cw.Source, meet, first+1, f.Notation, TrimFloat(f.MultipliesPerOutput, 1), rep.Spec.Side(), f.MemoryBits, Seconds(f.LatencyS))
 	default:
 		fmt.Fprintf(w, "  No chain on the front of %s (%d chains) beats it on every axis.\n", cw.Source, len(cw.Front))
 	}
@@ -70,8 +70,8 @@ func WriteWordLengths(w io.Writer, rep *Report) {
 	if ch.DCGainNote != "" {
 		gain += " (" + ch.DCGainNote + ")"
 	}
-	fmt.Fprintf(w, "\nword lengths (%s): %s; rounded taps: alias rejection %.2f dB, ripple %.4f dB; %s\n",
-		coef, ch.BitTrueSummary(), ch.QuantisedRejectionDB, ch.QuantisedRippleDB, gain)
+	fmt.Fprintf(w, "\nword lengths (%s): %s; rounded taps: %s rejection %.2f dB, ripple %.4f dB; %s\n",
+		coef, ch.BitTrueSummary(), rep.Spec.Unwanted(), ch.QuantisedRejectionDB, ch.QuantisedRippleDB, gain)
 	for i, st := range ch.Stages {
 		sr := st.StageReport
 		if sr == nil {
@@ -87,6 +87,11 @@ func WriteWordLengths(w io.Writer, rep *Report) {
 				subs[j] = fmt.Sprint(v)
 			}
 			fmt.Fprintf(&b, ", sub-stages %s bits", strings.Join(subs, ", "))
+		case st.Kind == "cic" && rep.Spec.Interpolates():
+			// An interpolator's registers, unpruned: the combs', then
+			// the integrators'.
+			n := len(sr.RegisterBits) / 2
+			fmt.Fprintf(&b, ", combs %d..%d bits, integrators %d..%d bits", sr.RegisterBits[0], sr.RegisterBits[n-1], sr.RegisterBits[n], sr.RegisterBits[2*n-1])
 		case st.Kind == "cic":
 			// The registers from the first integrator's to the last comb's
 			// (the full width, before the first truncation, is the
@@ -118,7 +123,8 @@ func WriteWordLengths(w io.Writer, rep *Report) {
 // chain with its figures and verdict, and the notes its columns need.
 func WriteTable(w io.Writer, rep *Report) {
 	clock := rep.Spec.Hardware.ClockHz != nil
-	head := []string{"", "#", "chain", "mult/out", "adds/out", "memory bits", "latency", "rejection", "ripple", "figures"}
+	side := rep.Spec.Side()
+	head := []string{"", "#", "chain", "mult/" + side, "adds/" + side, "memory bits", "latency", "rejection", "ripple", "figures"}
 	rounded := len(rep.Front) > 0 && rep.Front[0].VerdictBasis == "rounded taps"
 	if rounded {
 		head[7], head[8] = "rejection*", "ripple*"
@@ -185,7 +191,7 @@ func WriteTable(w io.Writer, rep *Report) {
 			row = append(row, fmt.Sprint(*ch.ParallelLanes))
 		}
 		row = append(row,
-			fmt.Sprintf("%s (%.1f out)", Seconds(ch.LatencyS), ch.LatencySamples),
+			fmt.Sprintf("%s (%.1f %s)", Seconds(ch.LatencyS), ch.LatencySamples, side),
 			fmt.Sprintf("%.2f dB", rej),
 			rippleText(rip),
 			kind)
@@ -204,10 +210,13 @@ func WriteTable(w io.Writer, rep *Report) {
 		fmt.Fprintln(w)
 	}
 	if adders {
-		fmt.Fprintf(w, "adders: multiplierless, each FIR and half-band stage a shared adder graph of its rounded taps plus one adder per nonzero tap after the first, times its lanes and real filters, and each CIC's integrators and combs (the hardware, the front's cost axis; adds/out counts the tap sums and the CICs only)")
+		fmt.Fprintf(w, "adders: multiplierless, each FIR and half-band stage a shared adder graph of its rounded taps plus one adder per nonzero tap after the first, times its lanes and real filters, and each CIC's integrators and combs (the hardware, the front's cost axis; adds/%s counts the tap sums and the CICs only)", side)
 		fmt.Fprintln(w)
 	}
-	if lanes {
+	if lanes && rep.Spec.Interpolates() {
+		fmt.Fprintf(w, "lanes: the output (%s) runs above the %s clock, so the last stages deliver that many samples per clock cycle, built as parallel lanes; a CIC's integrators are counted once per lane in its memory (an estimate of the structure: the vendor's tools decide)\n",
+			units.FormatFrequency(rep.Spec.OutputRateHz), units.FormatFrequency(*rep.Spec.Hardware.ClockHz))
+	} else if lanes {
 		fmt.Fprintf(w, "lanes: the input (%s) runs above the %s clock, so the first stages take that many samples per clock cycle, built as parallel lanes; a CIC's integrators are counted once per lane in its memory (an estimate of the structure: the vendor's tools decide)\n",
 			units.FormatFrequency(rep.Spec.InputRateHz), units.FormatFrequency(*rep.Spec.Hardware.ClockHz))
 	}
