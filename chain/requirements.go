@@ -159,16 +159,22 @@ func Requirements(spec Spec, plan []StagePlan) ([]Requirement, error) {
 			if edge >= out/2 {
 				// Name the edge that binds: the passband, the protected
 				// edge, or (last) the output rate less the stopband.
+				// The channel side is the output of a decimation
+				// chain, the input of an interpolation chain.
+				channel, last, side := "OutputRate", "last", "output"
+				if spec.Direction() == Interpolate {
+					channel, last, side = "InputRate", "first", "input"
+				}
 				what := "passband edge"
 				switch {
 				case edge > fp && r.Last:
-					what = "edge OutputRate - Stopband ="
+					what = "edge " + channel + " - Stopband ="
 				case edge > fp:
 					what = "protected edge"
 				}
 				return nil, planErr(plan, i,
-					"a half-band needs its %s %s Hz below OutputRate/2 = %s Hz of the stage (as the last stage it needs Stopband > %s Hz)",
-					what, fmtNum(edge), fmtNum(out/2), fmtNum(fk/2))
+					"a half-band needs its %s %s Hz below half its %s rate, %s Hz (as the %s stage it needs Stopband > %s Hz)",
+					what, fmtNum(edge), side, fmtNum(out/2), last, fmtNum(fk/2))
 			}
 			r.Passband = edge
 			r.Stopbands = []Interval{{rate/2 - edge, rate / 2}}

@@ -10,6 +10,7 @@ import (
 	"os"
 	"reflect"
 	"regexp"
+	"slices"
 	"sort"
 	"strconv"
 	"strings"
@@ -808,6 +809,9 @@ func (p *parser) build() (*Spec, error) {
 	norm, err := cs.Normalize()
 	if err != nil {
 		return nil, p.specError(err)
+	}
+	if v, ok := p.lookup("search.cic_forms"); ok && norm.Direction() == chain.Interpolate && slices.Contains(out.CICForms, chain.NonRecursive) {
+		return nil, p.errAt("search.cic_forms", v, `"nonrecursive" is built for decimation only; with output_rate above input_rate (an interpolation chain) the CIC takes the form "recursive"`)
 	}
 	out.Chain = norm
 	return out, nil
