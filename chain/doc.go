@@ -1,4 +1,5 @@
-// Package chain describes decimation chains (CIC, half-band and FIR stages),
+// Package chain describes decimation and interpolation chains (CIC,
+// half-band and FIR stages),
 // derives each stage's requirements from the user's spec, designs or
 // estimates the stages, and measures the truth of the cascade in the
 // frequency domain (Analyze) and the time domain (Run).
@@ -219,6 +220,45 @@
 // decimators in float64, CICs as integrators and combs in wrapping integer
 // arithmetic (see Run for why), so tests can check the frequency analysis
 // against what the structure actually computes.
+//
+// # Interpolation
+//
+// A Spec whose OutputRate is L times its InputRate is an interpolation
+// spec (Direction Interpolate): the chain takes the channel's samples up to
+// a DAC's rate. Its band edges are on the channel side, the input: [0, fp]
+// flat within the ripple, and the images of [0, fa] at k F_in +- fa,
+// k >= 1, up to F_out/2, attenuated by the rejection target relative to the
+// gain at 0 Hz (the image rejection); fs, at most F_in - fa, is where the
+// output's attenuation begins.
+//
+// An interpolation chain is the transpose of a decimation chain: the same
+// filters at the same rates in the opposite order (a FIR interpolating by L
+// is zero stuffing followed by its filter at the high rate, the transpose
+// of the filter followed by keeping one sample in L; a CIC interpolator's
+// combs, zeros and integrators are the transpose of the decimator's
+// integrators, rate change and combs). Input frequency g at the high rate
+// passes the decimator with gain prod_i |H_i(g)|; the interpolator's output
+// at g, the image of the channel frequency g folded into [0, F_in/2], is
+// the same product. So every rule above holds for both directions on the
+// spec's DecimationView (rates swapped), which is how the package works:
+// Requirements, Design, Estimate and Analyze take an interpolation spec,
+// plan, design and measure its transpose, and return a Chain with
+// Direction Interpolate that holds the transpose (Plan and Stages from the
+// high rate down, InputRate the high rate). Its AliasRejectionDB and
+// WorstAliasHz are the image rejection and the worst image's frequency at
+// the output; SignalOrder and SignalRates give the stages as the signal
+// meets them. Direction.Notation and Direction.ParseNotation write and read
+// a plan in signal order ("fir2 > hb > cic4m1r16"), so the compensating
+// FIR, the last FIR after the CIC in the transpose, is the first stage of
+// the interpolation chain: its droop correction is a pre-correction.
+//
+// What is not shared is the structure: the CIC interpolator
+// (NewCICInterpolator, CICStage.Interpolator) has Hogenauer's (1981)
+// interpolator register widths (InterpolatorCICBits), unpruned, its
+// RegisterBits in signal order (combs, then integrators); it takes the
+// words between stages (spec.OutputBits) unless it is the whole chain.
+// The non-recursive form is for decimation only. Run runs the real
+// polyphase interpolators.
 //
 // # Notation
 //

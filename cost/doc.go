@@ -12,6 +12,23 @@
 // real filters, so multiplies, adders and data memory double while
 // coefficient memory does not (docs/design.md §2).
 //
+// An interpolation chain (chain.Interpolate) is priced as the transpose it
+// is held as: "per final output sample" is then per input sample, the
+// channel side in both directions, so that the two directions compare on
+// the same footing, and "a stage's output" is its low-rate side, its
+// input. The counts below hold for the interpolating structures: a FIR
+// interpolating by L is its L polyphase phases, each input sample
+// multiplied once by every distinct coefficient (ceil(N/2) with symmetry,
+// the transposed form, common practice) into N - 1 partial sums, counted as
+// the decimator's N delay words; a half-band's second phase is the input
+// itself; a CIC interpolator runs N combs at its input rate and N
+// integrators at its output rate (R per input), the same N R + N adds.
+// Words flow in signal order: each stage stores the word entering it (the
+// input word for the first stage in signal order, the channel's for an
+// interpolation chain), and a CIC interpolator's memory counts its
+// integrators once per lane of its output rate and its combs M words each
+// (CICMemoryBits), at its unpruned widths.
+//
 // # Formulas
 //
 // Stage i decimates by Di from F(i-1) to Fi; N is its number of taps.

@@ -25,11 +25,12 @@ func sweepCommand() *cli.Command {
 		Usage:     "step one requirement (or two, as a grid) over a range, plan each value and tabulate the best chain's cost",
 		ArgsUsage: "[SPEC.toml]",
 		UsageText: "stepdown sweep [SPEC.toml] --vary KEY=FROM:TO:STEP [--vary KEY2=FROM:TO:STEP] [--out DIR] [--json] [--quiet] [--html] [--max-stages N] [--jobs N] [--timeout DUR]\n\n" +
-			"KEY is one of input_rate, output_rate, decimation, passband, protected, stopband, ripple,\n" +
+			"KEY is one of input_rate, output_rate, decimation, interpolation, passband, protected, stopband, ripple,\n" +
 			"rejection, clock, input_bits, output_bits, coefficient_bits or max_stages; FROM:TO:STEP are\n" +
 			"written like the spec's values (\"80 dB:100 dB:5 dB\", \"80:100:5\" in the key's base unit,\n" +
 			"\"1.92:3.84:0.64 MHz\"), at most 50 values; FROM above TO runs downwards (\"90:70:10\").\n" +
-			"decimation steps D and sets output_rate = input_rate / D.\n" +
+			"decimation steps D and sets output_rate = input_rate / D; interpolation steps L and sets\n" +
+			"output_rate = input_rate L.\n" +
 			"Writes sweep.csv, sweep.svg, sweep.png, report.json (the sweep) and values/NN/ (each value's\n" +
 			"report.json and coefficient files). Values that make the spec invalid are rows with status\n" +
 			"\"invalid\"; the sweep goes on. Without SPEC.toml the built-in example is swept.\n" +
@@ -185,7 +186,8 @@ func printSweep(w io.Writer, source, dir string, v sweep.Vary, doc *sweep.Doc, f
 	// A multiplierless spec's cost axis is the hardware adders as built.
 	adders := doc.Spec.Hardware.Multiplierless
 	clock = clock && !adders // no multipliers to count
-	cost, leastCost := "mult/out", "least mult/out"
+	cost := "mult/" + doc.Spec.Side()
+	leastCost := "least " + cost
 	if adders {
 		cost, leastCost = "adders", "least adders"
 	}

@@ -16,6 +16,8 @@
 //   - decimation [output_rate]: the ratio D, a whole number from 2; each value
 //     sets output_rate = input_rate / D (after any other swept key, so that
 //     in a grid with input_rate it divides the swept input rate);
+//   - interpolation [output_rate]: the ratio L of an interpolation chain,
+//     likewise: output_rate = input_rate L;
 //   - passband, protected, stopband [passband, protected, stopband]:
 //     frequencies;
 //   - ripple, rejection [ripple, rejection]: levels in dB;

@@ -44,6 +44,9 @@ type Key struct {
 	// written to the spec itself, Path (output_rate) is set to
 	// input_rate / D.
 	Decimation bool
+	// Interpolation is set for the interpolation ratio L: Path
+	// (output_rate) is set to input_rate L, as for Decimation.
+	Interpolation bool
 	// Min and Max bound the key's own domain; MinOpen excludes Min itself.
 	Min, Max float64
 	MinOpen  bool
@@ -93,6 +96,8 @@ var Keys = []Key{
 	{Name: "output_rate", Path: "output_rate", Dim: Frequency, Rate: true, MinOpen: true, Max: math.Inf(1)},
 	{Name: "decimation", Path: "output_rate", Dim: Count, Decimation: true, Min: 2, Max: math.MaxInt32,
 		Whole: "decimation ratios (input_rate / output_rate)"},
+	{Name: "interpolation", Path: "output_rate", Dim: Count, Interpolation: true, Min: 2, Max: math.MaxInt32,
+		Whole: "interpolation ratios (output_rate / input_rate)"},
 	{Name: "passband", Path: "passband", Dim: Frequency, MinOpen: true, Max: math.Inf(1)},
 	{Name: "protected", Path: "protected", Dim: Frequency, MinOpen: true, Max: math.Inf(1)},
 	{Name: "stopband", Path: "stopband", Dim: Frequency, MinOpen: true, Max: math.Inf(1)},
@@ -255,7 +260,7 @@ func example(k Key) string {
 	case Bits:
 		return "14:20:2"
 	case Count:
-		if k.Decimation {
+		if k.Decimation || k.Interpolation {
 			return "16:64:8"
 		}
 		return "2:6:1"
@@ -355,12 +360,12 @@ func ApplyAll(spec []byte, sets ...Setting) ([]byte, error) {
 	}
 	ordered := make([]Setting, 0, len(sets))
 	for _, st := range sets {
-		if !st.Key.Decimation {
+		if !st.Key.Decimation && !st.Key.Interpolation {
 			ordered = append(ordered, st)
 		}
 	}
 	for _, st := range sets {
-		if st.Key.Decimation {
+		if st.Key.Decimation || st.Key.Interpolation {
 			ordered = append(ordered, st)
 		}
 	}
@@ -375,12 +380,15 @@ func ApplyAll(spec []byte, sets ...Setting) ([]byte, error) {
 		default:
 			val = units.FormatFrequency(v)
 		}
-		if k.Decimation {
-			in, err := inputRate(root)
+		if k.Decimation || k.Interpolation {
+			in, err := inputRate(root, k.Name)
 			if err != nil {
 				return nil, err
 			}
 			val = units.FormatFrequency(in / v)
+			if k.Interpolation {
+				val = units.FormatFrequency(in * v)
+			}
 		}
 		path := strings.Split(k.Path, ".")
 		m := root
@@ -404,8 +412,9 @@ func ApplyAll(spec []byte, sets ...Setting) ([]byte, error) {
 	return buf.Bytes(), nil
 }
 
-// inputRate reads input_rate from decoded spec text, for the decimation.
-func inputRate(root map[string]any) (float64, error) {
+// inputRate reads input_rate from decoded spec text, for the ratio key
+// (decimation or interpolation) name.
+func inputRate(root map[string]any, name string) (float64, error) {
 	var (
 		in  float64
 		err error
@@ -418,10 +427,10 @@ func inputRate(root map[string]any) (float64, error) {
 	case float64:
 		in, err = x, units.CheckFinite(x)
 	default:
-		return 0, fmt.Errorf("sweep: decimation: the spec's input_rate is %s, not a rate", showAny(root["input_rate"]))
+		return 0, fmt.Errorf("sweep: %s: the spec's input_rate is %s, not a rate", name, showAny(root["input_rate"]))
 	}
 	if err != nil || !(in > 0) {
-		return 0, fmt.Errorf("sweep: decimation: the spec's input_rate %s is not a rate above 0 Hz", showAny(root["input_rate"]))
+		return 0, fmt.Errorf("sweep: %s: the spec's input_rate %s is not a rate above 0 Hz", name, showAny(root["input_rate"]))
 	}
 	return in, nil
 }

@@ -35,7 +35,7 @@ var (
 // renamed (interpChainKeys).
 func (c Chain) MarshalJSON() ([]byte, error) {
 	type plain Chain
-	b, err := json.Marshal(plain(c))
+	b, err := marshal(plain(c))
 	if err != nil || !c.interp {
 		return b, err
 	}
@@ -60,7 +60,7 @@ func (c *Chain) UnmarshalJSON(b []byte) error {
 // stage renamed (interpStageKeys).
 func (s Stage) MarshalJSON() ([]byte, error) {
 	type plain Stage
-	b, err := json.Marshal(plain(s))
+	b, err := marshal(plain(s))
 	if err != nil || !s.interp {
 		return b, err
 	}
@@ -79,6 +79,18 @@ func (s *Stage) UnmarshalJSON(b []byte) error {
 	}
 	s.interp = interp
 	return nil
+}
+
+// marshal is json.Marshal without the escaping of <, > and &, as Report.Marshal
+// writes the rest of report.json (a chain's notation holds " > ").
+func marshal(v any) ([]byte, error) {
+	var buf bytes.Buffer
+	enc := json.NewEncoder(&buf)
+	enc.SetEscapeHTML(false)
+	if err := enc.Encode(v); err != nil {
+		return nil, err
+	}
+	return bytes.TrimRight(buf.Bytes(), "\n"), nil
 }
 
 // renameKeys rewrites the JSON object b with each top-level key found in
