@@ -5,26 +5,53 @@ import (
 	"math"
 )
 
-// Run passes the real signal x (at the chain's input rate, zero state
-// before x[0]) through the chain as hardware would compute it: each FIR stage
-// as a polyphase decimator (only the retained outputs are computed, phase by
-// phase), each CIC as N integrators at its input rate and N combs of delay M
-// at its output rate. It returns len(x)/D output samples, where D is the
-// chain's decimation; output m is the sample whose newest input is x[m D].
+// Run passes the real signal x (at the rate entering the chain, zero state
+// before x[0]) through the chain as hardware would compute it.
+//
+// A decimation chain runs each FIR stage as a polyphase decimator (only the
+// retained outputs are computed, phase by phase) and each CIC as N
+// integrators at its input rate and N combs of delay M at its output rate.
+// It returns len(x)/D output samples, where D is the chain's decimation;
+// output m is the sample whose newest input is x[m D].
+//
+// An interpolation chain (Direction Interpolate) runs its stages in signal
+// order (SignalOrder), each raising the rate by its factor L_i. A FIR stage
+// is a polyphase interpolator: output n L_i + p is phase p's short filter,
+// taps h[p + L_i k], over the inputs x[n - k], so no product with a stuffed
+// zero is computed (nor with a zero tap: a half-band's centre phase passes
+// its input through). Its taps are multiplied by L_i, so that its DC gain is
+// sum h, about 1: the designed taps have DC gain 1 at the high rate, and
+// zero stuffing divides it by L_i. (This float run uses L_i exactly; the
+// integer data path of package fixed uses 2^floor(log2 L_i).) A CIC, whatever
+// its Interpolator flag and Form, is a CIC interpolator: N combs of delay M
+// at its input rate, R - 1 zeros after each comb output, N integrators at its
+// output rate, rescaled from its DC gain (RM)^N/R to 1. Run returns len(x) L
+// output samples, where L is the chain's interpolation; output m is at the
+// time of input m/L, its newest input x[floor(m/L)], with no delay added:
+// the first len(x) L samples of x stuffed with L - 1 zeros after every
+// sample and filtered at the high rate by the cascade's equivalent FIR (each
+// stage's taps times its factor, stuffed with zeros by the product of the
+// factors after it in signal order, all convolved).
 //
 // FIR arithmetic is float64. CIC arithmetic is exact two's-complement integer
 // arithmetic that wraps like the hardware registers: a float64 integrator
 // would grow without bound and lose the signal to rounding after a few
 // thousand samples. The CIC's input is scaled to the widest integer that
-// leaves room for its bit growth in 63 bits (after checking the block's peak),
-// so its quantisation lies hundreds of dB down; the output is rescaled to the
-// CIC's unit DC gain. A CIC whose growth leaves fewer than 24 bits of input
-// resolution is run as its equivalent FIR in float64 instead.
+// leaves room for its bit growth in 63 bits (after checking the block's peak;
+// the growth is ceil(N log2(R M)) for a decimator, ceil(log2((RM)^N/R)) for
+// an interpolator, whose output is bounded by its DC gain times the input's
+// peak), so its quantisation lies hundreds of dB down; the output is rescaled
+// to the CIC's unit DC gain. A CIC whose growth leaves fewer than 24 bits of
+// input resolution is run as its equivalent FIR (N boxcars of length R M) in
+// float64 instead, polyphase as above.
 //
 // Run panics on a FIR stage without taps (an estimate: Chain.Designed is
 // false) and on a stage that is not a CICStage or FIRStage value (a pointer
 // or nil), naming the stage.
 func Run(c *Chain, x []float64) []float64 {
+	if c.Direction == Interpolate {
+		return runInterpolation(c, x)
+	}
 	y := append([]float64(nil), x...)
 	for i, s := range c.Stages {
 		y = runStage(i, s, y)
@@ -32,8 +59,9 @@ func Run(c *Chain, x []float64) []float64 {
 	return y
 }
 
-// RunComplex is Run for an I/Q signal: the chain's real filters run on the
-// real and imaginary parts separately, as two real chains would.
+// RunComplex is Run for an I/Q signal, in either direction: the chain's real
+// filters run on the real and imaginary parts separately, as two real chains
+// would.
 func RunComplex(c *Chain, x []complex128) []complex128 {
 	re := make([]float64, len(x))
 	im := make([]float64, len(x))
