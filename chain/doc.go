@@ -219,7 +219,14 @@
 // Run and RunComplex run the real chain on a signal: polyphase FIR
 // decimators in float64, CICs as integrators and combs in wrapping integer
 // arithmetic (see Run for why), so tests can check the frequency analysis
-// against what the structure actually computes.
+// against what the structure actually computes. An interpolation chain runs
+// in signal order as polyphase FIR interpolators (each phase a short filter
+// over the input history, the taps times L) and CIC interpolators (combs,
+// zeros, integrators), checked against SciPy's upfirdn
+// (testdata/interp/gen_upfirdn.py). TestInterpolationAnalyzeBruteForce holds
+// Analyze's image rejection and ripple to the impulse response of the real
+// interpolating structure (never optimistic, within 0.01 dB) on 150 random
+// designed interpolation chains (1000 with STEPDOWN_LONG=1).
 //
 // # Interpolation
 //

@@ -554,7 +554,7 @@ func NewContext(ctx context.Context, command string, s *specfile.Spec, res *opti
 				return nil, err
 			}
 		}
-		r.Front[i].Resources = NewResources(&r.Front[i], s.Clock, s.Chain.OutputRate, paths)
+		r.Front[i].Resources = NewResources(&r.Front[i], s.Clock, s.Chain.ChannelRate(), paths)
 	}
 	if len(r.Front) > 0 && (r.Recommended < 0 || r.Recommended >= len(r.Front)) {
 		return nil, fmt.Errorf("report: recommended index %d outside the front of %d chains", r.Recommended, len(r.Front))

@@ -54,7 +54,9 @@ type StageResources struct {
 }
 
 // NewResources is c's bill of resources at a clock of clock Hz, for a
-// chain whose last stage delivers outRate samples per second and that runs
+// chain whose channel side (the output of a decimation chain, the input of
+// an interpolation chain, the rate its counts are per sample of) runs at
+// outRate samples per second and that runs
 // paths real data paths (2 for I/Q, which doubles every stage's data
 // memory, not its coefficients); nil without a clock.
 func NewResources(c *Chain, clock, outRate float64, paths int) *Resources {

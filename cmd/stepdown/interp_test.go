@@ -1,0 +1,99 @@
+package main
+
+import (
+	"math"
+	"os"
+	"path/filepath"
+	"strings"
+	"testing"
+)
+
+// TestPlanInterpolationEndToEnd plans the invented transmit spec (a
+// 2.5 MS/s I/Q channel up to a DAC at 320 MS/s, L = 128) and checks
+// report.json's interpolation fields, whose names outside scripts rely on,
+// the signal order of the stages and their rates, the table's wording, and
+// that check with the recommended notation gives the same figures.
+func TestPlanInterpolationEndToEnd(t *testing.T) {
+	dir := t.TempDir()
+	spec, err := os.ReadFile(filepath.Join("..", "..", "testdata", "specs", "transmit.toml"))
+	if err != nil {
+		t.Fatal(err)
+	}
+	// Four stages at most keeps the test short; the spec is otherwise the
+	// README's.
+	spec = append(spec, []byte("\n[search]\nmax_stages = 3\n")...)
+	if err := os.WriteFile(filepath.Join(dir, "tx.toml"), spec, 0o644); err != nil {
+		t.Fatal(err)
+	}
+	r := runBinary(t, dir, nil, "plan", "tx.toml", "--out", "out")
+	if r.code != 0 {
+		t.Fatalf("plan: exit %d: %s", r.code, r.stderr)
+	}
+	for _, want := range []string{"2.5 MHz -> 320 MHz (interpolation 128)", "mult/in", "adds/in", "in)"} {
+		if !strings.Contains(r.stdout, want) {
+			t.Errorf("the table lacks %q:\n%s", want, r.stdout)
+		}
+	}
+	if strings.Contains(r.stdout, "mult/out") || strings.Contains(r.stdout, "alias rejection") {
+		t.Errorf("the table speaks of outputs or aliases:\n%s", r.stdout)
+	}
+	rep := readReport(t, filepath.Join(dir, "out", "report.json"))
+	s := rep["spec"].(map[string]any)
+	if s["direction"] != "interpolate" || s["interpolation"] != 128.0 || s["decimation"] != 1.0 {
+		t.Errorf("spec: direction %v, interpolation %v, decimation %v", s["direction"], s["interpolation"], s["decimation"])
+	}
+	front := rep["front"].([]any)
+	rec := front[int(rep["recommended"].(float64))].(map[string]any)
+	for _, k := range []string{"image_rejection_db", "worst_image_hz", "passband_ripple_db", "multiplies_per_input", "adds_per_input"} {
+		if _, ok := rec[k]; !ok {
+			t.Errorf("the recommended chain lacks %q", k)
+		}
+	}
+	for _, k := range []string{"alias_rejection_db", "multiplies_per_output", "worst_alias_hz"} {
+		if _, ok := rec[k]; ok {
+			t.Errorf("the recommended chain has %q", k)
+		}
+	}
+	if v := rec["image_rejection_db"].(float64); v < 75-0.01 {
+		t.Errorf("image_rejection_db = %v, the target is 75 dB", v)
+	}
+	// Stages in signal order: the rates rise from 2.5 MHz to 320 MHz, each
+	// stage's output rate its interpolation times its input rate, and the
+	// CIC, if any, last.
+	stages := rec["stages"].([]any)
+	rate := 2.5e6
+	for i, x := range stages {
+		st := x.(map[string]any)
+		l, ok := st["interpolation"].(float64)
+		if !ok || st["decimation"] != nil {
+			t.Fatalf("stage %d: interpolation %v, decimation %v", i+1, st["interpolation"], st["decimation"])
+		}
+		in, out := st["input_rate_hz"].(float64), st["output_rate_hz"].(float64)
+		if math.Abs(in-rate) > 1e-6*rate || math.Abs(out-in*l) > 1e-6*out {
+			t.Errorf("stage %d: %v -> %v Hz by %v, after %v Hz", i+1, in, out, l, rate)
+		}
+		rate = out
+		if st["kind"] == "cic" && i != len(stages)-1 {
+			t.Errorf("stage %d is a CIC but not the last", i+1)
+		}
+		if st["kind"] != "cic" && len(st["coefficients"].([]any)) == 0 {
+			t.Errorf("stage %d has no coefficients", i+1)
+		}
+	}
+	if math.Abs(rate-320e6) > 1 {
+		t.Errorf("the last stage delivers %v Hz", rate)
+	}
+
+	// check with the notation plan printed gives the same figures.
+	c := runBinary(t, dir, nil, "check", "tx.toml", "--chain", rec["notation"].(string), "--out", "chk")
+	if c.code != 0 {
+		t.Fatalf("check: exit %d: %s", c.code, c.stderr)
+	}
+	crep := readReport(t, filepath.Join(dir, "chk", "report.json"))
+	got := crep["front"].([]any)[0].(map[string]any)
+	for _, k := range []string{"notation", "image_rejection_db", "passband_ripple_db", "multiplies_per_input", "memory_bits"} {
+		if got[k] != rec[k] {
+			t.Errorf("check %s = %v, plan %v", k, got[k], rec[k])
+		}
+	}
+}
