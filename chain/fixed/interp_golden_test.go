@@ -1,6 +1,7 @@
 package fixed
 
 import (
+	"context"
 	"math"
 	"math/rand/v2"
 	"path/filepath"
@@ -33,6 +34,7 @@ type interpGolden struct {
 			Shift      int     `json:"shift"`
 		} `json:"stages"`
 		Outputs [][]int64 `json:"outputs"`
+		Float   []float64 `json:"float_output"`
 	} `json:"cases"`
 }
 
@@ -44,7 +46,10 @@ type interpGolden struct {
 // shift, rounding, truncation and saturation rules in Python, from the
 // rules as the package doc states them. Plan must also give the script's
 // coefficients, shifts and widths (the CIC's from Hogenauer's
-// interpolator growth, computed there independently).
+// interpolator growth, computed there independently). RunCodes gives the
+// same codes, and its float chain the script's upfirdn with the float taps
+// (times 2^floor(log2 L)) and the CIC's scaled boxcars, within 1e-12 of
+// full scale.
 func TestInterpolationGoldenSciPy(t *testing.T) {
 	var g interpGolden
 	readJSON(t, filepath.Join("testdata", "interp_golden.json"), &g)
@@ -113,6 +118,21 @@ func TestInterpolationGoldenSciPy(t *testing.T) {
 				if got[i][j] != want[j] {
 					t.Fatalf("%s stage %d output %d: model %d, SciPy %d", gc.Name, i+1, j, got[i][j], want[j])
 				}
+			}
+		}
+		codes, fl, err := RunCodes(context.Background(), c, w, gc.Input)
+		if err != nil {
+			t.Fatalf("%s: %v", gc.Name, err)
+		}
+		if err := sameCodes(codes, gc.Outputs[len(gc.Outputs)-1]); err != nil {
+			t.Errorf("%s: RunCodes: %v", gc.Name, err)
+		}
+		if len(fl) != len(gc.Float) {
+			t.Fatalf("%s: %d float outputs, SciPy %d", gc.Name, len(fl), len(gc.Float))
+		}
+		for j := range fl {
+			if math.Abs(fl[j]-gc.Float[j]) > 1e-12 {
+				t.Fatalf("%s: float output %d = %.17g, SciPy %.17g", gc.Name, j, fl[j], gc.Float[j])
 			}
 		}
 	}

@@ -29,6 +29,11 @@ out here from the rules, not from the Go code:
 Outputs are the first L * len(x) samples of each stage (the model's R
 outputs per input sample; inputs before the first are zero).
 
+Each case also carries the float chain's output (RunCodes' float half, in
+fractions of full scale): the input codes over 2^(Bin-1), each FIR by
+upfirdn with its float taps h_int / 2^Frac times 2^floor(log2 L), each CIC
+by upfirdn with its boxcars times 2^-(W - Bin), nothing rounded.
+
 Run with Debian's /usr/bin/python3 (apt-get install python3-scipy); it
 writes interp_golden.json next to itself.
 """
@@ -119,7 +124,7 @@ def codes(n, bits, extremes=0):
     # Runs of full-scale codes of alternating sign, to reach the
     # accumulators' extremes and the saturation.
     for i in range(extremes):
-        x[n // 2 + i] = hi if (i // 2) % 2 == 0 else lo
+        x[n // 3 + i] = hi if (i // 2) % 2 == 0 else lo
     return x
 
 
@@ -131,39 +136,47 @@ def add_case(name, in_bits, out_bits, data_bits, coef_bits, nin, stages):
     case = {"name": name, "input_bits": in_bits, "output_bits": out_bits, "data_bits": data_bits,
             "coef_bits": coef_bits, "input": x, "stages": [], "outputs": []}
     cur, b = x, in_bits
+    fl = np.asarray(x, dtype=np.float64) / 2.0 ** (in_bits - 1)
     for k, st in enumerate(stages):
         bout = out_bits if k == len(stages) - 1 else data_bits
         if st[0] in ("fir", "halfband"):
             kind, h, l = st
             ints, frac = quantise(h, coef_bits)
             cur, s = fir_stage(cur, ints, frac, l, b, bout)
+            hf = np.asarray(ints, dtype=np.float64) * 2.0 ** (-frac + l.bit_length() - 1)
+            fl = signal.upfirdn(hf, fl, up=l)[: l * len(fl)]
             case["stages"].append({"kind": kind, "l": l, "frac": frac, "ints": ints,
                                    "input_bits": b, "output_bits": bout, "shift": s})
             b = bout
         else:
             _, n, m, r = st
             cur, full, ob = cic_stage(cur, n, m, r, b, bout)
+            hb = np.ones(1)
+            for _ in range(n):
+                hb = np.convolve(hb, np.ones(r * m))
+            fl = signal.upfirdn(hb * 2.0 ** -(full - b), fl, up=r)[: r * len(fl)]
             case["stages"].append({"kind": "cic", "l": r, "n": n, "m": m,
                                    "input_bits": b, "output_bits": ob, "full_bits": full,
                                    "shift": full - ob})
             b = ob
         case["outputs"].append(cur)
+    case["float_output"] = [float(v) for v in fl]
     cases.append(case)
 
 
-add_case("fir3", 14, 18, 18, 16, 200, [("fir", lowpass(33, 3, 8.0), 3)])
-add_case("fir4", 16, 16, 16, 18, 200, [("fir", lowpass(48, 4, 9.0), 4)])
-add_case("halfband", 16, 20, 20, 16, 200, [("halfband", halfband(6, 8.0), 2)])
+add_case("fir3", 14, 18, 18, 16, 120, [("fir", lowpass(33, 3, 8.0), 3)])
+add_case("fir4", 16, 16, 16, 18, 100, [("fir", lowpass(48, 4, 9.0), 4)])
+add_case("halfband", 16, 20, 20, 16, 120, [("halfband", halfband(6, 8.0), 2)])
 # Overshoot past full scale: a sharp L = 5 lowpass on full-scale runs.
-add_case("fir5 saturating", 12, 12, 12, 14, 160, [("fir", lowpass(45, 5, 4.0), 5)])
+add_case("fir5 saturating", 12, 12, 12, 14, 100, [("fir", lowpass(45, 5, 4.0), 5)])
 # Few coefficient bits on a narrow input into a wide output: a left shift.
-add_case("fir2 left shift", 8, 22, 22, 6, 160, [("fir", lowpass(11, 2, 5.0), 2)])
+add_case("fir2 left shift", 8, 22, 22, 6, 120, [("fir", lowpass(11, 2, 5.0), 2)])
 # A two-bit output shift: many sums end in exactly half an output LSB, so
 # the rounding's direction at a tie (half up) shows.
-add_case("fir2 ties", 8, 10, 10, 6, 160, [("fir", lowpass(11, 2, 5.0), 2)])
-add_case("cic3m1r8", 12, 14, 14, 16, 150, [("cic", 3, 1, 8)])
-add_case("cic4m2r5", 10, 24, 24, 16, 120, [("cic", 4, 2, 5)])
-add_case("fir3 > hb > cic3m1r8", 12, 16, 16, 16, 60,
+add_case("fir2 ties", 8, 10, 10, 6, 120, [("fir", lowpass(11, 2, 5.0), 2)])
+add_case("cic3m1r8", 12, 14, 14, 16, 80, [("cic", 3, 1, 8)])
+add_case("cic4m2r5", 10, 24, 24, 16, 80, [("cic", 4, 2, 5)])
+add_case("fir3 > hb > cic3m1r8", 12, 16, 16, 16, 48,
          [("fir", lowpass(27, 3, 7.0), 3), ("halfband", halfband(4, 7.0), 2), ("cic", 3, 1, 8)])
 
 here = os.path.dirname(os.path.abspath(__file__))
