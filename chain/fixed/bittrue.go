@@ -13,7 +13,7 @@ import (
 
 // Tone is one sinusoid of a test signal.
 type Tone struct {
-	Freq  float64 // Hz at the chain's input
+	Freq  float64 // Hz at the chain's input (channel side for an interpolation cascade)
 	Level float64 // amplitude in dB relative to full scale (dBFS), <= 0
 }
 
@@ -23,7 +23,9 @@ type Signal struct {
 	// or lower so that the tone plus four times the noise RMS stays within
 	// the input word's largest code (half that code when the word is too
 	// narrow for a tone of two LSBs so; the SNR is then marked, see
-	// BitTrueResult.SNRValid).
+	// BitTrueResult.SNRValid). An interpolation cascade's default tones are
+	// lowered further by the largest DC gain from its input to a stage's
+	// output, when that is above 1 (see the package doc, Interpolation).
 	// Each frequency is moved to the nearest whole number of cycles in the
 	// measurement window at the output rate (coherent sampling).
 	Tones []Tone
@@ -36,11 +38,17 @@ type Signal struct {
 	AliasLevel float64
 	// AliasHz is the input frequency of the alias test tone; zero means the
 	// worst alias of the quantised cascade, from chain.Analyze (Evaluate
-	// passes the one PlanChain measured).
+	// passes the one PlanChain measured). For an interpolation cascade it
+	// is the image frequency g at the output rate, and the test tone goes in
+	// at g folded into [0, input rate/2].
 	AliasHz float64
 	// Samples is the number of output samples measured after the filters'
 	// transients; zero means 2048, halved (down to 256) while the run would
-	// need more than 4 Mi input samples.
+	// need more than 4 Mi input samples. For an interpolation cascade the
+	// window spans whole input samples: zero means 2048 of them (2048 L
+	// output samples), halved (down to 256) while the run would need more
+	// than 4 Mi output samples; a given Samples is rounded up to whole input
+	// samples, at least 64 of them.
 	Samples int
 	// Seed seeds the noise and the tones' phases (PCG); zero means 1.
 	Seed uint64
@@ -88,6 +96,14 @@ type BitTrueResult struct {
 	// cascade, moved to a whole number of output cycles), measured at
 	// AliasOutHz by projection over the window. Rejections are positive dB
 	// relative to the DC gain.
+	//
+	// For an interpolation cascade it is the image test (see the package
+	// doc, Interpolation): AliasHz is the image g at the output, AliasOutHz
+	// the tone f at the input whose image it is; AliasRejectionDB,
+	// AliasFloatRunDB and AliasResponseDB are 20 log10 of the output at f
+	// over the output at g (relative to the gain at f, not at DC);
+	// WorstAliasResponseDB is chain.Analyze's image rejection, relative to
+	// DC; AliasNoiseDB is relative to the output at f.
 	AliasHz, AliasOutHz  float64
 	AliasRejectionDB     float64 // bit-true, measured
 	AliasFloatRunDB      float64 // float chain, measured the same way
@@ -113,7 +129,7 @@ type BitTrueResult struct {
 
 	Samples      int // output samples measured
 	AliasSamples int // output samples of the alias measurement (up to 16 x Samples, see AliasValid)
-	InputSamples int // input samples run
+	InputSamples int // input samples run (the first run)
 	Skip         int // output samples skipped for transients
 }
 
@@ -127,7 +143,9 @@ const (
 )
 
 // BitTrue runs the cascade in integer arithmetic at the widths w (from Plan)
-// and in float64 arithmetic, on sig and on an alias tone, and compares them.
+// and in float64 arithmetic, on sig and on an alias tone (an image tone for
+// an interpolation cascade: see the package doc, Interpolation), and
+// compares them.
 // Integer conventions are those of Plan: the CIC wraps in two's complement
 // at its pruned widths (the modular arithmetic is exact for the final
 // output), FIR products are exact, rounding and truncation happen only at the
@@ -136,9 +154,10 @@ const (
 // A complex chain runs one of its two identical real paths.
 //
 // The run streams: the test signal is generated and both chains run a block
-// of blockSamples input samples at a time, and only the filters' state and
-// the measured output window are kept, so its memory does not grow with
-// the decimation or the window.
+// of blockSamples input samples at a time (an interpolation cascade's
+// blocks make about as many output samples), and only the filters' state
+// and the measured output window are kept, so its memory does not grow
+// with the decimation or the window.
 func BitTrue(c Cascade, w *Widths, sig Signal) (BitTrueResult, error) {
 	return BitTrueContext(context.Background(), c, w, sig)
 }

@@ -132,8 +132,12 @@ type Settings struct {
 	// quantised, so that the chain's DC gain is 1 within the rounding of
 	// those taps. The DC gain before correction is the product of every other
 	// stage's planned gain (StageWidths.Gain) and the corrected stage's float
-	// tap sum. A chain of CICs alone is left uncorrected. False (the zero
-	// value): no correction.
+	// tap sum (times 2^floor(log2 L) / L when it interpolates). A chain of
+	// CICs alone is left uncorrected. An interpolation cascade corrects the
+	// stage its transpose would: the first FIR that is not a half-band in
+	// signal order (the CIC droop's compensator), else the first half-band;
+	// see the package doc, Interpolation, for the headroom that takes.
+	// False (the zero value): no correction.
 	UnityGain bool
 	// NativeA x NativeB is the hardware multiplier's native size (e.g. 18 x 27);
 	// zero means no hardware multiplier figure.
@@ -231,7 +235,9 @@ type Widths struct {
 
 // Plan chooses every word width of the cascade: quantised coefficients per
 // FIR stage, accumulator and output widths, CIC registers by Hogenauer's
-// pruning, and the cost that follows from them.
+// pruning, and the cost that follows from them. An interpolation cascade
+// follows the package doc's Interpolation section instead where it
+// differs.
 //
 // Data path conventions. Every data word is a two's-complement fraction of
 // full scale: a b-bit word w stands for w / 2^(b-1). The input is the ADC
