@@ -466,7 +466,7 @@ func interpGain(st Stage) float64 {
 	if !st.Interpolate || st.CIC {
 		return 1
 	}
-	return math.Ldexp(1, bits.Len(uint(st.R))-1) / float64(st.R)
+	return math.Ldexp(1, log2Floor(st.R)) / float64(st.R)
 }
 
 func tapSum(h []float64) float64 {
