@@ -5,6 +5,7 @@ import (
 	"fmt"
 	"math"
 	"math/rand/v2"
+	"slices"
 	"strings"
 
 	"github.com/stepdown-dsp/stepdown/chain"
@@ -12,7 +13,7 @@ import (
 
 // Tone is one sinusoid of a test signal.
 type Tone struct {
-	Freq  float64 // Hz at the chain's input
+	Freq  float64 // Hz at the chain's input (channel side for an interpolation cascade)
 	Level float64 // amplitude in dB relative to full scale (dBFS), <= 0
 }
 
@@ -22,7 +23,9 @@ type Signal struct {
 	// or lower so that the tone plus four times the noise RMS stays within
 	// the input word's largest code (half that code when the word is too
 	// narrow for a tone of two LSBs so; the SNR is then marked, see
-	// BitTrueResult.SNRValid).
+	// BitTrueResult.SNRValid). An interpolation cascade's default tones are
+	// lowered further by the largest DC gain from its input to a stage's
+	// output, when that is above 1 (see the package doc, Interpolation).
 	// Each frequency is moved to the nearest whole number of cycles in the
 	// measurement window at the output rate (coherent sampling).
 	Tones []Tone
@@ -35,11 +38,17 @@ type Signal struct {
 	AliasLevel float64
 	// AliasHz is the input frequency of the alias test tone; zero means the
 	// worst alias of the quantised cascade, from chain.Analyze (Evaluate
-	// passes the one PlanChain measured).
+	// passes the one PlanChain measured). For an interpolation cascade it
+	// is the image frequency g at the output rate, and the test tone goes in
+	// at g folded into [0, input rate/2].
 	AliasHz float64
 	// Samples is the number of output samples measured after the filters'
 	// transients; zero means 2048, halved (down to 256) while the run would
-	// need more than 4 Mi input samples.
+	// need more than 4 Mi input samples. For an interpolation cascade the
+	// window spans whole input samples: zero means 2048 of them (2048 L
+	// output samples), halved (down to 256) while the run would need more
+	// than 4 Mi output samples; a given Samples is rounded up to whole input
+	// samples, at least 64 of them.
 	Samples int
 	// Seed seeds the noise and the tones' phases (PCG); zero means 1.
 	Seed uint64
@@ -87,6 +96,14 @@ type BitTrueResult struct {
 	// cascade, moved to a whole number of output cycles), measured at
 	// AliasOutHz by projection over the window. Rejections are positive dB
 	// relative to the DC gain.
+	//
+	// For an interpolation cascade it is the image test (see the package
+	// doc, Interpolation): AliasHz is the image g at the output, AliasOutHz
+	// the tone f at the input whose image it is; AliasRejectionDB,
+	// AliasFloatRunDB and AliasResponseDB are 20 log10 of the output at f
+	// over the output at g (relative to the gain at f, not at DC);
+	// WorstAliasResponseDB is chain.Analyze's image rejection, relative to
+	// DC; AliasNoiseDB is relative to the output at f.
 	AliasHz, AliasOutHz  float64
 	AliasRejectionDB     float64 // bit-true, measured
 	AliasFloatRunDB      float64 // float chain, measured the same way
@@ -112,7 +129,7 @@ type BitTrueResult struct {
 
 	Samples      int // output samples measured
 	AliasSamples int // output samples of the alias measurement (up to 16 x Samples, see AliasValid)
-	InputSamples int // input samples run
+	InputSamples int // input samples run (the first run)
 	Skip         int // output samples skipped for transients
 }
 
@@ -126,7 +143,9 @@ const (
 )
 
 // BitTrue runs the cascade in integer arithmetic at the widths w (from Plan)
-// and in float64 arithmetic, on sig and on an alias tone, and compares them.
+// and in float64 arithmetic, on sig and on an alias tone (an image tone for
+// an interpolation cascade: see the package doc, Interpolation), and
+// compares them.
 // Integer conventions are those of Plan: the CIC wraps in two's complement
 // at its pruned widths (the modular arithmetic is exact for the final
 // output), FIR products are exact, rounding and truncation happen only at the
@@ -135,9 +154,10 @@ const (
 // A complex chain runs one of its two identical real paths.
 //
 // The run streams: the test signal is generated and both chains run a block
-// of blockSamples input samples at a time, and only the filters' state and
-// the measured output window are kept, so its memory does not grow with
-// the decimation or the window.
+// of blockSamples input samples at a time (an interpolation cascade's
+// blocks make about as many output samples), and only the filters' state
+// and the measured output window are kept, so its memory does not grow
+// with the decimation or the window.
 func BitTrue(c Cascade, w *Widths, sig Signal) (BitTrueResult, error) {
 	return BitTrueContext(context.Background(), c, w, sig)
 }
@@ -148,6 +168,12 @@ func BitTrue(c Cascade, w *Widths, sig Signal) (BitTrueResult, error) {
 func BitTrueContext(ctx context.Context, c Cascade, w *Widths, sig Signal) (BitTrueResult, error) {
 	if w == nil || len(w.Stages) != len(c.Stages) {
 		return BitTrueResult{}, fmt.Errorf("fixed: BitTrue needs the widths Plan returned for this cascade")
+	}
+	if err := c.checkDirection(); err != nil {
+		return BitTrueResult{}, err
+	}
+	if c.Interpolate {
+		return bitTrueInterp(ctx, c, w, sig)
 	}
 	fp, fa := c.Passband, c.Protected
 	if fa == 0 {
@@ -168,52 +194,13 @@ func BitTrueContext(ctx context.Context, c Cascade, w *Widths, sig Signal) (BitT
 	if sig.Samples < 64 {
 		return BitTrueResult{}, fmt.Errorf("fixed: signal Samples = %d: must be >= 64", sig.Samples)
 	}
-	if sig.Seed == 0 {
-		sig.Seed = 1
+	sd, err := sig.fill(w.InputBits, fp, fk, c.InputRate, 0)
+	if err != nil {
+		return BitTrueResult{}, err
 	}
-	noise := math.Ldexp(1, -(w.InputBits - 1))
-	if sig.NoiseDBFS != 0 {
-		noise = math.Pow(10, sig.NoiseDBFS/20)
-	}
-	// The default levels: -1 dBFS, lowered so that the tone plus four times
-	// the noise RMS stays within the largest code; a word too narrow to
-	// carry a tone of two LSBs so is run at half the largest code, and its
-	// SNR is marked as not meaningful.
-	lsb := math.Ldexp(1, -(w.InputBits - 1))
-	level, fits := -1.0, true
-	if room := 1 - lsb - 4*noise; room < 2*lsb {
-		level, fits = 20*math.Log10((1-lsb)/2), false
-	} else {
-		level = math.Min(level, 20*math.Log10(room))
-	}
-	if sig.AliasLevel == 0 {
-		sig.AliasLevel = level
-	}
-	defaultTones := sig.Tones == nil
-	if defaultTones {
-		sig.Tones = []Tone{{Freq: 0.4 * fp, Level: level}}
-	}
-	for i, t := range sig.Tones {
-		if !(t.Level <= 0) || !(t.Freq >= 0 && t.Freq < fk/2) {
-			return BitTrueResult{}, fmt.Errorf("fixed: signal tone %d at %g Hz, %g dBFS: the level must be <= 0 dBFS and the frequency in [0, %g Hz)", i, t.Freq, t.Level, fk/2)
-		}
-	}
-	if !(sig.AliasHz >= 0 && sig.AliasHz <= c.InputRate/2) {
-		return BitTrueResult{}, fmt.Errorf("fixed: signal AliasHz = %g: must lie in [0, %g Hz] (zero: search)", sig.AliasHz, c.InputRate/2)
-	}
-	if sig.AliasLevel > 0 || math.IsNaN(sig.AliasLevel) || !(noise < 1) {
-		return BitTrueResult{}, fmt.Errorf("fixed: signal AliasLevel = %g dBFS, NoiseDBFS = %g: levels must be below 0 dBFS", sig.AliasLevel, sig.NoiseDBFS)
-	}
-	for i, sw := range w.Stages {
-		if sw.CIC && sw.Pruning.FullBits > cicModelBits(&sw) {
-			return BitTrueResult{}, fmt.Errorf("fixed: stage %d: the CIC's %d-bit registers are beyond the bit-true run's %d bits", i+1, sw.Pruning.FullBits, cicModelBits(&sw))
-		}
-		// The float model runs a CIC as its equivalent filter of
-		// N (RM - 1) + 1 taps, with as long a history: bounded so that
-		// the run stays within memory.
-		if st := c.Stages[i]; st.CIC && st.Length() > maxCICFloatTaps {
-			return BitTrueResult{}, fmt.Errorf("fixed: stage %d: the CIC's float model would need %d taps, beyond the bit-true run's %d", i+1, st.Length(), maxCICFloatTaps)
-		}
+	noise, fits, defaultTones := sd.noise, sd.fits, sd.defaultTones
+	if err := checkCICRun(c, w); err != nil {
+		return BitTrueResult{}, err
 	}
 	// Transient: the cascade's impulse response length in output samples.
 	span, p := 1, 1
@@ -343,6 +330,78 @@ func BitTrueContext(ctx context.Context, c Cascade, w *Widths, sig Signal) (BitT
 		}
 	}
 	return res, nil
+}
+
+// signalDefaults are what Signal.fill derived: the noise RMS (fraction of
+// full scale), whether the input word carries the default tone plus its
+// noise, and whether the tones are the default ones.
+type signalDefaults struct {
+	noise              float64
+	fits, defaultTones bool
+}
+
+// fill sets sig's zero fields to their defaults for an inBits-bit input,
+// passband edge fp, channel rate fk and high rate high, and checks the
+// tones (in [0, fk/2)), AliasHz (in [0, high/2]) and the levels.
+//
+// headroomDB lowers the default levels further (an interpolation cascade's
+// largest gain from its input to a stage's output, when above 1).
+func (sig *Signal) fill(inBits int, fp, fk, high, headroomDB float64) (signalDefaults, error) {
+	if sig.Seed == 0 {
+		sig.Seed = 1
+	}
+	noise := math.Ldexp(1, -(inBits - 1))
+	if sig.NoiseDBFS != 0 {
+		noise = math.Pow(10, sig.NoiseDBFS/20)
+	}
+	// The default levels: -1 dBFS, lowered so that the tone plus four times
+	// the noise RMS stays within the largest code; a word too narrow to
+	// carry a tone of two LSBs so is run at half the largest code, and its
+	// SNR is marked as not meaningful.
+	lsb := math.Ldexp(1, -(inBits - 1))
+	level, fits := -1.0, true
+	if room := 1 - lsb - 4*noise; room < 2*lsb {
+		level, fits = 20*math.Log10((1-lsb)/2), false
+	} else {
+		level = math.Min(level, 20*math.Log10(room))
+	}
+	level -= headroomDB
+	if sig.AliasLevel == 0 {
+		sig.AliasLevel = level
+	}
+	defaultTones := sig.Tones == nil
+	if defaultTones {
+		sig.Tones = []Tone{{Freq: 0.4 * fp, Level: level}}
+	}
+	for i, t := range sig.Tones {
+		if !(t.Level <= 0) || !(t.Freq >= 0 && t.Freq < fk/2) {
+			return signalDefaults{}, fmt.Errorf("fixed: signal tone %d at %g Hz, %g dBFS: the level must be <= 0 dBFS and the frequency in [0, %g Hz)", i, t.Freq, t.Level, fk/2)
+		}
+	}
+	if !(sig.AliasHz >= 0 && sig.AliasHz <= high/2) {
+		return signalDefaults{}, fmt.Errorf("fixed: signal AliasHz = %g: must lie in [0, %g Hz] (zero: search)", sig.AliasHz, high/2)
+	}
+	if sig.AliasLevel > 0 || math.IsNaN(sig.AliasLevel) || !(noise < 1) {
+		return signalDefaults{}, fmt.Errorf("fixed: signal AliasLevel = %g dBFS, NoiseDBFS = %g: levels must be below 0 dBFS", sig.AliasLevel, sig.NoiseDBFS)
+	}
+	return signalDefaults{noise: noise, fits: fits, defaultTones: defaultTones}, nil
+}
+
+// checkCICRun refuses a cascade whose CIC registers are wider than the
+// integer model runs, or whose CIC float model would be too long.
+func checkCICRun(c Cascade, w *Widths) error {
+	for i, sw := range w.Stages {
+		if sw.CIC && cicModelWidth(&sw) > cicModelBits(&sw) {
+			return fmt.Errorf("fixed: stage %d: the CIC's %d-bit registers are beyond the bit-true run's %d bits", i+1, cicModelWidth(&sw), cicModelBits(&sw))
+		}
+		// The float model runs a CIC as its equivalent filter of
+		// N (RM - 1) + 1 taps, with as long a history: bounded so that
+		// the run stays within memory.
+		if st := c.Stages[i]; st.CIC && st.Length() > maxCICFloatTaps {
+			return fmt.Errorf("fixed: stage %d: the CIC's float model would need %d taps, beyond the bit-true run's %d", i+1, st.Length(), maxCICFloatTaps)
+		}
+	}
+	return nil
 }
 
 // snrNote says why the bit-true SNR is not meaningful, or "" when it is: the
@@ -509,15 +568,28 @@ const blockSamples = 1 << 15
 type chainState struct {
 	bits    int
 	ints    []intFilter
-	floats  []*firFloatState
+	floats  []floatFilter
 	ib      [][]int64   // per stage, its output block
 	fb      [][]float64 // likewise for the float chain
 	obits   int         // output word
 	inErr   float64     // sum of squared input quantisation errors
 	inPow   float64     // sum of squared input samples
 	clipped int
-	n       int // input samples run
+	n       int   // input samples run
+	outs    []int // per stage, its output samples so far
 	xi      []int64
+}
+
+// saturations returns per stage how many of its outputs saturated (0 for
+// a stage that does not count them).
+func (cs *chainState) saturations() []int {
+	sat := make([]int, len(cs.ints))
+	for i, f := range cs.ints {
+		if s, ok := f.(interface{ saturated() int }); ok {
+			sat[i] = s.saturated()
+		}
+	}
+	return sat
 }
 
 // intFilter is one stage of the integer chain.
@@ -526,20 +598,40 @@ type intFilter interface {
 	run(x, out []int64) []int64
 }
 
+// floatFilter is one stage of the float chain.
+type floatFilter interface {
+	// run appends to out the outputs of the input block x and returns out.
+	run(x, out []float64) []float64
+}
+
 func newChainState(c Cascade, w *Widths) *chainState {
 	cs := &chainState{bits: w.InputBits, obits: w.Stages[len(w.Stages)-1].OutputBits}
 	for i, st := range c.Stages {
 		sw := &w.Stages[i]
-		if st.CIC {
+		switch {
+		case st.CIC && st.Interpolate:
+			cs.ints = append(cs.ints, newCICInterpFilter(sw.CICInterp))
+			cs.floats = append(cs.floats, newFIRInterpFloat(cicTaps(st.N, st.R*st.M, cicFloatScale(sw)), st.R))
+		case st.CIC:
 			cs.ints = append(cs.ints, newCICInt(sw))
-			cs.floats = append(cs.floats, newFIRFloat(cicTaps(st.N, st.R*st.M, math.Ldexp(1, -(sw.Pruning.FullBits-sw.Pruning.InputBits))), st.R))
-		} else {
+			cs.floats = append(cs.floats, newFIRFloat(cicTaps(st.N, st.R*st.M, cicFloatScale(sw)), st.R))
+		case st.Interpolate:
+			cs.ints = append(cs.ints, newFIRInterpInt(sw.Coefficients.Ints, st.R, sw.OutputShift, sw.OutputBits))
+			// The data path's gain 2^floor(log2 R) on the taps (see
+			// interpAccumulator): exact, a power of two.
+			h := slices.Clone(sw.floatTaps(st))
+			for k := range h {
+				h[k] = math.Ldexp(h[k], log2Floor(st.R))
+			}
+			cs.floats = append(cs.floats, newFIRInterpFloat(h, st.R))
+		default:
 			cs.ints = append(cs.ints, newFIRInt(sw.Coefficients.Ints, st.R, sw.OutputShift, sw.OutputBits))
 			cs.floats = append(cs.floats, newFIRFloat(sw.floatTaps(st), st.R))
 		}
 	}
 	cs.ib = make([][]int64, len(c.Stages))
 	cs.fb = make([][]float64, len(c.Stages))
+	cs.outs = make([]int, len(c.Stages))
 	return cs
 }
 
@@ -564,6 +656,7 @@ func (cs *chainState) run(x []float64) (yi, yf []float64) {
 		cs.ib[i] = cs.ints[i].run(cur, cs.ib[i][:0])
 		cs.fb[i] = cs.floats[i].run(fcur, cs.fb[i][:0])
 		cur, fcur = cs.ib[i], cs.fb[i]
+		cs.outs[i] += len(cur)
 	}
 	yi = make([]float64, 0, len(cur))
 	olsb := math.Ldexp(1, -(cs.obits - 1))
@@ -581,25 +674,47 @@ func (cs *chainState) run(x []float64) (yi, yf []float64) {
 // clipped input samples. Only a block, the filters' state and the window
 // are held.
 func stream(ctx context.Context, c Cascade, w *Widths, nin, skip, win int, gen func(x []float64, n0 int)) (yi, yf []float64, inPow, inErr float64, clipped int, err error) {
-	cs := newChainState(c, w)
-	x := make([]float64, min(blockSamples, nin))
 	yi, yf = make([]float64, 0, win), make([]float64, 0, win)
+	inPow, inErr, clipped, err = streamTo(ctx, newChainState(c, w), c, nin, skip, win, gen, func(bi, bf []float64, _ int) {
+		yi, yf = append(yi, bi...), append(yf, bf...)
+	})
+	if err != nil {
+		return nil, nil, 0, 0, 0, err
+	}
+	return yi, yf, inPow, inErr, clipped, nil
+}
+
+// streamTo is stream on the chains cs (of c, in their reset state) handing
+// the window to sink as it is made instead of holding it: sink(yi, yf, j)
+// receives the window's samples j, j+1, ... of both chains (valid during
+// the call), in order.
+func streamTo(ctx context.Context, cs *chainState, c Cascade, nin, skip, win int, gen func(x []float64, n0 int), sink func(yi, yf []float64, j int)) (inPow, inErr float64, clipped int, err error) {
+	x := make([]float64, min(blockLen(c), nin))
 	out := 0 // output samples produced so far
 	for n0 := 0; n0 < nin; n0 += len(x) {
 		if err := ctx.Err(); err != nil {
-			return nil, nil, 0, 0, 0, fmt.Errorf("fixed: bit-true run stopped: %w", err)
+			return 0, 0, 0, fmt.Errorf("fixed: bit-true run stopped: %w", err)
 		}
 		blk := x[:min(len(x), nin-n0)]
 		gen(blk, n0)
 		bi, bf := cs.run(blk)
-		for k := range bi {
-			if j := out + k; j >= skip && j < skip+win {
-				yi, yf = append(yi, bi[k]), append(yf, bf[k])
-			}
+		lo, hi := max(0, skip-out), min(len(bi), skip+win-out)
+		if lo < hi {
+			sink(bi[lo:hi], bf[lo:hi], out+lo-skip)
 		}
 		out += len(bi)
 	}
-	return yi, yf, cs.inPow / float64(nin), cs.inErr / float64(nin), cs.clipped, nil
+	return cs.inPow / float64(nin), cs.inErr / float64(nin), cs.clipped, nil
+}
+
+// blockLen is the number of input samples a run passes through the chains
+// at a time: blockSamples, or for an interpolation cascade as many as make
+// about blockSamples output samples (at least one).
+func blockLen(c Cascade) int {
+	if c.Interpolate {
+		return max(1, blockSamples/c.Ratio())
+	}
+	return blockSamples
 }
 
 // runBoth runs the integer and the float chain on the whole of x (fractions
@@ -607,13 +722,13 @@ func stream(ctx context.Context, c Cascade, w *Widths, nin, skip, win int, gen f
 // mean square error of the quantised input and the number of clipped input
 // samples (stream over a signal held in memory, for tests).
 func runBoth(c Cascade, w *Widths, x []float64) (yi, yf []float64, inErr float64, clipped int) {
-	d := 1
-	for _, st := range c.Stages {
-		d *= st.R
-	}
 	nout := len(x)
 	for _, st := range c.Stages {
-		nout = (nout + st.R - 1) / st.R
+		if c.Interpolate {
+			nout *= st.R
+		} else {
+			nout = (nout + st.R - 1) / st.R
+		}
 	}
 	yi, yf, _, inErr, clipped, _ = stream(context.Background(), c, w, len(x), 0, nout, func(b []float64, n0 int) {
 		copy(b, x[n0:])

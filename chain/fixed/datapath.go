@@ -9,13 +9,22 @@ import (
 	"github.com/stepdown-dsp/stepdown/chain/remez"
 )
 
-// Stage is one decimating stage in the terms the word-length planner needs.
+// Stage is one stage in the terms the word-length planner needs: a
+// decimating stage, or an interpolating one when Interpolate is set.
 type Stage struct {
 	// CIC marks a CIC stage of order N and differential delay M; otherwise the
 	// stage is an FIR (half-band when HalfBand is set) with taps Taps.
 	CIC  bool
 	N, M int
-	R    int // decimation factor
+	// R is the stage's factor: its decimation, or its interpolation L when
+	// Interpolate is set.
+	R int
+	// Interpolate marks an interpolating stage: it raises the rate by R
+	// (zero-stuffing, then its filter at the higher rate; a CIC: combs at
+	// its input rate, integrators at its output rate). It must equal the
+	// Cascade's Interpolate; Plan refuses a cascade that mixes directions.
+	// Its Taps and Bands are the transpose's, at its output (high) rate.
+	Interpolate bool
 	// NonRecursive marks a CIC built non-recursively (chain.NonRecursive:
 	// M = 1, R = 2^k, k sub-stages (1 + z^-1)^N decimating by 2, full
 	// precision); false is the recursive CIC.
@@ -27,12 +36,14 @@ type Stage struct {
 	// zeros kept, centre an ordinary coefficient (set by scaledStage).
 	scaledHalfBand bool
 	// Bands are what the quantised FIR response must meet (each MaxError set),
-	// in Hz at the stage's input rate.
+	// in Hz at the rate the taps run at: the stage's input rate, or its
+	// output rate when it interpolates.
 	Bands []remez.Band
 }
 
-// Length is the stage's impulse response length at its input rate: its
-// taps, or N (RM - 1) + 1 for a CIC (N boxcars of RM samples).
+// Length is the stage's impulse response length at its high rate (the
+// input rate of a decimating stage, the output rate of an interpolating
+// one): its taps, or N (RM - 1) + 1 for a CIC (N boxcars of RM samples).
 func (st Stage) Length() int {
 	if st.CIC {
 		return st.N*(st.R*st.M-1) + 1
@@ -40,14 +51,61 @@ func (st Stage) Length() int {
 	return len(st.Taps)
 }
 
-// Cascade is a chain of stages from InputRate (Hz).
+// Cascade is a chain of stages from InputRate (Hz), listed in the order
+// the signal passes them.
+//
+// A decimation cascade (Interpolate false, the zero value) runs from the
+// high rate down; an interpolation cascade (Interpolate true) from the
+// channel rate up: InputRate is then the channel rate, Stages[0] takes the
+// input and every stage (each with Stage.Interpolate set) raises the rate
+// by its R, so the output rate is InputRate times the product of the R.
 type Cascade struct {
+	// InputRate is the rate of the samples entering Stages[0].
 	InputRate float64
 	Complex   bool // I/Q: two identical real data paths
-	Stages    []Stage
+	// Interpolate marks an interpolation cascade (see Cascade).
+	Interpolate bool
+	Stages      []Stage
 	// Passband (fp) and Protected (fa, zero means Passband) edges in Hz, used
-	// by the bit-true run for its test tones and alias bands.
+	// by the bit-true run for its test tones and alias (image) bands. They
+	// are on the channel side: the output of a decimation cascade, the
+	// input of an interpolation cascade.
 	Passband, Protected float64
+}
+
+// Ratio returns the product of the stages' factors: the cascade's
+// decimation, or its interpolation.
+func (c Cascade) Ratio() int {
+	d := 1
+	for _, st := range c.Stages {
+		d *= st.R
+	}
+	return d
+}
+
+// Rates returns the rate at each stage boundary in signal order:
+// Rates()[i] enters Stages[i], Rates()[i+1] leaves it (divided by its R
+// for a decimation cascade, multiplied for an interpolation cascade).
+func (c Cascade) Rates() []float64 {
+	r := make([]float64, len(c.Stages)+1)
+	r[0] = c.InputRate
+	for i, st := range c.Stages {
+		if c.Interpolate {
+			r[i+1] = r[i] * float64(st.R)
+		} else {
+			r[i+1] = r[i] / float64(st.R)
+		}
+	}
+	return r
+}
+
+// ChannelRate returns the rate of the channel side: the output rate of a
+// decimation cascade, the input rate of an interpolation cascade.
+func (c Cascade) ChannelRate() float64 {
+	if c.Interpolate {
+		return c.InputRate
+	}
+	return c.InputRate / float64(c.Ratio())
 }
 
 // Words are the word widths the spec fixes.
@@ -74,8 +132,12 @@ type Settings struct {
 	// quantised, so that the chain's DC gain is 1 within the rounding of
 	// those taps. The DC gain before correction is the product of every other
 	// stage's planned gain (StageWidths.Gain) and the corrected stage's float
-	// tap sum. A chain of CICs alone is left uncorrected. False (the zero
-	// value): no correction.
+	// tap sum (times 2^floor(log2 L) / L when it interpolates). A chain of
+	// CICs alone is left uncorrected. An interpolation cascade corrects the
+	// stage its transpose would: the first FIR that is not a half-band in
+	// signal order (the CIC droop's compensator), else the first half-band;
+	// see the package doc, Interpolation, for the headroom that takes.
+	// False (the zero value): no correction.
 	UnityGain bool
 	// NativeA x NativeB is the hardware multiplier's native size (e.g. 18 x 27);
 	// zero means no hardware multiplier figure.
@@ -86,10 +148,15 @@ type Settings struct {
 
 // StageWidths is the fixed-point plan of one stage.
 type StageWidths struct {
-	CIC       bool
-	HalfBand  bool
-	R         int
-	InputRate float64 // Hz
+	CIC      bool
+	HalfBand bool
+	R        int
+	// Interpolate marks an interpolating stage (Stage.Interpolate): it
+	// raises the rate by R.
+	Interpolate bool
+	// InputRate is the rate of the stage's input samples in Hz (OutputRate
+	// gives its output's; HighRate the one its taps run at).
+	InputRate float64
 
 	InputBits int
 	// FIR: the quantised coefficients (full impulse response) and their measured
@@ -106,11 +173,13 @@ type StageWidths struct {
 	FloatDeviations []float64
 	FloatMeets      bool
 
-	// AccumulatorBits is the worst-case width of the sum of products (FIR) or
-	// the full register width Bin + ceil(N log2(RM)) + GuardBits (CIC; see
-	// chain.PruneCIC).
+	// AccumulatorBits is the worst-case width of the sum of products (FIR;
+	// an interpolating FIR's widest phase), the full register width Bin +
+	// ceil(N log2(RM)) + GuardBits (CIC decimator; see chain.PruneCIC), or
+	// the widest register (CIC interpolator, CICInterp).
 	AccumulatorBits int
-	// CIC: its register plan (chain.PruneCIC). For a non-recursive CIC it
+	// CIC decimator: its register plan (chain.PruneCIC); nil for a CIC
+	// interpolator, whose plan is CICInterp. For a non-recursive CIC it
 	// is the plan of the recursive CIC with the same output, nothing pruned
 	// inside: FullBits = Bin + N log2 R, no guard bits, every register
 	// FullBits wide, and Dropped[2N] the output truncation both forms share
@@ -120,9 +189,12 @@ type StageWidths struct {
 	// widths of its log2 R sub-stages, Bin + N i (chain.NonRecursiveBits).
 	NonRecursive bool
 	SubStageBits []int
+	// CICInterp is a CIC interpolator's register plan (nil otherwise).
+	CICInterp *CICInterpolation
 	// OutputBits is the stage's output word; OutputShift the LSBs removed from
 	// the accumulator to make it (rounded for an FIR, truncated for a CIC);
-	// negative means the accumulator is shifted left.
+	// negative means the accumulator is shifted left. An interpolating FIR's
+	// is the decimating FIR's less floor(log2 R) (see the package doc).
 	OutputBits  int
 	OutputShift int
 	// Gain is the stage's DC gain from input full scale to output full scale.
@@ -136,11 +208,14 @@ type StageWidths struct {
 	// Cost from the widths, one real data path (Complex doubles the data path
 	// figures, not the coefficient memory).
 	MultiplierA, MultiplierB int // product size a x b bits (data x coefficient); 0 for a CIC
-	MultipliesPerSample      int // per output sample of this stage
-	CoefMemoryBits           int
-	DataMemoryBits           int
-	NativePerProduct         int // native multipliers per a x b product; 0 without NativeA/B
-	HardwareMultipliers      int // at Settings.Clock; 0 without a clock or native size
+	// MultipliesPerSample is per sample at the stage's low rate: per output
+	// sample of a decimating stage, per input sample of an interpolating
+	// one (the transpose's figure; see the package doc, Cost).
+	MultipliesPerSample int
+	CoefMemoryBits      int
+	DataMemoryBits      int
+	NativePerProduct    int // native multipliers per a x b product; 0 without NativeA/B
+	HardwareMultipliers int // at Settings.Clock; 0 without a clock or native size
 }
 
 // Widths is the fixed-point plan of a cascade.
@@ -160,7 +235,9 @@ type Widths struct {
 
 // Plan chooses every word width of the cascade: quantised coefficients per
 // FIR stage, accumulator and output widths, CIC registers by Hogenauer's
-// pruning, and the cost that follows from them.
+// pruning, and the cost that follows from them. An interpolation cascade
+// follows the package doc's Interpolation section instead where it
+// differs.
 //
 // Data path conventions. Every data word is a two's-complement fraction of
 // full scale: a b-bit word w stands for w / 2^(b-1). The input is the ADC
@@ -202,20 +279,69 @@ func Plan(c Cascade, w Words, s Settings) (*Widths, error) {
 	if (s.NativeA == 0) != (s.NativeB == 0) || s.NativeA < 0 || s.NativeB < 0 {
 		return nil, fmt.Errorf("fixed: native multiplier %d x %d: give both sizes (> 0) or neither", s.NativeA, s.NativeB)
 	}
+	if err := c.checkDirection(); err != nil {
+		return nil, err
+	}
 	return plan(c, w, s, nil)
+}
+
+// checkDirection refuses a cascade whose stages do not all run in its
+// direction, and a non-recursive CIC in an interpolation cascade.
+func (c Cascade) checkDirection() error {
+	for i, st := range c.Stages {
+		if st.Interpolate != c.Interpolate {
+			return fmt.Errorf("fixed: stage %d: Interpolate = %v, but the cascade's Interpolate = %v; a cascade runs in one direction", i+1, st.Interpolate, c.Interpolate)
+		}
+		if st.Interpolate && st.CIC && st.NonRecursive {
+			return fmt.Errorf("fixed: stage %d: the non-recursive CIC is built for decimation only; an interpolation cascade takes the recursive form", i+1)
+		}
+	}
+	return nil
+}
+
+// OutputRate returns the rate of the stage's output samples in Hz.
+func (sw *StageWidths) OutputRate() float64 {
+	if sw.Interpolate {
+		return sw.InputRate * float64(sw.R)
+	}
+	return sw.InputRate / float64(sw.R)
+}
+
+// HighRate returns the higher of the stage's two rates, the one its taps
+// (and its bands) run at: its input rate when it decimates, its output
+// rate when it interpolates.
+func (sw *StageWidths) HighRate() float64 {
+	if sw.Interpolate {
+		return sw.OutputRate()
+	}
+	return sw.InputRate
+}
+
+// lowRate returns the lower of the stage's two rates.
+func (sw *StageWidths) lowRate() float64 {
+	if sw.Interpolate {
+		return sw.InputRate
+	}
+	return sw.OutputRate()
 }
 
 // plan is Plan after the checks; minBits, when not nil, sets per stage the
 // narrowest coefficient width the "auto" search may return (0: no bound).
 func plan(c Cascade, w Words, s Settings, minBits []int) (*Widths, error) {
 	n := len(c.Stages)
-	rates := make([]float64, n+1)
-	rates[0] = c.InputRate
 	for i, st := range c.Stages {
 		if st.R < 1 {
 			return nil, fmt.Errorf("fixed: stage %d: factor R = %d: must be >= 1", i+1, st.R)
 		}
-		rates[i+1] = rates[i] / float64(st.R)
+	}
+	rates := c.Rates()
+	// The rate each stage's taps run at: its input rate, or its output
+	// rate when it interpolates.
+	high := func(i int) float64 {
+		if c.Interpolate {
+			return rates[i+1]
+		}
+		return rates[i]
 	}
 	target := -1
 	if s.UnityGain {
@@ -238,10 +364,13 @@ func plan(c Cascade, w Words, s Settings, minBits []int) (*Widths, error) {
 			continue
 		}
 		var err error
-		if st.CIC {
+		switch {
+		case st.CIC && st.Interpolate:
+			sws[i], err = planCICInterp(st, in, ob)
+		case st.CIC:
 			sws[i], err = planCIC(st, rates[i], in, ob)
-		} else {
-			sws[i], err = planFIR(st, rates[i], in, ob, w.CoefBits, s, minBitsOf(minBits, i))
+		default:
+			sws[i], err = planFIR(st, high(i), in, ob, w.CoefBits, s, minBitsOf(minBits, i))
 		}
 		if err != nil {
 			return nil, fmt.Errorf("fixed: stage %d: %w", i+1, err)
@@ -257,12 +386,12 @@ func plan(c Cascade, w Words, s Settings, minBits []int) (*Widths, error) {
 				others *= sws[i].Gain
 			}
 		}
-		k := 1 / (others * tapSum(st.Taps))
+		k := 1 / (others * tapSum(st.Taps) * interpGain(st))
 		if math.IsNaN(k) || math.IsInf(k, 0) || !(k > 0) {
 			return nil, fmt.Errorf("fixed: stage %d: UnityGain: the chain's DC gain before correction is %g; it must be above 0", target+1, 1/k)
 		}
 		var err error
-		sws[target], err = planFIR(scaledStage(st, k), rates[target], ins[target], sws[target].OutputBits, w.CoefBits, s, minBitsOf(minBits, target))
+		sws[target], err = planFIR(scaledStage(st, k), high(target), ins[target], sws[target].OutputBits, w.CoefBits, s, minBitsOf(minBits, target))
 		if err != nil {
 			return nil, fmt.Errorf("fixed: stage %d: %w", target+1, err)
 		}
@@ -275,8 +404,8 @@ func plan(c Cascade, w Words, s Settings, minBits []int) (*Widths, error) {
 		if sw.GainCorrection == 0 {
 			sw.GainCorrection = 1
 		}
-		sw.InputRate = rates[i]
-		sw.costAtClock(rates[i+1], c.Complex, s)
+		sw.InputRate, sw.Interpolate = rates[i], c.Interpolate
+		sw.costAtClock(sw.lowRate(), c.Complex, s)
 		data := sw.DataMemoryBits
 		if c.Complex {
 			data *= 2
@@ -307,10 +436,17 @@ func minBitsOf(minBits []int, i int) int {
 
 // gainTarget returns the stage that takes the UnityGain correction: the last
 // FIR that is not a half-band, else the last half-band, else -1 (a chain of
-// CICs alone has no taps to correct).
+// CICs alone has no taps to correct). An interpolation cascade takes the
+// stage its transpose would (the same filter): the first FIR that is not
+// a half-band in signal order, which is the one that corrects the CIC
+// droop (chain.Compensator), else the first half-band.
 func gainTarget(c Cascade) int {
 	hb := -1
-	for i := len(c.Stages) - 1; i >= 0; i-- {
+	for k := len(c.Stages) - 1; k >= 0; k-- {
+		i := k
+		if c.Interpolate {
+			i = len(c.Stages) - 1 - k
+		}
 		st := c.Stages[i]
 		switch {
 		case st.CIC:
@@ -321,6 +457,16 @@ func gainTarget(c Cascade) int {
 		}
 	}
 	return hb
+}
+
+// interpGain is the gain an interpolating FIR's data path puts on its
+// taps' sum, 2^floor(log2 L) / L (1 for L a power of two; see the package
+// doc), and 1 for any other stage.
+func interpGain(st Stage) float64 {
+	if !st.Interpolate || st.CIC {
+		return 1
+	}
+	return math.Ldexp(1, log2Floor(st.R)) / float64(st.R)
 }
 
 func tapSum(h []float64) float64 {
@@ -527,18 +673,24 @@ func planFIR(st Stage, rate float64, in, ob, coefBits int, s Settings, minBits i
 	}
 	sw.MeetsBands = sw.MeetsBands && sw.FloatMeets
 	cf := sw.Coefficients
-	if sw.AccumulatorBits = AccumulatorBits(cf.Ints, in); sw.AccumulatorBits > 63 {
-		return StageWidths{}, fmt.Errorf("accumulator of %d-bit data and %d-bit coefficients needs %d bits; at most 63 are supported", in, cf.Bits, sw.AccumulatorBits)
-	}
-	// The accumulator holds Frac + in - 1 fractional bits; the output ob - 1.
-	sw.OutputShift = cf.Frac + in - ob
-	var dc int64
-	for _, v := range cf.Ints {
-		dc += v
-	}
-	sw.Gain = float64(dc) * math.Ldexp(1, -cf.Frac)
-	sw.Points = []string{
-		fmt.Sprintf("products and sum: exact (%d x %d bits into %d-bit accumulator)", in, cf.Bits, sw.AccumulatorBits),
+	if st.Interpolate {
+		if err := interpAccumulator(&sw, st, in, ob); err != nil {
+			return StageWidths{}, err
+		}
+	} else {
+		if sw.AccumulatorBits = AccumulatorBits(cf.Ints, in); sw.AccumulatorBits > 63 {
+			return StageWidths{}, fmt.Errorf("accumulator of %d-bit data and %d-bit coefficients needs %d bits; at most 63 are supported", in, cf.Bits, sw.AccumulatorBits)
+		}
+		// The accumulator holds Frac + in - 1 fractional bits; the output ob - 1.
+		sw.OutputShift = cf.Frac + in - ob
+		var dc int64
+		for _, v := range cf.Ints {
+			dc += v
+		}
+		sw.Gain = float64(dc) * math.Ldexp(1, -cf.Frac)
+		sw.Points = []string{
+			fmt.Sprintf("products and sum: exact (%d x %d bits into %d-bit accumulator)", in, cf.Bits, sw.AccumulatorBits),
+		}
 	}
 	switch {
 	case sw.OutputShift > 0:
@@ -578,6 +730,13 @@ func planFIR(st Stage, rate float64, in, ob, coefBits int, s Settings, minBits i
 	sw.DataMemoryBits = n * in
 	if st.HalfBand {
 		sw.DataMemoryBits = 3 * ((n + 1) / 4) * in
+	}
+	if st.Interpolate {
+		// The transpose's counts, as package cost prices an interpolation
+		// chain: each input sample is multiplied once by every distinct
+		// coefficient, a symmetric pair's product serving both taps, so
+		// no pre-adder widens the data operand.
+		sw.MultiplierA = in
 	}
 	return sw, nil
 }

@@ -1,8 +1,11 @@
-// Package fixed turns a designed decimation chain into word lengths:
-// quantised coefficients, accumulator and output widths, CIC registers pruned
-// by Hogenauer's method (chain.PruneCIC), a bit-true integer run of the
-// chain against the floating-point chain, and the hardware cost that follows
-// from the widths.
+// Package fixed turns a designed decimation or interpolation chain into
+// word lengths: quantised coefficients, accumulator and output widths, CIC
+// registers (a decimator's pruned by Hogenauer's method, chain.PruneCIC; an
+// interpolator's at Hogenauer's interpolator widths, chain.NewCICInterpolator),
+// a bit-true integer run of the chain against the floating-point chain, and
+// the hardware cost that follows from the widths. The sections below state
+// the decimation chain's rules; Interpolation states what differs for an
+// interpolation chain.
 //
 // The figures are planning data for hardware, ahead of RTL: the team's own
 // bit-true simulation of the RTL and its sign-off remain the reference.
@@ -142,6 +145,88 @@
 // zero and marked (bittrue_error set, bittrue_snr_valid and
 // bittrue_alias_valid false, bittrue_snr_note saying why).
 //
+// # Interpolation
+//
+// An interpolation chain (chain.Chain with Direction chain.Interpolate,
+// which the chain package holds as its transpose, from the high rate down)
+// becomes an interpolation cascade (Cascade.Interpolate, each
+// Stage.Interpolate): FromChain lists its stages in signal order,
+// c.SignalOrder(), the channel first, from InputRate = the channel rate,
+// each raising the rate by its R. Widths.Stages follow the cascade; a
+// stage's taps and bands are the transpose's, at its high (output) rate,
+// so coefficient quantisation, MinCoefBits and PlanChain's "auto" widening
+// against chain.Analyze work on them unchanged. Stage numbers in messages
+// count in signal order. The data path is the interpolation contract's
+// (every package that models the chain implements exactly this):
+//   - words: the first stage takes Words.InputBits, the words between
+//     stages are Words.DataBits wide (default the output width), the last
+//     stage delivers Words.OutputBits; a CIC's output is narrower when its
+//     last integrator is;
+//   - FIR and half-band interpolator by L: the input zero-stuffed by L (each
+//     sample, then L-1 zeros) and filtered by the integer taps, y[m] = sum_j
+//     h_int[j] u[m - j]; equivalently the L polyphase phases, y[nL + p] =
+//     sum_k h_int[p + Lk] x[n - k], inputs before the first zero. Products
+//     and sums are exact in an accumulator of the widest phase's
+//     AccumulatorBits. Each phase's DC gain is about 1/L, so the output is
+//     the sum times 2^floor(log2 L) / 2^Frac in the output word's units:
+//     rounded half up at OutputShift, the decimating FIR's shift less
+//     floor(log2 L) (a left shift when negative), and saturated. Its gain
+//     is 2^floor(log2 L) sum(h_int) / 2^Frac / L: 1 within the taps'
+//     rounding for L a power of two, in (1/2, 1] otherwise. A half-band's
+//     centre phase passes the input exactly (a shift);
+//   - CIC interpolator (order N, delay M, factor R): N combs at the input
+//     rate, c_j[n] = c_(j-1)[n] - c_(j-1)[n-M], the rate raised by R (each
+//     comb output, then R-1 zeros), N integrators at the output rate; every
+//     register unpruned at Hogenauer's interpolator width (CICInterpolation:
+//     combs then integrators, chain.InterpolatorCICBits), wrapping in two's
+//     complement at it (never, by construction); the output keeps the top
+//     OutputBits of the last integrator's W_2N bits, truncated (floor). Its
+//     gain is (RM)^N / R / 2^(W_2N - Bin) <= 1. Registers up to 63 bits run
+//     in int64, wider ones up to MaxModelBits in 128-bit arithmetic;
+//   - the chain's output sample m, at the high rate, starts from zero
+//     state; every stage gives R outputs per input sample, the first with
+//     its first input, and the chain adds no delay;
+//   - Settings.UnityGain corrects the stage the transpose would: the first
+//     FIR that is not a half-band in signal order, the one that corrects
+//     the CIC droop (chain.Compensator), else the first half-band. The
+//     correction then comes before the stages whose gain it makes up for:
+//     when a later stage loses gain (a CIC whose (RM)^N / R is not a power
+//     of two, an FIR whose L is not), the corrected stage's output carries
+//     a gain above 1, and an input above 1 / that gain of full scale
+//     saturates there. The bit-true run lowers its default tones by that
+//     gain (see below).
+//
+// The float chain has the same structure and gains: an FIR's float taps
+// times 2^floor(log2 L), a CIC as its equivalent filter (N boxcars of RM
+// ones) times 2^-(W_2N - Bin), both on the zero-stuffed input.
+//
+// The bit-true run of an interpolation cascade puts the test signal at the
+// input (channel) rate and measures the output at the high rate, over a
+// window of whole input samples (2048 by default, halved down to 256 while
+// the run would need more than 4 Mi output samples; at most 32 Mi), so
+// that every image k F_in +- f of a tone also makes whole cycles in it. It
+// measures as it streams (running sums), so its memory does not grow with
+// the interpolation or the window. The SNR leaves out the error's mean and
+// its component at each tone and at every image of it (the coefficients'
+// passband and image gain errors, judged on the quantised response). The
+// default tones are also lowered by the largest DC gain from the input to
+// a stage's output when it is above 1, and a stage before the last that
+// saturates more than one output in a thousand makes the SNR invalid
+// (SNRNote names it). The alias test becomes an image test: g is the
+// quantised cascade's worst image (chain.Analyze's WorstAliasHz, at the
+// output rate) or Signal.AliasHz, and the input tone is at f, g folded into
+// [0, F_in/2] (moved to whole cycles, g with it); the output is measured at
+// g and at f by projection after the transients, and the bit-true image
+// rejection is 20 log10(A(f) / A(g)), the response's H(f) / H(g) beside it.
+// In BitTrueResult and report.json's alias fields (the names stay):
+// AliasHz (bittrue_alias_hz) is g, AliasOutHz is f, AliasRejectionDB
+// (bittrue_alias_rejection_db) the bit-true image rejection,
+// AliasResponseDB (quantised_alias_response_db) the response's at f and g,
+// WorstAliasResponseDB and Result.Quantised.AliasRejectionDB
+// (quantised_alias_rejection_db) chain.Analyze's image rejection relative
+// to DC, and AliasValid (bittrue_alias_valid) says the noise in g's bin is
+// 20 dB below the image.
+//
 // # Cost
 //
 // Data memory: an FIR stores its taps' count of input words; a CIC one word
@@ -155,7 +240,13 @@
 // multiplier size and a clock, the hardware multipliers
 // ceil(multiplies per second / clock) x native blocks per product
 // (NativeMultipliers). A complex (I/Q) chain doubles data memory and
-// multiplies, not coefficient memory.
+// multiplies, not coefficient memory. An interpolating FIR's figures are
+// the transpose's, as package cost prices an interpolation chain: its
+// multiplies per input sample (its low rate), each input sample multiplied
+// once by every distinct coefficient (a symmetric pair's product serves
+// both taps, so no pre-adder widens the data operand), its data memory its
+// taps' count of input words; a CIC interpolator's memory M words per comb
+// and one per integrator, each as wide as its register.
 //
 // # Zero values
 //

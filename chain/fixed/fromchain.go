@@ -15,6 +15,14 @@ import (
 // package designs it) and every stopband within Req.Ds. The words come from
 // the spec: InputBits, OutputBits between stages and at the output (as the
 // chain package prunes its CICs), and CoefBits (zero: auto).
+//
+// An interpolation chain (Direction chain.Interpolate, held by the chain
+// package as its transpose) becomes an interpolation cascade: its stages in
+// signal order, c.SignalOrder() (Cascade.Stages[k] is c.Stages[
+// c.SignalOrder()[k]]), each with Stage.Interpolate set, from the channel
+// rate (Cascade.InputRate = c.OutputRate()). Its taps and bands are the
+// transpose's, at each stage's high rate. Stage numbers in errors count in
+// signal order.
 func FromChain(spec chain.Spec, c *chain.Chain) (Cascade, Words, error) {
 	spec, err := spec.Normalize()
 	if err != nil {
@@ -23,43 +31,63 @@ func FromChain(spec chain.Spec, c *chain.Chain) (Cascade, Words, error) {
 	if c == nil || len(c.Stages) == 0 {
 		return Cascade{}, Words{}, fmt.Errorf("fixed: the chain has no stages")
 	}
-	cas := Cascade{InputRate: c.InputRate, Complex: c.Complex, Passband: spec.Passband, Protected: spec.Protected}
+	if c.Direction != spec.Direction() {
+		return Cascade{}, Words{}, fmt.Errorf("fixed: the chain's direction, %s, is not the spec's, %s", c.Direction, spec.Direction())
+	}
+	interp := c.Direction == chain.Interpolate
+	cas := Cascade{InputRate: c.InputRate, Complex: c.Complex, Interpolate: interp, Passband: spec.Passband, Protected: spec.Protected}
+	if interp {
+		cas.InputRate = c.OutputRate()
+	}
 	rates := c.Rates()
-	for i, s := range c.Stages {
+	for k, i := range c.SignalOrder() {
 		// The cases cover every kind of chain.Kinds (FIR and half-band are
 		// chain.FIRStages).
-		switch st := s.(type) {
+		var fs Stage
+		var err error
+		switch st := c.Stages[i].(type) {
 		case chain.CICStage:
-			cas.Stages = append(cas.Stages, Stage{CIC: true, N: st.N, M: st.M, R: st.R, NonRecursive: st.Form == chain.NonRecursive})
+			fs, err = cicFromChain(st, interp, k)
 		case *chain.CICStage:
-			cas.Stages = append(cas.Stages, Stage{CIC: true, N: st.N, M: st.M, R: st.R, NonRecursive: st.Form == chain.NonRecursive})
+			fs, err = cicFromChain(*st, interp, k)
 		case chain.FIRStage:
-			fs, err := firFromChain(st, c, rates, i)
-			if err != nil {
-				return Cascade{}, Words{}, err
-			}
-			cas.Stages = append(cas.Stages, fs)
+			fs, err = firFromChain(st, c, rates, i, k)
 		case *chain.FIRStage:
-			fs, err := firFromChain(*st, c, rates, i)
-			if err != nil {
-				return Cascade{}, Words{}, err
-			}
-			cas.Stages = append(cas.Stages, fs)
+			fs, err = firFromChain(*st, c, rates, i, k)
 		default:
-			return Cascade{}, Words{}, fmt.Errorf("fixed: stage %d is a %T; FromChain takes chain.CICStage and chain.FIRStage values", i+1, s)
+			err = fmt.Errorf("fixed: stage %d is a %T; FromChain takes chain.CICStage and chain.FIRStage values", k+1, st)
 		}
+		if err != nil {
+			return Cascade{}, Words{}, err
+		}
+		fs.Interpolate = interp
+		cas.Stages = append(cas.Stages, fs)
 	}
 	w := Words{InputBits: spec.InputBits, OutputBits: spec.OutputBits, DataBits: spec.OutputBits, CoefBits: spec.CoefBits}
 	return cas, w, nil
 }
 
-func firFromChain(st chain.FIRStage, c *chain.Chain, rates []float64, i int) (Stage, error) {
+// cicFromChain is the CIC stage st, at place k in signal order.
+func cicFromChain(st chain.CICStage, interp bool, k int) (Stage, error) {
+	if st.Interpolator != interp {
+		what, dir := "decimator", "an interpolation"
+		if st.Interpolator {
+			what, dir = "interpolator", "a decimation"
+		}
+		return Stage{}, fmt.Errorf("fixed: stage %d is a CIC %s in %s chain", k+1, what, dir)
+	}
+	return Stage{CIC: true, N: st.N, M: st.M, R: st.R, NonRecursive: st.Form == chain.NonRecursive}, nil
+}
+
+// firFromChain is the FIR stage st, c.Stages[i], at place k in signal
+// order.
+func firFromChain(st chain.FIRStage, c *chain.Chain, rates []float64, i, k int) (Stage, error) {
 	if len(st.Taps) == 0 {
-		return Stage{}, fmt.Errorf("fixed: stage %d has no taps (an estimate cannot be quantised)", i+1)
+		return Stage{}, fmt.Errorf("fixed: stage %d has no taps (an estimate cannot be quantised)", k+1)
 	}
 	r := st.Req
 	if !(r.Dp > 0) || !(r.Ds > 0) || !(r.Passband > 0) {
-		return Stage{}, fmt.Errorf("fixed: stage %d carries no requirement (Dp %g, Ds %g, passband %g Hz)", i+1, r.Dp, r.Ds, r.Passband)
+		return Stage{}, fmt.Errorf("fixed: stage %d carries no requirement (Dp %g, Ds %g, passband %g Hz)", k+1, r.Dp, r.Ds, r.Passband)
 	}
 	var hc func(float64) float64
 	if len(r.Compensates) > 0 {
@@ -238,6 +266,7 @@ func widen(ctx context.Context, spec chain.Spec, c *chain.Chain, cas Cascade, w 
 func culprit(c *chain.Chain, cas Cascade, ws *Widths, a chain.Analysis, rejection bool) int {
 	best, bestV := -1, math.Inf(-1)
 	q := QuantisedChain(c, ws)
+	order := c.SignalOrder()
 	for i, st := range cas.Stages {
 		if st.CIC {
 			continue
@@ -248,20 +277,20 @@ func culprit(c *chain.Chain, cas Cascade, ws *Widths, a chain.Analysis, rejectio
 		if rejection {
 			alt := *q
 			alt.Stages = append([]chain.Stage(nil), q.Stages...)
-			fs, ok := alt.Stages[i].(chain.FIRStage)
+			fs, ok := alt.Stages[order[i]].(chain.FIRStage)
 			if !ok {
 				continue
 			}
 			fs.Taps = ft
-			alt.Stages[i] = fs
+			alt.Stages[order[i]] = fs
 			g := a.WorstAliasHz
 			v = q.Gain(g)/q.Gain(0) - alt.Gain(g)/alt.Gain(0)
 		} else {
 			const pts = 256
 			for j := 0; j <= pts; j++ {
 				f := cas.Passband * float64(j) / pts
-				af := Amplitude(ft, f, sw.InputRate)
-				v = math.Max(v, math.Abs(Amplitude(qt, f, sw.InputRate)-af)/math.Max(math.Abs(af), 1e-300))
+				af := Amplitude(ft, f, sw.HighRate())
+				v = math.Max(v, math.Abs(Amplitude(qt, f, sw.HighRate())-af)/math.Max(math.Abs(af), 1e-300))
 			}
 		}
 		if v > bestV {
@@ -307,12 +336,16 @@ func EvaluateContext(ctx context.Context, spec chain.Spec, c *chain.Chain, s Set
 // quantised coefficients of w (from Plan on FromChain(spec, c)), for
 // chain.Analyze and chain.Run. It panics if w does not match c, which
 // includes a c holding a stage FromChain refuses.
+//
+// The widths of an interpolation chain are in signal order (FromChain):
+// c.Stages[c.SignalOrder()[k]] takes w.Stages[k]'s coefficients.
 func QuantisedChain(c *chain.Chain, w *Widths) *chain.Chain {
 	if len(w.Stages) != len(c.Stages) {
 		panic("fixed: QuantisedChain with widths of another chain")
 	}
 	q := *c
 	q.Stages = make([]chain.Stage, len(c.Stages))
+	at := widthsIndex(c)
 	for i, s := range c.Stages {
 		// The same cases as FromChain's, so that no stage it takes is
 		// passed on unquantised.
@@ -320,15 +353,26 @@ func QuantisedChain(c *chain.Chain, w *Widths) *chain.Chain {
 		case chain.CICStage, *chain.CICStage:
 			q.Stages[i] = s
 		case chain.FIRStage:
-			st.Taps = w.Stages[i].Coefficients.Float()
+			st.Taps = w.Stages[at[i]].Coefficients.Float()
 			q.Stages[i] = st
 		case *chain.FIRStage:
 			cp := *st
-			cp.Taps = w.Stages[i].Coefficients.Float()
+			cp.Taps = w.Stages[at[i]].Coefficients.Float()
 			q.Stages[i] = cp
 		default:
 			panic(fmt.Sprintf("fixed: QuantisedChain with widths of another chain (stage %d is a %T, which FromChain refuses)", i+1, s))
 		}
 	}
 	return &q
+}
+
+// widthsIndex returns, for each of c.Stages, the index of its stage in the
+// cascade FromChain makes (and so in its Widths): the same index for a
+// decimation chain, its place in signal order for an interpolation chain.
+func widthsIndex(c *chain.Chain) []int {
+	at := make([]int, len(c.Stages))
+	for k, i := range c.SignalOrder() {
+		at[i] = k
+	}
+	return at
 }

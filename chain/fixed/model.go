@@ -22,6 +22,16 @@ import (
 // code of Widths.Stages[i].OutputBits bits. A complex (I/Q) chain is two
 // such paths, one per component.
 //
+// An interpolation cascade (Cascade.Interpolate) follows the package doc's
+// interpolating data path: a FIR's output nL + p is sum_k h[p + Lk]
+// x[n - k] (the zero-stuffed input filtered by h; inputs before the first
+// are zero), exact, rounded half up at OutputShift and saturated to
+// OutputBits; a CIC interpolator runs its combs on each input sample, then
+// R outputs (the comb output, then R-1 zeros) through its integrators,
+// every register wrapping at its width (CICInterpolation), each output the
+// last integrator truncated (floor) to OutputBits. Every stage gives R
+// outputs per input sample, the first with its first input.
+//
 // A Model keeps its filters' state between calls to Run, so a long input can
 // be run a block at a time; the zero Model is not usable (NewModel).
 type Model struct {
@@ -37,14 +47,28 @@ func NewModel(c Cascade, w *Widths) (*Model, error) {
 	if len(w.Stages) != len(c.Stages) || len(c.Stages) == 0 {
 		return nil, fmt.Errorf("fixed: model of %d stages with widths of %d", len(c.Stages), len(w.Stages))
 	}
+	if err := c.checkDirection(); err != nil {
+		return nil, err
+	}
 	m := &Model{inBits: w.InputBits}
 	for i, st := range c.Stages {
 		sw := &w.Stages[i]
 		if st.CIC {
-			if lim := cicModelBits(sw); sw.Pruning.FullBits > lim {
-				return nil, fmt.Errorf("fixed: stage %d: the CIC's %d-bit registers are beyond the integer model's %d bits", i+1, sw.Pruning.FullBits, lim)
+			if st.Interpolate && sw.CICInterp == nil || !st.Interpolate && sw.Pruning == nil {
+				return nil, fmt.Errorf("fixed: stage %d: the CIC has no register plan for its direction (widths of another cascade)", i+1)
 			}
-			m.stages = append(m.stages, newCICInt(sw))
+			if lim := cicModelBits(sw); cicModelWidth(sw) > lim {
+				return nil, fmt.Errorf("fixed: stage %d: the CIC's %d-bit registers are beyond the integer model's %d bits", i+1, cicModelWidth(sw), lim)
+			}
+			if st.Interpolate {
+				m.stages = append(m.stages, newCICInterpFilter(sw.CICInterp))
+			} else {
+				m.stages = append(m.stages, newCICInt(sw))
+			}
+			continue
+		}
+		if st.Interpolate {
+			m.stages = append(m.stages, newFIRInterpInt(sw.Coefficients.Ints, st.R, sw.OutputShift, sw.OutputBits))
 			continue
 		}
 		m.stages = append(m.stages, newFIRInt(sw.Coefficients.Ints, st.R, sw.OutputShift, sw.OutputBits))
@@ -79,7 +103,8 @@ func (m *Model) Run(x []int64) ([][]int64, error) {
 // fractions of full scale. ctx is checked between blocks; once it is done
 // RunCodes returns an error wrapping ctx.Err(). It refuses what BitTrue
 // refuses: a CIC register over MaxModelBits, a CIC float model over 2^22 taps,
-// and a code outside the input word.
+// and a code outside the input word; and an interpolation cascade's output
+// over MaxRunCodesOutput samples (it holds both outputs whole).
 func RunCodes(ctx context.Context, c Cascade, w *Widths, x []int64) ([]int64, []float64, error) {
 	if _, err := NewModel(c, w); err != nil {
 		return nil, nil, err
@@ -88,6 +113,13 @@ func RunCodes(ctx context.Context, c Cascade, w *Widths, x []int64) ([]int64, []
 		if st.CIC && st.Length() > maxCICFloatTaps {
 			return nil, nil, fmt.Errorf("fixed: stage %d: the CIC's float model would need %d taps, beyond the run's %d", i+1, st.Length(), maxCICFloatTaps)
 		}
+	}
+	nout := 0
+	if c.Interpolate {
+		if l := c.Ratio(); len(x) > MaxRunCodesOutput/l {
+			return nil, nil, fmt.Errorf("fixed: %d input samples interpolated by %d make %d output samples; at most %d are run at once (run a shorter input)", len(x), l, len(x)*l, MaxRunCodesOutput)
+		}
+		nout = len(x) * c.Ratio()
 	}
 	lo, hi := -(int64(1) << (w.InputBits - 1)), int64(1)<<(w.InputBits-1)-1
 	for n, v := range x {
@@ -100,9 +132,12 @@ func RunCodes(ctx context.Context, c Cascade, w *Widths, x []int64) ([]int64, []
 	// so that the ADC of the run gives the codes back.
 	lsb := math.Ldexp(1, -(w.InputBits - 1))
 	olsb := math.Ldexp(1, w.Stages[len(w.Stages)-1].OutputBits-1)
-	blk := make([]float64, min(blockSamples, len(x)))
+	blk := make([]float64, min(blockLen(c), len(x)))
 	var codes []int64
 	var fl []float64
+	if nout > 0 {
+		codes, fl = make([]int64, 0, nout), make([]float64, 0, nout)
+	}
 	for n0 := 0; n0 < len(x); n0 += len(blk) {
 		if err := ctx.Err(); err != nil {
 			return nil, nil, fmt.Errorf("fixed: run stopped: %w", err)
@@ -119,6 +154,10 @@ func RunCodes(ctx context.Context, c Cascade, w *Widths, x []int64) ([]int64, []
 	}
 	return codes, fl, nil
 }
+
+// MaxRunCodesOutput bounds the output of RunCodes on an interpolation
+// cascade, 2^24 samples: its codes and floats then take 256 MiB.
+const MaxRunCodesOutput = 1 << 24
 
 // cicModelBits is the widest CIC register the integer model runs for the
 // stage: MaxModelBits in 128-bit arithmetic for the recursive form, 63 for

@@ -33,7 +33,9 @@ type StageReport struct {
 	GainCorrection float64 `json:"gain_correction,omitempty"`
 	// CIC: pruned register widths (integrators then combs) and the LSBs each
 	// drops, the output's last. A non-recursive CIC: its sub-stages' output
-	// widths, and one entry, the LSBs its output drops.
+	// widths, and one entry, the LSBs its output drops. A CIC interpolator:
+	// its register widths in signal order (combs then integrators, none
+	// pruned: 2N zeros dropped) and the output's truncation last.
 	RegisterBits []int `json:"register_bits,omitempty"`
 	DroppedBits  []int `json:"dropped_bits,omitempty"`
 	// RoundingPoints states every rounding, truncation and saturation point.
@@ -148,7 +150,12 @@ func (r *Result) Report(withHardware bool) ChainReport {
 			RoundingPoints: append([]string{}, sw.Points...),
 			CoefMemoryBits: sw.CoefMemoryBits, DataMemoryBits: sw.DataMemoryBits,
 		}
-		if sw.CIC {
+		if p := sw.CICInterp; sw.CIC && p != nil {
+			// Nothing dropped inside; the output's truncation last.
+			s.RegisterBits = append([]int{}, p.RegisterBits...)
+			s.DroppedBits = make([]int, 2*p.N+1)
+			s.DroppedBits[2*p.N] = sw.OutputShift
+		} else if sw.CIC {
 			s.RegisterBits = append([]int{}, sw.Pruning.RegisterBits...)
 			s.DroppedBits = append([]int{}, sw.Pruning.Dropped...)
 			if sw.NonRecursive {

@@ -9,7 +9,15 @@ import "github.com/stepdown-dsp/stepdown/chain"
 // cicScale). The spec carries the cascade's rates and bands for
 // chain.Analyze; its ripple and rejection targets are placeholders, since
 // Analyze measures and does not judge.
+//
+// An interpolation cascade becomes its transpose, as the chain package
+// holds an interpolation chain: the stages from the high rate down,
+// InputRate the high rate, Direction Interpolate, and an interpolation
+// spec (InputRate the channel rate).
 func cascadeChain(c Cascade, w *Widths, quantised bool) (*chain.Chain, chain.Spec) {
+	if c.Interpolate {
+		return transposeChain(c, w, quantised)
+	}
 	ch := &chain.Chain{InputRate: c.InputRate, Complex: c.Complex, Designed: true}
 	d := 1
 	for i, st := range c.Stages {
@@ -39,4 +47,26 @@ func cicScale(w *Widths) float64 {
 		}
 	}
 	return p
+}
+
+// transposeChain is cascadeChain for an interpolation cascade.
+func transposeChain(c Cascade, w *Widths, quantised bool) (*chain.Chain, chain.Spec) {
+	l := c.Ratio()
+	high := c.InputRate * float64(l)
+	ch := &chain.Chain{InputRate: high, Complex: c.Complex, Direction: chain.Interpolate, Designed: true}
+	for i := len(c.Stages) - 1; i >= 0; i-- {
+		st := c.Stages[i]
+		if st.CIC {
+			ch.Stages = append(ch.Stages, chain.CICStage{N: st.N, M: st.M, R: st.R, Interpolator: true})
+			continue
+		}
+		taps := w.Stages[i].floatTaps(st)
+		if quantised {
+			taps = w.Stages[i].Coefficients.Float()
+		}
+		ch.Stages = append(ch.Stages, chain.FIRStage{R: st.R, Taps: taps, Length: len(taps), HalfBand: st.HalfBand})
+	}
+	spec := chain.Spec{InputRate: c.InputRate, OutputRate: high, Passband: c.Passband,
+		Protected: c.Protected, RippleDB: 1, RejectionDB: 1, Complex: c.Complex}
+	return ch, spec
 }

@@ -1,0 +1,396 @@
+package fixed
+
+import (
+	"context"
+	"fmt"
+	"math"
+	"math/rand/v2"
+
+	"github.com/stepdown-dsp/stepdown/chain"
+)
+
+// maxOutputSamples and autoOutputSamples bound an interpolation cascade's
+// bit-true run by its output samples, as maxInputSamples and
+// autoInputSamples bound a decimation cascade's by its input samples: the
+// high rate's samples are the run's cost either way.
+const (
+	maxOutputSamples  = maxInputSamples
+	autoOutputSamples = autoInputSamples
+)
+
+// minWindowInputs is the fewest input samples an interpolation cascade's
+// measurement window spans, so that the test tone makes whole cycles in it.
+const minWindowInputs = 64
+
+// bitTrueInterp is BitTrueContext for an interpolation cascade (see the
+// package doc, Bit-true run): the test signal at the input (channel) rate,
+// the SNR and the DC offset over a window of the output at the high rate,
+// and the image test: one tone at the channel frequency f whose image is
+// the quantised cascade's worst, g, measured at the output at g and at f.
+//
+// The window spans a whole number of input samples, so that every image
+// k F_in +- f of a tone makes whole cycles in it too, and is measured as
+// it streams (running sums), so that the run's memory does not grow with
+// the interpolation or the window.
+func bitTrueInterp(ctx context.Context, c Cascade, w *Widths, sig Signal) (BitTrueResult, error) {
+	fp, fa := c.Passband, c.Protected
+	if fa == 0 {
+		fa = fp
+	}
+	l := c.Ratio()
+	fin := c.InputRate
+	high := fin * float64(l)
+	if !(fp > 0) || fp >= fin/2 || fa < fp || fa > fin/2 {
+		return BitTrueResult{}, fmt.Errorf("fixed: cascade Passband = %g Hz, Protected = %g Hz: need 0 < Passband <= Protected <= input rate/2 = %g Hz", fp, fa, fin/2)
+	}
+	auto := sig.Samples == 0
+	nmIn := 2048 // input samples the window spans
+	if !auto {
+		if sig.Samples < 64 {
+			return BitTrueResult{}, fmt.Errorf("fixed: signal Samples = %d: must be >= 64", sig.Samples)
+		}
+		nmIn = max(minWindowInputs, (sig.Samples+l-1)/l)
+	}
+	// The default levels leave room for the largest DC gain from the input
+	// to any stage's output (above 1 when a UnityGain correction comes
+	// before a stage that loses gain, such as a CIC), so that no stage
+	// saturates on them.
+	gmax := 1.0
+	for i := range w.Stages {
+		gmax = math.Max(gmax, prefixGain(w, i))
+	}
+	sd, err := sig.fill(w.InputBits, fp, fin, high, 20*math.Log10(gmax))
+	if err != nil {
+		return BitTrueResult{}, err
+	}
+	if err := checkCICRun(c, w); err != nil {
+		return BitTrueResult{}, err
+	}
+	// Transient: the cascade's impulse response length in output samples;
+	// each stage's response is at its output rate, spread by the later
+	// stages' factors.
+	span, later := 1, l
+	for _, st := range c.Stages {
+		later /= st.R
+		span += (st.Length() - 1) * later
+	}
+	skip := span + l
+	for auto && nmIn > 256 && skip+nmIn*l > autoOutputSamples {
+		nmIn /= 2
+	}
+	win := nmIn * l
+	if nout := skip + win; nout > maxOutputSamples || nmIn > maxOutputSamples/l {
+		return BitTrueResult{}, fmt.Errorf("fixed: bit-true run needs %d output samples (interpolation %d, %d output samples measured over %d input samples); at most %d are supported", skip+nmIn*l, l, win, nmIn, maxOutputSamples)
+	}
+	nin := (skip + win + l - 1) / l
+	res := BitTrueResult{Samples: win, InputSamples: nin, Skip: skip, NoiseDBFS: math.Max(-300, 20*math.Log10(sd.noise))}
+	rng := rand.New(rand.NewPCG(sig.Seed, 0x5eed))
+	obits := w.OutputBits
+
+	// Run 1: the wanted tones plus noise.
+	var ms []int
+	var tones []toneGen
+	for _, t := range sig.Tones {
+		m := int(math.Round(t.Freq / fin * float64(nmIn)))
+		ms = append(ms, m)
+		f := float64(m) * fin / float64(nmIn)
+		res.Tones = append(res.Tones, Tone{Freq: f, Level: t.Level})
+		tones = append(tones, toneGen{f, math.Pow(10, t.Level/20), 2 * math.Pi * rng.Float64()})
+	}
+	meas := newInterpMeasure(obits)
+	for k, m := range ms {
+		// A tone met before has its family removed once.
+		if !containsInt(ms[:k], m) {
+			meas.families = append(meas.families, newFamily(l, nmIn, m))
+		}
+		meas.outs = append(meas.outs, newRotor(int64(m), int64(win)))
+	}
+	cs := newChainState(c, w)
+	inPow, inErr, clipped, err := streamTo(ctx, cs, c, nin, skip, win, signalGen(tones, sd.noise, rng, fin), meas.add)
+	if err != nil {
+		return BitTrueResult{}, err
+	}
+	res.Clipped = clipped
+	res.InputSNRDB = ratioDB(inPow, inErr)
+	nw := float64(win)
+	refPow := meas.ref2 / nw
+	res.MatchDB = ratioDB(refPow, meas.e2/nw)
+	mean := meas.e1 / nw
+	res.OutputOffset = math.Ldexp(mean, obits-1)
+	// The error less its mean and its component at every tone and every
+	// image of it (each tone's family), which are orthogonal over the
+	// window: the energy left is the error's less theirs.
+	left := meas.e2 - nw*mean*mean
+	for _, fam := range meas.families {
+		left -= fam.energy()
+		if fam.m == 0 {
+			left += nw * mean * mean // a family at DC holds the mean
+		}
+	}
+	errPow := math.Max(0, left) / nw
+	for k, m := range ms {
+		res.OutputLevels = append(res.OutputLevels, math.Max(-300, 20*math.Log10(meas.outs[k].amplitude(m == 0 || 2*m == win, win))))
+	}
+	res.SNRDB = ratioDB(refPow, errPow)
+	res.ENOB = (res.SNRDB - 1.76) / 6.02
+	res.OutputClipped = meas.clipped
+	res.SNRNote = snrNote(w.InputBits, sd.defaultTones && !sd.fits, clipped, nin, res.OutputOffset, math.Ldexp(math.Sqrt(errPow), obits-1))
+	if res.OutputClipped*1000 > win {
+		note := fmt.Sprintf("the output saturated in %d of %d samples at the %d-bit output word (the chain's gain lifts the test signal past full scale)", res.OutputClipped, win, obits)
+		if res.SNRNote != "" {
+			note = res.SNRNote + "; " + note
+		}
+		res.SNRNote = note
+	}
+	// A stage before the last that saturates (its output word is not the
+	// output's, which OutputClipped counts) spoils the SNR the same way.
+	for i, n := range cs.saturations()[:len(c.Stages)-1] {
+		if n*1000 > cs.outs[i] {
+			note := fmt.Sprintf("stage %d saturated in %d of its %d output samples (a DC gain of %.4g from the input to its output lifts the test signal past full scale)", i+1, n, cs.outs[i], prefixGain(w, i))
+			if res.SNRNote != "" {
+				note = res.SNRNote + "; " + note
+			}
+			res.SNRNote = note
+		}
+	}
+	res.SNRValid = res.SNRNote == ""
+
+	// Run 2: a tone at the channel frequency whose image is the quantised
+	// cascade's worst.
+	q, qspec := cascadeChain(c, w, true)
+	var g0 float64
+	if sig.AliasHz > 0 {
+		g0 = sig.AliasHz
+		res.WorstAliasResponseDB = posDB(q.Gain(g0) / q.Gain(0))
+	} else {
+		a, err := chain.AnalyzeContext(ctx, q, qspec)
+		if err != nil {
+			return BitTrueResult{}, fmt.Errorf("fixed: the quantised cascade's worst image: %w", err)
+		}
+		g0, res.WorstAliasResponseDB = a.WorstAliasHz, a.AliasRejectionDB
+	}
+	amp := math.Pow(10, sig.AliasLevel/20)
+	for nm := nmIn; ; nm *= 4 {
+		wn := nm * l
+		// f: g folded into [0, F_in/2], moved to whole cycles over the
+		// window's input samples; g moves with it, so it stays f's image.
+		fold := math.Mod(g0, fin)
+		mirror := fold > fin/2
+		if mirror {
+			fold = fin - fold
+		}
+		m := int(math.Max(1, math.Min(float64(nm/2-1), math.Round(fold/fin*float64(nm)))))
+		f := float64(m) * fin / float64(nm)
+		g := g0 + (f - fold)
+		if mirror {
+			g = g0 - (f - fold)
+		}
+		// g's cycles over the window: an image of f, k F_in +- f, makes
+		// k nm +- m.
+		kf := math.Round((g0 - fold) / fin)
+		if mirror {
+			kf = math.Round((g0 + fold) / fin)
+		}
+		gm := int64(kf)*int64(nm) + int64(m)
+		if mirror {
+			gm = int64(kf)*int64(nm) - int64(m)
+		}
+		res.AliasHz, res.AliasOutHz, res.AliasSamples = g, f, wn
+		res.AliasResponseDB = posDB(q.Gain(g) / q.Gain(f))
+		im := newImageMeasure(l, nm, int64(m), gm, int64(wn))
+		tone := []toneGen{{f, amp, 2 * math.Pi * rng.Float64()}}
+		_, _, _, err := streamTo(ctx, newChainState(c, w), c, (skip+wn+l-1)/l, skip, wn, signalGen(tone, sd.noise, rng, fin), im.add)
+		if err != nil {
+			return BitTrueResult{}, err
+		}
+		edge := 2*gm == int64(wn) || gm%int64(wn) == 0
+		aif, aig := im.fi.amplitude(false, wn), im.gi.amplitude(edge, wn)
+		aff, afg := im.ff.amplitude(false, wn), im.gf.amplitude(edge, wn)
+		res.AliasRejectionDB = posDB(aig / aif)
+		res.AliasFloatRunDB = posDB(afg / aff)
+		// The noise in g's bin: what is left of the output once its mean
+		// and the tone's family (the tone and all its images) are removed.
+		fw := float64(wn)
+		mean := im.y1 / fw
+		resid := math.Sqrt(math.Max(0, im.y2-fw*mean*mean-im.fam.energy()) / fw)
+		res.AliasNoiseDB = posDB(2 * resid / math.Sqrt(fw) / aif)
+		res.AliasValid = res.AliasNoiseDB >= res.AliasRejectionDB+20
+		if res.AliasValid || res.AliasNoiseDB+12 < res.AliasRejectionDB+20 || skip+4*wn > autoOutputSamples || wn >= 16*win {
+			break
+		}
+	}
+	return res, nil
+}
+
+// prefixGain is the DC gain from the input to stage i's output.
+func prefixGain(w *Widths, i int) float64 {
+	g := 1.0
+	for _, sw := range w.Stages[:i+1] {
+		g *= sw.Gain
+	}
+	return g
+}
+
+func containsInt(s []int, v int) bool {
+	for _, x := range s {
+		if x == v {
+			return true
+		}
+	}
+	return false
+}
+
+// rotor projects a stream onto cos and sin of 2 pi num j / den, j = 0, 1,
+// 2, ...: the phase is reduced exactly in integers every toneAnchor samples
+// and rotated in between (as tone does).
+type rotor struct {
+	num, den int64
+	j        int64
+	c, s     float64 // cos and sin at j
+	cw, sw   float64 // one step
+	re, im   float64 // the sums of y cos and y sin
+}
+
+func newRotor(num, den int64) *rotor {
+	num %= den
+	if num < 0 {
+		num += den
+	}
+	r := &rotor{num: num, den: den}
+	r.sw, r.cw = math.Sincos(2 * math.Pi * float64(num) / float64(den))
+	return r
+}
+
+// next returns cos and sin at the current j and steps j.
+func (r *rotor) next() (c, s float64) {
+	if r.j%toneAnchor == 0 {
+		ph := (r.num * (r.j % r.den)) % r.den
+		r.s, r.c = math.Sincos(2 * math.Pi * float64(ph) / float64(r.den))
+	}
+	c, s = r.c, r.s
+	r.c, r.s = c*r.cw-s*r.sw, s*r.cw+c*r.sw
+	r.j++
+	return c, s
+}
+
+// add projects the next sample y.
+func (r *rotor) add(y float64) {
+	c, s := r.next()
+	r.re += y * c
+	r.im += y * s
+}
+
+// amplitude returns the amplitude of the projected component over n
+// samples; edge marks a frequency at DC or at half the rate, whose sine is
+// zero.
+func (r *rotor) amplitude(edge bool, n int) float64 {
+	k := 2 / float64(n)
+	if edge {
+		k = 1 / float64(n)
+	}
+	return math.Hypot(r.re*k, r.im*k)
+}
+
+// family is the projection of a window of an interpolation cascade's
+// output onto a tone at m cycles over the window's nm input samples and
+// every image of it: the signals Re(c_p e^(i 2 pi m n / nm)) whose
+// complex amplitude c_p depends only on the output sample's phase p = j
+// mod L (n = j div L), which span exactly the frequencies k F_in +- f.
+// Per phase the projection is a sinusoid's least-squares fit over nm
+// samples.
+type family struct {
+	m, nm, l int
+	c, s     []float64 // per phase: sum y cos, sum y sin
+	rot      *rotor    // the phase at input sample n
+	cn, sn   float64
+}
+
+func newFamily(l, nm, m int) *family {
+	return &family{m: m, nm: nm, l: l, c: make([]float64, l), s: make([]float64, l), rot: newRotor(int64(m), int64(nm))}
+}
+
+// add takes window sample j, y.
+func (f *family) add(j int, y float64) {
+	p := j % f.l
+	if p == 0 {
+		f.cn, f.sn = f.rot.next()
+	}
+	f.c[p] += y * f.cn
+	f.s[p] += y * f.sn
+}
+
+// energy returns the energy (sum of squares) of the projection.
+func (f *family) energy() float64 {
+	var e float64
+	edge := f.m == 0 || 2*f.m == f.nm // the sine is zero: one dimension per phase
+	for p := range f.c {
+		if edge {
+			e += f.c[p] * f.c[p] / float64(f.nm)
+		} else {
+			e += 2 * (f.c[p]*f.c[p] + f.s[p]*f.s[p]) / float64(f.nm)
+		}
+	}
+	return e
+}
+
+// interpMeasure holds run 1's running sums over the window: the float
+// output's energy, the error's sum and energy, each tone family's
+// projection of the error, each tone's projection of the integer output,
+// and the saturated outputs.
+type interpMeasure struct {
+	ref2, e1, e2 float64
+	families     []*family
+	outs         []*rotor
+	top          float64
+	clipped      int
+}
+
+func newInterpMeasure(obits int) *interpMeasure {
+	return &interpMeasure{top: 1 - math.Ldexp(1, 1-obits)}
+}
+
+func (ms *interpMeasure) add(yi, yf []float64, j0 int) {
+	for k, vi := range yi {
+		vf := yf[k]
+		e := vi - vf
+		ms.ref2 += vf * vf
+		ms.e1 += e
+		ms.e2 += e * e
+		for _, f := range ms.families {
+			f.add(j0+k, e)
+		}
+		for _, r := range ms.outs {
+			r.add(vi)
+		}
+		if vi >= ms.top || vi <= -1 {
+			ms.clipped++
+		}
+	}
+}
+
+// imageMeasure holds run 2's running sums: both outputs' projections at f
+// and at g, and the integer output's sum, energy and projection onto f's
+// family.
+type imageMeasure struct {
+	fi, gi, ff, gf *rotor
+	fam            *family
+	y1, y2         float64
+}
+
+func newImageMeasure(l, nm int, m, gm, win int64) *imageMeasure {
+	// f makes m cycles over the window, as over its nm input samples.
+	return &imageMeasure{fi: newRotor(m, win), gi: newRotor(gm, win), ff: newRotor(m, win), gf: newRotor(gm, win),
+		fam: newFamily(l, nm, int(m))}
+}
+
+func (im *imageMeasure) add(yi, yf []float64, j0 int) {
+	for k, vi := range yi {
+		im.fi.add(vi)
+		im.gi.add(vi)
+		im.ff.add(yf[k])
+		im.gf.add(yf[k])
+		im.fam.add(j0+k, vi)
+		im.y1 += vi
+		im.y2 += vi * vi
+	}
+}
