@@ -133,6 +133,9 @@ func Response(d ResponseData) (*Figure, error) {
 	if zoom > 0 {
 		near := responsePanel(d, d.FreqHz[0], zoom, floor, top, false, nil)
 		near.Title.Text = "Near the output band"
+		if d.Images {
+			near.Title.Text = "Near the channel band"
+		}
 		near.Title.TextStyle.Font.Size = 11
 		fig.panels[0].weight = 0.55
 		fig.panels = append(fig.panels, panel{p: near, weight: 0.45, optional: true})

@@ -279,14 +279,16 @@ func responseData(cand optimize.Candidate, spec *specfile.Spec, ch Chain) (plots
 	rd.FreqHz = responseGrid(f0, cs.OutputRate)
 	n := len(rd.FreqHz)
 	rd.TotalDB = make([]float64, n)
+	// The stages' curves in signal order, each at its high rate.
+	order := c.SignalOrder()
 	rd.Stages = make([]plots.Series, len(c.Stages))
-	for i := range c.Stages {
-		rd.Stages[i] = plots.Series{Name: stageName(cand, i), DB: make([]float64, n)}
+	for j, i := range order {
+		rd.Stages[j] = plots.Series{Name: stageName(cand, i), DB: make([]float64, n)}
 	}
 	for k, g := range rd.FreqHz {
 		rd.TotalDB[k] = db(c.Gain(g) / dc)
-		for i, st := range c.Stages {
-			rd.Stages[i].DB[k] = db(st.Gain(g, rates[i]))
+		for j, i := range order {
+			rd.Stages[j].DB[k] = db(c.Stages[i].Gain(g, rates[i]))
 		}
 	}
 	// The bands that fold onto the protected band at the output (docs/design.md §7).

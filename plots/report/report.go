@@ -635,5 +635,9 @@ func (c *Chain) BitTrueSummary() string {
 	case !c.BitTrueSNRValid || c.BitTrueSNRDB == nil || c.BitTrueENOB == nil:
 		return "bit-true SNR not meaningful (" + c.BitTrueSNRNote + ")"
 	}
-	return fmt.Sprintf("data path against the float chain: bit-true SNR %.1f dB, ENOB %.2f bits (the ADC word alone: %.1f dB)", *c.BitTrueSNRDB, *c.BitTrueENOB, c.InputSNRDB)
+	word := "the ADC word"
+	if c.interp {
+		word = "the input word"
+	}
+	return fmt.Sprintf("data path against the float chain: bit-true SNR %.1f dB, ENOB %.2f bits (%s alone: %.1f dB)", *c.BitTrueSNRDB, *c.BitTrueENOB, word, c.InputSNRDB)
 }
