@@ -334,7 +334,7 @@ type planView struct {
 	// Axis heads the front table's cost column and AxisName says it in
 	// words: "adders" for a multiplierless plan, whose column holds each
 	// chain's adders as built.
-	Axis, AxisName        string
+	Axis, AxisName string
 	// Side is the channel side the counts are per ("output" for a
 	// decimation chain, "input" for an interpolation chain), Short its
 	// column form ("out", "in"), Unwanted what the rejection is of

@@ -62,16 +62,16 @@ type Spec struct {
 	Direction     string   `json:"direction"`
 	Decimation    int      `json:"decimation"`
 	Interpolation int      `json:"interpolation"`
-	PassbandHz   float64  `json:"passband_hz"`
-	ProtectedHz  float64  `json:"protected_hz"`
-	StopbandHz   float64  `json:"stopband_hz"`
-	RippleDB     float64  `json:"ripple_db"`
-	RejectionDB  float64  `json:"rejection_db"`
-	Signal       string   `json:"signal"`
-	Words        Words    `json:"words"`
-	Hardware     Hardware `json:"hardware"`
-	Cost         Cost     `json:"cost"`
-	SearchLimits Limits   `json:"search"`
+	PassbandHz    float64  `json:"passband_hz"`
+	ProtectedHz   float64  `json:"protected_hz"`
+	StopbandHz    float64  `json:"stopband_hz"`
+	RippleDB      float64  `json:"ripple_db"`
+	RejectionDB   float64  `json:"rejection_db"`
+	Signal        string   `json:"signal"`
+	Words         Words    `json:"words"`
+	Hardware      Hardware `json:"hardware"`
+	Cost          Cost     `json:"cost"`
+	SearchLimits  Limits   `json:"search"`
 }
 
 // Words are the word lengths in bits. Coefficients is the width the spec
