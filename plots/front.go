@@ -237,7 +237,7 @@ func buildFront(d FrontData) (*Figure, *frontPanel, error) {
 		sty := textStyle(10, true)
 		sty.Color = color.RGBA{0xA0, 0x40, 0x00, 0xff} // a darker vermilion for text contrast
 		fp.labels = append(fp.labels, frontLabel{at: at, r: ringRadius + ringWidth/2, own: []int{d.Recommended, len(fp.marks) - 1},
-			text: "Recommended: " + chainText(r, d.TargetDB, d.Adders), style: sty})
+			text: "Recommended: " + chainText(r, d.TargetDB, d.Adders, d.PerInput), style: sty})
 	}
 	if c := d.Checked; c != nil {
 		at := plotter.XY{X: c.Multiplies, Y: c.MemoryBits}
@@ -252,7 +252,7 @@ func buildFront(d FrontData) (*Figure, *frontPanel, error) {
 		sty := textStyle(10, true)
 		sty.Color = checkedColor
 		fp.labels = append(fp.labels, frontLabel{at: at, r: crossRadius + 3, own: []int{len(fp.marks) - 1},
-			text: "Checked: " + chainText(*c, d.TargetDB, d.Adders), style: sty})
+			text: "Checked: " + chainText(*c, d.TargetDB, d.Adders, d.PerInput), style: sty})
 	}
 
 	return &Figure{title: title, panels: []panel{{p: p, weight: 1, draw: fp.draw}}, colorKey: key}, fp, nil
@@ -467,8 +467,11 @@ func costName(adders bool) string {
 
 // chainText is a labelled chain's notation and figures, on three lines:
 // its notation, its costs, its rejection.
-func chainText(pt Point, targetDB float64, adders bool) string {
+func chainText(pt Point, targetDB float64, adders, perInput bool) string {
 	unit := "mult/out"
+	if perInput {
+		unit = "mult/in"
+	}
 	if adders {
 		unit = "adders"
 	}

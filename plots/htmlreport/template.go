@@ -92,7 +92,7 @@ const templates = `
 {{define "front"}}<div class="scroll"><table>
 <thead><tr><th class="n">#</th><th>chain</th><th class="n">{{.Axis}}</th><th class="n">adds/{{.Short}}</th><th class="n">memory bits</th>{{if .Clock}}<th class="n">multi&shy;pliers</th>{{end}}<th class="n">latency ({{.Side}} samples)</th><th class="n">rejection dB</th><th class="n">margin dB</th><th class="n">ripple dB</th></tr></thead>
 <tbody>
-{{range .Rows}}<tr class="{{if .Rec}}mark{{end}}{{if .Misses}} bad{{end}}"><td class="n">{{.Index}}{{if .Rec}} ★{{end}}</td><td class="chain">{{.Notation}}{{if .Tag}} <span class="tag">{{.Tag}}</span>{{end}}</td><td class="n">{{.Mult}}</td><td class="n">{{.Adds}}</td><td class="n">{{.MemBits}}</td>{{if $.Clock}}<td class="n">{{.Multipliers}}</td>{{end}}<td class="n">{{.Latency}} ({{.LatOut}} out)</td><td class="n">{{.Rejection}}</td><td class="n">{{.Margin}}</td><td class="n">{{.Ripple}}</td></tr>
+{{range .Rows}}<tr class="{{if .Rec}}mark{{end}}{{if .Misses}} bad{{end}}"><td class="n">{{.Index}}{{if .Rec}} ★{{end}}</td><td class="chain">{{.Notation}}{{if .Tag}} <span class="tag">{{.Tag}}</span>{{end}}</td><td class="n">{{.Mult}}</td><td class="n">{{.Adds}}</td><td class="n">{{.MemBits}}</td>{{if $.Clock}}<td class="n">{{.Multipliers}}</td>{{end}}<td class="n">{{.Latency}} ({{.LatOut}} {{$.Short}})</td><td class="n">{{.Rejection}}</td><td class="n">{{.Margin}}</td><td class="n">{{.Ripple}}</td></tr>
 {{end}}</tbody></table></div>{{end}}
 
 {{define "stages"}}<div class="stages">
