@@ -156,8 +156,9 @@
 // stage's taps and bands are the transpose's, at its high (output) rate,
 // so coefficient quantisation, MinCoefBits and PlanChain's "auto" widening
 // against chain.Analyze work on them unchanged. Stage numbers in messages
-// count in signal order. The data path is the interpolation contract's
-// (every package that models the chain implements exactly this):
+// count in signal order. The data path is the interpolation contract: every
+// package that models the chain (chain/fixed, handoff) implements exactly
+// this:
 //   - words: the first stage takes Words.InputBits, the words between
 //     stages are Words.DataBits wide (default the output width), the last
 //     stage delivers Words.OutputBits; a CIC's output is narrower when its

@@ -10,7 +10,7 @@ import (
 )
 
 // The reference below is the interpolation contract's integer data path
-// (notes/interp-contract.md; the package doc's Data path) written from
+// (the package doc's Interpolation section) written from
 // its text with plain integers and math/big, sharing no code with the
 // model: the FIR as the zero-stuffed input convolved with the integer taps,
 // the CIC as its equivalent integer FIR (N boxcars of R M ones, Hogenauer

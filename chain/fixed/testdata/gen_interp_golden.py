@@ -7,7 +7,7 @@ half-band, CIC interpolators and one cascade of the three kinds) on seeded
 random integer input codes, run by scipy.signal.upfirdn with INTEGER taps
 (exact: every sum stays far below 2^53), then rounded, truncated and
 saturated by the rules of the interpolation contract
-(notes/interp-contract.md, restated in chain/fixed's package doc), written
+(stated in chain/fixed's package doc, "Interpolation"), written
 out here from the rules, not from the Go code:
 
   * taps: quantised to B bits as the package doc states: Frac is the
