@@ -132,7 +132,7 @@ func (e *engine) design() (*Result, error) {
 			return nil, fmt.Errorf("remez: n = %d: numerical breakdown (non-finite coefficients); the specification is probably too demanding for double precision (%w): shorten the filter or relax the bands", e.n, ErrNotConverged)
 		}
 	}
-	res.Deviations, _ = e.deviations(res.Taps)
+	res.Deviations, e.wdev = e.deviations(res.Taps)
 	if tiny := e.laxCheck(res.Deviations, conv); tiny != nil {
 		return res, tiny
 	}

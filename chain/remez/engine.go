@@ -113,6 +113,9 @@ type engine struct {
 	seedM   int
 	seeded  bool    // the start was scaled or coarse, not evenly spread
 	bestGap float64 // smallest relative gap of the last run's grid passes
+	// wdev is the deviations' WeightFunc-shaped twin measured with the
+	// Result's Deviations (see deviations), for MinLength.
+	wdev []float64
 }
 
 // bary1 evaluates the levelled polynomial at normalised frequency f by the
@@ -318,9 +321,15 @@ func (e *engine) buildGrid() error {
 		}
 		delf = math.Min(0.5, w) / float64(e.density*e.r)
 	}
-	if pts := gridPoints(e.n, e.bands, e.density, e.gridOnly); pts > MaxGridPoints {
+	pts := gridPoints(e.n, e.bands, e.density, e.gridOnly)
+	if pts > MaxGridPoints {
 		return fmt.Errorf("%w: n = %d at Settings.Density = %d needs %.0f grid points, more than the %d allowed: lower the density (at most %d at this length) or shorten the filter",
 			ErrGridTooLarge, e.n, e.density, pts, MaxGridPoints, MaxDensity(e.n, e.rate, e.userBands()))
+	}
+	if want := int(pts) + len(e.bands); cap(e.grid) < want {
+		// Laid in one allocation: growing it point by point took about a
+		// tenth of a length search's CPU time.
+		e.grid = make([]point, 0, want)
 	}
 	e.grid = e.grid[:0]
 	e.bstart = append(e.bstart[:0], 0)
