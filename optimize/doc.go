@@ -130,7 +130,10 @@
 // same bands, deviations and compensated CIC): Plan hands every design a
 // chain.StageMemo (Settings.Chain.Memo, a fresh one when it is nil), so
 // that each distinct stage is designed once per search. The memo changes
-// no result, only the time; the caps below still count chain designs.
+// no result, only the time; the caps below still count chain designs. A
+// chain that shares a FIR or half-band stage not designed yet with a
+// chain being designed waits for a chain that shares none (looking a few
+// dozen ahead), so that no worker idles on another's design.
 //
 // Real designs cost 5 ms to 5 s each, so Settings.MaxDesigns (default 600)
 // caps them, and so does a budget of design work counted, not timed, as

@@ -9,6 +9,7 @@ import (
 	"os"
 	"reflect"
 	"sort"
+	"sync"
 	"testing"
 
 	"github.com/stepdown-dsp/stepdown/chain"
@@ -276,6 +277,57 @@ func TestRunAll(t *testing.T) {
 	// runUnit), so at least 9 finished.
 	if n == 100 || n < 9 {
 		t.Errorf("after cancel at 10, %d of 100 ran", n)
+	}
+}
+
+// TestRunApart: every call runs once whatever the keys and the number of
+// workers, and a call that shares a stage with a running one waits while
+// another is free to run.
+func TestRunApart(t *testing.T) {
+	rng := rand.New(rand.NewSource(7))
+	for _, jobs := range []int{1, 2, 3, 8} {
+		const n = 300
+		keys := make([][]realKey, n)
+		for i := range keys {
+			for range rng.Intn(4) {
+				keys[i] = append(keys[i], realKey{stageKey: stageKey{factor: int32(rng.Intn(20))}})
+			}
+		}
+		var mu sync.Mutex
+		runs := make([]int, n)
+		done := runApart(context.Background(), jobs, n, keys, func(i int) {
+			mu.Lock()
+			runs[i]++
+			mu.Unlock()
+		}, nil)
+		for i := range runs {
+			if !done[i] || runs[i] != 1 {
+				t.Fatalf("jobs %d: call %d done %v, ran %d times", jobs, i, done[i], runs[i])
+			}
+		}
+	}
+	// Calls 0 and 1 share stage a, call 2 has b: with two workers, 2 runs
+	// beside 0 (which holds until 2 has started), not 1. Once nothing else
+	// is left, 1 runs (its stage then comes from 0's design).
+	a := realKey{stageKey: stageKey{factor: 1}}
+	b := realKey{stageKey: stageKey{factor: 2}}
+	started2 := make(chan struct{})
+	done := runApart(context.Background(), 2, 3, [][]realKey{{a}, {a}, {b}}, func(i int) {
+		switch i {
+		case 0:
+			<-started2
+		case 1:
+			select {
+			case <-started2:
+			default:
+				t.Error("call 1 ran before call 2, beside call 0, which designs the same stage")
+			}
+		case 2:
+			close(started2)
+		}
+	}, nil)
+	if !done[0] || !done[1] || !done[2] {
+		t.Errorf("done %v", done)
 	}
 }
 

@@ -3,7 +3,6 @@ package optimize
 import (
 	"context"
 	"sync"
-	"sync/atomic"
 )
 
 // runAll calls work(i) for i in [0, n) on jobs goroutines. Each call writes
@@ -18,6 +17,24 @@ import (
 // again: a progress function that cancels ctx lets no more than the calls
 // already running finish after it.
 func runAll(ctx context.Context, jobs, n int, work func(i int), progress func(done, total int)) (done []bool) {
+	return runApart(ctx, jobs, n, nil, work, progress)
+}
+
+// apartWindow is how far past the lowest index not started runApart looks
+// for one whose stages no running call is designing.
+const apartWindow = 32
+
+// runApart is runAll that keeps apart the calls that would design the same
+// stage: keys[i] are the FIR and half-band stages of call i (nil keys: in
+// index order, as runAll). A worker takes the lowest index not started
+// whose stages are neither being designed by a running call nor unknown
+// (a finished call has designed all of its own), looking at most
+// apartWindow indices ahead, and else the lowest. Two calls that share a
+// stage not designed yet would otherwise run side by side, one waiting on
+// the other's design (chain.StageMemo) while its processor idles. Only the
+// order of the calls changes: each writes its own slot, and a stage's
+// design is the same whichever call makes it.
+func runApart(ctx context.Context, jobs, n int, keys [][]realKey, work func(i int), progress func(done, total int)) (done []bool) {
 	done = make([]bool, n)
 	if n == 0 {
 		return done
@@ -28,7 +45,7 @@ func runAll(ctx context.Context, jobs, n int, work func(i int), progress func(do
 	if jobs > n {
 		jobs = n
 	}
-	var next atomic.Int64
+	pk := picker{n: n, keys: keys, started: make([]bool, n), busy: map[realKey]int{}, fin: map[realKey]bool{}}
 	var mu sync.Mutex
 	count := 0
 	var wg sync.WaitGroup
@@ -40,13 +57,14 @@ func runAll(ctx context.Context, jobs, n int, work func(i int), progress func(do
 				if ctx.Err() != nil {
 					return
 				}
-				i := int(next.Add(1) - 1)
-				if i >= n {
+				i := pk.take()
+				if i < 0 {
 					return
 				}
 				if !runUnit(ctx, func() { work(i) }) {
 					return
 				}
+				pk.finish(i)
 				done[i] = true
 				mu.Lock()
 				count++
@@ -88,5 +106,65 @@ func runUnit(ctx context.Context, fn func()) bool {
 		default:
 			return false
 		}
+	}
+}
+
+// picker hands out runApart's indices.
+type picker struct {
+	mu      sync.Mutex
+	n, next int // next: lowest index perhaps not started
+	keys    [][]realKey
+	started []bool
+	busy    map[realKey]int  // running calls per stage
+	fin     map[realKey]bool // stages of finished calls: designed
+}
+
+// take returns the index to run next, or -1 when all have started.
+func (p *picker) take() int {
+	p.mu.Lock()
+	defer p.mu.Unlock()
+	for p.next < p.n && p.started[p.next] {
+		p.next++
+	}
+	if p.next >= p.n {
+		return -1
+	}
+	i := p.next
+	if p.keys != nil {
+		for j := p.next; j < p.n && j < p.next+apartWindow; j++ {
+			if !p.started[j] && !p.clash(j) {
+				i = j
+				break
+			}
+		}
+		for _, k := range p.keys[i] {
+			p.busy[k]++
+		}
+	}
+	p.started[i] = true
+	return i
+}
+
+// clash reports whether call j shares a stage not designed yet with a
+// running call.
+func (p *picker) clash(j int) bool {
+	for _, k := range p.keys[j] {
+		if p.busy[k] > 0 && !p.fin[k] {
+			return true
+		}
+	}
+	return false
+}
+
+// finish records that call i has run to completion.
+func (p *picker) finish(i int) {
+	if p.keys == nil {
+		return
+	}
+	p.mu.Lock()
+	defer p.mu.Unlock()
+	for _, k := range p.keys[i] {
+		p.busy[k]--
+		p.fin[k] = true
 	}
 }

@@ -92,7 +92,16 @@ func (t *designTier) designAll(plans [][]chain.StagePlan) bool {
 	outs := make([]outcome, len(todo))
 	prog := t.progress()
 	t.total += len(todo)
-	done := runAll(t.ctx, t.jobs, len(todo), func(i int) {
+	keys := make([][]realKey, len(todo))
+	for i, pl := range todo {
+		t.est.keysOf(pl)
+		for _, k := range t.est.keys {
+			if chain.Kind(k.kind) != chain.CIC {
+				keys[i] = append(keys[i], k)
+			}
+		}
+	}
+	done := runApart(t.ctx, t.jobs, len(todo), keys, func(i int) {
 		c, why := t.des.design(todo[i])
 		outs[i] = outcome{c: c, reason: why}
 	}, prog)

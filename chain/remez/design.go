@@ -132,7 +132,7 @@ func (e *engine) design() (*Result, error) {
 			return nil, fmt.Errorf("remez: n = %d: numerical breakdown (non-finite coefficients); the specification is probably too demanding for double precision (%w): shorten the filter or relax the bands", e.n, ErrNotConverged)
 		}
 	}
-	res.Deviations, _ = e.deviations(res.Taps)
+	res.Deviations, e.wdev = e.deviations(res.Taps)
 	if tiny := e.laxCheck(res.Deviations, conv); tiny != nil {
 		return res, tiny
 	}
@@ -146,18 +146,8 @@ func (e *engine) design() (*Result, error) {
 }
 
 // gridScale returns the largest |desired gain| (1 when all are zero) and
-// the largest weight on the grid.
-func (e *engine) gridScale() (scale, wmax float64) {
-	for i := range e.grid {
-		g := &e.grid[i]
-		scale = math.Max(scale, math.Abs(e.bands[g.band].desired(g.f)))
-		wmax = math.Max(wmax, e.bands[g.band].wt(g.f))
-	}
-	if scale == 0 {
-		scale = 1
-	}
-	return scale, wmax
-}
+// the largest weight on the grid (measured by buildGrid).
+func (e *engine) gridScale() (scale, wmax float64) { return e.gscale, e.gwmax }
 
 // laxCheck reports a specification met to rounding level, where the
 // optimum is not defined in double precision: every band's deviation, or

@@ -113,6 +113,11 @@ type engine struct {
 	seedM   int
 	seeded  bool    // the start was scaled or coarse, not evenly spread
 	bestGap float64 // smallest relative gap of the last run's grid passes
+	// wdev is the deviations' WeightFunc-shaped twin measured with the
+	// Result's Deviations (see deviations), for MinLength.
+	wdev []float64
+	// gscale and gwmax are gridScale's figures, taken as the grid is laid.
+	gscale, gwmax float64
 }
 
 // bary1 evaluates the levelled polynomial at normalised frequency f by the
@@ -147,11 +152,15 @@ func (e *engine) bary1(f float64) float64 {
 
 // mkpoint fills a point at normalised frequency f in band b.
 func (e *engine) mkpoint(f float64, b int) point {
-	s, c := math.Sincos(math.Pi * f)
-	p := point{f: f, x: (c - s) * (c + s), y: s * s, z: c * c, band: b}
 	bd := &e.bands[b]
-	p.d = bd.desired(f)
-	p.w = bd.wt(f)
+	return e.mkpointDW(f, b, bd.desired(f), bd.wt(f))
+}
+
+// mkpointDW is mkpoint with band b's desired gain d and weight w at f
+// already known.
+func (e *engine) mkpointDW(f float64, b int, d, w float64) point {
+	s, c := math.Sincos(math.Pi * f)
+	p := point{f: f, x: (c - s) * (c + s), y: s * s, z: c * c, band: b, d: d, w: w}
 	if e.type2 {
 		p.d /= c
 		p.w *= c
@@ -318,9 +327,15 @@ func (e *engine) buildGrid() error {
 		}
 		delf = math.Min(0.5, w) / float64(e.density*e.r)
 	}
-	if pts := gridPoints(e.n, e.bands, e.density, e.gridOnly); pts > MaxGridPoints {
+	pts := gridPoints(e.n, e.bands, e.density, e.gridOnly)
+	if pts > MaxGridPoints {
 		return fmt.Errorf("%w: n = %d at Settings.Density = %d needs %.0f grid points, more than the %d allowed: lower the density (at most %d at this length) or shorten the filter",
 			ErrGridTooLarge, e.n, e.density, pts, MaxGridPoints, MaxDensity(e.n, e.rate, e.userBands()))
+	}
+	if want := int(pts) + len(e.bands); cap(e.grid) < want {
+		// Laid in one allocation: growing it point by point took about a
+		// tenth of a length search's CPU time.
+		e.grid = make([]point, 0, want)
 	}
 	e.grid = e.grid[:0]
 	e.bstart = append(e.bstart[:0], 0)
@@ -365,20 +380,33 @@ func (e *engine) buildGrid() error {
 		}
 		e.bstart = append(e.bstart, len(e.grid))
 	}
+	scale, wmax := 0.0, 0.0
 	for i := range e.grid {
 		bi := 0
 		for i >= e.bstart[bi+1] {
 			bi++
 		}
-		g := e.mkpoint(e.grid[i].f, bi)
+		// Each band's gain and weight functions are called once a point
+		// (they can be costly: a compensator's CIC droop); gridScale's
+		// figures are taken here.
+		bd := &e.bands[bi]
+		f := e.grid[i].f
+		d, wt := bd.desired(f), bd.wt(f)
+		g := e.mkpointDW(f, bi, d, wt)
 		if math.IsNaN(g.d) || math.IsInf(g.d, 0) {
-			return fmt.Errorf("remez: band %d GainFunc(%v Hz) = %v: the desired gain must be finite", bi, g.f*e.rate, e.bands[bi].desired(g.f))
+			return fmt.Errorf("remez: band %d GainFunc(%v Hz) = %v: the desired gain must be finite", bi, g.f*e.rate, d)
 		}
-		if wt := e.bands[bi].wt(g.f); !(wt > 0) || math.IsInf(wt, 0) {
+		if !(wt > 0) || math.IsInf(wt, 0) {
 			return fmt.Errorf("remez: band %d WeightFunc(%v Hz) = %v: the weight must be positive and finite", bi, g.f*e.rate, wt)
 		}
+		scale = math.Max(scale, math.Abs(d))
+		wmax = math.Max(wmax, wt)
 		e.grid[i] = g
 	}
+	if scale == 0 {
+		scale = 1
+	}
+	e.gscale, e.gwmax = scale, wmax
 	if len(e.grid) < e.r+1 {
 		return fmt.Errorf("remez: only %d grid points for n = %d taps (%d needed): raise Settings.Density, widen the bands or shorten the filter", len(e.grid), e.n, e.r+1)
 	}

@@ -271,8 +271,8 @@ func (m *lengthSearch) design(n int) (*Result, []float64, bool) {
 	if res == nil {
 		return nil, nil, lax
 	}
-	_, wdev := e.deviations(res.Taps)
-	return res, wdev, lax
+	// design measured the taps already: the weighted deviations are its.
+	return res, e.wdev, lax
 }
 
 // warmStart starts each design of a length search from the nearest
