@@ -11,6 +11,13 @@ import (
 )
 
 // Analysis is the truth of a designed cascade (docs/design.md §7).
+//
+// With a rejection mask (Spec.RejectionMask) AliasRejectionDB is the
+// mask's largest rejection R plus the worst margin over the mask,
+// R + min over the alias bands of (rejection(g) - mask(g)): it reaches R
+// exactly when every alias meets the mask, so the verdict (Meets) and the
+// margin over the target read as with a flat target, and WorstAliasHz is
+// where the margin is least.
 type Analysis struct {
 	AliasRejectionDB float64 // positive dB
 	WorstAliasHz     float64 // input frequency of the worst alias
@@ -315,6 +322,11 @@ func (h *ivlHeap) pop() ivl {
 type bandSet struct {
 	n    int
 	band func(k int) Interval
+	// weight, when not nil, scales |H| at x (a rejection mask's
+	// 10^((mask(x) - target)/20)), and weightMax bounds it over an
+	// interval; the search then finds the largest weighted gain.
+	weight    func(x float64) float64
+	weightMax func(a, b float64) float64
 }
 
 // search finds the largest (sign > 0) or smallest (sign < 0) |H| over the
@@ -328,6 +340,9 @@ func (cs *cascade) search(ctx context.Context, bands bandSet, sign, certifyDB fl
 	key := func(a, b float64, coarse bool) float64 {
 		lo, up := cs.bounds(a, b, coarse)
 		if sign > 0 {
+			if bands.weightMax != nil {
+				up *= bands.weightMax(a, b)
+			}
 			return up
 		}
 		return -lo
@@ -342,6 +357,9 @@ func (cs *cascade) search(ctx context.Context, bands bandSet, sign, certifyDB fl
 	best := extreme{v: math.Inf(int(-sign))}
 	eval := func(x float64) {
 		v := cs.c.Gain(x)
+		if bands.weight != nil {
+			v *= bands.weight(x)
+		}
 		if sign*v > sign*best.v {
 			best.x, best.v = x, v
 		}
@@ -439,6 +457,16 @@ func measure(ctx context.Context, c *Chain, spec Spec) (Analysis, error) {
 		lo := float64(k+1)*fk - fa
 		return Interval{lo, math.Max(lo, math.Min(float64(k+1)*fk+fa, f0h))}
 	}}
+	if m := spec.RejectionMask; m != nil {
+		// Each alias is held to the mask at its input frequency: the
+		// search finds the largest |H(g)| 10^((mask(g) - R)/20), R the
+		// mask's largest rejection (spec.RejectionDB), so the rejection
+		// it gives is R plus the worst margin over the mask, met when it
+		// reaches R, and WorstAliasHz is where the margin is least.
+		r := spec.RejectionDB
+		aliases.weight = func(x float64) float64 { return math.Pow(10, (m.At(x)-r)/20) }
+		aliases.weightMax = func(a, b float64) float64 { return math.Pow(10, (m.MaxOver(a, b)-r)/20) }
+	}
 	a := Analysis{AliasRejectionDB: MaxFigureDB}
 	if nb > 0 {
 		w, err := cs.search(ctx, aliases, 1, aliasCertifyDB)
@@ -477,7 +505,14 @@ const (
 // Meets says whether the figures meet spec's rejection target and ripple
 // budget within the slack above. It is the one verdict on a chain: the
 // search, the word-length planner and the report all call it.
+//
+// With a rejection mask the target is the mask's largest rejection (see
+// Analysis), whether or not spec is normalised.
 func (a Analysis) Meets(spec Spec) bool {
-	return a.AliasRejectionDB >= spec.RejectionDB-RejectionSlackDB &&
+	target := spec.RejectionDB
+	if spec.RejectionMask != nil {
+		target = spec.RejectionMask.Max()
+	}
+	return a.AliasRejectionDB >= target-RejectionSlackDB &&
 		a.PassbandRippleDB <= spec.RippleDB+RippleSlackDB
 }

@@ -20,7 +20,13 @@ type Spec struct {
 	Stopband    float64 // fs; zero means OutputRate - Protected
 	RippleDB    float64
 	RejectionDB float64
-	Complex     bool // I/Q: two real filters
+	// RejectionMask, when not nil, asks each alias band for the mask's
+	// rejection at its input frequency instead of one flat RejectionDB
+	// (see Mask); RejectionDB is then the mask's largest rejection (zero
+	// fills it in; another value is refused), the level the figures of
+	// the analysis are stated against (Analysis).
+	RejectionMask *Mask
+	Complex       bool // I/Q: two real filters
 
 	InputBits  int // zero means 16
 	OutputBits int // zero means 24
@@ -234,6 +240,12 @@ func (s Spec) Normalize() (Spec, error) {
 	}
 	if !finite(s.RippleDB) || s.RippleDB <= 0 {
 		return bad("RippleDB", s.RippleDB, "must be a finite peak-to-peak ripple above 0 dB")
+	}
+	if s.RejectionMask != nil {
+		if s.RejectionDB != 0 && s.RejectionDB != s.RejectionMask.Max() {
+			return bad("RejectionDB", s.RejectionDB, "is set beside {RejectionMask}: give one of them (the mask's largest rejection, %s dB, stands for the flat target)", fmtNum(s.RejectionMask.Max()))
+		}
+		s.RejectionDB = s.RejectionMask.Max()
 	}
 	if !finite(s.RejectionDB) || s.RejectionDB <= 0 || s.RejectionDB > MaxRejectionDB {
 		return bad("RejectionDB", s.RejectionDB, "must lie in (0, %d] dB", MaxRejectionDB)
