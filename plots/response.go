@@ -46,6 +46,11 @@ type ResponseData struct {
 	// TargetDB is the alias-rejection target in positive dB, drawn as a
 	// line at -TargetDB. Zero draws no target.
 	TargetDB float64
+	// Mask, when not empty, is a rejection mask's points, [frequency Hz,
+	// rejection dB] in increasing frequency (linear in dB between points,
+	// flat beyond the ends, a repeated frequency a step), drawn at
+	// -rejection instead of the TargetDB line.
+	Mask [][2]float64
 	// PassbandHz is the passband edge in Hz, drawn as a vertical line. Zero
 	// draws none.
 	PassbandHz float64
@@ -180,6 +185,11 @@ func (d *ResponseData) check() error {
 			return fmt.Errorf("plots: ResponseData.AliasBands[%d] = %v: need finite 0 <= low <= high", i, b)
 		}
 	}
+	for i, p := range d.Mask {
+		if math.IsNaN(p[0]) || math.IsInf(p[0], 0) || p[0] < 0 || math.IsNaN(p[1]) || math.IsInf(p[1], 0) || (i > 0 && p[0] < d.Mask[i-1][0]) {
+			return fmt.Errorf("plots: ResponseData.Mask[%d] = %v: need finite points, frequencies >= 0 and non-decreasing", i, p)
+		}
+	}
 	for _, v := range []struct {
 		name string
 		v    float64
@@ -269,7 +279,23 @@ func responsePanel(d ResponseData, lo, hi, floor, top float64, logx bool, leg *p
 			legAdd("passband edge "+hz(d.PassbandHz), l)
 		}
 	}
-	if d.TargetDB > 0 {
+	if len(d.Mask) > 0 {
+		// The mask at -rejection across the span: flat beyond its ends,
+		// linear between its points (a repeated frequency is a step).
+		xy := plotter.XYs{{X: lo, Y: -maskAt(d.Mask, lo)}}
+		for _, pt := range d.Mask {
+			if pt[0] > lo && pt[0] < hi {
+				xy = append(xy, plotter.XY{X: pt[0], Y: -pt[1]})
+			}
+		}
+		xy = append(xy, plotter.XY{X: hi, Y: -maskAt(d.Mask, hi)})
+		if logx && xy[0].X <= 0 {
+			xy = xy[1:]
+		}
+		l, _ := plotter.NewLine(xy)
+		l.LineStyle = draw.LineStyle{Color: vermilion, Width: vg.Points(1.5), Dashes: []vg.Length{vg.Points(6), vg.Points(3)}}
+		add("rejection mask", l, l)
+	} else if d.TargetDB > 0 {
 		l, _ := plotter.NewLine(plotter.XYs{{X: lo, Y: -d.TargetDB}, {X: hi, Y: -d.TargetDB}})
 		l.LineStyle = draw.LineStyle{Color: vermilion, Width: vg.Points(1.5), Dashes: []vg.Length{vg.Points(6), vg.Points(3)}}
 		add(fmt.Sprintf("rejection target -%g dB", d.TargetDB), l, l)
@@ -645,4 +671,19 @@ func (dbTicks) Ticks(min, max float64) []plot.Tick {
 		ts = append(ts, t)
 	}
 	return ts
+}
+
+// maskAt is the mask's rejection at f: linear between points, flat beyond
+// the ends (the drawing's view of chain.Mask).
+func maskAt(m [][2]float64, f float64) float64 {
+	if f <= m[0][0] {
+		return m[0][1]
+	}
+	for i := 1; i < len(m); i++ {
+		if f < m[i][0] {
+			a, b := m[i-1], m[i]
+			return a[1] + (b[1]-a[1])*(f-a[0])/(b[0]-a[0])
+		}
+	}
+	return m[len(m)-1][1]
 }

@@ -228,7 +228,7 @@ type key struct {
 // known lists every key of the format, in the order of the README.
 var known = []key{
 	{path: "input_rate"}, {path: "output_rate"}, {path: "passband"}, {path: "protected"},
-	{path: "stopband"}, {path: "ripple"}, {path: "rejection"}, {path: "signal"},
+	{path: "stopband"}, {path: "ripple"}, {path: "rejection"}, {path: "rejection_mask"}, {path: "signal"},
 	{path: "words", table: true}, {path: "words.input"}, {path: "words.output"}, {path: "words.coefficients"},
 	{path: "words.unity_gain"},
 	{path: "hardware", table: true}, {path: "hardware.clock"}, {path: "hardware.multiplier"},
@@ -503,6 +503,12 @@ func (p *parser) quantity(dotted string, k units.Kind, required bool) (float64, 
 		}
 		return 0, false, nil
 	}
+	f, err := p.quantityOf(dotted, v, k)
+	return f, err == nil, err
+}
+
+// quantityOf reads v, found at dotted, as a quantity of kind k.
+func (p *parser) quantityOf(dotted string, v any, k units.Kind) (float64, error) {
 	unit, example := "Hz", `"1.2 MHz"`
 	switch k {
 	case units.Level:
@@ -512,24 +518,64 @@ func (p *parser) quantity(dotted string, k units.Kind, required bool) (float64, 
 	}
 	switch x := v.(type) {
 	case int64:
-		return float64(x), true, nil
+		return float64(x), nil
 	case float64:
 		if math.IsNaN(x) || math.IsInf(x, 0) {
-			return 0, false, p.errAt(dotted, v, "not a finite number")
+			return 0, p.errAt(dotted, v, "not a finite number")
 		}
-		return x, true, nil
+		return x, nil
 	case string:
 		f, err := units.Parse(x, k)
 		if err != nil {
 			var ue *units.Error
 			if errors.As(err, &ue) {
-				return 0, false, p.errAt(dotted, v, "%s", ue.Rule)
+				return 0, p.errAt(dotted, v, "%s", ue.Rule)
 			}
-			return 0, false, p.errAt(dotted, v, "%v", err)
+			return 0, p.errAt(dotted, v, "%v", err)
 		}
-		return f, true, nil
+		return f, nil
 	}
-	return 0, false, p.errAt(dotted, v, "want a number in %s or text with a unit such as %s, not %s", unit, example, typeName(v))
+	return 0, p.errAt(dotted, v, "want a number in %s or text with a unit such as %s, not %s", unit, example, typeName(v))
+}
+
+// rejectionMask reads rejection_mask: a list of [frequency, rejection]
+// pairs (chain.NewMask's rules).
+func (p *parser) rejectionMask(v any) (*chain.Mask, error) {
+	const key = "rejection_mask"
+	arr, ok := v.([]any)
+	if !ok || len(arr) == 0 {
+		return nil, p.errAt(key, v, `want a list of [frequency, rejection] points such as [["1 MHz", "60 dB"], ["3 MHz", "90 dB"]]`)
+	}
+	var pts []chain.MaskPoint
+	for i, e := range arr {
+		pair, ok := e.([]any)
+		if !ok || len(pair) != 2 {
+			return nil, p.errAt(key, v, `point %d is %s: want a pair [frequency, rejection] such as ["1 MHz", "60 dB"]`, i+1, show(e))
+		}
+		f, err := p.quantityOf(key, pair[0], units.Frequency)
+		if err != nil {
+			return nil, p.errAt(key, v, "point %d's frequency %s: %s", i+1, show(pair[0]), ruleOf(err))
+		}
+		db, err := p.quantityOf(key, pair[1], units.Level)
+		if err != nil {
+			return nil, p.errAt(key, v, "point %d's rejection %s: %s", i+1, show(pair[1]), ruleOf(err))
+		}
+		pts = append(pts, chain.MaskPoint{Hz: f, DB: db})
+	}
+	m, err := chain.NewMask(pts)
+	if err != nil {
+		return nil, p.errAt(key, v, "%v", err)
+	}
+	return m, nil
+}
+
+// ruleOf is the rule of a spec file error, or its text.
+func ruleOf(err error) string {
+	var e *Error
+	if errors.As(err, &e) {
+		return e.Rule
+	}
+	return err.Error()
 }
 
 // typeName names a decoded value's type in the user's words, with its
@@ -619,7 +665,7 @@ func (p *parser) checkTable(name string) error {
 var goField = []struct{ goName, key string }{
 	{"InputRate", "input_rate"}, {"OutputRate", "output_rate"}, {"Passband", "passband"},
 	{"Protected", "protected"}, {"Stopband", "stopband"}, {"RippleDB", "ripple"},
-	{"RejectionDB", "rejection"}, {"InputBits", "words.input"}, {"OutputBits", "words.output"},
+	{"RejectionDB", "rejection"}, {"RejectionMask", "rejection_mask"}, {"InputBits", "words.input"}, {"OutputBits", "words.output"},
 	{"CoefBits", "words.coefficients"},
 }
 
@@ -662,6 +708,18 @@ func (p *parser) build() (*Spec, error) {
 		key string
 		dst *float64
 	}{{"ripple", &cs.RippleDB}, {"rejection", &cs.RejectionDB}} {
+		if mv, ok := p.lookup("rejection_mask"); ok && f.key == "rejection" {
+			// A mask stands for the flat target; the two are exclusive.
+			if rv, both := p.lookup("rejection"); both {
+				return nil, p.errAt("rejection", rv, "is given beside rejection_mask: give one of them (the mask's largest rejection stands for the flat target)")
+			}
+			m, err := p.rejectionMask(mv)
+			if err != nil {
+				return nil, err
+			}
+			cs.RejectionMask = m
+			continue
+		}
 		if raw, ok := p.lookup(f.key); ok && f.key == "ripple" {
 			if t, ok := raw.(string); ok {
 				if pm := plusMinus(t); pm != "" {

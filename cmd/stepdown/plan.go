@@ -485,7 +485,11 @@ func printSummary(w io.Writer, j *job, rep *report.Report, files []report.File) 
 	fmt.Fprintf(w, "  %s -> %s (%s), %s signal; passband %s, protected %s, stopband %s\n",
 		units.FormatFrequency(s.InputRateHz), units.FormatFrequency(s.OutputRateHz), ratio, s.Signal,
 		units.FormatFrequency(s.PassbandHz), units.FormatFrequency(s.ProtectedHz), units.FormatFrequency(s.StopbandHz))
-	fmt.Fprintf(w, "  ripple %g dB peak-to-peak, rejection %g dB\n", s.RippleDB, s.RejectionDB)
+	if len(s.RejectionMask) > 0 {
+		fmt.Fprintf(w, "  ripple %g dB peak-to-peak, rejection mask of %d points up to %g dB (a chain's rejection is %g dB plus its worst margin over the mask)\n", s.RippleDB, len(s.RejectionMask), s.RejectionDB, s.RejectionDB)
+	} else {
+		fmt.Fprintf(w, "  ripple %g dB peak-to-peak, rejection %g dB\n", s.RippleDB, s.RejectionDB)
+	}
 	if rep.Command == "plan" {
 		fmt.Fprintf(w, "  searched %d candidates: %d feasible by estimate, %d designed, %d on the front\n",
 			rep.Search.Candidates, rep.Search.Feasible, rep.Search.Designed, len(rep.Front))

@@ -265,6 +265,7 @@ func responseData(cand optimize.Candidate, spec *specfile.Spec, ch Chain) (plots
 	}
 	f0 := c.InputRate
 	rd := plots.ResponseData{
+		Mask:         maskPoints(cs.RejectionMask),
 		Images:       cs.Direction() == chain.Interpolate,
 		Title:        title,
 		TargetDB:     cs.RejectionDB,

@@ -57,21 +57,26 @@ type Report struct {
 // Decimation and Interpolation are D and L, the other one 1, so that the
 // rate change is Interpolation/Decimation in both directions.
 type Spec struct {
-	InputRateHz   float64  `json:"input_rate_hz"`
-	OutputRateHz  float64  `json:"output_rate_hz"`
-	Direction     string   `json:"direction"`
-	Decimation    int      `json:"decimation"`
-	Interpolation int      `json:"interpolation"`
-	PassbandHz    float64  `json:"passband_hz"`
-	ProtectedHz   float64  `json:"protected_hz"`
-	StopbandHz    float64  `json:"stopband_hz"`
-	RippleDB      float64  `json:"ripple_db"`
-	RejectionDB   float64  `json:"rejection_db"`
-	Signal        string   `json:"signal"`
-	Words         Words    `json:"words"`
-	Hardware      Hardware `json:"hardware"`
-	Cost          Cost     `json:"cost"`
-	SearchLimits  Limits   `json:"search"`
+	InputRateHz   float64 `json:"input_rate_hz"`
+	OutputRateHz  float64 `json:"output_rate_hz"`
+	Direction     string  `json:"direction"`
+	Decimation    int     `json:"decimation"`
+	Interpolation int     `json:"interpolation"`
+	PassbandHz    float64 `json:"passband_hz"`
+	ProtectedHz   float64 `json:"protected_hz"`
+	StopbandHz    float64 `json:"stopband_hz"`
+	RippleDB      float64 `json:"ripple_db"`
+	RejectionDB   float64 `json:"rejection_db"`
+	// RejectionMask is rejection_mask's points, [frequency Hz, rejection
+	// dB]; absent without one. RejectionDB is then its largest rejection,
+	// a chain's rejection_margin_db its worst margin over the mask and
+	// worst_alias_hz (worst_image_hz) where that margin is least.
+	RejectionMask [][2]float64 `json:"rejection_mask,omitempty"`
+	Signal        string       `json:"signal"`
+	Words         Words        `json:"words"`
+	Hardware      Hardware     `json:"hardware"`
+	Cost          Cost         `json:"cost"`
+	SearchLimits  Limits       `json:"search"`
 }
 
 // Words are the word lengths in bits. Coefficients is the width the spec
@@ -290,13 +295,27 @@ func (s Spec) Unwanted() string {
 	return "alias"
 }
 
+// maskPoints is m's points as [frequency Hz, rejection dB] pairs, nil for
+// no mask.
+func maskPoints(m *chain.Mask) [][2]float64 {
+	if m == nil {
+		return nil
+	}
+	var out [][2]float64
+	for _, p := range m.Points() {
+		out = append(out, [2]float64{p.Hz, p.DB})
+	}
+	return out
+}
+
 // NewSpec converts a parsed spec file.
 func NewSpec(s *specfile.Spec) Spec {
 	c := s.Chain
 	out := Spec{
 		InputRateHz: c.InputRate, OutputRateHz: c.OutputRate,
 		Direction: c.Direction().String(), Decimation: c.Decimation(), Interpolation: c.Interpolation(),
-		PassbandHz: c.Passband, ProtectedHz: c.Protected, StopbandHz: c.Stopband,
+		RejectionMask: maskPoints(c.RejectionMask),
+		PassbandHz:    c.Passband, ProtectedHz: c.Protected, StopbandHz: c.Stopband,
 		RippleDB: c.RippleDB, RejectionDB: c.RejectionDB, Signal: s.Signal,
 		Words: Words{Input: c.InputBits, Output: c.OutputBits},
 		Cost:  Cost{Symmetry: s.Symmetry},
