@@ -20,7 +20,9 @@
 //     likewise: output_rate = input_rate L;
 //   - passband, protected, stopband [passband, protected, stopband]:
 //     frequencies;
-//   - ripple, rejection [ripple, rejection]: levels in dB;
+//   - ripple, rejection [ripple, rejection]: levels in dB; with a
+//     rejection_mask in the spec, rejection moves the whole mask, every
+//     point by the same dB, so that its largest rejection is the value;
 //   - clock [hardware.clock]: a frequency (alias hardware.clock);
 //   - input_bits, output_bits [words.input, words.output]: whole bits in
 //     [2, 32] (aliases words.input, words.output);

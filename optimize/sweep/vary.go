@@ -390,6 +390,18 @@ func ApplyAll(spec []byte, sets ...Setting) ([]byte, error) {
 				val = units.FormatFrequency(in * v)
 			}
 		}
+		if k.Path == "rejection" {
+			if mask, ok := root["rejection_mask"]; ok {
+				// A mask is swept whole: every point moves by the same
+				// dB, so that its largest rejection is v.
+				shifted, err := shiftMask(mask, v)
+				if err != nil {
+					return nil, err
+				}
+				root["rejection_mask"] = shifted
+				continue
+			}
+		}
 		path := strings.Split(k.Path, ".")
 		m := root
 		for _, p := range path[:len(path)-1] {
@@ -466,4 +478,45 @@ func SpecWith(name string, spec []byte, sets ...Setting) (*specfile.Spec, error)
 		return nil, err
 	}
 	return s, nil
+}
+
+// shiftMask returns the decoded rejection_mask points with every
+// rejection moved by the same amount, so that the largest is top dB. A
+// mask it cannot read is left to the spec's parser to refuse, unchanged.
+func shiftMask(v any, top float64) (any, error) {
+	arr, ok := v.([]any)
+	if !ok {
+		return v, nil
+	}
+	level := func(x any) (float64, bool) {
+		switch y := x.(type) {
+		case int64:
+			return float64(y), true
+		case float64:
+			return y, true
+		case string:
+			f, err := units.Parse(y, units.Level)
+			return f, err == nil
+		}
+		return 0, false
+	}
+	best := math.Inf(-1)
+	for _, e := range arr {
+		pair, ok := e.([]any)
+		if !ok || len(pair) != 2 {
+			return v, nil
+		}
+		db, ok := level(pair[1])
+		if !ok {
+			return v, nil
+		}
+		best = math.Max(best, db)
+	}
+	out := make([]any, len(arr))
+	for i, e := range arr {
+		pair := e.([]any)
+		db, _ := level(pair[1])
+		out[i] = []any{pair[0], db + top - best}
+	}
+	return out, nil
 }
