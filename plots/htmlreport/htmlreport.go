@@ -428,7 +428,7 @@ func specRows(s report.Spec) []kv {
 		{protected, freq(s.ProtectedHz)},
 		{"Final stopband edge", freq(s.StopbandHz)},
 		{"Passband ripple", shortest(s.RippleDB) + " dB peak-to-peak"},
-		{rejection, shortest(s.RejectionDB) + " dB"},
+		{rejection, rejectionText(s)},
 		{"Signal", s.Signal},
 	}
 	coef := "floating point"
@@ -752,4 +752,17 @@ func fileNames(files []report.File) []string {
 		out = append(out, f.Name)
 	}
 	return out
+}
+
+// rejectionText is the spec's rejection: the flat target, or the mask's
+// points and what its figures mean.
+func rejectionText(s report.Spec) string {
+	if len(s.RejectionMask) == 0 {
+		return shortest(s.RejectionDB) + " dB"
+	}
+	pts := make([]string, len(s.RejectionMask))
+	for i, p := range s.RejectionMask {
+		pts[i] = freq(p[0]) + ": " + shortest(p[1]) + " dB"
+	}
+	return "mask " + strings.Join(pts, ", ") + " (linear in dB between points; the rejection figures below are " + shortest(s.RejectionDB) + " dB plus the worst margin over the mask)"
 }
