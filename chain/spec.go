@@ -270,6 +270,27 @@ func (s Spec) Normalize() (Spec, error) {
 	return s, nil
 }
 
+// RejectionRaised returns s with its rejection target raised by db dB
+// (lowered for a negative db): the flat target, or every point of the
+// mask. The search designs a chain again against it when the chain misses
+// by a little. A target raised out of (0, MaxRejectionDB] is left for
+// Normalize to refuse.
+func (s Spec) RejectionRaised(db float64) Spec {
+	if s.RejectionMask == nil {
+		s.RejectionDB += db
+		return s
+	}
+	m, err := s.RejectionMask.Shifted(db)
+	if err != nil {
+		// Beside the mask, a RejectionDB that is not its largest
+		// rejection: Normalize refuses the spec.
+		s.RejectionDB += db
+		return s
+	}
+	s.RejectionMask, s.RejectionDB = m, m.Max()
+	return s
+}
+
 // Decimation returns D = InputRate/OutputRate of a normalised decimation
 // spec, or of an interpolation spec's DecimationView; 1 for an
 // interpolation spec itself.

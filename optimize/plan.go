@@ -274,8 +274,7 @@ func (r realDesigner) measure(c Candidate) (Candidate, Reason) {
 	raise := 0.0
 	for try := 0; try < maxRedesigns && margin < -rejectionSlackDB && margin >= -r.spec.RippleDB && r.ctx.Err() == nil; try++ {
 		raise += -margin + redesignExtraDB
-		spec := r.spec
-		spec.RejectionDB += raise
+		spec := r.spec.RejectionRaised(raise)
 		ch, err := chain.DesignContext(r.ctx, spec, c.Plan, r.s.Chain)
 		if err != nil {
 			break
@@ -471,8 +470,7 @@ func (r realDesigner) survive(c Candidate, spec chain.Spec) (Candidate, Reason) 
 				break
 			}
 		}
-		tight := spec
-		tight.RejectionDB += raise
+		tight := spec.RejectionRaised(raise)
 		tight.RippleDB -= cut
 		ch, err := chain.DesignContext(r.ctx, tight, c.Plan, r.s.Chain)
 		if err != nil {
