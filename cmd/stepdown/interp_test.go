@@ -97,3 +97,42 @@ func TestPlanInterpolationEndToEnd(t *testing.T) {
 		}
 	}
 }
+
+// TestPlanMaskEndToEnd plans the invented blocker-mask spec and checks
+// report.json's mask fields: the mask echoed, the target its largest
+// rejection, and each chain's margin its rejection less that target.
+func TestPlanMaskEndToEnd(t *testing.T) {
+	dir := t.TempDir()
+	spec, err := os.ReadFile(filepath.Join("..", "..", "testdata", "specs", "blocker_mask.toml"))
+	if err != nil {
+		t.Fatal(err)
+	}
+	spec = append(spec, []byte("\n[search]\nmax_stages = 3\n")...)
+	if err := os.WriteFile(filepath.Join(dir, "m.toml"), spec, 0o644); err != nil {
+		t.Fatal(err)
+	}
+	r := runBinary(t, dir, nil, "plan", "m.toml", "--out", "out")
+	if r.code != 0 {
+		t.Fatalf("plan: exit %d: %s", r.code, r.stderr)
+	}
+	if !strings.Contains(r.stdout, "rejection mask of 4 points up to 90 dB") {
+		t.Errorf("the table does not state the mask:\n%s", r.stdout)
+	}
+	rep := readReport(t, filepath.Join(dir, "out", "report.json"))
+	s := rep["spec"].(map[string]any)
+	if s["rejection_db"] != 90.0 || len(s["rejection_mask"].([]any)) != 4 {
+		t.Errorf("spec: rejection_db %v, rejection_mask %v", s["rejection_db"], s["rejection_mask"])
+	}
+	for i, x := range rep["front"].([]any) {
+		c := x.(map[string]any)
+		rej, margin := c["alias_rejection_db"].(float64), c["rejection_margin_db"].(float64)
+		if c["verdict_basis"] != "rounded taps" {
+			if math.Abs(rej-90-margin) > 1e-9 {
+				t.Errorf("chain %d: rejection %v, margin %v", i+1, rej, margin)
+			}
+		}
+		if c["meets_targets"] == true && margin < -0.01 {
+			t.Errorf("chain %d meets with a margin of %v dB", i+1, margin)
+		}
+	}
+}
