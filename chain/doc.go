@@ -228,6 +228,22 @@
 // interpolating structure (never optimistic, within 0.01 dB) on 150 random
 // designed interpolation chains (1000 with STEPDOWN_LONG=1).
 //
+// # Rejection mask
+//
+// Spec.RejectionMask replaces the flat target with a Mask over the input
+// band: the alias of input frequency g landing in [0, fa] must lie at least
+// mask(g) below the gain at 0 Hz, mask(g) linear in dB between its points,
+// flat beyond its ends, the larger side at a step. Normalize sets
+// RejectionDB to the mask's largest rejection R. Analyze then runs the
+// certified search on the weighted gain |H(g)| 10^((mask(g) - R)/20) (its
+// bound over an interval is the gain's bound times the weight's largest
+// value there, at the interval's ends or the mask's points inside), so
+// AliasRejectionDB is R plus the worst margin over the mask and
+// WorstAliasHz where it lies; Meets and every margin over the target read
+// as with a flat target. TestAnalyzeMask holds it to a brute-force
+// reference on random chains and masks. Stage requirements are still
+// those of the flat target R, the mask's largest rejection (the safe side).
+//
 // # Interpolation
 //
 // A Spec whose OutputRate is L times its InputRate is an interpolation
