@@ -12,7 +12,7 @@ import (
 type golden struct {
 	Butter []struct {
 		Order   int
-		FC      float64 `json:"fc"`
+		FC      float64   `json:"fc"`
 		PolesRe []float64 `json:"poles_re"`
 		PolesIm []float64 `json:"poles_im"`
 	}
