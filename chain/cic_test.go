@@ -229,7 +229,7 @@ func TestPruneCICErrors(t *testing.T) {
 	// Bad parameters are errors, not panics; NewCICStage (no error) falls
 	// back to unpruned registers or none.
 	for _, a := range [][5]int{{0, 1, 8, 16, 24}, {17, 1, 8, 16, 24}, {3, 0, 8, 16, 24}, {3, 17, 8, 16, 24},
-		{3, 1, 0, 16, 24}, {3, 1, 8, 1, 24}, {3, 1, 8, 16, 1}, {16, 16, 1 << 20, 16, 24}, {3, 1, 1<<20 + 1, 16, 24}, {-1, -1, -1, 16, 24}} {
+		{3, 1, 0, 16, 24}, {3, 1, 8, 0, 24}, {3, 1, 8, 16, 1}, {16, 16, 1 << 20, 16, 24}, {3, 1, 1<<20 + 1, 16, 24}, {-1, -1, -1, 16, 24}} {
 		if _, err := PruneCIC(a[0], a[1], a[2], a[3], a[4]); err == nil {
 			t.Errorf("PruneCIC%v: no error", a)
 		}

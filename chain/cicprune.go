@@ -186,8 +186,8 @@ func newCICPlanner(n, m, r, inBits, outBits int) (*cicPlanner, error) {
 		return nil, fmt.Errorf("chain: CIC differential delay M = %d; it must be 1..%d", m, maxCICDelay)
 	case r < 1 || r > maxNotationFactor:
 		return nil, fmt.Errorf("chain: CIC factor R = %d; it must be 1..%d", r, maxNotationFactor)
-	case inBits < 2 || outBits < 2:
-		return nil, fmt.Errorf("chain: CIC word widths in %d, out %d; each must be >= 2", inBits, outBits)
+	case inBits < 1 || outBits < 2:
+		return nil, fmt.Errorf("chain: CIC word widths in %d, out %d; the input must be >= 1 (1 bit: a noise-shaped converter's codes), the output >= 2", inBits, outBits)
 	}
 	// Bmax = ceil(N log2(RM) + Bin - 1); the width is Bmax + 1. The growth
 	// ceil(N log2 RM) is the bit length of (RM)^N - 1, computed exactly.

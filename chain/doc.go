@@ -46,7 +46,9 @@
 // the two nearest integer ratios and their output rates) or is below 2;
 // fp outside (0, FK/2); fa outside [fp, FK/2]; fs outside (fp, FK - fa];
 // ripple not above 0; rejection outside (0, 150] dB; word lengths outside
-// 2..64 when set.
+// 2..64 when set (InputBits may be 1 with NoiseShaped: a sigma-delta
+// modulator's codes, package sigmadelta, which also derives the
+// RejectionMask; NoiseShaped is refused on an interpolation spec).
 //
 // # Stage requirements (docs/design.md §4)
 //

@@ -31,6 +31,12 @@ type Spec struct {
 	InputBits  int // zero means 16
 	OutputBits int // zero means 24
 	CoefBits   int // zero means floating-point coefficients
+	// NoiseShaped says that the input words are a noise-shaped
+	// converter's (a sigma-delta modulator's, package sigmadelta), whose
+	// quantisation noise the rejection mask accounts for: InputBits may
+	// then be 1. It changes nothing else here. Only a decimation spec
+	// takes it.
+	NoiseShaped bool
 
 	// transposed marks the decimation view of an interpolation spec
 	// (DecimationView): its rates are swapped, and Direction still says
@@ -256,12 +262,18 @@ func (s Spec) Normalize() (Spec, error) {
 	if s.OutputBits == 0 {
 		s.OutputBits = DefaultOutputBits
 	}
+	if s.NoiseShaped && s.Direction() == Interpolate {
+		return bad("OutputRate", s.OutputRate, "a noise-shaped input (NoiseShaped) feeds a decimation chain: {OutputRate} must be below {InputRate}")
+	}
 	for _, f := range []struct {
 		name string
 		v    int
 	}{{"InputBits", s.InputBits}, {"OutputBits", s.OutputBits}, {"CoefBits", s.CoefBits}} {
 		if f.name == "CoefBits" && f.v == 0 {
 			continue
+		}
+		if f.name == "InputBits" && s.NoiseShaped && f.v == 1 {
+			continue // a single-bit modulator's codes
 		}
 		if f.v < 2 || f.v > 64 {
 			return bad(f.name, float64(f.v), "must lie in [2, 64] bits")

@@ -190,6 +190,9 @@ type params struct {
 	// high rate first), and the words flow the other way: the channel-side
 	// stage takes the input word, a CIC the words between stages.
 	interp bool
+	// mask is the spec's rejection mask (nil for a flat target): a CIC's
+	// alias at g is held to mask(g), as chain.Analyze holds it.
+	mask *chain.Mask
 }
 
 // newParams reads a spec whose defaults are filled in.
@@ -201,6 +204,7 @@ func newParams(spec chain.Spec, noSym bool) params {
 		inBits: spec.InputBits, dataBits: spec.OutputBits, coefBits: spec.CoefBits,
 		fixedBits: spec.CoefBits, complex: spec.Complex, noSym: noSym,
 		interp: spec.Direction() == chain.Interpolate,
+		mask:   spec.RejectionMask,
 	}
 	if p.fa == 0 {
 		p.fa = p.fp
@@ -618,7 +622,10 @@ func cicGain(f, rate float64, r, n, m int) float64 {
 // band is sampled and the largest sample refined by golden-section search.
 // Bands are visited upward and the walk stops once the response's envelope
 // 1/(RM sin(pi f/F))^N falls below the worst gain found, since it only
-// decreases.
+// decreases. With a rejection mask, a first-stage CIC's alias at f is read
+// against mask(f): the rejection is the mask's largest plus the worst
+// margin, as chain.Analyze gives it (a CIC later in the chain is still
+// read against the flat largest rejection, which is safe).
 func cicRejection(p *params, rate float64, r, n, m int, last bool) float64 {
 	out := rate / float64(r)
 	worst := 0.0
@@ -635,7 +642,16 @@ func cicRejection(p *params, rate float64, r, n, m int, last bool) float64 {
 		if env <= worst {
 			break
 		}
-		worst = math.Max(worst, bandMax(func(f float64) float64 { return cicGain(f, rate, r, n, m) }, lo, hi))
+		gain := func(f float64) float64 { return cicGain(f, rate, r, n, m) }
+		if p.mask != nil && rate == p.f0 {
+			// Weighted as chain.Analyze weighs a mask: the gain times
+			// 10^((mask(f) - R)/20), R the mask's largest rejection, at
+			// most 1, so the envelope test above still holds.
+			gain = func(f float64) float64 {
+				return cicGain(f, rate, r, n, m) * math.Pow(10, (p.mask.At(f)-p.rejDB)/20)
+			}
+		}
+		worst = math.Max(worst, bandMax(gain, lo, hi))
 	}
 	if worst <= 0 {
 		return 400

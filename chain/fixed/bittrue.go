@@ -52,6 +52,10 @@ type Signal struct {
 	Samples int
 	// Seed seeds the noise and the tones' phases (PCG); zero means 1.
 	Seed uint64
+	// Shaper, when not nil, is a noise-shaped converter (a sigma-delta
+	// modulator) that makes the input codes in place of the ADC, and the
+	// run measures the SNR in [0, passband] at the output (see Shaper).
+	Shaper Shaper
 }
 
 // BitTrueResult compares the integer chain with the float chain.
@@ -127,6 +131,13 @@ type BitTrueResult struct {
 	// the chain's gain at its frequency (Widths.DCGain near DC).
 	OutputLevels []float64
 
+	// PredictedSNRDB is, for a run fed by a Shaper, its predicted SNR
+	// for the quantised cascade (Shaper.PredictedSNR on the rounded taps),
+	// beside the measured SNRDB; zero otherwise.
+	PredictedSNRDB float64
+	// Shaped describes the Shaper that fed the run, "" for none.
+	Shaped string
+
 	Samples      int // output samples measured
 	AliasSamples int // output samples of the alias measurement (up to 16 x Samples, see AliasValid)
 	InputSamples int // input samples run (the first run)
@@ -173,6 +184,9 @@ func BitTrueContext(ctx context.Context, c Cascade, w *Widths, sig Signal) (BitT
 		return BitTrueResult{}, err
 	}
 	if c.Interpolate {
+		if sig.Shaper != nil {
+			return BitTrueResult{}, fmt.Errorf("fixed: a noise-shaped input (Signal.Shaper) feeds a decimation cascade only")
+		}
 		return bitTrueInterp(ctx, c, w, sig)
 	}
 	fp, fa := c.Passband, c.Protected
@@ -193,6 +207,9 @@ func BitTrueContext(ctx context.Context, c Cascade, w *Widths, sig Signal) (BitT
 	}
 	if sig.Samples < 64 {
 		return BitTrueResult{}, fmt.Errorf("fixed: signal Samples = %d: must be >= 64", sig.Samples)
+	}
+	if sig.Shaper != nil {
+		return bitTrueShaped(ctx, c, w, sig, fp, fk, d, auto)
 	}
 	sd, err := sig.fill(w.InputBits, fp, fk, c.InputRate, 0)
 	if err != nil {
@@ -277,57 +294,8 @@ func BitTrueContext(ctx context.Context, c Cascade, w *Widths, sig Signal) (BitT
 	}
 	res.SNRValid = res.SNRNote == ""
 
-	// Run 2: a tone at the worst alias of the quantised cascade.
-	q, qspec := cascadeChain(c, w, true)
-	h0q := q.Gain(0) * cicScale(w)
-	var g float64
-	if sig.AliasHz > 0 {
-		g = sig.AliasHz
-		res.WorstAliasResponseDB = posDB(q.Gain(g) / q.Gain(0))
-	} else {
-		// The worst alias is chain.Analyze's, on the quantised cascade.
-		a, err := chain.AnalyzeContext(ctx, q, qspec)
-		if err != nil {
-			return BitTrueResult{}, fmt.Errorf("fixed: the quantised cascade's worst alias: %w", err)
-		}
-		g, res.WorstAliasResponseDB = a.WorstAliasHz, a.AliasRejectionDB
-	}
-	fch, _ := cascadeChain(c, w, false)
-	h0f := fch.Gain(0) * cicScale(w)
-	a := math.Pow(10, sig.AliasLevel/20)
-	g0 := g
-	// A window four times as long lowers the noise in the bin by 6 dB; the
-	// run is retried so while the noise masks the alias and memory allows.
-	for win := nm; ; win *= 4 {
-		g = g0
-		fold := math.Mod(g, fk)
-		mirror := fold > fk/2
-		if mirror {
-			fold = fk - fold
-		}
-		m := math.Max(1, math.Min(float64(win/2-1), math.Round(fold/fk*float64(win))))
-		fout := m * fk / float64(win)
-		if mirror {
-			g += fold - fout
-		} else {
-			g += fout - fold
-		}
-		res.AliasHz, res.AliasOutHz, res.AliasSamples = g, fout, win
-		res.AliasResponseDB = posDB(q.Gain(g) / q.Gain(0))
-		tone := []toneGen{{g, a, 2 * math.Pi * rng.Float64()}}
-		yi, yf, _, _, _, err = stream(ctx, c, w, (skip+win)*d, skip, win, signalGen(tone, noise, rng, c.InputRate))
-		if err != nil {
-			return BitTrueResult{}, err
-		}
-		ai, resid := project(yi, fout/fk)
-		af, _ := project(yf, fout/fk)
-		res.AliasRejectionDB = posDB(ai / (a * h0q))
-		res.AliasFloatRunDB = posDB(af / (a * h0f))
-		res.AliasNoiseDB = posDB(2 * resid / math.Sqrt(float64(win)) / (a * h0q))
-		res.AliasValid = res.AliasNoiseDB >= res.AliasRejectionDB+20
-		if res.AliasValid || res.AliasNoiseDB+12 < res.AliasRejectionDB+20 || (skip+4*win)*d > autoInputSamples || win >= 16*nm {
-			break
-		}
+	if err := aliasRun(ctx, c, w, sig, &res, rng, noise, nm, skip, d, fk, nil); err != nil {
+		return BitTrueResult{}, err
 	}
 	return res, nil
 }
@@ -578,6 +546,11 @@ type chainState struct {
 	n       int   // input samples run
 	outs    []int // per stage, its output samples so far
 	xi      []int64
+	// enc, when not nil, makes the input codes in place of ADC (a
+	// Shaper's encoder); encErr is its first error, after which the
+	// codes are zero.
+	enc    Encoder
+	encErr error
 }
 
 // saturations returns per stage how many of its outputs saturated (0 for
@@ -643,7 +616,16 @@ func (cs *chainState) run(x []float64) (yi, yf []float64) {
 		cs.xi = make([]int64, len(x))
 	}
 	xi := cs.xi[:len(x)]
-	cs.clipped += ADC(xi, x, cs.bits)
+	if cs.enc == nil {
+		cs.clipped += ADC(xi, x, cs.bits)
+	} else {
+		if cs.encErr == nil {
+			cs.encErr = cs.enc.Encode(xi, x)
+		}
+		if cs.encErr != nil {
+			clear(xi)
+		}
+	}
 	lsb := math.Ldexp(1, -(cs.bits - 1)) // exact scaling, as Ldexp
 	for n, q := range xi {
 		e := float64(q)*lsb - x[n]
@@ -739,10 +721,12 @@ func runBoth(c Cascade, w *Widths, x []float64) (yi, yf []float64, inErr float64
 // ADC quantises x (fractions of full scale) to bits-bit two's-complement
 // codes in dst: code = round(x * 2^(bits-1)) (halves away from zero),
 // saturated to [-2^(bits-1), 2^(bits-1)-1]. It returns how many samples
-// saturated. dst must be at least as long as x; bits must lie in [2, 62].
+// saturated. dst must be at least as long as x; bits must lie in [1, 62]
+// (a 1-bit word, the codes -1 and 0, carries a noise-shaped converter's
+// codes: see Signal.Shaper).
 func ADC(dst []int64, x []float64, bits int) int {
-	if bits < 2 || bits > 62 || len(dst) < len(x) {
-		panic("fixed: ADC with a short dst or bits outside [2, 62]")
+	if bits < 1 || bits > 62 || len(dst) < len(x) {
+		panic("fixed: ADC with a short dst or bits outside [1, 62]")
 	}
 	lim := int64(1)<<(bits-1) - 1
 	clipped := 0
@@ -979,4 +963,88 @@ func cicTaps(n, rm int, scale float64) []float64 {
 		h = g
 	}
 	return h
+}
+
+// aliasRun is the bit-true run's alias test (run 2): a tone at the worst
+// alias of the quantised cascade (or sig.AliasHz), measured after the
+// chain by projection, its window lengthened while the noise masks it. It
+// fills res's alias fields. enc, when not nil, makes the input codes of
+// each run (a Shaper's fresh encoder) in place of the ADC.
+func aliasRun(ctx context.Context, c Cascade, w *Widths, sig Signal, res *BitTrueResult, rng *rand.Rand, noise float64, nm, skip, d int, fk float64, enc func() (Encoder, error)) error {
+	// Run 2: a tone at the worst alias of the quantised cascade.
+	q, qspec := cascadeChain(c, w, true)
+	h0q := q.Gain(0) * cicScale(w)
+	var g float64
+	if sig.AliasHz > 0 {
+		g = sig.AliasHz
+		res.WorstAliasResponseDB = posDB(q.Gain(g) / q.Gain(0))
+	} else {
+		// The worst alias is chain.Analyze's, on the quantised cascade.
+		a, err := chain.AnalyzeContext(ctx, q, qspec)
+		if err != nil {
+			return fmt.Errorf("fixed: the quantised cascade's worst alias: %w", err)
+		}
+		g, res.WorstAliasResponseDB = a.WorstAliasHz, a.AliasRejectionDB
+	}
+	fch, _ := cascadeChain(c, w, false)
+	h0f := fch.Gain(0) * cicScale(w)
+	a := math.Pow(10, sig.AliasLevel/20)
+	g0 := g
+	// A window four times as long lowers the noise in the bin by 6 dB; the
+	// run is retried so while the noise masks the alias and memory allows.
+	for win := nm; ; win *= 4 {
+		g = g0
+		fold := math.Mod(g, fk)
+		mirror := fold > fk/2
+		if mirror {
+			fold = fk - fold
+		}
+		m := math.Max(1, math.Min(float64(win/2-1), math.Round(fold/fk*float64(win))))
+		fout := m * fk / float64(win)
+		if mirror {
+			g += fold - fout
+		} else {
+			g += fout - fold
+		}
+		res.AliasHz, res.AliasOutHz, res.AliasSamples = g, fout, win
+		res.AliasResponseDB = posDB(q.Gain(g) / q.Gain(0))
+		tone := []toneGen{{g, a, 2 * math.Pi * rng.Float64()}}
+		yi, yf, err := streamEnc(ctx, c, w, enc, (skip+win)*d, skip, win, signalGen(tone, noise, rng, c.InputRate))
+		if err != nil {
+			return err
+		}
+		ai, resid := project(yi, fout/fk)
+		af, _ := project(yf, fout/fk)
+		res.AliasRejectionDB = posDB(ai / (a * h0q))
+		res.AliasFloatRunDB = posDB(af / (a * h0f))
+		res.AliasNoiseDB = posDB(2 * resid / math.Sqrt(float64(win)) / (a * h0q))
+		res.AliasValid = res.AliasNoiseDB >= res.AliasRejectionDB+20
+		if res.AliasValid || res.AliasNoiseDB+12 < res.AliasRejectionDB+20 || (skip+4*win)*d > autoInputSamples || win >= 16*nm {
+			break
+		}
+	}
+	return nil
+}
+
+// streamEnc is stream on chains whose input codes come from enc() (a new
+// encoder per run) when enc is not nil, and from the ADC otherwise; it
+// returns the window of both outputs, or the encoder's error.
+func streamEnc(ctx context.Context, c Cascade, w *Widths, enc func() (Encoder, error), nin, skip, win int, gen func(x []float64, n0 int)) (yi, yf []float64, err error) {
+	cs := newChainState(c, w)
+	if enc != nil {
+		if cs.enc, err = enc(); err != nil {
+			return nil, nil, err
+		}
+	}
+	yi, yf = make([]float64, 0, win), make([]float64, 0, win)
+	_, _, _, err = streamTo(ctx, cs, c, nin, skip, win, gen, func(bi, bf []float64, _ int) {
+		yi, yf = append(yi, bi...), append(yf, bf...)
+	})
+	if err == nil {
+		err = cs.encErr
+	}
+	if err != nil {
+		return nil, nil, err
+	}
+	return yi, yf, nil
 }

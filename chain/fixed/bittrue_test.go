@@ -209,7 +209,7 @@ func TestErrorsNameFieldAndValue(t *testing.T) {
 		s    Settings
 		want string
 	}{
-		{Words{InputBits: 1}, Settings{}, "InputBits = 1"},
+		{Words{InputBits: -1}, Settings{}, "InputBits = -1"}, // 1 bit is a noise-shaped converter's word (Signal.Shaper)
 		{Words{OutputBits: 99}, Settings{}, "OutputBits = 99"},
 		{Words{CoefBits: 77}, Settings{}, "CoefBits = 77"},
 		{Words{}, Settings{NativeA: 18}, "18 x 0"},

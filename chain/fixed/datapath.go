@@ -144,6 +144,11 @@ type Settings struct {
 	NativeA, NativeB int
 	// Clock is the hardware clock in Hz; zero means no multipliers-at-clock figure.
 	Clock float64
+	// Shaper, when not nil, is the noise-shaped converter whose codes the
+	// chain takes: Evaluate feeds its bit-true run with them
+	// (Signal.Shaper) unless the signal names its own. Plan and
+	// PlanChain do not read it.
+	Shaper Shaper
 }
 
 // StageWidths is the fixed-point plan of one stage.
@@ -263,8 +268,10 @@ func Plan(c Cascade, w Words, s Settings) (*Widths, error) {
 		name string
 		v    int
 	}{{"InputBits", w.InputBits}, {"OutputBits", w.OutputBits}, {"DataBits", w.DataBits}} {
-		if f.v < 2 || f.v > 32 {
-			return nil, fmt.Errorf("fixed: words %s = %d: must lie in [2, 32] bits", f.name, f.v)
+		// A 1-bit input word carries a noise-shaped converter's codes
+		// (Signal.Shaper); every other word is at least 2 bits.
+		if lo := 2 - b2i(f.name == "InputBits"); f.v < lo || f.v > 32 {
+			return nil, fmt.Errorf("fixed: words %s = %d: must lie in [%d, 32] bits", f.name, f.v, lo)
 		}
 	}
 	if w.CoefBits != 0 && (w.CoefBits < 2 || w.CoefBits > MaxBits) {
@@ -771,4 +778,12 @@ func (sw *StageWidths) costAtClock(outRate float64, complexData bool, s Settings
 		rate *= 2
 	}
 	sw.HardwareMultipliers = int(math.Ceil(rate/s.Clock-1e-12)) * sw.NativePerProduct
+}
+
+// b2i is 1 for true, 0 for false.
+func b2i(b bool) int {
+	if b {
+		return 1
+	}
+	return 0
 }

@@ -137,6 +137,17 @@
 // sample in a thousand or the DC offset is over ten times the RMS of the
 // error the SNR measures. Every figure stays finite.
 //
+// A noise-shaped converter (Signal.Shaper, or Settings.Shaper, which
+// Evaluate passes on; package sigmadelta's modulator) replaces the ADC: its
+// encoder makes the input codes (a 1-bit input word is allowed then), both
+// runs are fed through it, the test tone is its own (a -6 dBFS tone of the
+// modulator, at 0.4 fp) with no added noise, and the SNR is taken in
+// [0, fp] at the output from a Blackman-Harris periodogram of the error
+// against the float chain, 8192 output samples by default (bitTrueShaped).
+// PredictedSNRDB carries the converter's prediction for the rounded taps
+// beside it. The converter's constant offset (half a code) does not
+// invalidate the SNR.
+//
 // Evaluate returns an error only when the chain cannot be planned. When the
 // bit-true run cannot be made (a CIC register over MaxModelBits, 127), the Result
 // still carries the widths and the quantised chain's figures, and

@@ -322,6 +322,9 @@ func EvaluateContext(ctx context.Context, spec chain.Spec, c *chain.Chain, s Set
 	if sig.AliasHz == 0 {
 		sig.AliasHz = qa.WorstAliasHz
 	}
+	if sig.Shaper == nil {
+		sig.Shaper = s.Shaper
+	}
 	res.BitTrue, res.BitTrueErr = BitTrueContext(ctx, cas, ws, sig)
 	if cerr := ctx.Err(); cerr != nil {
 		return nil, fmt.Errorf("fixed: bit-true run stopped: %w", cerr)

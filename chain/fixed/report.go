@@ -85,8 +85,13 @@ type ChainReport struct {
 type BitTrueReport struct {
 	// BitTrueSNRDB and BitTrueENOB are null when they are not meaningful
 	// (ChainReport.BitTrueSNRValid false; BitTrueSNRNote says why).
-	BitTrueSNRDB            *float64 `json:"bittrue_snr_db"`
-	BitTrueENOB             *float64 `json:"bittrue_enob"`
+	BitTrueSNRDB *float64 `json:"bittrue_snr_db"`
+	BitTrueENOB  *float64 `json:"bittrue_enob"`
+	// PredictedSNRDB is, for a chain fed by a noise-shaped converter
+	// (Signal.Shaper), the SNR its model predicts for the rounded taps
+	// (BitTrueResult.PredictedSNRDB), beside the bit-true figure; absent
+	// otherwise.
+	PredictedSNRDB          *float64 `json:"predicted_snr_db,omitempty"`
 	BitTrueMatchDB          float64  `json:"bittrue_match_db"`
 	BitTrueOffsetLSB        float64  `json:"bittrue_offset_lsb"`
 	InputSNRDB              float64  `json:"input_snr_db"`
@@ -133,6 +138,12 @@ func (r *Result) Report(withHardware bool) ChainReport {
 			AliasResponseDB: bt.AliasResponseDB, BitTrueAliasValid: bt.AliasValid,
 			TestSignal: fmt.Sprintf("%s; white Gaussian noise %s dBFS RMS; %d output samples",
 				strings.Join(sig, ", "), fmtG(bt.NoiseDBFS), bt.Samples),
+		}
+		if bt.Shaped != "" {
+			p := bt.PredictedSNRDB
+			out.BitTrueReport.PredictedSNRDB = &p
+			out.BitTrueReport.TestSignal = fmt.Sprintf("%s (input word dBFS) through a simulated %s; SNR over [0, passband] at the output; %d output samples",
+				strings.Join(sig, ", "), bt.Shaped, bt.Samples)
 		}
 		if bt.SNRValid {
 			snr, enob := bt.SNRDB, bt.ENOB

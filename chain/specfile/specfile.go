@@ -23,6 +23,7 @@ import (
 	"github.com/stepdown-dsp/stepdown/chain/units"
 	"github.com/stepdown-dsp/stepdown/cost"
 	"github.com/stepdown-dsp/stepdown/optimize"
+	"github.com/stepdown-dsp/stepdown/sigmadelta"
 )
 
 // MaxFileSize is the largest spec file accepted, in bytes (64 KiB). A spec is
@@ -97,6 +98,12 @@ type Spec struct {
 	// CICForms is search.cic_forms: the CIC forms the search tries,
 	// ["recursive"] by default (chain.Recursive alone).
 	CICForms []chain.CICForm
+	// SigmaDelta is the [sigma_delta] table: the noise-shaped converter
+	// feeding the chain, nil without one. Its Zeros are relative to
+	// input_rate. With it Chain.RejectionMask is the modulator's
+	// (sigmadelta.Modulator.Mask), Chain.NoiseShaped is set and
+	// Chain.InputBits is its bits.
+	SigmaDelta *sigmadelta.Modulator
 	// SHA256 is the SHA-256 of the spec's text as parsed (the built-in
 	// example's text for Example), in lower-case hexadecimal: report.json's
 	// spec_sha256, which ties a report to the file that made it.
@@ -110,7 +117,12 @@ func (s *Spec) CostSettings() cost.Settings {
 
 // FixedSettings returns the word-length planner's settings the spec asks for.
 func (s *Spec) FixedSettings() fixed.Settings {
-	return fixed.Settings{NoSymmetry: !s.Symmetry, NativeA: s.NativeA, NativeB: s.NativeB, Clock: s.Clock, UnityGain: s.UnityGain}
+	fs := fixed.Settings{NoSymmetry: !s.Symmetry, NativeA: s.NativeA, NativeB: s.NativeB, Clock: s.Clock, UnityGain: s.UnityGain}
+	if s.SigmaDelta != nil {
+		// Checked when the spec was parsed.
+		fs.Shaper, _ = s.SigmaDelta.Shaper()
+	}
+	return fs
 }
 
 // CoefMode is "fixed" when words.coefficients is a width, "auto" when it is
@@ -237,6 +249,8 @@ var known = []key{
 	{path: "cost", table: true}, {path: "cost.symmetry"},
 	{path: "search", table: true}, {path: "search.max_stages"}, {path: "search.kinds"},
 	{path: "search.cic_orders"}, {path: "search.cic_delays"}, {path: "search.cic_forms"},
+	{path: "sigma_delta", table: true}, {path: "sigma_delta.order"}, {path: "sigma_delta.bits"},
+	{path: "sigma_delta.snr"}, {path: "sigma_delta.zeros"}, {path: "sigma_delta.obg"},
 }
 
 // parser holds one file's data while it is checked.
@@ -670,7 +684,7 @@ var goField = []struct{ goName, key string }{
 }
 
 func (p *parser) build() (*Spec, error) {
-	for _, t := range []string{"words", "hardware", "cost", "search"} {
+	for _, t := range []string{"words", "hardware", "cost", "search", "sigma_delta"} {
 		if err := p.checkTable(t); err != nil {
 			return nil, err
 		}
@@ -708,6 +722,15 @@ func (p *parser) build() (*Spec, error) {
 		key string
 		dst *float64
 	}{{"ripple", &cs.RippleDB}, {"rejection", &cs.RejectionDB}} {
+		if _, sd := p.lookup("sigma_delta"); sd && f.key == "rejection" {
+			// The mask is derived from the modulator (sigmaDelta).
+			for _, k := range []string{"rejection", "rejection_mask"} {
+				if v, ok := p.lookup(k); ok {
+					return nil, p.errAt(k, v, "is given beside [sigma_delta]: the rejection each alias needs is derived from sigma_delta.snr and the modulator's noise; remove %s", k)
+				}
+			}
+			continue
+		}
 		if mv, ok := p.lookup("rejection_mask"); ok && f.key == "rejection" {
 			// A mask stands for the flat target; the two are exclusive.
 			if rv, both := p.lookup("rejection"); both {
@@ -767,6 +790,9 @@ func (p *parser) build() (*Spec, error) {
 	}{{"words.input", &cs.InputBits, MaxWordBits, dataNote}, {"words.output", &cs.OutputBits, MaxWordBits, dataNote}, {"words.coefficients", &cs.CoefBits, MaxCoefBits, " bits"}} {
 		if w.key == "words.coefficients" && out.CoefAuto {
 			continue
+		}
+		if _, sd := p.lookup("sigma_delta"); sd && w.key == "words.input" {
+			continue // the modulator's bits (sigmaDelta)
 		}
 		n, _, err := p.integer(w.key, MinWordBits, w.max, w.note)
 		if err != nil {
@@ -844,6 +870,9 @@ func (p *parser) build() (*Spec, error) {
 		out.Kinds = kinds
 	}
 	out.CICOrders = optimize.DefaultCICOrders()
+	if err := p.sigmaDelta(out, &cs); err != nil {
+		return nil, err
+	}
 	if l, ok, err := p.intList("search.cic_orders", 1, MaxCICOrder, "CIC order"); err != nil {
 		return nil, err
 	} else if ok {
@@ -864,6 +893,24 @@ func (p *parser) build() (*Spec, error) {
 		out.CICForms = forms
 	}
 
+	if out.SigmaDelta != nil {
+		// The mask needs the normalised band edges: normalise once with a
+		// stand-in target (its own rules are checked then), derive the
+		// mask, and normalise again with it.
+		pre := cs
+		pre.RejectionDB = 1
+		n, err := pre.Normalize()
+		if err != nil {
+			return nil, p.specError(err)
+		}
+		m := *out.SigmaDelta
+		mask, err := m.Mask(sigmadelta.Rates{InputRate: n.InputRate, OutputRate: n.OutputRate, Passband: n.Passband}, n.Protected, n.RippleDB)
+		if err != nil {
+			raw, _ := p.lookup("sigma_delta.snr")
+			return nil, p.errAt("sigma_delta.snr", raw, "%s", strings.TrimPrefix(err.Error(), "sigmadelta: "))
+		}
+		cs.RejectionMask = mask
+	}
 	norm, err := cs.Normalize()
 	if err != nil {
 		return nil, p.specError(err)
@@ -1046,4 +1093,122 @@ func replaceWord(s, old, new string) string {
 
 func isIdent(c byte) bool {
 	return c == '_' || ('a' <= c && c <= 'z') || ('A' <= c && c <= 'Z') || ('0' <= c && c <= '9')
+}
+
+// sigmaDelta reads the [sigma_delta] table into out.SigmaDelta and cs
+// (NoiseShaped, InputBits from bits, words.input checked against it) and
+// sets the default CIC orders by Candy's rule; nothing without the table.
+// The rates and the passband must be read already (cs); the mask is
+// derived once the spec is normalised (build).
+func (p *parser) sigmaDelta(out *Spec, cs *chain.Spec) error {
+	tv, ok := p.lookup("sigma_delta")
+	if !ok {
+		return nil
+	}
+	if cs.OutputRate > cs.InputRate {
+		return p.errAt("sigma_delta", tv, "a noise-shaped converter feeds a decimation chain: output_rate must be below input_rate")
+	}
+	var m sigmadelta.Modulator
+	for _, k := range []struct {
+		key      string
+		dst      *int
+		lo, hi   int
+		required bool
+	}{{"sigma_delta.order", &m.Order, 1, sigmadelta.MaxOrder, true}, {"sigma_delta.bits", &m.Bits, 1, sigmadelta.MaxBits, true}} {
+		n, present, err := p.integer(k.key, k.lo, k.hi, "")
+		if err != nil {
+			return err
+		}
+		if !present {
+			return &Error{File: p.file, Line: p.lineOf([]string{"sigma_delta"}), Key: k.key, Rule: "missing; [sigma_delta] needs order, bits and snr"}
+		}
+		*k.dst = n
+	}
+	snr, present, err := p.quantity("sigma_delta.snr", units.Level, false)
+	if err != nil {
+		return err
+	}
+	if !present {
+		return &Error{File: p.file, Line: p.lineOf([]string{"sigma_delta"}), Key: "sigma_delta.snr", Rule: "missing; [sigma_delta] needs order, bits and snr (the in-band SNR target, such as \"100 dB\")"}
+	}
+	if raw, _ := p.lookup("sigma_delta.snr"); !(snr > 0) || snr > 300 {
+		return p.errAt("sigma_delta.snr", raw, "must lie in (0, 300] dB")
+	}
+	m.SNRDB = snr
+	if raw, ok := p.lookup("sigma_delta.obg"); ok {
+		v, err := p.quantityOf("sigma_delta.obg", raw, units.Level)
+		if _, isStr := raw.(string); isStr || err != nil {
+			return p.errAt("sigma_delta.obg", raw, "want the out-of-band gain as a plain number such as 1.5 (|NTF| at input_rate/2, not in dB)")
+		}
+		if hi := math.Min(sigmadelta.MaxOBG, math.Ldexp(1, m.Order)); !(v > 1) || v > hi {
+			return p.errAt("sigma_delta.obg", raw, "must lie in (1, %g] for order %d (at most 2^order and %d)", hi, m.Order, sigmadelta.MaxOBG)
+		}
+		m.OBG = v
+	}
+	if raw, ok := p.lookup("sigma_delta.zeros"); ok {
+		z, err := p.zeros(raw, m.Order, cs)
+		if err != nil {
+			return err
+		}
+		m.Zeros = z
+	}
+	if raw, ok := p.lookup("words.input"); ok {
+		n, isInt := raw.(int64)
+		if !isInt || int(n) != m.Bits {
+			return p.errAt("words.input", raw, "must equal sigma_delta.bits = %d (the modulator's codes are the input words); leave it out to take that", m.Bits)
+		}
+	}
+	if _, err := m.NTF(); err != nil {
+		return p.errAt("sigma_delta", tv, "%s", strings.TrimPrefix(err.Error(), "sigmadelta: "))
+	}
+	cs.InputBits, cs.NoiseShaped = m.Bits, true
+	out.SigmaDelta = &m
+	// Candy's rule (1986): a CIC after an order-L modulator needs order
+	// L + 1 to hold the shaped noise it folds; the default orders start
+	// there. A search.cic_orders list overrides them, lower orders
+	// included (the mask judges every chain all the same).
+	lo := min(m.Order+1, MaxCICOrder)
+	out.CICOrders = nil
+	for n := lo; n <= max(lo, 7); n++ {
+		out.CICOrders = append(out.CICOrders, n)
+	}
+	return nil
+}
+
+// zeros reads sigma_delta.zeros: "optimal" (sigmadelta.OptimalZeros over
+// the passband) or a list of frequencies in [0, passband] whose zeros
+// (each above 0 Hz a conjugate pair, each 0 Hz one zero at DC) make the
+// order; returned relative to input_rate.
+func (p *parser) zeros(raw any, order int, cs *chain.Spec) ([]float64, error) {
+	const key = "sigma_delta.zeros"
+	if str, ok := raw.(string); ok {
+		if str != "optimal" {
+			return nil, p.errAt(key, raw, `want "optimal" or a list of frequencies such as ["0 Hz", "15 kHz"]`)
+		}
+		return sigmadelta.OptimalZeros(order, cs.Passband/cs.InputRate), nil
+	}
+	arr, ok := raw.([]any)
+	if !ok || len(arr) == 0 {
+		return nil, p.errAt(key, raw, `want "optimal" or a list of frequencies such as ["0 Hz", "15 kHz"]`)
+	}
+	var out []float64
+	n := 0
+	for i, e := range arr {
+		f, err := p.quantityOf(key, e, units.Frequency)
+		if err != nil {
+			return nil, p.errAt(key, raw, "zero %d, %s: %s", i+1, show(e), ruleOf(err))
+		}
+		if !(f >= 0) || f > cs.Passband {
+			return nil, p.errAt(key, raw, "zero %d, %s: must lie in [0 Hz, passband = %s Hz] (the zeros lower the noise in the band)", i+1, show(e), strconv.FormatFloat(cs.Passband, 'g', 10, 64))
+		}
+		out = append(out, f/cs.InputRate)
+		n++
+		if f > 0 {
+			n++
+		}
+	}
+	if n != order {
+		return nil, p.errAt(key, raw, "make %d NTF zeros (each frequency above 0 Hz a conjugate pair, each 0 Hz one zero at DC); sigma_delta.order = %d needs %d", n, order, order)
+	}
+	return out, nil
 }

@@ -15,6 +15,7 @@ import (
 	"github.com/stepdown-dsp/stepdown/chain/fixed"
 	"github.com/stepdown-dsp/stepdown/chain/specfile"
 	"github.com/stepdown-dsp/stepdown/optimize"
+	"github.com/stepdown-dsp/stepdown/sigmadelta"
 )
 
 // Schema names the report format.
@@ -73,10 +74,13 @@ type Spec struct {
 	// worst_alias_hz (worst_image_hz) where that margin is least.
 	RejectionMask [][2]float64 `json:"rejection_mask,omitempty"`
 	Signal        string       `json:"signal"`
-	Words         Words        `json:"words"`
-	Hardware      Hardware     `json:"hardware"`
-	Cost          Cost         `json:"cost"`
-	SearchLimits  Limits       `json:"search"`
+	// SigmaDelta is the [sigma_delta] table, absent without one:
+	// RejectionMask is then derived from it.
+	SigmaDelta   *SigmaDelta `json:"sigma_delta,omitempty"`
+	Words        Words       `json:"words"`
+	Hardware     Hardware    `json:"hardware"`
+	Cost         Cost        `json:"cost"`
+	SearchLimits Limits      `json:"search"`
 }
 
 // Words are the word lengths in bits. Coefficients is the width the spec
@@ -90,6 +94,17 @@ type Words struct {
 	// UnityGain is words.unity_gain: the chain's DC gain folded to unity in
 	// its last FIR stage's taps.
 	UnityGain bool `json:"unity_gain"`
+}
+
+// SigmaDelta is the noise-shaped converter feeding the chain
+// (specfile.Spec.SigmaDelta): its order, quantiser bits, in-band SNR
+// target, NTF zeros in Hz (absent: all at DC) and out-of-band gain.
+type SigmaDelta struct {
+	Order   int       `json:"order"`
+	Bits    int       `json:"bits"`
+	SNRDB   float64   `json:"snr_db"`
+	ZerosHz []float64 `json:"zeros_hz,omitempty"`
+	OBG     float64   `json:"obg"`
 }
 
 // Hardware holds the clock in Hz, null when not given, and the native
@@ -328,6 +343,16 @@ func NewSpec(s *specfile.Spec) Spec {
 	}
 	for _, f := range s.CICForms {
 		out.SearchLimits.CICForms = append(out.SearchLimits.CICForms, f.String())
+	}
+	if m := s.SigmaDelta; m != nil {
+		sd := &SigmaDelta{Order: m.Order, Bits: m.Bits, SNRDB: m.SNRDB, OBG: m.OBG}
+		if sd.OBG == 0 {
+			sd.OBG = sigmadelta.DefaultOBG
+		}
+		for _, z := range m.Zeros {
+			sd.ZerosHz = append(sd.ZerosHz, z*c.InputRate)
+		}
+		out.SigmaDelta = sd
 	}
 	out.Words.CoefficientsMode = s.CoefMode()
 	out.Words.UnityGain = s.UnityGain
@@ -653,6 +678,9 @@ func (c *Chain) BitTrueSummary() string {
 		return "no bit-true run (" + c.BitTrueError + ")"
 	case !c.BitTrueSNRValid || c.BitTrueSNRDB == nil || c.BitTrueENOB == nil:
 		return "bit-true SNR not meaningful (" + c.BitTrueSNRNote + ")"
+	}
+	if c.PredictedSNRDB != nil {
+		return fmt.Sprintf("the modulator's bitstream through the chain: in-band bit-true SNR %.1f dB, ENOB %.2f bits (predicted from the modulator's noise alone: %.1f dB)", *c.BitTrueSNRDB, *c.BitTrueENOB, *c.PredictedSNRDB)
 	}
 	word := "the ADC word"
 	if c.interp {
