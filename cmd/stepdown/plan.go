@@ -486,7 +486,7 @@ func printSummary(w io.Writer, j *job, rep *report.Report, files []report.File) 
 		units.FormatFrequency(s.InputRateHz), units.FormatFrequency(s.OutputRateHz), ratio, s.Signal,
 		units.FormatFrequency(s.PassbandHz), units.FormatFrequency(s.ProtectedHz), units.FormatFrequency(s.StopbandHz))
 	if len(s.RejectionMask) > 0 {
-		fmt.Fprintf(w, "  ripple %g dB peak-to-peak, rejection mask of %d points up to %g dB (a chain's rejection is %g dB plus its worst margin over the mask)\n", s.RippleDB, len(s.RejectionMask), s.RejectionDB, s.RejectionDB)
+		fmt.Fprintf(w, "  ripple %g dB peak-to-peak, rejection mask of %d points up to %.2f dB (a chain's rejection is %.2f dB plus its worst margin over the mask)\n", s.RippleDB, len(s.RejectionMask), s.RejectionDB, s.RejectionDB)
 	} else {
 		fmt.Fprintf(w, "  ripple %g dB peak-to-peak, rejection %g dB\n", s.RippleDB, s.RejectionDB)
 	}
