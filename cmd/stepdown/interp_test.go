@@ -115,7 +115,7 @@ func TestPlanMaskEndToEnd(t *testing.T) {
 	if r.code != 0 {
 		t.Fatalf("plan: exit %d: %s", r.code, r.stderr)
 	}
-	if !strings.Contains(r.stdout, "rejection mask of 4 points up to 90 dB") {
+	if !strings.Contains(r.stdout, "rejection mask of 4 points up to 90.00 dB") {
 		t.Errorf("the table does not state the mask:\n%s", r.stdout)
 	}
 	rep := readReport(t, filepath.Join(dir, "out", "report.json"))
