@@ -48,7 +48,9 @@ func build(ctx context.Context, spec Spec, plan []StagePlan, s Settings, design 
 	if s.MaxTaps < 0 || (s.MaxTaps > 0 && s.MaxTaps < 3) {
 		return nil, fmt.Errorf("chain: Settings.MaxTaps = %d: must be 0 (no bound) or at least 3", s.MaxTaps)
 	}
-	reqs, err := Requirements(spec, plan)
+	// Estimates keep the stage-alone rule's limits: the credit needs the
+	// earlier stages' taps, and the flat limits over-estimate safely.
+	reqs, err := requirements(spec, plan, s.StageAlone || !design)
 	if err != nil {
 		return nil, err
 	}
@@ -88,6 +90,11 @@ func build(ctx context.Context, spec Spec, plan []StagePlan, s Settings, design 
 			}
 			c.Stages = append(c.Stages, st)
 		case FIR:
+			if r.cascadeBase > 0 {
+				// The cascade rule: the stages before this one are
+				// designed, and their attenuation relaxes its stopbands.
+				r.credit = newStopCredit(r.cascadeBase, spec.InputRate, c.Stages)
+			}
 			st, err := s.Memo.stage(ctx, design, r, c.Stages, s, func() (FIRStage, error) { return firStage(ctx, r, c.Stages, s, design) })
 			if cerr := ctx.Err(); cerr != nil {
 				return nil, stopped(plan, cerr)
