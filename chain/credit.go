@@ -4,6 +4,7 @@ import (
 	"crypto/sha256"
 	"encoding/binary"
 	"math"
+	"sync"
 
 	"github.com/stepdown-dsp/stepdown/chain/remez"
 )
@@ -18,10 +19,11 @@ const MaxCreditedLimit = 0.5
 
 // stopCredit is the cascade rule's relaxation of one FIR stage's stopband
 // limit by what the stages before it remove (package doc, Cascade
-// requirements). It is immutable once built, so copies of a Requirement
-// share it safely, and it holds no more than the earlier stages (their
-// taps are the chain's own slices); the bounds it evaluates with are built
-// by eval for the time of a design or a check.
+// requirements). Copies of a Requirement share it: it holds the earlier
+// stages (their taps are the chain's own slices) and, once first used, the
+// table of its credit over the stage's stopbands (table; at most
+// maxCreditCells+1 values), built once under a sync.Once; the bounds the
+// table is built from are dropped once it is.
 type stopCredit struct {
 	// base is the stage's limit before the credit: the target's ds times
 	// (1 - dp_i) prod_{j>i} (1 - dp_j)/(1 + dp_j) over the ripple-bearing
@@ -34,13 +36,18 @@ type stopCredit struct {
 	// input rates.
 	stages []Stage
 	rates  []float64
+	// stop are the stage's stopbands, where the table is built.
+	stop []Interval
+
+	once sync.Once
+	tab  *creditEval // the table, its bounders dropped
 }
 
 // newStopCredit is the credit the stages prev (designed, from the chain's
-// input rate f0 down) give the stage whose limit before the credit is
-// base.
-func newStopCredit(base, f0 float64, prev []Stage) *stopCredit {
-	c := &stopCredit{base: base, f0: f0}
+// input rate f0 down) give the stage with stopbands stop whose limit
+// before the credit is base.
+func newStopCredit(base, f0 float64, prev []Stage, stop []Interval) *stopCredit {
+	c := &stopCredit{base: base, f0: f0, stop: append([]Interval(nil), stop...)}
 	rate := f0
 	for _, st := range prev {
 		c.stages = append(c.stages, st)
@@ -51,11 +58,17 @@ func newStopCredit(base, f0 float64, prev []Stage) *stopCredit {
 	return c
 }
 
-// creditCells is the number of cells over [0, F(i-1)/2] on which
-// creditEval tabulates the credit: fine next to the earlier stages'
-// features (a FIR of n taps at P times the stage's rate varies on a scale
-// of P F(i-1)/n; a CIC's lobes are F(i-1)/M wide).
-const creditCells = 8192
+// The number of cells over [0, F(i-1)/2] on which creditEval tabulates
+// the credit: creditPerFeature cells to the finest feature of the earlier
+// stages (a FIR of n taps at P times the stage's rate varies on a scale of
+// P F(i-1)/n; a CIC of delay M at Q times the stage's output rate has
+// lobes Q F(i-1)/M wide), a power of two from minCreditCells to
+// maxCreditCells.
+const (
+	creditPerFeature = 32
+	minCreditCells   = 256
+	maxCreditCells   = 8192
+)
 
 // creditEval evaluates a stopCredit from a table: for each cell of
 // [0, F(i-1)/2] that meets one of the stage's stopbands, a rigorous upper
@@ -70,6 +83,7 @@ type creditEval struct {
 	rest  []float64      // rest[j]: an upper bound of prod_{k>=j} |H_k|
 	dc    float64        // prod_j |H_j(0)|
 	w     float64        // cell width
+	cells int            // cells over [0, F(i-1)/2]
 	nodes []float64      // node k at k w; NaN where not tabulated
 }
 
@@ -101,14 +115,28 @@ func (c *stopCredit) eval(stop []Interval) *creditEval {
 	if !(e.dc > 0) {
 		return e
 	}
-	e.w = c.rate / 2 / creditCells
-	e.nodes = make([]float64, creditCells+1)
+	// The finest feature of the earlier stages, in cells of [0, rate/2].
+	feat := 1.0
+	for j, st := range c.stages {
+		switch s := st.(type) {
+		case FIRStage:
+			feat = math.Max(feat, float64(len(s.Taps))*c.rate/c.rates[j])
+		case CICStage:
+			feat = math.Max(feat, float64(s.M*s.R)*c.rate/c.rates[j])
+		}
+	}
+	cells := nextPow2(min(maxCreditCells, max(minCreditCells, int(math.Ceil(creditPerFeature*feat/2)))))
+	e.cells = cells
+	e.w = c.rate / 2 / float64(cells)
+	e.nodes = make([]float64, cells+1)
 	for k := range e.nodes {
 		e.nodes[k] = math.NaN()
 	}
 	for _, sb := range stop {
-		k0 := max(0, int(math.Floor(sb.Lo/e.w)))
-		k1 := min(creditCells, int(math.Ceil(sb.Hi/e.w)))
+		// A cell of margin each side: the design engine's frequencies
+		// may round just outside a band.
+		k0 := max(0, int(math.Floor(sb.Lo/e.w))-1)
+		k1 := min(cells, int(math.Ceil(sb.Hi/e.w))+1)
 		for k := k0; k < k1; k++ {
 			u := e.cellBound(float64(k)*e.w, float64(k+1)*e.w)
 			for _, q := range [2]int{k, k + 1} {
@@ -172,18 +200,35 @@ func (e *creditEval) cellBound(a, b float64) float64 {
 	return best / e.dc
 }
 
-// at is an upper bound of the credit at x (see creditEval).
+// table returns c's table, building it on first use.
+func (c *stopCredit) table() *creditEval {
+	c.once.Do(func() {
+		e := c.eval(c.stop)
+		e.bnd, e.step, e.rest = nil, nil, nil
+		c.tab = e
+	})
+	return c.tab
+}
+
+// at is an upper bound of the credit at x (see creditEval). A frequency
+// outside the table is bounded on the spot, by a fresh evaluator when the
+// table's bounders were dropped.
 func (e *creditEval) at(x float64) float64 {
-	x = foldFreq(x, e.c.rate)
+	if x < 0 || x > e.c.rate/2 {
+		x = foldFreq(x, e.c.rate)
+	}
 	if e.nodes != nil {
 		k := int(x / e.w)
-		if k >= creditCells {
-			k = creditCells - 1
+		if k >= e.cells {
+			k = e.cells - 1
 		}
 		if v0, v1 := e.nodes[k], e.nodes[k+1]; !math.IsNaN(v0) && !math.IsNaN(v1) {
 			t := math.Min(math.Max((x-float64(k)*e.w)/e.w, 0), 1)
 			return v0 + t*(v1-v0)
 		}
+	}
+	if e.bnd == nil {
+		return e.c.eval(nil).cellBound(x, x)
 	}
 	return e.cellBound(x, x)
 }
@@ -246,20 +291,22 @@ func (c *stopCredit) key(b []byte) []byte {
 // earlier stages (the cascade rule, a FIR stage after another stage).
 func (r Requirement) Credited() bool { return r.credit != nil }
 
-// StopbandLimit returns the stage's absolute stopband limit at x Hz on its
-// input axis: Ds under the stage-alone rule (and for a stage without
-// credit), and under the cascade rule Ds' / c(x), at most
-// MaxCreditedLimit, where c(x) is the largest gain of the earlier stages
-// relative to their gain at 0 Hz over the input frequencies the stage sees
-// at x, and Ds' the target's ds times the passband factors of this stage
-// and the later ones (package doc, Cascade requirements). Each call
-// builds the earlier FIRs' bounds afresh: for many frequencies, Bands'
-// stopbands (their WeightFunc is 1/StopbandLimit) build them once.
-func (r Requirement) StopbandLimit(x float64) float64 {
+// StopbandLimitFunc returns the stage's absolute stopband limit as a
+// function of x Hz on its input axis: Ds under the stage-alone rule (and
+// for a stage without credit), and under the cascade rule Ds' / c(x), at
+// most MaxCreditedLimit, where c(x) bounds from above the largest gain of
+// the earlier stages relative to their gain at 0 Hz over the input
+// frequencies the stage sees at x, and Ds' is the target's ds times the
+// passband factors of this stage and the later ones (package doc, Cascade
+// requirements). The function is what Bands' stopbands are held to (their
+// WeightFunc is its inverse). The credit is tabulated over the stopbands
+// on first use and kept with the requirement.
+func (r Requirement) StopbandLimitFunc() func(x float64) float64 {
 	if r.credit == nil {
-		return r.Ds
+		ds := r.Ds
+		return func(float64) float64 { return ds }
 	}
-	return r.credit.eval(nil).limit(x)
+	return r.credit.table().limit
 }
 
 // splitRipple returns each ripple-bearing stage's share of left dB (the

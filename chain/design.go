@@ -93,7 +93,7 @@ func build(ctx context.Context, spec Spec, plan []StagePlan, s Settings, design 
 			if r.cascadeBase > 0 {
 				// The cascade rule: the stages before this one are
 				// designed, and their attenuation relaxes its stopbands.
-				r.credit = newStopCredit(r.cascadeBase, spec.InputRate, c.Stages)
+				r.credit = newStopCredit(r.cascadeBase, spec.InputRate, c.Stages, r.Stopbands)
 			}
 			st, err := s.Memo.stage(ctx, design, r, c.Stages, s, func() (FIRStage, error) { return firStage(ctx, r, c.Stages, s, design) })
 			if cerr := ctx.Err(); cerr != nil {

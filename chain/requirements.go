@@ -49,7 +49,7 @@ type Requirement struct {
 
 	// credit, under the cascade rule, relaxes the stopband limit of a FIR
 	// stage after another stage by what the earlier stages remove
-	// (StopbandLimit); nil under the stage-alone rule. Design sets it once
+	// (StopbandLimitFunc); nil under the stage-alone rule. Design sets it once
 	// the earlier stages are designed.
 	credit *stopCredit
 	// cascadeBase is, under the cascade rule, a FIR stage's limit before
@@ -405,8 +405,8 @@ func StopbandScale(dp float64, n int, own bool) float64 {
 // meet, as the design engine takes them (remez.Band, MaxError the limit of
 // each band's weighted error): the passband [0, Passband] within Dp of 1,
 // each stopband within Ds of 0, or, for a stage whose requirement carries
-// the cascade rule's credit (Credited), within StopbandLimit(f): a weight
-// 1/StopbandLimit(f) against a limit of 1. With droop (the gain of the CICs the stage
+// the cascade rule's credit (Credited), within StopbandLimitFunc's limit
+// at f: a weight 1/limit(f) against a limit of 1. With droop (the gain of the CICs the stage
 // corrects, at f Hz), the passband's desired gain is 1/droop and its error
 // is weighted by droop/Dp against a limit of 1, so that it is met when
 // |A droop - 1| <= Dp: relative, and on the same scale as the stopbands'
@@ -421,16 +421,16 @@ func (r Requirement) Bands(droop func(f float64) float64) []remez.Band {
 			WeightFunc: func(f float64) float64 { return droop(f) / dp }}
 	}
 	bands := []remez.Band{pass}
-	var ev *creditEval
+	var limit func(float64) float64
 	if r.credit != nil {
-		ev = r.credit.eval(r.Stopbands)
+		limit = r.StopbandLimitFunc()
 	}
 	for _, b := range r.Stopbands {
-		if ev != nil {
+		if limit != nil {
 			// The cascade rule: the limit follows the earlier stages'
-			// attenuation, StopbandLimit(f), through the weight.
+			// attenuation through the weight.
 			bands = append(bands, remez.Band{Lo: b.Lo, Hi: b.Hi, MaxError: 1,
-				WeightFunc: func(f float64) float64 { return 1 / ev.limit(f) }})
+				WeightFunc: func(f float64) float64 { return 1 / limit(f) }})
 			continue
 		}
 		bands = append(bands, remez.Band{Lo: b.Lo, Hi: b.Hi, MaxError: r.Ds, Weight: 1 / r.Ds})
