@@ -17,6 +17,18 @@ import (
 // wide open.
 const MaxCreditedLimit = 0.5
 
+// maxProtectedLimit bounds a compensator's gain on its protected band
+// (fp, fa] under the cascade rule from above only where the earlier
+// stages' attenuation of the aliases that land there asks for less: 60 dB
+// above the passband, far above any compensator's transition gain, and
+// finite so that the band's weight stays positive.
+const maxProtectedLimit = 1e3
+
+// protectedGap is the fraction of (fp, fa] left free at each end of a
+// compensator's protected band, so that the band does not share its edge
+// with the passband or the first stopband.
+const protectedGap = 1e-3
+
 // stopCredit is the cascade rule's relaxation of one FIR stage's stopband
 // limit by what the stages before it remove (package doc, Cascade
 // requirements). Copies of a Requirement share it: it holds the earlier
@@ -38,6 +50,21 @@ type stopCredit struct {
 	rates  []float64
 	// stop are the stage's stopbands, where the table is built.
 	stop []Interval
+	// lift are the CICs a later compensator corrects (at their input
+	// rates liftRates): an alias the stage lets through lands at x folded
+	// at its output rate out, in [0, fa], where the compensator lifts it
+	// by up to 1/prod |H_cic| (taken at fp beyond fp). The limit is
+	// lowered by that much.
+	lift      []CICStage
+	liftRates []float64
+	out, fp   float64
+	// aliasOnly leaves out the image g = x itself: the credit of a
+	// compensator's protected band (fp, fa], where x is signal and only
+	// the images m F(i-1) +- x, m >= 1, are aliases.
+	aliasOnly bool
+	// cap is the largest limit: MaxCreditedLimit for a stopband,
+	// maxProtectedLimit for a compensator's protected band.
+	cap float64
 
 	once sync.Once
 	tab  *creditEval // the table, its bounders dropped
@@ -47,7 +74,7 @@ type stopCredit struct {
 // input rate f0 down) give the stage with stopbands stop whose limit
 // before the credit is base.
 func newStopCredit(base, f0 float64, prev []Stage, stop []Interval) *stopCredit {
-	c := &stopCredit{base: base, f0: f0, stop: append([]Interval(nil), stop...)}
+	c := &stopCredit{base: base, f0: f0, stop: append([]Interval(nil), stop...), cap: MaxCreditedLimit}
 	rate := f0
 	for _, st := range prev {
 		c.stages = append(c.stages, st)
@@ -84,7 +111,7 @@ type creditEval struct {
 	dc    float64        // prod_j |H_j(0)|
 	w     float64        // cell width
 	cells int            // cells over [0, F(i-1)/2]
-	nodes []float64      // node k at k w; NaN where not tabulated
+	nodes []float64      // node k at k w; -1 where not tabulated
 }
 
 // eval builds the evaluator of c for a stage with the given stopbands.
@@ -130,7 +157,7 @@ func (c *stopCredit) eval(stop []Interval) *creditEval {
 	e.w = c.rate / 2 / float64(cells)
 	e.nodes = make([]float64, cells+1)
 	for k := range e.nodes {
-		e.nodes[k] = math.NaN()
+		e.nodes[k] = -1
 	}
 	for _, sb := range stop {
 		// A cell of margin each side: the design engine's frequencies
@@ -170,6 +197,9 @@ func (e *creditEval) cellBound(a, b float64) float64 {
 		for s := 0; s < 2; s++ {
 			lo, hi := base-b, base-a
 			if s == 1 {
+				if m == 0 && c.aliasOnly {
+					continue
+				}
 				lo, hi = base+a, base+b
 			} else if m == 0 {
 				continue
@@ -222,7 +252,7 @@ func (e *creditEval) at(x float64) float64 {
 		if k >= e.cells {
 			k = e.cells - 1
 		}
-		if v0, v1 := e.nodes[k], e.nodes[k+1]; !math.IsNaN(v0) && !math.IsNaN(v1) {
+		if v0, v1 := e.nodes[k], e.nodes[k+1]; v0 >= 0 && v1 >= 0 {
 			t := math.Min(math.Max((x-float64(k)*e.w)/e.w, 0), 1)
 			return v0 + t*(v1-v0)
 		}
@@ -245,16 +275,33 @@ func cicEnvelope(cs CICStage, g, rate float64) float64 {
 
 // limit is the stage's absolute stopband limit at x: base over the
 // credit, at most MaxCreditedLimit (and base when no credit can be
-// computed).
+// computed), times the later compensator's lift (liftAt).
 func (e *creditEval) limit(x float64) float64 {
+	l := e.c.liftAt(x)
 	if !(e.dc > 0) {
-		return math.Min(e.c.base, MaxCreditedLimit)
+		return math.Min(e.c.base*l, e.c.cap)
 	}
 	cr := e.at(x)
-	if !(cr > 0) || e.c.base/cr > MaxCreditedLimit {
-		return MaxCreditedLimit
+	if !(cr > 0) || e.c.base*l/cr > e.c.cap {
+		return e.c.cap
 	}
-	return e.c.base / cr
+	return e.c.base * l / cr
+}
+
+// liftAt is 1 over the later compensator's lift of an alias the stage
+// lets through at x: prod |H_cic(min(x', fp))| over the CICs it corrects,
+// x' being x folded at the stage's output rate; 1 without a later
+// compensator.
+func (c *stopCredit) liftAt(x float64) float64 {
+	if len(c.lift) == 0 {
+		return 1
+	}
+	f := math.Min(foldFreq(x, c.out), c.fp)
+	g := 1.0
+	for j, cs := range c.lift {
+		g *= cs.Gain(f, c.liftRates[j])
+	}
+	return g
 }
 
 // key appends what the credit depends on to b: its base, the stage's
@@ -265,6 +312,20 @@ func (c *stopCredit) key(b []byte) []byte {
 	f := func(v float64) { u(math.Float64bits(v)) }
 	f(c.base)
 	f(c.rate)
+	u(uint64(len(c.lift)))
+	for j, cs := range c.lift {
+		u(uint64(cs.N))
+		u(uint64(cs.R * cs.M))
+		f(c.liftRates[j])
+	}
+	f(c.out)
+	f(c.fp)
+	f(c.cap)
+	if c.aliasOnly {
+		u(1)
+	} else {
+		u(0)
+	}
 	u(uint64(len(c.stages)))
 	for j, st := range c.stages {
 		u(uint64(st.Kind()))

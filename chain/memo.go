@@ -139,11 +139,13 @@ func stageKey(r Requirement, prev []Stage, s Settings) string {
 	}
 	u(uint64(s.MaxTaps))
 	// The cascade rule's credit: the earlier stages as designed.
-	if r.credit != nil {
-		u(1)
-		b = r.credit.key(b)
-	} else {
-		u(0)
+	for _, c := range []*stopCredit{r.credit, r.protect} {
+		if c != nil {
+			u(1)
+			b = c.key(b)
+		} else {
+			u(0)
+		}
 	}
 	return string(b)
 }

@@ -52,6 +52,11 @@ type Requirement struct {
 	// (StopbandLimitFunc); nil under the stage-alone rule. Design sets it once
 	// the earlier stages are designed.
 	credit *stopCredit
+	// protect, under the cascade rule, bounds a compensator's gain on
+	// (fp, fa], where the CICs' own aliases land and its transition lifts
+	// them: at most the CICs' limit over the earlier stages' attenuation of
+	// those aliases (an alias-only stopCredit); nil otherwise.
+	protect *stopCredit
 	// cascadeBase is, under the cascade rule, a FIR stage's limit before
 	// the credit (see stopCredit.base); 0 under the stage-alone rule.
 	cascadeBase float64
@@ -424,6 +429,13 @@ func (r Requirement) Bands(droop func(f float64) float64) []remez.Band {
 	var limit func(float64) float64
 	if r.credit != nil {
 		limit = r.StopbandLimitFunc()
+	}
+	if p := r.protect; p != nil && len(p.stop) == 1 {
+		lim := p.table().limit
+		lo, hi := p.stop[0].Lo, p.stop[0].Hi
+		gap := protectedGap * (hi - lo)
+		bands = append(bands, remez.Band{Lo: lo + gap, Hi: hi - gap, MaxError: 1,
+			WeightFunc: func(f float64) float64 { return 1 / lim(f) }})
 	}
 	for _, b := range r.Stopbands {
 		if limit != nil {
