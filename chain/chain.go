@@ -119,6 +119,15 @@ type Settings struct {
 	// designs and hands a stage met again its remembered design (see
 	// StageMemo): the same result, without designing it again.
 	Memo *StageMemo
+	// StageAlone selects the stage-alone rule for the requirements: every
+	// stage meets the full rejection on its own bands, whatever the stages
+	// before it remove, and the ripple budget is split equally. The zero
+	// value, false, is the cascade rule: a FIR stage's stopband limit is
+	// relaxed by the earlier stages' attenuation at the same input
+	// frequencies, and the ripple budget is split where it buys most
+	// (package doc, Cascade requirements). Estimate uses the stage-alone
+	// rule's limits under either.
+	StageAlone bool
 }
 
 // SignalOrder returns the indexes of Stages in the order the signal passes

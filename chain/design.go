@@ -4,6 +4,7 @@ import (
 	"context"
 	"errors"
 	"fmt"
+	"math"
 
 	"github.com/stepdown-dsp/stepdown/chain/remez"
 )
@@ -48,7 +49,9 @@ func build(ctx context.Context, spec Spec, plan []StagePlan, s Settings, design 
 	if s.MaxTaps < 0 || (s.MaxTaps > 0 && s.MaxTaps < 3) {
 		return nil, fmt.Errorf("chain: Settings.MaxTaps = %d: must be 0 (no bound) or at least 3", s.MaxTaps)
 	}
-	reqs, err := Requirements(spec, plan)
+	// Estimates keep the stage-alone rule's limits: the credit needs the
+	// earlier stages' taps, and the flat limits over-estimate safely.
+	reqs, err := requirements(spec, plan, s.StageAlone || !design)
 	if err != nil {
 		return nil, err
 	}
@@ -88,6 +91,41 @@ func build(ctx context.Context, spec Spec, plan []StagePlan, s Settings, design 
 			}
 			c.Stages = append(c.Stages, st)
 		case FIR:
+			if r.cascadeBase > 0 {
+				// The cascade rule: the stages before this one are
+				// designed, and their attenuation relaxes its stopbands.
+				r.credit = newStopCredit(r.cascadeBase, spec.InputRate, c.Stages, r.Stopbands)
+				if len(r.Compensates) > 0 {
+					// The compensator's transition on (fp, fa] lifts
+					// the CICs' own aliases that land there: bound it
+					// by the CICs' limit over what the earlier stages
+					// give those aliases.
+					if hi := math.Min(spec.Protected, r.Stopbands[0].Lo); hi > r.Passband*(1+1e-9) {
+						p := newStopCredit(reqs[r.Compensates[0]].Ds, spec.InputRate, c.Stages, []Interval{{r.Passband, hi}})
+						p.aliasOnly, p.cap = true, maxProtectedLimit
+						// Where the aliases landing just above fp ask
+						// for less than the passband's own gain there,
+						// no compensator can meet the target: the band
+						// is left out, the design goes on as the
+						// stage-alone rule's would, and Analyze finds the
+						// shortfall.
+						droop := compGain(r, c.Stages)
+						if p.table().limit(r.Passband) >= (1+r.Dp)/droop(r.Passband) {
+							r.protect = p
+						}
+					}
+				}
+				if comp := Compensator(plan); comp > i {
+					// A later compensator lifts what this stage lets
+					// through by up to 1/|H_cic| at the folded frequency.
+					for _, j := range reqs[comp].Compensates {
+						q := plan[j]
+						r.credit.lift = append(r.credit.lift, CICStage{N: q.CICOrder, M: q.CICDelay, R: q.Factor})
+						r.credit.liftRates = append(r.credit.liftRates, reqs[j].InputRate)
+					}
+					r.credit.out, r.credit.fp = r.OutputRate, spec.Passband
+				}
+			}
 			st, err := s.Memo.stage(ctx, design, r, c.Stages, s, func() (FIRStage, error) { return firStage(ctx, r, c.Stages, s, design) })
 			if cerr := ctx.Err(); cerr != nil {
 				return nil, stopped(plan, cerr)

@@ -86,8 +86,9 @@
 // Ripple budget: the CIC droop that no later stage corrects, -20 log10
 // |H_cic(fp)| (the passband lies in the CIC's main lobe, where it falls
 // monotonically; a plan whose CIC has a null inside [0, fp] is refused), is
-// taken off the budget first; what is left is split equally, in dB, among the
-// FIR and half-band stages, and each share is turned into dp_i by inverting
+// taken off the budget first; what is left is split, in dB, among the
+// FIR and half-band stages (equally under the stage-alone rule; see
+// Cascade requirements for the default), and each share is turned into dp_i by inverting
 // ripple_db = 20 log10((1+dp)/(1-dp)). Equal dB shares add up to the budget
 // because a cascade's max/min ratio is at most the product of its stages'.
 // The compensating stage is the last FIR (not half-band) stage after the
@@ -95,8 +96,69 @@
 // on [0, fp] and error weight prod|H_cic|/dp_i (against its stopbands'
 // 1/ds), so its error is relative
 // (|A H_cic - 1| <= dp_i): its leftover droop is inside its own share.
-// Every stage meets the full rejection target on its own bands; a half-band
-// is designed for min(dp_i, ds_i) on both bands.
+// Under the stage-alone rule (Settings.StageAlone) every stage meets the
+// full rejection target on its own bands; a half-band is designed for
+// min(dp_i, ds_i) on both bands. The default is the cascade rule below.
+//
+// # Cascade requirements
+//
+// Under the cascade rule (the zero value of Settings.StageAlone) Design
+// credits a FIR stage with what the stages before it, already designed,
+// remove. An input g in stage i's alias bands reaches the output through
+// the earlier stages too, at their own rates; stage i sees every
+// g = m F(i-1) +- x, 0 <= g <= F0/2, at the same x on its input axis. Its
+// absolute limit becomes
+//
+//	ds_i(x) = min(MaxCreditedLimit, Ds'_i / c_i(x) * l_i(x))
+//	c_i(x)  = max over those g of prod_{j<i} |H_j(g)| / |H_j(0)|
+//	Ds'_i   = ds (1 - dp_i) prod_{j>i} (1 - dp_j)/(1 + dp_j)
+//
+// where the earlier stages' passband factors of StopbandScale are replaced
+// by their real responses in c_i, and the later stages' are kept. l_i(x),
+// 1 unless a compensator comes later, is prod |H_cic(min(x', fp))| over the
+// CICs it corrects, x' being x folded at stage i's output: an alias that
+// stage i lets through lands at x' in [0, fa], where the compensator lifts
+// it by up to 1/|H_cic|. The cap MaxCreditedLimit (0.5, -6 dB) keeps every
+// stage a filter on its own bands however much the earlier stages remove.
+// The design engine takes the limit as a stopband weight 1/ds_i(x) against
+// a MaxError of 1 (Requirement.Bands, StopbandLimitFunc). c_i is an upper
+// bound, never below the truth: it is tabulated on 256 to 8192 cells of
+// [0, F(i-1)/2] (32 cells to the finest feature of the earlier stages),
+// each cell's value a rigorous bound over the whole cell from the stages'
+// bounders (bound.go), a node taking the larger of its two cells, and
+// interpolated linearly between nodes. Only earlier stages are credited,
+// and they are designed first, so no iteration is needed. The credit
+// lives in the requirement (its table built on first use), so package
+// fixed's check of rounded taps holds each stage to the same limits, and
+// StageMemo keys a stage on the earlier stages as designed.
+//
+// The compensator gets one band more: its transition (fp, fa], where the
+// CICs' own aliases land (g = m F(i-1) +- x, m >= 1) and where it lifts
+// them, is bounded by the CICs' limit over the earlier stages' gain at
+// those aliases (at most 60 dB above the passband; 0.1 % of the band left
+// free at each end). When even the aliases landing just above fp ask for
+// less than the passband's own gain there, no compensator can help, the
+// band is left out and Analyze reports the shortfall. This closes, under
+// the cascade rule, the known gap of the CIC's own bands (Stopband limits).
+//
+// Half-bands keep the stage-alone rule's flat limit: the single-band
+// design (remez.MinHalfBand) takes no weight function. The ripple budget
+// left after the uncorrected droop is split where it buys most: a
+// half-band gets the ripple of the target's ds, DevToRipple(ds) (it is
+// designed for min(dp, ds), so more buys it nothing), or the equal share
+// when that is less; the rest goes to the FIR stages, equally or with one
+// FIR given 1/2, 3/4 or 9/10 of it, whichever split's Herrmann-Rabiner-Chan
+// estimates (unrounded, at the flat limits the split gives) cost the
+// fewest multiplies per output, the equal split on a tie. The shares add
+// up to the budget, so the ripple bound holds as before. Estimate, and the
+// optimiser's estimate tier, keep the stage-alone rule's limits: a safe
+// over-estimate of the cascade rule's lengths.
+//
+// Analyze remains the judge. In TestCascadeRuleMeets (80 seeded invented
+// chains: CIC > FIR, CIC > hb > FIR, CIC > FIR > FIR, FIR > FIR,
+// FIR > hb > FIR) the cascade rule meets the target on Analyze in 76, the
+// stage-alone rule in 74, and the cascade chains have 4 % fewer taps times
+// rate; eight are checked against the brute-force reference.
 //
 // # Stopband limits
 //
@@ -117,7 +179,8 @@
 //
 //	ds_i = ds prod_j (1 - dp_j) / prod_{j != i} (1 + dp_j)
 //
-// (Requirement.StopbandScale). Its own factor is 1 - dp_i, not
+// (Requirement.StopbandScale; the stage-alone rule, and the cascade rule's
+// starting point). Its own factor is 1 - dp_i, not
 // (1 - dp_i)/(1 + dp_i): its gain at g is ds_i itself. Dividing by its own
 // 1 - dp_i alone (ds (1 - dp_i)) is not enough when other stages' passband
 // gains can lift the alias; prod_j (1 - dp_j) alone covers the denominator

@@ -16,7 +16,9 @@ import (
 // with or without it: a stage is keyed on its kind, factor and layout,
 // input rate, passband edge, deviations and stopbands, on the order,
 // delay times factor and input rate of every CIC whose droop it corrects
-// (the compensator's desired gain), and on Settings.Remez and MaxTaps.
+// (the compensator's desired gain), on Settings.Remez and MaxTaps, and,
+// under the cascade rule, on the credit's base limit and every earlier
+// stage as designed (a FIR's taps by their SHA-256).
 // The stage returned carries the requirement of the chain being designed
 // and its own copy of the taps. A StageMemo is safe for concurrent use:
 // a stage asked for while another goroutine designs it waits for that
@@ -136,5 +138,14 @@ func stageKey(r Requirement, prev []Stage, s Settings) string {
 		u(0)
 	}
 	u(uint64(s.MaxTaps))
+	// The cascade rule's credit: the earlier stages as designed.
+	for _, c := range []*stopCredit{r.credit, r.protect} {
+		if c != nil {
+			u(1)
+			b = c.key(b)
+		} else {
+			u(0)
+		}
+	}
 	return string(b)
 }

@@ -46,6 +46,20 @@ type Requirement struct {
 	// it no later stage corrects and that therefore comes out of the budget.
 	DroopDB            float64
 	UncorrectedDroopDB float64
+
+	// credit, under the cascade rule, relaxes the stopband limit of a FIR
+	// stage after another stage by what the earlier stages remove
+	// (StopbandLimitFunc); nil under the stage-alone rule. Design sets it once
+	// the earlier stages are designed.
+	credit *stopCredit
+	// protect, under the cascade rule, bounds a compensator's gain on
+	// (fp, fa], where the CICs' own aliases land and its transition lifts
+	// them: at most the CICs' limit over the earlier stages' attenuation of
+	// those aliases (an alias-only stopCredit); nil otherwise.
+	protect *stopCredit
+	// cascadeBase is, under the cascade rule, a FIR stage's limit before
+	// the credit (see stopCredit.base); 0 under the stage-alone rule.
+	cascadeBase float64
 }
 
 // PlanError says why a plan cannot meet a spec, or what is wrong with it.
@@ -113,8 +127,26 @@ func validatePlan(plan []StagePlan, d int) error {
 }
 
 // Requirements derives every stage's requirement from the spec (normalised
-// here) and the plan (docs/design.md §4, with the choices in the package doc).
+// here) and the plan (docs/design.md §4, with the choices in the package
+// doc) under the stage-alone rule: the ripple budget split equally, and
+// every stage's flat stopband limit Ds. It is what Estimate uses under
+// either rule.
 func Requirements(spec Spec, plan []StagePlan) ([]Requirement, error) {
+	return requirements(spec, plan, true)
+}
+
+// RequirementsFor is Requirements under s's rule. With s.StageAlone it is
+// Requirements; under the cascade rule (the default) the ripple budget is
+// split where it buys most (package doc, Cascade requirements). The
+// stopband credit of the earlier stages is not in these requirements: it
+// depends on their designs, and Design adds it to each FIR stage's
+// requirement once the stages before it are designed (Requirement.Credited,
+// StopbandLimit).
+func RequirementsFor(spec Spec, plan []StagePlan, s Settings) ([]Requirement, error) {
+	return requirements(spec, plan, s.StageAlone)
+}
+
+func requirements(spec Spec, plan []StagePlan, stageAlone bool) ([]Requirement, error) {
 	spec, err := spec.Normalize()
 	if err != nil {
 		return nil, err
@@ -209,24 +241,57 @@ func Requirements(spec Spec, plan []StagePlan) ([]Requirement, error) {
 	for i := range reqs {
 		reqs[i].StopbandScale = 1
 	}
-	if nRipple > 0 {
+	if nRipple == 0 {
+		return reqs, nil
+	}
+	if stageAlone {
 		dp := RippleToDev(share)
 		for i := range reqs {
 			scale := StopbandScale(dp, nRipple, reqs[i].Kind != CIC)
-			reqs[i].StopbandScale = scale
-			reqs[i].Ds = ds * scale
-			if reqs[i].Kind == CIC {
-				continue
-			}
-			reqs[i].RippleDB = share
-			reqs[i].Dp = dp
-			if reqs[i].Kind == HalfBand {
-				dev := math.Min(dp, reqs[i].Ds)
-				reqs[i].Dp, reqs[i].Ds = dev, dev
-			}
+			setDevs(&reqs[i], share, dp, ds, scale)
+		}
+		return reqs, nil
+	}
+	var ripple []int
+	for i, r := range reqs {
+		if r.Kind != CIC {
+			ripple = append(ripple, i)
 		}
 	}
+	shares := splitRipple(reqs, ripple, spec.RippleDB-uncorrected, ds, fk)
+	dps := make([]float64, len(shares))
+	for q, sh := range shares {
+		dps[q] = RippleToDev(sh)
+	}
+	q := 0
+	for i := range reqs {
+		if reqs[i].Kind == CIC {
+			setDevs(&reqs[i], 0, 0, ds, stopbandScaleOf(dps, -1, false))
+			continue
+		}
+		setDevs(&reqs[i], shares[q], dps[q], ds, stopbandScaleOf(dps, q, true))
+		if reqs[i].Kind == FIR && i > 0 {
+			reqs[i].cascadeBase = ds * laterScale(dps, q)
+		}
+		q++
+	}
 	return reqs, nil
+}
+
+// setDevs sets r's ripple share and deviations: Dp = dp, Ds = ds scale
+// (a half-band min(dp, Ds) on both bands; a CIC only its Ds).
+func setDevs(r *Requirement, share, dp, ds, scale float64) {
+	r.StopbandScale = scale
+	r.Ds = ds * scale
+	if r.Kind == CIC {
+		return
+	}
+	r.RippleDB = share
+	r.Dp = dp
+	if r.Kind == HalfBand {
+		dev := math.Min(dp, r.Ds)
+		r.Dp, r.Ds = dev, dev
+	}
 }
 
 // Compensator is the index of the stage that corrects the CIC droop in
@@ -344,7 +409,9 @@ func StopbandScale(dp float64, n int, own bool) float64 {
 // Bands are the bands a FIR or half-band stage with requirement r must
 // meet, as the design engine takes them (remez.Band, MaxError the limit of
 // each band's weighted error): the passband [0, Passband] within Dp of 1,
-// each stopband within Ds of 0. With droop (the gain of the CICs the stage
+// each stopband within Ds of 0, or, for a stage whose requirement carries
+// the cascade rule's credit (Credited), within StopbandLimitFunc's limit
+// at f: a weight 1/limit(f) against a limit of 1. With droop (the gain of the CICs the stage
 // corrects, at f Hz), the passband's desired gain is 1/droop and its error
 // is weighted by droop/Dp against a limit of 1, so that it is met when
 // |A droop - 1| <= Dp: relative, and on the same scale as the stopbands'
@@ -359,7 +426,25 @@ func (r Requirement) Bands(droop func(f float64) float64) []remez.Band {
 			WeightFunc: func(f float64) float64 { return droop(f) / dp }}
 	}
 	bands := []remez.Band{pass}
+	var limit func(float64) float64
+	if r.credit != nil {
+		limit = r.StopbandLimitFunc()
+	}
+	if p := r.protect; p != nil && len(p.stop) == 1 {
+		lim := p.table().limit
+		lo, hi := p.stop[0].Lo, p.stop[0].Hi
+		gap := protectedGap * (hi - lo)
+		bands = append(bands, remez.Band{Lo: lo + gap, Hi: hi - gap, MaxError: 1,
+			WeightFunc: func(f float64) float64 { return 1 / lim(f) }})
+	}
 	for _, b := range r.Stopbands {
+		if limit != nil {
+			// The cascade rule: the limit follows the earlier stages'
+			// attenuation through the weight.
+			bands = append(bands, remez.Band{Lo: b.Lo, Hi: b.Hi, MaxError: 1,
+				WeightFunc: func(f float64) float64 { return 1 / limit(f) }})
+			continue
+		}
 		bands = append(bands, remez.Band{Lo: b.Lo, Hi: b.Hi, MaxError: r.Ds, Weight: 1 / r.Ds})
 	}
 	return bands

@@ -36,7 +36,12 @@
 // delay, its ripple share, the data width a CIC hands it), so scoring a
 // candidate allocates nothing once its stages have been seen. A CIC's
 // rejection is exact, read on its alias bands from its response; FIR and
-// half-band stages meet the targets by construction.
+// half-band stages meet the targets by construction. The estimates follow
+// chain's stage-alone rule whatever Settings.Chain.StageAlone says: under
+// the cascade rule (the default) real designs are often shorter, by what
+// the earlier stages remove, so the estimates over-estimate them, and the
+// two tiers agree exactly only under the stage-alone rule
+// (TestTwoTierExact).
 //
 // A candidate is dropped, and counted under its reason in Result.Dropped,
 // when a CIC misses the rejection at its factor, when its first null falls

@@ -122,6 +122,6 @@ func ExampleEvaluate() {
 	// Output:
 	// 1 0 33 24
 	// 2 13 37 24
-	// 3 15 40 24
+	// 3 12 37 24
 	// bit-true SNR 116.1 dB
 }

@@ -10,11 +10,16 @@ import (
 // designed designs an invented chain with the remez engine.
 func designed(t *testing.T, spec chain.Spec, notation string) *chain.Chain {
 	t.Helper()
+	return designedWith(t, spec, notation, chain.Settings{})
+}
+
+func designedWith(t *testing.T, spec chain.Spec, notation string, s chain.Settings) *chain.Chain {
+	t.Helper()
 	plan, err := chain.ParseNotation(notation)
 	if err != nil {
 		t.Fatal(err)
 	}
-	c, err := chain.Design(spec, plan, chain.Settings{})
+	c, err := chain.Design(spec, plan, s)
 	if err != nil {
 		t.Fatalf("%s: %v", notation, err)
 	}
@@ -136,7 +141,9 @@ func TestAutoWidthsMeetChain(t *testing.T) {
 				d *= p.Factor
 			}
 			spec := chain.Spec{InputRate: 1e6 * float64(d), OutputRate: 1e6, Passband: 0.1e6, RippleDB: tc.rippleDB, RejectionDB: tc.rej, InputBits: 16, OutputBits: 24}
-			c := designed(t, spec, tc.notation)
+			// The stage-alone rule, whose requirements (chain.Requirements)
+			// the loose spec below replaces the stages' with.
+			c := designedWith(t, spec, tc.notation, chain.Settings{StageAlone: true})
 			loose := spec
 			loose.RejectionDB, loose.RippleDB = 60, 0.5
 			reqs, err := chain.Requirements(loose, plan)

@@ -104,6 +104,12 @@ type Spec struct {
 	// (sigmadelta.Modulator.Mask), Chain.NoiseShaped is set and
 	// Chain.InputBits is its bits.
 	SigmaDelta *sigmadelta.Modulator
+	// Requirements is search.requirements: "cascade" (the default), where
+	// a FIR stage's stopband limit counts what the stages before it
+	// remove and the ripple budget is split where it buys most, or
+	// "stage", every stage meeting the full rejection on its own bands
+	// with the budget split equally (chain.Settings.StageAlone).
+	Requirements string
 	// SHA256 is the SHA-256 of the spec's text as parsed (the built-in
 	// example's text for Example), in lower-case hexadecimal: report.json's
 	// spec_sha256, which ties a report to the file that made it.
@@ -147,6 +153,7 @@ func (s *Spec) SearchSettings() optimize.Settings {
 		CICDelays: append([]int(nil), s.CICDelays...),
 		CICForms:  append([]chain.CICForm(nil), s.CICForms...),
 		Limits:    s.Limits,
+		Chain:     chain.Settings{StageAlone: s.Requirements == "stage"},
 		Cost:      s.CostSettings(),
 		Fixed:     s.FixedSettings(),
 	}
@@ -251,6 +258,7 @@ var known = []key{
 	{path: "search.cic_orders"}, {path: "search.cic_delays"}, {path: "search.cic_forms"},
 	{path: "sigma_delta", table: true}, {path: "sigma_delta.order"}, {path: "sigma_delta.bits"},
 	{path: "sigma_delta.snr"}, {path: "sigma_delta.zeros"}, {path: "sigma_delta.obg"},
+	{path: "search.requirements"},
 }
 
 // parser holds one file's data while it is checked.
@@ -891,6 +899,14 @@ func (p *parser) build() (*Spec, error) {
 			return nil, err
 		}
 		out.CICForms = forms
+	}
+	out.Requirements = "cascade"
+	if v, ok := p.lookup("search.requirements"); ok {
+		r, isStr := v.(string)
+		if !isStr || (r != "cascade" && r != "stage") {
+			return nil, p.errAt("search.requirements", v, `want "cascade" (a stage's stopband counts what the stages before it remove) or "stage" (every stage meets the full rejection on its own)`)
+		}
+		out.Requirements = r
 	}
 
 	if out.SigmaDelta != nil {

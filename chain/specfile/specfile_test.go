@@ -192,6 +192,8 @@ func TestParseErrors(t *testing.T) {
 		{"forms unknown", "[search]\ncic_forms = [\"recursive\", \"polyphase\"]", []string{"search.cic_forms", `"polyphase"`, `"nonrecursive"`}},
 		{"forms twice", "[search]\ncic_forms = [\"nonrecursive\", \"nonrecursive\"]", []string{"search.cic_forms", "twice"}},
 		{"forms empty", "[search]\ncic_forms = []", []string{"search.cic_forms", "want a list"}},
+		{"requirements unknown", "[search]\nrequirements = \"chain\"", []string{"search.requirements", `"chain"`, `"cascade"`, `"stage"`}},
+		{"requirements bool", "[search]\nrequirements = true", []string{"search.requirements", `"cascade"`}},
 	} {
 		t.Run(tc.name, func(t *testing.T) {
 			text := minimal
@@ -418,5 +420,26 @@ func TestParseLimits(t *testing.T) {
 	got := s.SearchSettings().Limits
 	if got.MaxRegisterBits != 48 || got.MaxCICFactor != 32 || got.MaxMultipliers != 8 || got.MaxMemoryBits != 20000 {
 		t.Errorf("limits = %+v", got)
+	}
+}
+
+// TestParseRequirements: search.requirements is "cascade" by default, and
+// "stage" sets chain.Settings.StageAlone in the search settings.
+func TestParseRequirements(t *testing.T) {
+	for _, tc := range []struct {
+		text, want string
+		alone      bool
+	}{
+		{minimal, "cascade", false},
+		{minimal + "\n[search]\nrequirements = \"cascade\"\n", "cascade", false},
+		{minimal + "\n[search]\nrequirements = \"stage\"\n", "stage", true},
+	} {
+		s, err := Parse("req.toml", []byte(tc.text))
+		if err != nil {
+			t.Fatal(err)
+		}
+		if s.Requirements != tc.want || s.SearchSettings().Chain.StageAlone != tc.alone {
+			t.Errorf("requirements %q, StageAlone %v; want %q, %v", s.Requirements, s.SearchSettings().Chain.StageAlone, tc.want, tc.alone)
+		}
 	}
 }

@@ -135,6 +135,8 @@ type Limits struct {
 	CICDelays []int    `json:"cic_delays"`
 	// CICForms is search.cic_forms: "recursive" and/or "nonrecursive".
 	CICForms []string `json:"cic_forms"`
+	// Requirements is search.requirements: "cascade" or "stage".
+	Requirements string `json:"requirements"`
 }
 
 // Search summarises the search.
@@ -335,11 +337,16 @@ func NewSpec(s *specfile.Spec) Spec {
 		Words: Words{Input: c.InputBits, Output: c.OutputBits},
 		Cost:  Cost{Symmetry: s.Symmetry},
 		SearchLimits: Limits{
-			MaxStages: s.MaxStages,
-			CICOrders: append([]int{}, s.CICOrders...),
-			CICDelays: append([]int{}, s.CICDelays...),
-			CICForms:  []string{},
+			MaxStages:    s.MaxStages,
+			CICOrders:    append([]int{}, s.CICOrders...),
+			CICDelays:    append([]int{}, s.CICDelays...),
+			CICForms:     []string{},
+			Requirements: s.Requirements,
 		},
+	}
+	if out.SearchLimits.Requirements == "" {
+		// A specfile.Spec built in code: its zero value is the cascade rule.
+		out.SearchLimits.Requirements = "cascade"
 	}
 	for _, f := range s.CICForms {
 		out.SearchLimits.CICForms = append(out.SearchLimits.CICForms, f.String())

@@ -26,7 +26,7 @@
 /*
  * Chain
  *   Input rate 122880000 Hz, 3 stage(s), complex (I/Q: two identical real data paths) data.
- *   Chain DC gain 0.502714157 (input full scale to output full scale).
+ *   Chain DC gain 0.504665375 (input full scale to output full scale).
  */
 #define STEPDOWN_NUM_STAGES 3 /* number of stages, numbered 1.. in signal order */
 #define STEPDOWN_INPUT_BITS 16 /* chain input word (ADC), bits, two's complement */
@@ -102,10 +102,10 @@ static const int32_t STEPDOWN_S2_COEFS[STEPDOWN_S2_NUM_TAPS] STEPDOWN_UNUSED = {
 /*
  * Stage 3: FIR
  *   Input rate 3840000 Hz, output rate 1920000 Hz.
- *   DC gain 1.00542831 (input full scale to output full scale).
+ *   DC gain 1.00933075 (input full scale to output full scale).
  *   products and sum: exact (24 x 18 bits into 43-bit accumulator)
  *   output: round half up, dropping 18 LSBs, then saturate to 24 bits
- *   Tap k is COEFS[k] / 2^COEF_FRAC; 19 taps, 18 bits.
+ *   Tap k is COEFS[k] / 2^COEF_FRAC; 16 taps, 18 bits.
  */
 #define STEPDOWN_S3_KIND 1 /* stage kind (KIND_CIC, KIND_FIR, KIND_HALFBAND, KIND_CIC_NONRECURSIVE) */
 #define STEPDOWN_S3_R 2 /* decimation factor */
@@ -113,15 +113,14 @@ static const int32_t STEPDOWN_S2_COEFS[STEPDOWN_S2_NUM_TAPS] STEPDOWN_UNUSED = {
 #define STEPDOWN_S3_OUTPUT_BITS 24 /* output word, bits */
 #define STEPDOWN_S3_OUTPUT_SHIFT 18 /* LSBs rounded (half up) off the accumulator to make the output; negative: shift left */
 #define STEPDOWN_S3_ACC_BITS 43 /* accumulator width (worst case, exact sum of products), bits */
-#define STEPDOWN_S3_NUM_TAPS 19 /* coefficients, the full impulse response, zeros included */
+#define STEPDOWN_S3_NUM_TAPS 16 /* coefficients, the full impulse response, zeros included */
 #define STEPDOWN_S3_COEF_BITS 18 /* coefficient word, bits, two's complement */
 #define STEPDOWN_S3_COEF_FRAC 18 /* coefficient fractional bits: tap = COEFS[k] / 2^COEF_FRAC */
 #define STEPDOWN_S3_COEFS_TYPE int32_t /* element type of STEPDOWN_S3_COEFS */
 /* quantised coefficients, integers, index 0 first */
 static const int32_t STEPDOWN_S3_COEFS[STEPDOWN_S3_NUM_TAPS] STEPDOWN_UNUSED = {
-	-253, -446, 1345, 4602, 1404, -12118, -16050, 18224,
-	79444, 111263, 79444, 18224, -16050, -12118, 1404, 4602,
-	1345, -446, -253
+	857, 3270, 3151, -6069, -16635, -1873, 49307, 100287,
+	100287, 49307, -1873, -16635, -6069, 3151, 3270, 857
 };
 
 #endif /* STEPDOWN_CHAIN_H */

@@ -19,7 +19,7 @@ localparam integer STEPDOWN_FIELD_BITS = 8; // element width of REG_BITS, REG_DR
 
 // Chain
 //   Input rate 122880000 Hz, 3 stage(s), complex (I/Q: two identical real data paths) data.
-//   Chain DC gain 0.502714157 (input full scale to output full scale).
+//   Chain DC gain 0.504665375 (input full scale to output full scale).
 localparam integer STEPDOWN_NUM_STAGES = 3; // number of stages, numbered 1.. in signal order
 localparam integer STEPDOWN_INPUT_BITS = 16; // chain input word (ADC), bits, two's complement
 localparam integer STEPDOWN_OUTPUT_BITS = 24; // chain output word, bits, two's complement
@@ -88,22 +88,21 @@ localparam [STEPDOWN_S2_NUM_TAPS*STEPDOWN_S2_COEF_BITS-1:0] STEPDOWN_S2_COEFS = 
 
 // Stage 3: FIR
 //   Input rate 3840000 Hz, output rate 1920000 Hz.
-//   DC gain 1.00542831 (input full scale to output full scale).
+//   DC gain 1.00933075 (input full scale to output full scale).
 //   products and sum: exact (24 x 18 bits into 43-bit accumulator)
 //   output: round half up, dropping 18 LSBs, then saturate to 24 bits
-//   Tap k is COEFS[k] / 2^COEF_FRAC; 19 taps, 18 bits.
+//   Tap k is COEFS[k] / 2^COEF_FRAC; 16 taps, 18 bits.
 localparam integer STEPDOWN_S3_KIND = 1; // stage kind (KIND_CIC, KIND_FIR, KIND_HALFBAND, KIND_CIC_NONRECURSIVE)
 localparam integer STEPDOWN_S3_R = 2; // decimation factor
 localparam integer STEPDOWN_S3_INPUT_BITS = 24; // input word, bits
 localparam integer STEPDOWN_S3_OUTPUT_BITS = 24; // output word, bits
 localparam integer STEPDOWN_S3_OUTPUT_SHIFT = 18; // LSBs rounded (half up) off the accumulator to make the output; negative: shift left
 localparam integer STEPDOWN_S3_ACC_BITS = 43; // accumulator width (worst case, exact sum of products), bits
-localparam integer STEPDOWN_S3_NUM_TAPS = 19; // coefficients, the full impulse response, zeros included
+localparam integer STEPDOWN_S3_NUM_TAPS = 16; // coefficients, the full impulse response, zeros included
 localparam integer STEPDOWN_S3_COEF_BITS = 18; // coefficient word, bits, two's complement
 localparam integer STEPDOWN_S3_COEF_FRAC = 18; // coefficient fractional bits: tap = COEFS[k] / 2^COEF_FRAC
 // quantised coefficients, integers, index 0 first; element k at [k*STEPDOWN_S3_COEF_BITS +: STEPDOWN_S3_COEF_BITS], last element first
 localparam [STEPDOWN_S3_NUM_TAPS*STEPDOWN_S3_COEF_BITS-1:0] STEPDOWN_S3_COEFS = {
-  -18'sd253, -18'sd446, 18'sd1345, 18'sd4602, 18'sd1404, -18'sd12118, -18'sd16050, 18'sd18224,
-  18'sd79444, 18'sd111263, 18'sd79444, 18'sd18224, -18'sd16050, -18'sd12118, 18'sd1404, 18'sd4602,
-  18'sd1345, -18'sd446, -18'sd253
+  18'sd857, 18'sd3270, 18'sd3151, -18'sd6069, -18'sd16635, -18'sd1873, 18'sd49307, 18'sd100287,
+  18'sd100287, 18'sd49307, -18'sd1873, -18'sd16635, -18'sd6069, 18'sd3151, 18'sd3270, 18'sd857
 };

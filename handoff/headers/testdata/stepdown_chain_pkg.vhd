@@ -24,7 +24,7 @@ package stepdown_chain_pkg is
 
   -- Chain
   --   Input rate 122880000 Hz, 3 stage(s), complex (I/Q: two identical real data paths) data.
-  --   Chain DC gain 0.502714157 (input full scale to output full scale).
+  --   Chain DC gain 0.504665375 (input full scale to output full scale).
   constant STEPDOWN_NUM_STAGES : integer := 3; -- number of stages, numbered 1.. in signal order
   constant STEPDOWN_INPUT_BITS : integer := 16; -- chain input word (ADC), bits, two's complement
   constant STEPDOWN_OUTPUT_BITS : integer := 24; -- chain output word, bits, two's complement
@@ -101,33 +101,31 @@ package stepdown_chain_pkg is
 
   -- Stage 3: FIR
   --   Input rate 3840000 Hz, output rate 1920000 Hz.
-  --   DC gain 1.00542831 (input full scale to output full scale).
+  --   DC gain 1.00933075 (input full scale to output full scale).
   --   products and sum: exact (24 x 18 bits into 43-bit accumulator)
   --   output: round half up, dropping 18 LSBs, then saturate to 24 bits
-  --   Tap k is COEFS[k] / 2^COEF_FRAC; 19 taps, 18 bits.
+  --   Tap k is COEFS[k] / 2^COEF_FRAC; 16 taps, 18 bits.
   constant STEPDOWN_S3_KIND : integer := 1; -- stage kind (KIND_CIC, KIND_FIR, KIND_HALFBAND, KIND_CIC_NONRECURSIVE)
   constant STEPDOWN_S3_R : integer := 2; -- decimation factor
   constant STEPDOWN_S3_INPUT_BITS : integer := 24; -- input word, bits
   constant STEPDOWN_S3_OUTPUT_BITS : integer := 24; -- output word, bits
   constant STEPDOWN_S3_OUTPUT_SHIFT : integer := 18; -- LSBs rounded (half up) off the accumulator to make the output; negative: shift left
   constant STEPDOWN_S3_ACC_BITS : integer := 43; -- accumulator width (worst case, exact sum of products), bits
-  constant STEPDOWN_S3_NUM_TAPS : integer := 19; -- coefficients, the full impulse response, zeros included
+  constant STEPDOWN_S3_NUM_TAPS : integer := 16; -- coefficients, the full impulse response, zeros included
   constant STEPDOWN_S3_COEF_BITS : integer := 18; -- coefficient word, bits, two's complement
   constant STEPDOWN_S3_COEF_FRAC : integer := 18; -- coefficient fractional bits: tap = COEFS[k] / 2^COEF_FRAC
   -- quantised coefficients, integers, index 0 first
   constant STEPDOWN_S3_COEFS : STEPDOWN_INTEGER_ARRAY(0 to STEPDOWN_S3_NUM_TAPS - 1) := (
-    -253, -446, 1345, 4602, 1404, -12118, -16050, 18224,
-    79444, 111263, 79444, 18224, -16050, -12118, 1404, 4602,
-    1345, -446, -253
+    857, 3270, 3151, -6069, -16635, -1873, 49307, 100287,
+    100287, 49307, -1873, -16635, -6069, 3151, 3270, 857
   );
   -- the same coefficients as signed(17 downto 0), index 0 first
   type STEPDOWN_S3_COEFS_ARRAY is array (0 to STEPDOWN_S3_NUM_TAPS - 1) of signed(17 downto 0);
   constant STEPDOWN_S3_COEFS_SIGNED : STEPDOWN_S3_COEFS_ARRAY := (
-    "111111111100000011", "111111111001000010", "000000010101000001", "000001000111111010",
-    "000000010101111100", "111101000010101010", "111100000101001110", "000100011100110000",
-    "010011011001010100", "011011001010011111", "010011011001010100", "000100011100110000",
-    "111100000101001110", "111101000010101010", "000000010101111100", "000001000111111010",
-    "000000010101000001", "111111111001000010", "111111111100000011"
+    "000000001101011001", "000000110011000110", "000000110001001111", "111110100001001011",
+    "111011111100000101", "111111100010101111", "001100000010011011", "011000011110111111",
+    "011000011110111111", "001100000010011011", "111111100010101111", "111011111100000101",
+    "111110100001001011", "000000110001001111", "000000110011000110", "000000001101011001"
   );
 
 end package stepdown_chain_pkg;

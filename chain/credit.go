@@ -1,0 +1,489 @@
+package chain
+
+import (
+	"crypto/sha256"
+	"encoding/binary"
+	"math"
+	"sync"
+
+	"github.com/stepdown-dsp/stepdown/chain/remez"
+)
+
+// MaxCreditedLimit caps a stage's stopband limit under the cascade rule
+// (package doc, Cascade requirements): however much the earlier stages
+// remove at a frequency, the stage still attenuates it to at most 0.5
+// (-6 dB) of its passband gain, so that every stage stays a filter on its
+// own bands and a later change to an earlier stage cannot leave a band
+// wide open.
+const MaxCreditedLimit = 0.5
+
+// maxProtectedLimit bounds a compensator's gain on its protected band
+// (fp, fa] under the cascade rule from above only where the earlier
+// stages' attenuation of the aliases that land there asks for less: 60 dB
+// above the passband, far above any compensator's transition gain, and
+// finite so that the band's weight stays positive.
+const maxProtectedLimit = 1e3
+
+// protectedGap is the fraction of (fp, fa] left free at each end of a
+// compensator's protected band, so that the band does not share its edge
+// with the passband or the first stopband.
+const protectedGap = 1e-3
+
+// stopCredit is the cascade rule's relaxation of one FIR stage's stopband
+// limit by what the stages before it remove (package doc, Cascade
+// requirements). Copies of a Requirement share it: it holds the earlier
+// stages (their taps are the chain's own slices) and, once first used, the
+// table of its credit over the stage's stopbands (table; at most
+// maxCreditCells+1 values), built once under a sync.Once; the bounds the
+// table is built from are dropped once it is.
+type stopCredit struct {
+	// base is the stage's limit before the credit: the target's ds times
+	// (1 - dp_i) prod_{j>i} (1 - dp_j)/(1 + dp_j) over the ripple-bearing
+	// stages from this one on; the earlier stages' factors are in the
+	// credit itself, measured on their real responses.
+	base float64
+	// rate is the stage's input rate, f0 the chain's.
+	rate, f0 float64
+	// stages are the earlier stages, from the high rate down, rates their
+	// input rates.
+	stages []Stage
+	rates  []float64
+	// stop are the stage's stopbands, where the table is built.
+	stop []Interval
+	// lift are the CICs a later compensator corrects (at their input
+	// rates liftRates): an alias the stage lets through lands at x folded
+	// at its output rate out, in [0, fa], where the compensator lifts it
+	// by up to 1/prod |H_cic| (taken at fp beyond fp). The limit is
+	// lowered by that much.
+	lift      []CICStage
+	liftRates []float64
+	out, fp   float64
+	// aliasOnly leaves out the image g = x itself: the credit of a
+	// compensator's protected band (fp, fa], where x is signal and only
+	// the images m F(i-1) +- x, m >= 1, are aliases.
+	aliasOnly bool
+	// cap is the largest limit: MaxCreditedLimit for a stopband,
+	// maxProtectedLimit for a compensator's protected band.
+	cap float64
+
+	once sync.Once
+	tab  *creditEval // the table, its bounders dropped
+}
+
+// newStopCredit is the credit the stages prev (designed, from the chain's
+// input rate f0 down) give the stage with stopbands stop whose limit
+// before the credit is base.
+func newStopCredit(base, f0 float64, prev []Stage, stop []Interval) *stopCredit {
+	c := &stopCredit{base: base, f0: f0, stop: append([]Interval(nil), stop...), cap: MaxCreditedLimit}
+	rate := f0
+	for _, st := range prev {
+		c.stages = append(c.stages, st)
+		c.rates = append(c.rates, rate)
+		rate /= float64(st.Factor())
+	}
+	c.rate = rate
+	return c
+}
+
+// The number of cells over [0, F(i-1)/2] on which creditEval tabulates
+// the credit: creditPerFeature cells to the finest feature of the earlier
+// stages (a FIR of n taps at P times the stage's rate varies on a scale of
+// P F(i-1)/n; a CIC of delay M at Q times the stage's output rate has
+// lobes Q F(i-1)/M wide), a power of two from minCreditCells to
+// maxCreditCells.
+const (
+	creditPerFeature = 32
+	minCreditCells   = 256
+	maxCreditCells   = 8192
+)
+
+// creditEval evaluates a stopCredit from a table: for each cell of
+// [0, F(i-1)/2] that meets one of the stage's stopbands, a rigorous upper
+// bound of the credit over the whole cell (cellBound), and at a node the
+// larger of its two cells' bounds, so that the linear interpolation
+// between nodes, which at is, lies above the credit everywhere in the
+// cell. Frequencies outside the table are bounded on the spot.
+type creditEval struct {
+	c     *stopCredit
+	bnd   []stageBounder // each stage's rigorous bounder (bound.go)
+	step  []float64      // a FIR bounder's grid step, 0 for a CIC
+	rest  []float64      // rest[j]: an upper bound of prod_{k>=j} |H_k|
+	dc    float64        // prod_j |H_j(0)|
+	w     float64        // cell width
+	cells int            // cells over [0, F(i-1)/2]
+	nodes []float64      // node k at k w; -1 where not tabulated
+}
+
+// eval builds the evaluator of c for a stage with the given stopbands.
+func (c *stopCredit) eval(stop []Interval) *creditEval {
+	n := len(c.stages)
+	e := &creditEval{c: c, bnd: make([]stageBounder, n), step: make([]float64, n), rest: make([]float64, n+1), dc: 1}
+	peaks := make([]float64, n)
+	for j, st := range c.stages {
+		e.dc *= st.Gain(0, c.rates[j])
+		b, err := newStageBounder(st, c.rates[j])
+		if err != nil {
+			// A stage that cannot be bounded (a FIR without taps): no
+			// credit at all.
+			e.dc = 0
+			return e
+		}
+		e.bnd[j] = b
+		peaks[j] = 1
+		if fb, ok := b.(*firBounder); ok {
+			e.step[j] = fb.step
+			_, peaks[j] = fb.coarse(0, c.rates[j]/2)
+		}
+	}
+	e.rest[n] = 1
+	for j := n - 1; j >= 0; j-- {
+		e.rest[j] = e.rest[j+1] * peaks[j]
+	}
+	if !(e.dc > 0) {
+		return e
+	}
+	// The finest feature of the earlier stages, in cells of [0, rate/2].
+	feat := 1.0
+	for j, st := range c.stages {
+		switch s := st.(type) {
+		case FIRStage:
+			feat = math.Max(feat, float64(len(s.Taps))*c.rate/c.rates[j])
+		case CICStage:
+			feat = math.Max(feat, float64(s.M*s.R)*c.rate/c.rates[j])
+		}
+	}
+	cells := nextPow2(min(maxCreditCells, max(minCreditCells, int(math.Ceil(creditPerFeature*feat/2)))))
+	e.cells = cells
+	e.w = c.rate / 2 / float64(cells)
+	e.nodes = make([]float64, cells+1)
+	for k := range e.nodes {
+		e.nodes[k] = -1
+	}
+	for _, sb := range stop {
+		// A cell of margin each side: the design engine's frequencies
+		// may round just outside a band.
+		k0 := max(0, int(math.Floor(sb.Lo/e.w))-1)
+		k1 := min(cells, int(math.Ceil(sb.Hi/e.w))+1)
+		for k := k0; k < k1; k++ {
+			u := e.cellBound(float64(k)*e.w, float64(k+1)*e.w)
+			for _, q := range [2]int{k, k + 1} {
+				if !(e.nodes[q] >= u) {
+					e.nodes[q] = u
+				}
+			}
+		}
+	}
+	return e
+}
+
+// cellBound is a rigorous upper bound of the earlier stages' largest
+// relative gain prod_j |H_j(g)|/|H_j(0)| over every g in [0, F0/2] that
+// the stage sees at some x in [a, b] (0 <= a <= b <= F(i-1)/2): the
+// images [m F(i-1) - b, m F(i-1) - a] and [m F(i-1) + a, m F(i-1) + b],
+// each stage bounded over each image by its bounder (a FIR's over at
+// least a grid step, where its bound is a range query). Images are taken
+// in increasing frequency; one whose partial product times the bound of
+// the stages left cannot beat the best so far is dropped, and when the
+// first stage is a CIC, whose envelope 1/(RM sin(pi g/F0))^N falls with g
+// below F0/2, the first image whose envelope cannot beat the best ends
+// the search.
+func (e *creditEval) cellBound(a, b float64) float64 {
+	c := e.c
+	first, firstCIC := c.stages[0].(CICStage)
+	best := 0.0
+	half := c.f0 / 2
+	for m := 0; float64(m)*c.rate-b <= half; m++ {
+		base := float64(m) * c.rate
+		for s := 0; s < 2; s++ {
+			lo, hi := base-b, base-a
+			if s == 1 {
+				if m == 0 && c.aliasOnly {
+					continue
+				}
+				lo, hi = base+a, base+b
+			} else if m == 0 {
+				continue
+			}
+			lo, hi = math.Max(lo, 0), math.Min(hi, half)
+			if lo > hi {
+				continue
+			}
+			if firstCIC && cicEnvelope(first, lo, c.rates[0])*e.rest[1] <= best {
+				return best / e.dc
+			}
+			p := 1.0
+			for j, bd := range e.bnd {
+				l, h := lo, hi
+				if st := e.step[j]; h-l < 1.01*st {
+					mid := l + (h-l)/2
+					l, h = mid-0.51*st, mid+0.51*st
+				}
+				_, up := bd.bounds(l, h)
+				p *= up
+				if p*e.rest[j+1] <= best {
+					break
+				}
+			}
+			best = math.Max(best, p)
+		}
+	}
+	return best / e.dc
+}
+
+// table returns c's table, building it on first use.
+func (c *stopCredit) table() *creditEval {
+	c.once.Do(func() {
+		e := c.eval(c.stop)
+		e.bnd, e.step, e.rest = nil, nil, nil
+		c.tab = e
+	})
+	return c.tab
+}
+
+// at is an upper bound of the credit at x (see creditEval). A frequency
+// outside the table is bounded on the spot, by a fresh evaluator when the
+// table's bounders were dropped.
+func (e *creditEval) at(x float64) float64 {
+	if x < 0 || x > e.c.rate/2 {
+		x = foldFreq(x, e.c.rate)
+	}
+	if e.nodes != nil {
+		k := int(x / e.w)
+		if k >= e.cells {
+			k = e.cells - 1
+		}
+		if v0, v1 := e.nodes[k], e.nodes[k+1]; v0 >= 0 && v1 >= 0 {
+			t := math.Min(math.Max((x-float64(k)*e.w)/e.w, 0), 1)
+			return v0 + t*(v1-v0)
+		}
+	}
+	if e.bnd == nil {
+		return e.c.eval(nil).cellBound(x, x)
+	}
+	return e.cellBound(x, x)
+}
+
+// cicEnvelope is an upper bound of the CIC's |H(g)| at rate:
+// min(1, 1/(RM |sin(pi g/F)|)^N), its numerator being at most 1.
+func cicEnvelope(cs CICStage, g, rate float64) float64 {
+	s := float64(cs.R*cs.M) * math.Abs(math.Sin(math.Pi*foldFreq(g, rate)/rate))
+	if s <= 1 {
+		return 1
+	}
+	return math.Pow(1/s, float64(cs.N))
+}
+
+// limit is the stage's absolute stopband limit at x: base over the
+// credit, at most MaxCreditedLimit (and base when no credit can be
+// computed), times the later compensator's lift (liftAt).
+func (e *creditEval) limit(x float64) float64 {
+	l := e.c.liftAt(x)
+	if !(e.dc > 0) {
+		return math.Min(e.c.base*l, e.c.cap)
+	}
+	cr := e.at(x)
+	if !(cr > 0) || e.c.base*l/cr > e.c.cap {
+		return e.c.cap
+	}
+	return e.c.base * l / cr
+}
+
+// liftAt is 1 over the later compensator's lift of an alias the stage
+// lets through at x: prod |H_cic(min(x', fp))| over the CICs it corrects,
+// x' being x folded at the stage's output rate; 1 without a later
+// compensator.
+func (c *stopCredit) liftAt(x float64) float64 {
+	if len(c.lift) == 0 {
+		return 1
+	}
+	f := math.Min(foldFreq(x, c.out), c.fp)
+	g := 1.0
+	for j, cs := range c.lift {
+		g *= cs.Gain(f, c.liftRates[j])
+	}
+	return g
+}
+
+// key appends what the credit depends on to b: its base, the stage's
+// input rate, and every earlier stage as designed (kind, factor, rate; a
+// CIC's order and delay, a FIR's taps by their SHA-256).
+func (c *stopCredit) key(b []byte) []byte {
+	u := func(v uint64) { b = binary.LittleEndian.AppendUint64(b, v) }
+	f := func(v float64) { u(math.Float64bits(v)) }
+	f(c.base)
+	f(c.rate)
+	u(uint64(len(c.lift)))
+	for j, cs := range c.lift {
+		u(uint64(cs.N))
+		u(uint64(cs.R * cs.M))
+		f(c.liftRates[j])
+	}
+	f(c.out)
+	f(c.fp)
+	f(c.cap)
+	if c.aliasOnly {
+		u(1)
+	} else {
+		u(0)
+	}
+	u(uint64(len(c.stages)))
+	for j, st := range c.stages {
+		u(uint64(st.Kind()))
+		u(uint64(st.Factor()))
+		f(c.rates[j])
+		switch s := st.(type) {
+		case CICStage:
+			u(uint64(s.N))
+			u(uint64(s.M))
+		case FIRStage:
+			h := sha256.New()
+			var w [8]byte
+			for _, t := range s.Taps {
+				binary.LittleEndian.PutUint64(w[:], math.Float64bits(t))
+				h.Write(w[:])
+			}
+			b = h.Sum(b)
+		}
+	}
+	return b
+}
+
+// Credited reports whether the stage's stopband limit is relaxed by the
+// earlier stages (the cascade rule, a FIR stage after another stage).
+func (r Requirement) Credited() bool { return r.credit != nil }
+
+// StopbandLimitFunc returns the stage's absolute stopband limit as a
+// function of x Hz on its input axis: Ds under the stage-alone rule (and
+// for a stage without credit), and under the cascade rule Ds' / c(x), at
+// most MaxCreditedLimit, where c(x) bounds from above the largest gain of
+// the earlier stages relative to their gain at 0 Hz over the input
+// frequencies the stage sees at x, and Ds' is the target's ds times the
+// passband factors of this stage and the later ones (package doc, Cascade
+// requirements). The function is what Bands' stopbands are held to (their
+// WeightFunc is its inverse). The credit is tabulated over the stopbands
+// on first use and kept with the requirement.
+func (r Requirement) StopbandLimitFunc() func(x float64) float64 {
+	if r.credit == nil {
+		ds := r.Ds
+		return func(float64) float64 { return ds }
+	}
+	return r.credit.table().limit
+}
+
+// splitRipple returns each ripple-bearing stage's share of left dB (the
+// budget after the uncorrected droop) under the cascade rule. A half-band
+// is designed for min(dp, ds) on both bands, so ripple beyond its
+// stopband's deviation buys it nothing: each half-band gets the ripple of
+// the target's ds, DevToRipple(ds), or the equal share when that is less.
+// The rest goes to the FIR stages, split by the cheapest of a few splits
+// (equal; and each FIR in turn given 1/2, 3/4 or 9/10 of it, the others
+// the rest equally), cheapest meaning the fewest multiplies per output
+// sample by the Herrmann-Rabiner-Chan formula, unrounded, at the flat
+// limits the split gives (splitCost); the equal split wins a tie. reqs
+// hold the stages' bands; ripple lists the ripple-bearing stages' indices;
+// fk is the final output rate. The shares add up to left.
+func splitRipple(reqs []Requirement, ripple []int, left, ds, fk float64) []float64 {
+	n := len(ripple)
+	sh := make([]float64, n)
+	var firs []int // positions in ripple of the FIR stages
+	hbShare := math.Min(DevToRipple(ds), left/float64(n))
+	rest := left
+	for k, i := range ripple {
+		if reqs[i].Kind == HalfBand {
+			sh[k] = hbShare
+			rest -= hbShare
+			continue
+		}
+		firs = append(firs, k)
+	}
+	if len(firs) == 0 {
+		// Half-bands alone: the equal split.
+		for k := range sh {
+			sh[k] = left / float64(n)
+		}
+		return sh
+	}
+	split := func(big int, frac float64) []float64 {
+		out := append([]float64(nil), sh...)
+		for _, k := range firs {
+			switch {
+			case big < 0:
+				out[k] = rest / float64(len(firs))
+			case k == big:
+				out[k] = rest * frac
+			default:
+				out[k] = rest * (1 - frac) / float64(len(firs)-1)
+			}
+		}
+		return out
+	}
+	best := split(-1, 0)
+	bestCost := splitCost(reqs, ripple, best, ds, fk)
+	if len(firs) < 2 {
+		return best
+	}
+	for _, k := range firs {
+		for _, frac := range []float64{0.5, 0.75, 0.9} {
+			if frac <= 1/float64(len(firs)) {
+				continue
+			}
+			cand := split(k, frac)
+			if c := splitCost(reqs, ripple, cand, ds, fk); c < bestCost {
+				best, bestCost = cand, c
+			}
+		}
+	}
+	return best
+}
+
+// splitCost is the multiplies per output sample of the FIR stages under
+// the shares sh: the Herrmann-Rabiner-Chan length D/df - f df + 1,
+// unrounded so that small differences count, at Dp and the flat Ds the
+// shares give, times the stage's output rate over fk. Half-bands, whose
+// shares the rule fixes, are left out. A stage outside the formula's
+// domain costs +Inf.
+func splitCost(reqs []Requirement, ripple []int, sh []float64, ds, fk float64) float64 {
+	dps := make([]float64, len(sh))
+	for k, s := range sh {
+		dps[k] = RippleToDev(s)
+	}
+	total := 0.0
+	for k, i := range ripple {
+		r := reqs[i]
+		if r.Kind == HalfBand {
+			continue
+		}
+		d := ds * stopbandScaleOf(dps, k, true)
+		df := (r.Stopbands[0].Lo - r.Passband) / r.InputRate
+		if !(dps[k] > 0 && dps[k] < 1 && d > 0 && d < 1 && df > 0) {
+			return math.Inf(1)
+		}
+		taps := remez.HerrmannD(dps[k], d)/df - remez.HerrmannF(dps[k], d)*df + 1
+		total += taps * r.OutputRate / fk
+	}
+	return total
+}
+
+// stopbandScaleOf is StopbandScale for stages with unequal deviations
+// dps: prod_j (1 - dp_j) / prod_{j != k} (1 + dp_j) for stage k when own,
+// prod_j (1 - dp_j)/(1 + dp_j) for a CIC (own false).
+func stopbandScaleOf(dps []float64, k int, own bool) float64 {
+	s := 1.0
+	for j, dp := range dps {
+		s *= 1 - dp
+		if !own || j != k {
+			s /= 1 + dp
+		}
+	}
+	return s
+}
+
+// laterScale is the cascade rule's factor before the credit of
+// ripple-bearing stage k: (1 - dp_k) prod_{j>k} (1 - dp_j)/(1 + dp_j).
+func laterScale(dps []float64, k int) float64 {
+	s := 1 - dps[k]
+	for _, dp := range dps[k+1:] {
+		s *= (1 - dp) / (1 + dp)
+	}
+	return s
+}
