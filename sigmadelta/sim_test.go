@@ -112,11 +112,12 @@ func TestUnstable(t *testing.T) {
 // an audio-style 1-bit order-4 modulator at 64x (3.072 MHz to 48 kHz,
 // 20 kHz band) into a CIC and a FIR, and a 3-bit order-2 one at 32x
 // (1.024 MHz to 32 kHz, 10 kHz band). The modulators are the error-
-// feedback structure (NewEncoder), the NTFs those of TestNTFDesign. For
-// the 3-bit modulator the linear model is within a few dB (measured
-// +3.3 dB: its error is patterned, see TestSimulatedSpectrum): within
-// 4 dB. For the single-bit one it is conservative: the simulation is 0 to
-// 9 dB better (measured +6.65 dB). The predicted figure is also held to an
+// feedback structure (NewEncoder), the NTFs those of TestNTFDesign. The
+// prediction must be on the safe side: for the 3-bit modulator never more
+// than 1 dB optimistic and at most 6 dB pessimistic (measured +3.3 dB on
+// the chain designed under the stage-alone rule, +4.0 dB under the cascade
+// rule: its error is patterned, see TestSimulatedSpectrum). For the
+// single-bit one the simulation is 0 to 9 dB better (measured +6.65 dB). The predicted figure is also held to an
 // independent dense evaluation of the rounded taps, within 0.001 dB.
 func TestPredictedVsBitstream(t *testing.T) {
 	for _, c := range []struct {
@@ -126,7 +127,7 @@ func TestPredictedVsBitstream(t *testing.T) {
 		lo, hi   float64 // simulated - predicted, dB
 	}{
 		{Modulator{Order: 4, Bits: 1, SNRDB: 85}, chain.Spec{InputRate: 3.072e6, OutputRate: 48e3, Passband: 20e3, RippleDB: 0.1}, "cic5m1r16 > fir4", 0, 9},
-		{Modulator{Order: 2, Bits: 3, SNRDB: 60}, chain.Spec{InputRate: 1.024e6, OutputRate: 32e3, Passband: 10e3, RippleDB: 0.1}, "cic3m1r8 > fir4", -4, 4},
+		{Modulator{Order: 2, Bits: 3, SNRDB: 60}, chain.Spec{InputRate: 1.024e6, OutputRate: 32e3, Passband: 10e3, RippleDB: 0.1}, "cic3m1r8 > fir4", -1, 6},
 	} {
 		spec := c.spec
 		spec.NoiseShaped, spec.InputBits = true, c.m.Bits
