@@ -65,6 +65,13 @@ type stopCredit struct {
 	// cap is the largest limit: MaxCreditedLimit for a stopband,
 	// maxProtectedLimit for a compensator's protected band.
 	cap float64
+	// mask, when not nil, is the spec's rejection mask and top its largest
+	// rejection, which base is stated at: each input frequency g counts
+	// with the weight 10^((mask(g) - top)/20) <= 1, so that the limit at x
+	// is the least over the g the stage sees there of the mask's own
+	// limit at g over the earlier stages' gain at g.
+	mask *Mask
+	top  float64
 
 	once sync.Once
 	tab  *creditEval // the table, its bounders dropped
@@ -189,7 +196,11 @@ func (c *stopCredit) eval(stop []Interval) *creditEval {
 // the search.
 func (e *creditEval) cellBound(a, b float64) float64 {
 	c := e.c
-	first, firstCIC := c.stages[0].(CICStage)
+	var first CICStage
+	firstCIC := false
+	if len(c.stages) > 0 {
+		first, firstCIC = c.stages[0].(CICStage)
+	}
 	best := 0.0
 	half := c.f0 / 2
 	for m := 0; float64(m)*c.rate-b <= half; m++ {
@@ -223,6 +234,11 @@ func (e *creditEval) cellBound(a, b float64) float64 {
 				if p*e.rest[j+1] <= best {
 					break
 				}
+			}
+			if c.mask != nil {
+				// The mask's weight, at most 1, only lowers p: the
+				// prunes above stay safe.
+				p *= math.Pow(10, (c.mask.MaxOver(lo, hi)-c.top)/20)
 			}
 			best = math.Max(best, p)
 		}
@@ -321,6 +337,14 @@ func (c *stopCredit) key(b []byte) []byte {
 	f(c.out)
 	f(c.fp)
 	f(c.cap)
+	u(uint64(len(c.maskPoints())))
+	if c.mask != nil {
+		f(c.top)
+		for _, p := range c.mask.p {
+			f(p.Hz)
+			f(p.DB)
+		}
+	}
 	if c.aliasOnly {
 		u(1)
 	} else {
@@ -486,4 +510,12 @@ func laterScale(dps []float64, k int) float64 {
 		s *= (1 - dp) / (1 + dp)
 	}
 	return s
+}
+
+// maskPoints is the mask's points, none without one.
+func (c *stopCredit) maskPoints() []MaskPoint {
+	if c.mask == nil {
+		return nil
+	}
+	return c.mask.p
 }

@@ -95,6 +95,7 @@ func build(ctx context.Context, spec Spec, plan []StagePlan, s Settings, design 
 				// The cascade rule: the stages before this one are
 				// designed, and their attenuation relaxes its stopbands.
 				r.credit = newStopCredit(r.cascadeBase, spec.InputRate, c.Stages, r.Stopbands)
+				r.credit.mask, r.credit.top = spec.RejectionMask, spec.RejectionDB
 				if len(r.Compensates) > 0 {
 					// The compensator's transition on (fp, fa] lifts
 					// the CICs' own aliases that land there: bound it
@@ -103,6 +104,7 @@ func build(ctx context.Context, spec Spec, plan []StagePlan, s Settings, design 
 					if hi := math.Min(spec.Protected, r.Stopbands[0].Lo); hi > r.Passband*(1+1e-9) {
 						p := newStopCredit(reqs[r.Compensates[0]].Ds, spec.InputRate, c.Stages, []Interval{{r.Passband, hi}})
 						p.aliasOnly, p.cap = true, maxProtectedLimit
+						p.mask, p.top = spec.RejectionMask, spec.RejectionDB
 						// Where the aliases landing just above fp ask
 						// for less than the passband's own gain there,
 						// no compensator can meet the target: the band

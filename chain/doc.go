@@ -306,8 +306,15 @@
 // AliasRejectionDB is R plus the worst margin over the mask and
 // WorstAliasHz where it lies; Meets and every margin over the target read
 // as with a flat target. TestAnalyzeMask holds it to a brute-force
-// reference on random chains and masks. Stage requirements are still
-// those of the flat target R, the mask's largest rejection (the safe side).
+// reference on random chains and masks. Designs follow the mask under the
+// cascade rule (Cascade requirements): every FIR stage's stopband limit
+// at x is the least, over the input frequencies g it sees at x, of the
+// mask's limit 10^(-mask(g)/20) (times the passband factors) over the
+// earlier stages' gain at g, the first FIR included; a half-band, a CIC's
+// estimate and the stage-alone rule keep the flat R, the mask's largest
+// rejection (the safe side). TestAnalyzeMask also checks that a chain
+// designed to the mask meets it wherever the same plan designed to the
+// flat R meets R, with no more taps.
 //
 // # Interpolation
 //

@@ -73,6 +73,8 @@ func TestAnalyzeMask(t *testing.T) {
 		if err != nil {
 			t.Fatal(err)
 		}
+		flat := sp
+		flat.RejectionDB = m.Max()
 		sp.RejectionDB, sp.RejectionMask = 0, m
 		c, err := Design(sp, plan, Settings{MaxTaps: 1500})
 		if err != nil {
@@ -93,6 +95,16 @@ func TestAnalyzeMask(t *testing.T) {
 		}
 		if ok := a.Meets(sp); ok != (a.AliasRejectionDB >= m.Max()-RejectionSlackDB && a.PassbandRippleDB <= sp.RippleDB+RippleSlackDB) {
 			t.Errorf("%s: Meets %v", Notation(plan), ok)
+		}
+		// Designed to the mask, the chain meets it wherever the same plan
+		// designed to the mask's flat top meets that, and is no longer.
+		if cf, err := Design(flat, plan, Settings{MaxTaps: 1500}); err == nil {
+			if af, err := Analyze(cf, flat); err == nil && af.Meets(flat) && !a.Meets(sp) {
+				t.Errorf("%s: misses its mask by %.3f dB; designed to the flat %.1f dB it meets", Notation(plan), a.AliasRejectionDB-m.Max(), m.Max())
+			}
+			if n, nf := totalTaps(c), totalTaps(cf); n > nf {
+				t.Errorf("%s: %d taps to the mask, %d to its flat top", Notation(plan), n, nf)
+			}
 		}
 		checked++
 	}
@@ -147,4 +159,15 @@ func refMaskMargin(c *Chain, sp Spec) float64 {
 		}
 	}
 	return worst
+}
+
+// totalTaps is the chain's FIR and half-band taps.
+func totalTaps(c *Chain) int {
+	n := 0
+	for _, s := range c.Stages {
+		if f, ok := s.(FIRStage); ok {
+			n += len(f.Taps)
+		}
+	}
+	return n
 }

@@ -270,7 +270,10 @@ func requirements(spec Spec, plan []StagePlan, stageAlone bool) ([]Requirement, 
 			continue
 		}
 		setDevs(&reqs[i], shares[q], dps[q], ds, stopbandScaleOf(dps, q, true))
-		if reqs[i].Kind == FIR && i > 0 {
+		// A FIR after another stage takes their credit; with a
+		// rejection mask the first FIR too takes the mask's (its limit
+		// at x is the mask's at x, credit.go).
+		if reqs[i].Kind == FIR && (i > 0 || spec.RejectionMask != nil) {
 			reqs[i].cascadeBase = ds * laterScale(dps, q)
 		}
 		q++
