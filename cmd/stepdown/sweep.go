@@ -26,7 +26,7 @@ func sweepCommand() *cli.Command {
 		ArgsUsage: "[SPEC.toml]",
 		UsageText: "stepdown sweep [SPEC.toml] --vary KEY=FROM:TO:STEP [--vary KEY2=FROM:TO:STEP] [--out DIR] [--json] [--quiet] [--html] [--max-stages N] [--jobs N] [--timeout DUR]\n\n" +
 			"KEY is one of input_rate, output_rate, decimation, interpolation, passband, protected, stopband, ripple,\n" +
-			"rejection, clock, input_bits, output_bits, coefficient_bits or max_stages; FROM:TO:STEP are\n" +
+			"rejection, snr (sigma_delta.snr), clock, input_bits, output_bits, coefficient_bits or max_stages; FROM:TO:STEP are\n" +
 			"written like the spec's values (\"80 dB:100 dB:5 dB\", \"80:100:5\" in the key's base unit,\n" +
 			"\"1.92:3.84:0.64 MHz\"), at most 50 values; FROM above TO runs downwards (\"90:70:10\").\n" +
 			"decimation steps D and sets output_rate = input_rate / D; interpolation steps L and sets\n" +

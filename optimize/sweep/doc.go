@@ -20,6 +20,8 @@
 //     likewise: output_rate = input_rate L;
 //   - passband, protected, stopband [passband, protected, stopband]:
 //     frequencies;
+//   - snr [sigma_delta.snr]: the in-band SNR target of a noise-shaped
+//     input, in dB;
 //   - ripple, rejection [ripple, rejection]: levels in dB; with a
 //     rejection_mask in the spec, rejection moves the whole mask, every
 //     point by the same dB, so that its largest rejection is the value;

@@ -431,6 +431,9 @@ func specRows(s report.Spec) []kv {
 		{rejection, rejectionText(s)},
 		{"Signal", s.Signal},
 	}
+	if s.SigmaDelta != nil {
+		rows = append(rows, sigmaDeltaRow(s))
+	}
 	coef := "floating point"
 	if s.Words.Coefficients != nil {
 		coef = fmt.Sprintf("%d bits", *s.Words.Coefficients)
@@ -765,4 +768,20 @@ func rejectionText(s report.Spec) string {
 		pts[i] = freq(p[0]) + ": " + shortest(p[1]) + " dB"
 	}
 	return "mask " + strings.Join(pts, ", ") + " (linear in dB between points; the rejection figures below are " + shortest(s.RejectionDB) + " dB plus the worst margin over the mask)"
+}
+
+// sigmaDeltaRow describes the noise-shaped converter feeding the chain
+// (a spec with one).
+func sigmaDeltaRow(s report.Spec) kv {
+	m := s.SigmaDelta
+	zeros := "all at DC"
+	if len(m.ZerosHz) > 0 {
+		z := make([]string, len(m.ZerosHz))
+		for i, v := range m.ZerosHz {
+			z[i] = freq(v)
+		}
+		zeros = strings.Join(z, ", ")
+	}
+	return kv{"Input converter", fmt.Sprintf("sigma-delta modulator of order %d, %d-bit quantiser, in-band SNR target %s dB, NTF zeros %s, out-of-band gain %s; the rejection mask is derived from it",
+		m.Order, m.Bits, shortest(m.SNRDB), zeros, shortest(m.OBG))}
 }
