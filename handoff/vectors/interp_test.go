@@ -266,12 +266,13 @@ func TestInterpLengthsAndTones(t *testing.T) {
 		}
 		readme := string(v.Files()[0].Data)
 		for _, want := range []string{
-			"Interpolation chain: input rate 1000000 Hz, output rate 8000000 Hz (interpolation 8)",
+			"Interpolation chain: input rate 1000000 Hz, output rate 8000000 Hz\n(interpolation 8)",
 			"NAME.stage1.txt   stage 1's output, 22 samples at 2000000 Hz, 14-bit codes",
 			"NAME.out.txt      the chain's output (the last stage's), 88 samples",
 			"FIR interpolator, 12 taps, interpolation 2",
 			"CIC interpolator, order 3, delay 1, interpolation 4",
-			"truncated (floor",
+			"(floor, 4 LSBs dropped)",
+			"a shift of 10 bits, the decimating FIR's less floor(log2 L) = 1",
 			"Impulse response: 54 output samples long (7 input samples",
 			"Group delay: 3.3125 input samples, 26.5 output samples",
 			fmt.Sprintf("tone at %.10g Hz", tc.f),

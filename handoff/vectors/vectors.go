@@ -416,8 +416,8 @@ func (v *Vectors) readmeInterp() []byte {
 	if v.o.Notation != "" {
 		p("Chain: %s", v.o.Notation)
 	}
-	p("Interpolation chain: input rate %.10g Hz, output rate %.10g Hz (interpolation %d);", c.InputRate, rates[len(rates)-1], l)
-	p("%d stages; %s data.", len(c.Stages), map[bool]string{false: "real", true: "complex (I/Q)"}[c.Complex])
+	p("Interpolation chain: input rate %.10g Hz, output rate %.10g Hz", c.InputRate, rates[len(rates)-1])
+	p("(interpolation %d); %d stages; %s data.", l, len(c.Stages), map[bool]string{false: "real", true: "complex (I/Q)"}[c.Complex])
 	p("")
 	p("These are planning data for hardware, from stepdown's bit-true model of the")
 	p("chain (package chain/fixed). Prove your RTL against them, then rely on your")
@@ -450,27 +450,30 @@ func (v *Vectors) readmeInterp() []byte {
 		switch {
 		case st.CIC && sw.CICInterp != nil:
 			ci := sw.CICInterp
-			p("%d. CIC interpolator, order %d, delay %d, interpolation %d, %.10g Hz to %.10g Hz:", k+1, ci.N, ci.M, ci.R, rates[k], rates[k+1])
-			p("   %d-bit input; %d combs at the input rate, registers %v bits, y = x - x[%d back];", sw.InputBits, ci.N, ci.RegisterBits[:ci.N], ci.M)
-			p("   each comb output, then %s (zero stuffing); %d integrators at the output", zeros(ci.R-1), ci.N)
-			p("   rate, registers %v bits, each taking its input sign-extended. Every", ci.RegisterBits[ci.N:])
-			p("   register is full width (unpruned, nothing truncated inside) and wraps in")
-			p("   two's complement at its width. Output: the top %d bits of the %d-bit last", sw.OutputBits, ci.FullBits())
-			p("   integrator, truncated (floor, %d LSBs dropped); gain %.9g.", sw.OutputShift, sw.Gain)
+			p("%d. CIC interpolator, order %d, delay %d, interpolation %d", k+1, ci.N, ci.M, ci.R)
+			p("   (%.10g Hz to %.10g Hz): %d-bit input;", rates[k], rates[k+1], sw.InputBits)
+			p("   %d combs at the input rate, y = x - x[%d back], registers %v bits;", ci.N, ci.M, ci.RegisterBits[:ci.N])
+			p("   each comb output, then %s (zero stuffing);", zeros(ci.R-1))
+			p("   %d integrators at the output rate, registers %v bits,", ci.N, ci.RegisterBits[ci.N:])
+			p("   each taking its input sign-extended. Every register is full width")
+			p("   (unpruned, nothing truncated inside) and wraps in two's complement at its")
+			p("   width. Output: the top %d bits of the %d-bit last integrator, truncated", sw.OutputBits, ci.FullBits())
+			p("   (floor, %d LSBs dropped); gain %.9g.", sw.OutputShift, sw.Gain)
 		default:
 			kind := "FIR"
 			if st.HalfBand {
 				kind = "half-band"
 			}
 			r := st.R
-			p("%d. %s interpolator, %d taps, interpolation %d, %.10g Hz to %.10g Hz: %d-bit input,", k+1, kind, len(sw.Coefficients.Ints), r, rates[k], rates[k+1], sw.InputBits)
-			p("   %d-bit coefficients (tap = code / 2^%d). The input is zero-stuffed (each sample,", sw.Coefficients.Bits, sw.Coefficients.Frac)
-			p("   then %s) and filtered by the taps: as %d polyphase phases, output nL + p", zeros(r-1), r)
-			p("   is sum_k h[p + Lk] x[n - k] (L = %d, inputs before the first zero), exact in a", r)
-			p("   %d-bit accumulator (the widest phase's). Output: rounded half up after a shift", sw.AccumulatorBits)
-			p("   of %d bits (the decimating FIR's shift less floor(log2 L) = %d: each phase's", sw.OutputShift, log2Floor(r))
-			p("   DC gain is about 1/L, so the sum is taken times 2^%d), saturated to %d bits;", log2Floor(r), sw.OutputBits)
-			p("   gain %.9g.", sw.Gain)
+			p("%d. %s interpolator, %d taps, interpolation %d", k+1, kind, len(sw.Coefficients.Ints), r)
+			p("   (%.10g Hz to %.10g Hz): %d-bit input, %d-bit coefficients", rates[k], rates[k+1], sw.InputBits, sw.Coefficients.Bits)
+			p("   (tap = code / 2^%d). The input is zero-stuffed (each sample, then %s)", sw.Coefficients.Frac, zeros(r-1))
+			p("   and filtered by the taps, as %d polyphase phases: output nL + p is", r)
+			p("   sum_k h[p + Lk] x[n - k] (L = %d, inputs before the first zero), exact in", r)
+			p("   a %d-bit accumulator (the widest phase's). Output: rounded half up after", sw.AccumulatorBits)
+			p("   a shift of %d bits, the decimating FIR's less floor(log2 L) = %d (each", sw.OutputShift, log2Floor(r))
+			p("   phase's DC gain is about 1/L, so the sum is taken times 2^%d), and", log2Floor(r))
+			p("   saturated to %d bits; gain %.9g.", sw.OutputBits, sw.Gain)
 			if ph := hbCentre(sw.Coefficients, r); st.HalfBand && ph >= 0 {
 				p("   Phase %d holds only the centre tap, 2^%d (one half): it passes the input with", ph, sw.Coefficients.Frac-1)
 				p("   gain 1, a shift (rounded half up when the output word is the narrower).")
@@ -504,8 +507,8 @@ func (v *Vectors) readmeInterp() []byte {
 	p("step_neg    the most negative code throughout (Q: the largest positive)")
 	p("tone_pass   a %.3g dBFS tone at %.10g Hz, 0.4 times the passband edge", ToneDBFS, v.freq[0])
 	if v.o.AliasHz != 0 {
-		p("tone_alias  a %.3g dBFS tone at %.10g Hz, whose image at %.10g Hz is the rounded", ToneDBFS, v.freq[1], math.Abs(v.o.AliasHz))
-		p("            chain's worst image")
+		p("tone_alias  a %.3g dBFS tone at %.10g Hz, whose image at %.10g Hz is the", ToneDBFS, v.freq[1], math.Abs(v.o.AliasHz))
+		p("            rounded chain's worst image")
 	} else {
 		p("tone_alias  a %.3g dBFS tone at %.10g Hz (no worst image given; its images lie at", ToneDBFS, v.freq[1])
 		p("            multiples of the input rate)")
