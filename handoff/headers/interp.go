@@ -71,7 +71,7 @@ func (m *model) interpStage(i int, st fixed.Stage, sw *fixed.StageWidths) (secti
 	gain := bits.Len(uint(l)) - 1
 	sec.notes = append(sec.notes,
 		fmt.Sprintf("Tap k is COEFS[k] / 2^COEF_FRAC; %d taps, %d bits, at the output rate.", len(cf.Ints), cf.Bits),
-		fmt.Sprintf("Phase p (output nL + p) sums COEFS[p + L k] x[n - k], k = 0 .. PHASE_TAPS - 1."))
+		"Phase p (output nL + p) sums COEFS[p + L k] x[n - k], k = 0 .. PHASE_TAPS - 1.")
 	sec.items = append(sec.items,
 		item{name: n + "OUTPUT_SHIFT", doc: "LSBs rounded (half up) off the phase sum to make the output, GAIN_SHIFT already taken off; negative: shift left", value: int64(sw.OutputShift)},
 		item{name: n + "GAIN_SHIFT", doc: "floor(log2 L): each phase's DC gain is about 1/L, so the phase sum is taken times 2^GAIN_SHIFT", value: int64(gain)},

@@ -6,6 +6,7 @@ import (
 	"slices"
 	"strconv"
 	"strings"
+	"sync"
 	"testing"
 
 	"github.com/stepdown-dsp/stepdown/chain"
@@ -35,10 +36,15 @@ func interpFIR(rng *rand.Rand, hb bool) fixed.Stage {
 // to 32 bits; factors 1 to 64), a CIC interpolator whose registers pass 63
 // bits (order 8, R = 1024, 24-bit input: registers up to 94 bits), and
 // two chains designed by the chain package from invented transmit specs.
-func interpChains() []planned {
+// The tests share one copy (interpChains) and change only copies of it.
+func interpChains() []planned { return slices.Clone(interpChainsOnce()) }
+
+var interpChainsOnce = sync.OnceValue(makeInterpChains)
+
+func makeInterpChains() []planned {
 	rng := rand.New(rand.NewPCG(20260513, 9))
 	var out []planned
-	for i := 0; len(out) < 12; i++ {
+	for i := 0; len(out) < 6; i++ {
 		c := fixed.Cascade{InputRate: 1e6, Complex: rng.IntN(2) == 0, Interpolate: true}
 		cic := fixed.Stage{CIC: true, N: 1 + rng.IntN(6), M: 1 + rng.IntN(2), R: 2 + rng.IntN(63), Interpolate: true}
 		switch i % 6 {
@@ -255,5 +261,60 @@ func TestInterpErrors(t *testing.T) {
 				t.Errorf("%s: error %q does not say %q", tc.name, err, s)
 			}
 		}
+	}
+}
+
+// Random damage to a valid interpolation plan gives files or an error,
+// never a panic.
+func TestInterpNoPanic(t *testing.T) {
+	rng := rand.New(rand.NewPCG(5, 12))
+	chains := interpChains()[:6]
+	vals := []int{-1 << 40, -70, -1, 0, 1, 2, 31, 32, 33, 63, 64, 65, 255, 256, 1 << 40}
+	for trial := range 2000 {
+		p := chains[trial%len(chains)]
+		c := p.cas
+		c.Stages = append([]fixed.Stage(nil), c.Stages...)
+		w := *p.w
+		w.Stages = append([]fixed.StageWidths(nil), w.Stages...)
+		i := rng.IntN(len(w.Stages))
+		s := &w.Stages[i]
+		v := vals[rng.IntN(len(vals))]
+		switch rng.IntN(8) {
+		case 0:
+			s.OutputShift = v
+		case 1:
+			s.R, c.Stages[i].R = v, v
+		case 2:
+			if s.CICInterp != nil {
+				q := *s.CICInterp
+				q.N, c.Stages[i].N = v, v
+				s.CICInterp = &q
+			}
+		case 3:
+			if s.CICInterp != nil {
+				q := *s.CICInterp
+				q.RegisterBits = append([]int(nil), q.RegisterBits[:rng.IntN(len(q.RegisterBits)+1)]...)
+				if len(q.RegisterBits) > 0 {
+					q.RegisterBits[rng.IntN(len(q.RegisterBits))] = v
+				}
+				s.CICInterp = &q
+			}
+		case 4:
+			s.AccumulatorBits = v
+		case 5:
+			s.CIC = !s.CIC
+		case 6:
+			s.Interpolate = !s.Interpolate
+		case 7:
+			c.Stages[i].NonRecursive = true
+		}
+		func() {
+			defer func() {
+				if r := recover(); r != nil {
+					t.Fatalf("trial %d: panic %v", trial, r)
+				}
+			}()
+			_, _ = Files(c, &w, p.opts)
+		}()
 	}
 }

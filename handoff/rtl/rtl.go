@@ -21,7 +21,9 @@ type Options struct {
 	// MaxIdle is the most idle cycles (in_valid low) the testbench puts
 	// before each valid input, drawn from a 16-bit LFSR restarted for every
 	// signal, so the pattern is the same on every run: 0 means 3, a negative
-	// value none (one input every cycle). At most 255.
+	// value none (one input every cycle). At most 255. An interpolation
+	// chain's testbench also stalls its output (out_ready low) for up to
+	// MaxIdle cycles before each output sample, from a second LFSR.
 	MaxIdle int
 }
 
