@@ -173,9 +173,10 @@
 // clock where its valid and ready are high, with the next line of its
 // file. After the last input it waits for the chain's output to reach the
 // inputs' count times L; a chain that gives fewer within a bound of
-// clocks FAILs with
+// clocks, or does not take an input within it, FAILs with
 //
 //	FAIL: signal <s>, output (vectors/<s>.out.txt): the chain gave <n> of the <m> samples its <k> inputs make within <c> clocks of the last input
+//	FAIL: signal <s>, input (vectors/<s>.in.txt), sample <i>: the chain did not take it within <c> clocks
 //
 // The PASS and the other FAIL lines are the decimation testbench's.
 //

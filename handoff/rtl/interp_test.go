@@ -258,7 +258,8 @@ func TestInterpCornersBitExact(t *testing.T) {
 // The interpolation testbench fails, naming the signal, the stage and the
 // sample, on one flipped expected sample; catches a stage that ignores
 // in_valid, one that gives phases while its output is not taken
-// (out_ready ignored), and a chain that stops giving outputs.
+// (out_ready ignored), one that never takes an input and a chain that
+// stops giving outputs.
 func TestInterpTestbenchFails(t *testing.T) {
 	needIverilog(t)
 	sp := interpSpec{plan: []chain.StagePlan{{Kind: chain.CIC, Factor: 4, CICOrder: 3, CICDelay: 1}, {Kind: chain.HalfBand, Factor: 2}, {Kind: chain.FIR, Factor: 2}},
@@ -304,6 +305,9 @@ func TestInterpTestbenchFails(t *testing.T) {
 		{"ignores_ready", func(t *testing.T, dir string) {
 			edit(t, dir, "stepdown_s3_cic", "wire load = pend & (~out_valid | out_ready);", "wire load = pend;")
 		}, "FAIL: signal impulse, output"},
+		{"never_ready", func(t *testing.T, dir string) {
+			edit(t, dir, "stepdown_s1_fir", "assign in_ready = ~pend | (load & last);", "assign in_ready = 1'b0;")
+		}, "FAIL: signal impulse, input (vectors/impulse.in.txt), sample 0: the chain did not take it within"},
 		{"stalls", func(t *testing.T, dir string) {
 			edit(t, dir, "stepdown_s3_cic", "if (last) pend <= 1'b0;", "if (last) pend <= 1'b0;\n        if (last) out_valid <= 1'b0;")
 		}, "FAIL: signal impulse,"},

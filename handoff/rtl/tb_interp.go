@@ -119,6 +119,8 @@ func (cp *chainPlan) writeTBInterp(b *bytes.Buffer, maxIdle int, signals []strin
       lfsr = 16'h5eed;
       lfsr_o = 16'hace1;
       stall = 0;
+      // The most clocks a chain may take to give the outputs it owes.
+      limit = (2 * STAGES * RATIO + 16) * (MAXIDLE + 2);
       rst = 1'b0;
       checking = 1'b1;
       vq = 64'sd0;
@@ -146,9 +148,18 @@ func (cp *chainPlan) writeTBInterp(b *bytes.Buffer, maxIdle int, signals []strin
 	for _, ch := range chans {
 		fmt.Fprintf(b, "        in_%s = v%s[%d:0];\n", ch, ch, cp.in-1)
 	}
-	fmt.Fprintf(b, `        // Held until a rising edge with in_ready high takes it.
+	fmt.Fprintf(b, `        // Held until a rising edge with in_ready high takes it; a chain
+        // that never takes it fails.
+        waited = 0;
         @(posedge clk);
-        while (in_ready !== 1'b1) @(posedge clk);
+        while (in_ready !== 1'b1 && waited < limit) begin
+          @(posedge clk);
+          waited = waited + 1;
+        end
+        if (in_ready !== 1'b1) begin
+          $display("FAIL: signal %%0s, input (vectors/%%0s.in.txt), sample %%0d: the chain did not take it within %%0d clocks", sig, sig, n_in, limit);
+          $finish;
+        end
         n_in = n_in + 1;
         r = $fscanf(fd_in, "%s", %s);
       end
@@ -162,7 +173,6 @@ func (cp *chainPlan) writeTBInterp(b *bytes.Buffer, maxIdle int, signals []strin
       // Wait for the outputs of every input: n_in L at the output, each
       // stage's before it; a chain that stalls fails.
       due = n_in * RATIO;
-      limit = (2 * STAGES * RATIO + 16) * (MAXIDLE + 2);
       waited = 0;
       while (got_n[STAGES+1] < due && waited < limit) begin
         @(negedge clk);
