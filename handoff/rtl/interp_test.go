@@ -407,7 +407,7 @@ func TestInterpErrors(t *testing.T) {
 	if err != nil {
 		t.Fatal(err)
 	}
-	if _, err := rtl.Testbench(big, bw, rtl.Options{}, []string{"x"}); err == nil || !strings.Contains(err.Error(), "stage 3: factor 1048576 makes the chain's interpolation") {
+	if _, err := rtl.Testbench(big, bw, rtl.Options{}, []string{"x"}); err == nil || !strings.Contains(err.Error(), "stage 3: factor 1048576 makes the chain's interpolation over 1099511627776") {
 		t.Errorf("an interpolation of 2^60: err = %v", err)
 	}
 }

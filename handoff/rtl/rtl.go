@@ -169,10 +169,8 @@ func check(c fixed.Cascade, w *fixed.Widths, o Options) (*chainPlan, error) {
 		if err != nil {
 			return nil, bad("%v", err)
 		}
-		if c.Interpolate {
-			if l := cp.ratio() * uint64(s.r); l > maxRatio {
-				return nil, bad("factor %d makes the chain's interpolation %d, over the %d the testbench counts", s.r, l, uint64(maxRatio))
-			}
+		if c.Interpolate && cp.ratio() > maxRatio/uint64(s.r) {
+			return nil, bad("factor %d makes the chain's interpolation over %d, the most the testbench counts", s.r, uint64(maxRatio))
 		}
 		s.module = fmt.Sprintf("%s_s%d_%s", prefix, s.k, s.kind)
 		cp.stages = append(cp.stages, s)
