@@ -182,6 +182,9 @@ type constant struct {
 }
 
 func want(p planned) []constant {
+	if p.cas.Interpolate {
+		return wantInterp(p)
+	}
 	pre := "STEPDOWN"
 	if p.opts.Prefix != "" {
 		pre = toUpper(p.opts.Prefix)

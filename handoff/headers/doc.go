@@ -1,7 +1,8 @@
-// Package headers writes the fixed-point plan of a decimation chain
-// (fixed.Plan's Widths for a fixed.Cascade) as source files that hardware
-// and firmware include: a C header, a VHDL package and a Verilog /
-// SystemVerilog include, with the coefficients and widths of every stage.
+// Package headers writes the fixed-point plan of a decimation or
+// interpolation chain (fixed.Plan's Widths for a fixed.Cascade) as source
+// files that hardware and firmware include: a C header, a VHDL package and
+// a Verilog / SystemVerilog include, with the coefficients and widths of
+// every stage.
 //
 // The files are planning data for hardware, ahead of RTL: the team's own
 // bit-true simulation of the RTL and its sign-off remain the reference.
@@ -92,6 +93,37 @@
 //   - Sn_SUBSTAGE_BITS: each sub-stage's output width, exact (full
 //     precision), Bin + N i bits for sub-stage i (index 0: sub-stage 1).
 //
+// # Interpolation chains
+//
+// An interpolation cascade (fixed.Cascade.Interpolate: stages in signal
+// order from the channel rate up, each raising the rate by its factor L;
+// the data path of the interpolation contract that package fixed
+// documents) is written with these differences; a decimation chain's files
+// are unchanged, byte for byte (a test holds them to a snapshot):
+//   - the header comment says "an interpolation chain", and the chain's
+//     section adds INTERPOLATE (1; only interpolation chains declare it)
+//     and INTERPOLATION, the chain's L, the product of the Sn_L;
+//   - every stage declares Sn_L, its interpolation factor (output samples
+//     per input sample), in place of Sn_R; the kind codes are the same;
+//   - an FIR or half-band interpolator: Sn_COEFS are the full impulse
+//     response at its output rate, polyphase phase p (output nL + p)
+//     taking COEFS[p], COEFS[p + L], ... against x[n], x[n - 1], ...;
+//     Sn_PHASE_TAPS is ceil(NUM_TAPS / L); Sn_ACC_BITS the widest phase's
+//     accumulator; Sn_GAIN_SHIFT is floor(log2 L): each phase's DC gain is
+//     about 1/L, so the phase sum is taken times 2^GAIN_SHIFT, which
+//     Sn_OUTPUT_SHIFT, the LSBs rounded half up before saturation, already
+//     takes off (it is the decimating FIR's shift less GAIN_SHIFT);
+//     Sn_NUM_TAPS, Sn_COEF_BITS and Sn_COEF_FRAC are as above;
+//   - a CIC interpolator (fixed.CICInterpolation): Sn_ORDER and Sn_DELAY;
+//     Sn_COMB_BITS, the widths of combs 1..N at its input rate, and
+//     Sn_INTEG_BITS, of integrators 1..N at its output rate (arrays of
+//     Sn_ORDER elements, index 0 first), every register full width and
+//     wrapping, nothing truncated inside; Sn_FULL_BITS, the last
+//     integrator's width, whose top Sn_OUTPUT_BITS are the output,
+//     truncated (floor) by Sn_OUTPUT_SHIFT = FULL_BITS - OUTPUT_BITS;
+//     Sn_ACC_BITS, the widest register (a comb when R is small). No
+//     GUARD_BITS, NUM_REGS, REG_BITS or REG_DROPPED.
+//
 // Each section's comments add, for the reader, the rates in Hz, the stage's
 // DC gain (input full scale to output full scale), any gain correction
 // folded into its taps and the rounding points the plan states
@@ -101,9 +133,11 @@
 //
 // The package's tests compile the files of seeded random planned chains
 // (fixed.Plan) and of a hand-made chain at the limits (32-bit words holding
-// +-(2^31 - 1), 40- and 64-bit words, one tap, 63-bit CIC registers) and
-// of chains with non-recursive CICs (order 1 to 6, R = 2 to 256) with
-// gcc -std=c99 -Wall -Wextra -Werror -pedantic, GHDL (--std=08 and
+// +-(2^31 - 1), 40- and 64-bit words, one tap, 63-bit CIC registers), of
+// chains with non-recursive CICs (order 1 to 6, R = 2 to 256) and of
+// interpolation chains (random ones, a CIC interpolator with registers up
+// to 94 bits, and two designed from invented transmit specs) with gcc
+// -std=c99 -Wall -Wextra -Werror -pedantic, GHDL (--std=08 and
 // --std=93c) and Icarus Verilog -g2012, run a program or testbench printing
 // every constant and compare it with the plan, every coefficient exact;
 // Verilator -Wall lints the Verilog when installed.

@@ -83,6 +83,7 @@ type model struct {
 	prefix   string // upper case
 	lower    string // lower case, for file and package names
 	notation string
+	interp   bool // an interpolation chain
 	sections []section
 }
 
@@ -237,31 +238,59 @@ func build(c fixed.Cascade, w *fixed.Widths, o Options) (*model, error) {
 			return nil, fmt.Errorf("headers: widths %s = %d: must lie in [1, %d] bits", f.name, f.v, maxFieldBits)
 		}
 	}
-	m := &model{prefix: upper, lower: lower, notation: o.Notation}
+	m := &model{prefix: upper, lower: lower, notation: o.Notation, interp: c.Interpolate}
 	cplx := int64(0)
 	if c.Complex {
 		cplx = 1
 	}
+	interpL := int64(1)
+	for i, st := range c.Stages {
+		if st.Interpolate != c.Interpolate || w.Stages[i].Interpolate != c.Interpolate {
+			return nil, fmt.Errorf("headers: stage %d: Interpolate is %v in the cascade's stage and %v in its widths, but the cascade's is %v: a chain runs in one direction", i+1, st.Interpolate, w.Stages[i].Interpolate, c.Interpolate)
+		}
+		if c.Interpolate {
+			if st.R < 1 || st.R > math.MaxInt32 || interpL > math.MaxInt32/int64(st.R) {
+				return nil, fmt.Errorf("headers: stage %d: interpolation factor %d makes the chain's interpolation over %d, the largest a VHDL integer surely holds", i+1, st.R, math.MaxInt32)
+			}
+			interpL *= int64(st.R)
+		}
+	}
 	chainNotes := []string{fmt.Sprintf("Input rate %s Hz, %d stage(s), %s data.", hz(c.InputRate), len(c.Stages), map[bool]string{false: "real", true: "complex (I/Q: two identical real data paths)"}[c.Complex])}
+	if c.Interpolate {
+		chainNotes = append(chainNotes, fmt.Sprintf("Interpolation chain: output rate %s Hz, interpolation %d; each stage raises the rate by its L.", hz(c.InputRate*float64(interpL)), interpL))
+	}
 	chainNotes = append(chainNotes, fmt.Sprintf("Chain DC gain %s (input full scale to output full scale).", g(w.DCGain)))
 	if w.CorrectedStage >= 0 && w.CorrectedStage < len(w.Stages) {
 		chainNotes = append(chainNotes, fmt.Sprintf("Gain correction %s folded into the taps of stage %d.", g(w.GainCorrection), w.CorrectedStage+1))
 	}
-	m.sections = append(m.sections, section{
-		title: "Chain",
-		notes: chainNotes,
-		items: []item{
-			{name: "NUM_STAGES", doc: "number of stages, numbered 1.. in signal order", value: int64(len(c.Stages))},
-			{name: "INPUT_BITS", doc: "chain input word (ADC), bits, two's complement", value: int64(w.InputBits)},
-			{name: "OUTPUT_BITS", doc: "chain output word, bits, two's complement", value: int64(w.OutputBits)},
-			{name: "COMPLEX", doc: "1: complex (I/Q) data, two identical real data paths; 0: real", value: cplx},
-			{name: "KIND_CIC", doc: "stage kind code: CIC", value: KindCIC},
-			{name: "KIND_FIR", doc: "stage kind code: FIR", value: KindFIR},
-			{name: "KIND_HALFBAND", doc: "stage kind code: half-band FIR", value: KindHalfBand},
-			{name: "KIND_CIC_NONRECURSIVE", doc: "stage kind code: non-recursive CIC, log2 R sub-stages (1 + z^-1)^N decimating by 2", value: KindCICNonRecursive},
-		},
-	})
+	items := []item{
+		{name: "NUM_STAGES", doc: "number of stages, numbered 1.. in signal order", value: int64(len(c.Stages))},
+		{name: "INPUT_BITS", doc: "chain input word (ADC), bits, two's complement", value: int64(w.InputBits)},
+		{name: "OUTPUT_BITS", doc: "chain output word, bits, two's complement", value: int64(w.OutputBits)},
+		{name: "COMPLEX", doc: "1: complex (I/Q) data, two identical real data paths; 0: real", value: cplx},
+	}
+	if c.Interpolate {
+		items[1].doc = "chain input word (the channel's samples), bits, two's complement"
+		items[2].doc = "chain output word (DAC), bits, two's complement"
+		items = append(items,
+			item{name: "INTERPOLATE", doc: "1: an interpolation chain, each stage raising the rate by its Sn_L (declared by interpolation chains only)", value: 1},
+			item{name: "INTERPOLATION", doc: "the chain's interpolation: output rate / input rate, the product of the Sn_L", value: interpL})
+	}
+	items = append(items,
+		item{name: "KIND_CIC", doc: "stage kind code: CIC", value: KindCIC},
+		item{name: "KIND_FIR", doc: "stage kind code: FIR", value: KindFIR},
+		item{name: "KIND_HALFBAND", doc: "stage kind code: half-band FIR", value: KindHalfBand},
+		item{name: "KIND_CIC_NONRECURSIVE", doc: "stage kind code: non-recursive CIC, log2 R sub-stages (1 + z^-1)^N decimating by 2", value: KindCICNonRecursive})
+	m.sections = append(m.sections, section{title: "Chain", notes: chainNotes, items: items})
 	for i := range c.Stages {
+		if c.Interpolate {
+			s, err := m.interpStage(i, c.Stages[i], &w.Stages[i])
+			if err != nil {
+				return nil, fmt.Errorf("headers: stage %d: %w", i+1, err)
+			}
+			m.sections = append(m.sections, s)
+			continue
+		}
 		s, err := m.stage(i, c.Stages[i], &w.Stages[i])
 		if err != nil {
 			return nil, fmt.Errorf("headers: stage %d: %w", i+1, err)
@@ -360,29 +389,8 @@ func (m *model) stage(i int, st fixed.Stage, sw *fixed.StageWidths) (section, er
 		return sec, nil
 	}
 	cf := sw.Coefficients
-	if len(cf.Ints) == 0 {
-		return section{}, fmt.Errorf("an FIR without coefficients")
-	}
-	if len(st.Taps) != 0 && len(st.Taps) != len(cf.Ints) {
-		return section{}, fmt.Errorf("%d taps in the cascade but %d coefficients in the widths", len(st.Taps), len(cf.Ints))
-	}
-	if len(cf.Ints) > math.MaxInt32 {
-		return section{}, fmt.Errorf("%d coefficients: at most %d are supported", len(cf.Ints), math.MaxInt32)
-	}
-	if cf.Bits < 2 || cf.Bits > maxCoefBits {
-		return section{}, fmt.Errorf("coefficient width Bits = %d: must lie in [2, %d]", cf.Bits, maxCoefBits)
-	}
-	if cf.Frac < -maxFieldBits || cf.Frac > maxFieldBits {
-		return section{}, fmt.Errorf("coefficient scale Frac = %d: must lie in [%d, %d]", cf.Frac, -maxFieldBits, maxFieldBits)
-	}
-	lim := int64(math.MaxInt64)
-	if cf.Bits < 64 {
-		lim = int64(1)<<(cf.Bits-1) - 1
-	}
-	for k, v := range cf.Ints {
-		if v > lim || v < -lim {
-			return section{}, fmt.Errorf("coefficient %d = %d does not fit %d bits (|h| <= %d)", k, v, cf.Bits, lim)
-		}
+	if err := checkCoefs(st, sw); err != nil {
+		return section{}, err
 	}
 	sec.notes = append(sec.notes, fmt.Sprintf("Tap k is COEFS[k] / 2^COEF_FRAC; %d taps, %d bits.", len(cf.Ints), cf.Bits))
 	sec.items = append(sec.items,
@@ -394,6 +402,37 @@ func (m *model) stage(i int, st fixed.Stage, sw *fixed.StageWidths) (section, er
 		item{name: n + "COEFS", doc: "quantised coefficients, integers, index 0 first", array: true, values: cf.Ints, coef: true, elemBits: cf.Bits, length: n + "NUM_TAPS"},
 	)
 	return sec, nil
+}
+
+// checkCoefs checks an FIR's quantised coefficients against its stage and
+// what the files can carry.
+func checkCoefs(st fixed.Stage, sw *fixed.StageWidths) error {
+	cf := sw.Coefficients
+	if len(cf.Ints) == 0 {
+		return fmt.Errorf("an FIR without coefficients")
+	}
+	if len(st.Taps) != 0 && len(st.Taps) != len(cf.Ints) {
+		return fmt.Errorf("%d taps in the cascade but %d coefficients in the widths", len(st.Taps), len(cf.Ints))
+	}
+	if len(cf.Ints) > math.MaxInt32 {
+		return fmt.Errorf("%d coefficients: at most %d are supported", len(cf.Ints), math.MaxInt32)
+	}
+	if cf.Bits < 2 || cf.Bits > maxCoefBits {
+		return fmt.Errorf("coefficient width Bits = %d: must lie in [2, %d]", cf.Bits, maxCoefBits)
+	}
+	if cf.Frac < -maxFieldBits || cf.Frac > maxFieldBits {
+		return fmt.Errorf("coefficient scale Frac = %d: must lie in [%d, %d]", cf.Frac, -maxFieldBits, maxFieldBits)
+	}
+	lim := int64(math.MaxInt64)
+	if cf.Bits < 64 {
+		lim = int64(1)<<(cf.Bits-1) - 1
+	}
+	for k, v := range cf.Ints {
+		if v > lim || v < -lim {
+			return fmt.Errorf("coefficient %d = %d does not fit %d bits (|h| <= %d)", k, v, cf.Bits, lim)
+		}
+	}
+	return nil
 }
 
 // nonRecursive adds a non-recursive CIC's constants to sec: its order, its
@@ -443,7 +482,11 @@ func kindName(cic, hb, nr bool) string {
 
 // headerLines are the opening comment's lines, shared by the three files.
 func (m *model) headerLines(file string) []string {
-	l := []string{file + ": the fixed-point plan of a decimation chain, generated by stepdown."}
+	dir := "a decimation"
+	if m.interp {
+		dir = "an interpolation"
+	}
+	l := []string{file + ": the fixed-point plan of " + dir + " chain, generated by stepdown."}
 	if m.notation != "" {
 		l = append(l, "Chain: "+m.notation)
 	}

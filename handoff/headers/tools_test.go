@@ -143,7 +143,7 @@ func lines(b []byte) []string {
 func TestC(t *testing.T) {
 	gcc := needTool(t, "gcc")
 	dir := t.TempDir()
-	chains := testChains(numRandom)
+	chains := toolChains()
 	writeAll(t, dir, chains)
 	var inc, body bytes.Buffer
 	for _, p := range chains {
@@ -192,7 +192,7 @@ func TestC(t *testing.T) {
 func TestVHDL(t *testing.T) {
 	ghdl := needTool(t, "ghdl")
 	dir := t.TempDir()
-	chains := testChains(numRandom)
+	chains := toolChains()
 	writeAll(t, dir, chains)
 	var uses, body bytes.Buffer
 	var pkgs []string
@@ -307,7 +307,7 @@ func TestVerilog(t *testing.T) {
 	iverilog := needTool(t, "iverilog")
 	vvp := needTool(t, "vvp")
 	dir := t.TempDir()
-	chains := testChains(numRandom)
+	chains := toolChains()
 	writeAll(t, dir, chains)
 	src := verilogModule(t, chains)
 	if err := os.WriteFile(filepath.Join(dir, "tb.sv"), []byte(src), 0o644); err != nil {
@@ -333,7 +333,7 @@ func TestVerilator(t *testing.T) {
 		t.Skip("verilator is not installed")
 	}
 	dir := t.TempDir()
-	chains := testChains(numRandom)
+	chains := toolChains()
 	writeAll(t, dir, chains)
 	var inc, sum bytes.Buffer
 	for i, p := range chains {

@@ -176,9 +176,15 @@ func (m *model) verilog() []byte {
 	b.WriteString("// localparams of the including scope, so there is no include guard.\n")
 	b.WriteString("// Scalars are localparam integer. An array is one flat vector, element k\n")
 	fmt.Fprintf(&b, "// in bits [k*W +: W]: coefficients with W = COEF_BITS, two's complement\n")
-	fmt.Fprintf(&b, "// (read with $signed), the CIC's REG_BITS, REG_DROPPED and SUBSTAGE_BITS with\n")
-	fmt.Fprintf(&b, "// W = %s_FIELD_BITS, unsigned.\n\n", m.prefix)
-	fmt.Fprintf(&b, "localparam integer %s_FIELD_BITS = %d; // element width of REG_BITS, REG_DROPPED and SUBSTAGE_BITS\n", m.prefix, FieldBits)
+	if m.interp {
+		fmt.Fprintf(&b, "// (read with $signed), the CIC's COMB_BITS and INTEG_BITS with\n")
+		fmt.Fprintf(&b, "// W = %s_FIELD_BITS, unsigned.\n\n", m.prefix)
+		fmt.Fprintf(&b, "localparam integer %s_FIELD_BITS = %d; // element width of COMB_BITS and INTEG_BITS\n", m.prefix, FieldBits)
+	} else {
+		fmt.Fprintf(&b, "// (read with $signed), the CIC's REG_BITS, REG_DROPPED and SUBSTAGE_BITS with\n")
+		fmt.Fprintf(&b, "// W = %s_FIELD_BITS, unsigned.\n\n", m.prefix)
+		fmt.Fprintf(&b, "localparam integer %s_FIELD_BITS = %d; // element width of REG_BITS, REG_DROPPED and SUBSTAGE_BITS\n", m.prefix, FieldBits)
+	}
 	for _, s := range m.sections {
 		b.WriteString("\n")
 		writeNotes(&b, "// ", s.title, s.notes)

@@ -1,6 +1,8 @@
-// Package rtl writes a Verilog reference model of a planned decimation
-// chain (a fixed.Cascade with its fixed.Widths) and a self-checking
-// testbench that runs it on vector files.
+// Package rtl writes a Verilog reference model of a planned decimation or
+// interpolation chain (a fixed.Cascade with its fixed.Widths) and a
+// self-checking testbench that runs it on vector files. The sections
+// below describe a decimation chain; Interpolation chains says what
+// differs for one.
 //
 // The model is a REFERENCE: its arithmetic is fixed.Model's, the integer
 // data path of the bit-true run, bit for bit, so that an implementation of
@@ -113,11 +115,76 @@
 // word, an output beyond the end of its file, or a file holding more
 // samples than the chain gave is a FAIL too, naming the file.
 //
+// # Interpolation chains
+//
+// An interpolation cascade (fixed.Cascade.Interpolate: stages in signal
+// order from the channel rate up, each raising the rate by its factor L)
+// gets a model of the interpolation contract's data path, fixed.Model's
+// bit for bit, with a streaming interface, since a stage gives L outputs
+// per input. A decimation chain's files are byte-identical to those
+// written before interpolation chains were supported (a test holds them
+// to a snapshot).
+//
+// Ports. Every stage module, and P_chain for the chain, has valid/ready
+// streams at both ends:
+//
+//	clk, rst                  clock (rising edge) and synchronous reset, active high
+//	in_valid, in_ready, in_i [, in_q]      the input; in_ready is an output
+//	out_valid, out_ready, out_i [, out_q]  the output; out_ready is an input
+//
+// and P_chain brings out each stage's output stream as s<k>_valid,
+// s<k>_ready (stage k+1's in_ready, or out_ready for the last) and
+// s<k>_i [, s<k>_q]. A sample passes on a rising edge where its valid and
+// ready are both high; out_valid and the data hold until the sample is
+// taken.
+//
+// Timing. A stage takes an input when in_valid and in_ready are high, then
+// gives its L phases 0 .. L-1 in order, the first on the next clock and
+// one a clock while its output is taken; in_ready is high when it has no
+// phase left to give or is giving its last this clock (so in_ready
+// depends on out_ready within the clock: a combinational path from the
+// chain's out_ready back to its in_ready, through every stage). A stage
+// can thus give one output every clock, and the chain's output keeps up
+// with out_ready high on every clock once its inputs arrive in time; to
+// pace it by a DAC, drive out_ready with the DAC's sample strobe. Reset
+// clears every register, history, phase counter and output.
+//
+// Arithmetic. An FIR (or half-band) interpolator keeps its last ceil(T/L)
+// inputs (T taps) and computes phase p of input n, y[nL + p] = sum_k
+// h[p + Lk] x[n - k], exact in its accumulator of StageWidths
+// .AccumulatorBits (the widest phase's; modular, as the decimating FIR's),
+// skipping zero taps, then rounds half up at OutputShift (the decimating
+// FIR's less floor(log2 L)) or shifts left, and saturates to OutputBits;
+// a half-band's centre phase, whose one tap is 2^(Frac-1), is written as
+// the input shifted, with no multiply. A CIC interpolator
+// (fixed.CICInterpolation) runs its N combs on each input taken, each
+// register wrapping at its width, holds the newest comb output, and on
+// each output given runs its N integrators on that comb output at phase
+// 0 and on zero at phases 1 .. L-1 (the zero stuffing), each integrator
+// taking its input sign-extended (or wrapped) to its width and wrapping
+// there; the output keeps the top OutputBits of the last integrator,
+// truncated (floor).
+//
+// Testbench. For each signal it resets the chain, offers each input after
+// 0 to Options.MaxIdle idle clocks (in_valid low, junk on the data lines)
+// and holds it until the chain takes it; it stalls the chain's output
+// (out_ready low) for 0 to Options.MaxIdle clocks before each output
+// sample (a second LFSR); and it compares every stage's output, on every
+// clock where its valid and ready are high, with the next line of its
+// file. After the last input it waits for the chain's output to reach the
+// inputs' count times L; a chain that gives fewer within a bound of
+// clocks, or does not take an input within it, FAILs with
+//
+//	FAIL: signal <s>, output (vectors/<s>.out.txt): the chain gave <n> of the <m> samples its <k> inputs make within <c> clocks of the last input
+//	FAIL: signal <s>, input (vectors/<s>.in.txt), sample <i>: the chain did not take it within <c> clocks
+//
+// The PASS and the other FAIL lines are the decimation testbench's.
+//
 // # Limits
 //
 // CIC registers up to MaxCICBits (127) bits (a non-recursive CIC's
 // sub-stages up to MaxBits, 63, as fixed.Model runs them in int64), FIR accumulators and data
 // words up to MaxBits (63) bits, as fixed.Model holds them (int128 and
 // int64); up to MaxTaps taps per FIR; R up to 2^24; a CIC of
-// order up to 32 with M up to 64.
+// order up to 32 with M up to 64; an interpolation chain's L up to 2^40.
 package rtl

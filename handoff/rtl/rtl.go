@@ -21,7 +21,9 @@ type Options struct {
 	// MaxIdle is the most idle cycles (in_valid low) the testbench puts
 	// before each valid input, drawn from a 16-bit LFSR restarted for every
 	// signal, so the pattern is the same on every run: 0 means 3, a negative
-	// value none (one input every cycle). At most 255.
+	// value none (one input every cycle). At most 255. An interpolation
+	// chain's testbench also stalls its output (out_ready low) for up to
+	// MaxIdle cycles before each output sample, from a second LFSR.
 	MaxIdle int
 }
 
@@ -95,12 +97,17 @@ type stage struct {
 	shift   int // OutputShift
 	folded  bool
 	nonzero int // non-zero taps
+
+	interp bool                    // an interpolating stage: r is its L
+	ci     *fixed.CICInterpolation // a CIC interpolator's registers
+	centre int                     // a half-band interpolator's centre phase (its one tap 2^(frac-1)), or -1
 }
 
 // chainPlan is the whole chain as the generator writes it.
 type chainPlan struct {
 	prefix  string
 	complex bool
+	interp  bool // an interpolation chain: every stage interpolates
 	in      int
 	stages  []stage
 }
@@ -125,13 +132,16 @@ func check(c fixed.Cascade, w *fixed.Widths, o Options) (*chainPlan, error) {
 	if w.InputBits < 2 || w.InputBits > 62 {
 		return nil, fmt.Errorf("rtl: widths InputBits = %d: must lie in [2, 62] bits", w.InputBits)
 	}
-	cp := &chainPlan{prefix: prefix, complex: c.Complex, in: w.InputBits}
+	cp := &chainPlan{prefix: prefix, complex: c.Complex, interp: c.Interpolate, in: w.InputBits}
 	in := w.InputBits
 	for i, st := range c.Stages {
 		sw := &w.Stages[i]
-		s := stage{k: i + 1, in: in, r: st.R, out: sw.OutputBits}
+		s := stage{k: i + 1, in: in, r: st.R, out: sw.OutputBits, interp: c.Interpolate, centre: -1}
 		bad := func(format string, args ...any) error {
 			return fmt.Errorf("rtl: stage %d: "+format, append([]any{i + 1}, args...)...)
+		}
+		if st.Interpolate != c.Interpolate || sw.Interpolate != c.Interpolate {
+			return nil, bad("Interpolate is %v in the cascade's stage and %v in its widths, but the cascade's is %v: a chain runs in one direction", st.Interpolate, sw.Interpolate, c.Interpolate)
 		}
 		if st.R < 1 || st.R > 1<<24 {
 			return nil, bad("factor R = %d: must lie in [1, %d]", st.R, 1<<24)
@@ -145,12 +155,22 @@ func check(c fixed.Cascade, w *fixed.Widths, o Options) (*chainPlan, error) {
 		if sw.OutputBits < 2 || sw.OutputBits > MaxBits {
 			return nil, bad("OutputBits = %d: must lie in [2, %d] bits", sw.OutputBits, MaxBits)
 		}
-		if st.CIC {
-			if err := checkCIC(&s, st, sw); err != nil {
-				return nil, bad("%v", err)
-			}
-		} else if err := checkFIR(&s, st, sw); err != nil {
+		var err error
+		switch {
+		case st.CIC && c.Interpolate:
+			err = checkCICInterp(&s, st, sw)
+		case st.CIC:
+			err = checkCIC(&s, st, sw)
+		case c.Interpolate:
+			err = checkFIRInterp(&s, st, sw)
+		default:
+			err = checkFIR(&s, st, sw)
+		}
+		if err != nil {
 			return nil, bad("%v", err)
+		}
+		if c.Interpolate && cp.ratio() > maxRatio/uint64(s.r) {
+			return nil, bad("factor %d makes the chain's interpolation over %d, the most the testbench counts", s.r, uint64(maxRatio))
 		}
 		s.module = fmt.Sprintf("%s_s%d_%s", prefix, s.k, s.kind)
 		cp.stages = append(cp.stages, s)
@@ -283,6 +303,10 @@ func Model(c fixed.Cascade, w *fixed.Widths, o Options) ([]byte, error) {
 		return nil, err
 	}
 	var b bytes.Buffer
+	if cp.interp {
+		cp.writeInterpModel(&b)
+		return b.Bytes(), nil
+	}
 	cp.header(&b, "the reference model of the planned chain", "")
 	b.WriteString("`timescale 1ns / 1ps\n")
 	for i := range cp.stages {
@@ -325,6 +349,9 @@ func (cp *chainPlan) header(b *bytes.Buffer, what, extra string) {
 	if cp.complex {
 		kind = "complex (I/Q: two identical real paths)"
 	}
+	if cp.interp {
+		kind += fmt.Sprintf(" interpolation chain, L = %d", cp.ratio())
+	}
 	fmt.Fprintf(b, "// Chain: %s, %d-bit input, %d stage(s), two's-complement words:\n", kind, cp.in, len(cp.stages))
 	for _, s := range cp.stages {
 		b.WriteString("//   " + s.describe() + "\n")
@@ -334,6 +361,9 @@ func (cp *chainPlan) header(b *bytes.Buffer, what, extra string) {
 
 // describe is the stage's line in the header.
 func (s *stage) describe() string {
+	if s.interp {
+		return s.describeInterp()
+	}
 	if s.nr {
 		subs := make([]string, len(s.sub))
 		for i, v := range s.sub {

@@ -55,6 +55,10 @@ func Testbench(c fixed.Cascade, w *fixed.Widths, o Options, signals []string) ([
 		seen[s] = true
 	}
 	var b bytes.Buffer
+	if cp.interp {
+		cp.writeTBInterp(&b, idle, signals)
+		return b.Bytes(), nil
+	}
 	cp.writeTB(&b, idle, signals)
 	return b.Bytes(), nil
 }
@@ -111,107 +115,8 @@ func (cp *chainPlan) writeTB(b *bytes.Buffer, maxIdle int, signals []string) {
 	}
 	b.WriteString("\n  );\n\n")
 
-	// State and the helpers.
-	b.WriteString(`  // Stream k = 1..STAGES is stage k's output, STAGES+1 the chain's.
-  string  sig;                      // the signal being run
-  integer fd_in;
-  integer fd_exp [1:STAGES+1];
-  integer got_n [1:STAGES+1];       // samples compared, this signal
-  integer tot_n [1:STAGES+1];       // and in all
-  integer n_in, tot_in, n_sig;
-  reg checking = 1'b0;
-  reg [15:0] lfsr;                  // the idle pattern
-  reg signed [63:0] vi, vq;
-  integer r, idle, k;
-
-  function automatic string label(input integer k);
-    if (k <= STAGES) label = $sformatf("stage %0d (vectors/%0s.stage%0d.txt)", k, sig, k);
-    else label = $sformatf("output (vectors/%0s.out.txt)", sig);
-  endfunction
-
-  // open_vec opens vectors/<f> from rtl/ (../vectors/) or from the folder
-  // above it (vectors/); a file that is not there is a FAIL.
-  task automatic open_vec(input string f, output integer fd);
-    begin
-      fd = $fopen({"../vectors/", f}, "r");
-      if (fd == 0) fd = $fopen({"vectors/", f}, "r");
-      if (fd == 0) begin
-        $display("FAIL: signal %0s: cannot open vectors/%0s (looked in ../vectors/ and vectors/)", sig, f);
-        $finish;
-      end
-    end
-  endtask
-
-  // step advances the 16-bit Fibonacci LFSR x^16 + x^14 + x^13 + x^11 + 1
-  // (a maximal-length polynomial, common practice).
-  task automatic step;
-    lfsr = {lfsr[14:0], lfsr[15] ^ lfsr[13] ^ lfsr[12] ^ lfsr[10]};
-  endtask
-
-`)
-	// check: one output of stream k against its file.
-	args := "input signed [63:0] gi"
-	cmp, got := "ei !== gi", "gi"
-	exp, xs := "ei", "(^ei) === 1'bx"
-	vin, vxs := "vi", "(^vi) === 1'bx"
-	if cp.complex {
-		args += ", input signed [63:0] gq"
-		cmp, got = "ei !== gi || eq !== gq", "gi, gq"
-		exp, xs = "ei, eq", "(^ei) === 1'bx || (^eq) === 1'bx"
-		vin, vxs = "vi, vq", "(^vi) === 1'bx || (^vq) === 1'bx"
-	}
-	dfmt := strings.ReplaceAll(fmtv, "%d", "%0d")
-	fmt.Fprintf(b, `  // check compares one output of stream k with the next line of its file.
-  task automatic check(input integer k, %s);
-    reg signed [63:0] ei, eq;
-    integer r;
-    begin
-      eq = 64'sd0;
-      r = $fscanf(fd_exp[k], "%s", %s);
-      if (r != %d && !(r <= 0 && $feof(fd_exp[k]))) begin
-        $display("FAIL: signal %%0s, %%0s: line %%0d is not %s", sig, label(k), got_n[k] + 1);
-        $finish;
-      end
-      if (r != %d) begin
-        $display("FAIL: signal %%0s, %%0s, sample %%0d: expected no more samples (the file holds %%0d), got %s", sig, label(k), got_n[k], got_n[k], %s);
-        $finish;
-      end
-      if (%s) begin
-        $display("FAIL: signal %%0s, %%0s: line %%0d is not %s", sig, label(k), got_n[k] + 1);
-        $finish;
-      end
-      if (%s) begin
-        $display("FAIL: signal %%0s, %%0s, sample %%0d: expected %s, got %s", sig, label(k), got_n[k], %s, %s);
-        $finish;
-      end
-      got_n[k] = got_n[k] + 1;
-    end
-  endtask
-
-`, args, fmtv, exp, nv, lineRule(cp.complex), nv, dfmt, got, xs, lineRule(cp.complex), cmp, dfmt, dfmt, exp, got)
-
-	// finish_stream: the file must hold no more samples.
-	fmt.Fprintf(b, `  // finish_stream checks that stream k's file holds no more samples.
-  task automatic finish_stream(input integer k);
-    reg signed [63:0] ei, eq;
-    integer r;
-    begin
-      eq = 64'sd0;
-      r = $fscanf(fd_exp[k], "%s", %s);
-      if (r == %d) begin
-        $display("FAIL: signal %%0s, %%0s, sample %%0d: expected %s, got no sample (the chain gave %%0d)", sig, label(k), got_n[k], %s, got_n[k]);
-        $finish;
-      end
-      if (!(r <= 0 && $feof(fd_exp[k]))) begin
-        $display("FAIL: signal %%0s, %%0s: line %%0d is not %s", sig, label(k), got_n[k] + 1);
-        $finish;
-      end
-      $fclose(fd_exp[k]);
-      tot_n[k] = tot_n[k] + got_n[k];
-    end
-  endtask
-
-`, fmtv, exp, nv, dfmt, exp, lineRule(cp.complex))
+	cp.writeTBHelpers(b)
+	vin, vxs, dfmt := cp.inputForms()
 
 	// The checkers.
 	for _, s := range cp.stages {
@@ -318,4 +223,126 @@ func qArg(complex bool, q string) string {
 		return ", " + q
 	}
 	return ""
+}
+
+// writeTBHelpers writes the testbench's state and its tasks: label,
+// open_vec, step (the idle pattern's LFSR), check (one output against its
+// file) and finish_stream (the file holds no more), shared by the
+// decimation and the interpolation testbench.
+func (cp *chainPlan) writeTBHelpers(b *bytes.Buffer) {
+	chans := cp.chans()
+	nv := len(chans)
+	fmtv := "%d"
+	if cp.complex {
+		fmtv = "%d %d"
+	}
+	b.WriteString(`  // Stream k = 1..STAGES is stage k's output, STAGES+1 the chain's.
+  string  sig;                      // the signal being run
+  integer fd_in;
+  integer fd_exp [1:STAGES+1];
+  integer got_n [1:STAGES+1];       // samples compared, this signal
+  integer tot_n [1:STAGES+1];       // and in all
+  integer n_in, tot_in, n_sig;
+  reg checking = 1'b0;
+  reg [15:0] lfsr;                  // the idle pattern
+  reg signed [63:0] vi, vq;
+  integer r, idle, k;
+
+  function automatic string label(input integer k);
+    if (k <= STAGES) label = $sformatf("stage %0d (vectors/%0s.stage%0d.txt)", k, sig, k);
+    else label = $sformatf("output (vectors/%0s.out.txt)", sig);
+  endfunction
+
+  // open_vec opens vectors/<f> from rtl/ (../vectors/) or from the folder
+  // above it (vectors/); a file that is not there is a FAIL.
+  task automatic open_vec(input string f, output integer fd);
+    begin
+      fd = $fopen({"../vectors/", f}, "r");
+      if (fd == 0) fd = $fopen({"vectors/", f}, "r");
+      if (fd == 0) begin
+        $display("FAIL: signal %0s: cannot open vectors/%0s (looked in ../vectors/ and vectors/)", sig, f);
+        $finish;
+      end
+    end
+  endtask
+
+  // step advances the 16-bit Fibonacci LFSR x^16 + x^14 + x^13 + x^11 + 1
+  // (a maximal-length polynomial, common practice).
+  task automatic step;
+    lfsr = {lfsr[14:0], lfsr[15] ^ lfsr[13] ^ lfsr[12] ^ lfsr[10]};
+  endtask
+
+`)
+	// check: one output of stream k against its file.
+	args := "input signed [63:0] gi"
+	cmp, got := "ei !== gi", "gi"
+	exp, xs := "ei", "(^ei) === 1'bx"
+	if cp.complex {
+		args += ", input signed [63:0] gq"
+		cmp, got = "ei !== gi || eq !== gq", "gi, gq"
+		exp, xs = "ei, eq", "(^ei) === 1'bx || (^eq) === 1'bx"
+	}
+	_, _, dfmt := cp.inputForms()
+	fmt.Fprintf(b, `  // check compares one output of stream k with the next line of its file.
+  task automatic check(input integer k, %s);
+    reg signed [63:0] ei, eq;
+    integer r;
+    begin
+      eq = 64'sd0;
+      r = $fscanf(fd_exp[k], "%s", %s);
+      if (r != %d && !(r <= 0 && $feof(fd_exp[k]))) begin
+        $display("FAIL: signal %%0s, %%0s: line %%0d is not %s", sig, label(k), got_n[k] + 1);
+        $finish;
+      end
+      if (r != %d) begin
+        $display("FAIL: signal %%0s, %%0s, sample %%0d: expected no more samples (the file holds %%0d), got %s", sig, label(k), got_n[k], got_n[k], %s);
+        $finish;
+      end
+      if (%s) begin
+        $display("FAIL: signal %%0s, %%0s: line %%0d is not %s", sig, label(k), got_n[k] + 1);
+        $finish;
+      end
+      if (%s) begin
+        $display("FAIL: signal %%0s, %%0s, sample %%0d: expected %s, got %s", sig, label(k), got_n[k], %s, %s);
+        $finish;
+      end
+      got_n[k] = got_n[k] + 1;
+    end
+  endtask
+
+`, args, fmtv, exp, nv, lineRule(cp.complex), nv, dfmt, got, xs, lineRule(cp.complex), cmp, dfmt, dfmt, exp, got)
+
+	// finish_stream: the file must hold no more samples.
+	fmt.Fprintf(b, `  // finish_stream checks that stream k's file holds no more samples.
+  task automatic finish_stream(input integer k);
+    reg signed [63:0] ei, eq;
+    integer r;
+    begin
+      eq = 64'sd0;
+      r = $fscanf(fd_exp[k], "%s", %s);
+      if (r == %d) begin
+        $display("FAIL: signal %%0s, %%0s, sample %%0d: expected %s, got no sample (the chain gave %%0d)", sig, label(k), got_n[k], %s, got_n[k]);
+        $finish;
+      end
+      if (!(r <= 0 && $feof(fd_exp[k]))) begin
+        $display("FAIL: signal %%0s, %%0s: line %%0d is not %s", sig, label(k), got_n[k] + 1);
+        $finish;
+      end
+      $fclose(fd_exp[k]);
+      tot_n[k] = tot_n[k] + got_n[k];
+    end
+  endtask
+
+`, fmtv, exp, nv, dfmt, exp, lineRule(cp.complex))
+
+}
+
+// inputForms returns the testbench's input variables for $fscanf ("vi" or
+// "vi, vq"), the test that one of them is unknown, and the $display format
+// of a sample ("%0d" or "%0d %0d").
+func (cp *chainPlan) inputForms() (vin, vxs, dfmt string) {
+	if cp.complex {
+		return "vi, vq", "(^vi) === 1'bx || (^vq) === 1'bx", "%0d %0d"
+	}
+	return "vi", "(^vi) === 1'bx", "%0d"
 }

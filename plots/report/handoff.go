@@ -12,7 +12,9 @@ import (
 
 // handoffPlan is what the hand-off files need of a chain's word-length
 // plan: the cascade in chain/fixed's terms, its widths, and the rounded
-// chain's worst alias (the tone_alias stimulus).
+// chain's worst alias (the tone_alias stimulus; for an interpolation chain
+// its worst image at the output rate, which package vectors folds to the
+// channel tone that makes it).
 type handoffPlan struct {
 	cascade      fixed.Cascade
 	widths       *fixed.Widths
@@ -25,18 +27,17 @@ type handoffPlan struct {
 // declarations of its coefficients and widths under headers/ (package
 // handoff/headers) and the test vectors under vectors/ (package
 // handoff/vectors), and a Verilog reference model with its self-checking
-// testbench under rtl/ (package handoff/rtl). A chain without a word-length plan gets none, and one
-// whose registers are too wide for the integer model gets no vectors or
-// model; the second result then says why.
+// testbench under rtl/ (package handoff/rtl), for a decimation or an
+// interpolation chain (whose model streams with valid/ready handshakes,
+// L outputs per input). A chain without a word-length plan gets none, and
+// one whose registers are too wide for the integer model gets no vectors
+// or model; the second result then says why.
 func HandoffFiles(c Chain) ([]File, string) {
 	if c.plan == nil {
 		if c.WordLengthsError != "" {
 			return nil, "no word-length plan: " + c.WordLengthsError
 		}
 		return nil, "no word-length plan"
-	}
-	if c.interp {
-		return nil, "the hand-off to RTL (headers, vectors, reference model) is written for decimation chains only"
 	}
 	p := c.plan
 	files, err := headers.Files(p.cascade, p.widths, headers.Options{Notation: c.Notation})
