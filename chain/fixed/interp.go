@@ -76,7 +76,7 @@ func planCICInterp(st Stage, in, ob int) (StageWidths, error) {
 		// package cost counts a CIC interpolator's memory.
 		sw.DataMemoryBits += st.M*p.RegisterBits[j] + p.RegisterBits[st.N+j]
 	}
-	sw.Points = append(sw.Points, fmt.Sprintf("rate raised by %d: each comb output, then %d zeros", st.R, st.R-1))
+	sw.Points = append(sw.Points, fmt.Sprintf("rate raised by %d: each comb output, then %s", st.R, zeros(st.R-1)))
 	for j := 0; j < st.N; j++ {
 		sw.Points = append(sw.Points, fmt.Sprintf("integrator %d: full width (%d-bit register, sign-extended input, wraps), at the output rate", j+1, p.RegisterBits[st.N+j]))
 	}
@@ -121,7 +121,7 @@ func interpAccumulator(sw *StageWidths, st Stage, in, ob int) error {
 	}
 	sw.Gain = float64(dc) * math.Ldexp(1, fl-cf.Frac) / float64(l)
 	sw.Points = []string{
-		fmt.Sprintf("input: zero-stuffed to %d times its rate (each sample, then %d zeros), run as %d polyphase phases at the input rate", l, l-1, l),
+		fmt.Sprintf("input: zero-stuffed to %d times its rate (each sample, then %s), run as %d polyphase phases at the input rate", l, zeros(l-1), l),
 		fmt.Sprintf("products and sum: exact per phase (%d x %d bits into %d-bit accumulator, the widest phase's)", in, cf.Bits, acc),
 	}
 	if st.HalfBand && !st.scaledHalfBand {
@@ -361,4 +361,12 @@ func cicFloatScale(sw *StageWidths) float64 {
 		return math.Ldexp(1, -(p.FullBits() - p.InputBits))
 	}
 	return math.Ldexp(1, -(sw.Pruning.FullBits - sw.Pruning.InputBits))
+}
+
+// zeros says "1 zero" or "n zeros".
+func zeros(n int) string {
+	if n == 1 {
+		return "1 zero"
+	}
+	return fmt.Sprintf("%d zeros", n)
 }

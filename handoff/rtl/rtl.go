@@ -129,8 +129,8 @@ func check(c fixed.Cascade, w *fixed.Widths, o Options) (*chainPlan, error) {
 	if len(w.Stages) != len(c.Stages) {
 		return nil, fmt.Errorf("rtl: the widths plan %d stages, the cascade has %d: give the plan fixed.Plan returned for this cascade", len(w.Stages), len(c.Stages))
 	}
-	if w.InputBits < 2 || w.InputBits > 62 {
-		return nil, fmt.Errorf("rtl: widths InputBits = %d: must lie in [2, 62] bits", w.InputBits)
+	if w.InputBits < 1 || w.InputBits > 62 {
+		return nil, fmt.Errorf("rtl: widths InputBits = %d: must lie in [1, 62] bits", w.InputBits)
 	}
 	cp := &chainPlan{prefix: prefix, complex: c.Complex, interp: c.Interpolate, in: w.InputBits}
 	in := w.InputBits
