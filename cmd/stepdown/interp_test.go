@@ -37,6 +37,12 @@ func TestPlanInterpolationEndToEnd(t *testing.T) {
 	if strings.Contains(r.stdout, "mult/out") || strings.Contains(r.stdout, "alias rejection") {
 		t.Errorf("the table speaks of outputs or aliases:\n%s", r.stdout)
 	}
+	// The hand-off to RTL is written for an interpolation chain too.
+	for _, f := range []string{"headers/stepdown_chain.h", "rtl/stepdown_chain.v", "rtl/stepdown_tb.v", "vectors/README.txt", "vectors/impulse.in.txt"} {
+		if fi, err := os.Stat(filepath.Join(dir, "out", f)); err != nil || fi.Size() == 0 {
+			t.Errorf("%s: missing or empty (%v)", f, err)
+		}
+	}
 	rep := readReport(t, filepath.Join(dir, "out", "report.json"))
 	s := rep["spec"].(map[string]any)
 	if s["direction"] != "interpolate" || s["interpolation"] != 128.0 || s["decimation"] != 1.0 {
