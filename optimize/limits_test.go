@@ -3,6 +3,7 @@ package optimize_test
 import (
 	"context"
 	"math/rand/v2"
+	"os"
 	"slices"
 	"strings"
 	"testing"
@@ -85,7 +86,12 @@ func costAt(clk float64) cost.Settings { return cost.Settings{Clock: clk} }
 // sorted by adders and is dominated by no other on (adders, memory,
 // latency); the reason speaks of adders. Limits drawn from that front
 // (seeded) are honoured by every chain of the fronts they leave.
+//
+// It takes about 4 s, so it runs with STEPDOWN_LONG=1 (CI's long step).
 func TestMultiplierlessFront(t *testing.T) {
+	if os.Getenv("STEPDOWN_LONG") == "" {
+		t.Skip("about 4 s; set STEPDOWN_LONG=1")
+	}
 	needDesigns(t)
 	spec := chain.Spec{InputRate: 61.44e6, OutputRate: 960e3, Passband: 300e3, RippleDB: 0.1, RejectionDB: 80, CoefBits: 16}
 	cs := cost.Settings{Clock: 100e6, Multiplierless: true}

@@ -91,7 +91,7 @@ func TestPlanInterpolationEndToEnd(t *testing.T) {
 	}
 
 	// check with the notation plan printed gives the same figures.
-	c := runBinary(t, dir, nil, "check", "tx.toml", "--chain", rec["notation"].(string), "--out", "chk")
+	c := runBinary(t, dir, nil, "check", "tx.toml", "--chain", rec["notation"].(string), "--front", filepath.Join("out", "report.json"), "--out", "chk")
 	if c.code != 0 {
 		t.Fatalf("check: exit %d: %s", c.code, c.stderr)
 	}
