@@ -144,7 +144,12 @@ func planJSON(t testing.TB, spec chain.Spec, s optimize.Settings) []byte {
 }
 
 // TestDeterministicGOMAXPROCS: the same bytes under GOMAXPROCS = 1 and 2.
+// About 2 s: it runs with STEPDOWN_LONG=1 (CI's long step), beside
+// TestPrimeDemandingGOMAXPROCS.
 func TestDeterministicGOMAXPROCS(t *testing.T) {
+	if os.Getenv("STEPDOWN_LONG") == "" {
+		t.Skip("about 2 s; set STEPDOWN_LONG=1")
+	}
 	needDesigns(t)
 	spec := rx()
 	spec.InputRate = spec.OutputRate * 96

@@ -163,7 +163,11 @@ func TestDeterministic(t *testing.T) {
 				if !bytes.Equal(out[0], out[1]) {
 					t.Errorf("%s output differs between two renders of the same input", format)
 				}
-				// Rendering must not change the figure either.
+				// Rendering must not change the figure either: the same
+				// drawing for both formats, so checked on the quicker SVG.
+				if format != "svg" {
+					continue
+				}
 				f, _ := make()
 				a, b := render(t, f, format), render(t, f, format)
 				if !bytes.Equal(a, b) {
