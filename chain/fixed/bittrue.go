@@ -252,20 +252,7 @@ func BitTrueContext(ctx context.Context, c Cascade, w *Widths, sig Signal) (BitT
 	}
 	res.Clipped = clipped
 	res.InputSNRDB = ratioDB(inPow, inErr)
-	ref, e := yf, make([]float64, nm)
-	for n := range e {
-		e[n] = yi[n] - ref[n]
-	}
-	res.MatchDB = ratioDB(power(ref), power(e))
-	var mean float64
-	for _, v := range e {
-		mean += v
-	}
-	mean /= float64(nm)
-	for n := range e {
-		e[n] -= mean
-	}
-	res.OutputOffset = math.Ldexp(mean, w.OutputBits-1)
+	e := outputError(&res, yi[:nm], yf[:nm], w.OutputBits)
 	for _, nu := range nus {
 		removeTone(e, nu)
 		a, _ := project(yi, nu)
@@ -274,7 +261,7 @@ func BitTrueContext(ctx context.Context, c Cascade, w *Widths, sig Signal) (BitT
 		}
 		res.OutputLevels = append(res.OutputLevels, math.Max(-300, 20*math.Log10(a)))
 	}
-	res.SNRDB = ratioDB(power(ref), power(e))
+	res.SNRDB = ratioDB(power(yf), power(e))
 	res.ENOB = (res.SNRDB - 1.76) / 6.02
 	// Output samples at either end of the output word saturated there (a
 	// full-scale code is otherwise all but impossible on these signals).
@@ -1047,4 +1034,25 @@ func streamEnc(ctx context.Context, c Cascade, w *Widths, enc func() (Encoder, e
 		return nil, nil, err
 	}
 	return yi, yf, nil
+}
+
+// outputError returns the integer output less the float one, its mean
+// removed, and sets res's MatchDB (the float output's power over the
+// error's) and OutputOffset (that mean in output LSBs of an outBits word).
+func outputError(res *BitTrueResult, yi, yf []float64, outBits int) []float64 {
+	e := make([]float64, len(yi))
+	for n := range e {
+		e[n] = yi[n] - yf[n]
+	}
+	res.MatchDB = ratioDB(power(yf), power(e))
+	var mean float64
+	for _, v := range e {
+		mean += v
+	}
+	mean /= float64(len(e))
+	for n := range e {
+		e[n] -= mean
+	}
+	res.OutputOffset = math.Ldexp(mean, outBits-1)
+	return e
 }

@@ -138,20 +138,7 @@ func bitTrueShaped(ctx context.Context, c Cascade, w *Widths, sig Signal, fp, fk
 		return BitTrueResult{}, err
 	}
 	res.InputSNRDB = ratioDB(inPow, inErr)
-	e := make([]float64, nm)
-	for n := range e {
-		e[n] = yi[n] - yf[n]
-	}
-	res.MatchDB = ratioDB(power(yf), power(e))
-	var mean float64
-	for _, v := range e {
-		mean += v
-	}
-	mean /= float64(nm)
-	for n := range e {
-		e[n] -= mean
-	}
-	res.OutputOffset = math.Ldexp(mean, w.OutputBits-1)
+	e := outputError(&res, yi[:nm], yf[:nm], w.OutputBits)
 	removeTone(e, nu)
 	a, _ := project(yi, nu)
 	res.OutputLevels = []float64{math.Max(-300, 20*math.Log10(a))}
