@@ -248,6 +248,11 @@ func (s Spec) Normalize() (Spec, error) {
 		return bad("RippleDB", s.RippleDB, "must be a finite peak-to-peak ripple above 0 dB")
 	}
 	if s.RejectionMask != nil {
+		// The mask covers the input band [0, F/2], F the high rate: a
+		// point beyond it would set a target no alias is held to.
+		if p := s.RejectionMask.Points(); p[len(p)-1].Hz > hr/2 {
+			return bad("RejectionMask", p[len(p)-1].Hz, "has a point above half the high rate, %s Hz: the mask covers the band [0, %s Hz] where aliases come from; end it there", fmtNum(hr/2), fmtNum(hr/2))
+		}
 		if s.RejectionDB != 0 && s.RejectionDB != s.RejectionMask.Max() {
 			return bad("RejectionDB", s.RejectionDB, "is set beside {RejectionMask}: give one of them (the mask's largest rejection, %s dB, stands for the flat target)", fmtNum(s.RejectionMask.Max()))
 		}

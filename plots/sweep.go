@@ -74,7 +74,11 @@ type SweepData struct {
 	Clock bool
 	// Adders puts the hardware adders as built in the first panel instead
 	// of the multiplies per output (a multiplierless spec's cost axis).
-	Adders bool
+	// PerInput says the multiplies are per input sample (an
+	// interpolation chain's channel side); the zero value labels them per
+	// output.
+	PerInput bool
+	Adders   bool
 }
 
 // Sweep draws how the recommended chain's figures move as one quantity of
@@ -194,13 +198,17 @@ func newSweepFigure(d SweepData) *sweepFigure {
 	}
 	xu := s.xu
 	mu, tu := bitsUnit(maxM), timeUnit(maxT)
+	side := "output"
+	if d.PerInput {
+		side = "input"
+	}
 	type figure struct {
 		label     string
 		u         unit
 		rec, best func(SweepPoint) float64
 	}
 	get := []figure{
-		{"multiplies / output", unit{1, ""}, func(p SweepPoint) float64 { return p.Multiplies }, func(p SweepPoint) float64 { return p.BestMultiplies }},
+		{"multiplies / " + side, unit{1, ""}, func(p SweepPoint) float64 { return p.Multiplies }, func(p SweepPoint) float64 { return p.BestMultiplies }},
 		{"memory (" + mu.name + ")", mu, func(p SweepPoint) float64 { return p.MemoryBits }, func(p SweepPoint) float64 { return p.BestMemoryBits }},
 		{"latency (" + tu.name + ")", tu, func(p SweepPoint) float64 { return p.LatencyS }, func(p SweepPoint) float64 { return p.BestLatencyS }},
 	}

@@ -140,6 +140,7 @@ func TestBadInputs(t *testing.T) {
 		specCase("ripple zero", edit("ripple", "ripple = 0"), "ripple", "above 0 dB"),
 		specCase("rejection beside a mask", top(`rejection_mask = [["0 Hz", "70 dB"], ["20 MHz", "60 dB"]]`), "rejection", "give one of them"),
 		specCase("mask out of order", edit("rejection", `rejection_mask = [["20 MHz", "70 dB"], ["1 MHz", "60 dB"]]`), "rejection_mask", "point 2", "increasing frequency"),
+		specCase("mask beyond the input band", edit("rejection", `rejection_mask = [["1 MHz", "70 dB"], ["60 MHz", "80 dB"]]`), "rejection_mask", "above half the high rate"),
 		specCase("mask point not a pair", edit("rejection", `rejection_mask = [["20 MHz", "70 dB", 3]]`), "rejection_mask", "point 1", "pair"),
 		specCase("mask rejection without a level", edit("rejection", `rejection_mask = [["20 MHz", "loud"]]`), "rejection_mask", "point 1's rejection"),
 		specCase("ripple negative", edit("ripple", `ripple = "-1 dB"`), "ripple", "above 0 dB"),

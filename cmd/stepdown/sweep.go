@@ -3,6 +3,7 @@ package main
 import (
 	"context"
 	"fmt"
+	"github.com/stepdown-dsp/stepdown/chain"
 	"io"
 	"strings"
 
@@ -89,6 +90,20 @@ func runSweep(c *cli.Context) error {
 	base, source, text, err := loadSpec(c)
 	if err != nil {
 		return err
+	}
+	// A ratio key of the other direction would turn the chain round:
+	// refused, naming the key that steps this spec's ratio.
+	keys := []sweep.Key{v.Key}
+	if g != nil {
+		keys = append(keys, g.Columns.Key)
+	}
+	for _, k := range keys {
+		switch interp := base.Chain.Direction() == chain.Interpolate; {
+		case k.Interpolation && !interp:
+			return usagef("--vary %s: the spec decimates (output_rate below input_rate); its ratio is stepped by decimation", k.Name)
+		case k.Decimation && interp:
+			return usagef("--vary %s: the spec interpolates (output_rate above input_rate); its ratio is stepped by interpolation", k.Name)
+		}
 	}
 	out, err := prepareOut(c.String("out"))
 	if err != nil {
@@ -341,6 +356,9 @@ func printGrid(w io.Writer, source, dir string, g sweep.Grid, rs []sweep.Result,
 		rows[0] = append(rows[0], g.Columns.Key.Format(x))
 	}
 	what := "Multiplies per output"
+	if sweep.Interpolates(rs) {
+		what = "Multiplies per input"
+	}
 	for i, r := range rs {
 		if i%n == 0 {
 			rows = append(rows, []string{g.Rows.Key.Format(r.Value)})

@@ -3,6 +3,7 @@ package sweep
 import (
 	"io"
 
+	"github.com/stepdown-dsp/stepdown/chain"
 	"github.com/stepdown-dsp/stepdown/plots"
 )
 
@@ -21,7 +22,7 @@ const (
 
 // NewFigureData collects the figure's points from a sweep's results.
 func NewFigureData(title string, v Vary, rs []Result) FigureData {
-	d := FigureData{Title: title, Name: v.Key.Name, Kind: sweepKind(v.Key.Dim), Unit: v.Key.Word}
+	d := FigureData{Title: title, Name: v.Key.Name, Kind: sweepKind(v.Key.Dim), Unit: v.Key.Word, PerInput: Interpolates(rs)}
 	for _, r := range rs {
 		p := FigurePoint{Value: r.Value}
 		if r.Status.HasChain() {
@@ -65,4 +66,15 @@ func Render(w io.Writer, d FigureData, format string) error {
 		return err
 	}
 	return f.Render(w, format, FigureWidth, FigureHeight)
+}
+
+// Interpolates reports whether the sweep's spec is an interpolation spec
+// (its first value that parsed says), whose counts are per input sample.
+func Interpolates(rs []Result) bool {
+	for _, r := range rs {
+		if r.Spec != nil {
+			return r.Spec.Chain.Direction() == chain.Interpolate
+		}
+	}
+	return false
 }

@@ -187,6 +187,9 @@ func NewHeatmapData(title string, g Grid, rs []Result) HeatmapData {
 		X:     plots.HeatmapAxis{Name: g.Columns.Key.Name, Kind: sweepKind(g.Columns.Key.Dim), Unit: g.Columns.Key.Word, Values: g.Columns.Values},
 		Y:     plots.HeatmapAxis{Name: g.Rows.Key.Name, Kind: sweepKind(g.Rows.Key.Dim), Unit: g.Rows.Key.Word, Values: g.Rows.Values},
 	}
+	if Interpolates(rs) {
+		d.ValueLabel = "multiplies / input (recommended chain)"
+	}
 	tags, notations := Structures(rs)
 	for i, n := range notations {
 		d.Tags = append(d.Tags, plots.HeatmapTag{Tag: TagName(i), Text: n})

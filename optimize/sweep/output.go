@@ -9,6 +9,7 @@ import (
 	"strconv"
 	"strings"
 
+	"github.com/stepdown-dsp/stepdown/chain"
 	"github.com/stepdown-dsp/stepdown/chain/specfile"
 	"github.com/stepdown-dsp/stepdown/plots/report"
 )
@@ -33,12 +34,30 @@ var CSVHeader = []string{
 	"adders", "best_adders", "detail",
 }
 
+// csvHeader is CSVHeader, with an interpolation spec's columns named as
+// its report.json names them (multiplies_per_input, image_rejection_db,
+// ...; report.InterpolationKey).
+func csvHeader(rs []Result) []string {
+	if !Interpolates(rs) {
+		return CSVHeader
+	}
+	h := make([]string, len(CSVHeader))
+	for i, k := range CSVHeader {
+		if b, ok := strings.CutPrefix(k, "best_"); ok {
+			h[i] = "best_" + report.InterpolationKey(b)
+			continue
+		}
+		h[i] = report.InterpolationKey(k)
+	}
+	return h
+}
+
 // CSV returns sweep.csv: one row per value, in the order of the values.
 // Cells of a value without a chain are empty, and its detail says why.
 func CSV(v Vary, rs []Result) []byte {
 	var buf bytes.Buffer
 	w := csv.NewWriter(&buf)
-	_ = w.Write(CSVHeader)
+	_ = w.Write(csvHeader(rs))
 	changed := Changes(rs)
 	for i, r := range rs {
 		row := append([]string{strconv.Itoa(i + 1), v.Key.Name, num(r.Value), v.Key.Format(r.Value)}, resultCells(r, changed[i])...)
@@ -171,6 +190,9 @@ type (
 		// Adders is the least hardware adders as built (multiplierless
 		// only).
 		Adders *int `json:"adders,omitempty"`
+		// perInput: an interpolation spec's, whose multiplies are per
+		// input sample (MarshalJSON writes multiplies_per_input).
+		perInput bool
 	}
 )
 
@@ -208,7 +230,8 @@ func docValue(k Key, r Result, changed bool, folder string) DocValue {
 			dv.Front = append(dv.Front, summary(c))
 		}
 		b := BestOf(rep)
-		dv.Best = &DocBest{MultipliesPerOutput: b.Multiplies, MemoryBits: b.MemoryBits, LatencyS: b.LatencyS}
+		dv.Best = &DocBest{MultipliesPerOutput: b.Multiplies, MemoryBits: b.MemoryBits, LatencyS: b.LatencyS,
+			perInput: r.Spec != nil && r.Spec.Chain.Direction() == chain.Interpolate}
 		if b.Adders >= 0 {
 			a := b.Adders
 			dv.Best.Adders = &a
@@ -298,4 +321,15 @@ func valueFiles(dir string, r Result) ([]report.File, error) {
 		files = append(files, report.File{Name: dir + "/" + f.Name, Data: f.Data})
 	}
 	return files, nil
+}
+
+// MarshalJSON writes the best figures; an interpolation spec's multiplies
+// are multiplies_per_input, as its chains' are.
+func (b DocBest) MarshalJSON() ([]byte, error) {
+	type plain DocBest
+	out, err := json.Marshal(plain(b))
+	if err != nil || !b.perInput {
+		return out, err
+	}
+	return bytes.Replace(out, []byte(`"multiplies_per_output":`), []byte(`"`+report.InterpolationKey("multiplies_per_output")+`":`), 1), nil
 }

@@ -31,6 +31,18 @@ var (
 	}
 )
 
+// InterpolationKey returns the key an interpolation chain's report.json
+// writes for a decimation chain's key k (image_rejection_db for
+// alias_rejection_db, multiplies_per_input for multiplies_per_output,
+// ...), or k when the two directions share it: the one list of those
+// names, which the sweep's files follow.
+func InterpolationKey(k string) string {
+	if n, ok := interpChainKeys[k]; ok {
+		return n
+	}
+	return k
+}
+
 // MarshalJSON writes the chain, with the keys of an interpolation chain
 // renamed (interpChainKeys).
 func (c Chain) MarshalJSON() ([]byte, error) {
