@@ -117,6 +117,7 @@ func FuzzNormalize(f *testing.F) {
 	f.Add(64e6, 250e3, 100e3, 0.0, 0.0, 0.1, 90.0, 0, 0, 0)
 	f.Add(10e3, 100.0, 45.0, 50.0, 50.0, 0.17, 60.0, 12, 16, 18)
 	f.Add(1.0, 0.3, 0.1, 0.0, 0.0, 1.0, 10.0, 2, 64, 0)
+	f.Add(1.0, 6.0, 0.4, 0.0, 0.0, 1.0, 10.0, 2, 64, 0) // an interpolation spec
 	f.Fuzz(func(t *testing.T, in, out, fp, fa, fs, rip, rej float64, ib, ob, cb int) {
 		s := Spec{InputRate: in, OutputRate: out, Passband: fp, Protected: fa, Stopband: fs,
 			RippleDB: rip, RejectionDB: rej, InputBits: ib, OutputBits: ob, CoefBits: cb}
@@ -128,8 +129,11 @@ func FuzzNormalize(f *testing.F) {
 			}
 			return
 		}
-		fk := n.OutputRate
-		if n.Decimation() < 2 || !(n.Passband > 0 && n.Passband < fk/2) || n.Protected < n.Passband ||
+		// The band rules hold on the channel side in both directions: on
+		// the decimation view, whose output is the channel.
+		v := n.DecimationView()
+		fk := v.OutputRate
+		if v.Decimation() < 2 || v.Ratio() != n.Ratio() || !(n.Passband > 0 && n.Passband < fk/2) || n.Protected < n.Passband ||
 			n.Protected > fk/2 || n.Stopband <= n.Passband || n.Stopband > fk-n.Protected ||
 			!(n.RippleDB > 0) || !(n.RejectionDB > 0 && n.RejectionDB <= MaxRejectionDB) ||
 			n.InputBits < 2 || n.OutputBits > 64 {
