@@ -209,7 +209,7 @@ func emptyFront(res *optimize.Result, dir string) error {
 	msg := "no chain meets the spec"
 	if r := strings.Join(strings.Fields(specfile.InFileTerms(res.Reason)), " "); r != "" {
 		r = strings.TrimSuffix(r, ".")
-		if strings.HasPrefix(strings.ToLower(r), msg) {
+		if l := strings.ToLower(r); strings.HasPrefix(l, msg) || strings.HasPrefix(l, "no chain met the spec") {
 			msg = r // the reason already says it
 		} else {
 			msg += ": " + r
