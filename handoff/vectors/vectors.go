@@ -330,18 +330,7 @@ func (v *Vectors) readme() []byte {
 	}
 	p("Input rate: %.10g Hz; %d stages; %s data.", c.InputRate, len(c.Stages), map[bool]string{false: "real", true: "complex (I/Q)"}[c.Complex])
 	p("")
-	p("These are planning data for hardware, from stepdown's bit-true model of the")
-	p("chain (package chain/fixed). Prove your RTL against them, then rely on your")
-	p("own bit-true simulation of the RTL and your team's sign-off before silicon")
-	p("or FPGA commitment.")
-	p("")
-	p("Format")
-	p("------")
-	p("One sample per line, a decimal two's-complement integer code; complex")
-	p("chains have two columns, I then Q, separated by one space. A b-bit code w")
-	p("stands for w / 2^(b-1) of full scale. Every stimulus starts from reset")
-	p("(all registers and delay lines zero).")
-	p("")
+	readmeCommon(p)
 	p("Files, for each stimulus NAME in this order: %v", Signals)
 	p("  NAME.in.txt       the chain's input, %d samples, %d-bit codes", v.InputSamples, w.InputBits)
 	for k, sw := range w.Stages {
@@ -419,18 +408,7 @@ func (v *Vectors) readmeInterp() []byte {
 	p("Interpolation chain: input rate %.10g Hz, output rate %.10g Hz", c.InputRate, rates[len(rates)-1])
 	p("(interpolation %d); %d stages; %s data.", l, len(c.Stages), map[bool]string{false: "real", true: "complex (I/Q)"}[c.Complex])
 	p("")
-	p("These are planning data for hardware, from stepdown's bit-true model of the")
-	p("chain (package chain/fixed). Prove your RTL against them, then rely on your")
-	p("own bit-true simulation of the RTL and your team's sign-off before silicon")
-	p("or FPGA commitment.")
-	p("")
-	p("Format")
-	p("------")
-	p("One sample per line, a decimal two's-complement integer code; complex")
-	p("chains have two columns, I then Q, separated by one space. A b-bit code w")
-	p("stands for w / 2^(b-1) of full scale. Every stimulus starts from reset")
-	p("(all registers and delay lines zero).")
-	p("")
+	readmeCommon(p)
 	p("Files, for each stimulus NAME in this order: %v", Signals)
 	p("  NAME.in.txt       the chain's input, %d samples at %.10g Hz, %d-bit codes", v.InputSamples, c.InputRate, w.InputBits)
 	u := 1
@@ -553,4 +531,21 @@ func zeros(n int) string {
 		return "1 zero"
 	}
 	return fmt.Sprintf("%d zeros", n)
+}
+
+// readmeCommon writes the README's paragraphs that every chain's share:
+// the planning caveat and the file format.
+func readmeCommon(p func(format string, args ...any)) {
+	p("These are planning data for hardware, from stepdown's bit-true model of the")
+	p("chain (package chain/fixed). Prove your RTL against them, then rely on your")
+	p("own bit-true simulation of the RTL and your team's sign-off before silicon")
+	p("or FPGA commitment.")
+	p("")
+	p("Format")
+	p("------")
+	p("One sample per line, a decimal two's-complement integer code; complex")
+	p("chains have two columns, I then Q, separated by one space. A b-bit code w")
+	p("stands for w / 2^(b-1) of full scale. Every stimulus starts from reset")
+	p("(all registers and delay lines zero).")
+	p("")
 }
