@@ -323,7 +323,7 @@ func FuzzParseSpec(f *testing.F) {
 		if _, err := c.Normalize(); err != nil {
 			t.Fatalf("accepted spec does not normalise again: %v", err)
 		}
-		if c.Decimation() < 2 || s.MaxStages < 1 || s.MaxStages > MaxStages || len(s.Kinds) == 0 {
+		if c.Ratio() < 2 || s.MaxStages < 1 || s.MaxStages > MaxStages || len(s.Kinds) == 0 {
 			t.Fatalf("accepted spec out of rule: %+v", s)
 		}
 		var _ chain.Spec = c
