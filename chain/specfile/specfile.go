@@ -176,7 +176,11 @@ func (e *Error) Error() string {
 	}
 	b.WriteString(": ")
 	if e.Key != "" {
-		b.WriteString(units.Clip(e.Key, units.MaxEcho))
+		key := units.Clip(e.Key, units.MaxEcho)
+		if strings.ContainsFunc(key, func(r rune) bool { return r < ' ' || r == 0x7f }) {
+			key = strconv.Quote(key) // a quoted key with a line break in it stays on one line
+		}
+		b.WriteString(key)
 		if e.Value != "" {
 			b.WriteString(" = " + e.Value)
 		}
