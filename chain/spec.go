@@ -37,6 +37,13 @@ type Spec struct {
 	// then be 1. It changes nothing else here. Only a decimation spec
 	// takes it.
 	NoiseShaped bool
+	// RatioTolerancePPM, when above zero, lets the chain's rate ratio
+	// differ from InputRate/OutputRate by up to this many parts per
+	// million: the ratio is then the fraction with the smallest
+	// denominator within the tolerance (Fraction). Zero asks for the ratio
+	// of the two rates as written, an integer or a fraction whose
+	// denominator is at most MaxFractionDen.
+	RatioTolerancePPM float64
 
 	// transposed marks the decimation view of an interpolation spec
 	// (DecimationView): its rates are swapped, and Direction still says
@@ -208,26 +215,33 @@ func (s Spec) Normalize() (Spec, error) {
 		hi, lo = lo, hi
 		hr, fk = fk, hr
 	}
+	if !finite(s.RatioTolerancePPM) || s.RatioTolerancePPM < 0 || s.RatioTolerancePPM > MaxRatioTolerancePPM {
+		return bad("RatioTolerancePPM", s.RatioTolerancePPM, "must lie in [0, %s] ppm", fmtNum(MaxRatioTolerancePPM))
+	}
 	ratio := hr / fk
 	d := math.Round(ratio)
-	if math.Abs(ratio-d) > ratioTol*ratio || d < 2 {
-		nlo, nhi := math.Max(2, math.Floor(ratio)), math.Max(2, math.Ceil(ratio))
-		if nlo == nhi {
-			nhi++
-		}
-		// The nearest integer ratios keep the input rate and move the
-		// output rate.
-		near := func(r float64) float64 { return hr / r }
-		if lo == "InputRate" {
-			near = func(r float64) float64 { return fk * r }
-		}
-		move := "OutputRate"
-		return bad(move, s.OutputRate,
-			"{%s}/{%s} = %s is not an integer ratio; the nearest integer ratios are %s ({%s} %s Hz) and %s ({%s} %s Hz)",
-			hi, lo, fmtNum(ratio), fmtNum(nlo), move, fmtNum(near(nlo)), fmtNum(nhi), move, fmtNum(near(nhi)))
-	}
 	if d > math.MaxInt32 {
 		return bad("OutputRate", s.OutputRate, "{%s}/{%s} = %s is beyond the supported ratio %d", hi, lo, fmtNum(d), math.MaxInt32)
+	}
+	if integer := math.Abs(ratio-d) <= ratioTol*ratio && d >= 2; !integer {
+		if s.Direction() == Interpolate {
+			nlo, nhi := math.Max(2, math.Floor(ratio)), math.Max(2, math.Ceil(ratio))
+			if nlo == nhi {
+				nhi++
+			}
+			near := func(r float64) float64 { return fk * r }
+			return bad("OutputRate", s.OutputRate,
+				"{%s}/{%s} = %s is not an integer ratio; the nearest integer ratios are %s ({OutputRate} %s Hz) and %s ({OutputRate} %s Hz) (fractional stages are planned in decimation chains only)",
+				hi, lo, fmtNum(ratio), fmtNum(nlo), fmtNum(near(nlo)), fmtNum(nhi), fmtNum(near(nhi)))
+		}
+		if _, _, ok := fractionOf(ratio, s.ratioTolerance()); !ok {
+			if s.RatioTolerancePPM > 0 {
+				return bad("OutputRate", s.OutputRate, "{%s}/{%s} = %s: no fraction with a denominator of at most %d lies within {RatioTolerancePPM} = %s ppm of it; allow more ppm",
+					hi, lo, fmtNum(ratio), MaxFractionDen, fmtNum(s.RatioTolerancePPM))
+			}
+			return bad("OutputRate", s.OutputRate, "{%s}/{%s} = %s is neither an integer nor a fraction with a denominator of at most %d; give {RatioTolerancePPM} to accept a ratio within that many ppm",
+				hi, lo, fmtNum(ratio), MaxFractionDen)
+		}
 	}
 	if !finite(s.Passband) || s.Passband <= 0 || s.Passband >= fk/2 {
 		return bad("Passband", s.Passband, "must lie in (0, {%s}/2 = %s Hz)", lo, fmtNum(fk/2))
@@ -310,13 +324,17 @@ func (s Spec) RejectionRaised(db float64) Spec {
 
 // Decimation returns D = InputRate/OutputRate of a normalised decimation
 // spec, or of an interpolation spec's DecimationView; 1 for an
-// interpolation spec itself.
+// interpolation spec itself, and 0 for a spec whose ratio is not an
+// integer (Fraction gives it).
 func (s Spec) Decimation() int {
 	if !(s.OutputRate > 0) || !finite(s.InputRate) {
 		return 0
 	}
 	if !s.transposed && s.OutputRate > s.InputRate {
 		return 1
+	}
+	if s.Fractional() {
+		return 0
 	}
 	return int(math.Round(s.InputRate / s.OutputRate))
 }

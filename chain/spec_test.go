@@ -43,7 +43,9 @@ func TestNormalizeErrors(t *testing.T) {
 		// Above InputRate the chain interpolates: the ratio must be an integer.
 		{mod(func(s *Spec) { s.OutputRate = 65e6 }), "OutputRate", "OutputRate/InputRate = 1.015625 is not an integer ratio"},
 		{mod(func(s *Spec) { s.OutputRate = s.InputRate }), "OutputRate", "must differ from InputRate"},
-		{mod(func(s *Spec) { s.OutputRate = 250.5e3 }), "OutputRate", "nearest integer ratios are 255"},
+		// Below it, any ratio is a fraction (64 MHz / 250.5 kHz =
+		// 128000/501; TestFraction).
+		{mod(func(s *Spec) { s.RatioTolerancePPM = 2000 }), "RatioTolerancePPM", "[0, 1000] ppm"},
 		{mod(func(s *Spec) { s.Passband = 125e3 }), "Passband", "OutputRate/2"},
 		{mod(func(s *Spec) { s.Passband = -1 }), "Passband", "(0,"},
 		{mod(func(s *Spec) { s.Protected = 90e3 }), "Protected", "[Passband"},
@@ -118,6 +120,7 @@ func FuzzNormalize(f *testing.F) {
 	f.Add(10e3, 100.0, 45.0, 50.0, 50.0, 0.17, 60.0, 12, 16, 18)
 	f.Add(1.0, 0.3, 0.1, 0.0, 0.0, 1.0, 10.0, 2, 64, 0)
 	f.Add(1.0, 6.0, 0.4, 0.0, 0.0, 1.0, 10.0, 2, 64, 0) // an interpolation spec
+	f.Add(100e6, 3.84e6, 1.5e6, 0.0, 0.0, 0.1, 80.0, 0, 0, 0) // a fractional ratio, 625/24
 	f.Fuzz(func(t *testing.T, in, out, fp, fa, fs, rip, rej float64, ib, ob, cb int) {
 		s := Spec{InputRate: in, OutputRate: out, Passband: fp, Protected: fa, Stopband: fs,
 			RippleDB: rip, RejectionDB: rej, InputBits: ib, OutputBits: ob, CoefBits: cb}
@@ -133,7 +136,12 @@ func FuzzNormalize(f *testing.F) {
 		// the decimation view, whose output is the channel.
 		v := n.DecimationView()
 		fk := v.OutputRate
-		if v.Decimation() < 2 || v.Ratio() != n.Ratio() || !(n.Passband > 0 && n.Passband < fk/2) || n.Protected < n.Passband ||
+		// The ratio is an integer of at least 2 (Ratio gives it) or a
+		// fraction p/q above 1 (Fraction; Ratio is then 0).
+		num, den := n.Fraction()
+		integerOK := den == 1 && v.Decimation() >= 2 && v.Ratio() == n.Ratio() && n.Ratio() == num
+		fractionOK := den > 1 && den <= MaxFractionDen && num > den && n.Ratio() == 0 && n.Direction() == Decimate
+		if !integerOK && !fractionOK || !(n.Passband > 0 && n.Passband < fk/2) || n.Protected < n.Passband ||
 			n.Protected > fk/2 || n.Stopband <= n.Passband || n.Stopband > fk-n.Protected ||
 			!(n.RippleDB > 0) || !(n.RejectionDB > 0 && n.RejectionDB <= MaxRejectionDB) ||
 			n.InputBits < 2 || n.OutputBits > 64 {
