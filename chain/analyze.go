@@ -50,6 +50,12 @@ func AnalyzeContext(ctx context.Context, c *Chain, spec Spec) (Analysis, error) 
 	if err := checkChain(c, spec); err != nil {
 		return Analysis{}, err
 	}
+	if spec.Fractional() {
+		if !c.Designed || !hasTaps(c) {
+			return estimateFractional(c, spec)
+		}
+		return measureFractional(ctx, c, spec)
+	}
 	if !c.Designed || !hasTaps(c) {
 		return estimateAnalysis(c, spec)
 	}
@@ -59,6 +65,9 @@ func AnalyzeContext(ctx context.Context, c *Chain, spec Spec) (Analysis, error) 
 func hasTaps(c *Chain) bool {
 	for _, s := range c.Stages {
 		if f, ok := s.(FIRStage); ok && f.Taps == nil {
+			return false
+		}
+		if p, ok := s.(PolyphaseStage); ok && p.Taps == nil {
 			return false
 		}
 	}
@@ -72,6 +81,19 @@ func checkChain(c *Chain, spec Spec) error {
 	if math.Abs(c.InputRate-spec.InputRate) > 1e-12*spec.InputRate {
 		return fmt.Errorf("chain: chain InputRate = %s Hz differs from the spec's InputRate = %s Hz",
 			fmtNum(c.InputRate), fmtNum(spec.InputRate))
+	}
+	if spec.Fractional() {
+		num, den := spec.Fraction()
+		if n, d := c.Fraction(); n != num || d != den {
+			return fmt.Errorf("chain: the chain's ratio is %d/%d, the spec's %d/%d", n, d, num, den)
+		}
+		if _, err := fractionalPlan(c.Plan, num, den); err != nil {
+			return err
+		}
+		if len(c.Plan) != len(c.Stages) {
+			return fmt.Errorf("chain: the chain's plan %q has %d stages, its Stages %d", Notation(c.Plan), len(c.Plan), len(c.Stages))
+		}
+		return nil
 	}
 	if d := c.Decimation(); d != spec.Decimation() {
 		return fmt.Errorf("chain: chain decimates by %d, the spec's ratio is %d", d, spec.Decimation())
@@ -327,6 +349,12 @@ type bandSet struct {
 	// interval; the search then finds the largest weighted gain.
 	weight    func(x float64) float64
 	weightMax func(a, b float64) float64
+	// floor, in a search for a maximum, is a value already evaluated
+	// elsewhere (another path of a fractional chain): intervals whose
+	// bound cannot beat it by more than the certify margin are dropped.
+	// The search's bound is then at most max(its best, floor) times the
+	// margin.
+	floor float64
 }
 
 // search finds the largest (sign > 0) or smallest (sign < 0) |H| over the
@@ -336,6 +364,21 @@ type bandSet struct {
 // gains ever become the best, and only rigorous bounds prune, so the
 // returned bound is never on the optimistic side of the truth.
 func (cs *cascade) search(ctx context.Context, bands bandSet, sign, certifyDB float64) (extreme, error) {
+	return searchOn(ctx, cs, bands, sign, certifyDB)
+}
+
+// gain returns the cascade's |H(x)|.
+func (cs *cascade) gain(x float64) float64 { return cs.c.Gain(x) }
+
+// gainBounder is what the certified search evaluates and bounds: a
+// cascade, or one path through a fractional chain (fractionalPath).
+type gainBounder interface {
+	gain(x float64) float64
+	bounds(a, b float64, coarse bool) (lo, up float64)
+}
+
+// searchOn is the search of (*cascade).search on any gainBounder.
+func searchOn(ctx context.Context, cs gainBounder, bands bandSet, sign, certifyDB float64) (extreme, error) {
 	tol := math.Pow(10, certifyDB/20)
 	key := func(a, b float64, coarse bool) float64 {
 		lo, up := cs.bounds(a, b, coarse)
@@ -350,13 +393,13 @@ func (cs *cascade) search(ctx context.Context, bands bandSet, sign, certifyDB fl
 	// done says the key k cannot beat the best value v by more than tol.
 	done := func(k, v float64) bool {
 		if sign > 0 {
-			return k <= v*tol
+			return k <= math.Max(v, bands.floor)*tol
 		}
 		return -k >= v/tol
 	}
 	best := extreme{v: math.Inf(int(-sign))}
 	eval := func(x float64) {
-		v := cs.c.Gain(x)
+		v := cs.gain(x)
 		if bands.weight != nil {
 			v *= bands.weight(x)
 		}

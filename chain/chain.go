@@ -16,16 +16,28 @@ const (
 	CIC Kind = iota + 1
 	HalfBand
 	FIR
+	// Polyphase and Farrow are the fractional stage kinds
+	// (FractionalKinds): a PolyphaseStage and a FarrowStage.
+	Polyphase
+	Farrow
 )
 
 // kinds is the one list of stage kinds; the package documentation (Stage
 // kinds) says what else adding one involves.
 var kinds = [...]Kind{CIC, HalfBand, FIR}
 
-// Kinds returns every stage kind, in the order of their constants.
+// Kinds returns every integer stage kind, in the order of their constants.
 func Kinds() []Kind { return append([]Kind(nil), kinds[:]...) }
 
-// String returns "cic", "halfband" or "fir".
+// FractionalKinds returns the fractional stage kinds, Polyphase and
+// Farrow: at most one ends a chain whose ratio is a fraction (package
+// documentation, Fractional stages).
+func FractionalKinds() []Kind { return []Kind{Polyphase, Farrow} }
+
+// Fractional says whether k is a fractional stage kind.
+func (k Kind) Fractional() bool { return k == Polyphase || k == Farrow }
+
+// String returns "cic", "halfband", "fir", "polyphase" or "farrow".
 func (k Kind) String() string {
 	switch k {
 	case CIC:
@@ -34,6 +46,10 @@ func (k Kind) String() string {
 		return "halfband"
 	case FIR:
 		return "fir"
+	case Polyphase:
+		return "polyphase"
+	case Farrow:
+		return "farrow"
 	}
 	return "unknown"
 }
@@ -64,6 +80,10 @@ type StagePlan struct {
 	CICDelay int     // CIC only: M
 	CICForm  CICForm // CIC only: recursive (the zero value) or non-recursive
 	Variant  Variant // FIR only
+	// Up and Down are a fractional stage's rate change: its output rate is
+	// its input rate times Up/Down (Polyphase and Farrow only, whose
+	// Factor is 1).
+	Up, Down int
 }
 
 // Stage is one decimating stage: a CICStage or a FIRStage. The interface is
@@ -160,7 +180,9 @@ func (c *Chain) SignalRates(i int) (in, out float64) {
 func (c *Chain) Ratio() int { return c.Decimation() }
 
 // Decimation returns the product of the stages' factors (for an
-// interpolation chain, the decimation of its transpose, L).
+// interpolation chain, the decimation of its transpose, L; for a chain
+// that ends in a fractional stage, the integer stages' D, Fraction giving
+// the whole ratio).
 func (c *Chain) Decimation() int {
 	d := 1
 	for _, s := range c.Stages {
@@ -172,17 +194,40 @@ func (c *Chain) Decimation() int {
 // OutputRate returns the rate after the last of Stages: the channel rate
 // (the output rate of a decimation chain, the input rate of an
 // interpolation chain).
-func (c *Chain) OutputRate() float64 { return c.InputRate / float64(c.Decimation()) }
+func (c *Chain) OutputRate() float64 {
+	up, down := c.fraction()
+	return c.InputRate * float64(up) / float64(down)
+}
+
+// fraction returns the chain's output rate over its input rate as up/down
+// (not reduced): 1/D for an integer chain.
+func (c *Chain) fraction() (up, down int) {
+	up, down = 1, 1
+	for _, s := range c.Stages {
+		u, d := stageRatio(s)
+		up, down = up*u, down*d
+	}
+	return up, down
+}
+
+// Fraction returns the chain's ratio, the high rate over the channel rate,
+// as a reduced fraction num/den: (D, 1) for an integer chain (Spec.Fraction).
+func (c *Chain) Fraction() (num, den int) {
+	up, down := c.fraction()
+	g := gcd(up, down)
+	return down / g, up / g
+}
 
 // Rates returns the rate at the high-rate side of each of Stages followed
 // by the channel rate: F0, F1, ..., FK.
 func (c *Chain) Rates() []float64 {
 	r := make([]float64, len(c.Stages)+1)
 	r[0] = c.InputRate
-	d := 1
+	up, down := 1, 1
 	for i, s := range c.Stages {
-		d *= s.Factor()
-		r[i+1] = c.InputRate / float64(d)
+		u, d := stageRatio(s)
+		up, down = up*u, down*d
+		r[i+1] = c.InputRate * float64(up) / float64(down)
 	}
 	return r
 }
@@ -195,7 +240,8 @@ func (c *Chain) Gain(g float64) float64 {
 	rate := c.InputRate
 	for _, s := range c.Stages {
 		p *= s.Gain(g, rate)
-		rate /= float64(s.Factor())
+		u, d := stageRatio(s)
+		rate = rate * float64(u) / float64(d)
 	}
 	return p
 }

@@ -49,6 +49,9 @@ func build(ctx context.Context, spec Spec, plan []StagePlan, s Settings, design 
 	if s.MaxTaps < 0 || (s.MaxTaps > 0 && s.MaxTaps < 3) {
 		return nil, fmt.Errorf("chain: Settings.MaxTaps = %d: must be 0 (no bound) or at least 3", s.MaxTaps)
 	}
+	if spec.Fractional() {
+		return buildFractional(ctx, spec, plan, s, design)
+	}
 	// Estimates keep the stage-alone rule's limits: the credit needs the
 	// earlier stages' taps, and the flat limits over-estimate safely.
 	reqs, err := requirements(spec, plan, s.StageAlone || !design)

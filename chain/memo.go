@@ -113,6 +113,7 @@ func stageKey(r Requirement, prev []Stage, s Settings) string {
 	f(r.Passband)
 	f(r.Dp)
 	f(r.Ds)
+	f(r.GapLimit)
 	u(uint64(len(r.Stopbands)))
 	for _, sb := range r.Stopbands {
 		f(sb.Lo)

@@ -13,6 +13,7 @@ const (
 	maxNotationFactor = 1 << 20
 	maxCICOrder       = 16
 	maxCICDelay       = 16
+	maxNotationDown   = 1 << 30
 )
 
 // Notation returns the chain's compact notation, accepted back by ParseNotation.
@@ -21,9 +22,12 @@ const (
 // followed by "nr" when it is built non-recursively (CICForm NonRecursive:
 // M = 1 and R a power of two, "cic5m1r16nr"), a half-band is "hb", a
 // multiband FIR decimating by D is "fir<D>" and the plain lowpass variant
-// is "fir<D>L". For example
+// is "fir<D>L". A fractional stage that changes the rate by L/M (up L,
+// down M, in lowest terms) is "poly<L>/<M>" (PolyphaseStage) or
+// "farrow<L>/<M>" (FarrowStage). For example
 //
 //	cic5m1r16 > hb > hb > fir8 > fir2L
+//	cic4m1r5 > fir5 > poly24/25
 //
 // A stage with an unknown kind is written "?" (which ParseNotation refuses).
 func Notation(plan []StagePlan) string {
@@ -45,6 +49,10 @@ func Notation(plan []StagePlan) string {
 			if p.Variant == Lowpass {
 				b.WriteByte('L')
 			}
+		case Polyphase:
+			fmt.Fprintf(&b, "poly%d/%d", p.Up, p.Down)
+		case Farrow:
+			fmt.Fprintf(&b, "farrow%d/%d", p.Up, p.Down)
 		default:
 			b.WriteByte('?')
 		}
@@ -166,8 +174,25 @@ func ParseNotation(s string) ([]StagePlan, error) {
 			if p.lit("L") {
 				st.Variant = Lowpass
 			}
+		case p.lit("poly"), p.lit("farrow"):
+			kind := Polyphase
+			if strings.HasSuffix(p.s[:p.pos], "farrow") {
+				kind = Farrow
+			}
+			up, err := p.number("rate change's numerator (up)", 1, MaxFractionDen)
+			if err != nil {
+				return nil, err
+			}
+			if !p.lit("/") {
+				return nil, p.fail(`"/" and the rate change's denominator (down)`)
+			}
+			down, err := p.number("rate change's denominator (down)", 1, maxNotationDown)
+			if err != nil {
+				return nil, err
+			}
+			st = StagePlan{Kind: kind, Factor: 1, Up: up, Down: down}
 		default:
-			return nil, p.fail(`a stage ("cic<N>m<M>r<R>", "cic<N>m1r<R>nr", "hb", "fir<D>" or "fir<D>L")`)
+			return nil, p.fail(`a stage ("cic<N>m<M>r<R>", "cic<N>m1r<R>nr", "hb", "fir<D>", "fir<D>L", "poly<L>/<M>" or "farrow<L>/<M>")`)
 		}
 		plan = append(plan, st)
 		p.skipSpaces()

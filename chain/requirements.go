@@ -46,6 +46,13 @@ type Requirement struct {
 	// it no later stage corrects and that therefore comes out of the budget.
 	DroopDB            float64
 	UncorrectedDroopDB float64
+	// GapLimit, when above zero, holds a multiband FIR's gain between its
+	// stopbands and above the last one (its don't-care bands) to at most
+	// GapLimit: the integer stages of a fractional chain, whose fractional
+	// stage carries frequencies from those bands into the protected band
+	// at its stopband's attenuation (package documentation, Fractional
+	// stages). Zero leaves them free.
+	GapLimit float64
 
 	// credit, under the cascade rule, relaxes the stopband limit of a FIR
 	// stage after another stage by what the earlier stages remove
@@ -216,6 +223,9 @@ func requirements(spec Spec, plan []StagePlan, stageAlone bool) ([]Requirement, 
 				r.Stopbands = []Interval{{StopEdge(out, fa, fs, r.Last), rate / 2}}
 			} else {
 				r.Stopbands = aliasBands(out, rate, fa, r.Last, fs)
+				if spec.capGaps {
+					r.GapLimit = 1
+				}
 			}
 			if i == comp {
 				for j := 0; j < i; j++ {
@@ -450,5 +460,37 @@ func (r Requirement) Bands(droop func(f float64) float64) []remez.Band {
 		}
 		bands = append(bands, remez.Band{Lo: b.Lo, Hi: b.Hi, MaxError: r.Ds, Weight: 1 / r.Ds})
 	}
+	if r.GapLimit > 0 {
+		bands = append(bands, r.gapBands()...)
+	}
 	return bands
+}
+
+// gapBands are the bands GapLimit holds: the last three quarters of the
+// transition band, the gaps between the stopbands and above the last one
+// up to half the input rate, each as a band of desired gain 0 met when
+// |A| <= GapLimit. The first quarter of the transition is left free for
+// the fall from the passband; gaps narrower than 1e-6 of the input rate
+// are left free too: the engine's grid would not resolve them, and a
+// filter cannot rise far within one.
+func (r Requirement) gapBands() []remez.Band {
+	var out []remez.Band
+	half := r.InputRate / 2
+	minGap := 1e-6 * r.InputRate
+	if len(r.Stopbands) > 0 {
+		s1 := r.Stopbands[0].Lo
+		if lo := r.Passband + (s1-r.Passband)/4; s1-lo > minGap {
+			out = append(out, remez.Band{Lo: lo, Hi: s1, MaxError: r.GapLimit, Weight: 1 / r.GapLimit})
+		}
+	}
+	for i, b := range r.Stopbands {
+		hi := half
+		if i+1 < len(r.Stopbands) {
+			hi = r.Stopbands[i+1].Lo
+		}
+		if hi-b.Hi > minGap {
+			out = append(out, remez.Band{Lo: b.Hi, Hi: hi, MaxError: r.GapLimit, Weight: 1 / r.GapLimit})
+		}
+	}
+	return out
 }

@@ -87,8 +87,46 @@ func runStage(i int, s Stage, x []float64) []float64 {
 		return polyphaseDecimate(st.Taps, st.R, x)
 	case CICStage:
 		return runCIC(st, x)
+	case PolyphaseStage:
+		if st.Taps == nil {
+			panic(fmt.Sprintf("chain: Run: stage %d (%s) has no taps (an estimate)", i+1, st.Kind()))
+		}
+		return Resample(st.Taps, st.Up, st.Down, x)
 	}
 	panic(fmt.Sprintf("chain: Run: stage %d is a %T; Run takes CICStage and FIRStage values", i+1, s))
+}
+
+// Resample runs a polyphase L/M stage, L = up and M = down, on x: the
+// zeros-stuffed sequence u[i] = x[i/L] (i a multiple of L, else 0),
+// filtered by h at L times the input rate with gain L, every M-th sample
+// kept:
+//
+//	y[m] = L sum_j h[j] u[m M - j],   m M < L len(x)
+//
+// computed phase by phase (only the taps j = m M mod L, +L, ... meet a
+// sample). Without the factor L it is SciPy's upfirdn(h, x, up, down).
+func Resample(h []float64, up, down int, x []float64) []float64 {
+	if up < 1 || down < 1 || len(x) == 0 {
+		return nil
+	}
+	n := (len(x)*up-1)/down + 1
+	out := make([]float64, n)
+	l := float64(up)
+	for m := range out {
+		t := m * down
+		var acc float64
+		for j := t % up; j < len(h); j += up {
+			i := (t - j) / up
+			if i < 0 {
+				break
+			}
+			if i < len(x) {
+				acc += h[j] * x[i]
+			}
+		}
+		out[m] = l * acc
+	}
+	return out
 }
 
 // polyphaseDecimate computes y[m] = sum_k h[k] x[mD - k] as the sum over the

@@ -45,6 +45,11 @@ type Spec struct {
 	// denominator is at most MaxFractionDen.
 	RatioTolerancePPM float64
 
+	// capGaps marks the spec of a fractional chain's integer stages
+	// (IntegerSpec): their multiband FIRs' don't-care bands are held to
+	// unit gain (Requirement.GapLimit).
+	capGaps bool
+
 	// transposed marks the decimation view of an interpolation spec
 	// (DecimationView): its rates are swapped, and Direction still says
 	// Interpolate.

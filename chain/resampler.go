@@ -1,0 +1,268 @@
+package chain
+
+import (
+	"context"
+	"errors"
+	"fmt"
+	"math"
+
+	"github.com/stepdown-dsp/stepdown/chain/remez"
+)
+
+// PolyphaseStage is a fractional stage that changes the rate by Up/Down:
+// it raises the rate Up times (zeros between the samples), filters with
+// one prototype lowpass at Up times its input rate, and keeps every
+// Down-th sample. Each output costs the taps of one phase,
+// ceil(Length/Up).
+type PolyphaseStage struct {
+	Up, Down int
+	// Taps is the prototype at Up times the stage's input rate, with unit
+	// gain at 0 Hz (the data path multiplies by Up); nil when estimated.
+	Taps   []float64
+	Length int // number of taps (estimated or len(Taps))
+	// Req is what the stage was designed (or estimated) to meet.
+	Req FractionalRequirement
+}
+
+// Kind returns Polyphase.
+func (PolyphaseStage) Kind() Kind { return Polyphase }
+
+// Factor returns 1: a fractional stage's rate change is Up/Down.
+func (PolyphaseStage) Factor() int { return 1 }
+
+func (PolyphaseStage) isStage() {}
+
+// Gain returns the prototype's |P(f)| at f Hz, rate being the stage's
+// input rate (the prototype runs at Up times it): the gain of the path
+// that keeps a tone at f where it is.
+func (s PolyphaseStage) Gain(f, rate float64) float64 {
+	if s.Taps == nil {
+		return 1
+	}
+	return remez.Magnitude(s.Taps, f, rate*float64(s.Up))
+}
+
+// PhaseTaps returns the multiplies of one output, ceil(Length/Up).
+func (s PolyphaseStage) PhaseTaps() int { return (s.Length + s.Up - 1) / s.Up }
+
+// FractionalRequirement is what a fractional stage is designed to meet,
+// on its own input axis (package documentation, Fractional stages).
+type FractionalRequirement struct {
+	InputRate, OutputRate float64
+	Passband              float64 // fp
+	// Keep, when above zero, is the half-width of the bands around the
+	// multiples of the input rate that the stage must attenuate: the
+	// integer stages before end in a lowpass FIR with stopband edge Keep,
+	// min(fs, min(input rate, output rate) - fa), so only the images of
+	// [0, Keep] need the fractional stage. Zero means the stage is a
+	// lowpass of its own from Stop up.
+	Keep float64
+	// Stop is the edge from which the stage attenuates everything when
+	// Keep is zero: min(fs, min(input rate, output rate) - fa).
+	Stop   float64
+	Dp, Ds float64
+	// RippleDB is the stage's share of the ripple budget.
+	RippleDB float64
+}
+
+// stageRatio returns a stage's output rate over its input rate as up/down.
+func stageRatio(s Stage) (up, down int) {
+	switch st := s.(type) {
+	case PolyphaseStage:
+		return st.Up, st.Down
+	case *PolyphaseStage:
+		return st.Up, st.Down
+	}
+	return 1, s.Factor()
+}
+
+// fractionalPlan checks that plan suits the fractional ratio num/den: its
+// integer stages first, then one fractional stage whose Up/Down makes up
+// the ratio. It returns the integer stages' D.
+func fractionalPlan(plan []StagePlan, num, den int) (int, error) {
+	if len(plan) == 0 {
+		return 0, errors.New("chain: empty plan")
+	}
+	last := plan[len(plan)-1]
+	if !last.Kind.Fractional() {
+		return 0, planErr(plan, len(plan)-1, "the ratio %d/%d is a fraction: the chain must end in a fractional stage (polyphase or farrow)", num, den)
+	}
+	d := 1
+	for i, p := range plan[:len(plan)-1] {
+		if p.Kind.Fractional() {
+			return 0, planErr(plan, i, "a fractional stage may only end the chain")
+		}
+		if p.Factor < 2 {
+			return 0, planErr(plan, i, "factor %d: must be at least 2", p.Factor)
+		}
+		if d > math.MaxInt32/p.Factor {
+			return 0, planErr(plan, i, "the factors' product is beyond %d", math.MaxInt32)
+		}
+		d *= p.Factor
+	}
+	if last.Up < 1 || last.Down < 1 || last.Up > MaxFractionDen || last.Down > math.MaxInt32/max(1, d) {
+		return 0, planErr(plan, len(plan)-1, "rate change %d/%d: out of range", last.Up, last.Down)
+	}
+	// The chain's ratio d Down/Up must be num/den.
+	if int64(d)*int64(last.Down)*int64(den) != int64(num)*int64(last.Up) {
+		g := gcd(d*den, num)
+		return 0, planErr(plan, len(plan)-1, "rate change %d/%d: after the integer stages' %d the ratio %d/%d needs %d/%d", last.Up, last.Down, d, num, den, d*den/g, num/g)
+	}
+	if gcd(last.Up, last.Down) != 1 {
+		return 0, planErr(plan, len(plan)-1, "rate change %d/%d: write it in lowest terms", last.Up, last.Down)
+	}
+	return d, nil
+}
+
+// IntegerSpec returns the spec the integer stages of a fractional chain
+// are planned against when they decimate by d (package documentation,
+// Fractional stages): output rate Fm = F0/d, the same passband and
+// protected band, the ripple budget's share rippleDB, and the rejection
+// target raised by the fractional stage's ripple share fracRippleDB (its
+// passband lifts the integer stages' aliases). The stopband edge is
+// min(fs, min(Fm, FK) - fa) (keepEdge), which a last integer stage that is
+// a lowpass FIR (fir<D>L) holds on the whole band above it; otherwise
+// only the aliases count, as with any integer spec. spec is the
+// fractional spec, normalised, its OutputRate the chain's.
+func IntegerSpec(spec Spec, d int, rippleDB, fracRippleDB float64) Spec {
+	sub := spec
+	sub.OutputRate = spec.InputRate / float64(d)
+	sub.RatioTolerancePPM = 0
+	sub.capGaps = true
+	sub.Stopband = keepEdge(spec, sub.OutputRate)
+	sub.RippleDB = rippleDB
+	sub = sub.RejectionRaised(fracRippleDB)
+	return sub
+}
+
+// keepEdge is min(fs, min(fm, FK) - fa), and at most fm - fa (the integer
+// spec's bound on its stopband edge).
+func keepEdge(spec Spec, fm float64) float64 {
+	return math.Min(spec.Stopband, math.Min(fm, spec.OutputRate)-spec.Protected)
+}
+
+// fractionalShare is the share of the ripple budget a fractional stage
+// takes when integer stages come before it: half.
+const fractionalShare = 0.5
+
+func buildFractional(ctx context.Context, spec Spec, plan []StagePlan, s Settings, design bool) (*Chain, error) {
+	num, den := spec.Fraction()
+	d, err := fractionalPlan(plan, num, den)
+	if err != nil {
+		return nil, err
+	}
+	if spec.NoiseShaped {
+		return nil, errors.New("chain: a noise-shaped input is planned for integer ratios only")
+	}
+	// The chain's own output rate is the fraction's: within the ratio
+	// tolerance of the spec's.
+	fm := spec.InputRate / float64(d)
+	fk := fm * float64(plan[len(plan)-1].Up) / float64(plan[len(plan)-1].Down)
+	spec.OutputRate = fk
+	keep := keepEdge(spec, fm)
+	if !(keep > spec.Passband) || spec.Protected >= fm/2 {
+		return nil, planErr(plan, len(plan)-1, "its input rate %s Hz leaves no band for it: it needs min(input rate, output rate) - fa = %s Hz above fp = %s Hz and fa below half its input rate",
+			fmtNum(fm), fmtNum(math.Min(fm, fk)-spec.Protected), fmtNum(spec.Passband))
+	}
+	c := &Chain{InputRate: spec.InputRate, Complex: spec.Complex, Direction: Decimate,
+		Plan: append([]StagePlan(nil), plan...), Designed: design}
+	fracRipple := spec.RippleDB
+	if d > 1 {
+		fracRipple = spec.RippleDB * fractionalShare
+		sub := IntegerSpec(spec, d, spec.RippleDB-fracRipple, fracRipple)
+		ic, err := build(ctx, sub, plan[:len(plan)-1], s, design)
+		if err != nil {
+			return nil, err
+		}
+		c.Stages = ic.Stages
+	}
+	intRipple := spec.RippleDB - fracRipple
+	req := FractionalRequirement{InputRate: fm, OutputRate: fk, Passband: spec.Passband, Stop: keep,
+		RippleDB: fracRipple, Dp: RippleToDev(fracRipple),
+		// The integer stages' passband can lift what this stage lets
+		// through by their ripple share.
+		Ds: RejectionToDev(spec.RejectionDB + intRipple)}
+	if n := len(plan); n > 1 && plan[n-2].Kind == FIR && plan[n-2].Variant == Lowpass && keep < fm/2 {
+		// The lowpass before holds [Keep, Fm/2]: only the images of
+		// [0, Keep] are left to this stage.
+		req.Keep = keep
+	}
+	if err := ctx.Err(); err != nil {
+		return nil, stopped(plan, err)
+	}
+	last := plan[len(plan)-1]
+	switch last.Kind {
+	case Polyphase:
+		st, err := polyphaseStage(ctx, last, req, s, design)
+		if err != nil {
+			if cerr := ctx.Err(); cerr != nil {
+				return nil, stopped(plan, cerr)
+			}
+			return nil, planErr(plan, len(plan)-1, "%v", err)
+		}
+		c.Stages = append(c.Stages, st)
+	default:
+		return nil, planErr(plan, len(plan)-1, "a %s stage cannot be designed yet", last.Kind)
+	}
+	return c, nil
+}
+
+// PolyphaseBands returns the prototype's stopbands on its own axis, at Up
+// times the stage's input rate Fm (package documentation, Fractional
+// stages): after a lowpass (Keep above zero) [k Fm - Keep, k Fm + Keep]
+// for k = 1 .. Up/2, cut at Up Fm / 2 and merged where they touch; else
+// one band [Stop, Up Fm / 2].
+func PolyphaseBands(r FractionalRequirement, up int) []Interval {
+	half := float64(up) * r.InputRate / 2
+	if r.Keep <= 0 {
+		return []Interval{{r.Stop, half}}
+	}
+	var b []Interval
+	for k := 1; k <= up/2+1; k++ {
+		lo, hi := float64(k)*r.InputRate-r.Keep, math.Min(float64(k)*r.InputRate+r.Keep, half)
+		if lo >= half {
+			break
+		}
+		b = append(b, Interval{lo, hi})
+	}
+	return mergeIntervals(b)
+}
+
+// polyphaseMaxUp bounds a polyphase stage's Up: its prototype is about Up
+// times as long as a FIR at its input rate.
+const polyphaseMaxUp = 256
+
+func polyphaseStage(ctx context.Context, p StagePlan, r FractionalRequirement, s Settings, design bool) (PolyphaseStage, error) {
+	st := PolyphaseStage{Up: p.Up, Down: p.Down, Req: r}
+	if p.Up > polyphaseMaxUp {
+		return st, fmt.Errorf("a polyphase stage of %d phases: at most %d (a farrow stage takes any ratio)", p.Up, polyphaseMaxUp)
+	}
+	rate := float64(p.Up) * r.InputRate
+	stops := PolyphaseBands(r, p.Up)
+	maxTaps := 0
+	if s.MaxTaps > 0 {
+		// MaxTaps bounds the taps of one phase: the multiplies of an output.
+		maxTaps = min(65535, s.MaxTaps*p.Up)
+	}
+	if !design {
+		n := remez.HerrmannLength(r.Dp, r.Ds, stops[0].Lo-r.Passband, rate)
+		if n == 0 {
+			return st, errors.New("no length estimate for its bands")
+		}
+		st.Length = n
+		return st, nil
+	}
+	// As Requirement.Bands states a stage's bands: met when
+	// |A - D| <= MaxError on each.
+	bands := []remez.Band{{Lo: 0, Hi: r.Passband, Gain: 1, MaxError: r.Dp, Weight: 1 / r.Dp}}
+	for _, b := range stops {
+		bands = append(bands, remez.Band{Lo: b.Lo, Hi: b.Hi, Gain: 0, MaxError: r.Ds, Weight: 1 / r.Ds})
+	}
+	res, err := remez.MinLengthContext(ctx, rate, bands, 0, maxTaps, s.Remez)
+	if err != nil {
+		return st, fmt.Errorf("polyphase prototype design: %w", err)
+	}
+	st.Taps = res.Taps
+	st.Length = len(res.Taps)
+	return st, nil
+}
