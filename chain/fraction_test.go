@@ -21,7 +21,7 @@ func TestFraction(t *testing.T) {
 		{245.76e6, 100e6, 0, 1536, 625},
 		{100e6, 80e6, 0, 5, 4},
 		{100e6, 3.84e6 * (1 + 3e-6), 10, 625, 24},
-		{1e9, 1e9 / 3.14159265, 1, 355, 113},   // a classic approximation of pi (289/92 is within 100 ppm)
+		{1e9, 1e9 / 3.14159265, 1, 355, 113}, // a classic approximation of pi (289/92 is within 100 ppm)
 	} {
 		s := Spec{InputRate: c.in, OutputRate: c.out, RatioTolerancePPM: c.ppm}
 		p, q := s.Fraction()

@@ -55,8 +55,16 @@ func TestKindsList(t *testing.T) {
 			t.Errorf("kind %s: Notation does not know it", k)
 		}
 	}
-	for _, k := range []Kind{0, ks[len(ks)-1] + 1} {
-		if slices.Contains(ks, k) || k.String() != "unknown" {
+	// The fractional kinds follow the integer ones; past them no name.
+	all := append(Kinds(), FractionalKinds()...)
+	for _, k := range FractionalKinds() {
+		if n := k.String(); n == "unknown" || names[n] || !k.Fractional() {
+			t.Errorf("fractional kind %d: name %q (unknown or not unique)", int(k), n)
+		}
+		names[k.String()] = true
+	}
+	for _, k := range []Kind{0, all[len(all)-1] + 1} {
+		if slices.Contains(all, k) || k.String() != "unknown" {
 			t.Errorf("Kind(%d) = %q is taken for a kind", int(k), k)
 		}
 	}

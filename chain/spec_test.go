@@ -119,7 +119,7 @@ func FuzzNormalize(f *testing.F) {
 	f.Add(64e6, 250e3, 100e3, 0.0, 0.0, 0.1, 90.0, 0, 0, 0)
 	f.Add(10e3, 100.0, 45.0, 50.0, 50.0, 0.17, 60.0, 12, 16, 18)
 	f.Add(1.0, 0.3, 0.1, 0.0, 0.0, 1.0, 10.0, 2, 64, 0)
-	f.Add(1.0, 6.0, 0.4, 0.0, 0.0, 1.0, 10.0, 2, 64, 0) // an interpolation spec
+	f.Add(1.0, 6.0, 0.4, 0.0, 0.0, 1.0, 10.0, 2, 64, 0)       // an interpolation spec
 	f.Add(100e6, 3.84e6, 1.5e6, 0.0, 0.0, 0.1, 80.0, 0, 0, 0) // a fractional ratio, 625/24
 	f.Fuzz(func(t *testing.T, in, out, fp, fa, fs, rip, rej float64, ib, ob, cb int) {
 		s := Spec{InputRate: in, OutputRate: out, Passband: fp, Protected: fa, Stopband: fs,

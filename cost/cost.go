@@ -127,6 +127,11 @@ func Price(spec chain.Spec, c *chain.Chain, s Settings) (Figures, error) {
 	p := 1.0
 	for i := len(c.Stages) - 1; i >= 0; i-- {
 		later[i] = p
+		if v, ok := c.Stages[i].(chain.PolyphaseStage); ok {
+			// Down/Up of its inputs for each of its outputs.
+			p *= float64(v.Down) / float64(v.Up)
+			continue
+		}
 		p *= float64(c.Stages[i].Factor())
 	}
 	cx := 1
@@ -209,8 +214,28 @@ func Price(spec chain.Spec, c *chain.Chain, s Settings) (Figures, error) {
 				}
 				adders = (block.Coefficient + block.Structural) * Lanes(rates[i], s.Clock) * cx
 			}
+		case chain.PolyphaseStage:
+			n := v.Length
+			if v.Taps != nil {
+				n = len(v.Taps)
+			}
+			if n < 1 || v.Up < 1 {
+				return Figures{}, fmt.Errorf("cost: stage %d (%s) has no taps and no estimated length", i+1, v.Kind())
+			}
+			// One phase per output: ceil(N/Up) multiplies on as many
+			// input words; every phase's taps stored (the phases are
+			// not symmetric on their own); the prototype's group delay
+			// (N-1)/2 at Up times the input rate.
+			ph := (n + v.Up - 1) / v.Up
+			mul, add, dataWords, coefWords = float64(ph), float64(ph-1), ph, n
+			delayIn = float64(n-1) / 2 / float64(v.Up)
+			dataBits = dataWords * width
+			width = spec.OutputBits
+			if s.Multiplierless {
+				return Figures{}, fmt.Errorf("cost: stage %d (%s): multiplierless pricing takes integer stages only", i+1, v.Kind())
+			}
 		default:
-			return Figures{}, fmt.Errorf("cost: stage %d is a %T; cost prices chain.CICStage and chain.FIRStage values", i+1, st)
+			return Figures{}, fmt.Errorf("cost: stage %d is a %T; cost prices chain.CICStage, chain.FIRStage and chain.PolyphaseStage values", i+1, st)
 		}
 		sf := multiplyOut(mul, add, dataWords, dataBits, coefWords, coefBits, cx, later[i], delayIn, rates[i])
 		if s.Clock > 0 && mul > 0 && !s.Multiplierless {

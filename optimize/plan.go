@@ -56,6 +56,9 @@ func Plan(ctx context.Context, spec chain.Spec, s Settings) (*Result, error) {
 	// Plan and Stages run from the high rate down; see chain.Chain), and
 	// its CICs take the recursive form, the one built for interpolation.
 	ns = ns.DecimationView()
+	if ns.Fractional() {
+		return planFractional(ctx, ns, s)
+	}
 	if ns.Direction() == chain.Interpolate {
 		s.CICForms = slices.DeleteFunc(slices.Clone(s.CICForms), func(f chain.CICForm) bool { return f == chain.NonRecursive })
 	}

@@ -250,7 +250,7 @@ type key struct {
 
 // known lists every key of the format, in the order of the README.
 var known = []key{
-	{path: "input_rate"}, {path: "output_rate"}, {path: "passband"}, {path: "protected"},
+	{path: "input_rate"}, {path: "output_rate"}, {path: "ratio_tolerance_ppm"}, {path: "passband"}, {path: "protected"},
 	{path: "stopband"}, {path: "ripple"}, {path: "rejection"}, {path: "rejection_mask"}, {path: "signal"},
 	{path: "words", table: true}, {path: "words.input"}, {path: "words.output"}, {path: "words.coefficients"},
 	{path: "words.unity_gain"},
@@ -692,7 +692,7 @@ var goField = []struct{ goName, key string }{
 	{"InputRate", "input_rate"}, {"OutputRate", "output_rate"}, {"Passband", "passband"},
 	{"Protected", "protected"}, {"Stopband", "stopband"}, {"RippleDB", "ripple"},
 	{"RejectionDB", "rejection"}, {"RejectionMask", "rejection_mask"}, {"InputBits", "words.input"}, {"OutputBits", "words.output"},
-	{"CoefBits", "words.coefficients"},
+	{"CoefBits", "words.coefficients"}, {"RatioTolerancePPM", "ratio_tolerance_ppm"},
 }
 
 func (p *parser) build() (*Spec, error) {
@@ -729,6 +729,13 @@ func (p *parser) build() (*Spec, error) {
 			return nil, p.errAt(f.key, raw, "must be above 0 Hz")
 		}
 		*f.dst = v
+	}
+	if raw, ok := p.lookup("ratio_tolerance_ppm"); ok {
+		v, err := p.quantityOf("ratio_tolerance_ppm", raw, units.Level)
+		if err != nil || !(v > 0) || v > chain.MaxRatioTolerancePPM {
+			return nil, p.errAt("ratio_tolerance_ppm", raw, "want a plain number of parts per million in (0, %d], such as 50", chain.MaxRatioTolerancePPM)
+		}
+		cs.RatioTolerancePPM = v
 	}
 	for _, f := range []struct {
 		key string

@@ -157,7 +157,8 @@ func TestParseErrors(t *testing.T) {
 		{"word list", "[words]\ninput = [14]", []string{"words.input = [14]", "want a whole number, not a list"}},
 		{"output above input, not a multiple", `output_rate = "300 MHz"`, []string{"output_rate", "output_rate/input_rate = 1.220703125 is not an integer ratio"}},
 		{"ratio 1", `output_rate = "245.76 MHz"`, []string{"output_rate"}},
-		{"non-integer ratio", `output_rate = "1.9 MHz"`, []string{"output_rate", "not an integer"}},
+		{"ratio tolerance", "ratio_tolerance_ppm = 5000", []string{"ratio_tolerance_ppm", "(0, 1000]"}},
+		{"ratio tolerance text", `ratio_tolerance_ppm = "a lot"`, []string{"ratio_tolerance_ppm", "parts per million"}},
 		{"passband high", `passband = "1 MHz"`, []string{"passband"}},
 		{"ripple zero", `ripple = 0`, []string{"ripple", "above 0 dB"}},
 		{"ripple negative", `ripple = "-0.1 dB"`, []string{"ripple", "above 0 dB"}},
@@ -323,7 +324,7 @@ func FuzzParseSpec(f *testing.F) {
 		if _, err := c.Normalize(); err != nil {
 			t.Fatalf("accepted spec does not normalise again: %v", err)
 		}
-		if c.Ratio() < 2 || s.MaxStages < 1 || s.MaxStages > MaxStages || len(s.Kinds) == 0 {
+		if num, den := c.Fraction(); num <= den || den < 1 || (den == 1 && c.Ratio() < 2) || s.MaxStages < 1 || s.MaxStages > MaxStages || len(s.Kinds) == 0 {
 			t.Fatalf("accepted spec out of rule: %+v", s)
 		}
 		var _ chain.Spec = c
