@@ -184,15 +184,20 @@ func (bd *bounder) eval(nu float64) (h, dh complex128) {
 // modulus of a linear function is largest at an end); the lower bound the
 // larger of the two counterparts. The tail bounds apply for target 0.
 func (bd *bounder) bounds(a, b, target float64) (lo, up, mid float64) {
-	m := a + 0.5*(b-a)
-	hw := 0.5 * (b - a)
+	// Halves first, so that no width overflows.
+	m := 0.5*a + 0.5*b
+	hw := 0.5*b - 0.5*a
 	hm, dh := bd.eval(m)
 	hm -= complex(target, 0)
 	g := cmplx.Abs(hm)
-	step := dh * complex(hw, 0)
+	up = g + bd.lip*hw + bd.err
+	lo = math.Max(0, g-bd.lip*hw-bd.err)
+	step := complex(real(dh)*hw, imag(dh)*hw)
 	e2 := bd.derr*hw + 0.5*bd.m2*hw*hw + bd.err
-	up = math.Min(g+bd.lip*hw+bd.err, math.Max(cmplx.Abs(hm+step), cmplx.Abs(hm-step))+e2)
-	lo = math.Max(0, math.Max(g-bd.lip*hw-bd.err, g-cmplx.Abs(step)-e2))
+	if s := cmplx.Abs(step); s+e2 < math.Inf(1) {
+		up = math.Min(up, math.Max(cmplx.Abs(hm+step), cmplx.Abs(hm-step))+e2)
+		lo = math.Max(lo, g-s-e2)
+	}
 	if target == 0 {
 		up = math.Min(up, bd.l1)
 		vmin := 0.0

@@ -73,7 +73,8 @@
 //
 // Design's Result is certified: max |H - 1| over the passband and max |H|
 // over every stopband are rigorous upper bounds found by branch and bound
-// on the bounds above, within 1% of the largest computed value. The
+// on the bounds above, within 1% of the larger of the largest computed
+// value and a tenth of the target. The
 // stopbands k = 1..Bands are searched; beyond, H(k + d) =
 // sum_r T_r(d)/(j 2 pi nu)^(r+1) exactly, with T_r(d) the transform of the
 // r-th derivative's jumps, which is periodic in d: max |T_0| over

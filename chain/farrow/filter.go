@@ -29,12 +29,20 @@ func (f Filter) Len() int {
 	return len(f.Coef[0])
 }
 
+// MaxFilterDegree is the largest degree a Filter may have: the closed form
+// of the response keeps its accuracy (about 1e-13 of the coefficients'
+// absolute sum) up to it.
+const MaxFilterDegree = 16
+
 // Validate reports, in plain words, why f is not a Farrow filter of this
-// package's convention: it needs at least one row, every row of the same
-// even length of at least 2, and finite coefficients.
+// package's convention: it needs 1..MaxFilterDegree+1 rows, every row of
+// the same even length of at least 2, and finite coefficients.
 func (f Filter) Validate() error {
 	if len(f.Coef) == 0 {
 		return fmt.Errorf("farrow filter: no coefficient rows: a filter needs at least one (degree 0)")
+	}
+	if p := len(f.Coef) - 1; p > MaxFilterDegree {
+		return fmt.Errorf("farrow filter: degree %d (%d coefficient rows): at most %d is supported", p, p+1, MaxFilterDegree)
 	}
 	n := len(f.Coef[0])
 	if n < 2 || n%2 != 0 {

@@ -19,6 +19,7 @@ func TestValidate(t *testing.T) {
 		{"ragged", Filter{Coef: [][]float64{{1, 2}, {1, 2, 3, 4}}}, "row 1"},
 		{"NaN", Filter{Coef: [][]float64{{1, 2}, {math.NaN(), 0}}}, "[1][0] is NaN"},
 		{"Inf", Filter{Coef: [][]float64{{1, math.Inf(-1)}}}, "[0][1] is -Inf"},
+		{"degree 17", Filter{Coef: make([][]float64, 18)}, "degree 17"},
 		{"degree 0", Filter{Coef: [][]float64{{0.5, 0.5}}}, ""},
 		{"degree 1", Filter{Coef: [][]float64{{0, 1}, {1, -1}}}, ""},
 	} {
@@ -103,6 +104,33 @@ func TestResponseQuadrature(t *testing.T) {
 		}
 	}
 	t.Logf("largest difference from quadrature: %.2g of the coefficients' absolute sum", worst)
+}
+
+// TestResponseHighDegree holds the closed form to quadrature at the
+// largest degree Validate accepts, where the Taylor series and the
+// recursion are used furthest from their comfort.
+func TestResponseHighDegree(t *testing.T) {
+	rng := rand.New(rand.NewPCG(9, 10))
+	worst := 0.0
+	for trial := 0; trial < 10; trial++ {
+		f := randFilter(rng, 0, 8)
+		f.Coef = make([][]float64, MaxFilterDegree+1)
+		for i := range f.Coef {
+			f.Coef[i] = make([]float64, 8)
+			for j := range f.Coef[i] {
+				f.Coef[i][j] = 2*rng.Float64() - 1
+			}
+		}
+		scale := absSum(f)
+		for _, nu := range []float64{0.01, 0.5, 1.2, 1.5, 2.5, 7.3, 40.1} {
+			e := cabsDiff(f.Response(nu), quadResponse(f, nu)) / scale
+			worst = math.Max(worst, e)
+			if e > 1e-12 {
+				t.Errorf("degree %d, nu %v: error %.2g of the coefficient sum", MaxFilterDegree, nu, e)
+			}
+		}
+	}
+	t.Logf("degree %d: largest difference from quadrature %.2g of the coefficients' absolute sum", MaxFilterDegree, worst)
 }
 
 // TestResponseFar holds the closed form, up to nu = 1e6, to the exact
