@@ -96,9 +96,10 @@
 //
 // # Verification
 //
-// The tests hold Response to Gauss-Legendre integration of Impulse and, up
-// to nu = 1e6, to the exact integration-by-parts series over the jumps
-// computed from Impulse; Run to the direct sum over h(t - n) and a
+// The tests hold Response to Gauss-Legendre integration of Impulse, to
+// SciPy's oscillatory quadrature (testdata/gen_response_scipy.py) and, up
+// to nu = 1e6, to the exact integration-by-parts series over the jumps of
+// h and its derivatives; Run to the direct sum over h(t - n) and a
 // Lagrange cubic table to a cubic input; Bounds to dense sampling on random
 // filters and intervals; and designs to dense brute-force maxima that the
 // certified figures must not undercut.
