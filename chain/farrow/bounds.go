@@ -276,13 +276,13 @@ func maxBound(init []piece, bf func(a, b float64) (up, g float64), relTol, floor
 		h = append(h, p)
 	}
 	heap.Init(&h)
-	for h.Len() > 0 {
+	for steps := 1; h.Len() > 0; steps++ {
 		top := h[0]
 		tol := relTol * math.Max(best, floor)
 		if top.up <= best+tol || top.leaf || budget <= 0 {
 			return top.up
 		}
-		if budget%4096 == 0 && check != nil && !check() {
+		if steps%2048 == 0 && check != nil && !check() {
 			return top.up
 		}
 		heap.Pop(&h)

@@ -209,3 +209,19 @@ func TestMinDesignErrors(t *testing.T) {
 		t.Errorf("cancelled context: error %v", err)
 	}
 }
+
+// TestCertifyCancelled: a certification cut short by its context still
+// returns bounds that are not optimistic.
+func TestCertifyCancelled(t *testing.T) {
+	s := DesignSpec{Degree: 4, Len: 16, Pass: 0.2, Stop: 0.3, PassDev: 1e-4, StopDev: 1e-4}
+	f, full, err := Design(s)
+	if err != nil {
+		t.Fatal(err)
+	}
+	ctx, cancel := context.WithCancel(context.Background())
+	cancel()
+	r := certify(ctx, f, s)
+	if r.PassDev < full.PassDev/1.02 || r.StopDev < full.StopDev/1.02 {
+		t.Errorf("cancelled certification %+v below the full one %+v", r, full)
+	}
+}
