@@ -213,7 +213,7 @@ func TestMinDesignErrors(t *testing.T) {
 // TestCertifyCancelled: a certification cut short by its context still
 // returns bounds that are not optimistic.
 func TestCertifyCancelled(t *testing.T) {
-	s := DesignSpec{Degree: 4, Len: 16, Pass: 0.2, Stop: 0.3, PassDev: 1e-4, StopDev: 1e-4}
+	s := DesignSpec{Degree: 4, Len: 8, Pass: 0.1, Stop: 0.3, PassDev: 1e-4, StopDev: 1e-4}
 	f, full, err := Design(s)
 	if err != nil {
 		t.Fatal(err)
