@@ -70,6 +70,9 @@ func hasTaps(c *Chain) bool {
 		if p, ok := s.(PolyphaseStage); ok && p.Taps == nil {
 			return false
 		}
+		if f, ok := s.(FarrowStage); ok && f.Filter.Coef == nil {
+			return false
+		}
 	}
 	return true
 }

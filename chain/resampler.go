@@ -6,6 +6,7 @@ import (
 	"fmt"
 	"math"
 
+	"github.com/stepdown-dsp/stepdown/chain/farrow"
 	"github.com/stepdown-dsp/stepdown/chain/remez"
 )
 
@@ -45,6 +46,42 @@ func (s PolyphaseStage) Gain(f, rate float64) float64 {
 // PhaseTaps returns the multiplies of one output, ceil(Length/Up).
 func (s PolyphaseStage) PhaseTaps() int { return (s.Length + s.Up - 1) / s.Up }
 
+// FarrowStage is a fractional stage that changes the rate by Up/Down with
+// a Farrow structure (package farrow): Degree+1 subfilters of Length taps
+// on the input, combined by Horner's rule in the fractional delay mu of
+// each output, so any ratio costs the same: (Degree+1) Length + Degree
+// multiplies per output.
+type FarrowStage struct {
+	Up, Down int
+	// Filter is the designed structure (farrow.Convention); its Coef is
+	// nil when the stage is estimated.
+	Filter         farrow.Filter
+	Degree, Length int
+	// Req is what the stage was designed to meet.
+	Req FractionalRequirement
+}
+
+// Kind returns Farrow.
+func (FarrowStage) Kind() Kind { return Farrow }
+
+// Factor returns 1: a fractional stage's rate change is Up/Down.
+func (FarrowStage) Factor() int { return 1 }
+
+func (FarrowStage) isStage() {}
+
+// Gain returns the structure's continuous-time |H(f)| at f Hz, rate being
+// the stage's input rate: the gain of the path that keeps a tone at f
+// where it is.
+func (s FarrowStage) Gain(f, rate float64) float64 {
+	if s.Filter.Coef == nil {
+		return 1
+	}
+	return s.Filter.Gain(f / rate)
+}
+
+// MultipliesPerOutput returns (Degree+1) Length + Degree (farrow.Cost).
+func (s FarrowStage) MultipliesPerOutput() int { return farrow.Cost(s.Degree, s.Length) }
+
 // FractionalRequirement is what a fractional stage is designed to meet,
 // on its own input axis (package documentation, Fractional stages).
 type FractionalRequirement struct {
@@ -71,6 +108,10 @@ func stageRatio(s Stage) (up, down int) {
 	case PolyphaseStage:
 		return st.Up, st.Down
 	case *PolyphaseStage:
+		return st.Up, st.Down
+	case FarrowStage:
+		return st.Up, st.Down
+	case *FarrowStage:
 		return st.Up, st.Down
 	}
 	return 1, s.Factor()
@@ -201,8 +242,17 @@ func buildFractional(ctx context.Context, spec Spec, plan []StagePlan, s Setting
 			return nil, planErr(plan, len(plan)-1, "%v", err)
 		}
 		c.Stages = append(c.Stages, st)
+	case Farrow:
+		st, err := farrowStage(ctx, last, req)
+		if err != nil {
+			if cerr := ctx.Err(); cerr != nil {
+				return nil, stopped(plan, cerr)
+			}
+			return nil, planErr(plan, len(plan)-1, "%v", err)
+		}
+		c.Stages = append(c.Stages, st)
 	default:
-		return nil, planErr(plan, len(plan)-1, "a %s stage cannot be designed yet", last.Kind)
+		return nil, planErr(plan, len(plan)-1, "a %s stage cannot be designed", last.Kind)
 	}
 	return c, nil
 }
@@ -264,5 +314,29 @@ func polyphaseStage(ctx context.Context, p StagePlan, r FractionalRequirement, s
 	}
 	st.Taps = res.Taps
 	st.Length = len(res.Taps)
+	return st, nil
+}
+
+// farrowMaxCost bounds a Farrow stage's multiplies per output in its
+// design search.
+const farrowMaxCost = 400
+
+// farrowStage designs a Farrow stage by farrow.MinDesign: the cheapest
+// structure whose passband [0, fp] is within Dp of 1 and whose image
+// bands [k Fm - Keep, k Fm + Keep], k >= 1, are below Ds. It needs a
+// lowpass FIR before it (Keep above zero, below Fm/2): a Farrow structure
+// cannot itself be the lowpass of a whole band. Estimates are designed
+// too: the structures are small.
+func farrowStage(ctx context.Context, p StagePlan, r FractionalRequirement) (FarrowStage, error) {
+	st := FarrowStage{Up: p.Up, Down: p.Down, Req: r}
+	if r.Keep <= 0 {
+		return st, errors.New("a farrow stage needs a lowpass FIR (fir<D>L) just before it, whose stopband edge min(fs, min(input rate, output rate) - fa) lies below half the farrow stage's input rate")
+	}
+	f, res, err := farrow.MinDesign(ctx, r.Passband/r.InputRate, r.Keep/r.InputRate, r.Dp, r.Ds, farrowMaxCost)
+	if err != nil {
+		return st, err
+	}
+	st.Filter, st.Degree, st.Length = f, f.Degree(), f.Len()
+	_ = res
 	return st, nil
 }

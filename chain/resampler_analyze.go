@@ -45,35 +45,92 @@ func (p fractionalPath) bounds(a, b float64, coarse bool) (lo, up float64) {
 }
 
 // fractionalParts splits a fractional chain into its integer stages (a
-// chain of their own) and the fractional stage's gain, its bounder and its
-// paths' shifts.
-func fractionalParts(c *Chain) (ic *Chain, rg func(float64) float64, rb stageBounder, shifts []float64, err error) {
+// chain of their own) and the fractional stage's gain, its bounder, the
+// shifts of its paths (k Fm for the k listed: every residue of a
+// polyphase stage; k = 0, 1, -1, ..., +-farrowPaths of a Farrow stage) and,
+// for a Farrow stage, tail(K), a bound of its gain on every path |k| > K.
+type fractionalParts struct {
+	ic     *Chain
+	rg     func(h float64) float64
+	rb     stageBounder
+	shifts []float64
+	tail   func(k int) float64 // nil: shifts hold every path
+	fm     float64
+}
+
+// farrowBounder bounds a Farrow structure's |H(f/rate)| (farrow.Bounds).
+type farrowBounder struct {
+	f    FarrowStage
+	rate float64
+}
+
+func (b farrowBounder) bounds(a, e float64) (lo, up float64) { return b.f.Filter.Bounds(a/b.rate, e/b.rate) }
+func (b farrowBounder) coarse(a, e float64) (lo, up float64) { return b.bounds(a, e) }
+
+// farrowPaths is how many paths on each side of k = 0 a Farrow stage's
+// analysis searches before it bounds the rest by tail; farrowMaxPaths the
+// most it widens to.
+const (
+	farrowPaths    = 16
+	farrowMaxPaths = 1 << 12
+)
+
+func splitFractional(c *Chain) (fractionalParts, error) {
 	n := len(c.Stages)
 	rates := c.Rates()
 	fm := rates[n-1]
-	ic = &Chain{InputRate: c.InputRate, Complex: c.Complex, Plan: c.Plan[:n-1], Stages: c.Stages[:n-1], Designed: c.Designed}
+	p := fractionalParts{fm: fm,
+		ic: &Chain{InputRate: c.InputRate, Complex: c.Complex, Plan: c.Plan[:n-1], Stages: c.Stages[:n-1], Designed: c.Designed}}
 	switch st := c.Stages[n-1].(type) {
 	case PolyphaseStage:
 		rate := fm * float64(st.Up)
 		b, err := newFIRBounder(st.Taps, rate)
 		if err != nil {
-			return nil, nil, nil, nil, err
+			return p, err
 		}
-		rg = func(h float64) float64 { return st.Gain(h, fm) }
+		p.rg = func(h float64) float64 { return st.Gain(h, fm) }
+		p.rb = b
 		for k := 0; k < st.Up; k++ {
-			shifts = append(shifts, float64(k)*fm)
+			p.shifts = append(p.shifts, float64(k)*fm)
 		}
-		return ic, rg, b, shifts, nil
+		return p, nil
+	case FarrowStage:
+		if err := st.Filter.Validate(); err != nil {
+			return p, err
+		}
+		p.rg = func(h float64) float64 { return st.Gain(h, fm) }
+		p.rb = farrowBounder{f: st, rate: fm}
+		p.shifts = farrowShifts(0, farrowPaths, fm)
+		// A path |k| > K meets the structure at |nu| >= K - F0/(2 Fm).
+		half := c.InputRate / 2 / fm
+		p.tail = func(k int) float64 {
+			_, up := st.Filter.Bounds(math.Max(0, float64(k)-half), math.MaxFloat64/4)
+			return up
+		}
+		return p, nil
 	}
-	return nil, nil, nil, nil, fmt.Errorf("chain: stage %d is a %T: not a fractional stage Analyze knows", n, c.Stages[n-1])
+	return p, fmt.Errorf("chain: stage %d is a %T: not a fractional stage Analyze knows", n, c.Stages[n-1])
+}
+
+// farrowShifts returns k Fm for k = from+1 .. to and -from-1 .. -to in
+// the order 1, -1, 2, -2, ... (k = 0 first when from is 0).
+func farrowShifts(from, to int, fm float64) []float64 {
+	var s []float64
+	if from == 0 {
+		s = append(s, 0)
+	}
+	for k := from + 1; k <= to; k++ {
+		s = append(s, float64(k)*fm, -float64(k)*fm)
+	}
+	return s
 }
 
 func measureFractional(ctx context.Context, c *Chain, spec Spec) (Analysis, error) {
-	ic, rg, rb, shifts, err := fractionalParts(c)
+	fp0, err := splitFractional(c)
 	if err != nil {
 		return Analysis{}, err
 	}
-	cs, err := newCascade(ic)
+	cs, err := newCascade(fp0.ic)
 	if err != nil {
 		return Analysis{}, err
 	}
@@ -85,44 +142,76 @@ func measureFractional(ctx context.Context, c *Chain, spec Spec) (Analysis, erro
 	}
 	var weight func(float64) float64
 	var weightMax func(a, b float64) float64
+	wAll := 1.0
 	if m := spec.RejectionMask; m != nil {
 		r := spec.RejectionDB
 		weight = func(x float64) float64 { return math.Pow(10, (m.At(x)-r)/20) }
 		weightMax = func(a, b float64) float64 { return math.Pow(10, (m.MaxOver(a, b)-r)/20) }
+		wAll = weightMax(0, f0h)
 	}
-	a := Analysis{AliasRejectionDB: MaxFigureDB}
 	best := extreme{}
 	bound := 0.0
-	for k, shift := range shifts {
-		// Path k lands in [0, fa] for g in [n FK - shift - fa, n FK - shift + fa].
-		nlo := int(math.Ceil((shift - fa) / fk))
-		nhi := int(math.Floor((f0h + shift + fa) / fk))
-		if k == 0 {
-			nlo = max(nlo, 1) // n = 0 of path 0 is the tone itself
+	searchPaths := func(shifts []float64) error {
+		for _, shift := range shifts {
+			// Path k lands in [0, fa] for g in
+			// [n FK - shift - fa, n FK - shift + fa].
+			nlo := int(math.Ceil((shift - fa) / fk))
+			nhi := int(math.Floor((f0h + shift + fa) / fk))
+			if shift == 0 {
+				nlo = max(nlo, 1) // n = 0 of path 0 is the tone itself
+			}
+			if nhi < nlo {
+				continue
+			}
+			bs := bandSet{n: nhi - nlo + 1, weight: weight, weightMax: weightMax, floor: best.v,
+				band: func(i int) Interval {
+					c := float64(nlo+i)*fk - shift
+					lo := math.Min(math.Max(0, c-fa), f0h)
+					return Interval{lo, math.Max(lo, math.Min(c+fa, f0h))}
+				}}
+			p := fractionalPath{cs: cs, shift: shift, rg: fp0.rg, rb: fp0.rb}
+			w, err := searchOn(ctx, p, bs, 1, aliasCertifyDB)
+			if err != nil {
+				return err
+			}
+			if w.v > best.v {
+				best = w
+			}
+			bound = math.Max(bound, w.bound)
 		}
-		if nhi < nlo {
-			continue
-		}
-		bs := bandSet{n: nhi - nlo + 1, weight: weight, weightMax: weightMax, floor: best.v,
-			band: func(i int) Interval {
-				c := float64(nlo+i)*fk - shift
-				lo := math.Min(math.Max(0, c-fa), f0h)
-				return Interval{lo, math.Max(lo, math.Min(c+fa, f0h))}
-			}}
-		p := fractionalPath{cs: cs, shift: shift, rg: rg, rb: rb}
-		w, err := searchOn(ctx, p, bs, 1, aliasCertifyDB)
-		if err != nil {
-			return Analysis{}, err
-		}
-		if w.v > best.v {
-			best = w
-		}
-		bound = math.Max(bound, w.bound)
+		return nil
 	}
+	if err := searchPaths(fp0.shifts); err != nil {
+		return Analysis{}, err
+	}
+	if fp0.tail != nil {
+		// Every path beyond K: the integer stages' largest gain times the
+		// structure's bound there. Widen K until the tail cannot beat the
+		// worst path found; past farrowMaxPaths the tail's bound stands in
+		// the figure, which stays safe.
+		_, aMax := cs.bounds(0, f0h, true)
+		tol := math.Pow(10, aliasCertifyDB/20)
+		k := farrowPaths
+		for {
+			t := aMax * wAll * fp0.tail(k)
+			if t <= best.v*tol {
+				break
+			}
+			if k >= farrowMaxPaths {
+				bound = math.Max(bound, t)
+				break
+			}
+			if err := searchPaths(farrowShifts(k, 2*k, fp0.fm)); err != nil {
+				return Analysis{}, err
+			}
+			k *= 2
+		}
+	}
+	a := Analysis{AliasRejectionDB: MaxFigureDB}
 	if bound > 0 {
 		a.AliasRejectionDB, a.WorstAliasHz = -toDB(bound/h0), best.x
 	}
-	p0 := fractionalPath{cs: cs, rg: rg, rb: rb}
+	p0 := fractionalPath{cs: cs, rg: fp0.rg, rb: fp0.rb}
 	pass := bandSet{n: 1, band: func(int) Interval { return Interval{0, fp} }}
 	hi, err := searchOn(ctx, p0, pass, 1, rippleCertifyDB)
 	if err != nil {
@@ -147,6 +236,8 @@ func estimateFractional(c *Chain, spec Spec) (Analysis, error) {
 	var req FractionalRequirement
 	switch st := c.Stages[n-1].(type) {
 	case PolyphaseStage:
+		req = st.Req
+	case FarrowStage:
 		req = st.Req
 	default:
 		return Analysis{}, fmt.Errorf("chain: stage %d is a %T: not a fractional stage Analyze knows", n, c.Stages[n-1])

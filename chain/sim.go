@@ -92,6 +92,11 @@ func runStage(i int, s Stage, x []float64) []float64 {
 			panic(fmt.Sprintf("chain: Run: stage %d (%s) has no taps (an estimate)", i+1, st.Kind()))
 		}
 		return Resample(st.Taps, st.Up, st.Down, x)
+	case FarrowStage:
+		if st.Filter.Coef == nil {
+			panic(fmt.Sprintf("chain: Run: stage %d (%s) has no coefficients (an estimate)", i+1, st.Kind()))
+		}
+		return st.Filter.Run(x, FarrowTimes(st.Up, st.Down, len(x)))
 	}
 	panic(fmt.Sprintf("chain: Run: stage %d is a %T; Run takes CICStage and FIRStage values", i+1, s))
 }
@@ -127,6 +132,22 @@ func Resample(h []float64, up, down int, x []float64) []float64 {
 		out[m] = l * acc
 	}
 	return out
+}
+
+// FarrowTimes returns the times, in input samples, of a fractional
+// stage's outputs on n inputs: output m at m Down/Up, for every m with
+// m Down < n Up, as Resample counts them. A Farrow stage evaluates its
+// structure there (farrow.Convention), centred on each time: the hardware
+// adds Length/2 samples of delay.
+func FarrowTimes(up, down, n int) []float64 {
+	if up < 1 || down < 1 || n < 1 {
+		return nil
+	}
+	t := make([]float64, (n*up-1)/down+1)
+	for m := range t {
+		t[m] = float64(m/up*down) + float64(m%up*down)/float64(up)
+	}
+	return t
 }
 
 // polyphaseDecimate computes y[m] = sum_k h[k] x[mD - k] as the sum over the
