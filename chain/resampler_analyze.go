@@ -64,7 +64,9 @@ type farrowBounder struct {
 	rate float64
 }
 
-func (b farrowBounder) bounds(a, e float64) (lo, up float64) { return b.f.Filter.Bounds(a/b.rate, e/b.rate) }
+func (b farrowBounder) bounds(a, e float64) (lo, up float64) {
+	return b.f.Filter.Bounds(a/b.rate, e/b.rate)
+}
 func (b farrowBounder) coarse(a, e float64) (lo, up float64) { return b.bounds(a, e) }
 
 // farrowPaths is how many paths on each side of k = 0 a Farrow stage's
