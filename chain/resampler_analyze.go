@@ -262,3 +262,58 @@ func estimateFractional(c *Chain, spec Spec) (Analysis, error) {
 	a.PassbandRippleDB += ia.PassbandRippleDB
 	return a, nil
 }
+
+// PathGain is one path of a tone through a fractional chain: K, the
+// image index, and the path's gain and output frequency.
+type PathGain struct {
+	K        int
+	OutputHz float64 // folded into [0, FK/2]
+	Gain     float64 // A(g) |R(g + K Fm)|, relative to nothing (divide by Gain(0) for dB re the passband)
+}
+
+// PathGains returns the paths of a tone at input frequency g through a
+// designed chain that ends in a fractional stage: every K of a polyphase
+// stage, and K = -maxK..maxK of a Farrow stage (maxK <= 0 means 16), in
+// increasing K. For an integer chain it returns the one path, K = 0.
+func PathGains(c *Chain, g float64, maxK int) []PathGain {
+	if c == nil || len(c.Stages) == 0 {
+		return nil
+	}
+	fk := c.OutputRate()
+	fold := func(f float64) float64 {
+		f = math.Mod(f, fk)
+		if f < 0 {
+			f += fk
+		}
+		return math.Min(f, fk-f)
+	}
+	n := len(c.Stages)
+	if !c.Stages[n-1].Kind().Fractional() {
+		return []PathGain{{K: 0, OutputHz: fold(g), Gain: c.Gain(g)}}
+	}
+	p, err := splitFractional(c)
+	if err != nil {
+		return nil
+	}
+	var ks []int
+	switch st := c.Stages[n-1].(type) {
+	case PolyphaseStage:
+		for k := 0; k < st.Up; k++ {
+			ks = append(ks, k)
+		}
+	default:
+		if maxK <= 0 {
+			maxK = farrowPaths
+		}
+		for k := -maxK; k <= maxK; k++ {
+			ks = append(ks, k)
+		}
+	}
+	a := p.ic.Gain(g)
+	out := make([]PathGain, len(ks))
+	for i, k := range ks {
+		h := g + float64(k)*p.fm
+		out[i] = PathGain{K: k, OutputHz: fold(h), Gain: a * p.rg(h)}
+	}
+	return out
+}

@@ -25,6 +25,12 @@ func Check(ctx context.Context, spec chain.Spec, plan []chain.StagePlan, s Setti
 	if err := s.check(); err != nil {
 		return Candidate{}, "", err
 	}
+	if ns.Fractional() {
+		// Word lengths of fractional chains are not planned (see
+		// planFractional): the chain is judged on its float design.
+		ns.CoefBits = 0
+		s.floatOnly = true
+	}
 	if s.Chain.Memo == nil {
 		// The first design below and the design tier's share their stages.
 		s.Chain.Memo = chain.NewStageMemo()

@@ -2,11 +2,17 @@ package fixed
 
 import (
 	"context"
+	"errors"
 	"fmt"
 	"math"
 
 	"github.com/stepdown-dsp/stepdown/chain"
 )
+
+// ErrFractional is FromChain's error for a chain that ends in a
+// fractional stage (chain.Polyphase, chain.Farrow): word lengths, the
+// bit-true run and the hand-off are planned for integer stages only.
+var ErrFractional = errors.New("fixed: word lengths are planned for chains of integer stages only; a fractional stage (polyphase or farrow) has its float design alone")
 
 // FromChain converts a designed chain and its spec into the planner's terms.
 // Each FIR and half-band stage must meet the bands of its chain.Requirement:
@@ -33,6 +39,9 @@ func FromChain(spec chain.Spec, c *chain.Chain) (Cascade, Words, error) {
 	}
 	if c.Direction != spec.Direction() {
 		return Cascade{}, Words{}, fmt.Errorf("fixed: the chain's direction, %s, is not the spec's, %s", c.Direction, spec.Direction())
+	}
+	if last := c.Stages[len(c.Stages)-1].Kind(); last.Fractional() {
+		return Cascade{}, Words{}, ErrFractional
 	}
 	interp := c.Direction == chain.Interpolate
 	cas := Cascade{InputRate: c.InputRate, Complex: c.Complex, Interpolate: interp, Passband: spec.Passband, Protected: spec.Protected}
