@@ -127,9 +127,9 @@ func Price(spec chain.Spec, c *chain.Chain, s Settings) (Figures, error) {
 	p := 1.0
 	for i := len(c.Stages) - 1; i >= 0; i-- {
 		later[i] = p
-		if v, ok := c.Stages[i].(chain.PolyphaseStage); ok {
+		if u, d := fractionalRatio(c.Stages[i]); u > 0 {
 			// Down/Up of its inputs for each of its outputs.
-			p *= float64(v.Down) / float64(v.Up)
+			p *= float64(d) / float64(u)
 			continue
 		}
 		p *= float64(c.Stages[i].Factor())
@@ -234,8 +234,25 @@ func Price(spec chain.Spec, c *chain.Chain, s Settings) (Figures, error) {
 			if s.Multiplierless {
 				return Figures{}, fmt.Errorf("cost: stage %d (%s): multiplierless pricing takes integer stages only", i+1, v.Kind())
 			}
+		case chain.FarrowStage:
+			p, n := v.Degree, v.Length
+			if n < 2 {
+				return Figures{}, fmt.Errorf("cost: stage %d (%s) has no subfilter length", i+1, v.Kind())
+			}
+			// P+1 subfilters of N taps on one delay line of N input
+			// words, then P multiplies by mu (Horner's rule); every
+			// coefficient stored; the output at time t waits for the
+			// input N/2 samples past it.
+			mul, add = float64((p+1)*n+p), float64((p+1)*(n-1)+p)
+			dataWords, coefWords = n, (p+1)*n
+			delayIn = float64(n) / 2
+			dataBits = dataWords * width
+			width = spec.OutputBits
+			if s.Multiplierless {
+				return Figures{}, fmt.Errorf("cost: stage %d (%s): multiplierless pricing takes integer stages only", i+1, v.Kind())
+			}
 		default:
-			return Figures{}, fmt.Errorf("cost: stage %d is a %T; cost prices chain.CICStage, chain.FIRStage and chain.PolyphaseStage values", i+1, st)
+			return Figures{}, fmt.Errorf("cost: stage %d is a %T; cost prices chain.CICStage, chain.FIRStage, chain.PolyphaseStage and chain.FarrowStage values", i+1, st)
 		}
 		sf := multiplyOut(mul, add, dataWords, dataBits, coefWords, coefBits, cx, later[i], delayIn, rates[i])
 		if s.Clock > 0 && mul > 0 && !s.Multiplierless {
@@ -380,4 +397,16 @@ func multiplyOut(mul, add float64, dataWords, dataBits, coefWords, coefBits, cx 
 		MemoryBits:          dataBits*cx + coefWords*coefBits,
 		LatencyS:            delayIn / rate,
 	}
+}
+
+// fractionalRatio returns a fractional stage's Up and Down, and 0, 0 for
+// an integer stage.
+func fractionalRatio(st chain.Stage) (up, down int) {
+	switch v := st.(type) {
+	case chain.PolyphaseStage:
+		return v.Up, v.Down
+	case chain.FarrowStage:
+		return v.Up, v.Down
+	}
+	return 0, 0
 }
