@@ -160,17 +160,21 @@ func fractionalPlan(plan []StagePlan, num, den int) (int, error) {
 // Fractional stages): output rate Fm = F0/d, the same passband and
 // protected band, the ripple budget's share rippleDB, and the rejection
 // target raised by the fractional stage's ripple share fracRippleDB (its
-// passband lifts the integer stages' aliases). The stopband edge is
-// min(fs, min(Fm, FK) - fa) (keepEdge), which a last integer stage that is
-// a lowpass FIR (fir<D>L) holds on the whole band above it; otherwise
-// only the aliases count, as with any integer spec. spec is the
+// passband lifts the integer stages' aliases). With lowpass set the
+// integer stages end in a lowpass FIR that holds the whole band above
+// Keep = min(fs, min(Fm, FK) - fa) (keepEdge): the spec's stopband edge
+// is Keep. Without it only their aliases into [0, fa] count (the stopband
+// edge is Fm - fa), and the fractional stage is the lowpass. spec is the
 // fractional spec, normalised, its OutputRate the chain's.
-func IntegerSpec(spec Spec, d int, rippleDB, fracRippleDB float64) Spec {
+func IntegerSpec(spec Spec, d int, rippleDB, fracRippleDB float64, lowpass bool) Spec {
 	sub := spec
 	sub.OutputRate = spec.InputRate / float64(d)
 	sub.RatioTolerancePPM = 0
 	sub.capGaps = true
-	sub.Stopband = keepEdge(spec, sub.OutputRate)
+	sub.Stopband = sub.OutputRate - spec.Protected
+	if lowpass {
+		sub.Stopband = keepEdge(spec, sub.OutputRate)
+	}
 	sub.RippleDB = rippleDB
 	sub = sub.RejectionRaised(fracRippleDB)
 	return sub
@@ -208,9 +212,20 @@ func buildFractional(ctx context.Context, spec Spec, plan []StagePlan, s Setting
 	c := &Chain{InputRate: spec.InputRate, Complex: spec.Complex, Direction: Decimate,
 		Plan: append([]StagePlan(nil), plan...), Designed: design}
 	fracRipple := spec.RippleDB
+	// A polyphase stage is the chain's lowpass from Stop; a Farrow stage
+	// takes over from a lowpass FIR that holds the band above Keep.
+	last := plan[len(plan)-1]
+	lowpass := last.Kind == Farrow
+	if lowpass {
+		n := len(plan)
+		if n < 2 || plan[n-2].Kind != FIR || plan[n-2].Variant != Lowpass || !(keep < fm/2) {
+			return nil, planErr(plan, n-1, "a farrow stage needs a lowpass FIR (fir<D>L) just before it, at a rate Fm above twice min(fs, min(Fm, output rate) - fa) = %s Hz (here Fm = %s Hz)",
+				fmtNum(keep), fmtNum(fm))
+		}
+	}
 	if d > 1 {
 		fracRipple = spec.RippleDB * fractionalShare
-		sub := IntegerSpec(spec, d, spec.RippleDB-fracRipple, fracRipple)
+		sub := IntegerSpec(spec, d, spec.RippleDB-fracRipple, fracRipple, lowpass)
 		ic, err := build(ctx, sub, plan[:len(plan)-1], s, design)
 		if err != nil {
 			return nil, err
@@ -223,7 +238,7 @@ func buildFractional(ctx context.Context, spec Spec, plan []StagePlan, s Setting
 		// The integer stages' passband can lift what this stage lets
 		// through by their ripple share.
 		Ds: RejectionToDev(spec.RejectionDB + intRipple)}
-	if n := len(plan); n > 1 && plan[n-2].Kind == FIR && plan[n-2].Variant == Lowpass && keep < fm/2 {
+	if lowpass {
 		// The lowpass before holds [Keep, Fm/2]: only the images of
 		// [0, Keep] are left to this stage.
 		req.Keep = keep
@@ -231,7 +246,6 @@ func buildFractional(ctx context.Context, spec Spec, plan []StagePlan, s Setting
 	if err := ctx.Err(); err != nil {
 		return nil, stopped(plan, err)
 	}
-	last := plan[len(plan)-1]
 	switch last.Kind {
 	case Polyphase:
 		st, err := polyphaseStage(ctx, last, req, s, design)
@@ -279,8 +293,12 @@ func PolyphaseBands(r FractionalRequirement, up int) []Interval {
 }
 
 // polyphaseMaxUp bounds a polyphase stage's Up: its prototype is about Up
-// times as long as a FIR at its input rate.
-const polyphaseMaxUp = 256
+// times as long as a FIR at its input rate. polyphaseMaxTaps bounds the
+// prototype's estimated length (Herrmann), which bounds its design's time.
+const (
+	polyphaseMaxUp   = 256
+	polyphaseMaxTaps = 8192
+)
 
 func polyphaseStage(ctx context.Context, p StagePlan, r FractionalRequirement, s Settings, design bool) (PolyphaseStage, error) {
 	st := PolyphaseStage{Up: p.Up, Down: p.Down, Req: r}
@@ -294,11 +312,14 @@ func polyphaseStage(ctx context.Context, p StagePlan, r FractionalRequirement, s
 		// MaxTaps bounds the taps of one phase: the multiplies of an output.
 		maxTaps = min(65535, s.MaxTaps*p.Up)
 	}
+	n := remez.HerrmannLength(r.Dp, r.Ds, stops[0].Lo-r.Passband, rate)
+	if n == 0 {
+		return st, errors.New("no length estimate for its bands")
+	}
+	if n > polyphaseMaxTaps {
+		return st, fmt.Errorf("its prototype would need about %d taps, more than the %d a polyphase stage is designed with: more integer decimation before it, or a farrow stage", n, polyphaseMaxTaps)
+	}
 	if !design {
-		n := remez.HerrmannLength(r.Dp, r.Ds, stops[0].Lo-r.Passband, rate)
-		if n == 0 {
-			return st, errors.New("no length estimate for its bands")
-		}
 		st.Length = n
 		return st, nil
 	}
@@ -330,7 +351,7 @@ const farrowMaxCost = 400
 func farrowStage(ctx context.Context, p StagePlan, r FractionalRequirement) (FarrowStage, error) {
 	st := FarrowStage{Up: p.Up, Down: p.Down, Req: r}
 	if r.Keep <= 0 {
-		return st, errors.New("a farrow stage needs a lowpass FIR (fir<D>L) just before it, whose stopband edge min(fs, min(input rate, output rate) - fa) lies below half the farrow stage's input rate")
+		return st, errors.New("a farrow stage needs a lowpass FIR (fir<D>L) just before it")
 	}
 	f, res, err := farrow.MinDesign(ctx, r.Passband/r.InputRate, r.Keep/r.InputRate, r.Dp, r.Ds, farrowMaxCost)
 	if err != nil {

@@ -250,7 +250,7 @@ func estimateFractional(c *Chain, spec Spec) (Analysis, error) {
 		return a, nil
 	}
 	d := c.Decimation()
-	sub := IntegerSpec(spec, d, spec.RippleDB-req.RippleDB, req.RippleDB)
+	sub := IntegerSpec(spec, d, spec.RippleDB-req.RippleDB, req.RippleDB, req.Keep > 0)
 	ic := &Chain{InputRate: c.InputRate, Complex: c.Complex, Plan: c.Plan[:n-1], Stages: c.Stages[:n-1]}
 	ia, err := estimateAnalysis(ic, sub)
 	if err != nil {

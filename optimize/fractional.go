@@ -30,13 +30,21 @@ const (
 )
 
 // fractionalSplits returns the integer decimations d tried before the
-// fractional stage, at most maxFractionalSplits, in increasing order: the
-// d whose Fm = F0/d leaves the fractional stage a band (Fm > fp + fa and
-// Fm > 2 fa), whose largest prime factor is at most 7 (the integer stages
-// then split well) or that are the integers next to the ratio, preferring
-// Fm just above FK (the largest such d at most the ratio and the two
-// below it), then just below it (the smallest above), then d whose
-// polyphase stage has the fewest phases.
+// fractional stage, at most maxFractionalSplits, in increasing order,
+// among the d whose Fm = F0/d leaves the fractional stage a band
+// (Fm > fp + fa and Fm > 2 fa) and whose largest prime factor is at most 7
+// (the integer stages then split well), or that are the integers next to
+// the ratio:
+//
+//   - for a polyphase stage, whose prototype costs about what a FIR at Fm
+//     with the channel's transition would, Fm near FK: the two largest
+//     d at most the ratio and the smallest above it;
+//   - for a Farrow stage, which needs a lowpass FIR before it and Fm above
+//     twice the stopband edge FK - fa, Fm from 2.2 to 5 times FK: the two
+//     largest such d.
+//
+// A d of 1 (the fractional stage alone) is tried only when nothing else
+// fits.
 func fractionalSplits(spec chain.Spec, num, den int, maxStages int) []int {
 	if maxStages < 2 {
 		return []int{1}
@@ -49,16 +57,13 @@ func fractionalSplits(spec chain.Spec, num, den int, maxStages int) []int {
 	}
 	lim := int(math.Min(2*ratio+1, math.MaxInt32))
 	var cands []int
-	if ok(1) {
-		cands = append(cands, 1)
-	}
 	for _, d := range smoothUpTo(lim) {
 		if d > 1 && ok(d) {
 			cands = append(cands, d)
 		}
 	}
 	for _, d := range []int{int(math.Floor(ratio)), int(math.Ceil(ratio))} {
-		if d >= 1 && ok(d) && !slices.Contains(cands, d) {
+		if d >= 2 && ok(d) && !slices.Contains(cands, d) {
 			cands = append(cands, d)
 		}
 	}
@@ -69,11 +74,10 @@ func fractionalSplits(spec chain.Spec, num, den int, maxStages int) []int {
 			pick = append(pick, d)
 		}
 	}
-	below := 0
-	for i := len(cands) - 1; i >= 0 && below < 3; i-- {
+	for i, n := len(cands)-1, 0; i >= 0 && n < 2; i-- {
 		if float64(cands[i]) <= ratio {
 			add(cands[i])
-			below++
+			n++
 		}
 	}
 	for _, d := range cands {
@@ -82,12 +86,14 @@ func fractionalSplits(spec chain.Spec, num, den int, maxStages int) []int {
 			break
 		}
 	}
-	// Then the fewest polyphase phases.
-	phases := func(d int) int { return den * d / gcdInt(num, den*d) }
-	byPhases := slices.Clone(cands)
-	slices.SortStableFunc(byPhases, func(a, b int) int { return phases(a) - phases(b) })
-	for _, d := range byPhases {
-		add(d)
+	for i, n := len(cands)-1, 0; i >= 0 && n < 2; i-- {
+		if over := ratio / float64(cands[i]); over >= 2.2 && over <= 5 {
+			add(cands[i])
+			n++
+		}
+	}
+	if len(pick) == 0 {
+		pick = []int{1}
 	}
 	slices.Sort(pick)
 	return pick
@@ -147,7 +153,10 @@ func planFractional(ctx context.Context, spec chain.Spec, s Settings) (*Result, 
 	for _, d := range fractionalSplits(spec, num, den, maxStages) {
 		g := gcdInt(num, den*d)
 		up, down := den*d/g, num/g
-		var ints [][]chain.StagePlan
+		// ints are the integer stages found for a polyphase stage to
+		// follow, lowpassInts those for a Farrow stage (ending in the
+		// lowpass FIR it needs).
+		var ints, lowpassInts [][]chain.StagePlan
 		if d == 1 {
 			ints = [][]chain.StagePlan{nil}
 		} else {
@@ -155,42 +164,64 @@ func planFractional(ctx context.Context, spec chain.Spec, s Settings) (*Result, 
 			exact := spec
 			exact.OutputRate, exact.RatioTolerancePPM = fk, 0
 			share := spec.RippleDB * 0.5
-			sub := chain.IntegerSpec(exact, d, spec.RippleDB-share, share)
-			ss := s
-			ss.MaxStages = maxStages - 1
-			ss.Kinds = integer
-			ss.floatOnly = true
-			ss.Progress, ss.Scoring = nil, nil
-			ss.Cost.Multiplierless = false
-			r, err := Plan(ctx, sub, ss)
-			if err != nil {
-				if ctx.Err() != nil {
-					return nil, err
+			// Two searches: the integer stages alone against their
+			// aliases (the fractional stage is then the lowpass), and
+			// ending in a lowpass FIR that holds the band above Keep
+			// (which a Farrow stage needs).
+			for _, lowpass := range []bool{false, true} {
+				sub := chain.IntegerSpec(exact, d, spec.RippleDB-share, share, lowpass)
+				ss := s
+				ss.MaxStages = maxStages - 1
+				ss.Kinds = integer
+				ss.floatOnly = true
+				ss.Progress, ss.Scoring = nil, nil
+				ss.Cost.Multiplierless = false
+				r, err := Plan(ctx, sub, ss)
+				if err != nil {
+					if ctx.Err() != nil {
+						return nil, err
+					}
+					res.Dropped[ReasonDesignFailed]++
+					continue
 				}
-				res.Dropped[ReasonDesignFailed]++
-				continue
-			}
-			res.Candidates += r.Candidates
-			for i, c := range r.Front {
-				if i >= maxIntegerChains {
-					break
-				}
-				ints = append(ints, c.Plan)
-				if last := c.Plan[len(c.Plan)-1]; last.Kind == chain.FIR && last.Variant == chain.Multiband {
-					lp := slices.Clone(c.Plan)
-					lp[len(lp)-1].Variant = chain.Lowpass
-					ints = append(ints, lp)
+				res.Candidates += r.Candidates
+				n := 0
+				for _, c := range r.Front {
+					if n >= maxIntegerChains {
+						break
+					}
+					p := slices.Clone(c.Plan)
+					if lowpass {
+						last := &p[len(p)-1]
+						if last.Kind != chain.FIR {
+							continue
+						}
+						last.Variant = chain.Lowpass
+					}
+					if lowpass {
+						lowpassInts = append(lowpassInts, p)
+					} else {
+						ints = append(ints, p)
+					}
+					n++
 				}
 			}
 		}
-		for _, ip := range ints {
-			for _, k := range frac {
-				if k == chain.Polyphase && up > 256 {
-					continue
+		add := func(ip []chain.StagePlan, k chain.Kind) {
+			p := append(slices.Clone(ip), chain.StagePlan{Kind: k, Factor: 1, Up: up, Down: down})
+			if !slices.ContainsFunc(plans, func(q []chain.StagePlan) bool { return slices.Equal(q, p) }) {
+				plans = append(plans, p)
+			}
+		}
+		for _, k := range frac {
+			switch {
+			case k == chain.Polyphase && up <= 256:
+				for _, ip := range ints {
+					add(ip, k)
 				}
-				p := append(slices.Clone(ip), chain.StagePlan{Kind: k, Factor: 1, Up: up, Down: down})
-				if !slices.ContainsFunc(plans, func(q []chain.StagePlan) bool { return slices.Equal(q, p) }) {
-					plans = append(plans, p)
+			case k == chain.Farrow:
+				for _, ip := range lowpassInts {
+					add(ip, k)
 				}
 			}
 		}
