@@ -50,7 +50,7 @@ func AnalyzeContext(ctx context.Context, c *Chain, spec Spec) (Analysis, error) 
 	if err := checkChain(c, spec); err != nil {
 		return Analysis{}, err
 	}
-	if spec.Fractional() {
+	if endsFractional(c) {
 		if !c.Designed || !hasTaps(c) {
 			return estimateFractional(c, spec)
 		}
@@ -60,6 +60,11 @@ func AnalyzeContext(ctx context.Context, c *Chain, spec Spec) (Analysis, error) 
 		return estimateAnalysis(c, spec)
 	}
 	return measure(ctx, c, spec)
+}
+
+// endsFractional says whether c's last stage is a fractional one.
+func endsFractional(c *Chain) bool {
+	return c != nil && len(c.Stages) > 0 && c.Stages[len(c.Stages)-1].Kind().Fractional()
 }
 
 func hasTaps(c *Chain) bool {
@@ -85,7 +90,7 @@ func checkChain(c *Chain, spec Spec) error {
 		return fmt.Errorf("chain: chain InputRate = %s Hz differs from the spec's InputRate = %s Hz",
 			fmtNum(c.InputRate), fmtNum(spec.InputRate))
 	}
-	if spec.Fractional() {
+	if spec.Fractional() || endsFractional(c) {
 		num, den := spec.Fraction()
 		if n, d := c.Fraction(); n != num || d != den {
 			return fmt.Errorf("chain: the chain's ratio is %d/%d, the spec's %d/%d", n, d, num, den)

@@ -49,7 +49,9 @@ func build(ctx context.Context, spec Spec, plan []StagePlan, s Settings, design 
 	if s.MaxTaps < 0 || (s.MaxTaps > 0 && s.MaxTaps < 3) {
 		return nil, fmt.Errorf("chain: Settings.MaxTaps = %d: must be 0 (no bound) or at least 3", s.MaxTaps)
 	}
-	if spec.Fractional() {
+	if spec.Fractional() || (len(plan) > 0 && plan[len(plan)-1].Kind.Fractional()) {
+		// A fractional stage ends the chain; an integer ratio may be
+		// made up of one too (fir5 > fir10 > poly50/53 for D = 53).
 		return buildFractional(ctx, spec, plan, s, design)
 	}
 	// Estimates keep the stage-alone rule's limits: the credit needs the

@@ -1,9 +1,11 @@
 package chain
 
 import (
+	"cmp"
 	"fmt"
 	"github.com/stepdown-dsp/stepdown/chain/remez"
 	"math"
+	"slices"
 	"sort"
 )
 
@@ -462,6 +464,7 @@ func (r Requirement) Bands(droop func(f float64) float64) []remez.Band {
 	}
 	if r.GapLimit > 0 {
 		bands = append(bands, r.gapBands()...)
+		slices.SortStableFunc(bands, func(a, b remez.Band) int { return cmp.Compare(a.Lo, b.Lo) })
 	}
 	return bands
 }

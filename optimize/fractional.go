@@ -153,6 +153,9 @@ func planFractional(ctx context.Context, spec chain.Spec, s Settings) (*Result, 
 	for _, d := range fractionalSplits(spec, num, den, maxStages) {
 		g := gcdInt(num, den*d)
 		up, down := den*d/g, num/g
+		if up == down {
+			continue // d is the whole ratio: no fractional stage
+		}
 		// ints are the integer stages found for a polyphase stage to
 		// follow, lowpassInts those for a Farrow stage (ending in the
 		// lowpass FIR it needs).
