@@ -42,8 +42,11 @@
 // positive, an InputRate above MaxRateHz (1e30 Hz) or an OutputRate below
 // MinRateHz (1e-30 Hz), where float64 arithmetic no longer carries every
 // figure (2 pi f overflows near 1e308 Hz; the cascade analysis went wrong
-// beyond about 1e60 Hz and below 1e-60 Hz); a ratio F0/FK that is not an integer within 1e-9 (the error gives
-// the two nearest integer ratios and their output rates) or is below 2;
+// beyond about 1e60 Hz and below 1e-60 Hz); an interpolation ratio that
+// is not an integer within 1e-9 (the error gives the two nearest integer
+// ratios and their output rates), an integer ratio below 2, a decimation
+// ratio that is no fraction within the ratio tolerance (see Fractional
+// stages), a RatioTolerancePPM outside [0, 1000];
 // fp outside (0, FK/2); fa outside [fp, FK/2]; fs outside (fp, FK - fa];
 // ripple not above 0; rejection outside (0, 150] dB; word lengths outside
 // 2..64 when set (InputBits may be 1 with NoiseShaped: a sigma-delta
@@ -375,5 +378,87 @@
 // Any other M or R is refused (NonRecursiveOK says why). The transfer
 // function is the recursive CIC's, so Gain, the requirements and Analyze's
 // bounds are shared unchanged; the time-domain model of the form is package
-// fixed's, its price package cost's.
+// fixed's, its price package cost's.//
+// # Fractional stages
+//
+// A decimation Spec whose ratio F0/FK is not an integer is written exactly
+// as a reduced fraction num/den from the two rates (Fraction: 100 MHz over
+// 3.84 MHz is 625/24; within 1e-9 of the ratio, denominator at most
+// MaxFractionDen), or, with RatioTolerancePPM set, as the fraction with the
+// smallest denominator within that many ppm, which the chain then realises
+// exactly (its output rate differs from the spec's by at most the
+// tolerance). Decimation and Ratio return 0 for such a spec. A fractional
+// interpolation ratio is refused.
+//
+// Its chain is integer stages down to Fm = F0/d, then one fractional stage
+// from Fm to FK = Fm Up/Down, always the last of Stages and Plan (an
+// integer ratio may end in one too: fir21 > poly21/53 for D = 53). The
+// kinds (FractionalKinds, not in Kinds):
+//
+//   - Polyphase (PolyphaseStage, "poly<L>/<M>", L = Up, M = Down): zeros
+//     between the samples raise the rate L times, one prototype lowpass at
+//     L Fm (Taps, unit gain at 0 Hz; the data path multiplies by L) filters,
+//     every M-th sample is kept. An output costs one phase, ceil(N/L)
+//     multiplies. L is at most 256 and the prototype's estimated length at
+//     most 8192 taps.
+//   - Farrow (FarrowStage, "farrow<L>/<M>"): a Farrow structure (package
+//     farrow) evaluated at each output's time m Down/Up input samples: its
+//     P+1 subfilters of N taps on the input, combined by Horner's rule in
+//     the fractional delay mu; (P+1) N + P multiplies per output for any
+//     ratio. It is a continuous-time filter H(f/Fm) sampled at the output
+//     times (farrow.Convention).
+//
+// The paths of a tone. A real tone at input frequency g leaves the integer
+// stages at g with gain A(g) = prod_j |H_j(g)| (each periodic at its own
+// rate, so the folding by Fm is in the gains). The fractional stage turns
+// it into one tone per path k: at g + k Fm, for k = 0 .. L-1 (polyphase:
+// the L images of the zeros, each weighed by the prototype P) or for every
+// integer k (Farrow), with gain A(g) |R(g + k Fm)|, R the prototype or the
+// continuous response. The output rate folds it to y = fold(g + k Fm mod
+// FK). A path is an alias when y lies in the protected band [0, fa] and it
+// is not the tone itself (k = 0 and g <= fa). Analyze searches every path
+// with the certified branch and bound of the integer analysis (the stage
+// bounders of the integer stages at g, the prototype's FIR bounder or
+// farrow.Filter.Bounds at g + k Fm), a Farrow stage's paths |k| <= 16
+// first, widened while the structure's bound beyond them, times the
+// integer stages' largest gain, could still beat the worst path found
+// (past 4096 that bound stands in the figure): the rejection is the worst
+// path over A(0) R(0), never optimistic, at most aliasCertifyDB
+// pessimistic; the passband ripple is the path k = 0's over [0, fp].
+// PathGains lists the paths of one tone. Two paths of the same tone that
+// land on one output frequency (at isolated input frequencies) can add;
+// the figure is per path. TestFractionalAnalyzeBruteForce and
+// TestFarrowAnalyzeBruteForce hold Analyze to a dense scan of every input
+// frequency and path that does not use these band formulas (0.002 dB at
+// most, never optimistic), and TestFractionalTones measures the worst
+// alias through Run within 0.002 dB of it.
+//
+// Requirements. The ripple budget is split in half between the integer
+// stages and the fractional stage (all of it when there are no integer
+// stages). The integer stages are designed as an integer chain to Fm
+// (IntegerSpec) with the same fp and fa, the rejection target raised by
+// the fractional stage's ripple share, and their multiband FIRs' don't-care
+// bands held to unit gain (Requirement.GapLimit): the fractional stage
+// carries frequencies from those bands into [0, fa] through its stopband,
+// so a don't-care gain of 60 dB there (as an unheld design showed) would
+// cost 60 dB of rejection. Then:
+//
+//   - before a polyphase stage, only the integer stages' aliases into
+//     [0, fa] count (stopband edge Fm - fa), and the prototype is the
+//     lowpass: passband [0, fp] within its dp, one stopband from
+//     Stop = min(fs, min(Fm, FK) - fa) to L Fm/2 below ds less the integer
+//     stages' ripple share. Every image of every input lies at or above
+//     Fm/2 >= Stop or in the passband, and everything between fa and Stop
+//     lands outside [0, fa];
+//   - before a Farrow stage, the integer stages end in a lowpass FIR
+//     (fir<D>L) whose stopband edge is Keep = Stop, below Fm/2: it holds the
+//     whole band above Keep, and the structure need only hold the images of
+//     [0, Keep], the bands [k Fm - Keep, k Fm + Keep] for every k >= 1
+//     (farrow.MinDesign: the cheapest degree and length, least squares
+//     refined toward minimax, certified).
+//
+// Run runs both kinds: Resample (SciPy's upfirdn times L,
+// TestResampleSciPy) and farrow.Filter.Run at FarrowTimes. Word lengths,
+// the bit-true run and the hand-off to RTL are for integer chains only
+// (package fixed refuses a fractional chain).
 package chain

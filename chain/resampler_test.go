@@ -331,10 +331,10 @@ func randomFarrow(rng interface {
 func TestFarrowAnalyzeBruteForce(t *testing.T) {
 	rng := rand.New(rand.NewPCG(14, 3))
 	// The brute force's quadrature is slow: go test checks three chains
-	// on the paths |k| <= 8, the long run 40 on |k| <= 80.
+	// on the paths |k| <= 8, the long run 12 on |k| <= 40.
 	n, paths := 3, 8
 	if os.Getenv("STEPDOWN_LONG") != "" {
-		n, paths = 40, 80
+		n, paths = 12, 40
 	}
 	checked, meets, worstGap := 0, 0, 0.0
 	for trial := 0; checked < n && trial < 10*n; trial++ {
