@@ -186,9 +186,9 @@ func keepEdge(spec Spec, fm float64) float64 {
 	return math.Min(spec.Stopband, math.Min(fm, spec.OutputRate)-spec.Protected)
 }
 
-// fractionalShare is the share of the ripple budget a fractional stage
-// takes when integer stages come before it: half.
-const fractionalShare = 0.5
+// FractionalRippleShare is the share of the ripple budget a fractional
+// stage takes when integer stages come before it: half.
+const FractionalRippleShare = 0.5
 
 func buildFractional(ctx context.Context, spec Spec, plan []StagePlan, s Settings, design bool) (*Chain, error) {
 	num, den := spec.Fraction()
@@ -224,7 +224,7 @@ func buildFractional(ctx context.Context, spec Spec, plan []StagePlan, s Setting
 		}
 	}
 	if d > 1 {
-		fracRipple = spec.RippleDB * fractionalShare
+		fracRipple = spec.RippleDB * FractionalRippleShare
 		sub := IntegerSpec(spec, d, spec.RippleDB-fracRipple, fracRipple, lowpass)
 		ic, err := build(ctx, sub, plan[:len(plan)-1], s, design)
 		if err != nil {

@@ -1,12 +1,14 @@
 package optimize
 
 import (
+	"cmp"
 	"context"
 	"math"
 	"runtime"
 	"slices"
 
 	"github.com/stepdown-dsp/stepdown/chain"
+	"github.com/stepdown-dsp/stepdown/cost"
 )
 
 // A spec whose ratio is a fraction (chain.Spec.Fraction, num/den) is
@@ -27,6 +29,11 @@ const (
 	maxIntegerChains = 3
 	// maxSmooth bounds the integers d enumerated as Fm candidates.
 	maxSmoothCandidates = 1 << 16
+	// fracMaxDesigns bounds the whole chains designed; fracEstimateSlack
+	// is how far above the cheapest designed chain an estimate may lie
+	// and still be designed.
+	fracMaxDesigns    = 12
+	fracEstimateSlack = 2
 )
 
 // fractionalSplits returns the integer decimations d tried before the
@@ -149,83 +156,103 @@ func planFractional(ctx context.Context, spec chain.Spec, s Settings) (*Result, 
 		maxStages = DefaultMaxStages
 	}
 	res := &Result{Recommended: -1, Dropped: map[Reason]int{}}
-	var plans [][]chain.StagePlan
+	jobs := s.Jobs
+	if jobs == 0 {
+		jobs = runtime.GOMAXPROCS(0)
+	}
+	// The integer searches, one per rate Fm and kind of ending: alone
+	// against their aliases (a polyphase stage is then the lowpass), or
+	// ending in a lowpass FIR that holds the band above Keep (which a
+	// Farrow stage needs). They run side by side, one job each.
+	type subSearch struct {
+		d, up, down int
+		lowpass     bool
+		spec        chain.Spec
+		front       [][]chain.StagePlan
+		candidates  int
+		failed      bool
+	}
+	var subs []*subSearch
 	for _, d := range fractionalSplits(spec, num, den, maxStages) {
 		g := gcdInt(num, den*d)
 		up, down := den*d/g, num/g
 		if up == down {
 			continue // d is the whole ratio: no fractional stage
 		}
-		// ints are the integer stages found for a polyphase stage to
-		// follow, lowpassInts those for a Farrow stage (ending in the
-		// lowpass FIR it needs).
-		var ints, lowpassInts [][]chain.StagePlan
 		if d == 1 {
-			ints = [][]chain.StagePlan{nil}
-		} else {
-			fk := spec.InputRate / float64(d) * float64(up) / float64(down)
-			exact := spec
-			exact.OutputRate, exact.RatioTolerancePPM = fk, 0
-			share := spec.RippleDB * 0.5
-			// Two searches: the integer stages alone against their
-			// aliases (the fractional stage is then the lowpass), and
-			// ending in a lowpass FIR that holds the band above Keep
-			// (which a Farrow stage needs).
-			for _, lowpass := range []bool{false, true} {
-				sub := chain.IntegerSpec(exact, d, spec.RippleDB-share, share, lowpass)
-				ss := s
-				ss.MaxStages = maxStages - 1
-				ss.Kinds = integer
-				ss.floatOnly = true
-				ss.Progress, ss.Scoring = nil, nil
-				ss.Cost.Multiplierless = false
-				r, err := Plan(ctx, sub, ss)
-				if err != nil {
-					if ctx.Err() != nil {
-						return nil, err
-					}
-					res.Dropped[ReasonDesignFailed]++
+			subs = append(subs, &subSearch{d: 1, up: up, down: down, front: [][]chain.StagePlan{nil}})
+			continue
+		}
+		fm := spec.InputRate / float64(d)
+		fk := fm * float64(up) / float64(down)
+		exact := spec
+		exact.OutputRate, exact.RatioTolerancePPM = fk, 0
+		share := spec.RippleDB * chain.FractionalRippleShare
+		for _, lowpass := range []bool{false, true} {
+			if lowpass && !(math.Min(spec.Stopband, math.Min(fm, fk)-spec.Protected) < fm/2 && slices.Contains(frac, chain.Farrow)) {
+				continue // no Farrow stage can follow: Keep is not below Fm/2
+			}
+			if !lowpass && !(slices.Contains(frac, chain.Polyphase) && up <= 256) {
+				continue
+			}
+			subs = append(subs, &subSearch{d: d, up: up, down: down, lowpass: lowpass,
+				spec: chain.IntegerSpec(exact, d, spec.RippleDB-share, share, lowpass)})
+		}
+	}
+	runAll(ctx, jobs, len(subs), func(i int) {
+		sub := subs[i]
+		if sub.d == 1 {
+			return
+		}
+		ss := s
+		ss.MaxStages = maxStages - 1
+		ss.Kinds = integer
+		ss.floatOnly = true
+		ss.Jobs = 1
+		ss.Progress, ss.Scoring = nil, nil
+		ss.Cost.Multiplierless = false
+		r, err := Plan(ctx, sub.spec, ss)
+		if err != nil {
+			sub.failed = true
+			return
+		}
+		sub.candidates = r.Candidates
+		for _, c := range r.Front {
+			if len(sub.front) >= maxIntegerChains {
+				break
+			}
+			p := slices.Clone(c.Plan)
+			if sub.lowpass {
+				last := &p[len(p)-1]
+				if last.Kind != chain.FIR {
 					continue
 				}
-				res.Candidates += r.Candidates
-				n := 0
-				for _, c := range r.Front {
-					if n >= maxIntegerChains {
-						break
-					}
-					p := slices.Clone(c.Plan)
-					if lowpass {
-						last := &p[len(p)-1]
-						if last.Kind != chain.FIR {
-							continue
-						}
-						last.Variant = chain.Lowpass
-					}
-					if lowpass {
-						lowpassInts = append(lowpassInts, p)
-					} else {
-						ints = append(ints, p)
-					}
-					n++
-				}
+				last.Variant = chain.Lowpass
 			}
+			sub.front = append(sub.front, p)
 		}
-		add := func(ip []chain.StagePlan, k chain.Kind) {
-			p := append(slices.Clone(ip), chain.StagePlan{Kind: k, Factor: 1, Up: up, Down: down})
+	}, nil)
+	if err := ctx.Err(); err != nil {
+		return nil, err
+	}
+	var plans [][]chain.StagePlan
+	for _, sub := range subs {
+		if sub.failed {
+			res.Dropped[ReasonDesignFailed]++
+			continue
+		}
+		res.Candidates += sub.candidates
+		kind := chain.Polyphase
+		if sub.lowpass {
+			kind = chain.Farrow
+		}
+		for _, ip := range sub.front {
+			if sub.d == 1 && kind == chain.Polyphase && (sub.up > 256 || !slices.Contains(frac, chain.Polyphase)) {
+				continue
+			}
+			p := append(slices.Clone(ip), chain.StagePlan{Kind: kind, Factor: 1, Up: sub.up, Down: sub.down})
 			if !slices.ContainsFunc(plans, func(q []chain.StagePlan) bool { return slices.Equal(q, p) }) {
 				plans = append(plans, p)
-			}
-		}
-		for _, k := range frac {
-			switch {
-			case k == chain.Polyphase && up <= 256:
-				for _, ip := range ints {
-					add(ip, k)
-				}
-			case k == chain.Farrow:
-				for _, ip := range lowpassInts {
-					add(ip, k)
-				}
 			}
 		}
 	}
@@ -235,31 +262,66 @@ func planFractional(ctx context.Context, spec chain.Spec, s Settings) (*Result, 
 	fspec := spec
 	fspec.CoefBits = 0
 	des := realDesigner{ctx: ctx, spec: fspec, s: &s}
-	out := make([]Candidate, len(plans))
-	why := make([]Reason, len(plans))
-	jobs := s.Jobs
-	if jobs == 0 {
-		jobs = runtime.GOMAXPROCS(0)
+	// The estimate tier: every plan estimated (Herrmann lengths; a Farrow
+	// stage is designed, it is small) and priced; the plans are designed
+	// in order of their estimate, a batch of jobs at a time, until the
+	// next estimate is above fracEstimateSlack times the cheapest chain
+	// designed that meets, or fracMaxDesigns are designed.
+	est := make([]float64, len(plans))
+	runAll(ctx, jobs, len(plans), func(i int) {
+		est[i] = math.Inf(1)
+		c, err := chain.Estimate(fspec, plans[i], s.Chain)
+		if err != nil {
+			return
+		}
+		if f, err := cost.Price(fspec, c, s.Cost); err == nil {
+			est[i] = costAxis(&f)
+		}
+	}, nil)
+	order := make([]int, len(plans))
+	for i := range order {
+		order[i] = i
 	}
-	done := runAll(ctx, jobs, len(plans), func(i int) {
-		c, w := des.design(plans[i])
-		if w == "" {
-			c, w = des.analyze(c)
-		}
-		out[i], why[i] = c, w
-	}, s.Progress)
+	slices.SortStableFunc(order, func(a, b int) int { return cmp.Compare(est[a], est[b]) })
 	var ok []Candidate
-	for i := range plans {
-		if !done[i] {
+	best := math.Inf(1)
+	designed := 0
+	for start := 0; start < len(order) && designed < fracMaxDesigns; {
+		if err := ctx.Err(); err != nil {
 			res.Partial = true
-			continue
+			break
 		}
-		res.Designed++
-		if why[i] != "" {
-			res.Dropped[why[i]]++
-			continue
+		if e := est[order[start]]; math.IsInf(e, 1) || e > fracEstimateSlack*best {
+			break
 		}
-		ok = append(ok, out[i])
+		batch := order[start:min(len(order), start+jobs, start+fracMaxDesigns-designed)]
+		out := make([]Candidate, len(batch))
+		why := make([]Reason, len(batch))
+		done := runAll(ctx, jobs, len(batch), func(i int) {
+			c, w := des.design(plans[batch[i]])
+			if w == "" {
+				c, w = des.analyze(c)
+			}
+			out[i], why[i] = c, w
+		}, nil)
+		for i := range batch {
+			if !done[i] {
+				res.Partial = true
+				continue
+			}
+			res.Designed++
+			designed++
+			if why[i] != "" {
+				res.Dropped[why[i]]++
+				continue
+			}
+			ok = append(ok, out[i])
+			best = math.Min(best, costAxis(&out[i].Figures))
+		}
+		start += len(batch)
+		if s.Progress != nil {
+			s.Progress(start, len(order))
+		}
 	}
 	if err := ctx.Err(); err != nil && len(ok) == 0 {
 		return nil, err
