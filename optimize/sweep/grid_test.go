@@ -88,7 +88,7 @@ func TestDefaultsFollow(t *testing.T) {
 		{"passband above a set protected", withProtected, []Setting{{key("passband"), 1.2e6}}, 0, 0, 0, "protected"},
 		{"passband 1.2 MHz with a set stopband", withStopband, []Setting{{key("passband"), 1.2e6}}, 0, 0, 0, "stopband"},
 		{"decimation 64 under the passband", defaultsSpec, []Setting{{key("decimation"), 64}}, 0, 0, 0, "passband"},
-		{"output_rate not a ratio", defaultsSpec, []Setting{{key("output_rate"), 3.5e6}}, 0, 0, 0, "output_rate"},
+		{"output_rate a fractional interpolation", defaultsSpec, []Setting{{key("output_rate"), 100e6}}, 0, 0, 0, "output_rate"},
 	}
 	for _, tc := range tests {
 		s, err := SpecWith("invented.toml", []byte(tc.spec), tc.sets...)
@@ -146,7 +146,7 @@ func TestRunDescending(t *testing.T) {
 func TestOneKeyGolden(t *testing.T) {
 	for name, arg := range map[string]string{
 		"rejection":   "rejection=85:145:20",                   // ok rows, a change, an infeasible row
-		"output_rate": "output_rate=1.8 MHz:2.04 MHz:0.12 MHz", // invalid rows around an ok one
+		"output_rate": "output_rate=0.96 MHz:2.88 MHz:0.96 MHz", // an invalid row, an ok one, an infeasible fractional one
 	} {
 		rs, v := study(t, arg, 2)
 		base, _ := specfile.Example()

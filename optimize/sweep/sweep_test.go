@@ -158,10 +158,14 @@ func TestSpecAt(t *testing.T) {
 	if err != nil || s.Chain.CoefBits != 14 {
 		t.Fatalf("coefficient_bits: %v", err)
 	}
-	// 122.88 MHz / 1.8 MHz is not an integer.
+	// 122.88 MHz / 1.8 MHz = 1024/15 is a fractional ratio; 122.88 MHz
+	// up to 200 MHz is a fractional interpolation, refused.
 	k, _ = LookupKey("output_rate")
-	if _, err := SpecAt("ex", base, k, 1.8e6); err == nil {
-		t.Error("output_rate 1.8 MHz: no error for a non-integer ratio")
+	if s, err := SpecAt("ex", base, k, 1.8e6); err != nil || s.Chain.RatioString() != "1024/15" {
+		t.Errorf("output_rate 1.8 MHz: %v", err)
+	}
+	if _, err := SpecAt("ex", base, k, 200e6); err == nil {
+		t.Error("output_rate 200 MHz: no error for a fractional interpolation ratio")
 	}
 }
 
@@ -180,7 +184,8 @@ func TestMapOrder(t *testing.T) {
 // grow with the rejection target, and whose recommended structure changes
 // above 90 dB.
 func fakePlan(_ context.Context, s chain.Spec, set optimize.Settings) (*optimize.Result, error) {
-	if s.RejectionDB > 140 {
+	if s.RejectionDB > 140 || s.Fractional() {
+		// Too hard, and no fake chain for a fractional ratio.
 		return &optimize.Result{Candidates: 10, Dropped: map[optimize.Reason]int{"too hard": 10}, Recommended: -1}, nil
 	}
 	n := 4
@@ -247,9 +252,9 @@ func TestRunAndCSV(t *testing.T) {
 }
 
 func TestInvalidAndInfeasibleRows(t *testing.T) {
-	// 1.8 MHz gives a non-integer ratio; 3.84 MHz puts fs = FK - fa beyond ...
-	// the rows report, the sweep goes on.
-	rs, _ := study(t, "output_rate=1.8 MHz:1.92 MHz:0.12 MHz", 2)
+	// 0.96 MHz puts the passband at half the output rate; the rows
+	// report, the sweep goes on.
+	rs, _ := study(t, "output_rate=0.96 MHz:1.92 MHz:0.96 MHz", 2)
 	if rs[0].Status != Invalid || rs[0].Detail == "" || rs[1].Status != OK {
 		t.Fatalf("statuses %s (%s), %s", rs[0].Status, rs[0].Detail, rs[1].Status)
 	}
