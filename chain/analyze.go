@@ -101,6 +101,9 @@ func checkChain(c *Chain, spec Spec) error {
 		if len(c.Plan) != len(c.Stages) {
 			return fmt.Errorf("chain: the chain's plan %q has %d stages, its Stages %d", Notation(c.Plan), len(c.Plan), len(c.Stages))
 		}
+		if c.Direction != spec.Direction() {
+			return fmt.Errorf("chain: the chain's direction, %s, is not the spec's, %s", c.Direction, spec.Direction())
+		}
 		return nil
 	}
 	if d := c.Decimation(); d != spec.Decimation() {

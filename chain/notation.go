@@ -211,12 +211,28 @@ func ParseNotation(s string) ([]StagePlan, error) {
 // channel to the DAC, "fir2 > hb > cic4m1r16". The stage names are the same
 // in both directions; each stage's factor is its decimation or its
 // interpolation.
+//
+// A fractional stage's L/M is its own rate change in signal order: the
+// transpose of a stage that changes the rate by Up/Down changes it by
+// Down/Up, so an interpolation chain writes "poly<Down>/<Up>".
 func (d Direction) Notation(plan []StagePlan) string {
 	if d == Interpolate {
-		plan = slices.Clone(plan)
-		slices.Reverse(plan)
+		plan = transposePlan(plan)
 	}
 	return Notation(plan)
+}
+
+// transposePlan reverses plan and turns each fractional stage's Up/Down
+// round: its own inverse.
+func transposePlan(plan []StagePlan) []StagePlan {
+	plan = slices.Clone(plan)
+	slices.Reverse(plan)
+	for i := range plan {
+		if plan[i].Kind.Fractional() {
+			plan[i].Up, plan[i].Down = plan[i].Down, plan[i].Up
+		}
+	}
+	return plan
 }
 
 // ParseNotation reads a chain written in signal order for direction d and
@@ -224,7 +240,7 @@ func (d Direction) Notation(plan []StagePlan) string {
 func (d Direction) ParseNotation(s string) ([]StagePlan, error) {
 	plan, err := ParseNotation(s)
 	if err == nil && d == Interpolate {
-		slices.Reverse(plan)
+		plan = transposePlan(plan)
 	}
 	return plan, err
 }

@@ -209,7 +209,7 @@ func buildFractional(ctx context.Context, spec Spec, plan []StagePlan, s Setting
 		return nil, planErr(plan, len(plan)-1, "its input rate %s Hz leaves no band for it: it needs min(input rate, output rate) - fa = %s Hz above fp = %s Hz and fa below half its input rate",
 			fmtNum(fm), fmtNum(math.Min(fm, fk)-spec.Protected), fmtNum(spec.Passband))
 	}
-	c := &Chain{InputRate: spec.InputRate, Complex: spec.Complex, Direction: Decimate,
+	c := &Chain{InputRate: spec.InputRate, Complex: spec.Complex, Direction: spec.Direction(),
 		Plan: append([]StagePlan(nil), plan...), Designed: design}
 	fracRipple := spec.RippleDB
 	// A polyphase stage is the chain's lowpass from Stop; a Farrow stage

@@ -413,6 +413,9 @@ func TestFractionalTones(t *testing.T) {
 					gap = math.Min(gap, math.Abs(p.OutputHz-worst.OutputHz))
 				}
 			}
+			// A real tone near 0 Hz or half the rate also meets its own
+			// mirror.
+			gap = math.Min(gap, 2*math.Min(worst.OutputHz, fk/2-worst.OutputHz))
 			nout := int(math.Ceil(12 * fk / gap))
 			if gap == 0 || nout > 1<<15 {
 				continue
@@ -450,6 +453,106 @@ func TestFractionalTones(t *testing.T) {
 					Notation(plan), a.WorstAliasHz, worst.K, worst.OutputHz, measured, path, a.AliasRejectionDB)
 			}
 			t.Logf("%s: measured %.3f dB, Analyze %.3f dB (%d outputs)", Notation(plan), measured, a.AliasRejectionDB, nout)
+			n++
+			checked++
+		}
+	}
+	if checked < 4 {
+		t.Fatalf("only %d chains checked", checked)
+	}
+}
+
+// TestFractionalInterpolationTones runs the transposes: an interpolation
+// spec with the rates of a random decimation spec swapped is designed on
+// the same plan (held in decimation order), Analyze gives the decimation
+// twin's figures, and a channel tone at the frequency where the twin's
+// worst alias lands is run up through the real transposed structures
+// (the polyphase stage up M, prototype, down L; the Farrow stage
+// scattered at its input times): the image at the twin's worst alias
+// frequency must match the path's gain within 0.05 dB.
+func TestFractionalInterpolationTones(t *testing.T) {
+	rng := rand.New(rand.NewPCG(14, 5))
+	type gen func(interface {
+		IntN(int) int
+		Float64() float64
+	}) (Spec, []StagePlan)
+	checked := 0
+	for _, g := range []gen{randomFractional, randomFarrow} {
+		for n, trial := 0, 0; n < 3 && trial < 40; trial++ {
+			down, plan := g(rng)
+			up := down
+			up.InputRate, up.OutputRate = down.OutputRate, down.InputRate
+			cd, err := Design(down, plan, Settings{MaxTaps: 600})
+			if err != nil {
+				continue
+			}
+			c, err := Design(up, plan, Settings{MaxTaps: 600})
+			if err != nil {
+				t.Fatalf("%s: the transpose does not design: %v", Notation(plan), err)
+			}
+			if c.Direction != Interpolate {
+				t.Fatalf("%s: direction %s", Notation(plan), c.Direction)
+			}
+			ad, err := Analyze(cd, down)
+			if err != nil {
+				t.Fatal(err)
+			}
+			a, err := Analyze(c, up)
+			if err != nil {
+				t.Fatal(err)
+			}
+			if a != ad {
+				t.Errorf("%s: interpolation %+v, decimation twin %+v", Notation(plan), a, ad)
+			}
+			fk, fa := c.OutputRate(), up.Protected // the channel rate
+			paths := PathGains(c, a.WorstAliasHz, 64)
+			var worst PathGain
+			for _, p := range paths {
+				if p.OutputHz <= fa*(1+1e-9) && !(p.K == 0 && a.WorstAliasHz <= fa) && p.Gain > worst.Gain {
+					worst = p
+				}
+			}
+			// The channel tone at worst.OutputHz comes out at every
+			// frequency whose path lands there; the window must part the
+			// image at WorstAliasHz from the others (those of the tone's
+			// other paths: g' with some path landing on it).
+			hi := c.InputRate
+			nout := 1 << 15
+			if edge := math.Min(a.WorstAliasHz, hi/2-a.WorstAliasHz); edge < 12*hi/float64(nout) {
+				// A real signal's image within 12 bins of 0 Hz or of
+				// half the rate meets its own mirror in the window.
+				continue
+			}
+			p0, q0 := c.Fraction()
+			skip := 4096
+			nin := (nout+skip)*q0/p0 + 1
+			x := make([]float64, nin)
+			w := 2 * math.Pi * worst.OutputHz / fk
+			for i := range x {
+				x[i] = math.Cos(w*float64(i) + 0.3)
+			}
+			y := Run(c, x)
+			if len(y) < skip+nout {
+				t.Fatalf("%s: %d outputs for %d inputs", Notation(plan), len(y), nin)
+			}
+			y = y[skip : skip+nout]
+			var re, im, sw float64
+			wy := 2 * math.Pi * a.WorstAliasHz / hi
+			for m, v := range y {
+				u := 2 * math.Pi * float64(m) / float64(nout-1)
+				win := 0.35875 - 0.48829*math.Cos(u) + 0.14128*math.Cos(2*u) - 0.01168*math.Cos(3*u)
+				re += win * v * math.Cos(wy*float64(m))
+				im += win * v * math.Sin(wy*float64(m))
+				sw += win
+			}
+			amp := 2 * math.Hypot(re, im) / sw
+			measured := -20 * math.Log10(amp/c.Gain(0))
+			path := -20 * math.Log10(worst.Gain/c.Gain(0))
+			if math.Abs(measured-path) > 0.05 {
+				t.Errorf("%s: channel tone at %g Hz, image at %g Hz: measured %.3f dB, path %.3f dB, Analyze %.3f dB",
+					Notation(plan), worst.OutputHz, a.WorstAliasHz, measured, path, a.AliasRejectionDB)
+			}
+			t.Logf("%s (signal order %s): image measured %.3f dB, Analyze %.3f dB", Notation(plan), Interpolate.Notation(plan), measured, a.AliasRejectionDB)
 			n++
 			checked++
 		}

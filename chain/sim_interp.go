@@ -27,6 +27,17 @@ func runInterpStage(i int, s Stage, x []float64) []float64 {
 		return polyphaseInterpolate(st.Taps, st.R, x)
 	case CICStage:
 		return runCICInterpolator(st, x)
+	case PolyphaseStage:
+		if st.Taps == nil {
+			panic(fmt.Sprintf("chain: Run: stage %d (%s) has no taps (an estimate)", i+1, st.Kind()))
+		}
+		// The transpose: up Down, the same prototype, down Up.
+		return Resample(st.Taps, st.Down, st.Up, x)
+	case FarrowStage:
+		if st.Filter.Coef == nil {
+			panic(fmt.Sprintf("chain: Run: stage %d (%s) has no coefficients (an estimate)", i+1, st.Kind()))
+		}
+		return farrowTransposed(st, x)
 	}
 	panic(fmt.Sprintf("chain: Run: stage %d is a %T; Run takes CICStage and FIRStage values", i+1, s))
 }
@@ -121,6 +132,40 @@ func runCICInterpolator(c CICStage, x []float64) []float64 {
 				in = integ[j]
 			}
 			out[i*r+p] = float64(in) / gain
+		}
+	}
+	return out
+}
+
+// farrowTransposed runs the transpose of a Farrow stage that changes the
+// rate by Up/Down (its decimation view): input sample m, at time
+// t_m = m Down/Up samples of the output, adds x[m] h(t_m - n) Down/Up to
+// every output n within the structure's span (h the structure's impulse
+// response, farrow.Convention): the transposed structure, whose paths have
+// the decimation view's gains. The factor Down/Up, the rate raised, keeps
+// the passband's gain at 1. Outputs n with n Up < len(x) Down are kept.
+func farrowTransposed(st FarrowStage, x []float64) []float64 {
+	if len(x) == 0 {
+		return nil
+	}
+	n := (len(x)*st.Down-1)/st.Up + 1
+	out := make([]float64, n)
+	half := st.Filter.Len() / 2
+	g := float64(st.Down) / float64(st.Up)
+	times := FarrowTimes(st.Up, st.Down, n)
+	// The decimation view's output m sits at times[m] (in samples of the
+	// high rate); here it is input m.
+	for m, v := range x {
+		if m >= len(times) {
+			break
+		}
+		t := times[m]
+		b := int(math.Floor(t))
+		for k := b - half + 1; k <= b+half; k++ {
+			if k < 0 || k >= n {
+				continue
+			}
+			out[k] += g * v * st.Filter.Impulse(t-float64(k))
 		}
 	}
 	return out

@@ -229,16 +229,6 @@ func (s Spec) Normalize() (Spec, error) {
 		return bad("OutputRate", s.OutputRate, "{%s}/{%s} = %s is beyond the supported ratio %d", hi, lo, fmtNum(d), math.MaxInt32)
 	}
 	if integer := math.Abs(ratio-d) <= ratioTol*ratio && d >= 2; !integer {
-		if s.Direction() == Interpolate {
-			nlo, nhi := math.Max(2, math.Floor(ratio)), math.Max(2, math.Ceil(ratio))
-			if nlo == nhi {
-				nhi++
-			}
-			near := func(r float64) float64 { return fk * r }
-			return bad("OutputRate", s.OutputRate,
-				"{%s}/{%s} = %s is not an integer ratio; the nearest integer ratios are %s ({OutputRate} %s Hz) and %s ({OutputRate} %s Hz) (fractional stages are planned in decimation chains only)",
-				hi, lo, fmtNum(ratio), fmtNum(nlo), fmtNum(near(nlo)), fmtNum(nhi), fmtNum(near(nhi)))
-		}
 		if _, _, ok := fractionOf(ratio, s.ratioTolerance()); !ok {
 			if s.RatioTolerancePPM > 0 {
 				return bad("OutputRate", s.OutputRate, "{%s}/{%s} = %s: no fraction with a denominator of at most %d lies within {RatioTolerancePPM} = %s ppm of it; allow more ppm",

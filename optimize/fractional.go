@@ -333,6 +333,6 @@ func planFractional(ctx context.Context, spec chain.Spec, s Settings) (*Result, 
 	for i := range res.Front {
 		fs[i] = candFigs(&res.Front[i])
 	}
-	res.Recommended, res.Reason = recommend(fs, &s, false)
+	res.Recommended, res.Reason = recommend(fs, &s, spec.Direction() == chain.Interpolate)
 	return res, nil
 }

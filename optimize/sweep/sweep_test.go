@@ -158,14 +158,14 @@ func TestSpecAt(t *testing.T) {
 	if err != nil || s.Chain.CoefBits != 14 {
 		t.Fatalf("coefficient_bits: %v", err)
 	}
-	// 122.88 MHz / 1.8 MHz = 1024/15 is a fractional ratio; 122.88 MHz
-	// up to 200 MHz is a fractional interpolation, refused.
+	// 122.88 MHz / 1.8 MHz = 1024/15 is a fractional ratio; an output
+	// rate equal to the input rate is refused.
 	k, _ = LookupKey("output_rate")
 	if s, err := SpecAt("ex", base, k, 1.8e6); err != nil || s.Chain.RatioString() != "1024/15" {
 		t.Errorf("output_rate 1.8 MHz: %v", err)
 	}
-	if _, err := SpecAt("ex", base, k, 200e6); err == nil {
-		t.Error("output_rate 200 MHz: no error for a fractional interpolation ratio")
+	if _, err := SpecAt("ex", base, k, 122.88e6); err == nil {
+		t.Error("output_rate 122.88 MHz: no error for a ratio of 1")
 	}
 }
 
