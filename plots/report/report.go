@@ -71,11 +71,11 @@ type Spec struct {
 	// RatioTolerancePPM is ratio_tolerance_ppm, absent when the spec does
 	// not set it.
 	RatioTolerancePPM float64 `json:"ratio_tolerance_ppm,omitempty"`
-	PassbandHz    float64 `json:"passband_hz"`
-	ProtectedHz   float64 `json:"protected_hz"`
-	StopbandHz    float64 `json:"stopband_hz"`
-	RippleDB      float64 `json:"ripple_db"`
-	RejectionDB   float64 `json:"rejection_db"`
+	PassbandHz        float64 `json:"passband_hz"`
+	ProtectedHz       float64 `json:"protected_hz"`
+	StopbandHz        float64 `json:"stopband_hz"`
+	RippleDB          float64 `json:"ripple_db"`
+	RejectionDB       float64 `json:"rejection_db"`
 	// RejectionMask is rejection_mask's points, [frequency Hz, rejection
 	// dB]; absent without one. RejectionDB is then its largest rejection,
 	// a chain's rejection_margin_db its worst margin over the mask and
@@ -235,9 +235,9 @@ type SubStage struct {
 // chain's last) changes the rate by Interpolation/Decimation, L/M, and
 // its output rate is its input rate x L/M.
 type Stage struct {
-	Kind          string `json:"kind"`
-	Decimation    int    `json:"decimation"`
-	Interpolation int    `json:"interpolation,omitempty"`
+	Kind                string  `json:"kind"`
+	Decimation          int     `json:"decimation"`
+	Interpolation       int     `json:"interpolation,omitempty"`
 	InputRateHz         float64 `json:"input_rate_hz"`
 	OutputRateHz        float64 `json:"output_rate_hz"`
 	MultipliesPerOutput float64 `json:"multiplies_per_output"`
@@ -357,8 +357,8 @@ func NewSpec(s *specfile.Spec) Spec {
 		Direction: c.Direction().String(), Ratio: c.RatioString(),
 		Decimation: c.Decimation(), Interpolation: c.Interpolation(),
 		RatioTolerancePPM: c.RatioTolerancePPM,
-		RejectionMask: maskPoints(c.RejectionMask),
-		PassbandHz:    c.Passband, ProtectedHz: c.Protected, StopbandHz: c.Stopband,
+		RejectionMask:     maskPoints(c.RejectionMask),
+		PassbandHz:        c.Passband, ProtectedHz: c.Protected, StopbandHz: c.Stopband,
 		RippleDB: c.RippleDB, RejectionDB: c.RejectionDB, Signal: s.Signal,
 		Words: Words{Input: c.InputBits, Output: c.OutputBits},
 		Cost:  Cost{Symmetry: s.Symmetry},
