@@ -348,8 +348,8 @@ type planView struct {
 	// Fractional: the recommended (or checked) chain ends in a fractional
 	// stage, whose response figure draws paths instead of shaded bands.
 	Fractional bool
-	Files                 []string
-	Cautions              []string
+	Files      []string
+	Cautions   []string
 	// Check only: the front compared with, what beats the chain (as
 	// Beater.Text says it), or else CompareText.
 	Compared    string
