@@ -34,6 +34,16 @@ type ResponseData struct {
 	// TotalDB is the cascade's gain in dB at each FreqHz, relative to its DC
 	// gain.
 	TotalDB []float64
+	// TotalName is TotalDB's legend entry; empty selects "cascade".
+	TotalName string
+	// AliasDB, when not empty, is a second curve on the same grid, in dB
+	// relative to the DC gain, drawn in the alias bands' colour: for a
+	// chain that ends in a fractional stage, whose tones take several
+	// paths, the largest gain of any path that lands in the protected
+	// band. -Inf (no such path) is drawn at the floor.
+	AliasDB []float64
+	// AliasName is AliasDB's legend entry; empty selects "largest alias".
+	AliasName string
 	// Stages are each stage's gain on the same input-frequency grid, in
 	// cascade order. It may be empty.
 	Stages []Series
@@ -84,7 +94,7 @@ func Response(d ResponseData) (*Figure, error) {
 	// The floor keeps the curves readable: 60 dB below the target shows the
 	// margin, deeper nulls would only squash the scale.
 	dmin, dmax := math.Inf(1), math.Inf(-1)
-	for _, s := range append([][]float64{d.TotalDB}, seriesDB(d.Stages)...) {
+	for _, s := range append([][]float64{d.TotalDB, d.AliasDB}, seriesDB(d.Stages)...) {
 		for _, v := range s {
 			if !math.IsInf(v, -1) {
 				dmin, dmax = math.Min(dmin, v), math.Max(dmax, v)
@@ -174,6 +184,11 @@ func (d *ResponseData) check() error {
 	}
 	if err := checkDB("TotalDB", d.TotalDB); err != nil {
 		return err
+	}
+	if len(d.AliasDB) > 0 {
+		if err := checkDB("AliasDB", d.AliasDB); err != nil {
+			return err
+		}
 	}
 	for i, s := range d.Stages {
 		if err := checkDB(fmt.Sprintf("Stages[%d].DB", i), s.DB); err != nil {
@@ -317,22 +332,40 @@ func responsePanel(d ResponseData, lo, hi, floor, top float64, logx bool, leg *p
 		add(fmt.Sprintf("stage %d: %s", i+1, name), l, l)
 		dense = dense || l.hasDense()
 	}
+	totalName := d.TotalName
+	if totalName == "" {
+		totalName = "cascade"
+	}
+	aliasName := ""
+	if len(d.AliasDB) > 0 {
+		aliasName = d.AliasName
+		if aliasName == "" {
+			aliasName = "largest alias"
+		}
+		// Under the cascade, which it meets where a tone's kept path is
+		// its own alias.
+		a := newEnvelope(d.FreqHz, d.AliasDB, lo, hi, floor, swing, logx, draw.LineStyle{Color: vermilion, Width: vg.Points(1.4)})
+		add(aliasName, a, a)
+		dense = dense || a.hasDense()
+	}
 	l := newEnvelope(d.FreqHz, d.TotalDB, lo, hi, floor, swing, logx, draw.LineStyle{Color: black, Width: vg.Points(1.8)})
-	add("cascade", l, l)
+	add(totalName, l, l)
 	if dense = dense || l.hasDense(); dense {
 		legAdd(denseNote, denseKey{})
 	}
 	if leg != nil {
-		// Reading order: the cascade, the stages in cascade order, then
-		// the reference marks.
+		// Reading order: the cascade (and the largest alias), the stages
+		// in cascade order, then the reference marks.
 		rank := func(name string) int {
 			switch {
-			case name == "cascade":
+			case name == totalName:
 				return 0
-			case strings.HasPrefix(name, "stage "), name == denseNote:
+			case aliasName != "" && name == aliasName:
 				return 1
+			case strings.HasPrefix(name, "stage "), name == denseNote:
+				return 2
 			}
-			return 2
+			return 3
 		}
 		sort.SliceStable(entries, func(i, j int) bool { return rank(entries[i].name) < rank(entries[j].name) })
 		for _, e := range entries {

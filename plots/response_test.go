@@ -116,3 +116,39 @@ func TestDenseLegend(t *testing.T) {
 		t.Errorf("a CIC of ratio 16 alone: legend explains dense stretches it does not have")
 	}
 }
+
+// TestResponseAliasCurve draws a second curve (a fractional chain's
+// largest alias) under its own legend entry and the cascade's given name,
+// and refuses one whose length is not the grid's.
+func TestResponseAliasCurve(t *testing.T) {
+	n := 400
+	d := ResponseData{FreqHz: make([]float64, n), TotalDB: make([]float64, n), AliasDB: make([]float64, n),
+		TotalName: "kept path (K = 0)", AliasName: "largest alias into [0, 1 kHz]", TargetDB: 60, OutputRateHz: 4000}
+	for i := range d.FreqHz {
+		f := 50 * float64(i)
+		d.FreqHz[i] = f
+		d.TotalDB[i] = -math.Min(120, f/50)
+		d.AliasDB[i] = -60 - 20*math.Abs(math.Sin(f/700))
+	}
+	d.AliasDB[0] = math.Inf(-1) // no path lands: drawn at the floor
+	fig, err := Response(d)
+	if err != nil {
+		t.Fatal(err)
+	}
+	var b strings.Builder
+	if err := fig.Render(&b, "svg", 0, 0); err != nil {
+		t.Fatal(err)
+	}
+	for _, want := range []string{"kept path (K = 0)", "largest alias into [0, 1 kHz]"} {
+		if !strings.Contains(b.String(), want) {
+			t.Errorf("legend lacks %q", want)
+		}
+	}
+	if strings.Contains(b.String(), ">cascade<") {
+		t.Errorf("the cascade is named \"cascade\", not TotalName")
+	}
+	d.AliasDB = d.AliasDB[:n-1]
+	if _, err := Response(d); err == nil || !strings.Contains(err.Error(), "AliasDB has 399 values") {
+		t.Errorf("short AliasDB: err %v", err)
+	}
+}

@@ -131,7 +131,10 @@ func TestBadInputs(t *testing.T) {
 		specCase("rate millihertz", edit("output_rate", `output_rate = "3.072 mHz"`), "output_rate", "millihertz"),
 		specCase("output above input, not a multiple", edit("output_rate", `output_rate = "200 MHz"`), "output_rate", "output_rate/input_rate = 2.034505208 is not an integer ratio"),
 		specCase("ratio 1", edit("output_rate", `output_rate = "98.304 MHz"`), "output_rate"),
-		specCase("non-integer ratio", edit("output_rate", `output_rate = "3 MHz"`), "output_rate", "not an integer"),
+		// A non-integer decimation ratio is a fractional spec now (98.304
+		// MHz / 3 MHz = 4096/125), planned, not refused; its tolerance is
+		// checked.
+		specCase("ratio tolerance too wide", top(`ratio_tolerance_ppm = 5000`), "ratio_tolerance_ppm", "(0, 1000]"),
 		specCase("passband above output/2", edit("passband", `passband = "1.6 MHz"`), "passband"),
 		specCase("passband zero", edit("passband", `passband = 0`), "passband", "above 0 Hz"),
 		specCase("protected below passband", top(`protected = "900 kHz"`), "protected", "passband"),

@@ -292,12 +292,17 @@ func (j *job) designNamed(plan []chain.StagePlan, set optimize.Settings) (optimi
 	}
 	d := 1
 	for i, p := range plan {
+		if j.spec.Chain.Fractional() {
+			// The library checks a fractional plan's stages against the
+			// ratio (a *chain.PlanError below, in the user's terms).
+			break
+		}
 		if d > want/p.Factor {
 			return optimize.Candidate{}, "", usagef("--chain %q: its factors multiply to more than %s = %d (the first %d of its %d stages already do)", clip(notation), ratio, want, i+1, len(plan))
 		}
 		d *= p.Factor
 	}
-	if d != want {
+	if d != want && !j.spec.Chain.Fractional() {
 		return optimize.Candidate{}, "", usagef("--chain %q: its factors multiply to %d, but %s = %d", clip(notation), d, ratio, want)
 	}
 	// The library holds an interpolation chain from the high rate down
@@ -479,6 +484,9 @@ func printSummary(w io.Writer, j *job, rep *report.Report, files []report.File) 
 	s := rep.Spec
 	fmt.Fprintf(w, "stepdown %s: %s\n", rep.Command, j.source)
 	ratio := fmt.Sprintf("decimation %d", s.Decimation)
+	if strings.Contains(s.Ratio, "/") {
+		ratio = "fractional ratio " + s.Ratio
+	}
 	if s.Interpolates() {
 		ratio = fmt.Sprintf("interpolation %d", s.Interpolation)
 	}
@@ -532,6 +540,9 @@ func printSummary(w io.Writer, j *job, rep *report.Report, files []report.File) 
 	}
 	if vectors > 0 {
 		fmt.Fprintf(w, "  vectors/: %d vector files (stimuli and every stage's output, named in vectors/README.txt)\n", vectors)
+	}
+	if len(rep.Front) > 0 && rep.Front[rep.Recommended].Fractional() {
+		fmt.Fprintf(w, "\nNo hand-off%s.\n", strings.TrimPrefix(report.NoHandoff, "no hand-off"))
 	}
 	fmt.Fprintf(w, "\nCaution: %s.\n", report.Caution)
 }

@@ -142,6 +142,11 @@ func runSimulate(c *cli.Context) error {
 	if cs.Direction() == chain.Interpolate {
 		return usagef("%s: output_rate is above input_rate (an interpolation chain); simulate runs decimation chains only", clip(j.source))
 	}
+	if cs.Fractional() {
+		// simulate.Run is bit-true, and a fractional stage has no word
+		// lengths (fixed.ErrFractional): refused before any search.
+		return usagef("%s: input_rate/output_rate is %s, a fraction; simulate runs chains of integer stages only, since a fractional stage (polyphase or farrow) has no word lengths for its bit-true run", clip(j.source), cs.RatioString())
+	}
 
 	rate := cs.InputRate
 	if r := c.String("rate"); r != "" {

@@ -40,13 +40,15 @@ func TestSweepUsageErrors(t *testing.T) {
 		{[]string{"sweep", "--vary", "max_stages=2:4:1", "--max-stages", "3"}, "--max-stages 3: --vary max_stages=2:4:1 steps search.max_stages"},
 		{[]string{"sweep", "--vary", "decimation=8:64:0.5"}, "--vary decimation=8:64:0.5: STEP \"0.5\": want a whole number"},
 		{[]string{"sweep", "--vary", "max_stages=0:4:1"}, "value 0 stages must be at least 1 stage"},
-		// 1.7 and 1.8 MHz are no integer ratio of 122.88 MHz, whatever the rejection.
-		{[]string{"sweep", "--vary", "rejection=80:90:10", "--vary", "output_rate=1.7 MHz:1.8 MHz:100 kHz"}, "every cell makes the spec invalid (first, rejection 80 dB, output_rate 1.7 MHz:"},
+		// 200 and 300 MHz are no integer interpolation of 122.88 MHz, whatever
+		// the rejection (a fractional ratio is planned in decimation
+		// chains only).
+		{[]string{"sweep", "--vary", "rejection=80:90:10", "--vary", "output_rate=200 MHz:300 MHz:100 MHz"}, "every cell makes the spec invalid (first, rejection 80 dB, output_rate 200 MHz:"},
 		{[]string{"sweep", "--vary", "coefficient_bits=14:20:0.5"}, "whole number"},
 		{[]string{"sweep", "--vary", "rejection=80:90:5", "--jobs", "-1"}, "--jobs -1"},
 		{[]string{"sweep", "missing.toml", "--vary", "rejection=80:90:5"}, "missing.toml"},
-		// 122.88 MHz over 1.7 or 1.8 MHz is not an integer: no value can be planned.
-		{[]string{"sweep", "--vary", "output_rate=1.7 MHz:1.8 MHz:100 kHz"}, "every value makes the spec invalid"},
+		// 200 or 300 MHz over 122.88 MHz is not an integer: no value can be planned.
+		{[]string{"sweep", "--vary", "output_rate=200 MHz:300 MHz:100 MHz"}, "every value makes the spec invalid"},
 	}
 	for _, tc := range tests {
 		out := filepath.Join(dir, "out")

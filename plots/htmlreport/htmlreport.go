@@ -94,6 +94,7 @@ func Plan(p PlanPage) ([]byte, error) {
 	}
 	if len(r.Front) > 0 {
 		c := r.Front[r.Recommended]
+		v.Fractional = c.Fractional()
 		v.Resources = c.Resources
 		if c.Resources != nil && c.Adders != nil {
 			v.ResAdders = true
@@ -344,8 +345,11 @@ type planView struct {
 	Rec                   *recView
 	FrontSVG, ResponseSVG template.HTML
 	StagesSVG             template.HTML
-	Files                 []string
-	Cautions              []string
+	// Fractional: the recommended (or checked) chain ends in a fractional
+	// stage, whose response figure draws paths instead of shaded bands.
+	Fractional bool
+	Files      []string
+	Cautions   []string
 	// Check only: the front compared with, what beats the chain (as
 	// Beater.Text says it), or else CompareText.
 	Compared    string
@@ -415,6 +419,13 @@ type gridView struct {
 
 func specRows(s report.Spec) []kv {
 	ratio := kv{"Decimation", strconv.Itoa(s.Decimation)}
+	if strings.Contains(s.Ratio, "/") {
+		// A fractional spec: no integer D (its decimation is 0).
+		ratio = kv{"Ratio", s.Ratio + " (fractional: integer stages, then a polyphase or Farrow stage)"}
+	}
+	if s.RatioTolerancePPM > 0 {
+		ratio.V += fmt.Sprintf(", within %s ppm", shortest(s.RatioTolerancePPM))
+	}
 	protected, rejection := "Protected (alias-free) edge", "Alias rejection"
 	if s.Interpolates() {
 		ratio = kv{"Interpolation", strconv.Itoa(s.Interpolation)}
@@ -495,7 +506,10 @@ func planCautions(r *report.Report) []string {
 	} else if c.RejectionMarginDB < 1 {
 		out = append(out, fmt.Sprintf("The recommended chain's rejection margin is thin (%.2f dB): data-path truncation can use it up.", c.RejectionMarginDB))
 	}
-	if r.Spec.Words.CoefficientsMode == "auto" {
+	if c.Fractional() {
+		// No word lengths: nothing is rounded, whatever words.coefficients says.
+		out = append(out, fmt.Sprintf("The chain ends in a fractional stage, designed in floating point alone: rejection and ripple are those of floating-point coefficients whatever the spec's coefficient width, memory counts %d-bit coefficient words (the pricing default), and there are no word lengths, no integer or $readmemh files and no hand-off (headers/, vectors/, rtl/), which are made for chains of integer stages only.", cost.FloatCoefBits))
+	} else if r.Spec.Words.CoefficientsMode == "auto" {
 		out = append(out, fmt.Sprintf("Coefficient widths are automatic: the narrowest widths with which the whole chain meets the spec once its taps are rounded; the verdicts, rejection and ripple in the table are those of the rounded taps; memory in the table counts %d-bit coefficient words (the pricing default), the word-length figures in report.json count the chosen widths.", cost.FloatCoefBits))
 	} else if r.Spec.Words.Coefficients == nil {
 		out = append(out, fmt.Sprintf("No coefficient width was given: rejection and ripple are those of floating-point coefficients, memory counts %d-bit coefficient words (the pricing default), and no integer or $readmemh files were written.", cost.FloatCoefBits))
@@ -512,7 +526,7 @@ func planCautions(r *report.Report) []string {
 			msg += fmt.Sprintf(" after a correction of x%.6g folded into the last FIR stage's taps", w.GainCorrection)
 		}
 		out = append(out, msg+".")
-	} else if c.WordLengthsError != "" {
+	} else if c.WordLengthsError != "" && !c.Fractional() {
 		out = append(out, "No word-length figures for the recommended chain: "+c.WordLengthsError+".")
 	}
 	if r.Spec.Signal == "complex" {
@@ -575,9 +589,19 @@ func stageViews(c report.Chain, files []string, prefix string, clock bool) []sta
 			verb = "interpolate"
 		}
 		sv := stageView{Title: fmt.Sprintf("Stage %d: %s, %s by %d", i+1, name, verb, s.Decimation)}
+		if s.Interpolation > 0 && (s.Kind == "polyphase" || s.Kind == "farrow") {
+			sv.Title = fmt.Sprintf("Stage %d: %s, rate x %d/%d", i+1, map[string]string{"polyphase": "polyphase", "farrow": "Farrow"}[s.Kind], s.Interpolation, s.Decimation)
+		}
 		add := func(k, v string) { sv.Rows = append(sv.Rows, kv{k, v}) }
 		add("Rates", freq(s.InputRateHz)+" → "+freq(s.OutputRateHz))
 		switch s.Kind {
+		case "polyphase":
+			add("Up, down", fmt.Sprintf("L = %d, M = %d", s.Interpolation, s.Decimation))
+			add("Prototype", fmt.Sprintf("%d taps at %s, unit gain at 0 Hz", s.Taps, freq(s.InputRateHz*float64(s.Interpolation))))
+			add("Taps per output", strconv.Itoa(s.PhaseTaps))
+		case "farrow":
+			add("Up, down", fmt.Sprintf("L = %d, M = %d", s.Interpolation, s.Decimation))
+			add("Structure", fmt.Sprintf("%d subfilters of %d taps (degree %d in mu)", len(s.FarrowCoefficients), s.Taps, s.FarrowDegree))
 		case "cic":
 			add("Order, delay", fmt.Sprintf("N = %d, M = %d", s.CICOrder, s.CICDelay))
 			if len(s.RegisterBits) > 0 {

@@ -159,7 +159,7 @@ const templates = `
 </section>
 
 <section id="response"><h2>Response</h2>
-{{if .ResponseSVG}}<figure>{{.ResponseSVG}}<figcaption>Gain of the recommended cascade against input frequency, each stage's gain beside it; the bands that fold onto the protected band at the output are shaded.</figcaption></figure>{{else}}<p>No response figure.</p>{{end}}
+{{if .ResponseSVG}}<figure>{{.ResponseSVG}}<figcaption>{{if .Fractional}}Gain of the recommended chain against input frequency: the kept path (the tone where it is) and, at each frequency, the largest gain of any other path of the tone through the fractional stage that lands in the protected band, each stage's gain beside them.{{else}}Gain of the recommended cascade against input frequency, each stage's gain beside it; the bands that fold onto the protected band at the output are shaded.{{end}}</figcaption></figure>{{else}}<p>No response figure.</p>{{end}}
 </section>
 
 <section id="cautions"><h2>Cautions</h2>

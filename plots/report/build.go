@@ -10,6 +10,7 @@ import (
 
 	"github.com/stepdown-dsp/stepdown/chain"
 	"github.com/stepdown-dsp/stepdown/chain/specfile"
+	"github.com/stepdown-dsp/stepdown/chain/units"
 	"github.com/stepdown-dsp/stepdown/optimize"
 	"github.com/stepdown-dsp/stepdown/plots"
 )
@@ -278,6 +279,20 @@ func responseData(cand optimize.Candidate, spec *specfile.Spec, ch Chain) (plots
 		return rd, fmt.Errorf("response plot: the chain's DC gain is %v", dc)
 	}
 	rd.FreqHz = responseGrid(f0, cs.OutputRate)
+	var parts fractionalParts
+	frac := Fractional(c)
+	if frac {
+		// A fractional chain: the kept path and the largest alias (see
+		// fractionalCurves), on a grid thinned when the stage's L makes
+		// each point dear.
+		var err error
+		if parts, err = splitChain(c); err != nil {
+			return rd, err
+		}
+		rd.FreqHz = thinGrid(rd.FreqHz, parts.work())
+		rd.OutputRateHz = c.OutputRate()
+		rd.Title += " (kept path and largest alias)"
+	}
 	n := len(rd.FreqHz)
 	rd.TotalDB = make([]float64, n)
 	// The stages' curves in signal order, each at its high rate.
@@ -287,10 +302,26 @@ func responseData(cand optimize.Candidate, spec *specfile.Spec, ch Chain) (plots
 		rd.Stages[j] = plots.Series{Name: stageName(cand, i), DB: make([]float64, n)}
 	}
 	for k, g := range rd.FreqHz {
-		rd.TotalDB[k] = db(c.Gain(g) / dc)
+		if !frac {
+			rd.TotalDB[k] = db(c.Gain(g) / dc)
+		}
 		for j, i := range order {
 			rd.Stages[j].DB[k] = db(c.Stages[i].Gain(g, rates[i]))
 		}
+	}
+	if frac {
+		// The paths of a tone through a fractional stage land on every
+		// input frequency within fa of a multiple of FK/L: the alias bands
+		// would shade nearly all of the axis, so the largest alias is
+		// drawn as a curve of its own instead.
+		kept, alias, err := fractionalCurves(c, cs.Protected, rd.FreqHz)
+		if err != nil {
+			return rd, err
+		}
+		rd.TotalDB, rd.AliasDB = kept, alias
+		rd.TotalName = "kept path (K = 0)"
+		rd.AliasName = "largest alias into [0, " + units.FormatFrequency(cs.Protected) + "]"
+		return rd, nil
 	}
 	// The bands that fold onto the protected band at the output (docs/design.md §7).
 	rd.AliasBands = plots.AliasShading(f0, cs.OutputRate, cs.Protected)

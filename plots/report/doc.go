@@ -21,6 +21,33 @@
 // The integer files are written only when the spec sets a coefficient width
 // or "auto".
 //
+// Fractional ratios (a spec whose input_rate/output_rate is not an
+// integer, chain.Spec.Fractional): spec.ratio is the ratio as a string in
+// every report, "256" for an integer spec and the reduced fraction
+// "625/24" for a fractional one, whose spec.decimation is then 0 (no
+// integer D; spec.interpolation stays 1); spec.ratio_tolerance_ppm is
+// written when the spec sets it. Such a chain's last stage has kind
+// "polyphase" or "farrow", with interpolation (L) and decimation (M): its
+// output rate is its input rate x L/M (input_rate_hz and output_rate_hz as
+// chain.Chain.Rates gives them). A polyphase stage's coefficients are its
+// prototype lowpass at L x its input rate with unit gain at 0 Hz, as the
+// chain holds it (the data path multiplies by L), taps its length and
+// phase_taps ceil(taps/L); a Farrow stage's farrow_coefficients are
+// chain/farrow's Filter.Coef, one row of taps per power of mu, lowest
+// first (farrow_degree+1 rows), and farrow_convention is the sentence
+// farrow.Convention. A fractional chain has no word lengths (package
+// chain/fixed plans integer stages only): word_lengths_error holds
+// fixed.ErrFractional's sentence, the verdict stays on the float design
+// (verdict_basis "float taps") whatever words.coefficients says, and there
+// are no integer files and no hand-off (NoHandoff). Its coefficient files
+// are stage<i>_polyphase.csv (index,coefficient, like a FIR's) or
+// stage<i>_farrow.csv (FarrowCSV: '#' comment lines that say it is
+// planning data and give the convention, then index,mu0,...,muP and one
+// row per tap), with coefficients/README.txt (FractionalReadme). Its
+// response figure draws, over input frequency, the kept path (K = 0) and
+// the largest gain of any other path that lands in [0, fa] (the paths of
+// chain.PathGains), without alias shading, which would cover the axis.
+//
 // With a clock, each chain carries resources (NewResources): its bill of
 // fabric resources at the clock, per stage and in total (parallel_lanes,
 // multipliers, adders, adder_bits, register_bits, block_memory_bits), a

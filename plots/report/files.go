@@ -2,10 +2,13 @@ package report
 
 import (
 	"fmt"
-	"github.com/stepdown-dsp/stepdown/handoff"
 	"math/big"
 	"strconv"
 	"strings"
+
+	"github.com/stepdown-dsp/stepdown/chain"
+	"github.com/stepdown-dsp/stepdown/chain/farrow"
+	"github.com/stepdown-dsp/stepdown/handoff"
 )
 
 // File is one output file: a path relative to the output folder and its
@@ -16,9 +19,24 @@ type File = handoff.File
 // under the folder "coefficients/". ints asks for the integer files too
 // (the spec sets a coefficient width or "auto"); they are written from the
 // stage's coefficients_int, the integers of the word-length plan.
+//
+// A fractional chain's last stage is written too: a polyphase stage's
+// prototype like a FIR's taps (stage<i>_polyphase.csv), a Farrow stage's
+// subfilters as one matrix (stage<i>_farrow.csv, FarrowCSV); neither has
+// integer files, since a fractional chain has no word lengths. The folder
+// then gets coefficients/README.txt (FractionalReadme), which says what
+// the files hold and that the hand-off is not written.
 func CoefficientFiles(c Chain, ints bool) ([]File, error) {
 	var out []File
 	for i, s := range c.Stages {
+		if s.Kind == chain.Farrow.String() && len(s.FarrowCoefficients) > 0 {
+			b, err := FarrowCSV(s.FarrowCoefficients)
+			if err != nil {
+				return nil, fmt.Errorf("report: stage %d: %v", i+1, err)
+			}
+			out = append(out, File{Name: fmt.Sprintf("coefficients/stage%d_%s.csv", i+1, s.Kind), Data: b})
+			continue
+		}
 		if s.Kind == "cic" || len(s.Coefficients) == 0 {
 			continue
 		}
@@ -35,7 +53,83 @@ func CoefficientFiles(c Chain, ints bool) ([]File, error) {
 		}
 		out = append(out, File{Name: base + ".hex", Data: hex})
 	}
+	if c.Fractional() && len(out) > 0 {
+		out = append(out, File{Name: "coefficients/README.txt", Data: FractionalReadme(c)})
+	}
 	return out, nil
+}
+
+// NoHandoff is the one line that says why a fractional chain's output
+// folder has no hand-off (headers/, vectors/, rtl/).
+const NoHandoff = "no hand-off (headers/, vectors/, rtl/): it is written for chains of integer stages only, and this chain ends in a fractional stage, which has its float design alone (no word lengths)"
+
+// FractionalReadme is coefficients/README.txt of a fractional chain: what
+// each coefficient file holds, the Farrow convention, and NoHandoff.
+func FractionalReadme(c Chain) []byte {
+	var b strings.Builder
+	fmt.Fprintf(&b, "Coefficients of %s\n\n", c.Notation)
+	fmt.Fprintf(&b, "Planning data: %s.\n\n", Caution)
+	b.WriteString("The chain ends in a fractional stage, designed in floating point only: there\n" +
+		"are no word lengths and no integer coefficient files for it.\n\n")
+	for i, s := range c.Stages {
+		name := fmt.Sprintf("stage%d_%s.csv", i+1, s.Kind)
+		switch {
+		case s.Kind == chain.Polyphase.String():
+			fmt.Fprintf(&b, "%s: index,coefficient, the %d-tap prototype lowpass of the polyphase\n"+
+				"stage, up by L = %d and down by M = %d. It runs at L x the stage's input rate\n"+
+				"(%s Hz) and has unit gain at 0 Hz, as designed: the data path multiplies\n"+
+				"by L. Phase p (p = 0..L-1) holds taps p, p+L, p+2L, ...: %d multiplies per\n"+
+				"output.\n\n", name, s.Taps, s.Interpolation, s.Decimation,
+				strconv.FormatFloat(s.InputRateHz*float64(s.Interpolation), 'g', -1, 64), s.PhaseTaps)
+		case s.Kind == chain.Farrow.String():
+			fmt.Fprintf(&b, "%s: the Farrow structure's subfilters as one matrix, up by L = %d\n"+
+				"and down by M = %d: after its comment lines, a header row\n"+
+				"index,mu0,...,mu%d, then one row per tap j = 0..%d, column mu<i> holding\n"+
+				"Coef[i][j], the tap j of the subfilter of the i-th power of mu\n"+
+				"(report.json's farrow_coefficients[i][j]). The convention:\n%s\n\n",
+				name, s.Interpolation, s.Decimation, len(s.FarrowCoefficients)-1, s.Taps-1, farrow.Convention)
+		case s.Kind != "cic" && len(s.Coefficients) > 0:
+			fmt.Fprintf(&b, "%s: index,coefficient, the designed float taps.\n\n", name)
+		}
+	}
+	b.WriteString(capitalise(NoHandoff) + ".\n")
+	return []byte(b.String())
+}
+
+// FarrowCSV writes a Farrow structure's coefficients (coef[i][j], i the
+// power of mu, j the tap; every row as long) as one matrix: comment lines
+// that say it is planning data and give farrow.Convention, a header row
+// index,mu0,...,muP, then one row per tap j with coef[0][j] ... coef[P][j]
+// in Go's shortest round-trip form. Readers that skip lines starting with
+// '#' (NumPy's loadtxt, most spreadsheet imports with a comment setting)
+// read the matrix as it is.
+func FarrowCSV(coef [][]float64) ([]byte, error) {
+	if len(coef) == 0 || len(coef[0]) == 0 {
+		return nil, fmt.Errorf("the Farrow stage has no coefficients")
+	}
+	n := len(coef[0])
+	for i, row := range coef {
+		if len(row) != n {
+			return nil, fmt.Errorf("the Farrow subfilter of mu^%d has %d taps, that of mu^0 %d: all must have the same", i, len(row), n)
+		}
+	}
+	var b strings.Builder
+	fmt.Fprintf(&b, "# Farrow coefficients, planning data: %s.\n", Caution)
+	fmt.Fprintf(&b, "# Row j, column mu<i> is Coef[i][j]. %s\n", farrow.Convention)
+	b.WriteString("index")
+	for i := range coef {
+		fmt.Fprintf(&b, ",mu%d", i)
+	}
+	b.WriteByte('\n')
+	for j := 0; j < n; j++ {
+		b.WriteString(strconv.Itoa(j))
+		for i := range coef {
+			b.WriteByte(',')
+			b.WriteString(strconv.FormatFloat(coef[i][j], 'g', -1, 64))
+		}
+		b.WriteByte('\n')
+	}
+	return []byte(b.String()), nil
 }
 
 // FloatCSV writes index,coefficient rows in Go's shortest round-trip form.

@@ -79,9 +79,18 @@ func (s Stage) MarshalJSON() ([]byte, error) {
 	return renameKeys(b, interpStageKeys)
 }
 
-// UnmarshalJSON reads a stage of either direction.
+// UnmarshalJSON reads a stage of either direction. A fractional stage
+// (of a decimation chain) holds both interpolation and decimation, L and
+// M, and is read as written.
 func (s *Stage) UnmarshalJSON(b []byte) error {
 	type plain Stage
+	var keys map[string]json.RawMessage
+	if err := json.Unmarshal(b, &keys); err != nil {
+		return err
+	}
+	if _, both := keys["decimation"]; both {
+		return json.Unmarshal(b, (*plain)(s))
+	}
 	b, interp, err := restoreKeys(b, interpStageKeys, "interpolation")
 	if err != nil {
 		return err

@@ -12,6 +12,7 @@ import (
 	"sync"
 
 	"github.com/stepdown-dsp/stepdown/chain"
+	"github.com/stepdown-dsp/stepdown/chain/farrow"
 	"github.com/stepdown-dsp/stepdown/chain/fixed"
 	"github.com/stepdown-dsp/stepdown/chain/specfile"
 	"github.com/stepdown-dsp/stepdown/optimize"
@@ -56,18 +57,25 @@ type Report struct {
 
 // Spec is the normalised spec. Direction is "decimate" or "interpolate";
 // Decimation and Interpolation are D and L, the other one 1, so that the
-// rate change is Interpolation/Decimation in both directions.
+// rate change is Interpolation/Decimation in both directions. Ratio is the
+// ratio of the high rate to the channel rate as a string: "256" for an
+// integer spec, "625/24" (reduced, chain.Spec.RatioString) for a
+// fractional one, whose Decimation is then 0 (no integer says it).
 type Spec struct {
 	InputRateHz   float64 `json:"input_rate_hz"`
 	OutputRateHz  float64 `json:"output_rate_hz"`
 	Direction     string  `json:"direction"`
+	Ratio         string  `json:"ratio"`
 	Decimation    int     `json:"decimation"`
 	Interpolation int     `json:"interpolation"`
-	PassbandHz    float64 `json:"passband_hz"`
-	ProtectedHz   float64 `json:"protected_hz"`
-	StopbandHz    float64 `json:"stopband_hz"`
-	RippleDB      float64 `json:"ripple_db"`
-	RejectionDB   float64 `json:"rejection_db"`
+	// RatioTolerancePPM is ratio_tolerance_ppm, absent when the spec does
+	// not set it.
+	RatioTolerancePPM float64 `json:"ratio_tolerance_ppm,omitempty"`
+	PassbandHz        float64 `json:"passband_hz"`
+	ProtectedHz       float64 `json:"protected_hz"`
+	StopbandHz        float64 `json:"stopband_hz"`
+	RippleDB          float64 `json:"ripple_db"`
+	RejectionDB       float64 `json:"rejection_db"`
 	// RejectionMask is rejection_mask's points, [frequency Hz, rejection
 	// dB]; absent without one. RejectionDB is then its largest rejection,
 	// a chain's rejection_margin_db its worst margin over the mask and
@@ -222,10 +230,14 @@ type SubStage struct {
 	RegisterBits  int     `json:"register_bits"`
 }
 
-// Stage is one stage of a chain.
+// Stage is one stage of a chain. Decimation is an integer stage's factor;
+// a fractional stage (kind "polyphase" or "farrow", always a decimation
+// chain's last) changes the rate by Interpolation/Decimation, L/M, and
+// its output rate is its input rate x L/M.
 type Stage struct {
 	Kind                string  `json:"kind"`
 	Decimation          int     `json:"decimation"`
+	Interpolation       int     `json:"interpolation,omitempty"`
 	InputRateHz         float64 `json:"input_rate_hz"`
 	OutputRateHz        float64 `json:"output_rate_hz"`
 	MultipliesPerOutput float64 `json:"multiplies_per_output"`
@@ -263,11 +275,23 @@ type Stage struct {
 	// interp: a stage of an interpolation chain (see MarshalJSON).
 	interp bool
 
-	// Half-band and FIR only.
+	// Half-band, FIR and polyphase. A polyphase stage's Coefficients are
+	// its prototype lowpass at Interpolation x its input rate, with unit
+	// gain at 0 Hz as the chain holds it (the data path multiplies by L),
+	// Taps its length, PhaseTaps ceil(Taps/L), the multiplies per output.
 	Variant        string    `json:"variant,omitempty"` // FIR: "multiband" or "lowpass"
 	Taps           int       `json:"taps,omitempty"`
+	PhaseTaps      int       `json:"phase_taps,omitempty"`
 	Coefficients   []float64 `json:"coefficients,omitempty"`
 	CompensatesCIC *bool     `json:"compensates_cic,omitempty"`
+
+	// Farrow only: FarrowCoefficients[i][j] is chain/farrow's Filter.Coef,
+	// one row of Taps subfilter taps per power i of mu, lowest first
+	// (FarrowDegree+1 rows); FarrowConvention is farrow.Convention, the
+	// sentence that says how they make an output.
+	FarrowDegree       int         `json:"farrow_degree,omitempty"`
+	FarrowCoefficients [][]float64 `json:"farrow_coefficients,omitempty"`
+	FarrowConvention   string      `json:"farrow_convention,omitempty"`
 
 	// The stage's word lengths from package chain/fixed (coefficient_bits,
 	// coefficient_frac, coefficients_int, accumulator_bits, output_bits,
@@ -330,9 +354,11 @@ func NewSpec(s *specfile.Spec) Spec {
 	c := s.Chain
 	out := Spec{
 		InputRateHz: c.InputRate, OutputRateHz: c.OutputRate,
-		Direction: c.Direction().String(), Decimation: c.Decimation(), Interpolation: c.Interpolation(),
-		RejectionMask: maskPoints(c.RejectionMask),
-		PassbandHz:    c.Passband, ProtectedHz: c.Protected, StopbandHz: c.Stopband,
+		Direction: c.Direction().String(), Ratio: c.RatioString(),
+		Decimation: c.Decimation(), Interpolation: c.Interpolation(),
+		RatioTolerancePPM: c.RatioTolerancePPM,
+		RejectionMask:     maskPoints(c.RejectionMask),
+		PassbandHz:        c.Passband, ProtectedHz: c.Protected, StopbandHz: c.Stopband,
 		RippleDB: c.RippleDB, RejectionDB: c.RejectionDB, Signal: s.Signal,
 		Words: Words{Input: c.InputBits, Output: c.OutputBits},
 		Cost:  Cost{Symmetry: s.Symmetry},
@@ -448,7 +474,7 @@ func NewChain(spec chain.Spec, cand optimize.Candidate, clock bool) (Chain, erro
 			}
 		}
 		// The cases cover every kind of chain.Kinds (FIR and half-band are
-		// chain.FIRStages).
+		// chain.FIRStages) and of chain.FractionalKinds.
 		switch x := st.(type) {
 		case chain.CICStage:
 			s.CICOrder, s.CICDelay, s.CICForm = x.N, x.M, x.Form.String()
@@ -461,8 +487,19 @@ func NewChain(spec chain.Spec, cand optimize.Candidate, clock bool) (Chain, erro
 			if !x.HalfBand {
 				s.Variant = x.Variant.String()
 			}
+		case chain.PolyphaseStage:
+			s.Interpolation, s.Decimation = x.Up, x.Down
+			s.Taps, s.PhaseTaps = x.Length, x.PhaseTaps()
+			s.Coefficients = append([]float64{}, x.Taps...)
+		case chain.FarrowStage:
+			s.Interpolation, s.Decimation = x.Up, x.Down
+			s.Taps, s.FarrowDegree = x.Length, x.Degree
+			for _, row := range x.Filter.Coef {
+				s.FarrowCoefficients = append(s.FarrowCoefficients, append([]float64{}, row...))
+			}
+			s.FarrowConvention = farrow.Convention
 		default:
-			return Chain{}, fmt.Errorf("report: chain %q stage %d is a %T; the report takes chain.CICStage and chain.FIRStage values", out.Notation, i+1, st)
+			return Chain{}, fmt.Errorf("report: chain %q stage %d is a %T; the report takes chain.CICStage, chain.FIRStage, chain.PolyphaseStage and chain.FarrowStage values", out.Notation, i+1, st)
 		}
 		out.Stages = append(out.Stages, s)
 	}
@@ -487,7 +524,17 @@ func NewChain(spec chain.Spec, cand optimize.Candidate, clock bool) (Chain, erro
 //
 // Once ctx is done the planner stops and the chain gets only
 // WordLengthsError (and, with rounded set, does not meet).
+//
+// A chain that ends in a fractional stage gets no word lengths (package
+// chain/fixed plans integer stages only): WordLengthsError is
+// fixed.ErrFractional's sentence, and the chain keeps its float verdict
+// (VerdictBasis "float taps") whatever the spec's coefficient width, since
+// nothing of it is rounded.
 func AddWordLengths(ctx context.Context, c *Chain, spec chain.Spec, cand optimize.Candidate, s fixed.Settings, withHardware, rounded bool) {
+	if Fractional(cand.Chain) {
+		c.WordLengthsError = strings.TrimPrefix(fixed.ErrFractional.Error(), "fixed: ")
+		return
+	}
 	if rounded {
 		c.VerdictBasis = "rounded taps"
 		c.MeetsTargets = false
@@ -531,6 +578,19 @@ func AddWordLengths(ctx context.Context, c *Chain, spec chain.Spec, cand optimiz
 		// The verdict needs both to meet: the margin is the worse one's.
 		c.RejectionMarginDB = math.Min(res.Quantised.AliasRejectionDB, c.AliasRejectionDB) - spec.RejectionDB
 	}
+}
+
+// Fractional reports whether c ends in a fractional stage (a polyphase or
+// Farrow stage, chain.Kind.Fractional).
+func Fractional(c *chain.Chain) bool {
+	return c != nil && len(c.Stages) > 0 && c.Stages[len(c.Stages)-1].Kind().Fractional()
+}
+
+// Fractional reports whether the chain ends in a fractional stage: it then
+// has no word lengths, coefficient integers or hand-off.
+func (c *Chain) Fractional() bool {
+	n := len(c.Stages)
+	return n > 0 && (c.Stages[n-1].Kind == chain.Polyphase.String() || c.Stages[n-1].Kind == chain.Farrow.String())
 }
 
 // New builds the report of a search.

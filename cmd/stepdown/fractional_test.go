@@ -1,0 +1,71 @@
+package main
+
+import (
+	"os"
+	"path/filepath"
+	"strings"
+	"testing"
+)
+
+// fractionalSpec is an invented scenario whose ratio, 2 MHz / 800 kHz =
+// 5/2, is a fraction: its chains end in a polyphase or Farrow stage.
+const fractionalSpec = `input_rate = "2 MHz"
+output_rate = "800 kHz"
+passband = "200 kHz"
+ripple = "0.2 dB"
+rejection = "60 dB"
+`
+
+// TestCheckFractional checks a named fractional chain end to end: the
+// header says the ratio, report.json has the fixed keys of a fractional
+// stage, the prototype is written, and the missing hand-off is said in one
+// line; a chain whose stages miss the ratio, and simulate, are refused in
+// one line.
+func TestCheckFractional(t *testing.T) {
+	dir := t.TempDir()
+	must(t, os.WriteFile(filepath.Join(dir, "frac.toml"), []byte(fractionalSpec), 0o644))
+	r := runBinary(t, dir, nil, "check", "frac.toml", "--chain", "poly2/5", "--out", "checked")
+	if r.code != 0 {
+		t.Fatalf("check: exit %d: %s", r.code, r.stderr)
+	}
+	for _, want := range []string{"(fractional ratio 5/2)", "poly2/5", "word lengths: not planned (word lengths are planned for chains of integer stages only",
+		"coefficients/stage1_polyphase.csv", "coefficients/README.txt", "\nNo hand-off (headers/, vectors/, rtl/)"} {
+		if !strings.Contains(r.stdout, want) {
+			t.Errorf("output lacks %q:\n%s", want, r.stdout)
+		}
+	}
+	rep := readReport(t, filepath.Join(dir, "checked", "report.json"))
+	spec := rep["spec"].(map[string]any)
+	if spec["ratio"] != "5/2" || spec["decimation"] != 0.0 {
+		t.Errorf("spec ratio %v, decimation %v; want 5/2 and 0", spec["ratio"], spec["decimation"])
+	}
+	st := rep["front"].([]any)[0].(map[string]any)["stages"].([]any)[0].(map[string]any)
+	// 2 MHz x 2/5 = 800 kHz.
+	for k, want := range map[string]any{"kind": "polyphase", "interpolation": 2.0, "decimation": 5.0, "input_rate_hz": 2e6, "output_rate_hz": 8e5} {
+		if st[k] != want {
+			t.Errorf("stage %s = %v, want %v", k, st[k], want)
+		}
+	}
+	if c, _ := st["coefficients"].([]any); len(c) == 0 || float64(len(c)) != st["taps"] {
+		t.Errorf("coefficients: %d, taps %v", len(c), st["taps"])
+	}
+	for _, d := range []string{"headers", "vectors", "rtl"} {
+		if _, err := os.Stat(filepath.Join(dir, "checked", d)); err == nil {
+			t.Errorf("a fractional check wrote %s/", d)
+		}
+	}
+
+	for _, args := range [][]string{
+		{"check", "frac.toml", "--chain", "poly2/4", "--out", "bad"},
+		{"check", "frac.toml", "--chain", "fir2 > poly2/5", "--out", "bad"},
+		{"simulate", "frac.toml", "--input", "missing.wav", "--out", "bad"},
+	} {
+		r := runBinary(t, dir, nil, args...)
+		if r.code != 2 || strings.Count(r.stderr, "\n") != 1 || strings.Contains(r.stderr, "goroutine") {
+			t.Errorf("%v: exit %d, stderr %q: want exit 2 and one line", args, r.code, r.stderr)
+		}
+	}
+	if _, err := os.Stat(filepath.Join(dir, "bad")); err == nil {
+		t.Errorf("a refused command wrote its folder")
+	}
+}

@@ -1,0 +1,228 @@
+package report
+
+import (
+	"fmt"
+	"math"
+	"math/cmplx"
+	"runtime"
+	"sync"
+
+	"github.com/stepdown-dsp/stepdown/chain"
+)
+
+// The response figure of a chain that ends in a fractional stage draws two
+// curves over input frequency g instead of one: the kept path (the path
+// K = 0 that leaves a tone where it is, chain.Chain.Gain) and, at each g,
+// the largest gain of any path that lands in the protected band [0, fa]
+// other than the tone itself (K = 0 with g <= fa): the aliases that
+// chain.PathGains lists and chain.Analyze bounds. Both are relative to the
+// gain at 0 Hz.
+//
+// chain.PathGains gives those paths one frequency at a time and sets up
+// the stage's rigorous bounds on every call, too slow for the figure's
+// tens of thousands of points; fractionalCurves evaluates the same paths
+// from the stages' own Gain methods (TestFractionalCurvesMatchPathGains
+// holds it to chain.PathGains), and a polyphase stage's L paths at once:
+// with theta = 2 pi g / (L Fm), P(g + k Fm) = sum_r exp(-j 2 pi k r / L)
+// Q_r(g), Q_r(g) = sum_m p[r + L m] exp(-j theta (r + L m)), so that the L
+// paths cost one pass over the taps and an L-point DFT.
+
+// farrowFigurePaths is the paths either side of K = 0 the figure draws
+// for a Farrow stage: chain.PathGains' default. Farther paths meet the
+// structure's far stopband, which chain.Analyze bounds as a tail.
+const farrowFigurePaths = 16
+
+// fractionalWork is the most evaluations (taps and DFT terms) the curves
+// may take; a longer grid is thinned to fit (thinGrid), so that the
+// figure's curves take about a second at most on one core, whatever the stage's L.
+const fractionalWork = 2e8
+
+// fractionalParts is a fractional chain split for the figure: its integer
+// stages, the fractional stage, its input rate Fm and the output rate FK.
+type fractionalParts struct {
+	ic     *chain.Chain
+	last   chain.Stage
+	fm, fk float64
+	dc     float64
+}
+
+func splitChain(c *chain.Chain) (fractionalParts, error) {
+	n := len(c.Stages)
+	rates := c.Rates()
+	p := fractionalParts{
+		ic:   &chain.Chain{InputRate: c.InputRate, Complex: c.Complex, Direction: c.Direction, Plan: c.Plan[:min(n-1, len(c.Plan))], Stages: c.Stages[:n-1]},
+		last: c.Stages[n-1],
+		fm:   rates[n-1],
+		fk:   c.OutputRate(),
+		dc:   c.Gain(0),
+	}
+	if !(p.dc > 0) || !finite(p.dc) {
+		return p, fmt.Errorf("response plot: the chain's DC gain is %v", p.dc)
+	}
+	if !(p.fm > 0) || !(p.fk > 0) {
+		return p, fmt.Errorf("response plot: the fractional stage's rates %v Hz in, %v Hz out", p.fm, p.fk)
+	}
+	switch st := p.last.(type) {
+	case chain.PolyphaseStage:
+		if st.Up < 1 || len(st.Taps) == 0 {
+			return p, fmt.Errorf("response plot: the polyphase stage has no designed taps")
+		}
+	case chain.FarrowStage:
+		if st.Filter.Validate() != nil {
+			return p, fmt.Errorf("response plot: the Farrow stage has no designed coefficients")
+		}
+	default:
+		return p, fmt.Errorf("response plot: stage %d is a %T, not a fractional stage", n, p.last)
+	}
+	return p, nil
+}
+
+// work is the evaluations one grid point costs.
+func (p fractionalParts) work() float64 {
+	w := 0.0
+	for _, s := range p.ic.Stages {
+		if f, ok := s.(chain.FIRStage); ok {
+			w += float64(len(f.Taps))
+		}
+	}
+	switch st := p.last.(type) {
+	case chain.PolyphaseStage:
+		w += float64(len(st.Taps)) + float64(st.Up)*float64(st.Up)
+	case chain.FarrowStage:
+		// Each path's closed form takes a complex exponential per
+		// segment besides the taps: about five taps' time (measured on
+		// the demo spec's farrow24/25).
+		w += float64(2*farrowFigurePaths+1) * 5 * float64(st.Filter.Degree()+2) * float64(st.Filter.Len())
+	}
+	return w
+}
+
+// fold is f folded into [0, FK/2] by the output rate, as chain.PathGains
+// folds it.
+func (p fractionalParts) fold(f float64) float64 {
+	f = math.Mod(f, p.fk)
+	if f < 0 {
+		f += p.fk
+	}
+	return math.Min(f, p.fk-f)
+}
+
+// curves returns the kept path's gain and the largest alias's at g, both
+// relative to the gain at 0 Hz; the alias is 0 when no path lands in
+// [0, fa]. scratch holds 2L complex values for a polyphase stage.
+func (p fractionalParts) curves(g, fa float64, scratch []complex128) (kept, alias float64) {
+	a := p.ic.Gain(g) / p.dc
+	consider := func(k int, gain float64) {
+		if k == 0 && g <= fa {
+			return
+		}
+		if p.fold(g+float64(k)*p.fm) <= fa {
+			alias = math.Max(alias, gain)
+		}
+	}
+	switch st := p.last.(type) {
+	case chain.PolyphaseStage:
+		l := st.Up
+		q, r := scratch[:l], scratch[l:2*l]
+		for i := range q {
+			q[i] = 0
+		}
+		// Q_r by a rotating phasor, resynchronised every 64 taps.
+		theta := 2 * math.Pi * g / (float64(l) * p.fm)
+		sw, cw := math.Sincos(-theta)
+		step := complex(cw, sw)
+		var ph complex128
+		for n, v := range st.Taps {
+			if n%64 == 0 {
+				s, c := math.Sincos(-theta * float64(n))
+				ph = complex(c, s)
+			}
+			q[n%l] += complex(v, 0) * ph
+			ph *= step
+		}
+		// The L-point DFT: path k's response sum_r w^(k r) Q_r.
+		for k := 0; k < l; k++ {
+			var s complex128
+			for i := 0; i < l; i++ {
+				s += q[i] * r[(k*i)%l]
+			}
+			gain := a * cmplx.Abs(s)
+			if k == 0 {
+				kept = gain
+			}
+			consider(k, gain)
+		}
+	case chain.FarrowStage:
+		for k := -farrowFigurePaths; k <= farrowFigurePaths; k++ {
+			gain := a * st.Gain(g+float64(k)*p.fm, p.fm)
+			if k == 0 {
+				kept = gain
+			}
+			consider(k, gain)
+		}
+	}
+	return kept, alias
+}
+
+// fractionalCurves returns, in dB re the gain at 0 Hz, the kept path and
+// the largest alias into [0, fa] of the fractional chain c at each input
+// frequency of grid (-Inf where no path lands there). The points are
+// shared among the cores, each written by one, so the result does not
+// depend on their number.
+func fractionalCurves(c *chain.Chain, fa float64, grid []float64) (kept, alias []float64, err error) {
+	p, err := splitChain(c)
+	if err != nil {
+		return nil, nil, err
+	}
+	kept, alias = make([]float64, len(grid)), make([]float64, len(grid))
+	l := 0
+	var twiddle []complex128
+	if st, ok := p.last.(chain.PolyphaseStage); ok {
+		l = st.Up
+		twiddle = make([]complex128, l)
+		for i := range twiddle {
+			s, c := math.Sincos(-2 * math.Pi * float64(i) / float64(l))
+			twiddle[i] = complex(c, s)
+		}
+	}
+	const chunk = 512
+	next := make(chan int)
+	var wg sync.WaitGroup
+	for w := 0; w < runtime.GOMAXPROCS(0); w++ {
+		wg.Add(1)
+		go func() {
+			defer wg.Done()
+			scratch := make([]complex128, 2*l)
+			copy(scratch[l:], twiddle)
+			for lo := range next {
+				for i := lo; i < min(lo+chunk, len(grid)); i++ {
+					k, a := p.curves(grid[i], fa, scratch)
+					kept[i], alias[i] = db(k), db(a)
+				}
+			}
+		}()
+	}
+	for lo := 0; lo < len(grid); lo += chunk {
+		next <- lo
+	}
+	close(next)
+	wg.Wait()
+	return kept, alias, nil
+}
+
+// thinGrid keeps every s-th point of grid (and its last), the least s
+// that brings points x work within fractionalWork.
+func thinGrid(grid []float64, work float64) []float64 {
+	if work <= 0 || float64(len(grid))*work <= fractionalWork {
+		return grid
+	}
+	s := int(math.Ceil(float64(len(grid)) * work / fractionalWork))
+	out := make([]float64, 0, len(grid)/s+2)
+	for i := 0; i < len(grid); i += s {
+		out = append(out, grid[i])
+	}
+	if last := grid[len(grid)-1]; out[len(out)-1] != last {
+		out = append(out, last)
+	}
+	return out
+}
