@@ -55,6 +55,11 @@ const (
 	// where the search plans a chain's rounded taps (a fixed coefficient
 	// width), so it counts designed chains only.
 	ReasonOverAccumulatorBits Reason = "fir_accumulator_over_limit"
+	// ReasonNoFractionalSplit counts the rates Fm of a fractional ratio
+	// where no fractional stage fits (a polyphase stage needs at most 256
+	// phases, a Farrow stage a lowpass FIR before it at more than twice
+	// the band it keeps).
+	ReasonNoFractionalSplit Reason = "no_fractional_stage_fits"
 )
 
 // reasonText is each Reason in words.
@@ -79,6 +84,7 @@ var reasonText = map[Reason]string{
 	ReasonOverMultipliers:     "more multipliers at the clock than hardware.max_multipliers",
 	ReasonOverMemory:          "more memory than hardware.max_memory_bits",
 	ReasonOverAccumulatorBits: "a fir or half-band accumulator wider than hardware.max_register_bits",
+	ReasonNoFractionalSplit:   "rates tried for the fractional stage where neither a polyphase stage (at most 256 phases) nor a farrow stage (after a lowpass FIR, at more than twice the kept band) fits",
 }
 
 // Text is r in words ("cic rejection below target"); a name it does not
@@ -114,7 +120,8 @@ func Reasons() []Reason {
 	return []Reason{ReasonCICRejection, ReasonCICDroop, ReasonHalfBandEdges, ReasonShortFIR, ReasonDesignFailed,
 		ReasonEvaluateFailed, ReasonMissRejection, ReasonMissRipple, ReasonCICNull, ReasonGaveUp, ReasonCICBeaten,
 		ReasonLongFIR, ReasonRoundingFloor, ReasonMissQuantised, ReasonWordLengths,
-		ReasonOverRegisterBits, ReasonOverCICFactor, ReasonOverMultipliers, ReasonOverMemory, ReasonOverAccumulatorBits}
+		ReasonOverRegisterBits, ReasonOverCICFactor, ReasonOverMultipliers, ReasonOverMemory, ReasonOverAccumulatorBits,
+		ReasonNoFractionalSplit}
 }
 
 type dropCode uint8

@@ -180,11 +180,16 @@ func planFractional(ctx context.Context, spec chain.Spec, s Settings) (*Result, 
 			continue // d is the whole ratio: no fractional stage
 		}
 		if d == 1 {
-			subs = append(subs, &subSearch{d: 1, up: up, down: down, front: [][]chain.StagePlan{nil}})
+			if up <= 256 && slices.Contains(frac, chain.Polyphase) {
+				subs = append(subs, &subSearch{d: 1, up: up, down: down, front: [][]chain.StagePlan{nil}})
+			} else {
+				res.Dropped[ReasonNoFractionalSplit]++
+			}
 			continue
 		}
 		fm := spec.InputRate / float64(d)
 		fk := fm * float64(up) / float64(down)
+		nsubs := len(subs)
 		exact := spec
 		exact.OutputRate, exact.RatioTolerancePPM = fk, 0
 		share := spec.RippleDB * chain.FractionalRippleShare
@@ -197,6 +202,9 @@ func planFractional(ctx context.Context, spec chain.Spec, s Settings) (*Result, 
 			}
 			subs = append(subs, &subSearch{d: d, up: up, down: down, lowpass: lowpass,
 				spec: chain.IntegerSpec(exact, d, spec.RippleDB-share, share, lowpass)})
+		}
+		if len(subs) == nsubs {
+			res.Dropped[ReasonNoFractionalSplit]++
 		}
 	}
 	runAll(ctx, jobs, len(subs), func(i int) {

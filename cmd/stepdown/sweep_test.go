@@ -43,12 +43,12 @@ func TestSweepUsageErrors(t *testing.T) {
 		// 200 and 300 MHz are no integer interpolation of 122.88 MHz, whatever
 		// the rejection (a fractional ratio is planned in decimation
 		// chains only).
-		{[]string{"sweep", "--vary", "rejection=80:90:10", "--vary", "output_rate=200 MHz:300 MHz:100 MHz"}, "every cell makes the spec invalid (first, rejection 80 dB, output_rate 200 MHz:"},
+		{[]string{"sweep", "--vary", "rejection=80:90:10", "--vary", "output_rate=0.5 MHz:1 MHz:0.5 MHz"}, "every cell makes the spec invalid (first, rejection 80 dB, output_rate 500 kHz:"},
 		{[]string{"sweep", "--vary", "coefficient_bits=14:20:0.5"}, "whole number"},
 		{[]string{"sweep", "--vary", "rejection=80:90:5", "--jobs", "-1"}, "--jobs -1"},
 		{[]string{"sweep", "missing.toml", "--vary", "rejection=80:90:5"}, "missing.toml"},
 		// 200 or 300 MHz over 122.88 MHz is not an integer: no value can be planned.
-		{[]string{"sweep", "--vary", "output_rate=200 MHz:300 MHz:100 MHz"}, "every value makes the spec invalid"},
+		{[]string{"sweep", "--vary", "output_rate=0.5 MHz:1 MHz:0.5 MHz"}, "every value makes the spec invalid"},
 	}
 	for _, tc := range tests {
 		out := filepath.Join(dir, "out")
