@@ -145,7 +145,7 @@ func TestRunDescending(t *testing.T) {
 // testdata/onekey holds the files the code wrote then, with fakePlan.
 func TestOneKeyGolden(t *testing.T) {
 	for name, arg := range map[string]string{
-		"rejection":   "rejection=85:145:20",                   // ok rows, a change, an infeasible row
+		"rejection":   "rejection=85:145:20",                    // ok rows, a change, an infeasible row
 		"output_rate": "output_rate=0.96 MHz:2.88 MHz:0.96 MHz", // an invalid row, an ok one, an infeasible fractional one
 	} {
 		rs, v := study(t, arg, 2)
