@@ -495,6 +495,9 @@ func TestSweepGridDeterministicReal(t *testing.T) {
 // sweep.csv's adders and best_adders hold each value's figures, equal to
 // the recommended chain's adders in that value's report.json.
 func TestSweepMultiplierless(t *testing.T) {
+	if os.Getenv("STEPDOWN_LONG") == "" {
+		t.Skip("3 s: STEPDOWN_LONG (CI's long step)")
+	}
 	dir := t.TempDir()
 	spec := `input_rate = "2.4 GHz"
 output_rate = "37.5 MHz"
