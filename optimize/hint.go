@@ -111,10 +111,13 @@ func Hints(ctx context.Context, spec chain.Spec, s Settings, res *Result) ([]Hin
 		if alt == 0 {
 			continue
 		}
-		// The spec as given: defaults (the stopband edge) follow the
-		// new output rate.
+		// The spec as given: the default stopband edge, FK - fa,
+		// follows the new output rate.
 		a := spec
 		a.OutputRate = ns.InputRate / float64(alt)
+		if a.Stopband == ns.OutputRate-ns.Protected {
+			a.Stopband = 0 // the default edge, which follows the rate
+		}
 		if _, err := a.Normalize(); err != nil {
 			continue
 		}

@@ -69,3 +69,35 @@ func TestCheckFractional(t *testing.T) {
 		t.Errorf("a refused command wrote its folder")
 	}
 }
+
+// TestPlanHints: a prime ratio's plan names the cheaper ways to the
+// channel on the terminal and in report.json's hints (optimize.Hints; its
+// own test checks the figures). Four plans: CI's long step only.
+func TestPlanHints(t *testing.T) {
+	if os.Getenv("STEPDOWN_LONG") == "" {
+		t.Skip("four plans: STEPDOWN_LONG (CI's long step)")
+	}
+	dir := t.TempDir()
+	spec := "input_rate = \"53 MHz\"\noutput_rate = \"1 MHz\"\npassband = \"400 kHz\"\nripple = \"0.1 dB\"\nrejection = \"80 dB\"\n"
+	must(t, os.WriteFile(filepath.Join(dir, "prime.toml"), []byte(spec), 0o644))
+	r := runBinary(t, dir, nil, "plan", "prime.toml", "--out", "planned")
+	if r.code != 0 {
+		t.Fatalf("plan: exit %d: %s", r.code, r.stderr)
+	}
+	if n := strings.Count(r.stdout, "\nhint: D = 53 has the prime factor 53"); n != 3 {
+		t.Errorf("%d hints on the terminal, want 3:\n%s", n, r.stdout)
+	}
+	rep := readReport(t, filepath.Join(dir, "planned", "report.json"))
+	hs, _ := rep["hints"].([]any)
+	var ratios []string
+	for _, h := range hs {
+		m := h.(map[string]any)
+		ratios = append(ratios, m["ratio"].(string))
+		if m["chain"] == "" || !(m["multiplies_per_output"].(float64) > 0) || m["output_rate_hz"] == nil {
+			t.Errorf("hint %v", m)
+		}
+	}
+	if got := strings.Join(ratios, " "); got != "50 54 53" {
+		t.Errorf("hints' ratios %q, want 50 54 53", got)
+	}
+}

@@ -105,6 +105,8 @@ type job struct {
 	compareNote string
 	// limitNote says which [hardware] limit the checked chain breaks.
 	limitNote string
+	// hints are plan's cheaper ways to the channel (optimize.Hints).
+	hints []optimize.Hint
 }
 
 func newJob(c *cli.Context) (*job, error) {
@@ -198,6 +200,19 @@ func runPlan(c *cli.Context) error {
 	}
 	if len(res.Front) == 0 {
 		return emptyFront(res, clip(j.out.Dir()))
+	}
+	if !res.Partial {
+		// A ratio with a large prime factor: nearby ratios and the
+		// fractional route, planned beside it. A hint cut short by
+		// --timeout is left out.
+		hs := set
+		hs.Progress, hs.Scoring = nil, nil
+		if h, err := optimize.Hints(ctx, j.spec.Chain, hs, res); err == nil && ctx.Err() == nil {
+			j.hints = h
+		}
+		if sigCtx.Err() != nil {
+			return fmt.Errorf("interrupted; %s left as it was", clip(j.out.Dir()))
+		}
 	}
 	return j.finish(ctx, "plan", res)
 }
@@ -380,6 +395,10 @@ func (j *job) finish(ctx context.Context, command string, res *optimize.Result) 
 	if j.c.Context.Err() != nil {
 		return fmt.Errorf("interrupted; %s left as it was", clip(j.out.Dir()))
 	}
+	for _, h := range j.hints {
+		rep.Hints = append(rep.Hints, report.Hint{Text: h.Text, OutputRateHz: h.OutputRateHz, Ratio: h.Ratio,
+			Chain: h.Chain, MultipliesPerOutput: h.MultipliesPerOutput})
+	}
 	if command == "check" && len(rep.Front) == 1 {
 		rep.Reason = report.CheckReason(rep.Front[0], rep.Spec)
 		rep.Compare(j.compare)
@@ -521,6 +540,9 @@ func printSummary(w io.Writer, j *job, rep *report.Report, files []report.File) 
 		}
 	default:
 		fmt.Fprintf(w, "recommended: #%d %s\n  %s\n", rep.Recommended+1, rep.Front[rep.Recommended].Notation, rep.Reason)
+	}
+	for _, h := range rep.Hints {
+		fmt.Fprintf(w, "hint: %s\n", h.Text)
 	}
 	if len(rep.Front) > 0 {
 		report.WriteWordLengths(w, rep)

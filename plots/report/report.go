@@ -53,6 +53,22 @@ type Report struct {
 	// Absent from a plan's report.
 	ComparedWith *Comparison `json:"compared_with,omitempty"`
 	BeatenBy     []Beater    `json:"beaten_by,omitzero"`
+	// Hints, from plan only, name cheaper ways to the channel when the
+	// ratio has a prime factor above 7 (optimize.Hints); absent when
+	// there are none.
+	Hints []Hint `json:"hints,omitempty"`
+}
+
+// Hint is one of plan's cheaper ways to the channel: a nearby output rate
+// whose ratio splits well, or the same output rate through a fractional
+// stage, with its recommended chain (signal order) and its cost per
+// output from real (float) designs.
+type Hint struct {
+	Text                string  `json:"text"`
+	OutputRateHz        float64 `json:"output_rate_hz"`
+	Ratio               string  `json:"ratio"`
+	Chain               string  `json:"chain"`
+	MultipliesPerOutput float64 `json:"multiplies_per_output"`
 }
 
 // Spec is the normalised spec. Direction is "decimate" or "interpolate";
