@@ -378,17 +378,26 @@
 // Any other M or R is refused (NonRecursiveOK says why). The transfer
 // function is the recursive CIC's, so Gain, the requirements and Analyze's
 // bounds are shared unchanged; the time-domain model of the form is package
-// fixed's, its price package cost's.//
+// fixed's, its price package cost's.
+//
 // # Fractional stages
 //
-// A decimation Spec whose ratio F0/FK is not an integer is written exactly
+// A Spec whose ratio (the high rate over the channel rate, F0/FK of its
+// DecimationView) is not an integer is written exactly
 // as a reduced fraction num/den from the two rates (Fraction: 100 MHz over
 // 3.84 MHz is 625/24; within 1e-9 of the ratio, denominator at most
 // MaxFractionDen), or, with RatioTolerancePPM set, as the fraction with the
 // smallest denominator within that many ppm, which the chain then realises
 // exactly (its output rate differs from the spec's by at most the
-// tolerance). Decimation and Ratio return 0 for such a spec. A fractional
-// interpolation ratio is refused.
+// tolerance). Decimation and Ratio return 0 for such a spec. An
+// interpolation spec's fractional chain is, as any interpolation chain,
+// the transpose of the decimation chain planned on its DecimationView:
+// the fractional stage comes first in signal order and changes the rate
+// by Down/Up there (Direction.Notation writes it "poly<Down>/<Up>"); Run
+// runs the transposes (the polyphase stage up Down, the same prototype,
+// down Up; the Farrow structure transposed, each input sample scattered
+// over the outputs around its time), whose paths have the same gains,
+// as TestFractionalInterpolationTones measures through them.
 //
 // Its chain is integer stages down to Fm = F0/d, then one fractional stage
 // from Fm to FK = Fm Up/Down, always the last of Stages and Plan (an
