@@ -147,6 +147,9 @@ func fractionalPlan(plan []StagePlan, num, den int) (int, error) {
 	// The chain's ratio d Down/Up must be num/den.
 	if int64(d)*int64(last.Down)*int64(den) != int64(num)*int64(last.Up) {
 		g := gcd(d*den, num)
+		if d == 1 {
+			return 0, planErr(plan, len(plan)-1, "rate change %d/%d: the ratio %d/%d needs %d/%d", last.Up, last.Down, num, den, d*den/g, num/g)
+		}
 		return 0, planErr(plan, len(plan)-1, "rate change %d/%d: after the integer stages' %d the ratio %d/%d needs %d/%d", last.Up, last.Down, d, num, den, d*den/g, num/g)
 	}
 	if gcd(last.Up, last.Down) != 1 {

@@ -335,13 +335,14 @@ func (s Spec) Decimation() int {
 }
 
 // Interpolation returns L = OutputRate/InputRate of a normalised
-// interpolation spec, 1 for a decimation spec.
+// interpolation spec, 1 for a decimation spec, and 0 for an
+// interpolation spec whose ratio is not an integer (Fraction gives it).
 func (s Spec) Interpolation() int {
 	if s.Direction() == Decimate {
 		return 1
 	}
 	v := s.DecimationView()
-	if !(v.OutputRate > 0) || !finite(v.InputRate) {
+	if !(v.OutputRate > 0) || !finite(v.InputRate) || s.Fractional() {
 		return 0
 	}
 	return int(math.Round(v.InputRate / v.OutputRate))

@@ -101,3 +101,34 @@ func TestPlanHints(t *testing.T) {
 		t.Errorf("hints' ratios %q, want 50 54 53", got)
 	}
 }
+
+// TestCheckFractionalInterpolation: the transpose of TestCheckFractional's
+// spec, 800 kHz up to 2 MHz, checks the chain written in signal order,
+// poly5/2 (up 5, down 2); report.json's stage has interpolation 5 and
+// decimation 2 and counts per input; the decimation view's notation,
+// poly2/5, is refused with the ratio it needs.
+func TestCheckFractionalInterpolation(t *testing.T) {
+	dir := t.TempDir()
+	spec := strings.NewReplacer(`input_rate = "2 MHz"`, `input_rate = "800 kHz"`, `output_rate = "800 kHz"`, `output_rate = "2 MHz"`).Replace(fractionalSpec)
+	must(t, os.WriteFile(filepath.Join(dir, "up.toml"), []byte(spec), 0o644))
+	r := runBinary(t, dir, nil, "check", "up.toml", "--chain", "poly5/2", "--out", "checked")
+	if r.code != 0 {
+		t.Fatalf("check: exit %d: %s\nspec:\n%s", r.code, r.stderr, spec)
+	}
+	rep := readReport(t, filepath.Join(dir, "checked", "report.json"))
+	if s := rep["spec"].(map[string]any); s["ratio"] != "5/2" || s["direction"] != "interpolate" || s["interpolation"] != 0.0 {
+		t.Errorf("spec %v", s)
+	}
+	st := rep["front"].([]any)[0].(map[string]any)["stages"].([]any)[0].(map[string]any)
+	for k, want := range map[string]any{"kind": "polyphase", "interpolation": 5.0, "decimation": 2.0, "input_rate_hz": 8e5, "output_rate_hz": 2e6} {
+		if st[k] != want {
+			t.Errorf("stage %s = %v, want %v", k, st[k], want)
+		}
+	}
+	if _, ok := st["multiplies_per_input"]; !ok {
+		t.Errorf("stage keys %v: no multiplies_per_input", st)
+	}
+	if r := runBinary(t, dir, nil, "check", "up.toml", "--chain", "poly2/5", "--out", "bad"); r.code != 2 || strings.Count(r.stderr, "\n") != 1 {
+		t.Errorf("poly2/5 on an interpolation spec: exit %d, %q", r.code, r.stderr)
+	}
+}

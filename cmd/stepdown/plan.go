@@ -6,7 +6,6 @@ import (
 	"fmt"
 	"io"
 	"os"
-	"slices"
 	"strings"
 	"sync"
 	"time"
@@ -321,11 +320,14 @@ func (j *job) designNamed(plan []chain.StagePlan, set optimize.Settings) (optimi
 		return optimize.Candidate{}, "", usagef("--chain %q: its factors multiply to %d, but %s = %d", clip(notation), d, ratio, want)
 	}
 	// The library holds an interpolation chain from the high rate down
-	// (chain.Chain): the written order reversed.
+	// (chain.Chain): the written order reversed, and a fractional stage's
+	// L/M turned round (chain.Direction.ParseNotation).
 	written := plan
 	if dir == chain.Interpolate {
-		plan = slices.Clone(plan)
-		slices.Reverse(plan)
+		var err error
+		if plan, err = dir.ParseNotation(notation); err != nil {
+			return optimize.Candidate{}, "", usagef("--chain %q: %s", clip(notation), specfile.InFileTerms(err.Error()))
+		}
 	}
 	cand, why, err := optimize.Check(j.c.Context, j.spec.Chain, plan, set)
 	if j.c.Context.Err() != nil {
@@ -503,11 +505,11 @@ func printSummary(w io.Writer, j *job, rep *report.Report, files []report.File) 
 	s := rep.Spec
 	fmt.Fprintf(w, "stepdown %s: %s\n", rep.Command, j.source)
 	ratio := fmt.Sprintf("decimation %d", s.Decimation)
-	if strings.Contains(s.Ratio, "/") {
-		ratio = "fractional ratio " + s.Ratio
-	}
 	if s.Interpolates() {
 		ratio = fmt.Sprintf("interpolation %d", s.Interpolation)
+	}
+	if strings.Contains(s.Ratio, "/") {
+		ratio = "fractional ratio " + s.Ratio
 	}
 	fmt.Fprintf(w, "  %s -> %s (%s), %s signal; passband %s, protected %s, stopband %s\n",
 		units.FormatFrequency(s.InputRateHz), units.FormatFrequency(s.OutputRateHz), ratio, s.Signal,

@@ -24,11 +24,13 @@
 // Fractional ratios (a spec whose input_rate/output_rate is not an
 // integer, chain.Spec.Fractional): spec.ratio is the ratio as a string in
 // every report, "256" for an integer spec and the reduced fraction
-// "625/24" for a fractional one, whose spec.decimation is then 0 (no
-// integer D; spec.interpolation stays 1); spec.ratio_tolerance_ppm is
+// "625/24" for a fractional one, whose spec.decimation (a decimation
+// spec) or spec.interpolation (an interpolation spec) is then 0 (no
+// integer ratio; the other stays 1); spec.ratio_tolerance_ppm is
 // written when the spec sets it. Such a chain's last stage has kind
-// "polyphase" or "farrow", with interpolation (L) and decimation (M): its
-// output rate is its input rate x L/M (input_rate_hz and output_rate_hz as
+// "polyphase" or "farrow", with interpolation (L) and decimation (M) in
+// signal order (an interpolation chain's first stage): its output rate is
+// its input rate x L/M (input_rate_hz and output_rate_hz as
 // chain.Chain.Rates gives them). A polyphase stage's coefficients are its
 // prototype lowpass at L x its input rate with unit gain at 0 Hz, as the
 // chain holds it (the data path multiplies by L), taps its length and

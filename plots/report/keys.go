@@ -29,6 +29,12 @@ var (
 		"multiplies_per_output": "multiplies_per_input",
 		"adds_per_output":       "adds_per_input",
 	}
+	// interpFractionalKeys are an interpolation chain's fractional
+	// stage's: it keeps both interpolation and decimation, L and M.
+	interpFractionalKeys = map[string]string{
+		"multiplies_per_output": "multiplies_per_input",
+		"adds_per_output":       "adds_per_input",
+	}
 )
 
 // InterpolationKey returns the key an interpolation chain's report.json
@@ -76,12 +82,14 @@ func (s Stage) MarshalJSON() ([]byte, error) {
 	if err != nil || !s.interp {
 		return b, err
 	}
+	if s.Kind == "polyphase" || s.Kind == "farrow" {
+		return renameKeys(b, interpFractionalKeys)
+	}
 	return renameKeys(b, interpStageKeys)
 }
 
 // UnmarshalJSON reads a stage of either direction. A fractional stage
-// (of a decimation chain) holds both interpolation and decimation, L and
-// M, and is read as written.
+// holds both interpolation and decimation, L and M, in either.
 func (s *Stage) UnmarshalJSON(b []byte) error {
 	type plain Stage
 	var keys map[string]json.RawMessage
@@ -89,7 +97,17 @@ func (s *Stage) UnmarshalJSON(b []byte) error {
 		return err
 	}
 	if _, both := keys["decimation"]; both {
-		return json.Unmarshal(b, (*plain)(s))
+		// A fractional stage: an interpolation chain's says so by its
+		// counts per input.
+		b, interp, err := restoreKeys(b, interpFractionalKeys, "multiplies_per_input")
+		if err != nil {
+			return err
+		}
+		if err := json.Unmarshal(b, (*plain)(s)); err != nil {
+			return err
+		}
+		s.interp = interp
+		return nil
 	}
 	b, interp, err := restoreKeys(b, interpStageKeys, "interpolation")
 	if err != nil {

@@ -504,11 +504,11 @@ func NewChain(spec chain.Spec, cand optimize.Candidate, clock bool) (Chain, erro
 				s.Variant = x.Variant.String()
 			}
 		case chain.PolyphaseStage:
-			s.Interpolation, s.Decimation = x.Up, x.Down
+			s.Interpolation, s.Decimation = fractionalLM(x.Up, x.Down, out.interp)
 			s.Taps, s.PhaseTaps = x.Length, x.PhaseTaps()
 			s.Coefficients = append([]float64{}, x.Taps...)
 		case chain.FarrowStage:
-			s.Interpolation, s.Decimation = x.Up, x.Down
+			s.Interpolation, s.Decimation = fractionalLM(x.Up, x.Down, out.interp)
 			s.Taps, s.FarrowDegree = x.Length, x.Degree
 			for _, row := range x.Filter.Coef {
 				s.FarrowCoefficients = append(s.FarrowCoefficients, append([]float64{}, row...))
@@ -520,6 +520,16 @@ func NewChain(spec chain.Spec, cand optimize.Candidate, clock bool) (Chain, erro
 		out.Stages = append(out.Stages, s)
 	}
 	return out, nil
+}
+
+// fractionalLM is a fractional stage's L and M in signal order: its Up
+// and Down, turned round in an interpolation chain, which holds the
+// stage as its transpose (chain.Chain).
+func fractionalLM(up, down int, interp bool) (l, m int) {
+	if interp {
+		return down, up
+	}
+	return up, down
 }
 
 // AddWordLengths runs package chain/fixed's word-length planner and bit-true
