@@ -95,7 +95,7 @@ func checkChain(c *Chain, spec Spec) error {
 		if n, d := c.Fraction(); n != num || d != den {
 			return fmt.Errorf("chain: the chain's ratio is %d/%d, the spec's %d/%d", n, d, num, den)
 		}
-		if _, err := fractionalPlan(c.Plan, num, den); err != nil {
+		if _, err := fractionalPlan(c.Plan, num, den, spec.Direction()); err != nil {
 			return err
 		}
 		if len(c.Plan) != len(c.Stages) {

@@ -117,21 +117,28 @@ func stageRatio(s Stage) (up, down int) {
 	return 1, s.Factor()
 }
 
-// fractionalPlan checks that plan suits the fractional ratio num/den: its
-// integer stages first, then one fractional stage whose Up/Down makes up
-// the ratio. It returns the integer stages' D.
-func fractionalPlan(plan []StagePlan, num, den int) (int, error) {
+// fractionalPlan checks that plan (decimation order) suits the fractional
+// ratio num/den: its integer stages first, then one fractional stage whose
+// Up/Down makes up the ratio. It returns the integer stages' D. Its
+// messages speak in signal order for direction dir: an interpolation
+// chain begins with the fractional stage, which changes the rate by
+// Down/Up there.
+func fractionalPlan(plan []StagePlan, num, den int, dir Direction) (int, error) {
 	if len(plan) == 0 {
 		return 0, errors.New("chain: empty plan")
 	}
+	end, lm := "end", func(up, down int) (int, int) { return up, down }
+	if dir == Interpolate {
+		end, lm = "begin", func(up, down int) (int, int) { return down, up }
+	}
 	last := plan[len(plan)-1]
 	if !last.Kind.Fractional() {
-		return 0, planErr(plan, len(plan)-1, "the ratio %d/%d is a fraction: the chain must end in a fractional stage (polyphase or farrow)", num, den)
+		return 0, planErr(plan, len(plan)-1, "the ratio %d/%d is a fraction: the chain must %s with a fractional stage (polyphase or farrow)", num, den, end)
 	}
 	d := 1
 	for i, p := range plan[:len(plan)-1] {
 		if p.Kind.Fractional() {
-			return 0, planErr(plan, i, "a fractional stage may only end the chain")
+			return 0, planErr(plan, i, "a fractional stage may only %s the chain", end)
 		}
 		if p.Factor < 2 {
 			return 0, planErr(plan, i, "factor %d: must be at least 2", p.Factor)
@@ -141,19 +148,21 @@ func fractionalPlan(plan []StagePlan, num, den int) (int, error) {
 		}
 		d *= p.Factor
 	}
+	l, m := lm(last.Up, last.Down)
 	if last.Up < 1 || last.Down < 1 || last.Up > MaxFractionDen || last.Down > math.MaxInt32/max(1, d) {
-		return 0, planErr(plan, len(plan)-1, "rate change %d/%d: out of range", last.Up, last.Down)
+		return 0, planErr(plan, len(plan)-1, "rate change %d/%d: out of range", l, m)
 	}
 	// The chain's ratio d Down/Up must be num/den.
 	if int64(d)*int64(last.Down)*int64(den) != int64(num)*int64(last.Up) {
 		g := gcd(d*den, num)
+		nl, nm := lm(d*den/g, num/g)
 		if d == 1 {
-			return 0, planErr(plan, len(plan)-1, "rate change %d/%d: the ratio %d/%d needs %d/%d", last.Up, last.Down, num, den, d*den/g, num/g)
+			return 0, planErr(plan, len(plan)-1, "rate change %d/%d: the ratio %d/%d needs %d/%d", l, m, num, den, nl, nm)
 		}
-		return 0, planErr(plan, len(plan)-1, "rate change %d/%d: after the integer stages' %d the ratio %d/%d needs %d/%d", last.Up, last.Down, d, num, den, d*den/g, num/g)
+		return 0, planErr(plan, len(plan)-1, "rate change %d/%d: with the integer stages' %d the ratio %d/%d needs %d/%d", l, m, d, num, den, nl, nm)
 	}
 	if gcd(last.Up, last.Down) != 1 {
-		return 0, planErr(plan, len(plan)-1, "rate change %d/%d: write it in lowest terms", last.Up, last.Down)
+		return 0, planErr(plan, len(plan)-1, "rate change %d/%d: write it in lowest terms", l, m)
 	}
 	return d, nil
 }
@@ -195,7 +204,7 @@ const FractionalRippleShare = 0.5
 
 func buildFractional(ctx context.Context, spec Spec, plan []StagePlan, s Settings, design bool) (*Chain, error) {
 	num, den := spec.Fraction()
-	d, err := fractionalPlan(plan, num, den)
+	d, err := fractionalPlan(plan, num, den, spec.Direction())
 	if err != nil {
 		return nil, err
 	}
