@@ -228,15 +228,28 @@ func bruteFractional(c *Chain, spec Spec, farrowK int) (worst, at float64) {
 // polyphase stage to bruteFractional on seeded random invented specs and
 // plans: never optimistic, and within 0.01 dB.
 func TestFractionalAnalyzeBruteForce(t *testing.T) {
-	rng := rand.New(rand.NewPCG(14, 2))
 	n := 12
 	if os.Getenv("STEPDOWN_LONG") != "" {
 		n = 150
 	}
+	checkAgainstBrute(t, rand.New(rand.NewPCG(14, 2)), randomFractional, n, 0, 400)
+}
+
+// randomGen makes a seeded invented fractional spec and plan.
+type randomGen func(interface {
+	IntN(int) int
+	Float64() float64
+}) (Spec, []StagePlan)
+
+// checkAgainstBrute designs n chains of gen (FIR stages of at most
+// maxTaps) and holds Analyze's rejection to bruteFractional's over the
+// Farrow paths |k| <= paths: never optimistic, at most 0.01 dB below.
+func checkAgainstBrute(t *testing.T, rng *rand.Rand, gen randomGen, n, paths, maxTaps int) {
+	t.Helper()
 	checked, meets, worstGap := 0, 0, 0.0
 	for trial := 0; checked < n && trial < 10*n; trial++ {
-		spec, plan := randomFractional(rng)
-		c, err := Design(spec, plan, Settings{MaxTaps: 400})
+		spec, plan := gen(rng)
+		c, err := Design(spec, plan, Settings{MaxTaps: maxTaps})
 		if err != nil {
 			continue
 		}
@@ -244,7 +257,7 @@ func TestFractionalAnalyzeBruteForce(t *testing.T) {
 		if err != nil {
 			t.Fatalf("%s: %v", Notation(plan), err)
 		}
-		w, at := bruteFractional(c, spec, 0)
+		w, at := bruteFractional(c, spec, paths)
 		ref := -20 * math.Log10(w)
 		gap := ref - a.AliasRejectionDB // >= 0: Analyze is on the safe side
 		if gap < -1e-9 || gap > 0.01 {
@@ -329,43 +342,13 @@ func randomFarrow(rng interface {
 // impulse response) on seeded random invented specs:
 // never optimistic, and within 0.01 dB.
 func TestFarrowAnalyzeBruteForce(t *testing.T) {
-	rng := rand.New(rand.NewPCG(14, 3))
 	// The brute force's quadrature is slow: go test checks one chain on
 	// the paths |k| <= 8, the long run 12 on |k| <= 40.
 	n, paths := 1, 8
 	if os.Getenv("STEPDOWN_LONG") != "" {
 		n, paths = 12, 40
 	}
-	checked, meets, worstGap := 0, 0, 0.0
-	for trial := 0; checked < n && trial < 10*n; trial++ {
-		spec, plan := randomFarrow(rng)
-		c, err := Design(spec, plan, Settings{MaxTaps: 600})
-		if err != nil {
-			t.Logf("%s: %v", Notation(plan), err)
-			continue
-		}
-		a, err := Analyze(c, spec)
-		if err != nil {
-			t.Fatalf("%s: %v", Notation(plan), err)
-		}
-		w, at := bruteFractional(c, spec, paths)
-		ref := -20 * math.Log10(w)
-		gap := ref - a.AliasRejectionDB
-		if gap < -1e-9 || gap > 0.01 {
-			t.Errorf("%s (%+v): Analyze %.5f dB at %g Hz, brute force %.5f dB at %g Hz", Notation(plan), spec, a.AliasRejectionDB, a.WorstAliasHz, ref, at)
-		}
-		worstGap = math.Max(worstGap, gap)
-		checked++
-		if a.Meets(spec) {
-			meets++
-		} else {
-			t.Logf("misses: %s: %.2f dB (target %.2f), ripple %.3f dB (budget %.3f)", Notation(plan), a.AliasRejectionDB, spec.RejectionDB, a.PassbandRippleDB, spec.RippleDB)
-		}
-	}
-	if checked < n {
-		t.Fatalf("only %d of %d random chains designed", checked, n)
-	}
-	t.Logf("%d chains (%d meet their spec): Analyze at most %.4f dB below the brute force", checked, meets, worstGap)
+	checkAgainstBrute(t, rand.New(rand.NewPCG(14, 3)), randomFarrow, n, paths, 600)
 }
 
 // TestFractionalTones confirms Analyze in the time domain: a cosine at
@@ -379,12 +362,8 @@ func TestFarrowAnalyzeBruteForce(t *testing.T) {
 // kinds.
 func TestFractionalTones(t *testing.T) {
 	rng := rand.New(rand.NewPCG(14, 4))
-	type gen func(interface {
-		IntN(int) int
-		Float64() float64
-	}) (Spec, []StagePlan)
 	checked := 0
-	for _, g := range []gen{randomFractional, randomFarrow} {
+	for _, g := range []randomGen{randomFractional, randomFarrow} {
 		for n, trial := 0, 0; n < 3 && trial < 40; trial++ {
 			spec, plan := g(rng)
 			c, err := Design(spec, plan, Settings{MaxTaps: 600})
@@ -472,12 +451,8 @@ func TestFractionalTones(t *testing.T) {
 // frequency must match the path's gain within 0.05 dB.
 func TestFractionalInterpolationTones(t *testing.T) {
 	rng := rand.New(rand.NewPCG(14, 5))
-	type gen func(interface {
-		IntN(int) int
-		Float64() float64
-	}) (Spec, []StagePlan)
 	checked := 0
-	for _, g := range []gen{randomFractional, randomFarrow} {
+	for _, g := range []randomGen{randomFractional, randomFarrow} {
 		for n, trial := 0, 0; n < 3 && trial < 40; trial++ {
 			down, plan := g(rng)
 			up := down
