@@ -291,44 +291,48 @@ func planFractional(ctx context.Context, spec chain.Spec, s Settings) (*Result, 
 		order[i] = i
 	}
 	slices.SortStableFunc(order, func(a, b int) int { return cmp.Compare(est[a], est[b]) })
+	// The plans taken are a prefix of the order, decided one plan at a
+	// time: the same whatever the number of jobs. Designs run a batch of
+	// jobs ahead; a design past the prefix's end is not used.
 	var ok []Candidate
 	best := math.Inf(1)
-	designed := 0
-	for start := 0; start < len(order) && designed < fracMaxDesigns; {
-		if err := ctx.Err(); err != nil {
-			res.Partial = true
+	outs := make([]Candidate, len(order))
+	whys := make([]Reason, len(order))
+	have := make([]bool, len(order))
+	for i := 0; i < len(order) && i < fracMaxDesigns; i++ {
+		if e := est[order[i]]; math.IsInf(e, 1) || e > fracEstimateSlack*best {
 			break
 		}
-		if e := est[order[start]]; math.IsInf(e, 1) || e > fracEstimateSlack*best {
-			break
-		}
-		batch := order[start:min(len(order), start+jobs, start+fracMaxDesigns-designed)]
-		out := make([]Candidate, len(batch))
-		why := make([]Reason, len(batch))
-		done := runAll(ctx, jobs, len(batch), func(i int) {
-			c, w := des.design(plans[batch[i]])
-			if w == "" {
-				c, w = des.analyze(c)
-			}
-			out[i], why[i] = c, w
-		}, nil)
-		for i := range batch {
-			if !done[i] {
+		if !have[i] {
+			if err := ctx.Err(); err != nil {
 				res.Partial = true
-				continue
+				break
 			}
-			res.Designed++
-			designed++
-			if why[i] != "" {
-				res.Dropped[why[i]]++
-				continue
+			batch := order[i:min(len(order), i+jobs, fracMaxDesigns)]
+			done := runAll(ctx, jobs, len(batch), func(b int) {
+				c, w := des.design(plans[batch[b]])
+				if w == "" {
+					c, w = des.analyze(c)
+				}
+				outs[i+b], whys[i+b] = c, w
+			}, nil)
+			for b := range batch {
+				have[i+b] = done[b]
 			}
-			ok = append(ok, out[i])
-			best = math.Min(best, costAxis(&out[i].Figures))
+			if !have[i] {
+				res.Partial = true
+				break
+			}
 		}
-		start += len(batch)
+		res.Designed++
+		if whys[i] != "" {
+			res.Dropped[whys[i]]++
+		} else {
+			ok = append(ok, outs[i])
+			best = math.Min(best, costAxis(&outs[i].Figures))
+		}
 		if s.Progress != nil {
-			s.Progress(start, len(order))
+			s.Progress(i+1, min(len(order), fracMaxDesigns))
 		}
 	}
 	if err := ctx.Err(); err != nil && len(ok) == 0 {
