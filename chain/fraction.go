@@ -88,6 +88,21 @@ func (s Spec) Fraction() (num, den int) {
 	return p, q
 }
 
+// RealisedOutputRate returns the output rate the spec's ratio (Fraction)
+// gives from its input rate: OutputRate itself, to within 1e-9, unless
+// RatioTolerancePPM let the ratio move; 0 for a spec Normalize refuses
+// for its rates.
+func (s Spec) RealisedOutputRate() float64 {
+	p, q := s.Fraction()
+	if p == 0 || q == 0 {
+		return 0
+	}
+	if s.Direction() == Interpolate {
+		return s.SignalView().InputRate * float64(p) / float64(q)
+	}
+	return s.SignalView().InputRate * float64(q) / float64(p)
+}
+
 // Fractional says whether the spec's ratio is not an integer (Fraction's
 // denominator is above 1): its chain then ends in a fractional stage.
 func (s Spec) Fractional() bool {

@@ -17,8 +17,9 @@ import (
 // ceil(Length/Up).
 type PolyphaseStage struct {
 	Up, Down int
-	// Taps is the prototype at Up times the stage's input rate, with unit
-	// gain at 0 Hz (the data path multiplies by Up); nil when estimated.
+	// Taps is the prototype at Up times the stage's input rate, designed
+	// for a gain of 1 at 0 Hz within its passband deviation (the data path
+	// multiplies by Up); nil when estimated.
 	Taps   []float64
 	Length int // number of taps (estimated or len(Taps))
 	// Req is what the stage was designed (or estimated) to meet.

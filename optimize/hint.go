@@ -6,6 +6,7 @@ import (
 	"math"
 
 	"github.com/stepdown-dsp/stepdown/chain"
+	"github.com/stepdown-dsp/stepdown/chain/units"
 )
 
 // Hint is a cheaper way to the channel that the search found outside the
@@ -121,7 +122,7 @@ func Hints(ctx context.Context, spec chain.Spec, s Settings, res *Result) ([]Hin
 		if _, err := a.Normalize(); err != nil {
 			continue
 		}
-		if err := try(a, fmt.Sprintf("output rate %s Hz (D = %d)", fmtHz(a.OutputRate), alt)); err != nil {
+		if err := try(a, fmt.Sprintf("output rate %s (D = %d)", fmtHz(a.OutputRate), alt)); err != nil {
 			return nil, err
 		}
 	}
@@ -147,4 +148,6 @@ func Hints(ctx context.Context, spec chain.Spec, s Settings, res *Result) ([]Hin
 	return out, nil
 }
 
-func fmtHz(v float64) string { return fmt.Sprintf("%.6g", v) }
+// fmtHz writes a rate as the rest of the output does ("1.06 MHz"), to the
+// millihertz.
+func fmtHz(v float64) string { return units.FormatFrequency(math.Round(v*1e3) / 1e3) }

@@ -5,6 +5,7 @@ import (
 	"errors"
 	"fmt"
 	"io"
+	"math"
 	"os"
 	"strings"
 	"sync"
@@ -510,6 +511,9 @@ func printSummary(w io.Writer, j *job, rep *report.Report, files []report.File) 
 	}
 	if strings.Contains(s.Ratio, "/") {
 		ratio = "fractional ratio " + s.Ratio
+	}
+	if s.RatioErrorPPM != nil {
+		ratio += fmt.Sprintf(": output %s, %+.3g ppm within %g", units.FormatFrequency(math.Round(s.RealisedOutputRateHz*1e3)/1e3), *s.RatioErrorPPM, s.RatioTolerancePPM)
 	}
 	fmt.Fprintf(w, "  %s -> %s (%s), %s signal; passband %s, protected %s, stopband %s\n",
 		units.FormatFrequency(s.InputRateHz), units.FormatFrequency(s.OutputRateHz), ratio, s.Signal,

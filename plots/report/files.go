@@ -61,7 +61,7 @@ func CoefficientFiles(c Chain, ints bool) ([]File, error) {
 
 // NoHandoff is the one line that says why a fractional chain's output
 // folder has no hand-off (headers/, vectors/, rtl/).
-const NoHandoff = "no hand-off (headers/, vectors/, rtl/): it is written for chains of integer stages only, and this chain ends in a fractional stage, which has its float design alone (no word lengths)"
+const NoHandoff = "no hand-off (headers/, vectors/, rtl/): it is written for chains of integer stages only, and this chain has a fractional stage, which has its float design alone (no word lengths)"
 
 // FractionalReadme is coefficients/README.txt of a fractional chain: what
 // each coefficient file holds, the Farrow convention, and NoHandoff.
@@ -69,7 +69,7 @@ func FractionalReadme(c Chain) []byte {
 	var b strings.Builder
 	fmt.Fprintf(&b, "Coefficients of %s\n\n", c.Notation)
 	fmt.Fprintf(&b, "Planning data: %s.\n\n", Caution)
-	b.WriteString("The chain ends in a fractional stage, designed in floating point only: there\n" +
+	b.WriteString("The chain has a fractional stage, designed in floating point only: there\n" +
 		"are no word lengths and no integer coefficient files for it.\n\n")
 	for i, s := range c.Stages {
 		name := fmt.Sprintf("stage%d_%s.csv", i+1, s.Kind)
@@ -77,7 +77,7 @@ func FractionalReadme(c Chain) []byte {
 		case s.Kind == chain.Polyphase.String():
 			fmt.Fprintf(&b, "%s: index,coefficient, the %d-tap prototype lowpass of the polyphase\n"+
 				"stage, up by L = %d and down by M = %d. It runs at L x the stage's input rate\n"+
-				"(%s Hz) and has unit gain at 0 Hz, as designed: the data path multiplies\n"+
+				"(%s Hz) and has a gain of 1 at 0 Hz within its passband deviation: the data\npath multiplies "+
 				"by L. Phase p (p = 0..L-1) holds taps p, p+L, p+2L, ...: %d multiplies per\n"+
 				"output.\n\n", name, s.Taps, s.Interpolation, s.Decimation,
 				strconv.FormatFloat(s.InputRateHz*float64(s.Interpolation), 'g', -1, 64), s.PhaseTaps)

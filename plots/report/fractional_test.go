@@ -78,7 +78,9 @@ func TestFractionalPolyphaseReport(t *testing.T) {
 	// The key names are fixed by issue 14; the values from the spec's
 	// arithmetic (625/24 above) and the contract (decimation 0 for a
 	// fractional spec).
-	for k, want := range map[string]any{"ratio": "625/24", "decimation": 0.0, "interpolation": 1.0, "ratio_tolerance_ppm": 20.0} {
+	// 1 MHz x 24/625 is the spec's 38.4 kHz exactly: no error.
+	for k, want := range map[string]any{"ratio": "625/24", "decimation": 0.0, "interpolation": 1.0, "ratio_tolerance_ppm": 20.0,
+		"realised_output_rate_hz": 38400.0, "ratio_error_ppm": 0.0} {
 		if got := spec[k]; got != want {
 			t.Errorf("spec.%s = %v, want %v", k, got, want)
 		}
@@ -207,7 +209,10 @@ func TestFractionalFarrowReport(t *testing.T) {
 	}
 	st := ch["stages"].([]any)[0].(map[string]any)
 	// 1 MHz x 24/625 = 38.4 kHz.
-	for k, want := range map[string]any{"kind": "farrow", "interpolation": 24.0, "decimation": 625.0, "farrow_convention": farrow.Convention,
+	if c, _ := st["farrow_convention"].(string); !strings.HasPrefix(c, farrow.Convention) || !strings.Contains(c, "output m of the stage is at time t = m*625/24 input samples") {
+		t.Errorf("farrow_convention = %q", c)
+	}
+	for k, want := range map[string]any{"kind": "farrow", "interpolation": 24.0, "decimation": 625.0,
 		"input_rate_hz": 1e6, "output_rate_hz": 38400.0, "taps": 8.0, "farrow_degree": 3.0,
 		// (Degree+1) Length + Degree (the contract).
 		"multiplies_per_output": 35.0} {

@@ -87,11 +87,16 @@ type Spec struct {
 	// RatioTolerancePPM is ratio_tolerance_ppm, absent when the spec does
 	// not set it.
 	RatioTolerancePPM float64 `json:"ratio_tolerance_ppm,omitempty"`
-	PassbandHz        float64 `json:"passband_hz"`
-	ProtectedHz       float64 `json:"protected_hz"`
-	StopbandHz        float64 `json:"stopband_hz"`
-	RippleDB          float64 `json:"ripple_db"`
-	RejectionDB       float64 `json:"rejection_db"`
+	// RealisedOutputRateHz and RatioErrorPPM, written with
+	// ratio_tolerance_ppm, are the output rate the chain's ratio gives
+	// and how far it lies from output_rate_hz, in ppm.
+	RealisedOutputRateHz float64  `json:"realised_output_rate_hz,omitempty"`
+	RatioErrorPPM        *float64 `json:"ratio_error_ppm,omitempty"`
+	PassbandHz           float64  `json:"passband_hz"`
+	ProtectedHz          float64  `json:"protected_hz"`
+	StopbandHz           float64  `json:"stopband_hz"`
+	RippleDB             float64  `json:"ripple_db"`
+	RejectionDB          float64  `json:"rejection_db"`
 	// RejectionMask is rejection_mask's points, [frequency Hz, rejection
 	// dB]; absent without one. RejectionDB is then its largest rejection,
 	// a chain's rejection_margin_db its worst margin over the mask and
@@ -386,6 +391,11 @@ func NewSpec(s *specfile.Spec) Spec {
 			Requirements: s.Requirements,
 		},
 	}
+	if c.RatioTolerancePPM > 0 {
+		out.RealisedOutputRateHz = c.RealisedOutputRate()
+		e := (out.RealisedOutputRateHz/c.OutputRate - 1) * 1e6
+		out.RatioErrorPPM = &e
+	}
 	if out.SearchLimits.Requirements == "" {
 		// A specfile.Spec built in code: its zero value is the cascade rule.
 		out.SearchLimits.Requirements = "cascade"
@@ -513,13 +523,24 @@ func NewChain(spec chain.Spec, cand optimize.Candidate, clock bool) (Chain, erro
 			for _, row := range x.Filter.Coef {
 				s.FarrowCoefficients = append(s.FarrowCoefficients, append([]float64{}, row...))
 			}
-			s.FarrowConvention = farrow.Convention
+			s.FarrowConvention = farrowConvention(s.Interpolation, s.Decimation, x.Filter.Gain(0), out.interp)
 		default:
 			return Chain{}, fmt.Errorf("report: chain %q stage %d is a %T; the report takes chain.CICStage, chain.FIRStage, chain.PolyphaseStage and chain.FarrowStage values", out.Notation, i+1, st)
 		}
 		out.Stages = append(out.Stages, s)
 	}
 	return out, nil
+}
+
+// farrowConvention is farrow.Convention with where this stage's outputs
+// (or, transposed in an interpolation chain, its inputs) sit in time and
+// its gain at 0 Hz; l and m are its interpolation and decimation in
+// signal order.
+func farrowConvention(l, m int, dc float64, interp bool) string {
+	if interp {
+		return farrow.Convention + fmt.Sprintf(" In this interpolation chain the stage runs transposed, with h and tau in samples of its output (the higher rate): its input sample m sits at time t_m = m*%d/%d output samples (m = 0 at output 0), and output n = (%d/%d) * sum_m x[m] h(t_m - n). Its gain at 0 Hz, H(0), is %.9g.", l, m, l, m, dc)
+	}
+	return farrow.Convention + fmt.Sprintf(" In this chain output m of the stage is at time t = m*%d/%d input samples (m = 0 at x[0]). Its gain at 0 Hz, H(0), is %.9g.", m, l, dc)
 }
 
 // fractionalLM is a fractional stage's L and M in signal order: its Up
@@ -612,11 +633,16 @@ func Fractional(c *chain.Chain) bool {
 	return c != nil && len(c.Stages) > 0 && c.Stages[len(c.Stages)-1].Kind().Fractional()
 }
 
-// Fractional reports whether the chain ends in a fractional stage: it then
-// has no word lengths, coefficient integers or hand-off.
+// Fractional reports whether the chain has a fractional stage (the last
+// of a decimation chain, the first of an interpolation chain, in signal
+// order): it then has no word lengths, coefficient integers or hand-off.
 func (c *Chain) Fractional() bool {
-	n := len(c.Stages)
-	return n > 0 && (c.Stages[n-1].Kind == chain.Polyphase.String() || c.Stages[n-1].Kind == chain.Farrow.String())
+	for _, s := range c.Stages {
+		if s.Kind == chain.Polyphase.String() || s.Kind == chain.Farrow.String() {
+			return true
+		}
+	}
+	return false
 }
 
 // New builds the report of a search.
