@@ -22,6 +22,11 @@ type Analysis struct {
 	AliasRejectionDB float64 // positive dB
 	WorstAliasHz     float64 // input frequency of the worst alias
 	PassbandRippleDB float64 // peak-to-peak dB over [0, fp]
+	// WorstPath and WorstOutputHz, for a chain that ends in a fractional
+	// stage, are the worst alias's path k and the output frequency, in
+	// [0, fa], where it lands (PathGains); zero for an integer chain.
+	WorstPath     int
+	WorstOutputHz float64
 }
 
 // Analyze measures a designed chain against spec (docs/design.md §7):

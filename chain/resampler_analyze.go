@@ -152,6 +152,7 @@ func measureFractional(ctx context.Context, c *Chain, spec Spec) (Analysis, erro
 		wAll = weightMax(0, f0h)
 	}
 	best := extreme{}
+	bestShift := 0.0
 	bound := 0.0
 	searchPaths := func(shifts []float64) error {
 		for _, shift := range shifts {
@@ -177,7 +178,7 @@ func measureFractional(ctx context.Context, c *Chain, spec Spec) (Analysis, erro
 				return err
 			}
 			if w.v > best.v {
-				best = w
+				best, bestShift = w, shift
 			}
 			bound = math.Max(bound, w.bound)
 		}
@@ -212,6 +213,12 @@ func measureFractional(ctx context.Context, c *Chain, spec Spec) (Analysis, erro
 	a := Analysis{AliasRejectionDB: MaxFigureDB}
 	if bound > 0 {
 		a.AliasRejectionDB, a.WorstAliasHz = -toDB(bound/h0), best.x
+		a.WorstPath = int(math.Round(bestShift / fp0.fm))
+		y := math.Mod(best.x+bestShift, fk)
+		if y < 0 {
+			y += fk
+		}
+		a.WorstOutputHz = math.Min(y, fk-y)
 	}
 	p0 := fractionalPath{cs: cs, rg: fp0.rg, rb: fp0.rb}
 	pass := bandSet{n: 1, band: func(int) Interval { return Interval{0, fp} }}

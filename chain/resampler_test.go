@@ -385,6 +385,9 @@ func TestFractionalTones(t *testing.T) {
 			if worst.Gain == 0 {
 				t.Fatalf("%s: no path of %g Hz lands in [0, %g]", Notation(plan), a.WorstAliasHz, fa)
 			}
+			if worst.K != a.WorstPath || math.Abs(worst.OutputHz-a.WorstOutputHz) > 1e-9*fk {
+				t.Errorf("%s: Analyze's worst path %d to %g Hz, PathGains' %d to %g Hz", Notation(plan), a.WorstPath, a.WorstOutputHz, worst.K, worst.OutputHz)
+			}
 			// The window must part the alias from every other tone.
 			gap := fk / 2
 			for _, p := range paths {

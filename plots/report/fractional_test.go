@@ -86,6 +86,12 @@ func TestFractionalPolyphaseReport(t *testing.T) {
 		}
 	}
 	ch := m["front"].([]any)[0].(map[string]any)
+	if k, ok := ch["worst_alias_path"].(float64); !ok || k != math.Trunc(k) {
+		t.Errorf("worst_alias_path = %v", ch["worst_alias_path"])
+	}
+	if y, ok := ch["worst_alias_output_hz"].(float64); !ok || y < 0 || y > 12e3 {
+		t.Errorf("worst_alias_output_hz = %v, want a frequency in the protected band [0, 12 kHz]", ch["worst_alias_output_hz"])
+	}
 	// No word lengths: the sentence of fixed.ErrFractional, and the verdict
 	// stays on the float design although the spec sets 16-bit coefficients.
 	if got, want := ch["word_lengths_error"], strings.TrimPrefix(fixed.ErrFractional.Error(), "fixed: "); got != want {

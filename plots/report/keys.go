@@ -18,6 +18,8 @@ var (
 		"adds_per_output":              "adds_per_input",
 		"alias_rejection_db":           "image_rejection_db",
 		"worst_alias_hz":               "worst_image_hz",
+		"worst_alias_path":             "worst_image_path",
+		"worst_alias_output_hz":        "worst_image_channel_hz",
 		"quantised_alias_rejection_db": "quantised_image_rejection_db",
 		"bittrue_alias_hz":             "bittrue_image_hz",
 		"bittrue_alias_rejection_db":   "bittrue_image_rejection_db",

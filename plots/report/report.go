@@ -205,8 +205,16 @@ type Chain struct {
 	// is "rounded taps", the float design's otherwise.
 	RejectionMarginDB float64 `json:"rejection_margin_db"`
 	WorstAliasHz      float64 `json:"worst_alias_hz"`
-	PassbandRippleDB  float64 `json:"passband_ripple_db"`
-	Stages            []Stage `json:"stages"`
+	// WorstAliasPath and WorstAliasOutputHz, for a chain with a
+	// fractional stage only, are the worst alias's path k (chain.PathGains:
+	// 0..L-1 for a polyphase stage, any integer for a Farrow stage) and the
+	// frequency in [0, fa] where it lands at the output; an interpolation
+	// chain writes worst_image_path and worst_image_channel_hz, the
+	// channel frequency whose tone makes the worst image.
+	WorstAliasPath     *int     `json:"worst_alias_path,omitempty"`
+	WorstAliasOutputHz *float64 `json:"worst_alias_output_hz,omitempty"`
+	PassbandRippleDB   float64  `json:"passband_ripple_db"`
+	Stages             []Stage  `json:"stages"`
 
 	// The word-length plan and bit-true run of package chain/fixed
 	// (bittrue_snr_db, bittrue_enob, quantised_alias_rejection_db, ...),
@@ -453,6 +461,10 @@ func NewChain(spec chain.Spec, cand optimize.Candidate, clock bool) (Chain, erro
 		RejectionMarginDB:   a.AliasRejectionDB - spec.RejectionDB,
 		WorstAliasHz:        a.WorstAliasHz,
 		PassbandRippleDB:    a.PassbandRippleDB,
+	}
+	if Fractional(cand.Chain) && a.AliasRejectionDB < chain.MaxFigureDB {
+		k, y := a.WorstPath, a.WorstOutputHz
+		out.WorstAliasPath, out.WorstAliasOutputHz = &k, &y
 	}
 	out.FloatMeetsTargets = a.Meets(spec)
 	out.MeetsTargets, out.VerdictBasis = out.FloatMeetsTargets, "float taps"
