@@ -240,8 +240,11 @@ func planFractional(ctx context.Context, spec chain.Spec, s Settings) (*Result, 
 			sub.front = append(sub.front, p)
 		}
 	}, nil)
-	if err := ctx.Err(); err != nil {
-		return nil, err
+	if ctx.Err() != nil {
+		// Stopped: a partial result, with whatever was designed (nothing
+		// yet), which the caller reports as such.
+		res.Partial = true
+		return res, nil
 	}
 	var plans [][]chain.StagePlan
 	for _, sub := range subs {
@@ -335,8 +338,8 @@ func planFractional(ctx context.Context, spec chain.Spec, s Settings) (*Result, 
 			s.Progress(i+1, min(len(order), fracMaxDesigns))
 		}
 	}
-	if err := ctx.Err(); err != nil && len(ok) == 0 {
-		return nil, err
+	if ctx.Err() != nil {
+		res.Partial = true
 	}
 	res.FeasibleAll = len(ok)
 	res.Feasible = ok

@@ -5,6 +5,7 @@ import (
 	"fmt"
 	"os"
 	"testing"
+	"time"
 
 	"github.com/stepdown-dsp/stepdown/chain"
 )
@@ -49,4 +50,19 @@ func TestPlanFractional(t *testing.T) {
 		t.Errorf("the front depends on Jobs:\n%s\n%s", fronts[1], fronts[2])
 	}
 	t.Logf("front:\n%s", fronts[2])
+}
+
+// TestPlanFractionalStopped: a fractional search stopped by its context
+// returns a partial result, not the context's error (the command line then
+// says --timeout stopped it, in its own words).
+func TestPlanFractionalStopped(t *testing.T) {
+	spec := chain.Spec{InputRate: 100e6, OutputRate: 3.84e6, Passband: 1.2e6, Protected: 1.5e6, RippleDB: 0.3, RejectionDB: 60}
+	for _, d := range []time.Duration{0, 20 * time.Millisecond} {
+		ctx, cancel := context.WithTimeout(context.Background(), d)
+		r, err := Plan(ctx, spec, Settings{MaxStages: 3})
+		cancel()
+		if err != nil || !r.Partial {
+			t.Errorf("deadline %v: %v, partial %v", d, err, r != nil && r.Partial)
+		}
+	}
 }
