@@ -413,34 +413,41 @@
 //   - Farrow (FarrowStage, "farrow<L>/<M>"): a Farrow structure (package
 //     farrow) evaluated at each output's time m Down/Up input samples: its
 //     P+1 subfilters of N taps on the input, combined by Horner's rule in
-//     the fractional delay mu; (P+1) N + P multiplies per output for any
-//     ratio. It is a continuous-time filter H(f/Fm) sampled at the output
-//     times (farrow.Convention).
+//     the fractional delay mu; (P+1) N + P multiplies per output whatever
+//     L. It is a continuous-time filter H(f/Fm) sampled at the output
+//     times (farrow.Convention); L is at most 256 (see below).
 //
 // The paths of a tone. A real tone at input frequency g leaves the integer
 // stages at g with gain A(g) = prod_j |H_j(g)| (each periodic at its own
 // rate, so the folding by Fm is in the gains). The fractional stage turns
-// it into one tone per path k: at g + k Fm, for k = 0 .. L-1 (polyphase:
-// the L images of the zeros, each weighed by the prototype P) or for every
-// integer k (Farrow), with gain A(g) |R(g + k Fm)|, R the prototype or the
-// continuous response. The output rate folds it to y = fold(g + k Fm mod
-// FK). A path is an alias when y lies in the protected band [0, fa] and it
-// is not the tone itself (k = 0 and g <= fa). Analyze searches every path
-// with the certified branch and bound of the integer analysis (the stage
-// bounders of the integer stages at g, the prototype's FIR bounder or
-// farrow.Filter.Bounds at g + k Fm), a Farrow stage's paths |k| <= 16
-// first, widened while the structure's bound beyond them, times the
-// integer stages' largest gain, could still beat the worst path found
-// (past 4096 that bound stands in the figure): the rejection is the worst
-// path over A(0) R(0), never optimistic, at most aliasCertifyDB
-// pessimistic; the passband ripple is the path k = 0's over [0, fp].
-// PathGains lists the paths of one tone. Two paths of the same tone that
-// land on one output frequency (at isolated input frequencies) can add;
-// the figure is per path. TestFractionalAnalyzeBruteForce and
-// TestFarrowAnalyzeBruteForce hold Analyze to a dense scan of every input
-// frequency and path that does not use these band formulas (0.002 dB at
-// most, never optimistic), and TestFractionalTones measures the worst
-// alias through Run within 0.002 dB of it.
+// it into one tone per path k: at g + k Fm, for k = 0 .. L-1 (L = Up),
+// with gain A(g) |P(g + k Fm)|, P the prototype at L Fm. A polyphase
+// stage's prototype is its Taps. A Farrow stage is a continuous-time
+// filter H sampled at its output times m Down/Up, which are multiples of
+// 1/L input samples: at those times it is exactly the polyphase L/M stage
+// whose prototype is its impulse response sampled at 1/L
+// (FarrowPrototype, L N taps), and that is how it is analysed. Its
+// continuous paths k and k + L land on the same output frequency at every
+// input frequency and add, which per-path figures of H would miss (an
+// independent review measured 8 dB on a farrow2/5 stage); the sampled
+// prototype sums them. So a Farrow stage has at most 256 phases and L N
+// at most 16384 taps; a ratio with a larger denominator needs
+// ratio_tolerance_ppm. The output rate folds each path to
+// y = fold(g + k Fm mod FK). A path is an alias when y lies in the
+// protected band [0, fa] and it is not the tone itself (k = 0 and g <= fa).
+// Analyze searches every path with the certified branch and bound of the
+// integer analysis (the stage bounders of the integer stages at g, the
+// prototype's FIR bounder at g + k Fm): the rejection is the worst path
+// over A(0) P(0), never optimistic, at most aliasCertifyDB pessimistic;
+// the passband ripple is the path k = 0's over [0, fp]. PathGains lists
+// the paths of one tone. A real tone's paths to +y and -y can land
+// together at isolated input frequencies and add there; the figure is per
+// path. TestFractionalAnalyzeBruteForce and TestFarrowAnalyzeBruteForce
+// hold Analyze to a dense scan of every input frequency and path that does
+// not use these band formulas (0.002 dB at most, never optimistic), and
+// TestFractionalTones and TestFractionalInterpolationTones measure the
+// worst alias through Run, the running structures, within 0.002 dB of it,
+// for Farrow stages of 2 to 41 phases among them.
 //
 // Requirements. The ripple budget is split in half between the integer
 // stages and the fractional stage (all of it when there are no integer

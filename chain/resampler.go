@@ -351,6 +351,35 @@ func polyphaseStage(ctx context.Context, p StagePlan, r FractionalRequirement, s
 	return st, nil
 }
 
+// farrowMaxSampled bounds a Farrow stage's Up times its length: the taps
+// of the polyphase stage it is at its output times (FarrowPrototype),
+// which Analyze measures.
+const farrowMaxSampled = 1 << 14
+
+// FarrowPrototype returns the taps of the polyphase Up/Down stage that a
+// Farrow stage is at its output times m Down/Up: y = Up sum_j p[j]
+// u[m Down - j] with p[j] = h((j - Up N/2)/Up)/Up, h the structure's
+// impulse response (farrow.Convention), N its length: the output delayed
+// by N/2 input samples, which changes no gain. Its paths k and k + Up
+// land on the same output frequency at every input frequency and add;
+// this prototype sums them. It refuses a stage with more than
+// polyphaseMaxUp phases or more than farrowMaxSampled taps.
+func FarrowPrototype(st FarrowStage) ([]float64, error) {
+	if err := st.Filter.Validate(); err != nil {
+		return nil, err
+	}
+	n := st.Filter.Len()
+	if st.Up < 1 || st.Up > polyphaseMaxUp || st.Up*n > farrowMaxSampled {
+		return nil, fmt.Errorf("a farrow stage of rate change %d/%d and %d taps is not analysed: its L x taps, %d, is above %d or its L above %d (its images fold onto each other at every frequency); allow a simpler ratio (ratio_tolerance_ppm)",
+			st.Up, st.Down, n, st.Up*n, farrowMaxSampled, polyphaseMaxUp)
+	}
+	taps := make([]float64, st.Up*n)
+	for j := range taps {
+		taps[j] = st.Filter.Impulse(float64(j-st.Up*n/2)/float64(st.Up)) / float64(st.Up)
+	}
+	return taps, nil
+}
+
 // farrowMaxCost bounds a Farrow stage's multiplies per output in its
 // design search.
 const farrowMaxCost = 400
@@ -363,14 +392,19 @@ const farrowMaxCost = 400
 // too: the structures are small.
 func farrowStage(ctx context.Context, p StagePlan, r FractionalRequirement) (FarrowStage, error) {
 	st := FarrowStage{Up: p.Up, Down: p.Down, Req: r}
+	if p.Up > polyphaseMaxUp {
+		return st, fmt.Errorf("a farrow stage of %d phases (L = %d): at most %d, for its images fold onto each other and it is analysed as a polyphase stage; allow a simpler ratio (ratio_tolerance_ppm)", p.Up, p.Up, polyphaseMaxUp)
+	}
 	if r.Keep <= 0 {
 		return st, errors.New("a farrow stage needs a lowpass FIR (fir<D>L) just before it")
 	}
-	f, res, err := farrow.MinDesign(ctx, r.Passband/r.InputRate, r.Keep/r.InputRate, r.Dp, r.Ds, farrowMaxCost)
+	f, _, err := farrow.MinDesign(ctx, r.Passband/r.InputRate, r.Keep/r.InputRate, r.Dp, r.Ds, farrowMaxCost)
 	if err != nil {
 		return st, err
 	}
 	st.Filter, st.Degree, st.Length = f, f.Degree(), f.Len()
-	_ = res
+	if _, err := FarrowPrototype(st); err != nil {
+		return st, err
+	}
 	return st, nil
 }

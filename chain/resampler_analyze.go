@@ -4,6 +4,8 @@ import (
 	"context"
 	"fmt"
 	"math"
+
+	"github.com/stepdown-dsp/stepdown/chain/remez"
 )
 
 // The truth of a chain that ends in a fractional stage (package
@@ -47,14 +49,12 @@ func (p fractionalPath) bounds(a, b float64, coarse bool) (lo, up float64) {
 // fractionalParts splits a fractional chain into its integer stages (a
 // chain of their own) and the fractional stage's gain, its bounder, the
 // shifts of its paths (k Fm for the k listed: every residue of a
-// polyphase stage; k = 0, 1, -1, ..., +-farrowPaths of a Farrow stage) and,
-// for a Farrow stage, tail(K), a bound of its gain on every path |k| > K.
+// stage of either kind, a Farrow stage through its sampled prototype).
 type fractionalParts struct {
 	ic     *Chain
 	rg     func(h float64) float64
 	rb     stageBounder
 	shifts []float64
-	tail   func(k int) float64 // nil: shifts hold every path
 	fm     float64
 }
 
@@ -97,17 +97,23 @@ func splitFractional(c *Chain) (fractionalParts, error) {
 		}
 		return p, nil
 	case FarrowStage:
-		if err := st.Filter.Validate(); err != nil {
+		// At its output times m Down/Up the structure is exactly the
+		// polyphase Up/Down stage whose prototype is h sampled at 1/Up
+		// (FarrowPrototype): its paths k and k + Up land together at
+		// every input frequency and add, so it is analysed as that.
+		taps, err := FarrowPrototype(st)
+		if err != nil {
 			return p, err
 		}
-		p.rg = func(h float64) float64 { return st.Gain(h, fm) }
-		p.rb = farrowBounder{f: st, rate: fm}
-		p.shifts = farrowShifts(0, farrowPaths, fm)
-		// A path |k| > K meets the structure at |nu| >= K - F0/(2 Fm).
-		half := c.InputRate / 2 / fm
-		p.tail = func(k int) float64 {
-			_, up := st.Filter.Bounds(math.Max(0, float64(k)-half), math.MaxFloat64/4)
-			return up
+		rate := fm * float64(st.Up)
+		b, err := newFIRBounder(taps, rate)
+		if err != nil {
+			return p, err
+		}
+		p.rg = func(h float64) float64 { return remez.Magnitude(taps, h, rate) }
+		p.rb = b
+		for k := 0; k < st.Up; k++ {
+			p.shifts = append(p.shifts, float64(k)*fm)
 		}
 		return p, nil
 	}
@@ -138,18 +144,16 @@ func measureFractional(ctx context.Context, c *Chain, spec Spec) (Analysis, erro
 	}
 	fk, fa, fp := c.OutputRate(), spec.Protected, spec.Passband
 	f0h := c.InputRate / 2
-	h0 := c.Gain(0)
+	h0 := fp0.ic.Gain(0) * fp0.rg(0)
 	if !(h0 > 0) {
 		return Analysis{AliasRejectionDB: 0, PassbandRippleDB: MaxFigureDB}, nil
 	}
 	var weight func(float64) float64
 	var weightMax func(a, b float64) float64
-	wAll := 1.0
 	if m := spec.RejectionMask; m != nil {
 		r := spec.RejectionDB
 		weight = func(x float64) float64 { return math.Pow(10, (m.At(x)-r)/20) }
 		weightMax = func(a, b float64) float64 { return math.Pow(10, (m.MaxOver(a, b)-r)/20) }
-		wAll = weightMax(0, f0h)
 	}
 	best := extreme{}
 	bestShift := 0.0
@@ -186,29 +190,6 @@ func measureFractional(ctx context.Context, c *Chain, spec Spec) (Analysis, erro
 	}
 	if err := searchPaths(fp0.shifts); err != nil {
 		return Analysis{}, err
-	}
-	if fp0.tail != nil {
-		// Every path beyond K: the integer stages' largest gain times the
-		// structure's bound there. Widen K until the tail cannot beat the
-		// worst path found; past farrowMaxPaths the tail's bound stands in
-		// the figure, which stays safe.
-		_, aMax := cs.bounds(0, f0h, true)
-		tol := math.Pow(10, aliasCertifyDB/20)
-		k := farrowPaths
-		for {
-			t := aMax * wAll * fp0.tail(k)
-			if t <= best.v*tol {
-				break
-			}
-			if k >= farrowMaxPaths {
-				bound = math.Max(bound, t)
-				break
-			}
-			if err := searchPaths(farrowShifts(k, 2*k, fp0.fm)); err != nil {
-				return Analysis{}, err
-			}
-			k *= 2
-		}
 	}
 	a := Analysis{AliasRejectionDB: MaxFigureDB}
 	if bound > 0 {
@@ -302,19 +283,9 @@ func PathGains(c *Chain, g float64, maxK int) []PathGain {
 	if err != nil {
 		return nil
 	}
-	var ks []int
-	switch st := c.Stages[n-1].(type) {
-	case PolyphaseStage:
-		for k := 0; k < st.Up; k++ {
-			ks = append(ks, k)
-		}
-	default:
-		if maxK <= 0 {
-			maxK = farrowPaths
-		}
-		for k := -maxK; k <= maxK; k++ {
-			ks = append(ks, k)
-		}
+	ks := make([]int, len(p.shifts))
+	for i := range ks {
+		ks[i] = i
 	}
 	a := p.ic.Gain(g)
 	out := make([]PathGain, len(ks))

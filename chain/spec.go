@@ -238,6 +238,9 @@ func (s Spec) Normalize() (Spec, error) {
 				hi, lo, fmtNum(ratio), MaxFractionDen)
 		}
 	}
+	if p, q := s.Fraction(); q >= 1 && (p <= q || (q == 1 && p < 2)) {
+		return bad("OutputRate", s.OutputRate, "{%s}/{%s} = %s is taken as the ratio %d/%d: the ratio must be at least 2, or a fraction above 1", hi, lo, fmtNum(ratio), p, q)
+	}
 	if !finite(s.Passband) || s.Passband <= 0 || s.Passband >= fk/2 {
 		return bad("Passband", s.Passband, "must lie in (0, {%s}/2 = %s Hz)", lo, fmtNum(fk/2))
 	}

@@ -42,7 +42,10 @@ func TestNormalizeErrors(t *testing.T) {
 		{mod(func(s *Spec) { s.OutputRate = math.NaN() }), "OutputRate", "finite"},
 		{mod(func(s *Spec) { s.OutputRate = s.InputRate }), "OutputRate", "must differ from InputRate"},
 		// Below it, any ratio is a fraction (64 MHz / 250.5 kHz =
-		// 128000/501; TestFraction).
+		// 128000/501; TestFraction), but one that rounds to 1 is refused
+		// (found by FuzzNormalize: 0.30000000000000004 over 0.3).
+		{mod(func(s *Spec) { s.OutputRate = s.InputRate / (1 + 1e-12) }), "OutputRate", "is taken as the ratio 1/1"},
+		{mod(func(s *Spec) { s.OutputRate, s.RatioTolerancePPM = s.InputRate/1.0005, 1000 }), "OutputRate", "is taken as the ratio 1/1"},
 		{mod(func(s *Spec) { s.RatioTolerancePPM = 2000 }), "RatioTolerancePPM", "[0, 1000] ppm"},
 		{mod(func(s *Spec) { s.Passband = 125e3 }), "Passband", "OutputRate/2"},
 		{mod(func(s *Spec) { s.Passband = -1 }), "Passband", "(0,"},

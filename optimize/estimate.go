@@ -84,7 +84,7 @@ var reasonText = map[Reason]string{
 	ReasonOverMultipliers:     "more multipliers at the clock than hardware.max_multipliers",
 	ReasonOverMemory:          "more memory than hardware.max_memory_bits",
 	ReasonOverAccumulatorBits: "a fir or half-band accumulator wider than hardware.max_register_bits",
-	ReasonNoFractionalSplit:   "rates tried for the fractional stage where neither a polyphase stage (at most 256 phases) nor a farrow stage (after a lowpass FIR, at more than twice the kept band) fits",
+	ReasonNoFractionalSplit:   "rates tried for the fractional stage where no polyphase or farrow stage fits (each at most 256 phases; a farrow stage after a lowpass FIR, at more than twice the kept band)",
 }
 
 // Text is r in words ("cic rejection below target"); a name it does not

@@ -194,7 +194,7 @@ func planFractional(ctx context.Context, spec chain.Spec, s Settings) (*Result, 
 		exact.OutputRate, exact.RatioTolerancePPM = fk, 0
 		share := spec.RippleDB * chain.FractionalRippleShare
 		for _, lowpass := range []bool{false, true} {
-			if lowpass && !(math.Min(spec.Stopband, math.Min(fm, fk)-spec.Protected) < fm/2 && slices.Contains(frac, chain.Farrow)) {
+			if lowpass && !(math.Min(spec.Stopband, math.Min(fm, fk)-spec.Protected) < fm/2 && slices.Contains(frac, chain.Farrow) && up <= 256) {
 				continue // no Farrow stage can follow: Keep is not below Fm/2
 			}
 			if !lowpass && !(slices.Contains(frac, chain.Polyphase) && up <= 256) {

@@ -7,6 +7,7 @@ import (
 	"io"
 	"math"
 	"os"
+	"slices"
 	"strings"
 	"sync"
 	"time"
@@ -305,9 +306,10 @@ func (j *job) designNamed(plan []chain.StagePlan, set optimize.Settings) (optimi
 	if dir == chain.Interpolate {
 		ratio = "output_rate/input_rate"
 	}
+	fractional := j.spec.Chain.Fractional() || slices.ContainsFunc(plan, func(p chain.StagePlan) bool { return p.Kind.Fractional() })
 	d := 1
 	for i, p := range plan {
-		if j.spec.Chain.Fractional() {
+		if fractional {
 			// The library checks a fractional plan's stages against the
 			// ratio (a *chain.PlanError below, in the user's terms).
 			break
@@ -317,7 +319,7 @@ func (j *job) designNamed(plan []chain.StagePlan, set optimize.Settings) (optimi
 		}
 		d *= p.Factor
 	}
-	if d != want && !j.spec.Chain.Fractional() {
+	if d != want && !fractional {
 		return optimize.Candidate{}, "", usagef("--chain %q: its factors multiply to %d, but %s = %d", clip(notation), d, ratio, want)
 	}
 	// The library holds an interpolation chain from the high rate down
