@@ -70,14 +70,20 @@ func (FarrowStage) Factor() int { return 1 }
 
 func (FarrowStage) isStage() {}
 
-// Gain returns the structure's continuous-time |H(f)| at f Hz, rate being
-// the stage's input rate: the gain of the path that keeps a tone at f
-// where it is.
+// Gain returns the gain of the path that keeps a tone at f Hz where it
+// is, rate being the stage's input rate: at its output times the
+// structure is the polyphase stage of FarrowPrototype, whose prototype's
+// |P(f)| this is (built on each call: for the odd figure, not for loops).
+// A stage FarrowPrototype refuses gives its continuous |H(f/rate)|.
 func (s FarrowStage) Gain(f, rate float64) float64 {
 	if s.Filter.Coef == nil {
 		return 1
 	}
-	return s.Filter.Gain(f / rate)
+	taps, err := FarrowPrototype(s)
+	if err != nil {
+		return s.Filter.Gain(f / rate)
+	}
+	return remez.Magnitude(taps, f, rate*float64(s.Up))
 }
 
 // MultipliesPerOutput returns (Degree+1) Length + Degree (farrow.Cost).

@@ -27,11 +27,6 @@ import (
 // Q_r(g), Q_r(g) = sum_m p[r + L m] exp(-j theta (r + L m)), so that the L
 // paths cost one pass over the taps and an L-point DFT.
 
-// farrowFigurePaths is the paths either side of K = 0 the figure draws
-// for a Farrow stage: chain.PathGains' default. Farther paths meet the
-// structure's far stopband, which chain.Analyze bounds as a tail.
-const farrowFigurePaths = 16
-
 // fractionalWork is the most evaluations (taps and DFT terms) the curves
 // may take; a longer grid is thinned to fit (thinGrid), so that the
 // figure's curves take about a second at most on one core, whatever the stage's L.
@@ -68,9 +63,15 @@ func splitChain(c *chain.Chain) (fractionalParts, error) {
 			return p, fmt.Errorf("response plot: the polyphase stage has no designed taps")
 		}
 	case chain.FarrowStage:
-		if st.Filter.Validate() != nil {
-			return p, fmt.Errorf("response plot: the Farrow stage has no designed coefficients")
+		// At its output times a Farrow stage is the polyphase stage of
+		// its sampled impulse response (chain.FarrowPrototype), as
+		// chain.Analyze measures it: drawn as that.
+		taps, err := chain.FarrowPrototype(st)
+		if err != nil {
+			return p, fmt.Errorf("response plot: %v", err)
 		}
+		p.last = chain.PolyphaseStage{Up: st.Up, Down: st.Down, Taps: taps, Length: len(taps)}
+		p.dc = p.ic.Gain(0) * p.last.Gain(0, p.fm)
 	default:
 		return p, fmt.Errorf("response plot: stage %d is a %T, not a fractional stage", n, p.last)
 	}
@@ -88,11 +89,6 @@ func (p fractionalParts) work() float64 {
 	switch st := p.last.(type) {
 	case chain.PolyphaseStage:
 		w += float64(len(st.Taps)) + float64(st.Up)*float64(st.Up)
-	case chain.FarrowStage:
-		// Each path's closed form takes a complex exponential per
-		// segment besides the taps: about five taps' time (measured on
-		// the demo spec's farrow24/25).
-		w += float64(2*farrowFigurePaths+1) * 5 * float64(st.Filter.Degree()+2) * float64(st.Filter.Len())
 	}
 	return w
 }
@@ -147,14 +143,6 @@ func (p fractionalParts) curves(g, fa float64, scratch []complex128) (kept, alia
 				s += q[i] * r[(k*i)%l]
 			}
 			gain := a * cmplx.Abs(s)
-			if k == 0 {
-				kept = gain
-			}
-			consider(k, gain)
-		}
-	case chain.FarrowStage:
-		for k := -farrowFigurePaths; k <= farrowFigurePaths; k++ {
-			gain := a * st.Gain(g+float64(k)*p.fm, p.fm)
 			if k == 0 {
 				kept = gain
 			}
