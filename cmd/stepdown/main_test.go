@@ -547,6 +547,9 @@ func TestReportTracesSpecAndTool(t *testing.T) {
 // the terminal and in report.json's beaten_by. The figures are recomputed
 // here from the two chains' own entries in the plan's report.json.
 func TestCheckBeatenBy(t *testing.T) {
+	if os.Getenv("STEPDOWN_LONG") == "" {
+		t.Skip("3 s: STEPDOWN_LONG (CI's long step)")
+	}
 	dir := t.TempDir()
 	if r := runBinary(t, dir, nil, "plan", "--out", "planned", "--quiet"); r.code != 0 {
 		t.Fatalf("plan: exit %d: %s", r.code, r.stderr)
