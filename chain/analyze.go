@@ -500,6 +500,11 @@ func measure(ctx context.Context, c *Chain, spec Spec) (Analysis, error) {
 		return Analysis{}, err
 	}
 	fk, fa, fp := spec.OutputRate, spec.Protected, spec.Passband
+	if spec.RatioTolerancePPM > 0 {
+		// The ratio moved within the tolerance: the chain's own output
+		// rate is the one its aliases fold at.
+		fk = c.OutputRate()
+	}
 	f0h := c.InputRate / 2
 	h0 := c.Gain(0)
 	if !(h0 > 0) {

@@ -29,6 +29,11 @@ func TestFraction(t *testing.T) {
 			t.Errorf("%g/%g (%g ppm): Fraction = %d/%d, want %d/%d", c.in, c.out, c.ppm, p, q, c.p, c.q)
 		}
 	}
+	// An integer within the tolerance is the ratio, not the nearest
+	// integer: 1000.6 at 1000 ppm is 1000 (reviewer's case).
+	if s := (Spec{InputRate: 100e6, OutputRate: 100e6 / 1000.6, RatioTolerancePPM: 1000}); s.Decimation() != 1000 || s.RatioString() != "1000" {
+		t.Errorf("1000.6 at 1000 ppm: Decimation %d, ratio %s", s.Decimation(), s.RatioString())
+	}
 	rng := rand.New(rand.NewPCG(14, 1))
 	for trial := 0; trial < 300; trial++ {
 		x := 1 + rng.Float64()*200

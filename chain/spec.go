@@ -331,8 +331,12 @@ func (s Spec) Decimation() int {
 	if !s.transposed && s.OutputRate > s.InputRate {
 		return 1
 	}
-	if s.Fractional() {
+	p, q := s.Fraction()
+	if q > 1 {
 		return 0
+	}
+	if q == 1 && s.RatioTolerancePPM > 0 {
+		return p // the integer within the tolerance, not the nearest
 	}
 	return int(math.Round(s.InputRate / s.OutputRate))
 }
@@ -347,6 +351,9 @@ func (s Spec) Interpolation() int {
 	v := s.DecimationView()
 	if !(v.OutputRate > 0) || !finite(v.InputRate) || s.Fractional() {
 		return 0
+	}
+	if p, q := s.Fraction(); q == 1 && s.RatioTolerancePPM > 0 {
+		return p
 	}
 	return int(math.Round(v.InputRate / v.OutputRate))
 }
