@@ -48,8 +48,8 @@ func (p fractionalPath) bounds(a, b float64, coarse bool) (lo, up float64) {
 
 // fractionalParts splits a fractional chain into its integer stages (a
 // chain of their own) and the fractional stage's gain, its bounder, the
-// shifts of its paths (k Fm for the k listed: every residue of a
-// stage of either kind, a Farrow stage through its sampled prototype).
+// shifts of its paths, k Fm for k = 0 .. Up-1 (a Farrow stage through its
+// sampled prototype, FarrowPrototype).
 type fractionalParts struct {
 	ic     *Chain
 	rg     func(h float64) float64
@@ -57,25 +57,6 @@ type fractionalParts struct {
 	shifts []float64
 	fm     float64
 }
-
-// farrowBounder bounds a Farrow structure's |H(f/rate)| (farrow.Bounds).
-type farrowBounder struct {
-	f    FarrowStage
-	rate float64
-}
-
-func (b farrowBounder) bounds(a, e float64) (lo, up float64) {
-	return b.f.Filter.Bounds(a/b.rate, e/b.rate)
-}
-func (b farrowBounder) coarse(a, e float64) (lo, up float64) { return b.bounds(a, e) }
-
-// farrowPaths is how many paths on each side of k = 0 a Farrow stage's
-// analysis searches before it bounds the rest by tail; farrowMaxPaths the
-// most it widens to.
-const (
-	farrowPaths    = 16
-	farrowMaxPaths = 1 << 12
-)
 
 func splitFractional(c *Chain) (fractionalParts, error) {
 	n := len(c.Stages)
@@ -118,19 +99,6 @@ func splitFractional(c *Chain) (fractionalParts, error) {
 		return p, nil
 	}
 	return p, fmt.Errorf("chain: stage %d is a %T: not a fractional stage Analyze knows", n, c.Stages[n-1])
-}
-
-// farrowShifts returns k Fm for k = from+1 .. to and -from-1 .. -to in
-// the order 1, -1, 2, -2, ... (k = 0 first when from is 0).
-func farrowShifts(from, to int, fm float64) []float64 {
-	var s []float64
-	if from == 0 {
-		s = append(s, 0)
-	}
-	for k := from + 1; k <= to; k++ {
-		s = append(s, float64(k)*fm, -float64(k)*fm)
-	}
-	return s
 }
 
 func measureFractional(ctx context.Context, c *Chain, spec Spec) (Analysis, error) {
