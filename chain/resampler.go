@@ -181,7 +181,7 @@ func fractionalPlan(plan []StagePlan, num, den int, dir Direction) (int, error) 
 // target raised by the fractional stage's ripple share fracRippleDB (its
 // passband lifts the integer stages' aliases). With lowpass set the
 // integer stages end in a lowpass FIR that holds the whole band above
-// Keep = min(fs, min(Fm, FK) - fa) (keepEdge): the spec's stopband edge
+// Keep = min(fs, min(Fm, FK) - fa) (KeepEdge): the spec's stopband edge
 // is Keep. Without it only their aliases into [0, fa] count (the stopband
 // edge is Fm - fa), and the fractional stage is the lowpass. spec is the
 // fractional spec, normalised, its OutputRate the chain's.
@@ -192,16 +192,18 @@ func IntegerSpec(spec Spec, d int, rippleDB, fracRippleDB float64, lowpass bool)
 	sub.capGaps = true
 	sub.Stopband = sub.OutputRate - spec.Protected
 	if lowpass {
-		sub.Stopband = keepEdge(spec, sub.OutputRate)
+		sub.Stopband = KeepEdge(spec, sub.OutputRate)
 	}
 	sub.RippleDB = rippleDB
 	sub = sub.RejectionRaised(fracRippleDB)
 	return sub
 }
 
-// keepEdge is min(fs, min(fm, FK) - fa), and at most fm - fa (the integer
-// spec's bound on its stopband edge).
-func keepEdge(spec Spec, fm float64) float64 {
+// KeepEdge is min(fs, min(fm, FK) - fa) for the fractional stage's input
+// rate fm: the edge above which the integer stages before a Farrow stage
+// hold the band (and a polyphase prototype's stopband edge), at most
+// fm - fa. spec is normalised, its OutputRate the chain's.
+func KeepEdge(spec Spec, fm float64) float64 {
 	return math.Min(spec.Stopband, math.Min(fm, spec.OutputRate)-spec.Protected)
 }
 
@@ -223,7 +225,7 @@ func buildFractional(ctx context.Context, spec Spec, plan []StagePlan, s Setting
 	fm := spec.InputRate / float64(d)
 	fk := fm * float64(plan[len(plan)-1].Up) / float64(plan[len(plan)-1].Down)
 	spec.OutputRate = fk
-	keep := keepEdge(spec, fm)
+	keep := KeepEdge(spec, fm)
 	if !(keep > spec.Passband) || spec.Protected >= fm/2 {
 		return nil, planErr(plan, len(plan)-1, "its input rate %s Hz leaves no band for it: it needs min(input rate, output rate) - fa = %s Hz above fp = %s Hz and fa below half its input rate",
 			fmtNum(fm), fmtNum(math.Min(fm, fk)-spec.Protected), fmtNum(spec.Passband))
@@ -311,18 +313,20 @@ func PolyphaseBands(r FractionalRequirement, up int) []Interval {
 	return mergeIntervals(b)
 }
 
-// polyphaseMaxUp bounds a polyphase stage's Up: its prototype is about Up
-// times as long as a FIR at its input rate. polyphaseMaxTaps bounds the
-// prototype's estimated length (Herrmann), which bounds its design's time.
+// MaxFractionalUp bounds a fractional stage's Up (its phases): a polyphase
+// prototype is about Up times as long as a FIR at its input rate, and a
+// Farrow stage is analysed as such a prototype (FarrowPrototype).
+// polyphaseMaxTaps bounds the prototype's estimated length (Herrmann),
+// which bounds its design's time.
 const (
-	polyphaseMaxUp   = 256
+	MaxFractionalUp  = 256
 	polyphaseMaxTaps = 8192
 )
 
 func polyphaseStage(ctx context.Context, p StagePlan, r FractionalRequirement, s Settings, design bool) (PolyphaseStage, error) {
 	st := PolyphaseStage{Up: p.Up, Down: p.Down, Req: r}
-	if p.Up > polyphaseMaxUp {
-		return st, fmt.Errorf("a polyphase stage of %d phases: at most %d (a farrow stage takes any ratio)", p.Up, polyphaseMaxUp)
+	if p.Up > MaxFractionalUp {
+		return st, fmt.Errorf("a polyphase stage of %d phases: at most %d (a farrow stage takes any ratio)", p.Up, MaxFractionalUp)
 	}
 	rate := float64(p.Up) * r.InputRate
 	stops := PolyphaseBands(r, p.Up)
@@ -369,15 +373,15 @@ const farrowMaxSampled = 1 << 14
 // by N/2 input samples, which changes no gain. Its paths k and k + Up
 // land on the same output frequency at every input frequency and add;
 // this prototype sums them. It refuses a stage with more than
-// polyphaseMaxUp phases or more than farrowMaxSampled taps.
+// MaxFractionalUp phases or more than farrowMaxSampled taps.
 func FarrowPrototype(st FarrowStage) ([]float64, error) {
 	if err := st.Filter.Validate(); err != nil {
 		return nil, err
 	}
 	n := st.Filter.Len()
-	if st.Up < 1 || st.Up > polyphaseMaxUp || st.Up*n > farrowMaxSampled {
+	if st.Up < 1 || st.Up > MaxFractionalUp || st.Up*n > farrowMaxSampled {
 		return nil, fmt.Errorf("a farrow stage of rate change %d/%d and %d taps is not analysed: its L x taps, %d, is above %d or its L above %d (its images fold onto each other at every frequency); allow a simpler ratio (ratio_tolerance_ppm)",
-			st.Up, st.Down, n, st.Up*n, farrowMaxSampled, polyphaseMaxUp)
+			st.Up, st.Down, n, st.Up*n, farrowMaxSampled, MaxFractionalUp)
 	}
 	taps := make([]float64, st.Up*n)
 	for j := range taps {
@@ -398,8 +402,8 @@ const farrowMaxCost = 400
 // too: the structures are small.
 func farrowStage(ctx context.Context, p StagePlan, r FractionalRequirement) (FarrowStage, error) {
 	st := FarrowStage{Up: p.Up, Down: p.Down, Req: r}
-	if p.Up > polyphaseMaxUp {
-		return st, fmt.Errorf("a farrow stage of %d phases (L = %d): at most %d, for its images fold onto each other and it is analysed as a polyphase stage; allow a simpler ratio (ratio_tolerance_ppm)", p.Up, p.Up, polyphaseMaxUp)
+	if p.Up > MaxFractionalUp {
+		return st, fmt.Errorf("a farrow stage of %d phases (L = %d): at most %d, for its images fold onto each other and it is analysed as a polyphase stage; allow a simpler ratio (ratio_tolerance_ppm)", p.Up, p.Up, MaxFractionalUp)
 	}
 	if r.Keep <= 0 {
 		return st, errors.New("a farrow stage needs a lowpass FIR (fir<D>L) just before it")

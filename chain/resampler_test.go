@@ -384,18 +384,7 @@ func TestFractionalTones(t *testing.T) {
 				t.Fatalf("%s: %d outputs", Notation(plan), len(y))
 			}
 			y = y[skip : skip+nout]
-			// 4-term Blackman-Harris (Harris 1978), amplitude of the
-			// component at worst.OutputHz.
-			var re, im, sw float64
-			wy := 2 * math.Pi * worst.OutputHz / fk
-			for m, v := range y {
-				u := 2 * math.Pi * float64(m) / float64(nout-1)
-				win := 0.35875 - 0.48829*math.Cos(u) + 0.14128*math.Cos(2*u) - 0.01168*math.Cos(3*u)
-				re += win * v * math.Cos(wy*float64(m))
-				im += win * v * math.Sin(wy*float64(m))
-				sw += win
-			}
-			amp := 2 * math.Hypot(re, im) / sw
+			amp := toneAmplitude(y, worst.OutputHz/fk)
 			measured := -20 * math.Log10(amp/c.Gain(0))
 			path := -20 * math.Log10(worst.Gain/c.Gain(0))
 			if math.Abs(measured-path) > 0.05 || measured < a.AliasRejectionDB-0.05 || measured > a.AliasRejectionDB+aliasCertifyDB+0.05 {
@@ -482,16 +471,7 @@ func TestFractionalInterpolationTones(t *testing.T) {
 				t.Fatalf("%s: %d outputs for %d inputs", Notation(plan), len(y), nin)
 			}
 			y = y[skip : skip+nout]
-			var re, im, sw float64
-			wy := 2 * math.Pi * a.WorstAliasHz / hi
-			for m, v := range y {
-				u := 2 * math.Pi * float64(m) / float64(nout-1)
-				win := 0.35875 - 0.48829*math.Cos(u) + 0.14128*math.Cos(2*u) - 0.01168*math.Cos(3*u)
-				re += win * v * math.Cos(wy*float64(m))
-				im += win * v * math.Sin(wy*float64(m))
-				sw += win
-			}
-			amp := 2 * math.Hypot(re, im) / sw
+			amp := toneAmplitude(y, a.WorstAliasHz/hi)
 			measured := -20 * math.Log10(amp/c.Gain(0))
 			path := -20 * math.Log10(worst.Gain/c.Gain(0))
 			if math.Abs(measured-path) > 0.05 {
@@ -506,4 +486,19 @@ func TestFractionalInterpolationTones(t *testing.T) {
 	if checked < 4 {
 		t.Fatalf("only %d chains checked", checked)
 	}
+}
+
+// toneAmplitude is the amplitude of y's component at nu cycles per
+// sample, through a 4-term Blackman-Harris window (Harris 1978).
+func toneAmplitude(y []float64, nu float64) float64 {
+	var re, im, sw float64
+	w := 2 * math.Pi * nu
+	for m, v := range y {
+		u := 2 * math.Pi * float64(m) / float64(len(y)-1)
+		win := 0.35875 - 0.48829*math.Cos(u) + 0.14128*math.Cos(2*u) - 0.01168*math.Cos(3*u)
+		re += win * v * math.Cos(w*float64(m))
+		im += win * v * math.Sin(w*float64(m))
+		sw += win
+	}
+	return 2 * math.Hypot(re, im) / sw
 }

@@ -180,7 +180,7 @@ func planFractional(ctx context.Context, spec chain.Spec, s Settings) (*Result, 
 			continue // d is the whole ratio: no fractional stage
 		}
 		if d == 1 {
-			if up <= 256 && slices.Contains(frac, chain.Polyphase) {
+			if up <= chain.MaxFractionalUp && slices.Contains(frac, chain.Polyphase) {
 				subs = append(subs, &subSearch{d: 1, up: up, down: down, front: [][]chain.StagePlan{nil}})
 			} else {
 				res.Dropped[ReasonNoFractionalSplit]++
@@ -194,10 +194,10 @@ func planFractional(ctx context.Context, spec chain.Spec, s Settings) (*Result, 
 		exact.OutputRate, exact.RatioTolerancePPM = fk, 0
 		share := spec.RippleDB * chain.FractionalRippleShare
 		for _, lowpass := range []bool{false, true} {
-			if lowpass && !(math.Min(spec.Stopband, math.Min(fm, fk)-spec.Protected) < fm/2 && slices.Contains(frac, chain.Farrow) && up <= 256) {
+			if lowpass && !(chain.KeepEdge(exact, fm) < fm/2 && slices.Contains(frac, chain.Farrow) && up <= chain.MaxFractionalUp) {
 				continue // no Farrow stage can follow: Keep is not below Fm/2
 			}
-			if !lowpass && !(slices.Contains(frac, chain.Polyphase) && up <= 256) {
+			if !lowpass && !(slices.Contains(frac, chain.Polyphase) && up <= chain.MaxFractionalUp) {
 				continue
 			}
 			subs = append(subs, &subSearch{d: d, up: up, down: down, lowpass: lowpass,
@@ -258,7 +258,7 @@ func planFractional(ctx context.Context, spec chain.Spec, s Settings) (*Result, 
 			kind = chain.Farrow
 		}
 		for _, ip := range sub.front {
-			if sub.d == 1 && kind == chain.Polyphase && (sub.up > 256 || !slices.Contains(frac, chain.Polyphase)) {
+			if sub.d == 1 && kind == chain.Polyphase && (sub.up > chain.MaxFractionalUp || !slices.Contains(frac, chain.Polyphase)) {
 				continue
 			}
 			p := append(slices.Clone(ip), chain.StagePlan{Kind: kind, Factor: 1, Up: sub.up, Down: sub.down})
