@@ -257,6 +257,13 @@
 // number of goroutines. The faint cloud in Result.Feasible is thinned to
 // CloudSize by keeping evenly spaced candidates in enumeration order.
 //
+// The estimate tier's two walks run on the same goroutines, one first
+// stage of the enumeration at a time each, every goroutine with an
+// estimator of its own (the caches are memos of figures that depend on
+// their key alone); each first stage's counts, drops, local front, band
+// and cloud members are merged in enumeration order as soon as the first
+// stages before it are merged, so the tier's result is that of one walk.
+//
 // On cancellation of the context Plan stops starting designs and returns the
 // front of the chains designed and measured so far, with Result.Partial set
 // and no error. When none was measured yet but some were designed (a stop

@@ -140,9 +140,76 @@ func satMul(a, b int64) int64 {
 // factorisations depth first with factors ascending, and at each stage CIC
 // (orders then delays ascending), then half-band, then FIR multiband, then FIR
 // lowpass. The slice passed to visit is reused; visit must copy what it keeps.
-// visit returns false to stop the walk; walk then returns false.
+// visit returns false to stop the walk; walk then returns false. It is
+// walkFrom over firsts in order, with the first-stage CICs that skipCIC
+// drops counted to skipped instead.
 func (sp *space) walk(visit func(plan []chain.StagePlan) bool) bool {
+	if sp.d == 1 {
+		return visit(nil)
+	}
+	for _, st := range sp.firsts() {
+		if sp.skips(st) {
+			continue
+		}
+		if !sp.walkFrom(st, visit) {
+			return false
+		}
+	}
+	return true
+}
+
+// skips reports whether skipCIC drops the first stage st, and counts the
+// candidates under it to skipped when it does.
+func (sp *space) skips(st chain.StagePlan) bool {
+	if st.Kind != chain.CIC || sp.skipCIC == nil {
+		return false
+	}
+	code := sp.skipCIC(st)
+	if code == dropNone {
+		return false
+	}
+	sp.skipped(code, sp.completions(sp.d/st.Factor, 1))
+	return true
+}
+
+// firsts returns the first stages of the space's candidates in walk order.
+func (sp *space) firsts() []chain.StagePlan {
+	var out []chain.StagePlan
+	for _, f := range divisors(sp.d) {
+		if sp.maxStages == 1 && f != sp.d {
+			continue
+		}
+		if sp.cic {
+			for _, n := range sp.orders {
+				for _, m := range sp.delays {
+					for _, form := range sp.cicForms() {
+						if form == chain.NonRecursive && chain.NonRecursiveOK(m, f) != nil {
+							continue
+						}
+						out = append(out, chain.StagePlan{Kind: chain.CIC, Factor: f, CICOrder: n, CICDelay: m, CICForm: form})
+					}
+				}
+			}
+		}
+		if f == 2 && sp.halfBand {
+			out = append(out, chain.StagePlan{Kind: chain.HalfBand, Factor: f})
+		}
+		if sp.fir {
+			out = append(out, chain.StagePlan{Kind: chain.FIR, Factor: f, Variant: chain.Multiband})
+			if !sp.sameLayout(1, f) {
+				out = append(out, chain.StagePlan{Kind: chain.FIR, Factor: f, Variant: chain.Lowpass})
+			}
+		}
+	}
+	return out
+}
+
+// walkFrom calls visit with every candidate whose first stage is first, in
+// walk order (see walk). It only reads the space, once count has filled
+// its memo, so walks from different first stages may run concurrently.
+func (sp *space) walkFrom(first chain.StagePlan, visit func(plan []chain.StagePlan) bool) bool {
 	buf := make([]chain.StagePlan, sp.maxStages)
+	buf[0] = first
 	divs := map[int][]int{}
 	var rec func(rem, pos int) bool
 	rec = func(rem, pos int) bool {
@@ -161,27 +228,6 @@ func (sp *space) walk(visit func(plan []chain.StagePlan) bool) bool {
 		for _, f := range ds {
 			if pos == sp.maxStages-1 && f != rem {
 				continue
-			}
-			if pos == 0 && sp.cic {
-				for _, n := range sp.orders {
-					for _, m := range sp.delays {
-						for _, form := range sp.cicForms() {
-							if form == chain.NonRecursive && chain.NonRecursiveOK(m, f) != nil {
-								continue
-							}
-							buf[pos] = chain.StagePlan{Kind: chain.CIC, Factor: f, CICOrder: n, CICDelay: m, CICForm: form}
-							if sp.skipCIC != nil {
-								if code := sp.skipCIC(buf[pos]); code != dropNone {
-									sp.skipped(code, sp.completions(rem/f, pos+1))
-									continue
-								}
-							}
-							if !rec(rem/f, pos+1) {
-								return false
-							}
-						}
-					}
-				}
 			}
 			if f == 2 && sp.halfBand {
 				buf[pos] = chain.StagePlan{Kind: chain.HalfBand, Factor: f}
@@ -204,7 +250,7 @@ func (sp *space) walk(visit func(plan []chain.StagePlan) bool) bool {
 		}
 		return true
 	}
-	return rec(sp.d, 0)
+	return rec(sp.d/first.Factor, 1)
 }
 
 // comparePlans is the total order used for every tie-break: fewer stages

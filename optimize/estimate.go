@@ -2,6 +2,7 @@ package optimize
 
 import (
 	"fmt"
+	"maps"
 	"math"
 	"slices"
 	"strings"
@@ -312,6 +313,9 @@ type estimator struct {
 	reinstated    map[string]bool
 	reinstatedCIC map[[3]int]bool
 	key           []byte // planKey scratch
+	// frozen marks a view (see view): its caches are shared and not
+	// written.
+	frozen bool
 }
 
 func newEstimator(p params, tol float64) *estimator {
@@ -320,6 +324,63 @@ func newEstimator(p params, tol float64) *estimator {
 	}
 	return &estimator{p: p, tol: tol, maxTaps: defaultMaxTaps, cache: make(map[stageKey]stageVal), beaten: map[[3]int]bool{}, beaters: map[[3]int][][2]int{}, reinstated: map[string]bool{}, reinstatedCIC: map[[3]int]bool{}, margins: map[[3]int]float64{}, cics: map[[3]int]chain.CICStage{},
 		orders: DefaultCICOrders(), delays: DefaultCICDelays(), floorPrune: true}
+}
+
+// stageVal returns the figures of stage k, from the cache or computed and
+// cached (not cached by a view, see view).
+func (e *estimator) stageVal(k stageKey) stageVal {
+	v, ok := e.cache[k]
+	if !ok {
+		v = e.stage(k)
+		if !e.frozen {
+			e.cache[k] = v
+		}
+	}
+	return v
+}
+
+// fork returns an estimator for another goroutine: the same settings and
+// taken-back chains (read, not written, while a fork is in use), copies
+// of e's CIC caches and a stage cache of its own. Its figures are those
+// of e.
+func (e *estimator) fork() *estimator {
+	f := newEstimator(e.p, e.tol)
+	f.maxTaps, f.orders, f.delays = e.maxTaps, e.orders, e.delays
+	f.keepBeaten, f.floorPrune = e.keepBeaten, e.floorPrune
+	f.reinstated, f.reinstatedCIC = e.reinstated, e.reinstatedCIC
+	f.beaten, f.margins, f.cics = maps.Clone(e.beaten), maps.Clone(e.margins), maps.Clone(e.cics)
+	f.beaters = maps.Clone(e.beaters)
+	return f
+}
+
+// absorb adds to e's caches what its fork f computed that e has not.
+// Every cached figure depends on its key alone, so which fork computed
+// it does not matter.
+func (e *estimator) absorb(f *estimator) {
+	absorbMap(e.cache, f.cache)
+	absorbMap(e.cics, f.cics)
+	absorbMap(e.margins, f.margins)
+	absorbMap(e.beaten, f.beaten)
+	absorbMap(e.beaters, f.beaters)
+}
+
+func absorbMap[K comparable, V any](dst, src map[K]V) {
+	for k, v := range src {
+		if _, ok := dst[k]; !ok {
+			dst[k] = v
+		}
+	}
+}
+
+// view returns an estimator for another goroutine that reads e's caches
+// and writes none of them (a figure missing from them is computed and not
+// kept), while e is not written either: for a walk after one whose forks
+// e absorbed.
+func (e *estimator) view() *estimator {
+	f := *e
+	f.keys, f.key, f.lastCIC, f.lastCS = nil, nil, [3]int{}, chain.CICStage{}
+	f.frozen = true
+	return &f
 }
 
 // keysOf writes the stages' keys into e.keys following chain's rules: the
@@ -390,11 +451,7 @@ func (e *estimator) score(plan []chain.StagePlan) (figs, dropCode) {
 	total.margin = math.Inf(1)
 	for i := range e.keys {
 		k := e.keys[i].stageKey
-		v, ok := e.cache[k]
-		if !ok {
-			v = e.stage(k)
-			e.cache[k] = v
-		}
+		v := e.stageVal(k)
 		if v.drop != dropNone {
 			return figs{}, v.drop
 		}
@@ -704,7 +761,9 @@ func (e *estimator) cicStage(r, n, m int) chain.CICStage {
 			}
 			cs = chain.NewCICInterpolator(n, m, r, in, e.p.dataBits)
 		}
-		e.cics[key] = cs
+		if !e.frozen {
+			e.cics[key] = cs
+		}
 	}
 	e.lastCIC, e.lastCS = key, cs
 	return cs
@@ -720,6 +779,9 @@ func (e *estimator) cicBeaten(r, n, m int) bool {
 	key := [3]int{r, n, m}
 	if b, ok := e.beaten[key]; ok {
 		return b
+	}
+	if e.frozen {
+		return e.fork().cicBeaten(r, n, m)
 	}
 	type cfg struct {
 		n, m int
@@ -835,11 +897,7 @@ func (e *estimator) mayJoin(plan []chain.StagePlan, fs []figs) bool {
 	var lo figs
 	for i := range e.keys {
 		k := e.keys[i].stageKey
-		v, ok := e.cache[k]
-		if !ok {
-			v = e.stage(k)
-			e.cache[k] = v
-		}
+		v := e.stageVal(k)
 		if v.drop != dropNone || v.taps > float64(e.maxTaps) || (v.floored && e.floorPrune) {
 			return false
 		}
@@ -911,7 +969,9 @@ func (e *estimator) cicMargin(r, n, m int) float64 {
 		return v
 	}
 	v := cicRejection(&e.p, e.p.f0, r, n, m, r == e.p.d) - e.p.rejDB
-	e.margins[k] = v
+	if !e.frozen {
+		e.margins[k] = v
+	}
 	return v
 }
 
@@ -938,11 +998,7 @@ func (e *estimator) needTaps(plan []chain.StagePlan) float64 {
 	need := 0.0
 	for i := range e.keys {
 		k := e.keys[i].stageKey
-		v, ok := e.cache[k]
-		if !ok {
-			v = e.stage(k)
-			e.cache[k] = v
-		}
+		v := e.stageVal(k)
 		if v.drop != dropNone || (v.floored && e.floorPrune) {
 			return math.Inf(1)
 		}

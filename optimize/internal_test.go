@@ -568,3 +568,34 @@ func TestReasons(t *testing.T) {
 		t.Errorf("DroppedText = %q", got)
 	}
 }
+
+// The estimate tier walks its first stages on Settings.Jobs goroutines
+// and merges them in walk order: the result (front, cloud, counts and
+// drops) is the same as one goroutine's, on ratios with few and many
+// first stages, with and without cancelled designs (fakeDesigner fails
+// some chains, so later passes run with taken-back chains).
+func TestEstimateTierJobs(t *testing.T) {
+	for _, d := range []int{2, 12, 96, 180, 1024} {
+		p := rxParams(d)
+		want := fakeSearch(t, p, Settings{Jobs: 1})
+		for _, jobs := range []int{3} {
+			got := fakeSearch(t, p, Settings{Jobs: jobs})
+			if got.Candidates != want.Candidates || got.FeasibleAll != want.FeasibleAll || got.Designed != want.Designed ||
+				!reflect.DeepEqual(got.Dropped, want.Dropped) || len(got.Feasible) != len(want.Feasible) || len(got.Front) != len(want.Front) {
+				t.Fatalf("D = %d, jobs %d: candidates %d/%d, feasible %d/%d, designed %d/%d, cloud %d/%d, front %d/%d, dropped %v / %v",
+					d, jobs, got.Candidates, want.Candidates, got.FeasibleAll, want.FeasibleAll, got.Designed, want.Designed,
+					len(got.Feasible), len(want.Feasible), len(got.Front), len(want.Front), got.Dropped, want.Dropped)
+			}
+			for i := range got.Feasible {
+				if comparePlans(got.Feasible[i].Plan, want.Feasible[i].Plan) != 0 || got.Feasible[i].Figures.MultipliesPerOutput != want.Feasible[i].Figures.MultipliesPerOutput {
+					t.Fatalf("D = %d, jobs %d: cloud member %d is %v, want %v", d, jobs, i, got.Feasible[i].Plan, want.Feasible[i].Plan)
+				}
+			}
+			for i := range got.Front {
+				if comparePlans(got.Front[i].Plan, want.Front[i].Plan) != 0 {
+					t.Fatalf("D = %d, jobs %d: front member %d is %v, want %v", d, jobs, i, got.Front[i].Plan, want.Front[i].Plan)
+				}
+			}
+		}
+	}
+}

@@ -7,6 +7,8 @@ import (
 	"runtime"
 	"slices"
 	"sort"
+	"sync"
+	"sync/atomic"
 
 	"github.com/stepdown-dsp/stepdown/chain"
 	"github.com/stepdown-dsp/stepdown/chain/fixed"
@@ -691,54 +693,124 @@ const autoMaxTaps = 16383
 // (+Inf when none).
 func searchPass(ctx context.Context, p *params, sp *space, s *Settings, est *estimator, t *designTier, res *Result) float64 {
 	tol := est.tol
-	// Pass 1: score everything, count drops, keep the estimated front.
-	var fr frontSet
-	frontPlans := map[int][]chain.StagePlan{}
-	var drops [len(dropNames)]int
-	need := math.Inf(1)
+	// Both walks run on jobs goroutines, one first stage of the walk at a
+	// time each (walkUnits), with an estimator each; their results are
+	// merged in walk order, so that the pass is the same as one walk's.
+	jobs := t.jobs
 	// walked counts the candidates of both walks for Settings.Scoring.
-	var walked int64
+	var walked atomic.Int64
+	var scoreMu sync.Mutex
 	total := 2 * sp.count()
 	scoring := func() {
 		if s.Scoring != nil {
-			s.Scoring(min(walked, total), total)
+			scoreMu.Lock()
+			s.Scoring(min(walked.Load(), total), total)
+			scoreMu.Unlock()
 		}
 	}
-	sp.skipCIC = est.skipCIC
-	sp.skipped = func(code dropCode, n int64) {
-		drops[code] += int(n)
-		res.Candidates += int(n)
-		walked += n
+	// The first-stage CICs that skipCIC drops are counted here, on the
+	// pass's own estimator, whose CIC caches reinstate reads later.
+	var drops [len(dropNames)]int
+	var units []chain.StagePlan
+	var skippedN int64
+	for _, st := range sp.firsts() {
+		if st.Kind == chain.CIC {
+			if code := est.skipCIC(st); code != dropNone {
+				n := sp.completions(sp.d/st.Factor, 1)
+				drops[code] += int(n)
+				res.Candidates += int(n)
+				skippedN += n
+				continue
+			}
+		}
+		units = append(units, st)
 	}
+	if sp.d == 1 {
+		units = nil
+	}
+	walked.Add(skippedN)
+
+	// Pass 1: score everything, count drops, keep the estimated front.
+	type pass1 struct {
+		candidates int
+		drops      [len(dropNames)]int
+		need       float64
+		feasible   int
+		fr         frontSet
+		plans      map[int][]chain.StagePlan
+	}
+	p1 := make([]pass1, len(units))
+	var fr frontSet
+	frontPlans := map[int][]chain.StagePlan{}
+	need := math.Inf(1)
 	feasible := 0
-	cancelled := false
-	steps := 0
-	sp.walk(func(plan []chain.StagePlan) bool {
-		res.Candidates++
-		walked++
-		if steps++; steps&4095 == 0 {
-			if ctx.Err() != nil {
-				cancelled = true
-				return false
-			}
-			scoring()
+	offsets := make([]int, len(units))
+	var frMu sync.Mutex
+	forks, ok := walkUnits(ctx, jobs, len(units), est.fork, func(e *estimator, i int) bool {
+		u := &p1[i]
+		// The unit's front starts from the merged one (its points marked
+		// -1): what they dominate is off the front whatever the timing,
+		// and the unit's front stays short.
+		frMu.Lock()
+		u.fr.f = append(u.fr.f, fr.f...)
+		for range fr.id {
+			u.fr.id = append(u.fr.id, -1)
 		}
-		f, drop := est.score(plan)
-		if drop != dropNone {
-			drops[drop]++
-			if drop == dropLongFIR {
-				need = math.Min(need, est.needTaps(plan))
+		frMu.Unlock()
+		u.need = math.Inf(1)
+		u.plans = map[int][]chain.StagePlan{}
+		steps := 0
+		var gk []byte
+		defer func() { walked.Add(int64(steps & 4095)) }()
+		return sp.walkFrom(units[i], func(plan []chain.StagePlan) bool {
+			u.candidates++
+			if steps++; steps&4095 == 0 {
+				walked.Add(4096)
+				if ctx.Err() != nil {
+					return false
+				}
+				scoring()
 			}
+			f, drop := e.score(plan)
+			if drop != dropNone {
+				u.drops[drop]++
+				if drop == dropLongFIR {
+					u.need = math.Min(u.need, e.needTaps(plan))
+				}
+				return true
+			}
+			// A chain that failed in an earlier pass cannot stand on the
+			// front that sets the band.
+			if !t.goneWith(plan, &gk) && u.fr.add(f, u.feasible) {
+				u.plans[u.feasible] = clonePlan(plan)
+			}
+			u.feasible++
 			return true
+		})
+	}, func(i int) {
+		u := &p1[i]
+		res.Candidates += u.candidates
+		for c, k := range u.drops {
+			drops[c] += k
 		}
-		// A chain that failed in an earlier pass cannot stand on the front
-		// that sets the band.
-		if !t.isGone(plan) && fr.add(f, feasible) {
-			frontPlans[feasible] = clonePlan(plan)
+		need = math.Min(need, u.need)
+		offsets[i] = feasible
+		frMu.Lock()
+		for j, id := range u.fr.id {
+			if id >= 0 && fr.add(u.fr.f[j], feasible+id) {
+				frontPlans[feasible+id] = u.plans[id]
+			}
 		}
-		feasible++
-		return true
+		frMu.Unlock()
+		feasible += u.feasible
+		p1[i] = pass1{}
 	})
+	cancelled := !ok
+	// What the walkers computed serves the second walk and the design
+	// tier.
+	for _, f := range forks {
+		est.absorb(f)
+	}
 	for c, k := range drops {
 		if k > 0 {
 			res.Dropped[dropNames[c]] = k
@@ -750,6 +822,14 @@ func searchPass(ctx context.Context, p *params, sp *space, s *Settings, est *est
 		res.Front = t.front()
 		return need
 	}
+	// A point joins the merged front only if no point of it dominates it,
+	// and a point it drops later leaves frontPlans unread: keep the plans
+	// of the members only.
+	for id := range frontPlans {
+		if !slices.Contains(fr.id, id) {
+			delete(frontPlans, id)
+		}
+	}
 
 	var fronts []bandRef
 	for _, id := range fr.id {
@@ -758,8 +838,8 @@ func searchPass(ctx context.Context, p *params, sp *space, s *Settings, est *est
 
 	// Pass 2: the same walk, now that the front is known: collect the band
 	// near the front (or everything, when exhaustive) and the thinned cloud.
+	walked.Add(skippedN)
 	scoring()
-	sp.skipped = func(_ dropCode, n int64) { walked += n }
 	var band []scored
 	byBand := func(i, j int) bool {
 		a, b := &band[i], &band[j]
@@ -768,43 +848,59 @@ func searchPass(ctx context.Context, p *params, sp *space, s *Settings, est *est
 		}
 		return comparePlans(a.plan, b.plan) < 0
 	}
-	idx, seen := 0, 0
-	sp.walk(func(plan []chain.StagePlan) bool {
-		walked++
-		if seen++; seen&4095 == 0 {
-			if ctx.Err() != nil {
-				cancelled = true
-				return false
+	type pass2 struct {
+		band  []scored
+		cloud []Candidate
+	}
+	p2 := make([]pass2, len(units))
+	_, ok = walkUnits(ctx, jobs, len(units), est.view, func(e *estimator, i int) bool {
+		u := &p2[i]
+		idx, seen := offsets[i], 0
+		defer func() { walked.Add(int64(seen & 4095)) }()
+		return sp.walkFrom(units[i], func(plan []chain.StagePlan) bool {
+			if seen++; seen&4095 == 0 {
+				walked.Add(4096)
+				if ctx.Err() != nil {
+					return false
+				}
+				scoring()
 			}
-			scoring()
-		}
-		f, drop := est.score(plan)
-		if drop != dropNone {
-			return true
-		}
-		if keepInCloud(idx, feasible) {
-			res.Feasible = append(res.Feasible, estimatedCandidate(plan, f, p))
-		}
-		idx++
-		if s.Exhaustive {
-			band = append(band, scored{plan: clonePlan(plan), f: f})
-			return true
-		}
-		if sl := fr.slack(&f); sl < 1+tol && !est.excluded(fronts) {
-			band = append(band, scored{plan: clonePlan(plan), f: f, slack: sl})
-			if len(band) >= 2*maxBand {
-				sort.Slice(band, byBand)
-				band = band[:maxBand]
+			f, drop := e.score(plan)
+			if drop != dropNone {
+				return true
 			}
+			if keepInCloud(idx, feasible) {
+				u.cloud = append(u.cloud, estimatedCandidate(plan, f, p))
+			}
+			idx++
+			if s.Exhaustive {
+				u.band = append(u.band, scored{plan: clonePlan(plan), f: f})
+				return true
+			}
+			if sl := fr.slack(&f); sl < 1+tol && !e.excluded(fronts) {
+				u.band = append(u.band, scored{plan: clonePlan(plan), f: f, slack: sl})
+				if len(u.band) >= 2*maxBand {
+					sortBand(u.band)
+					u.band = u.band[:maxBand]
+				}
+			}
+			return true
+		})
+	}, func(i int) {
+		res.Feasible = append(res.Feasible, p2[i].cloud...)
+		band = append(band, p2[i].band...)
+		p2[i] = pass2{}
+		if len(band) >= 2*maxBand {
+			sort.Slice(band, byBand)
+			band = band[:maxBand]
 		}
-		return true
 	})
-	if cancelled {
+	if !ok {
 		res.Partial = true
 		res.Front = t.front()
 		return need
 	}
-	walked = total
+	walked.Store(total)
 	scoring()
 	sort.Slice(band, byBand)
 	if len(band) > maxBand {
@@ -829,6 +925,65 @@ func searchPass(ctx context.Context, p *params, sp *space, s *Settings, est *est
 		}
 	}
 	return need
+}
+
+// sortBand sorts a band by slack, ties by the plans' total order.
+func sortBand(band []scored) {
+	sort.Slice(band, func(i, j int) bool {
+		a, b := &band[i], &band[j]
+		if a.slack != b.slack {
+			return a.slack < b.slack
+		}
+		return comparePlans(a.plan, b.plan) < 0
+	})
+}
+
+// walkUnits runs walk(e, i) for the units i in [0, n) on jobs goroutines,
+// each with the estimator est() gives it (returned), and calls merge(i) in
+// order of i, from one goroutine at a time, as soon as units 0..i are
+// done: the merged result is the one of a walk in unit order, whatever the
+// interleaving, and the finished units' results do not pile up. A walk
+// returning false (cancelled) ends it; walkUnits then returns false, with
+// the units merged so far.
+func walkUnits(ctx context.Context, jobs, n int, est func() *estimator, walk func(e *estimator, i int) bool, merge func(i int)) ([]*estimator, bool) {
+	if jobs < 1 {
+		jobs = 1
+	}
+	jobs = max(1, min(jobs, n))
+	ests := make([]*estimator, jobs)
+	var next atomic.Int64
+	var stop atomic.Bool
+	done := make([]bool, n)
+	var mu sync.Mutex
+	merged := 0
+	var wg sync.WaitGroup
+	for w := 0; w < jobs; w++ {
+		e := est()
+		ests[w] = e
+		wg.Add(1)
+		go func() {
+			defer wg.Done()
+			for !stop.Load() {
+				i := int(next.Add(1) - 1)
+				if i >= n {
+					return
+				}
+				if !walk(e, i) || ctx.Err() != nil {
+					stop.Store(true)
+					return
+				}
+				mu.Lock()
+				done[i] = true
+				for merged < n && done[merged] {
+					merge(merged)
+					merged++
+				}
+				mu.Unlock()
+			}
+		}()
+	}
+	wg.Wait()
+	return ests, merged == n
 }
 
 // maxRounds bounds the attempts to learn a stage's real figures: a stage

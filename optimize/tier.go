@@ -43,7 +43,6 @@ type designTier struct {
 	// estimator.reinstate.
 	gone   map[string]bool
 	failed [][]chain.StagePlan
-	key    []byte // planKey scratch
 	// learnt holds the real figures of the stages learnt so far, and
 	// tries how often a stage's chains failed (see learn).
 	learnt map[realKey]figs
@@ -462,11 +461,13 @@ func (t *designTier) widthReason(bits int) string {
 	return msg
 }
 
-// isGone reports whether plan failed, without allocating.
-func (t *designTier) isGone(plan []chain.StagePlan) bool {
+// goneWith reports whether plan failed, without allocating: scratch is
+// the caller's buffer for its key, since the estimate tier's walkers read
+// t.gone concurrently.
+func (t *designTier) goneWith(plan []chain.StagePlan, scratch *[]byte) bool {
 	if len(t.gone) == 0 {
 		return false
 	}
-	t.key = appendPlanKey(t.key[:0], plan)
-	return t.gone[string(t.key)]
+	*scratch = appendPlanKey((*scratch)[:0], plan)
+	return t.gone[string(*scratch)]
 }
