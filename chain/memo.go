@@ -18,7 +18,11 @@ import (
 // delay times factor and input rate of every CIC whose droop it corrects
 // (the compensator's desired gain), on Settings.Remez and MaxTaps, and,
 // under the cascade rule, on the credit's base limit and every earlier
-// stage as designed (a FIR's taps by their SHA-256).
+// stage as designed (a FIR's taps by their SHA-256). It remembers
+// fractional stages too, keyed on their kind, rate change, requirement,
+// Settings.Remez and MaxTaps: the integer stages before one do not change
+// its design, and the fractional search completes several integer chains
+// with the same fractional stage.
 // The stage returned carries the requirement of the chain being designed
 // and its own copy of the taps. A StageMemo is safe for concurrent use:
 // a stage asked for while another goroutine designs it waits for that
@@ -28,6 +32,8 @@ import (
 type StageMemo struct {
 	mu sync.Mutex
 	m  map[string]*memoEntry
+	// frac remembers fractional stages (memo_fractional.go).
+	frac map[string]*fracEntry
 }
 
 type memoEntry struct {

@@ -98,3 +98,38 @@ func builtTables(c *Chain) {
 		}
 	}
 }
+
+// A StageMemo serves a fractional stage met again (the same kind, rate
+// change, requirement and settings: here the same integer decimation in
+// front, by other stages) with the stage designed the first time, equal
+// to a design without the memo, and the memo keeps one entry for it.
+func TestFractionalMemo(t *testing.T) {
+	spec := Spec{InputRate: 100e6, OutputRate: 3.84e6, Passband: 1.2e6, Protected: 1.5e6, RippleDB: 0.2, RejectionDB: 60}
+	poly := StagePlan{Kind: Polyphase, Factor: 1, Up: 24, Down: 125}
+	farrow := StagePlan{Kind: Farrow, Factor: 1, Up: 24, Down: 125}
+	for _, plans := range [][][]StagePlan{
+		{{{Kind: FIR, Factor: 5, Variant: Lowpass}, poly}, {{Kind: FIR, Factor: 5, Variant: Multiband}, poly}},
+		{{{Kind: FIR, Factor: 5, Variant: Lowpass}, farrow}},
+	} {
+		m := NewStageMemo()
+		for round := 0; round < 2; round++ {
+			for _, pl := range plans {
+				with, err := Design(spec, pl, Settings{Memo: m})
+				if err != nil {
+					t.Fatalf("%s: %v", Notation(pl), err)
+				}
+				without, err := Design(spec, pl, Settings{})
+				if err != nil {
+					t.Fatal(err)
+				}
+				got, want := with.Stages[len(with.Stages)-1], without.Stages[len(without.Stages)-1]
+				if !reflect.DeepEqual(got, want) {
+					t.Fatalf("%s: the memo's stage differs from a design without it", Notation(pl))
+				}
+			}
+		}
+		if n := len(m.frac); n != 1 {
+			t.Errorf("%s: the memo holds %d fractional stages, want 1", Notation(plans[0]), n)
+		}
+	}
+}

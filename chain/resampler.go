@@ -267,28 +267,23 @@ func buildFractional(ctx context.Context, spec Spec, plan []StagePlan, s Setting
 	if err := ctx.Err(); err != nil {
 		return nil, stopped(plan, err)
 	}
-	switch last.Kind {
-	case Polyphase:
-		st, err := polyphaseStage(ctx, last, req, s, design)
-		if err != nil {
-			if cerr := ctx.Err(); cerr != nil {
-				return nil, stopped(plan, cerr)
-			}
-			return nil, planErr(plan, len(plan)-1, "%v", err)
-		}
-		c.Stages = append(c.Stages, st)
-	case Farrow:
-		st, err := farrowStage(ctx, last, req)
-		if err != nil {
-			if cerr := ctx.Err(); cerr != nil {
-				return nil, stopped(plan, cerr)
-			}
-			return nil, planErr(plan, len(plan)-1, "%v", err)
-		}
-		c.Stages = append(c.Stages, st)
-	default:
+	if last.Kind != Polyphase && last.Kind != Farrow {
 		return nil, planErr(plan, len(plan)-1, "a %s stage cannot be designed", last.Kind)
 	}
+	// Every chain that ends in this stage shares its design (Settings.Memo).
+	st, err := s.Memo.fractional(ctx, design, last, req, s, func() (Stage, error) {
+		if last.Kind == Polyphase {
+			return polyphaseStage(ctx, last, req, s, design)
+		}
+		return farrowStage(ctx, last, req)
+	})
+	if err != nil {
+		if cerr := ctx.Err(); cerr != nil {
+			return nil, stopped(plan, cerr)
+		}
+		return nil, planErr(plan, len(plan)-1, "%v", err)
+	}
+	c.Stages = append(c.Stages, st)
 	return c, nil
 }
 
