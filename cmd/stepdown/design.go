@@ -170,6 +170,18 @@ func runDesign(c *cli.Context) error {
 		bands = append(bands, b)
 		out.Bands = append(out.Bands, designBand{Kind: kind, LoHz: e.lo, HiHz: e.hi, Weight: b.Weight})
 	}
+	if taps == 0 {
+		// A filter far beyond the longest length searched would cost
+		// minutes of designs before failing: refused at once, with the
+		// attenuation and the transition that would fit.
+		de := make([]designEdge, len(edges))
+		for i, e := range edges {
+			de[i] = designEdge{e.lo, e.hi, e.pass}
+		}
+		if err := checkDesignSize(de, dp, ds, atten, rate); err != nil {
+			return err
+		}
+	}
 	settings := remez.Settings{Density: grid}
 	if taps > 0 {
 		// The engine refuses a grid over remez.MaxGridPoints (about 400 MB);
@@ -219,6 +231,69 @@ func runDesign(c *cli.Context) error {
 	}
 	printDesign(c.App.Writer, out)
 	return nil
+}
+
+// designEdge is a band of the design command: its edges, Hz, and whether
+// it is the passband.
+type designEdge struct {
+	lo, hi float64
+	pass   bool
+}
+
+// oversizeMargin is how far above maxDesignTaps the Herrmann estimate of
+// a transition must lie for the length search to be refused before it
+// starts: the estimate is within about 10% of the designed lengths
+// (chain/remez's tests), so a filter refused would not fit.
+const oversizeMargin = 1.25
+
+// checkDesignSize refuses a minimum-length design whose sharpest
+// pass-to-stop transition (edges sorted, not overlapping) is estimated by
+// Herrmann's formula (remez.HerrmannLength) at more than oversizeMargin
+// times maxDesignTaps, naming the largest --atten and the narrowest
+// transition that would be estimated within maxDesignTaps.
+func checkDesignSize(edges []designEdge, dp, ds, atten, rate float64) error {
+	worst, wi := 0, -1
+	for i := 0; i+1 < len(edges); i++ {
+		a, b := edges[i], edges[i+1]
+		if a.pass == b.pass {
+			continue
+		}
+		if n := remez.HerrmannLength(math.Min(dp, 0.5), math.Min(ds, 0.5), b.lo-a.hi, rate); n > worst {
+			worst, wi = n, i
+		}
+	}
+	if wi < 0 || float64(worst) <= oversizeMargin*maxDesignTaps {
+		return nil
+	}
+	tr := edges[wi+1].lo - edges[wi].hi
+	fits := func(at, t float64) bool {
+		n := remez.HerrmannLength(math.Min(dp, 0.5), math.Min(chain.RejectionToDev(at), 0.5), t, rate)
+		return n > 0 && n <= maxDesignTaps
+	}
+	lo, hi := 0.0, atten // the largest attenuation that fits at tr
+	for range 60 {
+		if mid := (lo + hi) / 2; fits(mid, tr) {
+			lo = mid
+		} else {
+			hi = mid
+		}
+	}
+	tlo, thi := tr, rate/2 // the narrowest transition that fits at atten
+	for range 60 {
+		if mid := (tlo + thi) / 2; fits(atten, mid) {
+			thi = mid
+		} else {
+			tlo = mid
+		}
+	}
+	// Three significant figures, rounded up so that the width named fits.
+	step := math.Pow(10, math.Floor(math.Log10(thi))-2)
+	advice := fmt.Sprintf("widen that transition to at least %s", units.FormatFrequency(math.Ceil(thi/step)*step))
+	if lo > 0 && fits(lo, tr) {
+		advice = fmt.Sprintf("lower --atten to %.1f dB or less, or %s", math.Floor(lo*10)/10, advice)
+	}
+	return usagef("--atten %g dB over the %s transition from %s to %s: about %d taps (Herrmann's estimate), more than the %d this command designs; %s",
+		atten, units.FormatFrequency(tr), units.FormatFrequency(edges[wi].hi), units.FormatFrequency(edges[wi+1].lo), worst, maxDesignTaps, advice)
 }
 
 // rippleOf is the peak-to-peak ripple of a passband deviation; a deviation of

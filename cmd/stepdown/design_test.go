@@ -9,6 +9,9 @@ import (
 	"syscall"
 	"testing"
 	"time"
+
+	"github.com/stepdown-dsp/stepdown/chain"
+	"github.com/stepdown-dsp/stepdown/chain/remez"
 )
 
 type designJSON struct {
@@ -111,5 +114,35 @@ func TestDesignGridTooLarge(t *testing.T) {
 		"--ripple", "0.1", "--atten", "80", "--taps", "65535", "--grid", "1024")
 	if r.code != 2 || !strings.Contains(r.stderr, "--grid 1024") || !strings.Contains(r.stderr, "--grid 63 or less") {
 		t.Errorf("exit %d, stderr %q: want 2 naming --grid 1024 and --grid 63 or less", r.code, r.stderr)
+	}
+}
+
+// A minimum-length design estimated far beyond the longest length searched
+// is refused at once, and the attenuation and transition it names are
+// estimated within that length by the same formula (Herrmann's, as the
+// length search starts from it); one estimated under the margin is let
+// through.
+func TestDesignOversizeRefused(t *testing.T) {
+	dp, ds := chain.RippleToDev(0.1), chain.RejectionToDev(120)
+	edges := []designEdge{{0, 100e3, true}, {100.04e3, 500e3, false}}
+	err := checkDesignSize(edges, dp, ds, 120, 1e6)
+	if err == nil {
+		t.Fatal("a 113 000-tap design was not refused")
+	}
+	msg := err.Error()
+	for _, want := range []string{"--atten 120 dB", "40 Hz transition", "113561 taps", "lower --atten to 56.8 dB", "69.4 Hz"} {
+		if !strings.Contains(msg, want) {
+			t.Errorf("message %q lacks %q", msg, want)
+		}
+	}
+	if n := remez.HerrmannLength(dp, chain.RejectionToDev(56.8), 40, 1e6); n > maxDesignTaps {
+		t.Errorf("the attenuation named needs %d taps", n)
+	}
+	if n := remez.HerrmannLength(dp, ds, 69.4, 1e6); n > maxDesignTaps {
+		t.Errorf("the transition named needs %d taps", n)
+	}
+	// About 54 000 taps: designed, not refused.
+	if err := checkDesignSize([]designEdge{{0, 0.0005, true}, {0.0006, 0.5, false}}, chain.RippleToDev(0.01), chain.RejectionToDev(120), 120, 1); err != nil {
+		t.Errorf("a design within the limit was refused: %v", err)
 	}
 }
