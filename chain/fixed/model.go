@@ -53,6 +53,14 @@ func NewModel(c Cascade, w *Widths) (*Model, error) {
 	m := &Model{inBits: w.InputBits}
 	for i, st := range c.Stages {
 		sw := &w.Stages[i]
+		if st.fractional() {
+			if sw.Up != st.Up || sw.Down != st.Down || (st.Farrow != nil) != sw.Farrow {
+				return nil, fmt.Errorf("fixed: stage %d: the fractional stage has no plan of its kind (widths of another cascade)", i+1)
+			}
+			fi, _ := newFracFilters(st, sw)
+			m.stages = append(m.stages, fi)
+			continue
+		}
 		if st.CIC {
 			if st.Interpolate && sw.CICInterp == nil || !st.Interpolate && sw.Pruning == nil {
 				return nil, fmt.Errorf("fixed: stage %d: the CIC has no register plan for its direction (widths of another cascade)", i+1)
