@@ -458,9 +458,10 @@ type polyInt struct {
 	buf      []int64 // the last k-1 inputs, then the block
 	n, next  int     // inputs seen before the block; the next output
 	sat      int
-	accLo    int64
-	accHi    int64
 	keepHist int
+	// The extremes the accumulator reached, for the tests that drive the
+	// stage with worst-case inputs.
+	accLo, accHi int64
 }
 
 func newPolyInt(h []int64, l, m, shift, ob int) *polyInt {
@@ -553,6 +554,9 @@ type farrowInt struct {
 	seen, next int
 	sat        int
 	v          []int64
+	// The extremes the branch sums and the Horner register reached, for
+	// the tests that drive the stage with worst-case inputs.
+	brLo, brHi, hoLo, hoHi int64
 }
 
 func newFarrowInt(sw *StageWidths) *farrowInt {
@@ -587,6 +591,7 @@ func (s *farrowInt) run(x, out []int64) []int64 {
 					a += c * s.buf[pos+j]
 				}
 			}
+			s.brLo, s.brHi = min(s.brLo, a), max(s.brHi, a)
 			if s.drop > 0 {
 				a = (a + int64(1)<<(s.drop-1)) >> s.drop
 			}
@@ -596,6 +601,7 @@ func (s *farrowInt) run(x, out []int64) []int64 {
 		acc := s.v[len(s.v)-1]
 		for p := len(s.v) - 2; p >= 0; p-- {
 			acc = (acc*mu+int64(1)<<(s.mb-1))>>s.mb + s.v[p]
+			s.hoLo, s.hoHi = min(s.hoLo, acc), max(s.hoHi, acc)
 		}
 		y, sat := roundSat(acc, s.shift, s.lo, s.hi)
 		if sat {
