@@ -1028,6 +1028,12 @@ func aliasRun(ctx context.Context, c Cascade, w *Widths, sig Signal, res *BitTru
 		if len(yi) < win {
 			return fmt.Errorf("fixed: bit-true alias run made %d of %d output samples (an internal miscount of the input needed)", len(yi), win)
 		}
+		if shift != 0 || len(chain.PathGains(q, g, 0)) > 1 {
+			// The tone's other paths through the fractional stage land on
+			// other bins of the window (whole cycles, see BitTrue): they
+			// are signal, not noise in the alias's bin.
+			yi = removePaths(yi, q, g, fout, fk, win)
+		}
 		ai, resid := project(yi, fout/fk)
 		af, _ := project(yf, fout/fk)
 		res.AliasRejectionDB = posDB(ai / (a * h0q))

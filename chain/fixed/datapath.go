@@ -706,6 +706,10 @@ func planFIR(st Stage, rate float64, in, ob, coefBits int, s Settings, minBits i
 	}
 	var err error
 	if coefBits == 0 {
+		if st.Up > 0 {
+			// A fractional stage's prototype (planPolyphase).
+			q.from = widthEstimate(st.Taps, bands, sw.FloatDeviations)
+		}
 		sw.Coefficients, sw.Deviations, err = MinCoefBits(st.Taps, rate, bands, q)
 		if err != nil {
 			return StageWidths{}, err

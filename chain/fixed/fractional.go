@@ -117,15 +117,17 @@ func planFractional(st Stage, rate float64, in, ob, coefBits int, s Settings, mi
 }
 
 // planPolyphase plans a polyphase L/M stage: its prototype times L
-// quantised as an FIR's taps (planFIR: one width, MinCoefBits or
-// TryWidth, the bands scaled by L), each output the exact sum of one
-// phase's products in an accumulator that holds every phase's extremes,
-// rounded half up at OutputShift and saturated.
+// quantised as an FIR's taps (planFIR, the bands scaled by L; "auto"
+// searches from widthEstimate, narrowestWidth),
+// each output the exact sum of one phase's products in an accumulator
+// that holds every phase's extremes, rounded half up at OutputShift and
+// saturated.
 func planPolyphase(st Stage, rate float64, in, ob, coefBits int, s Settings, minBits int) (StageWidths, error) {
 	l := st.Up
 	scaled := scaledStage(st, float64(l))
 	scaled.R = 1
-	sw, err := planFIR(scaled, rate*float64(l), in, ob, coefBits, s, minBits)
+	prate := rate * float64(l)
+	sw, err := planFIR(scaled, prate, in, ob, coefBits, s, minBits)
 	if err != nil {
 		return StageWidths{}, err
 	}
@@ -303,32 +305,14 @@ func planFarrow(st Stage, rate float64, in, ob, coefBits int, s Settings, minBit
 		if lo > hi || hi > MaxBits {
 			return StageWidths{}, fmt.Errorf("fixed: coefficient widths [%d, %d] must lie within [2, %d]", lo, hi, MaxBits)
 		}
-		// Start from the width whose rounding noise is about the stopband
-		// limit and step to the narrowest that meets: each try measures a
-		// prototype of Up N taps.
-		ds := math.Inf(1)
-		for _, b := range bands[1:] {
-			ds = math.Min(ds, b.MaxError)
+		b, err := narrowestWidth(lo, hi, widthEstimate(flat, bands, sw.FloatDeviations), s.Quant, func(b int) bool {
+			_, _, _, ok := try(b)
+			return ok
+		})
+		if err != nil {
+			return StageWidths{}, err
 		}
-		b := min(hi, max(lo, int(math.Ceil(-math.Log2(ds)))))
-		c0, m0, d0, ok := try(b)
-		for ok && b > lo {
-			c1, m1, d1, ok1 := try(b - 1)
-			if !ok1 {
-				break
-			}
-			b, c0, m0, d0 = b-1, c1, m1, d1
-		}
-		for !ok && b < hi {
-			if s.Quant.stopped() {
-				return StageWidths{}, fmt.Errorf("fixed: coefficient width search stopped: %w", s.Quant.ctx.Err())
-			}
-			b++
-			c0, m0, d0, ok = try(b)
-		}
-		if !ok {
-			return StageWidths{}, fmt.Errorf("%w up to %d bits (deviations at %d bits: %v)", ErrNoWidth, hi, hi, d0)
-		}
+		c0, m0, d0, _ := try(b)
 		cf, mb, sw.Deviations, sw.MeetsBands = c0, m0, d0, true
 	}
 	sw.MeetsBands = sw.MeetsBands && sw.FloatMeets
@@ -768,4 +752,73 @@ func worstPath(c *chain.Chain, g, fa, fp float64) int {
 		}
 	}
 	return best
+}
+
+// widthEstimate is where narrowestWidth starts: one bit below the width
+// at which the rounding noise of the taps, 3 2^-Frac sqrt(N/12) (three
+// times the RMS of N independent uniform rounding errors, common
+// practice), fits the tightest band's room left by the float design
+// (its MaxError less the float deviation fdev: a design of least length
+// leaves little, and a band the float design misses has its MaxError
+// raised to 17/16 of fdev).
+func widthEstimate(taps []float64, bands []remez.Band, fdev []float64) int {
+	m, lim := 0.0, math.Inf(1)
+	for _, t := range taps {
+		m = math.Max(m, math.Abs(t))
+	}
+	for i, b := range bands {
+		lim = math.Min(lim, math.Max(b.MaxError-fdev[i], b.MaxError*1e-9))
+	}
+	_, e := math.Frexp(m)
+	return int(math.Ceil(1+float64(e)+math.Log2(3*math.Sqrt(float64(len(taps))/12)/lim))) - 1
+}
+
+// narrowestWidth returns the narrowest width in [lo, hi] at which meets
+// holds, searching from start: down while the next narrower width meets,
+// else up until one does. Each try of a fractional stage's long
+// prototype is dear, so the search starts near the answer instead of at
+// lo; it takes the widths that meet to be every one above the narrowest,
+// as MinCoefBits does.
+func narrowestWidth(lo, hi, start int, q QuantSettings, meets func(int) bool) (int, error) {
+	b := min(hi, max(lo, start))
+	ok := meets(b)
+	for ok && b > lo {
+		if q.stopped() {
+			return 0, fmt.Errorf("fixed: coefficient width search stopped: %w", q.ctx.Err())
+		}
+		if !meets(b - 1) {
+			break
+		}
+		b--
+	}
+	for !ok && b < hi {
+		if q.stopped() {
+			return 0, fmt.Errorf("fixed: coefficient width search stopped: %w", q.ctx.Err())
+		}
+		b++
+		ok = meets(b)
+	}
+	if !ok {
+		return 0, fmt.Errorf("%w up to %d bits", ErrNoWidth, hi)
+	}
+	return b, nil
+}
+
+// removePaths returns a copy of the window y (win samples at rate fk)
+// without the components of the input tone g's paths through the
+// fractional stage of q that land on other bins than fout's: each is a
+// whole number of cycles in the window, removed by least squares.
+func removePaths(y []float64, q *chain.Chain, g, fout, fk float64, win int) []float64 {
+	out := append([]float64(nil), y...)
+	at := int(math.Round(fout / fk * float64(win)))
+	done := map[int]bool{at: true}
+	for _, p := range chain.PathGains(q, g, 0) {
+		m := int(math.Round(p.OutputHz / fk * float64(win)))
+		if done[m] {
+			continue
+		}
+		done[m] = true
+		removeTone(out, float64(m)/float64(win))
+	}
+	return out
 }
