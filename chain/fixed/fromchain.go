@@ -358,7 +358,11 @@ func EvaluateContext(ctx context.Context, spec chain.Spec, c *chain.Chain, s Set
 
 // QuantisedChain returns a copy of c whose FIR and half-band taps are the
 // quantised coefficients of w (from Plan on FromChain(spec, c)), for
-// chain.Analyze and chain.Run. It panics if w does not match c, which
+// chain.Analyze and chain.Run. A fractional stage becomes the
+// chain.PolyphaseStage it is as built (package doc, Fractional stages): a
+// polyphase stage with its quantised prototype, a Farrow stage as the
+// polyphase filter of its quantised rows at its rounded output times (its
+// Plan entry still says farrow). It panics if w does not match c, which
 // includes a c holding a stage FromChain refuses.
 //
 // The widths of an interpolation chain are in signal order (FromChain):

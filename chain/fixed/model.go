@@ -32,6 +32,10 @@ import (
 // last integrator truncated (floor) to OutputBits. Every stage gives R
 // outputs per input sample, the first with its first input.
 //
+// A fractional stage (package doc, Fractional stages) gives ceil(n L / M)
+// outputs for n inputs (polyphase), or the outputs whose last input has
+// arrived (Farrow: N/2 samples later).
+//
 // A Model keeps its filters' state between calls to Run, so a long input can
 // be run a block at a time; the zero Model is not usable (NewModel).
 type Model struct {

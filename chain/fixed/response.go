@@ -8,7 +8,9 @@ import "github.com/stepdown-dsp/stepdown/chain"
 // their gain correction; CICs have the chain package's unit DC gain (see
 // cicScale). The spec carries the cascade's rates and bands for
 // chain.Analyze; its ripple and rejection targets are placeholders, since
-// Analyze measures and does not judge.
+// Analyze measures and does not judge. A fractional stage becomes a
+// chain.PolyphaseStage of its float or quantised prototype (fracProto),
+// and the chain gets the plan chain.Analyze reads.
 //
 // An interpolation cascade becomes its transpose, as the chain package
 // holds an interpolation chain: the stages from the high rate down,
