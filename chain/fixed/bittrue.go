@@ -44,7 +44,9 @@ type Signal struct {
 	AliasHz float64
 	// Samples is the number of output samples measured after the filters'
 	// transients; zero means 2048, halved (down to 256) while the run would
-	// need more than 4 Mi input samples. For an interpolation cascade the
+	// need more than 4 Mi input samples; after a fractional stage it is
+	// rounded up to a multiple of its L (package doc, Fractional stages).
+	// For an interpolation cascade the
 	// window spans whole input samples: zero means 2048 of them (2048 L
 	// output samples), halved (down to 256) while the run would need more
 	// than 4 Mi output samples; a given Samples is rounded up to whole input

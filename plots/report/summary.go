@@ -108,6 +108,9 @@ func WriteWordLengths(w io.Writer, rep *Report) {
 			// chain/fixed, Fractional stages).
 			fmt.Fprintf(&b, ", coefficients %d bits (%d rows), branch accumulators %d bits, mu %d bits, Horner register %d bits, multiplier %s",
 				sr.CoefficientBits, sr.CoefficientRows, sr.AccumulatorBits, sr.MuBits, sr.HornerBits, sr.MultiplierSize)
+			if !sr.QuantisedMeetsBands {
+				b.WriteString(", rounded taps miss this stage's own bands (the chain is judged as a whole)")
+			}
 		case rep.Spec.Hardware.Multiplierless:
 			fmt.Fprintf(&b, ", coefficients %d bits, accumulator %d bits, an adder graph", sr.CoefficientBits, sr.AccumulatorBits)
 			if st.CoefficientAdders != nil && st.StructuralAdders != nil {
