@@ -1,7 +1,9 @@
 package fixed
 
 import (
+	"context"
 	"encoding/json"
+	"errors"
 	"math"
 	"math/big"
 	"math/cmplx"
@@ -663,10 +665,93 @@ func TestFractionalInterpolationRefused(t *testing.T) {
 	if err != nil {
 		t.Fatal(err)
 	}
-	if _, _, err := FromChain(up, ci); err != ErrFractional {
+	if _, _, err := FromChain(up, ci); !errors.Is(err, ErrFractional) {
 		t.Errorf("FromChain of %s (interpolation): %v, want ErrFractional", chain.Notation(c.Plan), err)
 	}
-	if _, err := Evaluate(up, ci, Settings{}, Signal{}); err != ErrFractional {
+	if _, err := Evaluate(up, ci, Settings{}, Signal{}); !errors.Is(err, ErrFractional) {
 		t.Errorf("Evaluate: %v, want ErrFractional", err)
+	}
+}
+
+// TestFractionalStopped: a cancelled context stops the plan and the
+// bit-true run of a fractional chain with an error wrapping ctx.Err().
+func TestFractionalStopped(t *testing.T) {
+	rng := rand.New(rand.NewPCG(14, 26))
+	for _, fa := range []bool{false, true} {
+		spec, c := randomFracChain(rng, fa)
+		if c == nil {
+			t.Fatal("no chain")
+		}
+		ctx, cancel := context.WithCancel(context.Background())
+		cancel()
+		if _, err := EvaluateContext(ctx, spec, c, Settings{}, Signal{}); !errors.Is(err, context.Canceled) {
+			t.Errorf("%s: EvaluateContext after cancel: %v", chain.Notation(c.Plan), err)
+		}
+		cas, _, err := FromChain(spec, c)
+		if err != nil {
+			t.Fatal(err)
+		}
+		ws, _, err := PlanChain(spec, c, Settings{})
+		if err != nil {
+			t.Fatal(err)
+		}
+		if _, err := BitTrueContext(ctx, cas, ws, Signal{}); !errors.Is(err, context.Canceled) {
+			t.Errorf("%s: BitTrueContext after cancel: %v", chain.Notation(c.Plan), err)
+		}
+		// RunCodes gives Model's codes (the same integer data path).
+		x := randomCodes(rng, 1500, ws.InputBits)
+		codes, fl, err := RunCodes(context.Background(), cas, ws, x)
+		if err != nil {
+			t.Fatal(err)
+		}
+		md, _ := NewModel(cas, ws)
+		out, err := md.Run(x)
+		if err != nil {
+			t.Fatal(err)
+		}
+		last := out[len(out)-1]
+		if len(codes) != len(last) || len(fl) != len(codes) {
+			t.Fatalf("%s: RunCodes %d codes, %d floats; Model %d", chain.Notation(c.Plan), len(codes), len(fl), len(last))
+		}
+		for i := range last {
+			if codes[i] != last[i] {
+				t.Fatalf("%s: RunCodes y[%d] = %d, Model %d", chain.Notation(c.Plan), i, codes[i], last[i])
+			}
+		}
+	}
+}
+
+// TestFarrowFloatMatchesRun holds the bit-true run's float Farrow stage,
+// run in random blocks, to farrow.Filter.Run at chain.FarrowTimes (which
+// package farrow holds to the direct sum over h(t - n)), on the designed
+// stages of seeded random chains: the same outputs, to rounding.
+func TestFarrowFloatMatchesRun(t *testing.T) {
+	rng := rand.New(rand.NewPCG(14, 27))
+	for range 4 {
+		_, c := randomFracChain(rng, true)
+		if c == nil {
+			t.Fatal("no chain")
+		}
+		st := c.Stages[len(c.Stages)-1].(chain.FarrowStage)
+		x := make([]float64, 1200)
+		for i := range x {
+			x[i] = 2*rng.Float64() - 1
+		}
+		f := newFarrowFloat(Stage{Up: st.Up, Down: st.Down, Farrow: st.Filter.Coef})
+		var got []float64
+		for i := 0; i < len(x); {
+			n := min(len(x)-i, 1+rng.IntN(90))
+			got = f.run(x[i:i+n], got)
+			i += n
+		}
+		want := st.Filter.Run(x, chain.FarrowTimes(st.Up, st.Down, len(x)))
+		if len(got) == 0 || len(got) > len(want) {
+			t.Fatalf("%s: %d outputs, Run %d", chain.Notation(c.Plan), len(got), len(want))
+		}
+		for i := range got {
+			if math.Abs(got[i]-want[i]) > 1e-12 {
+				t.Fatalf("%s: y[%d] = %.17g, Run %.17g", chain.Notation(c.Plan), i, got[i], want[i])
+			}
+		}
 	}
 }
