@@ -16,6 +16,14 @@ import (
 // fractional says whether st is a fractional stage.
 func (st Stage) fractional() bool { return st.Up > 0 }
 
+// Fractional says whether the cascade has a fractional stage (Stage.Up
+// set): the hand-off packages refuse it, being written for chains of
+// integer stages only.
+func (c Cascade) Fractional() bool {
+	_, i := c.fracStage()
+	return i >= 0
+}
+
 // fraction returns the cascade's input rate over its output rate as
 // num/den (not reduced): its Ratio over 1 for an integer cascade, Ratio
 // Down/Up when it ends in a fractional stage.
