@@ -611,31 +611,38 @@ func (s *farrowInt) run(x, out []int64) []int64 {
 func (s *farrowInt) saturated() int { return s.sat }
 
 // farrowFloat is farrowInt's float chain: the float rows at the exact
-// times m Down/Up (chain.FarrowTimes), Horner in float64.
+// times m Down/Up (chain.FarrowTimes), Horner in float64. Each output is
+// made with farrowInt's (once input b_q + N/2 arrives, b_q its rounded
+// time's sample, one past the exact b when mu rounds up to 1), so that
+// both chains give the same outputs in every block.
 type farrowFloat struct {
 	c          [][]float64
 	n, up, dn  int
+	q          []int // farrowInt's whole samples per phase (farrowTiming)
 	buf        []float64
 	seen, next int
 	v          []float64
 }
 
-func newFarrowFloat(st Stage) *farrowFloat {
+func newFarrowFloat(st Stage, muBits int) *farrowFloat {
 	n := len(st.Farrow[0])
-	return &farrowFloat{c: st.Farrow, n: n, up: st.Up, dn: st.Down, buf: make([]float64, n-1), v: make([]float64, len(st.Farrow))}
+	q, _ := farrowTiming(st.Up, st.Down, muBits)
+	// n past inputs: an output waits for b_q + N/2 <= b + N/2 + 1.
+	return &farrowFloat{c: st.Farrow, n: n, up: st.Up, dn: st.Down, q: q, buf: make([]float64, n), v: make([]float64, len(st.Farrow))}
 }
 
 func (s *farrowFloat) run(x, out []float64) []float64 {
-	k := s.n - 1
+	k := s.n
 	s.buf = append(s.buf[:k], x...)
 	end := s.seen + len(x)
 	for {
 		ph := s.next % s.up
-		t := ph * s.dn
-		b := s.next/s.up*s.dn + t/s.up
-		if b+s.n/2 >= end {
+		base := s.next / s.up * s.dn
+		if base+s.q[ph]+s.n/2 >= end {
 			break
 		}
+		t := ph * s.dn
+		b := base + t/s.up
 		mu := float64(t%s.up) / float64(s.up)
 		first := b - s.n/2 + 1
 		pos := first - s.seen + k
@@ -665,7 +672,7 @@ func (s *farrowFloat) run(x, out []float64) []float64 {
 // fractional stage st.
 func newFracFilters(st Stage, sw *StageWidths) (intFilter, floatFilter) {
 	if st.Farrow != nil {
-		return newFarrowInt(sw), newFarrowFloat(st)
+		return newFarrowInt(sw), newFarrowFloat(st, sw.MuBits)
 	}
 	h := make([]float64, len(st.Taps))
 	for k, v := range st.Taps {
