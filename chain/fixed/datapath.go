@@ -326,6 +326,9 @@ func Plan(c Cascade, w Words, s Settings) (*Widths, error) {
 	if len(c.Stages) == 0 {
 		return nil, fmt.Errorf("fixed: cascade has no stages")
 	}
+	if s.MuBits < 0 || s.MuBits > 32 {
+		return nil, fmt.Errorf("fixed: settings MuBits = %d: must be 0 (the coefficient width) or lie in [1, 32] bits", s.MuBits)
+	}
 	if (s.NativeA == 0) != (s.NativeB == 0) || s.NativeA < 0 || s.NativeB < 0 {
 		return nil, fmt.Errorf("fixed: native multiplier %d x %d: give both sizes (> 0) or neither", s.NativeA, s.NativeB)
 	}

@@ -9,6 +9,7 @@ import (
 	"math/cmplx"
 	"math/rand/v2"
 	"os"
+	"strings"
 	"testing"
 
 	"github.com/stepdown-dsp/stepdown/chain"
@@ -791,5 +792,17 @@ func TestFarrowBlocksAligned(t *testing.T) {
 			t.Fatalf("%s (mu %d bits): %v, %v", chain.Notation(c.Plan), mb, err, res.BitTrueErr)
 		}
 		t.Logf("%s, mu %d bits: bit-true SNR %.1f dB", chain.Notation(c.Plan), mb, res.BitTrue.SNRDB)
+	}
+}
+
+// TestMuBitsChecked: Settings.MuBits outside [0, 32] is refused with a
+// message that names it.
+func TestMuBitsChecked(t *testing.T) {
+	rng := rand.New(rand.NewPCG(14, 29))
+	spec, c := randomFracChain(rng, true)
+	for _, mb := range []int{-1, 33} {
+		if _, _, err := PlanChain(spec, c, Settings{MuBits: mb}); err == nil || !strings.Contains(err.Error(), "MuBits") {
+			t.Errorf("MuBits %d: %v", mb, err)
+		}
 	}
 }
