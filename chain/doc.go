@@ -474,7 +474,8 @@
 //     refined toward minimax, certified).
 //
 // Run runs both kinds: Resample (SciPy's upfirdn times L,
-// TestResampleSciPy) and farrow.Filter.Run at FarrowTimes. Word lengths,
-// the bit-true run and the hand-off to RTL are for integer chains only
-// (package fixed refuses a fractional chain).
+// TestResampleSciPy) and farrow.Filter.Run at FarrowTimes. Package fixed
+// plans a decimation chain's fractional stage in fixed point (its doc,
+// Fractional stages) and refuses an interpolation chain's; the hand-off to
+// RTL is for integer chains only.
 package chain

@@ -44,7 +44,9 @@ type Signal struct {
 	AliasHz float64
 	// Samples is the number of output samples measured after the filters'
 	// transients; zero means 2048, halved (down to 256) while the run would
-	// need more than 4 Mi input samples. For an interpolation cascade the
+	// need more than 4 Mi input samples; after a fractional stage it is
+	// rounded up to a multiple of its L (package doc, Fractional stages).
+	// For an interpolation cascade the
 	// window spans whole input samples: zero means 2048 of them (2048 L
 	// output samples), halved (down to 256) while the run would need more
 	// than 4 Mi output samples; a given Samples is rounded up to whole input
@@ -193,11 +195,11 @@ func BitTrueContext(ctx context.Context, c Cascade, w *Widths, sig Signal) (BitT
 	if fa == 0 {
 		fa = fp
 	}
-	d := 1
-	for _, st := range c.Stages {
-		d *= st.R
-	}
-	fk := c.InputRate / float64(d)
+	// num/den input samples per output sample: the decimation d, or d
+	// Down/Up after a fractional stage.
+	d := c.Ratio()
+	num, den := c.fraction()
+	fk := c.ChannelRate()
 	if !(fp > 0) || fp >= fk/2 || fa < fp || fa > fk/2 {
 		return BitTrueResult{}, fmt.Errorf("fixed: cascade Passband = %g Hz, Protected = %g Hz: need 0 < Passband <= Protected <= output rate/2 = %g Hz", fp, fa, fk/2)
 	}
@@ -208,7 +210,11 @@ func BitTrueContext(ctx context.Context, c Cascade, w *Widths, sig Signal) (BitT
 	if sig.Samples < 64 {
 		return BitTrueResult{}, fmt.Errorf("fixed: signal Samples = %d: must be >= 64", sig.Samples)
 	}
+	frac, _ := c.fracStage()
 	if sig.Shaper != nil {
+		if frac.fractional() {
+			return BitTrueResult{}, fmt.Errorf("fixed: a noise-shaped input (Signal.Shaper) feeds a cascade of integer stages only")
+		}
 		return bitTrueShaped(ctx, c, w, sig, fp, fk, d, auto)
 	}
 	sd, err := sig.fill(w.InputBits, fp, fk, c.InputRate, 0)
@@ -219,20 +225,27 @@ func BitTrueContext(ctx context.Context, c Cascade, w *Widths, sig Signal) (BitT
 	if err := checkCICRun(c, w); err != nil {
 		return BitTrueResult{}, err
 	}
-	// Transient: the cascade's impulse response length in output samples.
+	// Transient: the cascade's impulse response length in input samples
+	// (a fractional stage's span in its input samples), in output samples.
 	span, p := 1, 1
 	for _, st := range c.Stages {
 		span += (st.Length() - 1) * p
 		p *= st.R
 	}
-	skip := (span+d-1)/d + 1
+	skip := (span*den+num-1)/num + 1
 	nm := sig.Samples
-	for auto && nm > 256 && (skip+nm)*d > autoInputSamples {
+	for auto && nm > 256 && c.inputsFor(skip+nm) > autoInputSamples {
 		nm /= 2
 	}
-	nin := (skip + nm) * d
+	if frac.fractional() {
+		// A window of whole periods of the output's phases (a multiple of
+		// Up samples): every path k Fm of a tone on the window's grid then
+		// lands on the grid too, so the projections are exact.
+		nm = (nm + frac.Up - 1) / frac.Up * frac.Up
+	}
+	nin := c.inputsFor(skip + nm)
 	if nin > maxInputSamples {
-		return BitTrueResult{}, fmt.Errorf("fixed: bit-true run needs %d input samples (decimation %d, %d output samples); at most %d are supported", nin, d, nm+skip, maxInputSamples)
+		return BitTrueResult{}, fmt.Errorf("fixed: bit-true run needs %d input samples (ratio %d/%d, %d output samples); at most %d are supported", nin, num, den, nm+skip, maxInputSamples)
 	}
 	res := BitTrueResult{Samples: nm, InputSamples: nin, Skip: skip, NoiseDBFS: math.Max(-300, 20*math.Log10(noise))}
 	rng := rand.New(rand.NewPCG(sig.Seed, 0x5eed))
@@ -249,6 +262,9 @@ func BitTrueContext(ctx context.Context, c Cascade, w *Widths, sig Signal) (BitT
 	yi, yf, inPow, inErr, clipped, err := stream(ctx, c, w, nin, skip, nm, signalGen(tones, noise, rng, c.InputRate))
 	if err != nil {
 		return BitTrueResult{}, err
+	}
+	if len(yi) < nm {
+		return BitTrueResult{}, fmt.Errorf("fixed: bit-true run made %d of %d output samples (an internal miscount of the input needed)", len(yi), nm)
 	}
 	res.Clipped = clipped
 	res.InputSNRDB = ratioDB(inPow, inErr)
@@ -281,7 +297,7 @@ func BitTrueContext(ctx context.Context, c Cascade, w *Widths, sig Signal) (BitT
 	}
 	res.SNRValid = res.SNRNote == ""
 
-	if err := aliasRun(ctx, c, w, sig, &res, rng, noise, nm, skip, d, fk, nil); err != nil {
+	if err := aliasRun(ctx, c, w, sig, &res, rng, noise, nm, skip, c.inputsFor, fk, nil); err != nil {
 		return BitTrueResult{}, err
 	}
 	return res, nil
@@ -569,6 +585,9 @@ func newChainState(c Cascade, w *Widths) *chainState {
 	for i, st := range c.Stages {
 		sw := &w.Stages[i]
 		switch {
+		case st.fractional():
+			fi, ff := newFracFilters(st, sw)
+			cs.ints, cs.floats = append(cs.ints, fi), append(cs.floats, ff)
 		case st.CIC && st.Interpolate:
 			cs.ints = append(cs.ints, newCICInterpFilter(sw.CICInterp))
 			cs.floats = append(cs.floats, newFIRInterpFloat(cicTaps(st.N, st.R*st.M, cicFloatScale(sw)), st.R))
@@ -957,21 +976,29 @@ func cicTaps(n, rm int, scale float64) []float64 {
 // chain by projection, its window lengthened while the noise masks it. It
 // fills res's alias fields. enc, when not nil, makes the input codes of
 // each run (a Shaper's fresh encoder) in place of the ADC.
-func aliasRun(ctx context.Context, c Cascade, w *Widths, sig Signal, res *BitTrueResult, rng *rand.Rand, noise float64, nm, skip, d int, fk float64, enc func() (Encoder, error)) error {
+func aliasRun(ctx context.Context, c Cascade, w *Widths, sig Signal, res *BitTrueResult, rng *rand.Rand, noise float64, nm, skip int, need func(nout int) int, fk float64, enc func() (Encoder, error)) error {
 	// Run 2: a tone at the worst alias of the quantised cascade.
 	q, qspec := cascadeChain(c, w, true)
 	h0q := q.Gain(0) * cicScale(w)
 	var g float64
+	// path is the tone's path to the alias through a fractional stage
+	// (chain.PathGains' K; 0 for an integer cascade), shift its k Fm.
+	path := 0
 	if sig.AliasHz > 0 {
 		g = sig.AliasHz
-		res.WorstAliasResponseDB = posDB(q.Gain(g) / q.Gain(0))
+		path = worstPath(q, g, c.Protected, c.Passband)
+		res.WorstAliasResponseDB = posDB(pathGain(q, g, path) / q.Gain(0))
 	} else {
 		// The worst alias is chain.Analyze's, on the quantised cascade.
 		a, err := chain.AnalyzeContext(ctx, q, qspec)
 		if err != nil {
 			return fmt.Errorf("fixed: the quantised cascade's worst alias: %w", err)
 		}
-		g, res.WorstAliasResponseDB = a.WorstAliasHz, a.AliasRejectionDB
+		g, res.WorstAliasResponseDB, path = a.WorstAliasHz, a.AliasRejectionDB, a.WorstPath
+	}
+	shift := 0.0
+	if frac, i := c.fracStage(); frac.fractional() {
+		shift = float64(path) * c.Rates()[i]
 	}
 	fch, _ := cascadeChain(c, w, false)
 	h0f := fch.Gain(0) * cicScale(w)
@@ -981,7 +1008,7 @@ func aliasRun(ctx context.Context, c Cascade, w *Widths, sig Signal, res *BitTru
 	// run is retried so while the noise masks the alias and memory allows.
 	for win := nm; ; win *= 4 {
 		g = g0
-		fold := math.Mod(g, fk)
+		fold := math.Mod(g+shift, fk)
 		mirror := fold > fk/2
 		if mirror {
 			fold = fk - fold
@@ -994,11 +1021,20 @@ func aliasRun(ctx context.Context, c Cascade, w *Widths, sig Signal, res *BitTru
 			g += fout - fold
 		}
 		res.AliasHz, res.AliasOutHz, res.AliasSamples = g, fout, win
-		res.AliasResponseDB = posDB(q.Gain(g) / q.Gain(0))
+		res.AliasResponseDB = posDB(pathGain(q, g, path) / q.Gain(0))
 		tone := []toneGen{{g, a, 2 * math.Pi * rng.Float64()}}
-		yi, yf, err := streamEnc(ctx, c, w, enc, (skip+win)*d, skip, win, signalGen(tone, noise, rng, c.InputRate))
+		yi, yf, err := streamEnc(ctx, c, w, enc, need(skip+win), skip, win, signalGen(tone, noise, rng, c.InputRate))
 		if err != nil {
 			return err
+		}
+		if len(yi) < win {
+			return fmt.Errorf("fixed: bit-true alias run made %d of %d output samples (an internal miscount of the input needed)", len(yi), win)
+		}
+		if shift != 0 || len(chain.PathGains(q, g, 0)) > 1 {
+			// The tone's other paths through the fractional stage land on
+			// other bins of the window (whole cycles, see BitTrue): they
+			// are signal, not noise in the alias's bin.
+			yi = removePaths(yi, q, g, fout, fk, win)
 		}
 		ai, resid := project(yi, fout/fk)
 		af, _ := project(yf, fout/fk)
@@ -1006,7 +1042,7 @@ func aliasRun(ctx context.Context, c Cascade, w *Widths, sig Signal, res *BitTru
 		res.AliasFloatRunDB = posDB(af / (a * h0f))
 		res.AliasNoiseDB = posDB(2 * resid / math.Sqrt(float64(win)) / (a * h0q))
 		res.AliasValid = res.AliasNoiseDB >= res.AliasRejectionDB+20
-		if res.AliasValid || res.AliasNoiseDB+12 < res.AliasRejectionDB+20 || (skip+4*win)*d > autoInputSamples || win >= 16*nm {
+		if res.AliasValid || res.AliasNoiseDB+12 < res.AliasRejectionDB+20 || need(skip+4*win) > autoInputSamples || win >= 16*nm {
 			break
 		}
 	}

@@ -37,14 +37,32 @@ type Stage struct {
 	scaledHalfBand bool
 	// Bands are what the quantised FIR response must meet (each MaxError set),
 	// in Hz at the rate the taps run at: the stage's input rate, or its
-	// output rate when it interpolates.
+	// output rate when it interpolates. A fractional stage's are its
+	// (equivalent) prototype's, unit gain, at Up times its input rate.
 	Bands []remez.Band
+
+	// Up and Down mark a fractional stage (package doc, Fractional
+	// stages): its output rate is its input rate times Up/Down, and R is
+	// 1. A polyphase stage's Taps are its prototype at Up times its input
+	// rate (gain 1 at 0 Hz; the data path multiplies by Up); a Farrow
+	// stage's rows are Farrow (farrow.Convention: row p multiplies mu^p)
+	// and its Taps are nil. Zero for an integer stage.
+	Up, Down int
+	Farrow   [][]float64
 }
 
 // Length is the stage's impulse response length at its high rate (the
 // input rate of a decimating stage, the output rate of an interpolating
 // one): its taps, or N (RM - 1) + 1 for a CIC (N boxcars of RM samples).
+// A fractional stage's is its span in input samples: ceil(taps/Up) for a
+// polyphase stage, the subfilters' length N for a Farrow stage.
 func (st Stage) Length() int {
+	if st.fractional() {
+		if st.Farrow != nil {
+			return len(st.Farrow[0])
+		}
+		return (len(st.Taps) + st.Up - 1) / st.Up
+	}
 	if st.CIC {
 		return st.N*(st.R*st.M-1) + 1
 	}
@@ -74,7 +92,8 @@ type Cascade struct {
 }
 
 // Ratio returns the product of the stages' factors: the cascade's
-// decimation, or its interpolation.
+// decimation, or its interpolation; for a cascade that ends in a
+// fractional stage (R 1), its integer stages' decimation.
 func (c Cascade) Ratio() int {
 	d := 1
 	for _, st := range c.Stages {
@@ -90,9 +109,12 @@ func (c Cascade) Rates() []float64 {
 	r := make([]float64, len(c.Stages)+1)
 	r[0] = c.InputRate
 	for i, st := range c.Stages {
-		if c.Interpolate {
+		switch {
+		case st.fractional():
+			r[i+1] = r[i] * float64(st.Up) / float64(st.Down)
+		case c.Interpolate:
 			r[i+1] = r[i] * float64(st.R)
-		} else {
+		default:
 			r[i+1] = r[i] / float64(st.R)
 		}
 	}
@@ -105,7 +127,8 @@ func (c Cascade) ChannelRate() float64 {
 	if c.Interpolate {
 		return c.InputRate
 	}
-	return c.InputRate / float64(c.Ratio())
+	num, den := c.fraction()
+	return c.InputRate * float64(den) / float64(num)
 }
 
 // Words are the word widths the spec fixes.
@@ -144,6 +167,10 @@ type Settings struct {
 	NativeA, NativeB int
 	// Clock is the hardware clock in Hz; zero means no multipliers-at-clock figure.
 	Clock float64
+	// MuBits is the width of a Farrow stage's unsigned fractional-delay
+	// word; zero means the stage's coefficient width, at least
+	// ceil(log2 Up) (package doc, Fractional stages).
+	MuBits int
 	// Shaper, when not nil, is the noise-shaped converter whose codes the
 	// chain takes: Evaluate feeds its bit-true run with them
 	// (Signal.Shaper) unless the signal names its own. Plan and
@@ -159,6 +186,22 @@ type StageWidths struct {
 	// Interpolate marks an interpolating stage (Stage.Interpolate): it
 	// raises the rate by R.
 	Interpolate bool
+	// Up and Down are a fractional stage's rate change (Stage.Up, Down;
+	// R is then 1), zero otherwise. Farrow marks a Farrow stage: its
+	// Coefficients hold its FarrowRows rows one after the other (row p,
+	// the power p of mu, at Ints[p N : (p+1) N]), all at one scale; MuBits
+	// is its unsigned mu word, HornerBits its Horner register and
+	// HornerDrop the LSBs of the branch sums rounded off before it (0
+	// unless a product would pass 63 bits). PhaseGainMin and PhaseGainMax
+	// are the smallest and largest DC gain of one output phase (the sum
+	// of a polyphase phase's quantised taps; a Farrow stage's at each of
+	// its Up quantised mu); Gain is their mean over the Up phases.
+	Up, Down                   int
+	Farrow                     bool
+	FarrowRows                 int
+	MuBits                     int
+	HornerBits, HornerDrop     int
+	PhaseGainMin, PhaseGainMax float64
 	// InputRate is the rate of the stage's input samples in Hz (OutputRate
 	// gives its output's; HighRate the one its taps run at).
 	InputRate float64
@@ -283,6 +326,9 @@ func Plan(c Cascade, w Words, s Settings) (*Widths, error) {
 	if len(c.Stages) == 0 {
 		return nil, fmt.Errorf("fixed: cascade has no stages")
 	}
+	if s.MuBits < 0 || s.MuBits > 32 {
+		return nil, fmt.Errorf("fixed: settings MuBits = %d: must be 0 (the coefficient width) or lie in [1, 32] bits", s.MuBits)
+	}
 	if (s.NativeA == 0) != (s.NativeB == 0) || s.NativeA < 0 || s.NativeB < 0 {
 		return nil, fmt.Errorf("fixed: native multiplier %d x %d: give both sizes (> 0) or neither", s.NativeA, s.NativeB)
 	}
@@ -308,6 +354,9 @@ func (c Cascade) checkDirection() error {
 
 // OutputRate returns the rate of the stage's output samples in Hz.
 func (sw *StageWidths) OutputRate() float64 {
+	if sw.Up > 0 {
+		return sw.InputRate * float64(sw.Up) / float64(sw.Down)
+	}
 	if sw.Interpolate {
 		return sw.InputRate * float64(sw.R)
 	}
@@ -372,6 +421,8 @@ func plan(c Cascade, w Words, s Settings, minBits []int) (*Widths, error) {
 		}
 		var err error
 		switch {
+		case st.fractional():
+			sws[i], err = planFractional(st, rates[i], in, ob, w.CoefBits, s, minBitsOf(minBits, i))
 		case st.CIC && st.Interpolate:
 			sws[i], err = planCICInterp(st, in, ob)
 		case st.CIC:
@@ -456,7 +507,7 @@ func gainTarget(c Cascade) int {
 		}
 		st := c.Stages[i]
 		switch {
-		case st.CIC:
+		case st.CIC, st.fractional():
 		case !st.HalfBand:
 			return i
 		case hb < 0:
@@ -658,6 +709,10 @@ func planFIR(st Stage, rate float64, in, ob, coefBits int, s Settings, minBits i
 	}
 	var err error
 	if coefBits == 0 {
+		if st.Up > 0 {
+			// A fractional stage's prototype (planPolyphase).
+			q.from = widthEstimate(st.Taps, bands, sw.FloatDeviations)
+		}
 		sw.Coefficients, sw.Deviations, err = MinCoefBits(st.Taps, rate, bands, q)
 		if err != nil {
 			return StageWidths{}, err

@@ -239,6 +239,101 @@
 // to DC, and AliasValid (bittrue_alias_valid) says the noise in g's bin is
 // 20 dB below the image.
 //
+// # Fractional stages
+//
+// A decimation chain that ends in a fractional stage (chain.PolyphaseStage
+// or chain.FarrowStage, L = Up, M = Down) gets word lengths, the bit-true
+// run and the quantised analysis as any other; FromChain refuses an
+// interpolation chain with one (ErrFractional). The stage's Stage has
+// R = 1, Up and Down set, and Bands: its (equivalent) prototype's, at
+// L Fm (Fm its input rate), unit gain: [0, fp] within Dp and
+// chain.PolyphaseBands within Ds, as the chain package designs the
+// polyphase prototype. Its rules:
+//   - polyphase L/M: the coefficients are the prototype times L (the data
+//     path's gain L in the taps), quantised as an FIR's (Quantize: one
+//     width and scale for the stage; "auto" by MinCoefBits on the bands
+//     scaled by L, its search started from an estimate of the width near
+//     the answer, since every width of a long prototype is dear to try,
+//     and stepped down while the next narrower width meets; PlanChain's
+//     whole-chain check widens it as an FIR's, the rounding's cost judged
+//     on the worst alias's path). Output m, at input sample
+//     b = floor(m M / L) of phase r = m M mod L, is sum_s h[r + L s]
+//     x[b - s] (inputs before the first zero), exact, in an accumulator of
+//     the FIR rule's width taken over every phase (the widest phase's
+//     AccumulatorBits), rounded half up at OutputShift = Frac + Bin - Bout
+//     and saturated. It is made as soon as input b arrives: ceil(n L / M)
+//     outputs for n inputs, as chain.Resample counts them. Each phase's DC
+//     gain is its sum of quantised taps over 2^Frac; they differ, so
+//     StageWidths.Gain (dc_gain_db) is their mean (the path k = 0's gain at
+//     0 Hz, the analysis's) and PhaseGainMin/Max their range. The
+//     accumulator holds every phase's worst case, so no DC gain above the
+//     mean can overflow it; the output saturates as an FIR's does. Cost:
+//     ceil(N/L) multiplies per output, no pre-adder, half the coefficients
+//     stored (the prototype's symmetry pairs phase r with phase
+//     (N-1-r) mod L read backwards), ceil(N/L) input words of data;
+//   - Farrow (P+1 rows c_p of N taps, farrow.Convention): the whole matrix
+//     is quantised at one width and one scale 2^-Frac (Quantize on its
+//     rows one after the other), so that the branches add in Horner's rule
+//     in one unit with no alignment shifts; a scale per row would save a
+//     bit or two in the smaller rows at the cost of a shifter per branch.
+//     "auto" takes the narrowest width at which the quantised stage's
+//     prototype (below) meets the bands. Output m is at time m M / L input
+//     samples; mu is an unsigned word of MuBits (Settings.MuBits, else the
+//     coefficient width, at least ceil(log2 L), at most 32): for phase
+//     k = m mod L, r = k M mod L, mu_q = round(r 2^MuBits / L) (halves up)
+//     / 2^MuBits, exact when L is a power of two not above 2^MuBits; when
+//     it rounds to 1 the time moves to the next input sample with mu 0.
+//     With b the input sample of the (rounded) time, branch p is
+//     v_p = sum_n c_p[n] x[b - N/2 + 1 + n], exact, in an accumulator of
+//     the FIR rule's width (the widest row's AccumulatorBits); the output
+//     is made once input b + N/2 arrives (the hardware's N/2 samples of
+//     delay). Horner's rule from the top row: acc = v_P, then
+//     acc = round(acc mu_int / 2^MuBits) + v_p (halves up) for
+//     p = P-1 .. 0: each product rounded to the branch sums' LSB, the
+//     guard bits below the output's LSB being OutputShift (Frac + Bin -
+//     Bout). The Horner register (HornerBits) holds the sum over the rows
+//     of each row's largest |v_p| (mu < 1 and a product so rounded is at
+//     most its operand in magnitude). When that register times the mu
+//     word would pass 63 bits, the branch sums are first rounded half up
+//     to drop HornerDrop LSBs (then at least two guard bits must remain).
+//     The output is acc rounded half up at OutputShift - HornerDrop and
+//     saturated. Gain and phase gains as the polyphase stage's, phase r's
+//     DC gain being sum_p (sum_n c_p[n]) mu_q(r)^p / 2^Frac. Cost:
+//     (P+1) N + P multiplies per output (farrow.Cost), the branch
+//     products Bin x coefficient bits, every coefficient stored, N input
+//     words of data.
+//
+// The quantised stage's response. At its rounded output times the Farrow
+// stage is exactly an L-phase polyphase L/M filter whose prototype is
+// p[j] = h_q(floor(j/L) - 1 - N/2 + mu_q(j mod L)) / L, h_q its impulse
+// response with the integer rows (one input sample of delay, so that a
+// phase whose mu rounds to 1 has its taps; a delay changes no gain);
+// with exact mu it is chain.FarrowPrototype's. QuantisedChain (and the
+// bit-true run's analysis) therefore holds the fractional stage as a
+// chain.PolyphaseStage of the quantised prototype: a polyphase stage's
+// integer taps over 2^Frac L, a Farrow stage's p above. chain.Analyze
+// measures that never optimistically; the Horner roundings are not a
+// response but noise, which the bit-true SNR measures (the float chain
+// runs the unrounded rows at the exact times, so the error also holds
+// mu's rounding).
+//
+// The bit-true run of such a chain runs num/den = D M / L input samples
+// per output (D the integer stages' decimation), its window rounded up to
+// a multiple of L output samples: every path k Fm of a tone on the
+// window's grid then lands on the grid too, so the projections over the
+// window are exact with no taper. The alias test tone is at the
+// quantised chain's worst alias on its path (chain.Analysis.WorstPath,
+// or the path of Signal.AliasHz with the largest gain into [0, fa],
+// chain.PathGains), moved so that its output lands on a bin; the other
+// paths of the tone are removed from the window (least squares, each on
+// its own bin) before the noise in the alias's bin is measured. When two
+// paths of the tone land in the alias's bin (a real tone's paths to +y
+// and -y, at isolated frequencies) the bit-true figure is their sum,
+// which can be several dB above the per-path figure of chain.Analyze and
+// AliasResponseDB: it is what the hardware does at that frequency. A
+// noise-shaped input (Signal.Shaper) is refused. Model and RunCodes run
+// the fractional stage too.
+//
 // # Cost
 //
 // Data memory: an FIR stores its taps' count of input words; a CIC one word

@@ -9,10 +9,10 @@ import (
 	"github.com/stepdown-dsp/stepdown/chain"
 )
 
-// ErrFractional is FromChain's error for a chain that ends in a
-// fractional stage (chain.Polyphase, chain.Farrow): word lengths, the
-// bit-true run and the hand-off are planned for integer stages only.
-var ErrFractional = errors.New("fixed: word lengths are planned for chains of integer stages only; a fractional stage (polyphase or farrow) has its float design alone")
+// ErrFractional is FromChain's error for an interpolation chain with a
+// fractional stage (chain.Polyphase, chain.Farrow): word lengths and the
+// bit-true run are planned for a decimation chain's fractional stage only.
+var ErrFractional = errors.New("fixed: word lengths are planned for a fractional stage (polyphase or farrow) in a decimation chain only; an interpolation chain's has its float design alone")
 
 // FromChain converts a designed chain and its spec into the planner's terms.
 // Each FIR and half-band stage must meet the bands of its chain.Requirement:
@@ -40,10 +40,10 @@ func FromChain(spec chain.Spec, c *chain.Chain) (Cascade, Words, error) {
 	if c.Direction != spec.Direction() {
 		return Cascade{}, Words{}, fmt.Errorf("fixed: the chain's direction, %s, is not the spec's, %s", c.Direction, spec.Direction())
 	}
-	if last := c.Stages[len(c.Stages)-1].Kind(); last.Fractional() {
+	interp := c.Direction == chain.Interpolate
+	if last := c.Stages[len(c.Stages)-1].Kind(); last.Fractional() && interp {
 		return Cascade{}, Words{}, ErrFractional
 	}
-	interp := c.Direction == chain.Interpolate
 	cas := Cascade{InputRate: c.InputRate, Complex: c.Complex, Interpolate: interp, Passband: spec.Passband, Protected: spec.Protected}
 	if interp {
 		cas.InputRate = c.OutputRate()
@@ -63,8 +63,14 @@ func FromChain(spec chain.Spec, c *chain.Chain) (Cascade, Words, error) {
 			fs, err = firFromChain(st, c, rates, i, k)
 		case *chain.FIRStage:
 			fs, err = firFromChain(*st, c, rates, i, k)
+		case chain.PolyphaseStage, chain.FarrowStage:
+			fs, err = fracFromChain(st, k)
+		case *chain.PolyphaseStage:
+			fs, err = fracFromChain(*st, k)
+		case *chain.FarrowStage:
+			fs, err = fracFromChain(*st, k)
 		default:
-			err = fmt.Errorf("fixed: stage %d is a %T; FromChain takes chain.CICStage and chain.FIRStage values", k+1, st)
+			err = fmt.Errorf("fixed: stage %d is a %T; FromChain takes chain.CICStage, chain.FIRStage, chain.PolyphaseStage and chain.FarrowStage values", k+1, st)
 		}
 		if err != nil {
 			return Cascade{}, Words{}, err
@@ -281,8 +287,15 @@ func culprit(c *chain.Chain, cas Cascade, ws *Widths, a chain.Analysis, rejectio
 			continue
 		}
 		sw := &ws.Stages[i]
-		ft, qt := sw.floatTaps(st), sw.Coefficients.Float()
 		var v float64
+		if st.fractional() {
+			v = fracCulprit(c, q, order[i], sw, st, a, cas.Passband, rejection)
+			if v > bestV {
+				best, bestV = i, v
+			}
+			continue
+		}
+		ft, qt := sw.floatTaps(st), sw.Coefficients.Float()
 		if rejection {
 			alt := *q
 			alt.Stages = append([]chain.Stage(nil), q.Stages...)
@@ -292,8 +305,7 @@ func culprit(c *chain.Chain, cas Cascade, ws *Widths, a chain.Analysis, rejectio
 			}
 			fs.Taps = ft
 			alt.Stages[order[i]] = fs
-			g := a.WorstAliasHz
-			v = q.Gain(g)/q.Gain(0) - alt.Gain(g)/alt.Gain(0)
+			v = aliasPathGain(q, a) - aliasPathGain(&alt, a)
 		} else {
 			const pts = 256
 			for j := 0; j <= pts; j++ {
@@ -346,7 +358,11 @@ func EvaluateContext(ctx context.Context, spec chain.Spec, c *chain.Chain, s Set
 
 // QuantisedChain returns a copy of c whose FIR and half-band taps are the
 // quantised coefficients of w (from Plan on FromChain(spec, c)), for
-// chain.Analyze and chain.Run. It panics if w does not match c, which
+// chain.Analyze and chain.Run. A fractional stage becomes the
+// chain.PolyphaseStage it is as built (package doc, Fractional stages): a
+// polyphase stage with its quantised prototype, a Farrow stage as the
+// polyphase filter of its quantised rows at its rounded output times (its
+// Plan entry still says farrow). It panics if w does not match c, which
 // includes a c holding a stage FromChain refuses.
 //
 // The widths of an interpolation chain are in signal order (FromChain):
@@ -371,6 +387,8 @@ func QuantisedChain(c *chain.Chain, w *Widths) *chain.Chain {
 			cp := *st
 			cp.Taps = w.Stages[at[i]].Coefficients.Float()
 			q.Stages[i] = cp
+		case chain.PolyphaseStage, chain.FarrowStage, *chain.PolyphaseStage, *chain.FarrowStage:
+			q.Stages[i] = quantisedFrac(s, &w.Stages[at[i]])
 		default:
 			panic(fmt.Sprintf("fixed: QuantisedChain with widths of another chain (stage %d is a %T, which FromChain refuses)", i+1, s))
 		}

@@ -32,6 +32,10 @@ import (
 // last integrator truncated (floor) to OutputBits. Every stage gives R
 // outputs per input sample, the first with its first input.
 //
+// A fractional stage (package doc, Fractional stages) gives ceil(n L / M)
+// outputs for n inputs (polyphase), or the outputs whose last input has
+// arrived (Farrow: N/2 samples later).
+//
 // A Model keeps its filters' state between calls to Run, so a long input can
 // be run a block at a time; the zero Model is not usable (NewModel).
 type Model struct {
@@ -53,6 +57,14 @@ func NewModel(c Cascade, w *Widths) (*Model, error) {
 	m := &Model{inBits: w.InputBits}
 	for i, st := range c.Stages {
 		sw := &w.Stages[i]
+		if st.fractional() {
+			if sw.Up != st.Up || sw.Down != st.Down || (st.Farrow != nil) != sw.Farrow {
+				return nil, fmt.Errorf("fixed: stage %d: the fractional stage has no plan of its kind (widths of another cascade)", i+1)
+			}
+			fi, _ := newFracFilters(st, sw)
+			m.stages = append(m.stages, fi)
+			continue
+		}
 		if st.CIC {
 			if st.Interpolate && sw.CICInterp == nil || !st.Interpolate && sw.Pruning == nil {
 				return nil, fmt.Errorf("fixed: stage %d: the CIC has no register plan for its direction (widths of another cascade)", i+1)

@@ -278,6 +278,10 @@ type QuantSettings struct {
 	// ctx, set by PlanChainContext and EvaluateContext, stops the width
 	// search between trial moves and widths; nil never stops.
 	ctx context.Context
+	// from, when above zero, starts MinCoefBits' search at that width
+	// instead of MinBits (narrowestWidth): set for a fractional stage's
+	// long prototype, whose every width is dear to try.
+	from int
 }
 
 // stopped says whether s's context is done.
@@ -322,6 +326,24 @@ func MinCoefBits(taps []float64, rate float64, bands []remez.Band, s QuantSettin
 	taps, err := symmetrized(taps)
 	if err != nil {
 		return Coefficients{}, nil, err
+	}
+	if s.from > 0 {
+		type tried struct {
+			c   Coefficients
+			dev []float64
+		}
+		met := map[int]tried{}
+		b, err := narrowestWidth(s.MinBits, s.MaxBits, s.from, s, func(b int) bool {
+			c, dev, ok := tryWidth(taps, rate, bands, b, s, false)
+			if ok {
+				met[b] = tried{c, dev}
+			}
+			return ok
+		})
+		if err != nil {
+			return Coefficients{}, nil, err
+		}
+		return met[b].c, met[b].dev, nil
 	}
 	var best []float64
 	for bits := s.MinBits; bits <= s.MaxBits; bits++ {

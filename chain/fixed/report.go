@@ -21,6 +21,18 @@ type StageReport struct {
 	CoefficientsInt      []int64 `json:"coefficients_int,omitempty"`
 	CoefficientsAdjusted int     `json:"coefficients_adjusted,omitempty"`
 	QuantisedMeetsBands  bool    `json:"quantised_meets_bands"`
+	// A fractional stage (package doc, Fractional stages): a polyphase
+	// stage's coefficients_int are its prototype times L; a Farrow stage's
+	// are its coefficient_rows rows one after the other (row p multiplies
+	// mu^p), all at the one scale coefficient_frac, its mu an unsigned
+	// word of mu_bits, its Horner register horner_bits wide. Both state
+	// the smallest and largest DC gain of one output phase; dc_gain_db is
+	// their mean over the L phases.
+	CoefficientRows  int      `json:"coefficient_rows,omitempty"`
+	MuBits           int      `json:"mu_bits,omitempty"`
+	HornerBits       int      `json:"horner_bits,omitempty"`
+	PhaseDCGainMinDB *float64 `json:"phase_dc_gain_min_db,omitempty"`
+	PhaseDCGainMaxDB *float64 `json:"phase_dc_gain_max_db,omitempty"`
 
 	AccumulatorBits int `json:"accumulator_bits"`
 	OutputBits      int `json:"output_bits"`
@@ -184,6 +196,13 @@ func (r *Result) Report(withHardware bool) ChainReport {
 			if withHardware {
 				m := sw.HardwareMultipliers
 				s.HardwareMultipliers = &m
+			}
+		}
+		if sw.Up > 0 {
+			lo, hi := gainDB(sw.PhaseGainMin), gainDB(sw.PhaseGainMax)
+			s.PhaseDCGainMinDB, s.PhaseDCGainMaxDB = &lo, &hi
+			if sw.Farrow {
+				s.CoefficientRows, s.MuBits, s.HornerBits = sw.FarrowRows, sw.MuBits, sw.HornerBits
 			}
 		}
 		if sw.GainCorrection != 0 && sw.GainCorrection != 1 {

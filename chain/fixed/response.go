@@ -8,7 +8,9 @@ import "github.com/stepdown-dsp/stepdown/chain"
 // their gain correction; CICs have the chain package's unit DC gain (see
 // cicScale). The spec carries the cascade's rates and bands for
 // chain.Analyze; its ripple and rejection targets are placeholders, since
-// Analyze measures and does not judge.
+// Analyze measures and does not judge. A fractional stage becomes a
+// chain.PolyphaseStage of its float or quantised prototype (fracProto),
+// and the chain gets the plan chain.Analyze reads.
 //
 // An interpolation cascade becomes its transpose, as the chain package
 // holds an interpolation chain: the stages from the high rate down,
@@ -19,9 +21,16 @@ func cascadeChain(c Cascade, w *Widths, quantised bool) (*chain.Chain, chain.Spe
 		return transposeChain(c, w, quantised)
 	}
 	ch := &chain.Chain{InputRate: c.InputRate, Complex: c.Complex, Designed: true}
-	d := 1
+	frac := false
 	for i, st := range c.Stages {
-		d *= st.R
+		if st.fractional() {
+			// As QuantisedChain holds it: a polyphase stage of the
+			// (equivalent) prototype, float or quantised.
+			taps := w.Stages[i].fracProto(st, quantised)
+			ch.Stages = append(ch.Stages, chain.PolyphaseStage{Up: st.Up, Down: st.Down, Taps: taps, Length: len(taps)})
+			frac = true
+			continue
+		}
 		if st.CIC {
 			ch.Stages = append(ch.Stages, chain.CICStage{N: st.N, M: st.M, R: st.R})
 			continue
@@ -32,7 +41,20 @@ func cascadeChain(c Cascade, w *Widths, quantised bool) (*chain.Chain, chain.Spe
 		}
 		ch.Stages = append(ch.Stages, chain.FIRStage{R: st.R, Taps: taps, Length: len(taps), HalfBand: st.HalfBand})
 	}
-	spec := chain.Spec{InputRate: c.InputRate, OutputRate: c.InputRate / float64(d), Passband: c.Passband,
+	if frac {
+		// A fractional chain's analysis reads its plan.
+		for _, s := range ch.Stages {
+			p := chain.StagePlan{Kind: s.Kind(), Factor: s.Factor()}
+			switch st := s.(type) {
+			case chain.CICStage:
+				p.CICOrder, p.CICDelay = st.N, st.M
+			case chain.PolyphaseStage:
+				p.Up, p.Down = st.Up, st.Down
+			}
+			ch.Plan = append(ch.Plan, p)
+		}
+	}
+	spec := chain.Spec{InputRate: c.InputRate, OutputRate: c.ChannelRate(), Passband: c.Passband,
 		Protected: c.Protected, RippleDB: 1, RejectionDB: 1, Complex: c.Complex}
 	return ch, spec
 }

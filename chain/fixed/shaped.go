@@ -159,7 +159,7 @@ func bitTrueShaped(ctx context.Context, c Cascade, w *Widths, sig Signal, fp, fk
 	if res.PredictedSNRDB, err = sig.Shaper.PredictedSNR(q.Gain, c.InputRate, fk, fp); err != nil {
 		return BitTrueResult{}, fmt.Errorf("fixed: the predicted SNR: %w", err)
 	}
-	if err := aliasRun(ctx, c, w, sig, &res, rng, sd.noise, nm, skip, d, fk, enc); err != nil {
+	if err := aliasRun(ctx, c, w, sig, &res, rng, sd.noise, nm, skip, func(n int) int { return n * d }, fk, enc); err != nil {
 		return BitTrueResult{}, err
 	}
 	return res, nil

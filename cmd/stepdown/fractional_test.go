@@ -1,10 +1,14 @@
 package main
 
 import (
+	"encoding/json"
+	"math"
 	"os"
 	"path/filepath"
 	"strings"
 	"testing"
+
+	"github.com/stepdown-dsp/stepdown/signalio"
 )
 
 // fractionalSpec is an invented scenario whose ratio, 2 MHz / 800 kHz =
@@ -18,8 +22,8 @@ rejection = "60 dB"
 
 // TestCheckFractional checks a named fractional chain end to end: the
 // header says the ratio, report.json has the fixed keys of a fractional
-// stage, the prototype is written, and the missing hand-off is said in one
-// line; a chain whose stages miss the ratio, and simulate, are refused in
+// stage, its word lengths are planned and shown, the prototype is
+// written, and the missing hand-off is said in one line; a chain whose stages miss the ratio, and simulate, are refused in
 // one line.
 func TestCheckFractional(t *testing.T) {
 	dir := t.TempDir()
@@ -28,7 +32,7 @@ func TestCheckFractional(t *testing.T) {
 	if r.code != 0 {
 		t.Fatalf("check: exit %d: %s", r.code, r.stderr)
 	}
-	for _, want := range []string{"(fractional ratio 5/2)", "poly2/5", "word lengths: not planned (word lengths are planned for chains of integer stages only",
+	for _, want := range []string{"(fractional ratio 5/2)", "poly2/5", "\n  1 polyphase in 16 bits, coefficients ", "bit-true SNR ",
 		"coefficients/stage1_polyphase.csv", "coefficients/README.txt", "\nNo hand-off (headers/, vectors/, rtl/)"} {
 		if !strings.Contains(r.stdout, want) {
 			t.Errorf("output lacks %q:\n%s", want, r.stdout)
@@ -58,7 +62,6 @@ func TestCheckFractional(t *testing.T) {
 	for _, args := range [][]string{
 		{"check", "frac.toml", "--chain", "poly2/4", "--out", "bad"},
 		{"check", "frac.toml", "--chain", "fir2 > poly2/5", "--out", "bad"},
-		{"simulate", "frac.toml", "--input", "missing.wav", "--out", "bad"},
 	} {
 		r := runBinary(t, dir, nil, args...)
 		if r.code != 2 || strings.Count(r.stderr, "\n") != 1 || strings.Contains(r.stderr, "goroutine") {
@@ -131,4 +134,63 @@ func TestCheckFractionalInterpolation(t *testing.T) {
 	if r := runBinary(t, dir, nil, "check", "up.toml", "--chain", "poly2/5", "--out", "bad"); r.code != 2 || strings.Count(r.stderr, "\n") != 1 {
 		t.Errorf("poly2/5 on an interpolation spec: exit %d, %q", r.code, r.stderr)
 	}
+}
+
+// TestSimulateFractional runs a fractional chain bit-true through
+// simulate: a tone in the passband at 2 MHz goes through poly2/5 to
+// 800 kHz; simulate.json's bit-true SNR is finite and high, the output
+// has as many samples as the stage makes (ceil(N L / M)), and the float
+// output's tone level is the input's within the passband ripple.
+func TestSimulateFractional(t *testing.T) {
+	dir := t.TempDir()
+	must(t, os.WriteFile(filepath.Join(dir, "frac.toml"), []byte(fractionalSpec), 0o644))
+	const n = 20000
+	x := make([]int64, n)
+	for i := range x {
+		// -6 dBFS at 100 kHz, 16-bit codes.
+		x[i] = int64(math.Round(16384 * math.Cos(2*math.Pi*100e3*float64(i)/2e6)))
+	}
+	sig := &signalio.Signal{RateHz: 2e6, Bits: 16, Samples: [][]int64{x}}
+	wav, err := signalio.Marshal(sig, signalio.Format{Kind: signalio.WAV, Bits: 16, Channels: 1})
+	must(t, err)
+	must(t, os.WriteFile(filepath.Join(dir, "tone.wav"), wav, 0o644))
+	r := runBinary(t, dir, nil, "simulate", "frac.toml", "--input", "tone.wav", "--chain", "poly2/5", "--out", "sim", "--json")
+	if r.code != 0 {
+		t.Fatalf("simulate: exit %d: %s", r.code, r.stderr)
+	}
+	var rep map[string]any
+	must(t, json.Unmarshal([]byte(r.stdout), &rep))
+	got, _, err := signalio.ReadFile(filepath.Join(dir, "sim", "output.wav"), signalio.Options{})
+	must(t, err)
+	if want := (n*2-1)/5 + 1; got.RateHz != 8e5 || len(got.Samples[0]) != want {
+		t.Fatalf("output.wav: %v Hz, %d samples; want 800 kHz and %d", got.RateHz, len(got.Samples[0]), want)
+	}
+	b, _ := json.Marshal(rep)
+	snr, ok := findNumber(rep, "bittrue_snr_db")
+	if !ok || !(snr > 60) {
+		t.Errorf("bit-true SNR %v (found %v): want above 60 dB; simulate.json %s", snr, ok, b)
+	}
+}
+
+// findNumber finds the first number under key anywhere in a decoded JSON
+// value.
+func findNumber(v any, key string) (float64, bool) {
+	switch m := v.(type) {
+	case map[string]any:
+		if f, ok := m[key].(float64); ok {
+			return f, true
+		}
+		for _, e := range m {
+			if f, ok := findNumber(e, key); ok {
+				return f, true
+			}
+		}
+	case []any:
+		for _, e := range m {
+			if f, ok := findNumber(e, key); ok {
+				return f, true
+			}
+		}
+	}
+	return 0, false
 }

@@ -142,11 +142,6 @@ func runSimulate(c *cli.Context) error {
 	if cs.Direction() == chain.Interpolate {
 		return usagef("%s: output_rate is above input_rate (an interpolation chain); simulate runs decimation chains only", clip(j.source))
 	}
-	if cs.Fractional() {
-		// simulate.Run is bit-true, and a fractional stage has no word
-		// lengths (fixed.ErrFractional): refused before any search.
-		return usagef("%s: input_rate/output_rate is %s, a fraction; simulate runs chains of integer stages only, since a fractional stage (polyphase or farrow) has no word lengths for its bit-true run", clip(j.source), cs.RatioString())
-	}
 
 	rate := cs.InputRate
 	if r := c.String("rate"); r != "" {
@@ -234,6 +229,14 @@ func runSimulate(c *cli.Context) error {
 		return usagef("--input %s: %s", clip(filepath.Base(input)), libMessage(err))
 	}
 	bands := simulate.Bands{PassbandHz: cs.Passband, ProtectedHz: cs.Protected, OutputRateHz: res.OutputRateHz}
+	if n := len(cand.Chain.Stages); n > 0 {
+		switch st := cand.Chain.Stages[n-1].(type) {
+		case chain.PolyphaseStage:
+			bands.FracUp, bands.FracRateHz = st.Up, cand.Chain.Rates()[n-1]
+		case chain.FarrowStage:
+			bands.FracUp, bands.FracRateHz = st.Up, cand.Chain.Rates()[n-1]
+		}
+	}
 	lv := res.Measure(inSp, outSp, bands)
 	notation := j.spec.Chain.Direction().Notation(cand.Plan)
 

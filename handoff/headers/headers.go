@@ -214,6 +214,9 @@ func hz(v float64) string { return strconv.FormatFloat(v, 'f', -1, 64) }
 
 // build checks the plan against its cascade and lays out the constants.
 func build(c fixed.Cascade, w *fixed.Widths, o Options) (*model, error) {
+	if c.Fractional() {
+		return nil, fmt.Errorf("headers: the chain has a fractional stage (polyphase or farrow); the hand-off is written for chains of integer stages only")
+	}
 	upper, lower, err := prefixOf(o)
 	if err != nil {
 		return nil, err

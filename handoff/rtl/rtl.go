@@ -116,6 +116,9 @@ type chainPlan struct {
 // stage and the field that cannot be written as a model fixed.Model
 // checks.
 func check(c fixed.Cascade, w *fixed.Widths, o Options) (*chainPlan, error) {
+	if c.Fractional() {
+		return nil, fmt.Errorf("rtl: the chain has a fractional stage (polyphase or farrow); the hand-off is written for chains of integer stages only")
+	}
 	prefix, err := o.prefix()
 	if err != nil {
 		return nil, err

@@ -106,6 +106,9 @@ type Vectors struct {
 // bit-true integer model of c planned as w (fixed.Model) and returns them
 // with every stage's output.
 func Generate(c fixed.Cascade, w *fixed.Widths, o Options) (*Vectors, error) {
+	if c.Fractional() {
+		return nil, fmt.Errorf("vectors: the chain has a fractional stage (polyphase or farrow); the hand-off is written for chains of integer stages only")
+	}
 	if w == nil {
 		return nil, fmt.Errorf("vectors: no widths: plan the cascade first (fixed.Plan)")
 	}

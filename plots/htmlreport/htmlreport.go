@@ -620,6 +620,17 @@ func stageViews(c report.Chain, files []string, prefix string, clock bool) []sta
 				add("Coefficients", fmt.Sprintf("%d bits, %d fractional", w.CoefficientBits, *w.CoefficientFrac))
 			}
 		}
+		if w := s.StageReport; w != nil && (s.Kind == "polyphase" || s.Kind == "farrow") && w.CoefficientBits > 0 && w.CoefficientFrac != nil {
+			// A fractional stage's words (package chain/fixed, Fractional
+			// stages): its accumulator is the widest phase's or branch's.
+			add("Coefficients", fmt.Sprintf("%d bits, %d fractional", w.CoefficientBits, *w.CoefficientFrac))
+			if s.Kind == "farrow" {
+				add("Fractional delay", fmt.Sprintf("mu %d bits unsigned, Horner register %d bits", w.MuBits, w.HornerBits))
+			}
+			if w.PhaseDCGainMinDB != nil && w.PhaseDCGainMaxDB != nil {
+				add("DC gain per phase", fmt.Sprintf("%.4f to %.4f dB", *w.PhaseDCGainMinDB, *w.PhaseDCGainMaxDB))
+			}
+		}
 		if w := s.StageReport; w != nil {
 			add("Word lengths", fmt.Sprintf("in %d bits, accumulator %d bits, out %d bits", w.InputBits, w.AccumulatorBits, w.OutputBits))
 			if w.MultiplierSize != "" {

@@ -2,6 +2,7 @@ package report
 
 import (
 	"fmt"
+	"github.com/stepdown-dsp/stepdown/chain"
 
 	"github.com/stepdown-dsp/stepdown/chain/specfile"
 	"github.com/stepdown-dsp/stepdown/cost"
@@ -43,7 +44,10 @@ func AddAdders(c *Chain, s *specfile.Spec) error {
 			total += *st.Adders
 			continue
 		}
-		if w := st.StageReport; w != nil && len(w.CoefficientsInt) > 0 {
+		// A fractional stage keeps the search's count: its integers are
+		// a prototype's or a Farrow matrix's, not one FIR's block.
+		frac := st.Kind == chain.Polyphase.String() || st.Kind == chain.Farrow.String()
+		if w := st.StageReport; w != nil && len(w.CoefficientsInt) > 0 && !frac {
 			b, err := cost.IntsBlock(w.CoefficientsInt)
 			if err != nil {
 				return fmt.Errorf("report: chain %s, stage %d (%s): %w", c.Notation, i+1, st.Kind, err)

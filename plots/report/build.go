@@ -172,7 +172,8 @@ func Files(ctx context.Context, rep *Report, res *optimize.Result, spec *specfil
 		return nil, err
 	}
 	// The hand-off: absent where the chain has no word-length plan, which
-	// report.json's word_lengths_error already explains.
+	// report.json's word_lengths_error already explains, or a fractional
+	// stage (NoHandoff, said on the terminal).
 	hf, _ := HandoffFiles(rep.Front[rec])
 	return append(files, hf...), nil
 }

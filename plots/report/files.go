@@ -20,28 +20,31 @@ type File = handoff.File
 // (the spec sets a coefficient width or "auto"); they are written from the
 // stage's coefficients_int, the integers of the word-length plan.
 //
-// A fractional chain's last stage is written too: a polyphase stage's
-// prototype like a FIR's taps (stage<i>_polyphase.csv), a Farrow stage's
-// subfilters as one matrix (stage<i>_farrow.csv, FarrowCSV); neither has
-// integer files, since a fractional chain has no word lengths. The folder
-// then gets coefficients/README.txt (FractionalReadme), which says what
-// the files hold and that the hand-off is not written.
+// A fractional chain's fractional stage is written too: a polyphase
+// stage's prototype like a FIR's taps (stage<i>_polyphase.csv), a Farrow
+// stage's subfilters as one matrix (stage<i>_farrow.csv, FarrowCSV). A
+// decimation chain's has integer files like a FIR's, from its
+// coefficients_int: the prototype times L, or the Farrow rows one after
+// the other (row p, the power p of mu, at indices p N .. p N + N - 1),
+// all at the one scale 2^-frac. The folder then gets
+// coefficients/README.txt (FractionalReadme), which says what the files
+// hold and that the hand-off is not written.
 func CoefficientFiles(c Chain, ints bool) ([]File, error) {
 	var out []File
 	for i, s := range c.Stages {
+		base := fmt.Sprintf("coefficients/stage%d_%s", i+1, s.Kind)
 		if s.Kind == chain.Farrow.String() && len(s.FarrowCoefficients) > 0 {
 			b, err := FarrowCSV(s.FarrowCoefficients)
 			if err != nil {
 				return nil, fmt.Errorf("report: stage %d: %v", i+1, err)
 			}
-			out = append(out, File{Name: fmt.Sprintf("coefficients/stage%d_%s.csv", i+1, s.Kind), Data: b})
-			continue
+			out = append(out, File{Name: base + ".csv", Data: b})
+		} else {
+			if s.Kind == "cic" || len(s.Coefficients) == 0 {
+				continue
+			}
+			out = append(out, File{Name: base + ".csv", Data: FloatCSV(s.Coefficients)})
 		}
-		if s.Kind == "cic" || len(s.Coefficients) == 0 {
-			continue
-		}
-		base := fmt.Sprintf("coefficients/stage%d_%s", i+1, s.Kind)
-		out = append(out, File{Name: base + ".csv", Data: FloatCSV(s.Coefficients)})
 		w := s.StageReport
 		if !ints || w == nil || w.CoefficientBits == 0 || w.CoefficientFrac == nil || len(w.CoefficientsInt) == 0 {
 			continue
@@ -61,7 +64,7 @@ func CoefficientFiles(c Chain, ints bool) ([]File, error) {
 
 // NoHandoff is the one line that says why a fractional chain's output
 // folder has no hand-off (headers/, vectors/, rtl/).
-const NoHandoff = "no hand-off (headers/, vectors/, rtl/): it is written for chains of integer stages only, and this chain has a fractional stage, which has its float design alone (no word lengths)"
+const NoHandoff = "no hand-off (headers/, vectors/, rtl/): it is written for chains of integer stages only, and this chain has a fractional stage (a decimation chain's has its word lengths and bit-true figures in report.json; an interpolation chain's its float design alone)"
 
 // FractionalReadme is coefficients/README.txt of a fractional chain: what
 // each coefficient file holds, the Farrow convention, and NoHandoff.
@@ -69,8 +72,16 @@ func FractionalReadme(c Chain) []byte {
 	var b strings.Builder
 	fmt.Fprintf(&b, "Coefficients of %s\n\n", c.Notation)
 	fmt.Fprintf(&b, "Planning data: %s.\n\n", Caution)
-	b.WriteString("The chain has a fractional stage, designed in floating point only: there\n" +
-		"are no word lengths and no integer coefficient files for it.\n\n")
+	if c.ChainReport == nil {
+		b.WriteString("The chain has a fractional stage, designed in floating point only: there\n" +
+			"are no word lengths and no integer coefficient files for it.\n\n")
+	} else {
+		b.WriteString("The chain has a fractional stage. Its integer files (_int.csv, .hex), when\n" +
+			"written, hold report.json's coefficients_int at the scale 2^-coefficient_frac:\n" +
+			"a polyphase stage's prototype times L (the data path's gain L in the taps),\n" +
+			"a Farrow stage's rows one after the other (row p, the subfilter of mu^p, at\n" +
+			"indices p N .. p N + N - 1, N its taps; mu an unsigned word of mu_bits).\n\n")
+	}
 	for i, s := range c.Stages {
 		name := fmt.Sprintf("stage%d_%s.csv", i+1, s.Kind)
 		switch {

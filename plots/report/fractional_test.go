@@ -11,7 +11,6 @@ import (
 
 	"github.com/stepdown-dsp/stepdown/chain"
 	"github.com/stepdown-dsp/stepdown/chain/farrow"
-	"github.com/stepdown-dsp/stepdown/chain/fixed"
 	"github.com/stepdown-dsp/stepdown/chain/specfile"
 	"github.com/stepdown-dsp/stepdown/cost"
 	"github.com/stepdown-dsp/stepdown/optimize"
@@ -92,17 +91,18 @@ func TestFractionalPolyphaseReport(t *testing.T) {
 	if y, ok := ch["worst_alias_output_hz"].(float64); !ok || y < 0 || y > 12e3 {
 		t.Errorf("worst_alias_output_hz = %v, want a frequency in the protected band [0, 12 kHz]", ch["worst_alias_output_hz"])
 	}
-	// No word lengths: the sentence of fixed.ErrFractional, and the verdict
-	// stays on the float design although the spec sets 16-bit coefficients.
-	if got, want := ch["word_lengths_error"], strings.TrimPrefix(fixed.ErrFractional.Error(), "fixed: "); got != want {
-		t.Errorf("word_lengths_error = %q, want %q", got, want)
+	// Word lengths as for integer stages (package chain/fixed, Fractional
+	// stages): the spec sets 16-bit coefficients, so the verdict is on the
+	// rounded taps, and the bit-true figures are there.
+	if _, ok := ch["word_lengths_error"]; ok {
+		t.Errorf("word_lengths_error = %q: a decimation chain's fractional stage has word lengths", ch["word_lengths_error"])
 	}
-	if ch["verdict_basis"] != "float taps" || ch["meets_targets"] != ch["float_meets_targets"] {
-		t.Errorf("verdict_basis %v, meets_targets %v, float_meets_targets %v: want the float verdict", ch["verdict_basis"], ch["meets_targets"], ch["float_meets_targets"])
+	if ch["verdict_basis"] != "rounded taps" {
+		t.Errorf("verdict_basis %v: want the rounded taps", ch["verdict_basis"])
 	}
-	for _, k := range []string{"bittrue_snr_db", "quantised_alias_rejection_db", "coefficients_int"} {
-		if _, ok := ch[k]; ok {
-			t.Errorf("chain has %s: a fractional chain has no rounded or bit-true figures", k)
+	for _, k := range []string{"bittrue_snr_db", "bittrue_alias_rejection_db", "quantised_alias_rejection_db"} {
+		if _, ok := ch[k]; !ok {
+			t.Errorf("chain lacks %s", k)
 		}
 	}
 	stages := ch["stages"].([]any)
@@ -121,6 +121,15 @@ func TestFractionalPolyphaseReport(t *testing.T) {
 		if got := st[k]; got != want {
 			t.Errorf("stage 3 %s = %v, want %v", k, got, want)
 		}
+	}
+	// Its word lengths: the prototype times L as 16-bit integers, the
+	// phases' DC gains around the mean dc_gain_db, the widest phase's
+	// accumulator.
+	if st["coefficient_bits"] != 16.0 || len(st["coefficients_int"].([]any)) != len(poly.Taps) {
+		t.Errorf("stage 3: coefficient_bits %v, %d coefficients_int for %d taps", st["coefficient_bits"], len(st["coefficients_int"].([]any)), len(poly.Taps))
+	}
+	if lo, hi, dc := st["phase_dc_gain_min_db"].(float64), st["phase_dc_gain_max_db"].(float64), st["dc_gain_db"].(float64); !(lo <= dc && dc <= hi) {
+		t.Errorf("stage 3: phase DC gains [%v, %v] dB around a mean of %v dB", lo, hi, dc)
 	}
 	if rates[2] != 40000 || res.Front[0].Chain.OutputRate() != st["output_rate_hz"] {
 		t.Errorf("chain.Rates %v, output %v: report says %v -> %v", rates, res.Front[0].Chain.OutputRate(), st["input_rate_hz"], st["output_rate_hz"])
@@ -157,13 +166,13 @@ func TestFractionalPolyphaseReport(t *testing.T) {
 
 	var sum1 bytes.Buffer
 	WriteWordLengths(&sum1, r)
-	if !strings.Contains(sum1.String(), "not planned (word lengths are planned for chains of integer stages only") {
+	if !strings.Contains(sum1.String(), "\n  3 polyphase in ") || !strings.Contains(sum1.String(), "\n  1 cic       in ") {
 		t.Errorf("summary: %q", sum1.String())
 	}
 	var tab bytes.Buffer
 	WriteTable(&tab, r)
-	if strings.Contains(tab.String(), "rejection*") || !strings.Contains(tab.String(), "poly24/25") {
-		t.Errorf("table claims rounded figures or lacks the notation:\n%s", tab.String())
+	if !strings.Contains(tab.String(), "rejection*") || !strings.Contains(tab.String(), "poly24/25") {
+		t.Errorf("table lacks the rounded figures or the notation:\n%s", tab.String())
 	}
 }
 
@@ -327,7 +336,7 @@ func TestFractionalCurvesMatchPathGains(t *testing.T) {
 }
 
 // TestFractionalFiles writes a fractional check's files: the polyphase
-// prototype as a FIR's, the README, no integer files or hand-off, and a
+// prototype as a FIR's, the README, its integer files, no hand-off, and a
 // response figure whose curves come from fractionalCurves.
 func TestFractionalFiles(t *testing.T) {
 	s, res := checked(t, `input_rate = "2 MHz"
@@ -362,8 +371,14 @@ coefficients = "auto"
 		t.Errorf("no coefficients/README.txt; files %v", names(files))
 	}
 	for name := range got {
-		if strings.HasSuffix(name, ".hex") || strings.HasSuffix(name, "_int.csv") || strings.HasPrefix(name, "headers/") || strings.HasPrefix(name, "rtl/") || strings.HasPrefix(name, "vectors/") {
+		if strings.HasPrefix(name, "headers/") || strings.HasPrefix(name, "rtl/") || strings.HasPrefix(name, "vectors/") {
 			t.Errorf("a fractional chain wrote %s", name)
+		}
+	}
+	// Its integer files, as a FIR's (coefficients "auto").
+	for _, n := range []string{"coefficients/stage1_polyphase_int.csv", "coefficients/stage1_polyphase.hex"} {
+		if len(got[n]) == 0 {
+			t.Errorf("no %s; files %v", n, names(files))
 		}
 	}
 	for _, n := range []string{"report.json", "response.png", "response.svg", "front.png", "stages.png"} {

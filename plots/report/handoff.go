@@ -29,10 +29,14 @@ type handoffPlan struct {
 // handoff/vectors), and a Verilog reference model with its self-checking
 // testbench under rtl/ (package handoff/rtl), for a decimation or an
 // interpolation chain (whose model streams with valid/ready handshakes,
-// L outputs per input). A chain without a word-length plan gets none, and
+// L outputs per input). A chain with a fractional stage gets none
+// (NoHandoff), nor does one without a word-length plan, and
 // one whose registers are too wide for the integer model gets no vectors
 // or model; the second result then says why.
 func HandoffFiles(c Chain) ([]File, string) {
+	if c.Fractional() {
+		return nil, NoHandoff
+	}
 	if c.plan == nil {
 		if c.WordLengthsError != "" {
 			return nil, "no word-length plan: " + c.WordLengthsError

@@ -584,13 +584,16 @@ func fractionalLM(up, down int, interp bool) (l, m int) {
 // Once ctx is done the planner stops and the chain gets only
 // WordLengthsError (and, with rounded set, does not meet).
 //
-// A chain that ends in a fractional stage gets no word lengths (package
-// chain/fixed plans integer stages only): WordLengthsError is
+// A decimation chain that ends in a fractional stage gets its word
+// lengths and bit-true figures as any other (package chain/fixed,
+// Fractional stages), but no hand-off (NoHandoff). An interpolation
+// chain with a fractional stage gets none: WordLengthsError is
 // fixed.ErrFractional's sentence, and the chain keeps its float verdict
 // (VerdictBasis "float taps") whatever the spec's coefficient width, since
 // nothing of it is rounded.
 func AddWordLengths(ctx context.Context, c *Chain, spec chain.Spec, cand optimize.Candidate, s fixed.Settings, withHardware, rounded bool) {
-	if Fractional(cand.Chain) {
+	frac := Fractional(cand.Chain)
+	if frac && cand.Chain.Direction == chain.Interpolate {
 		c.WordLengthsError = strings.TrimPrefix(fixed.ErrFractional.Error(), "fixed: ")
 		return
 	}
@@ -629,7 +632,7 @@ func AddWordLengths(ctx context.Context, c *Chain, spec chain.Spec, cand optimiz
 	}
 	cr.Stages = nil
 	c.ChainReport = &cr
-	if cas, _, err := fixed.FromChain(spec, cand.Chain); err == nil {
+	if cas, _, err := fixed.FromChain(spec, cand.Chain); err == nil && !frac {
 		c.plan = &handoffPlan{cascade: cas, widths: res.Widths, worstAliasHz: res.Quantised.WorstAliasHz}
 	}
 	if rounded {

@@ -72,13 +72,19 @@ func WriteWordLengths(w io.Writer, rep *Report) {
 	}
 	fmt.Fprintf(w, "\nword lengths (%s): %s; rounded taps: %s rejection %.2f dB, ripple %.4f dB; %s\n",
 		coef, ch.BitTrueSummary(), rep.Spec.Unwanted(), ch.QuantisedRejectionDB, ch.QuantisedRippleDB, gain)
+	// The kind column is 8 wide, wider when a kind's name is longer
+	// (polyphase).
+	kw := 8
+	for _, st := range ch.Stages {
+		kw = max(kw, len(st.Kind))
+	}
 	for i, st := range ch.Stages {
 		sr := st.StageReport
 		if sr == nil {
 			continue
 		}
 		var b strings.Builder
-		fmt.Fprintf(&b, "  %d %-8s in %d bits", i+1, st.Kind, sr.InputBits)
+		fmt.Fprintf(&b, "  %d %-*s in %d bits", i+1, kw, st.Kind, sr.InputBits)
 		switch {
 		case st.Kind == "cic" && st.CICForm == "nonrecursive":
 			// Its RegisterBits are the sub-stages' widths, Bin + N i.
@@ -97,6 +103,14 @@ func WriteWordLengths(w io.Writer, rep *Report) {
 			// (the full width, before the first truncation, is the
 			// accumulator_bits of report.json).
 			fmt.Fprintf(&b, ", registers %d..%d bits", sr.RegisterBits[0], sr.RegisterBits[len(sr.RegisterBits)-1])
+		case st.Kind == chain.Farrow.String():
+			// Its branches, mu word and Horner register (package
+			// chain/fixed, Fractional stages).
+			fmt.Fprintf(&b, ", coefficients %d bits (%d rows), branch accumulators %d bits, mu %d bits, Horner register %d bits, multiplier %s",
+				sr.CoefficientBits, sr.CoefficientRows, sr.AccumulatorBits, sr.MuBits, sr.HornerBits, sr.MultiplierSize)
+			if !sr.QuantisedMeetsBands {
+				b.WriteString(", rounded taps miss this stage's own bands (the chain is judged as a whole)")
+			}
 		case rep.Spec.Hardware.Multiplierless:
 			fmt.Fprintf(&b, ", coefficients %d bits, accumulator %d bits, an adder graph", sr.CoefficientBits, sr.AccumulatorBits)
 			if st.CoefficientAdders != nil && st.StructuralAdders != nil {
