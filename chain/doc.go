@@ -440,9 +440,17 @@
 // prototype's FIR bounder at g + k Fm): the rejection is the worst path
 // over A(0) P(0), never optimistic, at most aliasCertifyDB pessimistic;
 // the passband ripple is the path k = 0's over [0, fp]. PathGains lists
-// the paths of one tone. A real tone's paths to +y and -y can land
-// together at isolated input frequencies and add there; the figure is per
-// path. TestFractionalAnalyzeBruteForce and TestFarrowAnalyzeBruteForce
+// the paths of one tone. In a real chain two paths of one tone can land
+// on the same output frequency, path k1 at +y and path k2 at -y, where
+// 2 g = n FK - (k1 + k2) Fm: only at multiples of Fm / (2 M) (FK = Fm L/M,
+// L and M coprime; two paths never land together at +y). There they add,
+// up to the sum of their gains for some phase of the tone: a tone at
+// 0 Hz (an ADC's offset) makes its images at multiples of FK/L with twice
+// each path's gain. Analyze evaluates the sums at every such point
+// (coincidentPaths; past 2^24 points times paths it takes twice the worst
+// path instead, 6 dB on the safe side), and a real chain's fractional stage
+// is designed 20 log10 2 dB deeper for it. A complex chain's paths never
+// meet. TestFractionalAnalyzeBruteForce and TestFarrowAnalyzeBruteForce
 // hold Analyze to a dense scan of every input frequency and path that does
 // not use these band formulas (0.002 dB at most, never optimistic), and
 // TestFractionalTones and TestFractionalInterpolationTones measure the

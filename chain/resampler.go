@@ -207,6 +207,17 @@ func KeepEdge(spec Spec, fm float64) float64 {
 	return math.Min(spec.Stopband, math.Min(fm, spec.OutputRate)-spec.Protected)
 }
 
+// coincidentDB is the margin a real chain's fractional stage is designed
+// with: two paths of one real tone can land on the same output frequency
+// and add (coincidentPaths), 20 log10 2 dB. A complex chain's paths never
+// meet.
+func coincidentDB(complex bool) float64 {
+	if complex {
+		return 0
+	}
+	return 20 * math.Log10(2)
+}
+
 // FractionalRippleShare is the share of the ripple budget a fractional
 // stage takes when integer stages come before it: half.
 const FractionalRippleShare = 0.5
@@ -257,8 +268,10 @@ func buildFractional(ctx context.Context, spec Spec, plan []StagePlan, s Setting
 	req := FractionalRequirement{InputRate: fm, OutputRate: fk, Passband: spec.Passband, Stop: keep,
 		RippleDB: fracRipple, Dp: RippleToDev(fracRipple),
 		// The integer stages' passband can lift what this stage lets
-		// through by their ripple share.
-		Ds: RejectionToDev(spec.RejectionDB + intRipple)}
+		// through by their ripple share; a real tone's two paths that
+		// meet on one output frequency add (coincidentPaths), so a real
+		// chain's stage is held 6 dB lower.
+		Ds: RejectionToDev(spec.RejectionDB + intRipple + coincidentDB(spec.Complex))}
 	if lowpass {
 		// The lowpass before holds [Keep, Fm/2]: only the images of
 		// [0, Keep] are left to this stage.

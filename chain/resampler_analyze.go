@@ -2,6 +2,7 @@ package chain
 
 import (
 	"context"
+	"errors"
 	"fmt"
 	"math"
 
@@ -51,18 +52,20 @@ func (p fractionalPath) bounds(a, b float64, coarse bool) (lo, up float64) {
 // shifts of its paths, k Fm for k = 0 .. Up-1 (a Farrow stage through its
 // sampled prototype, FarrowPrototype).
 type fractionalParts struct {
-	ic     *Chain
-	rg     func(h float64) float64
-	rb     stageBounder
-	shifts []float64
-	fm     float64
+	ic       *Chain
+	rg       func(h float64) float64
+	rb       stageBounder
+	shifts   []float64
+	fm       float64
+	up, down int // the fractional stage's L and M
 }
 
 func splitFractional(c *Chain) (fractionalParts, error) {
 	n := len(c.Stages)
 	rates := c.Rates()
 	fm := rates[n-1]
-	p := fractionalParts{fm: fm,
+	up, down := stageRatio(c.Stages[n-1])
+	p := fractionalParts{fm: fm, up: up, down: down,
 		ic: &Chain{InputRate: c.InputRate, Complex: c.Complex, Plan: c.Plan[:n-1], Stages: c.Stages[:n-1], Designed: c.Designed}}
 	switch st := c.Stages[n-1].(type) {
 	case PolyphaseStage:
@@ -159,6 +162,24 @@ func measureFractional(ctx context.Context, c *Chain, spec Spec) (Analysis, erro
 	if err := searchPaths(fp0.shifts); err != nil {
 		return Analysis{}, err
 	}
+	if !c.Complex {
+		// A real tone's paths can meet on one output frequency, where
+		// they add (coincidentPaths).
+		w, g, k, err := coincidentPaths(ctx, fp0, cs, fk, fa, f0h, weight)
+		if errors.Is(err, errTooManyCoincidences) {
+			// Too many points to visit: two paths at most meet, so twice
+			// the worst one bounds them (6 dB on the safe side).
+			w, g, k, err = 2*bound, best.x, int(math.Round(bestShift/fp0.fm)), nil
+		}
+		if err != nil {
+			return Analysis{}, err
+		}
+		if w > bound {
+			bound = w
+			best = extreme{x: g, v: w, bound: w}
+			bestShift = float64(k) * fp0.fm
+		}
+	}
 	a := Analysis{AliasRejectionDB: MaxFigureDB}
 	if bound > 0 {
 		a.AliasRejectionDB, a.WorstAliasHz = -toDB(bound/h0), best.x
@@ -184,6 +205,92 @@ func measureFractional(ctx context.Context, c *Chain, spec Spec) (Analysis, erro
 		a.PassbandRippleDB = MaxFigureDB
 	}
 	return a, nil
+}
+
+// errTooManyCoincidences is coincidentPaths' refusal of a chain with
+// more than maxCoincidentWork points times paths.
+var errTooManyCoincidences = errors.New("chain: too many coincident paths to visit")
+
+// maxCoincidentWork bounds the points times paths coincidentPaths
+// visits; beyond it the sum of two paths is bounded by twice the worst
+// one (see coincidentPaths).
+const maxCoincidentWork = 1 << 24
+
+// coincidentPaths returns the largest sum of the gains of two paths of
+// one real tone that land on the same output frequency in [0, fa] (the
+// tone itself left out), weighted by the rejection mask at the tone, with
+// the tone's frequency and the larger path's index. For a real tone at g
+// the fractional stage makes a component at g + k Fm and its mirror at
+// -(g + k Fm), k = 0 .. L-1; two of them meet on one output frequency
+// when g + k1 Fm = -(g + k2 Fm) mod FK (two +-components never meet: k1 Fm
+// = k2 Fm mod FK needs k1 - k2 a multiple of L), that is 2 g = n FK -
+// (k1 + k2) Fm for some integer n: g a multiple of Fm / (2 M), since
+// FK = Fm L / M and L, M are coprime. At most one such pair lands on each
+// output frequency. Their output tone's amplitude is at most the sum of
+// the two paths' gains, reached for some phases of the prototype, so each
+// such g is evaluated; the certified search of single paths does not see
+// these isolated points. When the points times paths exceed
+// maxCoincidentWork it returns errTooManyCoincidences without visiting
+// them, and the caller takes the safe side: twice the worst single path.
+func coincidentPaths(ctx context.Context, p fractionalParts, cs *cascade, fk, fa, f0h float64, weight func(float64) float64) (w, at float64, worstK int, err error) {
+	step := p.fm / float64(2*p.down)
+	npts := int(math.Floor(f0h/step)) + 1
+	if float64(npts)*float64(p.up) > maxCoincidentWork {
+		return 0, 0, 0, errTooManyCoincidences
+	}
+	tol := 1e-9 * fk
+	type hit struct {
+		y float64
+		k int
+	}
+	var hits []hit
+	for j := 0; j < npts; j++ {
+		if j&1023 == 0 {
+			if err := ctx.Err(); err != nil {
+				return 0, 0, 0, err
+			}
+		}
+		g := float64(j) * step
+		hits = hits[:0]
+		for k := 0; k < p.up; k++ {
+			if k == 0 && g <= fa {
+				continue // the tone itself
+			}
+			y := math.Mod(g+float64(k)*p.fm, fk)
+			if y < 0 {
+				y += fk
+			}
+			y = math.Min(y, fk-y)
+			if y <= fa+tol {
+				hits = append(hits, hit{y, k})
+			}
+		}
+		if len(hits) < 2 {
+			continue
+		}
+		var a float64
+		for i := range hits {
+			for i2 := i + 1; i2 < len(hits); i2++ {
+				if math.Abs(hits[i].y-hits[i2].y) > tol {
+					continue
+				}
+				if a == 0 {
+					a = cs.gain(g)
+					if weight != nil {
+						a *= weight(g)
+					}
+				}
+				g1, g2 := p.rg(g+float64(hits[i].k)*p.fm), p.rg(g+float64(hits[i2].k)*p.fm)
+				if v := a * (g1 + g2); v > w {
+					w, at, worstK = v, g, hits[i].k
+					if g2 > g1 {
+						worstK = hits[i2].k
+					}
+				}
+			}
+		}
+	}
+	return w, at, worstK, nil
 }
 
 // estimateFractional is Analyze of an estimated fractional chain: the

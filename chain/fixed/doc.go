@@ -328,9 +328,10 @@
 // paths of the tone are removed from the window (least squares, each on
 // its own bin) before the noise in the alias's bin is measured. When two
 // paths of the tone land in the alias's bin (a real tone's paths to +y
-// and -y, at isolated frequencies) the bit-true figure is their sum,
-// which can be several dB above the per-path figure of chain.Analyze and
-// AliasResponseDB: it is what the hardware does at that frequency. A
+// and -y, at multiples of Fm / (2 M)) the bit-true figure is their sum
+// at the tone's phase, which can be up to 6 dB above one path's figure
+// (AliasResponseDB); chain.Analyze sums such paths, so its rejection is
+// never above what the hardware does at that frequency. A
 // noise-shaped input (Signal.Shaper) is refused. Model and RunCodes run
 // the fractional stage too.
 //

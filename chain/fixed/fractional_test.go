@@ -586,6 +586,31 @@ func bruteFracRejection(cas Cascade, ws *Widths, fa float64) float64 {
 			worst = math.Max(worst, math.Max(best, gain((x0+x1)/2)))
 		}
 	}
+	if !cas.Complex {
+		// A real tone's paths that land on one output frequency add;
+		// two can meet only at multiples of Fm / (2 M) (package chain,
+		// Fractional stages): there the paths are summed by where they
+		// land.
+		fold := func(f float64) float64 {
+			f = math.Mod(f, fk)
+			return math.Min(f, fk-f)
+		}
+		step := fm / float64(2*sw.Down)
+		for j := 0; float64(j)*step <= f0h; j++ {
+			g := float64(j) * step
+			land := map[int64]float64{}
+			for path := range sw.Up {
+				y := fold(g + float64(path)*fm)
+				if (path == 0 && g <= fa) || y > fa*(1+1e-12) {
+					continue
+				}
+				land[int64(math.Round(y/fk*1e8))] += dtft(proto, g+float64(path)*fm, prate)
+			}
+			for _, v := range land {
+				worst = math.Max(worst, a(g)*v)
+			}
+		}
+	}
 	return -20 * math.Log10(worst/g0)
 }
 
