@@ -93,3 +93,28 @@ func TestCreditShare(t *testing.T) {
 		t.Errorf("%d prefixes in the share, want 2", len(share.pre))
 	}
 }
+
+// TestMod2 checks mod2 against math.Mod(v, 2) (exact by its definition),
+// bit for bit, over seeded random v from 1e-300 to 2^60, integers and
+// values a few ulps from multiples of 2 among them.
+func TestMod2(t *testing.T) {
+	rng := rand.New(rand.NewPCG(2, 2))
+	for i := 0; i < 200000; i++ {
+		v := math.Exp2(rng.Float64()*1056 - 996)
+		switch i % 4 {
+		case 1:
+			v = math.Floor(v)
+		case 2:
+			v = 2 * math.Round(v/2)
+			v = math.Nextafter(v, math.Inf(1))
+		case 3:
+			v = math.Nextafter(2*math.Round(v/2), 0)
+		}
+		if !(v >= 0) || math.IsInf(v, 0) {
+			continue
+		}
+		if got, want := mod2(v), math.Mod(v, 2); math.Float64bits(got) != math.Float64bits(want) {
+			t.Fatalf("mod2(%.17g) = %.17g, math.Mod %.17g", v, got, want)
+		}
+	}
+}
