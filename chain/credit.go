@@ -290,8 +290,7 @@ func (e *creditEval) cellBound(a, b float64) float64 {
 					mid := l + (h-l)/2
 					l, h = mid-0.51*st, mid+0.51*st
 				}
-				_, up := bd.bounds(l, h)
-				p *= up
+				p *= bd.upper(l, h)
 				if p*e.rest[j+1] <= best {
 					break
 				}

@@ -118,3 +118,33 @@ func TestMod2(t *testing.T) {
 		}
 	}
 }
+
+// TestUpperIsBoundsUp: a bounder's upper is its bounds' upper bound, bit
+// for bit, for CICs and FIRs over seeded random intervals, narrow (below a
+// FIR's grid step) and wide, anywhere on the frequency axis.
+func TestUpperIsBoundsUp(t *testing.T) {
+	rng := rand.New(rand.NewPCG(5, 1))
+	for c := 0; c < 40; c++ {
+		rate := 1e5 * (1 + 100*rng.Float64())
+		var st Stage = CICStage{N: 1 + rng.IntN(6), M: 1 + rng.IntN(2), R: 2 + rng.IntN(200)}
+		if c%2 == 1 {
+			h := make([]float64, 5+rng.IntN(300))
+			for i := range h {
+				h[i] = rng.NormFloat64() / float64(len(h))
+			}
+			st = FIRStage{R: 2, Taps: h, Length: len(h)}
+		}
+		b, err := newStageBounder(st, rate)
+		if err != nil {
+			t.Fatal(err)
+		}
+		for i := 0; i < 3000; i++ {
+			a := (rng.Float64()*4 - 1) * rate
+			w := rate * math.Exp(-rng.Float64()*25)
+			_, up := b.bounds(a, a+w)
+			if got := b.upper(a, a+w); math.Float64bits(got) != math.Float64bits(up) {
+				t.Fatalf("%T at %g Hz, [%g, %g]: upper %.17g, bounds %.17g", st, rate, a, a+w, got, up)
+			}
+		}
+	}
+}
