@@ -492,8 +492,8 @@ type creditPrefix struct {
 }
 
 // maxSharedBounderFloats bounds the values a creditShare's FIR bounders
-// hold (64 MB): beyond it bounders are built for each table and dropped.
-const maxSharedBounderFloats = 8 << 20
+// hold (16 MB): beyond it bounders are built for each table and dropped.
+const maxSharedBounderFloats = 2 << 20
 
 func newCreditShare() *creditShare {
 	return &creditShare{pre: map[string]*creditPrefix{}, fir: map[string]*firBounder{}}
