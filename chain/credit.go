@@ -5,6 +5,7 @@ import (
 	"encoding/binary"
 	"math"
 	"sync"
+	"sync/atomic"
 
 	"github.com/stepdown-dsp/stepdown/chain/remez"
 )
@@ -171,7 +172,7 @@ func (c *stopCredit) eval(stop []Interval) *creditEval {
 			if !ok {
 				e.load()
 				u = e.cellBound(float64(k)*e.w, float64(k+1)*e.w)
-				if pre != nil {
+				if pre != nil && c.share.cells.Add(1) <= maxSharedCells {
 					pre.cells[k] = u
 				}
 			}
@@ -472,8 +473,9 @@ func tapsHash(b []byte, taps []float64) []byte {
 // creditShare is what the credit tables of one StageMemo's chains share,
 // the chains of a search having many earlier stages in common: for each
 // prefixKey the table's layout and the bound of every cell computed so
-// far, and the bounders of the earlier FIR stages (while they hold fewer
-// than maxSharedBounderFloats values). A cell's bound depends on nothing
+// far (up to maxSharedCells cells in all), and the bounders of the
+// earlier FIR stages (while they hold fewer than maxSharedBounderFloats
+// values): what a search keeps is bounded whatever its size. A cell's bound depends on nothing
 // but the prefix and the cell, so a table built from the share is the
 // table built without it, value for value.
 type creditShare struct {
@@ -481,6 +483,9 @@ type creditShare struct {
 	pre    map[string]*creditPrefix
 	fir    map[string]*firBounder
 	floats int // values held by fir's bounders
+	// cells counts the cell bounds offered to the prefixes' records:
+	// beyond maxSharedCells they are no longer kept.
+	cells atomic.Int64
 }
 
 // creditPrefix is the share's record of one prefix, its fields guarded by
@@ -490,6 +495,10 @@ type creditPrefix struct {
 	layout *creditEval // step, rest, dc, w and cells of the prefix's tables
 	cells  map[int]float64
 }
+
+// maxSharedCells bounds the cell bounds a creditShare keeps (about 40 MB
+// of map entries); later cells are computed for each table.
+const maxSharedCells = 1 << 20
 
 // maxSharedBounderFloats bounds the values a creditShare's FIR bounders
 // hold (16 MB): beyond it bounders are built for each table and dropped.
