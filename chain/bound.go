@@ -59,6 +59,9 @@ type stageBounder interface {
 	// looser: the search orders intervals by them and refines only those
 	// that could matter.
 	coarse(a, b float64) (lo, up float64)
+	// upper is bounds' up alone, the same number, without the work of
+	// the lower bound.
+	upper(a, b float64) float64
 }
 
 // newStageBounder returns the bounder of a stage at input rate rate, or an
@@ -137,29 +140,51 @@ func (c cicBounder) bounds(a, b float64) (lo, up float64) {
 // coarse is bounds: a CIC's bounds cost a few sines.
 func (c cicBounder) coarse(a, b float64) (lo, up float64) { return c.bounds(a, b) }
 
+func (c cicBounder) upper(a, b float64) float64 {
+	var pcs [3][2]float64
+	np := foldPieces(a, b, c.rate, &pcs)
+	up := 0.0
+	for _, p := range pcs[:np] {
+		up = math.Max(up, c.pieceUp(p[0]/c.rate, p[1]/c.rate))
+	}
+	return up
+}
+
+// cicPieceEps is the relative allowance of a CIC piece's bounds.
+const cicPieceEps = 1e-12
+
 // piece bounds |H| over normalised frequencies [x1, x2] within [0, 1/2].
 func (c cicBounder) piece(x1, x2 float64) (lo, up float64) {
-	const eps = 1e-12
-	u1, u2 := c.rm*x1*(1-eps)-eps, c.rm*x2*(1+eps)+eps
-	nf := float64(c.n)
+	return c.pieceLo(x1, x2), c.pieceUp(x1, x2)
+}
+
+// pieceUp is piece's upper bound. In the main lobe, x2 <= 1/(RM),
+// sin(pi x RM)/(RM sin(pi x)) falls monotonically from 1 at DC to 0 at the
+// first null (from memory; TestCICBoundsDense checks it), so the ends are
+// the extremes.
+func (c cicBounder) pieceUp(x1, x2 float64) float64 {
+	const eps = cicPieceEps
 	if x2*c.rm <= 1 {
-		// Main lobe: sin(pi x RM)/(RM sin(pi x)) falls monotonically from 1
-		// at DC to 0 at the first null (from memory; TestCICBoundsDense
-		// checks it), so the ends are the extremes.
-		g := func(x float64) float64 { return cicGain(c.n, int(c.rm), x, 1) }
-		return g(x2) * (1 - eps), math.Min(1, g(x1)*(1+eps))
+		return math.Min(1, cicGain(c.n, int(c.rm), x1, 1)*(1+eps))
 	}
 	if x1 <= 0 {
-		up = 1
-	} else {
-		up = math.Pow(math.Min(1, maxAbsSinPi(u1, u2)/(c.rm*math.Sin(math.Pi*x1))*(1+eps)), nf)
+		return 1
+	}
+	u1, u2 := c.rm*x1*(1-eps)-eps, c.rm*x2*(1+eps)+eps
+	return math.Pow(math.Min(1, maxAbsSinPi(u1, u2)/(c.rm*math.Sin(math.Pi*x1))*(1+eps)), float64(c.n))
+}
+
+// pieceLo is piece's lower bound (see pieceUp).
+func (c cicBounder) pieceLo(x1, x2 float64) float64 {
+	const eps = cicPieceEps
+	if x2*c.rm <= 1 {
+		return cicGain(c.n, int(c.rm), x2, 1) * (1 - eps)
 	}
 	if x2 <= 0 {
-		lo = 1
-	} else {
-		lo = math.Pow(math.Min(1, minAbsSinPi(u1, u2)/(c.rm*math.Sin(math.Pi*x2))*(1-eps)), nf)
+		return 1
 	}
-	return lo, up
+	u1, u2 := c.rm*x1*(1-eps)-eps, c.rm*x2*(1+eps)+eps
+	return math.Pow(math.Min(1, minAbsSinPi(u1, u2)/(c.rm*math.Sin(math.Pi*x2))*(1-eps)), float64(c.n))
 }
 
 // maxAbsSinPi returns the largest |sin(pi u)| over [u1, u2].
@@ -267,6 +292,22 @@ func newFIRBounder(h []float64, rate float64) (*firBounder, error) {
 
 // coarse returns the bounds of |H| over all frequencies.
 func (b *firBounder) coarse(a, e float64) (lo, up float64) { return b.loAll, b.upAll }
+
+func (b *firBounder) upper(a, e float64) float64 {
+	if e-a < b.step {
+		_, up := b.direct((a+e)/2, (e-a)/2)
+		return up
+	}
+	var pcs [3][2]float64
+	np := foldPieces(a, e, b.rate, &pcs)
+	up := 0.0
+	for _, p := range pcs[:np] {
+		i0 := max(0, int(math.Floor(p[0]/b.step)))
+		i1 := min(b.n, int(math.Ceil(p[1]/b.step)))
+		up = math.Max(up, b.up.query(i0, i1))
+	}
+	return up
+}
 
 func (b *firBounder) bounds(a, e float64) (lo, up float64) {
 	if e-a < b.step {

@@ -54,20 +54,31 @@ func (c CICStage) Gain(f, rate float64) float64 {
 
 // cicGain is the unit-DC-gain magnitude of N cascaded length-rm boxcars.
 func cicGain(n, rm int, f, rate float64) float64 {
-	x := math.Mod(math.Abs(f)/rate, 1)
+	x := math.Abs(f) / rate
+	if !(x < 1) {
+		x = math.Mod(x, 1)
+	}
 	if x > 0.5 {
 		x = 1 - x
 	}
 	if x == 0 {
 		return 1
 	}
-	// sin(pi x rm) loses accuracy for large arguments; reduce rm*x mod 2 first.
-	y := math.Mod(x*float64(rm), 2)
+	// sin(pi x rm) loses accuracy for large arguments; reduce rm*x mod 2
+	// first (mod2, exact as math.Mod is, without its loop).
+	y := mod2(x * float64(rm))
 	r := math.Abs(math.Sin(math.Pi*y) / (float64(rm) * math.Sin(math.Pi*x)))
 	if r > 1 {
 		r = 1 // rounding just off DC
 	}
 	return math.Pow(r, float64(n))
+}
+
+// mod2 is math.Mod(v, 2) for finite v >= 0, exactly: v - 2 floor(v/2)
+// is a multiple of ulp(v) (or 0 when ulp(v) > 2) below 2, so it is
+// representable and the subtraction exact.
+func mod2(v float64) float64 {
+	return v - 2*math.Floor(v/2)
 }
 
 // CICGrowth returns ceil(N log2(R M)), the bit growth of a CIC, exactly.

@@ -5,6 +5,7 @@ import (
 	"encoding/binary"
 	"math"
 	"sync"
+	"sync/atomic"
 
 	"github.com/stepdown-dsp/stepdown/chain/remez"
 )
@@ -58,6 +59,9 @@ type stopCredit struct {
 	lift      []CICStage
 	liftRates []float64
 	out, fp   float64
+	// liftFp is the lift at fp (liftGain(fp)), set with the table: the
+	// lift of every x that folds to fp or beyond.
+	liftFp float64
 	// aliasOnly leaves out the image g = x itself: the credit of a
 	// compensator's protected band (fp, fa], where x is signal and only
 	// the images m F(i-1) +- x, m >= 1, are aliases.
@@ -72,6 +76,10 @@ type stopCredit struct {
 	// limit at g over the earlier stages' gain at g.
 	mask *Mask
 	top  float64
+
+	// share, when not nil, is the credit tables' share of the StageMemo
+	// the chain is designed with (creditShare).
+	share *creditShare
 
 	once sync.Once
 	tab  *creditEval // the table, its bounders dropped
@@ -122,13 +130,72 @@ type creditEval struct {
 }
 
 // eval builds the evaluator of c for a stage with the given stopbands.
+// With a share, the layout and the cells' bounds already computed for
+// the same earlier stages are taken from it, and the cells computed here
+// are added to it; the bounders are built (or taken from the share) only
+// when a cell is missing.
 func (c *stopCredit) eval(stop []Interval) *creditEval {
+	var pre *creditPrefix
+	if c.share != nil {
+		pre = c.share.prefix(string(c.prefixKey(nil)))
+		pre.mu.Lock()
+		defer pre.mu.Unlock()
+	}
+	var e *creditEval
+	if pre != nil && pre.layout != nil {
+		l := pre.layout
+		e = &creditEval{c: c, step: l.step, rest: l.rest, dc: l.dc, w: l.w, cells: l.cells}
+	} else {
+		e = c.layout()
+		if pre != nil {
+			pre.layout = &creditEval{step: e.step, rest: e.rest, dc: e.dc, w: e.w, cells: e.cells}
+		}
+	}
+	if !(e.dc > 0) {
+		return e
+	}
+	cells := e.cells
+	e.nodes = make([]float64, cells+1)
+	for k := range e.nodes {
+		e.nodes[k] = -1
+	}
+	for _, sb := range stop {
+		// A cell of margin each side: the design engine's frequencies
+		// may round just outside a band.
+		k0 := max(0, int(math.Floor(sb.Lo/e.w))-1)
+		k1 := min(cells, int(math.Ceil(sb.Hi/e.w))+1)
+		for k := k0; k < k1; k++ {
+			u, ok := 0.0, false
+			if pre != nil {
+				u, ok = pre.cells[k]
+			}
+			if !ok {
+				e.load()
+				u = e.cellBound(float64(k)*e.w, float64(k+1)*e.w)
+				if pre != nil && c.share.cells.Add(1) <= maxSharedCells {
+					pre.cells[k] = u
+				}
+			}
+			for _, q := range [2]int{k, k + 1} {
+				if !(e.nodes[q] >= u) {
+					e.nodes[q] = u
+				}
+			}
+		}
+	}
+	return e
+}
+
+// layout is c's evaluator without nodes: the earlier stages' bounders,
+// their grid steps and peaks (rest), their gain at 0 Hz (dc, 0 when a
+// stage cannot be bounded) and the table's cells.
+func (c *stopCredit) layout() *creditEval {
 	n := len(c.stages)
 	e := &creditEval{c: c, bnd: make([]stageBounder, n), step: make([]float64, n), rest: make([]float64, n+1), dc: 1}
 	peaks := make([]float64, n)
 	for j, st := range c.stages {
 		e.dc *= st.Gain(0, c.rates[j])
-		b, err := newStageBounder(st, c.rates[j])
+		b, err := c.share.bounder(st, c.rates[j])
 		if err != nil {
 			// A stage that cannot be bounded (a FIR without taps): no
 			// credit at all.
@@ -159,28 +226,23 @@ func (c *stopCredit) eval(stop []Interval) *creditEval {
 			feat = math.Max(feat, float64(s.M*s.R)*c.rate/c.rates[j])
 		}
 	}
-	cells := nextPow2(min(maxCreditCells, max(minCreditCells, int(math.Ceil(creditPerFeature*feat/2)))))
-	e.cells = cells
-	e.w = c.rate / 2 / float64(cells)
-	e.nodes = make([]float64, cells+1)
-	for k := range e.nodes {
-		e.nodes[k] = -1
-	}
-	for _, sb := range stop {
-		// A cell of margin each side: the design engine's frequencies
-		// may round just outside a band.
-		k0 := max(0, int(math.Floor(sb.Lo/e.w))-1)
-		k1 := min(cells, int(math.Ceil(sb.Hi/e.w))+1)
-		for k := k0; k < k1; k++ {
-			u := e.cellBound(float64(k)*e.w, float64(k+1)*e.w)
-			for _, q := range [2]int{k, k + 1} {
-				if !(e.nodes[q] >= u) {
-					e.nodes[q] = u
-				}
-			}
-		}
-	}
+	e.cells = nextPow2(min(maxCreditCells, max(minCreditCells, int(math.Ceil(creditPerFeature*feat/2)))))
+	e.w = c.rate / 2 / float64(e.cells)
 	return e
+}
+
+// load sets e's bounders when they are not set (an evaluator laid out
+// from a share's layout, whose stages were bounded once already).
+func (e *creditEval) load() {
+	if e.bnd != nil {
+		return
+	}
+	c := e.c
+	e.bnd = make([]stageBounder, len(c.stages))
+	for j, st := range c.stages {
+		// The layout bounded every stage: no error here.
+		e.bnd[j], _ = c.share.bounder(st, c.rates[j])
+	}
 }
 
 // cellBound is a rigorous upper bound of the earlier stages' largest
@@ -229,8 +291,7 @@ func (e *creditEval) cellBound(a, b float64) float64 {
 					mid := l + (h-l)/2
 					l, h = mid-0.51*st, mid+0.51*st
 				}
-				_, up := bd.bounds(l, h)
-				p *= up
+				p *= bd.upper(l, h)
 				if p*e.rest[j+1] <= best {
 					break
 				}
@@ -249,6 +310,9 @@ func (e *creditEval) cellBound(a, b float64) float64 {
 // table returns c's table, building it on first use.
 func (c *stopCredit) table() *creditEval {
 	c.once.Do(func() {
+		if len(c.lift) > 0 {
+			c.liftFp = c.liftGain(c.fp)
+		}
 		e := c.eval(c.stop)
 		e.bnd, e.step, e.rest = nil, nil, nil
 		c.tab = e
@@ -274,7 +338,9 @@ func (e *creditEval) at(x float64) float64 {
 		}
 	}
 	if e.bnd == nil {
-		return e.c.eval(nil).cellBound(x, x)
+		f := e.c.eval(nil)
+		f.load()
+		return f.cellBound(x, x)
 	}
 	return e.cellBound(x, x)
 }
@@ -312,7 +378,23 @@ func (c *stopCredit) liftAt(x float64) float64 {
 	if len(c.lift) == 0 {
 		return 1
 	}
-	f := math.Min(foldFreq(x, c.out), c.fp)
+	if c.liftFp > 0 {
+		// Where x folds to fp or beyond, the lift is its value at fp,
+		// taken once (table): the same number, without the sines. x mod
+		// out is found here to a few ulps of x; the margin tol keeps
+		// every x whose exact fold could lie below fp on the full path.
+		ax := math.Abs(x)
+		r := ax - math.Floor(ax/c.out)*c.out
+		tol := 1e-9*c.out + 1e-14*ax
+		if r >= c.fp+tol && r <= c.out-c.fp-tol {
+			return c.liftFp
+		}
+	}
+	return c.liftGain(math.Min(foldFreq(x, c.out), c.fp))
+}
+
+// liftGain is prod |H_cic(f)| over the CICs a later compensator corrects.
+func (c *stopCredit) liftGain(f float64) float64 {
 	g := 1.0
 	for j, cs := range c.lift {
 		g *= cs.Gain(f, c.liftRates[j])
@@ -320,14 +402,12 @@ func (c *stopCredit) liftAt(x float64) float64 {
 	return g
 }
 
-// key appends what the credit depends on to b: its base, the stage's
-// input rate, and every earlier stage as designed (kind, factor, rate; a
-// CIC's order and delay, a FIR's taps by their SHA-256).
+// key appends what the credit depends on to b: its base, cap and the
+// later compensator's lift, then its prefixKey.
 func (c *stopCredit) key(b []byte) []byte {
 	u := func(v uint64) { b = binary.LittleEndian.AppendUint64(b, v) }
 	f := func(v float64) { u(math.Float64bits(v)) }
 	f(c.base)
-	f(c.rate)
 	u(uint64(len(c.lift)))
 	for j, cs := range c.lift {
 		u(uint64(cs.N))
@@ -337,6 +417,19 @@ func (c *stopCredit) key(b []byte) []byte {
 	f(c.out)
 	f(c.fp)
 	f(c.cap)
+	return c.prefixKey(b)
+}
+
+// prefixKey appends what the credit's table depends on to b: the stage's
+// input rate and the chain's, the rejection mask, whether the image x
+// itself counts (aliasOnly), and every earlier stage as designed (kind,
+// factor, rate; a CIC's order and delay, a FIR's taps by their SHA-256).
+// The stage's stopbands only choose which cells are tabulated.
+func (c *stopCredit) prefixKey(b []byte) []byte {
+	u := func(v uint64) { b = binary.LittleEndian.AppendUint64(b, v) }
+	f := func(v float64) { u(math.Float64bits(v)) }
+	f(c.rate)
+	f(c.f0)
 	u(uint64(len(c.maskPoints())))
 	if c.mask != nil {
 		f(c.top)
@@ -360,16 +453,100 @@ func (c *stopCredit) key(b []byte) []byte {
 			u(uint64(s.N))
 			u(uint64(s.M))
 		case FIRStage:
-			h := sha256.New()
-			var w [8]byte
-			for _, t := range s.Taps {
-				binary.LittleEndian.PutUint64(w[:], math.Float64bits(t))
-				h.Write(w[:])
-			}
-			b = h.Sum(b)
+			b = tapsHash(b, s.Taps)
 		}
 	}
 	return b
+}
+
+// tapsHash appends the SHA-256 of the taps' bits to b.
+func tapsHash(b []byte, taps []float64) []byte {
+	h := sha256.New()
+	var w [8]byte
+	for _, t := range taps {
+		binary.LittleEndian.PutUint64(w[:], math.Float64bits(t))
+		h.Write(w[:])
+	}
+	return h.Sum(b)
+}
+
+// creditShare is what the credit tables of one StageMemo's chains share,
+// the chains of a search having many earlier stages in common: for each
+// prefixKey the table's layout and the bound of every cell computed so
+// far (up to maxSharedCells cells in all), and the bounders of the
+// earlier FIR stages (while they hold fewer than maxSharedBounderFloats
+// values): what a search keeps is bounded whatever its size. A cell's bound depends on nothing
+// but the prefix and the cell, so a table built from the share is the
+// table built without it, value for value.
+type creditShare struct {
+	mu     sync.Mutex
+	pre    map[string]*creditPrefix
+	fir    map[string]*firBounder
+	floats int // values held by fir's bounders
+	// cells counts the cell bounds offered to the prefixes' records:
+	// beyond maxSharedCells they are no longer kept.
+	cells atomic.Int64
+}
+
+// creditPrefix is the share's record of one prefix, its fields guarded by
+// mu (held while a table of the prefix is built).
+type creditPrefix struct {
+	mu     sync.Mutex
+	layout *creditEval // step, rest, dc, w and cells of the prefix's tables
+	cells  map[int]float64
+}
+
+// maxSharedCells bounds the cell bounds a creditShare keeps (about 40 MB
+// of map entries); later cells are computed for each table.
+const maxSharedCells = 1 << 20
+
+// maxSharedBounderFloats bounds the values a creditShare's FIR bounders
+// hold (16 MB): beyond it bounders are built for each table and dropped.
+const maxSharedBounderFloats = 2 << 20
+
+func newCreditShare() *creditShare {
+	return &creditShare{pre: map[string]*creditPrefix{}, fir: map[string]*firBounder{}}
+}
+
+// prefix returns the share's record of the prefix key, new when unseen.
+func (s *creditShare) prefix(key string) *creditPrefix {
+	s.mu.Lock()
+	defer s.mu.Unlock()
+	p := s.pre[key]
+	if p == nil {
+		p = &creditPrefix{cells: map[int]float64{}}
+		s.pre[key] = p
+	}
+	return p
+}
+
+// bounder is newStageBounder(st, rate), a FIR's taken from the share
+// when it holds one for the same taps and rate; a nil share builds it.
+func (s *creditShare) bounder(st Stage, rate float64) (stageBounder, error) {
+	fs, ok := st.(FIRStage)
+	if s == nil || !ok || len(fs.Taps) == 0 {
+		return newStageBounder(st, rate)
+	}
+	key := string(tapsHash(binary.LittleEndian.AppendUint64(nil, math.Float64bits(rate)), fs.Taps))
+	s.mu.Lock()
+	b := s.fir[key]
+	s.mu.Unlock()
+	if b != nil {
+		return b, nil
+	}
+	b, err := newFIRBounder(fs.Taps, rate)
+	if err != nil {
+		return nil, err
+	}
+	// The per-point bounds, twice, and their range tables.
+	size := 4 * (b.n + 1)
+	s.mu.Lock()
+	if s.fir[key] == nil && s.floats+size <= maxSharedBounderFloats {
+		s.fir[key] = b
+		s.floats += size
+	}
+	s.mu.Unlock()
+	return b, nil
 }
 
 // Credited reports whether the stage's stopband limit is relaxed by the

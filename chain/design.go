@@ -101,6 +101,7 @@ func build(ctx context.Context, spec Spec, plan []StagePlan, s Settings, design 
 				// designed, and their attenuation relaxes its stopbands.
 				r.credit = newStopCredit(r.cascadeBase, spec.InputRate, c.Stages, r.Stopbands)
 				r.credit.mask, r.credit.top = spec.RejectionMask, spec.RejectionDB
+				r.credit.share = s.Memo.creditShare()
 				if len(r.Compensates) > 0 {
 					// The compensator's transition on (fp, fa] lifts
 					// the CICs' own aliases that land there: bound it
@@ -110,6 +111,7 @@ func build(ctx context.Context, spec Spec, plan []StagePlan, s Settings, design 
 						p := newStopCredit(reqs[r.Compensates[0]].Ds, spec.InputRate, c.Stages, []Interval{{r.Passband, hi}})
 						p.aliasOnly, p.cap = true, maxProtectedLimit
 						p.mask, p.top = spec.RejectionMask, spec.RejectionDB
+						p.share = s.Memo.creditShare()
 						// Where the aliases landing just above fp ask
 						// for less than the passband's own gain there,
 						// no compensator can meet the target: the band

@@ -133,7 +133,10 @@
 // and they are designed first, so no iteration is needed. The credit
 // lives in the requirement (its table built on first use), so package
 // fixed's check of rounded taps holds each stage to the same limits, and
-// StageMemo keys a stage on the earlier stages as designed.
+// StageMemo keys a stage on the earlier stages as designed. A cell's bound
+// depends only on the earlier stages and the cell, so the chains designed
+// through one StageMemo share the cells and bounders of equal earlier
+// stages: the same values, computed once.
 //
 // The compensator gets one band more: its transition (fp, fa], where the
 // CICs' own aliases land (g = m F(i-1) +- x, m >= 1) and where it lifts

@@ -28,12 +28,17 @@ import (
 // a stage asked for while another goroutine designs it waits for that
 // design (or for its own context to be done). The zero value is not
 // usable; use NewStageMemo. A design stopped by its context is not
-// remembered.
+// remembered. The memo also holds what the cascade rule's credit tables
+// of its chains share (the bounds of the earlier stages, per prefix of
+// them: creditShare), which changes no table's values.
 type StageMemo struct {
 	mu sync.Mutex
 	m  map[string]*memoEntry
 	// frac remembers fractional stages (memo_fractional.go).
 	frac map[string]*fracEntry
+	// credit is shared by the cascade rule's credit tables of the chains
+	// designed with the memo (creditShare).
+	credit *creditShare
 }
 
 type memoEntry struct {
@@ -45,7 +50,7 @@ type memoEntry struct {
 
 // NewStageMemo returns an empty memo.
 func NewStageMemo() *StageMemo {
-	return &StageMemo{m: map[string]*memoEntry{}}
+	return &StageMemo{m: map[string]*memoEntry{}, credit: newCreditShare()}
 }
 
 // Len returns the number of stages remembered or being designed.
@@ -98,6 +103,15 @@ func (m *StageMemo) stage(ctx context.Context, design bool, r Requirement, prev 
 	}
 	close(e.done)
 	return st, err
+}
+
+// creditShare is the memo's share of the credit tables, nil for a nil
+// memo.
+func (m *StageMemo) creditShare() *creditShare {
+	if m == nil {
+		return nil
+	}
+	return m.credit
 }
 
 // ctxStopped reports whether err is that of a design stopped by its

@@ -87,7 +87,9 @@ func TestStageMemo(t *testing.T) {
 	}
 }
 
-// builtTables builds the credit table of every FIR stage of c.
+// builtTables builds the credit table of every FIR stage of c and
+// forgets the memo's share of the tables (the tables' values, which are
+// compared, are the same with or without it).
 func builtTables(c *Chain) {
 	if c == nil {
 		return
@@ -95,6 +97,11 @@ func builtTables(c *Chain) {
 	for _, s := range c.Stages {
 		if st, ok := s.(FIRStage); ok {
 			st.Req.StopbandLimitFunc()
+			for _, cr := range []*stopCredit{st.Req.credit, st.Req.protect} {
+				if cr != nil {
+					cr.share = nil
+				}
+			}
 		}
 	}
 }

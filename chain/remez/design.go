@@ -330,27 +330,58 @@ func (e *engine) deviations(h []float64) (dev, wdev []float64) {
 		}
 		bd := &e.bands[b]
 		g := e.grid[e.bstart[b]:e.bstart[b+1]]
-		// Signed unweighted error D - A (the weight is positive).
-		unw := func(p *point) float64 { return p.e / bd.wt(p.f) }
+		// The band's weight at a grid point: the point's own for type I;
+		// a type II point's carries cos(pi f), so it is asked again. A
+		// weight function can be costly (the cascade rule's limit), so
+		// each is asked once a point, and the weights of the frequencies
+		// a refinement visits are kept (seen) for measure's shape.
+		wt := func(p *point) float64 {
+			if e.type2 {
+				return bd.wt(p.f)
+			}
+			return p.w
+		}
+		var seen []point
+		// Signed unweighted error D - A (the weight is positive) off the
+		// grid.
 		fu := func(f float64) float64 {
-			q := e.mkpoint(f, b)
-			return e.errAt(&q) / bd.wt(f)
+			w := bd.wt(f)
+			q := e.mkpointDW(f, b, bd.desired(f), w)
+			seen = append(seen, point{f: f, w: w})
+			return e.errAt(&q) / w
 		}
 		measure := func(f float64) {
 			d := math.Abs(Amplitude(h, f, 1) - bd.desired(f))
 			dev[b] = math.Max(dev[b], d)
 			shape := 1.0
 			if bd.weightFn != nil {
-				shape = bd.weightFn(bd.spec(f))
+				shape = math.NaN()
+				for k := len(seen) - 1; k >= 0; k-- {
+					if seen[k].f == f {
+						shape = seen[k].w
+						break
+					}
+				}
+				if math.IsNaN(shape) {
+					shape = bd.weightFn(bd.spec(f))
+				}
 			}
 			wdev[b] = math.Max(wdev[b], d*shape)
 		}
+		// Signed unweighted errors of the grid points, each computed once
+		// as the window i-1, i, i+1 slides.
+		var ul, uc, ur float64
+		if len(g) > 1 {
+			uc, ur = g[0].e/wt(&g[0]), g[1].e/wt(&g[1])
+		}
 		for i := range g {
 			if i == 0 || i == len(g)-1 {
+				seen = append(seen[:0], point{f: g[i].f, w: wt(&g[i])})
 				measure(g[i].f)
 				continue
 			}
-			ul, uc, ur := unw(&g[i-1]), unw(&g[i]), unw(&g[i+1])
+			ul, uc = uc, ur
+			ur = g[i+1].e / wt(&g[i+1])
 			s := 1.0
 			if uc < 0 {
 				s = -1
@@ -358,6 +389,7 @@ func (e *engine) deviations(h []float64) (dev, wdev []float64) {
 			if !(s*uc >= s*ul && s*uc >= s*ur) {
 				continue
 			}
+			seen = append(seen[:0], point{f: g[i].f, w: wt(&g[i])})
 			sfu := func(f float64) float64 { return s * fu(f) }
 			measure(refineMax(sfu, g[i-1].f, g[i].f, g[i+1].f, s*ul, s*uc, s*ur))
 		}
