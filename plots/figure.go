@@ -1,11 +1,9 @@
 package plots
 
 import (
-	"bufio"
 	"bytes"
 	"fmt"
 	"image/color"
-	"image/png"
 	"io"
 	"os"
 	"path/filepath"
@@ -195,11 +193,7 @@ func (f *Figure) Render(w io.Writer, format string, width, height vg.Length) err
 	case "png":
 		img := vgimg.NewWith(vgimg.UseWH(width, height), vgimg.UseDPI(150))
 		f.Draw(draw.New(img))
-		bw := bufio.NewWriter(w)
-		if err := pngEncoder.Encode(bw, img.Image()); err != nil {
-			return err
-		}
-		return bw.Flush()
+		return encodePNG(w, img.Image())
 	default:
 		return fmt.Errorf("plots: format %q: unsupported (want one of %s)", format, strings.Join(Formats, ", "))
 	}
@@ -216,12 +210,6 @@ func (f *Figure) Render(w io.Writer, format string, width, height vg.Length) err
 		[]byte("font-family:'Liberation Sans',Arial,Helvetica,sans-serif;")))
 	return err
 }
-
-// pngEncoder writes the figures' PNGs at zlib's fastest level: a figure
-// is mostly flat colour, which that level packs within a few tens of per
-// cent of the best, at a fraction of the time. The bytes depend only on
-// the image (no timestamps), so they stay deterministic.
-var pngEncoder = png.Encoder{CompressionLevel: png.BestSpeed}
 
 // Save renders the figure to the named file, choosing the format from the
 // file's extension (.svg or .png). It writes to a temporary file
