@@ -65,7 +65,8 @@
 //     under the common forms of colour blindness; the front's latency key
 //     uses a viridis-like map whose lightness rises monotonically (dark is
 //     the least latency).
-//   - Formats are SVG and PNG (150 dots per inch); the PNG draws the same
+//   - Formats are SVG and PNG (150 dots per inch, 8-bit RGB packed for
+//     speed: see encodePNG); the PNG draws the same
 //     text with the Liberation fonts built into gonum/plot, so it reads the
 //     same on any machine. The default figure size
 //     is 8 x 5 inches (DefaultWidth, DefaultHeight); a zero width or height

@@ -191,15 +191,13 @@ func (f *Figure) Render(w io.Writer, format string, width, height vg.Length) err
 	case "svg":
 		c = vgsvg.New(width, height)
 	case "png":
-		c = vgimg.PngCanvas{Canvas: vgimg.NewWith(vgimg.UseWH(width, height), vgimg.UseDPI(150))}
+		img := vgimg.NewWith(vgimg.UseWH(width, height), vgimg.UseDPI(150))
+		f.Draw(draw.New(img))
+		return encodePNG(w, img.Image())
 	default:
 		return fmt.Errorf("plots: format %q: unsupported (want one of %s)", format, strings.Join(Formats, ", "))
 	}
 	f.Draw(draw.New(c))
-	if format != "svg" {
-		_, err := c.WriteTo(w)
-		return err
-	}
 	var buf bytes.Buffer
 	if _, err := c.WriteTo(&buf); err != nil {
 		return err

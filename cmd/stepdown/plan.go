@@ -393,7 +393,7 @@ func (j *job) planFront(c *cli.Context, set optimize.Settings) (*report.Comparis
 // plans (a plan's time limit or an interrupt); an interrupt (j.c.Context)
 // then leaves the output folder as it was.
 func (j *job) finish(ctx context.Context, command string, res *optimize.Result) error {
-	rep, err := report.NewContext(ctx, command, j.spec, res)
+	rep, err := report.NewForFiles(ctx, command, j.spec, res)
 	if err != nil {
 		return err
 	}

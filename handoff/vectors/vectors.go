@@ -295,17 +295,22 @@ func (v *Vectors) Files() []handoff.File {
 	files := []handoff.File{{Name: "vectors/README.txt", Data: v.readme()}}
 	for _, s := range v.Sets {
 		files = append(files, handoff.File{Name: "vectors/" + s.Name + ".in.txt", Data: lines(s.In)})
+		var last []byte
 		for k, out := range s.Stages {
-			files = append(files, handoff.File{Name: fmt.Sprintf("vectors/%s.stage%d.txt", s.Name, k+1), Data: lines(out)})
+			last = lines(out)
+			files = append(files, handoff.File{Name: fmt.Sprintf("vectors/%s.stage%d.txt", s.Name, k+1), Data: last})
 		}
-		files = append(files, handoff.File{Name: "vectors/" + s.Name + ".out.txt", Data: lines(s.Stages[len(s.Stages)-1])})
+		// The chain's output is the last stage's: the same bytes, shared.
+		files = append(files, handoff.File{Name: "vectors/" + s.Name + ".out.txt", Data: last})
 	}
 	return files
 }
 
 // lines writes one sample per line, the paths' codes separated by a space.
 func lines(paths [][]int64) []byte {
-	var b []byte
+	// Room for codes of up to 7 digits and a sign, so that the buffer
+	// seldom grows.
+	b := make([]byte, 0, len(paths[0])*len(paths)*9)
 	for i := range paths[0] {
 		for p := range paths {
 			if p > 0 {

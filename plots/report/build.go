@@ -6,7 +6,6 @@ import (
 	"fmt"
 	"math"
 	"sort"
-	"sync"
 
 	"github.com/stepdown-dsp/stepdown/chain"
 	"github.com/stepdown-dsp/stepdown/chain/specfile"
@@ -57,9 +56,12 @@ func responseGrid(f0, fk float64) []float64 {
 // Files renders every file a plan or check writes, in memory, in the order
 // written: report.json, front.svg and .png, response.svg and .png,
 // stages.svg and .png, then the recommended chain's coefficient files (see
-// CoefficientFiles). rep is NewContext's report of res for spec. ctx stops
-// it between figures (each takes a fraction of a second), returning
-// ctx.Err().
+// CoefficientFiles) and its hand-off (HandoffFiles). rep is NewContext's
+// or NewForFiles's report of res for spec; the recommended chain's files
+// that NewForFiles started are collected here. The figures are drawn at
+// once, each format on its own goroutine. ctx stops it, returning
+// ctx.Err() at once (a figure being drawn is abandoned: the command is
+// about to exit).
 func Files(ctx context.Context, rep *Report, res *optimize.Result, spec *specfile.Spec) ([]File, error) {
 	js, err := rep.Marshal()
 	if err != nil {
@@ -67,6 +69,10 @@ func Files(ctx context.Context, rep *Report, res *optimize.Result, spec *specfil
 	}
 	files := []File{{Name: "report.json", Data: js}}
 	rec := rep.Recommended
+	rf := rep.early
+	if rf == nil || rf.rec != rec {
+		rf = startRecommended(rep, res, spec)
+	}
 
 	// A multiplierless plan's cost axis is its adders as built: the
 	// figure's x axis holds them (plots.FrontData.Adders).
@@ -130,52 +136,113 @@ func Files(ctx context.Context, rep *Report, res *optimize.Result, spec *specfil
 	if err != nil {
 		return nil, fmt.Errorf("front plot: %v", err)
 	}
-	cand := res.Front[rec]
-	rd, err := responseData(cand, spec, rep.Front[rec])
+	front, err := renderAll(ctx, []figureFiles{{"front", frontFig, []string{"svg", "png"}}})
 	if err != nil {
 		return nil, err
 	}
-	respFig, err := plots.Response(rd)
-	if err != nil {
-		return nil, fmt.Errorf("response plot: %v", err)
+	files = append(files, front...)
+	select {
+	case <-rf.done:
+	case <-ctx.Done():
+		return nil, ctx.Err()
 	}
-
-	sd := plots.StagesData{Title: "Cost by stage: " + rep.Front[rec].Notation, PerInput: rep.Spec.Interpolates()}
-	for i, st := range rep.Front[rec].Stages {
-		// The report's stages are in signal order, the plan's from the
-		// high rate down.
-		sd.Names = append(sd.Names, stageName(cand, rep.Front[rec].reportIndex(i, len(cand.Plan))))
-		sd.Multiplies = append(sd.Multiplies, st.MultipliesPerOutput)
-		sd.MemoryBits = append(sd.MemoryBits, float64(st.MemoryBits))
+	if rf.err != nil {
+		return nil, rf.err
 	}
-	stFig, err := plots.Stages(sd)
-	if err != nil {
-		return nil, fmt.Errorf("stages plot: %v", err)
-	}
-
-	figs, err := renderAll(ctx, []figureFiles{
-		{"front", frontFig, []string{"svg", "png"}},
-		{"response", respFig, []string{"svg", "png"}},
-		{"stages", stFig, []string{"svg", "png"}},
-	})
-	if err != nil {
-		return nil, err
-	}
-	files = append(files, figs...)
-
-	cf, err := CoefficientFiles(rep.Front[rec], spec.CoefMode() != "float")
-	if err != nil {
-		return nil, err
-	}
-	files = append(files, cf...)
+	files = append(files, rf.files...)
 	if err := ctx.Err(); err != nil {
 		return nil, err
 	}
 	// The hand-off: absent where the chain has no word-length plan, which
 	// report.json's word_lengths_error already explains, or a fractional
 	// stage (NoHandoff, said on the terminal).
-	hf, _ := HandoffFiles(rep.Front[rec])
-	return append(files, hf...), nil
+	return append(files, rf.handoff...), nil
+}
+
+// recommended holds the files of the recommended chain that need nothing
+// of the rest of the front, made on their own goroutines: the response and
+// stages figures and the coefficient files (files, in the order written)
+// and the hand-off. Once done is closed, err is their first error, or the
+// files are set.
+type recommended struct {
+	rec     int
+	done    chan struct{}
+	files   []File
+	handoff []File
+	err     error
+}
+
+// startRecommended starts making the recommended chain's files
+// (recommended) from rep.Front[rep.Recommended] as it is now: its word
+// lengths must be planned (or have failed) and it must no longer change,
+// except in the fields that AddAdders and NewResources set, which these
+// files do not read (a copy of its stages is taken).
+func startRecommended(rep *Report, res *optimize.Result, spec *specfile.Spec) *recommended {
+	rec := rep.Recommended
+	ch := rep.Front[rec]
+	ch.Stages = append([]Stage(nil), ch.Stages...)
+	cand := res.Front[rec]
+	perInput := rep.Spec.Interpolates()
+	rf := &recommended{rec: rec, done: make(chan struct{})}
+	go func() {
+		defer close(rf.done)
+		rf.files, rf.handoff, rf.err = recommendedFiles(ch, cand, spec, perInput)
+	}()
+	return rf
+}
+
+// recommendedFiles makes the files of recommended for chain ch, the
+// report's view of cand.
+func recommendedFiles(ch Chain, cand optimize.Candidate, spec *specfile.Spec, perInput bool) (files, handoff []File, err error) {
+	// The hand-off runs the chain bit-true for its vectors: beside the
+	// figures.
+	var hf []File
+	hdone := make(chan struct{})
+	go func() {
+		defer close(hdone)
+		hf, _ = HandoffFiles(ch)
+	}()
+	defer func() { <-hdone }()
+
+	sd := plots.StagesData{Title: "Cost by stage: " + ch.Notation, PerInput: perInput}
+	for i, st := range ch.Stages {
+		// The report's stages are in signal order, the plan's from the
+		// high rate down.
+		sd.Names = append(sd.Names, stageName(cand, ch.reportIndex(i, len(cand.Plan))))
+		sd.Multiplies = append(sd.Multiplies, st.MultipliesPerOutput)
+		sd.MemoryBits = append(sd.MemoryBits, float64(st.MemoryBits))
+	}
+	stFig, stErr := plots.Stages(sd)
+	var stages func() ([]File, error)
+	if stErr == nil {
+		// Drawn while the response is sampled.
+		stages = startAll(context.Background(), []figureFiles{{"stages", stFig, []string{"svg", "png"}}})
+	}
+	rd, err := responseData(cand, spec, ch)
+	if err != nil {
+		return nil, nil, err
+	}
+	respFig, err := plots.Response(rd)
+	if err != nil {
+		return nil, nil, fmt.Errorf("response plot: %v", err)
+	}
+	if stErr != nil {
+		return nil, nil, fmt.Errorf("stages plot: %v", stErr)
+	}
+	resp, err := renderAll(context.Background(), []figureFiles{{"response", respFig, []string{"svg", "png"}}})
+	if err != nil {
+		return nil, nil, err
+	}
+	st, err := stages()
+	if err != nil {
+		return nil, nil, err
+	}
+	cf, err := CoefficientFiles(ch, spec.CoefMode() != "float")
+	if err != nil {
+		return nil, nil, err
+	}
+	<-hdone
+	return append(append(resp, st...), cf...), hf, nil
 }
 
 // figureFiles is one figure and the formats it is written in, as
@@ -186,63 +253,68 @@ type figureFiles struct {
 	formats []string
 }
 
-// renderAll draws the figures at once, one goroutine each (a figure's
-// formats in turn), and returns their files in the order given, so the
-// bytes do not depend on which finishes first.
+// renderAll draws the figures, each format of each on its own goroutine,
+// and returns their files in the order given, so the bytes do not depend
+// on which finishes first.
 func renderAll(ctx context.Context, figs []figureFiles) ([]File, error) {
-	out := make([][]File, len(figs))
-	errs := make([]error, len(figs))
-	var wg sync.WaitGroup
-	for i, f := range figs {
-		wg.Add(1)
-		go func() {
-			defer wg.Done()
-			for _, ext := range f.formats {
-				b, err := render(ctx, f.fig, ext)
-				if err != nil {
-					errs[i] = fmt.Errorf("%s.%s: %v", f.name, ext, err)
-					return
-				}
-				out[i] = append(out[i], File{Name: f.name + "." + ext, Data: b})
-			}
-		}()
-	}
-	wg.Wait()
-	var files []File
-	for i := range figs {
-		if errs[i] != nil {
-			return nil, errs[i]
-		}
-		files = append(files, out[i]...)
-	}
-	return files, nil
+	return startAll(ctx, figs)()
 }
 
-// render draws f in format. A PNG of a dense response takes up to about a
-// second, so the drawing runs on its own goroutine and an interrupt (ctx)
-// returns at once, abandoning it: the command is about to exit.
-func render(ctx context.Context, f *plots.Figure, format string) ([]byte, error) {
-	if err := ctx.Err(); err != nil {
-		return nil, err
+// startAll starts renderAll's drawing and returns the call that waits for
+// its files.
+func startAll(ctx context.Context, figs []figureFiles) func() ([]File, error) {
+	type job struct {
+		name string
+		wait func() ([]byte, error)
 	}
+	var jobs []job
+	for _, f := range figs {
+		for _, ext := range f.formats {
+			jobs = append(jobs, job{f.name + "." + ext, render(ctx, f.fig, ext)})
+		}
+	}
+	return func() ([]File, error) {
+		files := make([]File, 0, len(jobs))
+		for _, j := range jobs {
+			b, err := j.wait()
+			if err != nil {
+				if ctx.Err() != nil {
+					return nil, ctx.Err()
+				}
+				return nil, fmt.Errorf("%s: %v", j.name, err)
+			}
+			files = append(files, File{Name: j.name, Data: b})
+		}
+		return files, nil
+	}
+}
+
+// render starts drawing f in format on its own goroutine and returns the
+// call that waits for its bytes. A PNG of a dense response takes a good
+// fraction of a second, so once ctx is done the wait returns ctx.Err() at
+// once, abandoning the drawing: the command is about to exit.
+func render(ctx context.Context, f *plots.Figure, format string) func() ([]byte, error) {
 	type result struct {
 		b   []byte
 		err error
 	}
 	done := make(chan result, 1)
-	go func() {
-		var buf bytes.Buffer
-		err := f.Render(&buf, format, 0, 0)
-		done <- result{buf.Bytes(), err}
-	}()
-	select {
-	case r := <-done:
-		if r.err != nil {
-			return nil, r.err
+	if err := ctx.Err(); err != nil {
+		done <- result{nil, err}
+	} else {
+		go func() {
+			var buf bytes.Buffer
+			err := f.Render(&buf, format, 0, 0)
+			done <- result{buf.Bytes(), err}
+		}()
+	}
+	return func() ([]byte, error) {
+		select {
+		case r := <-done:
+			return r.b, r.err
+		case <-ctx.Done():
+			return nil, ctx.Err()
 		}
-		return r.b, nil
-	case <-ctx.Done():
-		return nil, ctx.Err()
 	}
 }
 

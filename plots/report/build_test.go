@@ -2,6 +2,9 @@ package report
 
 import (
 	"bytes"
+	"context"
+	"errors"
+	"runtime"
 	"strings"
 	"testing"
 
@@ -107,5 +110,84 @@ func TestNewRejectsBadIndex(t *testing.T) {
 	res.Recommended = 3
 	if _, err := New("plan", s, res); err == nil {
 		t.Error("no error for a recommended index outside the front")
+	}
+}
+
+// NewForFiles starts the recommended chain's files beside the other
+// chains' word-length plans; Files must then give the very bytes it gives
+// for NewContext's report, whatever GOMAXPROCS, for a decimation and an
+// interpolation spec (the built-in example and an invented transmit
+// chain), and a recommended chain other than the search's.
+func TestNewForFilesSameBytes(t *testing.T) {
+	ex, err := specfile.Example()
+	if err != nil {
+		t.Fatal(err)
+	}
+	tx, err := specfile.Parse("tx.toml", []byte("input_rate = \"96 kHz\"\noutput_rate = \"1.536 MHz\"\npassband = \"20 kHz\"\nripple = \"0.1 dB\"\nrejection = \"60 dB\"\n"))
+	if err != nil {
+		t.Fatal(err)
+	}
+	ctx := context.Background()
+	for k, s := range []*specfile.Spec{ex, tx} {
+		res, err := optimize.Plan(ctx, s.Chain, s.SearchSettings())
+		if err != nil {
+			t.Fatal(err)
+		}
+		recs := []int{res.Recommended}
+		if k == 0 && len(res.Front) > 1 {
+			recs = append(recs, (res.Recommended+1)%len(res.Front))
+		}
+		for j, rec := range recs {
+			r := *res
+			r.Recommended = rec
+			want := filesOf(t, ctx, &r, s, NewContext)
+			procs := []int{1, 3}[(k+j)%2]
+			old := runtime.GOMAXPROCS(procs)
+			got := filesOf(t, ctx, &r, s, NewForFiles)
+			runtime.GOMAXPROCS(old)
+			if len(got) != len(want) {
+				t.Fatalf("%s #%d, GOMAXPROCS %d: %d files, NewContext's report %d", s.Chain.RatioString(), rec, procs, len(got), len(want))
+			}
+			for i := range want {
+				if got[i].Name != want[i].Name || !bytes.Equal(got[i].Data, want[i].Data) {
+					t.Errorf("%s #%d, GOMAXPROCS %d: file %d is %s (%d bytes), NewContext's report gives %s (%d bytes)", s.Chain.RatioString(), rec, procs, i, got[i].Name, len(got[i].Data), want[i].Name, len(want[i].Data))
+				}
+			}
+		}
+	}
+}
+
+func filesOf(t *testing.T, ctx context.Context, res *optimize.Result, s *specfile.Spec, build func(context.Context, string, *specfile.Spec, *optimize.Result) (*Report, error)) []File {
+	t.Helper()
+	rep, err := build(ctx, "plan", s, res)
+	if err != nil {
+		t.Fatal(err)
+	}
+	files, err := Files(ctx, rep, res, s)
+	if err != nil {
+		t.Fatal(err)
+	}
+	return files
+}
+
+// Files returns ctx.Err() once ctx is done, also while it waits for the
+// recommended chain's files that NewForFiles started.
+func TestFilesStopped(t *testing.T) {
+	s, err := specfile.Example()
+	if err != nil {
+		t.Fatal(err)
+	}
+	res, err := optimize.Plan(context.Background(), s.Chain, s.SearchSettings())
+	if err != nil {
+		t.Fatal(err)
+	}
+	rep, err := NewForFiles(context.Background(), "plan", s, res)
+	if err != nil {
+		t.Fatal(err)
+	}
+	ctx, cancel := context.WithCancel(context.Background())
+	cancel()
+	if _, err := Files(ctx, rep, res, s); !errors.Is(err, context.Canceled) {
+		t.Errorf("Files after cancel: %v, want context.Canceled", err)
 	}
 }

@@ -57,6 +57,11 @@ type Report struct {
 	// ratio has a prime factor above 7 (optimize.Hints); absent when
 	// there are none.
 	Hints []Hint `json:"hints,omitempty"`
+
+	// early is the recommended chain's files, started by NewForFiles
+	// while the other chains' word lengths were planned; Files collects
+	// them.
+	early *recommended
 }
 
 // Hint is one of plan's cheaper ways to the channel: a nearby output rate
@@ -669,6 +674,22 @@ func New(command string, s *specfile.Spec, res *optimize.Result) (*Report, error
 // chains not yet planned then say so (AddWordLengths), and the report is
 // still made, so that a search stopped by its time limit writes its front.
 func NewContext(ctx context.Context, command string, s *specfile.Spec, res *optimize.Result) (*Report, error) {
+	return newReport(ctx, command, s, res, false)
+}
+
+// NewForFiles is NewContext for a report whose files Files will make: as
+// soon as the recommended chain's word lengths are planned (it is planned
+// first), its figures, coefficient files and hand-off start being made on
+// their own goroutines, beside the other chains' plans, and Files collects
+// them. They are made as Files would make them, so the files are the same
+// bytes. Once ctx is done they are still made (Files' own ctx stops the
+// wait for them).
+func NewForFiles(ctx context.Context, command string, s *specfile.Spec, res *optimize.Result) (*Report, error) {
+	return newReport(ctx, command, s, res, true)
+}
+
+// newReport is NewContext, and NewForFiles when early is set.
+func newReport(ctx context.Context, command string, s *specfile.Spec, res *optimize.Result, early bool) (*Report, error) {
 	r := &Report{
 		Schema:      Schema,
 		Command:     command,
@@ -703,9 +724,23 @@ func NewContext(ctx context.Context, command string, s *specfile.Spec, res *opti
 		}
 		r.Front = append(r.Front, c)
 	}
+	rec := r.Recommended
+	if len(r.Front) > 0 && (rec < 0 || rec >= len(r.Front)) {
+		return nil, fmt.Errorf("report: recommended index %d outside the front of %d chains", rec, len(r.Front))
+	}
 	// The word-length plans are independent: they run on every core, each
 	// writing only its own chain, so the report is the same whatever the
-	// number of cores.
+	// number of cores. The recommended chain's goes first, so that its
+	// files (early) start as soon as may be.
+	order := make([]int, 0, len(r.Front))
+	if len(r.Front) > 0 {
+		order = append(order, rec)
+	}
+	for i := range r.Front {
+		if i != rec {
+			order = append(order, i)
+		}
+	}
 	var wg sync.WaitGroup
 	next := make(chan int)
 	for w := 0; w < min(runtime.GOMAXPROCS(0), len(r.Front)); w++ {
@@ -714,10 +749,13 @@ func NewContext(ctx context.Context, command string, s *specfile.Spec, res *opti
 			defer wg.Done()
 			for i := range next {
 				AddWordLengths(ctx, &r.Front[i], s.Chain, res.Front[i], fs, hw, s.CoefMode() != "float")
+				if early && i == rec {
+					r.early = startRecommended(r, res, s)
+				}
 			}
 		}()
 	}
-	for i := range r.Front {
+	for _, i := range order {
 		next <- i
 	}
 	close(next)
@@ -733,9 +771,6 @@ func NewContext(ctx context.Context, command string, s *specfile.Spec, res *opti
 			}
 		}
 		r.Front[i].Resources = NewResources(&r.Front[i], s.Clock, s.Chain.ChannelRate(), paths)
-	}
-	if len(r.Front) > 0 && (r.Recommended < 0 || r.Recommended >= len(r.Front)) {
-		return nil, fmt.Errorf("report: recommended index %d outside the front of %d chains", r.Recommended, len(r.Front))
 	}
 	return r, nil
 }
@@ -771,6 +806,9 @@ func nonFinite(v reflect.Value, path string) string {
 	case reflect.Struct:
 		t := v.Type()
 		for i := 0; i < v.NumField(); i++ {
+			if !t.Field(i).IsExported() {
+				continue // not in the JSON
+			}
 			name, _, _ := strings.Cut(t.Field(i).Tag.Get("json"), ",")
 			sub := path + "." + name
 			if t.Field(i).Anonymous {
