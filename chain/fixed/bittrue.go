@@ -4,6 +4,7 @@ import (
 	"context"
 	"fmt"
 	"math"
+	"math/cmplx"
 	"math/rand/v2"
 	"slices"
 	"strings"
@@ -245,7 +246,11 @@ func BitTrueContext(ctx context.Context, c Cascade, w *Widths, sig Signal) (BitT
 	}
 	nin := c.inputsFor(skip + nm)
 	if nin > maxInputSamples {
-		return BitTrueResult{}, fmt.Errorf("fixed: bit-true run needs %d input samples (ratio %d/%d, %d output samples); at most %d are supported", nin, num, den, nm+skip, maxInputSamples)
+		ratio := fmt.Sprintf("decimation %d", num)
+		if den != 1 {
+			ratio = fmt.Sprintf("ratio %d/%d", num, den)
+		}
+		return BitTrueResult{}, fmt.Errorf("fixed: bit-true run needs %d input samples (%s, %d output samples); at most %d are supported", nin, ratio, nm+skip, maxInputSamples)
 	}
 	res := BitTrueResult{Samples: nm, InputSamples: nin, Skip: skip, NoiseDBFS: math.Max(-300, 20*math.Log10(noise))}
 	rng := rand.New(rand.NewPCG(sig.Seed, 0x5eed))
@@ -527,6 +532,41 @@ func project(y []float64, nu float64) (amp, resid float64) {
 		r2 += e * e
 	}
 	return math.Hypot(re, im), math.Sqrt(r2 / float64(len(y)))
+}
+
+// projectC is project's complex amplitude of the sinusoid at nu cycles a
+// sample in y: its modulus is project's amplitude.
+func projectC(y []float64, nu float64) complex128 {
+	var re, im float64
+	for n, v := range y {
+		s, c := math.Sincos(2 * math.Pi * nu * float64(n))
+		re += v * c
+		im -= v * s
+	}
+	k := 2 / float64(len(y))
+	return complex(re*k, im*k)
+}
+
+// worstPhase is the largest output amplitude over the input tone's phase,
+// |c1| + |c2|, from the complex amplitudes z0 and z1 of two runs a quarter
+// cycle apart: z0 = c1 + c2 and z1 = i (c1 - c2) (phases taken from the
+// first run's).
+func worstPhase(z0, z1 complex128) float64 {
+	return (cmplx.Abs(z0-1i*z1) + cmplx.Abs(z0+1i*z1)) / 2
+}
+
+// pathsInBin counts the paths of a tone at g through the quantised chain q
+// that land in the window's bin of fout (win samples at fk) with a gain
+// above 1e-9 of the chain's at 0 Hz, and sums their gains.
+func pathsInBin(q *chain.Chain, g, fout, fk float64, win int) (n int, sum float64) {
+	bin := func(f float64) int { return int(math.Round(f / fk * float64(win))) }
+	for _, p := range chain.PathGains(q, g, 0) {
+		if bin(p.OutputHz) == bin(fout) && p.Gain > 1e-9*q.Gain(0) {
+			n++
+			sum += p.Gain
+		}
+	}
+	return n, sum
 }
 
 // blockSamples is the number of input samples generated and run at a time:
@@ -997,8 +1037,9 @@ func aliasRun(ctx context.Context, c Cascade, w *Widths, sig Signal, res *BitTru
 		g, res.WorstAliasResponseDB, path = a.WorstAliasHz, a.AliasRejectionDB, a.WorstPath
 	}
 	shift := 0.0
-	if frac, i := c.fracStage(); frac.fractional() {
-		shift = float64(path) * c.Rates()[i]
+	frac, fi := c.fracStage()
+	if frac.fractional() {
+		shift = float64(path) * c.Rates()[fi]
 	}
 	fch, _ := cascadeChain(c, w, false)
 	h0f := fch.Gain(0) * cicScale(w)
@@ -1022,22 +1063,45 @@ func aliasRun(ctx context.Context, c Cascade, w *Widths, sig Signal, res *BitTru
 		}
 		res.AliasHz, res.AliasOutHz, res.AliasSamples = g, fout, win
 		res.AliasResponseDB = posDB(pathGain(q, g, path) / q.Gain(0))
-		tone := []toneGen{{g, a, 2 * math.Pi * rng.Float64()}}
-		yi, yf, err := streamEnc(ctx, c, w, enc, need(skip+win), skip, win, signalGen(tone, noise, rng, c.InputRate))
+		phase := 2 * math.Pi * rng.Float64()
+		run := func(phase float64) (yi, yf []float64, err error) {
+			tone := []toneGen{{g, a, phase}}
+			yi, yf, err = streamEnc(ctx, c, w, enc, need(skip+win), skip, win, signalGen(tone, noise, rng, c.InputRate))
+			if err != nil {
+				return nil, nil, err
+			}
+			if len(yi) < win {
+				return nil, nil, fmt.Errorf("fixed: bit-true alias run made %d of %d output samples (an internal miscount of the input needed)", len(yi), win)
+			}
+			if frac.fractional() {
+				// The tone's other paths through the fractional stage land
+				// on other bins of the window (whole cycles, see BitTrue):
+				// they are signal, not noise in the alias's bin.
+				yi = removePaths(yi, q, g, fout, fk, win)
+			}
+			return yi, yf, nil
+		}
+		yi, yf, err := run(phase)
 		if err != nil {
 			return err
 		}
-		if len(yi) < win {
-			return fmt.Errorf("fixed: bit-true alias run made %d of %d output samples (an internal miscount of the input needed)", len(yi), win)
-		}
-		if shift != 0 || len(chain.PathGains(q, g, 0)) > 1 {
-			// The tone's other paths through the fractional stage land on
-			// other bins of the window (whole cycles, see BitTrue): they
-			// are signal, not noise in the alias's bin.
-			yi = removePaths(yi, q, g, fout, fk, win)
-		}
 		ai, resid := project(yi, fout/fk)
 		af, _ := project(yf, fout/fk)
+		if n, sum := pathsInBin(q, g, fout, fk, win); frac.fractional() && n > 1 {
+			// Two paths of the real tone meet in the alias's bin (at +y
+			// and -y, see package chain): what comes out depends on the
+			// tone's phase. A second run a quarter cycle on separates the
+			// two (Z(p) = c1 e^{ip} + c2 e^{-ip}), and the figure is the
+			// worst phase's, |c1| + |c2|.
+			yi2, yf2, err := run(phase + math.Pi/2)
+			if err != nil {
+				return err
+			}
+			ai = worstPhase(projectC(yi, fout/fk), projectC(yi2, fout/fk))
+			af = worstPhase(projectC(yf, fout/fk), projectC(yf2, fout/fk))
+			// The response's figure is then the paths' sum too.
+			res.AliasResponseDB = posDB(sum / q.Gain(0))
+		}
 		res.AliasRejectionDB = posDB(ai / (a * h0q))
 		res.AliasFloatRunDB = posDB(af / (a * h0f))
 		res.AliasNoiseDB = posDB(2 * resid / math.Sqrt(float64(win)) / (a * h0q))

@@ -328,10 +328,12 @@
 // paths of the tone are removed from the window (least squares, each on
 // its own bin) before the noise in the alias's bin is measured. When two
 // paths of the tone land in the alias's bin (a real tone's paths to +y
-// and -y, at multiples of Fm / (2 M)) the bit-true figure is their sum
-// at the tone's phase, which can be up to 6 dB above one path's figure
-// (AliasResponseDB); chain.Analyze sums such paths, so its rejection is
-// never above what the hardware does at that frequency. A
+// and -y, at multiples of Fm / (2 M)) what comes out depends on the
+// tone's phase: the run is made twice, a quarter cycle apart, which
+// separates the two paths' complex amplitudes c1 and c2, and the bit-true
+// figure is the worst phase's, |c1| + |c2| (up to 6 dB above one path);
+// AliasResponseDB is then the two paths' sum too, as chain.Analyze's
+// figure is. A
 // noise-shaped input (Signal.Shaper) is refused. Model and RunCodes run
 // the fractional stage too.
 //

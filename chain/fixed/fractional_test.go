@@ -651,8 +651,7 @@ func TestFractionalQuantisedAnalyzeBruteForce(t *testing.T) {
 		}
 		bt := res.BitTrue
 		// Paths of the tone that share the alias's bin add there (a real
-		// tone's paths to +y and -y, at isolated frequencies): the
-		// bit-true figure is their sum, the response's one path's.
+		// tone's paths to +y and -y, at multiples of Fm / (2 M)).
 		fk := c.OutputRate()
 		bin := func(f float64) int { return int(math.Round(f / fk * float64(bt.AliasSamples))) }
 		shared := 0
@@ -664,7 +663,9 @@ func TestFractionalQuantisedAnalyzeBruteForce(t *testing.T) {
 		if shared > 1 {
 			t.Logf("%s: %d paths share the alias's bin: bit-true %.2f dB, one path %.2f dB", chain.Notation(c.Plan), shared, bt.AliasRejectionDB, bt.AliasResponseDB)
 		}
-		if bt.AliasValid && shared == 1 {
+		// Where paths share the bin, the run measures the worst phase
+		// and the response is the paths' sum: the same comparison.
+		if bt.AliasValid {
 			d := math.Abs(bt.AliasRejectionDB - bt.AliasResponseDB)
 			if d > 1 {
 				t.Errorf("%s: bit-true alias %.2f dB at %g Hz, the quantised response %.2f dB", chain.Notation(c.Plan), bt.AliasRejectionDB, bt.AliasHz, bt.AliasResponseDB)
