@@ -393,9 +393,9 @@ func planFarrow(st Stage, rate float64, in, ob, coefBits int, s Settings, minBit
 		sw.PhaseGainMin, sw.PhaseGainMax = math.Min(sw.PhaseGainMin, g), math.Max(sw.PhaseGainMax, g)
 	}
 	sw.Gain = total / float64(l)
-	exact := "exact (Up a power of two within the word)"
+	exact := fmt.Sprintf("exact (L = %d, the stage's interpolation, a power of two within the word)", l)
 	if l&(l-1) != 0 || bitsLen(l-1) > mb {
-		exact = "rounded half up from k/Up"
+		exact = fmt.Sprintf("rounded half up to the word (L = %d, the stage's interpolation, is not a power of two within it)", l)
 	}
 	sw.Points = []string{
 		fmt.Sprintf("coefficients: %d rows of %d, one scale 2^-%d for the whole matrix", rows, n, cf.Frac),

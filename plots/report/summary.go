@@ -58,7 +58,7 @@ func WriteComparison(w io.Writer, rep *Report) {
 // checked) chain: the bit-true figures and each stage's widths.
 func WriteWordLengths(w io.Writer, rep *Report) {
 	ch := rep.Front[rep.Recommended]
-	coef := map[string]string{"fixed": "coefficients as set", "auto": "coefficients auto", "float": "coefficients auto, for information (the files stay floating point)"}[rep.Spec.Words.CoefficientsMode]
+	coef := map[string]string{"fixed": "coefficients as set", "auto": "coefficients auto", "float": "coefficients auto, for information: the files stay floating point"}[rep.Spec.Words.CoefficientsMode]
 	if ch.ChainReport == nil {
 		fmt.Fprintf(w, "\nword lengths: not planned (%s)\n", ch.WordLengthsError)
 		return
