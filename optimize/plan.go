@@ -708,6 +708,19 @@ func searchPass(ctx context.Context, p *params, sp *space, s *Settings, est *est
 			scoreMu.Unlock()
 		}
 	}
+	// stop counts one candidate of a walk in *n; every 4096 it adds them
+	// to walked, reports progress and says whether ctx is done.
+	stop := func(n *int) bool {
+		if *n++; *n&4095 != 0 {
+			return false
+		}
+		walked.Add(4096)
+		if ctx.Err() != nil {
+			return true
+		}
+		scoring()
+		return false
+	}
 	// The first-stage CICs that skipCIC drops are counted here, on the
 	// pass's own estimator, whose CIC caches reinstate reads later.
 	var drops [len(dropNames)]int
@@ -764,12 +777,8 @@ func searchPass(ctx context.Context, p *params, sp *space, s *Settings, est *est
 		defer func() { walked.Add(int64(steps & 4095)) }()
 		return sp.walkFrom(units[i], func(plan []chain.StagePlan) bool {
 			u.candidates++
-			if steps++; steps&4095 == 0 {
-				walked.Add(4096)
-				if ctx.Err() != nil {
-					return false
-				}
-				scoring()
+			if stop(&steps) {
+				return false
 			}
 			f, drop := e.score(plan)
 			if drop != dropNone {
@@ -858,12 +867,8 @@ func searchPass(ctx context.Context, p *params, sp *space, s *Settings, est *est
 		idx, seen := offsets[i], 0
 		defer func() { walked.Add(int64(seen & 4095)) }()
 		return sp.walkFrom(units[i], func(plan []chain.StagePlan) bool {
-			if seen++; seen&4095 == 0 {
-				walked.Add(4096)
-				if ctx.Err() != nil {
-					return false
-				}
-				scoring()
+			if stop(&seen) {
+				return false
 			}
 			f, drop := e.score(plan)
 			if drop != dropNone {
