@@ -28,6 +28,9 @@ var nothingToSpare = []struct {
 }
 
 func TestRejectionMeetsTargetWithoutRedesign(t *testing.T) {
+	if os.Getenv("STEPDOWN_LONG") == "" {
+		t.Skip("4 s: STEPDOWN_LONG (CI's long step)")
+	}
 	for _, dc := range nothingToSpare {
 		t.Run(dc.name, func(t *testing.T) {
 			c := designOrSkip(t, dc.spec, dc.plan)

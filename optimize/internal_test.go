@@ -472,6 +472,9 @@ func TestTwoTierExactFake(t *testing.T) {
 // draws of the fake, each failing other designs: exactness must not hang
 // on one draw.
 func TestTwoTierExactFakeSalted(t *testing.T) {
+	if os.Getenv("STEPDOWN_LONG") == "" {
+		t.Skip("2 s: STEPDOWN_LONG (CI's long step)")
+	}
 	defer func() { fakeSalt = 0 }()
 	for _, c := range []struct {
 		salt uint32
@@ -489,6 +492,9 @@ func TestTwoTierExactFakeSalted(t *testing.T) {
 }
 
 func TestSearchDeterministicJobs(t *testing.T) {
+	if os.Getenv("STEPDOWN_LONG") == "" {
+		t.Skip("3 s: STEPDOWN_LONG (CI's long step)")
+	}
 	p := rxParams(960)
 	a := fakeSearch(t, p, Settings{Jobs: 1})
 	b := fakeSearch(t, p, Settings{Jobs: 3})

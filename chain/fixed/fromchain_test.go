@@ -4,6 +4,7 @@ import (
 	"encoding/json"
 	"fmt"
 	"math"
+	"os"
 	"strings"
 	"testing"
 
@@ -176,6 +177,9 @@ func TestReportFields(t *testing.T) {
 }
 
 func TestPruningMatchesChainPackage(t *testing.T) {
+	if os.Getenv("STEPDOWN_LONG") == "" {
+		t.Skip("3 s: STEPDOWN_LONG (CI's long step)")
+	}
 	// The CIC widths the report shows and package cost prices
 	// (chain.NewCICStage: register_bits, output width) must be the widths
 	// this package plans and runs bit-true (Plan, StageWidths.Pruning):

@@ -14,6 +14,9 @@ import (
 // the signal order of the stages and their rates, the table's wording, and
 // that check with the recommended notation gives the same figures.
 func TestPlanInterpolationEndToEnd(t *testing.T) {
+	if os.Getenv("STEPDOWN_LONG") == "" {
+		t.Skip("2 s: STEPDOWN_LONG (CI's long step)")
+	}
 	dir := t.TempDir()
 	spec, err := os.ReadFile(filepath.Join("..", "..", "testdata", "specs", "transmit.toml"))
 	if err != nil {
@@ -108,6 +111,9 @@ func TestPlanInterpolationEndToEnd(t *testing.T) {
 // report.json's mask fields: the mask echoed, the target its largest
 // rejection, and each chain's margin its rejection less that target.
 func TestPlanMaskEndToEnd(t *testing.T) {
+	if os.Getenv("STEPDOWN_LONG") == "" {
+		t.Skip("2 s: STEPDOWN_LONG (CI's long step)")
+	}
 	dir := t.TempDir()
 	spec, err := os.ReadFile(filepath.Join("..", "..", "testdata", "specs", "blocker_mask.toml"))
 	if err != nil {

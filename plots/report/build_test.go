@@ -4,6 +4,7 @@ import (
 	"bytes"
 	"context"
 	"errors"
+	"os"
 	"runtime"
 	"strings"
 	"testing"
@@ -119,6 +120,9 @@ func TestNewRejectsBadIndex(t *testing.T) {
 // interpolation spec (the built-in example and an invented transmit
 // chain), and a recommended chain other than the search's.
 func TestNewForFilesSameBytes(t *testing.T) {
+	if os.Getenv("STEPDOWN_LONG") == "" {
+		t.Skip("3 s: STEPDOWN_LONG (CI's long step)")
+	}
 	ex, err := specfile.Example()
 	if err != nil {
 		t.Fatal(err)
