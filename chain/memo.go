@@ -151,14 +151,7 @@ func stageKey(r Requirement, prev []Stage, s Settings) string {
 		u(uint64(cs.R * cs.M))
 		f(rate)
 	}
-	u(uint64(s.Remez.Density))
-	u(uint64(s.Remez.MaxIterations))
-	if s.Remez.GridOnly {
-		u(1)
-	} else {
-		u(0)
-	}
-	u(uint64(s.MaxTaps))
+	b = appendSettingsKey(b, s)
 	// The cascade rule's credit: the earlier stages as designed.
 	for _, c := range []*stopCredit{r.credit, r.protect} {
 		if c != nil {
@@ -169,4 +162,17 @@ func stageKey(r Requirement, prev []Stage, s Settings) string {
 		}
 	}
 	return string(b)
+}
+
+// appendSettingsKey appends to a memo key what of Settings a stage's
+// design depends on: Remez and MaxTaps.
+func appendSettingsKey(b []byte, s Settings) []byte {
+	grid := uint64(0)
+	if s.Remez.GridOnly {
+		grid = 1
+	}
+	for _, v := range []uint64{uint64(s.Remez.Density), uint64(s.Remez.MaxIterations), grid, uint64(s.MaxTaps)} {
+		b = binary.LittleEndian.AppendUint64(b, v)
+	}
+	return b
 }

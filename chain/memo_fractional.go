@@ -35,15 +35,7 @@ func (m *StageMemo) fractional(ctx context.Context, design bool, p StagePlan, r 
 	for _, v := range []float64{r.InputRate, r.OutputRate, r.Passband, r.Keep, r.Stop, r.Dp, r.Ds, r.RippleDB} {
 		f(v)
 	}
-	u(uint64(s.Remez.Density))
-	u(uint64(s.Remez.MaxIterations))
-	if s.Remez.GridOnly {
-		u(1)
-	} else {
-		u(0)
-	}
-	u(uint64(s.MaxTaps))
-	key := string(b)
+	key := string(appendSettingsKey(b, s))
 	m.mu.Lock()
 	if m.frac == nil {
 		m.frac = map[string]*fracEntry{}

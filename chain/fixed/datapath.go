@@ -695,18 +695,8 @@ func planFIR(st Stage, rate float64, in, ob, coefBits int, s Settings, minBits i
 			return StageWidths{}, fmt.Errorf("band %d [%g, %g] Hz has MaxError %g; it must be > 0", i, b.Lo, b.Hi, b.MaxError)
 		}
 	}
-	// A band the float design itself misses is held to its float deviation
-	// plus 1/16 instead, so that a width is still found and the shortfall,
-	// which no word length can fix, shows in FloatDeviations.
-	sw.FloatDeviations = Deviations(st.Taps, rate, st.Bands, q.Density)
-	bands := append([]remez.Band(nil), st.Bands...)
-	sw.FloatMeets = true
-	for i := range bands {
-		if sw.FloatDeviations[i] > bands[i].MaxError {
-			sw.FloatMeets = false
-			bands[i].MaxError = sw.FloatDeviations[i] * (1 + 1.0/16)
-		}
-	}
+	var bands []remez.Band
+	sw.FloatDeviations, sw.FloatMeets, bands = floatTargets(st.Taps, rate, st.Bands, q.Density)
 	var err error
 	if coefBits == 0 {
 		if st.Up > 0 {
@@ -841,4 +831,23 @@ func b2i(b bool) int {
 		return 1
 	}
 	return 0
+}
+
+// floatTargets measures the float taps h (Deviations) and returns the
+// bands the rounded taps are held to: a band the float design itself
+// misses is held to its float deviation plus 1/16 instead, so that a width
+// is still found and the shortfall, which no word length can fix, shows in
+// the deviations returned; meets says whether the float design met every
+// band.
+func floatTargets(h []float64, rate float64, bands []remez.Band, density int) (dev []float64, meets bool, held []remez.Band) {
+	dev = Deviations(h, rate, bands, density)
+	held = append([]remez.Band(nil), bands...)
+	meets = true
+	for i := range held {
+		if dev[i] > held[i].MaxError {
+			meets = false
+			held[i].MaxError = dev[i] * (1 + 1.0/16)
+		}
+	}
+	return dev, meets, held
 }

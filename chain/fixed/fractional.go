@@ -286,15 +286,8 @@ func planFarrow(st Stage, rate float64, in, ob, coefBits int, s Settings, minBit
 	prate := rate * float64(l)
 	density := s.Quant.Density
 	sw := StageWidths{R: 1, Up: l, Down: st.Down, Farrow: true, FarrowRows: rows, InputBits: in, OutputBits: ob}
-	sw.FloatDeviations = Deviations(farrowFloatProto(st), prate, st.Bands, density)
-	bands := append([]remez.Band(nil), st.Bands...)
-	sw.FloatMeets = true
-	for i := range bands {
-		if sw.FloatDeviations[i] > bands[i].MaxError {
-			sw.FloatMeets = false
-			bands[i].MaxError = sw.FloatDeviations[i] * (1 + 1.0/16)
-		}
-	}
+	var bands []remez.Band
+	sw.FloatDeviations, sw.FloatMeets, bands = floatTargets(farrowFloatProto(st), prate, st.Bands, density)
 	try := func(b int) (Coefficients, int, []float64, bool) {
 		cf := Quantize(flat, b)
 		mb := defaultMuBits(b, l, s)
