@@ -55,7 +55,7 @@ func AnalyzeContext(ctx context.Context, c *Chain, spec Spec) (Analysis, error) 
 	if err := checkChain(c, spec); err != nil {
 		return Analysis{}, err
 	}
-	if endsFractional(c) {
+	if fracIndex(c) >= 0 {
 		if !c.Designed || !hasTaps(c) {
 			return estimateFractional(c, spec)
 		}
@@ -65,11 +65,6 @@ func AnalyzeContext(ctx context.Context, c *Chain, spec Spec) (Analysis, error) 
 		return estimateAnalysis(c, spec)
 	}
 	return measure(ctx, c, spec)
-}
-
-// endsFractional says whether c's last stage is a fractional one.
-func endsFractional(c *Chain) bool {
-	return c != nil && len(c.Stages) > 0 && c.Stages[len(c.Stages)-1].Kind().Fractional()
 }
 
 func hasTaps(c *Chain) bool {
@@ -95,12 +90,12 @@ func checkChain(c *Chain, spec Spec) error {
 		return fmt.Errorf("chain: chain InputRate = %s Hz differs from the spec's InputRate = %s Hz",
 			fmtNum(c.InputRate), fmtNum(spec.InputRate))
 	}
-	if spec.Fractional() || endsFractional(c) {
+	if spec.Fractional() || fracIndex(c) >= 0 {
 		num, den := spec.Fraction()
 		if n, d := c.Fraction(); n != num || d != den {
 			return fmt.Errorf("chain: the chain's ratio is %d/%d, the spec's %d/%d", n, d, num, den)
 		}
-		if _, err := fractionalPlan(c.Plan, num, den, spec.Direction()); err != nil {
+		if _, _, err := fractionalPlan(c.Plan, num, den, spec.Direction()); err != nil {
 			return err
 		}
 		if len(c.Plan) != len(c.Stages) {

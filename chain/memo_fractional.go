@@ -32,8 +32,11 @@ func (m *StageMemo) fractional(ctx context.Context, design bool, p StagePlan, r 
 	u(uint64(p.Kind))
 	u(uint64(p.Up))
 	u(uint64(p.Down))
-	for _, v := range []float64{r.InputRate, r.OutputRate, r.Passband, r.Keep, r.Stop, r.Dp, r.Ds, r.RippleDB} {
+	for _, v := range []float64{r.InputRate, r.OutputRate, r.Passband, r.Keep, r.Stop, r.Dp, r.Ds, r.RippleDB, r.DroopRate, r.Hold, r.GapLimit} {
 		f(v)
+	}
+	for _, v := range []int{r.Droop.N, r.Droop.M, r.Droop.R} {
+		u(uint64(v))
 	}
 	key := string(appendSettingsKey(b, s))
 	m.mu.Lock()

@@ -5,6 +5,7 @@ import (
 	"errors"
 	"fmt"
 	"math"
+	"slices"
 
 	"github.com/stepdown-dsp/stepdown/chain/farrow"
 	"github.com/stepdown-dsp/stepdown/chain/remez"
@@ -107,6 +108,46 @@ type FractionalRequirement struct {
 	Dp, Ds float64
 	// RippleDB is the stage's share of the ripple budget.
 	RippleDB float64
+	// Droop, when its R is above zero, is the CIC just before the stage
+	// (a polyphase stage placed after the chain's CIC), at DroopRate, its
+	// input rate: the stage compensates it, its passband being
+	// 1/|H_cic(f)| within Dp (|P H_cic - 1| <= Dp on [0, fp]), continued
+	// flat at 1/|H_cic(fp)| within Dp up to Hold, the protected band's
+	// edge fa: the CIC's own aliases land in (fp, fa], and a compensator
+	// left free there would lift them (by several dB where its
+	// transition overshoots).
+	Droop     CICStage
+	DroopRate float64
+	Hold      float64
+	// GapLimit, when above zero, holds the prototype's gain over the last
+	// three quarters of its transition to at most GapLimit (as
+	// Requirement.GapLimit does a multiband FIR's): stages after it
+	// reject what lands there, and a wide transition left free can rise
+	// tens of dB.
+	GapLimit float64
+}
+
+// passband returns the stage's passband as a remez band: unit gain within
+// Dp, or, when it compensates a CIC (Droop), 1/|H_cic(min(f, fp))| within
+// Dp up to max(fp, Hold).
+func (r FractionalRequirement) passband() remez.Band {
+	if r.Droop.R == 0 {
+		return remez.Band{Lo: 0, Hi: r.Passband, Gain: 1, MaxError: r.Dp, Weight: 1 / r.Dp}
+	}
+	cic, rate, dp, fp := r.Droop, r.DroopRate, r.Dp, r.Passband
+	droop := func(f float64) float64 { return cic.Gain(math.Min(f, fp), rate) }
+	return remez.Band{Lo: 0, Hi: math.Max(fp, r.Hold), MaxError: 1,
+		GainFunc:   func(f float64) float64 { return 1 / droop(f) },
+		WeightFunc: func(f float64) float64 { return droop(f) / dp }}
+}
+
+// passbandEdge is where the stage's passband band ends: fp, or Hold when
+// it compensates a CIC and Hold is above fp.
+func (r FractionalRequirement) passbandEdge() float64 {
+	if r.Droop.R == 0 {
+		return r.Passband
+	}
+	return math.Max(r.Passband, r.Hold)
 }
 
 // stageRatio returns a stage's output rate over its input rate as up/down.
@@ -125,53 +166,91 @@ func stageRatio(s Stage) (up, down int) {
 }
 
 // fractionalPlan checks that plan (decimation order) suits the fractional
-// ratio num/den: its integer stages first, then one fractional stage whose
-// Up/Down makes up the ratio. It returns the integer stages' D. Its
-// messages speak in signal order for direction dir: an interpolation
-// chain begins with the fractional stage, which changes the rate by
-// Down/Up there.
-func fractionalPlan(plan []StagePlan, num, den int, dir Direction) (int, error) {
+// ratio num/den and returns the integer stages' D and the fractional
+// stage's place f. The fractional stage either ends the chain (integer
+// stages of any kind before it) or comes just after a leading CIC
+// (package documentation, Fractional stages): a polyphase stage, followed
+// by FIR and half-band stages only, whose decimation Db shares no factor
+// with its L (else two of its paths would land together at every
+// frequency). Its messages speak in signal order for direction dir: an
+// interpolation chain begins (or, after the CIC, ends just before it)
+// with the fractional stage, which changes the rate by Down/Up there.
+func fractionalPlan(plan []StagePlan, num, den int, dir Direction) (d, f int, err error) {
 	if len(plan) == 0 {
-		return 0, errors.New("chain: empty plan")
+		return 0, 0, errors.New("chain: empty plan")
 	}
 	end, lm := "end", func(up, down int) (int, int) { return up, down }
+	// Stages later in decimation order come later in signal order for a
+	// decimation chain, earlier for an interpolation one.
+	later := "after"
 	if dir == Interpolate {
 		end, lm = "begin", func(up, down int) (int, int) { return down, up }
+		later = "before"
 	}
-	last := plan[len(plan)-1]
-	if !last.Kind.Fractional() {
-		return 0, planErr(plan, len(plan)-1, "the ratio %d/%d is a fraction: the chain must %s with a fractional stage (polyphase or farrow)", num, den, end)
+	f = planFracIndex(plan)
+	if f < 0 {
+		return 0, 0, planErr(plan, len(plan)-1, "the ratio %d/%d is a fraction: the chain must %s with a fractional stage (polyphase or farrow), or have a polyphase stage just %s its CIC", num, den, end, later)
 	}
-	d := 1
-	for i, p := range plan[:len(plan)-1] {
+	mid := f < len(plan)-1
+	if mid && (f != 1 || plan[0].Kind != CIC || plan[f].Kind != Polyphase) {
+		return 0, 0, planErr(plan, f, "a fractional stage may only %s the chain, or be a polyphase stage just %s a CIC that %ss it", end, later, end)
+	}
+	d = 1
+	for i, p := range plan {
+		if i == f {
+			continue
+		}
 		if p.Kind.Fractional() {
-			return 0, planErr(plan, i, "a fractional stage may only %s the chain", end)
+			return 0, 0, planErr(plan, i, "a chain has one fractional stage")
+		}
+		if i > f && p.Kind == CIC {
+			return 0, 0, planErr(plan, i, "no CIC may come %s the fractional stage", later)
 		}
 		if p.Factor < 2 {
-			return 0, planErr(plan, i, "factor %d: must be at least 2", p.Factor)
+			return 0, 0, planErr(plan, i, "factor %d: must be at least 2", p.Factor)
 		}
 		if d > math.MaxInt32/p.Factor {
-			return 0, planErr(plan, i, "the factors' product is beyond %d", math.MaxInt32)
+			return 0, 0, planErr(plan, i, "the factors' product is beyond %d", math.MaxInt32)
 		}
 		d *= p.Factor
 	}
-	l, m := lm(last.Up, last.Down)
-	if last.Up < 1 || last.Down < 1 || last.Up > MaxFractionDen || last.Down > math.MaxInt32/max(1, d) {
-		return 0, planErr(plan, len(plan)-1, "rate change %d/%d: out of range", l, m)
+	fs := plan[f]
+	l, m := lm(fs.Up, fs.Down)
+	if fs.Up < 1 || fs.Down < 1 || fs.Up > MaxFractionDen || fs.Down > math.MaxInt32/max(1, d) {
+		return 0, 0, planErr(plan, f, "rate change %d/%d: out of range", l, m)
 	}
 	// The chain's ratio d Down/Up must be num/den.
-	if int64(d)*int64(last.Down)*int64(den) != int64(num)*int64(last.Up) {
+	if int64(d)*int64(fs.Down)*int64(den) != int64(num)*int64(fs.Up) {
 		g := gcd(d*den, num)
 		nl, nm := lm(d*den/g, num/g)
 		if d == 1 {
-			return 0, planErr(plan, len(plan)-1, "rate change %d/%d: the ratio %d/%d needs %d/%d", l, m, num, den, nl, nm)
+			return 0, 0, planErr(plan, f, "rate change %d/%d: the ratio %d/%d needs %d/%d", l, m, num, den, nl, nm)
 		}
-		return 0, planErr(plan, len(plan)-1, "rate change %d/%d: with the integer stages' %d the ratio %d/%d needs %d/%d", l, m, d, num, den, nl, nm)
+		return 0, 0, planErr(plan, f, "rate change %d/%d: with the integer stages' %d the ratio %d/%d needs %d/%d", l, m, d, num, den, nl, nm)
 	}
-	if gcd(last.Up, last.Down) != 1 {
-		return 0, planErr(plan, len(plan)-1, "rate change %d/%d: write it in lowest terms", l, m)
+	if gcd(fs.Up, fs.Down) != 1 {
+		return 0, 0, planErr(plan, f, "rate change %d/%d: write it in lowest terms", l, m)
 	}
-	return d, nil
+	if mid {
+		db := d / plan[0].Factor
+		if g := gcd(db, fs.Up); g != 1 {
+			return 0, 0, planErr(plan, f, "rate change %d/%d: the stages %s it change the rate by %d, which shares the factor %d with its %d phases (their paths would land together): write the ratio with other stages", l, m, later, db, g, fs.Up)
+		}
+	}
+	return d, f, nil
+}
+
+// planFracIndex returns the place of plan's first fractional stage, or -1.
+func planFracIndex(plan []StagePlan) int {
+	return slices.IndexFunc(plan, func(p StagePlan) bool { return p.Kind.Fractional() })
+}
+
+// fracIndex returns the place of c's first fractional stage, or -1.
+func fracIndex(c *Chain) int {
+	if c == nil {
+		return -1
+	}
+	return slices.IndexFunc(c.Stages, func(s Stage) bool { return s.Kind().Fractional() })
 }
 
 // IntegerSpec returns the spec the integer stages of a fractional chain
@@ -224,12 +303,15 @@ const FractionalRippleShare = 0.5
 
 func buildFractional(ctx context.Context, spec Spec, plan []StagePlan, s Settings, design bool) (*Chain, error) {
 	num, den := spec.Fraction()
-	d, err := fractionalPlan(plan, num, den, spec.Direction())
+	d, f, err := fractionalPlan(plan, num, den, spec.Direction())
 	if err != nil {
 		return nil, err
 	}
 	if spec.NoiseShaped {
 		return nil, errors.New("chain: a noise-shaped input is planned for integer ratios only")
+	}
+	if f < len(plan)-1 {
+		return buildAfterCIC(ctx, spec, plan, d, s, design)
 	}
 	// The chain's own output rate is the fraction's: within the ratio
 	// tolerance of the spec's.
@@ -300,6 +382,107 @@ func buildFractional(ctx context.Context, spec Spec, plan []StagePlan, s Setting
 	return c, nil
 }
 
+// buildAfterCIC builds a chain whose polyphase stage comes just after its
+// leading CIC (package documentation, Fractional stages): the CIC
+// decimates by R to F1, the polyphase stage changes the rate by L/M to F2
+// and the FIR and half-band stages after it decimate by Db to FK. The CIC
+// is the plan's; the polyphase stage compensates its droop and is a
+// lowpass from F2 - fa (what lands in [0, fa] at F2; the stages after it
+// hold the rest) with half the ripple budget and the rejection raised by
+// the other half; the stages after it are an integer chain from F2 to FK
+// on the spec's bands with the other half of the ripple, their rejection
+// raised by the polyphase stage's ripple.
+func buildAfterCIC(ctx context.Context, spec Spec, plan []StagePlan, d int, s Settings, design bool) (*Chain, error) {
+	cp, pp := plan[0], plan[1]
+	f1 := spec.InputRate / float64(cp.Factor)
+	f2 := f1 * float64(pp.Up) / float64(pp.Down)
+	fk := f2 / float64(d/cp.Factor)
+	spec.OutputRate = fk
+	fa := spec.Protected
+	stop := f2 - fa
+	if !(stop > spec.Passband) || fa >= f1/2 {
+		return nil, planErr(plan, 1, "its output rate %s Hz leaves no band for it: it needs output rate - fa = %s Hz above fp = %s Hz and fa below half its input rate %s Hz",
+			fmtNum(f2), fmtNum(stop), fmtNum(spec.Passband), fmtNum(f1))
+	}
+	c := &Chain{InputRate: spec.InputRate, Complex: spec.Complex, Direction: spec.Direction(),
+		Plan: append([]StagePlan(nil), plan...), Designed: design}
+	// The CIC takes the input word; an interpolation chain's comes last
+	// in signal order and takes the words between stages.
+	bits := spec.InputBits
+	if c.Direction == Interpolate {
+		bits = spec.OutputBits
+	}
+	cs, err := newCIC(c.Direction, cp, bits, spec.OutputBits)
+	if err != nil {
+		return nil, planErr(plan, 0, "%v", err)
+	}
+	fracRipple := spec.RippleDB * FractionalRippleShare
+	tailRipple := spec.RippleDB - fracRipple
+	req := FractionalRequirement{InputRate: f1, OutputRate: f2, Passband: spec.Passband, Stop: stop,
+		RippleDB: fracRipple, Dp: RippleToDev(fracRipple),
+		Ds:    RejectionToDev(spec.RejectionDB + tailRipple + coincidentDB(spec.Complex)),
+		Droop: cs, DroopRate: spec.InputRate, Hold: fa, GapLimit: 1}
+	if err := ctx.Err(); err != nil {
+		return nil, stopped(plan, err)
+	}
+	st, err := s.Memo.fractional(ctx, design, pp, req, s, func() (Stage, error) {
+		return polyphaseStage(ctx, pp, req, s, design)
+	})
+	if err != nil {
+		if cerr := ctx.Err(); cerr != nil {
+			return nil, stopped(plan, cerr)
+		}
+		return nil, planErr(plan, 1, "%v", err)
+	}
+	tail := tailSpec(spec, f2, fracRipple)
+	if p, ok := st.(PolyphaseStage); ok && p.Taps != nil {
+		// What lands in the stages' stopbands after it passes the CIC
+		// and the prototype's transition, which may rise above its
+		// passband: their rejection is raised by that excess, found on
+		// a grid (a design choice; Analyze measures the truth).
+		tail = tail.RejectionRaised(transitionExcessDB(p, cs, spec.InputRate, fa, stop))
+	}
+	tc, err := build(ctx, tail, plan[2:], s, design)
+	if err != nil {
+		var pe *PlanError
+		if errors.As(err, &pe) && pe.Stage >= 0 {
+			return nil, planErr(plan, pe.Stage+2, "%s", pe.Rule)
+		}
+		return nil, err
+	}
+	c.Stages = append([]Stage{cs, st}, tc.Stages...)
+	return c, nil
+}
+
+// transitionExcessDB returns by how many dB the CIC cs (at rate, its
+// input rate) times the polyphase stage p rises above 1 over its
+// transition [lo, hi], on a grid of 1024 points; 0 when it does not.
+func transitionExcessDB(p PolyphaseStage, cs CICStage, rate, lo, hi float64) float64 {
+	peak := 1.0
+	const n = 1024
+	for i := 0; i <= n; i++ {
+		f := lo + (hi-lo)*float64(i)/n
+		peak = math.Max(peak, cs.Gain(f, rate)*p.Gain(f, p.Req.InputRate))
+	}
+	return 20 * math.Log10(peak)
+}
+
+// tailSpec is the spec the stages after a polyphase stage placed after
+// the CIC are planned against (buildAfterCIC): from the polyphase stage's
+// output rate f2 to the chain's, the ripple budget less the polyphase
+// stage's share fracRipple, the rejection raised by that share and, for a
+// real chain, by coincidentDB. spec is
+// the fractional spec, normalised, its OutputRate the chain's.
+func tailSpec(spec Spec, f2, fracRipple float64) Spec {
+	tail := spec
+	tail.InputRate, tail.RatioTolerancePPM = f2, 0
+	tail.RippleDB = spec.RippleDB - fracRipple
+	// A real tone's two paths through the polyphase stage can land on
+	// one output frequency through these stages' stopbands and add
+	// (coincidentPaths): a real chain's are held 6 dB lower.
+	return tail.RejectionRaised(fracRipple + coincidentDB(spec.Complex))
+}
+
 // PolyphaseBands returns the prototype's stopbands on its own axis, at Up
 // times the stage's input rate Fm (package documentation, Fractional
 // stages): after a lowpass (Keep above zero) [k Fm - Keep, k Fm + Keep]
@@ -343,7 +526,7 @@ func polyphaseStage(ctx context.Context, p StagePlan, r FractionalRequirement, s
 		// MaxTaps bounds the taps of one phase: the multiplies of an output.
 		maxTaps = min(65535, s.MaxTaps*p.Up)
 	}
-	n := remez.HerrmannLength(r.Dp, r.Ds, stops[0].Lo-r.Passband, rate)
+	n := remez.HerrmannLength(r.Dp, r.Ds, stops[0].Lo-r.passbandEdge(), rate)
 	if n == 0 {
 		return st, errors.New("no length estimate for its bands")
 	}
@@ -356,7 +539,10 @@ func polyphaseStage(ctx context.Context, p StagePlan, r FractionalRequirement, s
 	}
 	// As Requirement.Bands states a stage's bands: met when
 	// |A - D| <= MaxError on each.
-	bands := []remez.Band{{Lo: 0, Hi: r.Passband, Gain: 1, MaxError: r.Dp, Weight: 1 / r.Dp}}
+	bands := []remez.Band{r.passband()}
+	if lo, hi := r.passbandEdge()+(stops[0].Lo-r.passbandEdge())/4, stops[0].Lo; r.GapLimit > 0 && hi-lo > 1e-6*rate {
+		bands = append(bands, remez.Band{Lo: lo, Hi: hi, MaxError: r.GapLimit, Weight: 1 / r.GapLimit})
+	}
 	for _, b := range stops {
 		bands = append(bands, remez.Band{Lo: b.Lo, Hi: b.Hi, Gain: 0, MaxError: r.Ds, Weight: 1 / r.Ds})
 	}

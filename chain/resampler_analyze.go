@@ -47,10 +47,12 @@ func (p fractionalPath) bounds(a, b float64, coarse bool) (lo, up float64) {
 	return lo * l2, up * u2
 }
 
-// fractionalParts splits a fractional chain into its integer stages (a
-// chain of their own) and the fractional stage's gain, its bounder, the
-// shifts of its paths, k Fm for k = 0 .. Up-1 (a Farrow stage through its
-// sampled prototype, FarrowPrototype).
+// fractionalParts splits a fractional chain into the integer stages
+// before its fractional stage (a chain of their own) and the gain of the
+// rest: the fractional stage's and, after it, the integer stages' (whose
+// gain at a path's frequency h is their cascade's, periodic at their input
+// rate F2), its bounder, the shifts of its paths, k Fm for k = 0 .. Up-1
+// (a Farrow stage through its sampled prototype, FarrowPrototype).
 type fractionalParts struct {
 	ic       *Chain
 	rg       func(h float64) float64
@@ -58,50 +60,81 @@ type fractionalParts struct {
 	shifts   []float64
 	fm       float64
 	up, down int // the fractional stage's L and M
+	db       int // the decimation of the stages after it
+}
+
+// tailBounder bounds the product of a fractional stage's gain and the
+// cascade of the stages after it, both on the path's axis h.
+type tailBounder struct {
+	frac stageBounder
+	tail *cascade
+}
+
+func (t tailBounder) bounds(a, b float64) (lo, up float64) {
+	l1, u1 := t.frac.bounds(a, b)
+	l2, u2 := t.tail.bounds(a, b, false)
+	return l1 * l2, u1 * u2
+}
+
+func (t tailBounder) coarse(a, b float64) (lo, up float64) {
+	l1, u1 := t.frac.coarse(a, b)
+	l2, u2 := t.tail.bounds(a, b, true)
+	return l1 * l2, u1 * u2
+}
+
+func (t tailBounder) upper(a, b float64) float64 {
+	_, u := t.tail.bounds(a, b, false)
+	return t.frac.upper(a, b) * u
 }
 
 func splitFractional(c *Chain) (fractionalParts, error) {
-	n := len(c.Stages)
+	f := fracIndex(c)
+	if f < 0 {
+		return fractionalParts{}, errors.New("chain: the chain has no fractional stage")
+	}
 	rates := c.Rates()
-	fm := rates[n-1]
-	up, down := stageRatio(c.Stages[n-1])
-	p := fractionalParts{fm: fm, up: up, down: down,
-		ic: &Chain{InputRate: c.InputRate, Complex: c.Complex, Plan: c.Plan[:n-1], Stages: c.Stages[:n-1], Designed: c.Designed}}
-	switch st := c.Stages[n-1].(type) {
+	fm := rates[f]
+	up, down := stageRatio(c.Stages[f])
+	p := fractionalParts{fm: fm, up: up, down: down, db: 1,
+		ic: &Chain{InputRate: c.InputRate, Complex: c.Complex, Plan: c.Plan[:min(f, len(c.Plan))], Stages: c.Stages[:f], Designed: c.Designed}}
+	var taps []float64
+	switch st := c.Stages[f].(type) {
 	case PolyphaseStage:
-		rate := fm * float64(st.Up)
-		b, err := newFIRBounder(st.Taps, rate)
-		if err != nil {
-			return p, err
-		}
-		p.rg = func(h float64) float64 { return st.Gain(h, fm) }
-		p.rb = b
-		for k := 0; k < st.Up; k++ {
-			p.shifts = append(p.shifts, float64(k)*fm)
-		}
-		return p, nil
+		taps = st.Taps
 	case FarrowStage:
 		// At its output times m Down/Up the structure is exactly the
 		// polyphase Up/Down stage whose prototype is h sampled at 1/Up
 		// (FarrowPrototype): its paths k and k + Up land together at
 		// every input frequency and add, so it is analysed as that.
-		taps, err := FarrowPrototype(st)
-		if err != nil {
+		var err error
+		if taps, err = FarrowPrototype(st); err != nil {
 			return p, err
 		}
-		rate := fm * float64(st.Up)
-		b, err := newFIRBounder(taps, rate)
-		if err != nil {
-			return p, err
-		}
-		p.rg = func(h float64) float64 { return remez.Magnitude(taps, h, rate) }
-		p.rb = b
-		for k := 0; k < st.Up; k++ {
-			p.shifts = append(p.shifts, float64(k)*fm)
-		}
-		return p, nil
+	default:
+		return p, fmt.Errorf("chain: stage %d is a %T: not a fractional stage Analyze knows", f+1, c.Stages[f])
 	}
-	return p, fmt.Errorf("chain: stage %d is a %T: not a fractional stage Analyze knows", n, c.Stages[n-1])
+	rate := fm * float64(up)
+	b, err := newFIRBounder(taps, rate)
+	if err != nil {
+		return p, err
+	}
+	p.rg = func(h float64) float64 { return remez.Magnitude(taps, h, rate) }
+	p.rb = b
+	if f < len(c.Stages)-1 {
+		tc := &Chain{InputRate: rates[f+1], Complex: c.Complex, Stages: c.Stages[f+1:], Designed: c.Designed}
+		tail, err := newCascade(tc)
+		if err != nil {
+			return p, err
+		}
+		p.db = tc.Decimation()
+		rg := p.rg
+		p.rg = func(h float64) float64 { return rg(h) * tail.gain(h) }
+		p.rb = tailBounder{frac: b, tail: tail}
+	}
+	for k := 0; k < up; k++ {
+		p.shifts = append(p.shifts, float64(k)*fm)
+	}
+	return p, nil
 }
 
 func measureFractional(ctx context.Context, c *Chain, spec Spec) (Analysis, error) {
@@ -233,7 +266,7 @@ const maxCoincidentWork = 1 << 24
 // maxCoincidentWork it returns errTooManyCoincidences without visiting
 // them, and the caller takes the safe side: twice the worst single path.
 func coincidentPaths(ctx context.Context, p fractionalParts, cs *cascade, fk, fa, f0h float64, weight func(float64) float64) (w, at float64, worstK int, err error) {
-	step := p.fm / float64(2*p.down)
+	step := p.fm / float64(2*p.down*p.db)
 	npts := int(math.Floor(f0h/step)) + 1
 	if float64(npts)*float64(p.up) > maxCoincidentWork {
 		return 0, 0, 0, errTooManyCoincidences
@@ -298,6 +331,9 @@ func coincidentPaths(ctx context.Context, p fractionalParts, cs *cascade, fk, fa
 // fractional stage's requirement, each met by design.
 func estimateFractional(c *Chain, spec Spec) (Analysis, error) {
 	n := len(c.Stages)
+	if f := fracIndex(c); f >= 0 && f < n-1 {
+		return estimateAfterCIC(c, spec, f)
+	}
 	var req FractionalRequirement
 	switch st := c.Stages[n-1].(type) {
 	case PolyphaseStage:
@@ -326,6 +362,41 @@ func estimateFractional(c *Chain, spec Spec) (Analysis, error) {
 	return a, nil
 }
 
+// estimateAfterCIC is estimateFractional of a chain whose polyphase
+// stage, at place f, comes after its CIC (buildAfterCIC): the CIC's
+// aliases into [0, fa] at its output rate, computed exactly, the
+// polyphase stage's requirement, met by design, and the stages after it
+// against their own spec (tailSpec), each lifted by the others' ripple
+// shares. The CIC's droop is the polyphase stage's to compensate.
+func estimateAfterCIC(c *Chain, spec Spec, f int) (Analysis, error) {
+	pp, ok := c.Stages[f].(PolyphaseStage)
+	if !ok || f != 1 {
+		return Analysis{}, fmt.Errorf("chain: stage %d is a %T after the CIC: only a polyphase stage is planned there", f+1, c.Stages[f])
+	}
+	req := pp.Req
+	rates := c.Rates()
+	tail := tailSpec(spec, rates[f+1], req.RippleDB)
+	tc := &Chain{InputRate: rates[f+1], Complex: c.Complex, Plan: c.Plan[f+1:], Stages: c.Stages[f+1:]}
+	ta, err := estimateAnalysis(tc, tail)
+	if err != nil {
+		return Analysis{}, err
+	}
+	a := Analysis{AliasRejectionDB: spec.RejectionDB, WorstAliasHz: req.OutputRate - spec.Protected,
+		PassbandRippleDB: req.RippleDB + ta.PassbandRippleDB}
+	if r := ta.AliasRejectionDB - req.RippleDB; r < a.AliasRejectionDB {
+		a.AliasRejectionDB, a.WorstAliasHz = r, ta.WorstAliasHz
+	}
+	cic := IntegerSpec(spec, c.Stages[0].Factor(), spec.RippleDB, 0, false)
+	ca, err := estimateAnalysis(&Chain{InputRate: c.InputRate, Complex: c.Complex, Plan: c.Plan[:1], Stages: c.Stages[:1]}, cic)
+	if err != nil {
+		return Analysis{}, err
+	}
+	if r := ca.AliasRejectionDB - spec.RippleDB; r < a.AliasRejectionDB {
+		a.AliasRejectionDB, a.WorstAliasHz = r, ca.WorstAliasHz
+	}
+	return a, nil
+}
+
 // PathGain is one path of a tone through a fractional chain: K, the
 // image index, and the path's gain and output frequency.
 type PathGain struct {
@@ -350,8 +421,7 @@ func PathGains(c *Chain, g float64, maxK int) []PathGain {
 		}
 		return math.Min(f, fk-f)
 	}
-	n := len(c.Stages)
-	if !c.Stages[n-1].Kind().Fractional() {
+	if fracIndex(c) < 0 {
 		return []PathGain{{K: 0, OutputHz: fold(g), Gain: c.Gain(g)}}
 	}
 	p, err := splitFractional(c)

@@ -5,6 +5,7 @@ import (
 	"math"
 	"math/rand/v2"
 	"os"
+	"slices"
 	"testing"
 )
 
@@ -115,15 +116,20 @@ func randomFractional(rng interface {
 // landing band. It returns the worst gain over the gain at 0 Hz.
 func bruteFractional(c *Chain, spec Spec) (worst, at float64) {
 	n := len(c.Stages)
-	ic := &Chain{InputRate: c.InputRate, Stages: c.Stages[:n-1]}
+	f := slices.IndexFunc(c.Stages, func(s Stage) bool { return s.Kind().Fractional() })
+	ic := &Chain{InputRate: c.InputRate, Stages: c.Stages[:f]}
 	rates := c.Rates()
-	fm, fk := rates[n-1], rates[n]
+	fm, fk := rates[f], rates[n]
+	// The stages after the fractional stage (a polyphase stage after the
+	// CIC): their gain at a path's frequency h, periodic at their input
+	// rate.
+	tail := &Chain{InputRate: rates[f+1], Stages: c.Stages[f+1:]}
 	fa := spec.Protected
-	var proto func(h float64) float64
+	var proto0 func(h float64) float64
 	var ks []int
-	switch st := c.Stages[n-1].(type) {
+	switch st := c.Stages[f].(type) {
 	case PolyphaseStage:
-		proto = func(h float64) float64 { // |sum_j p_j e^{-i 2 pi h j / (L Fm)}|
+		proto0 = func(h float64) float64 { // |sum_j p_j e^{-i 2 pi h j / (L Fm)}|
 			var re, im float64
 			w := 2 * math.Pi * h / (float64(st.Up) * fm)
 			for j, v := range st.Taps {
@@ -146,7 +152,7 @@ func bruteFractional(c *Chain, spec Spec) (worst, at float64) {
 		for j := range taps {
 			taps[j] = st.Filter.Impulse(float64(j-st.Up*n/2)/float64(st.Up)) / float64(st.Up)
 		}
-		proto = func(h float64) float64 {
+		proto0 = func(h float64) float64 {
 			var re, im float64
 			w := 2 * math.Pi * h / (float64(st.Up) * fm)
 			for j, v := range taps {
@@ -159,6 +165,7 @@ func bruteFractional(c *Chain, spec Spec) (worst, at float64) {
 			ks = append(ks, k)
 		}
 	}
+	proto := func(h float64) float64 { return proto0(h) * tail.Gain(h) }
 	h0 := ic.Gain(0) * proto(0)
 	fold := func(f float64) float64 {
 		f = math.Mod(f, fk)
@@ -173,9 +180,31 @@ func bruteFractional(c *Chain, spec Spec) (worst, at float64) {
 		sh := float64(k) * fm
 		path := func(g float64) float64 { return ic.Gain(g) * proto(g+sh) }
 		unwanted := func(g float64) bool { return fold(g+sh) <= fa && !(k == 0 && g <= fa) }
+		prev := false
 		for i := 0; float64(i)*step <= half; i++ {
 			g := float64(i) * step
-			if !unwanted(g) {
+			in := unwanted(g)
+			if in != prev && i > 0 {
+				// A landing band's edge between two grid points, found by
+				// bisection and evaluated: the gain can be steep there.
+				a, b := g-step, g
+				for it := 0; it < 60; it++ {
+					if m := a + (b-a)/2; unwanted(m) == in {
+						b = m
+					} else {
+						a = m
+					}
+				}
+				e := b
+				if !in {
+					e = a
+				}
+				if v := path(e); v > worst {
+					worst, at = v, e
+				}
+			}
+			prev = in
+			if !in {
 				continue
 			}
 			v := path(g)
@@ -218,11 +247,13 @@ func bruteFractional(c *Chain, spec Spec) (worst, at float64) {
 	}
 	if !c.Complex {
 		// A real tone's paths that land on one output frequency add:
-		// only at multiples g of Fm / (2 M) can two meet. Their complex
+		// 2 g = n FK - (k1 + k2) Fm with FK = Fm L / (M Db), L coprime
+		// with M Db (Db the stages after the fractional stage), so only
+		// at multiples g of Fm / (2 M Db) can two meet. Their complex
 		// responses are summed here by magnitude, grouped by where they
 		// land, from the direct sums above.
-		up, down := stageRatio(c.Stages[n-1])
-		step := fm / float64(2*down)
+		up, down := stageRatio(c.Stages[f])
+		step := fm / float64(2*down*tail.Decimation())
 		for j := 0; float64(j)*step <= half; j++ {
 			g := float64(j) * step
 			land := map[int64]float64{}
@@ -244,6 +275,59 @@ func bruteFractional(c *Chain, spec Spec) (worst, at float64) {
 		}
 	}
 	return worst / h0, at
+}
+
+// randomAfterCIC returns a seeded invented spec and plan whose polyphase
+// stage comes just after a CIC, with one or two FIR stages after it whose
+// decimation shares no factor with its L.
+func randomAfterCIC(rng interface {
+	IntN(int) int
+	Float64() float64
+}) (Spec, []StagePlan) {
+	for {
+		r := 2 + rng.IntN(7)
+		up := 2 + rng.IntN(23)
+		down := up/2 + 1 + rng.IntN(2*up)
+		db := 2 + rng.IntN(5)
+		if gcd(up, down) != 1 || down == up || gcd(db, up) != 1 {
+			continue
+		}
+		num, den := r*down*db, up
+		if g := gcd(num, den); g != 1 {
+			num, den = num/g, den/g
+		}
+		f1 := 1 / float64(r)
+		f2 := f1 * float64(up) / float64(down)
+		fk := f2 / float64(db)
+		fp := fk * (0.05 + 0.3*rng.Float64())
+		fa := fp + (fk/2-fp)*0.5*rng.Float64()
+		spec := Spec{InputRate: 1, OutputRate: float64(den) / float64(num), Passband: fp, Protected: fa,
+			RippleDB: 0.1 + rng.Float64(), RejectionDB: 40 + 40*rng.Float64(), Complex: rng.IntN(2) == 0}
+		if _, err := spec.Normalize(); err != nil {
+			continue
+		}
+		if p, q := spec.Fraction(); p != num || q != den {
+			continue
+		}
+		plan := []StagePlan{{Kind: CIC, Factor: r, CICOrder: 3 + rng.IntN(3), CICDelay: 1}, {Kind: Polyphase, Factor: 1, Up: up, Down: down}}
+		if db == 4 && rng.IntN(2) == 0 {
+			plan = append(plan, StagePlan{Kind: HalfBand, Factor: 2}, StagePlan{Kind: FIR, Factor: 2})
+		} else {
+			plan = append(plan, StagePlan{Kind: FIR, Factor: db})
+		}
+		return spec, plan
+	}
+}
+
+// TestAfterCICAnalyzeBruteForce holds Analyze of chains whose polyphase
+// stage follows the CIC to bruteFractional, as
+// TestFractionalAnalyzeBruteForce does for chains that end in it.
+func TestAfterCICAnalyzeBruteForce(t *testing.T) {
+	n := 12
+	if os.Getenv("STEPDOWN_LONG") != "" {
+		n = 150
+	}
+	checkAgainstBrute(t, rand.New(rand.NewPCG(14, 9)), randomAfterCIC, n, 400)
 }
 
 // TestFractionalAnalyzeBruteForce holds Analyze of chains ending in a
@@ -358,7 +442,7 @@ func TestFarrowAnalyzeBruteForce(t *testing.T) {
 func TestFractionalTones(t *testing.T) {
 	rng := rand.New(rand.NewPCG(14, 4))
 	checked := 0
-	for _, g := range []randomGen{randomFractional, randomFarrow} {
+	for _, g := range []randomGen{randomFractional, randomFarrow, randomAfterCIC} {
 		for n, trial := 0, 0; n < 3 && trial < 40; trial++ {
 			spec, plan := g(rng)
 			c, err := Design(spec, plan, Settings{MaxTaps: 600})
@@ -439,7 +523,7 @@ func TestFractionalTones(t *testing.T) {
 func TestFractionalInterpolationTones(t *testing.T) {
 	rng := rand.New(rand.NewPCG(14, 5))
 	checked := 0
-	for _, g := range []randomGen{randomFractional, randomFarrow} {
+	for _, g := range []randomGen{randomFractional, randomFarrow, randomAfterCIC} {
 		for n, trial := 0, 0; n < 3 && trial < 40; trial++ {
 			down, plan := g(rng)
 			up := down
@@ -557,8 +641,15 @@ func toneAmplitude(y []float64, nu float64) float64 {
 func TestFractionalDCSpurs(t *testing.T) {
 	rng := rand.New(rand.NewPCG(14, 7))
 	checked, doubled := 0, 0
-	for trial := 0; checked < 8 && trial < 60; trial++ {
-		spec, plan := randomFractional(rng)
+	for trial := 0; checked < 12 && trial < 90; trial++ {
+		// Chains that end in a polyphase stage, and a third whose
+		// polyphase stage follows the CIC.
+		gen := randomFractional
+		if checked%3 == 2 {
+			gen = randomAfterCIC
+		}
+		spec, plan := gen(rng)
+		spec.Complex = false
 		c, err := Design(spec, plan, Settings{MaxTaps: 600})
 		if err != nil {
 			continue
@@ -567,7 +658,7 @@ func TestFractionalDCSpurs(t *testing.T) {
 		if err != nil {
 			t.Fatal(err)
 		}
-		up, _ := stageRatio(c.Stages[len(c.Stages)-1])
+		up, _ := stageRatio(c.Stages[slices.IndexFunc(c.Stages, func(s Stage) bool { return s.Kind().Fractional() })])
 		p0, q0 := c.Fraction()
 		periods := 64
 		skip := 4096

@@ -14,6 +14,11 @@ import (
 // bit-true run are planned for a decimation chain's fractional stage only.
 var ErrFractional = errors.New("fixed: word lengths are planned for a fractional stage (polyphase or farrow) in a decimation chain only; an interpolation chain's has its float design alone")
 
+// ErrFractionalAfterCIC is FromChain's error for a chain whose polyphase
+// stage follows its CIC (not the last stage): its word lengths are not
+// planned; the chain keeps its float design.
+var ErrFractionalAfterCIC = errors.New("fixed: word lengths are planned for a fractional stage that ends the chain; a polyphase stage after the CIC has its float design alone")
+
 // FromChain converts a designed chain and its spec into the planner's terms.
 // Each FIR and half-band stage must meet the bands of its chain.Requirement:
 // the passband [0, Req.Passband] within Req.Dp (relative to the CIC droop it
@@ -43,6 +48,11 @@ func FromChain(spec chain.Spec, c *chain.Chain) (Cascade, Words, error) {
 	interp := c.Direction == chain.Interpolate
 	if last := c.Stages[len(c.Stages)-1].Kind(); last.Fractional() && interp {
 		return Cascade{}, Words{}, ErrFractional
+	}
+	for _, s := range c.Stages[:len(c.Stages)-1] {
+		if s.Kind().Fractional() {
+			return Cascade{}, Words{}, ErrFractionalAfterCIC
+		}
 	}
 	cas := Cascade{InputRate: c.InputRate, Complex: c.Complex, Interpolate: interp, Passband: spec.Passband, Protected: spec.Protected}
 	if interp {

@@ -5,6 +5,7 @@ import (
 	"math"
 	"math/cmplx"
 	"runtime"
+	"slices"
 	"sync"
 
 	"github.com/stepdown-dsp/stepdown/chain"
@@ -34,22 +35,34 @@ const fractionalWork = 2e8
 
 // fractionalParts is a fractional chain split for the figure: its integer
 // stages, the fractional stage, its input rate Fm and the output rate FK.
+//
+// A polyphase stage placed after the CIC has stages after it too (tail):
+// a path k's gain is then also theirs at g + k Fm (periodic at their input
+// rate), as chain.PathGains counts it.
 type fractionalParts struct {
 	ic     *chain.Chain
 	last   chain.Stage
+	tail   *chain.Chain // nil when the fractional stage ends the chain
 	fm, fk float64
 	dc     float64
 }
 
 func splitChain(c *chain.Chain) (fractionalParts, error) {
 	n := len(c.Stages)
+	f := slices.IndexFunc(c.Stages, func(s chain.Stage) bool { return s.Kind().Fractional() })
+	if f < 0 {
+		return fractionalParts{}, fmt.Errorf("response plot: the chain has no fractional stage")
+	}
 	rates := c.Rates()
 	p := fractionalParts{
-		ic:   &chain.Chain{InputRate: c.InputRate, Complex: c.Complex, Direction: c.Direction, Plan: c.Plan[:min(n-1, len(c.Plan))], Stages: c.Stages[:n-1]},
-		last: c.Stages[n-1],
-		fm:   rates[n-1],
+		ic:   &chain.Chain{InputRate: c.InputRate, Complex: c.Complex, Direction: c.Direction, Plan: c.Plan[:min(f, len(c.Plan))], Stages: c.Stages[:f]},
+		last: c.Stages[f],
+		fm:   rates[f],
 		fk:   c.OutputRate(),
 		dc:   c.Gain(0),
+	}
+	if f < n-1 {
+		p.tail = &chain.Chain{InputRate: rates[f+1], Complex: c.Complex, Stages: c.Stages[f+1:]}
 	}
 	if !(p.dc > 0) || !finite(p.dc) {
 		return p, fmt.Errorf("response plot: the chain's DC gain is %v", p.dc)
@@ -71,7 +84,7 @@ func splitChain(c *chain.Chain) (fractionalParts, error) {
 			return p, fmt.Errorf("response plot: %v", err)
 		}
 		p.last = chain.PolyphaseStage{Up: st.Up, Down: st.Down, Taps: taps, Length: len(taps)}
-		p.dc = p.ic.Gain(0) * p.last.Gain(0, p.fm)
+		p.dc = p.ic.Gain(0) * p.last.Gain(0, p.fm) * p.tailGain(0)
 	default:
 		return p, fmt.Errorf("response plot: stage %d is a %T, not a fractional stage", n, p.last)
 	}
@@ -89,8 +102,24 @@ func (p fractionalParts) work() float64 {
 	switch st := p.last.(type) {
 	case chain.PolyphaseStage:
 		w += float64(len(st.Taps)) + float64(st.Up)*float64(st.Up)
+		if p.tail != nil {
+			for _, s := range p.tail.Stages {
+				if f, ok := s.(chain.FIRStage); ok {
+					w += float64(st.Up) * float64(len(f.Taps))
+				}
+			}
+		}
 	}
 	return w
+}
+
+// tailGain is the gain of the stages after the fractional stage at h (1
+// when there are none).
+func (p fractionalParts) tailGain(h float64) float64 {
+	if p.tail == nil {
+		return 1
+	}
+	return p.tail.Gain(h)
 }
 
 // fold is f folded into [0, FK/2] by the output rate, as chain.PathGains
@@ -142,7 +171,7 @@ func (p fractionalParts) curves(g, fa float64, scratch []complex128) (kept, alia
 			for i := 0; i < l; i++ {
 				s += q[i] * r[(k*i)%l]
 			}
-			gain := a * cmplx.Abs(s)
+			gain := a * cmplx.Abs(s) * p.tailGain(g+float64(k)*p.fm)
 			if k == 0 {
 				kept = gain
 			}

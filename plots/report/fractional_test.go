@@ -298,8 +298,9 @@ func names(fs []File) []string {
 func TestFractionalCurvesMatchPathGains(t *testing.T) {
 	_, poly := checked(t, fracSpec, "cic3m1r5 > fir5L > poly24/25")
 	_, far := farrowChain(t)
+	_, mid := checked(t, fracSpec, "cic3m1r5 > poly24/25 > fir5")
 	const fa = 12e3
-	for _, c := range []*chain.Chain{poly.Front[0].Chain, far.Front[0].Chain} {
+	for _, c := range []*chain.Chain{poly.Front[0].Chain, far.Front[0].Chain, mid.Front[0].Chain} {
 		rng := rand.New(rand.NewPCG(2, 24))
 		grid := make([]float64, 0, 60)
 		for i := 0; i < 60; i++ {

@@ -8,6 +8,7 @@ import (
 	"math"
 	"reflect"
 	"runtime"
+	"slices"
 	"strings"
 	"sync"
 
@@ -592,14 +593,20 @@ func fractionalLM(up, down int, interp bool) (l, m int) {
 // A decimation chain that ends in a fractional stage gets its word
 // lengths and bit-true figures as any other (package chain/fixed,
 // Fractional stages), but no hand-off (NoHandoff). An interpolation
-// chain with a fractional stage gets none: WordLengthsError is
-// fixed.ErrFractional's sentence, and the chain keeps its float verdict
+// chain with a fractional stage, or a decimation chain whose polyphase
+// stage follows the CIC, gets none: WordLengthsError is
+// fixed.ErrFractional's (fixed.ErrFractionalAfterCIC's) sentence, and the
+// chain keeps its float verdict
 // (VerdictBasis "float taps") whatever the spec's coefficient width, since
 // nothing of it is rounded.
 func AddWordLengths(ctx context.Context, c *Chain, spec chain.Spec, cand optimize.Candidate, s fixed.Settings, withHardware, rounded bool) {
 	frac := Fractional(cand.Chain)
 	if frac && cand.Chain.Direction == chain.Interpolate {
 		c.WordLengthsError = strings.TrimPrefix(fixed.ErrFractional.Error(), "fixed: ")
+		return
+	}
+	if frac && !cand.Chain.Stages[len(cand.Chain.Stages)-1].Kind().Fractional() {
+		c.WordLengthsError = strings.TrimPrefix(fixed.ErrFractionalAfterCIC.Error(), "fixed: ")
 		return
 	}
 	if rounded {
@@ -647,10 +654,10 @@ func AddWordLengths(ctx context.Context, c *Chain, spec chain.Spec, cand optimiz
 	}
 }
 
-// Fractional reports whether c ends in a fractional stage (a polyphase or
-// Farrow stage, chain.Kind.Fractional).
+// Fractional reports whether c has a fractional stage (a polyphase or
+// Farrow stage, chain.Kind.Fractional): at its end, or after its CIC.
 func Fractional(c *chain.Chain) bool {
-	return c != nil && len(c.Stages) > 0 && c.Stages[len(c.Stages)-1].Kind().Fractional()
+	return c != nil && slices.ContainsFunc(c.Stages, func(s chain.Stage) bool { return s.Kind().Fractional() })
 }
 
 // Fractional reports whether the chain has a fractional stage (the last
