@@ -403,9 +403,10 @@
 // as TestFractionalInterpolationTones measures through them.
 //
 // Its chain is integer stages down to Fm = F0/d, then one fractional stage
-// from Fm to FK = Fm Up/Down, always the last of Stages and Plan (an
-// integer ratio may end in one too: fir21 > poly21/53 for D = 53). The
-// kinds (FractionalKinds, not in Kinds):
+// from Fm to FK = Fm Up/Down, the last of Stages and Plan (an integer
+// ratio may end in one too: fir21 > poly21/53 for D = 53), or a polyphase
+// stage just after a leading CIC (see After the CIC below). The kinds
+// (FractionalKinds, not in Kinds):
 //
 //   - Polyphase (PolyphaseStage, "poly<L>/<M>", L = Up, M = Down): zeros
 //     between the samples raise the rate L times, one prototype lowpass at
@@ -483,6 +484,35 @@
 //     [0, Keep], the bands [k Fm - Keep, k Fm + Keep] for every k >= 1
 //     (farrow.MinDesign: the cheapest degree and length, least squares
 //     refined toward minimax, certified).
+//
+// After the CIC. A polyphase stage may instead come just after the
+// chain's first stage, a CIC of decimation R: cic > poly<L>/<M> > FIR and
+// half-band stages of decimation Db (in signal order an interpolation
+// chain's comes just before its CIC). Db shares no factor with L, so
+// that, as at the end, two paths of a tone never land together at +y
+// (fractionalPlan refuses the plan otherwise). Fm is then the CIC's
+// output rate F1 and the polyphase stage's output rate is F2 = Db FK. A
+// path k's gain is A(g) |P(g + k F1)| |T(g + k F1)|, T the cascade of the
+// stages after it (periodic at F2): Analyze bounds T with their own
+// bounders, and a real chain's paths meet at multiples of F1 / (2 M Db).
+// Its requirements (buildAfterCIC): the polyphase stage compensates the
+// CIC's droop, 1/|H_cic(f)| within its half of the ripple budget on
+// [0, fp], held flat at 1/|H_cic(fp)| on (fp, fa] (the CIC's own aliases
+// land there: a free compensator lifted them by up to 6 dB on seeded
+// random chains), a lowpass to Stop = F2 - fa (what lands in [0, fa] at
+// F2), and its gain over the last three quarters of its transition held
+// to 1 (FractionalRequirement.GapLimit: a wide transition left free rose
+// 44 dB). The stages after it are an integer chain from F2 to FK on the
+// spec's bands (TailSpec): the other half of the ripple, the rejection
+// raised by the polyphase stage's ripple share, by 20 log10 2 dB for a
+// real chain (two paths of one real tone can meet through their
+// stopbands) and by what the CIC times the designed prototype rises above
+// 1 on its transition. The CIC is the plan's: its aliases into [0, fa]
+// at F1 are its own to reject, lifted by up to 1/|H_cic(fp)|. The
+// checks above (brute force, tones through Run, DC spurs) cover these
+// chains too (TestAfterCICAnalyzeBruteForce). Package optimize offers the
+// placement alongside the other (its doc); fixed plans no word lengths
+// for it yet.
 //
 // Run runs both kinds: Resample (SciPy's upfirdn times L,
 // TestResampleSciPy) and farrow.Filter.Run at FarrowTimes. Package fixed

@@ -467,12 +467,20 @@ func transitionExcessDB(p PolyphaseStage, cs CICStage, rate, lo, hi float64) flo
 	return 20 * math.Log10(peak)
 }
 
-// tailSpec is the spec the stages after a polyphase stage placed after
-// the CIC are planned against (buildAfterCIC): from the polyphase stage's
-// output rate f2 to the chain's, the ripple budget less the polyphase
-// stage's share fracRipple, the rejection raised by that share and, for a
-// real chain, by coincidentDB. spec is
-// the fractional spec, normalised, its OutputRate the chain's.
+// TailSpec is the spec the stages after a polyphase stage placed after
+// the CIC are planned against (buildAfterCIC), f2 the polyphase stage's
+// output rate: from f2 to the chain's output rate, the ripple budget less
+// the polyphase stage's share (FractionalRippleShare), the rejection
+// raised by that share and, for a real chain, by 20 log10 2 dB (two paths
+// of a real tone can meet through their stopbands). The design raises it
+// further by what the CIC and the designed polyphase stage's transition
+// rise above unity. spec is the fractional spec, normalised, its
+// OutputRate the chain's.
+func TailSpec(spec Spec, f2 float64) Spec {
+	return tailSpec(spec, f2, spec.RippleDB*FractionalRippleShare)
+}
+
+// tailSpec is TailSpec with the polyphase stage's ripple share fracRipple.
 func tailSpec(spec Spec, f2, fracRipple float64) Spec {
 	tail := spec
 	tail.InputRate, tail.RatioTolerancePPM = f2, 0

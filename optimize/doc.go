@@ -237,6 +237,23 @@
 // growing with the droop it corrects) and whose designs and measurements
 // fail now and then.
 //
+// # Fractional ratios
+//
+// A spec whose ratio is a fraction num/den (chain.Spec.Fraction) is
+// planned by planFractional (fractional.go): for at most six integer
+// decimations d (fractionalSplits), the integer stages down to Fm = F0/d
+// are searched as an integer chain of their own (chain.IntegerSpec), and
+// their three cheapest front chains completed with a polyphase stage, or,
+// ending in a lowpass FIR, with a Farrow stage. A polyphase stage is also
+// placed just after the CIC (afterCICPlans): for each CIC that begins
+// those front chains, the two smallest decimations Db after it that fit,
+// the FIR and half-band stages after it searched on chain.TailSpec. Every
+// plan is estimated and priced; they are designed in order of estimate,
+// at most twelve, while the estimate is within twice the cheapest
+// designed chain that meets; the front is taken over the designed ones.
+// The designed set is decided one plan at a time, so it is the same for
+// any Jobs.
+//
 // # Recommendation
 //
 // Knee (the default) normalises each axis by the front's best (after adding

@@ -128,6 +128,106 @@ func gcdInt(a, b int) int {
 	return a
 }
 
+// maxAfterCICSplits bounds the decimations Db after a polyphase stage
+// placed after the CIC tried per CIC.
+const maxAfterCICSplits = 2
+
+// afterCICPlans returns the plans whose polyphase stage follows the CIC
+// (chain package, Fractional stages), and the integer candidates their
+// searches weighed. The CICs are those that begin the integer searches'
+// front chains (cics, in order). For each, with R its decimation and
+// num/(den R) = a/b in lowest terms, the polyphase stage is L/M with
+// L = b (at most chain.MaxFractionalUp) and M = a/Db, for the
+// maxAfterCICSplits smallest divisors Db >= 2 of a whose rate F2 = FK Db
+// is at most the CIC's output rate F1 and leaves the stage a band
+// (F2 - fa > fp, fa < F1/2). The FIR and half-band stages after it are
+// searched as an integer chain of their own (chain.TailSpec) and their
+// maxIntegerChains cheapest front chains completed.
+func afterCICPlans(ctx context.Context, spec chain.Spec, num, den int, cics []chain.StagePlan, s Settings, integer []chain.Kind, maxStages, jobs int) ([][]chain.StagePlan, int) {
+	var kinds []chain.Kind
+	for _, k := range []chain.Kind{chain.HalfBand, chain.FIR} {
+		if integer == nil || slices.Contains(integer, k) {
+			kinds = append(kinds, k)
+		}
+	}
+	if len(kinds) == 0 || maxStages < 3 {
+		return nil, 0
+	}
+	fk := spec.InputRate * float64(den) / float64(num)
+	exact := spec
+	exact.OutputRate, exact.RatioTolerancePPM = fk, 0
+	fp, fa := spec.Passband, spec.Protected
+	type tailSearch struct {
+		cic        chain.StagePlan
+		up, down   int
+		spec       chain.Spec
+		front      [][]chain.StagePlan
+		candidates int
+	}
+	var tails []*tailSearch
+	for _, cp := range cics {
+		r := cp.Factor
+		if r < 2 || den > math.MaxInt32/r {
+			continue
+		}
+		g := gcdInt(num, den*r)
+		a, b := num/g, den*r/g
+		if b < 2 || b > chain.MaxFractionalUp {
+			continue
+		}
+		f1 := spec.InputRate / float64(r)
+		if fa >= f1/2 {
+			continue
+		}
+		found := 0
+		for db := 2; db <= a && found < maxAfterCICSplits; db++ {
+			if a%db != 0 {
+				continue
+			}
+			f2 := fk * float64(db)
+			if f2 > f1 {
+				break
+			}
+			if !(f2-fa > fp) {
+				continue
+			}
+			tails = append(tails, &tailSearch{cic: cp, up: b, down: a / db, spec: chain.TailSpec(exact, f2)})
+			found++
+		}
+	}
+	runAll(ctx, jobs, len(tails), func(i int) {
+		t := tails[i]
+		ss := s
+		ss.MaxStages = maxStages - 2
+		ss.Kinds = kinds
+		ss.floatOnly = true
+		ss.Jobs = 1
+		ss.Progress, ss.Scoring = nil, nil
+		ss.Cost.Multiplierless = false
+		r, err := Plan(ctx, t.spec, ss)
+		if err != nil {
+			return
+		}
+		t.candidates = r.Candidates
+		for _, c := range r.Front {
+			if len(t.front) >= maxIntegerChains {
+				break
+			}
+			t.front = append(t.front, c.Plan)
+		}
+	}, nil)
+	var plans [][]chain.StagePlan
+	n := 0
+	for _, t := range tails {
+		n += t.candidates
+		for _, tp := range t.front {
+			p := append([]chain.StagePlan{t.cic, {Kind: chain.Polyphase, Factor: 1, Up: t.up, Down: t.down}}, tp...)
+			plans = append(plans, p)
+		}
+	}
+	return plans, n
+}
+
 // fractionalKinds returns the fractional kinds the settings allow (those
 // Kinds lists, or every one when it lists none), and the integer kinds for
 // the stages before (nil: every one).
@@ -262,6 +362,23 @@ func planFractional(ctx context.Context, spec chain.Spec, s Settings) (*Result, 
 				continue
 			}
 			p := append(slices.Clone(ip), chain.StagePlan{Kind: kind, Factor: 1, Up: sub.up, Down: sub.down})
+			if !slices.ContainsFunc(plans, func(q []chain.StagePlan) bool { return slices.Equal(q, p) }) {
+				plans = append(plans, p)
+			}
+		}
+	}
+	if slices.Contains(frac, chain.Polyphase) {
+		var cics []chain.StagePlan
+		for _, sub := range subs {
+			for _, ip := range sub.front {
+				if len(ip) > 0 && ip[0].Kind == chain.CIC && !slices.Contains(cics, ip[0]) {
+					cics = append(cics, ip[0])
+				}
+			}
+		}
+		ap, n := afterCICPlans(ctx, spec, num, den, cics, s, integer, maxStages, jobs)
+		res.Candidates += n
+		for _, p := range ap {
 			if !slices.ContainsFunc(plans, func(q []chain.StagePlan) bool { return slices.Equal(q, p) }) {
 				plans = append(plans, p)
 			}

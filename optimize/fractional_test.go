@@ -12,7 +12,7 @@ import (
 
 // TestPlanFractional plans an invented fractional spec (100 MHz down to
 // 3.84 MHz, 625/24): the front is not empty, every chain on it ends in a
-// fractional stage, makes up the spec's ratio exactly and meets the spec
+// fractional stage or has a polyphase stage after its CIC, makes up the spec's ratio exactly and meets the spec
 // on a fresh Analyze, with two stages at most and with three, and the
 // front of three is the same with one job and with two. CI's long step
 // only (STEPDOWN_LONG).
@@ -33,8 +33,9 @@ func TestPlanFractional(t *testing.T) {
 		}
 		for _, c := range r.Front {
 			n := len(c.Chain.Stages)
-			if !c.Chain.Stages[n-1].Kind().Fractional() {
-				t.Errorf("%s: does not end in a fractional stage", chain.Notation(c.Plan))
+			afterCIC := n > 2 && c.Plan[0].Kind == chain.CIC && c.Plan[1].Kind == chain.Polyphase
+			if !c.Chain.Stages[n-1].Kind().Fractional() && !afterCIC {
+				t.Errorf("%s: does not end in a fractional stage nor has a polyphase stage after its CIC", chain.Notation(c.Plan))
 			}
 			if p, q := c.Chain.Fraction(); p != 625 || q != 24 {
 				t.Errorf("%s: ratio %d/%d", chain.Notation(c.Plan), p, q)
@@ -50,6 +51,44 @@ func TestPlanFractional(t *testing.T) {
 		t.Errorf("the front depends on Jobs:\n%s\n%s", fronts[1], fronts[2])
 	}
 	t.Logf("front:\n%s", fronts[2])
+}
+
+// TestAfterCICPlans: the plans whose polyphase stage follows the CIC,
+// for an invented spec (100 MHz down to 3.84 MHz, 625/24) and the CICs
+// cic4m1r5 and cic3m1r2, each make up the ratio, begin with the CIC and
+// its polyphase stage L/M (L = 24 after R = 5: 625/(24 5) = 125/24; 48
+// after R = 2), end in FIR or half-band stages, and are accepted by
+// chain.Estimate.
+func TestAfterCICPlans(t *testing.T) {
+	spec, err := chain.Spec{InputRate: 100e6, OutputRate: 3.84e6, Passband: 1.2e6, Protected: 1.5e6, RippleDB: 0.3, RejectionDB: 60}.Normalize()
+	if err != nil {
+		t.Fatal(err)
+	}
+	cics := []chain.StagePlan{{Kind: chain.CIC, Factor: 5, CICOrder: 4, CICDelay: 1}, {Kind: chain.CIC, Factor: 2, CICOrder: 3, CICDelay: 1}}
+	plans, n := afterCICPlans(context.Background(), spec, 625, 24, cics, Settings{}, nil, 4, 2)
+	if len(plans) == 0 || n == 0 {
+		t.Fatalf("no plans (%d candidates)", n)
+	}
+	wantL := map[int]int{5: 24, 2: 48}
+	for _, p := range plans {
+		if p[0].Kind != chain.CIC || p[1].Kind != chain.Polyphase || p[1].Up != wantL[p[0].Factor] {
+			t.Errorf("%s: not a CIC then poly%d/M", chain.Notation(p), wantL[p[0].Factor])
+		}
+		for _, q := range p[2:] {
+			if q.Kind != chain.FIR && q.Kind != chain.HalfBand {
+				t.Errorf("%s: a %s stage after the polyphase stage", chain.Notation(p), q.Kind)
+			}
+		}
+		c, err := chain.Estimate(spec, p, chain.Settings{})
+		if err != nil {
+			t.Errorf("%s: %v", chain.Notation(p), err)
+			continue
+		}
+		if num, den := c.Fraction(); num != 625 || den != 24 {
+			t.Errorf("%s: ratio %d/%d", chain.Notation(p), num, den)
+		}
+	}
+	t.Logf("%d plans, %d candidates", len(plans), n)
 }
 
 // TestPlanFractionalStopped: a fractional search stopped by its context
