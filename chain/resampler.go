@@ -141,6 +141,28 @@ func (r FractionalRequirement) passband() remez.Band {
 		WeightFunc: func(f float64) float64 { return droop(f) / dp }}
 }
 
+// Bands returns the bands a polyphase stage of up phases (or a Farrow
+// stage's equivalent prototype, FarrowPrototype) meets, on the
+// prototype's axis at up times the input rate, as Requirement.Bands
+// states a stage's (met when |A - D| w <= MaxError on each): the passband
+// (unit gain within Dp, or the CIC's compensation, Droop), the
+// transition's hold (GapLimit) and PolyphaseBands below Ds.
+func (r FractionalRequirement) Bands(up int) []remez.Band {
+	stops := PolyphaseBands(r, up)
+	bands := []remez.Band{r.passband()}
+	if len(stops) == 0 {
+		return bands
+	}
+	edge := r.passbandEdge()
+	if lo, hi := edge+(stops[0].Lo-edge)/4, stops[0].Lo; r.GapLimit > 0 && hi-lo > 1e-6*float64(up)*r.InputRate {
+		bands = append(bands, remez.Band{Lo: lo, Hi: hi, MaxError: r.GapLimit, Weight: 1 / r.GapLimit})
+	}
+	for _, b := range stops {
+		bands = append(bands, remez.Band{Lo: b.Lo, Hi: b.Hi, Gain: 0, MaxError: r.Ds, Weight: 1 / r.Ds})
+	}
+	return bands
+}
+
 // passbandEdge is where the stage's passband band ends: fp, or Hold when
 // it compensates a CIC and Hold is above fp.
 func (r FractionalRequirement) passbandEdge() float64 {
@@ -545,16 +567,7 @@ func polyphaseStage(ctx context.Context, p StagePlan, r FractionalRequirement, s
 		st.Length = n
 		return st, nil
 	}
-	// As Requirement.Bands states a stage's bands: met when
-	// |A - D| <= MaxError on each.
-	bands := []remez.Band{r.passband()}
-	if lo, hi := r.passbandEdge()+(stops[0].Lo-r.passbandEdge())/4, stops[0].Lo; r.GapLimit > 0 && hi-lo > 1e-6*rate {
-		bands = append(bands, remez.Band{Lo: lo, Hi: hi, MaxError: r.GapLimit, Weight: 1 / r.GapLimit})
-	}
-	for _, b := range stops {
-		bands = append(bands, remez.Band{Lo: b.Lo, Hi: b.Hi, Gain: 0, MaxError: r.Ds, Weight: 1 / r.Ds})
-	}
-	res, err := remez.MinLengthContext(ctx, rate, bands, 0, maxTaps, s.Remez)
+	res, err := remez.MinLengthContext(ctx, rate, r.Bands(p.Up), 0, maxTaps, s.Remez)
 	if err != nil {
 		return st, fmt.Errorf("polyphase prototype design: %w", err)
 	}

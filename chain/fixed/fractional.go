@@ -102,15 +102,10 @@ func fracFromChain(s chain.Stage, k int) (Stage, error) {
 }
 
 // fracBands are the bands a fractional stage's (equivalent) prototype
-// meets, at Up times its input rate, unit gain: the passband [0, fp]
-// within Dp and chain.PolyphaseBands below Ds, as the chain package
-// designs the polyphase prototype.
+// meets, at Up times its input rate, as the chain package designs the
+// polyphase prototype (chain.FractionalRequirement.Bands).
 func fracBands(r chain.FractionalRequirement, up int) []remez.Band {
-	bands := []remez.Band{{Lo: 0, Hi: r.Passband, Gain: 1, MaxError: r.Dp, Weight: 1 / r.Dp}}
-	for _, b := range chain.PolyphaseBands(r, up) {
-		bands = append(bands, remez.Band{Lo: b.Lo, Hi: b.Hi, MaxError: r.Ds, Weight: 1 / r.Ds})
-	}
-	return bands
+	return r.Bands(up)
 }
 
 // planFractional plans the fractional stage st at input rate rate.

@@ -314,6 +314,9 @@ type Stage struct {
 	// its prototype lowpass at Interpolation x its input rate, with unit
 	// gain at 0 Hz as the chain holds it (the data path multiplies by L),
 	// Taps its length, PhaseTaps ceil(Taps/L), the multiplies per output.
+	// CompensatesCIC is set on every FIR and half-band stage, and on a
+	// polyphase stage only when it compensates the CIC just before it
+	// (placed after the CIC; its passband is then 1/|H_cic|).
 	Variant        string    `json:"variant,omitempty"` // FIR: "multiband" or "lowpass"
 	Taps           int       `json:"taps,omitempty"`
 	PhaseTaps      int       `json:"phase_taps,omitempty"`
@@ -535,6 +538,10 @@ func NewChain(spec chain.Spec, cand optimize.Candidate, clock bool) (Chain, erro
 			s.Interpolation, s.Decimation = fractionalLM(x.Up, x.Down, out.interp)
 			s.Taps, s.PhaseTaps = x.Length, x.PhaseTaps()
 			s.Coefficients = append([]float64{}, x.Taps...)
+			if x.Req.Droop.R > 0 {
+				comp := true
+				s.CompensatesCIC = &comp
+			}
 		case chain.FarrowStage:
 			s.Interpolation, s.Decimation = fractionalLM(x.Up, x.Down, out.interp)
 			s.Taps, s.FarrowDegree = x.Length, x.Degree
