@@ -677,29 +677,6 @@ func TestFractionalQuantisedAnalyzeBruteForce(t *testing.T) {
 	t.Logf("Analyze at most %.4f dB below the dense scan; bit-true alias tones within %.3f dB of the response (%d valid)", worstGap, worstTone, checked)
 }
 
-// TestFractionalInterpolationRefused: an interpolation chain with a
-// fractional stage is refused with ErrFractional (word lengths are
-// planned for a decimation chain's fractional stage only).
-func TestFractionalInterpolationRefused(t *testing.T) {
-	rng := rand.New(rand.NewPCG(14, 25))
-	down, c := randomFracChain(rng, false)
-	if c == nil {
-		t.Fatal("no chain")
-	}
-	up := down
-	up.InputRate, up.OutputRate = down.OutputRate, down.InputRate
-	ci, err := chain.Design(up, c.Plan, chain.Settings{MaxTaps: 300})
-	if err != nil {
-		t.Fatal(err)
-	}
-	if _, _, err := FromChain(up, ci); !errors.Is(err, ErrFractional) {
-		t.Errorf("FromChain of %s (interpolation): %v, want ErrFractional", chain.Notation(c.Plan), err)
-	}
-	if _, err := Evaluate(up, ci, Settings{}, Signal{}); !errors.Is(err, ErrFractional) {
-		t.Errorf("Evaluate: %v, want ErrFractional", err)
-	}
-}
-
 // TestFractionalStopped: a cancelled context stops the plan and the
 // bit-true run of a fractional chain with an error wrapping ctx.Err().
 func TestFractionalStopped(t *testing.T) {

@@ -2,17 +2,11 @@ package fixed
 
 import (
 	"context"
-	"errors"
 	"fmt"
 	"math"
 
 	"github.com/stepdown-dsp/stepdown/chain"
 )
-
-// ErrFractional is FromChain's error for an interpolation chain with a
-// fractional stage (chain.Polyphase, chain.Farrow): word lengths and the
-// bit-true run are planned for a decimation chain's fractional stage only.
-var ErrFractional = errors.New("fixed: word lengths are planned for a fractional stage (polyphase or farrow) in a decimation chain only; an interpolation chain's has its float design alone")
 
 // FromChain converts a designed chain and its spec into the planner's terms.
 // Each FIR and half-band stage must meet the bands of its chain.Requirement:
@@ -41,9 +35,6 @@ func FromChain(spec chain.Spec, c *chain.Chain) (Cascade, Words, error) {
 		return Cascade{}, Words{}, fmt.Errorf("fixed: the chain's direction, %s, is not the spec's, %s", c.Direction, spec.Direction())
 	}
 	interp := c.Direction == chain.Interpolate
-	if last := c.Stages[len(c.Stages)-1].Kind(); last.Fractional() && interp {
-		return Cascade{}, Words{}, ErrFractional
-	}
 	cas := Cascade{InputRate: c.InputRate, Complex: c.Complex, Interpolate: interp, Passband: spec.Passband, Protected: spec.Protected}
 	if interp {
 		cas.InputRate = c.OutputRate()
@@ -64,11 +55,11 @@ func FromChain(spec chain.Spec, c *chain.Chain) (Cascade, Words, error) {
 		case *chain.FIRStage:
 			fs, err = firFromChain(*st, c, rates, i, k)
 		case chain.PolyphaseStage, chain.FarrowStage:
-			fs, err = fracFromChain(st, k)
+			fs, err = fracFromChain(st, k, interp)
 		case *chain.PolyphaseStage:
-			fs, err = fracFromChain(*st, k)
+			fs, err = fracFromChain(*st, k, interp)
 		case *chain.FarrowStage:
-			fs, err = fracFromChain(*st, k)
+			fs, err = fracFromChain(*st, k, interp)
 		default:
 			err = fmt.Errorf("fixed: stage %d is a %T; FromChain takes chain.CICStage, chain.FIRStage, chain.PolyphaseStage and chain.FarrowStage values", k+1, st)
 		}
@@ -388,7 +379,7 @@ func QuantisedChain(c *chain.Chain, w *Widths) *chain.Chain {
 			cp.Taps = w.Stages[at[i]].Coefficients.Float()
 			q.Stages[i] = cp
 		case chain.PolyphaseStage, chain.FarrowStage, *chain.PolyphaseStage, *chain.FarrowStage:
-			q.Stages[i] = quantisedFrac(s, &w.Stages[at[i]])
+			q.Stages[i] = quantisedFrac(s, &w.Stages[at[i]], c.Direction == chain.Interpolate)
 		default:
 			panic(fmt.Sprintf("fixed: QuantisedChain with widths of another chain (stage %d is a %T, which FromChain refuses)", i+1, s))
 		}
