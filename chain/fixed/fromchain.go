@@ -21,8 +21,9 @@ import (
 // signal order, c.SignalOrder() (Cascade.Stages[k] is c.Stages[
 // c.SignalOrder()[k]]), each with Stage.Interpolate set, from the channel
 // rate (Cascade.InputRate = c.OutputRate()). Its taps and bands are the
-// transpose's, at each stage's high rate. Stage numbers in errors count in
-// signal order.
+// transpose's, at each stage's high rate; its fractional stage, the
+// first, is the transpose of the chain's L/M (Up M, Down L: package doc,
+// Fractional stages). Stage numbers in errors count in signal order.
 func FromChain(spec chain.Spec, c *chain.Chain) (Cascade, Words, error) {
 	spec, err := spec.Normalize()
 	if err != nil {
