@@ -516,7 +516,7 @@
 //
 // Run runs both kinds: Resample (SciPy's upfirdn times L,
 // TestResampleSciPy) and farrow.Filter.Run at FarrowTimes. Package fixed
-// plans a decimation chain's fractional stage in fixed point (its doc,
-// Fractional stages) and refuses an interpolation chain's; the hand-off to
-// RTL is for integer chains only.
+// plans a fractional stage in fixed point, a decimation chain's and,
+// transposed, an interpolation chain's (its doc, Fractional stages); the
+// hand-off to RTL is for integer chains only.
 package chain

@@ -37,9 +37,16 @@ func bitTrueInterp(ctx context.Context, c Cascade, w *Widths, sig Signal) (BitTr
 	if fa == 0 {
 		fa = fp
 	}
+	// outNum/outDen output samples per input sample: the interpolation
+	// l, times Up/Down after a fractional stage (its own, in signal order).
 	l := c.Ratio()
+	frac, _ := c.fracStage()
+	outNum, outDen := l, 1
+	if frac.fractional() {
+		outNum, outDen = l*frac.Up, frac.Down
+	}
 	fin := c.InputRate
-	high := fin * float64(l)
+	high := fin * float64(outNum) / float64(outDen)
 	if !(fp > 0) || fp >= fin/2 || fa < fp || fa > fin/2 {
 		return BitTrueResult{}, fmt.Errorf("fixed: cascade Passband = %g Hz, Protected = %g Hz: need 0 < Passband <= Protected <= input rate/2 = %g Hz", fp, fa, fin/2)
 	}
@@ -68,21 +75,53 @@ func bitTrueInterp(ctx context.Context, c Cascade, w *Widths, sig Signal) (BitTr
 	}
 	// Transient: the cascade's impulse response length in output samples;
 	// each stage's response is at its output rate, spread by the later
-	// stages' factors.
+	// stages' factors. A fractional stage's spans its prototype's taps at
+	// L Fm (a Farrow stage's N samples at Fm) and two samples of Fm more
+	// for its rounded times.
 	span, later := 1, l
 	for _, st := range c.Stages {
+		if st.fractional() {
+			lv, _ := st.fracView()
+			n := len(st.Farrow0())
+			if st.Farrow == nil {
+				n = (len(st.Taps) + lv - 1) / lv
+			}
+			span += (n + 2) * later
+			continue
+		}
 		later /= st.R
 		span += (st.Length() - 1) * later
 	}
 	skip := span + l
-	for auto && nmIn > 256 && skip+nmIn*l > autoOutputSamples {
-		nmIn /= 2
+	// phases: the output repeats its phases every outNum output samples,
+	// outDen input samples (one for an integer cascade). A fractional
+	// cascade's window spans a multiple of 2 outDen input samples, so
+	// that the images of a tone make whole cycles in it and the two paths
+	// of a tone that meet do so on its grid, and at least 32 periods, so
+	// that a family (2 outNum dimensions) takes at most 1/16 of it.
+	step := 1
+	if frac.fractional() {
+		step = 2 * outDen
+		nmIn = max(nmIn, 32*outDen)
 	}
-	win := nmIn * l
-	if nout := skip + win; nout > maxOutputSamples || nmIn > maxOutputSamples/l {
-		return BitTrueResult{}, fmt.Errorf("fixed: bit-true run needs %d output samples (interpolation %d, %d output samples measured over %d input samples); at most %d are supported", skip+nmIn*l, l, win, nmIn, maxOutputSamples)
+	nmIn = (nmIn + step - 1) / step * step
+	for auto && nmIn > max(256, 32*outDen) && skip+nmIn*outNum/outDen > autoOutputSamples {
+		nmIn = (nmIn/2 + step - 1) / step * step
 	}
-	nin := (skip + win + l - 1) / l
+	win := nmIn * outNum / outDen
+	if nout := skip + win; nout > maxOutputSamples || nmIn > maxOutputSamples/outNum {
+		return BitTrueResult{}, fmt.Errorf("fixed: bit-true run needs %d output samples (interpolation %s, %d output samples measured over %d input samples); at most %d are supported", skip+win, ratioText(outNum, outDen), win, nmIn, maxOutputSamples)
+	}
+	// need is the input samples that make nout output samples: a Farrow
+	// stage's outputs wait for its later inputs (N/2 of its outputs).
+	need := func(nout int) int {
+		n := (nout+outNum-1)/outNum*outDen + 1
+		if frac.fractional() {
+			n += (len(frac.Farrow0())+4)*frac.Down/frac.Up + 2
+		}
+		return n
+	}
+	nin := need(skip + win)
 	res := BitTrueResult{Samples: win, InputSamples: nin, Skip: skip, NoiseDBFS: math.Max(-300, 20*math.Log10(sd.noise))}
 	rng := rand.New(rand.NewPCG(sig.Seed, 0x5eed))
 	obits := w.OutputBits
@@ -97,11 +136,18 @@ func bitTrueInterp(ctx context.Context, c Cascade, w *Widths, sig Signal) (BitTr
 		res.Tones = append(res.Tones, Tone{Freq: f, Level: t.Level})
 		tones = append(tones, toneGen{f, math.Pow(10, t.Level/20), 2 * math.Pi * rng.Float64()})
 	}
+	// newFam is the family of a tone at m cycles over nm input samples.
+	newFam := func(nm, m int) *family {
+		if frac.fractional() {
+			return newFamilyOut(outNum, nm*outNum/outDen, m)
+		}
+		return newFamily(l, nm, m)
+	}
 	meas := newInterpMeasure(obits)
 	for k, m := range ms {
 		// A tone met before has its family removed once.
 		if !containsInt(ms[:k], m) {
-			meas.families = append(meas.families, newFamily(l, nmIn, m))
+			meas.families = append(meas.families, newFam(nmIn, m))
 		}
 		meas.outs = append(meas.outs, newRotor(int64(m), int64(win)))
 	}
@@ -121,13 +167,25 @@ func bitTrueInterp(ctx context.Context, c Cascade, w *Widths, sig Signal) (BitTr
 	// image of it (each tone's family), which are orthogonal over the
 	// window: the energy left is the error's less theirs.
 	left := meas.e2 - nw*mean*mean
+	dims := 1
 	for _, fam := range meas.families {
 		left -= fam.energy()
-		if fam.m == 0 {
+		dims += fam.dims()
+		if fam.holdsDC() {
 			left += nw * mean * mean // a family at DC holds the mean
+			dims--
 		}
 	}
 	errPow := math.Max(0, left) / nw
+	if frac.fractional() {
+		// A family after a fractional stage spans up to 1/16 of the
+		// window: the noise it removed with the signal is made up for
+		// (the noise per dimension left, exact for white noise).
+		errPow = math.Max(0, left) / float64(max(1, win-dims))
+	}
+	if meas.n != win {
+		return BitTrueResult{}, fmt.Errorf("fixed: bit-true run measured %d of %d output samples (an internal miscount of the input needed)", meas.n, win)
+	}
 	for k, m := range ms {
 		res.OutputLevels = append(res.OutputLevels, math.Max(-300, 20*math.Log10(meas.outs[k].amplitude(m == 0 || 2*m == win, win))))
 	}
@@ -154,6 +212,12 @@ func bitTrueInterp(ctx context.Context, c Cascade, w *Widths, sig Signal) (BitTr
 		}
 	}
 	res.SNRValid = res.SNRNote == ""
+	if frac.fractional() {
+		if err := imageRunFrac(ctx, c, w, sig, &res, rng, sd.noise, nmIn, skip, outNum, outDen, need); err != nil {
+			return BitTrueResult{}, err
+		}
+		return res, nil
+	}
 
 	// Run 2: a tone at the channel frequency whose image is the quantised
 	// cascade's worst.
@@ -222,10 +286,16 @@ func bitTrueInterp(ctx context.Context, c Cascade, w *Widths, sig Signal) (BitTr
 	return res, nil
 }
 
-// prefixGain is the DC gain from the input to stage i's output.
+// prefixGain is the DC gain from the input to stage i's output; a
+// fractional stage's is its largest phase's (a transposed Farrow stage's
+// phases differ widely: the images it leaves for the later stages).
 func prefixGain(w *Widths, i int) float64 {
 	g := 1.0
 	for _, sw := range w.Stages[:i+1] {
+		if sw.Up > 0 {
+			g *= math.Max(sw.Gain, sw.PhaseGainMax)
+			continue
+		}
 		g *= sw.Gain
 	}
 	return g
@@ -298,35 +368,71 @@ func (r *rotor) amplitude(edge bool, n int) float64 {
 // mod L (n = j div L), which span exactly the frequencies k F_in +- f.
 // Per phase the projection is a sinusoid's least-squares fit over nm
 // samples.
+//
+// After a fractional stage (newFamilyOut) the output repeats its phases
+// every P = R Up output samples (Up/Down the stage's own rate change, R
+// the integer stages' interpolation), which span Down input samples: the
+// family is then Re(c_p e^(i 2 pi m j / win)) over the window's win
+// samples j, p = j mod P, which spans exactly the frequencies f + k F_in /
+// Down where every image of the tone lies; each phase holds nm = win / P
+// samples and its carrier makes m whole cycles over them.
 type family struct {
 	m, nm, l int
 	c, s     []float64 // per phase: sum y cos, sum y sin
-	rot      *rotor    // the phase at input sample n
+	rot      *rotor    // the phase at input sample n (every sample when perOut)
 	cn, sn   float64
+	perOut   bool
 }
 
 func newFamily(l, nm, m int) *family {
 	return &family{m: m, nm: nm, l: l, c: make([]float64, l), s: make([]float64, l), rot: newRotor(int64(m), int64(nm))}
 }
 
+// newFamilyOut is the family of a tone at m cycles over a window of win
+// output samples whose phases repeat every p samples (a multiple of p).
+func newFamilyOut(p, win, m int) *family {
+	return &family{m: m, nm: win / p, l: p, c: make([]float64, p), s: make([]float64, p), rot: newRotor(int64(m), int64(win)), perOut: true}
+}
+
 // add takes window sample j, y.
 func (f *family) add(j int, y float64) {
 	p := j % f.l
-	if p == 0 {
+	if p == 0 || f.perOut {
 		f.cn, f.sn = f.rot.next()
 	}
 	f.c[p] += y * f.cn
 	f.s[p] += y * f.sn
 }
 
+// edge says that the carrier steps a whole or half cycle per sample of a
+// phase: its sine part is then the cosine part's multiple, one dimension
+// per phase (m = 0 or 2m = nm for an integer cascade).
+func (f *family) edge() bool { return (2*f.m)%f.nm == 0 }
+
+// holdsDC says that the family spans 0 Hz: its carrier steps whole
+// cycles per sample of a phase (m = 0 for an integer cascade).
+func (f *family) holdsDC() bool { return f.m%f.nm == 0 }
+
+// dims returns the dimensions the family spans: one or two per phase.
+func (f *family) dims() int {
+	if f.edge() {
+		return f.l
+	}
+	return 2 * f.l
+}
+
 // energy returns the energy (sum of squares) of the projection.
 func (f *family) energy() float64 {
 	var e float64
-	edge := f.m == 0 || 2*f.m == f.nm // the sine is zero: one dimension per phase
+	edge := f.edge()
 	for p := range f.c {
-		if edge {
+		switch {
+		case edge && f.perOut:
+			// cos and sin are both multiples of one +-1 sequence.
+			e += (f.c[p]*f.c[p] + f.s[p]*f.s[p]) / float64(f.nm)
+		case edge:
 			e += f.c[p] * f.c[p] / float64(f.nm)
-		} else {
+		default:
 			e += 2 * (f.c[p]*f.c[p] + f.s[p]*f.s[p]) / float64(f.nm)
 		}
 	}
@@ -343,6 +449,7 @@ type interpMeasure struct {
 	outs         []*rotor
 	top          float64
 	clipped      int
+	n            int // window samples seen
 }
 
 func newInterpMeasure(obits int) *interpMeasure {
@@ -350,6 +457,7 @@ func newInterpMeasure(obits int) *interpMeasure {
 }
 
 func (ms *interpMeasure) add(yi, yf []float64, j0 int) {
+	ms.n += len(yi)
 	for k, vi := range yi {
 		vf := yf[k]
 		e := vi - vf
@@ -393,4 +501,130 @@ func (im *imageMeasure) add(yi, yf []float64, j0 int) {
 		im.y1 += vi
 		im.y2 += vi * vi
 	}
+}
+
+// complex returns the projected component's complex amplitude over n
+// samples, in projectC's convention.
+func (r *rotor) complex(n int) complex128 {
+	k := 2 / float64(n)
+	return complex(r.re*k, -r.im*k)
+}
+
+// imageRunFrac is bitTrueInterp's image test (run 2) for a cascade that
+// begins with a fractional stage: the channel tone y whose image g is the
+// quantised cascade's worst (chain.Analysis's WorstAliasHz through
+// WorstPath, in the decimation view), moved to whole cycles over the
+// window's nm input samples (a multiple of 2 outDen), g with it: every
+// image of y lies at +-y + j F_in / outDen, j whole, so g stays one. When
+// two paths of the tone meet at g (its +y and -y, at multiples of
+// F_in / (2 outDen)) what comes out depends on the tone's phase: the run
+// is made twice a quarter cycle apart and the figure is the worst phase's,
+// |c1| + |c2|, as aliasRun does, and the response's is the paths' sum.
+func imageRunFrac(ctx context.Context, c Cascade, w *Widths, sig Signal, res *BitTrueResult, rng *rand.Rand, noise float64, nmIn, skip, outNum, outDen int, need func(int) int) error {
+	fin := c.InputRate
+	q, qspec := cascadeChain(c, w, true)
+	var g0 float64
+	path := 0
+	if sig.AliasHz > 0 {
+		g0 = sig.AliasHz
+		path = worstPath(q, g0, c.Protected, c.Passband)
+		res.WorstAliasResponseDB = posDB(pathGain(q, g0, path) / q.Gain(0))
+	} else {
+		a, err := chain.AnalyzeContext(ctx, q, qspec)
+		if err != nil {
+			return fmt.Errorf("fixed: the quantised cascade's worst image: %w", err)
+		}
+		g0, res.WorstAliasResponseDB, path = a.WorstAliasHz, a.AliasRejectionDB, a.WorstPath
+	}
+	y0 := 0.0
+	for _, p := range chain.PathGains(q, g0, 0) {
+		if p.K == path {
+			y0 = p.OutputHz
+		}
+	}
+	spacing := fin / float64(outDen)
+	// g0 = s y0 + j spacing: the sign and j that fit best.
+	jp, jm := (g0-y0)/spacing, (g0+y0)/spacing
+	sgn, j := 1, math.Round(jp)
+	if math.Abs(jm-math.Round(jm)) < math.Abs(jp-j) {
+		sgn, j = -1, math.Round(jm)
+	}
+	amp := math.Pow(10, sig.AliasLevel/20)
+	win0 := nmIn * outNum / outDen
+	for nm := nmIn; ; nm *= 4 {
+		wn := nm * outNum / outDen
+		m := int(math.Max(1, math.Min(float64(nm/2-1), math.Round(y0/fin*float64(nm)))))
+		f := float64(m) * fin / float64(nm)
+		g := float64(sgn)*f + j*spacing
+		gm := int64(sgn*m) + int64(j)*int64(nm/outDen)
+		res.AliasHz, res.AliasOutHz, res.AliasSamples = g, f, wn
+		// The path of g that lands on f, and the paths' sum where two do.
+		bin := func(h float64) int { return int(math.Round(h / fin * float64(nm))) }
+		best := 0.0
+		for _, p := range chain.PathGains(q, g, 0) {
+			if bin(p.OutputHz) == m {
+				best = math.Max(best, p.Gain)
+			}
+		}
+		res.AliasResponseDB = posDB(best / q.Gain(f))
+		run := func(phase float64) (*imageMeasure, error) {
+			im := &imageMeasure{fi: newRotor(int64(m), int64(wn)), gi: newRotor(gm, int64(wn)), ff: newRotor(int64(m), int64(wn)), gf: newRotor(gm, int64(wn)),
+				fam: newFamilyOut(outNum, wn, m)}
+			tone := []toneGen{{f, amp, phase}}
+			seen := 0
+			_, _, _, err := streamTo(ctx, newChainState(c, w), c, need(skip+wn), skip, wn, signalGen(tone, noise, rng, fin), func(yi, yf []float64, j0 int) {
+				seen += len(yi)
+				im.add(yi, yf, j0)
+			})
+			if err != nil {
+				return nil, err
+			}
+			if seen != wn {
+				return nil, fmt.Errorf("fixed: bit-true image run measured %d of %d output samples (an internal miscount of the input needed)", seen, wn)
+			}
+			return im, nil
+		}
+		phase := 2 * math.Pi * rng.Float64()
+		im, err := run(phase)
+		if err != nil {
+			return err
+		}
+		edge := (2*gm%int64(wn)+int64(wn))%int64(wn) == 0
+		aif, aig := im.fi.amplitude(false, wn), im.gi.amplitude(edge, wn)
+		aff, afg := im.ff.amplitude(false, wn), im.gf.amplitude(edge, wn)
+		if n, sum := pathsInBin(q, g, f, fin, nm); n > 1 {
+			im2, err := run(phase + math.Pi/2)
+			if err != nil {
+				return err
+			}
+			aig = worstPhase(im.gi.complex(wn), im2.gi.complex(wn))
+			afg = worstPhase(im.gf.complex(wn), im2.gf.complex(wn))
+			res.AliasResponseDB = posDB(sum / q.Gain(f))
+		}
+		res.AliasRejectionDB = posDB(aig / aif)
+		res.AliasFloatRunDB = posDB(afg / aff)
+		// The noise in g's bin: what is left of the output once its mean
+		// and the tone's family are removed, per dimension left.
+		fw := float64(wn)
+		mean := im.y1 / fw
+		left, dims := im.y2-fw*mean*mean-im.fam.energy(), im.fam.dims()+1
+		if im.fam.holdsDC() {
+			left, dims = left+fw*mean*mean, dims-1 // the family holds the mean
+		}
+		resid := math.Sqrt(math.Max(0, left) / float64(max(1, wn-dims)))
+		res.AliasNoiseDB = posDB(2 * resid / math.Sqrt(fw) / aif)
+		res.AliasValid = res.AliasNoiseDB >= res.AliasRejectionDB+20
+		if res.AliasValid || res.AliasNoiseDB+12 < res.AliasRejectionDB+20 || skip+4*wn > autoOutputSamples || wn >= 16*win0 {
+			break
+		}
+	}
+	return nil
+}
+
+// ratioText writes num/den, or num alone when den is 1.
+func ratioText(num, den int) string {
+	if den == 1 {
+		return fmt.Sprint(num)
+	}
+	return fmt.Sprintf("%d/%d", num, den)
 }

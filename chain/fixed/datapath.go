@@ -195,12 +195,17 @@ type StageWidths struct {
 	// unless a product would pass 63 bits). PhaseGainMin and PhaseGainMax
 	// are the smallest and largest DC gain of one output phase (the sum
 	// of a polyphase phase's quantised taps; a Farrow stage's at each of
-	// its Up quantised mu); Gain is their mean over the Up phases.
+	// its Up quantised mu); Gain is their mean over the Up phases. In an
+	// interpolation cascade (the transpose; Up and Down its own, M and L
+	// of the chain's L/M) a Farrow stage's HornerBits is the register of
+	// its mu products, the input word shifted left HornerGuard bits, and
+	// its phases are its M output phases.
 	Up, Down                   int
 	Farrow                     bool
 	FarrowRows                 int
 	MuBits                     int
 	HornerBits, HornerDrop     int
+	HornerGuard                int
 	PhaseGainMin, PhaseGainMax float64
 	// InputRate is the rate of the stage's input samples in Hz (OutputRate
 	// gives its output's; HighRate the one its taps run at).

@@ -243,8 +243,9 @@
 //
 // A decimation chain that ends in a fractional stage (chain.PolyphaseStage
 // or chain.FarrowStage, L = Up, M = Down) gets word lengths, the bit-true
-// run and the quantised analysis as any other; FromChain refuses an
-// interpolation chain with one (ErrFractional). The stage's Stage has
+// run and the quantised analysis as any other; an interpolation chain
+// that begins with one gets them too, for its transpose (Interpolation,
+// below). The stage's Stage has
 // R = 1, Up and Down set, and Bands: its (equivalent) prototype's, at
 // L Fm (Fm its input rate), unit gain: [0, fp] within Dp and
 // chain.PolyphaseBands within Ds, as the chain package designs the
@@ -336,6 +337,55 @@
 // figure is. A
 // noise-shaped input (Signal.Shaper) is refused. Model and RunCodes run
 // the fractional stage too.
+//
+// In an interpolation chain the fractional stage comes first in signal
+// order and is the transpose of the chain's L/M stage: it raises the rate
+// by M/L. Its Stage has Up = M and Down = L (its own rate change; the
+// bands stay the prototype's at L Fm). Its rules, which every model of it
+// implements exactly:
+//   - polyphase: chain.Run's transpose, the M/L resampler of the same
+//     prototype (chain.Resample up M, down L): the rules above with L and
+//     M swapped, the coefficients the prototype times M. Priced as the
+//     transpose, as package cost prices it: ceil(N/L) multiplies per input
+//     sample into as many partial sums (its data memory);
+//   - Farrow: the coefficient matrix times M/L (the transpose's gain),
+//     quantised as above, MuBits as above. Input m sits at m M / L output
+//     samples, rounded as the decimation stage's output m is (b whole
+//     samples, mu_q; mu rounding to 1 moves it to b + 1 with mu 0). Its
+//     mu products are w_0 = x 2^G and w_p = round(w_(p-1) mu_int /
+//     2^MuBits) (halves up), G = max(2, Bout - Bin + 4) (HornerGuard): four
+//     bits below the output's LSB (our choice). Output k = b - N/2 + 1 + n
+//     (n = 0..N-1) gains sum_p c_p[n] w_p, exact; an output is final once
+//     no later input reaches it (inputs m with floor(m M / L) - N/2 + 1 >
+//     k); its sum, in an accumulator sized for the worst case of each of
+//     the M output phases (each product's extreme over the input word,
+//     w_p being monotone in the input), is rounded half up at OutputShift =
+//     Frac + G + Bin - Bout and saturated. HornerBits is the mu products'
+//     register, Bin + G. Each output phase's DC gain (PhaseGainMin/Max, the
+//     mean Gain) is its sum of c_p[n] mu_q^p over 2^Frac: its inputs are
+//     sparser than its outputs, so these differ widely (the images the
+//     later stages remove), and an input above 1 / PhaseGainMax of full
+//     scale saturates the highest phase (a rounding point says so). Cost:
+//     (P+1) N + P multiplies per input sample, N partial sums of data.
+//
+// The quantised stage, with the mu products exact, is the transpose of the
+// decimation structure of the same rows and mu, so QuantisedChain holds it
+// as a chain.PolyphaseStage of that structure's prototype reversed in time
+// (a delay changes no gain; chain.Analyze takes an interpolation chain's
+// paths from the transpose's), over M/L. The bit-true run puts the test
+// tones at the channel rate; the output repeats its phases every P = R M
+// output samples, L input samples (R the integer stages' interpolation),
+// and every image of a tone at f lies at +-f + j F_in / L: its window spans
+// a multiple of 2L input samples (at least 32 L), the SNR leaves out each
+// tone's family (the signals Re(c_(j mod P) e^(i 2 pi f j / F_out)), which
+// span exactly those frequencies), and the noise it removed with them is
+// made up for by taking the noise per dimension left. The image test's
+// tone is at y, where the quantised chain's worst image g (chain.Analysis'
+// WorstAliasHz through WorstPath, in the decimation view) comes from,
+// moved to the window's grid with g; where two paths of the real tone
+// meet at g (at multiples of F_in / (2 L)) it is run twice a quarter cycle
+// apart and the worst phase's figure taken, as the decimation run does.
+// The default tones are lowered by the largest DC gain of any phase.
 //
 // # Cost
 //

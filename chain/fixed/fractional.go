@@ -4,17 +4,30 @@ import (
 	"fmt"
 	"math"
 	"math/bits"
+	"slices"
 
 	"github.com/stepdown-dsp/stepdown/chain"
 	"github.com/stepdown-dsp/stepdown/chain/farrow"
 	"github.com/stepdown-dsp/stepdown/chain/remez"
 )
 
-// The fractional stage of a decimation cascade (package doc, Fractional
-// stages): a polyphase L/M stage or a Farrow stage, always the last.
+// The fractional stage of a cascade (package doc, Fractional stages): a
+// polyphase L/M stage or a Farrow stage, the last of a decimation cascade
+// and the first of an interpolation cascade, where it is the transpose.
 
 // fractional says whether st is a fractional stage.
 func (st Stage) fractional() bool { return st.Up > 0 }
+
+// fracView returns a fractional stage's rate change in its chain's
+// decimation view, L/M (chain.PolyphaseStage's Up and Down): the stage's
+// own Up and Down in a decimation cascade; swapped in an interpolation
+// cascade, whose stage is the transpose and changes the rate by M/L.
+func (st Stage) fracView() (l, m int) {
+	if st.Interpolate {
+		return st.Down, st.Up
+	}
+	return st.Up, st.Down
+}
 
 // Fractional says whether the cascade has a fractional stage (Stage.Up
 // set): the hand-off packages refuse it, being written for chains of
@@ -70,8 +83,11 @@ func (st Stage) Farrow0() []float64 {
 }
 
 // fracFromChain is the fractional stage s (chain.PolyphaseStage or
-// chain.FarrowStage), at place k in signal order, of a decimation chain.
-func fracFromChain(s chain.Stage, k int) (Stage, error) {
+// chain.FarrowStage), at place k in signal order. In an interpolation
+// chain (interp) it is the transpose: its Up and Down are swapped, so that
+// they state its own rate change in signal order (fracView gives the
+// chain's back), and its taps and bands stay the chain's.
+func fracFromChain(s chain.Stage, k int, interp bool) (Stage, error) {
 	var req chain.FractionalRequirement
 	var st Stage
 	switch v := s.(type) {
@@ -98,6 +114,9 @@ func fracFromChain(s chain.Stage, k int) (Stage, error) {
 		return Stage{}, fmt.Errorf("fixed: stage %d carries no requirement (Dp %g, Ds %g, passband %g Hz)", k+1, req.Dp, req.Ds, req.Passband)
 	}
 	st.Bands = fracBands(req, st.Up)
+	if interp {
+		st.Up, st.Down = st.Down, st.Up
+	}
 	return st, nil
 }
 
@@ -110,9 +129,6 @@ func fracBands(r chain.FractionalRequirement, up int) []remez.Band {
 
 // planFractional plans the fractional stage st at input rate rate.
 func planFractional(st Stage, rate float64, in, ob, coefBits int, s Settings, minBits int) (StageWidths, error) {
-	if st.Interpolate {
-		return StageWidths{}, ErrFractional
-	}
 	if st.Farrow != nil {
 		return planFarrow(st, rate, in, ob, coefBits, s, minBits)
 	}
@@ -124,11 +140,13 @@ func planFractional(st Stage, rate float64, in, ob, coefBits int, s Settings, mi
 // searches from widthEstimate, narrowestWidth),
 // each output the exact sum of one phase's products in an accumulator
 // that holds every phase's extremes, rounded half up at OutputShift and
-// saturated.
+// saturated. An interpolation cascade's stage (the transpose of the
+// chain's L/M) is the polyphase M/L stage of the same prototype: the same
+// rules with L and M swapped (st's own Up and Down).
 func planPolyphase(st Stage, rate float64, in, ob, coefBits int, s Settings, minBits int) (StageWidths, error) {
 	l := st.Up
 	scaled := scaledStage(st, float64(l))
-	scaled.R = 1
+	scaled.R, scaled.Interpolate = 1, false
 	prate := rate * float64(l)
 	sw, err := planFIR(scaled, prate, in, ob, coefBits, s, minBits)
 	if err != nil {
@@ -174,6 +192,17 @@ func planPolyphase(st Stage, rate float64, in, ob, coefBits int, s Settings, min
 		sw.CoefMemoryBits = n * cf.Bits
 	}
 	sw.DataMemoryBits = k * in
+	if st.Interpolate {
+		// Priced as the transpose, as package cost prices it, per input
+		// sample (the stage's low rate): each input multiplied by the
+		// ceil(N/M) taps of one phase of the chain's L/M stage into as
+		// many partial sums, which are the data memory. Its outputs are
+		// the same exact sums, so the figures above hold bit for bit.
+		kt := (n + st.Down - 1) / st.Down
+		sw.MultipliesPerSample = kt
+		sw.DataMemoryBits = kt * acc
+		sw.Points = append(sw.Points, fmt.Sprintf("built as the transpose: each input times one phase's %d taps into %d partial sums of %d bits", kt, kt, acc))
+	}
 	return sw, nil
 }
 
@@ -262,31 +291,52 @@ func farrowQuantProto(cf Coefficients, rows, n, up, muBits int) []float64 {
 	return out
 }
 
-// farrowFloatProto is chain.FarrowPrototype of the stage's float rows.
+// farrowFloatProto is chain.FarrowPrototype of the stage's float rows (in
+// the chain's decimation view, fracView).
 func farrowFloatProto(st Stage) []float64 {
-	taps, err := chain.FarrowPrototype(chain.FarrowStage{Up: st.Up, Down: st.Down, Filter: farrow.Filter{Coef: st.Farrow}})
+	l, m := st.fracView()
+	taps, err := chain.FarrowPrototype(chain.FarrowStage{Up: l, Down: m, Filter: farrow.Filter{Coef: st.Farrow}})
 	if err != nil {
 		panic(fmt.Sprintf("fixed: a Farrow stage FromChain took is refused by chain.FarrowPrototype: %v", err))
 	}
 	return taps
 }
 
-// planFarrow plans a Farrow stage (package doc, Fractional stages).
+// planFarrow plans a Farrow stage (package doc, Fractional stages): its
+// coefficient matrix at one width and scale, then the decimation data path
+// (Horner's rule) or, in an interpolation cascade, the transposed one
+// (planFarrowT).
 func planFarrow(st Stage, rate float64, in, ob, coefBits int, s Settings, minBits int) (StageWidths, error) {
-	rows, n, l := len(st.Farrow), len(st.Farrow[0]), st.Up
+	rows, n := len(st.Farrow), len(st.Farrow[0])
+	l, m := st.fracView()
+	// An interpolation cascade's stage carries the transpose's gain M/L
+	// (the rate raised) in its coefficients, as a polyphase stage carries
+	// its L; its prototype is compared with the bands at unit gain.
+	g := 1.0
+	if st.Interpolate {
+		g = float64(m) / float64(l)
+	}
 	flat := make([]float64, 0, rows*n)
 	for _, r := range st.Farrow {
-		flat = append(flat, r...)
+		for _, v := range r {
+			flat = append(flat, v*g)
+		}
 	}
-	prate := rate * float64(l)
+	prate := rate * float64(st.Up) // L times the chain's Fm either way
 	density := s.Quant.Density
-	sw := StageWidths{R: 1, Up: l, Down: st.Down, Farrow: true, FarrowRows: rows, InputBits: in, OutputBits: ob}
+	sw := StageWidths{R: 1, Up: st.Up, Down: st.Down, Farrow: true, FarrowRows: rows, InputBits: in, OutputBits: ob}
 	var bands []remez.Band
 	sw.FloatDeviations, sw.FloatMeets, bands = floatTargets(farrowFloatProto(st), prate, st.Bands, density)
 	try := func(b int) (Coefficients, int, []float64, bool) {
 		cf := Quantize(flat, b)
 		mb := defaultMuBits(b, l, s)
-		dev := Deviations(farrowQuantProto(cf, rows, n, l, mb), prate, bands, density)
+		proto := farrowQuantProto(cf, rows, n, l, mb)
+		if g != 1 {
+			for j := range proto {
+				proto[j] /= g
+			}
+		}
+		dev := Deviations(proto, prate, bands, density)
 		return cf, mb, dev, Meets(dev, bands)
 	}
 	var cf Coefficients
@@ -313,6 +363,9 @@ func planFarrow(st Stage, rate float64, in, ob, coefBits int, s Settings, minBit
 	}
 	sw.MeetsBands = sw.MeetsBands && sw.FloatMeets
 	sw.Coefficients, sw.MuBits = cf, mb
+	if st.Interpolate {
+		return planFarrowT(sw, st, in, ob)
+	}
 	// Branch accumulators, each as an FIR's; the Horner register holds
 	// the sum of the branches' largest magnitudes (mu < 1, and a product
 	// rounded to the register's LSB is at most its operand in magnitude).
@@ -410,8 +463,21 @@ func planFarrow(st Stage, rate float64, in, ob, coefBits int, s Settings, minBit
 // fracProto returns the prototype of the planned fractional stage, at Up
 // times its input rate and unit gain: the float one (the design) or the
 // quantised one (coefficients and mu as built, Horner roundings left out).
+// An interpolation cascade's quantised Farrow stage is the transpose of
+// the decimation structure of the same rows and mu, so its prototype is
+// that structure's (farrowQuantProto) reversed in time, over the gain M/L
+// its coefficients carry: the prototype of the chain's L/M stage whose
+// transpose (chain.Resample up M, down L) it is exactly, to a delay.
 func (sw *StageWidths) fracProto(st Stage, quantised bool) []float64 {
 	switch {
+	case st.Farrow != nil && quantised && st.Interpolate:
+		l, m := st.fracView()
+		p := farrowQuantProto(sw.Coefficients, len(st.Farrow), len(st.Farrow[0]), l, sw.MuBits)
+		slices.Reverse(p)
+		for j := range p {
+			p[j] *= float64(l) / float64(m)
+		}
+		return p
 	case st.Farrow != nil && quantised:
 		return farrowQuantProto(sw.Coefficients, len(st.Farrow), len(st.Farrow[0]), st.Up, sw.MuBits)
 	case st.Farrow != nil:
@@ -659,6 +725,9 @@ func (s *farrowFloat) run(x, out []float64) []float64 {
 // newFracFilters returns the integer and float data paths of the planned
 // fractional stage st.
 func newFracFilters(st Stage, sw *StageWidths) (intFilter, floatFilter) {
+	if st.Farrow != nil && st.Interpolate {
+		return newFarrowTInt(sw), newFarrowTFloat(st)
+	}
 	if st.Farrow != nil {
 		return newFarrowInt(sw), newFarrowFloat(st, sw.MuBits)
 	}
@@ -671,22 +740,33 @@ func newFracFilters(st Stage, sw *StageWidths) (intFilter, floatFilter) {
 
 // quantisedFrac returns the fractional stage s of a chain as it will be
 // built, for chain.Analyze: a chain.PolyphaseStage whose prototype is the
-// quantised one (fracProto): a polyphase stage's quantised taps over L;
-// a Farrow stage's response at its quantised output times, an L-phase
-// polyphase filter (farrowQuantProto). The Horner roundings are noise,
-// measured by the bit-true run, not a response.
-func quantisedFrac(s chain.Stage, sw *StageWidths) chain.Stage {
+// quantised one (fracProto): a polyphase stage's quantised taps over L
+// (over M in an interpolation chain, interp, whose transpose multiplies
+// by M); a Farrow stage's response at its quantised output times, an
+// L-phase polyphase filter (farrowQuantProto; its transpose's in an
+// interpolation chain). The Horner roundings (the transpose's rounded mu
+// products) are noise, measured by the bit-true run, not a response.
+func quantisedFrac(s chain.Stage, sw *StageWidths, interp bool) chain.Stage {
+	// The planner's view of s: its own rate change in signal order.
+	own := func(up, down int) (int, int) {
+		if interp {
+			return down, up
+		}
+		return up, down
+	}
 	switch st := s.(type) {
 	case *chain.PolyphaseStage:
-		return quantisedFrac(*st, sw)
+		return quantisedFrac(*st, sw, interp)
 	case *chain.FarrowStage:
-		return quantisedFrac(*st, sw)
+		return quantisedFrac(*st, sw, interp)
 	case chain.PolyphaseStage:
-		st.Taps = sw.fracProto(Stage{Up: st.Up, Down: st.Down, Taps: st.Taps}, true)
+		u, d := own(st.Up, st.Down)
+		st.Taps = sw.fracProto(Stage{Up: u, Down: d, Taps: st.Taps, Interpolate: interp}, true)
 		st.Length = len(st.Taps)
 		return st
 	case chain.FarrowStage:
-		fs := Stage{Up: st.Up, Down: st.Down, Farrow: st.Filter.Coef}
+		u, d := own(st.Up, st.Down)
+		fs := Stage{Up: u, Down: d, Farrow: st.Filter.Coef, Interpolate: interp}
 		taps := sw.fracProto(fs, true)
 		return chain.PolyphaseStage{Up: st.Up, Down: st.Down, Taps: taps, Length: len(taps), Req: st.Req}
 	}

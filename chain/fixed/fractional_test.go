@@ -539,20 +539,28 @@ func bruteFracRejection(cas Cascade, ws *Widths, fa float64) float64 {
 	rates := cas.Rates()
 	k := len(cas.Stages) - 1
 	sw := &ws.Stages[k]
-	proto := bruteProto(sw)
-	fm, fk := rates[k], rates[k+1]
-	prate := fm * float64(sw.Up)
+	var taps [][]float64
+	for i := range k {
+		taps = append(taps, ws.Stages[i].Coefficients.Float())
+	}
+	return bruteFracRejectionOf(taps, rates[:k], bruteProto(sw), sw.Up, sw.Down, rates[k], rates[k+1], cas.InputRate/2, fa, cas.Complex)
+}
+
+// bruteFracRejectionOf is bruteFracRejection on the decimation view: FIR
+// stages taps[i] at rates[i], then the fractional L/M stage (up, down) of
+// prototype proto from fm to fk; f0h is half the high rate.
+func bruteFracRejectionOf(taps [][]float64, rates, proto []float64, up, down int, fm, fk, f0h, fa float64, complexSig bool) float64 {
+	prate := fm * float64(up)
 	a := func(g float64) float64 {
 		v := 1.0
-		for i := range k {
-			v *= dtft(ws.Stages[i].Coefficients.Float(), g, rates[i])
+		for i, h := range taps {
+			v *= dtft(h, g, rates[i])
 		}
 		return v
 	}
 	g0 := a(0) * dtft(proto, 0, prate)
 	worst := 0.0
-	f0h := cas.InputRate / 2
-	for path := range sw.Up {
+	for path := range up {
 		shift := float64(path) * fm
 		gain := func(g float64) float64 { return a(g) * dtft(proto, g+shift, prate) }
 		for nn := int(math.Floor((shift - fa) / fk)); float64(nn)*fk-shift-fa <= f0h; nn++ {
@@ -586,7 +594,7 @@ func bruteFracRejection(cas Cascade, ws *Widths, fa float64) float64 {
 			worst = math.Max(worst, math.Max(best, gain((x0+x1)/2)))
 		}
 	}
-	if !cas.Complex {
+	if !complexSig {
 		// A real tone's paths that land on one output frequency add;
 		// two can meet only at multiples of Fm / (2 M) (package chain,
 		// Fractional stages): there the paths are summed by where they
@@ -595,11 +603,11 @@ func bruteFracRejection(cas Cascade, ws *Widths, fa float64) float64 {
 			f = math.Mod(f, fk)
 			return math.Min(f, fk-f)
 		}
-		step := fm / float64(2*sw.Down)
+		step := fm / float64(2*down)
 		for j := 0; float64(j)*step <= f0h; j++ {
 			g := float64(j) * step
 			land := map[int64]float64{}
-			for path := range sw.Up {
+			for path := range up {
 				y := fold(g + float64(path)*fm)
 				if (path == 0 && g <= fa) || y > fa*(1+1e-12) {
 					continue
@@ -675,29 +683,6 @@ func TestFractionalQuantisedAnalyzeBruteForce(t *testing.T) {
 		}
 	}
 	t.Logf("Analyze at most %.4f dB below the dense scan; bit-true alias tones within %.3f dB of the response (%d valid)", worstGap, worstTone, checked)
-}
-
-// TestFractionalInterpolationRefused: an interpolation chain with a
-// fractional stage is refused with ErrFractional (word lengths are
-// planned for a decimation chain's fractional stage only).
-func TestFractionalInterpolationRefused(t *testing.T) {
-	rng := rand.New(rand.NewPCG(14, 25))
-	down, c := randomFracChain(rng, false)
-	if c == nil {
-		t.Fatal("no chain")
-	}
-	up := down
-	up.InputRate, up.OutputRate = down.OutputRate, down.InputRate
-	ci, err := chain.Design(up, c.Plan, chain.Settings{MaxTaps: 300})
-	if err != nil {
-		t.Fatal(err)
-	}
-	if _, _, err := FromChain(up, ci); !errors.Is(err, ErrFractional) {
-		t.Errorf("FromChain of %s (interpolation): %v, want ErrFractional", chain.Notation(c.Plan), err)
-	}
-	if _, err := Evaluate(up, ci, Settings{}, Signal{}); !errors.Is(err, ErrFractional) {
-		t.Errorf("Evaluate: %v, want ErrFractional", err)
-	}
 }
 
 // TestFractionalStopped: a cancelled context stops the plan and the

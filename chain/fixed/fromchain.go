@@ -9,11 +9,6 @@ import (
 	"github.com/stepdown-dsp/stepdown/chain"
 )
 
-// ErrFractional is FromChain's error for an interpolation chain with a
-// fractional stage (chain.Polyphase, chain.Farrow): word lengths and the
-// bit-true run are planned for a decimation chain's fractional stage only.
-var ErrFractional = errors.New("fixed: word lengths are planned for a fractional stage (polyphase or farrow) in a decimation chain only; an interpolation chain's has its float design alone")
-
 // ErrFractionalAfterCIC is FromChain's error for a chain whose polyphase
 // stage follows its CIC (not the last stage): its word lengths are not
 // planned; the chain keeps its float design.
@@ -32,8 +27,9 @@ var ErrFractionalAfterCIC = errors.New("fixed: word lengths are planned for a fr
 // signal order, c.SignalOrder() (Cascade.Stages[k] is c.Stages[
 // c.SignalOrder()[k]]), each with Stage.Interpolate set, from the channel
 // rate (Cascade.InputRate = c.OutputRate()). Its taps and bands are the
-// transpose's, at each stage's high rate. Stage numbers in errors count in
-// signal order.
+// transpose's, at each stage's high rate; its fractional stage, the
+// first, is the transpose of the chain's L/M (Up M, Down L: package doc,
+// Fractional stages). Stage numbers in errors count in signal order.
 func FromChain(spec chain.Spec, c *chain.Chain) (Cascade, Words, error) {
 	spec, err := spec.Normalize()
 	if err != nil {
@@ -46,9 +42,6 @@ func FromChain(spec chain.Spec, c *chain.Chain) (Cascade, Words, error) {
 		return Cascade{}, Words{}, fmt.Errorf("fixed: the chain's direction, %s, is not the spec's, %s", c.Direction, spec.Direction())
 	}
 	interp := c.Direction == chain.Interpolate
-	if last := c.Stages[len(c.Stages)-1].Kind(); last.Fractional() && interp {
-		return Cascade{}, Words{}, ErrFractional
-	}
 	for _, s := range c.Stages[:len(c.Stages)-1] {
 		if s.Kind().Fractional() {
 			return Cascade{}, Words{}, ErrFractionalAfterCIC
@@ -74,11 +67,11 @@ func FromChain(spec chain.Spec, c *chain.Chain) (Cascade, Words, error) {
 		case *chain.FIRStage:
 			fs, err = firFromChain(*st, c, rates, i, k)
 		case chain.PolyphaseStage, chain.FarrowStage:
-			fs, err = fracFromChain(st, k)
+			fs, err = fracFromChain(st, k, interp)
 		case *chain.PolyphaseStage:
-			fs, err = fracFromChain(*st, k)
+			fs, err = fracFromChain(*st, k, interp)
 		case *chain.FarrowStage:
-			fs, err = fracFromChain(*st, k)
+			fs, err = fracFromChain(*st, k, interp)
 		default:
 			err = fmt.Errorf("fixed: stage %d is a %T; FromChain takes chain.CICStage, chain.FIRStage, chain.PolyphaseStage and chain.FarrowStage values", k+1, st)
 		}
@@ -398,7 +391,7 @@ func QuantisedChain(c *chain.Chain, w *Widths) *chain.Chain {
 			cp.Taps = w.Stages[at[i]].Coefficients.Float()
 			q.Stages[i] = cp
 		case chain.PolyphaseStage, chain.FarrowStage, *chain.PolyphaseStage, *chain.FarrowStage:
-			q.Stages[i] = quantisedFrac(s, &w.Stages[at[i]])
+			q.Stages[i] = quantisedFrac(s, &w.Stages[at[i]], c.Direction == chain.Interpolate)
 		default:
 			panic(fmt.Sprintf("fixed: QuantisedChain with widths of another chain (stage %d is a %T, which FromChain refuses)", i+1, s))
 		}

@@ -42,21 +42,26 @@ func cascadeChain(c Cascade, w *Widths, quantised bool) (*chain.Chain, chain.Spe
 		ch.Stages = append(ch.Stages, chain.FIRStage{R: st.R, Taps: taps, Length: len(taps), HalfBand: st.HalfBand})
 	}
 	if frac {
-		// A fractional chain's analysis reads its plan.
-		for _, s := range ch.Stages {
-			p := chain.StagePlan{Kind: s.Kind(), Factor: s.Factor()}
-			switch st := s.(type) {
-			case chain.CICStage:
-				p.CICOrder, p.CICDelay = st.N, st.M
-			case chain.PolyphaseStage:
-				p.Up, p.Down = st.Up, st.Down
-			}
-			ch.Plan = append(ch.Plan, p)
-		}
+		addPlan(ch)
 	}
 	spec := chain.Spec{InputRate: c.InputRate, OutputRate: c.ChannelRate(), Passband: c.Passband,
 		Protected: c.Protected, RippleDB: 1, RejectionDB: 1, Complex: c.Complex}
 	return ch, spec
+}
+
+// addPlan gives a fractional chain built from a cascade the plan its
+// analysis reads.
+func addPlan(ch *chain.Chain) {
+	for _, s := range ch.Stages {
+		p := chain.StagePlan{Kind: s.Kind(), Factor: s.Factor()}
+		switch st := s.(type) {
+		case chain.CICStage:
+			p.CICOrder, p.CICDelay = st.N, st.M
+		case chain.PolyphaseStage:
+			p.Up, p.Down = st.Up, st.Down
+		}
+		ch.Plan = append(ch.Plan, p)
+	}
 }
 
 // cicScale returns the product of the CIC stages' DC gains (StageWidths.Gain),
@@ -71,13 +76,24 @@ func cicScale(w *Widths) float64 {
 	return p
 }
 
-// transposeChain is cascadeChain for an interpolation cascade.
+// transposeChain is cascadeChain for an interpolation cascade. Its
+// fractional stage, the first in signal order, becomes the last of the
+// transpose: a chain.PolyphaseStage of the chain's L/M (fracView) whose
+// prototype is the float or quantised one (fracProto).
 func transposeChain(c Cascade, w *Widths, quantised bool) (*chain.Chain, chain.Spec) {
-	l := c.Ratio()
-	high := c.InputRate * float64(l)
+	rates := c.Rates()
+	high := rates[len(rates)-1]
 	ch := &chain.Chain{InputRate: high, Complex: c.Complex, Direction: chain.Interpolate, Designed: true}
+	frac := false
 	for i := len(c.Stages) - 1; i >= 0; i-- {
 		st := c.Stages[i]
+		if st.fractional() {
+			l, m := st.fracView()
+			taps := w.Stages[i].fracProto(st, quantised)
+			ch.Stages = append(ch.Stages, chain.PolyphaseStage{Up: l, Down: m, Taps: taps, Length: len(taps)})
+			frac = true
+			continue
+		}
 		if st.CIC {
 			ch.Stages = append(ch.Stages, chain.CICStage{N: st.N, M: st.M, R: st.R, Interpolator: true})
 			continue
@@ -87,6 +103,9 @@ func transposeChain(c Cascade, w *Widths, quantised bool) (*chain.Chain, chain.S
 			taps = w.Stages[i].Coefficients.Float()
 		}
 		ch.Stages = append(ch.Stages, chain.FIRStage{R: st.R, Taps: taps, Length: len(taps), HalfBand: st.HalfBand})
+	}
+	if frac {
+		addPlan(ch)
 	}
 	spec := chain.Spec{InputRate: c.InputRate, OutputRate: high, Passband: c.Passband,
 		Protected: c.Protected, RippleDB: 1, RejectionDB: 1, Complex: c.Complex}

@@ -37,19 +37,18 @@
 // phase_taps ceil(taps/L); a Farrow stage's farrow_coefficients are
 // chain/farrow's Filter.Coef, one row of taps per power of mu, lowest
 // first (farrow_degree+1 rows), and farrow_convention is the sentence
-// farrow.Convention. A decimation chain with a fractional stage gets word
-// lengths and bit-true figures as any other (AddWordLengths; package
-// chain/fixed, Fractional stages): the fractional stage's
-// coefficients_int are its prototype times L (polyphase) or its Farrow
-// rows one after the other, coefficient_rows of them (row p multiplies
-// mu^p), at one scale; a Farrow stage adds mu_bits and horner_bits, and
-// both phase_dc_gain_min_db and phase_dc_gain_max_db (dc_gain_db is the
-// mean over the L phases); accumulator_bits is the widest phase's or
-// branch's. It has no hand-off (NoHandoff). An interpolation chain with
-// a fractional stage has no word lengths: word_lengths_error holds
-// fixed.ErrFractional's sentence, the verdict stays on the float design
-// (verdict_basis "float taps") whatever words.coefficients says, and there
-// are no integer files. Its coefficient files
+// farrow.Convention. A chain with a fractional stage, decimation or
+// interpolation, gets word lengths and bit-true figures as any other
+// (AddWordLengths; package chain/fixed, Fractional stages): the fractional
+// stage's coefficients_int are its prototype times L, its interpolation
+// in signal order (polyphase), or its Farrow rows one after the other,
+// coefficient_rows of them (row p multiplies mu^p; in an interpolation
+// chain times L/M, the transpose's gain), at one scale; a Farrow stage
+// adds mu_bits and horner_bits (in an interpolation chain the register of
+// its mu products), and both phase_dc_gain_min_db and
+// phase_dc_gain_max_db (dc_gain_db is the mean over the phases);
+// accumulator_bits is the widest phase's or branch's. It has no hand-off
+// (NoHandoff). Its coefficient files
 // are stage<i>_polyphase.csv (index,coefficient, like a FIR's) or
 // stage<i>_farrow.csv (FarrowCSV: '#' comment lines that say it is
 // planning data and give the convention, then index,mu0,...,muP and one

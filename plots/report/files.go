@@ -64,7 +64,7 @@ func CoefficientFiles(c Chain, ints bool) ([]File, error) {
 
 // NoHandoff is the one line that says why a fractional chain's output
 // folder has no hand-off (headers/, vectors/, rtl/).
-const NoHandoff = "no hand-off (headers/, vectors/, rtl/): it is written for chains of integer stages only, and this chain has a fractional stage (a decimation chain's has its word lengths and bit-true figures in report.json; an interpolation chain's its float design alone)"
+const NoHandoff = "no hand-off (headers/, vectors/, rtl/): it is written for chains of integer stages only, and this chain has a fractional stage (its word lengths and bit-true figures are in report.json)"
 
 // FractionalReadme is coefficients/README.txt of a fractional chain: what
 // each coefficient file holds, the Farrow convention, and NoHandoff.

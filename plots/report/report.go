@@ -597,21 +597,15 @@ func fractionalLM(up, down int, interp bool) (l, m int) {
 // Once ctx is done the planner stops and the chain gets only
 // WordLengthsError (and, with rounded set, does not meet).
 //
-// A decimation chain that ends in a fractional stage gets its word
-// lengths and bit-true figures as any other (package chain/fixed,
-// Fractional stages), but no hand-off (NoHandoff). An interpolation
-// chain with a fractional stage, or a decimation chain whose polyphase
-// stage follows the CIC, gets none: WordLengthsError is
-// fixed.ErrFractional's (fixed.ErrFractionalAfterCIC's) sentence, and the
-// chain keeps its float verdict
-// (VerdictBasis "float taps") whatever the spec's coefficient width, since
-// nothing of it is rounded.
+// A chain with a fractional stage (the last of a decimation chain, the
+// first of an interpolation chain) gets its word lengths and bit-true
+// figures as any other (package chain/fixed, Fractional stages), but no
+// hand-off (NoHandoff). A chain whose polyphase stage follows the CIC
+// gets none: WordLengthsError is fixed.ErrFractionalAfterCIC's sentence,
+// and the chain keeps its float verdict (VerdictBasis "float taps")
+// whatever the spec's coefficient width, since nothing of it is rounded.
 func AddWordLengths(ctx context.Context, c *Chain, spec chain.Spec, cand optimize.Candidate, s fixed.Settings, withHardware, rounded bool) {
 	frac := Fractional(cand.Chain)
-	if frac && cand.Chain.Direction == chain.Interpolate {
-		c.WordLengthsError = strings.TrimPrefix(fixed.ErrFractional.Error(), "fixed: ")
-		return
-	}
 	if frac && !cand.Chain.Stages[len(cand.Chain.Stages)-1].Kind().Fractional() {
 		c.WordLengthsError = strings.TrimPrefix(fixed.ErrFractionalAfterCIC.Error(), "fixed: ")
 		return
