@@ -511,8 +511,8 @@
 // at F1 are its own to reject, lifted by up to 1/|H_cic(fp)|. The
 // checks above (brute force, tones through Run, DC spurs) cover these
 // chains too (TestAfterCICAnalyzeBruteForce). Package optimize offers the
-// placement alongside the other (its doc); fixed plans no word lengths
-// for it yet.
+// placement alongside the other (its doc); package fixed plans its word
+// lengths and bit-true run.
 //
 // Run runs both kinds: Resample (SciPy's upfirdn times L,
 // TestResampleSciPy) and farrow.Filter.Run at FarrowTimes. Package fixed

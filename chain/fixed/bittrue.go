@@ -227,13 +227,18 @@ func BitTrueContext(ctx context.Context, c Cascade, w *Widths, sig Signal) (BitT
 		return BitTrueResult{}, err
 	}
 	// Transient: the cascade's impulse response length in input samples
-	// (a fractional stage's span in its input samples), in output samples.
-	span, p := 1, 1
+	// (a fractional stage's span in its input samples; a stage after it
+	// takes Down/Up of them per sample), in output samples.
+	span, p := 1.0, 1.0
 	for _, st := range c.Stages {
-		span += (st.Length() - 1) * p
-		p *= st.R
+		span += float64(st.Length()-1) * p
+		if st.fractional() {
+			p *= float64(st.Down) / float64(st.Up)
+		} else {
+			p *= float64(st.R)
+		}
 	}
-	skip := (span*den+num-1)/num + 1
+	skip := int(math.Ceil(span*float64(den)/float64(num))) + 1
 	nm := sig.Samples
 	for auto && nm > 256 && c.inputsFor(skip+nm) > autoInputSamples {
 		nm /= 2

@@ -78,21 +78,25 @@ func bitTrueInterp(ctx context.Context, c Cascade, w *Widths, sig Signal) (BitTr
 	// stages' factors. A fractional stage's spans its prototype's taps at
 	// L Fm (a Farrow stage's N samples at Fm) and two samples of Fm more
 	// for its rounded times.
-	span, later := 1, l
-	for _, st := range c.Stages {
+	// Each stage's span, in samples at its rate, counts hi / that rate
+	// output samples (a stage after a fractional one runs at a rate that
+	// is no integer fraction of the output's).
+	rates := c.Rates()
+	hi := rates[len(rates)-1]
+	span := 1.0
+	for i, st := range c.Stages {
 		if st.fractional() {
 			lv, _ := st.fracView()
 			n := len(st.Farrow0())
 			if st.Farrow == nil {
 				n = (len(st.Taps) + lv - 1) / lv
 			}
-			span += (n + 2) * later
+			span += float64(n+2) * hi / rates[i]
 			continue
 		}
-		later /= st.R
-		span += (st.Length() - 1) * later
+		span += float64(st.Length()-1) * hi / rates[i+1]
 	}
-	skip := span + l
+	skip := int(math.Ceil(span)) + l
 	// phases: the output repeats its phases every outNum output samples,
 	// outDen input samples (one for an integer cascade). A fractional
 	// cascade's window spans a multiple of 2 outDen input samples, so

@@ -245,11 +245,18 @@
 // or chain.FarrowStage, L = Up, M = Down) gets word lengths, the bit-true
 // run and the quantised analysis as any other; an interpolation chain
 // that begins with one gets them too, for its transpose (Interpolation,
-// below). The stage's Stage has
+// below); so does a chain whose polyphase stage follows its CIC (chain
+// package, After the CIC; an interpolation chain's then comes just before
+// its CIC), whose stages run as a stream like any other's (the polyphase
+// stage's outputs feed the FIRs after it) and whose bit-true transient
+// counts each stage's span at its own rate, Down/Up input samples per
+// sample after the polyphase stage. The stage's Stage has
 // R = 1, Up and Down set, and Bands: its (equivalent) prototype's, at
-// L Fm (Fm its input rate), unit gain: [0, fp] within Dp and
-// chain.PolyphaseBands within Ds, as the chain package designs the
-// polyphase prototype. Its rules:
+// L Fm (Fm its input rate): chain.FractionalRequirement.Bands, as the
+// chain package designs the polyphase prototype (unit gain within Dp on
+// [0, fp] and chain.PolyphaseBands within Ds; after the CIC, the CIC's
+// compensation held flat to fa, and the transition held to unit gain).
+// Its rules:
 //   - polyphase L/M: the coefficients are the prototype times L (the data
 //     path's gain L in the taps), quantised as an FIR's (Quantize: one
 //     width and scale for the stage; "auto" by MinCoefBits on the bands

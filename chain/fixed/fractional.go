@@ -13,7 +13,8 @@ import (
 
 // The fractional stage of a cascade (package doc, Fractional stages): a
 // polyphase L/M stage or a Farrow stage, the last of a decimation cascade
-// and the first of an interpolation cascade, where it is the transpose.
+// and the first of an interpolation cascade, where it is the transpose,
+// or a polyphase stage next to the CIC.
 
 // fractional says whether st is a fractional stage.
 func (st Stage) fractional() bool { return st.Up > 0 }

@@ -106,17 +106,28 @@ func planFarrowT(sw StageWidths, st Stage, in, ob int) (StageWidths, error) {
 				ph = &phase{lo: new(big.Int), hi: new(big.Int)}
 				phases[k] = ph
 			}
+			// The input's term sum_p c_p w_p(x): w_p(x) is x 2^g mu^p
+			// plus a rounding error of at most p/2 (p products, each
+			// rounded half up, each error then shrunk by mu < 1), so the
+			// term is a line in x off by at most sum_p |c_p| p / 2: its
+			// extremes over the input word are those at the word's ends
+			// widened by sum_p |c_p| p, the safe side by a few LSBs. (The
+			// rows' extremes taken one by one would add extremes no one
+			// input makes: bits too many.)
 			dc := 0.0
+			vlo, vhi, slack := new(big.Int), new(big.Int), new(big.Int)
 			for p := rows - 1; p >= 0; p-- {
 				c := cf.Ints[p*n+j]
-				a, b := new(big.Int).Mul(big.NewInt(c), big.NewInt(wlo[p])), t.Mul(big.NewInt(c), big.NewInt(whi[p]))
-				if a.Cmp(b) > 0 {
-					a, b = b, a
-				}
-				ph.lo.Add(ph.lo, a)
-				ph.hi.Add(ph.hi, b)
+				vlo.Add(vlo, t.Mul(big.NewInt(c), big.NewInt(wlo[p])))
+				vhi.Add(vhi, t.Mul(big.NewInt(c), big.NewInt(whi[p])))
+				slack.Add(slack, t.Mul(big.NewInt(c), big.NewInt(int64(p))).Abs(t))
 				dc = dc*muf + float64(c)
 			}
+			if vlo.Cmp(vhi) > 0 {
+				vlo, vhi = vhi, vlo
+			}
+			ph.lo.Add(ph.lo, vlo.Sub(vlo, slack))
+			ph.hi.Add(ph.hi, vhi.Add(vhi, slack))
 			ph.gain += dc * scale
 		}
 	}

@@ -2,17 +2,11 @@ package fixed
 
 import (
 	"context"
-	"errors"
 	"fmt"
 	"math"
 
 	"github.com/stepdown-dsp/stepdown/chain"
 )
-
-// ErrFractionalAfterCIC is FromChain's error for a chain whose polyphase
-// stage follows its CIC (not the last stage): its word lengths are not
-// planned; the chain keeps its float design.
-var ErrFractionalAfterCIC = errors.New("fixed: word lengths are planned for a fractional stage that ends the chain; a polyphase stage after the CIC has its float design alone")
 
 // FromChain converts a designed chain and its spec into the planner's terms.
 // Each FIR and half-band stage must meet the bands of its chain.Requirement:
@@ -42,11 +36,6 @@ func FromChain(spec chain.Spec, c *chain.Chain) (Cascade, Words, error) {
 		return Cascade{}, Words{}, fmt.Errorf("fixed: the chain's direction, %s, is not the spec's, %s", c.Direction, spec.Direction())
 	}
 	interp := c.Direction == chain.Interpolate
-	for _, s := range c.Stages[:len(c.Stages)-1] {
-		if s.Kind().Fractional() {
-			return Cascade{}, Words{}, ErrFractionalAfterCIC
-		}
-	}
 	cas := Cascade{InputRate: c.InputRate, Complex: c.Complex, Interpolate: interp, Passband: spec.Passband, Protected: spec.Protected}
 	if interp {
 		cas.InputRate = c.OutputRate()

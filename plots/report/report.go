@@ -600,16 +600,10 @@ func fractionalLM(up, down int, interp bool) (l, m int) {
 // A chain with a fractional stage (the last of a decimation chain, the
 // first of an interpolation chain) gets its word lengths and bit-true
 // figures as any other (package chain/fixed, Fractional stages), but no
-// hand-off (NoHandoff). A chain whose polyphase stage follows the CIC
-// gets none: WordLengthsError is fixed.ErrFractionalAfterCIC's sentence,
-// and the chain keeps its float verdict (VerdictBasis "float taps")
-// whatever the spec's coefficient width, since nothing of it is rounded.
+// hand-off (NoHandoff), wherever it sits (a polyphase stage may follow
+// the CIC).
 func AddWordLengths(ctx context.Context, c *Chain, spec chain.Spec, cand optimize.Candidate, s fixed.Settings, withHardware, rounded bool) {
 	frac := Fractional(cand.Chain)
-	if frac && !cand.Chain.Stages[len(cand.Chain.Stages)-1].Kind().Fractional() {
-		c.WordLengthsError = strings.TrimPrefix(fixed.ErrFractionalAfterCIC.Error(), "fixed: ")
-		return
-	}
 	if rounded {
 		c.VerdictBasis = "rounded taps"
 		c.MeetsTargets = false
