@@ -3,6 +3,7 @@ package fixed
 import (
 	"math"
 	"math/bits"
+	"slices"
 	"sort"
 
 	"github.com/stepdown-dsp/stepdown/chain/remez"
@@ -191,7 +192,7 @@ func (b *ampBounds) errBound(f0, f1, d float64) float64 {
 // value is a lower bound of Deviations' result (the grid's largest value is
 // at one of its local maxima), so raising the running figure by it is
 // safe.
-func deviationBounded(b *remez.Band, fs []float64, ab *ampBounds, eval func(float64) float64) float64 {
+func deviationBounded(b *remez.Band, fs []float64, ab *ampBounds, h []float64, rate float64) float64 {
 	pts := len(fs)
 	d := b.Gain
 	ub := make([]float64, pts)
@@ -200,12 +201,33 @@ func deviationBounded(b *remez.Band, fs []float64, ab *ampBounds, eval func(floa
 	}
 	es := make([]float64, pts)
 	done := make([]bool, pts)
-	at := func(j int) float64 {
-		if !done[j] {
-			es[j] = bandErr(b, fs[j], eval(fs[j]))
-			done[j] = true
+	// errs writes bandErr at each of xs into out, the amplitudes evaluated
+	// together (remez.AmplitudeEach, Amplitude's bits).
+	amp := []float64{}
+	errs := func(xs, out []float64) {
+		amp = slices.Grow(amp[:0], len(xs))[:len(xs)]
+		remez.AmplitudeEach(h, xs, rate, amp)
+		for i, f := range xs {
+			out[i] = bandErr(b, f, amp[i])
 		}
-		return es[j]
+	}
+	// fill evaluates the grid points of js not yet evaluated.
+	var need []int
+	var xs, vs []float64
+	fill := func(js []int) {
+		need, xs = need[:0], xs[:0]
+		for _, j := range js {
+			if j >= 0 && j < pts && !done[j] {
+				done[j] = true
+				need = append(need, j)
+				xs = append(xs, fs[j])
+			}
+		}
+		vs = slices.Grow(vs[:0], len(xs))[:len(xs)]
+		errs(xs, vs)
+		for k, j := range need {
+			es[j] = vs[k]
+		}
 	}
 	top := 0
 	for j := range ub {
@@ -213,7 +235,8 @@ func deviationBounded(b *remez.Band, fs []float64, ab *ampBounds, eval func(floa
 			top = j
 		}
 	}
-	m := math.Max(0, at(top))
+	fill([]int{top})
+	m := math.Max(0, es[top])
 	var cand []int
 	for j := range ub {
 		if ub[j] >= m {
@@ -226,19 +249,40 @@ func deviationBounded(b *remez.Band, fs []float64, ab *ampBounds, eval func(floa
 		}
 		return cand[x] < cand[y]
 	})
-	for _, j := range cand {
-		if ub[j] < m {
-			break
+	// The candidates go in chunks, highest bound first, so that the
+	// evaluations of a chunk are interleaved; a chunk may hold intervals
+	// that the running maximum would have skipped, whose values are below
+	// the result anyway.
+	const chunk = 32
+	var js []int
+	var glo, ghi, gtol []float64
+	for k := 0; k < len(cand) && ub[cand[k]] >= m; {
+		end := k
+		for end < len(cand) && end-k < chunk && ub[cand[end]] >= m {
+			end++
 		}
-		e := at(j)
-		m = math.Max(m, e)
-		if (j > 0 && e < at(j-1)) || (j+1 < pts && e < at(j+1)) {
-			continue
+		js = js[:0]
+		for _, j := range cand[k:end] {
+			js = append(js, j-1, j, j+1)
 		}
-		lo, hi := fs[max(j-1, 0)], fs[min(j+1, pts-1)]
-		if hi > lo {
-			m = math.Max(m, goldenMax(func(f float64) float64 { return bandErr(b, f, eval(f)) }, lo, hi))
+		fill(js)
+		glo, ghi, gtol = glo[:0], ghi[:0], gtol[:0]
+		for _, j := range cand[k:end] {
+			e := es[j]
+			m = math.Max(m, e)
+			if (j > 0 && e < es[j-1]) || (j+1 < pts && e < es[j+1]) {
+				continue
+			}
+			lo, hi := fs[max(j-1, 0)], fs[min(j+1, pts-1)]
+			if hi > lo {
+				glo, ghi, gtol = append(glo, lo), append(ghi, hi), append(gtol, goldenTol(lo, hi))
+			}
 		}
+		_, gv := remez.GoldenMaxEach(errs, glo, ghi, goldenIters, gtol)
+		for _, v := range gv {
+			m = math.Max(m, v)
+		}
+		k = end
 	}
 	return m
 }

@@ -240,12 +240,19 @@ func deviations(h []float64, rate float64, bands []remez.Band, density int, boun
 			if ab == nil {
 				ab = newAmpBounds(h, rate)
 			}
-			out[i] = deviationBounded(b, fs, ab, eval)
+			out[i] = deviationBounded(b, fs, ab, h, rate)
 			continue
 		}
 		es := make([]float64, len(fs))
-		for j, f := range fs {
-			es[j] = bandErr(b, f, eval(f))
+		if sym {
+			remez.AmplitudeEach(h, fs, rate, es)
+			for j, f := range fs {
+				es[j] = bandErr(b, f, es[j])
+			}
+		} else {
+			for j, f := range fs {
+				es[j] = bandErr(b, f, eval(f))
+			}
 		}
 		m := 0.0
 		for j := range fs {
@@ -277,9 +284,15 @@ func bandGrid(b *remez.Band, n int, rate float64, density int) []float64 {
 // goldenMax returns the largest value of g found by golden-section search
 // on [lo, hi] (remez.GoldenMax).
 func goldenMax(g func(float64) float64, lo, hi float64) float64 {
-	_, v := remez.GoldenMax(g, lo, hi, 40, 1e-12*(hi-lo+1))
+	_, v := remez.GoldenMax(g, lo, hi, goldenIters, goldenTol(lo, hi))
 	return v
 }
+
+// goldenIters and goldenTol are the steps and the bracket width at which
+// the refinement of a peak stops.
+const goldenIters = 40
+
+func goldenTol(lo, hi float64) float64 { return 1e-12 * (hi - lo + 1) }
 
 // Meets reports whether every band's deviation is at most its MaxError.
 func Meets(dev []float64, bands []remez.Band) bool {
@@ -529,9 +542,7 @@ func newSearch(taps []float64, rate float64, bands []remez.Band, c Coefficients,
 	}
 	h := c.Float()
 	ls.a = make([]float64, len(ls.freqs))
-	for j, f := range ls.freqs {
-		ls.a[j] = Amplitude(h, f, rate)
-	}
+	remez.AmplitudeEach(h, ls.freqs, rate, ls.a)
 	type cand struct {
 		k   int
 		err float64
