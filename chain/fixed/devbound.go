@@ -15,6 +15,12 @@ import (
 // quick. Both ways return the same bits (see deviationBounded).
 const boundMinTaps = 128
 
+// boundMaxTaps is the longest filter measured through ampBounds, whose
+// tables take about 1.5 KiB per tap (an FFT of up to 32 n points): 96 MiB
+// at this length, well within the module's 1 GiB. A polyphase prototype
+// has at most 65535 taps; a longer filter is measured the direct way.
+const boundMaxTaps = 1 << 16
+
 // boundOrder is the number of derivatives (0 to boundOrder-1) of the
 // amplitude that ampBounds computes; the remainder after them is bounded
 // by sum |h_k| |k-c|^boundOrder (hh)^boundOrder / boundOrder!, under

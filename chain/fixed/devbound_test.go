@@ -96,7 +96,7 @@ func devCount(n, long int) int {
 // of cells: never outside [lo, hi] of the cell holding the frequency.
 func TestAmpBoundsBruteForce(t *testing.T) {
 	rng := rand.New(rand.NewPCG(5, 9))
-	for _, c := range randomDevCases(t, 1, devCount(8, 40), boundMinTaps, 2500) {
+	for _, c := range randomDevCases(t, 1, devCount(6, 40), boundMinTaps, 2500) {
 		ab := newAmpBounds(c.h, c.rate)
 		widest := 0.0
 		for range 2000 {
@@ -128,7 +128,7 @@ func TestAmpBoundsBruteForce(t *testing.T) {
 // refining every local maximum of the grid (deviations with bounded
 // false, Deviations' way for short filters), on seeded random filters.
 func TestDeviationsBoundedExact(t *testing.T) {
-	cases := randomDevCases(t, 2, devCount(16, 80), boundMinTaps, 700)
+	cases := randomDevCases(t, 2, devCount(12, 80), boundMinTaps, 700)
 	cases = append(cases, randomDevCases(t, 3, devCount(0, 4), 3000, 4500)...)
 	for _, c := range cases {
 		want := deviations(c.h, c.rate, c.bands, 16, false)
@@ -152,7 +152,7 @@ func TestDeviationsBoundedExact(t *testing.T) {
 // extremum, band edges included): never below it by more than rounding
 // (1e-12 of the taps' sum).
 func TestDeviationsNotOptimistic(t *testing.T) {
-	cases := randomDevCases(t, 4, devCount(10, 60), boundMinTaps, 400)
+	cases := randomDevCases(t, 4, devCount(8, 60), boundMinTaps, 400)
 	for _, c := range randomDevCases(t, 6, devCount(1, 4), 3000, 4500) {
 		// The narrow band, and the random band cut to about 20 extrema.
 		c.bands = c.bands[2:]

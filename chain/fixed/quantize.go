@@ -236,7 +236,7 @@ func deviations(h []float64, rate float64, bands []remez.Band, density int, boun
 	for i := range bands {
 		b := &bands[i]
 		fs := bandGrid(b, len(h), rate, density)
-		if bounded && sym && b.GainFunc == nil && b.WeightFunc == nil && finite(h) {
+		if bounded && sym && len(h) <= boundMaxTaps && b.GainFunc == nil && b.WeightFunc == nil && finite(h) {
 			if ab == nil {
 				ab = newAmpBounds(h, rate)
 			}
