@@ -250,11 +250,13 @@ func design(ctx context.Context, s DesignSpec, giveUp float64) (Filter, float64,
 					for i := 0; i < np1; i++ {
 						x := j*np1 + i
 						row := gd[x*nv:]
-						for i2 := 0; i2 < np1; i2++ {
+						// The upper triangle only: y = j2 np1 + i2 >= x.
+						i0 := 0
+						if j2 == j {
+							i0 = i
+						}
+						for i2 := i0; i2 < np1; i2++ {
 							y := j2*np1 + i2
-							if y < x {
-								continue
-							}
 							row[y] += aa*A[i*np1+i2] + ab*B[i*np1+i2] + ba*B[i2*np1+i] + bb*D[i*np1+i2]
 						}
 					}

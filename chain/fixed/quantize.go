@@ -5,6 +5,7 @@ import (
 	"errors"
 	"fmt"
 	"math"
+	"slices"
 	"sort"
 
 	"github.com/stepdown-dsp/stepdown/chain/remez"
@@ -201,22 +202,57 @@ func bandErr(b *remez.Band, f, a float64) float64 {
 // | |H(f)| - D(f) | * w(f) of the filter h, with w = WeightFunc (1 when nil,
 // as for remez.Band.MaxError), measured on a dense grid with every local
 // maximum refined by golden-section search. density is the number of grid
-// points per expected extremum; zero means 16.
+// points per expected extremum; zero means 16. A band of constant gain and
+// unit weight of a symmetric filter of boundMinTaps taps or more skips the
+// peaks that rigorous bounds show cannot be the largest (deviationBounded),
+// with the same result bit for bit; a long filter's result is remembered
+// (devCache).
 func Deviations(h []float64, rate float64, bands []remez.Band, density int) []float64 {
 	if density <= 0 {
 		density = 16
 	}
+	if len(h) < boundMinTaps {
+		return deviations(h, rate, bands, density, false)
+	}
+	key, ok := bandsKey([]float64{rate, float64(density)}, bands)
+	if !ok {
+		return deviations(h, rate, bands, density, true)
+	}
+	v := devCache.do(h, key, func() (any, bool) { return deviations(h, rate, bands, density, true), true })
+	return slices.Clone(v.([]float64))
+}
+
+// deviations is Deviations unremembered, density > 0. bounded lets a band
+// of constant gain and unit weight of a long symmetric filter be measured by
+// deviationBounded, which gives the same bits as refining every peak.
+func deviations(h []float64, rate float64, bands []remez.Band, density int, bounded bool) []float64 {
 	eval := func(f float64) float64 { return magnitude(h, f, rate) }
-	if symmetric(h) {
+	sym := symmetric(h)
+	if sym {
 		eval = func(f float64) float64 { return Amplitude(h, f, rate) }
 	}
+	var ab *ampBounds
 	out := make([]float64, len(bands))
 	for i := range bands {
 		b := &bands[i]
 		fs := bandGrid(b, len(h), rate, density)
+		if bounded && sym && len(h) <= boundMaxTaps && b.GainFunc == nil && b.WeightFunc == nil && finite(h) {
+			if ab == nil {
+				ab = newAmpBounds(h, rate)
+			}
+			out[i] = deviationBounded(b, fs, ab, h, rate)
+			continue
+		}
 		es := make([]float64, len(fs))
-		for j, f := range fs {
-			es[j] = bandErr(b, f, eval(f))
+		if sym {
+			remez.AmplitudeEach(h, fs, rate, es)
+			for j, f := range fs {
+				es[j] = bandErr(b, f, es[j])
+			}
+		} else {
+			for j, f := range fs {
+				es[j] = bandErr(b, f, eval(f))
+			}
 		}
 		m := 0.0
 		for j := range fs {
@@ -248,9 +284,15 @@ func bandGrid(b *remez.Band, n int, rate float64, density int) []float64 {
 // goldenMax returns the largest value of g found by golden-section search
 // on [lo, hi] (remez.GoldenMax).
 func goldenMax(g func(float64) float64, lo, hi float64) float64 {
-	_, v := remez.GoldenMax(g, lo, hi, 40, 1e-12*(hi-lo+1))
+	_, v := remez.GoldenMax(g, lo, hi, goldenIters, goldenTol(lo, hi))
 	return v
 }
+
+// goldenIters and goldenTol are the steps and the bracket width at which
+// the refinement of a peak stops.
+const goldenIters = 40
+
+func goldenTol(lo, hi float64) float64 { return 1e-12 * (hi - lo + 1) }
 
 // Meets reports whether every band's deviation is at most its MaxError.
 func Meets(dev []float64, bands []remez.Band) bool {
@@ -397,8 +439,41 @@ func symmetrized(taps []float64) ([]float64, error) {
 	return out, nil
 }
 
-// tryWidth is TryWidth; a failed width's deviations are measured only when needDev.
+// tryWidth is TryWidth; a failed width's deviations are measured only when
+// needDev. A long filter's result is remembered (widthCache) unless the
+// search was stopped.
 func tryWidth(taps []float64, rate float64, bands []remez.Band, bits int, s QuantSettings, needDev bool) (Coefficients, []float64, bool) {
+	if len(taps) < boundMinTaps {
+		return tryWidthOnce(taps, rate, bands, bits, s, needDev)
+	}
+	density := s.Density
+	if density <= 0 {
+		density = 16
+	}
+	key, keep := bandsKey([]float64{rate, float64(bits), float64(b2i(needDev)), float64(s.Budget), float64(b2i(s.HalfBand)), float64(density)}, bands)
+	type tried struct {
+		c   Coefficients
+		dev []float64
+		ok  bool
+	}
+	clone := func(t tried) tried {
+		t.c.Ints = slices.Clone(t.c.Ints)
+		t.dev = slices.Clone(t.dev)
+		return t
+	}
+	if !keep {
+		return tryWidthOnce(taps, rate, bands, bits, s, needDev)
+	}
+	v := widthCache.do(taps, key, func() (any, bool) {
+		c, dev, ok := tryWidthOnce(taps, rate, bands, bits, s, needDev)
+		return tried{c, dev, ok}, !s.stopped()
+	})
+	t := clone(v.(tried))
+	return t.c, t.dev, t.ok
+}
+
+// tryWidthOnce is tryWidth unremembered.
+func tryWidthOnce(taps []float64, rate float64, bands []remez.Band, bits int, s QuantSettings, needDev bool) (Coefficients, []float64, bool) {
 	var c Coefficients
 	if s.HalfBand {
 		var err error
@@ -467,9 +542,7 @@ func newSearch(taps []float64, rate float64, bands []remez.Band, c Coefficients,
 	}
 	h := c.Float()
 	ls.a = make([]float64, len(ls.freqs))
-	for j, f := range ls.freqs {
-		ls.a[j] = Amplitude(h, f, rate)
-	}
+	remez.AmplitudeEach(h, ls.freqs, rate, ls.a)
 	type cand struct {
 		k   int
 		err float64

@@ -3,6 +3,7 @@ package remez
 import (
 	"encoding/json"
 	"math"
+	"math/rand/v2"
 	"os"
 	"testing"
 )
@@ -135,5 +136,36 @@ func TestScipyContinuous(t *testing.T) {
 			t.Errorf("%s: weighted deviation %.9g worse than SciPy's %.9g", c.Name, wOurs, wTheirs)
 		}
 		t.Logf("%s: weighted deviation ours %.9g, SciPy %.9g (%.2e better)", c.Name, wOurs, wTheirs, (wTheirs-wOurs)/wTheirs)
+	}
+}
+
+// TestGoldenMaxEachSame: GoldenMaxEach returns GoldenMax's point and value
+// bit for bit on seeded random brackets of a rough function (several local
+// maxima, so the searches branch differently), NaN regions included.
+func TestGoldenMaxEachSame(t *testing.T) {
+	rng := rand.New(rand.NewPCG(3, 4))
+	f := func(x float64) float64 {
+		if x > 7.5 && x < 7.6 {
+			return math.NaN()
+		}
+		return math.Sin(3*x) + 0.3*math.Cos(17*x)
+	}
+	var a, b, tol []float64
+	for range 200 {
+		lo := 10 * rng.Float64()
+		a = append(a, lo)
+		b = append(b, lo+rng.Float64())
+		tol = append(tol, []float64{0, 1e-12, 1e-3}[rng.IntN(3)])
+	}
+	x, fx := GoldenMaxEach(func(xs, fxs []float64) {
+		for i, v := range xs {
+			fxs[i] = f(v)
+		}
+	}, a, b, 40, tol)
+	for i := range a {
+		wx, wfx := GoldenMax(f, a[i], b[i], 40, tol[i])
+		if math.Float64bits(x[i]) != math.Float64bits(wx) || math.Float64bits(fx[i]) != math.Float64bits(wfx) {
+			t.Errorf("bracket %d [%g, %g]: each (%v, %v), alone (%v, %v)", i, a[i], b[i], x[i], fx[i], wx, wfx)
+		}
 	}
 }

@@ -79,6 +79,71 @@ func Amplitude(h []float64, f, rate float64) float64 {
 	return sum
 }
 
+// AmplitudeEach writes Amplitude(h, fs[i], rate) into out[i] for every i,
+// bit for bit: the same operations in the same order for each frequency,
+// four frequencies interleaved so that their rotations overlap instead of
+// waiting on one another. out must be as long as fs.
+func AmplitudeEach(h, fs []float64, rate float64, out []float64) {
+	n := len(h)
+	if len(out) != len(fs) {
+		panic("remez: AmplitudeEach output length mismatch")
+	}
+	if n == 0 {
+		clear(out)
+		return
+	}
+	var base float64
+	var lo, hi int
+	var off0 float64
+	if n%2 == 1 {
+		mid := n / 2
+		base = h[mid]
+		lo, hi = mid-1, mid+1
+		off0 = 1
+	} else {
+		lo, hi = n/2-1, n/2
+		off0 = 0.5
+	}
+	pairs := lo + 1
+	g := make([]float64, pairs)
+	for j := range g {
+		g[j] = h[lo-j] + h[hi+j]
+	}
+	i := 0
+	for ; i+4 <= len(fs); i += 4 {
+		w0 := 2 * math.Pi * fs[i] / rate
+		w1 := 2 * math.Pi * fs[i+1] / rate
+		w2 := 2 * math.Pi * fs[i+2] / rate
+		w3 := 2 * math.Pi * fs[i+3] / rate
+		sw0, cw0 := math.Sincos(w0)
+		sw1, cw1 := math.Sincos(w1)
+		sw2, cw2 := math.Sincos(w2)
+		sw3, cw3 := math.Sincos(w3)
+		sum0, sum1, sum2, sum3 := base, base, base, base
+		for j0 := 0; j0 < pairs; j0 += resync {
+			t := off0 + float64(j0)
+			s0, c0 := math.Sincos(w0 * t)
+			s1, c1 := math.Sincos(w1 * t)
+			s2, c2 := math.Sincos(w2 * t)
+			s3, c3 := math.Sincos(w3 * t)
+			for _, v := range g[j0:min(j0+resync, pairs)] {
+				sum0 += v * c0
+				sum1 += v * c1
+				sum2 += v * c2
+				sum3 += v * c3
+				c0, s0 = c0*cw0-s0*sw0, s0*cw0+c0*sw0
+				c1, s1 = c1*cw1-s1*sw1, s1*cw1+c1*sw1
+				c2, s2 = c2*cw2-s2*sw2, s2*cw2+c2*sw2
+				c3, s3 = c3*cw3-s3*sw3, s3*cw3+c3*sw3
+			}
+		}
+		out[i], out[i+1], out[i+2], out[i+3] = sum0, sum1, sum2, sum3
+	}
+	for ; i < len(fs); i++ {
+		out[i] = Amplitude(h, fs[i], rate)
+	}
+}
+
 // Spectrum evaluates a filter's magnitude on an evenly spaced grid through
 // gonum's real FFT. Its buffers are reused, so after NewSpectrum a call to
 // Magnitude allocates nothing. A Spectrum is not safe for concurrent use.

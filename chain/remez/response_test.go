@@ -3,6 +3,7 @@ package remez
 import (
 	"math"
 	"math/cmplx"
+	"math/rand/v2"
 	"testing"
 )
 
@@ -96,5 +97,28 @@ func TestMagnitudeGrid(t *testing.T) {
 	}
 	if a := testing.AllocsPerRun(10, func() { Magnitude(h, 0.1, 1); Amplitude(h, 0.1, 1) }); a != 0 {
 		t.Errorf("Magnitude/Amplitude allocate %v times", a)
+	}
+}
+
+// TestAmplitudeEachSame: AmplitudeEach gives Amplitude's bits at every
+// frequency, on seeded random filters of odd and even lengths.
+func TestAmplitudeEachSame(t *testing.T) {
+	rng := rand.New(rand.NewPCG(8, 1))
+	for _, n := range []int{0, 1, 2, 3, 7, 64, 65, 301, 1000} {
+		h := make([]float64, n)
+		for k := range h {
+			h[k] = rng.NormFloat64()
+		}
+		fs := make([]float64, 1+rng.IntN(40))
+		for i := range fs {
+			fs[i] = 5e5 * rng.Float64()
+		}
+		out := make([]float64, len(fs))
+		AmplitudeEach(h, fs, 1e6, out)
+		for i, f := range fs {
+			if want := Amplitude(h, f, 1e6); math.Float64bits(out[i]) != math.Float64bits(want) {
+				t.Errorf("n %d f %g: %v, Amplitude %v", n, f, out[i], want)
+			}
+		}
 	}
 }

@@ -1,0 +1,304 @@
+package fixed
+
+import (
+	"math"
+	"math/bits"
+	"slices"
+	"sort"
+
+	"github.com/stepdown-dsp/stepdown/chain/remez"
+	"gonum.org/v1/gonum/dsp/fourier"
+)
+
+// boundMinTaps is the length from which Deviations measures a band through
+// ampBounds instead of refining every peak: below it the direct way is as
+// quick. Both ways return the same bits (see deviationBounded).
+const boundMinTaps = 128
+
+// boundMaxTaps is the longest filter measured through ampBounds, whose
+// tables take about 1.5 KiB per tap (an FFT of up to 32 n points): 96 MiB
+// at this length, well within the module's 1 GiB. A polyphase prototype
+// has at most 65535 taps; a longer filter is measured the direct way.
+const boundMaxTaps = 1 << 16
+
+// boundOrder is the number of derivatives (0 to boundOrder-1) of the
+// amplitude that ampBounds computes; the remainder after them is bounded
+// by sum |h_k| |k-c|^boundOrder (hh)^boundOrder / boundOrder!, under
+// 1e-8 of sum |h_k| for the cell half-width hh <= pi/(16 n) (Taylor's
+// theorem with Lagrange's remainder).
+const boundOrder = 6
+
+// ampBounds holds rigorous bounds of a symmetric filter's zero-phase
+// amplitude A over the cells of an FFT grid: cell m covers the
+// frequencies [m-1/2, m+1/2] rate/size, and lo[m] <= A(f) <= hi[m] for
+// every f in it, rounding of the FFT and of a direct evaluation
+// (remez.Amplitude) included.
+type ampBounds struct {
+	size   int // FFT length, a power of two of at least 16 n
+	rate   float64
+	lo, hi []float64 // per cell m in [0, size/2]
+}
+
+// newAmpBounds computes the bounds for the symmetric filter h with finite
+// taps. For each cell it expands A about the cell's centre by Taylor's
+// theorem: the derivatives A^(p), p < boundOrder, come from one real FFT
+// each of h_k (k-c)^p; the quadratic part is maximised and minimised
+// exactly over the cell, the cubic and higher terms are bounded by their
+// absolute values, and the remainder by the bound above. Each computed
+// derivative is held within kappa sum |h_k| |k-c|^p of the true one, kappa
+// = 64 u log2(size) sqrt(size), well above the rounding bound of a radix-2
+// FFT, log2(size) sqrt(size) times a few u times the 1-norm (Higham,
+// Accuracy and Stability of Numerical Algorithms, 2nd ed., section 24.1).
+func newAmpBounds(h []float64, rate float64) *ampBounds {
+	n := len(h)
+	size := 1 << bits.Len(uint(16*n-1))
+	half := size / 2
+	c := float64(n-1) / 2
+	const u = 0x1p-53
+	kappa := 64 * u * float64(bits.Len(uint(size))) * math.Sqrt(float64(size))
+	hh := math.Pi / float64(size) // half a cell in radians per sample
+
+	// Moments sum |h_k| |k-c|^p for p <= boundOrder.
+	var mom [boundOrder + 1]float64
+	for k, v := range h {
+		d := math.Abs(float64(k) - c)
+		t := math.Abs(v)
+		for p := 0; p <= boundOrder; p++ {
+			mom[p] += t
+			t *= d
+		}
+	}
+	// What no cell's expansion sees: the remainder, the FFT's rounding
+	// of every derivative used, and the rounding of a direct evaluation
+	// (remez.Amplitude: its rotations resynchronised every 32 taps, its
+	// angle w (k-c) rounded, its sum of n/2 terms), taken generously as
+	// 8 (n+64) u sum |h_k|.
+	fact := 1.0
+	pw := 1.0
+	slack0 := 0.0
+	for p := 0; p < boundOrder; p++ {
+		if p > 0 {
+			fact *= float64(p)
+			pw *= hh
+		}
+		slack0 += kappa * mom[p] * pw / fact
+	}
+	fact *= boundOrder
+	pw *= hh
+	slack0 += mom[boundOrder] * pw / fact
+	slack0 += 8 * float64(n+64) * u * mom[0]
+	slack0 *= 1 + 1e-9
+
+	fft := fourier.NewFFT(size)
+	seq := make([]float64, size)
+	coef := make([]complex128, half+1)
+	// Phase e^{i c w_m}, c w_m = pi m (n-1)/size, reduced exactly.
+	rot := make([]complex128, half+1)
+	for m := range rot {
+		r := (int64(m) * int64(n-1)) % int64(2*size)
+		s, co := math.Sincos(math.Pi * float64(r) / float64(size))
+		rot[m] = complex(co, s)
+	}
+	a := make([][]float64, 3)
+	extra := make([]float64, half+1) // sum over p >= 3 of |A^(p)| hh^p / p!
+	fact, pw = 1, 1
+	for p := 0; p < boundOrder; p++ {
+		if p > 0 {
+			fact *= float64(p)
+			pw *= hh
+		}
+		for k, v := range h {
+			seq[k] = v * math.Pow(float64(k)-c, float64(p))
+		}
+		fft.Coefficients(coef, seq)
+		// A^(p) = Re(i^p conj(G_p)), G_p = e^{i c w} X_p.
+		var col []float64
+		if p < 3 {
+			col = make([]float64, half+1)
+			a[p] = col
+		}
+		for m, x := range coef {
+			g := rot[m] * x
+			var v float64
+			switch p % 4 {
+			case 0:
+				v = real(g)
+			case 1:
+				v = imag(g)
+			case 2:
+				v = -real(g)
+			default:
+				v = -imag(g)
+			}
+			if p < 3 {
+				col[m] = v
+			} else {
+				extra[m] += math.Abs(v) * pw / fact
+			}
+		}
+	}
+	b := &ampBounds{size: size, rate: rate, lo: make([]float64, half+1), hi: make([]float64, half+1)}
+	for m := range b.lo {
+		a0, a1, a2 := a[0][m], a[1][m], a[2][m]
+		q := func(t float64) float64 { return a0 + t*(a1+t*a2/2) }
+		ql, qr := q(-hh), q(hh)
+		qmax, qmin := math.Max(ql, qr), math.Min(ql, qr)
+		if a2 != 0 {
+			if t := -a1 / a2; t > -hh && t < hh {
+				if a2 < 0 {
+					qmax = math.Max(qmax, q(t))
+				} else {
+					qmin = math.Min(qmin, q(t))
+				}
+			}
+		}
+		// The quadratic's own rounding, a few u of its terms' sizes.
+		s := slack0 + extra[m] + 8*u*(math.Abs(a0)+math.Abs(a1)*hh+math.Abs(a2)*hh*hh)
+		b.hi[m] = qmax + s
+		b.lo[m] = qmin - s
+	}
+	return b
+}
+
+// cell returns the index of the cell holding f, clamped to [0, size/2].
+func (b *ampBounds) cell(f float64) int {
+	m := math.Floor(f/b.rate*float64(b.size) + 0.5)
+	return int(math.Max(0, math.Min(m, float64(b.size/2))))
+}
+
+// errBound returns an upper bound of | |A(f)| - d | over [f0, f1], the
+// cells holding the ends widened by one on each side against the rounding
+// of f/rate.
+func (b *ampBounds) errBound(f0, f1, d float64) float64 {
+	m0, m1 := max(b.cell(f0)-1, 0), min(b.cell(f1)+1, b.size/2)
+	lo, hi := math.Inf(1), math.Inf(-1)
+	for m := m0; m <= m1; m++ {
+		lo, hi = math.Min(lo, b.lo[m]), math.Max(hi, b.hi[m])
+	}
+	absHi := math.Max(hi, -lo)
+	absLo := 0.0
+	if lo > 0 {
+		absLo = lo
+	} else if hi < 0 {
+		absLo = -hi
+	}
+	return math.Max(absHi-d, d-absLo)
+}
+
+// deviationBounded is Deviations' measurement of one band of constant gain
+// and unit weight (no GainFunc, no WeightFunc) for a symmetric filter,
+// with the same result bit for bit: Deviations takes the largest of the
+// direct grid values at the grid's local maxima and of each one's
+// golden-section refinement. Here every grid interval's error is first
+// bounded (ampBounds, never below the truth nor below a direct
+// evaluation), and the intervals are visited from the highest bound down;
+// an interval whose bound is below the largest direct value found so far
+// cannot hold the answer and is not evaluated, so only the few peaks near
+// the top of an equiripple band are refined. A visited point's direct grid
+// value is a lower bound of Deviations' result (the grid's largest value is
+// at one of its local maxima), so raising the running figure by it is
+// safe.
+func deviationBounded(b *remez.Band, fs []float64, ab *ampBounds, h []float64, rate float64) float64 {
+	pts := len(fs)
+	d := b.Gain
+	ub := make([]float64, pts)
+	for j := range fs {
+		ub[j] = ab.errBound(fs[max(j-1, 0)], fs[min(j+1, pts-1)], d)
+	}
+	es := make([]float64, pts)
+	done := make([]bool, pts)
+	// errs writes bandErr at each of xs into out, the amplitudes evaluated
+	// together (remez.AmplitudeEach, Amplitude's bits).
+	amp := []float64{}
+	errs := func(xs, out []float64) {
+		amp = slices.Grow(amp[:0], len(xs))[:len(xs)]
+		remez.AmplitudeEach(h, xs, rate, amp)
+		for i, f := range xs {
+			out[i] = bandErr(b, f, amp[i])
+		}
+	}
+	// fill evaluates the grid points of js not yet evaluated.
+	var need []int
+	var xs, vs []float64
+	fill := func(js []int) {
+		need, xs = need[:0], xs[:0]
+		for _, j := range js {
+			if j >= 0 && j < pts && !done[j] {
+				done[j] = true
+				need = append(need, j)
+				xs = append(xs, fs[j])
+			}
+		}
+		vs = slices.Grow(vs[:0], len(xs))[:len(xs)]
+		errs(xs, vs)
+		for k, j := range need {
+			es[j] = vs[k]
+		}
+	}
+	top := 0
+	for j := range ub {
+		if ub[j] > ub[top] {
+			top = j
+		}
+	}
+	fill([]int{top})
+	m := math.Max(0, es[top])
+	var cand []int
+	for j := range ub {
+		if ub[j] >= m {
+			cand = append(cand, j)
+		}
+	}
+	sort.Slice(cand, func(x, y int) bool {
+		if ub[cand[x]] != ub[cand[y]] {
+			return ub[cand[x]] > ub[cand[y]]
+		}
+		return cand[x] < cand[y]
+	})
+	// The candidates go in chunks, highest bound first, so that the
+	// evaluations of a chunk are interleaved; a chunk may hold intervals
+	// that the running maximum would have skipped, whose values are below
+	// the result anyway.
+	const chunk = 32
+	var js []int
+	var glo, ghi, gtol []float64
+	for k := 0; k < len(cand) && ub[cand[k]] >= m; {
+		end := k
+		for end < len(cand) && end-k < chunk && ub[cand[end]] >= m {
+			end++
+		}
+		js = js[:0]
+		for _, j := range cand[k:end] {
+			js = append(js, j-1, j, j+1)
+		}
+		fill(js)
+		glo, ghi, gtol = glo[:0], ghi[:0], gtol[:0]
+		for _, j := range cand[k:end] {
+			e := es[j]
+			m = math.Max(m, e)
+			if (j > 0 && e < es[j-1]) || (j+1 < pts && e < es[j+1]) {
+				continue
+			}
+			lo, hi := fs[max(j-1, 0)], fs[min(j+1, pts-1)]
+			if hi > lo {
+				glo, ghi, gtol = append(glo, lo), append(ghi, hi), append(gtol, goldenTol(lo, hi))
+			}
+		}
+		_, gv := remez.GoldenMaxEach(errs, glo, ghi, goldenIters, gtol)
+		for _, v := range gv {
+			m = math.Max(m, v)
+		}
+		k = end
+	}
+	return m
+}
+
+// finite reports whether every tap is a finite number.
+func finite(h []float64) bool {
+	for _, v := range h {
+		if math.IsNaN(v) || math.IsInf(v, 0) {
+			return false
+		}
+	}
+	return true
+}

@@ -1,0 +1,181 @@
+package fixed
+
+import (
+	"fmt"
+	"math"
+	"math/rand/v2"
+	"os"
+	"testing"
+
+	"github.com/stepdown-dsp/stepdown/chain/remez"
+)
+
+// devCase is one seeded random filter and bands for the tests of
+// Deviations' bounded path.
+type devCase struct {
+	name  string
+	h     []float64
+	rate  float64
+	bands []remez.Band
+}
+
+// randomDevCases returns count seeded cases: equiripple designs (every
+// stopband peak equal, the case where no bound can skip a peak),
+// windowed lowpasses, both rounded to a random width, and plain random
+// symmetric taps; lengths from minN to maxN; bands of every width down to
+// less than one grid step, at random places, with gains 0, 1 or a
+// polyphase prototype's L.
+func randomDevCases(t *testing.T, seed uint64, count, minN, maxN int) []devCase {
+	t.Helper()
+	rng := rand.New(rand.NewPCG(seed, 17))
+	var out []devCase
+	for len(out) < count {
+		n := minN + rng.IntN(maxN-minN+1)
+		rate := 1e6 * (1 + 99*rng.Float64())
+		fp := rate * (0.02 + 0.2*rng.Float64())
+		fs := fp + rate*(4+8*rng.Float64())/float64(n)
+		if fs >= rate/2 {
+			continue
+		}
+		gain := []float64{1, 1, 24}[rng.IntN(3)]
+		var h []float64
+		kind := rng.IntN(3)
+		switch kind {
+		case 0:
+			res, err := remez.Design(n, rate, []remez.Band{{Lo: 0, Hi: fp, Gain: 1}, {Lo: fs, Hi: rate / 2, Gain: 0, Weight: 10}}, remez.Settings{})
+			if err != nil {
+				continue
+			}
+			h = res.Taps
+		case 1:
+			h = kaiserLowpass(n, (fp+fs)/2, rate, 4+6*rng.Float64())
+		default:
+			h = make([]float64, n)
+			for k := 0; k < (n+1)/2; k++ {
+				h[k] = rng.NormFloat64() / float64(n)
+				h[n-1-k] = h[k]
+			}
+		}
+		for k := range h {
+			h[k] *= gain
+		}
+		if kind < 2 && rng.IntN(2) == 0 {
+			h = Quantize(h, 10+rng.IntN(14)).Float()
+		}
+		bands := []remez.Band{{Lo: 0, Hi: fp, Gain: gain}, {Lo: fs, Hi: rate / 2}}
+		// A band narrower than one grid step, and one at a random place.
+		step := rate / (16 * float64(n))
+		lo := rate / 2 * rng.Float64()
+		bands = append(bands, remez.Band{Lo: lo, Hi: math.Min(rate/2, lo+step*rng.Float64())})
+		lo = rate / 2 * rng.Float64()
+		bands = append(bands, remez.Band{Lo: lo, Hi: math.Min(rate/2, lo+rate/2*rng.Float64())})
+		for i := range bands {
+			if bands[i].Hi <= bands[i].Lo {
+				bands[i].Hi = math.Min(rate/2, bands[i].Lo+step/3)
+				bands[i].Lo = bands[i].Hi - step/3
+			}
+			bands[i].MaxError = 1
+		}
+		out = append(out, devCase{fmt.Sprintf("seed %d case %d kind %d n %d", seed, len(out), kind, n), h, rate, bands})
+	}
+	return out
+}
+
+// devCount is n cases in go test, long (CI's long step) with
+// STEPDOWN_LONG=1.
+func devCount(n, long int) int {
+	if os.Getenv("STEPDOWN_LONG") != "" {
+		return long
+	}
+	return n
+}
+
+// TestAmpBoundsBruteForce holds ampBounds to the amplitude evaluated
+// directly, one cosine per tap pair (amplitudeDirect, sharing no code with
+// the FFT or with remez.Amplitude), at random frequencies and at the edges
+// of cells: never outside [lo, hi] of the cell holding the frequency.
+func TestAmpBoundsBruteForce(t *testing.T) {
+	rng := rand.New(rand.NewPCG(5, 9))
+	for _, c := range randomDevCases(t, 1, devCount(6, 40), boundMinTaps, 2500) {
+		ab := newAmpBounds(c.h, c.rate)
+		widest := 0.0
+		for range 2000 {
+			f := c.rate / 2 * rng.Float64()
+			if rng.IntN(4) == 0 { // a cell's edge
+				m := float64(rng.IntN(ab.size/2)) + 0.5
+				f = m * c.rate / float64(ab.size)
+			}
+			a := amplitudeDirect(c.h, f, c.rate)
+			m := ab.cell(f)
+			if a < ab.lo[m] || a > ab.hi[m] {
+				t.Fatalf("%s: A(%g Hz) = %.17g outside cell %d's [%.17g, %.17g]", c.name, f, a, m, ab.lo[m], ab.hi[m])
+			}
+			widest = math.Max(widest, ab.hi[m]-ab.lo[m])
+		}
+		// The cells are a thirtieth of a ripple or less: their bounds must
+		// stay close enough to prune (a few percent of the taps' sum).
+		sum := 0.0
+		for _, v := range c.h {
+			sum += math.Abs(v)
+		}
+		if widest > 0.3*sum {
+			t.Errorf("%s: a cell's bounds are %g apart, taps' sum %g", c.name, widest, sum)
+		}
+	}
+}
+
+// TestDeviationsBoundedExact: the bounded path returns the same bits as
+// refining every local maximum of the grid (deviations with bounded
+// false, Deviations' way for short filters), on seeded random filters.
+func TestDeviationsBoundedExact(t *testing.T) {
+	cases := randomDevCases(t, 2, devCount(12, 80), boundMinTaps, 700)
+	cases = append(cases, randomDevCases(t, 3, devCount(0, 4), 3000, 4500)...)
+	for _, c := range cases {
+		want := deviations(c.h, c.rate, c.bands, 16, false)
+		got := deviations(c.h, c.rate, c.bands, 16, true)
+		for i := range want {
+			if math.Float64bits(got[i]) != math.Float64bits(want[i]) {
+				t.Errorf("%s band %d [%g, %g]: bounded %.17g, every peak %.17g", c.name, i, c.bands[i].Lo, c.bands[i].Hi, got[i], want[i])
+			}
+		}
+		// The remembered path gives the same again.
+		for i, v := range Deviations(c.h, c.rate, c.bands, 0) {
+			if math.Float64bits(v) != math.Float64bits(want[i]) {
+				t.Errorf("%s band %d: Deviations %.17g, want %.17g", c.name, i, v, want[i])
+			}
+		}
+	}
+}
+
+// TestDeviationsNotOptimistic compares Deviations with a brute-force
+// dense direct evaluation (amplitudeDirect at 256 points per expected
+// extremum, band edges included): never below it by more than rounding
+// (1e-12 of the taps' sum).
+func TestDeviationsNotOptimistic(t *testing.T) {
+	cases := randomDevCases(t, 4, devCount(8, 60), boundMinTaps, 400)
+	for _, c := range randomDevCases(t, 6, devCount(1, 4), 3000, 4500) {
+		// The narrow band, and the random band cut to about 20 extrema.
+		c.bands = c.bands[2:]
+		b := &c.bands[1]
+		b.Hi = math.Min(b.Hi, b.Lo+20*c.rate/float64(len(c.h)))
+		cases = append(cases, c)
+	}
+	for _, c := range cases {
+		got := Deviations(c.h, c.rate, c.bands, 0)
+		sum := 0.0
+		for _, v := range c.h {
+			sum += math.Abs(v)
+		}
+		for i, b := range c.bands {
+			pts := int(math.Ceil(float64(len(c.h))*(b.Hi-b.Lo)/c.rate*256)) + 2
+			brute := 0.0
+			for j := range pts {
+				f := b.Lo + (b.Hi-b.Lo)*float64(j)/float64(pts-1)
+				brute = math.Max(brute, math.Abs(math.Abs(amplitudeDirect(c.h, f, c.rate))-b.Gain))
+			}
+			if got[i] < brute-1e-12*sum {
+				t.Errorf("%s band %d [%g, %g]: Deviations %.17g below brute force %.17g", c.name, i, b.Lo, b.Hi, got[i], brute)
+			}
+		}
+	}
+}
