@@ -419,7 +419,7 @@
 //     P+1 subfilters of N taps on the input, combined by Horner's rule in
 //     the fractional delay mu; (P+1) N + P multiplies per output whatever
 //     L. It is a continuous-time filter H(f/Fm) sampled at the output
-//     times (farrow.Convention); L is at most 256 (see below).
+//     times (farrow.Convention); L is at most 1024 (see below).
 //
 // The paths of a tone. A real tone at input frequency g leaves the integer
 // stages at g with gain A(g) = prod_j |H_j(g)| (each periodic at its own
@@ -434,8 +434,9 @@
 // continuous paths k and k + L land on the same output frequency at every
 // input frequency and add, which per-path figures of H would miss (an
 // independent review measured 8 dB on a farrow2/5 stage); the sampled
-// prototype sums them. So a Farrow stage has at most 256 phases and L N
-// at most 16384 taps; a ratio with a larger denominator needs
+// prototype sums them. So a Farrow stage has at most 1024 phases
+// (MaxFarrowUp) and L N at most 65536 taps; a ratio with a larger
+// denominator needs
 // ratio_tolerance_ppm. The output rate folds each path to
 // y = fold(g + k Fm mod FK). A path is an alias when y lies in the
 // protected band [0, fa] and it is not the tone itself (k = 0 and g <= fa).

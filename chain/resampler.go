@@ -544,6 +544,11 @@ const (
 	polyphaseMaxTaps = 8192
 )
 
+// MaxFarrowUp bounds a Farrow stage's Up: its cost does not grow with L,
+// but it is analysed as the polyphase stage of L N taps it is at its
+// output times (FarrowPrototype), whose L paths the analysis searches.
+const MaxFarrowUp = 1024
+
 func polyphaseStage(ctx context.Context, p StagePlan, r FractionalRequirement, s Settings, design bool) (PolyphaseStage, error) {
 	st := PolyphaseStage{Up: p.Up, Down: p.Down, Req: r}
 	if p.Up > MaxFractionalUp {
@@ -579,7 +584,7 @@ func polyphaseStage(ctx context.Context, p StagePlan, r FractionalRequirement, s
 // farrowMaxSampled bounds a Farrow stage's Up times its length: the taps
 // of the polyphase stage it is at its output times (FarrowPrototype),
 // which Analyze measures.
-const farrowMaxSampled = 1 << 14
+const farrowMaxSampled = 1 << 16
 
 // FarrowPrototype returns the taps of the polyphase Up/Down stage that a
 // Farrow stage is at its output times m Down/Up: y = Up sum_j p[j]
@@ -594,9 +599,9 @@ func FarrowPrototype(st FarrowStage) ([]float64, error) {
 		return nil, err
 	}
 	n := st.Filter.Len()
-	if st.Up < 1 || st.Up > MaxFractionalUp || st.Up*n > farrowMaxSampled {
+	if st.Up < 1 || st.Up > MaxFarrowUp || st.Up*n > farrowMaxSampled {
 		return nil, fmt.Errorf("a farrow stage of rate change %d/%d and %d taps is not analysed: its L x taps, %d, is above %d or its L above %d (its images fold onto each other at every frequency); allow a simpler ratio (ratio_tolerance_ppm)",
-			st.Up, st.Down, n, st.Up*n, farrowMaxSampled, MaxFractionalUp)
+			st.Up, st.Down, n, st.Up*n, farrowMaxSampled, MaxFarrowUp)
 	}
 	taps := make([]float64, st.Up*n)
 	for j := range taps {
@@ -617,8 +622,8 @@ const farrowMaxCost = 400
 // too: the structures are small.
 func farrowStage(ctx context.Context, p StagePlan, r FractionalRequirement) (FarrowStage, error) {
 	st := FarrowStage{Up: p.Up, Down: p.Down, Req: r}
-	if p.Up > MaxFractionalUp {
-		return st, fmt.Errorf("a farrow stage of %d phases (L = %d): at most %d, for its images fold onto each other and it is analysed as a polyphase stage; allow a simpler ratio (ratio_tolerance_ppm)", p.Up, p.Up, MaxFractionalUp)
+	if p.Up > MaxFarrowUp {
+		return st, fmt.Errorf("a farrow stage of %d phases (L = %d): at most %d, for its images fold onto each other and it is analysed as a polyphase stage; allow a simpler ratio (ratio_tolerance_ppm)", p.Up, p.Up, MaxFarrowUp)
 	}
 	if r.Keep <= 0 {
 		return st, errors.New("a farrow stage needs a lowpass FIR (fir<D>L) just before it")

@@ -55,6 +55,8 @@ func (p fractionalPath) bounds(a, b float64, coarse bool) (lo, up float64) {
 // (a Farrow stage through its sampled prototype, FarrowPrototype).
 type fractionalParts struct {
 	ic       *Chain
+	taps     []float64 // the prototype (a Farrow stage's sampled one)
+	tail     *Chain    // the stages after the fractional stage, or nil
 	rg       func(h float64) float64
 	rb       stageBounder
 	shifts   []float64
@@ -119,9 +121,10 @@ func splitFractional(c *Chain) (fractionalParts, error) {
 		return p, err
 	}
 	p.rg = func(h float64) float64 { return remez.Magnitude(taps, h, rate) }
-	p.rb = b
+	p.rb, p.taps = b, taps
 	if f < len(c.Stages)-1 {
 		tc := &Chain{InputRate: rates[f+1], Complex: c.Complex, Stages: c.Stages[f+1:], Designed: c.Designed}
+		p.tail = tc
 		tail, err := newCascade(tc)
 		if err != nil {
 			return p, err
@@ -277,6 +280,10 @@ func coincidentPaths(ctx context.Context, p fractionalParts, cs *cascade, fk, fa
 		k int
 	}
 	var hits []hit
+	// Where many paths land together, all L path gains at once
+	// (PolyphasePaths) cost less than one direct evaluation each.
+	pp := NewPolyphasePaths(p.taps, p.up, p.fm)
+	var all []float64
 	for j := 0; j < npts; j++ {
 		if j&1023 == 0 {
 			if err := ctx.Err(); err != nil {
@@ -302,6 +309,17 @@ func coincidentPaths(ctx context.Context, p fractionalParts, cs *cascade, fk, fa
 			continue
 		}
 		var a float64
+		gain := func(k int) float64 { return p.rg(g + float64(k)*p.fm) }
+		if len(hits) > 8 {
+			all = pp.Gains(g, all)
+			gain = func(k int) float64 {
+				v := all[k]
+				if p.tail != nil {
+					v *= p.tail.Gain(g + float64(k)*p.fm)
+				}
+				return v
+			}
+		}
 		for i := range hits {
 			for i2 := i + 1; i2 < len(hits); i2++ {
 				if math.Abs(hits[i].y-hits[i2].y) > tol {
@@ -313,11 +331,16 @@ func coincidentPaths(ctx context.Context, p fractionalParts, cs *cascade, fk, fa
 						a *= weight(g)
 					}
 				}
-				g1, g2 := p.rg(g+float64(hits[i].k)*p.fm), p.rg(g+float64(hits[i2].k)*p.fm)
+				g1, g2 := gain(hits[i].k), gain(hits[i2].k)
 				if v := a * (g1 + g2); v > w {
-					w, at, worstK = v, g, hits[i].k
-					if g2 > g1 {
-						worstK = hits[i2].k
+					// The larger path names the pair; of two equal
+					// within rounding, the lower k.
+					w, at, worstK = v, g, min(hits[i].k, hits[i2].k)
+					if math.Abs(g1-g2) > 1e-9*math.Max(g1, g2) {
+						worstK = hits[i].k
+						if g2 > g1 {
+							worstK = hits[i2].k
+						}
 					}
 				}
 			}

@@ -58,8 +58,8 @@ const (
 	ReasonOverAccumulatorBits Reason = "fir_accumulator_over_limit"
 	// ReasonNoFractionalSplit counts the rates Fm of a fractional ratio
 	// where no fractional stage fits (a polyphase stage needs at most 256
-	// phases, a Farrow stage a lowpass FIR before it at more than twice
-	// the band it keeps).
+	// phases, a Farrow stage at most 1024 and a lowpass FIR before it at
+	// more than twice the band it keeps).
 	ReasonNoFractionalSplit Reason = "no_fractional_stage_fits"
 )
 
@@ -85,7 +85,7 @@ var reasonText = map[Reason]string{
 	ReasonOverMultipliers:     "more multipliers at the clock than hardware.max_multipliers",
 	ReasonOverMemory:          "more memory than hardware.max_memory_bits",
 	ReasonOverAccumulatorBits: "a fir or half-band accumulator wider than hardware.max_register_bits",
-	ReasonNoFractionalSplit:   "rates tried for the fractional stage where no polyphase or farrow stage fits (each at most 256 phases; a farrow stage after a lowpass FIR, at more than twice the kept band)",
+	ReasonNoFractionalSplit:   "rates tried for the fractional stage where no polyphase or farrow stage fits (a polyphase stage has at most 256 phases, a farrow stage at most 1024 and comes after a lowpass FIR, at more than twice the kept band; a ratio whose denominator is larger needs ratio_tolerance_ppm)",
 }
 
 // Text is r in words ("cic rejection below target"); a name it does not

@@ -294,7 +294,7 @@ func planFractional(ctx context.Context, spec chain.Spec, s Settings) (*Result, 
 		exact.OutputRate, exact.RatioTolerancePPM = fk, 0
 		share := spec.RippleDB * chain.FractionalRippleShare
 		for _, lowpass := range []bool{false, true} {
-			if lowpass && !(chain.KeepEdge(exact, fm) < fm/2 && slices.Contains(frac, chain.Farrow) && up <= chain.MaxFractionalUp) {
+			if lowpass && !(chain.KeepEdge(exact, fm) < fm/2 && slices.Contains(frac, chain.Farrow) && up <= chain.MaxFarrowUp) {
 				continue // no Farrow stage can follow: Keep is not below Fm/2
 			}
 			if !lowpass && !(slices.Contains(frac, chain.Polyphase) && up <= chain.MaxFractionalUp) {

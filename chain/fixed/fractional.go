@@ -108,8 +108,8 @@ func fracFromChain(s chain.Stage, k int, interp bool) (Stage, error) {
 		st = Stage{R: 1, Up: v.Up, Down: v.Down, Farrow: v.Filter.Coef}
 		req = v.Req
 	}
-	if st.Up < 1 || st.Down < 1 || st.Up > chain.MaxFractionalUp {
-		return Stage{}, fmt.Errorf("fixed: stage %d: rate change %d/%d: Up must lie in [1, %d] and Down be at least 1", k+1, st.Up, st.Down, chain.MaxFractionalUp)
+	if st.Up < 1 || st.Down < 1 || st.Up > chain.MaxFarrowUp {
+		return Stage{}, fmt.Errorf("fixed: stage %d: rate change %d/%d: Up must lie in [1, %d] and Down be at least 1", k+1, st.Up, st.Down, chain.MaxFarrowUp)
 	}
 	if !(req.Dp > 0) || !(req.Ds > 0) || !(req.Passband > 0) || !(req.InputRate > 0) {
 		return Stage{}, fmt.Errorf("fixed: stage %d carries no requirement (Dp %g, Ds %g, passband %g Hz)", k+1, req.Dp, req.Ds, req.Passband)

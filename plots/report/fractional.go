@@ -3,7 +3,6 @@ package report
 import (
 	"fmt"
 	"math"
-	"math/cmplx"
 	"runtime"
 	"slices"
 	"sync"
@@ -23,10 +22,8 @@ import (
 // the stage's rigorous bounds on every call, too slow for the figure's
 // tens of thousands of points; fractionalCurves evaluates the same paths
 // from the stages' own Gain methods (TestFractionalCurvesMatchPathGains
-// holds it to chain.PathGains), and a polyphase stage's L paths at once:
-// with theta = 2 pi g / (L Fm), P(g + k Fm) = sum_r exp(-j 2 pi k r / L)
-// Q_r(g), Q_r(g) = sum_m p[r + L m] exp(-j theta (r + L m)), so that the L
-// paths cost one pass over the taps and an L-point DFT.
+// holds it to chain.PathGains), and a polyphase stage's L paths at once
+// (chain.PolyphasePaths: one pass over the taps and an L-point FFT).
 
 // fractionalWork is the most evaluations (taps and DFT terms) the curves
 // may take; a longer grid is thinned to fit (thinGrid), so that the
@@ -134,48 +131,24 @@ func (p fractionalParts) fold(f float64) float64 {
 
 // curves returns the kept path's gain and the largest alias's at g, both
 // relative to the gain at 0 Hz; the alias is 0 when no path lands in
-// [0, fa]. scratch holds 2L complex values for a polyphase stage.
-func (p fractionalParts) curves(g, fa float64, scratch []complex128) (kept, alias float64) {
+// [0, fa]. pp evaluates the polyphase stage's L paths at once and gains
+// is its scratch of L values.
+func (p fractionalParts) curves(g, fa float64, pp *chain.PolyphasePaths, gains []float64) (kept, alias float64) {
 	a := p.ic.Gain(g) / p.dc
-	consider := func(k int, gain float64) {
+	if pp == nil {
+		return kept, alias
+	}
+	gains = pp.Gains(g, gains)
+	for k, v := range gains {
+		gain := a * v * p.tailGain(g+float64(k)*p.fm)
+		if k == 0 {
+			kept = gain
+		}
 		if k == 0 && g <= fa {
-			return
+			continue
 		}
 		if p.fold(g+float64(k)*p.fm) <= fa {
 			alias = math.Max(alias, gain)
-		}
-	}
-	switch st := p.last.(type) {
-	case chain.PolyphaseStage:
-		l := st.Up
-		q, r := scratch[:l], scratch[l:2*l]
-		for i := range q {
-			q[i] = 0
-		}
-		// Q_r by a rotating phasor, resynchronised every 64 taps.
-		theta := 2 * math.Pi * g / (float64(l) * p.fm)
-		sw, cw := math.Sincos(-theta)
-		step := complex(cw, sw)
-		var ph complex128
-		for n, v := range st.Taps {
-			if n%64 == 0 {
-				s, c := math.Sincos(-theta * float64(n))
-				ph = complex(c, s)
-			}
-			q[n%l] += complex(v, 0) * ph
-			ph *= step
-		}
-		// The L-point DFT: path k's response sum_r w^(k r) Q_r.
-		for k := 0; k < l; k++ {
-			var s complex128
-			for i := 0; i < l; i++ {
-				s += q[i] * r[(k*i)%l]
-			}
-			gain := a * cmplx.Abs(s) * p.tailGain(g+float64(k)*p.fm)
-			if k == 0 {
-				kept = gain
-			}
-			consider(k, gain)
 		}
 	}
 	return kept, alias
@@ -192,16 +165,7 @@ func fractionalCurves(c *chain.Chain, fa float64, grid []float64) (kept, alias [
 		return nil, nil, err
 	}
 	kept, alias = make([]float64, len(grid)), make([]float64, len(grid))
-	l := 0
-	var twiddle []complex128
-	if st, ok := p.last.(chain.PolyphaseStage); ok {
-		l = st.Up
-		twiddle = make([]complex128, l)
-		for i := range twiddle {
-			s, c := math.Sincos(-2 * math.Pi * float64(i) / float64(l))
-			twiddle[i] = complex(c, s)
-		}
-	}
+	st, _ := p.last.(chain.PolyphaseStage)
 	const chunk = 512
 	next := make(chan int)
 	var wg sync.WaitGroup
@@ -209,11 +173,15 @@ func fractionalCurves(c *chain.Chain, fa float64, grid []float64) (kept, alias [
 		wg.Add(1)
 		go func() {
 			defer wg.Done()
-			scratch := make([]complex128, 2*l)
-			copy(scratch[l:], twiddle)
+			// Each worker its own evaluator (they are not shared).
+			var pp *chain.PolyphasePaths
+			if st.Up > 0 {
+				pp = chain.NewPolyphasePaths(st.Taps, st.Up, p.fm)
+			}
+			var gains []float64
 			for lo := range next {
 				for i := lo; i < min(lo+chunk, len(grid)); i++ {
-					k, a := p.curves(grid[i], fa, scratch)
+					k, a := p.curves(grid[i], fa, pp, gains)
 					kept[i], alias[i] = db(k), db(a)
 				}
 			}
