@@ -421,7 +421,7 @@ func specRows(s report.Spec) []kv {
 	ratio := kv{"Decimation", strconv.Itoa(s.Decimation)}
 	if strings.Contains(s.Ratio, "/") {
 		// A fractional spec: no integer D (its decimation is 0).
-		ratio = kv{"Ratio", s.Ratio + " (fractional: integer stages, then a polyphase or Farrow stage)"}
+		ratio = kv{"Ratio", s.Ratio + " (fractional: integer stages and one polyphase or Farrow stage)"}
 	}
 	if s.RatioTolerancePPM > 0 {
 		ratio.V += fmt.Sprintf(", within %s ppm", shortest(s.RatioTolerancePPM))
@@ -599,6 +599,9 @@ func stageViews(c report.Chain, files []string, prefix string, clock bool) []sta
 			add("Up, down", fmt.Sprintf("L = %d, M = %d", s.Interpolation, s.Decimation))
 			add("Prototype", fmt.Sprintf("%d taps at %s, unit gain at 0 Hz", s.Taps, freq(s.InputRateHz*float64(s.Interpolation))))
 			add("Taps per output", strconv.Itoa(s.PhaseTaps))
+			if s.CompensatesCIC != nil && *s.CompensatesCIC {
+				add("CIC droop", "compensated here")
+			}
 		case "farrow":
 			add("Up, down", fmt.Sprintf("L = %d, M = %d", s.Interpolation, s.Decimation))
 			add("Structure", fmt.Sprintf("%d subfilters of %d taps (degree %d in mu)", len(s.FarrowCoefficients), s.Taps, s.FarrowDegree))
