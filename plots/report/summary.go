@@ -69,6 +69,11 @@ func WriteWordLengths(w io.Writer, rep *Report) {
 	}
 	if ch.DCGainNote != "" {
 		gain += " (" + ch.DCGainNote + ")"
+	} else if (ch.GainCorrection == 1 || ch.GainCorrection == 0) && math.Abs(ch.DCGainDB) >= 0.5 {
+		// A CIC's gain (R M)^N is brought to the power of two below it
+		// by its output shift, an interpolating FIR's L to
+		// 2^floor(log2 L): say so, and how to undo it.
+		gain += " (stage gains rounded to powers of two by shifts; words.unity_gain = true folds the rest into the last FIR)"
 	}
 	fmt.Fprintf(w, "\nword lengths (%s): %s; rounded taps: %s rejection %.2f dB, ripple %.4f dB; %s\n",
 		coef, ch.BitTrueSummary(), rep.Spec.Unwanted(), ch.QuantisedRejectionDB, ch.QuantisedRippleDB, gain)
