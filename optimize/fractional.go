@@ -128,6 +128,21 @@ func gcdInt(a, b int) int {
 	return a
 }
 
+// subSettings are the settings of an integer search inside the fractional
+// search: at most maxStages stages of kinds (nil: every kind), on float
+// designs (the whole chains' word lengths are planned later), one job
+// (the searches themselves run side by side), no progress or scoring of
+// their own, and multiplies priced as multiplies.
+func subSettings(s Settings, maxStages int, kinds []chain.Kind) Settings {
+	s.MaxStages = maxStages
+	s.Kinds = kinds
+	s.floatOnly = true
+	s.Jobs = 1
+	s.Progress, s.Scoring = nil, nil
+	s.Cost.Multiplierless = false
+	return s
+}
+
 // maxAfterCICSplits bounds the decimations Db after a polyphase stage
 // placed after the CIC tried per CIC.
 const maxAfterCICSplits = 2
@@ -197,14 +212,7 @@ func afterCICPlans(ctx context.Context, spec chain.Spec, num, den int, cics []ch
 	}
 	runAll(ctx, jobs, len(tails), func(i int) {
 		t := tails[i]
-		ss := s
-		ss.MaxStages = maxStages - 2
-		ss.Kinds = kinds
-		ss.floatOnly = true
-		ss.Jobs = 1
-		ss.Progress, ss.Scoring = nil, nil
-		ss.Cost.Multiplierless = false
-		r, err := Plan(ctx, t.spec, ss)
+		r, err := Plan(ctx, t.spec, subSettings(s, maxStages-2, kinds))
 		if err != nil {
 			return
 		}
@@ -312,14 +320,7 @@ func planFractional(ctx context.Context, spec chain.Spec, s Settings) (*Result, 
 		if sub.d == 1 {
 			return
 		}
-		ss := s
-		ss.MaxStages = maxStages - 1
-		ss.Kinds = integer
-		ss.floatOnly = true
-		ss.Jobs = 1
-		ss.Progress, ss.Scoring = nil, nil
-		ss.Cost.Multiplierless = false
-		r, err := Plan(ctx, sub.spec, ss)
+		r, err := Plan(ctx, sub.spec, subSettings(s, maxStages-1, integer))
 		if err != nil {
 			sub.failed = true
 			return

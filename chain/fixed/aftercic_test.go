@@ -273,7 +273,7 @@ func TestAfterCICDataPath(t *testing.T) {
 		pi := slices.IndexFunc(cas.Stages, func(st Stage) bool { return st.fractional() })
 		st, sw := cas.Stages[pi], ws.Stages[pi]
 		want := refPolyphase(sw.Coefficients.Ints, st.Up, st.Down, sw.OutputShift, sw.OutputBits, outs[pi-1])
-		if !equalCodes(outs[pi], want) {
+		if !slices.Equal(outs[pi], want) {
 			t.Fatalf("%s: the polyphase stage's %d outputs differ from the plain resampler's %d", name, len(outs[pi]), len(want))
 		}
 		for k := 1; k < len(cas.Stages); k++ {
@@ -290,23 +290,11 @@ func TestAfterCICDataPath(t *testing.T) {
 			if err != nil {
 				t.Fatal(err)
 			}
-			if !equalCodes(outs[k], o[0]) {
+			if !slices.Equal(outs[k], o[0]) {
 				t.Fatalf("%s: stage %d's %d outputs in the chain differ from its %d run alone", name, k+1, len(outs[k]), len(o[0]))
 			}
 		}
 	}
-}
-
-func equalCodes(a, b []int64) bool {
-	if len(a) != len(b) {
-		return false
-	}
-	for i := range a {
-		if a[i] != b[i] {
-			return false
-		}
-	}
-	return true
 }
 
 // TestAfterCICStopped: a cancelled context stops the word lengths of a
