@@ -205,18 +205,10 @@ func TestAfterCICWordLengths(t *testing.T) {
 			// under the alias when valid), moves the measurement: by up to
 			// 20 log10(1 + 3 r) dB for noise three times its RMS at the
 			// ratio r (a Rayleigh tail; one draw of 40 came out 1.04 dB
-			// off at 21.6 dB of margin). An interpolation chain's image
-			// measurement has come out up to 0.67 dB from the response
-			// with no noise to explain it (open; the float chain run
-			// through chain.Run gives the response exactly): 1 dB, as
-			// TestFractionalQuantisedAnalyzeBruteForce allows.
+			// off at 21.6 dB of margin).
 			r := math.Pow(10, -(bt.AliasNoiseDB-bt.AliasResponseDB)/20)
 			d := math.Abs(bt.AliasRejectionDB - bt.AliasResponseDB)
-			allow := 20*math.Log10(1+3*r) + 0.1
-			if interp {
-				allow = math.Max(allow, 1)
-			}
-			if d > allow {
+			if d > 20*math.Log10(1+3*r)+0.1 {
 				t.Errorf("%s: bit-true alias %.2f dB at %g Hz, the quantised response %.2f dB", name, bt.AliasRejectionDB, bt.AliasHz, bt.AliasResponseDB)
 			}
 			worstTone = math.Max(worstTone, d)

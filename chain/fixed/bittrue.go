@@ -110,7 +110,10 @@ type BitTrueResult struct {
 	// AliasFloatRunDB and AliasResponseDB are 20 log10 of the output at f
 	// over the output at g (relative to the gain at f, not at DC);
 	// WorstAliasResponseDB is chain.Analyze's image rejection, relative to
-	// DC; AliasNoiseDB is relative to the output at f.
+	// DC; AliasNoiseDB is relative to the output at f, and at most the
+	// input's noise and rounding in one bin of the window's input
+	// samples (an image in the passband carries the input's noise at
+	// the passband's gain).
 	AliasHz, AliasOutHz  float64
 	AliasRejectionDB     float64 // bit-true, measured
 	AliasFloatRunDB      float64 // float chain, measured the same way

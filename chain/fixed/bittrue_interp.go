@@ -617,6 +617,16 @@ func imageRunFrac(ctx context.Context, c Cascade, w *Widths, sig Signal, res *Bi
 		}
 		resid := math.Sqrt(math.Max(0, left) / float64(max(1, wn-dims)))
 		res.AliasNoiseDB = posDB(2 * resid / math.Sqrt(fw) / aif)
+		// That is the output's average; an image can land in the
+		// passband (a path k != 0 of a fractional chain into [0, fa]),
+		// where the input's own noise and rounding pass at the
+		// passband's gain, far above the average the stopband thins.
+		// The bin's noise is then at most the input's in one bin of the
+		// window's input samples, relative to the tone: the larger of
+		// the two counts (the safe side for AliasValid).
+		lsb := math.Ldexp(1, 1-w.InputBits)
+		in := math.Sqrt(noise*noise + lsb*lsb/12)
+		res.AliasNoiseDB = math.Min(res.AliasNoiseDB, posDB(2*in/math.Sqrt(float64(nm))/amp))
 		res.AliasValid = res.AliasNoiseDB >= res.AliasRejectionDB+20
 		if res.AliasValid || res.AliasNoiseDB+12 < res.AliasRejectionDB+20 || skip+4*wn > autoOutputSamples || wn >= 16*win0 {
 			break
