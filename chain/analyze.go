@@ -67,6 +67,21 @@ func AnalyzeContext(ctx context.Context, c *Chain, spec Spec) (Analysis, error) 
 	return measure(ctx, c, spec)
 }
 
+// dcImagesDoubled says whether c is a real interpolation chain, whose
+// images of a DC input come out at twice a tone's (package documentation,
+// The truth of an interpolation chain): a real tone of amplitude A is two
+// components of A/2, each image of which is an output tone of amplitude
+// A |H|; a DC level A is one component of A, whose image at n FK, with
+// its mirror at -n FK, is an output tone of amplitude 2 A |H(n FK)|,
+// against the DC's own A |H(0)| (but at half the output rate, where the
+// image is its own mirror). A transmitter's baseband offset is such
+// an input. A complex chain's DC is one complex component (no mirror),
+// and a decimation chain's aliases land in its passband, where a DC
+// output of a real tone is at most the tone's amplitude times the gain.
+func dcImagesDoubled(c *Chain) bool {
+	return c.Direction == Interpolate && !c.Complex
+}
+
 func hasTaps(c *Chain) bool {
 	for _, s := range c.Stages {
 		if f, ok := s.(FIRStage); ok && f.Taps == nil {
@@ -455,6 +470,11 @@ func searchOn(ctx context.Context, cs gainBounder, bands bandSet, sign, certifyD
 			h.push(top)
 			continue
 		}
+		if !(top.hi > top.lo) {
+			// A band that is one point: its value is exact.
+			eval(top.lo)
+			continue
+		}
 		steps++
 		mid := top.lo + (top.hi-top.lo)/2
 		if steps >= maxBoundSteps || !(mid > top.lo && mid < top.hi) {
@@ -533,6 +553,28 @@ func measure(ctx context.Context, c *Chain, spec Spec) (Analysis, error) {
 			return Analysis{}, err
 		}
 		a.AliasRejectionDB, a.WorstAliasHz = -toDB(w.bound/h0), w.x
+	}
+	if dcImagesDoubled(c) {
+		// The images of a DC input, at the alias bands' centres n FK
+		// below F0/2 (at F0/2 itself the image is its own mirror: one
+		// real component, no doubling).
+		nd := int(math.Floor(f0h / fk))
+		if float64(nd)*fk >= f0h*(1-1e-12) {
+			nd--
+		}
+		dcs := bandSet{n: nd, weight: aliases.weight, weightMax: aliases.weightMax, band: func(k int) Interval {
+			g := float64(k+1) * fk
+			return Interval{g, g}
+		}}
+		if nd > 0 {
+			w, err := cs.search(ctx, dcs, 1, aliasCertifyDB)
+			if err != nil {
+				return Analysis{}, err
+			}
+			if r := -toDB(2 * w.bound / h0); r < a.AliasRejectionDB {
+				a.AliasRejectionDB, a.WorstAliasHz = r, w.x
+			}
+		}
 	}
 	pass := bandSet{n: 1, band: func(int) Interval { return Interval{0, fp} }}
 	hi, err := cs.search(ctx, pass, 1, rippleCertifyDB)

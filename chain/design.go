@@ -46,6 +46,14 @@ func build(ctx context.Context, spec Spec, plan []StagePlan, s Settings, design 
 		return nil, err
 	}
 	spec = user.DecimationView()
+	if spec.Direction() == Interpolate && !spec.Complex && !spec.dcRaised {
+		// A real interpolation chain's images of a DC input come out at
+		// twice a tone's (dcImagesDoubled): every stage is designed
+		// 20 log10 2 dB deeper, once (the specs of its parts keep the
+		// mark).
+		spec = spec.RejectionRaised(pairDB)
+		spec.dcRaised = true
+	}
 	if s.MaxTaps < 0 || (s.MaxTaps > 0 && s.MaxTaps < 3) {
 		return nil, fmt.Errorf("chain: Settings.MaxTaps = %d: must be 0 (no bound) or at least 3", s.MaxTaps)
 	}

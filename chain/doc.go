@@ -340,7 +340,19 @@
 // integrators, rate change and combs). Input frequency g at the high rate
 // passes the decimator with gain prod_i |H_i(g)|; the interpolator's output
 // at g, the image of the channel frequency g folded into [0, F_in/2], is
-// the same product. So every rule above holds for both directions on the
+// the same product. One input differs: a real chain's DC input (a
+// transmitter's baseband offset) is one real component, not the two
+// halves of a tone, and its image at k F_in and the image's mirror make an
+// output tone of twice the product, relative to the DC's own output
+// (amplitudes; at F_out/2 the image is its own mirror). Analyze counts the
+// images of a DC input at twice their gain (dcImagesDoubled; for a
+// fractional chain, path k of the input frequencies n FK - k Fm), and
+// build designs a real interpolation chain 20 log10 2 dB deeper
+// throughout (its fractional stage then needs no margin of its own for
+// paths that meet, since no point has both). TestRunInterpolationTones,
+// TestInterpolationAnalyzeBruteForce and TestFractionalInterpolationTones
+// run DC inputs. A complex chain's DC is one complex component: no
+// mirror. So every rule above holds for both directions on the
 // spec's DecimationView (rates swapped), which is how the package works:
 // Requirements, Design, Estimate and Analyze take an interpolation spec,
 // plan, design and measure its transpose, and return a Chain with

@@ -308,16 +308,22 @@ func KeepEdge(spec Spec, fm float64) float64 {
 	return math.Min(spec.Stopband, math.Min(fm, spec.OutputRate)-spec.Protected)
 }
 
-// coincidentDB is the margin a real chain's fractional stage is designed
-// with: two paths of one real tone can land on the same output frequency
-// and add (coincidentPaths), 20 log10 2 dB. A complex chain's paths never
-// meet.
-func coincidentDB(complex bool) float64 {
-	if complex {
+// coincidentDB is the margin a real decimation chain's fractional stage
+// (and the stages after one placed after the CIC) is designed with: two
+// paths of one real tone can land on the same output frequency and add
+// (coincidentPaths), 20 log10 2 dB. A complex chain's paths never meet;
+// a real interpolation chain's whole spec is already raised by as much
+// (build: the images of a DC input), and no point has both.
+func coincidentDB(spec Spec) float64 {
+	if spec.Complex || spec.Direction() == Interpolate {
 		return 0
 	}
-	return 20 * math.Log10(2)
+	return pairDB
 }
+
+// pairDB is 20 log10 2: two equal paths adding, or a DC input's image and
+// its mirror (dcImagesDoubled).
+var pairDB = 20 * math.Log10(2)
 
 // FractionalRippleShare is the share of the ripple budget a fractional
 // stage takes when integer stages come before it: half.
@@ -375,7 +381,7 @@ func buildFractional(ctx context.Context, spec Spec, plan []StagePlan, s Setting
 		// through by their ripple share; a real tone's two paths that
 		// meet on one output frequency add (coincidentPaths), so a real
 		// chain's stage is held 6 dB lower.
-		Ds: RejectionToDev(spec.RejectionDB + intRipple + coincidentDB(spec.Complex))}
+		Ds: RejectionToDev(spec.RejectionDB + intRipple + coincidentDB(spec))}
 	if lowpass {
 		// The lowpass before holds [Keep, Fm/2]: only the images of
 		// [0, Keep] are left to this stage.
@@ -442,7 +448,7 @@ func buildAfterCIC(ctx context.Context, spec Spec, plan []StagePlan, d int, s Se
 	tailRipple := spec.RippleDB - fracRipple
 	req := FractionalRequirement{InputRate: f1, OutputRate: f2, Passband: spec.Passband, Stop: stop,
 		RippleDB: fracRipple, Dp: RippleToDev(fracRipple),
-		Ds:    RejectionToDev(spec.RejectionDB + tailRipple + coincidentDB(spec.Complex)),
+		Ds:    RejectionToDev(spec.RejectionDB + tailRipple + coincidentDB(spec)),
 		Droop: cs, DroopRate: spec.InputRate, Hold: fa, GapLimit: 1}
 	if err := ctx.Err(); err != nil {
 		return nil, stopped(plan, err)
@@ -510,7 +516,7 @@ func tailSpec(spec Spec, f2, fracRipple float64) Spec {
 	// A real tone's two paths through the polyphase stage can land on
 	// one output frequency through these stages' stopbands and add
 	// (coincidentPaths): a real chain's are held 6 dB lower.
-	return tail.RejectionRaised(fracRipple + coincidentDB(spec.Complex))
+	return tail.RejectionRaised(fracRipple + coincidentDB(spec))
 }
 
 // PolyphaseBands returns the prototype's stopbands on its own axis, at Up

@@ -198,6 +198,36 @@ func measureFractional(ctx context.Context, c *Chain, spec Spec) (Analysis, erro
 	if err := searchPaths(fp0.shifts); err != nil {
 		return Analysis{}, err
 	}
+	if dcImagesDoubled(c) {
+		// The images of a DC input (dcImagesDoubled): path k of the
+		// input frequencies g = n FK - k Fm lands on the channel's 0 Hz,
+		// at twice its gain.
+		for _, shift := range fp0.shifts {
+			nlo := int(math.Ceil(shift / fk))
+			nhi := int(math.Floor((f0h + shift) / fk))
+			if float64(nhi)*fk-shift >= f0h*(1-1e-12) {
+				nhi-- // at F0/2 the image is its own mirror
+			}
+			if shift == 0 {
+				nlo = max(nlo, 1) // the DC itself
+			}
+			if nhi < nlo {
+				continue
+			}
+			dcs := bandSet{n: nhi - nlo + 1, weight: weight, weightMax: weightMax, band: func(i int) Interval {
+				g := math.Max(0, float64(nlo+i)*fk-shift)
+				return Interval{g, g}
+			}}
+			w, err := searchOn(ctx, fractionalPath{cs: cs, shift: shift, rg: fp0.rg, rb: fp0.rb}, dcs, 1, aliasCertifyDB)
+			if err != nil {
+				return Analysis{}, err
+			}
+			if v := 2 * w.bound; v > bound {
+				bound = v
+				best, bestShift = extreme{x: w.x, v: 2 * w.v, bound: v}, shift
+			}
+		}
+	}
 	if !c.Complex {
 		// A real tone's paths can meet on one output frequency, where
 		// they add (coincidentPaths).

@@ -562,11 +562,12 @@ func fractionalTones(t *testing.T, rng *rand.Rand, gens []randomGen) int {
 // TestFractionalInterpolationTones runs the transposes: an interpolation
 // spec with the rates of a random decimation spec swapped is designed on
 // the same plan (held in decimation order), Analyze gives the decimation
-// twin's figures, and a channel tone at the frequency where the twin's
-// worst alias lands is run up through the real transposed structures
+// twin's figures (a real chain's DC images aside, which count twice), and
+// a channel tone at the frequency where the worst image lands (a DC input
+// when that is 0 Hz) is run up through the real transposed structures
 // (the polyphase stage up M, prototype, down L; the Farrow stage
-// scattered at its input times): the image at the twin's worst alias
-// frequency must match the path's gain within 0.05 dB.
+// scattered at its input times): the image must match the path's gain
+// (twice it for a DC input) within 0.05 dB.
 func TestFractionalInterpolationTones(t *testing.T) {
 	rng := rand.New(rand.NewPCG(14, 5))
 	checked := 0
@@ -575,13 +576,23 @@ func TestFractionalInterpolationTones(t *testing.T) {
 			down, plan := g(rng)
 			up := down
 			up.InputRate, up.OutputRate = down.OutputRate, down.InputRate
-			cd, err := Design(down, plan, Settings{MaxTaps: 600})
-			if err != nil {
+			if _, err := Design(down, plan, Settings{MaxTaps: 600}); err != nil {
 				continue
 			}
 			c, err := Design(up, plan, Settings{MaxTaps: 600})
 			if err != nil {
 				t.Fatalf("%s: the transpose does not design: %v", Notation(plan), err)
+			}
+			// The twin: the same stages as a decimation chain (a real
+			// interpolation spec is designed deeper, for the images of a
+			// DC input, so the twin is not designed anew).
+			cd := &Chain{InputRate: c.InputRate, Complex: c.Complex, Direction: Decimate, Plan: c.Plan, Designed: true}
+			for _, st := range c.Stages {
+				if cs, ok := st.(CICStage); ok {
+					cs.Interpolator = false
+					st = cs
+				}
+				cd.Stages = append(cd.Stages, st)
 			}
 			if c.Direction != Interpolate {
 				t.Fatalf("%s: direction %s", Notation(plan), c.Direction)
@@ -594,10 +605,14 @@ func TestFractionalInterpolationTones(t *testing.T) {
 			if err != nil {
 				t.Fatal(err)
 			}
-			if a != ad {
+			fk, fa := c.OutputRate(), up.Protected // the channel rate
+			// The same figures as the twin's, but for a real chain's
+			// images of a DC input, at twice their path's gain: a lower
+			// rejection, then worst on the channel's 0 Hz.
+			dc := a.AliasRejectionDB < ad.AliasRejectionDB-1e-9
+			if dc && (down.Complex || a.WorstOutputHz > 1e-9*fk) || a.AliasRejectionDB > ad.AliasRejectionDB+1e-9 || a.PassbandRippleDB != ad.PassbandRippleDB || !dc && a != ad {
 				t.Errorf("%s: interpolation %+v, decimation twin %+v", Notation(plan), a, ad)
 			}
-			fk, fa := c.OutputRate(), up.Protected // the channel rate
 			paths := PathGains(c, a.WorstAliasHz, 64)
 			var worst PathGain
 			for _, p := range paths {
@@ -620,9 +635,12 @@ func TestFractionalInterpolationTones(t *testing.T) {
 			skip := 4096
 			nin := (nout+skip)*q0/p0 + 1
 			x := make([]float64, nin)
-			w := 2 * math.Pi * worst.OutputHz / fk
+			w, phase := 2*math.Pi*worst.OutputHz/fk, 0.3
+			if dc {
+				w, phase = 0, 0 // a DC input of 1
+			}
 			for i := range x {
-				x[i] = math.Cos(w*float64(i) + 0.3)
+				x[i] = math.Cos(w*float64(i) + phase)
 			}
 			y := Run(c, x)
 			if len(y) < skip+nout {
@@ -645,6 +663,12 @@ func TestFractionalInterpolationTones(t *testing.T) {
 				}
 			}
 			switch {
+			case dc:
+				// The DC's image and its mirror: twice the path.
+				if math.Abs(measured-(path-20*math.Log10(2))) > 0.05 || math.Abs(measured-a.AliasRejectionDB) > 0.05 {
+					t.Errorf("%s: DC input, image at %g Hz: measured %.3f dB, twice the path %.3f dB, Analyze %.3f dB",
+						Notation(plan), a.WorstAliasHz, measured, path-20*math.Log10(2), a.AliasRejectionDB)
+				}
 			case meet > 1:
 				if measured < -20*math.Log10(sum/c.Gain(0))-0.05 || measured > -20*math.Log10(diff/c.Gain(0))+0.05 || measured < a.AliasRejectionDB-0.05 {
 					t.Errorf("%s: channel tone at %g Hz, image at %g Hz where %d paths meet: measured %.3f dB, paths' sum %.3f dB, Analyze %.3f dB",

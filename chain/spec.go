@@ -49,6 +49,11 @@ type Spec struct {
 	// (IntegerSpec): their multiband FIRs' don't-care bands are held to
 	// unit gain (Requirement.GapLimit).
 	capGaps bool
+	// dcRaised marks the decimation view of a real interpolation spec
+	// whose rejection target build has raised for the images of a DC
+	// input (dcImagesDoubled), so that the parts it plans on specs of
+	// their own are not raised again.
+	dcRaised bool
 
 	// transposed marks the decimation view of an interpolation spec
 	// (DecimationView): its rates are swapped, and Direction still says
