@@ -120,6 +120,11 @@ func (s Spec) RatioString() string {
 	return strconv.Itoa(p) + "/" + strconv.Itoa(q)
 }
 
+// GCD returns the greatest common divisor of a and b (non-negative; 0 for
+// two zeros): the one owner of the rule for the packages that reduce rate
+// fractions.
+func GCD(a, b int) int { return gcd(a, b) }
+
 func gcd(a, b int) int {
 	for b != 0 {
 		a, b = b, a%b

@@ -121,13 +121,6 @@ func smoothUpTo(n int) []int {
 	return out
 }
 
-func gcdInt(a, b int) int {
-	for b != 0 {
-		a, b = b, a%b
-	}
-	return a
-}
-
 // subSettings are the settings of an integer search inside the fractional
 // search: at most maxStages stages of kinds (nil: every kind), on float
 // designs (the whole chains' word lengths are planned later), one job
@@ -185,7 +178,7 @@ func afterCICPlans(ctx context.Context, spec chain.Spec, num, den int, cics []ch
 		if r < 2 || den > math.MaxInt32/r {
 			continue
 		}
-		g := gcdInt(num, den*r)
+		g := chain.GCD(num, den*r)
 		a, b := num/g, den*r/g
 		if b < 2 || b > chain.MaxFractionalUp {
 			continue
@@ -282,7 +275,7 @@ func planFractional(ctx context.Context, spec chain.Spec, s Settings) (*Result, 
 	}
 	var subs []*subSearch
 	for _, d := range fractionalSplits(spec, num, den, maxStages) {
-		g := gcdInt(num, den*d)
+		g := chain.GCD(num, den*d)
 		up, down := den*d/g, num/g
 		if up == down {
 			continue // d is the whole ratio: no fractional stage

@@ -28,7 +28,10 @@ type Signal struct {
 	// lowered further by the largest DC gain from its input to a stage's
 	// output, when that is above 1 (see the package doc, Interpolation).
 	// Each frequency is moved to the nearest whole number of cycles in the
-	// measurement window at the output rate (coherent sampling).
+	// measurement window at the output rate (coherent sampling); in an
+	// interpolation cascade to the nearest number that shares no factor
+	// with the period of the tone's images, so that the rounding's
+	// harmonics of the tone do not hide among them.
 	Tones []Tone
 	// NoiseDBFS is the RMS of white Gaussian noise added to the tones, dB
 	// relative to full scale; zero means one input LSB (2^-(InputBits-1)),

@@ -133,8 +133,17 @@ func bitTrueInterp(ctx context.Context, c Cascade, w *Widths, sig Signal) (BitTr
 	// Run 1: the wanted tones plus noise.
 	var ms []int
 	var tones []toneGen
+	// A tone's family (it and its images) repeats every period bins; a
+	// tone whose bin shares a factor with it would have harmonics (the
+	// rounding's) on its family, which the SNR leaves out (a tone at
+	// F_in/6 read 13 dB too high): the bin is moved to the nearest one
+	// prime to the period.
+	period := nmIn
+	if frac.fractional() {
+		period = nmIn / outDen
+	}
 	for _, t := range sig.Tones {
-		m := int(math.Round(t.Freq / fin * float64(nmIn)))
+		m := coprimeNear(int(math.Round(t.Freq/fin*float64(nmIn))), period)
 		ms = append(ms, m)
 		f := float64(m) * fin / float64(nmIn)
 		res.Tones = append(res.Tones, Tone{Freq: f, Level: t.Level})
@@ -390,6 +399,18 @@ type family struct {
 
 func newFamily(l, nm, m int) *family {
 	return &family{m: m, nm: nm, l: l, c: make([]float64, l), s: make([]float64, l), rot: newRotor(int64(m), int64(nm))}
+}
+
+// coprimeNear returns the integer nearest m (m itself, then m+1, m-1,
+// m+2, ...) that is at least 1 and shares no factor with period.
+func coprimeNear(m, period int) int {
+	for d := 0; ; d++ {
+		for _, c := range []int{m + d, m - d} {
+			if c >= 1 && chain.GCD(c, period) == 1 {
+				return c
+			}
+		}
+	}
 }
 
 // newFamilyOut is the family of a tone at m cycles over a window of win
