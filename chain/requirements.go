@@ -247,7 +247,7 @@ func requirements(spec Spec, plan []StagePlan, stageAlone bool) ([]Requirement, 
 
 	share, ok := RippleShare(spec.RippleDB, uncorrected, nRipple)
 	if !ok {
-		return nil, planErr(plan, -1, "the uncorrected CIC droop %.4g dB at %s Hz exceeds RippleDB = %s dB",
+		return nil, planErr(plan, -1, "the uncorrected CIC droop %.4g dB at %s Hz is more than the %s dB of ripple these stages may take (ripple; with a fractional stage they have half of it): a FIR after the CIC would correct it",
 			uncorrected, fmtNum(fp), fmtNum(spec.RippleDB))
 	}
 	for i := range reqs {

@@ -203,11 +203,12 @@ func fractionalPlan(plan []StagePlan, num, den int, dir Direction) (d, f int, er
 	}
 	end, lm := "end", func(up, down int) (int, int) { return up, down }
 	// Stages later in decimation order come later in signal order for a
-	// decimation chain, earlier for an interpolation one.
-	later := "after"
+	// decimation chain, earlier for an interpolation one; the CIC begins
+	// a decimation chain and ends an interpolation one.
+	later, cicEnd := "after", "begins"
 	if dir == Interpolate {
 		end, lm = "begin", func(up, down int) (int, int) { return down, up }
-		later = "before"
+		later, cicEnd = "before", "ends"
 	}
 	f = planFracIndex(plan)
 	if f < 0 {
@@ -215,7 +216,7 @@ func fractionalPlan(plan []StagePlan, num, den int, dir Direction) (d, f int, er
 	}
 	mid := f < len(plan)-1
 	if mid && (f != 1 || plan[0].Kind != CIC || plan[f].Kind != Polyphase) {
-		return 0, 0, planErr(plan, f, "a fractional stage may only %s the chain, or be a polyphase stage just %s a CIC that %ss it", end, later, end)
+		return 0, 0, planErr(plan, f, "a fractional stage may only %s the chain, or be a polyphase stage just %s a CIC that %s it", end, later, cicEnd)
 	}
 	d = 1
 	for i, p := range plan {

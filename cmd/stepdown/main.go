@@ -1,5 +1,6 @@
-// Command stepdown plans multistage decimation chains (CIC, half-band and FIR
-// stages) for digital receiver front ends. See the README for the spec file,
+// Command stepdown plans multistage decimation and interpolation chains
+// (CIC, half-band, FIR, polyphase and Farrow stages) for digital receiver
+// and transmitter front ends. See the README for the spec file,
 // the chain notation and how to read the outputs.
 //
 // Exit status: 0 on success, 2 for a usage or spec error, 1 for a runtime
@@ -166,7 +167,7 @@ func newApp(stdout, stderr io.Writer) *cli.App {
 	}
 	app := &cli.App{
 		Name:  "stepdown",
-		Usage: "plan multistage decimation chains (CIC, half-band, FIR) for receiver front ends",
+		Usage: "plan multistage decimation and interpolation chains (CIC, half-band, FIR, polyphase, Farrow) for receiver and transmitter front ends",
 		Description: "The figures stepdown prints are planning estimates: confirm them by a bit-true\n" +
 			"simulation of the RTL and the team's own sign-off before committing hardware.",
 		Version:                   report.ToolVersion(),
