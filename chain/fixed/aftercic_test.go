@@ -83,7 +83,8 @@ func cicGainRef(n, m, r int, f, rate float64) float64 {
 // left out) is scanned at 64 points and refined by golden section at its
 // best; a real chain's paths that land together are summed by where they
 // land at every multiple of F1 / (2 M Db) (the only input frequencies
-// where two meet). It returns the worst over the gain at 0 Hz, in dB.
+// where two meet), and a real interpolation chain's images of a DC input
+// count twice. It returns the worst over the gain at 0 Hz, in dB.
 func bruteAfterCICRejection(q *chain.Chain, fa float64) float64 {
 	rates := q.Rates()
 	cic := q.Stages[0].(chain.CICStage)
@@ -156,6 +157,18 @@ func bruteAfterCICRejection(q *chain.Chain, fa float64) float64 {
 			}
 			for _, v := range land {
 				worst = math.Max(worst, v)
+			}
+		}
+	}
+	if q.Direction == chain.Interpolate && !q.Complex {
+		// A real interpolation chain's DC input is one component: its
+		// images (the inputs g = n FK - k F1 of path k, below F0/2) come
+		// out with their mirrors at twice the path.
+		for k := range pp.Up {
+			for n := 0; float64(n)*fk-float64(k)*f1 < f0h; n++ {
+				if g := float64(n)*fk - float64(k)*f1; g > 0 && g < f0h*(1-1e-12) {
+					worst = math.Max(worst, 2*path(g, k))
+				}
 			}
 		}
 	}

@@ -113,7 +113,7 @@ func bitTrueInterp(ctx context.Context, c Cascade, w *Widths, sig Signal) (BitTr
 		nmIn = (nmIn/2 + step - 1) / step * step
 	}
 	win := nmIn * outNum / outDen
-	if nout := skip + win; nout > maxOutputSamples || nmIn > maxOutputSamples/outNum {
+	if nout := skip + win; nout > maxOutputSamples {
 		return BitTrueResult{}, fmt.Errorf("fixed: bit-true run needs %d output samples (interpolation %s, %d output samples measured over %d input samples); at most %d are supported", skip+win, ratioText(outNum, outDen), win, nmIn, maxOutputSamples)
 	}
 	// need is the input samples that make nout output samples: a Farrow
