@@ -291,6 +291,15 @@ func TestMagBoundsBruteForce(t *testing.T) {
 func TestDeviationsBoundedExactAsym(t *testing.T) {
 	cases := randomAsymCases(t, 10, devCount(10, 80), boundMinTaps, 700)
 	cases = append(cases, randomAsymCases(t, 11, devCount(0, 3), 3000, 4500)...)
+	// Long ones, a Farrow stage's prototype's length, on bands cut to
+	// about 20 extrema (the direct way is slow).
+	for _, c := range randomAsymCases(t, 18, devCount(0, 3), 10000, 14000) {
+		for i := range c.bands {
+			b := &c.bands[i]
+			b.Hi = math.Min(b.Hi, b.Lo+20*c.rate/float64(len(c.h)))
+		}
+		cases = append(cases, c)
+	}
 	for _, c := range cases {
 		want := deviations(c.h, c.rate, c.bands, 16, false)
 		got := deviations(c.h, c.rate, c.bands, 16, true)
