@@ -7,6 +7,7 @@ import (
 	"os"
 	"testing"
 
+	"github.com/stepdown-dsp/stepdown/chain"
 	"github.com/stepdown-dsp/stepdown/chain/remez"
 )
 
@@ -375,6 +376,56 @@ func TestMeetsBandsSameVerdict(t *testing.T) {
 			want := Meets(dev, bs)
 			if got := meetsBands(c.h, c.rate, bs, 0); got != want {
 				t.Errorf("%s scale %g: meetsBands %v, Meets(Deviations) %v", c.name, scale, got, want)
+			}
+		}
+	}
+}
+
+// TestFarrowProtoDeviationsExact: the quantised prototypes of planned
+// random Farrow stages (rebuilt from their definition, bruteProto) are
+// measured with the same bits by the bounded path as by refining every
+// peak, near the planned deviations, and meetsBands gives Meets' verdict
+// at the planned limits and just around the measured deviations.
+func TestFarrowProtoDeviationsExact(t *testing.T) {
+	rng := rand.New(rand.NewPCG(19, 5))
+	need, found := fracCases(3, 12), 0
+	for tries := 0; found < need; tries++ {
+		if tries > 40*need {
+			t.Fatalf("%d of %d random Farrow stages of %d taps or more", found, need, boundMinTaps)
+		}
+		_, c, cas, ws := plannedFrac(t, rng, true)
+		k := len(cas.Stages) - 1
+		sw := ws.Stages[k]
+		st := cas.Stages[k]
+		if !sw.Farrow {
+			t.Fatalf("%s: last stage is not a Farrow stage", chain.Notation(c.Plan))
+		}
+		h := bruteProto(&sw)
+		if len(h) < boundMinTaps { // measured the direct way anyway
+			continue
+		}
+		found++
+		t.Logf("%s: %d taps, %d bands", chain.Notation(c.Plan), len(h), len(st.Bands))
+		rate := cas.Rates()[k] * float64(st.Up)
+		want := deviations(h, rate, st.Bands, 16, false)
+		got := deviations(h, rate, st.Bands, 16, true)
+		for i := range want {
+			if math.Float64bits(got[i]) != math.Float64bits(want[i]) {
+				t.Errorf("%s (%d taps) band %d: bounded %.17g, every peak %.17g", chain.Notation(c.Plan), len(h), i, got[i], want[i])
+			}
+			if d := sw.Deviations[i]; math.Abs(d-want[i]) > 1e-9*math.Max(d, 1e-6) {
+				t.Errorf("%s band %d: planned deviation %.17g, measured %.17g", chain.Notation(c.Plan), i, d, want[i])
+			}
+		}
+		for _, scale := range []float64{0, 1 - 1e-12, 1 + 1e-12} {
+			bs := append([]remez.Band(nil), st.Bands...)
+			if scale > 0 {
+				for i := range bs {
+					bs[i].MaxError = want[i] * scale
+				}
+			}
+			if g, w := meetsBands(h, rate, bs, 0), Meets(want, bs); g != w {
+				t.Errorf("%s scale %g: meetsBands %v, Meets %v", chain.Notation(c.Plan), scale, g, w)
 			}
 		}
 	}
