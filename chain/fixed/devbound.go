@@ -16,8 +16,8 @@ import (
 const boundMinTaps = 128
 
 // boundMaxTaps is the longest filter measured through ampBounds, whose
-// tables take about 1.5 KiB per tap (an FFT of up to 32 n points): 96 MiB
-// at this length, well within the module's 1 GiB. A polyphase prototype
+// tables take about 1.5 KiB per tap (an FFT of up to 32 n points), 1.7 KiB
+// for a filter that is not symmetric (newMagBounds): 110 MiB at this length, well within the module's 1 GiB. A polyphase prototype
 // has at most 65535 taps; a longer filter is measured the direct way.
 const boundMaxTaps = 1 << 16
 
@@ -166,11 +166,15 @@ func (b *ampBounds) cell(f float64) int {
 	return int(math.Max(0, math.Min(m, float64(b.size/2))))
 }
 
-// errBound returns an upper bound of | |A(f)| - d | over [f0, f1], the
-// cells holding the ends widened by one on each side against the rounding
-// of f/rate.
+// errBound returns an upper bound of | |A(f)| - d | over [f0, f1]
+// (0 <= f0 <= f1), over the cells holding it: f0 and f1 moved out by a
+// billionth of a cell, well above the rounding of f/rate size (one
+// rounding, u relative), so that a frequency on a cell's edge takes
+// both cells.
 func (b *ampBounds) errBound(f0, f1, d float64) float64 {
-	m0, m1 := max(b.cell(f0)-1, 0), min(b.cell(f1)+1, b.size/2)
+	x0, x1 := f0/b.rate*float64(b.size), f1/b.rate*float64(b.size)
+	m0 := int(math.Max(0, math.Floor(x0-1e-9*(x0+1)+0.5)))
+	m1 := int(math.Min(float64(b.size/2), math.Floor(x1+1e-9*(x1+1)+0.5)))
 	lo, hi := math.Inf(1), math.Inf(-1)
 	for m := m0; m <= m1; m++ {
 		lo, hi = math.Min(lo, b.lo[m]), math.Max(hi, b.hi[m])
@@ -186,8 +190,9 @@ func (b *ampBounds) errBound(f0, f1, d float64) float64 {
 }
 
 // deviationBounded is Deviations' measurement of one band of constant gain
-// and unit weight (no GainFunc, no WeightFunc) for a symmetric filter,
-// with the same result bit for bit: Deviations takes the largest of the
+// and unit weight (no GainFunc, no WeightFunc), each evaluating the
+// response (response.each) and ab bounding it, with the same result bit
+// for bit: Deviations takes the largest of the
 // direct grid values at the grid's local maxima and of each one's
 // golden-section refinement. Here every grid interval's error is first
 // bounded (ampBounds, never below the truth nor below a direct
@@ -198,7 +203,12 @@ func (b *ampBounds) errBound(f0, f1, d float64) float64 {
 // value is a lower bound of Deviations' result (the grid's largest value is
 // at one of its local maxima), so raising the running figure by it is
 // safe.
-func deviationBounded(b *remez.Band, fs []float64, ab *ampBounds, h []float64, rate float64) float64 {
+//
+// With a finite limit it only tells whether that result is above limit:
+// it returns a value above limit (a direct value, so the result is
+// too) or at most limit (the largest bound when no interval's bound is
+// above limit, else the result).
+func deviationBounded(b *remez.Band, fs []float64, ab *ampBounds, each func(xs, out []float64), limit float64) float64 {
 	pts := len(fs)
 	d := b.Gain
 	ub := make([]float64, pts)
@@ -207,12 +217,12 @@ func deviationBounded(b *remez.Band, fs []float64, ab *ampBounds, h []float64, r
 	}
 	es := make([]float64, pts)
 	done := make([]bool, pts)
-	// errs writes bandErr at each of xs into out, the amplitudes evaluated
-	// together (remez.AmplitudeEach, Amplitude's bits).
+	// errs writes bandErr at each of xs into out, the responses evaluated
+	// together (each, with Deviations' bits).
 	amp := []float64{}
 	errs := func(xs, out []float64) {
 		amp = slices.Grow(amp[:0], len(xs))[:len(xs)]
-		remez.AmplitudeEach(h, xs, rate, amp)
+		each(xs, amp)
 		for i, f := range xs {
 			out[i] = bandErr(b, f, amp[i])
 		}
@@ -241,8 +251,14 @@ func deviationBounded(b *remez.Band, fs []float64, ab *ampBounds, h []float64, r
 			top = j
 		}
 	}
+	if !math.IsInf(limit, 1) && ub[top] <= limit {
+		return ub[top]
+	}
 	fill([]int{top})
 	m := math.Max(0, es[top])
+	if m > limit {
+		return m
+	}
 	var cand []int
 	for j := range ub {
 		if ub[j] >= m {
@@ -288,6 +304,9 @@ func deviationBounded(b *remez.Band, fs []float64, ab *ampBounds, h []float64, r
 		for _, v := range gv {
 			m = math.Max(m, v)
 		}
+		if m > limit {
+			return m
+		}
 		k = end
 	}
 	return m
@@ -297,6 +316,97 @@ func deviationBounded(b *remez.Band, fs []float64, ab *ampBounds, h []float64, r
 func finite(h []float64) bool {
 	for _, v := range h {
 		if math.IsNaN(v) || math.IsInf(v, 0) {
+			return false
+		}
+	}
+	return true
+}
+
+// response is how Deviations evaluates a filter: the zero-phase amplitude
+// of a symmetric one (Amplitude), the magnitude of any other (magnitude),
+// with the bounds of either built on first use.
+type response struct {
+	h    []float64
+	rate float64
+	sym  bool
+	ab   *ampBounds
+	fin  int // 0 unknown, 1 finite taps, 2 not
+}
+
+func newResponse(h []float64, rate float64) *response {
+	return &response{h: h, rate: rate, sym: symmetric(h)}
+}
+
+// eval is the response at f.
+func (r *response) eval(f float64) float64 {
+	if r.sym {
+		return Amplitude(r.h, f, r.rate)
+	}
+	return magnitude(r.h, f, r.rate)
+}
+
+// each writes eval at each of xs into out, the same bits (a symmetric
+// filter's interleaved by remez.AmplitudeEach).
+func (r *response) each(xs, out []float64) {
+	if r.sym {
+		remez.AmplitudeEach(r.h, xs, r.rate, out)
+		return
+	}
+	for i, f := range xs {
+		out[i] = magnitude(r.h, f, r.rate)
+	}
+}
+
+// boundable says whether band b of the filter is measured through bounds
+// (deviationBounded): a filter of at most boundMaxTaps finite taps, a
+// band of constant gain and unit weight.
+func (r *response) boundable(b *remez.Band) bool {
+	if r.fin == 0 {
+		r.fin = 2 - b2i(finite(r.h))
+	}
+	return len(r.h) <= boundMaxTaps && b.GainFunc == nil && b.WeightFunc == nil && r.fin == 1
+}
+
+// bounds returns the response's bounds (newAmpBounds or newMagBounds).
+func (r *response) bounds() *ampBounds {
+	if r.ab == nil {
+		if r.sym {
+			r.ab = newAmpBounds(r.h, r.rate)
+		} else {
+			r.ab = newMagBounds(r.h, r.rate)
+		}
+	}
+	return r.ab
+}
+
+// meetsBands reports Meets(Deviations(h, rate, bands, density), bands),
+// the same verdict, for less work when only the verdict is wanted (a
+// width search's trials): a band Deviations measures through bounds is
+// met outright when no interval's bound passes its MaxError, and missed
+// as soon as one direct value does; any other band is measured as
+// Deviations measures it (each band on its own, so one band alone gets
+// its bits). density is Deviations'.
+func meetsBands(h []float64, rate float64, bands []remez.Band, density int) bool {
+	if density <= 0 {
+		density = 16
+	}
+	if len(h) < boundMinTaps {
+		return Meets(Deviations(h, rate, bands, density), bands)
+	}
+	r := newResponse(h, rate)
+	var rest []int
+	for i := range bands {
+		b := &bands[i]
+		if !r.boundable(b) {
+			rest = append(rest, i)
+			continue
+		}
+		if deviationBounded(b, bandGrid(b, len(h), rate, density), r.bounds(), r.each, b.MaxError) > b.MaxError {
+			return false
+		}
+	}
+	for _, i := range rest {
+		if deviations(h, rate, bands[i:i+1], density, true)[0] > bands[i].MaxError {
 			return false
 		}
 	}

@@ -7,6 +7,7 @@ import (
 	"os"
 	"testing"
 
+	"github.com/stepdown-dsp/stepdown/chain"
 	"github.com/stepdown-dsp/stepdown/chain/remez"
 )
 
@@ -175,6 +176,256 @@ func TestDeviationsNotOptimistic(t *testing.T) {
 			}
 			if got[i] < brute-1e-12*sum {
 				t.Errorf("%s band %d [%g, %g]: Deviations %.17g below brute force %.17g", c.name, i, b.Lo, b.Hi, got[i], brute)
+			}
+		}
+	}
+}
+
+// asymmetrize turns a case's taps into a filter that is not symmetric,
+// measured by its magnitude: a Farrow-like prototype (a windowed sinc of
+// the case's cutoff sampled at L phases whose times are rounded,
+// t = (j + e_(j mod L)) / L, then rounded to a random width), the taps
+// delayed by zeros at one end (the same |H| as the symmetric filter),
+// each tap moved by up to a thousandth of the largest, or decaying
+// random taps. kind is which.
+func asymmetrize(rng *rand.Rand, c devCase) (devCase, int) {
+	n := len(c.h)
+	h := make([]float64, n)
+	kind := rng.IntN(4)
+	big := 0.0
+	for _, v := range c.h {
+		big = math.Max(big, math.Abs(v))
+	}
+	switch kind {
+	case 0:
+		l := 2 + rng.IntN(min(n/8, 800))
+		e := make([]float64, l)
+		for r := range e {
+			e[r] = 0.04 * (rng.Float64() - 0.5)
+		}
+		fc := (c.bands[0].Hi + c.bands[1].Lo) / 2 / c.rate // cycles per sample
+		mid := float64(n-1) / 2
+		for j := range h {
+			t := (float64(j) + e[j%l] - mid) // in samples of the prototype
+			x := 2 * fc * t
+			s := 1.0
+			if x != 0 {
+				s = math.Sin(math.Pi*x) / (math.Pi * x)
+			}
+			w := 0.42 + 0.5*math.Cos(2*math.Pi*t/float64(n)) + 0.08*math.Cos(4*math.Pi*t/float64(n))
+			h[j] = 2 * fc * s * w * c.bands[0].Gain
+		}
+		h = Quantize(h, 12+rng.IntN(12)).Float()
+	case 1:
+		z := 1 + rng.IntN(n/4)
+		if rng.IntN(2) == 0 {
+			copy(h[z:], c.h[:n-z])
+		} else {
+			copy(h, c.h[z:])
+		}
+	case 2:
+		for k, v := range c.h {
+			h[k] = v + 1e-3*big*(rng.Float64()-0.5)
+		}
+	default:
+		for k := range h {
+			h[k] = rng.NormFloat64() * math.Exp(-4*float64(k)/float64(n)) / float64(n)
+		}
+	}
+	if symmetric(h) {
+		h[0] += big / 7
+	}
+	c.h = h
+	c.name += fmt.Sprintf(" asym %d", kind)
+	return c, kind
+}
+
+// randomAsymCases is randomDevCases made asymmetric (asymmetrize).
+func randomAsymCases(t *testing.T, seed uint64, count, minN, maxN int) []devCase {
+	t.Helper()
+	rng := rand.New(rand.NewPCG(seed, 23))
+	var out []devCase
+	for _, c := range randomDevCases(t, seed, count, minN, maxN) {
+		c, _ = asymmetrize(rng, c)
+		out = append(out, c)
+	}
+	return out
+}
+
+// TestMagBoundsBruteForce holds newMagBounds to |H(f)| evaluated term by
+// term (dtft, complex exponentials, sharing no code with the FFT or with
+// magnitude) and to magnitude itself, at random frequencies and at cell
+// edges: never outside [lo, hi] of the cell holding the frequency.
+func TestMagBoundsBruteForce(t *testing.T) {
+	rng := rand.New(rand.NewPCG(7, 9))
+	cases := randomAsymCases(t, 8, devCount(8, 50), boundMinTaps, 2500)
+	cases = append(cases, randomAsymCases(t, 9, devCount(0, 3), 9000, 14000)...)
+	for _, c := range cases {
+		ab := newMagBounds(c.h, c.rate)
+		widest, sum := 0.0, 0.0
+		for _, v := range c.h {
+			sum += math.Abs(v)
+		}
+		for range 600 {
+			f := c.rate / 2 * rng.Float64()
+			if rng.IntN(4) == 0 { // a cell's edge
+				m := float64(rng.IntN(ab.size/2)) + 0.5
+				f = m * c.rate / float64(ab.size)
+			}
+			m := ab.cell(f)
+			for _, a := range []float64{dtft(c.h, f, c.rate), magnitude(c.h, f, c.rate)} {
+				if a < ab.lo[m] || a > ab.hi[m] {
+					t.Fatalf("%s: |H(%g Hz)| = %.17g outside cell %d's [%.17g, %.17g]", c.name, f, a, m, ab.lo[m], ab.hi[m])
+				}
+			}
+			widest = math.Max(widest, ab.hi[m]-ab.lo[m])
+		}
+		if widest > 0.3*sum {
+			t.Errorf("%s: a cell's bounds are %g apart, taps' sum %g", c.name, widest, sum)
+		}
+	}
+}
+
+// TestDeviationsBoundedExactAsym: for filters that are not symmetric the
+// bounded path returns the same bits as refining every local maximum of
+// the grid with magnitude.
+func TestDeviationsBoundedExactAsym(t *testing.T) {
+	cases := randomAsymCases(t, 10, devCount(10, 80), boundMinTaps, 700)
+	cases = append(cases, randomAsymCases(t, 11, devCount(0, 3), 3000, 4500)...)
+	// Long ones, a Farrow stage's prototype's length, on bands cut to
+	// about 20 extrema (the direct way is slow).
+	for _, c := range randomAsymCases(t, 18, devCount(0, 3), 10000, 14000) {
+		for i := range c.bands {
+			b := &c.bands[i]
+			b.Hi = math.Min(b.Hi, b.Lo+20*c.rate/float64(len(c.h)))
+		}
+		cases = append(cases, c)
+	}
+	for _, c := range cases {
+		want := deviations(c.h, c.rate, c.bands, 16, false)
+		got := deviations(c.h, c.rate, c.bands, 16, true)
+		for i := range want {
+			if math.Float64bits(got[i]) != math.Float64bits(want[i]) {
+				t.Errorf("%s band %d [%g, %g]: bounded %.17g, every peak %.17g", c.name, i, c.bands[i].Lo, c.bands[i].Hi, got[i], want[i])
+			}
+		}
+	}
+}
+
+// TestDeviationsNotOptimisticAsym compares Deviations of filters that
+// are not symmetric with a brute-force dense evaluation of |H| term by
+// term (dtft at 256 points per expected extremum, band edges included):
+// never below it by more than rounding (1e-12 of the taps' sum).
+func TestDeviationsNotOptimisticAsym(t *testing.T) {
+	cases := randomAsymCases(t, 12, devCount(4, 40), boundMinTaps, 400)
+	for _, c := range randomAsymCases(t, 13, devCount(1, 4), 3000, 4500) {
+		c.bands = c.bands[2:]
+		b := &c.bands[1]
+		b.Hi = math.Min(b.Hi, b.Lo+20*c.rate/float64(len(c.h)))
+		cases = append(cases, c)
+	}
+	for _, c := range cases {
+		got := Deviations(c.h, c.rate, c.bands, 0)
+		sum := 0.0
+		for _, v := range c.h {
+			sum += math.Abs(v)
+		}
+		for i, b := range c.bands {
+			pts := int(math.Ceil(float64(len(c.h))*(b.Hi-b.Lo)/c.rate*256)) + 2
+			brute := 0.0
+			for j := range pts {
+				f := b.Lo + (b.Hi-b.Lo)*float64(j)/float64(pts-1)
+				brute = math.Max(brute, math.Abs(dtft(c.h, f, c.rate)-b.Gain))
+			}
+			if got[i] < brute-1e-12*sum {
+				t.Errorf("%s band %d [%g, %g]: Deviations %.17g below brute force %.17g", c.name, i, b.Lo, b.Hi, got[i], brute)
+			}
+		}
+	}
+}
+
+// TestMeetsBandsSameVerdict: meetsBands gives Meets(Deviations) on
+// seeded random filters, symmetric or not, with each band's MaxError
+// put just below, at and just above its measured deviation, far from it,
+// and with a band whose gain and weight are functions.
+func TestMeetsBandsSameVerdict(t *testing.T) {
+	rng := rand.New(rand.NewPCG(14, 3))
+	cases := randomDevCases(t, 15, devCount(6, 40), boundMinTaps, 600)
+	cases = append(cases, randomAsymCases(t, 16, devCount(6, 40), boundMinTaps, 600)...)
+	cases = append(cases, randomDevCases(t, 17, devCount(2, 6), 40, boundMinTaps-1)...)
+	for _, c := range cases {
+		if rng.IntN(3) == 0 {
+			g := c.bands[0].Gain
+			c.bands = append(c.bands, remez.Band{Lo: 0, Hi: c.bands[0].Hi, MaxError: 1,
+				GainFunc:   func(f float64) float64 { return g * (1 + 0.1*f/c.rate) },
+				WeightFunc: func(f float64) float64 { return 1 + f/c.rate }})
+		}
+		dev := Deviations(c.h, c.rate, c.bands, 0)
+		for _, scale := range []float64{0.5, 1 - 1e-12, 1, 1 + 1e-12, 2} {
+			bs := append([]remez.Band(nil), c.bands...)
+			pick := rng.IntN(len(bs))
+			for i := range bs {
+				bs[i].MaxError = dev[i] * 3
+				if i == pick || rng.IntN(3) == 0 {
+					bs[i].MaxError = dev[i] * scale
+				}
+			}
+			if !(bs[pick].MaxError > 0) {
+				continue
+			}
+			want := Meets(dev, bs)
+			if got := meetsBands(c.h, c.rate, bs, 0); got != want {
+				t.Errorf("%s scale %g: meetsBands %v, Meets(Deviations) %v", c.name, scale, got, want)
+			}
+		}
+	}
+}
+
+// TestFarrowProtoDeviationsExact: the quantised prototypes of planned
+// random Farrow stages (rebuilt from their definition, bruteProto) are
+// measured with the same bits by the bounded path as by refining every
+// peak, near the planned deviations, and meetsBands gives Meets' verdict
+// at the planned limits and just around the measured deviations.
+func TestFarrowProtoDeviationsExact(t *testing.T) {
+	rng := rand.New(rand.NewPCG(19, 5))
+	need, found := fracCases(3, 12), 0
+	for tries := 0; found < need; tries++ {
+		if tries > 40*need {
+			t.Fatalf("%d of %d random Farrow stages of %d taps or more", found, need, boundMinTaps)
+		}
+		_, c, cas, ws := plannedFrac(t, rng, true)
+		k := len(cas.Stages) - 1
+		sw := ws.Stages[k]
+		st := cas.Stages[k]
+		if !sw.Farrow {
+			t.Fatalf("%s: last stage is not a Farrow stage", chain.Notation(c.Plan))
+		}
+		h := bruteProto(&sw)
+		if len(h) < boundMinTaps { // measured the direct way anyway
+			continue
+		}
+		found++
+		t.Logf("%s: %d taps, %d bands", chain.Notation(c.Plan), len(h), len(st.Bands))
+		rate := cas.Rates()[k] * float64(st.Up)
+		want := deviations(h, rate, st.Bands, 16, false)
+		got := deviations(h, rate, st.Bands, 16, true)
+		for i := range want {
+			if math.Float64bits(got[i]) != math.Float64bits(want[i]) {
+				t.Errorf("%s (%d taps) band %d: bounded %.17g, every peak %.17g", chain.Notation(c.Plan), len(h), i, got[i], want[i])
+			}
+			if d := sw.Deviations[i]; math.Abs(d-want[i]) > 1e-9*math.Max(d, 1e-6) {
+				t.Errorf("%s band %d: planned deviation %.17g, measured %.17g", chain.Notation(c.Plan), i, d, want[i])
+			}
+		}
+		for _, scale := range []float64{0, 1 - 1e-12, 1 + 1e-12} {
+			bs := append([]remez.Band(nil), st.Bands...)
+			if scale > 0 {
+				for i := range bs {
+					bs[i].MaxError = want[i] * scale
+				}
+			}
+			if g, w := meetsBands(h, rate, bs, 0), Meets(want, bs); g != w {
+				t.Errorf("%s scale %g: meetsBands %v, Meets %v", chain.Notation(c.Plan), scale, g, w)
 			}
 		}
 	}

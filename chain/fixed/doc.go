@@ -31,9 +31,13 @@
 // band's MaxError (the remez.Band convention: | |H(f)| - D(f) | * w(f), w the
 // band's WeightFunc or 1), measured on a dense grid with local maxima refined
 // (Deviations; for a long filter, a peak that rigorous Taylor bounds of the
-// amplitude over FFT cells show to lie below a value already measured is
-// skipped, which changes no bit of the result, and the measurements of a
-// filter are remembered within the process, bounded to 2^21 taps).
+// amplitude, or of the magnitude of a filter that is not symmetric, over
+// FFT cells show to lie below a value already measured is skipped, which
+// changes no bit of the result, and the measurements of a filter are
+// remembered within the process, bounded to 2^21 taps). A width search
+// that only needs the verdict at a trial width asks for it alone
+// (meetsBands: a band whose bounds stay within its limit is met without
+// being measured, one is missed at its first value above it).
 // Before a bit is added, a local search (QuantSettings.Budget trial moves,
 // default 64) tries the other rounding of the taps with the largest rounding
 // error, one symmetric pair at a time, keeping moves that lower the worst

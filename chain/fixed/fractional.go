@@ -328,16 +328,21 @@ func planFarrow(st Stage, rate float64, in, ob, coefBits int, s Settings, minBit
 	sw := StageWidths{R: 1, Up: st.Up, Down: st.Down, Farrow: true, FarrowRows: rows, InputBits: in, OutputBits: ob}
 	var bands []remez.Band
 	sw.FloatDeviations, sw.FloatMeets, bands = floatTargets(farrowFloatProto(st), prate, st.Bands, density)
-	try := func(b int) (Coefficients, int, []float64, bool) {
+	// proto is the quantised stage's prototype at width b.
+	proto := func(b int) (Coefficients, int, []float64) {
 		cf := Quantize(flat, b)
 		mb := defaultMuBits(b, l, s)
-		proto := farrowQuantProto(cf, rows, n, l, mb)
+		p := farrowQuantProto(cf, rows, n, l, mb)
 		if g != 1 {
-			for j := range proto {
-				proto[j] /= g
+			for j := range p {
+				p[j] /= g
 			}
 		}
-		dev := Deviations(proto, prate, bands, density)
+		return cf, mb, p
+	}
+	try := func(b int) (Coefficients, int, []float64, bool) {
+		cf, mb, p := proto(b)
+		dev := Deviations(p, prate, bands, density)
 		return cf, mb, dev, Meets(dev, bands)
 	}
 	var cf Coefficients
@@ -353,8 +358,8 @@ func planFarrow(st Stage, rate float64, in, ob, coefBits int, s Settings, minBit
 			return StageWidths{}, fmt.Errorf("fixed: coefficient widths [%d, %d] must lie within [2, %d]", lo, hi, MaxBits)
 		}
 		b, err := narrowestWidth(lo, hi, widthEstimate(flat, bands, sw.FloatDeviations), s.Quant, func(b int) bool {
-			_, _, _, ok := try(b)
-			return ok
+			_, _, p := proto(b)
+			return meetsBands(p, prate, bands, density)
 		})
 		if err != nil {
 			return StageWidths{}, err

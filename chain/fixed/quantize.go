@@ -203,10 +203,11 @@ func bandErr(b *remez.Band, f, a float64) float64 {
 // as for remez.Band.MaxError), measured on a dense grid with every local
 // maximum refined by golden-section search. density is the number of grid
 // points per expected extremum; zero means 16. A band of constant gain and
-// unit weight of a symmetric filter of boundMinTaps taps or more skips the
-// peaks that rigorous bounds show cannot be the largest (deviationBounded),
-// with the same result bit for bit; a long filter's result is remembered
-// (devCache).
+// unit weight of a filter of boundMinTaps taps or more skips the peaks that
+// rigorous bounds show cannot be the largest (deviationBounded), with the
+// same result bit for bit; a long filter's result is remembered
+// (devCache). |H| is the zero-phase amplitude's magnitude for a symmetric
+// filter (Amplitude), else magnitude's.
 func Deviations(h []float64, rate float64, bands []remez.Band, density int) []float64 {
 	if density <= 0 {
 		density = 16
@@ -223,36 +224,22 @@ func Deviations(h []float64, rate float64, bands []remez.Band, density int) []fl
 }
 
 // deviations is Deviations unremembered, density > 0. bounded lets a band
-// of constant gain and unit weight of a long symmetric filter be measured by
+// of constant gain and unit weight of a long filter be measured by
 // deviationBounded, which gives the same bits as refining every peak.
 func deviations(h []float64, rate float64, bands []remez.Band, density int, bounded bool) []float64 {
-	eval := func(f float64) float64 { return magnitude(h, f, rate) }
-	sym := symmetric(h)
-	if sym {
-		eval = func(f float64) float64 { return Amplitude(h, f, rate) }
-	}
-	var ab *ampBounds
+	r := newResponse(h, rate)
 	out := make([]float64, len(bands))
 	for i := range bands {
 		b := &bands[i]
 		fs := bandGrid(b, len(h), rate, density)
-		if bounded && sym && len(h) <= boundMaxTaps && b.GainFunc == nil && b.WeightFunc == nil && finite(h) {
-			if ab == nil {
-				ab = newAmpBounds(h, rate)
-			}
-			out[i] = deviationBounded(b, fs, ab, h, rate)
+		if bounded && r.boundable(b) {
+			out[i] = deviationBounded(b, fs, r.bounds(), r.each, math.Inf(1))
 			continue
 		}
 		es := make([]float64, len(fs))
-		if sym {
-			remez.AmplitudeEach(h, fs, rate, es)
-			for j, f := range fs {
-				es[j] = bandErr(b, f, es[j])
-			}
-		} else {
-			for j, f := range fs {
-				es[j] = bandErr(b, f, eval(f))
-			}
+		r.each(fs, es)
+		for j, f := range fs {
+			es[j] = bandErr(b, f, es[j])
 		}
 		m := 0.0
 		for j := range fs {
@@ -262,7 +249,7 @@ func deviations(h []float64, rate float64, bands []remez.Band, density int, boun
 			m = math.Max(m, es[j])
 			lo, hi := fs[max(j-1, 0)], fs[min(j+1, len(fs)-1)]
 			if hi > lo {
-				m = math.Max(m, goldenMax(func(f float64) float64 { return bandErr(b, f, eval(f)) }, lo, hi))
+				m = math.Max(m, goldenMax(func(f float64) float64 { return bandErr(b, f, r.eval(f)) }, lo, hi))
 			}
 		}
 		out[i] = m
@@ -491,7 +478,13 @@ func tryWidthOnce(taps []float64, rate float64, bands []remez.Band, bits int, s 
 		if ls.cur > 1 {
 			return false
 		}
-		dev = Deviations(ls.c.Float(), rate, bands, s.Density)
+		h := ls.c.Float()
+		// A long filter's failed trial needs only the verdict, which
+		// meetsBands often gives for less than the deviations.
+		if len(h) >= boundMinTaps && !meetsBands(h, rate, bands, s.Density) {
+			return false
+		}
+		dev = Deviations(h, rate, bands, s.Density)
 		return Meets(dev, bands)
 	}
 	ok := check()
