@@ -18,18 +18,19 @@ func FuzzBuild(f *testing.F) {
 		if len(data) == 0 {
 			return
 		}
-		// Up to 16 coefficients, and words of at most 40 bits unless the
-		// draw asks for one past MaxBits (refused at once): a 64-tap stage
-		// of 48-bit words takes Build about a second, which stalls the
-		// fuzzer (and its minimising) rather than testing more.
+		// Up to 8 coefficients, and words of at most 20 bits unless the
+		// draw asks for one past MaxBits (refused at once): Build takes
+		// milliseconds then, where a 64-tap stage of 48-bit words takes
+		// it about a second, which stalled the fuzzer's minimising into
+		// its deadline in CI rather than testing more. Wider words are
+		// Build's unit tests' to cover.
 		sh := data[0] % 64
-		long := sh < 2
-		if !long {
-			sh = max(sh, 24)
+		if sh >= 2 {
+			sh = max(sh, 44)
 		}
 		data = data[1:]
 		var coefs []int64
-		for len(data) >= 8 && len(coefs) < 16 {
+		for len(data) >= 8 && len(coefs) < 8 {
 			coefs = append(coefs, int64(binary.LittleEndian.Uint64(data))>>sh)
 			data = data[8:]
 		}
