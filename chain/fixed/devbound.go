@@ -58,36 +58,12 @@ func newAmpBounds(h []float64, rate float64) *ampBounds {
 	kappa := 64 * u * float64(bits.Len(uint(size))) * math.Sqrt(float64(size))
 	hh := math.Pi / float64(size) // half a cell in radians per sample
 
-	// Moments sum |h_k| |k-c|^p for p <= boundOrder.
-	var mom [boundOrder + 1]float64
-	for k, v := range h {
-		d := math.Abs(float64(k) - c)
-		t := math.Abs(v)
-		for p := 0; p <= boundOrder; p++ {
-			mom[p] += t
-			t *= d
-		}
-	}
 	// What no cell's expansion sees: the remainder, the FFT's rounding
 	// of every derivative used, and the rounding of a direct evaluation
 	// (remez.Amplitude: its rotations resynchronised every 32 taps, its
 	// angle w (k-c) rounded, its sum of n/2 terms), taken generously as
 	// 8 (n+64) u sum |h_k|.
-	fact := 1.0
-	pw := 1.0
-	slack0 := 0.0
-	for p := 0; p < boundOrder; p++ {
-		if p > 0 {
-			fact *= float64(p)
-			pw *= hh
-		}
-		slack0 += kappa * mom[p] * pw / fact
-	}
-	fact *= boundOrder
-	pw *= hh
-	slack0 += mom[boundOrder] * pw / fact
-	slack0 += 8 * float64(n+64) * u * mom[0]
-	slack0 *= 1 + 1e-9
+	slack0 := boundSlack(h, c, kappa, hh, 1, 8)
 
 	fft := fourier.NewFFT(size)
 	seq := make([]float64, size)
@@ -101,7 +77,7 @@ func newAmpBounds(h []float64, rate float64) *ampBounds {
 	}
 	a := make([][]float64, 3)
 	extra := make([]float64, half+1) // sum over p >= 3 of |A^(p)| hh^p / p!
-	fact, pw = 1, 1
+	fact, pw := 1.0, 1.0
 	for p := 0; p < boundOrder; p++ {
 		if p > 0 {
 			fact *= float64(p)
@@ -411,4 +387,38 @@ func meetsBands(h []float64, rate float64, bands []remez.Band, density int) bool
 		}
 	}
 	return true
+}
+
+// boundSlack returns the slack every cell's bound of the filter h carries,
+// from its moments sum |h_k| |k-c|^p about c, p <= boundOrder: the
+// FFT's rounding of each derivative used (kappa times its moment, times
+// parts: 1 for a real amplitude, 2 for a complex value's two parts), the
+// Taylor remainder after boundOrder terms over a half cell hh, and the
+// rounding of the direct evaluation the bounds must hold, direct (n+64)
+// u sum |h_k| (see the callers for each evaluation's count), all widened
+// by a billionth.
+func boundSlack(h []float64, c, kappa, hh, parts, direct float64) float64 {
+	const u = 0x1p-53
+	var mom [boundOrder + 1]float64
+	for k, v := range h {
+		d := math.Abs(float64(k) - c)
+		t := math.Abs(v)
+		for p := 0; p <= boundOrder; p++ {
+			mom[p] += t
+			t *= d
+		}
+	}
+	fact, pw, slack := 1.0, 1.0, 0.0
+	for p := 0; p < boundOrder; p++ {
+		if p > 0 {
+			fact *= float64(p)
+			pw *= hh
+		}
+		slack += parts * kappa * mom[p] * pw / fact
+	}
+	fact *= boundOrder
+	pw *= hh
+	slack += mom[boundOrder] * pw / fact
+	slack += direct * float64(len(h)+64) * u * mom[0]
+	return slack * (1 + 1e-9)
 }

@@ -40,43 +40,20 @@ func newMagBounds(h []float64, rate float64) *ampBounds {
 	kappa := 64 * u * float64(bits.Len(uint(size))) * math.Sqrt(float64(size))
 	hh := math.Pi / float64(size)
 
-	var mom [boundOrder + 1]float64
-	for k, v := range h {
-		d := math.Abs(float64(k) - c)
-		t := math.Abs(v)
-		for p := 0; p <= boundOrder; p++ {
-			mom[p] += t
-			t *= d
-		}
-	}
 	// What no cell's expansion sees: the FFT's rounding of every X_p, the
 	// remainder, and the rounding of magnitude: its angle w k (w = 2 pi
 	// f / rate rounded in three operations, then times k up to n, so up
 	// to 4 pi n u rad off), Sincos (a few u), the products and the sum
 	// of n terms in each part (n u of the taps' sum), and the hypot,
 	// taken generously as 64 (n+64) u sum |h_k|.
-	fact := 1.0
-	pw := 1.0
-	slack0 := 0.0
-	for p := 0; p < boundOrder; p++ {
-		if p > 0 {
-			fact *= float64(p)
-			pw *= hh
-		}
-		slack0 += 2 * kappa * mom[p] * pw / fact
-	}
-	fact *= boundOrder
-	pw *= hh
-	slack0 += mom[boundOrder] * pw / fact
-	slack0 += 64 * float64(n+64) * u * mom[0]
-	slack0 *= 1 + 1e-9
+	slack0 := boundSlack(h, c, kappa, hh, 2, 64)
 
 	fft := fourier.NewFFT(size)
 	seq := make([]float64, size)
 	coef := make([]complex128, half+1)
 	x := make([][]complex128, 3)
 	extra := make([]float64, half+1) // sum over p >= 3 of |X_p| hh^p / p!
-	fact, pw = 1, 1
+	fact, pw := 1.0, 1.0
 	for p := 0; p < boundOrder; p++ {
 		if p > 0 {
 			fact *= float64(p)
