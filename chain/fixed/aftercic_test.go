@@ -117,26 +117,7 @@ func bruteAfterCICRejection(q *chain.Chain, fa float64) float64 {
 			if (k == 0 && nn == 0) || hi < lo {
 				continue
 			}
-			best, bg := -1.0, lo
-			const pts = 64
-			for i := 0; i <= pts; i++ {
-				g := lo + (hi-lo)*float64(i)/pts
-				if v := path(g, k); v > best {
-					best, bg = v, g
-				}
-			}
-			step := (hi - lo) / pts
-			x0, x1 := math.Max(lo, bg-step), math.Min(hi, bg+step)
-			phi := (math.Sqrt(5) - 1) / 2
-			for range 60 {
-				m1, m2 := x1-phi*(x1-x0), x0+phi*(x1-x0)
-				if path(m1, k) > path(m2, k) {
-					x1 = m2
-				} else {
-					x0 = m1
-				}
-			}
-			worst = math.Max(worst, math.Max(best, path((x0+x1)/2, k)))
+			worst = math.Max(worst, scanBand(func(g float64) float64 { return path(g, k) }, lo, hi))
 		}
 	}
 	if !q.Complex {

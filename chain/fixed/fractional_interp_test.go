@@ -236,13 +236,7 @@ func TestFracInterpAccumulatorsWorstCase(t *testing.T) {
 // gain at 0 Hz.
 func bruteDCImages(taps [][]float64, rates, proto []float64, up int, fm, fk, f0h float64) float64 {
 	prate := fm * float64(up)
-	a := func(g float64) float64 {
-		v := 1.0
-		for i, h := range taps {
-			v *= dtft(h, g, rates[i])
-		}
-		return v
-	}
+	a := firsGain(taps, rates)
 	g0 := a(0) * dtft(proto, 0, prate)
 	worst := 0.0
 	for k := range up {

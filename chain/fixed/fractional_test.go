@@ -546,18 +546,50 @@ func bruteFracRejection(cas Cascade, ws *Widths, fa float64) float64 {
 	return bruteFracRejectionOf(taps, rates[:k], bruteProto(sw), sw.Up, sw.Down, rates[k], rates[k+1], cas.InputRate/2, fa, cas.Complex)
 }
 
-// bruteFracRejectionOf is bruteFracRejection on the decimation view: FIR
-// stages taps[i] at rates[i], then the fractional L/M stage (up, down) of
-// prototype proto from fm to fk; f0h is half the high rate.
-func bruteFracRejectionOf(taps [][]float64, rates, proto []float64, up, down int, fm, fk, f0h, fa float64, complexSig bool) float64 {
-	prate := fm * float64(up)
-	a := func(g float64) float64 {
+// firsGain is the gain at g of FIR stages taps[i] at rates[i], their
+// transforms summed term by term (dtft).
+func firsGain(taps [][]float64, rates []float64) func(g float64) float64 {
+	return func(g float64) float64 {
 		v := 1.0
 		for i, h := range taps {
 			v *= dtft(h, g, rates[i])
 		}
 		return v
 	}
+}
+
+// scanBand is the largest f over [lo, hi]: the best of 65 evenly spaced
+// points, refined by golden section within a step of it (the dense
+// scans' rule).
+func scanBand(f func(float64) float64, lo, hi float64) float64 {
+	best, bg := -1.0, lo
+	const pts = 64
+	for i := 0; i <= pts; i++ {
+		g := lo + (hi-lo)*float64(i)/pts
+		if v := f(g); v > best {
+			best, bg = v, g
+		}
+	}
+	step := (hi - lo) / pts
+	x0, x1 := math.Max(lo, bg-step), math.Min(hi, bg+step)
+	phi := (math.Sqrt(5) - 1) / 2
+	for range 60 {
+		m1, m2 := x1-phi*(x1-x0), x0+phi*(x1-x0)
+		if f(m1) > f(m2) {
+			x1 = m2
+		} else {
+			x0 = m1
+		}
+	}
+	return math.Max(best, f((x0+x1)/2))
+}
+
+// bruteFracRejectionOf is bruteFracRejection on the decimation view: FIR
+// stages taps[i] at rates[i], then the fractional L/M stage (up, down) of
+// prototype proto from fm to fk; f0h is half the high rate.
+func bruteFracRejectionOf(taps [][]float64, rates, proto []float64, up, down int, fm, fk, f0h, fa float64, complexSig bool) float64 {
+	prate := fm * float64(up)
+	a := firsGain(taps, rates)
 	g0 := a(0) * dtft(proto, 0, prate)
 	worst := 0.0
 	for path := range up {
@@ -572,26 +604,7 @@ func bruteFracRejectionOf(taps [][]float64, rates, proto []float64, up, down int
 			if hi < lo {
 				continue
 			}
-			best, bg := -1.0, lo
-			const pts = 64
-			for i := 0; i <= pts; i++ {
-				g := lo + (hi-lo)*float64(i)/pts
-				if v := gain(g); v > best {
-					best, bg = v, g
-				}
-			}
-			step := (hi - lo) / pts
-			x0, x1 := math.Max(lo, bg-step), math.Min(hi, bg+step)
-			phi := (math.Sqrt(5) - 1) / 2
-			for range 60 {
-				m1, m2 := x1-phi*(x1-x0), x0+phi*(x1-x0)
-				if gain(m1) > gain(m2) {
-					x1 = m2
-				} else {
-					x0 = m1
-				}
-			}
-			worst = math.Max(worst, math.Max(best, gain((x0+x1)/2)))
+			worst = math.Max(worst, scanBand(gain, lo, hi))
 		}
 	}
 	if !complexSig {
