@@ -113,7 +113,7 @@ func splitFractional(c *Chain) (fractionalParts, error) {
 			return p, err
 		}
 	default:
-		return p, fmt.Errorf("chain: stage %d is a %T: not a fractional stage Analyze knows", f+1, c.Stages[f])
+		return p, fmt.Errorf("chain: stage %d is a %s stage: not a fractional stage Analyze knows", f+1, c.Stages[f].Kind())
 	}
 	rate := fm * float64(up)
 	b, err := newFIRBounder(taps, rate)
@@ -424,7 +424,7 @@ func estimateFractional(c *Chain, spec Spec) (Analysis, error) {
 func estimateAfterCIC(c *Chain, spec Spec, f int) (Analysis, error) {
 	pp, ok := c.Stages[f].(PolyphaseStage)
 	if !ok || f != 1 {
-		return Analysis{}, fmt.Errorf("chain: stage %d is a %T after the CIC: only a polyphase stage is planned there", f+1, c.Stages[f])
+		return Analysis{}, fmt.Errorf("chain: stage %d is a %s stage after the CIC: only a polyphase stage is planned there", f+1, c.Stages[f].Kind())
 	}
 	req := pp.Req
 	rates := c.Rates()
