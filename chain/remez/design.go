@@ -46,6 +46,10 @@ var ErrNotConverged = errors.New("remez: exchange did not converge")
 // which MinLength takes as "too long" whatever the taps measure.
 var errRounding = errors.New("the specification is too lax for double precision")
 
+// errCannotMeet ends a design whose levelled deviation passed
+// engine.failAbove: no filter of its length meets the limit.
+var errCannotMeet = errors.New("no filter of this length meets the limit")
+
 // Design returns the length-n linear-phase (type I for odd n, type II for
 // even n) filter that minimises the weighted maximum error over bands.
 //
@@ -91,6 +95,9 @@ func (e *engine) design() (*Result, error) {
 	if serr := e.stopped(); serr != nil {
 		return nil, serr
 	}
+	if errors.Is(err, errCannotMeet) {
+		return nil, err
+	}
 	if !conv && e.seeded && it < e.maxIter {
 		// A seeded start can be wrong in structure (a seed's reference
 		// scaled onto many narrow bands) and break down; the evenly spread
@@ -105,6 +112,9 @@ func (e *engine) design() (*Result, error) {
 		it += it2
 		if serr := e.stopped(); serr != nil {
 			return nil, serr
+		}
+		if errors.Is(err2, errCannotMeet) {
+			return nil, err2
 		}
 		if conv2 || (err2 == nil && (firstErr != nil || e.bestGap < firstGap)) {
 			conv, err = conv2, err2

@@ -88,6 +88,14 @@ type engine struct {
 
 	ref   []point // r+1
 	delta float64
+	// failAbove, when positive, stops run as soon as the levelled
+	// deviation exceeds it (errCannotMeet). The levelled deviation on any
+	// reference of r+1 points in the bands is a lower bound of the least
+	// weighted error any filter of this length reaches on them (de la
+	// Vallee Poussin's theorem; the basis is a Chebyshev system on the
+	// bands), hence on the bands: no design of this length meets a limit
+	// below it.
+	failAbove float64
 	// interpolation data of the levelled polynomial on the first r
 	// reference points
 	xr, mu, c, c2 []float64
@@ -1182,6 +1190,9 @@ func (e *engine) run(tol float64, maxIter int) (int, bool, error) {
 				return it, false, cerr
 			}
 			break
+		}
+		if e.failAbove > 0 && math.Abs(e.delta) > e.failAbove {
+			return it, false, errCannotMeet
 		}
 		if useLocal {
 			gap, ok := e.localStep()

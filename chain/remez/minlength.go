@@ -219,13 +219,19 @@ func gainAt(b *Band, f float64) float64 {
 func (m *lengthSearch) meets(n int) bool {
 	if _, ok := m.ratio[n]; !ok {
 		m.designs++
-		r, wdev, lax := m.design(n)
+		r, wdev, lax, floor := m.design(n)
 		worst := math.Inf(1)
-		if r != nil {
+		switch {
+		case r != nil:
 			worst = 0
 			for b := range m.bands {
-				worst = math.Max(worst, wdev[b]/m.bands[b].MaxError)
+				worst = math.Max(worst, m.bandRatio(b, wdev[b]))
 			}
+		case floor > 1:
+			// Stopped on the levelled deviation: a lower bound of the
+			// ratio, enough for the verdict and close enough for the
+			// secant.
+			worst = floor
 		}
 		if worst <= 1 {
 			m.cache[n] = r
@@ -248,32 +254,67 @@ func abs(n int) int {
 // laxRatio stands for the error ratio of a design met to rounding level.
 const laxRatio = 1e-12
 
-func (m *lengthSearch) design(n int) (*Result, []float64, bool) {
+// bandRatio is band b's measured error over its limit, from the weighted
+// deviation wdev that the design measured: with a WeightFunc the engine's
+// weight is WeightFunc/MaxError already (see minLength), so wdev is the
+// ratio itself; with a constant weight wdev is the plain deviation.
+func (m *lengthSearch) bandRatio(b int, wdev float64) float64 {
+	if m.bands[b].WeightFunc != nil {
+		return wdev
+	}
+	return wdev / m.bands[b].MaxError
+}
+
+// design designs length n. It returns the result, its weighted deviations
+// and whether it was met only to rounding level; or, for a design stopped
+// because no filter of this length can meet the bands, no result and the
+// levelled deviation that proved it (floor, a lower bound of the error
+// ratio; 0 otherwise).
+func (m *lengthSearch) design(n int) (res *Result, wdev []float64, lax bool, floor float64) {
 	if m.designFn != nil {
-		return m.designFn(n)
+		res, wdev, lax = m.designFn(n)
+		return res, wdev, lax, 0
 	}
 	e, err := newEngine(n, m.rate, m.wb, m.s)
 	if err != nil {
-		return nil, nil, false
+		return nil, nil, false, 0
 	}
 	e.ctx = m.ctx
+	// The weights are the limits' inverses, so the levelled deviation is
+	// an error ratio: once it passes 1 the verdict is known. The margin
+	// keeps a deviation levelled at 1 to rounding out of it.
+	if floorStop {
+		e.failAbove = 1 + failMargin
+	}
 	if warmStart {
 		e.warm = m.refs[m.nearestRef(n)]
 	}
-	res, err := e.design()
+	res, err = e.design()
+	if errors.Is(err, errCannotMeet) {
+		return nil, nil, false, math.Abs(e.delta)
+	}
 	if res != nil && res.Converged {
 		if m.refs == nil {
 			m.refs = map[int][]point{}
 		}
 		m.refs[n] = append([]point(nil), e.ref...)
 	}
-	lax := errors.Is(err, errRounding)
+	lax = errors.Is(err, errRounding)
 	if res == nil {
-		return nil, nil, lax
+		return nil, nil, lax, 0
 	}
 	// design measured the taps already: the weighted deviations are its.
-	return res, e.wdev, lax
+	return res, e.wdev, lax, 0
 }
+
+// floorStop stops designs on their levelled deviation (design); tests
+// turn it off to compare.
+var floorStop = true
+
+// failMargin is how far (relative) the levelled deviation must pass 1
+// before a design stops as failing: far above its rounding, far below
+// anything the search's steps resolve.
+const failMargin = 1e-6
 
 // warmStart starts each design of a length search from the nearest
 // designed length's reference; tests turn it off to compare with the cold

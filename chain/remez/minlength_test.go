@@ -168,3 +168,115 @@ func TestMinLengthWarmEqualsCold(t *testing.T) {
 		t.Errorf("only %d of %d cases designed", compared, n)
 	}
 }
+
+// A design that passes the limit on its levelled deviation stops there
+// (engine.failAbove). By de la Vallee Poussin's theorem (any Chebyshev
+// approximation text, e.g. Cheney, Introduction to Approximation Theory,
+// ch. 3) the levelled deviation on any reference is a lower bound of the
+// best error of that length, so the verdict cannot change: on seeded
+// random lowpass, multiband and compensator specs, MinLength returns the
+// same length with and without the stop, its taps meet the bands measured
+// independently of the engine (rippleCheck's refined dense scan), and every
+// stopped length's recorded floor is at most the error that a full design
+// of that length measures.
+func TestMinLengthFloorStop(t *testing.T) {
+	rng := rand.New(rand.NewPCG(5, 41))
+	n := 24
+	if os.Getenv("STEPDOWN_LONG") != "" {
+		n = 150
+	}
+	stops := 0
+	for c := 0; c < n; c++ {
+		fp := 0.02 + 0.3*rng.Float64()
+		tr := (0.01 + 0.08*rng.Float64()) * (0.5 - fp)
+		dp := math.Pow(10, -1-2*rng.Float64())
+		ds := math.Pow(10, -2-3*rng.Float64())
+		bands := []Band{{Lo: 0, Hi: fp, Gain: 1, MaxError: dp}}
+		switch c % 3 {
+		case 0:
+			bands = append(bands, Band{Lo: fp + tr, Hi: 0.5, MaxError: ds})
+		case 1:
+			mid := fp + tr + (0.5-fp-tr)/2
+			bands = append(bands, Band{Lo: fp + tr, Hi: mid - 0.01, MaxError: ds}, Band{Lo: mid + 0.01, Hi: 0.5, MaxError: ds})
+		case 2:
+			// A compensator: the passband wants 1/droop within dp/droop,
+			// stated as the chain states it (a weight function against a
+			// limit of 1), with a droop of a few dB.
+			k := 1 + 3*rng.Float64()
+			droop := func(f float64) float64 { return 1 / (1 + k*f*f) }
+			bands[0] = Band{Lo: 0, Hi: fp, MaxError: 1,
+				GainFunc:   func(f float64) float64 { return 1 / droop(f) },
+				WeightFunc: func(f float64) float64 { return droop(f) / dp }}
+			bands = append(bands, Band{Lo: fp + tr, Hi: 0.5, MaxError: ds})
+		}
+		on, m, onErr := minLength(context.Background(), 1, bands, 0, 2000, Settings{})
+		floorStop = false
+		off, _, offErr := minLength(context.Background(), 1, bands, 0, 2000, Settings{})
+		floorStop = true
+		if (onErr == nil) != (offErr == nil) {
+			t.Fatalf("case %d: with the stop err %v, without %v", c, onErr, offErr)
+		}
+		if onErr != nil {
+			continue
+		}
+		if len(on.Taps) != len(off.Taps) {
+			t.Errorf("case %d: %d taps with the stop, %d without", c, len(on.Taps), len(off.Taps))
+		}
+		if c%3 != 2 && !meetsAll(on.Taps, 1, bands) {
+			t.Errorf("case %d: the %d taps miss the bands", c, len(on.Taps))
+		}
+		for length, r := range m.ratio {
+			if m.cache[length] != nil || m.lax[length] || math.IsInf(r, 0) {
+				continue
+			}
+			floorStop = false
+			full, wdev, _, _ := m.design(length)
+			floorStop = true
+			if full == nil {
+				continue
+			}
+			worst := 0.0
+			for b := range bands {
+				worst = math.Max(worst, m.bandRatio(b, wdev[b]))
+			}
+			if c%3 != 2 {
+				dev, _ := rippleCheck(full.Taps, 1, bands, 32)
+				for b := range bands {
+					worst = math.Max(worst, dev[b]/bands[b].MaxError)
+				}
+			}
+			if worst < r*(1-1e-9) {
+				t.Errorf("case %d, %d taps: recorded ratio %.9g above the full design's %.9g", c, length, r, worst)
+			}
+			if worst > r*(1+1e-9) {
+				stops++
+			}
+		}
+	}
+	if stops == 0 {
+		t.Error("no design stopped on its floor: the test checks nothing")
+	}
+	t.Logf("%d stopped designs checked", stops)
+}
+
+// Band.MaxError's documented rule, |A(f)-D(f)| w(f) <= MaxError, holds
+// with a WeightFunc too: a constant WeightFunc of c against MaxError c e
+// is the plain limit e, so MinLength returns the plain band's length
+// (a regression: the weight function's limit was divided in twice).
+func TestMinLengthWeightFuncLimit(t *testing.T) {
+	for _, c := range []float64{1, 0.5, 40} {
+		plain := []Band{{Lo: 0, Hi: 0.1, Gain: 1, MaxError: 0.01}, {Lo: 0.15, Hi: 0.5, MaxError: 0.001}}
+		weighted := []Band{{Lo: 0, Hi: 0.1, Gain: 1, MaxError: 0.01 * c, WeightFunc: func(float64) float64 { return c }}, plain[1]}
+		a, err := MinLength(1, plain, 0, 0, Settings{})
+		if err != nil {
+			t.Fatal(err)
+		}
+		b, err := MinLength(1, weighted, 0, 0, Settings{})
+		if err != nil {
+			t.Fatal(err)
+		}
+		if len(a.Taps) != len(b.Taps) {
+			t.Errorf("c = %v: %d taps with the constant weight function, %d without", c, len(b.Taps), len(a.Taps))
+		}
+	}
+}
