@@ -60,9 +60,14 @@
 // transition), and a later secant never assumes more than four times that
 // many taps per factor e; every design after the first starts from the
 // converged reference of the nearest length already designed, scaled band
-// by band, instead of a seed design. With the default MaxIterations each
-// length is still designed to convergence and judged on its measured
-// taps, so either changes only how fast the search gets there; with
+// by band, instead of a seed design. A length that fails is known before
+// its design converges: the levelled deviation on any reference of the
+// right size in the bands is a lower bound of the least weighted error of
+// that length (de la Vallee Poussin's theorem), so MinLength stops a
+// design as soon as it passes the limit (by a relative 1e-6) and records
+// it as the length's error ratio, a lower bound. A length that meets is
+// still designed to convergence and judged on its measured taps, so none
+// of this changes the answer, only how fast the search gets there; with
 // MaxIterations cut short, a length's unconverged design, and so the answer,
 // may depend on its start. Gaps between bands of equal gain (the don't-care slivers
 // between alias stopbands) are not transitions for the estimate. A length
