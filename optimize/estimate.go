@@ -1,6 +1,7 @@
 package optimize
 
 import (
+	"context"
 	"fmt"
 	"maps"
 	"math"
@@ -201,6 +202,9 @@ type params struct {
 	// mask is the spec's rejection mask (nil for a flat target): a CIC's
 	// alias at g is held to mask(g), as chain.Analyze holds it.
 	mask *chain.Mask
+	// ctx stops the estimate's long loops (a CIC's alias bands: up to
+	// R/2 of them); nil never stops.
+	ctx context.Context
 }
 
 // newParams reads a spec whose defaults are filled in.
@@ -694,6 +698,9 @@ func cicRejection(p *params, rate float64, r, n, m int, last bool) float64 {
 	out := rate / float64(r)
 	worst := 0.0
 	for k := 1; k <= r/2; k++ {
+		if k&255 == 0 && p.ctx != nil && p.ctx.Err() != nil {
+			return math.NaN() // stopped: no figure (cicMargin keeps none)
+		}
 		lo := float64(k)*out - p.fa
 		if k == 1 {
 			lo = chain.StopEdge(out, p.fa, p.fs, last)
@@ -969,7 +976,7 @@ func (e *estimator) cicMargin(r, n, m int) float64 {
 		return v
 	}
 	v := cicRejection(&e.p, e.p.f0, r, n, m, r == e.p.d) - e.p.rejDB
-	if !e.frozen {
+	if !e.frozen && !math.IsNaN(v) {
 		e.margins[k] = v
 	}
 	return v

@@ -168,6 +168,28 @@ func TestCICRejection(t *testing.T) {
 	}
 }
 
+// A stopped context ends a CIC's walk over its alias bands (up to R/2 of
+// them: seconds for an order-1 CIC decimating by 2^20) with no figure, and
+// the estimator keeps none; the plan itself then returns at once, partial.
+func TestCICRejectionStops(t *testing.T) {
+	ctx, cancel := context.WithCancel(context.Background())
+	cancel()
+	p := params{f0: 1 << 30, fk: 1, fa: 0.3, fp: 0.3, fs: 0.7, d: 1 << 30, rejDB: 80, ctx: ctx}
+	if v := cicRejection(&p, p.f0, 1<<20, 1, 1, false); !math.IsNaN(v) {
+		t.Errorf("stopped: rejection %v, want no figure (NaN)", v)
+	}
+	e := newEstimator(p, 0)
+	e.cicMargin(1<<20, 1, 1)
+	if len(e.margins) != 0 {
+		t.Errorf("a stopped walk's margin was cached: %v", e.margins)
+	}
+	spec := chain.Spec{InputRate: 1 << 30, OutputRate: 1, Passband: 0.3, RippleDB: 0.1, RejectionDB: 80}
+	res, err := Plan(ctx, spec, Settings{MaxStages: 3})
+	if err != nil || !res.Partial {
+		t.Errorf("a stopped plan: err %v, partial %v", err, res != nil && res.Partial)
+	}
+}
+
 func TestFrontSet(t *testing.T) {
 	rng := rand.New(rand.NewSource(1))
 	fs := make([]figs, 600)

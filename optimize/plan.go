@@ -556,6 +556,7 @@ const maxBand = 1 << 17
 // search is Plan after validation, with the estimate and design tiers
 // passed in so that tests can use fake figures.
 func search(ctx context.Context, p params, s *Settings, est *estimator, des designer) (*Result, error) {
+	p.ctx, est.p.ctx = ctx, ctx
 	sp := newSpace(&p, s)
 	est.orders, est.delays = sp.orders, sp.delays
 	est.keepBeaten = s.Exhaustive
@@ -727,6 +728,11 @@ func searchPass(ctx context.Context, p *params, sp *space, s *Settings, est *est
 	var units []chain.StagePlan
 	var skippedN int64
 	for _, st := range sp.firsts() {
+		if ctx.Err() != nil {
+			res.Partial = true
+			res.Front = t.front()
+			return math.Inf(1)
+		}
 		if st.Kind == chain.CIC {
 			if code := est.skipCIC(st); code != dropNone {
 				n := sp.completions(sp.d/st.Factor, 1)

@@ -272,6 +272,10 @@ type parser struct {
 	root map[string]any
 }
 
+// reOutOfRange matches the TOML decoder's message for a bare number beyond
+// what it holds (a float past 1.8e308, an integer past 2^63 - 1).
+var reOutOfRange = regexp.MustCompile(`^(\S+) is out of range for (?:float64|int64)`)
+
 // Parse parses spec text; name is used in error messages. The text is
 // measured before it is decoded (MaxFileSize, MaxDepth, MaxItems, and no
 // hexadecimal, octal or binary integers), so any text costs little to refuse.
@@ -284,6 +288,12 @@ func Parse(name string, data []byte) (*Spec, error) {
 	if err != nil {
 		var pe toml.ParseError
 		if errors.As(err, &pe) {
+			if m := reOutOfRange.FindStringSubmatch(pe.Message); m != nil {
+				// A bare number the decoder cannot hold: said in the
+				// spec's words, with the key it was given for.
+				return nil, &Error{File: name, Line: pe.Position.Line, Key: pe.LastKey, Value: units.Clip(m[1], units.MaxEcho),
+					Rule: "too large a number for any spec key (rates and frequencies go as text with a unit, e.g. \"1.2 GHz\")"}
+			}
 			return nil, &Error{File: name, Line: pe.Position.Line, Rule: "not valid TOML: " + units.Clip(oneLine(pe.Message), 2*units.MaxEcho)}
 		}
 		return nil, &Error{File: name, Rule: "not valid TOML: " + units.Clip(oneLine(err.Error()), 2*units.MaxEcho)}

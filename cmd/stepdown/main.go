@@ -20,6 +20,7 @@ import (
 	"slices"
 	"strings"
 	"syscall"
+	"unicode"
 
 	"github.com/urfave/cli/v2"
 
@@ -139,13 +140,13 @@ func flagError(cmd *cli.Command, err error) error {
 	}
 	if m := reBadValue.FindStringSubmatch(msg); m != nil {
 		value, flag := m[1], m[2]
-		return usagef("--%s %q: %s", flag, clip(value), wantOf(cmd, flag))
+		return usagef("--%s %q: %s", flag, clip(value), wantOf(cmd, flag, value))
 	}
 	return usageError{err}
 }
 
 // wantOf says what a flag's value must look like, by the flag's type.
-func wantOf(cmd *cli.Command, flag string) string {
+func wantOf(cmd *cli.Command, flag, value string) string {
 	if cmd != nil {
 		for _, f := range cmd.Flags {
 			if !slices.Contains(f.Names(), flag) {
@@ -153,6 +154,10 @@ func wantOf(cmd *cli.Command, flag string) string {
 			}
 			switch f.(type) {
 			case *cli.DurationFlag:
+				if strings.ContainsFunc(value, unicode.IsLetter) {
+					// It has a unit: too long, or not a unit at all.
+					return `want a duration of at most 2562047h (about 292 years) in the units ns, us, ms, s, m and h, e.g. "30s", "5m" or "1h30m"`
+				}
 				return `a duration needs a unit, e.g. "30s", "5m" or "1h30m"`
 			case *cli.IntFlag:
 				return "want a whole number"

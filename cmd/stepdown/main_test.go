@@ -206,6 +206,7 @@ func TestBadInputs(t *testing.T) {
 		{name: "flag timeout", spec: goodSpec, args: []string{"plan", "spec.toml", "--out", "out", "--timeout", "-1s"}, code: 2, frags: []string{"--timeout"}},
 		{name: "flag bad duration", spec: goodSpec, args: []string{"plan", "spec.toml", "--out", "out", "--timeout", "soon"}, code: 2, frags: []string{"timeout"}},
 		{name: "flag duration without unit", spec: goodSpec, args: []string{"plan", "spec.toml", "--out", "out", "--timeout", "5"}, code: 2, frags: []string{`--timeout "5"`, "a duration needs a unit", `"30s"`}},
+		{name: "flag duration overflowing", spec: goodSpec, args: []string{"plan", "spec.toml", "--out", "out", "--timeout", "99999999h"}, code: 2, frags: []string{`--timeout "99999999h"`, "at most 2562047h"}},
 		{name: "flag jobs not a number", spec: goodSpec, args: []string{"plan", "spec.toml", "--out", "out", "--jobs", "x"}, code: 2, frags: []string{`--jobs "x"`, "whole number"}},
 		{name: "flag out last without value", spec: goodSpec, args: []string{"plan", "spec.toml", "--out"}, code: 2, frags: []string{"--out: missing its value"}},
 		{name: "flag out followed by a flag", spec: goodSpec, args: []string{"plan", "spec.toml", "--out", "--json"}, code: 2, frags: []string{"--out: missing its value"}},

@@ -400,6 +400,13 @@ func (j *job) finish(ctx context.Context, command string, res *optimize.Result) 
 	if j.c.Context.Err() != nil {
 		return fmt.Errorf("interrupted; %s left as it was", clip(j.out.Dir()))
 	}
+	// --timeout may also end the word lengths (and so the bit-true runs
+	// and the hand-off they feed): the report is partial then too. The
+	// files are still written, without what was not planned.
+	cut := ctx.Err() != nil && !res.Partial
+	if cut {
+		rep.Partial = true
+	}
 	for _, h := range j.hints {
 		rep.Hints = append(rep.Hints, report.Hint{Text: h.Text, OutputRateHz: h.OutputRateHz, Ratio: h.Ratio,
 			Chain: h.Chain, MultipliesPerOutput: h.MultipliesPerOutput})
@@ -434,7 +441,7 @@ func (j *job) finish(ctx context.Context, command string, res *optimize.Result) 
 			return err
 		}
 	}
-	printSummary(j.human(), j, rep, files)
+	printSummary(j.human(), j, rep, files, cut)
 	return nil
 }
 
@@ -504,7 +511,9 @@ func (p *progress) finish() {
 	}
 }
 
-func printSummary(w io.Writer, j *job, rep *report.Report, files []report.File) {
+// printSummary prints the run's summary; cut says that --timeout ended the
+// word lengths after a complete search.
+func printSummary(w io.Writer, j *job, rep *report.Report, files []report.File, cut bool) {
 	s := rep.Spec
 	fmt.Fprintf(w, "stepdown %s: %s\n", rep.Command, j.source)
 	ratio := fmt.Sprintf("decimation %d", s.Decimation)
@@ -529,7 +538,10 @@ func printSummary(w io.Writer, j *job, rep *report.Report, files []report.File) 
 		fmt.Fprintf(w, "  searched %d candidates: %d feasible by estimate, %d designed, %d on the front\n",
 			rep.Search.Candidates, rep.Search.Feasible, rep.Search.Designed, len(rep.Front))
 	}
-	if rep.Partial {
+	switch {
+	case rep.Partial && cut:
+		fmt.Fprintln(w, "  PARTIAL: stopped by --timeout after the search; the front below is complete, but word lengths, bit-true figures and files marked \"not planned\" are missing")
+	case rep.Partial:
 		fmt.Fprintln(w, "  PARTIAL: stopped by --timeout; the front below is the best found so far")
 	}
 	fmt.Fprintln(w)

@@ -60,7 +60,11 @@ func WriteWordLengths(w io.Writer, rep *Report) {
 	ch := rep.Front[rep.Recommended]
 	coef := map[string]string{"fixed": "coefficients as set", "auto": "coefficients auto", "float": "coefficients auto, for information: the files stay floating point"}[rep.Spec.Words.CoefficientsMode]
 	if ch.ChainReport == nil {
-		fmt.Fprintf(w, "\nword lengths: not planned (%s)\n", ch.WordLengthsError)
+		if e := ch.WordLengthsError; strings.HasPrefix(e, "not planned") {
+			fmt.Fprintf(w, "\nword lengths: %s\n", e)
+		} else {
+			fmt.Fprintf(w, "\nword lengths: not planned (%s)\n", e)
+		}
 		return
 	}
 	gain := fmt.Sprintf("DC gain %.2f dB", ch.DCGainDB)
