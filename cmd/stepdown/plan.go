@@ -538,6 +538,9 @@ func printSummary(w io.Writer, j *job, rep *report.Report, files []report.File, 
 		fmt.Fprintf(w, "  searched %d candidates: %d feasible by estimate, %d designed, %d on the front\n",
 			rep.Search.Candidates, rep.Search.Feasible, rep.Search.Designed, len(rep.Front))
 	}
+	if n := rep.Search.LeftUndesigned; n > 0 && rep.Command == "plan" {
+		fmt.Fprintf(w, "  DESIGN BUDGET REACHED: %d candidates near the front were left undesigned, so a cheaper chain may be missing (lower search.max_stages or narrow search.kinds or search.cic_orders to design them all)\n", n)
+	}
 	switch {
 	case rep.Partial && cut:
 		fmt.Fprintln(w, "  PARTIAL: stopped by --timeout after the search; the front below is complete, but word lengths, bit-true figures and files marked \"not planned\" are missing")

@@ -484,6 +484,9 @@ func searchText(r *report.Report) string {
 		}
 		s += " Dropped: " + optimize.DroppedText(d, "; ") + "."
 	}
+	if n := r.Search.LeftUndesigned; n > 0 {
+		s += fmt.Sprintf(" The design budget was reached: %d candidates near the front were left undesigned, so a cheaper chain may be missing from the front.", n)
+	}
 	return s
 }
 

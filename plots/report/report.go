@@ -176,10 +176,15 @@ type Limits struct {
 
 // Search summarises the search.
 type Search struct {
-	Candidates int            `json:"candidates"`
-	Feasible   int            `json:"feasible"`
-	Designed   int            `json:"designed"`
-	Dropped    map[string]int `json:"dropped"`
+	Candidates int `json:"candidates"`
+	Feasible   int `json:"feasible"`
+	Designed   int `json:"designed"`
+	// LeftUndesigned counts the candidates near the front that the design
+	// budget left undesigned (optimize.Result.Unsettled): zero means the
+	// front is that of every candidate; otherwise a cheaper chain may be
+	// missing from it.
+	LeftUndesigned int            `json:"left_undesigned"`
+	Dropped        map[string]int `json:"dropped"`
 }
 
 // Chain is one chain of the front.
@@ -703,10 +708,11 @@ func newReport(ctx context.Context, command string, s *specfile.Spec, res *optim
 		Recommended: res.Recommended,
 		Reason:      res.Reason,
 		Search: Search{
-			Candidates: res.Candidates,
-			Feasible:   res.FeasibleAll,
-			Designed:   res.Designed,
-			Dropped:    map[string]int{},
+			Candidates:     res.Candidates,
+			Feasible:       res.FeasibleAll,
+			Designed:       res.Designed,
+			LeftUndesigned: res.Unsettled,
+			Dropped:        map[string]int{},
 		},
 		Front: []Chain{},
 	}
