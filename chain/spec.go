@@ -133,6 +133,12 @@ const (
 	// MaxRejectionDB bounds the rejection target: beyond it float64
 	// coefficients and the design engine's grid stop being meaningful.
 	MaxRejectionDB = 150
+	// MaxRippleDB bounds the passband ripple: a passband whose gain may
+	// vary by more than 10 dB peak-to-peak is no passband (common
+	// practice: front-end specs ask for hundredths of a dB to a few dB),
+	// and a budget that large lets an uncorrected CIC's droop pass as
+	// flat.
+	MaxRippleDB = 10
 	// MaxRateHz and MinRateHz bound the input and the output rate. Every
 	// result depends on the rates only through their ratios, but float64
 	// arithmetic does not: products such as 2 pi f overflow near 1e308 Hz,
@@ -261,8 +267,8 @@ func (s Spec) Normalize() (Spec, error) {
 	if !finite(s.Stopband) || s.Stopband <= s.Passband || s.Stopband > fk-s.Protected {
 		return bad("Stopband", s.Stopband, "must lie in ({Passband} = %s Hz, {%s} - {Protected} = %s Hz]", fmtNum(s.Passband), lo, fmtNum(fk-s.Protected))
 	}
-	if !finite(s.RippleDB) || s.RippleDB <= 0 {
-		return bad("RippleDB", s.RippleDB, "must be a finite peak-to-peak ripple above 0 dB")
+	if !finite(s.RippleDB) || s.RippleDB <= 0 || s.RippleDB > MaxRippleDB {
+		return bad("RippleDB", s.RippleDB, "must lie in (0, %d] dB (peak-to-peak over the passband)", MaxRippleDB)
 	}
 	if s.RejectionMask != nil {
 		// The mask covers the input band [0, F/2], F the high rate: a

@@ -785,8 +785,8 @@ func (p *parser) build() (*Spec, error) {
 		}
 		*f.dst = v
 	}
-	if v, ok := p.lookup("ripple"); ok && !(cs.RippleDB > 0) {
-		return nil, p.errAt("ripple", v, "must be above 0 dB (peak-to-peak over the passband)")
+	if v, ok := p.lookup("ripple"); ok && !(cs.RippleDB > 0 && cs.RippleDB <= chain.MaxRippleDB) {
+		return nil, p.errAt("ripple", v, "must lie in (0, %d] dB (peak-to-peak over the passband)", chain.MaxRippleDB)
 	}
 	if v, ok := p.lookup("rejection"); ok && (!(cs.RejectionDB > 0) || cs.RejectionDB > chain.MaxRejectionDB) {
 		return nil, p.errAt("rejection", v, "must lie in (0, %d] dB", chain.MaxRejectionDB)

@@ -52,7 +52,7 @@
 //     decimation take whole numbers only.
 //   - At most MaxValues values.
 //   - Each value must lie in the key's own domain (frequencies above 0 Hz,
-//     ripple above 0 dB, rejection in (0, 150] dB, widths and stages as
+//     ripple in (0, 10] dB, rejection in (0, 150] dB, widths and stages as
 //     above, decimation from 2 to 2147483647); otherwise the whole range is
 //     refused with an *Error naming the key, the value and the rule (the
 //     command exits with status 2).
