@@ -226,7 +226,7 @@ func emptyFront(res *optimize.Result, dir string) error {
 	if r := strings.Join(strings.Fields(specfile.InFileTerms(res.Reason)), " "); r != "" {
 		r = strings.TrimSuffix(r, ".")
 		if l := strings.ToLower(r); strings.HasPrefix(l, msg) || strings.HasPrefix(l, "no chain met the spec") {
-			msg = r // the reason already says it
+			msg = strings.ToLower(r[:1]) + r[1:] // the reason already says it
 		} else {
 			msg += ": " + r
 		}
