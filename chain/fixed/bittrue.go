@@ -824,13 +824,21 @@ type cicState struct {
 	integ  []int64
 	combIn [][]int64 // last M inputs of each comb
 	pos    int
-	k      int // input samples seen
+	phase  int // input samples since the last output (k mod R)
+	// shift[j] is the LSBs integrator j drops from its input: Dropped[j]
+	// less the previous register's (the input's for j = 0).
+	shift []int
 }
 
 func newCICState(p *CICPruning) *cicState {
-	s := &cicState{p: p, integ: make([]int64, p.N), combIn: make([][]int64, p.N)}
+	s := &cicState{p: p, integ: make([]int64, p.N), combIn: make([][]int64, p.N), shift: make([]int, p.N)}
 	for j := range s.combIn {
 		s.combIn[j] = make([]int64, p.M)
+	}
+	prev := 0
+	for j := range s.shift {
+		s.shift[j] = p.Dropped[j] - prev
+		prev = p.Dropped[j]
 	}
 	return s
 }
@@ -838,18 +846,30 @@ func newCICState(p *CICPruning) *cicState {
 func (s *cicState) run(x, out []int64) []int64 {
 	p := s.p
 	n, r, m := p.N, p.R, p.M
+	integ, shift, regs := s.integ[:n], s.shift[:n], p.RegisterBits[:n]
 	for _, v := range x {
-		k := s.k
-		s.k++
-		unit := 0
-		for j := 0; j < n; j++ {
-			in := shiftTo(v, unit, p.Dropped[j])
-			s.integ[j] = wrap(s.integ[j]+in, p.RegisterBits[j])
-			v, unit = s.integ[j], p.Dropped[j]
+		// shiftTo and wrap, written out: this loop is the run's cost at
+		// large R.
+		for j := range integ {
+			if d := shift[j]; d >= 0 {
+				v >>= uint(d)
+			} else {
+				v <<= uint(-d)
+			}
+			sh := uint(64 - regs[j])
+			v = (integ[j] + v) << sh >> sh
+			integ[j] = v
 		}
-		if k%r != 0 {
+		if s.phase != 0 {
+			if s.phase++; s.phase == r {
+				s.phase = 0
+			}
 			continue
 		}
+		if s.phase++; s.phase == r {
+			s.phase = 0
+		}
+		unit := p.Dropped[n-1]
 		for j := 0; j < n; j++ {
 			d := p.Dropped[n+j]
 			in := wrap(shiftTo(v, unit, d), p.RegisterBits[n+j])
@@ -986,10 +1006,14 @@ func (s *firFloatState) run(x, out []float64) []float64 {
 	l := len(s.h) - 1
 	s.buf = append(s.buf[:l], x...)
 	for g := (s.n + s.r - 1) / s.r * s.r; g < s.n+len(x); g += s.r {
+		// Taps k = 0..min(l, g) against buf[j-k], summed in that order:
+		// b is the window reversed, so b[len(b)-1-k] = buf[j-k].
 		j := l + g - s.n
+		h := s.h[:min(l, g)+1]
+		b := s.buf[j+1-len(h) : j+1]
 		var acc float64
-		for k := 0; k <= l && k <= g; k++ {
-			acc += s.h[k] * s.buf[j-k]
+		for k, hk := range h {
+			acc += hk * b[len(b)-1-k]
 		}
 		out = append(out, acc)
 	}

@@ -83,3 +83,94 @@ func TestCIC128AgreesWithInt64(t *testing.T) {
 		}
 	}
 }
+
+// refCICBig is the pruned CIC of p in math/big, written from the pruning's
+// definition (Hogenauer 1981): register j holds its value in units of
+// 2^Dropped[j], takes its input floored to that unit and wraps at
+// RegisterBits[j]; the combs (delay M) run at the output rate, on the
+// last integrator at input indices 0, R, 2R, ...; the output is floored to
+// 2^Dropped[2N] and wrapped at OutputBits.
+func refCICBig(p *CICPruning, x []int64) []int64 {
+	n := p.N
+	to := func(v *big.Int, from, to int) *big.Int {
+		if to >= from {
+			return new(big.Int).Rsh(v, uint(to-from)) // floor, as two's complement
+		}
+		return new(big.Int).Lsh(v, uint(from-to))
+	}
+	integ := make([]*big.Int, n)
+	for j := range integ {
+		integ[j] = new(big.Int)
+	}
+	comb := make([][]*big.Int, n)
+	for j := range comb {
+		for range p.M {
+			comb[j] = append(comb[j], new(big.Int))
+		}
+	}
+	var out []int64
+	for k, x0 := range x {
+		v, unit := big.NewInt(x0), 0
+		for j := 0; j < n; j++ {
+			integ[j] = wrapBig(new(big.Int).Add(integ[j], to(v, unit, p.Dropped[j])), p.RegisterBits[j])
+			v, unit = integ[j], p.Dropped[j]
+		}
+		if k%p.R != 0 {
+			continue
+		}
+		pos := (k / p.R) % p.M
+		for j := 0; j < n; j++ {
+			d := p.Dropped[n+j]
+			in := wrapBig(to(v, unit, d), p.RegisterBits[n+j])
+			old := comb[j][pos]
+			comb[j][pos] = in
+			v, unit = wrapBig(new(big.Int).Sub(in, old), p.RegisterBits[n+j]), d
+		}
+		out = append(out, wrapBig(to(v, unit, p.Dropped[2*n]), p.OutputBits).Int64())
+	}
+	return out
+}
+
+// The int128 CIC (its wide integrators in int128, the narrow ones of 64
+// bits or fewer in int64) is refCICBig, on 40 seeded random pruned CICs
+// of 64 to 127 bits (most with both kinds of integrator), fed seeded noise
+// and sustained full scale, run in blocks of seeded random lengths.
+func TestCIC128AgainstBig(t *testing.T) {
+	rng := rand.New(rand.NewPCG(128, 3))
+	mixed := 0
+	for cases := 0; cases < 40; {
+		in := 4 + rng.IntN(21)
+		p, err := chain.PruneCIC(3+rng.IntN(5), 1+rng.IntN(2), 1<<(4+rng.IntN(7)), in, 2+rng.IntN(31))
+		if err != nil || p.FullBits < 64 || p.FullBits > MaxModelBits {
+			continue
+		}
+		cases++
+		if p.RegisterBits[p.N-1] <= 64 {
+			mixed++
+		}
+		rm := p.R * p.M
+		x := adversarial(rng, p.N, rm, in)[0]
+		for range 2000 + rng.IntN(3000) {
+			x = append(x, rng.Int64N(1<<in)-1<<(in-1))
+		}
+		want := refCICBig(&p, x)
+		s := newCICState128(&p)
+		var got []int64
+		for b := 0; b < len(x); {
+			e := min(len(x), b+1+rng.IntN(3*p.R))
+			got = s.run(x[b:e], got)
+			b = e
+		}
+		if len(got) != len(want) {
+			t.Fatalf("CIC %+v: %d outputs, want %d", p, len(got), len(want))
+		}
+		for i := range want {
+			if got[i] != want[i] {
+				t.Fatalf("CIC %+v sample %d: int128 %d, math/big %d", p, i, got[i], want[i])
+			}
+		}
+	}
+	if mixed < 10 {
+		t.Errorf("only %d of 40 cases mix wide and narrow integrators", mixed)
+	}
+}
