@@ -817,8 +817,10 @@ func shiftTo(v int64, from, to int) int64 {
 }
 
 // cicState is a pruned CIC decimator run a block at a time: register j
-// holds its value in units of 2^Dropped[j] and wraps at RegisterBits[j]; the
-// output is taken at input sample indices 0, R, 2R, ...
+// holds its value in units of 2^Dropped[j] and wraps at RegisterBits[j]
+// (an integrator of an msbAligned pruning holds it modulo
+// 2^RegisterBits[j], the same bits for what reads it); the output is taken
+// at input sample indices 0, R, 2R, ...
 type cicState struct {
 	p      *CICPruning
 	integ  []int64
@@ -828,6 +830,25 @@ type cicState struct {
 	// shift[j] is the LSBs integrator j drops from its input: Dropped[j]
 	// less the previous register's (the input's for j = 0).
 	shift []int
+	// aligned: see msbAligned.
+	aligned bool
+}
+
+// msbAligned reports whether no integrator's register reaches above its
+// predecessor's top bit (Dropped[j] + RegisterBits[j] never grows, as in
+// Hogenauer's pruning, where every register keeps the full width's MSB).
+// Integrator j+1 then takes only bits of integrator j below its width, and
+// a sum that agrees with the register modulo 2^RegisterBits[j] gives it
+// the same bits (floor(u / 2^d) for u = v + k 2^w is floor(v / 2^d) +
+// k 2^(w-d)): the integrators may run unwrapped, modulo the machine
+// word, and only the last is wrapped, where the combs read it.
+func msbAligned(p *CICPruning) bool {
+	for j := 1; j < p.N; j++ {
+		if p.Dropped[j]+p.RegisterBits[j] > p.Dropped[j-1]+p.RegisterBits[j-1] {
+			return false
+		}
+	}
+	return true
 }
 
 func newCICState(p *CICPruning) *cicState {
@@ -840,6 +861,7 @@ func newCICState(p *CICPruning) *cicState {
 		s.shift[j] = p.Dropped[j] - prev
 		prev = p.Dropped[j]
 	}
+	s.aligned = msbAligned(p)
 	return s
 }
 
@@ -850,15 +872,27 @@ func (s *cicState) run(x, out []int64) []int64 {
 	for _, v := range x {
 		// shiftTo and wrap, written out: this loop is the run's cost at
 		// large R.
-		for j := range integ {
-			if d := shift[j]; d >= 0 {
-				v >>= uint(d)
-			} else {
-				v <<= uint(-d)
+		if s.aligned {
+			for j := range integ {
+				if d := shift[j]; d >= 0 {
+					v >>= uint(d)
+				} else {
+					v <<= uint(-d)
+				}
+				v += integ[j]
+				integ[j] = v
 			}
-			sh := uint(64 - regs[j])
-			v = (integ[j] + v) << sh >> sh
-			integ[j] = v
+		} else {
+			for j := range integ {
+				if d := shift[j]; d >= 0 {
+					v >>= uint(d)
+				} else {
+					v <<= uint(-d)
+				}
+				sh := uint(64 - regs[j])
+				v = (integ[j] + v) << sh >> sh
+				integ[j] = v
+			}
 		}
 		if s.phase != 0 {
 			if s.phase++; s.phase == r {
@@ -869,6 +903,7 @@ func (s *cicState) run(x, out []int64) []int64 {
 		if s.phase++; s.phase == r {
 			s.phase = 0
 		}
+		v = wrap(v, regs[n-1])
 		unit := p.Dropped[n-1]
 		for j := 0; j < n; j++ {
 			d := p.Dropped[n+j]

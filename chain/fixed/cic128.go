@@ -96,6 +96,7 @@ type cicState128 struct {
 	// its sign).
 	narrow      int
 	narrowInteg []int64
+	aligned     bool // see msbAligned
 }
 
 func (s *cicState128) prepare() {
@@ -110,6 +111,7 @@ func (s *cicState128) prepare() {
 		s.narrow--
 	}
 	s.narrowInteg = make([]int64, s.p.N)
+	s.aligned = msbAligned(s.p)
 }
 
 func newCICState128(p *CICPruning) *cicState128 {
@@ -150,10 +152,12 @@ func (s *cicState128) run(x, out []int64) []int64 {
 			var c uint64
 			lo, c = bits.Add64(wide[j].lo, lo, 0)
 			hi = wide[j].hi + hi + int64(c)
-			if w := regs[j]; w > 64 {
+			// Aligned registers run unwrapped, modulo 2^128 (see
+			// msbAligned).
+			if w := regs[j]; !s.aligned && w > 64 {
 				sh := uint(128 - w)
 				hi = hi << sh >> sh
-			} else {
+			} else if !s.aligned {
 				sh := uint(64 - w)
 				l := int64(lo) << sh >> sh
 				hi, lo = l>>63, uint64(l)
@@ -183,8 +187,11 @@ func (s *cicState128) run(x, out []int64) []int64 {
 						v <<= uint(-d)
 					}
 				}
-				sh := uint(64 - regs[nw+j])
-				v = (narrow[j] + v) << sh >> sh
+				v += narrow[j]
+				if !s.aligned {
+					sh := uint(64 - regs[nw+j])
+					v = v << sh >> sh
+				}
 				narrow[j] = v
 			}
 		}
@@ -199,10 +206,10 @@ func (s *cicState128) run(x, out []int64) []int64 {
 		}
 		var v int128
 		if nw < n {
-			l := s.narrowInteg[n-1]
+			l := wrap(s.narrowInteg[n-1], regs[n-1])
 			v = int128{hi: l >> 63, lo: uint64(l)}
 		} else {
-			v = s.integ[n-1]
+			v = s.integ[n-1].wrap(regs[n-1])
 		}
 		unit := p.Dropped[n-1]
 		for j := 0; j < n; j++ {
