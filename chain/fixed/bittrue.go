@@ -1006,10 +1006,13 @@ func (s *firIntState) run(x, out []int64) []int64 {
 	s.buf = append(s.buf[:l], x...)
 	// The first output index at or after s.n.
 	for g := (s.n + s.r - 1) / s.r * s.r; g < s.n+len(x); g += s.r {
+		// Taps k = 0..min(l, g) against buf[j-k] (firFloatState's loop).
 		j := l + g - s.n // g's place in buf
+		h := s.h[:min(l, g)+1]
+		b := s.buf[j+1-len(h) : j+1]
 		var acc int64
-		for k := 0; k <= l && k <= g; k++ {
-			acc += s.h[k] * s.buf[j-k]
+		for k, hk := range h {
+			acc += hk * b[len(b)-1-k]
 		}
 		switch {
 		case s.shift > 0:
