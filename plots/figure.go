@@ -192,7 +192,11 @@ func (f *Figure) Render(w io.Writer, format string, width, height vg.Length) err
 		c = vgsvg.New(width, height)
 	case "png":
 		img := vgimg.NewWith(vgimg.UseWH(width, height), vgimg.UseDPI(150))
-		f.Draw(draw.New(img))
+		if rc := newRasterCanvas(img); rc != nil {
+			f.Draw(draw.New(rc))
+		} else {
+			f.Draw(draw.New(img))
+		}
 		return encodePNG(w, img.Image())
 	default:
 		return fmt.Errorf("plots: format %q: unsupported (want one of %s)", format, strings.Join(Formats, ", "))

@@ -46,12 +46,14 @@ func encodePNG(w io.Writer, img image.Image) error {
 	out := make([]byte, 1+n)
 	out[0] = 2 // Up
 	for y := 0; y < ht; y++ {
-		row := m.Pix[y*m.Stride:]
-		for x := 0; x < wd; x++ {
-			cur[3*x], cur[3*x+1], cur[3*x+2] = row[4*x], row[4*x+1], row[4*x+2]
-		}
-		for i := range cur {
-			out[1+i] = cur[i] - prev[i]
+		row := m.Pix[y*m.Stride : y*m.Stride+4*wd]
+		up := out[1:]
+		// RGBA to RGB and the Up filter in one pass, a pixel at a time
+		// on three-byte slices (bounds checked once a pixel).
+		for x, i := 0, 0; x < wd; x, i = x+1, i+3 {
+			px, c, p, u := row[4*x:4*x+3], cur[i:i+3], prev[i:i+3], up[i:i+3]
+			c[0], c[1], c[2] = px[0], px[1], px[2]
+			u[0], u[1], u[2] = px[0]-p[0], px[1]-p[1], px[2]-p[2]
 		}
 		if _, err := zw.Write(out); err != nil {
 			return err

@@ -817,39 +817,94 @@ func shiftTo(v int64, from, to int) int64 {
 }
 
 // cicState is a pruned CIC decimator run a block at a time: register j
-// holds its value in units of 2^Dropped[j] and wraps at RegisterBits[j]; the
-// output is taken at input sample indices 0, R, 2R, ...
+// holds its value in units of 2^Dropped[j] and wraps at RegisterBits[j]
+// (an integrator of an msbAligned pruning holds it modulo
+// 2^RegisterBits[j], the same bits for what reads it); the output is taken
+// at input sample indices 0, R, 2R, ...
 type cicState struct {
 	p      *CICPruning
 	integ  []int64
 	combIn [][]int64 // last M inputs of each comb
 	pos    int
-	k      int // input samples seen
+	phase  int // input samples since the last output (k mod R)
+	// shift[j] is the LSBs integrator j drops from its input: Dropped[j]
+	// less the previous register's (the input's for j = 0).
+	shift []int
+	// aligned: see msbAligned.
+	aligned bool
+}
+
+// msbAligned reports whether no integrator's register reaches above its
+// predecessor's top bit (Dropped[j] + RegisterBits[j] never grows, as in
+// Hogenauer's pruning, where every register keeps the full width's MSB).
+// Integrator j+1 then takes only bits of integrator j below its width, and
+// a sum that agrees with the register modulo 2^RegisterBits[j] gives it
+// the same bits (floor(u / 2^d) for u = v + k 2^w is floor(v / 2^d) +
+// k 2^(w-d)): the integrators may run unwrapped, modulo the machine
+// word, and only the last is wrapped, where the combs read it.
+func msbAligned(p *CICPruning) bool {
+	for j := 1; j < p.N; j++ {
+		if p.Dropped[j]+p.RegisterBits[j] > p.Dropped[j-1]+p.RegisterBits[j-1] {
+			return false
+		}
+	}
+	return true
 }
 
 func newCICState(p *CICPruning) *cicState {
-	s := &cicState{p: p, integ: make([]int64, p.N), combIn: make([][]int64, p.N)}
+	s := &cicState{p: p, integ: make([]int64, p.N), combIn: make([][]int64, p.N), shift: make([]int, p.N)}
 	for j := range s.combIn {
 		s.combIn[j] = make([]int64, p.M)
 	}
+	prev := 0
+	for j := range s.shift {
+		s.shift[j] = p.Dropped[j] - prev
+		prev = p.Dropped[j]
+	}
+	s.aligned = msbAligned(p)
 	return s
 }
 
 func (s *cicState) run(x, out []int64) []int64 {
 	p := s.p
 	n, r, m := p.N, p.R, p.M
+	integ, shift, regs := s.integ[:n], s.shift[:n], p.RegisterBits[:n]
 	for _, v := range x {
-		k := s.k
-		s.k++
-		unit := 0
-		for j := 0; j < n; j++ {
-			in := shiftTo(v, unit, p.Dropped[j])
-			s.integ[j] = wrap(s.integ[j]+in, p.RegisterBits[j])
-			v, unit = s.integ[j], p.Dropped[j]
+		// shiftTo and wrap, written out: this loop is the run's cost at
+		// large R.
+		if s.aligned {
+			for j := range integ {
+				if d := shift[j]; d >= 0 {
+					v >>= uint(d)
+				} else {
+					v <<= uint(-d)
+				}
+				v += integ[j]
+				integ[j] = v
+			}
+		} else {
+			for j := range integ {
+				if d := shift[j]; d >= 0 {
+					v >>= uint(d)
+				} else {
+					v <<= uint(-d)
+				}
+				sh := uint(64 - regs[j])
+				v = (integ[j] + v) << sh >> sh
+				integ[j] = v
+			}
 		}
-		if k%r != 0 {
+		if s.phase != 0 {
+			if s.phase++; s.phase == r {
+				s.phase = 0
+			}
 			continue
 		}
+		if s.phase++; s.phase == r {
+			s.phase = 0
+		}
+		v = wrap(v, regs[n-1])
+		unit := p.Dropped[n-1]
 		for j := 0; j < n; j++ {
 			d := p.Dropped[n+j]
 			in := wrap(shiftTo(v, unit, d), p.RegisterBits[n+j])
@@ -951,10 +1006,13 @@ func (s *firIntState) run(x, out []int64) []int64 {
 	s.buf = append(s.buf[:l], x...)
 	// The first output index at or after s.n.
 	for g := (s.n + s.r - 1) / s.r * s.r; g < s.n+len(x); g += s.r {
+		// Taps k = 0..min(l, g) against buf[j-k] (firFloatState's loop).
 		j := l + g - s.n // g's place in buf
+		h := s.h[:min(l, g)+1]
+		b := s.buf[j+1-len(h) : j+1]
 		var acc int64
-		for k := 0; k <= l && k <= g; k++ {
-			acc += s.h[k] * s.buf[j-k]
+		for k, hk := range h {
+			acc += hk * b[len(b)-1-k]
 		}
 		switch {
 		case s.shift > 0:
@@ -986,10 +1044,14 @@ func (s *firFloatState) run(x, out []float64) []float64 {
 	l := len(s.h) - 1
 	s.buf = append(s.buf[:l], x...)
 	for g := (s.n + s.r - 1) / s.r * s.r; g < s.n+len(x); g += s.r {
+		// Taps k = 0..min(l, g) against buf[j-k], summed in that order:
+		// b is the window reversed, so b[len(b)-1-k] = buf[j-k].
 		j := l + g - s.n
+		h := s.h[:min(l, g)+1]
+		b := s.buf[j+1-len(h) : j+1]
 		var acc float64
-		for k := 0; k <= l && k <= g; k++ {
-			acc += s.h[k] * s.buf[j-k]
+		for k, hk := range h {
+			acc += hk * b[len(b)-1-k]
 		}
 		out = append(out, acc)
 	}

@@ -85,10 +85,18 @@ type cicState128 struct {
 	integ  []int128
 	combIn [][]int128
 	pos    int
-	k      int
+	phase  int // input samples since the last output (k mod R)
 	// shift[j] is the LSBs integrator j drops from its input:
 	// Dropped[j] less the previous register's (the input's for j = 0).
 	shift []int
+	// narrow is the first integrator from which on every register is at
+	// most 64 bits wide: those run in int64 (narrowInteg), since a w-bit
+	// wrap keeps only the low w bits of the sum and, for w <= 64, the
+	// sign-extended low word holds the whole register (the high word is
+	// its sign).
+	narrow      int
+	narrowInteg []int64
+	aligned     bool // see msbAligned
 }
 
 func (s *cicState128) prepare() {
@@ -98,6 +106,12 @@ func (s *cicState128) prepare() {
 		s.shift[j] = s.p.Dropped[j] - prev
 		prev = s.p.Dropped[j]
 	}
+	s.narrow = s.p.N
+	for s.narrow > 0 && s.p.RegisterBits[s.narrow-1] <= 64 {
+		s.narrow--
+	}
+	s.narrowInteg = make([]int64, s.p.N)
+	s.aligned = msbAligned(s.p)
 }
 
 func newCICState128(p *CICPruning) *cicState128 {
@@ -114,15 +128,16 @@ func (s *cicState128) run(x, out []int64) []int64 {
 	if s.shift == nil {
 		s.prepare()
 	}
+	nw := s.narrow
+	wide, narrow := s.integ[:nw], s.narrowInteg[nw:n]
+	shift, regs := s.shift[:n], p.RegisterBits[:n]
 	for _, x0 := range x {
-		k := s.k
-		s.k++
 		// The integrators, at the input rate: the same steps as the
 		// combs' below (shiftTo128, add, wrap), written out on the two
 		// words, since this loop is the bit-true run's cost at large R.
 		hi, lo := x0>>63, uint64(x0)
-		for j := 0; j < n; j++ {
-			if d := s.shift[j]; d > 0 { // floor to the register's unit
+		for j := range wide {
+			if d := shift[j]; d > 0 { // floor to the register's unit
 				if d < 64 {
 					lo = lo>>uint(d) | uint64(hi)<<uint(64-d)
 					hi >>= uint(d)
@@ -135,22 +150,68 @@ func (s *cicState128) run(x, out []int64) []int64 {
 				hi, lo = v.hi, v.lo
 			}
 			var c uint64
-			lo, c = bits.Add64(s.integ[j].lo, lo, 0)
-			hi = s.integ[j].hi + hi + int64(c)
-			if w := p.RegisterBits[j]; w > 64 {
+			lo, c = bits.Add64(wide[j].lo, lo, 0)
+			hi = wide[j].hi + hi + int64(c)
+			// Aligned registers run unwrapped, modulo 2^128 (see
+			// msbAligned).
+			if w := regs[j]; !s.aligned && w > 64 {
 				sh := uint(128 - w)
 				hi = hi << sh >> sh
-			} else {
+			} else if !s.aligned {
 				sh := uint(64 - w)
 				l := int64(lo) << sh >> sh
 				hi, lo = l>>63, uint64(l)
 			}
-			s.integ[j] = int128{hi: hi, lo: lo}
+			wide[j] = int128{hi: hi, lo: lo}
 		}
-		if k%r != 0 {
+		if len(narrow) > 0 {
+			// The first narrow integrator's input is shifted in int128
+			// (its source may be wide); only the low word then matters.
+			d := shift[nw]
+			switch {
+			case d > 0 && d < 64:
+				lo = lo>>uint(d) | uint64(hi)<<uint(64-d)
+			case d >= 64:
+				lo = uint64(hi >> uint(min(d-64, 63)))
+			case d < 0:
+				lo = int128{hi: hi, lo: lo}.shl(-d).lo
+			}
+			v := int64(lo)
+			for j := range narrow {
+				if j > 0 {
+					// int64 shifts by 64 or more give the sign (right)
+					// or zero (left), as shiftTo128's low word does.
+					if d := shift[nw+j]; d >= 0 {
+						v >>= uint(d)
+					} else {
+						v <<= uint(-d)
+					}
+				}
+				v += narrow[j]
+				if !s.aligned {
+					sh := uint(64 - regs[nw+j])
+					v = v << sh >> sh
+				}
+				narrow[j] = v
+			}
+		}
+		if s.phase != 0 {
+			if s.phase++; s.phase == r {
+				s.phase = 0
+			}
 			continue
 		}
-		v, unit := s.integ[n-1], p.Dropped[n-1]
+		if s.phase++; s.phase == r {
+			s.phase = 0
+		}
+		var v int128
+		if nw < n {
+			l := wrap(s.narrowInteg[n-1], regs[n-1])
+			v = int128{hi: l >> 63, lo: uint64(l)}
+		} else {
+			v = s.integ[n-1].wrap(regs[n-1])
+		}
+		unit := p.Dropped[n-1]
 		for j := 0; j < n; j++ {
 			d := p.Dropped[n+j]
 			in := shiftTo128(v, unit, d).wrap(p.RegisterBits[n+j])

@@ -3,6 +3,7 @@ package fixed
 import (
 	"math/big"
 	"math/rand/v2"
+	"slices"
 	"testing"
 
 	"github.com/stepdown-dsp/stepdown/chain"
@@ -81,5 +82,116 @@ func TestCIC128AgreesWithInt64(t *testing.T) {
 				t.Fatalf("CIC %+v sample %d: int64 %d, int128 %d", p, i, a[i], b[i])
 			}
 		}
+	}
+}
+
+// refCICBig is the pruned CIC of p in math/big, written from the pruning's
+// definition (Hogenauer 1981): register j holds its value in units of
+// 2^Dropped[j], takes its input floored to that unit and wraps at
+// RegisterBits[j]; the combs (delay M) run at the output rate, on the
+// last integrator at input indices 0, R, 2R, ...; the output is floored to
+// 2^Dropped[2N] and wrapped at OutputBits.
+func refCICBig(p *CICPruning, x []int64) []int64 {
+	n := p.N
+	to := func(v *big.Int, from, to int) *big.Int {
+		if to >= from {
+			return new(big.Int).Rsh(v, uint(to-from)) // floor, as two's complement
+		}
+		return new(big.Int).Lsh(v, uint(from-to))
+	}
+	integ := make([]*big.Int, n)
+	for j := range integ {
+		integ[j] = new(big.Int)
+	}
+	comb := make([][]*big.Int, n)
+	for j := range comb {
+		for range p.M {
+			comb[j] = append(comb[j], new(big.Int))
+		}
+	}
+	var out []int64
+	for k, x0 := range x {
+		v, unit := big.NewInt(x0), 0
+		for j := 0; j < n; j++ {
+			integ[j] = wrapBig(new(big.Int).Add(integ[j], to(v, unit, p.Dropped[j])), p.RegisterBits[j])
+			v, unit = integ[j], p.Dropped[j]
+		}
+		if k%p.R != 0 {
+			continue
+		}
+		pos := (k / p.R) % p.M
+		for j := 0; j < n; j++ {
+			d := p.Dropped[n+j]
+			in := wrapBig(to(v, unit, d), p.RegisterBits[n+j])
+			old := comb[j][pos]
+			comb[j][pos] = in
+			v, unit = wrapBig(new(big.Int).Sub(in, old), p.RegisterBits[n+j]), d
+		}
+		out = append(out, wrapBig(to(v, unit, p.Dropped[2*n]), p.OutputBits).Int64())
+	}
+	return out
+}
+
+// Both integer CICs are refCICBig: the int128 one (its wide integrators
+// in int128, the narrow ones of 64 bits or fewer in int64) on 40 seeded
+// random pruned CICs of 64 to 127 bits (most with both kinds of
+// integrator), the int64 one on 40 of up to 63 bits; in half of each an
+// integrator is narrowed below its successor's top bit, so that the
+// integrators must wrap at every step (see msbAligned). The input is
+// seeded noise and sustained full scale, run in blocks of seeded random
+// lengths.
+func TestCICAgainstBig(t *testing.T) {
+	rng := rand.New(rand.NewPCG(128, 3))
+	mixed := 0
+	for _, wide := range []bool{true, false} {
+		for cases := 0; cases < 40; {
+			in := 4 + rng.IntN(21)
+			p, err := chain.PruneCIC(3+rng.IntN(5), 1+rng.IntN(2), 1<<(2+rng.IntN(9)), in, 2+rng.IntN(31))
+			if err != nil || (p.FullBits > 63) != wide || p.FullBits > MaxModelBits-2 {
+				continue
+			}
+			cases++
+			if cases%2 == 0 {
+				// Narrow an integrator before the last by one or two
+				// bits: its successor then reads above its top bit.
+				p.RegisterBits = slices.Clone(p.RegisterBits)
+				p.RegisterBits[rng.IntN(p.N-1)] -= 1 + rng.IntN(2)
+				if msbAligned(&p) {
+					t.Fatalf("CIC %+v: narrowed, yet aligned", p)
+				}
+			} else if !msbAligned(&p) {
+				t.Fatalf("CIC %+v: not aligned", p)
+			}
+			if wide && p.RegisterBits[p.N-1] <= 64 {
+				mixed++
+			}
+			rm := p.R * p.M
+			x := adversarial(rng, p.N, rm, in)[0]
+			for range 2000 + rng.IntN(3000) {
+				x = append(x, rng.Int64N(1<<in)-1<<(in-1))
+			}
+			want := refCICBig(&p, x)
+			var s intFilter = newCICState128(&p)
+			if !wide {
+				s = newCICState(&p)
+			}
+			var got []int64
+			for b := 0; b < len(x); {
+				e := min(len(x), b+1+rng.IntN(3*p.R))
+				got = s.run(x[b:e], got)
+				b = e
+			}
+			if len(got) != len(want) {
+				t.Fatalf("CIC %+v: %d outputs, want %d", p, len(got), len(want))
+			}
+			for i := range want {
+				if got[i] != want[i] {
+					t.Fatalf("CIC %+v sample %d: %d, math/big %d", p, i, got[i], want[i])
+				}
+			}
+		}
+	}
+	if mixed < 10 {
+		t.Errorf("only %d of 40 cases mix wide and narrow integrators", mixed)
 	}
 }

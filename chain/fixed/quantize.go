@@ -187,15 +187,20 @@ func symmetric(h []float64) bool {
 
 // bandErr is the weighted error of band b at f for amplitude a.
 func bandErr(b *remez.Band, f, a float64) float64 {
-	d := b.Gain
-	if b.GainFunc != nil {
-		d = b.GainFunc(f)
-	}
-	w := 1.0
-	if b.WeightFunc != nil {
-		w = b.WeightFunc(f)
-	}
+	d, w := bandTarget(b, f)
 	return math.Abs(math.Abs(a)-d) * w
+}
+
+// bandTarget is band b's desired gain and weight at f.
+func bandTarget(b *remez.Band, f float64) (gain, weight float64) {
+	gain, weight = b.Gain, 1.0
+	if b.GainFunc != nil {
+		gain = b.GainFunc(f)
+	}
+	if b.WeightFunc != nil {
+		weight = b.WeightFunc(f)
+	}
+	return gain, weight
 }
 
 // Deviations returns, per band, the largest weighted error
@@ -504,13 +509,24 @@ func tryWidthOnce(taps []float64, rate float64, bands []remez.Band, bits int, s 
 
 // search is the local search on the rounding of one width.
 type search struct {
-	c      Coefficients
-	bands  []remez.Band
-	freqs  []float64 // grid, all bands
-	band   []int     // band index of each grid point
-	a      []float64 // amplitude on the grid
-	cand   []int     // indices k < n/2 (or the centre) in trial order
-	other  []int64   // the other rounding of each candidate
+	c     Coefficients
+	bands []remez.Band
+	freqs []float64 // grid, all bands
+	band  []int     // band index of each grid point
+	a     []float64 // amplitude on the grid
+	// gain, weight and maxErr are each grid point's band's desired
+	// gain and weight there (GainFunc, WeightFunc or their constants, as
+	// bandErr takes them) and its MaxError: fixed for the search.
+	gain, weight, maxErr []float64
+	// cosK is the tap whose cosines on the grid cosv holds (-1: none), so
+	// that undoing a trial move adds back the very terms it added.
+	cosK int
+	cosv []float64
+	// worst is a grid point of the current score's largest error: a trial
+	// move is judged there first.
+	worst  int
+	cand   []int   // indices k < n/2 (or the centre) in trial order
+	other  []int64 // the other rounding of each candidate
 	budget int
 	next   int
 	cur    float64 // score of the current codes
@@ -536,6 +552,15 @@ func newSearch(taps []float64, rate float64, bands []remez.Band, c Coefficients,
 	h := c.Float()
 	ls.a = make([]float64, len(ls.freqs))
 	remez.AmplitudeEach(h, ls.freqs, rate, ls.a)
+	ls.gain = make([]float64, len(ls.freqs))
+	ls.weight = make([]float64, len(ls.freqs))
+	ls.maxErr = make([]float64, len(ls.freqs))
+	for j, f := range ls.freqs {
+		ls.gain[j], ls.weight[j] = bandTarget(&bands[ls.band[j]], f)
+		ls.maxErr[j] = bands[ls.band[j]].MaxError
+	}
+	ls.cosK = -1
+	ls.cosv = make([]float64, len(ls.freqs))
 	type cand struct {
 		k   int
 		err float64
@@ -572,30 +597,55 @@ func newSearch(taps []float64, rate float64, bands []remez.Band, c Coefficients,
 // whose error exceeds its limit by more than budget such steps stays failed.
 func (ls *search) hopeless() bool {
 	reach := float64(ls.budget) * 2 * math.Ldexp(1, -ls.c.Frac)
-	for j, f := range ls.freqs {
-		b := &ls.bands[ls.band[j]]
-		w := 1.0
-		if b.WeightFunc != nil {
-			w = b.WeightFunc(f)
-		}
+	for j := range ls.freqs {
+		w := ls.weight[j]
 		if !(w > 0) {
 			continue
 		}
-		if (bandErr(b, f, ls.a[j])-b.MaxError)/w > reach {
+		if (ls.err(j)-ls.maxErr[j])/w > reach {
 			return true
 		}
 	}
 	return false
 }
 
+// err is grid point j's weighted error: bandErr's at the point's
+// frequency for the current amplitude.
+func (ls *search) err(j int) float64 {
+	return math.Abs(math.Abs(ls.a[j])-ls.gain[j]) * ls.weight[j]
+}
+
 // score is the worst band error relative to its MaxError on the grid.
 func (ls *search) score() float64 {
 	m := 0.0
-	for j, f := range ls.freqs {
-		b := &ls.bands[ls.band[j]]
-		m = math.Max(m, bandErr(b, f, ls.a[j])/b.MaxError)
+	for j := range ls.a {
+		e := ls.err(j) / ls.maxErr[j]
+		if e > m {
+			ls.worst = j
+		}
+		m = math.Max(m, e)
 	}
 	return m
+}
+
+// scoreBelow is score when it is below lim (ok), and gives up, !ok, as soon
+// as it cannot be (a point at or above lim, or NaN). It notes the point of
+// the largest error in worst.
+func (ls *search) scoreBelow(lim float64) (m float64, ok bool) {
+	if e := ls.err(ls.worst) / ls.maxErr[ls.worst]; !(e < lim) {
+		return 0, false
+	}
+	for j := range ls.a {
+		e := ls.err(j) / ls.maxErr[j]
+		if e > m {
+			ls.worst = j
+		}
+		m = math.Max(m, e)
+		if !(m < lim) {
+			return 0, false
+		}
+	}
+	return m, true
 }
 
 // move adds d codes to tap k (and its mirror) and updates the grid amplitude.
@@ -608,8 +658,14 @@ func (ls *search) move(k int, d int64) {
 		ls.c.Ints[n-1-k] += d
 		step *= 2
 	}
-	for j, f := range ls.freqs {
-		ls.a[j] += step * math.Cos(2*math.Pi*f/ls.rate*(float64(k)-c))
+	if ls.cosK != k {
+		for j, f := range ls.freqs {
+			ls.cosv[j] = math.Cos(2 * math.Pi * f / ls.rate * (float64(k) - c))
+		}
+		ls.cosK = k
+	}
+	for j, cv := range ls.cosv {
+		ls.a[j] += step * cv
 	}
 }
 
@@ -626,7 +682,7 @@ func (ls *search) run() bool {
 		k := ls.cand[i]
 		d := ls.other[i] - ls.c.Ints[k]
 		ls.move(k, d)
-		if sc := ls.score(); sc < ls.cur {
+		if sc, ok := ls.scoreBelow(ls.cur); ok {
 			ls.other[i] -= d // its other rounding is now the previous code
 			ls.cur = sc
 			return true
