@@ -277,7 +277,9 @@ func (e *creditEval) cellBound(a, b float64) float64 {
 			} else if m == 0 {
 				continue
 			}
-			lo, hi = math.Max(lo, 0), math.Min(hi, half)
+			// The builtins are math.Max and math.Min here: they
+			// differ only for a NaN against +Inf.
+			lo, hi = max(lo, 0), min(hi, half)
 			if lo > hi {
 				continue
 			}
@@ -333,7 +335,7 @@ func (e *creditEval) at(x float64) float64 {
 			k = e.cells - 1
 		}
 		if v0, v1 := e.nodes[k], e.nodes[k+1]; v0 >= 0 && v1 >= 0 {
-			t := math.Min(math.Max((x-float64(k)*e.w)/e.w, 0), 1)
+			t := min(max((x-float64(k)*e.w)/e.w, 0), 1) // as math.Min and math.Max: the bounds are finite
 			return v0 + t*(v1-v0)
 		}
 	}
@@ -520,12 +522,17 @@ func (s *creditShare) prefix(key string) *creditPrefix {
 	return p
 }
 
-// bounder is newStageBounder(st, rate), a FIR's taken from the share
-// when it holds one for the same taps and rate; a nil share builds it.
+// bounder is newStageBounder(st, rate), but a FIR's upper-only
+// (newFIRUpper: the credit asks for upper bounds alone) and taken from the
+// share when it holds one for the same taps and rate; a nil share builds
+// it.
 func (s *creditShare) bounder(st Stage, rate float64) (stageBounder, error) {
 	fs, ok := st.(FIRStage)
-	if s == nil || !ok || len(fs.Taps) == 0 {
+	if !ok || len(fs.Taps) == 0 {
 		return newStageBounder(st, rate)
+	}
+	if s == nil {
+		return newFIRUpper(fs.Taps, rate)
 	}
 	key := string(tapsHash(binary.LittleEndian.AppendUint64(nil, math.Float64bits(rate)), fs.Taps))
 	s.mu.Lock()
@@ -534,12 +541,11 @@ func (s *creditShare) bounder(st Stage, rate float64) (stageBounder, error) {
 	if b != nil {
 		return b, nil
 	}
-	b, err := newFIRBounder(fs.Taps, rate)
+	b, err := newFIRUpper(fs.Taps, rate)
 	if err != nil {
 		return nil, err
 	}
-	// The per-point bounds, twice, and their range tables.
-	size := 4 * (b.n + 1)
+	size := b.floats()
 	s.mu.Lock()
 	if s.fir[key] == nil && s.floats+size <= maxSharedBounderFloats {
 		s.fir[key] = b
