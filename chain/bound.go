@@ -126,9 +126,10 @@ func foldPieces(a, b, rate float64, out *[3][2]float64) int {
 // its loop over the exponents between x and y: the remainder x - q y,
 // q = floor(x/y), is representable (math.Mod is exact), so the fused
 // multiply-add, which rounds the exact x - q y once, gives it exactly when
-// q is right; a q one off, from the rounding of x/y, leaves the result
-// below 0 or at least y, and is stepped. Quotients beyond 2^52, NaN and
-// infinities go to math.Mod.
+// q is right. Rounding x/y up to an integer makes q one too large, which
+// leaves the result below 0, and q is stepped back (a q too small would
+// leave it at least y: rounding cannot do that, but it is stepped all the
+// same). Quotients beyond 2^52, NaN and infinities go to math.Mod.
 func modPos(x, y float64) float64 {
 	if x < y {
 		return x
