@@ -50,7 +50,9 @@ func TestLiftAtFlat(t *testing.T) {
 // TestCreditShare: credit tables built through one creditShare, for
 // seeded random stopbands over the same earlier stages (so that later
 // tables find some of their cells already bounded), equal the tables built
-// alone, node for node, and so do their values off the table.
+// alone, node for node, and so do their values off the table; so do the
+// tables of a second FIR after the same CIC (the first FIR with its taps
+// scaled), whose cells find the CIC's values from the first's (cicRow).
 func TestCreditShare(t *testing.T) {
 	sp := Spec{InputRate: 16e6, OutputRate: 250e3, Passband: 80e3, Protected: 100e3, RippleDB: 0.2, RejectionDB: 70}
 	plan, err := ParseNotation("cic5m1r16 > fir2 > fir2")
@@ -63,7 +65,12 @@ func TestCreditShare(t *testing.T) {
 	}
 	rng := rand.New(rand.NewPCG(3, 2026))
 	share := newCreditShare()
-	for _, prev := range [][]Stage{c.Stages[:1], c.Stages[:2]} {
+	other := c.Stages[1].(FIRStage)
+	other.Taps = append([]float64(nil), other.Taps...)
+	for i := range other.Taps {
+		other.Taps[i] *= 0.8
+	}
+	for _, prev := range [][]Stage{c.Stages[:1], c.Stages[:2], {c.Stages[0], other}} {
 		alone := newStopCredit(1e-4, sp.InputRate, prev, nil)
 		half := alone.rate / 2
 		for i := 0; i < 12; i++ {
@@ -89,8 +96,11 @@ func TestCreditShare(t *testing.T) {
 			}
 		}
 	}
-	if len(share.pre) != 2 {
-		t.Errorf("%d prefixes in the share, want 2", len(share.pre))
+	if len(share.pre) != 3 {
+		t.Errorf("%d prefixes in the share, want 3", len(share.pre))
+	}
+	if len(share.cic) != 2 {
+		t.Errorf("%d CIC rows in the share, want 2 (one for each rate)", len(share.cic))
 	}
 }
 
