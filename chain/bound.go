@@ -4,6 +4,7 @@ import (
 	"fmt"
 	"math"
 	"math/bits"
+	"sync"
 
 	"github.com/stepdown-dsp/stepdown/chain/remez"
 )
@@ -90,7 +91,7 @@ func foldPieces(a, b, rate float64, out *[3][2]float64) int {
 		out[0] = [2]float64{0, h}
 		return 1
 	}
-	x := math.Mod(math.Abs(a), rate)
+	x := modPos(math.Abs(a), rate)
 	if a < 0 {
 		// Fold a negative start by symmetry: |H(-f)| = |H(f)|.
 		if b <= 0 {
@@ -102,7 +103,9 @@ func foldPieces(a, b, rate float64, out *[3][2]float64) int {
 	y := x + (b - a) // < x + F/2 < 1.5 F
 	n := 0
 	for k := 0; k < 3; k++ {
-		s, e := math.Max(x, float64(k)*h), math.Min(y, float64(k+1)*h)
+		// The builtins are math.Max and math.Min here: they differ
+		// only for a NaN against +Inf, and k h is finite.
+		s, e := max(x, float64(k)*h), min(y, float64(k+1)*h)
 		if s > e {
 			continue
 		}
@@ -117,6 +120,34 @@ func foldPieces(a, b, rate float64, out *[3][2]float64) int {
 		n++
 	}
 	return n
+}
+
+// modPos is math.Mod(x, y) for x >= 0 and y > 0, bit for bit, without
+// its loop over the exponents between x and y: the remainder x - q y,
+// q = floor(x/y), is representable (math.Mod is exact), so the fused
+// multiply-add, which rounds the exact x - q y once, gives it exactly when
+// q is right. Rounding x/y up to an integer makes q one too large, which
+// leaves the result below 0, and q is stepped back (a q too small would
+// leave it at least y: rounding cannot do that, but it is stepped all the
+// same). Quotients beyond 2^52, NaN and infinities go to math.Mod.
+func modPos(x, y float64) float64 {
+	if x < y {
+		return x
+	}
+	q := math.Floor(x / y)
+	if !(q < 0x1p52) || !(y > 0) {
+		return math.Mod(x, y)
+	}
+	r := math.FMA(-q, y, x)
+	for r < 0 {
+		q--
+		r = math.FMA(-q, y, x)
+	}
+	for r >= y {
+		q++
+		r = math.FMA(-q, y, x)
+	}
+	return r
 }
 
 // cicBounder bounds a CIC's unit-DC-gain magnitude (see the file comment).
@@ -216,7 +247,10 @@ type firBounder struct {
 	n    int     // grid intervals over [0, rate/2]
 	step float64 // Hz
 	up   rangeMax
-	lo   rangeMax // of -(per-point lower bound)
+	// lo is the range table of -(per-point lower bound); empty for a
+	// bounder built for upper bounds alone (newFIRUpper), whose lower
+	// bounds on the grid are 0, true of every |H|.
+	lo rangeMax
 	// upAll and loAll are the per-point bounds' extremes over the whole
 	// grid: bounds of |H| at every frequency.
 	upAll, loAll float64
@@ -225,6 +259,40 @@ type firBounder struct {
 }
 
 func newFIRBounder(h []float64, rate float64) (*firBounder, error) {
+	return buildFIRBounder(h, rate, true)
+}
+
+// newFIRUpper is newFIRBounder without the per-point lower bounds, for a
+// user of upper and coarse's up alone (the cascade rule's credit): the
+// same upper bounds bit for bit, at half the memory and without the lower
+// bounds' table; its lower bounds on the grid are 0.
+func newFIRUpper(h []float64, rate float64) (*firBounder, error) {
+	return buildFIRBounder(h, rate, false)
+}
+
+// spectra holds the FFT plans newFIRBounder has used, by grid size, for
+// the next bounder of the same size: a plan gives the same magnitudes
+// whichever bounder made it. The pool empties itself under the garbage
+// collector, so what it keeps stays bounded.
+var spectra sync.Map // grid points -> *sync.Pool of *remez.Spectrum
+
+func getSpectrum(points int) *remez.Spectrum {
+	if p, ok := spectra.Load(points); ok {
+		if sp, ok := p.(*sync.Pool).Get().(*remez.Spectrum); ok {
+			return sp
+		}
+	}
+	return remez.NewSpectrum(points)
+}
+
+func putSpectrum(sp *remez.Spectrum) {
+	p, _ := spectra.LoadOrStore(sp.Points(), &sync.Pool{})
+	p.(*sync.Pool).Put(sp)
+}
+
+// buildFIRBounder is newFIRBounder, without the lower bounds when lower is
+// false.
+func buildFIRBounder(h []float64, rate float64, lower bool) (*firBounder, error) {
 	if len(h) == 0 {
 		return nil, fmt.Errorf("chain: a FIR stage without taps cannot be analysed")
 	}
@@ -255,8 +323,11 @@ func newFIRBounder(h []float64, rate float64) (*firBounder, error) {
 	t := b.step / 2
 	fftErr := 16 * 0x1p-52 * float64(bits.Len(uint(2*b.n)))
 	up := make([]float64, b.n+1)
-	lo := make([]float64, b.n+1)
-	sp := remez.NewSpectrum(b.n + 1)
+	var lo []float64
+	if lower {
+		lo = make([]float64, b.n+1)
+	}
+	sp := getSpectrum(b.n + 1)
 	seq := append([]float64(nil), h...) // h_n (n-c)^k, one factor more each k
 	mag := make([]float64, b.n+1)
 	for k := 0; k < taylorOrder; k++ {
@@ -269,8 +340,13 @@ func newFIRBounder(h []float64, rate float64) (*firBounder, error) {
 		coef := math.Pow(w, float64(k)) * math.Pow(t, float64(k)) / b.fact[k]
 		slack := fftErr * b.mom[k] * math.Pow(t, float64(k)) / b.fact[k]
 		for i, m := range mag {
+			up[i] += m*coef + slack
+		}
+		if !lower {
+			continue
+		}
+		for i, m := range mag {
 			d := m * coef
-			up[i] += d + slack
 			if k == 0 {
 				lo[i] += d - slack
 			} else {
@@ -278,17 +354,25 @@ func newFIRBounder(h []float64, rate float64) (*firBounder, error) {
 			}
 		}
 	}
+	putSpectrum(sp)
 	rem := b.mom[taylorOrder] * math.Pow(t, taylorOrder) / b.fact[taylorOrder]
 	for i := range up {
 		up[i] = (up[i] + rem) * (1 + boundSlack)
-		lo[i] = -math.Max(0, (lo[i]-rem)*(1-boundSlack))
 	}
 	b.up = newRangeMax(up)
-	b.lo = newRangeMax(lo)
 	b.upAll = b.up.query(0, b.n)
-	b.loAll = -b.lo.query(0, b.n)
+	if lower {
+		for i := range lo {
+			lo[i] = -math.Max(0, (lo[i]-rem)*(1-boundSlack))
+		}
+		b.lo = newRangeMax(lo)
+		b.loAll = -b.lo.query(0, b.n)
+	}
 	return b, nil
 }
+
+// floats is the number of values b's grid tables hold.
+func (b *firBounder) floats() int { return b.up.floats() + b.lo.floats() }
 
 // coarse returns the bounds of |H| over all frequencies.
 func (b *firBounder) coarse(a, e float64) (lo, up float64) { return b.loAll, b.upAll }
@@ -320,7 +404,11 @@ func (b *firBounder) bounds(a, e float64) (lo, up float64) {
 		i0 := max(0, int(math.Floor(p[0]/b.step)))
 		i1 := min(b.n, int(math.Ceil(p[1]/b.step)))
 		up = math.Max(up, b.up.query(i0, i1))
-		lo = math.Min(lo, -b.lo.query(i0, i1))
+		if len(b.lo.v) > 0 {
+			lo = math.Min(lo, -b.lo.query(i0, i1))
+		} else {
+			lo = 0
+		}
 	}
 	return lo, up
 }
@@ -390,6 +478,15 @@ type rangeMax struct {
 }
 
 const rmBlock = 16
+
+// floats is the number of values r holds.
+func (r rangeMax) floats() int {
+	n := len(r.v)
+	for _, t := range r.tab {
+		n += len(t)
+	}
+	return n
+}
 
 func newRangeMax(v []float64) rangeMax {
 	nb := (len(v) + rmBlock - 1) / rmBlock

@@ -159,6 +159,7 @@ func (c *stopCredit) eval(stop []Interval) *creditEval {
 	for k := range e.nodes {
 		e.nodes[k] = -1
 	}
+	row := c.share.cicRow(c, e.w)
 	for _, sb := range stop {
 		// A cell of margin each side: the design engine's frequencies
 		// may round just outside a band.
@@ -171,7 +172,14 @@ func (c *stopCredit) eval(stop []Interval) *creditEval {
 			}
 			if !ok {
 				e.load()
-				u = e.cellBound(float64(k)*e.w, float64(k+1)*e.w)
+				m := row.cell(k, c.share)
+				if m != nil {
+					m.mu.Lock()
+				}
+				u = e.cellBound(float64(k)*e.w, float64(k+1)*e.w, m)
+				if m != nil {
+					m.mu.Unlock()
+				}
 				if pre != nil && c.share.cells.Add(1) <= maxSharedCells {
 					pre.cells[k] = u
 				}
@@ -255,14 +263,22 @@ func (e *creditEval) load() {
 // the stages left cannot beat the best so far is dropped, and when the
 // first stage is a CIC, whose envelope 1/(RM sin(pi g/F0))^N falls with g
 // below F0/2, the first image whose envelope cannot beat the best ends
-// the search.
-func (e *creditEval) cellBound(a, b float64) float64 {
+// the search. A first CIC's envelope and bound at each image are taken
+// from memo, and added to it, when memo is not nil (memo.mu held): the
+// images, their order and the bounds' arguments are the same in every
+// table of the memo's row (cicRow), so the values are the ones computed
+// here.
+func (e *creditEval) cellBound(a, b float64, memo *cicCell) float64 {
 	c := e.c
 	var first CICStage
 	firstCIC := false
 	if len(c.stages) > 0 {
 		first, firstCIC = c.stages[0].(CICStage)
 	}
+	if !firstCIC {
+		memo = nil
+	}
+	v := 0 // images visited, the index into memo
 	best := 0.0
 	half := c.f0 / 2
 	for m := 0; float64(m)*c.rate-b <= half; m++ {
@@ -277,12 +293,25 @@ func (e *creditEval) cellBound(a, b float64) float64 {
 			} else if m == 0 {
 				continue
 			}
-			lo, hi = math.Max(lo, 0), math.Min(hi, half)
+			// The builtins are math.Max and math.Min here: they
+			// differ only for a NaN against +Inf.
+			lo, hi = max(lo, 0), min(hi, half)
 			if lo > hi {
 				continue
 			}
-			if firstCIC && cicEnvelope(first, lo, c.rates[0])*e.rest[1] <= best {
-				return best / e.dc
+			if firstCIC {
+				var env float64
+				if memo != nil && v < len(memo.env) {
+					env = memo.env[v]
+				} else {
+					env = cicEnvelope(first, lo, c.rates[0])
+					if memo != nil {
+						cicAdd(&memo.env, v, env, c.share)
+					}
+				}
+				if env*e.rest[1] <= best {
+					return best / e.dc
+				}
 			}
 			p := 1.0
 			for j, bd := range e.bnd {
@@ -291,11 +320,21 @@ func (e *creditEval) cellBound(a, b float64) float64 {
 					mid := l + (h-l)/2
 					l, h = mid-0.51*st, mid+0.51*st
 				}
-				p *= bd.upper(l, h)
+				var u float64
+				if j == 0 && memo != nil && v < len(memo.up) {
+					u = memo.up[v]
+				} else {
+					u = bd.upper(l, h)
+					if j == 0 && memo != nil {
+						cicAdd(&memo.up, v, u, c.share)
+					}
+				}
+				p *= u
 				if p*e.rest[j+1] <= best {
 					break
 				}
 			}
+			v++
 			if c.mask != nil {
 				// The mask's weight, at most 1, only lowers p: the
 				// prunes above stay safe.
@@ -333,16 +372,16 @@ func (e *creditEval) at(x float64) float64 {
 			k = e.cells - 1
 		}
 		if v0, v1 := e.nodes[k], e.nodes[k+1]; v0 >= 0 && v1 >= 0 {
-			t := math.Min(math.Max((x-float64(k)*e.w)/e.w, 0), 1)
+			t := min(max((x-float64(k)*e.w)/e.w, 0), 1) // as math.Min and math.Max: the bounds are finite
 			return v0 + t*(v1-v0)
 		}
 	}
 	if e.bnd == nil {
 		f := e.c.eval(nil)
 		f.load()
-		return f.cellBound(x, x)
+		return f.cellBound(x, x, nil)
 	}
-	return e.cellBound(x, x)
+	return e.cellBound(x, x, nil)
 }
 
 // cicEnvelope is an upper bound of the CIC's |H(g)| at rate:
@@ -483,6 +522,11 @@ type creditShare struct {
 	pre    map[string]*creditPrefix
 	fir    map[string]*firBounder
 	floats int // values held by fir's bounders
+	// cic holds a first CIC's values over the cells' images (cicRow),
+	// cicVals counts them: beyond maxSharedCICValues they are no longer
+	// kept.
+	cic     map[cicRowKey]*cicRow
+	cicVals atomic.Int64
 	// cells counts the cell bounds offered to the prefixes' records:
 	// beyond maxSharedCells they are no longer kept.
 	cells atomic.Int64
@@ -505,7 +549,7 @@ const maxSharedCells = 1 << 20
 const maxSharedBounderFloats = 2 << 20
 
 func newCreditShare() *creditShare {
-	return &creditShare{pre: map[string]*creditPrefix{}, fir: map[string]*firBounder{}}
+	return &creditShare{pre: map[string]*creditPrefix{}, fir: map[string]*firBounder{}, cic: map[cicRowKey]*cicRow{}}
 }
 
 // prefix returns the share's record of the prefix key, new when unseen.
@@ -520,12 +564,17 @@ func (s *creditShare) prefix(key string) *creditPrefix {
 	return p
 }
 
-// bounder is newStageBounder(st, rate), a FIR's taken from the share
-// when it holds one for the same taps and rate; a nil share builds it.
+// bounder is newStageBounder(st, rate), but a FIR's upper-only
+// (newFIRUpper: the credit asks for upper bounds alone) and taken from the
+// share when it holds one for the same taps and rate; a nil share builds
+// it.
 func (s *creditShare) bounder(st Stage, rate float64) (stageBounder, error) {
 	fs, ok := st.(FIRStage)
-	if s == nil || !ok || len(fs.Taps) == 0 {
+	if !ok || len(fs.Taps) == 0 {
 		return newStageBounder(st, rate)
+	}
+	if s == nil {
+		return newFIRUpper(fs.Taps, rate)
 	}
 	key := string(tapsHash(binary.LittleEndian.AppendUint64(nil, math.Float64bits(rate)), fs.Taps))
 	s.mu.Lock()
@@ -534,12 +583,11 @@ func (s *creditShare) bounder(st Stage, rate float64) (stageBounder, error) {
 	if b != nil {
 		return b, nil
 	}
-	b, err := newFIRBounder(fs.Taps, rate)
+	b, err := newFIRUpper(fs.Taps, rate)
 	if err != nil {
 		return nil, err
 	}
-	// The per-point bounds, twice, and their range tables.
-	size := 4 * (b.n + 1)
+	size := b.floats()
 	s.mu.Lock()
 	if s.fir[key] == nil && s.floats+size <= maxSharedBounderFloats {
 		s.fir[key] = b
@@ -547,6 +595,94 @@ func (s *creditShare) bounder(st Stage, rate float64) (stageBounder, error) {
 	}
 	s.mu.Unlock()
 	return b, nil
+}
+
+// cicRowKey is what the images of a table's cells, and a first CIC's
+// envelope and bound over them, depend on besides the cell's index: the
+// CIC (order, delay times factor), the chain's input rate (the CIC's),
+// the stage's input rate, the cell width, and whether the image x itself
+// counts.
+type cicRowKey struct {
+	n, rm       int
+	f0, rate, w float64
+	aliasOnly   bool
+}
+
+// cicRow is the share's record of one cicRowKey: for each cell index
+// the first CIC's values met so far (cicCell).
+type cicRow struct {
+	mu    sync.Mutex
+	cells map[int]*cicCell
+}
+
+// cicCell holds a first CIC's envelope (cicEnvelope) and bound (upper)
+// over a cell's images in the order cellBound visits them: env[v] and
+// up[v] for the v-th image (up is one shorter than env where the envelope
+// ended the search). Its mutex is held while a cell is bounded with it.
+type cicCell struct {
+	mu      sync.Mutex
+	env, up []float64
+}
+
+// maxSharedCICValues bounds the values the cicCells of a creditShare hold
+// (their slices' capacity), their records counted at cicCellCost values
+// each: 8 MB; later values are computed each time.
+const maxSharedCICValues = 1 << 20
+
+// cicRow returns the share's row for c's tables of cell width w, nil for
+// a nil share or a table whose first earlier stage is not a CIC.
+func (s *creditShare) cicRow(c *stopCredit, w float64) *cicRow {
+	if s == nil || len(c.stages) == 0 {
+		return nil
+	}
+	cs, ok := c.stages[0].(CICStage)
+	if !ok {
+		return nil
+	}
+	k := cicRowKey{n: cs.N, rm: cs.R * cs.M, f0: c.f0, rate: c.rate, w: w, aliasOnly: c.aliasOnly}
+	s.mu.Lock()
+	defer s.mu.Unlock()
+	r := s.cic[k]
+	if r == nil {
+		r = &cicRow{cells: map[int]*cicCell{}}
+		s.cic[k] = r
+	}
+	return r
+}
+
+// cicCellCost is what a cicCell's record costs besides its values, in
+// values (its map entry, mutex and slice headers).
+const cicCellCost = 16
+
+// cell returns the row's record of cell k, new when unseen and the share
+// s has room; nil for a nil row or a full share.
+func (r *cicRow) cell(k int, s *creditShare) *cicCell {
+	if r == nil {
+		return nil
+	}
+	r.mu.Lock()
+	defer r.mu.Unlock()
+	m := r.cells[k]
+	if m == nil {
+		if s.cicVals.Add(cicCellCost) > maxSharedCICValues {
+			return nil
+		}
+		m = &cicCell{}
+		r.cells[k] = m
+	}
+	return m
+}
+
+// cicAdd appends x to *vals, a cicCell's slice, as its v-th value when
+// that is the next one and the share s has room, counting the slice's
+// growth in capacity.
+func cicAdd(vals *[]float64, v int, x float64, s *creditShare) {
+	if v != len(*vals) || s.cicVals.Load() >= maxSharedCICValues {
+		return
+	}
+	c := cap(*vals)
+	*vals = append(*vals, x)
+	s.cicVals.Add(int64(cap(*vals) - c))
 }
 
 // Credited reports whether the stage's stopband limit is relaxed by the

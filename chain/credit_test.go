@@ -50,7 +50,9 @@ func TestLiftAtFlat(t *testing.T) {
 // TestCreditShare: credit tables built through one creditShare, for
 // seeded random stopbands over the same earlier stages (so that later
 // tables find some of their cells already bounded), equal the tables built
-// alone, node for node, and so do their values off the table.
+// alone, node for node, and so do their values off the table; so do the
+// tables of a second FIR after the same CIC (the first FIR with its taps
+// scaled), whose cells find the CIC's values from the first's (cicRow).
 func TestCreditShare(t *testing.T) {
 	sp := Spec{InputRate: 16e6, OutputRate: 250e3, Passband: 80e3, Protected: 100e3, RippleDB: 0.2, RejectionDB: 70}
 	plan, err := ParseNotation("cic5m1r16 > fir2 > fir2")
@@ -63,7 +65,12 @@ func TestCreditShare(t *testing.T) {
 	}
 	rng := rand.New(rand.NewPCG(3, 2026))
 	share := newCreditShare()
-	for _, prev := range [][]Stage{c.Stages[:1], c.Stages[:2]} {
+	other := c.Stages[1].(FIRStage)
+	other.Taps = append([]float64(nil), other.Taps...)
+	for i := range other.Taps {
+		other.Taps[i] *= 0.8
+	}
+	for _, prev := range [][]Stage{c.Stages[:1], c.Stages[:2], {c.Stages[0], other}} {
 		alone := newStopCredit(1e-4, sp.InputRate, prev, nil)
 		half := alone.rate / 2
 		for i := 0; i < 12; i++ {
@@ -89,8 +96,11 @@ func TestCreditShare(t *testing.T) {
 			}
 		}
 	}
-	if len(share.pre) != 2 {
-		t.Errorf("%d prefixes in the share, want 2", len(share.pre))
+	if len(share.pre) != 3 {
+		t.Errorf("%d prefixes in the share, want 3", len(share.pre))
+	}
+	if len(share.cic) != 2 {
+		t.Errorf("%d CIC rows in the share, want 2 (one for each rate)", len(share.cic))
 	}
 }
 
@@ -144,6 +154,79 @@ func TestUpperIsBoundsUp(t *testing.T) {
 			_, up := b.bounds(a, a+w)
 			if got := b.upper(a, a+w); math.Float64bits(got) != math.Float64bits(up) {
 				t.Fatalf("%T at %g Hz, [%g, %g]: upper %.17g, bounds %.17g", st, rate, a, a+w, got, up)
+			}
+		}
+	}
+}
+
+// TestModPos checks modPos against math.Mod (exact by its definition),
+// bit for bit, over seeded random x >= 0 and y > 0 whose quotient spans
+// 0 to 2^60, with x an exact multiple of y or a few ulps either side of
+// one among them (where x/y rounds to the wrong quotient).
+func TestModPos(t *testing.T) {
+	rng := rand.New(rand.NewPCG(7, 52))
+	for i := 0; i < 300000; i++ {
+		y := math.Exp2(rng.Float64()*80 - 40)
+		q := math.Floor(math.Exp2(rng.Float64() * 60))
+		x := (q + rng.Float64()) * y
+		switch i % 4 {
+		case 1:
+			x = q * y
+		case 2:
+			x = math.Nextafter(q*y, math.Inf(1))
+			x = math.Nextafter(x, math.Inf(1))
+		case 3:
+			x = math.Nextafter(q*y, 0)
+		}
+		if i%97 == 0 {
+			x = rng.Float64() * y // below y
+		}
+		if got, want := modPos(x, y), math.Mod(x, y); math.Float64bits(got) != math.Float64bits(want) {
+			t.Fatalf("modPos(%.17g, %.17g) = %.17g, math.Mod %.17g", x, y, got, want)
+		}
+	}
+	for _, c := range [][2]float64{{math.Inf(1), 3}, {math.NaN(), 3}, {5, math.Inf(1)}, {0, 3}, {3, 3}} {
+		got, want := modPos(c[0], c[1]), math.Mod(c[0], c[1])
+		if math.Float64bits(got) != math.Float64bits(want) && !(math.IsNaN(got) && math.IsNaN(want)) {
+			t.Errorf("modPos(%g, %g) = %g, math.Mod %g", c[0], c[1], got, want)
+		}
+	}
+}
+
+// TestFIRUpperIsFull: the upper-only FIR bounder the credit keeps
+// (newFIRUpper) gives the full bounder's upper bounds and coarse upper
+// bound bit for bit, and 0 or a valid lower bound below the full one's,
+// for seeded random FIRs over seeded random intervals, narrow and wide.
+func TestFIRUpperIsFull(t *testing.T) {
+	rng := rand.New(rand.NewPCG(11, 3))
+	for c := 0; c < 30; c++ {
+		rate := 1e5 * (1 + 100*rng.Float64())
+		h := make([]float64, 5+rng.IntN(400))
+		for i := range h {
+			h[i] = rng.NormFloat64() / float64(len(h))
+		}
+		full, err := newFIRBounder(h, rate)
+		if err != nil {
+			t.Fatal(err)
+		}
+		up, err := newFIRUpper(h, rate)
+		if err != nil {
+			t.Fatal(err)
+		}
+		_, cf := full.coarse(0, rate)
+		if cl, cu := up.coarse(0, rate); cl != 0 || math.Float64bits(cu) != math.Float64bits(cf) {
+			t.Fatalf("%d taps: coarse (%g, %g), full's up %g", len(h), cl, cu, cf)
+		}
+		for i := 0; i < 2000; i++ {
+			a := (rng.Float64()*4 - 1) * rate
+			w := rate * math.Exp(-rng.Float64()*25)
+			fl, fu := full.bounds(a, a+w)
+			ul, uu := up.bounds(a, a+w)
+			if math.Float64bits(uu) != math.Float64bits(fu) || math.Float64bits(up.upper(a, a+w)) != math.Float64bits(fu) {
+				t.Fatalf("%d taps, [%g, %g]: upper-only %.17g, full %.17g", len(h), a, a+w, uu, fu)
+			}
+			if !(ul >= 0 && ul <= fl) {
+				t.Fatalf("%d taps, [%g, %g]: upper-only lower bound %g, full %g", len(h), a, a+w, ul, fl)
 			}
 		}
 	}
