@@ -119,6 +119,17 @@ func TestMinLengthCompensator(t *testing.T) {
 	}
 }
 
+// randomLowpass draws a lowpass spec at rate 1: passband edge fp, transition
+// tr, passband and stopband deviations dp and ds (0.1 to 0.001, 0.01 to
+// 1e-5).
+func randomLowpass(rng *rand.Rand) (fp, tr, dp, ds float64) {
+	fp = 0.02 + 0.3*rng.Float64()
+	tr = (0.01 + 0.08*rng.Float64()) * (0.5 - fp)
+	dp = math.Pow(10, -1-2*rng.Float64())
+	ds = math.Pow(10, -2-3*rng.Float64())
+	return fp, tr, dp, ds
+}
+
 // The warm start (and Herrmann's step) change only how MinLength gets
 // there: on seeded random lowpass and multiband specs it returns the same
 // length as a search whose designs all start cold, and the taps meet the
@@ -134,10 +145,7 @@ func TestMinLengthWarmEqualsCold(t *testing.T) {
 	}
 	compared := 0
 	for c := 0; c < n; c++ {
-		fp := 0.02 + 0.3*rng.Float64()
-		tr := (0.01 + 0.08*rng.Float64()) * (0.5 - fp)
-		dp := math.Pow(10, -1-2*rng.Float64())
-		ds := math.Pow(10, -2-3*rng.Float64())
+		fp, tr, dp, ds := randomLowpass(rng)
 		bands := []Band{{Lo: 0, Hi: fp, Gain: 1, MaxError: dp}}
 		// Half the cases are multiband: stopbands with don't-care gaps.
 		if c%2 == 0 {
@@ -187,10 +195,7 @@ func TestMinLengthFloorStop(t *testing.T) {
 	}
 	stops := 0
 	for c := 0; c < n; c++ {
-		fp := 0.02 + 0.3*rng.Float64()
-		tr := (0.01 + 0.08*rng.Float64()) * (0.5 - fp)
-		dp := math.Pow(10, -1-2*rng.Float64())
-		ds := math.Pow(10, -2-3*rng.Float64())
+		fp, tr, dp, ds := randomLowpass(rng)
 		bands := []Band{{Lo: 0, Hi: fp, Gain: 1, MaxError: dp}}
 		switch c % 3 {
 		case 0:
