@@ -262,12 +262,23 @@ func (r realDesigner) analyze(c Candidate) (Candidate, Reason) {
 // measure is analyze without the final check of the limits.
 func (r realDesigner) measure(c Candidate) (Candidate, Reason) {
 	f := c.Figures
+	// A chain to be measured on its rounded taps has its word lengths
+	// planned beside its float measurement; they are used if the float
+	// chain needs no re-design, and waited for and dropped otherwise.
+	var wl func() (*fixed.Widths, chain.Analysis, error)
+	if !c.evaluated && !c.survived && r.rounded(r.spec) {
+		wl = r.startWordLengths(r.spec, c.Chain)
+	}
 	if !c.evaluated {
 		var err error
 		if f, err = cost.EvaluateContext(r.ctx, r.spec, c.Chain, r.s.Cost); err != nil {
+			if wl != nil {
+				wl()
+			}
 			return Candidate{}, ReasonEvaluateFailed
 		}
 	}
+	first := c.Chain
 	margin := f.Analysis.AliasRejectionDB - r.spec.RejectionDB
 	// The stages are designed to absolute stopband limits, but the chain's
 	// rejection is measured against its gain at 0 Hz, which the passband
@@ -291,7 +302,14 @@ func (r realDesigner) measure(c Candidate) (Candidate, Reason) {
 		c.Chain, f, c.raised, c.survived = ch, g, raise, false
 		margin = f.Analysis.AliasRejectionDB - r.spec.RejectionDB
 	}
+	if wl != nil && c.Chain != first {
+		wl() // planned for the chain before its re-design: not wanted
+		wl = nil
+	}
 	if why := floatMisses(r.spec, f.Analysis); why != "" {
+		if wl != nil {
+			wl()
+		}
 		return Candidate{}, why
 	}
 	c.Figures, c.MarginDB, c.evaluated = f, margin, true
@@ -314,6 +332,9 @@ func (r realDesigner) measure(c Candidate) (Candidate, Reason) {
 	if c.survived {
 		c.MarginDB = c.Quantised.AliasRejectionDB - r.spec.RejectionDB
 		return c, ""
+	}
+	if wl != nil {
+		return r.surviveWith(c, r.spec, wl)
 	}
 	return r.survive(c, r.spec)
 }
@@ -400,7 +421,35 @@ func (r realDesigner) rounded(spec chain.Spec) bool {
 // chain is priced and measured again (cost.Evaluate). It returns the chain
 // that meets, or the floating-point chain with the reason it was dropped.
 func (r realDesigner) survive(c Candidate, spec chain.Spec) (Candidate, Reason) {
-	ws, qa, err := fixed.PlanChainContext(r.ctx, spec, c.Chain, r.s.Fixed)
+	return r.surviveWith(c, spec, r.startWordLengths(spec, c.Chain))
+}
+
+// startWordLengths starts package fixed's word-length plan of ch on its own
+// goroutine and returns the call that waits for it. Planning reads the
+// chain only, so it may run beside its float measurement; a plan whose
+// result is not wanted is waited for all the same (the call returns
+// promptly once ctx is done).
+func (r realDesigner) startWordLengths(spec chain.Spec, ch *chain.Chain) func() (*fixed.Widths, chain.Analysis, error) {
+	type result struct {
+		ws  *fixed.Widths
+		qa  chain.Analysis
+		err error
+	}
+	done := make(chan result, 1)
+	go func() {
+		ws, qa, err := fixed.PlanChainContext(r.ctx, spec, ch, r.s.Fixed)
+		done <- result{ws, qa, err}
+	}()
+	return func() (*fixed.Widths, chain.Analysis, error) {
+		res := <-done
+		return res.ws, res.qa, res.err
+	}
+}
+
+// surviveWith is survive with the rounded chain's word-length plan being
+// made by wl (startWordLengths of c.Chain).
+func (r realDesigner) surviveWith(c Candidate, spec chain.Spec, wl func() (*fixed.Widths, chain.Analysis, error)) (Candidate, Reason) {
+	ws, qa, err := wl()
 	if err != nil {
 		return c, ReasonWordLengths
 	}
@@ -481,12 +530,12 @@ func (r realDesigner) survive(c Candidate, spec chain.Spec) (Candidate, Reason) 
 		if err != nil {
 			break
 		}
+		// The float figures and the rounded ones of the new chain are
+		// independent: measured side by side.
+		wl := r.startWordLengths(spec, ch)
 		g, err := cost.EvaluateContext(r.ctx, spec, ch, r.s.Cost)
-		if err != nil {
-			break
-		}
-		w2, q, err := fixed.PlanChainContext(r.ctx, spec, ch, r.s.Fixed)
-		if err != nil {
+		w2, q, werr := wl()
+		if err != nil || werr != nil {
 			break
 		}
 		ws = w2

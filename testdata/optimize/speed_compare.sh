@@ -86,7 +86,7 @@ for s in example d4096 d4096_80dB d1000_complex d65536 d2to20; do
 	if cmp -s "$tmp/out-old-$s/report.json" "$tmp/out-new-$s/report.json"; then
 		echo "$s: report.json identical" >> "$tmp/same"
 	else
-		echo "$s: report.json differs in bytes; $(/usr/bin/python3 "$root/testdata/optimize/json_close.py" "$tmp/out-old-$s/report.json" "$tmp/out-new-$s/report.json" | tail -1)" >> "$tmp/same"
+		echo "$s: report.json differs in bytes; $(/usr/bin/python3 "$root/testdata/optimize/json_close.py" "$tmp/out-old-$s/report.json" "$tmp/out-new-$s/report.json" | tr '\n' ';')" >> "$tmp/same"
 	fi
 done
 cat "$tmp/same"
