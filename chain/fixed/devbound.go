@@ -51,12 +51,9 @@ type ampBounds struct {
 // Accuracy and Stability of Numerical Algorithms, 2nd ed., section 24.1).
 func newAmpBounds(h []float64, rate float64) *ampBounds {
 	n := len(h)
-	size := 1 << bits.Len(uint(16*n-1))
-	half := size / 2
-	c := float64(n-1) / 2
+	g := newMomentGrid(n)
+	size, half, c, kappa, hh := g.size, g.half, g.c, g.kappa, g.hh
 	const u = 0x1p-53
-	kappa := 64 * u * float64(bits.Len(uint(size))) * math.Sqrt(float64(size))
-	hh := math.Pi / float64(size) // half a cell in radians per sample
 
 	// What no cell's expansion sees: the remainder, the FFT's rounding
 	// of every derivative used, and the rounding of a direct evaluation
@@ -65,9 +62,6 @@ func newAmpBounds(h []float64, rate float64) *ampBounds {
 	// 8 (n+64) u sum |h_k|.
 	slack0 := boundSlack(h, c, kappa, hh, 1, 8)
 
-	fft := fourier.NewFFT(size)
-	seq := make([]float64, size)
-	coef := make([]complex128, half+1)
 	// Phase e^{i c w_m}, c w_m = pi m (n-1)/size, reduced exactly.
 	rot := make([]complex128, half+1)
 	for m := range rot {
@@ -77,16 +71,7 @@ func newAmpBounds(h []float64, rate float64) *ampBounds {
 	}
 	a := make([][]float64, 3)
 	extra := make([]float64, half+1) // sum over p >= 3 of |A^(p)| hh^p / p!
-	fact, pw := 1.0, 1.0
-	for p := 0; p < boundOrder; p++ {
-		if p > 0 {
-			fact *= float64(p)
-			pw *= hh
-		}
-		for k, v := range h {
-			seq[k] = v * math.Pow(float64(k)-c, float64(p))
-		}
-		fft.Coefficients(coef, seq)
+	g.moments(h, func(p int, pw, fact float64, coef []complex128) {
 		// A^(p) = Re(i^p conj(G_p)), G_p = e^{i c w} X_p.
 		var col []float64
 		if p < 3 {
@@ -112,7 +97,7 @@ func newAmpBounds(h []float64, rate float64) *ampBounds {
 				extra[m] += math.Abs(v) * pw / fact
 			}
 		}
-	}
+	})
 	b := &ampBounds{size: size, rate: rate, lo: make([]float64, half+1), hi: make([]float64, half+1)}
 	for m := range b.lo {
 		a0, a1, a2 := a[0][m], a[1][m], a[2][m]
@@ -421,4 +406,42 @@ func boundSlack(h []float64, c, kappa, hh, parts, direct float64) float64 {
 	slack += mom[boundOrder] * pw / fact
 	slack += direct * float64(len(h)+64) * u * mom[0]
 	return slack * (1 + 1e-9)
+}
+
+// momentGrid is the cell grid both bounds (newAmpBounds, newMagBounds) lay
+// over [0, rate/2]: size/2 cells from a real FFT of size, the next power of
+// two of 16 points per tap, each cell hh radians per sample either side of
+// its centre; c is the taps' centre and kappa the FFT's relative rounding
+// allowance (see newAmpBounds).
+type momentGrid struct {
+	size, half   int
+	c, kappa, hh float64
+}
+
+func newMomentGrid(n int) momentGrid {
+	size := 1 << bits.Len(uint(16*n-1))
+	const u = 0x1p-53
+	return momentGrid{size: size, half: size / 2, c: float64(n-1) / 2,
+		kappa: 64 * u * float64(bits.Len(uint(size))) * math.Sqrt(float64(size)),
+		hh:    math.Pi / float64(size)}
+}
+
+// moments calls fn for p = 0 .. boundOrder-1 with the real FFT coef (half+1
+// values, reused from call to call) of h_k (k-c)^p, and hh^p and p!.
+func (g momentGrid) moments(h []float64, fn func(p int, pw, fact float64, coef []complex128)) {
+	fft := fourier.NewFFT(g.size)
+	seq := make([]float64, g.size)
+	coef := make([]complex128, g.half+1)
+	fact, pw := 1.0, 1.0
+	for p := 0; p < boundOrder; p++ {
+		if p > 0 {
+			fact *= float64(p)
+			pw *= g.hh
+		}
+		for k, v := range h {
+			seq[k] = v * math.Pow(float64(k)-g.c, float64(p))
+		}
+		fft.Coefficients(coef, seq)
+		fn(p, pw, fact, coef)
+	}
 }

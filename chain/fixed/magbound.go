@@ -2,10 +2,8 @@ package fixed
 
 import (
 	"math"
-	"math/bits"
 	"math/cmplx"
-
-	"gonum.org/v1/gonum/dsp/fourier"
+	"slices"
 )
 
 // newMagBounds is newAmpBounds for a filter of any symmetry measured by
@@ -32,13 +30,9 @@ import (
 // does not matter: the other one gives the expansion in -t, and the cell
 // is symmetric about its centre.
 func newMagBounds(h []float64, rate float64) *ampBounds {
-	n := len(h)
-	size := 1 << bits.Len(uint(16*n-1))
-	half := size / 2
-	c := float64(n-1) / 2
+	g := newMomentGrid(len(h))
+	size, half, c, kappa, hh := g.size, g.half, g.c, g.kappa, g.hh
 	const u = 0x1p-53
-	kappa := 64 * u * float64(bits.Len(uint(size))) * math.Sqrt(float64(size))
-	hh := math.Pi / float64(size)
 
 	// What no cell's expansion sees: the FFT's rounding of every X_p, the
 	// remainder, and the rounding of magnitude: its angle w k (w = 2 pi
@@ -48,30 +42,17 @@ func newMagBounds(h []float64, rate float64) *ampBounds {
 	// taken generously as 64 (n+64) u sum |h_k|.
 	slack0 := boundSlack(h, c, kappa, hh, 2, 64)
 
-	fft := fourier.NewFFT(size)
-	seq := make([]float64, size)
-	coef := make([]complex128, half+1)
 	x := make([][]complex128, 3)
 	extra := make([]float64, half+1) // sum over p >= 3 of |X_p| hh^p / p!
-	fact, pw := 1.0, 1.0
-	for p := 0; p < boundOrder; p++ {
-		if p > 0 {
-			fact *= float64(p)
-			pw *= hh
-		}
-		for k, v := range h {
-			seq[k] = v * math.Pow(float64(k)-c, float64(p))
-		}
+	g.moments(h, func(p int, pw, fact float64, coef []complex128) {
 		if p < 3 {
-			x[p] = make([]complex128, half+1)
-			fft.Coefficients(x[p], seq)
-			continue
+			x[p] = slices.Clone(coef)
+			return
 		}
-		fft.Coefficients(coef, seq)
 		for m, v := range coef {
 			extra[m] += cmplx.Abs(v) * pw / fact
 		}
-	}
+	})
 	bd := &ampBounds{size: size, rate: rate, lo: make([]float64, half+1), hi: make([]float64, half+1)}
 	for m := range bd.lo {
 		a, x1 := x[0][m], x[1][m]
