@@ -309,7 +309,7 @@ def main():
     print(f"largest optimism of JSON figures vs dense measure: {worst_opt[0]:.6f} dB (spec {worst_opt[1]})")
     print("\nsummary:", json.dumps(counts))
     print(f"elapsed {time.time() - t0:.1f} s")
-    with open("results.json", "w") as fh:
+    with open(f"results_seed{seed}.json", "w") as fh:
         json.dump(dict(seed=seed, counts=counts, rows=rows), fh, indent=1)
 
 
