@@ -132,13 +132,7 @@ func TestDeviationsBoundedExact(t *testing.T) {
 	cases := randomDevCases(t, 2, devCount(12, 80), boundMinTaps, 700)
 	cases = append(cases, randomDevCases(t, 3, devCount(0, 4), 3000, 4500)...)
 	for _, c := range cases {
-		want := deviations(c.h, c.rate, c.bands, 16, false)
-		got := deviations(c.h, c.rate, c.bands, 16, true)
-		for i := range want {
-			if math.Float64bits(got[i]) != math.Float64bits(want[i]) {
-				t.Errorf("%s band %d [%g, %g]: bounded %.17g, every peak %.17g", c.name, i, c.bands[i].Lo, c.bands[i].Hi, got[i], want[i])
-			}
-		}
+		want := checkBoundedExact(t, c)
 		// The remembered path gives the same again.
 		for i, v := range Deviations(c.h, c.rate, c.bands, 0) {
 			if math.Float64bits(v) != math.Float64bits(want[i]) {
@@ -316,13 +310,7 @@ func TestDeviationsBoundedExactAsym(t *testing.T) {
 		cases = append(cases, c)
 	}
 	for _, c := range cases {
-		want := deviations(c.h, c.rate, c.bands, 16, false)
-		got := deviations(c.h, c.rate, c.bands, 16, true)
-		for i := range want {
-			if math.Float64bits(got[i]) != math.Float64bits(want[i]) {
-				t.Errorf("%s band %d [%g, %g]: bounded %.17g, every peak %.17g", c.name, i, c.bands[i].Lo, c.bands[i].Hi, got[i], want[i])
-			}
-		}
+		checkBoundedExact(t, c)
 	}
 }
 
@@ -423,4 +411,18 @@ func TestFarrowProtoDeviationsExact(t *testing.T) {
 			}
 		}
 	}
+}
+
+// checkBoundedExact holds the bounded path of deviations to the same bits
+// as refining every local maximum of the grid, and returns the latter.
+func checkBoundedExact(t *testing.T, c devCase) []float64 {
+	t.Helper()
+	want := deviations(c.h, c.rate, c.bands, 16, false)
+	got := deviations(c.h, c.rate, c.bands, 16, true)
+	for i := range want {
+		if math.Float64bits(got[i]) != math.Float64bits(want[i]) {
+			t.Errorf("%s band %d [%g, %g]: bounded %.17g, every peak %.17g", c.name, i, c.bands[i].Lo, c.bands[i].Hi, got[i], want[i])
+		}
+	}
+	return want
 }
