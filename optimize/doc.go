@@ -116,19 +116,8 @@
 // CIC's factor but not its order and delay, which move a compensator by a
 // tap or two and would multiply the designs needed. So designing one chain
 // teaches the real figures of each of its stages for every candidate that
-// contains them. Rounds of real designs (chain.Design, priced by
-// cost.Price) cover the stages of the band, in waves of 16 chains taken in
-// band order (nearest the estimated front first). A member that a chain
-// designed so far beats on every axis even with the member's stages not
-// learnt yet at the favourable end of their ranges (its learnt stages at
-// their real figures) is left out, and a stage only such members have is
-// not designed: within the model above it cannot reach the front. Waves
-// are fixed in size and decided on the designs of the waves before them,
-// so what is designed does not depend on the workers. The rounds reach no
-// further down the band than the caps below would let them reach designing
-// a chain for every stage not learnt, so the pruning saves time and
-// changes nothing else (at D = 4096, 329 chains designed instead of 483,
-// the same front). The band is then priced exactly from the stages
+// contains them. Rounds of real designs (chain.Design, priced by cost.Price) cover
+// every stage of the band; the band is then priced exactly from the stages
 // learnt, and the front of that pricing is designed for real (most of it
 // already was) and its members measured (cost.Evaluate, whose cascade
 // analysis costs seconds at large ratios, so only front members get it). A
@@ -137,11 +126,8 @@
 // re-taken without it, until it stands. The band itself leant on the
 // estimated front standing, so when a chain on it failed (or a beater's
 // chain did, see above), the search runs again, keeping the failed chains
-// off the estimated front and everything designed and learnt so far. A
-// member left out is checked at the end against the front that stands
-// (designed, measured, meeting): one it does not beat, because the chain
-// that beat it failed or was re-designed dearer, is taken back for good
-// and the tier runs again. The result's front holds only
+// off the estimated front and everything designed and learnt so far. The
+// result's front holds only
 // chains designed and measured for real: nothing on it is an estimate. A
 // design failure never ends the search.
 //

@@ -1054,52 +1054,14 @@ const maxRounds = 4
 // learn is the design tier. A stage's real design and price
 // depend only on its realKey, so designing one chain that contains a stage
 // teaches its real figures for every candidate that contains it. Rounds of
-// designs teach the stages of the band, in waves taken in band order
-// (nearest the estimated front first); a member beaten by a designed chain
-// even with its stages not learnt yet at the favourable end of their
-// ranges (beaten) is left out, and so are the stages only such members
-// need. The band is then priced exactly from what was learnt, and the
-// front of that pricing is designed for real (most of it already was),
-// dropping and replacing members whose design misses the spec until the
-// front stands. A member left out is finally checked against that front,
-// whose chains are designed, measured and meet: one it does not beat is
-// taken back, and the tier runs again.
+// designs first teach every stage of the band; the band is then priced
+// exactly from what was learnt, and the front of that pricing is designed
+// for real (most of it already was), dropping and replacing members whose
+// design misses the spec until the front stands.
 //
 // It returns false when cancelled, and how many band candidates were left
 // unpriced or undesigned because the design cap was reached.
 func (t *designTier) learn(band []scored) (bool, int) {
-	out := make([]leftOut, len(band))
-	for {
-		ok, left, back := t.learnOnce(band, out)
-		if !ok || back == 0 {
-			return ok, left
-		}
-		debugf("learn: %d members taken back", back)
-	}
-}
-
-// pruneBand lets learn leave out the members that designed chains beat;
-// tests turn it off to compare.
-var pruneBand = true
-
-// learnWave is the number of chains designed in one wave of learn; it is
-// fixed, not tied to the number of workers, so that what is designed does
-// not depend on them.
-const learnWave = 16
-
-// leftOut is a band member's state in learn.
-type leftOut int8
-
-const (
-	mayLeave  leftOut = iota // may be left out
-	leftAside                // left out, beaten by a designed chain
-	takenBack                // taken back: never left out again, so that learn ends
-)
-
-// learnOnce is one run of learn over band, with out marking the members
-// left out (it marks more, and takes back those the final front does not
-// beat). It also returns how many it took back.
-func (t *designTier) learnOnce(band []scored, out []leftOut) (bool, int, int) {
 	est, memo := t.est, t.memo
 	// What earlier passes learnt holds in this one: a stage's real
 	// figures do not depend on the tap limit nor on the band.
@@ -1112,85 +1074,64 @@ func (t *designTier) learnOnce(band []scored, out []leftOut) (bool, int, int) {
 		}
 		return b
 	}
-	// The pruners: the front of the chains designed and meeting so far.
-	var pr frontSet
-	for _, k := range t.order {
-		if o := memo[k]; o.reason == "" {
-			pr.add(candFigs(&o.c), 0)
-		}
-	}
-	// The rounds reach down the band no further than designing every
-	// chain the first would choose without the pruning would let the caps
-	// reach (reach): the pruning saves time and changes nothing else.
-	limit := t.reach(band)
 	for round := 0; round < maxRounds; round++ {
+		var reps [][]chain.StagePlan
 		claimed := map[realKey]bool{}
-		end := limit
-		for next, wave := 0, 0; ; wave++ {
-			var reps [][]chain.StagePlan
-			for ; next < end && len(reps) < learnWave; next++ {
-				pl := band[next].plan
-				if _, ok := memo[planKey(pl)]; ok {
-					continue
-				}
-				if t.leaveOut(out, next, pl, &pr) {
-					continue
-				}
-				est.keysOf(pl)
-				want := false
-				for _, k := range est.keys {
-					if _, ok := learnt[k]; !ok && !claimed[k] && tries[k] <= round {
-						want = true
-					}
-				}
-				if !want {
-					continue
-				}
-				for _, k := range est.keys {
-					claimed[k] = true
-				}
-				reps = append(reps, pl)
+		for i := range band {
+			pl := band[i].plan
+			if _, ok := memo[planKey(pl)]; ok {
+				continue
 			}
-			if next == end && end < len(band) {
-				capped = true
-			}
-			if reps = trim(reps); len(reps) == 0 {
-				break
-			}
-			debugf("round %d wave %d reps %d", round, wave, len(reps))
-			ok := t.designAll(reps)
-			for _, pl := range reps {
-				o, done := memo[planKey(pl)]
-				if !done {
-					continue
+			est.keysOf(pl)
+			want := false
+			for _, k := range est.keys {
+				if _, ok := learnt[k]; !ok && !claimed[k] && tries[k] <= round {
+					want = true
 				}
-				est.keysOf(pl)
-				st := o.c.Figures.Stages
-				if o.reason != "" || len(st) != len(pl) {
-					// A chain dropped for its rounded taps blames the
-					// stages that miss their own bands once rounded; the
-					// others are learnt from it.
-					blamed := o.reason == ReasonMissQuantised && len(o.c.blame) == len(pl) && len(st) == len(pl)
-					for i, k := range est.keys {
-						if _, ok := learnt[k]; ok {
-							continue
-						}
-						if blamed && !o.c.blame[i] {
-							learnt[k] = stageFigs(&o.c.Figures, i)
-							continue
-						}
-						tries[k]++
-					}
-					continue
-				}
+			}
+			if !want {
+				continue
+			}
+			for _, k := range est.keys {
+				claimed[k] = true
+			}
+			reps = append(reps, pl)
+		}
+		if reps = trim(reps); len(reps) == 0 {
+			break
+		}
+		debugf("round %d reps %d", round, len(reps))
+		ok := t.designAll(reps)
+		for _, pl := range reps {
+			o, done := memo[planKey(pl)]
+			if !done {
+				continue
+			}
+			est.keysOf(pl)
+			st := o.c.Figures.Stages
+			if o.reason != "" || len(st) != len(pl) {
+				// A chain dropped for its rounded taps blames the stages
+				// that miss their own bands once rounded; the others are
+				// learnt from it.
+				blamed := o.reason == ReasonMissQuantised && len(o.c.blame) == len(pl) && len(st) == len(pl)
 				for i, k := range est.keys {
-					learnt[k] = stageFigs(&o.c.Figures, i)
+					if _, ok := learnt[k]; ok {
+						continue
+					}
+					if blamed && !o.c.blame[i] {
+						learnt[k] = stageFigs(&o.c.Figures, i)
+						continue
+					}
+					tries[k]++
 				}
-				pr.add(candFigs(&o.c), 0)
+				continue
 			}
-			if !ok {
-				return false, 0, 0
+			for i, k := range est.keys {
+				learnt[k] = stageFigs(&o.c.Figures, i)
 			}
+		}
+		if !ok {
+			return false, 0
 		}
 	}
 
@@ -1199,7 +1140,6 @@ func (t *designTier) learnOnce(band []scored, out []leftOut) (bool, int, int) {
 	exact := make([]figs, 0, len(band))
 	plans := make([][]chain.StagePlan, 0, len(band))
 	unpriced := 0
-	var gone []int // members left out and not priced
 	for i := range band {
 		pl := band[i].plan
 		est.keysOf(pl)
@@ -1216,10 +1156,6 @@ func (t *designTier) learnOnce(band []scored, out []leftOut) (bool, int, int) {
 			f.lat += g.lat
 		}
 		if _, ok := memo[planKey(pl)]; !known && !ok {
-			if t.leaveOut(out, i, pl, &pr) {
-				gone = append(gone, i)
-				continue
-			}
 			unpriced++
 			for _, k := range est.keys {
 				if _, ok := learnt[k]; !ok && tries[k] >= maxRounds {
@@ -1233,115 +1169,10 @@ func (t *designTier) learnOnce(band []scored, out []leftOut) (bool, int, int) {
 		plans = append(plans, pl)
 	}
 	ok, short := t.settle(plans, exact)
-	if !ok {
-		return false, 0, 0
-	}
-	// The members left out must be beaten by a chain that stands.
-	var st frontSet
-	for _, k := range t.order {
-		if o := memo[k]; o.reason == "" && o.analyzed {
-			st.add(candFigs(&o.c), 0)
-		}
-	}
-	back := 0
-	for _, i := range gone {
-		if !t.beaten(band[i].plan, &st) {
-			out[i] = takenBack
-			back++
-		}
-	}
-	if back > 0 {
-		return true, 0, back
-	}
 	if short > 0 || (capped && unpriced > 0) {
-		return true, short + unpriced, 0
+		return ok, short + unpriced
 	}
-	return true, 0, 0
-}
-
-// reach returns how far down band (an index) the first round of learn
-// would reach if it designed a chain for every stage not learnt, as the
-// caps allow: the chains taken in band order, each for a stage no chain
-// before it has (nor learnt, nor given up).
-func (t *designTier) reach(band []scored) int {
-	est := t.est
-	claimed := map[realKey]bool{}
-	n, work := t.res.Designed, t.workLeft
-	for i := range band {
-		pl := band[i].plan
-		if _, ok := t.memo[planKey(pl)]; ok {
-			continue
-		}
-		est.keysOf(pl)
-		want := false
-		for _, k := range est.keys {
-			if _, ok := t.learnt[k]; !ok && !claimed[k] && t.tries[k] == 0 {
-				want = true
-			}
-		}
-		if !want {
-			continue
-		}
-		w := est.work(pl)
-		if n >= t.maxDesigns || w > work {
-			return i
-		}
-		n++
-		work -= w
-		for _, k := range est.keys {
-			claimed[k] = true
-		}
-	}
-	return len(band)
-}
-
-// leaveOut reports whether band member i, plan, is left out: marked so in
-// out, or beaten by pr now (and then marked), unless taken back.
-func (t *designTier) leaveOut(out []leftOut, i int, plan []chain.StagePlan, pr *frontSet) bool {
-	switch out[i] {
-	case leftAside:
-		return true
-	case takenBack:
-		return false
-	}
-	if t.beaten(plan, pr) {
-		out[i] = leftAside
-		return true
-	}
-	return false
-}
-
-// beaten reports whether a point of pr beats plan on every axis even when
-// plan's stages not learnt yet come out at the favourable end of their
-// ranges (the estimate tier's model, see the package doc); its learnt
-// stages count at their real figures.
-func (t *designTier) beaten(plan []chain.StagePlan, pr *frontSet) bool {
-	if len(pr.f) == 0 || !pruneBand {
-		return false
-	}
-	e := t.est
-	if _, d := e.score(plan); d != dropNone {
-		return false
-	}
-	var lo [3]float64
-	for _, k := range e.keys {
-		var x [3]float64
-		if g, ok := t.learnt[k]; ok {
-			x = g.axes()
-		} else {
-			x = e.stageVal(k.stageKey).lo.axes()
-		}
-		for a := range lo {
-			lo[a] += x[a]
-		}
-	}
-	for i := range pr.f {
-		y := pr.f[i].axes()
-		if y[0] <= lo[0] && y[1] <= lo[1] && y[2] <= lo[2] && (y[0] < lo[0] || y[1] < lo[1] || y[2] < lo[2]) {
-			return true
-		}
-	}
-	return false
+	return ok, 0
 }
 
 // planKey is a compact map key for a plan.
