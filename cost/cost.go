@@ -123,6 +123,7 @@ func Price(spec chain.Spec, c *chain.Chain, s Settings) (Figures, error) {
 	f := Figures{Designed: c.Designed, Multiplierless: s.Multiplierless, Stages: make([]StageFigures, len(c.Stages))}
 	rates := c.Rates()
 	fk := rates[len(rates)-1]
+	inSamples := 0.0                        // the chain's latency in input samples
 	later := make([]float64, len(c.Stages)) // D(i+1) ... DK
 	p := 1.0
 	for i := len(c.Stages) - 1; i >= 0; i-- {
@@ -271,11 +272,28 @@ func Price(spec chain.Spec, c *chain.Chain, s Settings) (Figures, error) {
 		f.AddsPerOutput += sf.AddsPerOutput
 		f.MemoryWords += sf.MemoryWords
 		f.MemoryBits += sf.MemoryBits
-		f.LatencyS += sf.LatencyS
+		inSamples += delayIn * inputSamplesPer(rates[0], rates[i])
 		f.MultipliersAtClock += sf.Multipliers
 	}
+	// The chain's latency is summed in input samples and divided once,
+	// so that two chains of the same delay get the same figure to the
+	// bit (a sum of each stage's seconds differs in its last bits with
+	// the order of the stages, which would put a chain on the front that
+	// another ties in latency and beats on the rest).
+	f.LatencyS = inSamples / rates[0]
 	f.LatencySamples = f.LatencyS * fk
 	return f, nil
+}
+
+// inputSamplesPer is how many input samples, at the chain's input rate f0,
+// one sample at rate spans: f0/rate, taken as the integer it is to
+// rounding (the product of the factors before a stage) when it is one.
+func inputSamplesPer(f0, rate float64) float64 {
+	p := f0 / rate
+	if r := math.Round(p); math.Abs(p-r) <= 1e-9*r {
+		return r
+	}
+	return p
 }
 
 // Lanes is how many samples a stage whose input runs at rate Hz must take

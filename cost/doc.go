@@ -75,7 +75,10 @@
 //
 // Latency: the sum of the stages' group delays, (N-1)/2 input samples for an
 // FIR or half-band at its input rate and N (R M - 1)/2 input samples for a CIC,
-// each converted to seconds; in output samples it is that sum times FK.
+// summed in samples at the chain's input rate F0 and divided by F0 once, so
+// that two chains of the same delay have the same latency to the bit (the
+// front compares latencies exactly); in output samples it is that times FK.
+// A stage's own LatencyS is its delay over its own input rate.
 //
 // Multipliers at clock fclk (Settings.Clock): per stage ceil(m_i Fi / fclk)
 // where m_i is the stage's multiplies per its own output (doubled for
