@@ -122,6 +122,10 @@ type Settings struct {
 	// keepFloored turns off the estimate tier's rounding-floor prune alone
 	// (for the test that it drops nothing that could meet).
 	keepFloored bool
+	// noSiblings skips the design of the front's CIC siblings (see the
+	// package doc, CIC siblings): the fractional search's integer
+	// sub-searches, whose fronts only seed its plans, set it.
+	noSiblings bool
 }
 
 // Rule is a recommendation rule.

@@ -130,6 +130,7 @@ func subSettings(s Settings, maxStages int, kinds []chain.Kind) Settings {
 	s.MaxStages = maxStages
 	s.Kinds = kinds
 	s.floatOnly = true
+	s.noSiblings = true
 	s.Jobs = 1
 	s.Progress, s.Scoring = nil, nil
 	s.Cost.Multiplierless = false

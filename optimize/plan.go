@@ -189,6 +189,23 @@ type realDesigner struct {
 	ctx  context.Context // stops designs, re-designs and word-length plans
 	spec chain.Spec      // normalised
 	s    *Settings
+	// priced leaves a design's rounded taps to its analysis (see
+	// pricedOnly).
+	priced bool
+}
+
+// pricedOnly is a designer whose designs are priced and not measured on
+// their rounded taps until analysed: for chains whose real figures teach
+// the search nothing beyond themselves (cicSiblings), a design whose price
+// is beaten stays beaten once rounded, since a re-design for its rounding
+// only grows.
+type pricedOnly interface {
+	pricedOnly() designer
+}
+
+func (r realDesigner) pricedOnly() designer {
+	r.priced = true
+	return r
 }
 
 // under is the designer working under ctx instead (see designTier.salvage).
@@ -210,7 +227,7 @@ func (r realDesigner) design(plan []chain.StagePlan) (Candidate, Reason) {
 		return Candidate{}, why
 	}
 	cd := Candidate{Plan: plan, Chain: c, Figures: f}
-	if r.rounded(r.spec) && r.atRisk(c) {
+	if !r.priced && r.rounded(r.spec) && r.atRisk(c) {
 		// Rounding may cost this chain its margin: it is measured and, if
 		// need be, re-designed now, so that what the search learns from it
 		// is the chain as it will be built.
@@ -643,6 +660,12 @@ func search(ctx context.Context, p params, s *Settings, est *estimator, des desi
 		debugf("search again (%s): front %d, designed %d", again, len(res.Front), res.Designed)
 		resetPass(res)
 	}
+	if !s.Exhaustive && !s.noSiblings && !res.Partial && len(res.Front) > 0 {
+		ok, left := t.cicSiblings()
+		res.Partial = !ok
+		res.Unsettled += left
+		res.Front = t.front()
+	}
 	res.MaxTaps = est.maxTaps
 	fs := make([]figs, len(res.Front))
 	for i := range res.Front {
@@ -670,6 +693,94 @@ func search(ctx context.Context, p params, s *Settings, est *estimator, des desi
 		res.Reason += fmt.Sprintf(" No chain met the spec with FIR and half-band stages of at most %d taps, so the limit was raised to %d.", first, est.maxTaps)
 	}
 	return res, nil
+}
+
+// maxSiblingRounds bounds cicSiblings' rounds.
+const maxSiblingRounds = 4
+
+// cicSiblings designs, for each chain on the front whose first stage is a
+// recursive CIC, the same chain with that CIC at every other order and
+// delay searched that the estimate tier left out only because another CIC
+// of the same factor beat it (cicBeaten), and takes the front again over
+// every chain designed; it repeats for the new front members, at most
+// maxSiblingRounds times, outside the design cap. The beaten rule assumes that a
+// later stage correcting less droop is no longer, which the cascade rule
+// breaks: a CIC of higher order or delay removes more of a later stage's
+// aliases, and the later stage, credited with that, can come out shorter
+// (an invented 10 MHz receiver's front missed cic6m2r4 > fir8 at 48
+// multiplies per output beside cic3m1r4 > fir8 at 51). It reports false
+// when cancelled, and how many siblings the caps left undesigned.
+func (t *designTier) cicSiblings() (bool, int) {
+	est := t.est
+	keep := est.keepBeaten
+	defer func() { est.keepBeaten = keep }()
+	for round := 0; round < maxSiblingRounds; round++ {
+		var plans [][]chain.StagePlan
+		seen := map[string]bool{}
+		for _, c := range t.front() {
+			first := c.Plan[0]
+			if first.Kind != chain.CIC || first.CICForm != chain.Recursive {
+				continue
+			}
+			for _, n := range est.orders {
+				for _, m := range est.delays {
+					pl := clonePlan(c.Plan)
+					pl[0].CICOrder, pl[0].CICDelay = n, m
+					k := planKey(pl)
+					if _, ok := t.memo[k]; ok || seen[k] {
+						continue
+					}
+					seen[k] = true
+					// Beaten, and feasible but for the rule (the CICs
+					// that beat are searched already).
+					if !est.cicBeaten(first.Factor, n, m) {
+						continue
+					}
+					est.keepBeaten = true
+					_, drop := est.score(pl)
+					est.keepBeaten = keep
+					if drop == dropNone {
+						plans = append(plans, pl)
+					}
+				}
+			}
+		}
+		if len(plans) == 0 {
+			return true, 0
+		}
+		// Outside the caps, which the band may have spent: at most
+		// maxSiblingRounds times the front's size times the orders and
+		// delays searched. Their work still comes off MaxWork.
+		for _, pl := range plans {
+			t.workLeft -= est.work(pl)
+		}
+		debugf("siblings round %d: %d chains", round, len(plans))
+		des := t.des
+		if p, ok := des.(pricedOnly); ok {
+			t.des = p.pricedOnly()
+		}
+		ok := t.designAll(plans)
+		t.des = des
+		if !ok {
+			return false, 0
+		}
+		var pool [][]chain.StagePlan
+		var fs []figs
+		for _, k := range t.order {
+			if o := t.memo[k]; o.reason == "" {
+				pool = append(pool, o.c.Plan)
+				fs = append(fs, candFigs(&o.c))
+			}
+		}
+		ok, short := t.settle(pool, fs)
+		if !ok {
+			return false, 0
+		}
+		if short > 0 {
+			return true, short
+		}
+	}
+	return true, 0
 }
 
 // passReason says why the search runs another pass, or passDone.
