@@ -92,10 +92,11 @@ type Settings struct {
 	// estimated front point beats it by more than this on every axis. Zero
 	// means 0.15.
 	Tolerance float64
-	// MaxDesigns caps the number of chains designed for real. Zero means
-	// 600 (a design takes 5 ms to 5 s); a budget of design work also applies
-	// (see the package doc). Result.Unsettled says whether they cut the
-	// search short.
+	// MaxDesigns caps the number of chains designed for real near the
+	// front. Zero means 600 (a design takes 5 ms to 5 s); a budget of
+	// design work also applies (see the package doc). Result.Unsettled says
+	// whether they cut the search short. The front's CIC siblings, designed
+	// last, come beyond both (package doc, CIC siblings).
 	MaxDesigns int
 	// MaxWork is the budget of design work, in the units of the package
 	// doc (estimated taps squared). Zero means 4e7.

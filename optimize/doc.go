@@ -162,10 +162,14 @@
 // the beaten rule, and the front is taken again over every chain designed
 // (the new members measured, as in the design tier); the siblings of new
 // members follow, at most four rounds. The siblings are designed whatever
-// the caps (the band may have spent them: at most four times the front's
-// size times the orders and delays searched), their work taken off
-// MaxWork; front members the caps leave undesigned count in
-// Result.Unsettled. The integer searches inside
+// the caps, which the band may have spent (at most four times the front's
+// size times the orders and delays searched, and counted in
+// Result.Designed); siblings still undesigned when the rounds run out
+// count in Result.Unsettled. A sibling designed stays counted under the
+// beaten rule in Result.Dropped, and is not in the feasible count nor in
+// the cloud. Only the front's siblings are designed: a beaten CIC under a
+// chain off the front is not, so the front is complete only within the
+// estimate tier's model. The integer searches inside
 // the fractional search (below) skip it: their fronts only seed its plans,
 // which a front of near twins would crowd. On invented receivers the
 // front without this step held chains that a sibling beat on every axis:

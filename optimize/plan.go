@@ -709,51 +709,20 @@ const maxSiblingRounds = 4
 // aliases, and the later stage, credited with that, can come out shorter
 // (an invented 10 MHz receiver's front missed cic6m2r4 > fir8 at 48
 // multiplies per output beside cic3m1r4 > fir8 at 51). It reports false
-// when cancelled, and how many siblings the caps left undesigned.
+// when cancelled, and how many siblings were left undesigned when the
+// rounds ran out.
 func (t *designTier) cicSiblings() (bool, int) {
-	est := t.est
-	keep := est.keepBeaten
-	defer func() { est.keepBeaten = keep }()
-	for round := 0; round < maxSiblingRounds; round++ {
-		var plans [][]chain.StagePlan
-		seen := map[string]bool{}
-		for _, c := range t.front() {
-			first := c.Plan[0]
-			if first.Kind != chain.CIC || first.CICForm != chain.Recursive {
-				continue
-			}
-			for _, n := range est.orders {
-				for _, m := range est.delays {
-					pl := clonePlan(c.Plan)
-					pl[0].CICOrder, pl[0].CICDelay = n, m
-					k := planKey(pl)
-					if _, ok := t.memo[k]; ok || seen[k] {
-						continue
-					}
-					seen[k] = true
-					// Beaten, and feasible but for the rule (the CICs
-					// that beat are searched already).
-					if !est.cicBeaten(first.Factor, n, m) {
-						continue
-					}
-					est.keepBeaten = true
-					_, drop := est.score(pl)
-					est.keepBeaten = keep
-					if drop == dropNone {
-						plans = append(plans, pl)
-					}
-				}
-			}
+	for round := 0; ; round++ {
+		plans := t.siblingsToDesign()
+		if len(plans) == 0 || t.ctx.Err() != nil {
+			return t.ctx.Err() == nil, 0
 		}
-		if len(plans) == 0 {
-			return true, 0
+		if round == maxSiblingRounds {
+			return true, len(plans)
 		}
 		// Outside the caps, which the band may have spent: at most
 		// maxSiblingRounds times the front's size times the orders and
-		// delays searched. Their work still comes off MaxWork.
-		for _, pl := range plans {
-			t.workLeft -= est.work(pl)
-		}
+		// delays searched.
 		debugf("siblings round %d: %d chains", round, len(plans))
 		des := t.des
 		if p, ok := des.(pricedOnly); ok {
@@ -772,15 +741,49 @@ func (t *designTier) cicSiblings() (bool, int) {
 				fs = append(fs, candFigs(&o.c))
 			}
 		}
-		ok, short := t.settle(pool, fs)
-		if !ok {
+		// Every plan of the pool is designed: settle only measures.
+		if ok, _ := t.settle(pool, fs); !ok {
 			return false, 0
 		}
-		if short > 0 {
-			return true, short
+	}
+}
+
+// siblingsToDesign returns the CIC siblings of the front not designed yet
+// (see cicSiblings): beaten by the rule, and feasible but for it (the CICs
+// that beat are searched already).
+func (t *designTier) siblingsToDesign() [][]chain.StagePlan {
+	est := t.est
+	keep := est.keepBeaten
+	defer func() { est.keepBeaten = keep }()
+	var plans [][]chain.StagePlan
+	seen := map[string]bool{}
+	for _, c := range t.front() {
+		first := c.Plan[0]
+		if first.Kind != chain.CIC || first.CICForm != chain.Recursive {
+			continue
+		}
+		for _, n := range est.orders {
+			for _, m := range est.delays {
+				pl := clonePlan(c.Plan)
+				pl[0].CICOrder, pl[0].CICDelay = n, m
+				k := planKey(pl)
+				if _, ok := t.memo[k]; ok || seen[k] {
+					continue
+				}
+				seen[k] = true
+				if !est.cicBeaten(first.Factor, n, m) {
+					continue
+				}
+				est.keepBeaten = true
+				_, drop := est.score(pl)
+				est.keepBeaten = keep
+				if drop == dropNone {
+					plans = append(plans, pl)
+				}
+			}
 		}
 	}
-	return true, 0
+	return plans
 }
 
 // passReason says why the search runs another pass, or passDone.
