@@ -123,18 +123,19 @@ func Price(spec chain.Spec, c *chain.Chain, s Settings) (Figures, error) {
 	f := Figures{Designed: c.Designed, Multiplierless: s.Multiplierless, Stages: make([]StageFigures, len(c.Stages))}
 	rates := c.Rates()
 	fk := rates[len(rates)-1]
-	inSamples := 0.0                        // the chain's latency in input samples
-	later := make([]float64, len(c.Stages)) // D(i+1) ... DK
-	p := 1.0
-	for i := len(c.Stages) - 1; i >= 0; i-- {
-		later[i] = p
-		if u, d := fractionalRatio(c.Stages[i]); u > 0 {
-			// Down/Up of its inputs for each of its outputs.
-			p *= float64(d) / float64(u)
-			continue
-		}
-		p *= float64(c.Stages[i].Factor())
+	// later[i] is D(i+1) ... DK, before[i] D1 ... D(i-1): the input
+	// samples per sample at stage i's input (integers for integer stages,
+	// so that the latency below is exact).
+	later := make([]float64, len(c.Stages))
+	before := make([]float64, len(c.Stages))
+	p, q := 1.0, 1.0
+	for i := range c.Stages {
+		j := len(c.Stages) - 1 - i
+		later[j], before[i] = p, q
+		p *= inputsPer(c.Stages[j])
+		q *= inputsPer(c.Stages[i])
 	}
+	inSamples := 0.0 // the chain's latency in input samples
 	cx := 1
 	if c.Complex {
 		cx = 2
@@ -272,7 +273,7 @@ func Price(spec chain.Spec, c *chain.Chain, s Settings) (Figures, error) {
 		f.AddsPerOutput += sf.AddsPerOutput
 		f.MemoryWords += sf.MemoryWords
 		f.MemoryBits += sf.MemoryBits
-		inSamples += delayIn * inputSamplesPer(rates[0], rates[i])
+		inSamples += delayIn * before[i]
 		f.MultipliersAtClock += sf.Multipliers
 	}
 	// The chain's latency is summed in input samples and divided once,
@@ -285,15 +286,13 @@ func Price(spec chain.Spec, c *chain.Chain, s Settings) (Figures, error) {
 	return f, nil
 }
 
-// inputSamplesPer is how many input samples, at the chain's input rate f0,
-// one sample at rate spans: f0/rate, taken as the integer it is to
-// rounding (the product of the factors before a stage) when it is one.
-func inputSamplesPer(f0, rate float64) float64 {
-	p := f0 / rate
-	if r := math.Round(p); math.Abs(p-r) <= 1e-9*r {
-		return r
+// inputsPer is a stage's input samples per output sample: its factor, or
+// a fractional stage's Down/Up.
+func inputsPer(st chain.Stage) float64 {
+	if u, d := fractionalRatio(st); u > 0 {
+		return float64(d) / float64(u)
 	}
-	return p
+	return float64(st.Factor())
 }
 
 // Lanes is how many samples a stage whose input runs at rate Hz must take

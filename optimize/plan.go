@@ -189,23 +189,6 @@ type realDesigner struct {
 	ctx  context.Context // stops designs, re-designs and word-length plans
 	spec chain.Spec      // normalised
 	s    *Settings
-	// priced leaves a design's rounded taps to its analysis (see
-	// pricedOnly).
-	priced bool
-}
-
-// pricedOnly is a designer whose designs are priced and not measured on
-// their rounded taps until analysed: for chains whose real figures teach
-// the search nothing beyond themselves (cicSiblings), a design whose price
-// is beaten stays beaten once rounded, since a re-design for its rounding
-// only grows.
-type pricedOnly interface {
-	pricedOnly() designer
-}
-
-func (r realDesigner) pricedOnly() designer {
-	r.priced = true
-	return r
 }
 
 // under is the designer working under ctx instead (see designTier.salvage).
@@ -227,7 +210,7 @@ func (r realDesigner) design(plan []chain.StagePlan) (Candidate, Reason) {
 		return Candidate{}, why
 	}
 	cd := Candidate{Plan: plan, Chain: c, Figures: f}
-	if !r.priced && r.rounded(r.spec) && r.atRisk(c) {
+	if r.rounded(r.spec) && r.atRisk(c) {
 		// Rounding may cost this chain its margin: it is measured and, if
 		// need be, re-designed now, so that what the search learns from it
 		// is the chain as it will be built.
@@ -703,12 +686,13 @@ const maxSiblingRounds = 4
 // delay searched that the estimate tier left out only because another CIC
 // of the same factor beat it (cicBeaten), and takes the front again over
 // every chain designed; it repeats for the new front members, at most
-// maxSiblingRounds times, outside the design cap. The beaten rule assumes that a
-// later stage correcting less droop is no longer, which the cascade rule
-// breaks: a CIC of higher order or delay removes more of a later stage's
-// aliases, and the later stage, credited with that, can come out shorter
-// (an invented 10 MHz receiver's front missed cic6m2r4 > fir8 at 48
-// multiplies per output beside cic3m1r4 > fir8 at 51). It reports false
+// maxSiblingRounds times, outside the design cap. The beaten rule assumes
+// that a later stage correcting less droop is no longer, which the cascade
+// rule breaks: a CIC of higher order or delay removes more of a later
+// stage's aliases, and the later stage, credited with that, can come out
+// shorter (at D = 4096 the front held cic4m1r512 > fir8, 46 multiplies
+// per output, beaten by cic4m2r512 > fir8, 44, with less memory and the
+// same latency). It reports false
 // when cancelled, and how many siblings were left undesigned when the
 // rounds ran out.
 func (t *designTier) cicSiblings() (bool, int) {
@@ -724,13 +708,7 @@ func (t *designTier) cicSiblings() (bool, int) {
 		// maxSiblingRounds times the front's size times the orders and
 		// delays searched.
 		debugf("siblings round %d: %d chains", round, len(plans))
-		des := t.des
-		if p, ok := des.(pricedOnly); ok {
-			t.des = p.pricedOnly()
-		}
-		ok := t.designAll(plans)
-		t.des = des
-		if !ok {
+		if !t.designAll(plans) {
 			return false, 0
 		}
 		var pool [][]chain.StagePlan
