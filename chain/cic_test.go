@@ -6,6 +6,7 @@ import (
 	"math/big"
 	"math/rand/v2"
 	"os"
+	"slices"
 	"testing"
 )
 
@@ -359,5 +360,35 @@ func TestCICRejection(t *testing.T) {
 		if tc.m == 1 && math.Abs(at-(out-fa)) > 1e-6*out {
 			t.Errorf("N=%d M=1: worst at %v, want the band edge %v", tc.n, at, out-fa)
 		}
+	}
+}
+
+func TestCachedRegisterNormsSame(t *testing.T) {
+	// The remembered norms equal a fresh computation, bit for bit, on the
+	// first call, on a repeat, and after the cache was emptied at its cap;
+	// a caller's copy of them (PruneCIC's VarianceFactors) does not alias
+	// the cache.
+	for _, tc := range []struct{ n, rm int }{{4, 1 << 10}, {6, 3000}, {2, 1 << 12}, {5, 7}} {
+		f2, l1 := cicRegisterNorms(tc.n, tc.rm)
+		for rep := 0; rep < 2; rep++ {
+			g2, g1 := cachedRegisterNorms(tc.n, tc.rm)
+			if !slices.Equal(f2, g2) || !slices.Equal(l1, g1) {
+				t.Fatalf("N=%d RM=%d call %d: cached norms differ", tc.n, tc.rm, rep+1)
+			}
+		}
+	}
+	for i := 0; i <= maxNormsCached; i++ {
+		cachedRegisterNorms(1, minNormsCached+i)
+	}
+	if n := len(registerNorms.m); n > maxNormsCached {
+		t.Fatalf("the cache holds %d entries, more than %d", n, maxNormsCached)
+	}
+	p, err := PruneCIC(4, 1, 1<<10, 14, 18)
+	if err != nil {
+		t.Fatal(err)
+	}
+	p.VarianceFactors[0] = -1
+	if f2, _ := cachedRegisterNorms(4, 1<<10); f2[0] < 0 {
+		t.Fatal("PruneCIC's VarianceFactors alias the cache")
 	}
 }

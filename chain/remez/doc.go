@@ -59,7 +59,8 @@
 // (the taps Herrmann's formula adds for a factor e of error at the binding
 // transition), and a later secant never assumes more than four times that
 // many taps per factor e; every design after the first starts from the
-// converged reference of the nearest length already designed, scaled band
+// reference of the nearest length already designed (a converged one on a
+// tie, else where a design stopped by the floor below ended), scaled band
 // by band, instead of a seed design. A length that fails is known before
 // its design converges: the levelled deviation on any reference of the
 // right size in the bands is a lower bound of the least weighted error of

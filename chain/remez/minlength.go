@@ -144,11 +144,11 @@ type lengthSearch struct {
 	wb      []Band // weighted for the design
 	s       Settings
 	maxTaps int
-	cache   map[int]*Result // results that meet
-	ratio   map[int]float64 // worst measured/allowed error per length
-	lax     map[int]bool    // lengths met to rounding level, taps unusable
-	designs int             // designs run, bounded by maxDesigns
-	refs    map[int][]point // converged reference of each length designed
+	cache   map[int]*Result  // results that meet
+	ratio   map[int]float64  // worst measured/allowed error per length
+	lax     map[int]bool     // lengths met to rounding level, taps unusable
+	designs int              // designs run, bounded by maxDesigns
+	refs    map[int]startRef // the reference each length designed ended on
 	// perNeper is the taps that Herrmann's estimate adds for each factor
 	// e of error at the binding transition (0 when unknown): the search's
 	// first step and its guard against a flat secant.
@@ -287,17 +287,21 @@ func (m *lengthSearch) design(n int) (res *Result, wdev []float64, lax bool, flo
 		e.failAbove = 1 + failMargin
 	}
 	if warmStart {
-		e.warm = m.refs[m.nearestRef(n)]
+		e.warm = m.refs[m.nearestRef(n)].pts
 	}
 	res, err = e.design()
 	if errors.Is(err, errCannotMeet) {
+		// A design stopped by the floor is not converged, but its
+		// reference, a few exchanges in, starts the next length far
+		// better than a cold seed (a third of a D = 4096 plan's cold
+		// starts are such next lengths).
+		if len(e.ref) == e.r+1 {
+			m.keepRef(n, e.ref, false)
+		}
 		return nil, nil, false, math.Abs(e.delta)
 	}
 	if res != nil && res.Converged {
-		if m.refs == nil {
-			m.refs = map[int][]point{}
-		}
-		m.refs[n] = append([]point(nil), e.ref...)
+		m.keepRef(n, e.ref, true)
 	}
 	lax = errors.Is(err, errRounding)
 	if res == nil {
@@ -321,12 +325,38 @@ const failMargin = 1e-6
 // start.
 var warmStart = true
 
-// nearestRef is the designed length nearest to n whose converged
-// reference can start n's design (the shorter on a tie), or 0 for none.
+// startRef is a designed length's last reference and whether its design
+// converged.
+type startRef struct {
+	pts       []point
+	converged bool
+}
+
+// keepRef records the reference a design of n taps ended on.
+func (m *lengthSearch) keepRef(n int, ref []point, converged bool) {
+	if m.refs == nil {
+		m.refs = map[int]startRef{}
+	}
+	m.refs[n] = startRef{append([]point(nil), ref...), converged}
+}
+
+// nearestRef is the designed length nearest to n whose reference can start
+// n's design, or 0 for none: on a tie, a converged one, then the shorter.
 func (m *lengthSearch) nearestRef(n int) int {
 	best := 0
-	for k := range m.refs {
-		if best == 0 || abs(k-n) < abs(best-n) || (abs(k-n) == abs(best-n) && k < best) {
+	for k, r := range m.refs {
+		if best == 0 || abs(k-n) < abs(best-n) {
+			best = k
+			continue
+		}
+		if abs(k-n) > abs(best-n) {
+			continue
+		}
+		if b := m.refs[best]; r.converged != b.converged {
+			if r.converged {
+				best = k
+			}
+		} else if k < best {
 			best = k
 		}
 	}
