@@ -20,10 +20,15 @@ type fracEntry struct {
 // fractional returns the fractional stage of plan p and requirement r
 // from the memo, or designs it with fn and remembers it: the design
 // depends on the kind, Up, Down, every field of r, Settings.Remez and
-// Settings.MaxTaps and nothing else. A nil memo, or an estimate, calls fn.
-// The stage returned has its own copy of the taps.
+// Settings.MaxTaps and nothing else. A nil memo, or the estimate of a
+// polyphase stage (Herrmann lengths, not a design), calls fn. A Farrow
+// stage is designed for its estimate too (farrowStage), the same design,
+// so its estimate and its design share one entry: the fractional search
+// estimates every plan before it designs the cheapest, and designed each
+// Farrow structure twice. The stage returned has its own copy of the
+// taps.
 func (m *StageMemo) fractional(ctx context.Context, design bool, p StagePlan, r FractionalRequirement, s Settings, fn func() (Stage, error)) (Stage, error) {
-	if m == nil || !design {
+	if m == nil || (!design && p.Kind != Farrow) {
 		return fn()
 	}
 	var b []byte

@@ -140,3 +140,44 @@ func TestFractionalMemo(t *testing.T) {
 		}
 	}
 }
+
+// A Farrow stage's estimate is its design (farrowStage), so an estimate
+// through a StageMemo designs it once for the design after it: the memo
+// holds one entry after Estimate, Design then returns the same stage, equal
+// to a design without the memo; a polyphase stage's estimate (Herrmann
+// lengths) stays out of the memo.
+func TestFarrowEstimateShared(t *testing.T) {
+	spec := Spec{InputRate: 100e6, OutputRate: 3.84e6, Passband: 1.2e6, Protected: 1.5e6, RippleDB: 0.2, RejectionDB: 60}
+	pl := []StagePlan{{Kind: FIR, Factor: 5, Variant: Lowpass}, {Kind: Farrow, Factor: 1, Up: 24, Down: 125}}
+	m := NewStageMemo()
+	est, err := Estimate(spec, pl, Settings{Memo: m})
+	if err != nil {
+		t.Fatal(err)
+	}
+	if n := len(m.frac); n != 1 {
+		t.Fatalf("after the estimate the memo holds %d fractional stages, want 1", n)
+	}
+	with, err := Design(spec, pl, Settings{Memo: m})
+	if err != nil {
+		t.Fatal(err)
+	}
+	without, err := Design(spec, pl, Settings{})
+	if err != nil {
+		t.Fatal(err)
+	}
+	last := len(pl) - 1
+	if !reflect.DeepEqual(with.Stages[last], without.Stages[last]) || !reflect.DeepEqual(est.Stages[last], without.Stages[last]) {
+		t.Fatal("the Farrow stage of the estimate or of the memo's design differs from a design without the memo")
+	}
+	if n := len(m.frac); n != 1 {
+		t.Errorf("after the design the memo holds %d fractional stages, want 1", n)
+	}
+	poly := []StagePlan{pl[0], {Kind: Polyphase, Factor: 1, Up: 24, Down: 125}}
+	pm := NewStageMemo()
+	if _, err := Estimate(spec, poly, Settings{Memo: pm}); err != nil {
+		t.Fatal(err)
+	}
+	if n := len(pm.frac); n != 0 {
+		t.Errorf("a polyphase estimate left %d entries in the memo, want 0", n)
+	}
+}
