@@ -5,7 +5,10 @@ import (
 	"errors"
 	"fmt"
 	"math"
+	"runtime"
 	"sort"
+	"sync"
+	"sync/atomic"
 
 	"gonum.org/v1/gonum/mat"
 )
@@ -487,13 +490,18 @@ func certify(ctx context.Context, f Filter, s DesignSpec) Result {
 	}
 }
 
+// maxDesignWorkers bounds the candidates MinDesign designs at once.
+const maxDesignWorkers = 4
+
 // MinDesign returns the cheapest symmetric Farrow filter, in multiplies per
 // output (Cost), that meets the bands: passband [0, pass] within passDev
 // of 1, stopbands [k - xs, k + xs] for every integer k >= 1 below stopDev.
 // It designs the candidates of degree MinSearchDegree..MaxSearchDegree and
 // even length 2..MaxLen with cost at most maxCost in increasing order of
 // cost (then degree), certifies each whose grid figures meet, and returns
-// the first certified to meet. A candidate whose plain least-squares
+// the first certified to meet. Up to maxDesignWorkers candidates are
+// designed at once, on the available cores; the answer is the first in
+// that order that meets, whatever the number of cores. A candidate whose plain least-squares
 // design misses the targets tenfold is dropped unrefined (lsGiveUp). It returns ctx's error when ctx ends, and an
 // error saying what could not be met, with the closest candidate's figures,
 // when none does.
@@ -519,34 +527,70 @@ func MinDesign(ctx context.Context, pass, xs, passDev, stopDev float64, maxCost 
 		}
 		return cands[a].p < cands[b].p
 	})
+	// The candidates are designed a few at a time, in order, on every
+	// core: each design is the same whoever runs it and whenever, and the
+	// answer is the first in order that meets, as one at a time would find
+	// it, so the result does not depend on the number of cores. A worker
+	// takes no candidate past the first that has met.
+	type outcome struct {
+		f      Filter
+		r      Result
+		gp, gs float64
+		ok     bool // designed (no error)
+	}
+	outs := make([]outcome, len(cands))
+	var next atomic.Int64
+	var met atomic.Int64 // index of the first candidate known to meet
+	met.Store(int64(len(cands)))
+	var wg sync.WaitGroup
+	for w := 0; w < min(runtime.GOMAXPROCS(0), maxDesignWorkers, len(cands)); w++ {
+		wg.Add(1)
+		go func() {
+			defer wg.Done()
+			for {
+				i := int(next.Add(1) - 1)
+				if i >= len(cands) || int64(i) > met.Load() || ctx.Err() != nil {
+					return
+				}
+				cd := cands[i]
+				s := DesignSpec{Degree: cd.p, Len: cd.n, Pass: pass, Stop: xs, PassDev: passDev, StopDev: stopDev}
+				f, gp, gs, err := design(ctx, s, lsGiveUp)
+				if err != nil {
+					continue
+				}
+				o := outcome{f: f, gp: gp, gs: gs, ok: true}
+				if math.Max(gp/passDev, gs/stopDev) <= 1 {
+					// The grid shows no failing point: certify.
+					o.r = certify(ctx, f, s)
+					if o.r.Meets && ctx.Err() == nil {
+						for {
+							m := met.Load()
+							if int64(i) >= m || met.CompareAndSwap(m, int64(i)) {
+								break
+							}
+						}
+					}
+				}
+				outs[i] = o
+			}
+		}()
+	}
+	wg.Wait()
+	if err := ctx.Err(); err != nil {
+		return Filter{}, Result{}, err
+	}
+	if m := int(met.Load()); m < len(cands) {
+		return outs[m].f, outs[m].r, nil
+	}
 	bestRatio := math.Inf(1)
 	var best cand
 	var bestPass, bestStop float64
-	for _, cd := range cands {
-		if err := ctx.Err(); err != nil {
-			return Filter{}, Result{}, err
-		}
-		s := DesignSpec{Degree: cd.p, Len: cd.n, Pass: pass, Stop: xs, PassDev: passDev, StopDev: stopDev}
-		f, gp, gs, err := design(ctx, s, lsGiveUp)
-		if err != nil {
-			if ctx.Err() != nil {
-				return Filter{}, Result{}, ctx.Err()
-			}
+	for i, o := range outs {
+		if !o.ok {
 			continue
 		}
-		ratio := math.Max(gp/passDev, gs/stopDev)
-		if ratio < bestRatio {
-			bestRatio, best, bestPass, bestStop = ratio, cd, gp, gs
-		}
-		if ratio > 1 {
-			continue // the grid already shows a point that fails
-		}
-		r := certify(ctx, f, s)
-		if err := ctx.Err(); err != nil {
-			return Filter{}, Result{}, err
-		}
-		if r.Meets {
-			return f, r, nil
+		if ratio := math.Max(o.gp/passDev, o.gs/stopDev); ratio < bestRatio {
+			bestRatio, best, bestPass, bestStop = ratio, cands[i], o.gp, o.gs
 		}
 	}
 	if len(cands) == 0 || math.IsInf(bestRatio, 1) {

@@ -4,7 +4,11 @@ import (
 	"context"
 	"errors"
 	"math"
+	"math/rand/v2"
 	"os"
+	"reflect"
+	"runtime"
+	"sort"
 	"strings"
 	"testing"
 )
@@ -223,5 +227,64 @@ func TestCertifyCancelled(t *testing.T) {
 	r := certify(ctx, f, s)
 	if r.PassDev < full.PassDev/1.02 || r.StopDev < full.StopDev/1.02 {
 		t.Errorf("cancelled certification %+v below the full one %+v", r, full)
+	}
+}
+
+// MinDesign designs its candidates on several cores; its answer is the
+// one a search of one candidate at a time in the same order finds (the
+// reference below, written out from the rule in MinDesign's doc: cost
+// order, the plain least-squares drop, grid check, certify), whatever
+// GOMAXPROCS, on seeded random specs.
+func TestMinDesignAsInOrder(t *testing.T) {
+	ctx := context.Background()
+	inOrder := func(pass, xs, dev float64, maxCost int) (Filter, bool) {
+		type cand struct{ p, n, cost int }
+		var cands []cand
+		for p := MinSearchDegree; p <= MaxSearchDegree; p++ {
+			for n := 2; n <= MaxLen; n += 2 {
+				if c := Cost(p, n); c <= maxCost {
+					cands = append(cands, cand{p, n, c})
+				}
+			}
+		}
+		sort.SliceStable(cands, func(a, b int) bool {
+			if cands[a].cost != cands[b].cost {
+				return cands[a].cost < cands[b].cost
+			}
+			return cands[a].p < cands[b].p
+		})
+		for _, cd := range cands {
+			s := DesignSpec{Degree: cd.p, Len: cd.n, Pass: pass, Stop: xs, PassDev: dev, StopDev: dev}
+			f, gp, gs, err := design(ctx, s, lsGiveUp)
+			if err != nil || math.Max(gp, gs)/dev > 1 {
+				continue
+			}
+			if certify(ctx, f, s).Meets {
+				return f, true
+			}
+		}
+		return Filter{}, false
+	}
+	rng := rand.New(rand.NewPCG(17, 4))
+	prev := runtime.GOMAXPROCS(0)
+	defer runtime.GOMAXPROCS(prev)
+	for i := 0; i < 5; i++ {
+		pass := 0.1 + 0.25*rng.Float64()
+		xs := pass + 0.03 + (0.46-pass)*rng.Float64()
+		dev := math.Pow(10, -2.5-1.5*rng.Float64())
+		if i == 4 {
+			pass, xs, dev = 0.4, 0.485, 1e-4 // none within the cost limit
+		}
+		want, ok := inOrder(pass, xs, dev, 120)
+		t.Logf("pass %.4g xs %.4g dev %.3g: degree %d length %d (found %v)", pass, xs, dev, want.Degree(), want.Len(), ok)
+		for _, procs := range []int{1, 3} {
+			runtime.GOMAXPROCS(procs)
+			got, _, err := MinDesign(ctx, pass, xs, dev, dev, 120)
+			if ok != (err == nil) || (ok && !reflect.DeepEqual(got, want)) {
+				t.Fatalf("pass %.4g xs %.4g dev %.3g, GOMAXPROCS %d: MinDesign gave degree %d length %d (%v), one at a time degree %d length %d (found %v)",
+					pass, xs, dev, procs, got.Degree(), got.Len(), err, want.Degree(), want.Len(), ok)
+			}
+		}
+		runtime.GOMAXPROCS(prev)
 	}
 }
