@@ -88,7 +88,9 @@
 // per output, (P+1) N + P: it designs the candidates of degree
 // MinSearchDegree..MaxSearchDegree and even length up to MaxLen within the
 // cost limit in increasing order of cost, and certifies those whose grid
-// figures meet. Design and MinDesign refuse, with errors that name the
+// figures meet; it designs up to four candidates at once, on the cores it
+// has, and returns the first in that order that meets, so its answer does
+// not depend on the number of cores. Design and MinDesign refuse, with errors that name the
 // figure and the rule, a passband edge not in (0, Stop), a stopband
 // half-width of 0.5 or more, deviations outside (0, 1), and degrees and
 // lengths beyond MaxDegree and MaxLen, which bound their time and memory;
