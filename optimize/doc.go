@@ -20,8 +20,8 @@
 // is tried. Candidates are generated one at a time into a reused buffer in a
 // fixed order; nothing is stored per candidate except what the tiers below
 // keep. The search refuses, with an error and before any work, a space of
-// more than MaxCandidates candidates (counted exactly beforehand), so that
-// it finishes or refuses within about 30 s for any D up to 2^20 on two
+// more than MaxCandidates candidates (counted exactly beforehand; the error
+// names the largest MaxStages whose space fits), so that it finishes or refuses within about 30 s for any D up to 2^20 on two
 // cores.
 //
 // # Estimate tier

@@ -9,6 +9,7 @@ import (
 	"os"
 	"reflect"
 	"sort"
+	"strings"
 	"sync"
 	"testing"
 
@@ -624,6 +625,52 @@ func TestEstimateTierJobs(t *testing.T) {
 					t.Fatalf("D = %d, jobs %d: front member %d is %v, want %v", d, jobs, i, got.Front[i].Plan, want.Front[i].Plan)
 				}
 			}
+		}
+	}
+}
+
+// A search too large to score is refused naming the most stages that fit:
+// that many fit (counted as the search counts) and one more does not, for
+// invented ratios and settings; it is found at once.
+func TestTooLargeNamesTheStagesThatFit(t *testing.T) {
+	cases := []struct {
+		d, stages int
+		s         Settings
+		fit       int
+	}{
+		{d: 1 << 30, stages: 6, fit: 5},
+		{d: 1 << 20, stages: 12, s: Settings{CICOrders: []int{1, 2, 3, 4, 5, 6, 7, 8, 9, 10}, CICDelays: []int{1, 2, 3, 4}}, fit: 5},
+		{d: 1 << 24, stages: 12, s: Settings{Kinds: []chain.Kind{chain.HalfBand, chain.FIR}}}, // no CIC: the fit by brute force alone
+	}
+	for _, c := range cases {
+		s := c.s
+		s.MaxStages = c.stages
+		p := params{f0: float64(c.d), fk: 1, fa: 0.3, fp: 0.3, fs: 0.7, d: c.d, rejDB: 80}
+		sp := newSpace(&p, &s)
+		n := sp.count()
+		if n <= MaxCandidates {
+			t.Fatalf("D = %d within %d stages: %d candidates, not too many", c.d, c.stages, n)
+		}
+		count := func(m int) int64 {
+			t := *sp
+			t.maxStages, t.memo = m, nil
+			return t.count()
+		}
+		want := 0
+		for m := 1; m < c.stages; m++ {
+			if count(m) <= MaxCandidates {
+				want = m
+			}
+		}
+		if c.fit != 0 && want != c.fit {
+			t.Errorf("D = %d: %d stages fit by brute force, want %d", c.d, want, c.fit)
+		}
+		msg := tooLarge(sp, n).Error()
+		if frag := fmt.Sprintf("MaxStages = %d is the most that fits (%d candidates)", want, count(want)); !strings.Contains(msg, frag) {
+			t.Errorf("D = %d: %q lacks %q", c.d, msg, frag)
+		}
+		if count(want+1) <= MaxCandidates {
+			t.Errorf("D = %d: %d stages fit too", c.d, want+1)
 		}
 	}
 }

@@ -622,8 +622,7 @@ func search(ctx context.Context, p params, s *Settings, est *estimator, des desi
 	}
 	n := sp.count()
 	if n > MaxCandidates {
-		return nil, fmt.Errorf("optimize: decimation %d within %d stages gives %s candidates, more than the %d this search scores; lower MaxStages or narrow Kinds, CICOrders or CICDelays",
-			p.d, sp.maxStages, countString(n), MaxCandidates)
+		return nil, tooLarge(sp, n)
 	}
 	res := &Result{Dropped: map[Reason]int{}, Recommended: -1}
 	jobs := s.Jobs
@@ -1372,6 +1371,30 @@ func estimatedCandidate(plan []chain.StagePlan, f figs, p *params) Candidate {
 
 func clonePlan(plan []chain.StagePlan) []chain.StagePlan {
 	return append([]chain.StagePlan(nil), plan...)
+}
+
+// tooLarge is the refusal of a search space of n > MaxCandidates
+// candidates: it names the largest MaxStages whose space fits, found by
+// counting the space (exactly, as count does) for fewer stages; one stage
+// always fits, since it holds only the single-stage chains of d. The
+// counts are memoised over the divisors of d and take microseconds.
+func tooLarge(sp *space, n int64) error {
+	stages := sp.maxStages
+	fit, fitN := 0, int64(0)
+	for m := stages - 1; m >= 1; m-- {
+		t := *sp
+		t.maxStages, t.memo = m, nil
+		if c := t.count(); c <= MaxCandidates {
+			fit, fitN = m, c
+			break
+		}
+	}
+	if fit == 0 {
+		return fmt.Errorf("optimize: decimation %d within %d stages gives %s candidates, more than the %d this search scores; narrow Kinds, CICOrders or CICDelays",
+			sp.d, stages, countString(n), MaxCandidates)
+	}
+	return fmt.Errorf("optimize: decimation %d within %d stages gives %s candidates, more than the %d this search scores; MaxStages = %d is the most that fits (%d candidates), or narrow Kinds, CICOrders or CICDelays",
+		sp.d, stages, countString(n), MaxCandidates, fit, fitN)
 }
 
 func countString(n int64) string {

@@ -1086,6 +1086,8 @@ var libraryPhrases = []struct {
 	with string
 }{
 	{regexp.MustCompile(`\b(?:chain|optimize|remez|fixed): `), ""},
+	{regexp.MustCompile(`MaxStages = (\d+) is the most that fits`),
+		"search.max_stages = $1 (or --max-stages $1) is the most that fits"},
 	{regexp.MustCompile(`lower MaxStages or narrow Kinds, CICOrders or CICDelays`),
 		"lower search.max_stages (or --max-stages) or narrow search.kinds, search.cic_orders or search.cic_delays"},
 	{regexp.MustCompile(`the design budget \((?:MaxDesigns, MaxWork|a fixed amount of design work per run)\)`),

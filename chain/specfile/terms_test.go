@@ -56,7 +56,7 @@ func TestInFileTerms(t *testing.T) {
 		t.Logf("%s\n  -> %s", m, got)
 	}
 	if len(msgs) == 3 {
-		for i, want := range []string{"search.max_stages (or --max-stages)", "lower search.max_stages or --max-stages", "tap limit of 5 taps"} {
+		for i, want := range []string{"search.max_stages = 5 (or --max-stages 5) is the most that fits", "lower search.max_stages or --max-stages", "tap limit of 5 taps"} {
 			if got := InFileTerms(msgs[i]); !strings.Contains(got, want) {
 				t.Errorf("InFileTerms(%q) = %q, want it to contain %q", msgs[i], got, want)
 			}

@@ -121,7 +121,9 @@ func clip(s string) string { return units.Clip(s, units.MaxEcho) }
 var (
 	reUndefined = regexp.MustCompile(`^flag provided but not defined: -+(.*)$`)
 	reNoValue   = regexp.MustCompile(`^flag needs an argument: -+(.*)$`)
-	reBadValue  = regexp.MustCompile(`^invalid (?:boolean )?value "(.*)" for flag -+([^:]*): (.*)$`)
+	reBadValue  = regexp.MustCompile(`^invalid value "(.*)" for flag -+([^:]*): (.*)$`)
+	reBadBool   = regexp.MustCompile(`^invalid boolean (?:value "(.*)" for|flag) -*([^: ]*):? ?(.*)$`)
+	reBadSyntax = regexp.MustCompile(`^bad flag syntax: (.*)$`)
 )
 
 // flagError says a flag parsing error in the command line's own words: the
@@ -138,15 +140,27 @@ func flagError(cmd *cli.Command, err error) error {
 	if m := reNoValue.FindStringSubmatch(msg); m != nil {
 		return usagef("--%s: missing its value", clip(m[1]))
 	}
+	if m := reBadBool.FindStringSubmatch(msg); m != nil {
+		flag := clip(m[2])
+		return usagef("--%s takes no value (or --%s=true / --%s=false): got %q", flag, flag, flag, clip(m[1]))
+	}
 	if m := reBadValue.FindStringSubmatch(msg); m != nil {
 		value, flag := m[1], m[2]
-		return usagef("--%s %q: %s", flag, clip(value), wantOf(cmd, flag, value))
+		return usagef("--%s %q: %s", flag, clip(value), wantOf(cmd, flag, value, m[3]))
+	}
+	if m := reBadSyntax.FindStringSubmatch(msg); m != nil {
+		word := m[1]
+		if name := strings.TrimLeft(word, "-"); name != "" && !strings.HasPrefix(name, "=") {
+			return usagef("%s: flags are written with two dashes, e.g. --%s", clip(word), clip(name))
+		}
+		return usagef("%s: not a flag (flags are written with two dashes and a name, e.g. --out)", clip(word))
 	}
 	return usageError{err}
 }
 
-// wantOf says what a flag's value must look like, by the flag's type.
-func wantOf(cmd *cli.Command, flag, value string) string {
+// wantOf says what a flag's value must look like, by the flag's type;
+// why is the flag package's reason ("parse error" or "value out of range").
+func wantOf(cmd *cli.Command, flag, value, why string) string {
 	if cmd != nil {
 		for _, f := range cmd.Flags {
 			if !slices.Contains(f.Names(), flag) {
@@ -160,7 +174,10 @@ func wantOf(cmd *cli.Command, flag, value string) string {
 				}
 				return `a duration needs a unit, e.g. "30s", "5m" or "1h30m"`
 			case *cli.IntFlag:
-				return "want a whole number"
+				if strings.Contains(why, "range") {
+					return "too large: want a whole number of at most 18 digits"
+				}
+				return "want a whole number, in decimal digits (no fraction or exponent)"
 			case *cli.BoolFlag:
 				return "want true or false"
 			}

@@ -9,6 +9,7 @@ import (
 	"os/exec"
 	"path/filepath"
 	"reflect"
+	"regexp"
 	"strconv"
 	"strings"
 	"testing"
@@ -189,7 +190,15 @@ func TestBadInputs(t *testing.T) {
 		specCase("kinds is text", goodSpec+"kinds = \"fir\"\n", "search.kinds", "not text"),
 		specCase("long value", edit("output_rate", `output_rate = "`+strings.Repeat("3", 40000)+` MHz"`), "output_rate", `..."`),
 		specCase("search too large", "input_rate = 1048576\noutput_rate = 1\npassband = 0.1\nripple = 0.1\nrejection = 70\n[search]\nmax_stages = 12\ncic_orders = [1, 2, 3, 4, 5, 6, 7, 8, 9, 10]\ncic_delays = [1, 2, 3, 4]\n",
-			"candidates", "lower search.max_stages (or --max-stages) or narrow search.kinds"),
+			"candidates", "search.max_stages = 5 (or --max-stages 5) is the most that fits (2960622 candidates)", "or narrow search.kinds"),
+		// 2^30 within the default 6 stages: 5 stages fit.
+		specCase("search too large, default stages", bigSearchSpec, "1073741824 within 6 stages", "search.max_stages = 5 (or --max-stages 5) is the most that fits (6574896 candidates)"),
+		{name: "sweep search too large", spec: bigSearchSpec, args: []string{"sweep", "spec.toml", "--out", "out", "--vary", "rejection=60:70:10"}, code: 2,
+			frags: []string{"--vary rejection=60:70:10: 60 dB: decimation 1073741824", "search.max_stages = 5 (or --max-stages 5) is the most that fits"}},
+		{name: "sweep grid search too large", spec: bigSearchSpec, args: []string{"sweep", "spec.toml", "--out", "out", "--vary", "rejection=60:70:10", "--vary", "ripple=0.5:1:0.5"}, code: 2,
+			frags: []string{"rejection 60 dB, ripple 0.5 dB: decimation 1073741824", "search.max_stages = 5 (or --max-stages 5)"}},
+		{name: "simulate search too large", spec: bigSearchSpec, args: []string{"simulate", "spec.toml", "--out", "out", "--input", "afile", "--format", "int16", "--rate", "1.073741824 GHz"}, code: 2,
+			frags: []string{"search.max_stages = 5 (or --max-stages 5)"}},
 		// Docs and behaviour agree: no hexadecimal, words up to 32 bits.
 		specCase("rate hexadecimal", edit("input_rate", "input_rate = 0x5DC0000"), "spec.toml:1", "input_rate = 0x5DC0000", "hexadecimal", "98304000"),
 		specCase("rate hexadecimal text", edit("input_rate", `input_rate = "0x5DC0000 Hz"`), "input_rate", "hexadecimal"),
@@ -208,6 +217,31 @@ func TestBadInputs(t *testing.T) {
 		{name: "flag duration without unit", spec: goodSpec, args: []string{"plan", "spec.toml", "--out", "out", "--timeout", "5"}, code: 2, frags: []string{`--timeout "5"`, "a duration needs a unit", `"30s"`}},
 		{name: "flag duration overflowing", spec: goodSpec, args: []string{"plan", "spec.toml", "--out", "out", "--timeout", "99999999h"}, code: 2, frags: []string{`--timeout "99999999h"`, "at most 2562047h"}},
 		{name: "flag jobs not a number", spec: goodSpec, args: []string{"plan", "spec.toml", "--out", "out", "--jobs", "x"}, code: 2, frags: []string{`--jobs "x"`, "whole number"}},
+		// The flag library's own messages, in the command line's words.
+		{name: "flag bool json=yes", spec: goodSpec, args: []string{"plan", "spec.toml", "--out", "out", "--json=yes"}, code: 2,
+			frags: []string{`--json takes no value (or --json=true / --json=false): got "yes"`}},
+		{name: "flag bool quiet=2", spec: goodSpec, args: []string{"plan", "spec.toml", "--out", "out", "--quiet=2"}, code: 2,
+			frags: []string{`--quiet takes no value (or --quiet=true / --quiet=false): got "2"`}},
+		{name: "flag bool html=x", spec: goodSpec, args: []string{"plan", "spec.toml", "--out", "out", "--html=x"}, code: 2,
+			frags: []string{`--html takes no value (or --html=true / --html=false): got "x"`}},
+		{name: "flag bool empty", spec: goodSpec, args: []string{"check", "spec.toml", "--out", "out", "--chain", "fir32", "--resources="}, code: 2,
+			frags: []string{`--resources takes no value (or --resources=true / --resources=false): got ""`}},
+		{name: "flag bool long value", spec: goodSpec, args: []string{"sweep", "spec.toml", "--out", "out", "--vary", "rejection=60:70:10", "--quiet=" + strings.Repeat("y", 500)}, code: 2,
+			frags: []string{`--quiet takes no value`, `yyy..."`}},
+		{name: "design flag bool", args: []string{"design", "--json=no"}, code: 2,
+			frags: []string{`--json takes no value (or --json=true / --json=false): got "no"`}},
+		{name: "flag int fraction", spec: goodSpec, args: []string{"plan", "spec.toml", "--out", "out", "--max-stages", "2.5"}, code: 2,
+			frags: []string{`--max-stages "2.5": want a whole number, in decimal digits (no fraction or exponent)`}},
+		{name: "flag int exponent", spec: goodSpec, args: []string{"plan", "spec.toml", "--out", "out", "--jobs=1e2"}, code: 2,
+			frags: []string{`--jobs "1e2": want a whole number, in decimal digits`}},
+		{name: "flag int too large", spec: goodSpec, args: []string{"plan", "spec.toml", "--out", "out", "--jobs", "99999999999999999999"}, code: 2,
+			frags: []string{`--jobs "99999999999999999999": too large`}},
+		{name: "flag int empty", spec: goodSpec, args: []string{"sweep", "spec.toml", "--out", "out", "--vary", "rejection=60:70:10", "--max-stages="}, code: 2,
+			frags: []string{`--max-stages "": want a whole number`}},
+		{name: "flag duration empty", spec: goodSpec, args: []string{"plan", "spec.toml", "--out", "out", "--timeout="}, code: 2,
+			frags: []string{`--timeout "": a duration needs a unit`}},
+		{name: "flag three dashes", spec: goodSpec, args: []string{"plan", "spec.toml", "--out", "out", "---jobs", "2"}, code: 2,
+			frags: []string{"---jobs: flags are written with two dashes, e.g. --jobs"}},
 		{name: "flag out last without value", spec: goodSpec, args: []string{"plan", "spec.toml", "--out"}, code: 2, frags: []string{"--out: missing its value"}},
 		{name: "flag out followed by a flag", spec: goodSpec, args: []string{"plan", "spec.toml", "--out", "--json"}, code: 2, frags: []string{"--out: missing its value"}},
 		{name: "flag after spec, last", spec: goodSpec, args: []string{"plan", "spec.toml", "--out", "out", "--max-stages", "13"}, code: 2, frags: []string{"--max-stages 13", "[1, 12]"}},
@@ -267,6 +301,9 @@ func TestBadInputs(t *testing.T) {
 					t.Errorf("stderr %q lacks %q", r.stderr, f)
 				}
 			}
+			if m := goism.FindString(r.stderr); m != "" {
+				t.Errorf("stderr speaks Go or the flag library (%q): %q", m, r.stderr)
+			}
 			for _, bad := range []string{"goroutine", "panic", "runtime error"} {
 				if strings.Contains(r.stderr+r.stdout, bad) {
 					t.Errorf("output mentions %q: %q", bad, r.stderr)
@@ -278,6 +315,21 @@ func TestBadInputs(t *testing.T) {
 		})
 	}
 }
+
+// bigSearchSpec (invented) decimates by 2^30 within the default 6 stages:
+// 67377456 candidates, beyond optimize.MaxCandidates.
+const bigSearchSpec = `input_rate = "1.073741824 GHz"
+output_rate = "1 Hz"
+passband = "0.2 Hz"
+ripple = "0.5 dB"
+rejection = "60 dB"
+signal = "real"
+`
+
+// goism matches what a message in the user's words never holds: a flag
+// with one dash, a package prefix, a Go field name, the flag library's
+// wording.
+var goism = regexp.MustCompile(`(?:^|[\s"(])-[a-z][a-z-]*\b|(?:^|[\s(])(?:chain|optimize|remez|fixed|specfile|units|strconv|toml|cli|flag): |\b(?:InputBits|OutputBits|CoefBits|MaxStages|CICOrders|CICDelays)\b|invalid (?:boolean )?value|parse error|bad flag syntax`)
 
 func must(t *testing.T, err error) {
 	t.Helper()

@@ -184,13 +184,7 @@ func runPlan(c *cli.Context) error {
 		return fmt.Errorf("interrupted; %s left as it was", clip(j.out.Dir()))
 	}
 	if err != nil {
-		msg := specfile.InFileTerms(err.Error())
-		if strings.Contains(msg, "candidates, more than") {
-			// The spec asks for a search larger than the optimiser
-			// scores; the message says which keys narrow it.
-			return usagef("plan: %s", msg)
-		}
-		return fmt.Errorf("plan: %s", msg)
+		return planError(err)
 	}
 	if res.Partial && len(res.Front) == 0 {
 		what := "before any chain was designed"
@@ -216,6 +210,24 @@ func runPlan(c *cli.Context) error {
 		}
 	}
 	return j.finish(ctx, "plan", res)
+}
+
+// planError is the error of an optimize.Plan that refused the search: a
+// search larger than the optimiser scores is a spec error (status 2), whose
+// message names the most search.max_stages that fits and the keys that
+// narrow it; anything else is a runtime failure.
+func planError(err error) error {
+	msg := specfile.InFileTerms(err.Error())
+	if searchTooLarge(msg) {
+		return usagef("plan: %s", msg)
+	}
+	return fmt.Errorf("plan: %s", msg)
+}
+
+// searchTooLarge reports whether msg is optimize's refusal of a search
+// larger than optimize.MaxCandidates.
+func searchTooLarge(msg string) bool {
+	return strings.Contains(msg, "candidates, more than the") && strings.Contains(msg, "this search scores")
 }
 
 // emptyFront is the error of a search that left the front empty: the

@@ -206,7 +206,7 @@ func runSimulate(c *cli.Context) error {
 			return fmt.Errorf("interrupted; %s left as it was", clip(j.out.Dir()))
 		}
 		if err != nil {
-			return fmt.Errorf("plan: %s", err)
+			return planError(err)
 		}
 		if len(res.Front) == 0 {
 			return emptyFront(res, clip(j.out.Dir()))

@@ -165,6 +165,10 @@ func runSweep(c *cli.Context) error {
 				break
 			}
 		}
+		if r, ok := tooLargeResult(rs); ok {
+			// A search too large to score is the spec's fault, as in plan.
+			return usagef("--vary %s=%s: %s: %s", v.Key.Name, clip(v.Text), v.Key.Format(r.Value), strings.TrimPrefix(specfile.InFileTerms(r.Detail), "search: "))
+		}
 		return fmt.Errorf("--vary %s=%s: no value gives a chain (%s: %s); %s left as it was", v.Key.Name, v.Text, v.Key.Format(first.Value), specfile.InFileTerms(first.Detail), clip(out.Dir()))
 	}
 
@@ -178,6 +182,17 @@ func runSweep(c *cli.Context) error {
 	}
 	printSweep(w, source, out.Dir(), v, doc, files)
 	return nil
+}
+
+// tooLargeResult returns the first result whose search was refused as
+// larger than the optimiser scores.
+func tooLargeResult(rs []sweep.Result) (sweep.Result, bool) {
+	for _, r := range rs {
+		if r.Status == sweep.Failed && searchTooLarge(r.Detail) {
+			return r, true
+		}
+	}
+	return sweep.Result{}, false
 }
 
 // sweepFiles renders every file of a sweep in memory, report.json first,
@@ -276,6 +291,9 @@ func finishGrid(c *cli.Context, out *report.Folder, source string, base *specfil
 				first = r
 				break
 			}
+		}
+		if r, ok := tooLargeResult(rs); ok {
+			return usagef("%s: %s: %s", both, cellName(g, r), strings.TrimPrefix(specfile.InFileTerms(r.Detail), "search: "))
 		}
 		return fmt.Errorf("%s: no cell gives a chain (%s: %s); %s left as it was", both, cellName(g, first), specfile.InFileTerms(first.Detail), clip(out.Dir()))
 	}
