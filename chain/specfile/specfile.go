@@ -956,7 +956,77 @@ func (p *parser) build() (*Spec, error) {
 		return nil, p.errAt("search.cic_forms", v, `"nonrecursive" is built for decimation only; with output_rate above input_rate (an interpolation chain) the CIC takes the form "recursive"`)
 	}
 	out.Chain = norm
+	if err := p.accumulatorFits(out); err != nil {
+		return nil, err
+	}
 	return out, nil
+}
+
+// maxAccumulatorBits is the widest FIR or half-band accumulator the
+// word-length plan builds (chain/fixed's planFIR and interpAccumulator
+// refuse wider ones: the sums run in int64).
+const maxAccumulatorBits = 63
+
+// leastAccumulator is the narrowest accumulator any FIR or half-band stage
+// with coef-bit coefficients and data-bit words can have, by
+// fixed.AccumulatorBits: fixed.Quantize scales the largest |tap| into the
+// top code range, so one integer tap is at least 2^(coef-2) and the sum of
+// |taps| is no smaller; a lone tap of that size is the least case.
+func leastAccumulator(data, coef int) int {
+	return fixed.AccumulatorBits([]int64{1 << (coef - 2)}, data)
+}
+
+// accumulatorFits refuses a fixed coefficient width that no FIR or
+// half-band stage can use: its accumulator would pass maxAccumulatorBits
+// even for the narrowest data word such a stage can see (words.input as the
+// first stage; with two stages or more, words.output can be the narrower,
+// as the word between stages is words.output wide or, after a CIC, no
+// narrower than the CIC's input plus one bit). Only a spec that can never
+// plan such a stage is refused; a search of CIC stages alone does not use
+// the coefficients and is left alone, and so are fractional ratios, whose
+// polyphase and Farrow stages scale their coefficients otherwise.
+func (p *parser) accumulatorFits(s *Spec) error {
+	cs := s.Chain
+	if s.CoefAuto || cs.CoefBits == 0 || cs.Fractional() {
+		return nil
+	}
+	if !slices.Contains(s.Kinds, chain.FIR) && !slices.Contains(s.Kinds, chain.HalfBand) {
+		return nil
+	}
+	in, out := cs.InputBits, cs.OutputBits
+	if in == 0 {
+		in = chain.DefaultInputBits
+	}
+	if out == 0 {
+		out = chain.DefaultOutputBits
+	}
+	data, key := in, "words.input"
+	if s.MaxStages >= 2 && out < in {
+		data, key = out, "words.output"
+	}
+	need := leastAccumulator(data, cs.CoefBits)
+	if need <= maxAccumulatorBits {
+		return nil
+	}
+	coef := 0 // the widest coefficient word that fits with data
+	for b := MinWordBits; b <= MaxCoefBits; b++ {
+		if leastAccumulator(data, b) <= maxAccumulatorBits {
+			coef = b
+		}
+	}
+	words := 0 // the widest data word that fits with the coefficients
+	for w := MinWordBits; w <= MaxWordBits; w++ {
+		if leastAccumulator(w, cs.CoefBits) <= maxAccumulatorBits {
+			words = w
+		}
+	}
+	raw, _ := p.lookup("words.coefficients")
+	rule := fmt.Sprintf("with %s = %d, a FIR or half-band stage's accumulator needs at least %d bits (data, coefficient and sum growth), and at most %d are supported: use words.coefficients <= %d",
+		key, data, need, maxAccumulatorBits, coef)
+	if words >= MinWordBits {
+		rule += fmt.Sprintf(", or %s <= %d", key, words)
+	}
+	return p.errAt("words.coefficients", raw, "%s", rule)
 }
 
 func (p *parser) kinds(v any) ([]chain.Kind, error) {

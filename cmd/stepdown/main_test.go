@@ -205,6 +205,8 @@ func TestBadInputs(t *testing.T) {
 		specCase("word octal", edit("input", "input = 0o16"), "words.input = 0o16", "octal"),
 		specCase("input word 64", edit("input", "input = 64"), "words.input = 64", "[2, 32] bits", "word-length plan"),
 		specCase("output word 33", words("output = 33"), "words.output = 33", "[2, 32] bits"),
+		specCase("coefficients too wide for the data words", edit("input", "input = 32\noutput = 32\ncoefficients = 40"),
+			"spec.toml:9: words.coefficients = 40: with words.input = 32,", "at most 63 are supported", "words.coefficients <= 33, or words.input <= 25"),
 		{name: "out is a file", spec: goodSpec, args: []string{"plan", "spec.toml", "--out", "afile"}, code: 2, frags: []string{"afile", "is a file"}},
 		{name: "out parent missing", spec: goodSpec, args: []string{"plan", "spec.toml", "--out", "nowhere/out"}, code: 2, frags: []string{"nowhere", "does not exist"}},
 		{name: "out foreign folder", spec: goodSpec, args: []string{"plan", "spec.toml", "--out", "folder"}, code: 2, frags: []string{"folder", "not a stepdown output folder"}},

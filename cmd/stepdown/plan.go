@@ -235,11 +235,27 @@ func searchTooLarge(msg string) bool {
 // and the counts of dropped candidates.
 func emptyFront(res *optimize.Result, dir string) error {
 	msg := "no chain meets the spec"
-	if r := strings.Join(strings.Fields(specfile.InFileTerms(res.Reason)), " "); r != "" {
+	reason := res.Reason
+	if n := res.Dropped[optimize.ReasonWordLengths]; n > 0 {
+		// Named first: a budget or a target would otherwise take the
+		// blame for words the data path cannot hold.
+		msg += fmt.Sprintf(": the word lengths of %d designed chains could not be planned (a FIR or half-band accumulator beyond 63 bits or a CIC register beyond %d): narrow words.coefficients, words.input or words.output (check --chain on one names the widths)", n, chain.MaxCICBits)
+		if strings.HasPrefix(reason, "No chain was designed within the design budget") {
+			// Said short, to keep the line readable.
+			reason = ""
+			if res.Unsettled > 0 {
+				reason = fmt.Sprintf("the design budget left %d candidates undesigned", res.Unsettled)
+			}
+		}
+	}
+	if r := strings.Join(strings.Fields(specfile.InFileTerms(reason)), " "); r != "" {
 		r = strings.TrimSuffix(r, ".")
-		if l := strings.ToLower(r); strings.HasPrefix(l, msg) || strings.HasPrefix(l, "no chain met the spec") {
+		switch l := strings.ToLower(r); {
+		case msg != "no chain meets the spec":
+			msg += "; " + r
+		case strings.HasPrefix(l, msg) || strings.HasPrefix(l, "no chain met the spec"):
 			msg = strings.ToLower(r[:1]) + r[1:] // the reason already says it
-		} else {
+		default:
 			msg += ": " + r
 		}
 	}

@@ -1,0 +1,99 @@
+package specfile
+
+import (
+	"fmt"
+	"strings"
+	"testing"
+)
+
+// wordsSpec is an invented receiver (48 MHz to 1.5 MHz) with the given
+// [words] and [search] lines.
+func wordsSpec(words, search string) string {
+	return `input_rate = "48 MHz"
+output_rate = "1.5 MHz"
+passband = "500 kHz"
+ripple = "0.5 dB"
+rejection = "60 dB"
+[words]
+` + words + "\n[search]\n" + search + "\n"
+}
+
+// A coefficient width no FIR or half-band stage can use with the spec's
+// data words is refused at once, naming the keys and the widths that work;
+// what some stage could still plan is accepted.
+func TestAccumulatorWords(t *testing.T) {
+	cases := []struct {
+		name, words, search string
+		frags               []string // nil: accepted
+	}{
+		{"32-bit input, 40-bit coefficients, 32-bit output", "input = 32\noutput = 32\ncoefficients = 40", "",
+			[]string{"spec.toml:9: words.coefficients = 40:", "with words.input = 32,", "at most 63 are supported", "use words.coefficients <= 33, or words.input <= 25"}},
+		{"one stage: the input word alone", "input = 32\ncoefficients = 40", "max_stages = 1",
+			[]string{"words.coefficients = 40", "with words.input = 32,", "words.coefficients <= 33, or words.input <= 25"}},
+		{"narrower output binds", "input = 32\noutput = 30\ncoefficients = 40", "",
+			[]string{"with words.output = 30,", "words.coefficients <= 35, or words.output <= 25"}},
+		{"the widest that fits", "input = 32\noutput = 32\ncoefficients = 33", "", nil},
+		{"a 24-bit word between stages may fit", "input = 32\ncoefficients = 40", "", nil},
+		{"a 16-bit output fits", "input = 32\noutput = 16\ncoefficients = 40", "", nil},
+		{"25-bit words fit 40-bit coefficients", "input = 25\noutput = 25\ncoefficients = 40", "", nil},
+		{"auto widths are chosen to fit", "input = 32\noutput = 32\ncoefficients = \"auto\"", "", nil},
+		{"floating-point coefficients", "input = 32\noutput = 32", "", nil},
+		{"CIC stages alone use no coefficients", "input = 32\noutput = 32\ncoefficients = 40", `kinds = ["cic"]`, nil},
+		{"a half-band needs them", "input = 32\noutput = 32\ncoefficients = 40", `kinds = ["cic", "hb"]`,
+			[]string{"words.coefficients = 40", "words.coefficients <= 33"}},
+	}
+	for _, c := range cases {
+		t.Run(c.name, func(t *testing.T) {
+			_, err := Parse("spec.toml", []byte(wordsSpec(c.words, c.search)))
+			if c.frags == nil {
+				if err != nil {
+					t.Fatalf("refused: %v", err)
+				}
+				return
+			}
+			if err == nil {
+				t.Fatal("accepted")
+			}
+			msg := err.Error()
+			if strings.Contains(msg, "\n") || strings.Contains(msg, "CoefBits") || strings.Contains(msg, "InputBits") || strings.Contains(msg, "fixed:") {
+				t.Errorf("not one line in the spec's words: %q", msg)
+			}
+			for _, f := range c.frags {
+				if !strings.Contains(msg, f) {
+					t.Errorf("%q lacks %q", msg, f)
+				}
+			}
+		})
+	}
+}
+
+// The bound is the product's width by hand: a tap of 2^(coef-2) times the
+// most negative data word -2^(data-1) is -2^(data+coef-3), which needs
+// data+coef-2 bits in two's complement; fixed.AccumulatorBits agrees for
+// every width the spec allows, and the named widths are the edges: the
+// widest coefficient (or data) word parses, one more bit is refused.
+func TestLeastAccumulatorByHand(t *testing.T) {
+	for data := MinWordBits; data <= MaxWordBits; data++ {
+		for coef := MinWordBits; coef <= MaxCoefBits; coef++ {
+			want := data + coef - 2
+			if want > 63 {
+				want = 64 // fixed.AccumulatorBits's "does not fit an int64"
+			}
+			if got := leastAccumulator(data, coef); got != want {
+				t.Fatalf("data %d, coefficients %d: %d bits, by hand %d", data, coef, got, want)
+			}
+		}
+	}
+	for _, in := range []int{26, 30, 32} {
+		edge := 65 - in // data + coef - 2 <= 63
+		for coef, ok := range map[int]bool{edge: true, edge + 1: false} {
+			if coef > MaxCoefBits {
+				continue
+			}
+			_, err := Parse("spec.toml", []byte(wordsSpec(fmt.Sprintf("input = %d\noutput = 32\ncoefficients = %d", in, coef), "")))
+			if (err == nil) != ok {
+				t.Errorf("input %d, coefficients %d: err %v, want accepted %v", in, coef, err, ok)
+			}
+		}
+	}
+}
