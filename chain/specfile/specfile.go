@@ -1,6 +1,7 @@
 package specfile
 
 import (
+	"bytes"
 	"crypto/sha256"
 	"encoding/hex"
 	"errors"
@@ -283,8 +284,8 @@ func Parse(name string, data []byte) (*Spec, error) {
 	if err := checkRaw(name, data); err != nil {
 		return nil, err
 	}
-	p := &parser{file: name, data: data}
-	md, err := toml.Decode(string(data), &p.root)
+	p := &parser{file: name, data: skipBOM(data)}
+	md, err := toml.Decode(string(p.data), &p.root)
 	if err != nil {
 		var pe toml.ParseError
 		if errors.As(err, &pe) {
@@ -429,6 +430,28 @@ func (p *parser) lineOf(k toml.Key) int {
 	return 0
 }
 
+// The byte-order marks skipBOM removes: UTF-8's, and the same three bytes
+// read as Latin-1 and saved again as UTF-8 ("ï»¿"), which an editor's
+// conversion leaves at the start of a file. Neither can begin valid TOML.
+var (
+	utf8BOM    = []byte("\ufeff")
+	latin1BOM  = []byte("\u00ef\u00bb\u00bf")
+	leadingBOM = [][]byte{utf8BOM, latin1BOM}
+)
+
+// skipBOM returns data without the byte-order marks at its start.
+func skipBOM(data []byte) []byte {
+	for again := true; again; {
+		again = false
+		for _, b := range leadingBOM {
+			if bytes.HasPrefix(data, b) {
+				data, again = data[len(b):], true
+			}
+		}
+	}
+	return data
+}
+
 // lookup returns the value at a dotted key and whether it is present.
 func (p *parser) lookup(dotted string) (any, bool) {
 	parts := strings.Split(dotted, ".")
@@ -446,7 +469,37 @@ func (p *parser) lookup(dotted string) (any, bool) {
 }
 
 func (p *parser) errAt(dotted string, v any, rule string, args ...any) error {
-	return &Error{File: p.file, Line: p.lineOf(strings.Split(dotted, ".")), Key: dotted, Value: show(v), Rule: fmt.Sprintf(rule, args...)}
+	key := strings.Split(dotted, ".")
+	line := p.lineOf(key)
+	value := show(v)
+	switch v.(type) {
+	case float64, int64:
+		// A number is echoed as written ("-1e6", not "-1e+06").
+		if raw := p.numberText(line, key[len(key)-1]); raw != "" {
+			value = units.Clip(raw, units.MaxEcho)
+		}
+	}
+	return &Error{File: p.file, Line: line, Key: dotted, Value: value, Rule: fmt.Sprintf(rule, args...)}
+}
+
+// reNumberLine is a line "key = number", with an optional comment.
+var reNumberLine = regexp.MustCompile(`^\s*([A-Za-z0-9_-]+)\s*=\s*([-+0-9A-Za-z._]+)\s*(?:#.*)?$`)
+
+// numberText returns the text of the number given to key on line (1-based)
+// of the spec, or "" when that line is not a plain "key = number".
+func (p *parser) numberText(line int, key string) string {
+	if line < 1 {
+		return ""
+	}
+	lines := bytes.SplitN(p.data, []byte("\n"), line+1)
+	if len(lines) < line {
+		return ""
+	}
+	m := reNumberLine.FindSubmatch(bytes.TrimRight(lines[line-1], "\r"))
+	if m == nil || string(m[1]) != key {
+		return ""
+	}
+	return string(m[2])
 }
 
 // show writes a value as it would appear in TOML, cut to units.MaxEcho
@@ -563,8 +616,14 @@ func (p *parser) quantityOf(dotted string, v any, k units.Kind) (float64, error)
 	case string:
 		f, err := units.Parse(x, k)
 		if err != nil {
+			if rule := microRule(x, k); rule != "" {
+				return 0, p.errAt(dotted, v, "%s", rule)
+			}
 			var ue *units.Error
 			if errors.As(err, &ue) {
+				if ue.Rule == "out of range for a 64-bit float" {
+					return 0, p.errAt(dotted, v, "%s", rangeRule(k))
+				}
 				return 0, p.errAt(dotted, v, "%s", ue.Rule)
 			}
 			return 0, p.errAt(dotted, v, "%v", err)
@@ -572,6 +631,43 @@ func (p *parser) quantityOf(dotted string, v any, k units.Kind) (float64, error)
 		return f, nil
 	}
 	return 0, p.errAt(dotted, v, "want a number in %s or text with a unit such as %s, not %s", unit, example, typeName(v))
+}
+
+// reMicro is a quantity with the prefix micro: "1 μHz", "2.5uHz", "3 µS/s".
+var reMicro = regexp.MustCompile(`^\s*([-+]?[0-9.]+(?:[eE][-+]?[0-9]+)?)\s*(?:μ|µ|u)(Hz|hz|HZ|S/s|sps)\s*$`)
+
+// microRule says that the prefix micro is not taken (package units reads
+// Hz, k, M and G), with the value in Hz; "" when s has no such prefix.
+func microRule(s string, k units.Kind) string {
+	if k == units.Level {
+		return ""
+	}
+	m := reMicro.FindStringSubmatch(s)
+	if m == nil {
+		if strings.ContainsAny(s, "μµ") {
+			return "the unit prefix μ (micro) is not supported: give the value in Hz, e.g. \"1e-6 Hz\" for 1 μHz"
+		}
+		return ""
+	}
+	hz := m[1] + "e-6"
+	if strings.ContainsAny(m[1], "eE") {
+		f, err := strconv.ParseFloat(m[1], 64)
+		if err != nil {
+			return ""
+		}
+		hz = strconv.FormatFloat(f*1e-6, 'g', -1, 64)
+	}
+	return fmt.Sprintf("the unit prefix μ (micro) is not supported: write %q", hz+" Hz")
+}
+
+// rangeRule is the rule of a number too large (or too small) for any
+// quantity, in the ranges the spec takes.
+func rangeRule(k units.Kind) string {
+	if k == units.Level {
+		return fmt.Sprintf("lies outside the supported range: rejection lies in (0, %v] dB and ripple in (0, %v] dB", chain.MaxRejectionDB, chain.MaxRippleDB)
+	}
+	e := func(v float64) string { return strings.Replace(strconv.FormatFloat(v, 'g', -1, 64), "e+", "e", 1) }
+	return fmt.Sprintf("lies outside the supported range: rates lie in [%s, %s] Hz", e(chain.MinRateHz), e(chain.MaxRateHz))
 }
 
 // rejectionMask reads rejection_mask: a list of [frequency, rejection]
@@ -643,6 +739,11 @@ func (p *parser) integer(dotted string, lo, hi int, unit string) (int, bool, err
 		return 0, false, nil
 	}
 	x, ok := v.(int64)
+	if f, isFloat := v.(float64); isFloat && f == math.Trunc(f) && math.Abs(f) < 1e15 {
+		// 1e2 or 100.0: TOML reads an exponent or a point as a number with
+		// a fraction, whatever its value.
+		return 0, false, p.errAt(dotted, v, "want a whole number written in digits alone, without an exponent or a decimal point: write %d", int64(f))
+	}
 	if !ok {
 		return 0, false, p.errAt(dotted, v, "want a whole number, not %s", typeName(v))
 	}

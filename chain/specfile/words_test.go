@@ -97,3 +97,70 @@ func TestLeastAccumulatorByHand(t *testing.T) {
 		}
 	}
 }
+
+// Values written in ways the spec does not take are refused in the user's
+// own text and words, on one line: whole numbers with an exponent, the
+// prefix micro, numbers beyond any range; a leading byte-order mark is
+// skipped.
+func TestValueWording(t *testing.T) {
+	base := `input_rate = "48 MHz"
+output_rate = "1.5 MHz"
+passband = "500 kHz"
+ripple = "0.5 dB"
+rejection = "60 dB"
+`
+	cases := []struct {
+		name, text string
+		frags      []string // nil: accepted
+	}{
+		{"whole number with an exponent", base + "[words]\ninput = 1e2\n",
+			[]string{"spec.toml:7: words.input = 1e2:", "without an exponent or a decimal point: write 100"}},
+		{"whole number with a point", base + "[words]\ninput = 16.0 # ADC\n",
+			[]string{"words.input = 16.0:", "write 16"}},
+		{"a fraction stays a fraction", base + "[words]\ninput = 16.5\n",
+			[]string{"words.input = 16.5:", "want a whole number, not a number with a fraction"}},
+		{"negative rate echoed as written", strings.Replace(base, `"48 MHz"`, "-1e6", 1),
+			[]string{"spec.toml:1: input_rate = -1e6:", "above 0 Hz"}},
+		{"micro, Greek mu", strings.Replace(base, `"500 kHz"`, `"1 μHz"`, 1),
+			[]string{`passband = "1 μHz"`, `the unit prefix μ (micro) is not supported: write "1e-6 Hz"`}},
+		{"micro, micro sign and exponent", strings.Replace(base, `"500 kHz"`, `"2.5e3 µHz"`, 1),
+			[]string{`the unit prefix μ (micro) is not supported: write "0.0025 Hz"`}},
+		{"micro, u", strings.Replace(base, `"500 kHz"`, `"1 uHz"`, 1),
+			[]string{`passband = "1 uHz"`, `write "1e-6 Hz"`}},
+		{"micro alone", strings.Replace(base, `"500 kHz"`, `"1 μ"`, 1),
+			[]string{`the unit prefix μ (micro) is not supported`}},
+		{"60 000 digits", strings.Replace(base, `"48 MHz"`, `"`+strings.Repeat("9", 60000)+`"`, 1),
+			[]string{`input_rate = "` + strings.Repeat("9", 60) + `..."`, "lies outside the supported range: rates lie in [1e-30, 1e30] Hz"}},
+		{"level beyond range", strings.Replace(base, `"60 dB"`, `"1e999 dB"`, 1),
+			[]string{"lies outside the supported range: rejection lies in (0, 150] dB"}},
+		{"byte-order mark", "\ufeff" + base, nil},
+		{"byte-order mark saved as Latin-1 text", "\u00ef\u00bb\u00bf" + base, nil},
+		{"two byte-order marks", "\ufeff\ufeff" + base, nil},
+	}
+	for _, c := range cases {
+		t.Run(c.name, func(t *testing.T) {
+			s, err := Parse("spec.toml", []byte(c.text))
+			if c.frags == nil {
+				if err != nil {
+					t.Fatalf("refused: %v", err)
+				}
+				if s.Chain.InputRate != 48e6 {
+					t.Errorf("input_rate %v", s.Chain.InputRate)
+				}
+				return
+			}
+			if err == nil {
+				t.Fatal("accepted")
+			}
+			msg := err.Error()
+			if strings.Contains(msg, "\n") || len(msg) > 400 || strings.Contains(msg, "64-bit float") || strings.Contains(msg, "e+") {
+				t.Errorf("not one short line in the user's words: %q", msg)
+			}
+			for _, f := range c.frags {
+				if !strings.Contains(msg, f) {
+					t.Errorf("%q lacks %q", msg, f)
+				}
+			}
+		})
+	}
+}

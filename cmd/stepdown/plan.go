@@ -7,10 +7,12 @@ import (
 	"io"
 	"math"
 	"os"
+	"regexp"
 	"slices"
 	"strings"
 	"sync"
 	"time"
+	"unicode"
 
 	"github.com/schollz/progressbar/v3"
 	"github.com/urfave/cli/v2"
@@ -373,13 +375,43 @@ func (j *job) designNamed(plan []chain.StagePlan, set optimize.Settings) (optimi
 				if dir == chain.Interpolate {
 					k = len(plan) - 1 - k
 				}
-				where = fmt.Sprintf("stage %d (%s): ", k+1, chain.Notation(written[k:k+1]))
+				stage := chain.Notation(written[k : k+1])
+				where = fmt.Sprintf("stage %d (%s): ", k+1, stage)
+				if r := rateChangeRule(pe.Rule, stage); r != "" {
+					pe.Rule = r
+				}
 			}
 			return cand, why, usagef("--chain %q: %s%s", clip(notation), where, specfile.InFileTerms(pe.Rule))
 		}
 		return cand, why, fmt.Errorf("check: %s", specfile.InFileTerms(err.Error()))
 	}
 	return cand, why, nil
+}
+
+// reRateChange is the library's rule for a fractional stage whose L/M
+// does not give the spec's ratio.
+var reRateChange = regexp.MustCompile(`^rate change (\d+)/(\d+): (?:with the integer stages' (\d+) )?the ratio \d+/\d+ needs (\d+)/(\d+)$`)
+
+// rateChangeRule says the library's rule for a fractional stage of the
+// wrong L/M in the notation's own terms: what the stage does, what the
+// spec needs from it and how to write that; "" for any other rule. The
+// library says L/M as written, for an interpolation chain too.
+func rateChangeRule(rule, stage string) string {
+	m := reRateChange.FindStringSubmatch(rule)
+	if m == nil {
+		return ""
+	}
+	l, mm, nl, nm := m[1], m[2], m[4], m[5]
+	kind := strings.TrimRightFunc(stage, func(r rune) bool { return r == '/' || unicode.IsDigit(r) })
+	if i := strings.IndexFunc(stage, unicode.IsDigit); i >= 0 {
+		kind = stage[:i]
+	}
+	others := ""
+	if m[3] != "" {
+		others = fmt.Sprintf(" beside the other stages' factor %s", m[3])
+	}
+	return fmt.Sprintf("%s changes the rate by %s/%s (up %s, down %s), but the spec's rates need up %s, down %s from this stage%s: write %s%s/%s",
+		stage, l, mm, l, mm, nl, nm, others, kind, nl, nm)
 }
 
 // planFront is the front check compares its chain with: that of the
