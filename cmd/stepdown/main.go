@@ -131,7 +131,8 @@ var (
 func flagError(cmd *cli.Command, err error) error {
 	msg := err.Error()
 	name := "stepdown"
-	if cmd != nil {
+	if cmd != nil && cmd.Name != "" && cmd.Name != name {
+		// The app's own flags come with a command named after the app.
 		name = "stepdown " + cmd.Name
 	}
 	if m := reUndefined.FindStringSubmatch(msg); m != nil {
@@ -223,6 +224,25 @@ func newApp(stdout, stderr io.Writer) *cli.App {
 	return app
 }
 
+// reLeadingZeros is a whole number written with leading zeros, which the
+// flag library would read as octal.
+var reLeadingZeros = regexp.MustCompile(`^([-+]?)0+([0-9]+)$`)
+
+// decimal returns the value v of the whole-number flag name as the flag
+// library reads it in decimal: leading zeros are dropped ("010" is ten, not
+// eight), and hexadecimal, octal and binary forms and digit separators,
+// which the library would take, are refused as in the spec.
+func decimal(name, v string) (string, error) {
+	if m := reLeadingZeros.FindStringSubmatch(v); m != nil {
+		return m[1] + m[2], nil
+	}
+	t := strings.TrimLeft(v, "+-")
+	if strings.Contains(t, "_") || len(t) > 1 && t[0] == '0' && strings.ContainsRune("xXoObB", rune(t[1])) {
+		return "", usagef("--%s %q: want a whole number in decimal digits (hexadecimal, octal, binary and _ separators are not taken)", name, clip(v))
+	}
+	return v, nil
+}
+
 // reorderArgs moves a command's flags in front of its positional arguments,
 // because the standard flag parser stops at the first positional argument and
 // users write "stepdown check spec.toml --chain ...". A flag that takes a
@@ -242,11 +262,12 @@ func reorderArgs(app *cli.App, args []string) ([]string, error) {
 	if cmd == nil {
 		return args, nil
 	}
-	takesValue := map[string]bool{}
+	takesValue, isInt := map[string]bool{}, map[string]bool{}
 	for _, f := range cmd.Flags {
 		_, isBool := f.(*cli.BoolFlag)
+		_, isI := f.(*cli.IntFlag)
 		for _, n := range f.Names() {
-			takesValue[n] = !isBool
+			takesValue[n], isInt[n] = !isBool, isI
 		}
 	}
 	// isFlag reports whether a word names one of the command's flags.
@@ -273,16 +294,35 @@ func reorderArgs(app *cli.App, args []string) ([]string, error) {
 			pos = append(pos, a)
 			continue
 		}
-		flags = append(flags, a)
 		name := strings.TrimLeft(a, "-")
-		if strings.Contains(name, "=") || !takesValue[name] {
+		if n, v, ok := strings.Cut(name, "="); ok {
+			if isInt[n] {
+				d, err := decimal(n, v)
+				if err != nil {
+					return nil, err
+				}
+				a = "--" + n + "=" + d
+			}
+			flags = append(flags, a)
+			continue
+		}
+		flags = append(flags, a)
+		if !takesValue[name] {
 			continue
 		}
 		if i+1 >= len(rest) || isFlag(rest[i+1]) {
 			return nil, usagef("--%s: missing its value (see stepdown %s --help)", name, cmd.Name)
 		}
 		i++
-		flags = append(flags, rest[i])
+		v := rest[i]
+		if isInt[name] {
+			d, err := decimal(name, v)
+			if err != nil {
+				return nil, err
+			}
+			v = d
+		}
+		flags = append(flags, v)
 	}
 	out := append([]string{}, args[:2]...)
 	out = append(out, flags...)
