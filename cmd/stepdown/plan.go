@@ -186,7 +186,7 @@ func runPlan(c *cli.Context) error {
 		return fmt.Errorf("interrupted; %s left as it was", clip(j.out.Dir()))
 	}
 	if err != nil {
-		return planError(err)
+		return planError(c, err)
 	}
 	if res.Partial && len(res.Front) == 0 {
 		what := "before any chain was designed"
@@ -218,12 +218,28 @@ func runPlan(c *cli.Context) error {
 // search larger than the optimiser scores is a spec error (status 2), whose
 // message names the most search.max_stages that fits and the keys that
 // narrow it; anything else is a runtime failure.
-func planError(err error) error {
-	msg := specfile.InFileTerms(err.Error())
+func planError(c *cli.Context, err error) error {
+	msg := flagTerms(c, specfile.InFileTerms(err.Error()))
 	if searchTooLarge(msg) {
 		return usagef("plan: %s", msg)
 	}
 	return fmt.Errorf("plan: %s", msg)
+}
+
+// reMaxStagesFlag is the flag InFileTerms names beside search.max_stages.
+var reMaxStagesFlag = regexp.MustCompile(` \(or --max-stages(?: \d+)?\)| or --max-stages`)
+
+// flagTerms drops the --max-stages flag from msg when the command has no
+// such flag (check, simulate): the spec key alone is named.
+func flagTerms(c *cli.Context, msg string) string {
+	if c != nil && c.Command != nil {
+		for _, f := range c.Command.Flags {
+			if slices.Contains(f.Names(), "max-stages") {
+				return msg
+			}
+		}
+	}
+	return reMaxStagesFlag.ReplaceAllString(msg, "")
 }
 
 // searchTooLarge reports whether msg is optimize's refusal of a search
@@ -435,7 +451,7 @@ func (j *job) planFront(c *cli.Context, set optimize.Settings) (*report.Comparis
 	}
 	if err != nil {
 		// The chain is still checked; only the comparison is left out.
-		j.compareNote = "not compared with a plan's front: planning the spec failed: " + specfile.InFileTerms(err.Error())
+		j.compareNote = "not compared with a plan's front: planning the spec failed: " + flagTerms(c, specfile.InFileTerms(err.Error()))
 		return nil, nil
 	}
 	rep, err := report.NewContext(c.Context, "plan", j.spec, res)

@@ -3,6 +3,7 @@ package main
 import (
 	"bytes"
 	"encoding/json"
+	"errors"
 	"fmt"
 	"math"
 	"path/filepath"
@@ -206,10 +207,10 @@ func runSimulate(c *cli.Context) error {
 			return fmt.Errorf("interrupted; %s left as it was", clip(j.out.Dir()))
 		}
 		if err != nil {
-			return planError(err)
+			return planError(c, err)
 		}
 		if len(res.Front) == 0 {
-			return emptyFront(res, clip(j.out.Dir()))
+			return errors.New(flagTerms(c, emptyFront(res, clip(j.out.Dir())).Error()))
 		}
 		cand = res.Front[res.Recommended]
 	}
