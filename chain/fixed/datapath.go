@@ -644,6 +644,11 @@ func planNonRecursive(st Stage, in, ob int) (StageWidths, error) {
 	return sw, nil
 }
 
+// MaxAccumulatorBits is the widest FIR, half-band, polyphase or Farrow
+// accumulator a word-length plan builds: the bit-true run and the
+// rounded-tap checks sum in int64. Wider ones are refused.
+const MaxAccumulatorBits = 63
+
 // planFIR plans one FIR or half-band stage; minBits (0: none) is the
 // narrowest width the "auto" search may return.
 // AccumulatorBits returns the narrowest two's-complement width that holds
@@ -735,8 +740,8 @@ func planFIR(st Stage, rate float64, in, ob, coefBits int, s Settings, minBits i
 			return StageWidths{}, err
 		}
 	} else {
-		if sw.AccumulatorBits = AccumulatorBits(cf.Ints, in); sw.AccumulatorBits > 63 {
-			return StageWidths{}, fmt.Errorf("accumulator of %d-bit data and %d-bit coefficients needs %d bits; at most 63 are supported", in, cf.Bits, sw.AccumulatorBits)
+		if sw.AccumulatorBits = AccumulatorBits(cf.Ints, in); sw.AccumulatorBits > MaxAccumulatorBits {
+			return StageWidths{}, fmt.Errorf("accumulator of %d-bit data and %d-bit coefficients needs %d bits; at most %d are supported", in, cf.Bits, sw.AccumulatorBits, MaxAccumulatorBits)
 		}
 		// The accumulator holds Frac + in - 1 fractional bits; the output ob - 1.
 		sw.OutputShift = cf.Frac + in - ob

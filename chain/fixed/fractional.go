@@ -169,8 +169,8 @@ func planPolyphase(st Stage, rate float64, in, ob, coefBits int, s Settings, min
 		gf := math.Ldexp(float64(g), -cf.Frac)
 		sw.PhaseGainMin, sw.PhaseGainMax = math.Min(sw.PhaseGainMin, gf), math.Max(sw.PhaseGainMax, gf)
 	}
-	if acc > 63 {
-		return StageWidths{}, fmt.Errorf("accumulator of %d-bit data and %d-bit coefficients needs %d bits; at most 63 are supported", in, cf.Bits, acc)
+	if acc > MaxAccumulatorBits {
+		return StageWidths{}, fmt.Errorf("accumulator of %d-bit data and %d-bit coefficients needs %d bits; at most %d are supported", in, cf.Bits, acc, MaxAccumulatorBits)
 	}
 	sw.AccumulatorBits = acc
 	sw.OutputShift = cf.Frac + in - ob
@@ -390,8 +390,8 @@ func planFarrow(st Stage, rate float64, in, ob, coefBits int, s Settings, minBit
 		}
 		vmax[p] = max(pos, neg) << (in - 1)
 	}
-	if acc > 63 {
-		return StageWidths{}, fmt.Errorf("accumulator of %d-bit data and %d-bit coefficients needs %d bits; at most 63 are supported", in, cf.Bits, acc)
+	if acc > MaxAccumulatorBits {
+		return StageWidths{}, fmt.Errorf("accumulator of %d-bit data and %d-bit coefficients needs %d bits; at most %d are supported", in, cf.Bits, acc, MaxAccumulatorBits)
 	}
 	sw.AccumulatorBits = acc
 	sw.OutputShift = cf.Frac + in - ob

@@ -150,8 +150,8 @@ func planFarrowT(sw StageWidths, st Stage, in, ob int) (StageWidths, error) {
 	}
 	sw.Gain = total / float64(m)
 	acc := bigWidth(lo, hi)
-	if acc > 63 {
-		return StageWidths{}, fmt.Errorf("accumulator of %d-bit mu products and %d-bit coefficients needs %d bits; at most 63 are supported", in+g, cf.Bits, acc)
+	if acc > MaxAccumulatorBits {
+		return StageWidths{}, fmt.Errorf("accumulator of %d-bit mu products and %d-bit coefficients needs %d bits; at most %d are supported", in+g, cf.Bits, acc, MaxAccumulatorBits)
 	}
 	sw.AccumulatorBits = acc
 	sw.OutputShift = cf.Frac + g + in - ob

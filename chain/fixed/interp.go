@@ -109,8 +109,8 @@ func interpAccumulator(sw *StageWidths, st Stage, in, ob int) error {
 	for p := 0; p < l && p < len(cf.Ints); p++ {
 		acc = max(acc, AccumulatorBits(phaseTaps(cf.Ints, l, p), in))
 	}
-	if acc > 63 {
-		return fmt.Errorf("accumulator of %d-bit data and %d-bit coefficients needs %d bits; at most 63 are supported", in, cf.Bits, acc)
+	if acc > MaxAccumulatorBits {
+		return fmt.Errorf("accumulator of %d-bit data and %d-bit coefficients needs %d bits; at most %d are supported", in, cf.Bits, acc, MaxAccumulatorBits)
 	}
 	sw.AccumulatorBits = acc
 	fl := log2Floor(l)

@@ -1063,11 +1063,6 @@ func (p *parser) build() (*Spec, error) {
 	return out, nil
 }
 
-// maxAccumulatorBits is the widest FIR or half-band accumulator the
-// word-length plan builds (chain/fixed's planFIR and interpAccumulator
-// refuse wider ones: the sums run in int64).
-const maxAccumulatorBits = 63
-
 // leastAccumulator is the narrowest accumulator any FIR or half-band stage
 // with coef-bit coefficients and data-bit words can have, by
 // fixed.AccumulatorBits: fixed.Quantize scales the largest |tap| into the
@@ -1078,7 +1073,7 @@ func leastAccumulator(data, coef int) int {
 }
 
 // accumulatorFits refuses a fixed coefficient width that no FIR or
-// half-band stage can use: its accumulator would pass maxAccumulatorBits
+// half-band stage can use: its accumulator would pass fixed.MaxAccumulatorBits
 // even for the narrowest data word such a stage can see (words.input as the
 // first stage; with two stages or more, words.output can be the narrower,
 // as the word between stages is words.output wide or, after a CIC, no
@@ -1106,24 +1101,24 @@ func (p *parser) accumulatorFits(s *Spec) error {
 		data, key = out, "words.output"
 	}
 	need := leastAccumulator(data, cs.CoefBits)
-	if need <= maxAccumulatorBits {
+	if need <= fixed.MaxAccumulatorBits {
 		return nil
 	}
 	coef := 0 // the widest coefficient word that fits with data
 	for b := MinWordBits; b <= MaxCoefBits; b++ {
-		if leastAccumulator(data, b) <= maxAccumulatorBits {
+		if leastAccumulator(data, b) <= fixed.MaxAccumulatorBits {
 			coef = b
 		}
 	}
 	words := 0 // the widest data word that fits with the coefficients
 	for w := MinWordBits; w <= MaxWordBits; w++ {
-		if leastAccumulator(w, cs.CoefBits) <= maxAccumulatorBits {
+		if leastAccumulator(w, cs.CoefBits) <= fixed.MaxAccumulatorBits {
 			words = w
 		}
 	}
 	raw, _ := p.lookup("words.coefficients")
 	rule := fmt.Sprintf("with %s = %d, a FIR or half-band stage's accumulator needs at least %d bits (data, coefficient and sum growth), and at most %d are supported: use words.coefficients <= %d",
-		key, data, need, maxAccumulatorBits, coef)
+		key, data, need, fixed.MaxAccumulatorBits, coef)
 	if words >= MinWordBits {
 		rule += fmt.Sprintf(", or %s <= %d", key, words)
 	}
