@@ -649,8 +649,6 @@ func planNonRecursive(st Stage, in, ob int) (StageWidths, error) {
 // rounded-tap checks sum in int64. Wider ones are refused.
 const MaxAccumulatorBits = 63
 
-// planFIR plans one FIR or half-band stage; minBits (0: none) is the
-// narrowest width the "auto" search may return.
 // AccumulatorBits returns the narrowest two's-complement width that holds
 // every sum of products of the integer taps h with inBits-bit data, the
 // worst case for any input: with P the sum of the positive taps and N the
@@ -685,6 +683,8 @@ func AccumulatorBits(h []int64, inBits int) int {
 	return 1 + max(neg, bits.Len64(hi))
 }
 
+// planFIR plans one FIR or half-band stage; minBits (0: none) is the
+// narrowest width the "auto" search may return.
 func planFIR(st Stage, rate float64, in, ob, coefBits int, s Settings, minBits int) (StageWidths, error) {
 	if len(st.Taps) == 0 {
 		return StageWidths{}, fmt.Errorf("FIR stage has no taps (an estimate cannot be quantised)")
