@@ -57,9 +57,11 @@ func build(ctx context.Context, spec Spec, plan []StagePlan, s Settings, design 
 	if s.MaxTaps < 0 || (s.MaxTaps > 0 && s.MaxTaps < 3) {
 		return nil, fmt.Errorf("chain: Settings.MaxTaps = %d: must be 0 (no bound) or at least 3", s.MaxTaps)
 	}
-	if spec.Fractional() || (len(plan) > 0 && plan[len(plan)-1].Kind.Fractional()) {
-		// A fractional stage ends the chain; an integer ratio may be
-		// made up of one too (fir5 > fir10 > poly50/53 for D = 53).
+	if spec.Fractional() || planFracIndex(plan) >= 0 {
+		// A fractional stage ends the chain or follows its CIC; an
+		// integer ratio may be made up of one too (fir5 > fir10 >
+		// poly50/53 for D = 53). A fractional stage elsewhere is refused
+		// there, in the words of where it may go.
 		return buildFractional(ctx, spec, plan, s, design)
 	}
 	// Estimates keep the stage-alone rule's limits: the credit needs the

@@ -2,6 +2,7 @@ package chain
 
 import (
 	"math/rand/v2"
+	"strings"
 	"testing"
 )
 
@@ -57,6 +58,34 @@ func TestFraction(t *testing.T) {
 		}
 		if !ok || q != bq || p != bp {
 			t.Fatalf("x=%v rel=%g: fractionOf = %d/%d %v, brute force %d/%d", x, rel, p, q, ok, bp, bq)
+		}
+	}
+}
+
+// A fractional stage out of place in a chain of an integer ratio is
+// refused with where it may go, in either direction, as for a fractional
+// ratio; in place, and just after the CIC, it is designed.
+func TestFractionalStageOutOfPlaceIntegerRatio(t *testing.T) {
+	rx := Spec{InputRate: 16e6, OutputRate: 1e6, Passband: 300e3, RippleDB: 0.1, RejectionDB: 70, Complex: true}
+	tx := rx
+	tx.InputRate, tx.OutputRate = rx.OutputRate, rx.InputRate
+	cic := StagePlan{Kind: CIC, Factor: 2, CICOrder: 3, CICDelay: 1}
+	for _, tc := range []struct {
+		spec Spec
+		plan []StagePlan
+		want string // "" for a chain that designs
+	}{
+		{rx, []StagePlan{{Kind: Polyphase, Factor: 1, Up: 1, Down: 8}, cic}, "may only end the chain"},
+		{tx, []StagePlan{{Kind: Polyphase, Factor: 1, Up: 8, Down: 1}, cic}, "may only begin the chain"},
+		{rx, []StagePlan{cic, {Kind: Polyphase, Factor: 1, Up: 1, Down: 8}}, ""},
+		{rx, []StagePlan{{Kind: CIC, Factor: 4, CICOrder: 3, CICDelay: 1}, {Kind: Polyphase, Factor: 1, Up: 1, Down: 2}, {Kind: FIR, Factor: 2}}, ""},
+	} {
+		_, err := Design(tc.spec, tc.plan, Settings{})
+		switch {
+		case tc.want == "" && err != nil:
+			t.Errorf("%s: %v", Notation(tc.plan), err)
+		case tc.want != "" && (err == nil || !strings.Contains(err.Error(), tc.want) || strings.Contains(err.Error(), "Kind =")):
+			t.Errorf("%s: error %v, want one saying %q", Notation(tc.plan), err, tc.want)
 		}
 	}
 }
