@@ -3,6 +3,7 @@ package main
 import (
 	"bytes"
 	"encoding/json"
+	"errors"
 	"os"
 	"os/exec"
 	"path/filepath"
@@ -43,7 +44,7 @@ func TestInterruptLeavesNoFiles(t *testing.T) {
 	// Wait (not a timing assertion) until the run has created its temporary
 	// folder, which happens after the spec is read and before the search.
 	for i := 0; i < 600; i++ {
-		if m, _ := filepath.Glob(filepath.Join(dir, ".stepdown-tmp-*")); len(m) > 0 {
+		if m, _ := filepath.Glob(filepath.Join(dir, ".stepdown-run-*")); len(m) > 0 {
 			break
 		}
 		time.Sleep(50 * time.Millisecond)
@@ -90,5 +91,51 @@ func TestTimeout(t *testing.T) {
 		}
 	default:
 		t.Errorf("exit %d: %s", r.code, r.stderr)
+	}
+}
+
+// A run killed outside stepdown's control (SIGKILL) leaves its temporary
+// folder; the next run in the same folder removes it, since no live run
+// holds its lock, and leaves a live run's alone.
+func TestKilledRunSwept(t *testing.T) {
+	dir := t.TempDir()
+	must(t, os.WriteFile(filepath.Join(dir, "spec.toml"), []byte(slowSpec), 0o644))
+	start := func(out string) (*exec.Cmd, string) {
+		cmd := exec.Command(binary, "plan", "spec.toml", "--out", out, "--quiet")
+		cmd.Dir = dir
+		must(t, cmd.Start())
+		// Wait (not a timing assertion) for its temporary folder.
+		for i := 0; i < 600; i++ {
+			m, _ := filepath.Glob(filepath.Join(dir, ".stepdown-run-*"))
+			for _, p := range m {
+				if !strings.HasSuffix(p, "-seen") {
+					return cmd, p
+				}
+			}
+			time.Sleep(50 * time.Millisecond)
+		}
+		t.Fatal("no temporary folder appeared")
+		return nil, ""
+	}
+	killed, dead := start("a")
+	must(t, killed.Process.Kill())
+	_ = killed.Wait()
+	if _, err := os.Stat(dead); err != nil {
+		t.Fatalf("the killed run's temporary folder is already gone: %v", err)
+	}
+	// Mark it so that start() below finds the live run's folder.
+	must(t, os.Rename(dead, dead+"-seen"))
+	dead += "-seen"
+	live, held := start("b")
+	defer func() { _ = live.Process.Kill(); _ = live.Wait() }()
+	if _, err := os.Stat(dead); !errors.Is(err, os.ErrNotExist) {
+		t.Errorf("the killed run's temporary folder is still there after another run started (%v)", err)
+	}
+	r := runBinary(t, dir, nil, "plan", "--out", "c", "--quiet") // the built-in example
+	if r.code != 0 {
+		t.Fatalf("plan: exit %d: %s", r.code, r.stderr)
+	}
+	if _, err := os.Stat(held); err != nil {
+		t.Errorf("a third run removed the live run's temporary folder: %v", err)
 	}
 }

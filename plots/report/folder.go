@@ -7,6 +7,8 @@ import (
 	"fmt"
 	"os"
 	"path/filepath"
+	"strings"
+	"time"
 
 	"github.com/stepdown-dsp/stepdown/chain/units"
 )
@@ -17,9 +19,21 @@ import (
 //
 // The temporary folder, and the name the previous output is moved to while
 // the new one takes its place, are short fixed prefixes with a random
-// suffix (.stepdown-tmp-*, .stepdown-old-*) in the same parent folder, so
+// suffix (.stepdown-run-*, .stepdown-old-*) in the same parent folder, so
 // they fit wherever the output folder's own name fits and a rename stays
 // within one file system.
+//
+// On Unix a run holds an flock on its temporary folder from its creation
+// (made as .stepdown-new-*, locked, then renamed) to its end, however it
+// ends: the kernel drops the lock of a killed process. A later run in the
+// same parent removes the .stepdown-run-* folders whose lock it can take,
+// the leftovers of runs killed outside stepdown's control (SIGKILL, a
+// crash, a power cut), and .stepdown-new-* folders over ten minutes old
+// that it can lock (a run holds that name for microseconds). It never
+// touches a folder a live run holds, nor .stepdown-old-* (which can hold a
+// previous output that a run killed in the middle of its rename did not
+// put back), nor the unlocked temporaries of older stepdown versions
+// (.stepdown-tmp-*).
 //
 // Its zero value is not usable: OpenFolder makes one. Messages name the
 // folder as role "dir" (the command line's role is "--out").
@@ -28,6 +42,7 @@ type Folder struct {
 	role   string // what messages call it
 	abs    string
 	tmp    string
+	lock   *os.File // the flock on tmp (nil where none is taken)
 	exists bool
 }
 
@@ -56,9 +71,14 @@ func failure(format string, args ...any) error {
 
 // Prefixes of the temporary names beside the output folder.
 const (
-	tmpPrefix = ".stepdown-tmp-"
-	oldPrefix = ".stepdown-old-"
+	birthPrefix = ".stepdown-new-"
+	tmpPrefix   = ".stepdown-run-"
+	oldPrefix   = ".stepdown-old-"
 )
+
+// staleBirth is the age past which an unlocked .stepdown-new-* folder is a
+// leftover.
+const staleBirth = 10 * time.Minute
 
 // Seams for tests: the file-system calls whose failures commit handles.
 var (
@@ -112,17 +132,61 @@ func OpenFolder(dir, role string) (*Folder, error) {
 			return nil, failure("%s %q: the previous output could not be removed after the run (%v); fix its permissions or choose another folder", role, shown, err)
 		}
 	}
-	tmp, err := os.MkdirTemp(parent, tmpPrefix+"*")
+	birth, err := os.MkdirTemp(parent, birthPrefix+"*")
 	if err != nil {
 		return nil, failure("%s %q: cannot write in %q: %v", role, shown, units.Clip(parent, units.MaxEcho), unwrapPath(err))
 	}
-	o.tmp = tmp
+	o.tmp = birth
 	// MkdirTemp makes the folder private; the output is an ordinary folder.
-	if err := os.Chmod(tmp, 0o755); err != nil {
+	if err := os.Chmod(birth, 0o755); err != nil {
 		o.Discard()
 		return nil, failure("%s %q: %v", role, shown, unwrapPath(err))
 	}
+	// Locked before it takes the name that later runs sweep.
+	if o.lock, err = lockDir(birth); err != nil {
+		o.Discard()
+		return nil, failure("%s %q: cannot lock the temporary folder in %q: %v", role, shown, units.Clip(parent, units.MaxEcho), unwrapPath(err))
+	}
+	tmp := filepath.Join(parent, tmpPrefix+strings.TrimPrefix(filepath.Base(birth), birthPrefix))
+	if err := rename(birth, tmp); err != nil {
+		o.Discard()
+		return nil, failure("%s %q: cannot write in %q: %v", role, shown, units.Clip(parent, units.MaxEcho), unwrapPath(err))
+	}
+	o.tmp = tmp
+	sweepStale(parent)
 	return o, nil
+}
+
+// sweepStale removes, best effort, the temporary folders in parent left by
+// runs that ended without cleaning up (see Folder): those no live run
+// holds locked.
+func sweepStale(parent string) {
+	if !locksHeld {
+		return
+	}
+	entries, err := os.ReadDir(parent)
+	if err != nil {
+		return
+	}
+	for _, e := range entries {
+		name := e.Name()
+		run, born := strings.HasPrefix(name, tmpPrefix), strings.HasPrefix(name, birthPrefix)
+		if !e.IsDir() || !(run || born) {
+			continue
+		}
+		p := filepath.Join(parent, name)
+		if born {
+			if fi, err := e.Info(); err != nil || time.Since(fi.ModTime()) < staleBirth {
+				continue
+			}
+		}
+		f, err := lockDir(p)
+		if err != nil {
+			continue // a live run holds it, or it is gone
+		}
+		_ = removeAll(p)
+		f.Close()
+	}
 }
 
 // Markers are the files one of which every stepdown output folder holds:
@@ -200,6 +264,7 @@ func (o *Folder) Commit() error {
 			return failure("%s %q: cannot create it: %v", o.role, shown, unwrapPath(err))
 		}
 		o.tmp = ""
+		o.unlock()
 		return nil
 	}
 	old, err := unusedName(filepath.Dir(o.abs), oldPrefix)
@@ -223,6 +288,7 @@ func (o *Folder) Commit() error {
 		return failure("%s %q: cannot replace it: %v", o.role, shown, unwrapPath(err))
 	}
 	o.tmp = ""
+	o.unlock()
 	if err := removeAll(old); err != nil {
 		return failure("%s %q: the new output is in place, but the previous one could not be removed: remove %q yourself (%v)", o.role, shown, old, unwrapPath(err))
 	}
@@ -251,5 +317,14 @@ func (o *Folder) Discard() {
 	if o != nil && o.tmp != "" {
 		_ = removeAll(o.tmp)
 		o.tmp = ""
+	}
+	o.unlock()
+}
+
+// unlock releases the temporary folder's lock, if held.
+func (o *Folder) unlock() {
+	if o != nil && o.lock != nil {
+		o.lock.Close()
+		o.lock = nil
 	}
 }

@@ -6,6 +6,7 @@ import (
 	"path/filepath"
 	"strings"
 	"testing"
+	"time"
 )
 
 // runOut is one run's output step: prepare, write one report.json, commit.
@@ -163,5 +164,68 @@ func must(t *testing.T, err error) {
 	t.Helper()
 	if err != nil {
 		t.Fatal(err)
+	}
+}
+
+// OpenFolder sweeps the temporary folders no live run holds: a
+// .stepdown-run-* whose lock it can take, a .stepdown-new-* over ten
+// minutes old; it leaves a live run's, a fresh .stepdown-new-*, the
+// .stepdown-old-* that may hold a previous output, and older versions'
+// unlocked .stepdown-tmp-*.
+func TestOpenFolderSweepsStale(t *testing.T) {
+	if !locksHeld {
+		t.Skip("no flock on this system: nothing is swept")
+	}
+	parent := t.TempDir()
+	mk := func(name string, age time.Duration) string {
+		p := filepath.Join(parent, name)
+		if err := os.Mkdir(p, 0o755); err != nil {
+			t.Fatal(err)
+		}
+		if err := os.WriteFile(filepath.Join(p, "report.json"), []byte("{}"), 0o644); err != nil {
+			t.Fatal(err)
+		}
+		if age > 0 {
+			old := time.Now().Add(-age)
+			if err := os.Chtimes(p, old, old); err != nil {
+				t.Fatal(err)
+			}
+		}
+		return p
+	}
+	dead := mk(tmpPrefix+"dead", 0)
+	staleBorn := mk(birthPrefix+"stale", time.Hour)
+	keep := []string{mk(birthPrefix+"fresh", 0), mk(oldPrefix+"prev", time.Hour), mk(".stepdown-tmp-legacy", time.Hour)}
+	live, err := OpenFolder(filepath.Join(parent, "a"), "")
+	if err != nil {
+		t.Fatal(err)
+	}
+	defer live.Discard()
+	for _, p := range []string{dead, staleBorn} {
+		if _, err := os.Stat(p); !errors.Is(err, os.ErrNotExist) {
+			t.Errorf("%s: not swept (%v)", filepath.Base(p), err)
+		}
+	}
+	other, err := OpenFolder(filepath.Join(parent, "b"), "")
+	if err != nil {
+		t.Fatal(err)
+	}
+	defer other.Discard()
+	for _, p := range append(keep, live.tmp, other.tmp) {
+		if _, err := os.Stat(p); err != nil {
+			t.Errorf("%s: swept, want it kept (%v)", filepath.Base(p), err)
+		}
+	}
+	// A committed run's lock goes with its temporary name: after Commit
+	// and Discard nothing of the run is left but its output.
+	if err := live.Write([]File{{Name: "report.json", Data: []byte("{}")}}); err != nil {
+		t.Fatal(err)
+	}
+	if err := live.Commit(); err != nil {
+		t.Fatal(err)
+	}
+	live.Discard()
+	if live.lock != nil {
+		t.Error("the lock is still held after Commit and Discard")
 	}
 }
