@@ -16,6 +16,10 @@ const (
 	maxNotationDown   = 1 << 30
 )
 
+// MaxStageFactor is the largest factor of one stage (a CIC's R, a FIR's or
+// half-band's decimation): ParseNotation and Design refuse larger ones.
+const MaxStageFactor = maxNotationFactor
+
 // Notation returns the chain's compact notation, accepted back by ParseNotation.
 //
 // Stages are joined by " > " in signal order. A CIC is "cic<N>m<M>r<R>",

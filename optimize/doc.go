@@ -12,7 +12,8 @@
 // # Enumeration
 //
 // A candidate is an ordered factorisation of D into 1 to Settings.MaxStages
-// factors of at least 2 (every order, not only decreasing ones), with a kind
+// factors of at least 2 and at most chain.MaxStageFactor, 2^20, which is as
+// far as chain.Design goes (every order, not only decreasing ones), with a kind
 // for each stage: a CIC only as the first stage (every order and delay in
 // Settings.CICOrders and Settings.CICDelays), a half-band only for a factor
 // of 2, a FIR stage anywhere in its multiband and lowpass layouts. Where the

@@ -51,6 +51,20 @@ func divisors(n int) []int {
 	return lo
 }
 
+// stageFactors returns the divisors of n that one stage can take: at least
+// 2 and at most chain.MaxStageFactor, ascending. Above that a chain is
+// refused at design, so a ratio beyond 2^20 is split over two stages or
+// more.
+func stageFactors(n int) []int {
+	ds := divisors(n)
+	for i, f := range ds {
+		if f > chain.MaxStageFactor {
+			return ds[:i]
+		}
+	}
+	return ds
+}
+
 // cicForms returns the CIC forms to try: Recursive alone by default.
 func (sp *space) cicForms() []chain.CICForm {
 	if sp.forms == nil {
@@ -106,7 +120,7 @@ func (sp *space) completions(rem, pos int) int64 {
 	}
 	prefix := sp.d / rem
 	var total int64
-	for _, f := range divisors(rem) {
+	for _, f := range stageFactors(rem) {
 		c := int64(sp.choices(pos, prefix, f))
 		if c == 0 {
 			continue
@@ -175,7 +189,7 @@ func (sp *space) skips(st chain.StagePlan) bool {
 // firsts returns the first stages of the space's candidates in walk order.
 func (sp *space) firsts() []chain.StagePlan {
 	var out []chain.StagePlan
-	for _, f := range divisors(sp.d) {
+	for _, f := range stageFactors(sp.d) {
 		if sp.maxStages == 1 && f != sp.d {
 			continue
 		}
@@ -221,7 +235,7 @@ func (sp *space) walkFrom(first chain.StagePlan, visit func(plan []chain.StagePl
 		}
 		ds, ok := divs[rem]
 		if !ok {
-			ds = divisors(rem)
+			ds = stageFactors(rem)
 			divs[rem] = ds
 		}
 		prefix := sp.d / rem

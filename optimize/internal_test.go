@@ -674,3 +674,46 @@ func TestTooLargeNamesTheStagesThatFit(t *testing.T) {
 		}
 	}
 }
+
+// A stage's factor stays within chain.MaxStageFactor (2^20), which Design
+// refuses above: D = 2^30 over at most s stages has as many candidates
+// (one kind a stage) as there are compositions of 30 into at most s parts
+// of at most 20, counted here by brute force over the exponents, and the
+// walk gives each once with no factor above 2^20. A larger factor used to
+// be enumerated, spend the design budget and fail every design.
+func TestStageFactorLimit(t *testing.T) {
+	for _, stages := range []int{1, 2, 3, 4} {
+		var want int64
+		var rec func(left, parts int)
+		rec = func(left, parts int) {
+			if left == 0 {
+				want++
+				return
+			}
+			if parts == stages {
+				return
+			}
+			for a := 1; a <= 20 && a <= left; a++ {
+				rec(left-a, parts+1)
+			}
+		}
+		rec(30, 0)
+		sp := &space{d: 1 << 30, maxStages: stages, fir: true, sameLayout: func(int, int) bool { return true }}
+		if got := sp.count(); got != want {
+			t.Errorf("D = 2^30, %d stages: count %d, want %d", stages, got, want)
+		}
+		var walked int64
+		sp.walk(func(plan []chain.StagePlan) bool {
+			walked++
+			for _, s := range plan {
+				if s.Factor > chain.MaxStageFactor {
+					t.Fatalf("D = 2^30: stage factor %d in %v", s.Factor, plan)
+				}
+			}
+			return true
+		})
+		if walked != want {
+			t.Errorf("D = 2^30, %d stages: walked %d, want %d", stages, walked, want)
+		}
+	}
+}

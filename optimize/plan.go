@@ -624,6 +624,9 @@ func search(ctx context.Context, p params, s *Settings, est *estimator, des desi
 	if n > MaxCandidates {
 		return nil, tooLarge(sp, n)
 	}
+	if n == 0 {
+		return nil, noCandidate(sp)
+	}
 	res := &Result{Dropped: map[Reason]int{}, Recommended: -1}
 	jobs := s.Jobs
 	if jobs == 0 {
@@ -1395,6 +1398,36 @@ func tooLarge(sp *space, n int64) error {
 	}
 	return fmt.Errorf("optimize: decimation %d within %d stages gives %s candidates, more than the %d this search scores; MaxStages = %d is the most that fits (%d candidates), or narrow Kinds, CICOrders or CICDelays",
 		sp.d, stages, countString(n), MaxCandidates, fit, fitN)
+}
+
+// noCandidate is the refusal of an empty search space: it names the least
+// MaxStages that gives a candidate (a stage takes a factor of at most
+// chain.MaxStageFactor), or, when none up to MaxStagesLimit does, why: a
+// prime factor of d above chain.MaxStageFactor, or the kinds searched.
+func noCandidate(sp *space) error {
+	for m := sp.maxStages + 1; m <= MaxStagesLimit; m++ {
+		t := *sp
+		t.maxStages, t.memo = m, nil
+		if t.count() > 0 {
+			stages := "stages"
+			if sp.maxStages == 1 {
+				stages = "stage"
+			}
+			return fmt.Errorf("optimize: decimation %d within %d %s gives no candidate: a stage takes a factor of at most %d; MaxStages = %d is the least that gives one",
+				sp.d, sp.maxStages, stages, chain.MaxStageFactor, m)
+		}
+	}
+	n := sp.d
+	for p := 2; p*p <= n; p++ {
+		for n%p == 0 {
+			n /= p
+		}
+	}
+	if n > chain.MaxStageFactor {
+		return fmt.Errorf("optimize: decimation %d has the prime factor %d, above the %d one stage can take: no chain of integer stages makes it; allow a nearby ratio (ratio_tolerance_ppm) for a fractional stage",
+			sp.d, n, chain.MaxStageFactor)
+	}
+	return fmt.Errorf("optimize: decimation %d gives no candidate with the stage kinds searched (a half-band decimates by 2 only, a CIC comes first): widen Kinds", sp.d)
 }
 
 func countString(n int64) string {

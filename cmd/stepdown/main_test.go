@@ -192,14 +192,23 @@ func TestBadInputs(t *testing.T) {
 		specCase("search too large", "input_rate = 1048576\noutput_rate = 1\npassband = 0.1\nripple = 0.1\nrejection = 70\n[search]\nmax_stages = 12\ncic_orders = [1, 2, 3, 4, 5, 6, 7, 8, 9, 10]\ncic_delays = [1, 2, 3, 4]\n",
 			"candidates", "search.max_stages = 5 (or --max-stages 5) is the most that fits (2960622 candidates)", "or narrow search.kinds"),
 		// 2^30 within the default 6 stages: 5 stages fit.
-		specCase("search too large, default stages", bigSearchSpec, "1073741824 within 6 stages", "search.max_stages = 5 (or --max-stages 5) is the most that fits (6574896 candidates)"),
+		// A stage takes a factor of at most 2^20: D = 2^30 needs two
+		// stages, a prime D above 2^20 none does, and half-bands alone
+		// make no D but a power of 2.
+		{name: "search empty, one stage", spec: bigSearchSpec, args: []string{"plan", "spec.toml", "--out", "out", "--max-stages", "1"}, code: 2,
+			frags: []string{"1073741824 within 1 stage gives no candidate", "at most 1048576", "search.max_stages = 2 (or --max-stages 2) is the least that gives one"}},
+		specCase("search empty, prime above 2^20", "input_rate = 1048583\noutput_rate = 1\npassband = 0.2\nripple = 0.5\nrejection = 60\n",
+			"prime factor 1048583", "ratio_tolerance_ppm"),
+		specCase("search empty, kinds", "input_rate = 6e6\noutput_rate = 1e6\npassband = 2e5\nripple = 0.5\nrejection = 60\n[search]\nkinds = [\"halfband\"]\n",
+			"decimation 6 gives no candidate", "widen search.kinds"),
+		specCase("search too large, default stages", bigSearchSpec, "1073741824 within 6 stages", "search.max_stages = 5 (or --max-stages 5) is the most that fits (6363104 candidates)"),
 		{name: "sweep search too large", spec: bigSearchSpec, args: []string{"sweep", "spec.toml", "--out", "out", "--vary", "rejection=60:70:10"}, code: 2,
 			frags: []string{"--vary rejection=60:70:10: 60 dB: decimation 1073741824", "search.max_stages = 5 (or --max-stages 5) is the most that fits"}},
 		{name: "sweep grid search too large", spec: bigSearchSpec, args: []string{"sweep", "spec.toml", "--out", "out", "--vary", "rejection=60:70:10", "--vary", "ripple=0.5:1:0.5"}, code: 2,
 			frags: []string{"rejection 60 dB, ripple 0.5 dB: decimation 1073741824", "search.max_stages = 5 (or --max-stages 5)"}},
 		{name: "simulate search too large", spec: bigSearchSpec, args: []string{"simulate", "spec.toml", "--out", "out", "--input", "afile", "--format", "int16", "--rate", "1.073741824 GHz"}, code: 2,
 			// simulate has no --max-stages: the spec key alone.
-			frags: []string{"search.max_stages = 5 is the most that fits (6574896 candidates), or narrow search.kinds"}},
+			frags: []string{"search.max_stages = 5 is the most that fits (6363104 candidates), or narrow search.kinds"}},
 		// Docs and behaviour agree: no hexadecimal, words up to 32 bits.
 		specCase("rate hexadecimal", edit("input_rate", "input_rate = 0x5DC0000"), "spec.toml:1", "input_rate = 0x5DC0000", "hexadecimal", "98304000"),
 		specCase("rate hexadecimal text", edit("input_rate", `input_rate = "0x5DC0000 Hz"`), "input_rate", "hexadecimal"),

@@ -242,10 +242,12 @@ func flagTerms(c *cli.Context, msg string) string {
 	return reMaxStagesFlag.ReplaceAllString(msg, "")
 }
 
-// searchTooLarge reports whether msg is optimize's refusal of a search
-// larger than optimize.MaxCandidates.
+// searchTooLarge reports whether msg is optimize's refusal of the search the
+// spec asks for: larger than optimize.MaxCandidates, or empty (no stage
+// count, prime factor or kinds that make the ratio).
 func searchTooLarge(msg string) bool {
-	return strings.Contains(msg, "candidates, more than the") && strings.Contains(msg, "this search scores")
+	return (strings.Contains(msg, "candidates, more than the") && strings.Contains(msg, "this search scores")) ||
+		strings.Contains(msg, "gives no candidate") || strings.Contains(msg, "no chain of integer stages makes it")
 }
 
 // emptyFront is the error of a search that left the front empty: the
