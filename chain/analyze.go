@@ -271,6 +271,14 @@ const (
 // out, the figure is the bound reached so far: still safe, less tight.
 const maxBoundSteps = 1 << 18
 
+// maxOpenIntervals bounds the intervals a search holds at once (48 bytes
+// each, so about 50 MB): splitting groups of alias bands costs no step, and
+// at D = 2^30 (536 870 912 alias bands of a 1 Hz output) the groups of a
+// CIC's nearly equal bounds held 6 million intervals, 900 MB for two
+// searches at once. Past it the search stops as when its steps run out:
+// the figure is the bound reached, safe, less tight.
+const maxOpenIntervals = 1 << 20
+
 // cascade evaluates and bounds a chain's |H| at input frequencies.
 type cascade struct {
 	c      *Chain
@@ -456,6 +464,10 @@ func searchOn(ctx context.Context, cs gainBounder, bands bandSet, sign, certifyD
 		}
 		top := h.pop()
 		if done(top.key, best.v) {
+			dropped = math.Max(dropped, top.key)
+			break
+		}
+		if len(h)+2 > maxOpenIntervals {
 			dropped = math.Max(dropped, top.key)
 			break
 		}

@@ -1,11 +1,14 @@
 package chain
 
 import (
+	"context"
 	"fmt"
 	"math"
 	"math/cmplx"
 	"math/rand/v2"
+	"runtime"
 	"testing"
+	"unsafe"
 
 	"github.com/stepdown-dsp/stepdown/chain/remez"
 	"github.com/stepdown-dsp/stepdown/internal/testfilters"
@@ -369,5 +372,43 @@ func BenchmarkRun(b *testing.B) {
 				Run(c, x)
 			}
 		})
+	}
+}
+
+// flatBounder is a gain of 1 everywhere, bounded loosely over a group of
+// bands (1.01, above the search's stopping point) and tightly over one
+// band (1.0001, below it): every band is taken out of its group and waits
+// in the heap, the worst case for the intervals a search holds at once.
+type flatBounder struct{}
+
+func (flatBounder) gain(float64) float64 { return 1 }
+func (flatBounder) bounds(a, b float64, coarse bool) (lo, up float64) {
+	if coarse {
+		return 1 / 1.01, 1.01
+	}
+	return 1 / 1.0001, 1.0001
+}
+
+// The certified search holds at most maxOpenIntervals intervals however many
+// bands it is given (2^26 here), and stops with a bound on the safe side:
+// at least the true largest gain.
+func TestSearchOpenIntervalsBounded(t *testing.T) {
+	bands := bandSet{n: 1 << 26, band: func(k int) Interval { return Interval{float64(k), float64(k) + 0.5} }}
+	var ms runtime.MemStats
+	runtime.ReadMemStats(&ms)
+	before := ms.TotalAlloc
+	e, err := searchOn(context.Background(), flatBounder{}, bands, 1, aliasCertifyDB)
+	if err != nil {
+		t.Fatal(err)
+	}
+	if !(e.bound >= 1) {
+		t.Errorf("bound %v, want at least the true largest gain 1", e.bound)
+	}
+	runtime.ReadMemStats(&ms)
+	// The heap's slice grows by a quarter at a time at this size, so all
+	// it allocated on the way is about five times what it holds at the end;
+	// split whole, the 2^26 bands would have taken about 3 GB at once.
+	if got, lim := ms.TotalAlloc-before, uint64(8*maxOpenIntervals*int(unsafe.Sizeof(ivl{}))); got > lim {
+		t.Errorf("the search allocated %d bytes, more than %d", got, lim)
 	}
 }

@@ -275,8 +275,11 @@
 // ripple from the upper bound of the passband's maximum over the lower bound
 // of its minimum: pessimistic by at most those tolerances, never
 // optimistic. WorstAliasHz is where the largest alias gain was evaluated.
-// When the search's step budget (2^18 splits per figure) runs out, the
-// figure is the bound reached: still safe, less tight.
+// When the search's step budget (2^18 splits per figure) runs out, or it
+// holds 2^20 intervals at once (about 50 MB: at D = 2^30, whose 1 Hz
+// output has 536 870 912 alias bands, taking them out of their groups one
+// by one held 6 million), the figure is the bound reached: still safe,
+// less tight.
 //
 // TestAnalyzeCertified holds both figures to a brute-force reference that
 // shares no code with Analyze (exact DFT grids of every stage plus golden-
