@@ -55,7 +55,15 @@
 // MinLength and MinHalfBand search the length from an order estimate by a
 // safeguarded secant on the log of the error ratio, galloping until the
 // answer is bracketed and bisecting: typically a handful of designs, never
-// more than 40. MinLength's first step follows the estimate's own slope
+// more than 40 for each parity searched. A secant along which the ratio
+// rose with the length is not followed, and aimed steps that land on the
+// same side twice running before a bracket exists gallop (8 %, 32 %, then
+// doubling), since a ratio recorded by a design stopped on its floor (below)
+// is a lower bound that can lie just above 1 far from the answer.
+// MinLength's estimate takes every pair of bands whose gains differ by more
+// than both allow, adjacent or not, so that a loose band between a passband
+// and a stopband (a protected band) does not hide the transition across it.
+// MinLength's first step follows the estimate's own slope
 // (the taps Herrmann's formula adds for a factor e of error at the binding
 // transition), and a later secant never assumes more than four times that
 // many taps per factor e; every design after the first starts from the

@@ -16,9 +16,9 @@ import (
 // The designs weight each band by 1/MaxError (times its WeightFunc, when
 // given), so that the equiripple optimum balances the bands against their
 // own limits; Band.Weight is ignored. The search starts from the largest
-// Herrmann-Rabiner-Chan estimate over the transitions between adjacent
-// bands of different gain (don't-care gaps between bands of equal gain are
-// not transitions), then steps by a safeguarded secant on the log of the
+// Herrmann-Rabiner-Chan estimate over the transitions between bands, adjacent
+// or not, whose gains differ by more than both allow (don't-care gaps
+// between bands of equal gain are not transitions), then steps by a safeguarded secant on the log of the
 // worst error ratio (the first step by the estimate's own slope) until it
 // brackets the answer and closes the bracket; it assumes that within one
 // parity a longer filter never does worse. Each design after the first
@@ -26,7 +26,7 @@ import (
 // length and then tries the even lengths below it. Even lengths are skipped
 // when a band asks for a non-zero gain at rate/2, where they are zero.
 //
-// The search is bounded: at most 40 designs, and it stops when eight
+// The search is bounded: at most 40 designs for each parity, and it stops when eight
 // times the estimate has not halved the error. A length whose design is met
 // to rounding level counts as too long. When the search cannot finish, the
 // error wraps ErrNotConverged.
@@ -132,7 +132,13 @@ func minLength(ctx context.Context, rate float64, bands []Band, parity, maxTaps 
 		r, err := m.finish(n, nil)
 		return r, m, err
 	}
-	r, err := m.finish(m.search(n-1, 0))
+	ne, err := m.search(n-1, 0)
+	if err != nil && ctx.Err() == nil && m.cache[n-1] != nil {
+		// n-1 taps meet, so the even search failed only below them (its
+		// designs ran out): n-1 is the shortest known to meet.
+		ne, err = n-1, nil
+	}
+	r, err := m.finish(ne, err)
 	return r, m, err
 }
 
@@ -158,34 +164,40 @@ type lengthSearch struct {
 	designFn func(n int) (*Result, []float64, bool)
 }
 
-// maxDesigns bounds the designs of one MinLength call. The search needs a
+// maxDesigns bounds the designs of one parity's search (MinLength with
+// parity 0 runs up to two, odd then even). The search needs a
 // handful; the bound only stops a search that the error ratios cannot
 // guide (designs that do not converge, say) in bounded time.
 const maxDesigns = 40
 
 // estimate is the largest Herrmann-Rabiner-Chan length over the
-// transitions between adjacent bands whose desired gains differ (common
-// practice for multiband specifications), or 3 without any. A gap between
-// two bands that want the same gain (the don't-care slivers between alias
-// stopbands) is no transition: the response may simply stay on that gain
-// across it, so a 1 Hz gap there costs nothing and must not make the
-// estimate thousands of taps long.
+// transitions between bands whose desired gains differ by more than the
+// two bands allow (common practice for multiband specifications), or 3
+// without any. Every pair of bands counts, not only adjacent ones: a band
+// between them that allows the gain of either side (a protected band
+// whose limit is loose next to the passband) does not make the transition
+// across it free. A gap between two bands that want the same gain (the
+// don't-care slivers between alias stopbands) is no transition: the
+// response may simply stay on that gain across it, so a 1 Hz gap there
+// costs nothing and must not make the estimate thousands of taps long.
 func (m *lengthSearch) estimate() int {
 	est := 3
 	for i := 0; i+1 < len(m.bands); i++ {
-		a, b := &m.bands[i], &m.bands[i+1]
-		tr := b.Lo - a.Hi
-		if tr <= 0 || math.Abs(gainAt(a, a.Hi)-gainAt(b, b.Lo)) <= allowedAt(a, a.Hi)+allowedAt(b, b.Lo) {
-			continue
-		}
-		d1 := math.Min(allowedAt(a, a.Hi), 0.5)
-		d2 := math.Min(allowedAt(b, b.Lo), 0.5)
-		if n := HerrmannLength(d1, d2, tr, m.rate); n > est {
-			est = n
-			// Herrmann's D(dp, ds)/df, taken with every error limit a
-			// factor e tighter, says how many taps a factor e of error
-			// costs at this transition: the prior slope of the search.
-			m.perNeper = (HerrmannD(d1/math.E, d2/math.E) - HerrmannD(d1, d2)) / (tr / m.rate)
+		for j := i + 1; j < len(m.bands); j++ {
+			a, b := &m.bands[i], &m.bands[j]
+			tr := b.Lo - a.Hi
+			if tr <= 0 || math.Abs(gainAt(a, a.Hi)-gainAt(b, b.Lo)) <= allowedAt(a, a.Hi)+allowedAt(b, b.Lo) {
+				continue
+			}
+			d1 := math.Min(allowedAt(a, a.Hi), 0.5)
+			d2 := math.Min(allowedAt(b, b.Lo), 0.5)
+			if n := HerrmannLength(d1, d2, tr, m.rate); n > est {
+				est = n
+				// Herrmann's D(dp, ds)/df, taken with every error limit a
+				// factor e tighter, says how many taps a factor e of error
+				// costs at this transition: the prior slope of the search.
+				m.perNeper = (HerrmannD(d1/math.E, d2/math.E) - HerrmannD(d1, d2)) / (tr / m.rate)
+			}
 		}
 	}
 	return min(est, m.maxTaps)
@@ -423,11 +435,15 @@ func (m *lengthSearch) search(n0, odd int) (int, error) {
 		pn[1], pg[1] = known[i], math.Log(m.ratio[known[i]])
 		np++
 	}
+	// Each parity's search has its own budget of designs: the even
+	// search that follows an odd one (or replaces a failed one) must not
+	// start with none left.
+	budget := m.designs + maxDesigns
 	eval(n0)
 	r0 := m.ratio[n0]
 	last, same, blind := 0, 0, 0
 	wRef, sec := 0, 0 // bracket width to halve, secant steps since
-	for m.designs < maxDesigns {
+	for m.designs < budget {
 		if err := m.ctxErr(); err != nil {
 			return 0, searchStopped(err)
 		}
@@ -454,9 +470,17 @@ func (m *lengthSearch) search(n0, odd int) (int, error) {
 		// were met to rounding level) the step grows fourfold each time, a
 		// gallop from 2 % up to the doubling or halving clamp below.
 		step := 0.02 * math.Pow(4, float64(blind))
+		// The secant's taps per factor e of error. A ratio that rose with
+		// the length (a design stopped by the floor records a lower bound,
+		// often just above 1, and the next length's can lie far above it)
+		// gives no slope: stepping along such a secant went backwards and
+		// was clamped to lo+2, two taps a design.
+		perNeper := 0.0
+		if np >= 2 && pn[0] != pn[1] && pg[0] != pg[1] {
+			perNeper = -float64(pn[1]-pn[0]) / (pg[1] - pg[0])
+		}
 		switch {
-		case np >= 2 && pn[0] != pn[1] && pg[0] != pg[1]:
-			perNeper := -float64(pn[1]-pn[0]) / (pg[1] - pg[0])
+		case perNeper > 0:
 			if m.perNeper > 0 && !(perNeper < 4*m.perNeper) {
 				// A secant through two nearly equal ratios (noise on a
 				// slowly falling error) would leap far past the answer;
@@ -480,6 +504,21 @@ func (m *lengthSearch) search(n0, odd int) (int, error) {
 		}
 		if math.IsNaN(c) {
 			c = float64(lo + hi)
+		}
+		// Before a bracket exists, two or more aimed steps in a row that
+		// land on the same side gallop: a ratio recorded by a design
+		// stopped on its floor is a lower bound, often just above 1, so a
+		// secant through such ratios says the answer is a step or two
+		// away however far it is, and the search crept two taps a design
+		// until its designs ran out. The forced step grows fourfold each
+		// time, from 8 % to the doubling or halving clamp.
+		if same >= 1 && (hi == 0 || lo == 0) {
+			g := 0.02 * math.Pow(4, float64(same))
+			if hi == 0 {
+				c = math.Max(c, float64(lo)*(1+g))
+			} else {
+				c = math.Min(c, float64(hi)*(1-math.Min(g, 0.5)))
+			}
 		}
 		switch {
 		case hi == 0:
