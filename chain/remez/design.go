@@ -41,10 +41,22 @@ const (
 // best-effort Result, when the exchange does not reach equiripple.
 var ErrNotConverged = errors.New("remez: exchange did not converge")
 
-// errRounding is wrapped by the error of a design whose bands are met to
-// rounding level: the length is far beyond what the specification needs,
-// which MinLength takes as "too long" whatever the taps measure.
-var errRounding = errors.New("the specification is too lax for double precision")
+// ErrRoundingLevel is wrapped by the error of a design whose bands are met
+// only to rounding level (every deviation, or the levelled deviation over
+// the largest weight, within RoundingLevel(n) of the largest desired gain):
+// the error is too small for double precision to level, because the length
+// is far beyond what the specification needs or a limit is that small.
+// MinLength takes such a length as "too long" whatever the taps measure,
+// and wraps it too when the shortest length that meets is met only so.
+var ErrRoundingLevel = errors.New("the specification is too lax for double precision")
+
+// errRounding is ErrRoundingLevel (the package's older name).
+var errRounding = ErrRoundingLevel
+
+// RoundingLevel is the deviation, relative to the largest desired gain,
+// at or below which a design of n taps counts as met only to rounding
+// level: max(1e-13, n 1e-14), the rounding of a sum of n taps.
+func RoundingLevel(n int) float64 { return math.Max(1e-13, 1e-14*float64(n)) }
 
 // errCannotMeet ends a design whose levelled deviation passed
 // engine.failAbove: no filter of its length meets the limit.
@@ -166,7 +178,7 @@ func (e *engine) gridScale() (scale, wmax float64) { return e.gscale, e.gwmax }
 func (e *engine) laxCheck(dev []float64, conv bool) error {
 	scale, wmax := e.gridScale()
 	// Rounding in a sum of n taps is about n eps of the largest gain.
-	lim := math.Max(1e-13, 1e-14*float64(e.n)) * scale
+	lim := RoundingLevel(e.n) * scale
 	tiny := true
 	for _, d := range dev {
 		tiny = tiny && d <= lim

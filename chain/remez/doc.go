@@ -117,7 +117,13 @@
 // wraps ErrNotConverged. A numerical breakdown that leaves no finite
 // filter (lengths far beyond what the bands need) gives no Result and an
 // error wrapping ErrNotConverged. No result ever holds NaN or infinite
-// taps, and every call returns in bounded time. The
+// taps, and every call returns in bounded time. A length search that ends
+// without an answer returns a *SearchError (the longest length found to
+// fail, the shortest met only to rounding level, the longest searched)
+// wrapping ErrNotConverged, ErrRoundingLevel (the shortest length that
+// meets is met only to rounding level, RoundingLevel(n): a limit too small
+// for double precision), ErrNoLength (none up to the limit meets) or
+// ErrGridTooLarge, so that callers can word it for their users. The
 // order estimators return 0 for inputs outside their domain.
 //
 // # Evaluation

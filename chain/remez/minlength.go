@@ -164,6 +164,30 @@ type lengthSearch struct {
 	designFn func(n int) (*Result, []float64, bool)
 }
 
+// ErrNoLength is wrapped by the error of a length search in which no
+// length up to its limit meets the bands.
+var ErrNoLength = errors.New("remez: no length up to the limit meets the bands")
+
+// SearchError is the error of a length search that ended without an
+// answer (other than by its context). errors.Is matches the sentinels it
+// wraps: ErrNotConverged, ErrRoundingLevel, ErrNoLength, ErrGridTooLarge.
+type SearchError struct {
+	Fail int // the longest length found to fail (0: none)
+	Met  int // the shortest length found to meet, to rounding level only (0: none)
+	// Limit is the longest length searched (maxTaps, or less where the
+	// grid had to fit MaxGridPoints).
+	Limit int
+	msg   string
+	errs  []error
+}
+
+func (e *SearchError) Error() string   { return e.msg }
+func (e *SearchError) Unwrap() []error { return e.errs }
+
+func (m *lengthSearch) fail(lo, hi int, msg string, errs ...error) error {
+	return &SearchError{Fail: lo, Met: hi, Limit: m.maxTaps, msg: msg, errs: errs}
+}
+
 // maxDesigns bounds the designs of one parity's search (MinLength with
 // parity 0 runs up to two, odd then even). The search needs a
 // handful; the bound only stops a search that the error ratios cannot
@@ -449,21 +473,21 @@ func (m *lengthSearch) search(n0, odd int) (int, error) {
 		}
 		if hi > 0 && (hi == lowest || (lo > 0 && hi-lo <= 2)) {
 			if m.cache[hi] == nil {
-				return 0, fmt.Errorf("%w: remez: MinLength: %d taps fail and %d taps are met only to rounding level (no usable taps): relax or tighten the bands", ErrNotConverged, lo, hi)
+				return 0, m.fail(lo, hi, fmt.Sprintf("%v: remez: MinLength: %d taps fail and %d taps are met only to rounding level (no usable taps): relax or tighten the bands", ErrNotConverged, lo, hi), ErrNotConverged, ErrRoundingLevel)
 			}
 			return hi, nil
 		}
 		if hi == 0 && lo >= top {
 			if m.gridCap {
-				return 0, fmt.Errorf("%w: the bands are not met by any length up to %d taps, the longest whose grid at Settings.Density = %d fits in MaxGridPoints = %d: lower the density", ErrGridTooLarge, m.maxTaps, m.s.Density, MaxGridPoints)
+				return 0, m.fail(lo, 0, fmt.Sprintf("%v: the bands are not met by any length up to %d taps, the longest whose grid at Settings.Density = %d fits in MaxGridPoints = %d: lower the density", ErrGridTooLarge, m.maxTaps, m.s.Density, MaxGridPoints), ErrGridTooLarge, ErrNoLength)
 			}
-			return 0, fmt.Errorf("remez: the bands are not met by any length up to maxTaps = %d: widen the transitions, relax MaxError or raise maxTaps", m.maxTaps)
+			return 0, m.fail(lo, 0, fmt.Sprintf("remez: the bands are not met by any length up to maxTaps = %d: widen the transitions, relax MaxError or raise maxTaps", m.maxTaps), ErrNoLength)
 		}
 		// Eight times the estimate without halving the error: the error
 		// ratios do not fall with the length, so longer designs will not
 		// help (the exchange fails on this specification).
 		if hi == 0 && lo >= 8*max(n0, 16) && !(m.ratio[lo] < 0.5*r0) {
-			return 0, fmt.Errorf("%w: remez: MinLength: the error does not fall with the length (%.3g of the limit at %d taps, %.3g at %d): check the bands", ErrNotConverged, r0, n0, m.ratio[lo], lo)
+			return 0, m.fail(lo, 0, fmt.Sprintf("%v: remez: MinLength: the error does not fall with the length (%.3g of the limit at %d taps, %.3g at %d): check the bands", ErrNotConverged, r0, n0, m.ratio[lo], lo), ErrNotConverged)
 		}
 		var c float64
 		// Without a secant (a single usable ratio: the others failed or
@@ -581,7 +605,7 @@ func (m *lengthSearch) search(n0, odd int) (int, error) {
 	if hi > 0 && m.cache[hi] != nil {
 		return hi, nil
 	}
-	return 0, fmt.Errorf("%w: remez: MinLength: length search did not settle within %d designs (last bracket %d..%d taps)", ErrNotConverged, maxDesigns, lo, hi)
+	return 0, m.fail(lo, hi, fmt.Sprintf("%v: remez: MinLength: length search did not settle within %d designs (last bracket %d..%d taps)", ErrNotConverged, maxDesigns, lo, hi), ErrNotConverged)
 }
 
 // ctxErr is the search's context's error (nil without a context).
@@ -602,7 +626,7 @@ func (m *lengthSearch) finish(n int, err error) (*Result, error) {
 		return nil, err
 	}
 	if m.cache[n] == nil {
-		return nil, fmt.Errorf("%w: remez: MinLength: no usable design at %d taps", ErrNotConverged, n)
+		return nil, m.fail(0, n, fmt.Sprintf("%v: remez: MinLength: no usable design at %d taps", ErrNotConverged, n), ErrNotConverged)
 	}
 	return m.cache[n], nil
 }

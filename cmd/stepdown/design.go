@@ -1,6 +1,7 @@
 package main
 
 import (
+	"context"
 	"encoding/json"
 	"errors"
 	"fmt"
@@ -178,6 +179,10 @@ func runDesign(c *cli.Context) error {
 		bands = append(bands, b)
 		out.Bands = append(out.Bands, designBand{Kind: kind, LoHz: e.lo, HiHz: e.hi, Weight: b.Weight})
 	}
+	if min(dp, ds) <= remez.RoundingLevel(3) {
+		// No length levels an error below the rounding of the shortest sum.
+		return roundingFailure(c.Context, nil, designFlags{rate: rate, bands: bands, dp: dp, ds: ds, ripple: ripple, atten: atten, taps: taps, grid: grid})
+	}
 	if taps == 0 {
 		// A filter far beyond the longest length searched would cost
 		// minutes of designs before failing: refused at once, with the
@@ -192,10 +197,11 @@ func runDesign(c *cli.Context) error {
 	}
 	settings := remez.Settings{Density: grid}
 	if taps > 0 {
-		// The engine refuses a grid over remez.MaxGridPoints (about 400 MB);
+		// The engine refuses a grid over remez.MaxGridPoints (a design that
+		// size peaked at 646 MB: 32767 taps at --grid 127);
 		// say so in the flags' words before designing.
 		if most := remez.MaxDensity(taps, rate, bands); grid > most {
-			return usagef("--grid %d with --taps %d: the design grid would exceed %d points (about 400 MB); use --grid %d or less at this length, or fewer taps", grid, taps, remez.MaxGridPoints, most)
+			return usagef("--grid %d with --taps %d: the design grid would exceed %d points (about 650 MB); use --grid %d or less at this length, or fewer taps", grid, taps, remez.MaxGridPoints, most)
 		}
 	}
 	// Ctrl-C or SIGTERM cancel c.Context (main's signal.NotifyContext): the
@@ -210,11 +216,8 @@ func runDesign(c *cli.Context) error {
 	if ctx.Err() != nil {
 		return errors.New("design: interrupted; no filter was designed")
 	}
-	if errors.Is(err, remez.ErrGridTooLarge) {
-		return usagef("--grid %d: %v", grid, err)
-	}
 	if err != nil {
-		return fmt.Errorf("design: %v", err)
+		return designFailure(ctx, err, designFlags{rate: rate, bands: bands, dp: dp, ds: ds, ripple: ripple, atten: atten, taps: taps, grid: grid, res: res})
 	}
 	if len(res.Deviations) != len(bands) {
 		return fmt.Errorf("design: engine returned %d band deviations for %d bands", len(res.Deviations), len(bands))
@@ -242,6 +245,121 @@ func runDesign(c *cli.Context) error {
 	return nil
 }
 
+// designFlags are what designFailure needs of the command line.
+type designFlags struct {
+	rate          float64
+	bands         []remez.Band
+	dp, ds        float64
+	ripple, atten float64
+	taps, grid    int
+	res           *remez.Result // Design's best result, when it gave one
+}
+
+// designFailure turns an error of remez.DesignContext or
+// remez.MinLengthContext into the command line's words: exit 2 where a
+// flag must change (a limit below double precision's rounding, no length
+// within the tap limit, a grid too large), 1 where the exchange failed.
+// No package or function names reach the user.
+func designFailure(ctx context.Context, err error, f designFlags) error {
+	var se *remez.SearchError
+	isSearch := errors.As(err, &se)
+	switch {
+	case errors.Is(err, remez.ErrRoundingLevel) && f.taps > 0:
+		return usagef("--taps %d: more than these bands need: the response meets them to the rounding level of double precision (below %.1g), where the exchange cannot level its error; use fewer taps, or leave --taps out to find the shortest filter", f.taps, remez.RoundingLevel(f.taps))
+	case errors.Is(err, remez.ErrRoundingLevel) && isSearch:
+		return roundingFailure(ctx, se, f)
+	case errors.Is(err, remez.ErrGridTooLarge) && isSearch:
+		return usagef("--grid %d: no filter up to %d taps, the longest whose grid fits in memory at this density, meets --ripple and --atten; lower --grid (16 fits every length up to %d taps)", f.grid, se.Limit, maxDesignTaps)
+	case errors.Is(err, remez.ErrGridTooLarge):
+		return usagef("--grid %d: the design grid would not fit in memory; lower --grid", f.grid)
+	case errors.Is(err, remez.ErrNoLength) && isSearch:
+		return usagef("--ripple %g dB and --atten %g dB: no filter up to %d taps meets them over these bands; widen the transitions between --pass and --stop, or relax --ripple or --atten", f.ripple, f.atten, se.Limit)
+	case isSearch && se.Met == 0 && se.Fail > 0:
+		return fmt.Errorf("design: the search for the shortest filter ended without an answer: %d taps fail and no longer length it designed met the targets (the error did not fall with the length): check --pass and --stop, or design a length with --taps", se.Fail)
+	case isSearch:
+		return fmt.Errorf("design: the search for the shortest filter ended without an answer between %d and %d taps: design a length with --taps", se.Fail, se.Met)
+	case f.taps > 0 && f.res != nil && !f.res.Converged:
+		return fmt.Errorf("design: the exchange did not converge at %d taps in %d iterations (levelled deviation %.3g): try another --taps or wider transitions", f.taps, f.res.Iterations, f.res.Delta)
+	case f.taps > 0 && f.res == nil && errors.Is(err, remez.ErrNotConverged):
+		return fmt.Errorf("design: %d taps break down numerically (no finite coefficients): use fewer --taps or wider transitions", f.taps)
+	}
+	return fmt.Errorf("design: %v", err)
+}
+
+// roundingFailure is the error of a length search whose shortest meeting
+// length is met only to rounding level: the smaller of the passband and
+// stopband deviations is too small for double precision. The limit is
+// relaxed tenfold (--ripple) or by 20 dB (--atten) up to six times, and
+// the least value that designs is named; each trial is a length search of
+// about the same length, stopped by Ctrl-C like the first.
+func roundingFailure(ctx context.Context, se *remez.SearchError, f designFlags) error {
+	flag, value, dev, unit := "--ripple", f.ripple, f.dp, "a passband deviation"
+	if f.ds < f.dp {
+		flag, value, dev, unit = "--atten", f.atten, f.ds, "a stopband deviation"
+	}
+	var msg string
+	start := value
+	if se != nil {
+		msg = fmt.Sprintf("%s %g dB: %s of %.2g is too small for double precision to level over the %d taps these bands need (a sum of them rounds near %.1g)", flag, value, unit, dev, se.Met, remez.RoundingLevel(se.Met))
+	} else {
+		// Below the rounding of the shortest filter: no length can level
+		// it, so the trials start where the deviation is ten times that.
+		msg = fmt.Sprintf("%s %g dB: %s of %.2g is below %.0e, the least double precision can level in a filter of any length", flag, value, unit, dev, remez.RoundingLevel(3))
+		start = math.Pow(10, math.Ceil(math.Log10(chain.DevToRipple(10*remez.RoundingLevel(3)))))
+	}
+	first := 1 // trials: start relaxed by one step, two, ...
+	if se == nil {
+		first = 0 // start itself first
+	}
+	try, prev := value, value
+	for k := first; k < first+6; k++ {
+		prev = try
+		if flag == "--ripple" {
+			try = start * math.Pow(10, float64(k))
+		} else {
+			try = start - 20*float64(k)
+		}
+		if try > 10 || try <= 0 {
+			break
+		}
+		dp, ds := f.dp, f.ds
+		if flag == "--ripple" {
+			dp = chain.RippleToDev(try)
+		} else {
+			ds = chain.RejectionToDev(try)
+		}
+		bands := append([]remez.Band(nil), f.bands...)
+		for i := range bands {
+			if bands[i].Gain == 1 {
+				bands[i].MaxError = dp
+			} else {
+				bands[i].Weight, bands[i].MaxError = dp/ds, ds
+			}
+		}
+		_, err := remez.MinLengthContext(ctx, f.rate, bands, 0, maxDesignTaps, remez.Settings{Density: f.grid})
+		if ctx.Err() != nil {
+			return usagef("%s; raise it", msg)
+		}
+		if err == nil {
+			rule := fmt.Sprintf("raise it: %.3g dB designs (%.3g dB does not)", try, prev)
+			if k == 0 {
+				rule = fmt.Sprintf("raise it: %.3g dB designs", try)
+			}
+			if flag == "--atten" {
+				rule = fmt.Sprintf("lower it: %.3g dB designs (%.3g dB does not)", try, prev)
+			}
+			return usagef("%s; %s", msg, rule)
+		}
+		if !errors.Is(err, remez.ErrRoundingLevel) {
+			break
+		}
+	}
+	if flag == "--atten" {
+		return usagef("%s; lower it", msg)
+	}
+	return usagef("%s; raise it", msg)
+}
+
 // designEdge is a band of the design command: its edges, Hz, and whether
 // it is the passband.
 type designEdge struct {
@@ -249,16 +367,29 @@ type designEdge struct {
 	pass   bool
 }
 
-// oversizeMargin is how far above maxDesignTaps the Herrmann estimate of
-// a transition must lie for the length search to be refused before it
-// starts: the estimate is within about 10% of the designed lengths
-// (chain/remez's tests), so a filter refused would not fit.
-const oversizeMargin = 1.25
+// lowpassLengthRatio is the least ratio of the true minimum length to
+// Herrmann's estimate that checkDesignSize assumes for a lowpass (one
+// passband from 0, one stopband to rate/2) of ripple at most 3 dB and
+// attenuation at least 20 dB: on 200 seeded random lowpass specs (ripple
+// 0.001 to 3.16 dB, attenuation 20 to 150 dB, 300 to 2500 taps;
+// TestDesignLengthRatio) the worst measured was 0.956, at about 3 dB of
+// ripple and 120 to 140 dB; 0.9 leaves more than twice that shortfall. A
+// lowpass is refused when 0.9 of its estimate still exceeds maxDesignTaps.
+const lowpassLengthRatio = 0.9
+
+// otherLengthRatio is the same for every other shape (several stopbands,
+// a passband not from 0, a stopband short of rate/2) and for ripple or
+// attenuation outside the measured range, where don't-care bands or the
+// edges of Herrmann's fit can make the filter shorter than the estimate
+// and no measurement bounds the ratio: refused only when 0.8 of the
+// estimate exceeds maxDesignTaps, as before.
+const otherLengthRatio = 0.8
 
 // checkDesignSize refuses a minimum-length design whose sharpest
 // pass-to-stop transition (edges sorted, not overlapping) is estimated by
-// Herrmann's formula (remez.HerrmannLength) at more than oversizeMargin
-// times maxDesignTaps, naming the largest --atten and the narrowest
+// Herrmann's formula (remez.HerrmannLength) so long that, reduced by the
+// shape's length ratio (lowpassLengthRatio or otherLengthRatio), it still
+// exceeds maxDesignTaps, naming the largest --atten and the narrowest
 // transition that would be estimated within maxDesignTaps.
 func checkDesignSize(edges []designEdge, dp, ds, atten, rate float64) error {
 	worst, wi := 0, -1
@@ -271,7 +402,11 @@ func checkDesignSize(edges []designEdge, dp, ds, atten, rate float64) error {
 			worst, wi = n, i
 		}
 	}
-	if wi < 0 || float64(worst) <= oversizeMargin*maxDesignTaps {
+	ratio := otherLengthRatio
+	if len(edges) == 2 && edges[0].pass && edges[0].lo == 0 && edges[1].hi == rate/2 && dp <= chain.RippleToDev(3) && atten >= 20 {
+		ratio = lowpassLengthRatio
+	}
+	if wi < 0 || ratio*float64(worst) <= maxDesignTaps {
 		return nil
 	}
 	tr := edges[wi+1].lo - edges[wi].hi
@@ -301,8 +436,8 @@ func checkDesignSize(edges []designEdge, dp, ds, atten, rate float64) error {
 	if lo > 0 && fits(lo, tr) {
 		advice = fmt.Sprintf("lower --atten to %.1f dB or less, or %s", math.Floor(lo*10)/10, advice)
 	}
-	return usagef("--atten %g dB over the %s transition from %s to %s: about %d taps (Herrmann's estimate), more than the %d this command designs; %s",
-		atten, units.FormatFrequency(tr), units.FormatFrequency(edges[wi].hi), units.FormatFrequency(edges[wi+1].lo), worst, maxDesignTaps, advice)
+	return usagef("--atten %g dB over the %s transition from %s to %s: about %d taps (Herrmann's estimate; the shortest filter is at least %.2g of it), more than the %d this command designs; %s",
+		atten, units.FormatFrequency(tr), units.FormatFrequency(edges[wi].hi), units.FormatFrequency(edges[wi+1].lo), worst, ratio, maxDesignTaps, advice)
 }
 
 // rippleOf is the peak-to-peak ripple of a passband deviation; a deviation of

@@ -4,6 +4,8 @@ import (
 	"bytes"
 	"encoding/json"
 	"math"
+	"math/rand/v2"
+	"os"
 	"os/exec"
 	"strings"
 	"syscall"
@@ -184,4 +186,116 @@ func TestDesignPeakGain(t *testing.T) {
 			t.Errorf("%v: warning %v, want %v (peak %.1f dB):\n%s", c.args, got, c.warn, d.PeakGainDB, r.stdout)
 		}
 	}
+}
+
+// A ripple too small for double precision is bad input: exit 2, one line
+// naming --ripple and its value, no package or function names, and the
+// least ripple that designs in steps of ten (1e-9 dB here: measured by the
+// command itself, and designed below). A passband deviation below 1e-13
+// (remez.RoundingLevel of the shortest filter) is refused before any
+// search; one above it that the length search meets only to rounding
+// level (2e-11 dB: about 80 taps, which round near 8e-13) after it.
+func TestDesignRippleTooSmall(t *testing.T) {
+	base := []string{"design", "--rate", "1", "--pass", "0:0.2", "--stop", "0.3:0.5", "--atten", "40"}
+	for _, tc := range []struct {
+		ripple string
+		want   []string
+	}{
+		{"1e-12", []string{"--ripple 1e-12 dB", "below 1e-13", "1e-09 dB designs"}},
+		{"2e-11", []string{"--ripple 2e-11 dB", "80 taps", "2e-09 dB designs"}},
+	} {
+		r := runBinary(t, t.TempDir(), nil, append(base, "--ripple", tc.ripple)...)
+		if r.code != 2 || strings.Count(r.stderr, "\n") != 1 {
+			t.Errorf("--ripple %s: exit %d, stderr %q: want 2 and one line", tc.ripple, r.code, r.stderr)
+		}
+		for _, w := range tc.want {
+			if !strings.Contains(r.stderr, w) {
+				t.Errorf("--ripple %s: stderr %q lacks %q", tc.ripple, r.stderr, w)
+			}
+		}
+		for _, leak := range []string{"remez", "MinLength", "maxTaps", "MaxError", "Settings.", "MaxGridPoints"} {
+			if strings.Contains(r.stderr, leak) {
+				t.Errorf("--ripple %s: stderr %q names %q", tc.ripple, r.stderr, leak)
+			}
+		}
+	}
+	if d := runDesignJSON(t, "--rate", "1", "--pass", "0:0.2", "--stop", "0.3:0.5", "--atten", "40", "--ripple", "1e-9"); !d.MeetsTargets {
+		t.Errorf("--ripple 1e-9 named as designing, but its %d taps miss", d.Taps)
+	}
+}
+
+// --taps far beyond what the bands need meets them to rounding level:
+// exit 2 naming --taps, no package names.
+func TestDesignTapsTooMany(t *testing.T) {
+	r := runBinary(t, t.TempDir(), nil, "design", "--rate", "1", "--pass", "0:0.2", "--stop", "0.25:0.5", "--ripple", "0.1", "--atten", "60", "--taps", "501")
+	if r.code != 2 || !strings.Contains(r.stderr, "--taps 501") || strings.Contains(r.stderr, "remez") {
+		t.Errorf("exit %d, stderr %q: want 2 naming --taps 501 and no package", r.code, r.stderr)
+	}
+}
+
+// A lowpass whose Herrmann estimate, times lowpassLengthRatio, exceeds
+// maxDesignTaps is refused at once (exit 2) naming --atten; the same
+// transition in a two-stopband shape, where don't-care bands can shorten
+// the filter, is held to otherLengthRatio and let through. Lengths by
+// Herrmann's formula (chain/remez), 0.01 dB and 120 dB at rate 1.
+func TestDesignLowpassRatio(t *testing.T) {
+	dp, ds := chain.RippleToDev(0.01), chain.RejectionToDev(120)
+	for _, tc := range []struct {
+		tr      float64
+		refused bool
+	}{
+		{0.0001, false},  // 53743 taps: within the limit
+		{0.00008, false}, // 67179 taps: 0.9 of it, 60461, within
+		{0.00007, true},  // 76775 taps: 0.9 of it, 69098, beyond
+	} {
+		n := remez.HerrmannLength(dp, ds, tc.tr, 1)
+		err := checkDesignSize([]designEdge{{0, 0.001, true}, {0.001 + tc.tr, 0.5, false}}, dp, ds, 120, 1)
+		if (err != nil) != tc.refused {
+			t.Errorf("lowpass, transition %g (%d taps by Herrmann): refused %v, want %v (%v)", tc.tr, n, err != nil, tc.refused, err)
+		}
+		if err != nil && !strings.Contains(err.Error(), "--atten 120 dB") {
+			t.Errorf("message %q lacks --atten 120 dB", err)
+		}
+		two := []designEdge{{0, 0.001, true}, {0.001 + tc.tr, 0.3, false}, {0.31, 0.5, false}}
+		if err := checkDesignSize(two, dp, ds, 120, 1); err != nil {
+			t.Errorf("two stopbands, transition %g (%d taps by Herrmann): refused: %v", tc.tr, n, err)
+		}
+	}
+}
+
+// lowpassLengthRatio against measurement: on seeded random lowpass specs
+// (ripple 0.001 to 3 dB, attenuation 20 to 150 dB, Herrmann lengths 300 to
+// 2500; 40 specs, 200 with STEPDOWN_LONG) the true minimum length (remez.MinLength, whose answer the remez
+// tests check by dense evaluation) is never below lowpassLengthRatio of
+// Herrmann's estimate.
+func TestDesignLengthRatio(t *testing.T) {
+	rng := rand.New(rand.NewPCG(2026, 78))
+	worst := math.Inf(1)
+	cases := 40
+	if os.Getenv("STEPDOWN_LONG") != "" {
+		cases = 200
+	}
+	for c := 0; c < cases; c++ {
+		ripple := math.Pow(10, -3+3.5*rng.Float64())
+		atten := 20 + 130*rng.Float64()
+		dp, ds := chain.RippleToDev(ripple), chain.RejectionToDev(atten)
+		fp := 0.01 + 0.4*rng.Float64()
+		df := remez.HerrmannD(math.Min(dp, 0.5), math.Min(ds, 0.5)) / (300 + 2200*rng.Float64())
+		if fp+df >= 0.499 {
+			continue
+		}
+		est := remez.HerrmannLength(math.Min(dp, 0.5), math.Min(ds, 0.5), df, 1)
+		res, err := remez.MinLength(1, []remez.Band{{Lo: 0, Hi: fp, Gain: 1, MaxError: dp}, {Lo: fp + df, Hi: 0.5, MaxError: ds}}, 0, 20000, remez.Settings{})
+		if err != nil {
+			t.Errorf("case %d: %v", c, err)
+			continue
+		}
+		r := float64(len(res.Taps)) / float64(est)
+		worst = math.Min(worst, r)
+		t.Logf("case %d: ripple %.3g dB, %.1f dB, transition %.3g: Herrmann %d, shortest %d (%.3f)", c, ripple, atten, df, est, len(res.Taps), r)
+	}
+	if worst < lowpassLengthRatio {
+		t.Errorf("worst ratio %.3f below lowpassLengthRatio %v", worst, lowpassLengthRatio)
+	}
+	t.Logf("worst ratio %.4f", worst)
 }
