@@ -299,3 +299,15 @@ func TestDesignLengthRatio(t *testing.T) {
 	}
 	t.Logf("worst ratio %.4f", worst)
 }
+
+// A search that ends on a length met only to rounding level while the
+// limits lie far above rounding (a passband not from 0 beside wide
+// don't-care regions: 0.05:0.2 and 0.21:0.25 at 0.1 dB and 80 dB, where
+// 622 taps fail and 624 break down) is not blamed on --ripple or --atten:
+// exit 1, one line, no package names.
+func TestDesignBreakdownNotBlamedOnLimits(t *testing.T) {
+	r := runBinary(t, t.TempDir(), nil, "design", "--rate", "1", "--pass", "0.05:0.2", "--stop", "0.21:0.25", "--ripple", "0.1", "--atten", "80")
+	if r.code != 1 || strings.Count(r.stderr, "\n") != 1 || strings.Contains(r.stderr, "too small") || strings.Contains(r.stderr, "remez") {
+		t.Errorf("exit %d, stderr %q: want 1, one line, not blaming the limits, no package", r.code, r.stderr)
+	}
+}
