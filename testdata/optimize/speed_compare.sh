@@ -12,8 +12,8 @@
 # and runs each spec with the two binaries in turn (old, new, old, new, ...)
 # RUNS times each (default 5), timing each whole process with
 # /usr/bin/time. The SciPy yardstick (testdata/optimize/scipy_remez4095.py,
-# Debian's /usr/bin/python3) alternates with the new binary's D = 4096
-# plan. Each line gives the median wall and CPU (user + system) seconds
+# Debian's /usr/bin/python3) alternates with the new binary's D = 4096 and D = 2^20
+# plans. Each line gives the median wall and CPU (user + system) seconds
 # and the median of the pairwise ratios; it then checks that report.json
 # is byte-identical between the binaries for every spec, or else whether
 # every number agrees to 6 significant digits (json_close.py). The machine may
@@ -38,7 +38,8 @@ spec() { # name rate_in rate_out passband ripple rejection signal [coefficient b
 	} > "$tmp/specs/$1.toml"
 }
 # Invented specs. d4096: the receiver of BenchmarkPlanD4096; d2to20: that
-# of BenchmarkPlanD2to20.
+# of BenchmarkPlanD2to20. The fractional demo (testdata/specs/fractional.toml)
+# is run from the working tree's copy.
 spec d4096 "122.88 MHz" "30 kHz" "10 kHz" "0.1 dB" "90 dB" real
 spec d4096_80dB "122.88 MHz" "30 kHz" "10 kHz" "0.1 dB" "80 dB" real
 spec d1000_complex "100 MHz" "100 kHz" "35 kHz" "0.2 dB" "85 dB" complex 18
@@ -70,19 +71,20 @@ echo "stepdown plan, whole process: $(git -C "$tmp/old-src" log -1 --format=%h) 
 echo "$(nproc) CPUs; load average before: $(cut -d' ' -f1-3 /proc/loadavg)"
 /usr/bin/python3 -c 'import scipy, numpy; print("SciPy", scipy.__version__, "numpy", numpy.__version__)'
 printf '%-14s %-3s %7s %7s | %-5s %7s %7s | %8s %5s\n' spec A "wall s" "cpu s" B "wall s" "cpu s" "A/B wall" "cpu"
-for s in example d4096 d4096_80dB d1000_complex d65536 d2to20; do
+for s in example d4096 d4096_80dB d1000_complex d65536 d2to20 fractional; do
 	f="$tmp/specs/$s.toml"
 	[ "$s" = example ] && f=
+	[ "$s" = fractional ] && f="$root/testdata/specs/fractional.toml"
 	rm -f "$tmp/new_$s" "$tmp/old_$s" "$tmp/scipy"
 	i=0
 	while [ $i -lt "$runs" ]; do
 		once "old_$s" "$tmp/old" plan $f --out "$tmp/out-old-$s" --quiet
 		once "new_$s" "$tmp/new" plan $f --out "$tmp/out-new-$s" --quiet
-		[ "$s" = d4096 ] && once scipy /usr/bin/python3 "$root/testdata/optimize/scipy_remez4095.py"
+		case $s in d4096 | d2to20) once scipy /usr/bin/python3 "$root/testdata/optimize/scipy_remez4095.py" ;; esac
 		i=$((i + 1))
 	done
 	report "$s" new old
-	[ "$s" = d4096 ] && report "$s" new scipy
+	case $s in d4096 | d2to20) report "$s" new scipy ;; esac
 	if cmp -s "$tmp/out-old-$s/report.json" "$tmp/out-new-$s/report.json"; then
 		echo "$s: report.json identical" >> "$tmp/same"
 	else
