@@ -188,6 +188,10 @@ func (m *lengthSearch) fail(lo, hi int, msg string, errs ...error) error {
 	return &SearchError{Fail: lo, Met: hi, Limit: m.maxTaps, msg: msg, errs: errs}
 }
 
+// breakdownFactor is how far above a shorter failing length's error ratio
+// a longer design's must lie to count as a numerical breakdown.
+const breakdownFactor = 1e3
+
 // maxDesigns bounds the designs of one parity's search (MinLength with
 // parity 0 runs up to two, odd then even). The search needs a
 // handful; the bound only stops a search that the error ratios cannot
@@ -425,6 +429,11 @@ func (m *lengthSearch) search(n0, odd int) (int, error) {
 	// on it finds the crossing in a few designs; steps are clamped to the
 	// bracket, and to doubling or halving before one exists.
 	var lo, hi int // longest failing, shortest meeting (0: none yet)
+	// broken is the shortest length whose design broke down (0: none): its
+	// error ratio is over breakdownFactor times a shorter failing length's,
+	// which no optimum does (a longer filter never does worse), so it is
+	// rounding, not the bands. The search stays below it.
+	broken := 0
 	var pn [2]int
 	var pg [2]float64
 	np := 0
@@ -433,6 +442,11 @@ func (m *lengthSearch) search(n0, odd int) (int, error) {
 			if hi == 0 || n < hi {
 				hi = n
 			}
+		} else if lo > 0 && n > lo && m.ratio[n] > breakdownFactor*m.ratio[lo] {
+			if broken == 0 || n < broken {
+				broken = n
+			}
+			return // no bound and no slope
 		} else if n > lo {
 			lo = n
 		}
@@ -467,9 +481,14 @@ func (m *lengthSearch) search(n0, odd int) (int, error) {
 	r0 := m.ratio[n0]
 	last, same, blind := 0, 0, 0
 	wRef, sec := 0, 0 // bracket width to halve, secant steps since
-	for m.designs < budget {
+	for steps := 0; m.designs < budget; steps++ {
 		if err := m.ctxErr(); err != nil {
 			return 0, searchStopped(err)
+		}
+		if steps > 4*maxDesigns {
+			// Steps that land on lengths already designed make no
+			// progress; the design budget alone would not end them.
+			return 0, m.fail(lo, hi, fmt.Sprintf("%v: remez: MinLength: the length search made no progress between %d and %d taps", ErrNotConverged, lo, hi), ErrNotConverged)
 		}
 		if hi > 0 && (hi == lowest || (lo > 0 && hi-lo <= 2)) {
 			if m.cache[hi] == nil {
@@ -578,6 +597,16 @@ func (m *lengthSearch) search(n0, odd int) (int, error) {
 			n = lo + 2
 		}
 		n = min(n, top)
+		if broken > 0 && n >= broken {
+			// Below the breakdown: halfway from the longest failing length.
+			n = lo + (broken-lo)/2
+			if n%2 != odd {
+				n--
+			}
+			if n <= lo {
+				return 0, m.fail(lo, 0, fmt.Sprintf("%v: remez: MinLength: %d taps fail (%.3g of the limit) and the design breaks down numerically at %d (%.3g): relax the bands", ErrNotConverged, lo, m.ratio[lo], broken, m.ratio[broken]), ErrNotConverged)
+			}
+		}
 		if _, done := m.ratio[n]; done {
 			// Already designed: close the bracket by one step instead.
 			if hi > 0 {

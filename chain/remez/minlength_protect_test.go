@@ -271,3 +271,32 @@ func TestMinLengthRandomSmall(t *testing.T) {
 	}
 	t.Logf("%d cases, %d shorter lengths within 1e-4 of the limit", cases, close)
 }
+
+// A length whose design breaks down numerically (its error ratio a
+// thousand times a shorter failing length's, which no optimum does) is a
+// ceiling, not a failure: the search answers below it. The error ratios
+// here are a model of a planned multiband stage's: designs stopped by the
+// floor record lower bounds just above 1 until 150 taps meet, the gallop
+// that such flat ratios force overshoots, and every design above 200 taps
+// breaks down (the stage gave 1.66 of the limit at 20 taps, 1.55e41 at 302,
+// and the search gave up).
+func TestMinLengthBelowBreakdown(t *testing.T) {
+	ratio := func(n int) float64 {
+		switch {
+		case n > 200:
+			return 1e41
+		case n >= 150:
+			return 0.9
+		}
+		return 1.02
+	}
+	for _, n0 := range []int{20, 30, 44} {
+		m := &lengthSearch{ctx: context.Background(), rate: 1, bands: []Band{{Lo: 0, Hi: 0.5, MaxError: 1}}, maxTaps: 1500,
+			cache: map[int]*Result{}, ratio: map[int]float64{}, lax: map[int]bool{}, perNeper: 30}
+		m.designFn = func(n int) (*Result, []float64, bool) { return &Result{}, []float64{ratio(n)}, false }
+		got, err := m.search(n0, 0)
+		if err != nil || got != 150 {
+			t.Errorf("from %d taps: %d, %v; want 150", n0, got, err)
+		}
+	}
+}
