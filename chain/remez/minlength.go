@@ -5,6 +5,7 @@ import (
 	"errors"
 	"fmt"
 	"math"
+	"slices"
 	"sort"
 )
 
@@ -210,22 +211,42 @@ const maxDesigns = 40
 // costs nothing and must not make the estimate thousands of taps long.
 func (m *lengthSearch) estimate() int {
 	est := 3
+	pair := func(i, j int) {
+		a, b := &m.bands[i], &m.bands[j]
+		tr := b.Lo - a.Hi
+		if tr <= 0 || math.Abs(gainAt(a, a.Hi)-gainAt(b, b.Lo)) <= allowedAt(a, a.Hi)+allowedAt(b, b.Lo) {
+			return
+		}
+		d1 := math.Min(allowedAt(a, a.Hi), 0.5)
+		d2 := math.Min(allowedAt(b, b.Lo), 0.5)
+		if n := HerrmannLength(d1, d2, tr, m.rate); n > est {
+			est = n
+			// Herrmann's D(dp, ds)/df, taken with every error limit a
+			// factor e tighter, says how many taps a factor e of error
+			// costs at this transition: the prior slope of the search.
+			m.perNeper = (HerrmannD(d1/math.E, d2/math.E) - HerrmannD(d1, d2)) / (tr / m.rate)
+		}
+	}
+	// Two bands that both want gain 0 make no transition, so a band that
+	// wants 0 is paired only with the bands that want another gain (the
+	// passbands), in the same order: a FIR decimating by R has R/2 alias
+	// stopbands, and all their pairs took seconds at R = 2^17.
+	var some []int // the bands that want a gain other than 0, ascending
+	for i := range m.bands {
+		if b := &m.bands[i]; b.Gain != 0 || b.GainFunc != nil {
+			some = append(some, i)
+		}
+	}
 	for i := 0; i+1 < len(m.bands); i++ {
-		for j := i + 1; j < len(m.bands); j++ {
-			a, b := &m.bands[i], &m.bands[j]
-			tr := b.Lo - a.Hi
-			if tr <= 0 || math.Abs(gainAt(a, a.Hi)-gainAt(b, b.Lo)) <= allowedAt(a, a.Hi)+allowedAt(b, b.Lo) {
-				continue
+		if _, ok := slices.BinarySearch(some, i); ok {
+			for j := i + 1; j < len(m.bands); j++ {
+				pair(i, j)
 			}
-			d1 := math.Min(allowedAt(a, a.Hi), 0.5)
-			d2 := math.Min(allowedAt(b, b.Lo), 0.5)
-			if n := HerrmannLength(d1, d2, tr, m.rate); n > est {
-				est = n
-				// Herrmann's D(dp, ds)/df, taken with every error limit a
-				// factor e tighter, says how many taps a factor e of error
-				// costs at this transition: the prior slope of the search.
-				m.perNeper = (HerrmannD(d1/math.E, d2/math.E) - HerrmannD(d1, d2)) / (tr / m.rate)
-			}
+			continue
+		}
+		k, _ := slices.BinarySearch(some, i+1)
+		for _, j := range some[k:] {
+			pair(i, j)
 		}
 	}
 	return min(est, m.maxTaps)

@@ -6,6 +6,7 @@ import (
 	"math"
 	"math/rand/v2"
 	"os"
+	"slices"
 	"sort"
 	"testing"
 )
@@ -297,6 +298,56 @@ func TestMinLengthBelowBreakdown(t *testing.T) {
 		got, err := m.search(n0, 0)
 		if err != nil || got != 150 {
 			t.Errorf("from %d taps: %d, %v; want 150", n0, got, err)
+		}
+	}
+}
+
+// The estimate pairs a band that wants gain 0 only with the bands that
+// want another gain; on seeded random band sets (stopbands, passbands of
+// gain 1 or 2, some with a GainFunc) it gives the estimate and slope of
+// every pair taken in order, written out here.
+func TestEstimatePairsAsAllPairs(t *testing.T) {
+	rng := rand.New(rand.NewPCG(23, 5))
+	for trial := 0; trial < 300; trial++ {
+		nb := 2 + rng.IntN(12)
+		edges := make([]float64, 2*nb)
+		for i := range edges {
+			edges[i] = rng.Float64() * 0.5
+		}
+		slices.Sort(edges)
+		bands := make([]Band, nb)
+		for i := range bands {
+			b := Band{Lo: edges[2*i], Hi: edges[2*i+1], MaxError: math.Pow(10, -1-3*rng.Float64())}
+			switch rng.IntN(4) {
+			case 0:
+				b.Gain = 1
+			case 1:
+				b.Gain = 2
+			case 2:
+				if rng.IntN(2) == 0 {
+					b.GainFunc = func(f float64) float64 { return 1 + f }
+				}
+			}
+			bands[i] = b
+		}
+		m := &lengthSearch{rate: 1, bands: bands, maxTaps: 1 << 20}
+		got := m.estimate()
+		want, wantSlope := 3, 0.0
+		for i := 0; i+1 < nb; i++ {
+			for j := i + 1; j < nb; j++ {
+				a, b := &bands[i], &bands[j]
+				tr := b.Lo - a.Hi
+				if tr <= 0 || math.Abs(gainAt(a, a.Hi)-gainAt(b, b.Lo)) <= allowedAt(a, a.Hi)+allowedAt(b, b.Lo) {
+					continue
+				}
+				d1, d2 := math.Min(allowedAt(a, a.Hi), 0.5), math.Min(allowedAt(b, b.Lo), 0.5)
+				if n := HerrmannLength(d1, d2, tr, 1); n > want {
+					want, wantSlope = n, (HerrmannD(d1/math.E, d2/math.E)-HerrmannD(d1, d2))/tr
+				}
+			}
+		}
+		if got != min(want, 1<<20) || m.perNeper != wantSlope {
+			t.Fatalf("trial %d: estimate %d slope %v, every pair gives %d slope %v", trial, got, m.perNeper, want, wantSlope)
 		}
 	}
 }
