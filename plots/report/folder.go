@@ -32,8 +32,10 @@ import (
 // that it can lock (a run holds that name for microseconds). It never
 // touches a folder a live run holds, nor .stepdown-old-* (which can hold a
 // previous output that a run killed in the middle of its rename did not
-// put back), nor the unlocked temporaries of older stepdown versions
-// (.stepdown-tmp-*).
+// put back), nor .stepdown-tmp-*: the temporaries of older stepdown
+// versions, and of runs on a file system where the lock cannot be taken
+// (NFS and CIFS emulate flock with byte-range locks, which a folder
+// cannot hold), which go on unlocked under that name.
 //
 // Its zero value is not usable: OpenFolder makes one. Messages name the
 // folder as role "dir" (the command line's role is "--out").
@@ -71,19 +73,22 @@ func failure(format string, args ...any) error {
 
 // Prefixes of the temporary names beside the output folder.
 const (
-	birthPrefix = ".stepdown-new-"
-	tmpPrefix   = ".stepdown-run-"
-	oldPrefix   = ".stepdown-old-"
+	birthPrefix    = ".stepdown-new-"
+	tmpPrefix      = ".stepdown-run-"
+	unlockedPrefix = ".stepdown-tmp-" // a temporary folder not locked: never swept
+	oldPrefix      = ".stepdown-old-"
 )
 
 // staleBirth is the age past which an unlocked .stepdown-new-* folder is a
 // leftover.
 const staleBirth = 10 * time.Minute
 
-// Seams for tests: the file-system calls whose failures commit handles.
+// Seams for tests: the file-system calls whose failures commit handles,
+// and the lock a run takes on its temporary folder.
 var (
-	removeAll = os.RemoveAll
-	rename    = os.Rename
+	removeAll  = os.RemoveAll
+	rename     = os.Rename
+	lockFolder = lockDir
 )
 
 // OpenFolder checks the output folder dir before any work, and creates the
@@ -142,12 +147,15 @@ func OpenFolder(dir, role string) (*Folder, error) {
 		o.Discard()
 		return nil, failure("%s %q: %v", role, shown, unwrapPath(err))
 	}
-	// Locked before it takes the name that later runs sweep.
-	if o.lock, err = lockDir(birth); err != nil {
-		o.Discard()
-		return nil, failure("%s %q: cannot lock the temporary folder in %q: %v", role, shown, units.Clip(parent, units.MaxEcho), unwrapPath(err))
+	// Locked before it takes the name that later runs sweep. Where the
+	// lock cannot be taken (a network file system that emulates flock
+	// with byte-range locks refuses one on a folder), the run goes on
+	// under the name no run sweeps.
+	prefix := tmpPrefix
+	if o.lock, err = lockFolder(birth); err != nil {
+		o.lock, prefix = nil, unlockedPrefix
 	}
-	tmp := filepath.Join(parent, tmpPrefix+strings.TrimPrefix(filepath.Base(birth), birthPrefix))
+	tmp := filepath.Join(parent, prefix+strings.TrimPrefix(filepath.Base(birth), birthPrefix))
 	if err := rename(birth, tmp); err != nil {
 		o.Discard()
 		return nil, failure("%s %q: cannot write in %q: %v", role, shown, units.Clip(parent, units.MaxEcho), unwrapPath(err))

@@ -229,3 +229,37 @@ func TestOpenFolderSweepsStale(t *testing.T) {
 		t.Error("the lock is still held after Commit and Discard")
 	}
 }
+
+// Where the lock cannot be taken (a network file system), a run goes on
+// under .stepdown-tmp-, which no run sweeps, and commits as usual.
+func TestOpenFolderWithoutLock(t *testing.T) {
+	defer func(f func(string) (*os.File, error)) { lockFolder = f }(lockFolder)
+	lockFolder = func(string) (*os.File, error) { return nil, errors.New("bad file descriptor") }
+	parent := t.TempDir()
+	o, err := OpenFolder(filepath.Join(parent, "out"), "")
+	if err != nil {
+		t.Fatal(err)
+	}
+	defer o.Discard()
+	if !strings.HasPrefix(filepath.Base(o.tmp), unlockedPrefix) || o.lock != nil {
+		t.Fatalf("temporary folder %q, lock %v: want %s* and no lock", filepath.Base(o.tmp), o.lock, unlockedPrefix)
+	}
+	lockFolder = lockDir
+	other, err := OpenFolder(filepath.Join(parent, "b"), "")
+	if err != nil {
+		t.Fatal(err)
+	}
+	defer other.Discard()
+	if _, err := os.Stat(o.tmp); err != nil {
+		t.Fatalf("another run swept the unlocked temporary folder: %v", err)
+	}
+	if err := o.Write([]File{{Name: "report.json", Data: []byte("{}")}}); err != nil {
+		t.Fatal(err)
+	}
+	if err := o.Commit(); err != nil {
+		t.Fatal(err)
+	}
+	if _, err := os.Stat(filepath.Join(parent, "out", "report.json")); err != nil {
+		t.Fatal(err)
+	}
+}
