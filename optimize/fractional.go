@@ -3,6 +3,7 @@ package optimize
 import (
 	"cmp"
 	"context"
+	"errors"
 	"math"
 	"runtime"
 	"slices"
@@ -315,6 +316,11 @@ func planFractional(ctx context.Context, spec chain.Spec, s Settings) (*Result, 
 			return
 		}
 		r, err := Plan(ctx, sub.spec, subSettings(s, maxStages-1, integer))
+		if errors.Is(err, errNoCandidate) {
+			// No integer chain of these kinds and stages makes d: nothing
+			// was designed, nothing failed.
+			return
+		}
 		if err != nil {
 			sub.failed = true
 			return

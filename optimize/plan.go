@@ -2,6 +2,7 @@ package optimize
 
 import (
 	"context"
+	"errors"
 	"fmt"
 	"math"
 	"runtime"
@@ -1400,21 +1401,39 @@ func tooLarge(sp *space, n int64) error {
 		sp.d, stages, countString(n), MaxCandidates, fit, fitN)
 }
 
+// errNoCandidate marks noCandidate's refusals.
+var errNoCandidate = errors.New("no candidate")
+
+// noCandidateError is a refusal of an empty search space, in words.
+type noCandidateError struct{ msg string }
+
+func (e *noCandidateError) Error() string        { return e.msg }
+func (e *noCandidateError) Is(target error) bool { return target == errNoCandidate }
+
 // noCandidate is the refusal of an empty search space: it names the least
-// MaxStages that gives a candidate (a stage takes a factor of at most
-// chain.MaxStageFactor), or, when none up to MaxStagesLimit does, why: a
-// prime factor of d above chain.MaxStageFactor, or the kinds searched.
+// MaxStages that gives a candidate, or, when none up to MaxStagesLimit
+// does, why: a prime factor of d above chain.MaxStageFactor, or the kinds
+// searched. The cause it names is the stage factor's limit only when d is
+// beyond one stage's reach; otherwise the kinds (a half-band decimates by
+// 2 only, a CIC comes first) leave the stages too few.
 func noCandidate(sp *space) error {
+	errorf := func(format string, args ...any) error {
+		return &noCandidateError{fmt.Sprintf(format, args...)}
+	}
+	why := "with the stage kinds searched (a half-band decimates by 2 only, a CIC comes first)"
+	if sp.d > chain.MaxStageFactor {
+		why = fmt.Sprintf("(a stage takes a factor of at most %d)", chain.MaxStageFactor)
+	}
+	stages := "stages"
+	if sp.maxStages == 1 {
+		stages = "stage"
+	}
 	for m := sp.maxStages + 1; m <= MaxStagesLimit; m++ {
 		t := *sp
 		t.maxStages, t.memo = m, nil
 		if t.count() > 0 {
-			stages := "stages"
-			if sp.maxStages == 1 {
-				stages = "stage"
-			}
-			return fmt.Errorf("optimize: decimation %d within %d %s gives no candidate: a stage takes a factor of at most %d; MaxStages = %d is the least that gives one",
-				sp.d, sp.maxStages, stages, chain.MaxStageFactor, m)
+			return errorf("optimize: decimation %d within %d %s gives no candidate %s; MaxStages = %d is the least that gives one",
+				sp.d, sp.maxStages, stages, why, m)
 		}
 	}
 	n := sp.d
@@ -1424,10 +1443,10 @@ func noCandidate(sp *space) error {
 		}
 	}
 	if n > chain.MaxStageFactor {
-		return fmt.Errorf("optimize: decimation %d has the prime factor %d, above the %d one stage can take: no chain of integer stages makes it; allow a nearby ratio (ratio_tolerance_ppm) for a fractional stage",
-			sp.d, n, chain.MaxStageFactor)
+		return errorf("optimize: decimation %d has the prime factor %d, above the %d one stage can take: no chain of integer stages makes it; choose rates whose ratio has no prime factor above %d",
+			sp.d, n, chain.MaxStageFactor, chain.MaxStageFactor)
 	}
-	return fmt.Errorf("optimize: decimation %d gives no candidate with the stage kinds searched (a half-band decimates by 2 only, a CIC comes first): widen Kinds", sp.d)
+	return errorf("optimize: decimation %d gives no candidate %s: widen Kinds", sp.d, why)
 }
 
 func countString(n int64) string {
