@@ -62,18 +62,12 @@ func minLength(ctx context.Context, rate float64, bands []Band, parity, maxTaps 
 	if maxTaps < 3 {
 		return nil, nil, fmt.Errorf("remez: maxTaps = %d: must be at least 3 (0 means 65535)", maxTaps)
 	}
-	wb := make([]Band, len(bands))
 	for i, b := range bands {
 		if !(b.MaxError > 0) || math.IsInf(b.MaxError, 0) {
 			return nil, nil, fmt.Errorf("remez: band %d MaxError = %v: MinLength needs a positive, finite error limit for every band", i, b.MaxError)
 		}
-		wb[i] = b
-		wb[i].Weight = 1 / b.MaxError
-		if wf := b.WeightFunc; wf != nil {
-			lim := b.MaxError
-			wb[i].WeightFunc = func(f float64) float64 { return wf(f) / lim }
-		}
 	}
+	wb := limitWeighted(bands)
 	evenOK := true
 	if last := bands[len(bands)-1]; last.Hi == rate/2 {
 		g := last.Gain
@@ -187,6 +181,22 @@ func (e *SearchError) Unwrap() []error { return e.errs }
 
 func (m *lengthSearch) fail(lo, hi int, msg string, errs ...error) error {
 	return &SearchError{Fail: lo, Met: hi, Limit: m.maxTaps, msg: msg, errs: errs}
+}
+
+// limitWeighted returns bands weighted as MinLength designs them: each by
+// the inverse of its MaxError (times its WeightFunc), so that a weighted
+// error of 1 is every band's limit.
+func limitWeighted(bands []Band) []Band {
+	wb := make([]Band, len(bands))
+	for i, b := range bands {
+		wb[i] = b
+		wb[i].Weight = 1 / b.MaxError
+		if wf := b.WeightFunc; wf != nil {
+			lim := b.MaxError
+			wb[i].WeightFunc = func(f float64) float64 { return wf(f) / lim }
+		}
+	}
+	return wb
 }
 
 // breakdownFactor is how far above a shorter failing length's error ratio

@@ -122,15 +122,7 @@ func TestMinLengthProtectedBand(t *testing.T) {
 // weights and asserts that neither meets by the dense check.
 func checkShorterFails(t *testing.T, rate float64, bands []Band, n int) {
 	t.Helper()
-	wb := make([]Band, len(bands))
-	for i, b := range bands {
-		wb[i] = b
-		wb[i].Weight = 1 / b.MaxError
-		if wf := b.WeightFunc; wf != nil {
-			lim := b.MaxError
-			wb[i].WeightFunc = func(f float64) float64 { return wf(f) / lim }
-		}
-	}
+	wb := limitWeighted(bands)
 	for _, k := range []int{n - 1, n - 2} {
 		if k < 3 {
 			continue
@@ -151,15 +143,7 @@ func checkShorterFails(t *testing.T, rate float64, bands []Band, n int) {
 // newSearch is minLength's search state for rate and bands (weights 1 over
 // MaxError, no grid cap), for tests that drive lengthSearch.search.
 func newSearch(rate float64, bands []Band) *lengthSearch {
-	wb := make([]Band, len(bands))
-	for i, b := range bands {
-		wb[i] = b
-		wb[i].Weight = 1 / b.MaxError
-		if wf := b.WeightFunc; wf != nil {
-			lim := b.MaxError
-			wb[i].WeightFunc = func(f float64) float64 { return wf(f) / lim }
-		}
-	}
+	wb := limitWeighted(bands)
 	return &lengthSearch{ctx: context.Background(), rate: rate, bands: bands, wb: wb, maxTaps: 65535,
 		cache: map[int]*Result{}, ratio: map[int]float64{}, lax: map[int]bool{}}
 }
