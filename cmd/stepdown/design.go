@@ -168,13 +168,10 @@ func runDesign(c *cli.Context) error {
 	out := designOutput{RateHz: rate, TargetRippleDB: ripple, TargetAttenDB: atten, GridDensity: grid, Caution: caution}
 	var bands []remez.Band
 	for _, e := range edges {
-		b := remez.Band{Lo: e.lo, Hi: e.hi, Weight: 1, MaxError: dp}
+		b := designBandOf(e.lo, e.hi, e.pass, dp, ds)
 		kind := "pass"
-		if e.pass {
-			b.Gain = 1
-		} else {
-			// Weighting the stopbands dp/ds makes one levelled error meet both targets.
-			b.Weight, b.MaxError, kind = dp/ds, ds, "stop"
+		if !e.pass {
+			kind = "stop"
 		}
 		bands = append(bands, b)
 		out.Bands = append(out.Bands, designBand{Kind: kind, LoHz: e.lo, HiHz: e.hi, Weight: b.Weight})
@@ -244,6 +241,16 @@ func runDesign(c *cli.Context) error {
 	}
 	printDesign(c.App.Writer, out)
 	return nil
+}
+
+// designBandOf is the design command's band from lo to hi Hz: a passband
+// of gain 1 within dp, or a stopband within ds weighted dp/ds, so that one
+// levelled error meets both targets.
+func designBandOf(lo, hi float64, pass bool, dp, ds float64) remez.Band {
+	if pass {
+		return remez.Band{Lo: lo, Hi: hi, Gain: 1, Weight: 1, MaxError: dp}
+	}
+	return remez.Band{Lo: lo, Hi: hi, Weight: dp / ds, MaxError: ds}
 }
 
 // designFlags are what designFailure needs of the command line.
@@ -342,13 +349,9 @@ func roundingFailure(ctx context.Context, se *remez.SearchError, f designFlags) 
 		} else {
 			ds = chain.RejectionToDev(try)
 		}
-		bands := append([]remez.Band(nil), f.bands...)
-		for i := range bands {
-			if bands[i].Gain == 1 {
-				bands[i].MaxError = dp
-			} else {
-				bands[i].Weight, bands[i].MaxError = dp/ds, ds
-			}
+		bands := make([]remez.Band, len(f.bands))
+		for i, b := range f.bands {
+			bands[i] = designBandOf(b.Lo, b.Hi, b.Gain == 1, dp, ds)
 		}
 		_, err := remez.MinLengthContext(ctx, f.rate, bands, 0, maxDesignTaps, remez.Settings{Density: f.grid})
 		if ctx.Err() != nil {
