@@ -28,21 +28,12 @@ func dominates(a, b *figs) bool {
 type frontSet struct {
 	f  []figs
 	id []int
-	// last is the index of the point that last turned one away: points
-	// offered in a row are often alike, and a point that dominates one
-	// often dominates the next, so it is asked first. It changes the
-	// order of the comparisons only, never the set.
-	last int
 }
 
 // add offers a point and reports whether it joined the set.
 func (s *frontSet) add(f figs, id int) bool {
-	if s.last < len(s.f) && dominates(&s.f[s.last], &f) {
-		return false
-	}
 	for i := range s.f {
 		if dominates(&s.f[i], &f) {
-			s.last = i
 			return false
 		}
 	}
