@@ -35,12 +35,45 @@ func DesignContext(ctx context.Context, spec Spec, plan []StagePlan, s Settings)
 	return build(ctx, spec, plan, s, true)
 }
 
+// DesignPrefixContext designs plan's first n stages (from the high rate;
+// 1 <= n <= len(plan)) exactly as DesignContext designs them, and only
+// estimates the stages after them, as Estimate does: a stage's design
+// depends on the stages before it and on the plan's requirements, never
+// on the designs after it, so each designed stage is the one DesignContext
+// gives, and so are its priced figures (cost.Price). The chain's Designed
+// is false unless n = len(plan). A search that learns a stage's real
+// figures from a chain it will not build pays for that stage and those
+// before it only. A plan with a fractional stage is refused.
+func DesignPrefixContext(ctx context.Context, spec Spec, plan []StagePlan, n int, s Settings) (*Chain, error) {
+	if n < 1 || n > len(plan) {
+		return nil, fmt.Errorf("chain: DesignPrefixContext: n = %d stages of %d: must be 1 to %d", n, len(plan), len(plan))
+	}
+	if n == len(plan) {
+		return build(ctx, spec, plan, s, true)
+	}
+	if spec.Fractional() || planFracIndex(plan) >= 0 {
+		return nil, fmt.Errorf("chain: DesignPrefixContext: %q has a fractional stage: design it whole", Notation(plan))
+	}
+	return buildN(ctx, spec, plan, s, n)
+}
+
 // stopped is the error of a design stopped by its context.
 func stopped(plan []StagePlan, err error) error {
 	return fmt.Errorf("chain: design of %q stopped: %w", Notation(plan), err)
 }
 
 func build(ctx context.Context, spec Spec, plan []StagePlan, s Settings, design bool) (*Chain, error) {
+	n := 0
+	if design {
+		n = len(plan)
+	}
+	return buildN(ctx, spec, plan, s, n)
+}
+
+// buildN designs plan's first n stages and estimates the rest: n = 0 is
+// Estimate, n = len(plan) Design.
+func buildN(ctx context.Context, spec Spec, plan []StagePlan, s Settings, n int) (*Chain, error) {
+	design := n > 0
 	user, err := spec.Normalize()
 	if err != nil {
 		return nil, err
@@ -62,7 +95,7 @@ func build(ctx context.Context, spec Spec, plan []StagePlan, s Settings, design 
 		// integer ratio may be made up of one too (fir5 > fir10 >
 		// poly50/53 for D = 53). A fractional stage elsewhere is refused
 		// there, in the words of where it may go.
-		return buildFractional(ctx, spec, plan, s, design)
+		return buildFractional(ctx, spec, plan, s, n == len(plan))
 	}
 	// Estimates keep the stage-alone rule's limits: the credit needs the
 	// earlier stages' taps, and the flat limits over-estimate safely.
@@ -71,7 +104,7 @@ func build(ctx context.Context, spec Spec, plan []StagePlan, s Settings, design 
 		return nil, err
 	}
 	c := &Chain{InputRate: spec.InputRate, Complex: spec.Complex, Direction: spec.Direction(),
-		Plan: append([]StagePlan(nil), plan...), Designed: design}
+		Plan: append([]StagePlan(nil), plan...), Designed: n == len(plan)}
 	bits := spec.InputBits
 	for i, p := range plan {
 		if c.Direction == Interpolate {
@@ -87,6 +120,21 @@ func build(ctx context.Context, spec Spec, plan []StagePlan, s Settings, design 
 			return nil, stopped(plan, err)
 		}
 		r := reqs[i]
+		if design && i >= n && p.Kind != CIC {
+			// Past the designed prefix: an estimate, as Estimate's.
+			var st FIRStage
+			if p.Kind == HalfBand {
+				st, err = halfBandStage(ctx, r, s, false)
+			} else {
+				st, err = firStage(ctx, r, c.Stages, s, false)
+			}
+			if err != nil {
+				return nil, planErr(plan, i, "%v", err)
+			}
+			c.Stages = append(c.Stages, st)
+			bits = spec.OutputBits
+			continue
+		}
 		switch p.Kind {
 		case CIC:
 			cs, err := newCIC(c.Direction, p, bits, spec.OutputBits)

@@ -220,6 +220,35 @@ func (r realDesigner) design(plan []chain.StagePlan) (Candidate, Reason) {
 	return cd, ""
 }
 
+// designPrefix designs plan's first n stages alone (the rest estimated,
+// chain.DesignPrefixContext) and prices them: the figures of those stages
+// are the ones the whole chain's design gives them. ok is false when it
+// cannot: the chain is judged on rounded taps (a stage then is learnt as
+// design re-designs it for rounding, which needs the whole chain), or the
+// partial design failed, whose whole design fails alike and the caller
+// records (its failing stage is remembered by the stage memo, so that
+// costs nothing twice).
+func (r realDesigner) designPrefix(plan []chain.StagePlan, n int) (c Candidate, ok bool) {
+	if r.rounded(r.spec) {
+		return Candidate{}, false
+	}
+	ch, err := chain.DesignPrefixContext(r.ctx, r.spec, plan, n, r.s.Chain)
+	if err != nil {
+		return Candidate{}, false
+	}
+	f, err := cost.Price(r.spec, ch, r.s.Cost)
+	if err != nil {
+		return Candidate{}, false
+	}
+	return Candidate{Plan: plan, Chain: ch, Figures: f}, true
+}
+
+// prefixDesigner is a designer that can design a plan's leading stages
+// alone (realDesigner.designPrefix).
+type prefixDesigner interface {
+	designPrefix(plan []chain.StagePlan, n int) (Candidate, bool)
+}
+
 // riskRatio is the predicted rounding floor, as a fraction of a stage's
 // stopband limit, from which design measures a chain on its rounded taps
 // at once (see atRisk).
@@ -1171,6 +1200,9 @@ func (t *designTier) learn(band []scored) (bool, int) {
 	}
 	for round := 0; round < maxRounds; round++ {
 		var reps [][]chain.StagePlan
+		// upto[i]: the stages of reps[i] to design, up to the last one it
+		// is wanted for; the stages after it are learnt or claimed.
+		var upto []int
 		claimed := map[realKey]bool{}
 		for i := range band {
 			pl := band[i].plan
@@ -1178,26 +1210,35 @@ func (t *designTier) learn(band []scored) (bool, int) {
 				continue
 			}
 			est.keysOf(pl)
-			want := false
-			for _, k := range est.keys {
+			last := -1
+			for j, k := range est.keys {
 				if _, ok := learnt[k]; !ok && !claimed[k] && tries[k] <= round {
-					want = true
+					last = j
 				}
 			}
-			if !want {
+			if last < 0 {
 				continue
 			}
 			for _, k := range est.keys {
 				claimed[k] = true
 			}
 			reps = append(reps, pl)
+			upto = append(upto, last+1)
 		}
 		if reps = trim(reps); len(reps) == 0 {
 			break
 		}
+		upto = upto[:len(reps)]
 		debugf("round %d reps %d", round, len(reps))
-		ok := t.designAll(reps)
-		for _, pl := range reps {
+		parts, ok := t.designLearn(reps, upto)
+		for r, pl := range reps {
+			if c := parts[r]; c != nil {
+				est.keysOf(pl)
+				for i, k := range est.keys[:upto[r]] {
+					learnt[k] = stageFigs(&c.Figures, i)
+				}
+				continue
+			}
 			o, done := memo[planKey(pl)]
 			if !done {
 				continue

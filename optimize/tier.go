@@ -110,20 +110,90 @@ func (t *designTier) designAll(plans [][]chain.StagePlan) bool {
 			all = false
 			continue
 		}
-		k := planKey(todo[i])
-		if n := outs[i].c.redesigns; n > 0 {
-			t.workLeft -= float64(n) * t.est.work(todo[i])
-		}
-		t.hopeless(todo[i], outs[i])
-		t.memo[k] = outs[i]
-		t.order = append(t.order, k)
-		t.res.Designed++
-		if outs[i].reason != "" {
-			t.res.Dropped[outs[i].reason]++
-			t.fail(todo[i])
-		}
+		t.record(todo[i], outs[i])
 	}
 	return all
+}
+
+// record remembers the outcome of a whole chain's design.
+func (t *designTier) record(plan []chain.StagePlan, o outcome) {
+	k := planKey(plan)
+	if n := o.c.redesigns; n > 0 {
+		t.workLeft -= float64(n) * t.est.work(plan)
+	}
+	t.hopeless(plan, o)
+	t.memo[k] = o
+	t.order = append(t.order, k)
+	t.res.Designed++
+	if o.reason != "" {
+		t.res.Dropped[o.reason]++
+		t.fail(plan)
+	}
+}
+
+// designLearn designs the representatives of one of learn's rounds:
+// reps[i] whole (remembered as by designAll) where upto[i] = len(reps[i]),
+// else, when the designer can, its first upto[i] stages alone, which is
+// all the round learns from it (the stages after them are learnt or
+// claimed by another representative). A partial design that fails is
+// followed by the whole chain's, which fails alike and is remembered.
+// It returns the partial designs (nil where none) and false when
+// cancelled.
+func (t *designTier) designLearn(reps [][]chain.StagePlan, upto []int) ([]*Candidate, bool) {
+	pd, can := t.des.(prefixDesigner)
+	type result struct {
+		part *Candidate
+		o    outcome
+	}
+	var todo []int
+	seen := map[string]bool{}
+	for i, pl := range reps {
+		k := planKey(pl)
+		if _, ok := t.memo[k]; ok || seen[k] {
+			continue
+		}
+		seen[k] = true
+		todo = append(todo, i)
+	}
+	outs := make([]result, len(todo))
+	prog := t.progress()
+	t.total += len(todo)
+	keys := make([][]realKey, len(todo))
+	for j, i := range todo {
+		t.est.keysOf(reps[i])
+		for m, k := range t.est.keys {
+			if chain.Kind(k.kind) != chain.CIC && m < upto[i] {
+				keys[j] = append(keys[j], k)
+			}
+		}
+	}
+	done := runApart(t.ctx, t.jobs, len(todo), keys, func(j int) {
+		pl, n := reps[todo[j]], upto[todo[j]]
+		if can && n < len(pl) {
+			if c, ok := pd.designPrefix(pl, n); ok {
+				outs[j].part = &c
+				return
+			}
+		}
+		c, why := t.des.design(pl)
+		outs[j].o = outcome{c: c, reason: why}
+	}, prog)
+	parts := make([]*Candidate, len(reps))
+	all := true
+	for j, ok := range done {
+		if !ok {
+			all = false
+			continue
+		}
+		i := todo[j]
+		if outs[j].part != nil {
+			parts[i] = outs[j].part
+			t.res.Designed++
+			continue
+		}
+		t.record(reps[i], outs[j].o)
+	}
+	return parts, all
 }
 
 // hopeless gives up at once the stages of a chain dropped for its rounded
