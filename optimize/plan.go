@@ -1214,6 +1214,13 @@ func (t *designTier) learn(band []scored) (bool, int) {
 			for j, k := range est.keys {
 				if _, ok := learnt[k]; !ok && !claimed[k] && tries[k] <= round {
 					last = j
+					if chain.Kind(k.kind) == chain.CIC {
+						// A CIC's figures are exact already: it is
+						// wanted for the chain it makes, designed
+						// whole, since the stages after it are keyed
+						// on its factor alone (realKey).
+						last = len(pl) - 1
+					}
 				}
 			}
 			if last < 0 {
