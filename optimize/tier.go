@@ -47,6 +47,9 @@ type designTier struct {
 	// tries how often a stage's chains failed (see learn).
 	learnt map[realKey]figs
 	tries  map[realKey]int
+	// partial holds the representatives learn designed in part, by plan
+	// key: their own figures over the stages designed.
+	partial map[string]prefixFigs
 	// retake is set by a search pass whose estimated front held a chain
 	// that failed.
 	retake bool
@@ -54,7 +57,7 @@ type designTier struct {
 
 func newDesignTier(ctx context.Context, jobs int, des designer, est *estimator, s *Settings, res *Result) *designTier {
 	t := &designTier{ctx: ctx, jobs: jobs, des: des, est: est, s: s, res: res,
-		memo: map[string]outcome{}, gone: map[string]bool{}, learnt: map[realKey]figs{}, tries: map[realKey]int{}, maxDesigns: s.MaxDesigns, workLeft: s.MaxWork}
+		memo: map[string]outcome{}, gone: map[string]bool{}, learnt: map[realKey]figs{}, tries: map[realKey]int{}, partial: map[string]prefixFigs{}, maxDesigns: s.MaxDesigns, workLeft: s.MaxWork}
 	if t.maxDesigns == 0 {
 		t.maxDesigns = defaultMaxDesigns
 	}
