@@ -179,7 +179,7 @@ type Result struct {
 	// the package doc).
 	Feasible    []Candidate
 	FeasibleAll int            // how many were feasible before thinning
-	Designed    int            // how many were designed for real (whole, or up to a stage to learn; see the package doc)
+	Designed    int            // how many were designed for real (a representative designed in part, then whole, counts once; see the package doc)
 	Dropped     map[Reason]int // how many candidates each reason dropped
 	Front       []Candidate    // the final non-dominated set, all designed, sorted by multiplies
 	Recommended int            // index into Front; -1 when Front is empty

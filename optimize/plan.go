@@ -1363,16 +1363,12 @@ func (t *designTier) learn(band []scored) (bool, int) {
 			finish = append(finish, pl)
 		}
 	}
-	unfinished := 0
-	if n := t.fit(finish); n < len(finish) {
-		unfinished = len(finish) - n
-		finish = finish[:n]
-	}
-	if !t.designAll(finish) {
+	// They were charged as whole designs when they were taken as
+	// representatives (fit counts the design and the whole plan's work).
+	if !t.designWhole(finish, true) {
 		return false, 0
 	}
 	ok, short := t.settle(plans, exact)
-	short += unfinished
 	if short > 0 || (capped && unpriced > 0) {
 		return ok, short + unpriced
 	}

@@ -81,6 +81,13 @@ func (t *designTier) progress() func(int, int) {
 // designAll designs the plans not designed yet, in parallel, each into its
 // own slot, and reports whether all of them ran.
 func (t *designTier) designAll(plans [][]chain.StagePlan) bool {
+	return t.designWhole(plans, false)
+}
+
+// designWhole is designAll; prepaid plans (representatives designed in
+// part, see learn) were counted in Result.Designed when taken, and are
+// not counted again.
+func (t *designTier) designWhole(plans [][]chain.StagePlan, prepaid bool) bool {
 	var todo [][]chain.StagePlan
 	seen := map[string]bool{}
 	for _, pl := range plans {
@@ -114,6 +121,9 @@ func (t *designTier) designAll(plans [][]chain.StagePlan) bool {
 			continue
 		}
 		t.record(todo[i], outs[i])
+		if prepaid {
+			t.res.Designed--
+		}
 	}
 	return all
 }
