@@ -37,9 +37,12 @@ func DesignContext(ctx context.Context, spec Spec, plan []StagePlan, s Settings)
 
 // DesignPrefixContext designs plan's first n stages (from the high rate;
 // 1 <= n <= len(plan)) exactly as DesignContext designs them, and only
-// estimates the stages after them, as Estimate does: a stage's design
-// depends on the stages before it and on the plan's requirements, never
-// on the designs after it, so each designed stage is the one DesignContext
+// estimates the lengths of the stages after them (Herrmann's estimate, as
+// Estimate's, but on the requirements of the design's rule): a stage's
+// design depends on the stages before it and on the whole plan's
+// requirements (the later stages' kinds and factors set its ripple share
+// and limits), never on the designs after it, so each designed stage is
+// the one DesignContext
 // gives, and so are its priced figures (cost.Price). The chain's Designed
 // is false unless n = len(plan). A search that learns a stage's real
 // figures from a chain it will not build pays for that stage and those
@@ -121,7 +124,7 @@ func buildN(ctx context.Context, spec Spec, plan []StagePlan, s Settings, n int)
 		}
 		r := reqs[i]
 		if design && i >= n && p.Kind != CIC {
-			// Past the designed prefix: an estimate, as Estimate's.
+			// Past the designed prefix: a length estimate only.
 			var st FIRStage
 			if p.Kind == HalfBand {
 				st, err = halfBandStage(ctx, r, s, false)

@@ -126,17 +126,21 @@
 // representative chain for each stage not learnt yet and designs it only
 // up to the last stage it is taken for (chain.DesignPrefixContext, the
 // stages after it estimated), since a stage's design and price depend on
-// the stages before it, never on those after; the later stages are
-// learnt, or taken by another representative, already. A chain judged on
-// rounded taps, or whose partial design fails, is designed whole (its
-// failing stage is remembered, so that costs nothing twice), and so is one
-// taken for its CIC (the stages after a CIC are keyed on its factor alone).
+// the stages before it and the whole plan's requirements, never on the
+// designs after it; the later stages are learnt, or taken by another
+// representative, already (or backing off after failures: those are
+// designed too, as a whole design would). A chain judged on rounded taps,
+// or whose partial design fails, is designed whole (its failing stage is
+// remembered, so that costs nothing twice), and so is one taken for its
+// CIC (the stages after a CIC are keyed on its factor alone). The
+// fabric's limits are checked on whole chains only.
 // A representative designed in part is priced on its own stages and the
 // learnt figures of the rest, which other chains taught: their earlier
 // stages differ and credit them differently, so in this chain they may
 // come out shorter (by 10 to 16% on each axis, measured, for a fir2 after a
 // half-band at D = 96). Every such representative that the priced front
-// would not beat were its later stages Settings.Tolerance shorter is
+// would not beat (its front taken as settle takes it, real figures where
+// designed) were its later stages shorter by Settings.Tolerance is
 // designed whole before the front is settled. A representative counts as
 // one design in Result.Designed and against the caps below however it is
 // designed (taken, it is charged as a whole design). On the D = 4096 benchmark

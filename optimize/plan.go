@@ -227,7 +227,8 @@ func (r realDesigner) design(plan []chain.StagePlan) (Candidate, Reason) {
 // design re-designs it for rounding, which needs the whole chain), or the
 // partial design failed, whose whole design fails alike and the caller
 // records (its failing stage is remembered by the stage memo, so that
-// costs nothing twice).
+// costs nothing twice). The limits (Settings.Limits) are not checked on a
+// part: its stages are learnt, and the chains they make are checked whole.
 func (r realDesigner) designPrefix(plan []chain.StagePlan, n int) (c Candidate, ok bool) {
 	if r.rounded(r.spec) {
 		return Candidate{}, false
@@ -1211,21 +1212,29 @@ func (t *designTier) learn(band []scored) (bool, int) {
 				continue
 			}
 			est.keysOf(pl)
-			last := -1
+			// Every stage neither learnt nor claimed is designed (one
+			// backing off after failures too, as a whole design would),
+			// but the chain is taken only for a stage not backing off.
+			last, wanted, whole := -1, false, false
 			for j, k := range est.keys {
-				if _, ok := learnt[k]; !ok && !claimed[k] && tries[k] <= round {
-					last = j
-					if chain.Kind(k.kind) == chain.CIC {
-						// A CIC's figures are exact already: it is
-						// wanted for the chain it makes, designed
-						// whole, since the stages after it are keyed
-						// on its factor alone (realKey).
-						last = len(pl) - 1
-					}
+				if _, ok := learnt[k]; ok || claimed[k] {
+					continue
+				}
+				last = j
+				if tries[k] <= round {
+					wanted = true
+					// A CIC's figures are exact already: it is wanted
+					// for the chain it makes, designed whole, since
+					// the stages after it are keyed on its factor
+					// alone (realKey).
+					whole = whole || chain.Kind(k.kind) == chain.CIC
 				}
 			}
-			if last < 0 {
+			if !wanted {
 				continue
+			}
+			if whole {
+				last = len(pl) - 1
 			}
 			for _, k := range est.keys {
 				claimed[k] = true
@@ -1290,20 +1299,21 @@ func (t *designTier) learn(band []scored) (bool, int) {
 	exact := make([]figs, 0, len(band))
 	plans := make([][]chain.StagePlan, 0, len(band))
 	var tails []figs
+	var known []bool // every stage's figures known (a designed plan may lack some)
 	unpriced := 0
 	for i := range band {
 		pl := band[i].plan
 		est.keysOf(pl)
 		p, isPart := partial[planKey(pl)]
 		var f, tail figs
-		known := true
+		all := true
 		for j, k := range est.keys {
 			if j < p.n {
 				continue
 			}
 			g, ok := learnt[k]
 			if !ok {
-				known = false
+				all = false
 				break
 			}
 			f.mpo += g.mpo
@@ -1314,7 +1324,7 @@ func (t *designTier) learn(band []scored) (bool, int) {
 			tail = f
 			f.mpo, f.bits, f.lat = f.mpo+p.f.mpo, f.bits+p.f.bits, f.lat+p.f.lat
 		}
-		if _, ok := memo[planKey(pl)]; !known && !ok {
+		if _, ok := memo[planKey(pl)]; !all && !ok {
 			unpriced++
 			for _, k := range est.keys {
 				if _, ok := learnt[k]; !ok && tries[k] >= maxRounds {
@@ -1327,18 +1337,32 @@ func (t *designTier) learn(band []scored) (bool, int) {
 		exact = append(exact, f)
 		plans = append(plans, pl)
 		tails = append(tails, tail)
+		known = append(known, all)
 	}
 	// A representative designed in part would have been designed whole
 	// had its later stages not been learnt already, from other chains,
 	// whose earlier stages differ and so credit them differently: they may
 	// come out shorter in it (by 10 to 16% on each axis for a fir2 after a
 	// half-band at D = 96, measured). Those that would not be beaten by
-	// the priced front were their later stages Settings.Tolerance shorter
-	// are designed whole.
+	// the priced front were their later stages shorter by the band's own
+	// tolerance (Settings.Tolerance: 15%, which keeps that chain; at 20%,
+	// 239 of the 285 designed in part at D = 4096 would be designed again,
+	// and the plan would take as long as designing them whole) are
+	// designed whole (charged already, see designTier.charged).
 	partTolerance := est.tol
+	// The front they are held to is settle's: real figures where
+	// designed, failed chains and plans not wholly priced left out.
 	var fr frontSet
-	for i := range exact {
-		fr.add(exact[i], i)
+	for i, pl := range plans {
+		if o, ok := memo[planKey(pl)]; ok {
+			if o.reason == "" {
+				fr.add(candFigs(&o.c), i)
+			}
+			continue
+		}
+		if known[i] {
+			fr.add(exact[i], i)
+		}
 	}
 	var finish [][]chain.StagePlan
 	for i, pl := range plans {
@@ -1363,9 +1387,7 @@ func (t *designTier) learn(band []scored) (bool, int) {
 			finish = append(finish, pl)
 		}
 	}
-	// They were charged as whole designs when they were taken as
-	// representatives (fit counts the design and the whole plan's work).
-	if !t.designWhole(finish, true) {
+	if !t.designAll(finish) {
 		return false, 0
 	}
 	ok, short := t.settle(plans, exact)

@@ -48,8 +48,12 @@ type designTier struct {
 	learnt map[realKey]figs
 	tries  map[realKey]int
 	// partial holds the representatives learn designed in part, by plan
-	// key: their own figures over the stages designed.
+	// key: their own figures over the stages designed. charged holds the
+	// plan keys of those: each was charged as a whole design when first
+	// designed in part (Result.Designed, the caps), and is not charged
+	// again, however it is designed later.
 	partial map[string]prefixFigs
+	charged map[string]bool
 	// retake is set by a search pass whose estimated front held a chain
 	// that failed.
 	retake bool
@@ -57,7 +61,7 @@ type designTier struct {
 
 func newDesignTier(ctx context.Context, jobs int, des designer, est *estimator, s *Settings, res *Result) *designTier {
 	t := &designTier{ctx: ctx, jobs: jobs, des: des, est: est, s: s, res: res,
-		memo: map[string]outcome{}, gone: map[string]bool{}, learnt: map[realKey]figs{}, tries: map[realKey]int{}, partial: map[string]prefixFigs{}, maxDesigns: s.MaxDesigns, workLeft: s.MaxWork}
+		memo: map[string]outcome{}, gone: map[string]bool{}, learnt: map[realKey]figs{}, tries: map[realKey]int{}, partial: map[string]prefixFigs{}, charged: map[string]bool{}, maxDesigns: s.MaxDesigns, workLeft: s.MaxWork}
 	if t.maxDesigns == 0 {
 		t.maxDesigns = defaultMaxDesigns
 	}
@@ -81,13 +85,6 @@ func (t *designTier) progress() func(int, int) {
 // designAll designs the plans not designed yet, in parallel, each into its
 // own slot, and reports whether all of them ran.
 func (t *designTier) designAll(plans [][]chain.StagePlan) bool {
-	return t.designWhole(plans, false)
-}
-
-// designWhole is designAll; prepaid plans (representatives designed in
-// part, see learn) were counted in Result.Designed when taken, and are
-// not counted again.
-func (t *designTier) designWhole(plans [][]chain.StagePlan, prepaid bool) bool {
 	var todo [][]chain.StagePlan
 	seen := map[string]bool{}
 	for _, pl := range plans {
@@ -121,9 +118,6 @@ func (t *designTier) designWhole(plans [][]chain.StagePlan, prepaid bool) bool {
 			continue
 		}
 		t.record(todo[i], outs[i])
-		if prepaid {
-			t.res.Designed--
-		}
 	}
 	return all
 }
@@ -137,7 +131,9 @@ func (t *designTier) record(plan []chain.StagePlan, o outcome) {
 	t.hopeless(plan, o)
 	t.memo[k] = o
 	t.order = append(t.order, k)
-	t.res.Designed++
+	if !t.charged[k] {
+		t.res.Designed++
+	}
 	if o.reason != "" {
 		t.res.Dropped[o.reason]++
 		t.fail(plan)
@@ -148,15 +144,16 @@ func (t *designTier) record(plan []chain.StagePlan, o outcome) {
 // reps[i] whole (remembered as by designAll) where upto[i] = len(reps[i]),
 // else, when the designer can, its first upto[i] stages alone, which is
 // all the round learns from it (the stages after them are learnt or
-// claimed by another representative). A partial design that fails is
-// followed by the whole chain's, which fails alike and is remembered.
-// It returns the partial designs (nil where none) and false when
-// cancelled.
+// claimed by another representative). Where the partial design cannot be
+// made (see realDesigner.designPrefix) the whole chain is designed and
+// remembered. It returns the partial designs (nil where none) and false
+// when cancelled.
 func (t *designTier) designLearn(reps [][]chain.StagePlan, upto []int) ([]*Candidate, bool) {
 	pd, can := t.des.(prefixDesigner)
 	type result struct {
-		part *Candidate
-		o    outcome
+		part    *Candidate
+		o       outcome
+		stopped bool // cancelled before the whole design: nothing to record
 	}
 	var todo []int
 	seen := map[string]bool{}
@@ -187,6 +184,10 @@ func (t *designTier) designLearn(reps [][]chain.StagePlan, upto []int) ([]*Candi
 				outs[j].part = &c
 				return
 			}
+			if t.ctx.Err() != nil {
+				outs[j].stopped = true
+				return
+			}
 		}
 		c, why := t.des.design(pl)
 		outs[j].o = outcome{c: c, reason: why}
@@ -194,14 +195,17 @@ func (t *designTier) designLearn(reps [][]chain.StagePlan, upto []int) ([]*Candi
 	parts := make([]*Candidate, len(reps))
 	all := true
 	for j, ok := range done {
-		if !ok {
+		if !ok || outs[j].stopped {
 			all = false
 			continue
 		}
 		i := todo[j]
 		if outs[j].part != nil {
 			parts[i] = outs[j].part
-			t.res.Designed++
+			if k := planKey(reps[i]); !t.charged[k] {
+				t.charged[k] = true
+				t.res.Designed++
+			}
 			continue
 		}
 		t.record(reps[i], outs[j].o)
@@ -284,7 +288,8 @@ func (t *designTier) analyzeAll(plans [][]chain.StagePlan) bool {
 func (t *designTier) fit(plans [][]chain.StagePlan) int {
 	n, fresh := 0, 0
 	for _, pl := range plans {
-		if _, ok := t.memo[planKey(pl)]; ok {
+		k := planKey(pl)
+		if _, ok := t.memo[k]; ok || t.charged[k] {
 			n++
 			continue
 		}
