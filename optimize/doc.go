@@ -121,32 +121,37 @@
 // CIC's factor but not its order and delay, which move a compensator by a
 // tap or two and would multiply the designs needed. So designing one chain
 // teaches the real figures of each of its stages for every candidate that
-// contains them. Rounds of real designs (chain.Design, priced by cost.Price) cover
-// every stage of the band: each round takes, in band order, a
-// representative chain for each stage not learnt yet and designs it only
-// up to the last stage it is taken for (chain.DesignPrefixContext, the
-// stages after it estimated), since a stage's design and price depend on
-// the stages before it and the whole plan's requirements, never on the
-// designs after it; the later stages are learnt, or taken by another
-// representative, already (or backing off after failures: those are
-// designed too, as a whole design would). A chain judged on rounded taps,
-// or whose partial design fails, is designed whole (its failing stage is
-// remembered, so that costs nothing twice), and so is one taken for its
-// CIC (the stages after a CIC are keyed on its factor alone). The
-// fabric's limits are checked on whole chains only.
-// A representative designed in part is priced on its own stages and the
-// learnt figures of the rest, which other chains taught: their earlier
-// stages differ and credit them differently, so in this chain they may
-// come out shorter (by 10 to 16% on each axis, measured, for a fir2 after a
-// half-band at D = 96). Every such representative that the priced front
-// would not beat (its front taken as settle takes it, real figures where
-// designed) were its later stages shorter by Settings.Tolerance is
-// designed whole before the front is settled. A representative counts as
-// one design in Result.Designed and against the caps below however it is
-// designed (taken, it is charged as a whole design). On the D = 4096 benchmark
-// half the round's estimated design work lay after the last stage wanted;
-// the plan takes three quarters of the time it did designing every
-// representative whole, with the same front; the band is then priced exactly from the stages
+// contains them. Rounds of real designs (chain.Design, priced by
+// cost.Price) cover every stage of the band.
+//
+// Each round takes, in band order, a representative chain for each stage
+// not learnt yet, and designs it only up to the last stage it is taken
+// for (chain.DesignPrefixContext, the stages after it estimated): a
+// stage's design and price depend on the stages before it and the whole
+// plan's requirements, never on the designs after it, and the later
+// stages are learnt, or taken by another representative, already (a stage
+// backing off after failures is designed too, as a whole design would
+// design it). A chain judged on rounded taps, or whose partial design
+// fails, is designed whole (its failing stage is remembered, so that costs
+// nothing twice), and so is one taken for its CIC (the stages after a CIC
+// are keyed on its factor alone). The fabric's limits are checked on whole
+// chains only. A representative designed in part is priced on its own
+// stages and the learnt figures of the rest, which other chains taught;
+// their earlier stages differ and credit them differently, so in this
+// chain they may come out shorter (by 10 to 16% on each axis, measured,
+// for a fir2 after a half-band at D = 96). Every such representative that
+// the priced front would not beat (its front taken as settle takes it,
+// real figures where designed) were its later stages shorter by
+// Settings.Tolerance is designed whole before the front is settled. A
+// representative counts as one design in Result.Designed and against the
+// caps below however it is designed (taken, it is charged as a whole
+// design). On the D = 4096 benchmark half the round's estimated design
+// work lay after the last stage wanted; the plan takes 0.72 of the CPU
+// time it did designing every representative whole, and report.json is
+// byte-identical on the seven specs of
+// testdata/optimize/speed_compare.sh (speed_compare.txt).
+//
+// The band is then priced exactly from the stages
 // learnt, and the front of that pricing is designed for real (most of it
 // already was) and its members measured (cost.Evaluate, whose cascade
 // analysis costs seconds at large ratios, so only front members get it). A

@@ -85,41 +85,12 @@ func (t *designTier) progress() func(int, int) {
 // designAll designs the plans not designed yet, in parallel, each into its
 // own slot, and reports whether all of them ran.
 func (t *designTier) designAll(plans [][]chain.StagePlan) bool {
-	var todo [][]chain.StagePlan
-	seen := map[string]bool{}
-	for _, pl := range plans {
-		k := planKey(pl)
-		if _, ok := t.memo[k]; ok || seen[k] {
-			continue
-		}
-		seen[k] = true
-		todo = append(todo, pl)
+	upto := make([]int, len(plans))
+	for i, pl := range plans {
+		upto[i] = len(pl)
 	}
-	outs := make([]outcome, len(todo))
-	prog := t.progress()
-	t.total += len(todo)
-	keys := make([][]realKey, len(todo))
-	for i, pl := range todo {
-		t.est.keysOf(pl)
-		for _, k := range t.est.keys {
-			if chain.Kind(k.kind) != chain.CIC {
-				keys[i] = append(keys[i], k)
-			}
-		}
-	}
-	done := runApart(t.ctx, t.jobs, len(todo), keys, func(i int) {
-		c, why := t.des.design(todo[i])
-		outs[i] = outcome{c: c, reason: why}
-	}, prog)
-	all := true
-	for i, ok := range done {
-		if !ok {
-			all = false
-			continue
-		}
-		t.record(todo[i], outs[i])
-	}
-	return all
+	_, ok := t.designLearn(plans, upto)
+	return ok
 }
 
 // record remembers the outcome of a whole chain's design.
@@ -140,8 +111,9 @@ func (t *designTier) record(plan []chain.StagePlan, o outcome) {
 	}
 }
 
-// designLearn designs the representatives of one of learn's rounds:
-// reps[i] whole (remembered as by designAll) where upto[i] = len(reps[i]),
+// designLearn designs the plans not designed yet (designAll) or the
+// representatives of one of learn's rounds: reps[i] whole, remembered
+// (record), where upto[i] = len(reps[i]),
 // else, when the designer can, its first upto[i] stages alone, which is
 // all the round learns from it (the stages after them are learnt or
 // claimed by another representative). Where the partial design cannot be
