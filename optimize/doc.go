@@ -131,10 +131,11 @@
 // plan's requirements, never on the designs after it, and the later
 // stages are learnt, or taken by another representative, already (a stage
 // backing off after failures is designed too, as a whole design would
-// design it). A chain judged on rounded taps, or whose partial design
-// fails, is designed whole (its failing stage is remembered, so that costs
-// nothing twice), and so is one taken for its CIC (the stages after a CIC
-// are keyed on its factor alone). The fabric's limits are checked on whole
+// design it). A chain whose designed stages are at risk from rounding
+// (judged on rounded taps, see realDesigner.atRisk), or whose partial
+// design fails, is designed whole (its failing stage is remembered, so
+// that costs nothing twice), and so is one taken for its CIC (the stages
+// after a CIC are keyed on its factor alone). The fabric's limits are checked on whole
 // chains only. A representative designed in part is priced on its own
 // stages and the learnt figures of the rest, which other chains taught;
 // their earlier stages differ and credit them differently, so in this

@@ -222,19 +222,20 @@ func (r realDesigner) design(plan []chain.StagePlan) (Candidate, Reason) {
 
 // designPrefix designs plan's first n stages alone (the rest estimated,
 // chain.DesignPrefixContext) and prices them: the figures of those stages
-// are the ones the whole chain's design gives them. ok is false when it
-// cannot: the chain is judged on rounded taps (a stage then is learnt as
-// design re-designs it for rounding, which needs the whole chain), or the
-// partial design failed, whose whole design fails alike and the caller
-// records (its failing stage is remembered by the stage memo, so that
-// costs nothing twice). The limits (Settings.Limits) are not checked on a
+// are the ones the whole chain's design gives them, unless the whole chain
+// is re-designed for its rounded taps (see design), which only its later
+// stages can bring about. ok is false when it cannot: a stage designed is
+// at risk from rounding (atRisk: design would measure the whole chain on
+// its rounded taps), or the partial design failed, whose whole design
+// fails alike and the caller records (its failing stage is remembered by
+// the stage memo, so that costs nothing twice). The limits (Settings.Limits) are not checked on a
 // part: its stages are learnt, and the chains they make are checked whole.
 func (r realDesigner) designPrefix(plan []chain.StagePlan, n int) (c Candidate, ok bool) {
-	if r.rounded(r.spec) {
-		return Candidate{}, false
-	}
 	ch, err := chain.DesignPrefixContext(r.ctx, r.spec, plan, n, r.s.Chain)
 	if err != nil {
+		return Candidate{}, false
+	}
+	if r.rounded(r.spec) && r.atRisk(ch) {
 		return Candidate{}, false
 	}
 	f, err := cost.Price(r.spec, ch, r.s.Cost)
