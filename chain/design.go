@@ -42,9 +42,8 @@ func DesignContext(ctx context.Context, spec Spec, plan []StagePlan, s Settings)
 // design depends on the stages before it and on the whole plan's
 // requirements (the later stages' kinds and factors set its ripple share
 // and limits), never on the designs after it, so each designed stage is
-// the one DesignContext
-// gives, and so are its priced figures (cost.Price). The chain's Designed
-// is false unless n = len(plan). A search that learns a stage's real
+// the one DesignContext gives, and so are its priced figures
+// (cost.Price). The chain's Designed is false unless n = len(plan). A search that learns a stage's real
 // figures from a chain it will not build pays for that stage and those
 // before it only. A plan with a fractional stage is refused.
 func DesignPrefixContext(ctx context.Context, spec Spec, plan []StagePlan, n int, s Settings) (*Chain, error) {

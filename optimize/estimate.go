@@ -908,9 +908,7 @@ func (e *estimator) mayJoin(plan []chain.StagePlan, fs []figs) bool {
 		if v.drop != dropNone || v.taps > float64(e.maxTaps) || (v.floored && e.floorPrune) {
 			return false
 		}
-		lo.mpo += v.lo.mpo
-		lo.bits += v.lo.bits
-		lo.lat += v.lo.lat
+		lo.addAxes(v.lo, 1)
 	}
 	lo.margin = math.Inf(1)
 	for i := range fs {

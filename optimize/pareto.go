@@ -11,6 +11,13 @@ var axisFloor = [3]float64{1, 1, 1e-9}
 
 func (f figs) axes() [3]float64 { return [3]float64{f.mpo, f.bits, f.lat} }
 
+// addAxes adds k times g to f on the three axes (k = 1 adds exactly).
+func (f *figs) addAxes(g figs, k float64) {
+	f.mpo += k * g.mpo
+	f.bits += k * g.bits
+	f.lat += k * g.lat
+}
+
 // dominates reports whether a is at least as good as b on every axis and
 // strictly better on one, or equal on all three with a larger margin.
 func dominates(a, b *figs) bool {

@@ -226,10 +226,11 @@ func (r realDesigner) design(plan []chain.StagePlan) (Candidate, Reason) {
 // is re-designed for its rounded taps (see design), which only its later
 // stages can bring about. ok is false when it cannot: a stage designed is
 // at risk from rounding (atRisk: design would measure the whole chain on
-// its rounded taps), or the partial design failed, whose whole design
-// fails alike and the caller records (its failing stage is remembered by
-// the stage memo, so that costs nothing twice). The limits (Settings.Limits) are not checked on a
-// part: its stages are learnt, and the chains they make are checked whole.
+// its rounded taps), or the partial design failed; the caller then designs
+// the whole chain (a failing stage is remembered by the stage memo, so
+// that costs nothing twice). The limits (Settings.Limits) are not checked
+// on a part: its stages are learnt, and the chains they make are checked
+// whole.
 func (r realDesigner) designPrefix(plan []chain.StagePlan, n int) (c Candidate, ok bool) {
 	ch, err := chain.DesignPrefixContext(r.ctx, r.spec, plan, n, r.s.Chain)
 	if err != nil {
@@ -1256,7 +1257,7 @@ func (t *designTier) learn(band []scored) (bool, int) {
 				for i, k := range est.keys[:upto[r]] {
 					g := stageFigs(&c.Figures, i)
 					learnt[k] = g
-					p.f.mpo, p.f.bits, p.f.lat = p.f.mpo+g.mpo, p.f.bits+g.bits, p.f.lat+g.lat
+					p.f.addAxes(g, 1)
 				}
 				partial[planKey(pl)] = p
 				continue
@@ -1317,13 +1318,11 @@ func (t *designTier) learn(band []scored) (bool, int) {
 				all = false
 				break
 			}
-			f.mpo += g.mpo
-			f.bits += g.bits
-			f.lat += g.lat
+			f.addAxes(g, 1)
 		}
 		if isPart {
 			tail = f
-			f.mpo, f.bits, f.lat = f.mpo+p.f.mpo, f.bits+p.f.bits, f.lat+p.f.lat
+			f.addAxes(p.f, 1)
 		}
 		if _, ok := memo[planKey(pl)]; !all && !ok {
 			unpriced++
@@ -1374,9 +1373,7 @@ func (t *designTier) learn(band []scored) (bool, int) {
 			continue
 		}
 		o := exact[i]
-		o.mpo -= partTolerance * tails[i].mpo
-		o.bits -= partTolerance * tails[i].bits
-		o.lat -= partTolerance * tails[i].lat
+		o.addAxes(tails[i], -partTolerance)
 		beaten := false
 		for j := range fr.f {
 			if fr.id[j] != i && dominates(&fr.f[j], &o) {

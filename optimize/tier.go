@@ -113,13 +113,13 @@ func (t *designTier) record(plan []chain.StagePlan, o outcome) {
 
 // designLearn designs the plans not designed yet (designAll) or the
 // representatives of one of learn's rounds: reps[i] whole, remembered
-// (record), where upto[i] = len(reps[i]),
-// else, when the designer can, its first upto[i] stages alone, which is
-// all the round learns from it (the stages after them are learnt or
-// claimed by another representative). Where the partial design cannot be
-// made (see realDesigner.designPrefix) the whole chain is designed and
-// remembered. It returns the partial designs (nil where none) and false
-// when cancelled.
+// (record), where upto[i] = len(reps[i]), else, when the designer can,
+// its first upto[i] stages alone, which is all the round learns from it
+// (the stages after them are learnt or claimed by another
+// representative). Where the partial design cannot be made (see
+// realDesigner.designPrefix) the whole chain is designed and remembered.
+// It returns the partial designs (nil where none) and false when
+// cancelled.
 func (t *designTier) designLearn(reps [][]chain.StagePlan, upto []int) ([]*Candidate, bool) {
 	pd, can := t.des.(prefixDesigner)
 	type result struct {
