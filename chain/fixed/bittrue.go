@@ -62,6 +62,10 @@ type Signal struct {
 	// modulator) that makes the input codes in place of the ADC, and the
 	// run measures the SNR in [0, passband] at the output (see Shaper).
 	Shaper Shaper
+	// Inputs, when not nil, keeps this run's input for other runs on the
+	// same signal and takes it from there when held (see InputMemo): the
+	// figures are the same bit for bit. Nil: the run makes its own.
+	Inputs *InputMemo
 }
 
 // BitTrueResult compares the integer chain with the float chain.
@@ -264,7 +268,8 @@ func BitTrueContext(ctx context.Context, c Cascade, w *Widths, sig Signal) (BitT
 		return BitTrueResult{}, fmt.Errorf("fixed: bit-true run needs %d input samples (%s, %d output samples); at most %d are supported", nin, ratio, nm+skip, maxInputSamples)
 	}
 	res := BitTrueResult{Samples: nm, InputSamples: nin, Skip: skip, NoiseDBFS: math.Max(-300, 20*math.Log10(noise))}
-	rng := rand.New(rand.NewPCG(sig.Seed, 0x5eed))
+	pcg := rand.NewPCG(sig.Seed, 0x5eed)
+	rng := rand.New(pcg)
 
 	// Run 1: the wanted tones plus noise.
 	var nus []float64
@@ -275,7 +280,18 @@ func BitTrueContext(ctx context.Context, c Cascade, w *Widths, sig Signal) (BitT
 		res.Tones = append(res.Tones, Tone{Freq: m * fk / float64(nm), Level: t.Level})
 		tones = append(tones, toneGen{m * fk / float64(nm), math.Pow(10, t.Level/20), 2 * math.Pi * rng.Float64()})
 	}
-	yi, yf, inPow, inErr, clipped, err := stream(ctx, c, w, nin, skip, nm, signalGen(tones, noise, rng, c.InputRate))
+	var yi, yf []float64
+	var inPow, inErr float64
+	var clipped int
+	if in := sig.Inputs.input(pcg, tones, noise, c.InputRate, w.InputBits, nin); in != nil {
+		yi, yf, err = streamMemo(ctx, c, w, in, skip, nm)
+		inPow, inErr, clipped = in.inPow/float64(nin), in.inErr/float64(nin), in.clipped
+		if err == nil {
+			err = pcg.UnmarshalBinary(in.state) // where the run's own draws would leave it
+		}
+	} else {
+		yi, yf, inPow, inErr, clipped, err = stream(ctx, c, w, nin, skip, nm, signalGen(tones, noise, rng, c.InputRate))
+	}
 	if err != nil {
 		return BitTrueResult{}, err
 	}
@@ -597,9 +613,11 @@ type chainState struct {
 	inErr   float64     // sum of squared input quantisation errors
 	inPow   float64     // sum of squared input samples
 	clipped int
-	n       int   // input samples run
-	outs    []int // per stage, its output samples so far
-	xi      []int64
+	// noSums leaves inPow and inErr at zero, for runs that do not read them.
+	noSums bool
+	n      int   // input samples run
+	outs   []int // per stage, its output samples so far
+	xi     []int64
 	// enc, when not nil, makes the input codes in place of ADC (a
 	// Shaper's encoder); encErr is its first error, after which the
 	// codes are zero.
@@ -683,12 +701,15 @@ func (cs *chainState) run(x []float64) (yi, yf []float64) {
 			clear(xi)
 		}
 	}
-	lsb := math.Ldexp(1, -(cs.bits - 1)) // exact scaling, as Ldexp
-	for n, q := range xi {
-		e := float64(q)*lsb - x[n]
-		cs.inErr += e * e
-		cs.inPow += x[n] * x[n]
+	if !cs.noSums {
+		cs.inPow, cs.inErr = inputSums(cs.inPow, cs.inErr, x, xi, cs.bits)
 	}
+	return cs.runCodes(xi, x)
+}
+
+// runCodes is run on the input block x whose codes are xi, leaving the
+// input's sums and clip count as they are.
+func (cs *chainState) runCodes(xi []int64, x []float64) (yi, yf []float64) {
 	cs.n += len(x)
 	cur, fcur := xi, x
 	for i := range cs.ints {
@@ -723,27 +744,56 @@ func stream(ctx context.Context, c Cascade, w *Widths, nin, skip, win int, gen f
 	return yi, yf, inPow, inErr, clipped, nil
 }
 
+// streamMemo is stream on the input in holds (the samples and their
+// codes); the input's sums are in's.
+func streamMemo(ctx context.Context, c Cascade, w *Widths, in *memoInput, skip, win int) (yi, yf []float64, err error) {
+	cs := newChainState(c, w)
+	yi, yf = make([]float64, 0, win), make([]float64, 0, win)
+	err = streamBlocks(ctx, len(in.x), blockSamples, skip, win, func(n0, n int) (bi, bf []float64) {
+		return cs.runCodes(in.codes[n0:n0+n], in.x[n0:n0+n])
+	}, func(bi, bf []float64, _ int) {
+		yi, yf = append(yi, bi...), append(yf, bf...)
+	})
+	if err != nil {
+		return nil, nil, err
+	}
+	return yi, yf, nil
+}
+
 // streamTo is stream on the chains cs (of c, in their reset state) handing
 // the window to sink as it is made instead of holding it: sink(yi, yf, j)
 // receives the window's samples j, j+1, ... of both chains (valid during
 // the call), in order.
 func streamTo(ctx context.Context, cs *chainState, c Cascade, nin, skip, win int, gen func(x []float64, n0 int), sink func(yi, yf []float64, j int)) (inPow, inErr float64, clipped int, err error) {
 	x := make([]float64, min(blockLen(c), nin))
-	out := 0 // output samples produced so far
-	for n0 := 0; n0 < nin; n0 += len(x) {
-		if err := ctx.Err(); err != nil {
-			return 0, 0, 0, fmt.Errorf("fixed: bit-true run stopped: %w", err)
-		}
-		blk := x[:min(len(x), nin-n0)]
+	err = streamBlocks(ctx, nin, len(x), skip, win, func(n0, n int) (bi, bf []float64) {
+		blk := x[:n]
 		gen(blk, n0)
-		bi, bf := cs.run(blk)
+		return cs.run(blk)
+	}, sink)
+	if err != nil {
+		return 0, 0, 0, err
+	}
+	return cs.inPow / float64(nin), cs.inErr / float64(nin), cs.clipped, nil
+}
+
+// streamBlocks is streamTo's loop: block(n0, n) runs the chains on input
+// samples n0 to n0+n-1 (n is blk but for the last block) and returns the
+// outputs they complete.
+func streamBlocks(ctx context.Context, nin, blk, skip, win int, block func(n0, n int) (bi, bf []float64), sink func(yi, yf []float64, j int)) error {
+	out := 0 // output samples produced so far
+	for n0 := 0; n0 < nin; n0 += blk {
+		if err := ctx.Err(); err != nil {
+			return fmt.Errorf("fixed: bit-true run stopped: %w", err)
+		}
+		bi, bf := block(n0, min(blk, nin-n0))
 		lo, hi := max(0, skip-out), min(len(bi), skip+win-out)
 		if lo < hi {
 			sink(bi[lo:hi], bf[lo:hi], out+lo-skip)
 		}
 		out += len(bi)
 	}
-	return cs.inPow / float64(nin), cs.inErr / float64(nin), cs.clipped, nil
+	return nil
 }
 
 // blockLen is the number of input samples a run passes through the chains
@@ -1191,6 +1241,7 @@ func aliasRun(ctx context.Context, c Cascade, w *Widths, sig Signal, res *BitTru
 // returns the window of both outputs, or the encoder's error.
 func streamEnc(ctx context.Context, c Cascade, w *Widths, enc func() (Encoder, error), nin, skip, win int, gen func(x []float64, n0 int)) (yi, yf []float64, err error) {
 	cs := newChainState(c, w)
+	cs.noSums = true
 	if enc != nil {
 		if cs.enc, err = enc(); err != nil {
 			return nil, nil, err

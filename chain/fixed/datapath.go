@@ -176,6 +176,12 @@ type Settings struct {
 	// (Signal.Shaper) unless the signal names its own. Plan and
 	// PlanChain do not read it.
 	Shaper Shaper
+	// Inputs, when not nil, is the InputMemo Evaluate's bit-true runs
+	// share (Signal.Inputs) unless the signal names its own: chains
+	// evaluated on one signal then generate and quantise it once. The
+	// figures are the same with it or without it, bit for bit. Plan and
+	// PlanChain do not read it.
+	Inputs *InputMemo
 }
 
 // StageWidths is the fixed-point plan of one stage.

@@ -121,10 +121,18 @@
 // The run streams: the test signal is generated and both chains run a
 // block of 2^15 input samples at a time, keeping only the filters' state
 // and the measured output window, so its memory (a few MB) does not grow
-// with the decimation or the window (it held the whole signal before: 277
-// MB for one chain at D = 65536). The run's length, and so its time, is
+// with the decimation or the window (the whole signal would take 277 MB
+// for one chain at D = 65536). The run's length, and so its time, is
 // bounded at 2^25 input samples (2^22 with the default window, which
 // shrinks to as few as 256 output samples to stay within it).
+//
+// Chains evaluated on one signal (a plan's front: one input rate, input
+// word, channel and window) may share an InputMemo (Settings.Inputs):
+// the first run's input, its samples and ADC codes, is then generated and
+// quantised once, up to 2^22 samples (64 MiB), and every run measures the
+// same as it would alone, bit for bit (the input's sums, the clip count and
+// the noise generator's state after the run are carried to the sample).
+// The alias run's tone is each chain's own, so it makes its own input.
 //
 // The integer chain runs CIC registers of up to 63 bits in int64 and wider
 // ones, up to MaxModelBits (127), in two's-complement 128-bit arithmetic

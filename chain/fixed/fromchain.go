@@ -338,6 +338,9 @@ func EvaluateContext(ctx context.Context, spec chain.Spec, c *chain.Chain, s Set
 	if sig.Shaper == nil {
 		sig.Shaper = s.Shaper
 	}
+	if sig.Inputs == nil {
+		sig.Inputs = s.Inputs
+	}
 	res.BitTrue, res.BitTrueErr = BitTrueContext(ctx, cas, ws, sig)
 	if cerr := ctx.Err(); cerr != nil {
 		return nil, fmt.Errorf("fixed: bit-true run stopped: %w", cerr)

@@ -724,6 +724,9 @@ func newReport(ctx context.Context, command string, s *specfile.Spec, res *optim
 		r.Search.Dropped[string(k)] = v
 	}
 	fs := s.FixedSettings()
+	// The front's chains share the spec's input word and test signal: its
+	// first bit-true run is generated once (the figures are the same).
+	fs.Inputs = new(fixed.InputMemo)
 	hw := s.NativeA > 0 && s.Clock > 0
 	for _, cand := range res.Front {
 		c, err := NewChain(s.Chain, cand, s.Clock > 0)
