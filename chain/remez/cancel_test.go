@@ -3,6 +3,8 @@ package remez
 import (
 	"context"
 	"errors"
+	"math"
+	"runtime"
 	"testing"
 	"time"
 )
@@ -96,4 +98,45 @@ func BenchmarkCancelLatency(b *testing.B) {
 		total += lat
 	}
 	b.ReportMetric(float64(total.Microseconds())/float64(b.N)/1000, "ms-latency/op")
+}
+
+// The steps after the exchange (the taps from the polynomial, O(r^2), and
+// the deviations, O(n r)) take seconds at tens of thousands of taps, so
+// they look at the context too: once it is done they return its error and
+// no filter, wherever they are.
+func TestTapsAndDeviationsStop(t *testing.T) {
+	ctx, cancel := context.WithCancel(context.Background())
+	defer cancel()
+	e, err := newEngine(1001, 1, longBands, Settings{})
+	if err != nil {
+		t.Fatal(err)
+	}
+	e.ctx = ctx
+	if _, err := e.design(); err != nil && !errors.Is(err, ErrNotConverged) {
+		t.Fatal(err)
+	}
+	cancel()
+	if h, err := e.taps(); !errors.Is(err, context.Canceled) || h != nil {
+		t.Errorf("taps after the cancellation: %d taps, err = %v; want none and context.Canceled", len(h), err)
+	}
+}
+
+// The taps are spread over the cores when the filter is long, each sample
+// computed alone: the same taps, bit for bit, on one core as on four.
+func TestTapsSameOnAnyCores(t *testing.T) {
+	bands := []Band{{Lo: 0, Hi: 0.1, Gain: 1, Weight: 1, MaxError: 0.01}, {Lo: 0.102, Hi: 0.5, Weight: 10, MaxError: 1e-3}}
+	design := func(procs int) []float64 {
+		defer runtime.GOMAXPROCS(runtime.GOMAXPROCS(procs))
+		res, err := Design(1201, 1, bands, Settings{})
+		if err != nil {
+			t.Fatal(err)
+		}
+		return res.Taps
+	}
+	one, four := design(1), design(4)
+	for k := range one {
+		if math.Float64bits(one[k]) != math.Float64bits(four[k]) {
+			t.Fatalf("tap %d: %v on one core, %v on four", k, one[k], four[k])
+		}
+	}
 }

@@ -142,7 +142,9 @@ func (e *engine) design() (*Result, error) {
 		return nil, err
 	}
 	res := &Result{Iterations: it, Converged: conv, Delta: math.Abs(e.delta)}
-	res.Taps = e.taps()
+	if res.Taps, err = e.taps(); err != nil {
+		return nil, err
+	}
 	for _, v := range res.Taps {
 		if math.IsNaN(v) || math.IsInf(v, 0) {
 			// No finite filter to return. A levelled deviation far below any
@@ -155,6 +157,9 @@ func (e *engine) design() (*Result, error) {
 		}
 	}
 	res.Deviations, e.wdev = e.deviations(res.Taps)
+	if serr := e.stopped(); serr != nil {
+		return nil, serr
+	}
 	if tiny := e.laxCheck(res.Deviations, conv); tiny != nil {
 		return res, tiny
 	}
@@ -270,11 +275,17 @@ func (e *engine) sibling(n, d int) *engine {
 	return s
 }
 
+// tapsCheckEvery is how many of taps' O(r) samples (or of the final
+// deviations' O(n) amplitudes) a worker takes between looks at the
+// design's context: a few milliseconds of work at the longest lengths.
+const tapsCheckEvery = 64
+
 // taps returns the impulse response of the current polynomial: P is
 // sampled at Chebyshev extreme points, its cosine coefficients come from a
 // DCT-I done with gonum's real FFT on the even extension, and the taps
-// follow from the type I or type II relations.
-func (e *engine) taps() []float64 {
+// follow from the type I or type II relations. It returns the design's
+// stop error once its context is done.
+func (e *engine) taps() ([]float64, error) {
 	r := e.r
 	// P has r cosine coefficients (degree r-1).
 	a := make([]float64, r)
@@ -283,12 +294,23 @@ func (e *engine) taps() []float64 {
 		a[0] = e.bary1(0)
 	} else {
 		seq := make([]float64, 2*l)
-		for j := 0; j <= l; j++ {
-			v := e.bary1(float64(j) / float64(2*l))
-			seq[j] = v
-			if j > 0 && j < l {
-				seq[2*l-j] = v
+		// r samples of O(r) each: seconds at tens of thousands of taps,
+		// so they are spread over the cores (each sample is computed alone,
+		// so the taps are the same whatever the number of cores) and the
+		// design's context is checked between runs of them.
+		parallel(l+1, (l+1)*r, func(lo, hi int) {
+			for j := lo; j < hi; j++ {
+				if (j-lo)%tapsCheckEvery == 0 && e.stopped() != nil {
+					return
+				}
+				seq[j] = e.bary1(float64(j) / float64(2*l))
 			}
+		})
+		if err := e.stopped(); err != nil {
+			return nil, err
+		}
+		for j := 1; j < l; j++ {
+			seq[2*l-j] = seq[j]
 		}
 		coef := fourier.NewFFT(2*l).Coefficients(nil, seq)
 		for k := 0; k <= l; k++ {
@@ -305,7 +327,7 @@ func (e *engine) taps() []float64 {
 			h[m-k] = a[k] / 2
 			h[m+k] = a[k] / 2
 		}
-		return h
+		return h, nil
 	}
 	// Type II: A = cos(w/2) sum b_k cos(k w) = sum_m g_m cos((m-1/2) w),
 	// m = 1..M, with h[M-m] = h[M-1+m] = g_m/2 and M = r.
@@ -328,7 +350,7 @@ func (e *engine) taps() []float64 {
 		h[mm-m] = v
 		h[mm-1+m] = v
 	}
-	return h
+	return h, nil
 }
 
 // deviations measures, per band, the largest |A(f) - D(f)| and the largest
@@ -454,6 +476,9 @@ func (e *engine) fastDeviations(h []float64, dev, wdev []float64, slow []bool) {
 	e.measV = vals
 	parallel(len(pts), len(pts)*len(h)/2, func(lo, hi int) {
 		for i := lo; i < hi; i++ {
+			if (i-lo)%tapsCheckEvery == 0 && e.stopped() != nil {
+				return // the design is stopped: design returns its error
+			}
 			bd := &e.bands[pts[i].band]
 			vals[i] = math.Abs(Amplitude(h, pts[i].f, 1) - bd.desired(pts[i].f))
 		}
