@@ -664,7 +664,7 @@ func microRule(s string, k units.Kind) string {
 // quantity, in the ranges the spec takes.
 func rangeRule(k units.Kind) string {
 	if k == units.Level {
-		return fmt.Sprintf("lies outside the supported range: rejection lies in (0, %v] dB and ripple in (0, %v] dB", chain.MaxRejectionDB, chain.MaxRippleDB)
+		return fmt.Sprintf("lies outside the supported range: rejection lies in (0, %v] dB and ripple in %s", chain.MaxRejectionDB, chain.RippleRange)
 	}
 	e := func(v float64) string { return strings.Replace(strconv.FormatFloat(v, 'g', -1, 64), "e+", "e", 1) }
 	return fmt.Sprintf("lies outside the supported range: rates lie in [%s, %s] Hz", e(chain.MinRateHz), e(chain.MaxRateHz))
@@ -886,8 +886,8 @@ func (p *parser) build() (*Spec, error) {
 		}
 		*f.dst = v
 	}
-	if v, ok := p.lookup("ripple"); ok && !(cs.RippleDB > 0 && cs.RippleDB <= chain.MaxRippleDB) {
-		return nil, p.errAt("ripple", v, "must lie in (0, %d] dB (peak-to-peak over the passband)", chain.MaxRippleDB)
+	if v, ok := p.lookup("ripple"); ok && !(cs.RippleDB >= chain.MinRippleDB && cs.RippleDB <= chain.MaxRippleDB) {
+		return nil, p.errAt("ripple", v, "must lie in %s (peak-to-peak over the passband)", chain.RippleRange)
 	}
 	if v, ok := p.lookup("rejection"); ok && (!(cs.RejectionDB > 0) || cs.RejectionDB > chain.MaxRejectionDB) {
 		return nil, p.errAt("rejection", v, "must lie in (0, %d] dB", chain.MaxRejectionDB)
@@ -1252,6 +1252,7 @@ var libraryPhrases = []struct {
 	with string
 }{
 	{regexp.MustCompile(`\b(?:chain|optimize|remez|fixed): `), ""},
+	{regexp.MustCompile(`\bMinLength: `), "the length search: "},
 	{regexp.MustCompile(`MaxStages = (\d+) is the most that fits`),
 		"search.max_stages = $1 (or --max-stages $1) is the most that fits"},
 	{regexp.MustCompile(`MaxStages = (\d+) is the least that gives one`),

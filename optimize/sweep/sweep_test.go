@@ -112,7 +112,7 @@ func TestParseVaryErrors(t *testing.T) {
 		{"rejection=80:100:5 MHz", "STEP"},
 		{"rejection=0:100:5", "value 0 dB must be above 0 dB"},
 		{"rejection=100:200:10", "value 160 dB must be at most 150 dB"},
-		{"ripple=-0.1:0.5:0.1", "must be above 0 dB"},
+		{"ripple=-0.1:0.5:0.1", "must be at least 1e-9 dB"},
 		{"ripple=1:12:1", "value 11 dB must be at most 10 dB"},
 		{"rejection=1:51:1", "51 values, over the limit of 50"},
 		{"rejection=1:1e9:1e-9", "over the limit of 50"},

@@ -74,7 +74,8 @@ func (k Key) Unit() string {
 func (k Key) Format(v float64) string {
 	switch k.Dim {
 	case Level:
-		return strconv.FormatFloat(v, 'g', -1, 64) + " dB"
+		// 1e-9, as the spec's range is written, not Go's 1e-09.
+		return strings.Replace(strconv.FormatFloat(v, 'g', -1, 64), "e-0", "e-", 1) + " dB"
 	case Bits:
 		return strconv.FormatFloat(v, 'f', 0, 64) + " bits"
 	case Count:
@@ -101,7 +102,7 @@ var Keys = []Key{
 	{Name: "passband", Path: "passband", Dim: Frequency, MinOpen: true, Max: math.Inf(1)},
 	{Name: "protected", Path: "protected", Dim: Frequency, MinOpen: true, Max: math.Inf(1)},
 	{Name: "stopband", Path: "stopband", Dim: Frequency, MinOpen: true, Max: math.Inf(1)},
-	{Name: "ripple", Path: "ripple", Dim: Level, MinOpen: true, Max: chain.MaxRippleDB},
+	{Name: "ripple", Path: "ripple", Dim: Level, Min: chain.MinRippleDB, Max: chain.MaxRippleDB},
 	{Name: "rejection", Path: "rejection", Dim: Level, MinOpen: true, Max: chain.MaxRejectionDB},
 	{Name: "snr", Path: "sigma_delta.snr", Aliases: []string{"sigma_delta.snr"}, Dim: Level, MinOpen: true, Max: 300},
 	{Name: "clock", Path: "hardware.clock", Aliases: []string{"hardware.clock"}, Dim: Frequency, MinOpen: true, Max: math.Inf(1)},

@@ -8,6 +8,7 @@ import (
 	"os"
 	"path/filepath"
 	"strings"
+	"syscall"
 	"time"
 
 	"github.com/stepdown-dsp/stepdown/chain/units"
@@ -116,6 +117,8 @@ func OpenFolder(dir, role string) (*Folder, error) {
 	fi, err := os.Lstat(abs)
 	switch {
 	case errors.Is(err, os.ErrNotExist):
+	case errors.Is(err, syscall.ENAMETOOLONG):
+		return nil, misuse("%s %q: a name of %d bytes, longer than the file system takes (a folder name of at most 255 bytes on common systems); choose a shorter name", role, shown, len(filepath.Base(abs)))
 	case err != nil:
 		return nil, failure("%s %q: %v", role, shown, unwrapPath(err))
 	case fi.Mode()&os.ModeSymlink != 0:

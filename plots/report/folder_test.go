@@ -65,6 +65,20 @@ func TestOutLongName(t *testing.T) {
 	}
 }
 
+// A name longer than the file system takes is the user's to change: a
+// misuse (exit status 2) saying so, before anything is written.
+func TestOutNameTooLong(t *testing.T) {
+	parent := t.TempDir()
+	_, err := OpenFolder(filepath.Join(parent, strings.Repeat("d", 256)), "--out")
+	var fe *FolderError
+	if !errors.As(err, &fe) || !fe.Misuse || !strings.Contains(err.Error(), "256 bytes") || !strings.Contains(err.Error(), "shorter name") {
+		t.Fatalf("OpenFolder(256-byte name) = %v, want a misuse naming the length", err)
+	}
+	if l := litter(t, parent); len(l) > 0 {
+		t.Errorf("left behind: %v", l)
+	}
+}
+
 // A previous output that cannot be removed once the new one is in place is
 // an error naming what is left, never a silent success.
 func TestOutOldNotRemoved(t *testing.T) {
