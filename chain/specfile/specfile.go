@@ -537,12 +537,20 @@ func showFull(v any) string {
 				b.WriteString("...")
 				break
 			}
-			b.WriteString(units.Clip(showFull(e), 10))
+			b.WriteString(units.Clip(showFull(e), 24))
 		}
 		b.WriteString("]")
 		return b.String()
 	case map[string]any:
 		return "{...}"
+	case []map[string]any:
+		// An array of tables ([[name]] headers), shown as an array of
+		// inline tables.
+		shown := strings.Repeat(", {...}", min(len(x), 4))
+		if len(x) > 4 {
+			shown += ", ..."
+		}
+		return "[" + strings.TrimPrefix(shown, ", ") + "]"
 	case time.Time:
 		// The decoder marks a date or time written without a zone by
 		// the location's name.

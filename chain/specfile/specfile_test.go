@@ -167,6 +167,8 @@ func TestParseErrors(t *testing.T) {
 		{"passband high", `passband = "1 MHz"`, []string{"passband"}},
 		{"ripple zero", `ripple = 0`, []string{"ripple", "[1e-9, 10] dB"}},
 		{"ripple at rounding level", `ripple = "1e-300 dB"`, []string{"ripple", "[1e-9, 10] dB"}},
+		{"array of tables", "[[search]]\nmax_stages = 3", []string{"search = [{...}]", "want a table [search]"}},
+		{"rate in a list", `input_rate = ["98.304 MHz"]`, []string{`input_rate = ["98.304 MHz"]`, "not a list"}},
 		{"ripple negative", `ripple = "-0.1 dB"`, []string{"ripple", "[1e-9, 10] dB"}},
 		{"rejection zero", `rejection = 0`, []string{"rejection", "(0, 150]"}},
 		{"rejection high", `rejection = "151 dB"`, []string{"rejection", "(0, 150]"}},
