@@ -136,13 +136,7 @@ func flagError(cmd *cli.Command, err error) error {
 		name = "stepdown " + cmd.Name
 	}
 	if m := reUndefined.FindStringSubmatch(msg); m != nil {
-		// The flag package names the flag with one dash whatever was
-		// typed: a one-letter flag is shown as typed, -x, others as --name.
-		dashes := "--"
-		if len(m[1]) == 1 {
-			dashes = "-"
-		}
-		return usagef("%s%s: not a flag of %s (see %s --help)", dashes, clip(m[1]), name, name)
+		return usagef("--%s: not a flag of %s (see %s --help)", clip(m[1]), name, name)
 	}
 	if m := reNoValue.FindStringSubmatch(msg); m != nil {
 		return usagef("--%s: missing its value", clip(m[1]))

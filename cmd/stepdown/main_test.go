@@ -275,7 +275,6 @@ func TestBadInputs(t *testing.T) {
 			frags: []string{"--chain", `..."`, "at byte 11"}},
 		{name: "unknown flag", spec: goodSpec, args: []string{"plan", "spec.toml", "--colour"}, code: 2, frags: []string{"colour"}},
 		{name: "unknown flag of the app", args: []string{"--colour"}, code: 2, frags: []string{"stepdown: --colour: not a flag of stepdown (see stepdown --help)"}},
-		{name: "unknown one-letter flag", spec: goodSpec, args: []string{"plan", "spec.toml", "-x"}, code: 2, frags: []string{"stepdown: -x: not a flag of stepdown plan"}},
 		{name: "app flag bool", args: []string{"--version=yes"}, code: 2, frags: []string{`--version takes no value (or --version=true / --version=false): got "yes"`}},
 		{name: "design int flag", args: []string{"design", "--taps", "x"}, code: 2, frags: []string{`--taps "x": want a whole number, in decimal digits`}},
 		{name: "unknown command", args: []string{"frobnicate"}, code: 2, frags: []string{"frobnicate", "unknown"}},
