@@ -202,7 +202,22 @@ func (e *SpecError) RuleIn(name func(field string) string) string {
 	return b.String()
 }
 
-func fmtNum(v float64) string { return fmt.Sprintf("%.10g", v) }
+// fmtNum is v as messages give numbers: up to 10 significant digits, an
+// exponent written as in a spec (1e30, 2.5e-7), without Go's + and leading
+// zero.
+func fmtNum(v float64) string {
+	s := fmt.Sprintf("%.10g", v)
+	if i := strings.IndexByte(s, 'e'); i >= 0 {
+		m, exp := s[:i], strings.TrimPrefix(s[i+1:], "+")
+		neg := strings.HasPrefix(exp, "-")
+		exp = strings.TrimLeft(strings.TrimPrefix(exp, "-"), "0")
+		if neg {
+			exp = "-" + exp
+		}
+		s = m + "e" + exp
+	}
+	return s
+}
 
 func finite(v float64) bool { return !math.IsNaN(v) && !math.IsInf(v, 0) }
 

@@ -97,8 +97,8 @@ func TestNormalizeRateBounds(t *testing.T) {
 		field string
 		bound string
 	}{
-		{Spec{InputRate: 1e308, OutputRate: 1e306, Passband: 3e305, RippleDB: 0.2, RejectionDB: 90}, "InputRate", "at most 1e+30 Hz"},
-		{Spec{InputRate: 1.7e308, OutputRate: 1.7e306, Passband: 5e305, RippleDB: 0.2, RejectionDB: 90}, "InputRate", "at most 1e+30 Hz"},
+		{Spec{InputRate: 1e308, OutputRate: 1e306, Passband: 3e305, RippleDB: 0.2, RejectionDB: 90}, "InputRate", "at most 1e30 Hz"},
+		{Spec{InputRate: 1.7e308, OutputRate: 1.7e306, Passband: 5e305, RippleDB: 0.2, RejectionDB: 90}, "InputRate", "at most 1e30 Hz"},
 		{Spec{InputRate: 1e-29, OutputRate: 1e-31, Passband: 3e-32, RippleDB: 0.2, RejectionDB: 90}, "OutputRate", "at least 1e-30 Hz"},
 	} {
 		_, err := tc.s.Normalize()

@@ -521,7 +521,8 @@ func showFull(v any) string {
 	case string:
 		return strconv.Quote(x)
 	case float64:
-		return strconv.FormatFloat(x, 'g', -1, 64)
+		// 1e308 as a spec writes it, not Go's 1e+308.
+		return strings.Replace(strconv.FormatFloat(x, 'g', -1, 64), "e+", "e", 1)
 	case int64:
 		return strconv.FormatInt(x, 10)
 	case bool:
