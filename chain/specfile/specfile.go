@@ -846,6 +846,10 @@ func (p *parser) build() (*Spec, error) {
 		// value must be refused here, where the key is known.
 		if ok && !(v > 0) {
 			raw, _ := p.lookup(f.key)
+			if k == units.Rate {
+				// 1e-330 reads as 0: say the range as well.
+				return nil, p.errAt(f.key, raw, "must be above 0 Hz (%s)", strings.TrimPrefix(rangeRule(units.Rate), "lies outside the supported range: "))
+			}
 			return nil, p.errAt(f.key, raw, "must be above 0 Hz")
 		}
 		*f.dst = v

@@ -169,6 +169,7 @@ func TestParseErrors(t *testing.T) {
 		{"ripple at rounding level", `ripple = "1e-300 dB"`, []string{"ripple", "[1e-9, 10] dB"}},
 		{"array of tables", "[[search]]\nmax_stages = 3", []string{"search = [{...}]", "want a table [search]"}},
 		{"rate in a list", `input_rate = ["98.304 MHz"]`, []string{`input_rate = ["98.304 MHz"]`, "not a list"}},
+		{"rate underflowing to 0", `output_rate = 1e-330`, []string{"output_rate = 1e-330", "above 0 Hz", "[1e-30, 1e30] Hz"}},
 		{"ripple negative", `ripple = "-0.1 dB"`, []string{"ripple", "[1e-9, 10] dB"}},
 		{"rejection zero", `rejection = 0`, []string{"rejection", "(0, 150]"}},
 		{"rejection high", `rejection = "151 dB"`, []string{"rejection", "(0, 150]"}},
