@@ -139,15 +139,6 @@ const (
 	// and a budget that large lets an uncorrected CIC's droop pass as
 	// flat.
 	MaxRippleDB = 10
-	// MinRippleDB bounds the passband ripple from below: its deviation,
-	// about 6e-11 of the gain, is already within a few hundred times
-	// double precision's rounding in a sum of taps (remez.RoundingLevel,
-	// 1e-13 to n 1e-14), below which no exchange can level the error
-	// (the designs of a plan at 1e-12 dB all failed, measured). It lies far
-	// below any data word's step (2^-31 is 4.7e-10).
-	MinRippleDB = 1e-9
-	// RippleRange is the ripple's range as messages give it.
-	RippleRange = "[1e-9, 10] dB"
 	// MaxRateHz and MinRateHz bound the input and the output rate. Every
 	// result depends on the rates only through their ratios, but float64
 	// arithmetic does not: products such as 2 pi f overflow near 1e308 Hz,
@@ -291,8 +282,8 @@ func (s Spec) Normalize() (Spec, error) {
 	if !finite(s.Stopband) || s.Stopband <= s.Passband || s.Stopband > fk-s.Protected {
 		return bad("Stopband", s.Stopband, "must lie in ({Passband} = %s Hz, {%s} - {Protected} = %s Hz]", fmtNum(s.Passband), lo, fmtNum(fk-s.Protected))
 	}
-	if !finite(s.RippleDB) || s.RippleDB < MinRippleDB || s.RippleDB > MaxRippleDB {
-		return bad("RippleDB", s.RippleDB, "must lie in %s (peak-to-peak over the passband)", RippleRange)
+	if !finite(s.RippleDB) || s.RippleDB <= 0 || s.RippleDB > MaxRippleDB {
+		return bad("RippleDB", s.RippleDB, "must lie in (0, %d] dB (peak-to-peak over the passband)", MaxRippleDB)
 	}
 	if s.RejectionMask != nil {
 		// The mask covers the input band [0, F/2], F the high rate: a

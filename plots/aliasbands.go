@@ -27,11 +27,14 @@ func AliasShading(inHz, outHz, faHz float64) [][2]float64 {
 				// Every later band joins too (the rounding of k outHz, a
 				// few ulps of inHz, cannot carry the gap past minGap):
 				// the last band's upper edge ends the joined band.
+				// A step or two corrects the quotient's rounding; past
+				// 2^53 bands a step no longer changes last, so the
+				// steps are bounded.
 				last := math.Floor((inHz/2 + faHz) / outHz)
-				for last*outHz-faHz >= inHz/2 {
+				for i := 0; i < 4 && last*outHz-faHz >= inHz/2; i++ {
 					last--
 				}
-				for (last+1)*outHz-faHz < inHz/2 {
+				for i := 0; i < 4 && (last+1)*outHz-faHz < inHz/2; i++ {
 					last++
 				}
 				bands[n-1][1] = math.Max(hi, math.Min(last*outHz+faHz, inHz/2))

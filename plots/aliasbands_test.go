@@ -59,3 +59,15 @@ func TestAliasShadingHugeRatio(t *testing.T) {
 		t.Errorf("%d bands, first %v, last %v; want 64, [690 1310], ending at %v", len(b), b[0], b[len(b)-1], in/2)
 	}
 }
+
+// Past 2^53 bands a float64 band index no longer counts one by one: the
+// shading still returns, ending at inHz/2 (only a caller of the exported
+// function can ask it; a spec's ratio is at most 2^31 - 1).
+func TestAliasShadingBeyondFloatCount(t *testing.T) {
+	for _, c := range [][3]float64{{1e20, 1, 0.5}, {1e17, 1, 0.5}, {3e16, 1, 0.3}, {1e30, 1e-30, 5e-31}} {
+		b := AliasShading(c[0], c[1], c[2])
+		if len(b) == 0 || len(b) > 64 || b[len(b)-1][1] != c[0]/2 {
+			t.Errorf("AliasShading(%v, %v, %v): %d bands ending at %v, want at most 64 ending at %v", c[0], c[1], c[2], len(b), b[len(b)-1][1], c[0]/2)
+		}
+	}
+}

@@ -283,7 +283,7 @@ func BitTrueContext(ctx context.Context, c Cascade, w *Widths, sig Signal) (BitT
 	var yi, yf []float64
 	var inPow, inErr float64
 	var clipped int
-	if in := sig.Inputs.input(pcg, tones, noise, c.InputRate, w.InputBits, nin); in != nil {
+	if in := sig.Inputs.input(ctx, pcg, tones, noise, c.InputRate, w.InputBits, nin); in != nil {
 		yi, yf, err = streamMemo(ctx, c, w, in, skip, nm)
 		inPow, inErr, clipped = in.inPow/float64(nin), in.inErr/float64(nin), in.clipped
 		if err == nil {

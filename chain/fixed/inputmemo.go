@@ -1,6 +1,7 @@
 package fixed
 
 import (
+	"context"
 	"math"
 	"math/rand/v2"
 	"slices"
@@ -80,8 +81,9 @@ type memoInput struct {
 // is pcg (in its state before the first noise draw), tones plus white
 // noise of RMS sigma at rate, quantised to a bits-bit word, generating
 // what the memo does not hold yet; or nil when m is nil or the memo would
-// pass its bound.
-func (m *InputMemo) input(pcg *rand.PCG, tones []toneGen, sigma, rate float64, bits, n int) *memoInput {
+// pass its bound, or ctx ends while it generates (a block, a few
+// milliseconds, at a time: the run then stops on its own).
+func (m *InputMemo) input(ctx context.Context, pcg *rand.PCG, tones []toneGen, sigma, rate float64, bits, n int) *memoInput {
 	if m == nil || n <= 0 {
 		return nil
 	}
@@ -126,6 +128,9 @@ func (m *InputMemo) input(pcg *rand.PCG, tones []toneGen, sigma, rate float64, b
 		s.x, s.codes = x, codes
 	}
 	for len(s.x) < n {
+		if ctx.Err() != nil {
+			return nil
+		}
 		s.extend()
 	}
 	return s.view(n)

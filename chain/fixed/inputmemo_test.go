@@ -1,6 +1,7 @@
 package fixed
 
 import (
+	"context"
 	"fmt"
 	"math"
 	"math/rand/v2"
@@ -183,7 +184,7 @@ func TestInputMemoView(t *testing.T) {
 		tones := []toneGen{{f: 1234.5, a: 1.2, phase: 0.3}, {f: 77, a: 0.01, phase: 2}}
 		for _, n := range []int{1, 1000, blockSamples - 1, blockSamples, blockSamples + 1, 3 * blockSamples, 2*blockSamples + 17} {
 			pcg := rand.NewPCG(9, 9)
-			in := memo.input(pcg, tones, sigma, 1e5, 10, n)
+			in := memo.input(context.Background(), pcg, tones, sigma, 1e5, 10, n)
 			if in == nil {
 				t.Fatalf("sigma %g, n %d: no input", sigma, n)
 			}

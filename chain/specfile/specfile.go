@@ -56,6 +56,21 @@ const (
 	MaxCoefBits = fixed.MaxBits
 )
 
+// Ripple limits. The library (chain.Spec) takes any ripple in (0,
+// chain.MaxRippleDB] dB, as the parts of a fractional chain take a share
+// of the spec's; a spec file is held above MinRippleDB.
+const (
+	// MinRippleDB is the smallest ripple a spec may ask for: its
+	// deviation, about 6e-11 of the gain, is already within a few hundred
+	// times double precision's rounding in a sum of taps
+	// (remez.RoundingLevel, 1e-13 to n 1e-14), below which no exchange can
+	// level the error (a plan at 1e-12 dB failed every design, measured).
+	// It lies far below any data word's step (2^-31 is 4.7e-10).
+	MinRippleDB = 1e-9
+	// RippleRange is the ripple's range as messages give it.
+	RippleRange = "[1e-9, 10] dB"
+)
+
 // DefaultMaxStages is search.max_stages when absent: the search's default.
 const DefaultMaxStages = optimize.DefaultMaxStages
 
@@ -673,7 +688,7 @@ func microRule(s string, k units.Kind) string {
 // quantity, in the ranges the spec takes.
 func rangeRule(k units.Kind) string {
 	if k == units.Level {
-		return fmt.Sprintf("lies outside the supported range: rejection lies in (0, %v] dB and ripple in %s", chain.MaxRejectionDB, chain.RippleRange)
+		return fmt.Sprintf("lies outside the supported range: rejection lies in (0, %v] dB and ripple in %s", chain.MaxRejectionDB, RippleRange)
 	}
 	e := func(v float64) string { return strings.Replace(strconv.FormatFloat(v, 'g', -1, 64), "e+", "e", 1) }
 	return fmt.Sprintf("lies outside the supported range: rates lie in [%s, %s] Hz", e(chain.MinRateHz), e(chain.MaxRateHz))
@@ -899,8 +914,8 @@ func (p *parser) build() (*Spec, error) {
 		}
 		*f.dst = v
 	}
-	if v, ok := p.lookup("ripple"); ok && !(cs.RippleDB >= chain.MinRippleDB && cs.RippleDB <= chain.MaxRippleDB) {
-		return nil, p.errAt("ripple", v, "must lie in %s (peak-to-peak over the passband)", chain.RippleRange)
+	if v, ok := p.lookup("ripple"); ok && !(cs.RippleDB >= MinRippleDB && cs.RippleDB <= chain.MaxRippleDB) {
+		return nil, p.errAt("ripple", v, "must lie in %s (peak-to-peak over the passband)", RippleRange)
 	}
 	if v, ok := p.lookup("rejection"); ok && (!(cs.RejectionDB > 0) || cs.RejectionDB > chain.MaxRejectionDB) {
 		return nil, p.errAt("rejection", v, "must lie in (0, %d] dB", chain.MaxRejectionDB)

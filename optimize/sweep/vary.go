@@ -102,7 +102,7 @@ var Keys = []Key{
 	{Name: "passband", Path: "passband", Dim: Frequency, MinOpen: true, Max: math.Inf(1)},
 	{Name: "protected", Path: "protected", Dim: Frequency, MinOpen: true, Max: math.Inf(1)},
 	{Name: "stopband", Path: "stopband", Dim: Frequency, MinOpen: true, Max: math.Inf(1)},
-	{Name: "ripple", Path: "ripple", Dim: Level, Min: chain.MinRippleDB, Max: chain.MaxRippleDB},
+	{Name: "ripple", Path: "ripple", Dim: Level, Min: specfile.MinRippleDB, Max: chain.MaxRippleDB},
 	{Name: "rejection", Path: "rejection", Dim: Level, MinOpen: true, Max: chain.MaxRejectionDB},
 	{Name: "snr", Path: "sigma_delta.snr", Aliases: []string{"sigma_delta.snr"}, Dim: Level, MinOpen: true, Max: 300},
 	{Name: "clock", Path: "hardware.clock", Aliases: []string{"hardware.clock"}, Dim: Frequency, MinOpen: true, Max: math.Inf(1)},

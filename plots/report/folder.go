@@ -117,8 +117,10 @@ func OpenFolder(dir, role string) (*Folder, error) {
 	fi, err := os.Lstat(abs)
 	switch {
 	case errors.Is(err, os.ErrNotExist):
-	case errors.Is(err, syscall.ENAMETOOLONG):
+	case errors.Is(err, syscall.ENAMETOOLONG) && len(filepath.Base(abs)) > 255:
 		return nil, misuse("%s %q: a name of %d bytes, longer than the file system takes (a folder name of at most 255 bytes on common systems); choose a shorter name", role, shown, len(filepath.Base(abs)))
+	case errors.Is(err, syscall.ENAMETOOLONG):
+		return nil, misuse("%s %q: a path of %d bytes, longer than the system takes (4096 bytes on common systems); choose a folder nearer the root", role, shown, len(abs))
 	case err != nil:
 		return nil, failure("%s %q: %v", role, shown, unwrapPath(err))
 	case fi.Mode()&os.ModeSymlink != 0:

@@ -79,6 +79,23 @@ func TestOutNameTooLong(t *testing.T) {
 	}
 }
 
+// A whole path longer than the system takes, every name in it short, is
+// said as such, not blamed on the folder's name.
+func TestOutPathTooLong(t *testing.T) {
+	parent := t.TempDir()
+	for len(parent) < 4000 {
+		parent = filepath.Join(parent, strings.Repeat("p", min(200, 4000-len(parent))))
+	}
+	if err := os.MkdirAll(parent, 0o755); err != nil {
+		t.Skipf("cannot make a %d-byte path here: %v", len(parent), err)
+	}
+	_, err := OpenFolder(filepath.Join(parent, strings.Repeat("d", 100)), "--out")
+	var fe *FolderError
+	if !errors.As(err, &fe) || !fe.Misuse || !strings.Contains(err.Error(), "a path of") || strings.Contains(err.Error(), "a name of") {
+		t.Fatalf("OpenFolder(%d-byte path) = %v, want a misuse naming the path's length", len(parent)+101, err)
+	}
+}
+
 // A previous output that cannot be removed once the new one is in place is
 // an error naming what is left, never a silent success.
 func TestOutOldNotRemoved(t *testing.T) {
