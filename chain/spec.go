@@ -4,6 +4,8 @@ import (
 	"fmt"
 	"math"
 	"strings"
+
+	"github.com/stepdown-dsp/stepdown/chain/units"
 )
 
 // Spec is what the user asks of the whole chain. Rates and frequencies in Hz,
@@ -193,22 +195,9 @@ func (e *SpecError) RuleIn(name func(field string) string) string {
 	return b.String()
 }
 
-// fmtNum is v as messages give numbers: up to 10 significant digits, an
-// exponent written as in a spec (1e30, 2.5e-7), without Go's + and leading
-// zero.
-func fmtNum(v float64) string {
-	s := fmt.Sprintf("%.10g", v)
-	if i := strings.IndexByte(s, 'e'); i >= 0 {
-		m, exp := s[:i], strings.TrimPrefix(s[i+1:], "+")
-		neg := strings.HasPrefix(exp, "-")
-		exp = strings.TrimLeft(strings.TrimPrefix(exp, "-"), "0")
-		if neg {
-			exp = "-" + exp
-		}
-		s = m + "e" + exp
-	}
-	return s
-}
+// fmtNum is v as messages give numbers: up to 10 significant digits, in
+// the spec's notation (units.FormatNumber).
+func fmtNum(v float64) string { return units.FormatNumber(v, 10) }
 
 func finite(v float64) bool { return !math.IsNaN(v) && !math.IsInf(v, 0) }
 

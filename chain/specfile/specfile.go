@@ -536,8 +536,7 @@ func showFull(v any) string {
 	case string:
 		return strconv.Quote(x)
 	case float64:
-		// 1e308 as a spec writes it, not Go's 1e+308.
-		return strings.Replace(strconv.FormatFloat(x, 'g', -1, 64), "e+", "e", 1)
+		return units.FormatNumber(x, -1) // 1e308 as a spec writes it
 	case int64:
 		return strconv.FormatInt(x, 10)
 	case bool:
@@ -690,8 +689,7 @@ func rangeRule(k units.Kind) string {
 	if k == units.Level {
 		return fmt.Sprintf("lies outside the supported range: rejection lies in (0, %v] dB and ripple in %s", chain.MaxRejectionDB, RippleRange)
 	}
-	e := func(v float64) string { return strings.Replace(strconv.FormatFloat(v, 'g', -1, 64), "e+", "e", 1) }
-	return fmt.Sprintf("lies outside the supported range: rates lie in [%s, %s] Hz", e(chain.MinRateHz), e(chain.MaxRateHz))
+	return fmt.Sprintf("lies outside the supported range: rates lie in [%s, %s] Hz", units.FormatNumber(chain.MinRateHz, -1), units.FormatNumber(chain.MaxRateHz, -1))
 }
 
 // rejectionMask reads rejection_mask: a list of [frequency, rejection]

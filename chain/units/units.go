@@ -244,6 +244,23 @@ func canonicalPrefix(u string) string {
 	return "M"
 }
 
+// FormatNumber writes v as a spec writes numbers: strconv's 'g' form with
+// digits significant digits (-1: the fewest that read back as v), its
+// exponent without Go's plus sign and leading zeros (1e30, 2.5e-7, not
+// 1e+30, 2.5e-07).
+func FormatNumber(v float64, digits int) string {
+	s := strconv.FormatFloat(v, 'g', digits, 64)
+	i := strings.IndexByte(s, 'e')
+	if i < 0 {
+		return s
+	}
+	exp, sign := s[i+1:], ""
+	if exp[0] == '-' {
+		sign = "-"
+	}
+	return s[:i+1] + sign + strings.TrimLeft(exp[1:], "0")
+}
+
 // FormatFrequency writes hz with the largest unit that keeps it at or above 1,
 // in the shortest form that parses back to the same value: 1.92e6 -> "1.92 MHz".
 func FormatFrequency(hz float64) string {

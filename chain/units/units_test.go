@@ -4,6 +4,8 @@ import (
 	"errors"
 	"fmt"
 	"math"
+	"math/rand/v2"
+	"strconv"
 	"strings"
 	"testing"
 )
@@ -313,6 +315,37 @@ func TestParseRate(t *testing.T) {
 	for _, in := range []string{"300 kS/s", "1 Msps"} {
 		if _, err := ParseFrequency(in); err == nil || !strings.Contains(err.Error(), "sample-rate unit") {
 			t.Errorf("ParseFrequency(%q) = %v, want the sample-rate unit refused", in, err)
+		}
+	}
+}
+
+// FormatNumber writes exponents as a spec does, and what it writes reads
+// back (strconv.ParseFloat) as the value, on a table and on seeded random
+// values over the whole float64 range.
+func TestFormatNumber(t *testing.T) {
+	for _, tc := range []struct {
+		v      float64
+		digits int
+		want   string
+	}{
+		{1e30, -1, "1e30"}, {1e308, -1, "1e308"}, {1e-9, -1, "1e-9"}, {2.5e-7, -1, "2.5e-7"},
+		{1e-30, 10, "1e-30"}, {1e30, 10, "1e30"}, {122.88e6, -1, "1.2288e8"}, {0.1, -1, "0.1"},
+		{-3e-5, -1, "-3e-5"}, {0, -1, "0"}, {1e100, -1, "1e100"}, {12345, 10, "12345"},
+	} {
+		if got := FormatNumber(tc.v, tc.digits); got != tc.want {
+			t.Errorf("FormatNumber(%v, %d) = %q, want %q", tc.v, tc.digits, got, tc.want)
+		}
+	}
+	rng := rand.New(rand.NewPCG(1, 2))
+	for range 10000 {
+		v := math.Float64frombits(rng.Uint64())
+		if math.IsNaN(v) || math.IsInf(v, 0) {
+			continue
+		}
+		s := FormatNumber(v, -1)
+		back, err := strconv.ParseFloat(s, 64)
+		if err != nil || back != v || strings.Contains(s, "e+") || strings.Contains(s, "e-0") {
+			t.Fatalf("FormatNumber(%v) = %q: reads back as %v (%v)", v, s, back, err)
 		}
 	}
 }

@@ -74,8 +74,7 @@ func (k Key) Unit() string {
 func (k Key) Format(v float64) string {
 	switch k.Dim {
 	case Level:
-		// 1e-9, as the spec's range is written, not Go's 1e-09.
-		return strings.Replace(strconv.FormatFloat(v, 'g', -1, 64), "e-0", "e-", 1) + " dB"
+		return units.FormatNumber(v, -1) + " dB"
 	case Bits:
 		return strconv.FormatFloat(v, 'f', 0, 64) + " bits"
 	case Count:
