@@ -67,9 +67,12 @@ const (
 	// level the error (a plan at 1e-12 dB failed every design, measured).
 	// It lies far below any data word's step (2^-31 is 4.7e-10).
 	MinRippleDB = 1e-9
-	// RippleRange is the ripple's range as messages give it.
-	RippleRange = "[1e-9, 10] dB"
 )
+
+// rippleRange is the ripple's range as messages give it: [1e-9, 10] dB.
+func rippleRange() string {
+	return fmt.Sprintf("[%s, %s] dB", units.FormatNumber(MinRippleDB, -1), units.FormatNumber(chain.MaxRippleDB, -1))
+}
 
 // DefaultMaxStages is search.max_stages when absent: the search's default.
 const DefaultMaxStages = optimize.DefaultMaxStages
@@ -687,7 +690,7 @@ func microRule(s string, k units.Kind) string {
 // quantity, in the ranges the spec takes.
 func rangeRule(k units.Kind) string {
 	if k == units.Level {
-		return fmt.Sprintf("lies outside the supported range: rejection lies in (0, %v] dB and ripple in %s", chain.MaxRejectionDB, RippleRange)
+		return fmt.Sprintf("lies outside the supported range: rejection lies in (0, %v] dB and ripple in %s", chain.MaxRejectionDB, rippleRange())
 	}
 	return fmt.Sprintf("lies outside the supported range: rates lie in [%s, %s] Hz", units.FormatNumber(chain.MinRateHz, -1), units.FormatNumber(chain.MaxRateHz, -1))
 }
@@ -913,7 +916,7 @@ func (p *parser) build() (*Spec, error) {
 		*f.dst = v
 	}
 	if v, ok := p.lookup("ripple"); ok && !(cs.RippleDB >= MinRippleDB && cs.RippleDB <= chain.MaxRippleDB) {
-		return nil, p.errAt("ripple", v, "must lie in %s (peak-to-peak over the passband)", RippleRange)
+		return nil, p.errAt("ripple", v, "must lie in %s (peak-to-peak over the passband)", rippleRange())
 	}
 	if v, ok := p.lookup("rejection"); ok && (!(cs.RejectionDB > 0) || cs.RejectionDB > chain.MaxRejectionDB) {
 		return nil, p.errAt("rejection", v, "must lie in (0, %d] dB", chain.MaxRejectionDB)
