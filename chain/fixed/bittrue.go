@@ -882,6 +882,9 @@ type cicState struct {
 	shift []int
 	// aligned: see msbAligned.
 	aligned bool
+	// blocks: aligned, and no integrator shifts its input up (run).
+	blocks bool
+	buf    []int64 // a stretch's integrator outputs (run)
 }
 
 // msbAligned reports whether no integrator's register reaches above its
@@ -912,16 +915,47 @@ func newCICState(p *CICPruning) *cicState {
 		prev = p.Dropped[j]
 	}
 	s.aligned = msbAligned(p)
+	s.blocks = s.aligned && !slices.ContainsFunc(s.shift, func(d int) bool { return d < 0 })
+	if s.blocks {
+		s.buf = make([]int64, cicStretch)
+	}
 	return s
 }
 
 func (s *cicState) run(x, out []int64) []int64 {
+	if !s.blocks {
+		return s.runSamples(x, out)
+	}
+	// An aligned CIC whose integrators only drop bits (Hogenauer's) runs
+	// one integrator over a stretch of the block (cicStretch samples),
+	// then the next: the same sums in the same order for each register as
+	// runSamples, with the register held in a machine register, and the
+	// combs only at the output samples.
+	r := s.p.R
+	for len(x) > 0 {
+		k := min(len(x), cicStretch)
+		buf := s.buf[:k]
+		copy(buf, x[:k])
+		for j, acc := range s.integ {
+			s.integ[j] = integrate64(acc, buf, s.shift[j])
+		}
+		for i := (r - s.phase) % r; i < k; i += r {
+			out = append(out, s.comb(buf[i]))
+		}
+		s.phase = (s.phase + k) % r
+		x = x[k:]
+	}
+	return out
+}
+
+// runSamples is run one input sample at a time, every integrator wrapped
+// at its width: any pruning.
+func (s *cicState) runSamples(x, out []int64) []int64 {
 	p := s.p
-	n, r, m := p.N, p.R, p.M
+	n, r := p.N, p.R
 	integ, shift, regs := s.integ[:n], s.shift[:n], p.RegisterBits[:n]
 	for _, v := range x {
-		// shiftTo and wrap, written out: this loop is the run's cost at
-		// large R.
+		// shiftTo and wrap, written out.
 		if s.aligned {
 			for j := range integ {
 				if d := shift[j]; d >= 0 {
@@ -953,19 +987,27 @@ func (s *cicState) run(x, out []int64) []int64 {
 		if s.phase++; s.phase == r {
 			s.phase = 0
 		}
-		v = wrap(v, regs[n-1])
-		unit := p.Dropped[n-1]
-		for j := 0; j < n; j++ {
-			d := p.Dropped[n+j]
-			in := wrap(shiftTo(v, unit, d), p.RegisterBits[n+j])
-			old := s.combIn[j][s.pos]
-			s.combIn[j][s.pos] = in
-			v, unit = wrap(in-old, p.RegisterBits[n+j]), d
-		}
-		s.pos = (s.pos + 1) % m
-		out = append(out, wrap(shiftTo(v, unit, p.Dropped[2*n]), p.OutputBits))
+		out = append(out, s.comb(v))
 	}
 	return out
+}
+
+// comb runs the combs on v, the last integrator's value at an output
+// sample, and returns the output.
+func (s *cicState) comb(v int64) int64 {
+	p := s.p
+	n := p.N
+	v = wrap(v, p.RegisterBits[n-1])
+	unit := p.Dropped[n-1]
+	for j := 0; j < n; j++ {
+		d := p.Dropped[n+j]
+		in := wrap(shiftTo(v, unit, d), p.RegisterBits[n+j])
+		old := s.combIn[j][s.pos]
+		s.combIn[j][s.pos] = in
+		v, unit = wrap(in-old, p.RegisterBits[n+j]), d
+	}
+	s.pos = (s.pos + 1) % p.M
+	return wrap(shiftTo(v, unit, p.Dropped[2*n]), p.OutputBits)
 }
 
 // newCICInt is the integer model of a planned CIC of either form.

@@ -1,6 +1,9 @@
 package fixed
 
-import "math/bits"
+import (
+	"math/bits"
+	"slices"
+)
 
 // MaxModelBits is the widest CIC register the integer model runs: 127
 // bits, in two's-complement 128-bit arithmetic (int128), which holds any
@@ -97,6 +100,10 @@ type cicState128 struct {
 	narrow      int
 	narrowInteg []int64
 	aligned     bool // see msbAligned
+	// blocks: aligned, and no integrator shifts its input up (run).
+	blocks bool
+	wbuf   []int128 // a stretch's wide integrator outputs (run)
+	nbuf   []int64  // a stretch's narrow integrator outputs (run)
 }
 
 func (s *cicState128) prepare() {
@@ -112,6 +119,11 @@ func (s *cicState128) prepare() {
 	}
 	s.narrowInteg = make([]int64, s.p.N)
 	s.aligned = msbAligned(s.p)
+	s.blocks = s.aligned && !slices.ContainsFunc(s.shift, func(d int) bool { return d < 0 })
+	if s.blocks {
+		s.wbuf = make([]int128, cicStretch)
+		s.nbuf = make([]int64, cicStretch)
+	}
 }
 
 func newCICState128(p *CICPruning) *cicState128 {
@@ -123,8 +135,150 @@ func newCICState128(p *CICPruning) *cicState128 {
 }
 
 func (s *cicState128) run(x, out []int64) []int64 {
+	if s.shift == nil {
+		s.prepare()
+	}
+	if !s.blocks {
+		return s.runSamples(x, out)
+	}
+	// As cicState.run: an aligned CIC whose integrators only drop bits
+	// runs one integrator over a stretch of the block, then the next, the
+	// same steps as runSamples for each register.
+	for len(x) > 0 {
+		k := min(len(x), cicStretch)
+		out = s.runStretch(x[:k], out)
+		x = x[k:]
+	}
+	return out
+}
+
+// runStretch is run on at most cicStretch samples.
+func (s *cicState128) runStretch(x, out []int64) []int64 {
 	p := s.p
-	n, r, m := p.N, p.R, p.M
+	n, nw := p.N, s.narrow
+	var wb []int128
+	if nw > 0 {
+		wb = s.wbuf[:len(x)]
+		for i, x0 := range x {
+			wb[i] = int128{hi: x0 >> 63, lo: uint64(x0)}
+		}
+		for j := range nw {
+			s.integ[j] = integrate128(s.integ[j], wb, s.shift[j])
+		}
+	}
+	var nb []int64
+	if nw < n {
+		nb = s.nbuf[:len(x)]
+		// The first narrow integrator's input is shifted in int128 (its
+		// source may be wide); only the low word then matters.
+		d := s.shift[nw]
+		if nw > 0 {
+			for i, v := range wb {
+				_, lo := shr128(v.hi, v.lo, d)
+				nb[i] = int64(lo)
+			}
+		} else {
+			for i, x0 := range x {
+				_, lo := shr128(x0>>63, uint64(x0), d)
+				nb[i] = int64(lo)
+			}
+		}
+		s.narrowInteg[nw] = integrate64(s.narrowInteg[nw], nb, 0)
+		for j := nw + 1; j < n; j++ {
+			s.narrowInteg[j] = integrate64(s.narrowInteg[j], nb, s.shift[j])
+		}
+	}
+	r := p.R
+	for i := (r - s.phase) % r; i < len(x); i += r {
+		if nw < n {
+			out = append(out, s.comb128(int128{hi: nb[i] >> 63, lo: uint64(nb[i])}))
+		} else {
+			out = append(out, s.comb128(wb[i]))
+		}
+	}
+	s.phase = (s.phase + len(x)) % r
+	return out
+}
+
+// cicStretch is how many input samples the block form of the integer CICs
+// runs one integrator over before the next: their outputs then stay in
+// the core's first-level cache (32 KiB of int128).
+const cicStretch = 2048
+
+// integrate128 runs an integrator from acc over v in place: v[i] becomes
+// the register after input v[i] floored by 2^d (d >= 0), modulo 2^128.
+func integrate128(acc int128, v []int128, d int) int128 {
+	var c uint64
+	switch {
+	case d == 0:
+		for i := range v {
+			acc.lo, c = bits.Add64(acc.lo, v[i].lo, 0)
+			acc.hi += v[i].hi + int64(c)
+			v[i] = acc
+		}
+	case d < 64:
+		sr, sl := uint(d), uint(64-d)
+		for i := range v {
+			acc.lo, c = bits.Add64(acc.lo, v[i].lo>>sr|uint64(v[i].hi)<<sl, 0)
+			acc.hi += v[i].hi>>sr + int64(c)
+			v[i] = acc
+		}
+	default:
+		sr := uint(min(d-64, 63))
+		for i := range v {
+			acc.lo, c = bits.Add64(acc.lo, uint64(v[i].hi>>sr), 0)
+			acc.hi += v[i].hi>>63 + int64(c)
+			v[i] = acc
+		}
+	}
+	return acc
+}
+
+// integrate64 is integrate128 modulo 2^64 (int64 shifts by 64 or more
+// give the sign, as shr128's low word does).
+func integrate64(acc int64, v []int64, d int) int64 {
+	sr := uint(d)
+	for i := range v {
+		acc += v[i] >> sr
+		v[i] = acc
+	}
+	return acc
+}
+
+// shr128 is int128.shr on the two words, for k >= 0.
+func shr128(hi int64, lo uint64, k int) (int64, uint64) {
+	switch {
+	case k == 0:
+		return hi, lo
+	case k < 64:
+		return hi >> uint(k), lo>>uint(k) | uint64(hi)<<uint(64-k)
+	default:
+		return hi >> 63, uint64(hi >> uint(min(k-64, 63)))
+	}
+}
+
+// comb128 runs the combs on v, the last integrator's value at an output
+// sample (wrapped here to its register), and returns the output.
+func (s *cicState128) comb128(v int128) int64 {
+	p := s.p
+	n := p.N
+	v = v.wrap(p.RegisterBits[n-1])
+	unit := p.Dropped[n-1]
+	for j := 0; j < n; j++ {
+		d := p.Dropped[n+j]
+		in := shiftTo128(v, unit, d).wrap(p.RegisterBits[n+j])
+		old := s.combIn[j][s.pos]
+		s.combIn[j][s.pos] = in
+		v, unit = in.sub(old).wrap(p.RegisterBits[n+j]), d
+	}
+	s.pos = (s.pos + 1) % p.M
+	// The output word is at most 32 bits: its low word holds it.
+	return int64(shiftTo128(v, unit, p.Dropped[2*n]).wrap(p.OutputBits).lo)
+}
+
+func (s *cicState128) runSamples(x, out []int64) []int64 {
+	p := s.p
+	n, r := p.N, p.R
 	if s.shift == nil {
 		s.prepare()
 	}
@@ -133,8 +287,8 @@ func (s *cicState128) run(x, out []int64) []int64 {
 	shift, regs := s.shift[:n], p.RegisterBits[:n]
 	for _, x0 := range x {
 		// The integrators, at the input rate: the same steps as the
-		// combs' below (shiftTo128, add, wrap), written out on the two
-		// words, since this loop is the bit-true run's cost at large R.
+		// combs' (comb128: shiftTo128, add, wrap), written out on the two
+		// words.
 		hi, lo := x0>>63, uint64(x0)
 		for j := range wide {
 			if d := shift[j]; d > 0 { // floor to the register's unit
@@ -204,24 +358,11 @@ func (s *cicState128) run(x, out []int64) []int64 {
 		if s.phase++; s.phase == r {
 			s.phase = 0
 		}
-		var v int128
 		if nw < n {
-			l := wrap(s.narrowInteg[n-1], regs[n-1])
-			v = int128{hi: l >> 63, lo: uint64(l)}
+			out = append(out, s.comb128(int128{hi: s.narrowInteg[n-1] >> 63, lo: uint64(s.narrowInteg[n-1])}))
 		} else {
-			v = s.integ[n-1].wrap(regs[n-1])
+			out = append(out, s.comb128(s.integ[n-1]))
 		}
-		unit := p.Dropped[n-1]
-		for j := 0; j < n; j++ {
-			d := p.Dropped[n+j]
-			in := shiftTo128(v, unit, d).wrap(p.RegisterBits[n+j])
-			old := s.combIn[j][s.pos]
-			s.combIn[j][s.pos] = in
-			v, unit = in.sub(old).wrap(p.RegisterBits[n+j]), d
-		}
-		s.pos = (s.pos + 1) % m
-		// The output word is at most 32 bits: its low word holds it.
-		out = append(out, int64(shiftTo128(v, unit, p.Dropped[2*n]).wrap(p.OutputBits).lo))
 	}
 	return out
 }

@@ -195,3 +195,49 @@ func TestCICAgainstBig(t *testing.T) {
 		t.Errorf("only %d of 40 cases mix wide and narrow integrators", mixed)
 	}
 }
+
+// The block form of both integer CICs (run: one integrator over the whole
+// block at a time) gives the outputs of the sample-by-sample form
+// (runSamples) on 400 seeded random Hogenauer prunings, 4 to 127 bits
+// wide, fed seeded noise and sustained full scale in blocks of seeded
+// random lengths; every pruning of chain.PruneCIC takes the block form.
+func TestCICBlocksAsSamples(t *testing.T) {
+	rng := rand.New(rand.NewPCG(128, 4))
+	for cases := 0; cases < 400; {
+		in := 2 + rng.IntN(23)
+		p, err := chain.PruneCIC(1+rng.IntN(7), 1+rng.IntN(2), 2+rng.IntN(1500), in, 2+rng.IntN(31))
+		if err != nil || p.FullBits > MaxModelBits-2 {
+			continue
+		}
+		cases++
+		x := adversarial(rng, p.N, p.R*p.M, in)[0]
+		for range 1000 + rng.IntN(4000) {
+			x = append(x, rng.Int64N(1<<in)-1<<(in-1))
+		}
+		var blocks intFilter
+		var want []int64
+		if p.FullBits > 63 {
+			a, b := newCICState128(&p), newCICState128(&p)
+			a.prepare()
+			if !a.blocks {
+				t.Fatalf("CIC %+v: a Hogenauer pruning not run in blocks", p)
+			}
+			blocks, want = a, b.runSamples(x, nil)
+		} else {
+			a, b := newCICState(&p), newCICState(&p)
+			if !a.blocks {
+				t.Fatalf("CIC %+v: a Hogenauer pruning not run in blocks", p)
+			}
+			blocks, want = a, b.runSamples(x, nil)
+		}
+		var got []int64
+		for b := 0; b < len(x); {
+			e := min(len(x), b+rng.IntN(3*p.R+2))
+			got = blocks.run(x[b:e], got)
+			b = e
+		}
+		if !slices.Equal(got, want) {
+			t.Fatalf("CIC %+v: the block form differs from the sample form", p)
+		}
+	}
+}

@@ -136,7 +136,13 @@
 //
 // The integer chain runs CIC registers of up to 63 bits in int64 and wider
 // ones, up to MaxModelBits (127), in two's-complement 128-bit arithmetic
-// with the same truncations and wraps; Model exposes it.
+// with the same truncations and wraps; Model exposes it. A pruning whose
+// registers all keep the full width's MSB and only drop bits (Hogenauer's,
+// as chain.PruneCIC plans them) runs one integrator over 2048 input
+// samples, then the next, unwrapped but for the last (see msbAligned): the
+// same sums in the same order for every register as sample by sample, and
+// the combs at the output samples only. Any other pruning runs sample by
+// sample.
 //
 // PlanChainContext, BitTrueContext and EvaluateContext take a context,
 // checked before the plan, before every measurement of the quantised chain
