@@ -1135,7 +1135,30 @@ func newFIRFloat(h []float64, r int) *firFloatState {
 func (s *firFloatState) run(x, out []float64) []float64 {
 	l := len(s.h) - 1
 	s.buf = append(s.buf[:l], x...)
-	for g := (s.n + s.r - 1) / s.r * s.r; g < s.n+len(x); g += s.r {
+	end := s.n + len(x)
+	for g := (s.n + s.r - 1) / s.r * s.r; g < end; {
+		if g >= l && g+3*s.r < end {
+			// Four outputs with whole windows at once, each summed in the
+			// order of the one below, so the outputs are the same bit for
+			// bit, but the four sums do not wait on one another.
+			j := g - s.n // g's window is buf[j : j+l+1]
+			h := s.h
+			b0 := s.buf[j : j+l+1]
+			b1 := s.buf[j+s.r : j+s.r+l+1]
+			b2 := s.buf[j+2*s.r : j+2*s.r+l+1]
+			b3 := s.buf[j+3*s.r : j+3*s.r+l+1]
+			var a0, a1, a2, a3 float64
+			for k, hk := range h {
+				i := l - k
+				a0 += hk * b0[i]
+				a1 += hk * b1[i]
+				a2 += hk * b2[i]
+				a3 += hk * b3[i]
+			}
+			out = append(out, a0, a1, a2, a3)
+			g += 4 * s.r
+			continue
+		}
 		// Taps k = 0..min(l, g) against buf[j-k], summed in that order:
 		// b is the window reversed, so b[len(b)-1-k] = buf[j-k].
 		j := l + g - s.n
@@ -1146,6 +1169,7 @@ func (s *firFloatState) run(x, out []float64) []float64 {
 			acc += hk * b[len(b)-1-k]
 		}
 		out = append(out, acc)
+		g += s.r
 	}
 	s.n += len(x)
 	copy(s.buf, s.buf[len(s.buf)-l:])

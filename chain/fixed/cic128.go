@@ -159,10 +159,8 @@ func (s *cicState128) runStretch(x, out []int64) []int64 {
 	var wb []int128
 	if nw > 0 {
 		wb = s.wbuf[:len(x)]
-		for i, x0 := range x {
-			wb[i] = int128{hi: x0 >> 63, lo: uint64(x0)}
-		}
-		for j := range nw {
+		s.integ[0] = integrate128From64(s.integ[0], x, wb, s.shift[0])
+		for j := 1; j < nw; j++ {
 			s.integ[j] = integrate128(s.integ[j], wb, s.shift[j])
 		}
 	}
@@ -171,19 +169,13 @@ func (s *cicState128) runStretch(x, out []int64) []int64 {
 		nb = s.nbuf[:len(x)]
 		// The first narrow integrator's input is shifted in int128 (its
 		// source may be wide); only the low word then matters.
-		d := s.shift[nw]
 		if nw > 0 {
-			for i, v := range wb {
-				_, lo := shr128(v.hi, v.lo, d)
-				nb[i] = int64(lo)
-			}
+			lowWords(nb, wb, s.shift[nw])
+			s.narrowInteg[nw] = integrate64(s.narrowInteg[nw], nb, 0)
 		} else {
-			for i, x0 := range x {
-				_, lo := shr128(x0>>63, uint64(x0), d)
-				nb[i] = int64(lo)
-			}
+			copy(nb, x)
+			s.narrowInteg[nw] = integrate64(s.narrowInteg[nw], nb, s.shift[nw])
 		}
-		s.narrowInteg[nw] = integrate64(s.narrowInteg[nw], nb, 0)
 		for j := nw + 1; j < n; j++ {
 			s.narrowInteg[j] = integrate64(s.narrowInteg[j], nb, s.shift[j])
 		}
@@ -234,8 +226,44 @@ func integrate128(acc int128, v []int128, d int) int128 {
 	return acc
 }
 
+// integrate128From64 is integrate128 on the int64 inputs x, writing the
+// registers to v.
+func integrate128From64(acc int128, x []int64, v []int128, d int) int128 {
+	v = v[:len(x)]
+	sr := uint(min(d, 63)) // an int64 floored by 2^d, d >= 63, is its sign
+	var c uint64
+	for i, x0 := range x {
+		u := x0 >> sr
+		acc.lo, c = bits.Add64(acc.lo, uint64(u), 0)
+		acc.hi += u>>63 + int64(c)
+		v[i] = acc
+	}
+	return acc
+}
+
+// lowWords writes to dst the low words of v floored by 2^d (d >= 0).
+func lowWords(dst []int64, v []int128, d int) {
+	dst = dst[:len(v)]
+	switch {
+	case d == 0:
+		for i := range v {
+			dst[i] = int64(v[i].lo)
+		}
+	case d < 64:
+		sr, sl := uint(d), uint(64-d)
+		for i := range v {
+			dst[i] = int64(v[i].lo>>sr | uint64(v[i].hi)<<sl)
+		}
+	default:
+		sr := uint(min(d-64, 63))
+		for i := range v {
+			dst[i] = v[i].hi >> sr
+		}
+	}
+}
+
 // integrate64 is integrate128 modulo 2^64 (int64 shifts by 64 or more
-// give the sign, as shr128's low word does).
+// give the sign, as int128.shr's low word does).
 func integrate64(acc int64, v []int64, d int) int64 {
 	sr := uint(d)
 	for i := range v {
@@ -243,18 +271,6 @@ func integrate64(acc int64, v []int64, d int) int64 {
 		v[i] = acc
 	}
 	return acc
-}
-
-// shr128 is int128.shr on the two words, for k >= 0.
-func shr128(hi int64, lo uint64, k int) (int64, uint64) {
-	switch {
-	case k == 0:
-		return hi, lo
-	case k < 64:
-		return hi >> uint(k), lo>>uint(k) | uint64(hi)<<uint(64-k)
-	default:
-		return hi >> 63, uint64(hi >> uint(min(k-64, 63)))
-	}
 }
 
 // comb128 runs the combs on v, the last integrator's value at an output
