@@ -316,6 +316,53 @@ type QuantSettings struct {
 	// instead of MinBits (narrowestWidth): set for a fractional stage's
 	// long prototype, whose every width is dear to try.
 	from int
+	// cos, set by MinCoefBits, keeps the grid cosines of the taps its
+	// widths' searches move (nil: each search computes its own).
+	cos *cosTable
+}
+
+// cosTable holds, for one grid (the same taps' length, rate and bands at
+// every width MinCoefBits tries), each tap k's cosines cos(2 pi f (k - c)
+// / rate) on the grid, c the centre, as search.move adds them: the same
+// values it would compute, once. It holds at most maxCosTable values;
+// taps beyond that are computed at each move.
+type cosTable struct {
+	n    int       // taps
+	grid []float64 // the grid the rows are for (nil: none yet)
+	rows [][]float64
+	used int // values held
+}
+
+// shareCosines gives MinCoefBits' width searches a cosTable; tests turn
+// it off to compare.
+var shareCosines = true
+
+// maxCosTable bounds a cosTable: 8 MiB.
+const maxCosTable = 1 << 20
+
+// fits reports whether the table holds ls's grid, taking it when it holds
+// none yet.
+func (t *cosTable) fits(ls *search) bool {
+	if t.grid == nil {
+		t.n, t.grid, t.rows = ls.n, ls.freqs, make([][]float64, (ls.n+1)/2)
+		return true
+	}
+	return t.n == ls.n && slices.Equal(t.grid, ls.freqs)
+}
+
+// row is tap k's cosines on the grid, or nil when the table is full.
+func (t *cosTable) row(ls *search, k int) []float64 {
+	if r := t.rows[k]; r != nil {
+		return r
+	}
+	if t.used+len(ls.freqs) > maxCosTable {
+		return nil
+	}
+	r := make([]float64, len(ls.freqs))
+	ls.cosines(r, k)
+	t.rows[k] = r
+	t.used += len(r)
+	return r
 }
 
 // stopped says whether s's context is done.
@@ -360,6 +407,9 @@ func MinCoefBits(taps []float64, rate float64, bands []remez.Band, s QuantSettin
 	taps, err := symmetrized(taps)
 	if err != nil {
 		return Coefficients{}, nil, err
+	}
+	if shareCosines {
+		s.cos = &cosTable{} // every width's search has the same grid
 	}
 	if s.from > 0 {
 		type tried struct {
@@ -522,6 +572,7 @@ type search struct {
 	// that undoing a trial move adds back the very terms it added.
 	cosK int
 	cosv []float64
+	cos  *cosTable // shared rows of cosines (QuantSettings.cos), or nil
 	// worst is a grid point of the current score's largest error: a trial
 	// move is judged there first.
 	worst  int
@@ -561,6 +612,9 @@ func newSearch(taps []float64, rate float64, bands []remez.Band, c Coefficients,
 	}
 	ls.cosK = -1
 	ls.cosv = make([]float64, len(ls.freqs))
+	if s.cos != nil && s.cos.fits(ls) {
+		ls.cos = s.cos
+	}
 	type cand struct {
 		k   int
 		err float64
@@ -651,21 +705,34 @@ func (ls *search) scoreBelow(lim float64) (m float64, ok bool) {
 // move adds d codes to tap k (and its mirror) and updates the grid amplitude.
 func (ls *search) move(k int, d int64) {
 	n := ls.n
-	c := float64(n-1) / 2
 	step := float64(d) * math.Ldexp(1, -ls.c.Frac)
 	ls.c.Ints[k] += d
 	if k != n-1-k {
 		ls.c.Ints[n-1-k] += d
 		step *= 2
 	}
-	if ls.cosK != k {
-		for j, f := range ls.freqs {
-			ls.cosv[j] = math.Cos(2 * math.Pi * f / ls.rate * (float64(k) - c))
-		}
-		ls.cosK = k
+	var cv []float64
+	if ls.cos != nil {
+		cv = ls.cos.row(ls, k)
 	}
-	for j, cv := range ls.cosv {
-		ls.a[j] += step * cv
+	if cv == nil {
+		if ls.cosK != k {
+			ls.cosines(ls.cosv, k)
+			ls.cosK = k
+		}
+		cv = ls.cosv
+	}
+	for j, v := range cv {
+		ls.a[j] += step * v
+	}
+}
+
+// cosines writes tap k's cosines on the grid to dst: the amplitude gained
+// by a unit on tap k (and its mirror, the same cosines).
+func (ls *search) cosines(dst []float64, k int) {
+	c := float64(ls.n-1) / 2
+	for j, f := range ls.freqs {
+		dst[j] = math.Cos(2 * math.Pi * f / ls.rate * (float64(k) - c))
 	}
 }
 
