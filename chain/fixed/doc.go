@@ -41,7 +41,10 @@
 // Before a bit is added, a local search (QuantSettings.Budget trial moves,
 // default 64) tries the other rounding of the taps with the largest rounding
 // error, one symmetric pair at a time, keeping moves that lower the worst
-// band's error relative to its limit. Coefficients.Adjusted (the report's
+// band's error relative to its limit (each tap's cosines on the grid, which
+// a move adds, are kept for all the widths tried: at most 8 MiB for one
+// call and 64 MiB for all calls at once, beyond which they are computed
+// again, the same values). Coefficients.Adjusted (the report's
 // coefficients_adjusted) counts the taps moved off plain rounding, both
 // members of a symmetric pair.
 //

@@ -7,6 +7,7 @@ import (
 	"math"
 	"slices"
 	"sort"
+	"sync/atomic"
 
 	"github.com/stepdown-dsp/stepdown/chain/remez"
 )
@@ -324,21 +325,37 @@ type QuantSettings struct {
 // cosTable holds, for one grid (the same taps' length, rate and bands at
 // every width MinCoefBits tries), each tap k's cosines cos(2 pi f (k - c)
 // / rate) on the grid, c the centre, as search.move adds them: the same
-// values it would compute, once. It holds at most maxCosTable values;
-// taps beyond that are computed at each move.
+// values it would compute, once. It holds at most maxCosTable values, and
+// all the tables alive at once at most maxCosHeld (many chains' word
+// lengths are planned at once); taps beyond that are computed at each
+// move, which gives the same values, so what is held changes only the
+// time.
 type cosTable struct {
 	n    int       // taps
 	grid []float64 // the grid the rows are for (nil: none yet)
 	rows [][]float64
-	used int // values held
+	used int  // values held
+	done bool // released: holds no more
 }
 
 // shareCosines gives MinCoefBits' width searches a cosTable; tests turn
 // it off to compare.
 var shareCosines = true
 
-// maxCosTable bounds a cosTable: 8 MiB.
-const maxCosTable = 1 << 20
+// maxCosTable bounds a cosTable (8 MiB) and maxCosHeld all of them (64 MiB);
+// cosHeld counts the values held.
+const (
+	maxCosTable = 1 << 20
+	maxCosHeld  = 1 << 23
+)
+
+var cosHeld atomic.Int64
+
+// release gives back the values t holds to maxCosHeld (the table is done).
+func (t *cosTable) release() {
+	cosHeld.Add(-int64(t.used))
+	t.used, t.done = 0, true
+}
 
 // fits reports whether the table holds ls's grid, taking it when it holds
 // none yet.
@@ -355,7 +372,11 @@ func (t *cosTable) row(ls *search, k int) []float64 {
 	if r := t.rows[k]; r != nil {
 		return r
 	}
-	if t.used+len(ls.freqs) > maxCosTable {
+	if t.done || t.used+len(ls.freqs) > maxCosTable {
+		return nil
+	}
+	if cosHeld.Add(int64(len(ls.freqs))) > maxCosHeld {
+		cosHeld.Add(-int64(len(ls.freqs)))
 		return nil
 	}
 	r := make([]float64, len(ls.freqs))
@@ -410,6 +431,7 @@ func MinCoefBits(taps []float64, rate float64, bands []remez.Band, s QuantSettin
 	}
 	if shareCosines {
 		s.cos = &cosTable{} // every width's search has the same grid
+		defer s.cos.release()
 	}
 	if s.from > 0 {
 		type tried struct {

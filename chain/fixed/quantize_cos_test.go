@@ -41,6 +41,9 @@ func TestMinCoefBitsCosTable(t *testing.T) {
 			t.Fatalf("case %d (%d taps): with the table %+v, without %+v", c, n, got[0], got[1])
 		}
 	}
+	if n := cosHeld.Load(); n != 0 {
+		t.Errorf("%d grid cosines still counted as held after every MinCoefBits returned", n)
+	}
 	if moved < 20 {
 		t.Errorf("only %d of 60 cases moved a tap off its plain rounding", moved)
 	}
