@@ -163,6 +163,10 @@ type Candidate struct {
 	// evaluated: Figures.Analysis is measured (cost.Evaluate); survived:
 	// Quantised is measured and meets the spec (realDesigner.survive).
 	evaluated, survived bool
+	// accExcess is, for a chain dropped under ReasonWordLengths for an
+	// accumulator wider than fixed.MaxAccumulatorBits, the bits it needs
+	// beyond them (Result.AccumulatorExcess).
+	accExcess int
 	// blame marks, in a chain dropped for missing with rounded taps, the
 	// stages whose rounded taps miss their own bands, and hopeless those
 	// whose rounding error alone exceeds their stopband limit.
@@ -197,6 +201,15 @@ type Result struct {
 	// which one of the cheapest of them meets (Reason names it). Zero
 	// otherwise, or when none meets up to 32 bits.
 	NeededCoefBits int
+	// AccumulatorExcess is, over the chains dropped under
+	// ReasonWordLengths because a FIR, half-band, polyphase or Farrow
+	// accumulator would pass fixed.MaxAccumulatorBits (63), the fewest
+	// bits by which one passes it, with its taps as designed: narrowing
+	// the coefficient or data words by that many bits would bring that
+	// accumulator within the limit (each bit off either word takes one off
+	// the accumulator, its rounding aside). Zero when no chain was dropped
+	// so.
+	AccumulatorExcess int
 }
 
 // CloudSize is the most candidates Result.Feasible holds.

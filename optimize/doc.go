@@ -275,7 +275,11 @@
 // short, or an excess of the target's deviation), since a longer design
 // rounds no better; a stage whose own rounding error exceeds its stopband
 // limit is then given up in every chain. ReasonWordLengths counts chains
-// whose word lengths fixed.PlanChain could not plan.
+// whose word lengths fixed.PlanChain could not plan; where that was an
+// accumulator wider than fixed.MaxAccumulatorBits (fixed.AccumulatorError),
+// Result.AccumulatorExcess holds the fewest bits by which one was, so that
+// the caller can name the narrower coefficient or data word that would fit
+// it.
 //
 // The estimate tier drops, under ReasonRoundingFloor, candidates with a FIR
 // or half-band stage whose floor q sqrt(N/12) exceeds twice its stopband

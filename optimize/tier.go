@@ -106,8 +106,7 @@ func (t *designTier) record(plan []chain.StagePlan, o outcome) {
 		t.res.Designed++
 	}
 	if o.reason != "" {
-		t.res.Dropped[o.reason]++
-		t.fail(plan)
+		t.dropped(plan, o)
 	}
 }
 
@@ -202,6 +201,16 @@ func (t *designTier) hopeless(plan []chain.StagePlan, o outcome) {
 	}
 }
 
+// dropped counts a designed chain dropped for o.reason, and records it as
+// failed.
+func (t *designTier) dropped(plan []chain.StagePlan, o outcome) {
+	t.res.Dropped[o.reason]++
+	t.fail(plan)
+	if e := o.c.accExcess; e > 0 && (t.res.AccumulatorExcess == 0 || e < t.res.AccumulatorExcess) {
+		t.res.AccumulatorExcess = e
+	}
+}
+
 // fail records a chain that failed.
 func (t *designTier) fail(plan []chain.StagePlan) {
 	if k := planKey(plan); !t.gone[k] {
@@ -248,8 +257,7 @@ func (t *designTier) analyzeAll(plans [][]chain.StagePlan) bool {
 		t.hopeless(ins[i].Plan, outs[i])
 		t.memo[todo[i]] = outs[i]
 		if outs[i].reason != "" {
-			t.res.Dropped[outs[i].reason]++
-			t.fail(ins[i].Plan)
+			t.dropped(ins[i].Plan, outs[i])
 		}
 	}
 	return all

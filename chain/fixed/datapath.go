@@ -655,6 +655,26 @@ func planNonRecursive(st Stage, in, ob int) (StageWidths, error) {
 // rounded-tap checks sum in int64. Wider ones are refused.
 const MaxAccumulatorBits = 63
 
+// AccumulatorError is the error of a word-length plan that would need an
+// accumulator wider than MaxAccumulatorBits: NeedBits for DataBits-bit data
+// (a Farrow stage's mu products when MuProducts) and CoefBits-bit
+// coefficients.
+type AccumulatorError struct {
+	DataBits, CoefBits, NeedBits int
+	MuProducts                   bool
+}
+
+func (e *AccumulatorError) Error() string {
+	data := "data"
+	if e.MuProducts {
+		data = "mu products"
+	}
+	return fmt.Sprintf("accumulator of %d-bit %s and %d-bit coefficients needs %d bits; at most %d are supported", e.DataBits, data, e.CoefBits, e.NeedBits, MaxAccumulatorBits)
+}
+
+// Excess is how many bits the accumulator needs beyond MaxAccumulatorBits.
+func (e *AccumulatorError) Excess() int { return e.NeedBits - MaxAccumulatorBits }
+
 // AccumulatorBits returns the narrowest two's-complement width that holds
 // every sum of products of the integer taps h with inBits-bit data, the
 // worst case for any input: with P the sum of the positive taps and N the
@@ -747,7 +767,7 @@ func planFIR(st Stage, rate float64, in, ob, coefBits int, s Settings, minBits i
 		}
 	} else {
 		if sw.AccumulatorBits = AccumulatorBits(cf.Ints, in); sw.AccumulatorBits > MaxAccumulatorBits {
-			return StageWidths{}, fmt.Errorf("accumulator of %d-bit data and %d-bit coefficients needs %d bits; at most %d are supported", in, cf.Bits, sw.AccumulatorBits, MaxAccumulatorBits)
+			return StageWidths{}, &AccumulatorError{DataBits: in, CoefBits: cf.Bits, NeedBits: sw.AccumulatorBits}
 		}
 		// The accumulator holds Frac + in - 1 fractional bits; the output ob - 1.
 		sw.OutputShift = cf.Frac + in - ob

@@ -170,7 +170,7 @@ func planPolyphase(st Stage, rate float64, in, ob, coefBits int, s Settings, min
 		sw.PhaseGainMin, sw.PhaseGainMax = math.Min(sw.PhaseGainMin, gf), math.Max(sw.PhaseGainMax, gf)
 	}
 	if acc > MaxAccumulatorBits {
-		return StageWidths{}, fmt.Errorf("accumulator of %d-bit data and %d-bit coefficients needs %d bits; at most %d are supported", in, cf.Bits, acc, MaxAccumulatorBits)
+		return StageWidths{}, &AccumulatorError{DataBits: in, CoefBits: cf.Bits, NeedBits: acc}
 	}
 	sw.AccumulatorBits = acc
 	sw.OutputShift = cf.Frac + in - ob
@@ -391,7 +391,7 @@ func planFarrow(st Stage, rate float64, in, ob, coefBits int, s Settings, minBit
 		vmax[p] = max(pos, neg) << (in - 1)
 	}
 	if acc > MaxAccumulatorBits {
-		return StageWidths{}, fmt.Errorf("accumulator of %d-bit data and %d-bit coefficients needs %d bits; at most %d are supported", in, cf.Bits, acc, MaxAccumulatorBits)
+		return StageWidths{}, &AccumulatorError{DataBits: in, CoefBits: cf.Bits, NeedBits: acc}
 	}
 	sw.AccumulatorBits = acc
 	sw.OutputShift = cf.Frac + in - ob

@@ -151,7 +151,7 @@ func planFarrowT(sw StageWidths, st Stage, in, ob int) (StageWidths, error) {
 	sw.Gain = total / float64(m)
 	acc := bigWidth(lo, hi)
 	if acc > MaxAccumulatorBits {
-		return StageWidths{}, fmt.Errorf("accumulator of %d-bit mu products and %d-bit coefficients needs %d bits; at most %d are supported", in+g, cf.Bits, acc, MaxAccumulatorBits)
+		return StageWidths{}, &AccumulatorError{DataBits: in + g, CoefBits: cf.Bits, NeedBits: acc, MuProducts: true}
 	}
 	sw.AccumulatorBits = acc
 	sw.OutputShift = cf.Frac + g + in - ob

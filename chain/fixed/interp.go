@@ -110,7 +110,7 @@ func interpAccumulator(sw *StageWidths, st Stage, in, ob int) error {
 		acc = max(acc, AccumulatorBits(phaseTaps(cf.Ints, l, p), in))
 	}
 	if acc > MaxAccumulatorBits {
-		return fmt.Errorf("accumulator of %d-bit data and %d-bit coefficients needs %d bits; at most %d are supported", in, cf.Bits, acc, MaxAccumulatorBits)
+		return &AccumulatorError{DataBits: in, CoefBits: cf.Bits, NeedBits: acc}
 	}
 	sw.AccumulatorBits = acc
 	fl := log2Floor(l)

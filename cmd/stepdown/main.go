@@ -111,7 +111,7 @@ func oneLine(s string) string {
 }
 
 // maxMessage bounds an error line, in characters.
-const maxMessage = 600
+const maxMessage = 800
 
 // clip cuts a value the user gave to units.MaxEcho characters for an error
 // message.

@@ -19,6 +19,7 @@ import (
 	"golang.org/x/term"
 
 	"github.com/stepdown-dsp/stepdown/chain"
+	"github.com/stepdown-dsp/stepdown/chain/fixed"
 	"github.com/stepdown-dsp/stepdown/chain/specfile"
 	"github.com/stepdown-dsp/stepdown/chain/units"
 	"github.com/stepdown-dsp/stepdown/optimize"
@@ -196,7 +197,7 @@ func runPlan(c *cli.Context) error {
 		return fmt.Errorf("--timeout %v: stopped %s; %s left as it was (allow more time)", c.Duration("timeout"), what, clip(j.out.Dir()))
 	}
 	if len(res.Front) == 0 {
-		return emptyFront(res, clip(j.out.Dir()))
+		return emptyFront(res, j.spec.Chain, clip(j.out.Dir()))
 	}
 	if !res.Partial {
 		// A ratio with a large prime factor: nearby ratios and the
@@ -226,6 +227,35 @@ func planError(c *cli.Context, err error) error {
 	return fmt.Errorf("plan: %s", msg)
 }
 
+// accumulatorHint is emptyFront's advice on the words, given the fewest
+// bits by which a designed chain's accumulator passed the limit (excess,
+// optimize.Result.AccumulatorExcess; 0 when none did): each bit off the
+// coefficient word or the data word (words.output between stages,
+// words.input into a first stage that is not a CIC) takes one off the
+// accumulator, its rounding aside.
+func accumulatorHint(excess int, spec chain.Spec) string {
+	const widths = "(check --chain on one names the widths)"
+	out := spec.OutputBits
+	if out == 0 {
+		out = chain.DefaultOutputBits
+	}
+	var ways []string
+	if c := spec.CoefBits; excess > 0 && c > 0 && c-excess >= specfile.MinWordBits {
+		ways = append(ways, fmt.Sprintf("words.coefficients = %d", c-excess))
+	}
+	if excess > 0 && out-excess >= specfile.MinWordBits {
+		ways = append(ways, fmt.Sprintf("words.output = %d (words.input too if no CIC comes first)", out-excess))
+	}
+	if len(ways) == 0 {
+		return "narrow words.coefficients, words.input or words.output " + widths
+	}
+	bits := "bits"
+	if excess == 1 {
+		bits = "bit"
+	}
+	return fmt.Sprintf("the closest needs %d %s less: %s would fit it, with its taps as designed %s", excess, bits, strings.Join(ways, " or "), widths)
+}
+
 // reMaxStagesFlag is the flag InFileTerms names beside search.max_stages.
 var reMaxStagesFlag = regexp.MustCompile(` \(or --max-stages(?: \d+)?\)| or --max-stages`)
 
@@ -253,13 +283,14 @@ func searchTooLarge(msg string) bool {
 // emptyFront is the error of a search that left the front empty: the
 // optimiser's reason (which names the design budget when that was the cause)
 // and the counts of dropped candidates.
-func emptyFront(res *optimize.Result, dir string) error {
+func emptyFront(res *optimize.Result, spec chain.Spec, dir string) error {
 	msg := "no chain meets the spec"
 	reason := res.Reason
 	if n := res.Dropped[optimize.ReasonWordLengths]; n > 0 {
 		// Named first: a budget or a target would otherwise take the
 		// blame for words the data path cannot hold.
-		msg += fmt.Sprintf(": the word lengths of %d designed chains could not be planned (a FIR or half-band accumulator beyond 63 bits or a CIC register beyond %d): narrow words.coefficients, words.input or words.output (check --chain on one names the widths)", n, chain.MaxCICBits)
+		msg += fmt.Sprintf(": the word lengths of %d designed chains could not be planned (an accumulator over %d bits or a CIC register over %d): ", n, fixed.MaxAccumulatorBits, chain.MaxCICBits)
+		msg += accumulatorHint(res.AccumulatorExcess, spec)
 		if strings.HasPrefix(reason, "No chain was designed within the design budget") {
 			// Said short, to keep the line readable.
 			reason = ""
