@@ -513,7 +513,10 @@ const toneAnchor = 64
 
 // tone adds a cos(w n + phase) to x[i] for n = n0 + i. Each value depends
 // only on n (it is rotated from the anchor at or below n), so a signal made
-// in blocks equals one made whole, bit for bit.
+// in blocks equals one made whole, bit for bit. Every product is rounded
+// on its own (the float64 conversions forbid the compiler to fuse it into
+// a multiply-add, which targets with fused instructions would do in some
+// loops and not others), so that holds on every target.
 func tone(x []float64, n0 int, w, a, phase float64) {
 	sw, cw := math.Sincos(w)
 	for i := 0; i < len(x); {
@@ -531,14 +534,14 @@ func tone(x []float64, n0 int, w, a, phase float64) {
 			x2 := x[i+2*toneAnchor : i+3*toneAnchor]
 			x3 := x[i+3*toneAnchor : i+4*toneAnchor]
 			for k := range x0 {
-				x0[k] += a * c0
-				c0, s0 = c0*cw-s0*sw, s0*cw+c0*sw
-				x1[k] += a * c1
-				c1, s1 = c1*cw-s1*sw, s1*cw+c1*sw
-				x2[k] += a * c2
-				c2, s2 = c2*cw-s2*sw, s2*cw+c2*sw
-				x3[k] += a * c3
-				c3, s3 = c3*cw-s3*sw, s3*cw+c3*sw
+				x0[k] += float64(a * c0)
+				c0, s0 = float64(c0*cw)-float64(s0*sw), float64(s0*cw)+float64(c0*sw)
+				x1[k] += float64(a * c1)
+				c1, s1 = float64(c1*cw)-float64(s1*sw), float64(s1*cw)+float64(c1*sw)
+				x2[k] += float64(a * c2)
+				c2, s2 = float64(c2*cw)-float64(s2*sw), float64(s2*cw)+float64(c2*sw)
+				x3[k] += float64(a * c3)
+				c3, s3 = float64(c3*cw)-float64(s3*sw), float64(s3*cw)+float64(c3*sw)
 			}
 			i += 4 * toneAnchor
 			continue
@@ -546,12 +549,12 @@ func tone(x []float64, n0 int, w, a, phase float64) {
 		anchor := n - n%toneAnchor
 		s, c := math.Sincos(w*float64(anchor) + phase)
 		for k := anchor; k < n; k++ {
-			c, s = c*cw-s*sw, s*cw+c*sw
+			c, s = float64(c*cw)-float64(s*sw), float64(s*cw)+float64(c*sw)
 		}
 		end := min(len(x), i+toneAnchor-(n-anchor))
 		for ; i < end; i++ {
-			x[i] += a * c
-			c, s = c*cw-s*sw, s*cw+c*sw
+			x[i] += float64(a * c)
+			c, s = float64(c*cw)-float64(s*sw), float64(s*cw)+float64(c*sw)
 		}
 	}
 }
@@ -1145,7 +1148,8 @@ func (s *firIntState) run(x, out []int64) []int64 {
 }
 
 // firFloatState is firIntState's float chain: y[m] = sum_k h[k] x[mR-k]
-// over k <= mR, in float64.
+// over k <= mR, in float64, summed in order of k, each product rounded on
+// its own (as tone's, not fused into a multiply-add).
 type firFloatState struct {
 	h   []float64
 	r   int
@@ -1175,10 +1179,10 @@ func (s *firFloatState) run(x, out []float64) []float64 {
 			var a0, a1, a2, a3 float64
 			for k, hk := range h {
 				i := l - k
-				a0 += hk * b0[i]
-				a1 += hk * b1[i]
-				a2 += hk * b2[i]
-				a3 += hk * b3[i]
+				a0 += float64(hk * b0[i])
+				a1 += float64(hk * b1[i])
+				a2 += float64(hk * b2[i])
+				a3 += float64(hk * b3[i])
 			}
 			out = append(out, a0, a1, a2, a3)
 			g += 4 * s.r
@@ -1191,7 +1195,7 @@ func (s *firFloatState) run(x, out []float64) []float64 {
 		b := s.buf[j+1-len(h) : j+1]
 		var acc float64
 		for k, hk := range h {
-			acc += hk * b[len(b)-1-k]
+			acc += float64(hk * b[len(b)-1-k])
 		}
 		out = append(out, acc)
 		g += s.r

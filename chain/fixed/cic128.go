@@ -193,8 +193,9 @@ func (s *cicState128) runStretch(x, out []int64) []int64 {
 }
 
 // cicStretch is how many input samples the block form of the integer CICs
-// runs one integrator over before the next: their outputs then stay in
-// the core's first-level cache (32 KiB of int128).
+// runs one integrator over before the next: their outputs then stay near
+// the core (16 KiB of int64 words; 32 KiB of int128 and 16 KiB of int64
+// in the 128-bit form).
 const cicStretch = 2048
 
 // integrate128 runs an integrator from acc over v in place: v[i] becomes
@@ -262,8 +263,9 @@ func lowWords(dst []int64, v []int128, d int) {
 	}
 }
 
-// integrate64 is integrate128 modulo 2^64 (int64 shifts by 64 or more
-// give the sign, as int128.shr's low word does).
+// integrate64 is integrate128 modulo 2^64 (int64 shifts by 64 or more,
+// which the 128-bit form's narrow integrators may be given, yield the
+// sign, as int128.shr's low word does).
 func integrate64(acc int64, v []int64, d int) int64 {
 	sr := uint(d)
 	for i := range v {

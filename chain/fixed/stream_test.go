@@ -153,12 +153,12 @@ func toneSerial(x []float64, n0 int, w, a, phase float64) {
 		anchor := n - n%toneAnchor
 		s, c := math.Sincos(w*float64(anchor) + phase)
 		for k := anchor; k < n; k++ {
-			c, s = c*cw-s*sw, s*cw+c*sw
+			c, s = float64(c*cw)-float64(s*sw), float64(s*cw)+float64(c*sw)
 		}
 		end := min(len(x), i+toneAnchor-(n-anchor))
 		for ; i < end; i++ {
-			x[i] += a * c
-			c, s = c*cw-s*sw, s*cw+c*sw
+			x[i] += float64(a * c)
+			c, s = float64(c*cw)-float64(s*sw), float64(s*cw)+float64(c*sw)
 		}
 	}
 }
