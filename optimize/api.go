@@ -163,10 +163,10 @@ type Candidate struct {
 	// evaluated: Figures.Analysis is measured (cost.Evaluate); survived:
 	// Quantised is measured and meets the spec (realDesigner.survive).
 	evaluated, survived bool
-	// accExcess is, for a chain dropped under ReasonWordLengths for an
-	// accumulator wider than fixed.MaxAccumulatorBits, the bits it needs
-	// beyond them (Result.AccumulatorExcess).
-	accExcess int
+	// acc is, for a chain dropped under ReasonWordLengths for an
+	// accumulator wider than fixed.MaxAccumulatorBits, the plan's error
+	// (Result.AccumulatorExcess); nil otherwise.
+	acc *fixed.AccumulatorError
 	// blame marks, in a chain dropped for missing with rounded taps, the
 	// stages whose rounded taps miss their own bands, and hopeless those
 	// whose rounding error alone exceeds their stopband limit.
@@ -201,15 +201,44 @@ type Result struct {
 	// which one of the cheapest of them meets (Reason names it). Zero
 	// otherwise, or when none meets up to 32 bits.
 	NeededCoefBits int
-	// AccumulatorExcess is, over the chains dropped under
-	// ReasonWordLengths because a FIR, half-band, polyphase or Farrow
-	// accumulator would pass fixed.MaxAccumulatorBits (63), the fewest
-	// bits by which one passes it, with its taps as designed: narrowing
-	// the coefficient or data words by that many bits would bring that
-	// accumulator within the limit (each bit off either word takes one off
-	// the accumulator, its rounding aside). Zero when no chain was dropped
-	// so.
-	AccumulatorExcess int
+	// AccumulatorExcess is, for the chains dropped under
+	// ReasonWordLengths because a FIR or half-band accumulator would pass
+	// fixed.MaxAccumulatorBits (63), how many bits the closest must lose
+	// from which word.
+	AccumulatorExcess AccumulatorExcess
+}
+
+// AccumulatorExcess says, over the chains dropped because an accumulator
+// would pass fixed.MaxAccumulatorBits, how many bits the closest must lose
+// (zero: no chain was dropped so, or none would fit that way), as planned
+// with its taps as designed. Each bit off the coefficient word takes one
+// off every FIR and half-band accumulator, each bit off a stage's data word
+// one off its own: Coefficients is the fewest coefficient bits that must
+// go for a chain to fit; Input the fewest input-word bits
+// (chain.Spec.InputBits), for a chain whose first stage alone passes;
+// Data the fewest bits of the word between stages (chain.Spec.OutputBits
+// wide), for a chain whose later stages alone pass.
+type AccumulatorExcess struct {
+	Coefficients, Input, Data int
+}
+
+// Least is Coefficients: the fewest bits, and it helps every chain.
+func (a AccumulatorExcess) Least() int { return a.Coefficients }
+
+// add counts the accumulator error of a dropped chain.
+func (a *AccumulatorExcess) add(e *fixed.AccumulatorError) {
+	least := func(k *int, x int) {
+		if x > 0 && (*k == 0 || x < *k) {
+			*k = x
+		}
+	}
+	least(&a.Coefficients, e.Excess())
+	if e.LaterExcess == 0 {
+		least(&a.Input, e.FirstExcess)
+	}
+	if e.FirstExcess == 0 {
+		least(&a.Data, e.LaterExcess)
+	}
 }
 
 // CloudSize is the most candidates Result.Feasible holds.

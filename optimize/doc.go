@@ -276,10 +276,11 @@
 // rounds no better; a stage whose own rounding error exceeds its stopband
 // limit is then given up in every chain. ReasonWordLengths counts chains
 // whose word lengths fixed.PlanChain could not plan; where that was an
-// accumulator wider than fixed.MaxAccumulatorBits (fixed.AccumulatorError),
-// Result.AccumulatorExcess holds the fewest bits by which one was, so that
-// the caller can name the narrower coefficient or data word that would fit
-// it.
+// accumulator wider than fixed.MaxAccumulatorBits (fixed.AccumulatorError,
+// whose plan goes on through the chain's other stages),
+// Result.AccumulatorExcess holds how many bits the closest chain must lose
+// from the coefficient word, the input word or the word between stages,
+// so that the caller can name the narrower words to try.
 //
 // The estimate tier drops, under ReasonRoundingFloor, candidates with a FIR
 // or half-band stage whose floor q sqrt(N/12) exceeds twice its stopband

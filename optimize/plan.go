@@ -354,7 +354,7 @@ func (r realDesigner) measure(c Candidate) (Candidate, Reason) {
 			// adders report.json states, not on taps at a stand-in width.
 			ws, _, err := fixed.PlanChainContext(r.ctx, r.spec, c.Chain, r.s.Fixed)
 			if err != nil {
-				return Candidate{accExcess: accumulatorExcess(err)}, ReasonWordLengths
+				return Candidate{acc: accumulatorError(err)}, ReasonWordLengths
 			}
 			if err := c.Figures.CountInts(cx(c.Chain), planInts(ws)); err != nil {
 				return Candidate{}, ReasonWordLengths
@@ -484,7 +484,7 @@ func (r realDesigner) startWordLengths(spec chain.Spec, ch *chain.Chain) func() 
 func (r realDesigner) surviveWith(c Candidate, spec chain.Spec, wl func() (*fixed.Widths, chain.Analysis, error)) (Candidate, Reason) {
 	ws, qa, err := wl()
 	if err != nil {
-		c.accExcess = accumulatorExcess(err)
+		c.acc = accumulatorError(err)
 		return c, ReasonWordLengths
 	}
 	// The stages whose rounded taps miss their own bands are blamed should
@@ -585,14 +585,14 @@ func (r realDesigner) surviveWith(c Candidate, spec chain.Spec, wl func() (*fixe
 	return c, ReasonMissQuantised
 }
 
-// accumulatorExcess is the bits beyond fixed.MaxAccumulatorBits that a
-// word-length plan's error says an accumulator needs, or 0.
-func accumulatorExcess(err error) int {
+// accumulatorError is the fixed.AccumulatorError a word-length plan's error
+// wraps, or nil.
+func accumulatorError(err error) *fixed.AccumulatorError {
 	var ae *fixed.AccumulatorError
 	if errors.As(err, &ae) {
-		return ae.Excess()
+		return ae
 	}
-	return 0
+	return nil
 }
 
 // planInts are a word-length plan's rounded coefficients, stage by stage

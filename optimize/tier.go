@@ -206,8 +206,8 @@ func (t *designTier) hopeless(plan []chain.StagePlan, o outcome) {
 func (t *designTier) dropped(plan []chain.StagePlan, o outcome) {
 	t.res.Dropped[o.reason]++
 	t.fail(plan)
-	if e := o.c.accExcess; e > 0 && (t.res.AccumulatorExcess == 0 || e < t.res.AccumulatorExcess) {
-		t.res.AccumulatorExcess = e
+	if o.c.acc != nil {
+		t.res.AccumulatorExcess.add(o.c.acc)
 	}
 }
 

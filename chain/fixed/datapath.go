@@ -1,8 +1,10 @@
 package fixed
 
 import (
+	"errors"
 	"fmt"
 	"math"
+	"math/big"
 	"math/bits"
 
 	"github.com/stepdown-dsp/stepdown/chain"
@@ -417,6 +419,7 @@ func plan(c Cascade, w Words, s Settings, minBits []int) (*Widths, error) {
 	sws := make([]StageWidths, n)
 	ins := make([]int, n)
 	in := w.InputBits
+	var accs accumulators
 	for i, st := range c.Stages {
 		ob := w.DataBits
 		if i == n-1 {
@@ -441,10 +444,18 @@ func plan(c Cascade, w Words, s Settings, minBits []int) (*Widths, error) {
 		default:
 			sws[i], err = planFIR(st, high(i), in, ob, w.CoefBits, s, minBitsOf(minBits, i))
 		}
-		if err != nil {
+		if err != nil && !(!st.fractional() && !st.CIC && accs.add(err, i)) {
 			return nil, fmt.Errorf("fixed: stage %d: %w", i+1, err)
 		}
+		// A FIR stage whose accumulator is too wide has its output word
+		// and gain all the same: the plan goes on, to say what the other
+		// stages need.
 		in = sws[i].OutputBits
+	}
+	if target < 0 {
+		if err := accs.err(); err != nil {
+			return nil, err
+		}
 	}
 	out := &Widths{InputBits: w.InputBits, OutputBits: w.OutputBits, DCGain: 1, GainCorrection: 1, CorrectedStage: -1}
 	if target >= 0 {
@@ -461,8 +472,11 @@ func plan(c Cascade, w Words, s Settings, minBits []int) (*Widths, error) {
 		}
 		var err error
 		sws[target], err = planFIR(scaledStage(st, k), high(target), ins[target], sws[target].OutputBits, w.CoefBits, s, minBitsOf(minBits, target))
-		if err != nil {
+		if err != nil && !accs.add(err, target) {
 			return nil, fmt.Errorf("fixed: stage %d: %w", target+1, err)
+		}
+		if err := accs.err(); err != nil {
+			return nil, err
 		}
 		sws[target].GainCorrection = k
 		sws[target].Points = append(sws[target].Points, fmt.Sprintf("gain correction: taps scaled by %.9g before quantisation (UnityGain)", k))
@@ -656,12 +670,18 @@ func planNonRecursive(st Stage, in, ob int) (StageWidths, error) {
 const MaxAccumulatorBits = 63
 
 // AccumulatorError is the error of a word-length plan that would need an
-// accumulator wider than MaxAccumulatorBits: NeedBits for DataBits-bit data
-// (a Farrow stage's mu products when MuProducts) and CoefBits-bit
-// coefficients.
+// accumulator wider than MaxAccumulatorBits: NeedBits (exact, AccumulatorBits)
+// for DataBits-bit data (a Farrow stage's mu products when MuProducts) and
+// CoefBits-bit coefficients, at the first stage that does. A cascade's plan
+// goes on through its other FIR and half-band stages and gives the most
+// bits each kind passes by: FirstExcess for its first stage, whose data
+// word is the chain's input word (Words.InputBits), LaterExcess for the
+// stages after it, which take the word between stages (zero where they
+// fit).
 type AccumulatorError struct {
 	DataBits, CoefBits, NeedBits int
 	MuProducts                   bool
+	FirstExcess, LaterExcess     int
 }
 
 func (e *AccumulatorError) Error() string {
@@ -672,8 +692,59 @@ func (e *AccumulatorError) Error() string {
 	return fmt.Sprintf("accumulator of %d-bit %s and %d-bit coefficients needs %d bits; at most %d are supported", e.DataBits, data, e.CoefBits, e.NeedBits, MaxAccumulatorBits)
 }
 
-// Excess is how many bits the accumulator needs beyond MaxAccumulatorBits.
-func (e *AccumulatorError) Excess() int { return e.NeedBits - MaxAccumulatorBits }
+// Excess is how many bits the plan's accumulators need beyond
+// MaxAccumulatorBits: the most over the stages planned. Each bit off the
+// coefficient word takes one off every accumulator, and each bit off a
+// stage's data word one off its own.
+func (e *AccumulatorError) Excess() int {
+	return max(e.FirstExcess, e.LaterExcess, e.NeedBits-MaxAccumulatorBits)
+}
+
+// accumulatorError is the AccumulatorError err wraps, or nil.
+func accumulatorError(err error) *AccumulatorError {
+	var ae *AccumulatorError
+	if errors.As(err, &ae) {
+		return ae
+	}
+	return nil
+}
+
+// accumulators gathers the AccumulatorErrors of a cascade's FIR and
+// half-band stages (planChain): the first, with the most each kind of
+// stage passes by.
+type accumulators struct {
+	first *AccumulatorError
+	stage int // the first's, from 1
+}
+
+// add records stage i's error; it reports whether err was one.
+func (a *accumulators) add(err error, i int) bool {
+	ae := accumulatorError(err)
+	if ae == nil {
+		return false
+	}
+	if a.first == nil || i+1 < a.stage {
+		c := *ae
+		if a.first != nil {
+			c.FirstExcess, c.LaterExcess = a.first.FirstExcess, a.first.LaterExcess
+		}
+		a.first, a.stage = &c, i+1
+	}
+	if x := ae.NeedBits - MaxAccumulatorBits; i == 0 {
+		a.first.FirstExcess = max(a.first.FirstExcess, x)
+	} else {
+		a.first.LaterExcess = max(a.first.LaterExcess, x)
+	}
+	return true
+}
+
+// err is the gathered error (nil when no stage passed).
+func (a *accumulators) err() error {
+	if a.first == nil {
+		return nil
+	}
+	return fmt.Errorf("fixed: stage %d: %w", a.stage, a.first)
+}
 
 // AccumulatorBits returns the narrowest two's-complement width that holds
 // every sum of products of the integer taps h with inBits-bit data, the
@@ -684,21 +755,29 @@ func (e *AccumulatorError) Excess() int { return e.NeedBits - MaxAccumulatorBits
 // opposite sign (the smallest, using the most negative code). That is at
 // most Bin + floor(log2 sum|h|) + 1 bits, the width of the symmetric bound
 // 2^(Bin-1) sum|h|, and one bit less when the extremes allow it (e.g. when
-// sum|h| is a power of two). It returns 64 when a sum would not fit an int64.
+// sum|h| is a power of two). It is exact for any width, past 64 bits too
+// (the width a plan refuses then says by how much it is over), for inBits
+// >= 1.
 func AccumulatorBits(h []int64, inBits int) int {
 	var p, n uint64
+	wide := false // P or N passes 2^63: summed in math/big
 	for _, v := range h {
+		var c uint64
 		if v > 0 {
-			p += uint64(v)
+			p, c = bits.Add64(p, uint64(v), 0)
 		} else {
-			n += uint64(-v)
+			n, c = bits.Add64(n, uint64(-v), 0)
 		}
+		wide = wide || c != 0
+	}
+	if inBits < 1 || inBits > 62 || wide || p > 1<<62 || n > 1<<62 {
+		return accumulatorBitsBig(h, inBits)
 	}
 	a := uint64(1) << (inBits - 1)
 	hp, lp := bits.Mul64(p, a)
 	hn, ln := bits.Mul64(n, a)
-	if hp != 0 || hn != 0 || lp > 1<<62 || ln > 1<<62 || inBits < 1 || inBits > 62 {
-		return 64
+	if hp != 0 || hn != 0 || lp > 1<<62 || ln > 1<<62 {
+		return accumulatorBitsBig(h, inBits)
 	}
 	lo := lp + ln - n // -(smallest sum)
 	hi := lp - p + ln // largest sum
@@ -707,6 +786,27 @@ func AccumulatorBits(h []int64, inBits int) int {
 		neg = bits.Len64(lo - 1)
 	}
 	return 1 + max(neg, bits.Len64(hi))
+}
+
+// accumulatorBitsBig is AccumulatorBits in math/big, for the sums that do
+// not fit an int64: the same extremes, -(P 2^(Bin-1) + N (2^(Bin-1) - 1))
+// and P (2^(Bin-1) - 1) + N 2^(Bin-1).
+func accumulatorBitsBig(h []int64, inBits int) int {
+	p, n := new(big.Int), new(big.Int)
+	for _, v := range h {
+		if v > 0 {
+			p.Add(p, big.NewInt(v))
+		} else {
+			n.Sub(n, big.NewInt(v))
+		}
+	}
+	a := new(big.Int).Lsh(big.NewInt(1), uint(max(inBits, 1)-1))
+	a1 := new(big.Int).Sub(a, big.NewInt(1))
+	lo := new(big.Int).Mul(p, a)
+	lo.Add(lo, new(big.Int).Mul(n, a1))
+	hi := new(big.Int).Mul(p, a1)
+	hi.Add(hi, new(big.Int).Mul(n, a))
+	return bigWidth(lo.Neg(lo), hi)
 }
 
 // planFIR plans one FIR or half-band stage; minBits (0: none) is the
@@ -763,19 +863,21 @@ func planFIR(st Stage, rate float64, in, ob, coefBits int, s Settings, minBits i
 	cf := sw.Coefficients
 	if st.Interpolate {
 		if err := interpAccumulator(&sw, st, in, ob); err != nil {
-			return StageWidths{}, err
+			// Its output word and gain stand (see planChain).
+			return StageWidths{OutputBits: ob, Gain: sw.Gain}, err
 		}
 	} else {
-		if sw.AccumulatorBits = AccumulatorBits(cf.Ints, in); sw.AccumulatorBits > MaxAccumulatorBits {
-			return StageWidths{}, &AccumulatorError{DataBits: in, CoefBits: cf.Bits, NeedBits: sw.AccumulatorBits}
-		}
-		// The accumulator holds Frac + in - 1 fractional bits; the output ob - 1.
-		sw.OutputShift = cf.Frac + in - ob
 		var dc int64
 		for _, v := range cf.Ints {
 			dc += v
 		}
 		sw.Gain = float64(dc) * math.Ldexp(1, -cf.Frac)
+		if sw.AccumulatorBits = AccumulatorBits(cf.Ints, in); sw.AccumulatorBits > MaxAccumulatorBits {
+			// Its output word and gain stand (see planChain).
+			return StageWidths{OutputBits: ob, Gain: sw.Gain}, &AccumulatorError{DataBits: in, CoefBits: cf.Bits, NeedBits: sw.AccumulatorBits}
+		}
+		// The accumulator holds Frac + in - 1 fractional bits; the output ob - 1.
+		sw.OutputShift = cf.Frac + in - ob
 		sw.Points = []string{
 			fmt.Sprintf("products and sum: exact (%d x %d bits into %d-bit accumulator)", in, cf.Bits, sw.AccumulatorBits),
 		}

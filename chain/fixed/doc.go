@@ -92,7 +92,11 @@
 //     of each tap's sign and of the opposite sign (worst case); that is at
 //     most Bin + floor(log2 sum|h_int|) + 1 bits, the symmetric bound
 //     2^(Bin-1) sum|h_int|, and one bit less when the extremes allow. The
-//     output is rounded half up at OutputShift and saturated;
+//     output is rounded half up at OutputShift and saturated. An
+//     accumulator over MaxAccumulatorBits (63) is refused with an
+//     AccumulatorError; the plan still goes through the other FIR and
+//     half-band stages, and the error says by how many bits the first stage
+//     (fed by the input word) and the later ones are over;
 //   - gain: each stage's DC gain from input full scale to output full scale
 //     (StageWidths.Gain, dc_gain_db) is a CIC's (RM)^N / 2^(FullBits - Bin)
 //     or an FIR's sum of quantised taps; the chain's (Widths.DCGain) is their

@@ -3,6 +3,7 @@ package fixed
 import (
 	"encoding/json"
 	"math"
+	"math/big"
 	"math/bits"
 	"math/rand/v2"
 	"os"
@@ -436,6 +437,53 @@ func TestParseMultiplier(t *testing.T) {
 		a, b, err := ParseMultiplier(tc.in)
 		if (err == nil) != tc.ok || a != tc.a || b != tc.b {
 			t.Errorf("ParseMultiplier(%q) = %d, %d, %v", tc.in, a, b, err)
+		}
+	}
+}
+
+// AccumulatorBits past 64 bits is the width of the extreme sums taken tap
+// by tap in math/big (each tap's product with the full-scale input of its
+// sign for the largest sum, of the other sign for the smallest): 2000
+// seeded random tap sets of up to 40-bit taps and 1- to 64-bit inputs,
+// most of them wider than an int64; and where the sums fit an int64, the
+// math/big route equals the int64 one.
+func TestAccumulatorBitsWide(t *testing.T) {
+	rng := rand.New(rand.NewPCG(41, 8))
+	for c := range 2000 {
+		h := make([]int64, 1+rng.IntN(300))
+		tb := 2 + rng.IntN(39)
+		for k := range h {
+			h[k] = rng.Int64N(1<<tb) - 1<<(tb-1)
+		}
+		in := 1 + rng.IntN(64)
+		top := new(big.Int).Lsh(big.NewInt(1), uint(in-1)) // 2^(in-1)
+		maxIn := new(big.Int).Sub(top, big.NewInt(1))
+		minIn := new(big.Int).Neg(top)
+		lo, hi := new(big.Int), new(big.Int)
+		for _, v := range h {
+			a := new(big.Int).Mul(big.NewInt(v), maxIn)
+			b := new(big.Int).Mul(big.NewInt(v), minIn)
+			if a.Cmp(b) > 0 {
+				a, b = b, a
+			}
+			lo.Add(lo, a)
+			hi.Add(hi, b)
+		}
+		want := 1
+		for {
+			m := new(big.Int).Lsh(big.NewInt(1), uint(want-1))
+			if lo.Cmp(new(big.Int).Neg(m)) >= 0 && hi.Cmp(new(big.Int).Sub(m, big.NewInt(1))) <= 0 {
+				break
+			}
+			want++
+		}
+		if got := AccumulatorBits(h, in); got != want {
+			t.Fatalf("case %d: %d taps of %d bits, %d-bit input: %d bits, the extremes need %d", c, len(h), tb, in, got, want)
+		}
+		if in <= 62 && want <= 63 {
+			if got := accumulatorBitsBig(h, in); got != want {
+				t.Fatalf("case %d: math/big route %d, want %d", c, got, want)
+			}
 		}
 	}
 }

@@ -109,17 +109,17 @@ func interpAccumulator(sw *StageWidths, st Stage, in, ob int) error {
 	for p := 0; p < l && p < len(cf.Ints); p++ {
 		acc = max(acc, AccumulatorBits(phaseTaps(cf.Ints, l, p), in))
 	}
-	if acc > MaxAccumulatorBits {
-		return &AccumulatorError{DataBits: in, CoefBits: cf.Bits, NeedBits: acc}
-	}
-	sw.AccumulatorBits = acc
 	fl := log2Floor(l)
-	sw.OutputShift = cf.Frac + in - ob - fl
 	var dc int64
 	for _, v := range cf.Ints {
 		dc += v
 	}
 	sw.Gain = float64(dc) * math.Ldexp(1, fl-cf.Frac) / float64(l)
+	if acc > MaxAccumulatorBits {
+		return &AccumulatorError{DataBits: in, CoefBits: cf.Bits, NeedBits: acc}
+	}
+	sw.AccumulatorBits = acc
+	sw.OutputShift = cf.Frac + in - ob - fl
 	sw.Points = []string{
 		fmt.Sprintf("input: zero-stuffed to %d times its rate (each sample, then %s), run as %d polyphase phases at the input rate", l, zeros(l-1), l),
 		fmt.Sprintf("products and sum: exact per phase (%d x %d bits into %d-bit accumulator, the widest phase's)", in, cf.Bits, acc),

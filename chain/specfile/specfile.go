@@ -1104,9 +1104,11 @@ func leastAccumulator(data, coef int) int {
 // accumulatorFits refuses a fixed coefficient width that no FIR or
 // half-band stage can use: its accumulator would pass fixed.MaxAccumulatorBits
 // even for the narrowest data word such a stage can see (words.input as the
-// first stage; with two stages or more, words.output can be the narrower,
-// as the word between stages is words.output wide or, after a CIC, no
-// narrower than the CIC's input plus one bit). Only a spec that can never
+// first stage; words.output can be the narrower only for a FIR after a
+// first-stage CIC, so with two stages or more, a CIC among the kinds and a
+// decimation: the word between stages is words.output wide or, after a
+// CIC, no narrower than the CIC's input plus one bit; an interpolation
+// chain's CIC comes last, after its FIR stages). Only a spec that can never
 // plan such a stage is refused; a search of CIC stages alone does not use
 // the coefficients and is left alone, and so are fractional ratios, whose
 // polyphase and Farrow stages scale their coefficients otherwise.
@@ -1126,7 +1128,7 @@ func (p *parser) accumulatorFits(s *Spec) error {
 		out = chain.DefaultOutputBits
 	}
 	data, key := in, "words.input"
-	if s.MaxStages >= 2 && out < in {
+	if s.MaxStages >= 2 && out < in && slices.Contains(s.Kinds, chain.CIC) && cs.Direction() == chain.Decimate {
 		data, key = out, "words.output"
 	}
 	need := leastAccumulator(data, cs.CoefBits)

@@ -41,6 +41,11 @@ func TestAccumulatorWords(t *testing.T) {
 		{"CIC stages alone use no coefficients", "input = 32\noutput = 32\ncoefficients = 40", `kinds = ["cic"]`, nil},
 		{"a half-band needs them", "input = 32\noutput = 32\ncoefficients = 40", `kinds = ["cic", "hb"]`,
 			[]string{"words.coefficients = 40", "words.coefficients <= 33"}},
+		// Without a CIC the first stage is a FIR or half-band, fed by the
+		// input word, whatever the word between stages.
+		{"no CIC: the input word binds", "input = 32\noutput = 24\ncoefficients = 40", `kinds = ["fir", "hb"]`,
+			[]string{"with words.input = 32,", "needs at least 70 bits", "words.coefficients <= 33, or words.input <= 25"}},
+		{"no CIC, input word fits", "input = 24\noutput = 24\ncoefficients = 40", `kinds = ["fir", "hb"]`, nil},
 	}
 	for _, c := range cases {
 		t.Run(c.name, func(t *testing.T) {
@@ -67,6 +72,22 @@ func TestAccumulatorWords(t *testing.T) {
 	}
 }
 
+// An interpolation chain's CIC comes last, after its FIR stages, so its
+// first stage is a FIR or half-band fed by the input word: a narrower
+// output word does not save it (an invented 1 MHz to 64 MHz transmitter).
+func TestAccumulatorWordsInterpolation(t *testing.T) {
+	spec := func(words string) string {
+		return "input_rate = \"1 MHz\"\noutput_rate = \"64 MHz\"\npassband = \"300 kHz\"\nripple = \"0.5 dB\"\nrejection = \"60 dB\"\n[words]\n" + words + "\n"
+	}
+	_, err := Parse("spec.toml", []byte(spec("input = 32\noutput = 24\ncoefficients = 40")))
+	if err == nil || !strings.Contains(err.Error(), "with words.input = 32,") {
+		t.Errorf("32-bit input, 40-bit coefficients: %v, want a refusal naming words.input", err)
+	}
+	if _, err := Parse("spec.toml", []byte(spec("input = 24\noutput = 32\ncoefficients = 40"))); err != nil {
+		t.Errorf("24-bit input: %v, want it accepted", err)
+	}
+}
+
 // The bound is the product's width by hand: a tap of 2^(coef-2) times the
 // most negative data word -2^(data-1) is -2^(data+coef-3), which needs
 // data+coef-2 bits in two's complement; fixed.AccumulatorBits agrees for
@@ -75,10 +96,7 @@ func TestAccumulatorWords(t *testing.T) {
 func TestLeastAccumulatorByHand(t *testing.T) {
 	for data := MinWordBits; data <= MaxWordBits; data++ {
 		for coef := MinWordBits; coef <= MaxCoefBits; coef++ {
-			want := data + coef - 2
-			if want > 63 {
-				want = 64 // fixed.AccumulatorBits's "does not fit an int64"
-			}
+			want := data + coef - 2 // past 64 bits too: the message says the need
 			if got := leastAccumulator(data, coef); got != want {
 				t.Fatalf("data %d, coefficients %d: %d bits, by hand %d", data, coef, got, want)
 			}

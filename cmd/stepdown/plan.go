@@ -227,33 +227,39 @@ func planError(c *cli.Context, err error) error {
 	return fmt.Errorf("plan: %s", msg)
 }
 
-// accumulatorHint is emptyFront's advice on the words, given the fewest
-// bits by which a designed chain's accumulator passed the limit (excess,
-// optimize.Result.AccumulatorExcess; 0 when none did): each bit off the
-// coefficient word or the data word (words.output between stages,
-// words.input into a first stage that is not a CIC) takes one off the
-// accumulator, its rounding aside.
-func accumulatorHint(excess int, spec chain.Spec) string {
-	const widths = "(check --chain on one names the widths)"
-	out := spec.OutputBits
+// accumulatorHint is emptyFront's advice on the words, given how many bits
+// the closest designed chains must lose from which word for their
+// accumulators to fit (optimize.Result.AccumulatorExcess; zero when none
+// passed): the coefficient word, the input word (a chain whose first
+// stage alone passes) or words.output, the word between stages (a chain
+// whose later stages alone pass). The widths are those of the chains as
+// designed: the rounded taps must still meet the spec.
+func accumulatorHint(a optimize.AccumulatorExcess, spec chain.Spec) string {
+	in, out := spec.InputBits, spec.OutputBits
+	if in == 0 {
+		in = chain.DefaultInputBits
+	}
 	if out == 0 {
 		out = chain.DefaultOutputBits
 	}
 	var ways []string
-	if c := spec.CoefBits; excess > 0 && c > 0 && c-excess >= specfile.MinWordBits {
-		ways = append(ways, fmt.Sprintf("words.coefficients = %d", c-excess))
+	if c, k := spec.CoefBits, a.Coefficients; c > 0 && k > 0 && c-k >= specfile.MinWordBits {
+		ways = append(ways, fmt.Sprintf("words.coefficients = %d", c-k))
 	}
-	if excess > 0 && out-excess >= specfile.MinWordBits {
-		ways = append(ways, fmt.Sprintf("words.output = %d (words.input too if no CIC comes first)", out-excess))
+	if k := a.Input; k > 0 && in-k >= specfile.MinWordBits {
+		ways = append(ways, fmt.Sprintf("words.input = %d", in-k))
+	}
+	if k := a.Data; k > 0 && out-k >= specfile.MinWordBits {
+		ways = append(ways, fmt.Sprintf("words.output = %d", out-k))
 	}
 	if len(ways) == 0 {
-		return "narrow words.coefficients, words.input or words.output " + widths
+		return "narrow words.coefficients, words.input or words.output (check --chain on one names the widths)"
 	}
 	bits := "bits"
-	if excess == 1 {
+	if a.Least() == 1 {
 		bits = "bit"
 	}
-	return fmt.Sprintf("the closest needs %d %s less: %s would fit it, with its taps as designed %s", excess, bits, strings.Join(ways, " or "), widths)
+	return fmt.Sprintf("the closest is %d %s over: try %s (estimated from its taps as designed; check --chain on one names the widths)", a.Least(), bits, strings.Join(ways, " or "))
 }
 
 // reMaxStagesFlag is the flag InFileTerms names beside search.max_stages.
@@ -302,6 +308,8 @@ func emptyFront(res *optimize.Result, spec chain.Spec, dir string) error {
 	if r := strings.Join(strings.Fields(specfile.InFileTerms(reason)), " "); r != "" {
 		r = strings.TrimSuffix(r, ".")
 		switch l := strings.ToLower(r); {
+		case msg != "no chain meets the spec" && strings.HasPrefix(l, "no chain met the spec"):
+			// The words were named already; the dropped counts follow.
 		case msg != "no chain meets the spec":
 			msg += "; " + r
 		case strings.HasPrefix(l, msg) || strings.HasPrefix(l, "no chain met the spec"):
