@@ -209,17 +209,18 @@ type Result struct {
 }
 
 // AccumulatorExcess says, over the chains dropped because an accumulator
-// would pass fixed.MaxAccumulatorBits, how many bits the closest must lose
-// (zero: no chain was dropped so, or none would fit that way), as planned
-// with its taps as designed. Each bit off the coefficient word takes one
-// off every FIR and half-band accumulator, each bit off a stage's data word
-// one off its own: Coefficients is the fewest coefficient bits that must
-// go for a chain to fit; Input the fewest input-word bits
-// (chain.Spec.InputBits), for a chain whose first stage alone passes;
-// Data the fewest bits of the word between stages (chain.Spec.OutputBits
-// wide), for a chain whose later stages alone pass.
+// would pass fixed.MaxAccumulatorBits, what would fit the closest, as
+// planned with its taps as designed (zero: no chain was dropped so, or
+// none would fit that way). Each bit off the coefficient word takes one
+// off every FIR and half-band accumulator, each bit off a stage's data
+// word one off its own: Coefficients is the fewest coefficient bits that
+// must go for a chain to fit; InputBits the widest input word
+// (chain.Spec.InputBits) at which a chain whose first stage alone passes
+// would fit; OutputBits the widest word between stages (chain.Spec.
+// OutputBits sets it; a CIC's output may be narrower) at which a chain
+// whose later stages alone pass would fit.
 type AccumulatorExcess struct {
-	Coefficients, Input, Data int
+	Coefficients, InputBits, OutputBits int
 }
 
 // Least is Coefficients: the fewest bits, and it helps every chain.
@@ -227,17 +228,14 @@ func (a AccumulatorExcess) Least() int { return a.Coefficients }
 
 // add counts the accumulator error of a dropped chain.
 func (a *AccumulatorExcess) add(e *fixed.AccumulatorError) {
-	least := func(k *int, x int) {
-		if x > 0 && (*k == 0 || x < *k) {
-			*k = x
-		}
+	if x := e.Excess(); x > 0 && (a.Coefficients == 0 || x < a.Coefficients) {
+		a.Coefficients = x
 	}
-	least(&a.Coefficients, e.Excess())
-	if e.LaterExcess == 0 {
-		least(&a.Input, e.FirstExcess)
+	if e.LaterExcess == 0 && e.InputFits > 0 {
+		a.InputBits = max(a.InputBits, e.InputFits)
 	}
-	if e.FirstExcess == 0 {
-		least(&a.Data, e.LaterExcess)
+	if e.FirstExcess == 0 && e.BetweenFits > 0 {
+		a.OutputBits = max(a.OutputBits, e.BetweenFits)
 	}
 }
 

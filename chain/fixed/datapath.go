@@ -445,6 +445,15 @@ func plan(c Cascade, w Words, s Settings, minBits []int) (*Widths, error) {
 			sws[i], err = planFIR(st, high(i), in, ob, w.CoefBits, s, minBitsOf(minBits, i))
 		}
 		if err != nil && !(!st.fractional() && !st.CIC && accs.add(err, i)) {
+			// Another error ends the plan: a fractional stage's too-wide
+			// accumulator is counted with the earlier ones, and the
+			// earliest error is the one returned.
+			if st.fractional() {
+				accs.add(err, i)
+			}
+			if aerr := accs.err(); aerr != nil {
+				return nil, aerr
+			}
 			return nil, fmt.Errorf("fixed: stage %d: %w", i+1, err)
 		}
 		// A FIR stage whose accumulator is too wide has its output word
@@ -676,12 +685,17 @@ const MaxAccumulatorBits = 63
 // goes on through its other FIR and half-band stages and gives the most
 // bits each kind passes by: FirstExcess for its first stage, whose data
 // word is the chain's input word (Words.InputBits), LaterExcess for the
-// stages after it, which take the word between stages (zero where they
-// fit).
+// stages after it, which take the word between stages or a CIC's output
+// (zero where they fit). Each bit off a stage's data word takes one off its
+// accumulator: InputFits is the widest input word at which the first stage
+// would fit, BetweenFits the widest data word at which every later stage
+// that passed would (zero where none passed; -1 where no data word would
+// do, as for a Farrow stage's mu products).
 type AccumulatorError struct {
 	DataBits, CoefBits, NeedBits int
 	MuProducts                   bool
 	FirstExcess, LaterExcess     int
+	InputFits, BetweenFits       int
 }
 
 func (e *AccumulatorError) Error() string {
@@ -725,15 +739,31 @@ func (a *accumulators) add(err error, i int) bool {
 	}
 	if a.first == nil || i+1 < a.stage {
 		c := *ae
+		c.FirstExcess, c.LaterExcess, c.InputFits, c.BetweenFits = 0, 0, 0, 0
 		if a.first != nil {
 			c.FirstExcess, c.LaterExcess = a.first.FirstExcess, a.first.LaterExcess
+			c.InputFits, c.BetweenFits = a.first.InputFits, a.first.BetweenFits
 		}
 		a.first, a.stage = &c, i+1
 	}
-	if x := ae.NeedBits - MaxAccumulatorBits; i == 0 {
+	x := ae.NeedBits - MaxAccumulatorBits
+	// The widest data word at which this stage fits; -1 when none does
+	// (mu products are no word of the spec).
+	fits := ae.DataBits - x
+	if ae.MuProducts || fits < 1 {
+		fits = -1
+	}
+	narrowest := func(w *int) {
+		if *w == 0 || fits < *w {
+			*w = fits
+		}
+	}
+	if i == 0 {
 		a.first.FirstExcess = max(a.first.FirstExcess, x)
+		narrowest(&a.first.InputFits)
 	} else {
 		a.first.LaterExcess = max(a.first.LaterExcess, x)
+		narrowest(&a.first.BetweenFits)
 	}
 	return true
 }

@@ -2,11 +2,14 @@ package fixed
 
 import (
 	"encoding/json"
+	"errors"
+	"fmt"
 	"math"
 	"math/big"
 	"math/bits"
 	"math/rand/v2"
 	"os"
+	"strings"
 	"testing"
 
 	"github.com/stepdown-dsp/stepdown/chain"
@@ -449,11 +452,25 @@ func TestParseMultiplier(t *testing.T) {
 // math/big route equals the int64 one.
 func TestAccumulatorBitsWide(t *testing.T) {
 	rng := rand.New(rand.NewPCG(41, 8))
-	for c := range 2000 {
+	for c := range 2400 {
 		h := make([]int64, 1+rng.IntN(300))
 		tb := 2 + rng.IntN(39)
+		if c >= 2000 {
+			// Taps up to 63 bits, so that their sums pass 2^63 too.
+			h, tb = make([]int64, 3+rng.IntN(6)), 60+rng.IntN(4)
+		}
 		for k := range h {
-			h[k] = rng.Int64N(1<<tb) - 1<<(tb-1)
+			h[k] = int64(rng.Uint64N(1<<tb) - 1<<(tb-1))
+			if c >= 2200 {
+				// Two near the largest int64 of one sign and one up to
+				// 2^62: P or N passes 2^64, and wraps a uint64 to at most
+				// 2^62.
+				h = h[:3]
+				sign := int64(1 - 2*(c%2))
+				h[0], h[1] = sign*(math.MaxInt64-rng.Int64N(1<<40)), sign*math.MaxInt64
+				h[2] = sign * (1<<62 - rng.Int64N(1<<40))
+				break
+			}
 		}
 		in := 1 + rng.IntN(64)
 		top := new(big.Int).Lsh(big.NewInt(1), uint(in-1)) // 2^(in-1)
@@ -485,5 +502,75 @@ func TestAccumulatorBitsWide(t *testing.T) {
 				t.Fatalf("case %d: math/big route %d, want %d", c, got, want)
 			}
 		}
+	}
+}
+
+// A cascade whose FIR stages' accumulators pass 63 bits is refused with
+// one AccumulatorError that has gone through every stage: its excesses
+// are those of each stage planned alone, with and without UnityGain (no
+// plan comes back either way), and the words it says would fit do: the
+// same taps plan at InputFits-bit input and BetweenFits-bit words between
+// stages (each bit off a stage's data word takes one off its accumulator).
+// The cascade is bittrue_test's invented receiver without its CIC.
+func TestPlanAccumulatorErrorGoesOn(t *testing.T) {
+	c := testCascade()
+	c.InputRate /= 8
+	c.Stages = c.Stages[1:]
+	w := Words{InputBits: 32, DataBits: 30, OutputBits: 30, CoefBits: 40}
+	need := func(st Stage, in, out int) int {
+		_, err := Plan(Cascade{InputRate: c.InputRate, Passband: c.Passband, Stages: []Stage{st}}, Words{InputBits: in, OutputBits: out, CoefBits: w.CoefBits}, Settings{})
+		ae := accumulatorError(err)
+		if ae == nil {
+			t.Fatalf("stage %+v alone at %d bits: %v, want an AccumulatorError", st.R, in, err)
+		}
+		return ae.NeedBits - MaxAccumulatorBits
+	}
+	first, later := need(c.Stages[0], w.InputBits, w.DataBits), need(c.Stages[1], w.DataBits, w.OutputBits)
+	for _, unity := range []bool{false, true} {
+		ws, err := Plan(c, w, Settings{UnityGain: unity})
+		ae := accumulatorError(err)
+		if ws != nil || ae == nil {
+			t.Fatalf("UnityGain %v: widths %v, error %v; want no plan and an AccumulatorError", unity, ws != nil, err)
+		}
+		if !strings.Contains(err.Error(), "stage 1:") || ae.FirstExcess != first || (!unity && ae.LaterExcess != later) || ae.LaterExcess <= 0 {
+			t.Errorf("UnityGain %v: %v: excesses %d and %d, each stage alone %d and %d", unity, err, ae.FirstExcess, ae.LaterExcess, first, later)
+		}
+		if ae.InputFits != w.InputBits-ae.FirstExcess || ae.BetweenFits != w.DataBits-ae.LaterExcess {
+			t.Errorf("UnityGain %v: fits %d and %d, want %d and %d", unity, ae.InputFits, ae.BetweenFits, w.InputBits-ae.FirstExcess, w.DataBits-ae.LaterExcess)
+		}
+		fit := Words{InputBits: ae.InputFits, DataBits: ae.BetweenFits, OutputBits: ae.BetweenFits, CoefBits: w.CoefBits}
+		if _, err := Plan(c, fit, Settings{UnityGain: unity}); err != nil {
+			t.Errorf("UnityGain %v: at the words the error says fit (%+v): %v", unity, fit, err)
+		}
+	}
+}
+
+// accumulators keeps the earliest stage's error as the one returned, and
+// the most each kind of stage passes by and the narrowest word that fits
+// them, whatever the order the stages are added in (the UnityGain target
+// is planned last).
+func TestAccumulatorsGather(t *testing.T) {
+	e := func(data, need int, mu bool) error {
+		return fmt.Errorf("wrapped: %w", &AccumulatorError{DataBits: data, CoefBits: 40, NeedBits: need, MuProducts: mu})
+	}
+	var a accumulators
+	if a.add(errors.New("other"), 0) || a.err() != nil {
+		t.Fatal("a plain error counted")
+	}
+	a.add(e(24, 66, false), 2) // 3 over, fits at 21
+	a.add(e(24, 65, false), 1) // 2 over, fits at 22
+	a.add(e(30, 68, false), 0) // the first stage: 5 over, fits at 25
+	got := accumulatorError(a.err())
+	if got == nil || !strings.HasPrefix(a.err().Error(), "fixed: stage 1:") || got.DataBits != 30 || got.NeedBits != 68 {
+		t.Fatalf("the first stage's error should lead: %v", a.err())
+	}
+	if got.FirstExcess != 5 || got.LaterExcess != 3 || got.InputFits != 25 || got.BetweenFits != 21 || got.Excess() != 5 {
+		t.Errorf("gathered %+v", *got)
+	}
+	var b accumulators
+	b.add(e(24, 65, false), 1)
+	b.add(e(20, 90, true), 2) // mu products: no data word fits them
+	if got := accumulatorError(b.err()); got.BetweenFits != -1 || got.LaterExcess != 27 || got.FirstExcess != 0 {
+		t.Errorf("with a Farrow stage's mu products: %+v", *got)
 	}
 }

@@ -227,13 +227,13 @@ func planError(c *cli.Context, err error) error {
 	return fmt.Errorf("plan: %s", msg)
 }
 
-// accumulatorHint is emptyFront's advice on the words, given how many bits
-// the closest designed chains must lose from which word for their
-// accumulators to fit (optimize.Result.AccumulatorExcess; zero when none
-// passed): the coefficient word, the input word (a chain whose first
-// stage alone passes) or words.output, the word between stages (a chain
-// whose later stages alone pass). The widths are those of the chains as
-// designed: the rounded taps must still meet the spec.
+// accumulatorHint is emptyFront's advice on the words, given what would fit
+// the closest designed chains' accumulators (optimize.Result.
+// AccumulatorExcess; zero when none passed): the coefficient bits to drop,
+// the widest input word (a chain whose first stage alone passes) and the
+// widest words.output, the word between stages (a chain whose later stages
+// alone pass). The widths are those of the chains as designed: the rounded
+// taps must still meet the spec.
 func accumulatorHint(a optimize.AccumulatorExcess, spec chain.Spec) string {
 	in, out := spec.InputBits, spec.OutputBits
 	if in == 0 {
@@ -246,11 +246,11 @@ func accumulatorHint(a optimize.AccumulatorExcess, spec chain.Spec) string {
 	if c, k := spec.CoefBits, a.Coefficients; c > 0 && k > 0 && c-k >= specfile.MinWordBits {
 		ways = append(ways, fmt.Sprintf("words.coefficients = %d", c-k))
 	}
-	if k := a.Input; k > 0 && in-k >= specfile.MinWordBits {
-		ways = append(ways, fmt.Sprintf("words.input = %d", in-k))
+	if w := a.InputBits; w >= specfile.MinWordBits && w < in {
+		ways = append(ways, fmt.Sprintf("words.input = %d", w))
 	}
-	if k := a.Data; k > 0 && out-k >= specfile.MinWordBits {
-		ways = append(ways, fmt.Sprintf("words.output = %d", out-k))
+	if w := a.OutputBits; w >= specfile.MinWordBits && w < out {
+		ways = append(ways, fmt.Sprintf("words.output = %d", w))
 	}
 	if len(ways) == 0 {
 		return "narrow words.coefficients, words.input or words.output (check --chain on one names the widths)"

@@ -53,12 +53,12 @@ func TestEmptyFrontWordLengths(t *testing.T) {
 	// closest chain are named: the coefficient word when the spec fixes
 	// it, the input word and the word between stages (words.output) where
 	// a chain passes only at its first or only at its later stages.
-	res.AccumulatorExcess = optimize.AccumulatorExcess{Coefficients: 3, Input: 4, Data: 5}
+	res.AccumulatorExcess = optimize.AccumulatorExcess{Coefficients: 3, InputBits: 24, OutputBits: 25}
 	got = emptyFront(res, chain.Spec{CoefBits: 36, InputBits: 28, OutputBits: 30}, "out").Error()
 	if want := "the closest is 3 bits over: try words.coefficients = 33 or words.input = 24 or words.output = 25 (estimated from its taps as designed; check --chain on one names the widths); "; !strings.Contains(got, want) {
 		t.Errorf("with an excess of 3 bits: %q\nwant it to contain %q", got, want)
 	}
-	res.AccumulatorExcess = optimize.AccumulatorExcess{Coefficients: 1, Data: 1}
+	res.AccumulatorExcess = optimize.AccumulatorExcess{Coefficients: 1, OutputBits: 23}
 	got = emptyFront(res, chain.Spec{}, "out").Error()
 	if want := "the closest is 1 bit over: try words.output = 23 ("; !strings.Contains(got, want) {
 		t.Errorf("auto coefficients, default output: %q\nwant it to contain %q", got, want)
