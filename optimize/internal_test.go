@@ -288,6 +288,12 @@ func TestRunAll(t *testing.T) {
 		if i == 10 {
 			cancel()
 		}
+		if i > 10 {
+			// No later call ends before the cancel: the other worker
+			// cannot run through them all while the cancelling call
+			// waits to be scheduled.
+			<-ctx.Done()
+		}
 	}, nil)
 	n := 0
 	for _, d := range done {
