@@ -724,7 +724,7 @@ func accumulatorError(err error) *AccumulatorError {
 }
 
 // accumulators gathers the AccumulatorErrors of a cascade's FIR and
-// half-band stages (planChain): the first, with the most each kind of
+// half-band stages (plan): the first, with the most each kind of
 // stage passes by.
 type accumulators struct {
 	first *AccumulatorError
@@ -893,7 +893,7 @@ func planFIR(st Stage, rate float64, in, ob, coefBits int, s Settings, minBits i
 	cf := sw.Coefficients
 	if st.Interpolate {
 		if err := interpAccumulator(&sw, st, in, ob); err != nil {
-			// Its output word and gain stand (see planChain).
+			// Its output word and gain stand (see plan).
 			return StageWidths{OutputBits: ob, Gain: sw.Gain}, err
 		}
 	} else {
@@ -903,7 +903,7 @@ func planFIR(st Stage, rate float64, in, ob, coefBits int, s Settings, minBits i
 		}
 		sw.Gain = float64(dc) * math.Ldexp(1, -cf.Frac)
 		if sw.AccumulatorBits = AccumulatorBits(cf.Ints, in); sw.AccumulatorBits > MaxAccumulatorBits {
-			// Its output word and gain stand (see planChain).
+			// Its output word and gain stand (see plan).
 			return StageWidths{OutputBits: ob, Gain: sw.Gain}, &AccumulatorError{DataBits: in, CoefBits: cf.Bits, NeedBits: sw.AccumulatorBits}
 		}
 		// The accumulator holds Frac + in - 1 fractional bits; the output ob - 1.
