@@ -226,8 +226,10 @@ type AccumulatorExcess struct {
 // Least is Coefficients: the fewest bits, and it helps every chain.
 func (a AccumulatorExcess) Least() int { return a.Coefficients }
 
-// add counts the accumulator error of a dropped chain.
-func (a *AccumulatorExcess) add(e *fixed.AccumulatorError) {
+// Add counts the accumulator error of a chain: the fewest coefficient bits
+// over the errors added, and the widest input and between-stage words that
+// fit.
+func (a *AccumulatorExcess) Add(e *fixed.AccumulatorError) {
 	if x := e.Excess(); x > 0 && (a.Coefficients == 0 || x < a.Coefficients) {
 		a.Coefficients = x
 	}

@@ -207,7 +207,7 @@ func (t *designTier) dropped(plan []chain.StagePlan, o outcome) {
 	t.res.Dropped[o.reason]++
 	t.fail(plan)
 	if o.c.acc != nil {
-		t.res.AccumulatorExcess.add(o.c.acc)
+		t.res.AccumulatorExcess.Add(o.c.acc)
 	}
 }
 

@@ -1257,6 +1257,34 @@ func (p *parser) specError(err error) error {
 	return e
 }
 
+// WordsToTry names, in the spec's keys, the word widths at which a chain
+// whose FIR or half-band accumulators pass fixed.MaxAccumulatorBits would
+// fit, as a (optimize.AccumulatorExcess) says for the spec's words:
+// "words.coefficients = C" when the spec fixes the coefficient width,
+// "words.input = I" and "words.output = O" when narrower than the spec's
+// (or default) words. They are estimates from the taps as designed: a
+// narrower word can change the design. Nil when no word alone would do.
+func WordsToTry(a optimize.AccumulatorExcess, spec chain.Spec) []string {
+	in, out := spec.InputBits, spec.OutputBits
+	if in == 0 {
+		in = chain.DefaultInputBits
+	}
+	if out == 0 {
+		out = chain.DefaultOutputBits
+	}
+	var ways []string
+	if c, k := spec.CoefBits, a.Coefficients; c > 0 && k > 0 && c-k >= MinWordBits {
+		ways = append(ways, fmt.Sprintf("words.coefficients = %d", c-k))
+	}
+	if w := a.InputBits; w >= MinWordBits && w < in {
+		ways = append(ways, fmt.Sprintf("words.input = %d", w))
+	}
+	if w := a.OutputBits; w >= MinWordBits && w < out {
+		ways = append(ways, fmt.Sprintf("words.output = %d", w))
+	}
+	return ways
+}
+
 // InFileTerms rewrites a library message (from chain, chain/remez or
 // optimize) in the terms a user of the command line knows: Go field names
 // become the spec's keys (InputRate -> input_rate, MaxStages ->

@@ -197,7 +197,7 @@ func runPlan(c *cli.Context) error {
 		return fmt.Errorf("--timeout %v: stopped %s; %s left as it was (allow more time)", c.Duration("timeout"), what, clip(j.out.Dir()))
 	}
 	if len(res.Front) == 0 {
-		return emptyFront(res, j.spec.Chain, clip(j.out.Dir()))
+		return emptyFront(res, j.spec.Chain, set.Kinds, clip(j.out.Dir()))
 	}
 	if !res.Partial {
 		// A ratio with a large prime factor: nearby ratios and the
@@ -235,23 +235,7 @@ func planError(c *cli.Context, err error) error {
 // alone pass). The widths are those of the chains as designed: the rounded
 // taps must still meet the spec.
 func accumulatorHint(a optimize.AccumulatorExcess, spec chain.Spec) string {
-	in, out := spec.InputBits, spec.OutputBits
-	if in == 0 {
-		in = chain.DefaultInputBits
-	}
-	if out == 0 {
-		out = chain.DefaultOutputBits
-	}
-	var ways []string
-	if c, k := spec.CoefBits, a.Coefficients; c > 0 && k > 0 && c-k >= specfile.MinWordBits {
-		ways = append(ways, fmt.Sprintf("words.coefficients = %d", c-k))
-	}
-	if w := a.InputBits; w >= specfile.MinWordBits && w < in {
-		ways = append(ways, fmt.Sprintf("words.input = %d", w))
-	}
-	if w := a.OutputBits; w >= specfile.MinWordBits && w < out {
-		ways = append(ways, fmt.Sprintf("words.output = %d", w))
-	}
+	ways := specfile.WordsToTry(a, spec)
 	if len(ways) == 0 {
 		return "narrow words.coefficients, words.input or words.output (check --chain on one names the widths)"
 	}
@@ -288,14 +272,20 @@ func searchTooLarge(msg string) bool {
 
 // emptyFront is the error of a search that left the front empty: the
 // optimiser's reason (which names the design budget when that was the cause)
-// and the counts of dropped candidates.
-func emptyFront(res *optimize.Result, spec chain.Spec, dir string) error {
+// and the counts of dropped candidates. kinds are the search's stage kinds
+// (nil: all): the CIC register limit is named only where a CIC can be in
+// a chain.
+func emptyFront(res *optimize.Result, spec chain.Spec, kinds []chain.Kind, dir string) error {
 	msg := "no chain meets the spec"
 	reason := res.Reason
 	if n := res.Dropped[optimize.ReasonWordLengths]; n > 0 {
 		// Named first: a budget or a target would otherwise take the
 		// blame for words the data path cannot hold.
-		msg += fmt.Sprintf(": the word lengths of %d designed chains could not be planned (an accumulator over %d bits or a CIC register over %d): ", n, fixed.MaxAccumulatorBits, chain.MaxCICBits)
+		limits := fmt.Sprintf("an accumulator over %d bits", fixed.MaxAccumulatorBits)
+		if kinds == nil || slices.Contains(kinds, chain.CIC) {
+			limits += fmt.Sprintf(" or a CIC register over %d bits", chain.MaxCICBits)
+		}
+		msg += fmt.Sprintf(": the word lengths of %d designed chains could not be planned (%s): ", n, limits)
 		msg += accumulatorHint(res.AccumulatorExcess, spec)
 		if strings.HasPrefix(reason, "No chain was designed within the design budget") {
 			// Said short, to keep the line readable.

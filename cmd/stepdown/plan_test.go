@@ -19,7 +19,7 @@ func TestEmptyFrontReason(t *testing.T) {
 		Reason:  "No chain was designed within the design budget (MaxDesigns, MaxWork) at a tap limit of 511;\n12 candidates were left undesigned.",
 		Dropped: map[optimize.Reason]int{optimize.ReasonLongFIR: 3, optimize.ReasonCICRejection: 2},
 	}
-	got := emptyFront(res, chain.Spec{}, "out").Error()
+	got := emptyFront(res, chain.Spec{}, nil, "out").Error()
 	// The optimiser's setting names are said in the spec's and the flags' terms.
 	want := "no chain meets the spec: No chain was designed within the design budget (a fixed amount of design work per run: " +
 		"lower search.max_stages or --max-stages, narrow search.kinds or search.cic_orders, or relax ripple or rejection, " +
@@ -28,7 +28,7 @@ func TestEmptyFrontReason(t *testing.T) {
 	if got != want {
 		t.Errorf("got  %q\nwant %q", got, want)
 	}
-	if got := emptyFront(&optimize.Result{}, chain.Spec{}, "out").Error(); got != "no chain meets the spec (dropped: no candidates); out left as it was" {
+	if got := emptyFront(&optimize.Result{}, chain.Spec{}, nil, "out").Error(); got != "no chain meets the spec (dropped: no candidates); out left as it was" {
 		t.Errorf("no reason: %q", got)
 	}
 }
@@ -42,8 +42,8 @@ func TestEmptyFrontWordLengths(t *testing.T) {
 		Unsettled: 10,
 		Dropped:   map[optimize.Reason]int{optimize.ReasonWordLengths: 596, optimize.ReasonCICRejection: 337},
 	}
-	got := emptyFront(res, chain.Spec{}, "out").Error()
-	want := "no chain meets the spec: the word lengths of 596 designed chains could not be planned (an accumulator over 63 bits or a CIC register over 256): " +
+	got := emptyFront(res, chain.Spec{}, nil, "out").Error()
+	want := "no chain meets the spec: the word lengths of 596 designed chains could not be planned (an accumulator over 63 bits or a CIC register over 256 bits): " +
 		"narrow words.coefficients, words.input or words.output (check --chain on one names the widths); the design budget left 10 candidates undesigned " +
 		"(dropped: cic rejection below target: 337, word lengths could not be planned: 596); out left as it was"
 	if got != want {
@@ -54,17 +54,22 @@ func TestEmptyFrontWordLengths(t *testing.T) {
 	// it, the input word and the word between stages (words.output) where
 	// a chain passes only at its first or only at its later stages.
 	res.AccumulatorExcess = optimize.AccumulatorExcess{Coefficients: 3, InputBits: 24, OutputBits: 25}
-	got = emptyFront(res, chain.Spec{CoefBits: 36, InputBits: 28, OutputBits: 30}, "out").Error()
+	got = emptyFront(res, chain.Spec{CoefBits: 36, InputBits: 28, OutputBits: 30}, nil, "out").Error()
 	if want := "the closest is 3 bits over: try words.coefficients = 33 or words.input = 24 or words.output = 25 (estimated from its taps as designed; check --chain on one names the widths); "; !strings.Contains(got, want) {
 		t.Errorf("with an excess of 3 bits: %q\nwant it to contain %q", got, want)
 	}
 	res.AccumulatorExcess = optimize.AccumulatorExcess{Coefficients: 1, OutputBits: 23}
-	got = emptyFront(res, chain.Spec{}, "out").Error()
+	got = emptyFront(res, chain.Spec{}, nil, "out").Error()
 	if want := "the closest is 1 bit over: try words.output = 23 ("; !strings.Contains(got, want) {
 		t.Errorf("auto coefficients, default output: %q\nwant it to contain %q", got, want)
 	}
+	// A search without CIC stages has no CIC register to blame.
+	got = emptyFront(res, chain.Spec{}, []chain.Kind{chain.FIR, chain.HalfBand}, "out").Error()
+	if want := "(an accumulator over 63 bits): "; !strings.Contains(got, want) {
+		t.Errorf("FIR and half-band only: %q\nwant it to contain %q", got, want)
+	}
 	res.Reason = "No chain met the spec; Dropped says why each candidate was set aside."
-	if got := emptyFront(res, chain.Spec{}, "out").Error(); strings.Contains(strings.ToLower(got), "no chain met the spec") {
+	if got := emptyFront(res, chain.Spec{}, nil, "out").Error(); strings.Contains(strings.ToLower(got), "no chain met the spec") {
 		t.Errorf("the optimiser's reason repeats the words' message: %q", got)
 	}
 }
@@ -104,6 +109,39 @@ func TestAccumulatorHintPlans(t *testing.T) {
 			if r := runBinary(t, dir, nil, "plan", q, "--out", "o-"+c.name+w[1], "--quiet"); r.code != 0 {
 				t.Errorf("%s: words.%s = %s, as the hint says: exit %d, %q", c.name, w[1], w[2], r.code, r.stderr)
 			}
+		}
+	}
+}
+
+// check --chain on a chain whose accumulator passes 63 bits names the
+// widths at which it would fit (report.AddWordLengths), and each of them,
+// applied alone, lets check judge the chain's rounded taps.
+func TestCheckAccumulatorHint(t *testing.T) {
+	dir := t.TempDir()
+	spec := "input_rate = \"100 MHz\"\noutput_rate = \"1 MHz\"\npassband = \"300 kHz\"\nripple = \"0.1 dB\"\nrejection = \"80 dB\"\n[words]\ninput = 32\noutput = 24\ncoefficients = 40\n"
+	const named = "cic4m1r25 > fir4"
+	p := filepath.Join(dir, "cc.toml")
+	must(t, os.WriteFile(p, []byte(spec), 0o644))
+	r := runBinary(t, dir, nil, "check", p, "--chain", named, "--out", "o-cc")
+	hint := regexp.MustCompile(`cannot be judged with its taps rounded: .*?; (words\..*?) would fit \(estimated from these taps as designed\)`)
+	m := hint.FindStringSubmatch(r.stdout)
+	if m == nil {
+		t.Fatalf("exit %d, %q; want the widths that fit named", r.code, r.stdout+r.stderr)
+	}
+	if !strings.Contains(r.stdout, "float figures: rounded taps not judged") || strings.Contains(r.stdout, "* the worse of") {
+		t.Errorf("the table does not say its figures are the float design's:\n%s", r.stdout)
+	}
+	ws := regexp.MustCompile(`words\.(\w+) = (\d+)`).FindAllStringSubmatch(m[1], -1)
+	if len(ws) < 2 {
+		t.Errorf("the hint %q names fewer than two widths", m[1])
+	}
+	for _, w := range ws {
+		fixed := regexp.MustCompile(`(?m)^`+w[1]+` = \d+$`).ReplaceAllString(spec, w[1]+" = "+w[2])
+		q := filepath.Join(dir, "cc-"+w[1]+w[2]+".toml")
+		must(t, os.WriteFile(q, []byte(fixed), 0o644))
+		r := runBinary(t, dir, nil, "check", q, "--chain", named, "--out", "o-cc"+w[1])
+		if r.code != 0 || strings.Contains(r.stdout, "cannot be judged") || !strings.Contains(r.stdout, "bit-true SNR") {
+			t.Errorf("words.%s = %s, as the hint says: exit %d, %q", w[1], w[2], r.code, r.stdout+r.stderr)
 		}
 	}
 }

@@ -210,7 +210,7 @@ func runSimulate(c *cli.Context) error {
 			return planError(c, err)
 		}
 		if len(res.Front) == 0 {
-			return errors.New(flagTerms(c, emptyFront(res, cs, clip(j.out.Dir())).Error()))
+			return errors.New(flagTerms(c, emptyFront(res, cs, set.Kinds, clip(j.out.Dir())).Error()))
 		}
 		cand = res.Front[res.Recommended]
 	}

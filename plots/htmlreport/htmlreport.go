@@ -503,7 +503,10 @@ func planCautions(r *report.Report) []string {
 		out = append(out, "The recommended chain's figures are estimates (order formulas), not a real design.")
 	}
 	rej, rip := c.BuiltFigures()
-	if !c.MeetsTargets {
+	if c.Unjudged() {
+		out = append(out, fmt.Sprintf("The recommended chain misses the spec: its rounded taps could not be judged; as designed in floating point, its %s rejection is %.2f dB against %s dB and its ripple %.4f dB against %s dB.",
+			r.Spec.Unwanted(), rej, shortest(r.Spec.RejectionDB), rip, shortest(r.Spec.RippleDB)))
+	} else if !c.MeetsTargets {
 		out = append(out, fmt.Sprintf("The recommended chain misses the spec (judged on its %s): %s rejection %.2f dB against %s dB, ripple %.4f dB against %s dB.",
 			c.VerdictBasis, r.Spec.Unwanted(), rej, shortest(r.Spec.RejectionDB), rip, shortest(r.Spec.RippleDB)))
 	} else if c.RejectionMarginDB < 1 {
@@ -517,7 +520,7 @@ func planCautions(r *report.Report) []string {
 	} else if r.Spec.Words.Coefficients == nil {
 		out = append(out, fmt.Sprintf("No coefficient width was given: rejection and ripple are those of floating-point coefficients, memory counts %d-bit coefficient words (the pricing default), and no integer or $readmemh files were written.", cost.FloatCoefBits))
 	} else {
-		out = append(out, fmt.Sprintf("The taps are rounded to %d bits: the verdicts, rejection and ripple in the table are those of the rounded taps, as they will be built; report.json also holds the floating-point design's figures.", *r.Spec.Words.Coefficients))
+		out = append(out, fmt.Sprintf("The taps are rounded to %d bits: the verdicts, rejection and ripple in the table are those of the rounded taps, as they will be built (the floating-point design's where the rounded taps could not be judged); report.json also holds the floating-point design's figures.", *r.Spec.Words.Coefficients))
 	}
 	if w := c.ChainReport; w != nil {
 		msg := fmt.Sprintf("Word lengths of the recommended chain (planning figures from a model of the data path, to be confirmed by a bit-true simulation of the RTL): %s", c.BitTrueSummary())
@@ -545,7 +548,10 @@ func frontRows(front []report.Chain, rec int, clock bool) []frontRow {
 		if c.Designed {
 			kind = "designed"
 		}
-		if !c.MeetsTargets {
+		switch {
+		case !c.MeetsTargets && c.Unjudged():
+			kind += ", misses spec (float figures: rounded taps not judged)"
+		case !c.MeetsTargets:
 			kind += ", misses spec"
 		}
 		rej, rip := c.BuiltFigures()

@@ -117,7 +117,7 @@ func CheckReason(c Chain, sp Spec) string {
 	switch {
 	case c.MeetsTargets:
 		return "The chain named by --chain meets the rejection target and the ripple budget" + on + "."
-	case c.VerdictBasis == "rounded taps" && c.ChainReport == nil:
+	case c.Unjudged():
 		return "The chain named by --chain cannot be judged with its taps rounded: " + c.WordLengthsError + "."
 	case !c.FloatMeetsTargets && c.AliasRejectionDB < sp.RejectionDB-RejectionToleranceDB:
 		return fmt.Sprintf("The chain named by --chain misses the rejection target as designed: %.2f dB against %.4g dB.", c.AliasRejectionDB, sp.RejectionDB)

@@ -98,7 +98,9 @@
 // plain rounding (coefficients_adjusted counts them). When only the bit-true
 // run fails (a CIC register beyond the integer model's 127 bits) the stages keep their
 // widths, the chain has no bit-true fields and word_lengths_error says why; a
-// chain the planner cannot take carries word_lengths_error alone. On the built-in example the
+// chain the planner cannot take carries word_lengths_error alone (for an
+// accumulator over 63 bits, with the words that would fit it,
+// specfile.WordsToTry), and its figures are its float design's (Unjudged). On the built-in example the
 // whole front (six chains) costs about 0.1 s with 18-bit coefficients and
 // 0.35 s with "auto" on two cores, so every chain is evaluated.
 package report

@@ -4,6 +4,7 @@ import (
 	"bytes"
 	"context"
 	"encoding/json"
+	"errors"
 	"fmt"
 	"math"
 	"reflect"
@@ -628,6 +629,14 @@ func AddWordLengths(ctx context.Context, c *Chain, spec chain.Spec, cand optimiz
 	}
 	if err != nil {
 		c.WordLengthsError = strings.TrimPrefix(err.Error(), "fixed: ")
+		var ae *fixed.AccumulatorError
+		if errors.As(err, &ae) {
+			var a optimize.AccumulatorExcess
+			a.Add(ae)
+			if ways := specfile.WordsToTry(a, spec); len(ways) > 0 {
+				c.WordLengthsError += "; " + strings.Join(ways, " or ") + " would fit (estimated from these taps as designed)"
+			}
+		}
 		return
 	}
 	cr := res.Report(withHardware)
@@ -839,13 +848,18 @@ func nonFinite(v reflect.Value, path string) string {
 	return ""
 }
 
+// Unjudged reports whether the verdict is on the rounded taps but they
+// could not be judged (no word-length plan: stopped, or the words could not
+// be planned): the figures BuiltFigures gives are then the float design's.
+func (c *Chain) Unjudged() bool { return c.VerdictBasis == "rounded taps" && c.ChainReport == nil }
+
 // BuiltFigures returns the alias rejection and passband ripple the verdict
 // is judged on: when VerdictBasis is "rounded taps" and they were measured,
 // the worse of the float design's and the rounded taps' (the verdict needs
 // both to meet; the rounded taps' are nearly always the worse), the float
 // design's otherwise. RejectionMarginDB is the first less the target.
 func (c *Chain) BuiltFigures() (rejectionDB, rippleDB float64) {
-	if c.VerdictBasis == "rounded taps" && c.ChainReport != nil {
+	if c.VerdictBasis == "rounded taps" && !c.Unjudged() {
 		return math.Min(c.QuantisedRejectionDB, c.AliasRejectionDB), math.Max(c.QuantisedRippleDB, c.PassbandRippleDB)
 	}
 	return c.AliasRejectionDB, c.PassbandRippleDB

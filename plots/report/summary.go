@@ -177,6 +177,7 @@ func WriteTable(w io.Writer, rep *Report) {
 		head = append(head[:at], append([]string{"lanes"}, head[at:]...)...)
 	}
 	rows := [][]string{head}
+	unjudged := 0 // chains whose rounded taps could not be judged
 	for i, ch := range rep.Front {
 		mark := ""
 		if i == rep.Recommended {
@@ -187,9 +188,15 @@ func WriteTable(w io.Writer, rep *Report) {
 			kind = "designed"
 		}
 		switch {
-		case !ch.MeetsTargets && rep.Partial && ch.VerdictBasis == "rounded taps" && ch.ChainReport == nil:
+		case !ch.MeetsTargets && rep.Partial && ch.Unjudged():
 			// Stopped before its word lengths: its rounded taps are not judged.
 			kind += ", not judged (stopped)"
+			unjudged++
+		case !ch.MeetsTargets && ch.Unjudged():
+			// Its rounded taps could not be judged (their word lengths
+			// could not be planned): the figures are the float design's.
+			kind += ", misses spec (float figures: rounded taps not judged)"
+			unjudged++
 		case !ch.MeetsTargets:
 			kind += ", misses spec"
 		}
@@ -226,7 +233,14 @@ func WriteTable(w io.Writer, rep *Report) {
 		if c := rep.Spec.Words.Coefficients; c != nil {
 			what = fmt.Sprintf("rounded to %d bits", *c)
 		}
-		fmt.Fprintf(w, "* the worse of the float design and its taps %s, as they will be built: the verdict needs both to meet", what)
+		if unjudged == len(rep.Front) {
+			fmt.Fprintf(w, "* the float design's figures: its taps %s, as they will be built, were not judged (see the word lengths)", what)
+		} else {
+			fmt.Fprintf(w, "* the worse of the float design and its taps %s, as they will be built: the verdict needs both to meet", what)
+			if unjudged > 0 {
+				fmt.Fprintf(w, " (the float design's where the rounded taps were not judged)")
+			}
+		}
 		if rep.Spec.Words.CoefficientsMode == "auto" {
 			fmt.Fprintf(w, "; memory counts %d-bit coefficient words, report.json's fixed_memory_bits the chosen widths", cost.FloatCoefBits)
 		}

@@ -58,3 +58,49 @@ func TestTableLanesColumn(t *testing.T) {
 		}
 	}
 }
+
+// A chain judged on its rounded taps whose word lengths could not be
+// planned shows its float design's figures, and the table says so: on its
+// row and in the footnote, which otherwise promises the worse of float and
+// rounded; CheckReason names the widths that would fit when AddWordLengths
+// found them.
+func TestTableUnjudgedRoundedTaps(t *testing.T) {
+	coef := 36
+	judged := Chain{Notation: "cic5m1r16 > fir4", VerdictBasis: "rounded taps", MeetsTargets: true, FloatMeetsTargets: true,
+		AliasRejectionDB: 96, PassbandRippleDB: 0.05, ChainReport: &fixed.ChainReport{QuantisedRejectionDB: 95.5, QuantisedRippleDB: 0.06}, Designed: true}
+	unjudged := Chain{Notation: "cic7m1r32 > fir2", VerdictBasis: "rounded taps", FloatMeetsTargets: true,
+		AliasRejectionDB: 98.6, PassbandRippleDB: 0.0673, Designed: true,
+		WordLengthsError: "stage 2: accumulator of 28-bit data and 36-bit coefficients needs 64 bits; at most 63 are supported"}
+	for _, tc := range []struct {
+		front      []Chain
+		row, foot  string
+		worseFirst bool
+	}{
+		{[]Chain{unjudged}, "misses spec (float figures: rounded taps not judged)", "* the float design's figures: its taps rounded to 36 bits, as they will be built, were not judged", false},
+		{[]Chain{judged, unjudged}, "misses spec (float figures: rounded taps not judged)", "(the float design's where the rounded taps were not judged)", true},
+		{[]Chain{judged}, "designed", "the verdict needs both to meet\n", true},
+	} {
+		rep := &Report{Front: tc.front}
+		rep.Spec.Words.Coefficients = &coef
+		rep.Spec.Words.CoefficientsMode = "fixed"
+		var b bytes.Buffer
+		WriteTable(&b, rep)
+		got := b.String()
+		if !strings.Contains(got, tc.row) || !strings.Contains(got, tc.foot) {
+			t.Errorf("front of %d: want %q and %q in\n%s", len(tc.front), tc.row, tc.foot, got)
+		}
+		if worse := strings.Contains(got, "* the worse of the float design"); worse != tc.worseFirst {
+			t.Errorf("front of %d: footnote promises the worse of float and rounded: %v, want %v\n%s", len(tc.front), worse, tc.worseFirst, got)
+		}
+	}
+	// The figures of an unjudged chain are its float design's.
+	if rej, rip := unjudged.BuiltFigures(); rej != 98.6 || rip != 0.0673 {
+		t.Errorf("unjudged BuiltFigures = %v, %v: want the float design's", rej, rip)
+	}
+	if rej, rip := judged.BuiltFigures(); rej != 95.5 || rip != 0.06 {
+		t.Errorf("judged BuiltFigures = %v, %v: want the worse of float and rounded", rej, rip)
+	}
+	if got := CheckReason(unjudged, Spec{RejectionDB: 95, RippleDB: 0.1}); !strings.Contains(got, "cannot be judged with its taps rounded: stage 2: accumulator") {
+		t.Errorf("CheckReason = %q", got)
+	}
+}
