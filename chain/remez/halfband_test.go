@@ -57,8 +57,18 @@ func checkHalfBand(t *testing.T, res *Result, fp, rate float64) {
 	}
 	bands := []Band{{Lo: 0, Hi: fp, Gain: 1, Weight: 1}, {Lo: rate/2 - fp, Hi: rate / 2, Gain: 0, Weight: 1}}
 	dev, _ := rippleCheck(h, rate, bands, 64)
+	// Two evaluations of the amplitude (the design's and rippleCheck's)
+	// may differ by their rounding, at most n units of 2^-53 of the sum of
+	// the |taps| each (the standard bound on a sum of n rounded terms, from
+	// memory): it dominates a deviation near 1e-11, and it differs between
+	// targets that fuse multiply-adds and those that do not.
+	sumAbs := 0.0
+	for _, v := range h {
+		sumAbs += math.Abs(v)
+	}
+	rounding := 2 * float64(n) * 0x1p-53 * sumAbs
 	for b := range bands {
-		if math.Abs(dev[b]-res.Deviations[b]) > 1e-6*dev[b] {
+		if math.Abs(dev[b]-res.Deviations[b]) > 1e-6*dev[b]+rounding {
 			t.Errorf("band %d: reported %.9g, measured %.9g", b, res.Deviations[b], dev[b])
 		}
 	}
