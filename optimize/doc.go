@@ -322,7 +322,11 @@
 // at most twelve, while the estimate is within twice the cheapest
 // designed chain that meets; the front is taken over the designed ones.
 // The designed set is decided one plan at a time, so it is the same for
-// any Jobs.
+// any Jobs. The fractional chains are judged on their float designs; with
+// chain.Spec.CoefBits set, a designed chain's word lengths are planned
+// (fixed.PlanChain) and a chain they cannot be planned for is dropped
+// under ReasonWordLengths, its accumulator excess counted in
+// Result.AccumulatorExcess, as for an integer chain.
 //
 // # Recommendation
 //

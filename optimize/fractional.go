@@ -9,6 +9,7 @@ import (
 	"slices"
 
 	"github.com/stepdown-dsp/stepdown/chain"
+	"github.com/stepdown-dsp/stepdown/chain/fixed"
 	"github.com/stepdown-dsp/stepdown/cost"
 )
 
@@ -386,11 +387,16 @@ func planFractional(ctx context.Context, spec chain.Spec, s Settings) (*Result, 
 		}
 	}
 	res.Candidates += len(plans)
-	// Word lengths of fractional chains are not planned: the search
-	// ranks them on their float designs.
+	// Fractional chains are ranked on their float designs. With the
+	// coefficient width fixed, a chain's word lengths are planned once it
+	// meets in floating point, and a chain they cannot be planned for (an
+	// accumulator past fixed.MaxAccumulatorBits) is dropped under
+	// ReasonWordLengths, as an integer chain is; whether its rounded taps
+	// meet is judged by the caller's report, not here.
 	fspec := spec
 	fspec.CoefBits = 0
 	des := realDesigner{ctx: ctx, spec: fspec, s: &s}
+	planWords := spec.CoefBits > 0 && spec.CoefBits <= fixed.MaxBits
 	// The estimate tier: every plan estimated (Herrmann lengths; a Farrow
 	// stage is designed, it is small) and priced; the plans are designed
 	// in order of their estimate, a batch of jobs at a time, until the
@@ -435,6 +441,11 @@ func planFractional(ctx context.Context, spec chain.Spec, s Settings) (*Result, 
 				if w == "" {
 					c, w = des.analyze(c)
 				}
+				if w == "" && planWords {
+					if _, _, err := fixed.PlanChainContext(ctx, spec, c.Chain, s.Fixed); err != nil && ctx.Err() == nil {
+						c, w = Candidate{acc: accumulatorError(err)}, ReasonWordLengths
+					}
+				}
 				outs[i+b], whys[i+b] = c, w
 			}, nil)
 			for b := range batch {
@@ -448,6 +459,9 @@ func planFractional(ctx context.Context, spec chain.Spec, s Settings) (*Result, 
 		res.Designed++
 		if whys[i] != "" {
 			res.Dropped[whys[i]]++
+			if a := outs[i].acc; a != nil {
+				res.AccumulatorExcess.Add(a)
+			}
 		} else {
 			ok = append(ok, outs[i])
 			best = math.Min(best, costAxis(&outs[i].Figures))

@@ -8,6 +8,7 @@ import (
 	"time"
 
 	"github.com/stepdown-dsp/stepdown/chain"
+	"github.com/stepdown-dsp/stepdown/chain/fixed"
 )
 
 // TestPlanFractional plans an invented fractional spec (100 MHz down to
@@ -103,5 +104,43 @@ func TestPlanFractionalStopped(t *testing.T) {
 		if err != nil || !r.Partial {
 			t.Errorf("deadline %v: %v, partial %v", d, err, r != nil && r.Partial)
 		}
+	}
+}
+
+// TestFractionalWordLengths: with the coefficient width fixed, a fractional
+// chain whose accumulators would pass 63 bits is dropped as an integer
+// chain is (ReasonWordLengths), and Result.AccumulatorExcess names the
+// coefficient width at which the closest fits. An invented I/Q receiver,
+// 12 MHz to 5 MHz (12/5), with a 32-bit input word and 40-bit coefficients:
+// a front chain's word lengths must then plan (fixed.PlanChain) at the
+// width named, and one bit wider must drop them all again.
+func TestFractionalWordLengths(t *testing.T) {
+	spec := chain.Spec{InputRate: 12e6, OutputRate: 5e6, Passband: 1.8e6, RippleDB: 0.1, RejectionDB: 70, Complex: true,
+		InputBits: 32, OutputBits: 24, CoefBits: 40}
+	res, err := Plan(context.Background(), spec, Settings{})
+	if err != nil {
+		t.Fatal(err)
+	}
+	if len(res.Front) != 0 || res.Dropped[ReasonWordLengths] == 0 || res.AccumulatorExcess.Coefficients == 0 {
+		t.Fatalf("40-bit coefficients: front of %d, %d dropped for word lengths, excess %+v: want every chain dropped with its excess",
+			len(res.Front), res.Dropped[ReasonWordLengths], res.AccumulatorExcess)
+	}
+	fit := spec.CoefBits - res.AccumulatorExcess.Coefficients
+	spec.CoefBits = fit
+	res, err = Plan(context.Background(), spec, Settings{})
+	if err != nil {
+		t.Fatal(err)
+	}
+	if len(res.Front) == 0 {
+		t.Fatalf("%d-bit coefficients, as the excess says: empty front (dropped %v)", fit, res.Dropped)
+	}
+	for _, c := range res.Front {
+		if _, _, err := fixed.PlanChain(spec, c.Chain, fixed.Settings{}); err != nil {
+			t.Errorf("%d-bit coefficients: %s on the front, but its word lengths do not plan: %v", fit, chain.Notation(c.Plan), err)
+		}
+	}
+	spec.CoefBits = fit + 1
+	if res, err = Plan(context.Background(), spec, Settings{}); err != nil || len(res.Front) != 0 {
+		t.Errorf("%d-bit coefficients, one more than the excess allows: front of %d, err %v", fit+1, len(res.Front), err)
 	}
 }
