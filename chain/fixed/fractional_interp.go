@@ -2,9 +2,11 @@ package fixed
 
 import (
 	"fmt"
+	"maps"
 	"math"
 	"math/big"
 	"math/bits"
+	"slices"
 
 	"github.com/stepdown-dsp/stepdown/chain/farrow"
 )
@@ -134,7 +136,10 @@ func planFarrowT(sw StageWidths, st Stage, in, ob int) (StageWidths, error) {
 	lo, hi := new(big.Int), new(big.Int)
 	sw.PhaseGainMin, sw.PhaseGainMax = math.Inf(1), math.Inf(-1)
 	total := 0.0
-	for _, ph := range phases {
+	// In phase order: the gains' float sum must not depend on the map's
+	// iteration order (report.json is the same bytes run after run).
+	for _, k := range slices.Sorted(maps.Keys(phases)) {
+		ph := phases[k]
 		if ph.lo.Cmp(lo) < 0 {
 			lo.Set(ph.lo)
 		}

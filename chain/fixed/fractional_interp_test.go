@@ -350,3 +350,24 @@ func TestFracInterpQuantisedAnalyzeBruteForce(t *testing.T) {
 	}
 	t.Logf("Analyze at most %.4f dB below the dense scan; bit-true image tones within %.3f dB of the response (%d valid)", worstGap, worstTone, checked)
 }
+
+// TestFarrowTPlanRepeats: planning a transposed Farrow stage's widths
+// gives the same phase gains bit for bit every time (they were summed over
+// a map in its random order: report.json differed run to run).
+func TestFarrowTPlanRepeats(t *testing.T) {
+	rng := rand.New(rand.NewPCG(17, 5))
+	for range 12 {
+		spec, c, _, res := plannedFracInterp(t, rng, true)
+		want := res.Widths.Stages[0]
+		for range 4 {
+			again, err := Evaluate(spec, c, Settings{}, Signal{})
+			if err != nil {
+				t.Fatal(err)
+			}
+			got := again.Widths.Stages[0]
+			if math.Float64bits(got.Gain) != math.Float64bits(want.Gain) || got.PhaseGainMin != want.PhaseGainMin || got.PhaseGainMax != want.PhaseGainMax {
+				t.Fatalf("%s: gain %v then %v", chain.Notation(c.Plan), want.Gain, got.Gain)
+			}
+		}
+	}
+}
