@@ -18,6 +18,11 @@ func ReadFile(path string, opt Options) (*Signal, Format, error) {
 		return nil, Format{}, err
 	}
 	opt.Format = f
+	// Checked before opening: a named pipe with no writer would block the
+	// open (and with it Ctrl-C and --timeout).
+	if st, err := os.Stat(path); err == nil && !st.Mode().IsRegular() {
+		return nil, Format{}, fmt.Errorf("%s: not a regular file", path)
+	}
 	fh, err := os.Open(path)
 	if err != nil {
 		return nil, Format{}, fmt.Errorf("%s: cannot open: %v", path, unwrapPath(err))

@@ -15,6 +15,7 @@ import (
 	"sort"
 	"strconv"
 	"strings"
+	"syscall"
 	"time"
 
 	"github.com/BurntSushi/toml"
@@ -232,7 +233,14 @@ func LoadText(path string) (*Spec, []byte, error) {
 	case fi.Size() > MaxFileSize:
 		return fail("spec file is %d bytes, over the %s limit; a spec is a few hundred bytes", fi.Size(), sizeText)
 	}
-	f, err := os.Open(path)
+	flag := os.O_RDONLY
+	if !fi.Mode().IsRegular() {
+		// A named pipe with no writer would block the open itself (and
+		// with it Ctrl-C and --timeout): opened without waiting, it reads
+		// as empty.
+		flag |= syscall.O_NONBLOCK
+	}
+	f, err := os.OpenFile(path, flag, 0)
 	if err != nil {
 		return fail("spec file cannot be read: %v", unwrapPath(err))
 	}

@@ -3,6 +3,7 @@ package report
 import (
 	"encoding/json"
 	"fmt"
+	"io"
 	"os"
 	"path/filepath"
 	"reflect"
@@ -191,6 +192,11 @@ func (r *Report) Compare(cmp *Comparison) {
 	r.BeatenBy = append([]Beater{}, BeatenBy(c, plan)...)
 }
 
+// maxComparisonBytes bounds the report.json ReadComparison reads: far
+// above any plan's (a few MB with long filters), far below what would
+// strain the memory bound.
+const maxComparisonBytes = 64 << 20
+
 // ReadComparison reads the front of a plan's report.json at path, which
 // must be a complete plan (not stopped early) of a spec that prices chains
 // as spec does: the same rates, band edges, targets, signal, words,
@@ -198,13 +204,34 @@ func (r *Report) Compare(cmp *Comparison) {
 // comparison's Source names the file by its base name only.
 func ReadComparison(path string, spec *specfile.Spec) (*Comparison, error) {
 	shown := units.Clip(path, units.MaxEcho)
-	b, err := os.ReadFile(path)
+	// Checked before opening: a named pipe would block the open, and a
+	// device or a huge file would be read whole.
+	fi, err := os.Stat(path)
 	if err != nil {
 		return nil, fmt.Errorf("--front %q: %v", shown, unwrapPath(err))
 	}
+	if !fi.Mode().IsRegular() {
+		return nil, fmt.Errorf("--front %q: not a regular file; want the report.json a plan wrote", shown)
+	}
+	if fi.Size() > maxComparisonBytes {
+		return nil, fmt.Errorf("--front %q: %d bytes, over the %d MiB limit of a report.json to compare with", shown, fi.Size(), maxComparisonBytes>>20)
+	}
+	f, err := os.Open(path)
+	if err != nil {
+		return nil, fmt.Errorf("--front %q: %v", shown, unwrapPath(err))
+	}
+	defer f.Close()
+	b, err := io.ReadAll(io.LimitReader(f, maxComparisonBytes+1))
+	if err != nil {
+		return nil, fmt.Errorf("--front %q: %v", shown, unwrapPath(err))
+	}
+	if len(b) > maxComparisonBytes {
+		return nil, fmt.Errorf("--front %q: over the %d MiB limit of a report.json to compare with", shown, maxComparisonBytes>>20)
+	}
 	var rep Report
 	if err := json.Unmarshal(b, &rep); err != nil {
-		return nil, fmt.Errorf("--front %q: not a stepdown report.json (%s)", shown, units.Clip(err.Error(), units.MaxEcho))
+		// JSON's own wording names characters and Go types: said plainly.
+		return nil, fmt.Errorf("--front %q: not a stepdown report.json (not valid JSON of a report)", shown)
 	}
 	if rep.Schema != Schema {
 		return nil, fmt.Errorf("--front %q: not a stepdown report.json (schema %q, want %q)", shown, units.Clip(rep.Schema, 30), Schema)
