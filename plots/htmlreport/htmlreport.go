@@ -516,7 +516,7 @@ func planCautions(r *report.Report) []string {
 		// No word lengths: nothing is rounded, whatever words.coefficients says.
 		out = append(out, fmt.Sprintf("The chain ends in a fractional stage, designed in floating point alone: rejection and ripple are those of floating-point coefficients whatever the spec's coefficient width, memory counts %d-bit coefficient words (the pricing default), and there are no word lengths, no integer or $readmemh files and no hand-off (headers/, vectors/, rtl/), which are made for chains of integer stages only.", cost.FloatCoefBits))
 	} else if r.Spec.Words.CoefficientsMode == "auto" {
-		out = append(out, fmt.Sprintf("Coefficient widths are automatic: the narrowest widths with which the whole chain meets the spec once its taps are rounded; the verdicts, rejection and ripple in the table are those of the rounded taps; memory in the table counts %d-bit coefficient words (the pricing default), the word-length figures in report.json count the chosen widths.", cost.FloatCoefBits))
+		out = append(out, fmt.Sprintf("Coefficient widths are automatic: the narrowest widths with which the whole chain meets the spec once its taps are rounded; the verdicts, rejection and ripple in the table are those of the rounded taps (the floating-point design's where the rounded taps could not be judged); memory in the table counts %d-bit coefficient words (the pricing default), the word-length figures in report.json count the chosen widths.", cost.FloatCoefBits))
 	} else if r.Spec.Words.Coefficients == nil {
 		out = append(out, fmt.Sprintf("No coefficient width was given: rejection and ripple are those of floating-point coefficients, memory counts %d-bit coefficient words (the pricing default), and no integer or $readmemh files were written.", cost.FloatCoefBits))
 	} else {
@@ -572,7 +572,10 @@ func frontRows(front []report.Chain, rec int, clock bool) []frontRow {
 		if !c.Designed {
 			tags = append(tags, "estimated")
 		}
-		if !c.MeetsTargets {
+		switch {
+		case !c.MeetsTargets && c.Unjudged():
+			tags = append(tags, "misses spec (float figures: rounded taps not judged)")
+		case !c.MeetsTargets:
 			tags = append(tags, "misses spec")
 		}
 		row.Tag = strings.Join(tags, ", ")

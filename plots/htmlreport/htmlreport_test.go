@@ -453,3 +453,14 @@ multiplierless = true
 		t.Error("the front table still heads its cost column mult/out")
 	}
 }
+
+// A front row whose rounded taps could not be judged says its figures are
+// the float design's (report.Chain.Unjudged), as the text table does.
+func TestFrontRowUnjudged(t *testing.T) {
+	c := report.Chain{Notation: "cic7m1r32 > fir2", VerdictBasis: "rounded taps", Designed: true,
+		AliasRejectionDB: 98.6, PassbandRippleDB: 0.0673, WordLengthsError: "stage 2: accumulator needs 64 bits"}
+	rows := frontRows([]report.Chain{c}, 0, false)
+	if len(rows) != 1 || !strings.Contains(rows[0].Tag, "float figures: rounded taps not judged") || rows[0].Rejection != "98.60" {
+		t.Errorf("row %+v: want the float figures, said so", rows)
+	}
+}

@@ -214,7 +214,8 @@ type Chain struct {
 	AliasRejectionDB float64 `json:"alias_rejection_db"`
 	// RejectionMarginDB is the verdict's rejection over the target: the
 	// worse of the rounded taps' and the float design's when VerdictBasis
-	// is "rounded taps", the float design's otherwise.
+	// is "rounded taps" and they were judged, the float design's otherwise
+	// (Unjudged).
 	RejectionMarginDB float64 `json:"rejection_margin_db"`
 	WorstAliasHz      float64 `json:"worst_alias_hz"`
 	// WorstAliasPath and WorstAliasOutputHz, for a chain with a
@@ -584,6 +585,10 @@ func fractionalLM(up, down int, interp bool) (l, m int) {
 	return up, down
 }
 
+// StoppedBeforeWordLengths is the word_lengths_error of a chain whose word
+// lengths were not planned because the run was stopped.
+const StoppedBeforeWordLengths = "not planned: the run was stopped (--timeout or an interrupt) before the word lengths"
+
 // AddWordLengths runs package chain/fixed's word-length planner and bit-true
 // run (fixed.Evaluate) on cand's chain and puts the figures into c, which
 // NewChain made from cand. spec is the normalised chain spec the planner
@@ -619,12 +624,12 @@ func AddWordLengths(ctx context.Context, c *Chain, spec chain.Spec, cand optimiz
 		return
 	}
 	if ctx.Err() != nil {
-		c.WordLengthsError = "not planned: the run was stopped (--timeout or an interrupt) before the word lengths"
+		c.WordLengthsError = StoppedBeforeWordLengths
 		return
 	}
 	res, err := fixed.EvaluateContext(ctx, spec, cand.Chain, s, fixed.Signal{})
 	if ctx.Err() != nil {
-		c.WordLengthsError = "not planned: the run was stopped (--timeout or an interrupt) before the word lengths"
+		c.WordLengthsError = StoppedBeforeWordLengths
 		return
 	}
 	if err != nil {

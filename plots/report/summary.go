@@ -188,7 +188,7 @@ func WriteTable(w io.Writer, rep *Report) {
 			kind = "designed"
 		}
 		switch {
-		case !ch.MeetsTargets && rep.Partial && ch.Unjudged():
+		case !ch.MeetsTargets && rep.Partial && ch.Unjudged() && ch.WordLengthsError == StoppedBeforeWordLengths:
 			// Stopped before its word lengths: its rounded taps are not judged.
 			kind += ", not judged (stopped)"
 			unjudged++

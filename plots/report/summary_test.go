@@ -93,6 +93,18 @@ func TestTableUnjudgedRoundedTaps(t *testing.T) {
 			t.Errorf("front of %d: footnote promises the worse of float and rounded: %v, want %v\n%s", len(tc.front), worse, tc.worseFirst, got)
 		}
 	}
+	// In a stopped run, only a chain stopped before its word lengths is
+	// "not judged (stopped)"; one whose words could not be planned says so.
+	stopped := unjudged
+	stopped.WordLengthsError = StoppedBeforeWordLengths
+	rep := &Report{Front: []Chain{stopped, unjudged}, Partial: true}
+	rep.Spec.Words.Coefficients = &coef
+	var b bytes.Buffer
+	WriteTable(&b, rep)
+	if got := b.String(); strings.Count(got, "not judged (stopped)") != 1 || strings.Count(got, "float figures: rounded taps not judged") != 1 ||
+		!strings.Contains(got, "were not judged") {
+		t.Errorf("stopped run: want one stopped row, one unplanned row and the float footnote:\n%s", got)
+	}
 	// The figures of an unjudged chain are its float design's.
 	if rej, rip := unjudged.BuiltFigures(); rej != 98.6 || rip != 0.0673 {
 		t.Errorf("unjudged BuiltFigures = %v, %v: want the float design's", rej, rip)
