@@ -1,6 +1,7 @@
 package optimize
 
 import (
+	"fmt"
 	"math"
 
 	"github.com/stepdown-dsp/stepdown/chain"
@@ -10,6 +11,7 @@ import (
 // and the stage kinds and CIC parameters to try.
 type space struct {
 	d         int
+	interp    bool // params.interp
 	maxStages int
 	cic       bool
 	halfBand  bool
@@ -304,4 +306,13 @@ func cmpInt(a, b int) int {
 		return 1
 	}
 	return 0
+}
+
+// ratio names the search's ratio in messages: "decimation d", or
+// "interpolation d" for an interpolation spec searched as its transpose.
+func (sp *space) ratio() string {
+	if sp.interp {
+		return fmt.Sprintf("interpolation %d", sp.d)
+	}
+	return fmt.Sprintf("decimation %d", sp.d)
 }

@@ -140,7 +140,7 @@ func (s *Settings) check() error {
 
 // newSpace fills in the settings' defaults for ratio d.
 func newSpace(p *params, s *Settings) *space {
-	sp := &space{d: p.d, maxStages: s.MaxStages, orders: s.CICOrders, delays: s.CICDelays}
+	sp := &space{d: p.d, interp: p.interp, maxStages: s.MaxStages, orders: s.CICOrders, delays: s.CICDelays}
 	if sp.maxStages == 0 {
 		sp.maxStages = DefaultMaxStages
 	}
@@ -1536,11 +1536,11 @@ func tooLarge(sp *space, n int64) error {
 		}
 	}
 	if fit == 0 {
-		return fmt.Errorf("optimize: decimation %d within %d stages gives %s candidates, more than the %d this search scores; narrow Kinds, CICOrders or CICDelays",
-			sp.d, stages, countString(n), MaxCandidates)
+		return fmt.Errorf("optimize: %s within %d stages gives %s candidates, more than the %d this search scores; narrow Kinds, CICOrders or CICDelays",
+			sp.ratio(), stages, countString(n), MaxCandidates)
 	}
-	return fmt.Errorf("optimize: decimation %d within %d stages gives %s candidates, more than the %d this search scores; MaxStages = %d is the most that fits (%d candidates), or narrow Kinds, CICOrders or CICDelays",
-		sp.d, stages, countString(n), MaxCandidates, fit, fitN)
+	return fmt.Errorf("optimize: %s within %d stages gives %s candidates, more than the %d this search scores; MaxStages = %d is the most that fits (%d candidates), or narrow Kinds, CICOrders or CICDelays",
+		sp.ratio(), stages, countString(n), MaxCandidates, fit, fitN)
 }
 
 // errNoCandidate marks noCandidate's refusals.
@@ -1574,8 +1574,8 @@ func noCandidate(sp *space) error {
 		t := *sp
 		t.maxStages, t.memo = m, nil
 		if t.count() > 0 {
-			return errorf("optimize: decimation %d within %d %s gives no candidate %s; MaxStages = %d is the least that gives one",
-				sp.d, sp.maxStages, stages, why, m)
+			return errorf("optimize: %s within %d %s gives no candidate %s; MaxStages = %d is the least that gives one",
+				sp.ratio(), sp.maxStages, stages, why, m)
 		}
 	}
 	n := sp.d
@@ -1588,7 +1588,7 @@ func noCandidate(sp *space) error {
 		return errorf("optimize: decimation %d has the prime factor %d, above the %d one stage can take: no chain of integer stages makes it; choose rates whose ratio has no prime factor above %d",
 			sp.d, n, chain.MaxStageFactor, chain.MaxStageFactor)
 	}
-	return errorf("optimize: decimation %d gives no candidate %s: widen Kinds", sp.d, why)
+	return errorf("optimize: %s gives no candidate %s: widen Kinds", sp.ratio(), why)
 }
 
 func countString(n int64) string {

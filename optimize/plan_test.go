@@ -386,3 +386,14 @@ func TestCancelPartial(t *testing.T) {
 	}
 	t.Logf("partial after %d designs: front of %d", r.Designed, len(r.Front))
 }
+
+// TestRefuseInterpolation: an interpolation spec too large to search is
+// refused in its own terms ("interpolation", not the decimation it is
+// searched as). An invented 10 kHz to 10 GHz transmitter.
+func TestRefuseInterpolation(t *testing.T) {
+	spec := chain.Spec{InputRate: 10e3, OutputRate: 10e9, Passband: 3e3, RippleDB: 0.1, RejectionDB: 80}
+	_, err := optimize.Plan(context.Background(), spec, optimize.Settings{})
+	if err == nil || !strings.Contains(err.Error(), "interpolation 1000000 within") || strings.Contains(err.Error(), "decimation") {
+		t.Errorf("err = %v", err)
+	}
+}

@@ -1335,6 +1335,8 @@ var libraryPhrases = []struct {
 		"widen the transition bands (passband to stopband) or relax ripple or rejection"},
 	{regexp.MustCompile(`(?:Settings\.)?[Mm]axTaps = (\d+)`), "the tap limit of $1 taps"},
 	{regexp.MustCompile(`MaxError`), "the allowed error"},
+	{regexp.MustCompile(`Settings\.Density = \d+ leaves no length within MaxGridPoints = (\d+): lower the density`),
+		"a filter this long needs a design grid of more than $1 points: split the ratio into more stages (smaller factors need shorter filters) or relax ripple or rejection"},
 }
 
 // libraryWords are the optimize settings that mirror spec keys.

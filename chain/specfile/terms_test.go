@@ -50,6 +50,18 @@ func TestInFileTerms(t *testing.T) {
 	// remez.MinLength's messages).
 	msgs = append(msgs, "chain: FIR design: exchange did not converge: remez: MinLength: 7102 taps fail and 7104 taps are met only to rounding level (no usable taps): relax or tighten the bands")
 
+	// A filter whose grid is over the engine's bound (remez.MinLength's
+	// own message at 1.1 M taps of a 0.5 % transition).
+	huge := []remez.Band{{Lo: 0, Hi: 0.1, Gain: 1, MaxError: 1e-3}, {Lo: 0.1000001, Hi: 0.5, MaxError: 1e-5}}
+	if _, err := remez.MinLength(1, huge, 1, 4_000_001, remez.Settings{GridOnly: true, Density: 1 << 20}); err == nil {
+		t.Error("remez.MinLength: no error for a grid over its bound")
+	} else {
+		grid := InFileTerms(err.Error())
+		if !strings.Contains(grid, "design grid of more than") || strings.Contains(grid, "Density") || strings.Contains(grid, "MaxGridPoints") {
+			t.Errorf("grid refusal in the spec's words: %q", grid)
+		}
+	}
+
 	for _, m := range msgs {
 		got := InFileTerms(m)
 		for _, goWord := range []string{"MinLength", "MaxStages", "Kinds", "CICOrders", "CICDelays", "MaxDesigns", "MaxWork", "maxTaps", "MaxTaps", "MaxError", "Dropped", "optimize:", "remez:", "chain:"} {
