@@ -229,6 +229,11 @@ func runSimulate(c *cli.Context) error {
 	if err != nil {
 		return usagef("--input %s: %s", clip(filepath.Base(input)), libMessage(err))
 	}
+	// Each later phase takes seconds on long inputs: a stop is looked for
+	// between them.
+	if c.Context.Err() != nil {
+		return fmt.Errorf("interrupted; %s left as it was", clip(j.out.Dir()))
+	}
 	bands := simulate.Bands{PassbandHz: cs.Passband, ProtectedHz: cs.Protected, OutputRateHz: res.OutputRateHz}
 	if n := len(cand.Chain.Stages); n > 0 {
 		switch st := cand.Chain.Stages[n-1].(type) {
@@ -240,10 +245,16 @@ func runSimulate(c *cli.Context) error {
 	}
 	lv := res.Measure(inSp, outSp, bands)
 	notation := j.spec.Chain.Direction().Notation(cand.Plan)
+	if c.Context.Err() != nil {
+		return fmt.Errorf("interrupted; %s left as it was", clip(j.out.Dir()))
+	}
 
 	files, rep, err := simFiles(res, sig, format, inSp, outSp, bands, lv, notation, filepath.Base(input))
 	if err != nil {
 		return err
+	}
+	if c.Context.Err() != nil {
+		return fmt.Errorf("interrupted; %s left as it was", clip(j.out.Dir()))
 	}
 	rep.SpecSHA256, rep.ChainSource = j.spec.SHA256, source
 	rep.Notes = append(notes, rep.Notes...)
@@ -414,7 +425,9 @@ func simFiles(res *simulate.Result, in *signalio.Signal, format signalio.Format,
 // floatCSV writes the float chain's output: one line per sample, x or i,q,
 // in fractions of full scale.
 func floatCSV(res *simulate.Result) []byte {
-	var b []byte
+	// Sized up front (at most 20 bytes a value, as 'g' with 12 digits
+	// writes them): growing by doubling would hold the text nearly twice.
+	b := make([]byte, 0, 128+len(res.Float)*21*len(res.Float[0]))
 	b = append(b, "# stepdown simulate: the float chain's output (same structure and gains as the bit-true one, unrounded taps), fractions of full scale; planning data\n"...)
 	if len(res.Float) == 2 {
 		b = append(b, "i,q\n"...)
