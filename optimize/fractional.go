@@ -443,7 +443,7 @@ func planFractional(ctx context.Context, spec chain.Spec, s Settings) (*Result, 
 				}
 				if w == "" && planWords {
 					if _, _, err := fixed.PlanChainContext(ctx, spec, c.Chain, s.Fixed); err != nil && ctx.Err() == nil {
-						c, w = Candidate{acc: accumulatorError(err)}, ReasonWordLengths
+						c, w = Candidate{acc: fixed.AsAccumulatorError(err)}, ReasonWordLengths
 					}
 				}
 				outs[i+b], whys[i+b] = c, w

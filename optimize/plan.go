@@ -354,7 +354,7 @@ func (r realDesigner) measure(c Candidate) (Candidate, Reason) {
 			// adders report.json states, not on taps at a stand-in width.
 			ws, _, err := fixed.PlanChainContext(r.ctx, r.spec, c.Chain, r.s.Fixed)
 			if err != nil {
-				return Candidate{acc: accumulatorError(err)}, ReasonWordLengths
+				return Candidate{acc: fixed.AsAccumulatorError(err)}, ReasonWordLengths
 			}
 			if err := c.Figures.CountInts(cx(c.Chain), planInts(ws)); err != nil {
 				return Candidate{}, ReasonWordLengths
@@ -484,7 +484,7 @@ func (r realDesigner) startWordLengths(spec chain.Spec, ch *chain.Chain) func() 
 func (r realDesigner) surviveWith(c Candidate, spec chain.Spec, wl func() (*fixed.Widths, chain.Analysis, error)) (Candidate, Reason) {
 	ws, qa, err := wl()
 	if err != nil {
-		c.acc = accumulatorError(err)
+		c.acc = fixed.AsAccumulatorError(err)
 		return c, ReasonWordLengths
 	}
 	// The stages whose rounded taps miss their own bands are blamed should
@@ -583,16 +583,6 @@ func (r realDesigner) surviveWith(c Candidate, spec chain.Spec, wl func() (*fixe
 	}
 	c.redesigns, c.blame, c.hopeless = cur.redesigns, blame, hopeless
 	return c, ReasonMissQuantised
-}
-
-// accumulatorError is the fixed.AccumulatorError a word-length plan's error
-// wraps, or nil.
-func accumulatorError(err error) *fixed.AccumulatorError {
-	var ae *fixed.AccumulatorError
-	if errors.As(err, &ae) {
-		return ae
-	}
-	return nil
 }
 
 // planInts are a word-length plan's rounded coefficients, stage by stage

@@ -714,8 +714,8 @@ func (e *AccumulatorError) Excess() int {
 	return max(e.FirstExcess, e.LaterExcess, e.NeedBits-MaxAccumulatorBits)
 }
 
-// accumulatorError is the AccumulatorError err wraps, or nil.
-func accumulatorError(err error) *AccumulatorError {
+// AsAccumulatorError is the AccumulatorError err wraps, or nil.
+func AsAccumulatorError(err error) *AccumulatorError {
 	var ae *AccumulatorError
 	if errors.As(err, &ae) {
 		return ae
@@ -733,7 +733,7 @@ type accumulators struct {
 
 // add records stage i's error; it reports whether err was one.
 func (a *accumulators) add(err error, i int) bool {
-	ae := accumulatorError(err)
+	ae := AsAccumulatorError(err)
 	if ae == nil {
 		return false
 	}

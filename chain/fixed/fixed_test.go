@@ -519,7 +519,7 @@ func TestPlanAccumulatorErrorGoesOn(t *testing.T) {
 	w := Words{InputBits: 32, DataBits: 30, OutputBits: 30, CoefBits: 40}
 	need := func(st Stage, in, out int) int {
 		_, err := Plan(Cascade{InputRate: c.InputRate, Passband: c.Passband, Stages: []Stage{st}}, Words{InputBits: in, OutputBits: out, CoefBits: w.CoefBits}, Settings{})
-		ae := accumulatorError(err)
+		ae := AsAccumulatorError(err)
 		if ae == nil {
 			t.Fatalf("stage %+v alone at %d bits: %v, want an AccumulatorError", st.R, in, err)
 		}
@@ -528,7 +528,7 @@ func TestPlanAccumulatorErrorGoesOn(t *testing.T) {
 	first, later := need(c.Stages[0], w.InputBits, w.DataBits), need(c.Stages[1], w.DataBits, w.OutputBits)
 	for _, unity := range []bool{false, true} {
 		ws, err := Plan(c, w, Settings{UnityGain: unity})
-		ae := accumulatorError(err)
+		ae := AsAccumulatorError(err)
 		if ws != nil || ae == nil {
 			t.Fatalf("UnityGain %v: widths %v, error %v; want no plan and an AccumulatorError", unity, ws != nil, err)
 		}
@@ -560,7 +560,7 @@ func TestAccumulatorsGather(t *testing.T) {
 	a.add(e(24, 66, false), 2) // 3 over, fits at 21
 	a.add(e(24, 65, false), 1) // 2 over, fits at 22
 	a.add(e(30, 68, false), 0) // the first stage: 5 over, fits at 25
-	got := accumulatorError(a.err())
+	got := AsAccumulatorError(a.err())
 	if got == nil || !strings.HasPrefix(a.err().Error(), "fixed: stage 1:") || got.DataBits != 30 || got.NeedBits != 68 {
 		t.Fatalf("the first stage's error should lead: %v", a.err())
 	}
@@ -570,7 +570,7 @@ func TestAccumulatorsGather(t *testing.T) {
 	var b accumulators
 	b.add(e(24, 65, false), 1)
 	b.add(e(20, 90, true), 2) // mu products: no data word fits them
-	if got := accumulatorError(b.err()); got.BetweenFits != -1 || got.LaterExcess != 27 || got.FirstExcess != 0 {
+	if got := AsAccumulatorError(b.err()); got.BetweenFits != -1 || got.LaterExcess != 27 || got.FirstExcess != 0 {
 		t.Errorf("with a Farrow stage's mu products: %+v", *got)
 	}
 }

@@ -4,7 +4,6 @@ import (
 	"bytes"
 	"context"
 	"encoding/json"
-	"errors"
 	"fmt"
 	"math"
 	"reflect"
@@ -634,8 +633,7 @@ func AddWordLengths(ctx context.Context, c *Chain, spec chain.Spec, cand optimiz
 	}
 	if err != nil {
 		c.WordLengthsError = strings.TrimPrefix(err.Error(), "fixed: ")
-		var ae *fixed.AccumulatorError
-		if errors.As(err, &ae) {
+		if ae := fixed.AsAccumulatorError(err); ae != nil {
 			var a optimize.AccumulatorExcess
 			a.Add(ae)
 			if ways := specfile.WordsToTry(a, spec); len(ways) > 0 {
