@@ -18,9 +18,14 @@
 // same plan gives the same bytes, with no timestamps.
 package handoff
 
+import "io"
+
 // File is one output file: a path relative to the output folder, with "/"
-// between folders, and its bytes.
+// between folders, and its bytes: Data, or, where Stream is set, what
+// Stream writes (for files too large to hold whole, such as a simulation's
+// output; Data is then unused).
 type File struct {
-	Name string
-	Data []byte
+	Name   string
+	Data   []byte
+	Stream func(w io.Writer) error
 }

@@ -5,6 +5,7 @@ import (
 	"encoding/json"
 	"errors"
 	"fmt"
+	"io"
 	"math"
 	"path/filepath"
 	"strconv"
@@ -349,14 +350,14 @@ func simFiles(res *simulate.Result, in *signalio.Signal, format signalio.Format,
 		for of.Bits < res.OutputBits {
 			of.Bits += 8
 		}
-		shifted := make([][]int64, len(res.Out))
-		for p, x := range res.Out {
-			shifted[p] = make([]int64, len(x))
+		// In place: a copy of a long output would cost as much memory
+		// again, and nothing reads the codes after the files.
+		for _, x := range res.Out {
 			for i, v := range x {
-				shifted[p][i] = v << uint(of.Bits-res.OutputBits)
+				x[i] = v << uint(of.Bits-res.OutputBits)
 			}
 		}
-		out = &signalio.Signal{RateHz: res.OutputRateHz, Bits: of.Bits, Samples: shifted}
+		out = &signalio.Signal{RateHz: res.OutputRateHz, Bits: of.Bits, Samples: res.Out}
 		scaling = fmt.Sprintf("the %d-bit output codes shifted up %d bits to fill %d-bit WAV samples (full scale is the container's)", res.OutputBits, of.Bits-res.OutputBits, of.Bits)
 		ext = ".wav"
 	case signalio.Raw:
@@ -372,11 +373,12 @@ func simFiles(res *simulate.Result, in *signalio.Signal, format signalio.Format,
 		scaling = fmt.Sprintf("the %d-bit output codes as they are (full scale 2^%d)", res.OutputBits, res.OutputBits-1)
 		ext = ".csv"
 	}
-	data, err := signalio.Marshal(out, of)
-	if err != nil {
-		return nil, nil, fmt.Errorf("writing the output: %v", err)
+	// Both outputs are written as they are made: held whole, a long
+	// input's would pass the memory bound.
+	files := []report.File{
+		{Name: "output" + ext, Stream: func(w io.Writer) error { return signalio.Encode(w, out, of) }},
+		{Name: "output_float.csv", Stream: func(w io.Writer) error { return writeFloatCSV(w, res) }},
 	}
-	files := []report.File{{Name: "output" + ext, Data: data}, {Name: "output_float.csv", Data: floatCSV(res)}}
 
 	sd := plots.SpectraData{
 		Title:      "Spectra through " + notation,
@@ -422,19 +424,21 @@ func simFiles(res *simulate.Result, in *signalio.Signal, format signalio.Format,
 	return files, rep, nil
 }
 
-// floatCSV writes the float chain's output: one line per sample, x or i,q,
+// writeFloatCSV writes to w the float chain's output: one line per sample, x or i,q,
 // in fractions of full scale.
-func floatCSV(res *simulate.Result) []byte {
-	// Sized up front (at most 20 bytes a value, as 'g' with 12 digits
-	// writes them): growing by doubling would hold the text nearly twice.
-	b := make([]byte, 0, 128+len(res.Float)*21*len(res.Float[0]))
-	b = append(b, "# stepdown simulate: the float chain's output (same structure and gains as the bit-true one, unrounded taps), fractions of full scale; planning data\n"...)
+func writeFloatCSV(w io.Writer, res *simulate.Result) error {
+	head := "# stepdown simulate: the float chain's output (same structure and gains as the bit-true one, unrounded taps), fractions of full scale; planning data\n"
 	if len(res.Float) == 2 {
-		b = append(b, "i,q\n"...)
+		head += "i,q\n"
 	} else {
-		b = append(b, "x\n"...)
+		head += "x\n"
 	}
+	if _, err := io.WriteString(w, head); err != nil {
+		return err
+	}
+	b := make([]byte, 0, 64)
 	for i := range res.Float[0] {
+		b = b[:0]
 		for p := range res.Float {
 			if p > 0 {
 				b = append(b, ',')
@@ -442,6 +446,9 @@ func floatCSV(res *simulate.Result) []byte {
 			b = strconv.AppendFloat(b, res.Float[p][i], 'g', 12, 64)
 		}
 		b = append(b, '\n')
+		if _, err := w.Write(b); err != nil {
+			return err
+		}
 	}
-	return b
+	return nil
 }

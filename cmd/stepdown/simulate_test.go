@@ -1,9 +1,12 @@
 package main
 
 import (
+	"bytes"
 	"encoding/json"
 	"errors"
 	"fmt"
+	"math"
+	"math/rand/v2"
 	"os"
 	"path/filepath"
 	"strconv"
@@ -11,6 +14,7 @@ import (
 	"testing"
 
 	"github.com/stepdown-dsp/stepdown/signalio"
+	"github.com/stepdown-dsp/stepdown/simulate"
 )
 
 // simulate on a recording of check's impulse stimulus gives, sample for
@@ -58,6 +62,78 @@ func TestSimulateAgreesWithVectors(t *testing.T) {
 	for _, f := range []string{"simulate.json", "output_float.csv", "spectra.png"} {
 		if fi, err := os.Stat(filepath.Join(dir, "sim", f)); err != nil || fi.Size() == 0 {
 			t.Errorf("%s: missing or empty", f)
+		}
+	}
+	// The float chain's output follows the vectors' codes (fractions of
+	// 24-bit full scale) to within the data path's rounding: a few of its
+	// LSBs on an impulse.
+	fl := readFloatCSV(t, filepath.Join(dir, "sim", "output_float.csv"))
+	for p := range want {
+		if len(fl[p]) != len(want[p]) {
+			t.Fatalf("output_float.csv path %d: %d samples, vectors %d", p, len(fl[p]), len(want[p]))
+		}
+		for i := range want[p] {
+			if d := math.Abs(fl[p][i] - float64(want[p][i])/(1<<23)); d > 8.0/(1<<23) {
+				t.Fatalf("output_float.csv path %d sample %d: %g, vectors %d/2^23 (%g LSB apart)", p, i, fl[p][i], want[p][i], d*(1<<23))
+			}
+		}
+	}
+}
+
+// readFloatCSV reads output_float.csv: its comment line, its header (x or
+// i,q), then one value a path per line.
+func readFloatCSV(t *testing.T, path string) [][]float64 {
+	t.Helper()
+	b, err := os.ReadFile(path)
+	must(t, err)
+	lines := strings.Split(strings.TrimSuffix(string(b), "\n"), "\n")
+	if len(lines) < 2 || !strings.HasPrefix(lines[0], "# stepdown simulate: ") || (lines[1] != "x" && lines[1] != "i,q") {
+		t.Fatalf("%s: head %q", path, lines[:min(2, len(lines))])
+	}
+	out := make([][]float64, len(strings.Split(lines[1], ",")))
+	for _, line := range lines[2:] {
+		f := strings.Split(line, ",")
+		if len(f) != len(out) {
+			t.Fatalf("%s: line %q", path, line)
+		}
+		for p := range f {
+			v, err := strconv.ParseFloat(f[p], 64)
+			must(t, err)
+			out[p] = append(out[p], v)
+		}
+	}
+	return out
+}
+
+// writeFloatCSV keeps 12 significant digits of every value (relative
+// error at most 5e-12), for one path and two, on seeded random values
+// across the range a chain's output takes.
+func TestWriteFloatCSV(t *testing.T) {
+	rng := rand.New(rand.NewPCG(7, 12))
+	for _, paths := range []int{1, 2} {
+		res := &simulate.Result{}
+		for range paths {
+			x := make([]float64, 3000)
+			for i := range x {
+				x[i] = (rng.Float64()*2 - 1) * math.Pow(10, -12*rng.Float64())
+			}
+			x[0], x[1] = 0, -1
+			res.Float = append(res.Float, x)
+		}
+		var buf bytes.Buffer
+		must(t, writeFloatCSV(&buf, res))
+		p := filepath.Join(t.TempDir(), "f.csv")
+		must(t, os.WriteFile(p, buf.Bytes(), 0o644))
+		got := readFloatCSV(t, p)
+		for k := range res.Float {
+			if len(got[k]) != len(res.Float[k]) {
+				t.Fatalf("%d paths: path %d has %d values, want %d", paths, k, len(got[k]), len(res.Float[k]))
+			}
+			for i, v := range res.Float[k] {
+				if math.Abs(got[k][i]-v) > 5e-12*math.Abs(v) {
+					t.Fatalf("%d paths: path %d value %d: %v written as %v", paths, k, i, v, got[k][i])
+				}
+			}
 		}
 	}
 }

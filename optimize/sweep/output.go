@@ -318,7 +318,8 @@ func valueFiles(dir string, r Result) ([]report.File, error) {
 		return nil, err
 	}
 	for _, f := range cf {
-		files = append(files, report.File{Name: dir + "/" + f.Name, Data: f.Data})
+		f.Name = dir + "/" + f.Name
+		files = append(files, f)
 	}
 	return files, nil
 }

@@ -1,10 +1,12 @@
 package report
 
 import (
+	"bufio"
 	"crypto/rand"
 	"encoding/hex"
 	"errors"
 	"fmt"
+	"io"
 	"os"
 	"path/filepath"
 	"strings"
@@ -249,18 +251,42 @@ func unwrapPath(err error) error {
 }
 
 // Write writes files into the temporary folder (names with / make
-// subfolders).
+// subfolders); a file with Stream set is written through a buffer as
+// Stream makes it, never held whole.
 func (o *Folder) Write(files []File) error {
 	for _, f := range files {
 		p := filepath.Join(o.tmp, filepath.FromSlash(f.Name))
 		if err := os.MkdirAll(filepath.Dir(p), 0o755); err != nil {
 			return failure("writing %s: %v", f.Name, unwrapPath(err))
 		}
+		if f.Stream != nil {
+			if err := writeStream(p, f.Stream); err != nil {
+				return failure("writing %s: %v", f.Name, unwrapPath(err))
+			}
+			continue
+		}
 		if err := os.WriteFile(p, f.Data, 0o644); err != nil {
 			return failure("writing %s: %v", f.Name, unwrapPath(err))
 		}
 	}
 	return nil
+}
+
+// writeStream creates the file p and writes into it what stream makes.
+func writeStream(p string, stream func(io.Writer) error) error {
+	fh, err := os.OpenFile(p, os.O_WRONLY|os.O_CREATE|os.O_TRUNC, 0o644)
+	if err != nil {
+		return err
+	}
+	bw := bufio.NewWriterSize(fh, 1<<16)
+	err = stream(bw)
+	if err == nil {
+		err = bw.Flush()
+	}
+	if cerr := fh.Close(); err == nil {
+		err = cerr
+	}
+	return err
 }
 
 // Commit puts the temporary folder in the output folder's place. On any

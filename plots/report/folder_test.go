@@ -2,6 +2,7 @@ package report
 
 import (
 	"errors"
+	"io"
 	"os"
 	"path/filepath"
 	"strings"
@@ -292,5 +293,52 @@ func TestOpenFolderWithoutLock(t *testing.T) {
 	}
 	if _, err := os.Stat(filepath.Join(parent, "out", "report.json")); err != nil {
 		t.Fatal(err)
+	}
+}
+
+// A streamed file holds exactly what its Stream wrote, through writes of
+// every size (the buffer's edges included); a Stream's error fails the
+// run, naming the file, and leaves the output folder as it was.
+func TestOutStream(t *testing.T) {
+	dir := filepath.Join(t.TempDir(), "out")
+	must(t, runOut(t, dir, "before"))
+	var want []byte
+	for i := 0; len(want) < 3<<16+7; i++ {
+		want = append(want, strings.Repeat(string(rune('a'+i%26)), i%4099)...)
+	}
+	o, err := OpenFolder(dir, "--out")
+	must(t, err)
+	err = o.Write([]File{{Name: "report.json", Data: []byte("{}")}, {Name: "big/stream.txt", Stream: func(w io.Writer) error {
+		for rest := want; len(rest) > 0; {
+			n := min(len(rest), 1+len(rest)%5003)
+			if _, err := w.Write(rest[:n]); err != nil {
+				return err
+			}
+			rest = rest[n:]
+		}
+		return nil
+	}}})
+	must(t, err)
+	must(t, o.Commit())
+	if got := readString(t, filepath.Join(dir, "big", "stream.txt")); got != string(want) {
+		t.Errorf("streamed file: %d bytes, want %d", len(got), len(want))
+	}
+
+	o, err = OpenFolder(dir, "--out")
+	must(t, err)
+	defer o.Discard()
+	err = o.Write([]File{{Name: "fails.csv", Stream: func(w io.Writer) error {
+		w.Write([]byte("part"))
+		return errors.New("disk full")
+	}}})
+	if err == nil || !strings.Contains(err.Error(), "fails.csv") || !strings.Contains(err.Error(), "disk full") {
+		t.Fatalf("err = %v, want one naming fails.csv and its cause", err)
+	}
+	o.Discard()
+	if _, err := os.Stat(filepath.Join(dir, "fails.csv")); err == nil {
+		t.Error("a failed stream reached the output folder")
+	}
+	if got := readString(t, filepath.Join(dir, "big", "stream.txt")); got != string(want) {
+		t.Error("a failed stream changed the output folder")
 	}
 }
