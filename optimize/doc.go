@@ -322,11 +322,13 @@
 // at most twelve, while the estimate is within twice the cheapest
 // designed chain that meets; the front is taken over the designed ones.
 // The designed set is decided one plan at a time, so it is the same for
-// any Jobs. The fractional chains are judged on their float designs; with
-// chain.Spec.CoefBits set, a designed chain's word lengths are planned
-// (fixed.PlanChain) and a chain they cannot be planned for is dropped
-// under ReasonWordLengths, its accumulator excess counted in
-// Result.AccumulatorExcess, as for an integer chain.
+// any Jobs. The fractional chains are ranked on their float designs; with
+// chain.Spec.CoefBits set, a designed chain is then judged on its rounded
+// taps as an integer chain is: designed again where rounding misses,
+// dropped under ReasonMissQuantised where that fails (Result.Reason and
+// NeededCoefBits then name the width from which one of the cheapest
+// meets), and under ReasonWordLengths where its word lengths cannot be
+// planned, its accumulator excess counted in Result.AccumulatorExcess.
 //
 // # Recommendation
 //

@@ -388,11 +388,12 @@ func planFractional(ctx context.Context, spec chain.Spec, s Settings) (*Result, 
 	}
 	res.Candidates += len(plans)
 	// Fractional chains are ranked on their float designs. With the
-	// coefficient width fixed, a chain's word lengths are planned once it
-	// meets in floating point, and a chain they cannot be planned for (an
-	// accumulator past fixed.MaxAccumulatorBits) is dropped under
-	// ReasonWordLengths, as an integer chain is; whether its rounded taps
-	// meet is judged by the caller's report, not here.
+	// coefficient width fixed, a chain that meets in floating point is
+	// then judged on its taps rounded to that width as an integer chain
+	// is (realDesigner.survive): designed again with tightened targets
+	// where rounding misses, dropped under ReasonMissQuantised where that
+	// fails, and under ReasonWordLengths where its word lengths cannot be
+	// planned (an accumulator past fixed.MaxAccumulatorBits).
 	fspec := spec
 	fspec.CoefBits = 0
 	des := realDesigner{ctx: ctx, spec: fspec, s: &s}
@@ -421,7 +422,7 @@ func planFractional(ctx context.Context, spec chain.Spec, s Settings) (*Result, 
 	// The plans taken are a prefix of the order, decided one plan at a
 	// time: the same whatever the number of jobs. Designs run a batch of
 	// jobs ahead; a design past the prefix's end is not used.
-	var ok []Candidate
+	var ok, missed []Candidate // missed: dropped for their rounded taps
 	best := math.Inf(1)
 	outs := make([]Candidate, len(order))
 	whys := make([]Reason, len(order))
@@ -442,8 +443,15 @@ func planFractional(ctx context.Context, spec chain.Spec, s Settings) (*Result, 
 					c, w = des.analyze(c)
 				}
 				if w == "" && planWords {
-					if _, _, err := fixed.PlanChainContext(ctx, spec, c.Chain, s.Fixed); err != nil && ctx.Err() == nil {
-						c, w = Candidate{acc: fixed.AsAccumulatorError(err)}, ReasonWordLengths
+					// Judged on its rounded taps as an integer chain is,
+					// and designed again where rounding misses; a chain
+					// whose float design then misses is dropped with them.
+					c, w = des.survive(c, spec)
+					if w == "" && !c.survived {
+						w = ReasonMissQuantised
+					}
+					if w != "" && ctx.Err() != nil {
+						w = ""
 					}
 				}
 				outs[i+b], whys[i+b] = c, w
@@ -461,6 +469,9 @@ func planFractional(ctx context.Context, spec chain.Spec, s Settings) (*Result, 
 			res.Dropped[whys[i]]++
 			if a := outs[i].acc; a != nil {
 				res.AccumulatorExcess.Add(a)
+			}
+			if whys[i] == ReasonMissQuantised {
+				missed = append(missed, outs[i])
 			}
 		} else {
 			ok = append(ok, outs[i])
@@ -481,5 +492,8 @@ func planFractional(ctx context.Context, spec chain.Spec, s Settings) (*Result, 
 		fs[i] = candFigs(&res.Front[i])
 	}
 	res.Recommended, res.Reason = recommend(fs, &s, spec.Direction() == chain.Interpolate)
+	if len(res.Front) == 0 && !res.Partial && res.Dropped[ReasonMissQuantised] > 0 {
+		res.Reason = widthReason(ctx, jobs, des, missed, spec.CoefBits, res)
+	}
 	return res, nil
 }

@@ -466,29 +466,23 @@ const widestTried = 32
 const namedChains = 3
 
 // neededWidth names the least coefficient width above bits, up to
-// widestTried, at which one of the namedChains cheapest chains dropped for
-// missing with rounded taps meets the spec (the front of those chains by
+// widestTried, at which one of the namedChains cheapest of dropped (chains
+// dropped for missing with rounded taps) meets the spec (the front of those chains by
 // their floating-point figures, fewest multiplies first). It returns the
 // chain, the width and the chain's rank among those tried (0: the
 // cheapest), and how many were tried; the width is zero when none meets or
 // the designer cannot tell.
-func (t *designTier) neededWidth(bits int) (c Candidate, width, rank, tried int) {
-	w, ok := t.des.(widener)
+func neededWidth(ctx context.Context, jobs int, des designer, dropped []Candidate, bits int) (c Candidate, width, rank, tried int) {
+	w, ok := des.(widener)
 	if !ok {
 		return Candidate{}, 0, 0, 0
-	}
-	var dropped []Candidate
-	for _, k := range t.order {
-		if o := t.memo[k]; o.reason == ReasonMissQuantised {
-			dropped = append(dropped, o.c)
-		}
 	}
 	best := designedFront(dropped)
 	if len(best) > namedChains {
 		best = best[:namedChains]
 	}
 	widths := make([]int, len(best))
-	done := runAll(t.ctx, t.jobs, len(best), func(i int) {
+	done := runAll(ctx, jobs, len(best), func(i int) {
 		widths[i] = w.meetsFrom(best[i], bits+1, widestTried)
 	}, nil)
 	bi := -1
@@ -504,11 +498,12 @@ func (t *designTier) neededWidth(bits int) (c Candidate, width, rank, tried int)
 }
 
 // widthReason is Result.Reason when no chain met the spec with its taps
-// rounded to bits-bit coefficients, naming the width that would do, and
-// sets Result.NeededCoefBits.
-func (t *designTier) widthReason(bits int) string {
-	n := t.res.Dropped[ReasonMissQuantised]
-	c, w, rank, tried := t.neededWidth(bits)
+// rounded to bits-bit coefficients (dropped: the chains dropped for it, in
+// a deterministic order), naming the width that would do, and sets
+// res.NeededCoefBits.
+func widthReason(ctx context.Context, jobs int, des designer, dropped []Candidate, bits int, res *Result) string {
+	n := res.Dropped[ReasonMissQuantised]
+	c, w, rank, tried := neededWidth(ctx, jobs, des, dropped, bits)
 	msg := fmt.Sprintf("No chain meets the spec with %d-bit coefficients: %d chains that met it in floating point missed it with their taps rounded.", bits, n)
 	figure := func(c *Candidate) string {
 		if c.Figures.Multiplierless {
@@ -518,15 +513,27 @@ func (t *designTier) widthReason(bits int) string {
 	}
 	switch {
 	case w > 0 && rank == 0:
-		t.res.NeededCoefBits = w
+		res.NeededCoefBits = w
 		msg += fmt.Sprintf(" The cheapest of them, %s (%s), meets from %d bits.", chain.Notation(c.Plan), figure(&c), w)
 	case w > 0:
-		t.res.NeededCoefBits = w
+		res.NeededCoefBits = w
 		msg += fmt.Sprintf(" Of the %d cheapest of them, %s (%s) meets from the fewest bits, %d.", tried, chain.Notation(c.Plan), figure(&c), w)
-	case tried > 0 && t.ctx.Err() == nil:
+	case tried > 0 && ctx.Err() == nil:
 		msg += fmt.Sprintf(" None of the %d cheapest of them meets with coefficients of up to %d bits.", tried, widestTried)
 	}
 	return msg
+}
+
+// widthReason is the package's widthReason over the chains this tier
+// dropped for their rounded taps.
+func (t *designTier) widthReason(bits int) string {
+	var dropped []Candidate
+	for _, k := range t.order {
+		if o := t.memo[k]; o.reason == ReasonMissQuantised {
+			dropped = append(dropped, o.c)
+		}
+	}
+	return widthReason(t.ctx, t.jobs, t.des, dropped, bits, t.res)
 }
 
 // goneWith reports whether plan failed, without allocating: scratch is
