@@ -117,7 +117,20 @@ func Plan(p PlanPage) ([]byte, error) {
 		case cw.OnFront:
 			v.CompareText = fmt.Sprintf("it is #%d on it.", cw.Rank)
 		case !r.Front[0].MeetsTargets:
-			v.CompareText = "its chains meet the spec; this one does not."
+			meet := 0
+			for _, f := range cw.Front {
+				if f.MeetsTargets {
+					meet++
+				}
+			}
+			switch meet {
+			case 0:
+				v.CompareText = "none of its chains meets the spec as judged there either."
+			case 1:
+				v.CompareText = "1 of its chains meets the spec; this one does not."
+			default:
+				v.CompareText = fmt.Sprintf("%d of its chains meet the spec; this one does not.", meet)
+			}
 		default:
 			v.CompareText = "no chain on it beats this one on every axis."
 		}

@@ -338,6 +338,46 @@ func TestCheckPageComparison(t *testing.T) {
 	}
 }
 
+// A check of a chain that misses the spec says how many chains of the
+// front compared with meet it, as the terminal does: none for an empty
+// front or one where none meets, not "its chains meet the spec".
+func TestCheckPageComparisonMisses(t *testing.T) {
+	p, _ := samplePage(t)
+	base := *p.Report
+	base.Command = "check"
+	base.Front = base.Front[:1]
+	base.Recommended = 0
+	base.Front[0].MeetsTargets = false
+	dearer := func(meets bool) report.Chain {
+		c := base.Front[0]
+		c.Notation, c.MeetsTargets = "cic6m1r8 > fir8", meets
+		c.MultipliesPerOutput++
+		c.MemoryBits++
+		return c
+	}
+	for _, tc := range []struct {
+		front []report.Chain
+		want  string
+	}{
+		{nil, "(0 chains): none of its chains meets the spec as judged there either."},
+		{[]report.Chain{dearer(false)}, "(1 chains): none of its chains meets the spec as judged there either."},
+		{[]report.Chain{dearer(true)}, "(1 chains): 1 of its chains meets the spec; this one does not."},
+		{[]report.Chain{dearer(true), dearer(true)}, "(2 chains): 2 of its chains meet the spec; this one does not."},
+	} {
+		rep := base
+		rep.Front = []report.Chain{base.Front[0]}
+		rep.Compare(report.NewComparison("a plan of the same spec", &report.Report{Front: tc.front}))
+		p.Report = &rep
+		b, err := Plan(p)
+		if err != nil {
+			t.Fatal(err)
+		}
+		if !strings.Contains(string(b), tc.want) {
+			t.Errorf("front of %d chains: page lacks %q", len(tc.front), tc.want)
+		}
+	}
+}
+
 // A grid's page: the heat map, the grid of figures linking to each cell's
 // section, every cell in the table, no section for a cell without a chain.
 func TestGridPage(t *testing.T) {
