@@ -604,20 +604,12 @@ func measure(ctx context.Context, c *Chain, spec Spec) (Analysis, error) {
 	return a, nil
 }
 
-// Slack of a verdict: a chain meets the spec when its measured rejection is
-// at most RejectionSlackDB below the target and its ripple at most
-// RippleSlackDB above the budget. The cascade's other stages may lift an
-// alias band by their passband ripple, which the per-stage targets do not
-// see; the figures themselves are certified (never optimistic), so the slack
-// is the only allowance.
-const (
-	RejectionSlackDB = 0.01
-	RippleSlackDB    = 1e-4
-)
-
 // Meets says whether the figures meet spec's rejection target and ripple
-// budget within the slack above. It is the one verdict on a chain: the
-// search, the word-length planner and the report all call it.
+// budget: the rejection at least the target and the ripple at most the
+// budget, with no allowance. The figures are certified (the rejection
+// never above the chain's, the ripple never below it), so a chain that
+// meets here meets in fact. It is the one verdict on a chain: the search,
+// the word-length planner and the report all call it.
 //
 // With a rejection mask the target is the mask's largest rejection (see
 // Analysis), whether or not spec is normalised.
@@ -626,6 +618,5 @@ func (a Analysis) Meets(spec Spec) bool {
 	if spec.RejectionMask != nil {
 		target = spec.RejectionMask.Max()
 	}
-	return a.AliasRejectionDB >= target-RejectionSlackDB &&
-		a.PassbandRippleDB <= spec.RippleDB+RippleSlackDB
+	return a.AliasRejectionDB >= target && a.PassbandRippleDB <= spec.RippleDB
 }

@@ -412,3 +412,38 @@ func TestSearchOpenIntervalsBounded(t *testing.T) {
 		t.Errorf("the search allocated %d bytes, more than %d", got, lim)
 	}
 }
+
+// The verdict has no allowance: a certified rejection a hair under the
+// target, or a ripple a hair over the budget, misses; both exactly on the
+// target meet. With a mask, the target is the mask's largest rejection.
+func TestMeetsNoAllowance(t *testing.T) {
+	spec := Spec{RejectionDB: 90, RippleDB: 0.1}
+	mask := spec
+	m, err := NewMask([]MaskPoint{{Hz: 1e6, DB: 80}, {Hz: 2e6, DB: 95}})
+	if err != nil {
+		t.Fatal(err)
+	}
+	mask.RejectionMask = m
+	for _, tc := range []struct {
+		spec     Spec
+		rej, rip float64
+		want     bool
+	}{
+		{spec, 90, 0.1, true},
+		{spec, 90.5, 0.05, true},
+		{spec, math.Nextafter(90, 0), 0.1, false},
+		{spec, 89.999, 0.05, false},
+		{spec, 90, math.Nextafter(0.1, 1), false},
+		{spec, 95, 0.10001, false},
+		{spec, math.NaN(), 0.05, false},
+		{spec, 95, math.NaN(), false},
+		{mask, 95, 0.1, true},
+		{mask, 94.999, 0.1, false},
+	} {
+		a := Analysis{AliasRejectionDB: tc.rej, PassbandRippleDB: tc.rip}
+		if got := a.Meets(tc.spec); got != tc.want {
+			t.Errorf("rejection %v dB, ripple %v dB against %v dB (mask %v), %v dB: Meets = %v, want %v",
+				tc.rej, tc.rip, tc.spec.RejectionDB, tc.spec.RejectionMask != nil, tc.spec.RippleDB, got, tc.want)
+		}
+	}
+}

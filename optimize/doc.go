@@ -251,8 +251,8 @@
 // meet the spec with their taps rounded to that width, as the report will
 // build them: fixed.PlanChain, with Settings.Fixed, plans the word lengths,
 // quantises every FIR and half-band stage and measures the cascade on the
-// rounded taps, which is judged with the floating-point tolerances (0.01 dB
-// of rejection, 1e-4 dB of ripple). Candidate.Quantised holds that
+// rounded taps, which is judged by the floating-point design's rule
+// (chain.Analysis.Meets: the target reached, with no allowance). Candidate.Quantised holds that
 // measurement and Candidate.MarginDB its rejection margin.
 //
 // The rounding error of each tap is uniform in +-q/2, q = 2^-Frac (Frac the

@@ -21,13 +21,6 @@ import (
 // within its time budget (about 30 s on two cores for D up to 2^20).
 const MaxCandidates = 1 << 24
 
-// Tolerances on a designed chain's measured figures before it counts as
-// missing the spec: the verdict's own (chain.Analysis.Meets).
-const (
-	rejectionSlackDB = chain.RejectionSlackDB
-	rippleSlackDB    = chain.RippleSlackDB
-)
-
 // A designed chain that misses the rejection by no more than the ripple is
 // designed again with the target raised by the shortfall plus
 // redesignExtraDB, at most maxRedesigns times (see realDesigner.analyze).
@@ -321,7 +314,7 @@ func (r realDesigner) measure(c Candidate) (Candidate, Reason) {
 	// is made good by designing the chain again with the rejection target
 	// raised by it.
 	raise := 0.0
-	for try := 0; try < maxRedesigns && margin < -rejectionSlackDB && margin >= -r.spec.RippleDB && r.ctx.Err() == nil; try++ {
+	for try := 0; try < maxRedesigns && margin < 0 && margin >= -r.spec.RippleDB && r.ctx.Err() == nil; try++ {
 		raise += -margin + redesignExtraDB
 		spec := r.spec.RejectionRaised(raise)
 		ch, err := chain.DesignContext(r.ctx, spec, c.Plan, r.s.Chain)
@@ -423,10 +416,10 @@ func overLimits(f cost.Figures, c *chain.Chain, l Limits) Reason {
 // floatMisses returns the reason a chain measured a misses spec, or "".
 func floatMisses(spec chain.Spec, a chain.Analysis) Reason {
 	margin := a.AliasRejectionDB - spec.RejectionDB
-	if margin < -rejectionSlackDB || math.IsNaN(margin) {
+	if margin < 0 || math.IsNaN(margin) {
 		return ReasonMissRejection
 	}
-	if a.PassbandRippleDB > spec.RippleDB+rippleSlackDB || math.IsNaN(a.PassbandRippleDB) {
+	if a.PassbandRippleDB > spec.RippleDB || math.IsNaN(a.PassbandRippleDB) {
 		return ReasonMissRipple
 	}
 	return ""
@@ -441,8 +434,8 @@ func (r realDesigner) rounded(spec chain.Spec) bool {
 }
 
 // survive measures a chain that meets spec in floating point with its taps
-// rounded to spec.CoefBits (fixed.PlanChain), with the tolerances of the
-// floating-point measurement. When it misses, the rounding error is
+// rounded to spec.CoefBits (fixed.PlanChain), by the floating-point
+// verdict's rule (chain.Analysis.Meets). When it misses, the rounding error is
 // estimated as the excess of the rounded chain's worst alias over the
 // floating-point one's, as linear deviations (the two add in the worst
 // case), and the chain is designed again with the rejection target raised
@@ -505,7 +498,7 @@ func (r realDesigner) surviveWith(c Candidate, spec chain.Spec, wl func() (*fixe
 	for try := 0; ; try++ {
 		qm := qa.AliasRejectionDB - spec.RejectionDB
 		over := qa.PassbandRippleDB - spec.RippleDB
-		if qm >= -rejectionSlackDB && over <= rippleSlackDB {
+		if qm >= 0 && over <= 0 {
 			if f.Multiplierless {
 				// Count the adder graphs of the taps as rounded for the
 				// build (the report's coefficients_int), not as priced.
@@ -551,7 +544,7 @@ func (r realDesigner) surviveWith(c Candidate, spec chain.Spec, wl func() (*fixe
 		need := -20*math.Log10(1-excess/dt) + roundingExtraDB
 		raise := math.Max(cur.raised+need-(f.Analysis.AliasRejectionDB-spec.RejectionDB), cur.raised+roundingExtraDB/2)
 		cut := cur.cut
-		if over > rippleSlackDB {
+		if over > 0 {
 			rippleExcess = math.Max(rippleExcess, qa.PassbandRippleDB-f.Analysis.PassbandRippleDB)
 			cut = math.Max(cut+over, rippleExcess) + spec.RippleDB/100
 			if cut >= spec.RippleDB {

@@ -51,8 +51,7 @@
 // Per-stage widths do not by themselves make the chain meet its spec, so
 // PlanChain checks the whole quantised chain with chain.Analyze when the
 // widths are "auto" (Words.CoefBits zero): while its rejection falls short
-// of spec.RejectionDB by more than RejectionSlackDB (0.01 dB) or its ripple
-// exceeds spec.RippleDB by more than RippleSlackDB (1e-4 dB), it adds one bit
+// of spec.RejectionDB or its ripple exceeds spec.RippleDB, it adds one bit
 // to the FIR stage whose rounding costs the most (the one whose float taps
 // would lower the response at the worst alias the most, or with the largest
 // relative rounding error of its amplitude over the passband) and plans

@@ -196,16 +196,12 @@ func planChain(ctx context.Context, spec chain.Spec, c *chain.Chain, s Settings)
 }
 
 // The whole-chain check of "auto" coefficient widths: the quantised chain
-// must reach the spec's rejection within RejectionSlackDB and its ripple
-// within RippleSlackDB (or the float chain's own figures, when the design
-// itself falls short of the spec: no width can do better than the taps).
-// The slacks are the verdict's own (chain.Analysis.Meets).
-const (
-	RejectionSlackDB = chain.RejectionSlackDB
-	RippleSlackDB    = chain.RippleSlackDB
-	// maxWidenSteps bounds the bits widen adds over the whole chain.
-	maxWidenSteps = 24
-)
+// must reach the spec's rejection and keep within its ripple (or the float
+// chain's own figures, when the design itself falls short of the spec: no
+// width can do better than the taps), the verdict's rule
+// (chain.Analysis.Meets). maxWidenSteps bounds the bits widen adds over
+// the whole chain.
+const maxWidenSteps = 24
 
 // widen makes "auto" coefficient widths meet the spec on the whole chain:
 // while chain.Analyze on the quantised chain falls short, it adds a bit to
@@ -226,8 +222,8 @@ func widen(ctx context.Context, spec chain.Spec, c *chain.Chain, cas Cascade, w 
 	if err != nil {
 		return nil, chain.Analysis{}, err
 	}
-	rejTarget := math.Min(spec.RejectionDB, fa.AliasRejectionDB) - RejectionSlackDB
-	ripTarget := math.Max(spec.RippleDB, fa.PassbandRippleDB) + RippleSlackDB
+	rejTarget := math.Min(spec.RejectionDB, fa.AliasRejectionDB)
+	ripTarget := math.Max(spec.RippleDB, fa.PassbandRippleDB)
 	limit := s.Quant.MaxBits
 	if limit == 0 {
 		limit = 32

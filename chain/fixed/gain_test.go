@@ -185,10 +185,10 @@ func TestAutoWidthsMeetChain(t *testing.T) {
 			}
 			t.Logf("float %.2f dB / %.4f dB; per-stage widths %v: %.2f dB / %.4f dB; widened %v: %.2f dB / %.4f dB",
 				fa.AliasRejectionDB, fa.PassbandRippleDB, ownBits, oa.AliasRejectionDB, oa.PassbandRippleDB, bits, a.AliasRejectionDB, a.PassbandRippleDB)
-			if oa.AliasRejectionDB >= spec.RejectionDB-RejectionSlackDB && oa.PassbandRippleDB <= spec.RippleDB+RippleSlackDB {
+			if oa.AliasRejectionDB >= spec.RejectionDB && oa.PassbandRippleDB <= spec.RippleDB {
 				t.Errorf("the per-stage widths already meet the spec: the case has no teeth")
 			}
-			if a.AliasRejectionDB < spec.RejectionDB-RejectionSlackDB || a.PassbandRippleDB > spec.RippleDB+RippleSlackDB {
+			if a.AliasRejectionDB < spec.RejectionDB || a.PassbandRippleDB > spec.RippleDB {
 				t.Errorf("widened chain misses the spec: %+v", a)
 			}
 			for i := range bits {

@@ -143,8 +143,10 @@ func TestPlanMaskEndToEnd(t *testing.T) {
 				t.Errorf("chain %d: rejection %v, margin %v", i+1, rej, margin)
 			}
 		}
-		if c["meets_targets"] == true && margin < -0.01 {
-			t.Errorf("chain %d meets with a margin of %v dB", i+1, margin)
+		// The verdict has no allowance: a chain that meets has a margin of
+		// at least zero, on its float and its rounded taps alike.
+		if c["meets_targets"] == true && (margin < 0 || c["quantised_alias_rejection_db"].(float64) < 90) {
+			t.Errorf("chain %d meets with a margin of %v dB (rounded taps %v dB)", i+1, margin, c["quantised_alias_rejection_db"])
 		}
 	}
 }

@@ -120,11 +120,11 @@ func CheckReason(c Chain, sp Spec) string {
 		return "The chain named by --chain meets the rejection target and the ripple budget" + on + "."
 	case c.Unjudged():
 		return "The chain named by --chain cannot be judged with its taps rounded: " + c.WordLengthsError + "."
-	case !c.FloatMeetsTargets && c.AliasRejectionDB < sp.RejectionDB-RejectionToleranceDB:
+	case !c.FloatMeetsTargets && c.AliasRejectionDB < sp.RejectionDB:
 		return fmt.Sprintf("The chain named by --chain misses the rejection target as designed: %.2f dB against %.4g dB.", c.AliasRejectionDB, sp.RejectionDB)
 	case !c.FloatMeetsTargets:
 		return fmt.Sprintf("The chain named by --chain misses the ripple budget as designed: %.4f dB against %.4g dB.", c.PassbandRippleDB, sp.RippleDB)
-	case rej < sp.RejectionDB-RejectionToleranceDB:
+	case rej < sp.RejectionDB:
 		return fmt.Sprintf("The chain named by --chain misses the rejection target%s: %.2f dB against %.4g dB.", on, rej, sp.RejectionDB)
 	}
 	return fmt.Sprintf("The chain named by --chain misses the ripple budget%s: %.4f dB against %.4g dB.", on, rip, sp.RippleDB)

@@ -26,12 +26,6 @@ const Schema = "stepdown.report/1"
 // Caution is the planning caveat carried by every report.
 const Caution = "planning estimates, confirm by bit-true simulation of the RTL and the team's sign-off before committing hardware"
 
-// Tolerances of meets_targets: chain.Analysis.Meets's, the search's too.
-const (
-	RejectionToleranceDB = chain.RejectionSlackDB
-	RippleToleranceDB    = chain.RippleSlackDB
-)
-
 // Report is report.json.
 type Report struct {
 	Schema  string `json:"schema"`
