@@ -263,12 +263,32 @@ func reorderArgs(app *cli.App, args []string) ([]string, error) {
 		return args, nil
 	}
 	takesValue, isInt := map[string]bool{}, map[string]bool{}
+	// once maps each name of a flag that takes one value to its first
+	// name: given twice, the flag package would keep the last silently.
+	once := map[string]string{}
 	for _, f := range cmd.Flags {
 		_, isBool := f.(*cli.BoolFlag)
 		_, isI := f.(*cli.IntFlag)
+		_, isSlice := f.(*cli.StringSliceFlag)
 		for _, n := range f.Names() {
 			takesValue[n], isInt[n] = !isBool, isI
+			if !isSlice {
+				once[n] = f.Names()[0]
+			}
 		}
+	}
+	seen := map[string]bool{}
+	// repeated refuses a flag of one value given a second time.
+	repeated := func(name string) error {
+		c, ok := once[name]
+		if !ok {
+			return nil
+		}
+		if seen[c] {
+			return usagef("--%s: given more than once; give it once (see stepdown %s --help)", c, cmd.Name)
+		}
+		seen[c] = true
+		return nil
 	}
 	// isFlag reports whether a word names one of the command's flags.
 	isFlag := func(a string) bool {
@@ -295,6 +315,10 @@ func reorderArgs(app *cli.App, args []string) ([]string, error) {
 			continue
 		}
 		name := strings.TrimLeft(a, "-")
+		bare, _, _ := strings.Cut(name, "=")
+		if err := repeated(bare); err != nil {
+			return nil, err
+		}
 		if n, v, ok := strings.Cut(name, "="); ok {
 			if isInt[n] {
 				d, err := decimal(n, v)

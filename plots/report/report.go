@@ -582,6 +582,14 @@ func fractionalLM(up, down int, interp bool) (l, m int) {
 // lengths were not planned because the run was stopped.
 const StoppedBeforeWordLengths = "not planned: the run was stopped (--timeout or an interrupt) before the word lengths"
 
+// withoutPackage is a word-length error without the "fixed: " its package
+// puts first, and again before each error it wraps ("fixed: stage 3:
+// fixed: no coefficient width meets the bands" reads "stage 3: no
+// coefficient width meets the bands").
+func withoutPackage(err error) string {
+	return strings.ReplaceAll(err.Error(), "fixed: ", "")
+}
+
 // AddWordLengths runs package chain/fixed's word-length planner and bit-true
 // run (fixed.Evaluate) on cand's chain and puts the figures into c, which
 // NewChain made from cand. spec is the normalised chain spec the planner
@@ -626,7 +634,7 @@ func AddWordLengths(ctx context.Context, c *Chain, spec chain.Spec, cand optimiz
 		return
 	}
 	if err != nil {
-		c.WordLengthsError = strings.TrimPrefix(err.Error(), "fixed: ")
+		c.WordLengthsError = withoutPackage(err)
 		if ae := fixed.AsAccumulatorError(err); ae != nil {
 			var a optimize.AccumulatorExcess
 			a.Add(ae)

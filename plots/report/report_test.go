@@ -1,9 +1,12 @@
 package report
 
 import (
+	"fmt"
 	"math"
 	"strings"
 	"testing"
+
+	"github.com/stepdown-dsp/stepdown/chain/fixed"
 )
 
 // Two's complement by hand (common practice): -1 at 18 bits is 0x3ffff,
@@ -67,5 +70,15 @@ func TestMarshalRejectsNaN(t *testing.T) {
 		if !strings.Contains(string(b), k) {
 			t.Errorf("report lacks %s:\n%s", k, b)
 		}
+	}
+}
+
+// A word-length error reads without its package's prefix, wherever a
+// wrapped error repeats it.
+func TestWithoutPackage(t *testing.T) {
+	inner := fmt.Errorf("%w up to 32 bits", fixed.ErrNoWidth)
+	err := fmt.Errorf("fixed: stage %d: %w", 3, inner)
+	if got, want := withoutPackage(err), "stage 3: no coefficient width meets the bands up to 32 bits"; got != want {
+		t.Errorf("withoutPackage = %q, want %q", got, want)
 	}
 }
