@@ -321,7 +321,7 @@ func Parse(name string, data []byte) (*Spec, error) {
 				return nil, &Error{File: name, Line: pe.Position.Line, Key: pe.LastKey, Value: units.Clip(m[1], units.MaxEcho),
 					Rule: "too large a number for any spec key (rates and frequencies go as text with a unit, e.g. \"1.2 GHz\")"}
 			}
-			return nil, &Error{File: name, Line: pe.Position.Line, Rule: "not valid TOML: " + units.Clip(oneLine(pe.Message), 2*units.MaxEcho)}
+			return nil, tomlError(name, p.data, pe.Position.Line, pe.Message)
 		}
 		return nil, &Error{File: name, Rule: "not valid TOML: " + units.Clip(oneLine(err.Error()), 2*units.MaxEcho)}
 	}

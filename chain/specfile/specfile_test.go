@@ -127,7 +127,8 @@ func TestParseErrors(t *testing.T) {
 		{"unknown dotted key", "words.inptu = 3", []string{":6:", "words.inptu", "unknown key"}},
 		{"unknown quoted key", "\"odd key\" = 3", []string{":6:", "odd key", "unknown key"}},
 		{"unknown key in inline table", "cost = {symmetry = true, fold = 2}", []string{":6:", "cost.fold", "unknown key"}},
-		{"not toml", "input_rate = = 3", []string{"not valid TOML"}},
+		{"not toml", "input_rate = = 3", []string{"input_rate", "one = between a key and its value"}},
+		{"not toml, no rewrite", "passband = \"a\\q\"", []string{"not valid TOML", "invalid escape"}},
 		{"rate unit", `input_rate = "245.76 XHz"`, []string{"input_rate", `"245.76 XHz"`, "unknown unit"}},
 		{"rate nan", `input_rate = nan`, []string{"input_rate", "not a finite number"}},
 		{"band edge in S/s", `passband = "300 kS/s"`, []string{"passband", "sample-rate unit", "kHz"}},
@@ -450,6 +451,38 @@ func TestParseRequirements(t *testing.T) {
 		}
 		if s.Requirements != tc.want || s.SearchSettings().Chain.StageAlone != tc.alone {
 			t.Errorf("requirements %q, StageAlone %v; want %q, %v", s.Requirements, s.SearchSettings().Chain.StageAlone, tc.want, tc.alone)
+		}
+	}
+}
+
+// The TOML slips a spec's author makes most are said in the spec's words,
+// on the line of the slip (the decoder reports an unclosed header on the
+// next line); any other decoder message passes through after "not valid
+// TOML".
+func TestTOMLSlips(t *testing.T) {
+	head := "input_rate = \"100 MHz\"\noutput_rate = \"1 MHz\"\n"
+	for _, tc := range []struct {
+		line3, want string
+	}{
+		{`passband = 300kHz`, `spec.toml:3: passband = 300kHz: a value with a unit goes in quotes: passband = "300kHz"`},
+		{`rejection = 80 dB # stop`, `spec.toml:3: rejection = 80 dB: a value with a unit goes in quotes: rejection = "80 dB"`},
+		{`passband = "300 kHz" "x"`, `spec.toml:3: passband: only a comment (# ...) may follow a value or a [table] header on its line`},
+		{`passband`, `spec.toml:3: a key with no value: write key = value`},
+		{`passband = `, `spec.toml:3: passband: nothing after =: give the value, e.g. passband = "600 kHz"`},
+		{`= "300 kHz"`, `spec.toml:3: a value with no key before its =`},
+		{`pass band = "3"`, `spec.toml:3: a key is one word`},
+		{`[words`, `spec.toml:3: a table header such as [words] must end with ] on its line`},
+		{`[[words]`, `spec.toml:3: a table header such as [words] must end with ] on its line`},
+		{`passband = "300 kHz`, `spec.toml:3: passband: a quoted value must end with its closing quote on the same line`},
+		{`passband == "3"`, `spec.toml:3: passband: one = between a key and its value`},
+		{`signal = complex`, `spec.toml:3: signal = complex: words go in quotes: signal = "complex"`},
+		{`ripple = .1`, `spec.toml:3: ripple: a number starts with a digit: write 0.1, not .1`},
+		{`output_rate = "2 MHz"`, `spec.toml:3: output_rate: given twice; give each key once`},
+		{`ripple = 0.1.2`, `spec.toml:3: not valid TOML: `},
+	} {
+		_, err := Parse("spec.toml", []byte(head+tc.line3+"\nrejection = \"80 dB\"\n"))
+		if err == nil || !strings.HasPrefix(err.Error(), tc.want) {
+			t.Errorf("%s: error %v, want it to start %q", tc.line3, err, tc.want)
 		}
 	}
 }
