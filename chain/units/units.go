@@ -282,6 +282,18 @@ func FormatFrequency(hz float64) string {
 	return strconv.FormatFloat(v, 'g', -1, 64) + " " + unit
 }
 
+// FormatComputedFrequency is FormatFrequency of hz held to 12 significant
+// digits: for a frequency computed from others (a difference of band
+// edges, a step times a count), whose last bits are arithmetic's rounding
+// rather than anything the user wrote (1.2 MHz - 1.1 MHz is
+// 100000.00000000023 Hz in binary; it is written "100 kHz").
+func FormatComputedFrequency(hz float64) string {
+	if v, err := strconv.ParseFloat(strconv.FormatFloat(hz, 'g', 12, 64), 64); err == nil {
+		hz = v
+	}
+	return FormatFrequency(hz)
+}
+
 // ParseRange parses a band "LO:HI" of kind k. A unit written only after HI
 // applies to both ends, so "100:200 kHz" is 100 kHz to 200 kHz; "0:1.2 MHz"
 // and "600 kHz:1.2 MHz" read as written.

@@ -349,3 +349,23 @@ func TestFormatNumber(t *testing.T) {
 		}
 	}
 }
+
+// A computed frequency reads as the decimal it stands for; one given
+// exactly is unchanged.
+func TestFormatComputedFrequency(t *testing.T) {
+	for _, tc := range []struct {
+		hz   float64
+		want string
+	}{
+		{1.2e6 - 1.1e6, "100 kHz"},
+		{math.Ceil(50.75/0.1) * 0.1, "50.8 Hz"},
+		{245.76e6, "245.76 MHz"},
+		{1.92e6, "1.92 MHz"},
+		{0.5, "0.5 Hz"},
+		{123456.789, "123.456789 kHz"},
+	} {
+		if got := FormatComputedFrequency(tc.hz); got != tc.want {
+			t.Errorf("FormatComputedFrequency(%v) = %q, want %q", tc.hz, got, tc.want)
+		}
+	}
+}

@@ -449,12 +449,12 @@ func checkDesignSize(edges []designEdge, dp, ds, atten, rate float64) error {
 	}
 	// Three significant figures, rounded up so that the width named fits.
 	step := math.Pow(10, math.Floor(math.Log10(thi))-2)
-	advice := fmt.Sprintf("widen that transition to at least %s", units.FormatFrequency(math.Ceil(thi/step)*step))
+	advice := fmt.Sprintf("widen that transition to at least %s", units.FormatComputedFrequency(math.Ceil(thi/step)*step))
 	if lo > 0 && fits(lo, tr) {
 		advice = fmt.Sprintf("lower --atten to %.1f dB or less, or %s", math.Floor(lo*10)/10, advice)
 	}
 	return usagef("--atten %g dB over the %s transition from %s to %s: about %d taps (Herrmann's estimate; the shortest filter is at least %.2g of it), more than the %d this command designs; %s",
-		atten, units.FormatFrequency(tr), units.FormatFrequency(edges[wi].hi), units.FormatFrequency(edges[wi+1].lo), worst, ratio, maxDesignTaps, advice)
+		atten, units.FormatComputedFrequency(tr), units.FormatFrequency(edges[wi].hi), units.FormatFrequency(edges[wi+1].lo), worst, ratio, maxDesignTaps, advice)
 }
 
 // rippleOf is the peak-to-peak ripple of a passband deviation; a deviation of
