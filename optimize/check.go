@@ -4,6 +4,7 @@ import (
 	"context"
 
 	"github.com/stepdown-dsp/stepdown/chain"
+	"github.com/stepdown-dsp/stepdown/chain/fixed"
 	"github.com/stepdown-dsp/stepdown/cost"
 )
 
@@ -25,9 +26,10 @@ func Check(ctx context.Context, spec chain.Spec, plan []chain.StagePlan, s Setti
 	if err := s.check(); err != nil {
 		return Candidate{}, "", err
 	}
-	if ns.Fractional() {
-		// Word lengths of fractional chains are not planned (see
-		// planFractional): the chain is judged on its float design.
+	// A fractional chain is designed and measured in floating point, then
+	// judged on its rounded taps as the search judges it (judgeFractional).
+	frac, coefBits := ns.Fractional(), ns.CoefBits
+	if frac {
 		ns.CoefBits = 0
 		s.floatOnly = true
 	}
@@ -43,6 +45,11 @@ func Check(ctx context.Context, spec chain.Spec, plan []chain.StagePlan, s Setti
 	d, why := r.design(plan)
 	if why == "" {
 		d, why = r.analyze(d)
+	}
+	if why == "" && frac && coefBits > 0 && coefBits <= fixed.MaxBits {
+		rs := ns
+		rs.CoefBits = coefBits
+		d, why = r.judgeFractional(d, rs)
 	}
 	if why == "" {
 		return d, "", nil

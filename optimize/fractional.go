@@ -390,7 +390,7 @@ func planFractional(ctx context.Context, spec chain.Spec, s Settings) (*Result, 
 	// Fractional chains are ranked on their float designs. With the
 	// coefficient width fixed, a chain that meets in floating point is
 	// then judged on its taps rounded to that width as an integer chain
-	// is (realDesigner.survive): designed again with tightened targets
+	// is (realDesigner.judgeFractional): designed again with tightened targets
 	// where rounding misses, dropped under ReasonMissQuantised where that
 	// fails, and under ReasonWordLengths where its word lengths cannot be
 	// planned (an accumulator past fixed.MaxAccumulatorBits).
@@ -443,13 +443,7 @@ func planFractional(ctx context.Context, spec chain.Spec, s Settings) (*Result, 
 					c, w = des.analyze(c)
 				}
 				if w == "" && planWords {
-					// Judged on its rounded taps as an integer chain is,
-					// and designed again where rounding misses; a chain
-					// whose float design then misses is dropped with them.
-					c, w = des.survive(c, spec)
-					if w == "" && !c.survived {
-						w = ReasonMissQuantised
-					}
+					c, w = des.judgeFractional(c, spec)
 					if w != "" && ctx.Err() != nil {
 						w = ""
 					}
@@ -493,7 +487,7 @@ func planFractional(ctx context.Context, spec chain.Spec, s Settings) (*Result, 
 	}
 	res.Recommended, res.Reason = recommend(fs, &s, spec.Direction() == chain.Interpolate)
 	if len(res.Front) == 0 && !res.Partial && res.Dropped[ReasonMissQuantised] > 0 {
-		res.Reason = widthReason(ctx, jobs, des, missed, spec.CoefBits, res)
+		res.Reason = widthReason(ctx, jobs, des, missed, spec.CoefBits, spec.Direction(), res)
 	}
 	return res, nil
 }

@@ -185,3 +185,25 @@ func TestFractionalRoundedTaps(t *testing.T) {
 		}
 	}
 }
+
+// Check of a fractional chain on the front, with the coefficient width
+// fixed, gives the figures the plan gave it (it is judged on its rounded
+// taps and re-designed as the search does), as for an integer chain.
+func TestCheckFractionalAsPlanned(t *testing.T) {
+	spec := chain.Spec{InputRate: 12.5e6, OutputRate: 10e6, Passband: 3e6, RippleDB: 0.1, RejectionDB: 60, Complex: true,
+		InputBits: 16, OutputBits: 18, CoefBits: 14}
+	res, err := Plan(context.Background(), spec, Settings{})
+	if err != nil || len(res.Front) == 0 {
+		t.Fatalf("plan: front of %d, err %v", len(res.Front), err)
+	}
+	for _, c := range res.Front {
+		got, why, err := Check(context.Background(), spec, c.Plan, Settings{})
+		if err != nil || why != "" {
+			t.Fatalf("%s: check says %q, err %v; the plan kept it", chain.Notation(c.Plan), why, err)
+		}
+		if got.Figures.MultipliesPerOutput != c.Figures.MultipliesPerOutput || got.Quantised.AliasRejectionDB != c.Quantised.AliasRejectionDB {
+			t.Errorf("%s: check %.4g mult/out, rounded %.4f dB; plan %.4g, %.4f dB", chain.Notation(c.Plan),
+				got.Figures.MultipliesPerOutput, got.Quantised.AliasRejectionDB, c.Figures.MultipliesPerOutput, c.Quantised.AliasRejectionDB)
+		}
+	}
+}

@@ -596,26 +596,41 @@ func cx(c *chain.Chain) int {
 	return 1
 }
 
+// judgeFractional judges a fractional chain c, designed and measured in
+// floating point, on its taps rounded to spec.CoefBits as an integer
+// chain is judged (survive: designed again where rounding misses); a chain
+// whose float design then misses is dropped with those whose rounded taps
+// do. The search and Check both call it, so a chain named to check gets
+// the figures the plan gave it.
+func (r realDesigner) judgeFractional(c Candidate, spec chain.Spec) (Candidate, Reason) {
+	c, why := r.survive(c, spec)
+	if why == "" && !c.survived {
+		why = ReasonMissQuantised
+	}
+	return c, why
+}
+
 // meetsFrom returns the least coefficient width in [lo, hi] at which the
 // chain, designed in floating point (c, as survive left it when dropped),
-// meets the spec with its taps rounded, re-designed as survive does; zero
-// when none does or ctx is cancelled.
-func (r realDesigner) meetsFrom(c Candidate, lo, hi int) int {
+// meets the spec with its taps rounded, re-designed as survive does, and
+// the chain that meets there (its figures are what that width costs);
+// zero when none does or ctx is cancelled.
+func (r realDesigner) meetsFrom(c Candidate, lo, hi int) (int, Candidate) {
 	if !c.evaluated {
 		f, err := cost.EvaluateContext(r.ctx, r.spec, c.Chain, r.s.Cost)
 		if err != nil || floatMisses(r.spec, f.Analysis) != "" {
-			return 0
+			return 0, Candidate{}
 		}
 		c.Figures, c.evaluated = f, true
 	}
 	for w := lo; w <= hi && r.ctx.Err() == nil; w++ {
 		spec := r.spec
 		spec.CoefBits = w
-		if _, why := r.survive(c, spec); why == "" {
-			return w
+		if s, why := r.survive(c, spec); why == "" {
+			return w, s
 		}
 	}
-	return 0
+	return 0, Candidate{}
 }
 
 // scored is a candidate kept from the estimate tier.
@@ -686,7 +701,11 @@ func search(ctx context.Context, p params, s *Settings, est *estimator, des desi
 	res.Recommended, res.Reason = recommend(fs, s, p.interp)
 	switch {
 	case len(res.Front) == 0 && !res.Partial && res.Dropped[ReasonMissQuantised] > 0:
-		res.Reason = t.widthReason(p.fixedBits)
+		dir := chain.Decimate
+		if p.interp {
+			dir = chain.Interpolate
+		}
+		res.Reason = t.widthReason(p.fixedBits, dir)
 		if lr := limitReason(res.Dropped); lr != "" {
 			// The limits dropped candidates too: named first, since wider
 			// coefficients cannot help a limit that binds.

@@ -455,7 +455,7 @@ func (t *designTier) salvage() []Candidate {
 // widener is a designer that can name the coefficient width a dropped
 // chain needs (realDesigner.meetsFrom).
 type widener interface {
-	meetsFrom(c Candidate, lo, hi int) int
+	meetsFrom(c Candidate, lo, hi int) (int, Candidate)
 }
 
 // widestTried is the widest coefficient width neededWidth tries.
@@ -467,11 +467,12 @@ const namedChains = 3
 
 // neededWidth names the least coefficient width above bits, up to
 // widestTried, at which one of the namedChains cheapest of dropped (chains
-// dropped for missing with rounded taps) meets the spec (the front of those chains by
-// their floating-point figures, fewest multiplies first). It returns the
-// chain, the width and the chain's rank among those tried (0: the
-// cheapest), and how many were tried; the width is zero when none meets or
-// the designer cannot tell.
+// dropped for missing with rounded taps) meets the spec (the front of
+// those chains by their floating-point figures, fewest multiplies first).
+// It returns the chain as it meets at that width (re-designed, with what
+// it costs there), the width and the chain's rank among those tried (0:
+// the cheapest), and how many were tried; the width is zero when none
+// meets or the designer cannot tell.
 func neededWidth(ctx context.Context, jobs int, des designer, dropped []Candidate, bits int) (c Candidate, width, rank, tried int) {
 	w, ok := des.(widener)
 	if !ok {
@@ -481,9 +482,9 @@ func neededWidth(ctx context.Context, jobs int, des designer, dropped []Candidat
 	if len(best) > namedChains {
 		best = best[:namedChains]
 	}
-	widths := make([]int, len(best))
+	widths, met := make([]int, len(best)), make([]Candidate, len(best))
 	done := runAll(ctx, jobs, len(best), func(i int) {
-		widths[i] = w.meetsFrom(best[i], bits+1, widestTried)
+		widths[i], met[i] = w.meetsFrom(best[i], bits+1, widestTried)
 	}, nil)
 	bi := -1
 	for i := range best {
@@ -494,14 +495,15 @@ func neededWidth(ctx context.Context, jobs int, des designer, dropped []Candidat
 	if bi < 0 {
 		return Candidate{}, 0, 0, len(best)
 	}
-	return best[bi], widths[bi], bi, len(best)
+	return met[bi], widths[bi], bi, len(best)
 }
 
 // widthReason is Result.Reason when no chain met the spec with its taps
 // rounded to bits-bit coefficients (dropped: the chains dropped for it, in
-// a deterministic order), naming the width that would do, and sets
+// a deterministic order), naming the width that would do and what the
+// chain costs at that width, in dir's notation, and sets
 // res.NeededCoefBits.
-func widthReason(ctx context.Context, jobs int, des designer, dropped []Candidate, bits int, res *Result) string {
+func widthReason(ctx context.Context, jobs int, des designer, dropped []Candidate, bits int, dir chain.Direction, res *Result) string {
 	n := res.Dropped[ReasonMissQuantised]
 	c, w, rank, tried := neededWidth(ctx, jobs, des, dropped, bits)
 	msg := fmt.Sprintf("No chain meets the spec with %d-bit coefficients: %d chains that met it in floating point missed it with their taps rounded.", bits, n)
@@ -514,10 +516,10 @@ func widthReason(ctx context.Context, jobs int, des designer, dropped []Candidat
 	switch {
 	case w > 0 && rank == 0:
 		res.NeededCoefBits = w
-		msg += fmt.Sprintf(" The cheapest of them, %s (%s), meets from %d bits.", chain.Notation(c.Plan), figure(&c), w)
+		msg += fmt.Sprintf(" The cheapest of them, %s, meets from %d bits (re-designed, %s there).", dir.Notation(c.Plan), w, figure(&c))
 	case w > 0:
 		res.NeededCoefBits = w
-		msg += fmt.Sprintf(" Of the %d cheapest of them, %s (%s) meets from the fewest bits, %d.", tried, chain.Notation(c.Plan), figure(&c), w)
+		msg += fmt.Sprintf(" Of the %d cheapest of them, %s meets from the fewest bits, %d (re-designed, %s there).", tried, dir.Notation(c.Plan), w, figure(&c))
 	case tried > 0 && ctx.Err() == nil:
 		msg += fmt.Sprintf(" None of the %d cheapest of them meets with coefficients of up to %d bits.", tried, widestTried)
 	}
@@ -526,14 +528,14 @@ func widthReason(ctx context.Context, jobs int, des designer, dropped []Candidat
 
 // widthReason is the package's widthReason over the chains this tier
 // dropped for their rounded taps.
-func (t *designTier) widthReason(bits int) string {
+func (t *designTier) widthReason(bits int, dir chain.Direction) string {
 	var dropped []Candidate
 	for _, k := range t.order {
 		if o := t.memo[k]; o.reason == ReasonMissQuantised {
 			dropped = append(dropped, o.c)
 		}
 	}
-	return widthReason(t.ctx, t.jobs, t.des, dropped, bits, t.res)
+	return widthReason(t.ctx, t.jobs, t.des, dropped, bits, dir, t.res)
 }
 
 // goneWith reports whether plan failed, without allocating: scratch is

@@ -117,13 +117,7 @@ func Plan(p PlanPage) ([]byte, error) {
 		case cw.OnFront:
 			v.CompareText = fmt.Sprintf("it is #%d on it.", cw.Rank)
 		case !r.Front[0].MeetsTargets:
-			meet := 0
-			for _, f := range cw.Front {
-				if f.MeetsTargets {
-					meet++
-				}
-			}
-			switch meet {
+			switch meet, _ := cw.Meeting(); meet {
 			case 0:
 				v.CompareText = "none of its chains meets the spec as judged there either."
 			case 1:

@@ -157,6 +157,21 @@ type FrontChain struct {
 	Adders *int `json:"adders,omitempty"`
 }
 
+// Meeting is how many chains of the front meet the spec as judged there,
+// and the index of the first (-1 when none does).
+func (cmp *Comparison) Meeting() (n, first int) {
+	first = -1
+	for i, f := range cmp.Front {
+		if f.MeetsTargets {
+			n++
+			if first < 0 {
+				first = i
+			}
+		}
+	}
+	return n, first
+}
+
 // NewComparison is the comparison with the front of plan's report rep.
 func NewComparison(source string, rep *Report) *Comparison {
 	cmp := &Comparison{Source: source, Front: []FrontChain{}, plan: rep.Front}

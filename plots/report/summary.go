@@ -33,15 +33,7 @@ func WriteComparison(w io.Writer, rep *Report) {
 	case len(cw.Front) == 0:
 		fmt.Fprintf(w, "  %s found no chain that meets the spec.\n", capitalise(cw.Source))
 	case !rep.Front[0].MeetsTargets:
-		meet, first := 0, -1
-		for i, f := range cw.Front {
-			if f.MeetsTargets {
-				meet++
-				if first < 0 {
-					first = i
-				}
-			}
-		}
+		meet, first := cw.Meeting()
 		if meet == 0 {
 			fmt.Fprintf(w, "  None of the %d chains on the front of %s meets the spec as judged there either.\n", len(cw.Front), cw.Source)
 			break
