@@ -52,8 +52,11 @@ const (
 //     twice the stopband edge FK - fa, Fm from 2.2 to 5 times FK: the two
 //     largest such d.
 //
-// A d of 1 (the fractional stage alone) is tried only when nothing else
-// fits.
+// A d of 1 (the fractional stage alone, no integer stage before it) is a
+// candidate like any other: below a ratio of 2 it is the largest d at most
+// the ratio, and often the cheapest chain (a 5/4 resampler needs no
+// half-band in front of it). It is also the only one tried when nothing
+// else fits.
 func fractionalSplits(spec chain.Spec, num, den int, maxStages int) []int {
 	if maxStages < 2 {
 		return []int{1}
@@ -67,7 +70,7 @@ func fractionalSplits(spec chain.Spec, num, den int, maxStages int) []int {
 	lim := int(math.Min(2*ratio+1, math.MaxInt32))
 	var cands []int
 	for _, d := range smoothUpTo(lim) {
-		if d > 1 && ok(d) {
+		if ok(d) {
 			cands = append(cands, d)
 		}
 	}
