@@ -642,8 +642,8 @@ func printSummary(w io.Writer, j *job, rep *report.Report, files []report.File, 
 		fmt.Fprintf(w, "  ripple %g dB peak-to-peak, rejection %g dB\n", s.RippleDB, s.RejectionDB)
 	}
 	if rep.Command == "plan" {
-		fmt.Fprintf(w, "  searched %d candidates: %d feasible by estimate, %d designed, %d on the front\n",
-			rep.Search.Candidates, rep.Search.Feasible, rep.Search.Designed, len(rep.Front))
+		fmt.Fprintf(w, "  searched %s: %d feasible by estimate, %d designed, %d on the front\n",
+			report.Count(rep.Search.Candidates, "candidate", "candidates"), rep.Search.Feasible, rep.Search.Designed, len(rep.Front))
 	}
 	if n := rep.Search.LeftUndesigned; n > 0 && rep.Command == "plan" {
 		fmt.Fprintf(w, "  DESIGN BUDGET REACHED: %d candidates near the front were left undesigned, so a cheaper chain may be missing (lower search.max_stages or narrow search.kinds or search.cic_orders to design them all)\n", n)

@@ -109,7 +109,7 @@ func Plan(p PlanPage) ([]byte, error) {
 			Figures: v.Front[r.Recommended], Stages: stageViews(c, p.Files, "", v.Clock)}
 	}
 	if cw := r.ComparedWith; cw != nil && len(r.Front) == 1 {
-		v.Compared = fmt.Sprintf("%s (%d chains)", cw.Source, len(cw.Front))
+		v.Compared = fmt.Sprintf("%s (%s)", cw.Source, report.Count(len(cw.Front), "chain", "chains"))
 		for _, b := range r.BeatenBy {
 			v.Beaten = append(v.Beaten, b.Text())
 		}
@@ -120,8 +120,14 @@ func Plan(p PlanPage) ([]byte, error) {
 			switch meet, _ := cw.Meeting(); meet {
 			case 0:
 				v.CompareText = "none of its chains meets the spec as judged there either."
+				if len(cw.Front) == 1 {
+					v.CompareText = "its one chain does not meet the spec as judged there either."
+				}
 			case 1:
 				v.CompareText = "1 of its chains meets the spec; this one does not."
+				if len(cw.Front) == 1 {
+					v.CompareText = "its one chain meets the spec; this one does not."
+				}
 			default:
 				v.CompareText = fmt.Sprintf("%d of its chains meet the spec; this one does not.", meet)
 			}
@@ -482,8 +488,8 @@ func searchText(r *report.Report) string {
 	if r.Command != "plan" {
 		return "One chain named on the command line, designed and evaluated against the spec."
 	}
-	s := fmt.Sprintf("%d candidate chains enumerated, %d feasible by estimate, %d designed for real, %d on the Pareto front.",
-		r.Search.Candidates, r.Search.Feasible, r.Search.Designed, len(r.Front))
+	s := fmt.Sprintf("%s enumerated, %d feasible by estimate, %d designed for real, %d on the Pareto front.",
+		report.Count(r.Search.Candidates, "candidate chain", "candidate chains"), r.Search.Feasible, r.Search.Designed, len(r.Front))
 	if len(r.Search.Dropped) > 0 {
 		d := make(map[optimize.Reason]int, len(r.Search.Dropped))
 		for k, v := range r.Search.Dropped {

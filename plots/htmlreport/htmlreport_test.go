@@ -360,8 +360,9 @@ func TestCheckPageComparisonMisses(t *testing.T) {
 		want  string
 	}{
 		{nil, "(0 chains): none of its chains meets the spec as judged there either."},
-		{[]report.Chain{dearer(false)}, "(1 chains): none of its chains meets the spec as judged there either."},
-		{[]report.Chain{dearer(true)}, "(1 chains): 1 of its chains meets the spec; this one does not."},
+		{[]report.Chain{dearer(false)}, "(1 chain): its one chain does not meet the spec as judged there either."},
+		{[]report.Chain{dearer(true)}, "(1 chain): its one chain meets the spec; this one does not."},
+		{[]report.Chain{dearer(true), dearer(false)}, "(2 chains): 1 of its chains meets the spec; this one does not."},
 		{[]report.Chain{dearer(true), dearer(true)}, "(2 chains): 2 of its chains meet the spec; this one does not."},
 	} {
 		rep := base
