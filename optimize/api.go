@@ -201,6 +201,12 @@ type Result struct {
 	// which one of the cheapest of them meets (Reason names it). Zero
 	// otherwise, or when none meets up to 32 bits.
 	NeededCoefBits int
+	// Closest is, when Front is empty and designed chains missed the
+	// rejection or the ripple in floating point (ReasonMissRejection,
+	// ReasonMissRipple), the one that came closest, as last designed
+	// (after any re-design) and measured: its Figures.Analysis says by how
+	// much it missed (Shortfall). Nil otherwise.
+	Closest *Candidate
 	// AccumulatorExcess is, for the chains dropped under
 	// ReasonWordLengths because a FIR or half-band accumulator would pass
 	// fixed.MaxAccumulatorBits (63), how many bits the closest must lose

@@ -489,6 +489,9 @@ func planFractional(ctx context.Context, spec chain.Spec, s Settings) (*Result, 
 		fs[i] = candFigs(&res.Front[i])
 	}
 	res.Recommended, res.Reason = recommend(fs, &s, spec.Direction() == chain.Interpolate)
+	if len(res.Front) == 0 {
+		res.Closest = closest(spec, outs, whys)
+	}
 	if len(res.Front) == 0 && !res.Partial && res.Dropped[ReasonMissQuantised] > 0 {
 		res.Reason = widthReason(ctx, jobs, des, missed, spec.CoefBits, spec.Direction(), res)
 	}

@@ -324,14 +324,27 @@ func (r realDesigner) measure(c Candidate) (Candidate, Reason) {
 	// margin the last one bought per dB (a secant step, at most
 	// maxRaiseScale times the shortfall).
 	raise, step, prev := 0.0, 0.0, margin
-	for try := 0; try < maxRedesigns && margin < 0 && margin >= -r.spec.RippleDB && r.ctx.Err() == nil; try++ {
-		next := -margin + redesignExtraDB
-		if gained := margin - prev; try > 0 && gained > 0 && gained < step {
-			next *= math.Min(step/gained, maxRaiseScale)
+	// A ripple over the budget by less than half of it (the stages'
+	// ripples add up to a hair more than the budget) is made good the
+	// same way, the chain designed again with the budget cut by the
+	// excess and a hundredth of it.
+	cut, over := 0.0, f.Analysis.PassbandRippleDB-r.spec.RippleDB
+	short := func() bool { return margin < 0 && margin >= -r.spec.RippleDB }
+	wide := func() bool { return over > 0 && over < r.spec.RippleDB/2 }
+	for try := 0; try < maxRedesigns && (short() || wide()) && r.ctx.Err() == nil; try++ {
+		if short() {
+			next := -margin + redesignExtraDB
+			if gained := margin - prev; step > 0 && gained > 0 && gained < step {
+				next *= math.Min(step/gained, maxRaiseScale)
+			}
+			step, prev = next, margin
+			raise += next
 		}
-		step, prev = next, margin
-		raise += next
+		if wide() {
+			cut += over + r.spec.RippleDB/100
+		}
 		spec := r.spec.RejectionRaised(raise)
+		spec.RippleDB -= cut
 		ch, err := chain.DesignContext(r.ctx, spec, c.Plan, r.s.Chain)
 		if err != nil {
 			break
@@ -340,8 +353,9 @@ func (r realDesigner) measure(c Candidate) (Candidate, Reason) {
 		if err != nil {
 			break
 		}
-		c.Chain, f, c.raised, c.survived = ch, g, raise, false
+		c.Chain, f, c.raised, c.cut, c.survived = ch, g, raise, cut, false
 		margin = f.Analysis.AliasRejectionDB - r.spec.RejectionDB
+		over = f.Analysis.PassbandRippleDB - r.spec.RippleDB
 	}
 	if wl != nil && c.Chain != first {
 		wl() // planned for the chain before its re-design: not wanted
@@ -351,7 +365,8 @@ func (r realDesigner) measure(c Candidate) (Candidate, Reason) {
 		if wl != nil {
 			wl()
 		}
-		return Candidate{}, why
+		// Kept measured: an empty front names the closest (Result.Closest).
+		return Candidate{Plan: c.Plan, Chain: c.Chain, Figures: f, MarginDB: margin}, why
 	}
 	c.Figures, c.MarginDB, c.evaluated = f, margin, true
 	if !r.rounded(r.spec) {
@@ -426,6 +441,32 @@ func overLimits(f cost.Figures, c *chain.Chain, l Limits) Reason {
 		return ReasonOverMultipliers
 	}
 	return ""
+}
+
+// Shortfall is how far analysis a falls short of spec, in dB: the larger
+// of the rejection's shortfall and the ripple's excess (zero or less when
+// it meets).
+func Shortfall(spec chain.Spec, a chain.Analysis) float64 {
+	return math.Max(spec.RejectionDB-a.AliasRejectionDB, a.PassbandRippleDB-spec.RippleDB)
+}
+
+// closest returns the candidate of cs that missed the spec in floating
+// point by the least (Shortfall), the first on a tie, or nil.
+func closest(spec chain.Spec, cs []Candidate, whys []Reason) *Candidate {
+	var best *Candidate
+	for i := range cs {
+		if w := whys[i]; (w != ReasonMissRejection && w != ReasonMissRipple) || cs[i].Chain == nil {
+			continue
+		}
+		if best == nil || Shortfall(spec, cs[i].Figures.Analysis) < Shortfall(spec, best.Figures.Analysis) {
+			best = &cs[i]
+		}
+	}
+	if best == nil {
+		return nil
+	}
+	c := *best
+	return &c
 }
 
 // floatMisses returns the reason a chain measured a misses spec, or "".
@@ -714,6 +755,14 @@ func search(ctx context.Context, p params, s *Settings, est *estimator, des desi
 		fs[i] = candFigs(&res.Front[i])
 	}
 	res.Recommended, res.Reason = recommend(fs, s, p.interp)
+	if len(res.Front) == 0 {
+		var cs []Candidate
+		var whys []Reason
+		for _, k := range t.order {
+			cs, whys = append(cs, t.memo[k].c), append(whys, t.memo[k].reason)
+		}
+		res.Closest = closest(chain.Spec{RejectionDB: p.rejDB, RippleDB: p.rippleDB}, cs, whys)
+	}
 	switch {
 	case len(res.Front) == 0 && !res.Partial && res.Dropped[ReasonMissQuantised] > 0:
 		dir := chain.Decimate

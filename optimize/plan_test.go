@@ -397,3 +397,41 @@ func TestRefuseInterpolation(t *testing.T) {
 		t.Errorf("err = %v", err)
 	}
 }
+
+// An empty front names the chain that came closest (Result.Closest): on an
+// invented 61.44 to 15.36 MS/s I/Q spec with a 1e-5 dB ripple budget, one
+// stage at most, every designed chain misses the ripple. The closest one's
+// figures are those chain.Analyze gives its chain, it misses, and no
+// single-stage chain that Check designs misses by less.
+func TestClosestMiss(t *testing.T) {
+	spec := chain.Spec{InputRate: 61.44e6, OutputRate: 15.36e6, Passband: 7389753.494656534, RippleDB: 1e-5, RejectionDB: 100, Complex: true}
+	set := optimize.Settings{MaxStages: 1}
+	res, err := optimize.Plan(context.Background(), spec, set)
+	if err != nil {
+		t.Fatal(err)
+	}
+	if len(res.Front) != 0 || res.Closest == nil {
+		t.Fatalf("front of %d, closest %v: want an empty front with its closest miss", len(res.Front), res.Closest)
+	}
+	c := res.Closest
+	a, err := chain.Analyze(c.Chain, spec)
+	if err != nil {
+		t.Fatal(err)
+	}
+	got := optimize.Shortfall(spec, c.Figures.Analysis)
+	if want := optimize.Shortfall(spec, a); got <= 0 || math.Abs(got-want) > 1e-12 {
+		t.Errorf("%s: shortfall %.6g dB, chain.Analyze's %.6g dB", chain.Notation(c.Plan), got, want)
+	}
+	for _, pl := range [][]chain.StagePlan{
+		{{Kind: chain.FIR, Factor: 4}},
+		{{Kind: chain.FIR, Factor: 4, Variant: chain.Lowpass}},
+	} {
+		d, why, err := optimize.Check(context.Background(), spec, pl, set)
+		if err != nil || why == "" {
+			t.Fatalf("%s: reason %q, err %v: want a miss", chain.Notation(pl), why, err)
+		}
+		if s := optimize.Shortfall(spec, d.Figures.Analysis); s < got-1e-12 {
+			t.Errorf("%s misses by %.6g dB, less than the closest named, %s, by %.6g dB", chain.Notation(pl), s, chain.Notation(c.Plan), got)
+		}
+	}
+}

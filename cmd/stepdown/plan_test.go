@@ -145,3 +145,24 @@ func TestCheckAccumulatorHint(t *testing.T) {
 		}
 	}
 }
+
+// An empty front whose designed chains missed the targets in floating point
+// names the closest and by how much, in the spec's direction.
+func TestEmptyFrontClosest(t *testing.T) {
+	spec := chain.Spec{InputRate: 7.68e6, OutputRate: 10e6, RippleDB: 0.4, RejectionDB: 65}
+	plan := []chain.StagePlan{{Kind: chain.Polyphase, Factor: 1, Up: 96, Down: 125}}
+	res := &optimize.Result{
+		Reason:  "No chain met the spec; Dropped says why each candidate was set aside.",
+		Dropped: map[optimize.Reason]int{optimize.ReasonMissRejection: 1},
+		Closest: &optimize.Candidate{Plan: plan},
+	}
+	res.Closest.Figures.Analysis = chain.Analysis{AliasRejectionDB: 64.89462441957761, PassbandRippleDB: 0.39918}
+	want := "no chain met the spec; the dropped counts say why candidates were set aside; the closest, poly125/96, misses the 65 dB rejection by 0.105 dB (64.8946 dB) (dropped: designed chain misses rejection: 1); out left as it was"
+	if got := emptyFront(res, spec, nil, "out").Error(); got != want {
+		t.Errorf("got  %q\nwant %q", got, want)
+	}
+	res.Closest.Figures.Analysis = chain.Analysis{AliasRejectionDB: 70, PassbandRippleDB: 0.41}
+	if got, want := emptyFront(res, spec, nil, "out").Error(), "the closest, poly125/96, exceeds the 0.4 dB ripple by 0.01 dB (0.41 dB)"; !strings.Contains(got, want) {
+		t.Errorf("got  %q\nwant it to contain %q", got, want)
+	}
+}
