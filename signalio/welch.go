@@ -1,6 +1,7 @@
 package signalio
 
 import (
+	"context"
 	"fmt"
 	"math"
 
@@ -115,6 +116,16 @@ type Spectrum struct {
 // and the default segment, about 0.8 s for a real signal and 2 s for I/Q
 // on one core of a 2-core CI machine (BenchmarkWelchCap).
 func Welch(s *Signal, opt WelchOptions) (*Spectrum, error) {
+	return WelchContext(context.Background(), s, opt)
+}
+
+// welchCheck is how many segments WelchContext transforms between looks
+// at its context: at the default segment, well under a millisecond.
+const welchCheck = 16
+
+// WelchContext is Welch stopped by ctx: it looks at ctx every welchCheck
+// segments and returns ctx's error once it is done.
+func WelchContext(ctx context.Context, s *Signal, opt WelchOptions) (*Spectrum, error) {
 	if err := s.Check("signal"); err != nil {
 		return nil, err
 	}
@@ -153,6 +164,9 @@ func Welch(s *Signal, opt WelchOptions) (*Spectrum, error) {
 		pow = make([]float64, n/2+1)
 		x := s.Samples[0]
 		for k := range segs {
+			if k%welchCheck == 0 && ctx.Err() != nil {
+				return nil, ctx.Err()
+			}
 			for i := range seq {
 				seq[i] = float64(x[k*step+i]) / fs * w[i]
 			}
@@ -183,6 +197,9 @@ func Welch(s *Signal, opt WelchOptions) (*Spectrum, error) {
 		acc := make([]float64, n)
 		xi, xq := s.Samples[0], s.Samples[1]
 		for k := range segs {
+			if k%welchCheck == 0 && ctx.Err() != nil {
+				return nil, ctx.Err()
+			}
 			for i := range seq {
 				seq[i] = complex(float64(xi[k*step+i])/fs*w[i], float64(xq[k*step+i])/fs*w[i])
 			}

@@ -1,8 +1,11 @@
 package signalio
 
 import (
+	"context"
+	"errors"
 	"math"
 	"math/rand/v2"
+	"reflect"
 	"strings"
 	"testing"
 )
@@ -193,5 +196,36 @@ func BenchmarkWelchCap(b *testing.B) {
 				}
 			}
 		})
+	}
+}
+
+// WelchContext stops on its context: a cancelled one returns its error at
+// once, for real and I/Q signals, and a live one gives Welch's bytes.
+func TestWelchContext(t *testing.T) {
+	for _, ch := range []int{1, 2} {
+		s := &Signal{RateHz: 1e6, Bits: 16}
+		for c := 0; c < ch; c++ {
+			x := make([]int64, 1<<16)
+			for i := range x {
+				x[i] = int64((i*7919+c*104729)%2001 - 1000)
+			}
+			s.Samples = append(s.Samples, x)
+		}
+		ctx, cancel := context.WithCancel(context.Background())
+		cancel()
+		if _, err := WelchContext(ctx, s, WelchOptions{Segment: 256}); !errors.Is(err, context.Canceled) {
+			t.Errorf("%d channels, cancelled: err = %v", ch, err)
+		}
+		a, err := Welch(s, WelchOptions{Segment: 256})
+		if err != nil {
+			t.Fatal(err)
+		}
+		b, err := WelchContext(context.Background(), s, WelchOptions{Segment: 256})
+		if err != nil {
+			t.Fatal(err)
+		}
+		if !reflect.DeepEqual(a, b) {
+			t.Errorf("%d channels: WelchContext differs from Welch", ch)
+		}
 	}
 }

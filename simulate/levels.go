@@ -1,6 +1,7 @@
 package simulate
 
 import (
+	"context"
 	"fmt"
 	"math"
 
@@ -79,6 +80,11 @@ func BandDBFS(sp *signalio.Spectrum, in func(f float64) bool) float64 {
 // signalio.DefaultSegment points, at most a quarter of the shorter signal
 // so that several segments average (at least 16 points).
 func (r *Result) Spectra() (in, out *signalio.Spectrum, err error) {
+	return r.SpectraContext(context.Background())
+}
+
+// SpectraContext is Spectra stopped by ctx (signalio.WelchContext).
+func (r *Result) SpectraContext(ctx context.Context) (in, out *signalio.Spectrum, err error) {
 	seg := func(n int) int {
 		s := signalio.DefaultSegment
 		for s > 16 && s > n/4 {
@@ -91,10 +97,10 @@ func (r *Result) Spectra() (in, out *signalio.Spectrum, err error) {
 	if n := outSig.Frames(); n < 16 {
 		return nil, nil, fmt.Errorf("simulate: the output has %d samples; a spectrum needs at least 16 (give a longer recording)", n)
 	}
-	if in, err = signalio.Welch(inSig, signalio.WelchOptions{Segment: seg(inSig.Frames())}); err != nil {
+	if in, err = signalio.WelchContext(ctx, inSig, signalio.WelchOptions{Segment: seg(inSig.Frames())}); err != nil {
 		return nil, nil, err
 	}
-	if out, err = signalio.Welch(outSig, signalio.WelchOptions{Segment: seg(outSig.Frames())}); err != nil {
+	if out, err = signalio.WelchContext(ctx, outSig, signalio.WelchOptions{Segment: seg(outSig.Frames())}); err != nil {
 		return nil, nil, err
 	}
 	return in, out, nil

@@ -226,7 +226,10 @@ func runSimulate(c *cli.Context) error {
 	if err != nil {
 		return fmt.Errorf("the chain %s cannot be simulated: %s", j.spec.Chain.Direction().Notation(cand.Plan), libMessage(err))
 	}
-	inSp, outSp, err := res.Spectra()
+	inSp, outSp, err := res.SpectraContext(c.Context)
+	if c.Context.Err() != nil {
+		return fmt.Errorf("interrupted; %s left as it was", clip(j.out.Dir()))
+	}
 	if err != nil {
 		return usagef("--input %s: %s", clip(filepath.Base(input)), libMessage(err))
 	}
@@ -269,7 +272,10 @@ func runSimulate(c *cli.Context) error {
 	}
 	js := buf.Bytes()
 	files = append([]report.File{{Name: "simulate.json", Data: js}}, files...)
-	if err := j.out.Write(files); err != nil {
+	if err := j.out.WriteContext(c.Context, files); err != nil {
+		if c.Context.Err() != nil {
+			return fmt.Errorf("interrupted; %s left as it was", clip(j.out.Dir()))
+		}
 		return err
 	}
 	if c.Context.Err() != nil {

@@ -2,6 +2,7 @@ package report
 
 import (
 	"bufio"
+	"context"
 	"crypto/rand"
 	"encoding/hex"
 	"errors"
@@ -254,13 +255,26 @@ func unwrapPath(err error) error {
 // subfolders); a file with Stream set is written through a buffer as
 // Stream makes it, never held whole.
 func (o *Folder) Write(files []File) error {
+	return o.WriteContext(context.Background(), files)
+}
+
+// WriteContext is Write stopped by ctx: a stream's writes fail with ctx's
+// error once it is done (each buffered write of 64 KiB looks at it), and
+// no file starts after it. The caller then leaves the folder uncommitted.
+func (o *Folder) WriteContext(ctx context.Context, files []File) error {
 	for _, f := range files {
+		if err := ctx.Err(); err != nil {
+			return err
+		}
 		p := filepath.Join(o.tmp, filepath.FromSlash(f.Name))
 		if err := os.MkdirAll(filepath.Dir(p), 0o755); err != nil {
 			return failure("writing %s: %v", f.Name, unwrapPath(err))
 		}
 		if f.Stream != nil {
-			if err := writeStream(p, f.Stream); err != nil {
+			if err := writeStream(ctx, p, f.Stream); err != nil {
+				if ctx.Err() != nil {
+					return ctx.Err()
+				}
 				return failure("writing %s: %v", f.Name, unwrapPath(err))
 			}
 			continue
@@ -273,12 +287,12 @@ func (o *Folder) Write(files []File) error {
 }
 
 // writeStream creates the file p and writes into it what stream makes.
-func writeStream(p string, stream func(io.Writer) error) error {
+func writeStream(ctx context.Context, p string, stream func(io.Writer) error) error {
 	fh, err := os.OpenFile(p, os.O_WRONLY|os.O_CREATE|os.O_TRUNC, 0o644)
 	if err != nil {
 		return err
 	}
-	bw := bufio.NewWriterSize(fh, 1<<16)
+	bw := bufio.NewWriterSize(stopWriter{ctx, fh}, 1<<16)
 	err = stream(bw)
 	if err == nil {
 		err = bw.Flush()
@@ -287,6 +301,19 @@ func writeStream(p string, stream func(io.Writer) error) error {
 		err = cerr
 	}
 	return err
+}
+
+// stopWriter is w that fails once ctx is done.
+type stopWriter struct {
+	ctx context.Context
+	w   io.Writer
+}
+
+func (s stopWriter) Write(p []byte) (int, error) {
+	if err := s.ctx.Err(); err != nil {
+		return 0, err
+	}
+	return s.w.Write(p)
 }
 
 // Commit puts the temporary folder in the output folder's place. On any

@@ -1,6 +1,7 @@
 package report
 
 import (
+	"context"
 	"errors"
 	"io"
 	"os"
@@ -340,5 +341,46 @@ func TestOutStream(t *testing.T) {
 	}
 	if got := readString(t, filepath.Join(dir, "big", "stream.txt")); got != string(want) {
 		t.Error("a failed stream changed the output folder")
+	}
+}
+
+// A stream stops once its context is done: the write after the
+// cancellation fails with the context's error (within one 64 KiB buffer),
+// the stream ends there, no later file is written, and the output folder
+// is left as it was.
+func TestOutStreamStops(t *testing.T) {
+	dir := filepath.Join(t.TempDir(), "out")
+	must(t, runOut(t, dir, "before"))
+	o, err := OpenFolder(dir, "--out")
+	must(t, err)
+	defer o.Discard()
+	ctx, cancel := context.WithCancel(context.Background())
+	written := 0
+	later := false
+	err = o.WriteContext(ctx, []File{{Name: "endless.csv", Stream: func(w io.Writer) error {
+		line := []byte(strings.Repeat("1234567,", 127) + "\n")
+		for {
+			if written >= 1<<20 {
+				cancel()
+			}
+			if written > 1<<20+3<<16 {
+				return errors.New("the stream ran on after its context was cancelled")
+			}
+			n, err := w.Write(line)
+			written += n
+			if err != nil {
+				return err
+			}
+		}
+	}}, {Name: "later.txt", Stream: func(io.Writer) error { later = true; return nil }}})
+	if !errors.Is(err, context.Canceled) {
+		t.Fatalf("err = %v, want context.Canceled", err)
+	}
+	if later {
+		t.Error("a file after the stopped stream was written")
+	}
+	o.Discard()
+	if got := readString(t, filepath.Join(dir, "report.json")); got != "before" {
+		t.Errorf("output folder changed: marker %q", got)
 	}
 }
