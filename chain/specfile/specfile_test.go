@@ -479,6 +479,12 @@ func TestTOMLSlips(t *testing.T) {
 		{`ripple = .1`, `spec.toml:3: ripple: a number starts with a digit: write 0.1, not .1`},
 		{`output_rate = "2 MHz"`, `spec.toml:3: output_rate: given twice; give each key once`},
 		{`ripple = 0.1.2`, `spec.toml:3: not valid TOML: `},
+		{`search.kinds = ["cic", "fir"`, `spec.toml:3: search.kinds: the list is not closed: end it with ]`},
+		{`search.kinds = ["cic" "fir"]`, `spec.toml:3: search.kinds: items of a list are separated by commas: [a, b]`},
+		{"rejection_mask = [\n  [1e6, 60]\n  [2e6, 80]\n]", `spec.toml:5: rejection_mask: items of a list are separated by commas: [a, b]`},
+		{"rejection_mask = [\n  [1e6, 60],\n  [2e6, 80]\n", `spec.toml:3: rejection_mask: the list is not closed: end it with ]`},
+		{`words = { input = 16, output = 24`, `spec.toml:3: words: an inline table { ... } must end with } on its line`},
+		{`words = { input = 16 output = 24 }`, `spec.toml:3: words: entries of an inline table are separated by commas`},
 	} {
 		_, err := Parse("spec.toml", []byte(head+tc.line3+"\nrejection = \"80 dB\"\n"))
 		if err == nil || !strings.HasPrefix(err.Error(), tc.want) {

@@ -25,6 +25,11 @@ var (
 	reNumberUnit  = regexp.MustCompile(`^\s*([A-Za-z0-9_.\-]+)\s*=\s*([-+]?[0-9][0-9_.eE+\-]*\s*[A-Za-z/]+)\s*(?:#.*)?$`)
 	reKeyOfLine   = regexp.MustCompile(`^\s*([A-Za-z0-9_.\-]+)\s*=`)
 	reLineIsEmpty = regexp.MustCompile(`^\s*(?:#.*)?$`)
+	reListOpen    = regexp.MustCompile(`^expected a comma \(','\) or array terminator \('\]'\), but got (.*)$`)
+	reInlineOpen  = regexp.MustCompile(`^expected a comma or an inline table terminator '\}', but got (.*) instead$`)
+	reOpensList   = regexp.MustCompile(`^\s*([A-Za-z0-9_.\-]+)\s*=\s*\[`)
+	reOpensTable  = regexp.MustCompile(`^\s*([A-Za-z0-9_.\-]+)\s*=\s*\{`)
+	reStartsItem  = regexp.MustCompile(`^\s*(?:[A-Za-z0-9_.\-]+\s*=|\[\[?[A-Za-z_][A-Za-z0-9_.\-]*\]\]?\s*(?:#.*)?$)`)
 )
 
 // tomlError is the spec-file error for the decoder's message msg at line
@@ -74,10 +79,41 @@ func tomlError(file string, data []byte, line int, msg string) *Error {
 	case reDuplicate.MatchString(msg):
 		e.Key = units.Clip(reDuplicate.FindStringSubmatch(msg)[1], units.MaxEcho)
 		e.Rule = "given twice; give each key once"
+	case reListOpen.MatchString(msg):
+		// The decoder notices a list left open where the next item
+		// starts (or at the end of the file): the slip is on the line
+		// that opened it.
+		start, k := openedOn(data, line, reOpensList)
+		e.Key = k
+		if got := reListOpen.FindStringSubmatch(msg)[1]; got == "end of file" || (line > start && reStartsItem.MatchString(text)) {
+			e.Line, e.Rule = start, "the list is not closed: end it with ]"
+			break
+		}
+		e.Rule = "items of a list are separated by commas: [a, b]"
+	case reInlineOpen.MatchString(msg):
+		start, k := openedOn(data, line, reOpensTable)
+		e.Key = k
+		if got := reInlineOpen.FindStringSubmatch(msg)[1]; got == "end of file" || got == `'\n'` || line > start {
+			e.Line, e.Rule = start, "an inline table { ... } must end with } on its line"
+			break
+		}
+		e.Rule = "entries of an inline table are separated by commas: { input = 16, output = 24 }"
 	default:
 		e.Rule = "not valid TOML: " + units.Clip(oneLine(msg), 2*units.MaxEcho)
 	}
 	return e
+}
+
+// openedOn is the line, at or before line, whose key = opens what opens
+// matches (a list or an inline table), and its key; line and "" when none
+// does.
+func openedOn(data []byte, line int, opens *regexp.Regexp) (int, string) {
+	for n := line; n >= 1; n-- {
+		if m := opens.FindStringSubmatch(lineOf(data, n)); m != nil {
+			return n, m[1]
+		}
+	}
+	return line, ""
 }
 
 // orKey is key, or "key" when the line named none.
