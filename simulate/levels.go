@@ -16,8 +16,7 @@ type Levels struct {
 	// The input, as run (in the chain's input word): all of it, its
 	// passband [0, fp] and its alias bands, the input frequencies that
 	// fold onto the protected band [0, fa] at the output ([k F_out - fa,
-	// k F_out + fa], k >= 1, and their mirror images for I/Q; after a
-	// fractional stage, every path's, Bands.InAlias).
+	// k F_out + fa], k >= 1, and their mirror images for I/Q; Bands.InAlias).
 	InputDBFS, InputPassbandDBFS, InputAliasDBFS float64
 	// The bit-true output: all of it, its passband and its protected band.
 	OutputDBFS, OutputPassbandDBFS, OutputProtectedDBFS float64
@@ -33,28 +32,22 @@ type Bands struct {
 	PassbandHz, ProtectedHz float64
 	// OutputRateHz is the rate the alias bands fold to.
 	OutputRateHz float64
-	// FracUp and FracRateHz describe a chain that ends in a fractional
-	// stage (FracUp 0: none): its L and its input rate Fm. A tone at f
-	// then also leaves on the paths f + j Fm, j = 1..L-1 (package chain,
-	// Fractional stages), and those fold too.
-	FracUp     int
-	FracRateHz float64
 }
 
 // InAlias reports whether input frequency f (Hz, negative for the lower
 // half of an I/Q spectrum) folds onto the protected band: its distance to
-// the nearest nonzero multiple k of the output rate is at most fa; after
-// a fractional stage, that of f + j Fm to any multiple of the output rate
-// for a path j in 1..L-1.
+// the nearest nonzero multiple of the output rate is at most fa.
+//
+// A chain that ends in a fractional stage (L/M) is held to the same bands.
+// Its images of every input frequency (f + j Fm, j = 1..L-1, package
+// chain's paths) reach the protected band for some j whatever f is, in
+// the passband too, but only through its prototype's stopband: they are
+// the stage's rejection, which the output levels show, not a property of
+// the input. Counting them made the input's alias-band level its whole
+// band's.
 func (b Bands) InAlias(f float64) bool {
-	for j := range max(1, b.FracUp) {
-		x := f + float64(j)*b.FracRateHz
-		k := math.Round(x / b.OutputRateHz)
-		if (j != 0 || k != 0) && math.Abs(x-k*b.OutputRateHz) <= b.ProtectedHz {
-			return true
-		}
-	}
-	return false
+	k := math.Round(f / b.OutputRateHz)
+	return k != 0 && math.Abs(f-k*b.OutputRateHz) <= b.ProtectedHz
 }
 
 // BandDBFS is the power in dBFS of the bins of sp whose frequency satisfies

@@ -85,3 +85,28 @@ func TestInAliasMatchesBandList(t *testing.T) {
 		}
 	}
 }
+
+// A 12.5 to 10 MS/s I/Q chain (poly4/5 alone, fa = 3 MHz) has no input
+// alias band within its input's +-6.25 MHz: nothing there folds onto
+// [-3, 3] MHz at 10 MS/s without passing the prototype's stopband. The
+// images a fractional stage makes of every input frequency are not counted
+// (they made every input frequency an alias band).
+func TestInAliasFractional(t *testing.T) {
+	b := Bands{PassbandHz: 3e6, ProtectedHz: 3e6, OutputRateHz: 10e6}
+	for f := -6.25e6; f <= 6.25e6; f += 1e3 {
+		if b.InAlias(f) {
+			t.Fatalf("f = %g Hz counted as an alias band", f)
+		}
+	}
+	// Through 100 to 3.84 MS/s, the bands of 3.84 MHz multiples, as for an
+	// integer ratio.
+	b = Bands{PassbandHz: 1e6, ProtectedHz: 1.2e6, OutputRateHz: 3.84e6}
+	for _, tc := range []struct {
+		f    float64
+		want bool
+	}{{0, false}, {1.2e6, false}, {2.64e6, true}, {3.84e6, true}, {5.04e6, true}, {5.05e6, false}, {-7.68e6, true}, {-6.47e6, false}} {
+		if got := b.InAlias(tc.f); got != tc.want {
+			t.Errorf("f = %g Hz: InAlias %v, want %v", tc.f, got, tc.want)
+		}
+	}
+}

@@ -239,14 +239,6 @@ func runSimulate(c *cli.Context) error {
 		return fmt.Errorf("interrupted; %s left as it was", clip(j.out.Dir()))
 	}
 	bands := simulate.Bands{PassbandHz: cs.Passband, ProtectedHz: cs.Protected, OutputRateHz: res.OutputRateHz}
-	if n := len(cand.Chain.Stages); n > 0 {
-		switch st := cand.Chain.Stages[n-1].(type) {
-		case chain.PolyphaseStage:
-			bands.FracUp, bands.FracRateHz = st.Up, cand.Chain.Rates()[n-1]
-		case chain.FarrowStage:
-			bands.FracUp, bands.FracRateHz = st.Up, cand.Chain.Rates()[n-1]
-		}
-	}
 	lv := res.Measure(inSp, outSp, bands)
 	notation := j.spec.Chain.Direction().Notation(cand.Plan)
 	if c.Context.Err() != nil {
