@@ -437,6 +437,12 @@ func plan(c Cascade, w Words, s Settings, minBits []int) (*Widths, error) {
 		switch {
 		case st.fractional():
 			sws[i], err = planFractional(st, rates[i], in, ob, w.CoefBits, s, minBitsOf(minBits, i))
+			if AsAccumulatorError(err) != nil {
+				// As a FIR's: the plan goes on past it to say what the
+				// later stages need, on its output word and the design's
+				// unit gain at 0 Hz (the rounded taps' is not known).
+				sws[i] = StageWidths{OutputBits: ob, Gain: 1}
+			}
 		case st.CIC && st.Interpolate:
 			sws[i], err = planCICInterp(st, in, ob)
 		case st.CIC:
@@ -444,21 +450,17 @@ func plan(c Cascade, w Words, s Settings, minBits []int) (*Widths, error) {
 		default:
 			sws[i], err = planFIR(st, high(i), in, ob, w.CoefBits, s, minBitsOf(minBits, i))
 		}
-		if err != nil && !(!st.fractional() && !st.CIC && accs.add(err, i)) {
-			// Another error ends the plan: a fractional stage's too-wide
-			// accumulator is counted with the earlier ones, and the
-			// earliest error is the one returned.
-			if st.fractional() {
-				accs.add(err, i)
-			}
+		if err != nil && !(!st.CIC && accs.add(err, i)) {
+			// Another error ends the plan; the earliest accumulator error
+			// is the one returned.
 			if aerr := accs.err(); aerr != nil {
 				return nil, aerr
 			}
 			return nil, fmt.Errorf("fixed: stage %d: %w", i+1, err)
 		}
-		// A FIR stage whose accumulator is too wide has its output word
-		// and gain all the same: the plan goes on, to say what the other
-		// stages need.
+		// A FIR or fractional stage whose accumulator is too wide has its
+		// output word and gain all the same: the plan goes on, to say
+		// what the other stages need.
 		in = sws[i].OutputBits
 	}
 	if target < 0 {

@@ -830,3 +830,58 @@ func TestMuBitsChecked(t *testing.T) {
 		}
 	}
 }
+
+// A fractional stage whose accumulator passes 63 bits no longer ends the
+// word-length plan: the stages after it are planned too, so that the width
+// the error names fits them all. The invented 100 to 3.75 MS/s I/Q chain
+// cic4m1r5 > poly3/8 > fir2 at 16-bit input, 30-bit words and 36-bit
+// coefficients: the polyphase stage is 1 bit over and the last FIR 4, so
+// 32 bits are needed; stopping at the polyphase stage named 35, at which
+// the last FIR still failed.
+func TestFractionalAccumulatorErrorGoesOn(t *testing.T) {
+	spec := chain.Spec{InputRate: 100e6, OutputRate: 3.75e6, Passband: 1.2e6, RippleDB: 0.1, RejectionDB: 80, Complex: true,
+		InputBits: 16, OutputBits: 30, CoefBits: 36}
+	plan, err := chain.ParseNotation("cic4m1r5 > poly3/8 > fir2")
+	if err != nil {
+		t.Fatal(err)
+	}
+	c, err := chain.Design(spec, plan, chain.Settings{})
+	if err != nil {
+		t.Fatal(err)
+	}
+	_, _, err = PlanChain(spec, c, Settings{})
+	ae := AsAccumulatorError(err)
+	if ae == nil {
+		t.Fatalf("err = %v, want an AccumulatorError", err)
+	}
+	// Each stage alone, on the data word it has in the chain (planned at
+	// a width that fits): the most any is over is the excess.
+	cas, w, err := FromChain(spec, c)
+	if err != nil {
+		t.Fatal(err)
+	}
+	narrow := spec
+	narrow.CoefBits = 24
+	ws, _, err := PlanChain(narrow, c, Settings{})
+	if err != nil {
+		t.Fatal(err)
+	}
+	most := 0
+	for i := 1; i < len(cas.Stages); i++ {
+		one := cas
+		one.InputRate = cas.Rates()[i]
+		one.Stages = cas.Stages[i : i+1]
+		_, err := Plan(one, Words{InputBits: ws.Stages[i].InputBits, OutputBits: ws.Stages[i].OutputBits, CoefBits: w.CoefBits}, Settings{})
+		if a := AsAccumulatorError(err); a != nil {
+			most = max(most, a.NeedBits-MaxAccumulatorBits)
+		}
+	}
+	if ae.Excess() != most || most < 2 {
+		t.Errorf("excess %d bits; the stages alone are over by at most %d", ae.Excess(), most)
+	}
+	fit := spec
+	fit.CoefBits -= ae.Excess()
+	if _, _, err := PlanChain(fit, c, Settings{}); AsAccumulatorError(err) != nil {
+		t.Errorf("at the %d bits the error names: %v", fit.CoefBits, err)
+	}
+}
