@@ -236,8 +236,13 @@
 // ripple lets fall to 1 - dp: a chain with nothing to spare, a single long
 // stage typically, can miss the target by up to the ripple. A front member
 // that misses by no more than the ripple is designed again with the
-// target raised by the shortfall (at most twice) before it is dropped;
-// these re-designs are not counted in Result.Designed.
+// target raised by the shortfall plus 0.005 dB, later raises scaled by the
+// margin the last one bought (at most four times the shortfall), and one
+// whose ripple is over the budget by less than half of it with the budget
+// cut by the excess plus a hundredth, at most three times before it is
+// dropped; these re-designs are not counted in Result.Designed. When no
+// chain is left, Result.Closest is the designed chain that missed by the
+// least (Shortfall).
 //
 // With a fixed coefficient width the same holds of the chains' rounded
 // taps (see Coefficient width); re-designs for rounding are not counted in
