@@ -8,6 +8,7 @@ import (
 	"runtime"
 	"slices"
 	"sort"
+	"strconv"
 	"sync"
 	"sync/atomic"
 
@@ -448,6 +449,20 @@ func overLimits(f cost.Figures, c *chain.Chain, l Limits) Reason {
 // it meets).
 func Shortfall(spec chain.Spec, a chain.Analysis) float64 {
 	return math.Max(spec.RejectionDB-a.AliasRejectionDB, a.PassbandRippleDB-spec.RippleDB)
+}
+
+// ClosestText says how far c, the chain that came closest to spec
+// (Result.Closest), missed it, naming it in the spec's direction: "the
+// closest, poly125/96, misses the 65 dB rejection by 0.105 dB (64.8946 dB)".
+func ClosestText(c *Candidate, spec chain.Spec) string {
+	a := c.Figures.Analysis
+	name := spec.Direction().Notation(c.Plan)
+	if short := spec.RejectionDB - a.AliasRejectionDB; short >= a.PassbandRippleDB-spec.RippleDB {
+		return fmt.Sprintf("the closest, %s, misses the %g dB rejection by %.3g dB (%s dB)", name, spec.RejectionDB,
+			short, strconv.FormatFloat(a.AliasRejectionDB, 'g', 6, 64))
+	}
+	return fmt.Sprintf("the closest, %s, exceeds the %g dB ripple by %.3g dB (%s dB)", name, spec.RippleDB,
+		a.PassbandRippleDB-spec.RippleDB, strconv.FormatFloat(a.PassbandRippleDB, 'g', 6, 64))
 }
 
 // closest returns the candidate of cs that missed the spec in floating

@@ -9,7 +9,6 @@ import (
 	"os"
 	"regexp"
 	"slices"
-	"strconv"
 	"strings"
 	"sync"
 	"time"
@@ -310,22 +309,9 @@ func emptyFront(res *optimize.Result, spec chain.Spec, kinds []chain.Kind, dir s
 		}
 	}
 	if c := res.Closest; c != nil && res.NeededCoefBits == 0 && res.Dropped[optimize.ReasonWordLengths] == 0 {
-		msg += "; " + closestText(c, spec)
+		msg += "; " + optimize.ClosestText(c, spec)
 	}
 	return fmt.Errorf("%s (dropped: %s); %s left as it was", msg, optimize.DroppedText(res.Dropped, ", "), dir)
-}
-
-// closestText says how far the chain that came closest to spec missed it:
-// "the closest, poly125/96, misses the 65 dB rejection by 0.105 dB (64.8946 dB)".
-func closestText(c *optimize.Candidate, spec chain.Spec) string {
-	a := c.Figures.Analysis
-	name := spec.Direction().Notation(c.Plan)
-	if short := spec.RejectionDB - a.AliasRejectionDB; short >= a.PassbandRippleDB-spec.RippleDB {
-		return fmt.Sprintf("the closest, %s, misses the %g dB rejection by %.3g dB (%s dB)", name, spec.RejectionDB,
-			short, strconv.FormatFloat(a.AliasRejectionDB, 'g', 6, 64))
-	}
-	return fmt.Sprintf("the closest, %s, exceeds the %g dB ripple by %.3g dB (%s dB)", name, spec.RippleDB,
-		a.PassbandRippleDB-spec.RippleDB, strconv.FormatFloat(a.PassbandRippleDB, 'g', 6, 64))
 }
 
 func runCheck(c *cli.Context) error {

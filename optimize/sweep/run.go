@@ -180,7 +180,11 @@ func runOne(ctx context.Context, st Study, plan func(context.Context, chain.Spec
 		r.Status, r.Detail = Stopped, "stopped by the time limit or an interrupt before any chain was designed"
 		return r
 	case len(res.Front) == 0:
-		r.Status, r.Detail = Infeasible, "no chain meets the spec ("+optimize.DroppedText(res.Dropped, ", ")+")"
+		r.Status, r.Detail = Infeasible, "no chain meets the spec"
+		if c := res.Closest; c != nil {
+			r.Detail += "; " + optimize.ClosestText(c, spec.Chain)
+		}
+		r.Detail += " (" + optimize.DroppedText(res.Dropped, ", ") + ")"
 		return r
 	}
 	rep, err := report.NewContext(ctx, "plan", spec, res)

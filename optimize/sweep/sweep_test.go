@@ -343,3 +343,25 @@ func TestWordCells(t *testing.T) {
 }
 
 func fp(v float64) *float64 { return &v }
+
+// An infeasible row names the chain that came closest and by how much it
+// missed (optimize.Result.Closest), as plan's empty front does.
+func TestInfeasibleNamesClosest(t *testing.T) {
+	v, err := ParseVary("rejection=140:145:5")
+	if err != nil {
+		t.Fatal(err)
+	}
+	plan := func(ctx context.Context, s chain.Spec, set optimize.Settings) (*optimize.Result, error) {
+		res, err := fakePlan(ctx, s, set)
+		if err == nil && len(res.Front) == 0 {
+			c := &optimize.Candidate{Plan: []chain.StagePlan{{Kind: chain.FIR, Factor: s.Decimation()}}}
+			c.Figures.Analysis.AliasRejectionDB = s.RejectionDB - 3
+			res.Closest = c
+		}
+		return res, err
+	}
+	rs := Run(context.Background(), Study{Name: "ex", Spec: []byte(specfile.ExampleText), Vary: v, Workers: 1, Plan: plan})
+	if rs[1].Status != Infeasible || !strings.Contains(rs[1].Detail, "the closest, fir") || !strings.Contains(rs[1].Detail, "misses the 145 dB rejection by 3 dB (142 dB)") {
+		t.Errorf("145 dB: %s: %s", rs[1].Status, rs[1].Detail)
+	}
+}
