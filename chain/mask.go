@@ -117,9 +117,17 @@ func (m *Mask) MinOver(a, b float64) float64 {
 // Shifted returns the mask with every rejection raised by db dB (lowered
 // for a negative db), or an error when a point leaves (0, MaxRejectionDB].
 func (m *Mask) Shifted(db float64) (*Mask, error) {
+	return m.shifted(db, MaxRejectionDB)
+}
+
+// shifted is Shifted with the points' rejections held to (0, most] dB.
+func (m *Mask) shifted(db, most float64) (*Mask, error) {
 	p := m.Points()
 	for i := range p {
 		p[i].DB += db
+		if !finite(p[i].DB) || p[i].DB <= 0 || p[i].DB > most {
+			return nil, fmt.Errorf("point %d: rejection %s dB: must lie in (0, %s] dB", i+1, fmtNum(p[i].DB), fmtNum(most))
+		}
 	}
-	return NewMask(p)
+	return &Mask{p: p}, nil
 }

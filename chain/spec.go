@@ -57,6 +57,11 @@ type Spec struct {
 	// their own are not raised again.
 	dcRaised bool
 
+	// raisedDB is how far RejectionRaised has raised the rejection
+	// target above the caller's: MaxRejectionDB bounds the caller's
+	// target, and the raised one may pass it by up to RaiseHeadroomDB.
+	raisedDB float64
+
 	// transposed marks the decimation view of an interpolation spec
 	// (DecimationView): its rates are swapped, and Direction still says
 	// Interpolate.
@@ -135,6 +140,12 @@ const (
 	// MaxRejectionDB bounds the rejection target: beyond it float64
 	// coefficients and the design engine's grid stop being meaningful.
 	MaxRejectionDB = 150
+	// RaiseHeadroomDB is how far past MaxRejectionDB the design target of
+	// a spec raised inside the search (RejectionRaised: a real
+	// interpolation chain's 6.02 dB for the images of DC, a fractional
+	// chain's ripple share, re-designs for a shortfall or for rounding)
+	// may go; the engine's figures hold there still.
+	RaiseHeadroomDB = 30
 	// MaxRippleDB bounds the passband ripple: a passband whose gain may
 	// vary by more than 10 dB peak-to-peak is no passband (common
 	// practice: front-end specs ask for hundredths of a dB to a few dB),
@@ -285,8 +296,11 @@ func (s Spec) Normalize() (Spec, error) {
 		}
 		s.RejectionDB = s.RejectionMask.Max()
 	}
-	if !finite(s.RejectionDB) || s.RejectionDB <= 0 || s.RejectionDB > MaxRejectionDB {
-		return bad("RejectionDB", s.RejectionDB, "must lie in (0, %d] dB", MaxRejectionDB)
+	if user := s.RejectionDB - s.raisedDB; !finite(s.RejectionDB) || user <= 0 || user > MaxRejectionDB || s.RejectionDB <= 0 {
+		return bad("RejectionDB", user, "must lie in (0, %d] dB", MaxRejectionDB)
+	}
+	if s.RejectionDB > MaxRejectionDB+RaiseHeadroomDB {
+		return bad("RejectionDB", s.RejectionDB-s.raisedDB, "raised by %s dB inside the search to %s dB, past the %d dB the filters are designed to", fmtNum(s.raisedDB), fmtNum(s.RejectionDB), MaxRejectionDB+RaiseHeadroomDB)
 	}
 	if s.InputBits == 0 {
 		s.InputBits = DefaultInputBits
@@ -317,14 +331,16 @@ func (s Spec) Normalize() (Spec, error) {
 // RejectionRaised returns s with its rejection target raised by db dB
 // (lowered for a negative db): the flat target, or every point of the
 // mask. The search designs a chain again against it when the chain misses
-// by a little. A target raised out of (0, MaxRejectionDB] is left for
-// Normalize to refuse.
+// by a little. The target may pass MaxRejectionDB by up to
+// RaiseHeadroomDB (the caller's own is still held to MaxRejectionDB); one
+// raised further, or lowered to 0 dB, is left for Normalize to refuse.
 func (s Spec) RejectionRaised(db float64) Spec {
+	s.raisedDB += db
 	if s.RejectionMask == nil {
 		s.RejectionDB += db
 		return s
 	}
-	m, err := s.RejectionMask.Shifted(db)
+	m, err := s.RejectionMask.shifted(db, MaxRejectionDB+RaiseHeadroomDB)
 	if err != nil {
 		// Beside the mask, a RejectionDB that is not its largest
 		// rejection: Normalize refuses the spec.

@@ -207,3 +207,42 @@ func TestNormalizeInterpolation(t *testing.T) {
 		}
 	}
 }
+
+// MaxRejectionDB bounds the caller's target; a target raised inside the
+// search (RejectionRaised) may pass it by up to RaiseHeadroomDB, flat or
+// as a mask. A real interpolator's 6.02 dB for the images of DC at a
+// 148 dB target was refused ("spec rejection = 154.02: must lie in (0,
+// 150] dB"), which dropped every chain of a 148 dB transmit spec.
+func TestRejectionRaisedPastCap(t *testing.T) {
+	base := Spec{InputRate: 16e6, OutputRate: 1e6, Passband: 300e3, RippleDB: 0.1, RejectionDB: MaxRejectionDB}
+	for _, db := range []float64{0.05, 6.02, RaiseHeadroomDB} {
+		if _, err := base.RejectionRaised(db).Normalize(); err != nil {
+			t.Errorf("150 dB raised by %g dB: %v", db, err)
+		}
+	}
+	_, err := base.RejectionRaised(RaiseHeadroomDB + 0.01).Normalize()
+	if err == nil || !strings.Contains(err.Error(), "raised by 30.01 dB inside the search to 180.01 dB") {
+		t.Errorf("raised past the headroom: %v", err)
+	}
+	over := base
+	over.RejectionDB = MaxRejectionDB + 0.01
+	if _, err := over.RejectionRaised(-1).Normalize(); err == nil || !strings.Contains(err.Error(), "150.01") {
+		t.Errorf("a caller's 150.01 dB lowered by 1 dB inside: %v (the caller's own value is refused)", err)
+	}
+	m, err := NewMask([]MaskPoint{{Hz: 0, DB: 120}, {Hz: 4e6, DB: 150}})
+	if err != nil {
+		t.Fatal(err)
+	}
+	masked := base
+	masked.RejectionDB, masked.RejectionMask = 0, m
+	r := masked.RejectionRaised(6.02)
+	if got := r.RejectionMask.Max(); math.Abs(got-156.02) > 1e-12 || r.RejectionDB != got {
+		t.Errorf("mask raised by 6.02 dB: largest point %g dB, RejectionDB %g", got, r.RejectionDB)
+	}
+	if _, err := r.Normalize(); err != nil {
+		t.Errorf("mask raised by 6.02 dB: %v", err)
+	}
+	if _, err := m.Shifted(1); err == nil {
+		t.Error("Mask.Shifted, the callers' rule, let a point pass 150 dB")
+	}
+}

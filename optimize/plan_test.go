@@ -435,3 +435,38 @@ func TestClosestMiss(t *testing.T) {
 		}
 	}
 }
+
+// Targets at the top of the range plan as any other: the search's own
+// raises (a real interpolator's 6.02 dB for the images of DC, a
+// fractional chain's ripple share) may pass chain.MaxRejectionDB. An
+// invented 1 to 16 MS/s real transmitter at 148 dB dropped every chain
+// ("design failed"), and a 25 to 10 MS/s I/Q receiver at 150 dB every
+// chain with a stage before its polyphase stage.
+func TestPlanAtTheRejectionCap(t *testing.T) {
+	for _, tc := range []struct {
+		spec   chain.Spec
+		staged bool // a chain with an integer stage before its fractional one is on the front
+	}{
+		{chain.Spec{InputRate: 1e6, OutputRate: 16e6, Passband: 300e3, RippleDB: 0.1, RejectionDB: 148}, false},
+		{chain.Spec{InputRate: 25e6, OutputRate: 10e6, Passband: 3e6, RippleDB: 0.1, RejectionDB: 150, Complex: true}, true},
+	} {
+		res, err := optimize.Plan(context.Background(), tc.spec, optimize.Settings{})
+		if err != nil {
+			t.Fatal(err)
+		}
+		if len(res.Front) == 0 {
+			t.Errorf("%g to %g MS/s at %g dB: empty front, dropped %v", tc.spec.InputRate/1e6, tc.spec.OutputRate/1e6, tc.spec.RejectionDB, res.Dropped)
+			continue
+		}
+		staged := false
+		for _, c := range res.Front {
+			if a, err := chain.Analyze(c.Chain, tc.spec); err != nil || !a.Meets(tc.spec) {
+				t.Errorf("%s on the front: %.3f dB, %.4f dB ripple (err %v)", tc.spec.Direction().Notation(c.Plan), a.AliasRejectionDB, a.PassbandRippleDB, err)
+			}
+			staged = staged || (len(c.Plan) > 1 && c.Plan[len(c.Plan)-1].Kind.Fractional())
+		}
+		if tc.staged && !staged {
+			t.Errorf("%g dB: no chain with a stage before its polyphase stage on the front", tc.spec.RejectionDB)
+		}
+	}
+}
