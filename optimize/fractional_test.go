@@ -5,6 +5,7 @@ import (
 	"fmt"
 	"math/rand/v2"
 	"os"
+	"strings"
 	"testing"
 	"time"
 
@@ -279,5 +280,20 @@ func TestRedesignReachesTarget(t *testing.T) {
 				t.Errorf("ripple %g dB: %s on the front with %.4f dB, %.6f dB ripple", ripple, chain.Notation(c.Plan), a.AliasRejectionDB, a.PassbandRippleDB)
 			}
 		}
+	}
+}
+
+// The width message of an empty front speaks of one chain as one: an
+// invented 4.9152 to 3.84 MS/s real receiver at 14-bit coefficients,
+// where only poly25/32 met in floating point.
+func TestWidthReasonOneChain(t *testing.T) {
+	spec := chain.Spec{InputRate: 4915200, OutputRate: 3840000, Passband: 1.59103e6, RippleDB: 0.5, RejectionDB: 80, CoefBits: 14}
+	res, err := Plan(context.Background(), spec, Settings{})
+	if err != nil {
+		t.Fatal(err)
+	}
+	want := "No chain meets the spec with 14-bit coefficients: the one chain that met it in floating point missed it with its taps rounded. That chain, poly25/32, meets from 15 bits"
+	if len(res.Front) != 0 || res.Dropped[ReasonMissQuantised] != 1 || !strings.HasPrefix(res.Reason, want) {
+		t.Errorf("front %d, dropped %v, reason %q\nwant it to start %q", len(res.Front), res.Dropped, res.Reason, want)
 	}
 }

@@ -14,6 +14,7 @@ import (
 
 	"github.com/stepdown-dsp/stepdown/chain"
 	"github.com/stepdown-dsp/stepdown/chain/fixed"
+	"github.com/stepdown-dsp/stepdown/chain/units"
 	"github.com/stepdown-dsp/stepdown/cost"
 )
 
@@ -416,7 +417,7 @@ func limitReason(d map[Reason]int) string {
 	if best == "" {
 		return ""
 	}
-	return fmt.Sprintf("No chain meets the spec within the hardware limits: %s binds (it dropped %d candidates); raise it, or relax ripple or rejection.", best, n)
+	return fmt.Sprintf("No chain meets the spec within the hardware limits: %s binds (it dropped %s); raise it, or relax ripple or rejection.", best, units.Count(n, "candidate", "candidates"))
 }
 
 // overLimits is the limit a designed chain c with figures f breaks, or ""
@@ -463,6 +464,14 @@ func ClosestText(c *Candidate, spec chain.Spec) string {
 	}
 	return fmt.Sprintf("the closest, %s, exceeds the %g dB ripple by %.3g dB (%s dB)", name, spec.RippleDB,
 		a.PassbandRippleDB-spec.RippleDB, strconv.FormatFloat(a.PassbandRippleDB, 'g', 6, 64))
+}
+
+// countWere is units.Count with its verb: "1 candidate was", "3 candidates were".
+func countWere(n int, one, many string) string {
+	if n == 1 {
+		return units.Count(n, one, many) + " was"
+	}
+	return units.Count(n, one, many) + " were"
 }
 
 // closest returns the candidate of cs that missed the spec in floating
@@ -791,10 +800,10 @@ func search(ctx context.Context, p params, s *Settings, est *estimator, des desi
 			res.Reason = lr + " " + res.Reason
 		}
 		if res.Unsettled > 0 {
-			res.Reason += fmt.Sprintf(" The design budget (a fixed amount of design work per run) left %d candidates undesigned.", res.Unsettled)
+			res.Reason += fmt.Sprintf(" The design budget (a fixed amount of design work per run) left %s undesigned.", units.Count(res.Unsettled, "candidate", "candidates"))
 		}
 	case len(res.Front) == 0 && !res.Partial && res.Unsettled > 0:
-		res.Reason = fmt.Sprintf("No chain was designed within the design budget (a fixed amount of design work per run) at a tap limit of %d; %d candidates were left undesigned.", est.maxTaps, res.Unsettled)
+		res.Reason = fmt.Sprintf("No chain was designed within the design budget (a fixed amount of design work per run) at a tap limit of %d; %s left undesigned.", est.maxTaps, countWere(res.Unsettled, "candidate", "candidates"))
 	case len(res.Front) == 0 && !res.Partial && limitReason(res.Dropped) != "":
 		res.Reason = limitReason(res.Dropped)
 	case len(res.Front) == 0 && !res.Partial:

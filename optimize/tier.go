@@ -507,6 +507,11 @@ func widthReason(ctx context.Context, jobs int, des designer, dropped []Candidat
 	n := res.Dropped[ReasonMissQuantised]
 	c, w, rank, tried := neededWidth(ctx, jobs, des, dropped, bits)
 	msg := fmt.Sprintf("No chain meets the spec with %d-bit coefficients: %d chains that met it in floating point missed it with their taps rounded.", bits, n)
+	cheapest := "The cheapest of them"
+	if n == 1 {
+		msg = fmt.Sprintf("No chain meets the spec with %d-bit coefficients: the one chain that met it in floating point missed it with its taps rounded.", bits)
+		cheapest = "That chain"
+	}
 	figure := func(c *Candidate) string {
 		if c.Figures.Multiplierless {
 			return fmt.Sprintf("%d adders", c.Figures.Adders)
@@ -516,11 +521,15 @@ func widthReason(ctx context.Context, jobs int, des designer, dropped []Candidat
 	switch {
 	case w > 0 && rank == 0:
 		res.NeededCoefBits = w
-		msg += fmt.Sprintf(" The cheapest of them, %s, meets from %d bits (re-designed, %s there).", dir.Notation(c.Plan), w, figure(&c))
+		msg += fmt.Sprintf(" %s, %s, meets from %d bits (re-designed, %s there).", cheapest, dir.Notation(c.Plan), w, figure(&c))
 	case w > 0:
 		res.NeededCoefBits = w
 		msg += fmt.Sprintf(" Of the %d cheapest of them, %s meets from the fewest bits, %d (re-designed, %s there).", tried, dir.Notation(c.Plan), w, figure(&c))
 	case tried > 0 && ctx.Err() == nil:
+		if n == 1 {
+			msg += fmt.Sprintf(" It does not meet with coefficients of up to %d bits.", widestTried)
+			break
+		}
 		msg += fmt.Sprintf(" None of the %d cheapest of them meets with coefficients of up to %d bits.", tried, widestTried)
 	}
 	return msg

@@ -348,3 +348,11 @@ func Clip(s string, n int) string {
 	}
 	return s
 }
+
+// Count is n and the noun, singular for one: "1 chain", "14 chains".
+func Count(n int, one, many string) string {
+	if n == 1 {
+		return "1 " + one
+	}
+	return fmt.Sprintf("%d %s", n, many)
+}

@@ -369,3 +369,15 @@ func TestFormatComputedFrequency(t *testing.T) {
 		}
 	}
 }
+
+// Count agrees the noun with its number.
+func TestCount(t *testing.T) {
+	for _, c := range []struct {
+		n    int
+		want string
+	}{{0, "0 chains"}, {1, "1 chain"}, {2, "2 chains"}, {14, "14 chains"}} {
+		if got := Count(c.n, "chain", "chains"); got != c.want {
+			t.Errorf("Count(%d) = %q, want %q", c.n, got, c.want)
+		}
+	}
+}

@@ -192,7 +192,7 @@ func runPlan(c *cli.Context) error {
 	if res.Partial && len(res.Front) == 0 {
 		what := "before any chain was designed"
 		if res.Designed > 0 {
-			what = fmt.Sprintf("after designing %d chains, before any could be measured against the spec", res.Designed)
+			what = fmt.Sprintf("after designing %s, before any could be measured against the spec", units.Count(res.Designed, "chain", "chains"))
 		}
 		return fmt.Errorf("--timeout %v: stopped %s; %s left as it was (allow more time)", c.Duration("timeout"), what, clip(j.out.Dir()))
 	}
@@ -285,13 +285,13 @@ func emptyFront(res *optimize.Result, spec chain.Spec, kinds []chain.Kind, dir s
 		if kinds == nil || slices.Contains(kinds, chain.CIC) {
 			limits += fmt.Sprintf(" or a CIC register over %d bits", chain.MaxCICBits)
 		}
-		msg += fmt.Sprintf(": the word lengths of %d designed chains could not be planned (%s): ", n, limits)
+		msg += fmt.Sprintf(": the word lengths of %s could not be planned (%s): ", units.Count(n, "designed chain", "designed chains"), limits)
 		msg += accumulatorHint(res.AccumulatorExcess, spec)
 		if strings.HasPrefix(reason, "No chain was designed within the design budget") {
 			// Said short, to keep the line readable.
 			reason = ""
 			if res.Unsettled > 0 {
-				reason = fmt.Sprintf("the design budget left %d candidates undesigned", res.Unsettled)
+				reason = fmt.Sprintf("the design budget left %s undesigned", units.Count(res.Unsettled, "candidate", "candidates"))
 			}
 		}
 	}
@@ -646,10 +646,14 @@ func printSummary(w io.Writer, j *job, rep *report.Report, files []report.File, 
 	}
 	if rep.Command == "plan" {
 		fmt.Fprintf(w, "  searched %s: %d feasible by estimate, %d designed, %d on the front\n",
-			report.Count(rep.Search.Candidates, "candidate", "candidates"), rep.Search.Feasible, rep.Search.Designed, len(rep.Front))
+			units.Count(rep.Search.Candidates, "candidate", "candidates"), rep.Search.Feasible, rep.Search.Designed, len(rep.Front))
 	}
 	if n := rep.Search.LeftUndesigned; n > 0 && rep.Command == "plan" {
-		fmt.Fprintf(w, "  DESIGN BUDGET REACHED: %d candidates near the front were left undesigned, so a cheaper chain may be missing (lower search.max_stages or narrow search.kinds or search.cic_orders to design them all)\n", n)
+		were := "were"
+		if n == 1 {
+			were = "was"
+		}
+		fmt.Fprintf(w, "  DESIGN BUDGET REACHED: %s near the front %s left undesigned, so a cheaper chain may be missing (lower search.max_stages or narrow search.kinds or search.cic_orders to design them all)\n", units.Count(n, "candidate", "candidates"), were)
 	}
 	switch {
 	case rep.Partial && cut:

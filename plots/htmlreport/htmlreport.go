@@ -109,7 +109,7 @@ func Plan(p PlanPage) ([]byte, error) {
 			Figures: v.Front[r.Recommended], Stages: stageViews(c, p.Files, "", v.Clock)}
 	}
 	if cw := r.ComparedWith; cw != nil && len(r.Front) == 1 {
-		v.Compared = fmt.Sprintf("%s (%s)", cw.Source, report.Count(len(cw.Front), "chain", "chains"))
+		v.Compared = fmt.Sprintf("%s (%s)", cw.Source, units.Count(len(cw.Front), "chain", "chains"))
 		for _, b := range r.BeatenBy {
 			v.Beaten = append(v.Beaten, b.Text())
 		}
@@ -489,7 +489,7 @@ func searchText(r *report.Report) string {
 		return "One chain named on the command line, designed and evaluated against the spec."
 	}
 	s := fmt.Sprintf("%s enumerated, %d feasible by estimate, %d designed for real, %d on the Pareto front.",
-		report.Count(r.Search.Candidates, "candidate chain", "candidate chains"), r.Search.Feasible, r.Search.Designed, len(r.Front))
+		units.Count(r.Search.Candidates, "candidate chain", "candidate chains"), r.Search.Feasible, r.Search.Designed, len(r.Front))
 	if len(r.Search.Dropped) > 0 {
 		d := make(map[optimize.Reason]int, len(r.Search.Dropped))
 		for k, v := range r.Search.Dropped {

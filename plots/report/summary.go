@@ -24,12 +24,12 @@ func WriteComparison(w io.Writer, rep *Report) {
 	}
 	switch {
 	case len(rep.BeatenBy) > 0:
-		fmt.Fprintf(w, "  Against %s (%s on its front), it is beaten:\n", cw.Source, Count(len(cw.Front), "chain", "chains"))
+		fmt.Fprintf(w, "  Against %s (%s on its front), it is beaten:\n", cw.Source, units.Count(len(cw.Front), "chain", "chains"))
 		for _, b := range rep.BeatenBy {
 			fmt.Fprintf(w, "    %s\n", b.Text())
 		}
 	case cw.OnFront:
-		fmt.Fprintf(w, "  It is #%d on the front of %s (%s).\n", cw.Rank, cw.Source, Count(len(cw.Front), "chain", "chains"))
+		fmt.Fprintf(w, "  It is #%d on the front of %s (%s).\n", cw.Rank, cw.Source, units.Count(len(cw.Front), "chain", "chains"))
 	case len(cw.Front) == 0:
 		fmt.Fprintf(w, "  %s found no chain that meets the spec.\n", capitalise(cw.Source))
 	case !rep.Front[0].MeetsTargets:
@@ -48,9 +48,9 @@ func WriteComparison(w io.Writer, rep *Report) {
 			verb = "meets"
 		}
 		fmt.Fprintf(w, "  The front of %s has %s that %s the spec, the first #%d %s (%s mult/%s, %d memory bits, %s).\n",
-			cw.Source, Count(meet, "chain", "chains"), verb, first+1, f.Notation, TrimFloat(f.MultipliesPerOutput, 1), rep.Spec.Side(), f.MemoryBits, Seconds(f.LatencyS))
+			cw.Source, units.Count(meet, "chain", "chains"), verb, first+1, f.Notation, TrimFloat(f.MultipliesPerOutput, 1), rep.Spec.Side(), f.MemoryBits, Seconds(f.LatencyS))
 	default:
-		fmt.Fprintf(w, "  No chain on the front of %s (%s) beats it on every axis.\n", cw.Source, Count(len(cw.Front), "chain", "chains"))
+		fmt.Fprintf(w, "  No chain on the front of %s (%s) beats it on every axis.\n", cw.Source, units.Count(len(cw.Front), "chain", "chains"))
 	}
 }
 
@@ -290,14 +290,6 @@ func Seconds(s float64) string {
 }
 
 // capitalise upper-cases s's first letter.
-// Count is n and the noun, singular for one: "1 chain", "14 chains".
-func Count(n int, one, many string) string {
-	if n == 1 {
-		return "1 " + one
-	}
-	return fmt.Sprintf("%d %s", n, many)
-}
-
 func capitalise(s string) string {
 	if s == "" {
 		return s

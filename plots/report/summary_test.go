@@ -116,15 +116,3 @@ func TestTableUnjudgedRoundedTaps(t *testing.T) {
 		t.Errorf("CheckReason = %q", got)
 	}
 }
-
-// Count agrees the noun with its number.
-func TestCount(t *testing.T) {
-	for _, c := range []struct {
-		n    int
-		want string
-	}{{0, "0 chains"}, {1, "1 chain"}, {2, "2 chains"}, {14, "14 chains"}} {
-		if got := Count(c.n, "chain", "chains"); got != c.want {
-			t.Errorf("Count(%d) = %q, want %q", c.n, got, c.want)
-		}
-	}
-}
