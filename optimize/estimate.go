@@ -62,6 +62,11 @@ const (
 	// phases, a Farrow stage at most 1024 and a lowpass FIR before it at
 	// more than twice the band it keeps).
 	ReasonNoFractionalSplit Reason = "no_fractional_stage_fits"
+	// ReasonFractionalNotBuilt counts the fractional plans that cannot be
+	// built as they stand (chain.Estimate refuses them: a polyphase
+	// prototype past its tap limit, say); Result.Reason gives the first
+	// one's rule when nothing else is left.
+	ReasonFractionalNotBuilt Reason = "fractional_plan_cannot_be_built"
 )
 
 // reasonText is each Reason in words.
@@ -86,6 +91,7 @@ var reasonText = map[Reason]string{
 	ReasonOverMultipliers:     "more multipliers at the clock than hardware.max_multipliers",
 	ReasonOverMemory:          "more memory than hardware.max_memory_bits",
 	ReasonOverAccumulatorBits: "a fir or half-band accumulator wider than hardware.max_register_bits",
+	ReasonFractionalNotBuilt:  "fractional plans that cannot be built",
 	ReasonNoFractionalSplit:   "rates tried for the fractional stage where no polyphase or farrow stage fits (a polyphase stage has at most 256 phases, a farrow stage at most 1024 and comes after a lowpass FIR, at more than twice the kept band; a ratio whose denominator is larger needs ratio_tolerance_ppm)",
 }
 
@@ -123,7 +129,7 @@ func Reasons() []Reason {
 		ReasonEvaluateFailed, ReasonMissRejection, ReasonMissRipple, ReasonCICNull, ReasonGaveUp, ReasonCICBeaten,
 		ReasonLongFIR, ReasonRoundingFloor, ReasonMissQuantised, ReasonWordLengths,
 		ReasonOverRegisterBits, ReasonOverCICFactor, ReasonOverMultipliers, ReasonOverMemory, ReasonOverAccumulatorBits,
-		ReasonNoFractionalSplit}
+		ReasonNoFractionalSplit, ReasonFractionalNotBuilt}
 }
 
 type dropCode uint8

@@ -4,6 +4,7 @@ import (
 	"cmp"
 	"context"
 	"errors"
+	"fmt"
 	"math"
 	"runtime"
 	"slices"
@@ -37,6 +38,16 @@ const (
 	fracMaxDesigns    = 12
 	fracEstimateSlack = 2
 )
+
+// planRule is the rule a plan error states, without the package's and the
+// plan's names (a *chain.PlanError's Rule), or err's text.
+func planRule(err error) string {
+	var pe *chain.PlanError
+	if errors.As(err, &pe) {
+		return pe.Rule
+	}
+	return err.Error()
+}
 
 // fractionalSplits returns the integer decimations d tried before the
 // fractional stage, at most maxFractionalSplits, in increasing order,
@@ -407,10 +418,12 @@ func planFractional(ctx context.Context, spec chain.Spec, s Settings) (*Result, 
 	// next estimate is above fracEstimateSlack times the cheapest chain
 	// designed that meets, or fracMaxDesigns are designed.
 	est := make([]float64, len(plans))
+	estErr := make([]error, len(plans))
 	runAll(ctx, jobs, len(plans), func(i int) {
 		est[i] = math.Inf(1)
 		c, err := chain.Estimate(fspec, plans[i], s.Chain)
 		if err != nil {
+			estErr[i] = err
 			return
 		}
 		if f, err := cost.Price(fspec, c, s.Cost); err == nil {
@@ -489,8 +502,20 @@ func planFractional(ctx context.Context, spec chain.Spec, s Settings) (*Result, 
 		fs[i] = candFigs(&res.Front[i])
 	}
 	res.Recommended, res.Reason = recommend(fs, &s, spec.Direction() == chain.Interpolate)
+	var notBuilt error
+	for i, err := range estErr {
+		if err != nil && ctx.Err() == nil {
+			res.Dropped[ReasonFractionalNotBuilt]++
+			if notBuilt == nil {
+				notBuilt = fmt.Errorf("%s cannot be built: %s", spec.Direction().Notation(plans[i]), planRule(err))
+			}
+		}
+	}
 	if len(res.Front) == 0 {
 		res.Closest = closest(spec, outs, whys)
+		if notBuilt != nil && res.Designed == 0 && !res.Partial {
+			res.Reason = "No chain meets the spec: " + notBuilt.Error() + "."
+		}
 	}
 	if len(res.Front) == 0 && !res.Partial && res.Dropped[ReasonMissQuantised] > 0 {
 		res.Reason = widthReason(ctx, jobs, des, missed, spec.CoefBits, spec.Direction(), res)

@@ -297,3 +297,24 @@ func TestWidthReasonOneChain(t *testing.T) {
 		t.Errorf("front %d, dropped %v, reason %q\nwant it to start %q", len(res.Front), res.Dropped, res.Reason, want)
 	}
 }
+
+// A fractional plan that cannot be built is counted and, when nothing else
+// is left, its rule is the plan's reason: an invented 12.5 to 10 MS/s I/Q
+// receiver with a 4.99 MHz passband at 130 dB needs a poly4/5 prototype
+// past the polyphase tap limit, which Check says too. The plan used to
+// come back empty with no reason and no count ("no candidates").
+func TestFractionalNotBuiltSaid(t *testing.T) {
+	spec := chain.Spec{InputRate: 12.5e6, OutputRate: 10e6, Passband: 4.99e6, RippleDB: 0.01, RejectionDB: 130, Complex: true}
+	res, err := Plan(context.Background(), spec, Settings{})
+	if err != nil {
+		t.Fatal(err)
+	}
+	_, _, cerr := Check(context.Background(), spec, []chain.StagePlan{{Kind: chain.Polyphase, Factor: 1, Up: 4, Down: 5}}, Settings{})
+	if cerr == nil || !strings.Contains(cerr.Error(), "its prototype would need about") {
+		t.Fatalf("Check: %v, want the tap limit's refusal", cerr)
+	}
+	want := "No chain meets the spec: poly4/5 cannot be built: its prototype would need about"
+	if len(res.Front) != 0 || res.Dropped[ReasonFractionalNotBuilt] != 1 || !strings.HasPrefix(res.Reason, want) {
+		t.Errorf("front %d, dropped %v, reason %q", len(res.Front), res.Dropped, res.Reason)
+	}
+}

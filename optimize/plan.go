@@ -9,6 +9,7 @@ import (
 	"slices"
 	"sort"
 	"strconv"
+	"strings"
 	"sync"
 	"sync/atomic"
 
@@ -455,15 +456,19 @@ func Shortfall(spec chain.Spec, a chain.Analysis) float64 {
 // ClosestText says how far c, the chain that came closest to spec
 // (Result.Closest), missed it, naming it in the spec's direction: "the
 // closest, poly125/96, misses the 65 dB rejection by 0.105 dB (64.8946 dB)".
+// A chain that misses both is said to miss both.
 func ClosestText(c *Candidate, spec chain.Spec) string {
 	a := c.Figures.Analysis
-	name := spec.Direction().Notation(c.Plan)
-	if short := spec.RejectionDB - a.AliasRejectionDB; short >= a.PassbandRippleDB-spec.RippleDB {
-		return fmt.Sprintf("the closest, %s, misses the %g dB rejection by %.3g dB (%s dB)", name, spec.RejectionDB,
-			short, strconv.FormatFloat(a.AliasRejectionDB, 'g', 6, 64))
+	var miss []string
+	if short := spec.RejectionDB - a.AliasRejectionDB; short > 0 {
+		miss = append(miss, fmt.Sprintf("misses the %g dB rejection by %.3g dB (%s dB)", spec.RejectionDB,
+			short, strconv.FormatFloat(a.AliasRejectionDB, 'g', 6, 64)))
 	}
-	return fmt.Sprintf("the closest, %s, exceeds the %g dB ripple by %.3g dB (%s dB)", name, spec.RippleDB,
-		a.PassbandRippleDB-spec.RippleDB, strconv.FormatFloat(a.PassbandRippleDB, 'g', 6, 64))
+	if over := a.PassbandRippleDB - spec.RippleDB; over > 0 {
+		miss = append(miss, fmt.Sprintf("exceeds the %g dB ripple by %.3g dB (%s dB)", spec.RippleDB,
+			over, strconv.FormatFloat(a.PassbandRippleDB, 'g', 6, 64)))
+	}
+	return fmt.Sprintf("the closest, %s, %s", spec.Direction().Notation(c.Plan), strings.Join(miss, " and "))
 }
 
 // countWere is units.Count with its verb: "1 candidate was", "3 candidates were".
