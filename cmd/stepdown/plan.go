@@ -328,6 +328,14 @@ func runCheck(c *cli.Context) error {
 	}
 	defer j.out.Discard()
 	set := j.spec.SearchSettings()
+	// A --front that does not fit the spec is refused before the chain is
+	// designed (seconds, for a long one).
+	var cmp *report.Comparison
+	if path := c.String("front"); path != "" {
+		if cmp, err = report.ReadComparison(path, j.spec); err != nil {
+			return usageError{err}
+		}
+	}
 	cand, why, err := j.designNamed(plan, set)
 	if why.OverLimit() {
 		j.limitNote = "beyond the fabric's limits: " + why.Text()
@@ -339,9 +347,10 @@ func runCheck(c *cli.Context) error {
 		Candidates: 1, Designed: 1, Dropped: map[optimize.Reason]int{},
 		Front: []optimize.Candidate{cand}, Recommended: 0, FeasibleAll: 1,
 	}
-	cmp, err := j.planFront(c, set)
-	if err != nil {
-		return err
+	if cmp == nil {
+		if cmp, err = j.planFront(c, set); err != nil {
+			return err
+		}
 	}
 	j.compare = cmp
 	// finish states the verdict once the report has judged the chain
@@ -464,17 +473,10 @@ func rateChangeRule(rule, stage string) string {
 		stage, l, mm, l, mm, nl, nm, others, kind, nl, nm)
 }
 
-// planFront is the front check compares its chain with: that of the
-// report.json named by --front (of a plan of the same spec), or of a plan
-// of the spec run now, judged by its report as plan would.
+// planFront is the front check compares its chain with when --front names
+// none: that of a plan of the spec run now, judged by its report as plan
+// would.
 func (j *job) planFront(c *cli.Context, set optimize.Settings) (*report.Comparison, error) {
-	if path := c.String("front"); path != "" {
-		cmp, err := report.ReadComparison(path, j.spec)
-		if err != nil {
-			return nil, usageError{err}
-		}
-		return cmp, nil
-	}
 	set.Jobs = c.Int("jobs")
 	prog := newProgress(c.App.ErrWriter, j.quiet)
 	set.Progress, set.Scoring = prog.update, prog.scoring
