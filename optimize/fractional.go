@@ -494,7 +494,15 @@ func planFractional(ctx context.Context, spec chain.Spec, s Settings) (*Result, 
 	if ctx.Err() != nil {
 		res.Partial = true
 	}
-	res.FeasibleAll = len(ok)
+	// Feasible by estimate: every plan estimated and priced (the designed
+	// ones are a prefix of them); the cloud drawn is the designed chains
+	// that meet.
+	for _, e := range est {
+		if !math.IsInf(e, 1) {
+			res.FeasibleAll++
+		}
+	}
+	res.FeasibleAll = max(res.FeasibleAll, len(ok))
 	res.Feasible = ok
 	res.Front = designedFront(ok)
 	fs := make([]figs, len(res.Front))

@@ -237,6 +237,9 @@ func TestFractionalAloneConsidered(t *testing.T) {
 		if err != nil {
 			t.Fatalf("%s: %v", name, err)
 		}
+		if !(res.Designed <= res.FeasibleAll && res.FeasibleAll <= res.Candidates) {
+			t.Errorf("%s: %d candidates, %d feasible by estimate, %d designed: want designed <= feasible <= candidates", name, res.Candidates, res.FeasibleAll, res.Designed)
+		}
 		alone := []chain.StagePlan{{Kind: chain.Polyphase, Factor: 1, Up: den, Down: num}}
 		c, why, err := Check(context.Background(), spec, alone, Settings{})
 		if err != nil || why != "" {
