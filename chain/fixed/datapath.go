@@ -904,7 +904,10 @@ func planFIR(st Stage, rate float64, in, ob, coefBits int, s Settings, minBits i
 			dc += v
 		}
 		sw.Gain = float64(dc) * math.Ldexp(1, -cf.Frac)
-		if sw.AccumulatorBits = AccumulatorBits(cf.Ints, in); sw.AccumulatorBits > MaxAccumulatorBits {
+		// A fractional stage's prototype (st.Up > 0) is summed one phase
+		// at a time: planPolyphase sizes its accumulator, not the whole
+		// prototype's sum, which is L times as large.
+		if sw.AccumulatorBits = AccumulatorBits(cf.Ints, in); sw.AccumulatorBits > MaxAccumulatorBits && st.Up == 0 {
 			// Its output word and gain stand (see plan).
 			return StageWidths{OutputBits: ob, Gain: sw.Gain}, &AccumulatorError{DataBits: in, CoefBits: cf.Bits, NeedBits: sw.AccumulatorBits}
 		}

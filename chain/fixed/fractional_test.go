@@ -885,3 +885,58 @@ func TestFractionalAccumulatorErrorGoesOn(t *testing.T) {
 		t.Errorf("at the %d bits the error names: %v", fit.CoefBits, err)
 	}
 }
+
+// A polyphase stage sums one phase at a time: its accumulator is held to
+// the widest phase's sum, not the whole prototype's (L times as large),
+// which refused widths that fit. The invented 100 to 3.84 MS/s I/Q chain
+// cic4m1r5 > poly24/25 > fir5 at 30-bit data words and 30-bit
+// coefficients: the whole prototype would need over 63 bits, each phase
+// fits, and the widest phase's worst-case sums (each tap's sign at full
+// scale, common practice) need exactly the planned width.
+func TestPolyphaseAccumulatorPerPhase(t *testing.T) {
+	spec := chain.Spec{InputRate: 100e6, OutputRate: 3.84e6, Passband: 1.6e6, Protected: 1.9e6, RippleDB: 0.2, RejectionDB: 70, Complex: true,
+		InputBits: 30, OutputBits: 30, CoefBits: 30}
+	plan, err := chain.ParseNotation("cic4m1r5 > poly24/25 > fir5")
+	if err != nil {
+		t.Fatal(err)
+	}
+	c, err := chain.Design(spec, plan, chain.Settings{})
+	if err != nil {
+		t.Fatal(err)
+	}
+	ws, _, err := PlanChain(spec, c, Settings{})
+	if err != nil {
+		t.Fatalf("plan at 30-bit coefficients: %v", err)
+	}
+	sw := ws.Stages[1]
+	h, in := sw.Coefficients.Ints, sw.InputBits
+	if whole := AccumulatorBits(h, in); whole <= MaxAccumulatorBits {
+		t.Fatalf("the whole prototype needs %d bits: not the case this test is for", whole)
+	}
+	widest := 0
+	for p := 0; p < sw.Up; p++ {
+		var pos, neg big.Int
+		for k := p; k < len(h); k += sw.Up {
+			v := big.NewInt(h[k])
+			if h[k] > 0 {
+				pos.Add(&pos, v)
+			} else {
+				neg.Sub(&neg, v)
+			}
+		}
+		// Extremes: P (2^(in-1) - 1) + N 2^(in-1) and -(P 2^(in-1) + N (2^(in-1) - 1)).
+		full := new(big.Int).Lsh(big.NewInt(1), uint(in-1))
+		top := new(big.Int).Add(new(big.Int).Mul(&pos, new(big.Int).Sub(full, big.NewInt(1))), new(big.Int).Mul(&neg, full))
+		low := new(big.Int).Add(new(big.Int).Mul(&pos, full), new(big.Int).Mul(&neg, new(big.Int).Sub(full, big.NewInt(1))))
+		for w := 2; ; w++ {
+			lim := new(big.Int).Lsh(big.NewInt(1), uint(w-1))
+			if top.Cmp(new(big.Int).Sub(lim, big.NewInt(1))) <= 0 && low.Cmp(lim) <= 0 {
+				widest = max(widest, w)
+				break
+			}
+		}
+	}
+	if sw.AccumulatorBits != widest || widest > MaxAccumulatorBits {
+		t.Errorf("planned accumulator %d bits; the widest phase's worst-case sums need %d", sw.AccumulatorBits, widest)
+	}
+}
