@@ -485,6 +485,13 @@ func TestTOMLSlips(t *testing.T) {
 		{"rejection_mask = [\n  [1e6, 60],\n  [2e6, 80]\n", `spec.toml:3: rejection_mask: the list is not closed: end it with ]`},
 		{`words = { input = 16, output = 24`, `spec.toml:3: words: an inline table { ... } must end with } on its line`},
 		{`words = { input = 16 output = 24 }`, `spec.toml:3: words: entries of an inline table are separated by commas`},
+		{"[search]\ncic_orders = [\n  3,\n  4,\n[words]\ninput = 16", `spec.toml:4: search.cic_orders: the list is not closed: end it with ]`},
+		{"[search]\ncic_orders = [3, 4\ncic_delays = [1, 2]", `spec.toml:4: search.cic_orders: the list is not closed: end it with ]`},
+		{"rejection_mask = [\n  [\"0 Hz\", \"90 dB\"],\n  [\"20 MHz\", \"70 dB\"],\nsignal = \"complex\"", `spec.toml:3: rejection_mask: the list is not closed: end it with ]`},
+		{"[search]\nkinds = [cic, fir]", `spec.toml:4: search.kinds = cic: words go in quotes, in a list too: ["cic", ...]`},
+		{"words = { input = 16, output = 24 }\n[search]\nkinds = [{a = 1 b = 2}]", `spec.toml:5: search.kinds: entries of an inline table are separated by commas`},
+		{"[hardware]\nclock = 491.52 MHz", `spec.toml:4: hardware.clock = 491.52 MHz: a value with a unit goes in quotes: clock = "491.52 MHz"`},
+		{"[search] # the search\nkinds = [\"cic\", # a comment with ] and [\n  \"fir\"\nmax_stages = 3", `spec.toml:4: search.kinds: the list is not closed: end it with ]`},
 	} {
 		_, err := Parse("spec.toml", []byte(head+tc.line3+"\nrejection = \"80 dB\"\n"))
 		if err == nil || !strings.HasPrefix(err.Error(), tc.want) {

@@ -27,8 +27,7 @@ var (
 	reLineIsEmpty = regexp.MustCompile(`^\s*(?:#.*)?$`)
 	reListOpen    = regexp.MustCompile(`^expected a comma \(','\) or array terminator \('\]'\), but got (.*)$`)
 	reInlineOpen  = regexp.MustCompile(`^expected a comma or an inline table terminator '\}', but got (.*) instead$`)
-	reOpensList   = regexp.MustCompile(`^\s*([A-Za-z0-9_.\-]+)\s*=\s*\[`)
-	reOpensTable  = regexp.MustCompile(`^\s*([A-Za-z0-9_.\-]+)\s*=\s*\{`)
+	reHeader      = regexp.MustCompile(`^\s*\[\[?\s*([A-Za-z0-9_.\-]+)\s*\]\]?\s*(?:#.*)?$`)
 	reStartsItem  = regexp.MustCompile(`^\s*(?:[A-Za-z0-9_.\-]+\s*=|\[\[?[A-Za-z_][A-Za-z0-9_.\-]*\]\]?\s*(?:#.*)?$)`)
 )
 
@@ -42,10 +41,29 @@ func tomlError(file string, data []byte, line int, msg string) *Error {
 		key = m[1]
 	}
 	e := &Error{File: file, Line: line}
+	// A list or inline table still open where a new key or table header
+	// begins (or the file ends) is the slip, whatever the decoder then
+	// stumbled on: a word it took for a value, a comma it wanted.
+	at := line
+	if strings.Contains(msg, "unexpected EOF") {
+		at = bytes.Count(data, []byte("\n")) + 2 // past the last line
+	}
+	if start, k, closer := openAt(data, at); start > 0 && (at != line || text == "" || reStartsItem.MatchString(text)) {
+		e.Line, e.Key = start, inTable(data, start, k)
+		if closer == '}' {
+			e.Rule = "an inline table { ... } must end with } on its line"
+		} else {
+			e.Rule = "the list is not closed: end it with ]"
+		}
+		return e
+	}
+	if key != "" {
+		key = inTable(data, line, key)
+	}
 	switch {
 	case reTrailing.MatchString(msg):
 		if m := reNumberUnit.FindStringSubmatch(text); m != nil {
-			e.Key, e.Value = m[1], units.Clip(strings.TrimSpace(m[2]), units.MaxEcho)
+			e.Key, e.Value = inTable(data, line, m[1]), units.Clip(strings.TrimSpace(m[2]), units.MaxEcho)
 			e.Rule = "a value with a unit goes in quotes: " + m[1] + ` = "` + e.Value + `"`
 			return e
 		}
@@ -61,6 +79,10 @@ func tomlError(file string, data []byte, line int, msg string) *Error {
 	case reBareWord.MatchString(msg):
 		w := units.Clip(reBareWord.FindStringSubmatch(msg)[1], units.MaxEcho)
 		e.Key, e.Value, e.Rule = key, w, "words go in quotes: "+orKey(key)+` = "`+w+`"`
+		start, _, closer := openAt(data, line+1)
+		if i := strings.Index(text, w); (start > 0 && closer == ']') || (i > 0 && strings.Contains(text[:i], "[")) {
+			e.Rule = `words go in quotes, in a list too: ["` + w + `", ...]`
+		}
 	case reDoubleEq.MatchString(msg):
 		e.Key, e.Rule = key, "one = between a key and its value"
 	case reBlankKey.MatchString(msg):
@@ -80,21 +102,20 @@ func tomlError(file string, data []byte, line int, msg string) *Error {
 		e.Key = units.Clip(reDuplicate.FindStringSubmatch(msg)[1], units.MaxEcho)
 		e.Rule = "given twice; give each key once"
 	case reListOpen.MatchString(msg):
-		// The decoder notices a list left open where the next item
-		// starts (or at the end of the file): the slip is on the line
-		// that opened it.
-		start, k := openedOn(data, line, reOpensList)
-		e.Key = k
-		if got := reListOpen.FindStringSubmatch(msg)[1]; got == "end of file" || (line > start && reStartsItem.MatchString(text)) {
-			e.Line, e.Rule = start, "the list is not closed: end it with ]"
-			break
+		// Items on the line of the slip (a list left open is found
+		// above, by openAt).
+		e.Key = key
+		if start, k, _ := openAt(data, line+1); start > 0 {
+			e.Key = inTable(data, start, k)
 		}
 		e.Rule = "items of a list are separated by commas: [a, b]"
 	case reInlineOpen.MatchString(msg):
-		start, k := openedOn(data, line, reOpensTable)
-		e.Key = k
-		if got := reInlineOpen.FindStringSubmatch(msg)[1]; got == "end of file" || got == `'\n'` || line > start {
-			e.Line, e.Rule = start, "an inline table { ... } must end with } on its line"
+		e.Key = key
+		if start, k, _ := openAt(data, line+1); start > 0 {
+			e.Key = inTable(data, start, k)
+		}
+		if got := reInlineOpen.FindStringSubmatch(msg)[1]; got == "end of file" || got == `'\n'` {
+			e.Rule = "an inline table { ... } must end with } on its line"
 			break
 		}
 		e.Rule = "entries of an inline table are separated by commas: { input = 16, output = 24 }"
@@ -104,19 +125,71 @@ func tomlError(file string, data []byte, line int, msg string) *Error {
 	return e
 }
 
-// openedOn is the line, at or before line, whose key = opens what opens
-// matches (a list or an inline table), and its key; line and "" when none
-// does.
-func openedOn(data []byte, line int, opens *regexp.Regexp) (int, string) {
-	for n := line; n >= 1; n-- {
-		if m := opens.FindStringSubmatch(lineOf(data, n)); m != nil {
-			return n, m[1]
+// openAt scans data's lines before line (1-based) for a list or inline
+// table still open at its start: the line that opened the outermost one,
+// the key it was given to, and the bracket that would close it (0 when
+// none is open). Quoted strings and comments are skipped; a line that
+// begins with [ where nothing is open is a table header.
+func openAt(data []byte, line int) (start int, key string, closer byte) {
+	type open struct {
+		line  int
+		key   string
+		close byte
+	}
+	var stack []open
+	for n := 1; n < line; n++ {
+		text := lineOf(data, n)
+		if len(stack) == 0 && strings.HasPrefix(strings.TrimSpace(text), "[") {
+			continue // a table header
+		}
+		k := ""
+		if m := reKeyOfLine.FindStringSubmatch(text); m != nil && len(stack) == 0 {
+			k = m[1]
+		}
+		for i := 0; i < len(text); i++ {
+			switch c := text[i]; c {
+			case '#':
+				i = len(text)
+			case '"', '\'':
+				// Skip to the closing quote (a basic string's escapes too).
+				for i++; i < len(text) && text[i] != c; i++ {
+					if c == '"' && text[i] == '\\' {
+						i++
+					}
+				}
+			case '[', '{':
+				cl := byte(']')
+				if c == '{' {
+					cl = '}'
+				}
+				stack = append(stack, open{n, k, cl})
+			case ']', '}':
+				if len(stack) > 0 {
+					stack = stack[:len(stack)-1]
+				}
+			}
 		}
 	}
-	return line, ""
+	if len(stack) == 0 {
+		return 0, "", 0
+	}
+	return stack[0].line, stack[0].key, stack[0].close
 }
 
-// orKey is key, or "key" when the line named none.
+// inTable is key as the spec's documentation names it: prefixed by the
+// [table] header above line, if any ("search.kinds" for kinds under
+// [search]).
+func inTable(data []byte, line int, key string) string {
+	if key == "" || strings.Contains(key, ".") {
+		return key
+	}
+	for n := line - 1; n >= 1; n-- {
+		if m := reHeader.FindStringSubmatch(lineOf(data, n)); m != nil {
+			return m[1] + "." + key
+		}
+	}
+	return key
+} // orKey is key, or "key" when the line named none.
 func orKey(key string) string {
 	if key == "" {
 		return "key"
