@@ -516,6 +516,10 @@ func widthReason(ctx context.Context, jobs int, des designer, dropped []Candidat
 		if c.Figures.Multiplierless {
 			return fmt.Sprintf("%d adders", c.Figures.Adders)
 		}
+		if dir == chain.Interpolate {
+			// An interpolation chain's figures are per input sample.
+			return fmt.Sprintf("%.4g multiplies per input", c.Figures.MultipliesPerOutput)
+		}
 		return fmt.Sprintf("%.4g multiplies per output", c.Figures.MultipliesPerOutput)
 	}
 	switch {

@@ -462,7 +462,9 @@ func MinCoefBits(taps []float64, rate float64, bands []remez.Band, s QuantSettin
 		}
 		best = dev
 	}
-	return Coefficients{}, best, fmt.Errorf("%w up to %d bits (deviations at %d bits: %v)", ErrNoWidth, s.MaxBits, s.MaxBits, best)
+	// The deviations at the widest width are returned, not said: a list
+	// of numbers is no message.
+	return Coefficients{}, best, fmt.Errorf("%w up to %d bits", ErrNoWidth, s.MaxBits)
 }
 
 // TryWidth quantises taps at exactly bits and runs the same local search as
