@@ -123,7 +123,7 @@ func TestCheckAccumulatorHint(t *testing.T) {
 	p := filepath.Join(dir, "cc.toml")
 	must(t, os.WriteFile(p, []byte(spec), 0o644))
 	r := runBinary(t, dir, nil, "check", p, "--chain", named, "--out", "o-cc")
-	hint := regexp.MustCompile(`cannot be judged with its taps rounded: .*?; (words\..*?) would fit \(estimated from these taps as designed\)`)
+	hint := regexp.MustCompile(`cannot be judged with its taps rounded: .*?; (words\..*?) would fit \(planned with these taps as designed; the rounded taps must still meet the spec\)`)
 	m := hint.FindStringSubmatch(r.stdout)
 	if m == nil {
 		t.Fatalf("exit %d, %q; want the widths that fit named", r.code, r.stdout+r.stderr)

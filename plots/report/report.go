@@ -609,6 +609,50 @@ func withoutPackage(err error) string {
 // Once ctx is done the planner stops and the chain gets only
 // WordLengthsError (and, with rounded set, does not meet).
 //
+// wordsThatPlan is a, the words an accumulator error says would fit the
+// chain's accumulators, each checked by planning the chain's word lengths
+// with it: a word that another rule still refuses (a Farrow stage's guard
+// bits below its output) is narrowed a bit at a time, at most
+// maxWordRetries times, and left out (zero) when none plans.
+func wordsThatPlan(ctx context.Context, a optimize.AccumulatorExcess, spec chain.Spec, ch *chain.Chain, s fixed.Settings) optimize.AccumulatorExcess {
+	plans := func(sp chain.Spec) bool {
+		_, _, err := fixed.PlanChainContext(ctx, sp, ch, s)
+		return err == nil
+	}
+	out := optimize.AccumulatorExcess{}
+	if spec.CoefBits > 0 && a.Coefficients > 0 {
+		for k := a.Coefficients; k <= a.Coefficients+maxWordRetries && spec.CoefBits-k >= specfile.MinWordBits && ctx.Err() == nil; k++ {
+			sp := spec
+			sp.CoefBits -= k
+			if plans(sp) {
+				out.Coefficients = k
+				break
+			}
+		}
+	}
+	narrow := func(w int, set func(*chain.Spec, int)) int {
+		for v := w; v > 0 && v >= w-maxWordRetries && v >= specfile.MinWordBits && ctx.Err() == nil; v-- {
+			sp := spec
+			set(&sp, v)
+			if plans(sp) {
+				return v
+			}
+		}
+		return 0
+	}
+	if a.InputBits > 0 {
+		out.InputBits = narrow(a.InputBits, func(sp *chain.Spec, v int) { sp.InputBits = v })
+	}
+	if a.OutputBits > 0 {
+		out.OutputBits = narrow(a.OutputBits, func(sp *chain.Spec, v int) { sp.OutputBits = v })
+	}
+	return out
+}
+
+// maxWordRetries bounds the narrower words wordsThatPlan tries past the
+// accumulators' figure.
+const maxWordRetries = 8
+
 // A chain with a fractional stage (the last of a decimation chain, the
 // first of an interpolation chain) gets its word lengths and bit-true
 // figures as any other (package chain/fixed, Fractional stages), but no
@@ -638,8 +682,9 @@ func AddWordLengths(ctx context.Context, c *Chain, spec chain.Spec, cand optimiz
 		if ae := fixed.AsAccumulatorError(err); ae != nil {
 			var a optimize.AccumulatorExcess
 			a.Add(ae)
+			a = wordsThatPlan(ctx, a, spec, cand.Chain, s)
 			if ways := specfile.WordsToTry(a, spec); len(ways) > 0 {
-				c.WordLengthsError += "; " + strings.Join(ways, " or ") + " would fit (estimated from these taps as designed)"
+				c.WordLengthsError += "; " + strings.Join(ways, " or ") + " would fit (planned with these taps as designed; the rounded taps must still meet the spec)"
 			}
 		}
 		return

@@ -2,14 +2,18 @@ package report
 
 import (
 	"bytes"
+	"context"
 	"encoding/json"
 	"fmt"
 	"math"
 	"math/bits"
+	"regexp"
+	"strconv"
 	"strings"
 	"testing"
 
 	"github.com/stepdown-dsp/stepdown/chain"
+	"github.com/stepdown-dsp/stepdown/chain/fixed"
 	"github.com/stepdown-dsp/stepdown/chain/specfile"
 	"github.com/stepdown-dsp/stepdown/cost"
 	"github.com/stepdown-dsp/stepdown/optimize"
@@ -256,6 +260,54 @@ coefficients = 16
 		ch := r.Front[0]
 		if ch.ChainReport == nil || ch.FixedMemoryBits != ch.MemoryBits {
 			t.Errorf("%s (%s): memory_bits %d, fixed_memory_bits %+v (%s)", tc.notation, tc.signal, ch.MemoryBits, ch.ChainReport, ch.WordLengthsError)
+		}
+	}
+}
+
+// The words a word-length error says would fit are planned before they are
+// named: for the invented 100 to 3.84 MS/s I/Q chain cic4m1r5 > fir2L >
+// farrow48/125 at 30-bit data words and 31 to 33-bit coefficients, the
+// accumulators alone would fit at 30 bits, where the Farrow stage's guard
+// bits below its output still refuse the plan; every width named plans.
+func TestWordsNamedPlan(t *testing.T) {
+	spec := chain.Spec{InputRate: 100e6, OutputRate: 3.84e6, Passband: 1.6e6, Protected: 1.9e6, RippleDB: 0.2, RejectionDB: 70, Complex: true,
+		InputBits: 30, OutputBits: 30}
+	plan, err := chain.ParseNotation("cic4m1r5 > fir2L > farrow48/125")
+	if err != nil {
+		t.Fatal(err)
+	}
+	ch, err := chain.Design(spec, plan, chain.Settings{})
+	if err != nil {
+		t.Fatal(err)
+	}
+	cand := optimize.Candidate{Plan: plan, Chain: ch}
+	named := regexp.MustCompile(`words\.(coefficients|output|input) = (\d+)`)
+	for _, bits := range []int{31, 32, 33} {
+		sp := spec
+		sp.CoefBits = bits
+		c, err := NewChain(sp, cand, false)
+		if err != nil {
+			t.Fatal(err)
+		}
+		AddWordLengths(context.Background(), &c, sp, cand, fixed.Settings{}, false, true)
+		ways := named.FindAllStringSubmatch(c.WordLengthsError, -1)
+		if len(ways) == 0 {
+			t.Fatalf("%d bits: %q names no words", bits, c.WordLengthsError)
+		}
+		for _, w := range ways {
+			try := sp
+			v, _ := strconv.Atoi(w[2])
+			switch w[1] {
+			case "coefficients":
+				try.CoefBits = v
+			case "output":
+				try.OutputBits = v
+			case "input":
+				try.InputBits = v
+			}
+			if _, _, err := fixed.PlanChain(try, ch, fixed.Settings{}); err != nil {
+				t.Errorf("%d bits: %s named, but: %v", bits, w[0], err)
+			}
 		}
 	}
 }
