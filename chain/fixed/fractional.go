@@ -7,6 +7,7 @@ import (
 	"slices"
 
 	"github.com/stepdown-dsp/stepdown/chain"
+	"github.com/stepdown-dsp/stepdown/chain/units"
 	"github.com/stepdown-dsp/stepdown/chain/farrow"
 	"github.com/stepdown-dsp/stepdown/chain/remez"
 )
@@ -413,7 +414,7 @@ func planFarrow(st Stage, rate float64, in, ob, coefBits int, s Settings, minBit
 		}
 	}
 	if sw.OutputShift-sw.HornerDrop < 2 {
-		return StageWidths{}, fmt.Errorf("farrow stage: a %d-bit Horner register times a %d-bit mu leaves %d guard bits below the output's LSB; at least 2 are needed (narrower coefficients or mu)", sw.HornerBits, mb, sw.OutputShift-sw.HornerDrop)
+		return StageWidths{}, fmt.Errorf("farrow stage: a %d-bit Horner register times a %d-bit mu leaves %s below the output's LSB; at least 2 are needed (narrower coefficients or mu)", sw.HornerBits, mb, units.Count(sw.OutputShift-sw.HornerDrop, "guard bit", "guard bits"))
 	}
 	rowSum := make([]float64, rows)
 	for p := range rows {
