@@ -7,9 +7,9 @@ import (
 	"slices"
 
 	"github.com/stepdown-dsp/stepdown/chain"
-	"github.com/stepdown-dsp/stepdown/chain/units"
 	"github.com/stepdown-dsp/stepdown/chain/farrow"
 	"github.com/stepdown-dsp/stepdown/chain/remez"
+	"github.com/stepdown-dsp/stepdown/chain/units"
 )
 
 // The fractional stage of a cascade (package doc, Fractional stages): a
