@@ -226,7 +226,7 @@ func widen(ctx context.Context, spec chain.Spec, c *chain.Chain, cas Cascade, w 
 	ripTarget := math.Max(spec.RippleDB, fa.PassbandRippleDB)
 	limit := s.Quant.MaxBits
 	if limit == 0 {
-		limit = 32
+		limit = MaxBits
 	}
 	minBits := make([]int, len(ws.Stages))
 	for step := 0; step < maxWidenSteps; step++ {

@@ -269,3 +269,30 @@ func TestEvaluateWithoutBitTrue(t *testing.T) {
 		t.Errorf("stage widths missing: %s", b)
 	}
 }
+
+// "auto" coefficient widths go up to MaxBits (40), the widest
+// words.coefficients takes: an invented 80 to 5 MS/s I/Q receiver at
+// 150 dB through one fir16 needs more than 32 bits, where the search used
+// to stop and leave the chain without word lengths. The rounded chain,
+// measured by chain.Analyze on its quantised taps, meets the spec.
+func TestAutoWidthPast32(t *testing.T) {
+	spec := chain.Spec{InputRate: 80e6, OutputRate: 5e6, Passband: 2e6, RippleDB: 0.1, RejectionDB: 150, Complex: true}
+	c, err := chain.Design(spec, []chain.StagePlan{{Kind: chain.FIR, Factor: 16}}, chain.Settings{})
+	if err != nil {
+		t.Fatal(err)
+	}
+	ws, _, err := PlanChain(spec, c, Settings{})
+	if err != nil {
+		t.Fatalf("auto widths: %v", err)
+	}
+	if b := ws.Stages[0].Coefficients.Bits; b <= 32 || b > MaxBits {
+		t.Errorf("width %d bits: want between 33 and %d for this case", b, MaxBits)
+	}
+	a, err := chain.Analyze(QuantisedChain(c, ws), spec)
+	if err != nil {
+		t.Fatal(err)
+	}
+	if !a.Meets(spec) {
+		t.Errorf("rounded taps: %.3f dB, %.4f dB ripple; the spec asks %g dB, %g dB", a.AliasRejectionDB, a.PassbandRippleDB, spec.RejectionDB, spec.RippleDB)
+	}
+}

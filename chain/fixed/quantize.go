@@ -299,7 +299,8 @@ func Meets(dev []float64, bands []remez.Band) bool {
 
 // QuantSettings tunes MinCoefBits. The zero value is the documented default.
 type QuantSettings struct {
-	// MinBits and MaxBits bound the widths tried. Zero means 2 and 32.
+	// MinBits and MaxBits bound the widths tried. Zero means 2 and MaxBits
+	// (40), the widest words.coefficients takes.
 	MinBits, MaxBits int
 	// Budget is the number of trial moves the local search may make at each
 	// width before a bit is added. Zero means 64; negative disables the search.
@@ -406,7 +407,7 @@ func MinCoefBits(taps []float64, rate float64, bands []remez.Band, s QuantSettin
 		s.MinBits = 2
 	}
 	if s.MaxBits == 0 {
-		s.MaxBits = 32
+		s.MaxBits = MaxBits
 	}
 	if s.Budget == 0 {
 		s.Budget = 64
