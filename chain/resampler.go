@@ -573,7 +573,7 @@ func polyphaseStage(ctx context.Context, p StagePlan, r FractionalRequirement, s
 		return st, errors.New("no length estimate for its bands")
 	}
 	if n > polyphaseMaxTaps {
-		return st, fmt.Errorf("its prototype would need about %d taps, more than the %d a polyphase stage is designed with: more integer decimation before it, or a farrow stage", n, polyphaseMaxTaps)
+		return st, fmt.Errorf("its prototype would need about %d taps, more than the %d a polyphase stage is designed with: a wider transition (a lower passband or protected edge), an integer stage beside it where the ratio leaves room, or a farrow stage", n, polyphaseMaxTaps)
 	}
 	if !design {
 		st.Length = n
