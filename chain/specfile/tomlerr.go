@@ -45,7 +45,7 @@ func tomlError(file string, data []byte, line int, msg string) *Error {
 	// begins (or the file ends) is the slip, whatever the decoder then
 	// stumbled on: a word it took for a value, a comma it wanted.
 	at := line
-	if strings.Contains(msg, "unexpected EOF") {
+	if strings.Contains(msg, "unexpected EOF") || strings.Contains(msg, "got end of file") {
 		at = bytes.Count(data, []byte("\n")) + 2 // past the last line
 	}
 	if start, k, closer := openAt(data, at); start > 0 && (at != line || text == "" || reStartsItem.MatchString(text)) {
@@ -109,6 +109,21 @@ func tomlError(file string, data []byte, line int, msg string) *Error {
 			e.Key = inTable(data, start, k)
 		}
 		e.Rule = "items of a list are separated by commas: [a, b]"
+		// A list over several lines: the comma is missing at the end of
+		// the item line before this one.
+		if start, k, _ := openAt(data, line); start > 0 {
+			e.Key = inTable(data, start, k)
+			for n := line - 1; n >= start; n-- {
+				t := strings.TrimSpace(stripComment(lineOf(data, n)))
+				if t == "" {
+					continue
+				}
+				if !strings.HasSuffix(t, ",") && !strings.HasSuffix(t, "[") {
+					e.Line, e.Rule = n, "items of a list are separated by commas: end this line with one"
+				}
+				break
+			}
+		}
 	case reInlineOpen.MatchString(msg):
 		e.Key = key
 		if start, k, _ := openAt(data, line+1); start > 0 {
@@ -174,6 +189,23 @@ func openAt(data []byte, line int) (start int, key string, closer byte) {
 		return 0, "", 0
 	}
 	return stack[0].line, stack[0].key, stack[0].close
+}
+
+// stripComment is line without its comment (a # outside quotes).
+func stripComment(line string) string {
+	for i := 0; i < len(line); i++ {
+		switch c := line[i]; c {
+		case '#':
+			return line[:i]
+		case '"', '\'':
+			for i++; i < len(line) && line[i] != c; i++ {
+				if c == '"' && line[i] == '\\' {
+					i++
+				}
+			}
+		}
+	}
+	return line
 }
 
 // inTable is key as the spec's documentation names it: prefixed by the
