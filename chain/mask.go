@@ -26,6 +26,11 @@ type Mask struct{ p []MaskPoint }
 // rejections in (0, MaxRejectionDB] dB. Errors say which point breaks
 // which rule.
 func NewMask(points []MaskPoint) (*Mask, error) {
+	return newMask(points, MaxRejectionDB)
+}
+
+// newMask is NewMask with the rejections held to (0, most] dB.
+func newMask(points []MaskPoint, most float64) (*Mask, error) {
 	if len(points) == 0 {
 		return nil, fmt.Errorf("needs at least one [frequency, rejection] point")
 	}
@@ -33,8 +38,8 @@ func NewMask(points []MaskPoint) (*Mask, error) {
 		if !finite(pt.Hz) || pt.Hz < 0 {
 			return nil, fmt.Errorf("point %d: frequency %s Hz: must be a finite frequency of at least 0 Hz", i+1, fmtNum(pt.Hz))
 		}
-		if !finite(pt.DB) || pt.DB <= 0 || pt.DB > MaxRejectionDB {
-			return nil, fmt.Errorf("point %d: rejection %s dB: must lie in (0, %d] dB", i+1, fmtNum(pt.DB), MaxRejectionDB)
+		if !finite(pt.DB) || pt.DB <= 0 || pt.DB > most {
+			return nil, fmt.Errorf("point %d: rejection %s dB: must lie in (0, %s] dB", i+1, fmtNum(pt.DB), fmtNum(most))
 		}
 		if i > 0 && pt.Hz < points[i-1].Hz {
 			return nil, fmt.Errorf("point %d: frequency %s Hz is below the point before it (%s Hz): list the points in increasing frequency", i+1, fmtNum(pt.Hz), fmtNum(points[i-1].Hz))
@@ -125,9 +130,6 @@ func (m *Mask) shifted(db, most float64) (*Mask, error) {
 	p := m.Points()
 	for i := range p {
 		p[i].DB += db
-		if !finite(p[i].DB) || p[i].DB <= 0 || p[i].DB > most {
-			return nil, fmt.Errorf("point %d: rejection %s dB: must lie in (0, %s] dB", i+1, fmtNum(p[i].DB), fmtNum(most))
-		}
 	}
-	return &Mask{p: p}, nil
+	return newMask(p, most)
 }

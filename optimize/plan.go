@@ -471,14 +471,6 @@ func ClosestText(c *Candidate, spec chain.Spec) string {
 	return fmt.Sprintf("the closest, %s, %s", spec.Direction().Notation(c.Plan), strings.Join(miss, " and "))
 }
 
-// countWere is units.Count with its verb: "1 candidate was", "3 candidates were".
-func countWere(n int, one, many string) string {
-	if n == 1 {
-		return units.Count(n, one, many) + " was"
-	}
-	return units.Count(n, one, many) + " were"
-}
-
 // closest returns the candidate of cs that missed the spec in floating
 // point by the least (Shortfall), the first on a tie, or nil.
 func closest(spec chain.Spec, cs []Candidate, whys []Reason) *Candidate {
@@ -808,7 +800,7 @@ func search(ctx context.Context, p params, s *Settings, est *estimator, des desi
 			res.Reason += fmt.Sprintf(" The design budget (a fixed amount of design work per run) left %s undesigned.", units.Count(res.Unsettled, "candidate", "candidates"))
 		}
 	case len(res.Front) == 0 && !res.Partial && res.Unsettled > 0:
-		res.Reason = fmt.Sprintf("No chain was designed within the design budget (a fixed amount of design work per run) at a tap limit of %d; %s left undesigned.", est.maxTaps, countWere(res.Unsettled, "candidate", "candidates"))
+		res.Reason = fmt.Sprintf("No chain was designed within the design budget (a fixed amount of design work per run) at a tap limit of %d; %s left undesigned.", est.maxTaps, units.CountWere(res.Unsettled, "candidate", "candidates"))
 	case len(res.Front) == 0 && !res.Partial && limitReason(res.Dropped) != "":
 		res.Reason = limitReason(res.Dropped)
 	case len(res.Front) == 0 && !res.Partial:

@@ -43,8 +43,7 @@ type Bands struct {
 // chain's paths) reach the protected band for some j whatever f is, in
 // the passband too, but only through its prototype's stopband: they are
 // the stage's rejection, which the output levels show, not a property of
-// the input. Counting them made the input's alias-band level its whole
-// band's.
+// the input (counted, they would make every input frequency an alias).
 func (b Bands) InAlias(f float64) bool {
 	k := math.Round(f / b.OutputRateHz)
 	return k != 0 && math.Abs(f-k*b.OutputRateHz) <= b.ProtectedHz

@@ -841,15 +841,8 @@ func TestMuBitsChecked(t *testing.T) {
 func TestFractionalAccumulatorErrorGoesOn(t *testing.T) {
 	spec := chain.Spec{InputRate: 100e6, OutputRate: 3.75e6, Passband: 1.2e6, RippleDB: 0.1, RejectionDB: 80, Complex: true,
 		InputBits: 16, OutputBits: 30, CoefBits: 36}
-	plan, err := chain.ParseNotation("cic4m1r5 > poly3/8 > fir2")
-	if err != nil {
-		t.Fatal(err)
-	}
-	c, err := chain.Design(spec, plan, chain.Settings{})
-	if err != nil {
-		t.Fatal(err)
-	}
-	_, _, err = PlanChain(spec, c, Settings{})
+	c := designed(t, spec, "cic4m1r5 > poly3/8 > fir2")
+	_, _, err := PlanChain(spec, c, Settings{})
 	ae := AsAccumulatorError(err)
 	if ae == nil {
 		t.Fatalf("err = %v, want an AccumulatorError", err)
@@ -896,14 +889,7 @@ func TestFractionalAccumulatorErrorGoesOn(t *testing.T) {
 func TestPolyphaseAccumulatorPerPhase(t *testing.T) {
 	spec := chain.Spec{InputRate: 100e6, OutputRate: 3.84e6, Passband: 1.6e6, Protected: 1.9e6, RippleDB: 0.2, RejectionDB: 70, Complex: true,
 		InputBits: 30, OutputBits: 30, CoefBits: 30}
-	plan, err := chain.ParseNotation("cic4m1r5 > poly24/25 > fir5")
-	if err != nil {
-		t.Fatal(err)
-	}
-	c, err := chain.Design(spec, plan, chain.Settings{})
-	if err != nil {
-		t.Fatal(err)
-	}
+	c := designed(t, spec, "cic4m1r5 > poly24/25 > fir5")
 	ws, _, err := PlanChain(spec, c, Settings{})
 	if err != nil {
 		t.Fatalf("plan at 30-bit coefficients: %v", err)

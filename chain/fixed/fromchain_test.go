@@ -277,10 +277,7 @@ func TestEvaluateWithoutBitTrue(t *testing.T) {
 // measured by chain.Analyze on its quantised taps, meets the spec.
 func TestAutoWidthPast32(t *testing.T) {
 	spec := chain.Spec{InputRate: 80e6, OutputRate: 5e6, Passband: 2e6, RippleDB: 0.1, RejectionDB: 150, Complex: true}
-	c, err := chain.Design(spec, []chain.StagePlan{{Kind: chain.FIR, Factor: 16}}, chain.Settings{})
-	if err != nil {
-		t.Fatal(err)
-	}
+	c := designed(t, spec, "fir16")
 	ws, _, err := PlanChain(spec, c, Settings{})
 	if err != nil {
 		t.Fatalf("auto widths: %v", err)

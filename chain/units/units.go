@@ -356,3 +356,11 @@ func Count(n int, one, many string) string {
 	}
 	return fmt.Sprintf("%d %s", n, many)
 }
+
+// CountWere is Count with its verb: "1 candidate was", "3 candidates were".
+func CountWere(n int, one, many string) string {
+	if n == 1 {
+		return Count(n, one, many) + " was"
+	}
+	return Count(n, one, many) + " were"
+}

@@ -370,14 +370,17 @@ func TestFormatComputedFrequency(t *testing.T) {
 	}
 }
 
-// Count agrees the noun with its number.
+// Count and CountWere agree the noun, and the verb, with the number.
 func TestCount(t *testing.T) {
 	for _, c := range []struct {
-		n    int
-		want string
-	}{{0, "0 chains"}, {1, "1 chain"}, {2, "2 chains"}, {14, "14 chains"}} {
+		n          int
+		want, were string
+	}{{0, "0 chains", "0 chains were"}, {1, "1 chain", "1 chain was"}, {2, "2 chains", "2 chains were"}, {14, "14 chains", "14 chains were"}} {
 		if got := Count(c.n, "chain", "chains"); got != c.want {
 			t.Errorf("Count(%d) = %q, want %q", c.n, got, c.want)
+		}
+		if got := CountWere(c.n, "chain", "chains"); got != c.were {
+			t.Errorf("CountWere(%d) = %q, want %q", c.n, got, c.were)
 		}
 	}
 }

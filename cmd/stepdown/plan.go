@@ -651,11 +651,7 @@ func printSummary(w io.Writer, j *job, rep *report.Report, files []report.File, 
 			units.Count(rep.Search.Candidates, "candidate", "candidates"), rep.Search.Feasible, rep.Search.Designed, len(rep.Front))
 	}
 	if n := rep.Search.LeftUndesigned; n > 0 && rep.Command == "plan" {
-		were := "were"
-		if n == 1 {
-			were = "was"
-		}
-		fmt.Fprintf(w, "  DESIGN BUDGET REACHED: %s near the front %s left undesigned, so a cheaper chain may be missing (lower search.max_stages or narrow search.kinds or search.cic_orders to design them all)\n", units.Count(n, "candidate", "candidates"), were)
+		fmt.Fprintf(w, "  DESIGN BUDGET REACHED: %s left undesigned near the front, so a cheaper chain may be missing (lower search.max_stages or narrow search.kinds or search.cic_orders to design them all)\n", units.CountWere(n, "candidate", "candidates"))
 	}
 	switch {
 	case rep.Partial && cut:

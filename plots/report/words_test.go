@@ -270,17 +270,18 @@ coefficients = 16
 // accumulators alone would fit at 30 bits, where the Farrow stage's guard
 // bits below its output still refuse the plan; every width named plans.
 func TestWordsNamedPlan(t *testing.T) {
-	spec := chain.Spec{InputRate: 100e6, OutputRate: 3.84e6, Passband: 1.6e6, Protected: 1.9e6, RippleDB: 0.2, RejectionDB: 70, Complex: true,
-		InputBits: 30, OutputBits: 30}
-	plan, err := chain.ParseNotation("cic4m1r5 > fir2L > farrow48/125")
-	if err != nil {
-		t.Fatal(err)
-	}
-	ch, err := chain.Design(spec, plan, chain.Settings{})
-	if err != nil {
-		t.Fatal(err)
-	}
-	cand := optimize.Candidate{Plan: plan, Chain: ch}
+	s, res := designed(t, `input_rate = "100 MHz"
+output_rate = "3.84 MHz"
+passband = "1.6 MHz"
+protected = "1.9 MHz"
+ripple = "0.2 dB"
+rejection = "70 dB"
+signal = "complex"
+[words]
+input = 30
+output = 30
+`, "cic4m1r5 > fir2L > farrow48/125")
+	spec, cand, ch := s.Chain, res.Front[0], res.Front[0].Chain
 	named := regexp.MustCompile(`words\.(coefficients|output|input) = (\d+)`)
 	for _, bits := range []int{31, 32, 33} {
 		sp := spec
@@ -289,7 +290,7 @@ func TestWordsNamedPlan(t *testing.T) {
 		if err != nil {
 			t.Fatal(err)
 		}
-		AddWordLengths(context.Background(), &c, sp, cand, fixed.Settings{}, false, true)
+		AddWordLengths(context.Background(), &c, sp, cand, s.FixedSettings(), false, true)
 		ways := named.FindAllStringSubmatch(c.WordLengthsError, -1)
 		if len(ways) == 0 {
 			t.Fatalf("%d bits: %q names no words", bits, c.WordLengthsError)
@@ -305,7 +306,7 @@ func TestWordsNamedPlan(t *testing.T) {
 			case "input":
 				try.InputBits = v
 			}
-			if _, _, err := fixed.PlanChain(try, ch, fixed.Settings{}); err != nil {
+			if _, _, err := fixed.PlanChain(try, ch, s.FixedSettings()); err != nil {
 				t.Errorf("%d bits: %s named, but: %v", bits, w[0], err)
 			}
 		}
