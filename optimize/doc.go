@@ -272,7 +272,7 @@
 // over the floating-point one's (linear deviations, which add at worst),
 // and the rejection target is raised so that the floating-point deviation
 // plus that excess meets the target, plus 1 dB (a passband ripple pushed
-// over by rounding is tightened likewise); at most three times. A
+// over by rounding is tightened likewise); at most five times. A
 // re-designed chain is priced and measured again (cost.Evaluate), and the
 // front is taken again with its new figures. The chain is dropped, counted
 // under ReasonMissQuantised, when the tries run out or at once when the

@@ -39,9 +39,13 @@ const (
 // is designed again with its targets tightened by the margin rounding
 // needs, at most maxRoundingRedesigns times, each time with
 // roundingExtraDB more rejection than the measured rounding error calls
-// for (see realDesigner.survive).
+// for (see realDesigner.survive). Five tries, not three: at a width close
+// to the target's own (10 bits for 66 dB), each re-design's longer taps
+// round worse, and three tries left an 80 to 2.5 MS/s receiver with no
+// chain at 66, 69 and 72 dB while 67, 68 and 70 dB found one that meets
+// all three (TestRoundingRedesignsReach).
 const (
-	maxRoundingRedesigns = 3
+	maxRoundingRedesigns = 5
 	roundingExtraDB      = 1
 )
 
