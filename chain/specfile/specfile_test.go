@@ -493,6 +493,11 @@ func TestTOMLSlips(t *testing.T) {
 		{"words = { input = 16, output = 24 }\n[search]\nkinds = [{a = 1 b = 2}]", `spec.toml:5: search.kinds: entries of an inline table are separated by commas`},
 		{"[hardware]\nclock = 491.52 MHz", `spec.toml:4: hardware.clock = 491.52 MHz: a value with a unit goes in quotes: clock = "491.52 MHz"`},
 		{"[search] # the search\nkinds = [\"cic\", # a comment with ] and [\n  \"fir\"\nmax_stages = 3", `spec.toml:4: search.kinds: the list is not closed: end it with ]`},
+		// Keys in quotes (TOML allows them) are named without the quotes.
+		{"[search]\n\"kinds\" = [\"cic\", \"fir\"\nmax_stages = 3", `spec.toml:4: search.kinds: the list is not closed: end it with ]`},
+		{`"passband" = 300 kHz`, `spec.toml:3: passband = 300 kHz: a value with a unit goes in quotes: passband = "300 kHz"`},
+		{"[\"hardware\"]\n'clock' = 491.52 MHz", `spec.toml:4: hardware.clock = 491.52 MHz: a value with a unit goes in quotes: clock = "491.52 MHz"`},
+		{"[search]\n\"kinds\" = [cic, fir]", `spec.toml:4: search.kinds = cic: words go in quotes, in a list too: ["cic", ...]`},
 	} {
 		_, err := Parse("spec.toml", []byte(head+tc.line3+"\nrejection = \"80 dB\"\n"))
 		if err == nil || !strings.HasPrefix(err.Error(), tc.want) {

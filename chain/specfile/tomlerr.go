@@ -11,6 +11,10 @@ import (
 // The TOML decoder's messages for the slips a spec's author makes most,
 // said in the spec's words by tomlError. Any other message is passed on
 // after "not valid TOML: ".
+// keyPat is a TOML key: bare words (letters, digits, _ and -) or quoted
+// ones, joined by dots; plainKey names it without its quotes.
+const keyPat = `(?:"[^"\n]*"|'[^'\n]*'|[A-Za-z0-9_\-]+)(?:\s*\.\s*(?:"[^"\n]*"|'[^'\n]*'|[A-Za-z0-9_\-]+))*`
+
 var (
 	reTrailing    = regexp.MustCompile(`^expected a top-level item to end with a newline, comment, or EOF, but got '(.*)' instead`)
 	reNoEquals    = regexp.MustCompile(`^expected '\.' or '=', but got '(.*)' instead`)
@@ -22,13 +26,13 @@ var (
 	reStringOpen  = regexp.MustCompile(`^strings cannot contain newlines`)
 	reLeadingDot  = regexp.MustCompile(`^floats must start with a digit, not '\.'`)
 	reDuplicate   = regexp.MustCompile(`^Key '(.*)' has already been defined\.?$`)
-	reNumberUnit  = regexp.MustCompile(`^\s*([A-Za-z0-9_.\-]+)\s*=\s*([-+]?[0-9][0-9_.eE+\-]*\s*[A-Za-z/]+)\s*(?:#.*)?$`)
-	reKeyOfLine   = regexp.MustCompile(`^\s*([A-Za-z0-9_.\-]+)\s*=`)
+	reNumberUnit  = regexp.MustCompile(`^\s*(` + keyPat + `)\s*=\s*([-+]?[0-9][0-9_.eE+\-]*\s*[A-Za-z/]+)\s*(?:#.*)?$`)
+	reKeyOfLine   = regexp.MustCompile(`^\s*(` + keyPat + `)\s*=`)
 	reLineIsEmpty = regexp.MustCompile(`^\s*(?:#.*)?$`)
 	reListOpen    = regexp.MustCompile(`^expected a comma \(','\) or array terminator \('\]'\), but got (.*)$`)
 	reInlineOpen  = regexp.MustCompile(`^expected a comma or an inline table terminator '\}', but got (.*) instead$`)
-	reHeader      = regexp.MustCompile(`^\s*\[\[?\s*([A-Za-z0-9_.\-]+)\s*\]\]?\s*(?:#.*)?$`)
-	reStartsItem  = regexp.MustCompile(`^\s*(?:[A-Za-z0-9_.\-]+\s*=|\[\[?[A-Za-z_][A-Za-z0-9_.\-]*\]\]?\s*(?:#.*)?$)`)
+	reHeader      = regexp.MustCompile(`^\s*\[\[?\s*(` + keyPat + `)\s*\]\]?\s*(?:#.*)?$`)
+	reStartsItem  = regexp.MustCompile(`^\s*(?:` + keyPat + `\s*=|\[\[?\s*` + keyPat + `\s*\]\]?\s*(?:#.*)?$)`)
 )
 
 // tomlError is the spec-file error for the decoder's message msg at line
@@ -38,7 +42,7 @@ func tomlError(file string, data []byte, line int, msg string) *Error {
 	text := lineOf(data, line)
 	key := ""
 	if m := reKeyOfLine.FindStringSubmatch(text); m != nil {
-		key = m[1]
+		key = plainKey(m[1])
 	}
 	e := &Error{File: file, Line: line}
 	// A list or inline table still open where a new key or table header
@@ -63,8 +67,9 @@ func tomlError(file string, data []byte, line int, msg string) *Error {
 	switch {
 	case reTrailing.MatchString(msg):
 		if m := reNumberUnit.FindStringSubmatch(text); m != nil {
-			e.Key, e.Value = inTable(data, line, m[1]), units.Clip(strings.TrimSpace(m[2]), units.MaxEcho)
-			e.Rule = "a value with a unit goes in quotes: " + m[1] + ` = "` + e.Value + `"`
+			k := plainKey(m[1])
+			e.Key, e.Value = inTable(data, line, k), units.Clip(strings.TrimSpace(m[2]), units.MaxEcho)
+			e.Rule = "a value with a unit goes in quotes: " + k + ` = "` + e.Value + `"`
 			return e
 		}
 		e.Key, e.Rule = key, "only a comment (# ...) may follow a value or a [table] header on its line; a value with spaces or a unit goes in quotes"
@@ -159,7 +164,7 @@ func openAt(data []byte, line int) (start int, key string, closer byte) {
 		}
 		k := ""
 		if m := reKeyOfLine.FindStringSubmatch(text); m != nil && len(stack) == 0 {
-			k = m[1]
+			k = plainKey(m[1])
 		}
 		for i := 0; i < len(text); i++ {
 			switch c := text[i]; c {
@@ -217,11 +222,35 @@ func inTable(data []byte, line int, key string) string {
 	}
 	for n := line - 1; n >= 1; n-- {
 		if m := reHeader.FindStringSubmatch(lineOf(data, n)); m != nil {
-			return m[1] + "." + key
+			return plainKey(m[1]) + "." + key
 		}
 	}
 	return key
-} // orKey is key, or "key" when the line named none.
+}
+
+// plainKey is a key as keyPat matched it, without quotes and without
+// spaces around its dots: kinds for "kinds", search.kinds for
+// search . "kinds".
+func plainKey(k string) string {
+	var b strings.Builder
+	for i := 0; i < len(k); i++ {
+		switch c := k[i]; c {
+		case '"', '\'':
+			j := strings.IndexByte(k[i+1:], c)
+			if j < 0 {
+				j = len(k) - i - 1
+			}
+			b.WriteString(k[i+1 : i+1+j])
+			i += j + 1
+		case ' ', '\t':
+		default:
+			b.WriteByte(c)
+		}
+	}
+	return b.String()
+}
+
+// orKey is key, or "key" when the line named none.
 func orKey(key string) string {
 	if key == "" {
 		return "key"
