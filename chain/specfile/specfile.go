@@ -271,25 +271,44 @@ func unwrapPath(err error) error {
 
 // key describes one key of the format.
 type key struct {
-	path  string // dotted
-	table bool   // a table header such as [words]
+	path    string // dotted
+	table   bool   // a table header such as [words]
+	example string // a value as a spec writes it, for the messages
 }
 
-// known lists every key of the format, in the order of the README.
+// known lists every key of the format, in the order of the README, with
+// the README's example values.
 var known = []key{
-	{path: "input_rate"}, {path: "output_rate"}, {path: "ratio_tolerance_ppm"}, {path: "passband"}, {path: "protected"},
-	{path: "stopband"}, {path: "ripple"}, {path: "rejection"}, {path: "rejection_mask"}, {path: "signal"},
-	{path: "words", table: true}, {path: "words.input"}, {path: "words.output"}, {path: "words.coefficients"},
-	{path: "words.unity_gain"},
-	{path: "hardware", table: true}, {path: "hardware.clock"}, {path: "hardware.multiplier"},
-	{path: "hardware.max_register_bits"}, {path: "hardware.max_cic_factor"}, {path: "hardware.max_multipliers"},
-	{path: "hardware.max_memory_bits"}, {path: "hardware.multiplierless"},
-	{path: "cost", table: true}, {path: "cost.symmetry"},
-	{path: "search", table: true}, {path: "search.max_stages"}, {path: "search.kinds"},
-	{path: "search.cic_orders"}, {path: "search.cic_delays"}, {path: "search.cic_forms"},
-	{path: "sigma_delta", table: true}, {path: "sigma_delta.order"}, {path: "sigma_delta.bits"},
-	{path: "sigma_delta.snr"}, {path: "sigma_delta.zeros"}, {path: "sigma_delta.obg"},
-	{path: "search.requirements"},
+	{path: "input_rate", example: `"245.76 MS/s"`}, {path: "output_rate", example: `"1.92 MS/s"`},
+	{path: "ratio_tolerance_ppm", example: "50"}, {path: "passband", example: `"600 kHz"`},
+	{path: "protected", example: `"900 kHz"`}, {path: "stopband", example: `"1.02 MHz"`},
+	{path: "ripple", example: `"0.1 dB"`}, {path: "rejection", example: `"85 dB"`},
+	{path: "rejection_mask", example: `[["0 Hz", "90 dB"], ["20 MHz", "70 dB"]]`}, {path: "signal", example: `"complex"`},
+	{path: "words", table: true}, {path: "words.input", example: "16"}, {path: "words.output", example: "24"},
+	{path: "words.coefficients", example: "18"}, {path: "words.unity_gain", example: "false"},
+	{path: "hardware", table: true}, {path: "hardware.clock", example: `"491.52 MHz"`},
+	{path: "hardware.multiplier", example: `"18x27"`}, {path: "hardware.max_register_bits", example: "48"},
+	{path: "hardware.max_cic_factor", example: "256"}, {path: "hardware.max_multipliers", example: "16"},
+	{path: "hardware.max_memory_bits", example: "200000"}, {path: "hardware.multiplierless", example: "false"},
+	{path: "cost", table: true}, {path: "cost.symmetry", example: "true"},
+	{path: "search", table: true}, {path: "search.max_stages", example: "6"},
+	{path: "search.kinds", example: `["cic", "halfband", "fir"]`}, {path: "search.cic_orders", example: "[3, 4, 5]"},
+	{path: "search.cic_delays", example: "[1, 2]"}, {path: "search.cic_forms", example: `["recursive"]`},
+	{path: "sigma_delta", table: true}, {path: "sigma_delta.order", example: "4"}, {path: "sigma_delta.bits", example: "1"},
+	{path: "sigma_delta.snr", example: `"88 dB"`}, {path: "sigma_delta.zeros", example: `"optimal"`},
+	{path: "sigma_delta.obg", example: "1.5"},
+	{path: "search.requirements", example: `"cascade"`},
+}
+
+// exampleOf is a value key (dotted) takes, as a spec writes it; a
+// frequency for a key the format does not know.
+func exampleOf(dotted string) string {
+	for _, k := range known {
+		if k.path == dotted && k.example != "" {
+			return k.example
+		}
+	}
+	return `"600 kHz"`
 }
 
 // parser holds one file's data while it is checked.

@@ -493,6 +493,9 @@ func TestTOMLSlips(t *testing.T) {
 		{"words = { input = 16, output = 24 }\n[search]\nkinds = [{a = 1 b = 2}]", `spec.toml:5: search.kinds: entries of an inline table are separated by commas`},
 		{"[hardware]\nclock = 491.52 MHz", `spec.toml:4: hardware.clock = 491.52 MHz: a value with a unit goes in quotes: clock = "491.52 MHz"`},
 		{"[search] # the search\nkinds = [\"cic\", # a comment with ] and [\n  \"fir\"\nmax_stages = 3", `spec.toml:4: search.kinds: the list is not closed: end it with ]`},
+		// The example suits the key, written as its line writes it.
+		{"[words]\ncoefficients = ", `spec.toml:4: words.coefficients: nothing after =: give the value, e.g. coefficients = 18`},
+		{"[search]\nrequirements = cascade", `spec.toml:4: search.requirements = cascade: words go in quotes: requirements = "cascade"`},
 		// Keys in quotes (TOML allows them) are named without the quotes.
 		{"[search]\n\"kinds\" = [\"cic\", \"fir\"\nmax_stages = 3", `spec.toml:4: search.kinds: the list is not closed: end it with ]`},
 		{`"passband" = 300 kHz`, `spec.toml:3: passband = 300 kHz: a value with a unit goes in quotes: passband = "300 kHz"`},

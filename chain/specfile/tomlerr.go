@@ -61,6 +61,7 @@ func tomlError(file string, data []byte, line int, msg string) *Error {
 		}
 		return e
 	}
+	bare := key // as the line writes it, for the examples
 	if key != "" {
 		key = inTable(data, line, key)
 	}
@@ -80,10 +81,10 @@ func tomlError(file string, data []byte, line int, msg string) *Error {
 			e.Rule = "a key is one word (letters, digits, _ and -) followed by = and its value"
 		}
 	case reNoValue.MatchString(msg):
-		e.Key, e.Rule = key, "nothing after =: give the value, e.g. "+orKey(key)+` = "600 kHz"`
+		e.Key, e.Rule = key, "nothing after =: give the value, e.g. "+orKey(bare)+" = "+exampleOf(key)
 	case reBareWord.MatchString(msg):
 		w := units.Clip(reBareWord.FindStringSubmatch(msg)[1], units.MaxEcho)
-		e.Key, e.Value, e.Rule = key, w, "words go in quotes: "+orKey(key)+` = "`+w+`"`
+		e.Key, e.Value, e.Rule = key, w, "words go in quotes: "+orKey(bare)+` = "`+w+`"`
 		start, _, closer := openAt(data, line+1)
 		if i := strings.Index(text, w); (start > 0 && closer == ']') || (i > 0 && strings.Contains(text[:i], "[")) {
 			e.Rule = `words go in quotes, in a list too: ["` + w + `", ...]`
