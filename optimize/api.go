@@ -116,13 +116,10 @@ type Settings struct {
 	Exhaustive bool
 
 	// floatOnly turns off everything the search does for a fixed
-	// coefficient width (the measurement on rounded taps, the re-designs
-	// for it and the estimate tier's prune): the search of floating-point
+	// coefficient width (the measurement on rounded taps and the
+	// re-designs for it): the search of floating-point
 	// designs only, which the package's tests compare against.
 	floatOnly bool
-	// keepFloored turns off the estimate tier's rounding-floor prune alone
-	// (for the test that it drops nothing that could meet).
-	keepFloored bool
 	// noSiblings skips the design of the front's CIC siblings (see the
 	// package doc, CIC siblings): the fractional search's integer
 	// sub-searches, whose fronts only seed its plans, set it.

@@ -34,11 +34,6 @@ const (
 	ReasonGaveUp         Reason = "stage_failed_in_other_chains"
 	ReasonCICBeaten      Reason = "cic_beaten_by_another_order_or_delay"
 	ReasonLongFIR        Reason = "fir_over_tap_limit"
-	// ReasonRoundingFloor: with a fixed coefficient width, a FIR or
-	// half-band stage whose rounding error alone, predicted from its
-	// estimated length and the width, lies well above its stopband limit
-	// (see the package doc, "Coefficient width").
-	ReasonRoundingFloor Reason = "rounding_floor_above_stopband"
 	// ReasonMissQuantised: a designed chain that meets the spec in floating
 	// point but not with its taps rounded to the coefficient width, even
 	// after the re-designs that give its stages the margin rounding needs.
@@ -83,7 +78,6 @@ var reasonText = map[Reason]string{
 	ReasonGaveUp:              "a stage failed to design in other chains",
 	ReasonCICBeaten:           "cic beaten by another order or delay",
 	ReasonLongFIR:             "fir stage over the tap limit",
-	ReasonRoundingFloor:       "rounding floor above the stopband at the coefficient width",
 	ReasonMissQuantised:       "misses the targets with its taps rounded to the coefficient width",
 	ReasonWordLengths:         "word lengths could not be planned",
 	ReasonOverRegisterBits:    "a cic register wider than hardware.max_register_bits",
@@ -127,7 +121,7 @@ func DroppedText(d map[Reason]int, sep string) string {
 func Reasons() []Reason {
 	return []Reason{ReasonCICRejection, ReasonCICDroop, ReasonHalfBandEdges, ReasonShortFIR, ReasonDesignFailed,
 		ReasonEvaluateFailed, ReasonMissRejection, ReasonMissRipple, ReasonCICNull, ReasonGaveUp, ReasonCICBeaten,
-		ReasonLongFIR, ReasonRoundingFloor, ReasonMissQuantised, ReasonWordLengths,
+		ReasonLongFIR, ReasonMissQuantised, ReasonWordLengths,
 		ReasonOverRegisterBits, ReasonOverCICFactor, ReasonOverMultipliers, ReasonOverMemory, ReasonOverAccumulatorBits,
 		ReasonNoFractionalSplit, ReasonFractionalNotBuilt}
 }
@@ -143,7 +137,6 @@ const (
 	dropLongFIR
 	dropCICNull
 	dropCICBeaten
-	dropRoundingFloor
 	dropRegisterBits
 	dropCICFactor
 	dropMultipliers
@@ -164,7 +157,6 @@ var dropNames = [...]Reason{
 	dropLongFIR:       ReasonLongFIR,
 	dropCICNull:       ReasonCICNull,
 	dropCICBeaten:     ReasonCICBeaten,
-	dropRoundingFloor: ReasonRoundingFloor,
 	dropRegisterBits:  ReasonOverRegisterBits,
 	dropCICFactor:     ReasonOverCICFactor,
 	dropMultipliers:   ReasonOverMultipliers,
@@ -283,10 +275,6 @@ type stageVal struct {
 	// taps is a FIR or half-band stage's estimated length, which the tap
 	// limit is applied to in score (so the cache does not depend on it).
 	taps float64
-	// floored marks a FIR or half-band stage that cannot meet its stopband
-	// limit with its taps rounded to the spec's coefficient width (see
-	// roundingFloor); score drops it when estimator.floorPrune is set.
-	floored bool
 }
 
 // estimator scores candidates from order estimates. It caches each stage's
@@ -313,8 +301,6 @@ type estimator struct {
 	orders, delays []int
 	// keepBeaten turns cicBeaten off (for the exhaustive check).
 	keepBeaten bool
-	// floorPrune drops the candidates with a floored stage (stageVal.floored).
-	floorPrune bool
 	// beaters lists, for each beaten CIC, the order and delay of the CICs
 	// that beat it.
 	beaters map[[3]int][][2]int
@@ -333,7 +319,7 @@ func newEstimator(p params, tol float64) *estimator {
 		tol = defaultTolerance
 	}
 	return &estimator{p: p, tol: tol, maxTaps: defaultMaxTaps, cache: make(map[stageKey]stageVal), beaten: map[[3]int]bool{}, beaters: map[[3]int][][2]int{}, reinstated: map[string]bool{}, reinstatedCIC: map[[3]int]bool{}, margins: map[[3]int]float64{}, cics: map[[3]int]chain.CICStage{},
-		orders: DefaultCICOrders(), delays: DefaultCICDelays(), floorPrune: true}
+		orders: DefaultCICOrders(), delays: DefaultCICDelays()}
 }
 
 // stageVal returns the figures of stage k, from the cache or computed and
@@ -356,7 +342,7 @@ func (e *estimator) stageVal(k stageKey) stageVal {
 func (e *estimator) fork() *estimator {
 	f := newEstimator(e.p, e.tol)
 	f.maxTaps, f.orders, f.delays = e.maxTaps, e.orders, e.delays
-	f.keepBeaten, f.floorPrune = e.keepBeaten, e.floorPrune
+	f.keepBeaten = e.keepBeaten
 	f.reinstated, f.reinstatedCIC = e.reinstated, e.reinstatedCIC
 	f.beaten, f.margins, f.cics = maps.Clone(e.beaten), maps.Clone(e.margins), maps.Clone(e.cics)
 	f.beaters = maps.Clone(e.beaters)
@@ -464,9 +450,6 @@ func (e *estimator) score(plan []chain.StagePlan) (figs, dropCode) {
 		v := e.stageVal(k)
 		if v.drop != dropNone {
 			return figs{}, v.drop
-		}
-		if v.floored && e.floorPrune {
-			return figs{}, dropRoundingFloor
 		}
 		if v.taps > float64(e.maxTaps) {
 			return figs{}, dropLongFIR
@@ -593,9 +576,6 @@ func (e *estimator) stage(k stageKey) stageVal {
 		v.lo = hb(kLo)
 		v.lo.mpo = e.favourable(v.lo.mpo)
 		v.hi = hb(math.Ceil(kk*(1+e.tol)) + 1)
-		// Its 2K side taps are rounded; the centre 1/2 and the zeros are
-		// exact.
-		v.floored = p.floored(2*kLo, 0.5, dev)
 		return v
 	case chain.FIR:
 		l := math.Ceil(herrmann(dpi, ds, (stop-p.fp)/rate))
@@ -611,9 +591,6 @@ func (e *estimator) stage(k stageKey) stageVal {
 		v.lo = fir(lLo)
 		v.lo.mpo = e.favourable(v.lo.mpo)
 		v.hi = fir(math.Ceil(l*(1+e.tol)) + 2)
-		// Common practice: a lowpass decimating by R has its centre, and
-		// largest, tap near 2 fc/Fs ~ 1/R; half of that is assumed.
-		v.floored = p.floored(lLo, 0.5/float64(f), ds)
 		return v
 	}
 	v.lo, v.hi = v.f, v.f
@@ -646,28 +623,13 @@ func (e *estimator) favourable(mpo float64) float64 {
 	return mpo
 }
 
-// floorMargin is how far a stage's predicted rounding floor must lie above
-// its stopband limit before the estimate tier drops it: a factor of 2, 6 dB.
-const floorMargin = 2
-
-// floored reports whether n taps whose largest is at least maxTap, rounded
-// to the spec's coefficient width, leave a stopband error above floorMargin
-// times ds even at their best: the rounding error of each tap is uniform in
-// +-q/2, q = 2^-Frac (Frac as fixed.Quantize picks it for the largest tap),
-// so the response's error is about q sqrt(n/12) RMS (common practice), and
-// a stopband of many ripples then peaks above its RMS. n and maxTap are the
-// low ends of the stage's range, so the prune errs on the side of keeping
-// a candidate: a longer stage or larger taps only raise the floor. Widths
-// beyond fixed.MaxBits, or none, floor nothing.
-func (p *params) floored(n, maxTap, ds float64) bool {
-	if p.fixedBits < 2 || p.fixedBits > fixed.MaxBits {
-		return false
-	}
-	return roundingFloor(n, maxTap, p.fixedBits) > floorMargin*ds
-}
-
 // roundingFloor is q sqrt(n/12), the RMS error of a response whose n taps,
-// the largest maxTap, are rounded to bits-bit words (see floored).
+// the largest maxTap, are rounded to bits-bit words: the rounding error of
+// each tap is uniform in +-q/2, q = 2^-Frac (Frac as fixed.Quantize picks it
+// for the largest tap), common practice. It is an expectation, not a bound:
+// a short stage's rounding, which the word-length plan searches, can come
+// out far below it, so it only marks a designed chain at risk (atRisk),
+// never drops a candidate.
 func roundingFloor(n, maxTap float64, bits int) float64 {
 	frac := fixed.Quantize([]float64{maxTap}, bits).Frac
 	return math.Ldexp(math.Sqrt(n/12), -frac)
@@ -911,7 +873,7 @@ func (e *estimator) mayJoin(plan []chain.StagePlan, fs []figs) bool {
 	for i := range e.keys {
 		k := e.keys[i].stageKey
 		v := e.stageVal(k)
-		if v.drop != dropNone || v.taps > float64(e.maxTaps) || (v.floored && e.floorPrune) {
+		if v.drop != dropNone || v.taps > float64(e.maxTaps) {
 			return false
 		}
 		lo.addAxes(v.lo, 1)
@@ -1010,7 +972,7 @@ func (e *estimator) needTaps(plan []chain.StagePlan) float64 {
 	for i := range e.keys {
 		k := e.keys[i].stageKey
 		v := e.stageVal(k)
-		if v.drop != dropNone || (v.floored && e.floorPrune) {
+		if v.drop != dropNone {
 			return math.Inf(1)
 		}
 		need = math.Max(need, v.taps)

@@ -732,7 +732,6 @@ func search(ctx context.Context, p params, s *Settings, est *estimator, des desi
 	sp := newSpace(&p, s)
 	est.orders, est.delays = sp.orders, sp.delays
 	est.keepBeaten = s.Exhaustive
-	est.floorPrune = !s.floatOnly && !s.keepFloored
 	auto := s.MaxTaps == 0
 	if !auto {
 		est.maxTaps = s.MaxTaps
@@ -910,18 +909,13 @@ const (
 	// the spec (a front point that set the band, or a CIC that pruned the
 	// CICs it beats): the next runs without them, keeping what was designed.
 	passLeaned
-	// passNoFloorPrune: nothing met, and the rounding-floor prune dropped
-	// some candidate: the next runs without the prune, so that whatever it
-	// could have missed is designed and the chains that miss with rounded
-	// taps name the width they need.
-	passNoFloorPrune
 	// passRaiseTaps: the automatic tap limit left no chain: the next runs
 	// at the first step of the limit that keeps a candidate it dropped.
 	passRaiseTaps
 )
 
 func (r passReason) String() string {
-	return [...]string{"done", "leant on failed chains", "without the rounding-floor prune", "tap limit raised"}[r]
+	return [...]string{"done", "leant on failed chains", "tap limit raised"}[r]
 }
 
 // nextPass decides, after a pass, whether the search runs another and sets
@@ -935,10 +929,6 @@ func nextPass(s *Settings, est *estimator, t *designTier, res *Result, need floa
 	}
 	if !s.Exhaustive && (est.reinstate(failed, res.Front) || retake) {
 		return passLeaned
-	}
-	if len(res.Front) == 0 && est.floorPrune && res.Dropped[ReasonRoundingFloor] > 0 {
-		est.floorPrune = false
-		return passNoFloorPrune
 	}
 	// A longer stage rounds no better, so the limit is not raised when
 	// chains met in floating point and missed with their taps rounded.
