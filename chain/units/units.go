@@ -68,6 +68,13 @@ func Parse(s string, k Kind) (float64, error) {
 		return 0, &Error{s, "not a number; want a number" + unitHint(k)}
 	}
 	if !isDecimal(num) {
+		// A number followed by more than a unit ("0.2 dB pk-pk", "1 %",
+		// "480 kHz flat"): the number is right, what follows it is not.
+		if n, rest := leadingNumber(t); n != "" && rest != "" && !strings.ContainsAny(rest, "0123456789+") && !strings.ContainsAny(rest[:1], ".-") {
+			if _, rule := unitShift(rest, k); rule != "" {
+				return 0, &Error{s, rule}
+			}
+		}
 		return 0, &Error{s, fmt.Sprintf("%q is not a decimal number", Clip(num, MaxEcho))}
 	}
 	shift, rule := unitShift(unit, k)
@@ -320,6 +327,44 @@ func ParseRange(s string, k Kind) (lo, hi float64, err error) {
 }
 
 // splitUnit splits trimmed text into its number and its trailing unit.
+// leadingNumber splits t into the decimal number it starts with and the
+// rest, trimmed; "" and t when it starts with none. One pass: an exponent
+// counts only with its digits.
+func leadingNumber(t string) (num, rest string) {
+	i := 0
+	if i < len(t) && (t[i] == '+' || t[i] == '-') {
+		i++
+	}
+	digits := 0
+	for i < len(t) && isDigit(t[i]) {
+		i++
+		digits++
+	}
+	if i < len(t) && t[i] == '.' {
+		i++
+		for i < len(t) && isDigit(t[i]) {
+			i++
+			digits++
+		}
+	}
+	if digits == 0 {
+		return "", t
+	}
+	if j := i; j < len(t) && (t[j] == 'e' || t[j] == 'E') {
+		j++
+		if j < len(t) && (t[j] == '+' || t[j] == '-') {
+			j++
+		}
+		if j < len(t) && isDigit(t[j]) {
+			for j < len(t) && isDigit(t[j]) {
+				j++
+			}
+			i = j
+		}
+	}
+	return t[:i], strings.TrimSpace(t[i:])
+}
+
 func splitUnit(t string) (num, unit string) {
 	i := len(t)
 	for i > 0 && isUnitByte(t[i-1]) {

@@ -118,6 +118,11 @@ func TestParseErrors(t *testing.T) {
 		{"45 Hz", Level, "unknown unit \"Hz\""},
 		{"45 dBc", Level, "unknown unit"},
 		{"1 2", Frequency, "not a decimal number"},
+		// A number followed by more than its unit: the rest is named.
+		{"0.2 dB pk-pk", Level, `unknown unit "dB pk-pk"`},
+		{"480 kHz flat", Frequency, `unknown unit "kHz flat"`},
+		{"1 %", Level, `unknown unit "%"`},
+		{"4x80 kHz", Frequency, `"4x80" is not a decimal number`},
 	} {
 		_, err := Parse(tc.in, tc.kind)
 		if err == nil {
