@@ -300,6 +300,21 @@ var known = []key{
 	{path: "search.requirements", example: `"cascade"`},
 }
 
+// requiredKeys are the keys every spec gives (rejection, or
+// rejection_mask in its place).
+var requiredKeys = []string{"input_rate", "output_rate", "passband", "ripple", "rejection"}
+
+// exampleKnown reports whether key (dotted) is a key of the format with an
+// example value.
+func exampleKnown(dotted string) bool {
+	for _, k := range known {
+		if k.path == dotted && k.example != "" {
+			return true
+		}
+	}
+	return false
+}
+
 // exampleOf is a value key (dotted) takes, as a spec writes it; a
 // frequency for a key the format does not know.
 func exampleOf(dotted string) string {
@@ -376,14 +391,58 @@ func (p *parser) checkKeys(md toml.MetaData) error {
 			continue
 		}
 		rule := "unknown key"
-		if s := suggest(dotted); s != "" {
+		if w := whereKey(k); w != "" {
+			rule += "; " + w
+		} else if s := suggest(dotted); s != "" {
 			rule += fmt.Sprintf(" (did you mean %q?)", s)
 		} else if len(k) > 1 {
 			rule += fmt.Sprintf(" in [%s]", strings.Join(k[:len(k)-1], "."))
 		}
-		return &Error{File: p.file, Line: p.lineOf(k), Key: dotted, Rule: rule}
+		return &Error{File: p.file, Line: p.lineOf(k), Key: shownKey(k), Rule: rule}
 	}
 	return nil
+}
+
+// shownKey is key k as a message names it: its parts joined by dots, a
+// part with other than letters, digits, _ and - in quotes ("protected "),
+// so that it does not read as the key it is mistaken for.
+func shownKey(k []string) string {
+	parts := make([]string, len(k))
+	for i, s := range k {
+		parts[i] = s
+		if s == "" || strings.IndexFunc(s, func(r rune) bool {
+			return !(r == '_' || r == '-' || r >= '0' && r <= '9' || r >= 'a' && r <= 'z' || r >= 'A' && r <= 'Z')
+		}) >= 0 {
+			parts[i] = strconv.Quote(s)
+		}
+	}
+	return strings.Join(parts, ".")
+}
+
+// whereKey says where a key of the format whose name is k's last part
+// belongs, when k puts it elsewhere (clock at the top or under [words]
+// for hardware.clock): "clock belongs under [hardware]"; "" when no
+// known key has that name or more than one has.
+func whereKey(k []string) string {
+	name := k[len(k)-1]
+	found := ""
+	for _, kk := range known {
+		parts := strings.Split(kk.path, ".")
+		if parts[len(parts)-1] != name || kk.table {
+			continue
+		}
+		if found != "" {
+			return ""
+		}
+		found = kk.path
+	}
+	if found == "" || found == strings.Join(k, ".") {
+		return ""
+	}
+	if i := strings.LastIndexByte(found, '.'); i >= 0 {
+		return fmt.Sprintf("%s belongs under [%s] (%s)", name, found[:i], found)
+	}
+	return fmt.Sprintf("%s belongs at the top of the file, before the first [table]", name)
 }
 
 // suggest returns the known key that differs from k only in case or in the
@@ -962,7 +1021,13 @@ func (p *parser) build() (*Spec, error) {
 	if v, ok := p.lookup("words.coefficients"); ok {
 		if str, isStr := v.(string); isStr {
 			if str != "auto" {
-				return nil, p.errAt("words.coefficients", v, `want a width in [%d, %d] bits or "auto"`, MinWordBits, MaxCoefBits)
+				rule := fmt.Sprintf(`want a width in [%d, %d] bits or "auto"`, MinWordBits, MaxCoefBits)
+				if n, _ := units.SplitNumber(str); n != "" {
+					rule += ": write the width without quotes, coefficients = " + n
+				} else if strings.EqualFold(str, "auto") {
+					rule += `, in lower case`
+				}
+				return nil, p.errAt("words.coefficients", v, "%s", rule)
 			}
 			out.CoefAuto = true
 		}

@@ -126,6 +126,11 @@ func TestParseErrors(t *testing.T) {
 		{"unknown table", "[extra]\nx = 1", []string{":6:", "extra", "unknown key"}},
 		{"unknown dotted key", "words.inptu = 3", []string{":6:", "words.inptu", "unknown key"}},
 		{"unknown quoted key", "\"odd key\" = 3", []string{":6:", "odd key", "unknown key"}},
+		{"key with a space", "\"protected \" = \"600 kHz\"", []string{":6:", `"protected ": unknown key (did you mean "protected"?)`}},
+		{"key under the wrong table", "[words]\nclock = \"245.76 MHz\"", []string{":7:", "words.clock: unknown key; clock belongs under [hardware] (hardware.clock)"}},
+		{"key outside its table", "max_stages = 3", []string{":6:", "max_stages: unknown key; max_stages belongs under [search] (search.max_stages)"}},
+		{"top key under a table", "[search]\nsignal = \"complex\"", []string{":7:", "search.signal: unknown key; signal belongs at the top of the file"}},
+		{"quoted width", "[words]\ncoefficients = \"16\"", []string{"words.coefficients", "write the width without quotes, coefficients = 16"}},
 		{"unknown key in inline table", "cost = {symmetry = true, fold = 2}", []string{":6:", "cost.fold", "unknown key"}},
 		{"not toml", "input_rate = = 3", []string{"input_rate", "one = between a key and its value"}},
 		{"not toml, no rewrite", "passband = \"a\\q\"", []string{"not valid TOML", "invalid escape"}},
@@ -496,6 +501,13 @@ func TestTOMLSlips(t *testing.T) {
 		// The example suits the key, written as its line writes it.
 		{"[words]\ncoefficients = ", `spec.toml:4: words.coefficients: nothing after =: give the value, e.g. coefficients = 18`},
 		{"[search]\nrequirements = cascade", `spec.toml:4: search.requirements = cascade: words go in quotes: requirements = "cascade"`},
+		// A bare word is told what the key takes.
+		{"[cost]\nsymmetry = True", `spec.toml:4: cost.symmetry = True: true and false are written in lower case, without quotes: symmetry = true`},
+		{"[words]\nunity_gain = yes", `spec.toml:4: words.unity_gain = yes: a switch is true or false, in lower case, without quotes`},
+		{`passband = null`, `spec.toml:3: passband = null: a value cannot be left empty: give one, such as passband = "600 kHz"`},
+		{`signal = Complex`, `spec.toml:3: signal = Complex: words go in quotes, in lower case: signal = "complex"`},
+		{`signal = iq`, `spec.toml:3: signal = iq: want "real" or "complex", in quotes`},
+		{"[words]\ninput = sixteen", `spec.toml:4: words.input = sixteen: want a value such as input = 16`},
 		// Keys in quotes (TOML allows them) are named without the quotes.
 		{"[search]\n\"kinds\" = [\"cic\", \"fir\"\nmax_stages = 3", `spec.toml:4: search.kinds: the list is not closed: end it with ]`},
 		{`"passband" = 300 kHz`, `spec.toml:3: passband = 300 kHz: a value with a unit goes in quotes: passband = "300 kHz"`},

@@ -3,6 +3,7 @@ package specfile
 import (
 	"bytes"
 	"regexp"
+	"slices"
 	"strings"
 
 	"github.com/stepdown-dsp/stepdown/chain/units"
@@ -84,7 +85,7 @@ func tomlError(file string, data []byte, line int, msg string) *Error {
 		e.Key, e.Rule = key, "nothing after =: give the value, e.g. "+orKey(bare)+" = "+exampleOf(key)
 	case reBareWord.MatchString(msg):
 		w := units.Clip(reBareWord.FindStringSubmatch(msg)[1], units.MaxEcho)
-		e.Key, e.Value, e.Rule = key, w, "words go in quotes: "+orKey(bare)+` = "`+w+`"`
+		e.Key, e.Value, e.Rule = key, w, bareWordRule(bare, key, w)
 		start, _, closer := openAt(data, line+1)
 		if i := strings.Index(text, w); (start > 0 && closer == ']') || (i > 0 && strings.Contains(text[:i], "[")) {
 			e.Rule = `words go in quotes, in a list too: ["` + w + `", ...]`
@@ -227,6 +228,41 @@ func inTable(data []byte, line int, key string) string {
 		}
 	}
 	return key
+}
+
+// bareWordRule is the rule for the word w written bare after the key
+// (dotted: key; as its line writes it: bare): true and false in lower
+// case, no empty value in TOML, and otherwise the value the key takes:
+// text in quotes (in the case the key accepts, for signal), or a quantity
+// or number like the key's example.
+func bareWordRule(bare, key, w string) string {
+	lw := strings.ToLower(w)
+	switch lw {
+	case "true", "false":
+		return "true and false are written in lower case, without quotes: " + orKey(bare) + " = " + lw
+	case "yes", "no", "on", "off":
+		return "a switch is true or false, in lower case, without quotes: " + orKey(bare) + " = true"
+	case "null", "none", "nil", "empty":
+		r := "a value cannot be left empty: give one, such as " + orKey(bare) + " = " + exampleOf(key)
+		if !slices.Contains(requiredKeys, key) {
+			r += ", or leave the key out for its default"
+		}
+		return r
+	}
+	if key == "signal" {
+		if lw == "real" || lw == "complex" {
+			r := "words go in quotes"
+			if w != lw {
+				r += ", in lower case"
+			}
+			return r + ": " + orKey(bare) + ` = "` + lw + `"`
+		}
+		return `want "real" or "complex", in quotes`
+	}
+	if ex := exampleOf(key); key != "" && exampleKnown(key) && (!strings.HasPrefix(ex, `"`) || strings.ContainsAny(ex, "0123456789")) {
+		return "want a value such as " + orKey(bare) + " = " + ex
+	}
+	return "words go in quotes: " + orKey(bare) + ` = "` + w + `"`
 }
 
 // plainKey is a key as keyPat matched it, without quotes and without

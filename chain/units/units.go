@@ -327,6 +327,11 @@ func ParseRange(s string, k Kind) (lo, hi float64, err error) {
 }
 
 // splitUnit splits trimmed text into its number and its trailing unit.
+// SplitNumber splits s, trimmed, into the decimal number it starts with
+// and the rest ("18 bits": "18" and "bits"); "" and s when it starts with
+// none.
+func SplitNumber(s string) (num, rest string) { return leadingNumber(strings.TrimSpace(s)) }
+
 // leadingNumber splits t into the decimal number it starts with and the
 // rest, trimmed; "" and t when it starts with none. One pass: an exponent
 // counts only with its digits.

@@ -356,3 +356,12 @@ func reorderArgs(app *cli.App, args []string) ([]string, error) {
 	}
 	return out, nil
 }
+
+// untouched says what a run that wrote nothing left of its output folder:
+// the folder as it was, or, when there was none, none.
+func untouched(o *report.Folder) string {
+	if o.Existed() {
+		return clip(o.Dir()) + " left as it was"
+	}
+	return clip(o.Dir()) + " not created"
+}

@@ -173,7 +173,10 @@ func TestBadInputs(t *testing.T) {
 		// A CIC alone cannot reach 70 dB with a 1 MHz passband at 3.072 MHz:
 		// the front is empty, and the error carries the optimiser's reason.
 		{name: "empty front", spec: goodSpec + "kinds = [\"cic\"]\n", args: []string{"plan", "spec.toml", "--out", "out"}, code: 1,
-			frags: []string{"stepdown: no chain met the spec; the dropped counts say why", "cic rejection below target"}},
+			frags: []string{"stepdown: no chain met the spec; the dropped counts say why", "cic rejection below target", "; out left as it was"}},
+		// A folder that was not there is not said to be left as it was.
+		{name: "empty front, new folder", spec: goodSpec + "kinds = [\"cic\"]\n", args: []string{"plan", "spec.toml", "--out", "fresh"}, code: 1,
+			frags: []string{"stepdown: no chain met the spec", "; fresh not created"}},
 		{name: "missing spec", args: []string{"plan", "absent.toml", "--out", "out"}, code: 2, frags: []string{"absent.toml", "does not exist"}},
 		{name: "spec is a folder", args: []string{"plan", "folder", "--out", "out"}, code: 2, frags: []string{"folder", "is a folder"}},
 		{name: "spec unreadable", args: []string{"plan", "big.toml/x.toml", "--out", "out"}, code: 2, frags: []string{"x.toml", "cannot be read"}},

@@ -184,7 +184,7 @@ func runPlan(c *cli.Context) error {
 	res, err := optimize.Plan(ctx, j.spec.Chain, set)
 	prog.finish()
 	if sigCtx.Err() != nil {
-		return fmt.Errorf("interrupted; %s left as it was", clip(j.out.Dir()))
+		return fmt.Errorf("interrupted; %s", untouched(j.out))
 	}
 	if err != nil {
 		return planError(c, err)
@@ -194,10 +194,10 @@ func runPlan(c *cli.Context) error {
 		if res.Designed > 0 {
 			what = fmt.Sprintf("after designing %s, before any could be measured against the spec", units.Count(res.Designed, "chain", "chains"))
 		}
-		return fmt.Errorf("--timeout %v: stopped %s; %s left as it was (allow more time)", c.Duration("timeout"), what, clip(j.out.Dir()))
+		return fmt.Errorf("--timeout %v: stopped %s; %s (allow more time)", c.Duration("timeout"), what, untouched(j.out))
 	}
 	if len(res.Front) == 0 {
-		return emptyFront(res, j.spec.Chain, set.Kinds, clip(j.out.Dir()))
+		return emptyFront(res, j.spec.Chain, set.Kinds, untouched(j.out))
 	}
 	if !res.Partial {
 		// A ratio with a large prime factor: nearby ratios and the
@@ -209,7 +209,7 @@ func runPlan(c *cli.Context) error {
 			j.hints = h
 		}
 		if sigCtx.Err() != nil {
-			return fmt.Errorf("interrupted; %s left as it was", clip(j.out.Dir()))
+			return fmt.Errorf("interrupted; %s", untouched(j.out))
 		}
 	}
 	return j.finish(ctx, "plan", res)
@@ -272,10 +272,11 @@ func searchTooLarge(msg string) bool {
 
 // emptyFront is the error of a search that left the front empty: the
 // optimiser's reason (which names the design budget when that was the cause)
-// and the counts of dropped candidates. kinds are the search's stage kinds
+// and the counts of dropped candidates; folder says what became of the
+// output folder (untouched). kinds are the search's stage kinds
 // (nil: all): the CIC register limit is named only where a CIC can be in
 // a chain.
-func emptyFront(res *optimize.Result, spec chain.Spec, kinds []chain.Kind, dir string) error {
+func emptyFront(res *optimize.Result, spec chain.Spec, kinds []chain.Kind, folder string) error {
 	msg := "no chain meets the spec"
 	reason := res.Reason
 	if n := res.Dropped[optimize.ReasonWordLengths]; n > 0 {
@@ -311,7 +312,7 @@ func emptyFront(res *optimize.Result, spec chain.Spec, kinds []chain.Kind, dir s
 	if c := res.Closest; c != nil && res.NeededCoefBits == 0 && res.Dropped[optimize.ReasonWordLengths] == 0 {
 		msg += "; " + optimize.ClosestText(c, spec)
 	}
-	return fmt.Errorf("%s (dropped: %s); %s left as it was", msg, optimize.DroppedText(res.Dropped, ", "), dir)
+	return fmt.Errorf("%s (dropped: %s); %s", msg, optimize.DroppedText(res.Dropped, ", "), folder)
 }
 
 func runCheck(c *cli.Context) error {
@@ -423,7 +424,7 @@ func (j *job) designNamed(plan []chain.StagePlan, set optimize.Settings) (optimi
 	}
 	cand, why, err := optimize.Check(j.c.Context, j.spec.Chain, plan, set)
 	if j.c.Context.Err() != nil {
-		return cand, why, fmt.Errorf("interrupted; %s left as it was", clip(j.out.Dir()))
+		return cand, why, fmt.Errorf("interrupted; %s", untouched(j.out))
 	}
 	if err != nil {
 		var pe *chain.PlanError
@@ -483,7 +484,7 @@ func (j *job) planFront(c *cli.Context, set optimize.Settings) (*report.Comparis
 	res, err := optimize.Plan(c.Context, j.spec.Chain, set)
 	prog.finish()
 	if c.Context.Err() != nil {
-		return nil, fmt.Errorf("interrupted; %s left as it was", clip(j.out.Dir()))
+		return nil, fmt.Errorf("interrupted; %s", untouched(j.out))
 	}
 	if err != nil {
 		// The chain is still checked; only the comparison is left out.
@@ -495,7 +496,7 @@ func (j *job) planFront(c *cli.Context, set optimize.Settings) (*report.Comparis
 		return nil, err
 	}
 	if c.Context.Err() != nil {
-		return nil, fmt.Errorf("interrupted; %s left as it was", clip(j.out.Dir()))
+		return nil, fmt.Errorf("interrupted; %s", untouched(j.out))
 	}
 	return report.NewComparison("a plan of the same spec", rep), nil
 }
@@ -510,7 +511,7 @@ func (j *job) finish(ctx context.Context, command string, res *optimize.Result) 
 		return err
 	}
 	if j.c.Context.Err() != nil {
-		return fmt.Errorf("interrupted; %s left as it was", clip(j.out.Dir()))
+		return fmt.Errorf("interrupted; %s", untouched(j.out))
 	}
 	// --timeout may also end the word lengths (and so the bit-true runs
 	// and the hand-off they feed): the report is partial then too. The
@@ -529,7 +530,7 @@ func (j *job) finish(ctx context.Context, command string, res *optimize.Result) 
 	}
 	files, err := report.Files(j.c.Context, rep, res, j.spec)
 	if j.c.Context.Err() != nil {
-		return fmt.Errorf("interrupted; %s left as it was", clip(j.out.Dir()))
+		return fmt.Errorf("interrupted; %s", untouched(j.out))
 	}
 	if err != nil {
 		return err
@@ -540,7 +541,7 @@ func (j *job) finish(ctx context.Context, command string, res *optimize.Result) 
 		}
 	}
 	if j.c.Context.Err() != nil {
-		return fmt.Errorf("interrupted; %s left as it was", clip(j.out.Dir()))
+		return fmt.Errorf("interrupted; %s", untouched(j.out))
 	}
 	if err := j.out.Write(files); err != nil {
 		return err

@@ -205,7 +205,7 @@ func runSimulate(c *cli.Context) error {
 		source = "recommended"
 		res, err := optimize.Plan(c.Context, cs, set)
 		if c.Context.Err() != nil {
-			return fmt.Errorf("interrupted; %s left as it was", clip(j.out.Dir()))
+			return fmt.Errorf("interrupted; %s", untouched(j.out))
 		}
 		if err != nil {
 			return planError(c, err)
@@ -221,14 +221,14 @@ func runSimulate(c *cli.Context) error {
 
 	res, err := simulate.Run(c.Context, cs, cand.Chain, j.spec.FixedSettings(), simulate.Input{RateHz: sig.RateHz, Bits: sig.Bits, Paths: sig.Samples})
 	if c.Context.Err() != nil {
-		return fmt.Errorf("interrupted; %s left as it was", clip(j.out.Dir()))
+		return fmt.Errorf("interrupted; %s", untouched(j.out))
 	}
 	if err != nil {
 		return fmt.Errorf("the chain %s cannot be simulated: %s", j.spec.Chain.Direction().Notation(cand.Plan), libMessage(err))
 	}
 	inSp, outSp, err := res.SpectraContext(c.Context)
 	if c.Context.Err() != nil {
-		return fmt.Errorf("interrupted; %s left as it was", clip(j.out.Dir()))
+		return fmt.Errorf("interrupted; %s", untouched(j.out))
 	}
 	if err != nil {
 		return usagef("--input %s: %s", clip(filepath.Base(input)), libMessage(err))
@@ -236,13 +236,13 @@ func runSimulate(c *cli.Context) error {
 	// Each later phase takes seconds on long inputs: a stop is looked for
 	// between them.
 	if c.Context.Err() != nil {
-		return fmt.Errorf("interrupted; %s left as it was", clip(j.out.Dir()))
+		return fmt.Errorf("interrupted; %s", untouched(j.out))
 	}
 	bands := simulate.Bands{PassbandHz: cs.Passband, ProtectedHz: cs.Protected, OutputRateHz: res.OutputRateHz}
 	lv := res.Measure(inSp, outSp, bands)
 	notation := j.spec.Chain.Direction().Notation(cand.Plan)
 	if c.Context.Err() != nil {
-		return fmt.Errorf("interrupted; %s left as it was", clip(j.out.Dir()))
+		return fmt.Errorf("interrupted; %s", untouched(j.out))
 	}
 
 	files, rep, err := simFiles(res, sig, format, inSp, outSp, bands, lv, notation, filepath.Base(input))
@@ -250,7 +250,7 @@ func runSimulate(c *cli.Context) error {
 		return err
 	}
 	if c.Context.Err() != nil {
-		return fmt.Errorf("interrupted; %s left as it was", clip(j.out.Dir()))
+		return fmt.Errorf("interrupted; %s", untouched(j.out))
 	}
 	rep.SpecSHA256, rep.ChainSource = j.spec.SHA256, source
 	rep.Notes = append(notes, rep.Notes...)
@@ -266,12 +266,12 @@ func runSimulate(c *cli.Context) error {
 	files = append([]report.File{{Name: "simulate.json", Data: js}}, files...)
 	if err := j.out.WriteContext(c.Context, files); err != nil {
 		if c.Context.Err() != nil {
-			return fmt.Errorf("interrupted; %s left as it was", clip(j.out.Dir()))
+			return fmt.Errorf("interrupted; %s", untouched(j.out))
 		}
 		return err
 	}
 	if c.Context.Err() != nil {
-		return fmt.Errorf("interrupted; %s left as it was", clip(j.out.Dir()))
+		return fmt.Errorf("interrupted; %s", untouched(j.out))
 	}
 	if err := j.out.Commit(); err != nil {
 		return err

@@ -140,7 +140,7 @@ func runSweep(c *cli.Context) error {
 	rs := sweep.Run(ctx, st)
 	prog.finish()
 	if sigCtx.Err() != nil {
-		return fmt.Errorf("interrupted; %s left as it was", clip(out.Dir()))
+		return fmt.Errorf("interrupted; %s", untouched(out))
 	}
 	nChain, nInvalid := 0, 0
 	for _, r := range rs {
@@ -169,7 +169,7 @@ func runSweep(c *cli.Context) error {
 			// A search too large to score is the spec's fault, as in plan.
 			return usagef("--vary %s=%s: %s: %s", v.Key.Name, clip(v.Text), v.Key.Format(r.Value), strings.TrimPrefix(specfile.InFileTerms(r.Detail), "search: "))
 		}
-		return fmt.Errorf("--vary %s=%s: no value gives a chain (%s: %s); %s left as it was", v.Key.Name, v.Text, v.Key.Format(first.Value), specfile.InFileTerms(first.Detail), clip(out.Dir()))
+		return fmt.Errorf("--vary %s=%s: no value gives a chain (%s: %s); %s", v.Key.Name, v.Text, v.Key.Format(first.Value), specfile.InFileTerms(first.Detail), untouched(out))
 	}
 
 	files, doc, err := sweepFiles(source, base, v, rs, c.Bool("html"))
@@ -295,7 +295,7 @@ func finishGrid(c *cli.Context, out *report.Folder, source string, base *specfil
 		if r, ok := tooLargeResult(rs); ok {
 			return usagef("%s: %s: %s", both, cellName(g, r), strings.TrimPrefix(specfile.InFileTerms(r.Detail), "search: "))
 		}
-		return fmt.Errorf("%s: no cell gives a chain (%s: %s); %s left as it was", both, cellName(g, first), specfile.InFileTerms(first.Detail), clip(out.Dir()))
+		return fmt.Errorf("%s: no cell gives a chain (%s: %s); %s", both, cellName(g, first), specfile.InFileTerms(first.Detail), untouched(out))
 	}
 	files, doc, err := sweep.GridFiles(source, base, g, rs)
 	if err == nil && c.Bool("html") {
@@ -317,7 +317,7 @@ func finishGrid(c *cli.Context, out *report.Folder, source string, base *specfil
 // where the table goes: nowhere with --quiet, stderr with --json.
 func commitSweep(c *cli.Context, out *report.Folder, files []report.File) (io.Writer, error) {
 	if c.Context.Err() != nil {
-		return nil, fmt.Errorf("interrupted; %s left as it was", clip(out.Dir()))
+		return nil, fmt.Errorf("interrupted; %s", untouched(out))
 	}
 	if err := out.Write(files); err != nil {
 		return nil, err

@@ -67,6 +67,11 @@ func (e *FolderError) Unwrap() error { return e.Err }
 // Dir is the folder as the caller named it.
 func (o *Folder) Dir() string { return o.dir }
 
+// Existed reports whether the folder was there when the run opened it (a
+// run that writes nothing then leaves it as it was; otherwise it leaves
+// none).
+func (o *Folder) Existed() bool { return o.exists }
+
 // misuse and failure make FolderErrors.
 func misuse(format string, args ...any) error {
 	return &FolderError{Misuse: true, Err: fmt.Errorf(format, args...)}
