@@ -625,7 +625,11 @@ func showFull(v any) string {
 	case string:
 		return strconv.Quote(x)
 	case float64:
-		return units.FormatNumber(x, -1) // 1e308 as a spec writes it
+		t := units.FormatNumber(x, -1) // 1e308 as a spec writes it
+		if !strings.ContainsAny(t, ".eEIN") {
+			t += ".0" // a TOML float, 3.0, is not shown as the integer 3
+		}
+		return t
 	case int64:
 		return strconv.FormatInt(x, 10)
 	case bool:
@@ -881,7 +885,7 @@ func (p *parser) intList(dotted string, lo, hi int, what string) ([]int, bool, e
 	for _, e := range arr {
 		x, ok := e.(int64)
 		if !ok {
-			return nil, false, p.errAt(dotted, v, "element %s: want a whole number (%s), not %s", show(e), what, typeName(e))
+			return nil, false, p.errAt(dotted, v, "the item %s: want a whole number (%s), not %s", show(e), what, typeName(e))
 		}
 		if x < int64(lo) || x > int64(hi) {
 			return nil, false, p.errAt(dotted, v, "%s %d must lie in [%d, %d]", what, x, lo, hi)
@@ -1338,6 +1342,25 @@ func (p *parser) specError(err error) error {
 		}
 		return field
 	})
+	// A rate written as a bare number is in Hz: 122.88 meant as MHz
+	// breaks a band rule of another key, which is then told why.
+	for _, rk := range []string{"input_rate", "output_rate"} {
+		if rk == k {
+			continue
+		}
+		var v float64
+		switch r := p.root[rk].(type) {
+		case int64:
+			v = float64(r)
+		case float64:
+			v = r
+		default:
+			continue
+		}
+		if v > 0 && v < 1e4 && strings.Contains(rule, rk) {
+			rule += fmt.Sprintf(" (%s = %s is %s Hz: a number without a unit is in Hz; write \"%s MHz\" for megahertz)", rk, show(p.root[rk]), show(p.root[rk]), show(p.root[rk]))
+		}
+	}
 	raw, present := p.lookup(k)
 	e := &Error{File: p.file, Key: k, Rule: rule}
 	if present {
