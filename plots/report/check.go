@@ -205,6 +205,12 @@ func (r *Report) Compare(cmp *Comparison) {
 	}
 	r.ComparedWith = cmp
 	r.BeatenBy = append([]Beater{}, BeatenBy(c, plan)...)
+	r.Beats = nil
+	for i, f := range plan {
+		if len(BeatenBy(f, []Chain{c})) > 0 {
+			r.Beats = append(r.Beats, i+1)
+		}
+	}
 }
 
 // maxComparisonBytes bounds the report.json ReadComparison reads: far

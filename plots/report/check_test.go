@@ -135,3 +135,26 @@ func TestBeatenByAdders(t *testing.T) {
 		t.Errorf("Text() = %q, want %q", got[0].Text(), want)
 	}
 }
+
+// TestCompareBeats: a checked chain that meets and beats front chains on
+// every axis names them (Report.Beats), and the summary says that the plan
+// did not find it; one that none beats is said to belong on the front.
+func TestCompareBeats(t *testing.T) {
+	checked := Chain{Notation: "cic6m2r40 > fir2", MultipliesPerOutput: 8, MemoryBits: 962, LatencyS: 5.37e-6, MeetsTargets: true}
+	front := []FrontChain{
+		{Notation: "cic5m2r20 > fir4L", MultipliesPerOutput: 19, MemoryBits: 1407, LatencyS: 4.67e-6, MeetsTargets: true},
+		{Notation: "cic4m2r20 > fir4", MultipliesPerOutput: 20, MemoryBits: 1357, LatencyS: 5.9e-6, MeetsTargets: true},
+	}
+	r := &Report{Front: []Chain{checked}}
+	r.Compare(&Comparison{Source: "the plan in report.json", Front: front})
+	if len(r.Beats) != 1 || r.Beats[0] != 2 {
+		t.Fatalf("Beats = %v, want [2]: the second is worse on every axis, the first has less latency", r.Beats)
+	}
+	var b strings.Builder
+	WriteComparison(&b, r)
+	for _, want := range []string{"beats it on every axis: it belongs on that front, and that plan did not find it", "It beats #2 cic4m2r20 > fir4 there on every axis."} {
+		if !strings.Contains(b.String(), want) {
+			t.Errorf("summary %q lacks %q", b.String(), want)
+		}
+	}
+}

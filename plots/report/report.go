@@ -48,6 +48,10 @@ type Report struct {
 	// Absent from a plan's report.
 	ComparedWith *Comparison `json:"compared_with,omitempty"`
 	BeatenBy     []Beater    `json:"beaten_by,omitzero"`
+	// Beats lists the numbers (from 1) of the compared front's chains
+	// that the named chain, meeting the spec, beats on every axis: chains
+	// that plan did not find it beside. Absent when it beats none.
+	Beats []int `json:"beats,omitempty"`
 	// Hints, from plan only, name cheaper ways to the channel when the
 	// ratio has a prime factor above 7 (optimize.Hints); absent when
 	// there are none.

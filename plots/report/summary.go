@@ -50,7 +50,16 @@ func WriteComparison(w io.Writer, rep *Report) {
 		fmt.Fprintf(w, "  The front of %s has %s that %s the spec, the first #%d %s (%s mult/%s, %d memory bits, %s).\n",
 			cw.Source, units.Count(meet, "chain", "chains"), verb, first+1, f.Notation, TrimFloat(f.MultipliesPerOutput, 1), rep.Spec.Side(), f.MemoryBits, Seconds(f.LatencyS))
 	default:
-		fmt.Fprintf(w, "  No chain on the front of %s (%s) beats it on every axis.\n", cw.Source, units.Count(len(cw.Front), "chain", "chains"))
+		// It meets, and nothing there beats it: it belongs on that
+		// front, which the plan's search did not find it for.
+		fmt.Fprintf(w, "  No chain on the front of %s (%s) beats it on every axis: it belongs on that front, and that plan did not find it.\n", cw.Source, units.Count(len(cw.Front), "chain", "chains"))
+		if len(rep.Beats) > 0 {
+			var names []string
+			for _, k := range rep.Beats {
+				names = append(names, fmt.Sprintf("#%d %s", k, cw.Front[k-1].Notation))
+			}
+			fmt.Fprintf(w, "  It beats %s there on every axis.\n", strings.Join(names, " and "))
+		}
 	}
 }
 
