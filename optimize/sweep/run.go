@@ -5,6 +5,7 @@ import (
 	"errors"
 	"math"
 	"runtime"
+	"strings"
 	"sync"
 
 	"github.com/stepdown-dsp/stepdown/chain"
@@ -181,7 +182,11 @@ func runOne(ctx context.Context, st Study, plan func(context.Context, chain.Spec
 		return r
 	case len(res.Front) == 0:
 		r.Status, r.Detail = Infeasible, "no chain meets the spec"
-		if c := res.Closest; c != nil {
+		if res.NeededCoefBits > 0 && res.Reason != "" {
+			// The coefficient width is what failed: the search's reason
+			// names the width that would do, as plan says it.
+			r.Detail = strings.ToLower(res.Reason[:1]) + strings.TrimSuffix(res.Reason[1:], ".")
+		} else if c := res.Closest; c != nil {
 			r.Detail += "; " + optimize.ClosestText(c, spec.Chain)
 		}
 		r.Detail += " (" + optimize.DroppedText(res.Dropped, ", ") + ")"

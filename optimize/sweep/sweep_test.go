@@ -365,3 +365,25 @@ func TestInfeasibleNamesClosest(t *testing.T) {
 		t.Errorf("145 dB: %s: %s", rs[1].Status, rs[1].Detail)
 	}
 }
+
+// An infeasible row whose chains all missed with their taps rounded names
+// the width that would do (optimize.Result.NeededCoefBits and Reason), as
+// plan's empty front does.
+func TestInfeasibleNamesWidth(t *testing.T) {
+	v, err := ParseVary("rejection=140:145:5")
+	if err != nil {
+		t.Fatal(err)
+	}
+	plan := func(ctx context.Context, s chain.Spec, set optimize.Settings) (*optimize.Result, error) {
+		res, err := fakePlan(ctx, s, set)
+		if err == nil && len(res.Front) == 0 {
+			res.NeededCoefBits = 20
+			res.Reason = "No chain meets the spec with 18-bit coefficients: the cheapest of them, fir64, meets from 20 bits."
+		}
+		return res, err
+	}
+	rs := Run(context.Background(), Study{Name: "ex", Spec: []byte(specfile.ExampleText), Vary: v, Workers: 1, Plan: plan})
+	if rs[1].Status != Infeasible || !strings.HasPrefix(rs[1].Detail, "no chain meets the spec with 18-bit coefficients: the cheapest of them, fir64, meets from 20 bits (") {
+		t.Errorf("145 dB: %s: %s", rs[1].Status, rs[1].Detail)
+	}
+}
