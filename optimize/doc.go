@@ -270,7 +270,9 @@
 // over the floating-point one's (linear deviations, which add at worst),
 // and the rejection target is raised so that the floating-point deviation
 // plus that excess meets the target, plus 1 dB (a passband ripple pushed
-// over by rounding is tightened likewise); at most five times. A
+// over by rounding is tightened likewise); at most five times, and then
+// once each at a few fixed margins (roundingLadder), since what rounding
+// costs a design is all but chance at a width near the target's own. A
 // re-designed chain is priced and measured again (cost.Evaluate), and the
 // front is taken again with its new figures. The chain is dropped, counted
 // under ReasonMissQuantised, when the tries run out or at once when the

@@ -49,6 +49,15 @@ const (
 	roundingExtraDB      = 1
 )
 
+// roundingLadder are the fixed margins survive tries once the measured
+// rule has run out: the rejection raised by raiseDB over the target and
+// the ripple budget cut by the fraction cut of it. On an invented 40 to
+// 5 MS/s receiver with 10-bit taps and a 0.05 dB ripple, where rounding
+// alone moves the ripple by 0.026 to 0.077 dB from one design to the
+// next, the rule found a chain at 6 of 14 targets from 60 to 74 dB and
+// the ladder at 12 (TestRoundingLadder).
+var roundingLadder = []struct{ raiseDB, cut float64 }{{3, 0.5}, {6, 0.75}, {4.5, 0.25}, {9, 0.6}}
+
 // Plan searches every split of the spec's ratio.
 func Plan(ctx context.Context, spec chain.Spec, s Settings) (*Result, error) {
 	ns, err := spec.Normalize()
@@ -576,6 +585,7 @@ func (r realDesigner) surviveWith(c Candidate, spec chain.Spec, wl func() (*fixe
 	}
 	cur, f := c, c.Figures
 	excess, rippleExcess := 0.0, 0.0
+	ladder := 0
 	for try := 0; ; try++ {
 		qm := qa.AliasRejectionDB - spec.RejectionDB
 		over := qa.PassbandRippleDB - spec.RippleDB
@@ -594,7 +604,7 @@ func (r realDesigner) surviveWith(c Candidate, spec chain.Spec, wl func() (*fixe
 			cur.survived = true
 			return cur, ""
 		}
-		if try == maxRoundingRedesigns || r.ctx.Err() != nil || math.IsNaN(qm) || math.IsNaN(over) {
+		if r.ctx.Err() != nil || math.IsNaN(qm) || math.IsNaN(over) {
 			break
 		}
 		// Rounded taps 6 dB or more under the target leave an excess of
@@ -628,9 +638,17 @@ func (r realDesigner) surviveWith(c Candidate, spec chain.Spec, wl func() (*fixe
 		if over > 0 {
 			rippleExcess = math.Max(rippleExcess, qa.PassbandRippleDB-f.Analysis.PassbandRippleDB)
 			cut = math.Max(cut+over, rippleExcess) + spec.RippleDB/100
-			if cut >= spec.RippleDB {
+		}
+		if try >= maxRoundingRedesigns || cut >= spec.RippleDB {
+			// The measured rule has run out. How much rounding costs a
+			// design is all but chance at a width near the target's own
+			// (a longer design rounds no better), so a few fixed margins
+			// are tried as well, each designed once.
+			if ladder == len(roundingLadder) {
 				break
 			}
+			raise, cut = roundingLadder[ladder].raiseDB, roundingLadder[ladder].cut*spec.RippleDB
+			ladder++
 		}
 		tight := spec.RejectionRaised(raise)
 		tight.RippleDB -= cut

@@ -344,3 +344,34 @@ func TestRoundingRedesignsReach(t *testing.T) {
 		}
 	}
 }
+
+// TestRoundingLadder: where rounding moves the ripple by about the whole
+// budget from one design to the next (an invented 40 to 5 MS/s receiver,
+// 1.8 MHz passband, 0.05 dB ripple, 10-bit taps), the measured re-design
+// rule runs out and found no chain at 66, 69, 71 or 73 dB, while 67, 70
+// and 72 dB found one (which meets the looser targets too). The fixed
+// margins tried after it find one; every front chain is checked by brute
+// force on its rounded taps. 69, 71 and 73 dB run in CI's long step.
+func TestRoundingLadder(t *testing.T) {
+	targets := []float64{66}
+	if os.Getenv("STEPDOWN_LONG") != "" {
+		targets = append(targets, 69, 71, 73)
+	}
+	for _, rej := range targets {
+		spec := chain.Spec{InputRate: 40e6, OutputRate: 5e6, Passband: 1.8e6, RippleDB: 0.05, RejectionDB: rej, InputBits: 14, OutputBits: 20, CoefBits: 10}
+		res, err := Plan(context.Background(), spec, Settings{})
+		if err != nil {
+			t.Fatal(err)
+		}
+		if len(res.Front) == 0 {
+			t.Errorf("%g dB: empty front: %s", rej, res.Reason)
+			continue
+		}
+		for _, c := range res.Front {
+			got, rip := roundedFigures(t, spec, c.Chain)
+			if got < rej-0.02 || rip > spec.RippleDB+2e-4 {
+				t.Errorf("%g dB: %s rounded to 10 bits: rejection %.3f dB, ripple %.5f dB", rej, chain.Notation(c.Plan), got, rip)
+			}
+		}
+	}
+}
