@@ -250,7 +250,7 @@ func TestRoundingDropsCounted(t *testing.T) {
 // than that prediction: cic6m2r40 > fir2 meets 79 dB with 12-bit taps
 // (82.1 dB rounded), cic6m2r50 > fir2 meets 72 dB at 11 bits and
 // cic5m2r8 > fir2 meets 62 dB at 9 bits, while a prune on the prediction
-// left fronts 2 to 2.4 times as costly (19, 24 and 34 multiplies per
+// left fronts 2 to 2.4 times as costly (19, 24 and 32 multiplies per
 // output). The plan's cheapest chain must cost no more than the chain
 // named, and every front chain is checked by brute force on its rounded
 // taps (roundedFigures). The last two run in CI's long step.

@@ -277,7 +277,7 @@ type key struct {
 }
 
 // known lists every key of the format, in the order of the README, with
-// the README's example values.
+// an example value of each (the README's, or one like it).
 var known = []key{
 	{path: "input_rate", example: `"245.76 MS/s"`}, {path: "output_rate", example: `"1.92 MS/s"`},
 	{path: "ratio_tolerance_ppm", example: "50"}, {path: "passband", example: `"600 kHz"`},
@@ -299,10 +299,6 @@ var known = []key{
 	{path: "sigma_delta.obg", example: "1.5"},
 	{path: "search.requirements", example: `"cascade"`},
 }
-
-// requiredKeys are the keys every spec gives (rejection, or
-// rejection_mask in its place).
-var requiredKeys = []string{"input_rate", "output_rate", "passband", "ripple", "rejection"}
 
 // exampleKnown reports whether key (dotted) is a key of the format with an
 // example value.
@@ -385,6 +381,15 @@ func (p *parser) checkKeys(md toml.MetaData) error {
 	}
 	for _, k := range md.Keys() {
 		dotted := strings.Join(k, ".")
+		if slices.ContainsFunc(k, func(part string) bool { return strings.Contains(part, ".") }) {
+			// "words.coefficients" in quotes is one key with a dot in its
+			// name, not the key under [words]: it would be ignored.
+			rule := "a dot inside quotes is part of the key's name, so this key is unknown"
+			if _, ok := isKnown[dotted]; ok {
+				rule += fmt.Sprintf("; write %s without quotes", dotted)
+			}
+			return &Error{File: p.file, Line: p.lineOf(k), Key: shownKey(k), Rule: rule}
+		}
 		if _, ok := isKnown[dotted]; ok {
 			// A scalar where a table belongs (or the reverse) is a type error
 			// reported when the value is read.
@@ -606,6 +611,16 @@ func (p *parser) numberText(line int, key string) string {
 	return string(m[2])
 }
 
+// showItem is showFull for an item of a list, where a TOML float with no
+// fraction is shown with one (3.0 beside the integer 4), as written.
+func showItem(v any) string {
+	t := showFull(v)
+	if _, ok := v.(float64); ok && !strings.ContainsAny(t, ".eEIN") {
+		t += ".0"
+	}
+	return t
+}
+
 // show writes a value as it would appear in TOML, cut to units.MaxEcho
 // characters.
 func show(v any) string {
@@ -625,11 +640,7 @@ func showFull(v any) string {
 	case string:
 		return strconv.Quote(x)
 	case float64:
-		t := units.FormatNumber(x, -1) // 1e308 as a spec writes it
-		if !strings.ContainsAny(t, ".eEIN") {
-			t += ".0" // a TOML float, 3.0, is not shown as the integer 3
-		}
-		return t
+		return units.FormatNumber(x, -1) // 1e308 as a spec writes it
 	case int64:
 		return strconv.FormatInt(x, 10)
 	case bool:
@@ -645,7 +656,7 @@ func showFull(v any) string {
 				b.WriteString("...")
 				break
 			}
-			b.WriteString(units.Clip(showFull(e), 24))
+			b.WriteString(units.Clip(showItem(e), 24))
 		}
 		b.WriteString("]")
 		return b.String()
@@ -885,7 +896,10 @@ func (p *parser) intList(dotted string, lo, hi int, what string) ([]int, bool, e
 	for _, e := range arr {
 		x, ok := e.(int64)
 		if !ok {
-			return nil, false, p.errAt(dotted, v, "the item %s: want a whole number (%s), not %s", show(e), what, typeName(e))
+			if f, isFloat := e.(float64); isFloat && f == math.Trunc(f) && math.Abs(f) < 1e15 {
+				return nil, false, p.errAt(dotted, v, "the item %s: want a whole number (%s) written without a decimal point or exponent: %d", showItem(e), what, int64(f))
+			}
+			return nil, false, p.errAt(dotted, v, "the item %s: want a whole number (%s), not %s", showItem(e), what, typeName(e))
 		}
 		if x < int64(lo) || x > int64(hi) {
 			return nil, false, p.errAt(dotted, v, "%s %d must lie in [%d, %d]", what, x, lo, hi)
@@ -1027,7 +1041,9 @@ func (p *parser) build() (*Spec, error) {
 			if str != "auto" {
 				rule := fmt.Sprintf(`want a width in [%d, %d] bits or "auto"`, MinWordBits, MaxCoefBits)
 				if n, _ := units.SplitNumber(str); n != "" {
-					rule += ": write the width without quotes, coefficients = " + n
+					if w, err := strconv.Atoi(n); err == nil && w >= MinWordBits && w <= MaxCoefBits {
+						rule += ": write the width without quotes: " + n
+					}
 				} else if strings.EqualFold(str, "auto") {
 					rule += `, in lower case`
 				}
@@ -1342,23 +1358,27 @@ func (p *parser) specError(err error) error {
 		}
 		return field
 	})
-	// A rate written as a bare number is in Hz: 122.88 meant as MHz
-	// breaks a band rule of another key, which is then told why.
+	// A rate written as a bare number is in Hz: beside values written
+	// with their units (122.88 meant as MHz beside "1.92 MHz"), the band
+	// rule it breaks for another key says why.
+	_, unitK := p.root[k].(string)
 	for _, rk := range []string{"input_rate", "output_rate"} {
-		if rk == k {
-			continue
+		other := "output_rate"
+		if rk == other {
+			other = "input_rate"
 		}
-		var v float64
-		switch r := p.root[rk].(type) {
-		case int64:
-			v = float64(r)
-		case float64:
-			v = r
+		_, unitOther := p.root[other].(string)
+		switch p.root[rk].(type) {
+		case int64, float64:
 		default:
 			continue
 		}
-		if v > 0 && v < 1e4 && strings.Contains(rule, rk) {
-			rule += fmt.Sprintf(" (%s = %s is %s Hz: a number without a unit is in Hz; write \"%s MHz\" for megahertz)", rk, show(p.root[rk]), show(p.root[rk]), show(p.root[rk]))
+		if rk != k && (unitK || unitOther) && strings.Contains(rule, rk) {
+			text := p.numberText(p.lineOf([]string{rk}), rk)
+			if text == "" {
+				text = show(p.root[rk])
+			}
+			rule += fmt.Sprintf(" (%s = %s is read in Hz, as every number without a unit is: give its unit, as the other values have)", rk, text)
 		}
 	}
 	raw, present := p.lookup(k)

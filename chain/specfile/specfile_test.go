@@ -126,13 +126,15 @@ func TestParseErrors(t *testing.T) {
 		{"unknown table", "[extra]\nx = 1", []string{":6:", "extra", "unknown key"}},
 		{"unknown dotted key", "words.inptu = 3", []string{":6:", "words.inptu", "unknown key"}},
 		{"unknown quoted key", "\"odd key\" = 3", []string{":6:", "odd key", "unknown key"}},
-		{"order with a fraction", "[search]\ncic_orders = [3.0, 4]", []string{"search.cic_orders = [3.0, 4]: the item 3.0: want a whole number (CIC order), not a number with a fraction"}},
-		{"rate without a unit", "output_rate = 1.92", []string{"passband", "output_rate/2 = 0.96 Hz", `output_rate = 1.92 is 1.92 Hz: a number without a unit is in Hz; write "1.92 MHz" for megahertz`}},
+		{"order with a fraction", "[search]\ncic_orders = [3.0, 4]", []string{"search.cic_orders = [3.0, 4]: the item 3.0: want a whole number (CIC order) written without a decimal point or exponent: 3"}},
+		{"rate without a unit", "output_rate = 1.92", []string{"passband", "output_rate/2 = 0.96 Hz", "output_rate = 1.92 is read in Hz, as every number without a unit is: give its unit, as the other values have"}},
 		{"key with a space", "\"protected \" = \"600 kHz\"", []string{":6:", `"protected ": unknown key (did you mean "protected"?)`}},
 		{"key under the wrong table", "[words]\nclock = \"245.76 MHz\"", []string{":7:", "words.clock: unknown key; clock belongs under [hardware] (hardware.clock)"}},
 		{"key outside its table", "max_stages = 3", []string{":6:", "max_stages: unknown key; max_stages belongs under [search] (search.max_stages)"}},
 		{"top key under a table", "[search]\nsignal = \"complex\"", []string{":7:", "search.signal: unknown key; signal belongs at the top of the file"}},
-		{"quoted width", "[words]\ncoefficients = \"16\"", []string{"words.coefficients", "write the width without quotes, coefficients = 16"}},
+		{"quoted dotted key", "\"words.coefficients\" = 12", []string{`"words.coefficients": a dot inside quotes is part of the key's name, so this key is unknown; write words.coefficients without quotes`}},
+		{"quoted width out of range", "[words]\ncoefficients = \"99\"", []string{`words.coefficients = "99": want a width in [2, 40] bits or "auto"`}},
+		{"quoted width", "[words]\ncoefficients = \"16\"", []string{"words.coefficients", "write the width without quotes: 16"}},
 		{"unknown key in inline table", "cost = {symmetry = true, fold = 2}", []string{":6:", "cost.fold", "unknown key"}},
 		{"not toml", "input_rate = = 3", []string{"input_rate", "one = between a key and its value"}},
 		{"not toml, no rewrite", "passband = \"a\\q\"", []string{"not valid TOML", "invalid escape"}},
@@ -510,6 +512,9 @@ func TestTOMLSlips(t *testing.T) {
 		{`signal = Complex`, `spec.toml:3: signal = Complex: words go in quotes, in lower case: signal = "complex"`},
 		{`signal = iq`, `spec.toml:3: signal = iq: want "real" or "complex", in quotes`},
 		{"[words]\ninput = sixteen", `spec.toml:4: words.input = sixteen: want a value such as input = 16`},
+		{"[search]\nmax_stages = False", `spec.toml:4: search.max_stages = False: want a value such as max_stages = 6`},
+		{"[words]\ncoefficients = auto", `spec.toml:4: words.coefficients = auto: words go in quotes: coefficients = "auto"`},
+		{`"pass band" = 300 kHz`, `spec.toml:3: "pass band" = 300 kHz: a value with a unit goes in quotes: "pass band" = "300 kHz"`},
 		// Keys in quotes (TOML allows them) are named without the quotes.
 		{"[search]\n\"kinds\" = [\"cic\", \"fir\"\nmax_stages = 3", `spec.toml:4: search.kinds: the list is not closed: end it with ]`},
 		{`"passband" = 300 kHz`, `spec.toml:3: passband = 300 kHz: a value with a unit goes in quotes: passband = "300 kHz"`},
@@ -520,5 +525,14 @@ func TestTOMLSlips(t *testing.T) {
 		if err == nil || !strings.HasPrefix(err.Error(), tc.want) {
 			t.Errorf("%s: error %v, want it to start %q", tc.line3, err, tc.want)
 		}
+	}
+}
+
+// A spec whose numbers all go without units means Hz throughout: a band
+// rule it breaks is not blamed on a rate's missing unit.
+func TestBareRatesNoUnitHint(t *testing.T) {
+	_, err := Parse("spec.toml", []byte("input_rate = 48000\noutput_rate = 1000\npassband = 600\nripple = 0.1\nrejection = 60\n"))
+	if err == nil || err.Error() != "spec.toml:3: passband = 600: must lie in (0, output_rate/2 = 500 Hz)" {
+		t.Errorf("error %v", err)
 	}
 }

@@ -3,19 +3,18 @@ package specfile
 import (
 	"bytes"
 	"regexp"
-	"slices"
 	"strings"
 
 	"github.com/stepdown-dsp/stepdown/chain/units"
 )
 
+// keyPat is a TOML key: bare words (letters, digits, _ and -) or quoted
+// ones, joined by dots; plainKey names it as the messages do.
+const keyPat = `(?:"[^"\n]*"|'[^'\n]*'|[A-Za-z0-9_\-]+)(?:\s*\.\s*(?:"[^"\n]*"|'[^'\n]*'|[A-Za-z0-9_\-]+))*`
+
 // The TOML decoder's messages for the slips a spec's author makes most,
 // said in the spec's words by tomlError. Any other message is passed on
 // after "not valid TOML: ".
-// keyPat is a TOML key: bare words (letters, digits, _ and -) or quoted
-// ones, joined by dots; plainKey names it without its quotes.
-const keyPat = `(?:"[^"\n]*"|'[^'\n]*'|[A-Za-z0-9_\-]+)(?:\s*\.\s*(?:"[^"\n]*"|'[^'\n]*'|[A-Za-z0-9_\-]+))*`
-
 var (
 	reTrailing    = regexp.MustCompile(`^expected a top-level item to end with a newline, comment, or EOF, but got '(.*)' instead`)
 	reNoEquals    = regexp.MustCompile(`^expected '\.' or '=', but got '(.*)' instead`)
@@ -237,17 +236,20 @@ func inTable(data []byte, line int, key string) string {
 // or number like the key's example.
 func bareWordRule(bare, key, w string) string {
 	lw := strings.ToLower(w)
-	switch lw {
-	case "true", "false":
+	ex := exampleOf(key)
+	switch {
+	case (ex == "true" || ex == "false") && (lw == "true" || lw == "false"):
 		return "true and false are written in lower case, without quotes: " + orKey(bare) + " = " + lw
-	case "yes", "no", "on", "off":
+	case (ex == "true" || ex == "false") && (lw == "yes" || lw == "no" || lw == "on" || lw == "off"):
 		return "a switch is true or false, in lower case, without quotes: " + orKey(bare) + " = true"
-	case "null", "none", "nil", "empty":
-		r := "a value cannot be left empty: give one, such as " + orKey(bare) + " = " + exampleOf(key)
-		if !slices.Contains(requiredKeys, key) {
-			r += ", or leave the key out for its default"
+	case lw == "null" || lw == "none" || lw == "nil" || lw == "empty":
+		return "a value cannot be left empty: give one, such as " + orKey(bare) + " = " + ex
+	case key == "words.coefficients" && lw == "auto":
+		r := "words go in quotes"
+		if w != lw {
+			r += ", in lower case"
 		}
-		return r
+		return r + ": " + orKey(bare) + ` = "auto"`
 	}
 	if key == "signal" {
 		if lw == "real" || lw == "complex" {
@@ -259,16 +261,17 @@ func bareWordRule(bare, key, w string) string {
 		}
 		return `want "real" or "complex", in quotes`
 	}
-	if ex := exampleOf(key); key != "" && exampleKnown(key) && (!strings.HasPrefix(ex, `"`) || strings.ContainsAny(ex, "0123456789")) {
+	if key != "" && exampleKnown(key) && (!strings.HasPrefix(ex, `"`) || strings.ContainsAny(ex, "0123456789")) {
 		return "want a value such as " + orKey(bare) + " = " + ex
 	}
 	return "words go in quotes: " + orKey(bare) + ` = "` + w + `"`
 }
 
-// plainKey is a key as keyPat matched it, without quotes and without
-// spaces around its dots: kinds for "kinds", search.kinds for
-// search . "kinds".
+// plainKey is a key as keyPat matched it, as the messages name it
+// (shownKey): kinds for "kinds", search.kinds for search . "kinds", and
+// "pass band" in its quotes.
 func plainKey(k string) string {
+	var parts []string
 	var b strings.Builder
 	for i := 0; i < len(k); i++ {
 		switch c := k[i]; c {
@@ -279,12 +282,15 @@ func plainKey(k string) string {
 			}
 			b.WriteString(k[i+1 : i+1+j])
 			i += j + 1
+		case '.':
+			parts = append(parts, b.String())
+			b.Reset()
 		case ' ', '\t':
 		default:
 			b.WriteByte(c)
 		}
 	}
-	return b.String()
+	return shownKey(append(parts, b.String()))
 }
 
 // orKey is key, or "key" when the line named none.

@@ -70,7 +70,9 @@ func Parse(s string, k Kind) (float64, error) {
 	if !isDecimal(num) {
 		// A number followed by more than a unit ("0.2 dB pk-pk", "1 %",
 		// "480 kHz flat"): the number is right, what follows it is not.
-		if n, rest := leadingNumber(t); n != "" && rest != "" && !strings.ContainsAny(rest, "0123456789+") && !strings.ContainsAny(rest[:1], ".-") {
+		// A rest that starts with e or E is a broken exponent ("1e kHz"),
+		// which the number's own message names.
+		if n, rest := leadingNumber(t); n != "" && rest != "" && !strings.ContainsAny(rest, "0123456789+") && !strings.ContainsAny(rest[:1], ".-eE") {
 			if _, rule := unitShift(rest, k); rule != "" {
 				return 0, &Error{s, rule}
 			}
@@ -326,10 +328,9 @@ func ParseRange(s string, k Kind) (lo, hi float64, err error) {
 	return lo, hi, nil
 }
 
-// splitUnit splits trimmed text into its number and its trailing unit.
 // SplitNumber splits s, trimmed, into the decimal number it starts with
-// and the rest ("18 bits": "18" and "bits"); "" and s when it starts with
-// none.
+// and the rest ("18 bits": "18" and "bits"); "" and the trimmed s when it
+// starts with none.
 func SplitNumber(s string) (num, rest string) { return leadingNumber(strings.TrimSpace(s)) }
 
 // leadingNumber splits t into the decimal number it starts with and the
@@ -370,6 +371,7 @@ func leadingNumber(t string) (num, rest string) {
 	return t[:i], strings.TrimSpace(t[i:])
 }
 
+// splitUnit splits trimmed text into its number and its trailing unit.
 func splitUnit(t string) (num, unit string) {
 	i := len(t)
 	for i > 0 && isUnitByte(t[i-1]) {

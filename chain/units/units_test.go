@@ -104,6 +104,7 @@ func TestParseErrors(t *testing.T) {
 		{"1_000", Frequency, "not a decimal number"},
 		{"1.2.3", Frequency, "not a decimal number"},
 		{"1e", Frequency, "unknown unit"},
+		{"1e kHz", Frequency, `"1e" is not a decimal number`},
 		{"1e+ Hz", Frequency, "not a decimal number"},
 		{"1e400", Frequency, "out of range"},
 		{"1e300 GHz", Frequency, "out of range"},

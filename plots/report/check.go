@@ -200,15 +200,17 @@ func (r *Report) Compare(cmp *Comparison) {
 	if plan == nil {
 		for _, f := range cmp.Front {
 			plan = append(plan, Chain{Notation: f.Notation, MultipliesPerOutput: f.MultipliesPerOutput,
-				MemoryBits: f.MemoryBits, LatencyS: f.LatencyS, MeetsTargets: f.MeetsTargets})
+				MemoryBits: f.MemoryBits, LatencyS: f.LatencyS, MeetsTargets: f.MeetsTargets, Adders: f.Adders})
 		}
 	}
 	r.ComparedWith = cmp
 	r.BeatenBy = append([]Beater{}, BeatenBy(c, plan)...)
 	r.Beats = nil
-	for i, f := range plan {
-		if len(BeatenBy(f, []Chain{c})) > 0 {
-			r.Beats = append(r.Beats, i+1)
+	if len(r.BeatenBy) == 0 {
+		for i, f := range plan {
+			if len(BeatenBy(f, []Chain{c})) > 0 {
+				r.Beats = append(r.Beats, i+1)
+			}
 		}
 	}
 }

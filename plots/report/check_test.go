@@ -152,7 +152,7 @@ func TestCompareBeats(t *testing.T) {
 	}
 	var b strings.Builder
 	WriteComparison(&b, r)
-	for _, want := range []string{"beats it on every axis: it belongs on that front, and that plan did not find it", "It beats #2 cic4m2r20 > fir4 there on every axis."} {
+	for _, want := range []string{"beats it on every axis: it belongs on that front, which lacks it", "It beats #2 cic4m2r20 > fir4 there on every axis."} {
 		if !strings.Contains(b.String(), want) {
 			t.Errorf("summary %q lacks %q", b.String(), want)
 		}

@@ -51,8 +51,9 @@ func WriteComparison(w io.Writer, rep *Report) {
 			cw.Source, units.Count(meet, "chain", "chains"), verb, first+1, f.Notation, TrimFloat(f.MultipliesPerOutput, 1), rep.Spec.Side(), f.MemoryBits, Seconds(f.LatencyS))
 	default:
 		// It meets, and nothing there beats it: it belongs on that
-		// front, which the plan's search did not find it for.
-		fmt.Fprintf(w, "  No chain on the front of %s (%s) beats it on every axis: it belongs on that front, and that plan did not find it.\n", cw.Source, units.Count(len(cw.Front), "chain", "chains"))
+		// front, which lacks it (the plan's search did not find it, or
+		// its settings did not search it).
+		fmt.Fprintf(w, "  No chain on the front of %s (%s) beats it on every axis: it belongs on that front, which lacks it.\n", cw.Source, units.Count(len(cw.Front), "chain", "chains"))
 		if len(rep.Beats) > 0 {
 			var names []string
 			for _, k := range rep.Beats {
