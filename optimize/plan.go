@@ -1131,6 +1131,14 @@ func searchPass(ctx context.Context, p *params, sp *space, s *Settings, est *est
 			delete(frontPlans, id)
 		}
 	}
+	// A front point designed in an earlier pass stands at its real
+	// figures where they are worse than its estimate: a band taken near an
+	// optimistic point misses the candidates near the real one.
+	for j, id := range fr.id {
+		if o, ok := t.memo[planKey(frontPlans[id])]; ok && o.reason == "" {
+			fr.f[j] = worstOf(fr.f[j], candFigs(&o.c))
+		}
+	}
 
 	var fronts []bandRef
 	for _, id := range fr.id {
@@ -1216,12 +1224,32 @@ func searchPass(ctx context.Context, p *params, sp *space, s *Settings, est *est
 	// The band was taken near the estimated front, and excluded() assumed
 	// its points stand. When one failed, the band is taken again without
 	// it (the search calls the pass again).
-	for _, id := range fr.id {
-		if t.gone[planKey(frontPlans[id])] {
+	// So is it when one came out worse than the band took it to be, by
+	// more than the band's own tolerance on some axis (the estimate's
+	// error the band allows for): the next pass takes it at its real
+	// figures (above).
+	for j, id := range fr.id {
+		k := planKey(frontPlans[id])
+		if t.gone[k] {
 			t.retake = true
+		}
+		if o, ok := t.memo[k]; ok && o.reason == "" {
+			r, f := candFigs(&o.c).axes(), fr.f[j].axes()
+			for a := range r {
+				if r[a] > f[a]*(1+tol) {
+					debugf("front point %s optimistic on axis %d: %g > %g", chain.Notation(frontPlans[id]), a, r[a], f[a])
+					t.retake = true
+				}
+			}
 		}
 	}
 	return need
+}
+
+// worstOf is f with each axis the larger of f's and g's.
+func worstOf(f, g figs) figs {
+	f.mpo, f.bits, f.lat = max(f.mpo, g.mpo), max(f.bits, g.bits), max(f.lat, g.lat)
+	return f
 }
 
 // sortBand sorts a band by slack, ties by the plans' total order.
