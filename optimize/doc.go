@@ -206,9 +206,9 @@
 // chain off the front is not, so the front is complete only within the
 // estimate tier's model. Measured against the exhaustive search
 // (Settings.Exhaustive, every feasible candidate designed) under the
-// cascade rule on 20 invented specs of D = 6 to 160, 13 fronts were the
-// same and 7 missed 13 of the exhaustive fronts' 212 chains (6 of 17 on
-// one), holding 6 chains that those beat instead; designing every
+// cascade rule on 20 invented specs of D = 6 to 160, 14 fronts were the
+// same and 6 missed 9 of the exhaustive fronts' 211 chains (2 at most on
+// one; testdata/optimize/exhaustive_compare.txt); designing every
 // representative whole gave the same fronts. The integer searches inside
 // the fractional search (below) skip it: their fronts only seed its plans,
 // which a front of near twins would crowd. On invented receivers the
