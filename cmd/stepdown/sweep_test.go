@@ -39,7 +39,7 @@ func TestSweepUsageErrors(t *testing.T) {
 		{[]string{"sweep", "--vary", "rejection=60:100:2", "--vary", "ripple=0.1:0.8:0.1"}, "168 cells, over the limit of 150"},
 		{[]string{"sweep", "--vary", "max_stages=2:4:1", "--max-stages", "3"}, "--max-stages 3: --vary max_stages=2:4:1 steps search.max_stages"},
 		{[]string{"sweep", "--vary", "decimation=8:64:0.5"}, "--vary decimation=8:64:0.5: STEP \"0.5\": want a whole number"},
-		{[]string{"sweep", "--vary", "max_stages=0:4:1"}, "value 0 stages must be at least 1 stage"},
+		{[]string{"sweep", "--vary", "max_stages=0:4:1"}, "FROM 0 stages must be at least 1 stage"},
 		// 200 and 300 MHz are no integer interpolation of 122.88 MHz, whatever
 		// the rejection (a fractional ratio is planned in decimation
 		// chains only).

@@ -222,6 +222,13 @@ func ParseVary(arg string) (Vary, error) {
 	if from > to {
 		dir = -1
 	}
+	// An end outside the key's own domain is named before the count: it
+	// is the slip (rejection=80:10000:1 meant 100).
+	for i, v := range []float64{from, to} {
+		if rule := k.domain(v); rule != "" {
+			return fail("%s %s %s", [2]string{"FROM", "TO"}[i], k.Format(v), rule)
+		}
+	}
 	span := math.Abs(to-from) / step
 	if span > MaxValues {
 		count := fmt.Sprintf("%.0f", math.Floor(span*(1+1e-9)+1e-9)+1)
