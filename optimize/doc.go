@@ -281,10 +281,13 @@
 // costs a design is all but chance at a width near the target's own. A
 // re-designed chain is priced and measured again (cost.Evaluate), and the
 // front is taken again with its new figures. The chain is dropped, counted
-// under ReasonMissQuantised, when the tries run out or at once when the
-// rounding error alone reaches the target (a rounded chain 6 dB or more
-// short, or an excess of the target's deviation), since a longer design
-// rounds no better; a stage whose own rounding error exceeds its stopband
+// under ReasonMissQuantised, when the tries run out, or at once when the
+// rounding error of the chain as first designed alone reaches the target
+// (a rounded chain 6 dB or more short, or an excess of the target's
+// deviation), since a longer design rounds no better; after a re-design
+// such a result may be that design's rounding, and the fixed margins are
+// still tried for a chain whose rounded taps as first designed missed by
+// under 3 dB (closeDB); a stage whose own rounding error exceeds its stopband
 // limit is then given up in every chain. ReasonWordLengths counts chains
 // whose word lengths fixed.PlanChain could not plan; where that was an
 // accumulator wider than fixed.MaxAccumulatorBits (fixed.AccumulatorError,

@@ -49,6 +49,12 @@ const (
 	roundingExtraDB      = 1
 )
 
+// closeDB is how far under the target a chain's rounded taps, as first
+// designed, may fall for a re-design whose own rounding comes out
+// hopeless not to end its re-designs: the fixed margins are tried for a
+// chain that nearly met, not for every chain.
+const closeDB = 3
+
 // roundingLadder are the fixed margins survive tries once the measured
 // rule has run out: the rejection raised by raiseDB over the target and
 // the ripple budget cut by the fraction cut of it. On an invented 40 to
@@ -586,6 +592,7 @@ func (r realDesigner) surviveWith(c Candidate, spec chain.Spec, wl func() (*fixe
 	cur, f := c, c.Figures
 	excess, rippleExcess := 0.0, 0.0
 	ladder := 0
+	close := false // the chain as first designed missed by under closeDB
 	for try := 0; ; try++ {
 		qm := qa.AliasRejectionDB - spec.RejectionDB
 		over := qa.PassbandRippleDB - spec.RippleDB
@@ -609,8 +616,14 @@ func (r realDesigner) surviveWith(c Candidate, spec chain.Spec, wl func() (*fixe
 		}
 		// Rounded taps 6 dB or more under the target leave an excess of
 		// at least the target's deviation over a float chain that meets
-		// it: no need to measure the float chain to give up.
-		if qm <= -20*math.Log10(2) {
+		// it: no need to measure the float chain to give up on the chain
+		// as first designed. After a re-design it may be that design's
+		// rounding alone: the fixed margins below are still tried.
+		roundedOut := qm <= -20*math.Log10(2)
+		if try == 0 {
+			close = qm > -closeDB
+		}
+		if roundedOut && (try == 0 || !close) {
 			break
 		}
 		if !cur.evaluated {
@@ -628,7 +641,10 @@ func (r realDesigner) surviveWith(c Candidate, spec chain.Spec, wl func() (*fixe
 		dt := chain.RejectionToDev(spec.RejectionDB)
 		excess = math.Max(excess, chain.RejectionToDev(qa.AliasRejectionDB)-chain.RejectionToDev(f.Analysis.AliasRejectionDB))
 		if excess >= dt {
-			break // rounding alone misses the target
+			if try == 0 || !close {
+				break // rounding alone misses the target
+			}
+			roundedOut = true
 		}
 		// The float design at cur.raised measured f; it must reach
 		// target + need instead.
@@ -639,7 +655,7 @@ func (r realDesigner) surviveWith(c Candidate, spec chain.Spec, wl func() (*fixe
 			rippleExcess = math.Max(rippleExcess, qa.PassbandRippleDB-f.Analysis.PassbandRippleDB)
 			cut = math.Max(cut+over, rippleExcess) + spec.RippleDB/100
 		}
-		if try >= maxRoundingRedesigns || cut >= spec.RippleDB {
+		if roundedOut || try >= maxRoundingRedesigns || cut >= spec.RippleDB {
 			// The measured rule has run out. How much rounding costs a
 			// design is all but chance at a width near the target's own
 			// (a longer design rounds no better), so a few fixed margins

@@ -375,3 +375,34 @@ func TestRoundingLadder(t *testing.T) {
 		}
 	}
 }
+
+// TestRoundingNotGivenUpOnOneDesign: a re-design whose own rounding comes
+// out 6 dB or more under the target does not end the chain's re-designs
+// (the chain as first designed does): on an invented 50 to 2 MS/s
+// receiver with 12-bit taps at 74 dB, cic4m2r5 > fir5 rounded to 72.25 dB,
+// its re-design to 67.28 dB, and the plan found no chain, where a fixed
+// margin meets; likewise an invented 120 to 0.96 MS/s receiver at 77 dB
+// (CI's long step). Every front chain is checked by brute force on its
+// rounded taps.
+func TestRoundingNotGivenUpOnOneDesign(t *testing.T) {
+	specs := []chain.Spec{{InputRate: 50e6, OutputRate: 2e6, Passband: 750e3, RippleDB: 0.1, RejectionDB: 74, InputBits: 14, OutputBits: 22, CoefBits: 12}}
+	if os.Getenv("STEPDOWN_LONG") != "" {
+		specs = append(specs, chain.Spec{InputRate: 120e6, OutputRate: 0.96e6, Passband: 360e3, RippleDB: 0.2, RejectionDB: 77, InputBits: 14, OutputBits: 22, CoefBits: 12})
+	}
+	for _, spec := range specs {
+		res, err := Plan(context.Background(), spec, Settings{})
+		if err != nil {
+			t.Fatal(err)
+		}
+		if len(res.Front) == 0 {
+			t.Errorf("%g to %g MS/s at %g dB: empty front: %s", spec.InputRate/1e6, spec.OutputRate/1e6, spec.RejectionDB, res.Reason)
+			continue
+		}
+		for _, c := range res.Front {
+			rej, rip := roundedFigures(t, spec, c.Chain)
+			if rej < spec.RejectionDB-0.02 || rip > spec.RippleDB+2e-4 {
+				t.Errorf("%s rounded: rejection %.3f dB, ripple %.5f dB", chain.Notation(c.Plan), rej, rip)
+			}
+		}
+	}
+}
