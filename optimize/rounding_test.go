@@ -255,40 +255,25 @@ func TestRoundingDropsCounted(t *testing.T) {
 // named, and every front chain is checked by brute force on its rounded
 // taps (roundedFigures). The last two run in CI's long step.
 func TestCheapChainNotPrunedByRoundingEstimate(t *testing.T) {
-	cases := []struct {
+	type named struct {
 		spec chain.Spec
 		mpo  float64 // the named chain's multiplies per output
-	}{
+	}
+	cases := []named{
 		{chain.Spec{InputRate: 100e6, OutputRate: 1.25e6, Passband: 400e3, RippleDB: 0.1, RejectionDB: 79, InputBits: 14, OutputBits: 20, CoefBits: 12}, 8},
 	}
 	if os.Getenv("STEPDOWN_LONG") != "" {
 		cases = append(cases,
-			struct {
-				spec chain.Spec
-				mpo  float64
-			}{chain.Spec{InputRate: 80e6, OutputRate: 0.8e6, Passband: 300e3, RippleDB: 0.15, RejectionDB: 72, InputBits: 14, OutputBits: 20, CoefBits: 11}, 11},
-			struct {
-				spec chain.Spec
-				mpo  float64
-			}{chain.Spec{InputRate: 32e6, OutputRate: 2e6, Passband: 0.7e6, RippleDB: 0.4, RejectionDB: 62, Complex: true, InputBits: 14, OutputBits: 20, CoefBits: 9}, 14})
+			named{chain.Spec{InputRate: 80e6, OutputRate: 0.8e6, Passband: 300e3, RippleDB: 0.15, RejectionDB: 72, InputBits: 14, OutputBits: 20, CoefBits: 11}, 11},
+			named{chain.Spec{InputRate: 32e6, OutputRate: 2e6, Passband: 0.7e6, RippleDB: 0.4, RejectionDB: 62, Complex: true, InputBits: 14, OutputBits: 20, CoefBits: 9}, 14})
 	}
 	for _, tc := range cases {
-		res, err := Plan(context.Background(), tc.spec, Settings{})
-		if err != nil {
-			t.Fatal(err)
-		}
-		if len(res.Front) == 0 {
-			t.Errorf("%g dB at %d bits: empty front: %s", tc.spec.RejectionDB, tc.spec.CoefBits, res.Reason)
+		res := planRoundedMeets(t, tc.spec)
+		if res == nil {
 			continue
 		}
 		if got := res.Front[0].Figures.MultipliesPerOutput; got > tc.mpo {
 			t.Errorf("%g dB at %d bits: cheapest chain %s costs %g multiplies per output, want at most %g", tc.spec.RejectionDB, tc.spec.CoefBits, chain.Notation(res.Front[0].Plan), got, tc.mpo)
-		}
-		for _, c := range res.Front {
-			rej, rip := roundedFigures(t, tc.spec, c.Chain)
-			if rej < tc.spec.RejectionDB-0.02 || rip > tc.spec.RippleDB+2e-4 {
-				t.Errorf("%g dB at %d bits: %s rounded: rejection %.3f dB, ripple %.5f dB", tc.spec.RejectionDB, tc.spec.CoefBits, chain.Notation(c.Plan), rej, rip)
-			}
 		}
 	}
 }
@@ -327,21 +312,7 @@ func TestRoundingRedesignsReach(t *testing.T) {
 	}
 	for _, rej := range targets {
 		spec := chain.Spec{InputRate: 80e6, OutputRate: 2.5e6, Passband: 1e6, RippleDB: 0.1, RejectionDB: rej, CoefBits: 10}
-		res, err := Plan(context.Background(), spec, Settings{})
-		if err != nil {
-			t.Fatal(err)
-		}
-		if len(res.Front) == 0 {
-			t.Errorf("%g dB: empty front: %s", rej, res.Reason)
-			continue
-		}
-		for _, c := range res.Front {
-			got, rip := roundedFigures(t, spec, c.Chain)
-			// The tolerances of TestFrontSurvivesRounding.
-			if got < rej-0.02 || rip > spec.RippleDB+2e-4 {
-				t.Errorf("%g dB: %s rounded to 10 bits: rejection %.3f dB, ripple %.5f dB", rej, chain.Notation(c.Plan), got, rip)
-			}
-		}
+		planRoundedMeets(t, spec)
 	}
 }
 
@@ -359,20 +330,7 @@ func TestRoundingLadder(t *testing.T) {
 	}
 	for _, rej := range targets {
 		spec := chain.Spec{InputRate: 40e6, OutputRate: 5e6, Passband: 1.8e6, RippleDB: 0.05, RejectionDB: rej, InputBits: 14, OutputBits: 20, CoefBits: 10}
-		res, err := Plan(context.Background(), spec, Settings{})
-		if err != nil {
-			t.Fatal(err)
-		}
-		if len(res.Front) == 0 {
-			t.Errorf("%g dB: empty front: %s", rej, res.Reason)
-			continue
-		}
-		for _, c := range res.Front {
-			got, rip := roundedFigures(t, spec, c.Chain)
-			if got < rej-0.02 || rip > spec.RippleDB+2e-4 {
-				t.Errorf("%g dB: %s rounded to 10 bits: rejection %.3f dB, ripple %.5f dB", rej, chain.Notation(c.Plan), got, rip)
-			}
-		}
+		planRoundedMeets(t, spec)
 	}
 }
 
@@ -390,19 +348,31 @@ func TestRoundingNotGivenUpOnOneDesign(t *testing.T) {
 		specs = append(specs, chain.Spec{InputRate: 120e6, OutputRate: 0.96e6, Passband: 360e3, RippleDB: 0.2, RejectionDB: 77, InputBits: 14, OutputBits: 22, CoefBits: 12})
 	}
 	for _, spec := range specs {
-		res, err := Plan(context.Background(), spec, Settings{})
-		if err != nil {
-			t.Fatal(err)
-		}
-		if len(res.Front) == 0 {
-			t.Errorf("%g to %g MS/s at %g dB: empty front: %s", spec.InputRate/1e6, spec.OutputRate/1e6, spec.RejectionDB, res.Reason)
-			continue
-		}
-		for _, c := range res.Front {
-			rej, rip := roundedFigures(t, spec, c.Chain)
-			if rej < spec.RejectionDB-0.02 || rip > spec.RippleDB+2e-4 {
-				t.Errorf("%s rounded: rejection %.3f dB, ripple %.5f dB", chain.Notation(c.Plan), rej, rip)
-			}
+		planRoundedMeets(t, spec)
+	}
+}
+
+// planRoundedMeets plans spec with default settings and checks that the
+// front is not empty and that every front chain meets the spec with its
+// taps as fixed.PlanChain rounds them, by brute force (roundedFigures;
+// the tolerances of TestFrontSurvivesRounding). It returns the result, nil
+// when the front is empty.
+func planRoundedMeets(t *testing.T, spec chain.Spec) *Result {
+	t.Helper()
+	name := fmt.Sprintf("%g to %g MS/s, %g dB at %d bits", spec.InputRate/1e6, spec.OutputRate/1e6, spec.RejectionDB, spec.CoefBits)
+	res, err := Plan(context.Background(), spec, Settings{})
+	if err != nil {
+		t.Fatal(err)
+	}
+	if len(res.Front) == 0 {
+		t.Errorf("%s: empty front: %s", name, res.Reason)
+		return nil
+	}
+	for _, c := range res.Front {
+		rej, rip := roundedFigures(t, spec, c.Chain)
+		if rej < spec.RejectionDB-0.02 || rip > spec.RippleDB+2e-4 {
+			t.Errorf("%s: %s rounded: rejection %.3f dB, ripple %.5f dB", name, chain.Notation(c.Plan), rej, rip)
 		}
 	}
+	return res
 }

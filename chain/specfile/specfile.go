@@ -300,26 +300,15 @@ var known = []key{
 	{path: "search.requirements", example: `"cascade"`},
 }
 
-// exampleKnown reports whether key (dotted) is a key of the format with an
-// example value.
-func exampleKnown(dotted string) bool {
+// exampleOf is a value key (dotted) takes, as a spec writes it, and
+// whether the format knows the key; a frequency for a key it does not.
+func exampleOf(dotted string) (string, bool) {
 	for _, k := range known {
 		if k.path == dotted && k.example != "" {
-			return true
+			return k.example, true
 		}
 	}
-	return false
-}
-
-// exampleOf is a value key (dotted) takes, as a spec writes it; a
-// frequency for a key the format does not know.
-func exampleOf(dotted string) string {
-	for _, k := range known {
-		if k.path == dotted && k.example != "" {
-			return k.example
-		}
-	}
-	return `"600 kHz"`
+	return `"600 kHz"`, false
 }
 
 // parser holds one file's data while it is checked.

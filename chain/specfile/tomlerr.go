@@ -81,7 +81,8 @@ func tomlError(file string, data []byte, line int, msg string) *Error {
 			e.Rule = "a key is one word (letters, digits, _ and -) followed by = and its value"
 		}
 	case reNoValue.MatchString(msg):
-		e.Key, e.Rule = key, "nothing after =: give the value, e.g. "+orKey(bare)+" = "+exampleOf(key)
+		ex, _ := exampleOf(key)
+		e.Key, e.Rule = key, "nothing after =: give the value, e.g. "+orKey(bare)+" = "+ex
 	case reBareWord.MatchString(msg):
 		w := units.Clip(reBareWord.FindStringSubmatch(msg)[1], units.MaxEcho)
 		e.Key, e.Value, e.Rule = key, w, bareWordRule(bare, key, w)
@@ -236,7 +237,7 @@ func inTable(data []byte, line int, key string) string {
 // or number like the key's example.
 func bareWordRule(bare, key, w string) string {
 	lw := strings.ToLower(w)
-	ex := exampleOf(key)
+	ex, knownKey := exampleOf(key)
 	switch {
 	case (ex == "true" || ex == "false") && (lw == "true" || lw == "false"):
 		return "true and false are written in lower case, without quotes: " + orKey(bare) + " = " + lw
@@ -261,7 +262,7 @@ func bareWordRule(bare, key, w string) string {
 		}
 		return `want "real" or "complex", in quotes`
 	}
-	if key != "" && exampleKnown(key) && (!strings.HasPrefix(ex, `"`) || strings.ContainsAny(ex, "0123456789")) {
+	if knownKey && (!strings.HasPrefix(ex, `"`) || strings.ContainsAny(ex, "0123456789")) {
 		return "want a value such as " + orKey(bare) + " = " + ex
 	}
 	return "words go in quotes: " + orKey(bare) + ` = "` + w + `"`

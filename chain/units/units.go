@@ -154,6 +154,14 @@ func isUnitByte(c byte) bool {
 // isDecimal reports whether s is [+-]digits[.digits][(e|E)[+-]digits] with at
 // least one digit in the mantissa.
 func isDecimal(s string) bool {
+	n := decimalPrefix(s)
+	return n > 0 && n == len(s)
+}
+
+// decimalPrefix is the length of the longest prefix of s that is a
+// decimal number as isDecimal takes it (an exponent counts only with its
+// digits); 0 when s starts with none.
+func decimalPrefix(s string) int {
 	i := 0
 	if i < len(s) && (s[i] == '+' || s[i] == '-') {
 		i++
@@ -171,23 +179,21 @@ func isDecimal(s string) bool {
 		}
 	}
 	if digits == 0 {
-		return false
+		return 0
 	}
-	if i < len(s) && (s[i] == 'e' || s[i] == 'E') {
-		i++
-		if i < len(s) && (s[i] == '+' || s[i] == '-') {
-			i++
+	if j := i; j < len(s) && (s[j] == 'e' || s[j] == 'E') {
+		j++
+		if j < len(s) && (s[j] == '+' || s[j] == '-') {
+			j++
 		}
-		exp := 0
-		for i < len(s) && isDigit(s[i]) {
-			i++
-			exp++
-		}
-		if exp == 0 {
-			return false
+		if j < len(s) && isDigit(s[j]) {
+			for j < len(s) && isDigit(s[j]) {
+				j++
+			}
+			i = j
 		}
 	}
-	return i == len(s)
+	return i
 }
 
 func isDigit(c byte) bool { return '0' <= c && c <= '9' }
@@ -334,41 +340,13 @@ func ParseRange(s string, k Kind) (lo, hi float64, err error) {
 func SplitNumber(s string) (num, rest string) { return leadingNumber(strings.TrimSpace(s)) }
 
 // leadingNumber splits t into the decimal number it starts with and the
-// rest, trimmed; "" and t when it starts with none. One pass: an exponent
-// counts only with its digits.
+// rest, trimmed; "" and t when it starts with none.
 func leadingNumber(t string) (num, rest string) {
-	i := 0
-	if i < len(t) && (t[i] == '+' || t[i] == '-') {
-		i++
-	}
-	digits := 0
-	for i < len(t) && isDigit(t[i]) {
-		i++
-		digits++
-	}
-	if i < len(t) && t[i] == '.' {
-		i++
-		for i < len(t) && isDigit(t[i]) {
-			i++
-			digits++
-		}
-	}
-	if digits == 0 {
+	n := decimalPrefix(t)
+	if n == 0 {
 		return "", t
 	}
-	if j := i; j < len(t) && (t[j] == 'e' || t[j] == 'E') {
-		j++
-		if j < len(t) && (t[j] == '+' || t[j] == '-') {
-			j++
-		}
-		if j < len(t) && isDigit(t[j]) {
-			for j < len(t) && isDigit(t[j]) {
-				j++
-			}
-			i = j
-		}
-	}
-	return t[:i], strings.TrimSpace(t[i:])
+	return t[:n], strings.TrimSpace(t[n:])
 }
 
 // splitUnit splits trimmed text into its number and its trailing unit.

@@ -5,6 +5,7 @@ import (
 	"fmt"
 	"math"
 	"math/rand/v2"
+	"regexp"
 	"strconv"
 	"strings"
 	"testing"
@@ -387,6 +388,34 @@ func TestCount(t *testing.T) {
 		}
 		if got := CountWere(c.n, "chain", "chains"); got != c.were {
 			t.Errorf("CountWere(%d) = %q, want %q", c.n, got, c.were)
+		}
+	}
+}
+
+// decimalPrefix and isDecimal against a regular expression of the same
+// grammar, on seeded random strings over the characters numbers use: the
+// prefix is the longest the expression matches whole.
+func TestDecimalPrefixRegexp(t *testing.T) {
+	re := regexp.MustCompile(`^[+-]?([0-9]+\.?[0-9]*|\.[0-9]+)([eE][+-]?[0-9]+)?$`)
+	rng := rand.New(rand.NewPCG(5, 7))
+	const alphabet = "0123456789.eE+- kHz"
+	for trial := 0; trial < 20000; trial++ {
+		b := make([]byte, rng.IntN(9))
+		for i := range b {
+			b[i] = alphabet[rng.IntN(len(alphabet))]
+		}
+		s := string(b)
+		want := 0
+		for n := 1; n <= len(s); n++ {
+			if re.MatchString(s[:n]) {
+				want = n
+			}
+		}
+		if got := decimalPrefix(s); got != want {
+			t.Fatalf("decimalPrefix(%q) = %d, want %d", s, got, want)
+		}
+		if got := isDecimal(s); got != re.MatchString(s) {
+			t.Fatalf("isDecimal(%q) = %v", s, got)
 		}
 	}
 }

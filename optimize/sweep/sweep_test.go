@@ -347,9 +347,10 @@ func TestWordCells(t *testing.T) {
 
 func fp(v float64) *float64 { return &v }
 
-// An infeasible row names the chain that came closest and by how much it
-// missed (optimize.Result.Closest), as plan's empty front does.
-func TestInfeasibleNamesClosest(t *testing.T) {
+// infeasibleRow sweeps the example's rejection over 140 and 145 dB with
+// fakePlan, whose empty fronts edit fills in, and returns the 145 dB row.
+func infeasibleRow(t *testing.T, edit func(res *optimize.Result, s chain.Spec)) Result {
+	t.Helper()
 	v, err := ParseVary("rejection=140:145:5")
 	if err != nil {
 		t.Fatal(err)
@@ -357,15 +358,23 @@ func TestInfeasibleNamesClosest(t *testing.T) {
 	plan := func(ctx context.Context, s chain.Spec, set optimize.Settings) (*optimize.Result, error) {
 		res, err := fakePlan(ctx, s, set)
 		if err == nil && len(res.Front) == 0 {
-			c := &optimize.Candidate{Plan: []chain.StagePlan{{Kind: chain.FIR, Factor: s.Decimation()}}}
-			c.Figures.Analysis.AliasRejectionDB = s.RejectionDB - 3
-			res.Closest = c
+			edit(res, s)
 		}
 		return res, err
 	}
-	rs := Run(context.Background(), Study{Name: "ex", Spec: []byte(specfile.ExampleText), Vary: v, Workers: 1, Plan: plan})
-	if rs[1].Status != Infeasible || !strings.Contains(rs[1].Detail, "the closest, fir") || !strings.Contains(rs[1].Detail, "misses the 145 dB rejection by 3 dB (142 dB)") {
-		t.Errorf("145 dB: %s: %s", rs[1].Status, rs[1].Detail)
+	return Run(context.Background(), Study{Name: "ex", Spec: []byte(specfile.ExampleText), Vary: v, Workers: 1, Plan: plan})[1]
+}
+
+// An infeasible row names the chain that came closest and by how much it
+// missed (optimize.Result.Closest), as plan's empty front does.
+func TestInfeasibleNamesClosest(t *testing.T) {
+	r := infeasibleRow(t, func(res *optimize.Result, s chain.Spec) {
+		c := &optimize.Candidate{Plan: []chain.StagePlan{{Kind: chain.FIR, Factor: s.Decimation()}}}
+		c.Figures.Analysis.AliasRejectionDB = s.RejectionDB - 3
+		res.Closest = c
+	})
+	if r.Status != Infeasible || !strings.Contains(r.Detail, "the closest, fir") || !strings.Contains(r.Detail, "misses the 145 dB rejection by 3 dB (142 dB)") {
+		t.Errorf("145 dB: %s: %s", r.Status, r.Detail)
 	}
 }
 
@@ -373,20 +382,11 @@ func TestInfeasibleNamesClosest(t *testing.T) {
 // the width that would do (optimize.Result.NeededCoefBits and Reason), as
 // plan's empty front does.
 func TestInfeasibleNamesWidth(t *testing.T) {
-	v, err := ParseVary("rejection=140:145:5")
-	if err != nil {
-		t.Fatal(err)
-	}
-	plan := func(ctx context.Context, s chain.Spec, set optimize.Settings) (*optimize.Result, error) {
-		res, err := fakePlan(ctx, s, set)
-		if err == nil && len(res.Front) == 0 {
-			res.NeededCoefBits = 20
-			res.Reason = "No chain meets the spec with 18-bit coefficients: the cheapest of them, fir64, meets from 20 bits."
-		}
-		return res, err
-	}
-	rs := Run(context.Background(), Study{Name: "ex", Spec: []byte(specfile.ExampleText), Vary: v, Workers: 1, Plan: plan})
-	if rs[1].Status != Infeasible || !strings.HasPrefix(rs[1].Detail, "no chain meets the spec with 18-bit coefficients: the cheapest of them, fir64, meets from 20 bits (") {
-		t.Errorf("145 dB: %s: %s", rs[1].Status, rs[1].Detail)
+	r := infeasibleRow(t, func(res *optimize.Result, _ chain.Spec) {
+		res.NeededCoefBits = 20
+		res.Reason = "No chain meets the spec with 18-bit coefficients: the cheapest of them, fir64, meets from 20 bits."
+	})
+	if r.Status != Infeasible || !strings.HasPrefix(r.Detail, "no chain meets the spec with 18-bit coefficients: the cheapest of them, fir64, meets from 20 bits (") {
+		t.Errorf("145 dB: %s: %s", r.Status, r.Detail)
 	}
 }
