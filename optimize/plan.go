@@ -801,8 +801,8 @@ func search(ctx context.Context, p params, s *Settings, est *estimator, des desi
 		debugf("search again (%s): front %d, designed %d", again, len(res.Front), res.Designed)
 		resetPass(res)
 	}
-	if !s.Exhaustive && !s.noSiblings && !res.Partial && len(res.Front) > 0 {
-		ok, left := t.cicSiblings()
+	if !s.Exhaustive && !s.noSiblings && !res.Partial {
+		ok, left := t.siblings(sp)
 		res.Partial = !ok
 		res.Unsettled += left
 		res.Front = t.front()
@@ -848,6 +848,40 @@ func search(ctx context.Context, p params, s *Settings, est *estimator, des desi
 	return res, nil
 }
 
+// siblings designs the front's CIC siblings (cicSiblings) and, where
+// chains were dropped for their rounded taps, their rounding siblings
+// (roundingSiblings) and then the CIC siblings of the front those make.
+// The CIC siblings come first so that every chain the search designs
+// without rounding siblings is designed with them too: the front can
+// then gain chains but not lose one. It reports false when cancelled, and
+// how many siblings were left undesigned.
+func (t *designTier) siblings(sp *space) (bool, int) {
+	cicLeft, roundLeft := 0, 0
+	cic := func() bool {
+		if len(t.front()) == 0 {
+			return true
+		}
+		ok, n := t.cicSiblings()
+		cicLeft = n
+		return ok
+	}
+	if !cic() {
+		return false, 0
+	}
+	if t.res.Dropped[ReasonMissQuantised] == 0 {
+		return true, cicLeft
+	}
+	ok, n := t.roundingSiblings(sp)
+	if !ok {
+		return false, 0
+	}
+	roundLeft = n
+	if !cic() {
+		return false, 0
+	}
+	return true, cicLeft + roundLeft
+}
+
 // maxSiblingRounds bounds cicSiblings' rounds.
 const maxSiblingRounds = 4
 
@@ -878,22 +912,30 @@ func (t *designTier) cicSiblings() (bool, int) {
 		// maxSiblingRounds times the front's size times the orders and
 		// delays searched.
 		debugf("siblings round %d: %d chains", round, len(plans))
-		if !t.designAll(plans) {
-			return false, 0
-		}
-		var pool [][]chain.StagePlan
-		var fs []figs
-		for _, k := range t.order {
-			if o := t.memo[k]; o.reason == "" {
-				pool = append(pool, o.c.Plan)
-				fs = append(fs, candFigs(&o.c))
-			}
-		}
-		// Every plan of the pool is designed: settle only measures.
-		if ok, _ := t.settle(pool, fs); !ok {
+		if !t.designAndSettle(plans) {
 			return false, 0
 		}
 	}
+}
+
+// designAndSettle designs plans (designAll) and takes the front again over
+// every chain designed that met, measuring its new members (settle). It
+// reports false when cancelled.
+func (t *designTier) designAndSettle(plans [][]chain.StagePlan) bool {
+	if !t.designAll(plans) {
+		return false
+	}
+	var pool [][]chain.StagePlan
+	var fs []figs
+	for _, k := range t.order {
+		if o := t.memo[k]; o.reason == "" {
+			pool = append(pool, o.c.Plan)
+			fs = append(fs, candFigs(&o.c))
+		}
+	}
+	// Every plan of the pool is designed: settle only measures.
+	ok, _ := t.settle(pool, fs)
+	return ok
 }
 
 // siblingsToDesign returns the CIC siblings of the front not designed yet

@@ -81,11 +81,12 @@ func TestEmptyFrontWordLengths(t *testing.T) {
 // coefficients: its FIR accumulators need 64 bits) and an 80 MHz to
 // 10 MHz complex one of FIR and half-band stages only (28-bit input,
 // 36-bit coefficients: its first stage's need 64). The hint is checked
-// against the tool itself.
+// against the tool itself. The CIC receiver searches two stages at most
+// but in CI's long step (accumulatorSpec).
 func TestAccumulatorHintPlans(t *testing.T) {
 	dir := t.TempDir()
 	cases := []struct{ name, spec string }{
-		{"cic", "input_rate = \"100 MHz\"\noutput_rate = \"1 MHz\"\npassband = \"300 kHz\"\nripple = \"0.1 dB\"\nrejection = \"80 dB\"\n[words]\ninput = 32\noutput = 24\ncoefficients = 40\n"},
+		{"cic", accumulatorSpec()},
 		{"fir", "input_rate = \"80 MHz\"\noutput_rate = \"10 MHz\"\npassband = \"3 MHz\"\nripple = \"0.1 dB\"\nrejection = \"85 dB\"\nsignal = \"complex\"\n[words]\ninput = 28\noutput = 24\ncoefficients = 36\n[search]\nkinds = [\"fir\", \"halfband\"]\n"},
 	}
 	hint := regexp.MustCompile(`the closest is \d+ bits? over: try (.*?) \(estimated`)
@@ -113,12 +114,25 @@ func TestAccumulatorHintPlans(t *testing.T) {
 	}
 }
 
+// accumulatorSpec is an invented 100 MHz to 1 MHz receiver whose words
+// (32-bit input, 24-bit output, 40-bit coefficients) leave its FIR
+// accumulators 64 bits or more; outside CI's long step (STEPDOWN_LONG) it
+// searches two stages at most, which halves the time of the tests that
+// plan it and each width they are told.
+func accumulatorSpec() string {
+	spec := "input_rate = \"100 MHz\"\noutput_rate = \"1 MHz\"\npassband = \"300 kHz\"\nripple = \"0.1 dB\"\nrejection = \"80 dB\"\n[words]\ninput = 32\noutput = 24\ncoefficients = 40\n"
+	if os.Getenv("STEPDOWN_LONG") == "" {
+		spec += "[search]\nmax_stages = 2\n"
+	}
+	return spec
+}
+
 // check --chain on a chain whose accumulator passes 63 bits names the
 // widths at which it would fit (report.AddWordLengths), and each of them,
 // applied alone, lets check judge the chain's rounded taps.
 func TestCheckAccumulatorHint(t *testing.T) {
 	dir := t.TempDir()
-	spec := "input_rate = \"100 MHz\"\noutput_rate = \"1 MHz\"\npassband = \"300 kHz\"\nripple = \"0.1 dB\"\nrejection = \"80 dB\"\n[words]\ninput = 32\noutput = 24\ncoefficients = 40\n"
+	spec := accumulatorSpec()
 	const named = "cic4m1r25 > fir4"
 	p := filepath.Join(dir, "cc.toml")
 	must(t, os.WriteFile(p, []byte(spec), 0o644))

@@ -2,6 +2,8 @@
 
 Usage: front_compare.py NAME OLD/report.json NEW/report.json
 
+A run that found no chain writes no report.json: its front is empty.
+
 Prints the front sizes and, each way, the chains of one front that a chain
 of the other beats on every axis (no more multiplies, memory bits and
 latency, and less of one): the chains one front holds that the other
@@ -12,8 +14,13 @@ import sys
 
 
 def points(path):
+    """The front's points; none when the run wrote no report (no chain met)."""
     out = []
-    for c in json.load(open(path))["front"]:
+    try:
+        front = json.load(open(path))["front"]
+    except FileNotFoundError:
+        return out
+    for c in front:
         cost = c.get("multiplies_per_output", c.get("multiplies_per_input"))
         out.append((cost, c["memory_bits"], c["latency_s"], c["notation"]))
     return out
