@@ -322,8 +322,9 @@
 // axis), the first maxRoundingParents (4) with a sibling not designed yet
 // (feasible by estimate), their siblings by estimated cost, at most
 // maxRoundingSiblings (24) a round and two rounds, the front taken again
-// after each (the new members measured); siblings left when the rounds
-// run out count in Result.Unsettled. Like the CIC siblings they are
+// after each (the new members measured). Siblings left when the rounds
+// run out are not counted in Result.Unsettled, which is about the estimate
+// tier's model, outside which they lie. Like the CIC siblings they are
 // designed whatever the caps and counted in Result.Designed. On the 73
 // invented specs of front_specs.py's family of widths near the target's
 // own (testdata/optimize/rounding_siblings.txt), no chain of the front

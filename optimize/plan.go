@@ -854,9 +854,9 @@ func search(ctx context.Context, p params, s *Settings, est *estimator, des desi
 // The CIC siblings come first so that every chain the search designs
 // without rounding siblings is designed with them too: the front can
 // then gain chains but not lose one. It reports false when cancelled, and
-// how many siblings were left undesigned.
+// how many CIC siblings were left undesigned.
 func (t *designTier) siblings(sp *space) (bool, int) {
-	cicLeft, roundLeft := 0, 0
+	cicLeft := 0
 	cic := func() bool {
 		if len(t.front()) == 0 {
 			return true
@@ -871,15 +871,10 @@ func (t *designTier) siblings(sp *space) (bool, int) {
 	if t.res.Dropped[ReasonMissQuantised] == 0 {
 		return true, cicLeft
 	}
-	ok, n := t.roundingSiblings(sp)
-	if !ok {
+	if !t.roundingSiblings(sp) || !cic() {
 		return false, 0
 	}
-	roundLeft = n
-	if !cic() {
-		return false, 0
-	}
-	return true, cicLeft + roundLeft
+	return true, cicLeft
 }
 
 // maxSiblingRounds bounds cicSiblings' rounds.

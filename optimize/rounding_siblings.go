@@ -29,22 +29,24 @@ const (
 // taps found no chain while cic4m2r5 > fir5L, a sibling of the cheapest
 // chain that missed, meets (TestRoundingSiblings). Siblings are taken for
 // the maxRoundingParents cheapest such chains with a sibling not designed
-// yet, cheapest estimate first, at most maxRoundingSiblings a round; the front is then taken again (settle).
-// It reports false when cancelled, and how many siblings were left
-// undesigned when the rounds ran out.
-func (t *designTier) roundingSiblings(sp *space) (bool, int) {
+// yet, cheapest estimate first, at most maxRoundingSiblings a round; the
+// front is then taken again (settle). It reports false when cancelled.
+// Siblings left when the rounds run out are not counted in
+// Result.Unsettled: they lie outside the estimate tier's model, whose
+// completeness that count is about.
+func (t *designTier) roundingSiblings(sp *space) bool {
 	for round := 0; round < maxRoundingRounds; round++ {
 		plans := t.roundingSiblingsToDesign(sp)
 		if len(plans) == 0 || t.ctx.Err() != nil {
-			return t.ctx.Err() == nil, 0
+			return t.ctx.Err() == nil
 		}
 		plans = plans[:min(len(plans), maxRoundingSiblings)]
 		debugf("rounding siblings round %d: %d chains", round, len(plans))
 		if !t.designAndSettle(plans) {
-			return false, 0
+			return false
 		}
 	}
-	return true, len(t.roundingSiblingsToDesign(sp))
+	return true
 }
 
 // roundingSiblingsToDesign returns the siblings roundingSiblings designs
