@@ -360,8 +360,9 @@ func TestRoundingNotGivenUpOnOneDesign(t *testing.T) {
 // cic4m2r5 > fir5L, searched alone (cic_orders = [4], cic_delays = [2]),
 // meets 77 dB rounded: the estimate tier kept neither the lowpass layout
 // beside the cheaper multiband one nor a CIC beaten by another order or
-// delay. Every front chain is checked by brute force on its rounded taps;
-// 75 and 79 dB run in CI's long step.
+// delay. Every front chain is checked by brute force on its rounded taps,
+// and the result is the same with one design goroutine and three; 75 and
+// 79 dB run in CI's long step.
 func TestRoundingSiblings(t *testing.T) {
 	targets := []float64{77}
 	if os.Getenv("STEPDOWN_LONG") != "" {
@@ -370,6 +371,19 @@ func TestRoundingSiblings(t *testing.T) {
 	for _, rej := range targets {
 		spec := chain.Spec{InputRate: 50e6, OutputRate: 2e6, Passband: 750e3, RippleDB: 0.1, RejectionDB: rej, InputBits: 14, OutputBits: 22, CoefBits: 12}
 		planRoundedMeets(t, spec)
+		var out [2][]byte
+		for i, jobs := range []int{1, 3} {
+			r, err := Plan(context.Background(), spec, Settings{Jobs: jobs})
+			if err != nil {
+				t.Fatal(err)
+			}
+			if out[i], err = json.Marshal(r); err != nil {
+				t.Fatal(err)
+			}
+		}
+		if !bytes.Equal(out[0], out[1]) {
+			t.Errorf("%g dB: results differ between 1 and 3 jobs (%d and %d bytes)", rej, len(out[0]), len(out[1]))
+		}
 	}
 }
 
