@@ -267,6 +267,18 @@ func printSweep(w io.Writer, source, dir string, v sweep.Vary, doc *sweep.Doc, f
 	// A row without a chain is the value, its status and the detail, which
 	// runs to the end of the line.
 	report.WriteAligned(w, "", rows, func(i int) bool { return i >= 3 })
+	// A row with a chain and a detail (a chain taken from a stricter
+	// value, a front stopped by the time limit) has it said below.
+	var notes []string
+	for _, dv := range doc.Values {
+		if dv.Recommended >= 0 && dv.Detail != "" {
+			notes = append(notes, fmt.Sprintf("  %s: %s", dv.ValueText, dv.Detail))
+		}
+	}
+	if len(notes) > 0 {
+		fmt.Fprintln(w)
+		fmt.Fprintln(w, strings.Join(notes, "\n"))
+	}
 	fmt.Fprintf(w, "\nwrote %s/ (%d files): report.json, sweep.csv, sweep.svg, sweep.png", dir, len(files))
 	for _, f := range files {
 		if f.Name == "report.html" {

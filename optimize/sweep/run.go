@@ -3,6 +3,7 @@ package sweep
 import (
 	"context"
 	"errors"
+	"fmt"
 	"math"
 	"runtime"
 	"strings"
@@ -135,7 +136,7 @@ func Run(ctx context.Context, st Study) []Result {
 	}
 	var mu sync.Mutex
 	done := 0
-	return Map(ctx, n, workers, func(ctx context.Context, i int) Result {
+	rs := Map(ctx, n, workers, func(ctx context.Context, i int) Result {
 		r := runOne(ctx, st, plan, perPlan, cells[i])
 		if st.Done != nil {
 			mu.Lock()
@@ -145,6 +146,73 @@ func Run(ctx context.Context, st Study) []Result {
 		}
 		return r
 	})
+	if st.Columns == nil {
+		borrow(ctx, st.Vary, rs)
+	}
+	return rs
+}
+
+// stricter reports, for a key along which a chain that meets a value's
+// spec meets every looser value's (rejection: a lower target; ripple: a
+// larger budget; max_stages: more stages allowed), whether value a is
+// stricter than b; ok is false for the other keys.
+func stricter(k Key, a, b float64) (is, ok bool) {
+	switch k.Name {
+	case "rejection":
+		return a > b, true
+	case "ripple", "max_stages":
+		return a < b, true
+	}
+	return false, false
+}
+
+// borrow fills each value of a one-key sweep whose search found no chain
+// (Infeasible) with the chain recommended at the nearest stricter value
+// that has one, where the key is one along which that chain meets this
+// value's spec too (stricter): at a coefficient width near the target's
+// own, whether a design's rounded taps meet is all but chance, and the
+// search at 82 dB could find none where the 83 dB one found a chain that
+// meets 82 dB as well. The value's report is built anew for its own spec
+// (word lengths, bit-true run, verdict), and the chain is kept only if it
+// meets there; its Detail says where it came from, and its Search keeps
+// what the value's own search did.
+func borrow(ctx context.Context, v Vary, rs []Result) {
+	if _, ok := stricter(v.Key, 0, 0); !ok {
+		return
+	}
+	for i := range rs {
+		r := &rs[i]
+		if ctx.Err() != nil {
+			return
+		}
+		if r.Status != Infeasible || r.Search == nil || r.Spec == nil {
+			continue
+		}
+		from := -1
+		for j := range rs {
+			if s, _ := stricter(v.Key, rs[j].Value, r.Value); !s || rs[j].Status != OK || rs[j].Detail != "" {
+				continue
+			}
+			if from < 0 || math.Abs(rs[j].Value-r.Value) < math.Abs(rs[from].Value-r.Value) {
+				from = j
+			}
+		}
+		if from < 0 {
+			continue
+		}
+		src := rs[from]
+		c := src.Search.Front[src.Search.Recommended]
+		c.MarginDB += src.Spec.Chain.RejectionDB - r.Spec.Chain.RejectionDB
+		res := *r.Search
+		res.Front, res.Recommended = []optimize.Candidate{c}, 0
+		detail := fmt.Sprintf("the search at this value found no chain; %s, recommended at %s, meets this value's spec too", chain.Notation(c.Plan), v.Key.Format(src.Value))
+		res.Reason = strings.ToUpper(detail[:1]) + detail[1:] + "."
+		rep, err := report.NewContext(ctx, "plan", r.Spec, &res)
+		if err != nil || !rep.Front[0].MeetsTargets {
+			continue
+		}
+		r.Search, r.Report, r.Status, r.Detail = &res, rep, OK, detail
+	}
 }
 
 func runOne(ctx context.Context, st Study, plan func(context.Context, chain.Spec, optimize.Settings) (*optimize.Result, error), jobs int, sets []Setting) Result {

@@ -6,6 +6,7 @@ import (
 	"errors"
 	"math"
 	"runtime"
+	"slices"
 	"strings"
 	"testing"
 
@@ -388,5 +389,49 @@ func TestInfeasibleNamesWidth(t *testing.T) {
 	})
 	if r.Status != Infeasible || !strings.HasPrefix(r.Detail, "no chain meets the spec with 18-bit coefficients: the cheapest of them, fir64, meets from 20 bits (") {
 		t.Errorf("145 dB: %s: %s", r.Status, r.Detail)
+	}
+}
+
+// A value whose search found no chain takes the chain recommended at the
+// nearest stricter value, which meets its spec too (borrow): on an invented
+// 50 to 2 MS/s receiver with 12-bit taps, the 82 dB search (here a stand-in
+// that finds none, as the real one did) gets the 83 dB row's chain, its
+// rounded taps unchanged, its margin a dB larger, its report built for
+// 82 dB; a looser value's chain is never taken (the rejection key's 84 dB
+// row stays as it is when it has none).
+func TestBorrowFromStricterValue(t *testing.T) {
+	text := "input_rate = \"50 MHz\"\noutput_rate = \"2 MHz\"\npassband = \"750 kHz\"\nripple = \"0.1 dB\"\nrejection = \"80 dB\"\n[words]\ninput = 14\noutput = 22\ncoefficients = 12\n"
+	v, err := ParseVary("rejection=82:84:1")
+	if err != nil {
+		t.Fatal(err)
+	}
+	plan := func(ctx context.Context, s chain.Spec, set optimize.Settings) (*optimize.Result, error) {
+		if s.RejectionDB == 83 {
+			return optimize.Plan(ctx, s, set)
+		}
+		return &optimize.Result{Recommended: -1, Dropped: map[optimize.Reason]int{optimize.ReasonMissQuantised: 1}, Reason: "No chain meets the spec with 12-bit coefficients."}, nil
+	}
+	rs := Run(context.Background(), Study{Name: "rx", Spec: []byte(text), Vary: v, Workers: 1, Plan: plan})
+	if rs[1].Status != OK {
+		t.Fatalf("83 dB: %s: %s", rs[1].Status, rs[1].Detail)
+	}
+	if rs[2].Status != Infeasible {
+		t.Errorf("84 dB: %s, want infeasible (83 dB is looser)", rs[2].Status)
+	}
+	r := rs[0]
+	if r.Status != OK || !strings.Contains(r.Detail, "recommended at 83 dB, meets this value's spec too") {
+		t.Fatalf("82 dB: %s: %q", r.Status, r.Detail)
+	}
+	got, src := r.Report.Front[r.Report.Recommended], rs[1].Report.Front[rs[1].Report.Recommended]
+	if got.Notation != src.Notation || !got.MeetsTargets || got.ChainReport == nil || got.QuantisedRejectionDB < 82 {
+		t.Fatalf("82 dB: %s, meets %v, word lengths %v", got.Notation, got.MeetsTargets, got.ChainReport)
+	}
+	if d := got.RejectionMarginDB - src.RejectionMarginDB; math.Abs(d-1) > 1e-9 {
+		t.Errorf("82 dB: margin %g, 83 dB's %g: want a dB more", got.RejectionMarginDB, src.RejectionMarginDB)
+	}
+	for i := range got.Stages {
+		if g, w := got.Stages[i].StageReport, src.Stages[i].StageReport; (g == nil) != (w == nil) || g != nil && !slices.Equal(g.CoefficientsInt, w.CoefficientsInt) {
+			t.Errorf("stage %d: rounded taps differ from the 83 dB row's", i+1)
+		}
 	}
 }
