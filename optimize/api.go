@@ -157,6 +157,9 @@ type Candidate struct {
 	// realDesigner.analyze); redesigns counts the re-designs for rounding.
 	raised, cut float64
 	redesigns   int
+	// first is, for a chain that met only after re-designs for rounding,
+	// its figures as first designed (the float design's); zero otherwise.
+	first cost.Figures
 	// evaluated: Figures.Analysis is measured (cost.Evaluate); survived:
 	// Quantised is measured and meets the spec (realDesigner.survive).
 	evaluated, survived bool

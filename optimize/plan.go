@@ -609,6 +609,9 @@ func (r realDesigner) surviveWith(c Candidate, spec chain.Spec, wl func() (*fixe
 			}
 			cur.Figures, cur.Quantised, cur.MarginDB = f, qa, qm
 			cur.survived = true
+			if cur.redesigns > 0 {
+				cur.first = c.Figures
+			}
 			return cur, ""
 		}
 		if r.ctx.Err() != nil || math.IsNaN(qm) || math.IsNaN(over) {
@@ -848,9 +851,9 @@ func search(ctx context.Context, p params, s *Settings, est *estimator, des desi
 	return res, nil
 }
 
-// siblings designs the front's CIC siblings (cicSiblings) and, where
-// chains were dropped for their rounded taps, their rounding siblings
-// (roundingSiblings) and then the CIC siblings of the front those make.
+// siblings designs the front's CIC siblings (cicSiblings) and, with a
+// fixed coefficient width, the rounding siblings (roundingSiblings) and
+// then the CIC siblings of the front those make.
 // The CIC siblings come first so that every chain the search designs
 // without rounding siblings is designed with them too: the front can
 // then gain chains but not lose one. It reports false when cancelled, and
@@ -868,8 +871,8 @@ func (t *designTier) siblings(sp *space) (bool, int) {
 	if !cic() {
 		return false, 0
 	}
-	if t.res.Dropped[ReasonMissQuantised] == 0 {
-		return true, cicLeft
+	if t.est.p.fixedBits == 0 {
+		return true, cicLeft // no width fixed: nothing judged on rounded taps
 	}
 	if !t.roundingSiblings(sp) || !cic() {
 		return false, 0

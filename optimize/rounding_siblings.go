@@ -17,8 +17,9 @@ const (
 )
 
 // roundingSiblings designs, when chains are judged on their rounded taps,
-// the siblings of the chains dropped for them that the front does not beat
-// on every axis: the same chain with each FIR stage in its other layout
+// the siblings of the chains dropped for them, and of those that met only
+// after re-designs for rounding (priced as first designed), that the front
+// does not beat on every axis: the same chain with each FIR stage in its other layout
 // (multiband or lowpass, where the two differ), and with its first stage,
 // a recursive CIC, at every order and delay searched, in either layout.
 //
@@ -59,13 +60,26 @@ func (t *designTier) roundingSiblingsToDesign(sp *space) [][]chain.StagePlan {
 	for i := range front {
 		ff[i] = candFigs(&front[i])
 	}
-	var parents []Candidate
+	type parent struct {
+		plan []chain.StagePlan
+		f    figs
+	}
+	var parents []parent
 	for _, k := range t.order {
 		o := t.memo[k]
-		if o.reason != ReasonMissQuantised || o.c.Plan == nil {
+		var f figs
+		switch {
+		case o.c.Plan == nil:
+			continue
+		case o.reason == ReasonMissQuantised:
+			f = candFigs(&o.c)
+		case o.reason == "" && o.c.redesigns > 0:
+			// Met only after re-designs for rounding: its cost as first
+			// designed is what a sibling that rounds better would have.
+			f = candFigs(&Candidate{Figures: o.c.first})
+		default:
 			continue
 		}
-		f := candFigs(&o.c)
 		beaten := false
 		for i := range ff {
 			if ff[i].mpo <= f.mpo && ff[i].bits <= f.bits && ff[i].lat <= f.lat {
@@ -74,12 +88,10 @@ func (t *designTier) roundingSiblingsToDesign(sp *space) [][]chain.StagePlan {
 			}
 		}
 		if !beaten {
-			parents = append(parents, o.c)
+			parents = append(parents, parent{o.c.Plan, f})
 		}
 	}
-	sort.SliceStable(parents, func(i, j int) bool {
-		return costAxis(&parents[i].Figures) < costAxis(&parents[j].Figures)
-	})
+	sort.SliceStable(parents, func(i, j int) bool { return parents[i].f.mpo < parents[j].f.mpo })
 	est := t.est
 	keep := est.keepBeaten
 	defer func() { est.keepBeaten = keep }()
@@ -87,7 +99,7 @@ func (t *designTier) roundingSiblingsToDesign(sp *space) [][]chain.StagePlan {
 	var plans [][]chain.StagePlan
 	seen := map[string]bool{}
 	taken := 0
-	for _, c := range parents {
+	for _, p := range parents {
 		if taken == maxRoundingParents {
 			break
 		}
@@ -96,7 +108,7 @@ func (t *designTier) roundingSiblingsToDesign(sp *space) [][]chain.StagePlan {
 			cost float64
 		}
 		var sibs []sib
-		for _, pl := range siblingPlans(c.Plan, sp) {
+		for _, pl := range siblingPlans(p.plan, sp) {
 			k := planKey(pl)
 			if _, ok := t.memo[k]; ok || seen[k] {
 				continue
