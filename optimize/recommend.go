@@ -3,6 +3,8 @@ package optimize
 import (
 	"fmt"
 	"math"
+
+	"github.com/stepdown-dsp/stepdown/chain"
 )
 
 // normalised returns each front point's figures divided by the front's best
@@ -137,4 +139,24 @@ func change(a, b float64, more, less string) string {
 	default:
 		return fmt.Sprintf("%.0f%% %s", -100*r, less)
 	}
+}
+
+// WithChains returns a copy of res whose front also holds cs: chains
+// designed and measured elsewhere (Candidate.Chain set) that meet res's
+// spec, such as the front of a stricter spec's search in a sweep, their
+// MarginDB over this spec's target. The front is taken again over both,
+// the recommendation made again by s's rule (Result.Reason is the new
+// recommendation's), and the rest of res kept. res is not changed.
+func WithChains(res *Result, cs []Candidate, s Settings) *Result {
+	out := *res
+	all := append(append([]Candidate(nil), res.Front...), cs...)
+	out.Front = designedFront(all)
+	fs := make([]figs, len(out.Front))
+	interp := false
+	for i := range out.Front {
+		fs[i] = candFigs(&out.Front[i])
+		interp = interp || out.Front[i].Chain != nil && out.Front[i].Chain.Direction == chain.Interpolate
+	}
+	out.Recommended, out.Reason = recommend(fs, &s, interp)
+	return &out
 }

@@ -86,16 +86,22 @@
 //
 // A chain that meets a value's spec meets it at every looser value of
 // rejection (a lower target), ripple (a larger budget) or max_stages (more
-// stages allowed). So in a one-key sweep of those, a value whose search
-// found no chain takes the chain recommended at the nearest stricter value
-// that has one (borrow): its report is built for its own spec (word
-// lengths, bit-true run, verdict) and the chain kept only if it meets there;
-// the row is "ok" with a detail saying where the chain came from, and its
-// report.json's reason says so too. At a coefficient width near the
-// target's own, whether a design's rounded taps meet is all but chance: an
-// invented 50 to 2 MS/s receiver with 12-bit taps found no chain at 82 dB
-// while the 83 dB search found one that meets 82 dB too.
-//
+// stages allowed). So in a one-key sweep of those, each value's front also
+// holds the front chains of every stricter value's own search, and for
+// rejection and ripple those of a looser value whose measured figures
+// (float and, with a fixed width, rounded) meet it by the verdict's rule;
+// a value whose search found no chain is then "ok" if it gained one. The
+// front is taken again and the recommendation made again by the spec's
+// rule (optimize.WithChains); the reports are made afterwards, each for its
+// own value's spec (word lengths, bit-true runs, verdicts), and the
+// value's detail, a note under the table, names the chains that came from
+// other values. At a coefficient width near the target's own, whether a
+// design's rounded taps meet is all but chance: an invented 72 to 6 MS/s
+// receiver with 10-bit taps swept over 60 to 72 dB recommended 15, 15, 21,
+// 15, 23, 21, 15, 16, 24, 15, 25, 25 and 27 multiplies per output; with
+// the chains of the other values it is 15 up to 71 dB and 25 at 72 dB.
+// A grid (two keys) does not do this.
+
 // sweep.csv has one row per value, in the order of the values: the value in
 // the key's base unit and written with its unit, the status, the recommended
 // chain's notation, whether its structure changed, its figures (designed,

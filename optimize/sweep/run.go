@@ -10,6 +10,7 @@ import (
 	"sync"
 
 	"github.com/stepdown-dsp/stepdown/chain"
+	"github.com/stepdown-dsp/stepdown/chain/fixed"
 	"github.com/stepdown-dsp/stepdown/chain/specfile"
 	"github.com/stepdown-dsp/stepdown/optimize"
 	"github.com/stepdown-dsp/stepdown/plots/report"
@@ -136,8 +137,9 @@ func Run(ctx context.Context, st Study) []Result {
 	}
 	var mu sync.Mutex
 	done := 0
+	settings := make([]optimize.Settings, n)
 	rs := Map(ctx, n, workers, func(ctx context.Context, i int) Result {
-		r := runOne(ctx, st, plan, perPlan, cells[i])
+		r := runOne(ctx, st, plan, perPlan, cells[i], &settings[i])
 		if st.Done != nil {
 			mu.Lock()
 			done++
@@ -146,8 +148,32 @@ func Run(ctx context.Context, st Study) []Result {
 		}
 		return r
 	})
+	var notes []string
 	if st.Columns == nil {
-		borrow(ctx, st.Vary, rs)
+		notes = borrow(st.Vary, rs, settings)
+	}
+	// The reports, once every front is final: each value's own, for its
+	// own spec (word lengths, bit-true runs, verdicts).
+	reps := Map(ctx, n, workers, func(ctx context.Context, i int) error {
+		r := &rs[i]
+		if !r.Status.HasChain() {
+			return nil
+		}
+		rep, err := report.NewContext(ctx, "plan", r.Spec, r.Search)
+		if err != nil {
+			return err
+		}
+		r.Report = rep
+		return nil
+	})
+	for i, err := range reps {
+		r := &rs[i]
+		switch {
+		case err != nil:
+			r.Status, r.Detail, r.Report = Failed, err.Error(), nil
+		case notes != nil && notes[i] != "":
+			r.Detail = notes[i]
+		}
 	}
 	return rs
 }
@@ -166,56 +192,94 @@ func stricter(k Key, a, b float64) (is, ok bool) {
 	return false, false
 }
 
-// borrow fills each value of a one-key sweep whose search found no chain
-// (Infeasible) with the chain recommended at the nearest stricter value
-// that has one, where the key is one along which that chain meets this
-// value's spec too (stricter): at a coefficient width near the target's
-// own, whether a design's rounded taps meet is all but chance, and the
-// search at 82 dB could find none where the 83 dB one found a chain that
-// meets 82 dB as well. The value's report is built anew for its own spec
-// (word lengths, bit-true run, verdict), and the chain is kept only if it
-// meets there; its Detail says where it came from, and its Search keeps
-// what the value's own search did.
-func borrow(ctx context.Context, v Vary, rs []Result) {
+// borrow adds to each value's front, in a one-key sweep along a key for
+// which stricter holds, the front chains of the other values' own searches
+// that meet this value's spec: every one of a stricter value's (they meet
+// a stricter spec), and, for rejection and ripple, a looser value's whose
+// figures meet this one (measured float and, with a fixed width, rounded,
+// by the verdict's rule, chain.Analysis.Meets). It returns the note each
+// value whose front gained such a chain is to carry in its Detail (nil
+// when the key has no such order). A value whose search found no chain
+// (Infeasible) becomes OK when it gains one. At a coefficient width near
+// the target's own, whether a design's rounded taps meet is all but
+// chance: an invented 50 to 2 MS/s receiver with 12-bit taps found no
+// chain at 82 dB while the 83 dB search found one that meets 82 dB as
+// well, and a 72 to 6 MS/s one at 10 bits recommended 21 to 25 multiplies
+// per output at 62, 64, 65, 68 and 70 dB where chains of 15 designed at
+// neighbouring values meet. The values' reports are made afterwards, for
+// their own specs, so each chain is judged again there.
+func borrow(v Vary, rs []Result, settings []optimize.Settings) []string {
 	if _, ok := stricter(v.Key, 0, 0); !ok {
-		return
+		return nil
 	}
+	byFigures := v.Key.Name == "rejection" || v.Key.Name == "ripple"
+	// The fronts of the values' own searches, before any is added to.
+	own := make([][]optimize.Candidate, len(rs))
+	for j, r := range rs {
+		if r.Status == OK && r.Search != nil {
+			own[j] = r.Search.Front
+		}
+	}
+	notes := make([]string, len(rs))
 	for i := range rs {
 		r := &rs[i]
-		if ctx.Err() != nil {
-			return
-		}
-		if r.Status != Infeasible || r.Search == nil || r.Spec == nil {
+		if (r.Status != OK && r.Status != Infeasible) || r.Search == nil || r.Spec == nil {
 			continue
 		}
-		from := -1
+		var add []optimize.Candidate
+		from := map[*chain.Chain]float64{} // the value each came from
 		for j := range rs {
-			if s, _ := stricter(v.Key, rs[j].Value, r.Value); !s || rs[j].Status != OK || rs[j].Detail != "" {
+			s, _ := stricter(v.Key, rs[j].Value, r.Value)
+			if j == i || own[j] == nil || !(s || byFigures) {
 				continue
 			}
-			if from < 0 || math.Abs(rs[j].Value-r.Value) < math.Abs(rs[from].Value-r.Value) {
-				from = j
+			for _, c := range own[j] {
+				if !s && !meets(&c, r.Spec.Chain) {
+					continue
+				}
+				c.MarginDB += rs[j].Spec.Chain.RejectionDB - r.Spec.Chain.RejectionDB
+				add = append(add, c)
+				from[c.Chain] = rs[j].Value
 			}
 		}
-		if from < 0 {
+		if len(add) == 0 {
 			continue
 		}
-		src := rs[from]
-		c := src.Search.Front[src.Search.Recommended]
-		c.MarginDB += src.Spec.Chain.RejectionDB - r.Spec.Chain.RejectionDB
-		res := *r.Search
-		res.Front, res.Recommended = []optimize.Candidate{c}, 0
-		detail := fmt.Sprintf("the search at this value found no chain; %s, recommended at %s, meets this value's spec too", chain.Notation(c.Plan), v.Key.Format(src.Value))
-		res.Reason = strings.ToUpper(detail[:1]) + detail[1:] + "."
-		rep, err := report.NewContext(ctx, "plan", r.Spec, &res)
-		if err != nil || !rep.Front[0].MeetsTargets {
+		res := optimize.WithChains(r.Search, add, settings[i])
+		var came []string
+		for _, c := range res.Front {
+			if f, ok := from[c.Chain]; ok {
+				came = append(came, fmt.Sprintf("%s (from %s)", chain.Notation(c.Plan), v.Key.Format(f)))
+			}
+		}
+		if len(came) == 0 {
 			continue
 		}
-		r.Search, r.Report, r.Status, r.Detail = &res, rep, OK, detail
+		note := "the front also holds chains designed at other values of the sweep, which meet this value's spec too: " + strings.Join(came, ", ")
+		if r.Status == Infeasible {
+			note = "the search at this value found no chain; " + note
+		}
+		r.Search, r.Status, notes[i] = res, OK, note
 	}
+	return notes
 }
 
-func runOne(ctx context.Context, st Study, plan func(context.Context, chain.Spec, optimize.Settings) (*optimize.Result, error), jobs int, sets []Setting) Result {
+// meets reports whether a designed chain's measured figures meet spec by
+// the verdict's rule: the float design's, and with a fixed coefficient
+// width its rounded taps' too.
+func meets(c *optimize.Candidate, spec chain.Spec) bool {
+	if !c.Figures.Analysis.Meets(spec) {
+		return false
+	}
+	if spec.CoefBits > 0 && spec.CoefBits <= fixed.MaxBits {
+		return c.Quantised.Meets(spec)
+	}
+	return true
+}
+
+// runOne runs one value's search, with its settings left in set; the
+// report of a value with a chain is made by Run once every front is final.
+func runOne(ctx context.Context, st Study, plan func(context.Context, chain.Spec, optimize.Settings) (*optimize.Result, error), jobs int, sets []Setting, set *optimize.Settings) Result {
 	r := Result{Value: sets[0].Value}
 	if len(sets) > 1 {
 		r.Column = sets[1].Value
@@ -230,15 +294,14 @@ func runOne(ctx context.Context, st Study, plan func(context.Context, chain.Spec
 		r.Status, r.Detail = Stopped, "not run: the sweep was stopped by its time limit or an interrupt"
 		return r
 	}
-	var set optimize.Settings
 	if st.Settings != nil {
-		set = st.Settings(spec)
+		*set = st.Settings(spec)
 	} else {
-		set = spec.SearchSettings()
+		*set = spec.SearchSettings()
 	}
 	set.Jobs = jobs
 	set.Progress = nil
-	res, err := plan(ctx, spec.Chain, set)
+	res, err := plan(ctx, spec.Chain, *set)
 	if err != nil {
 		r.Status, r.Detail = Failed, "search: "+err.Error()
 		return r
@@ -260,12 +323,6 @@ func runOne(ctx context.Context, st Study, plan func(context.Context, chain.Spec
 		r.Detail += " (" + optimize.DroppedText(res.Dropped, ", ") + ")"
 		return r
 	}
-	rep, err := report.NewContext(ctx, "plan", spec, res)
-	if err != nil {
-		r.Status, r.Detail = Failed, err.Error()
-		return r
-	}
-	r.Report = rep
 	r.Status = OK
 	if res.Partial {
 		r.Status, r.Detail = Partial, "stopped by the time limit; the front is the best found so far"
