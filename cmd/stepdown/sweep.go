@@ -207,8 +207,7 @@ func sweepFiles(source string, base *specfile.Spec, v sweep.Vary, rs []sweep.Res
 }
 
 func printSweep(w io.Writer, source, dir string, v sweep.Vary, doc *sweep.Doc, files []report.File) {
-	fmt.Fprintf(w, "stepdown sweep: %s, %s from %s to %s in steps of %s (%d values)\n\n", source, v.Key.Name,
-		v.Key.Format(v.From), v.Key.Format(v.To), v.Key.Format(v.Step), len(v.Values))
+	fmt.Fprintf(w, "stepdown sweep: %s, %s\n\n", source, rangeText(v))
 	clock := false
 	for _, dv := range doc.Values {
 		clock = clock || (dv.Best != nil && dv.Best.MultipliersAtClock != nil)

@@ -76,6 +76,9 @@ func (k Key) Format(v float64) string {
 	case Level:
 		return units.FormatNumber(v, -1) + " dB"
 	case Bits:
+		if v == 1 {
+			return "1 bit"
+		}
 		return strconv.FormatFloat(v, 'f', 0, 64) + " bits"
 	case Count:
 		n := strconv.FormatFloat(v, 'f', 0, 64)

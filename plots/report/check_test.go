@@ -158,3 +158,21 @@ func TestCompareBeats(t *testing.T) {
 		}
 	}
 }
+
+// TestCompareTies: a checked chain that ties a front chain on every axis
+// (a near twin, say its FIR in the other layout) is said to tie it, not to
+// be missing from the front.
+func TestCompareTies(t *testing.T) {
+	checked := Chain{Notation: "cic7m2r8 > fir4", MultipliesPerOutput: 22, MemoryBits: 1800, LatencyS: 2e-6, MeetsTargets: true}
+	front := []FrontChain{
+		{Notation: "cic5m2r8 > fir4", MultipliesPerOutput: 20, MemoryBits: 1900, LatencyS: 2.1e-6, MeetsTargets: true},
+		{Notation: "cic7m2r8 > fir4L", MultipliesPerOutput: 22, MemoryBits: 1800, LatencyS: 2e-6, MeetsTargets: true},
+	}
+	r := &Report{Front: []Chain{checked}}
+	r.Compare(&Comparison{Source: "the plan in report.json", Front: front})
+	var b strings.Builder
+	WriteComparison(&b, r)
+	if want := "and #2 cic7m2r8 > fir4L ties it on every axis there."; !strings.Contains(b.String(), want) || strings.Contains(b.String(), "lacks it") {
+		t.Errorf("summary %q: want %q and no claim that the front lacks it", b.String(), want)
+	}
+}

@@ -52,8 +52,20 @@ func WriteComparison(w io.Writer, rep *Report) {
 	default:
 		// It meets, and nothing there beats it: it belongs on that
 		// front, which lacks it (the plan's search did not find it, or
-		// its settings did not search it).
-		fmt.Fprintf(w, "  No chain on the front of %s (%s) beats it on every axis: it belongs on that front, which lacks it.\n", cw.Source, units.Count(len(cw.Front), "chain", "chains"))
+		// its settings did not search it), unless a chain there ties it
+		// on every axis.
+		c := rep.Front[0]
+		var ties []string
+		for k, f := range cw.Front {
+			if f.MultipliesPerOutput == c.MultipliesPerOutput && f.MemoryBits == c.MemoryBits && f.LatencyS == c.LatencyS {
+				ties = append(ties, fmt.Sprintf("#%d %s", k+1, f.Notation))
+			}
+		}
+		if len(ties) > 0 {
+			fmt.Fprintf(w, "  No chain on the front of %s (%s) beats it on every axis, and %s ties it on every axis there.\n", cw.Source, units.Count(len(cw.Front), "chain", "chains"), strings.Join(ties, " and "))
+		} else {
+			fmt.Fprintf(w, "  No chain on the front of %s (%s) beats it on every axis: it belongs on that front, which lacks it.\n", cw.Source, units.Count(len(cw.Front), "chain", "chains"))
+		}
 		if len(rep.Beats) > 0 {
 			var names []string
 			for _, k := range rep.Beats {
