@@ -122,7 +122,7 @@ func TestParseVaryErrors(t *testing.T) {
 		{"rejection=80:10000:1", "TO 10000 dB must be at most 150 dB"},
 		{"passband=1 mHz:2 MHz:1 MHz", "millihertz"},
 		{"coefficient_bits=14:20:1.5", "whole number of bits"},
-		{"coefficient_bits=1:4:1", "FROM 1 bits must be at least 2 bits"},
+		{"coefficient_bits=1:4:1", "FROM 1 bit must be at least 2 bits"},
 		{"coefficient_bits=38:44:2", "must be at most 40 bits"},
 		{"output_rate=0:1 MHz:100 kHz", "must be above 0 Hz"},
 	}
