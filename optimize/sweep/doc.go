@@ -100,7 +100,12 @@
 // receiver with 10-bit taps swept over 60 to 72 dB recommended 15, 15, 21,
 // 15, 23, 21, 15, 16, 24, 15, 25, 25 and 27 multiplies per output; with
 // the chains of the other values it is 15 up to 71 dB and 25 at 72 dB.
-// A grid (two keys) does not do this.
+// A chain designed at another value just as this value's search designed
+// it (the same stages and taps) is not added twice. A grid (two keys) does
+// not do this, and a "partial" value (stopped by the time limit) neither
+// gives nor takes chains. So a value's front in a sweep can hold chains
+// that a plan of that value alone would not find: it is the best of what
+// the whole sweep designed.
 
 // sweep.csv has one row per value, in the order of the values: the value in
 // the key's base unit and written with its unit, the status, the recommended

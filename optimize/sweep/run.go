@@ -5,6 +5,7 @@ import (
 	"errors"
 	"fmt"
 	"math"
+	"reflect"
 	"runtime"
 	"strings"
 	"sync"
@@ -234,7 +235,7 @@ func borrow(v Vary, rs []Result, settings []optimize.Settings) []string {
 				continue
 			}
 			for _, c := range own[j] {
-				if !s && !meets(&c, r.Spec.Chain) {
+				if !s && !meets(&c, r.Spec.Chain) || holds(r.Search.Front, c.Chain) || holds(add, c.Chain) {
 					continue
 				}
 				c.MarginDB += rs[j].Spec.Chain.RejectionDB - r.Spec.Chain.RejectionDB
@@ -249,7 +250,7 @@ func borrow(v Vary, rs []Result, settings []optimize.Settings) []string {
 		var came []string
 		for _, c := range res.Front {
 			if f, ok := from[c.Chain]; ok {
-				came = append(came, fmt.Sprintf("%s (from %s)", chain.Notation(c.Plan), v.Key.Format(f)))
+				came = append(came, fmt.Sprintf("%s (from %s)", r.Spec.Chain.Direction().Notation(c.Plan), v.Key.Format(f)))
 			}
 		}
 		if len(came) == 0 {
@@ -262,6 +263,18 @@ func borrow(v Vary, rs []Result, settings []optimize.Settings) []string {
 		r.Search, r.Status, notes[i] = res, OK, note
 	}
 	return notes
+}
+
+// holds reports whether cs holds a chain designed as ch is: the same stages
+// with the same taps (a search at another value that designs a chain to
+// the same requirements, as max_stages leaves them, gives the very same).
+func holds(cs []optimize.Candidate, ch *chain.Chain) bool {
+	for i := range cs {
+		if c := cs[i].Chain; c == ch || c != nil && ch != nil && reflect.DeepEqual(c.Stages, ch.Stages) {
+			return true
+		}
+	}
+	return false
 }
 
 // meets reports whether a designed chain's measured figures meet spec by

@@ -456,3 +456,17 @@ func TestBorrowFromStricterValue(t *testing.T) {
 		}
 	}
 }
+
+// A chain that another value's search designed just as this value's did
+// (the same stages, the same taps) is not added again: a max_stages sweep
+// whose searches all give the same two chains (fakePlan) keeps two on
+// every front, with no note. An independent reviewer found a front of 9
+// holding each chain three times.
+func TestBorrowNoDuplicates(t *testing.T) {
+	rs, _ := study(t, "max_stages=2:4:1", 1)
+	for _, r := range rs {
+		if r.Status != OK || len(r.Search.Front) != 2 || r.Detail != "" {
+			t.Errorf("max_stages %g: %s, front of %d, detail %q", r.Value, r.Status, len(r.Search.Front), r.Detail)
+		}
+	}
+}
