@@ -308,9 +308,11 @@
 // CIC siblings below, which are then designed again for the front this
 // step makes, so that the front can gain chains but not lose one), the
 // chains dropped for their rounded taps, and those that met only after
-// re-designs for rounding (priced as first designed: the re-designs are
-// what rounding cost that design, and the search's learnt figures carry
-// them to every chain sharing the stage), that the front does not beat on
+// re-designs for rounding that raised their cost beyond Settings.Tolerance
+// of their cost as first designed (priced as first designed: the
+// re-designs are what rounding cost that design, and the search's learnt
+// figures carry them to every chain sharing the stage; a dB of margin at a
+// comfortable width, a tap or two, does not count), that the front does not beat on
 // every axis (all of them when the front is empty) have their siblings
 // designed: the same chain with each FIR stage whose two layouts differ in
 // its other layout, every combination (of the last three such stages),

@@ -18,8 +18,9 @@ const (
 
 // roundingSiblings designs, when chains are judged on their rounded taps,
 // the siblings of the chains dropped for them, and of those that met only
-// after re-designs for rounding (priced as first designed), that the front
-// does not beat on every axis: the same chain with each FIR stage in its other layout
+// after re-designs for rounding that raised their cost beyond the band's
+// tolerance (priced as first designed), that the front does not beat on
+// every axis: the same chain with each FIR stage in its other layout
 // (multiband or lowpass, where the two differ), and with its first stage,
 // a recursive CIC, at every order and delay searched, in either layout.
 //
@@ -73,9 +74,12 @@ func (t *designTier) roundingSiblingsToDesign(sp *space) [][]chain.StagePlan {
 			continue
 		case o.reason == ReasonMissQuantised:
 			f = candFigs(&o.c)
-		case o.reason == "" && o.c.redesigns > 0:
-			// Met only after re-designs for rounding: its cost as first
-			// designed is what a sibling that rounds better would have.
+		case o.reason == "" && o.c.redesigns > 0 && costAxis(&o.c.Figures) > (1+t.est.tol)*costAxis(&o.c.first):
+			// Met only after re-designs for rounding that put its cost
+			// beyond the band's tolerance of its cost as first designed,
+			// which is what a sibling that rounds better would have (a
+			// margin of a dB or so at a comfortable width moves it by a
+			// tap or two, and its siblings would round no differently).
 			f = candFigs(&Candidate{Figures: o.c.first})
 		default:
 			continue
