@@ -337,9 +337,9 @@
 // invented specs of front_specs.py's family of widths near the target's
 // own (testdata/optimize/rounding_siblings.txt), no chain of the front
 // before beat one of the front after, chains of the front after beat some
-// of the front before on 10, and 8 of the 12 specs that found no chain
-// found one, for 0 to 0.9 s more per plan (0.25 s the median; the 73
-// plans took 107 s instead of 85).
+// of the front before on 12, and 8 of the 12 specs that found no chain
+// found one, for 0 to 1.0 s more per plan (0.23 s the median; the 73
+// plans took 104 s instead of 84).
 //
 // When no chain meets at the width, Result.Reason says so and names the
 // width that would: for the three cheapest chains dropped for their
