@@ -7,9 +7,10 @@ import (
 )
 
 // maxRoundingParents and maxRoundingSiblings bound roundingSiblings: the
-// dropped chains whose siblings are tried in one round (the cheapest with
-// a sibling not designed yet), and the siblings designed in one round (outside the caps, like cicSiblings').
-// maxRoundingRounds bounds its rounds.
+// parent chains whose siblings are tried in one round (the cheapest with a
+// sibling not designed yet), and the siblings designed in one round
+// (outside the caps, like cicSiblings'). maxRoundingRounds bounds its
+// rounds.
 const (
 	maxRoundingParents  = 4
 	maxRoundingSiblings = 24
