@@ -6,13 +6,13 @@ import (
 	"encoding/json"
 	"fmt"
 	"math"
-	"math/cmplx"
 	"os"
 	"strings"
 	"testing"
 
 	"github.com/stepdown-dsp/stepdown/chain"
 	"github.com/stepdown-dsp/stepdown/chain/fixed"
+	"github.com/stepdown-dsp/stepdown/internal/densecheck"
 )
 
 // exampleSpec is the built-in example (chain/specfile,
@@ -98,19 +98,11 @@ func roundedFigures(t *testing.T, spec chain.Spec, c *chain.Chain) (rejDB, rippl
 	if err != nil {
 		t.Fatal(err)
 	}
-	type stage struct {
-		cic     bool
-		n, m, r int
-		taps    []float64
-		rate    float64
-	}
-	var st []stage
-	rate := spec.InputRate
-	spacing := math.Inf(1) // the finest ripple, Hz
+	var st []densecheck.Stage
 	for i, s := range c.Stages {
 		switch s := s.(type) {
 		case chain.CICStage:
-			st = append(st, stage{cic: true, n: s.N, m: s.M, r: s.R, rate: rate})
+			st = append(st, densecheck.Stage{CIC: true, N: s.N, M: s.M, R: s.R})
 		case chain.FIRStage:
 			co := ws.Stages[i].Coefficients
 			if co.Bits != spec.CoefBits || len(co.Ints) != len(s.Taps) {
@@ -134,55 +126,16 @@ func roundedFigures(t *testing.T, spec chain.Spec, c *chain.Chain) (rejDB, rippl
 				}
 				taps[k] = math.Ldexp(float64(v), -co.Frac)
 			}
-			st = append(st, stage{taps: taps, rate: rate})
-			spacing = math.Min(spacing, rate/float64(len(taps)))
+			st = append(st, densecheck.Stage{R: s.R, Taps: taps})
 		default:
 			t.Fatalf("stage %d: %T", i+1, s)
 		}
-		rate /= float64(s.Factor())
 	}
-	gain := func(f float64) float64 {
-		g := 1.0
-		for _, s := range st {
-			x := math.Pi * f / s.rate
-			if s.cic {
-				rm := float64(s.r * s.m)
-				if math.Abs(math.Sin(x)) > 1e-15 {
-					g *= math.Pow(math.Abs(math.Sin(x*rm)/(rm*math.Sin(x))), float64(s.n))
-				}
-				continue
-			}
-			var h complex128
-			for k, v := range s.taps {
-				h += complex(v, 0) * cmplx.Exp(complex(0, -2*x*float64(k)))
-			}
-			g *= cmplx.Abs(h)
-		}
-		return g
-	}
-	ns, err := spec.Normalize()
+	rejDB, rippleDB, err = densecheck.Figures(spec, st)
 	if err != nil {
 		t.Fatal(err)
 	}
-	step := spacing / 64
-	dc := gain(0)
-	worst := 0.0
-	for k := 1; float64(k)*ns.OutputRate-ns.Protected < ns.InputRate/2; k++ {
-		lo := float64(k)*ns.OutputRate - ns.Protected
-		hi := math.Min(float64(k)*ns.OutputRate+ns.Protected, ns.InputRate/2)
-		for f := lo; f <= hi; f += step {
-			worst = math.Max(worst, gain(f))
-		}
-		worst = math.Max(worst, gain(hi))
-	}
-	lo, hi := math.Inf(1), 0.0
-	for f := 0.0; f <= ns.Passband; f += step {
-		g := gain(f)
-		lo, hi = math.Min(lo, g), math.Max(hi, g)
-	}
-	g := gain(ns.Passband)
-	lo, hi = math.Min(lo, g), math.Max(hi, g)
-	return -20 * math.Log10(worst/dc), 20 * math.Log10(hi/lo)
+	return rejDB, rippleDB
 }
 
 // TestNoChainAtWidth: at 8 bits no chain reaches 100 dB (the rounding

@@ -94,8 +94,8 @@
 // front is taken again and the recommendation made again by the spec's
 // rule (optimize.WithChains); the reports are made afterwards, each for its
 // own value's spec (word lengths, bit-true runs, verdicts), and the
-// value's detail, a note under the table, names the chains that came from
-// other values. At a coefficient width near the target's own, whether a
+// value's detail, a note under the table and its report.json's reason name
+// the chains that came from other values. At a coefficient width near the target's own, whether a
 // design's rounded taps meet is all but chance: an invented 72 to 6 MS/s
 // receiver with 10-bit taps swept over 60 to 72 dB recommended 15, 15, 21,
 // 15, 23, 21, 15, 16, 24, 15, 25, 25 and 27 multiplies per output; with

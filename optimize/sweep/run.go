@@ -260,6 +260,9 @@ func borrow(v Vary, rs []Result, settings []optimize.Settings) []string {
 		if r.Status == Infeasible {
 			note = "the search at this value found no chain; " + note
 		}
+		// The value's own report.json says it too, after the reason
+		// for the recommendation.
+		res.Reason += " " + strings.ToUpper(note[:1]) + note[1:] + "."
 		r.Search, r.Status, notes[i] = res, OK, note
 	}
 	return notes

@@ -14,6 +14,7 @@ import (
 	"github.com/stepdown-dsp/stepdown/chain/fixed"
 	"github.com/stepdown-dsp/stepdown/chain/specfile"
 	"github.com/stepdown-dsp/stepdown/cost"
+	"github.com/stepdown-dsp/stepdown/internal/densecheck"
 	"github.com/stepdown-dsp/stepdown/optimize"
 	"github.com/stepdown-dsp/stepdown/plots/report"
 )
@@ -399,8 +400,8 @@ func TestInfeasibleNamesWidth(t *testing.T) {
 // a stand-in that finds no chain (as the real one did), the 82 dB row gets
 // the 83 dB row's chains, their rounded taps unchanged and judged for
 // 82 dB; every row's least multiplies per output is then at most every
-// stricter row's, and every front chain meets its own row's spec as the
-// row's report judges it.
+// stricter row's, and every front chain meets its own row's spec, as the
+// row's report judges it and by brute force on the report's integers.
 func TestBorrowFromStricterValue(t *testing.T) {
 	text := "input_rate = \"50 MHz\"\noutput_rate = \"2 MHz\"\npassband = \"750 kHz\"\nripple = \"0.1 dB\"\nrejection = \"80 dB\"\n[words]\ninput = 14\noutput = 22\ncoefficients = 12\n"
 	v, err := ParseVary("rejection=80:83:1")
@@ -420,6 +421,9 @@ func TestBorrowFromStricterValue(t *testing.T) {
 	r := rs[2]
 	if r.Status != OK || !strings.HasPrefix(r.Detail, "the search at this value found no chain; the front also holds chains designed at other values of the sweep") || !strings.Contains(r.Detail, "(from 83 dB)") {
 		t.Fatalf("82 dB: %s: %q", r.Status, r.Detail)
+	}
+	if !strings.Contains(r.Report.Reason, "The search at this value found no chain;") {
+		t.Errorf("82 dB: the report's reason %q does not say where its chains came from", r.Report.Reason)
 	}
 	src := map[string]report.Chain{}
 	for _, c := range rs[3].Report.Front {
@@ -447,6 +451,14 @@ func TestBorrowFromStricterValue(t *testing.T) {
 		for _, c := range r.Report.Front {
 			if !c.MeetsTargets || c.ChainReport == nil || c.QuantisedRejectionDB < r.Value {
 				t.Errorf("%g dB: %s meets %v", r.Value, c.Notation, c.MeetsTargets)
+				continue
+			}
+			// By brute force from the report's integers (densecheck): a
+			// grid can only miss a peak, so the tool's figure may lie
+			// below it but not above by more than rounding.
+			rej, rip := reportFigures(t, r.Spec.Chain, c)
+			if rej < r.Value || rip > r.Spec.Chain.RippleDB || c.QuantisedRejectionDB > rej+0.01 {
+				t.Errorf("%g dB: %s rounded, by brute force: rejection %.3f dB (tool %.3f), ripple %.5f dB", r.Value, c.Notation, rej, c.QuantisedRejectionDB, rip)
 			}
 		}
 		for _, s := range rs[i+1:] {
@@ -469,4 +481,31 @@ func TestBorrowNoDuplicates(t *testing.T) {
 			t.Errorf("max_stages %g: %s, front of %d, detail %q", r.Value, r.Status, len(r.Search.Front), r.Detail)
 		}
 	}
+}
+
+// reportFigures is the rounded-tap rejection and ripple of a report's
+// decimation chain, from its CIC parameters and its FIR and half-band
+// stages' coefficients_int at 2^-coefficient_frac, by brute force.
+func reportFigures(t *testing.T, spec chain.Spec, c report.Chain) (rejDB, rippleDB float64) {
+	t.Helper()
+	var st []densecheck.Stage
+	for i, s := range c.Stages {
+		switch {
+		case s.Kind == "cic":
+			st = append(st, densecheck.Stage{CIC: true, N: s.CICOrder, M: s.CICDelay, R: s.Decimation})
+		case s.StageReport != nil && s.CoefficientFrac != nil && len(s.CoefficientsInt) > 0:
+			taps := make([]float64, len(s.CoefficientsInt))
+			for k, v := range s.CoefficientsInt {
+				taps[k] = math.Ldexp(float64(v), -*s.CoefficientFrac)
+			}
+			st = append(st, densecheck.Stage{R: s.Decimation, Taps: taps})
+		default:
+			t.Fatalf("%s: stage %d (%s) has no rounded taps", c.Notation, i+1, s.Kind)
+		}
+	}
+	rejDB, rippleDB, err := densecheck.Figures(spec, st)
+	if err != nil {
+		t.Fatal(err)
+	}
+	return rejDB, rippleDB
 }

@@ -145,18 +145,25 @@ func TestCompareBeats(t *testing.T) {
 		{Notation: "cic5m2r20 > fir4L", MultipliesPerOutput: 19, MemoryBits: 1407, LatencyS: 4.67e-6, MeetsTargets: true},
 		{Notation: "cic4m2r20 > fir4", MultipliesPerOutput: 20, MemoryBits: 1357, LatencyS: 5.9e-6, MeetsTargets: true},
 	}
-	r := &Report{Front: []Chain{checked}}
-	r.Compare(&Comparison{Source: "the plan in report.json", Front: front})
+	r, text := compared(checked, front)
 	if len(r.Beats) != 1 || r.Beats[0] != 2 {
 		t.Fatalf("Beats = %v, want [2]: the second is worse on every axis, the first has less latency", r.Beats)
 	}
-	var b strings.Builder
-	WriteComparison(&b, r)
 	for _, want := range []string{"beats it on every axis: it belongs on that front, which lacks it", "It beats #2 cic4m2r20 > fir4 there on every axis."} {
-		if !strings.Contains(b.String(), want) {
-			t.Errorf("summary %q lacks %q", b.String(), want)
+		if !strings.Contains(text, want) {
+			t.Errorf("summary %q lacks %q", text, want)
 		}
 	}
+}
+
+// compared is the report of a check of checked against a plan's front and
+// the summary WriteComparison writes of it.
+func compared(checked Chain, front []FrontChain) (*Report, string) {
+	r := &Report{Front: []Chain{checked}}
+	r.Compare(&Comparison{Source: "the plan in report.json", Front: front})
+	var b strings.Builder
+	WriteComparison(&b, r)
+	return r, b.String()
 }
 
 // TestCompareTies: a checked chain that ties a front chain on every axis
@@ -168,11 +175,8 @@ func TestCompareTies(t *testing.T) {
 		{Notation: "cic5m2r8 > fir4", MultipliesPerOutput: 20, MemoryBits: 1900, LatencyS: 2.1e-6, MeetsTargets: true},
 		{Notation: "cic7m2r8 > fir4L", MultipliesPerOutput: 22, MemoryBits: 1800, LatencyS: 2e-6, MeetsTargets: true},
 	}
-	r := &Report{Front: []Chain{checked}}
-	r.Compare(&Comparison{Source: "the plan in report.json", Front: front})
-	var b strings.Builder
-	WriteComparison(&b, r)
-	if want := "and #2 cic7m2r8 > fir4L ties it on every axis there."; !strings.Contains(b.String(), want) || strings.Contains(b.String(), "lacks it") {
-		t.Errorf("summary %q: want %q and no claim that the front lacks it", b.String(), want)
+	_, text := compared(checked, front)
+	if want := "and #2 cic7m2r8 > fir4L ties it on every axis there."; !strings.Contains(text, want) || strings.Contains(text, "lacks it") {
+		t.Errorf("summary %q: want %q and no claim that the front lacks it", text, want)
 	}
 }
