@@ -660,7 +660,11 @@ func stageViews(c report.Chain, files []string, prefix string, clock bool) []sta
 			}
 		}
 		if w := s.StageReport; w != nil {
-			add("Word lengths", fmt.Sprintf("in %d bits, accumulator %d bits, out %d bits", w.InputBits, w.AccumulatorBits, w.OutputBits))
+			acc := fmt.Sprintf("accumulator %d bits", w.AccumulatorBits)
+			if s.AccumulatorOverLimit {
+				acc += " (wider than hardware.max_register_bits)"
+			}
+			add("Word lengths", fmt.Sprintf("in %d bits, %s, out %d bits", w.InputBits, acc, w.OutputBits))
 			if w.MultiplierSize != "" {
 				m := w.MultiplierSize + " bits"
 				if w.HardwareMultipliers != nil {

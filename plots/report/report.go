@@ -245,10 +245,17 @@ type Chain struct {
 	Adders            *int `json:"adders,omitempty"`
 	CoefficientAdders *int `json:"coefficient_adders,omitempty"`
 	StructuralAdders  *int `json:"structural_adders,omitempty"`
+	// AccumulatorOverLimit: some stage's accumulator passes
+	// hardware.max_register_bits (Stage.AccumulatorOverLimit); absent
+	// otherwise.
+	AccumulatorOverLimit bool `json:"accumulator_over_limit,omitempty"`
 
 	// plan is the word-length plan behind ChainReport (AddWordLengths),
 	// kept for the hand-off files; nil without one.
 	plan *handoffPlan
+	// widths is the word-length plan's widths (AddWordLengths), nil
+	// without one.
+	widths *fixed.Widths
 	// interp: an interpolation chain, whose report.json keys say image
 	// and per input sample (see MarshalJSON).
 	interp bool
@@ -298,6 +305,11 @@ type Stage struct {
 	StructuralAdders  *int `json:"structural_adders,omitempty"`
 	Adders            *int `json:"adders,omitempty"`
 	AddersEstimated   bool `json:"adders_estimated,omitempty"`
+	// AccumulatorOverLimit marks a FIR, half-band or fractional stage
+	// whose accumulator_bits pass hardware.max_register_bits
+	// (optimize.AccumulatorsOverLimit); absent otherwise. The search holds
+	// chains to the limit only with a fixed coefficient width.
+	AccumulatorOverLimit bool `json:"accumulator_over_limit,omitempty"`
 
 	// CIC only.
 	CICOrder int `json:"cic_order,omitempty"`
@@ -707,6 +719,7 @@ func AddWordLengths(ctx context.Context, c *Chain, spec chain.Spec, cand optimiz
 	}
 	cr.Stages = nil
 	c.ChainReport = &cr
+	c.widths = res.Widths
 	if cas, _, err := fixed.FromChain(spec, cand.Chain); err == nil && !frac {
 		c.plan = &handoffPlan{cascade: cas, widths: res.Widths, worstAliasHz: res.Quantised.WorstAliasHz}
 	}
@@ -714,6 +727,19 @@ func AddWordLengths(ctx context.Context, c *Chain, spec chain.Spec, cand optimiz
 		c.MeetsTargets = c.FloatMeetsTargets && res.Quantised.Meets(spec)
 		// The verdict needs both to meet: the margin is the worse one's.
 		c.RejectionMarginDB = math.Min(res.Quantised.AliasRejectionDB, c.AliasRejectionDB) - spec.RejectionDB
+	}
+}
+
+// markAccumulators sets c's AccumulatorOverLimit flags from its
+// word-length plan and the fabric's limits.
+func markAccumulators(c *Chain, l optimize.Limits) {
+	over := optimize.AccumulatorsOverLimit(c.widths, l)
+	if len(over) != len(c.Stages) {
+		return
+	}
+	for i, o := range over {
+		c.Stages[i].AccumulatorOverLimit = o
+		c.AccumulatorOverLimit = c.AccumulatorOverLimit || o
 	}
 }
 
@@ -845,6 +871,7 @@ func newReport(ctx context.Context, command string, s *specfile.Spec, res *optim
 			}
 		}
 		r.Front[i].Resources = NewResources(&r.Front[i], s.Clock, s.Chain.ChannelRate(), paths)
+		markAccumulators(&r.Front[i], s.Limits)
 	}
 	return r, nil
 }

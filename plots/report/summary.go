@@ -137,13 +137,13 @@ func WriteWordLengths(w io.Writer, rep *Report) {
 		case st.Kind == chain.Farrow.String():
 			// Its branches, mu word and Horner register (package
 			// chain/fixed, Fractional stages).
-			fmt.Fprintf(&b, ", coefficients %d bits (%d rows), branch accumulators %d bits, mu %d bits, Horner register %d bits, multiplier %s",
-				sr.CoefficientBits, sr.CoefficientRows, sr.AccumulatorBits, sr.MuBits, sr.HornerBits, sr.MultiplierSize)
+			fmt.Fprintf(&b, ", coefficients %d bits (%d rows), branch accumulators %d bits%s, mu %d bits, Horner register %d bits, multiplier %s",
+				sr.CoefficientBits, sr.CoefficientRows, sr.AccumulatorBits, overMark(st), sr.MuBits, sr.HornerBits, sr.MultiplierSize)
 			if !sr.QuantisedMeetsBands {
 				b.WriteString(", rounded taps miss this stage's own bands (the chain is judged as a whole)")
 			}
 		case rep.Spec.Hardware.Multiplierless:
-			fmt.Fprintf(&b, ", coefficients %d bits, accumulator %d bits, an adder graph", sr.CoefficientBits, sr.AccumulatorBits)
+			fmt.Fprintf(&b, ", coefficients %d bits, accumulator %d bits%s, an adder graph", sr.CoefficientBits, sr.AccumulatorBits, overMark(st))
 			if st.CoefficientAdders != nil && st.StructuralAdders != nil {
 				fmt.Fprintf(&b, " of %d adders and %d tap adders (one lane, one real filter)", *st.CoefficientAdders, *st.StructuralAdders)
 			}
@@ -151,7 +151,7 @@ func WriteWordLengths(w io.Writer, rep *Report) {
 				b.WriteString(", rounded taps miss this stage's own bands (the chain is judged as a whole)")
 			}
 		default:
-			fmt.Fprintf(&b, ", coefficients %d bits, accumulator %d bits, multiplier %s", sr.CoefficientBits, sr.AccumulatorBits, sr.MultiplierSize)
+			fmt.Fprintf(&b, ", coefficients %d bits, accumulator %d bits%s, multiplier %s", sr.CoefficientBits, sr.AccumulatorBits, overMark(st), sr.MultiplierSize)
 			if sr.HardwareMultipliers != nil {
 				fmt.Fprintf(&b, " (%d hardware at %s)", *sr.HardwareMultipliers, rep.Spec.Hardware.Multiplier)
 			}
@@ -162,6 +162,53 @@ func WriteWordLengths(w io.Writer, rep *Report) {
 		fmt.Fprintf(&b, ", out %d bits", sr.OutputBits)
 		fmt.Fprintln(w, b.String())
 	}
+	if ch.AccumulatorOverLimit {
+		n := 0
+		var within []string // front chains whose planned accumulators fit
+		for k, c := range rep.Front {
+			switch {
+			case c.AccumulatorOverLimit:
+				n++
+			case c.ChainReport != nil && len(within) < 3:
+				within = append(within, fmt.Sprintf("#%d %s", k+1, c.Notation))
+			}
+		}
+		fmt.Fprintf(w, "  Over the fabric's limit: %s wider than hardware.max_register_bits = %d, as in %d of the %s (accumulator_over_limit in report.json)",
+			overStages(ch), rep.Spec.Hardware.MaxRegisterBits, n, units.Count(len(rep.Front), "front chain", "front chains"))
+		if len(within) > 0 {
+			fmt.Fprintf(w, "; within it: %s", strings.Join(within, ", "))
+		}
+		fmt.Fprint(w, ".")
+		if rep.Spec.Words.CoefficientsMode != "fixed" {
+			fmt.Fprint(w, " With coefficients auto the search does not hold FIR and half-band accumulators to it; a fixed words.coefficients width has the search drop the chains whose accumulators pass it.")
+		}
+		fmt.Fprintln(w)
+	}
+}
+
+// overMark is " (over the limit)" for a stage whose accumulator passes
+// hardware.max_register_bits, else "".
+func overMark(st Stage) string {
+	if st.AccumulatorOverLimit {
+		return " (over the limit)"
+	}
+	return ""
+}
+
+// overStages names ch's stages whose accumulators pass the fabric's limit:
+// "the accumulator of stage 3 is" or "the accumulators of stages 2 and 3
+// are".
+func overStages(ch Chain) string {
+	var ids []string
+	for i, st := range ch.Stages {
+		if st.AccumulatorOverLimit {
+			ids = append(ids, fmt.Sprint(i+1))
+		}
+	}
+	if len(ids) == 1 {
+		return "the accumulator of stage " + ids[0] + " is"
+	}
+	return "the accumulators of stages " + strings.Join(ids[:len(ids)-1], ", ") + " and " + ids[len(ids)-1] + " are"
 }
 
 // WriteTable writes the front as the command line's table: one row per

@@ -8,6 +8,7 @@ import (
 	"math"
 	"math/bits"
 	"regexp"
+	"slices"
 	"strconv"
 	"strings"
 	"testing"
@@ -310,5 +311,90 @@ output = 30
 				t.Errorf("%d bits: %s named, but: %v", bits, w[0], err)
 			}
 		}
+	}
+}
+
+// TestAccumulatorOverLimit checks report.json's accumulator_over_limit
+// flags, and the word-length lines that show them, against the rule read
+// from report.json itself: a FIR or half-band stage whose accumulator_bits
+// pass hardware.max_register_bits. The limit sweeps the chain's own
+// accumulator widths, so that every case from none to all stages over it
+// is met; with coefficients auto the search does not hold the chain to it.
+func TestAccumulatorOverLimit(t *testing.T) {
+	s, res := designedFront(t, "")
+	r, err := New("plan", s, res)
+	if err != nil {
+		t.Fatal(err)
+	}
+	var widths []int
+	for _, st := range r.Front[0].Stages {
+		if st.Kind != "cic" && st.StageReport != nil {
+			widths = append(widths, st.AccumulatorBits)
+		}
+	}
+	if len(widths) < 2 {
+		t.Fatalf("want two FIR or half-band accumulators, have %v", widths)
+	}
+	seen := map[int]bool{} // stages over the limit, by count
+	for lim := slices.Min(widths) - 1; lim <= slices.Max(widths); lim++ {
+		s, res := designedFront(t, fmt.Sprintf("[hardware]\nmax_register_bits = %d\n", lim))
+		r, err := New("plan", s, res)
+		if err != nil {
+			t.Fatal(err)
+		}
+		b, err := r.Marshal()
+		if err != nil {
+			t.Fatal(err)
+		}
+		var doc struct {
+			Spec struct {
+				Hardware struct {
+					MaxRegisterBits int `json:"max_register_bits"`
+				} `json:"hardware"`
+			} `json:"spec"`
+			Front []struct {
+				Over   bool `json:"accumulator_over_limit"`
+				Stages []struct {
+					Kind string `json:"kind"`
+					Acc  int    `json:"accumulator_bits"`
+					Over bool   `json:"accumulator_over_limit"`
+				} `json:"stages"`
+			} `json:"front"`
+		}
+		if err := json.Unmarshal(b, &doc); err != nil {
+			t.Fatal(err)
+		}
+		if doc.Spec.Hardware.MaxRegisterBits != lim {
+			t.Fatalf("limit %d: report.json says max_register_bits %d", lim, doc.Spec.Hardware.MaxRegisterBits)
+		}
+		var text bytes.Buffer
+		WriteWordLengths(&text, r)
+		lines := strings.Split(text.String(), "\n")
+		n := 0
+		for i, st := range doc.Front[0].Stages {
+			want := st.Kind != "cic" && st.Acc > lim
+			if st.Over != want {
+				t.Errorf("limit %d: stage %d (%s, accumulator %d bits) accumulator_over_limit %v, want %v", lim, i+1, st.Kind, st.Acc, st.Over, want)
+			}
+			if want {
+				n++
+			}
+			prefix := fmt.Sprintf("  %d ", i+1)
+			for _, l := range lines {
+				if strings.HasPrefix(l, prefix) && strings.Contains(l, "(over the limit)") != want {
+					t.Errorf("limit %d: stage %d's line %q, want the mark %v", lim, i+1, l, want)
+				}
+			}
+		}
+		seen[n] = true
+		if doc.Front[0].Over != (n > 0) {
+			t.Errorf("limit %d: chain accumulator_over_limit %v with %d stages over", lim, doc.Front[0].Over, n)
+		}
+		if note := strings.Contains(text.String(), "Over the fabric's limit"); note != (n > 0) {
+			t.Errorf("limit %d: note shown %v with %d stages over:\n%s", lim, note, n, text.String())
+		}
+	}
+	if !seen[0] || !seen[len(widths)] {
+		t.Errorf("the limits swept met stage counts %v, want 0 to %d", seen, len(widths))
 	}
 }
