@@ -72,7 +72,9 @@ type Result struct {
 	Value  float64
 	Column float64
 	Status Status
-	// Detail explains a status other than ok, in one line.
+	// Detail explains a status other than ok, in one line; for ok, it
+	// names the chains taken from other values (borrow) and a recommended
+	// chain whose word lengths pass hardware.max_register_bits.
 	Detail string
 	Spec   *specfile.Spec   // nil when Invalid
 	Search *optimize.Result // nil unless the search ran
@@ -172,8 +174,19 @@ func Run(ctx context.Context, st Study) []Result {
 		switch {
 		case err != nil:
 			r.Status, r.Detail, r.Report = Failed, err.Error(), nil
+			continue
 		case notes != nil && notes[i] != "":
 			r.Detail = notes[i]
+		}
+		if rep := r.Report; rep != nil && rep.Recommended >= 0 && rep.Recommended < len(rep.Front) && rep.Front[rep.Recommended].AccumulatorOverLimit {
+			// The search holds accumulators to the fabric's limit only
+			// with a fixed coefficient width; the row says when the
+			// recommended chain's word lengths pass it.
+			note := "the recommended chain's word lengths need an accumulator wider than hardware.max_register_bits (accumulator_over_limit)"
+			if r.Detail != "" {
+				note = r.Detail + "; " + note
+			}
+			r.Detail = note
 		}
 	}
 	return rs

@@ -4,6 +4,7 @@ import (
 	"bytes"
 	"context"
 	"errors"
+	"fmt"
 	"math"
 	"runtime"
 	"slices"
@@ -508,4 +509,43 @@ func reportFigures(t *testing.T, spec chain.Spec, c report.Chain) (rejDB, ripple
 		t.Fatal(err)
 	}
 	return rejDB, rippleDB
+}
+
+// TestAccumulatorOverLimitRow checks that a row says when its recommended
+// chain's word lengths pass hardware.max_register_bits, exactly when that
+// value's report flags it (accumulator_over_limit), on an invented 16 MHz
+// to 500 kHz receiver with coefficients auto (the search does not hold
+// accumulators then) at a limit every FIR passes and one none does.
+func TestAccumulatorOverLimitRow(t *testing.T) {
+	v, err := ParseVary("rejection=60:70:10")
+	if err != nil {
+		t.Fatal(err)
+	}
+	seen := map[bool]bool{}
+	for _, lim := range []int{12, 120} {
+		text := fmt.Sprintf(`input_rate = "16 MHz"
+output_rate = "500 kHz"
+passband = "100 kHz"
+ripple = "0.5 dB"
+rejection = "70 dB"
+[hardware]
+max_register_bits = %d
+[search]
+max_stages = 2
+`, lim)
+		rs := Run(context.Background(), Study{Name: "rx", Spec: []byte(text), Vary: v, Workers: 1})
+		for _, r := range rs {
+			if r.Report == nil {
+				t.Fatalf("limit %d, %v: no report (%s: %s)", lim, r.Value, r.Status, r.Detail)
+			}
+			over := r.Report.Front[r.Report.Recommended].AccumulatorOverLimit
+			seen[over] = true
+			if says := strings.Contains(r.Detail, "accumulator_over_limit"); says != over {
+				t.Errorf("limit %d, %v: detail %q, recommended chain over the limit %v", lim, r.Value, r.Detail, over)
+			}
+		}
+	}
+	if !seen[true] || !seen[false] {
+		t.Errorf("the limits met only over = %v", seen)
+	}
 }
