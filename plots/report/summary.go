@@ -7,6 +7,7 @@ import (
 	"strings"
 
 	"github.com/stepdown-dsp/stepdown/chain"
+	"github.com/stepdown-dsp/stepdown/chain/specfile"
 	"github.com/stepdown-dsp/stepdown/chain/units"
 	"github.com/stepdown-dsp/stepdown/cost"
 )
@@ -180,10 +181,33 @@ func WriteWordLengths(w io.Writer, rep *Report) {
 		}
 		fmt.Fprint(w, ".")
 		if rep.Spec.Words.CoefficientsMode != "fixed" {
-			fmt.Fprint(w, " With coefficients auto the search does not hold FIR and half-band accumulators to it; a fixed words.coefficients width has the search drop the chains whose accumulators pass it.")
+			fmt.Fprint(w, " With coefficients auto the search does not hold FIR and half-band accumulators to it; a fixed words.coefficients width has the search drop the chains whose accumulators pass it")
+			if c := fittingWidth(ch, rep.Spec.Hardware.MaxRegisterBits); c >= specfile.MinWordBits {
+				fmt.Fprintf(w, " (this chain's would fit up to about %d bits, an estimate: an accumulator grows about a bit per coefficient bit)", c)
+			}
+			fmt.Fprint(w, ".")
 		}
 		fmt.Fprintln(w)
 	}
+}
+
+// fittingWidth is the widest coefficient width at which every FIR,
+// half-band and fractional stage of ch would keep its accumulator within
+// limit, were each accumulator to keep its present excess over the
+// stage's coefficient bits: limit less the largest such excess. An
+// estimate (the excess moves by a bit with the rounded taps' sum); 0
+// without word lengths.
+func fittingWidth(ch Chain, limit int) int {
+	excess := -1
+	for _, st := range ch.Stages {
+		if sr := st.StageReport; sr != nil && st.Kind != "cic" && sr.CoefficientBits > 0 {
+			excess = max(excess, sr.AccumulatorBits-sr.CoefficientBits)
+		}
+	}
+	if excess < 0 {
+		return 0
+	}
+	return limit - excess
 }
 
 // overMark is " (over the limit)" for a stage whose accumulator passes

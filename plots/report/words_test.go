@@ -7,6 +7,7 @@ import (
 	"fmt"
 	"math"
 	"math/bits"
+	"math/rand/v2"
 	"regexp"
 	"slices"
 	"strconv"
@@ -396,5 +397,46 @@ func TestAccumulatorOverLimit(t *testing.T) {
 	}
 	if !seen[0] || !seen[len(widths)] {
 		t.Errorf("the limits swept met stage counts %v, want 0 to %d", seen, len(widths))
+	}
+}
+
+// TestFittingWidth checks the width the accumulator note suggests
+// (fittingWidth) by planning the chain again with it fixed: every FIR and
+// half-band accumulator must then be within the limit. Invented 16 MHz to
+// 500 kHz receivers, rejection and limit drawn from a seeded RNG.
+func TestFittingWidth(t *testing.T) {
+	rng := rand.New(rand.NewPCG(11, 3))
+	plans := []string{"cic3m1r8 > hb > fir2", "hb > hb > fir8", "cic4m1r4 > fir8", "fir4 > fir8", "cic5m1r16 > fir2"}
+	n := 0
+	for range 24 {
+		text := fmt.Sprintf("input_rate = \"16 MHz\"\noutput_rate = \"500 kHz\"\npassband = \"100 kHz\"\nripple = \"0.5 dB\"\nrejection = \"%d dB\"\n", 55+rng.IntN(40))
+		nt := plans[rng.IntN(len(plans))]
+		s, res := designed(t, text, nt)
+		r, err := New("plan", s, res)
+		if err != nil {
+			t.Fatal(err)
+		}
+		lim := 28 + rng.IntN(16)
+		wd := fittingWidth(r.Front[0], lim)
+		if wd < specfile.MinWordBits {
+			continue
+		}
+		s2, res2 := designed(t, text+fmt.Sprintf("[words]\ncoefficients = %d\n", wd), nt)
+		r2, err := New("plan", s2, res2)
+		if err != nil {
+			t.Fatal(err)
+		}
+		if r2.Front[0].ChainReport == nil {
+			t.Fatalf("%s, %s: no word lengths at %d bits: %s", nt, text, wd, r2.Front[0].WordLengthsError)
+		}
+		for i, st := range r2.Front[0].Stages {
+			if st.Kind != "cic" && st.StageReport != nil && st.AccumulatorBits > lim {
+				t.Errorf("%s: stage %d's accumulator %d bits at the suggested %d-bit coefficients, over the limit %d", nt, i+1, st.AccumulatorBits, wd, lim)
+			}
+		}
+		n++
+	}
+	if n < 12 {
+		t.Errorf("only %d cases had a width to suggest", n)
 	}
 }
