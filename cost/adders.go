@@ -148,6 +148,24 @@ func graphOf(ints []int64) (*mcm.Graph, error) {
 	return g, nil
 }
 
+// KeepAdders gives f, a multiplierless chain's figures priced again (say,
+// by Evaluate, for its analysis), the adder counts of g, the same chain's
+// figures once counted from its integer coefficients (CountInts): pricing
+// counts taps it rounds itself, which may differ from the build's by a
+// step. It does nothing unless both are multiplierless and of as many
+// stages.
+func (f *Figures) KeepAdders(g Figures) {
+	if !f.Multiplierless || !g.Multiplierless || len(f.Stages) != len(g.Stages) {
+		return
+	}
+	f.Stages = append([]StageFigures(nil), f.Stages...) // not the caller's copy's
+	for i := range f.Stages {
+		s, t := &f.Stages[i], &g.Stages[i]
+		s.CoefficientAdders, s.StructuralAdders, s.Adders, s.AddersEstimated = t.CoefficientAdders, t.StructuralAdders, t.Adders, t.AddersEstimated
+	}
+	f.Adders = g.Adders
+}
+
 // CountInts re-counts a multiplierless chain's FIR and half-band blocks
 // from the integer coefficients it will be built with: ints[i], when not
 // empty, are stage i's (such as a word-length plan's, whose rounding may

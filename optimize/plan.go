@@ -328,6 +328,11 @@ func (r realDesigner) measure(c Candidate) (Candidate, Reason) {
 			}
 			return Candidate{}, ReasonEvaluateFailed
 		}
+		if c.survived {
+			// Its adders were counted on its rounded taps (survive):
+			// pricing again rounds the taps its own way.
+			f.KeepAdders(c.Figures)
+		}
 	}
 	first := c.Chain
 	margin := f.Analysis.AliasRejectionDB - r.spec.RejectionDB
@@ -401,7 +406,7 @@ func (r realDesigner) measure(c Candidate) (Candidate, Reason) {
 			if err != nil {
 				return Candidate{acc: fixed.AsAccumulatorError(err)}, ReasonWordLengths
 			}
-			if err := c.Figures.CountInts(cx(c.Chain), planInts(ws)); err != nil {
+			if err := c.Figures.CountInts(cx(c.Chain), planInts(c.Chain, ws)); err != nil {
 				return Candidate{}, ReasonWordLengths
 			}
 		}
@@ -579,8 +584,7 @@ func (r realDesigner) surviveWith(c Candidate, spec chain.Spec, wl func() (*fixe
 	// The stages whose rounded taps miss their own bands are blamed should
 	// the chain be dropped (see designTier.learn).
 	blame, hopeless := make([]bool, len(ws.Stages)), make([]bool, len(ws.Stages))
-	for i := range ws.Stages {
-		sw := &ws.Stages[i]
+	for i, sw := range chainOrder(c.Chain, ws) {
 		blame[i] = !sw.MeetsBands
 		// A stage whose rounding adds its whole stopband limit to some
 		// stopband (band 0 is the passband) misses in any chain.
@@ -600,7 +604,7 @@ func (r realDesigner) surviveWith(c Candidate, spec chain.Spec, wl func() (*fixe
 			if f.Multiplierless {
 				// Count the adder graphs of the taps as rounded for the
 				// build (the report's coefficients_int), not as priced.
-				if err := f.CountInts(cx(cur.Chain), planInts(ws)); err != nil {
+				if err := f.CountInts(cx(cur.Chain), planInts(cur.Chain, ws)); err != nil {
 					return c, ReasonWordLengths
 				}
 			}
@@ -696,12 +700,27 @@ func (r realDesigner) surviveWith(c Candidate, spec chain.Spec, wl func() (*fixe
 	return c, ReasonMissQuantised
 }
 
-// planInts are a word-length plan's rounded coefficients, stage by stage
-// (empty for a CIC).
-func planInts(ws *fixed.Widths) [][]int64 {
-	out := make([][]int64, len(ws.Stages))
-	for i := range ws.Stages {
-		out[i] = ws.Stages[i].Coefficients.Ints
+// planInts are the rounded coefficients of c's word-length plan ws, in
+// the order of c.Stages (empty for a CIC).
+func planInts(c *chain.Chain, ws *fixed.Widths) [][]int64 {
+	st := chainOrder(c, ws)
+	out := make([][]int64, len(st))
+	for i, sw := range st {
+		out[i] = sw.Coefficients.Ints
+	}
+	return out
+}
+
+// chainOrder returns the stages of c's word-length plan ws in the order
+// of c.Stages: ws lists them in signal order (package fixed), which an
+// interpolation chain's Stages reverse (chain.Chain.SignalOrder). Figures
+// and plans index stages as c.Stages does.
+func chainOrder(c *chain.Chain, ws *fixed.Widths) []*fixed.StageWidths {
+	out := make([]*fixed.StageWidths, len(ws.Stages))
+	for k, i := range c.SignalOrder() {
+		if k < len(ws.Stages) && i < len(out) {
+			out[i] = &ws.Stages[k]
+		}
 	}
 	return out
 }
