@@ -164,6 +164,20 @@ func (c *Chain) SignalOrder() []int {
 	return idx
 }
 
+// Lanes is how many samples a stage whose high rate (the rate its taps or
+// integrators run at) is rate Hz must take per cycle of a clock of clock
+// Hz: ceil(rate/clock), and 1 without a clock (0) or at or below it. Such
+// a stage is built as that many parallel lanes (a polyphase decomposition
+// of the same filter; a CIC's integrators once per lane): common practice,
+// a planning estimate of the structure. Package cost prices lanes and
+// package fixed counts a CIC's registers by this one rule.
+func Lanes(rate, clock float64) int {
+	if !(clock > 0) || !(rate > clock) {
+		return 1
+	}
+	return int(math.Ceil(rate/clock - 1e-9))
+}
+
 // SignalRates returns the rate of the samples entering and leaving
 // Stages[i] in signal order: (Rates()[i], Rates()[i+1]) for a decimation
 // chain, the other way round for an interpolation chain.

@@ -296,15 +296,8 @@ func inputsPer(st chain.Stage) float64 {
 }
 
 // Lanes is how many samples a stage whose input runs at rate Hz must take
-// per cycle of a clock of clock Hz: ceil(rate/clock), and 1 without a clock
-// (0) or at or below it. Such a stage is built as that many parallel
-// lanes (a polyphase decomposition of the same filter).
-func Lanes(rate, clock float64) int {
-	if !(clock > 0) || !(rate > clock) {
-		return 1
-	}
-	return int(math.Ceil(rate/clock - 1e-9))
-}
+// per cycle of a clock of clock Hz (chain.Lanes, the rule's owner).
+func Lanes(rate, clock float64) int { return chain.Lanes(rate, clock) }
 
 // CICMemoryBits is a CIC's register memory as Price counts it: each
 // integrator's register once per lane (a CIC whose input runs above the

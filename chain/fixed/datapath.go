@@ -500,6 +500,7 @@ func plan(c Cascade, w Words, s Settings, minBits []int) (*Widths, error) {
 		}
 		sw.InputRate, sw.Interpolate = rates[i], c.Interpolate
 		sw.costAtClock(sw.lowRate(), c.Complex, s)
+		sw.cicLanes(s.Clock)
 		data := sw.DataMemoryBits
 		if c.Complex {
 			data *= 2
@@ -996,6 +997,30 @@ func (sw *StageWidths) costAtClock(outRate float64, complexData bool, s Settings
 		rate *= 2
 	}
 	sw.HardwareMultipliers = int(math.Ceil(rate/s.Clock-1e-12)) * sw.NativePerProduct
+}
+
+// cicLanes counts a recursive CIC's integrator registers once per lane
+// when its high rate, where the integrators run, is above the clock
+// (chain.Lanes): the structure package cost prices (cost.CICMemoryBits),
+// so that DataMemoryBits is the memory as built. The combs run at the low
+// rate and are counted once.
+func (sw *StageWidths) cicLanes(clock float64) {
+	lanes := chain.Lanes(sw.HighRate(), clock)
+	if !sw.CIC || sw.NonRecursive || lanes < 2 {
+		return
+	}
+	integ := 0
+	switch {
+	case sw.Pruning != nil && !sw.Interpolate:
+		for _, b := range sw.Pruning.RegisterBits[:sw.Pruning.N] {
+			integ += b
+		}
+	case sw.CICInterp != nil:
+		for _, b := range sw.CICInterp.RegisterBits[sw.CICInterp.N:] {
+			integ += b
+		}
+	}
+	sw.DataMemoryBits += (lanes - 1) * integ
 }
 
 // b2i is 1 for true, 0 for false.

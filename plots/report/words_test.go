@@ -240,28 +240,48 @@ coefficients = "auto"
 // half-band of 4K-1 taps 3K (its even branch 2K, the centre's branch K).
 // Complex and real, with and without a half-band, CIC delays 1 and 2.
 func TestMemoryOneDefinition(t *testing.T) {
-	for _, tc := range []struct{ signal, notation string }{
-		{"real", "cic3m1r8 > hb > fir2"},
-		{"complex", "cic3m2r8 > hb > fir2"},
-		{"real", "cic4m1r4 > fir4 > hb"},
-		{"complex", "fir4 > hb > hb > fir2"},
+	for _, tc := range []struct {
+		signal, notation, clock string
+		interp                  bool
+	}{
+		{"real", "cic3m1r8 > hb > fir2", "", false},
+		{"complex", "cic3m2r8 > hb > fir2", "", false},
+		{"real", "cic4m1r4 > fir4 > hb", "", false},
+		{"complex", "fir4 > hb > hb > fir2", "", false},
+		// Lanes: a CIC whose integrators run above the clock has them
+		// once per lane, in both counts.
+		{"real", "cic3m1r8 > hb > fir2", "5 MHz", false},
+		{"complex", "cic4m1r4 > fir4 > hb", "3 MHz", false},
+		{"real", "hb > hb > fir8", "5 MHz", false},
+		// Interpolation chains, named in the chain's order (DAC side
+		// first).
+		{"real", "cic3m1r8 > fir2 > hb", "5 MHz", true},
+		{"complex", "cic4m1r4 > fir4 > hb", "", true},
 	} {
-		s, res := designed(t, `input_rate = "16 MHz"
-output_rate = "500 kHz"
+		in, out := "16 MHz", "500 kHz"
+		if tc.interp {
+			in, out = out, in
+		}
+		text := `input_rate = "` + in + `"
+output_rate = "` + out + `"
 passband = "100 kHz"
 ripple = "0.5 dB"
 rejection = "70 dB"
-signal = "`+tc.signal+`"
+signal = "` + tc.signal + `"
 [words]
 coefficients = 16
-`, tc.notation)
+`
+		if tc.clock != "" {
+			text += "[hardware]\nclock = \"" + tc.clock + "\"\n"
+		}
+		s, res := designed(t, text, tc.notation)
 		r, err := New("plan", s, res)
 		if err != nil {
 			t.Fatal(err)
 		}
 		ch := r.Front[0]
 		if ch.ChainReport == nil || ch.FixedMemoryBits != ch.MemoryBits {
-			t.Errorf("%s (%s): memory_bits %d, fixed_memory_bits %+v (%s)", tc.notation, tc.signal, ch.MemoryBits, ch.ChainReport, ch.WordLengthsError)
+			t.Errorf("%s (%s, clock %q): memory_bits %d, fixed_memory_bits %+v (%s)", tc.notation, tc.signal, tc.clock, ch.MemoryBits, ch.ChainReport, ch.WordLengthsError)
 		}
 	}
 }
