@@ -60,8 +60,9 @@ func TestProveGraphRefuses(t *testing.T) {
 // mcm.Eval here (independently of the pricing's own check), never above
 // plain CSD; its tap adders are its nonzero rounded taps less one; the
 // stage's adders are the block times its lanes and real filters, a CIC's
-// its integrators per lane plus its combs; no multipliers; and the
-// multiplies, memory and latency are those priced without the mode.
+// its integrators per lane plus its combs; no multipliers; the multiplies
+// and latency are those priced without the mode, and the memory theirs
+// without the stored coefficients.
 func TestPriceMultiplierless(t *testing.T) {
 	sp := chain.Spec{InputRate: 64e6, OutputRate: 250e3, Passband: 80e3, Protected: 100e3, RippleDB: 0.3, RejectionDB: 80,
 		CoefBits: 16, Complex: true}
@@ -77,8 +78,28 @@ func TestPriceMultiplierless(t *testing.T) {
 		t.Fatal(err)
 	}
 	plain, _ := Price(sp, c, Settings{Clock: clock})
-	if !f.Multiplierless || f.MultipliesPerOutput != plain.MultipliesPerOutput || f.MemoryBits != plain.MemoryBits || f.LatencyS != plain.LatencyS {
+	if !f.Multiplierless || f.MultipliesPerOutput != plain.MultipliesPerOutput || f.LatencyS != plain.LatencyS {
 		t.Errorf("multiplierless %+v, plain %+v", f, plain)
+	}
+	// Memory: the plain chain's less its stored coefficients, the taps
+	// being wired into the graphs (with symmetry, ceil(N/2) words for a
+	// FIR of N taps, K for a half-band of 4K-1; common practice).
+	coefBits := 0
+	for i, st := range c.Stages {
+		want := 0
+		if v, ok := st.(chain.FIRStage); ok {
+			want = (len(v.Taps) + 1) / 2
+			if v.HalfBand {
+				want = (len(v.Taps) + 1) / 4
+			}
+		}
+		if d := plain.Stages[i].MemoryWords - f.Stages[i].MemoryWords; d != want || f.Stages[i].MemoryBits != plain.Stages[i].MemoryBits-want*16 {
+			t.Errorf("stage %d: %d words and %d bits, plain %d and %d: want %d coefficient words of 16 bits fewer", i+1, f.Stages[i].MemoryWords, f.Stages[i].MemoryBits, plain.Stages[i].MemoryWords, plain.Stages[i].MemoryBits, want)
+		}
+		coefBits += want * 16
+	}
+	if f.MemoryBits != plain.MemoryBits-coefBits {
+		t.Errorf("memory %d bits, plain %d less %d coefficient bits", f.MemoryBits, plain.MemoryBits, coefBits)
 	}
 	rates := c.Rates()
 	total := 0

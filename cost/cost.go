@@ -225,11 +225,17 @@ func Price(spec chain.Spec, c *chain.Chain, s Settings) (Figures, error) {
 				return Figures{}, fmt.Errorf("cost: stage %d (%s) has no taps and no estimated length", i+1, v.Kind())
 			}
 			// One phase per output: ceil(N/Up) multiplies on as many
-			// input words; every phase's taps stored (the phases are
-			// not symmetric on their own); the prototype's group delay
-			// (N-1)/2 at Up times the input rate.
+			// input words (a phase's taps are not pairwise equal: no
+			// pre-adder); the prototype's symmetry pairs phase r with
+			// phase (N-1-r) mod Up read backwards, so half the
+			// coefficients are stored unless NoSymmetry (package
+			// fixed's count); the prototype's group delay (N-1)/2 at Up
+			// times the input rate.
 			ph := (n + v.Up - 1) / v.Up
-			mul, add, dataWords, coefWords = float64(ph), float64(ph-1), ph, n
+			mul, add, dataWords, coefWords = float64(ph), float64(ph-1), ph, (n+1)/2
+			if s.NoSymmetry {
+				coefWords = n
+			}
 			delayIn = float64(n-1) / 2 / float64(v.Up)
 			dataBits = dataWords * width
 			width = spec.OutputBits
@@ -256,7 +262,7 @@ func Price(spec chain.Spec, c *chain.Chain, s Settings) (Figures, error) {
 		default:
 			return Figures{}, fmt.Errorf("cost: stage %d is a %T; cost prices chain.CICStage, chain.FIRStage, chain.PolyphaseStage and chain.FarrowStage values", i+1, st)
 		}
-		sf := multiplyOut(mul, add, dataWords, dataBits, coefWords, coefBits, cx, later[i], delayIn, rates[i])
+		sf := multiplyOut(mul, add, dataWords, dataBits, stored(coefWords, s), coefBits, cx, later[i], delayIn, rates[i])
 		if s.Clock > 0 && mul > 0 && !s.Multiplierless {
 			sf.Multipliers = int(math.Ceil(mul*float64(cx)*rates[i+1]/s.Clock - 1e-9))
 		}
@@ -386,13 +392,23 @@ func firCounts(n int, halfBand, noSymmetry bool) firCount {
 // adder fields are EstimateAdders' block, over the lanes at s.Clock.
 func FIRStage(n int, halfBand bool, s Settings, later float64, cx, width, coefBits int, rate float64) StageFigures {
 	c := firCounts(n, halfBand, s.NoSymmetry)
-	sf := multiplyOut(c.mul, c.add, c.dataWords, c.dataWords*width, c.coefWords, coefBits, cx, later, c.delayIn, rate)
+	sf := multiplyOut(c.mul, c.add, c.dataWords, c.dataWords*width, stored(c.coefWords, s), coefBits, cx, later, c.delayIn, rate)
 	if s.Multiplierless {
 		b := EstimateAdders(n, halfBand)
 		sf.CoefficientAdders, sf.StructuralAdders, sf.AddersEstimated = b.Coefficient, b.Structural, true
 		sf.Adders = (b.Coefficient + b.Structural) * Lanes(rate, s.Clock) * cx
 	}
 	return sf
+}
+
+// stored is how many of a stage's coefWords coefficients are stored:
+// all, or none when multiplierless (the taps are wired into the adder
+// graph; package fixed counts likewise, fixed.Settings.Multiplierless).
+func stored(coefWords int, s Settings) int {
+	if s.Multiplierless {
+		return 0
+	}
+	return coefWords
 }
 
 // multiplyOut turns a stage's counts per its own output, for one real

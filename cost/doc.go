@@ -54,6 +54,9 @@
 //	            plus N coefficient words, or ceil(N/2) with symmetry
 //	half-band:  3K data words (the 2K-tap branch and the centre branch's
 //	            K-word delay), plus 2K coefficient words, or K with symmetry
+//	polyphase:  ceil(N/L) data words, plus ceil(N/2) coefficient words
+//	            (the prototype's symmetry pairs phase r with phase
+//	            (N-1-r) mod L read backwards), or N without symmetry
 //	CIC:        N integrator registers plus N M comb delay words, each at its
 //	            own pruned register width (CICStage.RegisterBits), no
 //	            coefficients; with a clock below its input rate, the
@@ -156,8 +159,10 @@
 // (CICAdders), times its real filters. Adders are hardware as built, not
 // operations per output: constants wired into a graph are not
 // time-shared. Multipliers at the clock are zero; multiplies, adds per
-// output, memory and latency are priced as without the mode (the
-// multiplies are the constant products the graphs make).
+// output, data memory and latency are priced as without the mode (the
+// multiplies are the constant products the graphs make); no coefficient
+// memory is counted, the taps being wired into the graphs (package fixed
+// counts likewise).
 //
 // Every graph is proved before its count is used: Eval reproduces every
 // coefficient times 1, -1 and 3 exactly (ProveGraph), or Price returns an

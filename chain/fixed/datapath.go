@@ -169,6 +169,10 @@ type Settings struct {
 	NativeA, NativeB int
 	// Clock is the hardware clock in Hz; zero means no multipliers-at-clock figure.
 	Clock float64
+	// Multiplierless builds every FIR and half-band stage as an adder
+	// graph of its rounded taps: the taps are wired in, and no coefficient
+	// memory is counted (CoefMemoryBits 0). False: stored coefficients.
+	Multiplierless bool
 	// MuBits is the width of a Farrow stage's unsigned fractional-delay
 	// word; zero means the stage's coefficient width, at least
 	// ceil(log2 Up) (package doc, Fractional stages).
@@ -501,6 +505,9 @@ func plan(c Cascade, w Words, s Settings, minBits []int) (*Widths, error) {
 		sw.InputRate, sw.Interpolate = rates[i], c.Interpolate
 		sw.costAtClock(sw.lowRate(), c.Complex, s)
 		sw.cicLanes(s.Clock)
+		if s.Multiplierless {
+			sw.CoefMemoryBits = 0 // wired into the adder graph
+		}
 		data := sw.DataMemoryBits
 		if c.Complex {
 			data *= 2

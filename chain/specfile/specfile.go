@@ -143,7 +143,7 @@ func (s *Spec) CostSettings() cost.Settings {
 
 // FixedSettings returns the word-length planner's settings the spec asks for.
 func (s *Spec) FixedSettings() fixed.Settings {
-	fs := fixed.Settings{NoSymmetry: !s.Symmetry, NativeA: s.NativeA, NativeB: s.NativeB, Clock: s.Clock, UnityGain: s.UnityGain}
+	fs := fixed.Settings{NoSymmetry: !s.Symmetry, NativeA: s.NativeA, NativeB: s.NativeB, Clock: s.Clock, UnityGain: s.UnityGain, Multiplierless: s.Multiplierless}
 	if s.SigmaDelta != nil {
 		// Checked when the spec was parsed.
 		fs.Shaper, _ = s.SigmaDelta.Shaper()

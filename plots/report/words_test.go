@@ -257,10 +257,17 @@ func TestMemoryOneDefinition(t *testing.T) {
 		// first).
 		{"real", "cic3m1r8 > fir2 > hb", "5 MHz", true},
 		{"complex", "cic4m1r4 > fir4 > hb", "", true},
+		// A polyphase stage stores half its prototype's taps (its
+		// symmetry pairs the phases), in both counts.
+		{"real", "cic4m1r8 > fir2 > poly3/5", "", false},
+		{"complex", "cic4m1r8 > fir2 > poly3/5", "5 MHz", false},
 	} {
 		in, out := "16 MHz", "500 kHz"
 		if tc.interp {
 			in, out = out, in
+		}
+		if strings.Contains(tc.notation, "poly") {
+			out = "600 kHz"
 		}
 		text := `input_rate = "` + in + `"
 output_rate = "` + out + `"
@@ -458,5 +465,39 @@ func TestFittingWidth(t *testing.T) {
 	}
 	if n < 12 {
 		t.Errorf("only %d cases had a width to suggest", n)
+	}
+}
+
+// A multiplierless chain's taps are wired into its adder graphs: no stage
+// stores a coefficient, and memory_bits (the front's axis) and
+// fixed_memory_bits are its data memory alone, the same figure.
+func TestMultiplierlessNoCoefficientMemory(t *testing.T) {
+	for _, nt := range []string{"cic3m1r8 > hb > fir2", "hb > hb > fir8"} {
+		s, res := designedFront(t, "[words]\ncoefficients = 16\n[hardware]\nmultiplierless = true\n")
+		if nt != "cic3m1r8 > hb > fir2" {
+			s, res = designed(t, `input_rate = "16 MHz"
+output_rate = "500 kHz"
+passband = "100 kHz"
+ripple = "0.5 dB"
+rejection = "70 dB"
+[words]
+coefficients = 16
+[hardware]
+multiplierless = true
+`, nt)
+		}
+		r, err := New("plan", s, res)
+		if err != nil {
+			t.Fatal(err)
+		}
+		ch := r.Front[0]
+		if ch.ChainReport == nil || ch.FixedMemoryBits != ch.MemoryBits {
+			t.Errorf("%s: memory_bits %d, fixed_memory_bits %+v", nt, ch.MemoryBits, ch.ChainReport)
+		}
+		for i, st := range ch.Stages {
+			if st.StageReport != nil && st.CoefMemoryBits != 0 {
+				t.Errorf("%s: stage %d stores %d coefficient bits", nt, i+1, st.CoefMemoryBits)
+			}
+		}
 	}
 }
