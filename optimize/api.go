@@ -31,7 +31,10 @@ type Limits struct {
 	// MaxCICFactor is the largest decimation a CIC stage may take.
 	MaxCICFactor int
 	// MaxMultipliers bounds a chain's hardware multipliers at the clock
-	// (cost.Figures.MultipliersAtClock); it needs Cost.Clock.
+	// (cost.Figures.MultipliersAtClock); it needs Cost.Clock. With a
+	// native multiplier size (Fixed.NativeA x NativeB) and a fixed
+	// coefficient width it bounds the native blocks the chain's word
+	// lengths need at the clock too (BuiltOverLimits).
 	MaxMultipliers int
 	// MaxMemoryBits bounds a chain's memory (cost.Figures.MemoryBits).
 	MaxMemoryBits int

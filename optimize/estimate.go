@@ -52,6 +52,12 @@ const (
 	// where the search plans a chain's rounded taps (a fixed coefficient
 	// width), so it counts designed chains only.
 	ReasonOverAccumulatorBits Reason = "fir_accumulator_over_limit"
+	// ReasonOverNativeMultipliers: with a native multiplier size
+	// (fixed.Settings.NativeA x NativeB) and a clock, the chain's native
+	// multiplier blocks at the clock (fixed.Widths.HardwareMultipliers,
+	// from its word lengths) exceed Limits.MaxMultipliers. Judged where
+	// ReasonOverAccumulatorBits is.
+	ReasonOverNativeMultipliers Reason = "native_multipliers_over_limit"
 	// ReasonNoFractionalSplit counts the rates Fm of a fractional ratio
 	// where no fractional stage fits (a polyphase stage needs at most 256
 	// phases, a Farrow stage at most 1024 and a lowpass FIR before it at
@@ -66,27 +72,28 @@ const (
 
 // reasonText is each Reason in words.
 var reasonText = map[Reason]string{
-	ReasonCICRejection:        "cic rejection below target",
-	ReasonCICDroop:            "cic droop not compensated",
-	ReasonHalfBandEdges:       "halfband edges do not fit",
-	ReasonShortFIR:            "fir stage under 3 taps",
-	ReasonDesignFailed:        "design failed",
-	ReasonEvaluateFailed:      "evaluation failed",
-	ReasonMissRejection:       "designed chain misses rejection",
-	ReasonMissRipple:          "designed chain misses ripple",
-	ReasonCICNull:             "cic null in passband",
-	ReasonGaveUp:              "a stage failed to design in other chains",
-	ReasonCICBeaten:           "cic beaten by another order or delay",
-	ReasonLongFIR:             "fir stage over the tap limit",
-	ReasonMissQuantised:       "misses the targets with its taps rounded to the coefficient width",
-	ReasonWordLengths:         "word lengths could not be planned",
-	ReasonOverRegisterBits:    "a cic register wider than hardware.max_register_bits",
-	ReasonOverCICFactor:       "a cic factor above hardware.max_cic_factor",
-	ReasonOverMultipliers:     "more multipliers at the clock than hardware.max_multipliers",
-	ReasonOverMemory:          "more memory than hardware.max_memory_bits",
-	ReasonOverAccumulatorBits: "a fir or half-band accumulator wider than hardware.max_register_bits",
-	ReasonFractionalNotBuilt:  "fractional plans that cannot be built",
-	ReasonNoFractionalSplit:   "rates tried for the fractional stage where no polyphase or farrow stage fits (a polyphase stage has at most 256 phases, a farrow stage at most 1024 and comes after a lowpass FIR, at more than twice the kept band; a ratio whose denominator is larger needs ratio_tolerance_ppm)",
+	ReasonCICRejection:          "cic rejection below target",
+	ReasonCICDroop:              "cic droop not compensated",
+	ReasonHalfBandEdges:         "halfband edges do not fit",
+	ReasonShortFIR:              "fir stage under 3 taps",
+	ReasonDesignFailed:          "design failed",
+	ReasonEvaluateFailed:        "evaluation failed",
+	ReasonMissRejection:         "designed chain misses rejection",
+	ReasonMissRipple:            "designed chain misses ripple",
+	ReasonCICNull:               "cic null in passband",
+	ReasonGaveUp:                "a stage failed to design in other chains",
+	ReasonCICBeaten:             "cic beaten by another order or delay",
+	ReasonLongFIR:               "fir stage over the tap limit",
+	ReasonMissQuantised:         "misses the targets with its taps rounded to the coefficient width",
+	ReasonWordLengths:           "word lengths could not be planned",
+	ReasonOverRegisterBits:      "a cic register wider than hardware.max_register_bits",
+	ReasonOverCICFactor:         "a cic factor above hardware.max_cic_factor",
+	ReasonOverMultipliers:       "more multipliers at the clock than hardware.max_multipliers",
+	ReasonOverMemory:            "more memory than hardware.max_memory_bits",
+	ReasonOverAccumulatorBits:   "a fir or half-band accumulator wider than hardware.max_register_bits",
+	ReasonOverNativeMultipliers: "more native multiplier blocks (hardware.multiplier) at the clock than hardware.max_multipliers",
+	ReasonFractionalNotBuilt:    "fractional plans that cannot be built",
+	ReasonNoFractionalSplit:     "rates tried for the fractional stage where no polyphase or farrow stage fits (a polyphase stage has at most 256 phases, a farrow stage at most 1024 and comes after a lowpass FIR, at more than twice the kept band; a ratio whose denominator is larger needs ratio_tolerance_ppm)",
 }
 
 // Text is r in words ("cic rejection below target"); a name it does not
@@ -123,7 +130,7 @@ func Reasons() []Reason {
 		ReasonEvaluateFailed, ReasonMissRejection, ReasonMissRipple, ReasonCICNull, ReasonGaveUp, ReasonCICBeaten,
 		ReasonLongFIR, ReasonMissQuantised, ReasonWordLengths,
 		ReasonOverRegisterBits, ReasonOverCICFactor, ReasonOverMultipliers, ReasonOverMemory, ReasonOverAccumulatorBits,
-		ReasonNoFractionalSplit, ReasonFractionalNotBuilt}
+		ReasonOverNativeMultipliers, ReasonNoFractionalSplit, ReasonFractionalNotBuilt}
 }
 
 type dropCode uint8

@@ -11,7 +11,7 @@ import (
 // which is the search's own).
 func (r Reason) OverLimit() bool {
 	switch r {
-	case ReasonOverRegisterBits, ReasonOverCICFactor, ReasonOverMultipliers, ReasonOverMemory, ReasonOverAccumulatorBits:
+	case ReasonOverRegisterBits, ReasonOverCICFactor, ReasonOverMultipliers, ReasonOverMemory, ReasonOverAccumulatorBits, ReasonOverNativeMultipliers:
 		return true
 	}
 	return false
@@ -35,8 +35,32 @@ func AccumulatorsOverLimit(ws *fixed.Widths, l Limits) []bool {
 	return over
 }
 
-// accumulatorOverLimit reports whether some stage of ws is
-// AccumulatorsOverLimit.
-func accumulatorOverLimit(ws *fixed.Widths, l Limits) bool {
-	return slices.Contains(AccumulatorsOverLimit(ws, l), true)
+// BuiltOverLimits returns the limits of l that a chain's word-length plan
+// ws breaks as the chain would be built, each as the Reason the search
+// drops a chain for: a FIR, half-band or fractional accumulator wider than
+// MaxRegisterBits (AccumulatorsOverLimit), memory (ws.MemoryBits, the
+// report's fixed_memory_bits) above MaxMemoryBits, and, with a native
+// multiplier size and a clock, native multiplier blocks at the clock
+// (ws.HardwareMultipliers) above MaxMultipliers. Nil when it breaks none.
+//
+// With a fixed coefficient width the search holds every designed chain to
+// these (its memory figure is then ws's; a native block count is at least
+// the multipliers at the clock the estimate holds to MaxMultipliers); with
+// "auto" or floating-point coefficients it cannot, and the report flags a
+// chain that breaks one.
+func BuiltOverLimits(ws *fixed.Widths, l Limits) []Reason {
+	if ws == nil {
+		return nil
+	}
+	var out []Reason
+	if slices.Contains(AccumulatorsOverLimit(ws, l), true) {
+		out = append(out, ReasonOverAccumulatorBits)
+	}
+	if l.MaxMemoryBits > 0 && ws.MemoryBits > l.MaxMemoryBits {
+		out = append(out, ReasonOverMemory)
+	}
+	if l.MaxMultipliers > 0 && ws.HardwareMultipliers > l.MaxMultipliers {
+		out = append(out, ReasonOverNativeMultipliers)
+	}
+	return out
 }

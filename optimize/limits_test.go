@@ -9,6 +9,7 @@ import (
 	"testing"
 
 	"github.com/stepdown-dsp/stepdown/chain"
+	"github.com/stepdown-dsp/stepdown/chain/fixed"
 	"github.com/stepdown-dsp/stepdown/cost"
 	"github.com/stepdown-dsp/stepdown/optimize"
 )
@@ -166,5 +167,36 @@ func TestMultiplierlessFront(t *testing.T) {
 		}
 		check(r, lim)
 		t.Logf("limits %+v: front %d", lim, len(r.Front))
+	}
+}
+
+// With a fixed coefficient width and a native multiplier size, the search
+// holds max_multipliers to the native blocks the chain's word lengths need
+// at the clock (fixed.Widths.HardwareMultipliers: a 25 x 19 product takes
+// two 18 x 25 blocks), not only to the multipliers at the clock: every
+// front chain of an invented 122.88 MS/s to 960 kS/s I/Q receiver, planned
+// again by package fixed, needs at most the limit, and some chain was
+// dropped for it.
+func TestNativeMultipliersHeld(t *testing.T) {
+	needDesigns(t)
+	spec := chain.Spec{InputRate: 122.88e6, OutputRate: 960e3, Passband: 380e3, Protected: 420e3, RippleDB: 0.1, RejectionDB: 85,
+		Complex: true, InputBits: 14, OutputBits: 24, CoefBits: 19}
+	fs := fixed.Settings{NativeA: 18, NativeB: 25, Clock: 245.76e6}
+	lim := optimize.Limits{MaxMultipliers: 2}
+	r, err := optimize.Plan(context.Background(), spec, optimize.Settings{MaxStages: 3, CICDelays: []int{1}, Cost: costAt(fs.Clock), Fixed: fs, Limits: lim})
+	if err != nil {
+		t.Fatal(err)
+	}
+	if len(r.Front) == 0 || r.Dropped[optimize.ReasonOverNativeMultipliers] == 0 {
+		t.Fatalf("front %d, dropped %v", len(r.Front), r.Dropped)
+	}
+	for _, c := range r.Front {
+		ws, _, err := fixed.PlanChain(spec, c.Chain, fs)
+		if err != nil {
+			t.Fatal(err)
+		}
+		if ws.HardwareMultipliers > lim.MaxMultipliers {
+			t.Errorf("%s needs %d native blocks, over the limit %d", chain.Notation(c.Plan), ws.HardwareMultipliers, lim.MaxMultipliers)
+		}
 	}
 }

@@ -432,8 +432,11 @@ func limitReason(d map[Reason]int) string {
 	}{{ReasonOverRegisterBits, "Limits.MaxRegisterBits"}, {ReasonOverCICFactor, "Limits.MaxCICFactor"},
 		{ReasonOverMultipliers, "Limits.MaxMultipliers"}, {ReasonOverMemory, "Limits.MaxMemoryBits"}} {
 		k := d[l.r]
-		if l.r == ReasonOverRegisterBits {
+		switch l.r {
+		case ReasonOverRegisterBits:
 			k += d[ReasonOverAccumulatorBits] // the same limit, on FIR accumulators
+		case ReasonOverMultipliers:
+			k += d[ReasonOverNativeMultipliers] // the same limit, in native blocks
 		}
 		if k > n {
 			best, n = l.name, k
@@ -608,8 +611,8 @@ func (r realDesigner) surviveWith(c Candidate, spec chain.Spec, wl func() (*fixe
 					return c, ReasonWordLengths
 				}
 			}
-			if accumulatorOverLimit(ws, r.s.Limits) {
-				return c, ReasonOverAccumulatorBits
+			if why := BuiltOverLimits(ws, r.s.Limits); len(why) > 0 {
+				return c, why[0]
 			}
 			cur.Figures, cur.Quantised, cur.MarginDB = f, qa, qm
 			cur.survived = true

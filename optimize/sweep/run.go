@@ -74,7 +74,7 @@ type Result struct {
 	Status Status
 	// Detail explains a status other than ok, in one line; for ok, it
 	// names the chains taken from other values (borrow) and a recommended
-	// chain whose word lengths pass hardware.max_register_bits.
+	// chain whose word lengths break a [hardware] limit.
 	Detail string
 	Spec   *specfile.Spec   // nil when Invalid
 	Search *optimize.Result // nil unless the search ran
@@ -178,11 +178,11 @@ func Run(ctx context.Context, st Study) []Result {
 		case notes != nil && notes[i] != "":
 			r.Detail = notes[i]
 		}
-		if rep := r.Report; rep != nil && rep.Recommended >= 0 && rep.Recommended < len(rep.Front) && rep.Front[rep.Recommended].AccumulatorOverLimit {
-			// The search holds accumulators to the fabric's limit only
-			// with a fixed coefficient width; the row says when the
-			// recommended chain's word lengths pass it.
-			note := "the recommended chain's word lengths need an accumulator wider than hardware.max_register_bits (accumulator_over_limit)"
+		if rep := r.Report; rep != nil && rep.Recommended >= 0 && rep.Recommended < len(rep.Front) && len(rep.Front[rep.Recommended].OverLimits) > 0 {
+			// The search holds the fabric's limits as built only with a
+			// fixed coefficient width; the row says when the recommended
+			// chain's word lengths break one.
+			note := "the recommended chain breaks a limit as built (over_limits): " + report.OverLimitsText(rep.Front[rep.Recommended], rep.Spec.Hardware)
 			if r.Detail != "" {
 				note = r.Detail + "; " + note
 			}

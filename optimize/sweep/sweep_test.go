@@ -538,9 +538,9 @@ max_stages = 2
 			if r.Report == nil {
 				t.Fatalf("limit %d, %v: no report (%s: %s)", lim, r.Value, r.Status, r.Detail)
 			}
-			over := r.Report.Front[r.Report.Recommended].AccumulatorOverLimit
+			over := len(r.Report.Front[r.Report.Recommended].OverLimits) > 0
 			seen[over] = true
-			if says := strings.Contains(r.Detail, "accumulator_over_limit"); says != over {
+			if says := strings.Contains(r.Detail, "over_limits"); says != over {
 				t.Errorf("limit %d, %v: detail %q, recommended chain over the limit %v", lim, r.Value, r.Detail, over)
 			}
 		}

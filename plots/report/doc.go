@@ -91,9 +91,10 @@
 // and into each stage (coefficient_bits, coefficient_frac, coefficients_int,
 // accumulator_bits, output_bits, dropped_bits, rounding_points,
 // multiplier_size, hardware_multipliers, ...), with accumulator_over_limit
-// on each stage, and the chain, whose accumulator passes
-// hardware.max_register_bits (optimize.AccumulatorsOverLimit owns the rule;
-// the search holds chains to it only with a fixed coefficient width). The coefficient width is the
+// on each stage whose accumulator passes hardware.max_register_bits and
+// over_limits on the chain, the [hardware] limits it breaks as built
+// (optimize.BuiltOverLimits owns the rule; the search holds chains to
+// them only with a fixed coefficient width). The coefficient width is the
 // spec's words.coefficients, or, for "auto" and when it is absent, the
 // narrowest per stage that meets the stage's bands; with it absent the
 // figures are for information and the files stay floating point. The integer

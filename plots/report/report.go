@@ -245,10 +245,14 @@ type Chain struct {
 	Adders            *int `json:"adders,omitempty"`
 	CoefficientAdders *int `json:"coefficient_adders,omitempty"`
 	StructuralAdders  *int `json:"structural_adders,omitempty"`
-	// AccumulatorOverLimit: some stage's accumulator passes
-	// hardware.max_register_bits (Stage.AccumulatorOverLimit); absent
-	// otherwise.
-	AccumulatorOverLimit bool `json:"accumulator_over_limit,omitempty"`
+	// OverLimits names the [hardware] limits the chain breaks as built, by
+	// its word lengths (optimize.BuiltOverLimits): "max_register_bits" (a
+	// FIR, half-band or fractional accumulator; Stage.AccumulatorOverLimit
+	// marks which), "max_memory_bits" (fixed_memory_bits) and
+	// "max_multipliers" (hardware_multipliers, native blocks at the
+	// clock). The search holds chains to them only with a fixed coefficient
+	// width; absent when the chain breaks none.
+	OverLimits []string `json:"over_limits,omitempty"`
 
 	// plan is the word-length plan behind ChainReport (AddWordLengths),
 	// kept for the hand-off files; nil without one.
@@ -730,17 +734,58 @@ func AddWordLengths(ctx context.Context, c *Chain, spec chain.Spec, cand optimiz
 	}
 }
 
-// markAccumulators sets c's AccumulatorOverLimit flags from its
-// word-length plan and the fabric's limits.
-func markAccumulators(c *Chain, l optimize.Limits) {
-	over := optimize.AccumulatorsOverLimit(c.widths, l)
-	if len(over) != len(c.Stages) {
-		return
+// markLimits sets c's OverLimits and its stages' AccumulatorOverLimit
+// from its word-length plan and the fabric's limits.
+func markLimits(c *Chain, l optimize.Limits) {
+	if over := optimize.AccumulatorsOverLimit(c.widths, l); len(over) == len(c.Stages) {
+		for i, o := range over {
+			c.Stages[i].AccumulatorOverLimit = o
+		}
 	}
-	for i, o := range over {
-		c.Stages[i].AccumulatorOverLimit = o
-		c.AccumulatorOverLimit = c.AccumulatorOverLimit || o
+	for _, r := range optimize.BuiltOverLimits(c.widths, l) {
+		c.OverLimits = append(c.OverLimits, limitKey[r])
 	}
+}
+
+// limitKey is the [hardware] key of each limit a chain can break as built.
+var limitKey = map[optimize.Reason]string{
+	optimize.ReasonOverAccumulatorBits:   "max_register_bits",
+	optimize.ReasonOverMemory:            "max_memory_bits",
+	optimize.ReasonOverNativeMultipliers: "max_multipliers",
+}
+
+// OverLimitsText says, in the spec's keys, how c breaks each limit it
+// breaks as built (OverLimits), with the figures: "accumulator 54 bits
+// (stage 3) over hardware.max_register_bits = 48; ..."; "" when none.
+func OverLimitsText(c Chain, hw Hardware) string {
+	var parts []string
+	for _, k := range c.OverLimits {
+		switch k {
+		case "max_register_bits":
+			var ids []string
+			widest := 0
+			for i, st := range c.Stages {
+				if st.AccumulatorOverLimit && st.StageReport != nil {
+					ids = append(ids, fmt.Sprint(i+1))
+					widest = max(widest, st.AccumulatorBits)
+				}
+			}
+			which := "stage " + strings.Join(ids, ", ")
+			if len(ids) > 1 {
+				which = "stages " + strings.Join(ids[:len(ids)-1], ", ") + " and " + ids[len(ids)-1]
+			}
+			parts = append(parts, fmt.Sprintf("accumulators of up to %d bits (%s) over hardware.max_register_bits = %d", widest, which, hw.MaxRegisterBits))
+		case "max_memory_bits":
+			parts = append(parts, fmt.Sprintf("%d bits of memory as built over hardware.max_memory_bits = %d", c.FixedMemoryBits, hw.MaxMemoryBits))
+		case "max_multipliers":
+			n := 0
+			if c.ChainReport != nil && c.HardwareMultipliers != nil {
+				n = *c.HardwareMultipliers
+			}
+			parts = append(parts, fmt.Sprintf("%d native multiplier blocks (%s) at the clock over hardware.max_multipliers = %d", n, hw.Multiplier, hw.MaxMultipliers))
+		}
+	}
+	return strings.Join(parts, "; ")
 }
 
 // Fractional reports whether c has a fractional stage (a polyphase or
@@ -871,7 +916,7 @@ func newReport(ctx context.Context, command string, s *specfile.Spec, res *optim
 			}
 		}
 		r.Front[i].Resources = NewResources(&r.Front[i], s.Clock, s.Chain.ChannelRate(), paths)
-		markAccumulators(&r.Front[i], s.Limits)
+		markLimits(&r.Front[i], s.Limits)
 	}
 	return r, nil
 }

@@ -4,6 +4,7 @@ import (
 	"fmt"
 	"io"
 	"math"
+	"slices"
 	"strings"
 
 	"github.com/stepdown-dsp/stepdown/chain"
@@ -163,27 +164,27 @@ func WriteWordLengths(w io.Writer, rep *Report) {
 		fmt.Fprintf(&b, ", out %d bits", sr.OutputBits)
 		fmt.Fprintln(w, b.String())
 	}
-	if ch.AccumulatorOverLimit {
+	if len(ch.OverLimits) > 0 {
 		n := 0
-		var within []string // front chains whose planned accumulators fit
+		var within []string // front chains whose word lengths keep every limit
 		for k, c := range rep.Front {
 			switch {
-			case c.AccumulatorOverLimit:
+			case len(c.OverLimits) > 0:
 				n++
 			case c.ChainReport != nil && len(within) < 3:
 				within = append(within, fmt.Sprintf("#%d %s", k+1, c.Notation))
 			}
 		}
-		fmt.Fprintf(w, "  Over the fabric's limit: %s wider than hardware.max_register_bits = %d, as in %d of the %s (accumulator_over_limit in report.json)",
-			overStages(ch), rep.Spec.Hardware.MaxRegisterBits, n, units.Count(len(rep.Front), "front chain", "front chains"))
+		fmt.Fprintf(w, "  Over the fabric's limits as built: %s (%d of the %s break a limit: over_limits in report.json)",
+			OverLimitsText(ch, rep.Spec.Hardware), n, units.Count(len(rep.Front), "front chain", "front chains"))
 		if len(within) > 0 {
-			fmt.Fprintf(w, "; within it: %s", strings.Join(within, ", "))
+			fmt.Fprintf(w, "; within them: %s", strings.Join(within, ", "))
 		}
 		fmt.Fprint(w, ".")
 		if rep.Spec.Words.CoefficientsMode != "fixed" {
-			fmt.Fprint(w, " With coefficients auto the search does not hold FIR and half-band accumulators to it; a fixed words.coefficients width has the search drop the chains whose accumulators pass it")
-			if c := fittingWidth(ch, rep.Spec.Hardware.MaxRegisterBits); c >= specfile.MinWordBits {
-				fmt.Fprintf(w, " (this chain's would fit up to about %d bits, an estimate: an accumulator grows about a bit per coefficient bit)", c)
+			fmt.Fprint(w, " With coefficients auto the search cannot hold accumulators, memory as built or native multiplier blocks to the limits; a fixed words.coefficients width has the search drop the chains that break them")
+			if c := fittingWidth(ch, rep.Spec.Hardware.MaxRegisterBits); slices.Contains(ch.OverLimits, "max_register_bits") && c >= specfile.MinWordBits {
+				fmt.Fprintf(w, " (this chain's accumulators would fit up to about %d bits, an estimate: an accumulator grows about a bit per coefficient bit)", c)
 			}
 			fmt.Fprint(w, ".")
 		}
@@ -217,22 +218,6 @@ func overMark(st Stage) string {
 		return " (over the limit)"
 	}
 	return ""
-}
-
-// overStages names ch's stages whose accumulators pass the fabric's limit:
-// "the accumulator of stage 3 is" or "the accumulators of stages 2 and 3
-// are".
-func overStages(ch Chain) string {
-	var ids []string
-	for i, st := range ch.Stages {
-		if st.AccumulatorOverLimit {
-			ids = append(ids, fmt.Sprint(i+1))
-		}
-	}
-	if len(ids) == 1 {
-		return "the accumulator of stage " + ids[0] + " is"
-	}
-	return "the accumulators of stages " + strings.Join(ids[:len(ids)-1], ", ") + " and " + ids[len(ids)-1] + " are"
 }
 
 // WriteTable writes the front as the command line's table: one row per
@@ -270,7 +255,8 @@ func WriteTable(w io.Writer, rep *Report) {
 		head = append(head[:at], append([]string{"lanes"}, head[at:]...)...)
 	}
 	rows := [][]string{head}
-	unjudged := 0 // chains whose rounded taps could not be judged
+	unjudged := 0     // chains whose rounded taps could not be judged
+	var over []string // chains over the fabric's limits as built, in words
 	for i, ch := range rep.Front {
 		mark := ""
 		if i == rep.Recommended {
@@ -292,6 +278,10 @@ func WriteTable(w io.Writer, rep *Report) {
 			unjudged++
 		case !ch.MeetsTargets:
 			kind += ", misses spec"
+		}
+		if len(ch.OverLimits) > 0 {
+			kind += ", over limits"
+			over = append(over, fmt.Sprintf("#%d %s", i+1, OverLimitsText(ch, rep.Spec.Hardware)))
 		}
 		rej, rip := ch.BuiltFigures()
 		axis := TrimFloat(ch.MultipliesPerOutput, 1)
@@ -336,6 +326,13 @@ func WriteTable(w io.Writer, rep *Report) {
 		}
 		if rep.Spec.Words.CoefficientsMode == "auto" {
 			fmt.Fprintf(w, "; memory counts %d-bit coefficient words, report.json's fixed_memory_bits the chosen widths", cost.FloatCoefBits)
+		}
+		fmt.Fprintln(w)
+	}
+	if len(over) > 0 {
+		fmt.Fprintf(w, "over limits: as built, by the word lengths planned for each, %s", strings.Join(over, "; "))
+		if rep.Spec.Words.CoefficientsMode != "fixed" {
+			fmt.Fprint(w, " (with coefficients auto the search cannot hold these: a fixed words.coefficients width has it drop such chains)")
 		}
 		fmt.Fprintln(w)
 	}

@@ -343,7 +343,8 @@ output = 30
 }
 
 // TestAccumulatorOverLimit checks report.json's accumulator_over_limit
-// flags, and the word-length lines that show them, against the rule read
+// flags and the chain's over_limits, and the word-length lines that show
+// them, against the rule read
 // from report.json itself: a FIR or half-band stage whose accumulator_bits
 // pass hardware.max_register_bits. The limit sweeps the chain's own
 // accumulator widths, so that every case from none to all stages over it
@@ -381,7 +382,7 @@ func TestAccumulatorOverLimit(t *testing.T) {
 				} `json:"hardware"`
 			} `json:"spec"`
 			Front []struct {
-				Over   bool `json:"accumulator_over_limit"`
+				Over   []string `json:"over_limits"`
 				Stages []struct {
 					Kind string `json:"kind"`
 					Acc  int    `json:"accumulator_bits"`
@@ -415,8 +416,8 @@ func TestAccumulatorOverLimit(t *testing.T) {
 			}
 		}
 		seen[n] = true
-		if doc.Front[0].Over != (n > 0) {
-			t.Errorf("limit %d: chain accumulator_over_limit %v with %d stages over", lim, doc.Front[0].Over, n)
+		if got := slices.Contains(doc.Front[0].Over, "max_register_bits"); got != (n > 0) || len(doc.Front[0].Over) > 1 {
+			t.Errorf("limit %d: chain over_limits %q with %d stages over", lim, doc.Front[0].Over, n)
 		}
 		if note := strings.Contains(text.String(), "Over the fabric's limit"); note != (n > 0) {
 			t.Errorf("limit %d: note shown %v with %d stages over:\n%s", lim, note, n, text.String())
@@ -498,6 +499,62 @@ multiplierless = true
 			if st.StageReport != nil && st.CoefMemoryBits != 0 {
 				t.Errorf("%s: stage %d stores %d coefficient bits", nt, i+1, st.CoefMemoryBits)
 			}
+		}
+	}
+}
+
+// TestBuiltOverLimits checks report.json's over_limits against the rule
+// read back from report.json: max_memory_bits against fixed_memory_bits,
+// max_multipliers against hardware_multipliers (native 18 x 18 blocks at a
+// 4 MHz clock), at limits one below, at and one above the chain's own
+// figures, with coefficients auto (the search cannot hold them then).
+func TestBuiltOverLimits(t *testing.T) {
+	const hw = "[hardware]\nclock = \"4 MHz\"\nmultiplier = \"18x18\"\n"
+	s, res := designedFront(t, hw)
+	r, err := New("plan", s, res)
+	if err != nil {
+		t.Fatal(err)
+	}
+	c := r.Front[0]
+	if c.ChainReport == nil || c.HardwareMultipliers == nil || *c.HardwareMultipliers == 0 {
+		t.Fatalf("no word lengths or native blocks: %+v", c.ChainReport)
+	}
+	mem, mul := c.FixedMemoryBits, *c.HardwareMultipliers
+	for _, d := range []int{-1, 0, 1} {
+		s, res := designedFront(t, hw+fmt.Sprintf("max_memory_bits = %d\nmax_multipliers = %d\n", mem+d, mul+d))
+		r, err := New("plan", s, res)
+		if err != nil {
+			t.Fatal(err)
+		}
+		b, err := r.Marshal()
+		if err != nil {
+			t.Fatal(err)
+		}
+		var doc struct {
+			Front []struct {
+				Over []string `json:"over_limits"`
+				Mem  int      `json:"fixed_memory_bits"`
+				Mul  int      `json:"hardware_multipliers"`
+			} `json:"front"`
+		}
+		if err := json.Unmarshal(b, &doc); err != nil {
+			t.Fatal(err)
+		}
+		f := doc.Front[0]
+		var want []string
+		if f.Mem > mem+d {
+			want = append(want, "max_memory_bits")
+		}
+		if f.Mul > mul+d {
+			want = append(want, "max_multipliers")
+		}
+		if !slices.Equal(f.Over, want) {
+			t.Errorf("limits %d bits, %d multipliers: over_limits %q, want %q (fixed_memory_bits %d, hardware_multipliers %d)", mem+d, mul+d, f.Over, want, f.Mem, f.Mul)
+		}
+		var text bytes.Buffer
+		WriteTable(&text, r)
+		if shown := strings.Contains(text.String(), "over limits"); shown != (len(want) > 0) {
+			t.Errorf("limits %d bits, %d multipliers: table note shown %v:\n%s", mem+d, mul+d, shown, text.String())
 		}
 	}
 }
