@@ -88,7 +88,7 @@ func Plan(p PlanPage) ([]byte, error) {
 	if v.StagesSVG, err = inlineSVG(p.Stages); err != nil {
 		return nil, fmt.Errorf("htmlreport: stages figure: %v", err)
 	}
-	v.Front = frontRows(r.Front, r.Recommended, v.Clock)
+	v.Front = frontRows(r.Front, r.Recommended, v.Clock, r.Spec.Hardware)
 	if r.Spec.Hardware.Multiplierless {
 		v.Axis, v.AxisName = "adders", "adders"
 	}
@@ -167,7 +167,7 @@ func Sweep(p SweepPage) ([]byte, error) {
 	}
 	var partial, estimated, misses bool
 	for i, dv := range d.Values {
-		sv := valueView(dv, i, fmt.Sprintf("value-%02d", i+1), p.Files, v.Clock)
+		sv := valueView(dv, i, fmt.Sprintf("value-%02d", i+1), p.Files, v.Clock, d.Spec.Hardware)
 		if sv.HasChain {
 			c := dv.Front[dv.Recommended]
 			partial = partial || dv.Status == string(sweep.Partial)
@@ -181,7 +181,7 @@ func Sweep(p SweepPage) ([]byte, error) {
 }
 
 // valueView is one value (or grid cell) of a sweep page.
-func valueView(dv sweep.DocValue, i int, anchor string, files []string, clock bool) sweepValueView {
+func valueView(dv sweep.DocValue, i int, anchor string, files []string, clock bool, hw report.Hardware) sweepValueView {
 	sv := sweepValueView{Index: i + 1, Anchor: anchor, Text: dv.ValueText,
 		Status: dv.Status, Detail: dv.Detail, Changed: dv.StructureChanged, Folder: dv.Folder}
 	if dv.Recommended >= 0 && dv.Recommended < len(dv.Front) {
@@ -189,7 +189,7 @@ func valueView(dv sweep.DocValue, i int, anchor string, files []string, clock bo
 		sv.HasChain = true
 		sv.Notation = c.Notation
 		sv.Reason = dv.Reason
-		sv.Front = frontRows(dv.Front, dv.Recommended, clock)
+		sv.Front = frontRows(dv.Front, dv.Recommended, clock, hw)
 		sv.Rec = sv.Front[dv.Recommended]
 		sv.Stages = stageViews(c, files, dv.Folder+"/", clock)
 		if dv.Best != nil {
@@ -256,7 +256,7 @@ func gridPage(p SweepPage) ([]byte, error) {
 		if dv.Row < 1 || dv.Column < 1 || dv.Column > len(cols.Values) {
 			return nil, fmt.Errorf("htmlreport: grid cell %d: row %d, column %d outside the grid", i+1, dv.Row, dv.Column)
 		}
-		sv := valueView(dv, i, fmt.Sprintf("cell-r%02d-c%02d", dv.Row, dv.Column), p.Files, v.Clock)
+		sv := valueView(dv, i, fmt.Sprintf("cell-r%02d-c%02d", dv.Row, dv.Column), p.Files, v.Clock, d.Spec.Hardware)
 		sv.ColText = dv.ColumnValueText
 		if sv.HasChain {
 			c := dv.Front[dv.Recommended]
@@ -321,6 +321,12 @@ type frontRow struct {
 	Mult, Adds, MemBits, MemWords, Multipliers, Latency, LatOut string
 	Rejection, Margin, Ripple, Kind, Tag                        string
 	Misses                                                      bool
+	// Native: the native multiplier blocks at the clock, where the word
+	// lengths give them ("" otherwise); BuiltMem: the memory as built
+	// (fixed_memory_bits) where it differs from MemBits, the priced
+	// figure (coefficients auto); Over: the [hardware] limits the chain
+	// breaks as built, in words (report.OverLimitsText).
+	Native, BuiltMem, Over string
 }
 
 type stageView struct {
@@ -470,6 +476,21 @@ func specRows(s report.Spec) []kv {
 		clk = freq(*s.Hardware.ClockHz)
 	}
 	rows = append(rows, kv{"Hardware clock", clk})
+	if m := s.Hardware.Multiplier; m != "" {
+		rows = append(rows, kv{"Native multiplier", m + " bits"})
+	}
+	var lims []string
+	for _, l := range []struct {
+		key string
+		v   int
+	}{{"max_register_bits", s.Hardware.MaxRegisterBits}, {"max_cic_factor", s.Hardware.MaxCICFactor}, {"max_multipliers", s.Hardware.MaxMultipliers}, {"max_memory_bits", s.Hardware.MaxMemoryBits}} {
+		if l.v > 0 {
+			lims = append(lims, fmt.Sprintf("%s = %d", l.key, l.v))
+		}
+	}
+	if len(lims) > 0 {
+		rows = append(rows, kv{"Fabric limits", strings.Join(lims, ", ")})
+	}
 	if s.Hardware.Multiplierless {
 		rows = append(rows, kv{"Multiplierless", "yes: FIR and half-band stages are shared adder graphs; chains are priced by their adders as built"})
 	}
@@ -554,7 +575,7 @@ func planCautions(r *report.Report) []string {
 	return out
 }
 
-func frontRows(front []report.Chain, rec int, clock bool) []frontRow {
+func frontRows(front []report.Chain, rec int, clock bool, hw report.Hardware) []frontRow {
 	var out []frontRow
 	for i, c := range front {
 		kind := "estimated"
@@ -591,9 +612,21 @@ func frontRows(front []report.Chain, rec int, clock bool) []frontRow {
 		case !c.MeetsTargets:
 			tags = append(tags, "misses spec")
 		}
+		if len(c.OverLimits) > 0 {
+			tags = append(tags, "over limits")
+			row.Over = report.OverLimitsText(c, hw)
+		}
 		row.Tag = strings.Join(tags, ", ")
 		if clock && c.MultipliersAtClock != nil {
 			row.Multipliers = strconv.Itoa(*c.MultipliersAtClock)
+		}
+		if cr := c.ChainReport; cr != nil {
+			if clock && cr.HardwareMultipliers != nil {
+				row.Native = strconv.Itoa(*cr.HardwareMultipliers)
+			}
+			if cr.FixedMemoryBits != c.MemoryBits {
+				row.BuiltMem = strconv.Itoa(cr.FixedMemoryBits)
+			}
 		}
 		out = append(out, row)
 	}

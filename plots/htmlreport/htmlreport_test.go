@@ -114,8 +114,10 @@ func svgOf(t testing.TB) func(*plots.Figure, error) []byte {
 	}
 }
 
-func samplePage(t testing.TB) (PlanPage, []report.File) {
-	r := sampleReport(t)
+func samplePage(t testing.TB) (PlanPage, []report.File) { return samplePageOf(t, sampleReport(t)) }
+
+// samplePageOf is samplePage's page of r.
+func samplePageOf(t testing.TB, r *report.Report) (PlanPage, []report.File) {
 	rec := r.Front[r.Recommended]
 	var fd plots.FrontData
 	for _, c := range r.Front {
@@ -500,8 +502,37 @@ multiplierless = true
 func TestFrontRowUnjudged(t *testing.T) {
 	c := report.Chain{Notation: "cic7m1r32 > fir2", VerdictBasis: "rounded taps", Designed: true,
 		AliasRejectionDB: 98.6, PassbandRippleDB: 0.0673, WordLengthsError: "stage 2: accumulator needs 64 bits"}
-	rows := frontRows([]report.Chain{c}, 0, false)
+	rows := frontRows([]report.Chain{c}, 0, false, report.Hardware{})
 	if len(rows) != 1 || !strings.Contains(rows[0].Tag, "float figures: rounded taps not judged") || rows[0].Rejection != "98.60" {
 		t.Errorf("row %+v: want the float figures, said so", rows)
+	}
+}
+
+// A chain over the fabric's limits as built is tagged in the front table
+// and named with its figures under it; the recommendation gives the native
+// blocks and the memory as built beside the priced figures; the spec lists
+// the multiplier size and the limits.
+func TestOverLimitsShown(t *testing.T) {
+	r := sampleReport(t)
+	r.Spec.Hardware.Multiplier, r.Spec.Hardware.MaxRegisterBits, r.Spec.Hardware.MaxMemoryBits = "18x25", 40, 5000
+	c := &r.Front[r.Recommended]
+	c.ChainReport = &fixed.ChainReport{FixedMemoryBits: 5100, HardwareMultipliers: ip(5)}
+	c.OverLimits = []string{"max_memory_bits"}
+	p, _ := samplePageOf(t, r)
+	b, err := Plan(p)
+	if err != nil {
+		t.Fatal(err)
+	}
+	page := string(b)
+	for _, want := range []string{
+		`<span class="tag">over limits</span>`,
+		"limits as built, by its word lengths: 5100 bits of memory as built over hardware.max_memory_bits = 5000.",
+		"5 native multiplier blocks by the word lengths",
+		"5200 bits of memory (288 words, as priced; 5100 bits as built by the word lengths)",
+		"18x25 bits", "max_register_bits = 40, max_memory_bits = 5000",
+	} {
+		if !strings.Contains(page, want) {
+			t.Errorf("the page lacks %q", want)
+		}
 	}
 }

@@ -93,7 +93,7 @@ const templates = `
 <thead><tr><th class="n">#</th><th>chain</th><th class="n">{{.Axis}}</th><th class="n">adds/{{.Short}}</th><th class="n">memory bits</th>{{if .Clock}}<th class="n">multi&shy;pliers</th>{{end}}<th class="n">latency ({{.Side}} samples)</th><th class="n">rejection dB</th><th class="n">margin dB</th><th class="n">ripple dB</th></tr></thead>
 <tbody>
 {{range .Rows}}<tr class="{{if .Rec}}mark{{end}}{{if .Misses}} bad{{end}}"><td class="n">{{.Index}}{{if .Rec}} ★{{end}}</td><td class="chain">{{.Notation}}{{if .Tag}} <span class="tag">{{.Tag}}</span>{{end}}</td><td class="n">{{.Mult}}</td><td class="n">{{.Adds}}</td><td class="n">{{.MemBits}}</td>{{if $.Clock}}<td class="n">{{.Multipliers}}</td>{{end}}<td class="n">{{.Latency}} ({{.LatOut}} {{$.Short}})</td><td class="n">{{.Rejection}}</td><td class="n">{{.Margin}}</td><td class="n">{{.Ripple}}</td></tr>
-{{end}}</tbody></table></div>{{end}}
+{{end}}</tbody></table></div>{{range .Rows}}{{if .Over}}<p class="note">#{{.Index}} {{.Notation}} is over the fabric's limits as built, by its word lengths: {{.Over}}.</p>{{end}}{{end}}{{end}}
 
 {{define "stages"}}<div class="stages">
 {{range .}}<div class="stage"><h3>{{.Title}}</h3><table class="kv"><tbody>
@@ -134,7 +134,7 @@ const templates = `
 <section id="recommendation"><h2>Recommendation</h2>
 {{with .Rec}}<div class="rec"><p class="chain">#{{.Index}} {{.Notation}}</p>
 <p>{{.Reason}}</p>
-<p>{{if eq $.Axis "adders"}}{{.Figures.Mult}} adders as built (multiplierless) and {{.Figures.Adds}} adds per {{$.Side}} sample{{else}}{{.Figures.Mult}} multiplies and {{.Figures.Adds}} adds per {{$.Side}} sample{{end}}{{if $.Clock}} (hardware multipliers at the clock: {{.Figures.Multipliers}}){{end}}; {{.Figures.MemBits}} bits of memory ({{.Figures.MemWords}} words); latency {{.Figures.Latency}} ({{.Figures.LatOut}} {{$.Side}} samples); {{$.Unwanted}} rejection {{.Figures.Rejection}} dB (margin {{.Figures.Margin}} dB); passband ripple {{.Figures.Ripple}} dB; {{.Figures.Kind}}.</p></div>
+<p>{{if eq $.Axis "adders"}}{{.Figures.Mult}} adders as built (multiplierless) and {{.Figures.Adds}} adds per {{$.Side}} sample{{else}}{{.Figures.Mult}} multiplies and {{.Figures.Adds}} adds per {{$.Side}} sample{{end}}{{if $.Clock}} (hardware multipliers at the clock: {{.Figures.Multipliers}}{{with .Figures.Native}}, {{.}} native multiplier blocks by the word lengths{{end}}){{end}}; {{.Figures.MemBits}} bits of memory ({{.Figures.MemWords}} words{{with .Figures.BuiltMem}}, as priced; {{.}} bits as built by the word lengths{{end}}); latency {{.Figures.Latency}} ({{.Figures.LatOut}} {{$.Side}} samples); {{$.Unwanted}} rejection {{.Figures.Rejection}} dB (margin {{.Figures.Margin}} dB); passband ripple {{.Figures.Ripple}} dB; {{.Figures.Kind}}.{{with .Figures.Over}} Over the fabric's limits as built: {{.}}.{{end}}</p></div>
 {{else}}<p>No chain meets the spec.</p>{{end}}
 {{if .Compared}}<p>Compared with the front of {{.Compared}}: {{if .Beaten}}it is beaten.</p>
 <ul>{{range .Beaten}}<li>{{.}}</li>{{end}}</ul>{{else}}{{.CompareText}}</p>{{end}}{{end}}
