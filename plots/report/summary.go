@@ -175,8 +175,10 @@ func WriteWordLengths(w io.Writer, rep *Report) {
 				within = append(within, fmt.Sprintf("#%d %s", k+1, c.Notation))
 			}
 		}
-		fmt.Fprintf(w, "  Over the fabric's limits as built: %s (%d of the %s break a limit: over_limits in report.json)",
-			OverLimitsText(ch, rep.Spec.Hardware), n, units.Count(len(rep.Front), "front chain", "front chains"))
+		fmt.Fprintf(w, "  Over the fabric's limits as built: %s", OverLimitsText(ch, rep.Spec.Hardware))
+		if len(rep.Front) > 1 {
+			fmt.Fprintf(w, " (%d of the %d front chains break a limit: over_limits in report.json)", n, len(rep.Front))
+		}
 		if len(within) > 0 {
 			fmt.Fprintf(w, "; within them: %s", strings.Join(within, ", "))
 		}
