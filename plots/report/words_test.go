@@ -366,15 +366,7 @@ func TestAccumulatorOverLimit(t *testing.T) {
 	}
 	seen := map[int]bool{} // stages over the limit, by count
 	for lim := slices.Min(widths) - 1; lim <= slices.Max(widths); lim++ {
-		s, res := designedFront(t, fmt.Sprintf("[hardware]\nmax_register_bits = %d\n", lim))
-		r, err := New("plan", s, res)
-		if err != nil {
-			t.Fatal(err)
-		}
-		b, err := r.Marshal()
-		if err != nil {
-			t.Fatal(err)
-		}
+		r := reportOf(t, fmt.Sprintf("[hardware]\nmax_register_bits = %d\n", lim))
 		var doc struct {
 			Spec struct {
 				Hardware struct {
@@ -390,9 +382,7 @@ func TestAccumulatorOverLimit(t *testing.T) {
 				} `json:"stages"`
 			} `json:"front"`
 		}
-		if err := json.Unmarshal(b, &doc); err != nil {
-			t.Fatal(err)
-		}
+		readBack(t, r, &doc)
 		if doc.Spec.Hardware.MaxRegisterBits != lim {
 			t.Fatalf("limit %d: report.json says max_register_bits %d", lim, doc.Spec.Hardware.MaxRegisterBits)
 		}
@@ -521,15 +511,7 @@ func TestBuiltOverLimits(t *testing.T) {
 	}
 	mem, mul := c.FixedMemoryBits, *c.HardwareMultipliers
 	for _, d := range []int{-1, 0, 1} {
-		s, res := designedFront(t, hw+fmt.Sprintf("max_memory_bits = %d\nmax_multipliers = %d\n", mem+d, mul+d))
-		r, err := New("plan", s, res)
-		if err != nil {
-			t.Fatal(err)
-		}
-		b, err := r.Marshal()
-		if err != nil {
-			t.Fatal(err)
-		}
+		r := reportOf(t, hw+fmt.Sprintf("max_memory_bits = %d\nmax_multipliers = %d\n", mem+d, mul+d))
 		var doc struct {
 			Front []struct {
 				Over []string `json:"over_limits"`
@@ -537,9 +519,7 @@ func TestBuiltOverLimits(t *testing.T) {
 				Mul  int      `json:"hardware_multipliers"`
 			} `json:"front"`
 		}
-		if err := json.Unmarshal(b, &doc); err != nil {
-			t.Fatal(err)
-		}
+		readBack(t, r, &doc)
 		f := doc.Front[0]
 		var want []string
 		if f.Mem > mem+d {
@@ -556,5 +536,28 @@ func TestBuiltOverLimits(t *testing.T) {
 		if shown := strings.Contains(text.String(), "over limits"); shown != (len(want) > 0) {
 			t.Errorf("limits %d bits, %d multipliers: table note shown %v:\n%s", mem+d, mul+d, shown, text.String())
 		}
+	}
+}
+
+// reportOf is the report of designedFront's chain with extra spec lines.
+func reportOf(t *testing.T, extra string) *Report {
+	t.Helper()
+	s, res := designedFront(t, extra)
+	r, err := New("plan", s, res)
+	if err != nil {
+		t.Fatal(err)
+	}
+	return r
+}
+
+// readBack decodes r's report.json into doc, as an outside script reads it.
+func readBack(t *testing.T, r *Report, doc any) {
+	t.Helper()
+	b, err := r.Marshal()
+	if err != nil {
+		t.Fatal(err)
+	}
+	if err := json.Unmarshal(b, doc); err != nil {
+		t.Fatal(err)
 	}
 }
