@@ -355,6 +355,11 @@ func (c *stopCredit) table() *creditEval {
 		e := c.eval(c.stop)
 		e.bnd, e.step, e.rest = nil, nil, nil
 		c.tab = e
+		// The share served the table; a chain kept after its plan (a
+		// sweep keeps every value's front) must not keep the plan's
+		// whole share alive through it. A frequency outside the table
+		// is then bounded without the share (at).
+		c.share = nil
 	})
 	return c.tab
 }

@@ -88,6 +88,12 @@ func TestCreditShare(t *testing.T) {
 			if !reflect.DeepEqual(ta.nodes, ts.nodes) || ta.w != ts.w || ta.dc != ts.dc {
 				t.Fatalf("%d earlier stages, stopbands %v: the shared table differs", len(prev), stop)
 			}
+			// The table made, the credit lets the share go (a kept chain
+			// must not hold its plan's whole share): the frequencies
+			// outside the table, drawn below too, are bounded without it.
+			if s.share != nil {
+				t.Fatalf("%d earlier stages: the credit keeps the share after its table", len(prev))
+			}
 			for k := 0; k < 20; k++ {
 				x := rng.Float64() * half
 				if va, vs := ta.at(x), ts.at(x); va != vs {

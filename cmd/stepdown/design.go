@@ -93,6 +93,11 @@ func runDesign(c *cli.Context) error {
 	if !(rate > 0) {
 		return usagef("--rate %q: must be above 0 Hz", rs)
 	}
+	if rate < chain.MinRateHz || rate > chain.MaxRateHz {
+		// The spec's rates' range: beyond it float64 arithmetic no longer
+		// carries every band edge.
+		return usagef("--rate %q: lies outside the supported range: rates lie in [%s, %s] Hz", clip(rs), units.FormatNumber(chain.MinRateHz, -1), units.FormatNumber(chain.MaxRateHz, -1))
+	}
 	ps, err := need("pass")
 	if err != nil {
 		return err
@@ -450,11 +455,20 @@ func checkDesignSize(edges []designEdge, dp, ds, atten, rate float64) error {
 	// Three significant figures, rounded up so that the width named fits.
 	step := math.Pow(10, math.Floor(math.Log10(thi))-2)
 	advice := fmt.Sprintf("widen that transition to at least %s", units.FormatComputedFrequency(math.Ceil(thi/step)*step))
+	if room := edges[wi+1].hi - edges[wi].lo; !fits(atten, thi) || thi >= room {
+		// No width the two bands leave room for will do: the rate is too
+		// high for this filter.
+		advice = "no transition the band edges leave room for is wide enough at this rate: lower --rate (plan takes such a ratio down in stages)"
+	}
 	if lo > 0 && fits(lo, tr) {
 		advice = fmt.Sprintf("lower --atten to %.1f dB or less, or %s", math.Floor(lo*10)/10, advice)
 	}
-	return usagef("--atten %g dB over the %s transition from %s to %s: about %d taps (Herrmann's estimate; the shortest filter is at least %.2g of it), more than the %d this command designs; %s",
-		atten, units.FormatComputedFrequency(tr), units.FormatFrequency(edges[wi].hi), units.FormatFrequency(edges[wi+1].lo), worst, ratio, maxDesignTaps, advice)
+	taps := fmt.Sprintf("about %d taps", worst)
+	if worst >= math.MaxInt32 {
+		taps = "over 2 billion taps"
+	}
+	return usagef("--atten %g dB over the %s transition from %s to %s: %s (Herrmann's estimate; the shortest filter is at least %.2g of it), more than the %d this command designs; %s",
+		atten, units.FormatComputedFrequency(tr), units.FormatFrequency(edges[wi].hi), units.FormatFrequency(edges[wi+1].lo), taps, ratio, maxDesignTaps, advice)
 }
 
 // rippleOf is the peak-to-peak ripple of a passband deviation; a deviation of

@@ -211,7 +211,7 @@ func runSimulate(c *cli.Context) error {
 			return planError(c, err)
 		}
 		if len(res.Front) == 0 {
-			return errors.New(flagTerms(c, emptyFront(res, cs, set.Kinds, clip(j.out.Dir())).Error()))
+			return errors.New(flagTerms(c, emptyFront(res, cs, set.Kinds, untouched(j.out)).Error()))
 		}
 		cand = res.Front[res.Recommended]
 	}

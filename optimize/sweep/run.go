@@ -335,6 +335,12 @@ func runOne(ctx context.Context, st Study, plan func(context.Context, chain.Spec
 		r.Status, r.Detail = Failed, "search: "+err.Error()
 		return r
 	}
+	// A sweep keeps every value's result until its reports are made, and
+	// draws no value's cloud of feasible candidates: only their count
+	// (FeasibleAll) is kept, so that the memory a value holds is its
+	// front's (a 150-cell grid held over 3 GB with them).
+	res.FeasibleAll = max(res.FeasibleAll, len(res.Feasible))
+	res.Feasible = nil
 	r.Search = res
 	switch {
 	case len(res.Front) == 0 && res.Partial:

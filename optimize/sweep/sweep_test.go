@@ -538,6 +538,11 @@ max_stages = 2
 			if r.Report == nil {
 				t.Fatalf("limit %d, %v: no report (%s: %s)", lim, r.Value, r.Status, r.Detail)
 			}
+			// A sweep keeps no value's cloud of feasible candidates, only
+			// its count (a 150-cell grid held over 3 GB with them).
+			if r.Search.Feasible != nil || r.Report.Search.Feasible == 0 {
+				t.Errorf("limit %d, %v: %d feasible candidates kept, report counts %d", lim, r.Value, len(r.Search.Feasible), r.Report.Search.Feasible)
+			}
 			over := len(r.Report.Front[r.Report.Recommended].OverLimits) > 0
 			seen[over] = true
 			if says := strings.Contains(r.Detail, "over_limits"); says != over {
