@@ -58,7 +58,7 @@ type Settings struct {
 	// chain.NonRecursive is tried for every CIC it can build (M = 1 and a
 	// power-of-two factor), as a chain of its own ("cic<N>m1r<R>nr").
 	CICForms []chain.CICForm
-	Jobs     int // parallel designs; zero means runtime.GOMAXPROCS(0)
+	Jobs     int // parallel designs; zero means runtime.GOMAXPROCS(0); at most 4 per CPU run at once
 
 	// Limits are the fabric's; the zero value sets none.
 	Limits Limits

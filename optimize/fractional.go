@@ -6,7 +6,6 @@ import (
 	"errors"
 	"fmt"
 	"math"
-	"runtime"
 	"slices"
 
 	"github.com/stepdown-dsp/stepdown/chain"
@@ -274,10 +273,7 @@ func planFractional(ctx context.Context, spec chain.Spec, s Settings) (*Result, 
 		maxStages = DefaultMaxStages
 	}
 	res := &Result{Recommended: -1, Dropped: map[Reason]int{}}
-	jobs := s.Jobs
-	if jobs == 0 {
-		jobs = runtime.GOMAXPROCS(0)
-	}
+	jobs := runJobs(s.Jobs)
 	// The integer searches, one per rate Fm and kind of ending: alone
 	// against their aliases (a polyphase stage is then the lowpass), or
 	// ending in a lowpass FIR that holds the band above Keep (which a

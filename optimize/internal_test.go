@@ -8,6 +8,7 @@ import (
 	"math/rand"
 	"os"
 	"reflect"
+	"runtime"
 	"sort"
 	"strings"
 	"sync"
@@ -720,6 +721,17 @@ func TestStageFactorLimit(t *testing.T) {
 		})
 		if walked != want {
 			t.Errorf("D = 2^30, %d stages: walked %d, want %d", stages, walked, want)
+		}
+	}
+}
+
+// runJobs: Settings.Jobs, or the CPUs for 0, and never more than
+// maxJobsPerCPU per CPU (designs beyond only wait, holding memory).
+func TestRunJobs(t *testing.T) {
+	cpus := runtime.GOMAXPROCS(0)
+	for _, tc := range []struct{ in, want int }{{0, cpus}, {1, 1}, {cpus, cpus}, {1024, min(1024, maxJobsPerCPU*cpus)}} {
+		if got := runJobs(tc.in); got != tc.want {
+			t.Errorf("runJobs(%d) = %d, want %d", tc.in, got, tc.want)
 		}
 	}
 }

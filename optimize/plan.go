@@ -809,10 +809,7 @@ func search(ctx context.Context, p params, s *Settings, est *estimator, des desi
 		return nil, noCandidate(sp)
 	}
 	res := &Result{Dropped: map[Reason]int{}, Recommended: -1}
-	jobs := s.Jobs
-	if jobs == 0 {
-		jobs = runtime.GOMAXPROCS(0)
-	}
+	jobs := runJobs(s.Jobs)
 	// One design tier serves every pass: what a pass designed is remembered,
 	// and the design cap and work budget are shared.
 	t := newDesignTier(ctx, jobs, des, est, s, res)
@@ -1802,6 +1799,22 @@ func countString(n int64) string {
 	}
 	return fmt.Sprint(n)
 }
+
+// runJobs is how many designs a search runs at once for Settings.Jobs n:
+// n, or runtime.GOMAXPROCS(0) for 0, and at most maxJobsPerCPU per CPU.
+// Designs beyond the CPUs only wait, each holding its engine's memory: a
+// sweep of two values at once asked for 1024 ran past 1 GiB. The results
+// are the same whatever the number (see the package doc).
+func runJobs(n int) int {
+	cpus := runtime.GOMAXPROCS(0)
+	if n <= 0 {
+		n = cpus
+	}
+	return min(n, maxJobsPerCPU*cpus)
+}
+
+// maxJobsPerCPU bounds runJobs.
+const maxJobsPerCPU = 4
 
 // defaultTolerance is Settings.Tolerance's default.
 const defaultTolerance = 0.15

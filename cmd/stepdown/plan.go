@@ -47,7 +47,7 @@ func planCommand() *cli.Command {
 			"Without SPEC.toml the built-in example is planned.",
 		Flags: append(outFlags(),
 			&cli.IntFlag{Name: "max-stages", Usage: "override search.max_stages (1..12)", DefaultText: "the spec's"},
-			&cli.IntFlag{Name: "jobs", Usage: "parallel designs", DefaultText: "the number of CPUs"},
+			&cli.IntFlag{Name: "jobs", Usage: "parallel designs (at most 4 per CPU run at once)", DefaultText: "the number of CPUs"},
 			&cli.DurationFlag{Name: "timeout", Usage: "stop after this long with the best front so far, marked partial (e.g. 30s)", DefaultText: "none"},
 			&cli.BoolFlag{Name: "html", Usage: "also write report.html, one self-contained page for sharing and printing"},
 		),

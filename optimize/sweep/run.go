@@ -92,8 +92,8 @@ type Study struct {
 	// Settings returns the search settings for one value's spec; nil means
 	// the spec's own SearchSettings.
 	Settings func(*specfile.Spec) optimize.Settings
-	// Workers is how many values run at once; zero means
-	// runtime.GOMAXPROCS(0). Jobs is the total of parallel designs, shared
+	// Workers is how many values run at once, at most
+	// runtime.GOMAXPROCS(0), which zero means. Jobs is the total of parallel designs, shared
 	// among the values running at once; zero means runtime.GOMAXPROCS(0).
 	Workers, Jobs int
 	// Plan runs one search; nil means optimize.Plan. Tests substitute it.
@@ -124,11 +124,16 @@ func (st Study) cells() [][]Setting {
 func Run(ctx context.Context, st Study) []Result {
 	cells := st.cells()
 	n := len(cells)
+	// Values beyond the CPUs would only wait, each holding a whole search
+	// (--jobs 1024 on a 150-cell grid passed 1 GiB): at most one value
+	// per CPU runs at once, whatever Workers asks; the results are the
+	// same.
+	cpus := runtime.GOMAXPROCS(0)
 	workers := st.Workers
 	if workers < 1 {
-		workers = runtime.GOMAXPROCS(0)
+		workers = cpus
 	}
-	workers = max(1, min(workers, n))
+	workers = max(1, min(workers, n, cpus))
 	jobs := st.Jobs
 	if jobs < 1 {
 		jobs = runtime.GOMAXPROCS(0)

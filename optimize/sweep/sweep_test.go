@@ -9,7 +9,9 @@ import (
 	"runtime"
 	"slices"
 	"strings"
+	"sync/atomic"
 	"testing"
+	"time"
 
 	"github.com/stepdown-dsp/stepdown/chain"
 	"github.com/stepdown-dsp/stepdown/chain/fixed"
@@ -552,5 +554,32 @@ max_stages = 2
 	}
 	if !seen[true] || !seen[false] {
 		t.Errorf("the limits met only over = %v", seen)
+	}
+}
+
+// At most one value per CPU runs at once, whatever Workers asks (a value
+// beyond the CPUs only waits, holding a whole search: --jobs 1024 on a
+// 150-cell grid passed 1 GiB); the rows are those of one worker.
+func TestWorkersHeldToCPUs(t *testing.T) {
+	v, err := ParseVary("rejection=70:100:2")
+	if err != nil {
+		t.Fatal(err)
+	}
+	var running, most atomic.Int32
+	plan := func(ctx context.Context, s chain.Spec, set optimize.Settings) (*optimize.Result, error) {
+		n := running.Add(1)
+		defer running.Add(-1)
+		for m := most.Load(); n > m && !most.CompareAndSwap(m, n); m = most.Load() {
+		}
+		time.Sleep(2 * time.Millisecond)
+		return fakePlan(ctx, s, set)
+	}
+	many := Run(context.Background(), Study{Name: "ex", Spec: []byte(specfile.ExampleText), Vary: v, Workers: 1024, Jobs: 1024, Plan: plan})
+	if m := int(most.Load()); m > runtime.GOMAXPROCS(0) {
+		t.Errorf("%d values ran at once on %d CPUs", m, runtime.GOMAXPROCS(0))
+	}
+	one := Run(context.Background(), Study{Name: "ex", Spec: []byte(specfile.ExampleText), Vary: v, Workers: 1, Plan: fakePlan})
+	if !bytes.Equal(CSV(v, many), CSV(v, one)) {
+		t.Errorf("sweep.csv differs with 1024 workers:\n%s\nwith one:\n%s", CSV(v, many), CSV(v, one))
 	}
 }
