@@ -1357,8 +1357,13 @@ func (p *parser) specError(err error) error {
 			other = "input_rate"
 		}
 		_, unitOther := p.root[other].(string)
-		switch p.root[rk].(type) {
+		switch v := p.root[rk].(type) {
 		case int64, float64:
+		case string:
+			// A quoted number without a unit ("122.88") is in Hz too.
+			if t := strings.TrimSpace(v); t == "" || !strings.ContainsAny(t[len(t)-1:], "0123456789.") {
+				continue
+			}
 		default:
 			continue
 		}

@@ -128,6 +128,7 @@ func TestParseErrors(t *testing.T) {
 		{"unknown quoted key", "\"odd key\" = 3", []string{":6:", "odd key", "unknown key"}},
 		{"order with a fraction", "[search]\ncic_orders = [3.0, 4]", []string{"search.cic_orders = [3.0, 4]: the item 3.0: want a whole number (CIC order) written without a decimal point or exponent: 3"}},
 		{"rate without a unit", "output_rate = 1.92", []string{"passband", "output_rate/2 = 0.96 Hz", "output_rate = 1.92 is read in Hz, as every number without a unit is: give its unit, as the other values have"}},
+		{"quoted rate without a unit", "output_rate = \"1.92\"", []string{"passband", "output_rate/2 = 0.96 Hz", "output_rate = \"1.92\" is read in Hz, as every number without a unit is: give its unit, as the other values have"}},
 		{"key with a space", "\"protected \" = \"600 kHz\"", []string{":6:", `"protected ": unknown key (did you mean "protected"?)`}},
 		{"key under the wrong table", "[words]\nclock = \"245.76 MHz\"", []string{":7:", "words.clock: unknown key; clock belongs under [hardware] (hardware.clock)"}},
 		{"key outside its table", "max_stages = 3", []string{":6:", "max_stages: unknown key; max_stages belongs under [search] (search.max_stages)"}},
