@@ -411,7 +411,11 @@
 // during the first round of designs), the front of the designed chains by
 // their prices is measured, for at most 300 ms after the cancellation,
 // members that miss dropped and the front taken again; only measured chains
-// are returned, so the front may still be empty. The context is checked every 4096
+// are returned, so the front may still be empty. A context with a deadline
+// stops the designs early, min(1.5 s, 15% of the time left) before it, and
+// that measurement then has the time up to the deadline instead
+// (withMeasureReserve): a plan stopped by --timeout keeps the deadline and
+// still measures what it designed. The context is checked every 4096
 // candidates scored and before every design or measurement, and Progress is
 // called before the next check. A design or measurement still running when
 // the context is cancelled is abandoned: Plan returns without it, its

@@ -13,6 +13,7 @@ import (
 	"strings"
 	"sync"
 	"testing"
+	"time"
 
 	"github.com/stepdown-dsp/stepdown/chain"
 	"github.com/stepdown-dsp/stepdown/cost"
@@ -733,5 +734,38 @@ func TestRunJobs(t *testing.T) {
 		if got := runJobs(tc.in); got != tc.want {
 			t.Errorf("runJobs(%d) = %d, want %d", tc.in, got, tc.want)
 		}
+	}
+}
+
+// withMeasureReserve: a search under a deadline designs until
+// min(measureReserve, measureReserveShare of the time left) before it, and
+// keeps the caller's context for salvage; without a deadline it is the
+// caller's context, and a search inside a search reserves nothing again.
+func TestWithMeasureReserve(t *testing.T) {
+	bg := context.Background()
+	if c, cancel := withMeasureReserve(bg); c != bg || measureOuter(c) != nil {
+		t.Errorf("no deadline: a new context")
+	} else {
+		cancel()
+	}
+	for _, left := range []time.Duration{2 * time.Second, 60 * time.Second} {
+		outer, cancelOuter := context.WithTimeout(bg, left)
+		d, _ := outer.Deadline()
+		inner, cancel := withMeasureReserve(outer)
+		di, ok := inner.Deadline()
+		// The share is of the time left when it is called, a moment after
+		// the deadline was set: bounds a second apart.
+		want := min(measureReserve, time.Duration(measureReserveShare*float64(left)))
+		least := min(measureReserve, time.Duration(measureReserveShare*float64(left-time.Second)))
+		if got := d.Sub(di); !ok || got < least || got > want || measureOuter(inner) != outer {
+			t.Errorf("%v left: the search ends %v before the deadline, want %v; outer kept %v", left, got, want, measureOuter(inner) == outer)
+		}
+		if again, c2 := withMeasureReserve(inner); again != inner {
+			t.Errorf("%v left: a nested search reserved again", left)
+		} else {
+			c2()
+		}
+		cancel()
+		cancelOuter()
 	}
 }

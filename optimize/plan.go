@@ -12,6 +12,7 @@ import (
 	"strings"
 	"sync"
 	"sync/atomic"
+	"time"
 
 	"github.com/stepdown-dsp/stepdown/chain"
 	"github.com/stepdown-dsp/stepdown/chain/fixed"
@@ -73,6 +74,8 @@ func Plan(ctx context.Context, spec chain.Spec, s Settings) (*Result, error) {
 	if err := s.check(); err != nil {
 		return nil, err
 	}
+	ctx, cancel := withMeasureReserve(ctx)
+	defer cancel()
 	// An interpolation spec is searched as its transpose (the chains'
 	// Plan and Stages run from the high rate down; see chain.Chain), and
 	// its CICs take the recursive form, the one built for interpolation.
@@ -1798,6 +1801,40 @@ func countString(n int64) string {
 		return "more than 4.6e18"
 	}
 	return fmt.Sprint(n)
+}
+
+// withMeasureReserve returns the context a search designs under: ctx, but
+// when ctx has a deadline, one that ends measureReserve (at most a
+// measureReserveShare of the time left) before it, so that a search
+// stopped by the deadline before it measured any chain still has time to
+// measure the front of those it designed (designTier.salvage) within the
+// caller's deadline. An invented 2^30 receiver at --timeout 8s designed 43
+// chains and measured none. The caller's context is kept in the returned
+// one's values (measureOuter).
+func withMeasureReserve(ctx context.Context) (context.Context, context.CancelFunc) {
+	d, ok := ctx.Deadline()
+	if !ok || ctx.Value(outerKey{}) != nil {
+		return ctx, func() {}
+	}
+	reserve := min(measureReserve, time.Duration(measureReserveShare*float64(time.Until(d))))
+	inner, cancel := context.WithDeadline(context.WithValue(ctx, outerKey{}, ctx), d.Add(-max(reserve, 0)))
+	return inner, cancel
+}
+
+// measureReserve and measureReserveShare bound withMeasureReserve's time.
+const (
+	measureReserve      = 1500 * time.Millisecond
+	measureReserveShare = 0.15
+)
+
+// outerKey keys the caller's context in a search's (withMeasureReserve).
+type outerKey struct{}
+
+// measureOuter is the caller's context of a search's context ctx: the one
+// whose deadline salvage may measure up to; nil when none was reserved.
+func measureOuter(ctx context.Context) context.Context {
+	o, _ := ctx.Value(outerKey{}).(context.Context)
+	return o
 }
 
 // runJobs is how many designs a search runs at once for Settings.Jobs n:

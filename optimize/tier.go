@@ -403,7 +403,13 @@ func (t *designTier) salvage() []Candidate {
 	if !ok {
 		return nil
 	}
+	// The time reserved before the caller's deadline (withMeasureReserve)
+	// when there is some; else salvageGrace past the search's end.
 	ctx, cancel := context.WithTimeout(context.WithoutCancel(t.ctx), salvageGrace)
+	if o := measureOuter(t.ctx); o != nil && o.Err() == nil {
+		cancel()
+		ctx, cancel = context.WithCancel(o)
+	}
 	defer cancel()
 	des := rg.under(ctx)
 	measured := map[string]outcome{}
