@@ -30,7 +30,8 @@ func Check(ctx context.Context, spec chain.Spec, plan []chain.StagePlan, s Setti
 	// judged on its rounded taps as the search judges it (judgeFractional).
 	frac, coefBits := ns.Fractional(), ns.CoefBits
 	if frac {
-		ns.CoefBits = 0
+		// Its width priced as built (coefficient memory); floatOnly keeps
+		// it out of the design and the float measurement.
 		s.floatOnly = true
 	}
 	if s.Chain.Memo == nil {

@@ -404,8 +404,10 @@ func planFractional(ctx context.Context, spec chain.Spec, s Settings) (*Result, 
 	// where rounding misses, dropped under ReasonMissQuantised where that
 	// fails, and under ReasonWordLengths where its word lengths cannot be
 	// planned (an accumulator past fixed.MaxAccumulatorBits).
+	// The designs and their float measurements take the spec as it is:
+	// floatOnly (above) keeps its width out of them, and pricing counts
+	// coefficient memory at that width, as the chain is built.
 	fspec := spec
-	fspec.CoefBits = 0
 	des := realDesigner{ctx: ctx, spec: fspec, s: &s}
 	planWords := spec.CoefBits > 0 && spec.CoefBits <= fixed.MaxBits
 	// The estimate tier: every plan estimated (Herrmann lengths; a Farrow

@@ -617,6 +617,7 @@ func (r realDesigner) surviveWith(c Candidate, spec chain.Spec, wl func() (*fixe
 			if why := BuiltOverLimits(ws, r.s.Limits); len(why) > 0 {
 				return c, why[0]
 			}
+			builtMemory(&f, cur.Chain, ws)
 			cur.Figures, cur.Quantised, cur.MarginDB = f, qa, qm
 			cur.survived = true
 			if cur.redesigns > 0 {
@@ -704,6 +705,24 @@ func (r realDesigner) surviveWith(c Candidate, spec chain.Spec, wl func() (*fixe
 	}
 	c.redesigns, c.blame, c.hopeless = cur.redesigns, blame, hopeless
 	return c, ReasonMissQuantised
+}
+
+// builtMemory gives f, the figures of chain c, the memory of its
+// word-length plan ws, as the chain is built (the report's
+// fixed_memory_bits): each stage's data memory (doubled for a complex
+// chain) and coefficient memory. Pricing counts the same for most stages;
+// an interpolating polyphase stage's partial sums, whose accumulator width
+// only the plan knows, it counts at the data word.
+func builtMemory(f *cost.Figures, c *chain.Chain, ws *fixed.Widths) {
+	st := chainOrder(c, ws)
+	if len(st) != len(f.Stages) {
+		return
+	}
+	f.Stages = append([]cost.StageFigures(nil), f.Stages...) // not the caller's copy's
+	for i, sw := range st {
+		f.Stages[i].MemoryBits = sw.DataMemoryBits*cx(c) + sw.CoefMemoryBits
+	}
+	f.MemoryBits = ws.MemoryBits
 }
 
 // planInts are the rounded coefficients of c's word-length plan ws, in

@@ -28,19 +28,8 @@ func TestAutoWidthAddersAreTheSearchs(t *testing.T) {
 		{"20 MHz", "640 MHz", "8 MHz", "real", "14", false}, {"20 MHz", "640 MHz", "8 MHz", "complex", `"auto"`, true},
 	} {
 		text := fmt.Sprintf("input_rate = %q\noutput_rate = %q\npassband = %q\nripple = \"0.2 dB\"\nrejection = \"60 dB\"\nsignal = %q\n[words]\ninput = 12\noutput = 16\ncoefficients = %s\nunity_gain = %v\n[hardware]\nclock = \"400 MHz\"\nmultiplierless = true\n[search]\nmax_stages = 3\n", tc.in, tc.out, tc.pass, tc.sig, tc.coef, tc.unity)
-		s, err := specfile.Parse("auto.toml", []byte(text))
-		if err != nil {
-			t.Fatal(err)
-		}
+		s, res, rep := planned(t, text)
 		ctx := context.Background()
-		res, err := optimize.Plan(ctx, s.Chain, s.SearchSettings())
-		if err != nil {
-			t.Fatal(err)
-		}
-		rep, err := NewContext(ctx, "plan", s, res)
-		if err != nil {
-			t.Fatal(err)
-		}
 		for i, c := range rep.Front {
 			if c.Adders == nil || *c.Adders != res.Front[i].Figures.Adders {
 				t.Errorf("%s %s: %s: report.json %d adders, the search ranked it on %d", tc.out, tc.sig, c.Notation, deref(c.Adders), res.Front[i].Figures.Adders)
@@ -50,4 +39,24 @@ func TestAutoWidthAddersAreTheSearchs(t *testing.T) {
 			t.Errorf("%s %s: %v", tc.out, tc.sig, err)
 		}
 	}
+}
+
+// planned parses the spec text, plans it and makes its report, as plan
+// does.
+func planned(t *testing.T, text string) (*specfile.Spec, *optimize.Result, *Report) {
+	t.Helper()
+	s, err := specfile.Parse("spec.toml", []byte(text))
+	if err != nil {
+		t.Fatal(err)
+	}
+	ctx := context.Background()
+	res, err := optimize.Plan(ctx, s.Chain, s.SearchSettings())
+	if err != nil {
+		t.Fatal(err)
+	}
+	rep, err := NewContext(ctx, "plan", s, res)
+	if err != nil {
+		t.Fatal(err)
+	}
+	return s, res, rep
 }

@@ -8,6 +8,7 @@ import (
 	"math"
 	"math/bits"
 	"math/rand/v2"
+	"os"
 	"regexp"
 	"slices"
 	"strconv"
@@ -559,5 +560,51 @@ func readBack(t *testing.T, r *Report, doc any) {
 	}
 	if err := json.Unmarshal(b, doc); err != nil {
 		t.Fatal(err)
+	}
+}
+
+// With a fixed coefficient width the search's memory is the chain as
+// built (fixed_memory_bits) for fractional chains too: an interpolating
+// polyphase stage's partial sums are accumulator-wide, which only the word
+// lengths know, and a Farrow chain's coefficients are the spec's width,
+// not a stand-in 18 bits (both differed). Invented chains: 6 to 100 MS/s
+// I/Q; in CI's long step also 140 to 16.384 MS/s I/Q (a Farrow stage, 5 s).
+func TestFractionalMemoryAsBuilt(t *testing.T) {
+	specs := []string{`input_rate = "6 MS/s"
+output_rate = "100 MS/s"
+passband = "2.2 MHz"
+protected = "2.5 MHz"
+ripple = "0.2 dB"
+rejection = "66 dB"
+signal = "complex"
+[words]
+input = 16
+output = 14
+coefficients = 16
+`}
+	if os.Getenv("STEPDOWN_LONG") != "" {
+		specs = append(specs, `input_rate = "140 MS/s"
+output_rate = "16.384 MS/s"
+passband = "6 MHz"
+protected = "6.5 MHz"
+ripple = "0.3 dB"
+rejection = "60 dB"
+signal = "complex"
+[words]
+input = 12
+output = 16
+coefficients = 16
+`)
+	}
+	for _, text := range specs {
+		_, res, r := planned(t, text)
+		if len(r.Front) == 0 {
+			t.Fatalf("no front: %s", res.Reason)
+		}
+		for _, c := range r.Front {
+			if c.ChainReport == nil || c.FixedMemoryBits != c.MemoryBits {
+				t.Errorf("%s: memory_bits %d, fixed_memory_bits %+v", c.Notation, c.MemoryBits, c.ChainReport)
+			}
+		}
 	}
 }
