@@ -1114,6 +1114,11 @@ func (p *parser) build() (*Spec, error) {
 	if v, ok := p.lookup("hardware.multiplierless"); ok && out.Multiplierless && cs.CoefBits == 0 && !out.CoefAuto {
 		return nil, p.errAt("hardware.multiplierless", v, `needs words.coefficients, a width in bits or "auto": the adder graphs are built on the rounded integer coefficients`)
 	}
+	if v, ok := p.lookup("hardware.multiplierless"); ok && out.Multiplierless && cs.Fractional() {
+		// Checked here, or the search drops every candidate and can say
+		// only that.
+		return nil, p.errAt("hardware.multiplierless", v, "builds integer stages only (CIC, half-band, FIR), and the ratio of input_rate to output_rate is not a whole number, which takes a polyphase or Farrow stage: set it to false, or choose rates whose ratio is a whole number")
+	}
 
 	out.MaxStages = DefaultMaxStages
 	if n, ok, err := p.integer("search.max_stages", 1, MaxStages, ""); err != nil {

@@ -537,3 +537,22 @@ func TestBareRatesNoUnitHint(t *testing.T) {
 		t.Errorf("error %v", err)
 	}
 }
+
+// A multiplierless spec whose ratio is not a whole number is refused where
+// it is read, naming the key: the search would drop every candidate (only
+// integer stages are built as adder graphs) and could say only that.
+func TestMultiplierlessFractionalRefused(t *testing.T) {
+	text := strings.Replace(minimal, `"1.92 MHz"`, `"1.6 MHz"`, 1) + "[words]\ncoefficients = 16\n[hardware]\nmultiplierless = true\n"
+	_, err := Parse("spec.toml", []byte(text))
+	if err == nil {
+		t.Fatal("no error")
+	}
+	for _, w := range []string{"spec.toml:9:", "hardware.multiplierless = true", "integer stages only", "not a whole number"} {
+		if !strings.Contains(err.Error(), w) {
+			t.Errorf("error %q lacks %q", err, w)
+		}
+	}
+	if _, err := Parse("spec.toml", []byte(minimal+"[words]\ncoefficients = 16\n[hardware]\nmultiplierless = true\n")); err != nil {
+		t.Errorf("a whole-number ratio: %v", err)
+	}
+}

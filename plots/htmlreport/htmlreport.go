@@ -546,15 +546,24 @@ func planCautions(r *report.Report) []string {
 	} else if c.RejectionMarginDB < 1 {
 		out = append(out, fmt.Sprintf("The recommended chain's rejection margin is thin (%.2f dB): data-path truncation can use it up.", c.RejectionMarginDB))
 	}
-	if c.Fractional() {
-		// No word lengths: nothing is rounded, whatever words.coefficients says.
-		out = append(out, fmt.Sprintf("The chain ends in a fractional stage, designed in floating point alone: rejection and ripple are those of floating-point coefficients whatever the spec's coefficient width, memory counts %d-bit coefficient words (the pricing default), and there are no word lengths, no integer or $readmemh files and no hand-off (headers/, vectors/, rtl/), which are made for chains of integer stages only.", cost.FloatCoefBits))
-	} else if r.Spec.Words.CoefficientsMode == "auto" {
-		out = append(out, fmt.Sprintf("Coefficient widths are automatic: the narrowest widths with which the whole chain meets the spec once its taps are rounded; the verdicts, rejection and ripple in the table are those of the rounded taps (the floating-point design's where the rounded taps could not be judged); memory in the table counts %d-bit coefficient words (the pricing default), the word-length figures in report.json count the chosen widths.", cost.FloatCoefBits))
-	} else if r.Spec.Words.Coefficients == nil {
-		out = append(out, fmt.Sprintf("No coefficient width was given: rejection and ripple are those of floating-point coefficients, memory counts %d-bit coefficient words (the pricing default), and no integer or $readmemh files were written.", cost.FloatCoefBits))
-	} else {
+	// Memory: stored coefficients at the pricing default where no width
+	// is fixed; none in a multiplierless chain (wired into its graphs).
+	mem := fmt.Sprintf("memory in the table counts %d-bit coefficient words (the pricing default)", cost.FloatCoefBits)
+	if r.Spec.Hardware.Multiplierless {
+		mem = "memory counts no coefficients (multiplierless: the taps are wired into the adder graphs)"
+	}
+	switch {
+	case r.Spec.Words.CoefficientsMode == "auto":
+		out = append(out, fmt.Sprintf("Coefficient widths are automatic: the narrowest widths with which the whole chain meets the spec once its taps are rounded; the verdicts, rejection and ripple in the table are those of the rounded taps (the floating-point design's where the rounded taps could not be judged); %s, the word-length figures in report.json count the chosen widths.", mem))
+	case r.Spec.Words.Coefficients == nil:
+		out = append(out, fmt.Sprintf("No coefficient width was given: rejection and ripple are those of floating-point coefficients, %s, and no integer or $readmemh files were written.", mem))
+	default:
 		out = append(out, fmt.Sprintf("The taps are rounded to %d bits: the verdicts, rejection and ripple in the table are those of the rounded taps, as they will be built (the floating-point design's where the rounded taps could not be judged); report.json also holds the floating-point design's figures.", *r.Spec.Words.Coefficients))
+	}
+	if c.Fractional() {
+		// Word lengths and coefficient files as any stage; the hand-off
+		// is for integer stages only (report.NoHandoff).
+		out = append(out, "The chain has a fractional stage: no hand-off (headers/, vectors/, rtl/) is made for it, only for chains of integer stages.")
 	}
 	if w := c.ChainReport; w != nil {
 		msg := fmt.Sprintf("Word lengths of the recommended chain (planning figures from a model of the data path, to be confirmed by a bit-true simulation of the RTL): %s", c.BitTrueSummary())
@@ -698,7 +707,7 @@ func stageViews(c report.Chain, files []string, prefix string, clock bool) []sta
 				acc += " (wider than hardware.max_register_bits)"
 			}
 			add("Word lengths", fmt.Sprintf("in %d bits, %s, out %d bits", w.InputBits, acc, w.OutputBits))
-			if w.MultiplierSize != "" {
+			if w.MultiplierSize != "" && s.CoefficientAdders == nil { // an adder graph has no multiplier
 				m := w.MultiplierSize + " bits"
 				if w.HardwareMultipliers != nil {
 					m += fmt.Sprintf(", %d native blocks at the clock", *w.HardwareMultipliers)

@@ -495,6 +495,15 @@ multiplierless = true
 	if strings.Contains(page, `<th class="n">mult/out</th>`) {
 		t.Error("the front table still heads its cost column mult/out")
 	}
+	// An adder graph has no multiplier, and stores no coefficient.
+	if strings.Contains(page, `<th scope="row">Multiplier</th>`) {
+		t.Error("a stage card gives an adder graph a multiplier")
+	}
+	for i, st := range rec.Stages {
+		if st.StageReport != nil && st.CoefMemoryBits != 0 {
+			t.Errorf("stage %d stores %d coefficient bits", i+1, st.CoefMemoryBits)
+		}
+	}
 }
 
 // A front row whose rounded taps could not be judged says its figures are

@@ -184,7 +184,7 @@ func WriteWordLengths(w io.Writer, rep *Report) {
 		}
 		fmt.Fprint(w, ".")
 		if rep.Spec.Words.CoefficientsMode != "fixed" {
-			fmt.Fprint(w, " With coefficients auto the search cannot hold accumulators, memory as built or native multiplier blocks to the limits; a fixed words.coefficients width has the search drop the chains that break them")
+			fmt.Fprint(w, " Without a fixed coefficient width the search cannot hold accumulators, memory as built or native multiplier blocks to the limits; a fixed words.coefficients width has it drop the chains that break them")
 			if c := fittingWidth(ch, rep.Spec.Hardware.MaxRegisterBits); slices.Contains(ch.OverLimits, "max_register_bits") && c >= specfile.MinWordBits {
 				fmt.Fprintf(w, " (this chain's accumulators would fit up to about %d bits, an estimate: an accumulator grows about a bit per coefficient bit)", c)
 			}
@@ -326,7 +326,7 @@ func WriteTable(w io.Writer, rep *Report) {
 				fmt.Fprintf(w, " (the float design's where the rounded taps were not judged)")
 			}
 		}
-		if rep.Spec.Words.CoefficientsMode == "auto" {
+		if rep.Spec.Words.CoefficientsMode == "auto" && !rep.Spec.Hardware.Multiplierless {
 			fmt.Fprintf(w, "; memory counts %d-bit coefficient words, report.json's fixed_memory_bits the chosen widths", cost.FloatCoefBits)
 		}
 		fmt.Fprintln(w)
@@ -334,7 +334,7 @@ func WriteTable(w io.Writer, rep *Report) {
 	if len(over) > 0 {
 		fmt.Fprintf(w, "over limits: as built, by the word lengths planned for each, %s", strings.Join(over, "; "))
 		if rep.Spec.Words.CoefficientsMode != "fixed" {
-			fmt.Fprint(w, " (with coefficients auto the search cannot hold these: a fixed words.coefficients width has it drop such chains)")
+			fmt.Fprint(w, " (without a fixed coefficient width the search cannot hold these: a fixed words.coefficients width has it drop such chains)")
 		}
 		fmt.Fprintln(w)
 	}
