@@ -85,6 +85,11 @@ func main() {
 func run(ctx context.Context, args []string, stdout, stderr io.Writer) int {
 	app := newApp(stdout, stderr)
 	args, err := reorderArgs(app, args)
+	if err == nil && len(args) > 2 && slices.Contains([]string{"--version", "-version", "-v"}, args[1]) {
+		// The version takes nothing after it: a word there is a mistake
+		// (a command put after the flag), not something to drop.
+		err = usagef("%s takes nothing after it (got %q): run stepdown %s alone", args[1], clip(args[2]), args[1])
+	}
 	if err == nil {
 		err = app.RunContext(ctx, args)
 	}

@@ -604,11 +604,16 @@ func TestLongOutName(t *testing.T) {
 }
 
 // --version prints the release (and the commit when the build recorded it)
-// on stdout and exits 0.
+// on stdout and exits 0; with a word after it, it exits 2.
 func TestVersion(t *testing.T) {
 	r := runBinary(t, t.TempDir(), nil, "--version")
 	if r.code != 0 || !strings.HasPrefix(r.stdout, "stepdown version "+report.Version) || r.stderr != "" {
 		t.Errorf("--version: exit %d, stdout %q, stderr %q", r.code, r.stdout, r.stderr)
+	}
+	// A word after it is a mistake, not something to drop.
+	r = runBinary(t, t.TempDir(), nil, "--version", "plan")
+	if r.code != 2 || r.stdout != "" || !strings.Contains(r.stderr, `--version takes nothing after it (got "plan")`) {
+		t.Errorf("--version plan: exit %d, stdout %q, stderr %q", r.code, r.stdout, r.stderr)
 	}
 }
 
