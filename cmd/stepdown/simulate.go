@@ -178,6 +178,18 @@ func runSimulate(c *cli.Context) error {
 			opt.Format.Channels = c.Int("channels")
 		}
 	}
+	set := j.spec.SearchSettings()
+	set.Jobs = c.Int("jobs")
+	var cand optimize.Candidate
+	source := "named"
+	if plan != nil {
+		// A named chain is designed before the input is read, so that one
+		// the spec refuses is refused at once, not after reading a
+		// recording of hundreds of MB.
+		if cand, _, err = j.designNamed(plan, set); err != nil {
+			return err
+		}
+	}
 	sig, format, err := signalio.ReadFile(input, opt)
 	if err != nil {
 		return usagef("--input: %s", err)
@@ -193,15 +205,7 @@ func runSimulate(c *cli.Context) error {
 		return usagef("--input %s: two channels (I/Q), but the spec's signal is %q: set signal = \"complex\" or give one channel", clip(filepath.Base(input)), j.spec.Signal)
 	}
 
-	set := j.spec.SearchSettings()
-	set.Jobs = c.Int("jobs")
-	var cand optimize.Candidate
-	source := "named"
-	if plan != nil {
-		if cand, _, err = j.designNamed(plan, set); err != nil {
-			return err
-		}
-	} else {
+	if plan == nil {
 		source = "recommended"
 		res, err := optimize.Plan(c.Context, cs, set)
 		if c.Context.Err() != nil {

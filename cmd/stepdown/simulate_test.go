@@ -199,6 +199,9 @@ func TestSimulateBadInputs(t *testing.T) {
 		{[]string{}, "--input"},
 		{[]string{"--input", "capture.raw", "--format", "int24"}, "--format"},
 		{[]string{"--input", "capture.raw", "--format", "int16", "--rate", "fast"}, "--rate"},
+		// A chain the spec refuses is refused before the input is read
+		// (here a file that is not there).
+		{[]string{"--input", "missing.wav", "--chain", "cic4m1r8 > fir4"}, "--chain"},
 	} {
 		args := append([]string{"simulate", "--out", "out"}, c.args...)
 		r := runBinary(t, dir, nil, args...)
