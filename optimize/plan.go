@@ -720,7 +720,7 @@ func builtMemory(f *cost.Figures, c *chain.Chain, ws *fixed.Widths) {
 	}
 	f.Stages = append([]cost.StageFigures(nil), f.Stages...) // not the caller's copy's
 	for i, sw := range st {
-		f.Stages[i].MemoryBits = sw.DataMemoryBits*cx(c) + sw.CoefMemoryBits
+		f.Stages[i].MemoryBits = sw.MemoryBits(c.Complex)
 	}
 	f.MemoryBits = ws.MemoryBits
 }

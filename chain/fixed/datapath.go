@@ -508,11 +508,7 @@ func plan(c Cascade, w Words, s Settings, minBits []int) (*Widths, error) {
 		if s.Multiplierless {
 			sw.CoefMemoryBits = 0 // wired into the adder graph
 		}
-		data := sw.DataMemoryBits
-		if c.Complex {
-			data *= 2
-		}
-		out.MemoryBits += data + sw.CoefMemoryBits
+		out.MemoryBits += sw.MemoryBits(c.Complex)
 		out.HardwareMultipliers += sw.HardwareMultipliers
 		out.DCGain *= sw.Gain
 	}
@@ -1004,6 +1000,17 @@ func (sw *StageWidths) costAtClock(outRate float64, complexData bool, s Settings
 		rate *= 2
 	}
 	sw.HardwareMultipliers = int(math.Ceil(rate/s.Clock-1e-12)) * sw.NativePerProduct
+}
+
+// MemoryBits is the stage's memory as built: its data memory, doubled for
+// a complex chain's two data paths, and its coefficient memory, once.
+// Widths.MemoryBits is their sum over the stages.
+func (sw *StageWidths) MemoryBits(complexData bool) int {
+	data := sw.DataMemoryBits
+	if complexData {
+		data *= 2
+	}
+	return data + sw.CoefMemoryBits
 }
 
 // cicLanes counts a recursive CIC's integrator registers once per lane

@@ -2,13 +2,11 @@ package report
 
 import (
 	"bytes"
-	"context"
 	"strings"
 	"testing"
 
 	"github.com/stepdown-dsp/stepdown/chain/fixed"
 	"github.com/stepdown-dsp/stepdown/chain/specfile"
-	"github.com/stepdown-dsp/stepdown/optimize"
 )
 
 // NewResources on a hand-built chain, counted by hand: a CIC 4 lanes wide
@@ -59,19 +57,7 @@ func TestNewResources(t *testing.T) {
 // data and coefficients) on every front chain of the example, a complex
 // chain.
 func TestResourcesHoldBothPaths(t *testing.T) {
-	s, err := specfile.Example()
-	if err != nil {
-		t.Fatal(err)
-	}
-	ctx := context.Background()
-	res, err := optimize.Plan(ctx, s.Chain, s.SearchSettings())
-	if err != nil {
-		t.Fatal(err)
-	}
-	rep, err := NewContext(ctx, "plan", s, res)
-	if err != nil {
-		t.Fatal(err)
-	}
+	_, _, rep := planned(t, specfile.ExampleText)
 	for _, c := range rep.Front {
 		r := c.Resources
 		if r == nil || c.ChainReport == nil {
