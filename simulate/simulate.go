@@ -44,8 +44,9 @@ type Result struct {
 	Widths *fixed.Widths
 }
 
-// MaxSamples caps the input per path (2^24 samples: the codes, the float
-// run and the outputs stay within a few hundred MB).
+// MaxSamples caps the input per path (2^24 samples: for an I/Q recording
+// the codes take 256 MiB, and the integer and float outputs up to 512 MiB
+// more).
 const MaxSamples = 1 << 24
 
 // Run plans the word lengths of the designed chain c for spec (the same

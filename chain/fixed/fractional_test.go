@@ -738,6 +738,18 @@ func TestFractionalStopped(t *testing.T) {
 		if len(codes) != len(last) || len(fl) != len(codes) {
 			t.Fatalf("%s: RunCodes %d codes, %d floats; Model %d", chain.Notation(c.Plan), len(codes), len(fl), len(last))
 		}
+		// RunCodes makes room for its outputs at once, never less than
+		// the Model makes, on inputs of any length.
+		for _, n := range []int{1, 2, 7, 99, 1000, 1499, len(x)} {
+			fresh, _ := NewModel(cas, ws)
+			out, err := fresh.Run(x[:n])
+			if err != nil {
+				t.Fatal(err)
+			}
+			if got, room := len(out[len(out)-1]), decimationRoom(cas, n); got > room {
+				t.Errorf("%s: %d inputs make %d outputs; RunCodes made room for %d", chain.Notation(c.Plan), n, got, room)
+			}
+		}
 		for i := range last {
 			if codes[i] != last[i] {
 				t.Fatalf("%s: RunCodes y[%d] = %d, Model %d", chain.Notation(c.Plan), i, codes[i], last[i])

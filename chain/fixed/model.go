@@ -145,11 +145,13 @@ func RunCodes(ctx context.Context, c Cascade, w *Widths, x []int64) ([]int64, []
 	lsb := math.Ldexp(1, -(w.InputBits - 1))
 	olsb := math.Ldexp(1, w.Stages[len(w.Stages)-1].OutputBits-1)
 	blk := make([]float64, min(blockLen(c), len(x)))
-	var codes []int64
-	var fl []float64
-	if nout > 0 {
-		codes, fl = make([]int64, 0, nout), make([]float64, 0, nout)
+	if nout == 0 {
+		// Room for every output at once: grown by append, the outputs of
+		// a recording of 2^24 I/Q samples would, for a moment, be held
+		// twice over.
+		nout = decimationRoom(c, len(x))
 	}
+	codes, fl := make([]int64, 0, nout), make([]float64, 0, nout)
 	for n0 := 0; n0 < len(x); n0 += len(blk) {
 		if err := ctx.Err(); err != nil {
 			return nil, nil, fmt.Errorf("fixed: run stopped: %w", err)
@@ -165,6 +167,14 @@ func RunCodes(ctx context.Context, c Cascade, w *Widths, x []int64) ([]int64, []
 		fl = append(fl, yf...)
 	}
 	return codes, fl, nil
+}
+
+// decimationRoom is at least the number of outputs a decimation cascade
+// makes from n input samples: n den/num, rounded up, and a sample or two
+// more for the phase the run starts on.
+func decimationRoom(c Cascade, n int) int {
+	num, den := c.fraction()
+	return n/num*den + den + 2
 }
 
 // MaxRunCodesOutput bounds the output of RunCodes on an interpolation
