@@ -166,14 +166,27 @@ func (c *Chain) SignalOrder() []int {
 
 // Lanes is how many samples a stage whose high rate (the rate its taps or
 // integrators run at) is rate Hz must take per cycle of a clock of clock
-// Hz: ceil(rate/clock), and 1 without a clock (0) or at or below it. Such
-// a stage is built as that many parallel lanes (a polyphase decomposition
-// of the same filter; a CIC's integrators once per lane): common practice,
-// a planning estimate of the structure. Package cost prices lanes and
-// package fixed counts a CIC's registers by this one rule.
+// Hz: PerCycle(rate, clock), and 1 without a clock (0) or at or below it.
+// Such a stage is built as that many parallel lanes (a polyphase
+// decomposition of the same filter; a CIC's integrators once per lane):
+// common practice, a planning estimate of the structure. Package cost
+// prices lanes and package fixed counts a CIC's registers by this one rule.
 func Lanes(rate, clock float64) int {
 	if !(clock > 0) || !(rate > clock) {
 		return 1
+	}
+	return PerCycle(rate, clock)
+}
+
+// PerCycle is how many of a thing done rate times a second a clock of
+// clock Hz must do in each of its cycles: ceil(rate/clock), 0 for no rate.
+// A rate that is a whole multiple of the clock up to the rounding of the
+// arithmetic that made it (a relative 1e-9) counts as that multiple. It is
+// the one rule for Lanes, cost's time-shared multipliers and fixed's
+// native multiplier blocks at the clock; clock must be above 0.
+func PerCycle(rate, clock float64) int {
+	if !(rate > 0) {
+		return 0
 	}
 	return int(math.Ceil(rate/clock - 1e-9))
 }

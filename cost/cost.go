@@ -264,7 +264,7 @@ func Price(spec chain.Spec, c *chain.Chain, s Settings) (Figures, error) {
 		}
 		sf := multiplyOut(mul, add, dataWords, dataBits, stored(coefWords, s), coefBits, cx, later[i], delayIn, rates[i])
 		if s.Clock > 0 && mul > 0 && !s.Multiplierless {
-			sf.Multipliers = int(math.Ceil(mul*float64(cx)*rates[i+1]/s.Clock - 1e-9))
+			sf.Multipliers = chain.PerCycle(mul*float64(cx)*rates[i+1], s.Clock)
 		}
 		sf.CoefficientAdders, sf.StructuralAdders, sf.AddersEstimated = block.Coefficient, block.Structural, block.Estimated
 		sf.Adders = adders

@@ -470,7 +470,7 @@ func (e *estimator) score(plan []chain.StagePlan) (figs, dropCode) {
 		if e.p.clock > 0 && v.lo.mpo > 0 && !e.p.adders {
 			// Each stage has its own multipliers: at least its multiplies
 			// per second (per final output, times FK) over the clock.
-			mults += math.Ceil(v.lo.mpo*e.p.fk/e.p.clock - 1e-9)
+			mults += float64(chain.PerCycle(v.lo.mpo*e.p.fk, e.p.clock))
 		}
 	}
 	// The limits on a whole chain, at the favourable end of its range, so

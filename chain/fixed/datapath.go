@@ -999,7 +999,7 @@ func (sw *StageWidths) costAtClock(outRate float64, complexData bool, s Settings
 	if complexData {
 		rate *= 2
 	}
-	sw.HardwareMultipliers = int(math.Ceil(rate/s.Clock-1e-12)) * sw.NativePerProduct
+	sw.HardwareMultipliers = chain.PerCycle(rate, s.Clock) * sw.NativePerProduct
 }
 
 // MemoryBits is the stage's memory as built: its data memory, doubled for

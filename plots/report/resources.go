@@ -3,8 +3,9 @@ package report
 import (
 	"fmt"
 	"io"
-	"math"
 	"slices"
+
+	"github.com/stepdown-dsp/stepdown/chain"
 )
 
 // BlockMemoryBits is the size from which a stage's memory is counted as
@@ -75,7 +76,7 @@ func NewResources(c *Chain, clock, outRate float64, paths int) *Resources {
 		if st.Multipliers != nil {
 			sr.Multipliers = *st.Multipliers
 		}
-		sr.Adders = int(math.Ceil(st.AddsPerOutput*outRate/clock - 1e-9))
+		sr.Adders = chain.PerCycle(st.AddsPerOutput*outRate, clock)
 		if c.Adders != nil && st.Adders != nil {
 			// Multiplierless: the stage's adders as built (its graphs and
 			// tap sums are wired to their constants, not time-shared).
