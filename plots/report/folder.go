@@ -326,6 +326,25 @@ func (s stopWriter) Write(p []byte) (int, error) {
 // case the error says so: the new output is in place but the previous one,
 // moved aside, could not be removed.
 func (o *Folder) Commit() error {
+	err := o.commit()
+	if err != nil && o.tmp != "" {
+		// The run's files are not wanted now. A temporary folder that
+		// cannot go (its parent made read-only during the run) is named,
+		// so that nothing is left behind unsaid.
+		if rerr := removeAll(o.tmp); rerr != nil {
+			left := o.tmp
+			o.tmp = ""
+			o.unlock()
+			return failure("%v; the run's temporary folder %q could not be removed either: remove it yourself (%v)", err, left, unwrapPath(rerr))
+		}
+		o.tmp = ""
+		o.unlock()
+	}
+	return err
+}
+
+// commit is Commit but for the temporary folder of a failed commit.
+func (o *Folder) commit() error {
 	shown := units.Clip(o.dir, units.MaxEcho)
 	if !o.exists {
 		if err := rename(o.tmp, o.abs); err != nil {

@@ -193,6 +193,43 @@ func TestOutCommitFailureRestores(t *testing.T) {
 	}
 }
 
+// A commit that fails in a parent folder made read-only during the run
+// (its rename, then the temporary folder's removal, refused) names the
+// temporary folder it could not remove, rather than leaving it unsaid.
+func TestOutCommitFailureNamesLeftover(t *testing.T) {
+	for _, existed := range []bool{false, true} {
+		parent := t.TempDir()
+		dir := filepath.Join(parent, "out")
+		if existed {
+			must(t, runOut(t, dir, "first"))
+		}
+		denied := func(p string) bool { return strings.HasPrefix(filepath.Base(p), tmpPrefix) }
+		oldRename, oldRemove := rename, removeAll
+		rename = func(from, to string) error {
+			if denied(from) {
+				return &os.LinkError{Op: "rename", Old: from, New: to, Err: os.ErrPermission}
+			}
+			return os.Rename(from, to)
+		}
+		removeAll = func(p string) error {
+			if denied(p) {
+				return &os.PathError{Op: "unlinkat", Path: p, Err: os.ErrPermission}
+			}
+			return os.RemoveAll(p)
+		}
+		err := runOut(t, dir, "second")
+		rename, removeAll = oldRename, oldRemove
+		if err == nil || !strings.Contains(err.Error(), "temporary folder") || !strings.Contains(err.Error(), tmpPrefix) || !strings.Contains(err.Error(), "remove it yourself") {
+			t.Errorf("existed %v: commit = %v, want an error naming the temporary folder left", existed, err)
+		}
+		if existed {
+			if got := readString(t, filepath.Join(dir, "report.json")); got != "first" {
+				t.Errorf("report.json = %q, want the previous output", got)
+			}
+		}
+	}
+}
+
 func must(t *testing.T, err error) {
 	t.Helper()
 	if err != nil {
