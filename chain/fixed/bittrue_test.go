@@ -128,7 +128,7 @@ func TestBitTrueSNRPrediction(t *testing.T) {
 		a := math.Pow(10, tone.Level/20)
 		sigma := math.Pow(10, sig.NoiseDBFS/20)
 		hf := cascadeTaps(c, w, 0, false)
-		pSig := a*a/2*math.Pow(magnitude(hf, ftone, c.InputRate), 2) + sigma*sigma*noiseGain(hf)
+		pSig := a*a/2*math.Pow(remez.Magnitude(hf, ftone, c.InputRate), 2) + sigma*sigma*noiseGain(hf)
 
 		qin := math.Ldexp(1, -(w.InputBits - 1))
 		pNoise := qin * qin / 12 * noiseGain(cascadeTaps(c, w, 0, true))
@@ -159,7 +159,7 @@ func TestBitTrueSNRPrediction(t *testing.T) {
 			}
 		}
 		hq := cascadeTaps(c, w, 0, true)
-		dg := magnitude(hq, ftone, c.InputRate) - magnitude(hf, ftone, c.InputRate)
+		dg := remez.Magnitude(hq, ftone, c.InputRate) - remez.Magnitude(hf, ftone, c.InputRate)
 		// The test signal's own noise through the coefficient error hq - hf.
 		var nd float64
 		for k := range hq {

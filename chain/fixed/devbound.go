@@ -7,6 +7,7 @@ import (
 	"sort"
 
 	"github.com/stepdown-dsp/stepdown/chain/remez"
+	"github.com/stepdown-dsp/stepdown/internal/chunks"
 	"gonum.org/v1/gonum/dsp/fourier"
 )
 
@@ -303,19 +304,23 @@ func (r *response) eval(f float64) float64 {
 	if r.sym {
 		return Amplitude(r.h, f, r.rate)
 	}
-	return magnitude(r.h, f, r.rate)
+	return remez.Magnitude(r.h, f, r.rate)
 }
 
 // each writes eval at each of xs into out, the same bits (a symmetric
-// filter's interleaved by remez.AmplitudeEach).
+// filter's interleaved by remez.AmplitudeEach; any other's point by point,
+// on every processor for a long filter, as a fractional stage's prototype
+// of thousands of taps is).
 func (r *response) each(xs, out []float64) {
 	if r.sym {
 		remez.AmplitudeEach(r.h, xs, r.rate, out)
 		return
 	}
-	for i, f := range xs {
-		out[i] = magnitude(r.h, f, r.rate)
-	}
+	chunks.Run(len(xs), len(xs)*len(r.h), func(lo, hi int) {
+		for i := lo; i < hi; i++ {
+			out[i] = remez.Magnitude(r.h, xs[i], r.rate)
+		}
+	})
 }
 
 // boundable says whether band b of the filter is measured through bounds

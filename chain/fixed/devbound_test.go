@@ -281,7 +281,7 @@ func TestMagBoundsBruteForce(t *testing.T) {
 				f = m * c.rate / float64(ab.size)
 			}
 			m := ab.cell(f)
-			for _, a := range []float64{dtft(c.h, f, c.rate), magnitude(c.h, f, c.rate)} {
+			for _, a := range []float64{dtft(c.h, f, c.rate), remez.Magnitude(c.h, f, c.rate)} {
 				if a < ab.lo[m] || a > ab.hi[m] {
 					t.Fatalf("%s: |H(%g Hz)| = %.17g outside cell %d's [%.17g, %.17g]", c.name, f, a, m, ab.lo[m], ab.hi[m])
 				}

@@ -66,7 +66,7 @@ func TestQuantizeAgainstSciPy(t *testing.T) {
 			}
 			h := c.Float()
 			for i, fr := range f.Freqs {
-				got := magnitude(h, fr, f.Rate)
+				got := remez.Magnitude(h, fr, f.Rate)
 				if math.Abs(got-q.Mag[i]) > 1e-12 {
 					t.Errorf("%s %d bits: |H(%g)| = %.15g, freqz %.15g", f.Name, q.Bits, fr, got, q.Mag[i])
 				}

@@ -808,8 +808,8 @@ func fracCulprit(c, q *chain.Chain, j int, sw *StageWidths, st Stage, a chain.An
 	const pts = 256
 	for k := 0; k <= pts; k++ {
 		f := fp * float64(k) / pts
-		af := magnitude(ft, f, rate)
-		v = math.Max(v, math.Abs(magnitude(qt, f, rate)-af)/math.Max(af, 1e-300))
+		af := remez.Magnitude(ft, f, rate)
+		v = math.Max(v, math.Abs(remez.Magnitude(qt, f, rate)-af)/math.Max(af, 1e-300))
 	}
 	return v
 }

@@ -164,18 +164,6 @@ func amplitudeDirect(h []float64, f, rate float64) float64 {
 	return a
 }
 
-// magnitude returns |H(f)| for any h, symmetric or not.
-func magnitude(h []float64, f, rate float64) float64 {
-	w := 2 * math.Pi * f / rate
-	var re, im float64
-	for k, v := range h {
-		s, c := math.Sincos(w * float64(k))
-		re += v * c
-		im -= v * s
-	}
-	return math.Hypot(re, im)
-}
-
 func symmetric(h []float64) bool {
 	n := len(h)
 	for k := 0; k < n/2; k++ {

@@ -7,6 +7,7 @@ import (
 	"math"
 	"sync/atomic"
 
+	"github.com/stepdown-dsp/stepdown/internal/chunks"
 	"gonum.org/v1/gonum/dsp/fourier"
 )
 
@@ -298,7 +299,7 @@ func (e *engine) taps() ([]float64, error) {
 		// so they are spread over the cores (each sample is computed alone,
 		// so the taps are the same whatever the number of cores) and the
 		// design's context is checked between runs of them.
-		parallel(l+1, (l+1)*r, func(lo, hi int) {
+		chunks.Run(l+1, (l+1)*r, func(lo, hi int) {
 			for j := lo; j < hi; j++ {
 				if (j-lo)%tapsCheckEvery == 0 && e.stopped() != nil {
 					return
@@ -474,7 +475,7 @@ func (e *engine) fastDeviations(h []float64, dev, wdev []float64, slow []bool) {
 	e.meas = pts
 	vals := grow(e.measV, len(pts))
 	e.measV = vals
-	parallel(len(pts), len(pts)*len(h)/2, func(lo, hi int) {
+	chunks.Run(len(pts), len(pts)*len(h)/2, func(lo, hi int) {
 		for i := lo; i < hi; i++ {
 			if (i-lo)%tapsCheckEvery == 0 && e.stopped() != nil {
 				return // the design is stopped: design returns its error

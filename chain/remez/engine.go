@@ -5,10 +5,10 @@ import (
 	"errors"
 	"fmt"
 	"math"
-	"runtime"
 	"sort"
-	"sync"
 	"sync/atomic"
+
+	"github.com/stepdown-dsp/stepdown/internal/chunks"
 )
 
 // point is a frequency of the dense grid or of a reference, with what the
@@ -562,7 +562,7 @@ func (e *engine) level() error {
 	}
 	// x falls as the index rises; for point i the differences use y
 	// (accurate near x = 1) while x_i + x_j >= 0, z (near x = -1) after.
-	parallel(m, m*m, func(lo, hi int) {
+	chunks.Run(m, m*m, func(lo, hi int) {
 		for i := lo; i < hi; i++ {
 			if e.halted() {
 				return // cancelled: run returns without reading mant
@@ -707,28 +707,6 @@ func renorm4(p0, p1, p2, p3 float64, ex int) (float64, float64, float64, float64
 	return f0, f1, f2, f3, ex + e0 + e1 + e2 + e3
 }
 
-// parallel runs fn over [0, n) in contiguous chunks, one per processor,
-// when the work (cost, in inner-loop steps) is worth it. Callers write
-// only to their own indices, so results do not depend on the split.
-func parallel(n, cost int, fn func(lo, hi int)) {
-	nw := runtime.GOMAXPROCS(0)
-	if cost < 1<<17 || nw < 2 || n < 2 {
-		fn(0, n)
-		return
-	}
-	nw = min(nw, n)
-	chunk := (n + nw - 1) / nw
-	var wg sync.WaitGroup
-	for lo := 0; lo < n; lo += chunk {
-		wg.Add(1)
-		go func(lo, hi int) {
-			defer wg.Done()
-			fn(lo, hi)
-		}(lo, min(lo+chunk, n))
-	}
-	wg.Wait()
-}
-
 func grow(s []float64, n int) []float64 {
 	if cap(s) < n {
 		return make([]float64, n)
@@ -792,7 +770,7 @@ func (e *engine) errAt(p *point) float64 {
 // evalGrid sets e on every grid point. Points are independent, so the
 // split over goroutines cannot change any result.
 func (e *engine) evalGrid() {
-	parallel(len(e.grid), len(e.grid)*len(e.xr), func(lo, hi int) {
+	chunks.Run(len(e.grid), len(e.grid)*len(e.xr), func(lo, hi int) {
 		for i := lo; i < hi; i++ {
 			if i&63 == 0 && e.halted() {
 				return
@@ -853,7 +831,7 @@ func (e *engine) extremaMode(full, confirm bool) float64 {
 		if full {
 			evals = 8
 		}
-		parallel(len(e.cand), evals*len(e.cand)*len(e.xr), func(lo, hi int) {
+		chunks.Run(len(e.cand), evals*len(e.cand)*len(e.xr), func(lo, hi int) {
 			for k := lo; k < hi; k++ {
 				gi := e.cidx[k]
 				if gi < 0 || e.halted() {
@@ -1030,7 +1008,7 @@ func (e *engine) localStep() (float64, bool) {
 	e.tmp = append(e.tmp[:0], e.ref...)
 	ad := math.Abs(e.delta)
 	bad := atomic.Bool{}
-	parallel(m, 6*m*len(e.xr), func(lo, hi int) {
+	chunks.Run(m, 6*m*len(e.xr), func(lo, hi int) {
 		for i := lo; i < hi; i++ {
 			if e.halted() {
 				bad.Store(true)
