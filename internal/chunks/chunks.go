@@ -1,7 +1,3 @@
-// Package chunks runs a loop over an index range on every processor, in
-// fixed contiguous chunks. The caller's function computes each index on
-// its own and writes only to its own indices, so the results are the same
-// bits whatever GOMAXPROCS is; only the time changes.
 package chunks
 
 import (
