@@ -25,7 +25,8 @@ const MaxFrames = 1 << 24
 type Signal struct {
 	// RateHz is the sample rate in Hz, per channel.
 	RateHz float64
-	// Bits is the word width of the codes, 2 to 64.
+	// Bits is the word width of the codes, 1 to 64 (a 1-bit word, the
+	// codes -1 and 0, is a single-bit noise-shaped converter's).
 	Bits int
 	// Samples are the codes, Samples[channel][frame].
 	Samples [][]int64
@@ -43,15 +44,15 @@ func (s *Signal) Frames() int {
 }
 
 // Check reports whether s is a valid signal: a finite positive rate, Bits
-// from 2 to 64, one or two channels of equal length, and every code
+// from 1 to 64, one or two channels of equal length, and every code
 // within Bits. name (the file or the field) starts the message.
 func (s *Signal) Check(name string) error {
 	name = display(name)
 	if !(s.RateHz > 0) || math.IsInf(s.RateHz, 0) {
 		return fmt.Errorf("%s: sample rate %v Hz: must be finite and above zero", name, s.RateHz)
 	}
-	if s.Bits < 2 || s.Bits > 64 {
-		return fmt.Errorf("%s: word width %d bits: must be 2 to 64", name, s.Bits)
+	if s.Bits < 1 || s.Bits > 64 {
+		return fmt.Errorf("%s: word width %d bits: must be 1 to 64", name, s.Bits)
 	}
 	if c := len(s.Samples); c != 1 && c != 2 {
 		return fmt.Errorf("%s: %d channels: must be 1 (real) or 2 (I/Q)", name, c)
@@ -127,8 +128,8 @@ func (k Kind) String() string {
 type Format struct {
 	Kind Kind
 	// Bits is the sample word: 16, 24 or 32 for WAV; 16 or 32 for raw
-	// (int16, int32); 2 to 64 for CSV, the width its values are checked
-	// against.
+	// (int16, int32); 1 to 64 for CSV, the width its values are checked
+	// against (1: the codes -1 and 0 of a single-bit modulator).
 	Bits int
 	// Channels is 1 (real) or 2 (I/Q, I first).
 	Channels int
@@ -161,7 +162,7 @@ func (f Format) String() string {
 //
 //	wav, wav16, wav24, wav32   WAV (the bare name takes the width from the header or signal)
 //	int16, int32               raw little-endian integers (s16le and s32le are accepted too)
-//	csv, csv2 ... csv64        CSV (the number is the values' bit width)
+//	csv, csv1 ... csv64        CSV (the number is the values' bit width)
 //
 // The channel count is not part of the name.
 func ParseFormat(s string) (Format, error) {
@@ -182,7 +183,7 @@ func ParseFormat(s string) (Format, error) {
 		return Format{}, fmt.Errorf("format %q: a raw file has no header, so name its sample type: int16 or int32", cut(s))
 	}
 	if rest, ok := strings.CutPrefix(t, "csv"); ok {
-		if b, err := strconv.Atoi(rest); err == nil && b >= 2 && b <= 64 {
+		if b, err := strconv.Atoi(rest); err == nil && b >= 1 && b <= 64 {
 			return Format{Kind: CSV, Bits: b}, nil
 		}
 	}
@@ -240,8 +241,8 @@ func checkFormat(name string, f Format) error {
 			return fmt.Errorf("%s: raw samples of %d bits: must be int16 or int32", name, f.Bits)
 		}
 	case CSV:
-		if f.Bits != 0 && (f.Bits < 2 || f.Bits > 64) {
-			return fmt.Errorf("%s: CSV values of %d bits: must be 2 to 64", name, f.Bits)
+		if f.Bits != 0 && (f.Bits < 1 || f.Bits > 64) {
+			return fmt.Errorf("%s: CSV values of %d bits: must be 1 to 64", name, f.Bits)
 		}
 	default:
 		return fmt.Errorf("%s: format %s: must be wav, raw or csv", name, f.Kind)

@@ -417,7 +417,7 @@ func TestParseFormat(t *testing.T) {
 			t.Errorf("ParseFormat(%q).String() = %q", s, f.String())
 		}
 	}
-	for _, s := range []string{"", "int8", "int24", "wav8", "float32", "csv1", "csv65", "csvx", "raw", strings.Repeat("x", 100)} {
+	for _, s := range []string{"", "int8", "int24", "wav8", "float32", "csv0", "csv65", "csvx", "raw", strings.Repeat("x", 100)} {
 		_, err := ParseFormat(s)
 		if err == nil {
 			t.Errorf("ParseFormat(%q): no error", s)

@@ -15,7 +15,8 @@ type Input struct {
 	// rate.
 	RateHz float64
 	// Bits is the width of the codes (two's complement, a code w standing
-	// for w / 2^(Bits-1) of full scale), 2 to 32.
+	// for w / 2^(Bits-1) of full scale), 1 to 32 (1: the codes -1 and 0
+	// of a single-bit noise-shaped converter, as the chain takes them).
 	Bits int
 	// Paths holds one slice of codes for a real signal, I then Q for a
 	// complex one, of equal length.
@@ -73,8 +74,8 @@ func Run(ctx context.Context, spec chain.Spec, c *chain.Chain, s fixed.Settings,
 	if n := len(in.Paths[0]); n > MaxSamples {
 		return nil, fmt.Errorf("simulate: the input has %d samples per channel; at most %d are run", n, MaxSamples)
 	}
-	if in.Bits < 2 || in.Bits > 32 {
-		return nil, fmt.Errorf("simulate: %d-bit input codes: the width must lie in [2, 32] bits", in.Bits)
+	if in.Bits < 1 || in.Bits > 32 {
+		return nil, fmt.Errorf("simulate: %d-bit input codes: the width must lie in [1, 32] bits", in.Bits)
 	}
 	if r := c.InputRate; !(math.Abs(in.RateHz-r) <= 1e-9*r) {
 		return nil, fmt.Errorf("simulate: the input's sample rate is %.10g Hz, the spec's input_rate %.10g Hz", in.RateHz, r)
@@ -109,14 +110,21 @@ func Run(ctx context.Context, spec chain.Spec, c *chain.Chain, s fixed.Settings,
 }
 
 // toWord moves codes of from bits to the chain's to-bit input word, in
-// place: exactly when the word is as wide or wider (a shift up), else
-// rounded to nearest with halves away from zero and saturated, which is
-// what fixed.ADC does to the fractions of full scale (a power-of-two
-// scaling, exact), in integer arithmetic. It returns the count of
-// saturated samples.
+// place: exactly when the word is as wide or wider (a shift up); to a
+// 1-bit word, a single-bit modulator's, by the sign (the codes 0 for the
+// level at plus full scale and -1 for minus, package sigmadelta's, none
+// saturated); else rounded to nearest with halves away from zero and
+// saturated, which is what fixed.ADC does to the fractions of full scale
+// (a power-of-two scaling, exact), in integer arithmetic. It returns the
+// count of saturated samples.
 func toWord(x []int64, from, to int) int {
 	switch {
 	case from == to:
+		return 0
+	case to == 1:
+		for i, v := range x {
+			x[i] = v >> 63 // -1 below zero, else 0
+		}
 		return 0
 	case to > from:
 		for i, v := range x {

@@ -192,6 +192,11 @@ func runSimulate(c *cli.Context) error {
 	}
 	sig, format, err := signalio.ReadFile(input, opt)
 	if err != nil {
+		if opt.Format.Kind == signalio.CSV && stated.Bits == 0 && opt.Format.Bits == 1 {
+			// A single-bit modulator's codes are -1 and 0 as the chain
+			// takes them; a bitstream written as -1 and +1 is a 2-bit one.
+			return usagef("--input: %s; a single-bit modulator's codes are -1 and 0 here: give --format csv2 for values of -1 and +1 (taken by their sign)", err)
+		}
 		return usagef("--input: %s", err)
 	}
 	if !(math.Abs(sig.RateHz-cs.InputRate) <= 1e-9*cs.InputRate) {

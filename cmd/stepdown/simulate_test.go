@@ -158,6 +158,71 @@ func readCodes(t *testing.T, path string) [][]int64 {
 	return out
 }
 
+// A single-bit modulator's bitstream can be simulated: as the chain's own
+// 1-bit codes (-1 and 0, a CSV's default for a 1-bit input word), as -1
+// and +1 values (--format csv2) and as a 16-bit WAV, each taken by its
+// sign, simulate's output is check's vectors (noise.out.txt) sample for
+// sample. Values of +1 in a CSV of the default width are refused with a
+// hint naming --format csv2.
+func TestSimulateSingleBit(t *testing.T) {
+	dir := t.TempDir()
+	spec, err := filepath.Abs(filepath.Join("..", "..", "testdata", "specs", "sensor_sigma_delta.toml"))
+	must(t, err)
+	const notation = "cic6m1r64 > fir2"
+	if r := runBinary(t, dir, nil, "check", spec, "--chain", notation, "--out", "checked", "--quiet"); r.code != 0 {
+		t.Fatalf("check: exit %d: %s", r.code, r.stderr)
+	}
+	in := readCodes(t, filepath.Join(dir, "checked", "vectors", "noise.in.txt"))[0]
+	want := readCodes(t, filepath.Join(dir, "checked", "vectors", "noise.out.txt"))[0]
+	var codes, pm1 strings.Builder
+	wavCodes := make([]int64, len(in))
+	for i, v := range in {
+		if v != 0 && v != -1 {
+			t.Fatalf("noise.in.txt sample %d = %d: not a 1-bit code", i, v)
+		}
+		fmt.Fprintf(&codes, "%d\n", v)
+		fmt.Fprintf(&pm1, "%d\n", 2*v+1)
+		wavCodes[i] = 32767 * (2*v + 1)
+	}
+	must(t, os.WriteFile(filepath.Join(dir, "codes.csv"), []byte(codes.String()), 0o644))
+	must(t, os.WriteFile(filepath.Join(dir, "pm1.csv"), []byte(pm1.String()), 0o644))
+	wav, err := signalio.Marshal(&signalio.Signal{RateHz: 6.144e6, Bits: 16, Samples: [][]int64{wavCodes}}, signalio.Format{Kind: signalio.WAV, Bits: 16, Channels: 1})
+	must(t, err)
+	must(t, os.WriteFile(filepath.Join(dir, "pm1.wav"), wav, 0o644))
+	for _, tc := range []struct {
+		input, out string
+		args       []string
+	}{
+		{"codes.csv", "output.csv", nil},
+		{"pm1.csv", "output.csv", []string{"--format", "csv2"}},
+		{"pm1.wav", "output.wav", nil},
+	} {
+		sim := "sim_" + strings.ReplaceAll(tc.input, ".", "_")
+		args := append([]string{"simulate", spec, "--chain", notation, "--input", tc.input, "--out", sim, "--quiet"}, tc.args...)
+		if r := runBinary(t, dir, nil, args...); r.code != 0 {
+			t.Fatalf("simulate %s: exit %d: %s", tc.input, r.code, r.stderr)
+		}
+		opt := signalio.Options{}
+		if strings.HasSuffix(tc.out, ".csv") {
+			opt = signalio.Options{Format: signalio.Format{Kind: signalio.CSV, Bits: 24}, RateHz: 48e3}
+		}
+		got, _, err := signalio.ReadFile(filepath.Join(dir, sim, tc.out), opt)
+		must(t, err)
+		if len(got.Samples[0]) != len(want) {
+			t.Fatalf("simulate %s: %d samples, vectors %d", tc.input, len(got.Samples[0]), len(want))
+		}
+		for i := range want {
+			if got.Samples[0][i] != want[i] {
+				t.Fatalf("simulate %s sample %d: %d, vectors %d", tc.input, i, got.Samples[0][i], want[i])
+			}
+		}
+	}
+	r := runBinary(t, dir, nil, "simulate", spec, "--chain", notation, "--input", "pm1.csv", "--out", "refused", "--quiet")
+	if r.code != 2 || !strings.Contains(r.stderr, "--format csv2") || strings.Count(strings.TrimSpace(r.stderr), "\n") != 0 {
+		t.Errorf("simulate of -1/+1 values at the 1-bit default: exit %d, %q; want exit 2 naming --format csv2 in one line", r.code, r.stderr)
+	}
+}
+
 // Bad recordings get one line naming the file and the rule, exit 2, and
 // leave nothing behind.
 func TestSimulateBadInputs(t *testing.T) {
