@@ -1,6 +1,7 @@
 package fixed
 
 import (
+	"context"
 	"errors"
 	"fmt"
 	"math"
@@ -868,8 +869,11 @@ func planFIR(st Stage, rate float64, in, ob, coefBits int, s Settings, minBits i
 		}
 	}
 	var bands []remez.Band
-	sw.FloatDeviations, sw.FloatMeets, bands = floatTargets(st.Taps, rate, st.Bands, q.Density)
 	var err error
+	sw.FloatDeviations, sw.FloatMeets, bands, err = floatTargets(q.ctx, st.Taps, rate, st.Bands, q.Density)
+	if err != nil {
+		return StageWidths{}, err
+	}
 	if coefBits == 0 {
 		if st.Up > 0 {
 			// A fractional stage's prototype (planPolyphase).
@@ -1050,9 +1054,11 @@ func b2i(b bool) int {
 // misses is held to its float deviation plus 1/16 instead, so that a width
 // is still found and the shortfall, which no word length can fix, shows in
 // the deviations returned; meets says whether the float design met every
-// band.
-func floatTargets(h []float64, rate float64, bands []remez.Band, density int) (dev []float64, meets bool, held []remez.Band) {
-	dev = Deviations(h, rate, bands, density)
+// band. ctx stops the measurement (DeviationsContext).
+func floatTargets(ctx context.Context, h []float64, rate float64, bands []remez.Band, density int) (dev []float64, meets bool, held []remez.Band, err error) {
+	if dev, err = DeviationsContext(ctx, h, rate, bands, density); err != nil {
+		return nil, false, nil, err
+	}
 	held = append([]remez.Band(nil), bands...)
 	meets = true
 	for i := range held {
@@ -1061,5 +1067,5 @@ func floatTargets(h []float64, rate float64, bands []remez.Band, density int) (d
 			held[i].MaxError = dev[i] * (1 + 1.0/16)
 		}
 	}
-	return dev, meets, held
+	return dev, meets, held, nil
 }

@@ -5,6 +5,7 @@ import (
 	"math/bits"
 	"slices"
 	"sort"
+	"sync/atomic"
 
 	"github.com/stepdown-dsp/stepdown/chain/remez"
 	"github.com/stepdown-dsp/stepdown/internal/chunks"
@@ -293,7 +294,17 @@ type response struct {
 	sym  bool
 	ab   *ampBounds
 	fin  int // 0 unknown, 1 finite taps, 2 not
+	// stop, when set, abandons the evaluations left (DeviationsContext):
+	// each and eval then give 0 at once.
+	stop *atomic.Bool
 }
+
+// stopped reports whether the response's evaluations are abandoned.
+func (r *response) stopped() bool { return r.stop != nil && r.stop.Load() }
+
+// eachBatch is how many points each evaluates between looks at stop: a
+// few milliseconds at tens of thousands of taps.
+const eachBatch = 256
 
 func newResponse(h []float64, rate float64) *response {
 	return &response{h: h, rate: rate, sym: symmetric(h)}
@@ -301,6 +312,9 @@ func newResponse(h []float64, rate float64) *response {
 
 // eval is the response at f.
 func (r *response) eval(f float64) float64 {
+	if r.stopped() {
+		return 0
+	}
 	if r.sym {
 		return Amplitude(r.h, f, r.rate)
 	}
@@ -312,6 +326,18 @@ func (r *response) eval(f float64) float64 {
 // on every processor for a long filter, as a fractional stage's prototype
 // of thousands of taps is).
 func (r *response) each(xs, out []float64) {
+	if r.stop != nil && len(xs) > eachBatch {
+		// Each point is computed alone, so batches give the same bits.
+		for lo := 0; lo < len(xs); lo += eachBatch {
+			hi := min(lo+eachBatch, len(xs))
+			r.each(xs[lo:hi], out[lo:hi])
+		}
+		return
+	}
+	if r.stopped() {
+		clear(out)
+		return
+	}
 	if r.sym {
 		remez.AmplitudeEach(r.h, xs, r.rate, out)
 		return
@@ -372,7 +398,7 @@ func meetsBands(h []float64, rate float64, bands []remez.Band, density int) bool
 		}
 	}
 	for _, i := range rest {
-		if deviations(h, rate, bands[i:i+1], density, true)[0] > bands[i].MaxError {
+		if deviations(h, rate, bands[i:i+1], density, true, nil)[0] > bands[i].MaxError {
 			return false
 		}
 	}

@@ -1,10 +1,14 @@
 package fixed
 
 import (
+	"context"
+	"errors"
 	"fmt"
 	"math"
 	"math/rand/v2"
 	"os"
+	"slices"
+	"sync/atomic"
 	"testing"
 
 	"github.com/stepdown-dsp/stepdown/chain"
@@ -389,8 +393,8 @@ func TestFarrowProtoDeviationsExact(t *testing.T) {
 		found++
 		t.Logf("%s: %d taps, %d bands", chain.Notation(c.Plan), len(h), len(st.Bands))
 		rate := cas.Rates()[k] * float64(st.Up)
-		want := deviations(h, rate, st.Bands, 16, false)
-		got := deviations(h, rate, st.Bands, 16, true)
+		want := deviations(h, rate, st.Bands, 16, false, nil)
+		got := deviations(h, rate, st.Bands, 16, true, nil)
 		for i := range want {
 			if math.Float64bits(got[i]) != math.Float64bits(want[i]) {
 				t.Errorf("%s (%d taps) band %d: bounded %.17g, every peak %.17g", chain.Notation(c.Plan), len(h), i, got[i], want[i])
@@ -417,12 +421,57 @@ func TestFarrowProtoDeviationsExact(t *testing.T) {
 // as refining every local maximum of the grid, and returns the latter.
 func checkBoundedExact(t *testing.T, c devCase) []float64 {
 	t.Helper()
-	want := deviations(c.h, c.rate, c.bands, 16, false)
-	got := deviations(c.h, c.rate, c.bands, 16, true)
+	want := deviations(c.h, c.rate, c.bands, 16, false, nil)
+	got := deviations(c.h, c.rate, c.bands, 16, true, nil)
 	for i := range want {
 		if math.Float64bits(got[i]) != math.Float64bits(want[i]) {
 			t.Errorf("%s band %d [%g, %g]: bounded %.17g, every peak %.17g", c.name, i, c.bands[i].Lo, c.bands[i].Hi, got[i], want[i])
 		}
 	}
 	return want
+}
+
+// DeviationsContext gives Deviations' bits while its context runs (the
+// batched evaluation computes each point alone), on seeded random long
+// filters, symmetric and not; stopped part way, it returns an error
+// wrapping the context's and remembers nothing, so that the next
+// measurement of the same filter gives the full figures.
+func TestDeviationsContext(t *testing.T) {
+	for i, c := range randomDevCases(t, 77, 6, boundMinTaps, 3*boundMinTaps) {
+		if i%2 == 1 {
+			c.h = append(slices.Clone(c.h), 0.001) // not symmetric: the magnitude path
+		}
+		ctx, cancel := context.WithCancel(context.Background())
+		got, err := DeviationsContext(ctx, c.h, c.rate, c.bands, 16)
+		cancel()
+		if err != nil {
+			t.Fatal(err)
+		}
+		want := deviations(c.h, c.rate, c.bands, 16, true, nil)
+		for b := range want {
+			if math.Float64bits(got[b]) != math.Float64bits(want[b]) {
+				t.Errorf("%s band %d: DeviationsContext %v, deviations %v", c.name, b, got[b], want[b])
+			}
+		}
+	}
+	// A stopped measurement: a filter long enough that its response
+	// takes many batches, stopped as it starts.
+	c := randomDevCases(t, 78, 1, 6000, 6001)[0]
+	ctx, cancel := context.WithCancel(context.Background())
+	stop := new(atomic.Bool)
+	stop.Store(true)
+	if d := deviationsStop(stop, c.h, c.rate, c.bands, 16); len(d) != len(c.bands) {
+		t.Fatalf("a stopped measurement gave %d figures for %d bands", len(d), len(c.bands))
+	}
+	cancel()
+	if _, err := DeviationsContext(ctx, c.h, c.rate, c.bands, 16); !errors.Is(err, context.Canceled) {
+		t.Errorf("DeviationsContext after cancel: %v, want context.Canceled", err)
+	}
+	want := deviations(c.h, c.rate, c.bands, 16, true, nil)
+	got := Deviations(c.h, c.rate, c.bands, 16)
+	for b := range want {
+		if math.Float64bits(got[b]) != math.Float64bits(want[b]) {
+			t.Errorf("after a stopped measurement, band %d: %v, want %v (a stopped figure was remembered)", b, got[b], want[b])
+		}
+	}
 }

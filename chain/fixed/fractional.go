@@ -328,7 +328,11 @@ func planFarrow(st Stage, rate float64, in, ob, coefBits int, s Settings, minBit
 	density := s.Quant.Density
 	sw := StageWidths{R: 1, Up: st.Up, Down: st.Down, Farrow: true, FarrowRows: rows, InputBits: in, OutputBits: ob}
 	var bands []remez.Band
-	sw.FloatDeviations, sw.FloatMeets, bands = floatTargets(farrowFloatProto(st), prate, st.Bands, density)
+	var err error
+	sw.FloatDeviations, sw.FloatMeets, bands, err = floatTargets(s.Quant.ctx, farrowFloatProto(st), prate, st.Bands, density)
+	if err != nil {
+		return StageWidths{}, err
+	}
 	// proto is the quantised stage's prototype at width b.
 	proto := func(b int) (Coefficients, int, []float64) {
 		cf := Quantize(flat, b)

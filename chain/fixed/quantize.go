@@ -203,25 +203,56 @@ func bandTarget(b *remez.Band, f float64) (gain, weight float64) {
 // (devCache). |H| is the zero-phase amplitude's magnitude for a symmetric
 // filter (Amplitude), else magnitude's.
 func Deviations(h []float64, rate float64, bands []remez.Band, density int) []float64 {
+	return deviationsStop(nil, h, rate, bands, density)
+}
+
+// DeviationsContext is Deviations stopped by ctx: the response is
+// evaluated a batch of points at a time (a few milliseconds for a filter
+// of tens of thousands of taps), and once ctx is done it returns an error
+// wrapping ctx.Err() and no deviations (nothing is remembered).
+func DeviationsContext(ctx context.Context, h []float64, rate float64, bands []remez.Band, density int) ([]float64, error) {
+	if ctx == nil || ctx.Done() == nil {
+		return Deviations(h, rate, bands, density), nil
+	}
+	if err := ctx.Err(); err != nil {
+		return nil, fmt.Errorf("fixed: measurement stopped: %w", err)
+	}
+	stop := new(atomic.Bool)
+	defer context.AfterFunc(ctx, func() { stop.Store(true) })()
+	dev := deviationsStop(stop, h, rate, bands, density)
+	if err := ctx.Err(); err != nil {
+		return nil, fmt.Errorf("fixed: measurement stopped: %w", err)
+	}
+	return dev, nil
+}
+
+// deviationsStop is Deviations, abandoned (its figures meaningless, and
+// not remembered) once stop, when not nil, is set.
+func deviationsStop(stop *atomic.Bool, h []float64, rate float64, bands []remez.Band, density int) []float64 {
 	if density <= 0 {
 		density = 16
 	}
 	if len(h) < boundMinTaps {
-		return deviations(h, rate, bands, density, false)
+		return deviations(h, rate, bands, density, false, stop)
 	}
 	key, ok := bandsKey([]float64{rate, float64(density)}, bands)
 	if !ok {
-		return deviations(h, rate, bands, density, true)
+		return deviations(h, rate, bands, density, true, stop)
 	}
-	v := devCache.do(h, key, func() (any, bool) { return deviations(h, rate, bands, density, true), true })
+	v := devCache.do(h, key, func() (any, bool) {
+		d := deviations(h, rate, bands, density, true, stop)
+		return d, stop == nil || !stop.Load()
+	})
 	return slices.Clone(v.([]float64))
 }
 
 // deviations is Deviations unremembered, density > 0. bounded lets a band
 // of constant gain and unit weight of a long filter be measured by
 // deviationBounded, which gives the same bits as refining every peak.
-func deviations(h []float64, rate float64, bands []remez.Band, density int, bounded bool) []float64 {
+// Once stop (when not nil) is set, every evaluation left is skipped.
+func deviations(h []float64, rate float64, bands []remez.Band, density int, bounded bool, stop *atomic.Bool) []float64 {
 	r := newResponse(h, rate)
+	r.stop = stop
 	out := make([]float64, len(bands))
 	for i := range bands {
 		b := &bands[i]
@@ -237,6 +268,9 @@ func deviations(h []float64, rate float64, bands []remez.Band, density int, boun
 		}
 		m := 0.0
 		for j := range fs {
+			if r.stopped() {
+				break
+			}
 			if (j > 0 && es[j] < es[j-1]) || (j+1 < len(fs) && es[j] < es[j+1]) {
 				continue
 			}
@@ -552,7 +586,10 @@ func tryWidthOnce(taps []float64, rate float64, bands []remez.Band, bits int, s 
 		if len(h) >= boundMinTaps && !meetsBands(h, rate, bands, s.Density) {
 			return false
 		}
-		dev = Deviations(h, rate, bands, s.Density)
+		var err error
+		if dev, err = DeviationsContext(s.ctx, h, rate, bands, s.Density); err != nil {
+			return false // stopped: the width search says so
+		}
 		return Meets(dev, bands)
 	}
 	ok := check()
