@@ -242,10 +242,17 @@ func fractionalPlan(plan []StagePlan, num, den int, dir Direction) (d, f int, er
 	if fs.Up < 1 || fs.Down < 1 || fs.Up > MaxFractionDen || fs.Down > math.MaxInt32/max(1, d) {
 		return 0, 0, planErr(plan, f, "rate change %d/%d: out of range", l, m)
 	}
+	if fs.Up == fs.Down {
+		return 0, 0, planErr(plan, f, "rate change %d/%d changes no rate: drop the stage", l, m)
+	}
 	// The chain's ratio d Down/Up must be num/den.
 	if int64(d)*int64(fs.Down)*int64(den) != int64(num)*int64(fs.Up) {
 		g := gcd(d*den, num)
 		nl, nm := lm(d*den/g, num/g)
+		if nl == nm {
+			// The other stages make the whole ratio already.
+			return 0, 0, planErr(plan, f, "rate change %d/%d: the integer stages' %d make the ratio %d/%d already: drop the stage", l, m, d, num, den)
+		}
 		if d == 1 {
 			return 0, 0, planErr(plan, f, "rate change %d/%d: the ratio %d/%d needs %d/%d", l, m, num, den, nl, nm)
 		}

@@ -294,6 +294,13 @@ func TestBadInputs(t *testing.T) {
 			frags: []string{`--chain "poly64/1": stage 1 (poly64/1): poly64/1 changes the rate by 64/1 (up 64, down 1), but the spec's rates need up 1, down 32 from this stage: write poly1/32`}},
 		{name: "check fractional stage beside others", spec: goodSpec, args: []string{"check", "spec.toml", "--chain", "cic3m1r2 > poly1/32", "--out", "out"}, code: 2,
 			frags: []string{"stage 2 (poly1/32):", "need up 1, down 16 from this stage beside the other stages' factor 2: write poly1/16"}},
+		// A fractional stage beside integer stages that make the whole
+		// ratio, and one that changes no rate, are told to go, not to be
+		// written poly1/1.
+		{name: "check fractional stage not needed", spec: goodSpec, args: []string{"check", "spec.toml", "--chain", "cic3m1r2 > poly2/3 > fir16", "--out", "out"}, code: 2,
+			frags: []string{"stage 2 (poly2/3):", "make the ratio 32/1 already: drop the stage"}},
+		{name: "check fractional stage of no rate change", spec: goodSpec, args: []string{"check", "spec.toml", "--chain", "cic3m1r2 > fir16 > poly1/1", "--out", "out"}, code: 2,
+			frags: []string{"stage 3 (poly1/1): rate change 1/1 changes no rate: drop the stage"}},
 		specCase("word with an exponent", edit("input", "input = 1e2"), "spec.toml:7: words.input = 1e2:", "without an exponent", "write 100"),
 		specCase("rate in microhertz", edit("passband", `passband = "1 μHz"`), `passband = "1 μHz"`, "the unit prefix μ (micro) is not supported"),
 		specCase("negative rate as written", edit("input_rate", "input_rate = -1e6"), "input_rate = -1e6:", "above 0 Hz"),
