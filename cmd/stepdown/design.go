@@ -168,6 +168,11 @@ func runDesign(c *cli.Context) error {
 		if edges[i].lo < edges[i-1].hi {
 			return usagef("%s %q: overlaps %s %q; bands must not overlap", edges[i].flag, edges[i].text, edges[i-1].flag, edges[i-1].text)
 		}
+		if edges[i].lo == edges[i-1].hi && edges[i].pass != edges[i-1].pass {
+			// A passband touching a stopband: no length can make the
+			// jump between them, so no search is started.
+			return usagef("%s %q: starts where %s %q ends; a filter needs a transition band between a passband and a stopband (leave a gap between them)", edges[i].flag, edges[i].text, edges[i-1].flag, edges[i-1].text)
+		}
 	}
 
 	out := designOutput{RateHz: rate, TargetRippleDB: ripple, TargetAttenDB: atten, GridDensity: grid, Caution: caution}

@@ -310,6 +310,7 @@ func TestBadInputs(t *testing.T) {
 		{name: "design no rate", args: []string{"design", "--pass", "0:1", "--stop", "2:3", "--ripple", "1", "--atten", "40"}, code: 2, frags: []string{"--rate", "missing"}},
 		{name: "design bad band", args: []string{"design", "--rate", "48 kHz", "--pass", "0:30 kHz", "--stop", "31:40 kHz", "--ripple", "1", "--atten", "40"}, code: 2, frags: []string{"--pass", "rate/2"}},
 		{name: "design overlap", args: []string{"design", "--rate", "48 kHz", "--pass", "0:10 kHz", "--stop", "9:20 kHz", "--ripple", "1", "--atten", "40"}, code: 2, frags: []string{"overlaps"}},
+		{name: "design touching bands", args: []string{"design", "--rate", "48 kHz", "--pass", "0:10 kHz", "--stop", "10:20 kHz", "--ripple", "1", "--atten", "40"}, code: 2, frags: []string{`--stop "10:20 kHz": starts where --pass "0:10 kHz" ends`, "transition band"}},
 		{name: "design NaN ripple", args: []string{"design", "--rate", "48 kHz", "--pass", "0:10 kHz", "--stop", "12:20 kHz", "--ripple", "NaN", "--atten", "40"}, code: 2, frags: []string{"--ripple", "not a number"}},
 		{name: "design taps", args: []string{"design", "--rate", "48 kHz", "--pass", "0:10 kHz", "--stop", "12:20 kHz", "--ripple", "1", "--atten", "40", "--taps", "2"}, code: 2, frags: []string{"--taps", "[3, 65535]"}},
 	}
