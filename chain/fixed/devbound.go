@@ -286,7 +286,7 @@ func finite(h []float64) bool {
 }
 
 // response is how Deviations evaluates a filter: the zero-phase amplitude
-// of a symmetric one (Amplitude), the magnitude of any other (magnitude),
+// of a symmetric one (Amplitude), the magnitude of any other (remez.Magnitude),
 // with the bounds of either built on first use.
 type response struct {
 	h    []float64

@@ -9,7 +9,7 @@ import (
 // newMagBounds is newAmpBounds for a filter of any symmetry measured by
 // its magnitude |H(f)| (Deviations' magnitude): lo[m] <= |H(f)| <= hi[m]
 // for every f in cell m, with lo >= 0, rounding of the FFT and of a
-// direct evaluation (magnitude) included.
+// direct evaluation (remez.Magnitude) included.
 //
 // About the cell's centre w_m = 2 pi m / size (radians per sample), for
 // |t| <= hh = pi / size and c = (n-1)/2,

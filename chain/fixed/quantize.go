@@ -201,7 +201,7 @@ func bandTarget(b *remez.Band, f float64) (gain, weight float64) {
 // rigorous bounds show cannot be the largest (deviationBounded), with the
 // same result bit for bit; a long filter's result is remembered
 // (devCache). |H| is the zero-phase amplitude's magnitude for a symmetric
-// filter (Amplitude), else magnitude's.
+// filter (Amplitude), else remez.Magnitude's.
 func Deviations(h []float64, rate float64, bands []remez.Band, density int) []float64 {
 	return deviationsStop(nil, h, rate, bands, density)
 }
