@@ -35,11 +35,12 @@ func newMagBounds(h []float64, rate float64) *ampBounds {
 	const u = 0x1p-53
 
 	// What no cell's expansion sees: the FFT's rounding of every X_p, the
-	// remainder, and the rounding of magnitude: its angle w k (w = 2 pi
-	// f / rate rounded in three operations, then times k up to n, so up
-	// to 4 pi n u rad off), Sincos (a few u), the products and the sum
-	// of n terms in each part (n u of the taps' sum), and the hypot,
-	// taken generously as 64 (n+64) u sum |h_k|.
+	// remainder, and the rounding of remez.Magnitude: its angle w k (w =
+	// 2 pi f / rate rounded in three operations, then times k up to n, so
+	// up to 4 pi n u rad off, at the seed of each run of 32 rotations),
+	// Sincos and the rotations (a few u a step, under 32 steps), the
+	// products and the sum of n terms in each part (n u of the taps'
+	// sum), and the hypot, taken generously as 64 (n+64) u sum |h_k|.
 	slack0 := boundSlack(h, c, kappa, hh, 2, 64)
 
 	x := make([][]complex128, 3)
