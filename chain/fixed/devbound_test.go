@@ -475,3 +475,28 @@ func TestDeviationsContext(t *testing.T) {
 		}
 	}
 }
+
+// A width search whose context is done evaluates none of its grid (the
+// first thing it would spend seconds on at tens of thousands of taps), and
+// TryWidth then leaves the verdict to the caller's look at the context;
+// running, the batched grid is the whole grid's, bit for bit.
+func TestWidthSearchStops(t *testing.T) {
+	c := randomDevCases(t, 79, 1, 3000, 3001)[0]
+	q := Quantize(c.h, 18)
+	ctx, cancel := context.WithCancel(context.Background())
+	cancel()
+	ls := newSearch(c.h, c.rate, c.bands, q, QuantSettings{ctx: ctx})
+	for j, v := range ls.a {
+		if v != 0 {
+			t.Fatalf("stopped search evaluated grid point %d (%v)", j, v)
+		}
+	}
+	ls = newSearch(c.h, c.rate, c.bands, q, QuantSettings{ctx: context.Background()})
+	want := make([]float64, len(ls.freqs))
+	remez.AmplitudeEach(q.Float(), ls.freqs, c.rate, want)
+	for j := range want {
+		if math.Float64bits(ls.a[j]) != math.Float64bits(want[j]) {
+			t.Fatalf("grid point %d: batched %v, whole %v", j, ls.a[j], want[j])
+		}
+	}
+}

@@ -577,7 +577,7 @@ func tryWidthOnce(taps []float64, rate float64, bands []remez.Band, bits int, s 
 	ls := newSearch(taps, rate, bands, c, s)
 	var dev []float64
 	check := func() bool {
-		if ls.cur > 1 {
+		if ls.cur > 1 || s.stopped() {
 			return false
 		}
 		h := ls.c.Float()
@@ -602,7 +602,8 @@ func tryWidthOnce(taps []float64, rate float64, bands []remez.Band, bits int, s 
 	}
 	ls.c.Adjusted = offRounding(ls.c, c)
 	if !ok && needDev {
-		dev = Deviations(ls.c.Float(), rate, bands, s.Density)
+		// Stopped, the caller returns the stop's error, not these.
+		dev, _ = DeviationsContext(s.ctx, ls.c.Float(), rate, bands, s.Density)
 	}
 	return ls.c, dev, ok
 }
@@ -652,7 +653,17 @@ func newSearch(taps []float64, rate float64, bands []remez.Band, c Coefficients,
 	}
 	h := c.Float()
 	ls.a = make([]float64, len(ls.freqs))
-	remez.AmplitudeEach(h, ls.freqs, rate, ls.a)
+	// A batch at a time, so that a stop is seen within milliseconds at
+	// tens of thousands of taps (each point is computed alone: the same
+	// bits); a stopped search's amplitudes are left unfinished, and the
+	// search, which looks at the same stop, makes no move.
+	for lo := 0; lo < len(ls.freqs); lo += eachBatch {
+		if s.stopped() {
+			break
+		}
+		hi := min(lo+eachBatch, len(ls.freqs))
+		remez.AmplitudeEach(h, ls.freqs[lo:hi], rate, ls.a[lo:hi])
+	}
 	ls.gain = make([]float64, len(ls.freqs))
 	ls.weight = make([]float64, len(ls.freqs))
 	ls.maxErr = make([]float64, len(ls.freqs))
