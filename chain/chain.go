@@ -181,7 +181,8 @@ func Lanes(rate, clock float64) int {
 // PerCycle is how many of a thing done rate times a second a clock of
 // clock Hz must do in each of its cycles: ceil(rate/clock), 0 for no rate.
 // A rate that is a whole multiple of the clock up to the rounding of the
-// arithmetic that made it (a relative 1e-9) counts as that multiple. It is
+// arithmetic that made it (within 1e-9 of a cycle's worth) counts as that
+// multiple. It is
 // the one rule for Lanes, cost's time-shared multipliers and fixed's
 // native multiplier blocks at the clock; clock must be above 0.
 func PerCycle(rate, clock float64) int {

@@ -1,6 +1,7 @@
 package fixed
 
 import (
+	"context"
 	"math"
 	"math/bits"
 	"slices"
@@ -377,15 +378,22 @@ func (r *response) bounds() *ampBounds {
 // met outright when no interval's bound passes its MaxError, and missed
 // as soon as one direct value does; any other band is measured as
 // Deviations measures it (each band on its own, so one band alone gets
-// its bits). density is Deviations'.
-func meetsBands(h []float64, rate float64, bands []remez.Band, density int) bool {
+// its bits). density is Deviations'. ctx, when not nil, stops it: once
+// it is done the verdict is false (not measured) and the caller, which
+// looks at the same context, says it stopped.
+func meetsBands(ctx context.Context, h []float64, rate float64, bands []remez.Band, density int) bool {
 	if density <= 0 {
 		density = 16
 	}
 	if len(h) < boundMinTaps {
-		return Meets(Deviations(h, rate, bands, density), bands)
+		dev, err := DeviationsContext(ctx, h, rate, bands, density)
+		return err == nil && Meets(dev, bands)
 	}
 	r := newResponse(h, rate)
+	if ctx != nil && ctx.Done() != nil {
+		r.stop = new(atomic.Bool)
+		defer context.AfterFunc(ctx, func() { r.stop.Store(true) })()
+	}
 	var rest []int
 	for i := range bands {
 		b := &bands[i]
@@ -398,11 +406,11 @@ func meetsBands(h []float64, rate float64, bands []remez.Band, density int) bool
 		}
 	}
 	for _, i := range rest {
-		if deviations(h, rate, bands[i:i+1], density, true, nil)[0] > bands[i].MaxError {
+		if deviations(h, rate, bands[i:i+1], density, true, r.stop)[0] > bands[i].MaxError {
 			return false
 		}
 	}
-	return true
+	return !r.stopped()
 }
 
 // boundSlack returns the slack every cell's bound of the filter h carries,

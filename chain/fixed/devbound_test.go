@@ -360,7 +360,7 @@ func TestMeetsBandsSameVerdict(t *testing.T) {
 				continue
 			}
 			want := Meets(dev, bs)
-			if got := meetsBands(c.h, c.rate, bs, 0); got != want {
+			if got := meetsBands(context.Background(), c.h, c.rate, bs, 0); got != want {
 				t.Errorf("%s scale %g: meetsBands %v, Meets(Deviations) %v", c.name, scale, got, want)
 			}
 		}
@@ -410,7 +410,7 @@ func TestFarrowProtoDeviationsExact(t *testing.T) {
 					bs[i].MaxError = want[i] * scale
 				}
 			}
-			if g, w := meetsBands(h, rate, bs, 0), Meets(want, bs); g != w {
+			if g, w := meetsBands(context.Background(), h, rate, bs, 0), Meets(want, bs); g != w {
 				t.Errorf("%s scale %g: meetsBands %v, Meets %v", chain.Notation(c.Plan), scale, g, w)
 			}
 		}
@@ -497,6 +497,69 @@ func TestWidthSearchStops(t *testing.T) {
 	for j := range want {
 		if math.Float64bits(ls.a[j]) != math.Float64bits(want[j]) {
 			t.Fatalf("grid point %d: batched %v, whole %v", j, ls.a[j], want[j])
+		}
+	}
+}
+
+// flipCtx is a context that is not done for its first n looks at Err and
+// cancelled after: a stop that lands part way through a measurement,
+// without a clock.
+type flipCtx struct {
+	context.Context
+	n    int
+	done chan struct{}
+}
+
+func newFlipCtx(n int) *flipCtx {
+	return &flipCtx{Context: context.Background(), n: n, done: make(chan struct{})}
+}
+
+func (c *flipCtx) Done() <-chan struct{} { return c.done }
+
+func (c *flipCtx) Err() error {
+	if c.n > 0 {
+		c.n--
+		return nil
+	}
+	return context.Canceled
+}
+
+// A width search stopped during its last width's trial says it stopped
+// (an error wrapping context.Canceled), not that no width meets, whatever
+// the point at which the stop lands; not stopped, it finds the width.
+func TestWidthSearchStoppedIsStop(t *testing.T) {
+	taps := kaiserLowpass(41, 0.17, 1, 6)
+	bands := lowpassBands(0.1, 0.25, 1, 0.05, 0.05)
+	if _, _, err := MinCoefBits(taps, 1, bands, QuantSettings{ctx: context.Background(), MinBits: 30, MaxBits: 30}); err != nil {
+		t.Fatalf("not stopped: %v", err)
+	}
+	for n := 1; n < 6; n++ {
+		_, _, err := MinCoefBits(taps, 1, bands, QuantSettings{ctx: newFlipCtx(n), MinBits: 30, MaxBits: 30})
+		if err != nil && !errors.Is(err, context.Canceled) {
+			t.Errorf("stopped after %d looks: %v, want nil or a stop", n, err)
+		}
+	}
+}
+
+// A measurement cancelled part way (by its own band's gain function, at
+// its first use) returns the stop, and what the next measurement of the
+// same filter gives is the full figures: nothing half-measured is kept.
+func TestDeviationsCancelledPartWay(t *testing.T) {
+	c := randomDevCases(t, 80, 1, 2*boundMinTaps, 2*boundMinTaps+1)[0]
+	ctx, cancel := context.WithCancel(context.Background())
+	defer cancel()
+	bands := slices.Clone(c.bands)
+	g := bands[0].Gain
+	bands[0].GainFunc = func(float64) float64 { cancel(); return g }
+	if _, err := DeviationsContext(ctx, c.h, c.rate, bands, 16); !errors.Is(err, context.Canceled) {
+		t.Fatalf("cancelled part way: %v, want context.Canceled", err)
+	}
+	bands[0].GainFunc = func(float64) float64 { return g }
+	want := deviations(c.h, c.rate, bands, 16, true, nil)
+	got := Deviations(c.h, c.rate, bands, 16)
+	for b := range want {
+		if math.Float64bits(got[b]) != math.Float64bits(want[b]) {
+			t.Errorf("band %d after a cancelled measurement: %v, want %v", b, got[b], want[b])
 		}
 	}
 }

@@ -347,7 +347,10 @@ func planFarrow(st Stage, rate float64, in, ob, coefBits int, s Settings, minBit
 	}
 	try := func(b int) (Coefficients, int, []float64, bool) {
 		cf, mb, p := proto(b)
-		dev := Deviations(p, prate, bands, density)
+		dev, err := DeviationsContext(s.Quant.ctx, p, prate, bands, density)
+		if err != nil {
+			return cf, mb, nil, false // stopped: the width search says so
+		}
 		return cf, mb, dev, Meets(dev, bands)
 	}
 	var cf Coefficients
@@ -364,7 +367,7 @@ func planFarrow(st Stage, rate float64, in, ob, coefBits int, s Settings, minBit
 		}
 		b, err := narrowestWidth(lo, hi, widthEstimate(flat, bands, sw.FloatDeviations), s.Quant, func(b int) bool {
 			_, _, p := proto(b)
-			return meetsBands(p, prate, bands, density)
+			return meetsBands(s.Quant.ctx, p, prate, bands, density)
 		})
 		if err != nil {
 			return StageWidths{}, err
@@ -891,6 +894,10 @@ func narrowestWidth(lo, hi, start int, q QuantSettings, meets func(int) bool) (i
 		}
 		b++
 		ok = meets(b)
+	}
+	if q.stopped() {
+		// A trial stopped part way says "no" without having measured.
+		return 0, fmt.Errorf("fixed: coefficient width search stopped: %w", q.ctx.Err())
 	}
 	if !ok {
 		return 0, fmt.Errorf("%w up to %d bits", ErrNoWidth, hi)

@@ -485,6 +485,11 @@ func MinCoefBits(taps []float64, rate float64, bands []remez.Band, s QuantSettin
 		}
 		best = dev
 	}
+	if s.stopped() {
+		// A width's trial stopped part way says "no" without having
+		// measured: the stop is the answer, not the width.
+		return Coefficients{}, nil, fmt.Errorf("fixed: coefficient width search stopped: %w", s.ctx.Err())
+	}
 	// The deviations at the widest width are returned, not said: a list
 	// of numbers is no message.
 	return Coefficients{}, best, fmt.Errorf("%w up to %d bits", ErrNoWidth, s.MaxBits)
@@ -583,7 +588,7 @@ func tryWidthOnce(taps []float64, rate float64, bands []remez.Band, bits int, s 
 		h := ls.c.Float()
 		// A long filter's failed trial needs only the verdict, which
 		// meetsBands often gives for less than the deviations.
-		if len(h) >= boundMinTaps && !meetsBands(h, rate, bands, s.Density) {
+		if len(h) >= boundMinTaps && !meetsBands(s.ctx, h, rate, bands, s.Density) {
 			return false
 		}
 		var err error

@@ -192,7 +192,7 @@ func runSimulate(c *cli.Context) error {
 	}
 	sig, format, err := signalio.ReadFile(input, opt)
 	if err != nil {
-		if opt.Format.Kind == signalio.CSV && stated.Bits == 0 && opt.Format.Bits == 1 {
+		if opt.Format.Kind == signalio.CSV && stated.Bits == 0 && opt.Format.Bits == 1 && strings.Contains(err.Error(), "outside 1-bit") {
 			// A single-bit modulator's codes are -1 and 0 as the chain
 			// takes them; a bitstream written as -1 and +1 is a 2-bit one.
 			return usagef("--input: %s; a single-bit modulator's codes are -1 and 0 here: give --format csv2 for values of -1 and +1 (taken by their sign)", err)

@@ -221,6 +221,11 @@ func TestSimulateSingleBit(t *testing.T) {
 	if r.code != 2 || !strings.Contains(r.stderr, "--format csv2") || strings.Count(strings.TrimSpace(r.stderr), "\n") != 0 {
 		t.Errorf("simulate of -1/+1 values at the 1-bit default: exit %d, %q; want exit 2 naming --format csv2 in one line", r.code, r.stderr)
 	}
+	// The hint is for values outside the 1-bit word only.
+	r = runBinary(t, dir, nil, "simulate", spec, "--chain", notation, "--input", "missing.csv", "--out", "refused", "--quiet")
+	if r.code != 2 || strings.Contains(r.stderr, "csv2") {
+		t.Errorf("simulate of a missing CSV: exit %d, %q; want exit 2 without the 1-bit hint", r.code, r.stderr)
+	}
 }
 
 // Bad recordings get one line naming the file and the rule, exit 2, and
