@@ -390,10 +390,9 @@ func meetsBands(ctx context.Context, h []float64, rate float64, bands []remez.Ba
 		return err == nil && Meets(dev, bands)
 	}
 	r := newResponse(h, rate)
-	if ctx != nil && ctx.Done() != nil {
-		r.stop = new(atomic.Bool)
-		defer context.AfterFunc(ctx, func() { r.stop.Store(true) })()
-	}
+	var release func() bool
+	r.stop, release = stopFlag(ctx)
+	defer release()
 	var rest []int
 	for i := range bands {
 		b := &bands[i]

@@ -217,13 +217,25 @@ func DeviationsContext(ctx context.Context, h []float64, rate float64, bands []r
 	if err := ctx.Err(); err != nil {
 		return nil, fmt.Errorf("fixed: measurement stopped: %w", err)
 	}
-	stop := new(atomic.Bool)
-	defer context.AfterFunc(ctx, func() { stop.Store(true) })()
+	stop, release := stopFlag(ctx)
+	defer release()
 	dev := deviationsStop(stop, h, rate, bands, density)
 	if err := ctx.Err(); err != nil {
 		return nil, fmt.Errorf("fixed: measurement stopped: %w", err)
 	}
 	return dev, nil
+}
+
+// stopFlag returns a flag set once ctx is done, for loops that look at it
+// every few milliseconds (a context's Err takes a lock), and the function
+// that lets go of ctx; a nil flag and a no-op for a context that is
+// never done (nil, or Background).
+func stopFlag(ctx context.Context) (*atomic.Bool, func() bool) {
+	if ctx == nil || ctx.Done() == nil {
+		return nil, func() bool { return false }
+	}
+	stop := new(atomic.Bool)
+	return stop, context.AfterFunc(ctx, func() { stop.Store(true) })
 }
 
 // deviationsStop is Deviations, abandoned (its figures meaningless, and
