@@ -92,9 +92,9 @@ type Study struct {
 	// Settings returns the search settings for one value's spec; nil means
 	// the spec's own SearchSettings.
 	Settings func(*specfile.Spec) optimize.Settings
-	// Workers is how many values run at once, at most
-	// runtime.GOMAXPROCS(0), which zero means. Jobs is the total of parallel designs, shared
-	// among the values running at once; zero means runtime.GOMAXPROCS(0).
+	// Workers is how many values run at once: at most runtime.GOMAXPROCS(0),
+	// which zero means. Jobs is the total of parallel designs, shared among
+	// the values running at once; zero means runtime.GOMAXPROCS(0).
 	Workers, Jobs int
 	// Plan runs one search; nil means optimize.Plan. Tests substitute it.
 	Plan func(context.Context, chain.Spec, optimize.Settings) (*optimize.Result, error)
