@@ -460,7 +460,7 @@ func TestDeviationsContext(t *testing.T) {
 	ctx, cancel := context.WithCancel(context.Background())
 	stop := new(atomic.Bool)
 	stop.Store(true)
-	if d := deviationsStop(stop, c.h, c.rate, c.bands, 16); len(d) != len(c.bands) {
+	if d := deviationsStop(stop, nil, c.h, c.rate, c.bands, 16); len(d) != len(c.bands) {
 		t.Fatalf("a stopped measurement gave %d figures for %d bands", len(d), len(c.bands))
 	}
 	cancel()

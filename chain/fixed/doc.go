@@ -34,7 +34,9 @@
 // amplitude, or of the magnitude of a filter that is not symmetric, over
 // FFT cells show to lie below a value already measured is skipped, which
 // changes no bit of the result, and the measurements of a filter are
-// remembered within the process, bounded to 2^21 taps). A width search
+// remembered within the process, bounded to 2^21 taps; a caller stopped
+// while it waits for another's measurement of the same filter stops
+// waiting). A width search
 // that only needs the verdict at a trial width asks for it alone
 // (meetsBands: a band whose bounds stay within its limit is met without
 // being measured, one is missed at its first value above it).

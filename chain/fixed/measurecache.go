@@ -42,8 +42,12 @@ var (
 // caller that finds the same input being computed by another waits for
 // that result instead of computing it again (the chains of a front are
 // planned concurrently), and computes it itself when the other could not
-// store it. key is kept; h is copied.
-func (c *measureCache) do(h, key []float64, compute func() (any, bool)) any {
+// store it. A caller whose own stop channel closes while it waits stops
+// waiting and calls compute itself, which, stopped, returns at once
+// with nothing to store: another plan's long measurement must not hold
+// up a plan that was told to stop (a nil channel never closes). key is
+// kept; h is copied.
+func (c *measureCache) do(stop <-chan struct{}, h, key []float64, compute func() (any, bool)) any {
 	c.mu.Lock()
 	for {
 		if e := c.find(c.entries, h, key); e != nil {
@@ -57,7 +61,12 @@ func (c *measureCache) do(h, key []float64, compute func() (any, bool)) any {
 		}
 		ch := p.done
 		c.mu.Unlock()
-		<-ch
+		select {
+		case <-ch:
+		case <-stop:
+			v, _ := compute()
+			return v
+		}
 		c.mu.Lock()
 		if c.find(c.entries, h, key) == nil && c.find(c.pending, h, key) == nil {
 			break // the other could not store it: compute it here

@@ -203,7 +203,7 @@ func bandTarget(b *remez.Band, f float64) (gain, weight float64) {
 // (devCache). |H| is the zero-phase amplitude's magnitude for a symmetric
 // filter (Amplitude), else remez.Magnitude's.
 func Deviations(h []float64, rate float64, bands []remez.Band, density int) []float64 {
-	return deviationsStop(nil, h, rate, bands, density)
+	return deviationsStop(nil, nil, h, rate, bands, density)
 }
 
 // DeviationsContext is Deviations stopped by ctx: the response is
@@ -219,7 +219,7 @@ func DeviationsContext(ctx context.Context, h []float64, rate float64, bands []r
 	}
 	stop, release := stopFlag(ctx)
 	defer release()
-	dev := deviationsStop(stop, h, rate, bands, density)
+	dev := deviationsStop(stop, ctx.Done(), h, rate, bands, density)
 	if err := ctx.Err(); err != nil {
 		return nil, fmt.Errorf("fixed: measurement stopped: %w", err)
 	}
@@ -239,8 +239,10 @@ func stopFlag(ctx context.Context) (*atomic.Bool, func() bool) {
 }
 
 // deviationsStop is Deviations, abandoned (its figures meaningless, and
-// not remembered) once stop, when not nil, is set.
-func deviationsStop(stop *atomic.Bool, h []float64, rate float64, bands []remez.Band, density int) []float64 {
+// not remembered) once stop, when not nil, is set; done is the channel
+// that sets it (nil with a nil stop), on which a wait for another
+// caller's measurement of the same filter gives up.
+func deviationsStop(stop *atomic.Bool, done <-chan struct{}, h []float64, rate float64, bands []remez.Band, density int) []float64 {
 	if density <= 0 {
 		density = 16
 	}
@@ -251,7 +253,7 @@ func deviationsStop(stop *atomic.Bool, h []float64, rate float64, bands []remez.
 	if !ok {
 		return deviations(h, rate, bands, density, true, stop)
 	}
-	v := devCache.do(h, key, func() (any, bool) {
+	v := devCache.do(done, h, key, func() (any, bool) {
 		d := deviations(h, rate, bands, density, true, stop)
 		return d, stop == nil || !stop.Load()
 	})
@@ -570,7 +572,11 @@ func tryWidth(taps []float64, rate float64, bands []remez.Band, bits int, s Quan
 	if !keep {
 		return tryWidthOnce(taps, rate, bands, bits, s, needDev)
 	}
-	v := widthCache.do(taps, key, func() (any, bool) {
+	var done <-chan struct{}
+	if s.ctx != nil {
+		done = s.ctx.Done()
+	}
+	v := widthCache.do(done, taps, key, func() (any, bool) {
 		c, dev, ok := tryWidthOnce(taps, rate, bands, bits, s, needDev)
 		return tried{c, dev, ok}, !s.stopped()
 	})
