@@ -172,7 +172,7 @@ func (b *ampBounds) errBound(f0, f1, d float64) float64 {
 // it returns a value above limit (a direct value, so the result is
 // too) or at most limit (the largest bound when no interval's bound is
 // above limit, else the result).
-func deviationBounded(b *remez.Band, fs []float64, ab *ampBounds, each func(xs, out []float64), limit float64) float64 {
+func deviationBounded(b *remez.Band, fs []float64, ab *ampBounds, each func(xs, out []float64), limit float64, stopped func() bool) float64 {
 	pts := len(fs)
 	d := b.Gain
 	ub := make([]float64, pts)
@@ -243,6 +243,11 @@ func deviationBounded(b *remez.Band, fs []float64, ab *ampBounds, each func(xs, 
 	var js []int
 	var glo, ghi, gtol []float64
 	for k := 0; k < len(cand) && ub[cand[k]] >= m; {
+		if stopped() {
+			// Abandoned (DeviationsContext): the evaluations read 0, so
+			// nothing would be skipped; the figure is not used.
+			return m
+		}
 		end := k
 		for end < len(cand) && end-k < chunk && ub[cand[end]] >= m {
 			end++
@@ -400,7 +405,7 @@ func meetsBands(ctx context.Context, h []float64, rate float64, bands []remez.Ba
 			rest = append(rest, i)
 			continue
 		}
-		if deviationBounded(b, bandGrid(b, len(h), rate, density), r.bounds(), r.each, b.MaxError) > b.MaxError {
+		if deviationBounded(b, bandGrid(b, len(h), rate, density), r.bounds(), r.each, b.MaxError, r.stopped) > b.MaxError {
 			return false
 		}
 	}

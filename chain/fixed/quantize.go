@@ -75,10 +75,14 @@ func fracFor(maxAbs float64, bits int) int {
 // Frac = Bits-1 (format Q1.(Bits-1)) for taps in [1/2, 1), more fractional
 // bits for smaller taps, and fewer (integer headroom) when max|tap| >= 1.
 // A half-band's centre of exactly 1/2 becomes 2^(Frac-1), a power of two,
-// and its zero taps stay zero. It panics if bits is outside [2, MaxBits].
+// and its zero taps stay zero. It panics if bits is outside [2, MaxBits] or
+// a tap is not a finite number.
 func Quantize(taps []float64, bits int) Coefficients {
 	if bits < 2 || bits > MaxBits {
 		panic(fmt.Sprintf("fixed: Quantize with %d bits, outside [2, %d]", bits, MaxBits))
+	}
+	if !finite(taps) {
+		panic("fixed: Quantize of taps that are not all finite numbers")
 	}
 	maxAbs := 0.0
 	for _, t := range taps {
@@ -202,8 +206,36 @@ func bandTarget(b *remez.Band, f float64) (gain, weight float64) {
 // same result bit for bit; a long filter's result is remembered
 // (devCache). |H| is the zero-phase amplitude's magnitude for a symmetric
 // filter (Amplitude), else remez.Magnitude's.
+//
+// Deviations panics, with checkMeasure's message, on a rate that is not
+// positive and finite, a band whose edges do not satisfy
+// 0 <= Lo <= Hi <= rate/2, or a negative density: DeviationsContext
+// returns the same as an error.
 func Deviations(h []float64, rate float64, bands []remez.Band, density int) []float64 {
+	if err := checkMeasure(rate, bands, density); err != nil {
+		panic(err.Error())
+	}
 	return deviationsStop(nil, nil, h, rate, bands, density)
+}
+
+// checkMeasure is the rule for what Deviations can measure: a positive,
+// finite rate, bands within [0, rate/2] with Lo <= Hi (touching,
+// overlapping and single-frequency bands are measured as given, and so is
+// an upper edge past rate/2 by rounding, as a band computed at rate/2 can
+// be), and a density of at least 0.
+func checkMeasure(rate float64, bands []remez.Band, density int) error {
+	if !(rate > 0) || math.IsInf(rate, 0) {
+		return fmt.Errorf("fixed: rate = %v Hz: must be positive and finite", rate)
+	}
+	if density < 0 {
+		return fmt.Errorf("fixed: density = %d: must be at least 1 (0 means 16)", density)
+	}
+	for i, b := range bands {
+		if !(b.Lo >= 0 && b.Lo <= b.Hi && b.Hi <= rate/2*(1+1e-9)) {
+			return fmt.Errorf("fixed: band %d edges [%v, %v] Hz: must satisfy 0 <= Lo <= Hi <= %v (rate/2)", i, b.Lo, b.Hi, rate/2)
+		}
+	}
+	return nil
 }
 
 // DeviationsContext is Deviations stopped by ctx: the response is
@@ -211,6 +243,9 @@ func Deviations(h []float64, rate float64, bands []remez.Band, density int) []fl
 // of tens of thousands of taps), and once ctx is done it returns an error
 // wrapping ctx.Err() and no deviations (nothing is remembered).
 func DeviationsContext(ctx context.Context, h []float64, rate float64, bands []remez.Band, density int) ([]float64, error) {
+	if err := checkMeasure(rate, bands, density); err != nil {
+		return nil, err
+	}
 	if ctx == nil || ctx.Done() == nil {
 		return Deviations(h, rate, bands, density), nil
 	}
@@ -269,10 +304,13 @@ func deviations(h []float64, rate float64, bands []remez.Band, density int, boun
 	r.stop = stop
 	out := make([]float64, len(bands))
 	for i := range bands {
+		if r.stopped() {
+			break // abandoned: the figures are not used
+		}
 		b := &bands[i]
 		fs := bandGrid(b, len(h), rate, density)
 		if bounded && r.boundable(b) {
-			out[i] = deviationBounded(b, fs, r.bounds(), r.each, math.Inf(1))
+			out[i] = deviationBounded(b, fs, r.bounds(), r.each, math.Inf(1), r.stopped)
 			continue
 		}
 		es := make([]float64, len(fs))
@@ -437,7 +475,8 @@ var ErrNoWidth = errors.New("fixed: no coefficient width meets the bands")
 // the far side of the real value); a move is kept when it lowers the worst
 // band's error relative to its MaxError on the grid. The search stops at
 // Settings.Budget trial moves, and only then is a bit added. The returned
-// deviations are the measured per-band errors of the result.
+// deviations are the measured per-band errors of the result. A rate, bands
+// or density that Deviations cannot measure is an error.
 func MinCoefBits(taps []float64, rate float64, bands []remez.Band, s QuantSettings) (Coefficients, []float64, error) {
 	if s.MinBits == 0 {
 		s.MinBits = 2
@@ -450,6 +489,9 @@ func MinCoefBits(taps []float64, rate float64, bands []remez.Band, s QuantSettin
 	}
 	if s.MinBits < 2 || s.MaxBits > MaxBits || s.MinBits > s.MaxBits {
 		return Coefficients{}, nil, fmt.Errorf("fixed: coefficient widths [%d, %d] must lie within [2, %d]", s.MinBits, s.MaxBits, MaxBits)
+	}
+	if err := checkMeasure(rate, bands, s.Density); err != nil {
+		return Coefficients{}, nil, err
 	}
 	if len(taps) == 0 {
 		return Coefficients{}, nil, fmt.Errorf("fixed: no taps to quantise")
@@ -511,13 +553,17 @@ func MinCoefBits(taps []float64, rate float64, bands []remez.Band, s QuantSettin
 
 // TryWidth quantises taps at exactly bits and runs the same local search as
 // MinCoefBits at that width. ok reports whether the result meets the bands.
-// It panics if bits is outside [2, MaxBits] or the taps are not symmetric.
+// It panics if bits is outside [2, MaxBits], the taps are not symmetric,
+// or the rate, bands or density break Deviations' rule.
 func TryWidth(taps []float64, rate float64, bands []remez.Band, bits int, s QuantSettings) (c Coefficients, dev []float64, ok bool) {
 	if s.Budget == 0 {
 		s.Budget = 64
 	}
 	if bits < 2 || bits > MaxBits {
 		panic(fmt.Sprintf("fixed: TryWidth with %d bits, outside [2, %d]", bits, MaxBits))
+	}
+	if err := checkMeasure(rate, bands, s.Density); err != nil {
+		panic(err.Error())
 	}
 	taps, err := symmetrized(taps)
 	if err != nil {
