@@ -1,6 +1,7 @@
 package chain
 
 import (
+	"fmt"
 	"math"
 
 	"github.com/stepdown-dsp/stepdown/chain/remez"
@@ -148,6 +149,18 @@ type Settings struct {
 	// (package doc, Cascade requirements). Estimate uses the stage-alone
 	// rule's limits under either.
 	StageAlone bool
+}
+
+// Check reports settings Design refuses: MaxTaps negative or below 3
+// (other than 0), and Remez settings no design accepts.
+func (s Settings) Check() error {
+	if s.MaxTaps < 0 || (s.MaxTaps > 0 && s.MaxTaps < 3) {
+		return fmt.Errorf("chain: Settings.MaxTaps = %d: must be 0 (no bound) or at least 3", s.MaxTaps)
+	}
+	if err := s.Remez.Check(); err != nil {
+		return fmt.Errorf("chain: Settings.Remez: %w", err)
+	}
+	return nil
 }
 
 // SignalOrder returns the indexes of Stages in the order the signal passes

@@ -89,8 +89,8 @@ func buildN(ctx context.Context, spec Spec, plan []StagePlan, s Settings, n int)
 		spec = spec.RejectionRaised(pairDB)
 		spec.dcRaised = true
 	}
-	if s.MaxTaps < 0 || (s.MaxTaps > 0 && s.MaxTaps < 3) {
-		return nil, fmt.Errorf("chain: Settings.MaxTaps = %d: must be 0 (no bound) or at least 3", s.MaxTaps)
+	if err := s.Check(); err != nil {
+		return nil, err
 	}
 	if spec.Fractional() || planFracIndex(plan) >= 0 {
 		// A fractional stage ends the chain or follows its CIC; an

@@ -147,8 +147,8 @@
 // design). On the D = 4096 benchmark half the round's estimated design
 // work lay after the last stage wanted; the plan takes 0.72 of the CPU
 // time it did designing every representative whole (a D = 1000 spec with
-// 18-bit taps 0.77), and report.json is byte-identical on the seven specs
-// of testdata/optimize/speed_compare.sh (speed_compare.txt).
+// 18-bit taps 0.77), and report.json was byte-identical on the seven specs
+// of testdata/optimize/speed_compare.sh when the change was measured.
 //
 // The band is then priced exactly from the stages
 // learnt, and the front of that pricing is designed for real (most of it

@@ -156,6 +156,9 @@ func (s *Settings) check() error {
 	if s.Rule != Knee && s.Rule != WeightedCost {
 		return fmt.Errorf("optimize: Rule = %d: must be Knee or WeightedCost", int(s.Rule))
 	}
+	if err := s.Chain.Check(); err != nil {
+		return fmt.Errorf("optimize: Settings.Chain: %w", err)
+	}
 	return nil
 }
 

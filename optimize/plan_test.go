@@ -277,6 +277,27 @@ func TestSettingsErrors(t *testing.T) {
 	if _, err := optimize.Plan(context.Background(), chain.Spec{}, optimize.Settings{}); err == nil {
 		t.Error("empty spec accepted")
 	}
+	// The chain settings handed to every design are checked before the
+	// search, not read as "no chain met the spec" after it (a review
+	// found both).
+	for _, c := range []struct {
+		s    chain.Settings
+		want string
+	}{
+		{chain.Settings{MaxTaps: -1}, "MaxTaps = -1"},
+		{chain.Settings{MaxTaps: 2}, "MaxTaps = 2"},
+		{chain.Settings{Remez: remez.Settings{Density: -1}}, "Density = -1"},
+		{chain.Settings{Remez: remez.Settings{MaxIterations: -3}}, "MaxIterations = -3"},
+	} {
+		_, err := optimize.Plan(context.Background(), rx(), optimize.Settings{Chain: c.s})
+		if err == nil || !strings.Contains(err.Error(), c.want) || !strings.Contains(err.Error(), "Settings.Chain") {
+			t.Errorf("Chain %+v: err = %v, want one naming Settings.Chain and %q", c.s, err, c.want)
+		}
+		_, _, err = optimize.Check(context.Background(), rx(), []chain.StagePlan{{Factor: 64, Kind: chain.FIR}}, optimize.Settings{Chain: c.s})
+		if err == nil || !strings.Contains(err.Error(), c.want) {
+			t.Errorf("Check with Chain %+v: err = %v, want one naming %q", c.s, err, c.want)
+		}
+	}
 }
 
 // TestRefuse: 2^20 within 12 stages (the limit) is refused at once with a message that

@@ -1,5 +1,7 @@
 package remez
 
+import "fmt"
+
 // The types of the public API. The estimators are in estimate.go, response
 // evaluation in response.go and the engine in design.go.
 
@@ -37,6 +39,18 @@ type Settings struct {
 	// solves the continuous problem more closely. Reported deviations are
 	// measured with local refinement either way.
 	GridOnly bool
+}
+
+// Check reports settings no design accepts: a negative Density or
+// MaxIterations.
+func (s Settings) Check() error {
+	if s.Density < 0 {
+		return fmt.Errorf("remez: Settings.Density = %d: must be at least 1 (0 means 16)", s.Density)
+	}
+	if s.MaxIterations < 0 {
+		return fmt.Errorf("remez: Settings.MaxIterations = %d: must be at least 1 (0 means 100)", s.MaxIterations)
+	}
+	return nil
 }
 
 // Result is a designed filter.

@@ -75,10 +75,20 @@
 // that length (de la Vallee Poussin's theorem), so MinLength stops a
 // design as soon as it passes the limit (by a relative 1e-6) and records
 // it as the length's error ratio, a lower bound. A length that meets is
-// still designed to convergence and judged on its measured taps, so none
-// of this changes the answer, only how fast the search gets there; with
-// MaxIterations cut short, a length's unconverged design, and so the answer,
-// may depend on its start. Gaps between bands of equal gain (the don't-care slivers
+// known before its design converges too: once an iterate's largest
+// weighted error on the whole grid, every extremum refined, is within the
+// limit (by a relative 1e-6), that filter meets, so MinLength stops the
+// design there and records that error as the length's ratio, an upper
+// bound. Only the answer is then designed to convergence (the stopped
+// design resumed where it stopped) and judged on its measured taps; should
+// those miss the bands (the grid's error against the taps', at rounding
+// level), the search runs again with every length designed to the end.
+// The answer's length is the same with or without these early verdicts
+// (a test compares both on seeded random specs); its taps depend on the
+// path by which the search reached it, to the convergence tolerance,
+// since each design starts from another's reference; with MaxIterations
+// cut short, a length's unconverged design, and so the answer, may depend
+// on its start. Gaps between bands of equal gain (the don't-care slivers
 // between alias stopbands) are not transitions for the estimate. A length
 // met to rounding level counts as too long; one that cannot be designed
 // counts as failing. Every phase of a design (coarse seeding, grid

@@ -96,6 +96,13 @@ type engine struct {
 	// bands), hence on the bands: no design of this length meets a limit
 	// below it.
 	failAbove float64
+	// metBelow, when positive, ends run early (errMetEarly) once the
+	// whole grid's largest weighted error, extrema refined, is at most
+	// metBelow: MinLength needs only the verdict of a length that is not
+	// its answer, and finishes the answer's design (resume). early holds
+	// that error.
+	metBelow float64
+	early    *earlyMet
 	// interpolation data of the levelled polynomial on the first r
 	// reference points
 	xr, mu, c, c2 []float64
@@ -184,11 +191,8 @@ func validateSpec(rate float64, bands []Band, s Settings) error {
 	if len(bands) == 0 {
 		return errors.New("remez: no bands: give at least one band")
 	}
-	if s.Density < 0 {
-		return fmt.Errorf("remez: Settings.Density = %d: must be at least 1 (0 means 16)", s.Density)
-	}
-	if s.MaxIterations < 0 {
-		return fmt.Errorf("remez: Settings.MaxIterations = %d: must be at least 1 (0 means 100)", s.MaxIterations)
+	if err := s.Check(); err != nil {
+		return err
 	}
 	nyq := rate / 2
 	for i, b := range bands {
@@ -208,10 +212,25 @@ func validateSpec(rate float64, bands []Band, s Settings) error {
 	return nil
 }
 
+// nyquistGain returns the gain the last band wants at rate/2, and whether
+// it reaches rate/2 at all: an even-length (type II) filter is zero there.
+func nyquistGain(rate float64, bands []Band) (g float64, ok bool) {
+	last := &bands[len(bands)-1]
+	if last.Hi != rate/2 {
+		return 0, false
+	}
+	return gainAt(last, rate/2), true
+}
+
 // newEngine validates the specification and builds the grid.
 func newEngine(n int, rate float64, bands []Band, s Settings) (*engine, error) {
 	if n < 3 {
 		return nil, fmt.Errorf("remez: length n = %d: need at least 3 taps", n)
+	}
+	if n > 2*MaxGridPoints {
+		// Even at density 1 the grid would pass MaxGridPoints (and the
+		// counts below would overflow).
+		return nil, fmt.Errorf("%w: length n = %d: at most %d taps, the longest whose grid fits in MaxGridPoints = %d at density 1", ErrGridTooLarge, n, 2*MaxGridPoints, MaxGridPoints)
 	}
 	if err := validateSpec(rate, bands, s); err != nil {
 		return nil, err
@@ -224,10 +243,9 @@ func newEngine(n int, rate float64, bands []Band, s Settings) (*engine, error) {
 		e.maxIter = 100
 	}
 	e.type2 = n%2 == 0
-	if e.type2 {
-		e.r = n / 2
-	} else {
-		e.r = (n + 1) / 2
+	e.r = (n + 1) / 2
+	if g, ok := nyquistGain(rate, bands); e.type2 && ok && g != 0 {
+		return nil, fmt.Errorf("remez: n = %d taps (even) but band %d wants gain %v at rate/2, where an even-length symmetric filter is zero: use an odd length", n, len(bands)-1, g)
 	}
 	for _, b := range bands {
 		w := b.Weight
@@ -1183,6 +1201,21 @@ func (e *engine) run(tol float64, maxIter int) (int, bool, error) {
 				stall = 0
 			}
 			prevDelta = e.delta
+			if ok && gap > tol && e.metBelow > 0 && math.Abs(e.delta)*(1+gap) <= e.metBelow {
+				// The reference's own errors say the length may meet:
+				// the whole grid (a new lobe can rise between the
+				// reference points) and then the taps decide.
+				e.evalGrid()
+				if cerr := e.stopped(); cerr != nil {
+					return it, false, cerr
+				}
+				if maxErr := e.extrema(true); maxErr <= e.metBelow && e.metEarly(maxErr) {
+					return it, false, errMetEarly
+				}
+				if cerr := e.stopped(); cerr != nil {
+					return it, false, cerr
+				}
+			}
 			if stall >= stallSteps {
 				noLocal, full, ok = true, true, false
 			}
@@ -1218,6 +1251,18 @@ func (e *engine) run(tol float64, maxIter int) (int, bool, error) {
 		gap := math.Inf(1)
 		if ad > 0 {
 			gap = (maxErr - ad) / ad
+		}
+		if e.metBelow > 0 && gap > tol && maxErr <= e.metBelow {
+			if !full {
+				maxErr = e.extrema(true)
+				gap = (maxErr - ad) / ad
+			}
+			if maxErr <= e.metBelow && e.metEarly(maxErr) {
+				return it, false, errMetEarly
+			}
+			if cerr := e.stopped(); cerr != nil {
+				return it, false, cerr
+			}
 		}
 		// Confirm an apparent convergence with fully refined extrema;
 		// from then on every iteration refines fully.

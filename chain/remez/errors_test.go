@@ -38,7 +38,14 @@ func TestDesignErrors(t *testing.T) {
 		{"tooManyBands", 5, 1, []Band{{Lo: 0, Hi: 0.05, Gain: 1}, {Lo: 0.1, Hi: 0.15}, {Lo: 0.2, Hi: 0.25, Gain: 1}, {Lo: 0.3, Hi: 0.35}, {Lo: 0.4, Hi: 0.5, Gain: 1}}, Settings{}, "bands"},
 		{"fewGridPoints", 101, 1, []Band{{Lo: 0, Hi: 0.001, Gain: 1}, {Lo: 0.4, Hi: 0.401}}, Settings{Density: 1, GridOnly: true}, "grid points"},
 		{"evenNyquist", 20, 1, []Band{{Lo: 0, Hi: 0.3, Gain: 1}, {Lo: 0.4999, Hi: 0.5}}, Settings{GridOnly: true}, "rate/2"},
-		{"fewPoints", 4, 1, []Band{{Lo: 0.499, Hi: 0.5, Gain: 1}}, Settings{GridOnly: true}, "grid point"},
+		{"fewPoints", 5, 1, []Band{{Lo: 0.499, Hi: 0.5, Gain: 1}}, Settings{GridOnly: true}, "grid point"},
+		// An even length cannot reach a gain at rate/2 (a review found
+		// the exchange's failure advising more iterations).
+		{"evenNyquistGain", 30, 1000, []Band{{Lo: 0, Hi: 200}, {Lo: 300, Hi: 500, Gain: 1}}, Settings{}, "use an odd length"},
+		{"evenNyquistGainFunc", 30, 1, []Band{{Lo: 0, Hi: 0.2}, {Lo: 0.3, Hi: 0.5, GainFunc: func(f float64) float64 { return f }}}, Settings{}, "wants gain 0.5 at rate/2"},
+		// A length whose counts would overflow (a review found negative
+		// degrees of freedom in the message).
+		{"absurdLength", math.MaxInt, 1, lp, Settings{}, "at most 4194304 taps"},
 		{"tooLax", 301, 1, []Band{{Lo: 0, Hi: 0.1, Gain: 1}, {Lo: 0.4, Hi: 0.5}}, Settings{}, "rounding"},
 		{"maxIter", 301, 1, []Band{{Lo: 0, Hi: 0.2, Gain: 1}, {Lo: 0.21, Hi: 0.5}}, Settings{MaxIterations: 1}, "converge"},
 	} {

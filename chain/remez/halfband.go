@@ -133,6 +133,14 @@ func minHalfBand(ctx context.Context, fp, rate, dev float64, s Settings) (*Resul
 	n := HerrmannLength(dev, dev, rate/2-2*fp, rate)
 	k0 := max(2, min(kMax, (n+1+3)/4))
 	res, err := m.finish(m.search(2*k0, 0))
+	var se *SearchError
+	if errors.As(err, &se) && se.Met == 0 && errors.Is(err, ErrNoLength) {
+		// The search's own words count the single-band G's length
+		// (maxTaps = 2 kMax), which no caller chose: say it in the
+		// half-band's.
+		return nil, m, &SearchError{Fail: 2*se.Fail - 1, Limit: 4*kMax - 1, errs: []error{ErrNoLength},
+			msg: fmt.Sprintf("remez: half-band fp = %v Hz, rate %v Hz, dev = %v: not met by any half-band up to k = %d (%d taps): lower fp or raise dev", fp, rate, dev, kMax, 4*kMax-1)}
+	}
 	if err != nil {
 		return nil, m, fmt.Errorf("remez: half-band fp = %v Hz, rate %v Hz, dev = %v, k up to %d (%d taps): %w", fp, rate, dev, kMax, 4*kMax-1, err)
 	}

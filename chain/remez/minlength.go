@@ -68,16 +68,10 @@ func minLength(ctx context.Context, rate float64, bands []Band, parity, maxTaps 
 		}
 	}
 	wb := limitWeighted(bands)
-	evenOK := true
-	if last := bands[len(bands)-1]; last.Hi == rate/2 {
-		g := last.Gain
-		if last.GainFunc != nil {
-			g = last.GainFunc(rate / 2)
-		}
-		evenOK = g == 0
-	}
+	g, atNyq := nyquistGain(rate, bands)
+	evenOK := !atNyq || g == 0
 	if parity == 2 && !evenOK {
-		return nil, nil, fmt.Errorf("remez: parity = 2 (even lengths) but band %d wants gain %v at rate/2, where an even-length symmetric filter is zero: use parity 0 or 1", len(bands)-1, bands[len(bands)-1].Gain)
+		return nil, nil, fmt.Errorf("remez: parity = 2 (even lengths) but band %d wants gain %v at rate/2, where an even-length symmetric filter is zero: use parity 0 or 1", len(bands)-1, g)
 	}
 	// Lengths whose grid would exceed MaxGridPoints cannot be designed:
 	// the search stops below them and says so.
@@ -105,36 +99,45 @@ func minLength(ctx context.Context, rate float64, bands []Band, parity, maxTaps 
 		}
 		maxTaps, gridCap = lo, true
 	}
-	m := &lengthSearch{ctx: ctx, gridCap: gridCap, rate: rate, bands: bands, wb: wb, s: s, maxTaps: maxTaps, cache: map[int]*Result{}, ratio: map[int]float64{}, lax: map[int]bool{}}
+	m := &lengthSearch{ctx: ctx, gridCap: gridCap, rate: rate, bands: bands, wb: wb, s: s, maxTaps: maxTaps, cache: map[int]*Result{}, ratio: map[int]float64{}, lax: map[int]bool{}, early: earlyVerdict}
+	r, err := m.solve(parity, evenOK)
+	if errors.Is(err, errEarlyUnmet) {
+		// A length met by an iterate was the answer, but its design run
+		// to the end did not meet (rounding-level limits): the search
+		// runs again with every verdict from a design run to its end.
+		m = &lengthSearch{ctx: ctx, gridCap: gridCap, rate: rate, bands: bands, wb: wb, s: s, maxTaps: maxTaps, cache: map[int]*Result{}, ratio: map[int]float64{}, lax: map[int]bool{}}
+		r, err = m.solve(parity, evenOK)
+	}
+	return r, m, err
+}
+
+// solve searches the shortest length of the given parity (0: either)
+// meeting the bands; evenOK says whether an even length can.
+func (m *lengthSearch) solve(parity int, evenOK bool) (*Result, error) {
 	est := m.estimate()
 	switch parity {
 	case 1:
-		r, err := m.finish(m.search(est, 1))
-		return r, m, err
+		return m.finish(m.search(est, 1))
 	case 2:
-		r, err := m.finish(m.search(est, 0))
-		return r, m, err
+		return m.finish(m.search(est, 0))
 	}
 	n, err := m.search(est, 1)
 	if err != nil {
-		if !evenOK || ctx.Err() != nil {
-			return nil, nil, err
+		if !evenOK || m.ctxErr() != nil {
+			return nil, err
 		}
-		r, err := m.finish(m.search(est, 0))
-		return r, m, err
+		return m.finish(m.search(est, 0))
 	}
 	if !evenOK || n-1 < 4 || !m.meets(n-1) {
-		r, err := m.finish(n, nil)
-		return r, m, err
+		return m.finish(n, nil)
 	}
 	ne, err := m.search(n-1, 0)
-	if err != nil && ctx.Err() == nil && m.cache[n-1] != nil {
+	if err != nil && m.ctxErr() == nil && m.cache[n-1] != nil {
 		// n-1 taps meet, so the even search failed only below them (its
 		// designs ran out): n-1 is the shortest known to meet.
 		ne, err = n-1, nil
 	}
-	r, err := m.finish(ne, err)
-	return r, m, err
+	return m.finish(ne, err)
 }
 
 type lengthSearch struct {
@@ -150,6 +153,12 @@ type lengthSearch struct {
 	lax     map[int]bool     // lengths met to rounding level, taps unusable
 	designs int              // designs run, bounded by maxDesigns
 	refs    map[int]startRef // the reference each length designed ended on
+	// early ends designs once an iterate meets (engine.metBelow).
+	early bool
+	// paused holds, per parity, the shortest length found to meet by an
+	// iterate (engine.metBelow), its design not run to its end: finish
+	// resumes it if it is the answer.
+	paused [2]pausedDesign
 	// perNeper is the taps that Herrmann's estimate adds for each factor
 	// e of error at the binding transition (0 when unknown): the search's
 	// first step and its guard against a flat secant.
@@ -157,6 +166,13 @@ type lengthSearch struct {
 	// designFn, when not nil, replaces design (MinHalfBand searches the
 	// length of its single-band G with it).
 	designFn func(n int) (*Result, []float64, bool)
+}
+
+// pausedDesign is a design ended early because its iterate met: its
+// length and engine (nil: none).
+type pausedDesign struct {
+	n int
+	e *engine
 }
 
 // ErrNoLength is wrapped by the error of a length search in which no
@@ -360,7 +376,31 @@ func (m *lengthSearch) design(n int) (res *Result, wdev []float64, lax bool, flo
 	if warmStart {
 		e.warm = m.refs[m.nearestRef(n)].pts
 	}
+	if m.early {
+		// The weights are the limits' inverses: a weighted error of 1
+		// is every band's limit, and the margin keeps rounding out.
+		e.metBelow = 1 / (1 + failMargin)
+	}
 	res, err = e.design()
+	if errors.Is(err, errMetEarly) {
+		// Met by an iterate: the length meets, and only the answer needs
+		// its design run to the end (finish). Its recorded ratio, the
+		// iterate's error, lies above the converged design's, on the
+		// cautious side for the secant. The placeholder Result has no
+		// taps: finish never hands it out.
+		m.keepRef(n, e.ref, false)
+		if p := &m.paused[n%2]; p.e == nil || n < p.n {
+			*p = pausedDesign{n, e}
+		}
+		w := make([]float64, len(m.bands))
+		for b := range w {
+			w[b] = e.early.maxErr
+			if m.bands[b].WeightFunc == nil {
+				w[b] *= m.bands[b].MaxError
+			}
+		}
+		return &Result{}, w, false, 0
+	}
 	if errors.Is(err, errCannotMeet) {
 		// A design stopped by the floor is not converged, but its
 		// reference, a few exchanges in, starts the next length far
@@ -381,6 +421,15 @@ func (m *lengthSearch) design(n int) (res *Result, wdev []float64, lax bool, flo
 	// design measured the taps already: the weighted deviations are its.
 	return res, e.wdev, lax, 0
 }
+
+// errEarlyUnmet ends a search whose answer, met by an iterate, did not
+// meet once designed to the end (minLength then searches again without
+// early verdicts).
+var errEarlyUnmet = errors.New("remez: the answer met by an iterate did not meet once designed to the end")
+
+// earlyVerdict ends a design as soon as an iterate's taps meet the bands
+// (engine.metBelow); tests turn it off to compare.
+var earlyVerdict = true
 
 // floorStop stops designs on their levelled deviation (design); tests
 // turn it off to compare.
@@ -682,11 +731,42 @@ func searchStopped(err error) error {
 }
 
 func (m *lengthSearch) finish(n int, err error) (*Result, error) {
+	paused := m.paused
+	m.paused = [2]pausedDesign{}
 	if err != nil {
 		return nil, err
 	}
 	if m.cache[n] == nil {
 		return nil, m.fail(0, n, fmt.Sprintf("%v: remez: MinLength: no usable design at %d taps", ErrNotConverged, n), ErrNotConverged)
+	}
+	if m.cache[n].Taps == nil {
+		// The answer was met by an iterate: its design runs to its end
+		// (resumed, or, should another length hold the paused slot,
+		// designed again), and its taps are measured as any design's.
+		var res *Result
+		var wdev []float64
+		if p := paused[n%2]; p.e != nil && p.n == n {
+			var err error
+			res, err = p.e.resume()
+			if err != nil && p.e.stopped() != nil {
+				return nil, searchStopped(m.ctx.Err())
+			}
+			wdev = p.e.wdev
+		} else {
+			m.early = false
+			res, wdev, _, _ = m.design(n)
+			if err := m.ctxErr(); err != nil {
+				return nil, searchStopped(err)
+			}
+		}
+		ok := res != nil
+		for b := 0; ok && b < len(m.bands); b++ {
+			ok = m.bandRatio(b, wdev[b]) <= 1
+		}
+		if !ok {
+			return nil, errEarlyUnmet
+		}
+		m.cache[n] = res
 	}
 	return m.cache[n], nil
 }

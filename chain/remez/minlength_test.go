@@ -195,25 +195,7 @@ func TestMinLengthFloorStop(t *testing.T) {
 	}
 	stops := 0
 	for c := 0; c < n; c++ {
-		fp, tr, dp, ds := randomLowpass(rng)
-		bands := []Band{{Lo: 0, Hi: fp, Gain: 1, MaxError: dp}}
-		switch c % 3 {
-		case 0:
-			bands = append(bands, Band{Lo: fp + tr, Hi: 0.5, MaxError: ds})
-		case 1:
-			mid := fp + tr + (0.5-fp-tr)/2
-			bands = append(bands, Band{Lo: fp + tr, Hi: mid - 0.01, MaxError: ds}, Band{Lo: mid + 0.01, Hi: 0.5, MaxError: ds})
-		case 2:
-			// A compensator: the passband wants 1/droop within dp/droop,
-			// stated as the chain states it (a weight function against a
-			// limit of 1), with a droop of a few dB.
-			k := 1 + 3*rng.Float64()
-			droop := func(f float64) float64 { return 1 / (1 + k*f*f) }
-			bands[0] = Band{Lo: 0, Hi: fp, MaxError: 1,
-				GainFunc:   func(f float64) float64 { return 1 / droop(f) },
-				WeightFunc: func(f float64) float64 { return droop(f) / dp }}
-			bands = append(bands, Band{Lo: fp + tr, Hi: 0.5, MaxError: ds})
-		}
+		bands := searchBands(rng, c%3)
 		on, m, onErr := minLength(context.Background(), 1, bands, 0, 2000, Settings{})
 		floorStop = false
 		off, _, offErr := minLength(context.Background(), 1, bands, 0, 2000, Settings{})
@@ -284,4 +266,115 @@ func TestMinLengthWeightFuncLimit(t *testing.T) {
 			t.Errorf("c = %v: %d taps with the constant weight function, %d without", c, len(b.Taps), len(a.Taps))
 		}
 	}
+}
+
+// A design whose iterate's largest error on the whole grid (extrema
+// refined) is within the limits ends there (engine.metBelow): the length
+// meets, and only the search's answer is designed to the end. On seeded
+// random lowpass, multiband and compensator specs, MinLength returns the
+// same length with and without early verdicts, a design run to its end
+// (Converged), whose taps meet the bands measured independently of the
+// engine (rippleCheck's refined dense scan) and agree with the other's to
+// the convergence tolerance; and every length met early also meets when
+// designed to the end (the verdict a full design gives).
+func TestMinLengthEarlyVerdict(t *testing.T) {
+	rng := rand.New(rand.NewPCG(7, 43))
+	n := 24
+	if os.Getenv("STEPDOWN_LONG") != "" {
+		n = 150
+	}
+	earlies := 0
+	for c := 0; c < n; c++ {
+		bands := searchBands(rng, c%3)
+		on, m, onErr := minLength(context.Background(), 1, bands, 0, 2000, Settings{})
+		earlyVerdict = false
+		off, _, offErr := minLength(context.Background(), 1, bands, 0, 2000, Settings{})
+		earlyVerdict = true
+		if (onErr == nil) != (offErr == nil) {
+			t.Fatalf("case %d: with early verdicts err %v, without %v", c, onErr, offErr)
+		}
+		if onErr != nil {
+			continue
+		}
+		if len(on.Taps) != len(off.Taps) {
+			t.Errorf("case %d: %d taps with early verdicts, %d without", c, len(on.Taps), len(off.Taps))
+			continue
+		}
+		if !on.Converged {
+			t.Errorf("case %d: the answer's design did not run to convergence", c)
+		}
+		if c%3 != 2 {
+			if dev, _ := rippleCheck(on.Taps, 1, bands, 32); !withinLimits(dev, bands) {
+				t.Errorf("case %d: the %d taps miss the bands: %v", c, len(on.Taps), dev)
+			}
+		}
+		peak := 0.0
+		for _, v := range off.Taps {
+			peak = math.Max(peak, math.Abs(v))
+		}
+		for i := range on.Taps {
+			if d := math.Abs(on.Taps[i] - off.Taps[i]); d > 1e-5*peak {
+				t.Errorf("case %d: tap %d is %.9g with early verdicts, %.9g without", c, i, on.Taps[i], off.Taps[i])
+				break
+			}
+		}
+		for length, r := range m.cache {
+			if r == nil || r.Taps != nil {
+				continue // designed to the end
+			}
+			earlies++
+			m.early = false
+			full, wdev, _, _ := m.design(length)
+			m.early = true
+			if full == nil {
+				t.Errorf("case %d, %d taps: met early, no design run to the end", c, length)
+				continue
+			}
+			for b := range bands {
+				if ratio := m.bandRatio(b, wdev[b]); ratio > 1 {
+					t.Errorf("case %d, %d taps: met early, band %d at %.9g of its limit designed to the end", c, length, b, ratio)
+				}
+			}
+		}
+	}
+	if earlies == 0 {
+		t.Error("no length was met early: the test checks nothing")
+	}
+	t.Logf("%d lengths met early checked", earlies)
+}
+
+// withinLimits says whether every band's deviation is within its
+// MaxError (to a part in 1e9, the measurement's rounding).
+func withinLimits(dev []float64, bands []Band) bool {
+	for b := range bands {
+		if dev[b] > bands[b].MaxError*(1+1e-9) {
+			return false
+		}
+	}
+	return true
+}
+
+// searchBands draws the bands of a length search test: a lowpass (kind
+// 0), a lowpass with a don't-care gap in its stopband (1), or a
+// compensator (2), whose passband wants 1/droop within dp/droop, stated
+// as the chain states it (a weight function against a limit of 1), with a
+// droop of a few dB.
+func searchBands(rng *rand.Rand, kind int) []Band {
+	fp, tr, dp, ds := randomLowpass(rng)
+	bands := []Band{{Lo: 0, Hi: fp, Gain: 1, MaxError: dp}}
+	switch kind {
+	case 0:
+		bands = append(bands, Band{Lo: fp + tr, Hi: 0.5, MaxError: ds})
+	case 1:
+		mid := fp + tr + (0.5-fp-tr)/2
+		bands = append(bands, Band{Lo: fp + tr, Hi: mid - 0.01, MaxError: ds}, Band{Lo: mid + 0.01, Hi: 0.5, MaxError: ds})
+	default:
+		k := 1 + 3*rng.Float64()
+		droop := func(f float64) float64 { return 1 / (1 + k*f*f) }
+		bands[0] = Band{Lo: 0, Hi: fp, MaxError: 1,
+			GainFunc:   func(f float64) float64 { return 1 / droop(f) },
+			WeightFunc: func(f float64) float64 { return droop(f) / dp }}
+		bands = append(bands, Band{Lo: fp + tr, Hi: 0.5, MaxError: ds})
+	}
+	return bands
 }

@@ -4,6 +4,7 @@ import (
 	"fmt"
 	"math"
 	"math/rand/v2"
+	"slices"
 	"strconv"
 
 	"github.com/stepdown-dsp/stepdown/chain"
@@ -44,6 +45,27 @@ func firStage(rng *rand.Rand, hb bool) fixed.Stage {
 		Bands: []remez.Band{{Lo: 0, Hi: fc / 2, Gain: 1, MaxError: 0.5}, {Lo: math.Min(0.5, fc*1.5), Hi: 0.5, MaxError: 0.5}}}
 }
 
+// inHz returns c with firStage's bands, drawn as fractions of each
+// stage's own rate, in Hz at the rate its taps run at, as fixed.Stage
+// wants them.
+func inHz(c fixed.Cascade) fixed.Cascade {
+	c.Stages = slices.Clone(c.Stages)
+	rate := c.InputRate
+	for i := range c.Stages {
+		st := &c.Stages[i]
+		if !st.CIC {
+			bs := slices.Clone(st.Bands)
+			for j := range bs {
+				bs[j].Lo *= rate
+				bs[j].Hi *= rate
+			}
+			st.Bands = bs
+		}
+		rate /= float64(st.R)
+	}
+	return c
+}
+
 // randomChain draws a cascade and plans it, the shapes of chain/fixed's
 // tests: CIC only, CIC then FIRs, half-bands, FIRs only; real or complex;
 // coefficient widths in [coefLo, coefHi]; CIC registers of at most 63 bits.
@@ -76,6 +98,7 @@ func randomChain(rng *rand.Rand, shape, coefLo, coefHi int) (fixed.Cascade, *fix
 				c.Stages = append(c.Stages, firStage(rng, false))
 			}
 		}
+		c = inHz(c)
 		words := fixed.Words{
 			InputBits:  2 + rng.IntN(31),
 			OutputBits: 2 + rng.IntN(31),
@@ -158,6 +181,7 @@ func nrChains() []planned {
 	rng := rand.New(rand.NewPCG(15, 4))
 	nr := func(n, r int) fixed.Stage { return fixed.Stage{CIC: true, N: n, M: 1, R: r, NonRecursive: true} }
 	mk := func(c fixed.Cascade, words fixed.Words) planned {
+		c = inHz(c)
 		w, err := fixed.Plan(c, words, fixed.Settings{})
 		if err != nil {
 			panic(err)
