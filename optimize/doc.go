@@ -405,9 +405,11 @@
 // and cloud members are merged in enumeration order as soon as the first
 // stages before it are merged, so the tier's result is that of one walk.
 //
-// On cancellation of the context Plan stops starting designs and returns the
+// The context must not be nil (context.Background never stops). On
+// cancellation of the context Plan stops starting designs and returns the
 // front of the chains designed and measured so far, with Result.Partial set
-// and no error. When none was measured yet but some were designed (a stop
+// and no error (a caller tells a stop from a finished search by Partial,
+// not by errors.Is(err, context.Canceled)). When none was measured yet but some were designed (a stop
 // during the first round of designs), the front of the designed chains by
 // their prices is measured, for at most 300 ms after the cancellation,
 // members that miss dropped and the front taken again; only measured chains

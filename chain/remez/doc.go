@@ -98,7 +98,8 @@
 // # Cancellation and memory
 //
 // DesignContext, MinLengthContext, HalfBandContext and MinHalfBandContext
-// take a context. It is checked before every iteration of the exchange and
+// take a context, which must not be nil (as everywhere in Go; Background
+// never stops). It is checked before every iteration of the exchange and
 // of the shorter designs that seed it, before every design of a length
 // search, and (through a flag set by context.AfterFunc) every 64 grid
 // points or one reference point inside the O(n^2) loops, so a design of

@@ -15,6 +15,7 @@ import (
 	"github.com/stepdown-dsp/stepdown/chain"
 	"github.com/stepdown-dsp/stepdown/chain/remez"
 	"github.com/stepdown-dsp/stepdown/chain/units"
+	"github.com/stepdown-dsp/stepdown/plots/report"
 )
 
 func designCommand() *cli.Command {
@@ -175,7 +176,7 @@ func runDesign(c *cli.Context) error {
 		}
 	}
 
-	out := designOutput{RateHz: rate, TargetRippleDB: ripple, TargetAttenDB: atten, GridDensity: grid, Caution: caution}
+	out := designOutput{RateHz: rate, TargetRippleDB: ripple, TargetAttenDB: atten, GridDensity: grid, Caution: report.Caution}
 	var bands []remez.Band
 	for _, e := range edges {
 		b := designBandOf(e.lo, e.hi, e.pass, dp, ds)

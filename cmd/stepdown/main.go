@@ -207,8 +207,9 @@ func newApp(stdout, stderr io.Writer) *cli.App {
 	app := &cli.App{
 		Name:  "stepdown",
 		Usage: "plan multistage decimation and interpolation chains (CIC, half-band, FIR, polyphase, Farrow) for receiver and transmitter front ends",
-		Description: "The figures stepdown prints are planning estimates: confirm them by a bit-true\n" +
-			"simulation of the RTL and the team's own sign-off before committing hardware.",
+		Description: "The figures stepdown prints are planning data, each measured on the designed taps or\n" +
+			"labelled an estimate: confirm them by a bit-true simulation of the RTL and the team's own\n" +
+			"sign-off before committing hardware.",
 		Version:                   report.ToolVersion(),
 		Writer:                    stdout,
 		ErrWriter:                 stderr,

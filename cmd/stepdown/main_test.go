@@ -228,7 +228,7 @@ func TestBadInputs(t *testing.T) {
 		{name: "out parent missing", spec: goodSpec, args: []string{"plan", "spec.toml", "--out", "nowhere/out"}, code: 2, frags: []string{"nowhere", "does not exist"}},
 		{name: "out foreign folder", spec: goodSpec, args: []string{"plan", "spec.toml", "--out", "folder"}, code: 2, frags: []string{"folder", "not a stepdown output folder"}},
 		// /proc refuses new folders even to root, so this is a runtime failure.
-		{name: "out not writable", spec: goodSpec, args: []string{"plan", "spec.toml", "--out", "/proc/stepdown-out"}, code: 1, frags: []string{"/proc/stepdown-out", "cannot write"}},
+		{name: "out not writable", spec: goodSpec, args: []string{"plan", "spec.toml", "--out", "/proc/stepdown-out"}, code: 1, frags: []string{"/proc/stepdown-out", "cannot make a folder in \"/proc\"", "choose a folder you can write to"}},
 		{name: "flag max-stages", spec: goodSpec, args: []string{"plan", "spec.toml", "--out", "out", "--max-stages", "13"}, code: 2, frags: []string{"--max-stages", "[1, 12]"}},
 		{name: "flag jobs", spec: goodSpec, args: []string{"plan", "spec.toml", "--out", "out", "--jobs", "-1"}, code: 2, frags: []string{"--jobs"}},
 		{name: "flag timeout", spec: goodSpec, args: []string{"plan", "spec.toml", "--out", "out", "--timeout", "-1s"}, code: 2, frags: []string{"--timeout"}},

@@ -55,7 +55,7 @@ type Status string
 
 const (
 	OK         Status = "ok"         // searched; the front and recommendation are in Report
-	Partial    Status = "partial"    // stopped by the time limit with a front so far
+	Partial    Status = "partial"    // stopped by the time limit (or an interrupt) with a front so far
 	Invalid    Status = "invalid"    // the value makes the spec inconsistent
 	Infeasible Status = "infeasible" // searched; no chain meets the spec
 	Failed     Status = "error"      // the search failed
@@ -366,6 +366,9 @@ func runOne(ctx context.Context, st Study, plan func(context.Context, chain.Spec
 	r.Status = OK
 	if res.Partial {
 		r.Status, r.Detail = Partial, "stopped by the time limit; the front is the best found so far"
+		if errors.Is(ctx.Err(), context.Canceled) {
+			r.Detail = "stopped by an interrupt; the front is the best found so far"
+		}
 	}
 	return r
 }

@@ -195,3 +195,31 @@ func TestFilesStopped(t *testing.T) {
 		t.Errorf("Files after cancel: %v, want context.Canceled", err)
 	}
 }
+
+// A run stopped before the word lengths recommends a chain whose rounded
+// taps were never judged: the reason says so, where a script reading the
+// reason alone would look (a new-user review found it silent).
+func TestStoppedRecommendationSaysNotJudged(t *testing.T) {
+	s, res := handChain(t)
+	ctx, cancel := context.WithCancel(context.Background())
+	cancel()
+	res.Partial = true
+	rep, err := NewContext(ctx, "plan", s, res)
+	if err != nil {
+		t.Fatal(err)
+	}
+	if c := rep.Front[rep.Recommended]; c.WordLengthsError != StoppedBeforeWordLengths {
+		t.Fatalf("word_lengths_error %q, want the stopped one", c.WordLengthsError)
+	}
+	if !strings.Contains(rep.Reason, "Not judged") {
+		t.Errorf("reason %q does not say the recommended chain was not judged", rep.Reason)
+	}
+	// Run to its end, the same chain's reason does not.
+	full, err := NewContext(context.Background(), "plan", s, res)
+	if err != nil {
+		t.Fatal(err)
+	}
+	if strings.Contains(full.Reason, "Not judged") {
+		t.Errorf("a judged chain's reason %q says it was not judged", full.Reason)
+	}
+}

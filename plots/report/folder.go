@@ -152,7 +152,7 @@ func OpenFolder(dir, role string) (*Folder, error) {
 	}
 	birth, err := os.MkdirTemp(parent, birthPrefix+"*")
 	if err != nil {
-		return nil, failure("%s %q: cannot write in %q: %v", role, shown, units.Clip(parent, units.MaxEcho), unwrapPath(err))
+		return nil, failure("%s %q: cannot make a folder in %q (the system refused: %v); choose a folder you can write to", role, shown, units.Clip(parent, units.MaxEcho), unwrapPath(err))
 	}
 	o.tmp = birth
 	// MkdirTemp makes the folder private; the output is an ordinary folder.
@@ -171,7 +171,7 @@ func OpenFolder(dir, role string) (*Folder, error) {
 	tmp := filepath.Join(parent, prefix+strings.TrimPrefix(filepath.Base(birth), birthPrefix))
 	if err := rename(birth, tmp); err != nil {
 		o.Discard()
-		return nil, failure("%s %q: cannot write in %q: %v", role, shown, units.Clip(parent, units.MaxEcho), unwrapPath(err))
+		return nil, failure("%s %q: cannot make a folder in %q (the system refused: %v); choose a folder you can write to", role, shown, units.Clip(parent, units.MaxEcho), unwrapPath(err))
 	}
 	o.tmp = tmp
 	sweepStale(parent)

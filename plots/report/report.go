@@ -24,7 +24,7 @@ import (
 const Schema = "stepdown.report/1"
 
 // Caution is the planning caveat carried by every report.
-const Caution = "planning estimates, confirm by bit-true simulation of the RTL and the team's sign-off before committing hardware"
+const Caution = "planning data (each figure measured on the designed taps, or labelled an estimate); confirm by bit-true simulation of the RTL and the team's sign-off before committing hardware"
 
 // Report is report.json.
 type Report struct {
@@ -905,6 +905,13 @@ func newReport(ctx context.Context, command string, s *specfile.Spec, res *optim
 	}
 	close(next)
 	wg.Wait()
+	if k := r.Recommended; k >= 0 && k < len(r.Front) {
+		if c := &r.Front[k]; !c.MeetsTargets && c.Unjudged() && c.WordLengthsError == StoppedBeforeWordLengths {
+			// The recommendation stands on the float design alone: say so
+			// where a reader of the reason alone would look.
+			r.Reason += " Not judged: the run stopped before its taps were rounded and measured, so whether it meets the spec as built is not known."
+		}
+	}
 	paths := 1
 	if s.Signal == "complex" {
 		paths = 2

@@ -100,11 +100,20 @@ func WriteWordLengths(w io.Writer, rep *Report) {
 	} else if (ch.GainCorrection == 1 || ch.GainCorrection == 0) && math.Abs(ch.DCGainDB) >= 0.5 {
 		// A CIC's gain (R M)^N is brought to the power of two below it
 		// by its output shift, an interpolating FIR's L to
-		// 2^floor(log2 L): say so, and how to undo it.
-		gain += " (stage gains rounded to powers of two by shifts; words.unity_gain = true folds the rest into the last FIR)"
+		// 2^floor(log2 L): say so, and how to undo it where a FIR can.
+		if hasTaps(&ch) {
+			gain += " (stage gains rounded to powers of two by shifts; words.unity_gain = true folds the rest into the last FIR)"
+		} else {
+			gain += " (stage gains rounded to powers of two by shifts; with no FIR stage, nothing folds the rest)"
+		}
 	}
-	fmt.Fprintf(w, "\nword lengths (%s): %s; rounded taps: %s rejection %.2f dB, ripple %.4f dB; %s\n",
-		coef, ch.BitTrueSummary(), rep.Spec.Unwanted(), ch.QuantisedRejectionDB, ch.QuantisedRippleDB, gain)
+	// A chain of CICs alone has no taps to round: its figures are as built.
+	built := "rounded taps"
+	if !hasTaps(&ch) {
+		built = "as built"
+	}
+	fmt.Fprintf(w, "\nword lengths (%s): %s; %s: %s rejection %.2f dB, ripple %.4f dB; %s\n",
+		coef, ch.BitTrueSummary(), built, rep.Spec.Unwanted(), ch.QuantisedRejectionDB, ch.QuantisedRippleDB, gain)
 	// The kind column is 8 wide, wider when a kind's name is longer
 	// (polyphase).
 	kw := 8
@@ -142,7 +151,7 @@ func WriteWordLengths(w io.Writer, rep *Report) {
 			fmt.Fprintf(&b, ", coefficients %d bits (%d rows), branch accumulators %d bits%s, mu %d bits, Horner register %d bits, multiplier %s",
 				sr.CoefficientBits, sr.CoefficientRows, sr.AccumulatorBits, overMark(st), sr.MuBits, sr.HornerBits, sr.MultiplierSize)
 			if !sr.QuantisedMeetsBands {
-				b.WriteString(", rounded taps miss this stage's own bands (the chain is judged as a whole)")
+				b.WriteString(stageMissNote)
 			}
 		case rep.Spec.Hardware.Multiplierless:
 			fmt.Fprintf(&b, ", coefficients %d bits, accumulator %d bits%s, an adder graph", sr.CoefficientBits, sr.AccumulatorBits, overMark(st))
@@ -150,7 +159,7 @@ func WriteWordLengths(w io.Writer, rep *Report) {
 				fmt.Fprintf(&b, " of %d adders and %d tap adders (one lane, one real filter)", *st.CoefficientAdders, *st.StructuralAdders)
 			}
 			if !sr.QuantisedMeetsBands {
-				b.WriteString(", rounded taps miss this stage's own bands (the chain is judged as a whole)")
+				b.WriteString(stageMissNote)
 			}
 		default:
 			fmt.Fprintf(&b, ", coefficients %d bits, accumulator %d bits%s, multiplier %s", sr.CoefficientBits, sr.AccumulatorBits, overMark(st), sr.MultiplierSize)
@@ -158,7 +167,7 @@ func WriteWordLengths(w io.Writer, rep *Report) {
 				fmt.Fprintf(&b, " (%d hardware at %s)", *sr.HardwareMultipliers, rep.Spec.Hardware.Multiplier)
 			}
 			if !sr.QuantisedMeetsBands {
-				b.WriteString(", rounded taps miss this stage's own bands (the chain is judged as a whole)")
+				b.WriteString(stageMissNote)
 			}
 		}
 		fmt.Fprintf(&b, ", out %d bits", sr.OutputBits)
@@ -425,4 +434,20 @@ func WriteAligned(w io.Writer, indent string, rows [][]string, right func(col in
 		}
 		fmt.Fprintln(w, indent+strings.TrimRight(b.String(), " "))
 	}
+}
+
+// stageMissNote follows a stage whose rounded taps miss the bands it was
+// designed to: those bands are the stage's share of the budget, not the
+// verdict, which is the whole chain's figures (a one-stage chain's too:
+// its stage's bands need not be the chain's).
+const stageMissNote = ", rounded taps miss the bands this stage was designed to (the verdict is the whole chain's figures above)"
+
+// hasTaps reports whether ch has a stage with taps (any but a CIC).
+func hasTaps(ch *Chain) bool {
+	for _, st := range ch.Stages {
+		if st.Kind != "cic" {
+			return true
+		}
+	}
+	return false
 }
