@@ -1,8 +1,10 @@
 package chain
 
 import (
+	"errors"
 	"fmt"
 	"math"
+	"strings"
 
 	"github.com/stepdown-dsp/stepdown/chain/remez"
 )
@@ -158,7 +160,9 @@ func (s Settings) Check() error {
 		return fmt.Errorf("chain: Settings.MaxTaps = %d: must be 0 (no bound) or at least 3", s.MaxTaps)
 	}
 	if err := s.Remez.Check(); err != nil {
-		return fmt.Errorf("chain: Settings.Remez: %w", err)
+		// "chain: Settings.Remez.Density = -1: ...", not a stutter of
+		// package prefixes.
+		return errors.New("chain: Settings.Remez." + strings.TrimPrefix(err.Error(), "remez: Settings."))
 	}
 	return nil
 }

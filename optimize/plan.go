@@ -157,7 +157,7 @@ func (s *Settings) check() error {
 		return fmt.Errorf("optimize: Rule = %d: must be Knee or WeightedCost", int(s.Rule))
 	}
 	if err := s.Chain.Check(); err != nil {
-		return fmt.Errorf("optimize: Settings.Chain: %w", err)
+		return errors.New("optimize: Settings.Chain." + strings.TrimPrefix(err.Error(), "chain: Settings."))
 	}
 	return nil
 }

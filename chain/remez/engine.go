@@ -213,11 +213,12 @@ func validateSpec(rate float64, bands []Band, s Settings) error {
 }
 
 // nyquistGain returns the gain the last band wants at rate/2, and whether
-// it reaches rate/2 at all: an even-length (type II) filter is zero there.
+// it reaches rate/2 at all (to within a part in 1e9, as an edge computed
+// at rate/2 can miss it): an even-length (type II) filter is zero there.
 func nyquistGain(rate float64, bands []Band) (g float64, ok bool) {
 	last := &bands[len(bands)-1]
-	if last.Hi != rate/2 {
-		return 0, false
+	if !(last.Hi >= rate/2*(1-1e-9)) {
+		return 0, false // ends short of rate/2 (but for rounding)
 	}
 	return gainAt(last, rate/2), true
 }

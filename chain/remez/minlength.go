@@ -102,10 +102,17 @@ func minLength(ctx context.Context, rate float64, bands []Band, parity, maxTaps 
 	m := &lengthSearch{ctx: ctx, gridCap: gridCap, rate: rate, bands: bands, wb: wb, s: s, maxTaps: maxTaps, cache: map[int]*Result{}, ratio: map[int]float64{}, lax: map[int]bool{}, early: earlyVerdict}
 	r, err := m.solve(parity, evenOK)
 	if errors.Is(err, errEarlyUnmet) {
-		// A length met by an iterate was the answer, but its design run
-		// to the end did not meet (rounding-level limits): the search
-		// runs again with every verdict from a design run to its end.
-		m = &lengthSearch{ctx: ctx, gridCap: gridCap, rate: rate, bands: bands, wb: wb, s: s, maxTaps: maxTaps, cache: map[int]*Result{}, ratio: map[int]float64{}, lax: map[int]bool{}}
+		// A length met by an iterate was the answer, but its taps,
+		// designed to the end, missed (finish recorded it as failing):
+		// the search goes on from what it knows, without early verdicts,
+		// the other lengths met early forgotten.
+		m.early = false
+		for n, res := range m.cache {
+			if res != nil && res.Taps == nil {
+				delete(m.cache, n)
+				delete(m.ratio, n)
+			}
+		}
 		r, err = m.solve(parity, evenOK)
 	}
 	return r, m, err
@@ -153,8 +160,9 @@ type lengthSearch struct {
 	lax     map[int]bool     // lengths met to rounding level, taps unusable
 	designs int              // designs run, bounded by maxDesigns
 	refs    map[int]startRef // the reference each length designed ended on
-	// early ends designs once an iterate meets (engine.metBelow).
-	early bool
+	// early ends designs once an iterate meets (engine.metBelow), but for
+	// a length that closes the search's bracket (closing).
+	early, closing bool
 	// paused holds, per parity, the shortest length found to meet by an
 	// iterate (engine.metBelow), its design not run to its end: finish
 	// resumes it if it is the answer.
@@ -376,9 +384,12 @@ func (m *lengthSearch) design(n int) (res *Result, wdev []float64, lax bool, flo
 	if warmStart {
 		e.warm = m.refs[m.nearestRef(n)].pts
 	}
-	if m.early {
+	if m.early && !m.closing && len(e.grid) <= earlyMaxGrid {
 		// The weights are the limits' inverses: a weighted error of 1
-		// is every band's limit, and the margin keeps rounding out.
+		// is every band's limit, and the margin keeps rounding out. A
+		// length that would close the bracket is likely the answer,
+		// which is designed to the end anyway; and a paused design
+		// keeps its grid, so only small ones pause.
 		e.metBelow = 1 / (1 + failMargin)
 	}
 	res, err = e.design()
@@ -421,6 +432,17 @@ func (m *lengthSearch) design(n int) (res *Result, wdev []float64, lax bool, flo
 	// design measured the taps already: the weighted deviations are its.
 	return res, e.wdev, lax, 0
 }
+
+// forceEarlyMiss, when positive, makes that many answers met early read as
+// missing once designed to the end (1.5 of the limit), so that tests reach
+// the search's way on from such a miss.
+var forceEarlyMiss = 0
+
+// earlyMaxGrid bounds the grid of a design that may pause on an early
+// verdict (64 bytes a point: 8 MiB, with two paused designs a search at
+// most): the long designs, where the paused grid would cost most memory,
+// run to the end.
+const earlyMaxGrid = 1 << 17
 
 // errEarlyUnmet ends a search whose answer, met by an iterate, did not
 // meet once designed to the end (minLength then searches again without
@@ -695,7 +717,9 @@ func (m *lengthSearch) search(n0, odd int) (int, error) {
 				n = lo + 2
 			}
 		}
+		m.closing = lo > 0 && n == lo+2
 		met := m.meets(n)
+		m.closing = false
 		side := 1
 		if met {
 			side = -1
@@ -760,10 +784,22 @@ func (m *lengthSearch) finish(n int, err error) (*Result, error) {
 			}
 		}
 		ok := res != nil
+		worst := 0.0
 		for b := 0; ok && b < len(m.bands); b++ {
-			ok = m.bandRatio(b, wdev[b]) <= 1
+			worst = math.Max(worst, m.bandRatio(b, wdev[b]))
 		}
-		if !ok {
+		if forceEarlyMiss > 0 {
+			forceEarlyMiss--
+			worst = math.Max(worst, 1.5)
+		}
+		if !ok || !(worst <= 1) {
+			// Failing after all, at its measured ratio (a design with no
+			// taps at no usable one).
+			delete(m.cache, n)
+			m.ratio[n] = math.Inf(1)
+			if ok && !math.IsNaN(worst) {
+				m.ratio[n] = worst
+			}
 			return nil, errEarlyUnmet
 		}
 		m.cache[n] = res

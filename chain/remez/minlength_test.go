@@ -378,3 +378,50 @@ func searchBands(rng *rand.Rand, kind int) []Band {
 	}
 	return bands
 }
+
+// An answer met early whose taps, designed to the end, miss (forced here:
+// TestMinLengthEarlyVerdict's specs never do) is recorded as failing and
+// the search goes on without early verdicts: on seeded random specs the
+// result is a converged design of a length that meets the bands, longer
+// than the forced length, and no shorter length than the one returned
+// without a forced miss is returned.
+func TestMinLengthEarlyMissGoesOn(t *testing.T) {
+	rng := rand.New(rand.NewPCG(9, 47))
+	misses := 0
+	for c := 0; c < 12; c++ {
+		bands := searchBands(rng, c%3)
+		plain, _, err := minLength(context.Background(), 1, bands, 0, 2000, Settings{})
+		if err != nil {
+			continue
+		}
+		forceEarlyMiss = 1
+		got, m, err := minLength(context.Background(), 1, bands, 0, 2000, Settings{})
+		forced := forceEarlyMiss == 0
+		forceEarlyMiss = 0
+		if err != nil {
+			t.Errorf("case %d: after a forced miss: %v", c, err)
+			continue
+		}
+		if !forced {
+			continue // no answer was met early
+		}
+		misses++
+		if !got.Converged || len(got.Taps) < len(plain.Taps) {
+			t.Errorf("case %d: after a forced miss %d taps (converged %v), without %d", c, len(got.Taps), got.Converged, len(plain.Taps))
+		}
+		if c%3 != 2 {
+			if dev, _ := rippleCheck(got.Taps, 1, bands, 32); !withinLimits(dev, bands) {
+				t.Errorf("case %d: the %d taps returned after a forced miss miss the bands", c, len(got.Taps))
+			}
+		}
+		for n, r := range m.cache {
+			if r != nil && r.Taps == nil {
+				t.Errorf("case %d: %d taps still held as met early after the miss", c, n)
+			}
+		}
+	}
+	if misses == 0 {
+		t.Error("no answer was met early: the test checks nothing")
+	}
+	t.Logf("%d forced misses", misses)
+}
