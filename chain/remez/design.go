@@ -63,26 +63,6 @@ func RoundingLevel(n int) float64 { return math.Max(1e-13, 1e-14*float64(n)) }
 // engine.failAbove: no filter of its length meets the limit.
 var errCannotMeet = errors.New("no filter of this length meets the limit")
 
-// errMetEarly ends a design whose iterate meets engine.metBelow
-// (engine.early).
-var errMetEarly = errors.New("this length meets the limit")
-
-// earlyMet is the iterate that ended a design with errMetEarly: its
-// largest weighted error on the grid, extrema refined, and the iterations
-// run.
-type earlyMet struct {
-	maxErr float64
-	it     int
-}
-
-// metEarly records that the current iterate meets with largest weighted
-// error maxErr (the grid evaluated on its polynomial, extrema refined).
-func (e *engine) metEarly(maxErr float64) bool {
-	e.metBelow = 0
-	e.early = &earlyMet{maxErr: maxErr}
-	return true
-}
-
 // Design returns the length-n linear-phase (type I for odd n, type II for
 // even n) filter that minimises the weighted maximum error over bands.
 //
@@ -131,36 +111,6 @@ func (e *engine) design() (*Result, error) {
 	if errors.Is(err, errCannotMeet) {
 		return nil, err
 	}
-	if errors.Is(err, errMetEarly) {
-		e.early.it = it
-		return nil, err
-	}
-	return e.finishRun(it, conv, err, tol)
-}
-
-// resume runs a design that ended with errMetEarly on to its end, as
-// design would have from there (the metBelow check off).
-func (e *engine) resume() (*Result, error) {
-	tol := tolContinuous
-	if e.gridOnly {
-		tol = tolGrid
-	}
-	if e.ctx != nil {
-		// design let go of its flag's context on return.
-		e.halt = new(atomic.Bool)
-		stop := context.AfterFunc(e.ctx, func() { e.halt.Store(true) })
-		defer stop()
-	}
-	it0 := e.early.it
-	it, conv, err := e.run(tol, e.maxIter-it0)
-	if serr := e.stopped(); serr != nil {
-		return nil, serr
-	}
-	return e.finishRun(it0+it, conv, err, tol)
-}
-
-// finishRun is the rest of design after its first run of it iterations.
-func (e *engine) finishRun(it int, conv bool, err error, tol float64) (*Result, error) {
 	if !conv && e.seeded && it < e.maxIter {
 		// A seeded start can be wrong in structure (a seed's reference
 		// scaled onto many narrow bands) and break down; the evenly spread

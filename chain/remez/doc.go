@@ -75,26 +75,10 @@
 // that length (de la Vallee Poussin's theorem), so MinLength stops a
 // design as soon as it passes the limit (by a relative 1e-6) and records
 // it as the length's error ratio, a lower bound. A length that meets is
-// usually known before its design converges too: once an iterate's
-// largest weighted error on the whole grid, every extremum refined, is
-// within the limit (by a relative 1e-6), MinLength stops the design there
-// and records that error as the length's ratio. That verdict is the
-// iterate's polynomial's on the grid, not yet its taps' measured response
-// (which long filters can lose to rounding), so only the answer counts:
-// it is designed to convergence (the stopped design resumed where it
-// stopped, with the iterations left) and judged on its measured taps, and
-// should those miss, the length is recorded as failing and the search
-// goes on without early verdicts. A length that would close the search's
-// bracket, likely the answer, and a design of more than 2^17 grid points
-// (a stopped design keeps its grid) are not stopped early. The answer's
-// length is the same with or without early verdicts on seeded random
-// specs (a test compares both); its taps depend on the path by which the
-// search reached it, to the convergence tolerance, since each design
-// starts from another's reference. With MaxIterations cut short, a
-// length's unconverged design, and so the answer, depends on its start
-// and, for a resumed design, on the iterations it had left: answers can
-// then differ by far more than a few taps with and without early
-// verdicts. Gaps between bands of equal gain (the don't-care slivers
+// still designed to convergence and judged on its measured taps, so none
+// of this changes the answer, only how fast the search gets there; with
+// MaxIterations cut short, a length's unconverged design, and so the answer,
+// may depend on its start. Gaps between bands of equal gain (the don't-care slivers
 // between alias stopbands) are not transitions for the estimate. A length
 // met to rounding level counts as too long; one that cannot be designed
 // counts as failing. Every phase of a design (coarse seeding, grid
@@ -122,9 +106,7 @@
 // refused before anything
 // is laid, with an error wrapping ErrGridTooLarge that gives the largest
 // density that fits (MaxDensity); MinLength searches only the lengths
-// whose grid fits and wraps ErrGridTooLarge when none of them meets. A
-// length search also holds up to two designs stopped on an early verdict,
-// of at most 2^17 grid points each (about 8 MiB with their work arrays).
+// whose grid fits and wraps ErrGridTooLarge when none of them meets.
 //
 // # Errors
 //

@@ -96,13 +96,6 @@ type engine struct {
 	// bands), hence on the bands: no design of this length meets a limit
 	// below it.
 	failAbove float64
-	// metBelow, when positive, ends run early (errMetEarly) once the
-	// whole grid's largest weighted error, extrema refined, is at most
-	// metBelow: MinLength needs only the verdict of a length that is not
-	// its answer, and finishes the answer's design (resume). early holds
-	// that error.
-	metBelow float64
-	early    *earlyMet
 	// interpolation data of the levelled polynomial on the first r
 	// reference points
 	xr, mu, c, c2 []float64
@@ -1202,21 +1195,6 @@ func (e *engine) run(tol float64, maxIter int) (int, bool, error) {
 				stall = 0
 			}
 			prevDelta = e.delta
-			if ok && gap > tol && e.metBelow > 0 && math.Abs(e.delta)*(1+gap) <= e.metBelow {
-				// The reference's own errors say the length may meet:
-				// the whole grid (a new lobe can rise between the
-				// reference points) and then the taps decide.
-				e.evalGrid()
-				if cerr := e.stopped(); cerr != nil {
-					return it, false, cerr
-				}
-				if maxErr := e.extrema(true); maxErr <= e.metBelow && e.metEarly(maxErr) {
-					return it, false, errMetEarly
-				}
-				if cerr := e.stopped(); cerr != nil {
-					return it, false, cerr
-				}
-			}
 			if stall >= stallSteps {
 				noLocal, full, ok = true, true, false
 			}
@@ -1252,18 +1230,6 @@ func (e *engine) run(tol float64, maxIter int) (int, bool, error) {
 		gap := math.Inf(1)
 		if ad > 0 {
 			gap = (maxErr - ad) / ad
-		}
-		if e.metBelow > 0 && gap > tol && maxErr <= e.metBelow {
-			if !full {
-				maxErr = e.extrema(true)
-				gap = (maxErr - ad) / ad
-			}
-			if maxErr <= e.metBelow && e.metEarly(maxErr) {
-				return it, false, errMetEarly
-			}
-			if cerr := e.stopped(); cerr != nil {
-				return it, false, cerr
-			}
 		}
 		// Confirm an apparent convergence with fully refined extrema;
 		// from then on every iteration refines fully.

@@ -99,22 +99,8 @@ func minLength(ctx context.Context, rate float64, bands []Band, parity, maxTaps 
 		}
 		maxTaps, gridCap = lo, true
 	}
-	m := &lengthSearch{ctx: ctx, gridCap: gridCap, rate: rate, bands: bands, wb: wb, s: s, maxTaps: maxTaps, cache: map[int]*Result{}, ratio: map[int]float64{}, lax: map[int]bool{}, early: earlyVerdict}
+	m := &lengthSearch{ctx: ctx, gridCap: gridCap, rate: rate, bands: bands, wb: wb, s: s, maxTaps: maxTaps, cache: map[int]*Result{}, ratio: map[int]float64{}, lax: map[int]bool{}}
 	r, err := m.solve(parity, evenOK)
-	if errors.Is(err, errEarlyUnmet) {
-		// A length met by an iterate was the answer, but its taps,
-		// designed to the end, missed (finish recorded it as failing):
-		// the search goes on from what it knows, without early verdicts,
-		// the other lengths met early forgotten.
-		m.early = false
-		for n, res := range m.cache {
-			if res != nil && res.Taps == nil {
-				delete(m.cache, n)
-				delete(m.ratio, n)
-			}
-		}
-		r, err = m.solve(parity, evenOK)
-	}
 	return r, m, err
 }
 
@@ -160,13 +146,6 @@ type lengthSearch struct {
 	lax     map[int]bool     // lengths met to rounding level, taps unusable
 	designs int              // designs run, bounded by maxDesigns
 	refs    map[int]startRef // the reference each length designed ended on
-	// early ends designs once an iterate meets (engine.metBelow), but for
-	// a length that closes the search's bracket (closing).
-	early, closing bool
-	// paused holds, per parity, the shortest length found to meet by an
-	// iterate (engine.metBelow), its design not run to its end: finish
-	// resumes it if it is the answer.
-	paused [2]pausedDesign
 	// perNeper is the taps that Herrmann's estimate adds for each factor
 	// e of error at the binding transition (0 when unknown): the search's
 	// first step and its guard against a flat secant.
@@ -174,13 +153,6 @@ type lengthSearch struct {
 	// designFn, when not nil, replaces design (MinHalfBand searches the
 	// length of its single-band G with it).
 	designFn func(n int) (*Result, []float64, bool)
-}
-
-// pausedDesign is a design ended early because its iterate met: its
-// length and engine (nil: none).
-type pausedDesign struct {
-	n int
-	e *engine
 }
 
 // ErrNoLength is wrapped by the error of a length search in which no
@@ -384,34 +356,7 @@ func (m *lengthSearch) design(n int) (res *Result, wdev []float64, lax bool, flo
 	if warmStart {
 		e.warm = m.refs[m.nearestRef(n)].pts
 	}
-	if m.early && !m.closing && len(e.grid) <= earlyMaxGrid {
-		// The weights are the limits' inverses: a weighted error of 1
-		// is every band's limit, and the margin keeps rounding out. A
-		// length that would close the bracket is likely the answer,
-		// which is designed to the end anyway; and a paused design
-		// keeps its grid, so only small ones pause.
-		e.metBelow = 1 / (1 + failMargin)
-	}
 	res, err = e.design()
-	if errors.Is(err, errMetEarly) {
-		// Met by an iterate: the length meets, and only the answer needs
-		// its design run to the end (finish). Its recorded ratio, the
-		// iterate's error, lies above the converged design's, on the
-		// cautious side for the secant. The placeholder Result has no
-		// taps: finish never hands it out.
-		m.keepRef(n, e.ref, false)
-		if p := &m.paused[n%2]; p.e == nil || n < p.n {
-			*p = pausedDesign{n, e}
-		}
-		w := make([]float64, len(m.bands))
-		for b := range w {
-			w[b] = e.early.maxErr
-			if m.bands[b].WeightFunc == nil {
-				w[b] *= m.bands[b].MaxError
-			}
-		}
-		return &Result{}, w, false, 0
-	}
 	if errors.Is(err, errCannotMeet) {
 		// A design stopped by the floor is not converged, but its
 		// reference, a few exchanges in, starts the next length far
@@ -432,26 +377,6 @@ func (m *lengthSearch) design(n int) (res *Result, wdev []float64, lax bool, flo
 	// design measured the taps already: the weighted deviations are its.
 	return res, e.wdev, lax, 0
 }
-
-// forceEarlyMiss, when positive, makes that many answers met early read as
-// missing once designed to the end (1.5 of the limit), so that tests reach
-// the search's way on from such a miss.
-var forceEarlyMiss = 0
-
-// earlyMaxGrid bounds the grid of a design that may pause on an early
-// verdict (64 bytes a point: 8 MiB, with two paused designs a search at
-// most): the long designs, where the paused grid would cost most memory,
-// run to the end.
-const earlyMaxGrid = 1 << 17
-
-// errEarlyUnmet ends a search whose answer, met by an iterate, did not
-// meet once designed to the end (minLength then searches again without
-// early verdicts).
-var errEarlyUnmet = errors.New("remez: the answer met by an iterate did not meet once designed to the end")
-
-// earlyVerdict ends a design as soon as an iterate's taps meet the bands
-// (engine.metBelow); tests turn it off to compare.
-var earlyVerdict = true
 
 // floorStop stops designs on their levelled deviation (design); tests
 // turn it off to compare.
@@ -717,9 +642,7 @@ func (m *lengthSearch) search(n0, odd int) (int, error) {
 				n = lo + 2
 			}
 		}
-		m.closing = lo > 0 && n == lo+2
 		met := m.meets(n)
-		m.closing = false
 		side := 1
 		if met {
 			side = -1
@@ -755,54 +678,11 @@ func searchStopped(err error) error {
 }
 
 func (m *lengthSearch) finish(n int, err error) (*Result, error) {
-	paused := m.paused
-	m.paused = [2]pausedDesign{}
 	if err != nil {
 		return nil, err
 	}
 	if m.cache[n] == nil {
 		return nil, m.fail(0, n, fmt.Sprintf("%v: remez: MinLength: no usable design at %d taps", ErrNotConverged, n), ErrNotConverged)
-	}
-	if m.cache[n].Taps == nil {
-		// The answer was met by an iterate: its design runs to its end
-		// (resumed, or, should another length hold the paused slot,
-		// designed again), and its taps are measured as any design's.
-		var res *Result
-		var wdev []float64
-		if p := paused[n%2]; p.e != nil && p.n == n {
-			var err error
-			res, err = p.e.resume()
-			if err != nil && p.e.stopped() != nil {
-				return nil, searchStopped(m.ctx.Err())
-			}
-			wdev = p.e.wdev
-		} else {
-			m.early = false
-			res, wdev, _, _ = m.design(n)
-			if err := m.ctxErr(); err != nil {
-				return nil, searchStopped(err)
-			}
-		}
-		ok := res != nil
-		worst := 0.0
-		for b := 0; ok && b < len(m.bands); b++ {
-			worst = math.Max(worst, m.bandRatio(b, wdev[b]))
-		}
-		if forceEarlyMiss > 0 {
-			forceEarlyMiss--
-			worst = math.Max(worst, 1.5)
-		}
-		if !ok || !(worst <= 1) {
-			// Failing after all, at its measured ratio (a design with no
-			// taps at no usable one).
-			delete(m.cache, n)
-			m.ratio[n] = math.Inf(1)
-			if ok && !math.IsNaN(worst) {
-				m.ratio[n] = worst
-			}
-			return nil, errEarlyUnmet
-		}
-		m.cache[n] = res
 	}
 	return m.cache[n], nil
 }

@@ -13,6 +13,7 @@ import (
 	"github.com/urfave/cli/v2"
 
 	"github.com/stepdown-dsp/stepdown/chain"
+	"github.com/stepdown-dsp/stepdown/chain/fixed"
 	"github.com/stepdown-dsp/stepdown/chain/remez"
 	"github.com/stepdown-dsp/stepdown/chain/units"
 	"github.com/stepdown-dsp/stepdown/plots/report"
@@ -231,12 +232,25 @@ func runDesign(c *cli.Context) error {
 	if len(res.Deviations) != len(bands) {
 		return fmt.Errorf("design: engine returned %d band deviations for %d bands", len(res.Deviations), len(bands))
 	}
+	// The engine measures its taps at its own extrema; chain/fixed's
+	// measurement (a dense grid with every peak refined, or rigorous
+	// bounds) is the other view, and the figures are the worse of the two:
+	// on a converged 865-tap multiband design the engine's stopband read
+	// 1.8e-4 (relative) below an independent dense scan.
+	dense, err := fixed.DeviationsContext(ctx, res.Taps, rate, bands, 0)
+	if ctx.Err() != nil {
+		return errors.New("design: interrupted; no filter was designed")
+	}
+	if err != nil {
+		return fmt.Errorf("design: measuring the taps: %v", err)
+	}
 	passDev, stopDev := 0.0, 0.0
 	for i, b := range bands {
+		d := math.Max(res.Deviations[i], dense[i])
 		if b.Gain == 1 {
-			passDev = math.Max(passDev, res.Deviations[i])
+			passDev = math.Max(passDev, d)
 		} else {
-			stopDev = math.Max(stopDev, res.Deviations[i])
+			stopDev = math.Max(stopDev, d)
 		}
 	}
 	out.Taps = len(res.Taps)
