@@ -55,9 +55,16 @@ func (s Settings) Check() error {
 
 // Result is a designed filter.
 type Result struct {
-	Taps       []float64 // impulse response, length n, symmetric
-	Deviations []float64 // per band: max |A(f)-D(f)| measured on the refined response
-	Delta      float64   // the levelled weighted deviation of the final reference
+	Taps []float64 // impulse response, length n, symmetric
+	// Deviations are, per band, max |A(f)-D(f)| of the taps, evaluated at
+	// the design's extrema (reference, last grid pass's candidates, band
+	// edges), not on a dense scan: on 40 seeded lowpass and multiband
+	// designs (up to 866 taps) they read up to 1.7e-4 (relative) below an
+	// independent dense scan with every peak refined. A caller that needs a figure never below the
+	// truth measures the taps itself (chain/fixed's Deviations does; the
+	// design command takes the worse of the two).
+	Deviations []float64
+	Delta      float64 // the levelled weighted deviation of the final reference
 	// Iterations counts the exchange iterations of the final design
 	// (grid and local steps; the shorter seed designs are not counted).
 	Iterations int

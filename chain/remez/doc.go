@@ -11,7 +11,8 @@
 // peak-to-peak, 20 log10((1+dp)/(1-dp)). A filter of n taps is type I when
 // n is odd and type II when n is even; both are symmetric, and a type II
 // filter is zero at rate/2. Result.Deviations are unweighted,
-// max |A(f) - D(f)| per band; Result.Delta is the weighted deviation that
+// max |A(f) - D(f)| per band, read at the design's extrema (a little below
+// a dense scan: see Result); Result.Delta is the weighted deviation that
 // the optimum levels across all bands.
 //
 // # Method
