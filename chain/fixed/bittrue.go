@@ -107,9 +107,10 @@ type BitTrueResult struct {
 	SNRNote  string
 
 	// The alias test: one tone at AliasHz (the worst alias of the quantised
-	// cascade, moved to a whole number of output cycles), measured at
-	// AliasOutHz by projection over the window. Rejections are positive dB
-	// relative to the DC gain.
+	// cascade, or Signal.AliasHz; a fractional chain's, or one too near
+	// 0 Hz or Nyquist at the output, moved to a whole number of output
+	// cycles), measured at AliasOutHz over the window (see the package doc,
+	// Bit-true run). Rejections are positive dB relative to the DC gain.
 	//
 	// For an interpolation cascade it is the image test (see the package
 	// doc, Interpolation): AliasHz is the image g at the output, AliasOutHz
@@ -129,9 +130,11 @@ type BitTrueResult struct {
 	// AliasNoiseDB is the level (positive dB below the DC gain) of the integer
 	// output's residual noise in the measured bin (quantisation noise and the
 	// test signal's own noise); AliasValid says it is at least 20 dB below the
-	// alias, so that it moves the bit-true figure by under 1 dB. While it is
-	// not, the alias run is repeated on a window four times as long (6 dB less
-	// noise in the bin), up to 16 x Samples and 4 Mi input samples.
+	// alias, so that it moves the bit-true figure by under 1 dB. A window
+	// shorter than Samples is kept only with it 40 dB below (under 0.1 dB);
+	// at Samples and beyond, while it is not valid, the alias run is
+	// repeated on a window four times as long (6 dB less noise in the bin),
+	// up to 16 x Samples and 4 Mi input samples.
 	AliasNoiseDB float64
 	AliasValid   bool
 
@@ -152,7 +155,7 @@ type BitTrueResult struct {
 	Shaped string
 
 	Samples      int // output samples measured
-	AliasSamples int // output samples of the alias measurement (up to 16 x Samples, see AliasValid)
+	AliasSamples int // output samples of the alias measurement (from Samples/16 to 16 x Samples, see AliasNoiseDB)
 	InputSamples int // input samples run (the first run)
 	Skip         int // output samples skipped for transients
 }
@@ -1263,21 +1266,40 @@ func aliasRun(ctx context.Context, c Cascade, w *Widths, sig Signal, res *BitTru
 	h0f := fch.Gain(0) * cicScale(w)
 	a := math.Pow(10, sig.AliasLevel/20)
 	g0 := g
-	// A window four times as long lowers the noise in the bin by 6 dB; the
-	// run is retried so while the noise masks the alias and memory allows.
-	for win := nm; ; win *= 4 {
-		g = g0
-		fold := math.Mod(g+shift, fk)
-		mirror := fold > fk/2
-		if mirror {
-			fold = fk - fold
-		}
-		m := math.Max(1, math.Min(float64(win/2-1), math.Round(fold/fk*float64(win))))
-		fout := m * fk / float64(win)
-		if mirror {
-			g += fold - fout
+	fold0 := math.Mod(g0+shift, fk)
+	if fold0 > fk/2 {
+		fold0 = fk - fold0
+	}
+	// An integer chain's tone stays at g itself, measured by a least-squares
+	// fit at its own frequency (fitTone), which needs no whole number of
+	// cycles in the window: so the window can start short (aliasWindow). A
+	// fractional chain's paths must land on the window's bins (see BitTrue),
+	// so its tone moves to whole cycles of the window.
+	exact := !frac.fractional()
+	win := nm
+	if exact {
+		if w0 := aliasWindow(fold0/fk, nm); w0 > 0 {
+			win = w0
 		} else {
-			g += fout - fold
+			exact = false
+		}
+	}
+	for {
+		g = g0
+		fout := fold0
+		if !exact {
+			fold := math.Mod(g+shift, fk)
+			mirror := fold > fk/2
+			if mirror {
+				fold = fk - fold
+			}
+			m := math.Max(1, math.Min(float64(win/2-1), math.Round(fold/fk*float64(win))))
+			fout = m * fk / float64(win)
+			if mirror {
+				g += fold - fout
+			} else {
+				g += fout - fold
+			}
 		}
 		res.AliasHz, res.AliasOutHz, res.AliasSamples = g, fout, win
 		res.AliasResponseDB = posDB(pathGain(q, g, path) / q.Gain(0))
@@ -1303,8 +1325,14 @@ func aliasRun(ctx context.Context, c Cascade, w *Widths, sig Signal, res *BitTru
 		if err != nil {
 			return err
 		}
-		ai, resid := project(yi, fout/fk)
-		af, _ := project(yf, fout/fk)
+		var ai, af, resid float64
+		if exact {
+			ai, resid = fitTone(yi, fout/fk)
+			af, _ = fitTone(yf, fout/fk)
+		} else {
+			ai, resid = project(yi, fout/fk)
+			af, _ = project(yf, fout/fk)
+		}
 		if n, sum := pathsInBin(q, g, fout, fk, win); frac.fractional() && n > 1 {
 			// Two paths of the real tone meet in the alias's bin (at +y
 			// and -y, see package chain): what comes out depends on the
@@ -1324,11 +1352,111 @@ func aliasRun(ctx context.Context, c Cascade, w *Widths, sig Signal, res *BitTru
 		res.AliasFloatRunDB = posDB(af / (a * h0f))
 		res.AliasNoiseDB = posDB(2 * resid / math.Sqrt(float64(win)) / (a * h0q))
 		res.AliasValid = res.AliasNoiseDB >= res.AliasRejectionDB+20
-		if res.AliasValid || res.AliasNoiseDB+12 < res.AliasRejectionDB+20 || need(skip+4*win) > autoInputSamples || win >= 16*nm {
+		margin := res.AliasNoiseDB - res.AliasRejectionDB
+		if win < nm {
+			// A window shorter than the SNR's is kept only when the noise
+			// in the bin lies shortAliasMargin dB below the alias;
+			// otherwise the window it would take (the noise falls 3 dB
+			// each time the window doubles), up to the SNR's.
+			if margin >= shortAliasMargin {
+				break
+			}
+			next := 2 * win
+			for next < nm && margin+10*math.Log10(float64(next)/float64(win)) < shortAliasMargin {
+				next *= 2
+			}
+			win = min(next, nm)
+			continue
+		}
+		// A window four times as long lowers the noise in the bin by 6 dB;
+		// the run is retried so while the noise masks the alias and memory
+		// allows.
+		if res.AliasValid || margin+12 < 20 || need(skip+4*win) > autoInputSamples || win >= 16*nm {
 			break
 		}
+		win *= 4
 	}
 	return nil
+}
+
+// shortAliasMargin is how far (dB) the noise in the alias's bin must lie
+// below the alias for a window shorter than the SNR's to be kept: the
+// noise then moves the figure by under 0.1 dB.
+const shortAliasMargin = 40
+
+// minAliasCycles is the fewest cycles of the alias's output tone, and of
+// its distance to Nyquist, that a window measured by fitTone must hold:
+// fewer, and its sine and cosine are nearly collinear with the constant
+// over the window.
+const minAliasCycles = 8
+
+// aliasWindow is the first window (output samples) of an integer chain's
+// alias run for an output tone at nu cycles a sample, given the SNR's
+// window nm: a sixteenth of it, lengthened to hold minAliasCycles cycles
+// of the tone and of its distance to Nyquist; 0 when even nm does not (the
+// run then moves the tone to whole cycles of nm, as a fractional chain's).
+func aliasWindow(nu float64, nm int) int {
+	room := math.Min(nu, 0.5-nu)
+	if !(room > 0) || room*float64(nm) < minAliasCycles {
+		return 0
+	}
+	w := max(1, nm/16)
+	for w < nm && room*float64(w) < minAliasCycles {
+		w *= 2
+	}
+	return min(w, nm)
+}
+
+// fitTone is the amplitude of the sinusoid at nu cycles a sample in y and
+// the RMS of what is left, by least squares over a constant, cos(2 pi nu n)
+// and sin(2 pi nu n): exact for a sinusoid plus a constant whatever the
+// number of cycles in y, where project needs whole cycles. The caller keeps
+// the tone minAliasCycles cycles from 0 and from Nyquist (aliasWindow), so
+// the three are far from collinear.
+func fitTone(y []float64, nu float64) (amp, resid float64) {
+	var m [3][4]float64 // the normal equations, [A | b]
+	w := 2 * math.Pi * nu
+	for n, v := range y {
+		s, c := math.Sincos(w * float64(n))
+		u := [3]float64{1, c, s}
+		for i := range u {
+			for j := range u {
+				m[i][j] += u[i] * u[j]
+			}
+			m[i][3] += u[i] * v
+		}
+	}
+	// Gaussian elimination with partial pivoting on the 3 x 3 system.
+	for col := 0; col < 3; col++ {
+		p := col
+		for r := col + 1; r < 3; r++ {
+			if math.Abs(m[r][col]) > math.Abs(m[p][col]) {
+				p = r
+			}
+		}
+		m[col], m[p] = m[p], m[col]
+		for r := col + 1; r < 3; r++ {
+			f := m[r][col] / m[col][col]
+			for k := col; k < 4; k++ {
+				m[r][k] -= f * m[col][k]
+			}
+		}
+	}
+	var x [3]float64
+	for r := 2; r >= 0; r-- {
+		v := m[r][3]
+		for k := r + 1; k < 3; k++ {
+			v -= m[r][k] * x[k]
+		}
+		x[r] = v / m[r][r]
+	}
+	var r2 float64
+	for n, v := range y {
+		s, c := math.Sincos(w * float64(n))
+		e := v - x[0] - x[1]*c - x[2]*s
+		r2 += e * e
+	}
+	return math.Hypot(x[1], x[2]), math.Sqrt(r2 / float64(len(y)))
 }
 
 // streamEnc is stream on chains whose input codes come from enc() (a new

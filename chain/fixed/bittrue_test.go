@@ -238,6 +238,23 @@ func TestErrorsNameFieldAndValue(t *testing.T) {
 	}
 }
 
+// randomAliasChain is a random CIC + FIR cascade of the alias tests: 10 MHz
+// in, a CIC of order 2 to 5 decimating by 4 to 16, a Kaiser lowpass by 2,
+// and random words.
+func randomAliasChain(rng *rand.Rand) (Cascade, Words) {
+	n := 2 + rng.IntN(4)
+	r := 4 + rng.IntN(13)
+	f1 := 10e6 / float64(r)
+	fk := f1 / 2
+	fp := fk * (0.05 + 0.15*rng.Float64())
+	taps := kaiserLowpass(31+2*rng.IntN(20), fk/2, f1, 6+4*rng.Float64())
+	c := Cascade{InputRate: 10e6, Passband: fp, Stages: []Stage{
+		{CIC: true, N: n, M: 1 + rng.IntN(2), R: r},
+		{R: 2, Taps: taps, Bands: lowpassBands(fp, fk-fp, f1, 0.05, 1e-3)},
+	}}
+	return c, Words{InputBits: 12 + rng.IntN(6), OutputBits: 16 + rng.IntN(9), CoefBits: 10 + rng.IntN(8)}
+}
+
 func TestBitTrueAliasProperty(t *testing.T) {
 	// Property (issue 6): on random CIC + FIR chains the bit-true alias level
 	// agrees with the quantised frequency response within 1 dB whenever the
@@ -245,17 +262,8 @@ func TestBitTrueAliasProperty(t *testing.T) {
 	rng := rand.New(rand.NewPCG(11, 12))
 	valid := 0
 	for trial := 0; trial < 8; trial++ {
-		n := 2 + rng.IntN(4)
-		r := 4 + rng.IntN(13)
-		f1 := 10e6 / float64(r)
-		fk := f1 / 2
-		fp := fk * (0.05 + 0.15*rng.Float64())
-		taps := kaiserLowpass(31+2*rng.IntN(20), fk/2, f1, 6+4*rng.Float64())
-		c := Cascade{InputRate: 10e6, Passband: fp, Stages: []Stage{
-			{CIC: true, N: n, M: 1 + rng.IntN(2), R: r},
-			{R: 2, Taps: taps, Bands: lowpassBands(fp, fk-fp, f1, 0.05, 1e-3)},
-		}}
-		words := Words{InputBits: 12 + rng.IntN(6), OutputBits: 16 + rng.IntN(9), CoefBits: 10 + rng.IntN(8)}
+		c, words := randomAliasChain(rng)
+		n, r := c.Stages[0].N, c.Stages[0].R
 		w, err := Plan(c, words, Settings{})
 		if err != nil {
 			t.Fatal(err)
