@@ -131,10 +131,10 @@ type BitTrueResult struct {
 	// output's residual noise in the measured bin (quantisation noise and the
 	// test signal's own noise); AliasValid says it is at least 20 dB below the
 	// alias, so that it moves the bit-true figure by under 1 dB. A window
-	// shorter than Samples is kept only with it 40 dB below (under 0.1 dB);
-	// at Samples and beyond, while it is not valid, the alias run is
-	// repeated on a window four times as long (6 dB less noise in the bin),
-	// up to 16 x Samples and 4 Mi input samples.
+	// shorter than Samples is kept only with it 40 dB below (an RMS error
+	// under 0.1 dB); at Samples and beyond, while it is not valid, the alias
+	// run is repeated on a window four times as long (6 dB less noise in the
+	// bin), up to 16 x Samples and 4 Mi input samples.
 	AliasNoiseDB float64
 	AliasValid   bool
 
@@ -1381,7 +1381,7 @@ func aliasRun(ctx context.Context, c Cascade, w *Widths, sig Signal, res *BitTru
 
 // shortAliasMargin is how far (dB) the noise in the alias's bin must lie
 // below the alias for a window shorter than the SNR's to be kept: the
-// noise then moves the figure by under 0.1 dB.
+// noise then moves the figure by under 0.1 dB RMS.
 const shortAliasMargin = 40
 
 // minAliasCycles is the fewest cycles of the alias's output tone, and of
