@@ -205,10 +205,7 @@ func BitTrueContext(ctx context.Context, c Cascade, w *Widths, sig Signal) (BitT
 		}
 		return bitTrueInterp(ctx, c, w, sig)
 	}
-	fp, fa := c.Passband, c.Protected
-	if fa == 0 {
-		fa = fp
-	}
+	fp, fa := c.Passband, c.protectedEdge()
 	// num/den input samples per output sample: the decimation d, or d
 	// Down/Up after a fractional stage.
 	d := c.Ratio()
@@ -1293,8 +1290,7 @@ func aliasRun(ctx context.Context, c Cascade, w *Widths, sig Signal, res *BitTru
 			if mirror {
 				fold = fk - fold
 			}
-			m := math.Max(1, math.Min(float64(win/2-1), math.Round(fold/fk*float64(win))))
-			fout = m * fk / float64(win)
+			fout = float64(wholeCycles(fold, fk, win, c.protectedEdge())) * fk / float64(win)
 			if mirror {
 				g += fold - fout
 			} else {
@@ -1377,6 +1373,20 @@ func aliasRun(ctx context.Context, c Cascade, w *Widths, sig Signal, res *BitTru
 		win *= 4
 	}
 	return nil
+}
+
+// wholeCycles is the whole number of cycles over a window of win samples
+// at rate nearest a tone at f Hz in [0, rate/2], from 1 to win/2 - 1; a
+// tone within the protected band [0, fa] is kept within it (the cycles
+// below f then, where the nearest lie above fa), so that the alias or
+// image measured stays in its band: a worst alias sits at the band's edge,
+// and moved past it, the figure would say nothing about the band.
+func wholeCycles(f, rate float64, win int, fa float64) int {
+	m := int(math.Max(1, math.Min(float64(win/2-1), math.Round(f/rate*float64(win)))))
+	if f <= fa && float64(m)*rate/float64(win) > fa {
+		m = max(1, int(math.Floor(fa/rate*float64(win))))
+	}
+	return m
 }
 
 // shortAliasMargin is how far (dB) the noise in the alias's bin must lie

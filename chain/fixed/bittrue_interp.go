@@ -33,10 +33,7 @@ const minWindowInputs = 64
 // it streams (running sums), so that the run's memory does not grow with
 // the interpolation or the window.
 func bitTrueInterp(ctx context.Context, c Cascade, w *Widths, sig Signal) (BitTrueResult, error) {
-	fp, fa := c.Passband, c.Protected
-	if fa == 0 {
-		fa = fp
-	}
+	fp, fa := c.Passband, c.protectedEdge()
 	// outNum/outDen output samples per input sample: the interpolation
 	// l, times Up/Down after a fractional stage (its own, in signal order).
 	l := c.Ratio()
@@ -256,7 +253,7 @@ func bitTrueInterp(ctx context.Context, c Cascade, w *Widths, sig Signal) (BitTr
 		if mirror {
 			fold = fin - fold
 		}
-		m := int(math.Max(1, math.Min(float64(nm/2-1), math.Round(fold/fin*float64(nm)))))
+		m := wholeCycles(fold, fin, nm, fa)
 		f := float64(m) * fin / float64(nm)
 		g := g0 + (f - fold)
 		if mirror {
@@ -578,7 +575,7 @@ func imageRunFrac(ctx context.Context, c Cascade, w *Widths, sig Signal, res *Bi
 	win0 := nmIn * outNum / outDen
 	for nm := nmIn; ; nm *= 4 {
 		wn := nm * outNum / outDen
-		m := int(math.Max(1, math.Min(float64(nm/2-1), math.Round(y0/fin*float64(nm)))))
+		m := wholeCycles(y0, fin, nm, c.protectedEdge())
 		f := float64(m) * fin / float64(nm)
 		g := float64(sgn)*f + j*spacing
 		gm := int64(sgn*m) + int64(j)*int64(nm/outDen)

@@ -134,6 +134,15 @@ func (c Cascade) ChannelRate() float64 {
 	return c.InputRate * float64(den) / float64(num)
 }
 
+// protectedEdge is the edge fa of the band no alias may reach: Protected,
+// or Passband where Protected is zero.
+func (c Cascade) protectedEdge() float64 {
+	if c.Protected == 0 {
+		return c.Passband
+	}
+	return c.Protected
+}
+
 // Words are the word widths the spec fixes.
 type Words struct {
 	InputBits  int // ADC word; zero means 16

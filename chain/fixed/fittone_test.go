@@ -118,3 +118,30 @@ func TestBitTrueAliasAtWorst(t *testing.T) {
 		t.Errorf("only %d of %d chains measured at the exact frequency", exact, trials)
 	}
 }
+
+// wholeCycles stays within one bin of the tone, and a tone within the
+// protected band stays within it: seeded random tones, windows and edges.
+func TestWholeCyclesKeepsTheBand(t *testing.T) {
+	rng := rand.New(rand.NewPCG(23, 5))
+	for trial := 0; trial < 20000; trial++ {
+		win := 8 + rng.IntN(1<<14)
+		rate := 1e3 + 1e8*rng.Float64()
+		bin := rate / float64(win)
+		fa := rate / 2 * rng.Float64()
+		f := rate / 2 * rng.Float64()
+		if trial%2 == 0 {
+			f = fa * (1 - 1e-3*rng.Float64()) // at the band's edge, the worst alias's usual place
+		}
+		m := wholeCycles(f, rate, win, fa)
+		got := float64(m) * bin
+		if m < 1 || m > win/2-1 {
+			t.Fatalf("trial %d: %d cycles outside [1, %d]", trial, m, win/2-1)
+		}
+		if f >= bin && f <= rate/2-bin && math.Abs(got-f) > bin*(1+1e-9) {
+			t.Errorf("trial %d: tone %.6g Hz moved to %.6g Hz, more than a bin (%.6g Hz)", trial, f, got, bin)
+		}
+		if f <= fa && fa >= bin && got > fa*(1+1e-12) {
+			t.Errorf("trial %d: tone %.6g Hz within the band [0, %.6g Hz] moved out of it, to %.6g Hz", trial, f, fa, got)
+		}
+	}
+}
