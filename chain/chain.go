@@ -7,6 +7,7 @@ import (
 	"strings"
 
 	"github.com/stepdown-dsp/stepdown/chain/remez"
+	"github.com/stepdown-dsp/stepdown/chain/units"
 )
 
 // Kind is a stage's kind. The set of kinds is closed: Kinds lists every one,
@@ -201,12 +202,41 @@ func Lanes(rate, clock float64) int {
 // arithmetic that made it (within 1e-9 of a cycle's worth) counts as that
 // multiple. It is
 // the one rule for Lanes, cost's time-shared multipliers and fixed's
-// native multiplier blocks at the clock; clock must be above 0.
+// native multiplier blocks at the clock; clock must be above 0, and at
+// least the highest rate over MaxLanes (CheckClock), which keeps every
+// count made from it far inside an int. A quotient past 2^53 (a caller
+// that skipped the check) counts as 2^53 rather than wrapping negative.
 func PerCycle(rate, clock float64) int {
 	if !(rate > 0) {
 		return 0
 	}
-	return int(math.Ceil(rate/clock - 1e-9))
+	q := math.Ceil(rate/clock - 1e-9)
+	if !(q < 1<<53) {
+		return 1 << 53
+	}
+	return int(q)
+}
+
+// MaxLanes is the most samples a stage may take in each cycle of the
+// fabric's clock (Lanes): far beyond any fabric, and small enough that the
+// multipliers, adders and registers counted from it stay exact integers.
+const MaxLanes = 1 << 16
+
+// CheckClock refuses a clock of clock Hz (zero: none) under which a stage
+// running at rate Hz, a chain's highest, would take more than MaxLanes
+// samples a cycle. The error says the least clock that would do.
+func CheckClock(rate, clock float64) error {
+	if clock == 0 || !(rate > 0) {
+		return nil
+	}
+	if !(clock > 0) || math.IsInf(clock, 0) {
+		return fmt.Errorf("%s: must be a finite rate above 0 Hz", units.FormatFrequency(clock))
+	}
+	if PerCycle(rate, clock) > MaxLanes {
+		least := rate / MaxLanes
+		return fmt.Errorf("a stage at %s would take more than %d samples a clock cycle; the clock must be at least %s", units.FormatFrequency(rate), MaxLanes, units.FormatFrequency(least))
+	}
+	return nil
 }
 
 // SignalRates returns the rate of the samples entering and leaving

@@ -23,7 +23,7 @@ func Check(ctx context.Context, spec chain.Spec, plan []chain.StagePlan, s Setti
 		return Candidate{}, "", err
 	}
 	ns = ns.DecimationView() // plan is in decimation order (see Plan)
-	if err := s.check(); err != nil {
+	if err := s.checkFor(ns); err != nil {
 		return Candidate{}, "", err
 	}
 	// A fractional chain is designed and measured in floating point, then

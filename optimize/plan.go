@@ -71,7 +71,7 @@ func Plan(ctx context.Context, spec chain.Spec, s Settings) (*Result, error) {
 	if err != nil {
 		return nil, err
 	}
-	if err := s.check(); err != nil {
+	if err := s.checkFor(ns); err != nil {
 		return nil, err
 	}
 	ctx, cancel := withMeasureReserve(ctx)
@@ -96,6 +96,18 @@ func Plan(ctx context.Context, spec chain.Spec, s Settings) (*Result, error) {
 		s.Chain.Memo = chain.NewStageMemo()
 	}
 	return search(ctx, p, &s, newEstimator(p, s.Tolerance), realDesigner{ctx: ctx, spec: ns, s: &s})
+}
+
+// checkFor is check, and the clock against spec's highest rate
+// (chain.CheckClock).
+func (s *Settings) checkFor(spec chain.Spec) error {
+	if err := s.check(); err != nil {
+		return err
+	}
+	if err := chain.CheckClock(math.Max(spec.InputRate, spec.OutputRate), s.Cost.Clock); err != nil {
+		return fmt.Errorf("optimize: Settings.Cost.Clock = %g Hz: %v", s.Cost.Clock, err)
+	}
+	return nil
 }
 
 func (s *Settings) check() error {

@@ -13,6 +13,7 @@ import (
 
 	"github.com/stepdown-dsp/stepdown/chain"
 	"github.com/stepdown-dsp/stepdown/chain/remez"
+	"github.com/stepdown-dsp/stepdown/cost"
 	"github.com/stepdown-dsp/stepdown/optimize"
 )
 
@@ -276,6 +277,16 @@ func TestSettingsErrors(t *testing.T) {
 	}
 	if _, err := optimize.Plan(context.Background(), chain.Spec{}, optimize.Settings{}); err == nil {
 		t.Error("empty spec accepted")
+	}
+	// A clock under which a stage would take more than chain.MaxLanes
+	// samples a cycle is refused before its counts overflow (a review saw
+	// -9223372036854775808 multipliers at 1e-30 Hz).
+	tiny := optimize.Settings{Cost: cost.Settings{Clock: 1e-30}}
+	if _, err := optimize.Plan(context.Background(), rx(), tiny); err == nil || !strings.Contains(err.Error(), "Settings.Cost.Clock") {
+		t.Errorf("Cost.Clock 1e-30 Hz: Plan err = %v", err)
+	}
+	if _, _, err := optimize.Check(context.Background(), rx(), []chain.StagePlan{{Factor: 64, Kind: chain.FIR}}, tiny); err == nil || !strings.Contains(err.Error(), "Settings.Cost.Clock") {
+		t.Errorf("Cost.Clock 1e-30 Hz: Check err = %v", err)
 	}
 	// The chain settings handed to every design are checked before the
 	// search, not read as "no chain met the spec" after it (a review

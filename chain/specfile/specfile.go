@@ -1067,6 +1067,10 @@ func (p *parser) build() (*Spec, error) {
 			raw, _ := p.lookup("hardware.clock")
 			return nil, p.errAt("hardware.clock", raw, "must be above 0 Hz")
 		}
+		if err := chain.CheckClock(math.Max(cs.InputRate, cs.OutputRate), clk); err != nil {
+			raw, _ := p.lookup("hardware.clock")
+			return nil, p.errAt("hardware.clock", raw, "%v", err)
+		}
 		out.Clock = clk
 	}
 	if v, ok := p.lookup("hardware.multiplier"); ok {

@@ -198,6 +198,11 @@ func TestParseErrors(t *testing.T) {
 		{"multiplier number", "[hardware]\nmultiplier = 18", []string{"hardware.multiplier", "as text", "not a whole number"}},
 		{"words scalar", "words = 3", []string{"words", "table"}},
 		{"clock", "[hardware]\nclock = \"0 Hz\"", []string{"hardware.clock", "above 0"}},
+		// 245.76 MHz / 65536 = 3.75 kHz (arithmetic): below it a stage at
+		// the input rate would take more than chain.MaxLanes samples a
+		// cycle, and the counts made from the lanes would overflow.
+		{"clock tiny", "[hardware]\nclock = \"1e-30 Hz\"", []string{"hardware.clock", `"1e-30 Hz"`, "more than 65536 samples a clock cycle", "at least 3.75 kHz"}},
+		{"clock just low", "[hardware]\nclock = \"3.7499 kHz\"", []string{"hardware.clock", "at least 3.75 kHz"}},
 		{"symmetry", "[cost]\nsymmetry = 1", []string{"cost.symmetry", "true or false"}},
 		{"stages low", "[search]\nmax_stages = 0", []string{"search.max_stages", "[1, 12]"}},
 		{"stages high", "[search]\nmax_stages = 13", []string{"search.max_stages", "[1, 12]"}},
