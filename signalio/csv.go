@@ -3,6 +3,7 @@ package signalio
 import (
 	"bufio"
 	"bytes"
+	"context"
 	"errors"
 	"fmt"
 	"io"
@@ -25,6 +26,18 @@ const maxLine = 4096
 // opt.RateHz. A UTF-8 byte order mark at the start is skipped, and lines
 // may end in CRLF.
 func ReadCSV(name string, r io.Reader, opt Options) (*Signal, Format, error) {
+	return ReadCSVContext(context.Background(), name, r, opt)
+}
+
+// csvCheckLines is how many lines ReadCSVContext reads between looks at
+// its context: a few milliseconds' worth.
+const csvCheckLines = 1 << 12
+
+// ReadCSVContext is ReadCSV stopped by ctx, which it looks at every
+// csvCheckLines lines, comment and blank lines included (a file of
+// comments alone is read as far as ctx allows); once ctx is done it returns
+// an error wrapping ctx.Err().
+func ReadCSVContext(ctx context.Context, name string, r io.Reader, opt Options) (*Signal, Format, error) {
 	name = display(name)
 	maxF, err := opt.maxFrames(name)
 	if err != nil {
@@ -57,6 +70,11 @@ func ReadCSV(name string, r io.Reader, opt Options) (*Signal, Format, error) {
 	}
 	for sc.Scan() {
 		line++
+		if line%csvCheckLines == 0 {
+			if err := ctx.Err(); err != nil {
+				return nil, Format{}, stopped(name, err)
+			}
+		}
 		b := sc.Bytes()
 		if line == 1 {
 			b = bytes.TrimPrefix(b, []byte("\xEF\xBB\xBF"))

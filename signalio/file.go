@@ -2,6 +2,7 @@ package signalio
 
 import (
 	"bytes"
+	"context"
 	"fmt"
 	"io"
 	"os"
@@ -13,6 +14,14 @@ import (
 // is refused without reading it; WAV and raw files are read in blocks,
 // CSV a line at a time.
 func ReadFile(path string, opt Options) (*Signal, Format, error) {
+	return ReadFileContext(context.Background(), path, opt)
+}
+
+// ReadFileContext is ReadFile stopped by ctx: a CSV file's reading looks
+// at it every few thousand lines (comment lines count), a WAV or raw
+// file's before its samples; once ctx is done it returns an error wrapping
+// ctx.Err(). A nil ctx is not allowed.
+func ReadFileContext(ctx context.Context, path string, opt Options) (*Signal, Format, error) {
 	f, err := Choose(path, opt.Format)
 	if err != nil {
 		return nil, Format{}, err
@@ -35,19 +44,27 @@ func ReadFile(path string, opt Options) (*Signal, Format, error) {
 	if !st.Mode().IsRegular() {
 		return nil, Format{}, fmt.Errorf("%s: not a regular file", path)
 	}
-	return Read(path, fh, st.Size(), opt)
+	return ReadContext(ctx, path, fh, st.Size(), opt)
 }
 
 // Read reads a signal in the format opt.Format.Kind, which must be
 // stated, from r, which holds size bytes; name is used in messages.
 func Read(name string, r io.ReaderAt, size int64, opt Options) (*Signal, Format, error) {
+	return ReadContext(context.Background(), name, r, size, opt)
+}
+
+// ReadContext is Read stopped by ctx (see ReadFileContext).
+func ReadContext(ctx context.Context, name string, r io.ReaderAt, size int64, opt Options) (*Signal, Format, error) {
+	if err := ctx.Err(); err != nil {
+		return nil, Format{}, stopped(name, err)
+	}
 	switch opt.Format.Kind {
 	case WAV:
 		return ReadWAV(name, r, size, opt)
 	case Raw:
 		return ReadRaw(name, r, size, opt)
 	case CSV:
-		return ReadCSV(name, io.NewSectionReader(r, 0, size), opt)
+		return ReadCSVContext(ctx, name, io.NewSectionReader(r, 0, size), opt)
 	}
 	return nil, Format{}, fmt.Errorf("%s: format %s: state wav, raw or csv", display(name), opt.Format.Kind)
 }
@@ -101,4 +118,9 @@ func Marshal(s *Signal, f Format) ([]byte, error) {
 		return nil, err
 	}
 	return buf.Bytes(), nil
+}
+
+// stopped is the error of a read stopped by its context.
+func stopped(name string, err error) error {
+	return fmt.Errorf("%s: reading stopped: %w", display(name), err)
 }

@@ -190,7 +190,10 @@ func runSimulate(c *cli.Context) error {
 			return err
 		}
 	}
-	sig, format, err := signalio.ReadFile(input, opt)
+	sig, format, err := signalio.ReadFileContext(c.Context, input, opt)
+	if c.Context.Err() != nil {
+		return fmt.Errorf("interrupted; %s", untouched(j.out))
+	}
 	if err != nil {
 		if opt.Format.Kind == signalio.CSV && stated.Bits == 0 && opt.Format.Bits == 1 && strings.Contains(err.Error(), "outside 1-bit") {
 			// A single-bit modulator's codes are -1 and 0 as the chain
