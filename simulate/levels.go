@@ -5,6 +5,7 @@ import (
 	"fmt"
 	"math"
 
+	"github.com/stepdown-dsp/stepdown/chain/units"
 	"github.com/stepdown-dsp/stepdown/signalio"
 )
 
@@ -87,7 +88,7 @@ func (r *Result) SpectraContext(ctx context.Context) (in, out *signalio.Spectrum
 	inSig := &signalio.Signal{RateHz: r.InputRateHz, Bits: r.InputBits, Samples: r.In}
 	outSig := &signalio.Signal{RateHz: r.OutputRateHz, Bits: r.OutputBits, Samples: r.Out}
 	if n := outSig.Frames(); n < 16 {
-		return nil, nil, fmt.Errorf("simulate: the output has %d samples; a spectrum needs at least 16 (give a longer recording)", n)
+		return nil, nil, fmt.Errorf("simulate: the output has %s; a spectrum needs at least 16 (give a longer recording)", units.Count(n, "sample", "samples"))
 	}
 	if in, err = signalio.WelchContext(ctx, inSig, signalio.WelchOptions{Segment: seg(inSig.Frames())}); err != nil {
 		return nil, nil, err

@@ -350,7 +350,11 @@ func roundingFailure(ctx context.Context, se *remez.SearchError, f designFlags) 
 	} else {
 		// Below the rounding of the shortest filter: no length can level
 		// it, so the trials start where the deviation is ten times that.
-		msg = fmt.Sprintf("%s %g dB: %s of %.2g is below %.0e, the least double precision can level in a filter of any length", flag, value, unit, dev, remez.RoundingLevel(3))
+		of := fmt.Sprintf("of %.2g", dev)
+		if dev == 0 {
+			of = "so small that it rounds to 0" // 1e-300 dB
+		}
+		msg = fmt.Sprintf("%s %g dB: %s %s is below %.0e, the least double precision can level in a filter of any length", flag, value, unit, of, remez.RoundingLevel(3))
 		start = math.Pow(10, math.Ceil(math.Log10(chain.DevToRipple(10*remez.RoundingLevel(3)))))
 	}
 	first := 1 // trials: start relaxed by one step, two, ...

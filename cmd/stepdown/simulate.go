@@ -148,7 +148,7 @@ func runSimulate(c *cli.Context) error {
 	rate := cs.InputRate
 	if r := c.String("rate"); r != "" {
 		if rate, err = units.ParseRate(r); err != nil {
-			return usagef("--rate %q: %s", clip(r), err)
+			return usagef("--rate %v", err) // the error quotes the value, cut
 		}
 		if !(rate > 0) || math.IsInf(rate, 0) {
 			return usagef("--rate %q: must be a rate above 0 Hz", clip(r))
