@@ -25,8 +25,9 @@ type Signal struct {
 	// the input word's largest code (half that code when the word is too
 	// narrow for a tone of two LSBs so; the SNR is then marked, see
 	// BitTrueResult.SNRValid). An interpolation cascade's default tones are
-	// lowered further by the largest DC gain from its input to a stage's
-	// output, when that is above 1 (see the package doc, Interpolation).
+	// lowered further by the largest gain from its input to a stage's output
+	// at the tones' frequencies, images included, when that is above 1 (see
+	// the package doc, Interpolation).
 	// Each frequency is moved to the nearest whole number of cycles in the
 	// measurement window at the output rate (coherent sampling); in an
 	// interpolation cascade to the nearest number that shares no factor

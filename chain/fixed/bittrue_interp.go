@@ -55,13 +55,25 @@ func bitTrueInterp(ctx context.Context, c Cascade, w *Widths, sig Signal) (BitTr
 		}
 		nmIn = max(minWindowInputs, (sig.Samples+l-1)/l)
 	}
-	// The default levels leave room for the largest DC gain from the input
-	// to any stage's output (above 1 when a UnityGain correction comes
-	// before a stage that loses gain, such as a CIC), so that no stage
-	// saturates on them.
+	// The default levels leave room for the largest gain from the input to
+	// any stage's output (above 1 when a UnityGain correction comes before a
+	// stage that loses gain, such as a CIC), so that no stage saturates on
+	// them: at the tones' own frequencies, images included (prefixGainAt),
+	// not only at 0 Hz, since a compensator before its CIC lifts them by up
+	// to the CIC's droop.
+	toneFs := []float64{0.4 * fp} // the default tone's (Signal.fill)
+	if sig.Tones != nil {
+		toneFs = toneFs[:0]
+		for _, t := range sig.Tones {
+			toneFs = append(toneFs, t.Freq)
+		}
+	}
 	gmax := 1.0
 	for i := range w.Stages {
 		gmax = math.Max(gmax, prefixGain(w, i))
+		for _, f := range toneFs {
+			gmax = math.Max(gmax, prefixGainAt(c, w, i, f))
+		}
 	}
 	sd, err := sig.fill(w.InputBits, fp, fin, high, 20*math.Log10(gmax))
 	if err != nil {
@@ -214,7 +226,7 @@ func bitTrueInterp(ctx context.Context, c Cascade, w *Widths, sig Signal) (BitTr
 	// output's, which OutputClipped counts) spoils the SNR the same way.
 	for i, n := range cs.saturations()[:len(c.Stages)-1] {
 		if n*1000 > cs.outs[i] {
-			note := fmt.Sprintf("stage %d saturated in %d of its %d output samples (a DC gain of %.4g from the input to its output lifts the test signal past full scale)", i+1, n, cs.outs[i], prefixGain(w, i))
+			note := fmt.Sprintf("stage %d saturated in %d of its %d output samples (the gain from the input to its output, %.4g at 0 Hz, lifts the test signal past full scale)", i+1, n, cs.outs[i], prefixGain(w, i))
 			if res.SNRNote != "" {
 				note = res.SNRNote + "; " + note
 			}

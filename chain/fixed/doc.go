@@ -204,6 +204,24 @@
 // zero and marked (bittrue_error set, bittrue_snr_valid and
 // bittrue_alias_valid false, bittrue_snr_note saying why).
 //
+// # Headroom
+//
+// Evaluate adds a "headroom:" point to each stage (StageWidths.Points,
+// report.json's rounding_points) whose output an input tone of full scale
+// in the passband can drive past its largest code: where in the passband,
+// by how much, and how far below full scale the input must stay there. The
+// figure is the stages' gain at 0 Hz up to that output times their
+// responses on the rounded taps at the tone, summed in an interpolation
+// chain over the tone and each image the stages up to it leave (the tone
+// and its images can peak together), maximised over the passband on a grid
+// of eight points to each ripple of those stages, refined by golden
+// section. The data path saturates there as planned; the point says when
+// it does. In an interpolation chain the compensator comes before the CIC
+// whose droop it corrects and lifts the band's edge by up to that droop
+// (16.9 dB for an order-7 CIC with M = 2 at 2.5 MS/s to a 1 MHz edge); with
+// UnityGain the passband ripple lifts the last stage's output a little
+// past full scale at the ripple's peaks.
+//
 // # Interpolation
 //
 // An interpolation chain (chain.Chain with Direction chain.Interpolate,
@@ -269,8 +287,13 @@
 // the interpolation or the window. The SNR leaves out the error's mean and
 // its component at each tone and at every image of it (the coefficients'
 // passband and image gain errors, judged on the quantised response). The
-// default tones are also lowered by the largest DC gain from the input to
-// a stage's output when it is above 1, and a stage before the last that
+// default tones are also lowered by the largest gain from the input to a
+// stage's output at the tone's frequency when it is above 1 (prefixGainAt:
+// the stages' gains at 0 Hz times their shape at the tone, summed over the
+// tone and every image the stages up to that output leave in it, since a
+// compensator before its CIC lifts the passband by up to the CIC's droop
+// and a stage that leaves images to the CIC after it lets them add to the
+// tone's peak), and a stage before the last that
 // saturates more than one output in a thousand makes the SNR invalid
 // (SNRNote names it). The alias test becomes an image test: g is the
 // quantised cascade's worst image (chain.Analyze's WorstAliasHz, at the

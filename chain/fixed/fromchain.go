@@ -327,6 +327,7 @@ func EvaluateContext(ctx context.Context, spec chain.Spec, c *chain.Chain, s Set
 	if err != nil {
 		return nil, err
 	}
+	headroomPoints(cas, ws)
 	res := &Result{Widths: ws, Quantised: qa, UnityGainAsked: s.UnityGain}
 	if sig.AliasHz == 0 {
 		sig.AliasHz = qa.WorstAliasHz
