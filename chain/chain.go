@@ -203,9 +203,10 @@ func Lanes(rate, clock float64) int {
 // multiple. It is
 // the one rule for Lanes, cost's time-shared multipliers and fixed's
 // native multiplier blocks at the clock; clock must be above 0, and at
-// least the highest rate over MaxLanes (CheckClock), which keeps every
-// count made from it far inside an int. A quotient past 2^53 (a caller
-// that skipped the check) counts as 2^53 rather than wrapping negative.
+// least the highest rate over MaxLanes (CheckClock, which the spec file,
+// optimize, cost.Price and fixed.Plan apply), which keeps every count made
+// from it far inside an int. A quotient past 2^53 (a caller that skipped
+// the check) counts as 2^53 rather than wrapping negative.
 func PerCycle(rate, clock float64) int {
 	if !(rate > 0) {
 		return 0
@@ -230,7 +231,7 @@ func CheckClock(rate, clock float64) error {
 		return nil
 	}
 	if !(clock > 0) || math.IsInf(clock, 0) {
-		return fmt.Errorf("%s: must be a finite rate above 0 Hz", units.FormatFrequency(clock))
+		return errors.New("must be a finite rate above 0 Hz")
 	}
 	if PerCycle(rate, clock) > MaxLanes {
 		least := rate / MaxLanes

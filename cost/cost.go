@@ -5,6 +5,7 @@ import (
 	"errors"
 	"fmt"
 	"math"
+	"slices"
 
 	"github.com/stepdown-dsp/stepdown/chain"
 )
@@ -119,6 +120,9 @@ func Price(spec chain.Spec, c *chain.Chain, s Settings) (Figures, error) {
 	}
 	if !(s.Clock >= 0) || math.IsInf(s.Clock, 0) {
 		return Figures{}, fmt.Errorf("cost: Settings.Clock = %g: must be a finite clock above 0 Hz, or 0 for none", s.Clock)
+	}
+	if err := chain.CheckClock(slices.Max(c.Rates()), s.Clock); err != nil {
+		return Figures{}, fmt.Errorf("cost: Settings.Clock = %g Hz: %v", s.Clock, err)
 	}
 	f := Figures{Designed: c.Designed, Multiplierless: s.Multiplierless, Stages: make([]StageFigures, len(c.Stages))}
 	rates := c.Rates()

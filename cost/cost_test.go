@@ -138,6 +138,12 @@ func TestEvaluateErrors(t *testing.T) {
 	if _, err := Evaluate(sp, nil, Settings{}); err == nil {
 		t.Error("nil chain accepted")
 	}
+	// A clock under which a stage would take more than chain.MaxLanes
+	// samples a cycle is refused: its lanes times registers and adders
+	// wrapped past an int (a review measured 1.4e18 memory bits at 1e-30 Hz).
+	if _, err := Price(sp, c, Settings{Clock: 1e-30}); err == nil || !strings.Contains(err.Error(), "Settings.Clock") || !strings.Contains(err.Error(), "at least") {
+		t.Errorf("clock 1e-30 Hz: err = %v", err)
+	}
 	bad := sp
 	bad.Passband = 0
 	if _, err := Evaluate(bad, c, Settings{}); err == nil {

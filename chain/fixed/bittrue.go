@@ -1232,7 +1232,9 @@ func cicTaps(n, rm int, scale float64) []float64 {
 
 // aliasRun is the bit-true run's alias test (run 2): a tone at the worst
 // alias of the quantised cascade (or sig.AliasHz), measured after the
-// chain by projection, its window lengthened while the noise masks it. It
+// chain by a least-squares fit at its own frequency (an integer chain's)
+// or a projection over whole cycles, its window lengthened while the
+// noise masks it (see the package doc, Bit-true run). It
 // fills res's alias fields. enc, when not nil, makes the input codes of
 // each run (a Shaper's fresh encoder) in place of the ADC.
 func aliasRun(ctx context.Context, c Cascade, w *Widths, sig Signal, res *BitTrueResult, rng *rand.Rand, noise float64, nm, skip int, need func(nout int) int, fk float64, enc func() (Encoder, error)) error {
@@ -1276,7 +1278,13 @@ func aliasRun(ctx context.Context, c Cascade, w *Widths, sig Signal, res *BitTru
 	exact := !frac.fractional()
 	win := nm
 	if exact {
-		if w0 := aliasWindow(fold0/fk, nm); w0 > 0 {
+		// The longest window the run may take: up to 16 x Samples and
+		// the input bound, as the retries below.
+		maxWin := nm
+		for maxWin < 16*nm && need(skip+2*maxWin) <= autoInputSamples {
+			maxWin *= 2
+		}
+		if w0 := aliasWindow(fold0/fk, nm, maxWin, skip); w0 > 0 {
 			win = w0
 		} else {
 			exact = false
@@ -1348,7 +1356,7 @@ func aliasRun(ctx context.Context, c Cascade, w *Widths, sig Signal, res *BitTru
 		res.AliasRejectionDB = posDB(ai / (a * h0q))
 		res.AliasFloatRunDB = posDB(af / (a * h0f))
 		res.AliasNoiseDB = posDB(2 * resid / math.Sqrt(float64(win)) / (a * h0q))
-		res.AliasValid = res.AliasNoiseDB >= res.AliasRejectionDB+20
+		res.AliasValid = res.AliasNoiseDB >= res.AliasRejectionDB+20 && !leftBand(fold0, fout, c.protectedEdge())
 		margin := res.AliasNoiseDB - res.AliasRejectionDB
 		if win < nm {
 			// A window shorter than the SNR's is kept only when the noise
@@ -1403,19 +1411,35 @@ const minAliasCycles = 8
 
 // aliasWindow is the first window (output samples) of an integer chain's
 // alias run for an output tone at nu cycles a sample, given the SNR's
-// window nm: a sixteenth of it, lengthened to hold minAliasCycles cycles
-// of the tone and of its distance to Nyquist; 0 when even nm does not (the
-// run then moves the tone to whole cycles of nm, as a fractional chain's).
-func aliasWindow(nu float64, nm int) int {
+// window nm, the longest the run may take, maxWin, and the transient skip
+// (which every run pays before its window): a sixteenth of nm, no shorter
+// than the transient while below nm (a shorter one saves little and may
+// be run again), doubled until it holds minAliasCycles cycles of the tone
+// and of its distance to Nyquist; 0 when even maxWin does not (the run
+// then moves the tone to whole cycles of nm, as a fractional chain's).
+func aliasWindow(nu float64, nm, maxWin, skip int) int {
 	room := math.Min(nu, 0.5-nu)
-	if !(room > 0) || room*float64(nm) < minAliasCycles {
+	if !(room > 0) {
 		return 0
 	}
 	w := max(1, nm/16)
-	for w < nm && room*float64(w) < minAliasCycles {
+	for w < nm && w < skip {
 		w *= 2
 	}
-	return min(w, nm)
+	for room*float64(w) < minAliasCycles {
+		if w >= maxWin {
+			return 0
+		}
+		w *= 2
+	}
+	return min(w, maxWin)
+}
+
+// leftBand reports whether a tone at f Hz within the protected band
+// [0, fa] was moved, to moved Hz, past its edge: its figure then says
+// nothing about the band, and the run does not count as valid.
+func leftBand(f, moved, fa float64) bool {
+	return f <= fa && moved > fa*(1+1e-12)
 }
 
 // fitTone is the amplitude of the sinusoid at nu cycles a sample in y and

@@ -300,7 +300,7 @@ func bitTrueInterp(ctx context.Context, c Cascade, w *Widths, sig Signal) (BitTr
 		mean := im.y1 / fw
 		resid := math.Sqrt(math.Max(0, im.y2-fw*mean*mean-im.fam.energy()) / fw)
 		res.AliasNoiseDB = posDB(2 * resid / math.Sqrt(fw) / aif)
-		res.AliasValid = res.AliasNoiseDB >= res.AliasRejectionDB+20
+		res.AliasValid = res.AliasNoiseDB >= res.AliasRejectionDB+20 && !leftBand(fold, f, fa)
 		if res.AliasValid || res.AliasNoiseDB+12 < res.AliasRejectionDB+20 || skip+4*wn > autoOutputSamples || wn >= 16*win {
 			break
 		}
@@ -657,7 +657,7 @@ func imageRunFrac(ctx context.Context, c Cascade, w *Widths, sig Signal, res *Bi
 		lsb := math.Ldexp(1, 1-w.InputBits)
 		in := math.Sqrt(noise*noise + lsb*lsb/12)
 		res.AliasNoiseDB = math.Min(res.AliasNoiseDB, posDB(2*in/math.Sqrt(float64(nm))/amp))
-		res.AliasValid = res.AliasNoiseDB >= res.AliasRejectionDB+20
+		res.AliasValid = res.AliasNoiseDB >= res.AliasRejectionDB+20 && !leftBand(y0, f, c.protectedEdge())
 		if res.AliasValid || res.AliasNoiseDB+12 < res.AliasRejectionDB+20 || skip+4*wn > autoOutputSamples || wn >= 16*win0 {
 			break
 		}

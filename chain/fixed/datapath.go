@@ -7,6 +7,7 @@ import (
 	"math"
 	"math/big"
 	"math/bits"
+	"slices"
 
 	"github.com/stepdown-dsp/stepdown/chain"
 	"github.com/stepdown-dsp/stepdown/chain/remez"
@@ -352,6 +353,9 @@ func Plan(c Cascade, w Words, s Settings) (*Widths, error) {
 	}
 	if len(c.Stages) == 0 {
 		return nil, fmt.Errorf("fixed: cascade has no stages")
+	}
+	if err := chain.CheckClock(slices.Max(c.Rates()), s.Clock); err != nil {
+		return nil, fmt.Errorf("fixed: settings Clock = %g Hz: %v", s.Clock, err)
 	}
 	if s.MuBits < 0 || s.MuBits > 32 {
 		return nil, fmt.Errorf("fixed: settings MuBits = %d: must be 0 (the coefficient width) or lie in [1, 32] bits", s.MuBits)

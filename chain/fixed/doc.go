@@ -133,16 +133,21 @@
 // the band's edge (at D = 4096 with 512 output samples at 30 kHz: to
 // 19980.47 Hz, beside a band from 20 kHz, where the chain rejects 1.8 dB
 // less, a figure below the spec's target that says nothing about the
-// band). And the window can start short: at
-// a sixteenth of the SNR's window (with at least eight cycles of the tone
-// and of its distance to Nyquist), kept when the noise in the alias's bin
-// is 40 dB below the alias (an RMS error of the figure under 0.1 dB),
-// otherwise lengthened to the window that noise says it takes (3 dB a
-// doubling), up to the SNR's, and from there as before: four times longer
-// while the noise masks the alias, up to 16 times the SNR's window and
-// 2^22 input samples. A D = 4096 plan spends an eighth less time so. A tone
-// too near 0 Hz or Nyquist for eight cycles in the SNR's window moves to
-// whole cycles of that window as before.
+// band). And the window can start short: at a sixteenth of the SNR's
+// window, no shorter than the transient, doubled until it holds eight
+// cycles of the tone and of its distance to Nyquist; kept when the noise
+// in the alias's bin is 40 dB below the alias (an RMS error of the figure
+// under 0.1 dB), otherwise lengthened to the window that noise says it
+// takes (3 dB a doubling), up to the SNR's; from the SNR's window on, four
+// times longer while the noise masks the alias, up to 16 times the SNR's
+// window and 2^22 input samples (the whole-cycle runs' rule too). On the
+// D = 4096 spec of testdata/optimize/speed_compare.sh a plan takes 0.87 of
+// the time the SNR-length alias windows took. A tone too near 0 Hz or
+// Nyquist for eight cycles in the longest window moves to whole cycles of
+// the SNR's window instead (wholeCycles, which keeps a tone inside the
+// protected band when a bin fits in it); a tone so moved out of the band,
+// which a band narrower than a bin leaves no other way, makes the run
+// invalid (AliasValid false): its figure says nothing about the band.
 //
 // The run streams: the test signal is generated and both chains run a
 // block of 2^15 input samples at a time, keeping only the filters' state
@@ -403,7 +408,7 @@
 // window are exact with no taper. The alias test tone is at the
 // quantised chain's worst alias on its path (chain.Analysis.WorstPath,
 // or the path of Signal.AliasHz with the largest gain into [0, fa],
-// chain.PathGains), moved so that its output lands on a bin of the SNR's
+// chain.PathGains), moved so that its output lands on a bin of the
 // window (as above, its projection needs whole cycles); the other
 // paths of the tone are removed from the window (least squares, each on
 // its own bin) before the noise in the alias's bin is measured. When two

@@ -61,10 +61,10 @@ func TestFitToneAgainstLeastSquares(t *testing.T) {
 }
 
 // The alias run of an integer chain puts its tone at the quantised
-// cascade's worst alias itself, inside its alias band (before, it moved to
-// whole cycles of the window, which could take it out of the band to where
-// the chain rejects less), and the bit-true figure agrees with the
-// response there. Seeded random CIC + FIR chains.
+// cascade's worst alias itself, inside its alias band (a move to whole
+// cycles of the window can take it out of the band, to where the chain
+// rejects less), and the bit-true figure agrees with the response there.
+// Seeded random CIC + FIR chains.
 func TestBitTrueAliasAtWorst(t *testing.T) {
 	rng := rand.New(rand.NewPCG(17, 3))
 	exact := 0
@@ -87,7 +87,7 @@ func TestBitTrueAliasAtWorst(t *testing.T) {
 		}
 		fold := math.Mod(an.WorstAliasHz, fk)
 		fold = math.Min(fold, fk-fold)
-		if aliasWindow(fold/fk, res.Samples) == 0 {
+		if aliasWindow(fold/fk, res.Samples, 16*res.Samples, res.Skip) == 0 {
 			continue
 		}
 		exact++
@@ -143,5 +143,34 @@ func TestWholeCyclesKeepsTheBand(t *testing.T) {
 		if f <= fa && fa >= bin && got > fa*(1+1e-12) {
 			t.Errorf("trial %d: tone %.6g Hz within the band [0, %.6g Hz] moved out of it, to %.6g Hz", trial, f, fa, got)
 		}
+	}
+}
+
+// A protected band narrower than a bin of the SNR's window: the alias run
+// either keeps its tone within the band (a longer window, or the fit at
+// the tone's own frequency) or does not call its figure valid. 10 MHz in,
+// a CIC by 8 and a FIR by 2, 625 kHz out, bands of 100 Hz to 2 kHz (a bin
+// of 2048 output samples is 305 Hz).
+func TestBitTrueAliasNarrowBand(t *testing.T) {
+	f1 := 10e6 / 8
+	fk := f1 / 2
+	for _, fp := range []float64{100, 250, 2000} {
+		taps := kaiserLowpass(61, fk/2, f1, 8)
+		c := Cascade{InputRate: 10e6, Passband: fp, Stages: []Stage{
+			{CIC: true, N: 4, M: 1, R: 8},
+			{R: 2, Taps: taps, Bands: lowpassBands(fp, fk-fp, f1, 0.05, 1e-3)},
+		}}
+		w, err := Plan(c, Words{InputBits: 14, OutputBits: 20, CoefBits: 16}, Settings{})
+		if err != nil {
+			t.Fatal(err)
+		}
+		res, err := BitTrue(c, w, Signal{})
+		if err != nil {
+			t.Fatal(err)
+		}
+		if res.AliasOutHz > fp*(1+1e-12) && res.AliasValid {
+			t.Errorf("band %g Hz: the alias tone lands at %.2f Hz, outside it, and the run is called valid", fp, res.AliasOutHz)
+		}
+		t.Logf("band %g Hz: tone at %.2f Hz lands at %.2f Hz, %d samples, bit-true %.2f dB, response %.2f dB, worst %.2f dB, valid %v", fp, res.AliasHz, res.AliasOutHz, res.AliasSamples, res.AliasRejectionDB, res.AliasResponseDB, res.WorstAliasResponseDB, res.AliasValid)
 	}
 }

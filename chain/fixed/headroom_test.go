@@ -70,3 +70,16 @@ func TestHeadroomPointUnityGain(t *testing.T) {
 		t.Error("no chain had a headroom point: the test checks nothing")
 	}
 }
+
+// Plan refuses a clock under which a stage would take more than
+// chain.MaxLanes samples a cycle (its registers and multipliers counted
+// from the lanes wrapped past an int at 1e-30 Hz), and takes the least one.
+func TestPlanRefusesTinyClock(t *testing.T) {
+	c := testCascade()
+	if _, err := Plan(c, Words{}, Settings{Clock: 1e-30}); err == nil || !strings.Contains(err.Error(), "Clock") || !strings.Contains(err.Error(), "at least") {
+		t.Errorf("clock 1e-30 Hz: err = %v", err)
+	}
+	if _, err := Plan(c, Words{}, Settings{Clock: c.InputRate / 65536}); err != nil {
+		t.Errorf("clock of the input rate / 65536: err = %v", err)
+	}
+}
