@@ -103,14 +103,17 @@ func passbandPeak(c Cascade, w *Widths, i int) (f, g float64) {
 	return fp * float64(best) / float64(grid), vals[best]
 }
 
-// headroomPoints (Evaluate's, for the report) adds to every stage whose output an input tone of full
-// scale in the passband can drive past its largest code (by prefixGainAt's
-// bound, images included) a point saying where and by how much: the input
-// must stay that far below full scale there, or the stage may saturate.
+// headroomPoints (Evaluate's, for the report) adds to every stage whose
+// output an input tone at the input word's largest code in the passband
+// can drive past its own largest code (by prefixGainAt's bound, images
+// included) a point saying where and by how much: the input must stay
+// that far below full scale there, or the stage may saturate.
 func headroomPoints(c Cascade, w *Widths) {
 	if !(c.Passband > 0) {
 		return
 	}
+	// The loudest tone the input word carries: its largest code.
+	in := 1 - math.Ldexp(1, 1-w.InputBits)
 	for i := range w.Stages {
 		sw := &w.Stages[i]
 		if sw.OutputBits < 2 {
@@ -118,7 +121,7 @@ func headroomPoints(c Cascade, w *Widths) {
 		}
 		f, g := passbandPeak(c, w, i)
 		top := 1 - math.Ldexp(1, 1-sw.OutputBits) // the largest code
-		if g <= top {
+		if g*in <= top {
 			continue
 		}
 		db := 20 * math.Log10(g)

@@ -59,7 +59,8 @@ func TestHeadroomPointUnityGain(t *testing.T) {
 			has = has || strings.HasPrefix(p, "headroom:")
 		}
 		top := 1 - math.Ldexp(1, 1-w.Stages[last].OutputBits)
-		if has != (peak > top) {
+		in := 1 - math.Ldexp(1, 1-w.InputBits)
+		if has != (peak*in > top) {
 			t.Errorf("trial %d: peak %.9g, largest code %.9g, headroom point %v", trial, peak, top, has)
 		}
 		if has {
