@@ -3,6 +3,7 @@ package fixed
 import (
 	"fmt"
 	"math"
+	"strconv"
 
 	"github.com/stepdown-dsp/stepdown/chain"
 	"github.com/stepdown-dsp/stepdown/chain/remez"
@@ -125,6 +126,7 @@ func headroomPoints(c Cascade, w *Widths) {
 			continue
 		}
 		db := 20 * math.Log10(g)
-		sw.Points = append(sw.Points, fmt.Sprintf("headroom: an input tone at %s in the passband can peak at %+.3f dB of this output's full scale (the stages' gain there, images included), so above %.3f dBFS it may saturate the %d-bit output", units.FormatComputedFrequency(f), db, 20*math.Log10(top/g), sw.OutputBits))
+		f4, _ := strconv.ParseFloat(strconv.FormatFloat(f, 'g', 4, 64), 64) // 768.6 kHz
+		sw.Points = append(sw.Points, fmt.Sprintf("headroom: an input tone at %s in the passband can peak at %+.3f dB of this output's full scale (the stages' gain there, images included), so above %.3f dBFS it may saturate the %d-bit output", units.FormatComputedFrequency(f4), db, 20*math.Log10(top/g), sw.OutputBits))
 	}
 }

@@ -172,6 +172,14 @@ func WriteWordLengths(w io.Writer, rep *Report) {
 		}
 		fmt.Fprintf(&b, ", out %d bits", sr.OutputBits)
 		fmt.Fprintln(w, b.String())
+		// Where a full-scale passband tone drives this output past its
+		// largest code (package chain/fixed, Headroom), the terminal says
+		// so too.
+		for _, p := range sr.RoundingPoints {
+			if h, ok := strings.CutPrefix(p, "headroom: "); ok {
+				fmt.Fprintf(w, "    headroom: %s\n", h)
+			}
+		}
 	}
 	if len(ch.OverLimits) > 0 {
 		n := 0

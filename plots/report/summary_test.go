@@ -35,6 +35,26 @@ func TestWordLengthsCICForms(t *testing.T) {
 	}
 }
 
+// A stage's headroom point (package chain/fixed, Headroom) is printed
+// under its word-length line; the other rounding points are not.
+func TestWordLengthsHeadroomLine(t *testing.T) {
+	h := "headroom: an input tone at 1 MHz in the passband can peak at +4.011 dB of this output's full scale"
+	rep := &Report{Front: []Chain{{
+		Notation:    "fir2 > cic7m1r64",
+		ChainReport: &fixed.ChainReport{},
+		Stages: []Stage{
+			{Kind: "fir", StageReport: &fixed.StageReport{InputBits: 16, CoefficientBits: 15, AccumulatorBits: 31, MultiplierSize: "16 x 15", OutputBits: 14,
+				QuantisedMeetsBands: true, RoundingPoints: []string{"output: round half up, dropping 15 LSBs, then saturate to 14 bits", h}}},
+		},
+	}}}
+	rep.Spec.Words.CoefficientsMode = "auto"
+	var b bytes.Buffer
+	WriteWordLengths(&b, rep)
+	if !strings.Contains(b.String(), "\n    "+h+"\n") || strings.Contains(b.String(), "round half up") {
+		t.Errorf("the summary:\n%s", b.String())
+	}
+}
+
 // The lanes column sits before latency in the head as in the rows, with
 // and without the multipliers column (a multiplierless spec has none).
 func TestTableLanesColumn(t *testing.T) {
