@@ -75,7 +75,16 @@ func bitTrueInterp(ctx context.Context, c Cascade, w *Widths, sig Signal) (BitTr
 			gmax = math.Max(gmax, prefixGainAt(c, w, i, f))
 		}
 	}
+	aliasDefault := sig.AliasLevel == 0
 	sd, err := sig.fill(w.InputBits, fp, fin, high, 20*math.Log10(gmax))
+	// The image test's default tone (Run 2) starts from the same level
+	// before that lowering and is lowered by the gain at its own frequency,
+	// near the band's edge where a compensator lifts most (imageAmp); NaN
+	// when the caller set the level.
+	imageBase := math.NaN()
+	if aliasDefault {
+		imageBase = sig.AliasLevel + 20*math.Log10(gmax)
+	}
 	if err != nil {
 		return BitTrueResult{}, err
 	}
@@ -235,7 +244,7 @@ func bitTrueInterp(ctx context.Context, c Cascade, w *Widths, sig Signal) (BitTr
 	}
 	res.SNRValid = res.SNRNote == ""
 	if frac.fractional() {
-		if err := imageRunFrac(ctx, c, w, sig, &res, rng, sd.noise, nmIn, skip, outNum, outDen, need); err != nil {
+		if err := imageRunFrac(ctx, c, w, sig, &res, rng, sd.noise, nmIn, skip, outNum, outDen, need, imageBase); err != nil {
 			return BitTrueResult{}, err
 		}
 		return res, nil
@@ -255,7 +264,11 @@ func bitTrueInterp(ctx context.Context, c Cascade, w *Widths, sig Signal) (BitTr
 		}
 		g0, res.WorstAliasResponseDB = a.WorstAliasHz, a.AliasRejectionDB
 	}
-	amp := math.Pow(10, sig.AliasLevel/20)
+	fold0 := math.Mod(g0, fin)
+	if fold0 > fin/2 {
+		fold0 = fin - fold0
+	}
+	amp := imageAmp(c, w, sig.AliasLevel, imageBase, fold0)
 	for nm := nmIn; ; nm *= 4 {
 		wn := nm * l
 		// f: g folded into [0, F_in/2], moved to whole cycles over the
@@ -554,7 +567,7 @@ func (r *rotor) complex(n int) complex128 {
 // F_in / (2 outDen)) what comes out depends on the tone's phase: the run
 // is made twice a quarter cycle apart and the figure is the worst phase's,
 // |c1| + |c2|, as aliasRun does, and the response's is the paths' sum.
-func imageRunFrac(ctx context.Context, c Cascade, w *Widths, sig Signal, res *BitTrueResult, rng *rand.Rand, noise float64, nmIn, skip, outNum, outDen int, need func(int) int) error {
+func imageRunFrac(ctx context.Context, c Cascade, w *Widths, sig Signal, res *BitTrueResult, rng *rand.Rand, noise float64, nmIn, skip, outNum, outDen int, need func(int) int, imageBase float64) error {
 	fin := c.InputRate
 	q, qspec := cascadeChain(c, w, true)
 	var g0 float64
@@ -583,7 +596,7 @@ func imageRunFrac(ctx context.Context, c Cascade, w *Widths, sig Signal, res *Bi
 	if math.Abs(jm-math.Round(jm)) < math.Abs(jp-j) {
 		sgn, j = -1, math.Round(jm)
 	}
-	amp := math.Pow(10, sig.AliasLevel/20)
+	amp := imageAmp(c, w, sig.AliasLevel, imageBase, y0)
 	win0 := nmIn * outNum / outDen
 	for nm := nmIn; ; nm *= 4 {
 		wn := nm * outNum / outDen
@@ -671,4 +684,19 @@ func ratioText(num, den int) string {
 		return fmt.Sprint(num)
 	}
 	return fmt.Sprintf("%d/%d", num, den)
+}
+
+// imageAmp is the amplitude of the image test's channel tone at f Hz: the
+// caller's level (base NaN), or the default one, base, lowered by the
+// largest gain from the input to a stage's output at f, images included
+// (prefixGainAt), when that is above 1, so that no stage saturates on it.
+func imageAmp(c Cascade, w *Widths, level, base, f float64) float64 {
+	if math.IsNaN(base) {
+		return math.Pow(10, level/20)
+	}
+	g := 1.0
+	for i := range w.Stages {
+		g = math.Max(g, prefixGainAt(c, w, i, f))
+	}
+	return math.Pow(10, base/20) / g
 }

@@ -63,20 +63,23 @@ func prefixGainAt(c Cascade, w *Widths, i int, f float64) float64 {
 	sum := shape(f)
 	for k := 1; float64(k)*fin-f <= top; k++ {
 		sum += shape(float64(k)*fin - f)
-		if x := float64(k)*fin + f; x <= top && f > 0 {
+		// At f = 0 the two images meet in one line of twice the
+		// amplitude: both count.
+		if x := float64(k)*fin + f; x <= top {
 			sum += shape(x)
 		}
 	}
 	return g0 * sum
 }
 
-// passbandPeak is the largest prefixGainAt over the passband [0, fp] and
-// where it lies: the best of evenly spaced points, 64 or eight to each
-// ripple of the stages up to i (a FIR of n taps at rate r ripples about
-// n fp / r times over the passband), at most 2^14, refined between its
-// neighbours by golden section.
+// passbandPeak is the largest prefixGainAt over the channel's band
+// [0, fa] (the protected edge; the passband's without one) and where it
+// lies: the best of evenly spaced points, 64 or eight to each ripple of
+// the stages up to i (a FIR of n taps at rate r ripples about n fa / r
+// times over the band), at most 2^14, every local maximum within 1% of the
+// best refined between its neighbours by golden section.
 func passbandPeak(c Cascade, w *Widths, i int) (f, g float64) {
-	fp := c.Passband
+	fa := c.protectedEdge()
 	at := func(x float64) float64 { return prefixGainAt(c, w, i, x) }
 	r := c.Rates()
 	ripples := 0.0
@@ -85,23 +88,28 @@ func passbandPeak(c Cascade, w *Widths, i int) (f, g float64) {
 		if c.Interpolate {
 			hi = r[j+1]
 		}
-		ripples += float64(c.Stages[j].Length()) * fp / hi
+		ripples += float64(c.Stages[j].Length()) * fa / hi
 	}
 	grid := int(math.Min(1<<14, math.Max(64, 8*ripples)))
-	best := 0
 	vals := make([]float64, grid+1)
+	best := 0
 	for k := range vals {
-		vals[k] = at(fp * float64(k) / float64(grid))
+		vals[k] = at(fa * float64(k) / float64(grid))
 		if vals[k] > vals[best] {
 			best = k
 		}
 	}
-	lo, hi := fp*float64(max(0, best-1))/float64(grid), fp*float64(min(grid, best+1))/float64(grid)
-	x, gx := remez.GoldenMax(at, lo, hi, 60, fp*1e-9)
-	if gx > vals[best] {
-		return x, gx
+	f, g = fa*float64(best)/float64(grid), vals[best]
+	for k := range vals {
+		if vals[k] < 0.99*vals[best] || (k > 0 && vals[k-1] > vals[k]) || (k < grid && vals[k+1] > vals[k]) {
+			continue
+		}
+		lo, hi := fa*float64(max(0, k-1))/float64(grid), fa*float64(min(grid, k+1))/float64(grid)
+		if x, gx := remez.GoldenMax(at, lo, hi, 60, fa*1e-9); gx > g {
+			f, g = x, gx
+		}
 	}
-	return fp * float64(best) / float64(grid), vals[best]
+	return f, g
 }
 
 // headroomPoints (Evaluate's, for the report) adds to every stage whose
@@ -115,18 +123,32 @@ func headroomPoints(c Cascade, w *Widths) {
 	}
 	// The loudest tone the input word carries: its largest code.
 	in := 1 - math.Ldexp(1, 1-w.InputBits)
+	// top is a stage's largest code less two LSBs, for the rounding of the
+	// input and of the stages, which the bound, in real numbers, leaves out.
+	top := func(i int) float64 { return 1 - 3*math.Ldexp(1, 1-w.Stages[i].OutputBits) }
+stages:
 	for i := range w.Stages {
 		sw := &w.Stages[i]
 		if sw.OutputBits < 2 {
 			continue
 		}
 		f, g := passbandPeak(c, w, i)
-		top := 1 - math.Ldexp(1, 1-sw.OutputBits) // the largest code
-		if g*in <= top {
+		if g*in <= top(i) {
 			continue
+		}
+		// A stage whose input an earlier stage clips first, at this
+		// tone, never sees the louder tone: that stage's point says it.
+		for j := 0; j < i; j++ {
+			if prefixGainAt(c, w, j, f)*top(i)/g > top(j) {
+				continue stages
+			}
 		}
 		db := 20 * math.Log10(g)
 		f4, _ := strconv.ParseFloat(strconv.FormatFloat(f, 'g', 4, 64), 64) // 768.6 kHz
-		sw.Points = append(sw.Points, fmt.Sprintf("headroom: an input tone at %s in the passband can peak at %+.3f dB of this output's full scale (the stages' gain there, images included), so above %.3f dBFS it may saturate the %d-bit output", units.FormatComputedFrequency(f4), db, 20*math.Log10(top/g), sw.OutputBits))
+		where := "in the passband"
+		if f > c.Passband {
+			where = "in the protected band"
+		}
+		sw.Points = append(sw.Points, fmt.Sprintf("headroom: an input tone at %s %s can peak at %+.3f dB of this output's full scale (the stages' gain there, images included), so above %.3f dBFS it may saturate the %d-bit output", units.FormatComputedFrequency(f4), where, db, 20*math.Log10(top(i)/g), sw.OutputBits))
 	}
 }
