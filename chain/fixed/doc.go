@@ -212,16 +212,20 @@
 // # Headroom
 //
 // Evaluate adds a "headroom:" point to each stage (StageWidths.Points,
-// report.json's rounding_points) whose output an input tone of full scale
-// in the passband can drive past its largest code: where in the passband,
-// by how much, and how far below full scale the input must stay there. The
-// figure is the stages' gain at 0 Hz up to that output times their
-// responses on the rounded taps at the tone, summed in an interpolation
-// chain over the tone and each image the stages up to it leave (the tone
-// and its images can peak together), maximised over the passband on a grid
-// of eight points to each ripple of those stages, refined by golden
-// section. The data path saturates there as planned; the point says when
-// it does. In an interpolation chain the compensator comes before the CIC
+// report.json's rounding_points) whose output an input tone at the input
+// word's largest code, in the channel's band [0, fa] (the protected edge,
+// or the passband's), can drive past its own largest code less two LSBs
+// (the rounding the bound leaves out): where, by how much, and how far
+// below full scale the input must stay there. The figure is the stages'
+// gain at 0 Hz up to that output times their responses on the rounded
+// taps at the tone, summed in an interpolation chain over the tone and
+// each image the stages up to it leave (the tone and its images can peak
+// together; at 0 Hz an image's two lines meet and both count), maximised
+// over the band on a grid of eight points to each ripple of those stages,
+// every local maximum within 1% of the best refined by golden section. A
+// stage whose input an earlier stage clips first at that tone gets no
+// point: the earlier stage's says it. The data path saturates there as
+// planned; the point says when it does. In an interpolation chain the compensator comes before the CIC
 // whose droop it corrects and lifts the band's edge by up to that droop
 // (16.9 dB for an order-7 CIC with M = 2 at 2.5 MS/s to a 1 MHz edge); with
 // UnityGain the passband ripple lifts the last stage's output a little
@@ -298,7 +302,9 @@
 // tone and every image the stages up to that output leave in it, since a
 // compensator before its CIC lifts the passband by up to the CIC's droop
 // and a stage that leaves images to the CIC after it lets them add to the
-// tone's peak), and a stage before the last that
+// tone's peak), the image test's tone likewise at its own frequency (near
+// the band's edge, where a compensator lifts most), and a stage before the
+// last that
 // saturates more than one output in a thousand makes the SNR invalid
 // (SNRNote names it). The alias test becomes an image test: g is the
 // quantised cascade's worst image (chain.Analyze's WorstAliasHz, at the
