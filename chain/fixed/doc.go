@@ -304,9 +304,9 @@
 // and a stage that leaves images to the CIC after it lets them add to the
 // tone's peak), the image test's tone likewise at its own frequency (near
 // the band's edge, where a compensator lifts most), and a stage before the
-// last that
-// saturates more than one output in a thousand makes the SNR invalid
-// (SNRNote names it). The alias test becomes an image test: g is the
+// last that saturates more than one output in a thousand makes the SNR
+// invalid (SNRNote names it). The alias test becomes an image test: g is
+// the
 // quantised cascade's worst image (chain.Analyze's WorstAliasHz, at the
 // output rate) or Signal.AliasHz, and the input tone is at f, g folded into
 // [0, F_in/2] (moved to whole cycles, g with it); the output is measured at
