@@ -306,9 +306,8 @@
 // the band's edge, where a compensator lifts most), and a stage before the
 // last that saturates more than one output in a thousand makes the SNR
 // invalid (SNRNote names it). The alias test becomes an image test: g is
-// the
-// quantised cascade's worst image (chain.Analyze's WorstAliasHz, at the
-// output rate) or Signal.AliasHz, and the input tone is at f, g folded into
+// the quantised cascade's worst image (chain.Analyze's WorstAliasHz, at
+// the output rate) or Signal.AliasHz, and the input tone is at f, g folded into
 // [0, F_in/2] (moved to whole cycles, g with it); the output is measured at
 // g and at f by projection after the transients, and the bit-true image
 // rejection is 20 log10(A(f) / A(g)), the response's H(f) / H(g) beside it.
