@@ -68,12 +68,13 @@ func bitTrueInterp(ctx context.Context, c Cascade, w *Widths, sig Signal) (BitTr
 			toneFs = append(toneFs, t.Freq)
 		}
 	}
+	gm := newGainModel(c, w)
 	gmax := 1.0
 	for i := range w.Stages {
 		gmax = math.Max(gmax, prefixGain(w, i))
-		for _, f := range toneFs {
-			gmax = math.Max(gmax, prefixGainAt(c, w, i, f))
-		}
+	}
+	for _, f := range toneFs {
+		gmax = math.Max(gmax, gm.maxGainAt(f))
 	}
 	aliasDefault := sig.AliasLevel == 0
 	sd, err := sig.fill(w.InputBits, fp, fin, high, 20*math.Log10(gmax))
@@ -694,9 +695,5 @@ func imageAmp(c Cascade, w *Widths, level, base, f float64) float64 {
 	if math.IsNaN(base) {
 		return math.Pow(10, level/20)
 	}
-	g := 1.0
-	for i := range w.Stages {
-		g = math.Max(g, prefixGainAt(c, w, i, f))
-	}
-	return math.Pow(10, base/20) / g
+	return math.Pow(10, base/20) / newGainModel(c, w).maxGainAt(f)
 }

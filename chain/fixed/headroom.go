@@ -10,66 +10,101 @@ import (
 	"github.com/stepdown-dsp/stepdown/chain/units"
 )
 
-// stageShape is stage i's magnitude at f Hz (of the signal, below every
-// stage's Nyquist rate) over its magnitude at 0 Hz, on its rounded taps: 1
-// for a fractional stage, whose phases' gains its own headroom point
-// states.
-func stageShape(c Cascade, w *Widths, i int, f float64) float64 {
-	st := c.Stages[i]
-	if st.fractional() {
-		return 1
+// gainModel holds what prefixGainAt needs of a cascade, built once: each
+// stage's response (its rounded taps, or its CIC) with the rate its taps
+// run at, its magnitude at 0 Hz, and the stages' gains at 0 Hz up to it.
+type gainModel struct {
+	interp bool
+	fin    float64
+	rates  []float64
+	stages []chain.Stage // nil for a fractional stage (shape 1)
+	hi, g0 []float64
+	dc     []float64 // prefixGain
+}
+
+func newGainModel(c Cascade, w *Widths) *gainModel {
+	m := &gainModel{interp: c.Interpolate, fin: c.InputRate, rates: c.Rates()}
+	for i, st := range c.Stages {
+		hi := m.rates[i] // a decimating stage's taps run at its input rate
+		if c.Interpolate {
+			hi = m.rates[i+1]
+		}
+		var s chain.Stage
+		g0 := 1.0
+		switch {
+		case st.fractional():
+			// Its phases' gains its own headroom point states.
+		case st.CIC:
+			s = chain.CICStage{N: st.N, M: st.M, R: st.R}
+		default:
+			taps := w.Stages[i].Coefficients.Float()
+			s = chain.FIRStage{R: st.R, Taps: taps, Length: len(taps), HalfBand: st.HalfBand}
+		}
+		if s != nil {
+			if g0 = s.Gain(0, hi); !(g0 > 0) {
+				s, g0 = nil, 1
+			}
+		}
+		m.stages, m.hi, m.g0 = append(m.stages, s), append(m.hi, hi), append(m.g0, g0)
+		m.dc = append(m.dc, prefixGain(w, i))
 	}
-	r := c.Rates()
-	hi := r[i] // a decimating stage's taps run at its input rate
-	if c.Interpolate {
-		hi = r[i+1]
+	return m
+}
+
+// shape is the product of stages 0..i's magnitudes at f Hz over theirs at
+// 0 Hz.
+func (m *gainModel) shape(i int, f float64) float64 {
+	g := 1.0
+	for j := 0; j <= i; j++ {
+		if s := m.stages[j]; s != nil {
+			g *= s.Gain(f, m.hi[j]) / m.g0[j]
+		}
 	}
-	var s chain.Stage = chain.CICStage{N: st.N, M: st.M, R: st.R}
-	if !st.CIC {
-		taps := w.Stages[i].Coefficients.Float()
-		s = chain.FIRStage{R: st.R, Taps: taps, Length: len(taps), HalfBand: st.HalfBand}
+	return g
+}
+
+// at is prefixGainAt on the model.
+func (m *gainModel) at(i int, f float64) float64 {
+	if !m.interp {
+		return m.dc[i] * m.shape(i, f)
 	}
-	g0 := s.Gain(0, hi)
-	if !(g0 > 0) {
-		return 1
+	top := m.rates[i+1] / 2
+	sum := m.shape(i, f)
+	for k := 1; float64(k)*m.fin-f <= top; k++ {
+		sum += m.shape(i, float64(k)*m.fin-f)
+		// At f = 0 the two images meet in one line of twice the
+		// amplitude: both count.
+		if x := float64(k)*m.fin + f; x <= top {
+			sum += m.shape(i, x)
+		}
 	}
-	return s.Gain(f, hi) / g0
+	return m.dc[i] * sum
 }
 
 // prefixGainAt bounds the peak at stage i's output, in its full scale, of
-// an input tone of full scale at f Hz: prefixGain (the stages' gains at 0
-// Hz) times each stage's shape at f, and in an interpolation cascade the
-// sum of that over every image of the tone the stages up to i leave in
-// their output (k F_in +- f up to its Nyquist rate), since the tone and
-// its images can peak together. A CIC's droop compensator raises it above
-// the gain at 0 Hz within the passband, by up to its CIC's droop at the
-// band's edge: in an interpolation chain, whose compensator comes first,
-// before the droop it corrects; and an interpolation stage that leaves
-// images to the stages after it (which the cascade rule lets it do) adds
-// them.
+// an input tone of full scale at f Hz (of the signal, below every stage's
+// Nyquist rate): prefixGain (the stages' gains at 0 Hz) times each stage's
+// magnitude at f over its magnitude at 0 Hz, on its rounded taps (1 for a
+// fractional stage), and in an interpolation cascade the sum of that over
+// every image of the tone the stages up to i leave in their output
+// (k F_in +- f up to its Nyquist rate), since the tone and its images can
+// peak together. A CIC's droop compensator raises it above the gain at
+// 0 Hz within the passband, by up to its CIC's droop at the band's edge:
+// in an interpolation chain, whose compensator comes first, before the
+// droop it corrects; and an interpolation stage that leaves images to the
+// stages after it (which the cascade rule lets it do) adds them. Callers
+// evaluating many frequencies build a gainModel once.
 func prefixGainAt(c Cascade, w *Widths, i int, f float64) float64 {
-	g0 := prefixGain(w, i)
-	shape := func(x float64) float64 {
-		g := 1.0
-		for j := 0; j <= i; j++ {
-			g *= stageShape(c, w, j, x)
-		}
-		return g
+	return newGainModel(c, w).at(i, f)
+}
+
+// maxGainAt is the largest prefixGainAt over the stages at f, at least 1.
+func (m *gainModel) maxGainAt(f float64) float64 {
+	g := 1.0
+	for i := range m.stages {
+		g = math.Max(g, m.at(i, f))
 	}
-	if !c.Interpolate {
-		return g0 * shape(f)
-	}
-	fin, top := c.InputRate, c.Rates()[i+1]/2
-	sum := shape(f)
-	for k := 1; float64(k)*fin-f <= top; k++ {
-		sum += shape(float64(k)*fin - f)
-		// At f = 0 the two images meet in one line of twice the
-		// amplitude: both count.
-		if x := float64(k)*fin + f; x <= top {
-			sum += shape(x)
-		}
-	}
-	return g0 * sum
+	return g
 }
 
 // passbandPeak is the largest prefixGainAt over the channel's band
@@ -79,8 +114,13 @@ func prefixGainAt(c Cascade, w *Widths, i int, f float64) float64 {
 // times over the band), at most 2^14, every local maximum within 1% of the
 // best refined between its neighbours by golden section.
 func passbandPeak(c Cascade, w *Widths, i int) (f, g float64) {
+	return newGainModel(c, w).peak(c, i)
+}
+
+// peak is passbandPeak on the model.
+func (m *gainModel) peak(c Cascade, i int) (f, g float64) {
 	fa := c.protectedEdge()
-	at := func(x float64) float64 { return prefixGainAt(c, w, i, x) }
+	at := func(x float64) float64 { return m.at(i, x) }
 	r := c.Rates()
 	ripples := 0.0
 	for j := 0; j <= i; j++ {
@@ -113,14 +153,15 @@ func passbandPeak(c Cascade, w *Widths, i int) (f, g float64) {
 }
 
 // headroomPoints (Evaluate's, for the report) adds to every stage whose
-// output an input tone at the input word's largest code in the passband
-// can drive past its own largest code (by prefixGainAt's bound, images
+// output an input tone at the input word's largest code in the channel's
+// band can drive past its own largest code (by prefixGainAt's bound, images
 // included) a point saying where and by how much: the input must stay
 // that far below full scale there, or the stage may saturate.
 func headroomPoints(c Cascade, w *Widths) {
 	if !(c.Passband > 0) {
 		return
 	}
+	m := newGainModel(c, w)
 	// The loudest tone the input word carries: its largest code.
 	in := 1 - math.Ldexp(1, 1-w.InputBits)
 	// top is a stage's largest code less two LSBs, for the rounding of the
@@ -132,14 +173,14 @@ stages:
 		if sw.OutputBits < 2 {
 			continue
 		}
-		f, g := passbandPeak(c, w, i)
+		f, g := m.peak(c, i)
 		if g*in <= top(i) {
 			continue
 		}
 		// A stage whose input an earlier stage clips first, at this
 		// tone, never sees the louder tone: that stage's point says it.
 		for j := 0; j < i; j++ {
-			if prefixGainAt(c, w, j, f)*top(i)/g > top(j) {
+			if m.at(j, f)*top(i)/g > top(j) {
 				continue stages
 			}
 		}
