@@ -224,7 +224,11 @@
 // over the band on a grid of eight points to each ripple of those stages,
 // every local maximum within 1% of the best refined by golden section. A
 // stage whose input an earlier stage clips first at that tone gets no
-// point: the earlier stage's says it. The data path saturates there as
+// point: the earlier stage's says it. A cascade with a fractional stage
+// gets none, and its bit-true tones are lowered by the gains at 0 Hz: the
+// bound does not follow a fractional stage's paths (its images are not at
+// multiples of the input rate, and its prototype may lift the band), where
+// it read 14 dB high and 0.25 dB low. The data path saturates there as
 // planned; the point says when it does. In an interpolation chain the compensator comes before the CIC
 // whose droop it corrects and lifts the band's edge by up to that droop
 // (16.9 dB for an order-7 CIC with M = 2 at 2.5 MS/s to a 1 MHz edge); with

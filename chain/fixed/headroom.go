@@ -3,6 +3,7 @@ package fixed
 import (
 	"fmt"
 	"math"
+	"sort"
 	"strconv"
 
 	"github.com/stepdown-dsp/stepdown/chain"
@@ -14,12 +15,23 @@ import (
 // stage's response (its rounded taps, or its CIC) with the rate its taps
 // run at, its magnitude at 0 Hz, and the stages' gains at 0 Hz up to it.
 type gainModel struct {
+	// frac is set for a cascade with a fractional stage, whose paths the
+	// model does not follow (a fractional stage's images and its
+	// prototype's lift): at is then prefixGain, the gain at 0 Hz, and
+	// headroomPoints says nothing.
+	frac   bool
 	interp bool
 	fin    float64
 	rates  []float64
 	stages []chain.Stage // nil for a fractional stage (shape 1)
 	hi, g0 []float64
 	dc     []float64 // prefixGain
+	// period[j] is stage j's tap rate over the input rate (an integer in
+	// an interpolation cascade): its response at k F_in +- f depends on k
+	// mod period[j] alone, so at evaluates period[j] values a sign, not
+	// one an image. minus and plus are at's scratch for them.
+	period      []int
+	minus, plus [][]float64
 }
 
 func newGainModel(c Cascade, w *Widths) *gainModel {
@@ -33,7 +45,7 @@ func newGainModel(c Cascade, w *Widths) *gainModel {
 		g0 := 1.0
 		switch {
 		case st.fractional():
-			// Its phases' gains its own headroom point states.
+			m.frac = true
 		case st.CIC:
 			s = chain.CICStage{N: st.N, M: st.M, R: st.R}
 		default:
@@ -47,8 +59,19 @@ func newGainModel(c Cascade, w *Widths) *gainModel {
 		}
 		m.stages, m.hi, m.g0 = append(m.stages, s), append(m.hi, hi), append(m.g0, g0)
 		m.dc = append(m.dc, prefixGain(w, i))
+		p := max(1, int(math.Round(hi/c.InputRate)))
+		m.period = append(m.period, p)
+		m.minus, m.plus = append(m.minus, make([]float64, p)), append(m.plus, make([]float64, p))
 	}
 	return m
+}
+
+// stageAt is stage j's magnitude at f Hz over its magnitude at 0 Hz.
+func (m *gainModel) stageAt(j int, f float64) float64 {
+	if s := m.stages[j]; s != nil {
+		return s.Gain(f, m.hi[j]) / m.g0[j]
+	}
+	return 1
 }
 
 // shape is the product of stages 0..i's magnitudes at f Hz over theirs at
@@ -56,26 +79,41 @@ func newGainModel(c Cascade, w *Widths) *gainModel {
 func (m *gainModel) shape(i int, f float64) float64 {
 	g := 1.0
 	for j := 0; j <= i; j++ {
-		if s := m.stages[j]; s != nil {
-			g *= s.Gain(f, m.hi[j]) / m.g0[j]
-		}
+		g *= m.stageAt(j, f)
 	}
 	return g
 }
 
 // at is prefixGainAt on the model.
 func (m *gainModel) at(i int, f float64) float64 {
+	if m.frac {
+		return m.dc[i]
+	}
 	if !m.interp {
 		return m.dc[i] * m.shape(i, f)
 	}
 	top := m.rates[i+1] / 2
-	sum := m.shape(i, f)
+	for j := 0; j <= i; j++ {
+		for r := range m.period[j] {
+			m.minus[j][r] = m.stageAt(j, float64(r)*m.fin-f)
+			m.plus[j][r] = m.stageAt(j, float64(r)*m.fin+f)
+		}
+	}
+	line := func(k int, v [][]float64) float64 {
+		g := 1.0
+		for j := 0; j <= i; j++ {
+			g *= v[j][k%m.period[j]]
+		}
+		return g
+	}
+	sum := line(0, m.plus)
 	for k := 1; float64(k)*m.fin-f <= top; k++ {
-		sum += m.shape(i, float64(k)*m.fin-f)
+		sum += line(k, m.minus)
 		// At f = 0 the two images meet in one line of twice the
-		// amplitude: both count.
-		if x := float64(k)*m.fin + f; x <= top {
-			sum += m.shape(i, x)
+		// amplitude: both count, but at the output's Nyquist rate, where
+		// the line is the one alone.
+		if x := float64(k)*m.fin + f; x <= top && !(f == 0 && x == top) {
+			sum += line(k, m.plus)
 		}
 	}
 	return m.dc[i] * sum
@@ -84,16 +122,17 @@ func (m *gainModel) at(i int, f float64) float64 {
 // prefixGainAt bounds the peak at stage i's output, in its full scale, of
 // an input tone of full scale at f Hz (of the signal, below every stage's
 // Nyquist rate): prefixGain (the stages' gains at 0 Hz) times each stage's
-// magnitude at f over its magnitude at 0 Hz, on its rounded taps (1 for a
-// fractional stage), and in an interpolation cascade the sum of that over
+// magnitude at f over its magnitude at 0 Hz, on its rounded taps, and in
+// an interpolation cascade the sum of that over
 // every image of the tone the stages up to i leave in their output
 // (k F_in +- f up to its Nyquist rate), since the tone and its images can
 // peak together. A CIC's droop compensator raises it above the gain at
 // 0 Hz within the passband, by up to its CIC's droop at the band's edge:
 // in an interpolation chain, whose compensator comes first, before the
 // droop it corrects; and an interpolation stage that leaves images to the
-// stages after it (which the cascade rule lets it do) adds them. Callers
-// evaluating many frequencies build a gainModel once.
+// stages after it (which the cascade rule lets it do) adds them. For a
+// cascade with a fractional stage it is prefixGain alone (gainModel.frac).
+// Callers evaluating many frequencies build a gainModel once.
 func prefixGainAt(c Cascade, w *Widths, i int, f float64) float64 {
 	return newGainModel(c, w).at(i, f)
 }
@@ -111,8 +150,9 @@ func (m *gainModel) maxGainAt(f float64) float64 {
 // [0, fa] (the protected edge; the passband's without one) and where it
 // lies: the best of evenly spaced points, 64 or eight to each ripple of
 // the stages up to i (a FIR of n taps at rate r ripples about n fa / r
-// times over the band), at most 2^14, every local maximum within 1% of the
-// best refined between its neighbours by golden section.
+// times over the band), at most 2^14, the highest peakRefines local maxima
+// within 1% of the best refined between their neighbours by golden
+// section.
 func passbandPeak(c Cascade, w *Widths, i int) (f, g float64) {
 	return newGainModel(c, w).peak(c, i)
 }
@@ -140,17 +180,30 @@ func (m *gainModel) peak(c Cascade, i int) (f, g float64) {
 		}
 	}
 	f, g = fa*float64(best)/float64(grid), vals[best]
+	// The local maxima within 1% of the best, the highest first; the
+	// best peakRefines of them are refined.
+	var tops []int
 	for k := range vals {
-		if vals[k] < 0.99*vals[best] || (k > 0 && vals[k-1] > vals[k]) || (k < grid && vals[k+1] > vals[k]) {
-			continue
+		if vals[k] >= 0.99*vals[best] && (k == 0 || vals[k-1] <= vals[k]) && (k == grid || vals[k+1] <= vals[k]) {
+			tops = append(tops, k)
 		}
+	}
+	sort.SliceStable(tops, func(a, b int) bool { return vals[tops[a]] > vals[tops[b]] })
+	for _, k := range tops[:min(len(tops), peakRefines)] {
 		lo, hi := fa*float64(max(0, k-1))/float64(grid), fa*float64(min(grid, k+1))/float64(grid)
-		if x, gx := remez.GoldenMax(at, lo, hi, 60, fa*1e-9); gx > g {
+		if x, gx := remez.GoldenMax(at, lo, hi, 40, fa*1e-9); gx > g {
 			f, g = x, gx
 		}
 	}
+	if f < fa*1e-6 {
+		f = 0 // a refinement a hair from 0 Hz
+	}
 	return f, g
 }
+
+// peakRefines is how many of the passband's highest local maxima
+// passbandPeak refines.
+const peakRefines = 4
 
 // headroomPoints (Evaluate's, for the report) adds to every stage whose
 // output an input tone at the input word's largest code in the channel's
@@ -162,16 +215,22 @@ func headroomPoints(c Cascade, w *Widths) {
 		return
 	}
 	m := newGainModel(c, w)
+	if m.frac {
+		return
+	}
 	// The loudest tone the input word carries: its largest code.
 	in := 1 - math.Ldexp(1, 1-w.InputBits)
+	if !(in > 0) {
+		return // a 1-bit word's codes are 0 and -1 of full scale
+	}
 	// top is a stage's largest code less two LSBs, for the rounding of the
 	// input and of the stages, which the bound, in real numbers, leaves out.
 	top := func(i int) float64 { return 1 - 3*math.Ldexp(1, 1-w.Stages[i].OutputBits) }
 stages:
 	for i := range w.Stages {
 		sw := &w.Stages[i]
-		if sw.OutputBits < 2 {
-			continue
+		if !(top(i) > 0) {
+			continue // a word of two or three bits: no room for the margin
 		}
 		f, g := m.peak(c, i)
 		if g*in <= top(i) {
