@@ -58,7 +58,7 @@ func bitTrueInterp(ctx context.Context, c Cascade, w *Widths, sig Signal) (BitTr
 	// The default levels leave room for the largest gain from the input to
 	// any stage's output (above 1 when a UnityGain correction comes before a
 	// stage that loses gain, such as a CIC), so that no stage saturates on
-	// them: at the tones' own frequencies, images included (prefixGainAt),
+	// them: at the tones' own frequencies, images included (gainModel.at),
 	// not only at 0 Hz, since a compensator before its CIC lifts them by up
 	// to the CIC's droop.
 	toneFs := []float64{0.4 * fp} // the default tone's (Signal.fill)
@@ -269,7 +269,7 @@ func bitTrueInterp(ctx context.Context, c Cascade, w *Widths, sig Signal) (BitTr
 	if fold0 > fin/2 {
 		fold0 = fin - fold0
 	}
-	amp := imageAmp(c, w, sig.AliasLevel, imageBase, fold0)
+	amp := imageAmp(gm, sig.AliasLevel, imageBase, fold0)
 	for nm := nmIn; ; nm *= 4 {
 		wn := nm * l
 		// f: g folded into [0, F_in/2], moved to whole cycles over the
@@ -597,7 +597,7 @@ func imageRunFrac(ctx context.Context, c Cascade, w *Widths, sig Signal, res *Bi
 	if math.Abs(jm-math.Round(jm)) < math.Abs(jp-j) {
 		sgn, j = -1, math.Round(jm)
 	}
-	amp := imageAmp(c, w, sig.AliasLevel, imageBase, y0)
+	amp := imageAmp(newGainModel(c, w), sig.AliasLevel, imageBase, y0)
 	win0 := nmIn * outNum / outDen
 	for nm := nmIn; ; nm *= 4 {
 		wn := nm * outNum / outDen
@@ -690,10 +690,10 @@ func ratioText(num, den int) string {
 // imageAmp is the amplitude of the image test's channel tone at f Hz: the
 // caller's level (base NaN), or the default one, base, lowered by the
 // largest gain from the input to a stage's output at f, images included
-// (prefixGainAt), when that is above 1, so that no stage saturates on it.
-func imageAmp(c Cascade, w *Widths, level, base, f float64) float64 {
+// (gainModel.at), when that is above 1, so that no stage saturates on it.
+func imageAmp(gm *gainModel, level, base, f float64) float64 {
 	if math.IsNaN(base) {
 		return math.Pow(10, level/20)
 	}
-	return math.Pow(10, base/20) / newGainModel(c, w).maxGainAt(f)
+	return math.Pow(10, base/20) / gm.maxGainAt(f)
 }

@@ -301,7 +301,7 @@
 // its component at each tone and at every image of it (the coefficients'
 // passband and image gain errors, judged on the quantised response). The
 // default tones are also lowered by the largest gain from the input to a
-// stage's output at the tone's frequency when it is above 1 (prefixGainAt:
+// stage's output at the tone's frequency when it is above 1 (gainModel.at:
 // the stages' gains at 0 Hz times their shape at the tone, summed over the
 // tone and every image the stages up to that output leave in it, since a
 // compensator before its CIC lifts the passband by up to the CIC's droop

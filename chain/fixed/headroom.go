@@ -11,7 +11,7 @@ import (
 	"github.com/stepdown-dsp/stepdown/chain/units"
 )
 
-// gainModel holds what prefixGainAt needs of a cascade, built once: each
+// gainModel holds what gainModel.at needs of a cascade, built once: each
 // stage's response (its rounded taps, or its CIC) with the rate its taps
 // run at, its magnitude at 0 Hz, and the stages' gains at 0 Hz up to it.
 type gainModel struct {
@@ -84,7 +84,19 @@ func (m *gainModel) shape(i int, f float64) float64 {
 	return g
 }
 
-// at is prefixGainAt on the model.
+// at bounds the peak at stage i's output, in its full scale, of
+// an input tone of full scale at f Hz (of the signal, below every stage's
+// Nyquist rate): prefixGain (the stages' gains at 0 Hz) times each stage's
+// magnitude at f over its magnitude at 0 Hz, on its rounded taps, and in
+// an interpolation cascade the sum of that over
+// every image of the tone the stages up to i leave in their output
+// (k F_in +- f up to its Nyquist rate), since the tone and its images can
+// peak together. A CIC's droop compensator raises it above the gain at
+// 0 Hz within the passband, by up to its CIC's droop at the band's edge:
+// in an interpolation chain, whose compensator comes first, before the
+// droop it corrects; and an interpolation stage that leaves images to the
+// stages after it (which the cascade rule lets it do) adds them. For a
+// cascade with a fractional stage it is prefixGain alone (gainModel.frac).
 func (m *gainModel) at(i int, f float64) float64 {
 	if m.frac {
 		return m.dc[i]
@@ -119,25 +131,7 @@ func (m *gainModel) at(i int, f float64) float64 {
 	return m.dc[i] * sum
 }
 
-// prefixGainAt bounds the peak at stage i's output, in its full scale, of
-// an input tone of full scale at f Hz (of the signal, below every stage's
-// Nyquist rate): prefixGain (the stages' gains at 0 Hz) times each stage's
-// magnitude at f over its magnitude at 0 Hz, on its rounded taps, and in
-// an interpolation cascade the sum of that over
-// every image of the tone the stages up to i leave in their output
-// (k F_in +- f up to its Nyquist rate), since the tone and its images can
-// peak together. A CIC's droop compensator raises it above the gain at
-// 0 Hz within the passband, by up to its CIC's droop at the band's edge:
-// in an interpolation chain, whose compensator comes first, before the
-// droop it corrects; and an interpolation stage that leaves images to the
-// stages after it (which the cascade rule lets it do) adds them. For a
-// cascade with a fractional stage it is prefixGain alone (gainModel.frac).
-// Callers evaluating many frequencies build a gainModel once.
-func prefixGainAt(c Cascade, w *Widths, i int, f float64) float64 {
-	return newGainModel(c, w).at(i, f)
-}
-
-// maxGainAt is the largest prefixGainAt over the stages at f, at least 1.
+// maxGainAt is the largest at over the stages at f, at least 1.
 func (m *gainModel) maxGainAt(f float64) float64 {
 	g := 1.0
 	for i := range m.stages {
@@ -146,18 +140,13 @@ func (m *gainModel) maxGainAt(f float64) float64 {
 	return g
 }
 
-// passbandPeak is the largest prefixGainAt over the channel's band
+// peak is the largest at over the channel's band
 // [0, fa] (the protected edge; the passband's without one) and where it
 // lies: the best of evenly spaced points, 64 or eight to each ripple of
 // the stages up to i (a FIR of n taps at rate r ripples about n fa / r
 // times over the band), at most 2^14, the highest peakRefines local maxima
 // within 1% of the best refined between their neighbours by golden
 // section.
-func passbandPeak(c Cascade, w *Widths, i int) (f, g float64) {
-	return newGainModel(c, w).peak(c, i)
-}
-
-// peak is passbandPeak on the model.
 func (m *gainModel) peak(c Cascade, i int) (f, g float64) {
 	fa := c.protectedEdge()
 	at := func(x float64) float64 { return m.at(i, x) }
@@ -202,12 +191,12 @@ func (m *gainModel) peak(c Cascade, i int) (f, g float64) {
 }
 
 // peakRefines is how many of the passband's highest local maxima
-// passbandPeak refines.
+// peak refines.
 const peakRefines = 4
 
 // headroomPoints (Evaluate's, for the report) adds to every stage whose
 // output an input tone at the input word's largest code in the channel's
-// band can drive past its own largest code (by prefixGainAt's bound, images
+// band can drive past its own largest code (by gainModel.at's bound, images
 // included) a point saying where and by how much: the input must stay
 // that far below full scale there, or the stage may saturate.
 func headroomPoints(c Cascade, w *Widths) {

@@ -9,10 +9,10 @@ import (
 
 // For a decimation cascade, the in-band gain bound is the whole quantised
 // chain's response (chain.Chain.Gain, another path to the same figure)
-// scaled to full scale by the planned DC gain, and passbandPeak finds its
+// scaled to full scale by the planned DC gain, and gainModel.peak finds its
 // largest value over the passband within 1e-6 of a brute-force scan of
 // 20000 points. Seeded random CIC + FIR cascades.
-func TestPrefixGainAtAgainstChain(t *testing.T) {
+func TestGainBoundAgainstChain(t *testing.T) {
 	rng := rand.New(rand.NewPCG(41, 9))
 	for trial := 0; trial < 16; trial++ {
 		c, words := randomAliasChain(rng)
@@ -22,19 +22,20 @@ func TestPrefixGainAtAgainstChain(t *testing.T) {
 		}
 		q, _ := cascadeChain(c, w, true)
 		last := len(c.Stages) - 1
+		gm := newGainModel(c, w)
 		brute := 0.0
 		for k := 0; k <= 20000; k++ {
 			f := c.Passband * float64(k) / 20000
 			want := q.Gain(f) / q.Gain(0) * w.DCGain
-			got := prefixGainAt(c, w, last, f)
+			got := gm.at(last, f)
 			if math.Abs(got-want) > 1e-9*want {
-				t.Fatalf("trial %d, %g Hz: prefixGainAt %.12g, the chain's response %.12g", trial, f, got, want)
+				t.Fatalf("trial %d, %g Hz: the bound %.12g, the chain's response %.12g", trial, f, got, want)
 			}
 			brute = math.Max(brute, got)
 		}
-		_, peak := passbandPeak(c, w, last)
+		_, peak := gm.peak(c, last)
 		if peak < brute*(1-1e-6) {
-			t.Errorf("trial %d: passbandPeak %.9g below the scan's %.9g", trial, peak, brute)
+			t.Errorf("trial %d: the peak search %.9g below the scan's %.9g", trial, peak, brute)
 		}
 	}
 }
@@ -53,7 +54,7 @@ func TestHeadroomPointUnityGain(t *testing.T) {
 		}
 		headroomPoints(c, w)
 		last := len(w.Stages) - 1
-		_, peak := passbandPeak(c, w, last)
+		_, peak := newGainModel(c, w).peak(c, last)
 		has := false
 		for _, p := range w.Stages[last].Points {
 			has = has || strings.HasPrefix(p, "headroom:")
@@ -97,7 +98,7 @@ func TestHeadroomFractionalLeftOut(t *testing.T) {
 		_, _, cas, res := plannedFracInterp(t, rng, trial%2 == 1)
 		w := res.Widths
 		for i := range w.Stages {
-			if got := prefixGainAt(cas, w, i, 0.7*cas.Passband); got != prefixGain(w, i) {
+			if got := newGainModel(cas, w).at(i, 0.7*cas.Passband); got != prefixGain(w, i) {
 				t.Errorf("trial %d, stage %d: bound %g, the gain at 0 Hz %g", trial, i+1, got, prefixGain(w, i))
 			}
 			for _, p := range w.Stages[i].Points {
@@ -125,7 +126,7 @@ func TestHeadroomNyquistLineOnce(t *testing.T) {
 	if err != nil {
 		t.Fatal(err)
 	}
-	if got, want := prefixGainAt(c, w, 0, 0), prefixGain(w, 0); math.Abs(got-want) > 1e-12 {
+	if got, want := newGainModel(c, w).at(0, 0), prefixGain(w, 0); math.Abs(got-want) > 1e-12 {
 		t.Errorf("DC bound %.15g, want the DC gain %.15g", got, want)
 	}
 }
@@ -147,5 +148,73 @@ func TestHeadroomNarrowWords(t *testing.T) {
 				}
 			}
 		}
+	}
+}
+
+// The bound against the integer data path (Model, independent of the
+// bound's arithmetic): interpolation chains whose compensator comes before
+// its CIC, driven by a tone at 41 frequencies over [0, fa] and two phases,
+// at a level that keeps every stage clear of saturation; each stage's
+// measured peak, in its full scale, stays within the bound at that
+// frequency times the level, plus four output LSBs for the rounding.
+func TestHeadroomBoundAgainstModel(t *testing.T) {
+	for _, tc := range []struct {
+		notation string
+		fin, fp  float64
+	}{
+		{"fir2 > cic5m2r16", 2.5e6, 1e6},
+		{"fir4 > cic4m1r8", 1e6, 300e3},
+		{"fir3 > hb > cic3m1r10", 1e6, 150e3},
+	} {
+		spec, ch := designedInterp(t, tc.notation, tc.fin, tc.fp, 16, 16)
+		cas, words, err := FromChain(spec, ch)
+		if err != nil {
+			t.Fatal(err)
+		}
+		w, err := Plan(cas, words, Settings{})
+		if err != nil {
+			t.Fatal(err)
+		}
+		gm := newGainModel(cas, w)
+		fa := cas.protectedEdge()
+		level := 0.5 / gm.maxGainAt(fa) // the band's edge lifts most
+		for k := 0; k <= 40; k++ {
+			level = math.Min(level, 0.5/gm.maxGainAt(fa*float64(k)/40))
+		}
+		inMax := math.Ldexp(1, words.InputBits-1)
+		tight := 0.0 // the largest measured peak over its bound
+		for k := 0; k <= 40; k++ {
+			f := fa * float64(k) / 40
+			for _, phase := range []float64{0, math.Pi / 3} {
+				x := make([]int64, 4096)
+				for n := range x {
+					x[n] = int64(math.Round(level * (inMax - 1) * math.Cos(2*math.Pi*f/tc.fin*float64(n)+phase)))
+				}
+				m, err := NewModel(cas, w)
+				if err != nil {
+					t.Fatal(err)
+				}
+				outs, err := m.Run(x)
+				if err != nil {
+					t.Fatal(err)
+				}
+				for i, y := range outs {
+					fs := math.Ldexp(1, w.Stages[i].OutputBits-1)
+					peak := 0.0
+					for _, v := range y[len(y)/4:] { // after the transients
+						peak = math.Max(peak, math.Abs(float64(v)))
+					}
+					if bound := gm.at(i, f)*level + 4/fs; peak/fs > bound {
+						t.Errorf("%s, stage %d, %.0f Hz: measured peak %.6f of full scale, bound %.6f", tc.notation, i+1, f, peak/fs, bound)
+					}
+					tight = math.Max(tight, peak/fs/(gm.at(i, f)*level))
+				}
+			}
+		}
+		// A bound far above every peak would pass whatever it said.
+		if tight < 0.95 {
+			t.Errorf("%s: the peaks reach at most %.3f of the bound: the test checks little", tc.notation, tight)
+		}
+		t.Logf("%s: the peaks reach %.4f of the bound", tc.notation, tight)
 	}
 }

@@ -259,11 +259,11 @@ func TestInterpolationHeadroom(t *testing.T) {
 		t.Fatal(err)
 	}
 	// Lowered by the largest gain to a stage's output at the tone's own
-	// frequency, its images included (prefixGainAt), which is at least the
+	// frequency, its images included (gainModel.at), which is at least the
 	// gain at 0 Hz.
 	gmax := g
 	for i := range w.Stages {
-		gmax = math.Max(gmax, prefixGainAt(cas, w, i, 0.4*cas.Passband))
+		gmax = math.Max(gmax, newGainModel(cas, w).at(i, 0.4*cas.Passband))
 	}
 	if want := -1 - 20*math.Log10(gmax); math.Abs(bt.Tones[0].Level-want) > 1e-9 || bt.Tones[0].Level > -1-20*math.Log10(g) || !bt.SNRValid || bt.SNRDB < 80 {
 		t.Errorf("default tone at %.3f dBFS (want %.3f), SNR %.2f dB valid %v (%s)", bt.Tones[0].Level, want, bt.SNRDB, bt.SNRValid, bt.SNRNote)
