@@ -109,6 +109,7 @@ type engine struct {
 	meas     []point
 	measV    []float64
 	tmp      []point
+	trim     trimmer
 	best     []point
 	prevF    []float64
 	emax     int     // scale of lam: true weights are lam * 2^(emax+m-1)
@@ -970,38 +971,7 @@ func (e *engine) exchange() error {
 		}
 		e.tmp = append(e.tmp, p)
 	}
-	s := e.tmp
-	for len(s) > m {
-		if len(s) == m+1 {
-			if math.Abs(s[0].e) < math.Abs(s[len(s)-1].e) {
-				s = s[1:]
-			} else {
-				s = s[:len(s)-1]
-			}
-			break
-		}
-		k := 0
-		for q := range s {
-			if math.Abs(s[q].e) < math.Abs(s[k].e) {
-				k = q
-			}
-		}
-		switch {
-		case k == 0:
-			s = s[1:]
-		case k == len(s)-1:
-			s = s[:k]
-		default:
-			// Removing an inner point joins two of equal sign: keep the
-			// larger of them.
-			keep := s[k-1]
-			if math.Abs(s[k+1].e) > math.Abs(keep.e) {
-				keep = s[k+1]
-			}
-			s[k-1] = keep
-			s = append(s[:k], s[k+2:]...)
-		}
-	}
+	s := e.trim.do(e.tmp, m)
 	if len(s) < m {
 		return fmt.Errorf("remez: only %d alternating extrema for %d reference points (numerical breakdown)", len(s), m)
 	}
