@@ -508,7 +508,7 @@ func plan(c Cascade, w Words, s Settings, minBits []int) (*Widths, error) {
 			return nil, err
 		}
 		sws[target].GainCorrection = k
-		sws[target].Points = append(sws[target].Points, fmt.Sprintf("gain correction: taps scaled by %.9g before quantisation (UnityGain)", k))
+		sws[target].Points = append(sws[target].Points, fmt.Sprintf("gain correction: taps scaled by %.9g before quantisation (words.unity_gain)", k))
 		out.GainCorrection, out.CorrectedStage = k, target
 	}
 	for i := range sws {

@@ -19,6 +19,12 @@
 // keeps tables and figures from splitting across pages and prints each
 // link's target beside it.
 //
+// Each stage card of the recommended chain carries its word-length plan's
+// rounding points (report.json's rounding_points): the headroom points,
+// where an input within full scale can drive the stage's output past its
+// largest code, as a marked row under the word lengths, the others as a
+// list in signal order at the card's foot.
+//
 // Output is deterministic: the same inputs give the same bytes (no dates, no
 // absolute paths).
 package htmlreport

@@ -314,6 +314,13 @@ func inlineSVG(b []byte) (template.HTML, error) {
 
 type kv struct{ K, V string }
 
+// stageRow is a row of a stage card. Warn marks one the designer must act
+// on (a headroom point): it spans the card, marked as the cautions are.
+type stageRow struct {
+	K, V string
+	Warn bool
+}
+
 type frontRow struct {
 	Index                                                       int
 	Rec                                                         bool
@@ -331,8 +338,12 @@ type frontRow struct {
 
 type stageView struct {
 	Title string
-	Rows  []kv
+	Rows  []stageRow
 	Links []string
+	// Points are the stage's rounding points (report.json's
+	// rounding_points) in signal order, but its headroom points, which
+	// are rows of their own under the word lengths.
+	Points []string
 }
 
 type recView struct {
@@ -659,7 +670,7 @@ func stageViews(c report.Chain, files []string, prefix string, clock bool) []sta
 		if s.Interpolation > 0 && (s.Kind == "polyphase" || s.Kind == "farrow") {
 			sv.Title = fmt.Sprintf("Stage %d: %s, rate x %d/%d", i+1, map[string]string{"polyphase": "polyphase", "farrow": "Farrow"}[s.Kind], s.Interpolation, s.Decimation)
 		}
-		add := func(k, v string) { sv.Rows = append(sv.Rows, kv{k, v}) }
+		add := func(k, v string) { sv.Rows = append(sv.Rows, stageRow{K: k, V: v}) }
 		add("Rates", freq(s.InputRateHz)+" → "+freq(s.OutputRateHz))
 		switch s.Kind {
 		case "polyphase":
@@ -713,6 +724,18 @@ func stageViews(c report.Chain, files []string, prefix string, clock bool) []sta
 					m += fmt.Sprintf(", %d native blocks at the clock", *w.HardwareMultipliers)
 				}
 				add("Multiplier", m)
+			}
+			// Under the word lengths, as the terminal prints them: the
+			// headroom points, where an input within full scale can drive
+			// this output past its largest code (package chain/fixed,
+			// Headroom). The other rounding points close the card, one an
+			// item, in report.json's order.
+			for _, p := range w.RoundingPoints {
+				if h, ok := strings.CutPrefix(p, "headroom: "); ok {
+					sv.Rows = append(sv.Rows, stageRow{K: "Headroom", V: h, Warn: true})
+				} else {
+					sv.Points = append(sv.Points, p)
+				}
 			}
 		}
 		add("Multiplies / output", trimFloat(s.MultipliesPerOutput, 2))

@@ -545,3 +545,94 @@ func TestOverLimitsShown(t *testing.T) {
 		}
 	}
 }
+
+// A stage's rounding points (report.json's rounding_points) close its card,
+// escaped and in order; its headroom points are rows of their own under
+// its word lengths, as the terminal prints them; a stage without points
+// gets neither, and nor does a page whose chain has none.
+func TestStageRoundingPoints(t *testing.T) {
+	plain, err := Plan(func() PlanPage { p, _ := samplePage(t); return p }())
+	if err != nil {
+		t.Fatal(err)
+	}
+	for _, no := range []string{`class="warn"`, `class="points"`, "Rounding points", "Headroom"} {
+		if strings.Contains(string(plain), no) {
+			t.Errorf("a page without rounding points holds %q", no)
+		}
+	}
+
+	r := sampleReport(t)
+	st := r.Front[r.Recommended].Stages[2].StageReport
+	st.RoundingPoints = []string{
+		"products and sum: exact (24 x 18 bits into 46-bit accumulator)",
+		"output: round half up, dropping 17 LSBs, then saturate to 24 bits <b>",
+		"headroom: an input tone at 412.5 kHz in the passband can peak at +0.412 dB of this output's full scale (the stages' gain there, images included), so above -0.412 dBFS it may saturate the 24-bit output & <script>",
+	}
+	p, _ := samplePageOf(t, r)
+	b, err := Plan(p)
+	if err != nil {
+		t.Fatal(err)
+	}
+	page := string(b)
+	checkSelfContained(t, page)
+	for _, bad := range []string{"<b>", "& <script>", "headroom: an input tone"} {
+		if strings.Contains(page, bad) {
+			t.Errorf("the page holds %q: unescaped, or the headroom point listed twice", bad)
+		}
+	}
+	// Stage 3's card, in order: its word lengths, its multiplier, the
+	// headroom row, the rest of its rows, its files, then its points.
+	i := strings.Index(page, "Stage 3: FIR, decimate by 4")
+	if i < 0 {
+		t.Fatal("no stage 3 card")
+	}
+	card := page[i:]
+	card = card[:strings.Index(card, "</table>")]
+	at := 0
+	for _, want := range []string{
+		"<th scope=\"row\">Word lengths</th><td>in 24 bits, accumulator 46 bits, out 24 bits</td>",
+		"<th scope=\"row\">Multiplier</th>",
+		`<tr class="warn"><td colspan="2"><strong>Headroom:</strong> an input tone at 412.5 kHz in the passband can peak at &#43;0.412 dB of this output&#39;s full scale (the stages&#39; gain there, images included), so above -0.412 dBFS it may saturate the 24-bit output &amp; &lt;script&gt;</td></tr>`,
+		"<th scope=\"row\">Multiplies / output</th>",
+		"<th scope=\"row\">Coefficient files</th>",
+		`<td class="points" colspan="2"><strong>Rounding points</strong>, in signal order:<ol>`,
+		"<li>products and sum: exact (24 x 18 bits into 46-bit accumulator)</li>",
+		"<li>output: round half up, dropping 17 LSBs, then saturate to 24 bits &lt;b&gt;</li>",
+		"</ol></td></tr>",
+	} {
+		j := strings.Index(card[at:], want)
+		if j < 0 {
+			t.Fatalf("stage 3's card lacks %q after byte %d:\n%s", want, at, card)
+		}
+		at += j + len(want)
+	}
+	// Stages 1 and 2 have none: one headroom row and one list in the page.
+	if n := strings.Count(page, `class="warn"`); n != 1 {
+		t.Errorf("%d headroom rows, want 1", n)
+	}
+	if n := strings.Count(page, `class="points"`); n != 1 {
+		t.Errorf("%d lists of rounding points, want 1", n)
+	}
+	b2, _ := Plan(p)
+	if !bytes.Equal(b, b2) {
+		t.Error("two runs differ")
+	}
+
+	// A sweep's value sections draw the stage cards alike.
+	s, _ := specfile.Example()
+	v, err := sweep.ParseVary("rejection=80:85:5")
+	if err != nil {
+		t.Fatal(err)
+	}
+	rs := []sweep.Result{{Value: 80, Status: sweep.OK, Report: r}, {Value: 85, Status: sweep.OK, Report: sampleReport(t)}}
+	sb, err := Sweep(SweepPage{Source: "built-in example", Doc: sweep.NewDoc(s, v, rs)})
+	if err != nil {
+		t.Fatal(err)
+	}
+	if n := strings.Count(string(sb), `class="warn"`); n != 1 {
+		t.Errorf("sweep page: %d headroom rows, want 1", n)
+	}
+	if n := strings.Count(string(sb), `class="points"`); n != 1 {
+		t.Errorf("sweep page: %d lists of rounding points, want 1", n)
+	}
+}

@@ -38,6 +38,10 @@ table.kv th { font-weight: 600; white-space: nowrap; padding-right: 1.2em; }
 .stage table.kv th { white-space: normal; width: 44%; padding-right: .6em; }
 .stage td { overflow-wrap: anywhere; }
 .stage h3 { margin-bottom: .1em; }
+.stage tr.warn td { border-left: 4px solid #d55e00; color: #8a2c00; background: #fff5ec; }
+.stage td.points { font-size: .9em; }
+.stage td.points ol { margin: .2em 0 0; padding-left: 1.7em; }
+.stage td.points li { margin: .1em 0; }
 .files { font-size: .92em; }
 figure { margin: 1em 0 1.4em; }
 figure svg { display: block; width: 100%; max-width: 52em; height: auto; margin: 0 auto; }
@@ -52,7 +56,7 @@ footer { margin-top: 2.5em; font-size: .85em; color: #555; border-top: 1px solid
   nav { display: none; }
   a { color: #000; text-decoration: none; }
   a.file::after { content: " (" attr(href) ")"; font-size: .85em; color: #333; }
-  .caution, .rec, tr.mark td, thead th { background: none; }
+  .caution, .rec, tr.mark td, thead th, .stage tr.warn td { background: none; }
   .scroll { overflow: visible; }
   table { font-size: 8pt; }
   th, td { padding: .18em .3em; }
@@ -97,8 +101,11 @@ const templates = `
 
 {{define "stages"}}<div class="stages">
 {{range .}}<div class="stage"><h3>{{.Title}}</h3><table class="kv"><tbody>
-{{range .Rows}}<tr><th scope="row">{{.K}}</th><td>{{.V}}</td></tr>
+{{range .Rows}}{{if .Warn}}<tr class="warn"><td colspan="2"><strong>{{.K}}:</strong> {{.V}}</td></tr>{{else}}<tr><th scope="row">{{.K}}</th><td>{{.V}}</td></tr>{{end}}
 {{end}}{{if .Links}}<tr><th scope="row">Coefficient files</th><td class="files">{{range $i, $l := .Links}}{{if $i}}<br>{{end}}<a class="file" href="{{$l}}">{{base $l}}</a>{{end}}</td></tr>
+{{end}}{{if .Points}}<tr><td class="points" colspan="2"><strong>Rounding points</strong>, in signal order:<ol>
+{{range .Points}}<li>{{.}}</li>
+{{end}}</ol></td></tr>
 {{end}}</tbody></table></div>
 {{end}}</div>{{end}}
 
