@@ -738,8 +738,15 @@ func stageViews(c report.Chain, files []string, prefix string, clock bool) []sta
 				}
 			}
 		}
-		add("Multiplies / output", trimFloat(s.MultipliesPerOutput, 2))
-		add("Adds / output", trimFloat(s.AddsPerOutput, 2))
+		// Counted per sample on the channel side: per output of a
+		// decimation chain, per input of an interpolation chain (report.json
+		// keeps the one name for both).
+		side := "output"
+		if c.Interpolates() {
+			side = "input"
+		}
+		add("Multiplies / "+side, trimFloat(s.MultipliesPerOutput, 2))
+		add("Adds / "+side, trimFloat(s.AddsPerOutput, 2))
 		add("Memory", fmt.Sprintf("%d words, %d bits", s.MemoryWords, s.MemoryBits))
 		add("Latency", seconds(s.LatencyS))
 		if clock && s.Multipliers != nil {

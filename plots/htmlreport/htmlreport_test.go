@@ -12,6 +12,7 @@ import (
 	"strings"
 	"testing"
 
+	"github.com/stepdown-dsp/stepdown/chain"
 	"github.com/stepdown-dsp/stepdown/chain/fixed"
 	"github.com/stepdown-dsp/stepdown/chain/specfile"
 	"github.com/stepdown-dsp/stepdown/optimize"
@@ -634,5 +635,57 @@ func TestStageRoundingPoints(t *testing.T) {
 	}
 	if n := strings.Count(string(sb), `class="points"`); n != 1 {
 		t.Errorf("sweep page: %d lists of rounding points, want 1", n)
+	}
+}
+
+// An interpolation chain's counts are per input sample (README, "counts"):
+// its stage cards say so, and never "/ output". An invented 4 MS/s to
+// 64 MS/s transmit chain, checked as `stepdown check` would.
+func TestInterpolationStageCardsPerInput(t *testing.T) {
+	s, err := specfile.Parse("tx.toml", []byte(`input_rate = "4 MHz"
+output_rate = "64 MHz"
+passband = "1.2 MHz"
+ripple = "0.2 dB"
+rejection = "60 dB"
+`))
+	if err != nil {
+		t.Fatal(err)
+	}
+	plan, err := chain.ParseNotation("cic4m1r8 > fir2")
+	if err != nil {
+		t.Fatal(err)
+	}
+	ctx := context.Background()
+	cand, _, err := optimize.Check(ctx, s.Chain, plan, s.SearchSettings())
+	if err != nil {
+		t.Fatal(err)
+	}
+	res := &optimize.Result{Candidates: 1, FeasibleAll: 1, Designed: 1, Dropped: map[optimize.Reason]int{},
+		Front: []optimize.Candidate{cand}, Reason: "only one"}
+	rep, err := report.NewContext(ctx, "check", s, res)
+	if err != nil {
+		t.Fatal(err)
+	}
+	files, err := report.Files(ctx, rep, res, s)
+	if err != nil {
+		t.Fatal(err)
+	}
+	files, err = AddPlanPage("tx.toml", rep, files)
+	if err != nil {
+		t.Fatal(err)
+	}
+	page := string(files[len(files)-1].Data)
+	i := strings.Index(page, "Stage 1: FIR, interpolate by 2")
+	if i < 0 {
+		t.Fatal("no stage 1 card")
+	}
+	cards := page[i:]
+	for _, want := range []string{"<th scope=\"row\">Multiplies / input</th>", "<th scope=\"row\">Adds / input</th>"} {
+		if n := strings.Count(cards, want); n != 2 {
+			t.Errorf("%d cards hold %q, want 2", n, want)
+		}
+	}
+	if strings.Contains(cards, "/ output</th>") {
+		t.Error("an interpolation chain's stage card counts per output")
 	}
 }
