@@ -233,7 +233,11 @@
 // whose droop it corrects and lifts the band's edge by up to that droop
 // (16.9 dB for an order-7 CIC with M = 2 at 2.5 MS/s to a 1 MHz edge); with
 // UnityGain the passband ripple lifts the last stage's output a little
-// past full scale at the ripple's peaks.
+// past full scale at the ripple's peaks. The points cover tones only: an
+// input of another shape (a full-scale square wave or step, say) can drive
+// a stage's output up to its path's L1 gain, the sum of the absolute
+// values of the impulse response up to it, which the accumulators are
+// sized for and the output words are not; such an output saturates.
 //
 // # Interpolation
 //
