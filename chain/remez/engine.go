@@ -252,7 +252,7 @@ func newEngine(n int, rate float64, bands []Band, s Settings) (*engine, error) {
 			gainFn: b.GainFunc, weightFn: b.WeightFunc, rate: rate})
 	}
 	if len(bands) > e.r {
-		return nil, fmt.Errorf("remez: %d bands for n = %d taps: a length-%d filter has %d degrees of freedom, so use at most %d bands or a longer filter", len(bands), n, n, e.r, e.r)
+		return nil, fmt.Errorf("remez: %d bands for n = %d taps: a length-%d filter has %d degrees of freedom, so use at most %d bands or a longer filter: %w", len(bands), n, n, e.r, e.r, ErrTooManyBands)
 	}
 	if err := e.buildGrid(); err != nil {
 		return nil, err
@@ -272,6 +272,10 @@ const DefaultDensity = 16
 // longest design, 65535 taps, at density 63, and lengths up to about 4090
 // at the largest density the command line accepts (1024).
 const MaxGridPoints = 1 << 21
+
+// ErrTooManyBands is wrapped by the error of a design given more bands
+// than its length has degrees of freedom ((n+1)/2 for n taps).
+var ErrTooManyBands = errors.New("more bands than degrees of freedom")
 
 // ErrGridTooLarge is wrapped by the error of a design whose dense grid
 // would exceed MaxGridPoints.
@@ -340,6 +344,10 @@ const minBandPoints = 16
 // short half-band on a narrow passband had 2 points for 3 unknowns); each
 // band is split into equal steps no longer than that, so both of its edges
 // are on the grid, and into at least minBandPoints points.
+// gridCheckEvery is how many grid points buildGrid lays between looks at
+// the design's halt flag.
+const gridCheckEvery = 1 << 14
+
 func (e *engine) buildGrid() error {
 	delf := 0.5 / float64(e.density*e.r)
 	if !e.gridOnly {
@@ -403,27 +411,30 @@ func (e *engine) buildGrid() error {
 		e.bstart = append(e.bstart, len(e.grid))
 	}
 	scale, wmax := 0.0, 0.0
-	for i := range e.grid {
-		bi := 0
-		for i >= e.bstart[bi+1] {
-			bi++
-		}
-		// Each band's gain and weight functions are called once a point
-		// (they can be costly: a compensator's CIC droop); gridScale's
-		// figures are taken here.
+	for bi := range e.bands {
 		bd := &e.bands[bi]
-		f := e.grid[i].f
-		d, wt := bd.desired(f), bd.wt(f)
-		g := e.mkpointDW(f, bi, d, wt)
-		if math.IsNaN(g.d) || math.IsInf(g.d, 0) {
-			return fmt.Errorf("remez: band %d GainFunc(%v Hz) = %v: the desired gain must be finite", bi, g.f*e.rate, d)
+		for i := e.bstart[bi]; i < e.bstart[bi+1]; i++ {
+			if i%gridCheckEvery == 0 && e.halted() {
+				if err := e.stopped(); err != nil {
+					return err
+				}
+			}
+			// Each band's gain and weight functions are called once a
+			// point (they can be costly: a compensator's CIC droop);
+			// gridScale's figures are taken here.
+			f := e.grid[i].f
+			d, wt := bd.desired(f), bd.wt(f)
+			g := e.mkpointDW(f, bi, d, wt)
+			if math.IsNaN(g.d) || math.IsInf(g.d, 0) {
+				return fmt.Errorf("remez: band %d GainFunc(%v Hz) = %v: the desired gain must be finite", bi, g.f*e.rate, d)
+			}
+			if !(wt > 0) || math.IsInf(wt, 0) {
+				return fmt.Errorf("remez: band %d WeightFunc(%v Hz) = %v: the weight must be positive and finite", bi, g.f*e.rate, wt)
+			}
+			scale = math.Max(scale, math.Abs(d))
+			wmax = math.Max(wmax, wt)
+			e.grid[i] = g
 		}
-		if !(wt > 0) || math.IsInf(wt, 0) {
-			return fmt.Errorf("remez: band %d WeightFunc(%v Hz) = %v: the weight must be positive and finite", bi, g.f*e.rate, wt)
-		}
-		scale = math.Max(scale, math.Abs(d))
-		wmax = math.Max(wmax, wt)
-		e.grid[i] = g
 	}
 	if scale == 0 {
 		scale = 1

@@ -306,6 +306,8 @@ func designFailure(ctx context.Context, err error, f designFlags) error {
 		// length that should meet (seen with wide don't-care regions
 		// beside a passband not from 0), not the user's limits.
 		return fmt.Errorf("design: the search for the shortest filter ended without an answer: %d taps fail and the design of %d taps broke down (its error fell to rounding level, which --ripple %g dB and --atten %g dB do not explain): design a length with --taps", se.Fail, se.Met, f.ripple, f.atten)
+	case errors.Is(err, remez.ErrTooManyBands) && f.taps > 0:
+		return usagef("--taps %d: %d bands (--pass and --stop together) are more than a %d-tap filter can shape, at most %d; use fewer --stop bands or at least %d --taps", f.taps, len(f.bands), f.taps, (f.taps+1)/2, 2*len(f.bands)-1)
 	case errors.Is(err, remez.ErrGridTooLarge) && isSearch:
 		return usagef("--grid %d: no filter up to %d taps, the longest whose grid fits in memory at this density, meets --ripple and --atten; lower --grid (16 fits every length up to %d taps)", f.grid, se.Limit, maxDesignTaps)
 	case errors.Is(err, remez.ErrGridTooLarge):

@@ -3,6 +3,7 @@ package main
 import (
 	"bytes"
 	"encoding/json"
+	"fmt"
 	"math"
 	"math/rand/v2"
 	"os"
@@ -248,6 +249,22 @@ func TestDesignTapsTooMany(t *testing.T) {
 	r := runBinary(t, t.TempDir(), nil, "design", "--rate", "1", "--pass", "0:0.2", "--stop", "0.25:0.5", "--ripple", "0.1", "--atten", "60", "--taps", "501")
 	if r.code != 2 || !strings.Contains(r.stderr, "--taps 501") || strings.Contains(r.stderr, "remez") {
 		t.Errorf("exit %d, stderr %q: want 2 naming --taps 501 and no package", r.code, r.stderr)
+	}
+}
+
+// More bands than --taps has degrees of freedom is bad input: exit 2,
+// naming --taps, the most bands that length takes and the least length
+// for these bands (an adversarial review saw exit 1 and package words).
+func TestDesignTooManyBands(t *testing.T) {
+	args := []string{"design", "--rate", "1", "--pass", "0:0.05", "--ripple", "0.1", "--atten", "40", "--taps", "9"}
+	for i := range 5 {
+		lo := 0.1 + 0.08*float64(i)
+		args = append(args, "--stop", fmt.Sprintf("%g:%g", lo, lo+0.04))
+	}
+	r := runBinary(t, t.TempDir(), nil, args...)
+	want := "--taps 9: 6 bands (--pass and --stop together) are more than a 9-tap filter can shape, at most 5; use fewer --stop bands or at least 11 --taps"
+	if r.code != 2 || !strings.Contains(r.stderr, want) || strings.Contains(r.stderr, "remez") {
+		t.Errorf("exit %d, stderr %q: want 2 and %q", r.code, r.stderr, want)
 	}
 }
 
