@@ -433,15 +433,22 @@ func (m *lengthSearch) nearestRef(n int) int {
 // search returns the shortest length of the given parity (n%2 == odd) that
 // meets, starting from n0.
 func (m *lengthSearch) search(n0, odd int) (int, error) {
-	lowest := 3
+	// A length of this parity with r coefficients shapes at most r bands
+	// (Design refuses more): 2 nb - 1 taps for nb bands when odd, 2 nb
+	// when even, and 3 or 4 at least.
+	nb := len(m.bands)
+	lowest := max(3, 2*nb-1)
 	if odd == 0 {
-		lowest = 4
+		lowest = max(4, 2*nb)
 	}
 	top := m.maxTaps
 	if top%2 != odd {
 		top--
 	}
 	if top < lowest {
+		if lowest > 4 {
+			return 0, fmt.Errorf("remez: %d bands need at least %d taps of this parity (one coefficient a band), more than maxTaps = %d: %w", nb, lowest, m.maxTaps, ErrTooManyBands)
+		}
 		return 0, fmt.Errorf("remez: maxTaps = %d leaves no length of this parity", m.maxTaps)
 	}
 	n0 = max(lowest, min(n0, top))

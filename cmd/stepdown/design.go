@@ -301,6 +301,12 @@ func designFailure(ctx context.Context, err error, f designFlags) error {
 		return usagef("--taps %d: more than these bands need: the response meets them to the rounding level of double precision (below %.1g), where the exchange cannot level its error; use fewer taps, or leave --taps out to find the shortest filter", f.taps, remez.RoundingLevel(f.taps))
 	case errors.Is(err, remez.ErrRoundingLevel) && isSearch && se.Met > 0 && min(f.dp, f.ds) <= roundingCause*remez.RoundingLevel(se.Met):
 		return roundingFailure(ctx, se, f)
+	case errors.Is(err, remez.ErrRoundingLevel) && isSearch && se.Fail == 0 && se.Met <= 2*len(f.bands)+1:
+		// The shortest length that can shape so many bands at all (one
+		// coefficient a band) is already far beyond what they need.
+		return usagef("--stop: %d bands (--pass and --stop together) need at least %d taps, one coefficient a band, and at that length the response meets them to the rounding level of double precision, where the exchange cannot level its error; merge neighbouring --stop bands or drop some", len(f.bands), 2*len(f.bands)-1)
+	case errors.Is(err, remez.ErrTooManyBands) && f.taps == 0:
+		return usagef("--stop: %d bands (--pass and --stop together) need at least %d taps, one coefficient a band, more than the %d allowed; merge neighbouring --stop bands or drop some", len(f.bands), 2*len(f.bands)-1, maxDesignTaps)
 	case errors.Is(err, remez.ErrRoundingLevel) && isSearch:
 		// Limits far above rounding: the exchange broke down at the
 		// length that should meet (seen with wide don't-care regions
