@@ -100,15 +100,6 @@ func (e *engine) design() (*Result, error) {
 		defer stop()
 	}
 	e.initRef()
-	if serr := e.stopped(); serr != nil {
-		return nil, serr
-	}
-	if e.laxAt > 0 && !e.gridOnly {
-		// A seed design of laxAt <= n taps ran into rounding level: so
-		// does this one, after many more iterations of far more work.
-		scale, _ := e.gridScale()
-		return nil, e.roundingError(RoundingLevel(e.n)*scale, fmt.Errorf("a %d-tap seed design already was", e.laxAt))
-	}
 	tol := tolContinuous
 	if e.gridOnly {
 		tol = tolGrid
@@ -191,7 +182,7 @@ func (e *engine) gridScale() (scale, wmax float64) { return e.gscale, e.gwmax }
 // (when the exchange failed) the levelled deviation in every band, is below
 // max(1e-13, n 1e-14) of the largest desired gain.
 func (e *engine) laxCheck(dev []float64, conv bool) error {
-	scale, _ := e.gridScale()
+	scale, wmax := e.gridScale()
 	// Rounding in a sum of n taps is about n eps of the largest gain.
 	lim := RoundingLevel(e.n) * scale
 	tiny := true
@@ -202,32 +193,14 @@ func (e *engine) laxCheck(dev []float64, conv bool) error {
 	// one is evidence of a lax specification only when the exchange had a
 	// real budget to work with; a run cut short by a small MaxIterations
 	// may simply not have found the structure yet.
-	if !conv && e.deltaAtRounding(e.maxIter) {
+	if !conv && e.maxIter >= minLaxIter && math.Abs(e.delta)/wmax <= lim {
 		tiny = true
 	}
 	if !tiny {
 		return nil
 	}
 	if !conv {
-		return e.roundingError(lim, ErrNotConverged)
-	}
-	return e.roundingError(lim, nil)
-}
-
-// deltaAtRounding reports the evidence of a run that did not converge
-// within a budget of budget iterations that its bands are met to rounding
-// level: a levelled deviation within RoundingLevel(n) of the largest
-// desired gain, the largest weight taken out, after a real budget.
-func (e *engine) deltaAtRounding(budget int) bool {
-	scale, wmax := e.gridScale()
-	return budget >= minLaxIter && math.Abs(e.delta)/wmax <= RoundingLevel(e.n)*scale
-}
-
-// roundingError is the error of a design of e.n taps met to rounding level
-// lim, wrapping also (when not nil) why the design stopped.
-func (e *engine) roundingError(lim float64, also error) error {
-	if also != nil {
-		return fmt.Errorf("remez: n = %d: the bands are met to rounding level (deviation below %.0e): %w (%w); shorten the filter, narrow the transitions or tighten the bands", e.n, lim, errRounding, also)
+		return fmt.Errorf("remez: n = %d: the bands are met to rounding level (deviation below %.0e): %w (%w); shorten the filter, narrow the transitions or tighten the bands", e.n, lim, errRounding, ErrNotConverged)
 	}
 	return fmt.Errorf("remez: n = %d: the bands are met to rounding level (deviation below %.0e): %w; shorten the filter, narrow the transitions or tighten the bands", e.n, lim, errRounding)
 }
@@ -257,19 +230,10 @@ func (e *engine) initRef() {
 		c.handOff = true
 		if c.buildGrid() == nil {
 			c.initRef()
-			if c.laxAt > 0 && seedLax {
-				e.laxAt = c.laxAt
-				return
-			}
-			_, conv, err := c.run(tolCoarse, e.seedIter())
-			if err == nil && len(c.ref) == e.r+1 {
+			if _, _, err := c.run(tolCoarse, e.seedIter()); err == nil && len(c.ref) == e.r+1 {
 				e.ref = append(e.ref[:0], c.ref...)
 				e.local = true
 				e.stepGap = c.stepGap
-				return
-			}
-			if c.laxEvidence(conv, err) && seedLax {
-				e.laxAt = c.n
 				return
 			}
 		}
@@ -284,16 +248,7 @@ func (e *engine) initRef() {
 		return
 	}
 	sub.initRef()
-	if sub.laxAt > 0 && seedLax {
-		e.laxAt = sub.laxAt
-		return
-	}
-	_, conv, err := sub.run(tolSeed, e.seedIter())
-	if sub.laxEvidence(conv, err) && seedLax {
-		e.laxAt = sub.n
-		return
-	}
-	if err != nil || len(sub.ref) != sub.r+1 {
+	if _, _, err := sub.run(tolSeed, e.seedIter()); err != nil || len(sub.ref) != sub.r+1 {
 		e.uniformRef()
 		return
 	}
@@ -303,24 +258,6 @@ func (e *engine) initRef() {
 		e.seedCnt[p.band]++
 	}
 	e.seedM = len(sub.ref)
-}
-
-// seedLax lets a seed design's evidence of rounding level end a design
-// at once; tests turn it off to check that the long way, the seeding and
-// exchange as they run without it, agrees.
-var seedLax = true
-
-// laxEvidence reports a seeding run (conv, err from run) that did not
-// converge with its levelled deviation at rounding level (deltaAtRounding,
-// laxCheck's rule): the bands are then met to rounding level at this
-// length, and so at every longer length of the same type, whose optimum
-// can only be smaller (a shorter symmetric filter, padded with zeros at
-// both ends, is one of them).
-func (e *engine) laxEvidence(conv bool, err error) bool {
-	if conv || e.stopped() != nil || errors.Is(err, errCannotMeet) {
-		return false
-	}
-	return e.deltaAtRounding(e.seedIter())
 }
 
 // seedIter bounds each seeding phase (coarse grid, shorter seed design):

@@ -84,16 +84,8 @@
 // met to rounding level counts as too long; one that cannot be designed
 // counts as failing. A search starts no shorter than the least length
 // with a coefficient for every band (2 nb - 1 taps for nb bands, odd; 2 nb
-// even), and wraps ErrTooManyBands when that is over its limit.
-//
-// A design whose seed design (half the length, or the coarse-grid run of
-// the same length) ends unconverged with its levelled deviation at
-// rounding level is refused at once with ErrRoundingLevel, by the same
-// rule the full design would apply at its end: a shorter symmetric filter
-// padded with zeros at both ends is one of the longer length, so the
-// longer optimum can only be smaller. A length tens of times what the
-// bands need is then refused in under a second instead of after minutes
-// of iterations at rounding noise (65535 taps at grid 31: 83 s to 0.6 s). Every phase of a design (coarse seeding, grid
+// even), and wraps ErrTooManyBands when that is over its limit. Every
+// phase of a design (coarse seeding, grid
 // iterations, local steps) is bounded by Settings.MaxIterations, so every
 // call returns in bounded time.
 //

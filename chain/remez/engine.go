@@ -121,7 +121,6 @@ type engine struct {
 	seedCnt []int
 	seedM   int
 	seeded  bool    // the start was scaled or coarse, not evenly spread
-	laxAt   int     // a seeding run of this many taps met the bands to rounding level (0: none)
 	bestGap float64 // smallest relative gap of the last run's grid passes
 	// wdev is the deviations' WeightFunc-shaped twin measured with the
 	// Result's Deviations (see deviations), for MinLength.
