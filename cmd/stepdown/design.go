@@ -305,7 +305,7 @@ func designFailure(ctx context.Context, err error, f designFlags) error {
 		// The shortest length that can shape so many bands at all (one
 		// coefficient a band) is already far beyond what they need.
 		return usagef("--stop: %d bands (--pass and --stop together) need at least %d taps, one coefficient a band, and at that length the response meets them to the rounding level of double precision, where the exchange cannot level its error; merge neighbouring --stop bands or drop some", len(f.bands), 2*len(f.bands)-1)
-	case errors.Is(err, remez.ErrTooManyBands) && f.taps == 0:
+	case errors.Is(err, remez.ErrTooManyBands) && f.taps == 0 && 2*len(f.bands)-1 > maxDesignTaps:
 		return usagef("--stop: %d bands (--pass and --stop together) need at least %d taps, one coefficient a band, more than the %d allowed; merge neighbouring --stop bands or drop some", len(f.bands), 2*len(f.bands)-1, maxDesignTaps)
 	case errors.Is(err, remez.ErrRoundingLevel) && isSearch:
 		// Limits far above rounding: the exchange broke down at the

@@ -349,18 +349,19 @@ func TestDesignBreakdownNotBlamedOnLimits(t *testing.T) {
 
 // A search whose least length able to shape the bands at all (one
 // coefficient a band) already meets them to rounding level is bad input:
-// exit 2 naming --stop, the band count and that length. 300 narrow stop
-// bands with don't-care gaps, invented.
+// exit 2 naming --stop, the band count and that length. 600 narrow stop
+// bands with don't-care gaps, invented (at 300 the 601 taps design, with
+// 190 dB to spare).
 func TestDesignSearchTooManyBands(t *testing.T) {
 	args := []string{"design", "--rate", "1", "--pass", "0:0.1", "--ripple", "0.1", "--atten", "60"}
-	const nb = 300
+	const nb = 600
 	w := 0.38 / nb
 	for i := range nb {
 		lo := 0.12 + float64(i)*w
 		args = append(args, "--stop", fmt.Sprintf("%.9f:%.9f", lo, lo+w/2))
 	}
 	r := runBinary(t, t.TempDir(), nil, args...)
-	want := "--stop: 301 bands (--pass and --stop together) need at least 601 taps, one coefficient a band"
+	want := "--stop: 601 bands (--pass and --stop together) need at least 1201 taps, one coefficient a band"
 	if r.code != 2 || !strings.Contains(r.stderr, want) || strings.Contains(r.stderr, "remez") {
 		t.Errorf("exit %d, stderr %q: want 2 and %q", r.code, r.stderr, want)
 	}
