@@ -12,11 +12,11 @@ import (
 // byte-identical (TestGolden holds the example's files to their bytes
 // too). A deliberate change of chain/fixed's plan or of the layout changes
 // it; check the new files, then record the hash the test prints. Last
-// recorded when the random chains' FIR bands were put in Hz at each
-// stage's rate (they had been fractions of the input rate, past the later
-// stages' Nyquist rates, which chain/fixed now refuses): one chain's
-// 6-bit rounding moved two taps.
-const decimationSnapshot = "6f996607e93f9fd77941e6579a4380dfa287ebd8475e558f95035da990b7f1bf"
+// recorded when the gain-correction rounding point, which the headers
+// quote, came to name the spec key words.unity_gain instead of the Go
+// field UnityGain (no other byte moved: with the old wording the old hash
+// holds).
+const decimationSnapshot = "86340ac61e81e80d197021f4ea42eba82813562a6ec75e09505b4f72077337a4"
 
 func TestDecimationBytesUnchanged(t *testing.T) {
 	h := sha256.New()
