@@ -15,6 +15,8 @@ import (
 	"testing"
 
 	"github.com/stepdown-dsp/stepdown/plots/report"
+
+	"github.com/stepdown-dsp/stepdown/chain/specfile"
 )
 
 // binary is the stepdown command built once for every test in this file.
@@ -689,5 +691,36 @@ func TestCheckBeatenBy(t *testing.T) {
 	}
 	if !strings.Contains(r.stdout, "does it with") || !strings.Contains(r.stdout, b["notation"].(string)) {
 		t.Errorf("terminal output does not say what beats the chain:\n%s", r.stdout)
+	}
+}
+
+// A spec file kept inside the --out folder would be deleted when the run
+// replaces the folder (an adversarial review saw plan do so and exit 0):
+// refused at once, exit 2, the spec left where it was, through the folder
+// and through a symbolic link to it.
+func TestOutHoldsTheSpec(t *testing.T) {
+	dir := t.TempDir()
+	if r := runBinary(t, dir, nil, "plan", "--out", "o", "--quiet"); r.code != 0 {
+		t.Fatalf("plan of the example: exit %d, %s", r.code, r.stderr)
+	}
+	spec := filepath.Join(dir, "o", "myspec.toml")
+	if err := os.WriteFile(spec, []byte(specfile.ExampleText), 0o644); err != nil {
+		t.Fatal(err)
+	}
+	if err := os.Symlink("o", filepath.Join(dir, "lo")); err != nil {
+		t.Fatal(err)
+	}
+	for _, args := range [][]string{
+		{"plan", "o/myspec.toml", "--out", "o"},
+		{"check", "lo/myspec.toml", "--chain", "cic4m1r8 > fir4", "--out", "./o/"},
+		{"sweep", "o/myspec.toml", "--vary", "rejection=80:85:5", "--out", "o"},
+	} {
+		r := runBinary(t, dir, nil, args...)
+		if r.code != 2 || !strings.Contains(r.stderr, "holds the spec file") {
+			t.Errorf("%v: exit %d, %q: want 2, naming the spec file", args, r.code, r.stderr)
+		}
+		if _, err := os.Stat(spec); err != nil {
+			t.Fatalf("%v: the spec is gone: %v", args, err)
+		}
 	}
 }

@@ -118,7 +118,7 @@ func newJob(c *cli.Context) (*job, error) {
 	if err != nil {
 		return nil, err
 	}
-	out, err := prepareOut(c.String("out"))
+	out, err := prepareOut(c)
 	if err != nil {
 		return nil, err
 	}

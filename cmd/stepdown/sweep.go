@@ -105,7 +105,7 @@ func runSweep(c *cli.Context) error {
 			return usagef("--vary %s: the spec interpolates (output_rate above input_rate); its ratio is stepped by interpolation", k.Name)
 		}
 	}
-	out, err := prepareOut(c.String("out"))
+	out, err := prepareOut(c)
 	if err != nil {
 		return err
 	}
