@@ -220,6 +220,44 @@ func (r *Report) Compare(cmp *Comparison) {
 // strain the memory bound.
 const maxComparisonBytes = 64 << 20
 
+// maxComparisonContainers and maxComparisonValues bound the objects and
+// arrays, and the values in arrays and objects, of a report.json that
+// ReadComparison decodes: a plan's has about five objects a front chain
+// (70 for 14 chains) and a value a tap, so the bounds are far above any
+// plan's (a thousand chains of a dozen 65535-tap stages), while decoding
+// at the bounds stays within a few hundred MB.
+const (
+	maxComparisonContainers = 1 << 18
+	maxComparisonValues     = 1 << 24
+)
+
+// jsonShape counts the objects and arrays (opening brackets) and the
+// values separated by commas outside strings in the JSON text b, valid or
+// not, in one pass.
+func jsonShape(b []byte) (containers, values int) {
+	in, esc := false, false
+	for _, c := range b {
+		switch {
+		case esc:
+			esc = false
+		case in:
+			switch c {
+			case '\\':
+				esc = true
+			case '"':
+				in = false
+			}
+		case c == '"':
+			in = true
+		case c == '{' || c == '[':
+			containers++
+		case c == ',':
+			values++
+		}
+	}
+	return containers, values
+}
+
 // ReadComparison reads the front of a plan's report.json at path, which
 // must be a complete plan (not stopped early) of a spec that prices chains
 // as spec does: the same rates, band edges, targets, signal, words,
@@ -250,6 +288,12 @@ func ReadComparison(path string, spec *specfile.Spec) (*Comparison, error) {
 	}
 	if len(b) > maxComparisonBytes {
 		return nil, fmt.Errorf("--front %q: over the %d MiB limit of a report.json to compare with", shown, maxComparisonBytes>>20)
+	}
+	// Decoding allocates by the document's shape, not its size: three
+	// million empty objects in a 9 MB front took 1.7 GB (adversarial
+	// review), so the shape is counted first, in one pass over the bytes.
+	if containers, values := jsonShape(b); containers > maxComparisonContainers || values > maxComparisonValues {
+		return nil, fmt.Errorf("--front %q: %d JSON objects and arrays and %d values, more than a plan's report.json holds (at most %d and %d); want the report.json a plan wrote", shown, containers, values, maxComparisonContainers, maxComparisonValues)
 	}
 	var rep Report
 	if err := json.Unmarshal(b, &rep); err != nil {
