@@ -1258,11 +1258,15 @@ func (p *parser) accumulatorFits(s *Spec) error {
 		}
 	}
 	raw, _ := p.lookup("words.coefficients")
-	rule := fmt.Sprintf("with %s = %d, a FIR or half-band stage's accumulator needs at least %d bits (data, coefficient and sum growth), and at most %d are supported: use words.coefficients <= %d",
+	rule := fmt.Sprintf("with %s = %d, a FIR or half-band stage's accumulator needs at least %d bits (data, coefficient and sum growth), and at most %d are supported: words.coefficients must be %d or less",
 		key, data, need, fixed.MaxAccumulatorBits, coef)
 	if words >= MinWordBits {
-		rule += fmt.Sprintf(", or %s <= %d", key, words)
+		rule += fmt.Sprintf(", or %s %d or less", key, words)
 	}
+	// A bound from the widths alone: the designed taps' sum of magnitudes
+	// adds growth, so a width at the bound may still be refused once the
+	// chain is planned, which then names what fits.
+	rule += " (a necessary bound: the designed taps add growth, and the plan names the widths that fit them)"
 	return p.errAt("words.coefficients", raw, "%s", rule)
 }
 

@@ -27,11 +27,11 @@ func TestAccumulatorWords(t *testing.T) {
 		frags               []string // nil: accepted
 	}{
 		{"32-bit input, 40-bit coefficients, 32-bit output", "input = 32\noutput = 32\ncoefficients = 40", "",
-			[]string{"spec.toml:9: words.coefficients = 40:", "with words.input = 32,", "at most 63 are supported", "use words.coefficients <= 33, or words.input <= 25"}},
+			[]string{"spec.toml:9: words.coefficients = 40:", "with words.input = 32,", "at most 63 are supported", "words.coefficients must be 33 or less, or words.input 25 or less (a necessary bound"}},
 		{"one stage: the input word alone", "input = 32\ncoefficients = 40", "max_stages = 1",
-			[]string{"words.coefficients = 40", "with words.input = 32,", "words.coefficients <= 33, or words.input <= 25"}},
+			[]string{"words.coefficients = 40", "with words.input = 32,", "words.coefficients must be 33 or less, or words.input 25 or less"}},
 		{"narrower output binds", "input = 32\noutput = 30\ncoefficients = 40", "",
-			[]string{"with words.output = 30,", "words.coefficients <= 35, or words.output <= 25"}},
+			[]string{"with words.output = 30,", "words.coefficients must be 35 or less, or words.output 25 or less"}},
 		{"the widest that fits", "input = 32\noutput = 32\ncoefficients = 33", "", nil},
 		{"a 24-bit word between stages may fit", "input = 32\ncoefficients = 40", "", nil},
 		{"a 16-bit output fits", "input = 32\noutput = 16\ncoefficients = 40", "", nil},
@@ -40,11 +40,11 @@ func TestAccumulatorWords(t *testing.T) {
 		{"floating-point coefficients", "input = 32\noutput = 32", "", nil},
 		{"CIC stages alone use no coefficients", "input = 32\noutput = 32\ncoefficients = 40", `kinds = ["cic"]`, nil},
 		{"a half-band needs them", "input = 32\noutput = 32\ncoefficients = 40", `kinds = ["cic", "hb"]`,
-			[]string{"words.coefficients = 40", "words.coefficients <= 33"}},
+			[]string{"words.coefficients = 40", "words.coefficients must be 33 or less"}},
 		// Without a CIC the first stage is a FIR or half-band, fed by the
 		// input word, whatever the word between stages.
 		{"no CIC: the input word binds", "input = 32\noutput = 24\ncoefficients = 40", `kinds = ["fir", "hb"]`,
-			[]string{"with words.input = 32,", "needs at least 70 bits", "words.coefficients <= 33, or words.input <= 25"}},
+			[]string{"with words.input = 32,", "needs at least 70 bits", "words.coefficients must be 33 or less, or words.input 25 or less"}},
 		{"no CIC, input word fits", "input = 24\noutput = 24\ncoefficients = 40", `kinds = ["fir", "hb"]`, nil},
 	}
 	for _, c := range cases {

@@ -225,7 +225,7 @@ func TestBadInputs(t *testing.T) {
 		specCase("input word 64", edit("input", "input = 64"), "words.input = 64", "[2, 32] bits", "word-length plan"),
 		specCase("output word 33", words("output = 33"), "words.output = 33", "[2, 32] bits"),
 		specCase("coefficients too wide for the data words", edit("input", "input = 32\noutput = 32\ncoefficients = 40"),
-			"spec.toml:9: words.coefficients = 40: with words.input = 32,", "at most 63 are supported", "words.coefficients <= 33, or words.input <= 25"),
+			"spec.toml:9: words.coefficients = 40: with words.input = 32,", "at most 63 are supported", "words.coefficients must be 33 or less, or words.input 25 or less"),
 		{name: "out is a file", spec: goodSpec, args: []string{"plan", "spec.toml", "--out", "afile"}, code: 2, frags: []string{"afile", "is a file"}},
 		{name: "out parent missing", spec: goodSpec, args: []string{"plan", "spec.toml", "--out", "nowhere/out"}, code: 2, frags: []string{"nowhere", "does not exist"}},
 		{name: "out foreign folder", spec: goodSpec, args: []string{"plan", "spec.toml", "--out", "folder"}, code: 2, frags: []string{"folder", "not a stepdown output folder"}},
