@@ -549,11 +549,11 @@ func planCautions(r *report.Report) []string {
 	}
 	rej, rip := c.BuiltFigures()
 	if c.Unjudged() {
-		out = append(out, fmt.Sprintf("The recommended chain misses the spec: its rounded taps could not be judged; as designed in floating point, its %s rejection is %.2f dB against %s dB and its ripple %.4f dB against %s dB.",
-			r.Spec.Unwanted(), rej, shortest(r.Spec.RejectionDB), rip, shortest(r.Spec.RippleDB)))
+		out = append(out, fmt.Sprintf("The recommended chain misses the spec: its rounded taps could not be judged; as designed in floating point, its %s rejection is %.2f dB against %s dB and its ripple %s against %s dB.",
+			r.Spec.Unwanted(), rej, shortest(r.Spec.RejectionDB), report.RippleText(rip), shortest(r.Spec.RippleDB)))
 	} else if !c.MeetsTargets {
-		out = append(out, fmt.Sprintf("The recommended chain misses the spec (judged on its %s): %s rejection %.2f dB against %s dB, ripple %.4f dB against %s dB.",
-			c.VerdictBasis, r.Spec.Unwanted(), rej, shortest(r.Spec.RejectionDB), rip, shortest(r.Spec.RippleDB)))
+		out = append(out, fmt.Sprintf("The recommended chain misses the spec (judged on its %s): %s rejection %.2f dB against %s dB, ripple %s against %s dB.",
+			c.VerdictBasis, r.Spec.Unwanted(), rej, shortest(r.Spec.RejectionDB), report.RippleText(rip), shortest(r.Spec.RippleDB)))
 	} else if c.RejectionMarginDB < 1 {
 		out = append(out, fmt.Sprintf("The recommended chain's rejection margin is thin (%.2f dB): data-path truncation can use it up.", c.RejectionMarginDB))
 	}
@@ -581,7 +581,7 @@ func planCautions(r *report.Report) []string {
 		if w.BitTrueReport != nil {
 			msg += " on " + w.TestSignal
 		}
-		msg += fmt.Sprintf("; with the rounded coefficients the cascade's %s rejection is %.2f dB and its passband ripple %.4f dB; its gain at 0 Hz from input to output full scale is %.2f dB", r.Spec.Unwanted(), w.QuantisedRejectionDB, w.QuantisedRippleDB, w.DCGainDB)
+		msg += fmt.Sprintf("; with the rounded coefficients the cascade's %s rejection is %.2f dB and its passband ripple %s; its gain at 0 Hz from input to output full scale is %s", r.Spec.Unwanted(), w.QuantisedRejectionDB, report.RippleText(w.QuantisedRippleDB), report.GainText(w.DCGainDB))
 		if w.GainCorrection != 1 && w.GainCorrection != 0 {
 			msg += fmt.Sprintf(" after a correction of x%.6g folded into the last FIR stage's taps", w.GainCorrection)
 		}

@@ -91,7 +91,7 @@ func WriteWordLengths(w io.Writer, rep *Report) {
 		}
 		return
 	}
-	gain := fmt.Sprintf("DC gain %.2f dB", ch.DCGainDB)
+	gain := "DC gain " + GainText(ch.DCGainDB)
 	if ch.GainCorrection != 1 && ch.GainCorrection != 0 {
 		gain += fmt.Sprintf(" (correction x%.6g folded into the last FIR)", ch.GainCorrection)
 	}
@@ -112,8 +112,8 @@ func WriteWordLengths(w io.Writer, rep *Report) {
 	if !hasTaps(&ch) {
 		built = "as built"
 	}
-	fmt.Fprintf(w, "\nword lengths (%s): %s; %s: %s rejection %.2f dB, ripple %.4f dB; %s\n",
-		coef, ch.BitTrueSummary(), built, rep.Spec.Unwanted(), ch.QuantisedRejectionDB, ch.QuantisedRippleDB, gain)
+	fmt.Fprintf(w, "\nword lengths (%s): %s; %s: %s rejection %.2f dB, ripple %s; %s\n",
+		coef, ch.BitTrueSummary(), built, rep.Spec.Unwanted(), ch.QuantisedRejectionDB, RippleText(ch.QuantisedRippleDB), gain)
 	// The kind column is 8 wide, wider when a kind's name is longer
 	// (polyphase).
 	kw := 8
@@ -325,7 +325,7 @@ func WriteTable(w io.Writer, rep *Report) {
 		row = append(row,
 			fmt.Sprintf("%s (%.1f %s)", Seconds(ch.LatencyS), ch.LatencySamples, side),
 			fmt.Sprintf("%.2f dB", rej),
-			rippleText(rip),
+			RippleText(rip),
 			kind)
 		rows = append(rows, row)
 	}
@@ -368,13 +368,24 @@ func WriteTable(w io.Writer, rep *Report) {
 	}
 }
 
-// rippleText writes a ripple figure; the analysis caps an unbounded one (a
-// null of the response inside the passband) at chain.MaxFigureDB.
-func rippleText(db float64) string {
+// RippleText writes a ripple figure; the analysis caps an unbounded one (a
+// null of the response inside the passband) at chain.MaxFigureDB, which
+// is no figure the hardware shows: it is written "null in passband".
+func RippleText(db float64) string {
 	if db >= chain.MaxFigureDB {
 		return "null in passband"
 	}
 	return fmt.Sprintf("%.4f dB", db)
+}
+
+// GainText writes a gain in dB to two decimals, a gain that rounds to
+// zero as 0.00 dB whatever its sign (not -0.00 dB).
+func GainText(db float64) string {
+	t := fmt.Sprintf("%.2f dB", db)
+	if t == "-0.00 dB" {
+		return "0.00 dB"
+	}
+	return t
 }
 
 // TrimFloat writes v without decimals when it is whole, else with prec.

@@ -136,3 +136,23 @@ func TestTableUnjudgedRoundedTaps(t *testing.T) {
 		t.Errorf("CheckReason = %q", got)
 	}
 }
+
+// A ripple the analysis caps (a null inside the passband) is written as
+// such, never as a figure, and a gain that rounds to zero has no sign
+// (an adversarial review saw "ripple 300.0000 dB" and "-0.00 dB").
+func TestFigureTexts(t *testing.T) {
+	for _, tc := range []struct {
+		got, want string
+	}{
+		{RippleText(chain.MaxFigureDB), "null in passband"},
+		{RippleText(0.12345), "0.1235 dB"},
+		{GainText(-0.001), "0.00 dB"},
+		{GainText(0.001), "0.00 dB"},
+		{GainText(-0.006), "-0.01 dB"},
+		{GainText(-5.93), "-5.93 dB"},
+	} {
+		if tc.got != tc.want {
+			t.Errorf("%q, want %q", tc.got, tc.want)
+		}
+	}
+}
