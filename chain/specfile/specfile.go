@@ -737,7 +737,7 @@ func (p *parser) quantityOf(dotted string, v any, k units.Kind) (float64, error)
 			}
 			var ue *units.Error
 			if errors.As(err, &ue) {
-				if ue.Rule == "out of range for a 64-bit float" {
+				if ue.Rule == units.RangeRule {
 					return 0, p.errAt(dotted, v, "%s", rangeRule(k))
 				}
 				return 0, p.errAt(dotted, v, "%s", ue.Rule)

@@ -39,6 +39,10 @@ type Error struct {
 	Rule  string // what the value breaks
 }
 
+// RangeRule is the rule of a number too large (or too close to zero, not
+// zero) for a float64: its own words, for the user.
+const RangeRule = "out of range: beyond the numbers this tool holds (about 2e-308 to 1.8e308 in size)"
+
 // Error quotes the value, cut to MaxEcho characters, and states the rule.
 func (e *Error) Error() string { return fmt.Sprintf("%q: %s", Clip(e.Value, MaxEcho), e.Rule) }
 
@@ -90,7 +94,7 @@ func Parse(s string, k Kind) (float64, error) {
 		if j := strings.IndexAny(num, "eE"); j >= 0 {
 			e, err := strconv.Atoi(num[j+1:])
 			if err != nil {
-				return 0, &Error{s, "out of range for a 64-bit float"}
+				return 0, &Error{s, RangeRule}
 			}
 			mant, exp = num[:j], e
 		}
@@ -98,7 +102,7 @@ func Parse(s string, k Kind) (float64, error) {
 	}
 	v, err := strconv.ParseFloat(num, 64)
 	if err != nil || math.IsInf(v, 0) || math.IsNaN(v) {
-		return 0, &Error{s, "out of range for a 64-bit float"}
+		return 0, &Error{s, RangeRule}
 	}
 	return v, nil
 }
