@@ -368,9 +368,19 @@ func buildFractional(ctx context.Context, spec Spec, plan []StagePlan, s Setting
 	lowpass := last.Kind == Farrow
 	if lowpass {
 		n := len(plan)
-		if n < 2 || plan[n-2].Kind != FIR || plan[n-2].Variant != Lowpass || !(keep < fm/2) {
-			return nil, planErr(plan, n-1, "a farrow stage needs a lowpass FIR (fir<D>L) just before it, at a rate Fm above twice min(fs, min(Fm, output rate) - fa) = %s Hz (here Fm = %s Hz)",
-				fmtNum(keep), fmtNum(fm))
+		// Plans run from the high rate down: in signal order the FIR
+		// comes before a decimating Farrow stage and after an
+		// interpolating one.
+		where := "just before it"
+		if spec.Direction() == Interpolate {
+			where = "just after it"
+		}
+		switch {
+		case n >= 2 && plan[n-2].Kind == FIR && plan[n-2].Variant != Lowpass && keep < fm/2:
+			return nil, planErr(plan, n-1, "a farrow stage needs the FIR %s in its lowpass layout: write fir%dL, not fir%d", where, plan[n-2].Factor, plan[n-2].Factor)
+		case n < 2 || plan[n-2].Kind != FIR || plan[n-2].Variant != Lowpass || !(keep < fm/2):
+			return nil, planErr(plan, n-1, "a farrow stage needs a lowpass FIR (fir<D>L) %s, at a rate Fm above twice min(fs, min(Fm, output rate) - fa) = %s Hz (here Fm = %s Hz)",
+				where, fmtNum(keep), fmtNum(fm))
 		}
 	}
 	if d > 1 {

@@ -6,6 +6,7 @@ import (
 	"math/rand/v2"
 	"os"
 	"slices"
+	"strings"
 	"testing"
 )
 
@@ -786,5 +787,27 @@ func TestFractionalDCSpurs(t *testing.T) {
 	}
 	if doubled == 0 {
 		t.Errorf("no DC spur came out at twice its path's gain")
+	}
+}
+
+// A Farrow stage after a multiband FIR is refused naming the lowpass
+// layout to write, on the side where the FIR sits: before it in a
+// decimation chain, after it in an interpolation chain (an adversarial
+// review saw a rate rule quoted that held). Invented 200 to 27.3 MS/s.
+func TestFarrowNeedsLowpassMessage(t *testing.T) {
+	spec := Spec{InputRate: 200e6, OutputRate: 27.3e6, Passband: 10e6, Protected: 11e6, RippleDB: 0.2, RejectionDB: 65}
+	for _, tc := range []struct {
+		notation, want string
+	}{
+		{"cic5m1r3 > fir2 > farrow819/1000", "a farrow stage needs the FIR just before it in its lowpass layout: write fir2L, not fir2"},
+	} {
+		plan, err := ParseNotation(tc.notation)
+		if err != nil {
+			t.Fatal(err)
+		}
+		_, err = Design(spec, plan, Settings{MaxTaps: 600})
+		if err == nil || !strings.Contains(err.Error(), tc.want) {
+			t.Errorf("%s: %v, want %q", tc.notation, err, tc.want)
+		}
 	}
 }

@@ -41,7 +41,7 @@ func sweepCommand() *cli.Command {
 			&cli.StringSliceFlag{Name: "vary", Usage: "the key and range, KEY=FROM:TO:STEP (e.g. rejection=80:100:5); twice for a grid"},
 			&cli.BoolFlag{Name: "html", Usage: "also write report.html, one self-contained page for sharing and printing"},
 			&cli.IntFlag{Name: "max-stages", Usage: "override search.max_stages (1..12)"},
-			&cli.IntFlag{Name: "jobs", Usage: "parallel designs over the whole sweep (default: the number of CPUs)"},
+			&cli.IntFlag{Name: "jobs", Usage: "parallel designs over the whole sweep", DefaultText: "the number of CPUs"},
 			&cli.DurationFlag{Name: "timeout", Usage: "stop the whole sweep after this long; unfinished values keep their best front so far, marked partial"},
 		),
 		Action: runSweep,

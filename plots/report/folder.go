@@ -147,7 +147,7 @@ func OpenFolder(dir, role string) (*Folder, error) {
 		// The folder will be replaced and the previous output removed:
 		// make sure both can be done before the search.
 		if err := checkRemovable(abs); err != nil {
-			return nil, failure("%s %q: the previous output could not be removed after the run (%v); fix its permissions or choose another folder", role, shown, err)
+			return nil, failure("%s %q: the previous output could not be replaced, so nothing was run (%v); fix its permissions or choose another folder", role, shown, err)
 		}
 	}
 	birth, err := os.MkdirTemp(parent, birthPrefix+"*")
