@@ -492,6 +492,11 @@ func TestTOMLSlips(t *testing.T) {
 		{`passband == "3"`, `spec.toml:3: passband: one = between a key and its value`},
 		{`signal = complex`, `spec.toml:3: signal = complex: words go in quotes: signal = "complex"`},
 		{`ripple = .1`, `spec.toml:3: ripple: a number starts with a digit: write 0.1, not .1`},
+		// The decoder's own words for these named a TOML rule and a byte.
+		{"[words]\ninput = 014", `spec.toml:4: words.input: an integer has no leading zeros: write 14`},
+		{"[words]\ninput = -007", `spec.toml:4: words.input: an integer has no leading zeros: write -7`},
+		{"ripple = \"0.1 dB\"\rpassband = \"3 kHz\"", `spec.toml:3: a carriage return with no line feed after it (old Mac line ends): save the file with LF or CRLF line ends`},
+		{"ripple = \"0.1 dB\"\x01", `spec.toml:3: a control character (code 0x01) in the text: remove it`},
 		{`output_rate = "2 MHz"`, `spec.toml:3: output_rate: given twice; give each key once`},
 		{`ripple = 0.1.2`, `spec.toml:3: not valid TOML: `},
 		{`search.kinds = ["cic", "fir"`, `spec.toml:3: search.kinds: the list is not closed: end it with ]`},

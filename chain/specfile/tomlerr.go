@@ -25,6 +25,8 @@ var (
 	reHeaderOpen  = regexp.MustCompile(`^(?:expected '\.' or '\]' to end table name|expected end of table array name delimiter '\]'), but got '(.*)' instead`)
 	reStringOpen  = regexp.MustCompile(`^strings cannot contain newlines`)
 	reLeadingDot  = regexp.MustCompile(`^floats must start with a digit, not '\.'`)
+	reLeadZero    = regexp.MustCompile(`^Invalid integer "([+-]?)0+([0-9][0-9_]*)": cannot have leading zeroes`)
+	reControl     = regexp.MustCompile(`cannot contain control characters: '0x([0-9a-fA-F]+)'`)
 	reDuplicate   = regexp.MustCompile(`^Key '(.*)' has already been defined\.?$`)
 	reNumberUnit  = regexp.MustCompile(`^\s*(` + keyPat + `)\s*=\s*([-+]?[0-9][0-9_.eE+\-]*\s*[A-Za-z/]+)\s*(?:#.*)?$`)
 	reKeyOfLine   = regexp.MustCompile(`^\s*(` + keyPat + `)\s*=`)
@@ -105,6 +107,15 @@ func tomlError(file string, data []byte, line int, msg string) *Error {
 		e.Key, e.Rule = key, "a quoted value must end with its closing quote on the same line"
 	case reLeadingDot.MatchString(msg):
 		e.Key, e.Rule = key, "a number starts with a digit: write 0.1, not .1"
+	case reLeadZero.MatchString(msg):
+		m := reLeadZero.FindStringSubmatch(msg)
+		e.Key, e.Rule = key, "an integer has no leading zeros: write "+m[1]+m[2]
+	case reControl.MatchString(msg):
+		if c := reControl.FindStringSubmatch(msg)[1]; c == "0d" || c == "0D" {
+			e.Rule = "a carriage return with no line feed after it (old Mac line ends): save the file with LF or CRLF line ends"
+		} else {
+			e.Rule = "a control character (code 0x" + c + ") in the text: remove it"
+		}
 	case reDuplicate.MatchString(msg):
 		e.Key = units.Clip(reDuplicate.FindStringSubmatch(msg)[1], units.MaxEcho)
 		e.Rule = "given twice; give each key once"
