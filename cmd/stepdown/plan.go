@@ -302,7 +302,7 @@ func emptyFront(res *optimize.Result, spec chain.Spec, kinds []chain.Kind, folde
 		case msg != "no chain meets the spec" && strings.HasPrefix(l, "no chain met the spec"):
 			// The words were named already; the dropped counts follow.
 		case msg != "no chain meets the spec":
-			msg += "; " + r
+			msg += "; " + strings.ToLower(r[:1]) + r[1:] // mid-sentence
 		case strings.HasPrefix(l, msg) || strings.HasPrefix(l, "no chain met the spec"):
 			msg = strings.ToLower(r[:1]) + r[1:] // the reason already says it
 		default:
