@@ -334,6 +334,10 @@ func MaxDensity(n int, rate float64, bands []Band) int {
 // exchange must see its error's sign change there.
 const minBandPoints = 16
 
+// gridCheckEvery is how many grid points buildGrid fills between looks at
+// the design's halt flag.
+const gridCheckEvery = 1 << 14
+
 // buildGrid lays the dense grid. With GridOnly the spacing is
 // 0.5/(density r) and the points are placed exactly as the 1973 program
 // placed them (so results can be compared with implementations that follow
@@ -342,11 +346,8 @@ const minBandPoints = 16
 // 1/2 (narrow bands would otherwise get fewer grid points than extrema: a
 // short half-band on a narrow passband had 2 points for 3 unknowns); each
 // band is split into equal steps no longer than that, so both of its edges
-// are on the grid, and into at least minBandPoints points.
-// gridCheckEvery is how many grid points buildGrid lays between looks at
-// the design's halt flag.
-const gridCheckEvery = 1 << 14
-
+// are on the grid, and into at least minBandPoints points. It looks at the
+// design's halt flag every gridCheckEvery points it fills.
 func (e *engine) buildGrid() error {
 	delf := 0.5 / float64(e.density*e.r)
 	if !e.gridOnly {
