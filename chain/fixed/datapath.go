@@ -497,7 +497,7 @@ func plan(c Cascade, w Words, s Settings, minBits []int) (*Widths, error) {
 		}
 		k := 1 / (others * tapSum(st.Taps) * interpGain(st))
 		if math.IsNaN(k) || math.IsInf(k, 0) || !(k > 0) {
-			return nil, fmt.Errorf("fixed: stage %d: UnityGain: the chain's DC gain before correction is %g; it must be above 0", target+1, 1/k)
+			return nil, fmt.Errorf("fixed: stage %d: words.unity_gain: the chain's gain at 0 Hz before the correction is %g, which scaling this stage's taps cannot bring to 1 (it must be above 0)", target+1, 1/k)
 		}
 		var err error
 		sws[target], err = planFIR(scaledStage(st, k), high(target), ins[target], sws[target].OutputBits, w.CoefBits, s, minBitsOf(minBits, target))

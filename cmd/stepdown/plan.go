@@ -197,7 +197,7 @@ func runPlan(c *cli.Context) error {
 		return fmt.Errorf("--timeout %v: stopped %s; %s (allow more time)", c.Duration("timeout"), what, untouched(j.out))
 	}
 	if len(res.Front) == 0 {
-		return emptyFront(res, j.spec.Chain, set.Kinds, untouched(j.out))
+		return emptyFront(res, j.spec.Chain, set.Kinds, j.spec.UnityGain, untouched(j.out))
 	}
 	if !res.Partial {
 		// A ratio with a large prime factor: nearby ratios and the
@@ -275,8 +275,8 @@ func searchTooLarge(msg string) bool {
 // and the counts of dropped candidates; folder says what became of the
 // output folder (untouched). kinds are the search's stage kinds
 // (nil: all): the CIC register limit is named only where a CIC can be in
-// a chain.
-func emptyFront(res *optimize.Result, spec chain.Spec, kinds []chain.Kind, folder string) error {
+// a chain; unity is words.unity_gain, whose correction can fail too.
+func emptyFront(res *optimize.Result, spec chain.Spec, kinds []chain.Kind, unity bool, folder string) error {
 	msg := "no chain meets the spec"
 	reason := res.Reason
 	if n := res.Dropped[optimize.ReasonWordLengths]; n > 0 {
@@ -285,6 +285,12 @@ func emptyFront(res *optimize.Result, spec chain.Spec, kinds []chain.Kind, folde
 		limits := fmt.Sprintf("an accumulator over %d bits", fixed.MaxAccumulatorBits)
 		if kinds == nil || slices.Contains(kinds, chain.CIC) {
 			limits += fmt.Sprintf(" or a CIC register over %d bits", chain.MaxCICBits)
+		}
+		if res.AccumulatorExcess.Least() == 0 && unity {
+			// No accumulator is known to be too wide: the gain
+			// correction may have had no gain at 0 Hz to correct (taps
+			// rounded to a few bits can sum to zero).
+			limits += ", or words.unity_gain with no gain at 0 Hz to correct"
 		}
 		msg += fmt.Sprintf(": the word lengths of %s could not be planned (%s): ", units.Count(n, "designed chain", "designed chains"), limits)
 		msg += accumulatorHint(res.AccumulatorExcess, spec)

@@ -19,7 +19,7 @@ func TestEmptyFrontReason(t *testing.T) {
 		Reason:  "No chain was designed within the design budget (MaxDesigns, MaxWork) at a tap limit of 511;\n12 candidates were left undesigned.",
 		Dropped: map[optimize.Reason]int{optimize.ReasonLongFIR: 3, optimize.ReasonCICRejection: 2},
 	}
-	got := emptyFront(res, chain.Spec{}, nil, "out left as it was").Error()
+	got := emptyFront(res, chain.Spec{}, nil, false, "out left as it was").Error()
 	// The optimiser's setting names are said in the spec's and the flags' terms.
 	want := "no chain meets the spec: No chain was designed within the design budget (a fixed amount of design work per run: " +
 		"lower search.max_stages or --max-stages, narrow search.kinds or search.cic_orders, or relax ripple or rejection, " +
@@ -28,7 +28,7 @@ func TestEmptyFrontReason(t *testing.T) {
 	if got != want {
 		t.Errorf("got  %q\nwant %q", got, want)
 	}
-	if got := emptyFront(&optimize.Result{}, chain.Spec{}, nil, "out left as it was").Error(); got != "no chain meets the spec (dropped: no candidates); out left as it was" {
+	if got := emptyFront(&optimize.Result{}, chain.Spec{}, nil, false, "out left as it was").Error(); got != "no chain meets the spec (dropped: no candidates); out left as it was" {
 		t.Errorf("no reason: %q", got)
 	}
 }
@@ -42,7 +42,7 @@ func TestEmptyFrontWordLengths(t *testing.T) {
 		Unsettled: 10,
 		Dropped:   map[optimize.Reason]int{optimize.ReasonWordLengths: 596, optimize.ReasonCICRejection: 337},
 	}
-	got := emptyFront(res, chain.Spec{}, nil, "out left as it was").Error()
+	got := emptyFront(res, chain.Spec{}, nil, false, "out left as it was").Error()
 	want := "no chain meets the spec: the word lengths of 596 designed chains could not be planned (an accumulator over 63 bits or a CIC register over 256 bits): " +
 		"narrow words.coefficients, words.input or words.output (check --chain on one names the widths); the design budget left 10 candidates undesigned " +
 		"(dropped: cic rejection below target: 337, word lengths could not be planned: 596); out left as it was"
@@ -54,22 +54,32 @@ func TestEmptyFrontWordLengths(t *testing.T) {
 	// it, the input word and the word between stages (words.output) where
 	// a chain passes only at its first or only at its later stages.
 	res.AccumulatorExcess = optimize.AccumulatorExcess{Coefficients: 3, InputBits: 24, OutputBits: 25}
-	got = emptyFront(res, chain.Spec{CoefBits: 36, InputBits: 28, OutputBits: 30}, nil, "out left as it was").Error()
+	got = emptyFront(res, chain.Spec{CoefBits: 36, InputBits: 28, OutputBits: 30}, nil, false, "out left as it was").Error()
 	if want := "the closest is 3 bits over: try words.coefficients = 33 or words.input = 24 or words.output = 25 (estimated from its taps as designed; check --chain on one names the widths); "; !strings.Contains(got, want) {
 		t.Errorf("with an excess of 3 bits: %q\nwant it to contain %q", got, want)
 	}
 	res.AccumulatorExcess = optimize.AccumulatorExcess{Coefficients: 1, OutputBits: 23}
-	got = emptyFront(res, chain.Spec{}, nil, "out left as it was").Error()
+	got = emptyFront(res, chain.Spec{}, nil, false, "out left as it was").Error()
 	if want := "the closest is 1 bit over: try words.output = 23 ("; !strings.Contains(got, want) {
 		t.Errorf("auto coefficients, default output: %q\nwant it to contain %q", got, want)
 	}
+	// With words.unity_gain and no accumulator known to be too wide, the
+	// correction with no gain to correct is named among the causes (an
+	// adversarial review found 2-bit taps summing to zero blamed on the
+	// accumulators alone).
+	res.AccumulatorExcess = optimize.AccumulatorExcess{}
+	got = emptyFront(res, chain.Spec{}, nil, true, "out left as it was").Error()
+	if want := "(an accumulator over 63 bits or a CIC register over 256 bits, or words.unity_gain with no gain at 0 Hz to correct): "; !strings.Contains(got, want) {
+		t.Errorf("unity gain: %q\nwant it to contain %q", got, want)
+	}
+	res.AccumulatorExcess = optimize.AccumulatorExcess{Coefficients: 1, OutputBits: 23}
 	// A search without CIC stages has no CIC register to blame.
-	got = emptyFront(res, chain.Spec{}, []chain.Kind{chain.FIR, chain.HalfBand}, "out left as it was").Error()
+	got = emptyFront(res, chain.Spec{}, []chain.Kind{chain.FIR, chain.HalfBand}, false, "out left as it was").Error()
 	if want := "(an accumulator over 63 bits): "; !strings.Contains(got, want) {
 		t.Errorf("FIR and half-band only: %q\nwant it to contain %q", got, want)
 	}
 	res.Reason = "No chain met the spec; Dropped says why each candidate was set aside."
-	if got := emptyFront(res, chain.Spec{}, nil, "out left as it was").Error(); strings.Contains(strings.ToLower(got), "no chain met the spec") {
+	if got := emptyFront(res, chain.Spec{}, nil, false, "out left as it was").Error(); strings.Contains(strings.ToLower(got), "no chain met the spec") {
 		t.Errorf("the optimiser's reason repeats the words' message: %q", got)
 	}
 }
@@ -180,15 +190,15 @@ func TestEmptyFrontClosest(t *testing.T) {
 	}
 	res.Closest.Figures.Analysis = chain.Analysis{AliasRejectionDB: 64.89462441957761, PassbandRippleDB: 0.39918}
 	want := "no chain met the spec; the dropped counts say why candidates were set aside; the closest, poly125/96, misses the 65 dB rejection by 0.105 dB (64.8946 dB) (dropped: designed chain misses rejection: 1); out left as it was"
-	if got := emptyFront(res, spec, nil, "out left as it was").Error(); got != want {
+	if got := emptyFront(res, spec, nil, false, "out left as it was").Error(); got != want {
 		t.Errorf("got  %q\nwant %q", got, want)
 	}
 	res.Closest.Figures.Analysis = chain.Analysis{AliasRejectionDB: 70, PassbandRippleDB: 0.41}
-	if got, want := emptyFront(res, spec, nil, "out left as it was").Error(), "the closest, poly125/96, exceeds the 0.4 dB ripple by 0.01 dB (0.41 dB) (dropped"; !strings.Contains(got, want) {
+	if got, want := emptyFront(res, spec, nil, false, "out left as it was").Error(), "the closest, poly125/96, exceeds the 0.4 dB ripple by 0.01 dB (0.41 dB) (dropped"; !strings.Contains(got, want) {
 		t.Errorf("got  %q\nwant it to contain %q", got, want)
 	}
 	res.Closest.Figures.Analysis = chain.Analysis{AliasRejectionDB: 64, PassbandRippleDB: 0.5}
-	if got, want := emptyFront(res, spec, nil, "out left as it was").Error(), "the closest, poly125/96, misses the 65 dB rejection by 1 dB (64 dB) and exceeds the 0.4 dB ripple by 0.1 dB (0.5 dB)"; !strings.Contains(got, want) {
+	if got, want := emptyFront(res, spec, nil, false, "out left as it was").Error(), "the closest, poly125/96, misses the 65 dB rejection by 1 dB (64 dB) and exceeds the 0.4 dB ripple by 0.1 dB (0.5 dB)"; !strings.Contains(got, want) {
 		t.Errorf("got  %q\nwant it to contain %q", got, want)
 	}
 }

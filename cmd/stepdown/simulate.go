@@ -223,7 +223,7 @@ func runSimulate(c *cli.Context) error {
 			return planError(c, err)
 		}
 		if len(res.Front) == 0 {
-			return errors.New(flagTerms(c, emptyFront(res, cs, set.Kinds, untouched(j.out)).Error()))
+			return errors.New(flagTerms(c, emptyFront(res, cs, set.Kinds, j.spec.UnityGain, untouched(j.out)).Error()))
 		}
 		cand = res.Front[res.Recommended]
 	}
