@@ -396,13 +396,7 @@ func (sig *Signal) fill(inBits int, fp, fk, high, headroomDB float64) (signalDef
 func checkCICRun(c Cascade, w *Widths) error {
 	for i, sw := range w.Stages {
 		if sw.CIC && cicModelWidth(&sw) > cicModelBits(&sw) {
-			if sw.CICInterp == nil {
-				// A decimating CIC runs at its full-precision width,
-				// wider than its pruned registers (which the stage's
-				// word lengths list).
-				return fmt.Errorf("fixed: stage %d: the CIC's full-precision width, %d bits, in which the bit-true run works it (its pruned registers are narrower), is beyond the run's %d bits", i+1, cicModelWidth(&sw), cicModelBits(&sw))
-			}
-			return fmt.Errorf("fixed: stage %d: the CIC's %d-bit registers are beyond the bit-true run's %d bits", i+1, cicModelWidth(&sw), cicModelBits(&sw))
+			return fmt.Errorf("fixed: stage %d: %s", i+1, cicTooWide(&sw, "the bit-true run"))
 		}
 		// The float model runs a CIC as its equivalent filter of
 		// N (RM - 1) + 1 taps, with as long a history: bounded so that

@@ -353,6 +353,17 @@ func cicModelWidth(sw *StageWidths) int {
 	return sw.Pruning.FullBits
 }
 
+// cicTooWide says that sw's CIC needs more bits (cicModelWidth) than what
+// (the bit-true run, the integer model) holds (cicModelBits). A
+// decimating CIC is worked at its full-precision width, wider than the
+// pruned registers its word lengths list.
+func cicTooWide(sw *StageWidths, what string) string {
+	if sw.CICInterp == nil {
+		return fmt.Sprintf("the CIC needs %d bits (its full-precision width; its pruned registers are narrower), more than the %d bits %s holds", cicModelWidth(sw), cicModelBits(sw), what)
+	}
+	return fmt.Sprintf("the CIC's %d-bit registers are more than the %d bits %s holds", cicModelWidth(sw), cicModelBits(sw), what)
+}
+
 // cicFloatScale is the scale of a CIC's float model (its equivalent FIR of
 // N boxcars of RM ones): 2^-(the LSBs from the input word to the output
 // word's full scale), so that its DC gain is StageWidths.Gain.

@@ -70,7 +70,7 @@ func NewModel(c Cascade, w *Widths) (*Model, error) {
 				return nil, fmt.Errorf("fixed: stage %d: the CIC has no register plan for its direction (widths of another cascade)", i+1)
 			}
 			if lim := cicModelBits(sw); cicModelWidth(sw) > lim {
-				return nil, fmt.Errorf("fixed: stage %d: the CIC's %d-bit registers are beyond the integer model's %d bits", i+1, cicModelWidth(sw), lim)
+				return nil, fmt.Errorf("fixed: stage %d: %s", i+1, cicTooWide(sw, "the integer model"))
 			}
 			if st.Interpolate {
 				m.stages = append(m.stages, newCICInterpFilter(sw.CICInterp))

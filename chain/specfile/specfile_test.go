@@ -470,6 +470,16 @@ func TestParseRequirements(t *testing.T) {
 	}
 }
 
+// A file with carriage returns alone for line ends (old Mac files) is told
+// to save with LF or CRLF.
+func TestOldMacLineEnds(t *testing.T) {
+	_, err := Parse("spec.toml", []byte("input_rate = \"100 MHz\"\routput_rate = \"1 MHz\"\r"))
+	want := "spec.toml:1: a carriage return with no line feed after it (old Mac line ends): save the file with LF or CRLF line ends"
+	if err == nil || err.Error() != want {
+		t.Errorf("got %v, want %q", err, want)
+	}
+}
+
 // The TOML slips a spec's author makes most are said in the spec's words,
 // on the line of the slip (the decoder reports an unclosed header on the
 // next line); any other decoder message passes through after "not valid
@@ -493,9 +503,14 @@ func TestTOMLSlips(t *testing.T) {
 		{`signal = complex`, `spec.toml:3: signal = complex: words go in quotes: signal = "complex"`},
 		{`ripple = .1`, `spec.toml:3: ripple: a number starts with a digit: write 0.1, not .1`},
 		// The decoder's own words for these named a TOML rule and a byte.
-		{"[words]\ninput = 014", `spec.toml:4: words.input: an integer has no leading zeros: write 14`},
-		{"[words]\ninput = -007", `spec.toml:4: words.input: an integer has no leading zeros: write -7`},
-		{"ripple = \"0.1 dB\"\rpassband = \"3 kHz\"", `spec.toml:3: a carriage return with no line feed after it (old Mac line ends): save the file with LF or CRLF line ends`},
+		{"[words]\ninput = 014", `spec.toml:4: words.input: a number has no leading zeros: write 14`},
+		{"[words]\ninput = -007", `spec.toml:4: words.input: a number has no leading zeros: write -7`},
+		{"[words]\ninput = 00_5", `spec.toml:4: words.input: a number has no leading zeros: write 5`},
+		{"[words]\ninput = +01", `spec.toml:4: words.input: a number has no leading zeros: write 1`},
+		{"[words]\ninput = 00", `spec.toml:4: words.input: a number has no leading zeros: write 0`},
+		{"ripple = 01.5", `spec.toml:3: ripple: a number has no leading zeros: write 1.5`},
+		{"ripple = 01e2", `spec.toml:3: ripple: a number has no leading zeros: write 100`},
+		{"ripple = \"0.2\r dB\"", `spec.toml:3: a carriage return (code 0x0d) with no line feed after it, in the text: remove it`},
 		{"ripple = \"0.1 dB\"\x01", `spec.toml:3: a control character (code 0x01) in the text: remove it`},
 		{`output_rate = "2 MHz"`, `spec.toml:3: output_rate: given twice; give each key once`},
 		{`ripple = 0.1.2`, `spec.toml:3: not valid TOML: `},

@@ -3,6 +3,7 @@ package specfile
 import (
 	"bytes"
 	"regexp"
+	"strconv"
 	"strings"
 
 	"github.com/stepdown-dsp/stepdown/chain/units"
@@ -25,7 +26,7 @@ var (
 	reHeaderOpen  = regexp.MustCompile(`^(?:expected '\.' or '\]' to end table name|expected end of table array name delimiter '\]'), but got '(.*)' instead`)
 	reStringOpen  = regexp.MustCompile(`^strings cannot contain newlines`)
 	reLeadingDot  = regexp.MustCompile(`^floats must start with a digit, not '\.'`)
-	reLeadZero    = regexp.MustCompile(`^Invalid integer "([+-]?)0+([0-9][0-9_]*)": cannot have leading zeroes`)
+	reLeadZero    = regexp.MustCompile(`^Invalid (integer|float) "([^"]*)": cannot have leading zeroes`)
 	reControl     = regexp.MustCompile(`cannot contain control characters: '0x([0-9a-fA-F]+)'`)
 	reDuplicate   = regexp.MustCompile(`^Key '(.*)' has already been defined\.?$`)
 	reNumberUnit  = regexp.MustCompile(`^\s*(` + keyPat + `)\s*=\s*([-+]?[0-9][0-9_.eE+\-]*\s*[A-Za-z/]+)\s*(?:#.*)?$`)
@@ -109,10 +110,15 @@ func tomlError(file string, data []byte, line int, msg string) *Error {
 		e.Key, e.Rule = key, "a number starts with a digit: write 0.1, not .1"
 	case reLeadZero.MatchString(msg):
 		m := reLeadZero.FindStringSubmatch(msg)
-		e.Key, e.Rule = key, "an integer has no leading zeros: write "+m[1]+m[2]
+		e.Key, e.Rule = key, "a number has no leading zeros"
+		if w, ok := withoutLeadingZeros(m[1] == "float", m[2]); ok {
+			e.Rule += ": write " + w
+		}
 	case reControl.MatchString(msg):
-		if c := reControl.FindStringSubmatch(msg)[1]; c == "0d" || c == "0D" {
+		if c := reControl.FindStringSubmatch(msg)[1]; (c == "0d" || c == "0D") && !bytes.Contains(data, []byte("\n")) {
 			e.Rule = "a carriage return with no line feed after it (old Mac line ends): save the file with LF or CRLF line ends"
+		} else if c == "0d" || c == "0D" {
+			e.Rule = "a carriage return (code 0x0d) with no line feed after it, in the text: remove it"
 		} else {
 			e.Rule = "a control character (code 0x" + c + ") in the text: remove it"
 		}
@@ -334,4 +340,23 @@ func lineOf(data []byte, n int) string {
 		return ""
 	}
 	return s
+}
+
+// withoutLeadingZeros writes the number text (TOML's, underscores between
+// digits allowed) as the decoder would take it, without leading zeros:
+// "014" as 14, "00_5" as 5, "-007" as -7, "01.5" as 1.5, "01e2" as 100.
+func withoutLeadingZeros(float bool, text string) (string, bool) {
+	t := strings.ReplaceAll(text, "_", "")
+	if float {
+		v, err := strconv.ParseFloat(t, 64)
+		if err != nil {
+			return "", false
+		}
+		return strconv.FormatFloat(v, 'g', -1, 64), true
+	}
+	v, err := strconv.ParseInt(t, 10, 64)
+	if err != nil {
+		return "", false
+	}
+	return strconv.FormatInt(v, 10), true
 }

@@ -40,8 +40,8 @@ type Error struct {
 }
 
 // RangeRule is the rule of a number too large (or too close to zero, not
-// zero) for a float64: its own words, for the user.
-const RangeRule = "out of range: beyond the numbers this tool holds (about 2e-308 to 1.8e308 in size)"
+// zero) for a float64 to hold: in the user's words.
+const RangeRule = "out of range: larger than about 1.8e308, or too small to hold"
 
 // Error quotes the value, cut to MaxEcho characters, and states the rule.
 func (e *Error) Error() string { return fmt.Sprintf("%q: %s", Clip(e.Value, MaxEcho), e.Rule) }

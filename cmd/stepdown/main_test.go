@@ -710,10 +710,19 @@ func TestOutHoldsTheSpec(t *testing.T) {
 	if err := os.Symlink("o", filepath.Join(dir, "lo")); err != nil {
 		t.Fatal(err)
 	}
+	// A link into a folder inside o, then "..": the system follows the
+	// link before it goes up (a review found the spec deleted so).
+	if err := os.Mkdir(filepath.Join(dir, "o", "sub"), 0o755); err != nil {
+		t.Fatal(err)
+	}
+	if err := os.Symlink(filepath.Join("o", "sub"), filepath.Join(dir, "ls")); err != nil {
+		t.Fatal(err)
+	}
 	for _, args := range [][]string{
 		{"plan", "o/myspec.toml", "--out", "o"},
 		{"check", "lo/myspec.toml", "--chain", "cic4m1r8 > fir4", "--out", "./o/"},
 		{"sweep", "o/myspec.toml", "--vary", "rejection=80:85:5", "--out", "o"},
+		{"plan", "ls/../myspec.toml", "--out", "o"},
 	} {
 		r := runBinary(t, dir, nil, args...)
 		if r.code != 2 || !strings.Contains(r.stderr, "holds the spec file") {
@@ -722,5 +731,12 @@ func TestOutHoldsTheSpec(t *testing.T) {
 		if _, err := os.Stat(spec); err != nil {
 			t.Fatalf("%v: the spec is gone: %v", args, err)
 		}
+	}
+	// A plan's report.json in the folder is read whole first: check
+	// --front of it into the same folder goes on, as check after plan
+	// with the default folder does.
+	os.Remove(spec)
+	if r := runBinary(t, dir, nil, "check", "--chain", "cic4m1r8 > hb > fir4", "--front", "o/report.json", "--out", "o", "--quiet"); r.code != 0 {
+		t.Errorf("check --front o/report.json --out o: exit %d, %s", r.code, r.stderr)
 	}
 }

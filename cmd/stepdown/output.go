@@ -12,8 +12,11 @@ import (
 
 // prepareOut checks the --out folder before any work (report.OpenFolder);
 // a folder that cannot serve is a usage error, and so is one that holds a
-// file the command reads (the spec, --front, --input): the run replaces
-// the folder as a whole, and would delete it.
+// file of the user's that the command reads (the spec, --input): the run
+// replaces the folder as a whole, and would delete it. A --front inside it
+// is a plan's report.json, read whole before anything is written and
+// replaced like the rest of the plan's output, as check replaces any
+// output folder.
 func prepareOut(c *cli.Context) (*report.Folder, error) {
 	dir := c.String("out")
 	type read struct{ what, path string }
@@ -21,7 +24,7 @@ func prepareOut(c *cli.Context) (*report.Folder, error) {
 	if c.Args().Present() {
 		reads = append(reads, read{"the spec file", c.Args().First()})
 	}
-	for _, f := range []string{"front", "input"} {
+	for _, f := range []string{"input"} {
 		if p := c.String(f); p != "" {
 			reads = append(reads, read{"the --" + f + " file", p})
 		}
@@ -40,21 +43,24 @@ func prepareOut(c *cli.Context) (*report.Folder, error) {
 }
 
 // within reports whether path lies inside the folder dir, symbolic links
-// followed where they resolve.
+// followed where they resolve. Links are resolved before the paths are made
+// absolute: "link/.." is where the link's target's parent is, which a
+// textual clean would put beside the link.
 func within(dir, path string) bool {
-	d, err := filepath.Abs(dir)
-	if err != nil {
+	resolve := func(p string) (string, bool) {
+		if r, err := filepath.EvalSymlinks(p); err == nil {
+			p = r
+		}
+		a, err := filepath.Abs(p)
+		return a, err == nil
+	}
+	d, ok := resolve(dir)
+	if !ok {
 		return false
 	}
-	p, err := filepath.Abs(path)
-	if err != nil {
+	p, ok := resolve(path)
+	if !ok {
 		return false
-	}
-	if r, err := filepath.EvalSymlinks(d); err == nil {
-		d = r
-	}
-	if r, err := filepath.EvalSymlinks(p); err == nil {
-		p = r
 	}
 	rel, err := filepath.Rel(d, p)
 	return err == nil && rel != "." && rel != ".." && !strings.HasPrefix(rel, ".."+string(filepath.Separator))

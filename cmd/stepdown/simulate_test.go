@@ -293,7 +293,7 @@ func TestSimulateBadInputs(t *testing.T) {
 
 // A library error reaches the user without the library's package names.
 func TestLibMessage(t *testing.T) {
-	err := fmt.Errorf("simulate: %w", errors.New("fixed: stage 1: the CIC's 131-bit registers are beyond the integer model's 127 bits"))
+	err := fmt.Errorf("simulate: %w", errors.New("fixed: stage 1: the CIC needs 131 bits (its full-precision width; its pruned registers are narrower), more than the 127 bits the integer model holds"))
 	if got := libMessage(err); strings.Contains(got, "fixed:") || strings.Contains(got, "simulate:") || !strings.HasPrefix(got, "stage 1: ") {
 		t.Errorf("libMessage = %q", got)
 	}

@@ -123,11 +123,11 @@ func CheckReason(c Chain, sp Spec) string {
 	case !c.FloatMeetsTargets && c.AliasRejectionDB < sp.RejectionDB:
 		return fmt.Sprintf("The chain named by --chain misses the rejection target as designed: %.2f dB against %.4g dB.", c.AliasRejectionDB, sp.RejectionDB)
 	case !c.FloatMeetsTargets:
-		return fmt.Sprintf("The chain named by --chain misses the ripple budget as designed: %.4f dB against %.4g dB.", c.PassbandRippleDB, sp.RippleDB)
+		return fmt.Sprintf("The chain named by --chain misses the ripple budget as designed: %s against %.4g dB.", RippleText(c.PassbandRippleDB), sp.RippleDB)
 	case rej < sp.RejectionDB:
 		return fmt.Sprintf("The chain named by --chain misses the rejection target%s: %.2f dB against %.4g dB.", on, rej, sp.RejectionDB)
 	}
-	return fmt.Sprintf("The chain named by --chain misses the ripple budget%s: %.4f dB against %.4g dB.", on, rip, sp.RippleDB)
+	return fmt.Sprintf("The chain named by --chain misses the ripple budget%s: %s against %.4g dB.", on, RippleText(rip), sp.RippleDB)
 }
 
 // Comparison is the front a checked chain was compared with: Source says

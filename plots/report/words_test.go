@@ -217,7 +217,7 @@ coefficients = "auto"
 	}
 	ch := r.Front[0]
 	if ch.ChainReport == nil || ch.BitTrueReport != nil || ch.BitTrueSNRValid || !(ch.QuantisedRejectionDB > 0) ||
-		!strings.Contains(ch.WordLengthsError, "no bit-true run") || !strings.Contains(ch.WordLengthsError, "135-bit") {
+		!strings.Contains(ch.WordLengthsError, "no bit-true run") || !strings.Contains(ch.WordLengthsError, "135 bits") {
 		t.Errorf("chain report %+v, error %q", ch.ChainReport, ch.WordLengthsError)
 	}
 	if w := ch.Stages[0].StageReport; w == nil || w.AccumulatorBits != 135 {
