@@ -732,6 +732,18 @@ func TestOutHoldsTheSpec(t *testing.T) {
 			t.Fatalf("%v: the spec is gone: %v", args, err)
 		}
 	}
+	// A recording kept in the folder is the user's too.
+	capture := filepath.Join(dir, "o", "capture.csv")
+	if err := os.WriteFile(capture, []byte("0\n1\n0\n-1\n"), 0o644); err != nil {
+		t.Fatal(err)
+	}
+	r := runBinary(t, dir, nil, "simulate", "--input", "o/capture.csv", "--rate", "122.88 MHz", "--chain", "cic5m1r16 > fir4", "--out", "o")
+	if r.code != 2 || !strings.Contains(r.stderr, "holds the --input file") {
+		t.Errorf("simulate --input o/capture.csv --out o: exit %d, %q: want 2, naming the --input file", r.code, r.stderr)
+	}
+	if _, err := os.Stat(capture); err != nil {
+		t.Fatalf("simulate: the recording is gone: %v", err)
+	}
 	// A plan's report.json in the folder is read whole first: check
 	// --front of it into the same folder goes on, as check after plan
 	// with the default folder does.
