@@ -276,6 +276,10 @@ const MaxGridPoints = 1 << 21
 // than its length has degrees of freedom ((n+1)/2 for n taps).
 var ErrTooManyBands = errors.New("more bands than degrees of freedom")
 
+// LeastTaps is the shortest length that can shape nb bands, one degree of
+// freedom a band: 2 nb - 1 taps (odd), and one more for an even length.
+func LeastTaps(nb int) int { return 2*nb - 1 }
+
 // ErrGridTooLarge is wrapped by the error of a design whose dense grid
 // would exceed MaxGridPoints.
 var ErrGridTooLarge = errors.New("remez: grid too large")

@@ -434,12 +434,12 @@ func (m *lengthSearch) nearestRef(n int) int {
 // meets, starting from n0.
 func (m *lengthSearch) search(n0, odd int) (int, error) {
 	// A length of this parity with r coefficients shapes at most r bands
-	// (Design refuses more): 2 nb - 1 taps for nb bands when odd, 2 nb
-	// when even, and 3 or 4 at least.
+	// (Design refuses more): LeastTaps when odd, one more when even, and 3
+	// or 4 at least.
 	nb := len(m.bands)
-	lowest := max(3, 2*nb-1)
+	lowest := max(3, LeastTaps(nb))
 	if odd == 0 {
-		lowest = max(4, 2*nb)
+		lowest = max(4, LeastTaps(nb)+1)
 	}
 	top := m.maxTaps
 	if top%2 != odd {

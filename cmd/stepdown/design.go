@@ -301,19 +301,19 @@ func designFailure(ctx context.Context, err error, f designFlags) error {
 		return usagef("--taps %d: more than these bands need: the response meets them to the rounding level of double precision (below %.1g), where the exchange cannot level its error; use fewer taps, or leave --taps out to find the shortest filter", f.taps, remez.RoundingLevel(f.taps))
 	case errors.Is(err, remez.ErrRoundingLevel) && isSearch && se.Met > 0 && min(f.dp, f.ds) <= roundingCause*remez.RoundingLevel(se.Met):
 		return roundingFailure(ctx, se, f)
-	case errors.Is(err, remez.ErrRoundingLevel) && isSearch && se.Fail == 0 && se.Met <= 2*len(f.bands)+1:
+	case errors.Is(err, remez.ErrRoundingLevel) && isSearch && se.Fail == 0 && se.Met <= remez.LeastTaps(len(f.bands))+2:
 		// The shortest length that can shape so many bands at all (one
 		// coefficient a band) is already far beyond what they need.
-		return usagef("--stop: %d bands (--pass and --stop together) need at least %d taps, one coefficient a band, and at that length the response meets them to the rounding level of double precision, where the exchange cannot level its error; merge neighbouring --stop bands or drop some", len(f.bands), 2*len(f.bands)-1)
-	case errors.Is(err, remez.ErrTooManyBands) && f.taps == 0 && 2*len(f.bands)-1 > maxDesignTaps:
-		return usagef("--stop: %d bands (--pass and --stop together) need at least %d taps, one coefficient a band, more than the %d allowed; merge neighbouring --stop bands or drop some", len(f.bands), 2*len(f.bands)-1, maxDesignTaps)
+		return usagef("--stop: %d bands (--pass and --stop together) need at least %d taps, one coefficient a band, and at that length the response meets them to the rounding level of double precision, where the exchange cannot level its error; merge neighbouring --stop bands or drop some", len(f.bands), remez.LeastTaps(len(f.bands)))
+	case errors.Is(err, remez.ErrTooManyBands) && f.taps == 0 && remez.LeastTaps(len(f.bands)) > maxDesignTaps:
+		return usagef("--stop: %d bands (--pass and --stop together) need at least %d taps, one coefficient a band, more than the %d allowed; merge neighbouring --stop bands or drop some", len(f.bands), remez.LeastTaps(len(f.bands)), maxDesignTaps)
 	case errors.Is(err, remez.ErrRoundingLevel) && isSearch:
 		// Limits far above rounding: the exchange broke down at the
 		// length that should meet (seen with wide don't-care regions
 		// beside a passband not from 0), not the user's limits.
 		return fmt.Errorf("design: the search for the shortest filter ended without an answer: %d taps fail and the design of %d taps broke down (its error fell to rounding level, which --ripple %g dB and --atten %g dB do not explain): design a length with --taps", se.Fail, se.Met, f.ripple, f.atten)
 	case errors.Is(err, remez.ErrTooManyBands) && f.taps > 0:
-		return usagef("--taps %d: %d bands (--pass and --stop together) are more than a %d-tap filter can shape, at most %d; use fewer --stop bands or at least %d --taps", f.taps, len(f.bands), f.taps, (f.taps+1)/2, 2*len(f.bands)-1)
+		return usagef("--taps %d: %d bands (--pass and --stop together) are more than a %d-tap filter can shape, at most %d; use fewer --stop bands or at least %d --taps", f.taps, len(f.bands), f.taps, (f.taps+1)/2, remez.LeastTaps(len(f.bands)))
 	case errors.Is(err, remez.ErrGridTooLarge) && isSearch:
 		return usagef("--grid %d: no filter up to %d taps, the longest whose grid fits in memory at this density, meets --ripple and --atten; lower --grid (16 fits every length up to %d taps)", f.grid, se.Limit, maxDesignTaps)
 	case errors.Is(err, remez.ErrGridTooLarge):

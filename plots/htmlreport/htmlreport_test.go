@@ -465,24 +465,11 @@ multiplierless = true
 	if err != nil {
 		t.Fatal(err)
 	}
-	ctx := context.Background()
-	res, err := optimize.Plan(ctx, s.Chain, s.SearchSettings())
+	res, err := optimize.Plan(context.Background(), s.Chain, s.SearchSettings())
 	if err != nil {
 		t.Fatal(err)
 	}
-	rep, err := report.NewContext(ctx, "plan", s, res)
-	if err != nil {
-		t.Fatal(err)
-	}
-	files, err := report.Files(ctx, rep, res, s)
-	if err != nil {
-		t.Fatal(err)
-	}
-	files, err = AddPlanPage("ml.toml", rep, files)
-	if err != nil {
-		t.Fatal(err)
-	}
-	page := string(files[len(files)-1].Data)
+	page, rep := pageOf(t, "plan", "ml.toml", s, res)
 	rec := rep.Front[rep.Recommended]
 	for _, want := range []string{
 		`<th class="n">adders</th>`, "Hardware adders (as built)", "Multiplierless</th>",
@@ -655,26 +642,13 @@ rejection = "60 dB"
 	if err != nil {
 		t.Fatal(err)
 	}
-	ctx := context.Background()
-	cand, _, err := optimize.Check(ctx, s.Chain, plan, s.SearchSettings())
+	cand, _, err := optimize.Check(context.Background(), s.Chain, plan, s.SearchSettings())
 	if err != nil {
 		t.Fatal(err)
 	}
 	res := &optimize.Result{Candidates: 1, FeasibleAll: 1, Designed: 1, Dropped: map[optimize.Reason]int{},
 		Front: []optimize.Candidate{cand}, Reason: "only one"}
-	rep, err := report.NewContext(ctx, "check", s, res)
-	if err != nil {
-		t.Fatal(err)
-	}
-	files, err := report.Files(ctx, rep, res, s)
-	if err != nil {
-		t.Fatal(err)
-	}
-	files, err = AddPlanPage("tx.toml", rep, files)
-	if err != nil {
-		t.Fatal(err)
-	}
-	page := string(files[len(files)-1].Data)
+	page, _ := pageOf(t, "check", "tx.toml", s, res)
 	i := strings.Index(page, "Stage 1: FIR, interpolate by 2")
 	if i < 0 {
 		t.Fatal("no stage 1 card")
@@ -688,4 +662,25 @@ rejection = "60 dB"
 	if strings.Contains(cards, "/ output</th>") {
 		t.Error("an interpolation chain's stage card counts per output")
 	}
+}
+
+// pageOf builds the report of res (a plan's or check's result for s) as
+// the command does, with its files, and returns report.html's text and
+// the report.
+func pageOf(t *testing.T, command, name string, s *specfile.Spec, res *optimize.Result) (string, *report.Report) {
+	t.Helper()
+	ctx := context.Background()
+	rep, err := report.NewContext(ctx, command, s, res)
+	if err != nil {
+		t.Fatal(err)
+	}
+	files, err := report.Files(ctx, rep, res, s)
+	if err != nil {
+		t.Fatal(err)
+	}
+	files, err = AddPlanPage(name, rep, files)
+	if err != nil {
+		t.Fatal(err)
+	}
+	return string(files[len(files)-1].Data), rep
 }
