@@ -111,16 +111,24 @@ func (e *engine) design() (*Result, error) {
 	if errors.Is(err, errCannotMeet) {
 		return nil, err
 	}
-	if !conv && e.seeded && it < e.maxIter {
-		// A seeded start can be wrong in structure (a seed's reference
-		// scaled onto many narrow bands) and break down; the evenly spread
-		// start of the 1973 program is slower but robust: try it with the
-		// iterations left, and keep whichever run did better.
+	// A start can be wrong in structure (a seed's reference scaled onto
+	// many narrow bands, or the even spread there) and break down: try the
+	// evenly spread start of the 1973 program (slower but robust) unless
+	// the design began with it, then an equal share of points a band, with
+	// the iterations left, and keep whichever run did best.
+	starts := []func(){e.bandRef}
+	if !e.spread {
+		starts = []func(){e.uniformRef, e.bandRef}
+	}
+	for _, start := range starts {
+		if conv || e.gridOnly || it >= e.maxIter {
+			break
+		}
 		first := append([]point(nil), e.ref...)
 		firstGap, firstErr := e.bestGap, err
 		e.local, e.stepGap = false, math.Inf(1)
 		e.best = e.best[:0]
-		e.uniformRef()
+		start()
 		it2, conv2, err2 := e.run(tol, e.maxIter-it)
 		it += it2
 		if serr := e.stopped(); serr != nil {
@@ -132,6 +140,7 @@ func (e *engine) design() (*Result, error) {
 		if conv2 || (err2 == nil && (firstErr != nil || e.bestGap < firstGap)) {
 			conv, err = conv2, err2
 		} else {
+			e.bestGap = firstGap
 			e.ref = append(e.ref[:0], first...)
 			if lerr := e.level(); lerr == nil {
 				e.evalGrid()
@@ -191,9 +200,11 @@ func (e *engine) laxCheck(dev []float64, conv bool) error {
 	}
 	// A levelled deviation only bounds the optimum from below, so a tiny
 	// one is evidence of a lax specification only when the exchange had a
-	// real budget to work with; a run cut short by a small MaxIterations
-	// may simply not have found the structure yet.
-	if !conv && e.maxIter >= minLaxIter && math.Abs(e.delta)/wmax <= lim {
+	// real budget to work with (a run cut short by a small MaxIterations
+	// may simply not have found the structure yet) and no reference the
+	// design levelled, from any start, bounded the optimum above rounding
+	// level (a start far from the optimum can level to rounding level).
+	if !conv && e.maxIter >= minLaxIter && e.maxDelta/wmax <= lim {
 		tiny = true
 	}
 	if !tiny {

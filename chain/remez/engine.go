@@ -120,8 +120,13 @@ type engine struct {
 	// its reference size
 	seedCnt []int
 	seedM   int
-	seeded  bool    // the start was scaled or coarse, not evenly spread
-	bestGap float64 // smallest relative gap of the last run's grid passes
+	seeded  bool // the start was scaled or coarse, not evenly spread
+	spread  bool // uniformRef has laid a start
+	// maxDelta is the largest |delta| of any reference this engine has
+	// levelled: every one bounds the least weighted error of this length
+	// from below (see failAbove).
+	maxDelta float64
+	bestGap  float64 // smallest relative gap of the last run's grid passes
 	// wdev is the deviations' WeightFunc-shaped twin measured with the
 	// Result's Deviations (see deviations), for MinLength.
 	wdev []float64
@@ -453,7 +458,7 @@ func (e *engine) buildGrid() error {
 // uniformRef places the initial reference at evenly spaced grid indices,
 // as the 1973 program does.
 func (e *engine) uniformRef() {
-	m := e.r + 1
+	e.spread = true
 	e.ref = e.ref[:0]
 	ng := len(e.grid)
 	step := float64(ng-1) / float64(e.r)
@@ -461,7 +466,59 @@ func (e *engine) uniformRef() {
 		e.ref = append(e.ref, e.grid[int(float64(j)*step)])
 	}
 	e.ref = append(e.ref, e.grid[ng-1])
-	_ = m
+}
+
+// bandRef places the initial reference with an equal share of the r+1
+// points in every band (a band with fewer grid points than its share
+// gives the rest to the others), evenly spread over each band's grid
+// points, both edges included. It is the last start a design tries: the
+// even spread over the grid gives a band points in proportion to its
+// grid points, and where many narrow bands each hold many more extrema of
+// the optimum than their width's share of the grid (each band's edges are
+// extrema, and so are the lobes the weights crowd into it), that start can
+// be so far from the optimum that its levelled deviation sits at rounding
+// level and the exchange breaks down from it.
+func (e *engine) bandRef() {
+	nb := len(e.bands)
+	cnt := make([]int, nb)
+	left, open := e.r+1, nb
+	full := make([]bool, nb)
+	for left > 0 && open > 0 {
+		share, extra := left/open, left%open
+		open = 0
+		for b := range nb {
+			if full[b] {
+				continue
+			}
+			give := share
+			if extra > 0 {
+				give++
+				extra--
+			}
+			room := e.bstart[b+1] - e.bstart[b] - cnt[b]
+			if give >= room {
+				give = room
+				full[b] = true
+			} else {
+				open++
+			}
+			cnt[b] += give
+			left -= give
+		}
+	}
+	e.ref = e.ref[:0]
+	for b := range nb {
+		lo, n := e.bstart[b], e.bstart[b+1]-e.bstart[b]
+		switch c := cnt[b]; c {
+		case 0:
+		case 1:
+			e.ref = append(e.ref, e.grid[lo+(n-1)/2])
+		default:
+			for k := range c {
+				e.ref = append(e.ref, e.grid[lo+int(math.Round(float64(k)*float64(n-1)/float64(c-1)))])
+			}
+		}
+	}
 }
 
 // scaledRef sets the initial reference from the converged reference sub of
@@ -671,6 +728,7 @@ func (e *engine) level() error {
 	if math.IsNaN(e.delta) || math.IsInf(e.delta, 0) {
 		return errors.New("remez: levelled deviation undefined (numerical breakdown)")
 	}
+	e.maxDelta = math.Max(e.maxDelta, math.Abs(e.delta))
 	k = 0
 	for i := range m {
 		if i == q {
