@@ -131,7 +131,9 @@ type BitTrueResult struct {
 	// AliasNoiseDB is the level (positive dB below the DC gain) of the integer
 	// output's residual noise in the measured bin (quantisation noise and the
 	// test signal's own noise); AliasValid says it is at least 20 dB below the
-	// alias, so that it moves the bit-true figure by under 1 dB. A window
+	// alias, so that it moves the bit-true figure by under 1 dB, and that
+	// the figure is no better than AliasResponseDB by more than that noise
+	// and aliasSlackDB explain (aliasFlattered). A window
 	// shorter than Samples is kept only with it 40 dB below (an RMS error
 	// under 0.1 dB); at Samples and beyond, while it is not valid, the alias
 	// run is repeated on a window four times as long (6 dB less noise in the
@@ -1381,8 +1383,33 @@ func aliasRun(ctx context.Context, c Cascade, w *Widths, sig Signal, res *BitTru
 		}
 		win *= 4
 	}
+	res.AliasValid = res.AliasValid && !aliasFlattered(res)
 	return nil
 }
+
+// aliasFlattered reports a bit-true alias (or image) rejection better
+// than the quantised chain's response at the tone (AliasResponseDB) by
+// more than the noise in its bin and the measurement's own slack
+// (aliasSlackDB) can explain: the data path's rounding, correlated with
+// the tone, has partly cancelled the alias. That is what the hardware
+// does for this tone at this level and phase, but another could add the
+// same error instead, so the figure does not stand for the band (the
+// safe side: AliasValid false). Noise m dB below the alias shrinks it by
+// at most a factor 1 - 10^(-m/20).
+func aliasFlattered(res *BitTrueResult) bool {
+	m := res.AliasNoiseDB - res.AliasRejectionDB
+	allow := -20 * math.Log10(1-math.Pow(10, -m/20))
+	if !(allow >= 0) { // noise at or above the alias: NaN or +Inf
+		return true
+	}
+	return res.AliasRejectionDB > res.AliasResponseDB+allow+aliasSlackDB
+}
+
+// aliasSlackDB is how far a bit-true alias figure may lie above the
+// response beyond what its bin's noise explains: the projection over a
+// finite window of a tone moved to its bin, next to the other tones'
+// leakage.
+const aliasSlackDB = 0.1
 
 // wholeCycles is the whole number of cycles over a window of win samples
 // at rate nearest a tone at f Hz in [0, rate/2], from 1 to win/2 - 1; a

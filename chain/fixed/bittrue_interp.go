@@ -319,6 +319,7 @@ func bitTrueInterp(ctx context.Context, c Cascade, w *Widths, sig Signal) (BitTr
 			break
 		}
 	}
+	res.AliasValid = res.AliasValid && !aliasFlattered(&res)
 	return res, nil
 }
 
@@ -676,6 +677,7 @@ func imageRunFrac(ctx context.Context, c Cascade, w *Widths, sig Signal, res *Bi
 			break
 		}
 	}
+	res.AliasValid = res.AliasValid && !aliasFlattered(res)
 	return nil
 }
 

@@ -147,7 +147,12 @@
 // the SNR's window instead (wholeCycles, which keeps a tone inside the
 // protected band when a bin fits in it); a tone so moved out of the band,
 // which a band narrower than a bin leaves no other way, makes the run
-// invalid (AliasValid false): its figure says nothing about the band.
+// invalid (AliasValid false): its figure says nothing about the band. So
+// does a figure better than the rounded taps' response at the tone
+// (AliasResponseDB) by more than the noise in its bin and 0.1 dB of
+// measurement slack explain: the data path's rounding, correlated with
+// this tone at this level and phase, has partly cancelled the alias, and
+// another tone could add it instead (seen 4 to 5 dB above the response).
 //
 // The run streams: the test signal is generated and both chains run a
 // block of 2^15 input samples at a time, keeping only the filters' state
@@ -326,7 +331,8 @@
 // WorstAliasResponseDB and Result.Quantised.AliasRejectionDB
 // (quantised_alias_rejection_db) chain.Analyze's image rejection relative
 // to DC, and AliasValid (bittrue_alias_valid) says the noise in g's bin is
-// 20 dB below the image.
+// 20 dB below the image and the bit-true figure no better than the
+// response's by more than that noise explains (as for an alias).
 //
 // # Fractional stages
 //
