@@ -2,7 +2,6 @@ package fixed
 
 import (
 	"math"
-	"math/rand/v2"
 	"testing"
 )
 
@@ -41,26 +40,9 @@ func TestAliasFlattered(t *testing.T) {
 // domain, apart from the run) by more than its bin's noise and the slack
 // explain, and the rule does mark some runs.
 func TestAliasFlatteredRuns(t *testing.T) {
-	rng := rand.New(rand.NewPCG(11, 23))
-	var g memoGroup
-	var samples int
 	flagged := 0
-	for k := range 40 {
-		if k%4 == 0 {
-			g, samples = randomMemoGroup(rng), 64<<rng.IntN(4)
-		}
-		c, w := randomMemoCascade(t, rng, g)
-		sig := Signal{Seed: uint64(1 + k%4/3), Samples: samples}
-		switch k / 4 % 5 {
-		case 1:
-			sig.NoiseDBFS = math.Inf(-1)
-		case 2:
-			fk := c.ChannelRate()
-			sig.Tones = []Tone{{Freq: 0.1 * fk, Level: -10}, {Freq: 0.2 * fk, Level: -12}}
-		case 3:
-			sig.Samples = 0
-		}
-		r, err := BitTrue(c, w, sig)
+	for k, rc := range memoRunCases(t) {
+		r, err := BitTrue(rc.c, rc.w, rc.sig)
 		if err != nil {
 			t.Fatalf("case %d: %v", k, err)
 		}

@@ -53,36 +53,13 @@ func randomMemoCascade(t *testing.T, rng *rand.Rand, g memoGroup) (Cascade, *Wid
 // for bit. Some signals have no noise, some
 // several tones; TestInputMemoView covers the block boundaries.
 func TestInputMemoSameResults(t *testing.T) {
-	rng := rand.New(rand.NewPCG(11, 23))
-	type runCase struct {
-		c    Cascade
-		w    *Widths
-		sig  Signal
-		want BitTrueResult
-	}
-	var cases []runCase
-	var g memoGroup
-	var samples int
-	for k := range 40 {
-		if k%4 == 0 {
-			g, samples = randomMemoGroup(rng), 64<<rng.IntN(4)
-		}
-		c, w := randomMemoCascade(t, rng, g)
-		sig := Signal{Seed: uint64(1 + k%4/3), Samples: samples}
-		switch k / 4 % 5 {
-		case 1:
-			sig.NoiseDBFS = math.Inf(-1)
-		case 2:
-			fk := c.ChannelRate()
-			sig.Tones = []Tone{{Freq: 0.1 * fk, Level: -10}, {Freq: 0.2 * fk, Level: -12}}
-		case 3:
-			sig.Samples = 0 // the default window
-		}
-		want, err := BitTrue(c, w, sig)
+	cases := memoRunCases(t)
+	for k := range cases {
+		want, err := BitTrue(cases[k].c, cases[k].w, cases[k].sig)
 		if err != nil {
 			t.Fatalf("case %d: %v", k, err)
 		}
-		cases = append(cases, runCase{c, w, sig, want})
+		cases[k].want = want
 	}
 	memo := new(InputMemo)
 	got := make([]BitTrueResult, len(cases))
@@ -221,4 +198,41 @@ func TestInputMemoView(t *testing.T) {
 			t.Errorf("sigma %g: %d signals held, want 1", sigma, len(memo.signals))
 		}
 	}
+}
+
+// memoRun is one of memoRunCases' runs: a cascade, its widths and a
+// signal, and what BitTrue gave for them alone.
+type memoRun struct {
+	c    Cascade
+	w    *Widths
+	sig  Signal
+	want BitTrueResult
+}
+
+// memoRunCases returns 40 seeded random runs, four a group of cascades
+// sharing an input (randomMemoGroup), with short and default windows,
+// without noise, and with two tones of their own.
+func memoRunCases(t *testing.T) []memoRun {
+	rng := rand.New(rand.NewPCG(11, 23))
+	var cases []memoRun
+	var g memoGroup
+	var samples int
+	for k := range 40 {
+		if k%4 == 0 {
+			g, samples = randomMemoGroup(rng), 64<<rng.IntN(4)
+		}
+		c, w := randomMemoCascade(t, rng, g)
+		sig := Signal{Seed: uint64(1 + k%4/3), Samples: samples}
+		switch k / 4 % 5 {
+		case 1:
+			sig.NoiseDBFS = math.Inf(-1)
+		case 2:
+			fk := c.ChannelRate()
+			sig.Tones = []Tone{{Freq: 0.1 * fk, Level: -10}, {Freq: 0.2 * fk, Level: -12}}
+		case 3:
+			sig.Samples = 0 // the default window
+		}
+		cases = append(cases, memoRun{c: c, w: w, sig: sig})
+	}
+	return cases
 }
