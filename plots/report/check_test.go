@@ -180,3 +180,62 @@ func TestCompareTies(t *testing.T) {
 		t.Errorf("summary %q: want %q and no claim that the front lacks it", text, want)
 	}
 }
+
+// ReadComparison reads only the front's summary of a plan's report.json,
+// not its stages: on 200 seeded random fronts (figures, verdicts, adders
+// on some, stages with taps) it gives the comparison NewComparison gives
+// on the whole decoded report, and a random checked chain is beaten by,
+// and beats, the same front chains either way.
+func TestReadComparisonSameAsWhole(t *testing.T) {
+	spec, err := specfile.Example()
+	if err != nil {
+		t.Fatal(err)
+	}
+	dir := t.TempDir()
+	rng := rand.New(rand.NewPCG(5, 9))
+	chainOf := func(i int, adders bool) Chain {
+		c := Chain{Notation: "c" + strings.Repeat("x", i), MultipliesPerOutput: float64(rng.IntN(40)),
+			MemoryBits: rng.IntN(40), LatencyS: float64(rng.IntN(40)) * 1e-6, MeetsTargets: rng.IntN(4) > 0}
+		if adders {
+			a := rng.IntN(40)
+			c.Adders = &a
+		}
+		c.Stages = []Stage{{Kind: "fir", Coefficients: []float64{rng.Float64(), 1, rng.Float64()}}}
+		return c
+	}
+	for k := range 200 {
+		adders := k%3 == 0
+		rep := Report{Schema: Schema, Command: "plan", Spec: NewSpec(spec)}
+		for i := range rng.IntN(12) {
+			rep.Front = append(rep.Front, chainOf(i, adders))
+		}
+		b, err := json.Marshal(rep)
+		if err != nil {
+			t.Fatal(err)
+		}
+		p := filepath.Join(dir, "r.json")
+		if err := os.WriteFile(p, b, 0o644); err != nil {
+			t.Fatal(err)
+		}
+		got, err := ReadComparison(p, spec)
+		if err != nil {
+			t.Fatalf("case %d: %v", k, err)
+		}
+		want := NewComparison(got.Source, &rep)
+		gj, _ := json.Marshal(got)
+		wj, _ := json.Marshal(want)
+		if string(gj) != string(wj) {
+			t.Fatalf("case %d: read %s, whole %s", k, gj, wj)
+		}
+		checked := chainOf(20+k%3, adders)
+		r1 := Report{Front: []Chain{checked}}
+		r2 := Report{Front: []Chain{checked}}
+		r1.Compare(got)
+		r2.Compare(want)
+		o1, _ := json.Marshal([]any{r1.BeatenBy, r1.Beats, got.OnFront, got.Rank})
+		o2, _ := json.Marshal([]any{r2.BeatenBy, r2.Beats, want.OnFront, want.Rank})
+		if string(o1) != string(o2) {
+			t.Fatalf("case %d: compared with the file read %s, with the whole report %s", k, o1, o2)
+		}
+	}
+}
