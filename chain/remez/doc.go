@@ -36,15 +36,15 @@
 // levelled deviation by at most 1e-5 of it. Local steps that leave the
 // levelled deviation unchanged to 1e-9 four times running without
 // converging (rounding noise in the error of long, deep designs) hand over
-// to the grid exchange for the rest of the design; a start that does not
-// converge is followed, within the same MaxIterations, by the 1973
-// program's evenly spread start (unless the design began with it) and then
-// by an equal share of the points in every band (where many narrow bands
-// each hold far more extrema than their share of the grid, the even
-// spread can level to rounding level and break down), and the best run is
-// kept. A design that does not converge is judged met to rounding level
-// only when no reference it levelled, from any start, bounded the optimum
-// above that level (every levelled deviation bounds it from below). The
+// to the grid exchange for the rest of the design; a seeded start that
+// does not converge is followed, within the same MaxIterations (which
+// Result.Iterations counts over all starts), by the 1973 program's evenly
+// spread start (unless the seeding fell back to it) and then by an equal
+// share of the points in every band (where many narrow bands each hold
+// far more extrema than their share of the grid, the even spread can level
+// to rounding level and break down), and the best run is kept. Short
+// designs, which start evenly spread, and GridOnly designs get no other
+// start. The
 // exchange keeps, among the
 // local extrema of every band (band edges included) and the old reference,
 // one point per run of equal sign and trims the surplus while keeping

@@ -120,13 +120,9 @@ type engine struct {
 	// its reference size
 	seedCnt []int
 	seedM   int
-	seeded  bool // the start was scaled or coarse, not evenly spread
-	spread  bool // uniformRef has laid a start
-	// maxDelta is the largest |delta| of any reference this engine has
-	// levelled: every one bounds the least weighted error of this length
-	// from below (see failAbove).
-	maxDelta float64
-	bestGap  float64 // smallest relative gap of the last run's grid passes
+	seeded  bool    // the start was scaled or coarse, not evenly spread
+	spread  bool    // uniformRef has laid a start
+	bestGap float64 // smallest relative gap of the last run's grid passes
 	// wdev is the deviations' WeightFunc-shaped twin measured with the
 	// Result's Deviations (see deviations), for MinLength.
 	wdev []float64
@@ -480,42 +476,59 @@ func (e *engine) uniformRef() {
 // level and the exchange breaks down from it.
 func (e *engine) bandRef() {
 	nb := len(e.bands)
+	// A band that touches the one before it (its first grid point is the
+	// other's last) leaves its first point out.
+	skip := make([]int, nb)
+	room := make([]int, nb)
+	for b := range nb {
+		lo := e.bstart[b]
+		if b > 0 && lo > 0 && e.grid[lo].f <= e.grid[lo-1].f {
+			skip[b] = 1
+		}
+		room[b] = e.bstart[b+1] - lo - skip[b]
+	}
+	// Water-filling: the largest level L with every band given
+	// min(room, L) points in all at most r+1, then one more to the first
+	// bands with room to spare until there are r+1 (the grid holds at
+	// least r+1 points, buildGrid checks).
+	total := func(l int) int {
+		t := 0
+		for _, rm := range room {
+			t += min(rm, l)
+		}
+		return t
+	}
+	lo, hi := 0, e.r+1
+	for lo < hi {
+		mid := (lo + hi + 1) / 2
+		if total(mid) <= e.r+1 {
+			lo = mid
+		} else {
+			hi = mid - 1
+		}
+	}
 	cnt := make([]int, nb)
-	left, open := e.r+1, nb
-	full := make([]bool, nb)
-	for left > 0 && open > 0 {
-		share, extra := left/open, left%open
-		open = 0
-		for b := range nb {
-			if full[b] {
-				continue
-			}
-			give := share
-			if extra > 0 {
-				give++
-				extra--
-			}
-			room := e.bstart[b+1] - e.bstart[b] - cnt[b]
-			if give >= room {
-				give = room
-				full[b] = true
-			} else {
-				open++
-			}
-			cnt[b] += give
-			left -= give
+	left := e.r + 1
+	for b := range nb {
+		cnt[b] = min(room[b], lo)
+		left -= cnt[b]
+	}
+	for b := 0; b < nb && left > 0; b++ {
+		if cnt[b] < room[b] {
+			cnt[b]++
+			left--
 		}
 	}
 	e.ref = e.ref[:0]
 	for b := range nb {
-		lo, n := e.bstart[b], e.bstart[b+1]-e.bstart[b]
+		first, n := e.bstart[b]+skip[b], room[b]
 		switch c := cnt[b]; c {
 		case 0:
 		case 1:
-			e.ref = append(e.ref, e.grid[lo+(n-1)/2])
+			e.ref = append(e.ref, e.grid[first+(n-1)/2])
 		default:
 			for k := range c {
-				e.ref = append(e.ref, e.grid[lo+int(math.Round(float64(k)*float64(n-1)/float64(c-1)))])
+				e.ref = append(e.ref, e.grid[first+int(math.Round(float64(k)*float64(n-1)/float64(c-1)))])
 			}
 		}
 	}
@@ -728,7 +741,6 @@ func (e *engine) level() error {
 	if math.IsNaN(e.delta) || math.IsInf(e.delta, 0) {
 		return errors.New("remez: levelled deviation undefined (numerical breakdown)")
 	}
-	e.maxDelta = math.Max(e.maxDelta, math.Abs(e.delta))
 	k = 0
 	for i := range m {
 		if i == q {

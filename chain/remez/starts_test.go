@@ -33,8 +33,8 @@ func TestBandShareStart(t *testing.T) {
 		return e, conv, err
 	}
 	e, conv, err := run((*engine).uniformRef)
-	if conv || err == nil || e.maxDelta > 1e-13 {
-		t.Errorf("even spread: converged %v, error %v, largest levelled deviation %.3g: want a breakdown at rounding level (the case this start is for)", conv, err, e.maxDelta)
+	if conv || err == nil || math.Abs(e.delta) > 1e-13 {
+		t.Errorf("even spread: converged %v, error %v, levelled deviation %.3g: want a breakdown at rounding level (the case this start is for)", conv, err, e.delta)
 	}
 	e, conv, err = run((*engine).bandRef)
 	if !conv || err != nil {
@@ -45,43 +45,12 @@ func TestBandShareStart(t *testing.T) {
 	}
 }
 
-// A tiny levelled deviation from a run that broke down is no evidence of a
-// specification met to rounding level once another start of the same
-// design levelled one far above it (every levelled deviation bounds the
-// optimum from below: de la Vallee Poussin's theorem, common practice).
-func TestLaxEvidenceFromEveryStart(t *testing.T) {
-	bands := narrowStopBands(2.5957e-4, 1.7425e-7)
-	e, err := newEngine(169, 1, bands, Settings{})
-	if err != nil {
-		t.Fatal(err)
-	}
-	if err := e.buildGrid(); err != nil {
-		t.Fatal(err)
-	}
-	e.bandRef()
-	if _, conv, err := e.run(tolContinuous, 250); !conv || err != nil {
-		t.Fatalf("equal share: converged %v, error %v", conv, err)
-	}
-	e.uniformRef()
-	_, conv, err := e.run(tolContinuous, 250)
-	if conv || err == nil {
-		t.Fatalf("even spread: converged %v, error %v: want a breakdown", conv, err)
-	}
-	if got := e.laxCheck([]float64{1, 1}, false); got != nil {
-		t.Errorf("judged met to rounding level after a levelled deviation of %.3g: %v", e.maxDelta, got)
-	}
-	// Without that evidence the same breakdown is judged lax, as before.
-	e.maxDelta = math.Abs(e.delta)
-	if got := e.laxCheck([]float64{1, 1}, false); got == nil {
-		t.Error("a breakdown at rounding level with no other evidence was not judged lax")
-	}
-}
-
 // bandRef lays r+1 distinct points in increasing order, each in its band,
 // with shares that differ by at most one between bands that have grid
 // points to spare; and on 60 seeded random multiband layouts (a passband
-// and 2 to 8 narrow stopbands, random weights) a run from it that
-// converges finds Design's deviation.
+// and 2 to 8 narrow stopbands, random weights, odd and even lengths, some
+// bands touching the one before) a run from it that converges finds
+// Design's deviation.
 func TestBandShareStartRandom(t *testing.T) {
 	rng := rand.New(rand.NewPCG(17, 2))
 	ran := 0
@@ -92,9 +61,12 @@ func TestBandShareStartRandom(t *testing.T) {
 		step := (0.5 - fp - 0.02) / float64(nb-1)
 		for k := 1; k < nb; k++ {
 			lo := fp + 0.02 + float64(k-1)*step + 0.3*step*rng.Float64()
+			if k > 1 && rng.IntN(4) == 0 {
+				lo = bands[k-1].Hi // touching the band before
+			}
 			bands = append(bands, Band{Lo: lo, Hi: lo + 0.5*step*(0.1+0.9*rng.Float64()), Weight: math.Pow(10, 3*rng.Float64())})
 		}
-		n := 4*nb + 1 + 2*rng.IntN(60)
+		n := 4*nb + 1 + rng.IntN(120)
 		e, err := newEngine(n, 1, bands, Settings{})
 		if err != nil {
 			t.Fatalf("case %d: %v", c, err)
