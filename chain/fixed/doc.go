@@ -225,7 +225,11 @@
 // gain at 0 Hz up to that output times their responses on the rounded
 // taps at the tone, summed in an interpolation chain over the tone and
 // each image the stages up to it leave (the tone and its images can peak
-// together; at 0 Hz an image's two lines meet and both count), maximised
+// together; at 0 Hz an image's two lines meet and both count; past 4096
+// images of a CIC, as at L = 1024000, the rest are bounded by the CIC's
+// 1/x^N envelope and each earlier stage's absolute tap sum, and the
+// figure is at most the bound at the CIC's input times its gain at 0 Hz,
+// its taps being positive), maximised
 // over the band on a grid of eight points to each ripple of those stages,
 // every local maximum within 1% of the best refined by golden section. A
 // stage whose input an earlier stage clips first at that tone gets no

@@ -327,7 +327,9 @@ func EvaluateContext(ctx context.Context, spec chain.Spec, c *chain.Chain, s Set
 	if err != nil {
 		return nil, err
 	}
-	headroomPoints(cas, ws)
+	if err := headroomPoints(ctx, cas, ws); err != nil {
+		return nil, fmt.Errorf("fixed: headroom bound stopped: %w", err)
+	}
 	res := &Result{Widths: ws, Quantised: qa, UnityGainAsked: s.UnityGain}
 	if sig.AliasHz == 0 {
 		sig.AliasHz = qa.WorstAliasHz

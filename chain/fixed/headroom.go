@@ -1,6 +1,7 @@
 package fixed
 
 import (
+	"context"
 	"fmt"
 	"math"
 	"sort"
@@ -32,10 +33,17 @@ type gainModel struct {
 	// one an image. minus and plus are at's scratch for them.
 	period      []int
 	minus, plus [][]float64
+	// sup[j] bounds stage j's magnitude over its magnitude at 0 Hz: its
+	// taps' absolute sum over their sum (1 for a CIC, whose taps are all
+	// positive).
+	sup []float64
+	// lines is how many of a CIC's images at sums before bounding the
+	// rest (maxImageLines).
+	lines int
 }
 
 func newGainModel(c Cascade, w *Widths) *gainModel {
-	m := &gainModel{interp: c.Interpolate, fin: c.InputRate, rates: c.Rates()}
+	m := &gainModel{interp: c.Interpolate, fin: c.InputRate, rates: c.Rates(), lines: maxImageLines}
 	for i, st := range c.Stages {
 		hi := m.rates[i] // a decimating stage's taps run at its input rate
 		if c.Interpolate {
@@ -58,6 +66,15 @@ func newGainModel(c Cascade, w *Widths) *gainModel {
 			}
 		}
 		m.stages, m.hi, m.g0 = append(m.stages, s), append(m.hi, hi), append(m.g0, g0)
+		sup := 1.0
+		if f, ok := s.(chain.FIRStage); ok {
+			abs := 0.0
+			for _, h := range f.Taps {
+				abs += math.Abs(h)
+			}
+			sup = math.Max(1, abs/g0)
+		}
+		m.sup = append(m.sup, sup)
 		m.dc = append(m.dc, prefixGain(w, i))
 		p := max(1, int(math.Round(hi/c.InputRate)))
 		m.period = append(m.period, p)
@@ -97,6 +114,9 @@ func (m *gainModel) shape(i int, f float64) float64 {
 // droop it corrects; and an interpolation stage that leaves images to the
 // stages after it (which the cascade rule lets it do) adds them. For a
 // cascade with a fractional stage it is prefixGain alone (gainModel.frac).
+// Past m.lines images of a CIC the rest are bounded (cicTail), and the
+// figure is at most the bound at the CIC's input carried through its
+// positive taps.
 func (m *gainModel) at(i int, f float64) float64 {
 	if m.frac {
 		return m.dc[i]
@@ -105,31 +125,88 @@ func (m *gainModel) at(i int, f float64) float64 {
 		return m.dc[i] * m.shape(i, f)
 	}
 	top := m.rates[i+1] / 2
-	for j := 0; j <= i; j++ {
+	// A CIC with more images than m.lines (a million at
+	// L = 1024000, each for every point of the peak search, and a period
+	// as long) has its first maxImageLines summed and the rest bounded
+	// (cicTail); its own factor is then read at each image, not from the
+	// tables.
+	_, cic := m.stages[i].(chain.CICStage)
+	tail := cic && top/m.fin > float64(m.lines)
+	n := i + 1
+	if tail {
+		n = i
+	}
+	for j := range n {
 		for r := range m.period[j] {
 			m.minus[j][r] = m.stageAt(j, float64(r)*m.fin-f)
 			m.plus[j][r] = m.stageAt(j, float64(r)*m.fin+f)
 		}
 	}
-	line := func(k int, v [][]float64) float64 {
+	line := func(k int, v [][]float64, x float64) float64 {
 		g := 1.0
-		for j := 0; j <= i; j++ {
+		for j := range n {
 			g *= v[j][k%m.period[j]]
+		}
+		if tail {
+			g *= m.stageAt(i, x)
 		}
 		return g
 	}
-	sum := line(0, m.plus)
-	for k := 1; float64(k)*m.fin-f <= top; k++ {
-		sum += line(k, m.minus)
+	sum := line(0, m.plus, f)
+	k := 1
+	for ; (!tail || k <= m.lines) && float64(k)*m.fin-f <= top; k++ {
+		sum += line(k, m.minus, float64(k)*m.fin-f)
 		// At f = 0 the two images meet in one line of twice the
 		// amplitude: both count, but at the output's Nyquist rate, where
 		// the line is the one alone.
 		if x := float64(k)*m.fin + f; x <= top && !(f == 0 && x == top) {
-			sum += line(k, m.plus)
+			sum += line(k, m.plus, x)
 		}
 	}
-	return m.dc[i] * sum
+	if !tail || float64(k)*m.fin-f > top {
+		return m.dc[i] * sum
+	}
+	summed := m.dc[i] * (sum + m.cicTail(i, k, f, top))
+	// The CIC's taps are all positive, so its output's peak is also at
+	// most its input's (the bound at stage i-1, the tone itself at the
+	// first stage) times its gain at 0 Hz, whatever the input: the
+	// tighter of the two (an order-1 CIC's images fall only as 1/k).
+	carried := m.dc[i]
+	if i > 0 && m.dc[i-1] > 0 {
+		carried = m.dc[i] * m.at(i-1, f) / m.dc[i-1]
+	}
+	return math.Min(summed, carried)
 }
+
+// cicTail bounds the sum, over the images k Fin -+ f from k = k0 on (up
+// to top), of the stages' magnitudes at stage i, a CIC of order N,
+// differential delay M, input rate Fc, output rate R Fc. Over 0 < x <=
+// R Fc / 2, sin(pi x / (R Fc)) >= 2 x / (R Fc), so the CIC's magnitude
+// over its gain at 0 Hz is at most (Fc / (2 M x))^N; an image's x is at
+// least (k - 1/2) Fin (f lies below Fin / 2), and each earlier stage's
+// magnitude is at most its taps' absolute sum over their sum (sup). The
+// sum over k of (k - 1/2)^-N is at most its first term plus the integral
+// from k0 on.
+func (m *gainModel) cicTail(i, k0 int, f, top float64) float64 {
+	st := m.stages[i].(chain.CICStage)
+	a := 1.0
+	for j := range i {
+		a *= m.sup[j]
+	}
+	c := m.rates[i] / (2 * float64(st.M) * m.fin)
+	n := float64(st.N)
+	t0 := float64(k0) - 0.5
+	integral := math.Pow(t0, 1-n) / (n - 1)
+	if st.N == 1 {
+		kEnd := (top+f)/m.fin + 1
+		integral = math.Log((kEnd - 0.5) / t0)
+	}
+	return 2 * a * math.Pow(c, n) * (math.Pow(t0, -n) + integral)
+}
+
+// maxImageLines is how many images of a tone at sums at a CIC's output
+// before it takes the CIC's positive taps' bound instead (see at).
+const maxImageLines = 1 << 12
 
 // maxGainAt is the largest at over the stages at f, at least 1.
 func (m *gainModel) maxGainAt(f float64) float64 {
@@ -147,7 +224,7 @@ func (m *gainModel) maxGainAt(f float64) float64 {
 // times over the band), at most 2^14, the highest peakRefines local maxima
 // within 1% of the best refined between their neighbours by golden
 // section.
-func (m *gainModel) peak(c Cascade, i int) (f, g float64) {
+func (m *gainModel) peak(ctx context.Context, c Cascade, i int) (f, g float64, err error) {
 	fa := c.protectedEdge()
 	at := func(x float64) float64 { return m.at(i, x) }
 	r := c.Rates()
@@ -163,6 +240,11 @@ func (m *gainModel) peak(c Cascade, i int) (f, g float64) {
 	vals := make([]float64, grid+1)
 	best := 0
 	for k := range vals {
+		if k%peakCheckEvery == 0 {
+			if err := ctx.Err(); err != nil {
+				return 0, 0, err
+			}
+		}
 		vals[k] = at(fa * float64(k) / float64(grid))
 		if vals[k] > vals[best] {
 			best = k
@@ -179,6 +261,9 @@ func (m *gainModel) peak(c Cascade, i int) (f, g float64) {
 	}
 	sort.SliceStable(tops, func(a, b int) bool { return vals[tops[a]] > vals[tops[b]] })
 	for _, k := range tops[:min(len(tops), peakRefines)] {
+		if err := ctx.Err(); err != nil {
+			return 0, 0, err
+		}
 		lo, hi := fa*float64(max(0, k-1))/float64(grid), fa*float64(min(grid, k+1))/float64(grid)
 		if x, gx := remez.GoldenMax(at, lo, hi, 40, fa*1e-9); gx > g {
 			f, g = x, gx
@@ -187,8 +272,12 @@ func (m *gainModel) peak(c Cascade, i int) (f, g float64) {
 	if f < fa*1e-6 {
 		f = 0 // a refinement a hair from 0 Hz
 	}
-	return f, g
+	return f, g, nil
 }
+
+// peakCheckEvery is how many points of its search peak evaluates between
+// looks at its context.
+const peakCheckEvery = 64
 
 // peakRefines is how many of the passband's highest local maxima
 // peak refines.
@@ -199,18 +288,18 @@ const peakRefines = 4
 // band can drive past its own largest code (by gainModel.at's bound, images
 // included) a point saying where and by how much: the input must stay
 // that far below full scale there, or the stage may saturate.
-func headroomPoints(c Cascade, w *Widths) {
+func headroomPoints(ctx context.Context, c Cascade, w *Widths) error {
 	if !(c.Passband > 0) {
-		return
+		return nil
 	}
 	m := newGainModel(c, w)
 	if m.frac {
-		return
+		return nil
 	}
 	// The loudest tone the input word carries: its largest code.
 	in := 1 - math.Ldexp(1, 1-w.InputBits)
 	if !(in > 0) {
-		return // a 1-bit word's codes are 0 and -1 of full scale
+		return nil // a 1-bit word's codes are 0 and -1 of full scale
 	}
 	// top is a stage's largest code less two LSBs, for the rounding of the
 	// input and of the stages, which the bound, in real numbers, leaves out.
@@ -221,7 +310,10 @@ stages:
 		if !(top(i) > 0) {
 			continue // a word of two or three bits: no room for the margin
 		}
-		f, g := m.peak(c, i)
+		f, g, err := m.peak(ctx, c, i)
+		if err != nil {
+			return err
+		}
 		if g*in <= top(i) {
 			continue
 		}
@@ -240,4 +332,5 @@ stages:
 		}
 		sw.Points = append(sw.Points, fmt.Sprintf("headroom: an input tone at %s %s can peak at %+.3f dB of this output's full scale (the stages' gain there, images included), so above %.3f dBFS it may saturate the %d-bit output", units.FormatComputedFrequency(f4), where, db, 20*math.Log10(top(i)/g), sw.OutputBits))
 	}
+	return nil
 }

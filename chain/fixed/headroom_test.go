@@ -1,6 +1,8 @@
 package fixed
 
 import (
+	"context"
+	"errors"
 	"math"
 	"math/rand/v2"
 	"strings"
@@ -33,7 +35,7 @@ func TestGainBoundAgainstChain(t *testing.T) {
 			}
 			brute = math.Max(brute, got)
 		}
-		_, peak := gm.peak(c, last)
+		_, peak, _ := gm.peak(context.Background(), c, last)
 		if peak < brute*(1-1e-6) {
 			t.Errorf("trial %d: the peak search %.9g below the scan's %.9g", trial, peak, brute)
 		}
@@ -52,9 +54,11 @@ func TestHeadroomPointUnityGain(t *testing.T) {
 		if err != nil {
 			t.Fatal(err)
 		}
-		headroomPoints(c, w)
+		if err := headroomPoints(context.Background(), c, w); err != nil {
+			t.Fatal(err)
+		}
 		last := len(w.Stages) - 1
-		_, peak := newGainModel(c, w).peak(c, last)
+		_, peak, _ := newGainModel(c, w).peak(context.Background(), c, last)
 		has := false
 		for _, p := range w.Stages[last].Points {
 			has = has || strings.HasPrefix(p, "headroom:")
@@ -140,7 +144,9 @@ func TestHeadroomNarrowWords(t *testing.T) {
 		if err != nil {
 			t.Fatal(err)
 		}
-		headroomPoints(c, w)
+		if err := headroomPoints(context.Background(), c, w); err != nil {
+			t.Fatal(err)
+		}
 		for i := range w.Stages {
 			for _, p := range w.Stages[i].Points {
 				if strings.Contains(p, "NaN") || (words.InputBits == 1 && strings.HasPrefix(p, "headroom:")) {
@@ -175,7 +181,24 @@ func TestHeadroomBoundAgainstModel(t *testing.T) {
 		if err != nil {
 			t.Fatal(err)
 		}
+		for _, lines := range []int{maxImageLines, 2} {
+			headroomAgainstModel(t, tc.notation, tc.fin, cas, words, w, lines)
+		}
+	}
+}
+
+// headroomAgainstModel is TestHeadroomBoundAgainstModel on one cascade,
+// its CICs' images summed up to lines and bounded beyond (cicTail and the
+// positive taps' bound, which lines = 2 forces where the full sum is
+// cheap enough to make).
+func headroomAgainstModel(t *testing.T, notation string, fin float64, cas Cascade, words Words, w *Widths, lines int) {
+	tc := struct {
+		notation string
+		fin      float64
+	}{notation, fin}
+	{
 		gm := newGainModel(cas, w)
+		gm.lines = lines
 		fa := cas.protectedEdge()
 		level := 0.5 / gm.maxGainAt(fa) // the band's edge lifts most
 		for k := 0; k <= 40; k++ {
@@ -213,8 +236,30 @@ func TestHeadroomBoundAgainstModel(t *testing.T) {
 		}
 		// A bound far above every peak would pass whatever it said.
 		if tight < 0.95 {
-			t.Errorf("%s: the peaks reach at most %.3f of the bound: the test checks little", tc.notation, tight)
+			t.Errorf("%s, images summed up to %d: the peaks reach at most %.3f of the bound: the test checks little", tc.notation, lines, tight)
 		}
-		t.Logf("%s: the peaks reach %.4f of the bound", tc.notation, tight)
+		t.Logf("%s, images summed up to %d: the peaks reach %.4f of the bound", tc.notation, lines, tight)
+	}
+}
+
+// headroomPoints stops when its context is done: the peak search looks at
+// it every peakCheckEvery points.
+func TestHeadroomStops(t *testing.T) {
+	spec, ch := designedInterp(t, "fir2 > cic5m2r16", 2.5e6, 1e6, 16, 16)
+	cas, words, err := FromChain(spec, ch)
+	if err != nil {
+		t.Fatal(err)
+	}
+	w, err := Plan(cas, words, Settings{})
+	if err != nil {
+		t.Fatal(err)
+	}
+	ctx, cancel := context.WithCancel(context.Background())
+	cancel()
+	if err := headroomPoints(ctx, cas, w); !errors.Is(err, context.Canceled) {
+		t.Errorf("cancelled: %v, want context.Canceled", err)
+	}
+	if _, err := EvaluateContext(ctx, spec, ch, Settings{}, Signal{}); !errors.Is(err, context.Canceled) {
+		t.Errorf("Evaluate cancelled: %v, want context.Canceled", err)
 	}
 }
