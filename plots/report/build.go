@@ -303,6 +303,14 @@ func render(ctx context.Context, f *plots.Figure, format string) func() ([]byte,
 		done <- result{nil, err}
 	} else {
 		go func() {
+			// The plotting library panics on some ranges (a log axis
+			// past float64's); a figure that cannot be drawn is an
+			// error of the run, which then leaves no output behind.
+			defer func() {
+				if r := recover(); r != nil {
+					done <- result{nil, fmt.Errorf("could not be drawn: %v", r)}
+				}
+			}()
 			var buf bytes.Buffer
 			err := f.Render(&buf, format, 0, 0)
 			done <- result{buf.Bytes(), err}

@@ -7,6 +7,7 @@ import (
 	"os"
 	"path/filepath"
 	"reflect"
+	"strconv"
 	"strings"
 
 	"github.com/stepdown-dsp/stepdown/chain/specfile"
@@ -330,11 +331,70 @@ func ReadComparison(path string, spec *specfile.Spec) (*Comparison, error) {
 			return nil, fmt.Errorf("--front %q: planned for another spec (its %s differ); plan this spec, or leave --front out to plan it now", shown, d.what)
 		}
 	}
+	if err := checkComparedFront(rep.Front); err != nil {
+		return nil, fmt.Errorf("--front %q: %v; want the report.json a plan wrote", shown, err)
+	}
 	front := rep.Front
 	if front == nil {
 		front = []FrontChain{}
 	}
 	return &Comparison{Source: "the plan in " + units.Clip(filepath.Base(path), units.MaxEcho), Front: front}, nil
+}
+
+// maxComparedFigure bounds a compared front's multiplies, adders, memory
+// bits and latency in seconds, and its inverse bounds them from below
+// unless they are 0: far beyond any plan's either way, and far enough
+// inside float64's range for the front plot's log axes.
+const maxComparedFigure = 1e12
+
+// checkComparedFront refuses a front no plan writes, in report.json's own
+// names: a figure negative, not finite or beyond maxComparedFigure (or
+// positive below its inverse), or a
+// chain that meets the targets beaten on every axis of the plan's cost
+// (adders where every chain has them) by another that does, which the
+// front plot cannot draw.
+func checkComparedFront(front []FrontChain) error {
+	adders := len(front) > 0
+	for i, c := range front {
+		figs := []struct {
+			name string
+			v    float64
+		}{{"multiplies_per_output", c.MultipliesPerOutput}, {"memory_bits", float64(c.MemoryBits)}, {"latency_s", c.LatencyS}}
+		if c.Adders != nil {
+			figs = append(figs, struct {
+				name string
+				v    float64
+			}{"adders", float64(*c.Adders)})
+		} else {
+			adders = false
+		}
+		for _, f := range figs {
+			if !(f.v == 0 || f.v >= 1/maxComparedFigure && f.v <= maxComparedFigure) {
+				return fmt.Errorf("front[%d].%s = %s: out of range (a plan's are 0 or lie between %g and %g)", i, f.name, units.Clip(strconv.FormatFloat(f.v, 'g', -1, 64), 30), 1/maxComparedFigure, maxComparedFigure)
+			}
+		}
+	}
+	axis := "multiplies"
+	if adders {
+		axis = "adders"
+	}
+	cost := func(c FrontChain) float64 {
+		if adders {
+			return float64(*c.Adders)
+		}
+		return c.MultipliesPerOutput
+	}
+	for i, a := range front {
+		for j, b := range front {
+			if !a.MeetsTargets || !b.MeetsTargets || cost(b) > cost(a) || b.MemoryBits > a.MemoryBits || b.LatencyS > a.LatencyS {
+				continue
+			}
+			if cost(b) < cost(a) || b.MemoryBits < a.MemoryBits || b.LatencyS < a.LatencyS {
+				return fmt.Errorf("front[%d] (%s) is beaten on %s, memory and latency by front[%d] (%s): not a plan's front", i, units.Clip(a.Notation, 40), axis, j, units.Clip(b.Notation, 40))
+			}
+		}
+	}
+	return nil
 }
 
 // comparedReport is what ReadComparison reads of a plan's report.json:

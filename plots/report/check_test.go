@@ -182,8 +182,8 @@ func TestCompareTies(t *testing.T) {
 }
 
 // ReadComparison reads only the front's summary of a plan's report.json,
-// not its stages: on 200 seeded random fronts (figures, verdicts, adders
-// on some, stages with taps) it gives the comparison NewComparison gives
+// not its stages: on 200 seeded random fronts (figures no chain beats on
+// every axis, verdicts, adders on some, stages with taps) it gives the comparison NewComparison gives
 // on the whole decoded report, and a random checked chain is beaten by,
 // and beats, the same front chains either way.
 func TestReadComparisonSameAsWhole(t *testing.T) {
@@ -193,11 +193,19 @@ func TestReadComparisonSameAsWhole(t *testing.T) {
 	}
 	dir := t.TempDir()
 	rng := rand.New(rand.NewPCG(5, 9))
+	// Chain i of a front has more multiplies (adders) and less memory
+	// than chain i-1, as on a plan's front; a checked chain, any figures.
 	chainOf := func(i int, adders bool) Chain {
-		c := Chain{Notation: "c" + strings.Repeat("x", i), MultipliesPerOutput: float64(rng.IntN(40)),
-			MemoryBits: rng.IntN(40), LatencyS: float64(rng.IntN(40)) * 1e-6, MeetsTargets: rng.IntN(4) > 0}
+		c := Chain{Notation: "c" + strings.Repeat("x", i), MultipliesPerOutput: float64(3*i + rng.IntN(3)),
+			MemoryBits: 100 - 3*i - rng.IntN(3), LatencyS: float64(1+rng.IntN(40)) * 1e-6, MeetsTargets: rng.IntN(4) > 0}
+		if i >= 20 {
+			c.MultipliesPerOutput, c.MemoryBits = float64(rng.IntN(40)), rng.IntN(100)
+		}
 		if adders {
-			a := rng.IntN(40)
+			a := int(c.MultipliesPerOutput) + rng.IntN(2)
+			if i < 20 {
+				a = 3 * i
+			}
 			c.Adders = &a
 		}
 		c.Stages = []Stage{{Kind: "fir", Coefficients: []float64{rng.Float64(), 1, rng.Float64()}}}
@@ -236,6 +244,61 @@ func TestReadComparisonSameAsWhole(t *testing.T) {
 		o2, _ := json.Marshal([]any{r2.BeatenBy, r2.Beats, want.OnFront, want.Rank})
 		if string(o1) != string(o2) {
 			t.Fatalf("case %d: compared with the file read %s, with the whole report %s", k, o1, o2)
+		}
+	}
+}
+
+// ReadComparison refuses, in report.json's own names and with no Go
+// words, a front no plan writes: figures out of range (which the front
+// plot's log axes cannot draw, 1e290 made it panic) and a chain meeting
+// the targets beaten on every axis by another that does.
+func TestReadComparisonRefusesOddFronts(t *testing.T) {
+	spec, err := specfile.Example()
+	if err != nil {
+		t.Fatal(err)
+	}
+	dir := t.TempDir()
+	a := func(n int) *int { return &n }
+	base := func() []Chain {
+		return []Chain{
+			{Notation: "one", MultipliesPerOutput: 10, MemoryBits: 900, LatencyS: 3e-6, MeetsTargets: true},
+			{Notation: "two", MultipliesPerOutput: 20, MemoryBits: 500, LatencyS: 2e-6, MeetsTargets: true},
+			{Notation: "three", MultipliesPerOutput: 30, MemoryBits: 800, LatencyS: 1e-6, MeetsTargets: true},
+		}
+	}
+	for _, tc := range []struct {
+		name string
+		edit func([]Chain)
+		frag string // "" accepted
+	}{
+		{"plan's", func([]Chain) {}, ""},
+		{"huge", func(f []Chain) { f[1].MultipliesPerOutput = 1e290 }, "front[1].multiplies_per_output = 1e+290: out of range"},
+		{"negative memory", func(f []Chain) { f[1].MemoryBits = -1 }, "front[1].memory_bits = -1: out of range"},
+		{"tiny", func(f []Chain) { f[2].LatencyS = 1e-300 }, "front[2].latency_s = 1e-300: out of range"},
+		{"zero multiplies", func(f []Chain) { f[0].MultipliesPerOutput = 0 }, ""},
+		{"adders", func(f []Chain) { f[0].Adders, f[1].Adders, f[2].Adders = a(5), a(-2), a(9) }, "front[1].adders = -2"},
+		{"dominated", func(f []Chain) { f[0].LatencyS, f[0].MemoryBits = 1e-6, 700 }, "front[2] (three) is beaten on multiplies, memory and latency by front[0] (one)"},
+		{"dominated but missing", func(f []Chain) { f[0].LatencyS, f[0].MemoryBits, f[2].MeetsTargets = 1e-6, 700, false }, ""},
+		// On adders one is beaten, though it has the fewest multiplies.
+		{"dominated on adders", func(f []Chain) { f[0].Adders, f[1].Adders, f[2].Adders = a(50), a(20), a(40); f[0].MemoryBits = 850 }, "front[0] (one) is beaten on adders, memory and latency by front["},
+		{"not dominated on adders", func(f []Chain) { f[0].Adders, f[1].Adders, f[2].Adders = a(5), a(20), a(40); f[0].MemoryBits = 850 }, ""},
+	} {
+		rep := Report{Schema: Schema, Command: "plan", Spec: NewSpec(spec), Front: base()}
+		tc.edit(rep.Front)
+		b, err := json.Marshal(rep)
+		if err != nil {
+			t.Fatal(err)
+		}
+		p := filepath.Join(dir, "f.json")
+		if err := os.WriteFile(p, b, 0o644); err != nil {
+			t.Fatal(err)
+		}
+		_, err = ReadComparison(p, spec)
+		switch {
+		case tc.frag == "" && err != nil:
+			t.Errorf("%s: %v", tc.name, err)
+		case tc.frag != "" && (err == nil || !strings.Contains(err.Error(), tc.frag)):
+			t.Errorf("%s: %v, want it to say %q", tc.name, err, tc.frag)
 		}
 	}
 }
