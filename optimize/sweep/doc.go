@@ -79,7 +79,9 @@
 // invalid row whose detail names that edge and its rule.
 //
 // Statuses (sweep.csv's status column): "ok"; "partial" (the time limit came
-// during the search: the front is the best found so far); "invalid" (the value
+// during the search: the front is the best found so far; or during its
+// word lengths, which its report.json, marked partial, then lacks for some
+// chains); "invalid" (the value
 // makes the spec inconsistent); "infeasible" (searched, no chain meets the
 // spec; detail gives the drop counts); "stopped" (the time limit or an
 // interrupt came before any chain); "error" (the search failed).

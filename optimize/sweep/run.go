@@ -172,6 +172,16 @@ func Run(ctx context.Context, st Study) []Result {
 			return err
 		}
 		r.Report = rep
+		// The time limit or an interrupt may have ended its word lengths
+		// (and so its bit-true runs and rounded-taps verdicts), as plan
+		// marks its report then: partial.
+		if ctx.Err() != nil && r.Status == OK {
+			rep.Partial = true
+			r.Status, r.Detail = Partial, "stopped by the time limit before every front chain's word lengths were planned"
+			if errors.Is(ctx.Err(), context.Canceled) {
+				r.Detail = "stopped by an interrupt before every front chain's word lengths were planned"
+			}
+		}
 		return nil
 	})
 	for i, err := range reps {
@@ -180,6 +190,8 @@ func Run(ctx context.Context, st Study) []Result {
 		case err != nil:
 			r.Status, r.Detail, r.Report = Failed, err.Error(), nil
 			continue
+		case notes != nil && notes[i] != "" && r.Status == Partial:
+			r.Detail += "; " + notes[i]
 		case notes != nil && notes[i] != "":
 			r.Detail = notes[i]
 		}

@@ -9,6 +9,7 @@ import (
 	"runtime"
 	"slices"
 	"strings"
+	"sync"
 	"sync/atomic"
 	"testing"
 	"time"
@@ -581,5 +582,37 @@ func TestWorkersHeldToCPUs(t *testing.T) {
 	one := Run(context.Background(), Study{Name: "ex", Spec: []byte(specfile.ExampleText), Vary: v, Workers: 1, Plan: fakePlan})
 	if !bytes.Equal(CSV(v, many), CSV(v, one)) {
 		t.Errorf("sweep.csv differs with 1024 workers:\n%s\nwith one:\n%s", CSV(v, many), CSV(v, one))
+	}
+}
+
+// A value whose search finished but whose word lengths the time limit cut
+// short is partial, and so is its report, as plan marks its own: here the
+// limit comes as the last search returns (a stand-in that cancels the run),
+// on an invented 40 to 2.5 MS/s receiver swept over two rejections.
+func TestWordLengthsCutIsPartial(t *testing.T) {
+	text := "input_rate = \"40 MHz\"\noutput_rate = \"2.5 MHz\"\npassband = \"900 kHz\"\nripple = \"0.2 dB\"\nrejection = \"70 dB\"\n"
+	v, err := ParseVary("rejection=70:71:1")
+	if err != nil {
+		t.Fatal(err)
+	}
+	ctx, cancel := context.WithCancel(context.Background())
+	defer cancel()
+	var mu sync.Mutex
+	searched := 0
+	plan := func(ctx context.Context, s chain.Spec, set optimize.Settings) (*optimize.Result, error) {
+		res, err := optimize.Plan(ctx, s, set)
+		mu.Lock()
+		if searched++; searched == 2 {
+			cancel()
+		}
+		mu.Unlock()
+		return res, err
+	}
+	rs := Run(ctx, Study{Name: "rx", Spec: []byte(text), Vary: v, Workers: 1, Plan: plan})
+	for _, r := range rs {
+		if r.Status != Partial || r.Report == nil || !r.Report.Partial || !strings.Contains(r.Detail, "word lengths were planned") {
+			partial := r.Report != nil && r.Report.Partial
+			t.Errorf("%g dB: status %s, report partial %v, detail %q: want partial", r.Value, r.Status, partial, r.Detail)
+		}
 	}
 }
