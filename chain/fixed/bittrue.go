@@ -1394,12 +1394,13 @@ func aliasRun(ctx context.Context, c Cascade, w *Widths, sig Signal, res *BitTru
 // the tone, has partly cancelled the alias. That is what the hardware
 // does for this tone at this level and phase, but another could add the
 // same error instead, so the figure does not stand for the band (the
-// safe side: AliasValid false). Noise m dB below the alias shrinks it by
-// at most a factor 1 - 10^(-m/20).
+// safe side: AliasValid false). Noise of amplitude rho times the measured
+// alias (m dB below it, rho = 10^(-m/20)) can have shrunk the true alias
+// to the measured one from at most 1 + rho times it.
 func aliasFlattered(res *BitTrueResult) bool {
 	m := res.AliasNoiseDB - res.AliasRejectionDB
-	allow := -20 * math.Log10(1-math.Pow(10, -m/20))
-	if !(allow >= 0) { // noise at or above the alias: NaN or +Inf
+	allow := 20 * math.Log10(1+math.Pow(10, -m/20))
+	if math.IsNaN(allow) {
 		return true
 	}
 	return res.AliasRejectionDB > res.AliasResponseDB+allow+aliasSlackDB
