@@ -348,6 +348,11 @@ func WriteTable(w io.Writer, rep *Report) {
 		}
 		fmt.Fprintln(w)
 	}
+	if !rounded && rep.Spec.Words.CoefficientsMode != "fixed" && !adders && len(rep.Front) > 0 {
+		// Floating-point taps have no width: the memory column stands
+		// them at the cost model's, which the chosen widths differ from.
+		fmt.Fprintf(w, "memory bits count %d-bit coefficient words (the taps have no fixed width); report.json's fixed_memory_bits counts the widths the word lengths chose\n", cost.FloatCoefBits)
+	}
 	if len(over) > 0 {
 		fmt.Fprintf(w, "over limits: as built, by the word lengths planned for each, %s", strings.Join(over, "; "))
 		if rep.Spec.Words.CoefficientsMode != "fixed" {
