@@ -45,7 +45,9 @@ func (s PolyphaseStage) Gain(f, rate float64) float64 {
 	return remez.Magnitude(s.Taps, f, rate*float64(s.Up))
 }
 
-// PhaseTaps returns the multiplies of one output, ceil(Length/Up).
+// PhaseTaps returns the multiplies of one output, ceil(Length/Up). An
+// interpolation chain holds its stages transposed (Up is then the signal's
+// down factor M), so there it is the multiplies of one input sample.
 func (s PolyphaseStage) PhaseTaps() int { return (s.Length + s.Up - 1) / s.Up }
 
 // FarrowStage is a fractional stage that changes the rate by Up/Down with

@@ -676,7 +676,11 @@ func stageViews(c report.Chain, files []string, prefix string, clock bool) []sta
 		case "polyphase":
 			add("Up, down", fmt.Sprintf("L = %d, M = %d", s.Interpolation, s.Decimation))
 			add("Prototype", fmt.Sprintf("%d taps at %s, unit gain at 0 Hz", s.Taps, freq(s.InputRateHz*float64(s.Interpolation))))
-			add("Taps per output", strconv.Itoa(s.PhaseTaps))
+			if c.Interpolates() {
+				add("Taps per input", strconv.Itoa(s.PhaseTaps)) // the transposed form
+			} else {
+				add("Taps per output", strconv.Itoa(s.PhaseTaps))
+			}
 			if s.CompensatesCIC != nil && *s.CompensatesCIC {
 				add("CIC droop", "compensated here")
 			}

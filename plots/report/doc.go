@@ -34,7 +34,9 @@
 // chain.Chain.Rates gives them). A polyphase stage's coefficients are its
 // prototype lowpass at L x its input rate with unit gain at 0 Hz, as the
 // chain holds it (the data path multiplies by L), taps its length and
-// phase_taps ceil(taps/L); a Farrow stage's farrow_coefficients are
+// phase_taps ceil(taps/L), its multiplies per output (in an interpolation
+// chain, held and priced as its transpose, ceil(taps/M), its multiplies
+// per input sample); a Farrow stage's farrow_coefficients are
 // chain/farrow's Filter.Coef, one row of taps per power of mu, lowest
 // first (farrow_degree+1 rows), and farrow_convention is the sentence
 // farrow.Convention. A chain with a fractional stage, decimation or

@@ -333,7 +333,9 @@ type Stage struct {
 	// Half-band, FIR and polyphase. A polyphase stage's Coefficients are
 	// its prototype lowpass at Interpolation x its input rate, with unit
 	// gain at 0 Hz as the chain holds it (the data path multiplies by L),
-	// Taps its length, PhaseTaps ceil(Taps/L), the multiplies per output.
+	// Taps its length, PhaseTaps ceil(Taps/L), the multiplies per output
+	// (in an interpolation chain, held as its transpose, ceil(Taps/M) in
+	// signal order, the multiplies per input sample).
 	// CompensatesCIC is set on every FIR and half-band stage, and on a
 	// polyphase stage only when it compensates the CIC just before it
 	// (placed after the CIC; its passband is then 1/|H_cic|).
