@@ -101,7 +101,7 @@ func kneeReason(fs []figs, u [][3]float64, k int, what string, interp bool) stri
 			case u >= 1.5:
 				return fmt.Sprintf("has %.1f times the least %s", u, what)
 			}
-			return fmt.Sprintf("is within %.0f%% of the least %s", 100*(u-1), what)
+			return fmt.Sprintf("is within %.0f%% of the least %s", math.Floor(100*(u-1)+0.5+1e-9), what)
 		}
 		fewest := "the fewest multiplies per output"
 		if interp {
@@ -135,9 +135,12 @@ func change(a, b float64, more, less string) string {
 	case math.Abs(r) < 0.005:
 		return "the same"
 	case r > 0:
-		return fmt.Sprintf("%.0f%% %s", 100*r, more)
+		// A tie rounds against the chain: 12.5% more is 13% more (fmt
+		// would round it to the even 12), 14.5% less is 14% less; within
+		// 1e-9 of a half is a tie (171/200 - 1 is not -0.145 exactly).
+		return fmt.Sprintf("%.0f%% %s", math.Floor(100*r+0.5+1e-9), more)
 	default:
-		return fmt.Sprintf("%.0f%% %s", -100*r, less)
+		return fmt.Sprintf("%.0f%% %s", math.Ceil(-100*r-0.5-1e-9), less)
 	}
 }
 
