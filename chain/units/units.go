@@ -313,6 +313,23 @@ func FormatComputedFrequency(hz float64) string {
 	return FormatFrequency(hz)
 }
 
+// FormatDifference writes hi - lo, a width between two frequencies the
+// user gave, to the digits the two leave it: subtracting close numbers
+// loses as many digits as their size over the width (0.1000001 - 0.1 is
+// 1.0000000000288e-07 in float64, written 100 nHz, not 100.000000003 nHz).
+func FormatDifference(hi, lo float64) string {
+	d := hi - lo
+	if d == 0 || math.IsNaN(d) || math.IsInf(d, 0) {
+		return FormatComputedFrequency(d)
+	}
+	lost := math.Ceil(math.Log10(math.Max(math.Abs(hi), math.Abs(lo)) / math.Abs(d)))
+	digits := max(3, 12-int(math.Max(0, lost)))
+	if v, err := strconv.ParseFloat(strconv.FormatFloat(d, 'g', digits, 64), 64); err == nil {
+		d = v
+	}
+	return FormatFrequency(d)
+}
+
 // ParseRange parses a band "LO:HI" of kind k. A unit written only after HI
 // applies to both ends, so "100:200 kHz" is 100 kHz to 200 kHz; "0:1.2 MHz"
 // and "600 kHz:1.2 MHz" read as written.

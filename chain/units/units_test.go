@@ -419,3 +419,23 @@ func TestDecimalPrefixRegexp(t *testing.T) {
 		}
 	}
 }
+
+// FormatDifference keeps only the digits a width between two given
+// frequencies has (worked by hand: 0.1000001 - 0.1 is 1.0000000000288e-07
+// in float64, of which six digits are noise).
+func TestFormatDifference(t *testing.T) {
+	for _, tc := range []struct {
+		hi, lo float64
+		want   string
+	}{
+		{0.1000001, 0.1, "1e-07 Hz"},
+		{100.001, 100, "0.001 Hz"},
+		{20e3, 10e3, "10 kHz"},
+		{1e9 + 1, 1e9, "1 Hz"},
+		{250e3, 0, "250 kHz"},
+	} {
+		if got := FormatDifference(tc.hi, tc.lo); got != tc.want {
+			t.Errorf("FormatDifference(%v, %v) = %q, want %q", tc.hi, tc.lo, got, tc.want)
+		}
+	}
+}

@@ -500,7 +500,7 @@ func checkDesignSize(edges []designEdge, dp, ds, atten, rate float64) error {
 		taps = "over 2 billion taps"
 	}
 	return usagef("--atten %g dB over the %s transition from %s to %s: %s (Herrmann's estimate; the shortest filter is at least %.2g of it), more than the %d this command designs; %s",
-		atten, units.FormatComputedFrequency(tr), units.FormatFrequency(edges[wi].hi), units.FormatFrequency(edges[wi+1].lo), taps, ratio, maxDesignTaps, advice)
+		atten, units.FormatDifference(edges[wi+1].lo, edges[wi].hi), units.FormatFrequency(edges[wi].hi), units.FormatFrequency(edges[wi+1].lo), taps, ratio, maxDesignTaps, advice)
 }
 
 // rippleOf is the peak-to-peak ripple of a passband deviation; a deviation of
