@@ -331,12 +331,18 @@ func ReadComparison(path string, spec *specfile.Spec) (*Comparison, error) {
 			return nil, fmt.Errorf("--front %q: planned for another spec (its %s differ); plan this spec, or leave --front out to plan it now", shown, d.what)
 		}
 	}
-	if err := checkComparedFront(rep.Front); err != nil {
-		return nil, fmt.Errorf("--front %q: %v; want the report.json a plan wrote", shown, err)
+	// An interpolation plan writes its counts per input sample, under
+	// multiplies_per_input (InterpolationKey).
+	costKey := "multiplies_per_output"
+	front := make([]FrontChain, 0, len(rep.Front))
+	for _, c := range rep.Front {
+		if c.MultipliesPerInput != nil {
+			c.MultipliesPerOutput, costKey = *c.MultipliesPerInput, InterpolationKey(costKey)
+		}
+		front = append(front, c.FrontChain)
 	}
-	front := rep.Front
-	if front == nil {
-		front = []FrontChain{}
+	if err := checkComparedFront(front, costKey); err != nil {
+		return nil, fmt.Errorf("--front %q: %v; want the report.json a plan wrote", shown, err)
 	}
 	return &Comparison{Source: "the plan in " + units.Clip(filepath.Base(path), units.MaxEcho), Front: front}, nil
 }
@@ -353,13 +359,13 @@ const maxComparedFigure = 1e12
 // chain that meets the targets beaten on every axis of the plan's cost
 // (adders where every chain has them) by another that does, which the
 // front plot cannot draw.
-func checkComparedFront(front []FrontChain) error {
+func checkComparedFront(front []FrontChain, costKey string) error {
 	adders := len(front) > 0
 	for i, c := range front {
 		figs := []struct {
 			name string
 			v    float64
-		}{{"multiplies_per_output", c.MultipliesPerOutput}, {"memory_bits", float64(c.MemoryBits)}, {"latency_s", c.LatencyS}}
+		}{{costKey, c.MultipliesPerOutput}, {"memory_bits", float64(c.MemoryBits)}, {"latency_s", c.LatencyS}}
 		if c.Adders != nil {
 			figs = append(figs, struct {
 				name string
@@ -404,9 +410,12 @@ func checkComparedFront(front []FrontChain) error {
 // strings), measured; skipped, the file itself and the front's summary
 // are all that is held.
 type comparedReport struct {
-	Schema  string       `json:"schema"`
-	Command string       `json:"command"`
-	Partial bool         `json:"partial"`
-	Spec    Spec         `json:"spec"`
-	Front   []FrontChain `json:"front"`
+	Schema  string `json:"schema"`
+	Command string `json:"command"`
+	Partial bool   `json:"partial"`
+	Spec    Spec   `json:"spec"`
+	Front   []struct {
+		FrontChain
+		MultipliesPerInput *float64 `json:"multiplies_per_input"`
+	} `json:"front"`
 }

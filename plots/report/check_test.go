@@ -183,7 +183,8 @@ func TestCompareTies(t *testing.T) {
 
 // ReadComparison reads only the front's summary of a plan's report.json,
 // not its stages: on 200 seeded random fronts (figures no chain beats on
-// every axis, verdicts, adders on some, stages with taps) it gives the comparison NewComparison gives
+// every axis, verdicts, adders on some, stages with taps, half of them an
+// interpolation plan's, whose counts are per input) it gives the comparison NewComparison gives
 // on the whole decoded report, and a random checked chain is beaten by,
 // and beats, the same front chains either way.
 func TestReadComparisonSameAsWhole(t *testing.T) {
@@ -215,7 +216,10 @@ func TestReadComparisonSameAsWhole(t *testing.T) {
 		adders := k%3 == 0
 		rep := Report{Schema: Schema, Command: "plan", Spec: NewSpec(spec)}
 		for i := range rng.IntN(12) {
-			rep.Front = append(rep.Front, chainOf(i, adders))
+			c := chainOf(i, adders)
+			// An interpolation plan's chains write multiplies_per_input.
+			c.interp = k%2 == 1
+			rep.Front = append(rep.Front, c)
 		}
 		b, err := json.Marshal(rep)
 		if err != nil {
@@ -274,6 +278,12 @@ func TestReadComparisonRefusesOddFronts(t *testing.T) {
 		{"plan's", func([]Chain) {}, ""},
 		{"huge", func(f []Chain) { f[1].MultipliesPerOutput = 1e290 }, "front[1].multiplies_per_output = 1e+290: out of range"},
 		{"negative memory", func(f []Chain) { f[1].MemoryBits = -1 }, "front[1].memory_bits = -1: out of range"},
+		{"huge, interpolation", func(f []Chain) {
+			for i := range f {
+				f[i].interp = true
+			}
+			f[1].MultipliesPerOutput = 1e290
+		}, "front[1].multiplies_per_input = 1e+290: out of range"},
 		{"tiny", func(f []Chain) { f[2].LatencyS = 1e-300 }, "front[2].latency_s = 1e-300: out of range"},
 		{"zero multiplies", func(f []Chain) { f[0].MultipliesPerOutput = 0 }, ""},
 		{"adders", func(f []Chain) { f[0].Adders, f[1].Adders, f[2].Adders = a(5), a(-2), a(9) }, "front[1].adders = -2"},
