@@ -6,6 +6,7 @@ import (
 	"math"
 	"sort"
 	"strconv"
+	"sync/atomic"
 
 	"github.com/stepdown-dsp/stepdown/chain"
 	"github.com/stepdown-dsp/stepdown/chain/remez"
@@ -40,7 +41,17 @@ type gainModel struct {
 	// lines is how many of a CIC's images at sums before bounding the
 	// rest (maxImageLines).
 	lines int
+	// halt, when set, is set once the caller's context is done: at, which
+	// can take seconds with a FIR's thousands of taps at tens of thousands
+	// of image frequencies, then returns at once (headroomPoints).
+	halt *atomic.Bool
 }
+
+// haltCheckEvery is how many stage magnitudes or image lines at computes
+// between looks at the halt flag.
+const haltCheckEvery = 256
+
+func (m *gainModel) halted() bool { return m.halt != nil && m.halt.Load() }
 
 func newGainModel(c Cascade, w *Widths) *gainModel {
 	m := &gainModel{interp: c.Interpolate, fin: c.InputRate, rates: c.Rates(), lines: maxImageLines}
@@ -138,6 +149,10 @@ func (m *gainModel) at(i int, f float64) float64 {
 	}
 	for j := range n {
 		for r := range m.period[j] {
+			if r%haltCheckEvery == 0 && m.halted() {
+				// Stopped: peak returns the context's error, not this.
+				return 0
+			}
 			m.minus[j][r] = m.stageAt(j, float64(r)*m.fin-f)
 			m.plus[j][r] = m.stageAt(j, float64(r)*m.fin+f)
 		}
@@ -155,6 +170,9 @@ func (m *gainModel) at(i int, f float64) float64 {
 	sum := line(0, m.plus, f)
 	k := 1
 	for ; (!tail || k <= m.lines) && float64(k)*m.fin-f <= top; k++ {
+		if k%haltCheckEvery == 0 && m.halted() {
+			return 0
+		}
 		sum += line(k, m.minus, float64(k)*m.fin-f)
 		// At f = 0 the two images meet in one line of twice the
 		// amplitude: both count, but at the output's Nyquist rate, where
@@ -240,10 +258,8 @@ func (m *gainModel) peak(ctx context.Context, c Cascade, i int) (f, g float64, e
 	vals := make([]float64, grid+1)
 	best := 0
 	for k := range vals {
-		if k%peakCheckEvery == 0 {
-			if err := ctx.Err(); err != nil {
-				return 0, 0, err
-			}
+		if err := ctx.Err(); err != nil {
+			return 0, 0, err
 		}
 		vals[k] = at(fa * float64(k) / float64(grid))
 		if vals[k] > vals[best] {
@@ -272,12 +288,12 @@ func (m *gainModel) peak(ctx context.Context, c Cascade, i int) (f, g float64, e
 	if f < fa*1e-6 {
 		f = 0 // a refinement a hair from 0 Hz
 	}
+	// A halted at reads 0: no figure stands once the context is done.
+	if err := ctx.Err(); err != nil {
+		return 0, 0, err
+	}
 	return f, g, nil
 }
-
-// peakCheckEvery is how many points of its search peak evaluates between
-// looks at its context.
-const peakCheckEvery = 64
 
 // peakRefines is how many of the passband's highest local maxima
 // peak refines.
@@ -296,6 +312,8 @@ func headroomPoints(ctx context.Context, c Cascade, w *Widths) error {
 	if m.frac {
 		return nil
 	}
+	m.halt = new(atomic.Bool)
+	defer context.AfterFunc(ctx, func() { m.halt.Store(true) })()
 	// The loudest tone the input word carries: its largest code.
 	in := 1 - math.Ldexp(1, 1-w.InputBits)
 	if !(in > 0) {
@@ -332,5 +350,6 @@ stages:
 		}
 		sw.Points = append(sw.Points, fmt.Sprintf("headroom: an input tone at %s %s can peak at %+.3f dB of this output's full scale (the stages' gain there, images included), so above %.3f dBFS it may saturate the %d-bit output", units.FormatComputedFrequency(f4), where, db, 20*math.Log10(top(i)/g), sw.OutputBits))
 	}
-	return nil
+	// A halted at reads 0, so no point stands once the context is done.
+	return ctx.Err()
 }

@@ -6,6 +6,7 @@ import (
 	"math"
 	"math/rand/v2"
 	"strings"
+	"sync/atomic"
 	"testing"
 )
 
@@ -243,7 +244,8 @@ func headroomAgainstModel(t *testing.T, notation string, fin float64, cas Cascad
 }
 
 // headroomPoints stops when its context is done: the peak search looks at
-// it every peakCheckEvery points.
+// it at every point of its search, and at itself every haltCheckEvery
+// stage magnitudes or image lines.
 func TestHeadroomStops(t *testing.T) {
 	spec, ch := designedInterp(t, "fir2 > cic5m2r16", 2.5e6, 1e6, 16, 16)
 	cas, words, err := FromChain(spec, ch)
@@ -261,5 +263,18 @@ func TestHeadroomStops(t *testing.T) {
 	}
 	if _, err := EvaluateContext(ctx, spec, ch, Settings{}, Signal{}); !errors.Is(err, context.Canceled) {
 		t.Errorf("Evaluate cancelled: %v, want context.Canceled", err)
+	}
+	// Once halted, at returns at once (0, which peak never reports).
+	m := newGainModel(cas, w)
+	if g := m.at(1, 1e5); !(g > 0) {
+		t.Fatalf("at = %v before the halt", g)
+	}
+	m.halt = new(atomic.Bool)
+	m.halt.Store(true)
+	if g := m.at(1, 1e5); g != 0 {
+		t.Errorf("at = %v after the halt, want 0", g)
+	}
+	if _, _, err := m.peak(ctx, cas, 1); !errors.Is(err, context.Canceled) {
+		t.Errorf("peak after the halt: %v, want context.Canceled", err)
 	}
 }
