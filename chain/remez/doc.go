@@ -42,9 +42,14 @@
 // spread start (unless the seeding fell back to it) and then by an equal
 // share of the points in every band (where many narrow bands each hold
 // far more extrema than their share of the grid, the even spread can level
-// to rounding level and break down), and the best run is kept. Short
-// designs, which start evenly spread, and GridOnly designs get no other
-// start. The
+// to rounding level and break down), and the best run is kept. A short
+// design, which starts evenly spread, gets that last start only when it
+// is asked for by length (Design), and keeps it only when its taps hold
+// the levelled response at the reference points: MinLength's short
+// designs get no other start, since from it the exchange can converge,
+// far beyond the length narrow bands with wide gaps need, on a response
+// so large between the bands that it misleads the search; GridOnly
+// designs get none. The
 // exchange keeps, among the
 // local extrema of every band (band edges included) and the old reference,
 // one point per run of equal sign and trims the surplus while keeping

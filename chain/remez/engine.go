@@ -120,8 +120,11 @@ type engine struct {
 	// its reference size
 	seedCnt []int
 	seedM   int
-	seeded  bool    // the start was scaled or coarse, not evenly spread
-	spread  bool    // uniformRef has laid a start
+	seeded  bool // the start was scaled or coarse, not evenly spread
+	spread  bool // uniformRef has laid a start
+	// probe is set for a design asked for by length (DesignContext): a
+	// short one that breaks down also tries bandRef (see design).
+	probe   bool
 	bestGap float64 // smallest relative gap of the last run's grid passes
 	// wdev is the deviations' WeightFunc-shaped twin measured with the
 	// Result's Deviations (see deviations), for MinLength.

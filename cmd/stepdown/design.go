@@ -297,6 +297,10 @@ func designFailure(ctx context.Context, err error, f designFlags) error {
 	var se *remez.SearchError
 	isSearch := errors.As(err, &se)
 	switch {
+	case errors.Is(err, remez.ErrRoundingLevel) && errors.Is(err, remez.ErrNotConverged) && f.taps > 0:
+		// Only a lower bound is known: the exchange broke down from every
+		// start with its levelled error at rounding level.
+		return usagef("--taps %d: the exchange broke down from every start with its error at the rounding level of double precision (below %.1g), as it does at lengths far beyond what the bands need; use fewer taps, or leave --taps out to find the shortest filter that meets them", f.taps, remez.RoundingLevel(f.taps))
 	case errors.Is(err, remez.ErrRoundingLevel) && f.taps > 0:
 		return usagef("--taps %d: more than these bands need: the response meets them to the rounding level of double precision (below %.1g), where the exchange cannot level its error; use fewer taps, or leave --taps out to find the shortest filter", f.taps, remez.RoundingLevel(f.taps))
 	case errors.Is(err, remez.ErrRoundingLevel) && isSearch && se.Met > 0 && min(f.dp, f.ds) <= roundingCause*remez.RoundingLevel(se.Met):
