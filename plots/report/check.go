@@ -355,7 +355,7 @@ const maxComparedFigure = 1e12
 
 // checkComparedFront refuses a front no plan writes, in report.json's own
 // names: a figure negative, not finite or beyond maxComparedFigure (or
-// positive below its inverse), or a
+// positive below its inverse), a chain named twice, or a
 // chain that meets the targets beaten on every axis of the plan's cost
 // (adders where every chain has them) by another that does, which the
 // front plot cannot draw.
@@ -379,6 +379,13 @@ func checkComparedFront(front []FrontChain, costKey string) error {
 				return fmt.Errorf("front[%d].%s = %s: out of range (a plan's are 0 or lie between %g and %g)", i, f.name, units.Clip(strconv.FormatFloat(f.v, 'g', -1, 64), 30), 1/maxComparedFigure, maxComparedFigure)
 			}
 		}
+	}
+	seen := make(map[string]int, len(front))
+	for i, c := range front {
+		if j, ok := seen[c.Notation]; ok {
+			return fmt.Errorf("front[%d] (%s) repeats front[%d]: not a plan's front", i, units.Clip(c.Notation, 40), j)
+		}
+		seen[c.Notation] = i
 	}
 	axis := "multiplies"
 	if adders {

@@ -254,8 +254,9 @@ func TestReadComparisonSameAsWhole(t *testing.T) {
 
 // ReadComparison refuses, in report.json's own names and with no Go
 // words, a front no plan writes: figures out of range (which the front
-// plot's log axes cannot draw, 1e290 made it panic) and a chain meeting
-// the targets beaten on every axis by another that does.
+// plot's log axes cannot draw, 1e290 made it panic), a chain named twice,
+// and a chain meeting the targets beaten on every axis by another that
+// does.
 func TestReadComparisonRefusesOddFronts(t *testing.T) {
 	spec, err := specfile.Example()
 	if err != nil {
@@ -286,6 +287,7 @@ func TestReadComparisonRefusesOddFronts(t *testing.T) {
 		}, "front[1].multiplies_per_input = 1e+290: out of range"},
 		{"tiny", func(f []Chain) { f[2].LatencyS = 1e-300 }, "front[2].latency_s = 1e-300: out of range"},
 		{"zero multiplies", func(f []Chain) { f[0].MultipliesPerOutput = 0 }, ""},
+		{"repeated", func(f []Chain) { f[2].Notation = "one" }, "front[2] (one) repeats front[0]"},
 		{"adders", func(f []Chain) { f[0].Adders, f[1].Adders, f[2].Adders = a(5), a(-2), a(9) }, "front[1].adders = -2"},
 		{"dominated", func(f []Chain) { f[0].LatencyS, f[0].MemoryBits = 1e-6, 700 }, "front[2] (three) is beaten on multiplies, memory and latency by front[0] (one)"},
 		{"dominated but missing", func(f []Chain) { f[0].LatencyS, f[0].MemoryBits, f[2].MeetsTargets = 1e-6, 700, false }, ""},
