@@ -118,12 +118,12 @@ func (e *engine) design() (*Result, error) {
 	// (slower but robust) unless the design began with it, then an equal
 	// share of points a band, with the iterations left, and keep whichever
 	// run did best. Short designs, which start evenly spread, are not
-	// retried: from other starts the exchange can converge, at lengths far
-	// beyond what narrow bands with wide gaps between them need, on a
-	// polynomial so large in the gaps that the taps cannot hold it, where
-	// the even spread breaks down at rounding level and MinLength searches
-	// lower, as it should (a review found 9 of 80 random such specs left
-	// without a length when they were).
+	// retried within a search (MinLength): from other starts the exchange
+	// can converge, at lengths far beyond what narrow bands with wide gaps
+	// between them need, on a polynomial so large in the gaps that the taps
+	// cannot hold it, where the even spread breaks down at rounding level
+	// and MinLength searches lower, as it should (a review found 9 of 80
+	// random such specs left without a length when they were).
 	starts := []func(){e.bandRef}
 	if !e.spread {
 		starts = []func(){e.uniformRef, e.bandRef}
