@@ -1398,12 +1398,19 @@ func aliasRun(ctx context.Context, c Cascade, w *Widths, sig Signal, res *BitTru
 // alias (m dB below it, rho = 10^(-m/20)) can have shrunk the true alias
 // to the measured one from at most 1 + rho times it.
 func aliasFlattered(res *BitTrueResult) bool {
-	m := res.AliasNoiseDB - res.AliasRejectionDB
-	allow := 20 * math.Log10(1+math.Pow(10, -m/20))
+	allow := aliasAllowanceDB(res)
 	if math.IsNaN(allow) {
 		return true
 	}
-	return res.AliasRejectionDB > res.AliasResponseDB+allow+aliasSlackDB
+	return res.AliasRejectionDB > res.AliasResponseDB+allow
+}
+
+// aliasAllowanceDB is how far above the response aliasFlattered lets a
+// bit-true alias figure lie: 20 log10(1 + rho) for the noise in its bin,
+// plus aliasSlackDB.
+func aliasAllowanceDB(res *BitTrueResult) float64 {
+	m := res.AliasNoiseDB - res.AliasRejectionDB
+	return 20*math.Log10(1+math.Pow(10, -m/20)) + aliasSlackDB
 }
 
 // aliasSlackDB is how far a bit-true alias figure may lie above the

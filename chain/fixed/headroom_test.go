@@ -8,6 +8,8 @@ import (
 	"strings"
 	"sync/atomic"
 	"testing"
+
+	"github.com/stepdown-dsp/stepdown/chain"
 )
 
 // For a decimation cascade, the in-band gain bound is the whole quantised
@@ -173,15 +175,7 @@ func TestHeadroomBoundAgainstModel(t *testing.T) {
 		{"fir4 > cic4m1r8", 1e6, 300e3},
 		{"fir3 > hb > cic3m1r10", 1e6, 150e3},
 	} {
-		spec, ch := designedInterp(t, tc.notation, tc.fin, tc.fp, 16, 16)
-		cas, words, err := FromChain(spec, ch)
-		if err != nil {
-			t.Fatal(err)
-		}
-		w, err := Plan(cas, words, Settings{})
-		if err != nil {
-			t.Fatal(err)
-		}
+		_, _, cas, words, w := plannedInterp(t, tc.notation, tc.fin, tc.fp)
 		for _, lines := range []int{maxImageLines, 2} {
 			headroomAgainstModel(t, tc.notation, tc.fin, cas, words, w, lines)
 		}
@@ -193,69 +187,55 @@ func TestHeadroomBoundAgainstModel(t *testing.T) {
 // positive taps' bound, which lines = 2 forces where the full sum is
 // cheap enough to make).
 func headroomAgainstModel(t *testing.T, notation string, fin float64, cas Cascade, words Words, w *Widths, lines int) {
-	tc := struct {
-		notation string
-		fin      float64
-	}{notation, fin}
-	{
-		gm := newGainModel(cas, w)
-		gm.lines = lines
-		fa := cas.protectedEdge()
-		level := 0.5 / gm.maxGainAt(fa) // the band's edge lifts most
-		for k := 0; k <= 40; k++ {
-			level = math.Min(level, 0.5/gm.maxGainAt(fa*float64(k)/40))
-		}
-		inMax := math.Ldexp(1, words.InputBits-1)
-		tight := 0.0 // the largest measured peak over its bound
-		for k := 0; k <= 40; k++ {
-			f := fa * float64(k) / 40
-			for _, phase := range []float64{0, math.Pi / 3} {
-				x := make([]int64, 4096)
-				for n := range x {
-					x[n] = int64(math.Round(level * (inMax - 1) * math.Cos(2*math.Pi*f/tc.fin*float64(n)+phase)))
+	gm := newGainModel(cas, w)
+	gm.lines = lines
+	fa := cas.protectedEdge()
+	level := 0.5 / gm.maxGainAt(fa) // the band's edge lifts most
+	for k := 0; k <= 40; k++ {
+		level = math.Min(level, 0.5/gm.maxGainAt(fa*float64(k)/40))
+	}
+	inMax := math.Ldexp(1, words.InputBits-1)
+	tight := 0.0 // the largest measured peak over its bound
+	for k := 0; k <= 40; k++ {
+		f := fa * float64(k) / 40
+		for _, phase := range []float64{0, math.Pi / 3} {
+			x := make([]int64, 4096)
+			for n := range x {
+				x[n] = int64(math.Round(level * (inMax - 1) * math.Cos(2*math.Pi*f/fin*float64(n)+phase)))
+			}
+			m, err := NewModel(cas, w)
+			if err != nil {
+				t.Fatal(err)
+			}
+			outs, err := m.Run(x)
+			if err != nil {
+				t.Fatal(err)
+			}
+			for i, y := range outs {
+				fs := math.Ldexp(1, w.Stages[i].OutputBits-1)
+				peak := 0.0
+				for _, v := range y[len(y)/4:] { // after the transients
+					peak = math.Max(peak, math.Abs(float64(v)))
 				}
-				m, err := NewModel(cas, w)
-				if err != nil {
-					t.Fatal(err)
+				if bound := gm.at(i, f)*level + 4/fs; peak/fs > bound {
+					t.Errorf("%s, stage %d, %.0f Hz: measured peak %.6f of full scale, bound %.6f", notation, i+1, f, peak/fs, bound)
 				}
-				outs, err := m.Run(x)
-				if err != nil {
-					t.Fatal(err)
-				}
-				for i, y := range outs {
-					fs := math.Ldexp(1, w.Stages[i].OutputBits-1)
-					peak := 0.0
-					for _, v := range y[len(y)/4:] { // after the transients
-						peak = math.Max(peak, math.Abs(float64(v)))
-					}
-					if bound := gm.at(i, f)*level + 4/fs; peak/fs > bound {
-						t.Errorf("%s, stage %d, %.0f Hz: measured peak %.6f of full scale, bound %.6f", tc.notation, i+1, f, peak/fs, bound)
-					}
-					tight = math.Max(tight, peak/fs/(gm.at(i, f)*level))
-				}
+				tight = math.Max(tight, peak/fs/(gm.at(i, f)*level))
 			}
 		}
-		// A bound far above every peak would pass whatever it said.
-		if tight < 0.95 {
-			t.Errorf("%s, images summed up to %d: the peaks reach at most %.3f of the bound: the test checks little", tc.notation, lines, tight)
-		}
-		t.Logf("%s, images summed up to %d: the peaks reach %.4f of the bound", tc.notation, lines, tight)
 	}
+	// A bound far above every peak would pass whatever it said.
+	if tight < 0.95 {
+		t.Errorf("%s, images summed up to %d: the peaks reach at most %.3f of the bound: the test checks little", notation, lines, tight)
+	}
+	t.Logf("%s, images summed up to %d: the peaks reach %.4f of the bound", notation, lines, tight)
 }
 
 // headroomPoints stops when its context is done: the peak search looks at
 // it at every point of its search, and at itself every haltCheckEvery
 // stage magnitudes or image lines.
 func TestHeadroomStops(t *testing.T) {
-	spec, ch := designedInterp(t, "fir2 > cic5m2r16", 2.5e6, 1e6, 16, 16)
-	cas, words, err := FromChain(spec, ch)
-	if err != nil {
-		t.Fatal(err)
-	}
-	w, err := Plan(cas, words, Settings{})
-	if err != nil {
-		t.Fatal(err)
-	}
+	spec, ch, cas, _, w := plannedInterp(t, "fir2 > cic5m2r16", 2.5e6, 1e6)
 	ctx, cancel := context.WithCancel(context.Background())
 	cancel()
 	if err := headroomPoints(ctx, cas, w); !errors.Is(err, context.Canceled) {
@@ -277,4 +257,20 @@ func TestHeadroomStops(t *testing.T) {
 	if _, _, err := m.peak(ctx, cas, 1); !errors.Is(err, context.Canceled) {
 		t.Errorf("peak after the halt: %v, want context.Canceled", err)
 	}
+}
+
+// plannedInterp is designedInterp's chain with 16-bit words, as package
+// fixed's cascade, its words and its plan.
+func plannedInterp(t *testing.T, notation string, fin, fp float64) (chain.Spec, *chain.Chain, Cascade, Words, *Widths) {
+	t.Helper()
+	spec, ch := designedInterp(t, notation, fin, fp, 16, 16)
+	cas, words, err := FromChain(spec, ch)
+	if err != nil {
+		t.Fatal(err)
+	}
+	w, err := Plan(cas, words, Settings{})
+	if err != nil {
+		t.Fatal(err)
+	}
+	return spec, ch, cas, words, w
 }

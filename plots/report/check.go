@@ -200,8 +200,7 @@ func (r *Report) Compare(cmp *Comparison) {
 	plan := cmp.plan
 	if plan == nil {
 		for _, f := range cmp.Front {
-			plan = append(plan, Chain{Notation: f.Notation, MultipliesPerOutput: f.MultipliesPerOutput,
-				MemoryBits: f.MemoryBits, LatencyS: f.LatencyS, MeetsTargets: f.MeetsTargets, Adders: f.Adders})
+			plan = append(plan, f.chain())
 		}
 	}
 	r.ComparedWith = cmp
@@ -356,27 +355,18 @@ const maxComparedFigure = 1e12
 // checkComparedFront refuses a front no plan writes, in report.json's own
 // names: a figure negative, not finite or beyond maxComparedFigure (or
 // positive below its inverse), a chain named twice, or a
-// chain that meets the targets beaten on every axis of the plan's cost
-// (adders where every chain has them) by another that does, which the
-// front plot cannot draw.
+// chain that meets the targets beaten by another that does (BeatenBy:
+// on adders where both have them), which the front plot cannot draw.
 func checkComparedFront(front []FrontChain, costKey string) error {
-	adders := len(front) > 0
 	for i, c := range front {
-		figs := []struct {
-			name string
-			v    float64
-		}{{costKey, c.MultipliesPerOutput}, {"memory_bits", float64(c.MemoryBits)}, {"latency_s", c.LatencyS}}
+		names := []string{costKey, "memory_bits", "latency_s", "adders"}
+		figs := []float64{c.MultipliesPerOutput, float64(c.MemoryBits), c.LatencyS, 0}
 		if c.Adders != nil {
-			figs = append(figs, struct {
-				name string
-				v    float64
-			}{"adders", float64(*c.Adders)})
-		} else {
-			adders = false
+			figs[3] = float64(*c.Adders)
 		}
-		for _, f := range figs {
-			if !(f.v == 0 || f.v >= 1/maxComparedFigure && f.v <= maxComparedFigure) {
-				return fmt.Errorf("front[%d].%s = %s: out of range (a plan's are 0 or lie between %g and %g)", i, f.name, units.Clip(strconv.FormatFloat(f.v, 'g', -1, 64), 30), 1/maxComparedFigure, maxComparedFigure)
+		for k, v := range figs {
+			if !(v == 0 || v >= 1/maxComparedFigure && v <= maxComparedFigure) {
+				return fmt.Errorf("front[%d].%s = %s: out of range (a plan's are 0 or lie between %g and %g)", i, names[k], units.Clip(strconv.FormatFloat(v, 'g', -1, 64), 30), 1/maxComparedFigure, maxComparedFigure)
 			}
 		}
 	}
@@ -387,27 +377,30 @@ func checkComparedFront(front []FrontChain, costKey string) error {
 		}
 		seen[c.Notation] = i
 	}
-	axis := "multiplies"
-	if adders {
-		axis = "adders"
+	chains := make([]Chain, len(front))
+	for i, f := range front {
+		chains[i] = f.chain()
 	}
-	cost := func(c FrontChain) float64 {
-		if adders {
-			return float64(*c.Adders)
+	for i, c := range chains {
+		if !c.MeetsTargets {
+			continue
 		}
-		return c.MultipliesPerOutput
-	}
-	for i, a := range front {
-		for j, b := range front {
-			if !a.MeetsTargets || !b.MeetsTargets || cost(b) > cost(a) || b.MemoryBits > a.MemoryBits || b.LatencyS > a.LatencyS {
-				continue
+		if by := BeatenBy(c, chains); len(by) > 0 {
+			b := chains[by[0].Rank-1]
+			axis := "multiplies"
+			if c.Adders != nil && b.Adders != nil {
+				axis = "adders"
 			}
-			if cost(b) < cost(a) || b.MemoryBits < a.MemoryBits || b.LatencyS < a.LatencyS {
-				return fmt.Errorf("front[%d] (%s) is beaten on %s, memory and latency by front[%d] (%s): not a plan's front", i, units.Clip(a.Notation, 40), axis, j, units.Clip(b.Notation, 40))
-			}
+			return fmt.Errorf("front[%d] (%s) is beaten on %s, memory and latency by front[%d] (%s): not a plan's front", i, units.Clip(c.Notation, 40), axis, by[0].Rank-1, units.Clip(b.Notation, 40))
 		}
 	}
 	return nil
+}
+
+// chain is f as a Chain of the figures BeatenBy compares.
+func (f FrontChain) chain() Chain {
+	return Chain{Notation: f.Notation, MultipliesPerOutput: f.MultipliesPerOutput,
+		MemoryBits: f.MemoryBits, LatencyS: f.LatencyS, MeetsTargets: f.MeetsTargets, Adders: f.Adders}
 }
 
 // comparedReport is what ReadComparison reads of a plan's report.json:

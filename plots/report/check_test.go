@@ -74,17 +74,7 @@ func TestReadComparison(t *testing.T) {
 		t.Fatal(err)
 	}
 	dir := t.TempDir()
-	write := func(name string, rep Report) string {
-		b, err := json.Marshal(rep)
-		if err != nil {
-			t.Fatal(err)
-		}
-		p := filepath.Join(dir, name)
-		if err := os.WriteFile(p, b, 0o644); err != nil {
-			t.Fatal(err)
-		}
-		return p
-	}
+	write := func(name string, rep Report) string { return writeReport(t, filepath.Join(dir, name), rep) }
 	good := Report{Schema: Schema, Command: "plan", Spec: NewSpec(spec)}
 	cmp, err := ReadComparison(write("good.json", good), spec)
 	if err != nil || cmp.Source != "the plan in good.json" {
@@ -221,14 +211,7 @@ func TestReadComparisonSameAsWhole(t *testing.T) {
 			c.interp = k%2 == 1
 			rep.Front = append(rep.Front, c)
 		}
-		b, err := json.Marshal(rep)
-		if err != nil {
-			t.Fatal(err)
-		}
-		p := filepath.Join(dir, "r.json")
-		if err := os.WriteFile(p, b, 0o644); err != nil {
-			t.Fatal(err)
-		}
+		p := writeReport(t, filepath.Join(dir, "r.json"), rep)
 		got, err := ReadComparison(p, spec)
 		if err != nil {
 			t.Fatalf("case %d: %v", k, err)
@@ -297,14 +280,7 @@ func TestReadComparisonRefusesOddFronts(t *testing.T) {
 	} {
 		rep := Report{Schema: Schema, Command: "plan", Spec: NewSpec(spec), Front: base()}
 		tc.edit(rep.Front)
-		b, err := json.Marshal(rep)
-		if err != nil {
-			t.Fatal(err)
-		}
-		p := filepath.Join(dir, "f.json")
-		if err := os.WriteFile(p, b, 0o644); err != nil {
-			t.Fatal(err)
-		}
+		p := writeReport(t, filepath.Join(dir, "f.json"), rep)
 		_, err = ReadComparison(p, spec)
 		switch {
 		case tc.frag == "" && err != nil:
@@ -313,4 +289,17 @@ func TestReadComparisonRefusesOddFronts(t *testing.T) {
 			t.Errorf("%s: %v, want it to say %q", tc.name, err, tc.frag)
 		}
 	}
+}
+
+// writeReport writes rep as report.json to path and returns path.
+func writeReport(t *testing.T, path string, rep Report) string {
+	t.Helper()
+	b, err := json.Marshal(rep)
+	if err != nil {
+		t.Fatal(err)
+	}
+	if err := os.WriteFile(path, b, 0o644); err != nil {
+		t.Fatal(err)
+	}
+	return path
 }
